@@ -1,0 +1,152 @@
+import { sql } from "drizzle-orm";
+import {
+  bigint,
+  datetime,
+  index,
+  int,
+  json,
+  mysqlEnum,
+  mysqlTable,
+  primaryKey,
+  smallint,
+  text,
+  uniqueIndex,
+  varchar,
+} from "drizzle-orm/mysql-core";
+
+const id = () => bigint("id", { mode: "number", unsigned: true }).autoincrement().primaryKey();
+const ref = (name: string) => bigint(name, { mode: "number", unsigned: true });
+const createdAt = () => datetime("created_at", { mode: "date", fsp: 3 }).notNull().default(sql`CURRENT_TIMESTAMP(3)`);
+const at = (name: string) => datetime(name, { mode: "date", fsp: 3 });
+
+export const ROLES = ["admin", "developer", "billing"] as const;
+export type Role = (typeof ROLES)[number];
+
+export const organizations = mysqlTable(
+  "organizations",
+  {
+    id: id(),
+    slug: varchar("slug", { length: 64 }).notNull(),
+    name: varchar("name", { length: 160 }).notNull(),
+    plan: varchar("plan", { length: 32 }).notNull().default("starter"),
+    createdAt: createdAt(),
+  },
+  (t) => [uniqueIndex("organizations_slug_uq").on(t.slug)],
+);
+
+export const users = mysqlTable(
+  "users",
+  {
+    id: id(),
+    email: varchar("email", { length: 254 }).notNull(),
+    name: varchar("name", { length: 160 }).notNull(),
+    passwordHash: varchar("password_hash", { length: 255 }).notNull(),
+    emailVerifiedAt: at("email_verified_at"),
+    createdAt: createdAt(),
+  },
+  (t) => [uniqueIndex("users_email_uq").on(t.email)],
+);
+
+export const memberships = mysqlTable(
+  "memberships",
+  {
+    userId: ref("user_id").notNull().references(() => users.id, { onDelete: "cascade" }),
+    organizationId: ref("organization_id").notNull().references(() => organizations.id, { onDelete: "cascade" }),
+    role: mysqlEnum("role", ROLES).notNull(),
+    createdAt: createdAt(),
+  },
+  (t) => [primaryKey({ columns: [t.userId, t.organizationId] }), index("memberships_org_idx").on(t.organizationId)],
+);
+
+export const apiKeys = mysqlTable(
+  "api_keys",
+  {
+    id: id(),
+    organizationId: ref("organization_id").notNull().references(() => organizations.id, { onDelete: "cascade" }),
+    createdBy: ref("created_by").references(() => users.id, { onDelete: "set null" }),
+    label: varchar("label", { length: 120 }).notNull(),
+    /** The public part of the key, shown in the portal and accepted in support requests. */
+    prefix: varchar("prefix", { length: 32 }).notNull(),
+    /** HMAC-SHA-256(pepper, secret) as lowercase hex; the secret itself is never stored. */
+    secretHash: varchar("secret_hash", { length: 64 }).notNull(),
+    scopes: json("scopes").$type<string[]>().notNull(),
+    createdAt: createdAt(),
+    lastUsedAt: at("last_used_at"),
+    expiresAt: at("expires_at"),
+    revokedAt: at("revoked_at"),
+    /** The key this one replaced when it was issued by a rotation. */
+    replacesKeyId: ref("replaces_key_id"),
+    /** Set on a rotated-out key: it keeps working until this instant. */
+    graceEndsAt: at("grace_ends_at"),
+  },
+  (t) => [
+    uniqueIndex("api_keys_prefix_uq").on(t.prefix),
+    uniqueIndex("api_keys_secret_hash_uq").on(t.secretHash),
+    index("api_keys_org_idx").on(t.organizationId),
+  ],
+);
+
+export const usageEvents = mysqlTable(
+  "usage_events",
+  {
+    id: id(),
+    requestId: varchar("request_id", { length: 40 }).notNull(),
+    keyId: ref("key_id").notNull(),
+    organizationId: ref("organization_id").notNull(),
+    endpoint: varchar("endpoint", { length: 64 }).notNull(),
+    status: smallint("status", { unsigned: true }).notNull(),
+    durationMs: int("duration_ms", { unsigned: true }).notNull(),
+    computeUnits: bigint("compute_units", { mode: "number", unsigned: true }).notNull(),
+    createdAt: createdAt(),
+  },
+  (t) => [
+    uniqueIndex("usage_events_request_uq").on(t.requestId),
+    index("usage_events_org_time_idx").on(t.organizationId, t.createdAt),
+    index("usage_events_key_time_idx").on(t.keyId, t.createdAt),
+  ],
+);
+
+export const auditEvents = mysqlTable(
+  "audit_events",
+  {
+    id: id(),
+    organizationId: ref("organization_id"),
+    actorUserId: ref("actor_user_id"),
+    /** "user", "key" or "system" (operator CLI, scheduled jobs). */
+    actorType: varchar("actor_type", { length: 16 }).notNull(),
+    action: varchar("action", { length: 64 }).notNull(),
+    targetType: varchar("target_type", { length: 32 }).notNull(),
+    targetId: varchar("target_id", { length: 64 }),
+    detail: json("detail").$type<Record<string, unknown>>(),
+    createdAt: createdAt(),
+  },
+  (t) => [index("audit_events_org_time_idx").on(t.organizationId, t.createdAt)],
+);
+
+/** Named models an organisation keeps (the explorer's templates and users' saved models). */
+export const savedModels = mysqlTable(
+  "saved_models",
+  {
+    id: id(),
+    organizationId: ref("organization_id").notNull().references(() => organizations.id, { onDelete: "cascade" }),
+    name: varchar("name", { length: 160 }).notNull(),
+    description: text("description").notNull(),
+    model: json("model").$type<unknown>().notNull(),
+    createdBy: ref("created_by").references(() => users.id, { onDelete: "set null" }),
+    createdAt: createdAt(),
+  },
+  (t) => [uniqueIndex("saved_models_org_name_uq").on(t.organizationId, t.name)],
+);
+
+export type Organization = typeof organizations.$inferSelect;
+export type NewOrganization = typeof organizations.$inferInsert;
+export type User = typeof users.$inferSelect;
+export type NewUser = typeof users.$inferInsert;
+export type Membership = typeof memberships.$inferSelect;
+export type ApiKey = typeof apiKeys.$inferSelect;
+export type NewApiKey = typeof apiKeys.$inferInsert;
+export type UsageEvent = typeof usageEvents.$inferSelect;
+export type NewUsageEvent = typeof usageEvents.$inferInsert;
+export type AuditEvent = typeof auditEvents.$inferSelect;
+export type NewAuditEvent = typeof auditEvents.$inferInsert;
+export type SavedModel = typeof savedModels.$inferSelect;

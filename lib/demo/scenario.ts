@@ -1,0 +1,73 @@
+// The demo scenario: invented organisations, people and models. Used by the seed, the docs' examples and
+// the explorer's templates. None of these companies or figures exist.
+
+export const DEMO_PASSWORD = "sumfold-demo-2026";
+
+export const demoOrganizations = [
+  { slug: "harrowgate-mutual", name: "Harrowgate Mutual", plan: "team" },
+  { slug: "kestrel-precision", name: "Kestrel Precision Works", plan: "starter" },
+] as const;
+
+export const demoPeople = [
+  { email: "ada.okafor@harrowgate.example", name: "Ada Okafor", memberships: [["harrowgate-mutual", "admin"]] },
+  { email: "tomas.lind@harrowgate.example", name: "Tomas Lind", memberships: [["harrowgate-mutual", "developer"]] },
+  { email: "priya.menon@harrowgate.example", name: "Priya Menon", memberships: [["harrowgate-mutual", "billing"]] },
+  {
+    email: "wen.castillo@kestrel.example",
+    name: "Wen Castillo",
+    memberships: [
+      ["kestrel-precision", "admin"],
+      ["harrowgate-mutual", "developer"],
+    ],
+  },
+] as const;
+
+/** Harrowgate's 2027 hail-damage book: a Poisson number of claims, each gamma-distributed (in EUR thousands). */
+export const aggregateClaimsModel = {
+  compound: {
+    count: { family: "poisson", lambda: 42 },
+    each: { family: "gamma", shape: 1.8, rate: 0.12 },
+  },
+} as const;
+
+/** Kestrel's gearbox housing: five stacked parts (mm), two machined (normal) and three cast (uniform). */
+export const toleranceStackModel = {
+  sum: [
+    { family: "normal", mu: 12.0, sigma: 0.012 },
+    { family: "normal", mu: 8.5, sigma: 0.01 },
+    { family: "uniform", a: 20.97, b: 21.03 },
+    { family: "uniform", a: 4.98, b: 5.02 },
+    { family: "uniform", a: 30.95, b: 31.05 },
+  ],
+} as const;
+
+/** Daily log-return (%) of Harrowgate's invented currency basket, modelled as a stable law. */
+export const stableReturnModel = {
+  family: "stable",
+  alpha: 1.7,
+  beta: -0.2,
+  scale: 0.45,
+  loc: 0.02,
+  param: "S0",
+} as const;
+
+export const demoModels = [
+  {
+    org: "harrowgate-mutual",
+    name: "Hail damage 2027 — aggregate claims",
+    description: "Poisson(42) claim count, gamma(1.8, 0.12) claim size in EUR thousands.",
+    model: aggregateClaimsModel,
+  },
+  {
+    org: "harrowgate-mutual",
+    name: "Currency basket — daily return",
+    description: "Stable law, alpha 1.7, skewed to losses (S0 parameterisation), in percent.",
+    model: stableReturnModel,
+  },
+  {
+    org: "kestrel-precision",
+    name: "Gearbox housing — length stack",
+    description: "Two machined parts (normal) and three cast parts (uniform), lengths in mm.",
+    model: toleranceStackModel,
+  },
+] as const;

@@ -1,0 +1,122 @@
+import { spawn, type ChildProcess } from "node:child_process";
+import { existsSync, mkdirSync, readdirSync, statSync } from "node:fs";
+import { join, resolve } from "node:path";
+import { ensureDebianPackages } from "./apt";
+import { appEnv, REPO, type Layout, type Secrets } from "./config";
+import { databaseUrl, startMariaDb, stopMariaDb, writeClientDefaults } from "./mariadb";
+import { applyMigrations } from "./migrate";
+import { startRedis, stopRedis } from "./redis";
+import { startRedisRest } from "../fakes/redis-rest";
+import { startSmtpSink } from "../fakes/smtp-sink";
+
+export const log = (m: string) => console.log(`[sumfold] ${m}`);
+
+/** Everything one running copy needs besides the web server: database, Redis, the REST stand-in, mail. */
+export interface Services {
+  env: Record<string, string>;
+  dbCreated: boolean;
+  stop: () => Promise<void>;
+}
+
+export async function startServices(l: Layout, secrets: Secrets): Promise<Services> {
+  ensureDebianPackages({ "mariadb-server": "mariadbd", "mariadb-client": "mariadb", "redis-server": "redis-server", "redis-tools": "redis-cli" }, log);
+  mkdirSync(l.root, { recursive: true });
+  const stops: (() => Promise<void>)[] = [];
+  const stop = async () => {
+    for (const s of stops.reverse()) {
+      try {
+        await s();
+      } catch (e) {
+        log(`while stopping: ${(e as Error).message}`);
+      }
+    }
+    stops.length = 0;
+  };
+  try {
+    const t0 = Date.now();
+    const { created } = await startMariaDb(l.db, log);
+    stops.push(() => stopMariaDb(l.db));
+    writeClientDefaults(l.db);
+    log(`MariaDB answering on 127.0.0.1:${l.db.port} (${Date.now() - t0} ms)`);
+    const url = databaseUrl(l.db);
+    await applyMigrations(url);
+    await startRedis(l.redis);
+    stops.push(() => stopRedis(l.redis));
+    const rest = await startRedisRest({ port: l.redisRestPort, token: secrets.UPSTASH_REDIS_REST_TOKEN, redisPort: l.redis.port });
+    stops.push(() => new Promise<void>((r) => rest.close(() => r())));
+    const mail = await startSmtpSink({ smtpPort: l.smtpPort, httpPort: l.mailboxPort, dir: l.mailDir });
+    stops.push(mail.close);
+    log(`Redis REST stand-in on 127.0.0.1:${l.redisRestPort}; SMTP sink on 127.0.0.1:${l.smtpPort}, mailbox http://127.0.0.1:${l.mailboxPort}`);
+    return { env: appEnv(l, secrets, url), dbCreated: created, stop };
+  } catch (e) {
+    await stop();
+    throw e;
+  }
+}
+
+const BUILD_INPUTS = ["app", "lib", "public", "openapi", "next.config.ts", "tailwind.config.ts", "postcss.config.mjs", "tsconfig.json", "package-lock.json"];
+
+function newestMtime(path: string): number {
+  if (!existsSync(path)) return 0;
+  const st = statSync(path);
+  if (!st.isDirectory()) return st.mtimeMs;
+  let newest = st.mtimeMs;
+  for (const entry of readdirSync(path)) newest = Math.max(newest, newestMtime(join(path, entry)));
+  return newest;
+}
+
+/** True when .next has no production build or any build input is newer than it. */
+export function buildIsStale(): boolean {
+  const id = resolve(REPO, ".next/BUILD_ID");
+  if (!existsSync(id)) return true;
+  const built = statSync(id).mtimeMs;
+  return BUILD_INPUTS.some((p) => newestMtime(resolve(REPO, p)) > built);
+}
+
+export function runBuild(env: Record<string, string>): Promise<void> {
+  log("building the web app (next build)...");
+  return new Promise((resolveP, reject) => {
+    const child = spawn(resolve(REPO, "node_modules/.bin/next"), ["build", "--webpack"], {
+      cwd: REPO,
+      stdio: "inherit",
+      env: { ...process.env, ...env, NODE_ENV: "production" },
+    });
+    child.once("exit", (code) => (code === 0 ? resolveP() : reject(new Error(`next build exited with ${code}`))));
+  });
+}
+
+/** Starts `next start` on 127.0.0.1 and resolves once it serves /api/v1/health. */
+export async function startNext(l: Layout, env: Record<string, string>, stdio: "inherit" | "ignore" = "inherit"): Promise<ChildProcess> {
+  const child = spawn(resolve(REPO, "node_modules/.bin/next"), ["start", "-H", "127.0.0.1", "-p", String(l.appPort)], {
+    cwd: REPO,
+    stdio: ["ignore", stdio, stdio],
+    // Vitest sets NODE_ENV=test; next start needs production to read its env and serve the build.
+    env: { ...process.env, ...env, NODE_ENV: "production", PORT: String(l.appPort) },
+  });
+  let exited = false;
+  child.once("exit", () => (exited = true));
+  const end = Date.now() + 60_000;
+  while (Date.now() < end && !exited) {
+    try {
+      const r = await fetch(`http://127.0.0.1:${l.appPort}/api/v1/health`);
+      if (r.status === 200 || r.status === 503) return child;
+    } catch {
+      /* not up yet */
+    }
+    await new Promise((r) => setTimeout(r, 200));
+  }
+  child.kill("SIGTERM");
+  throw new Error(exited ? "next start exited early" : "next start did not answer within 60 s");
+}
+
+export function stopChild(child: ChildProcess | null, graceMs = 8000): Promise<void> {
+  if (!child || child.exitCode !== null || child.signalCode !== null) return Promise.resolve();
+  return new Promise((r) => {
+    const t = setTimeout(() => child.kill("SIGKILL"), graceMs);
+    child.once("exit", () => {
+      clearTimeout(t);
+      r();
+    });
+    child.kill("SIGTERM");
+  });
+}

@@ -1,0 +1,22 @@
+import { fileURLToPath } from "node:url";
+import { defineConfig } from "vitest/config";
+
+// Unit tests (pure code, no services) and integration tests (real MariaDB, SMTP sink, Redis REST
+// stand-in, started by scripts/test.ts) share one config; the browser tests live in tests/browser and
+// run against `next start`.
+export default defineConfig({
+  resolve: {
+    alias: {
+      "@": fileURLToPath(new URL("./", import.meta.url)),
+      "server-only": fileURLToPath(new URL("./tests/support/server-only-stub.ts", import.meta.url)),
+    },
+  },
+  test: {
+    include: ["tests/**/*.test.ts"],
+    testTimeout: 30_000,
+    hookTimeout: 120_000,
+    pool: "forks",
+    fileParallelism: true,
+    maxWorkers: 2,
+  },
+});
