@@ -20,17 +20,20 @@ export interface Layout {
 
 export const REPO = resolve(import.meta.dirname, "../..");
 
+const envPort = (name: string, fallback: number) => Number(process.env[name] ?? fallback);
+
+/** The demo copy (`npm start`). Every port and the data dir can be moved by environment variables. */
 export function demoLayout(secrets: Secrets): Layout {
-  const root = resolve(REPO, ".data");
+  const root = resolve(process.env.SUMFOLD_DATA_DIR ?? resolve(REPO, ".data"));
   return {
     name: "demo",
     root,
-    appPort: Number(process.env.PORT ?? 3000),
-    db: { root: resolve(root, "db"), port: 3316, database: "sumfold", user: "sumfold", password: secrets.DB_PASSWORD },
-    redis: { root: resolve(root, "redis"), port: 6389 },
-    redisRestPort: 8079,
-    smtpPort: 2525,
-    mailboxPort: 8025,
+    appPort: envPort("PORT", 3000),
+    db: { root: resolve(root, "db"), port: envPort("SUMFOLD_DB_PORT", 3316), database: "sumfold", user: "sumfold", password: secrets.DB_PASSWORD },
+    redis: { root: resolve(root, "redis"), port: envPort("SUMFOLD_REDIS_PORT", 6389) },
+    redisRestPort: envPort("SUMFOLD_REDIS_REST_PORT", 8079),
+    smtpPort: envPort("SUMFOLD_SMTP_PORT", 2525),
+    mailboxPort: envPort("SUMFOLD_MAILBOX_PORT", 8025),
     mailDir: resolve(root, "mail"),
     spoolDir: resolve(root, "spool"),
   };
@@ -61,7 +64,7 @@ export interface Secrets {
 const SECRET_NAMES: (keyof Secrets)[] = ["NEXTAUTH_SECRET", "SUMFOLD_KEY_PEPPER", "DB_PASSWORD", "UPSTASH_REDIS_REST_TOKEN"];
 
 /** Reads the git-ignored secrets file, adding any secret that is missing (first run). */
-export function loadOrCreateSecrets(file = resolve(REPO, ".env.local")): Secrets {
+export function loadOrCreateSecrets(file = process.env.SUMFOLD_ENV_FILE ?? resolve(REPO, ".env.local")): Secrets {
   const current: Record<string, string> = {};
   if (existsSync(file)) {
     for (const line of readFileSync(file, "utf8").split("\n")) {

@@ -1,0 +1,74 @@
+// `npm start` on its own data dir and ports: the first run initialises and seeds, the second run reuses
+// everything (no install, no init, no seed, no build), and a second MariaDB on the same data dir is refused.
+import { spawn } from "node:child_process";
+import { closeSync, mkdtempSync, openSync, readFileSync, rmSync } from "node:fs";
+import { join } from "node:path";
+import { afterAll, describe, expect, it } from "vitest";
+import { REPO } from "../../scripts/lib/config";
+import { startMariaDb } from "../../scripts/lib/mariadb";
+
+const dir = mkdtempSync(join("/tmp", "sumfold-start-"));
+const env: NodeJS.ProcessEnv = {
+  ...process.env,
+  NODE_ENV: "production",
+  SUMFOLD_DATA_DIR: join(dir, "data"),
+  SUMFOLD_ENV_FILE: join(dir, "env"),
+  PORT: "3190",
+  SUMFOLD_DB_PORT: "3391",
+  SUMFOLD_REDIS_PORT: "6391",
+  SUMFOLD_REDIS_REST_PORT: "8091",
+  SUMFOLD_SMTP_PORT: "2591",
+  SUMFOLD_MAILBOX_PORT: "8191",
+};
+
+let runs = 0;
+afterAll(() => rmSync(dir, { recursive: true, force: true }));
+
+/** Runs `npm start` until it is ready, calls `whileUp`, then stops it with SIGTERM and returns its log. */
+async function runStart(whileUp: () => Promise<void> = async () => {}): Promise<string> {
+  // Output goes to a file, not a pipe: npm exits at once on SIGTERM while the start script is still
+  // stopping its services, and a pipe would lose the rest of the log.
+  const logFile = join(dir, `start-${++runs}.log`);
+  const fd = openSync(logFile, "w");
+  const child = spawn("npm", ["start"], { cwd: REPO, env, detached: true, stdio: ["ignore", fd, fd] });
+  closeSync(fd);
+  const read = () => readFileSync(logFile, "utf8");
+  const end = Date.now() + 240_000;
+  while (!/\[sumfold\] ready in/.test(read()) && Date.now() < end && child.exitCode === null) {
+    await new Promise((r) => setTimeout(r, 200));
+  }
+  try {
+    expect(read()).toMatch(/\[sumfold\] ready in/);
+    const res = await fetch("http://127.0.0.1:3190/");
+    expect(res.status).toBe(200);
+    await whileUp();
+  } finally {
+    process.kill(-child.pid!, "SIGTERM");
+    const stopBy = Date.now() + 30_000;
+    while (!/\[sumfold\] stopped/.test(read()) && Date.now() < stopBy) await new Promise((r) => setTimeout(r, 100));
+  }
+  return read();
+}
+
+describe("npm start", () => {
+  it("is idempotent: the second run reuses the data, the build and the seed", async () => {
+    const first = await runStart(async () => {
+      await expect(
+        startMariaDb({ root: join(dir, "data", "db"), port: 3392, database: "sumfold", user: "sumfold", password: "x" }, () => {}),
+      ).rejects.toThrow(/already running/);
+    });
+    expect(first).toMatch(/initialising a private MariaDB data dir/);
+    expect(first).toMatch(/seeded the demo scenario/);
+    expect(first).toMatch(/\[sumfold\] stopped/);
+
+    const second = await runStart();
+    expect(second).not.toMatch(/initialising/);
+    expect(second).not.toMatch(/seeded the demo scenario/);
+    expect(second).not.toMatch(/installing/);
+    expect(second).not.toMatch(/building the web app/);
+    expect(second).toMatch(/demo data already present/);
+    expect(second).toMatch(/\[sumfold\] stopped/);
+    const ready = Number(/ready in ([\d.]+) s/.exec(second)![1]);
+    console.log(`second npm start ready in ${ready} s`);
+  }, 600_000);
+});
