@@ -39,16 +39,18 @@ export function demoLayout(secrets: Secrets): Layout {
   };
 }
 
+/** A test run's copy. SUMFOLD_TEST_PORT_OFFSET shifts every port so two runs can share a machine. */
 export function testLayout(root: string): Layout {
+  const o = Number(process.env.SUMFOLD_TEST_PORT_OFFSET ?? 0);
   return {
     name: "test",
     root,
-    appPort: 3100,
-    db: { root: resolve(root, "db"), port: 3326, database: "sumfold_test", user: "sumfold", password: "test-only-password", bufferPool: "64M" },
-    redis: { root: resolve(root, "redis"), port: 6399 },
-    redisRestPort: 8099,
-    smtpPort: 2535,
-    mailboxPort: 8035,
+    appPort: 3100 + o,
+    db: { root: resolve(root, "db"), port: 3326 + o, database: "sumfold_test", user: "sumfold", password: "test-only-password", bufferPool: "64M" },
+    redis: { root: resolve(root, "redis"), port: 6399 + o },
+    redisRestPort: 8099 + o,
+    smtpPort: 2535 + o,
+    mailboxPort: 8035 + o,
     mailDir: resolve(root, "mail"),
     spoolDir: resolve(root, "spool"),
   };

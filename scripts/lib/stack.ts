@@ -67,7 +67,7 @@ function newestMtime(path: string): number {
 
 /** True when .next has no production build or any build input is newer than it. */
 export function buildIsStale(): boolean {
-  const id = resolve(REPO, ".next/BUILD_ID");
+  const id = resolve(REPO, process.env.SUMFOLD_NEXT_DIST ?? ".next", "BUILD_ID");
   if (!existsSync(id)) return true;
   const built = statSync(id).mtimeMs;
   return BUILD_INPUTS.some((p) => newestMtime(resolve(REPO, p)) > built);

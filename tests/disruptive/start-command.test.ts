@@ -7,18 +7,19 @@ import { afterAll, describe, expect, it } from "vitest";
 import { REPO } from "../../scripts/lib/config";
 import { startMariaDb } from "../../scripts/lib/mariadb";
 
+const o = Number(process.env.SUMFOLD_TEST_PORT_OFFSET ?? 0);
 const dir = mkdtempSync(join("/tmp", "sumfold-start-"));
 const env: NodeJS.ProcessEnv = {
   ...process.env,
   NODE_ENV: "production",
   SUMFOLD_DATA_DIR: join(dir, "data"),
   SUMFOLD_ENV_FILE: join(dir, "env"),
-  PORT: "3190",
-  SUMFOLD_DB_PORT: "3391",
-  SUMFOLD_REDIS_PORT: "6391",
-  SUMFOLD_REDIS_REST_PORT: "8091",
-  SUMFOLD_SMTP_PORT: "2591",
-  SUMFOLD_MAILBOX_PORT: "8191",
+  PORT: String(3190 + o),
+  SUMFOLD_DB_PORT: String(3391 + o),
+  SUMFOLD_REDIS_PORT: String(6391 + o),
+  SUMFOLD_REDIS_REST_PORT: String(8091 + o),
+  SUMFOLD_SMTP_PORT: String(2591 + o),
+  SUMFOLD_MAILBOX_PORT: String(8191 + o),
 };
 
 let runs = 0;
@@ -39,7 +40,7 @@ async function runStart(whileUp: () => Promise<void> = async () => {}): Promise<
   }
   try {
     expect(read()).toMatch(/\[sumfold\] ready in/);
-    const res = await fetch("http://127.0.0.1:3190/");
+    const res = await fetch(`http://127.0.0.1:${3190 + o}/`);
     expect(res.status).toBe(200);
     await whileUp();
   } finally {
@@ -54,7 +55,7 @@ describe("npm start", () => {
   it("is idempotent: the second run reuses the data, the build and the seed", async () => {
     const first = await runStart(async () => {
       await expect(
-        startMariaDb({ root: join(dir, "data", "db"), port: 3392, database: "sumfold", user: "sumfold", password: "x" }, () => {}),
+        startMariaDb({ root: join(dir, "data", "db"), port: 3392 + o, database: "sumfold", user: "sumfold", password: "x" }, () => {}),
       ).rejects.toThrow(/already running/);
     });
     expect(first).toMatch(/initialising a private MariaDB data dir/);

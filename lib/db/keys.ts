@@ -1,0 +1,141 @@
+import "server-only";
+import { and, desc, eq, inArray, isNull, or, gt, sql } from "drizzle-orm";
+import { generateKeyMaterial, hashKey, pepper } from "@/lib/api/key-format";
+import { GRACE_PERIODS, type GracePeriod } from "@/lib/api/key-state";
+import type { Scope } from "@/lib/api/scopes";
+import { getDb } from "./client";
+import { recordAudit } from "./audit";
+import { apiKeys, organizations, users, type ApiKey } from "./schema";
+
+export type Actor = { type: "user"; userId: number } | { type: "system" };
+
+const actorFields = (a: Actor) => ({ actorType: a.type, actorUserId: a.type === "user" ? a.userId : null });
+
+/** Creates a key; returns the stored row and the secret, which is never available again. */
+export async function createKey(input: {
+  organizationId: number;
+  createdBy: number | null;
+  label: string;
+  scopes: Scope[];
+  expiresAt?: Date | null;
+  replacesKeyId?: number | null;
+  actor: Actor;
+}): Promise<{ key: ApiKey; secret: string }> {
+  const db = getDb();
+  const { secret, prefix } = generateKeyMaterial();
+  return db.transaction(async (tx) => {
+    const [res] = await tx.insert(apiKeys).values({
+      organizationId: input.organizationId,
+      createdBy: input.createdBy,
+      label: input.label,
+      prefix,
+      secretHash: hashKey(secret, pepper()),
+      scopes: input.scopes,
+      expiresAt: input.expiresAt ?? null,
+      replacesKeyId: input.replacesKeyId ?? null,
+    });
+    const [key] = await tx.select().from(apiKeys).where(eq(apiKeys.id, res.insertId));
+    await recordAudit(
+      {
+        organizationId: input.organizationId,
+        ...actorFields(input.actor),
+        action: input.replacesKeyId ? "key.rotated_in" : "key.created",
+        targetType: "api_key",
+        targetId: String(key.id),
+        detail: { label: key.label, prefix, scopes: input.scopes },
+      },
+      tx,
+    );
+    return { key, secret };
+  });
+}
+
+/** The key row for a presented key's hash, with its organisation's plan. */
+export async function getKeyByHash({ secretHash }: { secretHash: string }) {
+  const rows = await getDb()
+    .select({ key: apiKeys, plan: organizations.plan })
+    .from(apiKeys)
+    .innerJoin(organizations, eq(organizations.id, apiKeys.organizationId))
+    .where(eq(apiKeys.secretHash, secretHash))
+    .limit(1);
+  return rows[0] ?? null;
+}
+
+export async function listKeysByOrg({ organizationId, createdBy }: { organizationId: number; createdBy?: number }) {
+  return getDb()
+    .select({ key: apiKeys, creatorName: users.name, creatorEmail: users.email })
+    .from(apiKeys)
+    .leftJoin(users, eq(users.id, apiKeys.createdBy))
+    .where(and(eq(apiKeys.organizationId, organizationId), createdBy === undefined ? undefined : eq(apiKeys.createdBy, createdBy)))
+    .orderBy(desc(apiKeys.createdAt), desc(apiKeys.id));
+}
+
+export async function getKeyInOrg({ organizationId, keyId }: { organizationId: number; keyId: number }) {
+  const [row] = await getDb().select().from(apiKeys).where(and(eq(apiKeys.id, keyId), eq(apiKeys.organizationId, organizationId)));
+  return row ?? null;
+}
+
+/** Revokes a key now. Returns false when the key is not in the organisation or already revoked. */
+export async function revokeKey({ organizationId, keyId, actor }: { organizationId: number; keyId: number; actor: Actor }): Promise<boolean> {
+  return getDb().transaction(async (tx) => {
+    const now = new Date();
+    const [res] = await tx
+      .update(apiKeys)
+      .set({ revokedAt: now, graceEndsAt: null })
+      .where(
+        and(eq(apiKeys.id, keyId), eq(apiKeys.organizationId, organizationId), or(isNull(apiKeys.revokedAt), gt(apiKeys.revokedAt, now))),
+      );
+    if (res.affectedRows === 0) return false;
+    await recordAudit({ organizationId, ...actorFields(actor), action: "key.revoked", targetType: "api_key", targetId: String(keyId) }, tx);
+    return true;
+  });
+}
+
+/**
+ * Rotates a key: issues a new key with the same label, scopes and expiry, and lets the old one keep working
+ * until the grace period ends (it is then revoked). Returns null when the key cannot be rotated.
+ */
+export async function rotateKey(input: { organizationId: number; keyId: number; grace: GracePeriod; actor: Actor; createdBy: number | null }) {
+  const old = await getKeyInOrg(input);
+  const now = new Date();
+  if (!old || (old.revokedAt && old.revokedAt <= now) || (old.expiresAt && old.expiresAt <= now)) return null;
+  const end = new Date(now.getTime() + GRACE_PERIODS[input.grace]);
+  const created = await createKey({
+    organizationId: input.organizationId,
+    createdBy: input.createdBy,
+    label: old.label,
+    scopes: old.scopes as Scope[],
+    expiresAt: old.expiresAt,
+    replacesKeyId: old.id,
+    actor: input.actor,
+  });
+  await getDb().update(apiKeys).set({ revokedAt: end, graceEndsAt: end }).where(eq(apiKeys.id, old.id));
+  await recordAudit({
+    organizationId: input.organizationId,
+    ...actorFields(input.actor),
+    action: "key.rotated_out",
+    targetType: "api_key",
+    targetId: String(old.id),
+    detail: { graceEndsAt: end.toISOString(), replacedBy: created.key.id },
+  });
+  return { ...created, graceEndsAt: end };
+}
+
+/** Writes last-used times gathered in memory (one statement per flush, not per request). */
+export async function touchKeys(lastUsed: Map<number, Date>): Promise<void> {
+  if (lastUsed.size === 0) return;
+  const ids = [...lastUsed.keys()];
+  const cases = sql.join(
+    ids.map((id) => sql`WHEN ${id} THEN ${lastUsed.get(id)!}`),
+    sql` `,
+  );
+  await getDb()
+    .update(apiKeys)
+    .set({ lastUsedAt: sql`GREATEST(COALESCE(${apiKeys.lastUsedAt}, '1970-01-01'), CASE ${apiKeys.id} ${cases} END)` })
+    .where(inArray(apiKeys.id, ids));
+}
+
+export async function getOrgBySlug({ slug }: { slug: string }) {
+  const [row] = await getDb().select().from(organizations).where(eq(organizations.slug, slug));
+  return row ?? null;
+}
