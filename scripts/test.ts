@@ -62,8 +62,11 @@ try {
   log("type-checking (tsc --noEmit)...");
   code = await run(bin("tsc"), ["--noEmit", "-p", "."], env);
   if (code === 0) {
-    if (buildIsStale()) await runBuild(services.env);
-    next = await startNext(layout, services.env, "ignore");
+    // SUMFOLD_TEST_NO_SERVER=1 skips the build and `next start` for quick runs of tests that need neither.
+    if (process.env.SUMFOLD_TEST_NO_SERVER !== "1") {
+      if (buildIsStale()) await runBuild(services.env);
+      next = await startNext(layout, services.env, "ignore");
+    }
     const vitest = bin("vitest");
     const selected = args.length > 0 ? args : [];
     code = await run(vitest, ["run", "--exclude", "tests/disruptive/**", ...(selected.length ? ["--passWithNoTests"] : []), ...selected], env);

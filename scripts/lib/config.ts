@@ -95,6 +95,7 @@ export function appEnv(l: Layout, secrets: Secrets, dbUrl: string): Record<strin
   const base = `http://127.0.0.1:${l.appPort}`;
   return {
     NEXT_TELEMETRY_DISABLED: "1",
+    NEXT_MANUAL_SIG_HANDLE: "true",
     DATABASE_URL: dbUrl,
     NEXTAUTH_URL: base,
     SUMFOLD_BASE_URL: base,

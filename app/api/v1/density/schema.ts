@@ -1,0 +1,34 @@
+import { AtomSchema, Diagnostics, GridSpec, Meta, Points } from "@/lib/api/common-schemas";
+import { modelRequest } from "@/lib/api/model-field";
+import { z } from "@/lib/api/zod";
+
+export const { doc: DensityRequest, body: DensityBody } = modelRequest("DensityRequest", {
+  x: Points.optional().openapi({ description: "arbitrary points, evaluated pointwise (good for tails); or give grid; neither: an automatic grid" }),
+  grid: GridSpec.optional(),
+  method: z.enum(["auto", "fft", "gil-pelaez"]).optional().openapi({ description: "default auto: FFT on grids, Gil-Pelaez at points" }),
+  tolerance: z
+    .number()
+    .min(1e-14, { error: "tolerance below 1e-14 cannot be met in double precision" })
+    .max(0.1, { error: "tolerance must be at most 0.1" })
+    .optional()
+    .openapi({ description: "target absolute error of pdf and cdf (default 1e-10)" }),
+  range: z
+    .object({ from: z.number(), to: z.number() })
+    .strict()
+    .optional()
+    .openapi({ description: "override of the window [from, to) the inversion periodises over" }),
+  maxFrequency: z.number().positive().optional().openapi({ description: "override of the largest |t| used" }),
+});
+
+export const DensityResponse = z
+  .object({
+    x: z.array(z.number()),
+    pdf: z.array(z.number()).optional().openapi({ description: "density of the continuous part (absent for lattice or discrete laws)" }),
+    pmf: z.array(z.number()).optional().openapi({ description: "probability at each x (lattice and discrete laws)" }),
+    cdf: z.array(z.number()),
+    sf: z.array(z.number()).openapi({ description: "P(X > x), computed directly: accurate in relative terms in the upper tail" }),
+    atoms: z.array(AtomSchema),
+    diagnostics: Diagnostics,
+    meta: Meta,
+  })
+  .openapi("DensityResponse");

@@ -1,0 +1,25 @@
+import { Meta } from "@/lib/api/common-schemas";
+import { z } from "@/lib/api/zod";
+
+export const FamilyParameter = z
+  .object({
+    name: z.string(),
+    description: z.string(),
+    range: z.string().openapi({ description: "the allowed values, e.g. (0, inf)" }),
+    default: z.union([z.number(), z.string()]).optional(),
+  })
+  .openapi("FamilyParameter");
+
+export const Family = z
+  .object({
+    family: z.string(),
+    title: z.string(),
+    parameters: z.array(FamilyParameter),
+    support: z.string(),
+    kind: z.string().openapi({ description: "continuous, lattice or point" }),
+    cf: z.string().openapi({ description: "the characteristic function as text" }),
+    moments: z.string().openapi({ description: "which moments exist" }),
+  })
+  .openapi("Family");
+
+export const FamiliesResponse = z.object({ families: z.array(Family), meta: Meta }).openapi("FamiliesResponse");

@@ -1,0 +1,10 @@
+// GET /api/v1/openapi.json: the OpenAPI 3.1 document (no key), generated from the handlers' zod schemas.
+import { buildOpenApiDocument } from "@/lib/api/openapi";
+
+export const dynamic = "force-static";
+
+export function GET() {
+  return Response.json(buildOpenApiDocument(), {
+    headers: { "access-control-allow-origin": "*", "cache-control": "public, max-age=300" },
+  });
+}

@@ -1,0 +1,31 @@
+import { Diagnostics, Meta } from "@/lib/api/common-schemas";
+import { modelRequest } from "@/lib/api/model-field";
+import { z } from "@/lib/api/zod";
+
+export const { doc: QuantilesRequest, body: QuantilesBody } = modelRequest("QuantilesRequest", {
+  p: z
+    .array(
+      z
+        .number({ error: "each level must be a number" })
+        .gt(0, { error: "levels must be strictly between 0 and 1" })
+        .lt(1, { error: "levels must be strictly between 0 and 1" }),
+    )
+    .min(1, { error: "give at least one level p" })
+    .max(1000, { error: "at most 1000 levels per request" })
+    .openapi({ description: "levels in (0, 1); the quantile is the smallest x with F(x) >= p" }),
+  expectedShortfall: z
+    .boolean()
+    .optional()
+    .openapi({ description: "also return E[X | X >= VaR_p] (tail value at risk) for each level" }),
+  tolerance: z.number().min(1e-14).max(0.1).optional().openapi({ description: "target absolute error of the cdf used (default 1e-10)" }),
+});
+
+export const QuantilesResponse = z
+  .object({
+    p: z.array(z.number()),
+    x: z.array(z.number()),
+    expectedShortfall: z.array(z.number().nullable()).optional(),
+    diagnostics: Diagnostics.or(z.record(z.string(), z.unknown())),
+    meta: Meta,
+  })
+  .openapi("QuantilesResponse");

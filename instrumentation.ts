@@ -1,0 +1,20 @@
+// Runs once when the Next.js server starts: flush usage metering on shutdown and replay any spool.
+export async function register() {
+  if (process.env.NEXT_RUNTIME !== "nodejs") return;
+  const { flushUsage } = await import("./lib/api/metering");
+  let stopping = false;
+  const stop = async (signal: string) => {
+    if (stopping) return;
+    stopping = true;
+    try {
+      await flushUsage();
+    } finally {
+      console.log(`[sumfold] usage flushed on ${signal}; exiting`);
+      process.exit(0);
+    }
+  };
+  // NEXT_MANUAL_SIG_HANDLE=true (set by the start and test commands) leaves signals to us.
+  process.on("SIGTERM", () => void stop("SIGTERM"));
+  process.on("SIGINT", () => void stop("SIGINT"));
+  void flushUsage().catch(() => {});
+}

@@ -1,0 +1,99 @@
+import { MAX_GRID_POINTS, MAX_REPEAT } from "@/lib/cf/limits";
+import { FamilySchema, LatticeSchema, SampleSchema } from "@/lib/cf/schema";
+import { z } from "./zod";
+
+// The model notation for the OpenAPI document: the core's family and leaf schemas, with the recursive nodes
+// restated here so each refers to the named "Model" component (the generator cannot name the core's inner
+// lazy references). Validation does not use this copy: the core's validateModel checks every request.
+const docFinite = z.number();
+export const ModelRef: z.ZodType = z
+  .lazy(() =>
+    z.union([
+      FamilySchema,
+      z.object({ sum: z.array(ModelRef).min(1) }).strict().openapi("SumNode", { description: "independent sum of the terms" }),
+      z.object({ scale: docFinite, of: ModelRef }).strict().openapi("ScaleNode", { description: "the law of a X" }),
+      z.object({ shift: docFinite, of: ModelRef }).strict().openapi("ShiftNode", { description: "the law of X + b" }),
+      z.object({ repeat: z.number().int().min(1).max(MAX_REPEAT), of: ModelRef }).strict().openapi("RepeatNode", { description: "sum of n independent copies" }),
+      z
+        .object({ mix: z.array(z.object({ weight: z.number().positive(), of: ModelRef }).strict()).min(1) })
+        .strict()
+        .openapi("MixNode", { description: "mixture; weights positive, summing to 1 within 1e-12" }),
+      z
+        .object({ compound: z.object({ count: ModelRef, each: ModelRef }).strict() })
+        .strict()
+        .openapi("CompoundNode", { description: "random sum of `count` (a law on 0, 1, 2, ...) independent copies of `each`" }),
+      LatticeSchema,
+      SampleSchema,
+    ]),
+  )
+  .openapi("Model", {
+    description:
+      "A model in Sumfold's notation: a named law { family, ...parameters }, or sum, scale, shift, repeat, mix, compound, lattice or sample. See /docs/models.",
+  });
+
+const finite = (what: string) => z.number({ error: `${what} must be a finite number` });
+
+export const GridSpec = z
+  .object({
+    from: finite("grid.from"),
+    to: finite("grid.to"),
+    count: z
+      .number()
+      .int({ error: "grid.count must be an integer" })
+      .min(2, { error: "grid.count must be at least 2" })
+      .max(MAX_GRID_POINTS, { error: `grid.count exceeds the limit of ${MAX_GRID_POINTS} points` }),
+  })
+  .strict()
+  .refine((g) => g.to > g.from, { error: "grid.to must be greater than grid.from", path: ["to"] })
+  .openapi("GridSpec", { description: "count equally spaced points from `from` to `to`, both included." });
+
+export const Points = z
+  .array(finite("each point"))
+  .min(1, { error: "give at least one point" })
+  .max(MAX_GRID_POINTS, { error: `at most ${MAX_GRID_POINTS} points` });
+
+export const Meta = z
+  .object({
+    requestId: z.string().openapi({ example: "3b0f0a52-95c3-4f0e-8a4e-8f3f7c0d51a2" }),
+    computeUnits: z.number().int().openapi({ example: 1 }),
+    engineVersion: z.string().openapi({ example: "0.1.0" }),
+    elapsedMs: z.number().openapi({ example: 1.8 }),
+  })
+  .openapi("Meta");
+
+export const AtomSchema = z.object({ x: z.number(), p: z.number() }).openapi("Atom");
+
+export const Diagnostics = z
+  .object({
+    method: z.string().openapi({ description: "inversion method used: fft, gil-pelaez, lattice-exact, lattice-fft or atoms" }),
+    gridSize: z.number(),
+    terms: z.number(),
+    frequencyStep: z.number(),
+    maxFrequency: z.number(),
+    range: z.object({ from: z.number(), to: z.number() }),
+    capturedMass: z.number(),
+    error: z
+      .object({
+        aliasing: z.number(),
+        truncation: z.number(),
+        rounding: z.number(),
+        pdf: z.number().nullable(),
+        cdf: z.number(),
+      })
+      .openapi({ description: "upper estimates of the absolute error over the returned points" }),
+    levels: z.number(),
+    notes: z.array(z.string()),
+  })
+  .passthrough()
+  .openapi("Diagnostics");
+
+export const Problem = z
+  .object({
+    type: z.string().url(),
+    title: z.string(),
+    status: z.number().int(),
+    detail: z.string(),
+    instance: z.string().optional(),
+    errors: z.array(z.object({ detail: z.string(), pointer: z.string() })).optional(),
+  })
+  .openapi("Problem", { description: "RFC 9457 problem details; type URIs are listed at /docs/errors." });

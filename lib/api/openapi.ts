@@ -1,0 +1,142 @@
+import { OpenAPIRegistry, OpenApiGeneratorV31 } from "@asteasolutions/zod-to-openapi";
+import { CfRequest, CfResponse } from "@/app/api/v1/cf/schema";
+import { ConvolveRequest, ConvolveResponse } from "@/app/api/v1/convolve/schema";
+import { DensityRequest, DensityResponse } from "@/app/api/v1/density/schema";
+import { FamiliesResponse } from "@/app/api/v1/families/schema";
+import { MomentsRequest, MomentsResponse } from "@/app/api/v1/moments/schema";
+import { QuantilesRequest, QuantilesResponse } from "@/app/api/v1/quantiles/schema";
+import { ENGINE_VERSION } from "@/lib/version";
+import { Problem } from "./common-schemas";
+import { PROBLEMS } from "./errors";
+import { endpointExamples } from "./examples";
+import { runCf, runConvolve, runDensity, runMoments, runQuantiles } from "./operations";
+import { catalogueResponse } from "./catalogue";
+import { z } from "./zod";
+
+const EXAMPLE_META = { requestId: "3b0f0a52-95c3-4f0e-8a4e-8f3f7c0d51a2", computeUnits: 1, engineVersion: ENGINE_VERSION, elapsedMs: 1.8 };
+
+const rateLimitHeaders = {
+  RateLimit: { description: 'Current state of the per-key limit, e.g. `"per-key";r=49;t=1` (draft-ietf-httpapi-ratelimit-headers-11).', schema: { type: "string" as const } },
+  "RateLimit-Policy": { description: 'The per-key policy, e.g. `"per-key";q=50;w=1`.', schema: { type: "string" as const } },
+  "Sumfold-Request-Id": { description: "The request id, also in meta.requestId.", schema: { type: "string" as const } },
+};
+
+function problems(codes: (keyof typeof PROBLEMS)[]) {
+  return Object.fromEntries(
+    codes.map((c) => [
+      String(PROBLEMS[c].status),
+      {
+        description: PROBLEMS[c].title,
+        ...(c === "rate_limited" ? { headers: { "Retry-After": { description: "seconds until the window ends", schema: { type: "string" as const } } } } : {}),
+        content: { "application/problem+json": { schema: Problem } },
+      },
+    ]),
+  );
+}
+
+const KEYED_PROBLEMS = ["bad_request", "unauthorized", "forbidden", "payload_too_large", "unsupported_media_type", "validation", "rate_limited", "internal"] as const;
+
+function example(id: string, run: (body: never) => unknown) {
+  const e = endpointExamples.find((x) => x.id === id)!;
+  let response: unknown;
+  try {
+    response = { ...(run(e.body as never) as object), meta: EXAMPLE_META };
+  } catch {
+    response = undefined;
+  }
+  return { request: e.body, response, title: e.title };
+}
+
+/** Builds the OpenAPI 3.1 document from the same zod schemas the handlers validate with. */
+export function buildOpenApiDocument(serverUrl = "/") {
+  const registry = new OpenAPIRegistry();
+  const bearer = registry.registerComponent("securitySchemes", "apiKey", {
+    type: "http",
+    scheme: "bearer",
+    description: "An API key from the portal: `Authorization: Bearer sfk_...`",
+  });
+  const post = (path: string, id: string, summary: string, description: string, req: z.ZodType, res: z.ZodType, run: (b: never) => unknown, extra: (keyof typeof PROBLEMS)[] = []) => {
+    const ex = example(id, run);
+    registry.registerPath({
+      method: "post",
+      path,
+      operationId: id,
+      summary,
+      description,
+      tags: ["Computation"],
+      security: [{ [bearer.name]: [] }],
+      request: { body: { required: true, content: { "application/json": { schema: req, examples: { demo: { summary: ex.title, value: ex.request } } } } } },
+      responses: {
+        200: {
+          description: "The result",
+          headers: rateLimitHeaders,
+          content: { "application/json": { schema: res, ...(ex.response ? { examples: { demo: { summary: ex.title, value: ex.response } } } : {}) } },
+        },
+        ...problems([...KEYED_PROBLEMS, ...extra]),
+      },
+    });
+  };
+  post("/api/v1/cf", "cf", "Evaluate the characteristic function", "phi(t) = E[exp(i t X)] of the model at the given arguments.", CfRequest, CfResponse, runCf, ["limit_exceeded"]);
+  post(
+    "/api/v1/density",
+    "density",
+    "Density, CDF and survival function",
+    "Inverts the characteristic function to pdf (or pmf on a lattice), cdf and sf = 1 - cdf (computed directly), with atoms separated and an error estimate in the diagnostics.",
+    DensityRequest,
+    DensityResponse,
+    runDensity,
+    ["limit_exceeded", "not_applicable"],
+  );
+  post("/api/v1/quantiles", "quantiles", "Quantiles and expected shortfall", "The smallest x with F(x) >= p for each level, and optionally the expected shortfall beyond it.", QuantilesRequest, QuantilesResponse, runQuantiles, ["limit_exceeded", "not_applicable"]);
+  post("/api/v1/moments", "moments", "Moments and cumulants", "Raw and central moments and cumulants up to the order asked; null (with a note) where an order does not exist.", MomentsRequest, MomentsResponse, runMoments, ["limit_exceeded"]);
+  post("/api/v1/convolve", "convolve", "Convolve lattice tables", "Convolution of tabulated laws on a common step, and n-fold powers, by FFT with zero padding.", ConvolveRequest, ConvolveResponse, runConvolve, ["limit_exceeded"]);
+
+  registry.registerPath({
+    method: "get",
+    path: "/api/v1/families",
+    operationId: "families",
+    summary: "The family catalogue",
+    description: "Every named law: parameters with ranges, support, the characteristic function as text, and which moments exist.",
+    tags: ["Catalogue"],
+    security: [{ [bearer.name]: [] }],
+    responses: {
+      200: { description: "The catalogue", headers: rateLimitHeaders, content: { "application/json": { schema: FamiliesResponse, example: { ...catalogueResponse(), meta: EXAMPLE_META } } } },
+      ...problems(["unauthorized", "forbidden", "rate_limited", "internal"]),
+    },
+  });
+  registry.registerPath({
+    method: "get",
+    path: "/api/v1/health",
+    operationId: "health",
+    summary: "Service health (no key)",
+    tags: ["Service"],
+    responses: {
+      200: { description: "Healthy", content: { "application/json": { schema: z.object({ status: z.literal("ok"), database: z.literal("reachable"), databaseLatencyMs: z.number(), engineVersion: z.string(), time: z.string() }) } } },
+      503: { description: "The database is unreachable", content: { "application/json": { schema: z.object({ status: z.literal("degraded"), database: z.literal("unreachable") }).passthrough() } } },
+    },
+  });
+  registry.registerPath({
+    method: "get",
+    path: "/api/v1/openapi.json",
+    operationId: "openapi",
+    summary: "This document (no key)",
+    tags: ["Service"],
+    responses: { 200: { description: "OpenAPI 3.1 document", content: { "application/json": { schema: z.object({}).passthrough() } } } },
+  });
+
+  return new OpenApiGeneratorV31(registry.definitions).generateDocument({
+    openapi: "3.1.0",
+    info: {
+      title: "Sumfold API",
+      version: "1",
+      description:
+        "Distributions of sums of independent random quantities from their characteristic functions. Results are computational aids: capital, reserving, pricing and safety-tolerance decisions rest with licensed practice and local regulation.",
+    },
+    servers: [{ url: serverUrl }],
+    tags: [
+      { name: "Computation", description: "Read-only computations on models" },
+      { name: "Catalogue", description: "What the engine knows" },
+      { name: "Service", description: "Unkeyed service endpoints" },
+    ],
+  });
+}

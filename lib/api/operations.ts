@@ -1,0 +1,95 @@
+import type { z } from "zod";
+import type { CfBody } from "@/app/api/v1/cf/schema";
+import type { ConvolveRequest } from "@/app/api/v1/convolve/schema";
+import type { DensityBody } from "@/app/api/v1/density/schema";
+import type { MomentsBody } from "@/app/api/v1/moments/schema";
+import type { QuantilesBody } from "@/app/api/v1/quantiles/schema";
+import { compile, convolveTables, density, MAX_LATTICE, moments, powerTable, quantiles } from "@/lib/cf";
+import { ApiError } from "./errors";
+import { checkModel } from "./model-field";
+
+// The computations behind the public endpoints, on validated bodies, without the gate. The route handlers,
+// the portal's explorer and the OpenAPI examples all call these, so all three give the same answers.
+
+const list = (a: Float64Array) => Array.from(a);
+
+function args(t: number[] | { from: number; to: number; count: number }): Float64Array {
+  if (Array.isArray(t)) return Float64Array.from(t);
+  const out = new Float64Array(t.count);
+  const dt = (t.to - t.from) / (t.count - 1);
+  for (let i = 0; i < t.count; i++) out[i] = t.from + i * dt;
+  out[t.count - 1] = t.to;
+  return out;
+}
+
+export function runCf(body: z.infer<typeof CfBody>) {
+  const compiled = compile(checkModel(body.model));
+  const t = args(body.t);
+  const re = new Float64Array(t.length);
+  const im = new Float64Array(t.length);
+  compiled.cf(t, re, im);
+  return { t: list(t), re: list(re), im: list(im) };
+}
+
+export function runDensity(body: z.infer<typeof DensityBody>) {
+  const compiled = compile(checkModel(body.model));
+  const r = density(compiled, {
+    x: body.x,
+    grid: body.grid,
+    method: body.method,
+    tolerance: body.tolerance,
+    range: body.range,
+    maxFrequency: body.maxFrequency,
+  });
+  return {
+    x: list(r.x),
+    ...(r.pdf ? { pdf: list(r.pdf) } : {}),
+    ...(r.pmf ? { pmf: list(r.pmf) } : {}),
+    cdf: list(r.cdf),
+    sf: list(r.sf),
+    atoms: r.atoms,
+    diagnostics: r.diagnostics,
+  };
+}
+
+export function runQuantiles(body: z.infer<typeof QuantilesBody>) {
+  const compiled = compile(checkModel(body.model));
+  const r = quantiles(compiled, body.p, { expectedShortfall: body.expectedShortfall ?? false, tolerance: body.tolerance });
+  return {
+    p: body.p,
+    x: list(r.x),
+    ...(body.expectedShortfall ? { expectedShortfall: r.expectedShortfall ? Array.from(r.expectedShortfall, (v) => (Number.isFinite(v) ? v : null)) : [] } : {}),
+    diagnostics: r.diagnostics,
+  };
+}
+
+export function runMoments(body: z.infer<typeof MomentsBody>) {
+  const r = moments(compile(checkModel(body.model)), body.order ?? 4);
+  const notes = [...r.notes, ...r.reasons.flatMap((reason, k) => (reason ? [`order ${k + 1}: ${reason}`] : []))];
+  return {
+    raw: r.raw,
+    central: r.central,
+    cumulants: r.cumulants,
+    mean: r.mean,
+    variance: r.variance,
+    skewness: r.skewness,
+    excessKurtosis: r.excessKurtosis,
+    exists: r.exists,
+    momentIndex: Number.isFinite(r.momentIndex) ? r.momentIndex : null,
+    notes,
+  };
+}
+
+export function runConvolve(body: z.infer<typeof ConvolveRequest>) {
+  const power = body.power ?? 1;
+  const length = (body.terms.reduce((s, t) => s + t.p.length - 1, 0) * power) + 1;
+  if (length > MAX_LATTICE) {
+    throw new ApiError("limit_exceeded", `The result would have ${length} points; the limit is ${MAX_LATTICE}.`, {
+      errors: [{ detail: `The result would have ${length} points, above the limit of ${MAX_LATTICE}.`, pointer: body.power ? "/power" : "/terms" }],
+    });
+  }
+  const tables = body.terms.map((t) => ({ origin: t.origin, step: t.step, p: Float64Array.from(t.p), tailMass: 0 }));
+  const once = convolveTables(tables);
+  const r = power > 1 ? powerTable(once, power) : once;
+  return { origin: r.origin, step: r.step, p: list(r.p), tailMass: r.tailMass };
+}

@@ -1,0 +1,141 @@
+import type { Model } from "./schema";
+import type { CompiledModel } from "./types";
+import type { Node } from "./node";
+import { validateModel } from "./validate";
+import { toLawKind } from "./kinds";
+import { MAX_LATTICE } from "./limits";
+import { cauchy, gammaLaw, laplace, logistic, nig, normal, studentT, uniform, varianceGamma } from "./families/continuous";
+import { stable } from "./families/stable";
+import { lognormal, pareto, weibull } from "./families/numeric";
+import { binomial, negativeBinomial, point, poisson } from "./families/discrete";
+import { atomsNode, compoundNode, latticeNode, mixNode, repeatNode, sampleNode, scaleNode, shiftNode, sumNode } from "./operators";
+
+/** Build the node tree of a validated model. */
+export function buildNode(m: Model): Node {
+  if ("family" in m) {
+    switch (m.family) {
+      case "normal":
+        return normal(m.mu, m.sigma);
+      case "cauchy":
+        return cauchy(m.loc, m.scale);
+      case "uniform":
+        return uniform(m.a, m.b);
+      case "exponential":
+        return gammaLaw(1, m.rate);
+      case "gamma":
+        return gammaLaw(m.shape, m.rate);
+      case "chi_squared":
+        return gammaLaw(m.k / 2, 0.5);
+      case "laplace":
+        return laplace(m.loc, m.scale);
+      case "logistic":
+        return logistic(m.loc, m.scale);
+      case "student_t":
+        return studentT(m.nu, m.loc ?? 0, m.scale ?? 1);
+      case "stable":
+        return stable(m.alpha, m.beta, m.scale ?? 1, m.loc ?? 0, m.param ?? "S1");
+      case "variance_gamma":
+        return varianceGamma(m.sigma, m.nu, m.theta, m.loc ?? 0);
+      case "nig":
+        return nig(m.alpha, m.beta, m.delta, m.mu ?? 0);
+      case "lognormal":
+        return lognormal(m.mu, m.sigma);
+      case "pareto":
+        return pareto(m.alpha, m.xm);
+      case "weibull":
+        return weibull(m.shape, m.scale);
+      case "point":
+        return point(m.at);
+      case "bernoulli":
+        return binomial(1, m.p);
+      case "binomial":
+        return binomial(m.n, m.p);
+      case "poisson":
+        return poisson(m.lambda);
+      case "negative_binomial":
+        return negativeBinomial(m.r, m.p);
+      case "geometric":
+        return negativeBinomial(1, m.p);
+    }
+  }
+  if ("sum" in m) return sumNode(m.sum.map(buildNode));
+  if ("scale" in m) return scaleNode(m.scale, buildNode(m.of));
+  if ("shift" in m) return shiftNode(m.shift, buildNode(m.of));
+  if ("repeat" in m) return repeatNode(m.repeat, buildNode(m.of));
+  if ("mix" in m) return mixNode(m.mix.map((c) => c.weight), m.mix.map((c) => buildNode(c.of)));
+  if ("compound" in m) return compoundNode(buildNode(m.compound.count), buildNode(m.compound.each));
+  if ("lattice" in m) return latticeNode(m.lattice.origin, m.lattice.step, m.lattice.p);
+  if ("sample" in m) return sampleNode(m.sample, MAX_LATTICE);
+  throw new Error("unreachable: validated model without a known node");
+}
+
+function checkBuffers(t: Float64Array, re: Float64Array, im: Float64Array) {
+  if (re.length < t.length || im.length < t.length) throw new RangeError(`output buffers hold ${Math.min(re.length, im.length)} values, ${t.length} needed`);
+}
+
+/** Wrap an internal node as the public CompiledModel. */
+export function toCompiled(node: Node): CompiledModel {
+  const continuous = node.kind.type === "continuous";
+  const logCf = (t: Float64Array, re: Float64Array, im: Float64Array) => {
+    checkBuffers(t, re, im);
+    if (t.length === 0) return;
+    let special = false;
+    for (let k = 0; k < t.length; k++) if (!Number.isFinite(t[k])) special = true;
+    if (!special) return node.logCf(t, re, im);
+    // non-finite t: NaN stays NaN; +-Inf gives phi = 0 for laws with a density, undefined (NaN) otherwise
+    const finite = t.filter((x) => Number.isFinite(x));
+    const r = new Float64Array(finite.length);
+    const i = new Float64Array(finite.length);
+    node.logCf(finite, r, i);
+    for (let k = 0, j = 0; k < t.length; k++) {
+      if (Number.isFinite(t[k])) {
+        re[k] = r[j];
+        im[k] = i[j++];
+      } else if (Number.isNaN(t[k]) || !continuous) {
+        re[k] = NaN;
+        im[k] = NaN;
+      } else {
+        re[k] = -Infinity;
+        im[k] = 0;
+      }
+    }
+  };
+  const compiled: CompiledModel = {
+    logCf,
+    cf(t, re, im) {
+      logCf(t, re, im);
+      for (let k = 0; k < t.length; k++) {
+        const m = Math.exp(re[k]);
+        if (m === 0) {
+          re[k] = 0;
+          im[k] = 0;
+        } else {
+          const a = im[k];
+          re[k] = m * Math.cos(a);
+          im[k] = m * Math.sin(a);
+        }
+      }
+    },
+    kind: toLawKind(node.kind),
+    momentIndex: node.momentIndex,
+    cumulants: (n) => node.cumulants(Math.max(0, Math.min(Math.floor(n), 64))),
+    location: node.location,
+    scale: node.scale > 0 && Number.isFinite(node.scale) ? node.scale : 1,
+    support: node.support,
+    tails: node.tails,
+    nodes: node.nodes,
+    notes: node.kind.type === "mixed" && !node.kind.atomsComplete ? [...node.notes, "not every atom of this mixed law is listed"] : node.notes,
+  };
+  if (node.kind.type === "lattice" && node.table) {
+    const table = node.table;
+    compiled.exactLattice = (maxLength) => table(Math.max(1, Math.min(Math.floor(maxLength), MAX_LATTICE)));
+  }
+  return compiled;
+}
+
+/** Validate a model in the notation and compile it; throws CfError with a JSON pointer on invalid input. */
+export function compile(model: Model | unknown): CompiledModel {
+  return toCompiled(buildNode(validateModel(model)));
+}
+
+

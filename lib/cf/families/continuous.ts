@@ -1,0 +1,305 @@
+import { bernoulliNumbers, factorial, lgamma, logBesselKScaled } from "./special";
+import { cumulantList, NONE_MOMENT, rawToCumulants, type Node } from "../node";
+
+const B = bernoulliNumbers(40);
+const CONT = { type: "continuous" } as const;
+const ALL = Infinity;
+
+function base(p: Partial<Node> & Pick<Node, "logCf" | "cumulants" | "location" | "scale" | "support">): Node {
+  return { kind: CONT, momentIndex: ALL, tails: { left: ALL, right: ALL }, nodes: 1, notes: [], ...p };
+}
+
+/** Normal: log phi = i mu t - sigma^2 t^2 / 2 (Johnson, Kotz & Balakrishnan vol. 1, eq. 13.9). */
+export function normal(mu: number, sigma: number): Node {
+  const s2 = sigma * sigma;
+  return base({
+    logCf(t, re, im) {
+      for (let k = 0; k < t.length; k++) {
+        const x = t[k];
+        re[k] = -0.5 * s2 * x * x;
+        im[k] = mu * x;
+      }
+    },
+    cumulants: (n) => Array.from({ length: n }, (_, i) => (i === 0 ? mu : i === 1 ? s2 : 0)),
+    location: mu,
+    scale: sigma,
+    support: [-Infinity, Infinity],
+  });
+}
+
+/** Cauchy: log phi = i loc t - scale |t| (Johnson, Kotz & Balakrishnan vol. 1, ch. 16, eq. 16.3). */
+export function cauchy(loc: number, scale: number): Node {
+  return base({
+    logCf(t, re, im) {
+      for (let k = 0; k < t.length; k++) {
+        re[k] = -scale * Math.abs(t[k]);
+        im[k] = loc * t[k];
+      }
+    },
+    momentIndex: 1,
+    cumulants: NONE_MOMENT,
+    location: loc,
+    scale,
+    support: [-Infinity, Infinity],
+    tails: { left: 1, right: 1 },
+  });
+}
+
+/**
+ * Uniform(a, b): phi = e^{i c t} sin(h t)/(h t), c = (a+b)/2, h = (b-a)/2 (JKB vol. 2, eq. 26.6); the phase steps by
+ * pi at each zero of sin, counted from t = 0, so that the branch is the limit of continuous branches.
+ */
+export function uniform(a: number, b: number): Node {
+  const c = 0.5 * (a + b);
+  const h = 0.5 * (b - a);
+  const w = b - a;
+  return base({
+    logCf(t, re, im) {
+      for (let k = 0; k < t.length; k++) {
+        const x = t[k];
+        const y = h * x;
+        const s = y === 0 ? 1 : Math.sin(y) / y;
+        re[k] = Math.log(Math.abs(s));
+        const ay = Math.abs(y);
+        im[k] = c * x + (x < 0 ? -1 : 1) * Math.PI * Math.floor(ay / Math.PI);
+      }
+    },
+    // kappa_n = B_n (b-a)^n / n for n >= 2 (Kendall & Stuart vol. 1, ex. 3.13)
+    cumulants: (n) => Array.from({ length: n }, (_, i) => (i === 0 ? c : (B[i + 1] * w ** (i + 1)) / (i + 1))),
+    location: c,
+    scale: w / Math.sqrt(12),
+    support: [a, b],
+  });
+}
+
+/** Gamma(shape, rate): log phi = -shape log(1 - i t / rate) (JKB vol. 1, eq. 17.10); principal log is continuous. */
+export function gammaLaw(shape: number, rate: number): Node {
+  return base({
+    logCf(t, re, im) {
+      for (let k = 0; k < t.length; k++) {
+        const y = -t[k] / rate;
+        re[k] = -shape * 0.5 * Math.log1p(y * y);
+        im[k] = -shape * Math.atan(y);
+      }
+    },
+    // kappa_n = shape (n-1)! / rate^n (JKB vol. 1, eq. 17.12)
+    cumulants: (n) => Array.from({ length: n }, (_, i) => (shape * factorial(i)) / rate ** (i + 1)),
+    location: shape / rate,
+    scale: Math.sqrt(shape) / rate,
+    support: [0, Infinity],
+  });
+}
+
+/** Laplace(loc, b): phi = e^{i loc t} / (1 + b^2 t^2) (JKB vol. 2, eq. 24.8). */
+export function laplace(loc: number, b: number): Node {
+  return base({
+    logCf(t, re, im) {
+      for (let k = 0; k < t.length; k++) {
+        const y = b * t[k];
+        re[k] = -Math.log1p(y * y);
+        im[k] = loc * t[k];
+      }
+    },
+    // kappa_{2m} = 2 (2m-1)! b^{2m}, odd orders >= 3 vanish (expansion of -log(1 + b^2 t^2))
+    cumulants: (n) => Array.from({ length: n }, (_, i) => (i === 0 ? loc : (i + 1) % 2 === 0 ? 2 * factorial(i) * b ** (i + 1) : 0)),
+    location: loc,
+    scale: Math.SQRT2 * b,
+    support: [-Infinity, Infinity],
+  });
+}
+
+/** log(x / sinh x) for real x, accurate near 0 (series) and for large |x|. */
+function logXOverSinh(x: number): number {
+  const a = Math.abs(x);
+  if (a < 0.5) {
+    // sinh(x)/x - 1 = sum_{k>=1} x^{2k} / (2k+1)!
+    const x2 = a * a;
+    let term = 1;
+    let s = 0;
+    for (let k = 1; k < 20; k++) {
+      term *= x2 / ((2 * k) * (2 * k + 1));
+      s += term;
+      if (term < 1e-18 * s) break;
+    }
+    return -Math.log1p(s);
+  }
+  // sinh a = e^a (1 - e^{-2a}) / 2
+  return Math.log(2 * a) - a - Math.log1p(-Math.exp(-2 * a));
+}
+
+/** Logistic(loc, s): phi = e^{i loc t} pi s t / sinh(pi s t) (JKB vol. 2, eq. 23.9). */
+export function logistic(loc: number, s: number): Node {
+  return base({
+    logCf(t, re, im) {
+      for (let k = 0; k < t.length; k++) {
+        re[k] = logXOverSinh(Math.PI * s * t[k]);
+        im[k] = loc * t[k];
+      }
+    },
+    // kappa_{2n} = |B_{2n}| 2^{2n} (pi s)^{2n} / (2n) (from log(sinh x / x) = sum 2^{2n} B_{2n} x^{2n} / (2n (2n)!), A&S 4.5.64)
+    cumulants: (n) =>
+      Array.from({ length: n }, (_, i) => {
+        const m = i + 1;
+        if (m === 1) return loc;
+        if (m % 2 === 1) return 0;
+        return (Math.abs(B[m]) * 2 ** m * (Math.PI * s) ** m) / m;
+      }),
+    location: loc,
+    scale: (Math.PI * s) / Math.sqrt(3),
+    support: [-Infinity, Infinity],
+  });
+}
+
+/**
+ * Variance-gamma: log phi = i loc t - (1/nu) log(1 - i theta nu t + sigma^2 nu t^2 / 2) (Madan, Carr & Chang 1998,
+ * eq. 6); the argument has real part >= 1, so the principal log is the continuous branch.
+ */
+export function varianceGamma(sigma: number, nu: number, theta: number, loc: number): Node {
+  const s2 = sigma * sigma;
+  return base({
+    logCf(t, re, im) {
+      for (let k = 0; k < t.length; k++) {
+        const x = t[k];
+        const ur = 0.5 * s2 * nu * x * x;
+        const ui = -theta * nu * x;
+        re[k] = (-0.5 / nu) * Math.log1p(2 * ur + ur * ur + ui * ui);
+        im[k] = loc * x - Math.atan2(ui, 1 + ur) / nu;
+      }
+    },
+    // factor 1 - theta nu u - sigma^2 nu u^2/2 = (1 - r1 u)(1 - r2 u); kappa_m = (m-1)! (r1^m + r2^m) / nu, with the
+    // power sums p_m = theta nu p_{m-1} + (sigma^2 nu / 2) p_{m-2} (Newton's identities)
+    cumulants: (n) => {
+      const e1 = Math.abs(theta) * nu;
+      const e2 = 0.5 * s2 * nu;
+      const sign = theta < 0 ? -1 : 1;
+      const out: number[] = [];
+      let pm2 = 2;
+      let pm1 = e1;
+      for (let m = 1; m <= n; m++) {
+        const pm = m === 1 ? e1 : e1 * pm1 + e2 * pm2;
+        if (m > 1) {
+          pm2 = pm1;
+          pm1 = pm;
+        }
+        out.push((factorial(m - 1) * pm * sign ** m) / nu + (m === 1 ? loc : 0));
+      }
+      return out;
+    },
+    location: loc + theta,
+    scale: Math.sqrt(s2 + theta * theta * nu),
+    support: [-Infinity, Infinity],
+  });
+}
+
+/**
+ * Normal inverse Gaussian: log phi = i mu t + delta (gamma - sqrt(alpha^2 - (beta + i t)^2)), gamma = sqrt(alpha^2 -
+ * beta^2) (Barndorff-Nielsen 1997, eq. 2.3); gamma - s is formed as (gamma^2 - s^2)/(gamma + s) to avoid cancellation.
+ */
+export function nig(alpha: number, beta: number, delta: number, mu: number): Node {
+  const g = Math.sqrt(alpha * alpha - beta * beta);
+  return base({
+    logCf(t, re, im) {
+      for (let k = 0; k < t.length; k++) {
+        const x = t[k];
+        // s = sqrt(g^2 + x^2 - 2 i beta x), principal (Re > 0)
+        const zr = g * g + x * x;
+        const zi = -2 * beta * x;
+        const m = Math.hypot(zr, zi);
+        const sr = Math.sqrt(0.5 * (m + zr));
+        const si = zi / (2 * sr);
+        // (g - s) = (g^2 - s^2)/(g + s) = (-x^2 + 2 i beta x)/(g + s)
+        const nr = -x * x;
+        const ni = 2 * beta * x;
+        const dr = g + sr;
+        const di = si;
+        const d2 = dr * dr + di * di;
+        re[k] = (delta * (nr * dr + ni * di)) / d2;
+        im[k] = mu * x + (delta * (ni * dr - nr * di)) / d2;
+      }
+    },
+    // K(u) = mu u + delta (g - sqrt(h(u))), h(u) = g^2 - 2 beta u - u^2: Taylor coefficients of sqrt(h) by the
+    // square-root series recursion, kappa_m = -delta m! [u^m] sqrt(h)
+    cumulants: (n) => {
+      const h = [g * g, -2 * beta, -1];
+      const c: number[] = [g];
+      for (let m = 1; m <= n; m++) {
+        let s = h[m] ?? 0;
+        for (let j = 1; j < m; j++) s -= c[j] * c[m - j];
+        c.push(s / (2 * g));
+      }
+      return Array.from({ length: n }, (_, i) => (i === 0 ? mu : 0) - delta * factorial(i + 1) * c[i + 1]);
+    },
+    location: mu + (delta * beta) / g,
+    scale: Math.sqrt((delta * alpha * alpha) / (g * g * g)),
+    support: [-Infinity, Infinity],
+  });
+}
+
+/**
+ * Student t (nu, loc, scale): phi = e^{i loc t} K_{nu/2}(z) z^{nu/2} / (Gamma(nu/2) 2^{nu/2-1}), z = sqrt(nu) scale |t|
+ * (JKB vol. 2, ch. 28, sec. 2; Hurst 1995, recalled from memory); K by logBesselKScaled (A&S 9.6.24).
+ */
+export function studentT(nu: number, loc: number, scale: number): Node {
+  const half = nu / 2;
+  const c0 = (1 - half) * Math.LN2 - lgamma(half);
+  const sq = Math.sqrt(nu) * scale;
+  // E T^{2k} = nu^k prod_{j=1}^k (2j-1)/(nu-2j) for 2k < nu (JKB vol. 2, eq. 28.9)
+  const raw = (m: number): number => {
+    if (m % 2 === 1) return 0;
+    let v = 1;
+    for (let j = 1; j <= m / 2; j++) v *= (nu * (2 * j - 1)) / (nu - 2 * j);
+    return v;
+  };
+  // For large nu the Bessel form cancels terms of size nu log nu; use the normal variance mixture instead:
+  // phi = E exp(-z^2 / (2V)), V ~ chi^2_nu (JKB vol. 2, eq. 28.1), as a ratio of two trapezoidal sums in y = log V,
+  // each taken about its own peak so that only O(1) quantities are added.
+  const peakSum = (f: (u: number) => number, w: number) => {
+    const h = w / 4;
+    let s = 1;
+    for (let j = 1; j < 100000; j++) {
+      const v = Math.exp(f(j * h));
+      s += v;
+      if (v < 1e-18) break;
+    }
+    for (let j = -1; j > -100000; j--) {
+      const v = Math.exp(f(j * h));
+      s += v;
+      if (v < 1e-18) break;
+    }
+    return Math.log(s * h);
+  };
+  const log0 = nu > 100 ? peakSum((u) => half * (u - Math.expm1(u)), 1 / Math.sqrt(half)) : 0;
+  const mixtureLogCf = (z: number) => {
+    const z2 = z * z;
+    const d = (2 * z2) / (nu + Math.sqrt(nu * nu + 4 * z2)); // e^{y1} - nu
+    const e1 = nu + d;
+    const x = d / nu;
+    const l1pmx = Math.abs(x) < 0.1 ? -x * x * (0.5 - x * (1 / 3 - x * (0.25 - x * (0.2 - x * (1 / 6 - x / 7))))) : Math.log1p(x) - x;
+    const top = half * l1pmx - (0.5 * z2) / e1; // H(y1) - H0(y0)
+    const a = 0.5 * e1;
+    const b = (0.5 * z2) / e1;
+    const width = 1 / Math.sqrt(a + b);
+    const log1 = peakSum((u) => half * u - a * Math.expm1(u) - b * Math.expm1(-u), width);
+    return top + log1 - log0;
+  };
+  return base({
+    logCf(t, re, im) {
+      for (let k = 0; k < t.length; k++) {
+        const z = sq * Math.abs(t[k]);
+        re[k] = z === 0 ? 0 : z === Infinity ? -Infinity : nu > 100 && z < 1e100 ? mixtureLogCf(z) : c0 + half * Math.log(z) + logBesselKScaled(half, z) - z;
+        im[k] = loc * t[k];
+      }
+    },
+    momentIndex: nu,
+    cumulants: (n) => {
+      const raws: (number | null)[] = cumulantList(n, nu, (m) => raw(m) * scale ** m);
+      const k = rawToCumulants(raws);
+      if (n > 0 && k[0] !== null) k[0] = loc;
+      return k;
+    },
+    location: loc,
+    scale: nu > 2 ? scale * Math.sqrt(nu / (nu - 2)) : scale,
+    support: [-Infinity, Infinity],
+    tails: { left: nu, right: nu },
+  });
+}

@@ -1,0 +1,271 @@
+import { eulerianRow, lgamma } from "./special";
+import type { Node } from "../node";
+import { nearestZero, unwrapFrom } from "../complex";
+import type { LatticeTable } from "../types";
+
+const ALL = Infinity;
+const LIGHT = { left: ALL, right: ALL };
+/** tables are extended until the remaining tail is below this (or the length limit is reached) */
+const TAIL_EPS = 1e-18;
+
+/** Point mass at `at`: log phi = i at t. Kept as a lattice of step 0 internally (any step fits). */
+export function point(at: number): Node {
+  return {
+    kind: { type: "lattice", origin: at, step: 0, atoms: [{ x: at, p: 1 }] },
+    momentIndex: ALL,
+    tails: LIGHT,
+    nodes: 1,
+    notes: [],
+    location: at,
+    scale: 0,
+    support: [at, at],
+    logCf(t, re, im) {
+      for (let k = 0; k < t.length; k++) {
+        re[k] = 0;
+        im[k] = at * t[k];
+      }
+    },
+    cumulants: (n) => Array.from({ length: n }, (_, i) => (i === 0 ? at : 0)),
+    table: () => ({ origin: at, step: 1, p: Float64Array.of(1), tailMass: 0 }),
+    countCgf(wr, wi, re, im) {
+      for (let k = 0; k < wr.length; k++) {
+        re[k] = at * wr[k];
+        im[k] = at * wi[k];
+      }
+    },
+    p0: at === 0 ? 1 : 0,
+  };
+}
+
+/** Finish a table: p[0..len) from a generator p_k = next(k, p_{k-1}), stopping when the tail is negligible. */
+function tabulate(maxLength: number, first: number, p0: number, ratio: (k: number) => number, hardEnd = Infinity): LatticeTable {
+  const buf: number[] = [p0];
+  let k = 1;
+  let prev = p0;
+  let total = p0;
+  // grow while terms matter; the upper tail of these laws decays at least geometrically past the mode
+  while (k <= hardEnd) {
+    const next = prev * ratio(k);
+    if (buf.length >= maxLength) break;
+    if (next < TAIL_EPS * total && ratio(k) < 1 && k > first) {
+      break;
+    }
+    buf.push(next);
+    total += next;
+    prev = next;
+    k++;
+  }
+  // remaining mass: continue the recursion past the table (bounded)
+  let tail = 0;
+  let q = prev;
+  for (let j = k; j <= hardEnd && j < k + 1e7; j++) {
+    q *= ratio(j);
+    tail += q;
+    if (q <= TAIL_EPS * tail * 1e-3 && ratio(j) < 1) break;
+    if (q === 0) break;
+  }
+  return { origin: 0, step: 1, p: Float64Array.from(buf), tailMass: tail };
+}
+
+/**
+ * Binomial(n, p): log phi = n log(1 - p + p e^{it}) (Johnson, Kemp & Kotz, Univariate Discrete Distributions, eq. 3.5).
+ * For p <= 1/2 the factor has Re > 0 on |z| = 1; for p > 1/2 it is written e^{it}(p + (1-p)e^{-it}), again with
+ * Re > 0, which gives the continuous branch in closed form.
+ */
+export function binomial(n: number, p: number): Node {
+  const q = 1 - p;
+  const logTerm = (cr: number, ci: number, sr: number, si: number, outK: number, re: Float64Array, im: Float64Array) => {
+    // log(1 + a (z - 1)) with z - 1 = (cr, ci) (cr = cos - 1 computed accurately), a = p or (1-p)
+    const r2 = 2 * cr + cr * cr + ci * ci;
+    re[outK] = 0.5 * Math.log1p(r2) * n + sr;
+    im[outK] = Math.atan2(ci, 1 + cr) * n + si;
+  };
+  const cumulants = (m: number) => {
+    // c_1 = p, c_{j+1} = p(1-p) dc_j/dp (JKK eq. 3.13), as polynomials in p
+    let poly = [0, 1];
+    const out: number[] = [];
+    for (let j = 1; j <= m; j++) {
+      let v = 0;
+      for (let i = poly.length - 1; i >= 0; i--) v = v * p + poly[i];
+      out.push(n * v);
+      const der = poly.slice(1).map((c, i) => c * (i + 1));
+      const next = new Array<number>(der.length + 2).fill(0);
+      for (let i = 0; i < der.length; i++) {
+        next[i + 1] += der[i];
+        next[i + 2] -= der[i];
+      }
+      poly = next;
+    }
+    return out;
+  };
+  const support: [number, number] = p === 0 ? [0, 0] : p === 1 ? [n, n] : [0, n];
+  const single = p === 0 || p === 1 || n === 0;
+  return {
+    kind: single
+      ? { type: "lattice", origin: support[0], step: 0, atoms: [{ x: support[0], p: 1 }] }
+      : { type: "lattice", origin: 0, step: 1, atoms: n <= 4096 ? binomialAtoms(n, p) : null },
+    momentIndex: ALL,
+    tails: LIGHT,
+    nodes: 1,
+    notes: [],
+    location: n * p,
+    scale: Math.sqrt(n * p * q) || 1,
+    support,
+    logCf(t, re, im) {
+      for (let k = 0; k < t.length; k++) {
+        const x = t[k];
+        const cm1 = -2 * Math.sin(0.5 * x) ** 2;
+        const sn = Math.sin(x);
+        if (p <= 0.5) logTerm(p * cm1, p * sn, 0, 0, k, re, im);
+        else logTerm(q * cm1, -q * sn, 0, n * x, k, re, im);
+      }
+    },
+    cumulants,
+    table: (maxLength) => {
+      if (single) return { origin: support[0], step: 1, p: Float64Array.of(1), tailMass: 0 };
+      const tab = binomialTable(n, p, maxLength);
+      return tab;
+    },
+    countCgf(wr, wi, re, im) {
+      for (let k = 0; k < wr.length; k++) {
+        const e = Math.exp(wr[k]);
+        const zr = e * Math.cos(wi[k]) - 1;
+        const zi = e * Math.sin(wi[k]);
+        logTerm(p * zr, p * zi, 0, 0, k, re, im);
+      }
+      unwrapFrom(im, nearestZero(wr, wi));
+    },
+    panjer: p < 1 ? { a: -p / q, b: ((n + 1) * p) / q, p0: q ** n } : undefined,
+    p0: q ** n,
+  };
+}
+
+function binomialAtoms(n: number, p: number) {
+  const t = binomialTable(n, p, n + 1);
+  return Array.from(t.p, (v, k) => ({ x: k, p: v }));
+}
+
+/** Binomial pmf: multiplicative recursion from k = 0 when (1-p)^n is representable, else log-gamma form. */
+function binomialTable(n: number, p: number, maxLength: number): LatticeTable {
+  const q = 1 - p;
+  const len = Math.min(n + 1, maxLength);
+  const out = new Float64Array(len);
+  const start = q ** n;
+  if (start > 1e-280 && n <= 1e5) {
+    out[0] = start;
+    const r = p / q;
+    for (let k = 1; k < len; k++) out[k] = (out[k - 1] * (n - k + 1) * r) / k;
+  } else {
+    const lp = Math.log(p);
+    const lq = Math.log1p(-p);
+    const ln = lgamma(n + 1);
+    for (let k = 0; k < len; k++) out[k] = Math.exp(ln - lgamma(k + 1) - lgamma(n - k + 1) + k * lp + (n - k) * lq);
+  }
+  let s = 0;
+  for (let k = 0; k < len; k++) s += out[k];
+  return { origin: 0, step: 1, p: out, tailMass: len === n + 1 ? 0 : Math.max(0, 1 - s) };
+}
+
+/** Poisson(lambda): log phi = lambda (e^{it} - 1) (JKK eq. 4.9); entire, so the branch is continuous as written. */
+export function poisson(lambda: number): Node {
+  return {
+    kind: lambda === 0 ? { type: "lattice", origin: 0, step: 0, atoms: [{ x: 0, p: 1 }] } : { type: "lattice", origin: 0, step: 1, atoms: null },
+    momentIndex: ALL,
+    tails: LIGHT,
+    nodes: 1,
+    notes: [],
+    location: lambda,
+    scale: Math.sqrt(lambda) || 1,
+    support: [0, lambda === 0 ? 0 : Infinity],
+    logCf(t, re, im) {
+      for (let k = 0; k < t.length; k++) {
+        const x = t[k];
+        re[k] = -2 * lambda * Math.sin(0.5 * x) ** 2;
+        im[k] = lambda * Math.sin(x);
+      }
+    },
+    cumulants: (n) => new Array(n).fill(lambda),
+    table(maxLength) {
+      if (lambda === 0) return { origin: 0, step: 1, p: Float64Array.of(1), tailMass: 0 };
+      if (lambda < 700) return tabulate(maxLength, Math.ceil(lambda), Math.exp(-lambda), (k) => lambda / k);
+      // large mean: log form, exp(k log lambda - lambda - log k!)
+      const len = Math.min(maxLength, Math.ceil(lambda + 40 * Math.sqrt(lambda) + 40));
+      const out = new Float64Array(len);
+      let s = 0;
+      for (let k = 0; k < len; k++) {
+        out[k] = Math.exp(k * Math.log(lambda) - lambda - lgamma(k + 1));
+        s += out[k];
+      }
+      return { origin: 0, step: 1, p: out, tailMass: Math.max(0, 1 - s) };
+    },
+    countCgf(wr, wi, re, im) {
+      for (let k = 0; k < wr.length; k++) {
+        const e = Math.exp(wr[k]);
+        re[k] = lambda * (e * Math.cos(wi[k]) - 1);
+        im[k] = lambda * e * Math.sin(wi[k]);
+      }
+    },
+    panjer: { a: 0, b: lambda, p0: Math.exp(-lambda) },
+    p0: Math.exp(-lambda),
+  };
+}
+
+/**
+ * Negative binomial (failures before the r-th success): log phi = r (log p - log(1 - (1-p) e^{it})) (JKK eq. 5.8);
+ * Re(1 - (1-p) z) >= p > 0 for |z| <= 1, so the principal log is continuous.
+ */
+export function negativeBinomial(r: number, p: number): Node {
+  const q = 1 - p;
+  const lp = Math.log(p);
+  const single = q === 0;
+  const cgfAt = (er: number, ei: number, k: number, re: Float64Array, im: Float64Array) => {
+    // log(1 - q z) with z = (er, ei)
+    const ar = -q * er;
+    const ai = -q * ei;
+    re[k] = r * (lp - 0.5 * Math.log1p(2 * ar + ar * ar + ai * ai));
+    im[k] = -r * Math.atan2(ai, 1 + ar);
+  };
+  return {
+    kind: single ? { type: "lattice", origin: 0, step: 0, atoms: [{ x: 0, p: 1 }] } : { type: "lattice", origin: 0, step: 1, atoms: null },
+    momentIndex: ALL,
+    tails: LIGHT,
+    nodes: 1,
+    notes: [],
+    location: (r * q) / p,
+    scale: Math.sqrt(r * q) / p || 1,
+    support: [0, single ? 0 : Infinity],
+    logCf(t, re, im) {
+      for (let k = 0; k < t.length; k++) cgfAt(Math.cos(t[k]), Math.sin(t[k]), k, re, im);
+    },
+    // kappa_n = r q A_{n-1}(q) / p^n, A_m the Eulerian polynomial (from -log(1 - q e^u) = sum_j q^j e^{ju} / j)
+    cumulants: (n) =>
+      Array.from({ length: n }, (_, i) => {
+        const row = eulerianRow(i);
+        let v = 0;
+        for (let j = row.length - 1; j >= 0; j--) v = v * q + row[j];
+        return (r * q * v) / p ** (i + 1);
+      }),
+    table(maxLength) {
+      if (single) return { origin: 0, step: 1, p: Float64Array.of(1), tailMass: 0 };
+      const start = Math.exp(r * lp);
+      if (start > 1e-280) return tabulate(maxLength, Math.ceil((r * q) / p), start, (k) => (q * (r + k - 1)) / k);
+      const len = Math.min(maxLength, Math.ceil((r * q) / p + (40 * Math.sqrt(r * q)) / p + 40));
+      const out = new Float64Array(len);
+      let s = 0;
+      const c = -lgamma(r);
+      for (let k = 0; k < len; k++) {
+        out[k] = Math.exp(c + lgamma(r + k) - lgamma(k + 1) + r * lp + k * Math.log(q));
+        s += out[k];
+      }
+      return { origin: 0, step: 1, p: out, tailMass: Math.max(0, 1 - s) };
+    },
+    countCgf(wr, wi, re, im) {
+      for (let k = 0; k < wr.length; k++) {
+        const e = Math.exp(wr[k]);
+        cgfAt(e * Math.cos(wi[k]), e * Math.sin(wi[k]), k, re, im);
+      }
+    },
+    panjer: { a: q, b: (r - 1) * q, p0: p ** r },
+    p0: p ** r,
+  };
+}

@@ -1,0 +1,151 @@
+/** Special functions and combinatorial tables used by the family modules (pure, double precision). */
+
+/** Bernoulli numbers B_0..B_n as exact fractions (Akiyama-Tanigawa algorithm, B_1 = +1/2), returned as doubles. */
+export function bernoulliNumbers(n: number): number[] {
+  const out: number[] = [];
+  const num: bigint[] = [];
+  const den: bigint[] = [];
+  const gcd = (a: bigint, b: bigint): bigint => {
+    a = a < 0n ? -a : a;
+    b = b < 0n ? -b : b;
+    while (b) [a, b] = [b, a % b];
+    return a;
+  };
+  for (let m = 0; m <= n; m++) {
+    num[m] = 1n;
+    den[m] = BigInt(m + 1);
+    for (let j = m; j >= 1; j--) {
+      // a[j-1] = j * (a[j-1] - a[j])
+      let nn = num[j - 1] * den[j] - num[j] * den[j - 1];
+      let dd = den[j - 1] * den[j];
+      nn *= BigInt(j);
+      const g = gcd(nn, dd) || 1n;
+      num[j - 1] = nn / g;
+      den[j - 1] = dd / g;
+    }
+    out.push(Number(num[0]) / Number(den[0]));
+  }
+  return out;
+}
+
+const B = bernoulliNumbers(30);
+// Stirling series coefficients B_{2k} / (2k (2k-1)), k = 1..10 (Abramowitz & Stegun 6.1.40)
+const STIRLING = Array.from({ length: 10 }, (_, i) => B[2 * i + 2] / ((2 * i + 2) * (2 * i + 1)));
+const HALF_LOG_2PI = 0.9189385332046728;
+
+/** log Gamma(x) for x > 0: Stirling series (A&S 6.1.40) after shifting x up to >= 16 (A&S 6.1.15). */
+export function lgamma(x: number): number {
+  if (!(x > 0)) return x === 0 ? Infinity : NaN;
+  if (x === Infinity) return Infinity;
+  let shift = 0;
+  let prod = 1;
+  while (x < 16) {
+    prod *= x;
+    x += 1;
+    if (prod > 1e280) {
+      shift += Math.log(prod);
+      prod = 1;
+    }
+  }
+  shift += Math.log(prod);
+  const z = 1 / x;
+  const z2 = z * z;
+  let s = 0;
+  for (let k = STIRLING.length - 1; k >= 0; k--) s = s * z2 + STIRLING[k];
+  return (x - 0.5) * Math.log(x) - x + HALF_LOG_2PI + s * z - shift;
+}
+
+/** Gamma(x) for x > 0 (exact product for small integers). */
+export function gamma(x: number): number {
+  if (Number.isInteger(x) && x > 0 && x <= 171) {
+    let f = 1;
+    for (let k = 2; k < x; k++) f *= k;
+    return f;
+  }
+  return Math.exp(lgamma(x));
+}
+
+/** n! as a double (exact up to 22!). */
+export function factorial(n: number): number {
+  let f = 1;
+  for (let k = 2; k <= n; k++) f *= k;
+  return f;
+}
+
+/** Binomial coefficient C(n, k) as a double (exact while it fits in 2^53). */
+export function binom(n: number, k: number): number {
+  if (k < 0 || k > n) return 0;
+  k = Math.min(k, n - k);
+  let c = 1;
+  for (let j = 1; j <= k; j++) c = (c * (n - k + j)) / j;
+  return Math.round(c);
+}
+
+/** Eulerian numbers A(m, k), k = 0..m-1 (A(0,0) = 1): A(m,k) = (k+1) A(m-1,k) + (m-k) A(m-1,k-1). */
+export function eulerianRow(m: number): number[] {
+  let row = [1];
+  for (let j = 1; j <= m; j++) {
+    const next = new Array<number>(j).fill(0);
+    for (let k = 0; k < j; k++) next[k] = (k + 1) * (row[k] ?? 0) + (j - k) * (row[k - 1] ?? 0);
+    row = next;
+  }
+  return row;
+}
+
+/**
+ * log of the scaled modified Bessel function, log(e^x K_nu(x)), x > 0, any real nu.
+ * Trapezoidal rule on K_nu(x) = int_0^inf exp(-x cosh u) cosh(nu u) du (Abramowitz & Stegun 9.6.24); the integrand
+ * is entire and decays double-exponentially, so the rule converges geometrically (Trefethen & Weideman 2014,
+ * SIAM Review 56, sec. 5). Step 0.1 gives relative error below 1e-15 (checked against half-integer closed forms).
+ */
+export function logBesselKScaled(nu: number, x: number): number {
+  nu = Math.abs(nu);
+  if (!(x > 0)) return x === 0 ? Infinity : NaN;
+  if (x === Infinity) return -Infinity;
+  // integrand g(u) = -x (cosh u - 1) + log cosh(nu u); find its peak u* (g' = -x sinh u + nu tanh(nu u) = 0)
+  let lo = 0;
+  let hi = Math.max(1, Math.asinh(nu / x) + 1);
+  const dg = (u: number) => -x * Math.sinh(u) + nu * Math.tanh(nu * u);
+  let peak = 0;
+  if (nu * nu > x) {
+    for (let i = 0; i < 100; i++) {
+      const mid = 0.5 * (lo + hi);
+      if (dg(mid) > 0) lo = mid;
+      else hi = mid;
+    }
+    peak = 0.5 * (lo + hi);
+  }
+  const logcosh = (v: number) => {
+    const a = Math.abs(v);
+    return a + Math.log1p(Math.exp(-2 * a)) - Math.LN2;
+  };
+  const g = (u: number) => -x * (Math.cosh(u) - 1) + logcosh(nu * u);
+  const gmax = g(peak);
+  // width of the peak sets the step; the analyticity strip |Im u| < pi/2 bounds the error by ~exp(-pi^2 / h)
+  const curv = x * Math.cosh(peak) - (nu * nu) / Math.cosh(nu * peak) ** 2;
+  const width = 1 / Math.sqrt(Math.max(curv, 1e-300));
+  const h = Math.min(0.1, width / 4);
+  // full-line trapezoidal rule on the even integrand, nodes peak + j h (the rule converges geometrically for any
+  // offset); int_{-inf}^{inf} = 2 K, so K = (h/2) sum
+  let s = 0;
+  for (let j = 0; j < 1e6; j++) {
+    const v = Math.exp(g(peak + j * h) - gmax);
+    s += v;
+    if (v < 1e-18) break;
+  }
+  let uStop = peak;
+  for (let j = -1; j > -1e6; j--) {
+    uStop = peak + j * h;
+    const v = Math.exp(g(uStop) - gmax);
+    s += v;
+    if (v < 1e-18) break;
+  }
+  // when the walk stopped before reaching u = 0 the mirror hump at -peak is separate and equal: count it
+  if (uStop <= 0) s *= 0.5;
+  return gmax + Math.log(s * h);
+}
+
+/** K_nu(x) for x > 0 (may under/overflow; use logBesselKScaled in products). */
+export function besselK(nu: number, x: number): number {
+  return Math.exp(logBesselKScaled(nu, x) - x);
+}

@@ -1,0 +1,277 @@
+import { CfError } from "../errors";
+import { MAX_GRID_POINTS } from "../limits";
+import type { Atom, CompiledModel } from "../types";
+import { invertContinuous, type PartOutput, type Request } from "./continuous";
+import { latticeCumulative, solveLattice } from "./lattice";
+import { bulkHalfWidths, lawShape } from "./range";
+import type { DensityOptions, DensityResult, InversionDiagnostics } from "./types";
+
+export const DEFAULT_TOLERANCE = 1e-10;
+/** power tails converge only algebraically in the period, so their default target is looser */
+export const DEFAULT_TOLERANCE_HEAVY = 1e-8;
+const AUTO_GRID_POINTS = 1024;
+
+/**
+ * Distribution of a compiled model at points or on a grid: density of the continuous part (or pmf on a
+ * lattice), cdf and sf, with atoms separated. Methods: "fft" (grid sums by fft.js), "gil-pelaez"
+ * (pointwise mid-point sums), "auto" (fft for grids of 32+ points, pointwise otherwise).
+ * Throws CfError("not_applicable") for a density of a law without one, CfError("limit_exceeded") for grids
+ * above MAX_GRID_POINTS, CfError("invalid_model") for malformed requests (pointer into the options).
+ */
+export function density(model: CompiledModel, options: DensityOptions = {}): DensityResult {
+  const heavyTails = Number.isFinite(Math.min(model.tails.left, model.tails.right));
+  const tol = options.tolerance ?? (heavyTails ? DEFAULT_TOLERANCE_HEAVY : DEFAULT_TOLERANCE);
+  if (!(tol > 0 && Number.isFinite(tol))) throw new CfError("invalid_model", "/tolerance", "tolerance must be a positive finite number");
+  if (options.x && options.grid) throw new CfError("invalid_model", "/x", "give either points x or a grid, not both");
+  const kind = model.kind;
+  if (kind.type === "lattice") return latticeResult(model, kind.origin, kind.step, options, tol);
+  if (kind.type === "discrete") {
+    if (!kind.atoms) {
+      throw new CfError("not_applicable", "", "this law is discrete without a common lattice and too many atoms to list; it has no density and its cdf cannot be inverted here");
+    }
+    return atomsOnly(kind.atoms, options);
+  }
+  const atoms: Atom[] = kind.type === "mixed" ? [...kind.atoms].sort((p, q) => p.x - q.x) : [];
+  const req = buildRequest(model, options, atoms, tol);
+  const method = pickMethod(options, req);
+  const wantPdf = !options.cdfOnly;
+  const w = 1 - atoms.reduce((s, a) => s + a.p, 0);
+  let out: PartOutput;
+  if (w <= 1e-14) {
+    return atomsOnly(atoms, options);
+  }
+  out = invertContinuous(model, atoms, req, {
+    method,
+    tolerance: tol / w,
+    wantPdf,
+    range: options.range,
+    maxFrequency: options.maxFrequency,
+  });
+  const xs = req.kind === "points" ? req.x : gridX(req.from, req.dx, req.count);
+  const n = xs.length;
+  const cdf = new Float64Array(n);
+  const sf = new Float64Array(n);
+  const pdf = out.pdf ? new Float64Array(n) : undefined;
+  for (let i = 0; i < n; i++) {
+    const { below, above } = atomMass(atoms, xs[i]);
+    cdf[i] = below + w * out.cdf[i];
+    sf[i] = above + w * out.sf[i];
+    if (pdf) pdf[i] = w * out.pdf![i];
+  }
+  const e = out.error;
+  const diagnostics: InversionDiagnostics = {
+    method: out.method,
+    gridSize: out.gridSize,
+    terms: out.terms,
+    frequencyStep: out.h,
+    maxFrequency: out.maxFrequency,
+    range: { from: out.window.a, to: out.window.b },
+    capturedMass: atoms.reduce((s, a) => s + a.p, 0) + w * out.captured,
+    error: {
+      aliasing: w * e.aliasing,
+      truncation: w * e.truncation,
+      rounding: w * e.rounding + 4 * Number.EPSILON,
+      pdf: wantPdf ? w * e.pdf : NaN,
+      cdf: w * e.cdf + 4 * Number.EPSILON,
+    },
+    levels: out.levels,
+    notes: [...out.notes, ...model.notes],
+  };
+  return { x: Float64Array.from(xs), pdf, cdf, sf, atoms, diagnostics };
+}
+
+function pickMethod(options: DensityOptions, req: Request): "fft" | "gil-pelaez" {
+  const m = options.method ?? "auto";
+  if (m === "fft") {
+    if (req.kind !== "grid") throw new CfError("not_applicable", "/method", "the fft method needs a uniform grid; use gil-pelaez or auto for arbitrary points");
+    return "fft";
+  }
+  if (m === "gil-pelaez") return "gil-pelaez";
+  return req.kind === "grid" && req.count >= 32 ? "fft" : "gil-pelaez";
+}
+
+function buildRequest(model: CompiledModel, o: DensityOptions, atoms: Atom[], tol: number): Request {
+  if (o.x) {
+    const x = Float64Array.from(o.x as ArrayLike<number>);
+    if (x.length > MAX_GRID_POINTS) throw new CfError("limit_exceeded", "/x", `at most ${MAX_GRID_POINTS} points per request`);
+    for (let i = 0; i < x.length; i++) {
+      if (!Number.isFinite(x[i])) throw new CfError("invalid_model", `/x/${i}`, "every point must be a finite number");
+    }
+    return { kind: "points", x };
+  }
+  if (o.grid) {
+    const { from, to, count } = o.grid;
+    if (!Number.isInteger(count) || count < 1) throw new CfError("invalid_model", "/grid/count", "count must be a positive integer");
+    if (count > MAX_GRID_POINTS) throw new CfError("limit_exceeded", "/grid/count", `at most ${MAX_GRID_POINTS} grid points`);
+    if (!Number.isFinite(from) || !Number.isFinite(to)) throw new CfError("invalid_model", "/grid", "grid ends must be finite numbers");
+    if (count > 1 && !(to > from)) throw new CfError("invalid_model", "/grid/to", "grid end must be above its start");
+    const dx = count > 1 ? (to - from) / (count - 1) : 1;
+    if (count === 1) return { kind: "points", x: new Float64Array([from]) };
+    return { kind: "grid", from, dx, count };
+  }
+  const g = autoGrid(model, atoms, tol);
+  return { kind: "grid", from: g.from, dx: (g.to - g.from) / (g.count - 1), count: g.count };
+}
+
+/** Grid covering the bulk (tail mass about 1e-8 each side for light tails; location +- 10 scales for heavy). */
+export function autoGrid(model: CompiledModel, atoms: Atom[], _tol: number): { from: number; to: number; count: number } {
+  const s = lawShape(model);
+  let from: number;
+  let to: number;
+  if (!s.heavy) {
+    const hw = bulkHalfWidths(s, 1e-8);
+    from = s.center - hw.left;
+    to = s.center + hw.right;
+  } else {
+    from = s.center - 10 * s.spread;
+    to = s.center + 10 * s.spread;
+  }
+  const [lo, hi] = s.support;
+  if (Number.isFinite(lo)) from = Math.max(from, lo);
+  if (Number.isFinite(hi)) to = Math.min(to, hi);
+  for (const a of atoms) {
+    from = Math.min(from, a.x);
+    to = Math.max(to, a.x);
+  }
+  if (!(to > from)) to = from + 1;
+  return { from, to, count: AUTO_GRID_POINTS };
+}
+
+function gridX(from: number, dx: number, count: number): Float64Array {
+  const x = new Float64Array(count);
+  for (let i = 0; i < count; i++) x[i] = from + i * dx;
+  return x;
+}
+
+/** Atom mass at or below x, and above x. */
+export function atomMass(atoms: Atom[], x: number): { below: number; above: number } {
+  let below = 0;
+  let above = 0;
+  for (const a of atoms) {
+    if (a.x <= x) below += a.p;
+    else above += a.p;
+  }
+  return { below, above };
+}
+
+function pointsOf(options: DensityOptions, fallback: Float64Array): Float64Array {
+  if (options.x) return Float64Array.from(options.x as ArrayLike<number>);
+  if (options.grid) {
+    const { from, to, count } = options.grid;
+    if (!Number.isInteger(count) || count < 1) throw new CfError("invalid_model", "/grid/count", "count must be a positive integer");
+    if (count > MAX_GRID_POINTS) throw new CfError("limit_exceeded", "/grid/count", `at most ${MAX_GRID_POINTS} grid points`);
+    return count === 1 ? new Float64Array([from]) : gridX(from, (to - from) / (count - 1), count);
+  }
+  return fallback;
+}
+
+function atomsOnly(atomsIn: Atom[], options: DensityOptions): DensityResult {
+  const atoms = [...atomsIn].sort((p, q) => p.x - q.x);
+  const xs = pointsOf(options, Float64Array.from(atoms.map((a) => a.x)));
+  const n = xs.length;
+  const pmf = new Float64Array(n);
+  const cdf = new Float64Array(n);
+  const sf = new Float64Array(n);
+  for (let i = 0; i < n; i++) {
+    const { below, above } = atomMass(atoms, xs[i]);
+    cdf[i] = below;
+    sf[i] = above;
+    for (const a of atoms) if (a.x === xs[i]) pmf[i] += a.p;
+  }
+  const err = 4 * Number.EPSILON * Math.max(1, atoms.length);
+  return {
+    x: xs,
+    pmf,
+    cdf,
+    sf,
+    atoms,
+    diagnostics: {
+      method: "atoms",
+      gridSize: atoms.length,
+      terms: 0,
+      frequencyStep: NaN,
+      maxFrequency: NaN,
+      range: { from: atoms.length ? atoms[0].x : NaN, to: atoms.length ? atoms[atoms.length - 1].x : NaN },
+      capturedMass: atoms.reduce((s, a) => s + a.p, 0),
+      error: { aliasing: 0, truncation: 0, rounding: err, pdf: err, cdf: err },
+      levels: 1,
+      notes: ["purely atomic law: pmf at the atoms, step-function cdf"],
+    },
+  };
+}
+
+function latticeResult(model: CompiledModel, origin: number, step: number, options: DensityOptions, tol: number): DensityResult {
+  if (!(step > 0) || !Number.isFinite(origin)) throw new CfError("not_applicable", "", "lattice law with an invalid step");
+  const sol = solveLattice(model, origin, step, tol);
+  const t = sol.table;
+  const { cdf: C, sf: S0 } = latticeCumulative(t.p);
+  const S = S0;
+  if (sol.method === "lattice-exact" && t.tailMass > 0) for (let i = 0; i < S.length; i++) S[i] += t.tailMass;
+  const n0 = t.p.length;
+  let xs: Float64Array;
+  let pmf: Float64Array;
+  let cdf: Float64Array;
+  let sf: Float64Array;
+  if (!options.x && !options.grid) {
+    // the table itself, trimmed of negligible ends
+    let i0 = 0;
+    let i1 = n0 - 1;
+    const cut = Math.min(sol.errorPmf, 1e-300);
+    const [slo, shi] = model.support;
+    while (i0 < i1 && (t.p[i0] <= cut || t.origin + i0 * t.step < slo - 1e-9 * t.step)) i0++;
+    while (i1 > i0 && (t.p[i1] <= cut || t.origin + i1 * t.step > shi + 1e-9 * t.step)) i1--;
+    const n = i1 - i0 + 1;
+    xs = new Float64Array(n);
+    pmf = new Float64Array(n);
+    cdf = new Float64Array(n);
+    sf = new Float64Array(n);
+    for (let i = 0; i < n; i++) {
+      xs[i] = t.origin + (i0 + i) * t.step;
+      pmf[i] = Math.max(t.p[i0 + i], 0);
+      cdf[i] = Math.min(1, C[i0 + i]);
+      sf[i] = Math.min(1, S[i0 + i]);
+    }
+  } else {
+    xs = pointsOf(options, new Float64Array(0));
+    const n = xs.length;
+    pmf = new Float64Array(n);
+    cdf = new Float64Array(n);
+    sf = new Float64Array(n);
+    for (let i = 0; i < n; i++) {
+      if (!Number.isFinite(xs[i])) throw new CfError("invalid_model", `/x/${i}`, "every point must be a finite number");
+      const u = (xs[i] - t.origin) / t.step;
+      const k = Math.floor(u + 1e-9);
+      const onLattice = Math.abs(u - Math.round(u)) <= 1e-9 * Math.max(1, Math.abs(u));
+      if (k < 0) {
+        cdf[i] = 0;
+        sf[i] = 1;
+      } else if (k >= n0) {
+        cdf[i] = 1 - (sol.method === "lattice-exact" ? t.tailMass : 0);
+        sf[i] = sol.method === "lattice-exact" ? t.tailMass : 0;
+      } else {
+        cdf[i] = Math.min(1, C[k]);
+        sf[i] = Math.min(1, S[k]);
+        if (onLattice) pmf[i] = Math.max(t.p[Math.round(u)], 0);
+      }
+    }
+  }
+  return {
+    x: xs,
+    pmf,
+    cdf,
+    sf,
+    atoms: [],
+    diagnostics: {
+      method: sol.method,
+      gridSize: sol.gridSize,
+      terms: sol.method === "lattice-fft" ? sol.gridSize : 0,
+      frequencyStep: (2 * Math.PI) / (sol.gridSize * step),
+      maxFrequency: Math.PI / step,
+      range: { from: t.origin, to: t.origin + (n0 - 1) * t.step },
+      capturedMass: 1 - t.tailMass,
+      error: { aliasing: sol.method === "lattice-fft" ? sol.errorPmf : 0, truncation: sol.method === "lattice-exact" ? t.tailMass : 0, rounding: 8 * Number.EPSILON, pdf: sol.errorPmf, cdf: sol.errorCdf },
+      levels: 1,
+      notes: [...sol.notes, ...model.notes],
+    },
+  };
+}

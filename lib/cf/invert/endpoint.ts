@@ -1,0 +1,131 @@
+import { evalPart, type ContinuousPart, type EndpointKernels } from "./part";
+
+/**
+ * Fit the large-t expansion phi(t) ~ sum_e e^{i t e} sum_{j<=J} c_{e,j} (-i s_e t)^{-j} at the finite support
+ * endpoints e (s_e = +1 at the lower end, -1 at the upper end), where c_{e,j} is the (j-1)-th derivative of the
+ * density at the endpoint from inside (integration by parts of int e^{itx} f(x) dx; e.g. Lukacs,
+ * Characteristic Functions, 2nd ed., sec. 2.3), by least squares on samples far out in t; then express each
+ * endpoint's expansion through Erlang kernels e^{i t e}(1 - i s t/lambda)^{-m}, m <= J, using
+ * (1 + w)^{-m} = sum_n binom(-m, n) w^{-m-n}. Returns null when the samples are not described by such an
+ * expansion (interior kinks, lattice parts): the caller then inverts without kernels.
+ */
+export function fitEndpointKernels(
+  part: ContinuousPart,
+  ends: { at: number; side: 1 | -1 }[],
+  J: number,
+  tBig: number,
+  minRate: number,
+): { kernels: EndpointKernels[]; residual: number } | null {
+  if (ends.length === 0) return null;
+  const m = 24;
+  const t = new Float64Array(m);
+  for (let i = 0; i < m; i++) t[i] = tBig * Math.pow(2, i / 6) * (1 + 0.137 * (((i * 7) % 5) / 5));
+  const re = new Float64Array(m);
+  const im = new Float64Array(m);
+  const bare = { ...part, center: 0, kernels: [], mass: 1 };
+  evalPart(bare, t, re, im);
+  const P = ends.length * J;
+  const rows = 2 * m;
+  // column-major design matrix, columns scaled so |entries| <= 1
+  const A: Float64Array[] = [];
+  for (let q = 0; q < P; q++) A.push(new Float64Array(rows));
+  const b = new Float64Array(rows);
+  for (let i = 0; i < m; i++) {
+    b[2 * i] = re[i];
+    b[2 * i + 1] = im[i];
+    for (let e = 0; e < ends.length; e++) {
+      const { at, side } = ends[e];
+      const ca = Math.cos(t[i] * at);
+      const sa = Math.sin(t[i] * at);
+      // v = tBig / (-i s t) = i tBig / (s t)
+      const vi = tBig / (side * t[i]);
+      let pr = 1;
+      let pi = 0;
+      for (let j = 0; j < J; j++) {
+        const nr = -pi * vi;
+        pi = pr * vi;
+        pr = nr;
+        const col = A[e * J + j];
+        col[2 * i] = pr * ca - pi * sa;
+        col[2 * i + 1] = pr * sa + pi * ca;
+      }
+    }
+  }
+  const x = leastSquares(A, b);
+  if (!x) return null;
+  let rr = 0;
+  let bb = 0;
+  for (let r = 0; r < rows; r++) {
+    let s = 0;
+    for (let q = 0; q < P; q++) s += A[q][r] * x[q];
+    rr += (s - b[r]) ** 2;
+    bb += b[r] ** 2;
+  }
+  const residual = Math.sqrt(rr / Math.max(bb, 1e-300));
+  if (!(residual < 1e-4)) return null;
+  const kernels: EndpointKernels[] = [];
+  for (let e = 0; e < ends.length; e++) {
+    const c: number[] = [];
+    for (let j = 0; j < J; j++) c.push(x[e * J + j] * Math.pow(tBig, j + 1));
+    // the density's own decay rate near the end keeps the amplitudes b_m of order c_1 (no cancellation)
+    let rate = minRate;
+    const lead = c.findIndex((v) => Math.abs(v) > 0);
+    if (lead >= 0) {
+      for (let j = lead + 1; j < J; j++) {
+        const r = Math.pow(Math.abs(c[j] / c[lead]), 1 / (j - lead));
+        if (Number.isFinite(r) && r > rate) rate = r;
+      }
+    }
+    const bm: number[] = [];
+    for (let j = 1; j <= J; j++) {
+      let v = c[j - 1] / Math.pow(rate, j);
+      for (let q = 1; q < j; q++) v -= bm[q - 1] * binomNeg(q, j - q);
+      bm.push(v);
+    }
+    if (bm.some((v) => !Number.isFinite(v))) return null;
+    kernels.push({ at: ends[e].at, side: ends[e].side, rate, b: bm });
+  }
+  return { kernels, residual };
+}
+
+/** binom(-m, n) = (-1)^n C(m + n - 1, n). */
+function binomNeg(m: number, n: number): number {
+  let c = 1;
+  for (let i = 1; i <= n; i++) c = (c * (m + i - 1)) / i;
+  return n % 2 === 0 ? c : -c;
+}
+
+/** Least squares by modified Gram-Schmidt QR (columns given separately); null when rank deficient. */
+function leastSquares(cols: Float64Array[], b: Float64Array): Float64Array | null {
+  const P = cols.length;
+  const n = b.length;
+  const Q = cols.map((c) => Float64Array.from(c));
+  const R = new Float64Array(P * P);
+  for (let j = 0; j < P; j++) {
+    for (let i = 0; i < j; i++) {
+      let d = 0;
+      for (let r = 0; r < n; r++) d += Q[i][r] * Q[j][r];
+      R[i * P + j] = d;
+      for (let r = 0; r < n; r++) Q[j][r] -= d * Q[i][r];
+    }
+    let nrm = 0;
+    for (let r = 0; r < n; r++) nrm += Q[j][r] ** 2;
+    nrm = Math.sqrt(nrm);
+    if (!(nrm > 1e-12)) return null;
+    R[j * P + j] = nrm;
+    for (let r = 0; r < n; r++) Q[j][r] /= nrm;
+  }
+  const y = new Float64Array(P);
+  for (let j = 0; j < P; j++) {
+    let d = 0;
+    for (let r = 0; r < n; r++) d += Q[j][r] * b[r];
+    y[j] = d;
+  }
+  const x = new Float64Array(P);
+  for (let j = P - 1; j >= 0; j--) {
+    let s = y[j];
+    for (let q = j + 1; q < P; q++) s -= R[j * P + q] * x[q];
+    x[j] = s / R[j * P + j];
+  }
+  return x;
+}

@@ -1,0 +1,69 @@
+import { getFftPlan } from "../fftplan";
+import type { Nodes } from "./nodes";
+
+/**
+ * The mid-point Gil-Pelaez / density sums of ./pointwise evaluated on a whole grid x_j = x0 + j dx (j < N)
+ * with one FFT each, when h dx = 2 pi / N:
+ *   e^{-i t_k x_j} = e^{-i t_k (x0 - c)} e^{-i pi j / N} e^{-2 pi i k j / N},
+ * so with c_k = phi_k e^{-i t_k (x0 - c)} the sum over k is a forward DFT of c (nodes with k >= N fold
+ * onto k mod N, which leaves the phase unchanged). Plans and buffers come from the shared cache.
+ * Writes the first `count` grid values starting at grid index `offset`.
+ */
+export function sumOnGrid(
+  nodes: Nodes,
+  center: number,
+  x0: number,
+  N: number,
+  offset: number,
+  count: number,
+  pdf: Float64Array | null,
+  cdf: Float64Array | null,
+  sf: Float64Array | null,
+): void {
+  const { h, K, re, im, wre, wim, mass } = nodes;
+  const plan = getFftPlan(N);
+  const inp = plan.a;
+  const out = plan.b;
+  const y0 = x0 - center;
+  const th = h * y0;
+  const passes: Array<[Float64Array, Float64Array, boolean]> = [];
+  if (pdf) passes.push([re, im, true]);
+  if (cdf || sf) passes.push([wre, wim, false]);
+  for (const [pr, pi, isPdf] of passes) {
+    inp.fill(0);
+    const rc = Math.cos(th);
+    const rs = -Math.sin(th);
+    let k = 0;
+    while (k < K) {
+      const a0 = (k + 0.5) * th;
+      let zr = Math.cos(a0);
+      let zi = -Math.sin(a0);
+      const end = Math.min(K, k + 64);
+      for (; k < end; k++) {
+        const m = (k & (N - 1)) << 1;
+        inp[m] += zr * pr[k] - zi * pi[k];
+        inp[m + 1] += zr * pi[k] + zi * pr[k];
+        const nr = zr * rc - zi * rs;
+        zi = zr * rs + zi * rc;
+        zr = nr;
+      }
+    }
+    plan.forward(inp, out);
+    const step = Math.PI / N;
+    for (let q = 0; q < count; q++) {
+      const j = q + offset;
+      const a = j * step;
+      const er = Math.cos(a);
+      const ei = -Math.sin(a);
+      const cr = out[2 * j];
+      const ci = out[2 * j + 1];
+      if (isPdf) {
+        pdf![q] = (h / Math.PI) * (er * cr - ei * ci);
+      } else {
+        const s = (er * ci + ei * cr) / Math.PI;
+        if (cdf) cdf[q] = mass / 2 - s;
+        if (sf) sf[q] = mass / 2 + s;
+      }
+    }
+  }
+}

@@ -1,0 +1,143 @@
+import { evalPart, type ContinuousPart } from "./part";
+
+/**
+ * Envelope of |phi_part(t)| sampled on a geometric probe (8 points per octave) and its tail integrals, used to
+ * choose the frequency cut-off and to bound the truncation error of the inversion sums:
+ * trunc_pdf(T) = (1/pi) int_T^inf E(t) dt, trunc_cdf(T) = (1/pi) int_T^inf E(t)/t dt,
+ * where E is the running maximum of the samples from the right (a non-increasing envelope).
+ */
+export interface Envelope {
+  t: Float64Array;
+  env: Float64Array;
+  tailPdf: Float64Array;
+  tailCdf: Float64Array;
+  /** power-law decay exponent measured over the last probed octave (Infinity when |phi| hit 0) */
+  decay: number;
+}
+
+const PER_OCTAVE = 8;
+const STEP = Math.pow(2, 1 / PER_OCTAVE);
+
+/**
+ * Values below `floor` are rounding noise of the atom subtraction (|phi - sum p e^{itx}| cannot be resolved
+ * below eps * sum p / w); they are treated as zero, and the truncation bounds carry an allowance for them.
+ */
+export function noiseFloor(part: ContinuousPart): { base: number; slope: number } {
+  let pa = 0;
+  let xm = 0;
+  for (const a of part.atoms) {
+    pa += a.p;
+    xm = Math.max(xm, Math.abs(a.x));
+  }
+  if (pa <= 0) return { base: 0, slope: 0 };
+  // the atoms' phases t x carry absolute errors ~ eps t |x|
+  const base = (16 * Number.EPSILON * (1 + pa)) / part.weight;
+  return { base, slope: base * xm };
+}
+
+export function probeEnvelope(part: ContinuousPart, scale: number): Envelope {
+  const nf = noiseFloor(part);
+  const t0 = 1e-3 / scale;
+  const octaves = 54; // up to ~1.8e13 / scale
+  const n = octaves * PER_OCTAVE + 1;
+  const t = new Float64Array(n);
+  for (let i = 0; i < n; i++) t[i] = t0 * Math.pow(STEP, i);
+  const re = new Float64Array(n);
+  const im = new Float64Array(n);
+  evalPart(part, t, re, im);
+  const env = new Float64Array(n);
+  let run = 0;
+  for (let i = n - 1; i >= 0; i--) {
+    const a = Math.hypot(re[i], im[i]);
+    const floor = nf.base + nf.slope * t[i];
+    const v = Number.isFinite(a) ? (a > floor ? a : 0) : Infinity;
+    if (v > run) run = v;
+    env[i] = run;
+  }
+  const last = env[n - 1];
+  const prev = env[n - 1 - PER_OCTAVE];
+  let decay = Infinity;
+  if (last > 1e-300) decay = prev > 0 ? Math.log2(prev / last) : 0;
+  const tailPdf = new Float64Array(n);
+  const tailCdf = new Float64Array(n);
+  let sp = 0;
+  let sc = 0;
+  if (last > 1e-300) {
+    sp = decay > 1.05 ? (last * t[n - 1]) / (decay - 1) : Infinity;
+    sc = decay > 0.05 ? last / decay : Infinity;
+  }
+  const lastFloor = nf.base + nf.slope * t[n - 1];
+  tailPdf[n - 1] = (sp + lastFloor * t[n - 1]) / Math.PI;
+  tailCdf[n - 1] = (sc + lastFloor) / Math.PI;
+  const lnStep = Math.log(STEP);
+  for (let i = n - 2; i >= 0; i--) {
+    sp += env[i] * (t[i + 1] - t[i]);
+    sc += env[i] * lnStep;
+    // allowance for sub-floor values over the next octave
+    const floor = nf.base + nf.slope * t[i];
+    tailPdf[i] = (sp + floor * t[i]) / Math.PI;
+    tailCdf[i] = (sc + floor) / Math.PI;
+  }
+  return { t, env, tailPdf, tailCdf, decay };
+}
+
+/** Smallest probed frequency beyond which the truncation bounds fall below the targets (Infinity if none). */
+export function cutoffFor(e: Envelope, targetPdf: number, targetCdf: number): number {
+  for (let i = 0; i < e.t.length; i++) {
+    if (e.tailCdf[i] <= targetCdf && e.tailPdf[i] <= targetPdf) return e.t[i];
+  }
+  // unattainable (rounding floor of atom subtraction): the cut-off with the smallest bound, if it is finite
+  let best = -1;
+  let bestV = Infinity;
+  for (let i = 0; i < e.t.length; i++) {
+    const v = Math.max(e.tailCdf[i] / targetCdf, Number.isFinite(targetPdf) ? e.tailPdf[i] / targetPdf : 0);
+    if (v < bestV) {
+      bestV = v;
+      best = i;
+    }
+  }
+  return best >= 0 && Number.isFinite(bestV) && e.env[best] === 0 ? e.t[best] : Infinity;
+}
+
+/** Truncation bounds at an arbitrary cut-off T (envelope tail, interpolated to the probe on the left: an over-estimate). */
+export function truncationAt(e: Envelope, T: number): { pdf: number; cdf: number } {
+  let i = 0;
+  while (i + 1 < e.t.length && e.t[i + 1] <= T) i++;
+  return { pdf: e.tailPdf[i], cdf: e.tailCdf[i] };
+}
+
+/** Frequency nodes t_k = (k + 1/2) h, k < K, with phi_part and the sums needed by the error terms. */
+export interface Nodes {
+  h: number;
+  K: number;
+  re: Float64Array;
+  im: Float64Array;
+  /** phi_k / (k + 1/2), the Gil-Pelaez weights */
+  wre: Float64Array;
+  wim: Float64Array;
+  /** (1/pi) sum |phi_k| / (k+1/2) and (h/pi) sum |phi_k|: scale of the cdf and pdf sums, for rounding bounds */
+  absCdf: number;
+  absPdf: number;
+  mass: number;
+}
+
+export function buildNodes(part: ContinuousPart, h: number, K: number): Nodes {
+  const t = new Float64Array(K);
+  for (let k = 0; k < K; k++) t[k] = (k + 0.5) * h;
+  const re = new Float64Array(K);
+  const im = new Float64Array(K);
+  evalPart(part, t, re, im);
+  const wre = new Float64Array(K);
+  const wim = new Float64Array(K);
+  let ac = 0;
+  let ap = 0;
+  for (let k = 0; k < K; k++) {
+    const inv = 1 / (k + 0.5);
+    wre[k] = re[k] * inv;
+    wim[k] = im[k] * inv;
+    const a = Math.hypot(re[k], im[k]);
+    ac += a * inv;
+    ap += a;
+  }
+  return { h, K, re, im, wre, wim, absCdf: ac / Math.PI, absPdf: (ap * h) / Math.PI, mass: part.mass };
+}

@@ -1,0 +1,147 @@
+import type { Atom, CompiledModel } from "../types";
+
+/**
+ * Gamma kernels at a finite support endpoint, subtracted from the CF so that what is left decays faster in t.
+ * A density with f(lo+) != 0 has phi(t) e^{-it lo} ~ sum_j f^{(j-1)}(lo+) (-it)^{-j} (integration by parts,
+ * e.g. Lukacs, Characteristic Functions, ch. 2); subtracting sum_m b_m e^{it lo} (1 - i t / lambda)^{-m}
+ * with matching expansion leaves a remainder whose inversion converges quickly. The kernels are inverted
+ * in closed form (Erlang cdf).
+ */
+export interface EndpointKernels {
+  /** endpoint and side: +1 kernels live on [at, inf), -1 on (-inf, at] */
+  at: number;
+  side: 1 | -1;
+  rate: number;
+  /** amplitudes b_1..b_J */
+  b: number[];
+}
+
+/** The continuous part handed to the inversion sums: (phi - sum atoms)/w minus kernels, recentred at `center`. */
+export interface ContinuousPart {
+  model: CompiledModel;
+  atoms: Atom[];
+  /** 1 - sum of atom masses */
+  weight: number;
+  /** x-origin of the phases (reduces angle size and rounding) */
+  center: number;
+  kernels: EndpointKernels[];
+  /** total mass of the measure actually inverted (1 minus kernel masses) */
+  mass: number;
+}
+
+export function makePart(model: CompiledModel, atoms: Atom[], center: number): ContinuousPart {
+  let pa = 0;
+  for (const a of atoms) pa += a.p;
+  return { model, atoms, weight: 1 - pa, center, kernels: [], mass: 1 };
+}
+
+export function withKernels(part: ContinuousPart, ks: EndpointKernels[]): ContinuousPart {
+  let m = 1;
+  for (const k of ks) for (const b of k.b) m -= b;
+  return { ...part, kernels: ks, mass: m };
+}
+
+/**
+ * phi_part(t) = [ (phi(t) - sum_j p_j e^{i t x_j}) / w  -  kernels(t) ] e^{-i t c}, written into (re, im).
+ * Scratch-free apart from what the model needs; called once per node block, never per x.
+ */
+export function evalPart(part: ContinuousPart, t: Float64Array, re: Float64Array, im: Float64Array): void {
+  const n = t.length;
+  part.model.cf(t, re, im);
+  const c = part.center;
+  const atoms = part.atoms;
+  const invW = 1 / part.weight;
+  const ks = part.kernels;
+  for (let i = 0; i < n; i++) {
+    const ti = t[i];
+    let r = re[i];
+    let m = im[i];
+    for (let j = 0; j < atoms.length; j++) {
+      const a = ti * atoms[j].x;
+      r -= atoms[j].p * Math.cos(a);
+      m -= atoms[j].p * Math.sin(a);
+    }
+    if (atoms.length) {
+      r *= invW;
+      m *= invW;
+    }
+    for (let kk = 0; kk < ks.length; kk++) {
+      const k = ks[kk];
+      // (1 - i s t/lambda)^{-m} for m = 1..J via repeated division; s = side
+      const ur = 1;
+      const ui = (-k.side * ti) / k.rate;
+      const den = ur * ur + ui * ui;
+      const vr = ur / den;
+      const vi = -ui / den; // v = 1/(1 - i s t/lambda)
+      let pr = 1;
+      let pi = 0;
+      let sr = 0;
+      let si = 0;
+      for (let q = 0; q < k.b.length; q++) {
+        const nr = pr * vr - pi * vi;
+        pi = pr * vi + pi * vr;
+        pr = nr;
+        sr += k.b[q] * pr;
+        si += k.b[q] * pi;
+      }
+      const ca = Math.cos(ti * k.at);
+      const sa = Math.sin(ti * k.at);
+      r -= sr * ca - si * sa;
+      m -= sr * sa + si * ca;
+    }
+    if (c !== 0) {
+      const ca = Math.cos(ti * c);
+      const sa = Math.sin(ti * c);
+      const nr = r * ca + m * sa;
+      m = m * ca - r * sa;
+      r = nr;
+    }
+    re[i] = r;
+    im[i] = m;
+  }
+}
+
+/** Erlang(m, rate) cdf and sf at y >= 0 by the finite Poisson sum (Abramowitz & Stegun 26.4.21 with integer shape). */
+export function erlangTails(m: number, rate: number, y: number): { cdf: number; sf: number; pdf: number } {
+  if (y <= 0) return { cdf: 0, sf: 1, pdf: 0 };
+  const z = rate * y;
+  const e = Math.exp(-z);
+  let term = 1;
+  let s = 0;
+  for (let n = 0; n < m; n++) {
+    if (n > 0) term *= z / n;
+    s += term;
+  }
+  const sf = e * s;
+  // term is z^{m-1}/(m-1)!
+  const pdf = rate * e * term;
+  // cdf computed as 1 - sf except when sf ~ 1, where the complementary series is more accurate
+  let cdf = 1 - sf;
+  if (sf > 0.5) {
+    let t2 = term * z / m;
+    let c = 0;
+    for (let n = m; n < m + 200; n++) {
+      c += t2;
+      t2 *= z / (n + 1);
+      if (t2 < c * 1e-17) break;
+    }
+    cdf = e * c;
+  }
+  return { cdf, sf, pdf };
+}
+
+/** Kernel contributions to pdf, cdf, sf at x (sum over b_m times the Erlang laws at the endpoint). */
+export function kernelAt(k: EndpointKernels, x: number): { pdf: number; cdf: number; sf: number } {
+  const y = k.side * (x - k.at);
+  let pdf = 0;
+  let lower = 0;
+  let upper = 0;
+  for (let q = 0; q < k.b.length; q++) {
+    const e = erlangTails(q + 1, k.rate, y);
+    pdf += k.b[q] * e.pdf;
+    lower += k.b[q] * e.cdf;
+    upper += k.b[q] * e.sf;
+  }
+  // for side -1 the Erlang variable is at - X, so its cdf is our sf
+  return k.side === 1 ? { pdf, cdf: lower, sf: upper } : { pdf, cdf: upper, sf: lower };
+}

@@ -1,0 +1,271 @@
+import { getFftPlan, nextPowerOfTwo } from "./fftplan";
+import { CfError } from "./errors";
+import { MAX_LATTICE } from "./limits";
+import type { LatticeTable } from "./types";
+
+/** Relative tolerance for deciding that two steps (or an offset and a step) are commensurate. */
+export const COMMENSURATE_TOL = 1e-12;
+const MAX_DENOMINATOR = 10_000;
+const MAX_NUMERATOR = 1e9;
+
+/**
+ * Largest g with h1 = a g and h2 = b g for integers a, b (a "real gcd"), found from the continued fraction of h1/h2;
+ * 0 is neutral (a single point). Returns null when h1/h2 is not p/q with q <= 10^4, p <= 10^9 within 1e-12.
+ */
+export function commonStep(h1: number, h2: number): number | null {
+  h1 = Math.abs(h1);
+  h2 = Math.abs(h2);
+  if (h1 === 0) return h2;
+  if (h2 === 0) return h1;
+  if (h1 < h2) [h1, h2] = [h2, h1];
+  const r = h1 / h2;
+  // convergents p/q of r
+  let p0 = 0, q0 = 1, p1 = 1, q1 = 0;
+  let x = r;
+  for (let i = 0; i < 64; i++) {
+    const a = Math.floor(x);
+    const p2 = a * p1 + p0;
+    const q2 = a * q1 + q0;
+    if (q2 > MAX_DENOMINATOR || p2 > MAX_NUMERATOR) return null;
+    if (Math.abs(p2 / q2 - r) <= COMMENSURATE_TOL * r) return h2 / q2;
+    p0 = p1; q0 = q1; p1 = p2; q1 = q2;
+    const frac = x - a;
+    if (frac < 1e-15) return null;
+    x = 1 / frac;
+  }
+  return null;
+}
+
+/** Whether x is (within tolerance) an integer multiple of step g. */
+export function onLattice(x: number, g: number, scale = 1): boolean {
+  if (g === 0) return Math.abs(x) <= COMMENSURATE_TOL * Math.max(1, scale);
+  const k = Math.round(x / g);
+  return Math.abs(x - k * g) <= COMMENSURATE_TOL * Math.max(Math.abs(x), g, scale);
+}
+
+/** Direct convolution c = a * b (length la + lb - 1), exact to rounding (each entry a sum of non-negative products). */
+export function convolveDirect(a: Float64Array, b: Float64Array, out?: Float64Array): Float64Array {
+  const la = a.length;
+  const lb = b.length;
+  const c = out ?? new Float64Array(la + lb - 1);
+  c.fill(0, 0, la + lb - 1);
+  for (let i = 0; i < la; i++) {
+    const ai = a[i];
+    if (ai === 0) continue;
+    for (let j = 0; j < lb; j++) c[i + j] += ai * b[j];
+  }
+  return c;
+}
+
+/**
+ * FFT convolution with zero padding to N >= la + lb - 1 (no wrap-around). Both real inputs go through one complex
+ * transform (z = a + i b, A_k = (Z_k + conj Z_{N-k})/2, B_k = (Z_k - conj Z_{N-k})/(2i); Press et al., Numerical
+ * Recipes 3rd ed., sec. 12.3); the product's inverse gives c. Rounding leaves |error| ~ eps log2 N max|c|; negative
+ * round-off is clipped to 0.
+ */
+export function convolveFft(a: Float64Array, b: Float64Array, out?: Float64Array): Float64Array {
+  const la = a.length;
+  const lb = b.length;
+  const lc = la + lb - 1;
+  const N = nextPowerOfTwo(lc);
+  const plan = getFftPlan(N);
+  const z = plan.a;
+  const Z = plan.b;
+  z.fill(0);
+  for (let i = 0; i < la; i++) z[2 * i] = a[i];
+  for (let j = 0; j < lb; j++) z[2 * j + 1] = b[j];
+  plan.forward(z, Z);
+  for (let k = 0; k < N; k++) {
+    const m = (N - k) % N;
+    const xr = Z[2 * k];
+    const xi = Z[2 * k + 1];
+    const wr = Z[2 * m];
+    const wi = -Z[2 * m + 1];
+    // (Z_k^2 - W^2) / (4i)
+    const ur = xr * xr - xi * xi - (wr * wr - wi * wi);
+    const ui = 2 * xr * xi - 2 * wr * wi;
+    z[2 * k] = ui / 4;
+    z[2 * k + 1] = -ur / 4;
+  }
+  // the product spectrum is Hermitian only up to rounding; the real part of the inverse is the convolution
+  plan.inverse(z, Z);
+  const c = out ?? new Float64Array(lc);
+  for (let i = 0; i < lc; i++) {
+    const v = Z[2 * i];
+    c[i] = v > 0 ? v : 0;
+  }
+  return c;
+}
+
+/** Convolution of two non-negative sequences, direct for small work and FFT otherwise. */
+export function convolve(a: Float64Array, b: Float64Array, out?: Float64Array): Float64Array {
+  const la = a.length;
+  const lb = b.length;
+  if (la === 0 || lb === 0) throw new CfError("invalid_model", "", "Cannot convolve an empty table.");
+  const N = nextPowerOfTwo(la + lb - 1);
+  if (Math.min(la, lb) <= 32 || la * lb <= 6 * N * Math.log2(N)) return convolveDirect(a, b, out);
+  return convolveFft(a, b, out);
+}
+
+function sum(p: Float64Array): number {
+  let s = 0;
+  for (let k = 0; k < p.length; k++) s += p[k];
+  return s;
+}
+
+function truncate(p: Float64Array, maxLength: number): Float64Array {
+  return p.length > maxLength ? p.subarray(0, maxLength) : p;
+}
+
+/** Spread a table of step h = m g onto step g (zeros between entries). */
+export function restep(t: LatticeTable, g: number): LatticeTable {
+  if (t.p.length === 1) return { ...t, step: g };
+  const m = Math.round(t.step / g);
+  if (m === 1) return { ...t, step: g };
+  const out = new Float64Array((t.p.length - 1) * m + 1);
+  for (let k = 0; k < t.p.length; k++) out[k * m] = t.p[k];
+  return { origin: t.origin, step: g, p: out, tailMass: t.tailMass };
+}
+
+/**
+ * Convolution of tabulated lattice laws (common step after restepping to the real gcd of the steps); result
+ * truncated to maxLength with the dropped mass added to tailMass. Throws when the steps are incommensurate.
+ */
+export function convolveTables(tables: LatticeTable[], maxLength = MAX_LATTICE): LatticeTable {
+  if (tables.length === 0) throw new CfError("invalid_model", "", "Nothing to convolve.");
+  let g = 0;
+  for (const t of tables) {
+    if (t.p.length === 1) continue;
+    const c = commonStep(g, t.step);
+    if (c === null) throw new CfError("not_applicable", "", `Lattice steps ${g} and ${t.step} are not commensurate; the sum is not a lattice law.`);
+    g = c;
+  }
+  if (g === 0) g = tables[0].step || 1;
+  const steps = tables.map((t) => restep(t, g)).sort((x, y) => x.p.length - y.p.length);
+  let acc = steps[0].p;
+  let origin = steps[0].origin;
+  let mass = sum(steps[0].p) + steps[0].tailMass;
+  for (let i = 1; i < steps.length; i++) {
+    acc = truncate(convolve(truncate(acc, maxLength), truncate(steps[i].p, maxLength)), maxLength);
+    origin += steps[i].origin;
+    mass *= sum(steps[i].p) + steps[i].tailMass;
+  }
+  const p = acc.length === acc.buffer.byteLength / 8 ? acc : acc.slice();
+  return { origin, step: g, p, tailMass: Math.max(0, mass - sum(p)) };
+}
+
+/**
+ * n-fold convolution power of a lattice table. Small results by repeated squaring (direct or FFT convolutions);
+ * large ones by one zero-padded FFT with the pointwise power |z|^n e^{i n arg z} (no wrap-around since the padded
+ * size covers the full support n (L-1) + 1). Mass (sum p)^n is conserved to rounding.
+ */
+export function powerTable(t: LatticeTable, n: number, maxLength = MAX_LATTICE): LatticeTable {
+  if (!Number.isInteger(n) || n < 1) throw new CfError("invalid_model", "/repeat", `repeat must be a whole number >= 1, got ${n}.`);
+  const L = t.p.length;
+  const full = n * (L - 1) + 1;
+  const inMass = sum(t.p) + t.tailMass;
+  if (L === 1) return { origin: n * t.origin, step: t.step, p: Float64Array.of(t.p[0] ** n), tailMass: Math.max(0, inMass ** n - t.p[0] ** n) };
+  let p: Float64Array;
+  if (full > 8192 && full <= 2 ** 22 && n > 8) {
+    const N = nextPowerOfTwo(full);
+    const plan = getFftPlan(N);
+    const z = plan.a;
+    const Z = plan.b;
+    z.fill(0);
+    for (let k = 0; k < L; k++) z[2 * k] = t.p[k];
+    let shift = 0;
+    if (L * N <= 3e7) {
+      // centred log of the DFT by direct sums: w_k = sum_j p_j e^{-2 pi i k (j - mu)/N}, log w_k = log S +
+      // log1p(sum_j p_j (e^{i th} - 1) / S) with e^{i th} - 1 = (-2 sin^2(th/2), sin th). Centring keeps the phase
+      // n arg w_k small where |w_k| matters, and log1p keeps n log|w_k| accurate near |w_k| = 1; a plain FFT
+      // followed by z^n multiplies its rounding by n. The mean's phase is restored as an integer circular shift c
+      // plus a fractional phase.
+      const S = inMass - t.tailMass;
+      const logS = Math.log(S);
+      let mu = 0;
+      for (let j = 0; j < L; j++) mu += j * t.p[j];
+      mu /= S;
+      const total = n * mu;
+      shift = Math.floor(total);
+      const frac = total - shift;
+      for (let k = 0; k < N; k++) {
+        const kk = k <= N / 2 ? k : k - N;
+        let dr = 0;
+        let di = 0;
+        for (let j = 0; j < L; j++) {
+          const th = (-2 * Math.PI * kk * (j - mu)) / N;
+          const sh = Math.sin(0.5 * th);
+          dr += t.p[j] * (-2 * sh * sh);
+          di += t.p[j] * Math.sin(th);
+        }
+        dr /= S;
+        di /= S;
+        const lr = n * (0.5 * Math.log1p(2 * dr + dr * dr + di * di) + logS);
+        const li = n * Math.atan2(di, 1 + dr) - (2 * Math.PI * kk * frac) / N;
+        const m = Math.exp(lr);
+        z[2 * k] = m * Math.cos(li);
+        z[2 * k + 1] = m * Math.sin(li);
+      }
+    } else {
+      plan.forward(z, Z);
+      for (let k = 0; k < N; k++) {
+        const r = Math.hypot(Z[2 * k], Z[2 * k + 1]);
+        const a = Math.atan2(Z[2 * k + 1], Z[2 * k]);
+        const m = r ** n;
+        z[2 * k] = m * Math.cos(n * a);
+        z[2 * k + 1] = m * Math.sin(n * a);
+      }
+    }
+    plan.inverse(z, Z);
+    const len = Math.min(full, maxLength);
+    p = new Float64Array(len);
+    for (let k = 0; k < len; k++) {
+      const v = Z[2 * (((k - shift) % N + N) % N)];
+      p[k] = v > 0 ? v : 0;
+    }
+  } else {
+    let result: Float64Array | null = null;
+    let base = truncate(t.p, maxLength);
+    let e = n;
+    while (e > 0) {
+      if (e & 1) result = result ? truncate(convolve(result, base), maxLength) : base.slice();
+      e >>= 1;
+      if (e > 0) base = truncate(convolve(base, base), maxLength);
+    }
+    p = result as Float64Array;
+    if (p.length !== p.buffer.byteLength / 8) p = p.slice();
+  }
+  return { origin: n * t.origin, step: t.step, p, tailMass: Math.max(0, inMass ** n - sum(p)) };
+}
+
+export interface PanjerCount {
+  /** (a, b, 0) class: P(N=k) = (a + b/k) P(N=k-1) */
+  a: number;
+  b: number;
+  /** P_N(z) at real z in [0, 1] */
+  pgf(z: number): number;
+}
+
+/**
+ * Panjer recursion for a compound sum S = X_1 + ... + X_N with N in the (a, b, 0) class and X on 0, h, 2h, ...:
+ * g_0 = P_N(f_0), g_k = (1/(1 - a f_0)) sum_{j=1}^{k} (a + b j/k) f_j g_{k-j} (Klugman, Panjer & Willmot, Loss Models,
+ * Theorem 9.8 in the 4th ed., recalled from memory). Runs to `length` entries; cost length * len(f).
+ * Returns null when g_0 underflows (very large expected counts), where the recursion cannot start.
+ */
+export function panjer(count: PanjerCount, f: Float64Array, length: number): Float64Array | null {
+  const { a, b } = count;
+  const f0 = f[0];
+  const g = new Float64Array(length);
+  g[0] = count.pgf(f0);
+  if (!(g[0] > 1e-280)) return null;
+  const c = 1 / (1 - a * f0);
+  const Lf = f.length;
+  for (let k = 1; k < length; k++) {
+    let s = 0;
+    const jmax = Math.min(k, Lf - 1);
+    const bk = b / k;
+    for (let j = 1; j <= jmax; j++) s += (a + bk * j) * f[j] * g[k - j];
+    g[k] = c * s;
+  }
+  return g;
+}

@@ -1,0 +1,102 @@
+import type { Atom, LatticeTable } from "./types";
+
+/**
+ * Internal kind, richer than the public LawKind: a lattice with step 0 is a single point, and lattice/discrete
+ * laws carry their atoms when there are few of them.
+ */
+export type NodeKind =
+  | { type: "continuous" }
+  | { type: "lattice"; origin: number; step: number; atoms: Atom[] | null }
+  | { type: "discrete"; atoms: Atom[] | null }
+  | { type: "mixed"; atoms: Atom[]; atomsComplete: boolean };
+
+/** One compiled node of the model tree. */
+export interface Node {
+  /** log phi(t) into (re, im); continuous branch when t is sorted. */
+  logCf(t: Float64Array, re: Float64Array, im: Float64Array): void;
+  kind: NodeKind;
+  momentIndex: number;
+  /** exact cumulants kappa_1..kappa_n, null where they do not exist */
+  cumulants(n: number): (number | null)[];
+  location: number;
+  scale: number;
+  support: readonly [number, number];
+  tails: { left: number; right: number };
+  nodes: number;
+  notes: string[];
+  /** exact pmf table for lattice laws (truncated at maxLength with the dropped mass), else null */
+  table?(maxLength: number): LatticeTable | null;
+  /** for laws on 0,1,2,...: log E[e^{w N}] at complex w (Re w <= 0), into (re, im), continuous along the index */
+  countCgf?(wr: Float64Array, wi: Float64Array, re: Float64Array, im: Float64Array): void;
+  /** (a, b, 0) class membership: P(N=k) = (a + b/k) P(N=k-1), k >= 1 (Loss Models, sec. 6.5) */
+  panjer?: { a: number; b: number; p0: number };
+  /** P(N = 0) for laws on 0,1,2,... */
+  p0?: number;
+}
+
+export const NONE_MOMENT = (n: number): (number | null)[] => new Array<number | null>(n).fill(null);
+
+/** Cumulants -> raw moments: m_n = sum_{k=1}^n C(n-1,k-1) kappa_k m_{n-k} (Kendall & Stuart, vol. 1, eq. 3.33). */
+export function cumulantsToRaw(kappa: (number | null)[]): (number | null)[] {
+  const n = kappa.length;
+  const m: (number | null)[] = [1];
+  for (let j = 1; j <= n; j++) {
+    let s = 0;
+    let ok = true;
+    let c = 1; // C(j-1, k-1)
+    for (let k = 1; k <= j; k++) {
+      const kk = kappa[k - 1];
+      const mm = m[j - k];
+      if (kk === null || mm === null) {
+        ok = false;
+        break;
+      }
+      s += c * kk * mm;
+      c = (c * (j - k)) / k;
+    }
+    m.push(ok ? s : null);
+  }
+  return m.slice(1);
+}
+
+/** Raw moments m_1..m_n -> cumulants (inverse of the recursion above). */
+export function rawToCumulants(m: (number | null)[]): (number | null)[] {
+  const n = m.length;
+  const mm = [1, ...m];
+  const kappa: (number | null)[] = [];
+  for (let j = 1; j <= n; j++) {
+    let s = mm[j];
+    if (s === null) {
+      kappa.push(null);
+      continue;
+    }
+    let c = 1;
+    let ok = true;
+    for (let k = 1; k < j; k++) {
+      const kk = kappa[k - 1];
+      const mv = mm[j - k];
+      if (kk === null || mv === null) {
+        ok = false;
+        break;
+      }
+      s -= c * kk * mv;
+      c = (c * (j - k)) / k;
+    }
+    kappa.push(ok ? s : null);
+  }
+  return kappa;
+}
+
+/** Cumulants -> central moments (kappa_1 set to 0). */
+export function cumulantsToCentral(kappa: (number | null)[]): (number | null)[] {
+  const k0 = kappa.slice();
+  if (k0.length > 0 && k0[0] !== null) k0[0] = 0;
+  return cumulantsToRaw(k0);
+}
+
+/** Fill a cumulant list to length n from a closed form valid for orders < limit (strict), null beyond. */
+export function cumulantList(n: number, limit: number, f: (k: number) => number): (number | null)[] {
+  const out: (number | null)[] = [];
+  for (let k = 1; k <= n; k++) out.push(k < limit ? f(k) : null);
+  return out;
+}

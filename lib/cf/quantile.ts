@@ -1,0 +1,553 @@
+import { CfError } from "./errors";
+import type { Atom, CompiledModel } from "./types";
+import { evalLadder, heavyLadder, invertContinuous, type PartSolution } from "./invert/continuous";
+import { atomMass } from "./invert/density";
+import { latticeCumulative, solveLattice } from "./invert/lattice";
+import { kernelAt, type EndpointKernels } from "./invert/part";
+import { integrateSf, sumPointwise } from "./invert/pointwise";
+import { lawShape } from "./invert/range";
+import { makePart } from "./invert/part";
+import { buildNodes, cutoffFor, probeEnvelope, truncationAt } from "./invert/nodes";
+
+export interface QuantileOptions {
+  /** also return the expected shortfall ES_p = q_p + E[(X - q_p)^+] / (1 - p) (TVaR) */
+  expectedShortfall?: boolean;
+  /** absolute cdf accuracy used for the inversion (default 1e-14 light tails, 1e-9 power tails) */
+  tolerance?: number;
+}
+
+export interface QuantileDiagnostics {
+  method: "gil-pelaez" | "lattice-exact" | "lattice-fft" | "atoms";
+  terms: number;
+  range: { from: number; to: number };
+  /** bound on |F_computed - F| used by the root finder */
+  cdfError: number;
+  /** per level: bound on |x - q_p| (Infinity where not resolved) */
+  quantileError: Float64Array;
+  /** per level: bound on the absolute error of ES (present when requested) */
+  expectedShortfallError?: Float64Array;
+  notes: string[];
+}
+
+export interface QuantileResult {
+  p: Float64Array;
+  x: Float64Array;
+  expectedShortfall?: Float64Array;
+  diagnostics: QuantileDiagnostics;
+}
+
+/** cdf, sf and density of the whole law at x, with the cdf error bound; one evaluation backend per law. */
+interface Evaluator {
+  eval(x: number): { F: number; S: number; f: number };
+  errCdf: number;
+  lo: number;
+  hi: number;
+  terms: number;
+}
+
+/**
+ * Quantiles q_p = min{x : F(x) >= p} and expected shortfall. Atoms and lattice points are handled exactly
+ * (a level inside a jump returns the atom), flat parts return their left end; in between, a bracketed
+ * Newton iteration on the mid-point Gil-Pelaez sums (the upper tail solves S(x) = 1 - p so that p close to 1
+ * keeps its relative accuracy). ES follows Acerbi & Tasche (2002), ES_p = q + E[(X - q)^+]/(1 - p), with
+ * E[(X - q)^+] = int_q^inf S(y) dy integrated term by term in the same sums.
+ */
+export function quantiles(model: CompiledModel, pIn: ArrayLike<number>, options: QuantileOptions = {}): QuantileResult {
+  const p = Float64Array.from(pIn);
+  for (let i = 0; i < p.length; i++) {
+    if (!(p[i] >= 0 && p[i] <= 1)) throw new CfError("invalid_model", `/p/${i}`, "each level p must be a number in [0, 1]");
+  }
+  const kind = model.kind;
+  if (kind.type === "lattice") return latticeQuantiles(model, kind.origin, kind.step, p, options);
+  if (kind.type === "discrete") {
+    if (!kind.atoms) throw new CfError("not_applicable", "", "this discrete law has too many atoms to list; its quantiles cannot be computed");
+    return atomQuantiles(kind.atoms, p, options);
+  }
+  const atoms: Atom[] = kind.type === "mixed" ? [...kind.atoms].sort((u, v) => u.x - v.x) : [];
+  const w = 1 - atoms.reduce((s, a) => s + a.p, 0);
+  if (w <= 1e-14) return atomQuantiles(atoms, p, options);
+  const shape = lawShape(model);
+  return shape.heavy ? heavyQuantiles(model, atoms, w, p, options) : lightQuantiles(model, atoms, w, p, options);
+}
+
+function lightQuantiles(model: CompiledModel, atoms: Atom[], w: number, p: Float64Array, o: QuantileOptions): QuantileResult {
+  const tol = o.tolerance ?? 1e-14;
+  const shape = lawShape(model);
+  const out = invertContinuous(model, atoms, { kind: "points", x: new Float64Array([shape.center]) }, {
+    method: "gil-pelaez",
+    tolerance: tol / w,
+    wantPdf: false,
+  });
+  const sol = out.solution!;
+  const errCdf = w * sol.error.cdf + 4 * Number.EPSILON;
+  const one = new Float64Array(1);
+  const f1 = new Float64Array(1);
+  const c1 = new Float64Array(1);
+  const s1 = new Float64Array(1);
+  const ev: Evaluator = {
+    eval(x: number) {
+      one[0] = x;
+      sumPointwise(sol.nodes, sol.part.center, one, f1, c1, s1);
+      let f = f1[0];
+      let F = c1[0];
+      let S = s1[0];
+      for (const k of sol.part.kernels) {
+        const v = kernelAt(k, x);
+        f += v.pdf;
+        F += v.cdf;
+        S += v.sf;
+      }
+      const m = atomMass(atoms, x);
+      return { F: m.below + w * F, S: m.above + w * S, f: w * f };
+    },
+    errCdf,
+    lo: sol.window.a,
+    hi: sol.window.b,
+    terms: sol.nodes.K,
+  };
+  const notes = [...out.notes];
+  const { x, err } = solveLevels(ev, atoms, p, shape.support, shape.spread, notes);
+  let es: Float64Array | undefined;
+  let esErr: Float64Array | undefined;
+  if (o.expectedShortfall) {
+    es = new Float64Array(p.length);
+    esErr = new Float64Array(p.length);
+    for (let i = 0; i < p.length; i++) {
+      const r = shortfallLight(sol, atoms, w, x[i], p[i], errCdf, err[i], shape.spread);
+      es[i] = r.value;
+      esErr[i] = r.error;
+    }
+  }
+  return {
+    p,
+    x,
+    expectedShortfall: es,
+    diagnostics: {
+      method: "gil-pelaez",
+      terms: sol.nodes.K,
+      range: { from: sol.window.a, to: sol.window.b },
+      cdfError: errCdf,
+      quantileError: err,
+      expectedShortfallError: esErr,
+      notes,
+    },
+  };
+}
+
+/** int_y^inf of a kernel's sf: (1/lambda) sum_{n<m} S_{n+1}(y) for Erlang(m) (side +1); reflected for side -1. */
+function kernelSfIntegral(k: EndpointKernels, y: number): number {
+  let s = 0;
+  for (let q = 0; q < k.b.length; q++) {
+    const m = q + 1;
+    // Erlang(m) pieces
+    const tailInt = (v: number) => {
+      let acc = 0;
+      for (let n = 1; n <= m; n++) acc += erlangSf(n, k.rate, v);
+      return acc / k.rate;
+    };
+    if (k.side === 1) {
+      const v = y - k.at;
+      s += k.b[q] * (v <= 0 ? m / k.rate - v : tailInt(v));
+    } else {
+      const v = k.at - y;
+      s += k.b[q] * (v <= 0 ? 0 : v - m / k.rate + tailInt(v));
+    }
+  }
+  return s;
+}
+
+function erlangSf(m: number, rate: number, y: number): number {
+  if (y <= 0) return 1;
+  const z = rate * y;
+  let term = 1;
+  let s = 1;
+  for (let n = 1; n < m; n++) {
+    term *= z / n;
+    s += term;
+  }
+  return Math.exp(-z) * s;
+}
+
+function shortfallLight(
+  sol: PartSolution,
+  atoms: Atom[],
+  w: number,
+  q: number,
+  p: number,
+  errCdf: number,
+  errQ: number,
+  spread: number,
+): { value: number; error: number } {
+  if (p >= 1) return { value: q, error: 0 };
+  const b = sol.window.b;
+  let part = 0;
+  let intRound = 0;
+  if (q < b) {
+    const r = integrateSf(sol.nodes, sol.part.center, q, b);
+    part = r.value;
+    intRound = (1e-14 + 8 * Number.EPSILON * Math.sqrt(sol.nodes.K)) * r.absSum + 8 * Number.EPSILON * Math.abs(b - q);
+    for (const k of sol.part.kernels) part += kernelSfIntegral(k, q) - kernelSfIntegral(k, b);
+  }
+  let atomPart = 0;
+  for (const a of atoms) if (a.x > q) atomPart += a.p * (a.x - q);
+  // images: for y in [q, b] the sf error is within [-S(y + T), F(y - T)], both below F(a) <= aliasCore + sum error
+  const alias = sol.aliasCore + 2 * sol.sumErrCdf;
+  const trunc = truncationAt(sol.envelope, sol.nodes.K * sol.nodes.h).cdf * 2 * Math.abs(b - q);
+  // mass beyond b: S(b) <= alias, spread over a tail length of at most 8 standard deviations (light tails)
+  const tailBeyond = alias * spread * 8;
+  const excess = atomPart + w * part;
+  const value = q + excess / (1 - p);
+  // dES/dq = 1 - S(q)/(1 - p) vanishes at the exact quantile, so errQ enters at second order (bounded by errCdf errQ)
+  const error =
+    (w * (Math.max(b - q, 0) * alias + intRound + trunc + tailBeyond) + errCdf * errQ) / (1 - p) +
+    4 * Number.EPSILON * Math.abs(value);
+  return { value, error };
+}
+
+/**
+ * Per level: jumps first (the level falls inside an atom's jump -> the atom), otherwise bracket between
+ * atoms and solve F(x) = p (or S(x) = 1 - p above the median) by safeguarded Newton; a flat stretch to the
+ * left (F within its error bound of p) sends the answer to the stretch's left end.
+ */
+function solveLevels(
+  ev: Evaluator,
+  atoms: Atom[],
+  p: Float64Array,
+  support: readonly [number, number],
+  spread: number,
+  notes: string[],
+): { x: Float64Array; err: Float64Array } {
+  const n = p.length;
+  const x = new Float64Array(n);
+  const err = new Float64Array(n);
+  const e = ev.errCdf;
+  const inAtoms = atoms.filter((a) => a.x >= ev.lo && a.x <= ev.hi);
+  const Fa = inAtoms.map((a) => ev.eval(a.x));
+  const eL = ev.eval(ev.lo);
+  const eH = ev.eval(ev.hi);
+  let warned = false;
+  let warnedFlat = false;
+  for (let i = 0; i < n; i++) {
+    const pi = p[i];
+    if (pi === 0) {
+      x[i] = atoms.length && atoms[0].x <= support[0] ? atoms[0].x : support[0];
+      continue;
+    }
+    if (pi === 1) {
+      x[i] = support[1];
+      continue;
+    }
+    let L = ev.lo;
+    let R = ev.hi;
+    let done = false;
+    for (let j = 0; j < inAtoms.length; j++) {
+      const Fj = Fa[j].F;
+      if (Fj >= pi - e) {
+        if (Fj - inAtoms[j].p < pi - e) {
+          x[i] = inAtoms[j].x;
+          err[i] = 0;
+          done = true;
+        } else {
+          R = inAtoms[j].x;
+        }
+        break;
+      }
+      L = inAtoms[j].x;
+    }
+    if (done) continue;
+    if (eL.F >= pi || eH.S > 1 - pi) {
+      x[i] = NaN;
+      err[i] = Infinity;
+      if (!warned) notes.push("levels beyond the resolved range come back as NaN (tolerance too loose for such tails)");
+      warned = true;
+      continue;
+    }
+    const upper = pi > 0.5;
+    const target = upper ? 1 - pi : pi;
+    const g = (v: { F: number; S: number }) => (upper ? target - v.S : v.F - target);
+    const r = rootMonotone(ev, g, L, R, spread);
+    let q = r.x;
+    // flat stretch: F already within e of p a little to the left -> move to the stretch's left end
+    // a step over which F must rise by 8 e unless the cdf is flat there
+    const dx = Math.min(Math.max(1e-7 * Math.max(Math.abs(q), spread), r.f > 0 ? (8 * e) / r.f : Infinity), 0.01 * spread);
+    const left = ev.eval(q - dx);
+    if (left.F >= pi - e && q - dx > L) {
+      const gl = (v: { F: number; S: number }) => (upper ? target + e - v.S : v.F - (target - e));
+      q = rootMonotone(ev, gl, L, q - dx, spread).x;
+      // a level on a flat stretch is ill-posed within the cdf error: the answer lies anywhere from q up to where
+      // F_h exceeds p + e, and that whole width is the honest error
+      const gh = (v: { F: number; S: number }) => (upper ? target - e - v.S : v.F - (target + e));
+      const hiV = ev.eval(R);
+      const qHi = g(hiV) >= 0 && (upper ? target - e - hiV.S : hiV.F - (target + e)) >= 0 ? rootMonotone(ev, gh, q, R, spread).x : R;
+      err[i] = qHi - q + dx;
+      if (!warnedFlat) notes.push("a level falls on a flat stretch of the cdf: the left end is returned, the error spans the stretch");
+      warnedFlat = true;
+    } else {
+      err[i] = r.f > 0 ? (2 * e) / r.f + r.width : Infinity;
+    }
+    x[i] = q;
+  }
+  return { x, err };
+}
+
+/** Smallest root of a non-decreasing g on [L, R] (g(L) < 0 <= g(R)) by Newton steps kept inside the bracket. */
+function rootMonotone(
+  ev: Evaluator,
+  g: (v: { F: number; S: number }) => number,
+  L0: number,
+  R0: number,
+  spread: number,
+): { x: number; f: number; width: number } {
+  let L = L0;
+  let R = R0;
+  let x = 0.5 * (L + R);
+  let f = 0;
+  for (let it = 0; it < 200; it++) {
+    const v = ev.eval(x);
+    const gv = g(v);
+    f = v.f;
+    if (gv < 0) L = x;
+    else R = x;
+    let nx = f > 0 ? x - gv / f : NaN;
+    if (!(nx > L && nx < R)) nx = 0.5 * (L + R);
+    const tolX = 4 * Number.EPSILON * Math.max(Math.abs(nx), 1e-3 * spread);
+    if (Math.abs(nx - x) <= tolX || R - L <= tolX) {
+      x = nx;
+      break;
+    }
+    x = nx;
+  }
+  return { x, f: ev.eval(x).f, width: 8 * Number.EPSILON * Math.max(Math.abs(x), 1e-3 * spread) };
+}
+
+function heavyQuantiles(model: CompiledModel, atoms: Atom[], w: number, p: Float64Array, o: QuantileOptions): QuantileResult {
+  const tol = o.tolerance ?? 1e-10;
+  const shape = lawShape(model);
+  const notes: string[] = [];
+  const alpha = Math.min(Math.max(shape.alpha, 0.1), 2);
+  // rough extent of the requested levels from the power tail S(x) ~ (scale/x)^alpha
+  let ext = shape.spread;
+  for (let i = 0; i < p.length; i++) {
+    const tp = Math.min(p[i], 1 - p[i]);
+    if (tp > 0) ext = Math.max(ext, shape.spread * Math.pow(2 / tp, 1 / alpha));
+  }
+  const T0 = Math.max(64 * shape.spread, 4 * ext);
+  const scratch = { pdf: new Float64Array(1), cdf: new Float64Array(1), sf: new Float64Array(1), one: new Float64Array(1) };
+  let lad = heavyLadder(model, atoms, T0, 5, tol);
+  const probes = [shape.center - ext, shape.center, shape.center + ext];
+  for (let more = 0; more < 5; more++) {
+    const worst = Math.max(...probes.map((x) => evalLadder(lad, x, scratch).errCdf));
+    if (worst <= tol) break;
+    lad = heavyLadder(model, atoms, T0, lad.levels.length + 1, tol);
+  }
+  let seenErr = 0;
+  const ev: Evaluator = {
+    eval(x: number) {
+      const r = evalLadder(lad, x, scratch);
+      seenErr = Math.max(seenErr, w * r.errCdf);
+      const m = atomMass(atoms, x);
+      return { F: m.below + w * r.cdf, S: m.above + w * r.sf, f: w * r.pdf };
+    },
+    errCdf: 0,
+    lo: -Infinity,
+    hi: Infinity,
+    terms: lad.levels[lad.levels.length - 1].K,
+  };
+  for (const x of probes) ev.eval(x);
+  ev.errCdf = 2 * seenErr + 4 * Number.EPSILON;
+  notes.push(`power tails: ${lad.levels.length} period doublings from T = ${T0.toPrecision(4)}, Richardson extrapolation`);
+  const [lo, hi] = shape.support;
+  const xs = new Float64Array(p.length);
+  const err = new Float64Array(p.length);
+  for (let i = 0; i < p.length; i++) {
+    const pi = p[i];
+    if (pi === 0 || pi === 1) {
+      xs[i] = pi === 0 ? lo : hi;
+      continue;
+    }
+    let L = Number.isFinite(lo) ? lo : shape.center - shape.spread;
+    let R = Number.isFinite(hi) ? hi : shape.center + shape.spread;
+    let k = 0;
+    while (!Number.isFinite(lo) && ev.eval(L).F >= pi && k++ < 60) L = shape.center - shape.spread * 2 ** k;
+    k = 0;
+    while (!Number.isFinite(hi) && ev.eval(R).S > 1 - pi && k++ < 60) R = shape.center + shape.spread * 2 ** k;
+    const sub = solveLevels({ ...ev, lo: L, hi: R }, atoms, new Float64Array([pi]), shape.support, shape.spread, notes);
+    xs[i] = sub.x[0];
+    err[i] = sub.err[0];
+    // the error bound used must cover this point's own extrapolation error
+    if (Number.isFinite(xs[i])) {
+      const r = evalLadder(lad, xs[i], scratch);
+      if (w * r.errCdf > ev.errCdf && r.pdf > 0) err[i] = Math.max(err[i], (2 * w * r.errCdf) / (w * r.pdf));
+    }
+  }
+  const lastErr = ev.errCdf;
+  const terms = ev.terms;
+  const range = { from: shape.center - T0 / 2, to: shape.center + T0 / 2 };
+  let es: Float64Array | undefined;
+  let esErr: Float64Array | undefined;
+  if (o.expectedShortfall) {
+    es = new Float64Array(p.length).fill(NaN);
+    esErr = new Float64Array(p.length).fill(Infinity);
+    const mean = model.cumulants(1)[0];
+    if (!(model.momentIndex > 1) || mean === null || !Number.isFinite(mean)) {
+      notes.push("expected shortfall does not exist (the mean is infinite)");
+    } else {
+      const sh = heavyShortfall(model, atoms, w, mean, shape, tol);
+      if (!sh) notes.push("expected shortfall is not computed for power tails combined with endpoint kernels");
+      else {
+        for (let i = 0; i < p.length; i++) {
+          if (!Number.isFinite(xs[i]) || p[i] >= 1) continue;
+          const r = sh(xs[i]);
+          es[i] = xs[i] + r.value / (1 - p[i]);
+          esErr[i] = (r.error + Math.max(lastErr, tol) * err[i]) / (1 - p[i]) + 4 * Number.EPSILON * Math.abs(es[i]);
+        }
+        notes.push("expected shortfall of power tails: E|X - q| by the mid-point sum with period doubling and Richardson extrapolation");
+      }
+    }
+  }
+  return {
+    p,
+    x: xs,
+    expectedShortfall: es,
+    diagnostics: { method: "gil-pelaez", terms, range, cdfError: Math.max(lastErr, tol) * w, quantileError: err, expectedShortfallError: esErr, notes },
+  };
+}
+
+function atomQuantiles(atomsIn: Atom[], p: Float64Array, o: QuantileOptions): QuantileResult {
+  const atoms = [...atomsIn].sort((u, v) => u.x - v.x);
+  const xs = atoms.map((a) => a.x);
+  const probs = atoms.map((a) => a.p);
+  return tableQuantiles(Float64Array.from(xs), Float64Array.from(probs), p, o, "atoms", 4 * Number.EPSILON * atoms.length, []);
+}
+
+function latticeQuantiles(model: CompiledModel, origin: number, step: number, p: Float64Array, o: QuantileOptions): QuantileResult {
+  const sol = solveLattice(model, origin, step, o.tolerance ?? 1e-13);
+  const t = sol.table;
+  const xs = new Float64Array(t.p.length);
+  for (let i = 0; i < xs.length; i++) xs[i] = t.origin + i * t.step;
+  return tableQuantiles(xs, t.p, p, o, sol.method, sol.errorCdf, sol.notes);
+}
+
+/** Quantiles and ES of a law given as sorted support points and probabilities (sf summed from the right). */
+function tableQuantiles(
+  xs: Float64Array,
+  probs: Float64Array,
+  p: Float64Array,
+  o: QuantileOptions,
+  method: QuantileDiagnostics["method"],
+  errCdf: number,
+  notes: string[],
+): QuantileResult {
+  const { cdf, sf } = latticeCumulative(probs);
+  const n = xs.length;
+  const out = new Float64Array(p.length);
+  const err = new Float64Array(p.length);
+  const es = o.expectedShortfall ? new Float64Array(p.length) : undefined;
+  const esErr = o.expectedShortfall ? new Float64Array(p.length) : undefined;
+  for (let i = 0; i < p.length; i++) {
+    const pi = p[i];
+    const upper = pi > 0.5;
+    let k = 0;
+    // smallest k with F_k >= p, judged on the sf side above the median
+    if (upper) {
+      const s = 1 - pi;
+      while (k < n - 1 && sf[k] > s + errCdf) k++;
+    } else {
+      while (k < n - 1 && cdf[k] < pi - errCdf) k++;
+    }
+    out[i] = xs[k];
+    err[i] = 0;
+    if (es && esErr) {
+      if (pi >= 1) {
+        es[i] = out[i];
+        continue;
+      }
+      let ex = 0;
+      for (let j = n - 1; j > k; j--) ex += Math.max(probs[j], 0) * (xs[j] - xs[k]);
+      es[i] = xs[k] + ex / (1 - pi);
+      esErr[i] = ((errCdf * Math.abs(xs[n - 1] - xs[k]) + 4 * Number.EPSILON * Math.abs(ex)) / (1 - pi)) * 2;
+    }
+  }
+  return {
+    p,
+    x: out,
+    expectedShortfall: es,
+    diagnostics: {
+      method,
+      terms: n,
+      range: { from: xs[0], to: xs[n - 1] },
+      cdfError: errCdf,
+      quantileError: err,
+      expectedShortfallError: esErr,
+      notes,
+    },
+  };
+}
+
+/**
+ * E[(X - q)^+] for power tails with a finite mean: E|Y - q| = (2/pi) int_0^inf (M - Re(phi(t) e^{-itq}))/t^2 dt
+ * (e.g. Lukacs, Characteristic Functions, on absolute moments), whose mid-point sum equals E[tri_T(Y - q)] with
+ * the triangle wave tri_T(u) = |u| on |u| <= T; the images beyond T give an error ~ T^{1-alpha}, removed by
+ * doubling T and Richardson extrapolation with exponents j alpha + i - 1. Then E[(X-q)^+] = (E|X-q| + mu - q)/2,
+ * atoms added exactly. Returns null when the continuous part carries endpoint kernels.
+ */
+function heavyShortfall(
+  model: CompiledModel,
+  atoms: Atom[],
+  w: number,
+  mean: number,
+  shape: ReturnType<typeof lawShape>,
+  tol: number,
+): ((q: number) => { value: number; error: number }) | null {
+  const part = makePart(model, atoms, shape.center);
+  const env = probeEnvelope(part, shape.spread);
+  let tmax = cutoffFor(env, Infinity, tol / 16);
+  if (!Number.isFinite(tmax)) tmax = env.t[env.t.length - 1];
+  let pa = 0;
+  let pm = 0;
+  for (const a of atoms) {
+    pa += a.p;
+    pm += a.p * a.x;
+  }
+  const muC = (mean - pm) / w;
+  const alpha = Math.min(Math.max(shape.alpha, 1.01), 2);
+  const exps: number[] = [];
+  {
+    const set = new Set<number>();
+    for (let j = 1; j <= 10; j++) for (let i = 0; i <= 10; i++) set.add(Math.round((j * alpha + i - 1) * 1e9) / 1e9);
+    exps.push(...[...set].filter((v) => v > 0).sort((u, v) => u - v));
+  }
+  return (q: number) => {
+    const y = q - part.center;
+    const T0 = Math.max(64 * shape.spread, 4 * Math.abs(y));
+    const rows: number[][] = [];
+    let best = NaN;
+    let error = Infinity;
+    for (let lev = 0; lev < 12; lev++) {
+      const T = T0 * 2 ** lev;
+      const h = (2 * Math.PI) / T;
+      const K = Math.min(Math.max(8, Math.ceil(tmax / h)), 1 << 23);
+      const nodes = buildNodes(part, h, K);
+      let acc = 0;
+      for (let k = 0; k < K; k++) {
+        const tk = (k + 0.5) * h;
+        acc += (nodes.re[k] * Math.cos(tk * y) + nodes.im[k] * Math.sin(tk * y)) / (tk * tk);
+      }
+      const v = (part.mass * T) / 2 - (2 * h * acc) / Math.PI;
+      const row = [v];
+      for (let j = 1; j <= lev; j++) row.push(row[j - 1] + (row[j - 1] - rows[lev - 1][j - 1]) / (2 ** exps[j - 1] - 1));
+      rows.push(row);
+      const prev = best;
+      best = row[lev];
+      if (lev >= 2) {
+        error = 2 * Math.max(Math.abs(best - prev), Math.abs(best - row[lev - 1]));
+        if (error <= tol) break;
+      }
+    }
+    const absC = best;
+    let atomPart = 0;
+    for (const a of atoms) if (a.x > q) atomPart += a.p * (a.x - q);
+    const value = atomPart + (w * (absC + muC - q)) / 2;
+    return { value, error: (w * error) / 2 + 8 * Number.EPSILON * Math.abs(absC) };
+  };
+}

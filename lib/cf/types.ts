@@ -1,0 +1,53 @@
+import type { Model } from "./schema";
+
+export type { Model };
+
+/** A point mass p at x. */
+export interface Atom {
+  x: number;
+  p: number;
+}
+
+/** How the law's mass is laid out; decides which inversion applies. */
+export type LawKind =
+  | { type: "continuous" } // has a density
+  | { type: "lattice"; origin: number; step: number } // all mass on origin + k*step (k integer, may be negative)
+  | { type: "mixed"; atoms: Atom[] } // finite atoms plus a continuous part
+  | { type: "discrete"; atoms: Atom[] | null }; // atoms without a common lattice (null when too many to list)
+
+/** A tabulated lattice law: p[k] = P(X = origin + k*step); tailMass = mass dropped by truncation. */
+export interface LatticeTable {
+  origin: number;
+  step: number;
+  p: Float64Array;
+  tailMass: number;
+}
+
+export interface CompiledModel {
+  /** log phi(t) written into (re, im); im is the continuous branch (unwrapped from t=0 outward). */
+  logCf(t: Float64Array, re: Float64Array, im: Float64Array): void;
+  /** phi(t) written into (re, im). */
+  cf(t: Float64Array, re: Float64Array, im: Float64Array): void;
+  readonly kind: LawKind;
+  /** sup{ r : E|X|^r < inf } (Infinity when all moments exist, 0 for Cauchy-like). */
+  readonly momentIndex: number;
+  /** exact cumulants kappa_1..kappa_n (index 0 = kappa_1), null where the order does not exist. */
+  cumulants(n: number): (number | null)[];
+  /** robust location and positive scale for range choice when cumulants do not exist. */
+  readonly location: number;
+  readonly scale: number;
+  /** known support [lo, hi] (may be infinite). */
+  readonly support: readonly [number, number];
+  /** tail decay hints for the range chooser: power-law index per side; Infinity = lighter than any power. */
+  readonly tails: { left: number; right: number };
+  /** number of nodes of the model tree (for compute units). */
+  readonly nodes: number;
+  /** notes on approximations already made (e.g. "lognormal severity discretised on step h, mean-preserving"). */
+  readonly notes: string[];
+  /** when the law is lattice and can be tabulated exactly (finite lattices, Panjer for compounds), return the pmf
+   *  starting at `origin` on `step`, truncated with the dropped tail mass reported; otherwise null. */
+  exactLattice?(maxLength: number): LatticeTable | null;
+}
+
+/** compile(model) in ./compile.ts has this signature; throws CfError. */
+export type CompileFn = (model: Model) => CompiledModel;

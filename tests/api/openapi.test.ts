@@ -1,0 +1,36 @@
+// The committed OpenAPI document equals what the code generates, and the served one matches it.
+import { readFileSync } from "node:fs";
+import { resolve } from "node:path";
+import supertest from "supertest";
+import { describe, expect, it } from "vitest";
+import { buildOpenApiDocument } from "@/lib/api/openapi";
+import { apiServer } from "../support/api";
+
+const committed = JSON.parse(readFileSync(resolve(import.meta.dirname, "../../openapi/sumfold-v1.json"), "utf8"));
+
+describe("OpenAPI document", () => {
+  it("is committed as generated (run `npm run openapi` after changing a schema)", () => {
+    expect(JSON.parse(JSON.stringify(buildOpenApiDocument()))).toEqual(committed);
+  });
+
+  it("is served without a key at /api/v1/openapi.json, version 3.1, with every endpoint of the contract", async () => {
+    const res = await supertest(apiServer()).get("/api/v1/openapi.json");
+    expect(res.status).toBe(200);
+    expect(res.body.openapi).toBe("3.1.0");
+    for (const p of ["/api/v1/cf", "/api/v1/density", "/api/v1/quantiles", "/api/v1/moments", "/api/v1/convolve", "/api/v1/families", "/api/v1/health", "/api/v1/openapi.json"]) {
+      expect(res.body.paths[p], p).toBeDefined();
+    }
+    expect(res.body.components.securitySchemes.apiKey).toMatchObject({ type: "http", scheme: "bearer" });
+  });
+
+  it("documents a demo request and response for each computation, the problem responses and the rate-limit headers", () => {
+    for (const p of ["/api/v1/cf", "/api/v1/density", "/api/v1/quantiles", "/api/v1/moments", "/api/v1/convolve"]) {
+      const op = committed.paths[p].post;
+      expect(op.requestBody.content["application/json"].examples.demo.value, p).toBeDefined();
+      expect(op.responses["200"].content["application/json"].examples.demo.value.meta, p).toBeDefined();
+      expect(op.responses["200"].headers.RateLimit, p).toBeDefined();
+      expect(op.responses["422"].content["application/problem+json"], p).toBeDefined();
+      expect(op.responses["429"].headers["Retry-After"], p).toBeDefined();
+    }
+  });
+});

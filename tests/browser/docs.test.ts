@@ -1,0 +1,51 @@
+// The docs page: the interactive reference renders the 3.1 document, and Try it out runs a call with a key.
+import { join } from "node:path";
+import { afterAll, beforeAll, describe, expect, it } from "vitest";
+import { launchBrowser, SCREENSHOTS } from "../support/browser";
+import { orgWithKey } from "../support/api";
+import { baseUrl } from "../support/layout";
+
+let session: Awaited<ReturnType<typeof launchBrowser>>;
+beforeAll(async () => {
+  session = await launchBrowser();
+});
+afterAll(async () => {
+  await session?.close();
+});
+
+describe("/docs", () => {
+  it("expands an operation, authorises with a key, runs it and shows a 200 with a body", async () => {
+    const { secret } = await orgWithKey();
+    const page = await session.browser.newPage();
+    await page.goto(`${baseUrl()}/docs`, { waitUntil: "networkidle" });
+    await expect(page.getByRole("note").first().innerText()).resolves.toMatch(/computational aids/i);
+
+    await page.getByRole("button", { name: /Authorize/ }).first().click();
+    await page.locator(".modal-ux input[type=text], .modal-ux input").first().fill(secret);
+    await page.locator(".modal-ux").getByRole("button", { name: /^Authorize$/ }).click();
+    await page.locator(".modal-ux").getByRole("button", { name: /Close/ }).click();
+
+    const op = page.locator("#operations-Computation-moments");
+    await op.locator(".opblock-summary").click();
+    await op.getByRole("button", { name: /Try it out/ }).click();
+    await op.getByRole("button", { name: /Execute/ }).click();
+    const status = op.locator(".live-responses-table .response-col_status").first();
+    await status.waitFor({ timeout: 20_000 });
+    expect((await status.innerText()).trim()).toBe("200");
+    const body = await op.locator(".live-responses-table .microlight, .live-responses-table pre").first().innerText();
+    expect(body).toContain('"mean"');
+    await page.screenshot({ path: join(SCREENSHOTS, "docs-try-it-out.png"), fullPage: false });
+    await page.close();
+  });
+
+  it("serves the guides with snippets for every endpoint", async () => {
+    const page = await session.browser.newPage();
+    await page.goto(`${baseUrl()}/docs/snippets`);
+    const text = await page.locator("main").innerText();
+    for (const p of ["/api/v1/cf", "/api/v1/density", "/api/v1/quantiles", "/api/v1/moments", "/api/v1/convolve", "/api/v1/families"]) expect(text).toContain(p);
+    expect(text).toContain("import requests");
+    await page.goto(`${baseUrl()}/docs/errors`);
+    expect(await page.locator("#validation").innerText()).toContain("422");
+    await page.close();
+  });
+});

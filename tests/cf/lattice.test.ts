@@ -1,0 +1,293 @@
+// Convolution of tabulated lattice laws (direct and FFT with zero padding), n-fold powers, Panjer recursion and
+// exactLattice of compiled models, against exact rationals and brute-force definitions.
+import { afterAll, describe, expect, it } from "vitest";
+import { compile, convolve, convolveDirect, convolveFft, convolveTables, powerTable, panjer, CfError } from "@/lib/cf";
+import { close, record, worst } from "./model-assert";
+
+/** Exact probabilities of the sum of n fair s-sided dice: counts by integer dynamic programming / s^n. */
+function diceExact(n: number, s: number): number[] {
+  let ways: bigint[] = [1n];
+  for (let d = 0; d < n; d++) {
+    const next = new Array<bigint>(ways.length + s - 1).fill(0n);
+    for (let i = 0; i < ways.length; i++) for (let f = 0; f < s; f++) next[i + f] += ways[i];
+    ways = next;
+  }
+  const total = BigInt(s) ** BigInt(n);
+  return ways.map((w) => ratio(w, total));
+}
+
+/** w / total as the nearest double (exact big-integer division to 2^-80 before rounding). */
+function ratio(w: bigint, total: bigint): number {
+  const scaled = (w << 80n) / total;
+  return Number(scaled) / 2 ** 80;
+}
+
+function binomExact(n: number, num: bigint, den: bigint): number[] {
+  // P(k) = C(n,k) num^k (den-num)^{n-k} / den^n, exact
+  const out: number[] = [];
+  let c = 1n;
+  const total = den ** BigInt(n);
+  for (let k = 0; k <= n; k++) {
+    if (k > 0) c = (c * BigInt(n - k + 1)) / BigInt(k);
+    out.push(ratio(c * num ** BigInt(k) * (den - num) ** BigInt(n - k), total));
+  }
+  return out;
+}
+
+function maxAbsDiff(a: ArrayLike<number>, b: ArrayLike<number>): number {
+  let m = 0;
+  for (let k = 0; k < Math.max(a.length, b.length); k++) m = Math.max(m, Math.abs((a[k] ?? 0) - (b[k] ?? 0)));
+  return m;
+}
+
+describe("dice and binomials vs exact rationals (absolute error <= 1e-15)", () => {
+  const dice: [number, number][] = [[2, 6], [3, 6], [5, 6], [10, 6], [20, 6], [4, 20], [7, 12]];
+  it.each(dice)("sum of %d fair %d-sided dice via repeat (exact counts by integer convolution)", (n, s) => {
+    const c = compile({ repeat: n, of: { lattice: { origin: 1, step: 1, p: new Array(s).fill(1 / s) } } });
+    const t = c.exactLattice!(1 << 20)!;
+    const ex = diceExact(n, s);
+    expect([t.origin, t.step, t.p.length]).toEqual([n, 1, ex.length]);
+    const err = maxAbsDiff(t.p, ex);
+    record("lattice abs error (dice)", err);
+    close(err, 0, { abs: 1e-15 }, `max |p - exact| for ${n}d${s}`);
+    close(t.tailMass, 0, { abs: 1e-14 }, "tail mass");
+  });
+  it("dice through a sum of different dice: d4 + d6 + d8 + d20 (exact counts)", () => {
+    const die = (s: number) => ({ lattice: { origin: 1, step: 1, p: new Array(s).fill(1 / s) } });
+    const t = compile({ sum: [die(4), die(6), die(8), die(20)] }).exactLattice!(1000)!;
+    let ways: bigint[] = [1n];
+    for (const s of [4, 6, 8, 20]) {
+      const next = new Array<bigint>(ways.length + s - 1).fill(0n);
+      for (let i = 0; i < ways.length; i++) for (let f = 0; f < s; f++) next[i + f] += ways[i];
+      ways = next;
+    }
+    const ex = ways.map((w) => ratio(w, 4n * 6n * 8n * 20n));
+    expect(t.origin).toBe(4);
+    const err = maxAbsDiff(t.p, ex);
+    record("lattice abs error (dice)", err);
+    close(err, 0, { abs: 1e-15 }, "d4+d6+d8+d20");
+  });
+  const bins: [number, bigint, bigint][] = [[1, 1n, 2n], [10, 1n, 2n], [60, 1n, 2n], [25, 1n, 4n], [40, 3n, 8n]];
+  it.each(bins)("repeat %d of bernoulli(%d/%d) vs C(n,k) p^k q^(n-k) in exact arithmetic", (n, num, den) => {
+    const p = Number(num) / Number(den);
+    const t = compile({ repeat: n, of: { family: "bernoulli", p } }).exactLattice!(1 << 20)!;
+    const err = maxAbsDiff(t.p, binomExact(n, num, den));
+    record("lattice abs error (binomial via repeat)", err);
+    close(err, 0, { abs: 1e-15 }, `bernoulli^${n}`);
+  });
+  it.each(bins)("binomial(%d, %d/%d) table vs exact", (n, num, den) => {
+    const t = compile({ family: "binomial", n, p: Number(num) / Number(den) }).exactLattice!(1 << 20)!;
+    const err = maxAbsDiff(t.p, binomExact(n, num, den));
+    record("lattice abs error (binomial table)", err);
+    close(err, 0, { abs: 1e-15 }, `binomial ${n}`);
+  });
+  it("sum of binomials with a common p is binomial: binomial(7,1/4) + binomial(13,1/4) = binomial(20,1/4) (JKK ch. 3)", () => {
+    const t = compile({ sum: [{ family: "binomial", n: 7, p: 0.25 }, { family: "binomial", n: 13, p: 0.25 }] }).exactLattice!(100)!;
+    const err = maxAbsDiff(t.p, binomExact(20, 1n, 4n));
+    record("lattice abs error (binomial table)", err);
+    close(err, 0, { abs: 1e-15 }, "binomial sum");
+  });
+});
+
+describe("large convolutions (FFT with zero padding)", () => {
+  it("binomial(20000, 1/2) as a 20000-fold power (frequency-domain power) vs exact, and mass conserved", () => {
+    const n = 20000;
+    const t = powerTable({ origin: 0, step: 1, p: Float64Array.of(0.5, 0.5), tailMass: 0 }, n);
+    expect(t.p.length).toBe(n + 1);
+    const ex = binomExact(n, 1n, 2n);
+    const err = maxAbsDiff(t.p, ex);
+    record("lattice abs error (binomial 20000 via FFT power)", err);
+    close(err, 0, { abs: 1e-15 }, "binomial(20000, 1/2)");
+    let s = 0;
+    for (const v of t.p) s += v;
+    close(s, 1, { abs: 1e-12 }, "mass");
+  });
+  it("binomial(5000, 1/4) by repeated squaring vs exact", () => {
+    const t = powerTable({ origin: 0, step: 1, p: Float64Array.of(0.75, 0.25), tailMass: 0 }, 5000);
+    const err = maxAbsDiff(t.p, binomExact(5000, 1n, 4n));
+    record("lattice abs error (binomial 5000 via squaring)", err);
+    close(err, 0, { abs: 1e-15 }, "binomial(5000, 1/4)");
+  });
+  it("two 65 536-point lattices: FFT result equals direct convolution within 1e-15 and conserves mass", () => {
+    const L = 65536;
+    const a = new Float64Array(L);
+    const b = new Float64Array(L);
+    let sa = 0;
+    let sb = 0;
+    // deterministic pseudo-random weights (LCG; Numerical Recipes constants, common practice)
+    let seed = 12345;
+    const rnd = () => ((seed = (1664525 * seed + 1013904223) >>> 0) / 2 ** 32);
+    for (let k = 0; k < L; k++) {
+      a[k] = rnd();
+      b[k] = rnd() * Math.exp(-k / 5000);
+      sa += a[k];
+      sb += b[k];
+    }
+    for (let k = 0; k < L; k++) {
+      a[k] /= sa;
+      b[k] /= sb;
+    }
+    const c = convolve(a, b);
+    expect(c.length).toBe(2 * L - 1);
+    let s = 0;
+    for (const v of c) s += v;
+    close(s, 1, { abs: 1e-13 }, "mass of the convolution");
+    // direct sums at sampled indices (exact to rounding)
+    let err = 0;
+    for (const k of [0, 1, 77, 4095, 30000, 65535, 65536, 100000, 131070]) {
+      let d = 0;
+      for (let i = Math.max(0, k - L + 1); i <= Math.min(k, L - 1); i++) d += a[i] * b[k - i];
+      err = Math.max(err, Math.abs(c[k] - d));
+    }
+    record("lattice abs error (65536 x 65536 FFT vs direct)", err);
+    close(err, 0, { abs: 1e-15 }, "FFT vs direct");
+  });
+  it("convolveFft and convolveDirect agree on random tables of awkward sizes", () => {
+    let seed = 7;
+    const rnd = () => ((seed = (1664525 * seed + 1013904223) >>> 0) / 2 ** 32);
+    for (const [la, lb] of [[1, 1], [3, 700], [1000, 999], [4097, 33]]) {
+      const a = Float64Array.from({ length: la }, rnd);
+      const b = Float64Array.from({ length: lb }, rnd);
+      const d = convolveDirect(a, b);
+      const f = convolveFft(a, b);
+      // FFT convolution error bound ~ c eps log2 N ||a||_2 ||b||_2 (Higham, Accuracy and Stability of Numerical
+      // Algorithms, sec. 24.1; recalled from memory), c = 5
+      const N = 2 ** Math.ceil(Math.log2(la + lb - 1));
+      const norm = (x: Float64Array) => Math.sqrt(x.reduce((s, v) => s + v * v, 0));
+      const bound = 5 * 2 ** -53 * Math.max(1, Math.log2(N)) * norm(a) * norm(b);
+      close(maxAbsDiff(d, f), 0, { abs: bound }, `sizes ${la}, ${lb}`);
+    }
+  });
+});
+
+describe("Panjer recursion and compound tables", () => {
+  /** Brute force of the definition S = X_1 + ... + X_N: sum_k P(N=k) f^{*k} by direct convolutions. */
+  function bruteCompound(pN: number[], f: number[], len: number): number[] {
+    const out = new Array(len).fill(0);
+    let cur = [1];
+    for (let k = 0; k < pN.length; k++) {
+      for (let i = 0; i < Math.min(len, cur.length); i++) out[i] += pN[k] * cur[i];
+      const next = new Array(Math.min(len, cur.length + f.length - 1)).fill(0);
+      for (let i = 0; i < cur.length; i++) for (let j = 0; j < f.length && i + j < next.length; j++) next[i + j] += cur[i] * f[j];
+      cur = next;
+    }
+    return out;
+  }
+  const poissonPmf = (lam: number, K: number) => {
+    const p = [Math.exp(-lam)];
+    for (let k = 1; k < K; k++) p.push((p[k - 1] * lam) / k);
+    return p;
+  };
+
+  it("compound Poisson with geometric severity on 1, 2, ... vs the Polya-Aeppli closed form (JKK sec. 9.7, recalled from memory)", () => {
+    const lam = 2.5;
+    const th = 0.4;
+    // severity P(X = j) = (1 - th) th^{j-1}, j >= 1
+    const f = Array.from({ length: 200 }, (_, j) => (j === 0 ? 0 : (1 - th) * th ** (j - 1)));
+    const c = compile({ compound: { count: { family: "poisson", lambda: lam }, each: { shift: 1, of: { family: "geometric", p: 1 - th } } } });
+    const t = c.exactLattice!(60)!;
+    // P(S = n) = e^{-lam} sum_{k=1}^n C(n-1, k-1) (lam (1-th))^k th^{n-k} / k!
+    let err = 0;
+    for (let n = 0; n < 60; n++) {
+      let want = n === 0 ? Math.exp(-lam) : 0;
+      let c1 = 1;
+      let kf = 1;
+      for (let k = 1; k <= n; k++) {
+        kf *= k;
+        if (k > 1) c1 = (c1 * (n - k + 1)) / (k - 1);
+        want += (Math.exp(-lam) * c1 * (lam * (1 - th)) ** k * th ** (n - k)) / kf;
+      }
+      err = Math.max(err, Math.abs(t.p[n] - want));
+    }
+    expect(f[1]).toBeCloseTo(0.6, 15);
+    record("Panjer abs error (Polya-Aeppli)", err);
+    close(err, 0, { abs: 1e-15 }, "Panjer vs Polya-Aeppli");
+  });
+
+  const severities: [string, number[]][] = [
+    ["on 0..3 with an atom at 0", [0.2, 0.3, 0.4, 0.1]],
+    ["on 1..5", [0, 0.1, 0.2, 0.3, 0.25, 0.15]],
+  ];
+  it.each(severities)("Poisson, binomial and negative binomial counts, severity %s: Panjer vs brute force of the definition", (_n, f) => {
+    const len = 80;
+    const counts: [unknown, number[]][] = [
+      [{ family: "poisson", lambda: 3 }, poissonPmf(3, 80)],
+      [{ family: "binomial", n: 6, p: 0.35 }, Array.from({ length: 7 }, (_, k) => { let c = 1; for (let j = 1; j <= k; j++) c = (c * (6 - j + 1)) / j; return c * 0.35 ** k * 0.65 ** (6 - k); })],
+      [{ family: "negative_binomial", r: 2.5, p: 0.6 }, (() => { const p = [0.6 ** 2.5]; for (let k = 1; k < 120; k++) p.push((p[k - 1] * 0.4 * (2.5 + k - 1)) / k); return p; })()],
+    ];
+    for (const [count, pN] of counts) {
+      const t = compile({ compound: { count, each: { lattice: { origin: 0, step: 1, p: f } } } }).exactLattice!(len)!;
+      const want = bruteCompound(pN, f, len);
+      const err = maxAbsDiff(t.p.subarray(0, len), want);
+      record("Panjer abs error (vs brute force)", err);
+      close(err, 0, { abs: 2e-15 }, `${JSON.stringify(count)}`);
+    }
+  });
+  it("panjer() directly: (a, b) = (0, lambda) reproduces the compound Poisson; g_0 underflow returns null", () => {
+    const f = Float64Array.of(0, 0.5, 0.5);
+    const g = panjer({ a: 0, b: 2, pgf: (z) => Math.exp(2 * (z - 1)) }, f, 30)!;
+    const want = bruteCompound(poissonPmf(2, 60), [0, 0.5, 0.5], 30);
+    close(maxAbsDiff(g, want), 0, { abs: 1e-15 }, "panjer vs brute force");
+    expect(panjer({ a: 0, b: 1000, pgf: (z) => Math.exp(1000 * (z - 1)) }, f, 10)).toBeNull();
+  });
+  it("compound with a lattice severity of step 0.5 and origin 1: table on step 0.5 from 0", () => {
+    const t = compile({ compound: { count: { family: "poisson", lambda: 1 }, each: { lattice: { origin: 1, step: 0.5, p: [0.5, 0.5] } } } }).exactLattice!(200)!;
+    expect([t.origin, t.step]).toEqual([0, 0.5]);
+    close(t.p[0], Math.exp(-1), { rel: 1e-15 }, "P(S=0)");
+    close(t.p[1], 0, { abs: 0 }, "P(S=0.5)");
+    close(t.p[2], Math.exp(-1) * 0.5, { rel: 1e-15 }, "P(S=1) = P(N=1) P(X=1)");
+    let mean = 0;
+    for (let k = 0; k < t.p.length; k++) mean += t.p[k] * k * 0.5;
+    close(mean, 1.25, { rel: 1e-13 }, "mean = E N E X (Loss Models eq. 9.2)");
+  });
+  it("point count gives the n-fold power; mixture counts use the short-table route", () => {
+    const die = { lattice: { origin: 1, step: 1, p: new Array(6).fill(1 / 6) } };
+    const a = compile({ compound: { count: { family: "point", at: 3 }, each: die } }).exactLattice!(100)!;
+    const ex = diceExact(3, 6);
+    close(maxAbsDiff(a.p.subarray(3), ex), 0, { abs: 1e-15 }, "compound with N = 3");
+    const m = compile({ compound: { count: { mix: [{ weight: 0.5, of: { family: "point", at: 1 } }, { weight: 0.5, of: { family: "point", at: 2 } }] }, each: die } }).exactLattice!(100)!;
+    const e1 = diceExact(1, 6);
+    const e2 = diceExact(2, 6);
+    const want = new Array(13).fill(0);
+    e1.forEach((v, k) => (want[k + 1] += 0.5 * v));
+    e2.forEach((v, k) => (want[k + 2] += 0.5 * v));
+    close(maxAbsDiff(m.p.subarray(0, 13), want), 0, { abs: 1e-15 }, "mixture count");
+  });
+});
+
+describe("special inputs", () => {
+  it("empty tables and bad powers are rejected; incommensurate steps are not a lattice", () => {
+    expect(() => convolve(new Float64Array(0), Float64Array.of(1))).toThrow(CfError);
+    expect(() => powerTable({ origin: 0, step: 1, p: Float64Array.of(1), tailMass: 0 }, 0)).toThrow(CfError);
+    expect(() =>
+      convolveTables([
+        { origin: 0, step: 1, p: Float64Array.of(0.5, 0.5), tailMass: 0 },
+        { origin: 0, step: Math.SQRT2, p: Float64Array.of(0.5, 0.5), tailMass: 0 },
+      ]),
+    ).toThrow(/not commensurate/);
+  });
+  it("truncation reports the dropped mass", () => {
+    const t = compile({ family: "poisson", lambda: 10 }).exactLattice!(10)!;
+    expect(t.p.length).toBe(10);
+    let s = 0;
+    for (const v of t.p) s += v;
+    close(t.tailMass, 1 - s, { abs: 1e-14 }, "tail mass = 1 - kept mass");
+    expect(t.tailMass).toBeGreaterThan(0.4);
+    const d = compile({ repeat: 10, of: { lattice: { origin: 1, step: 1, p: new Array(6).fill(1 / 6) } } }).exactLattice!(20)!;
+    let s2 = 0;
+    for (const v of d.p) s2 += v;
+    close(d.tailMass, 1 - s2, { abs: 1e-14 }, "tail mass of a truncated power");
+  });
+  it("continuous and non-lattice models have no exact table", () => {
+    expect(compile({ family: "normal", mu: 0, sigma: 1 }).exactLattice).toBeUndefined();
+    expect(compile({ sample: [0, 1, Math.PI] }).exactLattice).toBeUndefined();
+  });
+  it("a single-point lattice and a degenerate binomial", () => {
+    expect(compile({ lattice: { origin: 2, step: 1, p: [0, 1, 0] } }).exactLattice!(5)).toEqual({ origin: 3, step: 1, p: Float64Array.of(1), tailMass: 0 });
+    expect(compile({ family: "binomial", n: 5, p: 1 }).exactLattice!(5)!.origin).toBe(5);
+  });
+});
+
+afterAll(() => {
+  console.log("worst errors (lattice):", JSON.stringify(worst, null, 1));
+});

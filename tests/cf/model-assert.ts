@@ -1,0 +1,30 @@
+// Shared assertions for engineer A's lib/cf tests: every failure prints inputs, value, expected, difference, tolerance.
+import { expect } from "vitest";
+
+export type Tol = { abs?: number; rel?: number };
+
+export function close(actual: number, expected: number, tol: Tol, what: string): void {
+  const diff = Math.abs(actual - expected);
+  const bound = Math.max(tol.abs ?? 0, (tol.rel ?? 0) * Math.abs(expected));
+  const ok = (Number.isNaN(actual) && Number.isNaN(expected)) || actual === expected || diff <= bound;
+  if (!ok) {
+    expect.fail(`${what}: value ${actual}, expected ${expected}, difference ${diff}, tolerance ${JSON.stringify(tol)} (bound ${bound})`);
+  }
+}
+
+/** Complex closeness |a - b| <= rel * |b| (or abs). Returns the relative error seen. */
+export function closeC(ar: number, ai: number, br: number, bi: number, tol: Tol, what: string): number {
+  const diff = Math.hypot(ar - br, ai - bi);
+  const mag = Math.hypot(br, bi);
+  const bound = Math.max(tol.abs ?? 0, (tol.rel ?? 0) * mag);
+  if (!(diff <= bound)) {
+    expect.fail(`${what}: value ${ar}${ai >= 0 ? "+" : ""}${ai}i, expected ${br}${bi >= 0 ? "+" : ""}${bi}i, difference ${diff}, tolerance ${JSON.stringify(tol)} (bound ${bound})`);
+  }
+  return mag > 0 ? diff / mag : diff;
+}
+
+/** Worst errors observed, printed at the end of a file for the report. */
+export const worst: Record<string, number> = {};
+export function record(key: string, err: number): void {
+  worst[key] = Math.max(worst[key] ?? 0, err);
+}
