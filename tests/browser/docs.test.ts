@@ -14,26 +14,31 @@ afterAll(async () => {
 });
 
 describe("/docs", () => {
-  it("expands an operation, authorises with a key, runs it and shows a 200 with a body", async () => {
+  it("expands an operation, authorises with a key, runs it and shows a 200 with a body", { timeout: 60_000 }, async () => {
     const { secret } = await orgWithKey();
     const page = await session.browser.newPage();
     await page.goto(`${baseUrl()}/docs`, { waitUntil: "networkidle" });
     await expect(page.getByRole("note").first().innerText()).resolves.toMatch(/computational aids/i);
 
     await page.getByRole("button", { name: /Authorize/ }).first().click();
-    await page.locator(".modal-ux input[type=text], .modal-ux input").first().fill(secret);
-    await page.locator(".modal-ux").getByRole("button", { name: /^Authorize$/ }).click();
-    await page.locator(".modal-ux").getByRole("button", { name: /Close/ }).click();
+    await page.locator("#auth-bearer-value").fill(secret);
+    await page.locator(".modal-ux button.authorize").click();
+    await page.locator(".modal-ux button.btn-done").click();
 
     const op = page.locator("#operations-Computation-moments");
-    await op.locator(".opblock-summary").click();
-    await op.getByRole("button", { name: /Try it out/ }).click();
-    await op.getByRole("button", { name: /Execute/ }).click();
-    const status = op.locator(".live-responses-table .response-col_status").first();
+    await op.locator(".opblock-summary").first().click();
+    // The first click on "Try it out" can land while the operation is still mounting; retry until Execute shows.
+    for (let i = 0; i < 5 && !(await op.locator("button.execute").isVisible()); i++) {
+      await op.locator("button.try-out__btn").click();
+      await page.waitForTimeout(400);
+    }
+    await op.locator("button.execute").click();
+    const status = op.locator(".live-responses-table tbody .response-col_status").first();
     await status.waitFor({ timeout: 20_000 });
     expect((await status.innerText()).trim()).toBe("200");
-    const body = await op.locator(".live-responses-table .microlight, .live-responses-table pre").first().innerText();
+    const body = await op.locator(".live-responses-table tbody .response-col_description pre").first().innerText();
     expect(body).toContain('"mean"');
+    await op.locator(".live-responses-table").scrollIntoViewIfNeeded();
     await page.screenshot({ path: join(SCREENSHOTS, "docs-try-it-out.png"), fullPage: false });
     await page.close();
   });
