@@ -1,7 +1,10 @@
-// Runs once when the Next.js server starts: flush usage metering on shutdown and replay any spool.
+// Runs once when the Next.js server starts: the portal's schedules, usage flushed on shutdown, any spool of a
+// previous run replayed.
 export async function register() {
   if (process.env.NEXT_RUNTIME !== "nodejs") return;
   const { flushUsage } = await import("./lib/api/metering");
+  // Quota e-mails after each metering flush, and the hourly scan for keys about to expire.
+  (await import("./lib/portal/schedule")).startPortalSchedules();
   let stopping = false;
   const stop = async (signal: string) => {
     if (stopping) return;

@@ -1,4 +1,6 @@
+import { cookies } from "next/headers";
 import Link from "next/link";
+import { sessionUserId } from "@/lib/auth/session";
 
 export function Caution({ className = "" }: { className?: string }) {
   return (
@@ -9,7 +11,18 @@ export function Caution({ className = "" }: { className?: string }) {
   );
 }
 
-export function SiteHeader() {
+/** The signed-in person's id from the session cookie, or null (no database look-up: the link only). */
+async function signedIn(): Promise<boolean> {
+  const jar = await cookies();
+  const header = jar
+    .getAll()
+    .map((c) => `${c.name}=${encodeURIComponent(c.value)}`)
+    .join("; ");
+  return (await sessionUserId(header)) !== null;
+}
+
+export async function SiteHeader() {
+  const inside = await signedIn();
   return (
     <header className="border-b border-paper-line bg-paper">
       <a href="#main" className="sr-only focus:not-sr-only focus:absolute focus:p-2">
@@ -25,9 +38,15 @@ export function SiteHeader() {
           <Link href="/docs" className="hover:text-fold-600">
             API reference
           </Link>
-          <Link href="/sign-in" className="rounded-md bg-ink px-3 py-1.5 text-paper hover:bg-fold-700">
-            Sign in
-          </Link>
+          {inside ? (
+            <Link href="/dashboard" className="rounded-md bg-ink px-3 py-1.5 text-paper hover:bg-fold-700">
+              Portal
+            </Link>
+          ) : (
+            <Link href="/sign-in" className="rounded-md bg-ink px-3 py-1.5 text-paper hover:bg-fold-700">
+              Sign in
+            </Link>
+          )}
         </nav>
       </div>
     </header>

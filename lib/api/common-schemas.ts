@@ -6,6 +6,16 @@ import { z } from "./zod";
 // restated here so each refers to the named "Model" component (the generator cannot name the core's inner
 // lazy references). Validation does not use this copy: the core's validateModel checks every request.
 const docFinite = z.number();
+
+/** A model node naming an uploaded dataset; resolved to its empirical law before the computation. */
+export const DatasetRef = z
+  .object({
+    dataset: z.string().regex(/^ds_[0-9a-hjkmnp-tv-z]{16}$/).openapi({ description: "a dataset id from GET /api/v1/datasets", example: "ds_7kq2m9x4c1vbt0hz" }),
+    version: z.number().int().min(1).optional().openapi({ description: "the version to use; the latest when omitted" }),
+  })
+  .strict()
+  .openapi("DatasetRef", { description: "The empirical law of an uploaded dataset (weighted when it has weights or counts)." });
+
 export const ModelRef: z.ZodType = z
   .lazy(() =>
     z.union([
@@ -24,11 +34,12 @@ export const ModelRef: z.ZodType = z
         .openapi("CompoundNode", { description: "random sum of `count` (a law on 0, 1, 2, ...) independent copies of `each`" }),
       LatticeSchema,
       SampleSchema,
+      DatasetRef,
     ]),
   )
   .openapi("Model", {
     description:
-      "A model in Sumfold's notation: a named law { family, ...parameters }, or sum, scale, shift, repeat, mix, compound, lattice or sample. See /docs/models.",
+      "A model in Sumfold's notation: a named law { family, ...parameters }, or sum, scale, shift, repeat, mix, compound, lattice, sample or dataset. See /docs/models.",
   });
 
 const finite = (what: string) => z.number({ error: `${what} must be a finite number` });

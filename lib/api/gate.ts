@@ -1,6 +1,7 @@
 import "server-only";
 import { randomUUID } from "node:crypto";
 import type { z } from "zod";
+import { hasDatasetRef, resolveDatasets } from "@/lib/datasets/resolve";
 import { getKeyByHash } from "@/lib/db/keys";
 import type { ApiKey } from "@/lib/db/schema";
 import { ENGINE_VERSION } from "@/lib/version";
@@ -128,6 +129,10 @@ export function withApiKey<S extends z.ZodType>(handler: Handler<S>, opts: Optio
       }
       const raw = opts.schema ? await readJson(req) : undefined;
       const body = opts.schema ? validate(opts.schema, raw) : (undefined as z.infer<S>);
+      // Dataset references become their empirical law first, so the units count the data's size.
+      if (body && typeof body === "object" && "model" in body && hasDatasetRef(body.model)) {
+        (body as { model: unknown }).model = await resolveDatasets(body.model, key.organizationId, "/model");
+      }
       units = Math.max(1, Math.ceil(opts.units(body)));
       const decision = await checkLimits({ keyId: key.id, organizationId: key.organizationId, plan: key.plan, units });
       headers = limitHeaders(decision);

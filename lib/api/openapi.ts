@@ -2,7 +2,9 @@ import { OpenAPIRegistry, OpenApiGeneratorV31 } from "@asteasolutions/zod-to-ope
 import { CfRequest, CfResponse } from "@/app/api/v1/cf/schema";
 import { ConvolveRequest, ConvolveResponse } from "@/app/api/v1/convolve/schema";
 import { DensityRequest, DensityResponse } from "@/app/api/v1/density/schema";
+import { DatasetResponse, DatasetsResponse } from "@/app/api/v1/datasets/schema";
 import { FamiliesResponse } from "@/app/api/v1/families/schema";
+import { datasetExample } from "@/lib/datasets/example";
 import { MomentsRequest, MomentsResponse } from "@/app/api/v1/moments/schema";
 import { QuantilesRequest, QuantilesResponse } from "@/app/api/v1/quantiles/schema";
 import { ENGINE_VERSION } from "@/lib/version";
@@ -102,6 +104,34 @@ export function buildOpenApiDocument(serverUrl = "/") {
     responses: {
       200: { description: "The catalogue", headers: rateLimitHeaders, content: { "application/json": { schema: FamiliesResponse, example: { ...catalogueResponse(), meta: EXAMPLE_META } } } },
       ...problems(["unauthorized", "forbidden", "rate_limited", "internal"]),
+    },
+  });
+  const ds = datasetExample();
+  registry.registerPath({
+    method: "get",
+    path: "/api/v1/datasets",
+    operationId: "datasets",
+    summary: "The organisation's datasets",
+    description: "Datasets uploaded in the portal by the key's organisation, each with its latest version's summary and histogram. A model uses one as { \"dataset\": id, \"version\"?: n }.",
+    tags: ["Catalogue"],
+    security: [{ [bearer.name]: [] }],
+    responses: {
+      200: { description: "The datasets, most recently changed first", headers: rateLimitHeaders, content: { "application/json": { schema: DatasetsResponse, example: { datasets: [ds.listItem], meta: EXAMPLE_META } } } },
+      ...problems(["unauthorized", "forbidden", "rate_limited", "internal"]),
+    },
+  });
+  registry.registerPath({
+    method: "get",
+    path: "/api/v1/datasets/{id}",
+    operationId: "dataset",
+    summary: "One dataset with its versions",
+    description: "Metadata, summary statistics and histogram of every version (newest first). A dataset of another organisation answers 404, like one that does not exist.",
+    tags: ["Catalogue"],
+    security: [{ [bearer.name]: [] }],
+    request: { params: z.object({ id: z.string().openapi({ example: ds.listItem.id }) }) },
+    responses: {
+      200: { description: "The dataset", headers: rateLimitHeaders, content: { "application/json": { schema: DatasetResponse, example: { dataset: ds.detail, meta: EXAMPLE_META } } } },
+      ...problems(["unauthorized", "forbidden", "not_found", "rate_limited", "internal"]),
     },
   });
   registry.registerPath({

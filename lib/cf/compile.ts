@@ -8,10 +8,21 @@ import { cauchy, gammaLaw, laplace, logistic, nig, normal, studentT, uniform, va
 import { stable } from "./families/stable";
 import { lognormal, pareto, weibull } from "./families/numeric";
 import { binomial, negativeBinomial, point, poisson } from "./families/discrete";
-import { atomsNode, compoundNode, latticeNode, mixNode, repeatNode, sampleNode, scaleNode, shiftNode, sumNode } from "./operators";
+import type { DiscretiseOptions } from "./discretise";
+import { compoundNode, latticeNode, mixNode, repeatNode, sampleNode, scaleNode, shiftNode, sumNode } from "./operators";
+
+/** Options of compile(). */
+export interface CompileOptions {
+  /**
+   * Lognormal, pareto and weibull severities inside compounds are discretised onto a lattice (mean-preserving) unless
+   * this is false; the object sets the target cdf error or the span.
+   */
+  discretise?: DiscretiseOptions | false;
+}
 
 /** Build the node tree of a validated model. */
-export function buildNode(m: Model): Node {
+export function buildNode(m: Model, opts: CompileOptions = {}): Node {
+  const buildNode_ = (x: Model) => buildNode(x, opts);
   if ("family" in m) {
     switch (m.family) {
       case "normal":
@@ -58,16 +69,19 @@ export function buildNode(m: Model): Node {
         return negativeBinomial(1, m.p);
     }
   }
-  if ("sum" in m) return sumNode(m.sum.map(buildNode));
-  if ("scale" in m) return scaleNode(m.scale, buildNode(m.of));
-  if ("shift" in m) return shiftNode(m.shift, buildNode(m.of));
-  if ("repeat" in m) return repeatNode(m.repeat, buildNode(m.of));
-  if ("mix" in m) return mixNode(m.mix.map((c) => c.weight), m.mix.map((c) => buildNode(c.of)));
-  if ("compound" in m) return compoundNode(buildNode(m.compound.count), buildNode(m.compound.each));
+  if ("sum" in m) return sumNode(m.sum.map(buildNode_));
+  if ("scale" in m) return scaleNode(m.scale, buildNode_(m.of));
+  if ("shift" in m) return shiftNode(m.shift, buildNode_(m.of));
+  if ("repeat" in m) return repeatNode(m.repeat, buildNode_(m.of));
+  if ("mix" in m) return mixNode(m.mix.map((c) => c.weight), m.mix.map((c) => buildNode_(c.of)));
+  if ("compound" in m) return compoundNode(buildNode_(m.compound.count), buildNode_(m.compound.each), opts.discretise === false ? null : (opts.discretise ?? {}));
   if ("lattice" in m) return latticeNode(m.lattice.origin, m.lattice.step, m.lattice.p);
-  if ("sample" in m) return sampleNode(m.sample, MAX_LATTICE);
+  if ("sample" in m) return sampleNode(m.sample, MAX_LATTICE, m.weights);
   throw new Error("unreachable: validated model without a known node");
 }
+
+/** exactLattice returns null rather than a table whose dropped mass exceeds this. */
+export const USEFUL_TAIL = 1e-11;
 
 function checkBuffers(t: Float64Array, re: Float64Array, im: Float64Array) {
   if (re.length < t.length || im.length < t.length) throw new RangeError(`output buffers hold ${Math.min(re.length, im.length)} values, ${t.length} needed`);
@@ -124,18 +138,25 @@ export function toCompiled(node: Node): CompiledModel {
     support: node.support,
     tails: node.tails,
     nodes: node.nodes,
-    notes: node.kind.type === "mixed" && !node.kind.atomsComplete ? [...node.notes, "not every atom of this mixed law is listed"] : node.notes,
+    // read on access: a discretised compound adds its error bound to its notes when its table is built
+    get notes() {
+      return node.kind.type === "mixed" && !node.kind.atomsComplete ? [...node.notes, "not every atom of this mixed law is listed"] : node.notes;
+    },
   };
   if (node.kind.type === "lattice" && node.table) {
     const table = node.table;
-    compiled.exactLattice = (maxLength) => table(Math.max(1, Math.min(Math.floor(maxLength), MAX_LATTICE)));
+    // a table that drops more than USEFUL_TAIL of the mass is not returned: the CF route does better there
+    compiled.exactLattice = (maxLength) => {
+      const t = table(Math.max(1, Math.min(Math.floor(maxLength), MAX_LATTICE)));
+      return t && (t.tailMass <= USEFUL_TAIL || node.approximate) ? t : null;
+    };
   }
   return compiled;
 }
 
 /** Validate a model in the notation and compile it; throws CfError with a JSON pointer on invalid input. */
-export function compile(model: Model | unknown): CompiledModel {
-  return toCompiled(buildNode(validateModel(model)));
+export function compile(model: Model | unknown, options: CompileOptions = {}): CompiledModel {
+  return toCompiled(buildNode(validateModel(model), options));
 }
 
 

@@ -16,7 +16,8 @@ export {
   LATTICE_SUM_TOLERANCE,
 } from "./schema";
 export { validateModel, isCountLaw } from "./validate";
-export { compile } from "./compile";
+export { compile, USEFUL_TAIL, type CompileOptions } from "./compile";
+export { discretiseSeverity, chooseSpan, type DiscretiseOptions, type SeverityLaw } from "./discretise";
 export { CfError, isCfError, toPointer, type CfErrorCode, type CfIssue } from "./errors";
 export { MAX_GRID_POINTS, MAX_MODEL_NODES, MAX_DEPTH, MAX_REPEAT, MAX_SAMPLE, MAX_LATTICE, MAX_MOMENT_ORDER } from "./limits";
 export { moments, type MomentsResult } from "./moments";

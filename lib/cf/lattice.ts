@@ -60,7 +60,7 @@ export function convolveDirect(a: Float64Array, b: Float64Array, out?: Float64Ar
 /**
  * FFT convolution with zero padding to N >= la + lb - 1 (no wrap-around). Both real inputs go through one complex
  * transform (z = a + i b, A_k = (Z_k + conj Z_{N-k})/2, B_k = (Z_k - conj Z_{N-k})/(2i); Press et al., Numerical
- * Recipes 3rd ed., sec. 12.3); the product's inverse gives c. Rounding leaves |error| ~ eps log2 N max|c|; negative
+ * Recipes, two real FFTs in one, recalled from memory); the product's inverse gives c. Rounding leaves |error| ~ eps log2 N max|c|; negative
  * round-off is clipped to 0.
  */
 export function convolveFft(a: Float64Array, b: Float64Array, out?: Float64Array): Float64Array {
@@ -249,7 +249,7 @@ export interface PanjerCount {
 /**
  * Panjer recursion for a compound sum S = X_1 + ... + X_N with N in the (a, b, 0) class and X on 0, h, 2h, ...:
  * g_0 = P_N(f_0), g_k = (1/(1 - a f_0)) sum_{j=1}^{k} (a + b j/k) f_j g_{k-j} (Klugman, Panjer & Willmot, Loss Models,
- * Theorem 9.8 in the 4th ed., recalled from memory). Runs to `length` entries; cost length * len(f).
+ * chapter on aggregate loss models, recalled from memory). Runs to `length` entries; cost length * len(f).
  * Returns null when g_0 underflows (very large expected counts), where the recursion cannot start.
  */
 export function panjer(count: PanjerCount, f: Float64Array, length: number): Float64Array | null {

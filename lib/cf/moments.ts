@@ -33,7 +33,7 @@ function isCompiled(x: unknown): x is CompiledModel {
 /**
  * Exact moments through the model tree: family cumulants in closed form combined by the operators (cumulants add over
  * sums, scale by a^n, shift moves kappa_1, repeat multiplies, mixtures mix raw moments, compounds compose the cumulant
- * series); raw and central moments from cumulants (Kendall & Stuart vol. 1, eq. 3.33-3.38). Orders at or above the
+ * series); raw and central moments from cumulants (Kendall & Stuart vol. 1, ch. 3, recalled from memory). Orders at or above the
  * moment index come back null with the reason.
  */
 export function moments(model: Model | CompiledModel | unknown, order: number): MomentsResult {

@@ -1,4 +1,5 @@
 import type { Atom, LatticeTable } from "./types";
+import type { SeverityLaw } from "./discretise";
 
 /**
  * Internal kind, richer than the public LawKind: a lattice with step 0 is a single point, and lattice/discrete
@@ -28,15 +29,21 @@ export interface Node {
   table?(maxLength: number): LatticeTable | null;
   /** for laws on 0,1,2,...: log E[e^{w N}] at complex w (Re w <= 0), into (re, im), continuous along the index */
   countCgf?(wr: Float64Array, wi: Float64Array, re: Float64Array, im: Float64Array): void;
-  /** (a, b, 0) class membership: P(N=k) = (a + b/k) P(N=k-1), k >= 1 (Loss Models, sec. 6.5) */
+  /** (a, b, 0) class membership: P(N=k) = (a + b/k) P(N=k-1), k >= 1 (Loss Models, (a, b, 0) class; recalled from memory) */
   panjer?: { a: number; b: number; p0: number };
+  /** infinitely divisible (a, b, 0) counts: the (a, b, 0) law whose m-fold sum is this one, with its pgf */
+  divide?: (m: number) => { a: number; b: number; pgf: (z: number) => number };
   /** P(N = 0) for laws on 0,1,2,... */
   p0?: number;
+  /** a positive severity without a cheap CF (lognormal, pareto, weibull): compounds discretise it onto a lattice */
+  severity?: SeverityLaw;
+  /** the table is an approximation of the law (discretised severity): kept even when it drops more than USEFUL_TAIL */
+  approximate?: boolean;
 }
 
 export const NONE_MOMENT = (n: number): (number | null)[] => new Array<number | null>(n).fill(null);
 
-/** Cumulants -> raw moments: m_n = sum_{k=1}^n C(n-1,k-1) kappa_k m_{n-k} (Kendall & Stuart, vol. 1, eq. 3.33). */
+/** Cumulants -> raw moments: m_n = sum_{k=1}^n C(n-1,k-1) kappa_k m_{n-k} (Kendall & Stuart, vol. 1, ch. 3, recalled from memory). */
 export function cumulantsToRaw(kappa: (number | null)[]): (number | null)[] {
   const n = kappa.length;
   const m: (number | null)[] = [1];

@@ -1,13 +1,14 @@
 import { CfError } from "./errors";
 import type { Atom, CompiledModel } from "./types";
-import { evalLadder, heavyLadder, invertContinuous, type PartSolution } from "./invert/continuous";
+import { evalLadder, growLadder, heavyLadder, invertContinuous, maybeKernels, type PartSolution } from "./invert/continuous";
 import { atomMass } from "./invert/density";
 import { latticeCumulative, solveLattice } from "./invert/lattice";
 import { kernelAt, type EndpointKernels } from "./invert/part";
 import { integrateSf, sumPointwise } from "./invert/pointwise";
 import { lawShape } from "./invert/range";
 import { makePart } from "./invert/part";
-import { buildNodes, cutoffFor, probeEnvelope, truncationAt } from "./invert/nodes";
+import { incGamma } from "./invert/incgamma";
+import { buildNodes, probeEnvelope, truncationAt, type Nodes } from "./invert/nodes";
 
 export interface QuantileOptions {
   /** also return the expected shortfall ES_p = q_p + E[(X - q_p)^+] / (1 - p) (TVaR) */
@@ -71,13 +72,21 @@ export function quantiles(model: CompiledModel, pIn: ArrayLike<number>, options:
 }
 
 function lightQuantiles(model: CompiledModel, atoms: Atom[], w: number, p: Float64Array, o: QuantileOptions): QuantileResult {
-  const tol = o.tolerance ?? 1e-14;
+  let tol = o.tolerance ?? 1e-14;
   const shape = lawShape(model);
-  const out = invertContinuous(model, atoms, { kind: "points", x: new Float64Array([shape.center]) }, {
-    method: "gil-pelaez",
-    tolerance: tol / w,
-    wantPdf: false,
-  });
+  const solve = () =>
+    invertContinuous(model, atoms, { kind: "points", x: new Float64Array([shape.center]) }, {
+      method: "gil-pelaez",
+      tolerance: tol / w,
+      wantPdf: false,
+    });
+  let out = solve();
+  // every root-finding step costs one pass over the nodes: when a slowly decaying CF needs very many, relax the
+  // target (the error estimates follow) rather than spend seconds per level
+  while (out.solution!.nodes.K > 1 << 17 && tol < 1e-9 && o.tolerance === undefined) {
+    tol *= 100;
+    out = solve();
+  }
   const sol = out.solution!;
   const errCdf = w * sol.error.cdf + 4 * Number.EPSILON;
   const one = new Float64Array(1);
@@ -134,38 +143,22 @@ function lightQuantiles(model: CompiledModel, atoms: Atom[], w: number, p: Float
   };
 }
 
-/** int_y^inf of a kernel's sf: (1/lambda) sum_{n<m} S_{n+1}(y) for Erlang(m) (side +1); reflected for side -1. */
+/**
+ * int_y^inf of a kernel's sf: for G ~ Gamma(a, lambda), E[(G - v)^+] = (a/lambda) Q(a+1, lambda v) - v Q(a, lambda v);
+ * for side -1 (X = at - G) the integral over (y, at] of P(G <= at - u) is v - a/lambda + E[(G - v)^+], v = at - y.
+ */
 function kernelSfIntegral(k: EndpointKernels, y: number): number {
   let s = 0;
   for (let q = 0; q < k.b.length; q++) {
-    const m = q + 1;
-    // Erlang(m) pieces
-    const tailInt = (v: number) => {
-      let acc = 0;
-      for (let n = 1; n <= m; n++) acc += erlangSf(n, k.rate, v);
-      return acc / k.rate;
-    };
-    if (k.side === 1) {
-      const v = y - k.at;
-      s += k.b[q] * (v <= 0 ? m / k.rate - v : tailInt(v));
-    } else {
+    const a = k.power + q;
+    const excess = (v: number) => (v <= 0 ? a / k.rate - v : (a / k.rate) * incGamma(a + 1, k.rate * v).Q - v * incGamma(a, k.rate * v).Q);
+    if (k.side === 1) s += k.b[q] * excess(y - k.at);
+    else {
       const v = k.at - y;
-      s += k.b[q] * (v <= 0 ? 0 : v - m / k.rate + tailInt(v));
+      s += k.b[q] * (v <= 0 ? 0 : v - a / k.rate + excess(v));
     }
   }
   return s;
-}
-
-function erlangSf(m: number, rate: number, y: number): number {
-  if (y <= 0) return 1;
-  const z = rate * y;
-  let term = 1;
-  let s = 1;
-  for (let n = 1; n < m; n++) {
-    term *= z / n;
-    s += term;
-  }
-  return Math.exp(-z) * s;
 }
 
 function shortfallLight(
@@ -324,21 +317,20 @@ function heavyQuantiles(model: CompiledModel, atoms: Atom[], w: number, p: Float
   const tol = o.tolerance ?? 1e-10;
   const shape = lawShape(model);
   const notes: string[] = [];
-  const alpha = Math.min(Math.max(shape.alpha, 0.1), 2);
+  const alpha = Math.max(shape.alpha, 0.1);
   // rough extent of the requested levels from the power tail S(x) ~ (scale/x)^alpha
   let ext = shape.spread;
   for (let i = 0; i < p.length; i++) {
     const tp = Math.min(p[i], 1 - p[i]);
     if (tp > 0) ext = Math.max(ext, shape.spread * Math.pow(2 / tp, 1 / alpha));
   }
-  const T0 = Math.max(64 * shape.spread, 4 * ext);
+  const T0 = Math.max(64 * shape.spread, 8 * ext);
   const scratch = { pdf: new Float64Array(1), cdf: new Float64Array(1), sf: new Float64Array(1), one: new Float64Array(1) };
-  let lad = heavyLadder(model, atoms, T0, 5, tol);
+  const lad = heavyLadder(model, atoms, T0, 5, tol);
   const probes = [shape.center - ext, shape.center, shape.center + ext];
-  for (let more = 0; more < 5; more++) {
+  for (let more = 0; more < 3; more++) {
     const worst = Math.max(...probes.map((x) => evalLadder(lad, x, scratch).errCdf));
-    if (worst <= tol) break;
-    lad = heavyLadder(model, atoms, T0, lad.levels.length + 1, tol);
+    if (worst <= tol || !growLadder(lad)) break;
   }
   let seenErr = 0;
   const ev: Evaluator = {
@@ -392,17 +384,17 @@ function heavyQuantiles(model: CompiledModel, atoms: Atom[], w: number, p: Float
     if (!(model.momentIndex > 1) || mean === null || !Number.isFinite(mean)) {
       notes.push("expected shortfall does not exist (the mean is infinite)");
     } else {
-      const sh = heavyShortfall(model, atoms, w, mean, shape, tol);
-      if (!sh) notes.push("expected shortfall is not computed for power tails combined with endpoint kernels");
-      else {
-        for (let i = 0; i < p.length; i++) {
-          if (!Number.isFinite(xs[i]) || p[i] >= 1) continue;
-          const r = sh(xs[i]);
-          es[i] = xs[i] + r.value / (1 - p[i]);
-          esErr[i] = (r.error + Math.max(lastErr, tol) * err[i]) / (1 - p[i]) + 4 * Number.EPSILON * Math.abs(es[i]);
-        }
-        notes.push("expected shortfall of power tails: E|X - q| by the mid-point sum with period doubling and Richardson extrapolation");
+      let span = 0;
+      for (let i = 0; i < p.length; i++) if (Number.isFinite(xs[i])) span = Math.max(span, Math.abs(xs[i] - shape.center));
+      const sh = heavyShortfall(model, atoms, w, mean, shape, tol, span);
+      for (let i = 0; i < p.length; i++) {
+        if (!Number.isFinite(xs[i]) || p[i] >= 1) continue;
+        // ES needs E[(X - q)^+] to about 1e-8 (1 - p) relative to the scale of q
+        const r = sh(xs[i], 1e-8 * (1 - p[i]) * Math.max(1, Math.abs(xs[i]), shape.spread));
+        es[i] = xs[i] + r.value / (1 - p[i]);
+        esErr[i] = (r.error + Math.max(lastErr, tol) * err[i]) / (1 - p[i]) + 4 * Number.EPSILON * Math.abs(es[i]);
       }
+      notes.push("expected shortfall of power tails: E|X - q| by the mid-point sum with period doubling and Richardson extrapolation");
     }
   }
   return {
@@ -489,7 +481,7 @@ function tableQuantiles(
  * (e.g. Lukacs, Characteristic Functions, on absolute moments), whose mid-point sum equals E[tri_T(Y - q)] with
  * the triangle wave tri_T(u) = |u| on |u| <= T; the images beyond T give an error ~ T^{1-alpha}, removed by
  * doubling T and Richardson extrapolation with exponents j alpha + i - 1. Then E[(X-q)^+] = (E|X-q| + mu - q)/2,
- * atoms added exactly. Returns null when the continuous part carries endpoint kernels.
+ * atoms added exactly.
  */
 function heavyShortfall(
   model: CompiledModel,
@@ -498,56 +490,91 @@ function heavyShortfall(
   mean: number,
   shape: ReturnType<typeof lawShape>,
   tol: number,
-): ((q: number) => { value: number; error: number }) | null {
-  const part = makePart(model, atoms, shape.center);
-  const env = probeEnvelope(part, shape.spread);
-  let tmax = cutoffFor(env, Infinity, tol / 16);
-  if (!Number.isFinite(tmax)) tmax = env.t[env.t.length - 1];
-  let pa = 0;
-  let pm = 0;
-  for (const a of atoms) {
-    pa += a.p;
-    pm += a.p * a.x;
+  span: number,
+): (q: number, target: number) => { value: number; error: number } {
+  let part = makePart(model, atoms, shape.center);
+  let env = probeEnvelope(part, shape.spread);
+  ({ part, env } = maybeKernels(part, env, shape, { a: shape.center - 64 * shape.spread, b: shape.center + 64 * shape.spread }, tol / 16, false, []));
+  // the weights 1/t^2 make the tail beyond T at most (2/pi) int_T E/t^2 <= 2 tailCdf(T)/T: cut where that is small
+  let tmax = env.t[env.t.length - 1];
+  let truncES = (2 * env.tailCdf[env.t.length - 1]) / tmax;
+  for (let i = 0; i < env.t.length; i++) {
+    if ((2 * env.tailCdf[i]) / env.t[i] <= tol / 16) {
+      tmax = env.t[i];
+      truncES = (2 * env.tailCdf[i]) / env.t[i];
+      break;
+    }
   }
-  const muC = (mean - pm) / w;
-  const alpha = Math.min(Math.max(shape.alpha, 1.01), 2);
+  let pm = 0;
+  for (const a of atoms) pm += a.p * a.x;
+  // mean of the inverted (signed) measure: continuous part minus its kernels (gamma means at/side a/lambda)
+  let muC = (mean - pm) / w;
+  for (const k of part.kernels) for (let q = 0; q < k.b.length; q++) muC -= k.b[q] * (k.at + (k.side * (k.power + q)) / k.rate);
+  const alpha = Math.max(shape.alpha, 1.01);
   const exps: number[] = [];
   {
     const set = new Set<number>();
     for (let j = 1; j <= 10; j++) for (let i = 0; i <= 10; i++) set.add(Math.round((j * alpha + i - 1) * 1e9) / 1e9);
     exps.push(...[...set].filter((v) => v > 0).sort((u, v) => u - v));
   }
-  return (q: number) => {
+  // one period ladder for every level asked (nodes built once, on first use)
+  const T0 = Math.max(64 * shape.spread, 4 * span);
+  const cache: Nodes[] = [];
+  const nodesAt = (lev: number) => {
+    while (cache.length <= lev) {
+      const h = (2 * Math.PI) / (T0 * 2 ** cache.length);
+      cache.push(buildNodes(part, h, Math.min(Math.max(8, Math.ceil(tmax / h)), 1 << 21)));
+    }
+    return cache[lev];
+  };
+  return (q: number, target: number) => {
     const y = q - part.center;
-    const T0 = Math.max(64 * shape.spread, 4 * Math.abs(y));
     const rows: number[][] = [];
     let best = NaN;
-    let error = Infinity;
-    for (let lev = 0; lev < 12; lev++) {
+    let bestTotal = Infinity;
+    let prev = NaN;
+    let amp = 1;
+    let round = 0;
+    for (let lev = 0; lev < 8; lev++) {
       const T = T0 * 2 ** lev;
-      const h = (2 * Math.PI) / T;
-      const K = Math.min(Math.max(8, Math.ceil(tmax / h)), 1 << 23);
-      const nodes = buildNodes(part, h, K);
+      const nodes = nodesAt(lev);
+      const h = nodes.h;
+      const K = nodes.K;
       let acc = 0;
+      let abs = 0;
       for (let k = 0; k < K; k++) {
         const tk = (k + 0.5) * h;
         acc += (nodes.re[k] * Math.cos(tk * y) + nodes.im[k] * Math.sin(tk * y)) / (tk * tk);
+        abs += Math.hypot(nodes.re[k], nodes.im[k]) / (tk * tk);
       }
       const v = (part.mass * T) / 2 - (2 * h * acc) / Math.PI;
+      // V is a difference of terms of size T/2: its rounding, amplified by the extrapolation below
+      round = Math.max(round, 4 * Number.EPSILON * Math.sqrt(K) * ((part.mass * T) / 2 + (2 * h * abs) / Math.PI) + 1e-14 * (2 * h * abs) / Math.PI);
+      if (lev > 0) amp *= (2 ** exps[lev - 1] + 1) / (2 ** exps[lev - 1] - 1);
       const row = [v];
       for (let j = 1; j <= lev; j++) row.push(row[j - 1] + (row[j - 1] - rows[lev - 1][j - 1]) / (2 ** exps[j - 1] - 1));
       rows.push(row);
-      const prev = best;
-      best = row[lev];
+      const cand = row[lev];
       if (lev >= 2) {
-        error = 2 * Math.max(Math.abs(best - prev), Math.abs(best - row[lev - 1]));
-        if (error <= tol) break;
+        // the cut-off at tmax is shared by every level, so the differences cannot see it: added separately
+        const total = 2 * Math.max(Math.abs(cand - prev), Math.abs(cand - row[lev - 1])) + amp * (round + truncES);
+        if (total < bestTotal) {
+          bestTotal = total;
+          best = cand;
+        }
+        if (bestTotal <= Math.max(target, tol)) break;
       }
+      prev = cand;
     }
+    // twice the smallest total: the choice among levels is itself made on estimates
+    const error = 2 * bestTotal;
     const absC = best;
     let atomPart = 0;
     for (const a of atoms) if (a.x > q) atomPart += a.p * (a.x - q);
-    const value = atomPart + (w * (absC + muC - q)) / 2;
+    let kernelPart = 0;
+    for (const k of part.kernels) kernelPart += kernelSfIntegral(k, q);
+    // for the signed remainder of mass M: int (x - q)^+ = (int |x - q| + mu - q M) / 2
+    const value = atomPart + w * ((absC + muC - q * part.mass) / 2 + kernelPart);
     return { value, error: (w * error) / 2 + 8 * Number.EPSILON * Math.abs(absC) };
   };
 }

@@ -37,7 +37,8 @@ export interface RepeatModel { repeat: number; of: Model }
 export interface MixModel { mix: { weight: number; of: Model }[] }
 export interface CompoundModel { compound: { count: Model; each: Model } }
 export interface LatticeModel { lattice: { origin: number; step: number; p: number[] } }
-export interface SampleModel { sample: number[] }
+/** Empirical law: mass w_i / sum(w) at sample[i] (w_i = 1 when weights are absent); repeated values merge. */
+export interface SampleModel { sample: number[]; weights?: number[] }
 
 export type Model =
   | FamilyModel
@@ -205,8 +206,20 @@ export const SampleSchema = z
       .array(finite("sample value"))
       .min(1, { error: "sample needs at least one value" })
       .max(MAX_SAMPLE, { error: `sample may hold at most ${MAX_SAMPLE} values` }),
+    weights: z
+      .array(finite("sample weight").gte(0, { error: "sample weights must be >= 0" }))
+      .max(MAX_SAMPLE, { error: `weights may hold at most ${MAX_SAMPLE} values` })
+      .optional()
+      .describe("optional weight of each sample value (finite, >= 0, positive total); the law puts mass w_i / sum(w) at sample[i]"),
   })
-  .strict();
+  .strict()
+  .superRefine((m, ctx) => {
+    if (!m.weights) return;
+    if (m.weights.length !== m.sample.length)
+      ctx.addIssue({ code: "custom", message: `weights must have one entry per sample value (${m.sample.length}), got ${m.weights.length}`, path: ["weights"] });
+    else if (!(m.weights.reduce((s, w) => s + w, 0) > 0))
+      ctx.addIssue({ code: "custom", message: "weights must have a positive total", path: ["weights"] });
+  });
 
 /** The whole notation. Structural checks only; `validateModel` adds the count-law rule and the tree limits. */
 export const ModelSchema: z.ZodType<Model> = z.union([

@@ -21,6 +21,8 @@ export interface LatticeTable {
   step: number;
   p: Float64Array;
   tailMass: number;
+  /** when the table approximates a law that is not lattice (discretised severity): bound on |cdf error| vs that law */
+  cdfError?: number;
 }
 
 export interface CompiledModel {

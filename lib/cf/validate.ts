@@ -111,7 +111,7 @@ export function isCountLaw(m: Model): boolean {
     for (let k = 0; k < p.length; k++) if (p[k] > 0 && !isNat(origin + k * step)) return false;
     return true;
   }
-  if ("sample" in m) return m.sample.every(isNat);
+  if ("sample" in m) return m.sample.every((x, k) => isNat(x) || (m.weights !== undefined && m.weights[k] === 0));
   return false;
 }
 
@@ -257,7 +257,7 @@ function walk(ctx: Ctx, v: unknown, path: Path, depth: number): Model | null {
       return ctx.issues.length === before ? { lattice: { origin: l.origin as number, step: l.step as number, p: p as number[] } } : null;
     }
     case "sample": {
-      unknownKeys(ctx, v, ["sample"], path, "a sample");
+      unknownKeys(ctx, v, ["sample", "weights"], path, "a sample");
       const s = v.sample;
       if (!Array.isArray(s) || s.length === 0) {
         add(ctx, [...path, "sample"], `"sample" must be a non-empty array of finite numbers.`);
@@ -270,7 +270,26 @@ function walk(ctx: Ctx, v: unknown, path: Path, depth: number): Model | null {
       for (let k = 0; k < s.length && ctx.issues.length < 50; k++) {
         if (typeof s[k] !== "number" || !Number.isFinite(s[k])) add(ctx, [...path, "sample", k], `sample[${k}] must be a finite number, got ${describe(s[k])}.`);
       }
-      return ctx.issues.length === before ? { sample: s as number[] } : null;
+      const w = v.weights;
+      if (w === undefined) return ctx.issues.length === before ? { sample: s as number[] } : null;
+      // pointers name the field itself: <node>/weights (shape, total) and <node>/weights/k (one entry)
+      if (!Array.isArray(w)) {
+        add(ctx, [...path, "weights"], `"weights" must be an array of finite numbers >= 0, one per sample value.`);
+        return null;
+      }
+      if (w.length !== s.length) {
+        add(ctx, [...path, "weights"], `"weights" must have one entry per sample value: sample has ${s.length} values, weights has ${w.length}.`);
+        return null;
+      }
+      let total = 0;
+      for (let k = 0; k < w.length && ctx.issues.length < 50; k++) {
+        const x = w[k];
+        if (typeof x !== "number" || !Number.isFinite(x) || x < 0) add(ctx, [...path, "weights", k], `weights[${k}] must be a finite number >= 0, got ${describe(x)}.`);
+        else total += x;
+      }
+      if (ctx.issues.length === before && !(total > 0 && Number.isFinite(total)))
+        add(ctx, [...path, "weights"], total > 0 ? `"weights" sum to more than the largest finite number; scale them down.` : `"weights" sum to ${total}; at least one weight must be positive.`);
+      return ctx.issues.length === before ? { sample: s as number[], weights: w as number[] } : null;
     }
   }
 }

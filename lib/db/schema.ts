@@ -78,6 +78,8 @@ export const apiKeys = mysqlTable(
     replacesKeyId: ref("replaces_key_id"),
     /** Set on a rotated-out key: it keeps working until this instant. */
     graceEndsAt: at("grace_ends_at"),
+    /** When the admins were warned that this key expires soon (one warning per key). */
+    expiryWarnedAt: at("expiry_warned_at"),
   },
   (t) => [
     uniqueIndex("api_keys_prefix_uq").on(t.prefix),
@@ -138,6 +140,53 @@ export const savedModels = mysqlTable(
   (t) => [uniqueIndex("saved_models_org_name_uq").on(t.organizationId, t.name)],
 );
 
+/** Single-use links sent by e-mail: address verification and password reset. Only a hash of the token is kept. */
+export const EMAIL_TOKEN_PURPOSES = ["verify", "reset"] as const;
+export const emailTokens = mysqlTable(
+  "email_tokens",
+  {
+    id: id(),
+    userId: ref("user_id").notNull().references(() => users.id, { onDelete: "cascade" }),
+    purpose: mysqlEnum("purpose", EMAIL_TOKEN_PURPOSES).notNull(),
+    tokenHash: varchar("token_hash", { length: 64 }).notNull(),
+    expiresAt: at("expires_at").notNull(),
+    usedAt: at("used_at"),
+    createdAt: createdAt(),
+  },
+  (t) => [uniqueIndex("email_tokens_hash_uq").on(t.tokenHash), index("email_tokens_user_idx").on(t.userId, t.purpose)],
+);
+
+/** An admin's invitation to join an organisation with a role; the link carries a signed single-use token. */
+export const invitations = mysqlTable(
+  "invitations",
+  {
+    id: id(),
+    organizationId: ref("organization_id").notNull().references(() => organizations.id, { onDelete: "cascade" }),
+    email: varchar("email", { length: 254 }).notNull(),
+    role: mysqlEnum("role", ROLES).notNull(),
+    tokenHash: varchar("token_hash", { length: 64 }).notNull(),
+    invitedBy: ref("invited_by").references(() => users.id, { onDelete: "set null" }),
+    expiresAt: at("expires_at").notNull(),
+    acceptedAt: at("accepted_at"),
+    revokedAt: at("revoked_at"),
+    sentAt: at("sent_at").notNull(),
+    createdAt: createdAt(),
+  },
+  (t) => [uniqueIndex("invitations_token_uq").on(t.tokenHash), index("invitations_org_idx").on(t.organizationId)],
+);
+
+/** One row per organisation, month (YYYY-MM, UTC) and threshold (percent) whose e-mail has gone out. */
+export const quotaNotices = mysqlTable(
+  "quota_notices",
+  {
+    organizationId: ref("organization_id").notNull().references(() => organizations.id, { onDelete: "cascade" }),
+    month: varchar("month", { length: 7 }).notNull(),
+    threshold: smallint("threshold", { unsigned: true }).notNull(),
+    createdAt: createdAt(),
+  },
+  (t) => [primaryKey({ columns: [t.organizationId, t.month, t.threshold] })],
+);
+
 export type Organization = typeof organizations.$inferSelect;
 export type NewOrganization = typeof organizations.$inferInsert;
 export type User = typeof users.$inferSelect;
@@ -150,3 +199,5 @@ export type NewUsageEvent = typeof usageEvents.$inferInsert;
 export type AuditEvent = typeof auditEvents.$inferSelect;
 export type NewAuditEvent = typeof auditEvents.$inferInsert;
 export type SavedModel = typeof savedModels.$inferSelect;
+export type EmailToken = typeof emailTokens.$inferSelect;
+export type Invitation = typeof invitations.$inferSelect;

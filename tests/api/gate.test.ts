@@ -138,14 +138,20 @@ describe("bodies and errors", () => {
 
 describe("rate limits", () => {
   it("sends RateLimit headers, then 429 with Retry-After and a problem body once the second is spent", async () => {
-    const o = await orgWithKey({ plan: "starter" }); // 10 requests per second
-    // Start at the beginning of a fresh one-second window so all requests share it.
+    const o = await orgWithKey({ plan: "starter" }); // 10 requests per second, fixed one-second windows
+    await post("/api/v1/cf", o.secret, cfBody); // warm the key cache
     await new Promise((r) => setTimeout(r, 1000 - (Date.now() % 1000) + 5));
-    const results = await Promise.all(Array.from({ length: 14 }, () => post("/api/v1/cf", o.secret, cfBody)));
+    const start = Date.now();
+    const results = await Promise.all(Array.from({ length: 30 }, () => post("/api/v1/cf", o.secret, cfBody)));
+    const end = Date.now();
+    // On a busy machine the burst may straddle a window boundary: at most 10 successes per window touched.
+    const windows = Math.floor(end / 1000) - Math.floor(start / 1000) + 1;
     const ok = results.filter((r) => r.status === 200);
     const limited = results.filter((r) => r.status === 429);
-    expect(ok.length).toBe(10);
-    expect(limited.length).toBe(4);
+    expect(ok.length + limited.length).toBe(30);
+    expect(ok.length).toBeLessThanOrEqual(10 * windows);
+    expect(ok.length).toBeGreaterThanOrEqual(Math.min(10, 30));
+    expect(limited.length).toBeGreaterThanOrEqual(30 - 10 * windows);
     expect(ok[0].headers["ratelimit-policy"]).toBe('"per-key";q=10;w=1');
     expect(ok[0].headers.ratelimit).toMatch(/^"per-key";r=\d+;t=1$/);
     for (const r of limited) {

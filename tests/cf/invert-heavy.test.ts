@@ -47,6 +47,26 @@ const cases: Case[] = [
     points: [0.05, 0.2, 0.5, 1, 3, 10],
     grid: { from: 0.02, to: 10, count: 500 },
   },
+  {
+    // Student t, nu = 3: pdf 6 sqrt3 / (pi (3 + x^2)^2), cdf 1/2 + (atan(x/sqrt3) + sqrt3 x/(3 + x^2))/pi
+    // (Johnson, Kotz & Balakrishnan, Continuous Univariate Distributions vol. 2, ch. 28, odd nu closed form)
+    name: "student_t(3)",
+    model: compile({ family: "student_t", nu: 3 } as Model),
+    pdf: (x) => (6 * Math.sqrt(3)) / (Math.PI * (3 + x * x) ** 2),
+    cdf: (x) => 0.5 + (Math.atan(x / Math.sqrt(3)) + (Math.sqrt(3) * x) / (3 + x * x)) / Math.PI,
+    points: [-40, -5, -1, 0, 0.7, 3, 12],
+    grid: { from: -15, to: 15, count: 601 },
+  },
+  {
+    // Pareto(alpha 2.5, xm 1): pdf alpha xm^alpha / x^{alpha+1}, cdf 1 - (xm/x)^alpha (JKB vol. 1, ch. 20);
+    // numerical CF, density jump at xm
+    name: "pareto(2.5, 1)",
+    model: compile({ family: "pareto", alpha: 2.5, xm: 1 } as Model),
+    pdf: (x) => (x < 1 ? 0 : 2.5 / x ** 3.5),
+    cdf: (x) => (x < 1 ? 0 : 1 - x ** -2.5),
+    points: [0.5, 1.001, 1.3, 2, 5, 30],
+    grid: { from: 1.001, to: 20, count: 500 },
+  },
 ];
 
 describe("inversion of power-tailed laws (closed forms named per case)", () => {

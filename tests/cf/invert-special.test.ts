@@ -125,6 +125,33 @@ describe("special inputs", () => {
     c.done();
     expect(r.diagnostics.gridSize).toBeGreaterThanOrEqual(2 ** 20);
   });
+  it("overrides: a too-narrow range or a too-low frequency cut-off give larger, still honest, estimates", () => {
+    const c = new Checker();
+    const xs = [-2, -0.5, 0, 1, 2.5];
+    // standard normal references (Abramowitz & Stegun 26.2.29 via @stdlib/math-base-special-erfc)
+    const F = (x: number) => 0.5 * erfc(-x / Math.SQRT2);
+    const f = (x: number) => Math.exp(-0.5 * x * x) / Math.sqrt(2 * Math.PI);
+    for (const opts of [{ range: { from: -3, to: 3 } }, { range: { from: -4.5, to: 3.5 } }, { maxFrequency: 3 }, { maxFrequency: 5 }]) {
+      const r = density(m, { x: xs, ...opts });
+      const e = r.diagnostics.error;
+      c.that(`${JSON.stringify(opts)} estimate grows`, e.cdf > 1e-6, String(e.cdf));
+      for (let i = 0; i < xs.length; i++) {
+        c.honest(`${JSON.stringify(opts)} cdf x=${xs[i]}`, r.cdf[i], F(xs[i]), e.cdf);
+        c.honest(`${JSON.stringify(opts)} pdf x=${xs[i]}`, r.pdf![i], f(xs[i]), e.pdf);
+      }
+    }
+    c.done();
+  });
+
+  it("caller-owned output buffers are filled in place", () => {
+    const out = { pdf: new Float64Array(3), cdf: new Float64Array(3), sf: new Float64Array(3) };
+    const r = density(m, { x: [-1, 0, 1], out });
+    expect(r.cdf).toBe(out.cdf);
+    expect(r.pdf).toBe(out.pdf);
+    // standard normal cdf at 0 is 1/2 (symmetry)
+    expect(Math.abs(out.cdf[1] - 0.5)).toBeLessThan(1e-12);
+    expect(Math.abs(out.sf[0] - 0.5 * erfc(-1 / Math.SQRT2))).toBeLessThan(1e-12);
+  });
   it("points far beyond the bulk get tiny tails, not garbage", () => {
     const r = density(m, { x: [-1e6, 1e6] });
     const c = new Checker();

@@ -3,6 +3,8 @@
 import { afterAll, describe, expect, it } from "vitest";
 import { compile, convolve, convolveDirect, convolveFft, convolveTables, powerTable, panjer, CfError } from "@/lib/cf";
 import { close, record, worst } from "./model-assert";
+import { buildNode } from "@/lib/cf/compile";
+import { validateModel } from "@/lib/cf/validate";
 
 /** Exact probabilities of the sum of n fair s-sided dice: counts by integer dynamic programming / s^n. */
 function diceExact(n: number, s: number): number[] {
@@ -86,6 +88,46 @@ describe("dice and binomials vs exact rationals (absolute error <= 1e-15)", () =
     const err = maxAbsDiff(t.p, binomExact(20, 1n, 4n));
     record("lattice abs error (binomial table)", err);
     close(err, 0, { abs: 1e-15 }, "binomial sum");
+  });
+});
+
+describe("tables of laws whose P(N = 0) underflows (bulk window, saddle-point pmf of Loader 2000)", () => {
+  it("binomial(3000, 1/4) vs C(n,k) 3^(n-k) / 4^n in exact arithmetic", () => {
+    const t = compile({ family: "binomial", n: 3000, p: 0.25 }).exactLattice!(1 << 20)!;
+    const ex = binomExact(3000, 1n, 4n);
+    expect(t.origin).toBeGreaterThan(0);
+    let err = 0;
+    for (let k = 0; k < t.p.length; k++) err = Math.max(err, Math.abs(t.p[k] - ex[t.origin + k]));
+    record("lattice abs error (binomial bulk table)", err);
+    close(err, 0, { abs: 1e-15 }, "binomial(3000, 1/4)");
+    close(t.tailMass, 0, { abs: 1e-13 }, "tail mass");
+  });
+  it("poisson(1e6): mass, mean and variance (JKK ch. 4) within rounding of a 40 000-entry sum", () => {
+    const t = compile({ family: "poisson", lambda: 1e6 }).exactLattice!(1 << 20)!;
+    let s = 0;
+    let mean = 0;
+    for (let k = 0; k < t.p.length; k++) {
+      s += t.p[k];
+      mean += (t.origin + k) * t.p[k];
+    }
+    let v = 0;
+    for (let k = 0; k < t.p.length; k++) v += (t.origin + k - mean) ** 2 * t.p[k];
+    close(s, 1, { abs: 1e-13 }, "mass");
+    close(mean, 1e6, { rel: 1e-13 }, "mean");
+    close(v, 1e6, { rel: 1e-10 }, "variance");
+  });
+  it("poisson(900) saddle-point pmf vs the multiplicative recursion from the mode of poisson pmf ratios (independent route)", () => {
+    const t = compile({ family: "poisson", lambda: 900 }).exactLattice!(1 << 20)!;
+    // p_k / p_{k-1} = lambda / k (JKK ch. 4): walk from the table's own mode value outward and compare the shape
+    const m = 900 - t.origin;
+    let err = 0;
+    let up = t.p[m];
+    for (let k = m + 1; k < Math.min(t.p.length, m + 200); k++) {
+      up *= 900 / (t.origin + k);
+      err = Math.max(err, Math.abs(up - t.p[k]) / t.p[k]);
+    }
+    record("relative error (poisson pmf ratios)", err);
+    close(err, 0, { abs: 1e-13 }, "ratio consistency over 200 steps");
   });
 });
 
@@ -179,7 +221,7 @@ describe("Panjer recursion and compound tables", () => {
     return p;
   };
 
-  it("compound Poisson with geometric severity on 1, 2, ... vs the Polya-Aeppli closed form (JKK sec. 9.7, recalled from memory)", () => {
+  it("compound Poisson with geometric severity on 1, 2, ... vs the Polya-Aeppli closed form (JKK ch. 9, recalled from memory)", () => {
     const lam = 2.5;
     const th = 0.4;
     // severity P(X = j) = (1 - th) th^{j-1}, j >= 1
@@ -216,7 +258,7 @@ describe("Panjer recursion and compound tables", () => {
       [{ family: "negative_binomial", r: 2.5, p: 0.6 }, (() => { const p = [0.6 ** 2.5]; for (let k = 1; k < 120; k++) p.push((p[k - 1] * 0.4 * (2.5 + k - 1)) / k); return p; })()],
     ];
     for (const [count, pN] of counts) {
-      const t = compile({ compound: { count, each: { lattice: { origin: 0, step: 1, p: f } } } }).exactLattice!(len)!;
+      const t = compile({ compound: { count, each: { lattice: { origin: 0, step: 1, p: f } } } }).exactLattice!(4096)!;
       const want = bruteCompound(pN, f, len);
       const err = maxAbsDiff(t.p.subarray(0, len), want);
       record("Panjer abs error (vs brute force)", err);
@@ -238,7 +280,33 @@ describe("Panjer recursion and compound tables", () => {
     close(t.p[2], Math.exp(-1) * 0.5, { rel: 1e-15 }, "P(S=1) = P(N=1) P(X=1)");
     let mean = 0;
     for (let k = 0; k < t.p.length; k++) mean += t.p[k] * k * 0.5;
-    close(mean, 1.25, { rel: 1e-13 }, "mean = E N E X (Loss Models eq. 9.2)");
+    close(mean, 1.25, { rel: 1e-13 }, "mean = E N E X (Loss Models, aggregate loss models chapter)");
+  });
+  it("count poisson(1) + poisson(2) (no Panjer route) equals the Panjer table of poisson(3) (Poisson additivity, JKK ch. 4)", () => {
+    const sev = { lattice: { origin: 1, step: 1, p: [0.5, 0.3, 0.2] } };
+    const a = compile({ compound: { count: { sum: [{ family: "poisson", lambda: 1 }, { family: "poisson", lambda: 2 }] }, each: sev } }).exactLattice!(200)!;
+    const b = compile({ compound: { count: { family: "poisson", lambda: 3 }, each: sev } }).exactLattice!(200)!;
+    const err = maxAbsDiff(a.p.subarray(0, 100), b.p.subarray(0, 100));
+    record("Panjer abs error (vs brute force)", err);
+    close(err, 0, { abs: 1e-15 }, "two routes");
+  });
+  it("large expected counts (P(S=0) underflows): split-and-power route matches the convolution of two direct Panjer tables and the moments", () => {
+    const sev = { lattice: { origin: 1, step: 1, p: [0.5, 0.3, 0.2] } };
+    const big = compile({ compound: { count: { family: "poisson", lambda: 800 }, each: sev } }).exactLattice!(1 << 14)!;
+    const a = compile({ compound: { count: { family: "poisson", lambda: 300 }, each: sev } }).exactLattice!(1 << 14)!;
+    const b = compile({ compound: { count: { family: "poisson", lambda: 500 }, each: sev } }).exactLattice!(1 << 14)!;
+    // compound Poisson(300) + compound Poisson(500) = compound Poisson(800) (Loss Models, aggregate loss chapter)
+    const two = convolveTables([a, b], 1 << 14);
+    const err = maxAbsDiff(big.p.subarray(0, 3000), two.p.subarray(0, 3000));
+    record("Panjer abs error (split route vs two direct tables)", err);
+    close(err, 0, { abs: 1e-15 }, "lambda 800 two routes");
+    // E S = lambda E X, Var S = lambda E X^2 for compound Poisson (Loss Models, aggregate loss chapter)
+    let mean = 0;
+    let m2 = 0;
+    for (let i = 0; i < big.p.length; i++) mean += i * big.p[i];
+    for (let i = 0; i < big.p.length; i++) m2 += (i - mean) ** 2 * big.p[i];
+    close(mean, 800 * 1.7, { rel: 1e-12 }, "mean");
+    close(m2, 800 * 3.5, { rel: 1e-10 }, "variance");
   });
   it("point count gives the n-fold power; mixture counts use the short-table route", () => {
     const die = { lattice: { origin: 1, step: 1, p: new Array(6).fill(1 / 6) } };
@@ -255,6 +323,30 @@ describe("Panjer recursion and compound tables", () => {
   });
 });
 
+describe("tables through operators", () => {
+  it("mixture of lattices on a common lattice: weights add pointwise (common practice)", () => {
+    const t = compile({
+      mix: [
+        { weight: 0.25, of: { lattice: { origin: 0, step: 0.5, p: [0.5, 0.5] } } },
+        { weight: 0.75, of: { family: "bernoulli", p: 0.5 } },
+      ],
+    }).exactLattice!(100)!;
+    expect([t.origin, t.step]).toEqual([0, 0.5]);
+    const want = [0.125 + 0.375, 0.125, 0.375];
+    close(maxAbsDiff(t.p, want), 0, { abs: 1e-16 }, "mixture table");
+  });
+  it("negative scale reverses the table; shift moves the origin", () => {
+    const t = compile({ shift: 10, of: { scale: -2, of: { family: "binomial", n: 3, p: 0.25 } } }).exactLattice!(100)!;
+    expect([t.origin, t.step]).toEqual([4, 2]);
+    close(maxAbsDiff(t.p, binomExact(3, 1n, 4n).reverse()), 0, { abs: 1e-16 }, "reversed binomial");
+  });
+  it("sample on a lattice is tabulated with empirical frequencies", () => {
+    const t = compile({ sample: [2, 0.5, 2, 3.5, 2] }).exactLattice!(100)!;
+    expect([t.origin, t.step]).toEqual([0.5, 1.5]);
+    close(maxAbsDiff(t.p, [0.2, 0.6, 0.2]), 0, { abs: 1e-16 }, "empirical table");
+  });
+});
+
 describe("special inputs", () => {
   it("empty tables and bad powers are rejected; incommensurate steps are not a lattice", () => {
     expect(() => convolve(new Float64Array(0), Float64Array.of(1))).toThrow(CfError);
@@ -266,17 +358,23 @@ describe("special inputs", () => {
       ]),
     ).toThrow(/not commensurate/);
   });
-  it("truncation reports the dropped mass", () => {
-    const t = compile({ family: "poisson", lambda: 10 }).exactLattice!(10)!;
+  it("truncation reports the dropped mass; a table dropping more than 1e-11 is not offered (the CF route does better)", () => {
+    const node = buildNode(validateModel({ family: "poisson", lambda: 10 }));
+    const t = node.table!(10)!;
     expect(t.p.length).toBe(10);
     let s = 0;
     for (const v of t.p) s += v;
     close(t.tailMass, 1 - s, { abs: 1e-14 }, "tail mass = 1 - kept mass");
     expect(t.tailMass).toBeGreaterThan(0.4);
-    const d = compile({ repeat: 10, of: { lattice: { origin: 1, step: 1, p: new Array(6).fill(1 / 6) } } }).exactLattice!(20)!;
+    expect(compile({ family: "poisson", lambda: 10 }).exactLattice!(10)).toBeNull();
+    const die = { origin: 1, step: 1, p: new Float64Array(6).fill(1 / 6), tailMass: 0 };
+    const d = convolveTables([die, die, die], 5);
+    expect(d.p.length).toBe(5);
     let s2 = 0;
     for (const v of d.p) s2 += v;
-    close(d.tailMass, 1 - s2, { abs: 1e-14 }, "tail mass of a truncated power");
+    close(d.tailMass, 1 - s2, { abs: 1e-14 }, "tail mass of a truncated convolution");
+    // the bulk of 10^6 dice lies beyond 2^20 steps from the origin: no table, and no time spent building one
+    expect(compile({ repeat: 1e6, of: { lattice: { origin: 1, step: 1, p: new Array(6).fill(1 / 6) } } }).exactLattice!(1 << 20)).toBeNull();
   });
   it("continuous and non-lattice models have no exact table", () => {
     expect(compile({ family: "normal", mu: 0, sigma: 1 }).exactLattice).toBeUndefined();

@@ -192,13 +192,43 @@ describe("classification (LawKind)", () => {
       });
     }
   });
-  it("compound Poisson of a continuous severity has an atom exp(-lambda) at the shifted zero (Loss Models sec. 9.3)", () => {
+  it("compound Poisson of a continuous severity has an atom exp(-lambda) at the shifted zero (Loss Models, aggregate loss models chapter)", () => {
     const c = compile({ shift: 5, of: { compound: { count: { family: "poisson", lambda: 1.5 }, each: { family: "gamma", shape: 2, rate: 1 } } } });
     expect(c.kind.type).toBe("mixed");
     const atoms = (c.kind as { atoms: { x: number; p: number }[] }).atoms;
     expect(atoms.length).toBe(1);
     close(atoms[0].x, 5, { abs: 0 }, "atom position");
     close(atoms[0].p, Math.exp(-1.5), { rel: 1e-15 }, "P(N=0)");
+  });
+  it("severity with an atom at 0 (zero claims): the compound's atom at 0 has mass P_N(c) (Loss Models, aggregate loss chapter)", () => {
+    const c = compile({
+      compound: {
+        count: { family: "poisson", lambda: 2 },
+        each: { mix: [{ weight: 0.3, of: { family: "point", at: 0 } }, { weight: 0.7, of: { family: "exponential", rate: 1 } }] },
+      },
+    });
+    const atoms = (c.kind as { atoms: { x: number; p: number }[] }).atoms;
+    expect(c.kind.type).toBe("mixed");
+    expect(atoms.length).toBe(1);
+    // P_N(z) = exp(lambda (z - 1)) at z = 0.3
+    close(atoms[0].p, Math.exp(2 * (0.3 - 1)), { rel: 1e-15 }, "P(S = 0)");
+    expect(c.notes.join(" ")).not.toMatch(/not every atom/);
+  });
+  it("infinite-lattice components of mixed laws list their atoms from the pmf (JKK ch. 4 Poisson pmf)", () => {
+    const a = compile({ mix: [{ weight: 0.4, of: { family: "poisson", lambda: 2 } }, { weight: 0.6, of: N01 }] });
+    const atoms = (a.kind as { atoms: { x: number; p: number }[] }).atoms;
+    let f = 1;
+    for (let k = 0; k < 10; k++) {
+      if (k > 0) f *= k;
+      close(atoms[k].x, k, { abs: 0 }, `atom ${k} x`);
+      close(atoms[k].p, (0.4 * Math.exp(-2) * 2 ** k) / f, { rel: 1e-14 }, `atom ${k} mass`);
+    }
+    const total = atoms.reduce((s, x) => s + x.p, 0);
+    close(total, 0.4, { abs: 1e-15 }, "total atom mass");
+    const b = compile({ sum: [{ family: "poisson", lambda: 1 }, { compound: { count: { family: "poisson", lambda: 1 }, each: { family: "exponential", rate: 1 } } }] });
+    const bt = (b.kind as { atoms: { x: number; p: number }[] }).atoms;
+    close(bt[3].p, (Math.exp(-1) / 6) * Math.exp(-1), { rel: 1e-14 }, "P(S = 3) = P(N1 = 3) P(compound = 0)");
+    expect(b.notes.join(" ")).not.toMatch(/not every atom/);
   });
   it("support, tails and location hints", () => {
     const p = compile({ family: "pareto", alpha: 1.5, xm: 2 });

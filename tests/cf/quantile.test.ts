@@ -147,6 +147,46 @@ describe("quantiles and expected shortfall of continuous laws", () => {
     c.that("note says why", r.diagnostics.notes.some((n) => n.includes("does not exist")));
     c.done();
   });
+
+  it("student_t(3): q from the closed-form cdf F = 1/2 + (atan(x/sqrt3) + sqrt3 x/(3+x^2))/pi (JKB vol. 2, ch. 28), ES = (nu + q^2) f(q) / ((nu-1)(1-p)) (integrating x f(x): d/dx[(nu+x^2) f] = -(nu-1) x f)", () => {
+    const F = (x: number) => 0.5 + (Math.atan(x / Math.sqrt(3)) + (Math.sqrt(3) * x) / (3 + x * x)) / Math.PI;
+    const f = (x: number) => (6 * Math.sqrt(3)) / (Math.PI * (3 + x * x) ** 2);
+    const ps = [0.001, 0.3, 0.9, 0.99, 0.999, 1 - 1e-6];
+    const r = quantiles(compile({ family: "student_t", nu: 3 } as Model), ps, { expectedShortfall: true });
+    const c = new Checker();
+    for (let i = 0; i < ps.length; i++) {
+      let lo = -1e4;
+      let hi = 1e4;
+      for (let k = 0; k < 300; k++) {
+        const mid = 0.5 * (lo + hi);
+        if (F(mid) < ps[i]) lo = mid;
+        else hi = mid;
+      }
+      const q = 0.5 * (lo + hi);
+      const es = ((3 + q * q) * f(q)) / (2 * (1 - ps[i]));
+      c.rel(`q(${ps[i]})`, r.x[i], q, 1e-8);
+      c.honest(`q(${ps[i]})`, r.x[i], q, r.diagnostics.quantileError[i] + 1e-15 * Math.abs(q));
+      c.rel(`ES(${ps[i]})`, r.expectedShortfall![i], es, 1e-6);
+      c.honest(`ES(${ps[i]})`, r.expectedShortfall![i], es, r.diagnostics.expectedShortfallError![i] + 1e-15 * Math.abs(es));
+    }
+    c.done();
+  });
+
+  it("pareto(2.5, xm 1): q_p = xm (1-p)^{-1/alpha}, ES = alpha q_p/(alpha-1) (closed form: integrate x f(x) over the Pareto tail; the pair also appears in Loss Models, appendix A, recalled from memory)", () => {
+    const ps = [0.01, 0.5, 0.99];
+    const r = quantiles(compile({ family: "pareto", alpha: 2.5, xm: 1 } as Model), ps, { expectedShortfall: true });
+    const c = new Checker();
+    for (let i = 0; i < ps.length; i++) {
+      const q = Math.pow(1 - ps[i], -1 / 2.5);
+      const es = (q * 2.5) / 1.5;
+      c.rel(`q(${ps[i]})`, r.x[i], q, 1e-8);
+      c.honest(`q(${ps[i]})`, r.x[i], q, r.diagnostics.quantileError[i] + 1e-15 * q);
+      c.rel(`ES(${ps[i]})`, r.expectedShortfall![i], es, 1e-6);
+      c.honest(`ES(${ps[i]})`, r.expectedShortfall![i], es, r.diagnostics.expectedShortfallError![i] + 1e-15 * es);
+    }
+    c.done();
+    // the Pareto CF is itself a quadrature per point (the slow part): allow for a loaded machine
+  }, 120_000);
 });
 
 describe("quantiles of lattice and atomic laws", () => {

@@ -17,7 +17,8 @@ const nodes: [string, string][] = [
   ['{ "mix": [{ "weight": w, "of": model }, ...] }', "A mixture; weights positive and summing to 1."],
   ['{ "compound": { "count": model, "each": model } }', "A random sum: count copies of each, count a law on 0, 1, 2, …"],
   ['{ "lattice": { "origin": x0, "step": h, "p": [...] } }', "A tabulated law on x0 + k h; p non-negative, summing to 1."],
-  ['{ "sample": [...] }', "The empirical law of observed values."],
+  ['{ "sample": [...], "weights"?: [...] }', "The empirical law of observed values, optionally weighted (a frequency table)."],
+  ['{ "dataset": "ds_…", "version"?: n }', "The empirical law of a dataset uploaded in the portal (the latest version when omitted)."],
 ];
 
 export default function ModelsGuide() {

@@ -9,7 +9,7 @@ function base(p: Partial<Node> & Pick<Node, "logCf" | "cumulants" | "location" |
   return { kind: CONT, momentIndex: ALL, tails: { left: ALL, right: ALL }, nodes: 1, notes: [], ...p };
 }
 
-/** Normal: log phi = i mu t - sigma^2 t^2 / 2 (Johnson, Kotz & Balakrishnan vol. 1, eq. 13.9). */
+/** Normal: log phi = i mu t - sigma^2 t^2 / 2 (Johnson, Kotz & Balakrishnan vol. 1, ch. 13). */
 export function normal(mu: number, sigma: number): Node {
   const s2 = sigma * sigma;
   return base({
@@ -27,7 +27,7 @@ export function normal(mu: number, sigma: number): Node {
   });
 }
 
-/** Cauchy: log phi = i loc t - scale |t| (Johnson, Kotz & Balakrishnan vol. 1, ch. 16, eq. 16.3). */
+/** Cauchy: log phi = i loc t - scale |t| (Johnson, Kotz & Balakrishnan vol. 1, ch. 16). */
 export function cauchy(loc: number, scale: number): Node {
   return base({
     logCf(t, re, im) {
@@ -46,7 +46,7 @@ export function cauchy(loc: number, scale: number): Node {
 }
 
 /**
- * Uniform(a, b): phi = e^{i c t} sin(h t)/(h t), c = (a+b)/2, h = (b-a)/2 (JKB vol. 2, eq. 26.6); the phase steps by
+ * Uniform(a, b): phi = e^{i c t} sin(h t)/(h t), c = (a+b)/2, h = (b-a)/2 (JKB vol. 2, ch. 26); the phase steps by
  * pi at each zero of sin, counted from t = 0, so that the branch is the limit of continuous branches.
  */
 export function uniform(a: number, b: number): Node {
@@ -64,7 +64,7 @@ export function uniform(a: number, b: number): Node {
         im[k] = c * x + (x < 0 ? -1 : 1) * Math.PI * Math.floor(ay / Math.PI);
       }
     },
-    // kappa_n = B_n (b-a)^n / n for n >= 2 (Kendall & Stuart vol. 1, ex. 3.13)
+    // kappa_n = B_n (b-a)^n / n for n >= 2 (Kendall & Stuart vol. 1, ch. 3, recalled from memory)
     cumulants: (n) => Array.from({ length: n }, (_, i) => (i === 0 ? c : (B[i + 1] * w ** (i + 1)) / (i + 1))),
     location: c,
     scale: w / Math.sqrt(12),
@@ -72,7 +72,7 @@ export function uniform(a: number, b: number): Node {
   });
 }
 
-/** Gamma(shape, rate): log phi = -shape log(1 - i t / rate) (JKB vol. 1, eq. 17.10); principal log is continuous. */
+/** Gamma(shape, rate): log phi = -shape log(1 - i t / rate) (JKB vol. 1, ch. 17); principal log is continuous. */
 export function gammaLaw(shape: number, rate: number): Node {
   return base({
     logCf(t, re, im) {
@@ -82,7 +82,7 @@ export function gammaLaw(shape: number, rate: number): Node {
         im[k] = -shape * Math.atan(y);
       }
     },
-    // kappa_n = shape (n-1)! / rate^n (JKB vol. 1, eq. 17.12)
+    // kappa_n = shape (n-1)! / rate^n (JKB vol. 1, ch. 17)
     cumulants: (n) => Array.from({ length: n }, (_, i) => (shape * factorial(i)) / rate ** (i + 1)),
     location: shape / rate,
     scale: Math.sqrt(shape) / rate,
@@ -90,7 +90,7 @@ export function gammaLaw(shape: number, rate: number): Node {
   });
 }
 
-/** Laplace(loc, b): phi = e^{i loc t} / (1 + b^2 t^2) (JKB vol. 2, eq. 24.8). */
+/** Laplace(loc, b): phi = e^{i loc t} / (1 + b^2 t^2) (JKB vol. 2, ch. 24). */
 export function laplace(loc: number, b: number): Node {
   return base({
     logCf(t, re, im) {
@@ -127,7 +127,7 @@ function logXOverSinh(x: number): number {
   return Math.log(2 * a) - a - Math.log1p(-Math.exp(-2 * a));
 }
 
-/** Logistic(loc, s): phi = e^{i loc t} pi s t / sinh(pi s t) (JKB vol. 2, eq. 23.9). */
+/** Logistic(loc, s): phi = e^{i loc t} pi s t / sinh(pi s t) (JKB vol. 2, ch. 23). */
 export function logistic(loc: number, s: number): Node {
   return base({
     logCf(t, re, im) {
@@ -136,7 +136,7 @@ export function logistic(loc: number, s: number): Node {
         im[k] = loc * t[k];
       }
     },
-    // kappa_{2n} = |B_{2n}| 2^{2n} (pi s)^{2n} / (2n) (from log(sinh x / x) = sum 2^{2n} B_{2n} x^{2n} / (2n (2n)!), A&S 4.5.64)
+    // kappa_{2n} = |B_{2n}| 2^{2n} (pi s)^{2n} / (2n) (from log(sinh x / x) = sum 2^{2n} B_{2n} x^{2n} / (2n (2n)!), via Bernoulli numbers, A&S ch. 4 and ch. 23, recalled from memory)
     cumulants: (n) =>
       Array.from({ length: n }, (_, i) => {
         const m = i + 1;
@@ -152,7 +152,7 @@ export function logistic(loc: number, s: number): Node {
 
 /**
  * Variance-gamma: log phi = i loc t - (1/nu) log(1 - i theta nu t + sigma^2 nu t^2 / 2) (Madan, Carr & Chang 1998,
- * eq. 6); the argument has real part >= 1, so the principal log is the continuous branch.
+ * Eur. Finance Review 2, recalled from memory); the argument has real part >= 1, so the principal log is the continuous branch.
  */
 export function varianceGamma(sigma: number, nu: number, theta: number, loc: number): Node {
   const s2 = sigma * sigma;
@@ -193,7 +193,7 @@ export function varianceGamma(sigma: number, nu: number, theta: number, loc: num
 
 /**
  * Normal inverse Gaussian: log phi = i mu t + delta (gamma - sqrt(alpha^2 - (beta + i t)^2)), gamma = sqrt(alpha^2 -
- * beta^2) (Barndorff-Nielsen 1997, eq. 2.3); gamma - s is formed as (gamma^2 - s^2)/(gamma + s) to avoid cancellation.
+ * beta^2) (Barndorff-Nielsen 1997, Scand. J. Statist. 24, sec. 2, recalled from memory); gamma - s is formed as (gamma^2 - s^2)/(gamma + s) to avoid cancellation.
  */
 export function nig(alpha: number, beta: number, delta: number, mu: number): Node {
   const g = Math.sqrt(alpha * alpha - beta * beta);
@@ -243,7 +243,7 @@ export function studentT(nu: number, loc: number, scale: number): Node {
   const half = nu / 2;
   const c0 = (1 - half) * Math.LN2 - lgamma(half);
   const sq = Math.sqrt(nu) * scale;
-  // E T^{2k} = nu^k prod_{j=1}^k (2j-1)/(nu-2j) for 2k < nu (JKB vol. 2, eq. 28.9)
+  // E T^{2k} = nu^k prod_{j=1}^k (2j-1)/(nu-2j) for 2k < nu (JKB vol. 2, ch. 28)
   const raw = (m: number): number => {
     if (m % 2 === 1) return 0;
     let v = 1;
@@ -251,7 +251,7 @@ export function studentT(nu: number, loc: number, scale: number): Node {
     return v;
   };
   // For large nu the Bessel form cancels terms of size nu log nu; use the normal variance mixture instead:
-  // phi = E exp(-z^2 / (2V)), V ~ chi^2_nu (JKB vol. 2, eq. 28.1), as a ratio of two trapezoidal sums in y = log V,
+  // phi = E exp(-z^2 / (2V)), V ~ chi^2_nu (JKB vol. 2, ch. 28), as a ratio of two trapezoidal sums in y = log V,
   // each taken about its own peak so that only O(1) quantities are added.
   const peakSum = (f: (u: number) => number, w: number) => {
     const h = w / 4;

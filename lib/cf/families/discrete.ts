@@ -1,4 +1,4 @@
-import { eulerianRow, lgamma } from "./special";
+import { binomialPmf, eulerianRow, negativeBinomialPmf, poissonPmf } from "./special";
 import type { Node } from "../node";
 import { nearestZero, unwrapFrom } from "../complex";
 import type { LatticeTable } from "../types";
@@ -68,7 +68,7 @@ function tabulate(maxLength: number, first: number, p0: number, ratio: (k: numbe
 }
 
 /**
- * Binomial(n, p): log phi = n log(1 - p + p e^{it}) (Johnson, Kemp & Kotz, Univariate Discrete Distributions, eq. 3.5).
+ * Binomial(n, p): log phi = n log(1 - p + p e^{it}) (Johnson, Kemp & Kotz, Univariate Discrete Distributions, ch. 3).
  * For p <= 1/2 the factor has Re > 0 on |z| = 1; for p > 1/2 it is written e^{it}(p + (1-p)e^{-it}), again with
  * Re > 0, which gives the continuous branch in closed form.
  */
@@ -81,7 +81,7 @@ export function binomial(n: number, p: number): Node {
     im[outK] = Math.atan2(ci, 1 + cr) * n + si;
   };
   const cumulants = (m: number) => {
-    // c_1 = p, c_{j+1} = p(1-p) dc_j/dp (JKK eq. 3.13), as polynomials in p
+    // c_1 = p, c_{j+1} = p(1-p) dc_j/dp (JKK ch. 3), as polynomials in p
     let poly = [0, 1];
     const out: number[] = [];
     for (let j = 1; j <= m; j++) {
@@ -145,28 +145,39 @@ function binomialAtoms(n: number, p: number) {
   return Array.from(t.p, (v, k) => ({ x: k, p: v }));
 }
 
+/**
+ * Table of a law on 0, 1, 2, ... over its bulk [mean - 20 sd, mean + 20 sd] (beyond it the mass is far below 1e-40
+ * for these near-Gaussian laws) from an accurate pmf, for laws whose P(N = 0) underflows; the origin is the first
+ * index kept and tailMass = 1 - kept mass (both ends).
+ */
+function bulkTable(mean: number, sd: number, top: number, maxLength: number, pmf: (k: number) => number): LatticeTable {
+  const k0 = Math.max(0, Math.floor(mean - 20 * sd - 40));
+  const k1 = Math.min(top, Math.ceil(mean + 20 * sd + 40), k0 + maxLength - 1);
+  const out = new Float64Array(k1 - k0 + 1);
+  let s = 0;
+  for (let k = k0; k <= k1; k++) {
+    out[k - k0] = pmf(k);
+    s += out[k - k0];
+  }
+  return { origin: k0, step: 1, p: out, tailMass: Math.max(0, 1 - s) };
+}
+
 /** Binomial pmf: multiplicative recursion from k = 0 when (1-p)^n is representable, else log-gamma form. */
 function binomialTable(n: number, p: number, maxLength: number): LatticeTable {
   const q = 1 - p;
+  const start = q ** n;
+  if (!(start > 1e-280 && n <= 1e5)) return bulkTable(n * p, Math.sqrt(n * p * q), n, maxLength, (k) => binomialPmf(k, n, p));
   const len = Math.min(n + 1, maxLength);
   const out = new Float64Array(len);
-  const start = q ** n;
-  if (start > 1e-280 && n <= 1e5) {
-    out[0] = start;
-    const r = p / q;
-    for (let k = 1; k < len; k++) out[k] = (out[k - 1] * (n - k + 1) * r) / k;
-  } else {
-    const lp = Math.log(p);
-    const lq = Math.log1p(-p);
-    const ln = lgamma(n + 1);
-    for (let k = 0; k < len; k++) out[k] = Math.exp(ln - lgamma(k + 1) - lgamma(n - k + 1) + k * lp + (n - k) * lq);
-  }
+  out[0] = start;
+  const r = p / q;
+  for (let k = 1; k < len; k++) out[k] = (out[k - 1] * (n - k + 1) * r) / k;
   let s = 0;
   for (let k = 0; k < len; k++) s += out[k];
   return { origin: 0, step: 1, p: out, tailMass: len === n + 1 ? 0 : Math.max(0, 1 - s) };
 }
 
-/** Poisson(lambda): log phi = lambda (e^{it} - 1) (JKK eq. 4.9); entire, so the branch is continuous as written. */
+/** Poisson(lambda): log phi = lambda (e^{it} - 1) (JKK ch. 4); entire, so the branch is continuous as written. */
 export function poisson(lambda: number): Node {
   return {
     kind: lambda === 0 ? { type: "lattice", origin: 0, step: 0, atoms: [{ x: 0, p: 1 }] } : { type: "lattice", origin: 0, step: 1, atoms: null },
@@ -188,15 +199,8 @@ export function poisson(lambda: number): Node {
     table(maxLength) {
       if (lambda === 0) return { origin: 0, step: 1, p: Float64Array.of(1), tailMass: 0 };
       if (lambda < 700) return tabulate(maxLength, Math.ceil(lambda), Math.exp(-lambda), (k) => lambda / k);
-      // large mean: log form, exp(k log lambda - lambda - log k!)
-      const len = Math.min(maxLength, Math.ceil(lambda + 40 * Math.sqrt(lambda) + 40));
-      const out = new Float64Array(len);
-      let s = 0;
-      for (let k = 0; k < len; k++) {
-        out[k] = Math.exp(k * Math.log(lambda) - lambda - lgamma(k + 1));
-        s += out[k];
-      }
-      return { origin: 0, step: 1, p: out, tailMass: Math.max(0, 1 - s) };
+      // large mean: saddle-point pmf over the bulk
+      return bulkTable(lambda, Math.sqrt(lambda), Infinity, maxLength, (k) => poissonPmf(k, lambda));
     },
     countCgf(wr, wi, re, im) {
       for (let k = 0; k < wr.length; k++) {
@@ -206,12 +210,13 @@ export function poisson(lambda: number): Node {
       }
     },
     panjer: { a: 0, b: lambda, p0: Math.exp(-lambda) },
+    divide: (m) => ({ a: 0, b: lambda / m, pgf: (z) => Math.exp((lambda / m) * (z - 1)) }),
     p0: Math.exp(-lambda),
   };
 }
 
 /**
- * Negative binomial (failures before the r-th success): log phi = r (log p - log(1 - (1-p) e^{it})) (JKK eq. 5.8);
+ * Negative binomial (failures before the r-th success): log phi = r (log p - log(1 - (1-p) e^{it})) (JKK ch. 5);
  * Re(1 - (1-p) z) >= p > 0 for |z| <= 1, so the principal log is continuous.
  */
 export function negativeBinomial(r: number, p: number): Node {
@@ -249,15 +254,7 @@ export function negativeBinomial(r: number, p: number): Node {
       if (single) return { origin: 0, step: 1, p: Float64Array.of(1), tailMass: 0 };
       const start = Math.exp(r * lp);
       if (start > 1e-280) return tabulate(maxLength, Math.ceil((r * q) / p), start, (k) => (q * (r + k - 1)) / k);
-      const len = Math.min(maxLength, Math.ceil((r * q) / p + (40 * Math.sqrt(r * q)) / p + 40));
-      const out = new Float64Array(len);
-      let s = 0;
-      const c = -lgamma(r);
-      for (let k = 0; k < len; k++) {
-        out[k] = Math.exp(c + lgamma(r + k) - lgamma(k + 1) + r * lp + k * Math.log(q));
-        s += out[k];
-      }
-      return { origin: 0, step: 1, p: out, tailMass: Math.max(0, 1 - s) };
+      return bulkTable((r * q) / p, Math.sqrt(r * q) / p, Infinity, maxLength, (k) => negativeBinomialPmf(k, r, p));
     },
     countCgf(wr, wi, re, im) {
       for (let k = 0; k < wr.length; k++) {
@@ -266,6 +263,7 @@ export function negativeBinomial(r: number, p: number): Node {
       }
     },
     panjer: { a: q, b: (r - 1) * q, p0: p ** r },
+    divide: (m) => ({ a: q, b: (r / m - 1) * q, pgf: (z) => Math.exp((r / m) * (lp - Math.log1p(-q * z))) }),
     p0: p ** r,
   };
 }

@@ -134,7 +134,7 @@ export const FAMILY_SPECS: Record<FamilyName, FamilySpec> = {
     moments: "all orders",
     cfMethod: "closed form",
     discrete: false,
-    source: "Abramowitz & Stegun 26.4; Johnson, Kotz & Balakrishnan vol. 1, ch. 18",
+    source: "Johnson, Kotz & Balakrishnan vol. 1, ch. 18",
   },
   laplace: {
     name: "laplace",
@@ -209,7 +209,7 @@ export const FAMILY_SPECS: Record<FamilyName, FamilySpec> = {
     moments: "all orders",
     cfMethod: "closed form",
     discrete: false,
-    source: "Madan, Carr & Chang (1998), Eur. Finance Review 2, eq. (6)",
+    source: "Madan, Carr & Chang (1998), Eur. Finance Review 2 (recalled from memory)",
   },
   nig: {
     name: "nig",

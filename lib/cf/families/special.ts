@@ -102,13 +102,16 @@ export function logBesselKScaled(nu: number, x: number): number {
   nu = Math.abs(nu);
   if (!(x > 0)) return x === 0 ? Infinity : NaN;
   if (x === Infinity) return -Infinity;
+  const m = nu - 0.5;
+  if (Number.isInteger(m) && m <= 60) return logBesselKHalf(m, x);
   // integrand g(u) = -x (cosh u - 1) + log cosh(nu u); find its peak u* (g' = -x sinh u + nu tanh(nu u) = 0)
   let lo = 0;
   let hi = Math.max(1, Math.asinh(nu / x) + 1);
   const dg = (u: number) => -x * Math.sinh(u) + nu * Math.tanh(nu * u);
   let peak = 0;
   if (nu * nu > x) {
-    for (let i = 0; i < 100; i++) {
+    // the peak only centres the grid and scales the sum, so a few digits suffice
+    for (let i = 0; i < 40; i++) {
       const mid = 0.5 * (lo + hi);
       if (dg(mid) > 0) lo = mid;
       else hi = mid;
@@ -145,7 +148,84 @@ export function logBesselKScaled(nu: number, x: number): number {
   return gmax + Math.log(s * h);
 }
 
+/**
+ * Half-integer order: K_{m+1/2}(x) = sqrt(pi/(2x)) e^{-x} sum_{k=0}^m (m+k)! / (k! (m-k)!) (2x)^{-k}
+ * (A&S sec. 10.2, modified spherical Bessel functions); a sum of positive terms, evaluated in scaled form for small x.
+ */
+function logBesselKHalf(m: number, x: number): number {
+  const c: number[] = [];
+  for (let k = 0; k <= m; k++) c.push(Math.exp(lgammaInt(m + k + 1) - lgammaInt(k + 1) - lgammaInt(m - k + 1)));
+  const y = 1 / (2 * x);
+  let s = 0;
+  let lead = 0;
+  if (y <= 1) {
+    for (let k = m; k >= 0; k--) s = s * y + c[k];
+  } else {
+    // y^m sum_k c_k y^{k-m}, Horner in 1/y
+    const iy = 1 / y;
+    for (let k = 0; k <= m; k++) s = s * iy + c[k];
+    lead = m * Math.log(y);
+  }
+  return 0.5 * Math.log(Math.PI / (2 * x)) + lead + Math.log(s);
+}
+
+function lgammaInt(n: number): number {
+  let f = 0;
+  for (let k = 2; k < n; k++) f += Math.log(k);
+  return f;
+}
+
 /** K_nu(x) for x > 0 (may under/overflow; use logBesselKScaled in products). */
 export function besselK(nu: number, x: number): number {
   return Math.exp(logBesselKScaled(nu, x) - x);
+}
+
+const LN_SQRT_2PI = 0.9189385332046728;
+
+/** stirlerr(n) = log Gamma(n+1) - (n + 1/2) log n + n - log sqrt(2 pi) (Loader 2000, "Fast and accurate computation of
+ *  binomial probabilities"; Stirling series A&S 6.1.40 for n > 15). */
+export function stirlerr(n: number): number {
+  if (n <= 15) return lgamma(n + 1) - (n + 0.5) * Math.log(n) + n - LN_SQRT_2PI;
+  const nn = n * n;
+  // 1/12n - 1/360n^3 + 1/1260n^5 - 1/1680n^7 + 1/1188n^9
+  return (1 / 12 - (1 / 360 - (1 / 1260 - (1 / 1680 - 1 / (1188 * nn)) / nn) / nn) / nn) / n;
+}
+
+/** bd0(x, m) = x log(x/m) + m - x, computed without cancellation near x = m (Loader 2000). */
+export function bd0(x: number, m: number): number {
+  if (Math.abs(x - m) < 0.1 * (x + m)) {
+    const v = (x - m) / (x + m);
+    let s = (x - m) * v;
+    let ej = 2 * x * v;
+    const v2 = v * v;
+    for (let j = 1; j < 1000; j++) {
+      ej *= v2;
+      const s1 = s + ej / (2 * j + 1);
+      if (s1 === s) return s1;
+      s = s1;
+    }
+    return s;
+  }
+  return x * Math.log(x / m) + m - x;
+}
+
+/** Poisson pmf by the saddle-point form exp(-stirlerr(k) - bd0(k, lambda)) / sqrt(2 pi k) (Loader 2000). */
+export function poissonPmf(k: number, lambda: number): number {
+  if (k === 0) return Math.exp(-lambda);
+  return Math.exp(-stirlerr(k) - bd0(k, lambda)) / Math.sqrt(2 * Math.PI * k);
+}
+
+/** Binomial pmf for real n >= k (Loader 2000 saddle-point form). */
+export function binomialPmf(k: number, n: number, p: number): number {
+  const q = 1 - p;
+  if (k === 0) return Math.exp(n * Math.log1p(-p));
+  if (k === n) return Math.exp(n * Math.log(p));
+  const lc = stirlerr(n) - stirlerr(k) - stirlerr(n - k) - bd0(k, n * p) - bd0(n - k, n * q);
+  return Math.exp(lc) * Math.sqrt(n / (2 * Math.PI * k * (n - k)));
+}
+
+/** Negative binomial pmf (failures before the r-th success), P = r/(r+k) binomialPmf(r; r+k, p) (Loader 2000). */
+export function negativeBinomialPmf(k: number, r: number, p: number): number {
+  if (k === 0) return Math.exp(r * Math.log(p));
+  return (r / (r + k)) * binomialPmf(r, r + k, p);
 }

@@ -1,8 +1,8 @@
 import type { Node } from "../node";
 
 /**
- * Stable law in Nolan's S0 or S1 parameterisation (Nolan, Univariate Stable Distributions, 2020, ch. 1, Def. 1.7 and
- * 1.8 as we read them):
+ * Stable law in Nolan's S0 or S1 parameterisation (Nolan, Univariate Stable Distributions, 2020,
+ * ch. 1, definitions of S0 and S1):
  *  S1: log phi = -|g t|^a (1 - i b tan(pi a/2) sgn t) + i d t            (a != 1)
  *               -g|t| (1 + i b (2/pi) sgn t log|t|) + i d t                (a = 1)
  *  S0: log phi = -|g t|^a (1 + i b tan(pi a/2) sgn t (|g t|^{1-a} - 1)) + i d t   (a != 1)

@@ -6,6 +6,7 @@ import { buildNodes, cutoffFor, probeEnvelope, truncationAt, type Envelope, type
 import { kernelAt, makePart, withKernels, type ContinuousPart, type EndpointKernels } from "./part";
 import { sumPointwise } from "./pointwise";
 import { heavyWindow, lawShape, lightWindow, type LawShape } from "./range";
+import { gammaPdf } from "./incgamma";
 import type { ErrorEstimate } from "./types";
 
 export type Request =
@@ -80,8 +81,41 @@ export function invertContinuous(model: CompiledModel, atoms: Atom[], req: Reque
   const tol = opt.tolerance;
   const aliasTarget = tol / 4;
   const truncTarget = tol / 16;
+  // points far beyond a light-tailed bulk (more than two bulk widths out) are answered from the tail bounds
+  // instead of stretching the window (and the node count) to reach them
+  if (!shape.heavy && !opt.range && req.kind === "points" && req.x.length > 0) {
+    const bulk = lightWindow(shape, aliasTarget / 8, shape.center, shape.center);
+    const W = bulk.b - bulk.a;
+    const lo = bulk.a - 2 * W;
+    const hi = bulk.b + 2 * W;
+    const near: number[] = [];
+    for (let i = 0; i < req.x.length; i++) if (req.x[i] >= lo && req.x[i] <= hi) near.push(i);
+    if (near.length < req.x.length) {
+      const sub = invertContinuous(model, atoms, { kind: "points", x: Float64Array.from(near, (i) => req.x[i]) }, opt);
+      const n = req.x.length;
+      const pdf = opt.wantPdf ? new Float64Array(n) : null;
+      const cdf = new Float64Array(n);
+      const sf = new Float64Array(n);
+      let j = 0;
+      for (let i = 0; i < n; i++) {
+        if (j < near.length && near[j] === i) {
+          if (pdf) pdf[i] = sub.pdf![j];
+          cdf[i] = sub.cdf[j];
+          sf[i] = sub.sf[j];
+          j++;
+        } else {
+          // beyond the window: |F| <= F(a) and |f| <= F(a + d)/d (left), likewise right, all inside the error bounds
+          const right = req.x[i] > hi;
+          cdf[i] = right ? 1 : 0;
+          sf[i] = right ? 0 : 1;
+        }
+      }
+      sub.notes.push(`${n - near.length} point(s) far beyond the bulk answered by the tail bounds (cdf 0 or 1, density 0)`);
+      return { ...sub, pdf, cdf, sf };
+    }
+  }
   let part = makePart(model, atoms, shape.center);
-  let win = opt.range
+  const win = opt.range
     ? { a: opt.range.from, b: opt.range.to }
     : shape.heavy
       ? heavyWindow(shape, xmin, xmax)
@@ -98,7 +132,11 @@ export function invertContinuous(model: CompiledModel, atoms: Atom[], req: Reque
   return heavyPath(part, env, shape, req, opt, win, tmax, notes, method);
 }
 
-function maybeKernels(
+/**
+ * Try gamma kernels at the support ends (and at the model's location, where laws such as the Laplace have a
+ * kink) when |phi| decays slowly; keep the fit that lowers the frequency cut-off the most.
+ */
+export function maybeKernels(
   part: ContinuousPart,
   env: Envelope,
   shape: LawShape,
@@ -111,22 +149,44 @@ function maybeKernels(
   const ends: { at: number; side: 1 | -1 }[] = [];
   if (Number.isFinite(lo)) ends.push({ at: lo, side: 1 });
   if (Number.isFinite(hi)) ends.push({ at: hi, side: -1 });
-  if (ends.length === 0) return { part, env };
+  const loc = part.model.location;
+  const candidates: { at: number; side: 1 | -1 }[][] = [];
+  if (ends.length) candidates.push(ends);
+  if (Number.isFinite(loc) && loc > lo && loc < hi) candidates.push([...ends, { at: loc, side: 1 }]);
+  if (candidates.length === 0) return { part, env };
   const c0 = cutoffFor(env, wantPdf ? truncTarget : Infinity, truncTarget);
-  if (!(env.decay < 4.5) && c0 * shape.spread < 1000) return { part, env };
-  const rate = 50 / Math.max(win.b - win.a, 1e-300);
+  // only worth it when the cut-off is far out (slowly decaying CF)
+  if (c0 * shape.spread < 1000) return { part, env };
+  // kernel tails must be negligible at the window edge on their open side: e^{-60} (60)^J/J! < 1e-19
+  let span = win.b - win.a;
+  for (const e of [...ends, ...(Number.isFinite(loc) && loc > lo && loc < hi ? [{ at: loc, side: 1 as const }] : [])]) {
+    span = Math.min(span, e.side === 1 ? win.b - e.at : e.at - win.a);
+  }
+  const rate = 60 / Math.max(span, 1e-300);
   let best: { part: ContinuousPart; env: Envelope; cut: number; ks: EndpointKernels[] } | null = null;
-  for (const tBig of [300 / shape.spread, 3000 / shape.spread]) {
-    const fit = fitEndpointKernels(part, ends, 4, tBig, rate);
-    if (!fit) continue;
-    const p2 = withKernels(part, fit.kernels);
-    const e2 = probeEnvelope(p2, shape.spread);
-    const c2 = cutoffFor(e2, wantPdf ? truncTarget : Infinity, truncTarget);
-    if (c2 < (best ? best.cut : c0) * 0.5) best = { part: p2, env: e2, cut: c2, ks: fit.kernels };
+  // leading exponent: 1 (jumps and kinks of the density) unless |phi| decays like a non-integer power t^{-k}
+  // (density ~ (x - e)^{k-1} at the end, e.g. gamma shapes), measured on the last probed octave
+  const d = env.decayClean;
+  const power = Number.isFinite(d) && d > 0.05 && Math.abs(d - Math.round(d)) > 0.02 ? Math.round(d * 1000) / 1000 : 1;
+  search: for (const pts of candidates) {
+    // fewer terms when the expansion is not in steps of 1 (e.g. Weibull: x^{k-1}, x^{2k-1}, ...)
+    for (const J of [4, 2, 1]) {
+      for (const tBig of [300 / shape.spread, 3000 / shape.spread]) {
+        const fit = fitEndpointKernels(part, pts, J, tBig, rate, power);
+        if (!fit) continue;
+        const p2 = withKernels(part, fit.kernels);
+        const e2 = probeEnvelope(p2, shape.spread);
+        const c2 = cutoffFor(e2, wantPdf ? truncTarget : Infinity, truncTarget);
+        if (c2 < (best ? best.cut : c0) * 0.5) best = { part: p2, env: e2, cut: c2, ks: fit.kernels };
+        if (best && best.cut * shape.spread < 300) break search;
+      }
+    }
+    // the interior candidate (location) only when the support ends alone did not help
+    if (best) break;
   }
   if (!best) return { part, env };
   notes.push(
-    `density jumps at the support end(s) ${best.ks.map((k) => k.at).join(", ")} handled by subtracting ${best.ks[0].b.length} Erlang kernels (inverted in closed form)`,
+    `density behaviour at ${best.ks.map((k) => k.at).join(", ")} handled by subtracting ${best.ks[0].b.length} gamma kernel(s) from shape ${best.ks[0].power} each (inverted in closed form)`,
   );
   return { part: best.part, env: best.env };
 }
@@ -175,9 +235,11 @@ function roundingOf(part: ContinuousPart, nodes: Nodes): { cdf: number; pdf: num
   // kernel values fall like lambda / t: summed over the nodes, h sum |G_1(t_k)| ~ lambda asinh(T / lambda)
   let kPdf = 0;
   for (const k of part.kernels) kPdf = Math.max(kPdf, k.rate * Math.asinh((nodes.K * nodes.h) / k.rate));
+  // a CF with a declared absolute error (numerical CFs) adds that error at every node
+  const cfAbs = part.cfAbsError / part.weight;
   return {
-    cdf: acc * nodes.absCdf + atomTerm * (Math.log(nodes.K + 1) + 1) + 8 * EPS * (1 + kAbs) * (Math.log(nodes.K + 1) + 1),
-    pdf: acc * nodes.absPdf + (atomTerm * nodes.K * nodes.h) / Math.PI + (8 * EPS * kAbs * kPdf) / Math.PI + 8 * EPS,
+    cdf: acc * nodes.absCdf + (atomTerm + cfAbs) * (Math.log(nodes.K + 1) + 1) + 8 * EPS * (1 + kAbs) * (Math.log(nodes.K + 1) + 1),
+    pdf: acc * nodes.absPdf + ((atomTerm + cfAbs) * nodes.K * nodes.h) / Math.PI + (8 * EPS * kAbs * kPdf) / Math.PI + 8 * EPS,
   };
 }
 
@@ -321,7 +383,16 @@ function lightPath(
     // no images on a side where the support ends inside the window
     if (Number.isFinite(lo) && lo >= a) minL = 0;
     if (Number.isFinite(hi) && hi < b) minR = 0;
-    const aliasPdf = 2 * (minL + minR) + (2 * aliasCdf) / T;
+    // the kernels' own densities beyond the window alias too (decreasing there)
+    let kPdfOut = 0;
+    for (const k of part.kernels) {
+      for (const edge of [a, b]) {
+        const y = k.side * (edge - k.at);
+        if (y <= 0) continue;
+        for (let q = 0; q < k.b.length; q++) kPdfOut += Math.abs(k.b[q]) * gammaPdf(k.power + q, k.rate, y);
+      }
+    }
+    const aliasPdf = 2 * (minL + minR + kPdfOut) + (2 * aliasCdf) / T;
     const error: ErrorEstimate = {
       aliasing: opt.wantPdf ? Math.max(aliasCdf, aliasPdf) : aliasCdf,
       truncation: opt.wantPdf ? 2 * Math.max(trunc.pdf, trunc.cdf) : 2 * trunc.cdf,
@@ -358,7 +429,7 @@ function lightPath(
     if (rightOpen) b += grow;
     if (!leftOpen && !rightOpen) break;
   }
-  addKernels(part, requestPoints(req), pdf, cdf, sf);
+  if (part.kernels.length) addKernels(part, requestPoints(req), pdf, cdf, sf);
   return last!;
 }
 
@@ -393,7 +464,7 @@ function heavyPath(
   method: "fft" | "gil-pelaez",
 ): PartOutput {
   const n = nPoints(req);
-  const alpha = Math.min(Math.max(shape.alpha, 0.1), 2);
+  const alpha = Math.max(shape.alpha, 0.1);
   const expC = richardsonExponents(alpha, 0);
   const expP = richardsonExponents(alpha, 1);
   const [lo, hi] = shape.support;
@@ -415,6 +486,7 @@ function heavyPath(
   let pdfErr = Infinity;
   let cdfErr = Infinity;
   let prevBest: { pdf: Float64Array | null; cdf: Float64Array; sf: Float64Array } | null = null;
+  let lastNodes: Nodes | null = null;
   for (let lev = 0; lev < MAX_LEVELS; lev++) {
     const T = T0 * 2 ** lev;
     const a = anchor === "left" ? a0 : anchor === "right" ? a0 + T0 - T : centerX - T / 2;
@@ -433,6 +505,7 @@ function heavyPath(
     const K = chooseTerms(tmax, h, m, n);
     if (lev > 0 && K * n > MAX_POINTWISE_WORK * 4 && m === "gil-pelaez") break;
     const nodes = buildNodes(part, h, K);
+    lastNodes = nodes;
     const pdf = opt.wantPdf ? new Float64Array(n) : null;
     const cdf = new Float64Array(n);
     const sf = new Float64Array(n);
@@ -487,12 +560,12 @@ function heavyPath(
     if (lev >= 2 && error.cdf <= tol && (!opt.wantPdf || error.pdf <= tol)) break;
   }
   notes.push(`power tails (index ${shape.alpha}): period doubled ${result!.levels - 1} times with Richardson extrapolation`);
-  addKernels(part, requestPoints(req), result!.pdf, result!.cdf, result!.sf);
+  if (part.kernels.length) addKernels(part, requestPoints(req), result!.pdf, result!.cdf, result!.sf);
   const pts = new Float64Array([result!.window.a, result!.window.b]);
   const c2 = new Float64Array(2);
   const s2 = new Float64Array(2);
-  const lastNodes = buildNodes(part, result!.h, Math.min(result!.terms, 4096));
-  sumPointwise(lastNodes, part.center, pts, null, c2, s2);
+  // mass inside the last window, from its own (non-extrapolated) sums: informative, not part of the error budget
+  sumPointwise(lastNodes!, part.center, pts, null, c2, s2);
   result!.captured = Math.min(1, Math.max(0, s2[0] - s2[1]));
   return result!;
 }
@@ -528,38 +601,61 @@ export interface HeavyLadder {
   /** truncation + rounding bound of the extrapolated cdf and pdf */
   sumErrCdf: number;
   sumErrPdf: number;
+  T0: number;
+  tmax: number;
+  env: Envelope;
+  amp: number;
+  trC: number;
+  trP: number;
 }
 
 /** Build the ladder for a power-tailed continuous part (see heavyPath for the expansion behind it). */
 export function heavyLadder(model: CompiledModel, atoms: Atom[], T0: number, levels: number, tol: number): HeavyLadder {
   const shape = lawShape(model);
-  const part = makePart(model, atoms, shape.center);
-  const env = probeEnvelope(part, shape.spread);
+  let part = makePart(model, atoms, shape.center);
+  let env = probeEnvelope(part, shape.spread);
+  ({ part, env } = maybeKernels(part, env, shape, { a: shape.center - T0 / 2, b: shape.center + T0 / 2 }, tol / 16, true, []));
   let tmax = cutoffFor(env, tol / 16, tol / 16);
   if (!Number.isFinite(tmax)) tmax = env.t[env.t.length - 1];
-  const alpha = Math.min(Math.max(shape.alpha, 0.1), 2);
-  const expC = richardsonExponents(alpha, 0);
-  const expP = richardsonExponents(alpha, 1);
-  const nodes: Nodes[] = [];
-  let amp = 1;
-  let trC = 0;
-  let trP = 0;
-  for (let l = 0; l < levels; l++) {
-    const h = (2 * Math.PI) / (T0 * 2 ** l);
-    const K = Math.min(Math.max(8, Math.ceil(tmax / h)), MAX_TERMS);
-    const nd = buildNodes(part, h, K);
-    nodes.push(nd);
-    if (l > 0) amp *= (2 ** expC[l - 1] + 1) / (2 ** expC[l - 1] - 1);
-    const tr = truncationAt(env, K * h);
-    const rd = roundingOf(part, nd);
-    trC = Math.max(trC, 2 * tr.cdf + rd.cdf);
-    trP = Math.max(trP, 2 * tr.pdf + rd.pdf);
-  }
-  return { part, levels: nodes, expC, expP, sumErrCdf: amp * trC, sumErrPdf: amp * trP };
+  const alpha = Math.max(shape.alpha, 0.1);
+  const lad: HeavyLadder = {
+    part,
+    levels: [],
+    expC: richardsonExponents(alpha, 0),
+    expP: richardsonExponents(alpha, 1),
+    sumErrCdf: 0,
+    sumErrPdf: 0,
+    T0,
+    tmax,
+    env,
+    amp: 1,
+    trC: 0,
+    trP: 0,
+  };
+  for (let l = 0; l < levels; l++) growLadder(lad);
+  return lad;
+}
+
+/** One more period doubling (the nodes of the earlier levels are kept). */
+export function growLadder(lad: HeavyLadder): boolean {
+  const l = lad.levels.length;
+  if (l >= lad.expC.length) return false;
+  const h = (2 * Math.PI) / (lad.T0 * 2 ** l);
+  const K = Math.min(Math.max(8, Math.ceil(lad.tmax / h)), MAX_TERMS);
+  const nd = buildNodes(lad.part, h, K);
+  lad.levels.push(nd);
+  if (l > 0) lad.amp *= (2 ** lad.expC[l - 1] + 1) / (2 ** lad.expC[l - 1] - 1);
+  const tr = truncationAt(lad.env, K * h);
+  const rd = roundingOf(lad.part, nd);
+  lad.trC = Math.max(lad.trC, 2 * tr.cdf + rd.cdf);
+  lad.trP = Math.max(lad.trP, 2 * tr.pdf + rd.pdf);
+  lad.sumErrCdf = lad.amp * lad.trC;
+  lad.sumErrPdf = lad.amp * lad.trP;
+  return true;
 }
 
 /**
- * The extrapolated continuous-part values at x (kernels not included: ladders are built without them) and the
+ * The extrapolated continuous-part values at x (endpoint kernels added in closed form) and the
  * error estimate 2 max(|R_LL - R_{L-1,L-1}|, |R_LL - R_{L,L-1}|) plus the sums' own bound.
  */
 export function evalLadder(
@@ -588,10 +684,11 @@ export function evalLadder(
   }
   const b = L - 1;
   const d = (T: number[][]) => (b < 1 ? Infinity : 2 * Math.max(Math.abs(T[b][b] - T[b - 1][b - 1]), Math.abs(T[b][b] - T[b][b - 1])));
+  const k = kernelTotals(lad.part, x);
   return {
-    pdf: P[b][b],
-    cdf: C[b][b],
-    sf: S[b][b],
+    pdf: P[b][b] + k.pdf,
+    cdf: C[b][b] + k.cdf,
+    sf: S[b][b] + k.sf,
     errCdf: Math.max(d(C), d(S)) + lad.sumErrCdf,
     errPdf: d(P) + lad.sumErrPdf,
   };

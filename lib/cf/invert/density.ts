@@ -49,9 +49,11 @@ export function density(model: CompiledModel, options: DensityOptions = {}): Den
   });
   const xs = req.kind === "points" ? req.x : gridX(req.from, req.dx, req.count);
   const n = xs.length;
-  const cdf = new Float64Array(n);
-  const sf = new Float64Array(n);
-  const pdf = out.pdf ? new Float64Array(n) : undefined;
+  const buf = options.out ?? {};
+  const fits = (b: Float64Array | undefined): b is Float64Array => !!b && b.length === n;
+  const cdf = fits(buf.cdf) ? buf.cdf : new Float64Array(n);
+  const sf = fits(buf.sf) ? buf.sf : new Float64Array(n);
+  const pdf = out.pdf ? (fits(buf.pdf) ? buf.pdf : new Float64Array(n)) : undefined;
   for (let i = 0; i < n; i++) {
     const { below, above } = atomMass(atoms, xs[i]);
     cdf[i] = below + w * out.cdf[i];

@@ -1,11 +1,11 @@
 import { evalPart, type ContinuousPart, type EndpointKernels } from "./part";
 
 /**
- * Fit the large-t expansion phi(t) ~ sum_e e^{i t e} sum_{j<=J} c_{e,j} (-i s_e t)^{-j} at the finite support
- * endpoints e (s_e = +1 at the lower end, -1 at the upper end), where c_{e,j} is the (j-1)-th derivative of the
- * density at the endpoint from inside (integration by parts of int e^{itx} f(x) dx; e.g. Lukacs,
+ * Fit the large-t expansion phi(t) ~ sum_e e^{i t e} sum_{j<J} c_{e,j} (-i s_e t)^{-(k+j)} at the finite support
+ * endpoints e (s_e = +1 at the lower end, -1 at the upper end). For k = 1, c_{e,j} is the j-th derivative of the
+ * density at the endpoint from inside; a density ~ c (x - e)^{k-1}/Gamma(k) gives the leading term for other k (integration by parts of int e^{itx} f(x) dx; e.g. Lukacs,
  * Characteristic Functions, 2nd ed., sec. 2.3), by least squares on samples far out in t; then express each
- * endpoint's expansion through Erlang kernels e^{i t e}(1 - i s t/lambda)^{-m}, m <= J, using
+ * endpoint's expansion through gamma kernels e^{i t e}(1 - i s t/lambda)^{-(k+j)}, j < J, using
  * (1 + w)^{-m} = sum_n binom(-m, n) w^{-m-n}. Returns null when the samples are not described by such an
  * expansion (interior kinks, lattice parts): the caller then inverts without kernels.
  */
@@ -15,6 +15,7 @@ export function fitEndpointKernels(
   J: number,
   tBig: number,
   minRate: number,
+  power = 1,
 ): { kernels: EndpointKernels[]; residual: number } | null {
   if (ends.length === 0) return null;
   const m = 24;
@@ -37,14 +38,17 @@ export function fitEndpointKernels(
       const { at, side } = ends[e];
       const ca = Math.cos(t[i] * at);
       const sa = Math.sin(t[i] * at);
-      // v = tBig / (-i s t) = i tBig / (s t)
+      // v = tBig / (-i s t) = (tBig / t) e^{i s pi/2}; basis v^{power + j}
       const vi = tBig / (side * t[i]);
-      let pr = 1;
-      let pi = 0;
+      const m0 = Math.pow(tBig / t[i], power);
+      let pr = m0 * Math.cos((side * Math.PI * power) / 2);
+      let pi = m0 * Math.sin((side * Math.PI * power) / 2);
       for (let j = 0; j < J; j++) {
-        const nr = -pi * vi;
-        pi = pr * vi;
-        pr = nr;
+        if (j > 0) {
+          const nr = -pi * vi;
+          pi = pr * vi;
+          pr = nr;
+        }
         const col = A[e * J + j];
         col[2 * i] = pr * ca - pi * sa;
         col[2 * i + 1] = pr * sa + pi * ca;
@@ -66,29 +70,35 @@ export function fitEndpointKernels(
   const kernels: EndpointKernels[] = [];
   for (let e = 0; e < ends.length; e++) {
     const c: number[] = [];
-    for (let j = 0; j < J; j++) c.push(x[e * J + j] * Math.pow(tBig, j + 1));
+    for (let j = 0; j < J; j++) c.push(x[e * J + j] * Math.pow(tBig, power + j));
     // the density's own decay rate near the end keeps the amplitudes b_m of order c_1 (no cancellation)
     let rate = minRate;
-    const lead = c.findIndex((v) => Math.abs(v) > 0);
+    // coefficients made dimensionless with the fit scale 1/tBig; fitted noise (relative 1e-8) is ignored
+    const d = c.map((v, j) => Math.abs(v) / Math.pow(tBig, power + j));
+    const dmax = Math.max(...d);
+    const lead = d.findIndex((v) => v > 1e-4 * dmax);
     if (lead >= 0) {
       for (let j = lead + 1; j < J; j++) {
+        if (!(d[j] > 1e-4 * dmax)) continue;
         const r = Math.pow(Math.abs(c[j] / c[lead]), 1 / (j - lead));
         if (Number.isFinite(r) && r > rate) rate = r;
       }
     }
+    // the kernels' expansion in lambda/t holds only for t > lambda: keep lambda well below the fitted range
+    rate = Math.min(rate, Math.max(minRate, tBig / 4));
     const bm: number[] = [];
-    for (let j = 1; j <= J; j++) {
-      let v = c[j - 1] / Math.pow(rate, j);
-      for (let q = 1; q < j; q++) v -= bm[q - 1] * binomNeg(q, j - q);
+    for (let j = 0; j < J; j++) {
+      let v = c[j] / Math.pow(rate, power + j);
+      for (let q = 0; q < j; q++) v -= bm[q] * binomNeg(power + q, j - q);
       bm.push(v);
     }
     if (bm.some((v) => !Number.isFinite(v))) return null;
-    kernels.push({ at: ends[e].at, side: ends[e].side, rate, b: bm });
+    kernels.push({ at: ends[e].at, side: ends[e].side, rate, power, b: bm });
   }
   return { kernels, residual };
 }
 
-/** binom(-m, n) = (-1)^n C(m + n - 1, n). */
+/** binom(-m, n) = (-1)^n m (m+1) ... (m+n-1) / n! (any real m > 0). */
 function binomNeg(m: number, n: number): number {
   let c = 1;
   for (let i = 1; i <= n; i++) c = (c * (m + i - 1)) / i;

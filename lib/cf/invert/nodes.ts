@@ -13,6 +13,8 @@ export interface Envelope {
   tailCdf: Float64Array;
   /** power-law decay exponent measured over the last probed octave (Infinity when |phi| hit 0) */
   decay: number;
+  /** decay exponent over the last octave where |phi| is still far above rounding noise (for the kernel power) */
+  decayClean: number;
 }
 
 const PER_OCTAVE = 8;
@@ -22,17 +24,29 @@ const STEP = Math.pow(2, 1 / PER_OCTAVE);
  * Values below `floor` are rounding noise of the atom subtraction (|phi - sum p e^{itx}| cannot be resolved
  * below eps * sum p / w); they are treated as zero, and the truncation bounds carry an allowance for them.
  */
-export function noiseFloor(part: ContinuousPart): { base: number; slope: number } {
+export function noiseFloor(part: ContinuousPart): (t: number) => number {
   let pa = 0;
   let xm = 0;
   for (const a of part.atoms) {
     pa += a.p;
     xm = Math.max(xm, Math.abs(a.x));
   }
-  if (pa <= 0) return { base: 0, slope: 0 };
   // the atoms' phases t x carry absolute errors ~ eps t |x|
-  const base = (16 * Number.EPSILON * (1 + pa)) / part.weight;
-  return { base, slope: base * xm };
+  const base = (pa > 0 ? (16 * Number.EPSILON * (1 + pa)) / part.weight : 0) + (2 * part.cfAbsError) / part.weight;
+  const slope = base * xm;
+  // subtracting kernels leaves ~ eps |b| |G(t)| (1 + t |at|) with |G(t)| ~ (lambda / t)^power (phase rounding
+  // of e^{i t at} in both the model's CF and the kernels)
+  const ks = part.kernels.map((k) => ({
+    amp: 16 * Number.EPSILON * k.b.reduce((s, b) => s + Math.abs(b), 0),
+    rate: k.rate,
+    power: k.power,
+    at: Math.abs(k.at),
+  }));
+  return (t: number) => {
+    let f = base + slope * t;
+    for (const k of ks) f += k.amp * Math.min(1, Math.pow(k.rate / t, k.power)) * (1 + t * k.at);
+    return f;
+  };
 }
 
 export function probeEnvelope(part: ContinuousPart, scale: number): Envelope {
@@ -44,12 +58,21 @@ export function probeEnvelope(part: ContinuousPart, scale: number): Envelope {
   for (let i = 0; i < n; i++) t[i] = t0 * Math.pow(STEP, i);
   const re = new Float64Array(n);
   const im = new Float64Array(n);
-  evalPart(part, t, re, im);
+  // in blocks of two octaves, upward; once a whole block underflows to 0 the rest is 0 too (|phi| of
+  // exp(-c t^a) type decays monotonically below 1e-300) and is not evaluated
+  const B = 2 * PER_OCTAVE;
+  for (let i0 = 0; i0 < n; i0 += B) {
+    const i1 = Math.min(n, i0 + B);
+    evalPart(part, t.subarray(i0, i1), re.subarray(i0, i1), im.subarray(i0, i1));
+    let m = 0;
+    for (let i = i0; i < i1; i++) m = Math.max(m, Math.abs(re[i]) + Math.abs(im[i]));
+    if (m === 0 && i0 > 0 && part.atoms.length === 0 && part.kernels.length === 0) break;
+  }
   const env = new Float64Array(n);
   let run = 0;
   for (let i = n - 1; i >= 0; i--) {
     const a = Math.hypot(re[i], im[i]);
-    const floor = nf.base + nf.slope * t[i];
+    const floor = nf(t[i]);
     const v = Number.isFinite(a) ? (a > floor ? a : 0) : Infinity;
     if (v > run) run = v;
     env[i] = run;
@@ -66,7 +89,7 @@ export function probeEnvelope(part: ContinuousPart, scale: number): Envelope {
     sp = decay > 1.05 ? (last * t[n - 1]) / (decay - 1) : Infinity;
     sc = decay > 0.05 ? last / decay : Infinity;
   }
-  const lastFloor = nf.base + nf.slope * t[n - 1];
+  const lastFloor = nf(t[n - 1]);
   tailPdf[n - 1] = (sp + lastFloor * t[n - 1]) / Math.PI;
   tailCdf[n - 1] = (sc + lastFloor) / Math.PI;
   const lnStep = Math.log(STEP);
@@ -74,11 +97,20 @@ export function probeEnvelope(part: ContinuousPart, scale: number): Envelope {
     sp += env[i] * (t[i + 1] - t[i]);
     sc += env[i] * lnStep;
     // allowance for sub-floor values over the next octave
-    const floor = nf.base + nf.slope * t[i];
+    const floor = nf(t[i]);
     tailPdf[i] = (sp + floor * t[i]) / Math.PI;
     tailCdf[i] = (sc + floor) / Math.PI;
   }
-  return { t, env, tailPdf, tailCdf, decay };
+  // measured over six octaves so that oscillating |phi| (e.g. sin t / t) does not bias it
+  let decayClean = decay;
+  const span = 6 * PER_OCTAVE;
+  for (let i = n - 1; i >= span; i--) {
+    if (env[i] > Math.max(1e-10 * env[0], 1e6 * nf(t[i]), 1e-290)) {
+      decayClean = env[i - span] > 0 ? Math.log2(env[i - span] / env[i]) / 6 : 0;
+      break;
+    }
+  }
+  return { t, env, tailPdf, tailCdf, decay, decayClean };
 }
 
 /** Smallest probed frequency beyond which the truncation bounds fall below the targets (Infinity if none). */
@@ -96,7 +128,13 @@ export function cutoffFor(e: Envelope, targetPdf: number, targetCdf: number): nu
       best = i;
     }
   }
-  return best >= 0 && Number.isFinite(bestV) && e.env[best] === 0 ? e.t[best] : Infinity;
+  if (!(best >= 0 && Number.isFinite(bestV))) return Infinity;
+  // the first probe within a factor 2 of that smallest bound (the floor often keeps falling slowly)
+  for (let i = 0; i <= best; i++) {
+    const v = Math.max(e.tailCdf[i] / targetCdf, Number.isFinite(targetPdf) ? e.tailPdf[i] / targetPdf : 0);
+    if (v <= 2 * bestV) return e.t[i];
+  }
+  return e.t[best];
 }
 
 /** Truncation bounds at an arbitrary cut-off T (envelope tail, interpolated to the probe on the left: an over-estimate). */

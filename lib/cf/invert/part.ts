@@ -1,4 +1,5 @@
 import type { Atom, CompiledModel } from "../types";
+import { gammaPdf, incGamma } from "./incgamma";
 
 /**
  * Gamma kernels at a finite support endpoint, subtracted from the CF so that what is left decays faster in t.
@@ -12,7 +13,9 @@ export interface EndpointKernels {
   at: number;
   side: 1 | -1;
   rate: number;
-  /** amplitudes b_1..b_J */
+  /** exponent of the first kernel: kernel j is Gamma(power + j, rate) (power 1 gives Erlang kernels) */
+  power: number;
+  /** amplitudes b_0..b_{J-1} */
   b: number[];
 }
 
@@ -27,12 +30,24 @@ export interface ContinuousPart {
   kernels: EndpointKernels[];
   /** total mass of the measure actually inverted (1 minus kernel masses) */
   mass: number;
+  /** absolute error of the model's CF values where it states one (numerical CFs), else 0 */
+  cfAbsError: number;
+}
+
+/** Absolute CF error declared in the model's notes ("absolute error <= 1e-13"), the largest one found. */
+export function declaredCfError(model: CompiledModel): number {
+  let e = 0;
+  for (const n of model.notes) {
+    const m = /absolute error <= ([0-9.]+(?:e[-+]?[0-9]+)?)/i.exec(n);
+    if (m) e = Math.max(e, Number(m[1]));
+  }
+  return Number.isFinite(e) ? e : 0;
 }
 
 export function makePart(model: CompiledModel, atoms: Atom[], center: number): ContinuousPart {
   let pa = 0;
   for (const a of atoms) pa += a.p;
-  return { model, atoms, weight: 1 - pa, center, kernels: [], mass: 1 };
+  return { model, atoms, weight: 1 - pa, center, kernels: [], mass: 1, cfAbsError: declaredCfError(model) };
 }
 
 export function withKernels(part: ContinuousPart, ks: EndpointKernels[]): ContinuousPart {
@@ -73,14 +88,19 @@ export function evalPart(part: ContinuousPart, t: Float64Array, re: Float64Array
       const den = ur * ur + ui * ui;
       const vr = ur / den;
       const vi = -ui / den; // v = 1/(1 - i s t/lambda)
-      let pr = 1;
-      let pi = 0;
+      // v^power by polar form (principal branch: Re v > 0), then one more factor v per kernel
+      const mag = Math.pow(Math.hypot(vr, vi), k.power);
+      const arg = Math.atan2(vi, vr) * k.power;
+      let pr = k.power === 1 ? vr : mag * Math.cos(arg);
+      let pi = k.power === 1 ? vi : mag * Math.sin(arg);
       let sr = 0;
       let si = 0;
       for (let q = 0; q < k.b.length; q++) {
-        const nr = pr * vr - pi * vi;
-        pi = pr * vi + pi * vr;
-        pr = nr;
+        if (q > 0) {
+          const nr = pr * vr - pi * vi;
+          pi = pr * vi + pi * vr;
+          pr = nr;
+        }
         sr += k.b[q] * pr;
         si += k.b[q] * pi;
       }
@@ -130,17 +150,27 @@ export function erlangTails(m: number, rate: number, y: number): { cdf: number; 
   return { cdf, sf, pdf };
 }
 
-/** Kernel contributions to pdf, cdf, sf at x (sum over b_m times the Erlang laws at the endpoint). */
+/** Kernel contributions to pdf, cdf, sf at x (sum over b_m times the gamma laws at the endpoint). */
 export function kernelAt(k: EndpointKernels, x: number): { pdf: number; cdf: number; sf: number } {
   const y = k.side * (x - k.at);
   let pdf = 0;
   let lower = 0;
   let upper = 0;
   for (let q = 0; q < k.b.length; q++) {
-    const e = erlangTails(q + 1, k.rate, y);
-    pdf += k.b[q] * e.pdf;
-    lower += k.b[q] * e.cdf;
-    upper += k.b[q] * e.sf;
+    const a = k.power + q;
+    if (Number.isInteger(a)) {
+      const e = erlangTails(a, k.rate, y);
+      pdf += k.b[q] * e.pdf;
+      lower += k.b[q] * e.cdf;
+      upper += k.b[q] * e.sf;
+    } else if (y > 0) {
+      const g = incGamma(a, k.rate * y);
+      pdf += k.b[q] * gammaPdf(a, k.rate, y);
+      lower += k.b[q] * g.P;
+      upper += k.b[q] * g.Q;
+    } else {
+      upper += k.b[q];
+    }
   }
   // for side -1 the Erlang variable is at - X, so its cdf is our sf
   return k.side === 1 ? { pdf, cdf: lower, sf: upper } : { pdf, cdf: upper, sf: lower };

@@ -22,6 +22,8 @@ export interface DensityOptions {
   maxFrequency?: number;
   /** skip the density (faster when only cdf/sf are wanted) */
   cdfOnly?: boolean;
+  /** caller-owned output buffers of the request's length (continuous and mixed laws); reused when given */
+  out?: { pdf?: Float64Array; cdf?: Float64Array; sf?: Float64Array };
 }
 
 /** Error budget of one inversion; every term is an upper estimate of absolute error over the points returned. */

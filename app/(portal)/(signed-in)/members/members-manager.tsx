@@ -1,0 +1,180 @@
+"use client";
+
+import { useCallback, useEffect, useState, type FormEvent } from "react";
+import { ROLE_LABELS } from "@/lib/auth/roles";
+import { fieldErrors, inviteSchema } from "@/lib/portal/schemas";
+import { portalFetch, PortalFetchError } from "../../_components/fetch";
+import { has, useMe } from "../../_components/me";
+import { buttonClass, dangerButtonClass, Empty, Field, fmtDate, FormError, Loading, Notice, PageHeader, quietButtonClass } from "../../_components/ui";
+
+type Role = keyof typeof ROLE_LABELS;
+const ROLE_LIST = Object.keys(ROLE_LABELS) as Role[];
+const ROLE_HELP: Record<Role, string> = {
+  admin: "members, every key, plan",
+  developer: "own keys, docs, own usage",
+  billing: "usage, quota, plan; no keys",
+};
+
+interface Data {
+  members: { userId: number; name: string; email: string; role: Role; joinedAt: string; you: boolean }[];
+  invitations: { id: number; email: string; role: Role; expiresAt: string; sentAt: string; invitedByName: string | null; expired: boolean }[];
+}
+
+export function MembersManager() {
+  const { me, reload: reloadMe } = useMe();
+  const [data, setData] = useState<Data | null>(null);
+  const [loadError, setLoadError] = useState<string | null>(null);
+  const [flash, setFlash] = useState<string | null>(null);
+  const [error, setError] = useState<string | null>(null);
+
+  const load = useCallback(() => {
+    portalFetch<Data>("/api/portal/members")
+      .then((d) => (setData(d), setLoadError(null)))
+      .catch((e: PortalFetchError) => setLoadError(e.problem?.error ?? "The members could not be loaded."));
+  }, []);
+  useEffect(load, [load]);
+
+  if (me && !has(me, "members.manage")) return <FormError message="Only admins manage the members of an organisation." />;
+
+  async function run(label: string, p: Promise<unknown>) {
+    setError(null);
+    setFlash(null);
+    try {
+      await p;
+      setFlash(label);
+      load();
+      reloadMe();
+    } catch (e) {
+      setError((e as PortalFetchError).problem?.error ?? "That did not work.");
+      load(); // puts the role pickers back to what the database holds
+    }
+  }
+
+  return (
+    <div className="space-y-8">
+      <PageHeader title="Members" lead={`People of ${me?.organization.name ?? "this organisation"} and what they may do.`} />
+      {flash ? <Notice tone="success">{flash}</Notice> : null}
+      <FormError message={error} />
+      <InviteForm onInvited={(email) => (setFlash(`Invitation sent to ${email}.`), load())} />
+      {loadError ? <FormError message={loadError} /> : !data ? <Loading label="Loading members…" /> : (
+        <>
+          <section aria-labelledby="members-h">
+            <h2 id="members-h" className="font-display text-xl font-semibold">People</h2>
+            <div className="relative mt-3 overflow-x-auto rounded-xl border border-paper-line bg-white">
+              <table className="w-full min-w-[40rem] text-left text-sm">
+                <thead className="border-b border-paper-line bg-paper-warm text-xs uppercase tracking-wide text-ink-faint">
+                  <tr>
+                    <th scope="col" className="px-4 py-2">Name</th>
+                    <th scope="col" className="px-4 py-2">E-mail</th>
+                    <th scope="col" className="px-4 py-2">Role</th>
+                    <th scope="col" className="px-4 py-2">Joined</th>
+                    <th scope="col" className="px-4 py-2"><span className="sr-only">Actions</span></th>
+                  </tr>
+                </thead>
+                <tbody>
+                  {data.members.map((m) => (
+                    <tr key={m.userId} className="border-b border-paper-line last:border-0">
+                      <td className="px-4 py-2 font-semibold">{m.name}{m.you ? <span className="ml-1 text-xs font-normal text-ink-faint">(you)</span> : null}</td>
+                      <td className="px-4 py-2">{m.email}</td>
+                      <td className="px-4 py-2">
+                        <select
+                          aria-label={`Role of ${m.name}`}
+                          className="rounded-md border border-paper-line bg-white px-2 py-1"
+                          value={m.role}
+                          onChange={(e) => run(`${m.name} is now ${ROLE_LABELS[e.target.value as Role].toLowerCase()}.`, portalFetch(`/api/portal/members/${m.userId}`, { method: "PATCH", body: { role: e.target.value } }))}
+                        >
+                          {ROLE_LIST.map((r) => <option key={r} value={r}>{ROLE_LABELS[r]}</option>)}
+                        </select>
+                      </td>
+                      <td className="px-4 py-2">{fmtDate(m.joinedAt)}</td>
+                      <td className="px-4 py-2 text-right">
+                        <button type="button" className={dangerButtonClass} aria-label={`Remove ${m.name}`} onClick={() => run(`${m.name} was removed.`, portalFetch(`/api/portal/members/${m.userId}`, { method: "DELETE" }))}>
+                          Remove
+                        </button>
+                      </td>
+                    </tr>
+                  ))}
+                </tbody>
+              </table>
+            </div>
+          </section>
+          <section aria-labelledby="inv-h">
+            <h2 id="inv-h" className="font-display text-xl font-semibold">Open invitations</h2>
+            {data.invitations.length === 0 ? (
+              <div className="mt-3"><Empty title="No open invitations">Invitations you send appear here until they are accepted.</Empty></div>
+            ) : (
+              <ul className="mt-3 divide-y divide-paper-line rounded-xl border border-paper-line bg-white">
+                {data.invitations.map((i) => (
+                  <li key={i.id} className="flex flex-wrap items-center justify-between gap-3 px-4 py-3 text-sm">
+                    <span>
+                      <strong>{i.email}</strong> as {ROLE_LABELS[i.role].toLowerCase()} · sent {fmtDate(i.sentAt)}{i.invitedByName ? ` by ${i.invitedByName}` : ""} ·{" "}
+                      {i.expired ? <span className="font-semibold text-red-700">expired</span> : `valid until ${fmtDate(i.expiresAt)}`}
+                    </span>
+                    <span className="flex gap-2">
+                      <button type="button" className={quietButtonClass} aria-label={`Resend the invitation to ${i.email}`} onClick={() => run(`A new link was sent to ${i.email}.`, portalFetch(`/api/portal/invitations/${i.id}/resend`, { method: "POST", body: {} }))}>
+                        Resend
+                      </button>
+                      <button type="button" className={dangerButtonClass} aria-label={`Withdraw the invitation to ${i.email}`} onClick={() => run(`The invitation to ${i.email} is withdrawn.`, portalFetch(`/api/portal/invitations/${i.id}`, { method: "DELETE" }))}>
+                        Withdraw
+                      </button>
+                    </span>
+                  </li>
+                ))}
+              </ul>
+            )}
+          </section>
+        </>
+      )}
+    </div>
+  );
+}
+
+function InviteForm({ onInvited }: { onInvited: (email: string) => void }) {
+  const [email, setEmail] = useState("");
+  const [role, setRole] = useState<Role>("developer");
+  const [errors, setErrors] = useState<Record<string, string>>({});
+  const [error, setError] = useState<string | null>(null);
+  const [busy, setBusy] = useState(false);
+
+  async function submit(e: FormEvent) {
+    e.preventDefault();
+    setError(null);
+    const parsed = inviteSchema.safeParse({ email, role });
+    if (!parsed.success) return setErrors(fieldErrors(parsed.error));
+    setErrors({});
+    setBusy(true);
+    try {
+      await portalFetch("/api/portal/invitations", { body: parsed.data });
+      setEmail("");
+      onInvited(parsed.data.email);
+    } catch (err) {
+      const p = (err as PortalFetchError).problem;
+      setError(p?.error ?? "The invitation could not be sent.");
+      if (p?.fields) setErrors(p.fields);
+    } finally {
+      setBusy(false);
+    }
+  }
+
+  return (
+    <form onSubmit={submit} noValidate aria-label="Invite someone" className="space-y-3 rounded-xl border border-paper-line bg-white p-5">
+      <h2 className="font-display text-lg font-semibold">Invite someone</h2>
+      <FormError message={error} />
+      <div className="grid gap-4 sm:grid-cols-[1fr_16rem_auto] sm:items-start">
+        <Field label="E-mail" name="email" type="email" value={email} onChange={setEmail} error={errors.email} required />
+        <label className="block text-sm font-semibold">
+          Role
+          <select name="role" className="mt-1 block w-full rounded-md border border-paper-line bg-white px-3 py-2" value={role} onChange={(e) => setRole(e.target.value as Role)}>
+            {ROLE_LIST.map((r) => <option key={r} value={r}>{ROLE_LABELS[r]}</option>)}
+          </select>
+        </label>
+        <button type="submit" className={`${buttonClass} sm:mt-6`} disabled={busy}>
+          {busy ? "Sending…" : "Send invitation"}
+        </button>
+      </div>
+      <p className="text-xs text-ink-faint">
+        {ROLE_LIST.map((r) => `${ROLE_LABELS[r]}: ${ROLE_HELP[r]}`).join(" · ")}. The link works once, for 7 days.
+      </p>
+    </form>
+  );
+}

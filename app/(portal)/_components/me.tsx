@@ -1,0 +1,15 @@
+"use client";
+
+import { createContext, useContext } from "react";
+
+export interface Me {
+  user: { id: number; name: string; email: string; emailVerified: boolean };
+  organization: { id: number; name: string; plan: string };
+  role: "admin" | "developer" | "billing";
+  permissions: string[];
+  memberships: { organizationId: number; name: string; role: "admin" | "developer" | "billing" }[];
+}
+
+export const MeContext = createContext<{ me: Me | null; reload: () => void }>({ me: null, reload: () => {} });
+export const useMe = () => useContext(MeContext);
+export const has = (me: Me | null, perm: string) => !!me?.permissions.includes(perm);

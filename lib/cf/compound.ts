@@ -1,0 +1,239 @@
+import type { Node, NodeKind } from "./node";
+import { commonStep, onLattice, panjer, powerTable, restep, convolveTables } from "./lattice";
+import type { LatticeTable } from "./types";
+import { chooseSpan, discretisedCompound, type DiscretiseOptions, type DiscretisedCompound } from "./discretise";
+
+const collectNotes = (cs: Node[]) => [...new Set(cs.flatMap((c) => c.notes))];
+
+/**
+ * Compound S = X_1 + ... + X_N: log phi_S(t) = log P_N(phi_X(t)) = K_N(log phi_X(t)), K_N the count's cumulant function
+ * at complex argument (Klugman, Panjer & Willmot, Loss Models, aggregate loss models chapter). Cumulants by composing the two cumulant
+ * series, K_S(u) = K_N(K_X(u)).
+ */
+export function compoundNode(N: Node, X: Node, discretise: DiscretiseOptions | null = {}): Node {
+  if (X.severity && X.kind.type === "continuous" && N.countCgf && discretise && (discretise.force || !X.severity.cfRouteFast))
+    return discretisedNode(N, X, discretise);
+  const P0 = N.p0 ?? 0;
+  let kind: NodeKind;
+  const own: string[] = [];
+  if (X.kind.type === "continuous") kind = P0 > 0 ? { type: "mixed", atoms: [{ x: 0, p: P0 }], atomsComplete: true } : { type: "continuous" };
+  else if (X.kind.type === "lattice") {
+    const { origin, step } = X.kind;
+    const g = step === 0 ? Math.abs(origin) : commonStep(step, origin);
+    if (g === 0) kind = { type: "lattice", origin: 0, step: 0, atoms: [{ x: 0, p: 1 }] };
+    else kind = g === null ? { type: "discrete", atoms: null } : { type: "lattice", origin: 0, step: g, atoms: null };
+  } else if (X.kind.type === "discrete") kind = { type: "discrete", atoms: null };
+  else if (X.kind.atomsComplete && X.kind.atoms.length === 1 && X.kind.atoms[0].x === 0 && N.countCgf) {
+    // severity = atom c at 0 plus a continuous part: S = 0 exactly when every summand is the atom, P = P_N(c)
+    kind = { type: "mixed", atoms: [{ x: 0, p: pgfAt(N, X.kind.atoms[0].p) }], atomsComplete: true };
+  } else {
+    kind = { type: "mixed", atoms: P0 > 0 ? [{ x: 0, p: P0 }] : [], atomsComplete: false };
+    own.push("compound of a severity with atoms and a continuous part: only the atom at 0 is listed");
+  }
+  const nMean = N.cumulants(1)[0] ?? N.location;
+  const node: Node = {
+    kind,
+    momentIndex: Math.min(N.momentIndex, X.momentIndex),
+    tails: X.tails,
+    nodes: 1 + N.nodes + X.nodes,
+    get notes() {
+      return [...collectNotes([N, X]), ...own];
+    },
+    location: nMean * X.location,
+    scale: Math.sqrt(Math.max(nMean, 0) * X.scale * X.scale + N.scale * N.scale * X.location * X.location) || X.scale,
+    support: compoundSupport(N.support, X.support),
+    logCf(t, re, im) {
+      const a = new Float64Array(t.length);
+      const b = new Float64Array(t.length);
+      X.logCf(t, a, b);
+      N.countCgf!(a, b, re, im);
+    },
+    cumulants(n) {
+      const kx = X.cumulants(n);
+      const kn = N.cumulants(n);
+      let valid = n;
+      for (let k = 0; k < n; k++) if (kx[k] === null || kn[k] === null) {
+        valid = k;
+        break;
+      }
+      const out: (number | null)[] = new Array(n).fill(null);
+      if (valid === 0) return out;
+      // a_k = kappa_k(X)/k!, b_j = kappa_j(N)/j!; c_m = sum_j b_j [u^m] A(u)^j; kappa_m(S) = m! c_m
+      const A = new Float64Array(valid + 1);
+      let f = 1;
+      for (let k = 1; k <= valid; k++) {
+        f *= k;
+        A[k] = (kx[k - 1] as number) / f;
+      }
+      const c = new Float64Array(valid + 1);
+      let pow = new Float64Array(valid + 1);
+      pow[0] = 1;
+      let fj = 1;
+      for (let j = 1; j <= valid; j++) {
+        const next = new Float64Array(valid + 1);
+        for (let i = 0; i <= valid; i++) {
+          if (pow[i] === 0) continue;
+          for (let k = 1; i + k <= valid; k++) next[i + k] += pow[i] * A[k];
+        }
+        pow = next;
+        fj *= j;
+        const bj = (kn[j - 1] as number) / fj;
+        for (let m = j; m <= valid; m++) c[m] += bj * pow[m];
+      }
+      let fm = 1;
+      for (let m = 1; m <= valid; m++) {
+        fm *= m;
+        out[m - 1] = c[m] * fm;
+      }
+      return out;
+    },
+  };
+  if (kind.type === "lattice" && X.table) {
+    node.table = (maxLength) => compoundTable(N, X, kind as { step: number }, maxLength, node);
+  }
+  if (X.countCgf) {
+    node.countCgf = (wr, wi, re, im) => {
+      const a = new Float64Array(wr.length);
+      const b = new Float64Array(wr.length);
+      X.countCgf!(wr, wi, a, b);
+      N.countCgf!(a, b, re, im);
+    };
+    node.p0 = pgfAt(N, X.p0 ?? 0);
+  }
+  return node;
+}
+
+/**
+ * Compound whose severity has no cheap CF (lognormal, pareto, weibull): its law is replaced by the compound of the
+ * mean-preserving discretisation of the severity on a span h (actuarial common practice), a lattice law on 0, h, 2h,
+ * ... tabulated by FFT. The CF and the cumulants stay those of the exact law; the kind and the table are the
+ * approximation's, and the notes say so with the cdf error bound once the table is built.
+ */
+function discretisedNode(N: Node, X: Node, o: DiscretiseOptions): Node {
+  const exact = compoundNode(N, X, null);
+  const sev = X.severity!;
+  const k = exact.cumulants(2);
+  const nMean = N.cumulants(1)[0] ?? N.location;
+  const sd = k[1] !== null && k[1] >= 0 ? Math.sqrt(k[1]) : null;
+  const { h, K } = chooseSpan(sev, nMean, k[0], sd, o);
+  const notes = [
+    ...exact.notes.filter((x) => !x.startsWith(`${sev.name} CF`)),
+    `${sev.name} severity discretised mean-preserving (local moment matching) on span h = ${h}, ${K} lattice points; ` +
+      `compound pmf by FFT of the count's generating function. The law is treated as a lattice law: pmf values are ` +
+      `probabilities of span cells, and cdf values differ from the continuous law's by the discretisation error below.`,
+  ];
+  let built: DiscretisedCompound | null = null;
+  const node: Node = {
+    ...exact,
+    kind: { type: "lattice", origin: 0, step: h, atoms: null },
+    notes,
+    approximate: true,
+    table(maxLength) {
+      if (!built) {
+        built = discretisedCompound(N, sev, h, K);
+        notes.push(
+          `discretisation error: |cdf - cdf of the continuous law| <= ${built.cdfError.toExponential(2)} ` +
+            `(between the rounded-down and rounded-up discretisations: ${built.bracket.toExponential(2)}; wrapped mass <= ${built.aliasing.toExponential(2)}); ` +
+            `mass beyond ${(K - 1) * h}: ${built.table.tailMass.toExponential(2)}`,
+        );
+      }
+      const t = built.table;
+      if (t.p.length <= maxLength) return { ...t, p: t.p.slice(), cdfError: built.cdfError };
+      let tail = t.tailMass;
+      for (let i = maxLength; i < t.p.length; i++) tail += t.p[i];
+      return { origin: 0, step: h, p: t.p.slice(0, maxLength), tailMass: tail, cdfError: built.cdfError };
+    },
+  };
+  delete node.countCgf;
+  delete node.p0;
+  return node;
+}
+
+function compoundSupport(n: readonly [number, number], x: readonly [number, number]): [number, number] {
+  const mul = (a: number, b: number) => (a === 0 || b === 0 ? 0 : a * b);
+  const c = [mul(n[0], x[0]), mul(n[0], x[1]), mul(n[1], x[0]), mul(n[1], x[1])];
+  if (n[0] === 0) c.push(0);
+  return [Math.min(...c), Math.max(...c)];
+}
+
+/** P_N(z) for real z in [0, 1]. */
+export function pgfAt(N: Node, z: number): number {
+  if (z === 0) return N.p0 ?? 0;
+  const re = new Float64Array(1);
+  const im = new Float64Array(1);
+  N.countCgf!(Float64Array.of(Math.log(z)), Float64Array.of(0), re, im);
+  return Math.exp(re[0]);
+}
+
+function compoundTable(N: Node, X: Node, kind: { step: number }, maxLength: number, S: Node): LatticeTable | null {
+  const g = kind.step;
+  if (g === 0) return { origin: 0, step: 1, p: Float64Array.of(1), tailMass: 0 };
+  // length from the compound's cumulants: mean + 40 sd in steps, capped
+  const k = S.cumulants(2);
+  const mean = k[0] ?? 0;
+  const sd = Math.sqrt(Math.max(k[1] ?? 0, 0));
+  let len = Math.ceil((mean + 40 * sd) / g) + 64;
+  len = Math.min(maxLength, Math.max(len, 1));
+  // g_k depends on the severity only up to index k, so a severity table truncated beyond len is exact here
+  const xt = X.table!(len + 1);
+  if (!xt) return null;
+  const r = restep(xt, g);
+  const m = Math.round(r.origin / g);
+  if (m < 0 || !onLattice(r.origin, g)) return null;
+  // a severity table cut short by its own tail (xt.tailMass) only lowers the computed masses; 1 - sum reports it
+  const sev = new Float64Array(Math.min(m + r.p.length, len + 1));
+  const cut = Math.max(0, sev.length - m);
+  if (cut > 0) sev.set(r.p.subarray(0, cut), m);
+  if (N.kind.type === "lattice" && N.kind.step === 0) {
+    // a fixed count k: the k-fold power
+    const kk = N.kind.origin;
+    if (kk === 0) return { origin: 0, step: g, p: Float64Array.of(1), tailMass: 0 };
+    const pw = powerTable({ origin: 0, step: g, p: sev, tailMass: 0 }, kk, len);
+    let s = 0;
+    for (let i = 0; i < pw.p.length; i++) s += pw.p[i];
+    return { origin: 0, step: g, p: pw.p, tailMass: Math.max(0, 1 - s) };
+  }
+  if (N.panjer) {
+    if (len * sev.length <= 4e8) {
+      const p = panjer({ a: N.panjer.a, b: N.panjer.b, pgf: (z) => pgfAt(N, z) }, sev, len);
+      if (p) {
+        let s = 0;
+        for (let i = 0; i < p.length; i++) s += p[i];
+        return { origin: 0, step: g, p, tailMass: Math.max(0, 1 - s) };
+      }
+      // P(S = 0) underflows (large expected counts): run the recursion for the count divided into 2^m equal
+      // independent parts and take the 2^m-fold power (Loss Models, aggregate loss chapter; recalled from memory)
+      if (N.divide) {
+        for (let m = 2; m <= 2 ** 30; m *= 2) {
+          const part = N.divide(m);
+          if (part.pgf(sev[0]) > 1e-200) {
+            const q = panjer(part, sev, len);
+            if (!q) break;
+            const pw = powerTable({ origin: 0, step: g, p: q, tailMass: 0 }, m, len);
+            let s = 0;
+            for (let i = 0; i < pw.p.length; i++) s += pw.p[i];
+            return { origin: 0, step: g, p: pw.p, tailMass: Math.max(0, 1 - s) };
+          }
+        }
+      }
+    }
+  }
+  // count with a short table (its own dropped tail below 1e-16, carried into tailMass): sum_k P(N=k) X^{*k}
+  const nt = N.table?.(4097);
+  if (nt && nt.tailMass <= 1e-16 && nt.p.length <= 4096 && nt.origin >= 0 && nt.step === 1 && Number.isInteger(nt.origin)) {
+    const out = new Float64Array(len);
+    const sevTab: LatticeTable = { origin: 0, step: g, p: sev, tailMass: 0 };
+    let cur: LatticeTable = { origin: 0, step: g, p: Float64Array.of(1), tailMass: 0 };
+    const kmax = nt.origin + nt.p.length - 1;
+    for (let kk = 0; kk <= kmax; kk++) {
+      const w = kk >= nt.origin ? nt.p[kk - nt.origin] : 0;
+      if (w > 0) for (let i = 0; i < cur.p.length && i < len; i++) out[i] += w * cur.p[i];
+      if (kk < kmax) cur = convolveTables([cur, sevTab], len);
+    }
+    let s = 0;
+    for (let i = 0; i < len; i++) s += out[i];
+    return { origin: 0, step: g, p: out, tailMass: Math.max(0, 1 - s) };
+  }
+  return null;
+}
+

@@ -1,0 +1,256 @@
+import type { Node } from "./node";
+import type { LatticeTable } from "./types";
+import { getFftPlan } from "./fftplan";
+import { unwrapFrom } from "./complex";
+
+/** What a severity without a cheap CF offers for discretisation (lognormal, pareto, weibull). */
+export interface SeverityLaw {
+  name: string;
+  pdf(x: number): number;
+  /** lower end of the support (density zero below) */
+  lo: number;
+  /** an x with P(X > x) <= q (upper bound on the upper q-quantile) */
+  upper(q: number): number;
+  /** typical size (median or xm): the span is a fraction of it */
+  scale: number;
+  /** density unbounded or not smooth at 0 (weibull): the first cell is integrated after x = b u^m */
+  rootAtZero: number;
+  /**
+   * the continuous-CF route is fast and far more accurate for this law (smooth density, quickly decaying CF):
+   * compounds keep it unless discretisation is forced
+   */
+  cfRouteFast: boolean;
+}
+
+/** Options that decide the lattice of a discretised compound. */
+export interface DiscretiseOptions {
+  /** target cdf error; the span is chosen from it, the count mean and the law's scale */
+  tolerance?: number;
+  /** explicit span h (overrides the choice) */
+  span?: number;
+  /** discretise every lognormal/pareto/weibull severity, also those whose CF route is fast (lognormal, sigma < 1) */
+  force?: boolean;
+  /** largest number of lattice points kept (power of two; default 2^16, 2^20 with a tolerance) */
+  maxPoints?: number;
+}
+
+/** Gauss-Legendre nodes and weights on [0, 1] by Newton's method on P_n (Abramowitz & Stegun 25.4.29). */
+function gaussLegendre(n: number): { x: Float64Array; w: Float64Array } {
+  const x = new Float64Array(n);
+  const w = new Float64Array(n);
+  for (let i = 0; i < n; i++) {
+    let z = Math.cos((Math.PI * (i + 0.75)) / (n + 0.5));
+    let dp = 1;
+    for (let it = 0; it < 100; it++) {
+      let p0 = 1;
+      let p1 = z;
+      for (let k = 2; k <= n; k++) {
+        const p2 = ((2 * k - 1) * z * p1 - (k - 1) * p0) / k;
+        p0 = p1;
+        p1 = p2;
+      }
+      dp = (n * (z * p1 - p0)) / (z * z - 1);
+      const dz = p1 / dp;
+      z -= dz;
+      if (Math.abs(dz) < 1e-16) break;
+    }
+    x[i] = (1 - z) / 2;
+    w[i] = 1 / ((1 - z * z) * dp * dp);
+  }
+  return { x, w };
+}
+const GL = gaussLegendre(10);
+const GL4 = gaussLegendre(4);
+
+/**
+ * Split the severity's mass over the lattice 0, h, 2h, ..., (len-1)h. For each cell [jh, (j+1)h] the integrals
+ * A_j = int ((j+1)h - x)/h f(x) dx and B_j = int (x - jh)/h f(x) dx (Gauss-Legendre: 10 nodes per panel near
+ * the start of the support, 4 beyond 64 cells) give
+ *  - mean-preserving masses: A_j to jh and B_j to (j+1)h (local moment matching of order 1, Gerber & Jones 1976;
+ *    Loss Models, discretization of the severity distribution; recalled from memory);
+ *  - rounded down: A_j + B_j to jh; rounded up: A_j + B_j to (j+1)h.
+ * The mass beyond the last cell is left out (the tables then sum to less than 1).
+ */
+export function discretiseSeverity(sev: SeverityLaw, h: number, len: number): { mp: Float64Array; down: Float64Array; up: Float64Array } {
+  const mp = new Float64Array(len);
+  const down = new Float64Array(len);
+  const up = new Float64Array(len);
+  const { x: gx, w: gw } = GL;
+  const G = gx.length;
+  const { x: fx, w: fw4 } = GL4;
+  const first = Math.max(0, Math.floor(sev.lo / h));
+  for (let j = first; j < len - 1; j++) {
+    const a = j * h;
+    const b = a + h;
+    const a0 = Math.max(a, sev.lo);
+    if (b <= a0) continue;
+    let A = 0;
+    let B = 0;
+    if (j === 0 && sev.rootAtZero > 1) {
+      // x = b u^m: the singular factor x^(k-1) becomes a smooth power of u
+      const m = sev.rootAtZero;
+      const panels = 8;
+      for (let q = 0; q < panels; q++) {
+        for (let g = 0; g < G; g++) {
+          const u = (q + gx[g]) / panels;
+          const x = b * u ** m;
+          const jac = (m * b * u ** (m - 1)) / panels;
+          const fw = gw[g] * jac * sev.pdf(x);
+          A += fw * (b - x);
+          B += fw * (x - a);
+        }
+      }
+    } else if (j - first >= 64 && a0 === a) {
+      // far from the start the density varies on the scale x >> h: 4 nodes (error ~ (h/x)^8 relative)
+      for (let g = 0; g < 4; g++) {
+        const x = a + fx[g] * h;
+        const f = fw4[g] * h * sev.pdf(x);
+        A += f * (b - x);
+        B += f * (x - a);
+      }
+    } else {
+      // more panels where the density changes fast relative to h (near the support's start and near 0)
+      const panels = j - first < 16 || a0 > a ? 8 : 1;
+      const d = (b - a0) / panels;
+      for (let q = 0; q < panels; q++) {
+        const lo = a0 + q * d;
+        for (let g = 0; g < G; g++) {
+          const x = lo + gx[g] * d;
+          const fw = gw[g] * d * sev.pdf(x);
+          A += fw * (b - x);
+          B += fw * (x - a);
+        }
+      }
+    }
+    A /= h;
+    B /= h;
+    mp[j] += A;
+    mp[j + 1] += B;
+    down[j] += A + B;
+    up[j + 1] += A + B;
+  }
+  return { mp, down, up };
+}
+
+/** Scratch for one compound transform of size M. */
+interface Scratch {
+  wr: Float64Array;
+  wi: Float64Array;
+  re: Float64Array;
+  im: Float64Array;
+}
+
+/**
+ * pmf of the compound sum of a lattice severity f (on 0, h, 2h, ...) by the discrete Fourier transform:
+ * p = IDFT( P_N(DFT f) ) on M points (Loss Models, aggregate losses by FFT; recalled from memory). Mass of S beyond
+ * (M-1)h wraps round to the low indices (aliasing).
+ */
+function compoundByFft(N: Node, f: Float64Array, M: number, s: Scratch): Float64Array {
+  const plan = getFftPlan(M);
+  const a = plan.a;
+  const b = plan.b;
+  a.fill(0);
+  for (let k = 0; k < f.length; k++) a[2 * (k % M)] += f[k];
+  plan.forward(a, b);
+  // b_j = conj phi_X(t_j), t_j = 2 pi j / (M h); phi at M - j is the conjugate of phi at j (real severity), so only
+  // j <= M/2 is evaluated and the rest mirrored
+  const H = M / 2;
+  for (let j = 0; j <= H; j++) {
+    const x = b[2 * j];
+    const y = b[2 * j + 1];
+    const r2 = x * x + y * y;
+    s.wr[j] = r2 > 0 ? Math.min(0, 0.5 * Math.log(r2)) : -745;
+    s.wi[j] = -Math.atan2(y, x);
+  }
+  unwrapFrom(s.wi, 0, H + 1);
+  const wr = s.wr.subarray(0, H + 1);
+  const wi = s.wi.subarray(0, H + 1);
+  N.countCgf!(wr, wi, s.re.subarray(0, H + 1), s.im.subarray(0, H + 1));
+  for (let j = 0; j <= H; j++) {
+    const m = Math.exp(s.re[j]);
+    const c = m * Math.cos(s.im[j]);
+    const d = m * Math.sin(s.im[j]);
+    a[2 * j] = c;
+    a[2 * j + 1] = d;
+    if (j > 0 && j < H) {
+      a[2 * (M - j)] = c;
+      a[2 * (M - j) + 1] = -d;
+    }
+  }
+  plan.forward(a, b);
+  const p = new Float64Array(M);
+  for (let k = 0; k < M; k++) p[k] = b[2 * k] / M;
+  return p;
+}
+
+export interface DiscretisedCompound {
+  table: LatticeTable;
+  /** bound on |F_table(x) - F(x)| over the table (discretisation between rounded-down/up laws, plus aliasing) */
+  cdfError: number;
+  /** the pieces of cdfError */
+  bracket: number;
+  aliasing: number;
+  span: number;
+  points: number;
+}
+
+/** Span and lattice size for a compound with count mean `nMean` and severity `sev`. */
+export function chooseSpan(sev: SeverityLaw, nMean: number, sMean: number | null, sSd: number | null, o: DiscretiseOptions = {}): { h: number; K: number } {
+  const tol = o.tolerance && o.tolerance > 0 ? o.tolerance : 0;
+  // a requested tolerance may use up to 2^20 points; otherwise 2^16 keeps a request well under a second
+  const Kmax = o.maxPoints ?? (tol ? 2 ** 20 : 2 ** 16);
+  // where the compound's tail falls below ~1e-10: the severity's tail bound scaled by the count (subexponential
+  // laws: P(S > x) ~ E N P(X > x)) and mean + 20 sd where the variance exists
+  let R = sev.upper(1e-10 / Math.max(1, nMean));
+  if (sMean !== null && sSd !== null && Number.isFinite(sSd)) R = Math.max(R, sMean + 20 * sSd);
+  const fit = (h: number) => Math.min(Kmax, Math.max(16, 2 ** Math.ceil(Math.log2(R / h))));
+  if (o.span && o.span > 0) return { h: o.span, K: fit(o.span) };
+  let h = R / Kmax;
+  // resolution: at most scale/16; at least scale/4096 (finer buys nothing at this table size)
+  h = Math.min(Math.max(h, sev.scale / 4096), sev.scale / 16);
+  // the bracket is about E N h sup f_X <~ E N h / scale: no finer than the tolerance needs
+  if (tol) h = Math.max(h, Math.min((tol * sev.scale) / (2 * Math.max(1, nMean)), sev.scale / 16));
+  // a binary fraction of the scale, so that round numbers sit on the lattice when the scale is round
+  h = sev.scale * 2 ** Math.floor(Math.log2(h / sev.scale));
+  return { h, K: fit(h) };
+}
+
+/**
+ * Compound of a count N (with countCgf) and a discretised severity: mean-preserving table on span h with K points,
+ * plus an honest cdf error: the true cdf lies between the cdfs of the compounds with rounded-up and rounded-down
+ * severities (stochastic order: X_down <= X <= X_up and X_down <= X_h <= X_up pointwise), so
+ * |F_h - F| <= max_k max(F_down - F_h, F_h - F_up)(kh), and the same between lattice points (all are flat there); the wrapped mass is bounded by the mass in the window's upper half
+ * (valid for tails no heavier than x^-1).
+ */
+export function discretisedCompound(N: Node, sev: SeverityLaw, h: number, K: number): DiscretisedCompound {
+  const M = 2 * K;
+  const { mp, down, up } = discretiseSeverity(sev, h, K + 1);
+  const s: Scratch = { wr: new Float64Array(M), wi: new Float64Array(M), re: new Float64Array(M), im: new Float64Array(M) };
+  const p = compoundByFft(N, mp, M, s);
+  const pd = compoundByFft(N, down, M, s);
+  const pu = compoundByFft(N, up, M, s);
+  let aliasing = 0;
+  for (let k = K; k < M; k++) aliasing += Math.abs(p[k]);
+  let cd = 0;
+  let cu = 0;
+  let kept = 0;
+  let bracket = 0;
+  const out = new Float64Array(K);
+  for (let k = 0; k < K; k++) {
+    out[k] = Math.max(p[k], 0);
+    kept += p[k];
+    cd += pd[k];
+    cu += pu[k];
+    // F and F_h both lie in [F_up, F_down]: |F_h - F| <= max(F_down - F_h, F_h - F_up)
+    bracket = Math.max(bracket, cd - kept, kept - cu);
+  }
+  const round = 64 * Number.EPSILON * Math.sqrt(M);
+  return {
+    table: { origin: 0, step: h, p: out, tailMass: Math.max(0, 1 - kept) },
+    cdfError: bracket + 2 * aliasing + round,
+    bracket,
+    aliasing,
+    span: h,
+    points: K,
+  };
+}

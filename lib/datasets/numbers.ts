@@ -1,0 +1,24 @@
+// Plain decimal or scientific notation with a dot: what spreadsheets and programs export when asked for CSV.
+const NUMBER = /^[+-]?(?:\d+\.?\d*|\.\d+)(?:[eE][+-]?\d+)?$/;
+
+/** The finite number a cell holds, or null. Surrounding spaces are ignored; "NaN", "Inf", "0x1f" are not numbers. */
+export function parseCell(cell: string): number | null {
+  const s = cell.trim();
+  if (!NUMBER.test(s)) return null;
+  const v = Number(s);
+  return Number.isFinite(v) ? v : null;
+}
+
+/** Why a non-empty cell is not a number, in words a person can act on (null when no specific hint applies). */
+export function numberHint(cell: string): string | null {
+  const s = cell.trim();
+  if (NUMBER.test(s)) return "it overflows a double-precision number";
+  if (/^[+-]?\d{1,3}(?:[ ,.'\u00a0\u202f]\d{3})+(?:[.,]\d+)?$/.test(s)) return "it seems to use a thousands separator; remove it";
+  if (/^[+-]?\d*,\d+(?:[eE][+-]?\d+)?$/.test(s)) return "it seems to use a decimal comma; use a dot as the decimal separator";
+  if (/^[+-]?(?:nan|inf|infinity)$/i.test(s)) return "only finite numbers are accepted";
+  if (/^[-+]?[$€£¥]|[$€£¥%]$/.test(s)) return "remove the currency or percent sign";
+  return null;
+}
+
+/** True when v is a whole number (counts of a frequency table). */
+export const isWhole = (v: number) => Number.isInteger(v);

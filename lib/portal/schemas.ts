@@ -1,0 +1,87 @@
+import { z } from "zod";
+import { GRACE_PERIODS } from "@/lib/api/key-state";
+import { ALL_SCOPES } from "@/lib/api/scopes";
+import type { Role } from "@/lib/db/schema";
+
+// The portal's form and request schemas, shared by the browser (form validation) and the handlers.
+
+// Spelled out (not imported from the Drizzle schema) so the browser bundle stays free of the ORM; the
+// `satisfies` keeps the list equal to the database enum's type.
+const ROLES = ["admin", "developer", "billing"] as const satisfies readonly Role[];
+
+const email = z.string().trim().toLowerCase().pipe(z.email({ error: "Enter an e-mail address like name@company.com." }));
+export const password = z
+  .string()
+  .min(10, { error: "Use at least 10 characters." })
+  .max(200, { error: "Use at most 200 characters." });
+const name = z.string().trim().min(1, { error: "Enter your name." }).max(160, { error: "Use at most 160 characters." });
+
+export const signInSchema = z.object({ email, password: z.string().min(1, { error: "Enter your password." }).max(200) });
+
+export const signUpSchema = z.object({
+  name,
+  email,
+  password,
+  organization: z.string().trim().min(2, { error: "Name your organisation (2 characters or more)." }).max(160, { error: "Use at most 160 characters." }),
+});
+
+export const emailOnlySchema = z.object({ email });
+export const tokenSchema = z.object({ token: z.string().min(20).max(200) });
+export const resetSchema = z.object({ token: z.string().min(20).max(200), password });
+
+export const switchOrgSchema = z.object({ organizationId: z.coerce.number().int().positive() });
+
+export const keyCreateSchema = z.object({
+  label: z.string().trim().min(1, { error: "Give the key a label, e.g. “pricing batch job”." }).max(120, { error: "Use at most 120 characters." }),
+  scopes: z.array(z.enum(ALL_SCOPES as [string, ...string[]])).min(1, { error: "Pick at least one endpoint group." }),
+  /** ISO date (YYYY-MM-DD) or empty for no expiry; must lie in the future. */
+  expiresOn: z
+    .string()
+    .trim()
+    .optional()
+    .refine((s) => !s || /^\d{4}-\d{2}-\d{2}$/.test(s), { error: "Use a date like 2027-03-31." })
+    .refine((s) => !s || new Date(`${s}T23:59:59.999Z`) > new Date(), { error: "Pick a date after today." }),
+});
+export type KeyCreateInput = z.infer<typeof keyCreateSchema>;
+
+export const GRACE_CHOICES = Object.keys(GRACE_PERIODS) as (keyof typeof GRACE_PERIODS)[];
+export const GRACE_LABELS: Record<keyof typeof GRACE_PERIODS, string> = {
+  immediately: "Immediately",
+  "1h": "After 1 hour",
+  "24h": "After 24 hours",
+  "7d": "After 7 days",
+};
+export const rotateSchema = z.object({ grace: z.enum(GRACE_CHOICES as [keyof typeof GRACE_PERIODS, ...(keyof typeof GRACE_PERIODS)[]]) });
+
+export const inviteSchema = z.object({ email, role: z.enum(ROLES) });
+export const roleChangeSchema = z.object({ role: z.enum(ROLES) });
+export const acceptInvitationSchema = z.object({
+  token: z.string().min(20).max(200),
+  /** needed only when the invited address has no account yet */
+  name: z.string().trim().max(160).optional(),
+  password: z.string().min(1, { error: "Enter a password." }).max(200),
+});
+
+const isoDay = z.string().regex(/^\d{4}-\d{2}-\d{2}$/, { error: "Use a date like 2026-12-01." });
+export const USAGE_SORTS = ["day", "key", "endpoint", "requests", "units", "errors", "medianMs"] as const;
+export const usageQuerySchema = z.object({
+  from: isoDay.optional(),
+  to: isoDay.optional(),
+  keyId: z.coerce.number().int().positive().optional(),
+  endpoint: z.string().max(64).optional(),
+  sort: z.enum(USAGE_SORTS).default("day"),
+  dir: z.enum(["asc", "desc"]).default("desc"),
+  page: z.coerce.number().int().min(1).default(1),
+  pageSize: z.coerce.number().int().min(1).max(500).default(25),
+});
+export type UsageQuery = z.infer<typeof usageQuerySchema>;
+
+/** Field errors from a zod error, keyed by the first path segment (for forms). */
+export function fieldErrors(error: z.ZodError): Record<string, string> {
+  const out: Record<string, string> = {};
+  for (const issue of error.issues) {
+    const k = String(issue.path[0] ?? "_");
+    out[k] ??= issue.message;
+  }
+  return out;
+}

@@ -1,0 +1,95 @@
+// A newcomer: sign up -> confirm the address from the mail -> sign in -> create a key (secret shown once) ->
+// call the API with it -> see the call in the usage table.
+import { afterAll, beforeAll, describe, expect, it } from "vitest";
+import { launchBrowser } from "../support/browser";
+import { baseUrl } from "../support/layout";
+import { callMoments, linkIn, mailTo, shot, signIn, uniq } from "./portal-support";
+
+let session: Awaited<ReturnType<typeof launchBrowser>>;
+beforeAll(async () => {
+  session = await launchBrowser();
+});
+afterAll(async () => {
+  await session?.close();
+});
+
+describe("newcomer flow", () => {
+  it("signs up, confirms, creates a key, calls the API and sees the call in usage", { timeout: 120_000 }, async () => {
+    const page = await session.browser.newPage();
+    const email = `oskar.brandt.${uniq()}@tidewater.example`;
+    const password = "tidewater-claims-42";
+
+    await page.goto(`${baseUrl()}/sign-up`);
+    await expect(page.title()).resolves.toContain("Create an account");
+    // Client-side validation with the shared schema: errors are tied to their fields.
+    await page.getByRole("button", { name: "Create account" }).click();
+    const nameField = page.getByLabel("Your name");
+    await expect(nameField.getAttribute("aria-invalid")).resolves.toBe("true");
+    const describedBy = (await nameField.getAttribute("aria-describedby"))!;
+    await expect(page.locator(`[id="${describedBy.split(" ").pop()}"]`).innerText()).resolves.toMatch(/enter your name/i);
+    await shot(page, "signup-errors");
+
+    await nameField.fill("Oskar Brandt");
+    await page.getByLabel("Work e-mail").fill(email);
+    await page.getByLabel("Organisation").fill("Tidewater Syndicate");
+    await page.getByLabel("Password").fill(password);
+    await page.getByRole("button", { name: "Create account" }).click();
+    await page.getByRole("heading", { name: "Check your inbox" }).waitFor();
+    await shot(page, "signup-done");
+
+    // Signing in before confirming is refused with a way forward.
+    await page.goto(`${baseUrl()}/sign-in`);
+    await page.getByLabel("E-mail").fill(email);
+    await page.getByLabel("Password").fill(password);
+    await page.getByRole("button", { name: "Sign in" }).click();
+    await page.getByRole("alert").filter({ hasText: /confirm your e-mail address first/i }).waitFor();
+
+    const [mail] = await mailTo(email);
+    expect(mail.subject).toMatch(/confirm/i);
+    await page.goto(linkIn(mail.text, "/verify"));
+    await page.getByRole("button", { name: "Confirm my address" }).click();
+    await page.waitForURL(/\/sign-in\?notice=verified/);
+    await expect(page.getByRole("status").first().innerText()).resolves.toMatch(/confirmed/i);
+
+    await signIn(page, email, password);
+    await expect(page.getByRole("heading", { level: 1 }).innerText()).resolves.toContain("Hello, Oskar");
+    await shot(page, "dashboard-admin");
+
+    await page.getByRole("navigation", { name: "Portal" }).getByRole("link", { name: "API keys" }).click();
+    await page.getByText("No keys yet").waitFor();
+    await page.getByRole("button", { name: "New key" }).click();
+    await page.getByLabel("Label").fill("reserving notebook");
+    await page.getByRole("button", { name: "Create key" }).click();
+    const secretEl = page.getByTestId("new-secret");
+    await secretEl.waitFor();
+    const secret = (await secretEl.innerText()).trim();
+    expect(secret).toMatch(/^sfk_/);
+    await page.getByRole("button", { name: "Copy" }).click();
+    await expect(page.getByRole("status").filter({ hasText: /clipboard|blocked/ }).innerText()).resolves.toMatch(/clipboard|blocked/);
+    await shot(page, "key-created");
+
+    const call = await callMoments(secret);
+    expect(call.status, JSON.stringify(call.body)).toBe(200);
+
+    // Hiding the secret removes it from the page for good.
+    await page.getByRole("button", { name: /I have stored it/ }).click();
+    await expect(page.getByTestId("new-secret").count()).resolves.toBe(0);
+    await expect(page.content()).resolves.not.toContain(secret);
+
+    await page.getByRole("navigation", { name: "Portal" }).getByRole("link", { name: "Usage" }).click();
+    // Metering writes in batches (about every half second): reload until the call shows.
+    const row = page.getByRole("row").filter({ hasText: "POST /api/v1/moments" });
+    await page.getByRole("heading", { name: "Usage", exact: true }).waitFor();
+    await page.waitForLoadState("networkidle");
+    for (let i = 0; i < 20 && (await row.count()) === 0; i++) {
+      await page.waitForTimeout(500);
+      await page.reload({ waitUntil: "networkidle" });
+    }
+    await shot(page, "usage-after-call");
+    await expect(row.count()).resolves.toBe(1);
+    await expect(row.innerText()).resolves.toContain("reserving notebook");
+    await expect(page.getByRole("note").first().innerText()).resolves.toMatch(/computational aids/i);
+    await page.locator("figure svg").first().waitFor();
+    await page.close();
+  });
+});

@@ -1,0 +1,160 @@
+// Compounds with lognormal/pareto/weibull severities are discretised (mean-preserving) onto a lattice and tabulated by
+// FFT; the stated cdf error bound must cover the actual error against outside references.
+import { describe, expect, it } from "vitest";
+import jStat from "jstat";
+import { compile, type Model } from "@/lib/cf";
+import { close, record, worst } from "./model-assert";
+
+const poissonWeibull1 = (lambda: number, scale: number) =>
+  ({ compound: { count: { family: "poisson", lambda }, each: { family: "weibull", shape: 1, scale } } }) as Model;
+
+/**
+ * Compound Poisson(lambda) with exponential(1/scale) claims: F(x) = e^-lambda + sum_n P(N=n) P(Gamma(n, scale) <= x)
+ * (Klugman, Panjer & Willmot, Loss Models, compound Poisson with exponential severity; Erlang mixture), with the gamma
+ * cdf from jstat (jStat.gamma.cdf); weibull with shape 1 is the exponential law (JKB vol. 1, ch. 21).
+ */
+function erlangMixtureCdf(lambda: number, scale: number, x: number): number {
+  let s = Math.exp(-lambda);
+  let pn = Math.exp(-lambda);
+  for (let n = 1; n < 200; n++) {
+    pn *= lambda / n;
+    s += pn * jStat.gamma.cdf(x, n, scale);
+  }
+  return s;
+}
+
+describe("discretised compound: classification, notes, mean", () => {
+  it("NB(3, 0.2) x pareto(2.5, 1) is a lattice law whose notes state the discretisation and its error", () => {
+    const c = compile({ compound: { count: { family: "negative_binomial", r: 3, p: 0.2 }, each: { family: "pareto", alpha: 2.5, xm: 1 } } });
+    expect(c.kind.type).toBe("lattice");
+    const t = c.exactLattice!(2 ** 20)!;
+    expect(t.cdfError).toBeGreaterThan(0);
+    expect(c.notes.join(" ")).toMatch(/pareto severity discretised mean-preserving/);
+    expect(c.notes.join(" ")).toMatch(/discretisation error: \|cdf - cdf of the continuous law\| <= /);
+    // the atom at 0 is P(N = 0) = p^r exactly (the severity is >= xm > 0)
+    close(t.p[0], 0.2 ** 3, { rel: 1e-12 }, "P(S = 0) = p^r");
+    // mean preserved: sum k h p_k = E N E X = 12 * 5/3 = 20 (Loss Models, compound mean), up to the truncated tail
+    let m = 0;
+    for (let k = 0; k < t.p.length; k++) m += k * t.step * t.p[k];
+    close(m, 20, { rel: 2e-3 }, "mean of the discretised compound (table cut at its end)");
+  });
+  it("discretise: false keeps the continuous route (mixed law with the atom P(N=0))", () => {
+    const c = compile({ compound: { count: { family: "poisson", lambda: 2 }, each: { family: "lognormal", mu: 0, sigma: 1 } } }, { discretise: false });
+    expect(c.kind.type).toBe("mixed");
+  });
+  it("lognormal with sigma < 1 keeps the fast continuous-CF route by default (mixed: atom P(N=0)); sigma 2 is discretised", () => {
+    expect(compile({ compound: { count: { family: "poisson", lambda: 20 }, each: { family: "lognormal", mu: 1, sigma: 0.8 } } }).kind.type).toBe("mixed");
+    expect(compile({ compound: { count: { family: "poisson", lambda: 5 }, each: { family: "lognormal", mu: 0, sigma: 2 } } }).kind.type).toBe("lattice");
+  });
+  it("exact cumulants are kept (the approximation only concerns the table)", () => {
+    const c = compile({ compound: { count: { family: "poisson", lambda: 20 }, each: { family: "lognormal", mu: 1, sigma: 0.8 } } }, { discretise: { force: true } });
+    // compound Poisson cumulants kappa_n = lambda E X^n, E X^n = exp(n mu + n^2 sigma^2 / 2) (JKB vol. 1, ch. 14)
+    const k = c.cumulants(2);
+    close(k[0]!, 20 * Math.exp(1 + 0.32), { rel: 1e-12 }, "kappa_1");
+    close(k[1]!, 20 * Math.exp(2 + 4 * 0.32), { rel: 1e-12 }, "kappa_2");
+  });
+});
+
+describe("discretised compound vs independent references for heavy severities", () => {
+  /**
+   * NB(r=3, p=0.2) x pareto(2.5, xm=1) below 3 xm: at most two claims fit, so F(x) = P(N=0) + P(N=1) F_X(x) +
+   * P(N=2) P(X1 + X2 <= x), F_X(x) = 1 - (xm/x)^alpha (JKB vol. 1, ch. 20), P(N=n) = C(n+r-1, n) p^r (1-p)^n
+   * (JKK ch. 5), and P(X1 + X2 <= x) = int_xm^{x-xm} F_X(x - y) f_X(y) dy by brute-force composite Gauss-Legendre
+   * quadrature (jStat-free; 4000 panels of 3 nodes, far below the tolerance).
+   */
+  const alpha = 2.5;
+  const FX = (x: number) => (x < 1 ? 0 : 1 - x ** -alpha);
+  const fX = (x: number) => (x < 1 ? 0 : alpha * x ** (-alpha - 1));
+  const conv2 = (x: number) => {
+    if (x <= 2) return 0;
+    const a = 1;
+    const b = x - 1;
+    const P = 4000;
+    const d = (b - a) / P;
+    const gx = [0.5 - Math.sqrt(0.15), 0.5, 0.5 + Math.sqrt(0.15)];
+    const gw = [5 / 18, 8 / 18, 5 / 18];
+    let s = 0;
+    for (let q = 0; q < P; q++) for (let g = 0; g < 3; g++) {
+      const y = a + (q + gx[g]) * d;
+      s += gw[g] * d * FX(x - y) * fX(y);
+    }
+    return s;
+  };
+  const p0 = 0.2 ** 3;
+  const p1 = 3 * 0.2 ** 3 * 0.8;
+  const p2 = 6 * 0.2 ** 3 * 0.8 ** 2;
+  const F = (x: number) => p0 + p1 * FX(x) + p2 * conv2(x);
+  it("NB(3, 0.2) x pareto(2.5, 1): |F_h - F| <= stated bound at points in [0, 3)", () => {
+    const c = compile({ compound: { count: { family: "negative_binomial", r: 3, p: 0.2 }, each: { family: "pareto", alpha, xm: 1 } } });
+    const t = c.exactLattice!(2 ** 20)!;
+    const bound = t.cdfError!;
+    let worstErr = 0;
+    for (const x of [0.5, 1, 1.2, 1.5, 1.99, 2.3, 2.5, 2.75, 2.99]) {
+      const k = Math.floor(x / t.step + 1e-9);
+      let cdf = 0;
+      for (let i = 0; i <= k; i++) cdf += t.p[i];
+      const ref = F(x);
+      const err = Math.abs(cdf - ref);
+      worstErr = Math.max(worstErr, err);
+      if (!(err <= bound)) expect.fail(`x=${x}: lattice cdf ${cdf}, reference ${ref}, difference ${err}, stated bound ${bound}`);
+    }
+    record("discretised compound cdf error (NB x pareto, x < 3)", worstErr);
+    record("stated bound (NB x pareto)", bound);
+  });
+  it("Poisson(20) x lognormal(1, 0.8): agrees with the continuous-CF inversion within both stated errors", async () => {
+    const { density } = await import("@/lib/cf");
+    const m = { compound: { count: { family: "poisson", lambda: 20 }, each: { family: "lognormal", mu: 1, sigma: 0.8 } } } as Model;
+    const xs = [30, 60, 90, 150];
+    const cont = density(compile(m, { discretise: false }), { x: xs, method: "gil-pelaez", cdfOnly: true, tolerance: 1e-7 });
+    const c = compile(m, { discretise: { force: true } });
+    expect(c.kind.type).toBe("lattice");
+    const t = c.exactLattice!(2 ** 20)!;
+    let worstErr = 0;
+    xs.forEach((x, i) => {
+      const k = Math.floor(x / t.step + 1e-9);
+      let cdf = 0;
+      for (let j = 0; j <= k; j++) cdf += t.p[j];
+      const err = Math.abs(cdf - cont.cdf[i]);
+      const bound = t.cdfError! + cont.diagnostics.error.cdf;
+      worstErr = Math.max(worstErr, err);
+      if (!(err <= bound)) expect.fail(`x=${x}: lattice cdf ${cdf}, continuous inversion ${cont.cdf[i]}, difference ${err}, stated bound ${bound}`);
+    });
+    record("discretised compound cdf vs continuous inversion (Poisson(20) x lognormal)", worstErr);
+    record("stated bound (Poisson(20) x lognormal)", t.cdfError!);
+  });
+});
+
+describe("discretised compound vs the Erlang-mixture closed form (weibull shape 1 = exponential severity)", () => {
+  const cases: [number, number][] = [
+    [2, 1],
+    [10, 0.5],
+  ];
+  it.each(cases)("Poisson(%d) x weibull(1, %d): |F_h(kh) - F(kh)| <= stated bound", (lambda, scale) => {
+    const c = compile(poissonWeibull1(lambda, scale));
+    const t = c.exactLattice!(2 ** 20)!;
+    const bound = t.cdfError!;
+    let cdf = 0;
+    let worstErr = 0;
+    const mean = lambda * scale;
+    for (let k = 0; k < t.p.length; k++) {
+      cdf += t.p[k];
+      const x = k * t.step;
+      if (x > mean * 6) break;
+      if (k % 37 !== 0) continue;
+      // between lattice points the lattice cdf is flat: compare at x and just below the next point
+      for (const y of [x, x + 0.999 * t.step]) {
+        const err = Math.abs(cdf - erlangMixtureCdf(lambda, scale, y));
+        worstErr = Math.max(worstErr, err);
+        if (!(err <= bound)) expect.fail(`x=${y}: lattice cdf ${cdf}, Erlang mixture ${erlangMixtureCdf(lambda, scale, y)}, difference ${err}, stated bound ${bound}`);
+      }
+    }
+    record(`discretised compound cdf error (Poisson(${lambda}) x exp)`, worstErr);
+    record(`stated bound (Poisson(${lambda}) x exp)`, bound);
+    // the bound is of the size of the jump of the step cdf, not wildly loose
+    expect(bound).toBeLessThan(40 * worstErr + 1e-12);
+  });
+  it("print worst errors", () => {
+    console.log("worst errors (discretised compounds):", JSON.stringify(worst, null, 1));
+    expect(Object.keys(worst).length).toBeGreaterThan(0);
+  });
+});
