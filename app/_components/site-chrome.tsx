@@ -1,15 +1,7 @@
 import { cookies } from "next/headers";
 import Link from "next/link";
 import { sessionUserId } from "@/lib/auth/session";
-
-export function Caution({ className = "" }: { className?: string }) {
-  return (
-    <p role="note" className={`rounded-md border border-caution-500/40 bg-caution-50 px-4 py-3 text-sm text-caution-700 ${className}`}>
-      <strong className="font-semibold">Caution.</strong> Sumfold&rsquo;s results are computational aids. Capital, reserving,
-      pricing and safety-tolerance decisions rest with licensed practice and local regulation.
-    </p>
-  );
-}
+import { Caution } from "./caution";
 
 /** The signed-in person's id from the session cookie, or null (no database look-up: the link only). */
 async function signedIn(): Promise<boolean> {

@@ -1,6 +1,6 @@
 import type { Metadata } from "next";
 import Link from "next/link";
-import { Caution } from "../_components/site-chrome";
+import { Caution } from "@/app/_components/caution";
 import { Reference } from "./_components/reference";
 
 export const metadata: Metadata = { title: "API reference" };

@@ -90,12 +90,16 @@ export async function checkLimits(input: { keyId: number; organizationId: number
   const planName = (input.plan in PLANS ? input.plan : "starter") as PlanName;
   const plan = planOf(planName);
   try {
-    const r = await withTimeout(limiter(planName).limit(String(input.keyId)));
+    const key = monthKey(input.organizationId);
+    // Both calls leave in the same tick, so the client's auto-pipelining sends them in one round trip.
+    const [r, charged] = await withTimeout(Promise.all([limiter(planName).limit(String(input.keyId)), redis().incrby(key, input.units)]));
     if (r.reason === "timeout") return localDecision(input.keyId, plan.requestsPerSecond);
     const decision: LimitDecision = { allowed: r.success, limit: r.limit, remaining: r.remaining, reset: r.reset, source: "redis" };
-    if (!r.success) return decision;
-    const key = monthKey(input.organizationId);
-    let used = await withTimeout(redis().incrby(key, input.units));
+    if (!r.success) {
+      void redis().decrby(key, input.units).catch(() => {});
+      return decision;
+    }
+    let used = charged;
     if (used === input.units) {
       // A new month, or Redis lost its counter: start from what the database has recorded this month.
       void redis().expire(key, 40 * 86_400).catch(() => {});

@@ -13,6 +13,8 @@ export interface SeverityLaw {
   upper(q: number): number;
   /** typical size (median or xm): the span is a fraction of it */
   scale: number;
+  /** power-law tail index (P(X > x) = (xm/x)^alpha for pareto); Infinity for lighter tails */
+  tailIndex: number;
   /** density unbounded or not smooth at 0 (weibull): the first cell is integrated after x = b u^m */
   rootAtZero: number;
   /**
@@ -30,7 +32,7 @@ export interface DiscretiseOptions {
   span?: number;
   /** discretise every lognormal/pareto/weibull severity, also those whose CF route is fast (lognormal, sigma < 1) */
   force?: boolean;
-  /** largest number of lattice points kept (power of two; default 2^16, 2^20 with a tolerance) */
+  /** largest number of lattice points kept (power of two; default 2^16, 2^18 with a tolerance) */
   maxPoints?: number;
 }
 
@@ -197,8 +199,8 @@ export interface DiscretisedCompound {
 /** Span and lattice size for a compound with count mean `nMean` and severity `sev`. */
 export function chooseSpan(sev: SeverityLaw, nMean: number, sMean: number | null, sSd: number | null, o: DiscretiseOptions = {}): { h: number; K: number } {
   const tol = o.tolerance && o.tolerance > 0 ? o.tolerance : 0;
-  // a requested tolerance may use up to 2^20 points; otherwise 2^16 keeps a request well under a second
-  const Kmax = o.maxPoints ?? (tol ? 2 ** 20 : 2 ** 16);
+  // a requested tolerance may use up to 2^18 points (~0.5 s); otherwise 2^16 keeps a request near 0.1 s
+  const Kmax = o.maxPoints ?? (tol ? 2 ** 18 : 2 ** 16);
   // where the compound's tail falls below ~1e-10: the severity's tail bound scaled by the count (subexponential
   // laws: P(S > x) ~ E N P(X > x)) and mean + 20 sd where the variance exists
   let R = sev.upper(1e-10 / Math.max(1, nMean));
@@ -210,8 +212,9 @@ export function chooseSpan(sev: SeverityLaw, nMean: number, sMean: number | null
   h = Math.min(Math.max(h, sev.scale / 4096), sev.scale / 16);
   // the bracket is about E N h sup f_X <~ E N h / scale: no finer than the tolerance needs
   if (tol) h = Math.max(h, Math.min((tol * sev.scale) / (2 * Math.max(1, nMean)), sev.scale / 16));
-  // a binary fraction of the scale, so that round numbers sit on the lattice when the scale is round
-  h = sev.scale * 2 ** Math.floor(Math.log2(h / sev.scale));
+  // a binary fraction of the scale (rounded up, so the K points still reach R), so that round numbers sit on the
+  // lattice when the scale is round
+  h = sev.scale * 2 ** Math.ceil(Math.log2(h / sev.scale) - 1e-12);
   return { h, K: fit(h) };
 }
 
@@ -229,8 +232,16 @@ export function discretisedCompound(N: Node, sev: SeverityLaw, h: number, K: num
   const p = compoundByFft(N, mp, M, s);
   const pd = compoundByFft(N, down, M, s);
   const pu = compoundByFft(N, up, M, s);
+  // wrapped mass P(S >= M h): bounded by the mass in the window's upper half when the tail is no heavier than
+  // x^-1; for pareto tails with alpha <= 1, P(S >= x) <= sum_n P(N=n) n P(X >= x/n) = E[N^(1+alpha)] (xm/x)^alpha
+  // <= E[N^2]^((1+alpha)/2) (xm/x)^alpha (Jensen)
   let aliasing = 0;
   for (let k = K; k < M; k++) aliasing += Math.abs(p[k]);
+  if (sev.tailIndex <= 1) {
+    const kn = N.cumulants(2);
+    const en2 = kn[0] !== null && kn[1] !== null ? kn[1] + kn[0] * kn[0] : Infinity;
+    aliasing = Math.max(aliasing, Math.min(1, en2 ** ((1 + sev.tailIndex) / 2) * (sev.lo / (M * h)) ** sev.tailIndex));
+  }
   let cd = 0;
   let cu = 0;
   let kept = 0;

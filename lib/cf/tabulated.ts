@@ -217,22 +217,36 @@ function atomsCfUniform(xs: Float64Array, ps: Float64Array, mean: number, t: Flo
  */
 export function sampleNode(values: number[], maxLattice: number, weights?: number[]): Node {
   const n = values.length;
-  const order = Array.from({ length: n }, (_, j) => j);
-  if (weights) order.sort((a, b) => values[a] - values[b]);
-  const v = weights ? Float64Array.from(order, (j) => values[j]) : Float64Array.from(values).sort();
-  const xs: number[] = [];
-  const mass: number[] = [];
+  let v: Float64Array;
+  let w: Float64Array | null = null;
+  if (weights) {
+    const vals = Float64Array.from(values);
+    const order = new Uint32Array(n);
+    for (let j = 0; j < n; j++) order[j] = j;
+    order.sort((a, b) => vals[a] - vals[b]);
+    v = new Float64Array(n);
+    w = new Float64Array(n);
+    for (let j = 0; j < n; j++) {
+      v[j] = vals[order[j]];
+      w[j] = weights[order[j]];
+    }
+  } else v = Float64Array.from(values).sort();
+  const xsBuf = new Float64Array(n);
+  const massBuf = new Float64Array(n);
+  let m = 0;
   let total = 0;
   for (let j = 0; j < n; j++) {
-    const w = weights ? weights[order[j]] : 1;
-    if (!(w > 0)) continue;
-    total += w;
-    if (xs.length > 0 && v[j] === xs[xs.length - 1]) mass[mass.length - 1] += w;
+    const wj = w ? w[j] : 1;
+    if (!(wj > 0)) continue;
+    total += wj;
+    if (m > 0 && v[j] === xsBuf[m - 1]) massBuf[m - 1] += wj;
     else {
-      xs.push(v[j]);
-      mass.push(w);
+      xsBuf[m] = v[j];
+      massBuf[m++] = wj;
     }
   }
+  const xs = xsBuf.subarray(0, m);
+  const mass = massBuf.subarray(0, m);
   if (xs.length === 1) return point(xs[0]);
   let g: number | null = 0;
   for (let j = 1; j < xs.length && g !== null; j++) g = commonStep(g, xs[j] - xs[0]);
@@ -244,5 +258,7 @@ export function sampleNode(values: number[], maxLattice: number, weights?: numbe
       return latticeNode(xs[0], g, p);
     }
   }
-  return atomsNode(Float64Array.from(xs), Float64Array.from(mass, (c) => c / total));
+  const ps = mass.slice();
+  for (let j = 0; j < m; j++) ps[j] /= total;
+  return atomsNode(xs.slice(), ps);
 }

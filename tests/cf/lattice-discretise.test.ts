@@ -158,3 +158,37 @@ describe("discretised compound vs the Erlang-mixture closed form (weibull shape 
     expect(Object.keys(worst).length).toBeGreaterThan(0);
   });
 });
+
+describe("discretised compound: special inputs", () => {
+  it("pareto with alpha <= 1 (no mean): runs, and the stated error covers the wrapped tail by the Jensen bound", () => {
+    const c = compile({ compound: { count: { family: "poisson", lambda: 3 }, each: { family: "pareto", alpha: 0.8, xm: 2 } } });
+    expect(c.kind.type).toBe("lattice");
+    expect(c.momentIndex).toBe(0.8);
+    const t = c.exactLattice!(2 ** 20)!;
+    // E N^2 = lambda + lambda^2 = 12; the wrapped-mass bound 12^0.9 (xm / (M h))^0.8 is part of cdfError
+    const M = 2 * t.p.length;
+    const jensen = 12 ** 0.9 * (2 / (M * t.step)) ** 0.8;
+    expect(t.cdfError!).toBeGreaterThanOrEqual(2 * jensen);
+    // the mass cut off at the end is reported, P(S > x) >= P(N >= 1) P(X > x) = (1 - e^-3)(xm/x)^0.8 (one claim alone)
+    const x = t.p.length * t.step;
+    expect(t.tailMass).toBeGreaterThanOrEqual(0.5 * (1 - Math.exp(-3)) * (2 / x) ** 0.8);
+  });
+  it("an explicit span is used as given; the lattice then holds round numbers", () => {
+    const c = compile({ compound: { count: { family: "poisson", lambda: 2 }, each: { family: "weibull", shape: 1.5, scale: 3 } } }, { discretise: { span: 0.25 } });
+    expect(c.kind).toEqual({ type: "lattice", origin: 0, step: 0.25 });
+    // P(S = 0) = P(N = 0) = e^-2 plus the severity's mean-preserving share at 0, E[(1 - X/h)+] > 0
+    const t = c.exactLattice!(2 ** 20)!;
+    expect(t.p[0]).toBeGreaterThan(Math.exp(-2));
+    expect(t.p[0]).toBeLessThan(Math.exp(-2) + 2 * Math.exp(-2) * (1 - Math.exp(-((0.25 / 3) ** 1.5))));
+  });
+  it("a tolerance option: a strict one buys a finer span (up to 2^18 points), a loose one no finer than it needs", () => {
+    const m = { compound: { count: { family: "poisson", lambda: 2 }, each: { family: "pareto", alpha: 3, xm: 1 } } } as Model;
+    const dflt = compile(m).kind as { step: number };
+    const strict = compile(m, { discretise: { tolerance: 1e-6 } }).kind as { step: number };
+    const loose = compile(m, { discretise: { tolerance: 1e-1 } }).kind as { step: number };
+    expect(strict.step).toBeLessThan(dflt.step);
+    // loose: h >= tol * scale / (2 E N) = 0.025, still at most scale/16
+    expect(loose.step).toBeGreaterThanOrEqual(0.025);
+    expect(loose.step).toBeLessThanOrEqual(1 / 16);
+  });
+});

@@ -84,6 +84,7 @@ export function lognormal(mu: number, sigma: number): Node {
       // measured on compound Poisson(20), mu 1: by its CF sigma 0.8 takes ~0.1 s (cdf error 1e-11), sigma 1 0.6 s,
       // sigma 1.3 3.5 s; Poisson(5) with sigma 2 a minute
       cfRouteFast: sigma < 1,
+      tailIndex: Infinity,
     },
     location: Math.exp(mu + s2 / 2),
     scale: Math.exp(mu + s2 / 2) * Math.sqrt(d),
@@ -202,6 +203,7 @@ export function weibull(k: number, lambda: number): Node {
       scale: lambda,
       rootAtZero: Number.isInteger(k) ? 1 : Math.ceil(4 / k),
       cfRouteFast: false,
+      tailIndex: Infinity,
     },
     location: mean,
     scale: Math.sqrt(Math.max(raw(2) - mean * mean, 0)) || lambda,
@@ -358,6 +360,7 @@ export function pareto(alpha: number, xm: number): Node {
       scale: xm,
       rootAtZero: 1,
       cfRouteFast: false,
+      tailIndex: alpha,
     },
     location: alpha > 1 ? raw(1) : xm * 2 ** (1 / alpha),
     scale: alpha > 2 ? Math.sqrt(raw(2) - raw(1) ** 2) : xm,

@@ -1,5 +1,5 @@
 import type { Metadata } from "next";
-import { Caution } from "@/app/_components/site-chrome";
+import { Caution } from "@/app/_components/caution";
 import { Explorer } from "./explorer";
 
 export const metadata: Metadata = { title: "Explorer" };

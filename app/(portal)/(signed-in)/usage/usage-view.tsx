@@ -3,7 +3,7 @@
 import { useEffect, useMemo, useState } from "react";
 import type { UsageRow } from "@/lib/db/portal-usage";
 import { USAGE_SORTS } from "@/lib/portal/schemas";
-import { Caution } from "@/app/_components/site-chrome";
+import { Caution } from "@/app/_components/caution";
 import { portalFetch, PortalFetchError } from "../../_components/fetch";
 import { useMe } from "../../_components/me";
 import { Empty, fmtDay, FormError, inputClass, Loading, PageHeader, quietButtonClass } from "../../_components/ui";
