@@ -2,6 +2,7 @@
 // FFT; the stated cdf error bound must cover the actual error against outside references.
 import { describe, expect, it } from "vitest";
 import jStat from "jstat";
+import { density } from "@/lib/cf/invert/density";
 import { compile, type Model } from "@/lib/cf";
 import { close, record, worst } from "./model-assert";
 
@@ -152,6 +153,18 @@ describe("discretised compound vs the Erlang-mixture closed form (weibull shape 
     record(`stated bound (Poisson(${lambda}) x exp)`, bound);
     // the bound is of the size of the jump of the step cdf, not wildly loose
     expect(bound).toBeLessThan(40 * worstErr + 1e-12);
+  });
+  it("density() on a discretised compound reports an error estimate no smaller than the actual cdf error", () => {
+    const lambda = 2;
+    const scale = 1;
+    const c = compile(poissonWeibull1(lambda, scale));
+    const t = c.exactLattice!(2 ** 20)!;
+    const xs = Array.from({ length: 40 }, (_, i) => i * 17 * t.step);
+    const r = density(c, { x: xs });
+    let actual = 0;
+    r.x.forEach((x, i) => (actual = Math.max(actual, Math.abs(r.cdf[i] - erlangMixtureCdf(lambda, scale, x)))));
+    expect(actual).toBeGreaterThan(0);
+    expect(r.diagnostics.error.cdf, `actual ${actual}, estimate ${r.diagnostics.error.cdf}`).toBeGreaterThanOrEqual(actual);
   });
   it("print worst errors", () => {
     console.log("worst errors (discretised compounds):", JSON.stringify(worst, null, 1));

@@ -25,8 +25,18 @@ export function solveLattice(model: CompiledModel, origin: number, step: number,
   if (model.exactLattice) {
     const t = model.exactLattice(MAX_LATTICE);
     if (t) {
+      // A table built by discretising a continuous severity carries its own cdf error bound (cdfError); a cell's
+      // mass is a difference of two cdf values, so it may be off by twice that.
+      const disc = t.cdfError ?? 0;
       const err = t.tailMass + 4 * Number.EPSILON * Math.sqrt(t.p.length);
-      return { table: t, errorPmf: err, errorCdf: err + 8 * Number.EPSILON * Math.sqrt(t.p.length), method: "lattice-exact", gridSize: t.p.length, notes };
+      return {
+        table: t,
+        errorPmf: err + 2 * disc,
+        errorCdf: err + disc + 8 * Number.EPSILON * Math.sqrt(t.p.length),
+        method: "lattice-exact",
+        gridSize: t.p.length,
+        notes,
+      };
     }
   }
   const shape = lawShape(model);
