@@ -34,3 +34,26 @@ describe("OpenAPI document", () => {
     }
   });
 });
+
+describe("responses match their documented schemas", () => {
+  it("each computation's live response parses with the response schema the OpenAPI document is built from", async () => {
+    const { orgWithKey } = await import("../support/api");
+    const { CfResponse } = await import("@/app/api/v1/cf/schema");
+    const { DensityResponse } = await import("@/app/api/v1/density/schema");
+    const { QuantilesResponse } = await import("@/app/api/v1/quantiles/schema");
+    const { MomentsResponse } = await import("@/app/api/v1/moments/schema");
+    const { ConvolveResponse } = await import("@/app/api/v1/convolve/schema");
+    const { FamiliesResponse } = await import("@/app/api/v1/families/schema");
+    const { endpointExamples } = await import("@/lib/api/examples");
+    const schemas = { cf: CfResponse, density: DensityResponse, quantiles: QuantilesResponse, moments: MomentsResponse, convolve: ConvolveResponse, families: FamiliesResponse } as const;
+    const { secret } = await orgWithKey();
+    const app = apiServer();
+    for (const e of endpointExamples) {
+      const req = e.method === "GET" ? supertest(app).get(e.path) : supertest(app).post(e.path).set("content-type", "application/json").send(JSON.stringify(e.body));
+      const res = await req.set("authorization", `Bearer ${secret}`);
+      expect(res.status, `${e.path}: ${JSON.stringify(res.body).slice(0, 300)}`).toBe(200);
+      const parsed = schemas[e.id as keyof typeof schemas].safeParse(res.body);
+      expect(parsed.success, `${e.path}: ${parsed.success ? "" : JSON.stringify(parsed.error.issues.slice(0, 3))}`).toBe(true);
+    }
+  });
+});
