@@ -85,29 +85,129 @@ async function withTimeout<T>(p: Promise<T>): Promise<T> {
   }
 }
 
+// Token leases: a request that finds no leased token takes a block of `leaseSize` tokens of the key's current
+// window from Redis in one call; the next requests in this process spend them without a round trip. Blocks divide
+// the limit exactly, so a window still admits exactly `requestsPerSecond` requests across all instances. The
+// monthly units of requests served from a lease are sent to Redis in the next round trip (or within 100 ms).
+interface Lease {
+  window: number;
+  tokens: number;
+  remaining: number;
+  reset: number;
+  limit: number;
+  /** the window's tokens are spent: refuse locally until it ends */
+  denied: boolean;
+}
+const leases = new Map<number, Lease>();
+// One lease request per key at a time: concurrent requests wait for it and then spend its tokens.
+const inflight = new Map<number, Promise<unknown>>();
+const orgUnits = new Map<number, { used: number; pending: number; timer: NodeJS.Timeout | null }>();
+
+/** The largest divisor of the per-second limit not above a quarter of it (1 for small limits). */
+export function leaseSize(rps: number): number {
+  for (let d = Math.floor(rps / 4); d > 1; d--) if (rps % d === 0) return d;
+  return 1;
+}
+
+function unitsState(orgId: number) {
+  let u = orgUnits.get(orgId);
+  if (!u) orgUnits.set(orgId, (u = { used: 0, pending: 0, timer: null }));
+  return u;
+}
+
+function flushPendingUnits(orgId: number): void {
+  const u = unitsState(orgId);
+  if (u.timer) clearTimeout(u.timer);
+  u.timer = null;
+  const n = u.pending;
+  if (n <= 0) return;
+  u.pending = 0;
+  void withTimeout(redis().incrby(monthKey(orgId), n))
+    .then((used) => (u.used = used))
+    .catch(() => (u.pending += n));
+}
+
+type LimitInput = { keyId: number; organizationId: number; plan: string; units: number };
+
 /** Decides a keyed request: one request against the key's per-second limit, `units` against the org's month. */
-export async function checkLimits(input: { keyId: number; organizationId: number; plan: string; units: number }): Promise<LimitDecision> {
+export async function checkLimits(input: LimitInput): Promise<LimitDecision> {
+  for (;;) {
+    const local = fromLease(input);
+    if (local) return local;
+    const pending = inflight.get(input.keyId);
+    if (pending) {
+      await pending.catch(() => {});
+      continue;
+    }
+    const p = leaseAndDecide(input);
+    inflight.set(input.keyId, p);
+    try {
+      return await p;
+    } finally {
+      inflight.delete(input.keyId);
+    }
+  }
+}
+
+/** Serves a request from the key's lease for the current window, or null when it has no token left. */
+function fromLease(input: LimitInput): LimitDecision | null {
+  const plan = planOf(input.plan);
+  const lease = leases.get(input.keyId);
+  if (!lease || lease.window !== Math.floor(Date.now() / 1000)) return null;
+  if (lease.denied) return { allowed: false, limit: lease.limit, remaining: 0, reset: lease.reset, source: "redis" };
+  if (lease.tokens <= 0) return null;
+  const u = unitsState(input.organizationId);
+  const decision: LimitDecision = { allowed: true, limit: lease.limit, remaining: lease.remaining + lease.tokens - 1, reset: lease.reset, source: "redis" };
+  if (u.used + u.pending + input.units > plan.monthlyUnits) {
+    return { ...decision, allowed: false, quotaExhausted: { used: u.used + u.pending, quota: plan.monthlyUnits, resetsAt: nextMonth() } };
+  }
+  lease.tokens--;
+  u.pending += input.units;
+  if (!u.timer) {
+    u.timer = setTimeout(() => flushPendingUnits(input.organizationId), 100);
+    u.timer.unref?.();
+  }
+  return decision;
+}
+
+async function leaseAndDecide(input: LimitInput): Promise<LimitDecision> {
   const planName = (input.plan in PLANS ? input.plan : "starter") as PlanName;
   const plan = planOf(planName);
+  const u = unitsState(input.organizationId);
   try {
     const key = monthKey(input.organizationId);
+    const size = leaseSize(plan.requestsPerSecond);
+    const sent = input.units + u.pending;
+    u.pending = 0;
     // Both calls leave in the same tick, so the client's auto-pipelining sends them in one round trip.
-    const [r, charged] = await withTimeout(Promise.all([limiter(planName).limit(String(input.keyId)), redis().incrby(key, input.units)]));
+    const [r, charged] = await withTimeout(
+      Promise.all([limiter(planName).limit(String(input.keyId), { rate: size }), redis().incrby(key, sent)]),
+    ).catch((e) => {
+      u.pending += sent - input.units;
+      throw e;
+    });
     if (r.reason === "timeout") return localDecision(input.keyId, plan.requestsPerSecond);
     const decision: LimitDecision = { allowed: r.success, limit: r.limit, remaining: r.remaining, reset: r.reset, source: "redis" };
+    const window = Math.floor(r.reset / 1000) - 1;
     if (!r.success) {
       void redis().decrby(key, input.units).catch(() => {});
+      u.used = charged - input.units;
+      leases.set(input.keyId, { window, tokens: 0, remaining: 0, reset: r.reset, limit: r.limit, denied: true });
       return decision;
     }
+    leases.set(input.keyId, { window, tokens: size - 1, remaining: r.remaining, reset: r.reset, limit: r.limit, denied: false });
+    if (leases.size > 50_000) leases.clear();
     let used = charged;
-    if (used === input.units) {
+    if (used === sent) {
       // A new month, or Redis lost its counter: start from what the database has recorded this month.
       void redis().expire(key, 40 * 86_400).catch(() => {});
       const recorded = await sumUnitsThisMonth({ organizationId: input.organizationId }).catch(() => 0);
       if (recorded > 0) used = await withTimeout(redis().incrby(key, recorded));
     }
+    u.used = used;
     if (used > plan.monthlyUnits) {
       void redis().decrby(key, input.units).catch(() => {});
+      u.used = used - input.units;
       return { ...decision, allowed: false, quotaExhausted: { used: used - input.units, quota: plan.monthlyUnits, resetsAt: nextMonth() } };
     }
     return decision;

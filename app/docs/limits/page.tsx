@@ -67,7 +67,9 @@ RateLimit: "per-key";r=49;t=1`}</Code>
         When the window is spent the answer is <code>429</code> with <code>Retry-After</code> in whole seconds, never earlier than
         the end of the window. When the organisation&rsquo;s monthly units are spent, <code>429</code> with type{" "}
         <code>quota_exhausted</code> and <code>Retry-After</code> pointing at the first day of next month (UTC). Requests refused for
-        a bad key never count against any key.
+        a bad key never count against any key. Each server instance takes a key&rsquo;s tokens from the shared window in small
+        blocks that divide the limit, so a window admits exactly the plan&rsquo;s number of requests however many instances
+        serve it; <code>r</code> is that instance&rsquo;s view of what remains.
       </p>
       <h2>When the limiter&rsquo;s store is unreachable</h2>
       <p>
