@@ -1,11 +1,11 @@
 import type { z } from "zod";
+import { toPointer } from "@/lib/cf/errors";
 import { ApiError, type FieldError } from "./errors";
 
 export const MAX_BODY_BYTES = 1024 * 1024;
 
-/** RFC 6901 pointer from a zod issue path. */
-export const pointerOf = (path: readonly PropertyKey[]) =>
-  path.map((s) => "/" + String(s).replace(/~/g, "~0").replace(/\//g, "~1")).join("");
+/** RFC 6901 pointer from a zod issue path (the core's encoder; symbols, never used as keys here, become text). */
+const pointerOf = (path: readonly PropertyKey[]) => toPointer(path.map((k) => (typeof k === "symbol" ? String(k) : k)));
 
 /** Reads a JSON body: 415 unless JSON, 413 past 1 MiB (counted while streaming), 400 when malformed. */
 export async function readJson(req: Request): Promise<unknown> {

@@ -3,7 +3,7 @@ import { MAX_GRID_POINTS } from "../limits";
 import type { Atom, CompiledModel } from "../types";
 import { invertContinuous, type PartOutput, type Request } from "./continuous";
 import { latticeCumulative, solveLattice } from "./lattice";
-import { bulkHalfWidths, lawShape } from "./range";
+import { bulkWindow, lawShape } from "./range";
 import type { DensityOptions, DensityResult, InversionDiagnostics } from "./types";
 
 export const DEFAULT_TOLERANCE = 1e-10;
@@ -117,20 +117,7 @@ function buildRequest(model: CompiledModel, o: DensityOptions, atoms: Atom[], to
 
 /** Grid covering the bulk (tail mass about 1e-8 each side for light tails; location +- 10 scales for heavy). */
 export function autoGrid(model: CompiledModel, atoms: Atom[], _tol: number): { from: number; to: number; count: number } {
-  const s = lawShape(model);
-  let from: number;
-  let to: number;
-  if (!s.heavy) {
-    const hw = bulkHalfWidths(s, 1e-8);
-    from = s.center - hw.left;
-    to = s.center + hw.right;
-  } else {
-    from = s.center - 10 * s.spread;
-    to = s.center + 10 * s.spread;
-  }
-  const [lo, hi] = s.support;
-  if (Number.isFinite(lo)) from = Math.max(from, lo);
-  if (Number.isFinite(hi)) to = Math.min(to, hi);
+  let { from, to } = bulkWindow(lawShape(model), 1e-8, 10);
   for (const a of atoms) {
     from = Math.min(from, a.x);
     to = Math.max(to, a.x);

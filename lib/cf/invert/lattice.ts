@@ -1,7 +1,7 @@
 import type { CompiledModel, LatticeTable } from "../types";
 import { getFftPlan, nextPowerOfTwo } from "../fftplan";
 import { MAX_LATTICE } from "../limits";
-import { bulkHalfWidths, lawShape } from "./range";
+import { bulkWindow, lawShape } from "./range";
 
 export interface LatticeSolution {
   table: LatticeTable;
@@ -40,19 +40,8 @@ export function solveLattice(model: CompiledModel, origin: number, step: number,
     }
   }
   const shape = lawShape(model);
-  let left: number;
-  let right: number;
-  if (!shape.heavy) {
-    const hw = bulkHalfWidths(shape, tol / 64);
-    left = shape.center - hw.left;
-    right = shape.center + hw.right;
-  } else {
-    left = shape.center - 64 * shape.spread;
-    right = shape.center + 64 * shape.spread;
-  }
+  const { from: left, to: right } = bulkWindow(shape, tol / 64, 64);
   const [lo, hi] = model.support;
-  if (Number.isFinite(lo)) left = Math.max(left, lo);
-  if (Number.isFinite(hi)) right = Math.min(right, hi);
   let k0 = Math.floor((left - origin) / step + 1e-9) - 2;
   let N = nextPowerOfTwo(Math.ceil((right - left) / step) + 5);
   let out: LatticeSolution | null = null;

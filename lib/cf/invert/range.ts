@@ -53,6 +53,27 @@ export function bulkHalfWidths(s: LawShape, eps: number): { left: number; right:
   return { left: side(-1), right: side(1) };
 }
 
+/**
+ * The bulk of a law clipped to its support: tail mass about `eps` on each side for light tails, location +-
+ * `heavyWidth` scales for power tails.
+ */
+export function bulkWindow(s: LawShape, eps: number, heavyWidth: number): { from: number; to: number } {
+  let from: number;
+  let to: number;
+  if (!s.heavy) {
+    const hw = bulkHalfWidths(s, eps);
+    from = s.center - hw.left;
+    to = s.center + hw.right;
+  } else {
+    from = s.center - heavyWidth * s.spread;
+    to = s.center + heavyWidth * s.spread;
+  }
+  const [lo, hi] = s.support;
+  if (Number.isFinite(lo)) from = Math.max(from, lo);
+  if (Number.isFinite(hi)) to = Math.min(to, hi);
+  return { from, to };
+}
+
 /** Window [a, b) for a light-tailed law: the bulk at tail mass eps, the requested points, clamped to the support. */
 export function lightWindow(
   s: LawShape,
