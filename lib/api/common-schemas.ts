@@ -76,7 +76,7 @@ export const AtomSchema = z.object({ x: z.number(), p: z.number() }).openapi("At
 
 export const Diagnostics = z
   .object({
-    method: z.string().openapi({ description: "inversion method used: fft, gil-pelaez, lattice-exact, lattice-fft or atoms" }),
+    method: z.string().openapi({ description: "inversion method used: fft, gil-pelaez, lattice-table (tabulated recursion or convolution), discretised (opt-in discretisation of a continuous severity), lattice-fft or atoms" }),
     gridSize: z.number(),
     terms: z.number(),
     frequencyStep: z.number(),

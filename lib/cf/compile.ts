@@ -80,7 +80,7 @@ export function buildNode(m: Model, opts: CompileOptions = {}): Node {
   throw new Error("unreachable: validated model without a known node");
 }
 
-/** exactLattice returns null rather than a table whose dropped mass exceeds this. */
+/** latticeTable returns null rather than a table whose dropped mass exceeds this. */
 export const USEFUL_TAIL = 1e-11;
 
 function checkBuffers(t: Float64Array, re: Float64Array, im: Float64Array) {
@@ -146,7 +146,7 @@ export function toCompiled(node: Node): CompiledModel {
   if (node.kind.type === "lattice" && node.table) {
     const table = node.table;
     // a table that drops more than USEFUL_TAIL of the mass is not returned: the CF route does better there
-    compiled.exactLattice = (maxLength) => {
+    compiled.latticeTable = (maxLength) => {
       const t = table(Math.max(1, Math.min(Math.floor(maxLength), MAX_LATTICE)));
       return t && (t.tailMass <= USEFUL_TAIL || node.approximate) ? t : null;
     };

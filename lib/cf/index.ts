@@ -27,8 +27,7 @@ export { convolve, convolveDirect, convolveFft, convolveTables, powerTable, panj
 export { besselK, logBesselKScaled, lgamma } from "./families/special";
 export { NUMERIC_CF_ABS_ERROR } from "./families/numeric";
 export { getFftPlan, type FftPlan } from "./fftplan";
-// ---- engineer B (inversion, quantiles) appends its exports below this line ----
 export { density, autoGrid, DEFAULT_TOLERANCE, DEFAULT_TOLERANCE_HEAVY } from "./invert/density";
 export type { DensityOptions, DensityResult, InversionDiagnostics, ErrorEstimate, GridSpec, InversionMethod } from "./invert/types";
-export { quantiles, type QuantileOptions, type QuantileResult, type QuantileDiagnostics } from "./quantile";
+export { quantiles, type QuantileOptions, type QuantileResult, type QuantileDiagnostics } from "./invert/quantile";
 export { nextPowerOfTwo, clearFftPlans } from "./fftplan";

@@ -46,9 +46,10 @@ export interface CompiledModel {
   readonly nodes: number;
   /** notes on approximations already made (e.g. "lognormal severity discretised on step h, mean-preserving"). */
   readonly notes: string[];
-  /** when the law is lattice and can be tabulated exactly (finite lattices, Panjer for compounds), return the pmf
-   *  starting at `origin` on `step`, truncated with the dropped tail mass reported; otherwise null. */
-  exactLattice?(maxLength: number): LatticeTable | null;
+  /** when the law is lattice and can be tabulated (finite lattices, Panjer for compounds, or the opt-in
+   *  discretisation of a continuous severity, whose table carries its cdfError), return the pmf starting at
+   *  `origin` on `step`, truncated with the dropped tail mass reported; otherwise null. */
+  latticeTable?(maxLength: number): LatticeTable | null;
 }
 
 /** compile(model) in ./compile.ts has this signature; throws CfError. */

@@ -338,7 +338,7 @@ export function binomialLattice(n: number, p: number, withTable = false): Compil
   if (!withTable) return m;
   return {
     ...m,
-    exactLattice: () => {
+    latticeTable: () => {
       const q = new Float64Array(n + 1);
       let c = 1;
       for (let k = 0; k <= n; k++) {

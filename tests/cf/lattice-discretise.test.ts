@@ -28,7 +28,7 @@ describe("discretised compound: classification, notes, mean", () => {
   it("NB(3, 0.2) x pareto(2.5, 1) is a lattice law whose notes state the discretisation and its error", () => {
     const c = compile({ compound: { count: { family: "negative_binomial", r: 3, p: 0.2 }, each: { family: "pareto", alpha: 2.5, xm: 1 } } });
     expect(c.kind.type).toBe("lattice");
-    const t = c.exactLattice!(2 ** 20)!;
+    const t = c.latticeTable!(2 ** 20)!;
     expect(t.cdfError).toBeGreaterThan(0);
     expect(c.notes.join(" ")).toMatch(/pareto severity discretised mean-preserving/);
     expect(c.notes.join(" ")).toMatch(/discretisation error: \|cdf - cdf of the continuous law\| <= /);
@@ -87,7 +87,7 @@ describe("discretised compound vs independent references for heavy severities", 
   const F = (x: number) => p0 + p1 * FX(x) + p2 * conv2(x);
   it("NB(3, 0.2) x pareto(2.5, 1): |F_h - F| <= stated bound at points in [0, 3)", () => {
     const c = compile({ compound: { count: { family: "negative_binomial", r: 3, p: 0.2 }, each: { family: "pareto", alpha, xm: 1 } } });
-    const t = c.exactLattice!(2 ** 20)!;
+    const t = c.latticeTable!(2 ** 20)!;
     const bound = t.cdfError!;
     let worstErr = 0;
     for (const x of [0.5, 1, 1.2, 1.5, 1.99, 2.3, 2.5, 2.75, 2.99]) {
@@ -109,7 +109,7 @@ describe("discretised compound vs independent references for heavy severities", 
     const cont = density(compile(m, { discretise: false }), { x: xs, method: "gil-pelaez", cdfOnly: true, tolerance: 1e-7 });
     const c = compile(m, { discretise: { force: true } });
     expect(c.kind.type).toBe("lattice");
-    const t = c.exactLattice!(2 ** 20)!;
+    const t = c.latticeTable!(2 ** 20)!;
     let worstErr = 0;
     xs.forEach((x, i) => {
       const k = Math.floor(x / t.step + 1e-9);
@@ -132,7 +132,7 @@ describe("discretised compound vs the Erlang-mixture closed form (weibull shape 
   ];
   it.each(cases)("Poisson(%d) x weibull(1, %d): |F_h(kh) - F(kh)| <= stated bound", (lambda, scale) => {
     const c = compile(poissonWeibull1(lambda, scale));
-    const t = c.exactLattice!(2 ** 20)!;
+    const t = c.latticeTable!(2 ** 20)!;
     const bound = t.cdfError!;
     let cdf = 0;
     let worstErr = 0;
@@ -158,7 +158,7 @@ describe("discretised compound vs the Erlang-mixture closed form (weibull shape 
     const lambda = 2;
     const scale = 1;
     const c = compile(poissonWeibull1(lambda, scale));
-    const t = c.exactLattice!(2 ** 20)!;
+    const t = c.latticeTable!(2 ** 20)!;
     const xs = Array.from({ length: 40 }, (_, i) => i * 17 * t.step);
     const r = density(c, { x: xs });
     let actual = 0;
@@ -177,7 +177,7 @@ describe("discretised compound: special inputs", () => {
     const c = compile({ compound: { count: { family: "poisson", lambda: 3 }, each: { family: "pareto", alpha: 0.8, xm: 2 } } });
     expect(c.kind.type).toBe("lattice");
     expect(c.momentIndex).toBe(0.8);
-    const t = c.exactLattice!(2 ** 20)!;
+    const t = c.latticeTable!(2 ** 20)!;
     // E N^2 = lambda + lambda^2 = 12; the wrapped-mass bound 12^0.9 (xm / (M h))^0.8 is part of cdfError
     const M = 2 * t.p.length;
     const jensen = 12 ** 0.9 * (2 / (M * t.step)) ** 0.8;
@@ -190,7 +190,7 @@ describe("discretised compound: special inputs", () => {
     const c = compile({ compound: { count: { family: "poisson", lambda: 2 }, each: { family: "weibull", shape: 1.5, scale: 3 } } }, { discretise: { span: 0.25 } });
     expect(c.kind).toEqual({ type: "lattice", origin: 0, step: 0.25 });
     // P(S = 0) = P(N = 0) = e^-2 plus the severity's mean-preserving share at 0, E[(1 - X/h)+] > 0
-    const t = c.exactLattice!(2 ** 20)!;
+    const t = c.latticeTable!(2 ** 20)!;
     expect(t.p[0]).toBeGreaterThan(Math.exp(-2));
     expect(t.p[0]).toBeLessThan(Math.exp(-2) + 2 * Math.exp(-2) * (1 - Math.exp(-((0.25 / 3) ** 1.5))));
   });

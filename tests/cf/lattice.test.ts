@@ -1,5 +1,5 @@
 // Convolution of tabulated lattice laws (direct and FFT with zero padding), n-fold powers, Panjer recursion and
-// exactLattice of compiled models, against exact rationals and brute-force definitions.
+// latticeTable of compiled models, against exact rationals and brute-force definitions.
 import { afterAll, describe, expect, it } from "vitest";
 import { compile, convolve, convolveDirect, convolveFft, convolveTables, powerTable, panjer, CfError } from "@/lib/cf";
 import { close, record, worst } from "./model-assert";
@@ -46,7 +46,7 @@ describe("dice and binomials vs exact rationals (absolute error <= 1e-15)", () =
   const dice: [number, number][] = [[2, 6], [3, 6], [5, 6], [10, 6], [20, 6], [4, 20], [7, 12]];
   it.each(dice)("sum of %d fair %d-sided dice via repeat (exact counts by integer convolution)", (n, s) => {
     const c = compile({ repeat: n, of: { lattice: { origin: 1, step: 1, p: new Array(s).fill(1 / s) } } });
-    const t = c.exactLattice!(1 << 20)!;
+    const t = c.latticeTable!(1 << 20)!;
     const ex = diceExact(n, s);
     expect([t.origin, t.step, t.p.length]).toEqual([n, 1, ex.length]);
     const err = maxAbsDiff(t.p, ex);
@@ -56,7 +56,7 @@ describe("dice and binomials vs exact rationals (absolute error <= 1e-15)", () =
   });
   it("dice through a sum of different dice: d4 + d6 + d8 + d20 (exact counts)", () => {
     const die = (s: number) => ({ lattice: { origin: 1, step: 1, p: new Array(s).fill(1 / s) } });
-    const t = compile({ sum: [die(4), die(6), die(8), die(20)] }).exactLattice!(1000)!;
+    const t = compile({ sum: [die(4), die(6), die(8), die(20)] }).latticeTable!(1000)!;
     let ways: bigint[] = [1n];
     for (const s of [4, 6, 8, 20]) {
       const next = new Array<bigint>(ways.length + s - 1).fill(0n);
@@ -72,19 +72,19 @@ describe("dice and binomials vs exact rationals (absolute error <= 1e-15)", () =
   const bins: [number, bigint, bigint][] = [[1, 1n, 2n], [10, 1n, 2n], [60, 1n, 2n], [25, 1n, 4n], [40, 3n, 8n]];
   it.each(bins)("repeat %d of bernoulli(%d/%d) vs C(n,k) p^k q^(n-k) in exact arithmetic", (n, num, den) => {
     const p = Number(num) / Number(den);
-    const t = compile({ repeat: n, of: { family: "bernoulli", p } }).exactLattice!(1 << 20)!;
+    const t = compile({ repeat: n, of: { family: "bernoulli", p } }).latticeTable!(1 << 20)!;
     const err = maxAbsDiff(t.p, binomExact(n, num, den));
     record("lattice abs error (binomial via repeat)", err);
     close(err, 0, { abs: 1e-15 }, `bernoulli^${n}`);
   });
   it.each(bins)("binomial(%d, %d/%d) table vs exact", (n, num, den) => {
-    const t = compile({ family: "binomial", n, p: Number(num) / Number(den) }).exactLattice!(1 << 20)!;
+    const t = compile({ family: "binomial", n, p: Number(num) / Number(den) }).latticeTable!(1 << 20)!;
     const err = maxAbsDiff(t.p, binomExact(n, num, den));
     record("lattice abs error (binomial table)", err);
     close(err, 0, { abs: 1e-15 }, `binomial ${n}`);
   });
   it("sum of binomials with a common p is binomial: binomial(7,1/4) + binomial(13,1/4) = binomial(20,1/4) (JKK ch. 3)", () => {
-    const t = compile({ sum: [{ family: "binomial", n: 7, p: 0.25 }, { family: "binomial", n: 13, p: 0.25 }] }).exactLattice!(100)!;
+    const t = compile({ sum: [{ family: "binomial", n: 7, p: 0.25 }, { family: "binomial", n: 13, p: 0.25 }] }).latticeTable!(100)!;
     const err = maxAbsDiff(t.p, binomExact(20, 1n, 4n));
     record("lattice abs error (binomial table)", err);
     close(err, 0, { abs: 1e-15 }, "binomial sum");
@@ -93,7 +93,7 @@ describe("dice and binomials vs exact rationals (absolute error <= 1e-15)", () =
 
 describe("tables of laws whose P(N = 0) underflows (bulk window, saddle-point pmf of Loader 2000)", () => {
   it("binomial(3000, 1/4) vs C(n,k) 3^(n-k) / 4^n in exact arithmetic", () => {
-    const t = compile({ family: "binomial", n: 3000, p: 0.25 }).exactLattice!(1 << 20)!;
+    const t = compile({ family: "binomial", n: 3000, p: 0.25 }).latticeTable!(1 << 20)!;
     const ex = binomExact(3000, 1n, 4n);
     expect(t.origin).toBeGreaterThan(0);
     let err = 0;
@@ -103,7 +103,7 @@ describe("tables of laws whose P(N = 0) underflows (bulk window, saddle-point pm
     close(t.tailMass, 0, { abs: 1e-13 }, "tail mass");
   });
   it("poisson(1e6): mass, mean and variance (JKK ch. 4) within rounding of a 40 000-entry sum", () => {
-    const t = compile({ family: "poisson", lambda: 1e6 }).exactLattice!(1 << 20)!;
+    const t = compile({ family: "poisson", lambda: 1e6 }).latticeTable!(1 << 20)!;
     let s = 0;
     let mean = 0;
     for (let k = 0; k < t.p.length; k++) {
@@ -117,7 +117,7 @@ describe("tables of laws whose P(N = 0) underflows (bulk window, saddle-point pm
     close(v, 1e6, { rel: 1e-10 }, "variance");
   });
   it("poisson(900) saddle-point pmf vs the multiplicative recursion from the mode of poisson pmf ratios (independent route)", () => {
-    const t = compile({ family: "poisson", lambda: 900 }).exactLattice!(1 << 20)!;
+    const t = compile({ family: "poisson", lambda: 900 }).latticeTable!(1 << 20)!;
     // p_k / p_{k-1} = lambda / k (JKK ch. 4): walk from the table's own mode value outward and compare the shape
     const m = 900 - t.origin;
     let err = 0;
@@ -227,7 +227,7 @@ describe("Panjer recursion and compound tables", () => {
     // severity P(X = j) = (1 - th) th^{j-1}, j >= 1
     const f = Array.from({ length: 200 }, (_, j) => (j === 0 ? 0 : (1 - th) * th ** (j - 1)));
     const c = compile({ compound: { count: { family: "poisson", lambda: lam }, each: { shift: 1, of: { family: "geometric", p: 1 - th } } } });
-    const t = c.exactLattice!(60)!;
+    const t = c.latticeTable!(60)!;
     // P(S = n) = e^{-lam} sum_{k=1}^n C(n-1, k-1) (lam (1-th))^k th^{n-k} / k!
     let err = 0;
     for (let n = 0; n < 60; n++) {
@@ -258,7 +258,7 @@ describe("Panjer recursion and compound tables", () => {
       [{ family: "negative_binomial", r: 2.5, p: 0.6 }, (() => { const p = [0.6 ** 2.5]; for (let k = 1; k < 120; k++) p.push((p[k - 1] * 0.4 * (2.5 + k - 1)) / k); return p; })()],
     ];
     for (const [count, pN] of counts) {
-      const t = compile({ compound: { count, each: { lattice: { origin: 0, step: 1, p: f } } } }).exactLattice!(4096)!;
+      const t = compile({ compound: { count, each: { lattice: { origin: 0, step: 1, p: f } } } }).latticeTable!(4096)!;
       const want = bruteCompound(pN, f, len);
       const err = maxAbsDiff(t.p.subarray(0, len), want);
       record("Panjer abs error (vs brute force)", err);
@@ -273,7 +273,7 @@ describe("Panjer recursion and compound tables", () => {
     expect(panjer({ a: 0, b: 1000, pgf: (z) => Math.exp(1000 * (z - 1)) }, f, 10)).toBeNull();
   });
   it("compound with a lattice severity of step 0.5 and origin 1: table on step 0.5 from 0", () => {
-    const t = compile({ compound: { count: { family: "poisson", lambda: 1 }, each: { lattice: { origin: 1, step: 0.5, p: [0.5, 0.5] } } } }).exactLattice!(200)!;
+    const t = compile({ compound: { count: { family: "poisson", lambda: 1 }, each: { lattice: { origin: 1, step: 0.5, p: [0.5, 0.5] } } } }).latticeTable!(200)!;
     expect([t.origin, t.step]).toEqual([0, 0.5]);
     close(t.p[0], Math.exp(-1), { rel: 1e-15 }, "P(S=0)");
     close(t.p[1], 0, { abs: 0 }, "P(S=0.5)");
@@ -284,17 +284,17 @@ describe("Panjer recursion and compound tables", () => {
   });
   it("count poisson(1) + poisson(2) (no Panjer route) equals the Panjer table of poisson(3) (Poisson additivity, JKK ch. 4)", () => {
     const sev = { lattice: { origin: 1, step: 1, p: [0.5, 0.3, 0.2] } };
-    const a = compile({ compound: { count: { sum: [{ family: "poisson", lambda: 1 }, { family: "poisson", lambda: 2 }] }, each: sev } }).exactLattice!(200)!;
-    const b = compile({ compound: { count: { family: "poisson", lambda: 3 }, each: sev } }).exactLattice!(200)!;
+    const a = compile({ compound: { count: { sum: [{ family: "poisson", lambda: 1 }, { family: "poisson", lambda: 2 }] }, each: sev } }).latticeTable!(200)!;
+    const b = compile({ compound: { count: { family: "poisson", lambda: 3 }, each: sev } }).latticeTable!(200)!;
     const err = maxAbsDiff(a.p.subarray(0, 100), b.p.subarray(0, 100));
     record("Panjer abs error (vs brute force)", err);
     close(err, 0, { abs: 1e-15 }, "two routes");
   });
   it("large expected counts (P(S=0) underflows): split-and-power route matches the convolution of two direct Panjer tables and the moments", () => {
     const sev = { lattice: { origin: 1, step: 1, p: [0.5, 0.3, 0.2] } };
-    const big = compile({ compound: { count: { family: "poisson", lambda: 800 }, each: sev } }).exactLattice!(1 << 14)!;
-    const a = compile({ compound: { count: { family: "poisson", lambda: 300 }, each: sev } }).exactLattice!(1 << 14)!;
-    const b = compile({ compound: { count: { family: "poisson", lambda: 500 }, each: sev } }).exactLattice!(1 << 14)!;
+    const big = compile({ compound: { count: { family: "poisson", lambda: 800 }, each: sev } }).latticeTable!(1 << 14)!;
+    const a = compile({ compound: { count: { family: "poisson", lambda: 300 }, each: sev } }).latticeTable!(1 << 14)!;
+    const b = compile({ compound: { count: { family: "poisson", lambda: 500 }, each: sev } }).latticeTable!(1 << 14)!;
     // compound Poisson(300) + compound Poisson(500) = compound Poisson(800) (Loss Models, aggregate loss chapter)
     const two = convolveTables([a, b], 1 << 14);
     const err = maxAbsDiff(big.p.subarray(0, 3000), two.p.subarray(0, 3000));
@@ -310,10 +310,10 @@ describe("Panjer recursion and compound tables", () => {
   });
   it("point count gives the n-fold power; mixture counts use the short-table route", () => {
     const die = { lattice: { origin: 1, step: 1, p: new Array(6).fill(1 / 6) } };
-    const a = compile({ compound: { count: { family: "point", at: 3 }, each: die } }).exactLattice!(100)!;
+    const a = compile({ compound: { count: { family: "point", at: 3 }, each: die } }).latticeTable!(100)!;
     const ex = diceExact(3, 6);
     close(maxAbsDiff(a.p.subarray(3), ex), 0, { abs: 1e-15 }, "compound with N = 3");
-    const m = compile({ compound: { count: { mix: [{ weight: 0.5, of: { family: "point", at: 1 } }, { weight: 0.5, of: { family: "point", at: 2 } }] }, each: die } }).exactLattice!(100)!;
+    const m = compile({ compound: { count: { mix: [{ weight: 0.5, of: { family: "point", at: 1 } }, { weight: 0.5, of: { family: "point", at: 2 } }] }, each: die } }).latticeTable!(100)!;
     const e1 = diceExact(1, 6);
     const e2 = diceExact(2, 6);
     const want = new Array(13).fill(0);
@@ -330,18 +330,18 @@ describe("tables through operators", () => {
         { weight: 0.25, of: { lattice: { origin: 0, step: 0.5, p: [0.5, 0.5] } } },
         { weight: 0.75, of: { family: "bernoulli", p: 0.5 } },
       ],
-    }).exactLattice!(100)!;
+    }).latticeTable!(100)!;
     expect([t.origin, t.step]).toEqual([0, 0.5]);
     const want = [0.125 + 0.375, 0.125, 0.375];
     close(maxAbsDiff(t.p, want), 0, { abs: 1e-16 }, "mixture table");
   });
   it("negative scale reverses the table; shift moves the origin", () => {
-    const t = compile({ shift: 10, of: { scale: -2, of: { family: "binomial", n: 3, p: 0.25 } } }).exactLattice!(100)!;
+    const t = compile({ shift: 10, of: { scale: -2, of: { family: "binomial", n: 3, p: 0.25 } } }).latticeTable!(100)!;
     expect([t.origin, t.step]).toEqual([4, 2]);
     close(maxAbsDiff(t.p, binomExact(3, 1n, 4n).reverse()), 0, { abs: 1e-16 }, "reversed binomial");
   });
   it("sample on a lattice is tabulated with empirical frequencies", () => {
-    const t = compile({ sample: [2, 0.5, 2, 3.5, 2] }).exactLattice!(100)!;
+    const t = compile({ sample: [2, 0.5, 2, 3.5, 2] }).latticeTable!(100)!;
     expect([t.origin, t.step]).toEqual([0.5, 1.5]);
     close(maxAbsDiff(t.p, [0.2, 0.6, 0.2]), 0, { abs: 1e-16 }, "empirical table");
   });
@@ -366,7 +366,7 @@ describe("special inputs", () => {
     for (const v of t.p) s += v;
     close(t.tailMass, 1 - s, { abs: 1e-14 }, "tail mass = 1 - kept mass");
     expect(t.tailMass).toBeGreaterThan(0.4);
-    expect(compile({ family: "poisson", lambda: 10 }).exactLattice!(10)).toBeNull();
+    expect(compile({ family: "poisson", lambda: 10 }).latticeTable!(10)).toBeNull();
     const die = { origin: 1, step: 1, p: new Float64Array(6).fill(1 / 6), tailMass: 0 };
     const d = convolveTables([die, die, die], 5);
     expect(d.p.length).toBe(5);
@@ -374,15 +374,15 @@ describe("special inputs", () => {
     for (const v of d.p) s2 += v;
     close(d.tailMass, 1 - s2, { abs: 1e-14 }, "tail mass of a truncated convolution");
     // the bulk of 10^6 dice lies beyond 2^20 steps from the origin: no table, and no time spent building one
-    expect(compile({ repeat: 1e6, of: { lattice: { origin: 1, step: 1, p: new Array(6).fill(1 / 6) } } }).exactLattice!(1 << 20)).toBeNull();
+    expect(compile({ repeat: 1e6, of: { lattice: { origin: 1, step: 1, p: new Array(6).fill(1 / 6) } } }).latticeTable!(1 << 20)).toBeNull();
   });
   it("continuous and non-lattice models have no exact table", () => {
-    expect(compile({ family: "normal", mu: 0, sigma: 1 }).exactLattice).toBeUndefined();
-    expect(compile({ sample: [0, 1, Math.PI] }).exactLattice).toBeUndefined();
+    expect(compile({ family: "normal", mu: 0, sigma: 1 }).latticeTable).toBeUndefined();
+    expect(compile({ sample: [0, 1, Math.PI] }).latticeTable).toBeUndefined();
   });
   it("a single-point lattice and a degenerate binomial", () => {
-    expect(compile({ lattice: { origin: 2, step: 1, p: [0, 1, 0] } }).exactLattice!(5)).toEqual({ origin: 3, step: 1, p: Float64Array.of(1), tailMass: 0 });
-    expect(compile({ family: "binomial", n: 5, p: 1 }).exactLattice!(5)!.origin).toBe(5);
+    expect(compile({ lattice: { origin: 2, step: 1, p: [0, 1, 0] } }).latticeTable!(5)).toEqual({ origin: 3, step: 1, p: Float64Array.of(1), tailMass: 0 });
+    expect(compile({ family: "binomial", n: 5, p: 1 }).latticeTable!(5)!.origin).toBe(5);
   });
 });
 

@@ -8,7 +8,7 @@ import normalQuantile from "@stdlib/stats-base-dists-normal-quantile";
 import jStat from "jstat";
 import { compile } from "@/lib/cf/compile";
 import { CfError } from "@/lib/cf/errors";
-import { quantiles } from "@/lib/cf/quantile";
+import { quantiles } from "@/lib/cf/invert/quantile";
 import type { Model } from "@/lib/cf/types";
 import { Checker, binomialLattice, build, cpExpSf } from "./invert-helpers";
 

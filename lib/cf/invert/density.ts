@@ -195,7 +195,7 @@ function latticeResult(model: CompiledModel, origin: number, step: number, optio
   const t = sol.table;
   const { cdf: C, sf: S0 } = latticeCumulative(t.p);
   const S = S0;
-  if (sol.method === "lattice-exact" && t.tailMass > 0) for (let i = 0; i < S.length; i++) S[i] += t.tailMass;
+  if (sol.method !== "lattice-fft" && t.tailMass > 0) for (let i = 0; i < S.length; i++) S[i] += t.tailMass;
   const n0 = t.p.length;
   let xs: Float64Array;
   let pmf: Float64Array;
@@ -235,8 +235,8 @@ function latticeResult(model: CompiledModel, origin: number, step: number, optio
         cdf[i] = 0;
         sf[i] = 1;
       } else if (k >= n0) {
-        cdf[i] = 1 - (sol.method === "lattice-exact" ? t.tailMass : 0);
-        sf[i] = sol.method === "lattice-exact" ? t.tailMass : 0;
+        cdf[i] = 1 - (sol.method !== "lattice-fft" ? t.tailMass : 0);
+        sf[i] = sol.method !== "lattice-fft" ? t.tailMass : 0;
       } else {
         cdf[i] = Math.min(1, C[k]);
         sf[i] = Math.min(1, S[k]);
@@ -258,7 +258,7 @@ function latticeResult(model: CompiledModel, origin: number, step: number, optio
       maxFrequency: Math.PI / step,
       range: { from: t.origin, to: t.origin + (n0 - 1) * t.step },
       capturedMass: 1 - t.tailMass,
-      error: { aliasing: sol.method === "lattice-fft" ? sol.errorPmf : 0, truncation: sol.method === "lattice-exact" ? t.tailMass : 0, rounding: 8 * Number.EPSILON, pdf: sol.errorPmf, cdf: sol.errorCdf },
+      error: { aliasing: sol.method === "lattice-fft" ? sol.errorPmf : 0, truncation: sol.method !== "lattice-fft" ? t.tailMass : 0, rounding: 8 * Number.EPSILON, pdf: sol.errorPmf, cdf: sol.errorCdf },
       levels: 1,
       notes: [...sol.notes, ...model.notes],
     },

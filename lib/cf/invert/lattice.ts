@@ -8,7 +8,9 @@ export interface LatticeSolution {
   /** upper bound on |pmf error| at every lattice point and on cdf/sf errors */
   errorPmf: number;
   errorCdf: number;
-  method: "lattice-exact" | "lattice-fft";
+  /** lattice-table: tabulated from the model (recursion / convolution); discretised: a table approximating a
+   *  continuous severity (opt-in); lattice-fft: inverse DFT of the CF */
+  method: "lattice-table" | "discretised" | "lattice-fft";
   gridSize: number;
   notes: string[];
 }
@@ -22,8 +24,8 @@ export interface LatticeSolution {
  */
 export function solveLattice(model: CompiledModel, origin: number, step: number, tol: number): LatticeSolution {
   const notes: string[] = [];
-  if (model.exactLattice) {
-    const t = model.exactLattice(MAX_LATTICE);
+  if (model.latticeTable) {
+    const t = model.latticeTable(MAX_LATTICE);
     if (t) {
       // A table built by discretising a continuous severity carries its own cdf error bound (cdfError); a cell's
       // mass is a difference of two cdf values, so it may be off by twice that.
@@ -33,7 +35,7 @@ export function solveLattice(model: CompiledModel, origin: number, step: number,
         table: t,
         errorPmf: err + 2 * disc,
         errorCdf: err + disc + 8 * Number.EPSILON * Math.sqrt(t.p.length),
-        method: "lattice-exact",
+        method: t.cdfError !== undefined ? "discretised" : "lattice-table",
         gridSize: t.p.length,
         notes,
       };

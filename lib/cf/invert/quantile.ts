@@ -1,14 +1,12 @@
-import { CfError } from "./errors";
-import type { Atom, CompiledModel } from "./types";
-import { evalLadder, growLadder, heavyLadder, invertContinuous, maybeKernels, type PartSolution } from "./invert/continuous";
-import { atomMass } from "./invert/density";
-import { latticeCumulative, solveLattice } from "./invert/lattice";
-import { kernelAt, type EndpointKernels } from "./invert/part";
-import { integrateSf, sumPointwise } from "./invert/pointwise";
-import { lawShape } from "./invert/range";
-import { makePart } from "./invert/part";
-import { incGamma } from "./invert/incgamma";
-import { buildNodes, probeEnvelope, truncationAt, type Nodes } from "./invert/nodes";
+import { CfError } from "../errors";
+import type { Atom, CompiledModel } from "../types";
+import { evalLadder, growLadder, heavyLadder, invertContinuous } from "./continuous";
+import { atomMass } from "./density";
+import { kernelAt } from "./part";
+import { sumPointwise } from "./pointwise";
+import { lawShape } from "./range";
+import { atomQuantiles, latticeQuantiles } from "./quantile-table";
+import { heavyShortfall, shortfallLight } from "./shortfall";
 
 export interface QuantileOptions {
   /** also return the expected shortfall ES_p = q_p + E[(X - q_p)^+] / (1 - p) (TVaR) */
@@ -18,7 +16,7 @@ export interface QuantileOptions {
 }
 
 export interface QuantileDiagnostics {
-  method: "gil-pelaez" | "lattice-exact" | "lattice-fft" | "atoms";
+  method: "gil-pelaez" | "lattice-table" | "discretised" | "lattice-fft" | "atoms";
   terms: number;
   range: { from: number; to: number };
   /** bound on |F_computed - F| used by the root finder */
@@ -141,60 +139,6 @@ function lightQuantiles(model: CompiledModel, atoms: Atom[], w: number, p: Float
       notes,
     },
   };
-}
-
-/**
- * int_y^inf of a kernel's sf: for G ~ Gamma(a, lambda), E[(G - v)^+] = (a/lambda) Q(a+1, lambda v) - v Q(a, lambda v);
- * for side -1 (X = at - G) the integral over (y, at] of P(G <= at - u) is v - a/lambda + E[(G - v)^+], v = at - y.
- */
-function kernelSfIntegral(k: EndpointKernels, y: number): number {
-  let s = 0;
-  for (let q = 0; q < k.b.length; q++) {
-    const a = k.power + q;
-    const excess = (v: number) => (v <= 0 ? a / k.rate - v : (a / k.rate) * incGamma(a + 1, k.rate * v).Q - v * incGamma(a, k.rate * v).Q);
-    if (k.side === 1) s += k.b[q] * excess(y - k.at);
-    else {
-      const v = k.at - y;
-      s += k.b[q] * (v <= 0 ? 0 : v - a / k.rate + excess(v));
-    }
-  }
-  return s;
-}
-
-function shortfallLight(
-  sol: PartSolution,
-  atoms: Atom[],
-  w: number,
-  q: number,
-  p: number,
-  errCdf: number,
-  errQ: number,
-  spread: number,
-): { value: number; error: number } {
-  if (p >= 1) return { value: q, error: 0 };
-  const b = sol.window.b;
-  let part = 0;
-  let intRound = 0;
-  if (q < b) {
-    const r = integrateSf(sol.nodes, sol.part.center, q, b);
-    part = r.value;
-    intRound = (1e-14 + 8 * Number.EPSILON * Math.sqrt(sol.nodes.K)) * r.absSum + 8 * Number.EPSILON * Math.abs(b - q);
-    for (const k of sol.part.kernels) part += kernelSfIntegral(k, q) - kernelSfIntegral(k, b);
-  }
-  let atomPart = 0;
-  for (const a of atoms) if (a.x > q) atomPart += a.p * (a.x - q);
-  // images: for y in [q, b] the sf error is within [-S(y + T), F(y - T)], both below F(a) <= aliasCore + sum error
-  const alias = sol.aliasCore + 2 * sol.sumErrCdf;
-  const trunc = truncationAt(sol.envelope, sol.nodes.K * sol.nodes.h).cdf * 2 * Math.abs(b - q);
-  // mass beyond b: S(b) <= alias, spread over a tail length of at most 8 standard deviations (light tails)
-  const tailBeyond = alias * spread * 8;
-  const excess = atomPart + w * part;
-  const value = q + excess / (1 - p);
-  // dES/dq = 1 - S(q)/(1 - p) vanishes at the exact quantile, so errQ enters at second order (bounded by errCdf errQ)
-  const error =
-    (w * (Math.max(b - q, 0) * alias + intRound + trunc + tailBeyond) + errCdf * errQ) / (1 - p) +
-    4 * Number.EPSILON * Math.abs(value);
-  return { value, error };
 }
 
 /**
@@ -402,179 +346,5 @@ function heavyQuantiles(model: CompiledModel, atoms: Atom[], w: number, p: Float
     x: xs,
     expectedShortfall: es,
     diagnostics: { method: "gil-pelaez", terms, range, cdfError: Math.max(lastErr, tol) * w, quantileError: err, expectedShortfallError: esErr, notes },
-  };
-}
-
-function atomQuantiles(atomsIn: Atom[], p: Float64Array, o: QuantileOptions): QuantileResult {
-  const atoms = [...atomsIn].sort((u, v) => u.x - v.x);
-  const xs = atoms.map((a) => a.x);
-  const probs = atoms.map((a) => a.p);
-  return tableQuantiles(Float64Array.from(xs), Float64Array.from(probs), p, o, "atoms", 4 * Number.EPSILON * atoms.length, []);
-}
-
-function latticeQuantiles(model: CompiledModel, origin: number, step: number, p: Float64Array, o: QuantileOptions): QuantileResult {
-  const sol = solveLattice(model, origin, step, o.tolerance ?? 1e-13);
-  const t = sol.table;
-  const xs = new Float64Array(t.p.length);
-  for (let i = 0; i < xs.length; i++) xs[i] = t.origin + i * t.step;
-  return tableQuantiles(xs, t.p, p, o, sol.method, sol.errorCdf, sol.notes);
-}
-
-/** Quantiles and ES of a law given as sorted support points and probabilities (sf summed from the right). */
-function tableQuantiles(
-  xs: Float64Array,
-  probs: Float64Array,
-  p: Float64Array,
-  o: QuantileOptions,
-  method: QuantileDiagnostics["method"],
-  errCdf: number,
-  notes: string[],
-): QuantileResult {
-  const { cdf, sf } = latticeCumulative(probs);
-  const n = xs.length;
-  const out = new Float64Array(p.length);
-  const err = new Float64Array(p.length);
-  const es = o.expectedShortfall ? new Float64Array(p.length) : undefined;
-  const esErr = o.expectedShortfall ? new Float64Array(p.length) : undefined;
-  for (let i = 0; i < p.length; i++) {
-    const pi = p[i];
-    const upper = pi > 0.5;
-    let k = 0;
-    // smallest k with F_k >= p, judged on the sf side above the median
-    if (upper) {
-      const s = 1 - pi;
-      while (k < n - 1 && sf[k] > s + errCdf) k++;
-    } else {
-      while (k < n - 1 && cdf[k] < pi - errCdf) k++;
-    }
-    out[i] = xs[k];
-    err[i] = 0;
-    if (es && esErr) {
-      if (pi >= 1) {
-        es[i] = out[i];
-        continue;
-      }
-      let ex = 0;
-      for (let j = n - 1; j > k; j--) ex += Math.max(probs[j], 0) * (xs[j] - xs[k]);
-      es[i] = xs[k] + ex / (1 - pi);
-      esErr[i] = ((errCdf * Math.abs(xs[n - 1] - xs[k]) + 4 * Number.EPSILON * Math.abs(ex)) / (1 - pi)) * 2;
-    }
-  }
-  return {
-    p,
-    x: out,
-    expectedShortfall: es,
-    diagnostics: {
-      method,
-      terms: n,
-      range: { from: xs[0], to: xs[n - 1] },
-      cdfError: errCdf,
-      quantileError: err,
-      expectedShortfallError: esErr,
-      notes,
-    },
-  };
-}
-
-/**
- * E[(X - q)^+] for power tails with a finite mean: E|Y - q| = (2/pi) int_0^inf (M - Re(phi(t) e^{-itq}))/t^2 dt
- * (e.g. Lukacs, Characteristic Functions, on absolute moments), whose mid-point sum equals E[tri_T(Y - q)] with
- * the triangle wave tri_T(u) = |u| on |u| <= T; the images beyond T give an error ~ T^{1-alpha}, removed by
- * doubling T and Richardson extrapolation with exponents j alpha + i - 1. Then E[(X-q)^+] = (E|X-q| + mu - q)/2,
- * atoms added exactly.
- */
-function heavyShortfall(
-  model: CompiledModel,
-  atoms: Atom[],
-  w: number,
-  mean: number,
-  shape: ReturnType<typeof lawShape>,
-  tol: number,
-  span: number,
-): (q: number, target: number) => { value: number; error: number } {
-  let part = makePart(model, atoms, shape.center);
-  let env = probeEnvelope(part, shape.spread);
-  ({ part, env } = maybeKernels(part, env, shape, { a: shape.center - 64 * shape.spread, b: shape.center + 64 * shape.spread }, tol / 16, false, []));
-  // the weights 1/t^2 make the tail beyond T at most (2/pi) int_T E/t^2 <= 2 tailCdf(T)/T: cut where that is small
-  let tmax = env.t[env.t.length - 1];
-  let truncES = (2 * env.tailCdf[env.t.length - 1]) / tmax;
-  for (let i = 0; i < env.t.length; i++) {
-    if ((2 * env.tailCdf[i]) / env.t[i] <= tol / 16) {
-      tmax = env.t[i];
-      truncES = (2 * env.tailCdf[i]) / env.t[i];
-      break;
-    }
-  }
-  let pm = 0;
-  for (const a of atoms) pm += a.p * a.x;
-  // mean of the inverted (signed) measure: continuous part minus its kernels (gamma means at/side a/lambda)
-  let muC = (mean - pm) / w;
-  for (const k of part.kernels) for (let q = 0; q < k.b.length; q++) muC -= k.b[q] * (k.at + (k.side * (k.power + q)) / k.rate);
-  const alpha = Math.max(shape.alpha, 1.01);
-  const exps: number[] = [];
-  {
-    const set = new Set<number>();
-    for (let j = 1; j <= 10; j++) for (let i = 0; i <= 10; i++) set.add(Math.round((j * alpha + i - 1) * 1e9) / 1e9);
-    exps.push(...[...set].filter((v) => v > 0).sort((u, v) => u - v));
-  }
-  // one period ladder for every level asked (nodes built once, on first use)
-  const T0 = Math.max(64 * shape.spread, 4 * span);
-  const cache: Nodes[] = [];
-  const nodesAt = (lev: number) => {
-    while (cache.length <= lev) {
-      const h = (2 * Math.PI) / (T0 * 2 ** cache.length);
-      cache.push(buildNodes(part, h, Math.min(Math.max(8, Math.ceil(tmax / h)), 1 << 21)));
-    }
-    return cache[lev];
-  };
-  return (q: number, target: number) => {
-    const y = q - part.center;
-    const rows: number[][] = [];
-    let best = NaN;
-    let bestTotal = Infinity;
-    let prev = NaN;
-    let amp = 1;
-    let round = 0;
-    for (let lev = 0; lev < 8; lev++) {
-      const T = T0 * 2 ** lev;
-      const nodes = nodesAt(lev);
-      const h = nodes.h;
-      const K = nodes.K;
-      let acc = 0;
-      let abs = 0;
-      for (let k = 0; k < K; k++) {
-        const tk = (k + 0.5) * h;
-        acc += (nodes.re[k] * Math.cos(tk * y) + nodes.im[k] * Math.sin(tk * y)) / (tk * tk);
-        abs += Math.hypot(nodes.re[k], nodes.im[k]) / (tk * tk);
-      }
-      const v = (part.mass * T) / 2 - (2 * h * acc) / Math.PI;
-      // V is a difference of terms of size T/2: its rounding, amplified by the extrapolation below
-      round = Math.max(round, 4 * Number.EPSILON * Math.sqrt(K) * ((part.mass * T) / 2 + (2 * h * abs) / Math.PI) + 1e-14 * (2 * h * abs) / Math.PI);
-      if (lev > 0) amp *= (2 ** exps[lev - 1] + 1) / (2 ** exps[lev - 1] - 1);
-      const row = [v];
-      for (let j = 1; j <= lev; j++) row.push(row[j - 1] + (row[j - 1] - rows[lev - 1][j - 1]) / (2 ** exps[j - 1] - 1));
-      rows.push(row);
-      const cand = row[lev];
-      if (lev >= 2) {
-        // the cut-off at tmax is shared by every level, so the differences cannot see it: added separately
-        const total = 2 * Math.max(Math.abs(cand - prev), Math.abs(cand - row[lev - 1])) + amp * (round + truncES);
-        if (total < bestTotal) {
-          bestTotal = total;
-          best = cand;
-        }
-        if (bestTotal <= Math.max(target, tol)) break;
-      }
-      prev = cand;
-    }
-    // twice the smallest total: the choice among levels is itself made on estimates
-    const error = 2 * bestTotal;
-    const absC = best;
-    let atomPart = 0;
-    for (const a of atoms) if (a.x > q) atomPart += a.p * (a.x - q);
-    let kernelPart = 0;
-    for (const k of part.kernels) kernelPart += kernelSfIntegral(k, q);
-    // for the signed remainder of mass M: int (x - q)^+ = (int |x - q| + mu - q M) / 2
-    const value = atomPart + w * ((absC + muC - q * part.mass) / 2 + kernelPart);
-    return { value, error: (w * error) / 2 + 8 * Number.EPSILON * Math.abs(absC) };
   };
 }

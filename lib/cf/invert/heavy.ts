@@ -1,0 +1,239 @@
+import type { Atom, CompiledModel } from "../types";
+import { buildNodes, cutoffFor, probeEnvelope, truncationAt, type Envelope, type Nodes } from "./nodes";
+import { makePart, type ContinuousPart } from "./part";
+import { sumPointwise } from "./pointwise";
+import { lawShape, type LawShape } from "./range";
+import { richardsonAmplification, richardsonChange, richardsonExponents, richardsonRow, richardsonRowArrays } from "./richardson";
+import {
+  MAX_FFT,
+  MAX_LEVELS,
+  MAX_POINTWISE_WORK,
+  MAX_TERMS,
+  addKernels,
+  chooseTerms,
+  evaluate,
+  gridLayout,
+  kernelTotals,
+  maxDiff,
+  nPoints,
+  requestPoints,
+  roundingOf,
+  type Layout,
+  type PartOptions,
+  type PartOutput,
+  type Request,
+} from "./shared";
+import { maybeKernels } from "./continuous";
+import type { ErrorEstimate } from "./types";
+
+/**
+ * Power tails: the aliasing error of the mid-point rule has an expansion in powers of the period T
+ * (images at distance mT of tails ~ y^{-alpha}, expanded in 1/T), so the sums are repeated with T doubled and
+ * combined by Richardson extrapolation with exponents {j alpha + i : j >= 1, i >= 0} in increasing order
+ * (tails ~ sum_j c_j y^{-j alpha}, Bergstrom's series for stable laws; the images at x + mT expanded in x/T
+ * add the integer steps), shifted by 1 for the density. The error estimate is twice the last change of the
+ * extrapolated value, plus the truncation and rounding bounds times the extrapolation's amplification.
+ */
+export function heavyPath(
+  part: ContinuousPart,
+  env: Envelope,
+  shape: LawShape,
+  req: Request,
+  opt: PartOptions,
+  win0: { a: number; b: number },
+  tmax: number,
+  notes: string[],
+  method: "fft" | "gil-pelaez",
+): PartOutput {
+  const n = nPoints(req);
+  const alpha = Math.max(shape.alpha, 0.1);
+  const expC = richardsonExponents(alpha, 0, MAX_LEVELS);
+  const expP = richardsonExponents(alpha, 1, MAX_LEVELS);
+  const [lo, hi] = shape.support;
+  const anchor: "left" | "right" | "center" = Number.isFinite(lo) ? "left" : Number.isFinite(hi) ? "right" : "center";
+  const tol = opt.tolerance;
+  // Richardson tables per quantity: rows[level][column] of Float64Array(n)
+  const tabs: { pdf: Float64Array[][]; cdf: Float64Array[][]; sf: Float64Array[][] } = { pdf: [], cdf: [], sf: [] };
+  let layout0: Layout | null = null;
+  let T0 = win0.b - win0.a;
+  let a0 = win0.a;
+  if (req.kind === "grid" && method === "fft") {
+    layout0 = gridLayout(req, win0.a, win0.b);
+    T0 = layout0.N * req.dx;
+    a0 = layout0.x0;
+  }
+  const centerX = a0 + T0 / 2;
+  let result: PartOutput | null = null;
+  let pdfErr = Infinity;
+  let cdfErr = Infinity;
+  let prevBest: { pdf: Float64Array | null; cdf: Float64Array; sf: Float64Array } | null = null;
+  let lastNodes: Nodes | null = null;
+  for (let lev = 0; lev < MAX_LEVELS; lev++) {
+    const T = T0 * 2 ** lev;
+    const a = anchor === "left" ? a0 : anchor === "right" ? a0 + T0 - T : centerX - T / 2;
+    let layout: Layout | null = null;
+    let m = method;
+    if (layout0 && req.kind === "grid") {
+      const N = layout0.N * 2 ** lev;
+      const shift = Math.round((layout0.x0 - a) / req.dx);
+      layout = { N, x0: layout0.x0 - shift * req.dx, offset: layout0.offset + shift };
+      if (N > MAX_FFT) {
+        m = "gil-pelaez";
+        layout = null;
+      }
+    }
+    const h = (2 * Math.PI) / T;
+    const K = chooseTerms(tmax, h, m, n);
+    if (lev > 0 && K * n > MAX_POINTWISE_WORK * 4 && m === "gil-pelaez") break;
+    const nodes = buildNodes(part, h, K);
+    lastNodes = nodes;
+    const pdf = opt.wantPdf ? new Float64Array(n) : null;
+    const cdf = new Float64Array(n);
+    const sf = new Float64Array(n);
+    evaluate(part, nodes, req, layout, opt.wantPdf, pdf, cdf, sf);
+    const rowC = richardsonRowArrays(cdf, tabs.cdf[lev - 1], expC);
+    const rowS = richardsonRowArrays(sf, tabs.sf[lev - 1], expC);
+    const rowP = pdf ? richardsonRowArrays(pdf, tabs.pdf[lev - 1], expP) : [];
+    tabs.cdf.push(rowC);
+    tabs.sf.push(rowS);
+    tabs.pdf.push(rowP);
+    const amp = richardsonAmplification(expC, lev + 1);
+    const best = { pdf: pdf ? rowP[lev] : null, cdf: rowC[lev], sf: rowS[lev] };
+    const trunc = truncationAt(env, K * h);
+    const round = roundingOf(part, nodes);
+    if (prevBest) {
+      cdfErr = 2 * Math.max(maxDiff(best.cdf, prevBest.cdf), maxDiff(best.sf, prevBest.sf), maxDiff(best.cdf, rowC[lev - 1]));
+      pdfErr = best.pdf && prevBest.pdf ? 2 * Math.max(maxDiff(best.pdf, prevBest.pdf), maxDiff(best.pdf, rowP[lev - 1])) : NaN;
+    }
+    const sumC = amp * (2 * trunc.cdf + round.cdf);
+    const sumP = amp * (2 * trunc.pdf + round.pdf);
+    const error: ErrorEstimate = {
+      aliasing: opt.wantPdf ? Math.max(cdfErr, pdfErr) : cdfErr,
+      truncation: amp * 2 * (opt.wantPdf ? Math.max(trunc.cdf, trunc.pdf) : trunc.cdf),
+      rounding: amp * (opt.wantPdf ? Math.max(round.cdf, round.pdf) : round.cdf),
+      cdf: cdfErr + sumC,
+      pdf: opt.wantPdf ? pdfErr + sumP : NaN,
+    };
+    result = {
+      pdf: best.pdf ? Float64Array.from(best.pdf) : null,
+      cdf: Float64Array.from(best.cdf),
+      sf: Float64Array.from(best.sf),
+      error,
+      gridSize: layout ? layout.N : K,
+      terms: K,
+      h,
+      maxFrequency: K * h,
+      window: { a, b: a + T },
+      captured: NaN,
+      levels: lev + 1,
+      notes,
+      method: m,
+      solution: null,
+    };
+    prevBest = best;
+    if (lev >= 2 && error.cdf <= tol && (!opt.wantPdf || error.pdf <= tol)) break;
+  }
+  notes.push(`power tails (index ${shape.alpha}): period doubled ${result!.levels - 1} times with Richardson extrapolation`);
+  if (part.kernels.length) addKernels(part, requestPoints(req), result!.pdf, result!.cdf, result!.sf);
+  const pts = new Float64Array([result!.window.a, result!.window.b]);
+  const c2 = new Float64Array(2);
+  const s2 = new Float64Array(2);
+  // mass inside the last window, from its own (non-extrapolated) sums: informative, not part of the error budget
+  sumPointwise(lastNodes!, part.center, pts, null, c2, s2);
+  result!.captured = Math.min(1, Math.max(0, s2[0] - s2[1]));
+  return result!;
+}
+
+/** Frequency nodes for a fixed ladder of periods T0 2^l, reusable for any number of pointwise evaluations. */
+export interface HeavyLadder {
+  part: ContinuousPart;
+  levels: Nodes[];
+  expC: number[];
+  expP: number[];
+  /** truncation + rounding bound of the extrapolated cdf and pdf */
+  sumErrCdf: number;
+  sumErrPdf: number;
+  T0: number;
+  tmax: number;
+  env: Envelope;
+  amp: number;
+  trC: number;
+  trP: number;
+}
+
+/** Build the ladder for a power-tailed continuous part (see heavyPath for the expansion behind it). */
+export function heavyLadder(model: CompiledModel, atoms: Atom[], T0: number, levels: number, tol: number): HeavyLadder {
+  const shape = lawShape(model);
+  let part = makePart(model, atoms, shape.center);
+  let env = probeEnvelope(part, shape.spread);
+  ({ part, env } = maybeKernels(part, env, shape, { a: shape.center - T0 / 2, b: shape.center + T0 / 2 }, tol / 16, true, []));
+  let tmax = cutoffFor(env, tol / 16, tol / 16);
+  if (!Number.isFinite(tmax)) tmax = env.t[env.t.length - 1];
+  const alpha = Math.max(shape.alpha, 0.1);
+  const lad: HeavyLadder = {
+    part,
+    levels: [],
+    expC: richardsonExponents(alpha, 0, MAX_LEVELS),
+    expP: richardsonExponents(alpha, 1, MAX_LEVELS),
+    sumErrCdf: 0,
+    sumErrPdf: 0,
+    T0,
+    tmax,
+    env,
+    amp: 1,
+    trC: 0,
+    trP: 0,
+  };
+  for (let l = 0; l < levels; l++) growLadder(lad);
+  return lad;
+}
+
+/** One more period doubling (the nodes of the earlier levels are kept). */
+export function growLadder(lad: HeavyLadder): boolean {
+  const l = lad.levels.length;
+  if (l >= lad.expC.length) return false;
+  const h = (2 * Math.PI) / (lad.T0 * 2 ** l);
+  const K = Math.min(Math.max(8, Math.ceil(lad.tmax / h)), MAX_TERMS);
+  const nd = buildNodes(lad.part, h, K);
+  lad.levels.push(nd);
+  lad.amp = richardsonAmplification(lad.expC, l + 1);
+  const tr = truncationAt(lad.env, K * h);
+  const rd = roundingOf(lad.part, nd);
+  lad.trC = Math.max(lad.trC, 2 * tr.cdf + rd.cdf);
+  lad.trP = Math.max(lad.trP, 2 * tr.pdf + rd.pdf);
+  lad.sumErrCdf = lad.amp * lad.trC;
+  lad.sumErrPdf = lad.amp * lad.trP;
+  return true;
+}
+
+/**
+ * The extrapolated continuous-part values at x (endpoint kernels added in closed form) and the
+ * error estimate 2 max(|R_LL - R_{L-1,L-1}|, |R_LL - R_{L,L-1}|) plus the sums' own bound.
+ */
+export function evalLadder(
+  lad: HeavyLadder,
+  x: number,
+  scratch: { pdf: Float64Array; cdf: Float64Array; sf: Float64Array; one: Float64Array },
+): { pdf: number; cdf: number; sf: number; errCdf: number; errPdf: number } {
+  const L = lad.levels.length;
+  const P: number[][] = [];
+  const C: number[][] = [];
+  const S: number[][] = [];
+  scratch.one[0] = x;
+  for (let l = 0; l < L; l++) {
+    sumPointwise(lad.levels[l], lad.part.center, scratch.one, scratch.pdf, scratch.cdf, scratch.sf);
+    P.push(richardsonRow(scratch.pdf[0], P[l - 1], lad.expP));
+    C.push(richardsonRow(scratch.cdf[0], C[l - 1], lad.expC));
+    S.push(richardsonRow(scratch.sf[0], S[l - 1], lad.expC));
+  }
+  const b = L - 1;
+  const d = richardsonChange;
+  const k = kernelTotals(lad.part, x);
+  return {
+    pdf: P[b][b] + k.pdf,
+    cdf: C[b][b] + k.cdf,
+    sf: S[b][b] + k.sf,
+    errCdf: Math.max(d(C), d(S)) + lad.sumErrCdf,
+    errPdf: d(P) + lad.sumErrPdf,
+  };
+}

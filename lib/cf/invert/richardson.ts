@@ -1,0 +1,65 @@
+/**
+ * Richardson extrapolation in the period T of a periodised sum whose error expands in powers T^{-p_1}, T^{-p_2}, ...
+ * (increasing p_j), each level doubling T (Richardson's deferred approach to the limit; e.g. Dahlquist & Bjorck,
+ * Numerical Methods in Scientific Computing, section on repeated Richardson extrapolation). One module for every caller:
+ * the grid and point inversion of power tails, the pointwise ladder used by quantiles, and expected shortfall.
+ */
+
+/**
+ * Exponents {j alpha + i + shift : j >= 1, i >= 0}, distinct, increasing, the first `count`, for tails
+ * ~ sum_j c_j y^{-j alpha} whose images at x + mT are expanded in x/T (integer steps i).
+ */
+export function richardsonExponents(alpha: number, shift: number, count: number): number[] {
+  const set = new Set<number>();
+  const n = Math.max(12, count);
+  for (let j = 1; j <= n; j++) for (let i = 0; i <= n; i++) set.add(Math.round((j * alpha + i + shift) * 1e9) / 1e9);
+  return [...set].filter((v) => v > 0).sort((u, v) => u - v).slice(0, count);
+}
+
+/** One elimination step for period ratio 2: R = fine + (fine - coarse) / (2^p - 1). */
+export function richardsonStep(fine: number, coarse: number, p: number): number {
+  return fine + (fine - coarse) / (2 ** p - 1);
+}
+
+/** richardsonStep applied elementwise (a fresh array). */
+export function richardsonArrays(fine: Float64Array, coarse: Float64Array, p: number): Float64Array {
+  const d = 2 ** p - 1;
+  const out = new Float64Array(fine.length);
+  for (let i = 0; i < fine.length; i++) out[i] = fine[i] + (fine[i] - coarse[i]) / d;
+  return out;
+}
+
+/**
+ * The row of level `lev` of the extrapolation table from the new raw value and the previous row:
+ * row[0] = value, row[j] = step(row[j-1], prev[j-1], exps[j-1]).
+ */
+export function richardsonRow(value: number, prev: readonly number[] | undefined, exps: readonly number[]): number[] {
+  const row = [value];
+  if (prev) for (let j = 1; j <= prev.length; j++) row.push(richardsonStep(row[j - 1], prev[j - 1], exps[j - 1]));
+  return row;
+}
+
+/** Same as richardsonRow on arrays. */
+export function richardsonRowArrays(value: Float64Array, prev: readonly Float64Array[] | undefined, exps: readonly number[]): Float64Array[] {
+  const row = [value];
+  if (prev) for (let j = 1; j <= prev.length; j++) row.push(richardsonArrays(row[j - 1], prev[j - 1], exps[j - 1]));
+  return row;
+}
+
+/**
+ * Factor by which an error common to the raw values of every level (truncation, rounding) can grow through the
+ * table after `levels` levels: prod_j (2^{p_j} + 1) / (2^{p_j} - 1).
+ */
+export function richardsonAmplification(exps: readonly number[], levels: number): number {
+  let amp = 1;
+  for (let j = 0; j < levels - 1 && j < exps.length; j++) amp *= (2 ** exps[j] + 1) / (2 ** exps[j] - 1);
+  return amp;
+}
+
+/** Error estimate of the last diagonal entry: 2 max(|R_LL - R_{L-1,L-1}|, |R_LL - R_{L,L-1}|); Infinity before two levels. */
+export function richardsonChange(rows: readonly (readonly number[])[]): number {
+  const b = rows.length - 1;
+  if (b < 1) return Infinity;
+  const d = rows[b][b];
+  return 2 * Math.max(Math.abs(d - rows[b - 1][b - 1]), Math.abs(d - rows[b][b - 1]));
+}

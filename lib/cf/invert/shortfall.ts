@@ -1,0 +1,163 @@
+import type { Atom, CompiledModel } from "../types";
+import { maybeKernels, type PartSolution } from "./continuous";
+import { incGamma } from "./incgamma";
+import { buildNodes, probeEnvelope, truncationAt, type Nodes } from "./nodes";
+import { makePart, type EndpointKernels } from "./part";
+import { integrateSf } from "./pointwise";
+import type { lawShape } from "./range";
+import { richardsonAmplification, richardsonExponents, richardsonRow } from "./richardson";
+
+/**
+ * Expected shortfall ES_p = q_p + E[(X - q_p)^+] / (1 - p) (Acerbi & Tasche 2002): the tail integral
+ * E[(X - q)^+] = int_q^inf S(y) dy from the same frequency nodes as the quantile, with its error bound.
+ */
+
+/**
+ * int_y^inf of a kernel's sf: for G ~ Gamma(a, lambda), E[(G - v)^+] = (a/lambda) Q(a+1, lambda v) - v Q(a, lambda v);
+ * for side -1 (X = at - G) the integral over (y, at] of P(G <= at - u) is v - a/lambda + E[(G - v)^+], v = at - y.
+ */
+export function kernelSfIntegral(k: EndpointKernels, y: number): number {
+  let s = 0;
+  for (let q = 0; q < k.b.length; q++) {
+    const a = k.power + q;
+    const excess = (v: number) => (v <= 0 ? a / k.rate - v : (a / k.rate) * incGamma(a + 1, k.rate * v).Q - v * incGamma(a, k.rate * v).Q);
+    if (k.side === 1) s += k.b[q] * excess(y - k.at);
+    else {
+      const v = k.at - y;
+      s += k.b[q] * (v <= 0 ? 0 : v - a / k.rate + excess(v));
+    }
+  }
+  return s;
+}
+
+export function shortfallLight(
+  sol: PartSolution,
+  atoms: Atom[],
+  w: number,
+  q: number,
+  p: number,
+  errCdf: number,
+  errQ: number,
+  spread: number,
+): { value: number; error: number } {
+  if (p >= 1) return { value: q, error: 0 };
+  const b = sol.window.b;
+  let part = 0;
+  let intRound = 0;
+  if (q < b) {
+    const r = integrateSf(sol.nodes, sol.part.center, q, b);
+    part = r.value;
+    intRound = (1e-14 + 8 * Number.EPSILON * Math.sqrt(sol.nodes.K)) * r.absSum + 8 * Number.EPSILON * Math.abs(b - q);
+    for (const k of sol.part.kernels) part += kernelSfIntegral(k, q) - kernelSfIntegral(k, b);
+  }
+  let atomPart = 0;
+  for (const a of atoms) if (a.x > q) atomPart += a.p * (a.x - q);
+  // images: for y in [q, b] the sf error is within [-S(y + T), F(y - T)], both below F(a) <= aliasCore + sum error
+  const alias = sol.aliasCore + 2 * sol.sumErrCdf;
+  const trunc = truncationAt(sol.envelope, sol.nodes.K * sol.nodes.h).cdf * 2 * Math.abs(b - q);
+  // mass beyond b: S(b) <= alias, spread over a tail length of at most 8 standard deviations (light tails)
+  const tailBeyond = alias * spread * 8;
+  const excess = atomPart + w * part;
+  const value = q + excess / (1 - p);
+  // dES/dq = 1 - S(q)/(1 - p) vanishes at the exact quantile, so errQ enters at second order (bounded by errCdf errQ)
+  const error =
+    (w * (Math.max(b - q, 0) * alias + intRound + trunc + tailBeyond) + errCdf * errQ) / (1 - p) +
+    4 * Number.EPSILON * Math.abs(value);
+  return { value, error };
+}
+
+/**
+ * E[(X - q)^+] for power tails with a finite mean: E|Y - q| = (2/pi) int_0^inf (M - Re(phi(t) e^{-itq}))/t^2 dt
+ * (e.g. Lukacs, Characteristic Functions, on absolute moments), whose mid-point sum equals E[tri_T(Y - q)] with
+ * the triangle wave tri_T(u) = |u| on |u| <= T; the images beyond T give an error ~ T^{1-alpha}, removed by
+ * doubling T and Richardson extrapolation with exponents j alpha + i - 1. Then E[(X-q)^+] = (E|X-q| + mu - q)/2,
+ * atoms added exactly.
+ */
+export function heavyShortfall(
+  model: CompiledModel,
+  atoms: Atom[],
+  w: number,
+  mean: number,
+  shape: ReturnType<typeof lawShape>,
+  tol: number,
+  span: number,
+): (q: number, target: number) => { value: number; error: number } {
+  let part = makePart(model, atoms, shape.center);
+  let env = probeEnvelope(part, shape.spread);
+  ({ part, env } = maybeKernels(part, env, shape, { a: shape.center - 64 * shape.spread, b: shape.center + 64 * shape.spread }, tol / 16, false, []));
+  // the weights 1/t^2 make the tail beyond T at most (2/pi) int_T E/t^2 <= 2 tailCdf(T)/T: cut where that is small
+  let tmax = env.t[env.t.length - 1];
+  let truncES = (2 * env.tailCdf[env.t.length - 1]) / tmax;
+  for (let i = 0; i < env.t.length; i++) {
+    if ((2 * env.tailCdf[i]) / env.t[i] <= tol / 16) {
+      tmax = env.t[i];
+      truncES = (2 * env.tailCdf[i]) / env.t[i];
+      break;
+    }
+  }
+  let pm = 0;
+  for (const a of atoms) pm += a.p * a.x;
+  // mean of the inverted (signed) measure: continuous part minus its kernels (gamma means at/side a/lambda)
+  let muC = (mean - pm) / w;
+  for (const k of part.kernels) for (let q = 0; q < k.b.length; q++) muC -= k.b[q] * (k.at + (k.side * (k.power + q)) / k.rate);
+  const alpha = Math.max(shape.alpha, 1.01);
+  const exps = richardsonExponents(alpha, -1, 8);
+  // one period ladder for every level asked (nodes built once, on first use)
+  const T0 = Math.max(64 * shape.spread, 4 * span);
+  const cache: Nodes[] = [];
+  const nodesAt = (lev: number) => {
+    while (cache.length <= lev) {
+      const h = (2 * Math.PI) / (T0 * 2 ** cache.length);
+      cache.push(buildNodes(part, h, Math.min(Math.max(8, Math.ceil(tmax / h)), 1 << 21)));
+    }
+    return cache[lev];
+  };
+  return (q: number, target: number) => {
+    const y = q - part.center;
+    const rows: number[][] = [];
+    let best = NaN;
+    let bestTotal = Infinity;
+    let prev = NaN;
+    let round = 0;
+    for (let lev = 0; lev < 8; lev++) {
+      const T = T0 * 2 ** lev;
+      const nodes = nodesAt(lev);
+      const h = nodes.h;
+      const K = nodes.K;
+      let acc = 0;
+      let abs = 0;
+      for (let k = 0; k < K; k++) {
+        const tk = (k + 0.5) * h;
+        acc += (nodes.re[k] * Math.cos(tk * y) + nodes.im[k] * Math.sin(tk * y)) / (tk * tk);
+        abs += Math.hypot(nodes.re[k], nodes.im[k]) / (tk * tk);
+      }
+      const v = (part.mass * T) / 2 - (2 * h * acc) / Math.PI;
+      // V is a difference of terms of size T/2: its rounding, amplified by the extrapolation below
+      round = Math.max(round, 4 * Number.EPSILON * Math.sqrt(K) * ((part.mass * T) / 2 + (2 * h * abs) / Math.PI) + 1e-14 * (2 * h * abs) / Math.PI);
+      const amp = richardsonAmplification(exps, lev + 1);
+      const row = richardsonRow(v, rows[lev - 1], exps);
+      rows.push(row);
+      const cand = row[lev];
+      if (lev >= 2) {
+        // the cut-off at tmax is shared by every level, so the differences cannot see it: added separately
+        const total = 2 * Math.max(Math.abs(cand - prev), Math.abs(cand - row[lev - 1])) + amp * (round + truncES);
+        if (total < bestTotal) {
+          bestTotal = total;
+          best = cand;
+        }
+        if (bestTotal <= Math.max(target, tol)) break;
+      }
+      prev = cand;
+    }
+    // twice the smallest total: the choice among levels is itself made on estimates
+    const error = 2 * bestTotal;
+    const absC = best;
+    let atomPart = 0;
+    for (const a of atoms) if (a.x > q) atomPart += a.p * (a.x - q);
+    let kernelPart = 0;
+    for (const k of part.kernels) kernelPart += kernelSfIntegral(k, q);
+    // for the signed remainder of mass M: int (x - q)^+ = (int |x - q| + mu - q M) / 2
+    const value = atomPart + w * ((absC + muC - q * part.mass) / 2 + kernelPart);
+    return { value, error: (w * error) / 2 + 8 * Number.EPSILON * Math.abs(absC) };
+  };
+}
