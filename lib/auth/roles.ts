@@ -16,6 +16,10 @@ export const PERMISSIONS = {
   explore: ["admin", "developer"],
   /** upload datasets and add versions */
   "datasets.upload": ["admin", "developer"],
+  /** read the organisation's audit log */
+  "audit.read": ["admin"],
+  /** open, save and share models in the organisation */
+  "models.read": ["admin", "developer"],
   /** read the plan and quota */
   "plan.read": ["admin", "developer", "billing"],
 } as const satisfies Record<string, readonly Role[]>;

@@ -101,3 +101,17 @@ export async function resetPassword(token: string, password: string): Promise<{ 
   await recordAudit({ actorType: "user", actorUserId: row.userId, action: "user.password_reset", targetType: "user", targetId: String(row.userId) });
   return { email: u.email };
 }
+
+/** A signed-in person creates a further organisation (or their first, after leaving every other): they are its admin. */
+export async function createOrganization(input: { userId: number; name: string }): Promise<{ organizationId: number; slug: string }> {
+  return getDb().transaction(async (tx) => {
+    const slug = `${slugify(input.name)}-${randomBytes(3).toString("hex")}`;
+    const [o] = await tx.insert(organizations).values({ slug, name: input.name, plan: "starter" });
+    await tx.insert(memberships).values({ userId: input.userId, organizationId: o.insertId, role: "admin" });
+    await recordAudit(
+      { organizationId: o.insertId, actorType: "user", actorUserId: input.userId, action: "organization.created", targetType: "organization", targetId: String(o.insertId), detail: { name: input.name } },
+      tx,
+    );
+    return { organizationId: o.insertId, slug };
+  });
+}

@@ -29,7 +29,9 @@ export const emailOnlySchema = z.object({ email });
 export const tokenSchema = z.object({ token: z.string().min(20).max(200) });
 export const resetSchema = z.object({ token: z.string().min(20).max(200), password });
 
-export const switchOrgSchema = z.object({ organizationId: z.coerce.number().int().positive() });
+export const createOrgSchema = z.object({
+  name: z.string().trim().min(2, { error: "Name your organisation (2 characters or more)." }).max(160, { error: "Use at most 160 characters." }),
+});
 
 export const keyCreateSchema = z.object({
   label: z.string().trim().min(1, { error: "Give the key a label, e.g. “pricing batch job”." }).max(120, { error: "Use at most 120 characters." }),

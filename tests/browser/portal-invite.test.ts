@@ -49,7 +49,7 @@ describe("inviting a billing contact", () => {
       await page.getByLabel("Your name").fill("Farid Haddad");
       await page.getByLabel("Choose a password").fill("farid-billing-77");
       await page.getByRole("button", { name: "Join Ashcombe Mutual" }).click();
-      await page.waitForURL(/\/dashboard$/);
+      await page.waitForURL(/\/dashboard\?org=/);
       await page.getByRole("heading", { name: "Hello, Farid" }).waitFor();
       const nav = page.getByRole("navigation", { name: "Portal" });
       await expect(nav.getByRole("link", { name: "API keys" }).count()).resolves.toBe(0);

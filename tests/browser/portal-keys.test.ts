@@ -65,11 +65,12 @@ describe("key rotation and revocation", () => {
     expect((await callMoments(newSecret)).status).toBe(200);
 
     // Switching organisation: in Orrin Dampers this person is a developer with no keys yet.
-    await page.getByLabel("Active organisation").selectOption(String(second.id));
-    await page.waitForURL(/\/dashboard$/);
-    await page.getByText(/working in Orrin Dampers as developer/).waitFor();
-    await page.getByRole("navigation", { name: "Portal" }).getByRole("link", { name: "API keys" }).click();
+    // The switch keeps the page's section and puts the organisation in the address.
+    await page.getByLabel("Active organisation").selectOption({ label: "Orrin Dampers (developer)" });
+    await page.waitForURL(/\/keys\?org=orrin-dampers-/);
     await page.getByText("No keys yet").waitFor();
+    await page.getByRole("navigation", { name: "Portal" }).getByRole("link", { name: "Overview" }).click();
+    await page.getByText(/working in Orrin Dampers as developer/).waitFor();
     await expect(page.getByRole("navigation", { name: "Portal" }).getByRole("link", { name: "Members" }).count()).resolves.toBe(0);
     await shot(page, "keys-other-org");
     await page.close();

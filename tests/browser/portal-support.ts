@@ -29,7 +29,7 @@ export async function signIn(page: Page, email: string, password: string) {
   await page.getByLabel("E-mail").fill(email);
   await page.getByLabel("Password").fill(password);
   await page.getByRole("button", { name: "Sign in" }).click();
-  await page.waitForURL(/\/dashboard$/);
+  await page.waitForURL(/\/dashboard(\?|$)/);
   await page.getByRole("heading", { level: 1 }).waitFor();
 }
 

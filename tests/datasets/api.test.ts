@@ -25,7 +25,7 @@ let countsId: string;
 let otherId: string;
 
 async function datasetIn(team: Awaited<ReturnType<typeof makeTeam>>, body: string, fields: Record<string, string>) {
-  const res = await upload(server, await cookieFor(team.developer.id, team.org.id), body, fields);
+  const res = await upload(server, await cookieFor(team.developer.id), body, fields);
   if (res.status !== 201) throw new Error(`upload failed: ${res.status} ${JSON.stringify(res.body)}`);
   return res.body.dataset.id as string;
 }

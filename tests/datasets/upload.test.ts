@@ -24,10 +24,10 @@ let other: string;
 beforeAll(async () => {
   T = await makeTeam("Harrowgate Mutual");
   O = await makeTeam("Kestrel Fasteners");
-  dev = await cookieFor(T.developer.id, T.org.id);
-  admin = await cookieFor(T.admin.id, T.org.id);
-  billing = await cookieFor(T.billing.id, T.org.id);
-  other = await cookieFor(O.admin.id, O.org.id);
+  dev = await cookieFor(T.developer.id);
+  admin = await cookieFor(T.admin.id);
+  billing = await cookieFor(T.billing.id);
+  other = await cookieFor(O.admin.id);
 });
 afterAll(() => new Promise<void>((r) => server.close(() => r())));
 

@@ -7,7 +7,7 @@ import { apiKeys, memberships, organizations, users, type Role } from "@/lib/db/
 import { createKey } from "@/lib/db/keys";
 import { routeServer, type RouteModule } from "../support/route-server";
 import * as me from "@/app/api/portal/me/route";
-import * as orgSwitch from "@/app/api/portal/session/organization/route";
+import * as organizations_ from "@/app/api/portal/organizations/route";
 import * as keys from "@/app/api/portal/keys/route";
 import * as rotate from "@/app/api/portal/keys/[id]/rotate/route";
 import * as revoke from "@/app/api/portal/keys/[id]/revoke/route";
@@ -30,7 +30,7 @@ import * as reset from "@/app/api/portal/auth/reset/route";
 export const portalServer = () =>
   routeServer({
     "/api/portal/me": me as RouteModule,
-    "/api/portal/session/organization": orgSwitch as RouteModule,
+    "/api/portal/organizations": organizations_ as RouteModule,
     "/api/portal/keys": keys as RouteModule,
     "/api/portal/keys/[id]/rotate": rotate as RouteModule,
     "/api/portal/keys/[id]/revoke": revoke as RouteModule,
@@ -54,10 +54,13 @@ export const portalServer = () =>
 export const uniq = () => randomBytes(4).toString("hex");
 
 /** A session cookie as next-auth would set it after sign-in (JWT encrypted with NEXTAUTH_SECRET). */
-export async function cookieFor(userId: number, orgId?: number): Promise<string> {
+export async function cookieFor(userId: number): Promise<string> {
   const token = await encode({ token: { uid: userId, email: "", name: "" }, secret: process.env.NEXTAUTH_SECRET! });
-  return `next-auth.session-token=${token}${orgId ? `; sumfold-org=${orgId}` : ""}`;
+  return `next-auth.session-token=${token}`;
 }
+
+/** The header the portal's pages send to name the organisation a call acts in. */
+export const ORG = "x-sumfold-org";
 
 export async function makeUser(name: string, opts: { verified?: boolean } = {}) {
   const email = `${name.toLowerCase().replace(/\W+/g, ".")}.${uniq()}@fixture.example`;

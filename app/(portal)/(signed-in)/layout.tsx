@@ -1,6 +1,6 @@
 import { getServerSession } from "next-auth";
 import { redirect } from "next/navigation";
-import type { ReactNode } from "react";
+import { Suspense, type ReactNode } from "react";
 import { authOptions } from "@/lib/auth/options";
 import { PortalShell } from "./portal-shell";
 
@@ -8,5 +8,9 @@ import { PortalShell } from "./portal-shell";
 export default async function SignedInLayout({ children }: { children: ReactNode }) {
   const session = await getServerSession(authOptions);
   if (!session?.user?.id) redirect("/sign-in");
-  return <PortalShell>{children}</PortalShell>;
+  return (
+    <Suspense>
+      <PortalShell>{children}</PortalShell>
+    </Suspense>
+  );
 }

@@ -50,8 +50,7 @@ export function AcceptInvitation({ token }: { token: string }) {
       const r = await portalFetch<{ email: string; organizationId: number }>("/api/portal/invitations/accept", { body: parsed.data });
       const s = await signIn("credentials", { email: r.email, password, redirect: false });
       if (s?.ok && !s.error) {
-        await portalFetch("/api/portal/session/organization", { body: { organizationId: r.organizationId } }).catch(() => {});
-        router.push("/dashboard");
+        router.push(`/dashboard?org=${r.organizationId}`);
         router.refresh();
       } else {
         router.push("/sign-in?notice=joined");

@@ -1,6 +1,6 @@
 "use client";
 
-import Link from "next/link";
+import { OrgLink } from "../../_components/org-link";
 import { ROLE_LABELS } from "@/lib/auth/roles";
 import { has, useMe } from "../../_components/me";
 import { PageHeader } from "../../_components/ui";
@@ -29,10 +29,10 @@ export function Overview() {
       <ul className="grid gap-4 sm:grid-cols-2 lg:grid-cols-3">
         {CARDS.filter((c) => !c.perm || has(me, c.perm)).map((c) => (
           <li key={c.href}>
-            <Link href={c.href} className="block h-full rounded-xl border border-paper-line bg-white p-5 shadow-sm hover:border-fold-500">
+            <OrgLink href={c.href} className="block h-full rounded-xl border border-paper-line bg-white p-5 shadow-sm hover:border-fold-500">
               <h2 className="font-display text-lg font-semibold">{c.title}</h2>
               <p className="mt-1 text-sm text-ink-soft">{c.body}</p>
-            </Link>
+            </OrgLink>
           </li>
         ))}
       </ul>

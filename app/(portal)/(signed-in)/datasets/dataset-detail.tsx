@@ -1,9 +1,9 @@
 "use client";
 
-import Link from "next/link";
 import { useRouter } from "next/navigation";
 import { useCallback, useEffect, useState, type FormEvent } from "react";
-import { portalFetch, PortalFetchError } from "../../_components/fetch";
+import { portalFetch, PortalFetchError, withOrg } from "../../_components/fetch";
+import { OrgLink } from "../../_components/org-link";
 import { buttonClass, dangerButtonClass, Field, fmtDate, FormError, Loading, Notice, PageHeader, quietButtonClass } from "../../_components/ui";
 import { HistogramPreview } from "./histogram";
 import { SummaryTable } from "./summary-table";
@@ -55,7 +55,7 @@ export function DatasetDetail({ id }: { id: string }) {
     if (!window.confirm(`Delete “${dataset.name}” with all ${versions.length} version(s)? Models that name it will stop working.`)) return;
     try {
       await portalFetch(`/api/portal/datasets/${id}`, { method: "DELETE" });
-      router.push("/datasets");
+      router.push(withOrg("/datasets"));
     } catch (err) {
       setError((err as PortalFetchError).problem?.error ?? "Could not delete.");
     }
@@ -64,9 +64,9 @@ export function DatasetDetail({ id }: { id: string }) {
   return (
     <div className="space-y-6">
       <p className="text-sm">
-        <Link href="/datasets" className="font-semibold text-fold-600 hover:underline">
+        <OrgLink href="/datasets" className="font-semibold text-fold-600 hover:underline">
           ← Datasets
-        </Link>
+        </OrgLink>
       </p>
       <PageHeader
         title={dataset.name}
@@ -164,7 +164,7 @@ export function DatasetDetail({ id }: { id: string }) {
                 </td>
                 <td className="py-1.5 pr-4 text-ink-soft">{fmtDate(x.createdAt)}</td>
                 <td className="py-1.5 text-right">
-                  <a href={`/api/portal/datasets/${dataset.id}/versions/${x.version}/raw`} className="text-fold-600 hover:underline" title={`SHA-256 ${x.fileSha256}`}>
+                  <a href={withOrg(`/api/portal/datasets/${dataset.id}/versions/${x.version}/raw`)} className="text-fold-600 hover:underline" title={`SHA-256 ${x.fileSha256}`}>
                     Raw file
                   </a>
                 </td>

@@ -1,8 +1,8 @@
 "use client";
 
-import Link from "next/link";
 import { useCallback, useEffect, useState } from "react";
-import { portalFetch, PortalFetchError } from "../../_components/fetch";
+import { portalFetch, PortalFetchError, withOrg } from "../../_components/fetch";
+import { OrgLink } from "../../_components/org-link";
 import { buttonClass, Empty, fmtDate, FormError, Loading, Notice, PageHeader } from "../../_components/ui";
 import { fmtNum, type ListedDataset } from "./types";
 import { UploadForm } from "./upload-form";
@@ -46,9 +46,9 @@ export function DatasetsManager() {
       {flash ? (
         <Notice tone="success">
           {flash.text}{" "}
-          <Link href={`/datasets/${flash.id}`} className="font-semibold underline">
+          <OrgLink href={`/datasets/${flash.id}`} className="font-semibold underline">
             Open it
-          </Link>
+          </OrgLink>
         </Notice>
       ) : null}
       {uploading ? (
@@ -84,9 +84,9 @@ export function DatasetsManager() {
               {rows.map((d) => (
                 <tr key={d.id} className="border-t border-paper-line">
                   <td className="min-w-[12rem] px-4 py-2">
-                    <Link href={`/datasets/${d.id}`} className="font-semibold text-fold-600 hover:underline">
+                    <OrgLink href={`/datasets/${d.id}`} className="font-semibold text-fold-600 hover:underline">
                       {d.name}
-                    </Link>
+                    </OrgLink>
                     {d.description ? <p className="text-xs text-ink-faint">{d.description}</p> : null}
                   </td>
                   <td className="px-4 py-2 font-mono text-xs">{d.id}</td>

@@ -7,6 +7,7 @@ import { uploadQuerySchema } from "@/lib/datasets/schemas";
 import { fieldErrors } from "@/lib/portal/schemas";
 import { DELIMITER_NAMES, sniff, type SniffResult } from "@/lib/datasets/sniff";
 import { buttonClass, FormError, inputClass, quietButtonClass } from "../../_components/ui";
+import { orgHeaders } from "../../_components/fetch";
 import { fmtBytes, type DatasetJson, type VersionJson } from "./types";
 
 type Format = "auto" | "csv" | "tsv" | "list";
@@ -107,13 +108,14 @@ export function UploadForm({ datasetId, onDone, onCancel }: { datasetId?: string
     const xhr = new XMLHttpRequest();
     xhr.open("POST", `${datasetId ? `/api/portal/datasets/${datasetId}/versions` : "/api/portal/datasets"}?${qs}`);
     xhr.setRequestHeader("content-type", file.type || "text/plain");
+    for (const [k, v] of Object.entries(orgHeaders())) xhr.setRequestHeader(k, v);
     xhr.upload.onprogress = (ev) => setProgress((p) => (p ? { ...p, sent: ev.loaded } : p));
     const stopPolling = () => {
       if (poll.current) clearInterval(poll.current);
       poll.current = null;
     };
     poll.current = setInterval(() => {
-      fetch(`/api/portal/datasets/uploads/${uploadId}`, { cache: "no-store" })
+      fetch(`/api/portal/datasets/uploads/${uploadId}`, { cache: "no-store", headers: orgHeaders() })
         .then((r) => (r.ok ? r.json() : null))
         .then((p: { phase: Progress["phase"]; bytesRead: number; rows: number } | null) => {
           if (p) setProgress((q) => (q && q.phase !== "done" && q.phase !== "failed" ? { ...q, parsed: p.bytesRead, rows: p.rows, phase: p.phase } : q));

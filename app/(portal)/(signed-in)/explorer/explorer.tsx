@@ -3,6 +3,7 @@
 import { useId, useState } from "react";
 import { isCfError } from "@/lib/cf/errors";
 import { validateModel } from "@/lib/cf/validate";
+import { orgHeaders } from "../../_components/fetch";
 import { buttonClass, FormError, inputClass, Loading, PageHeader, quietButtonClass } from "../../_components/ui";
 import { ModelBuilder } from "./model-builder";
 import { ResultChart, type DensityResult } from "./result-chart";
@@ -45,7 +46,7 @@ function parseLevels(s: string): number[] | string {
 }
 
 async function post<T>(op: string, body: unknown): Promise<T> {
-  const res = await fetch(`/api/portal/explore/${op}`, { method: "POST", headers: { "content-type": "application/json" }, body: JSON.stringify(body) });
+  const res = await fetch(`/api/portal/explore/${op}`, { method: "POST", headers: { "content-type": "application/json", ...orgHeaders() }, body: JSON.stringify(body) });
   const data = await res.json().catch(() => ({}));
   if (!res.ok) throw Object.assign(new Error(data.detail ?? data.error ?? `The ${op} run failed (${res.status}).`), { problem: data as Problem });
   return data as T;

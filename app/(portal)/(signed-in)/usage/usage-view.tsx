@@ -4,7 +4,7 @@ import { useEffect, useMemo, useState } from "react";
 import type { UsageRow } from "@/lib/db/portal-usage";
 import { USAGE_SORTS } from "@/lib/portal/schemas";
 import { Caution } from "@/app/_components/caution";
-import { portalFetch, PortalFetchError } from "../../_components/fetch";
+import { portalFetch, PortalFetchError, withOrg } from "../../_components/fetch";
 import { useMe } from "../../_components/me";
 import { Empty, fmtDay, FormError, inputClass, Loading, PageHeader, quietButtonClass } from "../../_components/ui";
 import { UsageChart, type MonthData } from "./usage-chart";
@@ -88,7 +88,7 @@ export function UsageView() {
         title="Usage"
         lead={me?.role === "developer" ? "Calls made with the keys you created." : `Calls made with every key of ${me?.organization.name ?? "the organisation"}.`}
         actions={
-          <a className={quietButtonClass} href={`/api/portal/usage/csv?${csvQuery}`} download>
+          <a className={quietButtonClass} href={withOrg(`/api/portal/usage/csv?${csvQuery}`)} download>
             Download CSV
           </a>
         }

@@ -1,17 +1,19 @@
-// GET /api/portal/me: the signed-in person, their active organisation and role (from the database), and every membership
+// GET /api/portal/me: the signed-in person, the organisation this page acts in and their role there (from the
+// database), and every membership. With no organisation named it answers for the oldest membership, which a
+// fresh page then carries in its address.
 import { ROLE_PERMISSIONS } from "@/lib/auth/roles";
-import { requireCaller } from "@/lib/auth/session";
 import { listMembershipsOfUser } from "@/lib/db/portal";
 import { handler, ok } from "@/lib/portal/http";
+import { callerFor } from "@/lib/portal/tenancy";
 
 export const GET = handler(async (req) => {
-  const c = await requireCaller(req);
+  const c = await callerFor(req, { defaultToFirst: true });
   const memberships = await listMembershipsOfUser({ userId: c.userId });
   return ok({
     user: { id: c.userId, name: c.name, email: c.email, emailVerified: c.emailVerified },
-    organization: { id: c.organizationId, name: c.organizationName, plan: c.plan },
+    organization: { id: c.organizationId, slug: c.organizationSlug, name: c.organizationName, plan: c.plan },
     role: c.role,
     permissions: ROLE_PERMISSIONS[c.role],
-    memberships: memberships.map((m) => ({ organizationId: m.organizationId, name: m.name, role: m.role })),
+    memberships: memberships.map((m) => ({ organizationId: m.organizationId, slug: m.slug, name: m.name, role: m.role })),
   });
 });
