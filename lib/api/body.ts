@@ -1,6 +1,9 @@
 import type { z } from "zod";
 import { toPointer } from "@/lib/cf/errors";
 import { ApiError, type FieldError } from "./errors";
+import { isLimitIssue } from "./zod";
+
+type Flagged = FieldError & { limit?: boolean };
 
 export const MAX_BODY_BYTES = 1024 * 1024;
 
@@ -44,8 +47,8 @@ const tooLarge = () => new ApiError("payload_too_large", `The request body excee
 type Issue = z.core.$ZodIssue;
 
 /** Flattens zod issues to field errors; for a union, reports the branch that got furthest into the value. */
-function fieldErrors(issues: readonly Issue[], prefix: readonly PropertyKey[] = []): FieldError[] {
-  return issues.flatMap((i): FieldError[] => {
+function fieldErrors(issues: readonly Issue[], prefix: readonly PropertyKey[] = []): Flagged[] {
+  return issues.flatMap((i): Flagged[] => {
     const path = [...prefix, ...i.path];
     if (i.code === "unrecognized_keys") {
       return i.keys.map((k) => ({ detail: `Unknown field "${k}".`, pointer: pointerOf([...path, k]) }));
@@ -55,7 +58,7 @@ function fieldErrors(issues: readonly Issue[], prefix: readonly PropertyKey[] = 
       const best = [...i.errors].sort((a, b) => depth(b) - depth(a))[0];
       if (depth(best) >= 0) return fieldErrors(best, path);
     }
-    return [{ detail: i.message, pointer: pointerOf(path) }];
+    return [{ detail: i.message, pointer: pointerOf(path), ...(isLimitIssue(i as { code: string; params?: Record<string, unknown> }) ? { limit: true } : {}) }];
   });
 }
 
@@ -63,6 +66,9 @@ function fieldErrors(issues: readonly Issue[], prefix: readonly PropertyKey[] = 
 export function validate<S extends z.ZodType>(schema: S, value: unknown): z.infer<S> {
   const r = schema.safeParse(value);
   if (r.success) return r.data;
-  const errors = fieldErrors(r.error.issues);
+  const flagged = fieldErrors(r.error.issues);
+  const errors = flagged.map(({ detail, pointer }) => ({ detail, pointer }));
+  // Only breaches of the engine's limits (and nothing else wrong) answer limit_exceeded, as the docs say.
+  if (flagged.every((e) => e.limit)) throw new ApiError("limit_exceeded", errors[0].detail, { errors });
   throw new ApiError("validation", errors.length === 1 ? errors[0].detail : `${errors.length} fields are not valid: ${errors[0].detail}`, { errors });
 }

@@ -1,6 +1,6 @@
 import { MAX_GRID_POINTS, MAX_REPEAT } from "@/lib/cf/limits";
 import { FamilySchema, LatticeSchema, SampleSchema } from "@/lib/cf/schema";
-import { z } from "./zod";
+import { withinLimit, z } from "./zod";
 
 // The model notation for the OpenAPI document: the core's family and leaf schemas, with the recursive nodes
 // restated here so each refers to the named "Model" component (the generator cannot name the core's inner
@@ -48,20 +48,17 @@ export const GridSpec = z
   .object({
     from: finite("grid.from"),
     to: finite("grid.to"),
-    count: z
-      .number()
-      .int({ error: "grid.count must be an integer" })
-      .min(2, { error: "grid.count must be at least 2" })
-      .max(MAX_GRID_POINTS, { error: `grid.count exceeds the limit of ${MAX_GRID_POINTS} points` }),
+    count: withinLimit(
+      z.number().int({ error: "grid.count must be an integer" }).min(2, { error: "grid.count must be at least 2" }),
+      MAX_GRID_POINTS,
+      `grid.count exceeds the limit of ${MAX_GRID_POINTS} points`,
+    ),
   })
   .strict()
   .refine((g) => g.to > g.from, { error: "grid.to must be greater than grid.from", path: ["to"] })
   .openapi("GridSpec", { description: "count equally spaced points from `from` to `to`, both included." });
 
-export const Points = z
-  .array(finite("each point"))
-  .min(1, { error: "give at least one point" })
-  .max(MAX_GRID_POINTS, { error: `at most ${MAX_GRID_POINTS} points` });
+export const Points = withinLimit(z.array(finite("each point")).min(1, { error: "give at least one point" }), MAX_GRID_POINTS, `at most ${MAX_GRID_POINTS} points`);
 
 export const Meta = z
   .object({

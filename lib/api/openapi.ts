@@ -23,20 +23,38 @@ const rateLimitHeaders = {
   "Sumfold-Request-Id": { description: "The request id, also in meta.requestId.", schema: { type: "string" as const } },
 };
 
+/**
+ * The problem responses of an operation, one per status: several problem types can share a status (422:
+ * validation, limit_exceeded, not_applicable), so each response lists its types as named examples.
+ */
 function problems(codes: (keyof typeof PROBLEMS)[]) {
+  const byStatus = new Map<number, (keyof typeof PROBLEMS)[]>();
+  for (const c of codes) byStatus.set(PROBLEMS[c].status, [...(byStatus.get(PROBLEMS[c].status) ?? []), c]);
   return Object.fromEntries(
-    codes.map((c) => [
-      String(PROBLEMS[c].status),
+    [...byStatus].map(([status, cs]) => [
+      String(status),
       {
-        description: PROBLEMS[c].title,
-        ...(c === "rate_limited" ? { headers: { "Retry-After": { description: "seconds until the window ends", schema: { type: "string" as const } } } } : {}),
-        content: { "application/problem+json": { schema: Problem } },
+        description: cs.map((c) => `${c}: ${PROBLEMS[c].title}`).join("; "),
+        ...(cs.some((c) => c === "rate_limited" || c === "quota_exhausted" || c === "unavailable")
+          ? { headers: { "Retry-After": { description: "seconds until a retry can succeed", schema: { type: "string" as const } } } }
+          : {}),
+        content: {
+          "application/problem+json": {
+            schema: Problem,
+            examples: Object.fromEntries(
+              cs.map((c) => [c, { summary: PROBLEMS[c].title, value: { type: `/docs/errors#${c}`, title: PROBLEMS[c].title, status } }]),
+            ),
+          },
+        },
       },
     ]),
   );
 }
 
-const KEYED_PROBLEMS = ["bad_request", "unauthorized", "forbidden", "payload_too_large", "unsupported_media_type", "validation", "rate_limited", "internal"] as const;
+/** What every keyed endpoint can answer before its own work: the gate, the body reader, limits and quota. */
+const KEYED_PROBLEMS = ["bad_request", "unauthorized", "forbidden", "method_not_allowed", "payload_too_large", "unsupported_media_type", "validation", "rate_limited", "quota_exhausted", "unavailable", "internal"] as const;
+/** A model may name a dataset: one that does not exist in the key's organisation answers 404. */
+const MODEL_PROBLEMS = ["not_found"] as const;
 
 function example(id: string, run: (body: never) => unknown) {
   const e = endpointExamples.find((x) => x.id === id)!;
@@ -78,7 +96,7 @@ export function buildOpenApiDocument(serverUrl = "/") {
       },
     });
   };
-  post("/api/v1/cf", "cf", "Evaluate the characteristic function", "phi(t) = E[exp(i t X)] of the model at the given arguments.", CfRequest, CfResponse, runCf, ["limit_exceeded"]);
+  post("/api/v1/cf", "cf", "Evaluate the characteristic function", "phi(t) = E[exp(i t X)] of the model at the given arguments.", CfRequest, CfResponse, runCf, [...MODEL_PROBLEMS, "limit_exceeded"]);
   post(
     "/api/v1/density",
     "density",
@@ -87,10 +105,10 @@ export function buildOpenApiDocument(serverUrl = "/") {
     DensityRequest,
     DensityResponse,
     runDensity,
-    ["limit_exceeded", "not_applicable"],
+    [...MODEL_PROBLEMS, "limit_exceeded", "not_applicable"],
   );
-  post("/api/v1/quantiles", "quantiles", "Quantiles and expected shortfall", "The smallest x with F(x) >= p for each level, and optionally the expected shortfall beyond it.", QuantilesRequest, QuantilesResponse, runQuantiles, ["limit_exceeded", "not_applicable"]);
-  post("/api/v1/moments", "moments", "Moments and cumulants", "Raw and central moments and cumulants up to the order asked; null (with a note) where an order does not exist.", MomentsRequest, MomentsResponse, runMoments, ["limit_exceeded"]);
+  post("/api/v1/quantiles", "quantiles", "Quantiles and expected shortfall", "The smallest x with F(x) >= p for each level, and optionally the expected shortfall beyond it.", QuantilesRequest, QuantilesResponse, runQuantiles, [...MODEL_PROBLEMS, "limit_exceeded", "not_applicable"]);
+  post("/api/v1/moments", "moments", "Moments and cumulants", "Raw and central moments and cumulants up to the order asked; null (with a note) where an order does not exist.", MomentsRequest, MomentsResponse, runMoments, [...MODEL_PROBLEMS, "limit_exceeded"]);
   post("/api/v1/convolve", "convolve", "Convolve lattice tables", "Convolution of tabulated laws on a common step, and n-fold powers, by FFT with zero padding.", ConvolveRequest, ConvolveResponse, runConvolve, ["limit_exceeded"]);
 
   registry.registerPath({
@@ -103,7 +121,7 @@ export function buildOpenApiDocument(serverUrl = "/") {
     security: [{ [bearer.name]: [] }],
     responses: {
       200: { description: "The catalogue", headers: rateLimitHeaders, content: { "application/json": { schema: FamiliesResponse, example: { ...catalogueResponse(), meta: EXAMPLE_META } } } },
-      ...problems(["unauthorized", "forbidden", "rate_limited", "internal"]),
+      ...problems(["unauthorized", "forbidden", "rate_limited", "quota_exhausted", "unavailable", "internal"]),
     },
   });
   const ds = datasetExample();
@@ -117,7 +135,7 @@ export function buildOpenApiDocument(serverUrl = "/") {
     security: [{ [bearer.name]: [] }],
     responses: {
       200: { description: "The datasets, most recently changed first", headers: rateLimitHeaders, content: { "application/json": { schema: DatasetsResponse, example: { datasets: [ds.listItem], meta: EXAMPLE_META } } } },
-      ...problems(["unauthorized", "forbidden", "rate_limited", "internal"]),
+      ...problems(["unauthorized", "forbidden", "rate_limited", "quota_exhausted", "unavailable", "internal"]),
     },
   });
   registry.registerPath({
@@ -131,7 +149,7 @@ export function buildOpenApiDocument(serverUrl = "/") {
     request: { params: z.object({ id: z.string().openapi({ example: ds.listItem.id }) }) },
     responses: {
       200: { description: "The dataset", headers: rateLimitHeaders, content: { "application/json": { schema: DatasetResponse, example: { dataset: ds.detail, meta: EXAMPLE_META } } } },
-      ...problems(["unauthorized", "forbidden", "not_found", "rate_limited", "internal"]),
+      ...problems(["unauthorized", "forbidden", "not_found", "rate_limited", "quota_exhausted", "unavailable", "internal"]),
     },
   });
   registry.registerPath({

@@ -1,27 +1,24 @@
 import { Meta } from "@/lib/api/common-schemas";
-import { z } from "@/lib/api/zod";
+import { withinLimit, z } from "@/lib/api/zod";
 import { MAX_LATTICE } from "@/lib/cf/limits";
 
 const LatticeTable = z
   .object({
     origin: z.number({ error: "origin must be a finite number" }),
     step: z.number({ error: "step must be a finite number" }).positive({ error: "step must be positive" }),
-    p: z
-      .array(z.number({ error: "each probability must be a number" }).min(0, { error: "probabilities must be non-negative" }))
-      .min(1, { error: "p needs at least one value" })
-      .max(MAX_LATTICE, { error: `p exceeds the limit of ${MAX_LATTICE} values` }),
+    p: withinLimit(
+      z.array(z.number({ error: "each probability must be a number" }).min(0, { error: "probabilities must be non-negative" })).min(1, { error: "p needs at least one value" }),
+      MAX_LATTICE,
+      `p exceeds the limit of ${MAX_LATTICE} values`,
+    ),
   })
   .strict()
   .openapi("LatticeTable", { description: "probabilities p[k] at origin + k * step" });
 
 export const ConvolveRequest = z
   .object({
-    terms: z.array(LatticeTable).min(1, { error: "give at least one term" }).max(256, { error: "at most 256 terms" }),
-    power: z
-      .number()
-      .int({ error: "power must be an integer" })
-      .min(1, { error: "power must be at least 1" })
-      .max(1_000_000, { error: "power exceeds the limit of 1000000" })
+    terms: withinLimit(z.array(LatticeTable).min(1, { error: "give at least one term" }), 256, "at most 256 terms"),
+    power: withinLimit(z.number().int({ error: "power must be an integer" }).min(1, { error: "power must be at least 1" }), 1_000_000, "power exceeds the limit of 1000000")
       .optional()
       .openapi({ description: "n-fold power of the convolution of the terms (default 1)" }),
   })

@@ -1,14 +1,10 @@
 import { Meta } from "@/lib/api/common-schemas";
 import { modelRequest } from "@/lib/api/model-field";
-import { z } from "@/lib/api/zod";
+import { withinLimit, z } from "@/lib/api/zod";
 import { MAX_MOMENT_ORDER } from "@/lib/cf/limits";
 
 export const { doc: MomentsRequest, body: MomentsBody } = modelRequest("MomentsRequest", {
-  order: z
-    .number()
-    .int({ error: "order must be an integer" })
-    .min(1, { error: "order must be at least 1" })
-    .max(MAX_MOMENT_ORDER, { error: `order exceeds the limit of ${MAX_MOMENT_ORDER}` })
+  order: withinLimit(z.number().int({ error: "order must be an integer" }).min(1, { error: "order must be at least 1" }), MAX_MOMENT_ORDER, `order exceeds the limit of ${MAX_MOMENT_ORDER}`)
     .optional()
     .openapi({ description: "highest order wanted (default 4)" }),
 });

@@ -1,18 +1,20 @@
 import { Diagnostics, Meta } from "@/lib/api/common-schemas";
 import { modelRequest } from "@/lib/api/model-field";
-import { z } from "@/lib/api/zod";
+import { withinLimit, z } from "@/lib/api/zod";
 
 export const { doc: QuantilesRequest, body: QuantilesBody } = modelRequest("QuantilesRequest", {
-  p: z
-    .array(
-      z
-        .number({ error: "each level must be a number" })
-        .gt(0, { error: "levels must be strictly between 0 and 1" })
-        .lt(1, { error: "levels must be strictly between 0 and 1" }),
-    )
-    .min(1, { error: "give at least one level p" })
-    .max(1000, { error: "at most 1000 levels per request" })
-    .openapi({ description: "levels in (0, 1); the quantile is the smallest x with F(x) >= p" }),
+  p: withinLimit(
+    z
+      .array(
+        z
+          .number({ error: "each level must be a number" })
+          .gt(0, { error: "levels must be strictly between 0 and 1" })
+          .lt(1, { error: "levels must be strictly between 0 and 1" }),
+      )
+      .min(1, { error: "give at least one level p" }),
+    1000,
+    "at most 1000 levels per request",
+  ).openapi({ description: "levels in (0, 1); the quantile is the smallest x with F(x) >= p" }),
   expectedShortfall: z
     .boolean()
     .optional()
