@@ -46,14 +46,16 @@ export const endpointExamples = [
 ] as const;
 
 export type EndpointExample = (typeof endpointExamples)[number];
+/** A call a snippet shows: the docs' examples, and the explorer's current request. */
+export type SnippetCall = { method: string; path: string; body: unknown };
 
-export function curlSnippet(e: EndpointExample, base = "https://sumfold.example"): string {
+export function curlSnippet(e: SnippetCall, base = "https://sumfold.example"): string {
   const head = `curl -sS ${e.method === "GET" ? "" : "-X POST "}${base}${e.path} \\\n  -H "Authorization: Bearer $SUMFOLD_KEY"`;
   if (!e.body) return head;
-  return `${head} \\\n  -H "Content-Type: application/json" \\\n  -d '${JSON.stringify(e.body)}'`;
+  return `${head} \\\n  -H "Content-Type: application/json" \\\n  -d '${JSON.stringify(e.body).replace(/'/g, "'\\''")}'`;
 }
 
-export function fetchSnippet(e: EndpointExample, base = "https://sumfold.example"): string {
+export function fetchSnippet(e: SnippetCall, base = "https://sumfold.example"): string {
   const body = e.body ? `,\n  headers: { ...auth, "Content-Type": "application/json" },\n  body: JSON.stringify(${JSON.stringify(e.body, null, 2).replace(/\n/g, "\n  ")}),` : ",\n  headers: auth,";
   return `const auth = { Authorization: \`Bearer \${process.env.SUMFOLD_KEY}\` };
 const res = await fetch("${base}${e.path}", {
@@ -63,7 +65,7 @@ if (!res.ok) throw new Error((await res.json()).detail); // problem+json
 const data = await res.json();`;
 }
 
-export function pythonSnippet(e: EndpointExample, base = "https://sumfold.example"): string {
+export function pythonSnippet(e: SnippetCall, base = "https://sumfold.example"): string {
   const py = (v: unknown): string => JSON.stringify(v, null, 4).replace(/\btrue\b/g, "True").replace(/\bfalse\b/g, "False").replace(/\bnull\b/g, "None");
   const call = e.body ? `requests.post(\n    "${base}${e.path}",\n    headers=headers,\n    json=${py(e.body).replace(/\n/g, "\n    ")},\n    timeout=30,\n)` : `requests.get("${base}${e.path}", headers=headers, timeout=30)`;
   return `import os

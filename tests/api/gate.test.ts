@@ -112,9 +112,9 @@ describe("bodies and errors", () => {
     expect(res.body.errors[0].pointer).toBe("/model/sum/1/of/sigma");
     expect(res.body.errors[0].detail).toMatch(/sigma/);
   });
-  it("422 naming the limit for a grid beyond the engine's limits", async () => {
+  it("422 limit_exceeded naming the limit for a grid beyond the engine's limits (as /docs/limits promises)", async () => {
     const res = await post("/api/v1/cf", org.secret, { model: normal, t: { from: 0, to: 1, count: 2 ** 20 + 1 } });
-    expectProblem(res, 422, "validation");
+    expectProblem(res, 422, "limit_exceeded");
     expect(res.body.errors[0].pointer).toBe("/t/count");
     expect(res.body.errors[0].detail).toMatch(/1048576/);
   });

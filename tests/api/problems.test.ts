@@ -64,10 +64,10 @@ describe("requests that trigger a problem get a documented type", () => {
 
   const cases: [string, string, unknown, ProblemCode][] = [
     ["grid.count over the limit", "/api/v1/density", { model: { family: "normal", mu: 0, sigma: 1 }, grid: { from: -1, to: 1, count: MAX_GRID_POINTS + 1 } }, "limit_exceeded"],
-    ["x with more points than the limit", "/api/v1/density", { model: { family: "normal", mu: 0, sigma: 1 }, x: new Array(MAX_GRID_POINTS + 1).fill(0) }, "limit_exceeded"],
     [`moment order ${MAX_MOMENT_ORDER + 1}`, "/api/v1/moments", { model: { family: "normal", mu: 0, sigma: 1 }, order: MAX_MOMENT_ORDER + 1 }, "limit_exceeded"],
     ["1001 quantile levels", "/api/v1/quantiles", { model: { family: "normal", mu: 0, sigma: 1 }, p: new Array(1001).fill(0.5) }, "limit_exceeded"],
-    ["a limit breach and a bad field together", "/api/v1/moments", { model: { family: "normal", mu: 0, sigma: -1 }, order: MAX_MOMENT_ORDER + 1 }, "validation"],
+    ["a limit breach and an unknown field together", "/api/v1/moments", { model: { family: "normal", mu: 0, sigma: 1 }, order: MAX_MOMENT_ORDER + 1, orders: 2 }, "validation"],
+    ["cf arguments over the grid limit", "/api/v1/cf", { model: { family: "normal", mu: 0, sigma: 1 }, t: { from: 0, to: 1, count: MAX_GRID_POINTS + 1 } }, "limit_exceeded"],
     ["moment order 0", "/api/v1/moments", { model: { family: "normal", mu: 0, sigma: 1 }, order: 0 }, "validation"],
     ["an unknown dataset in a model", "/api/v1/moments", { model: { compound: { count: { family: "poisson", lambda: 2 }, each: { dataset: "ds_0000000000000000", version: 1 } } } }, "not_found"],
     ["an unknown dataset in a density", "/api/v1/density", { model: { dataset: "ds_0000000000000000" } }, "not_found"],

@@ -1,0 +1,60 @@
+"use client";
+
+import type { Results } from "./run";
+
+const num = (v: number | null | undefined) => (v === null || v === undefined || !Number.isFinite(v) ? "does not exist" : Number(v.toPrecision(8)).toString());
+const pretty = (v: unknown) => JSON.stringify(v, null, 2);
+
+/** Quantiles with expected shortfall, moments, and the inversion's diagnostics. */
+export function ResultTables({ results }: { results: Results }) {
+  const { quantiles: q, moments: m } = results;
+  return (
+    <>
+      <section aria-labelledby="q-h" className="rounded-xl border border-paper-line bg-white p-4">
+        <h2 id="q-h" className="font-display text-lg font-semibold">Quantiles and expected shortfall</h2>
+        <table className="mt-2 w-full text-sm">
+          <thead className="text-left text-xs uppercase text-ink-faint">
+            <tr>
+              <th scope="col" className="py-1">p</th>
+              <th scope="col" className="py-1 text-right">Quantile (VaR)</th>
+              <th scope="col" className="py-1 text-right">Expected shortfall</th>
+            </tr>
+          </thead>
+          <tbody className="tabular-nums">
+            {q.p.map((p, i) => (
+              <tr key={p} className="border-t border-paper-line">
+                <td className="py-1">{p}</td>
+                <td className="py-1 text-right">{num(q.x[i])}</td>
+                <td className="py-1 text-right">{num(q.expectedShortfall?.[i])}</td>
+              </tr>
+            ))}
+          </tbody>
+        </table>
+      </section>
+      <section aria-labelledby="m-h" className="rounded-xl border border-paper-line bg-white p-4">
+        <h2 id="m-h" className="font-display text-lg font-semibold">Moments</h2>
+        <dl className="mt-2 grid grid-cols-2 gap-x-4 gap-y-1 text-sm tabular-nums">
+          <dt className="text-ink-faint">Mean</dt>
+          <dd>{num(m.mean)}</dd>
+          <dt className="text-ink-faint">Variance</dt>
+          <dd>{num(m.variance)}</dd>
+          <dt className="text-ink-faint">Skewness</dt>
+          <dd>{num(m.skewness)}</dd>
+          <dt className="text-ink-faint">Excess kurtosis</dt>
+          <dd>{num(m.excessKurtosis)}</dd>
+        </dl>
+        {m.notes?.length ? (
+          <ul className="mt-2 list-disc pl-5 text-sm text-ink-soft">
+            {m.notes.map((n) => (
+              <li key={n}>{n}</li>
+            ))}
+          </ul>
+        ) : null}
+      </section>
+      <details className="rounded-xl border border-paper-line bg-white p-4 text-sm">
+        <summary className="cursor-pointer font-semibold">Diagnostics of the inversion</summary>
+        <pre className="mt-2 overflow-x-auto font-mono text-xs">{pretty(results.density.diagnostics)}</pre>
+      </details>
+    </>
+  );
+}
