@@ -92,8 +92,26 @@ export const Diagnostics = z
     levels: z.number(),
     notes: z.array(z.string()),
   })
-  .passthrough()
+  .strict()
   .openapi("Diagnostics");
+
+export const QuantileDiagnostics = z
+  .object({
+    method: z.string().openapi({ description: "method used: gil-pelaez (inversion of the CF), lattice-table, discretised (opt-in discretisation of a continuous severity), lattice-fft or atoms" }),
+    terms: z.number().openapi({ description: "frequency nodes (or table points) used" }),
+    range: z.object({ from: z.number(), to: z.number() }),
+    cdfError: z.number().openapi({ description: "bound on |F_computed - F| used by the root finder" }),
+    quantileError: z
+      .array(z.number().nullable())
+      .openapi({ description: "per level: bound on |x - q_p|, derived from cdfError and the density over the bracket (null: not resolved)" }),
+    expectedShortfallError: z
+      .array(z.number().nullable())
+      .optional()
+      .openapi({ description: "per level: bound on the absolute error of the expected shortfall (tail-integral bound plus the quantile's share)" }),
+    notes: z.array(z.string()).openapi({ description: "methods used and every approximation made anywhere in the model" }),
+  })
+  .strict()
+  .openapi("QuantileDiagnostics");
 
 export const Problem = z
   .object({

@@ -31,12 +31,20 @@ export function runCf(body: z.infer<typeof CfBody>) {
   return { t: list(t), re: list(re), im: list(im) };
 }
 
+/** The opt-in discretisation of continuous severities in compounds, at the request's tolerance. */
+function compileFor(model: unknown, method: string | undefined, tolerance: number | undefined) {
+  return compile(checkModel(model), method === "discretise" ? { discretise: tolerance !== undefined ? { tolerance } : {} } : {});
+}
+
+/** Float64Array values as plain JSON arrays; non-finite entries (unresolved) as null. */
+const nullable = (a: Float64Array | undefined) => (a ? Array.from(a, (v) => (Number.isFinite(v) ? v : null)) : undefined);
+
 export function runDensity(body: z.infer<typeof DensityBody>) {
-  const compiled = compile(checkModel(body.model));
+  const compiled = compileFor(body.model, body.method, body.tolerance);
   const r = density(compiled, {
     x: body.x,
     grid: body.grid,
-    method: body.method,
+    method: body.method === "discretise" ? "auto" : body.method,
     tolerance: body.tolerance,
     range: body.range,
     maxFrequency: body.maxFrequency,
@@ -53,13 +61,23 @@ export function runDensity(body: z.infer<typeof DensityBody>) {
 }
 
 export function runQuantiles(body: z.infer<typeof QuantilesBody>) {
-  const compiled = compile(checkModel(body.model));
+  const compiled = compileFor(body.model, body.method, body.tolerance);
   const r = quantiles(compiled, body.p, { expectedShortfall: body.expectedShortfall ?? false, tolerance: body.tolerance });
+  const d = r.diagnostics;
   return {
     p: body.p,
     x: list(r.x),
-    ...(body.expectedShortfall ? { expectedShortfall: r.expectedShortfall ? Array.from(r.expectedShortfall, (v) => (Number.isFinite(v) ? v : null)) : [] } : {}),
-    diagnostics: r.diagnostics,
+    ...(body.expectedShortfall ? { expectedShortfall: nullable(r.expectedShortfall) ?? [] } : {}),
+    diagnostics: {
+      method: d.method,
+      terms: d.terms,
+      range: d.range,
+      cdfError: d.cdfError,
+      quantileError: nullable(d.quantileError)!,
+      ...(d.expectedShortfallError ? { expectedShortfallError: nullable(d.expectedShortfallError) } : {}),
+      // every approximation made anywhere in the model is stated here too (CF quadratures, discretisations)
+      notes: [...new Set([...d.notes, ...compiled.notes])],
+    },
   };
 }
 

@@ -14,8 +14,9 @@ import { compoundNode, latticeNode, mixNode, repeatNode, sampleNode, scaleNode, 
 /** Options of compile(). */
 export interface CompileOptions {
   /**
-   * Lognormal, pareto and weibull severities inside compounds are discretised onto a lattice (mean-preserving) unless
-   * this is false; the object sets the target cdf error or the span.
+   * Opt-in: lognormal, pareto and weibull severities inside compounds are discretised onto a lattice
+   * (mean-preserving) when this is given; the object sets the target cdf error or the span. By default (absent or
+   * false) compounds keep the severity's CF and stay continuous with their atom at 0.
    */
   discretise?: DiscretiseOptions | false;
 }
@@ -74,7 +75,7 @@ export function buildNode(m: Model, opts: CompileOptions = {}): Node {
   if ("shift" in m) return shiftNode(m.shift, buildNode_(m.of));
   if ("repeat" in m) return repeatNode(m.repeat, buildNode_(m.of));
   if ("mix" in m) return mixNode(m.mix.map((c) => c.weight), m.mix.map((c) => buildNode_(c.of)));
-  if ("compound" in m) return compoundNode(buildNode_(m.compound.count), buildNode_(m.compound.each), opts.discretise === false ? null : (opts.discretise ?? {}));
+  if ("compound" in m) return compoundNode(buildNode_(m.compound.count), buildNode_(m.compound.each), opts.discretise ? opts.discretise : null);
   if ("lattice" in m) return latticeNode(m.lattice.origin, m.lattice.step, m.lattice.p);
   if ("sample" in m) return sampleNode(m.sample, MAX_LATTICE, m.weights);
   throw new Error("unreachable: validated model without a known node");

@@ -11,7 +11,7 @@ const collectNotes = (cs: Node[]) => [...new Set(cs.flatMap((c) => c.notes))];
  * series, K_S(u) = K_N(K_X(u)).
  */
 export function compoundNode(N: Node, X: Node, discretise: DiscretiseOptions | null = {}): Node {
-  if (X.severity && X.kind.type === "continuous" && N.countCgf && discretise && (discretise.force || !X.severity.cfRouteFast))
+  if (X.severity && X.kind.type === "continuous" && N.countCgf && discretise)
     return discretisedNode(N, X, discretise);
   const P0 = N.p0 ?? 0;
   let kind: NodeKind;

@@ -17,11 +17,6 @@ export interface SeverityLaw {
   tailIndex: number;
   /** density unbounded or not smooth at 0 (weibull): the first cell is integrated after x = b u^m */
   rootAtZero: number;
-  /**
-   * the continuous-CF route is fast and far more accurate for this law (smooth density, quickly decaying CF):
-   * compounds keep it unless discretisation is forced
-   */
-  cfRouteFast: boolean;
 }
 
 /** Options that decide the lattice of a discretised compound. */
@@ -30,8 +25,6 @@ export interface DiscretiseOptions {
   tolerance?: number;
   /** explicit span h (overrides the choice) */
   span?: number;
-  /** discretise every lognormal/pareto/weibull severity, also those whose CF route is fast (lognormal, sigma < 1) */
-  force?: boolean;
   /** largest number of lattice points kept (power of two; default 2^16, 2^18 with a tolerance) */
   maxPoints?: number;
 }

@@ -26,7 +26,7 @@ function erlangMixtureCdf(lambda: number, scale: number, x: number): number {
 
 describe("discretised compound: classification, notes, mean", () => {
   it("NB(3, 0.2) x pareto(2.5, 1) is a lattice law whose notes state the discretisation and its error", () => {
-    const c = compile({ compound: { count: { family: "negative_binomial", r: 3, p: 0.2 }, each: { family: "pareto", alpha: 2.5, xm: 1 } } });
+    const c = compile({ compound: { count: { family: "negative_binomial", r: 3, p: 0.2 }, each: { family: "pareto", alpha: 2.5, xm: 1 } } }, { discretise: {} });
     expect(c.kind.type).toBe("lattice");
     const t = c.latticeTable!(2 ** 20)!;
     expect(t.cdfError).toBeGreaterThan(0);
@@ -43,12 +43,19 @@ describe("discretised compound: classification, notes, mean", () => {
     const c = compile({ compound: { count: { family: "poisson", lambda: 2 }, each: { family: "lognormal", mu: 0, sigma: 1 } } }, { discretise: false });
     expect(c.kind.type).toBe("mixed");
   });
-  it("lognormal with sigma < 1 keeps the fast continuous-CF route by default (mixed: atom P(N=0)); sigma 2 is discretised", () => {
-    expect(compile({ compound: { count: { family: "poisson", lambda: 20 }, each: { family: "lognormal", mu: 1, sigma: 0.8 } } }).kind.type).toBe("mixed");
-    expect(compile({ compound: { count: { family: "poisson", lambda: 5 }, each: { family: "lognormal", mu: 0, sigma: 2 } } }).kind.type).toBe("lattice");
+  it("by default every compound of a continuous severity stays continuous (mixed: atom P(N=0)); discretisation only on request", () => {
+    for (const each of [{ family: "lognormal", mu: 0, sigma: 2 }, { family: "pareto", alpha: 3, xm: 1 }, { family: "weibull", shape: 0.7, scale: 1 }] as Model[]) {
+      const m = { compound: { count: { family: "poisson", lambda: 5 }, each } } as Model;
+      const c = compile(m);
+      expect(c.kind.type).toBe("mixed");
+      // P(S = 0) = P(N = 0) = e^-5 (the severities have no atom at 0; Loss Models, compound distributions)
+      const k = c.kind as { atoms: { x: number; p: number }[] };
+      expect(k.atoms).toEqual([{ x: 0, p: Math.exp(-5) }]);
+      expect(compile(m, { discretise: {} }).kind.type).toBe("lattice");
+    }
   });
   it("exact cumulants are kept (the approximation only concerns the table)", () => {
-    const c = compile({ compound: { count: { family: "poisson", lambda: 20 }, each: { family: "lognormal", mu: 1, sigma: 0.8 } } }, { discretise: { force: true } });
+    const c = compile({ compound: { count: { family: "poisson", lambda: 20 }, each: { family: "lognormal", mu: 1, sigma: 0.8 } } }, { discretise: {} });
     // compound Poisson cumulants kappa_n = lambda E X^n, E X^n = exp(n mu + n^2 sigma^2 / 2) (JKB vol. 1, ch. 14)
     const k = c.cumulants(2);
     close(k[0]!, 20 * Math.exp(1 + 0.32), { rel: 1e-12 }, "kappa_1");
@@ -86,7 +93,7 @@ describe("discretised compound vs independent references for heavy severities", 
   const p2 = 6 * 0.2 ** 3 * 0.8 ** 2;
   const F = (x: number) => p0 + p1 * FX(x) + p2 * conv2(x);
   it("NB(3, 0.2) x pareto(2.5, 1): |F_h - F| <= stated bound at points in [0, 3)", () => {
-    const c = compile({ compound: { count: { family: "negative_binomial", r: 3, p: 0.2 }, each: { family: "pareto", alpha, xm: 1 } } });
+    const c = compile({ compound: { count: { family: "negative_binomial", r: 3, p: 0.2 }, each: { family: "pareto", alpha, xm: 1 } } }, { discretise: {} });
     const t = c.latticeTable!(2 ** 20)!;
     const bound = t.cdfError!;
     let worstErr = 0;
@@ -107,7 +114,7 @@ describe("discretised compound vs independent references for heavy severities", 
     const m = { compound: { count: { family: "poisson", lambda: 20 }, each: { family: "lognormal", mu: 1, sigma: 0.8 } } } as Model;
     const xs = [30, 60, 90, 150];
     const cont = density(compile(m, { discretise: false }), { x: xs, method: "gil-pelaez", cdfOnly: true, tolerance: 1e-7 });
-    const c = compile(m, { discretise: { force: true } });
+    const c = compile(m, { discretise: {} });
     expect(c.kind.type).toBe("lattice");
     const t = c.latticeTable!(2 ** 20)!;
     let worstErr = 0;
@@ -131,7 +138,7 @@ describe("discretised compound vs the Erlang-mixture closed form (weibull shape 
     [10, 0.5],
   ];
   it.each(cases)("Poisson(%d) x weibull(1, %d): |F_h(kh) - F(kh)| <= stated bound", (lambda, scale) => {
-    const c = compile(poissonWeibull1(lambda, scale));
+    const c = compile(poissonWeibull1(lambda, scale), { discretise: {} });
     const t = c.latticeTable!(2 ** 20)!;
     const bound = t.cdfError!;
     let cdf = 0;
@@ -157,7 +164,7 @@ describe("discretised compound vs the Erlang-mixture closed form (weibull shape 
   it("density() on a discretised compound reports an error estimate no smaller than the actual cdf error", () => {
     const lambda = 2;
     const scale = 1;
-    const c = compile(poissonWeibull1(lambda, scale));
+    const c = compile(poissonWeibull1(lambda, scale), { discretise: {} });
     const t = c.latticeTable!(2 ** 20)!;
     const xs = Array.from({ length: 40 }, (_, i) => i * 17 * t.step);
     const r = density(c, { x: xs });
@@ -174,7 +181,7 @@ describe("discretised compound vs the Erlang-mixture closed form (weibull shape 
 
 describe("discretised compound: special inputs", () => {
   it("pareto with alpha <= 1 (no mean): runs, and the stated error covers the wrapped tail by the Jensen bound", () => {
-    const c = compile({ compound: { count: { family: "poisson", lambda: 3 }, each: { family: "pareto", alpha: 0.8, xm: 2 } } });
+    const c = compile({ compound: { count: { family: "poisson", lambda: 3 }, each: { family: "pareto", alpha: 0.8, xm: 2 } } }, { discretise: {} });
     expect(c.kind.type).toBe("lattice");
     expect(c.momentIndex).toBe(0.8);
     const t = c.latticeTable!(2 ** 20)!;
@@ -196,7 +203,7 @@ describe("discretised compound: special inputs", () => {
   });
   it("a tolerance option: a strict one buys a finer span (up to 2^18 points), a loose one no finer than it needs", () => {
     const m = { compound: { count: { family: "poisson", lambda: 2 }, each: { family: "pareto", alpha: 3, xm: 1 } } } as Model;
-    const dflt = compile(m).kind as { step: number };
+    const dflt = compile(m, { discretise: {} }).kind as { step: number };
     const strict = compile(m, { discretise: { tolerance: 1e-6 } }).kind as { step: number };
     const loose = compile(m, { discretise: { tolerance: 1e-1 } }).kind as { step: number };
     expect(strict.step).toBeLessThan(dflt.step);

@@ -57,7 +57,7 @@ export function quantiles(model: CompiledModel, pIn: ArrayLike<number>, options:
     if (!(p[i] >= 0 && p[i] <= 1)) throw new CfError("invalid_model", `/p/${i}`, "each level p must be a number in [0, 1]");
   }
   const kind = model.kind;
-  if (kind.type === "lattice") return latticeQuantiles(model, kind.origin, kind.step, p, options);
+  if (kind.type === "lattice") return withModelNotes(model, latticeQuantiles(model, kind.origin, kind.step, p, options));
   if (kind.type === "discrete") {
     if (!kind.atoms) throw new CfError("not_applicable", "", "this discrete law has too many atoms to list; its quantiles cannot be computed");
     return atomQuantiles(kind.atoms, p, options);
@@ -66,7 +66,13 @@ export function quantiles(model: CompiledModel, pIn: ArrayLike<number>, options:
   const w = 1 - atoms.reduce((s, a) => s + a.p, 0);
   if (w <= 1e-14) return atomQuantiles(atoms, p, options);
   const shape = lawShape(model);
-  return shape.heavy ? heavyQuantiles(model, atoms, w, p, options) : lightQuantiles(model, atoms, w, p, options);
+  return withModelNotes(model, shape.heavy ? heavyQuantiles(model, atoms, w, p, options) : lightQuantiles(model, atoms, w, p, options));
+}
+
+/** Every approximation made in the model (CF quadratures, discretisations) is stated with the answer. */
+function withModelNotes(model: CompiledModel, r: QuantileResult): QuantileResult {
+  r.diagnostics.notes = [...new Set([...r.diagnostics.notes, ...model.notes])];
+  return r;
 }
 
 function lightQuantiles(model: CompiledModel, atoms: Atom[], w: number, p: Float64Array, o: QuantileOptions): QuantileResult {

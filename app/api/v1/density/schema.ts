@@ -5,7 +5,10 @@ import { z } from "@/lib/api/zod";
 export const { doc: DensityRequest, body: DensityBody } = modelRequest("DensityRequest", {
   x: Points.optional().openapi({ description: "arbitrary points, evaluated pointwise (good for tails); or give grid; neither: an automatic grid" }),
   grid: GridSpec.optional(),
-  method: z.enum(["auto", "fft", "gil-pelaez"]).optional().openapi({ description: "default auto: FFT on grids, Gil-Pelaez at points" }),
+  method: z
+    .enum(["auto", "fft", "gil-pelaez", "discretise"])
+    .optional()
+    .openapi({ description: "default auto: FFT on grids, Gil-Pelaez at points; discretise: opt-in mean-preserving discretisation of lognormal, pareto and weibull severities inside compounds (a lattice approximation with its error bound)" }),
   tolerance: z
     .number()
     .min(1e-14, { error: "tolerance below 1e-14 cannot be met in double precision" })

@@ -1,4 +1,4 @@
-import { Diagnostics, Meta } from "@/lib/api/common-schemas";
+import { Meta, QuantileDiagnostics } from "@/lib/api/common-schemas";
 import { modelRequest } from "@/lib/api/model-field";
 import { withinLimit, z } from "@/lib/api/zod";
 
@@ -20,6 +20,10 @@ export const { doc: QuantilesRequest, body: QuantilesBody } = modelRequest("Quan
     .optional()
     .openapi({ description: "also return E[X | X >= VaR_p] (tail value at risk) for each level" }),
   tolerance: z.number().min(1e-14).max(0.1).optional().openapi({ description: "target absolute error of the cdf used (default 1e-10)" }),
+  method: z
+    .enum(["auto", "discretise"])
+    .optional()
+    .openapi({ description: "auto (default): the continuous law is inverted from its CF; discretise: opt-in mean-preserving discretisation of lognormal, pareto and weibull severities inside compounds (a lattice approximation, labelled as such, with its error bound)" }),
 });
 
 export const QuantilesResponse = z
@@ -27,7 +31,7 @@ export const QuantilesResponse = z
     p: z.array(z.number()),
     x: z.array(z.number()),
     expectedShortfall: z.array(z.number().nullable()).optional(),
-    diagnostics: Diagnostics.or(z.record(z.string(), z.unknown())),
+    diagnostics: QuantileDiagnostics,
     meta: Meta,
   })
   .openapi("QuantilesResponse");
