@@ -10,6 +10,9 @@ export async function register() {
     if (stopping) return;
     stopping = true;
     try {
+      // In-flight computations are stopped (their requests answer 503 and are metered), then usage is written.
+      const stopped = await (await import("./lib/compute/pool")).stopCompute();
+      if (stopped > 0) await new Promise((r) => setTimeout(r, 50));
       await flushUsage();
     } finally {
       console.log(`[sumfold] usage flushed on ${signal}; exiting`);

@@ -13,6 +13,8 @@ export default defineConfig({
   },
   test: {
     include: ["tests/**/*.test.ts"],
+    // The compute worker thread is a bundle of lib/ (built once per run, about a quarter of a second).
+    globalSetup: ["tests/support/compute-worker.setup.ts"],
     testTimeout: 30_000,
     hookTimeout: 120_000,
     pool: "forks",

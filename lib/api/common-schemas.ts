@@ -66,6 +66,7 @@ export const Meta = z
     computeUnits: z.number().int().openapi({ example: 1 }),
     engineVersion: z.string().openapi({ example: "0.1.0" }),
     elapsedMs: z.number().openapi({ example: 1.8 }),
+    computeMs: z.number().optional().openapi({ example: 1.2, description: "time the engine ran in its worker thread; the units charged are max(1, ceil(computeMs / 10))" }),
   })
   .openapi("Meta");
 

@@ -12,8 +12,11 @@ export const PROBLEMS = {
   validation: { status: 422, title: "The request is not valid" },
   limit_exceeded: { status: 422, title: "The request exceeds a limit of the engine" },
   not_applicable: { status: 422, title: "The computation does not apply to this model" },
+  compute_budget_exceeded: { status: 422, title: "The computation did not finish within its deadline" },
+  tolerance_unreached: { status: 422, title: "The requested accuracy could not be reached" },
   rate_limited: { status: 429, title: "Too many requests" },
   quota_exhausted: { status: 429, title: "The monthly compute units are used up" },
+  too_many_concurrent: { status: 429, title: "Too many computations running for this key" },
   unavailable: { status: 503, title: "The service is temporarily unavailable" },
   internal: { status: 500, title: "Something went wrong on our side" },
 } as const;

@@ -9,9 +9,14 @@ import { readJson, validate } from "./body";
 import { ApiError, problemBody, toApiError } from "./errors";
 import { hashKey, parseKey, pepper } from "./key-format";
 import { keyState } from "./key-state";
+import { runCompute } from "@/lib/compute/pool";
+import type { OperationName } from "@/lib/compute/types";
+import { acquireSlot } from "./concurrency";
 import { recordUsage } from "./metering";
-import { checkLimits, refundUnits, type LimitDecision } from "./rate-limit";
+import { planOf } from "./plans";
+import { chargeUnits, checkLimits, refundUnits, type LimitDecision } from "./rate-limit";
 import type { Scope } from "./scopes";
+import { unitsForWork } from "./units";
 
 export interface AuthedKey {
   id: number;
@@ -26,6 +31,7 @@ export interface Meta {
   computeUnits: number;
   engineVersion: string;
   elapsedMs: number;
+  computeMs?: number;
 }
 
 const CORS: Record<string, string> = {
@@ -78,7 +84,22 @@ export async function authenticate(req: Request): Promise<AuthedKey> {
   return { id: found.key.id, organizationId: found.key.organizationId, prefix: found.key.prefix, scopes: found.key.scopes, plan: found.plan };
 }
 
-function limitHeaders(d: LimitDecision): Record<string, string> {
+/** The 429 for a refused limit decision: the monthly quota, or the per-second window. */
+export function refusal(decision: LimitDecision, who: "key" | "user"): ApiError {
+  if (decision.quotaExhausted) {
+    const q = decision.quotaExhausted;
+    const wait = Math.ceil((q.resetsAt.getTime() - Date.now()) / 1000);
+    return new ApiError("quota_exhausted", `This organisation has used ${q.used} of its ${q.quota} compute units this month; they renew on ${q.resetsAt.toISOString()}.`, {
+      headers: { "retry-after": String(wait) },
+    });
+  }
+  const wait = Math.max(1, Math.ceil((decision.reset - Date.now()) / 1000));
+  return new ApiError("rate_limited", `This ${who === "key" ? "key" : "account"} may make ${decision.limit} requests per second; retry after ${wait} s.`, {
+    headers: { "retry-after": String(wait) },
+  });
+}
+
+export function limitHeaders(d: LimitDecision): Record<string, string> {
   const seconds = Math.max(1, Math.ceil((d.reset - Date.now()) / 1000));
   // draft-ietf-httpapi-ratelimit-headers-11: a named policy, quota q over window w seconds; remaining r, reset t.
   return {
@@ -101,13 +122,47 @@ interface Options<S extends z.ZodType> {
   scope: Scope;
   /** the request schema; omitted for GET */
   schema?: S;
-  /** compute units charged for a valid request (documented formula), known before the work is done */
-  units: (body: z.infer<S>) => number;
+  /** fixed compute units for a call that does no engine work (catalogue); computations are charged by their work */
+  units?: (body: z.infer<S>) => number;
   /** where the model sits in the body, to prefix the core's pointers */
   modelPointer?: string;
 }
 
-type Handler<S extends z.ZodType> = (ctx: { body: z.infer<S>; key: AuthedKey; requestId: string; req: Request; params: Record<string, string> }) => Promise<Record<string, unknown>> | Record<string, unknown>;
+/** Runs one computation on the compute pool under the caller's deadline and concurrency cap. */
+export type Compute = (op: OperationName, body: unknown) => Promise<Record<string, unknown>>;
+
+type Handler<S extends z.ZodType> = (ctx: {
+  body: z.infer<S>;
+  key: AuthedKey;
+  requestId: string;
+  req: Request;
+  params: Record<string, string>;
+  compute: Compute;
+}) => Promise<Record<string, unknown>> | Record<string, unknown>;
+
+/** The work a request's computations did, for charging after the fact. */
+export interface Work {
+  computeMs: number;
+  computed: boolean;
+}
+
+/** A `compute` bound to one caller: its plan's deadline, its concurrency cap (by `who`), and a work tally. */
+export function computeFor(who: string, plan: string, work: Work, opts: { budgetMs?: number; advice?: string[]; signal?: AbortSignal } = {}): Compute {
+  return async (op, body) => {
+    const p = planOf(plan);
+    const release = acquireSlot(who, p.concurrentComputations);
+    work.computed = true;
+    try {
+      const r = await runCompute(
+        { op, body, budgetMs: opts.budgetMs ?? p.computeBudgetMs },
+        { onWork: (ms) => (work.computeMs += ms), advice: opts.advice, signal: opts.signal },
+      );
+      return r.result;
+    } finally {
+      release();
+    }
+  };
+}
 
 /**
  * The whole gate around a keyed handler: bearer key (format and checksum first, then its hash), scope, body
@@ -120,8 +175,10 @@ export function withApiKey<S extends z.ZodType>(handler: Handler<S>, opts: Optio
     let key: AuthedKey | null = null;
     let status = 500;
     let units = 0;
+    let reserved = 0;
     let headers: Record<string, string> = {};
     let admitted = false;
+    const work: Work = { computeMs: 0, computed: false };
     try {
       key = await authenticate(req);
       if (!key.scopes.includes(opts.scope)) {
@@ -129,32 +186,32 @@ export function withApiKey<S extends z.ZodType>(handler: Handler<S>, opts: Optio
       }
       const raw = opts.schema ? await readJson(req) : undefined;
       const body = opts.schema ? validate(opts.schema, raw) : (undefined as z.infer<S>);
-      // Dataset references become their empirical law first, so the units count the data's size.
+      // Fixed-price calls are charged up front; computations reserve 1 unit and pay for their work afterwards.
+      reserved = opts.units ? Math.max(1, Math.ceil(opts.units(body))) : 1;
+      const decision = await checkLimits({ keyId: key.id, organizationId: key.organizationId, plan: key.plan, units: reserved });
+      headers = limitHeaders(decision);
+      if (!decision.allowed) {
+        reserved = 0;
+        throw refusal(decision, "key");
+      }
+      admitted = decision.source === "redis";
+      // Dataset references are loaded only for admitted requests (after the rate limit and the quota).
       if (body && typeof body === "object" && "model" in body && hasDatasetRef(body.model)) {
         (body as { model: unknown }).model = await resolveDatasets(body.model, key.organizationId, "/model");
       }
-      units = Math.max(1, Math.ceil(opts.units(body)));
-      const decision = await checkLimits({ keyId: key.id, organizationId: key.organizationId, plan: key.plan, units });
-      headers = limitHeaders(decision);
-      if (!decision.allowed) {
-        units = 0;
-        if (decision.quotaExhausted) {
-          const q = decision.quotaExhausted;
-          const wait = Math.ceil((q.resetsAt.getTime() - Date.now()) / 1000);
-          throw new ApiError("quota_exhausted", `This organisation has used ${q.used} of its ${q.quota} compute units this month; they renew on ${q.resetsAt.toISOString()}.`, {
-            headers: { "retry-after": String(wait) },
-          });
-        }
-        const wait = Math.max(1, Math.ceil((decision.reset - Date.now()) / 1000));
-        throw new ApiError("rate_limited", `This key may make ${decision.limit} requests per second; retry after ${wait} s.`, {
-          headers: { "retry-after": String(wait) },
-        });
-      }
-      admitted = decision.source === "redis";
       const params = (await ctx?.params) ?? {};
-      const result = await handler({ body, key, requestId, req, params });
+      const compute = computeFor(`key:${key.id}`, key.plan, work);
+      const result = await handler({ body, key, requestId, req, params, compute });
       status = 200;
-      const meta: Meta = { requestId, computeUnits: units, engineVersion: ENGINE_VERSION, elapsedMs: Math.round((performance.now() - t0) * 100) / 100 };
+      units = work.computed ? unitsForWork(work.computeMs) : reserved;
+      if (admitted && units > reserved) chargeUnits(key.organizationId, units - reserved);
+      const meta: Meta = {
+        requestId,
+        computeUnits: units,
+        engineVersion: ENGINE_VERSION,
+        elapsedMs: Math.round((performance.now() - t0) * 100) / 100,
+        ...(work.computed ? { computeMs: Math.round(work.computeMs * 100) / 100 } : {}),
+      };
       return new Response(JSON.stringify({ ...result, meta }), {
         status,
         headers: { "content-type": "application/json", "sumfold-request-id": requestId, ...CORS, ...headers },
@@ -162,9 +219,16 @@ export function withApiKey<S extends z.ZodType>(handler: Handler<S>, opts: Optio
     } catch (e) {
       const err = toApiError(e, opts.modelPointer);
       status = err.status;
-      // Units are charged for successful responses only; an admitted request that fails gives them back.
-      if (admitted && key) refundUnits(key.organizationId, units);
-      units = 0;
+      if (err.code === "compute_budget_exceeded" && key) {
+        // A computation stopped at its deadline is charged for the time it ran.
+        units = unitsForWork(work.computeMs);
+        if (admitted && units > reserved) chargeUnits(key.organizationId, units - reserved);
+        err.extra.computeUnits = units;
+      } else {
+        // Other failures charge nothing; an admitted request gives its reserved units back.
+        if (admitted && key) refundUnits(key.organizationId, reserved);
+        units = 0;
+      }
       return problemResponse(err, requestId, headers);
     } finally {
       if (key) {

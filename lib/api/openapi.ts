@@ -11,7 +11,8 @@ import { ENGINE_VERSION } from "@/lib/version";
 import { Problem } from "./common-schemas";
 import { PROBLEMS } from "./errors";
 import { endpointExamples } from "./examples";
-import { runCf, runConvolve, runDensity, runMoments, runQuantiles } from "./operations";
+import { runCompute } from "@/lib/compute/pool";
+import type { OperationName } from "@/lib/compute/types";
 import { catalogueResponse } from "./catalogue";
 import { z } from "./zod";
 
@@ -35,7 +36,7 @@ function problems(codes: (keyof typeof PROBLEMS)[]) {
       String(status),
       {
         description: cs.map((c) => `${c}: ${PROBLEMS[c].title}`).join("; "),
-        ...(cs.some((c) => c === "rate_limited" || c === "quota_exhausted" || c === "unavailable")
+        ...(cs.some((c) => c === "rate_limited" || c === "quota_exhausted" || c === "too_many_concurrent" || c === "unavailable")
           ? { headers: { "Retry-After": { description: "seconds until a retry can succeed", schema: { type: "string" as const } } } }
           : {}),
         content: {
@@ -55,28 +56,39 @@ function problems(codes: (keyof typeof PROBLEMS)[]) {
 const KEYED_PROBLEMS = ["bad_request", "unauthorized", "forbidden", "method_not_allowed", "payload_too_large", "unsupported_media_type", "validation", "rate_limited", "quota_exhausted", "unavailable", "internal"] as const;
 /** A model may name a dataset: one that does not exist in the key's organisation answers 404. */
 const MODEL_PROBLEMS = ["not_found"] as const;
+/** What a computation can answer from the compute pool: its deadline, the per-key cap, an accuracy it could not reach. */
+const COMPUTE_PROBLEMS = ["compute_budget_exceeded", "too_many_concurrent", "tolerance_unreached"] as const;
 
-function example(id: string, run: (body: never) => unknown) {
-  const e = endpointExamples.find((x) => x.id === id)!;
-  let response: unknown;
-  try {
-    response = { ...(run(e.body as never) as object), meta: EXAMPLE_META };
-  } catch {
-    response = undefined;
+/** The demo examples' responses, computed on the compute pool like any request (a failed one is left out). */
+async function computeExamples(): Promise<Record<string, unknown>> {
+  const out: Record<string, unknown> = {};
+  for (const e of endpointExamples) {
+    if (!e.body) continue;
+    try {
+      out[e.id] = { ...(await runCompute({ op: e.id as OperationName, body: e.body, budgetMs: 10_000 })).result, meta: EXAMPLE_META };
+    } catch {
+      out[e.id] = undefined;
+    }
   }
-  return { request: e.body, response, title: e.title };
+  return out;
+}
+
+function example(id: string, responses: Record<string, unknown>) {
+  const e = endpointExamples.find((x) => x.id === id)!;
+  return { request: e.body, response: responses[id], title: e.title };
 }
 
 /** Builds the OpenAPI 3.1 document from the same zod schemas the handlers validate with. */
-export function buildOpenApiDocument(serverUrl = "/") {
+export async function buildOpenApiDocument(serverUrl = "/") {
+  const responses = await computeExamples();
   const registry = new OpenAPIRegistry();
   const bearer = registry.registerComponent("securitySchemes", "apiKey", {
     type: "http",
     scheme: "bearer",
     description: "An API key from the portal: `Authorization: Bearer sfk_...`",
   });
-  const post = (path: string, id: string, summary: string, description: string, req: z.ZodType, res: z.ZodType, run: (b: never) => unknown, extra: (keyof typeof PROBLEMS)[] = []) => {
-    const ex = example(id, run);
+  const post = (path: string, id: string, summary: string, description: string, req: z.ZodType, res: z.ZodType, extra: (keyof typeof PROBLEMS)[] = []) => {
+    const ex = example(id, responses);
     registry.registerPath({
       method: "post",
       path,
@@ -96,7 +108,7 @@ export function buildOpenApiDocument(serverUrl = "/") {
       },
     });
   };
-  post("/api/v1/cf", "cf", "Evaluate the characteristic function", "phi(t) = E[exp(i t X)] of the model at the given arguments.", CfRequest, CfResponse, runCf, [...MODEL_PROBLEMS, "limit_exceeded"]);
+  post("/api/v1/cf", "cf", "Evaluate the characteristic function", "phi(t) = E[exp(i t X)] of the model at the given arguments.", CfRequest, CfResponse, [...MODEL_PROBLEMS, ...COMPUTE_PROBLEMS, "limit_exceeded"]);
   post(
     "/api/v1/density",
     "density",
@@ -104,12 +116,11 @@ export function buildOpenApiDocument(serverUrl = "/") {
     "Inverts the characteristic function to pdf (or pmf on a lattice), cdf and sf = 1 - cdf (computed directly), with atoms separated and an error estimate in the diagnostics.",
     DensityRequest,
     DensityResponse,
-    runDensity,
-    [...MODEL_PROBLEMS, "limit_exceeded", "not_applicable"],
+    [...MODEL_PROBLEMS, ...COMPUTE_PROBLEMS, "limit_exceeded", "not_applicable"],
   );
-  post("/api/v1/quantiles", "quantiles", "Quantiles and expected shortfall", "The smallest x with F(x) >= p for each level, and optionally the expected shortfall beyond it.", QuantilesRequest, QuantilesResponse, runQuantiles, [...MODEL_PROBLEMS, "limit_exceeded", "not_applicable"]);
-  post("/api/v1/moments", "moments", "Moments and cumulants", "Raw and central moments and cumulants up to the order asked; null (with a note) where an order does not exist.", MomentsRequest, MomentsResponse, runMoments, [...MODEL_PROBLEMS, "limit_exceeded"]);
-  post("/api/v1/convolve", "convolve", "Convolve lattice tables", "Convolution of tabulated laws on a common step, and n-fold powers, by FFT with zero padding.", ConvolveRequest, ConvolveResponse, runConvolve, ["limit_exceeded"]);
+  post("/api/v1/quantiles", "quantiles", "Quantiles and expected shortfall", "The smallest x with F(x) >= p for each level, and optionally the expected shortfall beyond it.", QuantilesRequest, QuantilesResponse, [...MODEL_PROBLEMS, ...COMPUTE_PROBLEMS, "limit_exceeded", "not_applicable"]);
+  post("/api/v1/moments", "moments", "Moments and cumulants", "Raw and central moments and cumulants up to the order asked; null (with a note) where an order does not exist.", MomentsRequest, MomentsResponse, [...MODEL_PROBLEMS, ...COMPUTE_PROBLEMS, "limit_exceeded"]);
+  post("/api/v1/convolve", "convolve", "Convolve lattice tables", "Convolution of tabulated laws on a common step, and n-fold powers, by FFT with zero padding.", ConvolveRequest, ConvolveResponse, [...COMPUTE_PROBLEMS, "limit_exceeded"]);
 
   registry.registerPath({
     method: "get",

@@ -229,3 +229,14 @@ export async function unitsUsedThisMonth(organizationId: number): Promise<number
 export function refundUnits(organizationId: number, units: number): void {
   if (units > 0) void redis().decrby(monthKey(organizationId), units).catch(() => {});
 }
+
+/** Adds units found after the work (beyond those admitted up front) to the organisation's month. */
+export function chargeUnits(organizationId: number, units: number): void {
+  if (units <= 0) return;
+  const u = unitsState(organizationId);
+  u.pending += units;
+  if (!u.timer) {
+    u.timer = setTimeout(() => flushPendingUnits(organizationId), 100);
+    u.timer.unref?.();
+  }
+}

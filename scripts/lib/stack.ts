@@ -8,6 +8,7 @@ import { applyMigrations } from "./migrate";
 import { startRedis, stopRedis } from "./redis";
 import { startRedisRest } from "../fakes/redis-rest";
 import { startSmtpSink } from "../fakes/smtp-sink";
+import { buildComputeWorker, COMPUTE_WORKER_FILE } from "../build-worker";
 
 export const log = (m: string) => console.log(`[sumfold] ${m}`);
 
@@ -70,11 +71,13 @@ export function buildIsStale(): boolean {
   const id = resolve(REPO, process.env.SUMFOLD_NEXT_DIST ?? ".next", "BUILD_ID");
   if (!existsSync(id)) return true;
   const built = statSync(id).mtimeMs;
+  if (!existsSync(COMPUTE_WORKER_FILE) || statSync(COMPUTE_WORKER_FILE).mtimeMs < newestMtime(resolve(REPO, "lib"))) return true;
   return BUILD_INPUTS.some((p) => newestMtime(resolve(REPO, p)) > built);
 }
 
-export function runBuild(env: Record<string, string>): Promise<void> {
-  log("building the web app (next build)...");
+export async function runBuild(env: Record<string, string>): Promise<void> {
+  log("building the compute worker and the web app (next build)...");
+  await buildComputeWorker();
   return new Promise((resolveP, reject) => {
     const child = spawn(resolve(REPO, "node_modules/.bin/next"), ["build", "--webpack"], {
       cwd: REPO,

@@ -5,7 +5,6 @@ import request from "supertest";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { ApiError } from "@/lib/api/errors";
 import { runCf, runDensity, runMoments, runQuantiles } from "@/lib/api/operations";
-import { modelSize } from "@/lib/api/units";
 import { SampleSchema } from "@/lib/cf/schema";
 import { resolveDatasets, hasDatasetRef } from "@/lib/datasets/resolve";
 import { cookieFor, makeTeam } from "../portal/support";
@@ -117,11 +116,6 @@ describe("resolveDatasets", () => {
     expect(await resolveDatasets(plain, A.organizationId)).toBe(plain);
     expect(hasDatasetRef(model)).toBe(true);
     expect(hasDatasetRef(plain)).toBe(false);
-  });
-
-  it("after resolution the compute units count the data size (modelSize: nodes + values / 100)", async () => {
-    const resolved = await resolveDatasets({ dataset: hailId }, A.organizationId);
-    expect(modelSize(resolved)).toBe(1 + HAIL.length / 100);
   });
 
   it("a frequency table resolves to sample + weights (the counts)", async () => {

@@ -15,8 +15,13 @@ const explain: Record<keyof typeof PROBLEMS, string> = {
   validation: "The body does not match the schema, or the model is not a valid law. `errors` lists each field with a JSON pointer into your body.",
   limit_exceeded: "The model or grid exceeds one of the engine's limits; the detail names it (see Limits).",
   not_applicable: "The computation does not apply to this law, e.g. a density of a law that has none, or a moment that does not exist.",
+  compute_budget_exceeded:
+    "The computation did not finish within its plan's deadline (see Limits) and was stopped. The body reports `budgetMs`, `elapsedMs`, `workDone` and `advice`: loosen the tolerance, narrow the range, or submit it as a job. It is charged for the time it ran.",
+  tolerance_unreached:
+    "The engine could not reach the accuracy asked for (the detail names the tolerance); loosen it, or choose points where the law is better resolved.",
   rate_limited: "The key's requests per second are spent; Retry-After says when the window ends.",
   quota_exhausted: "The organisation's compute units for the month are spent; Retry-After points to the first of next month.",
+  too_many_concurrent: "The key (or explorer user) already has its plan's number of computations running; retry after one finishes.",
   unavailable: "A dependency is briefly unavailable; retry after the indicated time.",
   internal: "An unexpected failure on our side. It is logged; the body never carries internals.",
 };

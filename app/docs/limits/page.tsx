@@ -1,6 +1,7 @@
 import type { Metadata } from "next";
 import { PLANS } from "@/lib/api/plans";
 import { REDIS_TIMEOUT_MS } from "@/lib/api/rate-limit";
+import { UNIT_MS } from "@/lib/api/units";
 import * as L from "@/lib/cf/limits";
 import { Code, Prose } from "../_components/prose";
 
@@ -43,6 +44,9 @@ export default function LimitsGuide() {
             <th>plan</th>
             <th>requests per second, per key</th>
             <th>compute units per month, per organisation</th>
+            <th>deadline of one computation</th>
+            <th>computations at once, per key</th>
+            <th>deadline of one job</th>
           </tr>
         </thead>
         <tbody>
@@ -51,10 +55,30 @@ export default function LimitsGuide() {
               <td>{p.label}</td>
               <td>{fmt(p.requestsPerSecond)}</td>
               <td>{fmt(p.monthlyUnits)}</td>
+              <td>{fmt(p.computeBudgetMs / 1000)} s</td>
+              <td>{fmt(p.concurrentComputations)}</td>
+              <td>{fmt(p.jobBudgetMs / 1000)} s</td>
             </tr>
           ))}
         </tbody>
       </table>
+      <h2>Deadlines</h2>
+      <p>
+        Every computation runs on a pool of worker threads, one per core, away from the threads that answer health checks,
+        check keys and record usage, so a heavy request never holds up a light one for longer than the wait for a free thread.
+        Each computation has its plan&rsquo;s deadline above, counted from when a thread starts it. The engine checks the clock
+        in its outer loops and stops itself; a thread that has not returned a quarter of a second after the deadline is
+        terminated. Either way the answer is <code>422</code> with type <code>compute_budget_exceeded</code>, the deadline
+        (<code>budgetMs</code>), the time it ran (<code>elapsedMs</code>), how far it got (<code>workDone</code>) and what to
+        do: loosen the tolerance, narrow the range or ask for fewer points, or submit the computation as a job, whose deadline
+        is longer (last column) but also finite.
+      </p>
+      <p>
+        A key (and, in the portal&rsquo;s explorer, a user) may have the plan&rsquo;s number of computations running or waiting
+        at once on each server instance; one more answers <code>429</code> with type <code>too_many_concurrent</code> and{" "}
+        <code>Retry-After: 1</code>. When every thread is busy and the wait queue is full, the answer is <code>503</code> with{" "}
+        <code>Retry-After</code>.
+      </p>
       <h2>Rate-limit headers</h2>
       <p>
         Successful responses carry the fields of the IETF draft <em>RateLimit header fields for HTTP</em>
@@ -80,22 +104,22 @@ RateLimit: "per-key";r=49;t=1`}</Code>
       </p>
       <h2>Compute units</h2>
       <p>
-        Each successful call is charged <code>max(1, ceil(work / 1000))</code> units, where <em>size</em> is the number of nodes in
-        the model tree plus the number of values in inline samples and lattice tables divided by 100:
+        Units follow the work the engine actually did. Each computation is timed in its worker thread (the time the engine ran,
+        not the wait for a thread or the network), reported as <code>meta.computeMs</code>, and charged after the work:
       </p>
-      <table>
-        <tbody>
-          <tr><td><code>/cf</code></td><td>points × size</td></tr>
-          <tr><td><code>/density</code></td><td>points × size × 4 (1 024 points for an automatic grid)</td></tr>
-          <tr><td><code>/quantiles</code></td><td>levels × size × 64, doubled with expected shortfall</td></tr>
-          <tr><td><code>/moments</code></td><td>order × size × 8</td></tr>
-          <tr><td><code>/convolve</code></td><td>L × log2 L × (1 + log2 power), L the padded result length</td></tr>
-          <tr><td><code>/families</code>, <code>/datasets</code></td><td>1</td></tr>
-        </tbody>
-      </table>
+      <Code>{`units = max(1, ceil(computeMs / ${UNIT_MS}))`}</Code>
       <p>
-        Every response&rsquo;s <code>meta</code> reports the units charged, the request id, the engine version and the elapsed time.
-        Failed calls are recorded but charge nothing.
+        So one unit buys {UNIT_MS} ms of engine time, a light call costs 1, and a call can never cost more than its deadline
+        allows (Starter: at most {fmt(Math.ceil((PLANS.starter.computeBudgetMs + 250) / UNIT_MS))} units). To estimate a bill,
+        run a representative request and read <code>meta.computeMs</code> and <code>meta.computeUnits</code>; repeated runs of
+        the same request cost about the same. <code>/families</code> and <code>/datasets</code> cost 1.
+      </p>
+      <p>
+        Before the work, the organisation&rsquo;s month must have at least one unit left (else <code>429</code>{" "}
+        <code>quota_exhausted</code>). A computation stopped at its deadline is charged for the time it ran (the problem body
+        carries <code>computeUnits</code>); other failed calls are recorded but charge nothing. Runs in the portal&rsquo;s
+        explorer are charged the same way, count against the same monthly units and per-second rate (per user), and appear in
+        usage as the explorer&rsquo;s.
       </p>
     </Prose>
   );

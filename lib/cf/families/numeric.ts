@@ -1,6 +1,7 @@
 import { gamma as gammaFn, lgamma } from "./special";
 import { cumulantList, rawToCumulants, type Node } from "../node";
 import { sortedAnchor, unwrapFrom } from "../complex";
+import { checkDeadline } from "../deadline";
 
 /** Stated accuracy of the numerically computed CFs below (absolute error in phi). */
 export const NUMERIC_CF_ABS_ERROR = 1e-13;
@@ -12,6 +13,7 @@ export const NUMERIC_CF_ABS_ERROR = 1e-13;
 function fromPhi(t: Float64Array, re: Float64Array, im: Float64Array, phiPos: (x: number, out: Float64Array) => void) {
   const tmp = new Float64Array(2);
   for (let k = 0; k < t.length; k++) {
+    if ((k & 255) === 0) checkDeadline("cf-quadrature");
     const x = t[k];
     if (x === 0) {
       re[k] = 0;

@@ -23,6 +23,7 @@ import {
   type PartOutput,
   type Request,
 } from "./shared";
+import { checkDeadline } from "../deadline";
 
 export type { PartOptions, PartOutput, PartSolution, Request } from "./shared";
 export { evalLadder, growLadder, heavyLadder, type HeavyLadder } from "./heavy";
@@ -183,6 +184,7 @@ function lightPath(
   const [lo, hi] = shape.support;
   let last: PartOutput | null = null;
   for (let iter = 0; iter < 5; iter++) {
+    checkDeadline("refine");
     let layout: Layout | null = null;
     if (req.kind === "grid" && method === "fft") {
       layout = gridLayout(req, a, b, {

@@ -1,5 +1,6 @@
 import { getFftPlan } from "../fftplan";
 import type { Nodes } from "./nodes";
+import { checkDeadline } from "../deadline";
 
 /**
  * The mid-point Gil-Pelaez / density sums of ./pointwise evaluated on a whole grid x_j = x0 + j dx (j < N)
@@ -30,6 +31,7 @@ export function sumOnGrid(
   if (pdf) passes.push([re, im, true]);
   if (cdf || sf) passes.push([wre, wim, false]);
   for (const [pr, pi, isPdf] of passes) {
+    checkDeadline("fft");
     inp.fill(0);
     const rc = Math.cos(th);
     const rs = -Math.sin(th);

@@ -25,6 +25,7 @@ import {
 } from "./shared";
 import { maybeKernels } from "./continuous";
 import type { ErrorEstimate } from "./types";
+import { checkDeadline } from "../deadline";
 
 /**
  * Power tails: the aliasing error of the mid-point rule has an expansion in powers of the period T
@@ -69,6 +70,7 @@ export function heavyPath(
   let prevBest: { pdf: Float64Array | null; cdf: Float64Array; sf: Float64Array } | null = null;
   let lastNodes: Nodes | null = null;
   for (let lev = 0; lev < MAX_LEVELS; lev++) {
+    checkDeadline("refine");
     const T = T0 * 2 ** lev;
     const a = anchor === "left" ? a0 : anchor === "right" ? a0 + T0 - T : centerX - T / 2;
     let layout: Layout | null = null;

@@ -1,4 +1,5 @@
 import { evalPart, type ContinuousPart } from "./part";
+import { checkDeadline } from "../deadline";
 
 /**
  * Envelope of |phi_part(t)| sampled on a geometric probe (8 points per octave) and its tail integrals, used to
@@ -160,6 +161,7 @@ export interface Nodes {
 }
 
 export function buildNodes(part: ContinuousPart, h: number, K: number): Nodes {
+  checkDeadline("nodes");
   const t = new Float64Array(K);
   for (let k = 0; k < K; k++) t[k] = (k + 0.5) * h;
   const re = new Float64Array(K);

@@ -1,3 +1,4 @@
+import { checkDeadline } from "../deadline";
 import type { Nodes } from "./nodes";
 
 const RESYNC = 64;
@@ -23,6 +24,7 @@ export function sumPointwise(
   const half = mass / 2;
   const n = x.length;
   for (let j = 0; j < n; j++) {
+    checkDeadline("pointwise");
     const y = x[j] - center;
     const th = h * y;
     const rc = Math.cos(th);
@@ -65,6 +67,7 @@ export function sumPointwise(
  */
 export function integrateSf(nodes: Nodes, center: number, u: number, v: number): { value: number; absSum: number } {
   const { h, K, re, im, mass } = nodes;
+  checkDeadline("partial-expectation");
   const yu = u - center;
   const yv = v - center;
   let acc = 0;

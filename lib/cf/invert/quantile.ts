@@ -7,6 +7,7 @@ import { sumPointwise } from "./pointwise";
 import { lawShape } from "./range";
 import { atomQuantiles, latticeQuantiles } from "./quantile-table";
 import { heavyShortfall, shortfallLight } from "./shortfall";
+import { checkDeadline } from "../deadline";
 
 export interface QuantileOptions {
   /** also return the expected shortfall ES_p = q_p + E[(X - q_p)^+] / (1 - p) (TVaR) */
@@ -246,6 +247,7 @@ function rootMonotone(
   let x = 0.5 * (L + R);
   let f = 0;
   for (let it = 0; it < 200; it++) {
+    checkDeadline("quantile-root");
     const v = ev.eval(x);
     const gv = g(v);
     f = v.f;

@@ -151,7 +151,7 @@ export function UsageView() {
                   <tr key={`${r.day}-${r.keyId}-${r.endpoint}`} className="border-b border-paper-line last:border-0">
                     <td className="px-4 py-2 whitespace-nowrap">{fmtDay(r.day)}</td>
                     <td className="px-4 py-2">
-                      {r.keyLabel ?? `#${r.keyId}`}
+                      {r.keyId === 0 ? "Explorer (portal)" : (r.keyLabel ?? `#${r.keyId}`)}
                       {r.keyPrefix ? <span className="block font-mono text-xs text-ink-faint">{r.keyPrefix}</span> : null}
                     </td>
                     <td className="px-4 py-2 font-mono text-xs">{r.endpoint}</td>

@@ -3,8 +3,8 @@ import { buildOpenApiDocument } from "@/lib/api/openapi";
 
 export const dynamic = "force-static";
 
-export function GET() {
-  return Response.json(buildOpenApiDocument(), {
+export async function GET() {
+  return Response.json(await buildOpenApiDocument(), {
     headers: { "access-control-allow-origin": "*", "cache-control": "public, max-age=300" },
   });
 }

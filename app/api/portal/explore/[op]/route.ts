@@ -1,11 +1,15 @@
 // POST /api/portal/explore/:op (density | quantiles | moments): the explorer's runs, on the signed-in session,
-// through the same request schemas and computations as the public endpoints (not metered as key usage).
+// through the same request schemas, compute pool, deadlines, rate limit and metering as the public endpoints.
+// Usage rows carry key id 0 and the explorer's path as endpoint, so usage shows them as the explorer's.
 // First: .openapi() must be on zod before any schema module (lib/cf/schema included) builds its schemas.
 import "@/lib/api/zod";
 import { randomUUID } from "node:crypto";
 import { readJson, validate } from "@/lib/api/body";
 import { problemBody, toApiError } from "@/lib/api/errors";
-import { runDensity, runMoments, runQuantiles } from "@/lib/api/operations";
+import { computeFor, limitHeaders, refusal, type Work } from "@/lib/api/gate";
+import { recordUsage } from "@/lib/api/metering";
+import { chargeUnits, checkLimits, refundUnits } from "@/lib/api/rate-limit";
+import { unitsForWork } from "@/lib/api/units";
 import { requireCaller } from "@/lib/auth/session";
 import { hasDatasetRef, resolveDatasets } from "@/lib/datasets/resolve";
 import { handler, notFound } from "@/lib/portal/http";
@@ -15,31 +19,68 @@ import { QuantilesBody } from "@/app/api/v1/quantiles/schema";
 
 export const dynamic = "force-dynamic";
 
-async function withData<B extends { model: unknown }>(body: B, organizationId: number): Promise<B> {
-  return hasDatasetRef(body.model) ? { ...body, model: await resolveDatasets(body.model, organizationId) } : body;
-}
+const SCHEMAS = { density: DensityBody, quantiles: QuantilesBody, moments: MomentsBody } as const;
+type Op = keyof typeof SCHEMAS;
 
-const OPS = {
-  density: async (raw: unknown, org: number) => runDensity(await withData(validate(DensityBody, raw), org)),
-  quantiles: async (raw: unknown, org: number) => runQuantiles(await withData(validate(QuantilesBody, raw), org)),
-  moments: async (raw: unknown, org: number) => runMoments(await withData(validate(MomentsBody, raw), org)),
-} as const;
+// Explorer callers are limited per user; their limiter ids are negative so they never meet a key's.
+const explorerLimiterId = (userId: number) => -userId;
+
+const EXPLORER_ADVICE = [
+  "Loosen the tolerance (a larger value, e.g. 1e-9 instead of 1e-14).",
+  "Narrow the range, or ask for fewer points or levels.",
+  "Run it as a job (the explorer's \"Run as job\"), whose deadline is longer.",
+];
 
 export const POST = handler(async (req, params) => {
   const caller = await requireCaller(req, ["explore"]);
-  const op = OPS[params.op as keyof typeof OPS];
-  if (!op || !Object.hasOwn(OPS, params.op)) throw notFound("This computation");
+  if (!Object.hasOwn(SCHEMAS, params.op)) throw notFound("This computation");
+  const op = params.op as Op;
   const t0 = performance.now();
+  const requestId = randomUUID();
+  const work: Work = { computeMs: 0, computed: false };
+  let status = 500;
+  let units = 0;
+  let admitted = false;
+  let headers: Record<string, string> = {};
   try {
-    const result = await op(await readJson(req), caller.organizationId);
-    return new Response(JSON.stringify({ ...result, elapsedMs: Math.round((performance.now() - t0) * 10) / 10 }), {
-      headers: { "content-type": "application/json", "cache-control": "no-store" },
-    });
+    const body = validate(SCHEMAS[op], await readJson(req)) as { model: unknown };
+    const decision = await checkLimits({ keyId: explorerLimiterId(caller.userId), organizationId: caller.organizationId, plan: caller.plan, units: 1 });
+    headers = limitHeaders(decision);
+    if (!decision.allowed) throw refusal(decision, "user");
+    admitted = decision.source === "redis";
+    const input = hasDatasetRef(body.model) ? { ...body, model: await resolveDatasets(body.model, caller.organizationId) } : body;
+    const result = await computeFor(`user:${caller.userId}`, caller.plan, work, { advice: EXPLORER_ADVICE })(op, input);
+    status = 200;
+    units = unitsForWork(work.computeMs);
+    if (admitted) chargeUnits(caller.organizationId, units - 1);
+    return new Response(
+      JSON.stringify({ ...result, elapsedMs: Math.round((performance.now() - t0) * 10) / 10, computeMs: Math.round(work.computeMs * 10) / 10, computeUnits: units }),
+      { headers: { "content-type": "application/json", "cache-control": "no-store", ...headers } },
+    );
   } catch (e) {
     const err = toApiError(e);
-    return new Response(JSON.stringify(problemBody(err, `urn:sumfold:request:${randomUUID()}`)), {
+    status = err.status;
+    if (err.code === "compute_budget_exceeded") {
+      units = unitsForWork(work.computeMs);
+      if (admitted) chargeUnits(caller.organizationId, units - 1);
+      err.extra.computeUnits = units;
+    } else {
+      if (admitted) refundUnits(caller.organizationId, 1);
+      units = 0;
+    }
+    return new Response(JSON.stringify(problemBody(err, `urn:sumfold:request:${requestId}`)), {
       status: err.status,
-      headers: { "content-type": "application/problem+json", "cache-control": "no-store" },
+      headers: { "content-type": "application/problem+json", "cache-control": "no-store", ...headers, ...err.headers },
+    });
+  } finally {
+    recordUsage({
+      requestId,
+      keyId: 0,
+      organizationId: caller.organizationId,
+      endpoint: `POST /api/portal/explore/${op}`,
+      status,
+      durationMs: Math.round(performance.now() - t0),
+      computeUnits: units,
     });
   }
 });
