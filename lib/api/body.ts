@@ -1,6 +1,7 @@
 import type { z } from "zod";
 import { toPointer } from "@/lib/cf/errors";
 import { ApiError, type FieldError } from "./errors";
+import { checkBodyShape } from "./walk";
 import { isLimitIssue } from "./zod";
 
 type Flagged = FieldError & { limit?: boolean };
@@ -35,11 +36,15 @@ export async function readJson(req: Request): Promise<unknown> {
   }
   const text = Buffer.concat(chunks).toString("utf8");
   if (text.trim() === "") throw new ApiError("bad_request", "The request body is empty; send a JSON object.");
+  let value: unknown;
   try {
-    return JSON.parse(text);
+    value = JSON.parse(text);
   } catch (e) {
     throw new ApiError("bad_request", `The request body is not valid JSON: ${(e as Error).message}`);
   }
+  // Depth, container and dataset-reference limits, checked without recursion before any validation.
+  checkBodyShape(value);
+  return value;
 }
 
 const tooLarge = () => new ApiError("payload_too_large", `The request body exceeds ${MAX_BODY_BYTES} bytes (1 MiB).`);
