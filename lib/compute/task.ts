@@ -2,6 +2,7 @@
 // one computation at a time under a cooperative deadline and returns a plain, cloneable outcome.
 import type { MessagePort } from "node:worker_threads";
 import { ApiError } from "@/lib/api/errors";
+import { finiteResult, refuseOverflow } from "@/lib/api/finite";
 import { runCf, runConvolve, runDensity, runMoments, runQuantiles } from "@/lib/api/operations";
 import { clearDeadline, deadlineProgress, isDeadlineExceeded, setDeadline } from "@/lib/cf/deadline";
 import { isCfError } from "@/lib/cf/errors";
@@ -25,7 +26,8 @@ export default function compute(task: ComputeTask & { port?: MessagePort }): Com
   try {
     const op = OPS[task.op];
     if (!op) throw new ApiError("not_found", `No computation named "${task.op}".`);
-    const result = op(task.body as never);
+    refuseOverflow(task.op, task.body as Record<string, unknown>);
+    const result = finiteResult(task.op, task.body as Record<string, unknown>, op(task.body as never));
     return { ok: true, result, computeMs: ms() };
   } catch (e) {
     const computeMs = ms();
