@@ -108,9 +108,37 @@ export function firstNonFinite(root: unknown): string | null {
   return null;
 }
 
+/**
+ * Diagnostics may hold quantities that are infinite by nature (e.g. the largest frequency used for a law with no
+ * density); they are sent as null (as JSON always rendered them), never as a float.
+ */
+function nullNonFinite(root: Json): void {
+  const stack: unknown[] = [root];
+  while (stack.length) {
+    const v = stack.pop();
+    if (!v || typeof v !== "object") continue;
+    for (const [k, x] of Object.entries(v)) {
+      if (typeof x === "number" && !Number.isFinite(x)) (v as Record<string, unknown>)[k] = null;
+      else if (x instanceof Float64Array && x.some((y) => !Number.isFinite(y))) (v as Record<string, unknown>)[k] = Array.from(x, (y) => (Number.isFinite(y) ? y : null));
+      else if (x && typeof x === "object" && !(x instanceof Float64Array)) stack.push(x);
+    }
+  }
+}
+
 /** Makes a result safe to answer 200 with, or throws 422: clamps where the bound allows, refuses otherwise. */
 export function finiteResult(op: string, body: Json, result: Json): Json {
   if (op === "density") clampDensity(body, result);
+  if (op === "quantiles") {
+    const qe = (result.diagnostics as { quantileError?: ArrayLike<number> } | undefined)?.quantileError;
+    const p = body.p as number[];
+    for (let i = 0; qe && i < qe.length; i++) {
+      if (!Number.isFinite(qe[i]) && p[i] > 0 && p[i] < 1) {
+        const tol = typeof body.tolerance === "number" ? `the tolerance ${body.tolerance}` : "the default tolerance";
+        throw unreached(`The quantile at p = ${p[i]} could not be resolved (its error bound is unbounded): ${tol} could not be reached there.`, `/p/${i}`);
+      }
+    }
+  }
+  if (result.diagnostics && typeof result.diagnostics === "object") nullNonFinite(result.diagnostics as Json);
   if (op === "quantiles") {
     const x = result.x as number[];
     const p = body.p as number[];

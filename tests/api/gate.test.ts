@@ -41,7 +41,9 @@ describe("keys", () => {
   it("accepts a live key and answers with meta", async () => {
     const res = await post("/api/v1/cf", org.secret, cfBody);
     expect(res.status, JSON.stringify(res.body)).toBe(200);
-    expect(res.body.meta).toMatchObject({ computeUnits: 1, engineVersion: expect.any(String), requestId: expect.any(String) });
+    expect(res.body.meta).toMatchObject({ engineVersion: expect.any(String), requestId: expect.any(String) });
+    // units follow the engine time: max(1, ceil(computeMs / 10)) (see /docs/limits)
+    expect(res.body.meta.computeUnits).toBe(Math.max(1, Math.ceil(res.body.meta.computeMs / 10)));
     expect(res.headers["sumfold-request-id"]).toBe(res.body.meta.requestId);
   });
 

@@ -10,7 +10,7 @@ import { MAX_GRID_POINTS, MAX_MOMENT_ORDER } from "@/lib/cf/limits";
 import { apiServer, orgWithKey } from "../support/api";
 
 const root = resolve(import.meta.dirname, "../..");
-const doc = buildOpenApiDocument() as unknown as { paths: Record<string, Record<string, { responses: Record<string, { content?: Record<string, { examples?: Record<string, unknown> }> }> }>> };
+const doc = (await buildOpenApiDocument()) as unknown as { paths: Record<string, Record<string, { responses: Record<string, { content?: Record<string, { examples?: Record<string, unknown> }> }> }>> };
 
 /** The problem types an operation documents, from the named examples of its problem responses. */
 function documented(path: string, method = "post"): Map<string, string> {

@@ -21,7 +21,7 @@ const BIG = 100_000;
 
 beforeAll(async () => {
   T = await makeTeam("Pemberton Reinsurance");
-  const cookie = await cookieFor(T.developer.id, T.org.id);
+  const cookie = await cookieFor(T.developer.id);
   const small = await upload(uploads, cookie, "1.5\n2.5\n4\n", { name: "Small losses" });
   smallId = small.body.dataset.id;
   // invented: 100 000 simulated loss amounts
