@@ -135,16 +135,19 @@ describe("the explorer is metered, limited and isolated like the API", () => {
 
   it("is rate-limited per user at the plan's rate", async () => {
     const T = await makeTeam("Okonkwo Castings");
-    const n = PLANS.starter.requestsPerSecond + 5;
+    const n = 3 * PLANS.starter.requestsPerSecond + 5;
     // start in a fresh one-second window so all requests share it
     await new Promise((r) => setTimeout(r, 1000 - (Date.now() % 1000) + 5));
     const cookie = await cookieFor(T.developer.id);
+    const start = Date.now();
     const statuses = await Promise.all(
       Array.from({ length: n }, () =>
         supertest(server).post("/api/portal/explore/moments").set("content-type", "application/json").set("cookie", cookie).send(JSON.stringify({ model: { family: "normal", mu: 0, sigma: 1 }, order: 1 })).then((r) => r.status),
       ),
     );
-    expect(statuses.filter((s) => s === 429).length).toBeGreaterThan(0);
-    expect(statuses.filter((s) => s === 200).length).toBeLessThanOrEqual(PLANS.starter.requestsPerSecond);
+    // on a busy machine the burst may straddle a window boundary: at most the rate per window touched
+    const windows = Math.floor(Date.now() / 1000) - Math.floor(start / 1000) + 1;
+    expect(statuses.filter((s) => s === 200).length).toBeLessThanOrEqual(PLANS.starter.requestsPerSecond * windows);
+    expect(statuses.filter((s) => s === 429).length).toBeGreaterThanOrEqual(n - PLANS.starter.requestsPerSecond * windows);
   });
 });
