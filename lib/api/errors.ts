@@ -84,6 +84,9 @@ export function toApiError(e: unknown, modelPointer = ""): ApiError {
         return new ApiError("not_applicable", e.detail, { errors });
     }
   }
+  if (e instanceof Error && e.name === "DbUnavailableError") {
+    return new ApiError("unavailable", "The database is not answering right now; retry in a few seconds.", { headers: { "retry-after": "5" } });
+  }
   console.error("[sumfold] unexpected error", e);
   return new ApiError("internal", "The request failed unexpectedly. It has been logged; please retry, and contact support if it persists.");
 }

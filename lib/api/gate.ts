@@ -2,6 +2,7 @@ import "server-only";
 import { randomUUID } from "node:crypto";
 import type { z } from "zod";
 import { hasDatasetRef, resolveDatasets } from "@/lib/datasets/resolve";
+import { withDbDeadline } from "@/lib/db/client";
 import { getKeyByHash } from "@/lib/db/keys";
 import type { ApiKey } from "@/lib/db/schema";
 import { ENGINE_VERSION } from "@/lib/version";
@@ -50,7 +51,7 @@ async function lookUp(hash: string) {
   const now = Date.now();
   const hit = cache().get(hash);
   if (hit && now - hit.at < KEY_CACHE_MS) return hit.row;
-  const row = await getKeyByHash({ secretHash: hash });
+  const row = await withDbDeadline(getKeyByHash({ secretHash: hash }));
   if (cache().size > 50_000) cache().clear();
   cache().set(hash, { at: now, row });
   return row;

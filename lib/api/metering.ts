@@ -1,7 +1,7 @@
 import "server-only";
 import { appendFileSync, existsSync, mkdirSync, readdirSync, readFileSync, renameSync, unlinkSync } from "node:fs";
 import { join } from "node:path";
-import { getDb } from "@/lib/db/client";
+import { getDb, withDbDeadline } from "@/lib/db/client";
 import { touchKeys } from "@/lib/db/keys";
 import { usageEvents, type NewUsageEvent } from "@/lib/db/schema";
 
@@ -50,7 +50,9 @@ export function recordUsage(event: Omit<NewUsageEvent, "createdAt"> & { createdA
 
 async function insertRows(rows: NewUsageEvent[]): Promise<void> {
   for (let i = 0; i < rows.length; i += BATCH) {
-    await getDb().insert(usageEvents).ignore().values(rows.slice(i, i + BATCH));
+    // A database that stops answering must not hold the flush: the batch is spooled, and INSERT IGNORE on the
+    // request id keeps a late-finishing insert and the replay from counting twice.
+    await withDbDeadline(getDb().insert(usageEvents).ignore().values(rows.slice(i, i + BATCH)), 3000);
   }
 }
 
@@ -128,7 +130,7 @@ export function flushUsage(): Promise<void> {
       console.error(`[sumfold] usage metering: database unavailable, ${written ? 0 : rows.length} events spooled (${(e as Error).message})`);
     }
     try {
-      await touchKeys(lastUsed);
+      await withDbDeadline(touchKeys(lastUsed), 3000);
     } catch {
       for (const [k, v] of lastUsed) if (!s.lastUsed.has(k)) s.lastUsed.set(k, v);
     }

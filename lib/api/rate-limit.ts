@@ -1,6 +1,7 @@
 import "server-only";
 import { Ratelimit } from "@upstash/ratelimit";
 import { Redis } from "@upstash/redis";
+import { withDbDeadline } from "@/lib/db/client";
 import { sumUnitsThisMonth } from "@/lib/db/usage";
 import { planOf, PLANS, type PlanName } from "./plans";
 
@@ -201,7 +202,7 @@ async function leaseAndDecide(input: LimitInput): Promise<LimitDecision> {
     if (used === sent) {
       // A new month, or Redis lost its counter: start from what the database has recorded this month.
       void redis().expire(key, 40 * 86_400).catch(() => {});
-      const recorded = await sumUnitsThisMonth({ organizationId: input.organizationId }).catch(() => 0);
+      const recorded = await withDbDeadline(sumUnitsThisMonth({ organizationId: input.organizationId })).catch(() => 0);
       if (recorded > 0) used = await withTimeout(redis().incrby(key, recorded));
     }
     u.used = used;

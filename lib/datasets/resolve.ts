@@ -1,5 +1,6 @@
 import "server-only";
 import { ApiError } from "@/lib/api/errors";
+import { withDbDeadline } from "@/lib/db/client";
 import { getDatasetInOrg, getDatasetVersionMeta, readVersionValues } from "@/lib/db/datasets";
 import { DATASET_ID } from "./schemas";
 
@@ -19,7 +20,7 @@ async function valuesOf(versionId: number): Promise<Entry> {
     c.set(versionId, hit);
     return hit;
   }
-  const { values, weights } = await readVersionValues({ versionId });
+  const { values, weights } = await withDbDeadline(readVersionValues({ versionId }), 5000);
   const entry = { values, weights, bytes: values.byteLength + (weights?.byteLength ?? 0) };
   let used = (g.__sumfoldDatasetCacheBytes ?? 0) + entry.bytes;
   for (const [k, v] of c) {
@@ -92,10 +93,10 @@ export async function resolveDatasets(model: unknown, organizationId: number, po
   if (refs.length === 0) return model;
   const byName = new Map<string, Promise<Record<string, unknown>>>();
   const load = async (r: Ref): Promise<Record<string, unknown>> => {
-    const row = await getDatasetVersionMeta({ organizationId, publicId: r.id, version: r.version });
+    const row = await withDbDeadline(getDatasetVersionMeta({ organizationId, publicId: r.id, version: r.version }));
     if (!row) {
       // Another organisation's dataset reads exactly like a missing one.
-      const ds = r.version === undefined ? null : await getDatasetInOrg({ organizationId, publicId: r.id });
+      const ds = r.version === undefined ? null : await withDbDeadline(getDatasetInOrg({ organizationId, publicId: r.id }));
       const detail = ds ? `Dataset ${r.id} has no version ${r.version}; its latest is ${ds.dataset.latestVersion}.` : `No dataset ${r.id} in this key's organisation.`;
       throw new ApiError("not_found", detail, { errors: [{ detail, pointer: ds ? `${r.at}/version` : `${r.at}/dataset` }] });
     }
