@@ -5,6 +5,8 @@ export async function register() {
   const { flushUsage } = await import("./lib/api/metering");
   // Quota e-mails after each metering flush, and the hourly scan for keys about to expire.
   (await import("./lib/portal/schedule")).startPortalSchedules();
+  // Billing: period close and the dunning sweep, every minute.
+  (await import("./lib/billing/schedule")).startBillingSchedule();
   let stopping = false;
   const stop = async (signal: string) => {
     if (stopping) return;

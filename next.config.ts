@@ -6,7 +6,7 @@ const nextConfig: NextConfig = {
   distDir: process.env.SUMFOLD_NEXT_DIST ?? ".next",
   poweredByHeader: false,
   // mysql2 and friends stay as plain Node requires on the server.
-  serverExternalPackages: ["mysql2", "ioredis", "nodemailer", "piscina", "bullmq"],
+  serverExternalPackages: ["mysql2", "ioredis", "nodemailer", "piscina", "bullmq", "stripe", "pdf-lib"],
 };
 
 export default nextConfig;

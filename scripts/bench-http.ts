@@ -19,7 +19,7 @@ const amount = Number(values.requests);
 process.env.SUMFOLD_TEST_PORT_OFFSET = "2000";
 const root = resolve("/dev/shm", `sumfold-bench-${process.pid}`);
 const layout = testLayout(root);
-const secrets: Secrets = { NEXTAUTH_SECRET: "bench", SUMFOLD_KEY_PEPPER: "bench-pepper", DB_PASSWORD: layout.db.password, UPSTASH_REDIS_REST_TOKEN: "bench-token" };
+const secrets: Secrets = { NEXTAUTH_SECRET: "bench", SUMFOLD_KEY_PEPPER: "bench-pepper", DB_PASSWORD: layout.db.password, UPSTASH_REDIS_REST_TOKEN: "bench-token", STRIPE_SECRET_KEY: "sk_test_bench", STRIPE_WEBHOOK_SECRET: "whsec_bench" };
 const services = await startServices(layout, secrets);
 const servers: ChildProcess[] = [];
 try {

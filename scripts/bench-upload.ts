@@ -13,7 +13,7 @@ const { values: args } = parseArgs({ options: { server: { type: "boolean", defau
 process.env.SUMFOLD_TEST_PORT_OFFSET ??= "2500";
 const root = resolve("/dev/shm", `sumfold-bench-upload-${process.pid}`);
 const layout = testLayout(root);
-const secrets: Secrets = { NEXTAUTH_SECRET: "bench-upload", SUMFOLD_KEY_PEPPER: "bench-pepper", DB_PASSWORD: layout.db.password, UPSTASH_REDIS_REST_TOKEN: "bench-token" };
+const secrets: Secrets = { NEXTAUTH_SECRET: "bench-upload", SUMFOLD_KEY_PEPPER: "bench-pepper", DB_PASSWORD: layout.db.password, UPSTASH_REDIS_REST_TOKEN: "bench-token", STRIPE_SECRET_KEY: "sk_test_bench", STRIPE_WEBHOOK_SECRET: "whsec_bench" };
 const MiB = 1024 * 1024;
 const mb = (n: number) => `${(n / MiB).toFixed(1)} MiB`;
 

@@ -26,7 +26,7 @@ process.on("SIGTERM", () => void shutdown(0));
 
 try {
   services = await startServices(layout, secrets);
-  const inserted = await seedDemo(services.env.DATABASE_URL);
+  const inserted = await seedDemo(services.env.DATABASE_URL, services.env);
   log(inserted > 0 ? `seeded the demo scenario (${inserted} rows)` : "demo data already present");
   if (buildIsStale()) await runBuild(services.env);
   if (stopping) process.exit(0);

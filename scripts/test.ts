@@ -18,6 +18,8 @@ const secrets: Secrets = {
   SUMFOLD_KEY_PEPPER: "test-key-pepper-not-for-production",
   DB_PASSWORD: layout.db.password,
   UPSTASH_REDIS_REST_TOKEN: "test-redis-rest-token",
+  STRIPE_SECRET_KEY: "sk_test_local_fake_only",
+  STRIPE_WEBHOOK_SECRET: "whsec_test_local_fake_only",
 };
 
 let services: Services | null = null;

@@ -22,6 +22,8 @@ export const PERMISSIONS = {
   "models.read": ["admin", "developer"],
   /** read the plan and quota */
   "plan.read": ["admin", "developer", "billing"],
+  /** change the plan, the card, billing details and contacts; read and pay invoices */
+  "billing.manage": ["admin", "billing"],
 } as const satisfies Record<string, readonly Role[]>;
 
 export type Permission = keyof typeof PERMISSIONS;

@@ -28,7 +28,7 @@ export const organizations = mysqlTable(
     id: id(),
     slug: varchar("slug", { length: 64 }).notNull(),
     name: varchar("name", { length: 160 }).notNull(),
-    plan: varchar("plan", { length: 32 }).notNull().default("starter"),
+    plan: varchar("plan", { length: 32 }).notNull().default("free"),
     createdAt: createdAt(),
   },
   (t) => [uniqueIndex("organizations_slug_uq").on(t.slug)],

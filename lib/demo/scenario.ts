@@ -8,6 +8,29 @@ export const demoOrganizations = [
   { slug: "kestrel-precision", name: "Kestrel Precision Works", plan: "starter" },
 ] as const;
 
+/**
+ * Billing of the demo organisations: their details, extra billing contacts, and the compute units they used last
+ * month (spread over its days), which the first period close turns into last month's invoice.
+ */
+export const demoBilling = [
+  {
+    org: "harrowgate-mutual",
+    billingName: "Harrowgate Mutual Insurance Society",
+    billingAddress: "14 Cloth Hall Street, Harrowgate HG1 4QT, United Kingdom",
+    taxId: "GB 204 7781 36",
+    contacts: [{ email: "accounts@harrowgate.example", name: "Harrowgate accounts payable" }],
+    lastMonthUnits: 31_420_750,
+  },
+  {
+    org: "kestrel-precision",
+    billingName: "Kestrel Precision Works Ltd",
+    billingAddress: "Unit 7, Mill Race Estate, Kestrel Bridge KB3 9LP, United Kingdom",
+    taxId: "",
+    contacts: [],
+    lastMonthUnits: 1_318_400,
+  },
+] as const;
+
 export const demoPeople = [
   { email: "ada.okafor@harrowgate.example", name: "Ada Okafor", memberships: [["harrowgate-mutual", "admin"]] },
   { email: "tomas.lind@harrowgate.example", name: "Tomas Lind", memberships: [["harrowgate-mutual", "developer"]] },

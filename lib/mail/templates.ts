@@ -65,3 +65,43 @@ export const quotaMail = (p: { organization: string; threshold: number; used: nu
     ],
     { label: "See the usage", url: p.url },
   );
+
+export const receiptMail = (p: { organization: string; number: string; total: string; period: string; card: string; url: string }) =>
+  compose(
+    `[${p.organization}] Receipt for invoice ${p.number}`,
+    [`We received ${p.total} for invoice ${p.number} (${p.period}), charged to ${p.card}.`, "The invoice and its PDF are in the portal."],
+    { label: "View the invoice", url: p.url },
+  );
+
+export const paymentFailedMail = (p: { organization: string; number: string; total: string; graceDays: number; restrictOn: string; url: string }) =>
+  compose(
+    `[${p.organization}] Payment failed for invoice ${p.number}`,
+    [
+      `The payment of ${p.total} for invoice ${p.number} was declined, so the invoice is past due.`,
+      `Update the card or pay the invoice within ${p.graceDays} days (by ${p.restrictOn}). After that, the organisation's API keys keep working but at the Free plan's limits until the invoice is paid; no data is removed.`,
+    ],
+    { label: "Pay the invoice", url: p.url },
+  );
+
+export const restrictedMail = (p: { organization: string; plan: string; url: string }) =>
+  compose(
+    `[${p.organization}] API limits lowered to the Free plan`,
+    [
+      `An invoice of ${p.organization} is still unpaid after the grace period, so the ${p.plan} plan's limits are suspended and the Free plan's limits apply. Keys, datasets and history are kept.`,
+      "Paying the open invoice restores the plan within seconds.",
+    ],
+    { label: "Pay now", url: p.url },
+  );
+
+export const planChangeMail = (p: { organization: string; actor: string; from: string; to: string; when: string; charge?: string; url: string }) =>
+  compose(
+    `[${p.organization}] Plan change: ${p.from} → ${p.to}`,
+    [
+      `${p.actor} changed the plan of ${p.organization} from ${p.from} to ${p.to}, effective ${p.when}.`,
+      ...(p.charge ? [`The prorated difference for the rest of this period, ${p.charge}, was charged at once.`] : []),
+    ],
+    { label: "Open billing", url: p.url },
+  );
+
+export const planRestoredMail = (p: { organization: string; plan: string; url: string }) =>
+  compose(`[${p.organization}] ${p.plan} plan restored`, [`Thank you: the open invoices are paid and the ${p.plan} plan's limits apply again.`], { label: "Open billing", url: p.url });

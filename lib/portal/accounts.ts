@@ -47,7 +47,7 @@ export async function signUp(input: { name: string; email: string; password: str
   const ids = await db.transaction(async (tx) => {
     const [u] = await tx.insert(users).values({ email: input.email, name: input.name, passwordHash });
     const slug = `${slugify(input.organization)}-${randomBytes(3).toString("hex")}`;
-    const [o] = await tx.insert(organizations).values({ slug, name: input.organization, plan: "starter" });
+    const [o] = await tx.insert(organizations).values({ slug, name: input.organization, plan: "free" });
     await tx.insert(memberships).values({ userId: u.insertId, organizationId: o.insertId, role: "admin" });
     await recordAudit(
       { organizationId: o.insertId, actorType: "user", actorUserId: u.insertId, action: "organization.created", targetType: "organization", targetId: String(o.insertId), detail: { name: input.organization } },

@@ -14,6 +14,8 @@ export interface Layout {
   redisRestPort: number;
   smtpPort: number;
   mailboxPort: number;
+  /** the payment provider's local fake (API, hosted checkout page, signed webhooks) */
+  paymentsPort: number;
   mailDir: string;
   spoolDir: string;
 }
@@ -34,6 +36,7 @@ export function demoLayout(secrets: Secrets): Layout {
     redisRestPort: envPort("SUMFOLD_REDIS_REST_PORT", 8079),
     smtpPort: envPort("SUMFOLD_SMTP_PORT", 2525),
     mailboxPort: envPort("SUMFOLD_MAILBOX_PORT", 8025),
+    paymentsPort: envPort("SUMFOLD_PAYMENTS_PORT", 8087),
     mailDir: resolve(root, "mail"),
     spoolDir: resolve(root, "spool"),
   };
@@ -51,6 +54,7 @@ export function testLayout(root: string): Layout {
     redisRestPort: 8099 + o,
     smtpPort: 2535 + o,
     mailboxPort: 8035 + o,
+    paymentsPort: 8107 + o,
     mailDir: resolve(root, "mail"),
     spoolDir: resolve(root, "spool"),
   };
@@ -61,9 +65,14 @@ export interface Secrets {
   SUMFOLD_KEY_PEPPER: string;
   DB_PASSWORD: string;
   UPSTASH_REDIS_REST_TOKEN: string;
+  /** the payment provider's secret API key (locally: the fake's) */
+  STRIPE_SECRET_KEY: string;
+  /** the signing secret of the provider's webhook deliveries */
+  STRIPE_WEBHOOK_SECRET: string;
 }
 
-const SECRET_NAMES: (keyof Secrets)[] = ["NEXTAUTH_SECRET", "SUMFOLD_KEY_PEPPER", "DB_PASSWORD", "UPSTASH_REDIS_REST_TOKEN"];
+const SECRET_NAMES: (keyof Secrets)[] = ["NEXTAUTH_SECRET", "SUMFOLD_KEY_PEPPER", "DB_PASSWORD", "UPSTASH_REDIS_REST_TOKEN", "STRIPE_SECRET_KEY", "STRIPE_WEBHOOK_SECRET"];
+const SECRET_PREFIX: Partial<Record<keyof Secrets, string>> = { STRIPE_SECRET_KEY: "sk_test_", STRIPE_WEBHOOK_SECRET: "whsec_" };
 
 /** Reads the git-ignored secrets file, adding any secret that is missing (first run). */
 export function loadOrCreateSecrets(file = process.env.SUMFOLD_ENV_FILE ?? resolve(REPO, ".env.local")): Secrets {
@@ -77,7 +86,7 @@ export function loadOrCreateSecrets(file = process.env.SUMFOLD_ENV_FILE ?? resol
   let changed = false;
   for (const name of SECRET_NAMES) {
     if (!current[name]) {
-      current[name] = randomBytes(32).toString("base64url");
+      current[name] = (SECRET_PREFIX[name] ?? "") + randomBytes(32).toString("base64url");
       changed = true;
     }
   }
@@ -107,5 +116,12 @@ export function appEnv(l: Layout, secrets: Secrets, dbUrl: string): Record<strin
     MAIL_FROM: "Sumfold <no-reply@sumfold.invalid>",
     SUMFOLD_MAILBOX_URL: `http://127.0.0.1:${l.mailboxPort}`,
     SUMFOLD_SPOOL_DIR: l.spoolDir,
+    // The provider's SDK talks to the local fake; production leaves the three STRIPE_API_* unset (see README).
+    STRIPE_SECRET_KEY: secrets.STRIPE_SECRET_KEY,
+    STRIPE_WEBHOOK_SECRET: secrets.STRIPE_WEBHOOK_SECRET,
+    STRIPE_API_HOST: "127.0.0.1",
+    STRIPE_API_PORT: String(l.paymentsPort),
+    STRIPE_API_PROTOCOL: "http",
+    SUMFOLD_PAYMENTS_CONTROL_URL: `http://127.0.0.1:${l.paymentsPort}`,
   };
 }

@@ -5,10 +5,12 @@ import { ensureDebianPackages } from "./apt";
 import { appEnv, REPO, type Layout, type Secrets } from "./config";
 import { databaseUrl, startMariaDb, stopMariaDb, writeClientDefaults } from "./mariadb";
 import { applyMigrations } from "./migrate";
+import { syncPlans } from "./plans";
 import { startRedis, stopRedis } from "./redis";
 import { startRedisRest } from "../fakes/redis-rest";
 import { startSmtpSink } from "../fakes/smtp-sink";
 import { buildComputeWorker, COMPUTE_WORKER_FILE } from "../build-worker";
+import { startPaymentsFake } from "../fakes/payments";
 
 export const log = (m: string) => console.log(`[sumfold] ${m}`);
 
@@ -41,12 +43,22 @@ export async function startServices(l: Layout, secrets: Secrets): Promise<Servic
     log(`MariaDB answering on 127.0.0.1:${l.db.port} (${Date.now() - t0} ms)`);
     const url = databaseUrl(l.db);
     await applyMigrations(url);
+    await syncPlans(url);
     await startRedis(l.redis);
     stops.push(() => stopRedis(l.redis));
     const rest = await startRedisRest({ port: l.redisRestPort, token: secrets.UPSTASH_REDIS_REST_TOKEN, redisPort: l.redis.port });
     stops.push(() => new Promise<void>((r) => rest.close(() => r())));
     const mail = await startSmtpSink({ smtpPort: l.smtpPort, httpPort: l.mailboxPort, dir: l.mailDir });
     stops.push(mail.close);
+    const payments = await startPaymentsFake({
+      port: l.paymentsPort,
+      secretKey: secrets.STRIPE_SECRET_KEY,
+      webhookSecret: secrets.STRIPE_WEBHOOK_SECRET,
+      webhookUrl: `http://127.0.0.1:${l.appPort}/api/billing/webhook`,
+      stateFile: l.name === "demo" ? resolve(l.root, "payments", "state.json") : undefined,
+    });
+    stops.push(payments.close);
+    log(`payment provider fake on ${payments.url}`);
     log(`Redis REST stand-in on 127.0.0.1:${l.redisRestPort}; SMTP sink on 127.0.0.1:${l.smtpPort}, mailbox http://127.0.0.1:${l.mailboxPort}`);
     return { env: appEnv(l, secrets, url), dbCreated: created, stop };
   } catch (e) {

@@ -20,6 +20,7 @@ const env: NodeJS.ProcessEnv = {
   SUMFOLD_REDIS_REST_PORT: String(8091 + o),
   SUMFOLD_SMTP_PORT: String(2591 + o),
   SUMFOLD_MAILBOX_PORT: String(8191 + o),
+  SUMFOLD_PAYMENTS_PORT: String(8192 + o),
 };
 
 let runs = 0;

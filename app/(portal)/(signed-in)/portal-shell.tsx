@@ -15,6 +15,7 @@ const NAV = [
   { href: "/quickstart", label: "Quickstart", perm: null },
   { href: "/keys", label: "API keys", perm: "keys.own" },
   { href: "/usage", label: "Usage", perm: "usage.own" },
+  { href: "/billing", label: "Billing", perm: "plan.read" },
   { href: "/members", label: "Members", perm: "members.manage" },
   { href: "/audit", label: "Audit log", perm: "audit.read" },
   { href: "/explorer", label: "Explorer", perm: "explore" },

@@ -1,0 +1,506 @@
+import "server-only";
+import { randomUUID } from "node:crypto";
+import { and, asc, eq, inArray, lte } from "drizzle-orm";
+import { CURRENCY, FREE_PLAN, formatMoney, isPlanName, PLANS, type PlanName } from "@/lib/api/plans";
+import { recordAudit } from "@/lib/db/audit";
+import { getDb, type Db } from "@/lib/db/client";
+import { listEmailsByRole } from "@/lib/db/portal";
+import { sumUnits } from "@/lib/db/portal-usage";
+import { organizations, users, type Organization } from "@/lib/db/schema";
+import {
+  billingAccounts,
+  billingContacts,
+  invoiceLines,
+  invoices,
+  planChanges,
+  processedEvents,
+  type BillingAccount,
+  type Invoice,
+} from "@/lib/db/schema-billing";
+import { paymentFailedMail, planChangeMail, planRestoredMail, receiptMail, restrictedMail, type MailContent } from "@/lib/mail/templates";
+import { sendMail } from "@/lib/mail/transport";
+import { notFound, PortalError } from "@/lib/portal/http";
+import { baseUrl } from "@/lib/portal/tokens";
+import { linesTotal, periodLabel, periodLines, periodOf, prorationMinor, type Line } from "./money";
+import { provider, type Stripe } from "./provider";
+
+/** Days an invoice may stay unpaid after a failed payment before the organisation drops to the Free plan's limits. */
+export const GRACE_DAYS = 7;
+const DAY_MS = 86_400_000;
+
+type Tx = Parameters<Parameters<Db["transaction"]>[0]>[0];
+
+/** What a locked operation works on; mails wait in `after` until the transaction has committed. */
+interface Ctx {
+  tx: Tx;
+  acct: BillingAccount;
+  org: Organization;
+  now: Date;
+  after: (() => Promise<unknown>)[];
+}
+
+const planName = (code: string): PlanName => (isPlanName(code) ? code : FREE_PLAN);
+const currencyLower = CURRENCY.toLowerCase();
+
+/** The billing row of an organisation, created on first use (on the plan the organisation holds, this month). */
+export async function ensureAccount(organizationId: number, now = new Date()): Promise<void> {
+  const [org] = await getDb().select().from(organizations).where(eq(organizations.id, organizationId));
+  if (!org) throw notFound("This organisation");
+  const plan = planName(org.plan);
+  const p = periodOf(now);
+  await getDb().insert(billingAccounts).ignore().values({ organizationId, planCode: plan, periodPlanCode: plan, periodStart: p.start, periodEnd: p.end });
+}
+
+/** Runs `fn` with the organisation's billing row locked (SELECT ... FOR UPDATE), then sends the queued mail. */
+async function withAccount<T>(organizationId: number, now: Date, fn: (ctx: Ctx) => Promise<T>): Promise<T> {
+  await ensureAccount(organizationId, now);
+  const after: Ctx["after"] = [];
+  const out = await getDb().transaction(async (tx) => {
+    const [acct] = await tx.select().from(billingAccounts).where(eq(billingAccounts.organizationId, organizationId)).for("update");
+    const [org] = await tx.select().from(organizations).where(eq(organizations.id, organizationId));
+    return fn({ tx, acct, org, now, after });
+  });
+  for (const job of after) await job().catch((e) => console.error("[sumfold] billing follow-up failed", e));
+  return out;
+}
+
+async function setAccount(ctx: Ctx, patch: Partial<BillingAccount>) {
+  await ctx.tx.update(billingAccounts).set({ ...patch, updatedAt: ctx.now }).where(eq(billingAccounts.organizationId, ctx.acct.organizationId));
+  Object.assign(ctx.acct, patch);
+}
+
+/** Sets the plan whose limits apply (read by the key gate, so the limiter follows within its one-second cache). */
+async function setEffectivePlan(ctx: Ctx, plan: PlanName) {
+  if (ctx.org.plan === plan) return;
+  await ctx.tx.update(organizations).set({ plan }).where(eq(organizations.id, ctx.org.id));
+  ctx.org.plan = plan;
+}
+
+/** Who receives billing mail: the billing contacts and the billing members, or the admins when there are none. */
+export async function billingRecipients(organizationId: number): Promise<string[]> {
+  const contacts = await getDb().select({ email: billingContacts.email }).from(billingContacts).where(eq(billingContacts.organizationId, organizationId));
+  const billing = await listEmailsByRole({ organizationId, roles: ["billing"] });
+  const all = [...new Set([...contacts.map((c) => c.email), ...billing])];
+  return all.length > 0 ? all : listEmailsByRole({ organizationId, roles: ["admin"] });
+}
+
+function mail(ctx: Ctx, content: MailContent) {
+  const organizationId = ctx.org.id;
+  ctx.after.push(async () => sendMail(await billingRecipients(organizationId), content));
+}
+
+async function ensureCustomer(ctx: Ctx): Promise<string> {
+  if (ctx.acct.providerCustomerId) return ctx.acct.providerCustomerId;
+  const [email] = await billingRecipients(ctx.org.id);
+  const c = await provider().customers.create(
+    { name: ctx.acct.billingName ?? ctx.org.name, email, metadata: { organization_id: String(ctx.org.id) } },
+    { idempotencyKey: `sumfold-customer-${ctx.org.id}-${ctx.acct.createdAt.getTime()}` },
+  );
+  await setAccount(ctx, { providerCustomerId: c.id });
+  return c.id;
+}
+
+const cardLabel = (a: BillingAccount) => (a.cardLast4 ? `${a.cardBrand ?? "card"} ending ${a.cardLast4}` : "the saved card");
+const invoiceUrl = (id: number) => `${baseUrl()}/billing/invoices/${id}`;
+
+// ---------------------------------------------------------------- invoices
+
+/** Finds or creates the local invoice row for (kind, dedupeKey): the unique key makes a repeated run a no-op. */
+async function claimInvoice(ctx: Ctx, p: { kind: "period" | "proration"; dedupeKey: string; planCode: string; period: { start: Date; end: Date }; lines: Line[]; metered: number }): Promise<Invoice> {
+  const where = and(eq(invoices.organizationId, ctx.org.id), eq(invoices.kind, p.kind), eq(invoices.dedupeKey, p.dedupeKey));
+  const [existing] = await ctx.tx.select().from(invoices).where(where);
+  if (existing) return existing;
+  const [res] = await ctx.tx.insert(invoices).values({
+    organizationId: ctx.org.id,
+    number: `tmp-${randomUUID()}`.slice(0, 32),
+    kind: p.kind,
+    dedupeKey: p.dedupeKey,
+    planCode: p.planCode,
+    periodStart: p.period.start,
+    periodEnd: p.period.end,
+    currency: CURRENCY,
+    totalMinor: linesTotal(p.lines),
+    unitsMetered: p.metered,
+    status: "draft",
+  });
+  // Numbers follow the row id, so they are unique and increasing without a counter: SFV-2026-000123.
+  await ctx.tx.update(invoices).set({ number: `SFV-${ctx.now.getUTCFullYear()}-${String(res.insertId).padStart(6, "0")}` }).where(eq(invoices.id, res.insertId));
+  await ctx.tx.insert(invoiceLines).values(p.lines.map((l, i) => ({ invoiceId: res.insertId, position: i + 1, ...l })));
+  const [row] = await ctx.tx.select().from(invoices).where(eq(invoices.id, res.insertId));
+  return row;
+}
+
+/** Creates the invoice at the provider (one item per line) and finalises it; every call carries an idempotency key. */
+async function sendToProvider(ctx: Ctx, row: Invoice): Promise<Invoice> {
+  if (row.status !== "draft") return row;
+  const customer = await ensureCustomer(ctx);
+  const lines = await ctx.tx.select().from(invoiceLines).where(eq(invoiceLines.invoiceId, row.id)).orderBy(asc(invoiceLines.position));
+  const key = `sumfold-${row.number}`;
+  let pinv = await provider().invoices.create(
+    {
+      customer,
+      currency: currencyLower,
+      collection_method: "charge_automatically",
+      auto_advance: false,
+      pending_invoice_items_behavior: "exclude",
+      description: `Sumfold ${row.number}`,
+      metadata: { organization_id: String(ctx.org.id), invoice_number: row.number },
+    },
+    { idempotencyKey: `${key}-invoice` },
+  );
+  for (const l of lines) {
+    await provider().invoiceItems.create(
+      { customer, invoice: pinv.id, currency: currencyLower, amount: l.amountMinor, description: `${l.description} (${l.quantity.toLocaleString("en-GB")} × ${l.unitLabel})`, metadata: { position: String(l.position) } },
+      { idempotencyKey: `${key}-line-${l.position}` },
+    );
+  }
+  if (pinv.status === "draft") pinv = await provider().invoices.finalizeInvoice(pinv.id!, {}, { idempotencyKey: `${key}-finalize` });
+  await ctx.tx.update(invoices).set({ providerInvoiceId: pinv.id, status: "open" }).where(eq(invoices.id, row.id));
+  return { ...row, providerInvoiceId: pinv.id ?? null, status: "open" };
+}
+
+type PayOutcome = { paid: true } | { paid: false; message: string };
+
+/** Charges an open invoice to the saved payment method through the provider. */
+async function charge(ctx: Ctx, row: Invoice): Promise<PayOutcome> {
+  if (row.status === "paid") return { paid: true };
+  try {
+    const pinv = await provider().invoices.pay(row.providerInvoiceId!, ctx.acct.paymentMethodId ? { payment_method: ctx.acct.paymentMethodId } : {});
+    if (pinv.status === "paid") {
+      await markPaid(ctx, row);
+      return { paid: true };
+    }
+    return { paid: false, message: `The provider reports the invoice as ${pinv.status}.` };
+  } catch (e) {
+    const err = e as { type?: string; statusCode?: number; message?: string };
+    if (err.statusCode === 402 || err.type === "StripeCardError") {
+      const message = err.message ?? "The payment was declined.";
+      await ctx.tx.update(invoices).set({ lastPaymentError: message.slice(0, 300) }).where(eq(invoices.id, row.id));
+      return { paid: false, message };
+    }
+    throw e;
+  }
+}
+
+async function markPaid(ctx: Ctx, row: Invoice) {
+  const [cur] = await ctx.tx.select().from(invoices).where(eq(invoices.id, row.id));
+  if (cur.status === "paid") return;
+  await ctx.tx.update(invoices).set({ status: "paid", paidAt: ctx.now, lastPaymentError: null }).where(eq(invoices.id, row.id));
+  mail(ctx, receiptMail({ organization: ctx.org.name, number: row.number, total: formatMoney(row.totalMinor, row.currency), period: periodLabel({ start: row.periodStart, end: row.periodEnd }), card: cardLabel(ctx.acct), url: invoiceUrl(row.id) }));
+  await restoreIfSettled(ctx);
+}
+
+/** A past-due or restricted organisation with no open period invoice left gets its plan back. */
+async function restoreIfSettled(ctx: Ctx) {
+  if (ctx.acct.status === "active") return;
+  const open = await ctx.tx.select({ id: invoices.id }).from(invoices).where(and(eq(invoices.organizationId, ctx.org.id), eq(invoices.status, "open"), eq(invoices.kind, "period")));
+  if (open.length > 0) return;
+  await setAccount(ctx, { status: "active", pastDueSince: null });
+  await setEffectivePlan(ctx, planName(ctx.acct.planCode));
+  await recordAudit({ organizationId: ctx.org.id, actorType: "system", action: "billing.plan_restored", targetType: "organization", targetId: String(ctx.org.id), detail: { plan: ctx.acct.planCode } }, ctx.tx);
+  mail(ctx, planRestoredMail({ organization: ctx.org.name, plan: PLANS[planName(ctx.acct.planCode)].label, url: `${baseUrl()}/billing` }));
+}
+
+/** A period invoice whose payment failed: the organisation is past due (once), and the billing contacts are told. */
+async function markPastDue(ctx: Ctx, row: Invoice) {
+  if (ctx.acct.status !== "active") return;
+  await setAccount(ctx, { status: "past_due", pastDueSince: ctx.now });
+  await recordAudit({ organizationId: ctx.org.id, actorType: "system", action: "billing.past_due", targetType: "invoice", targetId: row.number }, ctx.tx);
+  const restrictOn = new Date(ctx.now.getTime() + GRACE_DAYS * DAY_MS);
+  mail(ctx, paymentFailedMail({ organization: ctx.org.name, number: row.number, total: formatMoney(row.totalMinor, row.currency), graceDays: GRACE_DAYS, restrictOn: restrictOn.toUTCString(), url: invoiceUrl(row.id) }));
+}
+
+// ---------------------------------------------------------------- period close
+
+export interface CloseResult {
+  organizationId: number;
+  invoices: string[];
+}
+
+/**
+ * Closes every billing period that has ended by `now`: one invoice per organisation and period (fee of the plan
+ * held when the period began, then every compute unit metered in it), created at the provider and charged to the
+ * saved card; pending downgrades then take effect. Safe to run again, or twice at once: the row lock and the
+ * unique (organisation, kind, period) key make the second run a no-op.
+ */
+export async function closeDuePeriods(now = new Date()): Promise<CloseResult[]> {
+  const due = await getDb().select({ organizationId: billingAccounts.organizationId }).from(billingAccounts).where(lte(billingAccounts.periodEnd, now));
+  const out: CloseResult[] = [];
+  for (const { organizationId } of due) {
+    try {
+      out.push(await closeAccount(organizationId, now));
+    } catch (e) {
+      console.error("[sumfold] period close failed", { organizationId, error: (e as Error).message });
+    }
+  }
+  return out;
+}
+
+export async function closeAccount(organizationId: number, now = new Date()): Promise<CloseResult> {
+  return withAccount(organizationId, now, async (ctx) => {
+    const made: string[] = [];
+    while (ctx.acct.periodEnd.getTime() <= now.getTime()) {
+      const period = { start: ctx.acct.periodStart, end: ctx.acct.periodEnd };
+      const metered = await sumUnits({ organizationId, from: period.start, to: period.end });
+      const lines = periodLines({ feePlan: ctx.acct.periodPlanCode, usagePlan: ctx.acct.planCode, metered, period });
+      if (linesTotal(lines) > 0) {
+        let row = await claimInvoice(ctx, { kind: "period", dedupeKey: period.start.toISOString(), planCode: ctx.acct.planCode, period, lines, metered });
+        row = await sendToProvider(ctx, row);
+        const paid = await charge(ctx, row);
+        if (!paid.paid) await markPastDue(ctx, row);
+        made.push(row.number);
+      }
+      const next = { start: period.end, end: periodOf(period.end).end };
+      const pending = ctx.acct.pendingPlanCode;
+      const plan = planName(pending ?? ctx.acct.planCode);
+      if (pending) {
+        const from = ctx.acct.planCode;
+        mail(ctx, planChangeMail({ organization: ctx.org.name, actor: "A scheduled change", from: PLANS[planName(from)].label, to: PLANS[plan].label, when: period.end.toUTCString(), url: `${baseUrl()}/billing` }));
+      }
+      await setAccount(ctx, { periodStart: next.start, periodEnd: next.end, planCode: plan, periodPlanCode: plan, pendingPlanCode: null });
+      await setEffectivePlan(ctx, ctx.acct.status === "restricted" ? FREE_PLAN : plan);
+    }
+    return { organizationId, invoices: made };
+  });
+}
+
+// ---------------------------------------------------------------- dunning
+
+/** Past-due organisations whose grace period is over fall to the Free plan's limits (their data stays). */
+export async function sweepDunning(now = new Date()): Promise<number[]> {
+  const limit = new Date(now.getTime() - GRACE_DAYS * DAY_MS);
+  const rows = await getDb()
+    .select({ organizationId: billingAccounts.organizationId })
+    .from(billingAccounts)
+    .where(and(eq(billingAccounts.status, "past_due"), lte(billingAccounts.pastDueSince, limit)));
+  const done: number[] = [];
+  for (const { organizationId } of rows) {
+    await withAccount(organizationId, now, async (ctx) => {
+      if (ctx.acct.status !== "past_due" || !ctx.acct.pastDueSince || ctx.acct.pastDueSince > limit) return;
+      await setAccount(ctx, { status: "restricted" });
+      await setEffectivePlan(ctx, FREE_PLAN);
+      await recordAudit({ organizationId, actorType: "system", action: "billing.restricted", targetType: "organization", targetId: String(organizationId), detail: { plan: ctx.acct.planCode } }, ctx.tx);
+      mail(ctx, restrictedMail({ organization: ctx.org.name, plan: PLANS[planName(ctx.acct.planCode)].label, url: `${baseUrl()}/billing` }));
+      done.push(organizationId);
+    });
+  }
+  return done;
+}
+
+// ---------------------------------------------------------------- plan changes
+
+export type ChangeOutcome =
+  | { action: "upgraded"; plan: PlanName; prorationMinor: number; invoiceId: number | null }
+  | { action: "scheduled"; plan: PlanName; effectiveAt: string }
+  | { action: "unchanged"; plan: PlanName }
+  | { action: "checkout"; url: string }
+  | { action: "declined"; message: string };
+
+async function changePlanLocked(ctx: Ctx, target: PlanName, actor: { userId: number | null; name: string }): Promise<ChangeOutcome> {
+  if (ctx.acct.status !== "active") throw new PortalError(409, "An invoice is past due: pay it (or update the card) before changing the plan.");
+  const current = planName(ctx.acct.planCode);
+  const period = { start: ctx.acct.periodStart, end: ctx.acct.periodEnd };
+  if (target === current) {
+    if (ctx.acct.pendingPlanCode) await setAccount(ctx, { pendingPlanCode: null });
+    return { action: "unchanged", plan: current };
+  }
+  const url = `${baseUrl()}/billing`;
+  if (PLANS[target].rank > PLANS[current].rank) {
+    const amount = prorationMinor(current, target, ctx.now, period);
+    let invoiceId: number | null = null;
+    if (amount > 0) {
+      const lines: Line[] = [
+        { description: `${PLANS[current].label} to ${PLANS[target].label} for the rest of ${periodLabel(period)}, from ${ctx.now.toISOString().slice(0, 16).replace("T", " ")} UTC`, quantity: 1, unitLabel: "prorated", amountMinor: amount },
+      ];
+      let row = await claimInvoice(ctx, { kind: "proration", dedupeKey: `${current}-${target}-${ctx.now.getTime()}`, planCode: target, period, lines, metered: 0 });
+      row = await sendToProvider(ctx, row);
+      const paid = await charge(ctx, row);
+      if (!paid.paid) {
+        await provider().invoices.voidInvoice(row.providerInvoiceId!).catch(() => {});
+        await ctx.tx.update(invoices).set({ status: "void" }).where(eq(invoices.id, row.id));
+        return { action: "declined", message: `${paid.message} The plan is unchanged.` };
+      }
+      invoiceId = row.id;
+    }
+    await setAccount(ctx, { planCode: target, pendingPlanCode: null });
+    await setEffectivePlan(ctx, target);
+    await ctx.tx.insert(planChanges).values({ organizationId: ctx.org.id, actorUserId: actor.userId, fromPlan: current, toPlan: target, effectiveAt: ctx.now, prorationMinor: amount });
+    await recordAudit({ organizationId: ctx.org.id, actorUserId: actor.userId, actorType: "user", action: "billing.plan_upgraded", targetType: "organization", targetId: String(ctx.org.id), detail: { from: current, to: target, prorationMinor: amount } }, ctx.tx);
+    mail(ctx, planChangeMail({ organization: ctx.org.name, actor: actor.name, from: PLANS[current].label, to: PLANS[target].label, when: "now", charge: amount > 0 ? formatMoney(amount) : undefined, url }));
+    return { action: "upgraded", plan: target, prorationMinor: amount, invoiceId };
+  }
+  await setAccount(ctx, { pendingPlanCode: target });
+  await ctx.tx.insert(planChanges).values({ organizationId: ctx.org.id, actorUserId: actor.userId, fromPlan: current, toPlan: target, effectiveAt: period.end });
+  await recordAudit({ organizationId: ctx.org.id, actorUserId: actor.userId, actorType: "user", action: "billing.plan_change_scheduled", targetType: "organization", targetId: String(ctx.org.id), detail: { from: current, to: target, effectiveAt: period.end.toISOString() } }, ctx.tx);
+  mail(ctx, planChangeMail({ organization: ctx.org.name, actor: actor.name, from: PLANS[current].label, to: PLANS[target].label, when: `at the end of the period (${period.end.toUTCString()})`, url }));
+  return { action: "scheduled", plan: target, effectiveAt: period.end.toISOString() };
+}
+
+export interface Actor {
+  organizationId: number;
+  userId: number | null;
+  name: string;
+}
+
+async function checkoutSession(ctx: Ctx, actor: Actor, purpose: "plan" | "payment_method", plan?: PlanName): Promise<string> {
+  const customer = await ensureCustomer(ctx);
+  const s = await provider().checkout.sessions.create({
+    mode: "setup",
+    customer,
+    currency: currencyLower,
+    success_url: `${baseUrl()}/api/portal/billing/checkout/return?session_id={CHECKOUT_SESSION_ID}`,
+    cancel_url: `${baseUrl()}/billing?checkout=cancelled`,
+    metadata: { organization_id: String(ctx.org.id), purpose, plan: plan ?? "", user_id: String(actor.userId ?? "") },
+  });
+  return s.url!;
+}
+
+/**
+ * Changes the plan. Upgrades take effect at once and the prorated fee difference is charged to the saved card;
+ * without a saved card a paid plan goes through the provider's hosted checkout first. Downgrades (and a change
+ * to Free, i.e. cancelling) take effect when the period ends.
+ */
+export async function changePlan(actor: Actor, target: string, now = new Date()): Promise<ChangeOutcome> {
+  if (!isPlanName(target)) throw new PortalError(422, "Choose one of the listed plans.", { plan: "Unknown plan." });
+  return withAccount(actor.organizationId, now, async (ctx) => {
+    const current = planName(ctx.acct.planCode);
+    if (PLANS[target].rank > PLANS[current].rank && !ctx.acct.paymentMethodId && prorationMinor(current, target, now, { start: ctx.acct.periodStart, end: ctx.acct.periodEnd }) > 0) {
+      if (ctx.acct.status !== "active") throw new PortalError(409, "An invoice is past due: pay it (or update the card) before changing the plan.");
+      return { action: "checkout", url: await checkoutSession(ctx, actor, "plan", target) };
+    }
+    return changePlanLocked(ctx, target, actor);
+  });
+}
+
+/** A hosted checkout that only replaces the saved card. */
+export async function startCardUpdate(actor: Actor, now = new Date()): Promise<{ url: string }> {
+  return withAccount(actor.organizationId, now, async (ctx) => ({ url: await checkoutSession(ctx, actor, "payment_method") }));
+}
+
+export type CheckoutOutcome = { status: "open" } | { status: "already" } | { status: "card_saved"; retried: number } | ({ status: "plan" } & ChangeOutcome);
+
+/**
+ * Applies a completed checkout (from the return page and from the webhook, whichever comes first; the second is
+ * a no-op): saves the card as the customer's default, then performs the plan change it was started for, or
+ * retries open invoices after a card update. `organizationId`, when given, must own the session (else 404).
+ */
+export async function completeCheckout(sessionId: string, opts: { organizationId?: number; now?: Date } = {}): Promise<CheckoutOutcome> {
+  const now = opts.now ?? new Date();
+  let session: Stripe.Checkout.Session;
+  try {
+    session = await provider().checkout.sessions.retrieve(sessionId);
+  } catch (e) {
+    if ((e as { statusCode?: number }).statusCode === 404) throw notFound("This checkout");
+    throw e;
+  }
+  const organizationId = Number(session.metadata?.organization_id);
+  if (!Number.isSafeInteger(organizationId) || (opts.organizationId !== undefined && opts.organizationId !== organizationId)) throw notFound("This checkout");
+  if (session.status !== "complete") return { status: "open" };
+  return withAccount(organizationId, now, async (ctx) => {
+    if (ctx.acct.providerCustomerId !== session.customer) throw notFound("This checkout");
+    const [claimed] = await ctx.tx.insert(processedEvents).ignore().values({ eventId: `checkout:${session.id}`, type: "checkout.completed" });
+    if (claimed.affectedRows === 0) return { status: "already" } as const;
+    const si = await provider().setupIntents.retrieve(String(session.setup_intent));
+    const pm = await provider().paymentMethods.retrieve(String(si.payment_method));
+    await provider().customers.update(session.customer as string, { invoice_settings: { default_payment_method: pm.id } });
+    await setAccount(ctx, { paymentMethodId: pm.id, cardBrand: pm.card?.brand ?? null, cardLast4: pm.card?.last4 ?? null, cardExpMonth: pm.card?.exp_month ?? null, cardExpYear: pm.card?.exp_year ?? null });
+    const userId = Number(session.metadata?.user_id) || null;
+    const target = session.metadata?.plan ?? "";
+    if (session.metadata?.purpose === "plan" && isPlanName(target)) {
+      const [who] = userId ? await ctx.tx.select({ name: users.name }).from(users).where(eq(users.id, userId)) : [];
+      const name = who?.name ?? "A member";
+      if (ctx.acct.status !== "active") return { status: "card_saved", retried: await retryOpen(ctx) };
+      return { status: "plan", ...(await changePlanLocked(ctx, target, { userId, name })) };
+    }
+    return { status: "card_saved", retried: await retryOpen(ctx) };
+  });
+}
+
+/** After a new card: charge the open period invoices again (paying the last one restores a lapsed plan). */
+async function retryOpen(ctx: Ctx): Promise<number> {
+  const open = await ctx.tx.select().from(invoices).where(and(eq(invoices.organizationId, ctx.org.id), eq(invoices.status, "open"), eq(invoices.kind, "period")));
+  let n = 0;
+  for (const row of open) if ((await charge(ctx, row)).paid) n++;
+  return n;
+}
+
+/** Pays one open invoice with the saved card now (the portal's "Pay now"). */
+export async function payInvoice(actor: Actor, invoiceId: number, now = new Date()): Promise<PayOutcome> {
+  return withAccount(actor.organizationId, now, async (ctx) => {
+    const [row] = await ctx.tx.select().from(invoices).where(and(eq(invoices.id, invoiceId), eq(invoices.organizationId, actor.organizationId)));
+    if (!row) throw notFound("This invoice");
+    if (row.status === "paid") return { paid: true } as const;
+    if (row.status !== "open") throw new PortalError(409, `This invoice is ${row.status} and cannot be paid.`);
+    if (!ctx.acct.paymentMethodId) throw new PortalError(409, "Add a card first.");
+    return charge(ctx, row);
+  });
+}
+
+// ---------------------------------------------------------------- webhooks
+
+export type EventOutcome = "applied" | "duplicate" | "ignored";
+
+/**
+ * Applies a verified provider event once (processed_events by event id, claimed in the same transaction as the
+ * change). Invoice events are not trusted for their snapshot: the invoice is read back from the provider, so a
+ * late or out-of-order event (a failure delivered after the payment) cannot undo a newer state.
+ */
+export async function applyEvent(event: Stripe.Event, now = new Date()): Promise<EventOutcome> {
+  const claim = async (db: Pick<Db, "insert">) => (await db.insert(processedEvents).ignore().values({ eventId: event.id, type: event.type }))[0].affectedRows > 0;
+  if (event.type === "checkout.session.completed") {
+    const s = event.data.object as Stripe.Checkout.Session;
+    const [seen] = await getDb().select().from(processedEvents).where(eq(processedEvents.eventId, event.id));
+    if (seen) return "duplicate";
+    await completeCheckout(s.id, { now }).catch((e) => {
+      if (!(e instanceof PortalError && e.status === 404)) throw e;
+    });
+    return (await claim(getDb())) ? "applied" : "duplicate";
+  }
+  if (event.type.startsWith("invoice.")) {
+    const snapshot = event.data.object as Stripe.Invoice;
+    const [row] = snapshot.id ? await getDb().select().from(invoices).where(eq(invoices.providerInvoiceId, snapshot.id)) : [];
+    if (!row) return (await claim(getDb())) ? "ignored" : "duplicate";
+    return withAccount(row.organizationId, now, async (ctx) => {
+      if (!(await claim(ctx.tx))) return "duplicate" as const;
+      const current = await provider().invoices.retrieve(snapshot.id!);
+      const [local] = await ctx.tx.select().from(invoices).where(eq(invoices.id, row.id));
+      if (current.status === "paid") await markPaid(ctx, local);
+      else if (current.status === "void" && local.status !== "void") await ctx.tx.update(invoices).set({ status: "void" }).where(eq(invoices.id, local.id));
+      else if (event.type === "invoice.payment_failed" && current.status === "open" && local.kind === "period" && local.status === "open") await markPastDue(ctx, local);
+      return "applied" as const;
+    });
+  }
+  return (await claim(getDb())) ? "ignored" : "duplicate";
+}
+
+// ---------------------------------------------------------------- reads
+
+export async function getAccount(organizationId: number, now = new Date()): Promise<BillingAccount> {
+  await ensureAccount(organizationId, now);
+  const [acct] = await getDb().select().from(billingAccounts).where(eq(billingAccounts.organizationId, organizationId));
+  return acct;
+}
+
+export const graceEndsAt = (a: BillingAccount) => (a.pastDueSince ? new Date(a.pastDueSince.getTime() + GRACE_DAYS * DAY_MS) : null);
+
+export async function listInvoices(organizationId: number) {
+  return getDb().select().from(invoices).where(and(eq(invoices.organizationId, organizationId), inArray(invoices.status, ["open", "paid", "void"]))).orderBy(asc(invoices.periodStart), asc(invoices.id));
+}
+
+export async function getInvoice(organizationId: number, id: number) {
+  const [row] = await getDb().select().from(invoices).where(and(eq(invoices.id, id), eq(invoices.organizationId, organizationId)));
+  if (!row) throw notFound("This invoice");
+  const lines = await getDb().select().from(invoiceLines).where(eq(invoiceLines.invoiceId, id)).orderBy(asc(invoiceLines.position));
+  return { invoice: row, lines };
+}
+
+/** Usage so far this period, the bill it makes, and a straight-line projection to the period's end. */
+export async function upcoming(acct: BillingAccount, now = new Date()) {
+  const period = { start: acct.periodStart, end: acct.periodEnd };
+  const metered = await sumUnits({ organizationId: acct.organizationId, from: period.start, to: period.end });
+  const toDate = periodLines({ feePlan: acct.periodPlanCode, usagePlan: acct.planCode, metered, period });
+  const elapsed = Math.max(1, Math.min(now.getTime(), period.end.getTime()) - period.start.getTime());
+  const projectedUnits = Math.round((metered * (period.end.getTime() - period.start.getTime())) / elapsed);
+  const projected = periodLines({ feePlan: acct.periodPlanCode, usagePlan: acct.planCode, metered: projectedUnits, period });
+  return { period, metered, lines: toDate, totalMinor: linesTotal(toDate), projectedUnits, projectedTotalMinor: linesTotal(projected) };
+}
