@@ -101,7 +101,8 @@ async function ensureCustomer(ctx: Ctx): Promise<string> {
 }
 
 const cardLabel = (a: BillingAccount) => (a.cardLast4 ? `${a.cardBrand ?? "card"} ending ${a.cardLast4}` : "the saved card");
-const invoiceUrl = (id: number) => `${baseUrl()}/billing/invoices/${id}`;
+const invoiceUrl = (ctx: Ctx, id: number) => `${baseUrl()}/billing/invoices/${id}?org=${encodeURIComponent(ctx.org.slug)}`;
+const billingUrl = (ctx: Ctx) => `${baseUrl()}/billing?org=${encodeURIComponent(ctx.org.slug)}`;
 
 // ---------------------------------------------------------------- invoices
 
@@ -186,7 +187,7 @@ async function markPaid(ctx: Ctx, row: Invoice) {
   const [cur] = await ctx.tx.select().from(invoices).where(eq(invoices.id, row.id));
   if (cur.status === "paid") return;
   await ctx.tx.update(invoices).set({ status: "paid", paidAt: ctx.now, lastPaymentError: null }).where(eq(invoices.id, row.id));
-  mail(ctx, receiptMail({ organization: ctx.org.name, number: row.number, total: formatMoney(row.totalMinor, row.currency), period: periodLabel({ start: row.periodStart, end: row.periodEnd }), card: cardLabel(ctx.acct), url: invoiceUrl(row.id) }));
+  mail(ctx, receiptMail({ organization: ctx.org.name, number: row.number, total: formatMoney(row.totalMinor, row.currency), period: periodLabel({ start: row.periodStart, end: row.periodEnd }), card: cardLabel(ctx.acct), url: invoiceUrl(ctx, row.id) }));
   await restoreIfSettled(ctx);
 }
 
@@ -198,7 +199,7 @@ async function restoreIfSettled(ctx: Ctx) {
   await setAccount(ctx, { status: "active", pastDueSince: null });
   await setEffectivePlan(ctx, planName(ctx.acct.planCode));
   await recordAudit({ organizationId: ctx.org.id, actorType: "system", action: "billing.plan_restored", targetType: "organization", targetId: String(ctx.org.id), detail: { plan: ctx.acct.planCode } }, ctx.tx);
-  mail(ctx, planRestoredMail({ organization: ctx.org.name, plan: PLANS[planName(ctx.acct.planCode)].label, url: `${baseUrl()}/billing` }));
+  mail(ctx, planRestoredMail({ organization: ctx.org.name, plan: PLANS[planName(ctx.acct.planCode)].label, url: billingUrl(ctx) }));
 }
 
 /** A period invoice whose payment failed: the organisation is past due (once), and the billing contacts are told. */
@@ -207,7 +208,7 @@ async function markPastDue(ctx: Ctx, row: Invoice) {
   await setAccount(ctx, { status: "past_due", pastDueSince: ctx.now });
   await recordAudit({ organizationId: ctx.org.id, actorType: "system", action: "billing.past_due", targetType: "invoice", targetId: row.number }, ctx.tx);
   const restrictOn = new Date(ctx.now.getTime() + GRACE_DAYS * DAY_MS);
-  mail(ctx, paymentFailedMail({ organization: ctx.org.name, number: row.number, total: formatMoney(row.totalMinor, row.currency), graceDays: GRACE_DAYS, restrictOn: restrictOn.toUTCString(), url: invoiceUrl(row.id) }));
+  mail(ctx, paymentFailedMail({ organization: ctx.org.name, number: row.number, total: formatMoney(row.totalMinor, row.currency), graceDays: GRACE_DAYS, restrictOn: restrictOn.toUTCString(), url: invoiceUrl(ctx, row.id) }));
 }
 
 // ---------------------------------------------------------------- period close
@@ -255,7 +256,7 @@ export async function closeAccount(organizationId: number, now = new Date()): Pr
       const plan = planName(pending ?? ctx.acct.planCode);
       if (pending) {
         const from = ctx.acct.planCode;
-        mail(ctx, planChangeMail({ organization: ctx.org.name, actor: "A scheduled change", from: PLANS[planName(from)].label, to: PLANS[plan].label, when: period.end.toUTCString(), url: `${baseUrl()}/billing` }));
+        mail(ctx, planChangeMail({ organization: ctx.org.name, actor: "A scheduled change", from: PLANS[planName(from)].label, to: PLANS[plan].label, when: period.end.toUTCString(), url: billingUrl(ctx) }));
       }
       await setAccount(ctx, { periodStart: next.start, periodEnd: next.end, planCode: plan, periodPlanCode: plan, pendingPlanCode: null });
       await setEffectivePlan(ctx, ctx.acct.status === "restricted" ? FREE_PLAN : plan);
@@ -280,7 +281,7 @@ export async function sweepDunning(now = new Date()): Promise<number[]> {
       await setAccount(ctx, { status: "restricted" });
       await setEffectivePlan(ctx, FREE_PLAN);
       await recordAudit({ organizationId, actorType: "system", action: "billing.restricted", targetType: "organization", targetId: String(organizationId), detail: { plan: ctx.acct.planCode } }, ctx.tx);
-      mail(ctx, restrictedMail({ organization: ctx.org.name, plan: PLANS[planName(ctx.acct.planCode)].label, url: `${baseUrl()}/billing` }));
+      mail(ctx, restrictedMail({ organization: ctx.org.name, plan: PLANS[planName(ctx.acct.planCode)].label, url: billingUrl(ctx) }));
       done.push(organizationId);
     });
   }
@@ -304,7 +305,7 @@ async function changePlanLocked(ctx: Ctx, target: PlanName, actor: { userId: num
     if (ctx.acct.pendingPlanCode) await setAccount(ctx, { pendingPlanCode: null });
     return { action: "unchanged", plan: current };
   }
-  const url = `${baseUrl()}/billing`;
+  const url = billingUrl(ctx);
   if (PLANS[target].rank > PLANS[current].rank) {
     const amount = prorationMinor(current, target, ctx.now, period);
     let invoiceId: number | null = null;
@@ -348,8 +349,9 @@ async function checkoutSession(ctx: Ctx, actor: Actor, purpose: "plan" | "paymen
     mode: "setup",
     customer,
     currency: currencyLower,
-    success_url: `${baseUrl()}/api/portal/billing/checkout/return?session_id={CHECKOUT_SESSION_ID}`,
-    cancel_url: `${baseUrl()}/billing?checkout=cancelled`,
+    // The organisation travels in the addresses, as it does on every portal page.
+    success_url: `${baseUrl()}/api/portal/billing/checkout/return?org=${encodeURIComponent(ctx.org.slug)}&session_id={CHECKOUT_SESSION_ID}`,
+    cancel_url: `${baseUrl()}/billing?org=${encodeURIComponent(ctx.org.slug)}&checkout=cancelled`,
     metadata: { organization_id: String(ctx.org.id), purpose, plan: plan ?? "", user_id: String(actor.userId ?? "") },
   });
   return s.url!;
@@ -377,7 +379,7 @@ export async function startCardUpdate(actor: Actor, now = new Date()): Promise<{
   return withAccount(actor.organizationId, now, async (ctx) => ({ url: await checkoutSession(ctx, actor, "payment_method") }));
 }
 
-export type CheckoutOutcome = { status: "open" } | { status: "already" } | { status: "card_saved"; retried: number } | ({ status: "plan" } & ChangeOutcome);
+export type CheckoutOutcome = { status: "open" } | { status: "already"; purpose: string; planInForce: boolean } | { status: "card_saved"; retried: number } | ({ status: "plan" } & ChangeOutcome);
 
 /**
  * Applies a completed checkout (from the return page and from the webhook, whichever comes first; the second is
@@ -399,7 +401,8 @@ export async function completeCheckout(sessionId: string, opts: { organizationId
   return withAccount(organizationId, now, async (ctx) => {
     if (ctx.acct.providerCustomerId !== session.customer) throw notFound("This checkout");
     const [claimed] = await ctx.tx.insert(processedEvents).ignore().values({ eventId: `checkout:${session.id}`, type: "checkout.completed" });
-    if (claimed.affectedRows === 0) return { status: "already" } as const;
+    // Applied before (by the webhook or an earlier return): report the state the checkout was for.
+    if (claimed.affectedRows === 0) return { status: "already", purpose: session.metadata?.purpose ?? "", planInForce: ctx.acct.planCode === session.metadata?.plan } as const;
     const si = await provider().setupIntents.retrieve(String(session.setup_intent));
     const pm = await provider().paymentMethods.retrieve(String(si.payment_method));
     await provider().customers.update(session.customer as string, { invoice_settings: { default_payment_method: pm.id } });

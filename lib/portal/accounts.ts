@@ -1,6 +1,7 @@
 import "server-only";
 import { randomBytes } from "node:crypto";
 import { and, eq, isNull } from "drizzle-orm";
+import { FREE_PLAN } from "@/lib/api/plans";
 import { hashPassword } from "@/lib/auth/passwords";
 import { recordAudit } from "@/lib/db/audit";
 import { getDb } from "@/lib/db/client";
@@ -47,7 +48,7 @@ export async function signUp(input: { name: string; email: string; password: str
   const ids = await db.transaction(async (tx) => {
     const [u] = await tx.insert(users).values({ email: input.email, name: input.name, passwordHash });
     const slug = `${slugify(input.organization)}-${randomBytes(3).toString("hex")}`;
-    const [o] = await tx.insert(organizations).values({ slug, name: input.organization, plan: "free" });
+    const [o] = await tx.insert(organizations).values({ slug, name: input.organization, plan: FREE_PLAN });
     await tx.insert(memberships).values({ userId: u.insertId, organizationId: o.insertId, role: "admin" });
     await recordAudit(
       { organizationId: o.insertId, actorType: "user", actorUserId: u.insertId, action: "organization.created", targetType: "organization", targetId: String(o.insertId), detail: { name: input.organization } },
@@ -106,7 +107,7 @@ export async function resetPassword(token: string, password: string): Promise<{ 
 export async function createOrganization(input: { userId: number; name: string }): Promise<{ organizationId: number; slug: string }> {
   return getDb().transaction(async (tx) => {
     const slug = `${slugify(input.name)}-${randomBytes(3).toString("hex")}`;
-    const [o] = await tx.insert(organizations).values({ slug, name: input.name, plan: "starter" });
+    const [o] = await tx.insert(organizations).values({ slug, name: input.name, plan: FREE_PLAN });
     await tx.insert(memberships).values({ userId: input.userId, organizationId: o.insertId, role: "admin" });
     await recordAudit(
       { organizationId: o.insertId, actorType: "user", actorUserId: input.userId, action: "organization.created", targetType: "organization", targetId: String(o.insertId), detail: { name: input.name } },

@@ -13,8 +13,8 @@ import { createKey } from "@/lib/db/keys";
 import { usageEvents } from "@/lib/db/schema";
 import { invoiceLines, invoices } from "@/lib/db/schema-billing";
 import { apiServer } from "../support/api";
-import { cookieFor, makeTeam } from "../portal/support";
-import { billingServer, fakeEvents, sdk, setPeriod, withSavedCard } from "./support";
+import { makeTeam } from "../portal/support";
+import { as, billingServer, fakeEvents, sdk, setPeriod, withSavedCard } from "./support";
 
 const app = billingServer();
 const api = apiServer();
@@ -130,12 +130,12 @@ describe("invoice PDF", () => {
   it("downloads with the billing details, the lines, the total and the caution", async () => {
     const t = await makeTeam("Kilner Lapping", "team");
     await withSavedCard(t.org.id);
-    const cookie = await cookieFor(t.billing.id, t.org.id);
-    await supertest(app).patch("/api/portal/billing/details").set("cookie", cookie).send({ billingName: "Kilner Lapping Ltd", billingAddress: "3 Weir Lane, Kilner KL2 8RR", taxId: "GB 111 2222 33" }).expect(200);
+    const cookie = await as(t.billing.id, t.org.id);
+    await supertest(app).patch("/api/portal/billing/details").set(cookie).send({ billingName: "Kilner Lapping Ltd", billingAddress: "3 Weir Lane, Kilner KL2 8RR", taxId: "GB 111 2222 33" }).expect(200);
     await setPeriod(t.org.id, "2027-10-01T00:00:00Z", "2027-11-01T00:00:00Z");
     await closeAccount(t.org.id, new Date("2027-11-01T00:00:00Z"));
     const [inv] = await getDb().select().from(invoices).where(eq(invoices.organizationId, t.org.id));
-    const res = await supertest(app).get(`/api/portal/billing/invoices/${inv.id}/pdf`).set("cookie", cookie).buffer(true).parse((r, cb) => {
+    const res = await supertest(app).get(`/api/portal/billing/invoices/${inv.id}/pdf`).set(cookie).buffer(true).parse((r, cb) => {
       const chunks: Buffer[] = [];
       r.on("data", (c: Buffer) => chunks.push(c));
       r.on("end", () => cb(null, Buffer.concat(chunks)));

@@ -6,6 +6,7 @@ import { getDb } from "@/lib/db/client";
 import { organizations } from "@/lib/db/schema";
 import { billingAccounts } from "@/lib/db/schema-billing";
 import { routeServer, type RouteModule } from "../support/route-server";
+import { cookieFor, ORG } from "../portal/support";
 import * as summary from "@/app/api/portal/billing/route";
 import * as plan from "@/app/api/portal/billing/plan/route";
 import * as paymentMethod from "@/app/api/portal/billing/payment-method/route";
@@ -131,4 +132,9 @@ export async function withSavedCard(organizationId: number, testPaymentMethod = 
 /** Moves an organisation's billing period (tests use months far from today, which the server's own sweep leaves alone). */
 export async function setPeriod(organizationId: number, start: string, end: string) {
   await getDb().update(billingAccounts).set({ periodStart: new Date(start), periodEnd: new Date(end) }).where(eq(billingAccounts.organizationId, organizationId));
+}
+
+/** Headers of a signed-in call acting in an organisation: the session cookie and the organisation header. */
+export async function as(userId: number, organizationId: number): Promise<Record<string, string>> {
+  return { cookie: await cookieFor(userId), [ORG]: String(organizationId) };
 }

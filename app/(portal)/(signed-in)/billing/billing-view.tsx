@@ -1,8 +1,8 @@
 "use client";
 
-import Link from "next/link";
 import { useCallback, useEffect, useState, type ReactNode } from "react";
-import { portalFetch, PortalFetchError } from "../../_components/fetch";
+import { portalFetch, PortalFetchError, withOrg } from "../../_components/fetch";
+import { OrgLink } from "../../_components/org-link";
 import { buttonClass, dangerButtonClass, Empty, Field, FormError, Loading, Notice, PageHeader, quietButtonClass } from "../../_components/ui";
 import { day, lastDay, money, STATUS_LABEL, units } from "./format";
 
@@ -323,9 +323,9 @@ export function BillingView() {
                 {data.invoices.map((i) => (
                   <tr key={i.id} className="border-b border-paper-line/60" data-invoice={i.number}>
                     <td className="py-2 pr-3 font-mono">
-                      <Link href={`/billing/invoices/${i.id}`} className="font-semibold text-fold-600 hover:underline">
+                      <OrgLink href={`/billing/invoices/${i.id}`} className="font-semibold text-fold-600 hover:underline">
                         {i.number}
-                      </Link>
+                      </OrgLink>
                     </td>
                     <td className="py-2 pr-3">
                       {i.kind === "period" ? `${day(i.periodStart)} – ${lastDay(i.periodEnd)}` : "Plan upgrade (prorated)"}
@@ -338,7 +338,7 @@ export function BillingView() {
                           Pay {i.number} now
                         </button>
                       ) : null}
-                      <a className={quietButtonClass} href={`/api/portal/billing/invoices/${i.id}/pdf`} download>
+                      <a className={quietButtonClass} href={withOrg(`/api/portal/billing/invoices/${i.id}/pdf`)} download>
                         PDF<span className="sr-only"> of {i.number}</span>
                       </a>
                     </td>

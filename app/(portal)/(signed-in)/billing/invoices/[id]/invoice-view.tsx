@@ -2,7 +2,7 @@
 
 import { useCallback, useEffect, useState } from "react";
 import { Caution } from "@/app/_components/caution";
-import { portalFetch, PortalFetchError } from "../../../../_components/fetch";
+import { portalFetch, PortalFetchError, withOrg } from "../../../../_components/fetch";
 import { buttonClass, FormError, Loading, Notice, PageHeader, quietButtonClass, TextLink } from "../../../../_components/ui";
 import { day, lastDay, money, STATUS_LABEL, units } from "../../format";
 
@@ -29,7 +29,7 @@ export function InvoiceView({ id }: { id: string }) {
     return (
       <div className="space-y-4">
         <FormError message={error} />
-        <TextLink href="/billing">Back to billing</TextLink>
+        <TextLink href={withOrg("/billing")}>Back to billing</TextLink>
       </div>
     );
   const i = d.invoice;
@@ -57,7 +57,7 @@ export function InvoiceView({ id }: { id: string }) {
                 Pay now
               </button>
             ) : null}
-            <a className={quietButtonClass} href={`/api/portal/billing/invoices/${i.id}/pdf`} download>
+            <a className={quietButtonClass} href={withOrg(`/api/portal/billing/invoices/${i.id}/pdf`)} download>
               Download PDF
             </a>
           </div>
@@ -124,7 +124,7 @@ export function InvoiceView({ id }: { id: string }) {
         </table>
       </section>
       <Caution />
-      <TextLink href="/billing">Back to billing</TextLink>
+      <TextLink href={withOrg("/billing")}>Back to billing</TextLink>
     </div>
   );
 }

@@ -9,6 +9,7 @@ export const GET = handler(async (req) => {
   const sessionId = new URL(req.url).searchParams.get("session_id") ?? "";
   if (!/^cs_[\w]+$/.test(sessionId)) throw new PortalError(404, "This checkout does not exist in this organisation.");
   const out = await completeCheckout(sessionId, { organizationId: caller.organizationId });
-  const result = out.status === "plan" ? out.action : out.status;
-  return new Response(null, { status: 303, headers: { location: `${baseUrl()}/billing?checkout=${encodeURIComponent(result)}`, "cache-control": "no-store" } });
+  const result =
+    out.status === "plan" ? out.action : out.status === "already" ? (out.purpose === "plan" ? (out.planInForce ? "upgraded" : "already") : "card_saved") : out.status;
+  return new Response(null, { status: 303, headers: { location: `${baseUrl()}/billing?org=${encodeURIComponent(caller.organizationSlug)}&checkout=${encodeURIComponent(result)}`, "cache-control": "no-store" } });
 });
