@@ -55,7 +55,7 @@ describe("billing in the portal", () => {
     expect(text).toContain("Caution");
 
     // The invoice's own page shows the same total.
-    await row.getByRole("link", { name: number! }).click();
+    await row.getByRole("link", { name: number!, exact: true }).click();
     await page.getByRole("heading", { name: `Invoice ${number}` }).waitFor();
     await expect(page.getByTestId("invoice-status").innerText()).resolves.toMatch(/^Paid/);
     await shot(page, "billing-invoice");
