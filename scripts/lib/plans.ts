@@ -7,7 +7,7 @@ export async function syncPlans(databaseUrl: string): Promise<void> {
   try {
     for (const code of PLAN_NAMES) {
       const p = PLANS[code];
-      const limits = { requestsPerSecond: p.requestsPerSecond, monthlyUnits: p.monthlyUnits };
+      const limits = { requestsPerSecond: p.requestsPerSecond, monthlyUnits: p.monthlyUnits, computeBudgetMs: p.computeBudgetMs, concurrentComputations: p.concurrentComputations, jobBudgetMs: p.jobBudgetMs };
       await conn.execute(
         `INSERT INTO plans (code, label, \`rank\`, currency, monthly_fee_minor, included_units, overage_per_million_minor, requests_per_second, monthly_units, limits)
          VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?, ?)
