@@ -44,6 +44,9 @@ const currencyLower = CURRENCY.toLowerCase();
 
 /** The billing row of an organisation, created on first use (on the plan the organisation holds, this month). */
 export async function ensureAccount(organizationId: number, now = new Date()): Promise<void> {
+  // A plain read first: INSERT IGNORE on a row another transaction holds locked would wait on (and can deadlock with) it.
+  const [has] = await getDb().select({ id: billingAccounts.organizationId }).from(billingAccounts).where(eq(billingAccounts.organizationId, organizationId));
+  if (has) return;
   const [org] = await getDb().select().from(organizations).where(eq(organizations.id, organizationId));
   if (!org) throw notFound("This organisation");
   const plan = planName(org.plan);
@@ -51,17 +54,33 @@ export async function ensureAccount(organizationId: number, now = new Date()): P
   await getDb().insert(billingAccounts).ignore().values({ organizationId, planCode: plan, periodPlanCode: plan, periodStart: p.start, periodEnd: p.end });
 }
 
-/** Runs `fn` with the organisation's billing row locked (SELECT ... FOR UPDATE), then sends the queued mail. */
+const isDeadlock = (e: unknown) => {
+  for (let c: unknown = e; c; c = (c as { cause?: unknown }).cause) if ((c as { errno?: number }).errno === 1213 || (c as { code?: string }).code === "ER_LOCK_DEADLOCK") return true;
+  return false;
+};
+
+/**
+ * Runs `fn` with the organisation's billing row locked (SELECT ... FOR UPDATE), then sends the queued mail. A
+ * deadlock (the database picked this transaction to undo) is retried; the provider calls inside carry
+ * idempotency keys or are no-ops when repeated (paying a paid invoice).
+ */
 async function withAccount<T>(organizationId: number, now: Date, fn: (ctx: Ctx) => Promise<T>): Promise<T> {
   await ensureAccount(organizationId, now);
-  const after: Ctx["after"] = [];
-  const out = await getDb().transaction(async (tx) => {
-    const [acct] = await tx.select().from(billingAccounts).where(eq(billingAccounts.organizationId, organizationId)).for("update");
-    const [org] = await tx.select().from(organizations).where(eq(organizations.id, organizationId));
-    return fn({ tx, acct, org, now, after });
-  });
-  for (const job of after) await job().catch((e) => console.error("[sumfold] billing follow-up failed", e));
-  return out;
+  for (let attempt = 1; ; attempt++) {
+    const after: Ctx["after"] = [];
+    try {
+      const out = await getDb().transaction(async (tx) => {
+        const [acct] = await tx.select().from(billingAccounts).where(eq(billingAccounts.organizationId, organizationId)).for("update");
+        const [org] = await tx.select().from(organizations).where(eq(organizations.id, organizationId));
+        return fn({ tx, acct, org, now, after });
+      });
+      for (const job of after) await job().catch((e) => console.error("[sumfold] billing follow-up failed", e));
+      return out;
+    } catch (e) {
+      if (attempt >= 3 || !isDeadlock(e)) throw e;
+      await new Promise((r) => setTimeout(r, 50 * attempt + Math.random() * 50));
+    }
+  }
 }
 
 async function setAccount(ctx: Ctx, patch: Partial<BillingAccount>) {
