@@ -1,6 +1,7 @@
 import { sql } from "drizzle-orm";
 import {
   bigint,
+  boolean,
   datetime,
   index,
   int,
@@ -120,9 +121,12 @@ export const auditEvents = mysqlTable(
     targetType: varchar("target_type", { length: 32 }).notNull(),
     targetId: varchar("target_id", { length: 64 }),
     detail: json("detail").$type<Record<string, unknown>>(),
+    /** where the action came from: the client address the request carried (null for the CLI and jobs) */
+    ip: varchar("ip", { length: 64 }),
+    userAgent: varchar("user_agent", { length: 200 }),
     createdAt: createdAt(),
   },
-  (t) => [index("audit_events_org_time_idx").on(t.organizationId, t.createdAt)],
+  (t) => [index("audit_events_org_time_idx").on(t.organizationId, t.createdAt), index("audit_events_org_action_idx").on(t.organizationId, t.action)],
 );
 
 /** Named models an organisation keeps (the explorer's templates and users' saved models). */
@@ -133,11 +137,33 @@ export const savedModels = mysqlTable(
     organizationId: ref("organization_id").notNull().references(() => organizations.id, { onDelete: "cascade" }),
     name: varchar("name", { length: 160 }).notNull(),
     description: text("description").notNull(),
+    /** the latest version's model (each version is kept in saved_model_versions) */
     model: json("model").$type<unknown>().notNull(),
+    /** shared with everyone in the organisation who may open models; otherwise its creator's only */
+    shared: boolean("shared").notNull().default(false),
+    latestVersion: int("latest_version", { unsigned: true }).notNull().default(1),
+    createdBy: ref("created_by").references(() => users.id, { onDelete: "set null" }),
+    createdAt: createdAt(),
+    updatedAt: at("updated_at"),
+  },
+  (t) => [uniqueIndex("saved_models_org_name_uq").on(t.organizationId, t.name)],
+);
+
+/** Every version of a saved model; versions never change once written. */
+export const savedModelVersions = mysqlTable(
+  "saved_model_versions",
+  {
+    id: id(),
+    savedModelId: ref("saved_model_id").notNull().references(() => savedModels.id, { onDelete: "cascade" }),
+    version: int("version", { unsigned: true }).notNull(),
+    model: json("model").$type<unknown>().notNull(),
+    /** the explorer's levels p when it was saved, e.g. "0.5, 0.99" */
+    levels: varchar("levels", { length: 200 }),
+    note: varchar("note", { length: 300 }),
     createdBy: ref("created_by").references(() => users.id, { onDelete: "set null" }),
     createdAt: createdAt(),
   },
-  (t) => [uniqueIndex("saved_models_org_name_uq").on(t.organizationId, t.name)],
+  (t) => [uniqueIndex("saved_model_versions_uq").on(t.savedModelId, t.version)],
 );
 
 /** Single-use links sent by e-mail: address verification and password reset. Only a hash of the token is kept. */

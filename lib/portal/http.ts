@@ -1,5 +1,6 @@
 import "server-only";
 import type { z } from "zod";
+import { originOf, withRequestOrigin } from "@/lib/request-context";
 import { fieldErrors } from "./schemas";
 
 /** The one error of the portal's handlers: a status, a message for people, and per-field messages for forms. */
@@ -72,7 +73,8 @@ export function handler(fn: (req: Request, params: Record<string, string>) => Pr
   return async (req: Request, ctx?: Ctx): Promise<Response> => {
     try {
       checkOrigin(req);
-      return await fn(req, (await ctx?.params) ?? {});
+      const params = (await ctx?.params) ?? {};
+      return await withRequestOrigin(originOf(req), () => fn(req, params));
     } catch (e) {
       if (e instanceof PortalError) return json(e.status, { error: e.message, ...(e.fields ? { fields: e.fields } : {}) });
       console.error("[sumfold] portal handler failed", e);

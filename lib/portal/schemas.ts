@@ -87,3 +87,16 @@ export function fieldErrors(error: z.ZodError): Record<string, string> {
   }
   return out;
 }
+
+export const saveModelSchema = z.object({
+  name: z.string().trim().min(1, { error: "Name the model, e.g. “Hail book 2026”." }).max(160, { error: "Use at most 160 characters." }),
+  description: z.string().trim().max(2000, { error: "Use at most 2000 characters." }).default(""),
+  shared: z.boolean().default(true),
+  model: z.custom<unknown>((v) => v !== undefined && v !== null, { error: "The model is missing." }),
+  levels: z.string().trim().max(200).optional(),
+  note: z.string().trim().max(300, { error: "Use at most 300 characters." }).optional(),
+});
+
+export const changeModelSchema = z
+  .object({ shared: z.boolean().optional(), description: z.string().trim().max(2000, { error: "Use at most 2000 characters." }).optional() })
+  .refine((v) => v.shared !== undefined || v.description !== undefined, { error: "Nothing to change." });

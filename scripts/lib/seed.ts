@@ -46,7 +46,9 @@ export async function seedDemo(databaseUrl: string, env: Record<string, string> 
         .from(schema.savedModels)
         .where(and(eq(schema.savedModels.organizationId, orgId), eq(schema.savedModels.name, m.name)));
       if (!existing) {
-        count(await db.insert(schema.savedModels).values({ organizationId: orgId, name: m.name, description: m.description, model: m.model }));
+        const [r] = await db.insert(schema.savedModels).values({ organizationId: orgId, name: m.name, description: m.description, model: m.model, shared: true });
+        count([r]);
+        await db.insert(schema.savedModelVersions).values({ savedModelId: r.insertId, version: 1, model: m.model });
       }
     }
     inserted += await seedBilling(db, orgIds, env);

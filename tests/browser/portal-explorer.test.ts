@@ -1,5 +1,9 @@
-// The explorer renders a plot, quantiles and moments for a template, and explains a bad model.
+// The explorer as a developer uses it: a plot that shows the law (range from quantiles, atom with its mass,
+// exceedance on a log scale, hover read-out, CSV/SVG export), tables, code in three languages, a model built
+// on a dataset, no stale results beside an error, and saved models with versions shared in the organisation.
+import { readFileSync } from "node:fs";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
+import type { Page } from "playwright-core";
 import { launchBrowser } from "../support/browser";
 import { baseUrl } from "../support/layout";
 import { makeOrganization, makePerson, shot, signIn } from "./portal-support";
@@ -12,8 +16,16 @@ afterAll(async () => {
   await session?.close();
 });
 
+const run = (page: Page) => page.getByRole("button", { name: "Run density, quantiles and moments" }).click();
+const plotRange = async (page: Page) => {
+  const label = (await page.getByTestId("law-plot").getAttribute("aria-label")) ?? "";
+  const m = /from (\S+) to (\S+)$/.exec(label);
+  expect(m, label).not.toBeNull();
+  return [Number(m![1].replace(/,/g, "")), Number(m![2].replace(/,/g, ""))];
+};
+
 describe("explorer", () => {
-  it("plots a template's density with its quantile and moment tables, and shows the caution and the curl request", { timeout: 120_000 }, async () => {
+  it("plots the law between quantiles, marks the atom, reads out the hover, exports, and shows code in three languages", { timeout: 180_000 }, async () => {
     const org = await makeOrganization("Halvard Gears");
     const dev = await makePerson("Ruth Amsel", [{ id: org.id, role: "developer" }], "halvard-dev-31");
     const page = await session.browser.newPage();
@@ -23,34 +35,134 @@ describe("explorer", () => {
     await expect(page.getByRole("note").first().innerText()).resolves.toMatch(/computational aids/i);
 
     await page.getByRole("button", { name: /Tolerance stack/ }).click();
-    await page.getByRole("button", { name: "Run density, quantiles and moments" }).click();
-    await page.getByRole("heading", { name: "Quantiles and expected shortfall" }).waitFor({ timeout: 20_000 });
-    // A drawn line has a path with many segments.
-    const d = await page.locator("figure .recharts-line path.recharts-curve").first().getAttribute("d");
-    expect((d ?? "").split(/[LC]/).length).toBeGreaterThan(50);
+    await run(page);
+    await page.getByRole("heading", { name: "Quantiles and expected shortfall" }).waitFor({ timeout: 30_000 });
+    const d = await page.getByTestId("law-plot").locator("path[fill=none]").first().getAttribute("d");
+    expect((d ?? "").split("L").length).toBeGreaterThan(100);
     const rows = page.getByRole("heading", { name: "Quantiles and expected shortfall" }).locator("xpath=..").locator("tbody tr");
     await expect(rows.count()).resolves.toBe(3);
     // Median of the stack = sum of the part means, 12 + 8.5 + 21 + 5 + 31 = 77.5 mm (each part is symmetric; common practice).
     const median = Number((await rows.nth(1).locator("td").nth(1).innerText()).trim());
     expect(Math.abs(median - 77.5)).toBeLessThan(1e-6);
-    await expect(page.getByTestId("curl").innerText()).resolves.toContain("/api/v1/quantiles");
     await shot(page, "explorer-stack");
 
-    await page.getByRole("button", { name: /Aggregate claims/ }).click();
-    await page.getByRole("button", { name: "Run density, quantiles and moments" }).click();
-    await page.getByRole("heading", { name: "Moments" }).waitFor({ timeout: 20_000 });
-    // Compound sum mean = E[N] E[claim] = 42 * 1.8 / 0.12 = 630 (Wald's identity; common practice).
-    const mean = Number((await page.locator("dt", { hasText: "Mean" }).locator("xpath=following-sibling::dd[1]").innerText()).trim());
-    expect(Math.abs(mean - 630) / 630).toBeLessThan(1e-9);
-    await shot(page, "explorer-claims");
+    // A heavy-tailed compound: 3 claims a year (Poisson), lognormal(10, 1.5) sizes. The axis follows the
+    // quantiles 0.0001..0.9999, not the inversion window; the atom P(N = 0) = e^-3 = 0.049787 (closed form) is marked.
+    const heavy = { compound: { count: { family: "poisson", lambda: 3 }, each: { family: "lognormal", mu: 10, sigma: 1.5 } } };
+    await page.getByLabel("Model (JSON)").fill(JSON.stringify(heavy));
+    await page.getByLabel("Levels p for quantiles and expected shortfall").fill("0.5, 0.9999");
+    await run(page);
+    await page.getByTestId("law-plot").waitFor({ timeout: 30_000 });
+    const q9999 = Number((await rows.nth(1).locator("td").nth(1).innerText()).trim());
+    const [lo, hi] = await plotRange(page);
+    expect(lo).toBeLessThanOrEqual(0);
+    expect(hi).toBeGreaterThanOrEqual(q9999 * 0.999);
+    expect(hi).toBeLessThan(q9999 * 1.6); // a nice axis end above the 0.9999 quantile, not 20x beyond it
+    await expect(page.getByTestId("atom-marker").first().innerText()).resolves.toMatch(/P\(X = 0\) = 0\.04979/);
 
+    // Hover read-out of x, density, F and 1 - F.
+    const box = (await page.getByTestId("law-plot").boundingBox())!;
+    await page.mouse.move(box.x + box.width * 0.4, box.y + box.height * 0.4);
+    await expect(page.getByTestId("plot-readout").innerText()).resolves.toMatch(/x = .+ · (pdf|pmf) = .+ · F = .+ · 1 − F = /);
+    // Exceedance 1 - F on a log scale.
+    await page.getByRole("radio", { name: "Exceedance 1 − F" }).check();
+    await expect(page.getByRole("radio", { name: "log" }).nth(1).isChecked()).resolves.toBe(true);
+    await expect(page.getByTestId("law-plot").getAttribute("aria-label")).resolves.toMatch(/^1 − F\(x\) = P\(X > x\)/);
+    await shot(page, "explorer-exceedance");
+    // A narrower range on request.
+    await page.getByLabel("Range to level").fill("0.99");
+    await page.getByRole("button", { name: "Replot" }).click();
+    await expect.poll(async () => (await plotRange(page))[1], { timeout: 20_000 }).toBeLessThan(hi);
+
+    // Export: the plotted table as CSV, the figure as SVG.
+    const [csv] = await Promise.all([page.waitForEvent("download"), page.getByRole("button", { name: "CSV" }).click()]);
+    const text = readFileSync((await csv.path())!, "utf8");
+    expect(text.split("\r\n")[0]).toMatch(/^x,(pdf|pmf),cdf,sf$/);
+    expect(text.split("\r\n").length).toBeGreaterThan(100);
+    const [svg] = await Promise.all([page.waitForEvent("download"), page.getByRole("button", { name: "SVG" }).click()]);
+    expect(readFileSync((await svg.path())!, "utf8")).toMatch(/<svg[^>]*xmlns="http:\/\/www.w3.org\/2000\/svg"/);
+
+    // Code for the same call: curl, Python requests, TypeScript fetch.
+    for (const [tab, marker] of [["curl", "curl -sS -X POST"], ["Python (requests)", "requests.post("], ["TypeScript (fetch)", "await fetch("]] as const) {
+      await page.getByRole("tab", { name: tab }).click();
+      const code = await page.getByTestId("snippet").innerText();
+      expect(code).toContain(marker);
+      expect(code).toContain("/api/v1/quantiles");
+      expect(code).toContain("lognormal");
+    }
+
+    // An invalid model: the API's message by pointer, and the previous results are gone.
     const editor = page.getByLabel("Model (JSON)");
     await editor.fill('{"family": "normal", "mu": 0, "sigma": -2}');
-    await page.getByRole("button", { name: "Run density, quantiles and moments" }).click();
-    const describedBy = await editor.getAttribute("aria-describedby");
-    expect(describedBy).toBeTruthy();
-    await expect(page.locator(`[id="${describedBy}"]`).innerText()).resolves.toMatch(/sigma/);
+    await run(page);
+    await page.getByTestId("model-issues").waitFor();
+    await expect(page.getByTestId("model-issues").innerText()).resolves.toMatch(/sigma/);
+    await expect(page.getByTestId("law-plot").count()).resolves.toBe(0);
+    await expect(page.getByRole("heading", { name: "Moments" }).count()).resolves.toBe(0);
     await shot(page, "explorer-invalid");
+    await page.setViewportSize({ width: 390, height: 844 });
+    await page.getByRole("button", { name: /Aggregate claims/ }).click();
+    await run(page);
+    await page.getByTestId("law-plot").waitFor({ timeout: 30_000 });
+    const extra = await page.evaluate(() => document.documentElement.scrollWidth - document.documentElement.clientWidth);
+    expect(extra).toBe(0);
+    await shot(page, "explorer-narrow");
     await page.close();
+  });
+
+  it("runs a compound whose claim sizes are a dataset, as the API does", { timeout: 120_000 }, async () => {
+    const org = await makeOrganization("Harrowgate Mutual");
+    const dev = await makePerson("Tomas Lind", [{ id: org.id, role: "developer" }], "harrowgate-dev-44");
+    const page = await session.browser.newPage();
+    await signIn(page, dev.email, dev.password);
+    const up = await page.request.post(`${baseUrl()}/api/portal/datasets?name=${encodeURIComponent("Hail sizes")}`, { data: Buffer.from("size\n2\n4\n6\n8\n"), headers: { "content-type": "text/csv" } });
+    expect(up.status(), await up.text()).toBe(201);
+    const id = ((await up.json()) as { dataset: { id: string } }).dataset.id;
+    await page.goto(`${baseUrl()}/explorer`);
+    await page.getByLabel("Model (JSON)").fill(JSON.stringify({ compound: { count: { family: "poisson", lambda: 2 }, each: { dataset: id, version: 1 } } }));
+    await run(page);
+    await page.getByRole("heading", { name: "Moments" }).waitFor({ timeout: 30_000 });
+    // Compound mean = E[N] E[X] = 2 * 5 = 10 (Wald's identity on the sample's mean 5; common practice).
+    const mean = Number((await page.locator("dt", { hasText: "Mean" }).locator("xpath=following-sibling::dd[1]").innerText()).trim());
+    expect(Math.abs(mean - 10)).toBeLessThan(1e-9);
+    await expect(page.getByTestId("model-issues").count()).resolves.toBe(0);
+    await page.close();
+  });
+
+  it("saves a model, adds a version, shares it, and a colleague opens it from the models page", { timeout: 120_000 }, async () => {
+    const org = await makeOrganization("Kestrel Precision Works");
+    const dev = await makePerson("Wen Castillo", [{ id: org.id, role: "developer" }], "kestrel-dev-12");
+    const colleague = await makePerson("Ilse Moreau", [{ id: org.id, role: "admin" }], "kestrel-admin-12");
+    const page = await session.browser.newPage();
+    await signIn(page, dev.email, dev.password);
+    // A docs example opens in the explorer.
+    await page.goto(`${baseUrl()}/docs/models`);
+    await page.getByRole("link", { name: "Open this example in the explorer" }).nth(1).click();
+    await page.waitForURL(/\/explorer\?example=stack/);
+    await expect(page.getByLabel("Model (JSON)").inputValue()).resolves.toContain("uniform");
+    await page.getByLabel("Name", { exact: true }).fill("Gearbox housing stack");
+    await page.getByRole("button", { name: "Save model" }).click();
+    await page.getByText("Saved “Gearbox housing stack” as version 1.").waitFor();
+    await page.getByLabel("Model (JSON)").fill(JSON.stringify({ sum: [{ family: "normal", mu: 12, sigma: 0.01 }, { family: "uniform", a: 20.97, b: 21.03 }] }));
+    await page.getByLabel("What changed (optional)").fill("tighter machining");
+    await page.getByRole("button", { name: "Save model" }).click();
+    await page.getByText("Saved “Gearbox housing stack” as version 2.").waitFor();
+    await page.close();
+
+    const other = await session.browser.newPage();
+    await other.context().clearCookies();
+    await signIn(other, colleague.email, colleague.password);
+    await other.getByRole("navigation", { name: "Portal" }).getByRole("link", { name: "Models" }).click();
+    const card = other.locator('[data-model="Gearbox housing stack"]');
+    await card.waitFor();
+    await expect(card.innerText()).resolves.toMatch(/Version 2 · shared with the organisation · saved by Wen Castillo/);
+    await card.getByRole("button", { name: "Versions" }).click();
+    await card.getByText("tighter machining").waitFor();
+    await shot(other, "models-list");
+    await card.getByRole("link", { name: "Version 1" }).click();
+    await other.waitForURL(/\/explorer\?model=\d+&version=1/);
+    await expect.poll(() => other.getByLabel("Model (JSON)").inputValue()).toContain("31");
+    await other.getByText(/Opened: “Gearbox housing stack”, version 1/).waitFor();
+    await other.close();
   });
 });

@@ -8,6 +8,8 @@ import { createKey } from "@/lib/db/keys";
 import { routeServer, type RouteModule } from "../support/route-server";
 import * as me from "@/app/api/portal/me/route";
 import * as organizations_ from "@/app/api/portal/organizations/route";
+import * as models from "@/app/api/portal/models/route";
+import * as model from "@/app/api/portal/models/[id]/route";
 import * as keys from "@/app/api/portal/keys/route";
 import * as rotate from "@/app/api/portal/keys/[id]/rotate/route";
 import * as revoke from "@/app/api/portal/keys/[id]/revoke/route";
@@ -31,6 +33,8 @@ export const portalServer = () =>
   routeServer({
     "/api/portal/me": me as RouteModule,
     "/api/portal/organizations": organizations_ as RouteModule,
+    "/api/portal/models": models as RouteModule,
+    "/api/portal/models/[id]": model as RouteModule,
     "/api/portal/keys": keys as RouteModule,
     "/api/portal/keys/[id]/rotate": rotate as RouteModule,
     "/api/portal/keys/[id]/revoke": revoke as RouteModule,

@@ -56,6 +56,9 @@ export default function ModelsGuide() {
         e<sup>−42</sup>) and a density elsewhere; the API reports the atom separately.
       </p>
       <Code label="model">{json(aggregateClaimsModel)}</Code>
+      <p>
+        <Link className="font-semibold text-fold-600 underline" href="/explorer?example=claims">Open this example in the explorer</Link>
+      </p>
 
       <h2>Worked example: a tolerance stack</h2>
       <p>
@@ -63,6 +66,9 @@ export default function ModelsGuide() {
         uniform within their tolerance bands. The assembly length is their sum.
       </p>
       <Code label="model">{json(toleranceStackModel)}</Code>
+      <p>
+        <Link className="font-semibold text-fold-600 underline" href="/explorer?example=stack">Open this example in the explorer</Link>
+      </p>
 
       <h2>Worked example: a stable law</h2>
       <p>
@@ -70,6 +76,9 @@ export default function ModelsGuide() {
         (continuous in alpha and beta). Its variance does not exist; <code>/moments</code> says so instead of returning a number.
       </p>
       <Code label="model">{json(stableReturnModel)}</Code>
+      <p>
+        <Link className="font-semibold text-fold-600 underline" href="/explorer?example=stable">Open this example in the explorer</Link>
+      </p>
 
       <h2>Families</h2>
       <p>

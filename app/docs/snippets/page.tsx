@@ -1,4 +1,5 @@
 import type { Metadata } from "next";
+import Link from "next/link";
 import { curlSnippet, endpointExamples, fetchSnippet, pythonSnippet } from "@/lib/api/examples";
 import { Code, Prose } from "../_components/prose";
 
@@ -22,7 +23,17 @@ export default function SnippetsGuide() {
               {e.method} {e.path}
             </code>
           </h2>
-          <p>{e.title}.</p>
+          <p>
+            {e.title}.
+            {e.body && "model" in e.body ? (
+              <>
+                {" "}
+                <Link className="font-semibold text-fold-600 underline" href={`/explorer?example=${e.id}`}>
+                  Open in the explorer
+                </Link>
+              </>
+            ) : null}
+          </p>
           <Code label="curl">{curlSnippet(e, base)}</Code>
           <Code label="TypeScript (fetch)">{fetchSnippet(e, base)}</Code>
           <Code label="Python (requests)">{pythonSnippet(e, base)}</Code>

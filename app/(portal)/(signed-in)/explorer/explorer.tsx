@@ -1,124 +1,141 @@
 "use client";
 
-import { useId, useState } from "react";
-import { isCfError } from "@/lib/cf/errors";
-import { validateModel } from "@/lib/cf/validate";
-import { orgHeaders } from "../../_components/fetch";
-import { buttonClass, FormError, inputClass, Loading, PageHeader, quietButtonClass } from "../../_components/ui";
+import { useSearchParams } from "next/navigation";
+import { useEffect, useId, useRef, useState } from "react";
+import { endpointExamples } from "@/lib/api/examples";
+import { has, useMe } from "../../_components/me";
+import { portalFetch } from "../../_components/fetch";
+import { buttonClass, FormError, inputClass, Loading, PageHeader } from "../../_components/ui";
+import { CodeSnippets } from "./code-snippets";
+import { LawPlot } from "./law-plot";
 import { ModelBuilder } from "./model-builder";
-import { ResultChart, type DensityResult } from "./result-chart";
+import { ModelEditor } from "./model-editor";
+import { ResultTables } from "./result-tables";
+import { densityOnRange, parseLevels, runAll, RunError, type FieldIssue, type Results } from "./run";
+import { SaveModel, type SavedModelVersion } from "./save-model";
 import { TEMPLATES } from "./templates";
 
-interface Problem {
-  title?: string;
-  detail?: string;
-  errors?: { detail: string; pointer: string }[];
-}
-interface QuantileResult {
-  p: number[];
-  x: number[];
-  expectedShortfall?: (number | null)[];
-}
-interface MomentResult {
-  mean: number | null;
-  variance: number | null;
-  skewness: number | null;
-  excessKurtosis: number | null;
-  cumulants: (number | null)[];
-  notes: string[];
-}
-interface Results {
-  density: DensityResult & { diagnostics: Record<string, unknown> };
-  quantiles: QuantileResult & { diagnostics: Record<string, unknown> };
-  moments: MomentResult;
-}
-
 const pretty = (v: unknown) => JSON.stringify(v, null, 2);
-const num = (v: number | null | undefined) => (v === null || v === undefined || !Number.isFinite(v) ? "does not exist" : Number(v.toPrecision(8)).toString());
+const DEFAULT_RANGE = { from: 0.0001, to: 0.9999 };
 
-/** Parses the levels field: numbers strictly between 0 and 1, separated by commas or spaces. */
-function parseLevels(s: string): number[] | string {
-  const parts = s.split(/[\s,;]+/).filter(Boolean);
-  if (parts.length === 0) return "Give at least one level, e.g. 0.99.";
-  const out = parts.map(Number);
-  const bad = parts.find((p, i) => !(out[i] > 0 && out[i] < 1));
-  return bad !== undefined ? `“${bad}” is not a level strictly between 0 and 1.` : out;
-}
-
-async function post<T>(op: string, body: unknown): Promise<T> {
-  const res = await fetch(`/api/portal/explore/${op}`, { method: "POST", headers: { "content-type": "application/json", ...orgHeaders() }, body: JSON.stringify(body) });
-  const data = await res.json().catch(() => ({}));
-  if (!res.ok) throw Object.assign(new Error(data.detail ?? data.error ?? `The ${op} run failed (${res.status}).`), { problem: data as Problem });
-  return data as T;
-}
-
+/** The explorer: a model (template, builder, docs example or saved model) in, the law's plot, quantiles and moments out. */
 export function Explorer() {
-  const editorId = useId();
+  const { me } = useMe();
+  const search = useSearchParams();
+  const levelsId = useId();
   const [text, setText] = useState(pretty(TEMPLATES[0].model));
   const [levels, setLevels] = useState<string>(TEMPLATES[0].p);
-  const [issues, setIssues] = useState<{ detail: string; pointer: string }[]>([]);
+  const [issues, setIssues] = useState<FieldIssue[]>([]);
   const [levelError, setLevelError] = useState<string | null>(null);
   const [error, setError] = useState<string | null>(null);
   const [busy, setBusy] = useState(false);
+  const [replotting, setReplotting] = useState(false);
   const [results, setResults] = useState<Results | null>(null);
-  const [copied, setCopied] = useState(false);
+  const [loaded, setLoaded] = useState<{ id: number; name: string; version: number } | null>(null);
+  const ranModel = useRef<unknown>(null);
+
+  function load(model: unknown, p?: string) {
+    setText(pretty(model));
+    if (p) setLevels(p);
+    setIssues([]);
+    setError(null);
+    setResults(null);
+  }
+
+  // A docs example (?example=quantiles) or a saved model (?model=12&version=2) opens ready to run.
+  const example = search.get("example");
+  const savedId = search.get("model");
+  const savedVersion = search.get("version");
+  useEffect(() => {
+    if (example) {
+      const t = TEMPLATES.find((x) => x.id === example);
+      const e = endpointExamples.find((x) => x.id === example);
+      const body = e?.body as { model?: unknown; p?: number[] } | null;
+      if (t) load(t.model, t.p);
+      else if (body?.model) load(body.model, body.p?.join(", "));
+      else setError(`There is no docs example “${example}” with a model.`);
+    }
+  }, [example]);
+  useEffect(() => {
+    if (!savedId) return;
+    portalFetch<{ model: { id: number; name: string }; version: SavedModelVersion }>(`/api/portal/models/${encodeURIComponent(savedId)}${savedVersion ? `?version=${encodeURIComponent(savedVersion)}` : ""}`)
+      .then((r) => {
+        load(r.version.model, r.version.levels ?? undefined);
+        setLoaded({ id: r.model.id, name: r.model.name, version: r.version.version });
+      })
+      .catch((e: RunError) => setError(e.message));
+  }, [savedId, savedVersion]);
 
   function parseModel(): unknown | null {
-    let value: unknown;
     try {
-      value = JSON.parse(text);
+      return JSON.parse(text);
     } catch (e) {
       setIssues([{ pointer: "", detail: `The model is not valid JSON: ${(e as Error).message}` }]);
       return null;
     }
-    try {
-      // The same validator the API runs, so messages match what the endpoint would say.
-      validateModel(value);
-      setIssues([]);
-      return value;
-    } catch (e) {
-      setIssues(isCfError(e) ? e.issues : [{ pointer: "", detail: (e as Error).message }]);
-      return null;
-    }
+  }
+
+  function fail(e: unknown) {
+    const problem = e instanceof RunError ? e.problem : {};
+    setIssues(problem.errors?.length ? problem.errors.map((x) => ({ ...x, pointer: x.pointer.replace(/^\/model/, "") })) : []);
+    setError((e as Error).message);
+    // never leave another model's results beside an error
+    setResults(null);
   }
 
   async function run() {
     setError(null);
+    setIssues([]);
     const model = parseModel();
     const p = parseLevels(levels);
     setLevelError(typeof p === "string" ? p : null);
     if (model === null || typeof p === "string") {
-      setResults(null); // never leave another model's results beside a model that does not run
+      setResults(null);
       return;
     }
     setBusy(true);
+    setResults(null);
     try {
-      const [density, quantiles, moments] = await Promise.all([
-        post<Results["density"]>("density", { model }),
-        post<Results["quantiles"]>("quantiles", { model, p, expectedShortfall: true }),
-        post<Results["moments"]>("moments", { model, order: 4 }),
-      ]);
-      setResults({ density, quantiles, moments });
+      // The server validates (the same schemas as the public API, datasets resolved in this organisation).
+      setResults(await runAll(model, p, results?.range ?? DEFAULT_RANGE));
+      ranModel.current = model;
     } catch (e) {
-      const problem = (e as { problem?: Problem }).problem;
-      if (problem?.errors?.length) setIssues(problem.errors.map((x) => ({ ...x, pointer: x.pointer.replace(/^\/model/, "") })));
-      setError((e as Error).message);
-      setResults(null);
+      fail(e);
     } finally {
       setBusy(false);
     }
   }
 
-  const origin = typeof window === "undefined" ? "" : window.location.origin;
+  async function replot(range: { from: number; to: number }) {
+    if (!results) return;
+    setReplotting(true);
+    try {
+      const density = await densityOnRange(ranModel.current, range);
+      setResults({ ...results, density, range });
+    } catch (e) {
+      fail(e);
+    } finally {
+      setReplotting(false);
+    }
+  }
+
+  if (me && !has(me, "explore")) {
+    return (
+      <div className="space-y-4">
+        <PageHeader title="Explorer" lead="Models are run by developers and admins." />
+        <p className="text-ink-soft">Billing contacts follow usage and the plan; the explorer, whose runs use the organisation's compute, is for developers and admins.</p>
+      </div>
+    );
+  }
+
   const parsedLevels = parseLevels(levels);
-  let curlModel = text;
+  let bodyModel: unknown = text;
   try {
-    curlModel = JSON.stringify(JSON.parse(text));
+    bodyModel = JSON.parse(text);
   } catch {
     /* shown as typed */
   }
-  const curl = `curl -sS -X POST ${origin}/api/v1/quantiles \\\n  -H "Authorization: Bearer $SUMFOLD_KEY" \\\n  -H "Content-Type: application/json" \\\n  -d '${`{"model":${curlModel},"p":[${typeof parsedLevels === "string" ? "" : parsedLevels.join(",")}],"expectedShortfall":true}`.replace(/'/g, "'\\''")}'`;
-  const issuesId = `${editorId}-issues`;
+  const snippetBody = { model: bodyModel, p: typeof parsedLevels === "string" ? [] : parsedLevels, expectedShortfall: true };
 
   return (
     <div className="space-y-6">
@@ -127,17 +144,7 @@ export function Explorer() {
         <h2 id="tpl-h" className="text-sm font-semibold uppercase tracking-wide text-ink-faint">Start from a template</h2>
         <div className="mt-2 grid gap-3 md:grid-cols-3">
           {TEMPLATES.map((t) => (
-            <button
-              key={t.id}
-              type="button"
-              className="rounded-xl border border-paper-line bg-white p-4 text-left hover:border-fold-500"
-              onClick={() => {
-                setText(pretty(t.model));
-                setLevels(t.p);
-                setIssues([]);
-                setResults(null);
-              }}
-            >
+            <button key={t.id} type="button" className="rounded-xl border border-paper-line bg-white p-4 text-left hover:border-fold-500" onClick={() => { load(t.model, t.p); setLoaded(null); }}>
               <span className="block font-display text-lg font-semibold">{t.title}</span>
               <span className="mt-1 block text-sm text-ink-soft">{t.blurb}</span>
             </button>
@@ -145,115 +152,34 @@ export function Explorer() {
         </div>
       </section>
       <div className="grid gap-6 lg:grid-cols-2">
-        <div className="space-y-4">
-          <ModelBuilder
-            onBuild={(m) => {
-              setText(pretty(m));
-              setIssues([]);
-            }}
-          />
+        <div className="min-w-0 space-y-4">
+          <ModelBuilder onBuild={(m) => { setText(pretty(m)); setIssues([]); }} />
+          <ModelEditor text={text} onChange={setText} issues={issues} />
           <div>
-            <label htmlFor={editorId} className="block text-sm font-semibold">
-              Model (JSON)
-            </label>
-            <textarea
-              id={editorId}
-              className={`${inputClass} h-72 font-mono text-sm`}
-              spellCheck={false}
-              value={text}
-              onChange={(e) => setText(e.target.value)}
-              onBlur={() => parseModel()}
-              aria-invalid={issues.length ? true : undefined}
-              aria-describedby={issues.length ? issuesId : undefined}
-            />
-            {issues.length ? (
-              <ul id={issuesId} className="mt-2 space-y-1 text-sm text-red-700">
-                {issues.map((i, k) => (
-                  <li key={k}>
-                    {i.pointer ? <code className="mr-1 rounded bg-red-50 px-1 font-mono text-xs">{i.pointer}</code> : null}
-                    {i.detail}
-                  </li>
-                ))}
-              </ul>
-            ) : null}
-          </div>
-          <div>
-            <label className="block text-sm font-semibold" htmlFor={`${editorId}-p`}>
+            <label className="block text-sm font-semibold" htmlFor={levelsId}>
               Levels p for quantiles and expected shortfall
             </label>
-            <input
-              id={`${editorId}-p`}
-              className={inputClass}
-              value={levels}
-              onChange={(e) => setLevels(e.target.value)}
-              aria-invalid={levelError ? true : undefined}
-              aria-describedby={levelError ? `${editorId}-p-err` : undefined}
-            />
-            {levelError ? <p id={`${editorId}-p-err`} className="mt-1 text-sm text-red-700">{levelError}</p> : null}
+            <input id={levelsId} className={inputClass} value={levels} onChange={(e) => setLevels(e.target.value)} aria-invalid={levelError ? true : undefined} aria-describedby={levelError ? `${levelsId}-err` : undefined} />
+            {levelError ? <p id={`${levelsId}-err`} className="mt-1 text-sm text-red-700">{levelError}</p> : null}
           </div>
           <button type="button" className={buttonClass} onClick={run} disabled={busy}>
             {busy ? "Computing…" : "Run density, quantiles and moments"}
           </button>
+          <SaveModel text={text} levels={levels} loaded={loaded} onSaved={setLoaded} />
         </div>
-        <div className="space-y-4">
+        <div className="min-w-0 space-y-4">
           <FormError message={error} />
           {busy ? <Loading label="Computing…" /> : null}
           {!results && !busy && !error ? (
-            <p className="rounded-xl border border-dashed border-paper-line bg-paper-warm p-6 text-sm text-ink-soft">Results appear here: the density and distribution function, a table of quantiles and expected shortfall, the moments, and the diagnostics of the inversion.</p>
+            <p className="rounded-xl border border-dashed border-paper-line bg-paper-warm p-6 text-sm text-ink-soft">Results appear here: the law plotted between two quantiles, a table of quantiles and expected shortfall, the moments, and the diagnostics of the inversion.</p>
           ) : null}
           {results ? (
             <>
-              <ResultChart data={results.density} />
-              <section aria-labelledby="q-h" className="rounded-xl border border-paper-line bg-white p-4">
-                <h2 id="q-h" className="font-display text-lg font-semibold">Quantiles and expected shortfall</h2>
-                <table className="mt-2 w-full text-sm">
-                  <thead className="text-left text-xs uppercase text-ink-faint">
-                    <tr>
-                      <th scope="col" className="py-1">p</th>
-                      <th scope="col" className="py-1 text-right">Quantile (VaR)</th>
-                      <th scope="col" className="py-1 text-right">Expected shortfall</th>
-                    </tr>
-                  </thead>
-                  <tbody className="tabular-nums">
-                    {results.quantiles.p.map((p, i) => (
-                      <tr key={p} className="border-t border-paper-line">
-                        <td className="py-1">{p}</td>
-                        <td className="py-1 text-right">{num(results.quantiles.x[i])}</td>
-                        <td className="py-1 text-right">{num(results.quantiles.expectedShortfall?.[i])}</td>
-                      </tr>
-                    ))}
-                  </tbody>
-                </table>
-              </section>
-              <section aria-labelledby="m-h" className="rounded-xl border border-paper-line bg-white p-4">
-                <h2 id="m-h" className="font-display text-lg font-semibold">Moments</h2>
-                <dl className="mt-2 grid grid-cols-2 gap-x-4 gap-y-1 text-sm tabular-nums">
-                  <dt className="text-ink-faint">Mean</dt><dd>{num(results.moments.mean)}</dd>
-                  <dt className="text-ink-faint">Variance</dt><dd>{num(results.moments.variance)}</dd>
-                  <dt className="text-ink-faint">Skewness</dt><dd>{num(results.moments.skewness)}</dd>
-                  <dt className="text-ink-faint">Excess kurtosis</dt><dd>{num(results.moments.excessKurtosis)}</dd>
-                </dl>
-                {results.moments.notes?.length ? <ul className="mt-2 list-disc pl-5 text-sm text-ink-soft">{results.moments.notes.map((n) => <li key={n}>{n}</li>)}</ul> : null}
-              </section>
-              <details className="rounded-xl border border-paper-line bg-white p-4 text-sm">
-                <summary className="cursor-pointer font-semibold">Diagnostics of the inversion</summary>
-                <pre className="mt-2 overflow-x-auto font-mono text-xs">{pretty(results.density.diagnostics)}</pre>
-              </details>
+              <LawPlot data={results.density} range={results.range} onRange={replot} busy={replotting} />
+              <ResultTables results={results} />
             </>
           ) : null}
-          <section aria-labelledby="curl-h" className="rounded-xl border border-paper-line bg-ink p-4 text-paper">
-            <div className="flex items-center justify-between gap-2">
-              <h2 id="curl-h" className="text-sm font-semibold">The same quantiles from your code</h2>
-              <button
-                type="button"
-                className={`${quietButtonClass} !bg-transparent !text-paper`}
-                onClick={() => navigator.clipboard.writeText(curl).then(() => setCopied(true), () => setCopied(false))}
-              >
-                {copied ? "Copied" : "Copy"}
-              </button>
-            </div>
-            <pre className="mt-2 overflow-x-auto font-mono text-xs" data-testid="curl">{curl}</pre>
-          </section>
+          <CodeSnippets path="/api/v1/quantiles" body={snippetBody} title="The same quantiles from your code" />
         </div>
       </div>
     </div>
