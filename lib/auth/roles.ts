@@ -20,6 +20,8 @@ export const PERMISSIONS = {
   "audit.read": ["admin"],
   /** open, save and share models in the organisation */
   "models.read": ["admin", "developer"],
+  /** download a dataset's file as uploaded (claim-level data: not for billing contacts) */
+  "datasets.raw": ["admin", "developer"],
   /** read the plan and quota */
   "plan.read": ["admin", "developer", "billing"],
   /** change the plan, the card, billing details and contacts; read and pay invoices */

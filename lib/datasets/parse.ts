@@ -217,7 +217,7 @@ export async function parseDataset(
       return;
     }
     const cell = record[vi] ?? "";
-    const v = parseCell(cell);
+    const v = parseCell(cell, s.decimal);
     if (v === null) {
       bad(line, vi, cell, cell.trim() === "" ? "empty" : "non_numeric");
       return;
@@ -225,7 +225,7 @@ export async function parseDataset(
     let w = 1;
     if (weights) {
       const wc = record[wi] ?? "";
-      const parsed = parseCell(wc);
+      const parsed = parseCell(wc, s.decimal);
       if (parsed === null) {
         bad(line, wi, wc, wc.trim() === "" ? "empty_weight" : "non_numeric_weight");
         return;
@@ -306,6 +306,8 @@ export async function parseDataset(
       `${plural(skippedTotal, "row")} skipped: ${(Object.entries(byReason) as [SkipReason, number][]).map(([r, n]) => `${n.toLocaleString("en")} ${SKIP_REASON_TEXT[r]}`).join(", ")} (first on line ${f.line}, column ${f.column}).`,
     );
   }
+  if (s.decimal === "comma") notes.push(`Numbers read with a decimal comma (12,5 is 12.5)${s.decimalGuessed ? ", as the file writes them" : ""}.`);
+  if ((opts.column === undefined || opts.column.trim() === "") && s.columns.length > 1) notes.push(`No values column was chosen: the first column holding numbers (${showCell(s.columns[vi])}) was used.`);
   if (blankLines > 0) notes.push(`${plural(blankLines, "blank line")} ignored.`);
   return {
     format: s.format,

@@ -9,9 +9,12 @@ export const uploadQuerySchema = z.object({
   name: z.string().trim().min(1, { error: "Name the dataset, e.g. “Motor claims 2025”." }).max(160, { error: "Use at most 160 characters." }).optional(),
   description: text(2000, "description").optional(),
   fileName: text(255, "file name").optional(),
-  format: z.enum(["auto", "csv", "tsv", "list"]).default("auto"),
+  format: z.enum(["auto", "csv", "tsv", "list", "xlsx"]).default("auto"),
   delimiter: z.enum([",", ";", "\t", "|"]).optional(),
   header: z.enum(["auto", "yes", "no"]).default("auto"),
+  decimal: z.enum(["auto", "dot", "comma"]).default("auto"),
+  /** the worksheet of an Excel workbook (default: the first) */
+  sheet: text(120, "sheet name").optional(),
   column: text(255, "column").optional(),
   weights: text(255, "weights column").optional(),
   onInvalid: z.enum(["fail", "skip"]).default("fail"),

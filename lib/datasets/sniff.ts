@@ -1,5 +1,5 @@
 import { DatasetParseError, showCell } from "./errors";
-import { numberHint, parseCell } from "./numbers";
+import { hasDecimalComma, numberHint, parseCell, type DecimalMark } from "./numbers";
 
 // Pure and dependency-free so the portal page can run it on the file's first bytes before uploading.
 
@@ -11,6 +11,8 @@ export interface SniffOptions {
   /** an explicit single-character delimiter for csv (";" or "|" files) */
   delimiter?: string;
   header?: "auto" | "yes" | "no";
+  /** the decimal mark of the numbers; "auto" reads a decimal comma when the fields are not comma-separated and the numbers use one */
+  decimal?: "auto" | DecimalMark;
 }
 
 export interface SniffResult {
@@ -26,6 +28,9 @@ export interface SniffResult {
   rows: string[][];
   /** true when format or delimiter were guessed rather than chosen */
   guessed: boolean;
+  decimal: DecimalMark;
+  /** true when the decimal mark was guessed */
+  decimalGuessed: boolean;
 }
 
 /** Delimiters tried, in order of preference when several split every line alike (";" before ",": decimal commas). */
@@ -33,6 +38,8 @@ export const CANDIDATES = ["\t", ";", ",", "|"] as const;
 export const DELIMITER_NAMES: Record<string, string> = { "\t": "tab", ";": "semicolon", ",": "comma", "|": "vertical bar" };
 const nameOf = (d: string) => `${DELIMITER_NAMES[d] ?? "delimiter"} (${JSON.stringify(d)})`;
 const SNIFF_LINES = 50;
+/** Header names of identifier columns, which hold numbers that are not measurements. */
+const ID_HEADER = /(^|[\s_.-])(id|no|nr|number|num|code|key|ref|#)$|^id[\s_.-]|^#$/i;
 
 /** Splits one line on `delim` honouring RFC 4180 double quotes ("" inside quotes is a quote). */
 export function splitLine(line: string, delim: string): string[] {
@@ -116,18 +123,22 @@ export function sniff(text: string, complete: boolean, opts: SniffOptions = {}):
   }
 
   const rows = lines.map((l) => (delimiter === null ? [l.trim()] : splitLine(l, delimiter)));
+  // A decimal comma cannot be told from a field separator in a comma-separated file; elsewhere the numbers say.
+  const cells = rows.flat();
+  const decimalGuessed = (opts.decimal ?? "auto") === "auto";
+  const decimal: DecimalMark = !decimalGuessed ? (opts.decimal as DecimalMark) : delimiter !== "," && cells.some(hasDecimalComma) && !cells.some((c) => /^[+-]?\d*\.\d+$/.test(c.trim())) ? "comma" : "dot";
   const first = rows[0];
   // A header cell is text; "1 200" or "12,5" are numbers written in another convention, not names.
-  const looksLikeHeader = first.some((c) => c !== "" && parseCell(c) === null && numberHint(c) === null);
+  const looksLikeHeader = first.some((c) => c !== "" && parseCell(c, decimal) === null && numberHint(c) === null);
   const header = opts.header === "yes" ? true : opts.header === "no" ? false : looksLikeHeader;
   const width = Math.max(...rows.map((r) => r.length));
   const columns = header ? first.map((c, i) => c || `column ${i + 1}`) : Array.from({ length: width }, (_, i) => `column ${i + 1}`);
   const data = (header ? rows.slice(1) : rows).slice(0, 20);
   const numericColumns = columns
     .map((_, i) => i)
-    .filter((i) => data.length > 0 && data.some((r) => (r[i] ?? "") !== "") && data.every((r) => (r[i] ?? "") === "" || parseCell(r[i]) !== null));
+    .filter((i) => data.length > 0 && data.some((r) => (r[i] ?? "") !== "") && data.every((r) => (r[i] ?? "") === "" || parseCell(r[i], decimal) !== null));
   const fmt: DatasetFormat = delimiter === null ? "list" : delimiter === "\t" ? "tsv" : "csv";
-  return { format: fmt, delimiter, header, columns, numericColumns, rows: rows.slice(0, 6), guessed };
+  return { format: fmt, delimiter, header, columns, numericColumns, rows: rows.slice(0, 6), guessed, decimal, decimalGuessed };
 }
 
 /**
@@ -138,10 +149,14 @@ export function resolveColumn(s: SniffResult, choice: string | undefined, role: 
   const list = s.columns.map((c) => showCell(c)).join(", ");
   if (choice === undefined || choice.trim() === "") {
     if (s.columns.length === 1) return 0;
-    if (s.numericColumns.length === 1) return s.numericColumns[0];
+    // The first column that holds numbers, passing over identifiers ("claim_id", "policy no") when another holds numbers.
+    const ident = (i: number) => s.header && ID_HEADER.test(s.columns[i].trim());
+    const measure = s.numericColumns.find((i) => !ident(i));
+    if (measure !== undefined) return measure;
+    if (s.numericColumns.length >= 1) return s.numericColumns[0];
     throw new DatasetParseError(
       "column_ambiguous",
-      `The file has ${s.columns.length} columns (${list}) and ${s.numericColumns.length === 0 ? "none" : s.numericColumns.length} of them hold numbers; choose the column with the ${role}.`,
+      `The file has ${s.columns.length} columns (${list}) and none of them holds only numbers in its first rows${s.decimal === "dot" && s.rows.flat().some(hasDecimalComma) ? " (the numbers seem to use a decimal comma: choose it in the options)" : ""}; choose the column with the ${role}.`,
     );
   }
   const want = choice.trim().toLowerCase();

@@ -3,6 +3,7 @@ import type { NewVersionData } from "@/lib/db/datasets";
 import { DatasetParseError } from "./errors";
 import { MAX_UPLOAD_BYTES } from "./limits";
 import { parseDataset } from "./parse";
+import { isZip, workbookToTsv } from "./xlsx";
 import { setProgress } from "./progress";
 import { RawCollector } from "./raw";
 import type { UploadQuery } from "./schemas";
@@ -78,13 +79,29 @@ export async function receiveDatasetUpload(args: {
     }
   });
   try {
+    const excel = query.format === "xlsx" || /\.xlsx$/i.test(query.fileName ?? "");
+    let input: AsyncIterable<Uint8Array> = source;
+    let sheetNote: string | null = null;
+    if (excel) {
+      // A workbook is a zip: read it whole (within its own cap), then parse its sheet as tab-separated text.
+      const parts: Uint8Array[] = [];
+      for await (const piece of source) parts.push(piece);
+      const file = Buffer.concat(parts);
+      if (!isZip(file)) throw new DatasetParseError("binary", "This file is not an Excel workbook (.xlsx). Choose the format that matches it, or let it be detected.");
+      const sheet = workbookToTsv(file, query.sheet);
+      sheetNote = `Read from the sheet ${JSON.stringify(sheet.sheet)} of the workbook${sheet.sheets.length > 1 ? ` (it has ${sheet.sheets.length} sheets)` : ""}.`;
+      input = (async function* () {
+        yield Buffer.from(sheet.text, "utf8");
+      })();
+    }
     const parsed = await parseDataset(
-      source,
-      { format: query.format, delimiter: query.delimiter, header: query.header, column: query.column, weights: query.weights, onInvalid: query.onInvalid },
+      input,
+      { format: excel ? "tsv" : query.format === "xlsx" ? "auto" : query.format, delimiter: excel ? undefined : query.delimiter, header: query.header, decimal: excel ? "dot" : query.decimal, column: query.column, weights: query.weights, onInvalid: query.onInvalid },
       (p) => {
         rows = p.rows;
       },
     );
+    if (sheetNote) parsed.notes.unshift(sheetNote);
     rows = parsed.dataRows;
     const kind = parsed.weightKind === "weights" ? "weights" : "counts";
     const summary = summarize(parsed.values, parsed.weights, kind);
@@ -94,8 +111,8 @@ export async function receiveDatasetUpload(args: {
     return {
       fileName: query.fileName || "upload",
       raw: file,
-      format: parsed.format,
-      delimiter: parsed.delimiter,
+      format: excel ? "xlsx" : parsed.format,
+      delimiter: excel ? null : parsed.delimiter,
       valueColumn: parsed.header ? parsed.valueColumn.name : String(parsed.valueColumn.index + 1),
       weightColumn: parsed.weightColumn ? (parsed.header ? parsed.weightColumn.name : String(parsed.weightColumn.index + 1)) : null,
       weightKind: parsed.weightKind,

@@ -29,7 +29,7 @@ export const datasets = mysqlTable(
   (t) => [uniqueIndex("datasets_public_id_uq").on(t.publicId), index("datasets_org_idx").on(t.organizationId)],
 );
 
-export const DATASET_FORMATS = ["csv", "tsv", "list"] as const;
+export const DATASET_FORMATS = ["csv", "tsv", "list", "xlsx"] as const;
 export const WEIGHT_KINDS = ["none", "counts", "weights"] as const;
 
 /** One upload of a dataset: what was parsed, how, its summary, and (in dataset_chunks) the raw file and values. */

@@ -100,3 +100,15 @@ export const saveModelSchema = z.object({
 export const changeModelSchema = z
   .object({ shared: z.boolean().optional(), description: z.string().trim().max(2000, { error: "Use at most 2000 characters." }).optional() })
   .refine((v) => v.shared !== undefined || v.description !== undefined, { error: "Nothing to change." });
+
+export const auditQuerySchema = z
+  .object({
+    from: isoDay.optional(),
+    to: isoDay.optional(),
+    /** an action ("key.revoked") or a family of actions ("key") */
+    action: z.string().regex(/^[a-z_]+(\.[a-z_]+)?$/, { error: "Choose an action from the list." }).optional(),
+    actorUserId: z.coerce.number().int().positive().optional(),
+    limit: z.coerce.number().int().min(1).max(5000).default(200),
+  })
+  .refine((q) => !q.from || !q.to || q.from <= q.to, { error: "“From” is after “To”: swap them to see this period.", path: ["to"] });
+export type AuditQuery = z.infer<typeof auditQuerySchema>;

@@ -1,6 +1,7 @@
 import "server-only";
 import { planOf } from "@/lib/api/plans";
 import { can } from "@/lib/auth/roles";
+import { PortalError } from "./http";
 import type { Caller } from "@/lib/auth/session";
 import { listKeysByOrg } from "@/lib/db/keys";
 import { listDailyUnits, listUsageByOrg, listUsageEndpoints, sumUnits, type UsageRow } from "@/lib/db/portal-usage";
@@ -22,6 +23,7 @@ function scopeOf(caller: Caller): { createdBy?: number } {
 /** The usage table for a query, with the key and endpoint filter choices the caller may use. */
 export async function usageTable(caller: Caller, q: UsageQuery, now = new Date()) {
   const scope = scopeOf(caller);
+  if (q.from && q.to && q.from > q.to) throw new PortalError(422, "“From” is after “To”: swap the dates to see this period.", { to: "Choose a day on or after “From”." });
   const to = q.to ? new Date(dayStart(q.to).getTime() + DAY) : new Date(Date.UTC(now.getUTCFullYear(), now.getUTCMonth(), now.getUTCDate()) + DAY);
   const from = q.from ? dayStart(q.from) : new Date(to.getTime() - 30 * DAY);
   const filter = { organizationId: caller.organizationId, ...scope, from, to, keyId: q.keyId, endpoint: q.endpoint };
@@ -30,7 +32,8 @@ export async function usageTable(caller: Caller, q: UsageQuery, now = new Date()
     listKeysByOrg({ organizationId: caller.organizationId, createdBy: scope.createdBy }),
     listUsageEndpoints({ organizationId: caller.organizationId }),
   ]);
-  const showPrefix = can(caller.role, "keys.own");
+  // A key's prefix is its public id (never enough to call the API): billing contacts see it too, to tell keys apart.
+  const showPrefix = can(caller.role, "usage.own");
   return {
     from: from.toISOString().slice(0, 10),
     to: new Date(to.getTime() - DAY).toISOString().slice(0, 10),

@@ -25,6 +25,8 @@ export async function makeOrganization(name: string, plan = "team") {
 }
 
 export async function signIn(page: Page, email: string, password: string) {
+  // Signing in is switching person: the previous session of this browser ends first.
+  await page.context().clearCookies();
   await page.goto(`${baseUrl()}/sign-in`);
   await page.getByLabel("E-mail").fill(email);
   await page.getByLabel("Password").fill(password);

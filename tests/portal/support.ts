@@ -9,6 +9,8 @@ import { routeServer, type RouteModule } from "../support/route-server";
 import * as me from "@/app/api/portal/me/route";
 import * as organizations_ from "@/app/api/portal/organizations/route";
 import * as models from "@/app/api/portal/models/route";
+import * as audit from "@/app/api/portal/audit/route";
+import * as auditCsv from "@/app/api/portal/audit/csv/route";
 import * as model from "@/app/api/portal/models/[id]/route";
 import * as keys from "@/app/api/portal/keys/route";
 import * as rotate from "@/app/api/portal/keys/[id]/rotate/route";
@@ -34,6 +36,8 @@ export const portalServer = () =>
     "/api/portal/me": me as RouteModule,
     "/api/portal/organizations": organizations_ as RouteModule,
     "/api/portal/models": models as RouteModule,
+    "/api/portal/audit": audit as RouteModule,
+    "/api/portal/audit/csv": auditCsv as RouteModule,
     "/api/portal/models/[id]": model as RouteModule,
     "/api/portal/keys": keys as RouteModule,
     "/api/portal/keys/[id]/rotate": rotate as RouteModule,

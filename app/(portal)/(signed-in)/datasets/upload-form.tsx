@@ -5,12 +5,15 @@ import { isDatasetParseError } from "@/lib/datasets/errors";
 import { MAX_UPLOAD_BYTES, SNIFF_BYTES } from "@/lib/datasets/limits";
 import { uploadQuerySchema } from "@/lib/datasets/schemas";
 import { fieldErrors } from "@/lib/portal/schemas";
-import { DELIMITER_NAMES, sniff, type SniffResult } from "@/lib/datasets/sniff";
+import { DELIMITER_NAMES, resolveColumn, sniff, type SniffResult } from "@/lib/datasets/sniff";
 import { buttonClass, FormError, inputClass, quietButtonClass } from "../../_components/ui";
 import { orgHeaders } from "../../_components/fetch";
 import { fmtBytes, type DatasetJson, type VersionJson } from "./types";
 
-type Format = "auto" | "csv" | "tsv" | "list";
+type Format = "auto" | "csv" | "tsv" | "list" | "xlsx";
+type Delimiter = "" | "," | ";" | "\t" | "|";
+type Decimal = "auto" | "dot" | "comma";
+const isExcel = (f: File | null, format: Format) => format === "xlsx" || !!f?.name.toLowerCase().endsWith(".xlsx");
 interface Problem {
   error: string;
   problem?: { code: string; line?: number; column?: number; value?: string; counts?: Record<string, number> };
@@ -53,6 +56,9 @@ export function UploadForm({ datasetId, onDone, onCancel }: { datasetId?: string
   const [name, setName] = useState("");
   const [description, setDescription] = useState("");
   const [format, setFormat] = useState<Format>("auto");
+  const [delimiter, setDelimiter] = useState<Delimiter>("");
+  const [decimal, setDecimal] = useState<Decimal>("auto");
+  const [sheet, setSheet] = useState("");
   const [column, setColumn] = useState("");
   const [weights, setWeights] = useState("");
   const [skip, setSkip] = useState(false);
@@ -64,6 +70,12 @@ export function UploadForm({ datasetId, onDone, onCancel }: { datasetId?: string
 
   useEffect(() => {
     if (!file) return;
+    if (isExcel(file, format)) {
+      // A workbook is read on the server; its first sheet and first numeric column are taken unless chosen.
+      setShape(null);
+      setSniffError(null);
+      return;
+    }
     let stale = false;
     file
       .slice(0, SNIFF_BYTES)
@@ -71,10 +83,17 @@ export function UploadForm({ datasetId, onDone, onCancel }: { datasetId?: string
       .then((text) => {
         if (stale) return;
         try {
-          const s = sniff(text, file.size <= SNIFF_BYTES, { format });
+          const s = sniff(text, file.size <= SNIFF_BYTES, { format: format === "xlsx" ? "auto" : format, delimiter: delimiter || undefined, decimal });
           setShape(s);
           setSniffError(null);
-          setColumn((c) => (c && s.columns.includes(c) ? c : s.header ? s.columns[s.numericColumns[0] ?? 0] : String((s.numericColumns[0] ?? 0) + 1)));
+          // The same default as the server: the first numeric column that is not an identifier.
+          let def = 0;
+          try {
+            def = resolveColumn(s, undefined, "values");
+          } catch {
+            def = s.numericColumns[0] ?? 0;
+          }
+          setColumn((c) => (c && (s.header ? s.columns.includes(c) : Number(c) <= s.columns.length) ? c : s.header ? s.columns[def] : String(def + 1)));
         } catch (e) {
           setShape(null);
           setSniffError(isDatasetParseError(e) ? e.message : "The start of the file could not be read.");
@@ -83,7 +102,7 @@ export function UploadForm({ datasetId, onDone, onCancel }: { datasetId?: string
     return () => {
       stale = true;
     };
-  }, [file, format]);
+  }, [file, format, delimiter, decimal]);
 
   function pick(f: File | null) {
     setFile(f);
@@ -99,7 +118,17 @@ export function UploadForm({ datasetId, onDone, onCancel }: { datasetId?: string
     if (!file) return setProblem({ error: "Choose a file to upload." });
     if (file.size > MAX_UPLOAD_BYTES) return setProblem({ error: `The file is ${fmtBytes(file.size)}; the upload limit is ${fmtBytes(MAX_UPLOAD_BYTES)}. Split it, or aggregate it into a frequency table with a counts column.` });
     const uploadId = newUploadId();
-    const fields = { ...(datasetId ? {} : { name, description }), fileName: file.name, format, column, weights, onInvalid: skip ? "skip" : "fail", uploadId };
+    const excel = isExcel(file, format);
+    const fields = {
+      ...(datasetId ? {} : { name, description }),
+      fileName: file.name,
+      format: excel ? "xlsx" : format,
+      ...(excel ? { sheet } : { delimiter, decimal }),
+      column,
+      weights,
+      onInvalid: skip ? "skip" : "fail",
+      uploadId,
+    };
     const checked = uploadQuerySchema.safeParse(Object.fromEntries(Object.entries(fields).filter(([, v]) => v !== "")));
     if (!checked.success) return setProblem({ error: "Some fields need attention.", fields: fieldErrors(checked.error) });
     setProblem(null);
@@ -156,8 +185,8 @@ export function UploadForm({ datasetId, onDone, onCancel }: { datasetId?: string
         <label htmlFor={`${ids}-file`} className="block text-sm font-semibold">
           File
         </label>
-        <input id={`${ids}-file`} name="file" type="file" accept=".csv,.tsv,.txt,.dat,text/csv,text/plain,text/tab-separated-values" className="mt-1 block w-full text-sm" disabled={busy} onChange={(e) => pick(e.target.files?.[0] ?? null)} />
-        <p className="mt-1 text-xs text-ink-faint">CSV or TSV with a header row, or a plain list with one number per line. Up to 50 MiB and 1,000,000 values.</p>
+        <input id={`${ids}-file`} name="file" type="file" accept=".csv,.tsv,.txt,.dat,.xlsx,text/csv,text/plain,text/tab-separated-values,application/vnd.openxmlformats-officedocument.spreadsheetml.sheet" className="mt-1 block w-full text-sm" disabled={busy} onChange={(e) => pick(e.target.files?.[0] ?? null)} />
+        <p className="mt-1 text-xs text-ink-faint">CSV or TSV (any delimiter, decimal point or decimal comma), an Excel workbook (.xlsx, up to 20 MiB), or a plain list with one number per line. Up to 50 MiB and 1,000,000 values.</p>
       </div>
       {sniffError ? <FormError message={sniffError} /> : null}
       {file && shape ? (
@@ -165,6 +194,12 @@ export function UploadForm({ datasetId, onDone, onCancel }: { datasetId?: string
           {fmtBytes(file.size)} ·{" "}
           {shape.delimiter === null ? "a plain list" : `${shape.format.toUpperCase()} separated by ${DELIMITER_NAMES[shape.delimiter] ?? shape.delimiter}`}
           {shape.header ? `, header: ${shape.columns.join(", ")}` : ", no header row"}
+          {shape.decimal === "comma" ? ", decimal comma" : ""}
+        </p>
+      ) : null}
+      {file && isExcel(file, format) ? (
+        <p className="text-sm text-ink-soft" data-testid="detected">
+          {fmtBytes(file.size)} · Excel workbook: the sheet below (or the first) is read, and the first column holding numbers unless you name one.
         </p>
       ) : null}
       {!datasetId ? (
@@ -184,6 +219,28 @@ export function UploadForm({ datasetId, onDone, onCancel }: { datasetId?: string
           </div>
         </div>
       ) : null}
+      {file && isExcel(file, format) ? (
+        <div className="grid gap-4 sm:grid-cols-3">
+          <div>
+            <label htmlFor={`${ids}-sheet`} className="block text-sm font-semibold">
+              Sheet
+            </label>
+            <input id={`${ids}-sheet`} className={inputClass} value={sheet} onChange={(e) => setSheet(e.target.value)} placeholder="the first sheet" disabled={busy} />
+          </div>
+          <div>
+            <label htmlFor={`${ids}-xcol`} className="block text-sm font-semibold">
+              Values column (header name or number)
+            </label>
+            <input id={`${ids}-xcol`} className={inputClass} value={column} onChange={(e) => setColumn(e.target.value)} placeholder="the first numeric column" disabled={busy} />
+          </div>
+          <div>
+            <label htmlFor={`${ids}-xw`} className="block text-sm font-semibold">
+              Weights or counts column
+            </label>
+            <input id={`${ids}-xw`} className={inputClass} value={weights} onChange={(e) => setWeights(e.target.value)} placeholder="none" disabled={busy} />
+          </div>
+        </div>
+      ) : null}
       <div className="grid gap-4 sm:grid-cols-3">
         <div>
           <label htmlFor={`${ids}-format`} className="block text-sm font-semibold">
@@ -194,8 +251,33 @@ export function UploadForm({ datasetId, onDone, onCancel }: { datasetId?: string
             <option value="csv">CSV (comma)</option>
             <option value="tsv">TSV (tab)</option>
             <option value="list">Plain list</option>
+            <option value="xlsx">Excel workbook (.xlsx)</option>
           </select>
         </div>
+        <div>
+          <label htmlFor={`${ids}-delim`} className="block text-sm font-semibold">
+            Delimiter
+          </label>
+          <select id={`${ids}-delim`} className={inputClass} value={delimiter} onChange={(e) => setDelimiter(e.target.value as Delimiter)} disabled={busy || isExcel(file, format) || format === "list"}>
+            <option value="">Detect</option>
+            <option value=",">Comma ,</option>
+            <option value=";">Semicolon ;</option>
+            <option value={"\t"}>Tab</option>
+            <option value="|">Vertical bar |</option>
+          </select>
+        </div>
+        <div>
+          <label htmlFor={`${ids}-decimal`} className="block text-sm font-semibold">
+            Decimal mark
+          </label>
+          <select id={`${ids}-decimal`} className={inputClass} value={decimal} onChange={(e) => setDecimal(e.target.value as Decimal)} disabled={busy || isExcel(file, format)}>
+            <option value="auto">Detect</option>
+            <option value="dot">Point (12.5)</option>
+            <option value="comma">Comma (12,5)</option>
+          </select>
+        </div>
+      </div>
+      <div className={`grid gap-4 sm:grid-cols-2 ${file && isExcel(file, format) ? "hidden" : ""}`}>
         <div>
           <label htmlFor={`${ids}-column`} className="block text-sm font-semibold">
             Values column

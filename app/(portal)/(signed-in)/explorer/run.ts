@@ -66,15 +66,14 @@ const GRID_POINTS = 501;
 export async function densityOnRange(model: unknown, range: { from: number; to: number }): Promise<DensityResult> {
   const q = await explore<QuantileResult>("quantiles", { model, p: [range.from, range.to] });
   const [lo, hi] = q.x;
-  const lattice = String(q.diagnostics?.method ?? "").startsWith("lattice");
-  if (lattice || !(hi > lo)) {
-    const d = await explore<DensityResult>("density", { model });
-    if (!(hi > lo)) return d;
-    const keep = d.x.map((x) => x >= lo && x <= hi);
-    const pick = <A,>(a: A[] | undefined) => a?.filter((_, i) => keep[i]);
-    return { ...d, x: pick(d.x)!, pdf: pick(d.pdf), pmf: pick(d.pmf), cdf: pick(d.cdf)!, sf: pick(d.sf) };
-  }
-  return explore<DensityResult>("density", { model, grid: { from: lo, to: hi, count: GRID_POINTS } });
+  if (!(hi > lo)) return explore<DensityResult>("density", { model });
+  const d = await explore<DensityResult>("density", { model, grid: { from: lo, to: hi, count: GRID_POINTS } });
+  if (d.pdf) return d;
+  // Probabilities live on the law's own points (a lattice or a discretised law): take its table and crop it.
+  const t = await explore<DensityResult>("density", { model });
+  const keep = t.x.map((x) => x >= lo && x <= hi);
+  const pick = <A,>(a: A[] | undefined) => a?.filter((_, i) => keep[i]);
+  return { ...t, x: pick(t.x)!, pdf: pick(t.pdf), pmf: pick(t.pmf), cdf: pick(t.cdf)!, sf: pick(t.sf) };
 }
 
 export async function runAll(model: unknown, p: number[], range: { from: number; to: number }): Promise<Results> {

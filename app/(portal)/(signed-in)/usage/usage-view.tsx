@@ -1,5 +1,6 @@
 "use client";
 
+import { usePathname, useRouter, useSearchParams } from "next/navigation";
 import { useEffect, useMemo, useState } from "react";
 import type { UsageRow } from "@/lib/db/portal-usage";
 import { USAGE_SORTS } from "@/lib/portal/schemas";
@@ -7,7 +8,7 @@ import { Caution } from "@/app/_components/caution";
 import { portalFetch, PortalFetchError, withOrg } from "../../_components/fetch";
 import { useMe } from "../../_components/me";
 import { Empty, fmtDay, FormError, inputClass, Loading, PageHeader, quietButtonClass } from "../../_components/ui";
-import { UsageChart, type MonthData } from "./usage-chart";
+import { QuotaMeter, UsageChart, type MonthData } from "./usage-chart";
 
 interface Table {
   from: string;
@@ -37,11 +38,16 @@ const plural = (x: number, word: string) => `${n(x)} ${word}${x === 1 ? "" : "s"
 
 export function UsageView() {
   const { me } = useMe();
+  const search = useSearchParams();
+  const router = useRouter();
+  const path = usePathname();
   const today = new Date().toISOString().slice(0, 10);
   const monthAgo = new Date(Date.now() - 29 * 86_400_000).toISOString().slice(0, 10);
-  const [filters, setFilters] = useState({ from: monthAgo, to: today, keyId: "", endpoint: "" });
-  const [sort, setSort] = useState<{ by: Sort; dir: "asc" | "desc" }>({ by: "day", dir: "desc" });
-  const [page, setPage] = useState(1);
+  // The filters, sort and page live in the address: a filtered view can be reloaded, bookmarked and shared.
+  const filters = { from: search.get("from") ?? monthAgo, to: search.get("to") ?? today, keyId: search.get("keyId") ?? "", endpoint: search.get("endpoint") ?? "" };
+  const sortParam = search.get("sort") as Sort | null;
+  const sort: { by: Sort; dir: "asc" | "desc" } = { by: sortParam && USAGE_SORTS.includes(sortParam) ? sortParam : "day", dir: search.get("dir") === "asc" ? "asc" : "desc" };
+  const page = Math.max(1, Number(search.get("page")) || 1);
   const [table, setTable] = useState<Table | null>(null);
   const [month, setMonth] = useState<MonthData | null>(null);
   const [error, setError] = useState<string | null>(null);
@@ -52,13 +58,13 @@ export function UsageView() {
     if (filters.keyId) q.set("keyId", filters.keyId);
     if (filters.endpoint) q.set("endpoint", filters.endpoint);
     return q.toString();
-  }, [filters, sort, page]);
+  }, [filters.from, filters.to, filters.keyId, filters.endpoint, sort.by, sort.dir, page]);
 
   useEffect(() => {
     setLoading(true);
     portalFetch<Table>(`/api/portal/usage?${query}`)
       .then((t) => (setTable(t), setError(null)))
-      .catch((e: PortalFetchError) => setError(e.problem?.error ?? "Usage could not be loaded."))
+      .catch((e: PortalFetchError) => (setError(e.problem?.error ?? "Usage could not be loaded."), setTable(null)))
       .finally(() => setLoading(false));
   }, [query]);
 
@@ -66,14 +72,17 @@ export function UsageView() {
     portalFetch<MonthData>("/api/portal/usage/month").then(setMonth).catch(() => setMonth(null));
   }, []);
 
-  const setFilter = (k: keyof typeof filters) => (v: string) => {
-    setFilters((f) => ({ ...f, [k]: v }));
-    setPage(1);
+  const update = (changes: Record<string, string>) => {
+    const next = new URLSearchParams(search.toString());
+    for (const [k, v] of Object.entries(changes)) {
+      if (v) next.set(k, v);
+      else next.delete(k);
+    }
+    router.replace(`${path}?${next.toString()}`, { scroll: false });
   };
-  const sortBy = (by: Sort) => {
-    setSort((s) => ({ by, dir: s.by === by && s.dir === "desc" ? "asc" : "desc" }));
-    setPage(1);
-  };
+  const setFilter = (k: keyof typeof filters) => (v: string) => update({ [k]: v, page: "" });
+  const sortBy = (by: Sort) => update({ sort: by, dir: sort.by === by && sort.dir === "desc" ? "asc" : "desc", page: "" });
+  const setPage = (f: (p: number) => number) => update({ page: String(f(page)) });
   const pages = table ? Math.max(1, Math.ceil(table.total / table.pageSize)) : 1;
   const csvQuery = (() => {
     const q = new URLSearchParams(query);
@@ -94,15 +103,16 @@ export function UsageView() {
         }
       />
       <Caution />
+      {month ? <QuotaMeter data={month} /> : null}
       {month ? <UsageChart data={month} /> : null}
       <form aria-label="Usage filters" className="grid gap-3 rounded-xl border border-paper-line bg-white p-4 sm:grid-cols-4" onSubmit={(e) => e.preventDefault()}>
         <label className="text-sm font-semibold">
           From
-          <input type="date" className={inputClass} value={filters.from} max={filters.to} onChange={(e) => setFilter("from")(e.target.value)} />
+          <input type="date" className={inputClass} value={filters.from} onChange={(e) => setFilter("from")(e.target.value)} />
         </label>
         <label className="text-sm font-semibold">
           To
-          <input type="date" className={inputClass} value={filters.to} min={filters.from} onChange={(e) => setFilter("to")(e.target.value)} />
+          <input type="date" className={inputClass} value={filters.to} onChange={(e) => setFilter("to")(e.target.value)} />
         </label>
         <label className="text-sm font-semibold">
           Key
@@ -131,7 +141,27 @@ export function UsageView() {
             {loading ? "Updating… " : ""}
             {plural(table.totals.requests, "request")}, {plural(table.totals.units, "compute unit")}, {plural(table.totals.errors, "error")} from {fmtDay(table.from)} to {fmtDay(table.to)}.
           </p>
-          <div className="relative overflow-x-auto rounded-xl border border-paper-line bg-white">
+          <ul className="space-y-2 md:hidden" aria-label="Usage by day, key and endpoint">
+            {table.rows.map((r) => (
+              <li key={`${r.day}-${r.keyId}-${r.endpoint}`} className="rounded-lg border border-paper-line bg-white p-3 text-sm">
+                <p className="flex flex-wrap justify-between gap-2">
+                  <span className="font-semibold">{fmtDay(r.day)}</span>
+                  <span className="font-mono text-xs">{r.endpoint}</span>
+                </p>
+                <p className="text-ink-soft">
+                  {r.keyLabel ?? `#${r.keyId}`}
+                  {r.keyPrefix ? <span className="ml-1 font-mono text-xs text-ink-faint">{r.keyPrefix}</span> : null}
+                </p>
+                <dl className="mt-1 grid grid-cols-2 gap-x-3 text-xs tabular-nums">
+                  <dt className="text-ink-faint">Requests</dt><dd className="text-right">{n(r.requests)}</dd>
+                  <dt className="text-ink-faint">Compute units</dt><dd className="text-right">{n(r.units)}</dd>
+                  <dt className="text-ink-faint">Errors</dt><dd className={`text-right ${r.errors ? "font-semibold text-red-700" : ""}`}>{n(r.errors)}</dd>
+                  <dt className="text-ink-faint">Median latency (ms)</dt><dd className="text-right">{n(r.medianMs)}</dd>
+                </dl>
+              </li>
+            ))}
+          </ul>
+          <div className="relative hidden overflow-x-auto rounded-xl border border-paper-line bg-white md:block">
             <table className="w-full min-w-[48rem] text-left text-sm">
               <caption className="sr-only">Usage by day, key and endpoint</caption>
               <thead className="border-b border-paper-line bg-paper-warm text-xs uppercase tracking-wide text-ink-faint">

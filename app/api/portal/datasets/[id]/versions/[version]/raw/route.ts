@@ -6,7 +6,7 @@ import { handler, idParam, notFound } from "@/lib/portal/http";
 export const dynamic = "force-dynamic";
 
 export const GET = handler(async (req, params) => {
-  const caller = await requireCaller(req);
+  const caller = await requireCaller(req, ["datasets.raw"]);
   const row = await getDatasetVersionMeta({ organizationId: caller.organizationId, publicId: params.id, version: idParam(params, "version") });
   if (!row) throw notFound("This dataset version");
   const bytes = await readVersionRaw({ versionId: row.version.id });
