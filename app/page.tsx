@@ -2,6 +2,9 @@ import Link from "next/link";
 import { aggregateClaimsModel } from "@/lib/demo/scenario";
 import { LandingExample } from "./_components/landing-example";
 
+// The example names the address this server is reached at, read at request time.
+export const dynamic = "force-dynamic";
+
 const audiences = [
   {
     title: "Aggregate claims",
@@ -45,7 +48,7 @@ export default function Home() {
               </Link>
             </div>
           </div>
-          <LandingExample model={aggregateClaimsModel} />
+          <LandingExample model={aggregateClaimsModel} base={process.env.SUMFOLD_BASE_URL ?? "http://127.0.0.1:3000"} />
         </div>
       </section>
       <section className="mx-auto max-w-page px-5 py-14" aria-labelledby="for-whom">

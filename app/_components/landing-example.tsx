@@ -3,9 +3,9 @@ import { runMoments } from "@/lib/api/operations";
 const fmt = (v: number | null) => (v === null ? "null" : Number(v.toPrecision(8)));
 
 /** A real request and the engine's own answer to it (computed when the page is built). */
-export function LandingExample({ model }: { model: unknown }) {
+export function LandingExample({ model, base }: { model: unknown; base: string }) {
   const body = { model, order: 3 };
-  const request = `curl -s https://sumfold.example/api/v1/moments \\
+  const request = `curl -s ${base}/api/v1/moments \\
   -H "Authorization: Bearer $SUMFOLD_KEY" \\
   -H "Content-Type: application/json" \\
   -d '${JSON.stringify(body, null, 1).replace(/\n\s*/g, " ")}'`;

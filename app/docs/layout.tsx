@@ -12,7 +12,7 @@ const guides = [
 
 export default function DocsLayout({ children }: { children: ReactNode }) {
   return (
-    <div className="mx-auto grid max-w-page gap-8 px-5 py-10 md:grid-cols-[13rem_1fr]">
+    <div className="mx-auto grid max-w-page grid-cols-[minmax(0,1fr)] gap-8 px-5 py-10 md:grid-cols-[13rem_minmax(0,1fr)]">
       <nav aria-label="Documentation" className="md:sticky md:top-6 md:self-start">
         <p className="text-xs font-semibold uppercase tracking-wider text-ink-faint">API v1</p>
         <ul className="mt-3 space-y-1 text-sm">

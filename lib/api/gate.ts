@@ -183,7 +183,7 @@ export function withApiKey<S extends z.ZodType>(handler: Handler<S>, opts: Optio
     try {
       key = await authenticate(req);
       if (!key.scopes.includes(opts.scope)) {
-        throw new ApiError("forbidden", `This key lacks the "${opts.scope}" scope needed for ${opts.endpoint}; an admin can issue a key with it.`);
+        throw new ApiError("forbidden", `This key lacks the "${opts.scope}" scope needed for ${opts.endpoint}. Use a key that has it, or give this key the scope on the portal's API keys page.`);
       }
       const raw = opts.schema ? await readJson(req) : undefined;
       const body = opts.schema ? validate(opts.schema, raw) : (undefined as z.infer<S>);

@@ -2,6 +2,7 @@ import "server-only";
 import type { NextAuthOptions } from "next-auth";
 import CredentialsProvider from "next-auth/providers/credentials";
 import { getUserByEmail } from "@/lib/db/portal";
+import { verifyEmail } from "@/lib/portal/accounts";
 import { signInSchema } from "@/lib/portal/schemas";
 import { burnPasswordCheck, verifyPassword } from "./passwords";
 import { allowSignInAttempt } from "./throttle";
@@ -10,6 +11,7 @@ import { allowSignInAttempt } from "./throttle";
 export const SIGN_IN_ERRORS = {
   throttled: "Throttled",
   unverified: "Unverified",
+  linkUsed: "LinkUsed",
 } as const;
 
 const clientIp = (headers: Record<string, unknown> | undefined) => {
@@ -36,6 +38,22 @@ export const authOptions: NextAuthOptions = {
         if (!(await verifyPassword(password, user.passwordHash))) return null;
         if (!user.emailVerifiedAt) throw new Error(SIGN_IN_ERRORS.unverified);
         return { id: String(user.id), email: user.email, name: user.name };
+      },
+    }),
+    // Confirming the address from the e-mailed link (single use, 24 hours) also signs the person in: no second sign-in.
+    CredentialsProvider({
+      id: "email-link",
+      name: "E-mail confirmation link",
+      credentials: { token: { label: "Token", type: "text" } },
+      async authorize(credentials) {
+        const token = typeof credentials?.token === "string" ? credentials.token : "";
+        if (token.length < 20 || token.length > 200) throw new Error(SIGN_IN_ERRORS.linkUsed);
+        try {
+          const u = await verifyEmail(token);
+          return { id: String(u.userId), email: u.email, name: u.name };
+        } catch {
+          throw new Error(SIGN_IN_ERRORS.linkUsed);
+        }
       },
     }),
   ],

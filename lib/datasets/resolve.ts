@@ -88,7 +88,7 @@ function findRefs(model: unknown, pointer: string): Ref[] {
  * reference, or too many values), each with a JSON pointer. Other nodes are returned as they are (same
  * objects where untouched).
  */
-export async function resolveDatasets(model: unknown, organizationId: number, pointer = "/model"): Promise<unknown> {
+export async function resolveDatasets(model: unknown, organizationId: number, pointer = "/model", where = "this key's organisation"): Promise<unknown> {
   const refs = findRefs(model, pointer);
   if (refs.length === 0) return model;
   const byName = new Map<string, Promise<Record<string, unknown>>>();
@@ -97,7 +97,7 @@ export async function resolveDatasets(model: unknown, organizationId: number, po
     if (!row) {
       // Another organisation's dataset reads exactly like a missing one.
       const ds = r.version === undefined ? null : await withDbDeadline(getDatasetInOrg({ organizationId, publicId: r.id }));
-      const detail = ds ? `Dataset ${r.id} has no version ${r.version}; its latest is ${ds.dataset.latestVersion}.` : `No dataset ${r.id} in this key's organisation.`;
+      const detail = ds ? `Dataset ${r.id} has no version ${r.version}; its latest is ${ds.dataset.latestVersion}.` : `No dataset ${r.id} in ${where}.`;
       throw new ApiError("not_found", detail, { errors: [{ detail, pointer: ds ? `${r.at}/version` : `${r.at}/dataset` }] });
     }
     return { row };

@@ -61,16 +61,16 @@ export async function signUp(input: { name: string; email: string; password: str
 }
 
 /** Marks the address behind a live verification link as verified; the link is spent. */
-export async function verifyEmail(token: string): Promise<{ email: string }> {
+export async function verifyEmail(token: string): Promise<{ email: string; userId: number; name: string }> {
   const row = await getLiveEmailToken({ tokenHash: hashLinkToken(token), purpose: "verify" });
   if (!row) throw new PortalError(410, "This confirmation link is used or expired. Sign in to ask for a new one.");
   const db = getDb();
   const [res] = await db.update(emailTokens).set({ usedAt: new Date() }).where(and(eq(emailTokens.id, row.id), isNull(emailTokens.usedAt)));
   if (res.affectedRows === 0) throw new PortalError(410, "This confirmation link is used or expired.");
   await db.update(users).set({ emailVerifiedAt: new Date() }).where(and(eq(users.id, row.userId), isNull(users.emailVerifiedAt)));
-  const [u] = await db.select({ email: users.email }).from(users).where(eq(users.id, row.userId));
+  const [u] = await db.select({ email: users.email, name: users.name }).from(users).where(eq(users.id, row.userId));
   await recordAudit({ actorType: "user", actorUserId: row.userId, action: "user.email_verified", targetType: "user", targetId: String(row.userId) });
-  return { email: u.email };
+  return { email: u.email, userId: row.userId, name: u.name };
 }
 
 /** Sends a new verification link to an unverified address; silent for unknown or verified addresses. */
@@ -98,7 +98,7 @@ export async function resetPassword(token: string, password: string): Promise<{ 
   const now = new Date();
   await db.update(users).set({ passwordHash }).where(eq(users.id, row.userId));
   await db.update(users).set({ emailVerifiedAt: now }).where(and(eq(users.id, row.userId), isNull(users.emailVerifiedAt)));
-  const [u] = await db.select({ email: users.email }).from(users).where(eq(users.id, row.userId));
+  const [u] = await db.select({ email: users.email, name: users.name }).from(users).where(eq(users.id, row.userId));
   await recordAudit({ actorType: "user", actorUserId: row.userId, action: "user.password_reset", targetType: "user", targetId: String(row.userId) });
   return { email: u.email };
 }

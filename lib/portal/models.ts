@@ -13,7 +13,7 @@ import type { Caller } from "./tenancy";
  */
 export async function assertRunnable(model: unknown, organizationId: number): Promise<void> {
   try {
-    checkModel(hasDatasetRef(model) ? await resolveDatasets(model, organizationId) : model);
+    checkModel(hasDatasetRef(model) ? await resolveDatasets(model, organizationId, "/model", "this organisation") : model);
   } catch (e) {
     if (e instanceof ApiError) throw new PortalError(e.status, e.detail, Object.fromEntries((e.errors ?? []).map((x) => [x.pointer, x.detail])));
     throw e;

@@ -5,7 +5,7 @@ import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { launchBrowser } from "../support/browser";
 import { makeOrganization, makePerson, shot, signIn } from "./portal-support";
 
-const jStat = jStatDefault as unknown as { mean(x: number[]): number };
+const jStat = jStatDefault as unknown as { mean(x: number[]): number; stdev(x: number[], sample?: boolean): number };
 
 let session: Awaited<ReturnType<typeof launchBrowser>>;
 beforeAll(async () => {
@@ -82,6 +82,13 @@ describe("Datasets page", () => {
     const mean = Number(meanText.replace(/,/g, ""));
     const expected = jStat.mean(values);
     expect(Math.abs(mean - expected) / expected, `shown ${meanText}, jStat.mean ${expected}, tolerance 5e-4 relative (4-7 significant digits shown)`).toBeLessThan(5e-4);
+    // Both standard deviations, each saying its divisor: the sample's (n - 1) and the empirical law's (n), the one models use.
+    for (const [stat, sample] of [["Standard deviation", true], ["Sd of the empirical law", false]] as const) {
+      const shown = Number((await page.locator(`td[data-stat="${stat}"]`).innerText()).replace(/,/g, ""));
+      const ref = jStat.stdev(values, sample);
+      expect(Math.abs(shown - ref) / ref, `${stat}: shown ${shown}, jStat.stdev(values, ${sample}) ${ref}, tolerance 5e-4 relative`).toBeLessThan(5e-4);
+    }
+    await expect(page.getByText("divisor n: what a model built on this dataset has").count()).resolves.toBe(1);
     await expect(page.getByRole("img", { name: /Histogram of Storm claims 2025, version 1/ }).count()).resolves.toBe(1);
     await expect(page.getByText(/Header row found; values from column "amount_eur"/).count()).resolves.toBe(1);
     await shot(page, "dataset-detail");

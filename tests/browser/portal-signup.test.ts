@@ -1,9 +1,9 @@
-// A newcomer: sign up -> confirm the address from the mail -> sign in -> create a key (secret shown once) ->
-// call the API with it -> see the call in the usage table.
+// A newcomer: sign up -> confirm the address from the mail (which signs them in) -> quickstart: a key, the call,
+// its output -> create another key (secret shown once) -> call the API with it -> see the calls in the usage table.
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { launchBrowser } from "../support/browser";
 import { baseUrl } from "../support/layout";
-import { callMoments, linkIn, mailTo, shot, signIn, uniq } from "./portal-support";
+import { callMoments, linkIn, mailTo, shot, uniq } from "./portal-support";
 
 let session: Awaited<ReturnType<typeof launchBrowser>>;
 beforeAll(async () => {
@@ -48,10 +48,29 @@ describe("newcomer flow", () => {
     expect(mail.subject).toMatch(/confirm/i);
     await page.goto(linkIn(mail.text, "/verify"));
     await page.getByRole("button", { name: "Confirm my address" }).click();
-    await page.waitForURL(/\/sign-in\?notice=verified/);
-    await expect(page.getByRole("status").first().innerText()).resolves.toMatch(/confirmed/i);
+    // Confirming signs the newcomer in (no second sign-in) and opens the quickstart.
+    await page.waitForURL(/\/quickstart\?org=/);
+    await page.getByRole("heading", { level: 1, name: "Quickstart" }).waitFor();
+    await page.getByRole("button", { name: "Make my key" }).click();
+    const qsSecret = (await page.getByTestId("quickstart-secret").innerText()).replace("export SUMFOLD_KEY=", "").trim();
+    expect(qsSecret).toMatch(/^sfk_/);
+    // The snippet names this server and the key variable; the same call runs from the page and its output is shown.
+    const snippet = await page.getByTestId("snippet").innerText();
+    expect(snippet).toContain(`${baseUrl()}/api/v1/moments`);
+    expect(snippet).toContain("$SUMFOLD_KEY");
+    await page.getByRole("button", { name: "Run it here with my key" }).click();
+    // Compound mean = E[N] E[claim] = 42 * 1.8 / 0.12 = 630 (Wald's identity; common practice).
+    await expect.poll(async () => Number(await page.getByTestId("quickstart-mean").textContent().catch(() => "NaN"))).toBeCloseTo(630, 6);
+    await expect(page.getByTestId("quickstart-output").innerText()).resolves.toMatch(/"variance"/);
+    await shot(page, "quickstart-done");
+    await page.setViewportSize({ width: 390, height: 844 });
+    await expect(page.evaluate(() => document.documentElement.scrollWidth - document.documentElement.clientWidth)).resolves.toBe(0);
+    await shot(page, "quickstart-narrow");
+    await page.setViewportSize({ width: 1280, height: 860 });
+    // The same snippet works from outside the browser too.
+    expect((await callMoments(qsSecret)).status).toBe(200);
 
-    await signIn(page, email, password);
+    await page.getByRole("navigation", { name: "Portal" }).getByRole("link", { name: "Overview" }).click();
     await expect(page.getByRole("heading", { level: 1 }).innerText()).resolves.toContain("Hello, Oskar");
     await shot(page, "dashboard-admin");
 
@@ -78,7 +97,7 @@ describe("newcomer flow", () => {
 
     await page.getByRole("navigation", { name: "Portal" }).getByRole("link", { name: "Usage" }).click();
     // Metering writes in batches (about every half second): reload until the call shows.
-    const row = page.getByRole("row").filter({ hasText: "POST /api/v1/moments" });
+    const row = page.getByRole("row").filter({ hasText: "POST /api/v1/moments" }).filter({ hasText: "reserving notebook" });
     await page.getByRole("heading", { name: "Usage", exact: true }).waitFor();
     await page.waitForLoadState("networkidle");
     for (let i = 0; i < 20 && (await row.count()) === 0; i++) {
@@ -87,7 +106,7 @@ describe("newcomer flow", () => {
     }
     await shot(page, "usage-after-call");
     await expect(row.count()).resolves.toBe(1);
-    await expect(row.innerText()).resolves.toContain("reserving notebook");
+    await expect(page.getByRole("row").filter({ hasText: "quickstart" }).count()).resolves.toBe(1);
     await expect(page.getByRole("note").first().innerText()).resolves.toMatch(/computational aids/i);
     await page.locator("figure svg").first().waitFor();
     await page.close();

@@ -128,3 +128,12 @@ export const TextLink = ({ href, children }: { href: string; children: ReactNode
 export const fmtDate = (iso: string | null) =>
   iso ? new Date(iso).toLocaleString("en-GB", { dateStyle: "medium", timeStyle: "short", timeZone: "UTC" }) + " UTC" : "—";
 export const fmtDay = (iso: string) => new Date(`${iso.slice(0, 10)}T00:00:00Z`).toLocaleDateString("en-GB", { dateStyle: "medium", timeZone: "UTC" });
+
+/** Shown on narrow screens above a table that scrolls sideways (its last column, the actions, stays in view). */
+export function ScrollHint() {
+  return (
+    <p className="mt-2 text-xs text-ink-faint md:hidden" aria-hidden="true">
+      Scroll the table sideways for more columns →
+    </p>
+  );
+}

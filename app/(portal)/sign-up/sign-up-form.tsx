@@ -5,7 +5,7 @@ import { fieldErrors, signUpSchema } from "@/lib/portal/schemas";
 import { portalFetch, PortalFetchError } from "../_components/fetch";
 import { AuthCard, buttonClass, Field, FormError, Notice, TextLink } from "../_components/ui";
 
-export function SignUpForm() {
+export function SignUpForm({ mailboxUrl }: { mailboxUrl: string | null }) {
   const [v, setV] = useState({ name: "", email: "", organization: "", password: "" });
   const [errors, setErrors] = useState<Record<string, string>>({});
   const [error, setError] = useState<string | null>(null);
@@ -38,9 +38,15 @@ export function SignUpForm() {
         <Notice tone="success">
           We sent a confirmation link to <strong>{done}</strong>. Open it to finish; it works once, for 24 hours.
         </Notice>
-        <p className="text-sm text-ink-soft">
-          Running Sumfold locally? Every message lands in the local mailbox (see the README, section “Mail”).
-        </p>
+        {mailboxUrl ? (
+          <p className="text-sm text-ink-soft">
+            This copy of Sumfold runs locally, so the message waits in the{" "}
+            <a className="font-semibold text-fold-600 underline" href={mailboxUrl} target="_blank" rel="noreferrer">
+              local mailbox
+            </a>
+            .
+          </p>
+        ) : null}
       </AuthCard>
     );
   }

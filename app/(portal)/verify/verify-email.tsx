@@ -1,8 +1,8 @@
 "use client";
 
+import { signIn } from "next-auth/react";
 import { useRouter } from "next/navigation";
 import { useState } from "react";
-import { portalFetch, PortalFetchError } from "../_components/fetch";
 import { AuthCard, buttonClass, FormError, TextLink } from "../_components/ui";
 
 // Confirming takes a click (a POST), so mail scanners that prefetch links do not spend the token.
@@ -15,12 +15,18 @@ export function VerifyEmail({ token }: { token: string }) {
     setBusy(true);
     setError(null);
     try {
-      await portalFetch("/api/portal/auth/verify", { body: { token } });
-      router.push("/sign-in?notice=verified");
-    } catch (e) {
-      setError((e as PortalFetchError).problem?.error ?? "Something went wrong.");
-      setBusy(false);
+      // Confirms the address and opens the session in one step; the quickstart is the first stop.
+      const r = await signIn("email-link", { token, redirect: false });
+      if (r?.ok && !r.error) {
+        router.push("/quickstart");
+        router.refresh();
+        return;
+      }
+      setError(r?.error === "LinkUsed" ? "This confirmation link is used or expired. Sign in to ask for a new one." : "Something went wrong; try the link again.");
+    } catch {
+      setError("The server could not be reached. Check your connection and try again.");
     }
+    setBusy(false);
   }
 
   return (
@@ -28,7 +34,7 @@ export function VerifyEmail({ token }: { token: string }) {
       <FormError message={error} />
       {token ? (
         <>
-          <p className="text-ink-soft">One click and your account is ready.</p>
+          <p className="text-ink-soft">One click and your account is ready: you are signed in and taken to the quickstart.</p>
           <button type="button" className={`${buttonClass} w-full`} onClick={confirm} disabled={busy}>
             {busy ? "Confirming…" : "Confirm my address"}
           </button>

@@ -2,7 +2,7 @@ import type { ReactNode } from "react";
 
 export function Prose({ children }: { children: ReactNode }) {
   return (
-    <article className="max-w-3xl space-y-4 leading-relaxed text-ink-soft [&_code]:rounded [&_code]:bg-paper-warm [&_code]:px-1 [&_code]:font-mono [&_code]:text-[0.9em] [&_h1]:font-display [&_h1]:text-3xl [&_h1]:font-semibold [&_h1]:text-ink [&_h2]:mt-8 [&_h2]:font-display [&_h2]:text-xl [&_h2]:font-semibold [&_h2]:text-ink [&_h3]:mt-5 [&_h3]:font-semibold [&_h3]:text-ink [&_table]:w-full [&_table]:text-sm [&_td]:border-b [&_td]:border-paper-line [&_td]:py-1.5 [&_td]:pr-3 [&_td]:align-top [&_th]:border-b [&_th]:border-ink/20 [&_th]:py-1.5 [&_th]:pr-3 [&_th]:text-left [&_ul]:list-disc [&_ul]:pl-5">
+    <article className="min-w-0 max-w-3xl space-y-4 [overflow-wrap:anywhere] leading-relaxed text-ink-soft [&_code]:rounded [&_code]:bg-paper-warm [&_code]:px-1 [&_code]:font-mono [&_code]:text-[0.9em] [&_h1]:font-display [&_h1]:text-3xl [&_h1]:font-semibold [&_h1]:text-ink [&_h2]:mt-8 [&_h2]:font-display [&_h2]:text-xl [&_h2]:font-semibold [&_h2]:text-ink [&_h3]:mt-5 [&_h3]:font-semibold [&_h3]:text-ink [&_table]:w-full [&_table]:text-sm [&_td]:border-b [&_td]:border-paper-line [&_td]:py-1.5 [&_td]:pr-3 [&_td]:align-top [&_th]:border-b [&_th]:border-ink/20 [&_th]:py-1.5 [&_th]:pr-3 [&_th]:text-left [&_ul]:list-disc [&_ul]:pl-5">
       {children}
     </article>
   );

@@ -3,7 +3,8 @@ import { catalogueResponse } from "@/lib/api/catalogue";
 export function FamilyTable() {
   const { families } = catalogueResponse();
   return (
-    <table>
+    <div className="overflow-x-auto">
+    <table className="min-w-[36rem]">
       <thead>
         <tr>
           <th>family</th>
@@ -33,5 +34,6 @@ export function FamilyTable() {
         ))}
       </tbody>
     </table>
+    </div>
   );
 }

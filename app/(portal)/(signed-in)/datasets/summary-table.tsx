@@ -8,7 +8,11 @@ export function SummaryTable({ v }: { v: VersionJson }) {
   const rows: [string, string, string?][] = [
     ["n", fmtNum(s.n), s.weightKind === "counts" ? `sum of counts over ${fmtNum(s.rows)} rows` : s.weightKind === "weights" ? `sum of weights over ${fmtNum(s.rows)} rows` : undefined],
     ["Mean", fmtNum(s.mean)],
-    ["Standard deviation", fmtNum(s.sd), s.sdDivisor === "n-1" ? "divisor n − 1" : "of the weighted law"],
+    ["Standard deviation", fmtNum(s.sd), s.sdDivisor === "n-1" ? "of the sample (divisor n − 1)" : "of the weighted law (the one a model uses)"],
+    // A model { "dataset": … } is the empirical law of the values, whose variance divides by n, not n − 1.
+    ...(s.sdDivisor === "n-1" && s.sd !== null && s.n >= 2
+      ? ([["Sd of the empirical law", fmtNum(s.sd * Math.sqrt((s.n - 1) / s.n)), "divisor n: what a model built on this dataset has"]] as [string, string, string][])
+      : []),
     ["Minimum", fmtNum(s.min)],
     ["Lower quartile", fmtNum(s.q1), s.quartileRule === "type 7" ? "linear interpolation (type 7)" : "inverse of the weighted CDF"],
     ["Median", fmtNum(s.median)],

@@ -6,7 +6,7 @@ import { fieldErrors, GRACE_CHOICES, GRACE_LABELS, keyCreateSchema } from "@/lib
 import type { KeyView } from "@/lib/portal/keys";
 import { portalFetch, PortalFetchError } from "../../_components/fetch";
 import { has, useMe } from "../../_components/me";
-import { buttonClass, dangerButtonClass, Empty, Field, fmtDate, FormError, Loading, Notice, PageHeader, quietButtonClass } from "../../_components/ui";
+import { buttonClass, dangerButtonClass, Empty, Field, fmtDate, FormError, Loading, Notice, PageHeader, quietButtonClass, ScrollHint } from "../../_components/ui";
 import { SecretOnce } from "./secret-once";
 
 const STATE_STYLE: Record<KeyView["state"], string> = {
@@ -86,7 +86,9 @@ export function KeysManager() {
       {loadError ? <FormError message={loadError} /> : keys === null ? <Loading label="Loading keys…" /> : keys.length === 0 ? (
         <Empty title="No keys yet">Create a key to call the API from your code. You choose which endpoint groups it may use.</Empty>
       ) : (
-        <div className="relative overflow-x-auto rounded-xl border border-paper-line bg-white">
+        <div>
+        <ScrollHint />
+        <div className="relative mt-1 overflow-x-auto rounded-xl border border-paper-line bg-white">
           <table className="w-full min-w-[56rem] text-left text-sm">
             <caption className="sr-only">API keys</caption>
             <thead className="border-b border-paper-line bg-paper-warm text-xs uppercase tracking-wide text-ink-faint">
@@ -98,7 +100,7 @@ export function KeysManager() {
                 <th scope="col" className="px-4 py-2">Last used</th>
                 <th scope="col" className="px-4 py-2">Expires</th>
                 <th scope="col" className="px-4 py-2">State</th>
-                <th scope="col" className="px-4 py-2"><span className="sr-only">Actions</span></th>
+                <th scope="col" className="sticky right-0 bg-paper-warm px-4 py-2"><span className="sr-only">Actions</span></th>
               </tr>
             </thead>
             <tbody>
@@ -114,7 +116,7 @@ export function KeysManager() {
                   <td className="px-4 py-2">{k.lastUsedAt ? fmtDate(k.lastUsedAt) : "Never"}</td>
                   <td className="px-4 py-2">{k.expiresAt ? fmtDate(k.expiresAt) : "No expiry"}</td>
                   <td className="px-4 py-2"><StateBadge k={k} /></td>
-                  <td className="px-4 py-2 text-right whitespace-nowrap">
+                  <td className="sticky right-0 bg-white px-4 py-2 text-right whitespace-nowrap shadow-[-8px_0_8px_-8px_rgba(0,0,0,0.15)]">
                     {k.state === "active" ? (
                       <span className="inline-flex gap-2">
                         <button type="button" className={quietButtonClass} aria-label={`Rotate ${k.label} (${k.prefix})`} onClick={() => setAction({ kind: "rotate", key: k })}>
@@ -134,6 +136,7 @@ export function KeysManager() {
               ))}
             </tbody>
           </table>
+        </div>
         </div>
       )}
     </div>

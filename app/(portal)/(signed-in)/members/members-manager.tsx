@@ -5,7 +5,7 @@ import { ROLE_LABELS } from "@/lib/auth/roles";
 import { fieldErrors, inviteSchema } from "@/lib/portal/schemas";
 import { portalFetch, PortalFetchError } from "../../_components/fetch";
 import { has, useMe } from "../../_components/me";
-import { buttonClass, dangerButtonClass, Empty, Field, fmtDate, FormError, Loading, Notice, PageHeader, quietButtonClass } from "../../_components/ui";
+import { buttonClass, dangerButtonClass, Empty, Field, fmtDate, FormError, Loading, Notice, PageHeader, quietButtonClass, ScrollHint } from "../../_components/ui";
 
 type Role = keyof typeof ROLE_LABELS;
 const ROLE_LIST = Object.keys(ROLE_LABELS) as Role[];
@@ -26,6 +26,8 @@ export function MembersManager() {
   const [loadError, setLoadError] = useState<string | null>(null);
   const [flash, setFlash] = useState<string | null>(null);
   const [error, setError] = useState<string | null>(null);
+  // A role change waits for a confirmation that says what the new role may do.
+  const [pending, setPending] = useState<{ userId: number; name: string; from: Role; to: Role } | null>(null);
 
   const load = useCallback(() => {
     portalFetch<Data>("/api/portal/members")
@@ -60,6 +62,33 @@ export function MembersManager() {
         <>
           <section aria-labelledby="members-h">
             <h2 id="members-h" className="font-display text-xl font-semibold">People</h2>
+            {pending ? (
+              <div role="alertdialog" aria-labelledby="role-confirm" className="mt-3 rounded-xl border border-amber-300 bg-amber-50 p-4 text-sm">
+                <p id="role-confirm" className="font-semibold">
+                  Change {pending.name} from {ROLE_LABELS[pending.from].toLowerCase()} to {ROLE_LABELS[pending.to].toLowerCase()}?
+                </p>
+                <p className="mt-1 text-ink-soft">
+                  {ROLE_LABELS[pending.to]}s may: {ROLE_HELP[pending.to]}.{pending.to === "admin" ? " An admin can also remove you." : ""}
+                </p>
+                <div className="mt-3 flex flex-wrap gap-2">
+                  <button
+                    type="button"
+                    className={buttonClass}
+                    onClick={() => {
+                      const p = pending;
+                      setPending(null);
+                      void run(`${p.name} is now ${ROLE_LABELS[p.to].toLowerCase()}.`, portalFetch(`/api/portal/members/${p.userId}`, { method: "PATCH", body: { role: p.to } }));
+                    }}
+                  >
+                    Change role
+                  </button>
+                  <button type="button" className={quietButtonClass} onClick={() => setPending(null)}>
+                    Keep {ROLE_LABELS[pending.from].toLowerCase()}
+                  </button>
+                </div>
+              </div>
+            ) : null}
+            <ScrollHint />
             <div className="relative mt-3 overflow-x-auto rounded-xl border border-paper-line bg-white">
               <table className="w-full min-w-[40rem] text-left text-sm">
                 <thead className="border-b border-paper-line bg-paper-warm text-xs uppercase tracking-wide text-ink-faint">
@@ -68,7 +97,7 @@ export function MembersManager() {
                     <th scope="col" className="px-4 py-2">E-mail</th>
                     <th scope="col" className="px-4 py-2">Role</th>
                     <th scope="col" className="px-4 py-2">Joined</th>
-                    <th scope="col" className="px-4 py-2"><span className="sr-only">Actions</span></th>
+                    <th scope="col" className="sticky right-0 bg-paper-warm px-4 py-2"><span className="sr-only">Actions</span></th>
                   </tr>
                 </thead>
                 <tbody>
@@ -80,14 +109,14 @@ export function MembersManager() {
                         <select
                           aria-label={`Role of ${m.name}`}
                           className="rounded-md border border-paper-line bg-white px-2 py-1"
-                          value={m.role}
-                          onChange={(e) => run(`${m.name} is now ${ROLE_LABELS[e.target.value as Role].toLowerCase()}.`, portalFetch(`/api/portal/members/${m.userId}`, { method: "PATCH", body: { role: e.target.value } }))}
+                          value={pending?.userId === m.userId ? pending.to : m.role}
+                          onChange={(e) => setPending(e.target.value === m.role ? null : { userId: m.userId, name: m.name, from: m.role, to: e.target.value as Role })}
                         >
                           {ROLE_LIST.map((r) => <option key={r} value={r}>{ROLE_LABELS[r]}</option>)}
                         </select>
                       </td>
                       <td className="px-4 py-2">{fmtDate(m.joinedAt)}</td>
-                      <td className="px-4 py-2 text-right">
+                      <td className="sticky right-0 bg-white px-4 py-2 text-right">
                         <button type="button" className={dangerButtonClass} aria-label={`Remove ${m.name}`} onClick={() => run(`${m.name} was removed.`, portalFetch(`/api/portal/members/${m.userId}`, { method: "DELETE" }))}>
                           Remove
                         </button>
@@ -134,6 +163,8 @@ function InviteForm({ onInvited }: { onInvited: (email: string) => void }) {
   const [role, setRole] = useState<Role>("developer");
   const [errors, setErrors] = useState<Record<string, string>>({});
   const [error, setError] = useState<string | null>(null);
+  // A role change waits for a confirmation that says what the new role may do.
+  const [pending, setPending] = useState<{ userId: number; name: string; from: Role; to: Role } | null>(null);
   const [busy, setBusy] = useState(false);
 
   async function submit(e: FormEvent) {

@@ -48,7 +48,7 @@ export const POST = handler(async (req, params) => {
     headers = limitHeaders(decision);
     if (!decision.allowed) throw refusal(decision, "user");
     admitted = decision.source === "redis";
-    const input = hasDatasetRef(body.model) ? { ...body, model: await resolveDatasets(body.model, caller.organizationId) } : body;
+    const input = hasDatasetRef(body.model) ? { ...body, model: await resolveDatasets(body.model, caller.organizationId, "/model", "this organisation") } : body;
     const result = await computeFor(`user:${caller.userId}`, caller.plan, work, { advice: EXPLORER_ADVICE })(op, input);
     status = 200;
     units = unitsForWork(work.computeMs);
