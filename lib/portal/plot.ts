@@ -84,9 +84,11 @@ export function makeAxis(values: number[], kind: AxisKind, range: [number, numbe
     hi += pad;
   }
   const s = scaleLinear().domain([lo, hi]).range(range);
-  if (!opts.fixed) s.nice(6);
+  // about one labelled tick per 70 px, so a phone-wide plot does not crowd its labels
+  const count = Math.max(3, Math.min(8, Math.floor(Math.abs(range[1] - range[0]) / 70)));
+  if (!opts.fixed) s.nice(count);
   const [a, b] = s.domain() as [number, number];
-  return { domain: [a, b], ticks: s.ticks(6), format: s.tickFormat(6, "~g") as (v: number) => string, map: (v) => s(v), invert: (px) => s.invert(px) };
+  return { domain: [a, b], ticks: s.ticks(count), format: fmt, map: (v) => s(v), invert: (px) => s.invert(px) };
 }
 
 /** The index of the row nearest to x (rows sorted by x). */

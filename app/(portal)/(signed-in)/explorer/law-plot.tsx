@@ -143,17 +143,19 @@ export function LawPlot({ data, range, onRange, busy }: { data: LawTable; range:
         {data.atoms.length ? <span className="ml-2 text-sm font-normal text-ink-soft">· {data.atoms.length === 1 ? "1 atom" : `${data.atoms.length} atoms`} marked with their mass</span> : null}
       </figcaption>
       <div className="mt-2 flex flex-wrap gap-x-5 gap-y-2 text-sm">
-        <fieldset className="flex flex-wrap gap-3">
+        <fieldset className="flex flex-wrap items-center gap-3">
           <legend className="sr-only">View</legend>
           {VIEWS.map((v) => radio("view", v.id, view, (x) => setView(x as PlotView), v.label))}
         </fieldset>
-        <fieldset className="flex gap-3">
-          <legend className="mr-1 inline text-ink-faint">x axis</legend>
+        <fieldset className="flex items-center gap-3">
+          <legend className="sr-only">x axis</legend>
+          <span aria-hidden="true" className="text-ink-faint">x axis</span>
           {radio("x", "linear", xk, (v) => setXKind(v as AxisKind), "linear")}
           {radio("x", "log", xk, (v) => setXKind(v as AxisKind), "log", !xCanLog)}
         </fieldset>
-        <fieldset className="flex gap-3">
-          <legend className="mr-1 inline text-ink-faint">y axis</legend>
+        <fieldset className="flex items-center gap-3">
+          <legend className="sr-only">y axis</legend>
+          <span aria-hidden="true" className="text-ink-faint">y axis</span>
           {radio("y", "linear", yKind, (v) => setYKind(v as AxisKind), "linear")}
           {radio("y", "log", yKind, (v) => setYKind(v as AxisKind), "log")}
         </fieldset>
@@ -175,7 +177,7 @@ export function LawPlot({ data, range, onRange, busy }: { data: LawTable; range:
             <g key={`y${t}`}>
               <line x1={M.left} x2={width - M.right} y1={y.map(t)} y2={y.map(t)} stroke={COLORS.grid} />
               <text x={M.left - 6} y={y.map(t) + 4} textAnchor="end" fill={COLORS.faint}>
-                {yKind === "log" ? formatNumber(t) : y.format(t)}
+                {formatNumber(t)}
               </text>
             </g>
           ))}
@@ -183,7 +185,7 @@ export function LawPlot({ data, range, onRange, busy }: { data: LawTable; range:
             <g key={`x${t}`}>
               <line x1={x.map(t)} x2={x.map(t)} y1={M.top} y2={HEIGHT - M.bottom} stroke={COLORS.grid} />
               <text x={x.map(t)} y={HEIGHT - M.bottom + 16} textAnchor="middle" fill={COLORS.faint}>
-                {xk === "log" ? formatNumber(t) : x.format(t)}
+                {formatNumber(t)}
               </text>
             </g>
           ))}

@@ -77,11 +77,10 @@ export async function densityOnRange(model: unknown, range: { from: number; to: 
 }
 
 export async function runAll(model: unknown, p: number[], range: { from: number; to: number }): Promise<Results> {
-  const [density, quantiles, moments] = await Promise.all([
-    densityOnRange(model, range),
-    explore<QuantileResult>("quantiles", { model, p, expectedShortfall: true }),
-    explore<MomentResult>("moments", { model, order: 4 }),
-  ]);
+  // One after another: a plan caps the computations a person runs at once (two on Starter).
+  const quantiles = await explore<QuantileResult>("quantiles", { model, p, expectedShortfall: true });
+  const moments = await explore<MomentResult>("moments", { model, order: 4 });
+  const density = await densityOnRange(model, range);
   return { density, quantiles, moments, range };
 }
 
