@@ -34,6 +34,7 @@ describe("narrow and wide screens", () => {
     await makePerson("Tomas Lind", [{ id: org.id, role: "developer" }], "harrowgate-dev-2");
     const page = await session.browser.newPage();
     await signIn(page, admin.email, admin.password);
+    await page.waitForURL(/[?&]org=/);
     const org1 = new URL(page.url()).searchParams.get("org")!;
     // Something in each list: a key, a saved model, a dataset.
     await page.goto(`${baseUrl()}/keys?org=${org1}`);

@@ -71,7 +71,7 @@ describe("newcomer flow", () => {
     expect((await callMoments(qsSecret)).status).toBe(200);
 
     await page.getByRole("navigation", { name: "Portal" }).getByRole("link", { name: "Overview" }).click();
-    await expect(page.getByRole("heading", { level: 1 }).innerText()).resolves.toContain("Hello, Oskar");
+    await page.getByRole("heading", { level: 1, name: /Hello, Oskar/ }).waitFor();
     await shot(page, "dashboard-admin");
 
     await page.getByRole("navigation", { name: "Portal" }).getByRole("link", { name: "API keys" }).click();

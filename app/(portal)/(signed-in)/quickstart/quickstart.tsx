@@ -122,7 +122,7 @@ export function Quickstart() {
               <Caution />
             </>
           ) : (
-            <p>The response appears here: the mean, variance and cumulants, each with its error bound, and the compute units the call used.</p>
+            <p>The response appears here: the raw and central moments, the cumulants, the mean and the variance, and what the call cost.</p>
           )}
         </Step>
       </ol>
