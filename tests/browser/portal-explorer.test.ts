@@ -80,9 +80,11 @@ describe("explorer", () => {
     await shot(page, "explorer-atom");
 
     // Hover read-out of x, density, F and 1 - F.
-    const box = (await page.getByTestId("law-plot").boundingBox())!;
-    await page.mouse.move(box.x + box.width * 0.4, box.y + box.height * 0.4);
-    await expect(page.getByTestId("plot-readout").innerText()).resolves.toMatch(/x = .+ · (pdf|pmf) = .+ · F = .+ · 1 − F = /);
+    const area = page.getByTestId("plot-area");
+    const box = (await area.boundingBox())!;
+    await page.mouse.move(box.x + 5, box.y + 5);
+    await page.mouse.move(box.x + box.width * 0.4, box.y + box.height * 0.5, { steps: 5 });
+    await expect.poll(() => page.getByTestId("plot-readout").innerText()).toMatch(/x = .+ · (pdf|pmf) = .+ · F = .+ · 1 − F = /);
     // Exceedance 1 - F on a log scale.
     await page.getByRole("radio", { name: "Exceedance 1 − F" }).check();
     await expect(page.getByRole("radio", { name: "log" }).nth(1).isChecked()).resolves.toBe(true);
@@ -158,7 +160,7 @@ describe("explorer", () => {
     await page.goto(`${baseUrl()}/docs/models`);
     await page.getByRole("link", { name: "Open this example in the explorer" }).nth(1).click();
     await page.waitForURL(/\/explorer\?example=stack/);
-    await expect(page.getByLabel("Model (JSON)").inputValue()).resolves.toContain("uniform");
+    await expect.poll(() => page.getByLabel("Model (JSON)").inputValue()).toContain("uniform");
     await page.getByLabel("Name", { exact: true }).fill("Gearbox housing stack");
     await page.getByRole("button", { name: "Save model" }).click();
     await page.getByText("Saved “Gearbox housing stack” as version 1.").waitFor();

@@ -74,7 +74,7 @@ describe("narrow and wide screens", () => {
     await expect(created.innerText()).resolves.toMatch(/Ada Okafor[\s\S]*from \S+/);
     await page.getByLabel("Action").selectOption("model.saved");
     await page.waitForURL(/action=model\.saved/);
-    await expect(page.locator("[data-action]").count()).resolves.toBe(1);
+    await expect.poll(() => page.locator("[data-action]").count()).toBe(1);
     await expect(page.locator('[data-action="model.saved"]').innerText()).resolves.toMatch(/Hail book 2027/);
     const [csv] = await Promise.all([page.waitForEvent("download"), page.getByRole("link", { name: "Download CSV" }).click()]);
     const lines = readFileSync((await csv.path())!, "utf8").trim().split("\r\n");

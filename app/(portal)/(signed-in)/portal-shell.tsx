@@ -105,7 +105,7 @@ export function PortalShell({ children }: { children: ReactNode }) {
                   <span className="text-ink-faint">Organisation</span>
                   <select
                     aria-label="Active organisation"
-                    className="max-w-[14rem] rounded-md border border-paper-line bg-white px-2 py-1 font-semibold"
+                    className="max-w-[14rem] rounded-md border border-paper-line bg-white px-2 py-1 font-semibold md:max-w-[22rem]"
                     value={me.organization.slug}
                     disabled={me.memberships.length < 2}
                     onChange={(e) => switchOrg(e.target.value)}

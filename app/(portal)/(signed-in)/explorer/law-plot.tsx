@@ -5,7 +5,7 @@ import { formatNumber, LOG_FLOOR, makeAxis, nearestRow, plotCsv, plotRows, yOf, 
 import { quietButtonClass } from "../../_components/ui";
 
 const HEIGHT = 320;
-const M = { top: 14, right: 18, bottom: 58, left: 64 };
+const M = { top: 14, right: 26, bottom: 58, left: 64 };
 const COLORS = { curve: "#1b8a7a", atom: "#b7791f", grid: "#e2ddd0", ink: "#17202e", faint: "#6b7280" };
 const VIEWS: { id: PlotView; label: string }[] = [
   { id: "density", label: "Density" },
@@ -140,7 +140,7 @@ export function LawPlot({ data, range, onRange, busy }: { data: LawTable; range:
     <figure className="min-w-0 rounded-xl border border-paper-line bg-white p-4" aria-labelledby={`${id}-cap`}>
       <figcaption id={`${id}-cap`} className="font-display text-lg font-semibold">
         {view === "density" ? (data.pdf ? "Density" : "Probability mass") : view === "cdf" ? "Distribution function" : "Exceedance probability"}
-        {data.atoms.length ? <span className="ml-2 text-sm font-normal text-ink-soft">· {data.atoms.length === 1 ? "1 atom" : `${data.atoms.length} atoms`} marked with their mass</span> : null}
+        {data.atoms.length ? <span className="ml-2 text-sm font-normal text-ink-soft">· {data.atoms.length === 1 ? "1 atom, marked with its mass" : `${data.atoms.length} atoms, marked with their masses`}</span> : null}
       </figcaption>
       <div className="mt-2 flex flex-wrap gap-x-5 gap-y-2 text-sm">
         <fieldset className="flex flex-wrap items-center gap-3">
@@ -217,7 +217,7 @@ export function LawPlot({ data, range, onRange, busy }: { data: LawTable; range:
               {Number.isFinite(yOf(view, h) ?? NaN) && !(yKind === "log" && (yOf(view, h) ?? 0) <= LOG_FLOOR) ? <circle cx={x.map(h.x)} cy={y.map(yOf(view, h)!)} r={4} fill={COLORS.curve} /> : null}
             </g>
           ) : null}
-          <rect x={M.left} y={M.top} width={plotW} height={HEIGHT - M.top - M.bottom} fill="transparent" onPointerMove={onMove} onPointerLeave={() => setHover(null)} style={{ touchAction: "pan-y" }} />
+          <rect data-testid="plot-area" x={M.left} y={M.top} width={plotW} height={HEIGHT - M.top - M.bottom} fill="transparent" pointerEvents="all" onPointerMove={onMove} onPointerLeave={() => setHover(null)} style={{ touchAction: "pan-y" }} />
           <text x={width - M.right} y={HEIGHT + 12} textAnchor="end" fill={COLORS.faint} fontSize={10}>
             Sumfold · a computational aid; decisions rest with licensed practice and local regulation
           </text>
