@@ -81,9 +81,9 @@ describe("explorer", () => {
 
     // Hover read-out of x, density, F and 1 - F.
     const area = page.getByTestId("plot-area");
+    await area.scrollIntoViewIfNeeded();
     const box = (await area.boundingBox())!;
-    await page.mouse.move(box.x + 5, box.y + 5);
-    await page.mouse.move(box.x + box.width * 0.4, box.y + box.height * 0.5, { steps: 5 });
+    await area.hover({ position: { x: box.width * 0.4, y: box.height * 0.5 } });
     await expect.poll(() => page.getByTestId("plot-readout").innerText()).toMatch(/x = .+ · (pdf|pmf) = .+ · F = .+ · 1 − F = /);
     // Exceedance 1 - F on a log scale.
     await page.getByRole("radio", { name: "Exceedance 1 − F" }).check();
