@@ -3,13 +3,14 @@
 import type { ChildProcess } from "node:child_process";
 import { demoLayout, loadOrCreateSecrets } from "./lib/config";
 import { seedDemo } from "./lib/seed";
-import { buildIsStale, log, runBuild, startNext, startServices, stopChild, type Services } from "./lib/stack";
+import { buildIsStale, log, runBuild, startNext, startServices, startWorker, stopChild, type Services } from "./lib/stack";
 
 const t0 = Date.now();
 const secrets = loadOrCreateSecrets();
 const layout = demoLayout(secrets);
 let services: Services | null = null;
 let next: ChildProcess | null = null;
+let worker: ChildProcess | null = null;
 let stopping = false;
 
 async function shutdown(code: number) {
@@ -17,6 +18,7 @@ async function shutdown(code: number) {
   stopping = true;
   log("stopping...");
   await stopChild(next);
+  await stopChild(worker);
   await services?.stop();
   log("stopped");
   process.exit(code);
@@ -37,6 +39,8 @@ try {
       void shutdown(code ?? 1);
     }
   });
+  // One job worker beside the server; more can run anywhere with `npm run worker` against the same Redis and MariaDB.
+  worker = await startWorker(services.env);
   log(`ready in ${((Date.now() - t0) / 1000).toFixed(1)} s: http://127.0.0.1:${layout.appPort}  (mailbox: ${services.env.SUMFOLD_MAILBOX_URL})`);
 } catch (e) {
   console.error(`[sumfold] start failed: ${(e as Error).message}`);

@@ -7,7 +7,7 @@ import { existsSync, mkdirSync, rmSync } from "node:fs";
 import { resolve } from "node:path";
 import { ensureDebianPackages } from "./lib/apt";
 import { REPO, testLayout, type Secrets } from "./lib/config";
-import { buildIsStale, log, runBuild, startNext, startServices, stopChild, type Services } from "./lib/stack";
+import { buildIsStale, log, runBuild, startNext, startServices, startWorker, stopChild, type Services } from "./lib/stack";
 
 const args = process.argv.slice(2);
 const shm = existsSync("/dev/shm") ? "/dev/shm" : resolve(REPO, ".data");
@@ -24,6 +24,7 @@ const secrets: Secrets = {
 
 let services: Services | null = null;
 let next: ChildProcess | null = null;
+let worker: ChildProcess | null = null;
 let current: ChildProcess | null = null;
 let cleaned = false;
 
@@ -32,6 +33,7 @@ async function cleanup() {
   cleaned = true;
   await stopChild(current);
   await stopChild(next);
+  await stopChild(worker);
   await services?.stop();
   rmSync(root, { recursive: true, force: true });
 }
@@ -68,6 +70,8 @@ try {
     if (process.env.SUMFOLD_TEST_NO_SERVER !== "1") {
       if (buildIsStale()) await runBuild(services.env);
       next = await startNext(layout, services.env, "ignore");
+      // the explorer's heavy runs go to the job queue: one worker beside the server, as `npm start` runs
+      worker = await startWorker(services.env, "ignore");
     }
     const vitest = bin("vitest");
     const selected = args.length > 0 ? args : [];

@@ -38,7 +38,7 @@ export interface Meta {
 const CORS: Record<string, string> = {
   "access-control-allow-origin": "*",
   "access-control-allow-headers": "authorization, content-type",
-  "access-control-expose-headers": "ratelimit, ratelimit-policy, retry-after, sumfold-request-id, sumfold-limiter",
+  "access-control-expose-headers": "ratelimit, ratelimit-policy, retry-after, sumfold-request-id, sumfold-limiter, location",
   "access-control-max-age": "600",
 };
 
@@ -120,7 +120,8 @@ export function problemResponse(e: ApiError, requestId: string, extraHeaders: Re
 interface Options<S extends z.ZodType> {
   /** usage_events.endpoint, e.g. "POST /api/v1/density" */
   endpoint: string;
-  scope: Scope;
+  /** the scope the key needs; omitted when the handler checks it (jobs: the scope of the job's operation) */
+  scope?: Scope;
   /** the request schema; omitted for GET */
   schema?: S;
   /** fixed compute units for a call that does no engine work (catalogue); computations are charged by their work */
@@ -128,6 +129,10 @@ interface Options<S extends z.ZodType> {
   /** where the model sits in the body, to prefix the core's pointers */
   modelPointer?: string;
 }
+
+/** A handler may set its success status and extra headers under this key (JSON never sends symbol keys). */
+export const RESPONSE_INIT = Symbol("sumfold.responseInit");
+export type WithInit = { [RESPONSE_INIT]?: { status: number; headers?: Record<string, string> } };
 
 /** Runs one computation on the compute pool under the caller's deadline and concurrency cap. */
 export type Compute = (op: OperationName, body: unknown) => Promise<Record<string, unknown>>;
@@ -182,7 +187,7 @@ export function withApiKey<S extends z.ZodType>(handler: Handler<S>, opts: Optio
     const work: Work = { computeMs: 0, computed: false };
     try {
       key = await authenticate(req);
-      if (!key.scopes.includes(opts.scope)) {
+      if (opts.scope && !key.scopes.includes(opts.scope)) {
         throw new ApiError("forbidden", `This key lacks the "${opts.scope}" scope needed for ${opts.endpoint}. Use a key that has it, or give this key the scope on the portal's API keys page.`);
       }
       const raw = opts.schema ? await readJson(req) : undefined;
@@ -213,9 +218,10 @@ export function withApiKey<S extends z.ZodType>(handler: Handler<S>, opts: Optio
         elapsedMs: Math.round((performance.now() - t0) * 100) / 100,
         ...(work.computed ? { computeMs: Math.round(work.computeMs * 100) / 100 } : {}),
       };
+      const init = (result as WithInit)[RESPONSE_INIT];
       return new Response(JSON.stringify({ ...result, meta }), {
-        status,
-        headers: { "content-type": "application/json", "sumfold-request-id": requestId, ...CORS, ...headers },
+        status: init?.status ?? status,
+        headers: { "content-type": "application/json", "sumfold-request-id": requestId, ...CORS, ...headers, ...init?.headers },
       });
     } catch (e) {
       const err = toApiError(e, opts.modelPointer);

@@ -4,6 +4,7 @@ import { ConvolveRequest, ConvolveResponse } from "@/app/api/v1/convolve/schema"
 import { DensityRequest, DensityResponse } from "@/app/api/v1/density/schema";
 import { DatasetResponse, DatasetsResponse } from "@/app/api/v1/datasets/schema";
 import { FamiliesResponse } from "@/app/api/v1/families/schema";
+import { JobRequest, JobResponse } from "@/app/api/v1/jobs/schema";
 import { datasetExample } from "@/lib/datasets/example";
 import { MomentsRequest, MomentsResponse } from "@/app/api/v1/moments/schema";
 import { QuantilesRequest, QuantilesResponse } from "@/app/api/v1/quantiles/schema";
@@ -122,6 +123,38 @@ export async function buildOpenApiDocument(serverUrl = "/") {
   post("/api/v1/moments", "moments", "Moments and cumulants", "Raw and central moments and cumulants up to the order asked; null (with a note) where an order does not exist.", MomentsRequest, MomentsResponse, [...MODEL_PROBLEMS, ...COMPUTE_PROBLEMS, "limit_exceeded"]);
   post("/api/v1/convolve", "convolve", "Convolve lattice tables", "Convolution of tabulated laws on a common step, and n-fold powers, by FFT with zero padding.", ConvolveRequest, ConvolveResponse, [...COMPUTE_PROBLEMS, "limit_exceeded"]);
 
+  const jobExample = { operation: "quantiles", body: { model: { compound: { count: { family: "poisson", lambda: 42 }, each: { family: "gamma", shape: 1.8, rate: 0.12 } } }, p: [0.5, 0.9, 0.995] } };
+  registry.registerPath({
+    method: "post",
+    path: "/api/v1/jobs",
+    operationId: "submitJob",
+    summary: "Submit a computation as a job",
+    description:
+      "Queues any computation (operation cf, density, quantiles, moments or convolve, with the body its endpoint takes) for a worker. Answers 202 with the job's URL (also in Location); poll it. A job's deadline is its plan's job deadline (see Limits), longer than a request's but finite. The key needs the scope of the operation. Submitting costs 1 unit; the job is charged for its work when it finishes.",
+    tags: ["Jobs"],
+    security: [{ [bearer.name]: [] }],
+    request: { body: { required: true, content: { "application/json": { schema: JobRequest, examples: { demo: { summary: "Hail-damage aggregate claims, as a job", value: jobExample } } } } } },
+    responses: {
+      202: { description: "Queued", headers: { ...rateLimitHeaders, Location: { description: "the job's URL", schema: { type: "string" as const } } }, content: { "application/json": { schema: JobResponse } } },
+      ...problems([...KEYED_PROBLEMS, ...MODEL_PROBLEMS, "limit_exceeded"]),
+    },
+  });
+  registry.registerPath({
+    method: "get",
+    path: "/api/v1/jobs/{id}",
+    operationId: "getJob",
+    summary: "A job's status, progress and result",
+    description:
+      "status is queued, running, succeeded or failed. While running, progress reports the time used of the job's deadline. When succeeded, result is exactly the body the synchronous endpoint answers (without its meta); when failed, problem is the problem document it would answer. Results are kept 24 hours after the job finishes (expiresAt). Another organisation's job answers 404, like one that does not exist. Each poll costs 1 unit.",
+    tags: ["Jobs"],
+    security: [{ [bearer.name]: [] }],
+    request: { params: z.object({ id: z.string().openapi({ example: "job_Q2x8m1Zr0bV7c4Kp9sT3" }) }) },
+    responses: {
+      200: { description: "The job", headers: rateLimitHeaders, content: { "application/json": { schema: JobResponse } } },
+      ...problems(["unauthorized", "forbidden", "not_found", "rate_limited", "quota_exhausted", "unavailable", "internal"]),
+    },
+  });
+
   registry.registerPath({
     method: "get",
     path: "/api/v1/families",
@@ -194,6 +227,7 @@ export async function buildOpenApiDocument(serverUrl = "/") {
     servers: [{ url: serverUrl }],
     tags: [
       { name: "Computation", description: "Read-only computations on models" },
+      { name: "Jobs", description: "Long computations on the queue" },
       { name: "Catalogue", description: "What the engine knows" },
       { name: "Service", description: "Unkeyed service endpoints" },
     ],

@@ -123,5 +123,6 @@ export function appEnv(l: Layout, secrets: Secrets, dbUrl: string): Record<strin
     STRIPE_API_PORT: String(l.paymentsPort),
     STRIPE_API_PROTOCOL: "http",
     SUMFOLD_PAYMENTS_CONTROL_URL: `http://127.0.0.1:${l.paymentsPort}`,
+    SUMFOLD_REDIS_URL: `redis://127.0.0.1:${l.redis.port}`,
   };
 }

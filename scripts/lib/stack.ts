@@ -135,3 +135,28 @@ export function stopChild(child: ChildProcess | null, graceMs = 8000): Promise<v
     child.kill("SIGTERM");
   });
 }
+
+/** Starts one job worker process (`npm run worker`) beside the server; resolves once it takes jobs. */
+export function startWorker(env: Record<string, string>, stdio: "inherit" | "ignore" = "inherit"): Promise<ChildProcess> {
+  return new Promise((resolveP, reject) => {
+    const child = spawn(resolve(REPO, "node_modules/.bin/tsx"), ["--conditions=react-server", "--tsconfig", "tsconfig.json", "scripts/worker.ts"], {
+      cwd: REPO,
+      stdio: ["ignore", "pipe", stdio],
+      env: { ...process.env, ...env, NODE_ENV: "production" },
+    });
+    let out = "";
+    const t = setTimeout(() => reject(new Error("the job worker did not start within 60 s")), 60_000);
+    child.stdout!.on("data", (d) => {
+      if (stdio === "inherit") process.stdout.write(d);
+      out += String(d);
+      if (out.includes("ready")) {
+        clearTimeout(t);
+        resolveP(child);
+      }
+    });
+    child.once("exit", (code) => {
+      clearTimeout(t);
+      reject(new Error(`the job worker exited (${code})`));
+    });
+  });
+}

@@ -102,6 +102,16 @@ RateLimit: "per-key";r=49;t=1`}</Code>
         that request (usage is still recorded and billed), and the response carries <code>Sumfold-Limiter: local</code>. We keep a
         read-only computation service available rather than refuse work because of the limiter.
       </p>
+      <h2>Jobs</h2>
+      <p>
+        Work past a request&rsquo;s deadline (large grids, many levels, heavy models) goes to the job queue:{" "}
+        <code>POST /api/v1/jobs</code> with <code>{`{ "operation": "density", "body": { ... } }`}</code> answers <code>202</code>{" "}
+        with the job&rsquo;s URL; <code>GET /api/v1/jobs/&#123;id&#125;</code> reports <code>queued</code>, <code>running</code>{" "}
+        (with the time used of the job&rsquo;s deadline), then <code>succeeded</code> with exactly the result the synchronous endpoint
+        gives, or <code>failed</code> with its problem. A job&rsquo;s deadline is the last column of the plan table; results are kept
+        24 hours after the job finishes and only the submitting organisation&rsquo;s keys can read them (others get{" "}
+        <code>404</code>). Submitting and each poll cost 1 unit; the job is charged for its work like a request.
+      </p>
       <h2>Compute units</h2>
       <p>
         Units follow the work the engine actually did. Each computation is timed in its worker thread (the time the engine ran,
