@@ -7,6 +7,7 @@ import { has, useMe } from "../../_components/me";
 import { portalFetch } from "../../_components/fetch";
 import { buttonClass, FormError, inputClass, Loading, PageHeader } from "../../_components/ui";
 import { CodeSnippets } from "./code-snippets";
+import { JobRun } from "./job-run";
 import { LawPlot } from "./law-plot";
 import { ModelBuilder } from "./model-builder";
 import { ModelEditor } from "./model-editor";
@@ -33,6 +34,9 @@ export function Explorer() {
   const [results, setResults] = useState<Results | null>(null);
   const [loaded, setLoaded] = useState<{ id: number; name: string; version: number } | null>(null);
   const ranModel = useRef<unknown>(null);
+  // a model past a request's deadline is offered as a job on the queue
+  const [heavy, setHeavy] = useState<{ model: unknown; p: number[] } | null>(null);
+  const pending = useRef<{ model: unknown; p: number[] } | null>(null);
 
   function load(model: unknown, p?: string) {
     setText(pretty(model));
@@ -79,6 +83,7 @@ export function Explorer() {
     const problem = e instanceof RunError ? e.problem : {};
     setIssues(problem.errors?.length ? problem.errors.map((x) => ({ ...x, pointer: x.pointer.replace(/^\/model/, "") })) : []);
     setError((e as Error).message);
+    if ((problem as { type?: string }).type?.endsWith("#compute_budget_exceeded") && pending.current) setHeavy(pending.current);
     // never leave another model's results beside an error
     setResults(null);
   }
@@ -95,6 +100,8 @@ export function Explorer() {
     }
     setBusy(true);
     setResults(null);
+    setHeavy(null);
+    pending.current = { model, p };
     try {
       // The server validates (the same schemas as the public API, datasets resolved in this organisation).
       setResults(await runAll(model, p, results?.range ?? DEFAULT_RANGE));
@@ -169,6 +176,17 @@ export function Explorer() {
         </div>
         <div className="min-w-0 space-y-4">
           <FormError message={error} />
+          {heavy ? (
+            <JobRun
+              bodies={{ density: { model: heavy.model }, quantiles: { model: heavy.model, p: heavy.p, expectedShortfall: true }, moments: { model: heavy.model, order: 4 } }}
+              onDone={(r) => {
+                setResults({ ...(r as unknown as Omit<Results, "range">), range: DEFAULT_RANGE });
+                ranModel.current = heavy.model;
+                setHeavy(null);
+                setError(null);
+              }}
+            />
+          ) : null}
           {busy ? <Loading label="Computing…" /> : null}
           {!results && !busy && !error ? (
             <p className="rounded-xl border border-dashed border-paper-line bg-paper-warm p-6 text-sm text-ink-soft">Results appear here: the law plotted between two quantiles, a table of quantiles and expected shortfall, the moments, and the diagnostics of the inversion.</p>
