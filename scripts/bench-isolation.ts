@@ -11,7 +11,7 @@ import { buildIsStale, log, runBuild, startNext, startServices, startWorker, sto
 process.env.SUMFOLD_TEST_PORT_OFFSET = "2400";
 const root = resolve("/dev/shm", `sumfold-bench-iso-${process.pid}`);
 const layout = testLayout(root);
-const secrets: Secrets = { NEXTAUTH_SECRET: "bench", SUMFOLD_KEY_PEPPER: "bench-pepper", DB_PASSWORD: layout.db.password, UPSTASH_REDIS_REST_TOKEN: "bench-token" };
+const secrets: Secrets = { NEXTAUTH_SECRET: "bench", SUMFOLD_KEY_PEPPER: "bench-pepper", DB_PASSWORD: layout.db.password, UPSTASH_REDIS_REST_TOKEN: "bench-token", STRIPE_SECRET_KEY: "sk_test_bench", STRIPE_WEBHOOK_SECRET: "whsec_bench" };
 const services = await startServices(layout, secrets);
 const base = `http://127.0.0.1:${layout.appPort}`;
 let server: ChildProcess | null = null;
