@@ -82,9 +82,11 @@ export interface JobView {
 /** The job as its organisation sees it; null when it does not exist, has expired, or belongs to another one. */
 export async function getJobView(id: string, organizationId: number): Promise<JobView | null> {
   if (!/^job_[A-Za-z0-9_-]{16}$/.test(id)) return null;
+  // The state first, then the job: read the other way round, a job finishing in between would look completed
+  // without its result.
+  const state = await jobsQueue().getJobState(id);
   const job = (await jobsQueue().getJob(id)) as Job<JobData, JobOutcome> | undefined;
   if (!job || job.data.organizationId !== organizationId) return null;
-  const state = await job.getState();
   const outcome = job.returnvalue as JobOutcome | null;
   const done = state === "completed" || state === "failed";
   const finishedAt = job.finishedOn ? new Date(job.finishedOn).toISOString() : null;
