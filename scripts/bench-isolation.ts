@@ -76,7 +76,7 @@ try {
   const cpu = { model: { sum: [{ family: "gamma", shape: 2, rate: 1 }, { family: "lognormal", mu: 0, sigma: 0.5 }] }, grid: { from: 0, to: 15, count: 400 } };
   const through = async (threads: number) => {
     await startServer(threads);
-    const n = 40;
+    const n = 24;
     let next = 0;
     const t = performance.now();
     const statuses: number[] = [];
