@@ -87,6 +87,9 @@ export function LawPlot({ data, range, onRange, busy }: { data: LawTable; range:
   });
   const h = hover !== null && drawn[hover] ? drawn[hover] : null;
   const plotW = width - M.left - M.right;
+  // The caution printed in the figure (it travels with an exported PNG or SVG) takes two lines on a phone.
+  const narrow = width < 600;
+  const total = HEIGHT + (narrow ? 31 : 18);
   const yTitle = view === "density" ? (data.pdf ? "density f(x) of the continuous part" : "probability P(X = x)") : view === "cdf" ? "F(x) = P(X ≤ x)" : "1 − F(x) = P(X > x)";
 
   function onMove(e: React.PointerEvent<SVGRectElement>) {
@@ -117,7 +120,7 @@ export function LawPlot({ data, range, onRange, busy }: { data: LawTable; range:
     img.onload = () => {
       const c = document.createElement("canvas");
       c.width = width * 2;
-      c.height = (HEIGHT + 18) * 2;
+      c.height = total * 2;
       const g = c.getContext("2d")!;
       g.fillStyle = "#ffffff";
       g.fillRect(0, 0, c.width, c.height);
@@ -164,15 +167,15 @@ export function LawPlot({ data, range, onRange, busy }: { data: LawTable; range:
         <svg
           ref={svg}
           width={width}
-          height={HEIGHT + 18}
-          viewBox={`0 0 ${width} ${HEIGHT + 18}`}
+          height={total}
+          viewBox={`0 0 ${width} ${total}`}
           role="img"
           aria-label={`${yTitle} over x from ${formatNumber(x.domain[0])} to ${formatNumber(x.domain[1])}`}
           fontFamily="system-ui, sans-serif"
           fontSize={11}
           data-testid="law-plot"
         >
-          <rect x={0} y={0} width={width} height={HEIGHT + 18} fill="#ffffff" />
+          <rect x={0} y={0} width={width} height={total} fill="#ffffff" />
           {y.ticks.map((t) => (
             <g key={`y${t}`}>
               <line x1={M.left} x2={width - M.right} y1={y.map(t)} y2={y.map(t)} stroke={COLORS.grid} />
@@ -218,9 +221,11 @@ export function LawPlot({ data, range, onRange, busy }: { data: LawTable; range:
             </g>
           ) : null}
           <rect data-testid="plot-area" x={M.left} y={M.top} width={plotW} height={HEIGHT - M.top - M.bottom} fill="transparent" pointerEvents="all" onPointerMove={onMove} onPointerLeave={() => setHover(null)} style={{ touchAction: "pan-y" }} />
-          <text x={width - M.right} y={HEIGHT + 12} textAnchor="end" fill={COLORS.faint} fontSize={10}>
-            Sumfold · a computational aid; decisions rest with licensed practice and local regulation
-          </text>
+          {(narrow ? ["Sumfold · a computational aid;", "decisions rest with licensed practice and local regulation"] : ["Sumfold · a computational aid; decisions rest with licensed practice and local regulation"]).map((line, i) => (
+            <text key={line} x={width - M.right} y={HEIGHT + 12 + i * 13} textAnchor="end" fill={COLORS.faint} fontSize={10}>
+              {line}
+            </text>
+          ))}
         </svg>
       </div>
       <p aria-live="polite" data-testid="plot-readout" className="mt-1 min-h-5 font-mono text-xs tabular-nums text-ink-soft">
