@@ -8,7 +8,7 @@ import { resolve } from "node:path";
 import { REPO, testLayout, type Secrets } from "./lib/config";
 import { buildIsStale, log, runBuild, startNext, startServices, startWorker, stopChild } from "./lib/stack";
 
-process.env.SUMFOLD_TEST_PORT_OFFSET = "2400";
+process.env.SUMFOLD_TEST_PORT_OFFSET = "3700";
 const root = resolve("/dev/shm", `sumfold-bench-iso-${process.pid}`);
 const layout = testLayout(root);
 const secrets: Secrets = { NEXTAUTH_SECRET: "bench", SUMFOLD_KEY_PEPPER: "bench-pepper", DB_PASSWORD: layout.db.password, UPSTASH_REDIS_REST_TOKEN: "bench-token", STRIPE_SECRET_KEY: "sk_test_bench", STRIPE_WEBHOOK_SECRET: "whsec_bench" };
