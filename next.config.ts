@@ -1,4 +1,5 @@
 import type { NextConfig } from "next";
+import { API_CSP, STATIC_HEADERS } from "./lib/security-headers";
 
 const nextConfig: NextConfig = {
   reactStrictMode: true,
@@ -7,6 +8,13 @@ const nextConfig: NextConfig = {
   poweredByHeader: false,
   // mysql2 and friends stay as plain Node requires on the server.
   serverExternalPackages: ["mysql2", "ioredis", "nodemailer", "piscina", "bullmq", "stripe", "pdf-lib"],
+  // Pages get their nonce-based CSP (and HSTS) from proxy.ts; these apply to every response.
+  async headers() {
+    return [
+      { source: "/:path*", headers: STATIC_HEADERS },
+      { source: "/api/:path*", headers: [{ key: "Content-Security-Policy", value: API_CSP }] },
+    ];
+  },
 };
 
 export default nextConfig;

@@ -69,7 +69,9 @@ try {
   const [o] = await getDb().insert(organizations).values({ slug: `bench-${Date.now()}`, name: "Harrowgate Mutual (bench)", plan: "scale" });
   const [u] = await getDb().insert(users).values({ email: `bench.${Date.now()}@bench.example`, name: "Bench", passwordHash: "x", emailVerifiedAt: new Date() });
   await getDb().insert(memberships).values({ userId: u.insertId, organizationId: o.insertId, role: "developer" });
-  const cookie = `next-auth.session-token=${await encode({ token: { uid: u.insertId, email: "", name: "" }, secret: secrets.NEXTAUTH_SECRET })}`;
+  const { openSession } = await import("../lib/auth/sessions");
+  const { sid, sv } = await openSession({ userId: u.insertId, ip: "127.0.0.1", userAgent: "bench", method: "password" });
+  const cookie = `next-auth.session-token=${await encode({ token: { uid: u.insertId, email: "", name: "", sid, sv }, secret: secrets.NEXTAUTH_SECRET })}`;
 
   const target = Number(args.mib) * MiB;
   const rows = 1_000_000;

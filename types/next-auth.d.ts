@@ -8,6 +8,10 @@ declare module "next-auth" {
     id: string;
     email: string;
     name: string;
+    /** the server-side session row this sign-in opened (lib/auth/sessions.ts) */
+    sid: string;
+    /** users.session_version at sign-in */
+    sv: number;
   }
 }
 
@@ -17,5 +21,9 @@ declare module "next-auth/jwt" {
     uid: number;
     email: string;
     name: string;
+    /** the server-side session this token belongs to; refused once it is ended */
+    sid: string;
+    /** users.session_version when the session began; refused once the user's version moves on */
+    sv: number;
   }
 }

@@ -5,6 +5,7 @@ export const PROBLEMS = {
   bad_request: { status: 400, title: "The request could not be read" },
   unauthorized: { status: 401, title: "A valid API key is required" },
   forbidden: { status: 403, title: "The key may not call this endpoint" },
+  address_not_allowed: { status: 403, title: "The key may not be used from this address" },
   not_found: { status: 404, title: "Not found" },
   method_not_allowed: { status: 405, title: "Method not allowed" },
   payload_too_large: { status: 413, title: "The request body is too large" },

@@ -7,6 +7,7 @@ import { getKeyByHash } from "@/lib/db/keys";
 import type { ApiKey } from "@/lib/db/schema";
 import { ENGINE_VERSION } from "@/lib/version";
 import { readJson, validate } from "./body";
+import { addressAllowed, clientAddress } from "./cidr";
 import { ApiError, problemBody, toApiError } from "./errors";
 import { hashKey, parseKey, pepper } from "./key-format";
 import { keyState } from "./key-state";
@@ -81,6 +82,13 @@ export async function authenticate(req: Request): Promise<AuthedKey> {
     throw new ApiError("unauthorized", found ? `This API key is ${state}.` : "This API key is not known.", {
       headers: { "www-authenticate": 'Bearer realm="sumfold", error="invalid_token"' },
     });
+  }
+  const ranges = found.key.allowedCidrs;
+  if (ranges && ranges.length > 0) {
+    const ip = clientAddress(req.headers);
+    if (!addressAllowed(ip, ranges)) {
+      throw new ApiError("address_not_allowed", `This API key accepts calls only from ${ranges.join(", ")}; this call came from ${ip ?? "an unknown address"}.`);
+    }
   }
   return { id: found.key.id, organizationId: found.key.organizationId, prefix: found.key.prefix, scopes: found.key.scopes, plan: found.plan };
 }

@@ -2,6 +2,7 @@ import "server-only";
 import { decode } from "next-auth/jwt";
 import { callerFor } from "@/lib/portal/tenancy";
 import type { Permission } from "./roles";
+import { isSessionLive } from "./sessions";
 
 export const sessionCookieName = () =>
   (process.env.NEXTAUTH_URL ?? "").startsWith("https://") ? "__Secure-next-auth.session-token" : "next-auth.session-token";
@@ -17,6 +18,14 @@ export function readCookies(header: string | null): Map<string, string> {
 
 /** The signed-in user's id from the next-auth session cookie (whole or chunked), or null. */
 export async function sessionUserId(cookieHeader: string | null): Promise<number | null> {
+  return (await currentSession(cookieHeader))?.userId ?? null;
+}
+
+/**
+ * The session behind the cookie (whole or chunked): its user and session id, or null when there is no cookie,
+ * it does not decode, or its session has ended (sign-out, "sign out everywhere", password reset).
+ */
+export async function currentSession(cookieHeader: string | null): Promise<{ userId: number; sid: string } | null> {
   const cookies = readCookies(cookieHeader);
   const name = sessionCookieName();
   let token = cookies.get(name);
@@ -25,12 +34,14 @@ export async function sessionUserId(cookieHeader: string | null): Promise<number
     token = chunks.map(([, v]) => v).join("") || undefined;
   }
   if (!token) return null;
+  let jwt;
   try {
-    const jwt = await decode({ token, secret: process.env.NEXTAUTH_SECRET! });
-    return jwt && Number.isSafeInteger(jwt.uid) ? jwt.uid : null;
+    jwt = await decode({ token, secret: process.env.NEXTAUTH_SECRET! });
   } catch {
     return null;
   }
+  if (!jwt || !Number.isSafeInteger(jwt.uid) || !(await isSessionLive(jwt))) return null;
+  return { userId: jwt.uid, sid: jwt.sid };
 }
 
 export type { Caller } from "@/lib/portal/tenancy";

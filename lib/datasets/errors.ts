@@ -9,6 +9,7 @@ export type DatasetErrorCode =
   | "wrong_delimiter"
   | "field_count"
   | "unclosed_quote"
+  | "stray_quote"
   | "too_many_values"
   | "too_large"
   | "weights";

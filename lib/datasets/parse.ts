@@ -1,5 +1,5 @@
 import { once } from "node:events";
-import { parse as csvParse } from "csv-parse";
+import { CsvError, parse as csvParse } from "csv-parse";
 import { DatasetParseError, showCell } from "./errors";
 import { MAX_VALUES, SNIFF_BYTES } from "./limits";
 import { isWhole, numberHint, parseCell } from "./numbers";
@@ -267,13 +267,25 @@ export async function parseDataset(
     if (!parser.destroyed) parser.destroy();
     await feed;
     if (e instanceof DatasetParseError) throw e;
-    const err = e as Error & { code?: string; lines?: number; records?: number };
-    if (err.code === "CSV_QUOTE_NOT_CLOSED") {
+    const err = e as Error & { code?: string; lines?: number; records?: number; column?: number | string; field?: string };
+    // csv-parse names most codes CSV_*, a few without the prefix (INVALID_OPENING_QUOTE): compare without it.
+    const code = typeof err.code === "string" ? err.code.replace(/^CSV_/, "") : "";
+    if (code === "INVALID_OPENING_QUOTE" || code === "INVALID_CLOSING_QUOTE" || code === "NON_TRIMABLE_CHAR_AFTER_CLOSING_QUOTE") {
+      const at = typeof err.lines === "number" && err.lines > 0 ? err.lines : nextLine;
+      const col = typeof err.column === "number" ? err.column + 1 : undefined;
+      const where = col !== undefined && s.delimiter !== null ? `line ${at}, column ${col}` : `line ${at}`;
+      throw new DatasetParseError(
+        "stray_quote",
+        `A double quote on ${where} sits inside a value${err.field ? ` (after ${showCell(String(err.field))})` : ""}. Quote the whole value ("12.5"), double a quote meant literally (""), or remove it.`,
+        { line: at, ...(col !== undefined ? { column: col } : {}) },
+      );
+    }
+    if (code === "QUOTE_NOT_CLOSED") {
       // Records still buffered when the parser fails are dropped; its own count says how far it got.
       const at = Math.max(nextLine, (err.records ?? 0) + 1);
       throw new DatasetParseError("unclosed_quote", `A double quote opened on line ${at} is never closed, so the rest of the file reads as one value. Close or remove that quote.`, { line: at });
     }
-    if (typeof err.code === "string" && err.code.startsWith("CSV_")) {
+    if (e instanceof CsvError) {
       throw new DatasetParseError("field_count", `Line ${nextLine} cannot be read as ${s.format.toUpperCase()}: ${err.message.replace(/^[^:]*:\s*/, "")}`, { line: nextLine });
     }
     throw e;

@@ -19,6 +19,7 @@ export async function createKey(input: {
   scopes: Scope[];
   expiresAt?: Date | null;
   replacesKeyId?: number | null;
+  allowedCidrs?: string[] | null;
   actor: Actor;
 }): Promise<{ key: ApiKey; secret: string }> {
   const db = getDb();
@@ -33,6 +34,7 @@ export async function createKey(input: {
       scopes: input.scopes,
       expiresAt: input.expiresAt ?? null,
       replacesKeyId: input.replacesKeyId ?? null,
+      allowedCidrs: input.allowedCidrs?.length ? input.allowedCidrs : null,
     });
     const [key] = await tx.select().from(apiKeys).where(eq(apiKeys.id, res.insertId));
     await recordAudit(
@@ -42,7 +44,7 @@ export async function createKey(input: {
         action: input.replacesKeyId ? "key.rotated_in" : "key.created",
         targetType: "api_key",
         targetId: String(key.id),
-        detail: { label: key.label, prefix, scopes: input.scopes },
+        detail: { label: key.label, prefix, scopes: input.scopes, ...(input.allowedCidrs?.length ? { allowedCidrs: input.allowedCidrs } : {}) },
       },
       tx,
     );
@@ -106,6 +108,7 @@ export async function rotateKey(input: { organizationId: number; keyId: number; 
     label: old.label,
     scopes: old.scopes as Scope[],
     expiresAt: old.expiresAt,
+    allowedCidrs: old.allowedCidrs,
     replacesKeyId: old.id,
     actor: input.actor,
   });
@@ -119,6 +122,42 @@ export async function rotateKey(input: { organizationId: number; keyId: number; 
     detail: { graceEndsAt: end.toISOString(), replacedBy: created.key.id },
   });
   return { ...created, graceEndsAt: end };
+}
+
+/**
+ * Changes a key's label, scopes or address ranges (the secret stays). Records what changed, from what to what.
+ * Returns the updated row, or null when the key is not in the organisation.
+ */
+export async function updateKey(input: {
+  organizationId: number;
+  keyId: number;
+  changes: { label?: string; scopes?: Scope[]; allowedCidrs?: string[] };
+  actor: Actor;
+}): Promise<ApiKey | null> {
+  return getDb().transaction(async (tx) => {
+    const [old] = await tx.select().from(apiKeys).where(and(eq(apiKeys.id, input.keyId), eq(apiKeys.organizationId, input.organizationId))).for("update");
+    if (!old) return null;
+    const set: Partial<typeof apiKeys.$inferInsert> = {};
+    const from: Record<string, unknown> = {};
+    const to: Record<string, unknown> = {};
+    const c = input.changes;
+    if (c.label !== undefined && c.label !== old.label) (set.label = c.label), (from.label = old.label), (to.label = c.label);
+    if (c.scopes !== undefined && JSON.stringify([...c.scopes].sort()) !== JSON.stringify([...old.scopes].sort())) (set.scopes = c.scopes), (from.scopes = old.scopes), (to.scopes = c.scopes);
+    const oldCidrs = old.allowedCidrs ?? [];
+    if (c.allowedCidrs !== undefined && JSON.stringify(c.allowedCidrs) !== JSON.stringify(oldCidrs)) {
+      set.allowedCidrs = c.allowedCidrs.length ? c.allowedCidrs : null;
+      from.allowedCidrs = oldCidrs;
+      to.allowedCidrs = c.allowedCidrs;
+    }
+    if (Object.keys(set).length === 0) return old;
+    await tx.update(apiKeys).set(set).where(eq(apiKeys.id, old.id));
+    await recordAudit(
+      { organizationId: input.organizationId, ...actorFields(input.actor), action: "key.updated", targetType: "api_key", targetId: String(old.id), detail: { prefix: old.prefix, from, to } },
+      tx,
+    );
+    const [row] = await tx.select().from(apiKeys).where(eq(apiKeys.id, old.id));
+    return row;
+  });
 }
 
 /** Writes last-used times gathered in memory (one statement per flush, not per request). */

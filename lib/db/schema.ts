@@ -44,8 +44,50 @@ export const users = mysqlTable(
     passwordHash: varchar("password_hash", { length: 255 }).notNull(),
     emailVerifiedAt: at("email_verified_at"),
     createdAt: createdAt(),
+    /** Bumped by a password reset and "sign out everywhere": every session issued under an older value ends. */
+    sessionVersion: int("session_version", { unsigned: true }).notNull().default(0),
+    /** The TOTP secret, sealed with a key derived from NEXTAUTH_SECRET (lib/auth/seal.ts); null without two-factor. */
+    totpSecret: varchar("totp_secret", { length: 255 }),
+    /** Set once the person has confirmed a first code; sign-in then asks for a code. */
+    totpEnabledAt: at("totp_enabled_at"),
+    /** The last accepted TOTP time step: a code is accepted once. */
+    totpLastStep: bigint("totp_last_step", { mode: "number", unsigned: true }),
   },
   (t) => [uniqueIndex("users_email_uq").on(t.email)],
+);
+
+/** One row per sign-in: listed to the person, ended by sign-out, "sign out other sessions" or a version bump. */
+export const userSessions = mysqlTable(
+  "user_sessions",
+  {
+    id: id(),
+    /** Random public id carried in the session token. */
+    sid: varchar("sid", { length: 48 }).notNull(),
+    userId: ref("user_id").notNull().references(() => users.id, { onDelete: "cascade" }),
+    /** users.session_version when the session began. */
+    version: int("version", { unsigned: true }).notNull(),
+    ip: varchar("ip", { length: 64 }).notNull(),
+    userAgent: varchar("user_agent", { length: 255 }).notNull(),
+    /** "password" or "password+totp" or "password+recovery" */
+    method: varchar("method", { length: 24 }).notNull(),
+    createdAt: createdAt(),
+    lastSeenAt: at("last_seen_at").notNull(),
+    endedAt: at("ended_at"),
+  },
+  (t) => [uniqueIndex("user_sessions_sid_uq").on(t.sid), index("user_sessions_user_idx").on(t.userId, t.endedAt)],
+);
+
+/** Single-use recovery codes for two-factor sign-in; only a hash of each is kept. */
+export const recoveryCodes = mysqlTable(
+  "recovery_codes",
+  {
+    id: id(),
+    userId: ref("user_id").notNull().references(() => users.id, { onDelete: "cascade" }),
+    codeHash: varchar("code_hash", { length: 64 }).notNull(),
+    usedAt: at("used_at"),
+    createdAt: createdAt(),
+  },
+  (t) => [uniqueIndex("recovery_codes_hash_uq").on(t.userId, t.codeHash)],
 );
 
 export const memberships = mysqlTable(
@@ -81,6 +123,8 @@ export const apiKeys = mysqlTable(
     graceEndsAt: at("grace_ends_at"),
     /** When the admins were warned that this key expires soon (one warning per key). */
     expiryWarnedAt: at("expiry_warned_at"),
+    /** Client address ranges (CIDR) the key is accepted from; null or empty accepts any address. */
+    allowedCidrs: json("allowed_cidrs").$type<string[]>(),
   },
   (t) => [
     uniqueIndex("api_keys_prefix_uq").on(t.prefix),
@@ -227,3 +271,4 @@ export type NewAuditEvent = typeof auditEvents.$inferInsert;
 export type SavedModel = typeof savedModels.$inferSelect;
 export type EmailToken = typeof emailTokens.$inferSelect;
 export type Invitation = typeof invitations.$inferSelect;
+export type UserSession = typeof userSessions.$inferSelect;

@@ -3,6 +3,7 @@ import { randomBytes } from "node:crypto";
 import { and, eq, isNull } from "drizzle-orm";
 import { FREE_PLAN } from "@/lib/api/plans";
 import { hashPassword } from "@/lib/auth/passwords";
+import { endAllSessions } from "@/lib/auth/sessions";
 import { recordAudit } from "@/lib/db/audit";
 import { getDb } from "@/lib/db/client";
 import { getLiveEmailToken, getUserByEmail } from "@/lib/db/portal";
@@ -87,7 +88,7 @@ export async function requestPasswordReset(email: string): Promise<void> {
   await sendMail(user.email, resetPasswordMail({ name: user.name, url: `${baseUrl()}/reset?token=${token}` }));
 }
 
-/** Sets a new password through a live reset link (which also proves the address). */
+/** Sets a new password through a live reset link (which also proves the address) and ends every session of the person. */
 export async function resetPassword(token: string, password: string): Promise<{ email: string }> {
   const row = await getLiveEmailToken({ tokenHash: hashLinkToken(token), purpose: "reset" });
   if (!row) throw new PortalError(410, "This reset link is used or expired. Ask for a new one.");
@@ -98,6 +99,8 @@ export async function resetPassword(token: string, password: string): Promise<{ 
   const now = new Date();
   await db.update(users).set({ passwordHash }).where(eq(users.id, row.userId));
   await db.update(users).set({ emailVerifiedAt: now }).where(and(eq(users.id, row.userId), isNull(users.emailVerifiedAt)));
+  // Whoever held a session (perhaps the reason for the reset) is signed out everywhere.
+  await endAllSessions(row.userId);
   const [u] = await db.select({ email: users.email, name: users.name }).from(users).where(eq(users.id, row.userId));
   await recordAudit({ actorType: "user", actorUserId: row.userId, action: "user.password_reset", targetType: "user", targetId: String(row.userId) });
   return { email: u.email };

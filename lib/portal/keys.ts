@@ -6,13 +6,13 @@ import type { Caller } from "@/lib/auth/session";
 import { can } from "@/lib/auth/roles";
 import { recordAudit } from "@/lib/db/audit";
 import { getDb } from "@/lib/db/client";
-import { createKey, getKeyInOrg, listKeysByOrg, revokeKey, rotateKey } from "@/lib/db/keys";
+import { createKey, getKeyInOrg, listKeysByOrg, revokeKey, rotateKey, updateKey } from "@/lib/db/keys";
 import { listEmailsByRole } from "@/lib/db/portal";
 import { apiKeys, organizations, users, type ApiKey } from "@/lib/db/schema";
 import { keyNoticeMail } from "@/lib/mail/templates";
 import { sendMail } from "@/lib/mail/transport";
 import { forbidden, notFound, PortalError } from "./http";
-import type { KeyCreateInput } from "./schemas";
+import type { KeyCreateInput, KeyUpdateInput } from "./schemas";
 import { baseUrl } from "./tokens";
 
 /** How a key is shown in the portal: never its hash. */
@@ -31,7 +31,13 @@ export interface KeyView {
   retiringUntil: string | null;
   revokedAt: string | null;
   replacesKeyId: number | null;
+  /** client address ranges the key is limited to; empty for any address */
+  allowedCidrs: string[];
+  /** whole days until expiry when the key expires within the warning window (7 days), else null */
+  expiresInDays: number | null;
 }
+
+export const EXPIRY_WARNING_MS = 7 * 86_400_000;
 
 const iso = (d: Date | null) => (d ? d.toISOString() : null);
 
@@ -51,6 +57,11 @@ export function toKeyView(k: ApiKey, creator: string | null, now = new Date()): 
     retiringUntil: state === "retiring" ? iso(k.graceEndsAt) : null,
     revokedAt: state === "revoked" ? iso(k.revokedAt) : null,
     replacesKeyId: k.replacesKeyId,
+    allowedCidrs: k.allowedCidrs ?? [],
+    expiresInDays:
+      (state === "active" || state === "retiring") && k.expiresAt && k.expiresAt.getTime() - now.getTime() <= EXPIRY_WARNING_MS
+        ? Math.max(0, Math.floor((k.expiresAt.getTime() - now.getTime()) / 86_400_000))
+        : null,
   };
 }
 
@@ -89,10 +100,28 @@ export async function createPortalKey(caller: Caller, input: KeyCreateInput): Pr
     label: input.label,
     scopes: input.scopes as Scope[],
     expiresAt,
+    allowedCidrs: input.allowedCidrs,
     actor: { type: "user", userId: caller.userId },
   });
-  await notifyAdmins(caller, "created", key, `Scopes: ${key.scopes.join(", ")}. ${expiresAt ? `Expires ${expiresAt.toUTCString()}.` : "No expiry."}`);
+  const ranges = key.allowedCidrs?.length ? ` Accepted only from ${key.allowedCidrs.join(", ")}.` : "";
+  await notifyAdmins(caller, "created", key, `Scopes: ${key.scopes.join(", ")}. ${expiresAt ? `Expires ${expiresAt.toUTCString()}.` : "No expiry."}${ranges}`);
   return { key: toKeyView(key, caller.name), secret };
+}
+
+/** Edits a key's label, scopes or address ranges; the secret does not change. Developers edit their own keys. */
+export async function updatePortalKey(caller: Caller, keyId: number, input: KeyUpdateInput): Promise<KeyView> {
+  const key = await manageable(caller, keyId);
+  const now = new Date();
+  const state = keyState(key, now);
+  if (state === "revoked" || state === "expired") throw new PortalError(409, `This key is ${state}; it cannot be changed.`);
+  const row = await updateKey({
+    organizationId: caller.organizationId,
+    keyId,
+    changes: { label: input.label, scopes: input.scopes as Scope[] | undefined, allowedCidrs: input.allowedCidrs },
+    actor: { type: "user", userId: caller.userId },
+  });
+  if (!row) throw notFound("This key");
+  return toKeyView(row, null, now);
 }
 
 export async function rotatePortalKey(caller: Caller, keyId: number, grace: GracePeriod) {
@@ -115,7 +144,6 @@ export async function revokePortalKey(caller: Caller, keyId: number): Promise<vo
   await notifyAdmins(caller, "revoked", key, "Requests with this key are refused from now on.");
 }
 
-export const EXPIRY_WARNING_MS = 7 * 86_400_000;
 
 /**
  * Warns the admins (and the key's creator) once per key that it expires within 7 days. Takes an organisation

@@ -1,12 +1,14 @@
 import "server-only";
-import { and, eq, isNull, sql } from "drizzle-orm";
+import { and, eq, gt, inArray, isNull, or, sql } from "drizzle-orm";
 import type { Caller } from "@/lib/auth/session";
 import { hashPassword, verifyPassword } from "@/lib/auth/passwords";
 import { ROLE_LABELS } from "@/lib/auth/roles";
 import { recordAudit } from "@/lib/db/audit";
 import { getDb } from "@/lib/db/client";
 import { getInvitationByHash, getInvitationInOrg, getUserByEmail, listMembersOfOrg, listOpenInvitations } from "@/lib/db/portal";
-import { invitations, memberships, users, type Role } from "@/lib/db/schema";
+import { apiKeys, invitations, memberships, users, type Role } from "@/lib/db/schema";
+import { can } from "@/lib/auth/roles";
+import { toKeyView, type KeyView } from "./keys";
 import { invitationMail } from "@/lib/mail/templates";
 import { sendMail } from "@/lib/mail/transport";
 import { notFound, PortalError } from "./http";
@@ -72,12 +74,46 @@ export async function revokeInvitation(caller: Caller, invitationId: number) {
   await audit(caller, "invitation.revoked", "invitation", invitationId);
 }
 
+/** What happens to the API keys a removed member created: revoked (the default) or handed to another member. */
+export type KeyDisposition = { keys: "revoke" } | { keys: "transfer"; transferTo: number };
+
+/** Keys of the organisation created by the person that still work (active, or retiring in a grace period). */
+function liveKeysOf(db: Pick<ReturnType<typeof getDb>, "select">, organizationId: number, userId: number, now: Date) {
+  return db
+    .select()
+    .from(apiKeys)
+    .where(
+      and(
+        eq(apiKeys.organizationId, organizationId),
+        eq(apiKeys.createdBy, userId),
+        or(isNull(apiKeys.revokedAt), gt(apiKeys.revokedAt, now)),
+        or(isNull(apiKeys.expiresAt), gt(apiKeys.expiresAt, now)),
+      ),
+    );
+}
+
+/** What the removal dialog shows: the member, their working keys, and who could take the keys over. */
+export async function removalPreview(caller: Caller, userId: number): Promise<{ member: { userId: number; name: string; email: string; role: Role }; activeKeys: KeyView[]; transferTo: { userId: number; name: string; role: Role }[] }> {
+  const members = await listMembersOfOrg({ organizationId: caller.organizationId });
+  const m = members.find((x) => x.userId === userId);
+  if (!m) throw notFound("This member");
+  const now = new Date();
+  const keys = await liveKeysOf(getDb(), caller.organizationId, userId, now);
+  return {
+    member: { userId: m.userId, name: m.name, email: m.email, role: m.role },
+    activeKeys: keys.map((k) => toKeyView(k, m.name, now)),
+    transferTo: members.filter((x) => x.userId !== userId && can(x.role, "keys.own")).map((x) => ({ userId: x.userId, name: x.name, role: x.role })),
+  };
+}
+
 /**
  * Changes a member's role or removes them, inside a transaction that locks the organisation's admin rows, so
- * two admins demoting each other at once cannot leave the organisation without one.
+ * two admins demoting each other at once cannot leave the organisation without one. A removal also settles
+ * the keys the person created: revoked now, or handed to another member who may hold keys.
  */
-async function changeMembership(caller: Caller, userId: number, next: Role | null) {
+async function changeMembership(caller: Caller, userId: number, next: Role | null, disposition: KeyDisposition = { keys: "revoke" }) {
   const db = getDb();
+  let settled: { keys: "revoke" | "transfer"; keyIds: number[]; transferTo?: number } | null = null;
   await db.transaction(async (tx) => {
     const rows = await tx
       .select({ userId: memberships.userId, role: memberships.role })
@@ -91,8 +127,38 @@ async function changeMembership(caller: Caller, userId: number, next: Role | nul
       throw new PortalError(409, next ? "The last admin cannot be given another role: make someone else admin first." : "The last admin cannot be removed: make someone else admin first.");
     }
     const where = and(eq(memberships.organizationId, caller.organizationId), eq(memberships.userId, userId));
-    if (next) await tx.update(memberships).set({ role: next }).where(where);
-    else await tx.delete(memberships).where(where);
+    if (next) {
+      await tx.update(memberships).set({ role: next }).where(where);
+    } else {
+      const now = new Date();
+      const keys = await liveKeysOf(tx, caller.organizationId, userId, now);
+      const ids = keys.map((k) => k.id);
+      if (disposition.keys === "transfer") {
+        const heir = rows.find((r) => r.userId === disposition.transferTo);
+        if (!heir || heir.userId === userId) throw new PortalError(422, "Choose another member of this organisation to take the keys.", { transferTo: "Choose another member." });
+        if (!can(heir.role, "keys.own")) throw new PortalError(422, "Billing contacts cannot hold API keys: choose an admin or a developer.", { transferTo: "Choose an admin or a developer." });
+        if (ids.length) await tx.update(apiKeys).set({ createdBy: heir.userId }).where(inArray(apiKeys.id, ids));
+        settled = { keys: "transfer", keyIds: ids, transferTo: heir.userId };
+      } else {
+        if (ids.length) await tx.update(apiKeys).set({ revokedAt: now, graceEndsAt: null }).where(inArray(apiKeys.id, ids));
+        settled = { keys: "revoke", keyIds: ids };
+      }
+      for (const k of keys) {
+        await recordAudit(
+          {
+            organizationId: caller.organizationId,
+            actorType: "user",
+            actorUserId: caller.userId,
+            action: disposition.keys === "transfer" ? "key.transferred" : "key.revoked",
+            targetType: "api_key",
+            targetId: String(k.id),
+            detail: { prefix: k.prefix, label: k.label, reason: "member removed", from: userId, ...(disposition.keys === "transfer" ? { to: disposition.transferTo } : {}) },
+          },
+          tx,
+        );
+      }
+      await tx.delete(memberships).where(where);
+    }
     await recordAudit(
       {
         organizationId: caller.organizationId,
@@ -101,15 +167,16 @@ async function changeMembership(caller: Caller, userId: number, next: Role | nul
         action: next ? "member.role_changed" : "member.removed",
         targetType: "user",
         targetId: String(userId),
-        detail: next ? { from: target.role, to: next } : { role: target.role },
+        detail: next ? { from: target.role, to: next } : { role: target.role, ...settled! },
       },
       tx,
     );
   });
+  return settled as { keys: "revoke" | "transfer"; keyIds: number[]; transferTo?: number } | null;
 }
 
 export const changeRole = (caller: Caller, userId: number, role: Role) => changeMembership(caller, userId, role);
-export const removeMember = (caller: Caller, userId: number) => changeMembership(caller, userId, null);
+export const removeMember = (caller: Caller, userId: number, disposition: KeyDisposition = { keys: "revoke" }) => changeMembership(caller, userId, null, disposition);
 
 /** What the invitation page shows before the person accepts. */
 export async function describeInvitation(token: string) {

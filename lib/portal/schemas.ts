@@ -1,5 +1,6 @@
 import { z } from "zod";
 import { GRACE_PERIODS } from "@/lib/api/key-state";
+import { canonicalCidr, MAX_CIDRS } from "@/lib/api/cidr";
 import { ALL_SCOPES } from "@/lib/api/scopes";
 import type { Role } from "@/lib/db/schema";
 
@@ -33,18 +34,50 @@ export const createOrgSchema = z.object({
   name: z.string().trim().min(2, { error: "Name your organisation (2 characters or more)." }).max(160, { error: "Use at most 160 characters." }),
 });
 
+/** Client address ranges a key is limited to: CIDR or single addresses, IPv4 or IPv6; empty means any address. */
+export const cidrListSchema = z
+  .array(z.string().trim().max(64))
+  .max(MAX_CIDRS, { error: `At most ${MAX_CIDRS} ranges per key.` })
+  .transform((list, ctx) => {
+    const out: string[] = [];
+    for (const item of list.filter(Boolean)) {
+      const c = canonicalCidr(item);
+      if (!c) ctx.addIssue({ code: "custom", message: `“${item}” is not an address range: write it like 203.0.113.0/24, 2001:db8::/48 or a single address.` });
+      else if (!out.includes(c)) out.push(c);
+    }
+    return out;
+  });
+
 export const keyCreateSchema = z.object({
   label: z.string().trim().min(1, { error: "Give the key a label, e.g. “pricing batch job”." }).max(120, { error: "Use at most 120 characters." }),
-  scopes: z.array(z.enum(ALL_SCOPES as [string, ...string[]])).min(1, { error: "Pick at least one endpoint group." }),
+  /** Every scope is read-only; a key made without a choice gets them all (the docs' first call then works). */
+  scopes: z
+    .array(z.enum(ALL_SCOPES as [string, ...string[]]))
+    .min(1, { error: "Pick at least one endpoint group." })
+    .default([...ALL_SCOPES]),
   /** ISO date (YYYY-MM-DD) or empty for no expiry; must lie in the future. */
   expiresOn: z
     .string()
     .trim()
     .optional()
     .refine((s) => !s || /^\d{4}-\d{2}-\d{2}$/.test(s), { error: "Use a date like 2027-03-31." })
+    .refine((s) => !s || !/^\d{4}-\d{2}-\d{2}$/.test(s) || isCalendarDay(s), { error: "That day does not exist in the calendar: use a date like 2027-03-31." })
     .refine((s) => !s || new Date(`${s}T23:59:59.999Z`) > new Date(), { error: "Pick a date after today." }),
+  allowedCidrs: cidrListSchema.optional(),
 });
 export type KeyCreateInput = z.infer<typeof keyCreateSchema>;
+
+/** Splits what a person typed (commas, spaces or new lines between ranges) into a list. */
+export const splitCidrs = (text: string) => text.split(/[\s,;]+/).map((s) => s.trim()).filter(Boolean);
+
+export const keyUpdateSchema = z
+  .object({
+    label: keyCreateSchema.shape.label.optional(),
+    scopes: z.array(z.enum(ALL_SCOPES as [string, ...string[]])).min(1, { error: "Pick at least one endpoint group." }).optional(),
+    allowedCidrs: cidrListSchema.optional(),
+  })
+  .refine((v) => v.label !== undefined || v.scopes !== undefined || v.allowedCidrs !== undefined, { error: "Change the label, the endpoint groups or the address ranges." });
+export type KeyUpdateInput = z.infer<typeof keyUpdateSchema>;
 
 export const GRACE_CHOICES = Object.keys(GRACE_PERIODS) as (keyof typeof GRACE_PERIODS)[];
 export const GRACE_LABELS: Record<keyof typeof GRACE_PERIODS, string> = {
@@ -57,6 +90,11 @@ export const rotateSchema = z.object({ grace: z.enum(GRACE_CHOICES as [keyof typ
 
 export const inviteSchema = z.object({ email, role: z.enum(ROLES) });
 export const roleChangeSchema = z.object({ role: z.enum(ROLES) });
+/** What to do with a removed member's working keys: revoke them (the default) or hand them to another member. */
+export const removeMemberSchema = z.discriminatedUnion("keys", [
+  z.object({ keys: z.literal("revoke") }),
+  z.object({ keys: z.literal("transfer"), transferTo: z.coerce.number().int().positive({ error: "Choose the member who takes the keys." }) }),
+]);
 export const acceptInvitationSchema = z.object({
   token: z.string().min(20).max(200),
   /** needed only when the invited address has no account yet */
@@ -64,7 +102,17 @@ export const acceptInvitationSchema = z.object({
   password: z.string().min(1, { error: "Enter a password." }).max(200),
 });
 
-const isoDay = z.string().regex(/^\d{4}-\d{2}-\d{2}$/, { error: "Use a date like 2026-12-01." });
+/** A real calendar day written YYYY-MM-DD (2026-02-30 and 2026-99-99 are refused, not rolled over). */
+export const isCalendarDay = (s: string) => {
+  const m = /^(\d{4})-(\d{2})-(\d{2})$/.exec(s);
+  if (!m) return false;
+  const d = new Date(Date.UTC(Number(m[1]), Number(m[2]) - 1, Number(m[3])));
+  return d.getUTCFullYear() === Number(m[1]) && d.getUTCMonth() === Number(m[2]) - 1 && d.getUTCDate() === Number(m[3]);
+};
+const isoDay = z
+  .string()
+  .regex(/^\d{4}-\d{2}-\d{2}$/, { error: "Use a date like 2026-12-01." })
+  .refine(isCalendarDay, { error: "That day does not exist in the calendar: use a date like 2026-12-01." });
 export const USAGE_SORTS = ["day", "key", "endpoint", "requests", "units", "errors", "medianMs"] as const;
 export const usageQuerySchema = z.object({
   from: isoDay.optional(),

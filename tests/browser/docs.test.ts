@@ -43,6 +43,34 @@ describe("/docs", () => {
     await page.close();
   });
 
+  it("keeps the pasted key in memory only: nothing in storage, gone on reload, an old saved key wiped", { timeout: 60_000 }, async () => {
+    const { secret } = await orgWithKey();
+    const page = await session.browser.newPage();
+    // A key an earlier version of the page persisted (swagger-ui's persistAuthorization format).
+    await page.goto(`${baseUrl()}/docs/models`);
+    await page.evaluate((s) => localStorage.setItem("authorized", JSON.stringify({ bearerAuth: { name: "bearerAuth", schema: { type: "http", scheme: "bearer" }, value: s } })), secret);
+    await page.goto(`${baseUrl()}/docs`, { waitUntil: "networkidle" });
+    await expect(page.locator("#authorize-note").innerText()).resolves.toMatch(/stays in this tab only.*never saved in the browser/s);
+    const authorize = page.locator(".auth-wrapper button.authorize").first();
+    await authorize.waitFor();
+    expect(await page.evaluate(() => localStorage.getItem("authorized"))).toBeNull();
+    expect(await authorize.getAttribute("class")).toContain("unlocked");
+
+    await authorize.click();
+    await page.locator("#auth-bearer-value").fill(secret);
+    await page.locator(".modal-ux button.authorize").click();
+    await page.locator(".modal-ux button.btn-done").click();
+    expect(await authorize.getAttribute("class")).toMatch(/\blocked\b/);
+    const stored = await page.evaluate(() => JSON.stringify({ ...localStorage }) + JSON.stringify({ ...sessionStorage }) + document.cookie);
+    expect(stored).not.toContain(secret);
+    expect(stored).not.toContain(secret.slice(0, 16));
+
+    await page.reload({ waitUntil: "networkidle" });
+    await authorize.waitFor();
+    expect(await authorize.getAttribute("class")).toContain("unlocked");
+    await page.close();
+  });
+
   it("serves the guides with snippets for every endpoint", async () => {
     const page = await session.browser.newPage();
     await page.goto(`${baseUrl()}/docs/snippets`);

@@ -5,6 +5,7 @@ import { encode } from "next-auth/jwt";
 import { getDb } from "@/lib/db/client";
 import { apiKeys, memberships, organizations, users, type Role } from "@/lib/db/schema";
 import { createKey } from "@/lib/db/keys";
+import { openSession } from "@/lib/auth/sessions";
 import { routeServer, type RouteModule } from "../support/route-server";
 import * as me from "@/app/api/portal/me/route";
 import * as organizations_ from "@/app/api/portal/organizations/route";
@@ -61,9 +62,10 @@ export const portalServer = () =>
 
 export const uniq = () => randomBytes(4).toString("hex");
 
-/** A session cookie as next-auth would set it after sign-in (JWT encrypted with NEXTAUTH_SECRET). */
+/** A session cookie as next-auth would set it after sign-in (a session row, and its JWT encrypted with NEXTAUTH_SECRET). */
 export async function cookieFor(userId: number): Promise<string> {
-  const token = await encode({ token: { uid: userId, email: "", name: "" }, secret: process.env.NEXTAUTH_SECRET! });
+  const { sid, sv } = await openSession({ userId, ip: "127.0.0.1", userAgent: "fixture", method: "password" });
+  const token = await encode({ token: { uid: userId, email: "", name: "", sid, sv }, secret: process.env.NEXTAUTH_SECRET! });
   return `next-auth.session-token=${token}`;
 }
 

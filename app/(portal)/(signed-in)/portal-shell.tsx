@@ -117,9 +117,9 @@ export function PortalShell({ children }: { children: ReactNode }) {
                     ))}
                   </select>
                 </label>
-                <span className="hidden text-ink-soft md:inline" title={me.user.email}>
-                  {me.user.name}
-                </span>
+                <Link href={withOrg("/account", me.organization.slug)} className="text-ink-soft hover:text-fold-600 hover:underline" title={`${me.user.email}: sessions and two-step sign-in`} aria-current={path === "/account" ? "page" : undefined}>
+                  <span className="hidden md:inline">{me.user.name} · </span>Security
+                </Link>
               </>
             ) : null}
             <button type="button" className="font-semibold text-fold-600 hover:underline" onClick={() => signOut({ callbackUrl: "/sign-in" })}>

@@ -17,6 +17,8 @@ export function SignInForm({ next, notice }: { next: string; notice?: string }) 
   const router = useRouter();
   const [email, setEmail] = useState("");
   const [password, setPassword] = useState("");
+  const [code, setCode] = useState("");
+  const [needsCode, setNeedsCode] = useState(false);
   const [errors, setErrors] = useState<Record<string, string>>({});
   const [error, setError] = useState<string | null>(null);
   const [unverified, setUnverified] = useState(false);
@@ -31,11 +33,22 @@ export function SignInForm({ next, notice }: { next: string; notice?: string }) 
     if (!parsed.success) return setErrors(fieldErrors(parsed.error));
     setErrors({});
     setBusy(true);
-    const res = await signIn("credentials", { ...parsed.data, redirect: false });
+    if (needsCode && !code.trim()) return setErrors({ code: "Enter the 6-digit code from your authenticator app, or a recovery code." });
+    const res = await signIn("credentials", { ...parsed.data, ...(needsCode ? { code: code.trim() } : {}), redirect: false });
     setBusy(false);
     if (res?.ok && !res.error) {
       router.push(next);
       router.refresh();
+      return;
+    }
+    if (res?.error === "TwoFactorRequired") {
+      setNeedsCode(true);
+      setError(null);
+      return;
+    }
+    if (res?.error === "TwoFactorInvalid") {
+      setCode("");
+      setError("That code is not right, or was used already. Enter the current code from your app, or an unused recovery code.");
       return;
     }
     if (res?.error === "Unverified") {
@@ -76,6 +89,21 @@ export function SignInForm({ next, notice }: { next: string; notice?: string }) 
         ) : null}
         <Field label="E-mail" name="email" type="email" autoComplete="email" value={email} onChange={setEmail} error={errors.email} required />
         <Field label="Password" name="password" type="password" autoComplete="current-password" value={password} onChange={setPassword} error={errors.password} required />
+        {needsCode ? (
+          <>
+            <Notice>This account uses two-step sign-in. Enter the code your authenticator app shows for Sumfold.</Notice>
+            <Field
+              label="Authentication code"
+              name="code"
+              autoComplete="one-time-code"
+              value={code}
+              onChange={setCode}
+              error={errors.code}
+              hint="6 digits from the app, or one of your recovery codes (e.g. k3f9-2hq8-x7vd)."
+              required
+            />
+          </>
+        ) : null}
         <button type="submit" className={`${buttonClass} w-full`} disabled={busy}>
           {busy ? "Signing in…" : "Sign in"}
         </button>

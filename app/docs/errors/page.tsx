@@ -8,6 +8,8 @@ const explain: Record<keyof typeof PROBLEMS, string> = {
   bad_request: "The body is not valid JSON, or empty.",
   unauthorized: "No key, a malformed key (bad checksum), or a key that is unknown, revoked, retired or expired.",
   forbidden: "The key lacks the scope of this endpoint.",
+  address_not_allowed:
+    "The key is limited to client address ranges (set on the Keys page) and this request came from outside them. The detail names the address the server saw; ask an admin to add its range, or call from an allowed network.",
   not_found: "The object does not exist in the key's organisation: a dataset named in a model (the pointer shows where, e.g. /model/compound/each/dataset), or the id in GET /api/v1/datasets/{id}. Another organisation's dataset reads as missing.",
   method_not_allowed: "The path exists but not with this method; the Allow header lists the methods it serves.",
   payload_too_large: "The body exceeds 1 MiB. Upload large data as a dataset instead of inlining it.",

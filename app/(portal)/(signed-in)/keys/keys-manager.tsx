@@ -1,8 +1,8 @@
 "use client";
 
 import { useCallback, useEffect, useId, useState, type FormEvent } from "react";
-import { SCOPES, type Scope } from "@/lib/api/scopes";
-import { fieldErrors, GRACE_CHOICES, GRACE_LABELS, keyCreateSchema } from "@/lib/portal/schemas";
+import { ALL_SCOPES, SCOPES, type Scope } from "@/lib/api/scopes";
+import { fieldErrors, GRACE_CHOICES, GRACE_LABELS, keyCreateSchema, keyUpdateSchema, splitCidrs } from "@/lib/portal/schemas";
 import type { KeyView } from "@/lib/portal/keys";
 import { portalFetch, PortalFetchError } from "../../_components/fetch";
 import { has, useMe } from "../../_components/me";
@@ -21,7 +21,17 @@ function StateBadge({ k }: { k: KeyView }) {
   return <span className={`inline-block rounded-full px-2 py-0.5 text-xs font-semibold ${STATE_STYLE[k.state]}`}>{text}</span>;
 }
 
-type Action = { kind: "rotate" | "revoke"; key: KeyView } | null;
+type Action = { kind: "rotate" | "revoke" | "edit"; key: KeyView } | null;
+
+function ExpiryReminder({ k }: { k: KeyView }) {
+  if (k.expiresInDays === null) return null;
+  const when = k.expiresInDays === 0 ? "today" : k.expiresInDays === 1 ? "tomorrow" : `in ${k.expiresInDays} days`;
+  return (
+    <span className="mt-1 block text-xs font-semibold text-caution-700" role="status">
+      Expires {when}: rotate it before then
+    </span>
+  );
+}
 
 export function KeysManager() {
   const { me } = useMe();
@@ -71,9 +81,19 @@ export function KeysManager() {
           }}
         />
       ) : null}
-      {action ? (
+      {action?.kind === "edit" ? (
+        <EditKeyForm
+          k={action.key}
+          onCancel={() => setAction(null)}
+          onSaved={(label) => {
+            setAction(null);
+            setFlash(`Key “${label}” saved. Its secret did not change.`);
+            load();
+          }}
+        />
+      ) : action ? (
         <ActionPanel
-          action={action}
+          action={{ kind: action.kind, key: action.key }}
           onCancel={() => setAction(null)}
           onDone={(message, secret, note) => {
             setAction(null);
@@ -109,16 +129,23 @@ export function KeysManager() {
                   <td className="px-4 py-2 font-semibold">
                     {k.label}
                     <div className="text-xs font-normal text-ink-faint">{k.scopes.join(", ")}</div>
+                    {k.allowedCidrs.length ? <div className="text-xs font-normal text-ink-faint">Only from {k.allowedCidrs.join(", ")}</div> : null}
                   </td>
                   <td className="px-4 py-2 font-mono text-xs">{k.prefix}</td>
                   <td className="px-4 py-2">{k.createdBy ?? "—"}</td>
                   <td className="px-4 py-2">{fmtDate(k.createdAt)}</td>
                   <td className="px-4 py-2">{k.lastUsedAt ? fmtDate(k.lastUsedAt) : "Never"}</td>
-                  <td className="px-4 py-2">{k.expiresAt ? fmtDate(k.expiresAt) : "No expiry"}</td>
+                  <td className="px-4 py-2">
+                    {k.expiresAt ? fmtDate(k.expiresAt) : "No expiry"}
+                    <ExpiryReminder k={k} />
+                  </td>
                   <td className="px-4 py-2"><StateBadge k={k} /></td>
                   <td className="sticky right-0 bg-white px-4 py-2 text-right whitespace-nowrap shadow-[-8px_0_8px_-8px_rgba(0,0,0,0.15)]">
                     {k.state === "active" ? (
                       <span className="inline-flex gap-2">
+                        <button type="button" className={quietButtonClass} aria-label={`Edit ${k.label} (${k.prefix})`} onClick={() => setAction({ kind: "edit", key: k })}>
+                          Edit
+                        </button>
                         <button type="button" className={quietButtonClass} aria-label={`Rotate ${k.label} (${k.prefix})`} onClick={() => setAction({ kind: "rotate", key: k })}>
                           Rotate
                         </button>
@@ -145,17 +172,18 @@ export function KeysManager() {
 
 function CreateKeyForm({ onCancel, onCreated }: { onCancel: () => void; onCreated: (label: string, secret: string) => void }) {
   const [label, setLabel] = useState("");
-  const [scopes, setScopes] = useState<Scope[]>(["distribution", "moments"]);
+  // Every scope is read-only computation: a new key may call every endpoint unless narrowed here.
+  const [scopes, setScopes] = useState<Scope[]>([...ALL_SCOPES]);
   const [expiresOn, setExpiresOn] = useState("");
+  const [cidrs, setCidrs] = useState("");
   const [errors, setErrors] = useState<Record<string, string>>({});
   const [error, setError] = useState<string | null>(null);
   const [busy, setBusy] = useState(false);
-  const scopesId = useId();
 
   async function submit(e: FormEvent) {
     e.preventDefault();
     setError(null);
-    const parsed = keyCreateSchema.safeParse({ label, scopes, expiresOn: expiresOn || undefined });
+    const parsed = keyCreateSchema.safeParse({ label, scopes, expiresOn: expiresOn || undefined, allowedCidrs: splitCidrs(cidrs) });
     if (!parsed.success) return setErrors(fieldErrors(parsed.error));
     setErrors({});
     setBusy(true);
@@ -178,22 +206,9 @@ function CreateKeyForm({ onCancel, onCreated }: { onCancel: () => void; onCreate
       <h2 className="font-display text-lg font-semibold">New key</h2>
       <FormError message={error} />
       <Field label="Label" name="label" value={label} onChange={setLabel} error={errors.label} hint="What the key is for, e.g. “pricing batch job”." required />
-      <fieldset aria-describedby={errors.scopes ? `${scopesId}-err` : undefined}>
-        <legend className="text-sm font-semibold">Endpoint groups this key may call</legend>
-        <div className="mt-2 grid gap-2 sm:grid-cols-2">
-          {(Object.entries(SCOPES) as [Scope, string][]).map(([s, text]) => (
-            <label key={s} className="flex items-start gap-2 rounded-md border border-paper-line p-2 text-sm">
-              <input type="checkbox" name="scopes" value={s} checked={scopes.includes(s)} onChange={() => toggle(s)} className="mt-1" />
-              <span>
-                <span className="font-mono font-semibold">{s}</span>
-                <span className="block text-ink-faint">{text}</span>
-              </span>
-            </label>
-          ))}
-        </div>
-        {errors.scopes ? <p id={`${scopesId}-err`} className="mt-1 text-sm text-red-700">{errors.scopes}</p> : null}
-      </fieldset>
+      <ScopePicker scopes={scopes} onToggle={toggle} error={errors.scopes} />
       <Field label="Expires on (optional)" name="expiresOn" type="date" min={tomorrow} value={expiresOn} onChange={setExpiresOn} error={errors.expiresOn} hint="Leave empty for a key without expiry. It stops at the end of that day (UTC)." />
+      <Field label="Allowed client addresses (optional)" name="allowedCidrs" value={cidrs} onChange={setCidrs} error={errors.allowedCidrs} hint={CIDR_HINT} />
       <div className="flex gap-3">
         <button type="submit" className={buttonClass} disabled={busy}>
           {busy ? "Creating…" : "Create key"}
@@ -206,7 +221,80 @@ function CreateKeyForm({ onCancel, onCreated }: { onCancel: () => void; onCreate
   );
 }
 
-function ActionPanel({ action, onCancel, onDone }: { action: NonNullable<Action>; onCancel: () => void; onDone: (message: string, secret?: string, note?: string) => void }) {
+const CIDR_HINT = "Ranges like 203.0.113.0/24 or 2001:db8::/48, separated by commas. Calls from elsewhere are refused (403). Leave empty to accept any address.";
+
+function ScopePicker({ scopes, onToggle, error }: { scopes: Scope[]; onToggle: (s: Scope) => void; error?: string }) {
+  const id = useId();
+  return (
+    <fieldset aria-describedby={error ? `${id}-err` : undefined}>
+      <legend className="text-sm font-semibold">Endpoint groups this key may call</legend>
+      <div className="mt-2 grid gap-2 sm:grid-cols-2">
+        {(Object.entries(SCOPES) as [Scope, string][]).map(([s, text]) => (
+          <label key={s} className="flex items-start gap-2 rounded-md border border-paper-line p-2 text-sm">
+            <input type="checkbox" name="scopes" value={s} checked={scopes.includes(s)} onChange={() => onToggle(s)} className="mt-1" />
+            <span>
+              <span className="font-mono font-semibold">{s}</span>
+              <span className="block text-ink-faint">{text}</span>
+            </span>
+          </label>
+        ))}
+      </div>
+      {error ? <p id={`${id}-err`} className="mt-1 text-sm text-red-700">{error}</p> : null}
+    </fieldset>
+  );
+}
+
+/** Label, scopes and address ranges change in place; the secret stays, so nothing needs redeploying. */
+function EditKeyForm({ k, onCancel, onSaved }: { k: KeyView; onCancel: () => void; onSaved: (label: string) => void }) {
+  const [label, setLabel] = useState(k.label);
+  const [scopes, setScopes] = useState<Scope[]>(k.scopes as Scope[]);
+  const [cidrs, setCidrs] = useState(k.allowedCidrs.join(", "));
+  const [errors, setErrors] = useState<Record<string, string>>({});
+  const [error, setError] = useState<string | null>(null);
+  const [busy, setBusy] = useState(false);
+
+  async function submit(e: FormEvent) {
+    e.preventDefault();
+    setError(null);
+    const parsed = keyUpdateSchema.safeParse({ label, scopes, allowedCidrs: splitCidrs(cidrs) });
+    if (!parsed.success) return setErrors(fieldErrors(parsed.error));
+    setErrors({});
+    setBusy(true);
+    try {
+      const r = await portalFetch<{ key: KeyView }>(`/api/portal/keys/${k.id}`, { method: "PATCH", body: parsed.data });
+      onSaved(r.key.label);
+    } catch (err) {
+      const p = (err as PortalFetchError).problem;
+      setError(p?.error ?? "The key could not be saved.");
+      if (p?.fields) setErrors(p.fields);
+      setBusy(false);
+    }
+  }
+
+  const toggle = (s: Scope) => setScopes((cur) => (cur.includes(s) ? cur.filter((x) => x !== s) : [...cur, s]));
+  return (
+    <form onSubmit={submit} noValidate aria-label="Edit key" className="space-y-4 rounded-xl border border-paper-line bg-white p-5">
+      <h2 className="font-display text-lg font-semibold">
+        Edit “{k.label}” <span className="font-mono text-sm font-normal text-ink-faint">{k.prefix}</span>
+      </h2>
+      <p className="text-sm text-ink-soft">The secret does not change. Changes reach every server within a second.</p>
+      <FormError message={error} />
+      <Field label="Label" name="label" value={label} onChange={setLabel} error={errors.label} required />
+      <ScopePicker scopes={scopes} onToggle={toggle} error={errors.scopes} />
+      <Field label="Allowed client addresses" name="allowedCidrs" value={cidrs} onChange={setCidrs} error={errors.allowedCidrs} hint={CIDR_HINT} />
+      <div className="flex gap-3">
+        <button type="submit" className={buttonClass} disabled={busy}>
+          {busy ? "Saving…" : "Save changes"}
+        </button>
+        <button type="button" className={quietButtonClass} onClick={onCancel}>
+          Cancel
+        </button>
+      </div>
+    </form>
+  );
+}
+
+function ActionPanel({ action, onCancel, onDone }: { action: { kind: "rotate" | "revoke"; key: KeyView }; onCancel: () => void; onDone: (message: string, secret?: string, note?: string) => void }) {
   const [grace, setGrace] = useState<(typeof GRACE_CHOICES)[number]>("24h");
   const [error, setError] = useState<string | null>(null);
   const [busy, setBusy] = useState(false);

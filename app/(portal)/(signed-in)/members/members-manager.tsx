@@ -28,6 +28,7 @@ export function MembersManager() {
   const [error, setError] = useState<string | null>(null);
   // A role change waits for a confirmation that says what the new role may do.
   const [pending, setPending] = useState<{ userId: number; name: string; from: Role; to: Role } | null>(null);
+  const [removing, setRemoving] = useState<Data["members"][number] | null>(null);
 
   const load = useCallback(() => {
     portalFetch<Data>("/api/portal/members")
@@ -57,6 +58,19 @@ export function MembersManager() {
       <PageHeader title="Members" lead={`People of ${me?.organization.name ?? "this organisation"} and what they may do.`} />
       {flash ? <Notice tone="success">{flash}</Notice> : null}
       <FormError message={error} />
+      {removing ? (
+        <RemovePanel
+          member={removing}
+          onCancel={() => setRemoving(null)}
+          onDone={(message) => {
+            setRemoving(null);
+            setError(null);
+            setFlash(message);
+            load();
+            reloadMe();
+          }}
+        />
+      ) : null}
       <InviteForm onInvited={(email) => (setFlash(`Invitation sent to ${email}.`), load())} />
       {loadError ? <FormError message={loadError} /> : !data ? <Loading label="Loading members…" /> : (
         <>
@@ -117,7 +131,7 @@ export function MembersManager() {
                       </td>
                       <td className="px-4 py-2">{fmtDate(m.joinedAt)}</td>
                       <td className="sticky right-0 bg-white px-4 py-2 text-right">
-                        <button type="button" className={dangerButtonClass} aria-label={`Remove ${m.name}`} onClick={() => run(`${m.name} was removed.`, portalFetch(`/api/portal/members/${m.userId}`, { method: "DELETE" }))}>
+                        <button type="button" className={dangerButtonClass} aria-label={`Remove ${m.name}`} onClick={() => (setFlash(null), setRemoving(m))}>
                           Remove
                         </button>
                       </td>
@@ -155,6 +169,116 @@ export function MembersManager() {
         </>
       )}
     </div>
+  );
+}
+
+interface Preview {
+  member: { userId: number; name: string; email: string; role: Role };
+  activeKeys: { id: number; label: string; prefix: string; scopes: string[]; lastUsedAt: string | null; state: string }[];
+  transferTo: { userId: number; name: string; role: Role }[];
+}
+
+/** Removal asks first: it lists the member's working keys and revokes them (default) or hands them to someone. */
+function RemovePanel({ member, onCancel, onDone }: { member: Data["members"][number]; onCancel: () => void; onDone: (message: string) => void }) {
+  const [preview, setPreview] = useState<Preview | null>(null);
+  const [choice, setChoice] = useState<"revoke" | "transfer">("revoke");
+  const [heir, setHeir] = useState<number | "">("");
+  const [error, setError] = useState<string | null>(null);
+  const [busy, setBusy] = useState(false);
+
+  useEffect(() => {
+    portalFetch<Preview>(`/api/portal/members/${member.userId}`)
+      .then(setPreview)
+      .catch((e: PortalFetchError) => setError(e.problem?.error ?? "The member's keys could not be loaded."));
+  }, [member.userId]);
+
+  async function confirm(e: FormEvent) {
+    e.preventDefault();
+    if (choice === "transfer" && heir === "") return setError("Choose the member who takes the keys.");
+    setBusy(true);
+    setError(null);
+    try {
+      const r = await portalFetch<{ keyIds: number[] }>(`/api/portal/members/${member.userId}`, {
+        method: "DELETE",
+        body: choice === "transfer" ? { keys: "transfer", transferTo: heir } : { keys: "revoke" },
+      });
+      const n = r.keyIds.length;
+      const keysNote = n === 0 ? "" : choice === "transfer" ? ` ${n} key${n === 1 ? "" : "s"} now belong${n === 1 ? "s" : ""} to ${preview?.transferTo.find((t) => t.userId === heir)?.name}.` : ` ${n} key${n === 1 ? " was" : "s were"} revoked.`;
+      onDone(`${member.name} was removed.${keysNote}`);
+    } catch (err) {
+      setError((err as PortalFetchError).problem?.error ?? "That did not work.");
+      setBusy(false);
+    }
+  }
+
+  const keys = preview?.activeKeys ?? [];
+  return (
+    <form onSubmit={confirm} aria-label={`Remove ${member.name}`} className="space-y-4 rounded-xl border border-red-200 bg-white p-5">
+      <h2 className="font-display text-lg font-semibold">Remove {member.name} from this organisation?</h2>
+      <p className="text-sm text-ink-soft">
+        {member.email} loses access to this organisation&apos;s pages at once. Their account and other organisations are not affected.
+      </p>
+      <FormError message={error} />
+      {!preview ? (
+        <Loading label="Looking up their keys…" />
+      ) : keys.length === 0 ? (
+        <p className="text-sm">They have no working API keys here.</p>
+      ) : (
+        <>
+          <div>
+            <p className="text-sm font-semibold">Their working API keys ({keys.length})</p>
+            <ul className="mt-2 divide-y divide-paper-line rounded-md border border-paper-line text-sm" aria-label="Their working API keys">
+              {keys.map((k) => (
+                <li key={k.id} className="flex flex-wrap justify-between gap-2 px-3 py-2">
+                  <span>
+                    <strong>{k.label}</strong> <span className="font-mono text-xs text-ink-faint">{k.prefix}</span>
+                  </span>
+                  <span className="text-xs text-ink-faint">{k.lastUsedAt ? `last used ${fmtDate(k.lastUsedAt)}` : "never used"}{k.state === "retiring" ? " · retiring" : ""}</span>
+                </li>
+              ))}
+            </ul>
+          </div>
+          <fieldset className="space-y-2">
+            <legend className="text-sm font-semibold">What happens to these keys</legend>
+            <label className="flex items-start gap-2 text-sm">
+              <input type="radio" name="keys" value="revoke" checked={choice === "revoke"} onChange={() => setChoice("revoke")} className="mt-1" />
+              <span>
+                <strong>Revoke them now</strong> (recommended): calls with them are refused from now on.
+              </span>
+            </label>
+            <label className="flex items-start gap-2 text-sm">
+              <input type="radio" name="keys" value="transfer" checked={choice === "transfer"} onChange={() => setChoice("transfer")} className="mt-1" disabled={preview.transferTo.length === 0} />
+              <span>
+                <strong>Hand them to another member</strong>, who then sees and manages them; they keep working.
+                {preview.transferTo.length === 0 ? <span className="block text-ink-faint">No other admin or developer can hold keys.</span> : null}
+              </span>
+            </label>
+            {choice === "transfer" ? (
+              <label className="ml-6 block text-sm font-semibold">
+                New owner
+                <select className="mt-1 block rounded-md border border-paper-line bg-white px-3 py-2" value={heir} onChange={(e) => setHeir(e.target.value ? Number(e.target.value) : "")}>
+                  <option value="">Choose a member…</option>
+                  {preview.transferTo.map((t) => (
+                    <option key={t.userId} value={t.userId}>
+                      {t.name} ({ROLE_LABELS[t.role].toLowerCase()})
+                    </option>
+                  ))}
+                </select>
+              </label>
+            ) : null}
+          </fieldset>
+        </>
+      )}
+      <div className="flex flex-wrap gap-3">
+        <button type="submit" className={`${dangerButtonClass} !bg-red-700 !text-white`} disabled={busy || !preview}>
+          {busy ? "Removing…" : `Remove ${member.name}`}
+        </button>
+        <button type="button" className={quietButtonClass} onClick={onCancel}>
+          Cancel
+        </button>
+      </div>
+      <p className="text-xs text-ink-faint">The audit log records the removal and what happened to each key.</p>
+    </form>
   );
 }
 
