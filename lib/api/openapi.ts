@@ -54,7 +54,7 @@ function problems(codes: (keyof typeof PROBLEMS)[]) {
 }
 
 /** What every keyed endpoint can answer before its own work: the gate, the body reader, limits and quota. */
-const KEYED_PROBLEMS = ["bad_request", "unauthorized", "forbidden", "method_not_allowed", "payload_too_large", "unsupported_media_type", "validation", "rate_limited", "quota_exhausted", "unavailable", "internal"] as const;
+const KEYED_PROBLEMS = ["bad_request", "unauthorized", "forbidden", "address_not_allowed", "method_not_allowed", "payload_too_large", "unsupported_media_type", "validation", "rate_limited", "quota_exhausted", "unavailable", "internal"] as const;
 /** A model may name a dataset: one that does not exist in the key's organisation answers 404. */
 const MODEL_PROBLEMS = ["not_found"] as const;
 /** What a computation can answer from the compute pool: its deadline, the per-key cap, an accuracy it could not reach. */

@@ -8,7 +8,8 @@ import { recoveryCodes, users } from "@/lib/db/schema";
 /**
  * Two-factor sign-in with time-based one-time codes (RFC 6238, 30 s steps, 6 digits; otplib) and single-use
  * recovery codes. The secret is stored sealed (AES-256-GCM, key derived from NEXTAUTH_SECRET, so rotating that
- * secret also turns two-factor off for everyone); recovery codes are stored as HMACs. A code is accepted once:
+ * secret leaves enrolled people unable to pass the second step until an operator resets it: see DEVELOPERS.md);
+ * recovery codes are stored as HMACs. A code is accepted once:
  * the last accepted time step is kept and older or equal steps are refused.
  */
 export const ISSUER = "Sumfold";

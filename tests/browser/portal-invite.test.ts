@@ -31,7 +31,9 @@ describe("inviting a billing contact", () => {
     await shot(adminPage, "members-invited");
 
     // Last-admin protection shows as a message, and nothing changes.
+    // Removal asks for confirmation first (and lists the person's keys).
     await adminPage.getByRole("button", { name: `Remove ${admin.name}` }).click();
+    await adminPage.getByRole("form", { name: `Remove ${admin.name}` }).getByRole("button", { name: `Remove ${admin.name}` }).click();
     await adminPage.getByRole("alert").filter({ hasText: /last admin cannot be removed/i }).waitFor();
     await expect(adminPage.getByRole("combobox", { name: `Role of ${admin.name}` }).inputValue()).resolves.toBe("admin");
     await adminPage.close();

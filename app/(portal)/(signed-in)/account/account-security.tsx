@@ -87,7 +87,7 @@ function Sessions() {
               <div className="min-w-0">
                 <p className="font-semibold">
                   {r.client}
-                  {r.current ? <span className="ml-2 rounded-full bg-fold-100 px-2 py-0.5 text-xs font-semibold text-fold-900">This browser</span> : null}
+                  {r.current ? <span className="ml-2 inline-block whitespace-nowrap rounded-full bg-fold-100 px-2 py-0.5 text-xs font-semibold text-fold-900">This browser</span> : null}
                 </p>
                 <p className="text-ink-faint">
                   From {r.ip} · signed in {fmtDate(r.createdAt)} with {METHOD_TEXT[r.method] ?? r.method} · last active {fmtDate(r.lastSeenAt)}
@@ -237,7 +237,7 @@ function TwoFactor() {
         </form>
       ) : step === "scan" && enrol ? (
         <form onSubmit={confirm} className="space-y-4 rounded-xl border border-paper-line bg-white p-5" aria-label="Confirm two-step sign-in">
-          <div className="flex flex-wrap items-start gap-5">
+          <div className="flex flex-col items-start gap-5 sm:flex-row">
             {/* eslint-disable-next-line @next/next/no-img-element */}
             <img src={`data:image/svg+xml;utf8,${encodeURIComponent(enrol.qrSvg)}`} alt="QR code to scan with an authenticator app" width={176} height={176} className="rounded-md border border-paper-line" />
             <div className="min-w-0 flex-1 space-y-2 text-sm">
