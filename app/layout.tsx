@@ -1,5 +1,4 @@
 import type { Metadata } from "next";
-import { connection } from "next/server";
 import type { ReactNode } from "react";
 import { bodyFont, displayFont, monoFont } from "./fonts";
 import { SiteFooter, SiteHeader } from "./_components/site-chrome";
@@ -12,9 +11,10 @@ export const metadata: Metadata = {
   icons: { icon: "/sumfold-mark.svg" },
 };
 
-export default async function RootLayout({ children }: { children: ReactNode }) {
-  // Every page renders per request, so Next.js can put this response's CSP nonce on its scripts (proxy.ts).
-  await connection();
+// Every page renders per request, so Next.js can put this response's CSP nonce on its scripts (proxy.ts).
+export const dynamic = "force-dynamic";
+
+export default function RootLayout({ children }: { children: ReactNode }) {
   return (
     <html lang="en" className={`${bodyFont.variable} ${displayFont.variable} ${monoFont.variable}`}>
       <body className="flex min-h-screen flex-col">

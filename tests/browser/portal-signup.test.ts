@@ -99,24 +99,10 @@ describe("newcomer flow", () => {
     // Metering writes in batches (about every half second): reload until the call shows.
     const row = page.getByRole("row").filter({ hasText: "POST /api/v1/moments" }).filter({ hasText: "reserving notebook" });
     await page.getByRole("heading", { name: "Usage", exact: true }).waitFor();
-    const pending = new Map<object, string>();
-    page.on("request", (r) => pending.set(r, `${r.method()} ${r.url()} ${r.resourceType()}`));
-    page.on("requestfinished", (r) => pending.delete(r));
-    page.on("requestfailed", (r) => pending.delete(r));
-    try {
-      await page.waitForLoadState("networkidle");
-    } catch (e) {
-      console.log("PENDING", [...pending.values()]);
-      throw e;
-    }
+    await page.waitForLoadState("networkidle");
     for (let i = 0; i < 20 && (await row.count()) === 0; i++) {
       await page.waitForTimeout(500);
-      try {
-        await page.reload({ waitUntil: "networkidle" });
-      } catch (e) {
-        console.log("PENDING after reload", [...pending.values()]);
-        throw e;
-      }
+      await page.reload({ waitUntil: "networkidle" });
     }
     await shot(page, "usage-after-call");
     await expect(row.count()).resolves.toBe(1);
