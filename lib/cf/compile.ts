@@ -14,9 +14,9 @@ import { compoundNode, latticeNode, mixNode, repeatNode, sampleNode, scaleNode, 
 /** Options of compile(). */
 export interface CompileOptions {
   /**
-   * Opt-in: lognormal, pareto and weibull severities inside compounds are discretised onto a lattice
-   * (mean-preserving) when this is given; the object sets the target cdf error or the span. By default (absent or
-   * false) compounds keep the severity's CF and stay continuous with their atom at 0.
+   * Lognormal, pareto and weibull severities inside compounds are discretised onto a lattice (mean-preserving) when
+   * this object is given; it sets the target cdf error or the span. false: never. Absent: lognormal compounds stay
+   * continuous (atom at 0, damped inversion); pareto and weibull severities are discretised and labelled so.
    */
   discretise?: DiscretiseOptions | false;
 }
@@ -75,7 +75,7 @@ export function buildNode(m: Model, opts: CompileOptions = {}): Node {
   if ("shift" in m) return shiftNode(m.shift, buildNode_(m.of));
   if ("repeat" in m) return repeatNode(m.repeat, buildNode_(m.of));
   if ("mix" in m) return mixNode(m.mix.map((c) => c.weight), m.mix.map((c) => buildNode_(c.of)));
-  if ("compound" in m) return compoundNode(buildNode_(m.compound.count), buildNode_(m.compound.each), opts.discretise ? opts.discretise : null);
+  if ("compound" in m) return compoundNode(buildNode_(m.compound.count), buildNode_(m.compound.each), opts.discretise === false ? null : (opts.discretise ?? { auto: true }));
   if ("lattice" in m) return latticeNode(m.lattice.origin, m.lattice.step, m.lattice.p);
   if ("sample" in m) return sampleNode(m.sample, MAX_LATTICE, m.weights);
   throw new Error("unreachable: validated model without a known node");
@@ -139,11 +139,20 @@ export function toCompiled(node: Node): CompiledModel {
     support: node.support,
     tails: node.tails,
     nodes: node.nodes,
+    cfAbsError: node.cfAbsError ?? 0,
+    cfRelError: node.cfRelError ?? 0,
     // read on access: a discretised compound adds its error bound to its notes when its table is built
     get notes() {
       return node.kind.type === "mixed" && !node.kind.atomsComplete ? [...node.notes, "not every atom of this mixed law is listed"] : node.notes;
     },
   };
+  const damped = node.dampedLogCf;
+  if (damped && node.hasCompound && Number.isFinite(node.support[0]) && (node.kind.type === "continuous" || node.kind.type === "mixed")) {
+    compiled.dampedLogCf = (beta, t, re, im) => {
+      checkBuffers(t, re, im);
+      damped(beta, t, re, im);
+    };
+  }
   if (node.kind.type === "lattice" && node.table) {
     const table = node.table;
     // a table that drops more than USEFUL_TAIL of the mass is not returned: the CF route does better there

@@ -1,6 +1,7 @@
 import type { Node, NodeKind } from "./node";
 import { commonStep, onLattice, panjer, powerTable, restep, convolveTables } from "./lattice";
 import type { LatticeTable } from "./types";
+import { compoundDamped } from "./damped-cf";
 import { chooseSpan, discretisedCompound, type DiscretiseOptions, type DiscretisedCompound } from "./discretise";
 
 const collectNotes = (cs: Node[]) => [...new Set(cs.flatMap((c) => c.notes))];
@@ -11,7 +12,7 @@ const collectNotes = (cs: Node[]) => [...new Set(cs.flatMap((c) => c.notes))];
  * series, K_S(u) = K_N(K_X(u)).
  */
 export function compoundNode(N: Node, X: Node, discretise: DiscretiseOptions | null = {}): Node {
-  if (X.severity && X.kind.type === "continuous" && N.countCgf && discretise)
+  if (X.severity && X.kind.type === "continuous" && N.countCgf && discretise && !(discretise.auto && X.severity.name === "lognormal"))
     return discretisedNode(N, X, discretise);
   const P0 = N.p0 ?? 0;
   let kind: NodeKind;
@@ -48,6 +49,11 @@ export function compoundNode(N: Node, X: Node, discretise: DiscretiseOptions | n
       X.logCf(t, a, b);
       N.countCgf!(a, b, re, im);
     },
+    dampedLogCf: X.kind.type === "continuous" || X.kind.type === "mixed" ? compoundDamped(N, X) : undefined,
+    hasCompound: true,
+    // |P_N(z + d) - P_N(z)| <= E[N] |d| for |z| <= 1 (|P_N'| <= E N on the unit disc); relative |dP / P| <= slope |d|
+    // when the count's log-derivative is bounded (Poisson, negative binomial)
+    ...compoundErrors(N, X),
     cumulants(n) {
       const kx = X.cumulants(n);
       const kn = N.cumulants(n);
@@ -146,7 +152,15 @@ function discretisedNode(N: Node, X: Node, o: DiscretiseOptions): Node {
   };
   delete node.countCgf;
   delete node.p0;
+  delete node.dampedLogCf;
   return node;
+}
+
+function compoundErrors(N: Node, X: Node): { cfAbsError: number; cfRelError: number } {
+  const eX = (X.cfAbsError ?? 0) + (X.cfRelError ?? 0);
+  if (eX === 0) return { cfAbsError: N.cfAbsError ?? 0, cfRelError: N.cfRelError ?? 0 };
+  if (N.cgfSlope !== undefined && Number.isFinite(N.cgfSlope)) return { cfAbsError: N.cfAbsError ?? 0, cfRelError: N.cgfSlope * eX + (N.cfRelError ?? 0) };
+  return { cfAbsError: (N.cumulants(1)[0] ?? Infinity) * eX + (N.cfAbsError ?? 0), cfRelError: N.cfRelError ?? 0 };
 }
 
 function compoundSupport(n: readonly [number, number], x: readonly [number, number]): [number, number] {

@@ -1,5 +1,6 @@
 import type { Atom, LatticeTable } from "./types";
 import type { SeverityLaw } from "./discretise";
+import type { DampedLogCf } from "./damped-cf";
 
 /**
  * Internal kind, richer than the public LawKind: a lattice with step 0 is a single point, and lattice/discrete
@@ -39,6 +40,16 @@ export interface Node {
   severity?: SeverityLaw;
   /** the table is an approximation of the law (discretised severity): kept even when it drops more than USEFUL_TAIL */
   approximate?: boolean;
+  /** log E[exp((i t - beta) X)] for laws bounded below (damped inversion), where available */
+  dampedLogCf?: DampedLogCf;
+  /** the tree holds a compound (the damped inversion is used for such laws) */
+  hasCompound?: boolean;
+  /** bound on the absolute error of the CF values phi(t) (0 for closed forms) */
+  cfAbsError?: number;
+  /** bound on the relative error of the CF values (compounds of numerical CFs: |dP/P| <= slope |d phi_X|) */
+  cfRelError?: number;
+  /** counts: sup |P'(z) / P(z)| over the unit disc (finite for Poisson and negative binomial) */
+  cgfSlope?: number;
 }
 
 export const NONE_MOMENT = (n: number): (number | null)[] => new Array<number | null>(n).fill(null);

@@ -1,3 +1,4 @@
+import { mixDamped, scaleDamped, shiftDamped, sumDamped } from "./damped-cf";
 import type { Node, NodeKind } from "./node";
 import { cumulantsToRaw, rawToCumulants } from "./node";
 import { nearestZero, sortedAnchor, unwrapFrom } from "./complex";
@@ -113,6 +114,10 @@ export function sumNode(cs: Node[]): Node {
       }
     },
     cumulants: (n) => addCumulants(cs.map((c) => c.cumulants(n)), n),
+    dampedLogCf: sumDamped(cs),
+    hasCompound: cs.some((c) => c.hasCompound),
+    cfAbsError: cs.reduce((e, c) => e + (c.cfAbsError ?? 0), 0),
+    cfRelError: cs.reduce((e, c) => e + (c.cfRelError ?? 0), 0),
   };
   if (kind.type === "lattice" && cs.every((c) => c.table)) {
     node.table = (maxLength) => {
@@ -163,6 +168,10 @@ export function scaleNode(a: number, c: Node): Node {
       if (a < 0) for (let k = 0; k < t.length; k++) im[k] = -im[k];
     },
     cumulants: (n) => c.cumulants(n).map((v, k) => (v === null ? null : v * a ** (k + 1))),
+    dampedLogCf: scaleDamped(a, c),
+    hasCompound: c.hasCompound,
+    cfAbsError: c.cfAbsError,
+    cfRelError: c.cfRelError,
   };
   if (c.table && c.kind.type === "lattice") {
     node.table = (maxLength) => {
@@ -204,6 +213,10 @@ export function shiftNode(b: number, c: Node): Node {
       for (let k = 0; k < t.length; k++) im[k] += b * t[k];
     },
     cumulants: (n) => c.cumulants(n).map((v, k) => (k === 0 && v !== null ? v + b : v)),
+    dampedLogCf: shiftDamped(b, c),
+    hasCompound: c.hasCompound,
+    cfAbsError: c.cfAbsError,
+    cfRelError: c.cfRelError,
   };
   if (c.table && c.kind.type === "lattice") {
     node.table = (maxLength) => {
@@ -247,6 +260,18 @@ export function repeatNode(n: number, c: Node): Node {
       }
     },
     cumulants: (m) => c.cumulants(m).map((v) => (v === null ? null : n * v)),
+    dampedLogCf: c.dampedLogCf
+      ? (beta, t, re, im) => {
+          c.dampedLogCf!(beta, t, re, im);
+          for (let k = 0; k < t.length; k++) {
+            re[k] *= n;
+            im[k] *= n;
+          }
+        }
+      : undefined,
+    hasCompound: c.hasCompound,
+    cfAbsError: n * (c.cfAbsError ?? 0),
+    cfRelError: n * (c.cfRelError ?? 0),
   };
   if (c.table && c.kind.type === "lattice") {
     node.table = (maxLength) => {
@@ -319,6 +344,10 @@ export function mixNode(ws: number[], cs: Node[]): Node {
       const lin = t.map((x) => mu * x);
       logMix(ws, parts, lin, re, im, sortedAnchor(t));
     },
+    dampedLogCf: mixDamped(ws, cs),
+    hasCompound: cs.some((c) => c.hasCompound),
+    // |phi_j| <= 1: relative errors of the parts become absolute ones of the mixture
+    cfAbsError: cs.reduce((e, c, j) => e + ws[j] * ((c.cfAbsError ?? 0) + (c.cfRelError ?? 0)), 0),
     cumulants(n) {
       const raws = cs.map((c) => cumulantsToRaw(c.cumulants(n)));
       const mixed: (number | null)[] = [];

@@ -44,6 +44,12 @@ export interface CompiledModel {
   readonly tails: { left: number; right: number };
   /** number of nodes of the model tree (for compute units). */
   readonly nodes: number;
+  /** bound on the absolute error of the CF values (0 for closed forms; numerical CFs declare theirs) */
+  readonly cfAbsError?: number;
+  /** bound on the relative error of the CF values (compounds of numerical severities) */
+  readonly cfRelError?: number;
+  /** log E[exp((i t - beta) X)], beta >= 0, for aggregate laws bounded below (compounds): the damped inversion's input */
+  dampedLogCf?(beta: number, t: Float64Array, re: Float64Array, im: Float64Array): void;
   /** notes on approximations already made (e.g. "lognormal severity discretised on step h, mean-preserving"). */
   readonly notes: string[];
   /** when the law is lattice and can be tabulated (finite lattices, Panjer for compounds, or the opt-in

@@ -1,5 +1,6 @@
 import { bernoulliNumbers, factorial, lgamma, logBesselKScaled } from "./special";
 import { cumulantList, NONE_MOMENT, rawToCumulants, type Node } from "../node";
+import { gammaDamped } from "../damped-cf";
 
 const B = bernoulliNumbers(40);
 const CONT = { type: "continuous" } as const;
@@ -87,6 +88,7 @@ export function gammaLaw(shape: number, rate: number): Node {
     location: shape / rate,
     scale: Math.sqrt(shape) / rate,
     support: [0, Infinity],
+    dampedLogCf: gammaDamped(shape, rate),
   });
 }
 

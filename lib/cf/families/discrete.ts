@@ -1,5 +1,6 @@
 import { binomialPmf, eulerianRow, negativeBinomialPmf, poissonPmf } from "./special";
 import type { Node } from "../node";
+import { pointDamped } from "../damped-cf";
 import { nearestZero, unwrapFrom } from "../complex";
 import type { LatticeTable } from "../types";
 
@@ -27,6 +28,7 @@ export function point(at: number): Node {
     },
     cumulants: (n) => Array.from({ length: n }, (_, i) => (i === 0 ? at : 0)),
     table: () => ({ origin: at, step: 1, p: Float64Array.of(1), tailMass: 0 }),
+    dampedLogCf: pointDamped(at),
     countCgf(wr, wi, re, im) {
       for (let k = 0; k < wr.length; k++) {
         re[k] = at * wr[k];
@@ -210,6 +212,8 @@ export function poisson(lambda: number): Node {
       }
     },
     panjer: { a: 0, b: lambda, p0: Math.exp(-lambda) },
+    // |P'(z) / P(z)| = lambda on the unit disc (P(z) = e^{lambda (z - 1)})
+    cgfSlope: lambda,
     divide: (m) => ({ a: 0, b: lambda / m, pgf: (z) => Math.exp((lambda / m) * (z - 1)) }),
     p0: Math.exp(-lambda),
   };
@@ -256,6 +260,8 @@ export function negativeBinomial(r: number, p: number): Node {
       if (start > 1e-280) return tabulate(maxLength, Math.ceil((r * q) / p), start, (k) => (q * (r + k - 1)) / k);
       return bulkTable((r * q) / p, Math.sqrt(r * q) / p, Infinity, maxLength, (k) => negativeBinomialPmf(k, r, p));
     },
+    // |P'(z) / P(z)| = r q / |1 - q z| <= r q / p on the unit disc, q = 1 - p
+    cgfSlope: (r * (1 - p)) / p,
     countCgf(wr, wi, re, im) {
       for (let k = 0; k < wr.length; k++) {
         const e = Math.exp(wr[k]);

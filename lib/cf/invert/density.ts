@@ -3,6 +3,8 @@ import { MAX_GRID_POINTS } from "../limits";
 import type { Atom, CompiledModel } from "../types";
 import { invertContinuous, type PartOutput, type Request } from "./continuous";
 import { latticeCumulative, solveLattice } from "./lattice";
+import { dampable } from "./damped";
+import { dampedDensity } from "./density-damped";
 import { bulkWindow, lawShape } from "./range";
 import type { DensityOptions, DensityResult, InversionDiagnostics } from "./types";
 
@@ -39,6 +41,11 @@ export function density(model: CompiledModel, options: DensityOptions = {}): Den
   let out: PartOutput;
   if (w <= 1e-14) {
     return atomsOnly(atoms, options);
+  }
+  // aggregate laws bounded below: damped inversion (no long period for heavy or subexponential tails)
+  if (dampable(model) && !options.range && options.maxFrequency === undefined) {
+    const r = dampedDensity(model, atoms, req, options.tolerance ?? DEFAULT_TOLERANCE, wantPdf, method === "fft");
+    if (r) return r;
   }
   out = invertContinuous(model, atoms, req, {
     method,

@@ -50,6 +50,15 @@ export function noiseFloor(part: ContinuousPart): (t: number) => number {
   };
 }
 
+/** Geometric probe frequencies PER_OCTAVE per octave from 1e-3 / scale over 54 octaves. */
+export function probeFrequencies(scale: number): Float64Array {
+  const t0 = 1e-3 / scale;
+  const n = 54 * PER_OCTAVE + 1;
+  const t = new Float64Array(n);
+  for (let i = 0; i < n; i++) t[i] = t0 * Math.pow(STEP, i);
+  return t;
+}
+
 export function probeEnvelope(part: ContinuousPart, scale: number): Envelope {
   const nf = noiseFloor(part);
   const t0 = 1e-3 / scale;
@@ -69,10 +78,18 @@ export function probeEnvelope(part: ContinuousPart, scale: number): Envelope {
     for (let i = i0; i < i1; i++) m = Math.max(m, Math.abs(re[i]) + Math.abs(im[i]));
     if (m === 0 && i0 > 0 && part.atoms.length === 0 && part.kernels.length === 0) break;
   }
+  const mag = new Float64Array(n);
+  for (let i = 0; i < n; i++) mag[i] = Math.hypot(re[i], im[i]);
+  return envelopeOf(t, mag, nf);
+}
+
+/** Envelope from sampled magnitudes |phi(t_i)| on the geometric probe (PER_OCTAVE per octave), values below nf(t) as 0. */
+export function envelopeOf(t: Float64Array, mag: Float64Array, nf: (t: number) => number): Envelope {
+  const n = t.length;
   const env = new Float64Array(n);
   let run = 0;
   for (let i = n - 1; i >= 0; i--) {
-    const a = Math.hypot(re[i], im[i]);
+    const a = mag[i];
     const floor = nf(t[i]);
     const v = Number.isFinite(a) ? (a > floor ? a : 0) : Infinity;
     if (v > run) run = v;

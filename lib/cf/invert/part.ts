@@ -34,13 +34,10 @@ export interface ContinuousPart {
   cfAbsError: number;
 }
 
-/** Absolute CF error declared in the model's notes ("absolute error <= 1e-13"), the largest one found. */
+/** The model's typed bound on the absolute error of its CF values. */
 export function declaredCfError(model: CompiledModel): number {
-  let e = 0;
-  for (const n of model.notes) {
-    const m = /absolute error <= ([0-9.]+(?:e[-+]?[0-9]+)?)/i.exec(n);
-    if (m) e = Math.max(e, Number(m[1]));
-  }
+  // |phi| <= 1: a relative error bound is an absolute one too
+  const e = (model.cfAbsError ?? 0) + (model.cfRelError ?? 0);
   return Number.isFinite(e) ? e : 0;
 }
 

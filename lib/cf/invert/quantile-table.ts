@@ -35,19 +35,35 @@ export function tableQuantiles(
   const err = new Float64Array(p.length);
   const es = o.expectedShortfall ? new Float64Array(p.length) : undefined;
   const esErr = o.expectedShortfall ? new Float64Array(p.length) : undefined;
+  // exact tables carry only rounding in errCdf: it is the slack that keeps an exact level on its own atom. A table
+  // that approximates a continuous law (discretised) is searched at p itself, and the quantile's error is the
+  // stretch of x where the true cdf can cross p: from the table's quantile at p - e (one cell lower, since the
+  // continuous law's mass of that cell may lie anywhere in it) to its quantile at p + e.
+  const approx = method === "discretised";
+  const slack = approx ? 0 : errCdf;
+  const first = (level: number, sl: number) => {
+    let k = 0;
+    if (level > 0.5) {
+      const s = 1 - level;
+      while (k < n - 1 && sf[k] > s + sl) k++;
+    } else {
+      while (k < n - 1 && cdf[k] < level - sl) k++;
+    }
+    return k;
+  };
   for (let i = 0; i < p.length; i++) {
     const pi = p[i];
-    const upper = pi > 0.5;
-    let k = 0;
-    // smallest k with F_k >= p, judged on the sf side above the median
-    if (upper) {
-      const s = 1 - pi;
-      while (k < n - 1 && sf[k] > s + errCdf) k++;
-    } else {
-      while (k < n - 1 && cdf[k] < pi - errCdf) k++;
-    }
+    const k = first(pi, slack);
     out[i] = xs[k];
-    err[i] = 0;
+    if (approx) {
+      const kLo = Math.max(0, first(pi - errCdf, 0) - 1);
+      const hiLevel = pi + errCdf;
+      const kHi = hiLevel >= 1 ? n - 1 : first(hiLevel, 0);
+      const reached = hiLevel < 1 && (hiLevel > 0.5 ? sf[kHi] <= 1 - hiLevel : cdf[kHi] >= hiLevel);
+      err[i] = reached ? Math.max(xs[k] - xs[kLo], xs[kHi] - xs[k]) : Infinity;
+    } else {
+      err[i] = 0;
+    }
     if (es && esErr) {
       if (pi >= 1) {
         es[i] = out[i];
@@ -56,7 +72,7 @@ export function tableQuantiles(
       let ex = 0;
       for (let j = n - 1; j > k; j--) ex += Math.max(probs[j], 0) * (xs[j] - xs[k]);
       es[i] = xs[k] + ex / (1 - pi);
-      esErr[i] = ((errCdf * Math.abs(xs[n - 1] - xs[k]) + 4 * Number.EPSILON * Math.abs(ex)) / (1 - pi)) * 2;
+      esErr[i] = ((errCdf * (Math.abs(xs[n - 1] - xs[k]) + err[i]) + 4 * Number.EPSILON * Math.abs(ex)) / (1 - pi)) * 2;
     }
   }
   return {

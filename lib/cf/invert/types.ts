@@ -41,7 +41,7 @@ export interface ErrorEstimate {
 }
 
 export interface InversionDiagnostics {
-  method: "fft" | "gil-pelaez" | "lattice-table" | "discretised" | "lattice-fft" | "atoms";
+  method: "fft" | "gil-pelaez" | "fft-damped" | "gil-pelaez-damped" | "lattice-table" | "discretised" | "lattice-fft" | "atoms";
   /** FFT size, or number of frequency nodes of the pointwise sum */
   gridSize: number;
   /** frequency nodes actually used (t_k = (k + 1/2) h, k < terms) */
