@@ -1,0 +1,79 @@
+// npm run bench:cf-models — the models people send: a seeded set of sums, mixes and compounds of heavy families
+// (up to 8 terms, one level of nesting), seven quantiles with expected shortfall and a 1000-point density each, at
+// the default tolerance; then Poisson-lognormal compounds (cdf on a 4096-point grid at 1e-9, 1000 arbitrary points,
+// the quantile triple with ES). Prints median and worst times (the worst is the figure that counts) and the model
+// behind the worst. Pure lib/cf.
+import { compile } from "@/lib/cf/compile";
+import { density } from "@/lib/cf/invert/density";
+import { quantiles } from "@/lib/cf/invert/quantile";
+import type { Model } from "@/lib/cf/types";
+import { randomModel, rng } from "../tests/support/random-models";
+
+const SEVEN = [0.001, 0.01, 0.1, 0.5, 0.9, 0.99, 0.999];
+const TRIPLE = [0.99, 0.995, 0.999];
+const count = Number(process.env.BENCH_MODELS ?? 40);
+const seed = Number(process.env.BENCH_SEED ?? 20261203);
+
+function median(xs: number[]): number {
+  const s = [...xs].sort((a, b) => a - b);
+  const m = s.length >> 1;
+  return s.length % 2 ? s[m] : 0.5 * (s[m - 1] + s[m]);
+}
+
+function timed<T>(fn: () => T): { ms: number; value: T | null; error?: string } {
+  const t0 = performance.now();
+  try {
+    const value = fn();
+    return { ms: performance.now() - t0, value };
+  } catch (e) {
+    return { ms: performance.now() - t0, value: null, error: (e as Error).message };
+  }
+}
+
+function report(label: string, target: number, rows: { ms: number; model: Model; error?: string }[]) {
+  const ms = rows.map((r) => r.ms);
+  const worst = rows.reduce((a, b) => (b.ms > a.ms ? b : a));
+  const over = rows.filter((r) => r.ms > target).length;
+  console.log(`${label}: median ${median(ms).toFixed(1)} ms, worst ${worst.ms.toFixed(1)} ms (target <= ${target} ms; ${over}/${rows.length} over)`);
+  console.log(`  worst model: ${JSON.stringify(worst.model)}${worst.error ? ` (error: ${worst.error})` : ""}`);
+  const errs = rows.filter((r) => r.error);
+  if (errs.length) console.log(`  ${errs.length} error(s), e.g. ${errs[0].error}`);
+}
+
+// warm the JIT on a small model so the first timed model is not charged for compilation
+{
+  const w = compile({ compound: { count: { family: "poisson", lambda: 3 }, each: { family: "lognormal", mu: 0, sigma: 0.8 } } });
+  quantiles(w, SEVEN, { expectedShortfall: true });
+  density(w, { grid: { from: 0, to: 20, count: 1000 } });
+}
+
+const r = rng(seed);
+const qRows: { ms: number; model: Model; error?: string }[] = [];
+const dRows: { ms: number; model: Model; error?: string }[] = [];
+for (let i = 0; i < count; i++) {
+  const model = randomModel(r, 8, true);
+  const c = compile(model);
+  const q = timed(() => quantiles(c, SEVEN, { expectedShortfall: true }));
+  qRows.push({ ms: q.ms, model, error: q.error });
+  const d = timed(() => density(c, { grid: { from: c.location - 4 * c.scale, to: c.location + 8 * c.scale, count: 1000 } }));
+  dRows.push({ ms: d.ms, model, error: d.error });
+}
+console.log(`seed ${seed}, ${count} random models (sums, mixes, compounds, scales, shifts; up to 8 terms)`);
+report("seven quantiles with ES", 200, qRows);
+report("1000-point density", 100, dRows);
+
+const lnRows: Record<string, { ms: number; model: Model; error?: string }[]> = { grid: [], points: [], triple: [] };
+for (const lambda of [1, 10, 100, 1000]) {
+  for (const sigma of [0.5, 1, 1.5]) {
+    const model = { compound: { count: { family: "poisson", lambda }, each: { family: "lognormal", mu: 0, sigma } } } as Model;
+    const c = compile(model);
+    const hi = quantiles(c, [0.9999]).x[0];
+    lnRows.grid.push({ model, ...timed(() => density(c, { grid: { from: 0, to: hi, count: 4096 }, tolerance: 1e-9, cdfOnly: true })) });
+    const xs = Array.from({ length: 1000 }, (_, i) => (hi * (i + 0.5)) / 1000);
+    lnRows.points.push({ model, ...timed(() => density(c, { x: xs, tolerance: 1e-9 })) });
+    lnRows.triple.push({ model, ...timed(() => quantiles(c, TRIPLE, { expectedShortfall: true })) });
+  }
+}
+report("Poisson(lambda <= 1000)-lognormal cdf, 4096-point grid at 1e-9", 50, lnRows.grid);
+report("Poisson-lognormal, 1000 arbitrary points at 1e-9", 30, lnRows.points);
+report("Poisson-lognormal quantile triple (0.99, 0.995, 0.999) with ES", 30, lnRows.triple);
