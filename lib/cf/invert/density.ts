@@ -61,11 +61,20 @@ export function density(model: CompiledModel, options: DensityOptions = {}): Den
   const cdf = fits(buf.cdf) ? buf.cdf : new Float64Array(n);
   const sf = fits(buf.sf) ? buf.sf : new Float64Array(n);
   const pdf = out.pdf ? (fits(buf.pdf) ? buf.pdf : new Float64Array(n)) : undefined;
+  // outside the known support the values are exact; inside, moving a value into [0, 1] (density >= 0) can only
+  // bring it closer to the truth, so the bounds below still hold
+  const [slo, shi] = model.support;
   for (let i = 0; i < n; i++) {
     const { below, above } = atomMass(atoms, xs[i]);
-    cdf[i] = below + w * out.cdf[i];
-    sf[i] = above + w * out.sf[i];
-    if (pdf) pdf[i] = w * out.pdf![i];
+    if (xs[i] < slo || xs[i] > shi) {
+      cdf[i] = xs[i] < slo ? 0 : 1;
+      sf[i] = xs[i] < slo ? 1 : 0;
+      if (pdf) pdf[i] = 0;
+      continue;
+    }
+    cdf[i] = Math.min(1, Math.max(0, below + w * out.cdf[i]));
+    sf[i] = Math.min(1, Math.max(0, above + w * out.sf[i]));
+    if (pdf) pdf[i] = Math.max(0, w * out.pdf![i]);
   }
   const e = out.error;
   const diagnostics: InversionDiagnostics = {
