@@ -10,7 +10,7 @@ import { quantiles } from "@/lib/cf/invert/quantile";
 import type { Model } from "@/lib/cf/types";
 import { randomModel, rng } from "../support/random-models";
 
-const RUNS = Number(process.env.SUMFOLD_PROPERTY_RUNS ?? 40);
+const RUNS = Number(process.env.SUMFOLD_PROPERTY_RUNS ?? 25);
 const HEAVY_RUNS = Number(process.env.SUMFOLD_PROPERTY_HEAVY_RUNS ?? 3);
 
 // Left out for this file's time budget (they take seconds to minutes in the general route today, see the model
