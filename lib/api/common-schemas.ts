@@ -74,7 +74,7 @@ export const AtomSchema = z.object({ x: z.number(), p: z.number() }).openapi("At
 
 export const Diagnostics = z
   .object({
-    method: z.string().openapi({ description: "inversion method used: fft, gil-pelaez, lattice-table (tabulated recursion or convolution), discretised (opt-in discretisation of a continuous severity), lattice-fft or atoms" }),
+    method: z.string().openapi({ description: "method used: fft, gil-pelaez, lattice-table (tabulated recursion or convolution), discretised (opt-in discretisation of a continuous severity), lattice-fft or atoms; a single named family, alone or scaled / shifted, is evaluated without inversion: closed-form, special-function, or stable-integral (stable laws: integral representation and tail series)" }),
     gridSize: z.number(),
     terms: z.number(),
     frequencyStep: z.number(),

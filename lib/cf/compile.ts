@@ -1,4 +1,6 @@
-import type { Model } from "./schema";
+import type { FamilyModel, Model } from "./schema";
+import { FAMILY_SPECS, type FamilyParams } from "./families/spec";
+import { affineDirect } from "./direct/affine";
 import type { CompiledModel } from "./types";
 import type { Node } from "./node";
 import { validateModel } from "./validate";
@@ -25,6 +27,29 @@ export interface CompileOptions {
 export function buildNode(m: Model, opts: CompileOptions = {}): Node {
   const buildNode_ = (x: Model) => buildNode(x, opts);
   if ("family" in m) {
+    const node = familyNode(m);
+    const direct = FAMILY_SPECS[m.family].direct?.(m as unknown as FamilyParams);
+    if (direct) node.direct = direct;
+    return node;
+  }
+  if ("sum" in m) return sumNode(m.sum.map(buildNode_));
+  if ("scale" in m) {
+    const child = buildNode_(m.of);
+    const node = scaleNode(m.scale, child);
+    if (child.direct && m.scale !== 0 && Number.isFinite(m.scale)) node.direct = affineDirect(child.direct, m.scale, 0);
+    return node;
+  }
+  if ("shift" in m) {
+    const child = buildNode_(m.of);
+    const node = shiftNode(m.shift, child);
+    if (child.direct && Number.isFinite(m.shift)) node.direct = affineDirect(child.direct, 1, m.shift);
+    return node;
+  }
+  return operatorNode(m, buildNode_, opts);
+}
+
+function familyNode(m: FamilyModel): Node {
+  {
     switch (m.family) {
       case "normal":
         return normal(m.mu, m.sigma);
@@ -70,9 +95,10 @@ export function buildNode(m: Model, opts: CompileOptions = {}): Node {
         return negativeBinomial(1, m.p);
     }
   }
-  if ("sum" in m) return sumNode(m.sum.map(buildNode_));
-  if ("scale" in m) return scaleNode(m.scale, buildNode_(m.of));
-  if ("shift" in m) return shiftNode(m.shift, buildNode_(m.of));
+  throw new Error("unreachable: validated family without a node");
+}
+
+function operatorNode(m: Model, buildNode_: (x: Model) => Node, opts: CompileOptions): Node {
   if ("repeat" in m) return repeatNode(m.repeat, buildNode_(m.of));
   if ("mix" in m) return mixNode(m.mix.map((c) => c.weight), m.mix.map((c) => buildNode_(c.of)));
   if ("compound" in m) return compoundNode(buildNode_(m.compound.count), buildNode_(m.compound.each), opts.discretise === false ? null : (opts.discretise ?? { auto: true }));
@@ -141,6 +167,7 @@ export function toCompiled(node: Node): CompiledModel {
     nodes: node.nodes,
     cfAbsError: node.cfAbsError ?? 0,
     cfRelError: node.cfRelError ?? 0,
+    ...(node.direct ? { direct: node.direct } : {}),
     // read on access: a discretised compound adds its error bound to its notes when its table is built
     get notes() {
       return node.kind.type === "mixed" && !node.kind.atomsComplete ? [...node.notes, "not every atom of this mixed law is listed"] : node.notes;

@@ -1,6 +1,7 @@
 import type { Atom, LatticeTable } from "./types";
 import type { SeverityLaw } from "./discretise";
 import type { DampedLogCf } from "./damped-cf";
+import type { DirectLaw } from "./direct/types";
 
 /**
  * Internal kind, richer than the public LawKind: a lattice with step 0 is a single point, and lattice/discrete
@@ -38,6 +39,8 @@ export interface Node {
   p0?: number;
   /** a positive severity without a cheap CF (lognormal, pareto, weibull): compounds discretise it onto a lattice */
   severity?: SeverityLaw;
+  /** direct evaluation of a single named law (kept through scale and shift, dropped by every other operator) */
+  direct?: DirectLaw;
   /** the table is an approximation of the law (discretised severity): kept even when it drops more than USEFUL_TAIL */
   approximate?: boolean;
   /** log E[exp((i t - beta) X)] for laws bounded below (damped inversion), where available */

@@ -1,4 +1,5 @@
 import type { Model } from "./schema";
+import type { DirectLaw } from "./direct/types";
 
 export type { Model };
 
@@ -52,6 +53,9 @@ export interface CompiledModel {
   dampedLogCf?(beta: number, t: Float64Array, re: Float64Array, im: Float64Array): void;
   /** notes on approximations already made (e.g. "lognormal severity discretised on step h, mean-preserving"). */
   readonly notes: string[];
+  /** a single named law, possibly scaled or shifted, evaluated without its CF (closed form, special function or
+   *  integral representation); density() and quantiles() use it when present */
+  readonly direct?: DirectLaw;
   /** when the law is lattice and can be tabulated (finite lattices, Panjer for compounds, or the opt-in
    *  discretisation of a continuous severity, whose table carries its cdfError), return the pmf starting at
    *  `origin` on `step`, truncated with the dropped tail mass reported; otherwise null. */

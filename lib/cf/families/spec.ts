@@ -1,4 +1,10 @@
 /** Parameter table of every named family: one source for the zod schemas, the validator and the catalogue. */
+import type { DirectLaw } from "../direct/types";
+import { stableDirect } from "../direct/stable";
+import * as D from "../direct/families";
+
+/** The validated model fields of one family (defaults not yet filled in). */
+export type FamilyParams = Readonly<Record<string, number | string | undefined>>;
 
 export interface ParamSpec {
   name: string;
@@ -28,6 +34,13 @@ export interface FamilySpec {
   cfMethod: "closed form" | "closed form (Bessel K)" | "numerical quadrature";
   discrete: boolean;
   source: string;
+  /**
+   * Optional direct evaluation of the law alone (or scaled / shifted): pdf, cdf, sf and, where it has one, the
+   * quantile, from a closed form, a special function or a one-dimensional integral, each value with an absolute
+   * error bound (contract in lib/cf/direct/types.ts). Return null for parameters it does not cover; the law is then
+   * inverted from its CF like any other. Sums, mixes and compounds always use the CF.
+   */
+  direct?: (p: FamilyParams) => DirectLaw | null;
 }
 
 export const FAMILY_NAMES = [
@@ -80,6 +93,7 @@ export const FAMILY_SPECS: Record<FamilyName, FamilySpec> = {
     cfMethod: "closed form",
     discrete: false,
     source: "Johnson, Kotz & Balakrishnan, Continuous Univariate Distributions vol. 1, ch. 13",
+    direct: (p) => D.normalDirect(p.mu as number, p.sigma as number),
   },
   cauchy: {
     name: "cauchy",
@@ -91,6 +105,7 @@ export const FAMILY_SPECS: Record<FamilyName, FamilySpec> = {
     cfMethod: "closed form",
     discrete: false,
     source: "Johnson, Kotz & Balakrishnan vol. 1, ch. 16",
+    direct: (p) => D.cauchyDirect(p.loc as number, p.scale as number),
   },
   uniform: {
     name: "uniform",
@@ -102,6 +117,7 @@ export const FAMILY_SPECS: Record<FamilyName, FamilySpec> = {
     cfMethod: "closed form",
     discrete: false,
     source: "Johnson, Kotz & Balakrishnan vol. 2, ch. 26",
+    direct: (p) => D.uniformDirect(p.a as number, p.b as number),
   },
   exponential: {
     name: "exponential",
@@ -113,6 +129,7 @@ export const FAMILY_SPECS: Record<FamilyName, FamilySpec> = {
     cfMethod: "closed form",
     discrete: false,
     source: "Johnson, Kotz & Balakrishnan vol. 1, ch. 19",
+    direct: (p) => D.gammaDirect(1, p.rate as number),
   },
   gamma: {
     name: "gamma",
@@ -124,6 +141,7 @@ export const FAMILY_SPECS: Record<FamilyName, FamilySpec> = {
     cfMethod: "closed form",
     discrete: false,
     source: "Johnson, Kotz & Balakrishnan vol. 1, ch. 17",
+    direct: (p) => D.gammaDirect(p.shape as number, p.rate as number),
   },
   chi_squared: {
     name: "chi_squared",
@@ -135,6 +153,7 @@ export const FAMILY_SPECS: Record<FamilyName, FamilySpec> = {
     cfMethod: "closed form",
     discrete: false,
     source: "Johnson, Kotz & Balakrishnan vol. 1, ch. 18",
+    direct: (p) => D.gammaDirect((p.k as number) / 2, 0.5),
   },
   laplace: {
     name: "laplace",
@@ -146,6 +165,7 @@ export const FAMILY_SPECS: Record<FamilyName, FamilySpec> = {
     cfMethod: "closed form",
     discrete: false,
     source: "Johnson, Kotz & Balakrishnan vol. 2, ch. 24",
+    direct: (p) => D.laplaceDirect(p.loc as number, p.scale as number),
   },
   logistic: {
     name: "logistic",
@@ -157,6 +177,7 @@ export const FAMILY_SPECS: Record<FamilyName, FamilySpec> = {
     cfMethod: "closed form",
     discrete: false,
     source: "Johnson, Kotz & Balakrishnan vol. 2, ch. 23",
+    direct: (p) => D.logisticDirect(p.loc as number, p.scale as number),
   },
   student_t: {
     name: "student_t",
@@ -168,6 +189,7 @@ export const FAMILY_SPECS: Record<FamilyName, FamilySpec> = {
     cfMethod: "closed form (Bessel K)",
     discrete: false,
     source: "Johnson, Kotz & Balakrishnan vol. 2, ch. 28; Bessel K by Abramowitz & Stegun 9.6.24",
+    direct: (p) => D.studentDirect(p.nu as number, (p.loc as number | undefined) ?? 0, (p.scale as number | undefined) ?? 1),
   },
   stable: {
     name: "stable",
@@ -199,6 +221,7 @@ export const FAMILY_SPECS: Record<FamilyName, FamilySpec> = {
     cfMethod: "closed form",
     discrete: false,
     source: "Nolan, Univariate Stable Distributions (2020), ch. 1, parameterisations S0 and S1",
+    direct: (p) => stableDirect(p.alpha as number, p.beta as number, (p.scale as number | undefined) ?? 1, (p.loc as number | undefined) ?? 0, (p.param as "S0" | "S1" | undefined) ?? "S1"),
   },
   variance_gamma: {
     name: "variance_gamma",
@@ -232,6 +255,7 @@ export const FAMILY_SPECS: Record<FamilyName, FamilySpec> = {
     cfMethod: "numerical quadrature",
     discrete: false,
     source: "Johnson, Kotz & Balakrishnan vol. 1, ch. 14",
+    direct: (p) => D.lognormalDirect(p.mu as number, p.sigma as number),
   },
   pareto: {
     name: "pareto",
@@ -243,6 +267,7 @@ export const FAMILY_SPECS: Record<FamilyName, FamilySpec> = {
     cfMethod: "numerical quadrature",
     discrete: false,
     source: "Johnson, Kotz & Balakrishnan vol. 1, ch. 20",
+    direct: (p) => D.paretoDirect(p.alpha as number, p.xm as number),
   },
   weibull: {
     name: "weibull",
@@ -254,6 +279,7 @@ export const FAMILY_SPECS: Record<FamilyName, FamilySpec> = {
     cfMethod: "numerical quadrature",
     discrete: false,
     source: "Johnson, Kotz & Balakrishnan vol. 1, ch. 21",
+    direct: (p) => D.weibullDirect(p.shape as number, p.scale as number),
   },
   point: {
     name: "point",

@@ -1,4 +1,5 @@
 import { CfError } from "../errors";
+import { directDensity } from "../direct/answer";
 import { MAX_GRID_POINTS } from "../limits";
 import type { Atom, CompiledModel } from "../types";
 import { invertContinuous, type PartOutput, type Request } from "./continuous";
@@ -35,6 +36,11 @@ export function density(model: CompiledModel, options: DensityOptions = {}): Den
   }
   const atoms: Atom[] = kind.type === "mixed" ? [...kind.atoms].sort((p, q) => p.x - q.x) : [];
   const req = buildRequest(model, options, atoms, tol);
+  // a single named law (or scaled / shifted) with a direct evaluation answers without inversion unless the request
+  // asks for a specific inversion (method, range or frequency cut-off)
+  if (model.direct && (options.method ?? "auto") === "auto" && !options.range && options.maxFrequency === undefined) {
+    return directDensity(model.direct, req.kind === "points" ? req.x : gridX(req.from, req.dx, req.count), model.notes, options.out);
+  }
   const method = pickMethod(options, req);
   const wantPdf = !options.cdfOnly;
   const w = 1 - atoms.reduce((s, a) => s + a.p, 0);

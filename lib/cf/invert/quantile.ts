@@ -1,4 +1,6 @@
 import { CfError } from "../errors";
+import type { DirectMethod } from "../direct/types";
+import { directQuantiles } from "../direct/answer";
 import type { Atom, CompiledModel } from "../types";
 import { evalLadder, growLadder, heavyLadder, invertContinuous } from "./continuous";
 import { atomMass } from "./density";
@@ -19,7 +21,7 @@ export interface QuantileOptions {
 }
 
 export interface QuantileDiagnostics {
-  method: "gil-pelaez" | "gil-pelaez-damped" | "lattice-table" | "discretised" | "lattice-fft" | "atoms";
+  method: "gil-pelaez" | "gil-pelaez-damped" | "lattice-table" | "discretised" | "lattice-fft" | "atoms" | DirectMethod;
   terms: number;
   range: { from: number; to: number };
   /** bound on |F_computed - F| used by the root finder */
@@ -50,6 +52,8 @@ export function quantiles(model: CompiledModel, pIn: ArrayLike<number>, options:
   for (let i = 0; i < p.length; i++) {
     if (!(p[i] >= 0 && p[i] <= 1)) throw new CfError("invalid_model", `/p/${i}`, "each level p must be a number in [0, 1]");
   }
+  // a single named law (or scaled / shifted) with a direct evaluation: no inversion
+  if (model.direct) return directQuantiles(model.direct, p, options.expectedShortfall ?? false, model.tails, model.momentIndex > 1 ? model.cumulants(1)[0] : null, model.notes);
   const kind = model.kind;
   if (kind.type === "lattice") return withModelNotes(model, latticeQuantiles(model, kind.origin, kind.step, p, options));
   if (kind.type === "discrete") {

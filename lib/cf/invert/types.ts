@@ -1,3 +1,4 @@
+import type { DirectMethod } from "../direct/types";
 import type { Atom } from "../types";
 
 export type InversionMethod = "auto" | "fft" | "gil-pelaez";
@@ -41,7 +42,7 @@ export interface ErrorEstimate {
 }
 
 export interface InversionDiagnostics {
-  method: "fft" | "gil-pelaez" | "fft-damped" | "gil-pelaez-damped" | "lattice-table" | "discretised" | "lattice-fft" | "atoms";
+  method: "fft" | "gil-pelaez" | "fft-damped" | "gil-pelaez-damped" | "lattice-table" | "discretised" | "lattice-fft" | "atoms" | DirectMethod;
   /** FFT size, or number of frequency nodes of the pointwise sum */
   gridSize: number;
   /** frequency nodes actually used (t_k = (k + 1/2) h, k < terms) */

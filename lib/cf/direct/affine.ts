@@ -1,0 +1,40 @@
+import type { DirectLaw, DirectPoint } from "./types";
+
+/**
+ * The law of a X + b from the law of X (a != 0 finite): F_Y(y) = F_X((y - b)/a) for a > 0, S_X((y - b)/a) for a < 0,
+ * f_Y(y) = f_X((y - b)/a) / |a|. Error bounds scale with the density; the rounding of (y - b)/a is added as the
+ * density times its size.
+ */
+export function affineDirect(law: DirectLaw, a: number, b: number): DirectLaw {
+  if (a === 1 && b === 0) return law;
+  const aa = Math.abs(a);
+  const lo = a > 0 ? a * law.support[0] + b : a * law.support[1] + b;
+  const hi = a > 0 ? a * law.support[1] + b : a * law.support[0] + b;
+  const q = law.quantile;
+  return {
+    method: law.method,
+    support: [Number.isNaN(lo) ? -Infinity : lo, Number.isNaN(hi) ? Infinity : hi],
+    center: a * law.center + b,
+    spread: aa * law.spread,
+    notes: law.notes,
+    at(y: number, out: DirectPoint) {
+      const x = (y - b) / a;
+      law.at(x, out);
+      if (a < 0) {
+        const c = out.cdf;
+        const ce = out.cdfErr;
+        out.cdf = out.sf;
+        out.cdfErr = out.sfErr;
+        out.sf = c;
+        out.sfErr = ce;
+      }
+      // (y - b)/a is off by at most 2 ulps of its inputs: the cdf moves by f_X times that
+      const dx = 2 * Number.EPSILON * (Math.abs(y) + Math.abs(b)) / aa + Number.EPSILON * Math.abs(x);
+      out.cdfErr += out.pdf * dx;
+      out.sfErr += out.pdf * dx;
+      out.pdf /= aa;
+      out.pdfErr = out.pdfErr / aa + 2 * Number.EPSILON * out.pdf;
+    },
+    ...(q ? { quantile: (p: number) => (a > 0 ? a * q(p) + b : a * q(1 - p) + b) } : {}),
+  };
+}

@@ -1,0 +1,282 @@
+import erfc from "@stdlib/math-base-special-erfc";
+import gammainc from "@stdlib/math-base-special-gammainc";
+import gammaincinv from "@stdlib/math-base-special-gammaincinv";
+import betainc from "@stdlib/math-base-special-betainc";
+import betaincinv from "@stdlib/math-base-special-betaincinv";
+import normalQuantile from "@stdlib/stats-base-dists-normal-quantile";
+import { lgamma } from "../families/special";
+import type { DirectLaw, DirectPoint } from "./types";
+
+/**
+ * Closed-form and special-function laws for the direct route. Formulas: Johnson, Kotz & Balakrishnan, Continuous
+ * Univariate Distributions vols. 1-2 (chapter per family in lib/cf/families/spec.ts); cdf and sf are each computed in
+ * the form that keeps relative accuracy in its own tail (erfc, expm1, log1p, atan2, the upper incomplete functions).
+ * Error bounds: ELEM relative for elementary functions, SPECIAL relative for the stdlib incomplete gamma/beta
+ * (their documented ports of Boost/Cephes reach ~1e-14; we claim 1e-12 and verify against mpmath in
+ * tests/cf/direct-families.test.ts), plus the effect of rounding the argument, pdf * |dx|.
+ */
+const EPS = Number.EPSILON;
+const ELEM = 32 * EPS;
+const SPECIAL = 1e-12;
+const SQRT2PI = Math.sqrt(2 * Math.PI);
+const NOTE = "evaluated from the family's closed form or special functions; no CF inversion";
+
+type Fill = (x: number, o: DirectPoint) => void;
+
+function law(method: DirectLaw["method"], support: [number, number], center: number, spread: number, fill: Fill, quantile?: (p: number) => number, extra?: string): DirectLaw {
+  return {
+    method,
+    support,
+    center,
+    spread,
+    notes: [extra ? `${NOTE}; ${extra}` : NOTE],
+    at(x, o) {
+      if (x < support[0] || x > support[1]) {
+        const below = x < support[0];
+        o.pdf = 0;
+        o.pdfErr = 0;
+        o.cdf = below ? 0 : 1;
+        o.sf = below ? 1 : 0;
+        o.cdfErr = 0;
+        o.sfErr = 0;
+        return;
+      }
+      fill(x, o);
+    },
+    ...(quantile ? { quantile } : {}),
+  };
+}
+
+/** relative error r on each value, plus pdf times the rounding dx of the argument */
+function bounds(o: DirectPoint, r: number, rPdf: number, dx: number) {
+  o.cdfErr = r * o.cdf + o.pdf * dx;
+  o.sfErr = r * o.sf + o.pdf * dx;
+  o.pdfErr = rPdf * o.pdf;
+}
+
+export function normalDirect(mu: number, sigma: number): DirectLaw {
+  return law(
+    "special-function",
+    [-Infinity, Infinity],
+    mu,
+    sigma,
+    (x, o) => {
+      const z = (x - mu) / sigma;
+      const dz = 2 * EPS * (Math.abs(x) + Math.abs(mu)) / sigma + EPS * Math.abs(z);
+      o.pdf = Math.exp(-0.5 * z * z) / (sigma * SQRT2PI);
+      o.cdf = 0.5 * erfc(-z / Math.SQRT2);
+      o.sf = 0.5 * erfc(z / Math.SQRT2);
+      bounds(o, ELEM, ELEM + (1 + z * z) * 2 * EPS + Math.abs(z) * dz, dz * sigma);
+    },
+    (p) => mu + sigma * normalQuantile(p, 0, 1),
+    "normal cdf by erfc (stdlib)",
+  );
+}
+
+export function lognormalDirect(mu: number, sigma: number): DirectLaw {
+  const med = Math.exp(mu);
+  return law(
+    "special-function",
+    [0, Infinity],
+    med,
+    med * Math.max(sigma, 0.1),
+    (x, o) => {
+      if (x === 0) {
+        o.pdf = o.cdf = o.pdfErr = o.cdfErr = o.sfErr = 0;
+        o.sf = 1;
+        return;
+      }
+      const lx = Math.log(x);
+      const z = (lx - mu) / sigma;
+      const dz = (EPS * (1 + Math.abs(lx)) + 2 * EPS * Math.abs(mu)) / sigma + EPS * Math.abs(z);
+      o.pdf = Math.exp(-0.5 * z * z) / (x * sigma * SQRT2PI);
+      o.cdf = 0.5 * erfc(-z / Math.SQRT2);
+      o.sf = 0.5 * erfc(z / Math.SQRT2);
+      // dF = phi(z) dz with phi(z) = x sigma f(x)
+      bounds(o, ELEM, ELEM + (1 + z * z) * 2 * EPS + Math.abs(z) * dz, dz * x * sigma);
+    },
+    (p) => Math.exp(mu + sigma * normalQuantile(p, 0, 1)),
+    "lognormal cdf by erfc of log x (stdlib)",
+  );
+}
+
+export function gammaDirect(shape: number, rate: number): DirectLaw {
+  const lognorm = shape * Math.log(rate) - lgamma(shape);
+  const mean = shape / rate;
+  const exp1 = shape === 1;
+  return law(
+    exp1 ? "closed-form" : "special-function",
+    [0, Infinity],
+    mean,
+    Math.sqrt(shape) / rate,
+    (x, o) => {
+      const y = rate * x;
+      const dx = 2 * EPS * x;
+      if (exp1) {
+        o.pdf = rate * Math.exp(-y);
+        o.cdf = -Math.expm1(-y);
+        o.sf = Math.exp(-y);
+        bounds(o, ELEM, ELEM + 2 * EPS * y, dx);
+        return;
+      }
+      o.pdf = x === 0 ? (shape < 1 ? Infinity : shape === 1 ? rate : 0) : Math.exp(lognorm + (shape - 1) * Math.log(x) - y);
+      o.cdf = gammainc(y, shape, true, false);
+      o.sf = gammainc(y, shape, true, true);
+      bounds(o, SPECIAL, 1e-13 + 4 * EPS * (Math.abs(lognorm) + Math.abs((shape - 1) * Math.log(x || 1)) + y), Number.isFinite(o.pdf) ? dx : 0);
+    },
+    exp1 ? (p) => -Math.log1p(-p) / rate : (p) => (p > 0.5 ? gammaincinv(1 - p, shape, true) : gammaincinv(p, shape, false)) / rate,
+    exp1 ? "exponential cdf by expm1" : "gamma cdf by the regularised incomplete gamma function (stdlib gammainc)",
+  );
+}
+
+export function paretoDirect(alpha: number, xm: number): DirectLaw {
+  return law(
+    "closed-form",
+    [xm, Infinity],
+    xm * Math.pow(2, 1 / alpha),
+    xm,
+    (x, o) => {
+      // log(xm / x) = -log1p((x - xm)/xm): x - xm is exact near xm (Sterbenz), which keeps the cdf's relative accuracy there
+      const l = x < 2 * xm ? -Math.log1p((x - xm) / xm) : Math.log(xm / x);
+      const dl = 4 * EPS * (1 + Math.abs(l)) * alpha;
+      o.sf = Math.exp(alpha * l);
+      o.cdf = -Math.expm1(alpha * l);
+      o.pdf = (alpha / x) * o.sf;
+      bounds(o, ELEM, ELEM + dl, 0);
+      // rounding of alpha log(xm / x) moves sf by sf dl
+      o.sfErr += o.sf * dl;
+      o.cdfErr += o.sf * dl;
+    },
+    (p) => xm * Math.exp(-Math.log1p(-p) / alpha),
+  );
+}
+
+export function weibullDirect(shape: number, scale: number): DirectLaw {
+  return law(
+    "closed-form",
+    [0, Infinity],
+    scale * Math.pow(Math.LN2, 1 / shape),
+    scale,
+    (x, o) => {
+      const u = x / scale;
+      const lu = Math.log(u);
+      const t = Math.exp(shape * lu);
+      const dt = t * 4 * EPS * (1 + Math.abs(shape * lu));
+      o.sf = Math.exp(-t);
+      o.cdf = -Math.expm1(-t);
+      o.pdf = x === 0 ? (shape < 1 ? Infinity : shape === 1 ? 1 / scale : 0) : ((shape / x) * t) * o.sf;
+      bounds(o, ELEM, ELEM + 4 * EPS * (1 + t + Math.abs(shape * lu)), 0);
+      o.sfErr += o.sf * dt;
+      o.cdfErr += o.sf * dt;
+      if (!Number.isFinite(o.pdf)) o.pdfErr = 0;
+    },
+    (p) => scale * Math.exp(Math.log(-Math.log1p(-p)) / shape),
+  );
+}
+
+export function uniformDirect(a: number, b: number): DirectLaw {
+  const w = b - a;
+  return law(
+    "closed-form",
+    [a, b],
+    0.5 * (a + b),
+    w / 2,
+    (x, o) => {
+      o.pdf = 1 / w;
+      o.cdf = (x - a) / w;
+      o.sf = (b - x) / w;
+      const dx = 2 * EPS * (Math.abs(x) + Math.abs(a) + Math.abs(b));
+      bounds(o, ELEM, ELEM, dx);
+    },
+    (p) => (p <= 0.5 ? a + p * w : b - (1 - p) * w),
+  );
+}
+
+export function cauchyDirect(loc: number, scale: number): DirectLaw {
+  return law(
+    "closed-form",
+    [-Infinity, Infinity],
+    loc,
+    scale,
+    (x, o) => {
+      const z = (x - loc) / scale;
+      const dz = 2 * EPS * (Math.abs(x) + Math.abs(loc)) / scale + EPS * Math.abs(z);
+      o.pdf = 1 / (Math.PI * scale * (1 + z * z));
+      o.cdf = Math.atan2(1, -z) / Math.PI;
+      o.sf = Math.atan2(1, z) / Math.PI;
+      bounds(o, ELEM, ELEM + 2 * Math.abs(z) * dz, dz * scale);
+    },
+    (p) => (p < 0.5 ? loc - scale / Math.tan(Math.PI * p) : p === 0.5 ? loc : loc + scale / Math.tan(Math.PI * (1 - p))),
+  );
+}
+
+export function logisticDirect(loc: number, scale: number): DirectLaw {
+  return law(
+    "closed-form",
+    [-Infinity, Infinity],
+    loc,
+    scale,
+    (x, o) => {
+      const z = (x - loc) / scale;
+      const dz = 2 * EPS * (Math.abs(x) + Math.abs(loc)) / scale + EPS * Math.abs(z);
+      const e = Math.exp(-Math.abs(z));
+      o.pdf = e / (scale * (1 + e) * (1 + e));
+      o.cdf = z >= 0 ? 1 / (1 + e) : e / (1 + e);
+      o.sf = z >= 0 ? e / (1 + e) : 1 / (1 + e);
+      bounds(o, ELEM, ELEM + 2 * dz, dz * scale);
+    },
+    (p) => loc + scale * (Math.log(p) - Math.log1p(-p)),
+  );
+}
+
+export function laplaceDirect(loc: number, scale: number): DirectLaw {
+  return law(
+    "closed-form",
+    [-Infinity, Infinity],
+    loc,
+    scale,
+    (x, o) => {
+      const z = (x - loc) / scale;
+      const dz = 2 * EPS * (Math.abs(x) + Math.abs(loc)) / scale + EPS * Math.abs(z);
+      const e = 0.5 * Math.exp(-Math.abs(z));
+      o.pdf = e / scale;
+      o.cdf = z < 0 ? e : 1 - e;
+      o.sf = z < 0 ? 1 - e : e;
+      bounds(o, ELEM, ELEM + 2 * dz, dz * scale);
+    },
+    (p) => (p < 0.5 ? loc + scale * Math.log(2 * p) : loc - scale * Math.log(2 * (1 - p))),
+  );
+}
+
+/** Student t: F(t) = I_{nu/(nu+t^2)}(nu/2, 1/2)/2 for t < 0 (A&S 26.7.1 with 26.5.27). */
+export function studentDirect(nu: number, loc: number, scale: number): DirectLaw {
+  const lc = lgamma((nu + 1) / 2) - lgamma(nu / 2) - 0.5 * Math.log(nu * Math.PI) - Math.log(scale);
+  return law(
+    "special-function",
+    [-Infinity, Infinity],
+    loc,
+    scale,
+    (x, o) => {
+      const t = (x - loc) / scale;
+      const dt = 2 * EPS * (Math.abs(x) + Math.abs(loc)) / scale + EPS * Math.abs(t);
+      const t2 = t * t;
+      const lp = lc - ((nu + 1) / 2) * Math.log1p(t2 / nu);
+      o.pdf = Math.exp(lp);
+      const xb = nu / (nu + t2);
+      // tail: half the regularised incomplete beta; body: through its complement in t^2/(nu + t^2)
+      const tail = t2 > nu ? 0.5 * betainc(xb, nu / 2, 0.5, true, false) : 0.5 * betainc(t2 / (nu + t2), 0.5, nu / 2, true, true);
+      const body = 1 - tail;
+      o.cdf = t < 0 ? tail : body;
+      o.sf = t < 0 ? body : tail;
+      bounds(o, SPECIAL, 1e-13 + 4 * EPS * (Math.abs(lp) + 1), dt * scale);
+    },
+    (p) => {
+      const q = Math.min(p, 1 - p);
+      // two-sided level 2q: t^2 = nu (1/x - 1) with x = I^{-1}_{2q}(nu/2, 1/2)
+      const xb = betaincinv(2 * q, nu / 2, 0.5);
+      const t = Math.sqrt(nu * (1 / xb - 1));
+      return loc + scale * (p < 0.5 ? -t : t);
+    },
+    "Student t cdf by the regularised incomplete beta function (stdlib betainc)",
+  );
+}

@@ -1,0 +1,45 @@
+/**
+ * Direct evaluation of a single named law: pdf, cdf and sf from a closed form, a special function or a
+ * one-dimensional integral representation, each value with an absolute error bound.
+ *
+ * A family declares it through the optional `direct` member of its spec (lib/cf/families/spec.ts):
+ * `direct(params) => DirectLaw | null`, where params are the validated model fields (defaults filled in).
+ * Return null for parameter values the direct route does not cover; the law is then inverted from its CF.
+ * A scaled or shifted family keeps its direct route (see ./affine.ts); sums, mixes and compounds do not.
+ *
+ * Contract, checked by tests against generated references (tests/fixtures/direct, tests/fixtures/stable):
+ *  - `at(x, out)` writes pdf, cdf and sf at x with absolute bounds pdfErr, cdfErr, sfErr that are never below
+ *    the actual error; cdf and sf are each computed directly (sf is not 1 - cdf in the upper tail), both lie in
+ *    [0, 1], and the cdf is non-decreasing in x within its bound.
+ *  - `quantile(p)`, when present, returns x with F(x) = p from a closed form or a special-function inverse; its
+ *    error bound is derived afterwards from the residual (see ./answer.ts), so it need not carry one. Without it,
+ *    quantiles come from a bracketed root search on `at`.
+ */
+export interface DirectLaw {
+  /** how the values are computed: "closed-form", "special-function" or "stable-integral" */
+  readonly method: DirectMethod;
+  /** [lo, hi] outside of which the density is zero */
+  readonly support: readonly [number, number];
+  /** a point inside the bulk and a positive spread, for brackets */
+  readonly center: number;
+  readonly spread: number;
+  at(x: number, out: DirectPoint): void;
+  quantile?(p: number): number;
+  /** short notes on the method (source of the formula, accuracy) */
+  readonly notes: string[];
+}
+
+export type DirectMethod = "closed-form" | "special-function" | "stable-integral";
+
+export interface DirectPoint {
+  pdf: number;
+  cdf: number;
+  sf: number;
+  pdfErr: number;
+  cdfErr: number;
+  sfErr: number;
+}
+
+export function directPoint(): DirectPoint {
+  return { pdf: 0, cdf: 0, sf: 0, pdfErr: 0, cdfErr: 0, sfErr: 0 };
+}

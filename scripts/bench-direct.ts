@@ -1,0 +1,90 @@
+// npm run bench:direct — single named laws through lib/cf's public entry points, answered without CF inversion:
+// stable laws at 1 000 arbitrary points (body and far tails, |x| up to 1e8), and seven quantiles (with ES) of single
+// families. Prints medians (wall clock) and the CPU time per call, so that a loaded machine still shows the cost.
+import { cpus, loadavg } from "node:os";
+import { compile } from "@/lib/cf/compile";
+import { density } from "@/lib/cf/invert/density";
+import { quantiles } from "@/lib/cf/invert/quantile";
+import type { Model } from "@/lib/cf/types";
+
+function median(xs: number[]): number {
+  const s = [...xs].sort((a, b) => a - b);
+  const m = s.length >> 1;
+  return s.length % 2 ? s[m] : 0.5 * (s[m - 1] + s[m]);
+}
+
+/** median wall ms and median CPU ms (user + system of this process) over runs after warm-up */
+function time(fn: () => unknown, runs = 15, warm = 3): { wall: number; cpu: number; worst: number } {
+  for (let i = 0; i < warm; i++) fn();
+  const w: number[] = [];
+  const c: number[] = [];
+  for (let i = 0; i < runs; i++) {
+    const c0 = process.cpuUsage();
+    const t0 = performance.now();
+    fn();
+    w.push(performance.now() - t0);
+    const d = process.cpuUsage(c0);
+    c.push((d.user + d.system) / 1000);
+  }
+  return { wall: median(w), cpu: median(c), worst: Math.max(...w) };
+}
+
+let seed = 20261203;
+const rnd = () => {
+  seed = (seed * 1103515245 + 12345) % 2147483648;
+  return seed / 2147483648;
+};
+/** half the points log-uniform in |x| over [1e-3, 1e8] with random sign, half uniform in [-10, 10] */
+function points(n: number): Float64Array {
+  const x = new Float64Array(n);
+  for (let i = 0; i < n; i++) x[i] = i % 2 ? (rnd() < 0.5 ? -1 : 1) * 10 ** (-3 + 11 * rnd()) : -10 + 20 * rnd();
+  return x;
+}
+
+const rows: string[] = [];
+const stable: [number, number, "S0" | "S1"][] = [
+  [0.3, 0.5, "S1"],
+  [0.5, 0.5, "S1"],
+  [0.8, 0, "S1"],
+  [0.8, 1, "S0"],
+  [1, 0.5, "S1"],
+  [1, -0.9, "S0"],
+  [1.1, 0.4, "S1"],
+  [1.5, 0.7, "S0"],
+  [1.5, -1, "S1"],
+  [1.9, 0.9, "S1"],
+];
+for (const [alpha, beta, param] of stable) {
+  const m = compile({ family: "stable", alpha, beta, param } as Model);
+  const x = points(1000);
+  const first = performance.now();
+  const r = density(m, { x });
+  const firstMs = performance.now() - first;
+  const t = time(() => density(m, { x }));
+  rows.push(
+    `stable(${alpha}, ${beta}, ${param}) 1000 arbitrary points`.padEnd(52) +
+      `${t.wall.toFixed(2)} ms wall, ${t.cpu.toFixed(2)} ms cpu (first call with node set-up ${firstMs.toFixed(1)} ms)  ` +
+      `method ${r.diagnostics.method}, max bound pdf ${r.diagnostics.error.pdf!.toExponential(1)} cdf ${r.diagnostics.error.cdf.toExponential(1)}`,
+  );
+}
+
+const levels = [0.001, 0.01, 0.1, 0.5, 0.9, 0.99, 0.999];
+const singles: Model[] = [
+  { family: "pareto", alpha: 1.53, xm: 1.82 },
+  { family: "lognormal", mu: 8, sigma: 1.2 },
+  { family: "gamma", shape: 1.56, rate: 2 },
+  { family: "weibull", shape: 0.7, scale: 3 },
+  { family: "student_t", nu: 3.5, loc: 0, scale: 1 },
+  { scale: 2, of: { shift: 1, of: { family: "normal", mu: 0, sigma: 1 } } },
+  { family: "stable", alpha: 1.28, beta: 0.59 },
+] as Model[];
+for (const m of singles) {
+  const c = compile(m);
+  const t = time(() => quantiles(c, levels, { expectedShortfall: true }), 9, 2);
+  const r = quantiles(c, levels, { expectedShortfall: true });
+  const qe = Math.max(...Array.from(r.diagnostics.quantileError, (e, i) => e / Math.max(1, Math.abs(r.x[i]))));
+  rows.push(`7 quantiles + ES of ${JSON.stringify(m)}`.slice(0, 90).padEnd(92) + `${t.wall.toFixed(2)} ms wall, ${t.cpu.toFixed(2)} ms cpu  method ${r.diagnostics.method}, max rel quantile bound ${qe.toExponential(1)}`);
+}
+
+console.log(`bench:direct (medians; load average ${loadavg()[0].toFixed(1)} on ${cpus().length} cores)`);
+for (const r of rows) console.log(r);
