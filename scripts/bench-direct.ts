@@ -14,7 +14,7 @@ function median(xs: number[]): number {
 }
 
 /** median wall ms and median CPU ms (user + system of this process) over runs after warm-up */
-function time(fn: () => unknown, runs = 15, warm = 3): { wall: number; cpu: number; worst: number } {
+function time(fn: () => unknown, runs = 5, warm = 1): { wall: number; cpu: number; worst: number } {
   for (let i = 0; i < warm; i++) fn();
   const w: number[] = [];
   const c: number[] = [];
@@ -41,7 +41,7 @@ function points(n: number): Float64Array {
   return x;
 }
 
-const rows: string[] = [];
+console.log(`bench:direct (medians; load average ${loadavg()[0].toFixed(1)} on ${cpus().length} cores)`);
 const stable: [number, number, "S0" | "S1"][] = [
   [0.3, 0.5, "S1"],
   [0.5, 0.5, "S1"],
@@ -61,7 +61,7 @@ for (const [alpha, beta, param] of stable) {
   const r = density(m, { x });
   const firstMs = performance.now() - first;
   const t = time(() => density(m, { x }));
-  rows.push(
+  console.log(
     `stable(${alpha}, ${beta}, ${param}) 1000 arbitrary points`.padEnd(52) +
       `${t.wall.toFixed(2)} ms wall, ${t.cpu.toFixed(2)} ms cpu (first call with node set-up ${firstMs.toFixed(1)} ms)  ` +
       `method ${r.diagnostics.method}, max bound pdf ${r.diagnostics.error.pdf!.toExponential(1)} cdf ${r.diagnostics.error.cdf.toExponential(1)}`,
@@ -80,11 +80,9 @@ const singles: Model[] = [
 ] as Model[];
 for (const m of singles) {
   const c = compile(m);
-  const t = time(() => quantiles(c, levels, { expectedShortfall: true }), 9, 2);
+  const t = time(() => quantiles(c, levels, { expectedShortfall: true }));
   const r = quantiles(c, levels, { expectedShortfall: true });
   const qe = Math.max(...Array.from(r.diagnostics.quantileError, (e, i) => e / Math.max(1, Math.abs(r.x[i]))));
-  rows.push(`7 quantiles + ES of ${JSON.stringify(m)}`.slice(0, 90).padEnd(92) + `${t.wall.toFixed(2)} ms wall, ${t.cpu.toFixed(2)} ms cpu  method ${r.diagnostics.method}, max rel quantile bound ${qe.toExponential(1)}`);
+  console.log(`7 quantiles + ES of ${JSON.stringify(m)}`.slice(0, 90).padEnd(92) + `${t.wall.toFixed(2)} ms wall, ${t.cpu.toFixed(2)} ms cpu  method ${r.diagnostics.method}, max rel quantile bound ${qe.toExponential(1)}`);
 }
 
-console.log(`bench:direct (medians; load average ${loadavg()[0].toFixed(1)} on ${cpus().length} cores)`);
-for (const r of rows) console.log(r);

@@ -138,7 +138,7 @@ export function directQuantile(law: DirectLaw, p: number): { x: number; err: num
 /** Walk out from the estimate until the cdf bounds exclude p on both sides; the walk gives the error bound. */
 function refineBounds(probe: (x: number) => Probe, c: Probe, lo: number, hi: number): { x: number; err: number } {
   const x = c.x;
-  const base = Math.max(4 * Number.EPSILON * Math.abs(x), c.f > 0 ? (2 * (Math.abs(c.r) + c.e)) / c.f : 0, Number.MIN_VALUE);
+  const base = Math.max(4 * Number.EPSILON * Math.abs(x), c.f > 0 ? (1.25 * (Math.abs(c.r) + c.e)) / c.f : 0, Number.MIN_VALUE);
   const walk = (dir: 1 | -1): number => {
     let d = base;
     for (let k = 0; k < 200; k++) {
@@ -147,7 +147,7 @@ function refineBounds(probe: (x: number) => Probe, c: Probe, lo: number, hi: num
       if (dir > 0 && xe >= hi) return hi - x;
       const q = probe(xe);
       if (dir < 0 ? q.r + q.e < 0 : q.r - q.e > 0) return d;
-      d *= 2;
+      d *= 1.5;
       xe = x + dir * d;
     }
     return Infinity;
