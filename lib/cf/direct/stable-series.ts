@@ -46,7 +46,7 @@ export function stableTailSeries(alpha: number, beta: number, z: number): Series
     // a series whose terms grow from the start (z too small) or overflow is not used
     if (!Number.isFinite(mag) || (k === 2 && mag > prevSf)) return null;
     // each term is exp(argument): its relative error is about eps times the argument's size (plus lgamma's ~1e-15)
-    const termRel = 4e-15 + 2 * Number.EPSILON * Math.abs(base + lgamma(k * alpha + 1));
+    const termRel = 2e-14 + 4 * Number.EPSILON * Math.abs(base + lgamma(k * alpha + 1));
     // the size of a term regardless of its sine (which may vanish by accident)
     if (mag > prevSf && alpha > 1) break; // asymptotic series: stop before the terms grow
     if (k > 1 && mag <= 1e-13 * Math.abs(sf) && Math.exp(base + lgamma(k * alpha + 1) - lz) <= 1e-13 * Math.abs(pdf)) {
