@@ -33,7 +33,8 @@ export function directDensity(law: DirectLaw, xs: Float64Array, modelNotes: stri
       terms: 0,
       frequencyStep: 0,
       maxFrequency: 0,
-      range: { from: law.support[0], to: law.support[1] },
+      // the span of the points evaluated (the support may be infinite, and diagnostics are finite numbers)
+      range: span(xs, law),
       capturedMass: 1,
       error: { aliasing: 0, truncation: 0, rounding: Math.max(ePdf, eCdf), pdf: ePdf, cdf: eCdf },
       levels: 1,
@@ -271,11 +272,23 @@ export function directQuantiles(
     diagnostics: {
       method: law.method,
       terms: 0,
-      range: { from: law.support[0], to: law.support[1] },
+      range: span(x, law),
       cdfError: maxCdf,
       quantileError: err,
       expectedShortfallError: esErr,
       notes: [...law.notes, ...(wantEs && (index.right <= 1 || mean === null) ? ["expected shortfall does not exist: the law has no finite mean"] : []), ...modelNotes],
     },
   };
+}
+
+/** Smallest and largest finite value of xs (the law's center when there is none). */
+function span(xs: Float64Array, law: DirectLaw): { from: number; to: number } {
+  let from = Infinity;
+  let to = -Infinity;
+  for (const v of xs) {
+    if (!Number.isFinite(v)) continue;
+    if (v < from) from = v;
+    if (v > to) to = v;
+  }
+  return from <= to ? { from, to } : { from: law.center, to: law.center };
 }
