@@ -22,6 +22,8 @@ export function catalogueResponse() {
         cf: f.cf,
         cfMethod: f.cfMethod,
         moments: f.moments,
+        momentExistence: f.momentExistence ?? "all",
+        tailIndex: f.tailIndex ?? "none",
         source: f.source,
       };
     }),

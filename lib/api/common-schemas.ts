@@ -32,6 +32,18 @@ export const ModelRef: z.ZodType = z
         .object({ compound: z.object({ count: ModelRef, each: ModelRef }).strict() })
         .strict()
         .openapi("CompoundNode", { description: "random sum of `count` (a law on 0, 1, 2, ...) independent copies of `each`" }),
+      z
+        .object({
+          layer: z
+            .object({ deductible: z.number().min(0).optional(), limit: z.number().positive().optional(), share: z.number().positive().max(1).optional() })
+            .strict(),
+          of: ModelRef,
+        })
+        .strict()
+        .openapi("LayerNode", {
+          description:
+            "per-claim layer: share * min(max(X - deductible, 0), limit) for one claim X (deductible 0, limit unlimited, share 1 when left out); X a named law with a closed-form cdf, a lattice or a sample",
+        }),
       LatticeSchema,
       SampleSchema,
       DatasetRef,
@@ -39,7 +51,7 @@ export const ModelRef: z.ZodType = z
   )
   .openapi("Model", {
     description:
-      "A model in Sumfold's notation: a named law { family, ...parameters }, or sum, scale, shift, repeat, mix, compound, lattice, sample or dataset. See /docs/models.",
+      "A model in Sumfold's notation: a named law { family, ...parameters }, or sum, scale, shift, repeat, mix, compound, layer, lattice, sample or dataset. See /docs/models.",
   });
 
 const finite = (what: string) => z.number({ error: `${what} must be a finite number` });

@@ -24,15 +24,10 @@ export interface CatalogueEntry {
   moments: string;
   /** machine-readable moment existence: "all", "none", or "below:<param>" (orders strictly below that parameter) */
   momentExistence: string;
+  /** right-tail index as text ("none": lighter than any power; "bounded": bounded support) */
+  tailIndex: string;
   source: string;
 }
-
-const EXISTENCE: Partial<Record<FamilyName, string>> = {
-  cauchy: "none",
-  student_t: "below:nu",
-  stable: "below:alpha (all when alpha = 2)",
-  pareto: "below:alpha",
-};
 
 /** The family catalogue served by GET /api/v1/families (plain JSON: no Infinity, no functions). */
 export function familyCatalogue(): CatalogueEntry[] {
@@ -57,7 +52,8 @@ export function familyCatalogue(): CatalogueEntry[] {
       characteristicFunction: s.cf,
       cfMethod: s.cfMethod,
       moments: s.moments,
-      momentExistence: EXISTENCE[name] ?? "all",
+      momentExistence: s.momentExistence ?? "all",
+      tailIndex: s.tailIndex ?? "none",
       source: s.source,
     };
   });

@@ -6,10 +6,7 @@ import type { Node } from "./node";
 import { validateModel } from "./validate";
 import { toLawKind } from "./kinds";
 import { MAX_LATTICE } from "./limits";
-import { cauchy, gammaLaw, laplace, logistic, nig, normal, studentT, uniform, varianceGamma } from "./families/continuous";
-import { stable } from "./families/stable";
-import { lognormal, pareto, weibull } from "./families/numeric";
-import { binomial, negativeBinomial, point, poisson } from "./families/discrete";
+import { layerNode } from "./layer";
 import type { DiscretiseOptions } from "./discretise";
 import { compoundNode, latticeNode, mixNode, repeatNode, sampleNode, scaleNode, shiftNode, sumNode } from "./operators";
 
@@ -27,7 +24,7 @@ export interface CompileOptions {
 export function buildNode(m: Model, opts: CompileOptions = {}): Node {
   const buildNode_ = (x: Model) => buildNode(x, opts);
   if ("family" in m) {
-    const node = familyNode(m);
+    const node = FAMILY_SPECS[m.family].build(m);
     const direct = FAMILY_SPECS[m.family].direct?.(m as unknown as FamilyParams);
     if (direct) node.direct = direct;
     return node;
@@ -48,57 +45,10 @@ export function buildNode(m: Model, opts: CompileOptions = {}): Node {
   return operatorNode(m, buildNode_, opts);
 }
 
-function familyNode(m: FamilyModel): Node {
-  {
-    switch (m.family) {
-      case "normal":
-        return normal(m.mu, m.sigma);
-      case "cauchy":
-        return cauchy(m.loc, m.scale);
-      case "uniform":
-        return uniform(m.a, m.b);
-      case "exponential":
-        return gammaLaw(1, m.rate);
-      case "gamma":
-        return gammaLaw(m.shape, m.rate);
-      case "chi_squared":
-        return gammaLaw(m.k / 2, 0.5);
-      case "laplace":
-        return laplace(m.loc, m.scale);
-      case "logistic":
-        return logistic(m.loc, m.scale);
-      case "student_t":
-        return studentT(m.nu, m.loc ?? 0, m.scale ?? 1);
-      case "stable":
-        return stable(m.alpha, m.beta, m.scale ?? 1, m.loc ?? 0, m.param ?? "S1");
-      case "variance_gamma":
-        return varianceGamma(m.sigma, m.nu, m.theta, m.loc ?? 0);
-      case "nig":
-        return nig(m.alpha, m.beta, m.delta, m.mu ?? 0);
-      case "lognormal":
-        return lognormal(m.mu, m.sigma);
-      case "pareto":
-        return pareto(m.alpha, m.xm);
-      case "weibull":
-        return weibull(m.shape, m.scale);
-      case "point":
-        return point(m.at);
-      case "bernoulli":
-        return binomial(1, m.p);
-      case "binomial":
-        return binomial(m.n, m.p);
-      case "poisson":
-        return poisson(m.lambda);
-      case "negative_binomial":
-        return negativeBinomial(m.r, m.p);
-      case "geometric":
-        return negativeBinomial(1, m.p);
-    }
-  }
-  throw new Error("unreachable: validated family without a node");
-}
 
-function operatorNode(m: Model, buildNode_: (x: Model) => Node, opts: CompileOptions): Node {
+function operatorNode(mIn: Model, buildNode_: (x: Model) => Node, opts: CompileOptions): Node {
+  const m = mIn as Exclude<Model, FamilyModel>;
+  if ("layer" in m) return layerNode(buildNode_(m.of), m.layer);
   if ("repeat" in m) return repeatNode(m.repeat, buildNode_(m.of));
   if ("mix" in m) return mixNode(m.mix.map((c) => c.weight), m.mix.map((c) => buildNode_(c.of)));
   if ("compound" in m) return compoundNode(buildNode_(m.compound.count), buildNode_(m.compound.each), opts.discretise === false ? null : (opts.discretise ?? { auto: true }));

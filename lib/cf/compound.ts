@@ -14,6 +14,9 @@ const collectNotes = (cs: Node[]) => [...new Set(cs.flatMap((c) => c.notes))];
 export function compoundNode(N: Node, X: Node, discretise: DiscretiseOptions | null = {}): Node {
   if (X.severity && X.kind.type === "continuous" && N.countCgf && discretise && !(discretise.auto && X.severity.name === "lognormal"))
     return discretisedNode(N, X, discretise);
+  // a per-claim layer's severity has atoms (at 0 and at the limit) besides its density: always discretised
+  if (X.severity?.atoms && N.countCgf)
+    return discretisedNode(N, X, discretise ?? {});
   const P0 = N.p0 ?? 0;
   let kind: NodeKind;
   const own: string[] = [];
@@ -209,7 +212,7 @@ function compoundTable(N: Node, X: Node, kind: { step: number }, maxLength: numb
   }
   if (N.panjer) {
     if (len * sev.length <= 4e8) {
-      const p = panjer({ a: N.panjer.a, b: N.panjer.b, pgf: (z) => pgfAt(N, z) }, sev, len);
+      const p = panjer({ a: N.panjer.a, b: N.panjer.b, c1: N.panjer.c1, pgf: (z) => pgfAt(N, z) }, sev, len);
       if (p) {
         let s = 0;
         for (let i = 0; i < p.length; i++) s += p[i];

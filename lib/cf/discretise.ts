@@ -17,6 +17,8 @@ export interface SeverityLaw {
   tailIndex: number;
   /** density unbounded or not smooth at 0 (weibull): the first cell is integrated after x = b u^m */
   rootAtZero: number;
+  /** point masses beside the density (a per-claim layer's atoms at 0 and at share * limit), placed exactly */
+  atoms?: { x: number; p: number }[];
 }
 
 /** Options that decide the lattice of a discretised compound. */
@@ -126,6 +128,17 @@ export function discretiseSeverity(sev: SeverityLaw, h: number, len: number): { 
     mp[j + 1] += B;
     down[j] += A + B;
     up[j + 1] += A + B;
+  }
+  // atoms: on a lattice point exactly; between two points split mean-preserving, rounded down and up
+  for (const at of sev.atoms ?? []) {
+    const r = at.x / h;
+    const j = Math.floor(r + 1e-9);
+    if (j >= len - 1) continue;
+    const frac = Math.abs(r - Math.round(r)) < 1e-9 ? 0 : r - j;
+    mp[j] += at.p * (1 - frac);
+    if (frac > 0) mp[j + 1] += at.p * frac;
+    down[j] += at.p;
+    up[frac > 0 ? j + 1 : j] += at.p;
   }
   return { mp, down, up };
 }

@@ -2,6 +2,7 @@ import type { Atom, LatticeTable } from "./types";
 import type { SeverityLaw } from "./discretise";
 import type { DampedLogCf } from "./damped-cf";
 import type { DirectLaw } from "./direct/types";
+import type { DirectLaw as DistLaw } from "./families/dist";
 
 /**
  * Internal kind, richer than the public LawKind: a lattice with step 0 is a single point, and lattice/discrete
@@ -32,7 +33,7 @@ export interface Node {
   /** for laws on 0,1,2,...: log E[e^{w N}] at complex w (Re w <= 0), into (re, im), continuous along the index */
   countCgf?(wr: Float64Array, wi: Float64Array, re: Float64Array, im: Float64Array): void;
   /** (a, b, 0) class membership: P(N=k) = (a + b/k) P(N=k-1), k >= 1 (Loss Models, (a, b, 0) class; recalled from memory) */
-  panjer?: { a: number; b: number; p0: number };
+  panjer?: { a: number; b: number; p0: number; c1?: number };
   /** infinitely divisible (a, b, 0) counts: the (a, b, 0) law whose m-fold sum is this one, with its pgf */
   divide?: (m: number) => { a: number; b: number; pgf: (z: number) => number };
   /** P(N = 0) for laws on 0,1,2,... */
@@ -41,6 +42,8 @@ export interface Node {
   severity?: SeverityLaw;
   /** direct evaluation of a single named law (kept through scale and shift, dropped by every other operator) */
   direct?: DirectLaw;
+  /** closed-form pdf, cdf and sf (named continuous laws): the per-claim layer integrates against them */
+  dist?: DistLaw;
   /** the table is an approximation of the law (discretised severity): kept even when it drops more than USEFUL_TAIL */
   approximate?: boolean;
   /** log E[exp((i t - beta) X)] for laws bounded below (damped inversion), where available */

@@ -1,5 +1,5 @@
 import { z } from "zod";
-import { FAMILY_SPECS, type FamilyName, type ParamSpec } from "./families/spec";
+import { FAMILY_NAMES, FAMILY_SPECS, type FamilyName, type ParamSpec } from "./families/spec";
 import { MAX_LATTICE, MAX_REPEAT, MAX_SAMPLE } from "./limits";
 
 /** Tolerances of the notation (issue 3): mixture weights and lattice probabilities must sum to 1 within these. */
@@ -7,28 +7,8 @@ export const MIX_WEIGHT_TOLERANCE = 1e-12;
 export const LATTICE_SUM_TOLERANCE = 1e-9;
 
 // ---- TypeScript shape of the notation (fields with defaults are optional) ----
-export type FamilyModel =
-  | { family: "normal"; mu: number; sigma: number }
-  | { family: "cauchy"; loc: number; scale: number }
-  | { family: "uniform"; a: number; b: number }
-  | { family: "exponential"; rate: number }
-  | { family: "gamma"; shape: number; rate: number }
-  | { family: "chi_squared"; k: number }
-  | { family: "laplace"; loc: number; scale: number }
-  | { family: "logistic"; loc: number; scale: number }
-  | { family: "student_t"; nu: number; loc?: number; scale?: number }
-  | { family: "stable"; alpha: number; beta: number; scale?: number; loc?: number; param?: "S0" | "S1" }
-  | { family: "variance_gamma"; sigma: number; nu: number; theta: number; loc?: number }
-  | { family: "nig"; alpha: number; beta: number; delta: number; mu?: number }
-  | { family: "lognormal"; mu: number; sigma: number }
-  | { family: "pareto"; alpha: number; xm: number }
-  | { family: "weibull"; shape: number; scale: number }
-  | { family: "point"; at: number }
-  | { family: "bernoulli"; p: number }
-  | { family: "binomial"; n: number; p: number }
-  | { family: "poisson"; lambda: number }
-  | { family: "negative_binomial"; r: number; p: number }
-  | { family: "geometric"; p: number };
+/** A named law: { family, ...parameters } as listed in FAMILY_SPECS. */
+export type FamilyModel = { family: FamilyName } & { [param: string]: number | string };
 
 export interface SumModel { sum: Model[] }
 export interface ScaleModel { scale: number; of: Model }
@@ -39,6 +19,8 @@ export interface CompoundModel { compound: { count: Model; each: Model } }
 export interface LatticeModel { lattice: { origin: number; step: number; p: number[] } }
 /** Empirical law: mass w_i / sum(w) at sample[i] (w_i = 1 when weights are absent); repeated values merge. */
 export interface SampleModel { sample: number[]; weights?: number[] }
+/** Per-claim layer: share * min(max(X - deductible, 0), limit). */
+export interface LayerModel { layer: { deductible?: number; limit?: number; share?: number }; of: Model }
 
 export type Model =
   | FamilyModel
@@ -49,7 +31,8 @@ export type Model =
   | MixModel
   | CompoundModel
   | LatticeModel
-  | SampleModel;
+  | SampleModel
+  | LayerModel;
 
 // ---- zod schemas (request schemas of the API; recursion through z.lazy) ----
 function rangeText(s: ParamSpec): string {
@@ -77,80 +60,28 @@ function numD(family: FamilyName, name: string) {
   return num(family, name).default(paramSpec(family, name).default as number);
 }
 
-const fam = <N extends FamilyName>(name: N) => z.literal(name);
+function familySchema(name: FamilyName) {
+  const spec = FAMILY_SPECS[name];
+  const shape: Record<string, z.ZodType> = { family: z.literal(name) };
+  for (const p of spec.params) {
+    if (p.values) shape[p.name] = z.enum(p.values as [string, ...string[]]).default(p.default as string).describe(p.doc);
+    else shape[p.name] = p.default !== undefined ? numD(name, p.name) : num(name, p.name);
+  }
+  const obj = z.object(shape).strict();
+  const check = spec.check;
+  return check
+    ? obj.superRefine((m, ctx) => {
+        const r = check(m);
+        if (r) ctx.addIssue({ code: "custom", message: r.detail, path: [r.param] });
+      })
+    : obj;
+}
 
-export const NormalSchema = z.object({ family: fam("normal"), mu: num("normal", "mu"), sigma: num("normal", "sigma") }).strict();
-export const CauchySchema = z.object({ family: fam("cauchy"), loc: num("cauchy", "loc"), scale: num("cauchy", "scale") }).strict();
-export const UniformSchema = z
-  .object({ family: fam("uniform"), a: num("uniform", "a"), b: num("uniform", "b") })
-  .strict()
-  .refine((m) => m.b > m.a, { error: "uniform.b must be greater than uniform.a", path: ["b"] });
-export const ExponentialSchema = z.object({ family: fam("exponential"), rate: num("exponential", "rate") }).strict();
-export const GammaSchema = z.object({ family: fam("gamma"), shape: num("gamma", "shape"), rate: num("gamma", "rate") }).strict();
-export const ChiSquaredSchema = z.object({ family: fam("chi_squared"), k: num("chi_squared", "k") }).strict();
-export const LaplaceSchema = z.object({ family: fam("laplace"), loc: num("laplace", "loc"), scale: num("laplace", "scale") }).strict();
-export const LogisticSchema = z.object({ family: fam("logistic"), loc: num("logistic", "loc"), scale: num("logistic", "scale") }).strict();
-export const StudentTSchema = z
-  .object({ family: fam("student_t"), nu: num("student_t", "nu"), loc: numD("student_t", "loc"), scale: numD("student_t", "scale") })
-  .strict();
-export const StableSchema = z
-  .object({
-    family: fam("stable"),
-    alpha: num("stable", "alpha"),
-    beta: num("stable", "beta"),
-    scale: numD("stable", "scale"),
-    loc: numD("stable", "loc"),
-    param: z.enum(["S0", "S1"]).default("S1").describe("Nolan parameterisation S0 or S1"),
-  })
-  .strict();
-export const VarianceGammaSchema = z
-  .object({
-    family: fam("variance_gamma"),
-    sigma: num("variance_gamma", "sigma"),
-    nu: num("variance_gamma", "nu"),
-    theta: num("variance_gamma", "theta"),
-    loc: numD("variance_gamma", "loc"),
-  })
-  .strict();
-export const NigSchema = z
-  .object({ family: fam("nig"), alpha: num("nig", "alpha"), beta: num("nig", "beta"), delta: num("nig", "delta"), mu: numD("nig", "mu") })
-  .strict()
-  .refine((m) => Math.abs(m.beta) < m.alpha, { error: "nig.beta must satisfy |beta| < alpha", path: ["beta"] });
-export const LognormalSchema = z.object({ family: fam("lognormal"), mu: num("lognormal", "mu"), sigma: num("lognormal", "sigma") }).strict();
-export const ParetoSchema = z.object({ family: fam("pareto"), alpha: num("pareto", "alpha"), xm: num("pareto", "xm") }).strict();
-export const WeibullSchema = z.object({ family: fam("weibull"), shape: num("weibull", "shape"), scale: num("weibull", "scale") }).strict();
-export const PointSchema = z.object({ family: fam("point"), at: num("point", "at") }).strict();
-export const BernoulliSchema = z.object({ family: fam("bernoulli"), p: num("bernoulli", "p") }).strict();
-export const BinomialSchema = z.object({ family: fam("binomial"), n: num("binomial", "n"), p: num("binomial", "p") }).strict();
-export const PoissonSchema = z.object({ family: fam("poisson"), lambda: num("poisson", "lambda") }).strict();
-export const NegativeBinomialSchema = z
-  .object({ family: fam("negative_binomial"), r: num("negative_binomial", "r"), p: num("negative_binomial", "p") })
-  .strict();
-export const GeometricSchema = z.object({ family: fam("geometric"), p: num("geometric", "p") }).strict();
-
-export const FamilySchema = z.discriminatedUnion("family", [
-  NormalSchema,
-  CauchySchema,
-  UniformSchema,
-  ExponentialSchema,
-  GammaSchema,
-  ChiSquaredSchema,
-  LaplaceSchema,
-  LogisticSchema,
-  StudentTSchema,
-  StableSchema,
-  VarianceGammaSchema,
-  NigSchema,
-  LognormalSchema,
-  ParetoSchema,
-  WeibullSchema,
-  PointSchema,
-  BernoulliSchema,
-  BinomialSchema,
-  PoissonSchema,
-  NegativeBinomialSchema,
-  GeometricSchema,
-]);
+/** One schema per family, generated from FAMILY_SPECS. */
+export const FamilySchema = z.discriminatedUnion(
+  "family",
+  FAMILY_NAMES.map(familySchema) as unknown as [ReturnType<typeof familySchema>, ...ReturnType<typeof familySchema>[]],
+);
 
 const finite = (what: string) => z.number({ error: `${what} must be a finite number` });
 const lazyModel = z.lazy(() => ModelSchema);
@@ -200,6 +131,19 @@ export const LatticeSchema = z
     error: `lattice.p must sum to 1 within ${LATTICE_SUM_TOLERANCE}`,
     path: ["lattice", "p"],
   });
+const finiteOpt = (what: string) => z.number({ error: `${what} must be a finite number` });
+export const LayerSchema = z
+  .object({
+    layer: z
+      .object({
+        deductible: finiteOpt("layer.deductible").gte(0, { error: "layer.deductible must be >= 0" }).optional().describe("each claim's retention d (default 0)"),
+        limit: finiteOpt("layer.limit").gt(0, { error: "layer.limit must be > 0" }).optional().describe("the most paid per claim above the deductible, l (default unlimited)"),
+        share: finiteOpt("layer.share").gt(0, { error: "layer.share must be > 0" }).lte(1, { error: "layer.share must be <= 1" }).optional().describe("the share c of the layer taken (default 1)"),
+      })
+      .strict(),
+    of: lazyModel,
+  })
+  .strict();
 export const SampleSchema = z
   .object({
     sample: z
@@ -232,4 +176,5 @@ export const ModelSchema: z.ZodType<Model> = z.union([
   CompoundSchema,
   LatticeSchema,
   SampleSchema,
+  LayerSchema,
 ]) as unknown as z.ZodType<Model>;

@@ -4,7 +4,7 @@ import { MAX_DEPTH, MAX_LATTICE, MAX_MODEL_NODES, MAX_REPEAT, MAX_SAMPLE } from 
 import { LATTICE_SUM_TOLERANCE, MIX_WEIGHT_TOLERANCE, type FamilyModel, type Model } from "./schema";
 
 type Path = (string | number)[];
-const OPERATORS = ["sum", "scale", "shift", "repeat", "mix", "compound", "lattice", "sample"] as const;
+const OPERATORS = ["sum", "scale", "shift", "repeat", "mix", "compound", "lattice", "sample", "layer"] as const;
 
 interface Ctx {
   issues: CfIssue[];
@@ -72,32 +72,42 @@ function checkFamily(ctx: Ctx, o: Record<string, unknown>, path: Path): FamilyMo
     }
     out[p.name] = v;
   }
-  if (ctx.issues.length === before) {
-    if (name === "uniform" && !((out.b as number) > (out.a as number)))
-      add(ctx, [...path, "b"], `uniform.b (${out.b}) must be greater than uniform.a (${out.a}).`);
-    if (name === "nig" && !(Math.abs(out.beta as number) < (out.alpha as number)))
-      add(ctx, [...path, "beta"], `nig.beta (${out.beta}) must satisfy |beta| < alpha (${out.alpha}).`);
+  if (ctx.issues.length === before && spec.check) {
+    const r = spec.check(out);
+    if (r) add(ctx, [...path, r.param], r.detail);
   }
   return ctx.issues.length === before ? (out as FamilyModel) : null;
+}
+
+/** Named laws the per-claim layer integrates against (those with a closed-form pdf and cdf). */
+export const LAYERABLE: ReadonlySet<string> = new Set([
+  "normal",
+  "uniform",
+  "exponential",
+  "gamma",
+  "chi_squared",
+  "lognormal",
+  "pareto",
+  "weibull",
+  "lomax",
+  "generalized_pareto",
+  "burr",
+  "loglogistic",
+  "inverse_gaussian",
+  "inverse_gamma",
+  "triangular",
+]);
+
+function layerable(m: Model): boolean {
+  if ("family" in m) return LAYERABLE.has(m.family) && !(m.family === "generalized_pareto" && (m.xi as number) < 0);
+  if ("lattice" in m || "sample" in m) return true;
+  return false;
 }
 
 /** True when the (already checked) model is a law on 0, 1, 2, ... */
 export function isCountLaw(m: Model): boolean {
   const isNat = (x: number) => Number.isInteger(x) && x >= 0;
-  if ("family" in m) {
-    switch (m.family) {
-      case "bernoulli":
-      case "binomial":
-      case "poisson":
-      case "negative_binomial":
-      case "geometric":
-        return true;
-      case "point":
-        return isNat(m.at);
-      default:
-        return false;
-    }
-  }
+  if ("family" in m) return m.family === "point" ? isNat(m.at as number) : FAMILY_SPECS[m.family].count === true;
   if ("sum" in m) return m.sum.every(isCountLaw);
   if ("repeat" in m) return isCountLaw(m.of);
   if ("shift" in m) return isNat(m.shift) && isCountLaw(m.of);
@@ -221,7 +231,7 @@ function walk(ctx: Ctx, v: unknown, path: Path, depth: number): Model | null {
         add(
           ctx,
           [...path, "compound", "count"],
-          `The count of a compound must be a law on 0, 1, 2, ... (poisson, binomial, negative_binomial, geometric, bernoulli, a point at a whole number, or a lattice/sample of whole numbers).`,
+          `The count of a compound must be a law on 0, 1, 2, ... (${FAMILY_NAMES.filter((f) => FAMILY_SPECS[f].count).join(", ")}, a point at a whole number, or a lattice/sample of whole numbers).`,
         );
       return ctx.issues.length === before && !ctx.limit && count && each ? { compound: { count, each } } : null;
     }
@@ -255,6 +265,41 @@ function walk(ctx: Ctx, v: unknown, path: Path, depth: number): Model | null {
       if (ctx.issues.length === before && Math.abs(total - 1) > LATTICE_SUM_TOLERANCE)
         add(ctx, [...at, "p"], `lattice.p sums to ${total}; it must sum to 1 (within ${LATTICE_SUM_TOLERANCE}). Normalise the probabilities.`);
       return ctx.issues.length === before ? { lattice: { origin: l.origin as number, step: l.step as number, p: p as number[] } } : null;
+    }
+    case "layer": {
+      unknownKeys(ctx, v, ["layer", "of"], path, "a per-claim layer");
+      const l = v.layer;
+      const at: Path = [...path, "layer"];
+      if (!isObj(l)) {
+        add(ctx, at, `"layer" must be { "deductible": d, "limit": l, "share": c } (each optional).`);
+        return null;
+      }
+      unknownKeys(ctx, l, ["deductible", "limit", "share"], at, "a layer");
+      const out: { deductible?: number; limit?: number; share?: number } = {};
+      if (l.deductible !== undefined && finiteNumber(ctx, l.deductible, [...at, "deductible"], "layer.deductible")) {
+        if (l.deductible < 0) add(ctx, [...at, "deductible"], `layer.deductible must be >= 0, got ${l.deductible}.`);
+        else out.deductible = l.deductible;
+      }
+      if (l.limit !== undefined && finiteNumber(ctx, l.limit, [...at, "limit"], "layer.limit")) {
+        if (!(l.limit > 0)) add(ctx, [...at, "limit"], `layer.limit must be > 0 (leave it out for an unlimited layer), got ${l.limit}.`);
+        else out.limit = l.limit;
+      }
+      if (l.share !== undefined && finiteNumber(ctx, l.share, [...at, "share"], "layer.share")) {
+        if (!(l.share > 0 && l.share <= 1)) add(ctx, [...at, "share"], `layer.share must be in (0, 1], got ${l.share}.`);
+        else out.share = l.share;
+      }
+      if (!("of" in v)) {
+        add(ctx, [...path, "of"], `"layer" needs "of": the law of one claim.`);
+        return null;
+      }
+      const of = walk(ctx, v.of, [...path, "of"], depth + 1);
+      if (of && !layerable(of))
+        add(
+          ctx,
+          [...path, "of"],
+          `A per-claim layer applies to a named law with a closed-form cdf (${FAMILY_NAMES.filter((f) => LAYERABLE.has(f)).join(", ")}) or to a lattice or sample law; wrap sums and compounds the other way round (layer each claim, then compound).`,
+        );
+      return ctx.issues.length === before && !ctx.limit && of ? { layer: out, of } : null;
     }
     case "sample": {
       unknownKeys(ctx, v, ["sample", "weights"], path, "a sample");

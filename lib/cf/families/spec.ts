@@ -5,6 +5,19 @@ import * as D from "../direct/families";
 
 /** The validated model fields of one family (defaults not yet filled in). */
 export type FamilyParams = Readonly<Record<string, number | string | undefined>>;
+/**
+ * Parameter table of every named family: one source for the zod schemas, the validator, the compiler and the
+ * catalogue. Adding a family is one entry here plus its module.
+ */
+import type { Node } from "../node";
+import { cauchy, gammaLaw, laplace, logistic, nig, normal, studentT, uniform, varianceGamma } from "./continuous";
+import { stable } from "./stable";
+import { lognormal, pareto, weibull } from "./numeric";
+import { binomial, negativeBinomial, point, poisson } from "./discrete";
+import { burr, inverseGamma, inverseGaussian, lomax } from "./severities";
+import { betaLaw, triangular } from "./bounded";
+import { logarithmic, zeroModified } from "./counts";
+import { affineDist, gammaDist, lognormalDist, normalDist, paretoDist, uniformDist, weibullDist, type DirectLaw as DistLaw } from "./dist";
 
 export interface ParamSpec {
   name: string;
@@ -20,6 +33,10 @@ export interface ParamSpec {
   doc: string;
 }
 
+/** Parameters of a validated family model (defaults filled in). */
+// eslint-disable-next-line @typescript-eslint/no-explicit-any
+export type Params = Record<string, any>;
+
 export interface FamilySpec {
   name: FamilyName;
   title: string;
@@ -30,9 +47,15 @@ export interface FamilySpec {
   cf: string;
   /** which moments exist, as text */
   moments: string;
+  /** machine-readable moment existence: "all", "none", or "below:<param or expression>" */
+  momentExistence?: string;
+  /** right-tail index as text: P(X > x) ~ x^-index ("none": lighter than any power; "bounded": bounded support) */
+  tailIndex?: string;
   /** how the CF is computed */
-  cfMethod: "closed form" | "closed form (Bessel K)" | "numerical quadrature";
+  cfMethod: "closed form" | "closed form (Bessel K)" | "numerical quadrature" | "series and numerical quadrature";
   discrete: boolean;
+  /** a law on 0, 1, 2, ... that may serve as the count of a compound */
+  count?: boolean;
   source: string;
   /**
    * Optional direct evaluation of the law alone (or scaled / shifted): pdf, cdf, sf and, where it has one, the
@@ -41,7 +64,13 @@ export interface FamilySpec {
    * inverted from its CF like any other. Sums, mixes and compounds always use the CF.
    */
   direct?: (p: FamilyParams) => DirectLaw | null;
+  /** rules across parameters (after each is in range): the offending parameter and a sentence, or null */
+  check?: (p: Params) => { param: string; detail: string } | null;
+  /** the compiled law */
+  build: (p: Params) => Node;
 }
+
+const withDist = (n: Node, d: DistLaw): Node => ({ ...n, dist: d });
 
 export const FAMILY_NAMES = [
   "normal",
@@ -65,6 +94,22 @@ export const FAMILY_NAMES = [
   "poisson",
   "negative_binomial",
   "geometric",
+  "lomax",
+  "generalized_pareto",
+  "burr",
+  "loglogistic",
+  "inverse_gaussian",
+  "inverse_gamma",
+  "beta",
+  "pert",
+  "triangular",
+  "logarithmic",
+  "zero_truncated_poisson",
+  "zero_truncated_negative_binomial",
+  "zero_truncated_binomial",
+  "zero_modified_poisson",
+  "zero_modified_negative_binomial",
+  "zero_modified_binomial",
 ] as const;
 export type FamilyName = (typeof FAMILY_NAMES)[number];
 
@@ -94,6 +139,8 @@ export const FAMILY_SPECS: Record<FamilyName, FamilySpec> = {
     discrete: false,
     source: "Johnson, Kotz & Balakrishnan, Continuous Univariate Distributions vol. 1, ch. 13",
     direct: (p) => D.normalDirect(p.mu as number, p.sigma as number),
+    build: (p) => withDist(normal(p.mu, p.sigma), normalDist(p.mu, p.sigma)),
+    tailIndex: "none",
   },
   cauchy: {
     name: "cauchy",
@@ -106,6 +153,9 @@ export const FAMILY_SPECS: Record<FamilyName, FamilySpec> = {
     discrete: false,
     source: "Johnson, Kotz & Balakrishnan vol. 1, ch. 16",
     direct: (p) => D.cauchyDirect(p.loc as number, p.scale as number),
+    build: (p) => cauchy(p.loc, p.scale),
+    momentExistence: "none",
+    tailIndex: "1",
   },
   uniform: {
     name: "uniform",
@@ -118,6 +168,9 @@ export const FAMILY_SPECS: Record<FamilyName, FamilySpec> = {
     discrete: false,
     source: "Johnson, Kotz & Balakrishnan vol. 2, ch. 26",
     direct: (p) => D.uniformDirect(p.a as number, p.b as number),
+    build: (p) => withDist(uniform(p.a, p.b), uniformDist(p.a, p.b)),
+    check: (p) => (p.b > p.a ? null : { param: "b", detail: `uniform.b (${p.b}) must be greater than uniform.a (${p.a}).` }),
+    tailIndex: "bounded",
   },
   exponential: {
     name: "exponential",
@@ -130,6 +183,8 @@ export const FAMILY_SPECS: Record<FamilyName, FamilySpec> = {
     discrete: false,
     source: "Johnson, Kotz & Balakrishnan vol. 1, ch. 19",
     direct: (p) => D.gammaDirect(1, p.rate as number),
+    build: (p) => withDist(gammaLaw(1, p.rate), gammaDist(1, p.rate)),
+    tailIndex: "none",
   },
   gamma: {
     name: "gamma",
@@ -142,6 +197,8 @@ export const FAMILY_SPECS: Record<FamilyName, FamilySpec> = {
     discrete: false,
     source: "Johnson, Kotz & Balakrishnan vol. 1, ch. 17",
     direct: (p) => D.gammaDirect(p.shape as number, p.rate as number),
+    build: (p) => withDist(gammaLaw(p.shape, p.rate), gammaDist(p.shape, p.rate)),
+    tailIndex: "none",
   },
   chi_squared: {
     name: "chi_squared",
@@ -154,6 +211,8 @@ export const FAMILY_SPECS: Record<FamilyName, FamilySpec> = {
     discrete: false,
     source: "Johnson, Kotz & Balakrishnan vol. 1, ch. 18",
     direct: (p) => D.gammaDirect((p.k as number) / 2, 0.5),
+    build: (p) => withDist(gammaLaw(p.k / 2, 0.5), gammaDist(p.k / 2, 0.5)),
+    tailIndex: "none",
   },
   laplace: {
     name: "laplace",
@@ -166,6 +225,8 @@ export const FAMILY_SPECS: Record<FamilyName, FamilySpec> = {
     discrete: false,
     source: "Johnson, Kotz & Balakrishnan vol. 2, ch. 24",
     direct: (p) => D.laplaceDirect(p.loc as number, p.scale as number),
+    build: (p) => laplace(p.loc, p.scale),
+    tailIndex: "none",
   },
   logistic: {
     name: "logistic",
@@ -178,6 +239,8 @@ export const FAMILY_SPECS: Record<FamilyName, FamilySpec> = {
     discrete: false,
     source: "Johnson, Kotz & Balakrishnan vol. 2, ch. 23",
     direct: (p) => D.logisticDirect(p.loc as number, p.scale as number),
+    build: (p) => logistic(p.loc, p.scale),
+    tailIndex: "none",
   },
   student_t: {
     name: "student_t",
@@ -190,6 +253,9 @@ export const FAMILY_SPECS: Record<FamilyName, FamilySpec> = {
     discrete: false,
     source: "Johnson, Kotz & Balakrishnan vol. 2, ch. 28; Bessel K by Abramowitz & Stegun 9.6.24",
     direct: (p) => D.studentDirect(p.nu as number, (p.loc as number | undefined) ?? 0, (p.scale as number | undefined) ?? 1),
+    build: (p) => studentT(p.nu, p.loc ?? 0, p.scale ?? 1),
+    momentExistence: "below:nu",
+    tailIndex: "nu",
   },
   stable: {
     name: "stable",
@@ -222,6 +288,9 @@ export const FAMILY_SPECS: Record<FamilyName, FamilySpec> = {
     discrete: false,
     source: "Nolan, Univariate Stable Distributions (2020), ch. 1, parameterisations S0 and S1",
     direct: (p) => stableDirect(p.alpha as number, p.beta as number, (p.scale as number | undefined) ?? 1, (p.loc as number | undefined) ?? 0, (p.param as "S0" | "S1" | undefined) ?? "S1"),
+    build: (p) => stable(p.alpha, p.beta, p.scale ?? 1, p.loc ?? 0, p.param ?? "S1"),
+    momentExistence: "below:alpha (all when alpha = 2)",
+    tailIndex: "alpha (none when alpha = 2; one-sided when beta = +-1)",
   },
   variance_gamma: {
     name: "variance_gamma",
@@ -233,6 +302,8 @@ export const FAMILY_SPECS: Record<FamilyName, FamilySpec> = {
     cfMethod: "closed form",
     discrete: false,
     source: "Madan, Carr & Chang (1998), Eur. Finance Review 2 (recalled from memory)",
+    build: (p) => varianceGamma(p.sigma, p.nu, p.theta, p.loc ?? 0),
+    tailIndex: "none",
   },
   nig: {
     name: "nig",
@@ -244,6 +315,9 @@ export const FAMILY_SPECS: Record<FamilyName, FamilySpec> = {
     cfMethod: "closed form",
     discrete: false,
     source: "Barndorff-Nielsen (1997), Scand. J. Statist. 24, sec. 2",
+    build: (p) => nig(p.alpha, p.beta, p.delta, p.mu ?? 0),
+    check: (p) => (Math.abs(p.beta) < p.alpha ? null : { param: "beta", detail: `nig.beta (${p.beta}) must satisfy |beta| < alpha (${p.alpha}).` }),
+    tailIndex: "none",
   },
   lognormal: {
     name: "lognormal",
@@ -256,6 +330,8 @@ export const FAMILY_SPECS: Record<FamilyName, FamilySpec> = {
     discrete: false,
     source: "Johnson, Kotz & Balakrishnan vol. 1, ch. 14",
     direct: (p) => D.lognormalDirect(p.mu as number, p.sigma as number),
+    build: (p) => withDist(lognormal(p.mu, p.sigma), lognormalDist(p.mu, p.sigma)),
+    tailIndex: "none (heavier than any exponential)",
   },
   pareto: {
     name: "pareto",
@@ -268,6 +344,9 @@ export const FAMILY_SPECS: Record<FamilyName, FamilySpec> = {
     discrete: false,
     source: "Johnson, Kotz & Balakrishnan vol. 1, ch. 20",
     direct: (p) => D.paretoDirect(p.alpha as number, p.xm as number),
+    build: (p) => withDist(pareto(p.alpha, p.xm), paretoDist(p.alpha, p.xm)),
+    momentExistence: "below:alpha",
+    tailIndex: "alpha",
   },
   weibull: {
     name: "weibull",
@@ -280,6 +359,8 @@ export const FAMILY_SPECS: Record<FamilyName, FamilySpec> = {
     discrete: false,
     source: "Johnson, Kotz & Balakrishnan vol. 1, ch. 21",
     direct: (p) => D.weibullDirect(p.shape as number, p.scale as number),
+    build: (p) => withDist(weibull(p.shape, p.scale), weibullDist(p.shape, p.scale)),
+    tailIndex: "none",
   },
   point: {
     name: "point",
@@ -291,6 +372,8 @@ export const FAMILY_SPECS: Record<FamilyName, FamilySpec> = {
     cfMethod: "closed form",
     discrete: true,
     source: "common practice",
+    build: (p) => point(p.at),
+    tailIndex: "bounded",
   },
   bernoulli: {
     name: "bernoulli",
@@ -302,6 +385,9 @@ export const FAMILY_SPECS: Record<FamilyName, FamilySpec> = {
     cfMethod: "closed form",
     discrete: true,
     source: "Johnson, Kemp & Kotz, Univariate Discrete Distributions, ch. 3",
+    build: (p) => binomial(1, p.p),
+    count: true,
+    tailIndex: "bounded",
   },
   binomial: {
     name: "binomial",
@@ -313,6 +399,9 @@ export const FAMILY_SPECS: Record<FamilyName, FamilySpec> = {
     cfMethod: "closed form",
     discrete: true,
     source: "Johnson, Kemp & Kotz, ch. 3",
+    build: (p) => binomial(p.n, p.p),
+    count: true,
+    tailIndex: "bounded",
   },
   poisson: {
     name: "poisson",
@@ -324,6 +413,9 @@ export const FAMILY_SPECS: Record<FamilyName, FamilySpec> = {
     cfMethod: "closed form",
     discrete: true,
     source: "Johnson, Kemp & Kotz, ch. 4",
+    build: (p) => poisson(p.lambda),
+    count: true,
+    tailIndex: "none",
   },
   negative_binomial: {
     name: "negative_binomial",
@@ -335,6 +427,9 @@ export const FAMILY_SPECS: Record<FamilyName, FamilySpec> = {
     cfMethod: "closed form",
     discrete: true,
     source: "Johnson, Kemp & Kotz, ch. 5",
+    build: (p) => negativeBinomial(p.r, p.p),
+    count: true,
+    tailIndex: "none",
   },
   geometric: {
     name: "geometric",
@@ -346,5 +441,257 @@ export const FAMILY_SPECS: Record<FamilyName, FamilySpec> = {
     cfMethod: "closed form",
     discrete: true,
     source: "Johnson, Kemp & Kotz, ch. 5",
+    build: (p) => negativeBinomial(1, p.p),
+    count: true,
+    tailIndex: "none",
+  },
+  lomax: {
+    name: "lomax",
+    title: "Lomax (Pareto type II, the actuarial Pareto)",
+    params: [pos("alpha", "shape (tail index)"), pos("theta", "scale")],
+    support: "[0, inf)",
+    cf: "e^{-i theta t} times the Pareto(alpha, xm = theta) CF; F(x) = 1 - (theta/(x + theta))^alpha",
+    moments: "orders r < alpha (E X^n = theta^n n! Gamma(alpha - n)/Gamma(alpha))",
+    momentExistence: "below:alpha",
+    tailIndex: "alpha",
+    cfMethod: "numerical quadrature",
+    discrete: false,
+    source: "Klugman, Panjer & Willmot, Loss Models (5th ed.), app. A.2.3.1 (Pareto); JKB vol. 1, ch. 20, sec. 3 (Pareto II)",
+    build: (p) => lomax(p.alpha, p.theta),
+  },
+  generalized_pareto: {
+    name: "generalized_pareto",
+    title: "Generalised Pareto",
+    params: [real("xi", "shape (tail index 1/xi when xi > 0)"), pos("sigma", "scale"), { ...real("mu", "location"), default: 0 }],
+    support: "[mu, inf) for xi >= 0; [mu, mu - sigma/xi] for xi < 0",
+    cf: "xi > 0: e^{i mu t} Lomax(1/xi, sigma/xi); xi = 0: exponential(1/sigma); xi < 0: e^{i mu t} Beta(1, -1/xi) on [0, -sigma/xi]",
+    moments: "orders r < 1/xi when xi > 0; all orders when xi <= 0",
+    momentExistence: "below:1/xi (all when xi <= 0)",
+    tailIndex: "1/xi when xi > 0; none when xi = 0; bounded when xi < 0",
+    cfMethod: "numerical quadrature",
+    discrete: false,
+    source: "Embrechts, Klueppelberg & Mikosch, Modelling Extremal Events (1997), sec. 3.4, def. 3.4.9; S(x) = (1 + xi (x - mu)/sigma)^(-1/xi)",
+    build: (p) => {
+      const { xi, sigma, mu } = p;
+      if (xi > 0) return shiftBuilt(lomax(1 / xi, sigma / xi), mu);
+      if (xi === 0) return shiftBuilt(withDist(gammaLaw(1, 1 / sigma), gammaDist(1, 1 / sigma)), mu);
+      return betaLaw(1, -1 / xi, mu, mu - sigma / xi, "generalized_pareto");
+    },
+  },
+  burr: {
+    name: "burr",
+    title: "Burr XII",
+    params: [pos("alpha", "shape (tail)"), pos("gamma", "shape (power)"), pos("theta", "scale")],
+    support: "[0, inf)",
+    cf: "no closed form: integral over s = log(x/theta) of the density on a shifted contour; S(x) = (1 + (x/theta)^gamma)^(-alpha)",
+    moments: "orders r < alpha gamma (E X^r = theta^r Gamma(1 + r/gamma) Gamma(alpha - r/gamma)/Gamma(alpha))",
+    momentExistence: "below:alpha*gamma",
+    tailIndex: "alpha gamma",
+    cfMethod: "numerical quadrature",
+    discrete: false,
+    source: "Klugman, Panjer & Willmot, Loss Models (5th ed.), app. A.2.2.2 (Burr); Burr (1942), Ann. Math. Statist. 13, form XII",
+    build: (p) => burr(p.alpha, p.gamma, p.theta),
+  },
+  loglogistic: {
+    name: "loglogistic",
+    title: "Log-logistic",
+    params: [pos("gamma", "shape"), pos("theta", "scale (the median)")],
+    support: "[0, inf)",
+    cf: "no closed form: Burr XII with alpha = 1; F(x) = u/(1 + u), u = (x/theta)^gamma",
+    moments: "orders r < gamma (E X^r = theta^r Gamma(1 + r/gamma) Gamma(1 - r/gamma))",
+    momentExistence: "below:gamma",
+    tailIndex: "gamma",
+    cfMethod: "numerical quadrature",
+    discrete: false,
+    source: "Klugman, Panjer & Willmot, Loss Models (5th ed.), app. A.2.2.4 (loglogistic)",
+    build: (p) => burr(1, p.gamma, p.theta, "loglogistic"),
+  },
+  inverse_gaussian: {
+    name: "inverse_gaussian",
+    title: "Inverse Gaussian",
+    params: [pos("mu", "mean"), pos("lambda", "shape")],
+    support: "(0, inf)",
+    cf: "exp((lambda/mu) (1 - sqrt(1 - 2 i mu^2 t / lambda)))",
+    moments: "all orders (kappa_n = (2n-3)!! mu^(2n-1) / lambda^(n-1))",
+    tailIndex: "none",
+    cfMethod: "closed form",
+    discrete: false,
+    source: "Johnson, Kotz & Balakrishnan vol. 1, ch. 15, eqs. 15.4-15.6",
+    build: (p) => inverseGaussian(p.mu, p.lambda),
+  },
+  inverse_gamma: {
+    name: "inverse_gamma",
+    title: "Inverse gamma",
+    params: [pos("alpha", "shape (tail index)"), pos("theta", "scale")],
+    support: "(0, inf)",
+    cf: "no elementary closed form (2 (-i theta t)^(alpha/2) K_alpha(sqrt(-4 i theta t)) / Gamma(alpha)): integral over s = log(x/theta) on a shifted contour; F(x) = Q(alpha, theta/x)",
+    moments: "orders r < alpha (E X^r = theta^r Gamma(alpha - r)/Gamma(alpha))",
+    momentExistence: "below:alpha",
+    tailIndex: "alpha",
+    cfMethod: "numerical quadrature",
+    discrete: false,
+    source: "Klugman, Panjer & Willmot, Loss Models (5th ed.), app. A.2.3.3 (inverse gamma); JKB vol. 1, ch. 17",
+    build: (p) => inverseGamma(p.alpha, p.theta),
+  },
+  beta: {
+    name: "beta",
+    title: "Beta on [a, b]",
+    params: [pos("alpha", "shape at the lower end"), pos("beta", "shape at the upper end"), { ...real("a", "lower end"), default: 0 }, { ...real("b", "upper end (b > a)"), default: 1 }],
+    support: "[a, b]",
+    cf: "e^{i a t} 1F1(alpha; alpha + beta; i (b - a) t)",
+    moments: "all orders (E Y^k = prod_{j<k} (alpha + j)/(alpha + beta + j) for Y = (X - a)/(b - a))",
+    tailIndex: "bounded",
+    cfMethod: "series and numerical quadrature",
+    discrete: false,
+    source: "Johnson, Kotz & Balakrishnan vol. 2, ch. 25, eqs. 25.1-25.13 (four-parameter beta); Kummer's function A&S 13.1.2",
+    check: (p) => (p.b > p.a ? null : { param: "b", detail: `beta.b (${p.b}) must be greater than beta.a (${p.a}).` }),
+    build: (p) => betaLaw(p.alpha, p.beta, p.a, p.b),
+  },
+  pert: {
+    name: "pert",
+    title: "PERT (beta from minimum, most likely, maximum)",
+    params: [real("a", "minimum"), real("m", "most likely value (a <= m <= b)"), real("b", "maximum (b > a)"), { ...pos("lambda", "weight of the mode"), default: 4 }],
+    support: "[a, b]",
+    cf: "beta on [a, b] with alpha = 1 + lambda (m - a)/(b - a), beta = 1 + lambda (b - m)/(b - a)",
+    moments: "all orders (mean (a + lambda m + b)/(lambda + 2))",
+    tailIndex: "bounded",
+    cfMethod: "series and numerical quadrature",
+    discrete: false,
+    source: "Vose, Risk Analysis: A Quantitative Guide (3rd ed., 2008), ch. 9, PERT and modified PERT (recalled from memory); Malcolm et al. (1959), Operations Research 7",
+    check: (p) =>
+      !(p.b > p.a) ? { param: "b", detail: `pert.b (${p.b}) must be greater than pert.a (${p.a}).` } : p.m < p.a || p.m > p.b ? { param: "m", detail: `pert.m (${p.m}) must lie in [a, b] = [${p.a}, ${p.b}].` } : null,
+    build: (p) => betaLaw(1 + (p.lambda * (p.m - p.a)) / (p.b - p.a), 1 + (p.lambda * (p.b - p.m)) / (p.b - p.a), p.a, p.b, "pert"),
+  },
+  triangular: {
+    name: "triangular",
+    title: "Triangular",
+    params: [real("a", "lower end"), real("c", "mode (a <= c <= b)"), real("b", "upper end (b > a)")],
+    support: "[a, b]",
+    cf: "-2 ((b - c) e^{i a t} - (b - a) e^{i c t} + (c - a) e^{i b t}) / ((b - a)(c - a)(b - c) t^2)",
+    moments: "all orders (mean (a + b + c)/3, variance (a^2 + b^2 + c^2 - ab - ac - bc)/18)",
+    tailIndex: "bounded",
+    cfMethod: "closed form",
+    discrete: false,
+    source: "Johnson, Kotz & Balakrishnan vol. 2, ch. 26, sec. 9 (triangular)",
+    check: (p) =>
+      !(p.b > p.a) ? { param: "b", detail: `triangular.b (${p.b}) must be greater than triangular.a (${p.a}).` } : p.c < p.a || p.c > p.b ? { param: "c", detail: `triangular.c (${p.c}) must lie in [a, b] = [${p.a}, ${p.b}].` } : null,
+    build: (p) => triangular(p.a, p.c, p.b),
+  },
+  logarithmic: {
+    name: "logarithmic",
+    title: "Logarithmic (log-series)",
+    params: [real("p", "parameter, P(N = k) proportional to p^k / k", 0, 1, true, true)],
+    support: "{1, 2, 3, ...}",
+    cf: "log(1 - p e^{it}) / log(1 - p)",
+    moments: "all orders",
+    tailIndex: "none",
+    cfMethod: "closed form",
+    discrete: true,
+    count: true,
+    source: "Johnson, Kemp & Kotz, Univariate Discrete Distributions (3rd ed.), ch. 7; Loss Models (5th ed.), sec. 6.6, (a, b, 1) class with a = p, b = -p",
+    build: (p) => logarithmic(p.p),
+  },
+  zero_truncated_poisson: {
+    name: "zero_truncated_poisson",
+    title: "Zero-truncated Poisson",
+    params: [pos("lambda", "mean of the untruncated Poisson")],
+    support: "{1, 2, 3, ...}",
+    cf: "(exp(lambda (e^{it} - 1)) - e^{-lambda}) / (1 - e^{-lambda})",
+    moments: "all orders",
+    tailIndex: "none",
+    cfMethod: "closed form",
+    discrete: true,
+    count: true,
+    source: "Klugman, Panjer & Willmot, Loss Models (5th ed.), sec. 6.6 and app. B.3.1; Johnson, Kemp & Kotz, ch. 4, sec. 10",
+    build: (p) => zeroModified(poisson(p.lambda), 0, -Math.expm1(-p.lambda)),
+  },
+  zero_truncated_negative_binomial: {
+    name: "zero_truncated_negative_binomial",
+    title: "Zero-truncated negative binomial",
+    params: [pos("r", "number of successes of the untruncated law"), real("p", "success probability", 0, 1, true, true)],
+    support: "{1, 2, 3, ...}",
+    cf: "(P(e^{it}) - p^r) / (1 - p^r), P the negative binomial generating function",
+    moments: "all orders",
+    tailIndex: "none",
+    cfMethod: "closed form",
+    discrete: true,
+    count: true,
+    source: "Klugman, Panjer & Willmot, Loss Models (5th ed.), sec. 6.6 and app. B.3.1",
+    build: (p) => zeroModified(negativeBinomial(p.r, p.p), 0, -Math.expm1(p.r * Math.log(p.p))),
+  },
+  zero_truncated_binomial: {
+    name: "zero_truncated_binomial",
+    title: "Zero-truncated binomial",
+    params: [{ ...real("n", "number of trials", 1, 1e9, false, false), type: "int" }, real("p", "success probability", 0, 1, true, false)],
+    support: "{1, ..., n}",
+    cf: "((1 - p + p e^{it})^n - (1 - p)^n) / (1 - (1 - p)^n)",
+    moments: "all orders",
+    tailIndex: "bounded",
+    cfMethod: "closed form",
+    discrete: true,
+    count: true,
+    source: "Klugman, Panjer & Willmot, Loss Models (5th ed.), sec. 6.6 and app. B.3.1",
+    build: (p) => zeroModified(binomial(p.n, p.p), 0, -Math.expm1(p.n * Math.log1p(-p.p))),
+  },
+  zero_modified_poisson: {
+    name: "zero_modified_poisson",
+    title: "Zero-modified Poisson",
+    params: [pos("lambda", "mean of the unmodified Poisson"), real("p0", "P(N = 0)", 0, 1, false, true)],
+    support: "{0, 1, 2, ...}",
+    cf: "p0 + (1 - p0) (exp(lambda (e^{it} - 1)) - e^{-lambda}) / (1 - e^{-lambda})",
+    moments: "all orders",
+    tailIndex: "none",
+    cfMethod: "closed form",
+    discrete: true,
+    count: true,
+    source: "Klugman, Panjer & Willmot, Loss Models (5th ed.), sec. 6.6 and app. B.3.2",
+    build: (p) => zeroModified(poisson(p.lambda), p.p0, -Math.expm1(-p.lambda)),
+  },
+  zero_modified_negative_binomial: {
+    name: "zero_modified_negative_binomial",
+    title: "Zero-modified negative binomial",
+    params: [pos("r", "number of successes of the unmodified law"), real("p", "success probability", 0, 1, true, true), real("p0", "P(N = 0)", 0, 1, false, true)],
+    support: "{0, 1, 2, ...}",
+    cf: "p0 + (1 - p0) (P(e^{it}) - p^r) / (1 - p^r), P the negative binomial generating function",
+    moments: "all orders",
+    tailIndex: "none",
+    cfMethod: "closed form",
+    discrete: true,
+    count: true,
+    source: "Klugman, Panjer & Willmot, Loss Models (5th ed.), sec. 6.6 and app. B.3.2",
+    build: (p) => zeroModified(negativeBinomial(p.r, p.p), p.p0, -Math.expm1(p.r * Math.log(p.p))),
+  },
+  zero_modified_binomial: {
+    name: "zero_modified_binomial",
+    title: "Zero-modified binomial",
+    params: [{ ...real("n", "number of trials", 1, 1e9, false, false), type: "int" }, real("p", "success probability", 0, 1, true, false), real("p0", "P(N = 0)", 0, 1, false, true)],
+    support: "{0, 1, ..., n}",
+    cf: "p0 + (1 - p0) ((1 - p + p e^{it})^n - (1 - p)^n) / (1 - (1 - p)^n)",
+    moments: "all orders",
+    tailIndex: "bounded",
+    cfMethod: "closed form",
+    discrete: true,
+    count: true,
+    source: "Klugman, Panjer & Willmot, Loss Models (5th ed.), sec. 6.6 and app. B.3.2",
+    build: (p) => zeroModified(binomial(p.n, p.p), p.p0, -Math.expm1(p.n * Math.log1p(-p.p))),
   },
 };
+
+/** A family node moved by b (location parameters of families built from others). */
+function shiftBuilt(n: Node, b: number): Node {
+  if (b === 0) return n;
+  return {
+    ...n,
+    location: n.location + b,
+    support: [n.support[0] + b, n.support[1] + b],
+    logCf(t, re, im) {
+      n.logCf(t, re, im);
+      for (let k = 0; k < t.length; k++) im[k] += b * t[k];
+    },
+    cumulants: (m) => n.cumulants(m).map((v, k) => (k === 0 && v !== null ? v + b : v)),
+    ...(n.dist ? { dist: affineDist(n.dist, 1, b) } : {}),
+    ...(n.severity && b > 0 ? { severity: { ...n.severity, lo: n.severity.lo + b, pdf: (x: number) => n.severity!.pdf(x - b), upper: (q: number) => n.severity!.upper(q) + b } } : {}),
+    ...(n.severity && b < 0 ? { severity: undefined } : {}),
+  };
+}
+

@@ -19,6 +19,8 @@ export const Family = z
     kind: z.string().openapi({ description: "continuous, lattice or point" }),
     cf: z.string().openapi({ description: "the characteristic function as text" }),
     moments: z.string().openapi({ description: "which moments exist" }),
+    momentExistence: z.string().openapi({ description: 'machine-readable: "all", "none", or "below:<parameter expression>"' }),
+    tailIndex: z.string().openapi({ description: 'right-tail index: P(X > x) ~ x^-index; "none" when lighter than any power, "bounded" for bounded support' }),
   })
   .openapi("Family");
 

@@ -1,0 +1,256 @@
+/** Laws on a bounded interval: beta on [a, b] (and PERT), triangular. */
+import { rawToCumulants, type Node } from "../node";
+import { sortedAnchor, unwrapFrom } from "../complex";
+import { lgamma } from "./special";
+import { triangularDist } from "./dist";
+
+/** Stated absolute accuracy of the beta CF (series, shifted-line and endpoint-contour quadratures below). */
+export const BETA_CF_ABS_ERROR = 1e-13;
+
+/**
+ * Beta(alpha, beta) on [0, 1] at tau > 0, three routes, each within 1e-13 absolute:
+ *  - tau <= 2: Kummer's series phi = sum_k (alpha)_k / (alpha+beta)_k (i tau)^k / k! (A&S 13.1.2; JKB vol. 2, ch. 25),
+ *    terms below tau^k/k!, no cancellation beyond e^2;
+ *  - large tau: the path [0, 1] is replaced by the two vertical rays from 0 and from 1 (Cauchy's theorem; the arcs
+ *    vanish by Jordan's lemma), each a Laplace integral computed with y = e^w / tau by the trapezoidal rule;
+ *  - in between: x = 1/(1 + e^{-s}) on the real line (the integrand x^alpha (1-x)^beta e^{i tau x} / B decays
+ *    like e^{-alpha|s|}, e^{-beta s}), trapezoidal rule with the step set from the strip |Im s| < a, where
+ *    |e^{i tau x}| <= e^{tau tan(a/2)/2} (Trefethen & Weideman 2014, SIAM Review 56, sec. 5).
+ * The route is picked by the size of its cancellation: the contour's terms grow like the bound `contourLog` below.
+ */
+function betaUnit(alpha: number, beta: number) {
+  const ab = alpha + beta;
+  const lB = lgamma(alpha) + lgamma(beta) - lgamma(ab);
+  // log of the largest term of the two ray integrals at tau (their sum is at most 1)
+  const contourLog = (tau: number) => ab * Math.log(ab) - ab - lB - (Math.min(alpha, beta) + Math.max(alpha, beta) - 1) * Math.log(tau) + 2;
+  const series = (tau: number, out: Float64Array) => {
+    let cr = 1;
+    let sr = 1;
+    let si = 0;
+    // term k = c_k (i tau)^k, c_k real
+    let c = 1;
+    for (let k = 1; k < 200; k++) {
+      c *= ((alpha + k - 1) / (ab + k - 1)) * (tau / k);
+      const m = k % 4;
+      if (m === 0) sr += c;
+      else if (m === 1) si += c;
+      else if (m === 2) sr -= c;
+      else si -= c;
+      if (c < 1e-18) break;
+      cr = c;
+    }
+    void cr;
+    out[0] = sr;
+    out[1] = si;
+  };
+  // rays: I1 = i e^{i pi (alpha-1)/2} tau^{-alpha} / B int exp(alpha w - e^w) (1 - i e^w/tau)^{beta-1} dw
+  //       I2 = e^{i tau} i e^{-i pi (beta-1)/2} tau^{-beta} / B int exp(beta w - e^w) (1 + i e^w/tau)^{alpha-1} dw
+  const rayIntegral = (p: number, q: number, tau: number, sign: number, out: Float64Array) => {
+    // int exp(p w - e^w) (1 + sign i e^w / tau)^{q-1} dw, strip |Im w| < pi/4
+    const logM = p * Math.log(Math.SQRT2 * (p + Math.abs(q - 1)) + 1) + Math.abs(q - 1) * Math.log(2 + 64 / tau) + 2;
+    const h = (2 * Math.PI * (Math.PI / 4)) / (40 + Math.max(logM, 0));
+    const wLo = (-42 - Math.max(0, logM)) / p;
+    const wHi = Math.log(60 + 4 * (p + Math.abs(q - 1)));
+    let sr = 0;
+    let si = 0;
+    for (let w = wLo; w <= wHi; w += h) {
+      const e = Math.exp(w);
+      const u = (sign * e) / tau; // 1 + i u
+      const lr = 0.5 * Math.log1p(u * u) * (q - 1);
+      const li = Math.atan(u) * (q - 1);
+      const m = Math.exp(p * w - e + lr);
+      sr += m * Math.cos(li);
+      si += m * Math.sin(li);
+    }
+    out[0] = sr * h;
+    out[1] = si * h;
+  };
+  const tmp = new Float64Array(2);
+  const rays = (tau: number, out: Float64Array) => {
+    rayIntegral(alpha, beta, tau, -1, tmp);
+    let f = Math.exp(-alpha * Math.log(tau) - lB);
+    let ph = Math.PI / 2 + (Math.PI * (alpha - 1)) / 2;
+    const r1 = f * (tmp[0] * Math.cos(ph) - tmp[1] * Math.sin(ph));
+    const i1 = f * (tmp[0] * Math.sin(ph) + tmp[1] * Math.cos(ph));
+    rayIntegral(beta, alpha, tau, 1, tmp);
+    f = Math.exp(-beta * Math.log(tau) - lB);
+    ph = tau + Math.PI / 2 - (Math.PI * (beta - 1)) / 2;
+    const r2 = f * (tmp[0] * Math.cos(ph) - tmp[1] * Math.sin(ph));
+    const i2 = f * (tmp[0] * Math.sin(ph) + tmp[1] * Math.cos(ph));
+    out[0] = r1 - r2;
+    out[1] = i1 - i2;
+  };
+  const line = (tau: number, out: Float64Array) => {
+    const a = Math.min(Math.PI / 2, 2 / tau);
+    const logM = (tau * Math.tan(a / 2)) / 2 + ab * Math.log(1 / Math.cos(a / 2)) - lB + 1;
+    const h = (2 * Math.PI * a) / (40 + Math.max(logM, 0));
+    const sLo = (-42 - Math.max(0, -lB)) / alpha;
+    const sHi = (42 + Math.max(0, -lB)) / beta;
+    let sr = 0;
+    let si = 0;
+    for (let s = sLo; s <= sHi; s += h) {
+      // log x = -log(1 + e^{-s}), log(1 - x) = -log(1 + e^{s}), x = 1/(1 + e^{-s})
+      const lx = s < 0 ? s - Math.log1p(Math.exp(s)) : -Math.log1p(Math.exp(-s));
+      const l1x = s > 0 ? -s - Math.log1p(Math.exp(-s)) : -Math.log1p(Math.exp(s));
+      const x = Math.exp(lx);
+      const m = Math.exp(alpha * lx + beta * l1x - lB);
+      sr += m * Math.cos(tau * x);
+      si += m * Math.sin(tau * x);
+    }
+    out[0] = sr * h;
+    out[1] = si * h;
+  };
+  return (tau: number, out: Float64Array) => {
+    if (tau <= 2) return series(tau, out);
+    if (contourLog(tau) < 3 * Math.LN10 || tau > 4000) return rays(tau, out);
+    return line(tau, out);
+  };
+}
+
+/** E Y^k = prod_{j<k} (alpha + j)/(alpha + beta + j) for Y ~ Beta(alpha, beta) (JKB vol. 2, ch. 25, eq. 25.13). */
+function betaRaw(alpha: number, beta: number, n: number): number[] {
+  const out: number[] = [];
+  let m = 1;
+  for (let k = 0; k < n; k++) {
+    m *= (alpha + k) / (alpha + beta + k);
+    out.push(m);
+  }
+  return out;
+}
+
+/**
+ * Beta(alpha, beta) on [a, b]: X = a + (b - a) Y (JKB vol. 2, ch. 25, the four-parameter form);
+ * phi(t) = e^{i a t} phi_Y((b - a) t).
+ */
+export function betaLaw(alpha: number, beta: number, a: number, b: number, name = "beta"): Node {
+  const w = b - a;
+  const unit = betaUnit(alpha, beta);
+  const tmp = new Float64Array(2);
+  const mean = a + (w * alpha) / (alpha + beta);
+  const sd = (w * Math.sqrt((alpha * beta) / (alpha + beta + 1))) / (alpha + beta);
+  return {
+    kind: { type: "continuous" },
+    momentIndex: Infinity,
+    tails: { left: Infinity, right: Infinity },
+    nodes: 1,
+    notes: [`${name} CF computed by series and quadrature (absolute error <= ${BETA_CF_ABS_ERROR})`],
+    location: mean,
+    scale: sd,
+    support: [a, b],
+    logCf(t, re, im) {
+      for (let k = 0; k < t.length; k++) {
+        const x = t[k];
+        if (x === 0) {
+          re[k] = 0;
+          im[k] = 0;
+          continue;
+        }
+        unit(Math.abs(x) * w, tmp);
+        re[k] = Math.log(Math.hypot(tmp[0], tmp[1]));
+        im[k] = (x < 0 ? -1 : 1) * Math.atan2(tmp[1], tmp[0]);
+      }
+      const anchor = sortedAnchor(t);
+      if (anchor >= 0) unwrapFrom(im, anchor);
+      for (let k = 0; k < t.length; k++) im[k] += a * t[k];
+    },
+    cumulants: (n) => {
+      const k = rawToCumulants(betaRaw(alpha, beta, n)).map((v, i) => (v === null ? null : v * w ** (i + 1)));
+      if (n > 0 && k[0] !== null) k[0] = mean;
+      return k;
+    },
+  };
+}
+
+/**
+ * Triangular(a, c, b): phi(t) = 2 f[a, c, b] / (i t)^2 with f = e^{i t x} and f[.] its divided difference (the
+ * density is the B-spline with knots a, c, b; Hermite-Genocchi formula, de Boor, A Practical Guide to Splines,
+ * ch. IX). For |t| (b - a) <= 2 the moment series about a is used: E(X - a)^k = 2 sum_{j<=k} (c-a)^j (b-a)^{k-j} /
+ * ((k+1)(k+2)), a sum of positive terms.
+ */
+export function triangular(a: number, c: number, b: number): Node {
+  const h1 = c - a;
+  const w = b - a;
+  const momA = (k: number) => {
+    let s = 0;
+    for (let j = 0; j <= k; j++) s += h1 ** j * w ** (k - j);
+    return (2 * s) / ((k + 1) * (k + 2));
+  };
+  const MOM = Array.from({ length: 60 }, (_, k) => momA(k));
+  // f[u, v] for f = e^{i t x}: i t e^{i t u} E1(i t (v - u)), E1(iy) = sin y / y + i (1 - cos y)/y
+  const dd = (u: number, v: number, t: number, out: Float64Array) => {
+    const y = t * (v - u);
+    let er: number;
+    let ei: number;
+    if (Math.abs(y) < 1e-4) {
+      er = 1 - (y * y) / 6;
+      ei = y / 2 - (y * y * y) / 24;
+    } else {
+      er = Math.sin(y) / y;
+      ei = (2 * Math.sin(y / 2) ** 2) / y;
+    }
+    // i t e^{i t u} (er + i ei)
+    const cr = Math.cos(t * u);
+    const ci = Math.sin(t * u);
+    const pr = cr * er - ci * ei;
+    const pi = cr * ei + ci * er;
+    out[0] = -t * pi;
+    out[1] = t * pr;
+  };
+  const d1 = new Float64Array(2);
+  const d2 = new Float64Array(2);
+  const phi = (t: number, out: Float64Array) => {
+    if (Math.abs(t) * w <= 2) {
+      // e^{i t a} sum_k (i t)^k m_k / k!
+      let sr = 0;
+      let si = 0;
+      let f = 1;
+      for (let k = 0; k < 60; k++) {
+        if (k > 0) f *= t / k;
+        const v = f * MOM[k];
+        const m = k % 4;
+        if (m === 0) sr += v;
+        else if (m === 1) si += v;
+        else if (m === 2) sr -= v;
+        else si -= v;
+        if (Math.abs(v) < 1e-18 && k > 4) break;
+      }
+      const cr = Math.cos(t * a);
+      const ci = Math.sin(t * a);
+      out[0] = sr * cr - si * ci;
+      out[1] = sr * ci + si * cr;
+      return;
+    }
+    dd(a, c, t, d1);
+    dd(c, b, t, d2);
+    // f[a,c,b] = (f[c,b] - f[a,c]) / (b - a); phi = 2 f[a,c,b] / (i t)^2 = -2 f[a,c,b] / t^2
+    const s = -2 / (w * t * t);
+    out[0] = s * (d2[0] - d1[0]);
+    out[1] = s * (d2[1] - d1[1]);
+  };
+  const tmp = new Float64Array(2);
+  return {
+    kind: { type: "continuous" },
+    momentIndex: Infinity,
+    tails: { left: Infinity, right: Infinity },
+    nodes: 1,
+    notes: [],
+    dist: triangularDist(a, c, b),
+    location: (a + b + c) / 3,
+    scale: Math.sqrt((a * a + b * b + c * c - a * b - a * c - b * c) / 18),
+    support: [a, b],
+    logCf(t, re, im) {
+      for (let k = 0; k < t.length; k++) {
+        phi(t[k], tmp);
+        re[k] = Math.log(Math.hypot(tmp[0], tmp[1]));
+        im[k] = Math.atan2(tmp[1], tmp[0]);
+      }
+      const anchor = sortedAnchor(t);
+      if (anchor >= 0) unwrapFrom(im, anchor);
+    },
+    cumulants: (n) => {
+      const k = rawToCumulants(Array.from({ length: n }, (_, i) => momA(i + 1)));
+      if (n > 0 && k[0] !== null) k[0] = (a + b + c) / 3;
+      return k;
+    },
+  };
+}

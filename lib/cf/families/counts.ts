@@ -1,0 +1,138 @@
+/** Counts of the (a, b, 1) class: logarithmic, zero-truncated and zero-modified Poisson, negative binomial, binomial. */
+import { cumulantsToRaw, rawToCumulants, type Node } from "../node";
+import { nearestZero, sortedAnchor, unwrapFrom } from "../complex";
+import type { LatticeTable } from "../types";
+import { eulerianRow } from "./special";
+
+const TAIL_EPS = 1e-18;
+
+/**
+ * Logarithmic (log-series) law: P(N = k) = -p^k / (k log(1 - p)), k >= 1; P_N(z) = log(1 - p z) / log(1 - p)
+ * (Johnson, Kemp & Kotz, Univariate Discrete Distributions, ch. 7; Loss Models, (a, b, 1) class with a = p,
+ * b = -p, p0 = 0). E N^n = Li_{1-n}(p) / (-log(1-p)) = p A_{n-1}(p) / ((1-p)^n (-log(1-p))), A the Eulerian
+ * polynomial (polylogarithm of negative order, recalled from memory).
+ */
+export function logarithmic(p: number): Node {
+  const ell = Math.log1p(-p); // < 0
+  const cgfAt = (er: number, ei: number, k: number, re: Float64Array, im: Float64Array) => {
+    // log(1 - p z), z = (er, ei): |p z| < 1 keeps 1 - p z in the right half plane
+    const ar = -p * er;
+    const ai = -p * ei;
+    const lr = 0.5 * Math.log1p(2 * ar + ar * ar + ai * ai);
+    const li = Math.atan2(ai, 1 + ar);
+    // log(L / ell), ell < 0
+    re[k] = 0.5 * Math.log(lr * lr + li * li) - Math.log(-ell);
+    im[k] = Math.atan2(-li, -lr);
+  };
+  const raw = (n: number) => {
+    const row = eulerianRow(n - 1);
+    let v = 0;
+    for (let j = row.length - 1; j >= 0; j--) v = v * p + row[j];
+    return (p * v) / ((1 - p) ** n * -ell);
+  };
+  const mean = raw(1);
+  const p1 = -p / ell;
+  return {
+    kind: { type: "lattice", origin: 0, step: 1, atoms: null },
+    momentIndex: Infinity,
+    tails: { left: Infinity, right: Infinity },
+    nodes: 1,
+    notes: [],
+    location: mean,
+    scale: Math.sqrt(Math.max(raw(2) - mean * mean, 0)) || 1,
+    support: [1, Infinity],
+    logCf(t, re, im) {
+      for (let k = 0; k < t.length; k++) cgfAt(Math.cos(t[k]), Math.sin(t[k]), k, re, im);
+      const a = sortedAnchor(t);
+      if (a >= 0) unwrapFrom(im, a);
+    },
+    cumulants: (n) => rawToCumulants(Array.from({ length: n }, (_, i) => raw(i + 1))),
+    table(maxLength) {
+      const buf: number[] = [0];
+      let q = p1;
+      let total = 0;
+      let k = 1;
+      while (buf.length < maxLength) {
+        buf.push(q);
+        total += q;
+        k++;
+        q *= (p * (k - 1)) / k;
+        if (q < TAIL_EPS * total) break;
+      }
+      // dropped tail: sum_{j>=k} p1 p^{j-1}/j <= q / (1 - p)
+      return { origin: 0, step: 1, p: Float64Array.from(buf), tailMass: q / (1 - p) };
+    },
+    countCgf(wr, wi, re, im) {
+      for (let k = 0; k < wr.length; k++) {
+        const e = Math.exp(wr[k]);
+        cgfAt(e * Math.cos(wi[k]), e * Math.sin(wi[k]), k, re, im);
+      }
+      unwrapFrom(im, nearestZero(wr, wi));
+    },
+    panjer: { a: p, b: -p, p0: 0, c1: p1 },
+    p0: 0,
+  };
+}
+
+/**
+ * Zero-modified law of an (a, b, 0) count N: P(M = 0) = p0M, P(M = k) = (1 - p0M)/(1 - p0) P(N = k), k >= 1
+ * (zero-truncated: p0M = 0), P_M(z) = 1 + beta (P_N(z) - 1), beta = (1 - p0M)/(1 - p0) (Loss Models, (a, b, 1) class).
+ * `oneMinusP0` is 1 - P(N = 0) computed without cancellation. The generating function is formed as 1 + beta expm1(K_N(w)) against cancellation when P(N = 0) is close to 1.
+ */
+export function zeroModified(base: Node, p0M: number, oneMinusP0: number): Node {
+  const p0 = base.p0!;
+  const pan = base.panjer!;
+  const beta = (1 - p0M) / oneMinusP0;
+  const ab = pan.a + pan.b;
+  const mix = (re: Float64Array, im: Float64Array, n: number) => {
+    for (let k = 0; k < n; k++) {
+      // expm1(K), K = (re, im)
+      const em = Math.expm1(re[k]);
+      const c = Math.cos(im[k]);
+      const xr = em * c - 2 * Math.sin(0.5 * im[k]) ** 2;
+      const xi = Math.exp(re[k]) * Math.sin(im[k]);
+      const zr = 1 + beta * xr;
+      const zi = beta * xi;
+      re[k] = 0.5 * Math.log(zr * zr + zi * zi);
+      im[k] = Math.atan2(zi, zr);
+    }
+  };
+  const baseRaw = (n: number) => cumulantsToRaw(base.cumulants(n));
+  const raw = (n: number) => baseRaw(n).map((v) => (v === null ? null : beta * v));
+  const r2 = raw(2);
+  const mean = r2[0] as number;
+  return {
+    kind: { type: "lattice", origin: 0, step: 1, atoms: null },
+    momentIndex: Infinity,
+    tails: { left: Infinity, right: Infinity },
+    nodes: 1,
+    notes: [],
+    location: mean,
+    scale: Math.sqrt(Math.max((r2[1] as number) - mean * mean, 0)) || 1,
+    support: [p0M > 0 ? 0 : 1, base.support[1]],
+    logCf(t, re, im) {
+      base.logCf(t, re, im);
+      mix(re, im, t.length);
+      const a = sortedAnchor(t);
+      if (a >= 0) unwrapFrom(im, a);
+    },
+    cumulants: (n) => rawToCumulants(raw(n)),
+    table(maxLength) {
+      const t = base.table?.(maxLength);
+      if (!t || t.origin !== 0) return null;
+      const p = new Float64Array(t.p.length);
+      for (let k = 1; k < p.length; k++) p[k] = beta * t.p[k];
+      p[0] = p0M;
+      const out: LatticeTable = { origin: 0, step: 1, p, tailMass: beta * t.tailMass };
+      return out;
+    },
+    countCgf(wr, wi, re, im) {
+      base.countCgf!(wr, wi, re, im);
+      mix(re, im, wr.length);
+      unwrapFrom(im, nearestZero(wr, wi));
+    },
+    // (a, b, 1): P(M = k) = (a + b/k) P(M = k-1) for k >= 2; c1 = p1M - (a + b) p0M with p1M = beta (a + b) p0
+    panjer: { a: pan.a, b: pan.b, p0: p0M, c1: ab * (beta * p0 - p0M) },
+    p0: p0M,
+  };
+}
