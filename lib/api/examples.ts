@@ -1,4 +1,4 @@
-import { aggregateClaimsModel, stableReturnModel, toleranceStackModel } from "@/lib/demo/scenario";
+import { aggregateClaimsModel, reinsuranceLayerModel, stableReturnModel, toleranceStackModel } from "@/lib/demo/scenario";
 
 /** One worked request per endpoint, from the demo scenario; used by the OpenAPI document and the docs. */
 export const endpointExamples = [
@@ -22,6 +22,21 @@ export const endpointExamples = [
     path: "/api/v1/quantiles",
     title: "Hail-damage aggregate claims: the 99.5% quantile and expected shortfall",
     body: { model: aggregateClaimsModel, p: [0.5, 0.9, 0.995], expectedShortfall: true },
+  },
+  {
+    id: "risk",
+    method: "POST",
+    path: "/api/v1/risk",
+    title: "Harrowgate's per-risk XL layer 250 xs 100: VaR, ES, stop-loss, aggregate layer and the 1-in-200 loss",
+    body: {
+      model: reinsuranceLayerModel,
+      var: { p: [0.995] },
+      es: { p: [0.995] },
+      stopLoss: [3000],
+      layerMean: [{ deductible: 3000, limit: 2000 }],
+      exceedance: [4000],
+      returnPeriod: [200],
+    },
   },
   {
     id: "moments",

@@ -8,6 +8,7 @@ import { JobRequest, JobResponse } from "@/app/api/v1/jobs/schema";
 import { datasetExample } from "@/lib/datasets/example";
 import { MomentsRequest, MomentsResponse } from "@/app/api/v1/moments/schema";
 import { QuantilesRequest, QuantilesResponse } from "@/app/api/v1/quantiles/schema";
+import { RiskRequest, RiskResponse } from "@/app/api/v1/risk/schema";
 import { ENGINE_VERSION } from "@/lib/version";
 import { Problem } from "./common-schemas";
 import { PROBLEMS } from "./errors";
@@ -120,6 +121,15 @@ export async function buildOpenApiDocument(serverUrl = "/") {
     [...MODEL_PROBLEMS, ...COMPUTE_PROBLEMS, "limit_exceeded", "not_applicable"],
   );
   post("/api/v1/quantiles", "quantiles", "Quantiles and expected shortfall", "The smallest x with F(x) >= p for each level, and optionally the expected shortfall beyond it.", QuantilesRequest, QuantilesResponse, [...MODEL_PROBLEMS, ...COMPUTE_PROBLEMS, "limit_exceeded", "not_applicable"]);
+  post(
+    "/api/v1/risk",
+    "risk",
+    "Risk measures",
+    "VaR and expected shortfall in either tail, stop-loss premiums E[(S - d)+], limited means E[min(S, u)], aggregate layer means, exceedance probabilities, return levels and the probability (and ppm) outside specification limits, each value with an error bound; a measure that does not exist for the model is null with the reason in notes. Results are computational aids: decisions on capital, reserves or tolerances rest with licensed practice and local regulation.",
+    RiskRequest,
+    RiskResponse,
+    [...MODEL_PROBLEMS, ...COMPUTE_PROBLEMS, "limit_exceeded", "not_applicable"],
+  );
   post("/api/v1/moments", "moments", "Moments and cumulants", "Raw and central moments and cumulants up to the order asked; null (with a note) where an order does not exist.", MomentsRequest, MomentsResponse, [...MODEL_PROBLEMS, ...COMPUTE_PROBLEMS, "limit_exceeded"]);
   post("/api/v1/convolve", "convolve", "Convolve lattice tables", "Convolution of tabulated laws on a common step, and n-fold powers, by FFT with zero padding.", ConvolveRequest, ConvolveResponse, [...COMPUTE_PROBLEMS, "limit_exceeded"]);
 

@@ -4,7 +4,9 @@ import type { ConvolveRequest } from "@/app/api/v1/convolve/schema";
 import type { DensityBody } from "@/app/api/v1/density/schema";
 import type { MomentsBody } from "@/app/api/v1/moments/schema";
 import type { QuantilesBody } from "@/app/api/v1/quantiles/schema";
+import type { RiskBody } from "@/app/api/v1/risk/schema";
 import { compile, convolveTables, density, MAX_LATTICE, moments, powerTable, quantiles } from "@/lib/cf";
+import { riskMeasures } from "@/lib/cf/risk";
 import { ApiError } from "./errors";
 import { checkModel } from "./model-field";
 
@@ -62,8 +64,16 @@ export function runDensity(body: z.infer<typeof DensityBody>) {
 
 export function runQuantiles(body: z.infer<typeof QuantilesBody>) {
   const compiled = compileFor(body.model, body.method, body.tolerance);
-  const r = quantiles(compiled, body.p, { expectedShortfall: body.expectedShortfall ?? false, tolerance: body.tolerance });
+  const lower = body.tail === "lower" && body.expectedShortfall;
+  const r = quantiles(compiled, body.p, { expectedShortfall: (body.expectedShortfall ?? false) && !lower, tolerance: body.tolerance });
   const d = r.diagnostics;
+  if (lower) {
+    // E[X | X <= q_p] = -E[-X | -X >= q_{1-p}(-X)]: the upper-tail shortfall of the negated law
+    const neg = compileFor({ scale: -1, of: checkModel(body.model) }, body.method, body.tolerance);
+    const rn = quantiles(neg, body.p.map((p) => 1 - p), { expectedShortfall: true, tolerance: body.tolerance });
+    r.expectedShortfall = rn.expectedShortfall?.map((v) => -v);
+    d.expectedShortfallError = rn.diagnostics.expectedShortfallError;
+  }
   return {
     p: body.p,
     x: list(r.x),
@@ -110,4 +120,17 @@ export function runConvolve(body: z.infer<typeof ConvolveRequest>) {
   const once = convolveTables(tables);
   const r = power > 1 ? powerTable(once, power) : once;
   return { origin: r.origin, step: r.step, p: list(r.p), tailMass: r.tailMass };
+}
+
+export function runRisk(body: z.infer<typeof RiskBody>) {
+  const model = checkModel(body.model);
+  const { model: _m, method, tolerance, ...req } = body;
+  void _m;
+  if (Object.values(req).every((v) => v === undefined))
+    throw new ApiError("validation", "Ask for at least one measure.", {
+      errors: [{ detail: "Ask for at least one of var, es, stopLoss, limitedMean, layerMean, exceedance, returnPeriod, outside.", pointer: "" }],
+    });
+  const r = riskMeasures(model, req, method === "discretise" ? { discretise: tolerance !== undefined ? { tolerance } : {} } : {});
+  const { notes, diagnostics, ...measures } = r;
+  return { ...measures, notes: [...new Set(notes)], diagnostics };
 }

@@ -11,11 +11,11 @@ const collectNotes = (cs: Node[]) => [...new Set(cs.flatMap((c) => c.notes))];
  * at complex argument (Klugman, Panjer & Willmot, Loss Models, aggregate loss models chapter). Cumulants by composing the two cumulant
  * series, K_S(u) = K_N(K_X(u)).
  */
-export function compoundNode(N: Node, X: Node, discretise: DiscretiseOptions | null = {}): Node {
+export function compoundNode(N: Node, X: Node, discretise: DiscretiseOptions | null = {}, exact = false): Node {
   if (X.severity && X.kind.type === "continuous" && N.countCgf && discretise && !(discretise.auto && X.severity.name === "lognormal"))
     return discretisedNode(N, X, discretise);
   // a per-claim layer's severity has atoms (at 0 and at the limit) besides its density: always discretised
-  if (X.severity?.atoms && N.countCgf)
+  if (X.severity?.atoms && N.countCgf && !exact)
     return discretisedNode(N, X, discretise ?? {});
   const P0 = N.p0 ?? 0;
   let kind: NodeKind;
@@ -119,7 +119,7 @@ export function compoundNode(N: Node, X: Node, discretise: DiscretiseOptions | n
  * approximation's, and the notes say so with the cdf error bound once the table is built.
  */
 function discretisedNode(N: Node, X: Node, o: DiscretiseOptions): Node {
-  const exact = compoundNode(N, X, null);
+  const exact = compoundNode(N, X, null, true);
   const sev = X.severity!;
   const k = exact.cumulants(2);
   const nMean = N.cumulants(1)[0] ?? N.location;

@@ -3,7 +3,7 @@
 import type { MessagePort } from "node:worker_threads";
 import { ApiError } from "@/lib/api/errors";
 import { finiteResult, refuseOverflow } from "@/lib/api/finite";
-import { runCf, runConvolve, runDensity, runMoments, runQuantiles } from "@/lib/api/operations";
+import { runCf, runConvolve, runDensity, runMoments, runQuantiles, runRisk } from "@/lib/api/operations";
 import { clearDeadline, deadlineProgress, isDeadlineExceeded, setDeadline } from "@/lib/cf/deadline";
 import { isCfError } from "@/lib/cf/errors";
 import type { ComputeOutcome, ComputeTask, OperationName } from "./types";
@@ -14,6 +14,7 @@ const OPS: Record<OperationName, (body: never) => Record<string, unknown>> = {
   quantiles: runQuantiles,
   moments: runMoments,
   convolve: runConvolve,
+  risk: runRisk,
 };
 
 export default function compute(task: ComputeTask & { port?: MessagePort }): ComputeOutcome {

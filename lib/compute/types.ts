@@ -2,7 +2,7 @@ import type { CfErrorCode, CfIssue } from "@/lib/cf/errors";
 import type { FieldError, ProblemCode } from "@/lib/api/errors";
 
 /** The computations the pool runs, named as their endpoints. */
-export const OPERATIONS = ["cf", "density", "quantiles", "moments", "convolve"] as const;
+export const OPERATIONS = ["cf", "density", "quantiles", "moments", "convolve", "risk"] as const;
 export type OperationName = (typeof OPERATIONS)[number];
 
 export interface ComputeTask {

@@ -74,6 +74,28 @@ export const stableReturnModel = {
   param: "S0",
 } as const;
 
+/**
+ * Harrowgate's property per-risk excess-of-loss programme (invented): ground-up claims are lomax (alpha 2.4,
+ * theta 60, EUR thousands), a Poisson(42) number a year; the first layer pays 250 xs 100 of each claim.
+ */
+export const harrowgateGroundUp = { family: "lomax", alpha: 2.4, theta: 60 } as const;
+export const reinsuranceLayerModel = {
+  compound: {
+    count: { family: "poisson", lambda: 42 },
+    each: { layer: { deductible: 100, limit: 250 }, of: harrowgateGroundUp },
+  },
+} as const;
+
+/** Kestrel's pump shaft stack (invented, mm): a machined part (normal), two cast parts (triangular) and a bought-in seal (PERT). */
+export const kestrelShaftStack = {
+  sum: [
+    { family: "normal", mu: 40.0, sigma: 0.015 },
+    { family: "triangular", a: 12.94, c: 13.0, b: 13.08 },
+    { family: "triangular", a: 7.96, c: 8.0, b: 8.03 },
+    { family: "pert", a: 2.97, m: 3.0, b: 3.05 },
+  ],
+} as const;
+
 export const demoModels = [
   {
     org: "harrowgate-mutual",
@@ -86,6 +108,18 @@ export const demoModels = [
     name: "Currency basket — daily return",
     description: "Stable law, alpha 1.7, skewed to losses (S0 parameterisation), in percent.",
     model: stableReturnModel,
+  },
+  {
+    org: "harrowgate-mutual",
+    name: "Property per-risk XL — first layer 250 xs 100",
+    description: "Poisson(42) claims a year, lomax(2.4, 60) ground-up in EUR thousands, each claim's 250 xs 100 layer.",
+    model: reinsuranceLayerModel,
+  },
+  {
+    org: "kestrel-precision",
+    name: "Pump shaft — length stack",
+    description: "A machined part (normal), two cast parts (triangular) and a bought-in seal (PERT), lengths in mm.",
+    model: kestrelShaftStack,
   },
   {
     org: "kestrel-precision",

@@ -18,7 +18,11 @@ export const { doc: QuantilesRequest, body: QuantilesBody } = modelRequest("Quan
   expectedShortfall: z
     .boolean()
     .optional()
-    .openapi({ description: "also return E[X | X >= VaR_p] (tail value at risk) for each level" }),
+    .openapi({ description: "also return the expected shortfall at each level: E[X | X >= q_p] for the upper tail (default), E[X | X <= q_p] for the lower tail" }),
+  tail: z
+    .enum(["upper", "lower"])
+    .optional()
+    .openapi({ description: "which tail the expected shortfall averages: upper (default; losses as positive values, p near 1) or lower (returns, p near 0, e.g. 0.01)" }),
   tolerance: z.number().min(1e-14).max(0.1).optional().openapi({ description: "target absolute error of the cdf used (default 1e-10)" }),
   method: z
     .enum(["auto", "discretise"])
