@@ -11,6 +11,7 @@ export function FamilyTable() {
           <th>parameters</th>
           <th>characteristic function</th>
           <th>moments</th>
+          <th>tail index</th>
         </tr>
       </thead>
       <tbody>
@@ -30,6 +31,10 @@ export function FamilyTable() {
             </td>
             <td className="font-mono text-xs">{f.cf}</td>
             <td className="text-xs">{f.moments}</td>
+            <td className="text-xs">
+              {f.tailIndex}
+              <div className="text-ink-faint">{f.source}</div>
+            </td>
           </tr>
         ))}
       </tbody>

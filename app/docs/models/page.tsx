@@ -1,6 +1,6 @@
 import type { Metadata } from "next";
 import Link from "next/link";
-import { aggregateClaimsModel, stableReturnModel, toleranceStackModel } from "@/lib/demo/scenario";
+import { aggregateClaimsModel, harrowgateGroundUp, kestrelShaftStack, reinsuranceLayerModel, stableReturnModel, toleranceStackModel } from "@/lib/demo/scenario";
 import { Code, Prose } from "../_components/prose";
 import { FamilyTable } from "./family-table";
 
@@ -16,6 +16,10 @@ const nodes: [string, string][] = [
   ['{ "repeat": n, "of": model }', "The sum of n independent copies."],
   ['{ "mix": [{ "weight": w, "of": model }, ...] }', "A mixture; weights positive and summing to 1."],
   ['{ "compound": { "count": model, "each": model } }', "A random sum: count copies of each, count a law on 0, 1, 2, …"],
+  [
+    '{ "layer": { "deductible"?: d, "limit"?: l, "share"?: c }, "of": model }',
+    "One claim's layer: c min(max(X − d, 0), l) (deductible 0, limit unlimited, share 1 when left out). X is a named law with a closed-form cdf, a lattice or a sample. The law has atoms at 0 and at c l; inside a compound it is discretised on a lattice with both atoms exact, and the notes state the error bound.",
+  ],
   ['{ "lattice": { "origin": x0, "step": h, "p": [...] } }', "A tabulated law on x0 + k h; p non-negative, summing to 1."],
   ['{ "sample": [...], "weights"?: [...] }', "The empirical law of observed values, optionally weighted (a frequency table)."],
   ['{ "dataset": "ds_…", "version"?: n }', "The empirical law of a dataset uploaded in the portal (the latest version when omitted)."],
@@ -68,6 +72,49 @@ export default function ModelsGuide() {
       <Code label="model">{json(toleranceStackModel)}</Code>
       <p>
         <Link className="font-semibold text-fold-600 underline" href="/explorer?example=stack">Open this example in the explorer</Link>
+      </p>
+
+      <h2>Worked example: a reinsurance programme</h2>
+      <p>
+        Harrowgate Mutual (invented) buys per-risk excess-of-loss cover on its property book: about 42 claims a year, each
+        ground-up claim lomax (the actuarial Pareto) with alpha 2.4 and theta 60, in EUR thousands. The first layer pays 250 xs 100
+        of each claim; a second layer pays 500 xs 350 and the reinsurer takes a 60% share of it. Each layer is a per-claim{" "}
+        <code>layer</code> inside the compound:
+      </p>
+      <Code label="ground-up claim">{json(harrowgateGroundUp)}</Code>
+      <Code label="first layer, 250 xs 100">{json(reinsuranceLayerModel)}</Code>
+      <Code label="second layer, 60% of 500 xs 350">
+        {json({ compound: { count: { family: "poisson", lambda: 42 }, each: { layer: { deductible: 350, limit: 500, share: 0.6 }, of: harrowgateGroundUp } } })}
+      </Code>
+      <p>
+        <code>POST /api/v1/risk</code> then reads the reinsurer&apos;s view of a layer: the 1-in-200-year loss (<code>returnPeriod: [200]</code>),
+        VaR and ES at 99.5%, an aggregate stop-loss premium above a retention, an aggregate layer of the layer, and exceedance
+        probabilities. Every value comes with its own error bound; a measure that does not exist answers null with the reason in{" "}
+        <code>notes</code>.
+      </p>
+      <Code label="request">
+        {json({ model: reinsuranceLayerModel, var: { p: [0.995] }, es: { p: [0.995] }, stopLoss: [3000], layerMean: [{ deductible: 3000, limit: 2000 }], returnPeriod: [200] })}
+      </Code>
+
+      <h2>Worked example: parts per million outside the spec</h2>
+      <p>
+        Kestrel Precision Works (invented) stacks a pump shaft from a machined part (normal), two cast parts whose lengths are
+        triangular between their lowest, likeliest and highest values, and a bought-in seal given by minimum, most likely and maximum
+        (PERT). The drawing allows 64.00 ± 0.08 mm. The <code>outside</code> measure gives P(S &lt; lsl) + P(S &gt; usl) and the same in
+        parts per million:
+      </p>
+      <Code label="request">{json({ model: kestrelShaftStack, outside: { lsl: 63.92, usl: 64.08 } })}</Code>
+
+      <h2>Reading the tails</h2>
+      <p>
+        <code>var</code> and <code>es</code> take <code>tail: &quot;upper&quot;</code> (default: losses as positive numbers, levels near 1) or{" "}
+        <code>&quot;lower&quot;</code> (returns, levels near 0): for a daily return at p = 0.01 the lower tail gives VaR = q(0.01) and ES = E[X | X ≤
+        q(0.01)], the average of the worst 1% of days. <code>/api/v1/quantiles</code> takes the same <code>tail</code> option for its
+        expected shortfall.
+      </p>
+      <p className="text-sm">
+        Caution: these results are computational aids. Decisions on capital, reserves, reinsurance or safety tolerances rest with
+        licensed practice and local regulation.
       </p>
 
       <h2>Worked example: a stable law</h2>

@@ -14,6 +14,8 @@ import { ModelEditor } from "./model-editor";
 import { ResultTables } from "./result-tables";
 import { densityOnRange, parseLevels, runAll, RunError, type FieldIssue, type Results } from "./run";
 import { SaveModel, type SavedModelVersion } from "./save-model";
+import { LayerControl } from "./layer-control";
+import { RiskPanel } from "./risk-panel";
 import { TEMPLATES } from "./templates";
 
 const pretty = (v: unknown) => JSON.stringify(v, null, 2);
@@ -162,6 +164,7 @@ export function Explorer() {
         <div className="min-w-0 space-y-4">
           <ModelBuilder onBuild={(m) => { setText(pretty(m)); setIssues([]); }} />
           <ModelEditor text={text} onChange={setText} issues={issues} />
+          <LayerControl text={text} onApply={setText} />
           <div>
             <label className="block text-sm font-semibold" htmlFor={levelsId}>
               Levels p for quantiles and expected shortfall
@@ -200,6 +203,7 @@ export function Explorer() {
           <CodeSnippets path="/api/v1/quantiles" body={snippetBody} title="The same quantiles from your code" />
         </div>
       </div>
+      <RiskPanel modelText={text} />
     </div>
   );
 }

@@ -1,4 +1,4 @@
-// POST /api/portal/explore/:op (density | quantiles | moments): the explorer's runs, on the signed-in session,
+// POST /api/portal/explore/:op (density | quantiles | moments | risk): the explorer's runs, on the signed-in session,
 // through the same request schemas, compute pool, deadlines, rate limit and metering as the public endpoints.
 // Usage rows carry key id 0 and the explorer's path as endpoint, so usage shows them as the explorer's.
 // First: .openapi() must be on zod before any schema module (lib/cf/schema included) builds its schemas.
@@ -16,10 +16,11 @@ import { handler, notFound } from "@/lib/portal/http";
 import { DensityBody } from "@/app/api/v1/density/schema";
 import { MomentsBody } from "@/app/api/v1/moments/schema";
 import { QuantilesBody } from "@/app/api/v1/quantiles/schema";
+import { RiskBody } from "@/app/api/v1/risk/schema";
 
 export const dynamic = "force-dynamic";
 
-const SCHEMAS = { density: DensityBody, quantiles: QuantilesBody, moments: MomentsBody } as const;
+const SCHEMAS = { density: DensityBody, quantiles: QuantilesBody, moments: MomentsBody, risk: RiskBody } as const;
 type Op = keyof typeof SCHEMAS;
 
 // Explorer callers are limited per user; their limiter ids are negative so they never meet a key's.
