@@ -83,8 +83,10 @@ export function layerNode(X: Node, terms: Partial<LayerTerms>): Node {
   const L = l < Infinity ? l : tailPoint(dist, d, 1e-18, Math.max(scaleX, u0 + scaleX));
   // the mass left out beyond d + L for an unlimited layer
   const cut = l < Infinity ? 0 : dist.sf(d + L);
-  const w0 = Math.min(scaleX, L) / 256;
-  const base = panels(L - u0, w0, Infinity, 4000).map((v) => v + u0);
+  // panels grow geometrically from the start of the claim density; when the layer starts at the support's end the
+  // density may be singular there (gamma or weibull shapes below 1), so the first panel is tiny (mass ~ its width^shape)
+  const w0 = (Math.min(scaleX, L) / 256) * (d <= dist.lo ? 2 ** -120 : 1);
+  const base = panels(L - u0, w0, Infinity, 8000).map((v) => v + u0);
   const atoms = [
     { x: 0, p: Fd },
     { x: c * l, p: Sdl },

@@ -65,7 +65,7 @@ function familySchema(name: FamilyName) {
   const shape: Record<string, z.ZodType> = { family: z.literal(name) };
   for (const p of spec.params) {
     if (p.values) shape[p.name] = z.enum(p.values as [string, ...string[]]).default(p.default as string).describe(p.doc);
-    else shape[p.name] = p.default !== undefined ? numD(name, p.name) : num(name, p.name);
+    else shape[p.name] = p.default !== undefined ? numD(name, p.name) : p.optional ? num(name, p.name).optional() : num(name, p.name);
   }
   const obj = z.object(shape).strict();
   const check = spec.check;

@@ -48,6 +48,7 @@ function checkFamily(ctx: Ctx, o: Record<string, unknown>, path: Path): FamilyMo
     const v = o[p.name];
     const at = [...path, p.name];
     if (v === undefined) {
+      if (p.optional) continue;
       if (p.default === undefined) add(ctx, at, `${name} needs the parameter "${p.name}" (${p.doc}).`);
       else out[p.name] = p.default;
       continue;
@@ -96,6 +97,7 @@ export const LAYERABLE: ReadonlySet<string> = new Set([
   "inverse_gaussian",
   "inverse_gamma",
   "triangular",
+  "truncated_normal",
 ]);
 
 function layerable(m: Model): boolean {

@@ -18,6 +18,8 @@ interface FamCase {
   rawSource?: string;
 }
 const fam = JSON.parse(readFileSync("tests/fixtures/reference-families/families.json", "utf8")) as { cases: FamCase[] };
+// truncated normal cases from their own generator (tests/fixtures/reference-truncnorm/generate.py)
+fam.cases.push(...(JSON.parse(readFileSync("tests/fixtures/reference-truncnorm/truncnorm.json", "utf8")) as { cases: FamCase[] }).cases);
 const cnt = JSON.parse(readFileSync("tests/fixtures/reference-counts/counts.json", "utf8")) as {
   cases: { name: string; model: Record<string, unknown>; pmf: number[]; source: string; exact: boolean }[];
 };

@@ -4,7 +4,7 @@
 // asserts that the returned error bound covers the actual error.
 import { afterAll, describe, expect, it } from "vitest";
 import { readFileSync } from "node:fs";
-import { validateModel, moments } from "@/lib/cf";
+import { validateModel, moments, compile as compileModel } from "@/lib/cf";
 import { riskMeasures } from "@/lib/cf/risk";
 import { close, record, worst } from "./model-assert";
 
@@ -112,4 +112,24 @@ describe("measures that do not exist", () => {
     expect(r.es!.value[0]).toBeNull();
     expect(r.notes.join(" ")).toMatch(/stopLoss: E\[\(S - d\)\+\] is infinite/);
 });
+});
+
+describe("per-claim layers of other claim laws (mpmath.quad on the claim density)", () => {
+  for (const c of ref.layers as { name: string; model: unknown; mean: number; cf: { t: number; phi: [number, number] }[] }[]) {
+    it(`${c.name}: mean within 1e-11 relative and CF within the declared 1e-12`, () => {
+      const m = moments(c.model, 1);
+      close(m.mean!, c.mean, { rel: 1e-11 }, `${c.name} mean`);
+      record("layer mean rel", Math.abs(m.mean! - c.mean) / c.mean);
+      const comp = compileModel(c.model);
+      const t = Float64Array.from(c.cf.map((x) => x.t));
+      const re = new Float64Array(t.length);
+      const im = new Float64Array(t.length);
+      comp.cf(t, re, im);
+      c.cf.forEach((x, k) => {
+        const e = Math.hypot(re[k] - x.phi[0], im[k] - x.phi[1]);
+        record("layer cf abs", e);
+        if (!(e <= 1e-12)) expect.fail(`${c.name} phi(${x.t}): value ${re[k]}+${im[k]}i, expected ${x.phi[0]}+${x.phi[1]}i, difference ${e}, tolerance 1e-12`);
+      });
+    });
+  }
 });

@@ -17,6 +17,7 @@ import { binomial, negativeBinomial, point, poisson } from "./discrete";
 import { burr, inverseGamma, inverseGaussian, lomax } from "./severities";
 import { betaLaw, triangular } from "./bounded";
 import { logarithmic, zeroModified } from "./counts";
+import { truncatedNormal } from "./truncated";
 import { affineDist, gammaDist, lognormalDist, normalDist, paretoDist, uniformDist, weibullDist, type DirectLaw as DistLaw } from "./dist";
 
 export interface ParamSpec {
@@ -28,6 +29,8 @@ export interface ParamSpec {
   loOpen: boolean;
   hiOpen: boolean;
   default?: number | string;
+  /** may be left out without a default (then absent: e.g. an open end of a truncation) */
+  optional?: boolean;
   /** allowed string values (only for `param` of stable) */
   values?: readonly string[];
   doc: string;
@@ -103,6 +106,7 @@ export const FAMILY_NAMES = [
   "beta",
   "pert",
   "triangular",
+  "truncated_normal",
   "logarithmic",
   "zero_truncated_poisson",
   "zero_truncated_negative_binomial",
@@ -576,6 +580,25 @@ export const FAMILY_SPECS: Record<FamilyName, FamilySpec> = {
     check: (p) =>
       !(p.b > p.a) ? { param: "b", detail: `triangular.b (${p.b}) must be greater than triangular.a (${p.a}).` } : p.c < p.a || p.c > p.b ? { param: "c", detail: `triangular.c (${p.c}) must lie in [a, b] = [${p.a}, ${p.b}].` } : null,
     build: (p) => triangular(p.a, p.c, p.b),
+  },
+  truncated_normal: {
+    name: "truncated_normal",
+    title: "Truncated normal",
+    params: [real("mu", "mean of the untruncated normal"), pos("sigma", "standard deviation of the untruncated normal"), { ...real("lower", "lower end (absent: unbounded below)"), optional: true }, { ...real("upper", "upper end (absent: unbounded above)"), optional: true }],
+    support: "[lower, upper]",
+    cf: "e^{i mu t - sigma^2 t^2/2} (Phi(beta - i sigma t) - Phi(alpha - i sigma t)) / (Phi(beta) - Phi(alpha)), alpha = (lower - mu)/sigma, beta = (upper - mu)/sigma; computed by quadrature of the density",
+    moments: "all orders",
+    tailIndex: "none (bounded when both ends are given)",
+    cfMethod: "numerical quadrature",
+    discrete: false,
+    source: "Johnson, Kotz & Balakrishnan vol. 1, ch. 13, sec. 10.1 (truncated normal)",
+    check: (p) =>
+      p.lower !== undefined && p.upper !== undefined && !(p.upper > p.lower)
+        ? { param: "upper", detail: `truncated_normal.upper (${p.upper}) must be greater than truncated_normal.lower (${p.lower}).` }
+        : (p.lower !== undefined && (p.lower - p.mu) / p.sigma > 37) || (p.upper !== undefined && (p.upper - p.mu) / p.sigma < -37)
+          ? { param: p.lower !== undefined && (p.lower - p.mu) / p.sigma > 37 ? "lower" : "upper", detail: "The truncation interval lies more than 37 standard deviations from mu; its probability underflows. Move mu or the ends." }
+          : null,
+    build: (p) => truncatedNormal(p.mu, p.sigma, p.lower, p.upper),
   },
   logarithmic: {
     name: "logarithmic",
