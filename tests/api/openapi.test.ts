@@ -43,9 +43,10 @@ describe("responses match their documented schemas", () => {
     const { QuantilesResponse } = await import("@/app/api/v1/quantiles/schema");
     const { MomentsResponse } = await import("@/app/api/v1/moments/schema");
     const { ConvolveResponse } = await import("@/app/api/v1/convolve/schema");
+    const { RiskResponse } = await import("@/app/api/v1/risk/schema");
     const { FamiliesResponse } = await import("@/app/api/v1/families/schema");
     const { endpointExamples } = await import("@/lib/api/examples");
-    const schemas = { cf: CfResponse, density: DensityResponse, quantiles: QuantilesResponse, moments: MomentsResponse, convolve: ConvolveResponse, families: FamiliesResponse } as const;
+    const schemas = { cf: CfResponse, density: DensityResponse, quantiles: QuantilesResponse, moments: MomentsResponse, convolve: ConvolveResponse, risk: RiskResponse, families: FamiliesResponse } as const;
     const { secret } = await orgWithKey();
     const app = apiServer();
     for (const e of endpointExamples) {

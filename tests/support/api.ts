@@ -8,6 +8,7 @@ import * as health from "@/app/api/v1/health/route";
 import * as moments from "@/app/api/v1/moments/route";
 import * as openapi from "@/app/api/v1/openapi.json/route";
 import * as quantiles from "@/app/api/v1/quantiles/route";
+import * as risk from "@/app/api/v1/risk/route";
 import { ALL_SCOPES, type Scope } from "@/lib/api/scopes";
 import { getDb } from "@/lib/db/client";
 import { createKey } from "@/lib/db/keys";
@@ -20,6 +21,7 @@ export const apiServer = () =>
     "/api/v1/cf": cf,
     "/api/v1/density": density,
     "/api/v1/quantiles": quantiles,
+    "/api/v1/risk": risk,
     "/api/v1/moments": moments,
     "/api/v1/convolve": convolve,
     "/api/v1/families": families,

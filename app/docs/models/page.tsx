@@ -93,7 +93,7 @@ export default function ModelsGuide() {
         <code>notes</code>.
       </p>
       <Code label="request">
-        {json({ model: reinsuranceLayerModel, var: { p: [0.995] }, es: { p: [0.995] }, stopLoss: [3000], layerMean: [{ deductible: 3000, limit: 2000 }], returnPeriod: [200] })}
+        {json({ model: reinsuranceLayerModel, var: { p: [0.995] }, es: { p: [0.995] }, stopLoss: [900], layerMean: [{ deductible: 900, limit: 300 }], returnPeriod: [200] })}
       </Code>
 
       <h2>Worked example: parts per million outside the spec</h2>
