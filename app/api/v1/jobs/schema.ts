@@ -7,6 +7,7 @@ import { ConvolveRequest } from "../convolve/schema";
 import { DensityBody } from "../density/schema";
 import { MomentsBody } from "../moments/schema";
 import { QuantilesBody } from "../quantiles/schema";
+import { RiskBody } from "../risk/schema";
 
 /** Each operation's request schema and the scope a key needs for it, as on its synchronous endpoint. */
 export const JOB_OPERATIONS: Record<OperationName, { schema: z.ZodType; scope: Scope }> = {
@@ -15,11 +16,12 @@ export const JOB_OPERATIONS: Record<OperationName, { schema: z.ZodType; scope: S
   quantiles: { schema: QuantilesBody, scope: "distribution" },
   moments: { schema: MomentsBody, scope: "moments" },
   convolve: { schema: ConvolveRequest, scope: "lattice" },
+  risk: { schema: RiskBody, scope: "distribution" },
 };
 
 export const JobRequest = z
   .object({
-    operation: z.enum(OPERATIONS).openapi({ description: "the computation, named as its endpoint: cf, density, quantiles, moments or convolve" }),
+    operation: z.enum(OPERATIONS).openapi({ description: "the computation, named as its endpoint: cf, density, quantiles, moments, convolve or risk" }),
     body: z.record(z.string(), z.unknown()).openapi({ description: "the request body the synchronous endpoint takes (e.g. a DensityRequest)" }),
   })
   .strict()
