@@ -142,6 +142,7 @@ export function layerNode(X: Node, terms: Partial<LayerTerms>): Node {
     momentIndex: l < Infinity ? Infinity : X.momentIndex,
     tails: { left: Infinity, right: l < Infinity ? Infinity : X.tails.right },
     nodes: 1 + X.nodes,
+    cfAbsError: LAYER_CF_ABS_ERROR + cut,
     notes: [
       ...X.notes.filter((n) => !/CF computed/.test(n)),
       `per-claim layer CF and moments computed by composite Gauss-Legendre quadrature against the claim density (absolute error <= ${LAYER_CF_ABS_ERROR}${cut > 0 ? `; claim mass beyond ${d + L} left out: ${cut.toExponential(2)}` : ""})`,

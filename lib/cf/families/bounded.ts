@@ -134,6 +134,7 @@ export function betaLaw(alpha: number, beta: number, a: number, b: number, name 
     tails: { left: Infinity, right: Infinity },
     nodes: 1,
     notes: [`${name} CF computed by series and quadrature (absolute error <= ${BETA_CF_ABS_ERROR})`],
+    cfAbsError: BETA_CF_ABS_ERROR,
     location: mean,
     scale: sd,
     support: [a, b],

@@ -124,6 +124,7 @@ export function burr(alpha: number, gamma: number, theta: number, name = "burr")
     tails: { left: Infinity, right: tail },
     nodes: 1,
     notes: [`${name} CF computed by quadrature on a shifted contour (absolute error <= ${NUMERIC_CF_ABS_ERROR})`],
+    cfAbsError: NUMERIC_CF_ABS_ERROR,
     severity: {
       name,
       pdf: dist.pdf,
@@ -182,6 +183,7 @@ export function inverseGamma(alpha: number, theta: number): Node {
     tails: { left: Infinity, right: alpha },
     nodes: 1,
     notes: [`inverse_gamma CF computed by quadrature on a shifted contour (absolute error <= ${NUMERIC_CF_ABS_ERROR})`],
+    cfAbsError: NUMERIC_CF_ABS_ERROR,
     severity: {
       name: "inverse_gamma",
       pdf: dist.pdf,

@@ -100,6 +100,7 @@ export function truncatedNormal(mu: number, sigma: number, lower?: number, upper
     tails: { left: Infinity, right: Infinity },
     nodes: 1,
     notes: [`truncated_normal CF computed by composite Gauss-Legendre quadrature (absolute error <= ${TRUNCATED_NORMAL_CF_ABS_ERROR})`],
+    cfAbsError: TRUNCATED_NORMAL_CF_ABS_ERROR,
     dist,
     location: mean,
     scale: sd,
