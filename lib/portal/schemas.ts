@@ -6,10 +6,6 @@ import type { Role } from "@/lib/db/schema";
 
 // The portal's form and request schemas, shared by the browser (form validation) and the handlers.
 
-// In the browser zod would probe `new Function` for its fast path; the pages' CSP forbids eval and reports the
-// probe as a violation, so the browser copy runs without it (the server keeps the fast path).
-if (typeof window !== "undefined") z.config({ jitless: true });
-
 // Spelled out (not imported from the Drizzle schema) so the browser bundle stays free of the ORM; the
 // `satisfies` keeps the list equal to the database enum's type.
 const ROLES = ["admin", "developer", "billing"] as const satisfies readonly Role[];

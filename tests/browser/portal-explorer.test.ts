@@ -126,7 +126,14 @@ describe("explorer", () => {
     await run(page);
     await page.getByTestId("law-plot").waitFor({ timeout: 30_000 });
     const extra = await page.evaluate(() => document.documentElement.scrollWidth - document.documentElement.clientWidth);
-    expect(extra).toBe(0);
+    // names the elements that stick out past the viewport, so a failure says where to look
+    const wide = await page.evaluate(() =>
+      [...document.querySelectorAll("main *")]
+        .filter((e) => e.getBoundingClientRect().right > document.documentElement.clientWidth + 1)
+        .slice(0, 5)
+        .map((e) => `${e.tagName.toLowerCase()}.${e.className}`.slice(0, 120)),
+    );
+    expect(extra, wide.join(" | ")).toBe(0);
     await shot(page, "explorer-narrow");
     await page.close();
   });

@@ -47,7 +47,7 @@ async function bothWidths(page: Page, name: string) {
 async function watchCsp(page: Page): Promise<() => Promise<string[]>> {
   await page.addInitScript(() => {
     (window as unknown as { __csp: string[] }).__csp = [];
-    document.addEventListener("securitypolicyviolation", (e) => (window as unknown as { __csp: string[] }).__csp.push(`${e.violatedDirective} ${e.blockedURI}`));
+    document.addEventListener("securitypolicyviolation", (e) => (window as unknown as { __csp: string[] }).__csp.push(`${e.violatedDirective} ${e.blockedURI} at ${e.sourceFile}:${e.lineNumber}:${e.columnNumber}`));
   });
   const console: string[] = [];
   page.on("console", (m) => {

@@ -9,7 +9,7 @@ import { buttonClass, FormError, inputClass, Loading, PageHeader } from "../../_
 import { CodeSnippets } from "./code-snippets";
 import { JobRun } from "./job-run";
 import { LawPlot } from "./law-plot";
-import { ModelBuilder } from "./model-builder";
+import { ModelBuilder, type BuilderFamily } from "./model-builder";
 import { ModelEditor } from "./model-editor";
 import { ResultTables } from "./result-tables";
 import { densityOnRange, parseLevels, runAll, RunError, type FieldIssue, type Results } from "./run";
@@ -22,7 +22,7 @@ const pretty = (v: unknown) => JSON.stringify(v, null, 2);
 const DEFAULT_RANGE = { from: 0.0001, to: 0.9999 };
 
 /** The explorer: a model (template, builder, docs example or saved model) in, the law's plot, quantiles and moments out. */
-export function Explorer() {
+export function Explorer({ builderFamilies }: { builderFamilies: BuilderFamily[] }) {
   const { me } = useMe();
   const search = useSearchParams();
   const levelsId = useId();
@@ -162,7 +162,7 @@ export function Explorer() {
       </section>
       <div className="grid gap-6 lg:grid-cols-2">
         <div className="min-w-0 space-y-4">
-          <ModelBuilder onBuild={(m) => { setText(pretty(m)); setIssues([]); }} />
+          <ModelBuilder families={builderFamilies} onBuild={(m) => { setText(pretty(m)); setIssues([]); }} />
           <ModelEditor text={text} onChange={setText} issues={issues} />
           <LayerControl text={text} onApply={setText} />
           <div>

@@ -1,18 +1,18 @@
 "use client";
 
 import { useState } from "react";
-import { FAMILY_SPECS, type FamilyName } from "@/lib/cf/families/spec";
 import { buttonClass, inputClass, quietButtonClass } from "../../_components/ui";
 
 // The form for common cases: a sum of independent named terms. Anything else is written in the JSON editor.
-const COMMON: FamilyName[] = ["normal", "uniform", "gamma", "exponential", "lognormal", "poisson", "binomial", "student_t"];
+// The families' names and parameters come from the server page (read from the family specs there), so the
+// browser bundle carries no part of the engine.
+export type BuilderFamily = { name: string; title: string; params: { name: string; doc: string; start: string }[] };
 
-type Term = { family: FamilyName; values: Record<string, string> };
+type Term = { family: string; values: Record<string, string> };
 
-const defaults = (family: FamilyName): Record<string, string> =>
-  Object.fromEntries(FAMILY_SPECS[family].params.filter((p) => !p.values).map((p) => [p.name, p.default !== undefined ? String(p.default) : p.lo > 0 || p.loOpen === false ? "1" : "1"]));
-
-export function ModelBuilder({ onBuild }: { onBuild: (model: unknown) => void }) {
+export function ModelBuilder({ families, onBuild }: { families: BuilderFamily[]; onBuild: (model: unknown) => void }) {
+  const byName = new Map(families.map((f) => [f.name, f]));
+  const defaults = (family: string): Record<string, string> => Object.fromEntries((byName.get(family)?.params ?? []).map((p) => [p.name, p.start]));
   const [terms, setTerms] = useState<Term[]>([{ family: "normal", values: { mu: "0", sigma: "1" } }]);
 
   const set = (i: number, t: Term) => setTerms((all) => all.map((x, j) => (j === i ? t : x)));
@@ -31,18 +31,16 @@ export function ModelBuilder({ onBuild }: { onBuild: (model: unknown) => void })
             <select
               className={`${inputClass} w-40`}
               value={t.family}
-              onChange={(e) => set(i, { family: e.target.value as FamilyName, values: defaults(e.target.value as FamilyName) })}
+              onChange={(e) => set(i, { family: e.target.value, values: defaults(e.target.value) })}
             >
-              {COMMON.map((f) => (
-                <option key={f} value={f}>
-                  {FAMILY_SPECS[f].title}
+              {families.map((f) => (
+                <option key={f.name} value={f.name}>
+                  {f.title}
                 </option>
               ))}
             </select>
           </label>
-          {FAMILY_SPECS[t.family].params
-            .filter((p) => !p.values)
-            .map((p) => (
+          {(byName.get(t.family)?.params ?? []).map((p) => (
               <label key={p.name} className="text-sm font-semibold" title={p.doc}>
                 <span className="font-mono">{p.name}</span>
                 <input
