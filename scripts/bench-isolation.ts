@@ -62,7 +62,7 @@ try {
   // 1. health while two deadline-length computations run
   await startServer(2);
   const idle = await healthSample(Date.now() + 3000);
-  const heavy = { model: { family: "pareto", alpha: 3, xm: 1 }, p: [0.9999999999999999] };
+  const heavy = { model: { sum: [{ family: "pareto", alpha: 3, xm: 1 }, { family: "weibull", shape: 0.5, scale: 1 }] }, p: [0.9999999999999999] };
   const t0 = Date.now();
   const running = [post("/api/v1/quantiles", key, heavy), post("/api/v1/quantiles", key, heavy)];
   await sleep(300);

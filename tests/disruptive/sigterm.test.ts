@@ -27,7 +27,7 @@ describe("SIGTERM", () => {
     const pending = fetch(`http://127.0.0.1:${port}/api/v1/quantiles`, {
       method: "POST",
       headers: { authorization: `Bearer ${o.secret}`, "content-type": "application/json" },
-      body: JSON.stringify({ model: { family: "pareto", alpha: 3, xm: 1 }, p: [0.9999999999999999] }),
+      body: JSON.stringify({ model: { sum: [{ family: "pareto", alpha: 3, xm: 1 }, { family: "weibull", shape: 0.5, scale: 1 }] }, p: [0.9999999999999999] }),
     }).then(
       async (r) => ({ status: r.status, body: await r.json().catch(() => null) }),
       () => ({ status: 0, body: null }),
