@@ -164,8 +164,10 @@ export function LawPlot({ data, range, onRange, busy }: { data: LawTable; range:
         </fieldset>
       </div>
       <div ref={box} className="mt-3 w-full">
+        {/* max-w-full: before the first resize measurement the drawing scales down instead of widening the page */}
         <svg
           ref={svg}
+          className="block h-auto max-w-full"
           width={width}
           height={total}
           viewBox={`0 0 ${width} ${total}`}
