@@ -1,3 +1,4 @@
+import { DATASET_ID } from "@/lib/datasets/schemas";
 import { MAX_GRID_POINTS, MAX_REPEAT } from "@/lib/cf/limits";
 import { FamilySchema, LatticeSchema, SampleSchema } from "@/lib/cf/schema";
 import { withinLimit, z } from "./zod";
@@ -10,7 +11,7 @@ const docFinite = z.number();
 /** A model node naming an uploaded dataset; resolved to its empirical law before the computation. */
 export const DatasetRef = z
   .object({
-    dataset: z.string().regex(/^ds_[0-9a-hjkmnp-tv-z]{16}$/).openapi({ description: "a dataset id from GET /api/v1/datasets", example: "ds_7kq2m9x4c1vbt0hz" }),
+    dataset: z.string().regex(DATASET_ID).openapi({ description: "a dataset id from GET /api/v1/datasets", example: "ds_7kq2m9x4c1vbt0hz" }),
     version: z.number().int().min(1).optional().openapi({ description: "the version to use; the latest when omitted" }),
   })
   .strict()

@@ -1,7 +1,7 @@
 import "server-only";
 import { randomUUID } from "node:crypto";
 import type { z } from "zod";
-import { hasDatasetRef, resolveDatasets } from "@/lib/datasets/resolve";
+import { resolveBodyDatasets } from "@/lib/datasets/resolve";
 import { withDbDeadline } from "@/lib/db/client";
 import { getKeyByHash } from "@/lib/db/keys";
 import type { ApiKey } from "@/lib/db/schema";
@@ -199,9 +199,9 @@ export function withApiKey<S extends z.ZodType>(handler: Handler<S>, opts: Optio
         throw new ApiError("forbidden", `This key lacks the "${opts.scope}" scope needed for ${opts.endpoint}. Use a key that has it, or give this key the scope on the portal's API keys page.`);
       }
       const raw = opts.schema ? await readJson(req) : undefined;
-      const body = opts.schema ? validate(opts.schema, raw) : (undefined as z.infer<S>);
+      const valid = opts.schema ? validate(opts.schema, raw) : (undefined as z.infer<S>);
       // Fixed-price calls are charged up front; computations reserve 1 unit and pay for their work afterwards.
-      reserved = opts.units ? Math.max(1, Math.ceil(opts.units(body))) : 1;
+      reserved = opts.units ? Math.max(1, Math.ceil(opts.units(valid))) : 1;
       const decision = await checkLimits({ keyId: key.id, organizationId: key.organizationId, plan: key.plan, units: reserved });
       headers = limitHeaders(decision);
       if (!decision.allowed) {
@@ -210,9 +210,7 @@ export function withApiKey<S extends z.ZodType>(handler: Handler<S>, opts: Optio
       }
       admitted = decision.source === "redis";
       // Dataset references are loaded only for admitted requests (after the rate limit and the quota).
-      if (body && typeof body === "object" && "model" in body && hasDatasetRef(body.model)) {
-        (body as { model: unknown }).model = await resolveDatasets(body.model, key.organizationId, "/model");
-      }
+      const body = await resolveBodyDatasets(valid, { organizationId: key.organizationId });
       const params = (await ctx?.params) ?? {};
       const compute = computeFor(`key:${key.id}`, key.plan, work);
       const result = await handler({ body, key, requestId, req, params, compute });

@@ -1,10 +1,10 @@
 import type { z } from "zod";
-import type { CfBody } from "@/app/api/v1/cf/schema";
-import type { ConvolveRequest } from "@/app/api/v1/convolve/schema";
-import type { DensityBody } from "@/app/api/v1/density/schema";
-import type { MomentsBody } from "@/app/api/v1/moments/schema";
-import type { QuantilesBody } from "@/app/api/v1/quantiles/schema";
-import type { RiskBody } from "@/app/api/v1/risk/schema";
+import type { CfBody } from "@/lib/api/schemas/cf";
+import type { ConvolveRequest } from "@/lib/api/schemas/convolve";
+import type { DensityBody } from "@/lib/api/schemas/density";
+import type { MomentsBody } from "@/lib/api/schemas/moments";
+import type { QuantilesBody } from "@/lib/api/schemas/quantiles";
+import type { RiskBody } from "@/lib/api/schemas/risk";
 import { compile, convolveTables, density, MAX_LATTICE, moments, powerTable, quantiles } from "@/lib/cf";
 import { riskMeasures } from "@/lib/cf/risk";
 import { ApiError } from "./errors";

@@ -157,6 +157,15 @@ export async function resolveDatasets(model: unknown, organizationId: number, po
   return rebuild(model);
 }
 
+/**
+ * The dataset step of a request, run once it is admitted (after the rate limit and the quota): the body with its
+ * model's dataset references replaced by their data (see resolveDatasets); the same body when there are none.
+ */
+export async function resolveBodyDatasets<B>(body: B, at: { organizationId: number; pointer?: string; where?: string }): Promise<B> {
+  if (!body || typeof body !== "object" || !("model" in body) || !hasDatasetRef(body.model)) return body;
+  return { ...body, model: await resolveDatasets(body.model, at.organizationId, at.pointer ?? "/model", at.where) };
+}
+
 /** True when a model holds a dataset reference anywhere (so callers can skip the walk and the database). */
 export function hasDatasetRef(model: unknown): boolean {
   const stack: unknown[] = [model];

@@ -1,6 +1,6 @@
 // POST /api/v1/cf: evaluate a model's characteristic function at given arguments.
 import { methodNotAllowed, preflight, withApiKey } from "@/lib/api/gate";
-import { CfBody } from "./schema";
+import { CfBody } from "@/lib/api/schemas/cf";
 
 export const dynamic = "force-dynamic";
 

@@ -1,6 +1,6 @@
 // POST /api/v1/convolve: convolve tabulated lattice laws (and take n-fold powers) by FFT.
 import { methodNotAllowed, preflight, withApiKey } from "@/lib/api/gate";
-import { ConvolveRequest } from "./schema";
+import { ConvolveRequest } from "@/lib/api/schemas/convolve";
 
 export const dynamic = "force-dynamic";
 

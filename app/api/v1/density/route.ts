@@ -1,6 +1,6 @@
 // POST /api/v1/density: invert a model's CF to pdf (or pmf), cdf and sf on a grid or at points.
 import { methodNotAllowed, preflight, withApiKey } from "@/lib/api/gate";
-import { DensityBody } from "./schema";
+import { DensityBody } from "@/lib/api/schemas/density";
 
 export const dynamic = "force-dynamic";
 

@@ -3,9 +3,9 @@ import { validate } from "@/lib/api/body";
 import { ApiError } from "@/lib/api/errors";
 import { methodNotAllowed, preflight, RESPONSE_INIT, withApiKey } from "@/lib/api/gate";
 import { planOf } from "@/lib/api/plans";
-import { hasDatasetRef, resolveDatasets } from "@/lib/datasets/resolve";
+import { resolveBodyDatasets } from "@/lib/datasets/resolve";
 import { getJobView, submitJob } from "@/lib/jobs/queue";
-import { JOB_OPERATIONS, JobRequest } from "./schema";
+import { JOB_OPERATIONS, JobRequest } from "@/lib/api/schemas/jobs";
 
 export const dynamic = "force-dynamic";
 
@@ -22,7 +22,7 @@ export const POST = withApiKey(
       if (e instanceof ApiError && e.errors) throw new ApiError(e.code, e.detail, { errors: e.errors.map((x) => ({ ...x, pointer: `/body${x.pointer}` })) });
       throw e;
     }
-    if ("model" in inner && hasDatasetRef(inner.model)) inner = { ...inner, model: await resolveDatasets(inner.model, key.organizationId, "/body/model") };
+    inner = await resolveBodyDatasets(inner, { organizationId: key.organizationId, pointer: "/body/model" });
     let id: string;
     try {
       id = await submitJob({

@@ -1,6 +1,6 @@
 // POST /api/v1/moments: raw and central moments and cumulants, null where they do not exist.
 import { methodNotAllowed, preflight, withApiKey } from "@/lib/api/gate";
-import { MomentsBody } from "./schema";
+import { MomentsBody } from "@/lib/api/schemas/moments";
 
 export const dynamic = "force-dynamic";
 

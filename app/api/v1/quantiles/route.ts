@@ -1,6 +1,6 @@
 // POST /api/v1/quantiles: quantiles (and expected shortfall) of a model at levels p.
 import { methodNotAllowed, preflight, withApiKey } from "@/lib/api/gate";
-import { QuantilesBody } from "./schema";
+import { QuantilesBody } from "@/lib/api/schemas/quantiles";
 
 export const dynamic = "force-dynamic";
 

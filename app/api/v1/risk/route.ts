@@ -1,6 +1,6 @@
 // POST /api/v1/risk: risk measures of a model (VaR, ES, stop-loss, limited and layer means, exceedance, return levels, ppm outside spec limits).
 import { methodNotAllowed, preflight, withApiKey } from "@/lib/api/gate";
-import { RiskBody } from "./schema";
+import { RiskBody } from "@/lib/api/schemas/risk";
 
 export const dynamic = "force-dynamic";
 

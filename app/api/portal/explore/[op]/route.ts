@@ -11,12 +11,12 @@ import { recordUsage } from "@/lib/api/metering";
 import { chargeUnits, checkLimits, refundUnits } from "@/lib/api/rate-limit";
 import { unitsForWork } from "@/lib/api/units";
 import { requireCaller } from "@/lib/auth/session";
-import { hasDatasetRef, resolveDatasets } from "@/lib/datasets/resolve";
+import { resolveBodyDatasets } from "@/lib/datasets/resolve";
 import { handler, notFound } from "@/lib/portal/http";
-import { DensityBody } from "@/app/api/v1/density/schema";
-import { MomentsBody } from "@/app/api/v1/moments/schema";
-import { QuantilesBody } from "@/app/api/v1/quantiles/schema";
-import { RiskBody } from "@/app/api/v1/risk/schema";
+import { DensityBody } from "@/lib/api/schemas/density";
+import { MomentsBody } from "@/lib/api/schemas/moments";
+import { QuantilesBody } from "@/lib/api/schemas/quantiles";
+import { RiskBody } from "@/lib/api/schemas/risk";
 
 export const dynamic = "force-dynamic";
 
@@ -49,7 +49,7 @@ export const POST = handler(async (req, params) => {
     headers = limitHeaders(decision);
     if (!decision.allowed) throw refusal(decision, "user");
     admitted = decision.source === "redis";
-    const input = hasDatasetRef(body.model) ? { ...body, model: await resolveDatasets(body.model, caller.organizationId, "/model", "this organisation") } : body;
+    const input = await resolveBodyDatasets(body, { organizationId: caller.organizationId, where: "this organisation" });
     const result = await computeFor(`user:${caller.userId}`, caller.plan, work, { advice: EXPLORER_ADVICE })(op, input);
     status = 200;
     units = unitsForWork(work.computeMs);

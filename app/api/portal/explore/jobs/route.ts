@@ -9,10 +9,10 @@ import { recordUsage } from "@/lib/api/metering";
 import { planOf } from "@/lib/api/plans";
 import { checkLimits, refundUnits } from "@/lib/api/rate-limit";
 import { requireCaller } from "@/lib/auth/session";
-import { hasDatasetRef, resolveDatasets } from "@/lib/datasets/resolve";
+import { resolveBodyDatasets } from "@/lib/datasets/resolve";
 import { getJobView, submitJob } from "@/lib/jobs/queue";
 import { handler } from "@/lib/portal/http";
-import { JOB_OPERATIONS } from "@/app/api/v1/jobs/schema";
+import { JOB_OPERATIONS } from "@/lib/api/schemas/jobs";
 
 export const dynamic = "force-dynamic";
 
@@ -35,7 +35,7 @@ export const POST = handler(async (req) => {
     if (!decision.allowed) throw refusal(decision, "user");
     units = 1;
     try {
-      if (hasDatasetRef(body.model)) body = { ...body, model: await resolveDatasets(body.model, caller.organizationId) };
+      body = await resolveBodyDatasets(body, { organizationId: caller.organizationId });
       const id = await submitJob({
         op,
         body,

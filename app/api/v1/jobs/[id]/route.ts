@@ -2,7 +2,7 @@
 import { ApiError } from "@/lib/api/errors";
 import { methodNotAllowed, preflight, withApiKey } from "@/lib/api/gate";
 import { getJobView } from "@/lib/jobs/queue";
-import { JOB_OPERATIONS } from "../schema";
+import { JOB_OPERATIONS } from "@/lib/api/schemas/jobs";
 
 export const dynamic = "force-dynamic";
 

@@ -2,12 +2,12 @@ import { Meta } from "@/lib/api/common-schemas";
 import { z } from "@/lib/api/zod";
 import type { Scope } from "@/lib/api/scopes";
 import { OPERATIONS, type OperationName } from "@/lib/compute/types";
-import { CfBody } from "../cf/schema";
-import { ConvolveRequest } from "../convolve/schema";
-import { DensityBody } from "../density/schema";
-import { MomentsBody } from "../moments/schema";
-import { QuantilesBody } from "../quantiles/schema";
-import { RiskBody } from "../risk/schema";
+import { CfBody } from "./cf";
+import { ConvolveRequest } from "./convolve";
+import { DensityBody } from "./density";
+import { MomentsBody } from "./moments";
+import { QuantilesBody } from "./quantiles";
+import { RiskBody } from "./risk";
 
 /** Each operation's request schema and the scope a key needs for it, as on its synchronous endpoint. */
 export const JOB_OPERATIONS: Record<OperationName, { schema: z.ZodType; scope: Scope }> = {
