@@ -81,9 +81,9 @@ export function logarithmic(p: number): Node {
  */
 export function zeroModified(base: Node, p0M: number, oneMinusP0: number): Node {
   const p0 = base.p0!;
-  const pan = base.panjer!;
+  // a degenerate base (binomial with p = 1: N = n) has no (a, b, 0) recursion; the modified law then has none either
+  const pan = base.panjer;
   const beta = (1 - p0M) / oneMinusP0;
-  const ab = pan.a + pan.b;
   const mix = (re: Float64Array, im: Float64Array, n: number) => {
     for (let k = 0; k < n; k++) {
       // expm1(K), K = (re, im)
@@ -132,7 +132,7 @@ export function zeroModified(base: Node, p0M: number, oneMinusP0: number): Node 
       unwrapFrom(im, nearestZero(wr, wi));
     },
     // (a, b, 1): P(M = k) = (a + b/k) P(M = k-1) for k >= 2; c1 = p1M - (a + b) p0M with p1M = beta (a + b) p0
-    panjer: { a: pan.a, b: pan.b, p0: p0M, c1: ab * (beta * p0 - p0M) },
+    panjer: pan ? { a: pan.a, b: pan.b, p0: p0M, c1: (pan.a + pan.b) * (beta * p0 - p0M) } : undefined,
     p0: p0M,
   };
 }

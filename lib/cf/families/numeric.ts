@@ -2,10 +2,24 @@ import { gamma as gammaFn, lgamma } from "./special";
 import { cumulantList, rawToCumulants, type Node } from "../node";
 import { sortedAnchor, unwrapFrom } from "../complex";
 import { checkDeadline } from "../deadline";
+import { CfError } from "../errors";
 import { fromPhiDamped } from "../damped-cf";
 
 /** Stated accuracy of the numerically computed CFs below (absolute error in phi). */
 export const NUMERIC_CF_ABS_ERROR = 1e-13;
+
+/** The most nodes one quadrature rule of a CF may use; parameters that would need more are refused. */
+export const MAX_QUADRATURE_NODES = 2 ** 20;
+
+/** The node count n of a quadrature rule, or limit_exceeded naming the parameter that asks for too many. */
+function quadratureNodes(n: number, what: string, advice: string): number {
+  if (n <= MAX_QUADRATURE_NODES) return n;
+  throw new CfError(
+    "limit_exceeded",
+    "",
+    `${what} needs ${Number.isFinite(n) ? n.toExponential(2) : "unboundedly many"} quadrature nodes for its CF (the limit is ${MAX_QUADRATURE_NODES}); ${advice}`,
+  );
+}
 
 /** t equispaced and positive (within rounding), long enough for the recurrence to pay. */
 function arithmetic(t: Float64Array): boolean {
@@ -50,7 +64,7 @@ export function lognormal(mu: number, sigma: number): Node {
   const c = theta / sigma;
   const h = Math.min((2 * Math.PI * c) / (2 * c * c + 40), 0.5);
   const V = Math.sqrt(2 * (40 + 2.5 * c * c));
-  const n = Math.ceil((2 * V) / h) + 1;
+  const n = quadratureNodes(Math.ceil((2 * V) / h) + 1, `the lognormal sigma ${sigma}`, "use a sigma up to 1e4.");
   const v = new Float64Array(n);
   const w = new Float64Array(n);
   const ev = new Float64Array(n);
@@ -225,7 +239,7 @@ export function weibull(k: number, lambda: number): Node {
   const cosK = Math.cos(k * theta);
   const sLo = -40 / k;
   const sHi = Math.log(45 / cosK) / k;
-  const n = Math.ceil((sHi - sLo) / h) + 1;
+  const n = quadratureNodes(Math.ceil((sHi - sLo) / h) + 1, `the weibull shape ${k}`, "use a shape between 3e-4 and 1e307.");
   const es = new Float64Array(n);
   const amp0 = new Float64Array(n);
   const ph0 = new Float64Array(n);
@@ -435,11 +449,12 @@ function paretoSeries(alpha: number, r: number, arg: number, out: Float64Array):
  * tau = xm t; computed with u = e^v by the trapezoidal rule (strip |Im v| < pi/4, step for an error below 1e-16).
  */
 export function pareto(alpha: number, xm: number): Node {
-  const M = Math.SQRT2 ** (alpha + 2);
-  const h = Math.min(0.15, (Math.PI * Math.PI) / 2 / (40 + Math.log(2 * M)));
+  // log(2 M), M = sqrt(2)^(alpha + 2), without forming M (it overflows past alpha ~ 2044)
+  const log2M = Math.LN2 + (alpha + 2) * 0.5 * Math.LN2;
+  const h = Math.min(0.15, (Math.PI * Math.PI) / 2 / (40 + log2M));
   const vLo = -40;
   const vHi = Math.log(45);
-  const n = Math.ceil((vHi - vLo) / h) + 1;
+  const n = quadratureNodes(Math.ceil((vHi - vLo) / h) + 1, `the tail index alpha = ${alpha}`, "use a tail index up to 3e5 (a larger one is a point mass at the minimum to double precision).");
   const ev = new Float64Array(n);
   const wv = new Float64Array(n);
   for (let j = 0; j < n; j++) {
