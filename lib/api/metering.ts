@@ -1,9 +1,10 @@
 import "server-only";
 import { appendFileSync, existsSync, mkdirSync, readdirSync, readFileSync, renameSync, unlinkSync } from "node:fs";
 import { join } from "node:path";
-import { getDb, withDbDeadline } from "@/lib/db/client";
+import { withDbDeadline } from "@/lib/db/client";
 import { touchKeys } from "@/lib/db/keys";
-import { usageEvents, type NewUsageEvent } from "@/lib/db/schema";
+import type { NewUsageEvent } from "@/lib/db/schema";
+import { insertUsageEvents } from "@/lib/db/usage";
 
 /**
  * Usage metering: exactly one usage_events row per authenticated request, keyed by its request id.
@@ -52,7 +53,7 @@ async function insertRows(rows: NewUsageEvent[]): Promise<void> {
   for (let i = 0; i < rows.length; i += BATCH) {
     // A database that stops answering must not hold the flush: the batch is spooled, and INSERT IGNORE on the
     // request id keeps a late-finishing insert and the replay from counting twice.
-    await withDbDeadline(getDb().insert(usageEvents).ignore().values(rows.slice(i, i + BATCH)), 3000);
+    await withDbDeadline(insertUsageEvents({ rows: rows.slice(i, i + BATCH) }), 3000);
   }
 }
 

@@ -1,8 +1,15 @@
 import "server-only";
 import { randomBytes } from "node:crypto";
-import { and, desc, eq, gt, isNull, ne, sql } from "drizzle-orm";
-import { getDb } from "@/lib/db/client";
-import { userSessions, users } from "@/lib/db/schema";
+import {
+  createSession,
+  endAllSessionRows,
+  endSessionRow,
+  endSessionRowsExcept,
+  getSessionVersion,
+  getSessionWithVersion,
+  listOpenSessionRows,
+  touchSession,
+} from "@/lib/db/auth";
 
 /**
  * Server-side sessions behind next-auth's JWT cookie. The token carries a session id (sid) and the user's
@@ -30,20 +37,10 @@ export function forgetSessionChecks(sid?: string) {
 }
 
 export async function openSession(input: { userId: number; ip: string; userAgent: string; method: SignInMethod }): Promise<{ sid: string; sv: number }> {
-  const db = getDb();
-  const [u] = await db.select({ v: users.sessionVersion }).from(users).where(eq(users.id, input.userId));
+  const version = await getSessionVersion({ userId: input.userId });
   const sid = randomBytes(24).toString("base64url");
-  const now = new Date();
-  await db.insert(userSessions).values({
-    sid,
-    userId: input.userId,
-    version: u?.v ?? 0,
-    ip: input.ip.slice(0, 64),
-    userAgent: input.userAgent.slice(0, 255),
-    method: input.method,
-    lastSeenAt: now,
-  });
-  return { sid, sv: u?.v ?? 0 };
+  await createSession({ sid, userId: input.userId, version, ip: input.ip.slice(0, 64), userAgent: input.userAgent.slice(0, 255), method: input.method, lastSeenAt: new Date() });
+  return { sid, sv: version };
 }
 
 /** True while the token's session is open and the user's version is the token's. Cached briefly. */
@@ -53,17 +50,12 @@ export async function isSessionLive(token: { uid?: unknown; sid?: unknown; sv?: 
   const now = Date.now();
   const hit = checks().get(sid);
   if (hit && now - hit.at < CHECK_CACHE_MS) return hit.ok;
-  const db = getDb();
-  const [row] = await db
-    .select({ userId: userSessions.userId, endedAt: userSessions.endedAt, lastSeenAt: userSessions.lastSeenAt, current: users.sessionVersion })
-    .from(userSessions)
-    .innerJoin(users, eq(users.id, userSessions.userId))
-    .where(eq(userSessions.sid, sid));
+  const row = await getSessionWithVersion({ sid });
   const ok = !!row && row.userId === uid && !row.endedAt && row.current === sv;
   let touchedAt = hit?.touchedAt ?? row?.lastSeenAt.getTime() ?? 0;
   if (ok && now - touchedAt > TOUCH_MS) {
     touchedAt = now;
-    await db.update(userSessions).set({ lastSeenAt: new Date(now) }).where(eq(userSessions.sid, sid));
+    await touchSession({ sid, at: new Date(now) });
   }
   if (checks().size > 50_000) checks().clear();
   checks().set(sid, { at: now, ok, touchedAt });
@@ -72,34 +64,25 @@ export async function isSessionLive(token: { uid?: unknown; sid?: unknown; sv?: 
 
 /** Ends one session (sign-out). */
 export async function endSession(sid: string): Promise<void> {
-  await getDb().update(userSessions).set({ endedAt: new Date() }).where(and(eq(userSessions.sid, sid), isNull(userSessions.endedAt)));
+  await endSessionRow({ sid });
   forgetSessionChecks(sid);
 }
 
 /** Ends the user's other sessions, keeping `keepSid`. Returns how many ended. */
 export async function endOtherSessions(userId: number, keepSid: string): Promise<number> {
-  const [res] = await getDb()
-    .update(userSessions)
-    .set({ endedAt: new Date() })
-    .where(and(eq(userSessions.userId, userId), isNull(userSessions.endedAt), ne(userSessions.sid, keepSid)));
+  const ended = await endSessionRowsExcept({ userId, keepSid });
   forgetSessionChecks();
-  return res.affectedRows;
+  return ended;
 }
 
 /** Ends every session of the user: bumps the version (so any token, listed or not, stops) and closes the rows. */
-export async function endAllSessions(userId: number, db: Pick<ReturnType<typeof getDb>, "update"> = getDb()): Promise<void> {
-  await db.update(users).set({ sessionVersion: sql`${users.sessionVersion} + 1` }).where(eq(users.id, userId));
-  await db.update(userSessions).set({ endedAt: new Date() }).where(and(eq(userSessions.userId, userId), isNull(userSessions.endedAt)));
+export async function endAllSessions(userId: number): Promise<void> {
+  await endAllSessionRows({ userId });
   forgetSessionChecks();
 }
 
 /** The user's open sessions, most recently seen first. */
 export async function listOpenSessions(userId: number) {
   const since = new Date(Date.now() - SESSION_MAX_AGE_S * 1000);
-  const [u] = await getDb().select({ v: users.sessionVersion }).from(users).where(eq(users.id, userId));
-  return getDb()
-    .select({ sid: userSessions.sid, ip: userSessions.ip, userAgent: userSessions.userAgent, method: userSessions.method, createdAt: userSessions.createdAt, lastSeenAt: userSessions.lastSeenAt })
-    .from(userSessions)
-    .where(and(eq(userSessions.userId, userId), isNull(userSessions.endedAt), eq(userSessions.version, u?.v ?? 0), gt(userSessions.lastSeenAt, since)))
-    .orderBy(desc(userSessions.lastSeenAt));
+  return listOpenSessionRows({ userId, version: await getSessionVersion({ userId }), since });
 }

@@ -1,9 +1,8 @@
 import "server-only";
 import { createCipheriv, createDecipheriv, createHash, createHmac, randomBytes } from "node:crypto";
-import { and, eq, isNull, lt, or } from "drizzle-orm";
 import { generateSecret, generateURI, verify } from "otplib";
-import { getDb } from "@/lib/db/client";
-import { recoveryCodes, users } from "@/lib/db/schema";
+import { claimTotpStep, countUnusedRecoveryCodes, disableTotp, enableTotp, setTotpSecret, spendRecoveryCode } from "@/lib/db/auth";
+import { getUserById } from "@/lib/db/portal";
 
 /**
  * Two-factor sign-in with time-based one-time codes (RFC 6238, 30 s steps, 6 digits; otplib) and single-use
@@ -58,7 +57,7 @@ export function newRecoveryCodes(): string[] {
 /** Starts enrolment: a fresh secret is stored (not yet enabled); returns it with its otpauth URI. */
 export async function beginEnrolment(user: { id: number; email: string }) {
   const secret = generateSecret();
-  await getDb().update(users).set({ totpSecret: seal(secret), totpEnabledAt: null, totpLastStep: null }).where(eq(users.id, user.id));
+  await setTotpSecret({ userId: user.id, sealed: seal(secret) });
   return { secret, uri: generateURI({ issuer: ISSUER, label: user.email, secret }) };
 }
 
@@ -69,32 +68,21 @@ async function checkCode(userId: number, sealed: string | null, lastStep: number
   const r = await verify({ secret, token: code, epochTolerance: TOLERANCE_S, ...(lastStep != null ? { afterTimeStep: lastStep } : {}) });
   if (!r.valid || !("timeStep" in r)) return false;
   const step = r.timeStep as number;
-  const [res] = await getDb()
-    .update(users)
-    .set({ totpLastStep: step })
-    .where(and(eq(users.id, userId), or(isNull(users.totpLastStep), lt(users.totpLastStep, step))));
-  return res.affectedRows === 1;
+  return claimTotpStep({ userId, step });
 }
 
 /** Confirms enrolment with a first code; enables two-factor and returns fresh recovery codes (shown once). */
 export async function confirmEnrolment(userId: number, code: string): Promise<string[] | null> {
-  const db = getDb();
-  const [u] = await db.select().from(users).where(eq(users.id, userId));
+  const u = await getUserById({ userId });
   if (!u?.totpSecret || u.totpEnabledAt) return null;
   if (!(await checkCode(userId, u.totpSecret, u.totpLastStep, code.trim()))) return null;
   const codes = newRecoveryCodes();
-  await db.transaction(async (tx) => {
-    await tx.update(users).set({ totpEnabledAt: new Date() }).where(eq(users.id, userId));
-    await tx.delete(recoveryCodes).where(eq(recoveryCodes.userId, userId));
-    await tx.insert(recoveryCodes).values(codes.map((c) => ({ userId, codeHash: hashRecovery(c) })));
-  });
+  await enableTotp({ userId, codeHashes: codes.map(hashRecovery) });
   return codes;
 }
 
 export async function disableTwoFactor(userId: number): Promise<void> {
-  const db = getDb();
-  await db.update(users).set({ totpSecret: null, totpEnabledAt: null, totpLastStep: null }).where(eq(users.id, userId));
-  await db.delete(recoveryCodes).where(eq(recoveryCodes.userId, userId));
+  await disableTotp({ userId });
 }
 
 /** The second factor at sign-in: a current code, or an unused recovery code (spent here). */
@@ -105,17 +93,9 @@ export async function checkSecondFactor(
   const code = input.trim();
   if (/^\d{6}$/.test(code)) return (await checkCode(user.id, user.totpSecret, user.totpLastStep, code)) ? "totp" : null;
   if (code.length < 8 || code.length > 40) return null;
-  const [res] = await getDb()
-    .update(recoveryCodes)
-    .set({ usedAt: new Date() })
-    .where(and(eq(recoveryCodes.userId, user.id), eq(recoveryCodes.codeHash, hashRecovery(code)), isNull(recoveryCodes.usedAt)));
-  return res.affectedRows === 1 ? "recovery" : null;
+  return (await spendRecoveryCode({ userId: user.id, codeHash: hashRecovery(code) })) ? "recovery" : null;
 }
 
 export async function recoveryCodesLeft(userId: number): Promise<number> {
-  const rows = await getDb()
-    .select({ id: recoveryCodes.id })
-    .from(recoveryCodes)
-    .where(and(eq(recoveryCodes.userId, userId), isNull(recoveryCodes.usedAt)));
-  return rows.length;
+  return countUnusedRecoveryCodes({ userId });
 }

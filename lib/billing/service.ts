@@ -1,22 +1,34 @@
 import "server-only";
-import { randomUUID } from "node:crypto";
-import { and, asc, eq, inArray, lte } from "drizzle-orm";
 import { CURRENCY, FREE_PLAN, formatMoney, isPlanName, PLANS, type PlanName } from "@/lib/api/plans";
 import { recordAudit } from "@/lib/db/audit";
-import { getDb, type Db } from "@/lib/db/client";
-import { listEmailsByRole } from "@/lib/db/portal";
-import { sumUnits } from "@/lib/db/portal-usage";
-import { organizations, users, type Organization } from "@/lib/db/schema";
 import {
-  billingAccounts,
-  billingContacts,
-  invoiceLines,
-  invoices,
-  planChanges,
-  processedEvents,
-  type BillingAccount,
-  type Invoice,
-} from "@/lib/db/schema-billing";
+  claimProcessedEvent,
+  createBillingAccount,
+  findOrCreateInvoice,
+  getBillingAccount,
+  getInvoiceById,
+  getInvoiceByProviderId,
+  getInvoiceInOrg,
+  getUserName,
+  hasBillingAccount,
+  isEventProcessed,
+  listAccountsDueForClose,
+  listAccountsPastDueSince,
+  listBillingContactEmails,
+  listInvoiceLines,
+  listIssuedInvoices,
+  listOpenPeriodInvoices,
+  recordPlanChange,
+  setOrganizationPlan,
+  updateBillingAccount,
+  updateInvoice,
+  withBillingAccountLocked,
+  type Tx,
+} from "@/lib/db/billing-ledger";
+import { getOrgById, listEmailsByRole } from "@/lib/db/portal";
+import { sumUnits } from "@/lib/db/portal-usage";
+import type { Organization } from "@/lib/db/schema";
+import type { BillingAccount, Invoice } from "@/lib/db/schema-billing";
 import { paymentFailedMail, planChangeMail, planRestoredMail, receiptMail, restrictedMail, type MailContent } from "@/lib/mail/templates";
 import { sendMail } from "@/lib/mail/transport";
 import { notFound, PortalError } from "@/lib/portal/http";
@@ -27,8 +39,6 @@ import { provider, type Stripe } from "./provider";
 /** Days an invoice may stay unpaid after a failed payment before the organisation drops to the Free plan's limits. */
 export const GRACE_DAYS = 7;
 const DAY_MS = 86_400_000;
-
-type Tx = Parameters<Parameters<Db["transaction"]>[0]>[0];
 
 /** What a locked operation works on; mails wait in `after` until the transaction has committed. */
 interface Ctx {
@@ -45,13 +55,11 @@ const currencyLower = CURRENCY.toLowerCase();
 /** The billing row of an organisation, created on first use (on the plan the organisation holds, this month). */
 export async function ensureAccount(organizationId: number, now = new Date()): Promise<void> {
   // A plain read first: INSERT IGNORE on a row another transaction holds locked would wait on (and can deadlock with) it.
-  const [has] = await getDb().select({ id: billingAccounts.organizationId }).from(billingAccounts).where(eq(billingAccounts.organizationId, organizationId));
-  if (has) return;
-  const [org] = await getDb().select().from(organizations).where(eq(organizations.id, organizationId));
+  if (await hasBillingAccount({ organizationId })) return;
+  const org = await getOrgById({ organizationId });
   if (!org) throw notFound("This organisation");
-  const plan = planName(org.plan);
   const p = periodOf(now);
-  await getDb().insert(billingAccounts).ignore().values({ organizationId, planCode: plan, periodPlanCode: plan, periodStart: p.start, periodEnd: p.end });
+  await createBillingAccount({ organizationId, planCode: planName(org.plan), periodStart: p.start, periodEnd: p.end });
 }
 
 const isDeadlock = (e: unknown) => {
@@ -69,11 +77,7 @@ async function withAccount<T>(organizationId: number, now: Date, fn: (ctx: Ctx) 
   for (let attempt = 1; ; attempt++) {
     const after: Ctx["after"] = [];
     try {
-      const out = await getDb().transaction(async (tx) => {
-        const [acct] = await tx.select().from(billingAccounts).where(eq(billingAccounts.organizationId, organizationId)).for("update");
-        const [org] = await tx.select().from(organizations).where(eq(organizations.id, organizationId));
-        return fn({ tx, acct, org, now, after });
-      });
+      const out = await withBillingAccountLocked({ organizationId }, ({ tx, acct, org }) => fn({ tx, acct, org, now, after }));
       for (const job of after) await job().catch((e) => console.error("[sumfold] billing follow-up failed", e));
       return out;
     } catch (e) {
@@ -84,22 +88,22 @@ async function withAccount<T>(organizationId: number, now: Date, fn: (ctx: Ctx) 
 }
 
 async function setAccount(ctx: Ctx, patch: Partial<BillingAccount>) {
-  await ctx.tx.update(billingAccounts).set({ ...patch, updatedAt: ctx.now }).where(eq(billingAccounts.organizationId, ctx.acct.organizationId));
+  await updateBillingAccount({ organizationId: ctx.acct.organizationId, patch: { ...patch, updatedAt: ctx.now } }, ctx.tx);
   Object.assign(ctx.acct, patch);
 }
 
 /** Sets the plan whose limits apply (read by the key gate, so the limiter follows within its one-second cache). */
 async function setEffectivePlan(ctx: Ctx, plan: PlanName) {
   if (ctx.org.plan === plan) return;
-  await ctx.tx.update(organizations).set({ plan }).where(eq(organizations.id, ctx.org.id));
+  await setOrganizationPlan({ organizationId: ctx.org.id, plan }, ctx.tx);
   ctx.org.plan = plan;
 }
 
 /** Who receives billing mail: the billing contacts and the billing members, or the admins when there are none. */
 export async function billingRecipients(organizationId: number): Promise<string[]> {
-  const contacts = await getDb().select({ email: billingContacts.email }).from(billingContacts).where(eq(billingContacts.organizationId, organizationId));
+  const contacts = await listBillingContactEmails({ organizationId });
   const billing = await listEmailsByRole({ organizationId, roles: ["billing"] });
-  const all = [...new Set([...contacts.map((c) => c.email), ...billing])];
+  const all = [...new Set([...contacts, ...billing])];
   return all.length > 0 ? all : listEmailsByRole({ organizationId, roles: ["admin"] });
 }
 
@@ -127,34 +131,17 @@ const billingUrl = (ctx: Ctx) => `${baseUrl()}/billing?org=${encodeURIComponent(
 
 /** Finds or creates the local invoice row for (kind, dedupeKey): the unique key makes a repeated run a no-op. */
 async function claimInvoice(ctx: Ctx, p: { kind: "period" | "proration"; dedupeKey: string; planCode: string; period: { start: Date; end: Date }; lines: Line[]; metered: number }): Promise<Invoice> {
-  const where = and(eq(invoices.organizationId, ctx.org.id), eq(invoices.kind, p.kind), eq(invoices.dedupeKey, p.dedupeKey));
-  const [existing] = await ctx.tx.select().from(invoices).where(where);
-  if (existing) return existing;
-  const [res] = await ctx.tx.insert(invoices).values({
-    organizationId: ctx.org.id,
-    number: `tmp-${randomUUID()}`.slice(0, 32),
-    kind: p.kind,
-    dedupeKey: p.dedupeKey,
-    planCode: p.planCode,
-    periodStart: p.period.start,
-    periodEnd: p.period.end,
-    currency: CURRENCY,
-    totalMinor: linesTotal(p.lines),
-    unitsMetered: p.metered,
-    status: "draft",
-  });
-  // Numbers follow the row id, so they are unique and increasing without a counter: SFV-2026-000123.
-  await ctx.tx.update(invoices).set({ number: `SFV-${ctx.now.getUTCFullYear()}-${String(res.insertId).padStart(6, "0")}` }).where(eq(invoices.id, res.insertId));
-  await ctx.tx.insert(invoiceLines).values(p.lines.map((l, i) => ({ invoiceId: res.insertId, position: i + 1, ...l })));
-  const [row] = await ctx.tx.select().from(invoices).where(eq(invoices.id, res.insertId));
-  return row;
+  return findOrCreateInvoice(
+    { organizationId: ctx.org.id, kind: p.kind, dedupeKey: p.dedupeKey, planCode: p.planCode, period: p.period, currency: CURRENCY, totalMinor: linesTotal(p.lines), metered: p.metered, year: ctx.now.getUTCFullYear(), lines: p.lines },
+    ctx.tx,
+  );
 }
 
 /** Creates the invoice at the provider (one item per line) and finalises it; every call carries an idempotency key. */
 async function sendToProvider(ctx: Ctx, row: Invoice): Promise<Invoice> {
   if (row.status !== "draft") return row;
   const customer = await ensureCustomer(ctx);
-  const lines = await ctx.tx.select().from(invoiceLines).where(eq(invoiceLines.invoiceId, row.id)).orderBy(asc(invoiceLines.position));
+  const lines = await listInvoiceLines({ invoiceId: row.id }, ctx.tx);
   const key = `sumfold-${row.number}`;
   let pinv = await provider().invoices.create(
     {
@@ -175,7 +162,7 @@ async function sendToProvider(ctx: Ctx, row: Invoice): Promise<Invoice> {
     );
   }
   if (pinv.status === "draft") pinv = await provider().invoices.finalizeInvoice(pinv.id!, {}, { idempotencyKey: `${key}-finalize` });
-  await ctx.tx.update(invoices).set({ providerInvoiceId: pinv.id, status: "open" }).where(eq(invoices.id, row.id));
+  await updateInvoice({ invoiceId: row.id, patch: { providerInvoiceId: pinv.id, status: "open" } }, ctx.tx);
   return { ...row, providerInvoiceId: pinv.id ?? null, status: "open" };
 }
 
@@ -195,7 +182,7 @@ async function charge(ctx: Ctx, row: Invoice): Promise<PayOutcome> {
     const err = e as { type?: string; statusCode?: number; message?: string };
     if (err.statusCode === 402 || err.type === "StripeCardError") {
       const message = err.message ?? "The payment was declined.";
-      await ctx.tx.update(invoices).set({ lastPaymentError: message.slice(0, 300) }).where(eq(invoices.id, row.id));
+      await updateInvoice({ invoiceId: row.id, patch: { lastPaymentError: message.slice(0, 300) } }, ctx.tx);
       return { paid: false, message };
     }
     throw e;
@@ -203,9 +190,9 @@ async function charge(ctx: Ctx, row: Invoice): Promise<PayOutcome> {
 }
 
 async function markPaid(ctx: Ctx, row: Invoice) {
-  const [cur] = await ctx.tx.select().from(invoices).where(eq(invoices.id, row.id));
-  if (cur.status === "paid") return;
-  await ctx.tx.update(invoices).set({ status: "paid", paidAt: ctx.now, lastPaymentError: null }).where(eq(invoices.id, row.id));
+  const cur = await getInvoiceById({ invoiceId: row.id }, ctx.tx);
+  if (cur!.status === "paid") return;
+  await updateInvoice({ invoiceId: row.id, patch: { status: "paid", paidAt: ctx.now, lastPaymentError: null } }, ctx.tx);
   mail(ctx, receiptMail({ organization: ctx.org.name, number: row.number, total: formatMoney(row.totalMinor, row.currency), period: periodLabel({ start: row.periodStart, end: row.periodEnd }), card: cardLabel(ctx.acct), url: invoiceUrl(ctx, row.id) }));
   await restoreIfSettled(ctx);
 }
@@ -213,7 +200,7 @@ async function markPaid(ctx: Ctx, row: Invoice) {
 /** A past-due or restricted organisation with no open period invoice left gets its plan back. */
 async function restoreIfSettled(ctx: Ctx) {
   if (ctx.acct.status === "active") return;
-  const open = await ctx.tx.select({ id: invoices.id }).from(invoices).where(and(eq(invoices.organizationId, ctx.org.id), eq(invoices.status, "open"), eq(invoices.kind, "period")));
+  const open = await listOpenPeriodInvoices({ organizationId: ctx.org.id }, ctx.tx);
   if (open.length > 0) return;
   await setAccount(ctx, { status: "active", pastDueSince: null });
   await setEffectivePlan(ctx, planName(ctx.acct.planCode));
@@ -244,9 +231,9 @@ export interface CloseResult {
  * unique (organisation, kind, period) key make the second run a no-op.
  */
 export async function closeDuePeriods(now = new Date()): Promise<CloseResult[]> {
-  const due = await getDb().select({ organizationId: billingAccounts.organizationId }).from(billingAccounts).where(lte(billingAccounts.periodEnd, now));
+  const due = await listAccountsDueForClose({ now });
   const out: CloseResult[] = [];
-  for (const { organizationId } of due) {
+  for (const organizationId of due) {
     try {
       out.push(await closeAccount(organizationId, now));
     } catch (e) {
@@ -289,12 +276,9 @@ export async function closeAccount(organizationId: number, now = new Date()): Pr
 /** Past-due organisations whose grace period is over fall to the Free plan's limits (their data stays). */
 export async function sweepDunning(now = new Date()): Promise<number[]> {
   const limit = new Date(now.getTime() - GRACE_DAYS * DAY_MS);
-  const rows = await getDb()
-    .select({ organizationId: billingAccounts.organizationId })
-    .from(billingAccounts)
-    .where(and(eq(billingAccounts.status, "past_due"), lte(billingAccounts.pastDueSince, limit)));
+  const rows = await listAccountsPastDueSince({ since: limit });
   const done: number[] = [];
-  for (const { organizationId } of rows) {
+  for (const organizationId of rows) {
     await withAccount(organizationId, now, async (ctx) => {
       if (ctx.acct.status !== "past_due" || !ctx.acct.pastDueSince || ctx.acct.pastDueSince > limit) return;
       await setAccount(ctx, { status: "restricted" });
@@ -337,20 +321,20 @@ async function changePlanLocked(ctx: Ctx, target: PlanName, actor: { userId: num
       const paid = await charge(ctx, row);
       if (!paid.paid) {
         await provider().invoices.voidInvoice(row.providerInvoiceId!).catch(() => {});
-        await ctx.tx.update(invoices).set({ status: "void" }).where(eq(invoices.id, row.id));
+        await updateInvoice({ invoiceId: row.id, patch: { status: "void" } }, ctx.tx);
         return { action: "declined", message: `${paid.message} The plan is unchanged.` };
       }
       invoiceId = row.id;
     }
     await setAccount(ctx, { planCode: target, pendingPlanCode: null });
     await setEffectivePlan(ctx, target);
-    await ctx.tx.insert(planChanges).values({ organizationId: ctx.org.id, actorUserId: actor.userId, fromPlan: current, toPlan: target, effectiveAt: ctx.now, prorationMinor: amount });
+    await recordPlanChange({ organizationId: ctx.org.id, actorUserId: actor.userId, fromPlan: current, toPlan: target, effectiveAt: ctx.now, prorationMinor: amount }, ctx.tx);
     await recordAudit({ organizationId: ctx.org.id, actorUserId: actor.userId, actorType: "user", action: "billing.plan_upgraded", targetType: "organization", targetId: String(ctx.org.id), detail: { from: current, to: target, prorationMinor: amount } }, ctx.tx);
     mail(ctx, planChangeMail({ organization: ctx.org.name, actor: actor.name, from: PLANS[current].label, to: PLANS[target].label, when: "now", charge: amount > 0 ? formatMoney(amount) : undefined, url }));
     return { action: "upgraded", plan: target, prorationMinor: amount, invoiceId };
   }
   await setAccount(ctx, { pendingPlanCode: target });
-  await ctx.tx.insert(planChanges).values({ organizationId: ctx.org.id, actorUserId: actor.userId, fromPlan: current, toPlan: target, effectiveAt: period.end });
+  await recordPlanChange({ organizationId: ctx.org.id, actorUserId: actor.userId, fromPlan: current, toPlan: target, effectiveAt: period.end }, ctx.tx);
   await recordAudit({ organizationId: ctx.org.id, actorUserId: actor.userId, actorType: "user", action: "billing.plan_change_scheduled", targetType: "organization", targetId: String(ctx.org.id), detail: { from: current, to: target, effectiveAt: period.end.toISOString() } }, ctx.tx);
   mail(ctx, planChangeMail({ organization: ctx.org.name, actor: actor.name, from: PLANS[current].label, to: PLANS[target].label, when: `at the end of the period (${period.end.toUTCString()})`, url }));
   return { action: "scheduled", plan: target, effectiveAt: period.end.toISOString() };
@@ -419,9 +403,9 @@ export async function completeCheckout(sessionId: string, opts: { organizationId
   if (session.status !== "complete") return { status: "open" };
   return withAccount(organizationId, now, async (ctx) => {
     if (ctx.acct.providerCustomerId !== session.customer) throw notFound("This checkout");
-    const [claimed] = await ctx.tx.insert(processedEvents).ignore().values({ eventId: `checkout:${session.id}`, type: "checkout.completed" });
+    const claimed = await claimProcessedEvent({ eventId: `checkout:${session.id}`, type: "checkout.completed" }, ctx.tx);
     // Applied before (by the webhook or an earlier return): report the state the checkout was for.
-    if (claimed.affectedRows === 0) return { status: "already", purpose: session.metadata?.purpose ?? "", planInForce: ctx.acct.planCode === session.metadata?.plan } as const;
+    if (!claimed) return { status: "already", purpose: session.metadata?.purpose ?? "", planInForce: ctx.acct.planCode === session.metadata?.plan } as const;
     const si = await provider().setupIntents.retrieve(String(session.setup_intent));
     const pm = await provider().paymentMethods.retrieve(String(si.payment_method));
     await provider().customers.update(session.customer as string, { invoice_settings: { default_payment_method: pm.id } });
@@ -429,8 +413,7 @@ export async function completeCheckout(sessionId: string, opts: { organizationId
     const userId = Number(session.metadata?.user_id) || null;
     const target = session.metadata?.plan ?? "";
     if (session.metadata?.purpose === "plan" && isPlanName(target)) {
-      const [who] = userId ? await ctx.tx.select({ name: users.name }).from(users).where(eq(users.id, userId)) : [];
-      const name = who?.name ?? "A member";
+      const name = (userId ? await getUserName({ userId }, ctx.tx) : null) ?? "A member";
       if (ctx.acct.status !== "active") return { status: "card_saved", retried: await retryOpen(ctx) };
       return { status: "plan", ...(await changePlanLocked(ctx, target, { userId, name })) };
     }
@@ -440,7 +423,7 @@ export async function completeCheckout(sessionId: string, opts: { organizationId
 
 /** After a new card: charge the open period invoices again (paying the last one restores a lapsed plan). */
 async function retryOpen(ctx: Ctx): Promise<number> {
-  const open = await ctx.tx.select().from(invoices).where(and(eq(invoices.organizationId, ctx.org.id), eq(invoices.status, "open"), eq(invoices.kind, "period")));
+  const open = await listOpenPeriodInvoices({ organizationId: ctx.org.id }, ctx.tx);
   let n = 0;
   for (const row of open) if ((await charge(ctx, row)).paid) n++;
   return n;
@@ -449,7 +432,7 @@ async function retryOpen(ctx: Ctx): Promise<number> {
 /** Pays one open invoice with the saved card now (the portal's "Pay now"). */
 export async function payInvoice(actor: Actor, invoiceId: number, now = new Date()): Promise<PayOutcome> {
   return withAccount(actor.organizationId, now, async (ctx) => {
-    const [row] = await ctx.tx.select().from(invoices).where(and(eq(invoices.id, invoiceId), eq(invoices.organizationId, actor.organizationId)));
+    const row = await getInvoiceInOrg({ organizationId: actor.organizationId, invoiceId }, ctx.tx);
     if (!row) throw notFound("This invoice");
     if (row.status === "paid") return { paid: true } as const;
     if (row.status !== "open") throw new PortalError(409, `This invoice is ${row.status} and cannot be paid.`);
@@ -468,51 +451,49 @@ export type EventOutcome = "applied" | "duplicate" | "ignored";
  * late or out-of-order event (a failure delivered after the payment) cannot undo a newer state.
  */
 export async function applyEvent(event: Stripe.Event, now = new Date()): Promise<EventOutcome> {
-  const claim = async (db: Pick<Db, "insert">) => (await db.insert(processedEvents).ignore().values({ eventId: event.id, type: event.type }))[0].affectedRows > 0;
+  const claim = (tx?: Tx) => claimProcessedEvent({ eventId: event.id, type: event.type }, tx);
   if (event.type === "checkout.session.completed") {
     const s = event.data.object as Stripe.Checkout.Session;
-    const [seen] = await getDb().select().from(processedEvents).where(eq(processedEvents.eventId, event.id));
-    if (seen) return "duplicate";
+    if (await isEventProcessed({ eventId: event.id })) return "duplicate";
     await completeCheckout(s.id, { now }).catch((e) => {
       if (!(e instanceof PortalError && e.status === 404)) throw e;
     });
-    return (await claim(getDb())) ? "applied" : "duplicate";
+    return (await claim()) ? "applied" : "duplicate";
   }
   if (event.type.startsWith("invoice.")) {
     const snapshot = event.data.object as Stripe.Invoice;
-    const [row] = snapshot.id ? await getDb().select().from(invoices).where(eq(invoices.providerInvoiceId, snapshot.id)) : [];
-    if (!row) return (await claim(getDb())) ? "ignored" : "duplicate";
+    const row = snapshot.id ? await getInvoiceByProviderId({ providerInvoiceId: snapshot.id }) : null;
+    if (!row) return (await claim()) ? "ignored" : "duplicate";
     return withAccount(row.organizationId, now, async (ctx) => {
       if (!(await claim(ctx.tx))) return "duplicate" as const;
       const current = await provider().invoices.retrieve(snapshot.id!);
-      const [local] = await ctx.tx.select().from(invoices).where(eq(invoices.id, row.id));
+      const local = (await getInvoiceById({ invoiceId: row.id }, ctx.tx))!;
       if (current.status === "paid") await markPaid(ctx, local);
-      else if (current.status === "void" && local.status !== "void") await ctx.tx.update(invoices).set({ status: "void" }).where(eq(invoices.id, local.id));
+      else if (current.status === "void" && local.status !== "void") await updateInvoice({ invoiceId: local.id, patch: { status: "void" } }, ctx.tx);
       else if (event.type === "invoice.payment_failed" && current.status === "open" && local.kind === "period" && local.status === "open") await markPastDue(ctx, local);
       return "applied" as const;
     });
   }
-  return (await claim(getDb())) ? "ignored" : "duplicate";
+  return (await claim()) ? "ignored" : "duplicate";
 }
 
 // ---------------------------------------------------------------- reads
 
 export async function getAccount(organizationId: number, now = new Date()): Promise<BillingAccount> {
   await ensureAccount(organizationId, now);
-  const [acct] = await getDb().select().from(billingAccounts).where(eq(billingAccounts.organizationId, organizationId));
-  return acct;
+  return (await getBillingAccount({ organizationId }))!;
 }
 
 export const graceEndsAt = (a: BillingAccount) => (a.pastDueSince ? new Date(a.pastDueSince.getTime() + GRACE_DAYS * DAY_MS) : null);
 
 export async function listInvoices(organizationId: number) {
-  return getDb().select().from(invoices).where(and(eq(invoices.organizationId, organizationId), inArray(invoices.status, ["open", "paid", "void"]))).orderBy(asc(invoices.periodStart), asc(invoices.id));
+  return listIssuedInvoices({ organizationId });
 }
 
 export async function getInvoice(organizationId: number, id: number) {
-  const [row] = await getDb().select().from(invoices).where(and(eq(invoices.id, id), eq(invoices.organizationId, organizationId)));
+  const row = await getInvoiceInOrg({ organizationId, invoiceId: id });
   if (!row) throw notFound("This invoice");
-  const lines = await getDb().select().from(invoiceLines).where(eq(invoiceLines.invoiceId, id)).orderBy(asc(invoiceLines.position));
+  const lines = await listInvoiceLines({ invoiceId: id });
   return { invoice: row, lines };
 }
 

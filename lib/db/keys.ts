@@ -1,5 +1,5 @@
 import "server-only";
-import { and, desc, eq, inArray, isNull, or, gt, sql } from "drizzle-orm";
+import { and, desc, eq, inArray, isNull, lte, or, gt, sql } from "drizzle-orm";
 import { generateKeyMaterial, hashKey, pepper } from "@/lib/api/key-format";
 import { GRACE_PERIODS, type GracePeriod } from "@/lib/api/key-state";
 import type { Scope } from "@/lib/api/scopes";
@@ -177,4 +177,31 @@ export async function touchKeys(lastUsed: Map<number, Date>): Promise<void> {
 export async function getOrgBySlug({ slug }: { slug: string }) {
   const [row] = await getDb().select().from(organizations).where(eq(organizations.slug, slug));
   return row ?? null;
+}
+
+/**
+ * Keys that expire after `now` and by `until`, still working and not yet warned about, with their organisation's
+ * name and their creator's address; one organisation's, or every organisation's when none is named.
+ */
+export async function listKeysToWarnOfExpiry({ organizationId, now, until }: { organizationId?: number; now: Date; until: Date }) {
+  return getDb()
+    .select({ key: apiKeys, orgName: organizations.name, creatorEmail: users.email })
+    .from(apiKeys)
+    .innerJoin(organizations, eq(organizations.id, apiKeys.organizationId))
+    .leftJoin(users, eq(users.id, apiKeys.createdBy))
+    .where(
+      and(
+        organizationId ? eq(apiKeys.organizationId, organizationId) : undefined,
+        isNull(apiKeys.expiryWarnedAt),
+        gt(apiKeys.expiresAt, now),
+        lte(apiKeys.expiresAt, until),
+        or(isNull(apiKeys.revokedAt), gt(apiKeys.revokedAt, now)),
+      ),
+    );
+}
+
+/** Claims the expiry warning of a key (so two servers never both send it); false when it was claimed before. */
+export async function claimExpiryWarning({ keyId, at }: { keyId: number; at: Date }): Promise<boolean> {
+  const [res] = await getDb().update(apiKeys).set({ expiryWarnedAt: at }).where(and(eq(apiKeys.id, keyId), isNull(apiKeys.expiryWarnedAt)));
+  return res.affectedRows > 0;
 }

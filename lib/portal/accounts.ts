@@ -1,13 +1,12 @@
 import "server-only";
 import { randomBytes } from "node:crypto";
-import { and, eq, isNull } from "drizzle-orm";
 import { FREE_PLAN } from "@/lib/api/plans";
 import { hashPassword } from "@/lib/auth/passwords";
 import { endAllSessions } from "@/lib/auth/sessions";
+import { createOrganizationForUser, createUserWithOrganization, markEmailVerified, replaceEmailToken, setPasswordHash, spendEmailToken } from "@/lib/db/accounts";
 import { recordAudit } from "@/lib/db/audit";
-import { getDb } from "@/lib/db/client";
-import { getLiveEmailToken, getUserByEmail } from "@/lib/db/portal";
-import { emailTokens, memberships, organizations, users, type User } from "@/lib/db/schema";
+import { getLiveEmailToken, getUserByEmail, getUserById } from "@/lib/db/portal";
+import type { User } from "@/lib/db/schema";
 import { sendMail } from "@/lib/mail/transport";
 import { resetPasswordMail, verifyEmailMail } from "@/lib/mail/templates";
 import { PortalError } from "./http";
@@ -27,10 +26,8 @@ export const slugify = (name: string) =>
 
 async function issueEmailToken(userId: number, purpose: "verify" | "reset", ttl: number): Promise<string> {
   const { token, hash } = newLinkToken();
-  const db = getDb();
   // A new link replaces any earlier live link of the same purpose.
-  await db.update(emailTokens).set({ usedAt: new Date() }).where(and(eq(emailTokens.userId, userId), eq(emailTokens.purpose, purpose), isNull(emailTokens.usedAt)));
-  await db.insert(emailTokens).values({ userId, purpose, tokenHash: hash, expiresAt: new Date(Date.now() + ttl) });
+  await replaceEmailToken({ userId, purpose, tokenHash: hash, expiresAt: new Date(Date.now() + ttl) });
   return token;
 }
 
@@ -45,18 +42,8 @@ export async function signUp(input: { name: string; email: string; password: str
     throw new PortalError(409, "An account with this e-mail exists already.", { email: "This address already has an account: sign in, or reset the password." });
   }
   const passwordHash = await hashPassword(input.password);
-  const db = getDb();
-  const ids = await db.transaction(async (tx) => {
-    const [u] = await tx.insert(users).values({ email: input.email, name: input.name, passwordHash });
-    const slug = `${slugify(input.organization)}-${randomBytes(3).toString("hex")}`;
-    const [o] = await tx.insert(organizations).values({ slug, name: input.organization, plan: FREE_PLAN });
-    await tx.insert(memberships).values({ userId: u.insertId, organizationId: o.insertId, role: "admin" });
-    await recordAudit(
-      { organizationId: o.insertId, actorType: "user", actorUserId: u.insertId, action: "organization.created", targetType: "organization", targetId: String(o.insertId), detail: { name: input.organization } },
-      tx,
-    );
-    return { userId: u.insertId, organizationId: o.insertId };
-  });
+  const slug = `${slugify(input.organization)}-${randomBytes(3).toString("hex")}`;
+  const ids = await createUserWithOrganization({ email: input.email, name: input.name, passwordHash, organization: input.organization, slug, plan: FREE_PLAN });
   await sendVerification({ id: ids.userId, name: input.name, email: input.email });
   return ids;
 }
@@ -65,11 +52,9 @@ export async function signUp(input: { name: string; email: string; password: str
 export async function verifyEmail(token: string): Promise<{ email: string; userId: number; name: string }> {
   const row = await getLiveEmailToken({ tokenHash: hashLinkToken(token), purpose: "verify" });
   if (!row) throw new PortalError(410, "This confirmation link is used or expired. Sign in to ask for a new one.");
-  const db = getDb();
-  const [res] = await db.update(emailTokens).set({ usedAt: new Date() }).where(and(eq(emailTokens.id, row.id), isNull(emailTokens.usedAt)));
-  if (res.affectedRows === 0) throw new PortalError(410, "This confirmation link is used or expired.");
-  await db.update(users).set({ emailVerifiedAt: new Date() }).where(and(eq(users.id, row.userId), isNull(users.emailVerifiedAt)));
-  const [u] = await db.select({ email: users.email, name: users.name }).from(users).where(eq(users.id, row.userId));
+  if (!(await spendEmailToken({ tokenId: row.id }))) throw new PortalError(410, "This confirmation link is used or expired.");
+  await markEmailVerified({ userId: row.userId });
+  const u = (await getUserById({ userId: row.userId }))!;
   await recordAudit({ actorType: "user", actorUserId: row.userId, action: "user.email_verified", targetType: "user", targetId: String(row.userId) });
   return { email: u.email, userId: row.userId, name: u.name };
 }
@@ -92,30 +77,20 @@ export async function requestPasswordReset(email: string): Promise<void> {
 export async function resetPassword(token: string, password: string): Promise<{ email: string }> {
   const row = await getLiveEmailToken({ tokenHash: hashLinkToken(token), purpose: "reset" });
   if (!row) throw new PortalError(410, "This reset link is used or expired. Ask for a new one.");
-  const db = getDb();
-  const [res] = await db.update(emailTokens).set({ usedAt: new Date() }).where(and(eq(emailTokens.id, row.id), isNull(emailTokens.usedAt)));
-  if (res.affectedRows === 0) throw new PortalError(410, "This reset link is used or expired.");
+  if (!(await spendEmailToken({ tokenId: row.id }))) throw new PortalError(410, "This reset link is used or expired.");
   const passwordHash = await hashPassword(password);
-  const now = new Date();
-  await db.update(users).set({ passwordHash }).where(eq(users.id, row.userId));
-  await db.update(users).set({ emailVerifiedAt: now }).where(and(eq(users.id, row.userId), isNull(users.emailVerifiedAt)));
+  await setPasswordHash({ userId: row.userId, passwordHash });
+  await markEmailVerified({ userId: row.userId });
   // Whoever held a session (perhaps the reason for the reset) is signed out everywhere.
   await endAllSessions(row.userId);
-  const [u] = await db.select({ email: users.email, name: users.name }).from(users).where(eq(users.id, row.userId));
+  const u = (await getUserById({ userId: row.userId }))!;
   await recordAudit({ actorType: "user", actorUserId: row.userId, action: "user.password_reset", targetType: "user", targetId: String(row.userId) });
   return { email: u.email };
 }
 
 /** A signed-in person creates a further organisation (or their first, after leaving every other): they are its admin. */
 export async function createOrganization(input: { userId: number; name: string }): Promise<{ organizationId: number; slug: string }> {
-  return getDb().transaction(async (tx) => {
-    const slug = `${slugify(input.name)}-${randomBytes(3).toString("hex")}`;
-    const [o] = await tx.insert(organizations).values({ slug, name: input.name, plan: FREE_PLAN });
-    await tx.insert(memberships).values({ userId: input.userId, organizationId: o.insertId, role: "admin" });
-    await recordAudit(
-      { organizationId: o.insertId, actorType: "user", actorUserId: input.userId, action: "organization.created", targetType: "organization", targetId: String(o.insertId), detail: { name: input.name } },
-      tx,
-    );
-    return { organizationId: o.insertId, slug };
-  });
+  const slug = `${slugify(input.name)}-${randomBytes(3).toString("hex")}`;
+  const organizationId = await createOrganizationForUser({ userId: input.userId, name: input.name, slug, plan: FREE_PLAN });
+  return { organizationId, slug };
 }

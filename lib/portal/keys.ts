@@ -1,14 +1,12 @@
 import "server-only";
-import { and, eq, gt, isNull, lte, or } from "drizzle-orm";
 import { keyState, type GracePeriod } from "@/lib/api/key-state";
 import type { Scope } from "@/lib/api/scopes";
 import type { Caller } from "@/lib/auth/session";
 import { can } from "@/lib/auth/roles";
 import { recordAudit } from "@/lib/db/audit";
-import { getDb } from "@/lib/db/client";
-import { createKey, getKeyInOrg, listKeysByOrg, revokeKey, rotateKey, updateKey } from "@/lib/db/keys";
+import { claimExpiryWarning, createKey, getKeyInOrg, listKeysByOrg, listKeysToWarnOfExpiry, revokeKey, rotateKey, updateKey } from "@/lib/db/keys";
 import { listEmailsByRole } from "@/lib/db/portal";
-import { apiKeys, organizations, users, type ApiKey } from "@/lib/db/schema";
+import type { ApiKey } from "@/lib/db/schema";
 import { keyNoticeMail } from "@/lib/mail/templates";
 import { sendMail } from "@/lib/mail/transport";
 import { forbidden, notFound, PortalError } from "./http";
@@ -151,26 +149,11 @@ export async function revokePortalKey(caller: Caller, keyId: number): Promise<vo
  */
 export async function warnExpiringKeys(opts: { organizationId?: number; now?: Date } = {}): Promise<number> {
   const now = opts.now ?? new Date();
-  const db = getDb();
-  const rows = await db
-    .select({ key: apiKeys, orgName: organizations.name, creatorEmail: users.email })
-    .from(apiKeys)
-    .innerJoin(organizations, eq(organizations.id, apiKeys.organizationId))
-    .leftJoin(users, eq(users.id, apiKeys.createdBy))
-    .where(
-      and(
-        opts.organizationId ? eq(apiKeys.organizationId, opts.organizationId) : undefined,
-        isNull(apiKeys.expiryWarnedAt),
-        gt(apiKeys.expiresAt, now),
-        lte(apiKeys.expiresAt, new Date(now.getTime() + EXPIRY_WARNING_MS)),
-        or(isNull(apiKeys.revokedAt), gt(apiKeys.revokedAt, now)),
-      ),
-    );
+  const rows = await listKeysToWarnOfExpiry({ organizationId: opts.organizationId, now, until: new Date(now.getTime() + EXPIRY_WARNING_MS) });
   let sent = 0;
   for (const r of rows) {
     // Claim the warning first so two servers never both send it.
-    const [res] = await db.update(apiKeys).set({ expiryWarnedAt: now }).where(and(eq(apiKeys.id, r.key.id), isNull(apiKeys.expiryWarnedAt)));
-    if (res.affectedRows === 0) continue;
+    if (!(await claimExpiryWarning({ keyId: r.key.id, at: now }))) continue;
     const admins = await listEmailsByRole({ organizationId: r.key.organizationId, roles: ["admin"] });
     const to = [...new Set([...admins, ...(r.creatorEmail ? [r.creatorEmail] : [])])];
     await sendMail(

@@ -1,10 +1,9 @@
 import "server-only";
 import { planOf } from "@/lib/api/plans";
-import { getDb } from "@/lib/db/client";
 import { recordAudit } from "@/lib/db/audit";
 import { getOrgById, listEmailsByRole } from "@/lib/db/portal";
 import { sumUnits } from "@/lib/db/portal-usage";
-import { quotaNotices } from "@/lib/db/schema";
+import { claimQuotaNotice } from "@/lib/db/usage";
 import { quotaMail } from "@/lib/mail/templates";
 import { sendMail } from "@/lib/mail/transport";
 import { baseUrl } from "./tokens";
@@ -30,8 +29,7 @@ export async function notifyQuotaThresholds(organizationIds: number[], now = new
       if (reached.length === 0) continue;
       let top: number | null = null;
       for (const threshold of reached) {
-        const [res] = await getDb().insert(quotaNotices).ignore().values({ organizationId, month, threshold });
-        if (res.affectedRows > 0) top = threshold;
+        if (await claimQuotaNotice({ organizationId, month, threshold })) top = threshold;
       }
       if (top === null) continue;
       const to = await listEmailsByRole({ organizationId, roles: ["billing", "admin"] });
