@@ -118,6 +118,7 @@ export function toCompiled(node: Node): CompiledModel {
     cfAbsError: node.cfAbsError ?? 0,
     cfRelError: node.cfRelError ?? 0,
     ...(node.direct ? { direct: node.direct } : {}),
+    ...(node.bounds ? { bounds: node.bounds } : {}),
     // read on access: a discretised compound adds its error bound to its notes when its table is built
     get notes() {
       return node.kind.type === "mixed" && !node.kind.atomsComplete ? [...node.notes, "not every atom of this mixed law is listed"] : node.notes;

@@ -2,7 +2,7 @@ import type { Node, NodeKind } from "./node";
 import { commonStep, onLattice, panjer, powerTable, restep, convolveTables } from "./lattice";
 import type { LatticeTable } from "./types";
 import { compoundDamped } from "./damped-cf";
-import { chooseSpan, discretisedCompound, type DiscretiseOptions, type DiscretisedCompound } from "./discretise";
+import { builtNote, chooseSpan, isPoissonCount, discretisedCompound, methodNote, type DiscretiseOptions, type DiscretisedCompound } from "./discretise";
 
 const collectNotes = (cs: Node[]) => [...new Set(cs.flatMap((c) => c.notes))];
 
@@ -124,33 +124,32 @@ function discretisedNode(N: Node, X: Node, o: DiscretiseOptions): Node {
   const k = exact.cumulants(2);
   const nMean = N.cumulants(1)[0] ?? N.location;
   const sd = k[1] !== null && k[1] >= 0 ? Math.sqrt(k[1]) : null;
-  const { h, K } = chooseSpan(sev, nMean, k[0], sd, o);
+  const { h, K } = chooseSpan(sev, nMean, k[0], sd, o, isPoissonCount(N));
   const notes = [
     ...exact.notes.filter((x) => !x.startsWith(`${sev.name} CF`)),
-    `${sev.name} severity discretised mean-preserving (local moment matching) on span h = ${h}, ${K} lattice points; ` +
-      `compound pmf by FFT of the count's generating function. The law is treated as a lattice law: pmf values are ` +
-      `probabilities of span cells, and cdf values differ from the continuous law's by the discretisation error below.`,
+    methodNote(sev, h, K),
   ];
   let built: DiscretisedCompound | null = null;
+  const build = (): DiscretisedCompound => {
+    if (!built) {
+      built = discretisedCompound(N, sev, h, K);
+      notes.push(builtNote(built));
+    }
+    return built;
+  };
   const node: Node = {
     ...exact,
     kind: { type: "lattice", origin: 0, step: h, atoms: null },
     notes,
     approximate: true,
+    ...(sev.cdf && sev.sf ? { bounds: () => build().bounds ?? null } : {}),
     table(maxLength) {
-      if (!built) {
-        built = discretisedCompound(N, sev, h, K);
-        notes.push(
-          `discretisation error: |cdf - cdf of the continuous law| <= ${built.cdfError.toExponential(2)} ` +
-            `(between the rounded-down and rounded-up discretisations: ${built.bracket.toExponential(2)}; wrapped mass <= ${built.aliasing.toExponential(2)}); ` +
-            `mass beyond ${(K - 1) * h}: ${built.table.tailMass.toExponential(2)}`,
-        );
-      }
-      const t = built.table;
-      if (t.p.length <= maxLength) return { ...t, p: t.p.slice(), cdfError: built.cdfError };
+      const b = build();
+      const t = b.table;
+      if (t.p.length <= maxLength) return { ...t, p: t.p.slice(), cdfError: b.cdfError };
       let tail = t.tailMass;
       for (let i = maxLength; i < t.p.length; i++) tail += t.p[i];
-      return { origin: 0, step: h, p: t.p.slice(0, maxLength), tailMass: tail, cdfError: built.cdfError };
+      return { origin: 0, step: h, p: t.p.slice(0, maxLength), tailMass: tail, cdfError: b.cdfError };
     },
   };
   delete node.countCgf;

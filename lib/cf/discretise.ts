@@ -2,6 +2,7 @@ import type { Node } from "./node";
 import type { LatticeTable } from "./types";
 import { getFftPlan } from "./fftplan";
 import { unwrapFrom } from "./complex";
+import { gaussLegendre } from "./quadrature";
 
 /** What a severity without a cheap CF offers for discretisation (lognormal, pareto, weibull). */
 export interface SeverityLaw {
@@ -19,6 +20,16 @@ export interface SeverityLaw {
   rootAtZero: number;
   /** point masses beside the density (a per-claim layer's atoms at 0 and at share * limit), placed exactly */
   atoms?: { x: number; p: number }[];
+  /** the law's own cdf P(X <= x) and sf P(X > x), atoms included (a per-claim layer): with them the compound is
+   *  bracketed between the rounded-down and rounded-up discretisations, whose cell masses are cdf differences */
+  cdf?(x: number): number;
+  sf?(x: number): number;
+  /** absolute accuracy of cdf and sf as computed */
+  cdfAccuracy?: number;
+  /** E[X] when it exists */
+  mean?: number;
+  /** claims never exceed this (a per-claim layer with a limit) */
+  bound?: number;
 }
 
 /** Options that decide the lattice of a discretised compound. */
@@ -34,31 +45,6 @@ export interface DiscretiseOptions {
   maxPoints?: number;
 }
 
-/** Gauss-Legendre nodes and weights on [0, 1] by Newton's method on P_n (Abramowitz & Stegun 25.4.29). */
-function gaussLegendre(n: number): { x: Float64Array; w: Float64Array } {
-  const x = new Float64Array(n);
-  const w = new Float64Array(n);
-  for (let i = 0; i < n; i++) {
-    let z = Math.cos((Math.PI * (i + 0.75)) / (n + 0.5));
-    let dp = 1;
-    for (let it = 0; it < 100; it++) {
-      let p0 = 1;
-      let p1 = z;
-      for (let k = 2; k <= n; k++) {
-        const p2 = ((2 * k - 1) * z * p1 - (k - 1) * p0) / k;
-        p0 = p1;
-        p1 = p2;
-      }
-      dp = (n * (z * p1 - p0)) / (z * z - 1);
-      const dz = p1 / dp;
-      z -= dz;
-      if (Math.abs(dz) < 1e-16) break;
-    }
-    x[i] = (1 - z) / 2;
-    w[i] = 1 / ((1 - z * z) * dp * dp);
-  }
-  return { x, w };
-}
 const GL = gaussLegendre(10);
 const GL4 = gaussLegendre(4);
 
@@ -203,17 +189,58 @@ export interface DiscretisedCompound {
   aliasing: number;
   span: number;
   points: number;
+  /** the two bounding compounds (claims rounded down and up onto the lattice), when the claim law has a cdf */
+  bounds?: CompoundBracket;
+}
+
+/**
+ * Bounding pair of a discretised compound: with every claim rounded down (X_down = h floor(X/h)) and up
+ * (X_up = h ceil(X/h)), X_down <= X <= X_up pointwise, so S_down <= S <= S_up in the usual stochastic order and every
+ * cdf value, quantile, stop-loss, limited and layer mean and expected shortfall of S lies between those of S_down and
+ * S_up (Kaas, Goovaerts, Dhaene & Denuit, Modern Actuarial Risk Theory, ordering of risks; common practice).
+ */
+export interface CompoundBracket {
+  step: number;
+  /** pmf on 0, h, ..., (K-1)h of S_down and S_up as computed */
+  down: Float64Array;
+  up: Float64Array;
+  /** a lower bound on E[S_down] and an upper bound on E[S_up]; null when the mean does not exist */
+  meanLow: number | null;
+  meanHigh: number | null;
+  /** bound on |computed cdf - cdf| of either bounding law at every x: wrapped mass, claim mass beyond the table,
+   *  accuracy of the claim law's cdf carried through the count, rounding */
+  slack: number;
+}
+
+/** The count is Poisson (its Panjer a = 0, not zero-modified). */
+export const isPoissonCount = (N: Node): boolean => !!N.panjer && N.panjer.a === 0 && N.panjer.c1 === undefined && N.panjer.b > 0;
+
+/**
+ * Bennett's inequality for a compound Poisson sum of claims in [0, b] with variance v:
+ * P(S - E S >= x) <= exp(-(v / b^2) ((1 + u) ln(1 + u) - u)), u = b x / v (Chernoff with
+ * e^{ty} - 1 - ty <= (y/b)^2 (e^{tb} - 1 - tb) on [0, b]; Boucheron, Lugosi & Massart, Concentration Inequalities, 2.7).
+ */
+export function bennettTail(x: number, v: number, b: number): number {
+  if (!(x > 0)) return 1;
+  if (!(v > 0)) return 0;
+  const u = (b * x) / v;
+  return Math.exp(-(v / (b * b)) * ((1 + u) * Math.log1p(u) - u));
 }
 
 /** Span and lattice size for a compound with count mean `nMean` and severity `sev`. */
-export function chooseSpan(sev: SeverityLaw, nMean: number, sMean: number | null, sSd: number | null, o: DiscretiseOptions = {}): { h: number; K: number } {
+export function chooseSpan(sev: SeverityLaw, nMean: number, sMean: number | null, sSd: number | null, o: DiscretiseOptions = {}, poisson = false): { h: number; K: number } {
   const tol = o.tolerance && o.tolerance > 0 ? o.tolerance : 0;
   // a requested tolerance may use up to 2^18 points (~0.5 s); otherwise 2^16 keeps a request near 0.1 s
   const Kmax = o.maxPoints ?? (tol ? 2 ** 18 : 2 ** 16);
   // where the compound's tail falls below ~1e-10: the severity's tail bound scaled by the count (subexponential
   // laws: P(S > x) ~ E N P(X > x)) and mean + 20 sd where the variance exists
   let R = sev.upper(1e-10 / Math.max(1, nMean));
-  if (sMean !== null && sSd !== null && Number.isFinite(sSd)) R = Math.max(R, sMean + 20 * sSd);
+  if (poisson && sev.bound !== undefined && Number.isFinite(sev.bound) && sMean !== null && sSd !== null && sSd > 0) {
+    // Poisson count of bounded claims: where Bennett's bound on the tail falls below 1e-18
+    let x = sSd;
+    while (bennettTail(x, sSd * sSd, sev.bound) > 1e-18) x *= 1.25;
+    R = Math.max(R, sMean + x);
+  } else if (sMean !== null && sSd !== null && Number.isFinite(sSd)) R = Math.max(R, sMean + 20 * sSd);
   const fit = (h: number) => Math.min(Kmax, Math.max(16, 2 ** Math.ceil(Math.log2(R / h))));
   if (o.span && o.span > 0) return { h: o.span, K: fit(o.span) };
   let h = R / Kmax;
@@ -235,6 +262,7 @@ export function chooseSpan(sev: SeverityLaw, nMean: number, sMean: number | null
  * (valid for tails no heavier than x^-1).
  */
 export function discretisedCompound(N: Node, sev: SeverityLaw, h: number, K: number): DiscretisedCompound {
+  if (sev.cdf && sev.sf) return boundedCompound(N, sev, h, K);
   const M = 2 * K;
   const { mp, down, up } = discretiseSeverity(sev, h, K + 1);
   const s: Scratch = { wr: new Float64Array(M), wi: new Float64Array(M), re: new Float64Array(M), im: new Float64Array(M) };
@@ -273,4 +301,252 @@ export function discretisedCompound(N: Node, sev: SeverityLaw, h: number, K: num
     span: h,
     points: K,
   };
+}
+
+/**
+ * Cell masses of the claims rounded down and rounded up onto 0, h, ..., (len-1)h, from the claim law's own cdf (sf in
+ * its upper half, for relative accuracy in the tail). Atoms on a lattice point stay there in both; the mass beyond
+ * the last point goes to that point when rounding down and is left out (sent to infinity) when rounding up.
+ */
+function boundingSeverities(sev: SeverityLaw, h: number, len: number) {
+  const cdf = sev.cdf!;
+  const sf = sev.sf!;
+  const down = new Float64Array(len);
+  const up = new Float64Array(len);
+  const atoms = sev.atoms ?? [];
+  const atomAt = (y: number) => {
+    for (const a of atoms) if (Math.abs(a.x - y) <= 1e-12 * Math.max(1, Math.abs(y))) return a;
+    return null;
+  };
+  // (cdf or sf at the point, atom included; the same without the atom)
+  const right = (y: number, useCdf: boolean) => {
+    const a = atomAt(y);
+    const x = a ? a.x : y;
+    return useCdf ? cdf(x) : sf(x);
+  };
+  const a0 = atomAt(0);
+  let useCdf = true;
+  let v0 = cdf(a0 ? a0.x : 0);
+  down[0] = v0;
+  up[0] = v0;
+  let lost = 0;
+  for (let j = 0; j + 1 < len; j++) {
+    const y1 = (j + 1) * h;
+    const a = atomAt(y1);
+    let cell: number;
+    if (useCdf) {
+      const v1 = right(y1, true);
+      cell = v1 - (a ? a.p : 0) - v0;
+      v0 = v1;
+      if (v1 > 0.5) {
+        useCdf = false;
+        v0 = right(y1, false);
+      }
+    } else {
+      const v1 = right(y1, false);
+      cell = v0 - v1 - (a ? a.p : 0);
+      v0 = v1;
+    }
+    cell = Math.max(cell, 0);
+    down[j] += cell;
+    up[j + 1] += cell;
+    if (a) {
+      down[j + 1] += a.p;
+      up[j + 1] += a.p;
+    }
+    if (!useCdf && v0 === 0) break;
+  }
+  lost = useCdf ? Math.max(0, 1 - v0) : v0;
+  down[len - 1] += lost;
+  const acc = sev.cdfAccuracy ?? 1e-13;
+  // the computed severity cdf at each lattice point is one computed cdf (or sf) value, within acc, plus the sum's rounding
+  return { down, up, lost, kolmogorov: 4 * acc + 2 * len * EPS_D };
+}
+
+const EPS_D = Number.EPSILON;
+
+/**
+ * Two compounds of the same count at once: the real severities f and g ride as real and imaginary parts of one complex
+ * transform (X_j = (Z_j + conj Z_{M-j})/2, Y_j = (Z_j - conj Z_{M-j})/2i), and the two real pmfs come back the same way
+ * from one transform of P_N(phi_f) + i P_N(phi_g) (common practice for pairs of real sequences; Press et al.,
+ * Numerical Recipes, FFT of two real functions simultaneously). Two transforms of size M instead of four.
+ */
+function compoundPairByFft(N: Node, f: Float64Array, g: Float64Array, M: number): [Float64Array, Float64Array] {
+  const plan = getFftPlan(M);
+  const a = plan.a;
+  const b = plan.b;
+  a.fill(0);
+  for (let k = 0; k < f.length; k++) a[2 * (k % M)] += f[k];
+  for (let k = 0; k < g.length; k++) a[2 * (k % M) + 1] += g[k];
+  plan.forward(a, b);
+  const H = M / 2;
+  const n = H + 1;
+  // P_N(phi) + i P_N(psi) at index j and, for 0 < j < H, the same of the conjugates at M - j
+  const put = (j: number, cf: number, df: number, cg: number, dg: number) => {
+    a[2 * j] = cf - dg;
+    a[2 * j + 1] = df + cg;
+    if (j > 0 && j < H) {
+      a[2 * (M - j)] = cf + dg;
+      a[2 * (M - j) + 1] = cg - df;
+    }
+  };
+  const pan = N.panjer;
+  if (pan && pan.a === 0 && pan.c1 === undefined && pan.b > 0) {
+    // Poisson: P_N(z) = exp(lambda (z - 1)) straight from phi, without its logarithm
+    const lam = pan.b;
+    for (let j = 0; j <= H; j++) {
+      const m = (M - j) % M;
+      const zr = b[2 * j];
+      const zi = b[2 * j + 1];
+      const yr = b[2 * m];
+      const yi = b[2 * m + 1];
+      // phi_f(t_j) = conj((Z_j + conj Z_{M-j}) / 2), phi_g(t_j) = conj((Z_j - conj Z_{M-j}) / 2i)
+      const ef = Math.exp(lam * ((zr + yr) / 2 - 1));
+      const af = (-lam * (zi - yi)) / 2;
+      const eg = Math.exp(lam * ((zi + yi) / 2 - 1));
+      const ag = (-lam * (yr - zr)) / 2;
+      put(j, ef * Math.cos(af), ef * Math.sin(af), eg * Math.cos(ag), eg * Math.sin(ag));
+    }
+  } else {
+    const wr = new Float64Array(2 * n);
+    const wi = new Float64Array(2 * n);
+    const re = new Float64Array(2 * n);
+    const im = new Float64Array(2 * n);
+    for (let j = 0; j <= H; j++) {
+      const m = (M - j) % M;
+      const zr = b[2 * j];
+      const zi = b[2 * j + 1];
+      const yr = b[2 * m];
+      const yi = b[2 * m + 1];
+      // conj phi(t_j) of each severity
+      const fx = (zr + yr) / 2;
+      const fy = (zi - yi) / 2;
+      const gx = (zi + yi) / 2;
+      const gy = (yr - zr) / 2;
+      const rf = fx * fx + fy * fy;
+      const rg = gx * gx + gy * gy;
+      wr[j] = rf > 0 ? Math.min(0, 0.5 * Math.log(rf)) : -745;
+      wi[j] = -Math.atan2(fy, fx);
+      wr[n + j] = rg > 0 ? Math.min(0, 0.5 * Math.log(rg)) : -745;
+      wi[n + j] = -Math.atan2(gy, gx);
+    }
+    unwrapFrom(wi, 0, n);
+    const wig = wi.subarray(n);
+    unwrapFrom(wig, 0, n);
+    N.countCgf!(wr.subarray(0, n), wi.subarray(0, n), re.subarray(0, n), im.subarray(0, n));
+    N.countCgf!(wr.subarray(n), wig, re.subarray(n), im.subarray(n));
+    for (let j = 0; j <= H; j++) {
+      const mf = Math.exp(re[j]);
+      const mg = Math.exp(re[n + j]);
+      put(j, mf * Math.cos(im[j]), mf * Math.sin(im[j]), mg * Math.cos(im[n + j]), mg * Math.sin(im[n + j]));
+    }
+  }
+  plan.forward(a, b);
+  const pf = new Float64Array(M);
+  const pg = new Float64Array(M);
+  for (let k = 0; k < M; k++) {
+    pf[k] = b[2 * k] / M;
+    pg[k] = b[2 * k + 1] / M;
+  }
+  return [pf, pg];
+}
+
+/** The compound of a claim law with its own cdf (a per-claim layer): the bounding pair by FFT, and their 50/50 mixture as the table. */
+function boundedCompound(N: Node, sev: SeverityLaw, h: number, K: number): DiscretisedCompound {
+  const M = 2 * K;
+  const { down, up, lost, kolmogorov } = boundingSeverities(sev, h, K + 1);
+  const [pd, pu] = compoundPairByFft(N, down, up, M);
+  let aliasing = 0;
+  let ad = 0;
+  for (let k = K; k < M; k++) {
+    aliasing += Math.abs(pu[k]);
+    ad += Math.abs(pd[k]);
+  }
+  aliasing = Math.max(aliasing, ad);
+  const nMean = N.cumulants(1)[0] ?? Infinity;
+  if (sev.tailIndex <= 1 && lost > 0) {
+    // P(S >= x) <= E[N] P(X >= x / N) is not available in closed form here: bound P(S >= M h) <= P(N > n) + n P(X >= M h / n)
+    // with n the count's 1 - 1e-12 point from its table when it has one
+    const nt = N.table?.(1 << 16);
+    let n = 0;
+    let tail = 1;
+    if (nt && nt.step === 1 && nt.origin >= 0) {
+      tail = nt.tailMass;
+      for (let i = nt.p.length - 1; i >= 0 && tail + nt.p[i] <= 1e-12; i--) tail += nt.p[i];
+      let acc = 0;
+      n = nt.origin;
+      for (let i = 0; i < nt.p.length; i++) {
+        acc += nt.p[i];
+        n = nt.origin + i;
+        if (1 - acc <= tail) break;
+      }
+    }
+    aliasing = Math.max(aliasing, n > 0 ? Math.min(1, tail + n * sev.sf!((M * h) / n)) : 1);
+  }
+
+  let md = 0;
+  let mu = 0;
+  let mu2 = 0;
+  for (let j = 0; j < down.length; j++) {
+    md += j * down[j];
+    mu += j * up[j];
+    mu2 += j * j * up[j];
+  }
+  if (isPoissonCount(N) && lost === 0 && sev.bound !== undefined && Number.isFinite(sev.bound)) {
+    // the mass that wraps round is at most P(S_up >= M h) (S_down <= S_up), bounded by Bennett's inequality: the
+    // rounded-up claims stay in [0, bound + h], E S_up = lambda E X_up, Var S_up = lambda E X_up^2
+    const v = nMean * mu2 * h * h * (1 + 1e-12);
+    aliasing = Math.max(aliasing, bennettTail(M * h - nMean * mu * h * (1 + 1e-12), v, sev.bound + h));
+  }
+  const round = 64 * Number.EPSILON * Math.sqrt(M);
+  const slack = 2 * aliasing + nMean * (lost + kolmogorov) + round;
+  let cd = 0;
+  let cu = 0;
+  let half = 0;
+  const out = new Float64Array(K);
+  let kept = 0;
+  for (let k = 0; k < K; k++) {
+    out[k] = Math.max(0, (pd[k] + pu[k]) / 2);
+    kept += out[k];
+    cd += pd[k];
+    cu += pu[k];
+    half = Math.max(half, (cd - cu) / 2);
+  }
+  const mean = sev.mean;
+  const meanLow = Number.isFinite(nMean) ? nMean * md * h * (1 - 4 * EPS_D * down.length) : null;
+  const meanHigh = !Number.isFinite(nMean)
+    ? null
+    : lost === 0
+      ? nMean * mu * h * (1 + 4 * EPS_D * up.length)
+      : mean !== undefined && Number.isFinite(mean)
+        ? nMean * (mean * (1 + 1e-11) + h)
+        : null;
+  return {
+    table: { origin: 0, step: h, p: out, tailMass: Math.max(0, 1 - kept) },
+    cdfError: half + slack,
+    bracket: half,
+    aliasing,
+    span: h,
+    points: K,
+    bounds: { step: h, down: pd.subarray(0, K), up: pu.subarray(0, K), meanLow, meanHigh, slack },
+  };
+}
+
+/** What the discretised route did, for the notes. */
+export function methodNote(sev: SeverityLaw, h: number, K: number): string {
+  const how = sev.cdf && sev.sf
+    ? `${sev.name} severity rounded down and rounded up onto the lattice (atoms placed exactly) on span h = ${h}, ${K} lattice points; ` +
+      `both compounds by FFT of the count's generating function; the table is their even mixture, and risk measures are bracketed between them.`
+    : `${sev.name} severity discretised mean-preserving (local moment matching) on span h = ${h}, ${K} lattice points; ` +
+      `compound pmf by FFT of the count's generating function.`;
+  return `${how} The law is treated as a lattice law: pmf values are probabilities of span cells, and cdf values differ from the continuous law's by the discretisation error below.`;
+}
+
+/** The bound once the table is built, for the notes. */
+export function builtNote(b: DiscretisedCompound): string {
+  const gap = b.bounds ? `half the gap between the rounded-down and rounded-up compounds: ${b.bracket.toExponential(2)}` : `between the rounded-down and rounded-up discretisations: ${b.bracket.toExponential(2)}`;
+  return (
+    `discretisation error: |cdf - cdf of the continuous law| <= ${b.cdfError.toExponential(2)} ` +
+    `(${gap}; wrapped mass <= ${b.aliasing.toExponential(2)}); mass beyond ${(b.points - 1) * b.span}: ${b.table.tailMass.toExponential(2)}`
+  );
 }

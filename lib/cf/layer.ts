@@ -10,36 +10,11 @@ import { sortedAnchor, unwrapFrom } from "./complex";
 import { MAX_LATTICE } from "./limits";
 import type { DirectLaw } from "./families/dist";
 import type { SeverityLaw } from "./discretise";
+import { restrictedIntegral } from "./quadrature";
 
 /** Stated absolute accuracy of the layer's CF and of its raw moments (relative) by composite Gauss-Legendre. */
 export const LAYER_CF_ABS_ERROR = 1e-12;
 
-/** Gauss-Legendre nodes and weights on [0, 1] (Newton on P_n; Abramowitz & Stegun 25.4.29). */
-function gaussLegendre(n: number): { x: Float64Array; w: Float64Array } {
-  const x = new Float64Array(n);
-  const w = new Float64Array(n);
-  for (let i = 0; i < n; i++) {
-    let z = Math.cos((Math.PI * (i + 0.75)) / (n + 0.5));
-    let dp = 1;
-    for (let it = 0; it < 100; it++) {
-      let p0 = 1;
-      let p1 = z;
-      for (let k = 2; k <= n; k++) {
-        const p2 = ((2 * k - 1) * z * p1 - (k - 1) * p0) / k;
-        p0 = p1;
-        p1 = p2;
-      }
-      dp = (n * (z * p1 - p0)) / (z * z - 1);
-      const dz = p1 / dp;
-      z -= dz;
-      if (Math.abs(dz) < 1e-16) break;
-    }
-    x[i] = (1 - z) / 2;
-    w[i] = 1 / ((1 - z * z) * dp * dp);
-  }
-  return { x, w };
-}
-const GL = gaussLegendre(16);
 
 /** Smallest u >= 0 (on a doubling search) with S(d + u) <= q. */
 function tailPoint(dist: DirectLaw, d: number, q: number, start: number): number {
@@ -92,28 +67,9 @@ export function layerNode(X: Node, terms: Partial<LayerTerms>): Node {
     { x: c * l, p: Sdl },
   ].filter((a) => a.p > 0 && Number.isFinite(a.x));
   // int_{u0}^{L} g(u) f(d + u) du on the base panels, each split into m equal parts
-  const integrate = (g: (u: number) => [number, number], split: (w: number) => number): [number, number] => {
-    let sr = 0;
-    let si = 0;
-    for (let j = 0; j + 1 < base.length; j++) {
-      const a = base[j];
-      const wAll = base[j + 1] - a;
-      const m = split(wAll);
-      const w = wAll / m;
-      for (let q = 0; q < m; q++) {
-        const lo = a + q * w;
-        for (let k = 0; k < GL.x.length; k++) {
-          const u = lo + GL.x[k] * w;
-          const f = GL.w[k] * w * dist.pdf(d + u);
-          if (f === 0) continue;
-          const [gr, gi] = g(u);
-          sr += f * gr;
-          si += f * gi;
-        }
-      }
-    }
-    return [sr, si];
-  };
+  const claimPdf = (u: number) => dist.pdf(d + u);
+  const integrate = (g: (u: number) => [number, number], split: (w: number) => number): [number, number] =>
+    restrictedIntegral(base, claimPdf, g, split);
   // raw moments E Y^k = c^k (int (u)^k f(d + u) du + l^k S(d + l))
   const rawCache: number[] = [];
   const raw = (k: number): number | null => {
@@ -135,6 +91,12 @@ export function layerNode(X: Node, terms: Partial<LayerTerms>): Node {
     tailIndex: l < Infinity ? Infinity : X.tails.right,
     rootAtZero: d <= dist.lo && X.severity ? X.severity.rootAtZero : 1,
     atoms,
+    // the layered claim's own cdf and sf (atoms included): the bounding discretisation takes cell masses from them
+    cdf: (y) => (y < 0 ? 0 : y >= c * l ? 1 : dist.cdf(d + y / c)),
+    sf: (y) => (y < 0 ? 1 : y >= c * l ? 0 : dist.sf(d + y / c)),
+    cdfAccuracy: dist.accuracy,
+    mean: mean ?? undefined,
+    ...(l < Infinity ? { bound: c * l } : {}),
   };
   const tmax = 1.5;
   const node: Node = {

@@ -1,5 +1,5 @@
 import type { Atom, LatticeTable } from "./types";
-import type { SeverityLaw } from "./discretise";
+import type { CompoundBracket, SeverityLaw } from "./discretise";
 import type { DampedLogCf } from "./damped-cf";
 import type { DirectLaw } from "./direct/types";
 import type { DirectLaw as DistLaw } from "./families/dist";
@@ -44,6 +44,8 @@ export interface Node {
   direct?: DirectLaw;
   /** closed-form pdf, cdf and sf (named continuous laws): the per-claim layer integrates against them */
   dist?: DistLaw;
+  /** a discretised compound of a claim law with its own cdf: the compounds of the claims rounded down and up */
+  bounds?(): CompoundBracket | null;
   /** the table is an approximation of the law (discretised severity): kept even when it drops more than USEFUL_TAIL */
   approximate?: boolean;
   /** log E[exp((i t - beta) X)] for laws bounded below (damped inversion), where available */

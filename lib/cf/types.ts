@@ -1,5 +1,6 @@
 import type { Model } from "./schema";
 import type { DirectLaw } from "./direct/types";
+import type { CompoundBracket } from "./discretise";
 
 export type { Model };
 
@@ -60,6 +61,9 @@ export interface CompiledModel {
    *  discretisation of a continuous severity, whose table carries its cdfError), return the pmf starting at
    *  `origin` on `step`, truncated with the dropped tail mass reported; otherwise null. */
   latticeTable?(maxLength: number): LatticeTable | null;
+  /** a discretised compound of claims with their own cdf (per-claim layers): the compounds with every claim rounded
+   *  down and rounded up onto the table's lattice, which bracket the law in the usual stochastic order */
+  bounds?(): CompoundBracket | null;
 }
 
 /** compile(model) in ./compile.ts has this signature; throws CfError. */

@@ -1,37 +1,12 @@
 /** Truncated normal on [lower, upper] (either end may be absent: unbounded). */
 import { rawToCumulants, type Node } from "../node";
 import { sortedAnchor, unwrapFrom } from "../complex";
-import { logNormalCdf, normalCdf, normalPdf, type DirectLaw } from "./dist";
+import { normalCdf, normalPdf, type DirectLaw } from "./dist";
+import { restrictedIntegral } from "../quadrature";
 
 /** Stated absolute accuracy of the truncated normal CF (composite Gauss-Legendre on the density). */
 export const TRUNCATED_NORMAL_CF_ABS_ERROR = 1e-12;
 
-/** Gauss-Legendre nodes and weights on [0, 1] (Newton on P_n; Abramowitz & Stegun 25.4.29). */
-function gaussLegendre(n: number): { x: Float64Array; w: Float64Array } {
-  const x = new Float64Array(n);
-  const w = new Float64Array(n);
-  for (let i = 0; i < n; i++) {
-    let z = Math.cos((Math.PI * (i + 0.75)) / (n + 0.5));
-    let dp = 1;
-    for (let it = 0; it < 100; it++) {
-      let p0 = 1;
-      let p1 = z;
-      for (let k = 2; k <= n; k++) {
-        const p2 = ((2 * k - 1) * z * p1 - (k - 1) * p0) / k;
-        p0 = p1;
-        p1 = p2;
-      }
-      dp = (n * (z * p1 - p0)) / (z * z - 1);
-      const dz = p1 / dp;
-      z -= dz;
-      if (Math.abs(dz) < 1e-16) break;
-    }
-    x[i] = (1 - z) / 2;
-    w[i] = 1 / ((1 - z * z) * dp * dp);
-  }
-  return { x, w };
-}
-const GL = gaussLegendre(16);
 
 /**
  * X ~ N(mu, sigma^2) conditioned on [lower, upper]: density phi((x - mu)/sigma) / (sigma Z), Z = Phi(beta) - Phi(alpha)
@@ -72,23 +47,11 @@ export function truncatedNormal(mu: number, sigma: number, lower?: number, upper
     hi: b,
     accuracy: 1e-13,
   };
-  void logNormalCdf;
   const phi = (t: number): [number, number] => {
     const width = to - from;
     const pw = Math.min(sigma / 4, t !== 0 ? 1.5 / Math.abs(t) : Infinity);
     const m = Math.max(1, Math.ceil(width / pw));
-    const h = width / m;
-    let sr = 0;
-    let si = 0;
-    for (let j = 0; j < m; j++) {
-      const x0 = from + j * h;
-      for (let k = 0; k < GL.x.length; k++) {
-        const x = x0 + GL.x[k] * h;
-        const f = GL.w[k] * h * pdf(x);
-        sr += f * Math.cos(t * (x - mean));
-        si += f * Math.sin(t * (x - mean));
-      }
-    }
+    const [sr, si] = restrictedIntegral([from, to], pdf, (x) => [Math.cos(t * (x - mean)), Math.sin(t * (x - mean))], () => m);
     // centred at the mean: multiply back by e^{i t mean}
     const c = Math.cos(t * mean);
     const s = Math.sin(t * mean);
