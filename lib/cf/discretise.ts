@@ -30,6 +30,8 @@ export interface SeverityLaw {
   mean?: number;
   /** claims never exceed this (a per-claim layer with a limit) */
   bound?: number;
+  /** E[X 1{X > x}] (quadrature, relative accuracy about 1e-12) */
+  tailMean?(x: number): number;
 }
 
 /** Options that decide the lattice of a discretised compound. */
@@ -454,7 +456,8 @@ function compoundPairByFft(N: Node, f: Float64Array, g: Float64Array, M: number)
 /** The compound of a claim law with its own cdf (a per-claim layer): the bounding pair by FFT, and their 50/50 mixture as the table. */
 function boundedCompound(N: Node, sev: SeverityLaw, h: number, K: number): DiscretisedCompound {
   const M = 2 * K;
-  const { down, up, lost, kolmogorov } = boundingSeverities(sev, h, K + 1);
+  const len0 = K + 1;
+  const { down, up, lost, kolmogorov } = boundingSeverities(sev, h, len0);
   const [pd, pu] = compoundPairByFft(N, down, up, M);
   let aliasing = 0;
   let ad = 0;
@@ -518,9 +521,12 @@ function boundedCompound(N: Node, sev: SeverityLaw, h: number, K: number): Discr
     ? null
     : lost === 0
       ? nMean * mu * h * (1 + 4 * EPS_D * up.length)
-      : mean !== undefined && Number.isFinite(mean)
-        ? nMean * (mean * (1 + 1e-11) + h)
-        : null;
+      : sev.tailMean && Number.isFinite(sev.tailMean(0))
+        ? // X_up <= X + h: below the last point the rounded-up cells exactly, beyond it E[X; X > R] + h P(X > R)
+          nMean * (mu * h * (1 + 4 * EPS_D * up.length) + sev.tailMean((len0 - 1) * h) * (1 + 1e-9) + 1e-12 * sev.tailMean(0) + h * lost)
+        : mean !== undefined && Number.isFinite(mean)
+          ? nMean * (mean * (1 + 1e-11) + h)
+          : null;
   return {
     table: { origin: 0, step: h, p: out, tailMass: Math.max(0, 1 - kept) },
     cdfError: half + slack,

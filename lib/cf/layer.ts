@@ -97,6 +97,13 @@ export function layerNode(X: Node, terms: Partial<LayerTerms>): Node {
     cdfAccuracy: dist.accuracy,
     mean: mean ?? undefined,
     ...(l < Infinity ? { bound: c * l } : {}),
+    // E[Y 1{Y > y}] = c int_{u > y/c} u f(d + u) du (+ the atom at c l), on the base panels clipped at y/c
+    tailMean: (y) => {
+      const from = Math.max(y / c, u0);
+      const cutPanels = [from, ...base.filter((b) => b > from)];
+      const [v] = cutPanels.length > 1 ? restrictedIntegral(cutPanels, claimPdf, (u) => [u, 0], () => 4) : [0];
+      return c * v + (l < Infinity && y < c * l ? c * l * Sdl : 0);
+    },
   };
   const tmax = 1.5;
   const node: Node = {

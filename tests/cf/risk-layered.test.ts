@@ -1,0 +1,61 @@
+// Risk measures of compound Poisson sums of layered claims against closed forms (fixtures from
+// tests/fixtures/reference-layered/generate.py: thinned Erlang mixtures with inclusion-exclusion over the cap, mpmath
+// at 40 digits). Each value must lie within its returned bound of the reference; the bound must also be useful (a
+// stated fraction of the value) and never null where the measure exists.
+import { afterAll, describe, expect, it } from "vitest";
+import { readFileSync } from "node:fs";
+import { validateModel } from "@/lib/cf";
+import { riskMeasures } from "@/lib/cf/risk";
+import { record, worst } from "./model-assert";
+
+const ref = JSON.parse(readFileSync("tests/fixtures/reference-layered/layered.json", "utf8"));
+const ratios: Record<string, number> = {};
+afterAll(() => {
+  console.log("worst actual errors (layered):", JSON.stringify(worst));
+  console.log("worst actual/bound (layered):", JSON.stringify(ratios));
+});
+
+/** |value - expected| <= error (+ the reference's own float rounding), and error <= useful * scale. */
+function covered(value: number | null, error: number | null, expected: number, what: string, useful: number, scale = Math.abs(expected)) {
+  if (value === null || error === null) expect.fail(`${what}: no value (${value}) or bound (${error}); expected ${expected}`);
+  const diff = Math.abs(value! - expected);
+  const slack = 4e-16 * Math.abs(expected);
+  record(what.split(" ")[0], diff);
+  ratios[what.split(" ")[0]] = Math.max(ratios[what.split(" ")[0]] ?? 0, error! > 0 ? diff / error! : diff > 0 ? Infinity : 0);
+  if (!(diff <= error! + slack)) expect.fail(`${what}: value ${value}, expected ${expected}, difference ${diff} exceeds the returned bound ${error}`);
+  if (!(error! <= useful * scale)) expect.fail(`${what}: bound ${error} is above the useful ${useful} x ${scale}`);
+}
+
+type Case = {
+  model: unknown;
+  mean: number;
+  var: { p: number; value: number }[];
+  es: { p: number; value: number }[];
+  exceedance: { x: number; value: number }[];
+  stopLoss: { d: number; value: number }[];
+  limitedMean: { u: number; value: number }[];
+  layerMean: { deductible: number; limit: number; value: number }[];
+};
+
+describe("compound Poisson of layered exponential claims (closed form)", () => {
+  for (const c of ref.exponential as Case[]) {
+    it(`${JSON.stringify(c.model)}: VaR, ES, exceedance, stop-loss, limited and layer means within their bounds`, () => {
+      const r = riskMeasures(validateModel(c.model), {
+        var: { p: c.var.map((x) => x.p) },
+        es: { p: c.es.map((x) => x.p) },
+        exceedance: c.exceedance.map((x) => x.x),
+        stopLoss: c.stopLoss.map((x) => x.d),
+        limitedMean: c.limitedMean.map((x) => x.u),
+        layerMean: c.layerMean.map(({ deductible, limit }) => ({ deductible, limit })),
+      });
+      expect(r.diagnostics.method).toBe("discretised-bounds");
+      // useful: quantiles and shortfalls within 1% of the value, probabilities within 0.01 absolute, means within 1% of E[S]
+      c.var.forEach((x, i) => covered(r.var!.value[i], r.var!.error[i], x.value, `var p=${x.p}`, 0.01));
+      c.es.forEach((x, i) => covered(r.es!.value[i], r.es!.error[i], x.value, `es p=${x.p}`, 0.01));
+      c.exceedance.forEach((x, i) => covered(r.exceedance!.value[i], r.exceedance!.error[i], x.value, `exceedance x=${x.x}`, 0.01, 1));
+      c.stopLoss.forEach((x, i) => covered(r.stopLoss!.value[i], r.stopLoss!.error[i], x.value, `stopLoss d=${x.d}`, 0.01, c.mean));
+      c.limitedMean.forEach((x, i) => covered(r.limitedMean!.value[i], r.limitedMean!.error[i], x.value, `limitedMean u=${x.u}`, 0.01, c.mean));
+      c.layerMean.forEach((x, i) => covered(r.layerMean!.value[i], r.layerMean!.error[i], x.value, `layerMean ${x.limit} xs ${x.deductible}`, 0.01, c.mean));
+    });
+  }
+});
