@@ -59,3 +59,32 @@ describe("compound Poisson of layered exponential claims (closed form)", () => {
     });
   }
 });
+
+describe("compound Poisson of layered lognormal claims (reference bracket on a 16x finer span, mpmath + numpy)", () => {
+  type Rng = { lo: number; hi: number };
+  const lg = JSON.parse(readFileSync("tests/fixtures/reference-layered/lognormal.json", "utf8"));
+  /** the engine's interval [value - error, value + error] must meet the reference's certified [lo, hi] */
+  function meets(value: number | null, error: number | null, ref: Rng, what: string, useful: number) {
+    if (value === null || error === null) expect.fail(`${what}: no value (${value}) or bound (${error}); reference [${ref.lo}, ${ref.hi}]`);
+    const gap = Math.max(ref.lo - (value! + error!), value! - error! - ref.hi, 0);
+    const mid = (ref.lo + ref.hi) / 2;
+    record(what.split(" ")[0] + " lognormal", Math.abs(value! - mid));
+    if (gap > 4e-16 * Math.abs(mid)) expect.fail(`${what}: engine [${value! - error!}, ${value! + error!}] misses the reference [${ref.lo}, ${ref.hi}] by ${gap}`);
+    if (!(error! <= useful)) expect.fail(`${what}: bound ${error} above the useful ${useful}`);
+  }
+  for (const c of lg.lognormal as { model: unknown; var: (Rng & { p: number })[]; es: (Rng & { p: number })[]; stopLoss: (Rng & { d: number })[]; exceedance: (Rng & { x: number })[] }[]) {
+    it(`${JSON.stringify(c.model)}: VaR, ES, stop-loss and exceedance meet the reference bracket`, () => {
+      const r = riskMeasures(validateModel(c.model), {
+        var: { p: c.var.map((x) => x.p) },
+        es: { p: c.es.map((x) => x.p) },
+        stopLoss: c.stopLoss.map((x) => x.d),
+        exceedance: c.exceedance.map((x) => x.x),
+      });
+      // useful: VaR and ES within 0.5% of the value, stop-loss within 5% of the value or 1e-3 absolute, probabilities within 5e-3
+      c.var.forEach((x, i) => meets(r.var!.value[i], r.var!.error[i], x, `var p=${x.p}`, 0.005 * x.hi));
+      c.es.forEach((x, i) => meets(r.es!.value[i], r.es!.error[i], x, `es p=${x.p}`, 0.005 * x.hi));
+      c.stopLoss.forEach((x, i) => meets(r.stopLoss!.value[i], r.stopLoss!.error[i], x, `stopLoss d=${x.d}`, Math.max(0.05 * x.hi, 1e-3)));
+      c.exceedance.forEach((x, i) => meets(r.exceedance!.value[i], r.exceedance!.error[i], x, `exceedance x=${x.x}`, 5e-3));
+    });
+  }
+});
