@@ -80,7 +80,8 @@ function checkFamily(ctx: Ctx, o: Record<string, unknown>, path: Path): FamilyMo
   return ctx.issues.length === before ? (out as FamilyModel) : null;
 }
 
-/** Named laws the per-claim layer integrates against (those with a closed-form pdf and cdf). */
+/** Named laws the per-claim layer integrates against (those whose pdf and cdf the engine evaluates: closed forms,
+ *  the normal cdf, the incomplete gamma and beta functions). */
 export const LAYERABLE: ReadonlySet<string> = new Set([
   "normal",
   "uniform",
@@ -98,10 +99,12 @@ export const LAYERABLE: ReadonlySet<string> = new Set([
   "inverse_gamma",
   "triangular",
   "truncated_normal",
+  "beta",
+  "pert",
 ]);
 
 function layerable(m: Model): boolean {
-  if ("family" in m) return LAYERABLE.has(m.family) && !(m.family === "generalized_pareto" && (m.xi as number) < 0);
+  if ("family" in m) return LAYERABLE.has(m.family);
   if ("lattice" in m || "sample" in m) return true;
   return false;
 }

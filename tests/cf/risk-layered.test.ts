@@ -88,3 +88,51 @@ describe("compound Poisson of layered lognormal claims (reference bracket on a 1
     });
   }
 });
+
+describe("the claim laws a per-claim layer accepts", () => {
+  // every continuous family on a half line or an interval (the severities of the trade) is accepted; laws on the whole
+  // line without a cdf the engine evaluates are refused with a message naming the accepted ones
+  const accepted: Record<string, unknown>[] = [
+    { family: "exponential", rate: 0.5 },
+    { family: "gamma", shape: 0.7, rate: 0.2 },
+    { family: "chi_squared", k: 3 },
+    { family: "lognormal", mu: 0, sigma: 1.5 },
+    { family: "pareto", alpha: 2.5, xm: 1 },
+    { family: "weibull", shape: 0.5, scale: 1 },
+    { family: "lomax", alpha: 2, theta: 3 },
+    { family: "generalized_pareto", xi: 0.3, sigma: 1, mu: 0 },
+    { family: "generalized_pareto", xi: -0.25, sigma: 1, mu: 0 },
+    { family: "burr", alpha: 2, gamma: 1.5, theta: 1 },
+    { family: "loglogistic", gamma: 3, theta: 1 },
+    { family: "inverse_gaussian", mu: 2, lambda: 3 },
+    { family: "inverse_gamma", alpha: 3, theta: 2 },
+    { family: "beta", alpha: 0.6, beta: 3, a: 0, b: 6 },
+    { family: "pert", a: 0, m: 2, b: 6, lambda: 4 },
+    { family: "triangular", a: 0, c: 1, b: 4 },
+    { family: "truncated_normal", mu: 1, sigma: 2, lower: 0 },
+    { family: "uniform", a: 0, b: 4 },
+  ];
+  for (const of of accepted)
+    it(`${JSON.stringify(of)}: layered, its mean is between 0 and the limit and a compound of it is bracketed`, () => {
+      const layer = { layer: { deductible: 0.5, limit: 2 }, of };
+      const r = riskMeasures(validateModel({ compound: { count: { family: "poisson", lambda: 3 }, each: layer } }), { limitedMean: [1e6] });
+      expect(r.diagnostics.method).toBe("discretised-bounds");
+      // E[S] = 3 E[Y] with 0 <= E[Y] <= 2 (common practice: the layer caps each claim)
+      expect(r.limitedMean!.value[0]!).toBeGreaterThanOrEqual(0);
+      expect(r.limitedMean!.value[0]!).toBeLessThanOrEqual(6 + r.limitedMean!.error[0]!);
+      expect(r.limitedMean!.error[0]!).toBeLessThan(0.05);
+    });
+  for (const family of ["cauchy", "laplace", "student_t"]) {
+    it(`${family}: refused with the list of accepted laws`, () => {
+      const of = family === "student_t" ? { family, nu: 3 } : { family, loc: 0, scale: 1 };
+      let message = "";
+      try {
+        validateModel({ layer: { deductible: 1 }, of });
+      } catch (e) {
+        message = (e as Error).message;
+      }
+      expect(message).toMatch(/per-claim layer applies to a named law/);
+      for (const name of ["lognormal", "beta", "pert", "burr", "truncated_normal"]) expect(message).toContain(name);
+    });
+  }
+});

@@ -1,6 +1,7 @@
 /** Closed-form pdf, cdf and sf of named continuous laws (used by the per-claim layer and the severity discretiser). */
 import { incGamma } from "../invert/incgamma";
 import { lgamma } from "./special";
+import betainc from "@stdlib/math-base-special-betainc";
 
 export interface DirectLaw {
   pdf(x: number): number;
@@ -160,6 +161,28 @@ export function triangularDist(a: number, c: number, b: number): DirectLaw {
     lo: a,
     hi: b,
     accuracy: ACC,
+  };
+}
+
+/**
+ * Beta(alpha, beta) on [a, b]: F(x) = I_z(alpha, beta), z = (x - a)/(b - a), the regularised incomplete beta
+ * (JKB vol. 2, ch. 25, eq. 25.2; @stdlib/math-base-special-betainc, lower and upper tails each computed directly).
+ */
+export function betaDist(alpha: number, beta: number, a: number, b: number): DirectLaw {
+  const w = b - a;
+  const logB = lgamma(alpha) + lgamma(beta) - lgamma(alpha + beta);
+  return {
+    pdf: (x) => {
+      if (x < a || x > b) return 0;
+      const z = (x - a) / w;
+      if ((z === 0 && alpha < 1) || (z === 1 && beta < 1)) return Infinity;
+      return Math.exp((alpha - 1) * Math.log(z) + (beta - 1) * Math.log1p(-z) - logB) / w;
+    },
+    cdf: (x) => (x <= a ? 0 : x >= b ? 1 : betainc((x - a) / w, alpha, beta, true, false)),
+    sf: (x) => (x <= a ? 1 : x >= b ? 0 : betainc((x - a) / w, alpha, beta, true, true)),
+    lo: a,
+    hi: b,
+    accuracy: 1e-13,
   };
 }
 

@@ -18,7 +18,7 @@ import { burr, inverseGamma, inverseGaussian, lomax } from "./severities";
 import { betaLaw, triangular } from "./bounded";
 import { logarithmic, zeroModified } from "./counts";
 import { truncatedNormal } from "./truncated";
-import { affineDist, gammaDist, lognormalDist, normalDist, paretoDist, uniformDist, weibullDist, type DirectLaw as DistLaw } from "./dist";
+import { affineDist, betaDist, gammaDist, lognormalDist, normalDist, paretoDist, uniformDist, weibullDist, type DirectLaw as DistLaw } from "./dist";
 
 export interface ParamSpec {
   name: string;
@@ -479,7 +479,7 @@ export const FAMILY_SPECS: Record<FamilyName, FamilySpec> = {
       const { xi, sigma, mu } = p;
       if (xi > 0) return shiftBuilt(lomax(1 / xi, sigma / xi), mu);
       if (xi === 0) return shiftBuilt(withDist(gammaLaw(1, 1 / sigma), gammaDist(1, 1 / sigma)), mu);
-      return betaLaw(1, -1 / xi, mu, mu - sigma / xi, "generalized_pareto");
+      return withDist(betaLaw(1, -1 / xi, mu, mu - sigma / xi, "generalized_pareto"), betaDist(1, -1 / xi, mu, mu - sigma / xi));
     },
   },
   burr: {
@@ -549,7 +549,7 @@ export const FAMILY_SPECS: Record<FamilyName, FamilySpec> = {
     discrete: false,
     source: "Johnson, Kotz & Balakrishnan vol. 2, ch. 25, eqs. 25.1-25.13 (four-parameter beta); Kummer's function A&S 13.1.2",
     check: (p) => (p.b > p.a ? null : { param: "b", detail: `beta.b (${p.b}) must be greater than beta.a (${p.a}).` }),
-    build: (p) => betaLaw(p.alpha, p.beta, p.a, p.b),
+    build: (p) => withDist(betaLaw(p.alpha, p.beta, p.a, p.b), betaDist(p.alpha, p.beta, p.a, p.b)),
   },
   pert: {
     name: "pert",
@@ -564,7 +564,11 @@ export const FAMILY_SPECS: Record<FamilyName, FamilySpec> = {
     source: "Vose, Risk Analysis: A Quantitative Guide (3rd ed., 2008), ch. 9, PERT and modified PERT (recalled from memory); Malcolm et al. (1959), Operations Research 7",
     check: (p) =>
       !(p.b > p.a) ? { param: "b", detail: `pert.b (${p.b}) must be greater than pert.a (${p.a}).` } : p.m < p.a || p.m > p.b ? { param: "m", detail: `pert.m (${p.m}) must lie in [a, b] = [${p.a}, ${p.b}].` } : null,
-    build: (p) => betaLaw(1 + (p.lambda * (p.m - p.a)) / (p.b - p.a), 1 + (p.lambda * (p.b - p.m)) / (p.b - p.a), p.a, p.b, "pert"),
+    build: (p) => {
+      const al = 1 + (p.lambda * (p.m - p.a)) / (p.b - p.a);
+      const be = 1 + (p.lambda * (p.b - p.m)) / (p.b - p.a);
+      return withDist(betaLaw(al, be, p.a, p.b, "pert"), betaDist(al, be, p.a, p.b));
+    },
   },
   triangular: {
     name: "triangular",
