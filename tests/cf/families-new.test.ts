@@ -71,6 +71,14 @@ describe("new continuous families against mpmath / scipy", () => {
 });
 
 describe("(a, b, 1) counts against their definitions", () => {
+  for (const c of cnt.cases.filter((x) => x.model.family === "zero_modified_logarithmic"))
+    it(`${c.name}: as a compound count, the (a, b, 1) recursion with claims of size 1 reproduces the pmf (${c.source})`, () => {
+      const t = compile({ compound: { count: c.model, each: { lattice: { origin: 1, step: 1, p: [1] } } } }).latticeTable!(4096)!;
+      c.pmf.forEach((v, k) => {
+        const got = k >= t.origin && k - t.origin < t.p.length ? t.p[k - t.origin] : 0;
+        close(got, v, { rel: 1e-12, abs: 1e-17 }, `${c.name} P(S=${k})`);
+      });
+    });
   for (const c of cnt.cases) {
     it(`${c.name}: pmf (${c.source})`, () => {
       const t = compile(c.model).latticeTable!(4096)!;

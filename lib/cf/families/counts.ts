@@ -75,7 +75,7 @@ export function logarithmic(p: number): Node {
 }
 
 /**
- * Zero-modified law of an (a, b, 0) count N: P(M = 0) = p0M, P(M = k) = (1 - p0M)/(1 - p0) P(N = k), k >= 1
+ * Zero-modified law of an (a, b, 0) count N, or of the logarithmic law: P(M = 0) = p0M, P(M = k) = (1 - p0M)/(1 - p0) P(N = k), k >= 1
  * (zero-truncated: p0M = 0), P_M(z) = 1 + beta (P_N(z) - 1), beta = (1 - p0M)/(1 - p0) (Loss Models, (a, b, 1) class).
  * `oneMinusP0` is 1 - P(N = 0) computed without cancellation. The generating function is formed as 1 + beta expm1(K_N(w)) against cancellation when P(N = 0) is close to 1.
  */
@@ -131,8 +131,9 @@ export function zeroModified(base: Node, p0M: number, oneMinusP0: number): Node 
       mix(re, im, wr.length);
       unwrapFrom(im, nearestZero(wr, wi));
     },
-    // (a, b, 1): P(M = k) = (a + b/k) P(M = k-1) for k >= 2; c1 = p1M - (a + b) p0M with p1M = beta (a + b) p0
-    panjer: pan ? { a: pan.a, b: pan.b, p0: p0M, c1: (pan.a + pan.b) * (beta * p0 - p0M) } : undefined,
+    // (a, b, 1): P(M = k) = (a + b/k) P(M = k-1) for k >= 2; c1 = p1M - (a + b) p0M with p1M = beta P(N = 1) and
+    // P(N = 1) = (a + b) p0 + c1 of the base (c1 = 0 for an (a, b, 0) base; the logarithmic base has p0 = 0)
+    panjer: pan ? { a: pan.a, b: pan.b, p0: p0M, c1: beta * ((pan.a + pan.b) * p0 + (pan.c1 ?? 0)) - (pan.a + pan.b) * p0M } : undefined,
     p0: p0M,
   };
 }

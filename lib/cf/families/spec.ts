@@ -114,6 +114,7 @@ export const FAMILY_NAMES = [
   "zero_modified_poisson",
   "zero_modified_negative_binomial",
   "zero_modified_binomial",
+  "zero_modified_logarithmic",
 ] as const;
 export type FamilyName = (typeof FAMILY_NAMES)[number];
 
@@ -617,6 +618,20 @@ export const FAMILY_SPECS: Record<FamilyName, FamilySpec> = {
     count: true,
     source: "Johnson, Kemp & Kotz, Univariate Discrete Distributions (3rd ed.), ch. 7; Loss Models (5th ed.), sec. 6.6, (a, b, 1) class with a = p, b = -p",
     build: (p) => logarithmic(p.p),
+  },
+  zero_modified_logarithmic: {
+    name: "zero_modified_logarithmic",
+    title: "Zero-modified logarithmic",
+    params: [real("p", "parameter of the logarithmic law, P(N = k) proportional to p^k / k for k >= 1", 0, 1, true, true), real("p0", "P(N = 0)", 0, 1, false, true)],
+    support: "{0, 1, 2, ...}",
+    cf: "p0 + (1 - p0) log(1 - p e^{it}) / log(1 - p)",
+    moments: "all orders",
+    tailIndex: "none",
+    cfMethod: "closed form",
+    discrete: true,
+    count: true,
+    source: "Klugman, Panjer & Willmot, Loss Models (5th ed.), sec. 6.6 and app. B.3.3 (zero-modified logarithmic, (a, b, 1) class with a = p, b = -p)",
+    build: (p) => zeroModified(logarithmic(p.p), p.p0, 1),
   },
   zero_truncated_poisson: {
     name: "zero_truncated_poisson",
