@@ -107,7 +107,7 @@ const px = density(ms, { x: sx, tolerance: 1e-8 });
 const stablePtsMs = time(() => density(ms, { x: sx, tolerance: 1e-8 }), 7, 1);
 out("stable(1.5, 0.5) pdf, 1000 arbitrary points, tol 1e-8", stablePtsMs, `${px.diagnostics.terms} nodes at last level, ${px.diagnostics.levels} levels, err est pdf ${px.diagnostics.error.pdf.toExponential(1)}`);
 
-// 5. convolution of two 65536-point lattices (engineer A's lattice.ts)
+// 5. convolution of two 65536-point lattices (lib/cf/lattice.ts)
 const a = new Float64Array(65536);
 const b = new Float64Array(65536);
 for (let i = 0; i < 65536; i++) {

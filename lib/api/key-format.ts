@@ -63,13 +63,6 @@ export function hashKey(key: string, pepper: string): string {
   return createHmac("sha256", pepper).update(key).digest("hex");
 }
 
-/** Constant-time comparison of two hex digests. */
-export function sameHash(a: string, b: string): boolean {
-  const x = Buffer.from(a, "hex");
-  const y = Buffer.from(b, "hex");
-  return x.length === y.length && timingSafeEqual(x, y);
-}
-
 export function pepper(): string {
   const p = process.env.SUMFOLD_KEY_PEPPER;
   if (!p) throw new Error("SUMFOLD_KEY_PEPPER is not set");

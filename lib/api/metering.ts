@@ -156,4 +156,3 @@ export function flushUsage(): Promise<void> {
   return s.flushing;
 }
 
-export const pendingUsage = () => state().queue.length;

@@ -217,15 +217,6 @@ async function leaseAndDecide(input: LimitInput): Promise<LimitDecision> {
   }
 }
 
-/** Units an organisation has used this month according to Redis (null when Redis is unavailable). */
-export async function unitsUsedThisMonth(organizationId: number): Promise<number | null> {
-  try {
-    return Number((await withTimeout(redis().get<number>(monthKey(organizationId)))) ?? 0);
-  } catch {
-    return null;
-  }
-}
-
 /** Gives back units admitted for a request that then failed (best effort). */
 export function refundUnits(organizationId: number, units: number): void {
   if (units > 0) void redis().decrby(monthKey(organizationId), units).catch(() => {});

@@ -12,13 +12,6 @@ export function clog(re: number, im: number, out: C2): void {
   out[1] = Math.atan2(im, re);
 }
 
-/** log(1 + z) accurate for small |z| (log1p on the modulus). */
-export function clog1p(re: number, im: number, out: C2): void {
-  // |1+z|^2 = 1 + 2 re + re^2 + im^2
-  out[0] = 0.5 * Math.log1p(2 * re + re * re + im * im);
-  out[1] = Math.atan2(im, 1 + re);
-}
-
 /** exp(re + i im) into out. */
 export function cexp(re: number, im: number, out: C2): void {
   const m = Math.exp(re);

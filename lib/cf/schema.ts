@@ -2,7 +2,7 @@ import { z } from "zod";
 import { FAMILY_NAMES, FAMILY_SPECS, type FamilyName, type ParamSpec } from "./families/spec";
 import { MAX_LATTICE, MAX_REPEAT, MAX_SAMPLE } from "./limits";
 
-/** Tolerances of the notation (issue 3): mixture weights and lattice probabilities must sum to 1 within these. */
+/** Tolerances of the notation: mixture weights and lattice probabilities must sum to 1 within these. */
 export const MIX_WEIGHT_TOLERANCE = 1e-12;
 export const LATTICE_SUM_TOLERANCE = 1e-9;
 

@@ -1,4 +1,4 @@
-/** Limits of an upload (issue 6): the raw file and the number of values kept. */
+/** Limits of an upload: the raw file and the number of values kept. */
 export const MAX_UPLOAD_BYTES = 50 * 1024 * 1024;
 export const MAX_VALUES = 1_000_000;
 /** How much of the file's start the delimiter and header are guessed from. */

@@ -1,12 +1,13 @@
 // Plain-text and simple HTML bodies of every message the portal sends. Wording is Sumfold's own.
 
+import { escapeHtml as esc } from "@/lib/html";
+
 export interface MailContent {
   subject: string;
   text: string;
   html: string;
 }
 
-const esc = (s: string) => s.replace(/[&<>"']/g, (c) => ({ "&": "&amp;", "<": "&lt;", ">": "&gt;", '"': "&quot;", "'": "&#39;" })[c]!);
 
 /** Builds a message from paragraphs and an optional call-to-action link. */
 function compose(subject: string, paragraphs: string[], action?: { label: string; url: string }): MailContent {

@@ -15,6 +15,7 @@ import { createHmac, randomBytes, timingSafeEqual } from "node:crypto";
 import { existsSync, mkdirSync, readFileSync, writeFileSync } from "node:fs";
 import { createServer, type IncomingMessage, type Server, type ServerResponse } from "node:http";
 import { dirname } from "node:path";
+import { escapeHtml as esc } from "../../lib/html";
 
 export interface PaymentsFakeOptions {
   port: number;
@@ -106,7 +107,6 @@ const invalid = (message: string, param?: string) => new ApiFailure(400, { type:
 const missing = (what: string, id: string) => new ApiFailure(404, { type: "invalid_request_error", code: "resource_missing", message: `No such ${what}: '${id}'` });
 const declined = (message = "Your card was declined.") => new ApiFailure(402, { type: "card_error", code: "card_declined", decline_code: "generic_decline", message });
 
-const esc = (s: string) => s.replace(/[&<>"']/g, (c) => ({ "&": "&amp;", "<": "&lt;", ">": "&gt;", '"': "&quot;", "'": "&#39;" })[c]!);
 const int = (v: unknown, name: string): number => {
   const n = Number(v);
   if (!Number.isSafeInteger(n)) throw invalid(`Invalid integer: ${String(v)}`, name);

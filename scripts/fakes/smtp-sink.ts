@@ -5,6 +5,7 @@ import { createServer, type Server } from "node:http";
 import { join } from "node:path";
 import { simpleParser } from "mailparser";
 import { SMTPServer } from "smtp-server";
+import { escapeHtml as escape } from "../../lib/html";
 
 export interface SmtpSinkOptions {
   smtpPort: number;
@@ -22,8 +23,6 @@ export interface StoredMessage {
   html: string | null;
 }
 
-const escape = (s: string) =>
-  s.replace(/[&<>"']/g, (c) => ({ "&": "&amp;", "<": "&lt;", ">": "&gt;", '"': "&quot;", "'": "&#39;" })[c]!);
 
 async function load(dir: string, id: string): Promise<StoredMessage> {
   const parsed = await simpleParser(readFileSync(join(dir, `${id}.eml`)));

@@ -2,17 +2,11 @@
 // the invoice PDF, whose text is then read back.
 import { readFileSync } from "node:fs";
 import { extractText, getDocumentProxy } from "unpdf";
-import { afterAll, beforeAll, describe, expect, it } from "vitest";
-import { launchBrowser } from "../support/browser";
+import { describe, expect, it } from "vitest";
+import { useBrowser } from "./browser-session";
 import { makeOrganization, makePerson, shot, signIn } from "./portal-support";
 
-let session: Awaited<ReturnType<typeof launchBrowser>>;
-beforeAll(async () => {
-  session = await launchBrowser();
-});
-afterAll(async () => {
-  await session?.close();
-});
+const session = useBrowser();
 
 describe("billing in the portal", () => {
   it("a billing contact upgrades through the hosted checkout and downloads the invoice PDF", { timeout: 120_000 }, async () => {

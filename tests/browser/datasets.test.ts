@@ -1,19 +1,13 @@
 // The Datasets page: upload a file with its upload and parsing progress, see the summary and histogram, and
 // a bad file's message (line and column, nothing stored). Screenshots in test-results/screenshots.
 import jStatDefault from "jstat";
-import { afterAll, beforeAll, describe, expect, it } from "vitest";
-import { launchBrowser } from "../support/browser";
+import { describe, expect, it } from "vitest";
+import { useBrowser } from "./browser-session";
 import { makeOrganization, makePerson, shot, signIn } from "./portal-support";
 
 const jStat = jStatDefault as unknown as { mean(x: number[]): number; stdev(x: number[], sample?: boolean): number };
 
-let session: Awaited<ReturnType<typeof launchBrowser>>;
-beforeAll(async () => {
-  session = await launchBrowser();
-});
-afterAll(async () => {
-  await session?.close();
-});
+const session = useBrowser();
 
 // Demo file (invented): Harrowgate Mutual's storm claims, about 1.3 MB, so the upload takes a moment when throttled.
 function stormClaims(n: number) {

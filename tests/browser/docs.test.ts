@@ -1,17 +1,12 @@
 // The docs page: the interactive reference renders the 3.1 document, and Try it out runs a call with a key.
 import { join } from "node:path";
-import { afterAll, beforeAll, describe, expect, it } from "vitest";
-import { launchBrowser, SCREENSHOTS } from "../support/browser";
+import { describe, expect, it } from "vitest";
+import { SCREENSHOTS } from "../support/browser";
+import { useBrowser } from "./browser-session";
 import { orgWithKey } from "../support/api";
 import { baseUrl } from "../support/layout";
 
-let session: Awaited<ReturnType<typeof launchBrowser>>;
-beforeAll(async () => {
-  session = await launchBrowser();
-});
-afterAll(async () => {
-  await session?.close();
-});
+const session = useBrowser();
 
 describe("/docs", () => {
   it("expands an operation, authorises with a key, runs it and shows a 200 with a body", { timeout: 60_000 }, async () => {

@@ -1,16 +1,11 @@
 // The landing page from `next start`: it renders in the shipped font and makes no request off the host.
 import { join } from "node:path";
-import { afterAll, beforeAll, describe, expect, it } from "vitest";
-import { launchBrowser, SCREENSHOTS } from "../support/browser";
+import { describe, expect, it } from "vitest";
+import { SCREENSHOTS } from "../support/browser";
+import { useBrowser } from "./browser-session";
 import { baseUrl } from "../support/layout";
 
-let session: Awaited<ReturnType<typeof launchBrowser>>;
-beforeAll(async () => {
-  session = await launchBrowser();
-});
-afterAll(async () => {
-  await session?.close();
-});
+const session = useBrowser();
 
 describe("landing page", () => {
   it("shows the product, the caution, and uses the shipped fonts with every request on 127.0.0.1", async () => {

@@ -1,17 +1,11 @@
 // An admin's small journeys: a role change asks first (and says what the role may do); usage shows the quota on
 // its own bar and daily units on one axis, keeps its filters in the address, and explains a From after To.
-import { afterAll, beforeAll, describe, expect, it } from "vitest";
-import { launchBrowser } from "../support/browser";
+import { describe, expect, it } from "vitest";
+import { useBrowser } from "./browser-session";
 import { baseUrl } from "../support/layout";
 import { makeOrganization, makePerson, shot, signIn } from "./portal-support";
 
-let session: Awaited<ReturnType<typeof launchBrowser>>;
-beforeAll(async () => {
-  session = await launchBrowser();
-});
-afterAll(async () => {
-  await session?.close();
-});
+const session = useBrowser();
 
 describe("admin journeys", () => {
   it("confirms a promotion before it happens, and usage keeps one honest scale and its filters in the address", { timeout: 120_000 }, async () => {

@@ -2,19 +2,13 @@
 // exceedance on a log scale, hover read-out, CSV/SVG export), tables, code in three languages, a model built
 // on a dataset, no stale results beside an error, and saved models with versions shared in the organisation.
 import { readFileSync } from "node:fs";
-import { afterAll, beforeAll, describe, expect, it } from "vitest";
+import { describe, expect, it } from "vitest";
 import type { Page } from "playwright-core";
-import { launchBrowser } from "../support/browser";
+import { useBrowser } from "./browser-session";
 import { baseUrl } from "../support/layout";
 import { makeOrganization, makePerson, shot, signIn } from "./portal-support";
 
-let session: Awaited<ReturnType<typeof launchBrowser>>;
-beforeAll(async () => {
-  session = await launchBrowser();
-});
-afterAll(async () => {
-  await session?.close();
-});
+const session = useBrowser();
 
 const run = (page: Page) => page.getByRole("button", { name: "Run density, quantiles and moments" }).click();
 const plotRange = async (page: Page) => {

@@ -1,17 +1,12 @@
 // An admin invites a billing contact -> the mail arrives -> the billing contact joins, sees usage, and can
 // neither see nor create keys.
-import { afterAll, beforeAll, describe, expect, it } from "vitest";
+import { describe, expect, it } from "vitest";
 import { launchBrowser } from "../support/browser";
+import { useBrowser } from "./browser-session";
 import { baseUrl } from "../support/layout";
 import { linkIn, mailTo, makeOrganization, makePerson, shot, signIn, uniq } from "./portal-support";
 
-let session: Awaited<ReturnType<typeof launchBrowser>>;
-beforeAll(async () => {
-  session = await launchBrowser();
-});
-afterAll(async () => {
-  await session?.close();
-});
+const session = useBrowser();
 
 describe("inviting a billing contact", () => {
   it("admin invites, the invitee joins from the mail, sees usage and no keys", { timeout: 120_000 }, async () => {

@@ -1,15 +1,9 @@
 // Rotate with 1 hour grace -> both secrets work; revoke the old one -> it is refused. Plus org switching.
-import { afterAll, beforeAll, describe, expect, it } from "vitest";
-import { launchBrowser } from "../support/browser";
+import { describe, expect, it } from "vitest";
+import { useBrowser } from "./browser-session";
 import { callMoments, makeOrganization, makePerson, shot, signIn } from "./portal-support";
 
-let session: Awaited<ReturnType<typeof launchBrowser>>;
-beforeAll(async () => {
-  session = await launchBrowser();
-});
-afterAll(async () => {
-  await session?.close();
-});
+const session = useBrowser();
 
 describe("key rotation and revocation", () => {
   it("rotates with 1 hour grace (both keys work), then revokes the retiring one (refused)", { timeout: 120_000 }, async () => {

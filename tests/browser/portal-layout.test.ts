@@ -1,19 +1,13 @@
 // Every page at 390 px (a phone) and 1280 px: nothing wider than the screen, tables as cards or scrolling in
 // their own box with the actions in view; and the audit log used by an admin (filter, CSV).
 import { readFileSync } from "node:fs";
-import { afterAll, beforeAll, describe, expect, it } from "vitest";
+import { describe, expect, it } from "vitest";
 import type { Page } from "playwright-core";
-import { launchBrowser } from "../support/browser";
+import { useBrowser } from "./browser-session";
 import { baseUrl } from "../support/layout";
 import { makeOrganization, makePerson, shot, signIn } from "./portal-support";
 
-let session: Awaited<ReturnType<typeof launchBrowser>>;
-beforeAll(async () => {
-  session = await launchBrowser();
-});
-afterAll(async () => {
-  await session?.close();
-});
+const session = useBrowser();
 
 /** How far the page itself scrolls sideways, and the widest elements that stick out (outside scroll boxes). */
 const overflow = (page: Page) =>

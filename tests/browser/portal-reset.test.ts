@@ -1,16 +1,10 @@
 // Forgotten password: ask for a link -> it arrives in the SMTP sink -> choose a new password -> sign in with it.
-import { afterAll, beforeAll, describe, expect, it } from "vitest";
-import { launchBrowser } from "../support/browser";
+import { describe, expect, it } from "vitest";
+import { useBrowser } from "./browser-session";
 import { baseUrl } from "../support/layout";
 import { linkIn, mailTo, makeOrganization, makePerson, shot, signIn } from "./portal-support";
 
-let session: Awaited<ReturnType<typeof launchBrowser>>;
-beforeAll(async () => {
-  session = await launchBrowser();
-});
-afterAll(async () => {
-  await session?.close();
-});
+const session = useBrowser();
 
 describe("password reset", () => {
   it("resets the password through the mailed link", { timeout: 120_000 }, async () => {

@@ -5,19 +5,14 @@
 import { join } from "node:path";
 import { generate } from "otplib";
 import type { Page } from "playwright-core";
-import { afterAll, beforeAll, beforeEach, describe, expect, it } from "vitest";
+import { afterAll, beforeEach, describe, expect, it } from "vitest";
 import { createKey } from "@/lib/db/keys";
 import { launchBrowser } from "../support/browser";
+import { useBrowser } from "./browser-session";
 import { baseUrl } from "../support/layout";
 import { callMoments, makeOrganization, makePerson, shot, signIn } from "./portal-support";
 
-let session: Awaited<ReturnType<typeof launchBrowser>>;
-beforeAll(async () => {
-  session = await launchBrowser();
-});
-afterAll(async () => {
-  await session?.close();
-});
+const session = useBrowser();
 // Each test signs in as its own person: start without the previous test's session cookie.
 beforeEach(async () => {
   await session?.browser.clearCookies();

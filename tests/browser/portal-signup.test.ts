@@ -1,17 +1,11 @@
 // A newcomer: sign up -> confirm the address from the mail (which signs them in) -> quickstart: a key, the call,
 // its output -> create another key (secret shown once) -> call the API with it -> see the calls in the usage table.
-import { afterAll, beforeAll, describe, expect, it } from "vitest";
-import { launchBrowser } from "../support/browser";
+import { describe, expect, it } from "vitest";
+import { useBrowser } from "./browser-session";
 import { baseUrl } from "../support/layout";
 import { callMoments, linkIn, mailTo, shot, uniq } from "./portal-support";
 
-let session: Awaited<ReturnType<typeof launchBrowser>>;
-beforeAll(async () => {
-  session = await launchBrowser();
-});
-afterAll(async () => {
-  await session?.close();
-});
+const session = useBrowser();
 
 describe("newcomer flow", () => {
   it("signs up, confirms, creates a key, calls the API and sees the call in usage", { timeout: 120_000 }, async () => {

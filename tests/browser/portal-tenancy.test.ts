@@ -1,17 +1,11 @@
 // A person in two organisations works in both at once: tab A stays in Kestrel while tab B switches to
 // Harrowgate; tab A's upload lands in Kestrel and tab A keeps listing Kestrel's data under Kestrel's name.
-import { afterAll, beforeAll, describe, expect, it } from "vitest";
-import { launchBrowser } from "../support/browser";
+import { describe, expect, it } from "vitest";
+import { useBrowser } from "./browser-session";
 import { baseUrl } from "../support/layout";
 import { makeOrganization, makePerson, shot, signIn } from "./portal-support";
 
-let session: Awaited<ReturnType<typeof launchBrowser>>;
-beforeAll(async () => {
-  session = await launchBrowser();
-});
-afterAll(async () => {
-  await session?.close();
-});
+const session = useBrowser();
 
 describe("tenancy across tabs", () => {
   it("each tab keeps its own organisation for what it shows and what it stores", { timeout: 120_000 }, async () => {

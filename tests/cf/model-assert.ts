@@ -1,4 +1,4 @@
-// Shared assertions for engineer A's lib/cf tests: every failure prints inputs, value, expected, difference, tolerance.
+// Shared assertions of the lib/cf tests: every failure prints inputs, value, expected, difference, tolerance.
 import { expect } from "vitest";
 
 export type Tol = { abs?: number; rel?: number };

@@ -2,20 +2,11 @@
 
 import { usePathname, useRouter, useSearchParams } from "next/navigation";
 import { useEffect, useState } from "react";
+import type { AuditRow } from "@/lib/portal/audit";
 import { portalFetch, PortalFetchError, withOrg } from "../../_components/fetch";
 import { Empty, fmtDate, FormError, inputClass, Loading, PageHeader, quietButtonClass } from "../../_components/ui";
 
-interface Row {
-  id: number;
-  at: string;
-  who: string;
-  whoEmail: string | null;
-  action: string;
-  target: string;
-  detail: Record<string, unknown> | null;
-  ip: string | null;
-  userAgent: string | null;
-}
+type Row = AuditRow;
 interface Data {
   rows: Row[];
   truncated: boolean;

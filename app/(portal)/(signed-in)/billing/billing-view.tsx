@@ -5,6 +5,7 @@ import { portalFetch, PortalFetchError, withOrg } from "../../_components/fetch"
 import { OrgLink } from "../../_components/org-link";
 import { buttonClass, dangerButtonClass, Empty, Field, FormError, Loading, Notice, PageHeader, quietButtonClass } from "../../_components/ui";
 import { day, lastDay, money, STATUS_LABEL, units } from "./format";
+import { LinesTable, type Line } from "./lines-table";
 
 interface PlanRow {
   code: string;
@@ -15,12 +16,6 @@ interface PlanRow {
   overagePerMillionMinor: number;
   requestsPerSecond: number;
   monthlyUnits: number;
-}
-interface Line {
-  description: string;
-  quantity: number;
-  unitLabel: string;
-  amountMinor: number;
 }
 interface Summary {
   role: "admin" | "developer" | "billing";
@@ -61,34 +56,6 @@ function Section({ title, children, actions }: { title: string; children: ReactN
       </div>
       {children}
     </section>
-  );
-}
-
-function LinesTable({ lines, currency, caption }: { lines: Line[]; currency: string; caption: string }) {
-  return (
-    <div className="overflow-x-auto">
-      <table className="w-full text-sm">
-        <caption className="sr-only">{caption}</caption>
-        <thead>
-          <tr className="border-b border-paper-line text-left text-ink-soft">
-            <th className="py-2 pr-3 font-semibold">Line</th>
-            <th className="py-2 pr-3 text-right font-semibold">Quantity</th>
-            <th className="py-2 pr-3 font-semibold">Rate</th>
-            <th className="py-2 text-right font-semibold">Amount</th>
-          </tr>
-        </thead>
-        <tbody>
-          {lines.map((l, i) => (
-            <tr key={i} className="border-b border-paper-line/60">
-              <td className="py-2 pr-3">{l.description}</td>
-              <td className="py-2 pr-3 text-right font-mono tabular-nums">{units(l.quantity)}</td>
-              <td className="py-2 pr-3 text-ink-soft">{l.unitLabel}</td>
-              <td className="py-2 text-right font-mono tabular-nums">{money(l.amountMinor, currency)}</td>
-            </tr>
-          ))}
-        </tbody>
-      </table>
-    </div>
   );
 }
 

@@ -198,7 +198,6 @@ function CreateKeyForm({ onCancel, onCreated }: { onCancel: () => void; onCreate
     }
   }
 
-  const toggle = (s: Scope) => setScopes((cur) => (cur.includes(s) ? cur.filter((x) => x !== s) : [...cur, s]));
   const tomorrow = new Date(Date.now() + 86_400_000).toISOString().slice(0, 10);
 
   return (
@@ -206,25 +205,32 @@ function CreateKeyForm({ onCancel, onCreated }: { onCancel: () => void; onCreate
       <h2 className="font-display text-lg font-semibold">New key</h2>
       <FormError message={error} />
       <Field label="Label" name="label" value={label} onChange={setLabel} error={errors.label} hint="What the key is for, e.g. “pricing batch job”." required />
-      <ScopePicker scopes={scopes} onToggle={toggle} error={errors.scopes} />
+      <ScopePicker scopes={scopes} onChange={setScopes} error={errors.scopes} />
       <Field label="Expires on (optional)" name="expiresOn" type="date" min={tomorrow} value={expiresOn} onChange={setExpiresOn} error={errors.expiresOn} hint="Leave empty for a key without expiry. It stops at the end of that day (UTC)." />
       <Field label="Allowed client addresses (optional)" name="allowedCidrs" value={cidrs} onChange={setCidrs} error={errors.allowedCidrs} hint={CIDR_HINT} />
-      <div className="flex gap-3">
-        <button type="submit" className={buttonClass} disabled={busy}>
-          {busy ? "Creating…" : "Create key"}
-        </button>
-        <button type="button" className={quietButtonClass} onClick={onCancel}>
-          Cancel
-        </button>
-      </div>
+      <SubmitOrCancel busy={busy} label="Create key" busyLabel="Creating…" onCancel={onCancel} />
     </form>
+  );
+}
+
+function SubmitOrCancel({ busy, label, busyLabel, onCancel }: { busy: boolean; label: string; busyLabel: string; onCancel: () => void }) {
+  return (
+    <div className="flex gap-3">
+      <button type="submit" className={buttonClass} disabled={busy}>
+        {busy ? busyLabel : label}
+      </button>
+      <button type="button" className={quietButtonClass} onClick={onCancel}>
+        Cancel
+      </button>
+    </div>
   );
 }
 
 const CIDR_HINT = "Ranges like 203.0.113.0/24 or 2001:db8::/48, separated by commas. Calls from elsewhere are refused (403). Leave empty to accept any address.";
 
-function ScopePicker({ scopes, onToggle, error }: { scopes: Scope[]; onToggle: (s: Scope) => void; error?: string }) {
+function ScopePicker({ scopes, onChange, error }: { scopes: Scope[]; onChange: (scopes: Scope[]) => void; error?: string }) {
   const id = useId();
+  const onToggle = (s: Scope) => onChange(scopes.includes(s) ? scopes.filter((x) => x !== s) : [...scopes, s]);
   return (
     <fieldset aria-describedby={error ? `${id}-err` : undefined}>
       <legend className="text-sm font-semibold">Endpoint groups this key may call</legend>
@@ -271,7 +277,6 @@ function EditKeyForm({ k, onCancel, onSaved }: { k: KeyView; onCancel: () => voi
     }
   }
 
-  const toggle = (s: Scope) => setScopes((cur) => (cur.includes(s) ? cur.filter((x) => x !== s) : [...cur, s]));
   return (
     <form onSubmit={submit} noValidate aria-label="Edit key" className="space-y-4 rounded-xl border border-paper-line bg-white p-5">
       <h2 className="font-display text-lg font-semibold">
@@ -280,16 +285,9 @@ function EditKeyForm({ k, onCancel, onSaved }: { k: KeyView; onCancel: () => voi
       <p className="text-sm text-ink-soft">The secret does not change. Changes reach every server within a second.</p>
       <FormError message={error} />
       <Field label="Label" name="label" value={label} onChange={setLabel} error={errors.label} required />
-      <ScopePicker scopes={scopes} onToggle={toggle} error={errors.scopes} />
+      <ScopePicker scopes={scopes} onChange={setScopes} error={errors.scopes} />
       <Field label="Allowed client addresses" name="allowedCidrs" value={cidrs} onChange={setCidrs} error={errors.allowedCidrs} hint={CIDR_HINT} />
-      <div className="flex gap-3">
-        <button type="submit" className={buttonClass} disabled={busy}>
-          {busy ? "Saving…" : "Save changes"}
-        </button>
-        <button type="button" className={quietButtonClass} onClick={onCancel}>
-          Cancel
-        </button>
-      </div>
+      <SubmitOrCancel busy={busy} label="Save changes" busyLabel="Saving…" onCancel={onCancel} />
     </form>
   );
 }

@@ -5,6 +5,7 @@ import { Caution } from "@/app/_components/caution";
 import { portalFetch, PortalFetchError, withOrg } from "../../../../_components/fetch";
 import { buttonClass, FormError, Loading, Notice, PageHeader, quietButtonClass, TextLink } from "../../../../_components/ui";
 import { day, lastDay, money, STATUS_LABEL, units } from "../../format";
+import { LinesTable } from "../../lines-table";
 
 interface Detail {
   invoice: { id: number; number: string; kind: string; planCode: string; periodStart: string; periodEnd: string; currency: string; totalMinor: number; unitsMetered: number; status: string; paidAt: string | null; lastPaymentError: string | null; createdAt: string };
@@ -92,26 +93,10 @@ export function InvoiceView({ id }: { id: string }) {
         </dl>
       </section>
       <section aria-label="Lines" className="rounded-xl border border-paper-line bg-white p-5 shadow-sm">
-        <table className="w-full text-sm">
-          <thead>
-            <tr className="border-b border-paper-line text-left text-ink-soft">
-              <th className="py-2 pr-3 font-semibold">Line</th>
-              <th className="py-2 pr-3 text-right font-semibold">Quantity</th>
-              <th className="py-2 pr-3 font-semibold">Rate</th>
-              <th className="py-2 text-right font-semibold">Amount</th>
-            </tr>
-          </thead>
-          <tbody>
-            {d.lines.map((l) => (
-              <tr key={l.position} className="border-b border-paper-line/60">
-                <td className="py-2 pr-3">{l.description}</td>
-                <td className="py-2 pr-3 text-right font-mono tabular-nums">{units(l.quantity)}</td>
-                <td className="py-2 pr-3 text-ink-soft">{l.unitLabel}</td>
-                <td className="py-2 text-right font-mono tabular-nums">{money(l.amountMinor, i.currency)}</td>
-              </tr>
-            ))}
-          </tbody>
-          <tfoot>
+        <LinesTable
+          lines={d.lines}
+          currency={i.currency}
+          footer={
             <tr>
               <th scope="row" colSpan={3} className="py-2 pr-3 text-right">
                 Total
@@ -120,8 +105,8 @@ export function InvoiceView({ id }: { id: string }) {
                 {money(i.totalMinor, i.currency)}
               </td>
             </tr>
-          </tfoot>
-        </table>
+          }
+        />
       </section>
       <Caution />
       <TextLink href={withOrg("/billing")}>Back to billing</TextLink>
