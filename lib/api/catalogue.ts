@@ -1,31 +1,28 @@
-import { FAMILY_NAMES, FAMILY_SPECS, type ParamSpec } from "@/lib/cf/families/spec";
+import { familyCatalogue, type CatalogueParam } from "@/lib/cf/catalogue";
 
-const bound = (v: number) => (v === Infinity ? "inf" : v === -Infinity ? "-inf" : String(v));
+const bound = (v: number | null, inf: string) => (v === null ? inf : String(v));
 
-function range(p: ParamSpec): string {
+function range(p: CatalogueParam): string {
   if (p.values) return p.values.map((v) => `"${v}"`).join(" | ");
-  const interval = `${p.loOpen ? "(" : "["}${bound(p.lo)}, ${bound(p.hi)}${p.hiOpen ? ")" : "]"}`;
-  return p.type === "int" ? `integer in ${interval}` : interval;
+  const interval = `${p.minExclusive || p.min === null ? "(" : "["}${bound(p.min, "-inf")}, ${bound(p.max, "inf")}${p.maxExclusive || p.max === null ? ")" : "]"}`;
+  return p.type === "integer" ? `integer in ${interval}` : interval;
 }
 
-/** The family catalogue as the API serves it (GET /api/v1/families) and the docs show it. */
+/** The family catalogue (lib/cf/catalogue.ts) as the API serves it (GET /api/v1/families) and the docs show it. */
 export function catalogueResponse() {
   return {
-    families: FAMILY_NAMES.map((name) => {
-      const f = FAMILY_SPECS[name];
-      return {
-        family: name,
-        title: f.title,
-        parameters: f.params.map((p) => ({ name: p.name, description: p.doc, range: range(p), ...(p.default !== undefined ? { default: p.default } : {}) })),
-        support: f.support,
-        kind: f.discrete ? "lattice" : "continuous",
-        cf: f.cf,
-        cfMethod: f.cfMethod,
-        moments: f.moments,
-        momentExistence: f.momentExistence ?? "all",
-        tailIndex: f.tailIndex ?? "none",
-        source: f.source,
-      };
-    }),
+    families: familyCatalogue().map((f) => ({
+      family: f.name,
+      title: f.title,
+      parameters: f.parameters.map((p) => ({ name: p.name, description: p.description, range: range(p), ...(p.default !== null ? { default: p.default } : {}) })),
+      support: f.support,
+      kind: f.discrete ? "lattice" : "continuous",
+      cf: f.characteristicFunction,
+      cfMethod: f.cfMethod,
+      moments: f.moments,
+      momentExistence: f.momentExistence,
+      tailIndex: f.tailIndex,
+      source: f.source,
+    })),
   };
 }
