@@ -1,9 +1,12 @@
 // `npm run bench:isolation`: figures for compute isolation and the job queue, against `next start` on private
 // services (ports shifted by 2400). Prints
 //   1. /api/v1/health latency p50/p99 idle and while two deadline-length computations run (Dedicated plan, 10 s),
-//   2. throughput of a CPU-bound endpoint (POST /api/v1/density) with one compute thread and with two,
+//      beside OPTIONS latency (the request thread alone), the load average and the compute threads' nice values,
+//   2. throughput of a CPU-bound endpoint (POST /api/v1/quantiles, 1000 levels) with one compute thread and with two,
 //   3. jobs: 100 submitted, all finished, results equal to the synchronous answers, with two worker processes.
 import { spawn, type ChildProcess } from "node:child_process";
+import { readdirSync, readFileSync } from "node:fs";
+import { availableParallelism, loadavg } from "node:os";
 import { resolve } from "node:path";
 import { REPO, testLayout, type Secrets } from "./lib/config";
 import { buildIsStale, log, runBuild, startNext, startServices, startWorker, stopChild } from "./lib/stack";
@@ -29,16 +32,83 @@ async function post(path: string, key: string, body: unknown) {
   return { status: r.status, body: (await r.json()) as Record<string, unknown> };
 }
 
-async function healthSample(untilMs: number): Promise<number[]> {
-  const out: number[] = [];
-  while (Date.now() < untilMs) {
-    const t0 = performance.now();
-    const r = await fetch(`${base}/api/v1/health`);
-    await r.arrayBuffer();
-    out.push(performance.now() - t0);
-    await sleep(20);
+/** CPU ms (user + system) of one thread from /proc/<pid>/task/<tid>/stat (fields 14, 15; clock ticks of 10 ms). */
+function threadCpuMs(pid: number, tid: number): number {
+  const stat = readFileSync(`/proc/${pid}/task/${tid}/stat`, "utf8");
+  const f = stat.slice(stat.lastIndexOf(")") + 2).split(" ");
+  return (Number(f[11]) + Number(f[12])) * 10;
+}
+
+/** CPU ms of a process's main thread and of all its threads, and how many threads it has. */
+function cpuTimes(pid: number): { main: number; total: number; threads: number } {
+  const tids = readdirSync(`/proc/${pid}/task`).map(Number);
+  let total = 0;
+  for (const tid of tids) {
+    try {
+      total += threadCpuMs(pid, tid);
+    } catch {
+      /* the thread ended */
+    }
   }
-  return out;
+  return { main: threadCpuMs(pid, pid), total, threads: tids.length };
+}
+
+/** The process serving HTTP: `next start` itself or the child it forks (the descendant with the most threads). */
+function serverPid(child: ChildProcess): number {
+  const all = readdirSync("/proc").filter((d) => /^\d+$/.test(d)).map(Number);
+  const parent = new Map<number, number>();
+  for (const p of all) {
+    try {
+      const st = readFileSync(`/proc/${p}/stat`, "utf8");
+      parent.set(p, Number(st.slice(st.lastIndexOf(")") + 2).split(" ")[1]));
+    } catch {
+      /* gone */
+    }
+  }
+  const family = [child.pid!];
+  for (let i = 0; i < family.length; i++) for (const [p, pp] of parent) if (pp === family[i]) family.push(p);
+  const threads = (p: number) => {
+    try {
+      return readdirSync(`/proc/${p}/task`).length;
+    } catch {
+      return 0;
+    }
+  };
+  return family.sort((a, b) => threads(b) - threads(a))[0];
+}
+
+/**
+ * Samples, alternately, GET /api/v1/health (the main thread plus one database round trip) and OPTIONS on a keyed
+ * path (the main thread alone: no database, no Redis), so a slow health answer can be told apart: a slow OPTIONS
+ * too means the main thread was held; a fast one means the wait was the database's.
+ */
+async function healthSample(untilMs: number): Promise<{ health: number[]; options: number[] }> {
+  const health: number[] = [];
+  const options: number[] = [];
+  while (Date.now() < untilMs) {
+    let t0 = performance.now();
+    await (await fetch(`${base}/api/v1/health`)).arrayBuffer();
+    health.push(performance.now() - t0);
+    await sleep(10);
+    t0 = performance.now();
+    await (await fetch(`${base}/api/v1/quantiles`, { method: "OPTIONS" })).arrayBuffer();
+    options.push(performance.now() - t0);
+    await sleep(10);
+  }
+  return { health, options };
+}
+
+const figures = (xs: number[]) => `n=${xs.length} p50 ${ms(pct(xs, 0.5))} p99 ${ms(pct(xs, 0.99))} max ${ms(Math.max(...xs))}`;
+
+/** The nice value of each of a process's threads (field 19 of /proc/<pid>/task/<tid>/stat), main thread first. */
+function threadNice(pid: number): number[] {
+  return readdirSync(`/proc/${pid}/task`)
+    .map(Number)
+    .sort((a, b) => (a === pid ? -1 : b === pid ? 1 : a - b))
+    .map((tid) => {
+      const st = readFileSync(`/proc/${pid}/task/${tid}/stat`, "utf8");
+      return Number(st.slice(st.lastIndexOf(")") + 2).split(" ")[16]);
+    });
 }
 
 try {
@@ -67,33 +137,80 @@ try {
   const running = [post("/api/v1/quantiles", key, heavy), post("/api/v1/quantiles", key, heavy)];
   await sleep(300);
   const busy = await healthSample(t0 + 9500);
+  const nice = threadNice(serverPid(server!));
   const heavyResults = await Promise.all(running);
-  log(`health idle: n=${idle.length} p50 ${ms(pct(idle, 0.5))} p99 ${ms(pct(idle, 0.99))} max ${ms(Math.max(...idle))}`);
-  log(`health with two 10 s computations running: n=${busy.length} p50 ${ms(pct(busy, 0.5))} p99 ${ms(pct(busy, 0.99))} max ${ms(Math.max(...busy))}`);
+  log(`load average ${loadavg().map((x) => x.toFixed(2)).join(" ")} on ${availableParallelism()} cores; server threads' nice values: main ${nice[0]}, others ${[...new Set(nice.slice(1))].join("/")}`);
+  log(`health idle: ${figures(idle.health)}; OPTIONS (main thread only) ${figures(idle.options)}`);
+  log(`health with two 10 s computations running: ${figures(busy.health)}; OPTIONS (main thread only) ${figures(busy.options)}`);
   log(`the two computations: ${heavyResults.map((r) => `${r.status} ${String(r.body.type ?? "").split("#")[1] ?? ""} after ${r.body.elapsedMs} ms`).join("; ")} (wall ${Date.now() - t0} ms)`);
 
-  // 2. throughput of a CPU-bound endpoint, one compute thread vs two
-  const cpu = { model: { sum: [{ family: "gamma", shape: 2, rate: 1 }, { family: "lognormal", mu: 0, sigma: 0.5 }] }, grid: { from: 0, to: 15, count: 400 } };
+  // 2. throughput of a CPU-bound endpoint, one compute thread vs two. Each request computes for a few hundred ms
+  // (so the main thread's share per request, parsing, the key check, metering and the response, is small against
+  // it); rounds alternate 1, 2, 2, 1 threads so a change in the machine's other load biases neither side. Printed
+  // beside the rate: the engine time per request (meta.computeMs), the wait for a thread (elapsed - compute), and
+  // the CPU time the server's main thread and the whole server process used per request (from /proc), which show
+  // whether the main thread or the machine (other processes, the load generator) is what limits the second thread.
+  const cpu = {
+    model: { sum: [{ family: "gamma", shape: 2, rate: 1 }, { family: "lognormal", mu: 0, sigma: 0.5 }, { family: "weibull", shape: 1.5, scale: 1 }] },
+    p: Array.from({ length: 1000 }, (_, i) => (i + 0.5) / 1000),
+    expectedShortfall: true,
+    tolerance: 1e-12,
+  };
   const through = async (threads: number) => {
     await startServer(threads);
+    const pid = serverPid(server!);
     const n = 24;
     let next = 0;
-    const t = performance.now();
     const statuses: number[] = [];
+    const computeMs: number[] = [];
+    const waitMs: number[] = [];
+    const cpu0 = cpuTimes(pid);
+    const self0 = process.cpuUsage();
+    const t = performance.now();
     await Promise.all(
       Array.from({ length: 4 }, async () => {
         while (next < n) {
           next++;
-          statuses.push((await post("/api/v1/density", key, cpu)).status);
+          const t1 = performance.now();
+          const r = await post("/api/v1/quantiles", key, cpu);
+          statuses.push(r.status);
+          const meta = r.body.meta as { computeMs?: number } | undefined;
+          if (meta?.computeMs !== undefined) {
+            computeMs.push(meta.computeMs);
+            waitMs.push(performance.now() - t1 - meta.computeMs);
+          }
         }
       }),
     );
     const secs = (performance.now() - t) / 1000;
-    return { rps: n / secs, ok: statuses.filter((s) => s === 200).length, n };
+    const cpu1 = cpuTimes(pid);
+    const self = process.cpuUsage(self0);
+    const mean = (xs: number[]) => xs.reduce((a, b) => a + b, 0) / Math.max(1, xs.length);
+    return {
+      threads,
+      rps: n / secs,
+      ok: statuses.filter((s) => s === 200).length,
+      n,
+      computeMs: mean(computeMs),
+      waitMs: mean(waitMs),
+      mainCpuMs: (cpu1.main - cpu0.main) / n,
+      processCpuMs: (cpu1.total - cpu0.total) / n,
+      loadGenCpuMs: (self.user + self.system) / 1000 / n,
+      cores: (cpu1.total - cpu0.total) / 1000 / secs,
+    };
   };
-  const one = await through(1);
-  const two = await through(2);
-  log(`CPU-bound POST /api/v1/density (4 connections, ${one.n} requests): 1 thread ${one.rps.toFixed(2)} req/s (${one.ok} ok), 2 threads ${two.rps.toFixed(2)} req/s (${two.ok} ok), ratio ${(two.rps / one.rps).toFixed(2)}x`);
+  const rounds = [await through(1), await through(2), await through(2), await through(1)];
+  for (const r of rounds) {
+    log(
+      `  ${r.threads} thread${r.threads > 1 ? "s" : ""}: ${r.rps.toFixed(2)} req/s (${r.ok}/${r.n} ok); per request: engine ${ms(r.computeMs)}, wait for a thread ${ms(r.waitMs)}, ` +
+        `server main-thread CPU ${ms(r.mainCpuMs)}, server process CPU ${ms(r.processCpuMs)} (${r.cores.toFixed(2)} cores busy), load generator CPU ${ms(r.loadGenCpuMs)}`,
+    );
+  }
+  const rate = (k: number) => {
+    const rs = rounds.filter((r) => r.threads === k);
+    return rs.reduce((a, r) => a + r.n, 0) / rs.reduce((a, r) => a + r.n / r.rps, 0);
+  };
+  log(`CPU-bound POST /api/v1/quantiles (1000 levels with shortfall, 4 connections, 2 x 24 requests each): 1 thread ${rate(1).toFixed(2)} req/s, 2 threads ${rate(2).toFixed(2)} req/s, ratio ${(rate(2) / rate(1)).toFixed(2)}x; load average ${loadavg().map((x) => x.toFixed(2)).join(" ")} on ${availableParallelism()} cores`);
 
   // 3. jobs with two worker processes
   workers.push(await startWorker({ ...env, SUMFOLD_COMPUTE_THREADS: "1" }, "ignore"), await startWorker({ ...env, SUMFOLD_COMPUTE_THREADS: "1" }, "ignore"));

@@ -61,6 +61,9 @@ try {
     ...services.env,
     SUMFOLD_TEST_LAYOUT: JSON.stringify(layout),
     SUMFOLD_TEST_BASE_URL: `http://127.0.0.1:${layout.appPort}`,
+    // compute threads keep the default priority here: on a machine shared with other work a lowered one would
+    // stretch computations past the short plan deadlines some tests rely on (the benchmark runs with the default)
+    SUMFOLD_COMPUTE_NICE: "0",
   };
   const bin = (name: string) => resolve(REPO, "node_modules/.bin", name);
   log("type-checking (tsc --noEmit)...");

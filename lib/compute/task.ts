@@ -1,12 +1,25 @@
 // The body of one compute worker thread (bundled to build/compute-worker.mjs by scripts/build-worker.ts): runs
 // one computation at a time under a cooperative deadline and returns a plain, cloneable outcome.
-import type { MessagePort } from "node:worker_threads";
+import { setPriority } from "node:os";
+import { isMainThread, type MessagePort } from "node:worker_threads";
 import { ApiError } from "@/lib/api/errors";
 import { finiteResult, refuseOverflow } from "@/lib/api/finite";
 import { runCf, runConvolve, runDensity, runMoments, runQuantiles, runRisk } from "@/lib/api/operations";
 import { clearDeadline, deadlineProgress, isDeadlineExceeded, setDeadline } from "@/lib/cf/deadline";
 import { isCfError } from "@/lib/cf/errors";
 import type { ComputeOutcome, ComputeTask, OperationName } from "./types";
+
+// When the engine and the request thread (health, key checks, metering) or the database compete for the cores,
+// the engine yields: this thread alone runs at a lower priority (on Linux a nice value belongs to one thread).
+// SUMFOLD_COMPUTE_NICE sets it (0 to 19; default 10; 0 keeps the process's priority).
+const NICE = Math.min(19, Math.max(0, Math.trunc(Number(process.env.SUMFOLD_COMPUTE_NICE ?? 10)) || 0));
+if (NICE > 0 && !isMainThread) {
+  try {
+    setPriority(0, NICE);
+  } catch {
+    /* not permitted here: keep the default priority */
+  }
+}
 
 const OPS: Record<OperationName, (body: never) => Record<string, unknown>> = {
   cf: runCf,
