@@ -5,6 +5,7 @@ import { getUserByEmail } from "@/lib/db/portal";
 import { verifyEmail } from "@/lib/portal/accounts";
 import { signInSchema } from "@/lib/portal/schemas";
 import { burnPasswordCheck, verifyPassword } from "./passwords";
+import { DbUnavailableError } from "@/lib/db/client";
 import { endSession, isSessionLive, openSession, SESSION_MAX_AGE_S } from "./sessions";
 import { allowSignInAttempt } from "./throttle";
 import { checkSecondFactor } from "./totp";
@@ -93,7 +94,17 @@ export const authOptions: NextAuthOptions = {
         return token;
       }
       // Every later use of the token (page render, /api/auth/session) checks its session is still open.
-      if (!(await isSessionLive(token))) throw new Error(SESSION_ENDED);
+      let live: boolean;
+      try {
+        live = await isSessionLive(token);
+      } catch (e) {
+        // The database did not answer in time: keep the token (throwing here would make next-auth clear the
+        // cookie, signing people out over a database pause). Nothing is served from it meanwhile: the signed-in
+        // layout and every portal handler check the session themselves and answer 503 while the database is away.
+        if (e instanceof DbUnavailableError) return token;
+        throw e;
+      }
+      if (!live) throw new Error(SESSION_ENDED);
       return token;
     },
     async session({ session, token }) {

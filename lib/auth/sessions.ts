@@ -10,6 +10,7 @@ import {
   listOpenSessionRows,
   touchSession,
 } from "@/lib/db/auth";
+import { withDbDeadline } from "@/lib/db/client";
 
 /**
  * Server-side sessions behind next-auth's JWT cookie. The token carries a session id (sid) and the user's
@@ -50,12 +51,15 @@ export async function isSessionLive(token: { uid?: unknown; sid?: unknown; sv?: 
   const now = Date.now();
   const hit = checks().get(sid);
   if (hit && now - hit.at < CHECK_CACHE_MS) return hit.ok;
-  const row = await getSessionWithVersion({ sid });
+  // under the request path's database deadline: a database that stops answering makes this throw
+  // DbUnavailableError (a 503 for the caller) after DB_DEADLINE_MS instead of holding the page
+  const row = await withDbDeadline(getSessionWithVersion({ sid }));
   const ok = !!row && row.userId === uid && !row.endedAt && row.current === sv;
   let touchedAt = hit?.touchedAt ?? row?.lastSeenAt.getTime() ?? 0;
   if (ok && now - touchedAt > TOUCH_MS) {
     touchedAt = now;
-    await touchSession({ sid, at: new Date(now) });
+    // last-seen is bookkeeping: written beside the request, never waited for
+    void touchSession({ sid, at: new Date(now) }).catch((e: unknown) => console.error("[sumfold] session last-seen update failed", e));
   }
   if (checks().size > 50_000) checks().clear();
   checks().set(sid, { at: now, ok, touchedAt });

@@ -1,5 +1,6 @@
 import "server-only";
 import type { z } from "zod";
+import { DbUnavailableError } from "@/lib/db/client";
 import { originOf, withRequestOrigin } from "@/lib/request-context";
 import { fieldErrors } from "./schemas";
 
@@ -77,6 +78,7 @@ export function handler(fn: (req: Request, params: Record<string, string>) => Pr
       return await withRequestOrigin(originOf(req), () => fn(req, params));
     } catch (e) {
       if (e instanceof PortalError) return json(e.status, { error: e.message, ...(e.fields ? { fields: e.fields } : {}) });
+      if (e instanceof DbUnavailableError) return json(503, { error: "The database is not answering right now; try again in a few seconds." }, { "retry-after": "5" });
       console.error("[sumfold] portal handler failed", e);
       return json(500, { error: "Something went wrong on our side. It has been logged; please try again." });
     }

@@ -1,4 +1,5 @@
 import "server-only";
+import { withDbDeadline } from "@/lib/db/client";
 import { getUserById, listMembershipsOfUser } from "@/lib/db/portal";
 import type { Role } from "@/lib/db/schema";
 import { can, type Permission } from "@/lib/auth/roles";
@@ -59,9 +60,9 @@ export async function callerFor(req: Request, opts: CallerOptions = {}): Promise
 export async function callerFromParts({ cookieHeader, org }: { cookieHeader: string | null; org: string | null }, opts: CallerOptions = {}): Promise<Caller> {
   const userId = await sessionUserId(cookieHeader);
   if (!userId) throw new PortalError(401, "Sign in to continue.");
-  const user = await getUserById({ userId });
+  const user = await withDbDeadline(getUserById({ userId }));
   if (!user) throw new PortalError(401, "Sign in to continue.");
-  const all = await listMembershipsOfUser({ userId });
+  const all = await withDbDeadline(listMembershipsOfUser({ userId }));
   if (all.length === 0) throw new PortalError(403, "You do not belong to any organisation yet. Create one, or ask an admin for an invitation.");
   let m: (typeof all)[number] | undefined;
   if (org) {
