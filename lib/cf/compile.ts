@@ -15,7 +15,8 @@ export interface CompileOptions {
   /**
    * Lognormal, pareto and weibull severities inside compounds are discretised onto a lattice (mean-preserving) when
    * this object is given; it sets the target cdf error or the span. false: never. Absent: lognormal compounds stay
-   * continuous (atom at 0, damped inversion); pareto and weibull severities are discretised and labelled so.
+   * continuous (atom at 0, damped inversion; pareto and weibull with gamma kernels at the severity's endpoint taken
+   * out of the transform); other severities without a cheap CF (lomax, burr, ...) are discretised and labelled so.
    */
   discretise?: DiscretiseOptions | false;
 }
@@ -130,6 +131,7 @@ export function toCompiled(node: Node): CompiledModel {
       checkBuffers(t, re, im);
       damped(beta, t, re, im);
     };
+    if (node.dampedKernels && node.dampedKernels.cf === damped) compiled.dampedKernels = node.dampedKernels.kernels;
   }
   if (node.kind.type === "lattice" && node.table) {
     const table = node.table;

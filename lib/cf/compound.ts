@@ -2,6 +2,7 @@ import type { Node, NodeKind } from "./node";
 import { commonStep, onLattice, panjer, powerTable, restep, convolveTables } from "./lattice";
 import type { LatticeTable } from "./types";
 import { compoundDamped } from "./damped-cf";
+import { compoundKernels } from "./damped-kernels";
 import { builtNote, chooseSpan, isPoissonCount, discretisedCompound, methodNote, type DiscretiseOptions, type DiscretisedCompound } from "./discretise";
 
 const collectNotes = (cs: Node[]) => [...new Set(cs.flatMap((c) => c.notes))];
@@ -12,7 +13,7 @@ const collectNotes = (cs: Node[]) => [...new Set(cs.flatMap((c) => c.notes))];
  * series, K_S(u) = K_N(K_X(u)).
  */
 export function compoundNode(N: Node, X: Node, discretise: DiscretiseOptions | null = {}, exact = false): Node {
-  if (X.severity && X.kind.type === "continuous" && N.countCgf && discretise && !(discretise.auto && X.severity.name === "lognormal"))
+  if (X.severity && X.kind.type === "continuous" && N.countCgf && discretise && !(discretise.auto && CONTINUOUS_BY_DEFAULT.has(X.severity.name)))
     return discretisedNode(N, X, discretise);
   // a per-claim layer's severity has atoms (at 0 and at the limit) besides its density: always discretised
   if (X.severity?.atoms && N.countCgf && !exact)
@@ -97,6 +98,10 @@ export function compoundNode(N: Node, X: Node, discretise: DiscretiseOptions | n
       return out;
     },
   };
+  if (node.dampedLogCf && X.laplaceExpansion && X.kind.type === "continuous" && N.table) {
+    const kernels = kernelsFor(N, X);
+    if (kernels.length > 0) node.dampedKernels = { cf: node.dampedLogCf, kernels };
+  }
   if (kind.type === "lattice" && X.table) {
     node.table = (maxLength) => compoundTable(N, X, kind as { step: number }, maxLength, node);
   }
@@ -156,6 +161,27 @@ function discretisedNode(N: Node, X: Node, o: DiscretiseOptions): Node {
   delete node.p0;
   delete node.dampedLogCf;
   return node;
+}
+
+/** severities whose compounds are inverted as continuous laws (damped transform) unless discretisation is asked for */
+const CONTINUOUS_BY_DEFAULT = new Set(["lognormal", "pareto", "weibull"]);
+/** order of the endpoint expansion removed by kernels: what is left decays like |s|^{-e}, e > KERNEL_ORDER */
+const KERNEL_ORDER = 4;
+
+function kernelsFor(N: Node, X: Node): ReturnType<typeof compoundKernels> {
+  const sev = X.laplaceExpansion!;
+  const e0 = Math.min(...sev.exps);
+  const nMax = Math.floor(KERNEL_ORDER / e0) + 1;
+  const t = N.table!(nMax + 1);
+  if (!t || t.step !== 1 || !Number.isInteger(t.origin) || t.origin < 0) return [];
+  const pn = new Float64Array(nMax + 1);
+  for (let n = 1; n <= nMax; n++) {
+    const i = n - t.origin;
+    pn[n] = i >= 0 && i < t.p.length ? t.p[i] : 0;
+  }
+  // kernel rate: the severity's own scale near its endpoint
+  const rate = 1 / Math.max(X.severity?.scale ?? X.scale, 1e-300);
+  return compoundKernels(pn, sev, rate, KERNEL_ORDER);
 }
 
 function compoundErrors(N: Node, X: Node): { cfAbsError: number; cfRelError: number } {

@@ -1,6 +1,7 @@
 import type { Atom, LatticeTable } from "./types";
 import type { CompoundBracket, SeverityLaw } from "./discretise";
 import type { DampedLogCf } from "./damped-cf";
+import type { EndpointSeries, GammaKernel } from "./damped-kernels";
 import type { DirectLaw } from "./direct/types";
 import type { DirectLaw as DistLaw } from "./families/dist";
 
@@ -56,6 +57,10 @@ export interface Node {
   cfAbsError?: number;
   /** bound on the relative error of the CF values (compounds of numerical CFs: |dP/P| <= slope |d phi_X|) */
   cfRelError?: number;
+  /** severities: the endpoint expansion of the Laplace transform (compounds choose gamma kernels from it) */
+  laplaceExpansion?: EndpointSeries;
+  /** compounds: gamma kernels subtracted from the damped transform, valid only with the dampedLogCf named here */
+  dampedKernels?: { cf: DampedLogCf; kernels: GammaKernel[] };
   /** counts: sup |P'(z) / P(z)| over the unit disc (finite for Poisson and negative binomial) */
   cgfSlope?: number;
 }

@@ -52,6 +52,9 @@ export interface CompiledModel {
   readonly cfRelError?: number;
   /** log E[exp((i t - beta) X)], beta >= 0, for aggregate laws bounded below (compounds): the damped inversion's input */
   dampedLogCf?(beta: number, t: Float64Array, re: Float64Array, im: Float64Array): void;
+  /** gamma kernels the damped inversion subtracts from the transform and adds back in closed form (compounds of
+   *  severities with a slowly decaying CF: a jump or a power singularity at the support's lower end) */
+  dampedKernels?: readonly import("./damped-kernels").GammaKernel[];
   /** notes on approximations already made (e.g. "lognormal severity discretised on step h, mean-preserving"). */
   readonly notes: string[];
   /** a single named law, possibly scaled or shifted, evaluated without its CF (closed form, special function or

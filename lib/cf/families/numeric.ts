@@ -4,6 +4,7 @@ import { sortedAnchor, unwrapFrom } from "../complex";
 import { checkDeadline } from "../deadline";
 import { CfError } from "../errors";
 import { fromPhiDamped } from "../damped-cf";
+import type { EndpointSeries } from "../damped-kernels";
 
 /** Stated accuracy of the numerically computed CFs below (absolute error in phi). */
 export const NUMERIC_CF_ABS_ERROR = 1e-13;
@@ -302,6 +303,7 @@ export function weibull(k: number, lambda: number): Node {
     notes: [`weibull CF computed by quadrature on a rotated contour (absolute error <= ${NUMERIC_CF_ABS_ERROR})`],
     cfAbsError: NUMERIC_CF_ABS_ERROR,
     dampedLogCf: fromPhiDamped(phiAt),
+    laplaceExpansion: weibullExpansion(k, lambda),
     // density (k/lambda)(x/lambda)^(k-1) e^{-(x/lambda)^k}, sf e^{-(x/lambda)^k} (JKB vol. 1, ch. 21)
     severity: {
       name: "weibull",
@@ -505,6 +507,7 @@ const raw = (m: number) => (alpha * xm ** m) / (alpha - m);
     notes: [`pareto CF computed by quadrature on a rotated contour (absolute error <= ${NUMERIC_CF_ABS_ERROR})`],
     cfAbsError: NUMERIC_CF_ABS_ERROR,
     dampedLogCf: fromPhiDamped(phiAt),
+    laplaceExpansion: paretoExpansion(alpha, xm),
     // density alpha xm^alpha x^(-alpha-1) on [xm, inf), sf (xm/x)^alpha (JKB vol. 1, ch. 20)
     severity: {
       name: "pareto",
@@ -522,4 +525,39 @@ const raw = (m: number) => (alpha * xm ** m) / (alpha - m);
     // E X^n = alpha xm^n / (alpha - n), n < alpha (JKB vol. 1, ch. 20)
     cumulants: (m) => rawToCumulants(cumulantList(m, alpha, raw)),
   };
+}
+
+/** exponents of the endpoint expansions kept (compounds subtract gamma kernels up to a lower order) */
+const EXPANSION_MAX = 8;
+
+/**
+ * Weibull(k, lambda) density at 0: (k/lambda) (x/lambda)^{k-1} e^{-(x/lambda)^k} = sum_j (-1)^j/j! k lambda^{-k(j+1)}
+ * x^{k(j+1)-1}; termwise Laplace transform (Watson's lemma): E e^{-sX} ~ sum_j (-1)^j/j! k Gamma(k(j+1))
+ * lambda^{-k(j+1)} s^{-k(j+1)}.
+ */
+export function weibullExpansion(k: number, lambda: number): EndpointSeries {
+  const exps: number[] = [];
+  const coefs: number[] = [];
+  for (let j = 0; k * (j + 1) <= EXPANSION_MAX; j++) {
+    const p = k * (j + 1);
+    exps.push(p);
+    coefs.push((j % 2 === 0 ? 1 : -1) * k * Math.exp(lgamma(p) - lgamma(j + 1) - p * Math.log(lambda)));
+  }
+  return { at: 0, exps, coefs };
+}
+
+/**
+ * Pareto(alpha, xm) density at xm: (alpha/xm)(1 + y/xm)^{-alpha-1} = (alpha/xm) sum_j (-1)^j (alpha+1)_j/j! (y/xm)^j,
+ * so E e^{-sX} ~ e^{-s xm} (alpha/xm) sum_j (-1)^j (alpha+1)_j xm^{-j} s^{-j-1} (Watson's lemma).
+ */
+export function paretoExpansion(alpha: number, xm: number): EndpointSeries {
+  const exps: number[] = [];
+  const coefs: number[] = [];
+  let c = alpha / xm;
+  for (let j = 0; j + 1 <= EXPANSION_MAX; j++) {
+    exps.push(j + 1);
+    coefs.push(c);
+    c *= -(alpha + 1 + j) / xm;
+  }
+  return { at: xm, exps, coefs };
 }

@@ -1,7 +1,9 @@
 import type { Atom, CompiledModel } from "../types";
+import type { GammaKernel } from "../damped-kernels";
 import { nextPowerOfTwo } from "../fftplan";
 import { checkDeadline } from "../deadline";
 import { sumOnGrid } from "./fft";
+import { kernelsAt, kernelsDensityBeyond, kernelsMass, subtractKernels } from "../damped-kernels";
 import { cutoffFor, envelopeOf, probeFrequencies, truncationAt, type Envelope, type Nodes } from "./nodes";
 
 /**
@@ -15,15 +17,19 @@ import { cutoffFor, envelopeOf, probeFrequencies, truncationAt, type Envelope, t
  * so after undamping the aliasing error of F_c is at most M_c q / (1 - q), q = e^{-beta T}, whatever the tail:
  * heavy and subexponential tails need no long period. The price is the factor e^{beta (x - lo)} on the sums' own
  * truncation and rounding errors; beta (R - lo) = U keeps it at e^U over the range asked for.
+ * A continuous part whose density has a jump or a power singularity at an endpoint (pareto, weibull severities)
+ * has a slowly decaying transform; the model's gamma kernels (model.dampedKernels: the endpoint expansion's leading
+ * terms) are subtracted from psi_c and their cdf, density and integrated cdf added back in closed form.
  */
 
 /** per-node noise of psi_c: rounding of the atom subtraction plus twice the CF's declared absolute error */
 function noiseOf(model: CompiledModel, atoms: Atom[]): number {
   const pa = atoms.reduce((s, a) => s + a.p, 0);
-  // a relative CF error acts on the atoms' share of psi as an absolute one
-  return 16 * EPS * (1 + pa) + 2 * (model.cfAbsError ?? 0) + 2 * pa * (model.cfRelError ?? 0);
+  const kw = kernelsMass(model.dampedKernels ?? []);
+  // a relative CF error acts on the atoms' share of psi as an absolute one; the kernels' closed forms round too
+  return 16 * EPS * (1 + pa + kw) + 2 * (model.cfAbsError ?? 0) + 2 * pa * (model.cfRelError ?? 0);
 }
-const MAX_K = 1 << 21;
+export const MAX_K = 1 << 21;
 /** default budget of frequency terms before the undamped routes are preferred */
 export const DAMPED_BUDGET = 1 << 19;
 const EPS = Number.EPSILON;
@@ -59,6 +65,8 @@ export interface DampedSolution {
   maxFrequency: number;
   /** the frequency cut-off was capped: the truncation term is what it is, not the target */
   capped: boolean;
+  /** gamma kernels taken out of psi_c (added back in closed form) */
+  kernels: readonly GammaKernel[];
   notes: string[];
 }
 
@@ -101,6 +109,7 @@ function psiOf(model: CompiledModel, atoms: Atom[], beta: number) {
       re[k] = r;
       im[k] = i;
     }
+    if (model.dampedKernels) subtractKernels(model.dampedKernels, lo, beta, t, re, im);
   };
 }
 
@@ -122,7 +131,8 @@ function probe(model: CompiledModel, atoms: Atom[], beta: number, noise: number)
 export function dampedPlan(model: CompiledModel, atoms: Atom[], R: number, tol: number, wantPdf: boolean): DampedPlan {
   const lo = model.support[0];
   const span = Math.max(R - lo, 1e-6 * Math.max(model.scale, Math.abs(lo), 1e-300));
-  const Mc = Math.max(1 - atoms.reduce((s, a) => s + a.p, 0), 1e-300);
+  // the inverted function is the continuous part less the kernels: its size bounds the images
+  const Mc = Math.max(1 - atoms.reduce((s, a) => s + a.p, 0), 1e-300) + kernelsMass(model.dampedKernels ?? []);
   const A = Math.max(Math.log((8 * Mc) / tol), 2);
   const noise = noiseOf(model, atoms);
   const env0 = probe(model, atoms, 4 / span, noise);
@@ -221,7 +231,11 @@ export function dampedSetup(model: CompiledModel, atoms: Atom[], R: number, o: D
   const mean = model.cumulants(1)[0];
   // density beyond the window: f(y) <= S(lo + (y - lo)/2) / ((y - lo)/2) for a density non-increasing there,
   // with Markov's S(z) <= E[X - lo] / (z - lo) when the mean exists
-  const fTail = mean !== null && Number.isFinite(mean) && model.momentIndex > 1 ? (4 * Math.max(mean - lo, 0)) / (T * T) : (2 * Mc) / T;
+  const ks = model.dampedKernels ?? [];
+  const fTail =
+    (mean !== null && Number.isFinite(mean) && model.momentIndex > 1 ? (4 * Math.max(mean - lo, 0)) / (T * T) : (2 * Mc) / T) +
+    (ks.length ? kernelsDensityBeyond(ks, lo + T) : 0);
+  const Mr = Mc + kernelsMass(ks);
   notes.push(
     `damped inversion (exponential damping beta = ${beta.toPrecision(4)} before the transform, Abate & Whitt 1992; ` +
       `Grubel & Hermesmeier 1999): period ${T.toPrecision(4)} from ${lo}, ${K} frequency terms, atoms separated exactly`,
@@ -245,9 +259,10 @@ export function dampedSetup(model: CompiledModel, atoms: Atom[], R: number, o: D
     sumPdf,
     sumCdf,
     sumInt,
-    aliasCdf: Mc * geo,
+    aliasCdf: Mr * geo,
     aliasPdf: fTail * geo,
-    aliasIntCoef: Mc * geo,
+    aliasIntCoef: Mr * geo,
+    kernels: ks,
     q,
     maxFrequency: K * h,
     capped,
@@ -294,17 +309,19 @@ export function dampedAt(s: DampedSolution, x: number, wantPdf: boolean, wantInt
   }
   const g = Math.exp(s.beta * y);
   const f = (g * h) / Math.PI;
-  // the phase recurrence drifts by ~ eps per step between resyncs: inside the rounding allowance of the setup
-  const Fc = Math.min(Math.max(f * aC, 0), s.Mc);
-  const fc = Math.max(f * aP, 0);
-  const Ic = Math.min(Math.max(f * aI, 0), s.Mc * y);
+  const kv = s.kernels.length ? kernelsAt(s.kernels, x) : { F: 0, f: 0, I: 0, err: 0, errf: 0, errI: 0 };
+  // the phase recurrence drifts by ~ eps per step between resyncs: inside the rounding allowance of the setup;
+  // clamping to the known range [0, Mc] only moves a value toward the truth
+  const Fc = Math.min(Math.max(f * aC + kv.F, 0), s.Mc);
+  const fc = Math.max(f * aP + kv.f, 0);
+  const Ic = Math.min(Math.max(f * aI + kv.I, 0), s.Mc * y);
   return {
     Fc,
     fc,
     Ic,
-    errF: g * s.sumCdf + s.aliasCdf,
-    errf: g * s.sumPdf + s.aliasPdf,
-    errI: g * s.sumInt + s.aliasIntCoef * (y + s.T / (1 - s.q)),
+    errF: g * s.sumCdf + s.aliasCdf + kv.err,
+    errf: g * s.sumPdf + s.aliasPdf + kv.errf,
+    errI: g * s.sumInt + s.aliasIntCoef * (y + s.T / (1 - s.q)) + kv.errI,
   };
 }
 
@@ -340,10 +357,11 @@ export function dampedGrid(
     const y = from + j * dx - s.lo;
     if (y < 0) continue;
     const g = Math.exp(s.beta * y);
-    Fc[j] = Math.min(Math.max(g * gC[j], 0), s.Mc);
-    fc[j] = wantPdf ? Math.max(g * gP[j], 0) : 0;
-    errF[j] = g * s.sumCdf + s.aliasCdf;
-    errf[j] = g * s.sumPdf + s.aliasPdf;
+    const kv = s.kernels.length ? kernelsAt(s.kernels, from + j * dx) : { F: 0, f: 0, err: 0, errf: 0 };
+    Fc[j] = Math.min(Math.max(g * gC[j] + kv.F, 0), s.Mc);
+    fc[j] = wantPdf ? Math.max(g * gP[j] + kv.f, 0) : 0;
+    errF[j] = g * s.sumCdf + s.aliasCdf + kv.err;
+    errf[j] = g * s.sumPdf + s.aliasPdf + kv.errf;
   }
   return { fc, Fc, errF, errf };
 }

@@ -1,5 +1,5 @@
 import type { Atom, CompiledModel } from "../types";
-import { DAMPED_BUDGET, dampedAt, dampedSetup, type DampedSolution } from "./damped";
+import { DAMPED_BUDGET, MAX_K, dampedAt, dampedSetup, type DampedSolution } from "./damped";
 import type { QuantileOptions, QuantileResult } from "./quantile";
 import { solveLevels, type Evaluator } from "./solve-levels";
 
@@ -38,14 +38,16 @@ export function dampedQuantiles(model: CompiledModel, atoms: Atom[], p: Float64A
   };
   // locate R with cheap loose inversions (growth 1.5), then invert once at the tolerance
   const loose = Math.max(tol, Math.min(1e-7, tail / 100));
+  // kernels taken out (pareto, weibull severities): what is left decays fast, so a long range is worth its terms
+  const budget = model.dampedKernels?.length ? MAX_K : DAMPED_BUDGET;
   for (let it = 0; it < 40; it++) {
-    const probe = dampedSetup(model, atoms, R, { tolerance: loose, wantPdf: false, budget: DAMPED_BUDGET });
+    const probe = dampedSetup(model, atoms, R, { tolerance: loose, wantPdf: false, budget });
     if (!probe) return null;
     const v = dampedAt(probe, R, false, false);
     if (split(R).above + Mc - v.Fc + v.errF < tail / 2) break;
     R = lo + 1.5 * (R - lo);
   }
-  const sol: DampedSolution | null = dampedSetup(model, atoms, R, { tolerance: tol, wantPdf: true, budget: DAMPED_BUDGET });
+  const sol: DampedSolution | null = dampedSetup(model, atoms, R, { tolerance: tol, wantPdf: true, budget });
   if (!sol) return null;
   const errCdf = dampedAt(sol, R, false, false).errF;
   const s = sol!;
