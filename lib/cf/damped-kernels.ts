@@ -98,17 +98,44 @@ export function compoundKernels(pn: ArrayLike<number>, sev: EndpointSeries, rate
 
 /** sum_k w_k e^{-s (at_k - lo)} (rate_k/(rate_k + s))^shape_k at s = beta - i t, subtracted from (re, im) */
 export function subtractKernels(ks: readonly GammaKernel[], lo: number, beta: number, t: Float64Array, re: Float64Array, im: Float64Array) {
-  for (const k of ks) {
-    const d = k.at - lo;
-    for (let j = 0; j < t.length; j++) {
-      // log(rate/(rate + beta - i t)) = -log|1 + (beta - i t)/rate| - i arg(...)
-      const ur = 1 + beta / k.rate;
-      const ui = -t[j] / k.rate;
-      const lr = -k.shape * 0.5 * Math.log(ur * ur + ui * ui) - beta * d;
-      const li = -k.shape * Math.atan2(ui, ur) + t[j] * d;
-      const m = k.w * Math.exp(lr);
-      re[j] -= m * Math.cos(li);
-      im[j] -= m * Math.sin(li);
+  // by rate, then endpoint, then shape: a shape one above the previous one multiplies its power by z = rate/(rate + s)
+  const sorted = [...ks].sort((a, b) => a.rate - b.rate || a.at - b.at || a.shape - b.shape);
+  for (let j = 0; j < t.length; j++) {
+    let rate = NaN;
+    let lzr = 0;
+    let lzi = 0;
+    let zr = 0;
+    let zi = 0;
+    let prev: GammaKernel | null = null;
+    let pr = 0;
+    let pi = 0;
+    for (const k of sorted) {
+      if (k.rate !== rate) {
+        rate = k.rate;
+        // z = 1 / (1 + s / rate), s = beta - i t
+        const ur = 1 + beta / rate;
+        const ui = -t[j] / rate;
+        const d2 = ur * ur + ui * ui;
+        zr = ur / d2;
+        zi = -ui / d2;
+        lzr = -0.5 * Math.log(d2);
+        lzi = -Math.atan2(ui, ur);
+        prev = null;
+      }
+      if (prev && prev.at === k.at && Math.abs(k.shape - prev.shape - 1) < 1e-12) {
+        const nr = pr * zr - pi * zi;
+        pi = pr * zi + pi * zr;
+        pr = nr;
+      } else {
+        const d = k.at - lo;
+        const m = Math.exp(k.shape * lzr - beta * d);
+        const a = k.shape * lzi + t[j] * d;
+        pr = m * Math.cos(a);
+        pi = m * Math.sin(a);
+      }
+      prev = k;
+      re[j] -= k.w * pr;
+      im[j] -= k.w * pi;
     }
   }
 }
