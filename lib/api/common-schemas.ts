@@ -1,12 +1,11 @@
 import { DATASET_ID } from "@/lib/datasets/schemas";
-import { MAX_GRID_POINTS, MAX_REPEAT } from "@/lib/cf/limits";
-import { FamilySchema, LatticeSchema, SampleSchema } from "@/lib/cf/schema";
+import { MAX_GRID_POINTS } from "@/lib/cf/limits";
+import { OPERATOR_SPECS, OPERATORS } from "@/lib/cf/notation";
+import { FamilySchema } from "@/lib/cf/schema";
 import { withinLimit, z } from "./zod";
 
-// The model notation for the OpenAPI document: the core's family and leaf schemas, with the recursive nodes
-// restated here so each refers to the named "Model" component (the generator cannot name the core's inner
-// lazy references). Validation does not use this copy: the core's validateModel checks every request.
-const docFinite = z.number();
+// The model notation for the OpenAPI document, built from the notation's one table (lib/cf/notation.ts) with each
+// child referring to the named "Model" component. Validation does not use it: validateModel checks every request.
 
 /** A model node naming an uploaded dataset; resolved to its empirical law before the computation. */
 export const DatasetRef = z
@@ -21,38 +20,12 @@ export const ModelRef: z.ZodType = z
   .lazy(() =>
     z.union([
       FamilySchema,
-      z.object({ sum: z.array(ModelRef).min(1) }).strict().openapi("SumNode", { description: "independent sum of the terms" }),
-      z.object({ scale: docFinite, of: ModelRef }).strict().openapi("ScaleNode", { description: "the law of a X" }),
-      z.object({ shift: docFinite, of: ModelRef }).strict().openapi("ShiftNode", { description: "the law of X + b" }),
-      z.object({ repeat: z.number().int().min(1).max(MAX_REPEAT), of: ModelRef }).strict().openapi("RepeatNode", { description: "sum of n independent copies" }),
-      z
-        .object({ mix: z.array(z.object({ weight: z.number().positive(), of: ModelRef }).strict()).min(1) })
-        .strict()
-        .openapi("MixNode", { description: "mixture; weights positive, summing to 1 within 1e-12" }),
-      z
-        .object({ compound: z.object({ count: ModelRef, each: ModelRef }).strict() })
-        .strict()
-        .openapi("CompoundNode", { description: "random sum of `count` (a law on 0, 1, 2, ...) independent copies of `each`" }),
-      z
-        .object({
-          layer: z
-            .object({ deductible: z.number().min(0).optional(), limit: z.number().positive().optional(), share: z.number().positive().max(1).optional() })
-            .strict(),
-          of: ModelRef,
-        })
-        .strict()
-        .openapi("LayerNode", {
-          description:
-            "per-claim layer: share * min(max(X - deductible, 0), limit) for one claim X (deductible 0, limit unlimited, share 1 when left out); X a named law with a closed-form cdf, a lattice or a sample",
-        }),
-      LatticeSchema,
-      SampleSchema,
+      ...OPERATOR_SPECS.map((o) => o.zod(ModelRef).openapi(o.name, { description: o.description })),
       DatasetRef,
-    ]),
+    ] as unknown as [z.ZodType, z.ZodType, ...z.ZodType[]]),
   )
   .openapi("Model", {
-    description:
-      "A model in Sumfold's notation: a named law { family, ...parameters }, or sum, scale, shift, repeat, mix, compound, layer, lattice, sample or dataset. See /docs/models.",
+    description: `A model in Sumfold's notation: a named law { family, ...parameters }, or ${OPERATORS.join(", ")} or dataset. See /docs/models.`,
   });
 
 const finite = (what: string) => z.number({ error: `${what} must be a finite number` });

@@ -1,6 +1,7 @@
 import type { Metadata } from "next";
 import Link from "next/link";
 import { aggregateClaimsModel, harrowgateGroundUp, kestrelShaftStack, reinsuranceLayerModel, stableReturnModel, toleranceStackModel } from "@/lib/demo/scenario";
+import { OPERATOR_SPECS } from "@/lib/cf/notation";
 import { Code, Prose } from "../_components/prose";
 import { FamilyTable } from "./family-table";
 
@@ -10,18 +11,7 @@ const json = (v: unknown) => JSON.stringify(v, null, 2);
 
 const nodes: [string, string][] = [
   ['{ "family": NAME, ...parameters }', "A named law; parameters as in the family table below."],
-  ['{ "sum": [model, ...] }', "The sum of independent terms: characteristic functions multiply."],
-  ['{ "scale": a, "of": model }', "The law of aX; phi(t) becomes phi(at)."],
-  ['{ "shift": b, "of": model }', "The law of X + b."],
-  ['{ "repeat": n, "of": model }', "The sum of n independent copies."],
-  ['{ "mix": [{ "weight": w, "of": model }, ...] }', "A mixture; weights positive and summing to 1."],
-  ['{ "compound": { "count": model, "each": model } }', "A random sum: count copies of each, count a law on 0, 1, 2, …"],
-  [
-    '{ "layer": { "deductible"?: d, "limit"?: l, "share"?: c }, "of": model }',
-    "One claim's layer: c min(max(X − d, 0), l) (deductible 0, limit unlimited, share 1 when left out). X is a named law with a closed-form cdf, a lattice or a sample. The law has atoms at 0 and at c l; inside a compound it is discretised on a lattice with both atoms exact, and the notes state the error bound.",
-  ],
-  ['{ "lattice": { "origin": x0, "step": h, "p": [...] } }', "A tabulated law on x0 + k h; p non-negative, summing to 1."],
-  ['{ "sample": [...], "weights"?: [...] }', "The empirical law of observed values, optionally weighted (a frequency table)."],
+  ...OPERATOR_SPECS.map((o): [string, string] => [o.syntax, o.guide]),
   ['{ "dataset": "ds_…", "version"?: n }', "The empirical law of a dataset uploaded in the portal (the latest version when omitted)."],
 ];
 
