@@ -2,18 +2,12 @@
 // jstat (npm, general-purpose statistics library) provides the reference pdf, cdf and quantiles.
 import jStat from "jstat";
 import supertest from "supertest";
-import { beforeAll, describe, expect, it } from "vitest";
-import { apiServer, orgWithKey } from "../support/api";
+import { describe, expect, it } from "vitest";
+import { keyedClient } from "../support/api";
 import { FAMILY_NAMES } from "@/lib/cf/families/spec";
 
-const app = apiServer();
-let key: string;
-beforeAll(async () => {
-  key = (await orgWithKey()).secret;
-});
-
-const post = (path: string, body: unknown) =>
-  supertest(app).post(path).set("authorization", `Bearer ${key}`).set("content-type", "application/json").send(JSON.stringify(body));
+const client = keyedClient();
+const { app, post } = client;
 
 function close(actual: number, expected: number, tol: { abs?: number; rel?: number }, what: string) {
   const diff = Math.abs(actual - expected);
@@ -138,7 +132,7 @@ describe("POST /api/v1/convolve", () => {
 
 describe("GET /api/v1/families", () => {
   it("lists every family of the notation with parameters, CF text and moment existence", async () => {
-    const res = await supertest(app).get("/api/v1/families").set("authorization", `Bearer ${key}`);
+    const res = await supertest(app).get("/api/v1/families").set("authorization", `Bearer ${client.key}`);
     expect(res.status).toBe(200);
     const names = res.body.families.map((f: { family: string }) => f.family);
     expect(names).toHaveLength(FAMILY_NAMES.length);

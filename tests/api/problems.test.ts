@@ -2,12 +2,11 @@
 // by the operations that can return it, and requests that trigger each one get the documented type.
 import { readdirSync, readFileSync, statSync } from "node:fs";
 import { join, resolve } from "node:path";
-import supertest from "supertest";
-import { beforeAll, describe, expect, it } from "vitest";
+import { describe, expect, it } from "vitest";
 import { PROBLEMS, type ProblemCode } from "@/lib/api/errors";
 import { buildOpenApiDocument } from "@/lib/api/openapi";
 import { MAX_GRID_POINTS, MAX_MOMENT_ORDER } from "@/lib/cf/limits";
-import { apiServer, orgWithKey } from "../support/api";
+import { keyedClient } from "../support/api";
 
 const root = resolve(import.meta.dirname, "../..");
 const doc = (await buildOpenApiDocument()) as unknown as { paths: Record<string, Record<string, { responses: Record<string, { content?: Record<string, { examples?: Record<string, unknown> }> }> }>> };
@@ -55,12 +54,7 @@ describe("problem types in code and docs", () => {
 });
 
 describe("requests that trigger a problem get a documented type", () => {
-  const app = apiServer();
-  let key: string;
-  beforeAll(async () => {
-    key = (await orgWithKey()).secret;
-  });
-  const post = (path: string, body: unknown) => supertest(app).post(path).set("authorization", `Bearer ${key}`).set("content-type", "application/json").send(JSON.stringify(body));
+  const { post } = keyedClient();
 
   const cases: [string, string, unknown, ProblemCode][] = [
     ["grid.count over the limit", "/api/v1/density", { model: { family: "normal", mu: 0, sigma: 1 }, grid: { from: -1, to: 1, count: MAX_GRID_POINTS + 1 } }, "limit_exceeded"],

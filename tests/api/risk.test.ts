@@ -2,18 +2,10 @@
 // general-purpose statistics library) and the normal stop-loss closed form sigma phi(z) + (mu - d)(1 - Phi(z))
 // (common practice).
 import jStat from "jstat";
-import supertest from "supertest";
-import { beforeAll, describe, expect, it } from "vitest";
-import { apiServer, orgWithKey } from "../support/api";
+import { describe, expect, it } from "vitest";
+import { keyedClient } from "../support/api";
 
-const app = apiServer();
-let key: string;
-beforeAll(async () => {
-  key = (await orgWithKey()).secret;
-});
-
-const post = (path: string, body: unknown) =>
-  supertest(app).post(path).set("authorization", `Bearer ${key}`).set("content-type", "application/json").send(JSON.stringify(body));
+const { post } = keyedClient();
 
 function within(value: number, error: number, expected: number, what: string) {
   const diff = Math.abs(value - expected);

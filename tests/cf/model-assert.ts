@@ -1,5 +1,7 @@
 // Shared assertions of the lib/cf tests: every failure prints inputs, value, expected, difference, tolerance.
 import { expect } from "vitest";
+import { CfError } from "@/lib/cf/errors";
+import { validateModel } from "@/lib/cf/validate";
 
 export type Tol = { abs?: number; rel?: number };
 
@@ -27,4 +29,15 @@ export function closeC(ar: number, ai: number, br: number, bi: number, tol: Tol,
 export const worst: Record<string, number> = {};
 export function record(key: string, err: number): void {
   worst[key] = Math.max(worst[key] ?? 0, err);
+}
+
+/** The CfError validateModel throws for a model (fails the test when the model is accepted). */
+export function errorOf(model: unknown): CfError {
+  try {
+    validateModel(model);
+  } catch (e) {
+    if (e instanceof CfError) return e;
+    throw e;
+  }
+  throw new Error(`expected ${JSON.stringify(model).slice(0, 200)} to be rejected`);
 }

@@ -1,18 +1,9 @@
 // Weighted samples { sample: [x...], weights: [w...] }: validation pointers, classification, CF and moments against
 // the definition of the weighted empirical law (mass w_i / sum w at x_i; common practice).
 import { describe, expect, it } from "vitest";
-import { compile, validateModel, SampleSchema, CfError, moments } from "@/lib/cf";
-import { close, closeC } from "./model-assert";
+import { compile, SampleSchema, moments } from "@/lib/cf";
+import { close, closeC, errorOf } from "./model-assert";
 
-function errorOf(model: unknown): CfError {
-  try {
-    validateModel(model);
-  } catch (e) {
-    if (e instanceof CfError) return e;
-    throw e;
-  }
-  throw new Error(`expected ${JSON.stringify(model)} to be rejected`);
-}
 
 describe("weights: validation (pointer names the field: <node>/weights or <node>/weights/k)", () => {
   const cases: [string, unknown, string, RegExp][] = [

@@ -6,7 +6,6 @@ import {
   validateModel,
   ModelSchema,
   FamilySchema,
-  CfError,
   familyCatalogue,
   FAMILY_NAMES,
   MAX_MODEL_NODES,
@@ -15,19 +14,10 @@ import {
   MAX_SAMPLE,
   MAX_LATTICE,
 } from "@/lib/cf";
-import { close } from "./model-assert";
+import { close, errorOf } from "./model-assert";
 
 const N01 = { family: "normal", mu: 0, sigma: 1 };
 
-function errorOf(model: unknown): CfError {
-  try {
-    validateModel(model);
-  } catch (e) {
-    if (e instanceof CfError) return e;
-    throw e;
-  }
-  throw new Error(`expected ${JSON.stringify(model).slice(0, 200)} to be rejected`);
-}
 
 describe("validator: invalid models give a typed error with a JSON pointer and a sentence", () => {
   const cases: [string, unknown, string, string, RegExp][] = [

@@ -1,5 +1,7 @@
 import { randomBytes } from "node:crypto";
 import { eq, sql } from "drizzle-orm";
+import supertest from "supertest";
+import { beforeAll } from "vitest";
 import * as cf from "@/app/api/v1/cf/route";
 import * as convolve from "@/app/api/v1/convolve/route";
 import * as density from "@/app/api/v1/density/route";
@@ -50,4 +52,20 @@ export async function usageCount(where: { organizationId: number }) {
     .from(usageEvents)
     .where(eq(usageEvents.organizationId, where.organizationId));
   return Number(row.n);
+}
+
+/** The test file's client of the public API: a fresh organisation's key (made in beforeAll) and a JSON POST with it. */
+export function keyedClient() {
+  const app = apiServer();
+  let key = "";
+  beforeAll(async () => {
+    key = (await orgWithKey()).secret;
+  });
+  return {
+    app,
+    get key() {
+      return key;
+    },
+    post: (path: string, body: unknown) => supertest(app).post(path).set("authorization", `Bearer ${key}`).set("content-type", "application/json").send(JSON.stringify(body)),
+  };
 }
