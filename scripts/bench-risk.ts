@@ -49,4 +49,15 @@ console.log("                                   wall median    wall min   cpu me
 console.log(`compile + discretised table        ${f(table.wall)}     ${f(table.wallMin)}    ${f(table.cpu)}    ${f(table.cpuMin)}`);
 console.log(`whole request (ten measures)       ${f(all.wall)}     ${f(all.wallMin)}    ${f(all.cpu)}    ${f(all.cpuMin)}`);
 console.log(`target: <= 50 ms in the engine; cdf error bound of the route (${r.diagnostics.method}): ${r.diagnostics.cdfError.toExponential(2)}`);
+const show = (name: string, m: { value: (number | null)[]; error: (number | null)[] } | undefined) =>
+  m && console.log(`  ${name.padEnd(14)} ${m.value.map((v, i) => `${v === null ? "null" : Number(v.toPrecision(8))} ± ${m.error[i] === null ? "no bound" : m.error[i]!.toExponential(2)}`).join("   ")}`);
+console.log("values with their error bounds:");
+show("VaR", r.var);
+show("ES", r.es);
+show("stop-loss", r.stopLoss);
+show("limited mean", r.limitedMean);
+show("layer mean", r.layerMean);
+show("exceedance", r.exceedance);
+show("1-in-200", r.returnPeriod);
+if (r.outside) console.log(`  ${"ppm outside".padEnd(14)} ${Number(r.outside.ppm.toPrecision(8))} ± ${(r.outside.error * 1e6).toExponential(2)}`);
 console.log(`load average at the end: ${(await import("node:os")).loadavg().map((x) => x.toFixed(1)).join(" ")} on ${(await import("node:os")).cpus().length} cores`);

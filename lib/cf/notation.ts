@@ -399,7 +399,7 @@ export const OPERATOR_SPECS = [
   {
     key: "layer",
     syntax: '{ "layer": { "deductible"?: d, "limit"?: l, "share"?: c }, "of": model }',
-    guide: "One claim's layer: c min(max(X − d, 0), l) (deductible 0, limit unlimited, share 1 when left out). X is a named law with a closed-form cdf, a lattice or a sample. The law has atoms at 0 and at c l; inside a compound it is discretised on a lattice with both atoms exact, and the notes state the error bound.",
+    guide: "One claim's layer: c min(max(X − d, 0), l) (deductible 0, limit unlimited, share 1 when left out). X is a named law whose cdf the engine evaluates (every family on a half line or an interval: exponential, gamma, chi_squared, lognormal, pareto, weibull, lomax, generalized_pareto, burr, loglogistic, inverse_gaussian, inverse_gamma, beta, pert, triangular, uniform, truncated_normal; also normal), a lattice or a sample; other laws (cauchy, laplace, logistic, student_t, stable, variance_gamma, nig, sums, compounds) are refused with a 422 that lists the accepted ones. The law has atoms at 0 and at c l; inside a compound every claim is rounded down and rounded up onto a lattice that holds both atoms exactly, the two compounds bracket the law (and every quantile, stop-loss, layer mean and expected shortfall of it), and /api/v1/risk answers the middle of the bracket with half its width as the error bound.",
     name: "LayerNode",
     description:
       "per-claim layer: share * min(max(X - deductible, 0), limit) for one claim X (deductible 0, limit unlimited, share 1 when left out); X a named law with a closed-form cdf, a lattice or a sample",

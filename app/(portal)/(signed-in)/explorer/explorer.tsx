@@ -15,11 +15,14 @@ import { ResultTables } from "./result-tables";
 import { densityOnRange, parseLevels, runAll, RunError, type FieldIssue, type Results } from "./run";
 import { SaveModel, type SavedModelVersion } from "./save-model";
 import { LayerControl } from "./layer-control";
-import { RiskPanel } from "./risk-panel";
+import { RiskPanel, type RiskPreset } from "./risk-panel";
 import { TEMPLATES } from "./templates";
 
 const pretty = (v: unknown) => JSON.stringify(v, null, 2);
 const DEFAULT_RANGE = { from: 0.0001, to: 0.9999 };
+
+/** The risk fields of the template the page opens with. */
+const FIRST_PRESET: RiskPreset = { key: "first", ...TEMPLATES[0].risk };
 
 /** The explorer: a model (template, builder, docs example or saved model) in, the law's plot, quantiles and moments out. */
 export function Explorer({ builderFamilies }: { builderFamilies: BuilderFamily[] }) {
@@ -35,6 +38,11 @@ export function Explorer({ builderFamilies }: { builderFamilies: BuilderFamily[]
   const [replotting, setReplotting] = useState(false);
   const [results, setResults] = useState<Results | null>(null);
   const [loaded, setLoaded] = useState<{ id: number; name: string; version: number } | null>(null);
+  const [riskPreset, setRiskPreset] = useState<RiskPreset | null>(null);
+  const loadTemplate = (t: (typeof TEMPLATES)[number]) => {
+    load(t.model, t.p);
+    setRiskPreset({ key: `${t.id}-${Date.now()}`, ...t.risk });
+  };
   const ranModel = useRef<unknown>(null);
   // a model past a request's deadline is offered as a job on the queue
   const [heavy, setHeavy] = useState<{ model: unknown; p: number[] } | null>(null);
@@ -57,7 +65,7 @@ export function Explorer({ builderFamilies }: { builderFamilies: BuilderFamily[]
       const t = TEMPLATES.find((x) => x.id === example);
       const e = endpointExamples.find((x) => x.id === example);
       const body = e?.body as { model?: unknown; p?: number[] } | null;
-      if (t) load(t.model, t.p);
+      if (t) loadTemplate(t);
       else if (body?.model) load(body.model, body.p?.join(", "));
       else setError(`There is no docs example “${example}” with a model.`);
     }
@@ -153,7 +161,7 @@ export function Explorer({ builderFamilies }: { builderFamilies: BuilderFamily[]
         <h2 id="tpl-h" className="text-sm font-semibold uppercase tracking-wide text-ink-faint">Start from a template</h2>
         <div className="mt-2 grid gap-3 md:grid-cols-3">
           {TEMPLATES.map((t) => (
-            <button key={t.id} type="button" className="rounded-xl border border-paper-line bg-white p-4 text-left hover:border-fold-500" onClick={() => { load(t.model, t.p); setLoaded(null); }}>
+            <button key={t.id} type="button" className="rounded-xl border border-paper-line bg-white p-4 text-left hover:border-fold-500" onClick={() => { loadTemplate(t); setLoaded(null); }}>
               <span className="block font-display text-lg font-semibold">{t.title}</span>
               <span className="mt-1 block text-sm text-ink-soft">{t.blurb}</span>
             </button>
@@ -203,7 +211,7 @@ export function Explorer({ builderFamilies }: { builderFamilies: BuilderFamily[]
           <CodeSnippets path="/api/v1/quantiles" body={snippetBody} title="The same quantiles from your code" />
         </div>
       </div>
-      <RiskPanel modelText={text} />
+      <RiskPanel modelText={text} preset={riskPreset ?? FIRST_PRESET} />
     </div>
   );
 }

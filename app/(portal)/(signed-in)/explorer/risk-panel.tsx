@@ -1,6 +1,6 @@
 "use client";
 
-import { useId, useState } from "react";
+import { useEffect, useId, useState } from "react";
 import { orgHeaders } from "../../_components/fetch";
 import { buttonClass, FormError, inputClass, Loading } from "../../_components/ui";
 
@@ -76,17 +76,37 @@ function ExceedanceCurve({ xs, ps }: { xs: number[]; ps: (number | null)[] }) {
 }
 
 /** The explorer's risk panel: VaR/ES in either tail, stop-loss, a layer, return periods, exceedance curve, ppm outside spec. */
-export function RiskPanel({ modelText }: { modelText: string }) {
+export interface RiskPreset {
+  /** changes whenever a template is loaded, so the same template loaded twice resets the fields again */
+  key: string;
+  tail: "upper" | "lower";
+  levels: string;
+  retentions: string;
+  spec: string;
+}
+
+export function RiskPanel({ modelText, preset }: { modelText: string; preset?: RiskPreset | null }) {
   const id = useId();
-  const [tail, setTail] = useState<"upper" | "lower">("upper");
-  const [levels, setLevels] = useState("0.99, 0.995");
-  const [retentions, setRetentions] = useState("");
+  const [tail, setTail] = useState<"upper" | "lower">(preset?.tail ?? "upper");
+  const [levels, setLevels] = useState(preset?.levels ?? "0.99, 0.995");
+  const [retentions, setRetentions] = useState(preset?.retentions ?? "");
   const [layer, setLayer] = useState("");
   const [periods, setPeriods] = useState("10, 100, 200");
-  const [spec, setSpec] = useState("");
+  const [spec, setSpec] = useState(preset?.spec ?? "");
   const [busy, setBusy] = useState(false);
   const [error, setError] = useState<string | null>(null);
-  const [result, setResult] = useState<{ r: RiskResult; curve: { xs: number[]; r: RiskResult } | null; p: number[]; d: number[]; T: number[]; layer: number[] | null } | null>(null);
+  const [result, setResult] = useState<{ r: RiskResult; curve: { xs: number[]; r: RiskResult } | null; p: number[]; d: number[]; T: number[]; layer: number[] | null; tail: "upper" | "lower" } | null>(null);
+  // a template brings its own tail, levels, retentions and spec limits (the tolerance stack its LSL/USL)
+  useEffect(() => {
+    if (!preset) return;
+    setTail(preset.tail);
+    setLevels(preset.levels);
+    setRetentions(preset.retentions);
+    setSpec(preset.spec);
+    setLayer("");
+    setResult(null);
+    setError(null);
+  }, [preset]);
 
   async function run() {
     setError(null);
@@ -124,7 +144,7 @@ export function RiskPanel({ modelText }: { modelText: string }) {
         const xs = Array.from({ length: 41 }, (_, k) => a + ((b - a) * k) / 40);
         curve = { xs, r: await runRisk({ model, exceedance: xs }) };
       }
-      setResult({ r, curve, p, d, T, layer: l.length ? l : null });
+      setResult({ r, curve, p, d, T, layer: l.length ? l : null, tail });
     } catch (e) {
       setError((e as Error).message);
       setResult(null);
@@ -189,14 +209,14 @@ export function RiskPanel({ modelText }: { modelText: string }) {
             <tbody>
               {result.p.map((p, i) => (
                 <tr key={`v${p}`}>
-                  <td>VaR {p} ({tail})</td>
+                  <td>VaR {p} ({result.tail})</td>
                   <td className="text-right">{fmt(result.r.var?.value[i])}</td>
                   <td className="text-right">{fmtErr(result.r.var?.error[i])}</td>
                 </tr>
               ))}
               {result.p.map((p, i) => (
                 <tr key={`e${p}`}>
-                  <td>ES {p} ({tail})</td>
+                  <td>ES {p} ({result.tail})</td>
                   <td className="text-right">{fmt(result.r.es?.value[i])}</td>
                   <td className="text-right">{fmtErr(result.r.es?.error[i])}</td>
                 </tr>
