@@ -31,9 +31,8 @@ describe("new continuous families against mpmath / scipy", () => {
     it(`${c.name}: CF within 1e-12 absolute (${c.cfSource})`, () => {
       const m = compile(c.model);
       // both signs of t: phi(-t) = conj phi(t)
-      // the committed Burr/log-logistic references at t < 0.1 came from the oscillatory route of the generator, whose
-      // accuracy there is only ~1e-9; those points are left out until the fixture is regenerated with the small-t route
-      const pts = /^(burr|loglogistic)$/.test(String(c.model.family)) ? c.cf.filter((x) => x.t >= 0.1) : c.cf;
+      // every reference point, small t included (Burr/log-logistic at t < 0.1 from the generator's route on the claim size)
+      const pts = c.cf;
       const ts = [...pts.map((x) => -x.t).reverse(), 0, ...pts.map((x) => x.t)];
       const t = Float64Array.from(ts);
       const re = new Float64Array(ts.length);
