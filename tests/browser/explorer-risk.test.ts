@@ -19,9 +19,12 @@ afterAll(async () => {
 });
 
 const panel = (page: Page) => page.getByRole("heading", { name: "Risk measures" }).locator("xpath=..");
+// each finished run numbers its result block, so a check never reads the previous run's table
+let runsSeen = 0;
 const compute = async (page: Page) => {
   await panel(page).getByRole("button", { name: "Compute risk measures" }).click();
-  await panel(page).locator("tbody tr").first().waitFor({ timeout: 60_000 });
+  runsSeen++;
+  await panel(page).locator(`[data-testid=risk-result][data-run="${runsSeen}"]`).waitFor({ timeout: 60_000 });
 };
 /** The value and the bound of the table row whose first cell matches `label`. */
 async function row(page: Page, label: RegExp): Promise<{ value: number; bound: number; text: string }> {
@@ -46,6 +49,7 @@ describe("explorer risk panel", () => {
       const org = await makeOrganization(`Brackwater Re ${width}`);
       const dev = await makePerson(`Ines Calder ${width}`, [{ id: org.id, role: "developer" }], `brackwater-dev-${width}`);
       const page = await session.browser.newPage();
+      runsSeen = 0;
       await page.setViewportSize({ width, height: width > 500 ? 900 : 844 });
       await signIn(page, dev.email, dev.password);
       await page.goto(`${baseUrl()}/explorer`);

@@ -94,6 +94,7 @@ export function RiskPanel({ modelText, preset }: { modelText: string; preset?: R
   const [periods, setPeriods] = useState("10, 100, 200");
   const [spec, setSpec] = useState(preset?.spec ?? "");
   const [busy, setBusy] = useState(false);
+  const [runs, setRuns] = useState(0);
   const [error, setError] = useState<string | null>(null);
   const [result, setResult] = useState<{ r: RiskResult; curve: { xs: number[]; r: RiskResult } | null; p: number[]; d: number[]; T: number[]; layer: number[] | null; tail: "upper" | "lower" } | null>(null);
   // a template brings its own tail, levels, retentions and spec limits (the tolerance stack its LSL/USL)
@@ -133,6 +134,8 @@ export function RiskPanel({ modelText, preset }: { modelText: string; preset?: R
     if (l.length) body.layerMean = [{ deductible: l[0], limit: l[1] }];
     if (s.length === 2) body.outside = { lsl: s[0], usl: s[1] };
     setBusy(true);
+    // no stale figures beside a new run's inputs
+    setResult(null);
     try {
       const r = await runRisk(body);
       // the exceedance curve from the median to the 1-in-10000 level
@@ -145,6 +148,7 @@ export function RiskPanel({ modelText, preset }: { modelText: string; preset?: R
         curve = { xs, r: await runRisk({ model, exceedance: xs }) };
       }
       setResult({ r, curve, p, d, T, layer: l.length ? l : null, tail });
+      setRuns((n) => n + 1);
     } catch (e) {
       setError((e as Error).message);
       setResult(null);
@@ -197,7 +201,7 @@ export function RiskPanel({ modelText, preset }: { modelText: string; preset?: R
       <FormError message={error} />
       {busy ? <Loading label="Computing…" /> : null}
       {result ? (
-        <div className="mt-3 space-y-3">
+        <div className="mt-3 space-y-3" data-testid="risk-result" data-run={runs}>
           <table className="w-full text-sm">
             <thead>
               <tr className="text-left text-ink-faint">
