@@ -108,8 +108,9 @@ describe("explorer risk panel", () => {
       const pts = ((await curve.locator("polyline").getAttribute("points")) ?? "").trim().split(/\s+/);
       expect(pts.length).toBeGreaterThan(20);
       const ys = pts.map((p) => Number(p.split(",")[1]));
-      // P(S > x) falls as x grows: y (downwards on screen) never decreases
-      ys.slice(1).forEach((y, i) => expect(y, `point ${i + 1} of ${pts.join(" ")}`).toBeGreaterThanOrEqual(ys[i] - 1e-9));
+      // P(S > x) falls as x grows: y (downwards on screen) never goes back up by more than a hair (inversion noise)
+      ys.slice(1).forEach((y, i) => expect(y, `point ${i + 1} of ${pts.join(" ")}`).toBeGreaterThanOrEqual(ys[i] - 0.5));
+      expect(ys[ys.length - 1] - ys[0], pts.join(" ")).toBeGreaterThan(100);
 
       const extra = await page.evaluate(() => document.documentElement.scrollWidth - document.documentElement.clientWidth);
       const wide = await page.evaluate(() =>
