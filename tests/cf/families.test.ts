@@ -4,7 +4,7 @@ import { afterAll, describe, expect, it } from "vitest";
 import { readFileSync } from "node:fs";
 import { compile, besselK, logBesselKScaled, lgamma, NUMERIC_CF_ABS_ERROR } from "@/lib/cf";
 import { close, closeC, record, worst } from "./model-assert";
-import { paretoAsymptotic, weibullAsymptotic, weibullSeries } from "@/lib/cf/families/numeric";
+import { paretoAsymptotic, weibullAsymptotic, weibullSeries } from "@/lib/cf/families/asymptotic";
 
 type Cx = [number, number];
 const cmul = (a: Cx, b: Cx): Cx => [a[0] * b[0] - a[1] * b[1], a[0] * b[1] + a[1] * b[0]];

@@ -1,10 +1,10 @@
-import { gamma as gammaFn, lgamma } from "./special";
+import { gamma as gammaFn } from "./special";
 import { cumulantList, rawToCumulants, type Node } from "../node";
-import { sortedAnchor, unwrapFrom } from "../complex";
 import { checkDeadline } from "../deadline";
 import { CfError } from "../errors";
 import { fromPhiDamped } from "../damped-cf";
-import type { EndpointSeries } from "../damped-kernels";
+import { fromPhi } from "./cf-quadrature";
+import { paretoExpansion, paretoSeries, weibullAsymptotic, weibullExpansion, weibullSeries } from "./asymptotic";
 
 /** Stated accuracy of the numerically computed CFs below (absolute error in phi). */
 export const NUMERIC_CF_ABS_ERROR = 1e-13;
@@ -30,28 +30,6 @@ function arithmetic(t: Float64Array): boolean {
   if (!(d > 0)) return false;
   for (let k = 1; k < K; k += Math.max(1, K >> 6)) if (Math.abs(t[k] - (t[0] + k * d)) > 1e-9 * t[k]) return false;
   return true;
-}
-
-/**
- * Shared driver: phi(t) for t > 0 from a per-t quadrature, phi(-t) = conj phi(t), phi(0) = 1; then log with the
- * imaginary part unwrapped along t (when t is sorted).
- */
-function fromPhi(t: Float64Array, re: Float64Array, im: Float64Array, phiPos: (x: number, out: Float64Array) => void) {
-  const tmp = new Float64Array(2);
-  for (let k = 0; k < t.length; k++) {
-    if ((k & 255) === 0) checkDeadline("cf-quadrature");
-    const x = t[k];
-    if (x === 0) {
-      re[k] = 0;
-      im[k] = 0;
-      continue;
-    }
-    phiPos(Math.abs(x), tmp);
-    re[k] = Math.log(Math.hypot(tmp[0], tmp[1]));
-    im[k] = (x < 0 ? -1 : 1) * Math.atan2(tmp[1], tmp[0]);
-  }
-  const anchor = sortedAnchor(t);
-  if (anchor >= 0) unwrapFrom(im, anchor);
 }
 
 /**
@@ -324,128 +302,6 @@ export function weibull(k: number, lambda: number): Node {
 }
 
 /**
- * Large-t expansion of the Weibull CF from the density's expansion at 0 (Watson's lemma for Fourier integrals,
- * Erdelyi, Asymptotic Expansions, ch. 2, recalled from memory):
- * phi(t) ~ sum_j (-1)^j / j! k Gamma(k(j+1)) (-i t lambda)^{-k(j+1)}, (-i a)^{-p} = a^{-p} e^{i pi p / 2}.
- * Used only when the terms fall below 1e-17 before they start to grow; returns false otherwise (then quadrature).
- */
-export interface WeibullSeries {
-  /** log of k Gamma(k(j+1)) / j! */
-  lc: Float64Array;
-  /** (-1)^j cos and sin of pi k (j+1) / 2 */
-  cr: Float64Array;
-  ci: Float64Array;
-  k: number;
-}
-
-export function weibullSeries(k: number, terms = 400): WeibullSeries {
-  const lc = new Float64Array(terms);
-  const cr = new Float64Array(terms);
-  const ci = new Float64Array(terms);
-  for (let j = 0; j < terms; j++) {
-    const p = k * (j + 1);
-    lc[j] = Math.log(k) + lgamma(p) - lgamma(j + 1);
-    const sign = j % 2 === 0 ? 1 : -1;
-    cr[j] = sign * Math.cos((Math.PI * p) / 2);
-    ci[j] = sign * Math.sin((Math.PI * p) / 2);
-  }
-  return { lc, cr, ci, k };
-}
-
-export function weibullAsymptotic(ser: WeibullSeries, a: number, out: Float64Array, rot = 0): boolean {
-  const kla = ser.k * Math.log(a);
-  let sr = 0;
-  let si = 0;
-  let prev = Infinity;
-  const { lc, cr, ci } = ser;
-  for (let j = 0; j < lc.length; j++) {
-    const m = Math.exp(lc[j] - (j + 1) * kla);
-    if (m > prev) return false;
-    if (rot === 0) {
-      sr += m * cr[j];
-      si += m * ci[j];
-    } else {
-      const ang = ser.k * (j + 1) * rot;
-      const c = Math.cos(ang);
-      const sn = Math.sin(ang);
-      sr += m * (cr[j] * c - ci[j] * sn);
-      si += m * (cr[j] * sn + ci[j] * c);
-    }
-    if (m < 1e-17) {
-      out[0] = sr;
-      out[1] = si;
-      return true;
-    }
-    prev = m;
-  }
-  return false;
-}
-
-/**
- * Large-t expansion of the Pareto CF from the density's expansion at xm (Watson's lemma):
- * phi(t) ~ e^{i tau} (i alpha / tau) sum_j (alpha+1)_j (-i/tau)^j, tau = xm t; the terms decrease while
- * j < tau - alpha - 1 and the smallest is about e^{-tau} tau^alpha; used when a term falls below 1e-16 first.
- */
-export function paretoAsymptotic(alpha: number, tau: number, out: Float64Array): boolean {
-  // sum_j c_j (-i)^j with c_j = (alpha+1)_j / tau^j
-  let c = 1;
-  let sr = 0;
-  let si = 0;
-  for (let j = 0; j < 10000; j++) {
-    switch (j % 4) {
-      case 0:
-        sr += c;
-        break;
-      case 1:
-        si -= c;
-        break;
-      case 2:
-        sr -= c;
-        break;
-      default:
-        si += c;
-    }
-    const next = (c * (alpha + 1 + j)) / tau;
-    if (next < 1e-16) break;
-    if (next > c) return false;
-    c = next;
-  }
-  // multiply by (i alpha / tau) e^{i tau}
-  const f = alpha / tau;
-  const ar = -f * si;
-  const ai = f * sr;
-  const cs = Math.cos(tau);
-  const sn = Math.sin(tau);
-  out[0] = ar * cs - ai * sn;
-  out[1] = ar * sn + ai * cs;
-  return true;
-}
-
-/**
- * sum_j (alpha+1)_j (-i / tau)^j at complex tau = r e^{i arg} (the series of paretoAsymptotic before its prefactor):
- * term j is (alpha+1)_j r^{-j} e^{-i j (pi/2 + arg)}; false when the terms grow before falling below 1e-16.
- */
-function paretoSeries(alpha: number, r: number, arg: number, out: Float64Array): boolean {
-  let c = 1;
-  let sr = 0;
-  let si = 0;
-  const step = -(Math.PI / 2 + arg);
-  for (let j = 0; j < 10000; j++) {
-    sr += c * Math.cos(j * step);
-    si += c * Math.sin(j * step);
-    const next = (c * (alpha + 1 + j)) / r;
-    if (next < 1e-16) {
-      out[0] = sr;
-      out[1] = si;
-      return true;
-    }
-    if (next > c) return false;
-    c = next;
-  }
-  return false;
-}
-
-/**
  * Pareto(alpha, xm): phi(t) = e^{i t xm} int_0^inf e^{i t s} alpha xm^alpha (xm + s)^{-alpha-1} ds. For t > 0 the path is
  * rotated to s = i r (Jordan's lemma), giving phi(t) = e^{i t xm} (i alpha / tau) int_0^inf e^{-u} (1 + i u/tau)^{-alpha-1} du,
  * tau = xm t; computed with u = e^v by the trapezoidal rule (strip |Im v| < pi/4, step for an error below 1e-16).
@@ -527,37 +383,3 @@ const raw = (m: number) => (alpha * xm ** m) / (alpha - m);
   };
 }
 
-/** exponents of the endpoint expansions kept (compounds subtract gamma kernels up to a lower order) */
-const EXPANSION_MAX = 8;
-
-/**
- * Weibull(k, lambda) density at 0: (k/lambda) (x/lambda)^{k-1} e^{-(x/lambda)^k} = sum_j (-1)^j/j! k lambda^{-k(j+1)}
- * x^{k(j+1)-1}; termwise Laplace transform (Watson's lemma): E e^{-sX} ~ sum_j (-1)^j/j! k Gamma(k(j+1))
- * lambda^{-k(j+1)} s^{-k(j+1)}.
- */
-export function weibullExpansion(k: number, lambda: number): EndpointSeries {
-  const exps: number[] = [];
-  const coefs: number[] = [];
-  for (let j = 0; k * (j + 1) <= EXPANSION_MAX; j++) {
-    const p = k * (j + 1);
-    exps.push(p);
-    coefs.push((j % 2 === 0 ? 1 : -1) * k * Math.exp(lgamma(p) - lgamma(j + 1) - p * Math.log(lambda)));
-  }
-  return { at: 0, exps, coefs };
-}
-
-/**
- * Pareto(alpha, xm) density at xm: (alpha/xm)(1 + y/xm)^{-alpha-1} = (alpha/xm) sum_j (-1)^j (alpha+1)_j/j! (y/xm)^j,
- * so E e^{-sX} ~ e^{-s xm} (alpha/xm) sum_j (-1)^j (alpha+1)_j xm^{-j} s^{-j-1} (Watson's lemma).
- */
-export function paretoExpansion(alpha: number, xm: number): EndpointSeries {
-  const exps: number[] = [];
-  const coefs: number[] = [];
-  let c = alpha / xm;
-  for (let j = 0; j + 1 <= EXPANSION_MAX; j++) {
-    exps.push(j + 1);
-    coefs.push(c);
-    c *= -(alpha + 1 + j) / xm;
-  }
-  return { at: xm, exps, coefs };
-}

@@ -1,0 +1,163 @@
+/**
+ * Expansions of the numerical severities' transforms for large frequency (Watson's lemma for Fourier and Laplace
+ * integrals: the density's expansion at the lower end of the support, termwise; Erdelyi, Asymptotic Expansions, ch. 2).
+ */
+import { lgamma } from "./special";
+import type { EndpointSeries } from "../damped-kernels";
+
+/**
+ * Large-t expansion of the Weibull CF from the density's expansion at 0 (Watson's lemma for Fourier integrals,
+ * Erdelyi, Asymptotic Expansions, ch. 2, recalled from memory):
+ * phi(t) ~ sum_j (-1)^j / j! k Gamma(k(j+1)) (-i t lambda)^{-k(j+1)}, (-i a)^{-p} = a^{-p} e^{i pi p / 2}.
+ * Used only when the terms fall below 1e-17 before they start to grow; returns false otherwise (then quadrature).
+ */
+export interface WeibullSeries {
+  /** log of k Gamma(k(j+1)) / j! */
+  lc: Float64Array;
+  /** (-1)^j cos and sin of pi k (j+1) / 2 */
+  cr: Float64Array;
+  ci: Float64Array;
+  k: number;
+}
+
+export function weibullSeries(k: number, terms = 400): WeibullSeries {
+  const lc = new Float64Array(terms);
+  const cr = new Float64Array(terms);
+  const ci = new Float64Array(terms);
+  for (let j = 0; j < terms; j++) {
+    const p = k * (j + 1);
+    lc[j] = Math.log(k) + lgamma(p) - lgamma(j + 1);
+    const sign = j % 2 === 0 ? 1 : -1;
+    cr[j] = sign * Math.cos((Math.PI * p) / 2);
+    ci[j] = sign * Math.sin((Math.PI * p) / 2);
+  }
+  return { lc, cr, ci, k };
+}
+
+export function weibullAsymptotic(ser: WeibullSeries, a: number, out: Float64Array, rot = 0): boolean {
+  const kla = ser.k * Math.log(a);
+  let sr = 0;
+  let si = 0;
+  let prev = Infinity;
+  const { lc, cr, ci } = ser;
+  for (let j = 0; j < lc.length; j++) {
+    const m = Math.exp(lc[j] - (j + 1) * kla);
+    if (m > prev) return false;
+    if (rot === 0) {
+      sr += m * cr[j];
+      si += m * ci[j];
+    } else {
+      const ang = ser.k * (j + 1) * rot;
+      const c = Math.cos(ang);
+      const sn = Math.sin(ang);
+      sr += m * (cr[j] * c - ci[j] * sn);
+      si += m * (cr[j] * sn + ci[j] * c);
+    }
+    if (m < 1e-17) {
+      out[0] = sr;
+      out[1] = si;
+      return true;
+    }
+    prev = m;
+  }
+  return false;
+}
+
+/**
+ * Large-t expansion of the Pareto CF from the density's expansion at xm (Watson's lemma):
+ * phi(t) ~ e^{i tau} (i alpha / tau) sum_j (alpha+1)_j (-i/tau)^j, tau = xm t; the terms decrease while
+ * j < tau - alpha - 1 and the smallest is about e^{-tau} tau^alpha; used when a term falls below 1e-16 first.
+ */
+export function paretoAsymptotic(alpha: number, tau: number, out: Float64Array): boolean {
+  // sum_j c_j (-i)^j with c_j = (alpha+1)_j / tau^j
+  let c = 1;
+  let sr = 0;
+  let si = 0;
+  for (let j = 0; j < 10000; j++) {
+    switch (j % 4) {
+      case 0:
+        sr += c;
+        break;
+      case 1:
+        si -= c;
+        break;
+      case 2:
+        sr -= c;
+        break;
+      default:
+        si += c;
+    }
+    const next = (c * (alpha + 1 + j)) / tau;
+    if (next < 1e-16) break;
+    if (next > c) return false;
+    c = next;
+  }
+  // multiply by (i alpha / tau) e^{i tau}
+  const f = alpha / tau;
+  const ar = -f * si;
+  const ai = f * sr;
+  const cs = Math.cos(tau);
+  const sn = Math.sin(tau);
+  out[0] = ar * cs - ai * sn;
+  out[1] = ar * sn + ai * cs;
+  return true;
+}
+
+/**
+ * sum_j (alpha+1)_j (-i / tau)^j at complex tau = r e^{i arg} (the series of paretoAsymptotic before its prefactor):
+ * term j is (alpha+1)_j r^{-j} e^{-i j (pi/2 + arg)}; false when the terms grow before falling below 1e-16.
+ */
+export function paretoSeries(alpha: number, r: number, arg: number, out: Float64Array): boolean {
+  let c = 1;
+  let sr = 0;
+  let si = 0;
+  const step = -(Math.PI / 2 + arg);
+  for (let j = 0; j < 10000; j++) {
+    sr += c * Math.cos(j * step);
+    si += c * Math.sin(j * step);
+    const next = (c * (alpha + 1 + j)) / r;
+    if (next < 1e-16) {
+      out[0] = sr;
+      out[1] = si;
+      return true;
+    }
+    if (next > c) return false;
+    c = next;
+  }
+  return false;
+}
+
+/** exponents of the endpoint expansions kept (compounds subtract gamma kernels up to a lower order) */
+const EXPANSION_MAX = 8;
+
+/**
+ * Weibull(k, lambda) density at 0: (k/lambda) (x/lambda)^{k-1} e^{-(x/lambda)^k} = sum_j (-1)^j/j! k lambda^{-k(j+1)}
+ * x^{k(j+1)-1}; termwise Laplace transform (Watson's lemma): E e^{-sX} ~ sum_j (-1)^j/j! k Gamma(k(j+1))
+ * lambda^{-k(j+1)} s^{-k(j+1)}.
+ */
+export function weibullExpansion(k: number, lambda: number): EndpointSeries {
+  const exps: number[] = [];
+  const coefs: number[] = [];
+  for (let j = 0; k * (j + 1) <= EXPANSION_MAX; j++) {
+    const p = k * (j + 1);
+    exps.push(p);
+    coefs.push((j % 2 === 0 ? 1 : -1) * k * Math.exp(lgamma(p) - lgamma(j + 1) - p * Math.log(lambda)));
+  }
+  return { at: 0, exps, coefs };
+}
+
+/**
+ * Pareto(alpha, xm) density at xm: (alpha/xm)(1 + y/xm)^{-alpha-1} = (alpha/xm) sum_j (-1)^j (alpha+1)_j/j! (y/xm)^j,
+ * so E e^{-sX} ~ e^{-s xm} (alpha/xm) sum_j (-1)^j (alpha+1)_j xm^{-j} s^{-j-1} (Watson's lemma).
+ */
+export function paretoExpansion(alpha: number, xm: number): EndpointSeries {
+  const exps: number[] = [];
+  const coefs: number[] = [];
+  let c = alpha / xm;
+  for (let j = 0; j + 1 <= EXPANSION_MAX; j++) {
+    exps.push(j + 1);
+    coefs.push(c);
+    c *= -(alpha + 1 + j) / xm;
+  }
+  return { at: xm, exps, coefs };
+}
