@@ -1,4 +1,6 @@
 // Exact cumulants and moments against handbook formulas, through every operator; existence flags.
+import { readFileSync } from "node:fs";
+import { join } from "node:path";
 import { afterAll, describe, expect, it } from "vitest";
 import { compile, moments, CfError, MAX_MOMENT_ORDER } from "@/lib/cf";
 import { close, record, worst } from "./model-assert";
@@ -17,8 +19,16 @@ interface Case {
 }
 
 const w = Math.exp(0.36); // lognormal sigma = 0.6
-const vgS = 0.3, vgN = 0.4, vgT = -0.2;
-const nigA = 2, nigB = -0.5, nigD = 1.2, nigG = Math.sqrt(nigA * nigA - nigB * nigB);
+interface Generated {
+  model: unknown;
+  source: string;
+  mean: number;
+  variance: number;
+  skewness: number;
+  excessKurtosis: number;
+  thirdCentral: number;
+}
+const gen = JSON.parse(readFileSync(join(__dirname, "../fixtures/cumulants/cumulants.json"), "utf8")) as { cases: Record<string, Generated> };
 
 const cases: Case[] = [
   { name: "normal", model: { family: "normal", mu: 2, sigma: 3 }, source: "JKB vol. 1, ch. 13", mean: 2, variance: 9, skewness: 0, excessKurtosis: 0 },
@@ -41,24 +51,12 @@ const cases: Case[] = [
   { name: "weibull shape 2 (Rayleigh)", model: { family: "weibull", shape: 2, scale: 2 }, source: "JKB vol. 1, ch. 21 with Gamma(3/2) = sqrt(pi)/2", mean: Math.sqrt(Math.PI), variance: 4 * (1 - Math.PI / 4) },
   { name: "weibull shape 1/2", model: { family: "weibull", shape: 0.5, scale: 3 }, source: "JKB vol. 1, ch. 21 with Gamma(3) = 2, Gamma(5) = 24", mean: 6, variance: 9 * 20 },
   { name: "pareto alpha=5", model: { family: "pareto", alpha: 5, xm: 2 }, source: "JKB vol. 1, ch. 20", mean: 10 / 4, variance: (4 * 5) / (16 * 3) },
-  {
-    name: "variance_gamma",
-    model: { family: "variance_gamma", sigma: vgS, nu: vgN, theta: vgT, loc: 0.1 },
-    source: "Madan, Carr & Chang (1998) sec. 2 (kappa_3 = 2 theta^3 nu^2 + 3 sigma^2 theta nu, kappa_4 = 3 sigma^4 nu + 12 sigma^2 theta^2 nu^2 + 6 theta^4 nu^3; recalled from memory)",
-    mean: 0.1 + vgT,
-    variance: vgS ** 2 + vgT ** 2 * vgN,
-    skewness: (2 * vgT ** 3 * vgN ** 2 + 3 * vgS ** 2 * vgT * vgN) / (vgS ** 2 + vgT ** 2 * vgN) ** 1.5,
-    excessKurtosis: (3 * vgS ** 4 * vgN + 12 * vgS ** 2 * vgT ** 2 * vgN ** 2 + 6 * vgT ** 4 * vgN ** 3) / (vgS ** 2 + vgT ** 2 * vgN) ** 2,
-  },
-  {
-    name: "nig",
-    model: { family: "nig", alpha: nigA, beta: nigB, delta: nigD, mu: 0.3 },
-    source: "Barndorff-Nielsen (1997) sec. 2 (kappa_2 = delta alpha^2/gamma^3, kappa_3 = 3 delta alpha^2 beta/gamma^5, kappa_4 = 3 delta alpha^2 (alpha^2 + 4 beta^2)/gamma^7; recalled from memory)",
-    mean: 0.3 + (nigD * nigB) / nigG,
-    variance: (nigD * nigA * nigA) / nigG ** 3,
-    skewness: ((3 * nigD * nigA * nigA * nigB) / nigG ** 5) / ((nigD * nigA * nigA) / nigG ** 3) ** 1.5,
-    excessKurtosis: ((3 * nigD * nigA * nigA * (nigA * nigA + 4 * nigB * nigB)) / nigG ** 7) / ((nigD * nigA * nigA) / nigG ** 3) ** 2,
-  },
+  // variance gamma and NIG: cumulants by differentiating their published moment generating functions in mpmath
+  // (tests/fixtures/cumulants/generate.py)
+  ...(["variance_gamma", "nig"] as const).map((name) => {
+    const c = gen.cases[name];
+    return { name, model: c.model, source: `${c.source} (tests/fixtures/cumulants)`, mean: c.mean, variance: c.variance, skewness: c.skewness, excessKurtosis: c.excessKurtosis };
+  }),
   { name: "poisson", model: { family: "poisson", lambda: 3.5 }, source: "JKK ch. 4", mean: 3.5, variance: 3.5, skewness: 1 / Math.sqrt(3.5), excessKurtosis: 1 / 3.5 },
   {
     name: "binomial",
@@ -149,17 +147,12 @@ describe("high orders (to 12)", () => {
 });
 
 describe("operators", () => {
-  it("compound moments: E S = E N E X, Var S = E N Var X + Var N (E X)^2 (Loss Models, aggregate loss models chapter; recalled from memory)", () => {
-    const count = { family: "negative_binomial", r: 3, p: 0.4 };
-    const each = { family: "gamma", shape: 2, rate: 0.5 };
-    const EN = (3 * 0.6) / 0.4, VN = (3 * 0.6) / 0.16, EX = 4, VX = 8;
-    const m = moments({ compound: { count, each } }, 3);
-    close(m.mean as number, EN * EX, { rel: 1e-14 }, "E S");
-    close(m.variance as number, EN * VX + VN * EX * EX, { rel: 1e-14 }, "Var S");
-    // third central moment: E N mu3_X + 3 Var N E X Var X + mu3_N (E X)^3 (Loss Models, exercise; recalled from memory)
-    const mu3X = 2 * 2 / 0.5 ** 3;
-    const mu3N = (3 * 0.6 * (1 + 0.6)) / 0.4 ** 3;
-    close(m.central[2] as number, EN * mu3X + 3 * VN * EX * VX + mu3N * EX ** 3, { rel: 1e-13 }, "third central moment");
+  it("compound moments of NB(3, 0.4)-gamma(2, 0.5): mean, variance, third central moment from K_N(K_X(u)) differentiated in mpmath (tests/fixtures/cumulants)", () => {
+    const c = gen.cases.compound_nb_gamma;
+    const m = moments(c.model as Parameters<typeof moments>[0], 3);
+    close(m.mean as number, c.mean, { rel: 1e-14 }, "E S");
+    close(m.variance as number, c.variance, { rel: 1e-14 }, "Var S");
+    close(m.central[2] as number, c.thirdCentral, { rel: 1e-13 }, "third central moment");
   });
   it("sum, scale, shift, repeat: cumulants add, scale by a^n, shift moves kappa_1, repeat multiplies (common practice)", () => {
     const X = { family: "gamma", shape: 2, rate: 3 };
