@@ -284,8 +284,9 @@ export function besselI1(z: number): number {
 
 /**
  * Compound Poisson(lambda) with Exponential(1) claims: density of the continuous part
- * f(x) = e^{-lambda - x} sqrt(lambda / x) I1(2 sqrt(lambda x)), x > 0 (recalled from memory; it is the Erlang
- * mixture sum_n P(N=n) Erlang(n,1) density summed in closed form, cross-checked in the tests),
+ * f(x) = e^{-lambda - x} sqrt(lambda / x) I1(2 sqrt(lambda x)), x > 0: the Erlang mixture
+ * sum_{n>=1} e^{-lambda} lambda^n/n! x^{n-1} e^{-x}/(n-1)! = e^{-lambda-x} sum_{m>=0} lambda^{m+1} x^m / (m! (m+1)!) summed by the
+ * series I1(z) = sum_m (z/2)^{2m+1} / (m! (m+1)!) (Abramowitz & Stegun 9.6.10); cpExpPdfSeries sums the mixture itself,
  * and sf(x) = sum_{n>=1} P(N=n) e^{-x} sum_{k<n} x^k/k! (Erlang mixture; Klugman, Panjer & Willmot,
  * Loss Models, compound distributions with exponential severity).
  */

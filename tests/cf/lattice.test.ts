@@ -192,8 +192,8 @@ describe("large convolutions (FFT with zero padding)", () => {
       const b = Float64Array.from({ length: lb }, rnd);
       const d = convolveDirect(a, b);
       const f = convolveFft(a, b);
-      // FFT convolution error bound ~ c eps log2 N ||a||_2 ||b||_2 (Higham, Accuracy and Stability of Numerical
-      // Algorithms, sec. 24.1; recalled from memory), c = 5
+      // tolerance of the form c eps log2 N ||a||_2 ||b||_2, the usual shape of the FFT convolution's rounding error
+      // (common practice), with c = 5
       const N = 2 ** Math.ceil(Math.log2(la + lb - 1));
       const norm = (x: Float64Array) => Math.sqrt(x.reduce((s, v) => s + v * v, 0));
       const bound = 5 * 2 ** -53 * Math.max(1, Math.log2(N)) * norm(a) * norm(b);
@@ -221,7 +221,7 @@ describe("Panjer recursion and compound tables", () => {
     return p;
   };
 
-  it("compound Poisson with geometric severity on 1, 2, ... vs the Polya-Aeppli closed form (JKK ch. 9, recalled from memory)", () => {
+  it("compound Poisson with geometric severity on 1, 2, ... vs the Polya-Aeppli closed form (k claims on 1, 2, ... sum to n in C(n-1, k-1) ways, each of probability (1-th)^k th^{n-k}; common practice)", () => {
     const lam = 2.5;
     const th = 0.4;
     // severity P(X = j) = (1 - th) th^{j-1}, j >= 1

@@ -175,7 +175,7 @@ describe("quantiles and expected shortfall of continuous laws", () => {
     c.done();
   });
 
-  it("pareto(2.5, xm 1): q_p = xm (1-p)^{-1/alpha}, ES = alpha q_p/(alpha-1) (closed form: integrate x f(x) over the Pareto tail; the pair also appears in Loss Models, appendix A, recalled from memory)", () => {
+  it("pareto(2.5, xm 1): q_p = xm (1-p)^{-1/alpha}, ES = alpha q_p/(alpha-1) (closed forms: S(x) = (xm/x)^alpha inverted, and ES = (1/(1-p)) int_q^inf x alpha xm^alpha x^{-alpha-1} dx integrated; JKB vol. 1, ch. 20 for the law)", () => {
     const ps = [0.01, 0.5, 0.99];
     const r = quantiles(compile({ family: "pareto", alpha: 2.5, xm: 1 } as Model), ps, { expectedShortfall: true });
     const c = new Checker();
