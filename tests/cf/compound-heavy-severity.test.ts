@@ -74,6 +74,8 @@ function check(c: Case, maxLevel: number) {
   const levels = c.levels.filter((l) => l.p <= maxLevel);
   const q = quantiles(m, levels.map((l) => l.p), { expectedShortfall: true });
   expect(q.diagnostics.method, name).toMatch(/damped/);
+  // the answer says which method was used, kernels included
+  expect(q.diagnostics.notes.some((n) => /gamma kernels/.test(n)), `${name}: notes ${JSON.stringify(q.diagnostics.notes)}`).toBe(true);
   levels.forEach((l, i) => {
     const qe = q.diagnostics.quantileError[i];
     expect(Number.isFinite(qe), `${name} p=${l.p}: quantile bound ${qe}`).toBe(true);

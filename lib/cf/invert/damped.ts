@@ -240,6 +240,11 @@ export function dampedSetup(model: CompiledModel, atoms: Atom[], R: number, o: D
     `damped inversion (exponential damping beta = ${beta.toPrecision(4)} before the transform, Abate & Whitt 1992; ` +
       `Grubel & Hermesmeier 1999): period ${T.toPrecision(4)} from ${lo}, ${K} frequency terms, atoms separated exactly`,
   );
+  if (ks.length)
+    notes.push(
+      `${ks.length} gamma kernels matching the endpoint expansion of the transform (Watson's lemma) taken out before the ` +
+        `inversion and added back in closed form (regularised incomplete gamma), so the remainder decays fast`,
+    );
   return {
     lo,
     beta,
