@@ -164,16 +164,17 @@ export interface Work {
 export function computeFor(who: string, plan: string, work: Work, opts: { budgetMs?: number; advice?: string[]; signal?: AbortSignal } = {}): Compute {
   return async (op, body) => {
     const p = planOf(plan);
-    const release = acquireSlot(who, p.concurrentComputations);
+    const budgetMs = opts.budgetMs ?? p.computeBudgetMs;
+    const release = await acquireSlot(who, p.concurrentComputations, budgetMs);
     work.computed = true;
     try {
       const r = await runCompute(
-        { op, body, budgetMs: opts.budgetMs ?? p.computeBudgetMs },
+        { op, body, budgetMs },
         { onWork: (ms) => (work.computeMs += ms), advice: opts.advice, signal: opts.signal },
       );
       return r.result;
     } finally {
-      release();
+      await release();
     }
   };
 }

@@ -5,7 +5,7 @@
  * Money is in integer minor units of `CURRENCY` (pence), never floats. `monthlyUnits` is the hard monthly cap the
  * limiter enforces; `includedUnits` are covered by the fee and each further million costs `overagePerMillionMinor`
  * (pro rata to the unit, rounded half up to a whole minor unit once per invoice). The engine limits: the deadline of
- * one synchronous computation, how many computations one key may have running at once (per server instance), and
+ * one synchronous computation, how many computations one key may have running at once (across server instances), and
  * the deadline of one queued job.
  */
 export const CURRENCY = "GBP" as const;

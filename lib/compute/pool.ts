@@ -70,7 +70,8 @@ export function budgetExceeded(budgetMs: number, elapsedMs: number, work: { stag
   return new ApiError("compute_budget_exceeded", `The computation did not finish within its deadline of ${budgetMs} ms and was stopped.`, {
     extra: {
       budgetMs,
-      elapsedMs: Math.round(elapsedMs),
+      // rounded up, as the units are: a client recomputes max(1, ceil(elapsedMs / 10)) and gets the units charged
+      elapsedMs: Math.ceil(elapsedMs),
       workDone: work ? { lastStage: work.stage, loopTurns: work.checks } : { lastStage: null, loopTurns: null, stoppedBy: "thread terminated" },
       advice,
     },

@@ -75,8 +75,10 @@ export default function LimitsGuide() {
       </p>
       <p>
         A key (and, in the portal&rsquo;s explorer, a user) may have the plan&rsquo;s number of computations running or waiting
-        at once on each server instance; one more answers <code>429</code> with type <code>too_many_concurrent</code> and{" "}
-        <code>Retry-After: 1</code>. When every thread is busy and the wait queue is full, the answer is <code>503</code> with{" "}
+        at once, counted across every server instance (each computation holds a lease in Redis that it gives back when it ends,
+        and that expires by itself 30 s after the computation&rsquo;s deadline should its instance stop); one more answers{" "}
+        <code>429</code> with type <code>too_many_concurrent</code> and <code>Retry-After: 1</code>. While Redis does not
+        answer, each instance keeps the cap on its own. When every thread is busy and the wait queue is full, the answer is <code>503</code> with{" "}
         <code>Retry-After</code>.
       </p>
       <h2>Rate-limit headers</h2>
