@@ -210,6 +210,16 @@ try {
     const rs = rounds.filter((r) => r.threads === k);
     return rs.reduce((a, r) => a + r.n, 0) / rs.reduce((a, r) => a + r.n / r.rps, 0);
   };
+  // With the kernel's autogroup scheduling on, busy cores are shared between sessions, not threads: while other
+  // sessions keep the cores busy, this server's session gets its share whatever its thread count, and a second
+  // compute thread cannot raise it ("cores busy" above stays flat). The ratio means something on a quiet machine.
+  let autogroup = "unknown";
+  try {
+    autogroup = readFileSync("/proc/sys/kernel/sched_autogroup_enabled", "utf8").trim() === "1" ? "on" : "off";
+  } catch {
+    /* not Linux */
+  }
+  log(`kernel autogroup scheduling: ${autogroup}`);
   log(`CPU-bound POST /api/v1/quantiles (1000 levels with shortfall, 4 connections, 2 x 24 requests each): 1 thread ${rate(1).toFixed(2)} req/s, 2 threads ${rate(2).toFixed(2)} req/s, ratio ${(rate(2) / rate(1)).toFixed(2)}x; load average ${loadavg().map((x) => x.toFixed(2)).join(" ")} on ${availableParallelism()} cores`);
 
   // 3. jobs with two worker processes
