@@ -227,7 +227,8 @@ function latticeResult(model: CompiledModel, origin: number, step: number, optio
     // the table itself, trimmed of negligible ends
     let i0 = 0;
     let i1 = n0 - 1;
-    const cut = Math.min(sol.errorPmf, 1e-300);
+    // only cells that are empty (an exact table) or whose mass underflows are trimmed; the rest are answered
+    const cut = sol.errorPmf > 0 ? 1e-300 : 0;
     const [slo, shi] = model.support;
     while (i0 < i1 && (t.p[i0] <= cut || t.origin + i0 * t.step < slo - 1e-9 * t.step)) i0++;
     while (i1 > i0 && (t.p[i1] <= cut || t.origin + i1 * t.step > shi + 1e-9 * t.step)) i1--;
