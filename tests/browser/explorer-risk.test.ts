@@ -41,6 +41,7 @@ function within(shown: { value: number; bound: number; text: string }, expected:
   expect(Number.isFinite(shown.value) && Number.isFinite(shown.bound), `${what}: ${shown.text}`).toBe(true);
   expect(diff, `${what}: shown ${shown.text}, expected ${expected}, difference ${diff}, tolerance ${tol}`).toBeLessThanOrEqual(tol);
 }
+// a template's risk fields arrive in an effect after the click, so their checks poll
 const setModel = (page: Page, model: unknown) => page.getByLabel("Model (JSON)").fill(JSON.stringify(model));
 
 describe("explorer risk panel", () => {
@@ -57,7 +58,7 @@ describe("explorer risk panel", () => {
 
       // Tolerance stack: the template brings its spec limits, so the first run shows ppm outside them at once.
       await page.getByRole("button", { name: /Tolerance stack/ }).click();
-      await expect(panel(page).getByLabel(/Spec limits/).inputValue()).resolves.toBe("77.38, 77.62");
+      await expect.poll(() => panel(page).getByLabel(/Spec limits/).inputValue()).toBe("77.38, 77.62");
       await compute(page);
       const ppm = await row(page, /outside spec limits/);
       expect(ppm.value, ppm.text).toBeGreaterThan(0);
@@ -74,7 +75,7 @@ describe("explorer risk panel", () => {
       // Lower tail of a daily return, normal(0.0005, 0.01): VaR_0.01 = mu + sigma z_0.01, ES_0.01 = mu - sigma phi(z)/0.01
       // (common practice; z_0.01 = -2.3263478740408408 and phi(z_0.01) = 0.026652142203457912 from scipy.stats.norm)
       await page.getByRole("button", { name: /Stable law/ }).click();
-      await expect(panel(page).getByLabel("lower (returns, p near 0)").isChecked()).resolves.toBe(true);
+      await expect.poll(() => panel(page).getByLabel("lower (returns, p near 0)").isChecked()).toBe(true);
       await setModel(page, { family: "normal", mu: 0.0005, sigma: 0.01 });
       await panel(page).getByLabel("VaR and ES levels").fill("0.01");
       await compute(page);
@@ -88,7 +89,7 @@ describe("explorer risk panel", () => {
 
       // Aggregate claims: stop-loss of compound Poisson(3) with exponential(0.5) claims against the Erlang mixture (fixture)
       await page.getByRole("button", { name: /Aggregate claims/ }).click();
-      await expect(panel(page).getByLabel("upper (losses, p near 1)").isChecked()).resolves.toBe(true);
+      await expect.poll(() => panel(page).getByLabel("upper (losses, p near 1)").isChecked()).toBe(true);
       const cp = ref.compoundPoissonExponential[0];
       await setModel(page, cp.model);
       await panel(page).getByLabel("Stop-loss retentions").fill(cp.stopLoss.map((x: { d: number }) => x.d).slice(0, 3).join(", "));
