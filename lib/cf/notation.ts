@@ -402,7 +402,7 @@ export const OPERATOR_SPECS = [
     guide: "One claim's layer: c min(max(X − d, 0), l) (deductible 0, limit unlimited, share 1 when left out). X is a named law whose cdf the engine evaluates (every family on a half line or an interval: exponential, gamma, chi_squared, lognormal, pareto, weibull, lomax, generalized_pareto, burr, loglogistic, inverse_gaussian, inverse_gamma, beta, pert, triangular, uniform, truncated_normal; also normal), a lattice or a sample; other laws (cauchy, laplace, logistic, student_t, stable, variance_gamma, nig, sums, compounds) are refused with a 422 that lists the accepted ones. The law has atoms at 0 and at c l; inside a compound every claim is rounded down and rounded up onto a lattice that holds both atoms exactly, the two compounds bracket the law (and every quantile, stop-loss, layer mean and expected shortfall of it), and /api/v1/risk answers the middle of the bracket with half its width as the error bound.",
     name: "LayerNode",
     description:
-      "per-claim layer: share * min(max(X - deductible, 0), limit) for one claim X (deductible 0, limit unlimited, share 1 when left out); X a named law with a closed-form cdf, a lattice or a sample",
+      "per-claim layer: share * min(max(X - deductible, 0), limit) for one claim X (deductible 0, limit unlimited, share 1 when left out); X a named law whose cdf the engine evaluates in closed form or by a special function (the accepted families are listed in the model guide), a lattice or a sample",
     zod: (model) =>
       z
         .object({
@@ -448,7 +448,7 @@ export const OPERATOR_SPECS = [
         add(
           ctx,
           [...path, "of"],
-          `A per-claim layer applies to a named law with a closed-form cdf (${FAMILY_NAMES.filter((f) => LAYERABLE.has(f)).join(", ")}) or to a lattice or sample law; wrap sums and compounds the other way round (layer each claim, then compound).`,
+          `A per-claim layer applies to a named law whose cdf is evaluated in closed form or by a special function (${FAMILY_NAMES.filter((f) => LAYERABLE.has(f)).join(", ")}) or to a lattice or sample law; wrap sums and compounds the other way round (layer each claim, then compound).`,
         );
       return ctx.issues.length === before && !ctx.limit && of ? { layer: out, of } : null;
     },
