@@ -1,18 +1,8 @@
 import type { Atom, CompiledModel } from "../types";
 import { DAMPED_BUDGET, dampedAt, dampedGrid, dampedPlan, dampedSetup, gridPeriod } from "./damped";
-import type { Request } from "./shared";
+import { atomMass, type Request } from "./shared";
 import type { DensityResult } from "./types";
 
-/** atoms at or below x and above x */
-function atomSplit(atoms: Atom[], x: number): { below: number; above: number } {
-  let below = 0;
-  let above = 0;
-  for (const a of atoms) {
-    if (a.x <= x) below += a.p;
-    else above += a.p;
-  }
-  return { below, above };
-}
 
 /**
  * density() for aggregate laws bounded below (compounds and their sums, scales, shifts and mixtures): the damped
@@ -41,7 +31,7 @@ export function dampedDensity(
   let gridSize: number;
   const Mc = Math.max(1 - atoms.reduce((s, a) => s + a.p, 0), 0);
   const put = (i: number, Fc: number, fc: number) => {
-    const m = atomSplit(atoms, xs[i]);
+    const m = atomMass(atoms, xs[i]);
     cdf[i] = Math.min(1, m.below + Fc);
     sf[i] = Math.max(0, m.above + (Mc - Fc));
     if (pdf) pdf[i] = fc;

@@ -7,6 +7,7 @@ import { latticeCumulative, solveLattice } from "./lattice";
 import { dampable } from "./damped";
 import { dampedDensity } from "./density-damped";
 import { bulkWindow, lawShape } from "./range";
+import { atomMass } from "./shared";
 import type { DensityOptions, DensityResult, InversionDiagnostics } from "./types";
 
 export const DEFAULT_TOLERANCE = 1e-10;
@@ -152,17 +153,6 @@ function gridX(from: number, dx: number, count: number): Float64Array {
   const x = new Float64Array(count);
   for (let i = 0; i < count; i++) x[i] = from + i * dx;
   return x;
-}
-
-/** Atom mass at or below x, and above x. */
-export function atomMass(atoms: Atom[], x: number): { below: number; above: number } {
-  let below = 0;
-  let above = 0;
-  for (const a of atoms) {
-    if (a.x <= x) below += a.p;
-    else above += a.p;
-  }
-  return { below, above };
 }
 
 function pointsOf(options: DensityOptions, fallback: Float64Array): Float64Array {

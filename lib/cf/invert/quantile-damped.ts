@@ -1,6 +1,7 @@
 import type { Atom, CompiledModel } from "../types";
 import { DAMPED_BUDGET, MAX_K, dampedAt, dampedSetup, type DampedSolution } from "./damped";
 import type { QuantileOptions, QuantileResult } from "./quantile";
+import { atomMass } from "./shared";
 import { solveLevels, type Evaluator } from "./solve-levels";
 
 /** default cdf target of the quantile search (the request's tolerance when given) */
@@ -27,15 +28,7 @@ export function dampedQuantiles(model: CompiledModel, atoms: Atom[], p: Float64A
   if (Number.isFinite(model.tails.right)) R = Math.max(R, lo + (model.location - lo + model.scale) * Math.pow(2 / tail, 1 / Math.max(model.tails.right, 0.1)));
   if (!(R > lo)) R = lo + Math.max(model.scale, 1e-300);
   const Mc = Math.max(1 - atoms.reduce((s, a) => s + a.p, 0), 0);
-  const split = (x: number) => {
-    let below = 0;
-    let above = 0;
-    for (const a of atoms) {
-      if (a.x <= x) below += a.p;
-      else above += a.p;
-    }
-    return { below, above };
-  };
+  const split = (x: number) => atomMass(atoms, x);
   // locate R with cheap loose inversions (growth 1.5), then invert once at the tolerance
   const loose = Math.max(tol, Math.min(1e-7, tail / 100));
   // kernels taken out (pareto, weibull severities): what is left decays fast, so a long range is worth its terms

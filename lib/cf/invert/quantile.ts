@@ -3,7 +3,7 @@ import type { DirectMethod } from "../direct/types";
 import { directQuantiles } from "../direct/answer";
 import type { Atom, CompiledModel } from "../types";
 import { evalLadder, growLadder, heavyLadder, invertContinuous } from "./continuous";
-import { atomMass } from "./density";
+import { atomMass } from "./shared";
 import { kernelAt } from "./part";
 import { sumPointwise } from "./pointwise";
 import { lawShape } from "./range";

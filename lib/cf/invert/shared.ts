@@ -1,4 +1,5 @@
 import { nextPowerOfTwo } from "../fftplan";
+import type { Atom } from "../types";
 import { sumOnGrid } from "./fft";
 import type { Envelope, Nodes } from "./nodes";
 import { kernelAt, type ContinuousPart } from "./part";
@@ -192,4 +193,15 @@ export function maxDiff(u: Float64Array, v: Float64Array): number {
     if (d > m || Number.isNaN(d)) m = Number.isNaN(d) ? Infinity : d;
   }
   return m;
+}
+
+/** Atom mass at or below x, and above x. */
+export function atomMass(atoms: Atom[], x: number): { below: number; above: number } {
+  let below = 0;
+  let above = 0;
+  for (const a of atoms) {
+    if (a.x <= x) below += a.p;
+    else above += a.p;
+  }
+  return { below, above };
 }
