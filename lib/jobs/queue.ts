@@ -1,5 +1,6 @@
 import { randomBytes } from "node:crypto";
 import { Queue, type Job } from "bullmq";
+import { PROBLEMS, problemType } from "@/lib/api/errors";
 import type { OperationName } from "@/lib/compute/types";
 
 /**
@@ -106,7 +107,7 @@ export async function getJobView(id: string, organizationId: number): Promise<Jo
     if (outcome && !outcome.ok) Object.assign(view, { problem: outcome.problem, computeMs: outcome.computeMs, computeUnits: outcome.computeUnits });
     else {
       console.error(`[sumfold] job ${id} failed in its worker: ${job.failedReason}`);
-      view.problem = { type: "/docs/errors#internal", title: "Something went wrong on our side", status: 500, detail: "The job's worker stopped unexpectedly; submit it again." };
+      view.problem = { type: problemType("internal"), title: PROBLEMS.internal.title, status: 500, detail: "The job's worker stopped unexpectedly; submit it again." };
     }
   }
   return view;

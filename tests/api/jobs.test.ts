@@ -13,6 +13,7 @@ import * as exploreJob from "@/app/api/portal/explore/jobs/[id]/route";
 import { cookieFor, makeTeam } from "../portal/support";
 import { flushUsage } from "@/lib/api/metering";
 import { jobsQueue } from "@/lib/jobs/queue";
+import { JOB_RESULTS, JobResponse } from "@/lib/api/schemas/jobs";
 import { apiServer, orgWithKey } from "../support/api";
 import { routeServer, type RouteModule } from "../support/route-server";
 
@@ -95,6 +96,9 @@ describe("jobs", () => {
       const direct = await supertest(sync).post(`/api/v1/${s.op}`).set("authorization", `Bearer ${o.secret}`).set("content-type", "application/json").send(JSON.stringify(s.body));
       expect(direct.status, `${s.op}: ${JSON.stringify(direct.body).slice(0, 300)}`).toBe(200);
       expect(done.body.result).toEqual(JSON.parse(JSON.stringify(strip(direct.body))));
+      // the published schemas describe the job exactly: the whole view, and its result by the operation's own schema
+      expect(JobResponse.parse(done.body)).toEqual(done.body);
+      expect(JOB_RESULTS[s.op].parse(done.body.result)).toEqual(done.body.result);
       expect(done.body.computeUnits).toBe(Math.max(1, Math.ceil(done.body.computeMs / 10)));
       expect(Date.parse(done.body.expiresAt) - Date.parse(done.body.finishedAt)).toBe(24 * 3600 * 1000);
       workersSeen.add((await jobsQueue().getJob(s.id))!.returnvalue.worker);
@@ -136,6 +140,7 @@ describe("jobs", () => {
     expect(done.body.problem.status).toBe(422);
     expect(done.body.problem.type).toMatch(/#validation$/);
     expect(done.body.problem.errors[0].pointer).toBe("/grid");
+    expect(JobResponse.parse(done.body)).toEqual(done.body);
   }, 60_000);
 
   it("the explorer's heavy runs go through the same queue: a job of its own organisation, the explorer's own answer", async () => {
