@@ -48,28 +48,9 @@ export function unknownKeys(ctx: Ctx, o: Record<string, unknown>, allowed: reado
   }
 }
 
-/** Named laws the per-claim layer integrates against (those whose pdf and cdf the engine evaluates: closed forms,
- *  the normal cdf, the incomplete gamma and beta functions). */
-export const LAYERABLE: ReadonlySet<string> = new Set([
-  "normal",
-  "uniform",
-  "exponential",
-  "gamma",
-  "chi_squared",
-  "lognormal",
-  "pareto",
-  "weibull",
-  "lomax",
-  "generalized_pareto",
-  "burr",
-  "loglogistic",
-  "inverse_gaussian",
-  "inverse_gamma",
-  "triangular",
-  "truncated_normal",
-  "beta",
-  "pert",
-]);
+/** Named laws the per-claim layer integrates against: the families whose spec says so (their built node carries the
+ *  pdf and cdf the layer needs). */
+export const LAYERABLE: ReadonlySet<string> = new Set(FAMILY_NAMES.filter((f) => FAMILY_SPECS[f].layerable));
 
 function layerable(m: Model): boolean {
   if ("family" in m) return LAYERABLE.has(m.family);

@@ -5,6 +5,7 @@
 import { afterAll, describe, expect, it } from "vitest";
 import { readFileSync } from "node:fs";
 import { validateModel } from "@/lib/cf";
+import { FAMILY_NAMES, FAMILY_SPECS } from "@/lib/cf/families/spec";
 import { riskMeasures } from "@/lib/cf/risk";
 import { record, worst } from "./model-assert";
 
@@ -112,6 +113,10 @@ describe("the claim laws a per-claim layer accepts", () => {
     { family: "truncated_normal", mu: 1, sigma: 2, lower: 0 },
     { family: "uniform", a: 0, b: 4 },
   ];
+  it("the list above is every family whose spec says a layer may take it, except normal (whole line)", () => {
+    const flagged = FAMILY_NAMES.filter((f) => FAMILY_SPECS[f].layerable && f !== "normal");
+    expect([...new Set(accepted.map((m) => m.family as string))].sort()).toEqual([...flagged].sort());
+  });
   for (const of of accepted)
     it(`${JSON.stringify(of)}: layered, its mean is between 0 and the limit and a compound of it is bracketed`, () => {
       const layer = { layer: { deductible: 0.5, limit: 2 }, of };

@@ -59,6 +59,9 @@ export interface FamilySpec {
   discrete: boolean;
   /** a law on 0, 1, 2, ... that may serve as the count of a compound */
   count?: boolean;
+  /** a per-claim layer may take this law: its built node carries the pdf and cdf (closed form or special function)
+   *  that the layer integrates against */
+  layerable?: boolean;
   source: string;
   /**
    * Optional direct evaluation of the law alone (or scaled / shifted): pdf, cdf, sf and, where it has one, the
@@ -144,6 +147,7 @@ export const FAMILY_SPECS: Record<FamilyName, FamilySpec> = {
     discrete: false,
     source: "Johnson, Kotz & Balakrishnan, Continuous Univariate Distributions vol. 1, ch. 13",
     direct: (p) => D.normalDirect(p.mu as number, p.sigma as number),
+    layerable: true,
     build: (p) => withDist(normal(p.mu, p.sigma), normalDist(p.mu, p.sigma)),
     tailIndex: "none",
   },
@@ -173,6 +177,7 @@ export const FAMILY_SPECS: Record<FamilyName, FamilySpec> = {
     discrete: false,
     source: "Johnson, Kotz & Balakrishnan vol. 2, ch. 26",
     direct: (p) => D.uniformDirect(p.a as number, p.b as number),
+    layerable: true,
     build: (p) => withDist(uniform(p.a, p.b), uniformDist(p.a, p.b)),
     check: (p) => (p.b > p.a ? null : { param: "b", detail: `uniform.b (${p.b}) must be greater than uniform.a (${p.a}).` }),
     tailIndex: "bounded",
@@ -188,6 +193,7 @@ export const FAMILY_SPECS: Record<FamilyName, FamilySpec> = {
     discrete: false,
     source: "Johnson, Kotz & Balakrishnan vol. 1, ch. 19",
     direct: (p) => D.gammaDirect(1, p.rate as number),
+    layerable: true,
     build: (p) => withDist(gammaLaw(1, p.rate), gammaDist(1, p.rate)),
     tailIndex: "none",
   },
@@ -202,6 +208,7 @@ export const FAMILY_SPECS: Record<FamilyName, FamilySpec> = {
     discrete: false,
     source: "Johnson, Kotz & Balakrishnan vol. 1, ch. 17",
     direct: (p) => D.gammaDirect(p.shape as number, p.rate as number),
+    layerable: true,
     build: (p) => withDist(gammaLaw(p.shape, p.rate), gammaDist(p.shape, p.rate)),
     tailIndex: "none",
   },
@@ -216,6 +223,7 @@ export const FAMILY_SPECS: Record<FamilyName, FamilySpec> = {
     discrete: false,
     source: "Johnson, Kotz & Balakrishnan vol. 1, ch. 18",
     direct: (p) => D.gammaDirect((p.k as number) / 2, 0.5),
+    layerable: true,
     build: (p) => withDist(gammaLaw(p.k / 2, 0.5), gammaDist(p.k / 2, 0.5)),
     tailIndex: "none",
   },
@@ -335,6 +343,7 @@ export const FAMILY_SPECS: Record<FamilyName, FamilySpec> = {
     discrete: false,
     source: "Johnson, Kotz & Balakrishnan vol. 1, ch. 14",
     direct: (p) => D.lognormalDirect(p.mu as number, p.sigma as number),
+    layerable: true,
     build: (p) => withDist(lognormal(p.mu, p.sigma), lognormalDist(p.mu, p.sigma)),
     tailIndex: "none (heavier than any exponential)",
   },
@@ -349,6 +358,7 @@ export const FAMILY_SPECS: Record<FamilyName, FamilySpec> = {
     discrete: false,
     source: "Johnson, Kotz & Balakrishnan vol. 1, ch. 20",
     direct: (p) => D.paretoDirect(p.alpha as number, p.xm as number),
+    layerable: true,
     build: (p) => withDist(pareto(p.alpha, p.xm), paretoDist(p.alpha, p.xm)),
     momentExistence: "below:alpha",
     tailIndex: "alpha",
@@ -364,6 +374,7 @@ export const FAMILY_SPECS: Record<FamilyName, FamilySpec> = {
     discrete: false,
     source: "Johnson, Kotz & Balakrishnan vol. 1, ch. 21",
     direct: (p) => D.weibullDirect(p.shape as number, p.scale as number),
+    layerable: true,
     build: (p) => withDist(weibull(p.shape, p.scale), weibullDist(p.shape, p.scale)),
     tailIndex: "none",
   },
@@ -462,6 +473,7 @@ export const FAMILY_SPECS: Record<FamilyName, FamilySpec> = {
     cfMethod: "numerical quadrature",
     discrete: false,
     source: "Klugman, Panjer & Willmot, Loss Models (5th ed.), app. A.2.3.1 (Pareto); JKB vol. 1, ch. 20, sec. 3 (Pareto II)",
+    layerable: true,
     build: (p) => lomax(p.alpha, p.theta),
   },
   generalized_pareto: {
@@ -476,6 +488,7 @@ export const FAMILY_SPECS: Record<FamilyName, FamilySpec> = {
     cfMethod: "numerical quadrature",
     discrete: false,
     source: "Embrechts, Klueppelberg & Mikosch, Modelling Extremal Events (1997), sec. 3.4, def. 3.4.9; S(x) = (1 + xi (x - mu)/sigma)^(-1/xi)",
+    layerable: true,
     build: (p) => {
       const { xi, sigma, mu } = p;
       if (xi > 0) return shiftBuilt(lomax(1 / xi, sigma / xi), mu);
@@ -495,6 +508,7 @@ export const FAMILY_SPECS: Record<FamilyName, FamilySpec> = {
     cfMethod: "numerical quadrature",
     discrete: false,
     source: "Klugman, Panjer & Willmot, Loss Models (5th ed.), app. A.2.2.2 (Burr); Burr (1942), Ann. Math. Statist. 13, form XII",
+    layerable: true,
     build: (p) => burr(p.alpha, p.gamma, p.theta),
   },
   loglogistic: {
@@ -509,6 +523,7 @@ export const FAMILY_SPECS: Record<FamilyName, FamilySpec> = {
     cfMethod: "numerical quadrature",
     discrete: false,
     source: "Klugman, Panjer & Willmot, Loss Models (5th ed.), app. A.2.2.4 (loglogistic)",
+    layerable: true,
     build: (p) => burr(1, p.gamma, p.theta, "loglogistic"),
   },
   inverse_gaussian: {
@@ -522,6 +537,7 @@ export const FAMILY_SPECS: Record<FamilyName, FamilySpec> = {
     cfMethod: "closed form",
     discrete: false,
     source: "Johnson, Kotz & Balakrishnan vol. 1, ch. 15, eqs. 15.4-15.6",
+    layerable: true,
     build: (p) => inverseGaussian(p.mu, p.lambda),
   },
   inverse_gamma: {
@@ -536,6 +552,7 @@ export const FAMILY_SPECS: Record<FamilyName, FamilySpec> = {
     cfMethod: "numerical quadrature",
     discrete: false,
     source: "Klugman, Panjer & Willmot, Loss Models (5th ed.), app. A.2.3.3 (inverse gamma); JKB vol. 1, ch. 17",
+    layerable: true,
     build: (p) => inverseGamma(p.alpha, p.theta),
   },
   beta: {
@@ -550,6 +567,7 @@ export const FAMILY_SPECS: Record<FamilyName, FamilySpec> = {
     discrete: false,
     source: "Johnson, Kotz & Balakrishnan vol. 2, ch. 25, eqs. 25.1-25.13 (four-parameter beta); Kummer's function A&S 13.1.2",
     check: (p) => (p.b > p.a ? null : { param: "b", detail: `beta.b (${p.b}) must be greater than beta.a (${p.a}).` }),
+    layerable: true,
     build: (p) => withDist(betaLaw(p.alpha, p.beta, p.a, p.b), betaDist(p.alpha, p.beta, p.a, p.b)),
   },
   pert: {
@@ -565,6 +583,7 @@ export const FAMILY_SPECS: Record<FamilyName, FamilySpec> = {
     source: "Vose, Risk Analysis: A Quantitative Guide (3rd ed., 2008), ch. 9, PERT and modified PERT (recalled from memory); Malcolm et al. (1959), Operations Research 7",
     check: (p) =>
       !(p.b > p.a) ? { param: "b", detail: `pert.b (${p.b}) must be greater than pert.a (${p.a}).` } : p.m < p.a || p.m > p.b ? { param: "m", detail: `pert.m (${p.m}) must lie in [a, b] = [${p.a}, ${p.b}].` } : null,
+    layerable: true,
     build: (p) => {
       const al = 1 + (p.lambda * (p.m - p.a)) / (p.b - p.a);
       const be = 1 + (p.lambda * (p.b - p.m)) / (p.b - p.a);
@@ -584,6 +603,7 @@ export const FAMILY_SPECS: Record<FamilyName, FamilySpec> = {
     source: "Johnson, Kotz & Balakrishnan vol. 2, ch. 26, sec. 9 (triangular)",
     check: (p) =>
       !(p.b > p.a) ? { param: "b", detail: `triangular.b (${p.b}) must be greater than triangular.a (${p.a}).` } : p.c < p.a || p.c > p.b ? { param: "c", detail: `triangular.c (${p.c}) must lie in [a, b] = [${p.a}, ${p.b}].` } : null,
+    layerable: true,
     build: (p) => triangular(p.a, p.c, p.b),
   },
   truncated_normal: {
@@ -603,6 +623,7 @@ export const FAMILY_SPECS: Record<FamilyName, FamilySpec> = {
         : (p.lower !== undefined && (p.lower - p.mu) / p.sigma > 37) || (p.upper !== undefined && (p.upper - p.mu) / p.sigma < -37)
           ? { param: p.lower !== undefined && (p.lower - p.mu) / p.sigma > 37 ? "lower" : "upper", detail: "The truncation interval lies more than 37 standard deviations from mu; its probability underflows. Move mu or the ends." }
           : null,
+    layerable: true,
     build: (p) => truncatedNormal(p.mu, p.sigma, p.lower, p.upper),
   },
   logarithmic: {
