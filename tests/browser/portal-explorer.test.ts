@@ -81,8 +81,9 @@ describe("explorer", () => {
     await expect.poll(() => page.getByTestId("plot-readout").innerText()).toMatch(/x = .+ · (pdf|pmf) = .+ · F = .+ · 1 − F = /);
     // Exceedance 1 - F on a log scale.
     await page.getByRole("radio", { name: "Exceedance 1 − F" }).check();
-    await expect(page.getByRole("radio", { name: "log" }).nth(1).isChecked()).resolves.toBe(true);
-    await expect(page.getByTestId("law-plot").getAttribute("aria-label")).resolves.toMatch(/^1 − F\(x\) = P\(X > x\)/);
+    // the view switches its y axis to log after the click has rendered: read both once the page has settled
+    await expect.poll(() => page.getByRole("radio", { name: "log" }).nth(1).isChecked()).toBe(true);
+    await expect.poll(() => page.getByTestId("law-plot").getAttribute("aria-label")).toMatch(/^1 − F\(x\) = P\(X > x\)/);
     await shot(page, "explorer-exceedance");
     // A narrower range on request.
     await page.getByLabel("Range to level").fill("0.99");

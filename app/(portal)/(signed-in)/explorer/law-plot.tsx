@@ -63,8 +63,11 @@ export function LawPlot({ data, range, onRange, busy }: { data: LawTable; range:
     ro.observe(el);
     return () => ro.disconnect();
   }, []);
-  // The exceedance view is read on a log scale; the others start linear.
-  useEffect(() => setYKind(view === "exceedance" ? "log" : "linear"), [view]);
+  // The exceedance view is read on a log scale; the others start linear (set with the view, in the same render).
+  const chooseView = (v: PlotView) => {
+    setView(v);
+    setYKind(v === "exceedance" ? "log" : "linear");
+  };
 
   const rows = useMemo(() => plotRows(data), [data]);
   const dLabel = data.pdf ? "pdf" : "pmf";
@@ -148,7 +151,7 @@ export function LawPlot({ data, range, onRange, busy }: { data: LawTable; range:
       <div className="mt-2 flex flex-wrap gap-x-5 gap-y-2 text-sm">
         <fieldset className="flex flex-wrap items-center gap-3">
           <legend className="sr-only">View</legend>
-          {VIEWS.map((v) => radio("view", v.id, view, (x) => setView(x as PlotView), v.label))}
+          {VIEWS.map((v) => radio("view", v.id, view, (x) => chooseView(x as PlotView), v.label))}
         </fieldset>
         <fieldset className="flex items-center gap-3">
           <legend className="sr-only">x axis</legend>
