@@ -3,20 +3,14 @@
 // its LSL/USL), at 1280 and 390 px. Values are checked against closed forms (fixtures of
 // tests/fixtures/reference-risk/generate.py and scipy constants named below) within the error bound the panel shows.
 import { readFileSync } from "node:fs";
-import { afterAll, beforeAll, describe, expect, it } from "vitest";
+import { describe, expect, it } from "vitest";
 import type { Page } from "playwright-core";
-import { launchBrowser } from "../support/browser";
 import { baseUrl } from "../support/layout";
-import { makeOrganization, makePerson, shot, signIn } from "./portal-support";
+import { makeOrganization, makePerson, overflow, shot, signIn } from "./portal-support";
+import { useBrowser } from "./browser-session";
 
 const ref = JSON.parse(readFileSync("tests/fixtures/reference-risk/risk.json", "utf8"));
-let session: Awaited<ReturnType<typeof launchBrowser>>;
-beforeAll(async () => {
-  session = await launchBrowser();
-});
-afterAll(async () => {
-  await session?.close();
-});
+const session = useBrowser();
 
 const panel = (page: Page) => page.getByRole("heading", { name: "Risk measures" }).locator("xpath=..");
 // each finished run numbers its result block, so a check never reads the previous run's table
@@ -113,13 +107,7 @@ describe("explorer risk panel", () => {
       ys.slice(1).forEach((y, i) => expect(y, `point ${i + 1} of ${pts.join(" ")}`).toBeGreaterThanOrEqual(ys[i] - 0.5));
       expect(ys[ys.length - 1] - ys[0], pts.join(" ")).toBeGreaterThan(100);
 
-      const extra = await page.evaluate(() => document.documentElement.scrollWidth - document.documentElement.clientWidth);
-      const wide = await page.evaluate(() =>
-        [...document.querySelectorAll("main *")]
-          .filter((e) => e.getBoundingClientRect().right > document.documentElement.clientWidth + 1)
-          .slice(0, 5)
-          .map((e) => `${e.tagName.toLowerCase()}.${e.className}`.slice(0, 120)),
-      );
+      const { extra, wide } = await overflow(page);
       expect(extra, wide.join(" | ")).toBe(0);
       await shot(page, `explorer-risk-${width}`);
       await page.close();

@@ -6,7 +6,7 @@ import { describe, expect, it } from "vitest";
 import type { Page } from "playwright-core";
 import { useBrowser } from "./browser-session";
 import { baseUrl } from "../support/layout";
-import { makeOrganization, makePerson, shot, signIn } from "./portal-support";
+import { makeOrganization, makePerson, overflow, shot, signIn } from "./portal-support";
 
 const session = useBrowser();
 
@@ -120,14 +120,8 @@ describe("explorer", () => {
     await page.getByRole("button", { name: /Aggregate claims/ }).click();
     await run(page);
     await page.getByTestId("law-plot").waitFor({ timeout: 30_000 });
-    const extra = await page.evaluate(() => document.documentElement.scrollWidth - document.documentElement.clientWidth);
     // names the elements that stick out past the viewport, so a failure says where to look
-    const wide = await page.evaluate(() =>
-      [...document.querySelectorAll("main *")]
-        .filter((e) => e.getBoundingClientRect().right > document.documentElement.clientWidth + 1)
-        .slice(0, 5)
-        .map((e) => `${e.tagName.toLowerCase()}.${e.className}`.slice(0, 120)),
-    );
+    const { extra, wide } = await overflow(page);
     expect(extra, wide.join(" | ")).toBe(0);
     await shot(page, "explorer-narrow");
     await page.close();

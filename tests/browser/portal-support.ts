@@ -54,6 +54,17 @@ export function linkIn(text: string, path: string): string {
 
 export const shot = (page: Page, name: string) => page.screenshot({ path: join(SCREENSHOTS, `portal-${name}.png`), fullPage: true });
 
+/** How far the page is wider than the viewport, and the first elements of main that stick out (to name in a failure). */
+export async function overflow(page: Page): Promise<{ extra: number; wide: string[] }> {
+  return page.evaluate(() => ({
+    extra: document.documentElement.scrollWidth - document.documentElement.clientWidth,
+    wide: [...document.querySelectorAll("main *")]
+      .filter((e) => e.getBoundingClientRect().right > document.documentElement.clientWidth + 1)
+      .slice(0, 5)
+      .map((e) => `${e.tagName.toLowerCase()}.${e.className}`.slice(0, 120)),
+  }));
+}
+
 /** Calls the public API with a key, as a customer's code would. */
 export async function callMoments(secret: string) {
   const res = await fetch(`${baseUrl()}/api/v1/moments`, {
