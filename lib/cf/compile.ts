@@ -31,19 +31,27 @@ export function buildNode(m: Model, opts: CompileOptions = {}): Node {
     return node;
   }
   if ("sum" in m) return sumNode(m.sum.map(buildNode_));
-  if ("scale" in m) {
-    const child = buildNode_(m.of);
-    const node = scaleNode(m.scale, child);
-    if (child.direct && m.scale !== 0 && Number.isFinite(m.scale)) node.direct = affineDirect(child.direct, m.scale, 0);
-    return node;
-  }
-  if ("shift" in m) {
-    const child = buildNode_(m.of);
-    const node = shiftNode(m.shift, child);
-    if (child.direct && Number.isFinite(m.shift)) node.direct = affineDirect(child.direct, 1, m.shift);
-    return node;
-  }
+  if ("scale" in m) return scaled(m.scale, buildNode_(m.of));
+  if ("shift" in m) return shifted(m.shift, buildNode_(m.of));
   return operatorNode(m, buildNode_, opts);
+}
+
+/** a X: the direct evaluation and a mixture's components follow the scale */
+function scaled(a: number, child: Node): Node {
+  const node = scaleNode(a, child);
+  if (!(a !== 0 && Number.isFinite(a))) return node;
+  if (child.direct) node.direct = affineDirect(child.direct, a, 0);
+  if (child.mixParts) node.mixParts = { weights: child.mixParts.weights, parts: child.mixParts.parts.map((c) => scaled(a, c)) };
+  return node;
+}
+
+/** X + b: the direct evaluation and a mixture's components follow the shift */
+function shifted(b: number, child: Node): Node {
+  const node = shiftNode(b, child);
+  if (!Number.isFinite(b)) return node;
+  if (child.direct) node.direct = affineDirect(child.direct, 1, b);
+  if (child.mixParts) node.mixParts = { weights: child.mixParts.weights, parts: child.mixParts.parts.map((c) => shifted(b, c)) };
+  return node;
 }
 
 
@@ -51,7 +59,13 @@ function operatorNode(mIn: Model, buildNode_: (x: Model) => Node, opts: CompileO
   const m = mIn as Exclude<Model, FamilyModel>;
   if ("layer" in m) return layerNode(buildNode_(m.of), m.layer);
   if ("repeat" in m) return repeatNode(m.repeat, buildNode_(m.of));
-  if ("mix" in m) return mixNode(m.mix.map((c) => c.weight), m.mix.map((c) => buildNode_(c.of)));
+  if ("mix" in m) {
+    const weights = m.mix.map((c) => c.weight);
+    const parts = m.mix.map((c) => buildNode_(c.of));
+    const node = mixNode(weights, parts);
+    if (parts.length > 1) node.mixParts = { weights, parts };
+    return node;
+  }
   if ("compound" in m) return compoundNode(buildNode_(m.compound.count), buildNode_(m.compound.each), opts.discretise === false ? null : (opts.discretise ?? { auto: true }));
   if ("lattice" in m) return latticeNode(m.lattice.origin, m.lattice.step, m.lattice.p);
   if ("sample" in m) return sampleNode(m.sample, MAX_LATTICE, m.weights);
@@ -120,6 +134,7 @@ export function toCompiled(node: Node): CompiledModel {
     cfRelError: node.cfRelError ?? 0,
     ...(node.direct ? { direct: node.direct } : {}),
     ...(node.bounds ? { bounds: node.bounds } : {}),
+    ...(node.mixParts ? { components: lazyComponents(node.mixParts) } : {}),
     // read on access: a discretised compound adds its error bound to its notes when its table is built
     get notes() {
       return node.kind.type === "mixed" && !node.kind.atomsComplete ? [...node.notes, "not every atom of this mixed law is listed"] : node.notes;
@@ -142,6 +157,12 @@ export function toCompiled(node: Node): CompiledModel {
     };
   }
   return compiled;
+}
+
+/** A mixture's components compiled on first use (most requests never ask for them). */
+function lazyComponents(mp: { weights: number[]; parts: Node[] }): () => { weight: number; model: CompiledModel }[] {
+  let done: { weight: number; model: CompiledModel }[] | null = null;
+  return () => (done ??= mp.parts.map((c, i) => ({ weight: mp.weights[i], model: toCompiled(c) })));
 }
 
 /** Validate a model in the notation and compile it; throws CfError with a JSON pointer on invalid input. */

@@ -43,6 +43,9 @@ export interface Node {
   severity?: SeverityLaw;
   /** direct evaluation of a single named law (kept through scale and shift, dropped by every other operator) */
   direct?: DirectLaw;
+  /** a mixture's weights and components (kept through scale and shift): quantiles and density of a mixture are
+   *  answered from its components, each by its own route */
+  mixParts?: { weights: number[]; parts: Node[] };
   /** closed-form pdf, cdf and sf (named continuous laws): the per-claim layer integrates against them */
   dist?: DistLaw;
   /** a discretised compound of a claim law with its own cdf: the compounds of the claims rounded down and up */

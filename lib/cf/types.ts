@@ -64,6 +64,8 @@ export interface CompiledModel {
    *  discretisation of a continuous severity, whose table carries its cdfError), return the pmf starting at
    *  `origin` on `step`, truncated with the dropped tail mass reported; otherwise null. */
   latticeTable?(maxLength: number): LatticeTable | null;
+  /** a mixture (possibly scaled or shifted): its weights and compiled components, each answerable by its own route */
+  components?(): readonly { weight: number; model: CompiledModel }[];
   /** a discretised compound of claims with their own cdf (per-claim layers): the compounds with every claim rounded
    *  down and rounded up onto the table's lattice, which bracket the law in the usual stochastic order */
   bounds?(): CompoundBracket | null;

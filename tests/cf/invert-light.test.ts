@@ -218,7 +218,8 @@ describe("inversion of light-tailed laws (reference: closed forms named in each 
         const r = method === "fft" ? density(cs.model, { grid: cs.grid, method: "fft" }) : density(cs.model, { x: cs.points, method });
         const c = new Checker();
         const e = r.diagnostics.error;
-        c.that("method", r.diagnostics.method === method, r.diagnostics.method);
+        // laws bounded below with a damped transform take the damped variant of the method asked for
+        c.that("method", r.diagnostics.method === method || r.diagnostics.method === `${method}-damped`, r.diagnostics.method);
         c.that("estimate finite", Number.isFinite(e.pdf) && Number.isFinite(e.cdf), JSON.stringify(e));
         for (let i = 0; i < r.x.length; i++) {
           const x = r.x[i];

@@ -89,7 +89,24 @@ export function gammaLaw(shape: number, rate: number): Node {
     scale: Math.sqrt(shape) / rate,
     support: [0, Infinity],
     dampedLogCf: gammaDamped(shape, rate),
+    laplaceExpansion: gammaExpansion(shape, rate),
   });
+}
+
+/**
+ * Gamma(a, r) Laplace transform at large s: (1 + s/r)^{-a} = (r/s)^a (1 + r/s)^{-a} = sum_j (-1)^j (a)_j / j! r^{a+j}
+ * s^{-a-j} (binomial series, |r/s| < 1); compounds of gamma severities subtract gamma kernels from it.
+ */
+function gammaExpansion(a: number, r: number): { at: number; exps: number[]; coefs: number[] } {
+  const exps: number[] = [];
+  const coefs: number[] = [];
+  let c = Math.pow(r, a);
+  for (let j = 0; a + j <= 8; j++) {
+    exps.push(a + j);
+    coefs.push(c);
+    c *= (-(a + j) * r) / (j + 1);
+  }
+  return { at: 0, exps, coefs };
 }
 
 /** Laplace(loc, b): phi = e^{i loc t} / (1 + b^2 t^2) (JKB vol. 2, ch. 24). */

@@ -6,6 +6,7 @@ import { invertContinuous, type PartOutput, type Request } from "./continuous";
 import { latticeCumulative, solveLattice } from "./lattice";
 import { dampable } from "./damped";
 import { dampedDensity } from "./density-damped";
+import { mixtureDensity } from "./mixture";
 import { bulkWindow, lawShape } from "./range";
 import { atomMass } from "./shared";
 import type { DensityOptions, DensityResult, InversionDiagnostics } from "./types";
@@ -41,6 +42,15 @@ export function density(model: CompiledModel, options: DensityOptions = {}): Den
   // asks for a specific inversion (method, range or frequency cut-off)
   if (model.direct && (options.method ?? "auto") === "auto" && !options.range && options.maxFrequency === undefined) {
     return directDensity(model.direct, req.kind === "points" ? req.x : gridX(req.from, req.dx, req.count), model.notes, options.out);
+  }
+  // a mixture (possibly scaled or shifted) answers from its components, each by its own route
+  if (model.components && (options.method ?? "auto") === "auto" && !options.range && options.maxFrequency === undefined) {
+    const at: DensityOptions =
+      req.kind === "points"
+        ? { ...options, grid: undefined, x: req.x }
+        : { ...options, x: undefined, grid: { from: req.from, to: req.from + req.dx * (req.count - 1), count: req.count } };
+    const r = mixtureDensity(model, at, density);
+    if (r) return r;
   }
   const method = pickMethod(options, req);
   const wantPdf = !options.cdfOnly;

@@ -16,7 +16,6 @@ const QUANTILE_TOLERANCE = 1e-10;
  * Returns null when the transform decays too slowly for the damped route (the caller falls back).
  */
 export function dampedQuantiles(model: CompiledModel, atoms: Atom[], p: Float64Array, o: QuantileOptions): QuantileResult | null {
-  const tol = o.tolerance ?? QUANTILE_TOLERANCE;
   const lo = model.support[0];
   const k = model.cumulants(2);
   const mean = k[0];
@@ -24,6 +23,8 @@ export function dampedQuantiles(model: CompiledModel, atoms: Atom[], p: Float64A
   let tail = 0.5;
   for (let i = 0; i < p.length; i++) if (p[i] > 0 && p[i] < 1) tail = Math.min(tail, 1 - p[i]);
   const spread = sd ?? model.scale;
+  // a level far in a light tail needs the sf to a relative accuracy: the default target shrinks with the tail asked
+  const tol = o.tolerance ?? (Number.isFinite(model.tails.right) ? QUANTILE_TOLERANCE : Math.min(QUANTILE_TOLERANCE, Math.max(1e-6 * tail, 1e-14)));
   let R = mean !== null && sd !== null && Number.isFinite(mean) ? mean + 6 * sd : model.location + 6 * model.scale;
   if (Number.isFinite(model.tails.right)) R = Math.max(R, lo + (model.location - lo + model.scale) * Math.pow(2 / tail, 1 / Math.max(model.tails.right, 0.1)));
   if (!(R > lo)) R = lo + Math.max(model.scale, 1e-300);

@@ -12,6 +12,7 @@ import { heavyShortfall, shortfallLight } from "./shortfall";
 import { solveLevels, type Evaluator } from "./solve-levels";
 import { dampable } from "./damped";
 import { dampedQuantiles } from "./quantile-damped";
+import { mixtureQuantiles } from "./mixture";
 
 export interface QuantileOptions {
   /** also return the expected shortfall ES_p = q_p + E[(X - q_p)^+] / (1 - p) (TVaR) */
@@ -21,7 +22,7 @@ export interface QuantileOptions {
 }
 
 export interface QuantileDiagnostics {
-  method: "gil-pelaez" | "gil-pelaez-damped" | "lattice-table" | "discretised" | "lattice-fft" | "atoms" | DirectMethod;
+  method: "gil-pelaez" | "gil-pelaez-damped" | "lattice-table" | "discretised" | "lattice-fft" | "atoms" | "mixture" | DirectMethod;
   terms: number;
   range: { from: number; to: number };
   /** bound on |F_computed - F| used by the root finder */
@@ -63,6 +64,10 @@ export function quantiles(model: CompiledModel, pIn: ArrayLike<number>, options:
   const atoms: Atom[] = kind.type === "mixed" ? [...kind.atoms].sort((u, v) => u.x - v.x) : [];
   const w = 1 - atoms.reduce((s, a) => s + a.p, 0);
   if (w <= 1e-14) return atomQuantiles(atoms, p, options);
+  if (model.components) {
+    const r = mixtureQuantiles(model, p, options);
+    if (r) return withModelNotes(model, r);
+  }
   if (dampable(model)) {
     const r = dampedQuantiles(model, atoms, p, options);
     if (r) return withModelNotes(model, r);

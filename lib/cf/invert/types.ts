@@ -42,7 +42,7 @@ export interface ErrorEstimate {
 }
 
 export interface InversionDiagnostics {
-  method: "fft" | "gil-pelaez" | "fft-damped" | "gil-pelaez-damped" | "lattice-table" | "discretised" | "lattice-fft" | "atoms" | DirectMethod;
+  method: "fft" | "gil-pelaez" | "fft-damped" | "gil-pelaez-damped" | "lattice-table" | "discretised" | "lattice-fft" | "atoms" | "mixture" | DirectMethod;
   /** FFT size, or number of frequency nodes of the pointwise sum */
   gridSize: number;
   /** frequency nodes actually used (t_k = (k + 1/2) h, k < terms) */
