@@ -1,4 +1,5 @@
 import { stableIntegrals } from "./stable-integral";
+import { stableOneFar } from "./stable-far";
 import { stableTailSeries } from "./stable-series";
 import type { DirectLaw, DirectPoint } from "./types";
 import { lgamma } from "../families/special";
@@ -134,7 +135,8 @@ function sideAt(alpha: number, beta: number, z: number, out: DirectPoint) {
 
 function oneAt(beta: number, z: number, out: DirectPoint) {
   const lh = (-Math.PI * z) / (2 * beta);
-  const r = stableIntegrals(1, beta, lh);
+  // far out in either tail a Gauss rule in log V replaces the march over the grid (./stable-far.ts)
+  const r = stableOneFar(beta, lh) ?? stableIntegrals(1, beta, lh);
   const dlh = 4 * Number.EPSILON * (1 + Math.abs(lh));
   out.pdf = r.Ip / (2 * beta);
   out.pdfErr = r.ep / (2 * beta) + 4 * Number.EPSILON * out.pdf;

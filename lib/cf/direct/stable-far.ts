@@ -1,0 +1,228 @@
+import { stableSide, type StableSide } from "./stable-kernel";
+import type { StableIntegrals } from "./stable-integral";
+
+const HALF_PI = Math.PI / 2;
+
+/**
+ * The integrals I0, I1, Ip of the stable representation (./stable-integral.ts) for alpha = 1 far out in either tail,
+ * where the grid of ./stable-integral.ts would need ever more nodes far from any stored window.
+ *
+ * In the form I0 = int Theta_low(w) K(lh + w) dw, I1 = int Theta_high(w) K(lh + w) dw, Ip = int Theta_low'(w) K(lh + w) dw
+ * (K(v) = exp(v - e^v), the density of log E for E standard exponential), the kernel sits at w = -lh with a width of
+ * a few units, while far out Theta(w) (the distance of the solution of log V(theta) = w to the end of the theta
+ * interval) behaves like c / |w| and varies on the scale |w|. A Gauss rule for the weight K then integrates each
+ * of them with a few solves of log V = w instead of a march over the whole kernel (Gautschi 2004, Orthogonal
+ * Polynomials: Computation and Approximation, sec. 2.2: the discretised Stieltjes procedure; Golub & Welsch 1969 for
+ * nodes and Christoffel weights from the Jacobi matrix). The rule's nodes are computed here once, from a trapezoid
+ * discretisation of K (exponentially accurate for this analytic, doubly decaying weight).
+ *
+ * Error estimate: the difference between the rules of N_HI and N_LO nodes (the lower rule's error dominates it),
+ * times 10, plus the effect of each node's residual in log V, plus the rounding of the sums. The caller falls back
+ * to the grid when the estimate is above 1e-10 of the value.
+ */
+
+/** node counts of the two rules; far out the error of the N-node rule falls like (width / |w|)^(2N) */
+const N_HI = 10;
+const N_LO = 7;
+/** |w0| from which the far rule is tried (the grid serves nearer windows) */
+export const FAR_W = 60;
+
+interface Rule {
+  v: Float64Array;
+  W: Float64Array;
+}
+
+/** Gauss rule of n nodes for the weight K(v) = exp(v - e^v) on the real line. */
+export function gumbelGaussRule(n: number): Rule {
+  // discretised weight: trapezoid on [-80, 6] (K < 1e-34 beyond), step 1/64
+  const h = 1 / 64;
+  const lo = -80;
+  const N = Math.round(86 / h) + 1;
+  const xs = new Float64Array(N);
+  const ws = new Float64Array(N);
+  for (let i = 0; i < N; i++) {
+    const v = lo + i * h;
+    xs[i] = v;
+    ws[i] = h * Math.exp(v - Math.exp(v));
+  }
+  // Stieltjes: p_{k+1} = (v - a_k) p_k - b_k p_{k-1}, with the discrete inner product
+  const a = new Float64Array(n);
+  const b = new Float64Array(n);
+  let p0 = new Float64Array(N);
+  let p1 = new Float64Array(N).fill(1);
+  let normPrev = 1;
+  for (let k = 0; k < n; k++) {
+    let nrm = 0;
+    let vm = 0;
+    for (let i = 0; i < N; i++) {
+      const q = ws[i] * p1[i] * p1[i];
+      nrm += q;
+      vm += q * xs[i];
+    }
+    a[k] = vm / nrm;
+    b[k] = k === 0 ? nrm : nrm / normPrev;
+    normPrev = nrm;
+    const p2 = new Float64Array(N);
+    for (let i = 0; i < N; i++) p2[i] = (xs[i] - a[k]) * p1[i] - (k === 0 ? 0 : b[k] * p0[i]);
+    p0 = p1;
+    p1 = p2;
+  }
+  // nodes: eigenvalues of the Jacobi matrix (diagonal a, off-diagonal sqrt(b_k), k >= 1) by Sturm-sequence bisection
+  const off = new Float64Array(n);
+  for (let k = 1; k < n; k++) off[k] = Math.sqrt(b[k]);
+  let gLo = Infinity;
+  let gHi = -Infinity;
+  for (let k = 0; k < n; k++) {
+    const r = (k > 0 ? off[k] : 0) + (k + 1 < n ? off[k + 1] : 0);
+    gLo = Math.min(gLo, a[k] - r);
+    gHi = Math.max(gHi, a[k] + r);
+  }
+  const below = (x: number): number => {
+    // number of eigenvalues below x (signs of the LDL^T pivots of J - x)
+    let c = 0;
+    let d = 1;
+    for (let k = 0; k < n; k++) {
+      d = a[k] - x - (k > 0 ? (off[k] * off[k]) / d : 0);
+      if (d === 0) d = -1e-300;
+      if (d < 0) c++;
+    }
+    return c;
+  };
+  const v = new Float64Array(n);
+  for (let j = 0; j < n; j++) {
+    let l = gLo;
+    let r = gHi;
+    for (let it = 0; it < 200 && r - l > 1e-15 * Math.max(1, Math.abs(l) + Math.abs(r)); it++) {
+      const m = 0.5 * (l + r);
+      if (below(m) > j) r = m;
+      else l = m;
+    }
+    v[j] = 0.5 * (l + r);
+  }
+  // Christoffel weights 1 / sum_k phat_k(v)^2 with the orthonormal polynomials phat_k
+  const W = new Float64Array(n);
+  for (let j = 0; j < n; j++) {
+    let q0 = 0;
+    let q1 = 1 / Math.sqrt(b[0]);
+    let s = q1 * q1;
+    for (let k = 0; k + 1 < n; k++) {
+      const q2 = ((v[j] - a[k]) * q1 - (k > 0 ? off[k] * q0 : 0)) / off[k + 1];
+      q0 = q1;
+      q1 = q2;
+      s += q1 * q1;
+    }
+    W[j] = 1 / s;
+  }
+  return { v, W };
+}
+
+let rules: { hi: Rule; lo: Rule } | null = null;
+function theRules() {
+  if (!rules) rules = { hi: gumbelGaussRule(N_HI), lo: gumbelGaussRule(N_LO) };
+  return rules;
+}
+
+const sides = new Map<number, StableSide>();
+function sideFor(beta: number): StableSide {
+  let s = sides.get(beta);
+  if (!s) {
+    if (sides.size > 64) sides.clear();
+    s = stableSide(1, beta);
+    sides.set(beta, s);
+  }
+  return s;
+}
+
+interface Solved {
+  /** distance to the end on the kernel's side */
+  u: number;
+  /** d Theta / d w = 1 / |d log V / d u| */
+  dth: number;
+  /** bound on the error of u from the residual and rounding of log V */
+  eu: number;
+}
+
+/** Solve log V - wRef = T for the distance u to the end (from = 0 low, 1 high) by Newton in s = 1/u, where log V is close to linear. */
+function solveFar(side: StableSide, from: 0 | 1, T: number, c: number, out: Solved): boolean {
+  const o = { lv: 0, d: 0, mag: 0 };
+  let s = Math.abs(T) / c;
+  const sMin = 4 / side.L;
+  for (let it = 0; it < 40; it++) {
+    if (!(s > sMin)) return false;
+    const u = 1 / s;
+    side.logV(from, u, o);
+    const g = o.lv - T;
+    const tol = 4 * Number.EPSILON * (o.mag + Math.abs(T));
+    const dlds = -o.d * u * u;
+    if (Math.abs(g) <= tol) {
+      out.u = u;
+      out.dth = 1 / Math.abs(o.d);
+      out.eu = (Math.abs(g) + 2 * tol) / Math.abs(o.d) + 2 * Number.EPSILON * u;
+      return true;
+    }
+    const sn = s - g / dlds;
+    if (!Number.isFinite(sn)) return false;
+    if (Math.abs(sn - s) <= 1e-15 * s) {
+      side.logV(from, 1 / sn, o);
+      out.u = 1 / sn;
+      out.dth = 1 / Math.abs(o.d);
+      out.eu = (Math.abs(o.lv - T) + 2 * tol) / Math.abs(o.d) + 2 * Number.EPSILON * out.u;
+      return true;
+    }
+    s = sn;
+  }
+  return false;
+}
+
+/**
+ * Far-tail integrals of the alpha = 1 side with beta in (0, 1] at log h = lhAbs, or null when the window is not far
+ * enough out (|log h| below FAR_W, the light end of beta = 1) or the two rules disagree by more than 1e-11 relative.
+ */
+export function stableOneFar(beta: number, lhAbs: number): StableIntegrals | null {
+  if (!(beta > 0 && beta <= 1)) return null;
+  const side = sideFor(beta);
+  const lh = lhAbs + side.wRef;
+  const w0 = -lh;
+  if (!(Math.abs(w0) >= FAR_W)) return null;
+  // the kernel's side: the high end (theta -> pi/2, log V ~ (pi/2)(1 + beta) / (beta u)) when w0 > 0, else the low
+  // end (theta -> -pi/2, log V ~ -(pi/2)(1 - beta) / (beta u)); beta = 1 has a finite low end (no far window there)
+  const from: 0 | 1 = w0 > 0 ? 1 : 0;
+  if (from === 0 && beta === 1) return null;
+  const c = from === 1 ? (HALF_PI * (1 + beta)) / beta : (HALF_PI * (1 - beta)) / beta;
+  const { hi, lo } = theRules();
+  const sol: Solved = { u: 0, dth: 0, eu: 0 };
+  const sum = (r: Rule, acc: { t: number; p: number; et: number; ep: number }): boolean => {
+    acc.t = acc.p = acc.et = acc.ep = 0;
+    for (let i = 0; i < r.v.length; i++) {
+      if (!solveFar(side, from, w0 + r.v[i], c, sol)) return false;
+      acc.t += r.W[i] * sol.u;
+      acc.p += r.W[i] * sol.dth;
+      acc.et += r.W[i] * sol.eu;
+      // the node's error in w moves Theta' by about Theta'' dw, Theta'' ~ 2 Theta' / |w| far out
+      acc.ep += r.W[i] * sol.dth * (2 * (sol.eu / sol.dth) / Math.abs(w0 + r.v[i]) + 4 * Number.EPSILON);
+    }
+    return true;
+  };
+  const A = { t: 0, p: 0, et: 0, ep: 0 };
+  const B = { t: 0, p: 0, et: 0, ep: 0 };
+  if (!sum(hi, A) || !sum(lo, B)) return null;
+  const L = side.L;
+  // the kernel's mass on the other side of the body (where Theta is not c/|w|) is below exp(-|w0| + 5)
+  const outside = L * Math.exp(-Math.abs(w0) + 5);
+  const et = 10 * Math.abs(A.t - B.t) + A.et + 8 * Number.EPSILON * A.t + outside;
+  const ep = 10 * Math.abs(A.p - B.p) + A.ep + 8 * Number.EPSILON * A.p + outside;
+  if (!(et <= 1e-11 * A.t && ep <= 1e-11 * A.p)) return null;
+  // beta = 1 on the heavy side: the finite low end leaves L (1 - exp(-h V_end)) in I1 (h V_end = e^lh, tiny here)
+  const b1 = side.wLowEnd > -Infinity ? -L * Math.expm1(-Math.exp(lh)) : 0;
+  const res: StableIntegrals = { I0: 0, I1: 0, Ip: A.p, e0: et, e1: et, ep, nodes: N_HI + N_LO };
+  if (from === 1) {
+    res.I1 = A.t + b1;
+    res.I0 = L - res.I1;
+    res.e0 = et + 4 * Number.EPSILON * L;
+  } else {
+    res.I0 = A.t;
+    res.I1 = L - A.t;
+    res.e1 = et + 4 * Number.EPSILON * L;
+  }
+  return res;
+}
