@@ -13,10 +13,12 @@ import { compoundNode, latticeNode, mixNode, repeatNode, sampleNode, scaleNode, 
 /** Options of compile(). */
 export interface CompileOptions {
   /**
-   * Lognormal, pareto and weibull severities inside compounds are discretised onto a lattice (mean-preserving) when
-   * this object is given; it sets the target cdf error or the span. false: never. Absent: lognormal compounds stay
-   * continuous (atom at 0, damped inversion; pareto and weibull with gamma kernels at the severity's endpoint taken
-   * out of the transform); other severities without a cheap CF (lomax, burr, ...) are discretised and labelled so.
+   * Severities without a cheap CF (lognormal, pareto, weibull, lomax, burr, ...) inside compounds are discretised onto
+   * a lattice (mean-preserving) when this object is given; it sets the target cdf error or the span. false: never.
+   * Absent: compounds of lognormal, pareto, weibull, lomax, burr and log-logistic severities stay continuous (atom at
+   * 0, damped inversion; where the severity's density jumps or has a power at its lower end, gamma kernels matching
+   * that endpoint are taken out of the transform); the other such severities (inverse gamma) are discretised and
+   * labelled so.
    */
   discretise?: DiscretiseOptions | false;
 }

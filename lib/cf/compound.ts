@@ -164,7 +164,7 @@ function discretisedNode(N: Node, X: Node, o: DiscretiseOptions): Node {
 }
 
 /** severities whose compounds are inverted as continuous laws (damped transform) unless discretisation is asked for */
-const CONTINUOUS_BY_DEFAULT = new Set(["lognormal", "pareto", "weibull"]);
+const CONTINUOUS_BY_DEFAULT = new Set(["lognormal", "pareto", "weibull", "lomax", "burr", "loglogistic"]);
 /** order of the endpoint expansion removed by kernels: what is left decays like |s|^{-e}, e > KERNEL_ORDER */
 const KERNEL_ORDER = 4;
 

@@ -40,8 +40,8 @@ export interface DiscretiseOptions {
   tolerance?: number;
   /** explicit span h (overrides the choice) */
   span?: number;
-  /** default route: only the severities whose densities the damped inversion cannot yet resolve quickly (pareto's
-   *  jump at its minimum, weibull's power behaviour at 0) are discretised; lognormal stays continuous */
+  /** default route: the severities with a damped transform (lognormal, pareto, weibull, lomax, burr, log-logistic)
+   *  stay continuous; the others are discretised */
   auto?: boolean;
   /** largest number of lattice points kept (power of two; default 2^16, 2^18 with a tolerance) */
   maxPoints?: number;

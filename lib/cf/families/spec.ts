@@ -10,6 +10,7 @@ export type FamilyParams = Readonly<Record<string, number | string | undefined>>
  * catalogue. Adding a family is one entry here plus its module.
  */
 import type { Node } from "../node";
+import { shiftDamped } from "../damped-cf";
 import { cauchy, gammaLaw, laplace, logistic, nig, normal, studentT, uniform, varianceGamma } from "./continuous";
 import { stable } from "./stable";
 import { lognormal, pareto, weibull } from "./numeric";
@@ -753,6 +754,9 @@ function shiftBuilt(n: Node, b: number): Node {
     },
     cumulants: (m) => n.cumulants(m).map((v, k) => (k === 0 && v !== null ? v + b : v)),
     ...(n.dist ? { dist: affineDist(n.dist, 1, b) } : {}),
+    // the damped transform and the endpoint expansion move with the law (else a compound would use the unshifted ones)
+    ...(n.dampedLogCf ? { dampedLogCf: shiftDamped(b, n) } : {}),
+    ...(n.laplaceExpansion ? { laplaceExpansion: { ...n.laplaceExpansion, at: n.laplaceExpansion.at + b } } : {}),
     ...(n.severity && b > 0 ? { severity: { ...n.severity, lo: n.severity.lo + b, pdf: (x: number) => n.severity!.pdf(x - b), upper: (q: number) => n.severity!.upper(q) + b } } : {}),
     ...(n.severity && b < 0 ? { severity: undefined } : {}),
   };
