@@ -2,6 +2,7 @@ import { DATASET_ID } from "@/lib/datasets/schemas";
 import { MAX_GRID_POINTS } from "@/lib/cf/limits";
 import { OPERATOR_SPECS, OPERATORS } from "@/lib/cf/notation";
 import { FamilySchema } from "@/lib/cf/schema";
+import { DENSITY_METHODS, QUANTILE_METHODS, describeMethods } from "@/lib/cf/methods";
 import { withinLimit, z } from "./zod";
 
 // The model notation for the OpenAPI document, built from the notation's one table (lib/cf/notation.ts) with each
@@ -60,7 +61,7 @@ export const AtomSchema = z.object({ x: z.number(), p: z.number() }).openapi("At
 
 export const Diagnostics = z
   .object({
-    method: z.string().openapi({ description: "method used: fft, gil-pelaez, lattice-table (tabulated recursion or convolution), discretised (opt-in discretisation of a continuous severity), lattice-fft or atoms; a single named family, alone or scaled / shifted, is evaluated without inversion: closed-form, special-function, or stable-integral (stable laws: integral representation and tail series)" }),
+    method: z.enum(DENSITY_METHODS).openapi({ description: `method used: ${describeMethods(DENSITY_METHODS)}` }),
     gridSize: z.number(),
     terms: z.number(),
     frequencyStep: z.number(),
@@ -84,7 +85,7 @@ export const Diagnostics = z
 
 export const QuantileDiagnostics = z
   .object({
-    method: z.string().openapi({ description: "method used: gil-pelaez (inversion of the CF), lattice-table, discretised (opt-in discretisation of a continuous severity), lattice-fft or atoms" }),
+    method: z.enum(QUANTILE_METHODS).openapi({ description: `method used: ${describeMethods(QUANTILE_METHODS)}` }),
     terms: z.number().openapi({ description: "frequency nodes (or table points) used" }),
     range: z.object({ from: z.number(), to: z.number() }),
     cdfError: z.number().openapi({ description: "bound on |F_computed - F| used by the root finder" }),

@@ -18,6 +18,7 @@ import { density } from "./invert/density";
 import { quantiles } from "./invert/quantile";
 import { solveLattice } from "./invert/lattice";
 import type { CompoundBracket } from "./discretise";
+import type { RiskMethod } from "./methods";
 
 export type Tail = "upper" | "lower";
 
@@ -47,14 +48,14 @@ export interface RiskResult {
   returnPeriod?: MeasureValues;
   outside?: { value: number; ppm: number; error: number };
   notes: string[];
-  diagnostics: { method: string; cdfError: number };
+  diagnostics: { method: RiskMethod; cdfError: number };
 }
 
 const EPS = Number.EPSILON;
 
 /** What the measures need from a law: F and S at points, quantiles, ES, and the integral of F from the left. */
 interface Backend {
-  method: string;
+  method: RiskMethod;
   cdfError: number;
   /** F(x), S(x), P(X = x) with a common absolute error bound */
   at(xs: number[]): { F: number[]; S: number[]; atom: number[]; err: number };

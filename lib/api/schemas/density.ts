@@ -1,6 +1,7 @@
 import { AtomSchema, Diagnostics, GridSpec, Meta, Points } from "@/lib/api/common-schemas";
 import { modelRequest } from "@/lib/api/model-field";
 import { z } from "@/lib/api/zod";
+import { DISCRETISE_OPT_IN } from "@/lib/cf/methods";
 
 export const { doc: DensityRequest, body: DensityBody } = modelRequest("DensityRequest", {
   x: Points.optional().openapi({ description: "arbitrary points, evaluated pointwise (good for tails); or give grid; neither: an automatic grid" }),
@@ -8,7 +9,7 @@ export const { doc: DensityRequest, body: DensityBody } = modelRequest("DensityR
   method: z
     .enum(["auto", "fft", "gil-pelaez", "discretise"])
     .optional()
-    .openapi({ description: "default auto: FFT on grids, Gil-Pelaez at points; discretise: opt-in mean-preserving discretisation of lognormal, pareto and weibull severities inside compounds (a lattice approximation with its error bound)" }),
+    .openapi({ description: `default auto: a single named family directly, aggregate laws bounded below by the damped transform, others by FFT on grids and Gil-Pelaez at points; fft / gil-pelaez ask for that inversion; discretise: ${DISCRETISE_OPT_IN}` }),
   tolerance: z
     .number()
     .min(1e-14, { error: "tolerance below 1e-14 cannot be met in double precision" })

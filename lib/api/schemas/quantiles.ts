@@ -1,4 +1,5 @@
 import { Meta, QuantileDiagnostics } from "@/lib/api/common-schemas";
+import { DISCRETISE_OPT_IN } from "@/lib/cf/methods";
 import { modelRequest } from "@/lib/api/model-field";
 import { withinLimit, z } from "@/lib/api/zod";
 
@@ -27,7 +28,7 @@ export const { doc: QuantilesRequest, body: QuantilesBody } = modelRequest("Quan
   method: z
     .enum(["auto", "discretise"])
     .optional()
-    .openapi({ description: "auto (default): the continuous law is inverted from its CF; discretise: opt-in mean-preserving discretisation of lognormal, pareto and weibull severities inside compounds (a lattice approximation, labelled as such, with its error bound)" }),
+    .openapi({ description: `auto (default): the law is evaluated directly or inverted from its CF (damped for aggregate laws bounded below); discretise: ${DISCRETISE_OPT_IN}` }),
 });
 
 export const QuantilesResponse = z

@@ -1,4 +1,5 @@
 import { Meta } from "@/lib/api/common-schemas";
+import { DISCRETISE_OPT_IN, RISK_METHODS, describeMethods } from "@/lib/cf/methods";
 import { modelRequest } from "@/lib/api/model-field";
 import { withinLimit, z } from "@/lib/api/zod";
 
@@ -53,7 +54,7 @@ export const { doc: RiskRequest, body: RiskBody } = modelRequest("RiskRequest", 
   method: z
     .enum(["auto", "discretise"])
     .optional()
-    .openapi({ description: "auto (default) or discretise: opt-in mean-preserving discretisation of continuous severities inside compounds" }),
+    .openapi({ description: `auto (default) or discretise: ${DISCRETISE_OPT_IN}` }),
 });
 
 const Measure = z
@@ -77,7 +78,9 @@ export const RiskResponse = z
       .optional()
       .openapi({ description: "P(S < lsl) + P(S > usl), the same in parts per million, and the error bound of the probability" }),
     notes: z.array(z.string()).openapi({ description: "why a value is null, and every approximation made in the model" }),
-    diagnostics: z.object({ method: z.string(), cdfError: z.number() }).openapi({ description: "route (lattice-table, discretised, lattice-fft or inversion) and the cdf error bound it works with" }),
+    diagnostics: z
+      .object({ method: z.enum(RISK_METHODS).openapi({ description: `route: ${describeMethods(RISK_METHODS)}` }), cdfError: z.number() })
+      .openapi({ description: "the route and the cdf error bound it works with" }),
     meta: Meta,
   })
   .openapi("RiskResponse");
