@@ -20,6 +20,8 @@ export const METHOD_MEANINGS = {
   "closed-form": "a single named family (alone, scaled or shifted) evaluated from its closed form, no inversion",
   "special-function": "a single named family evaluated from special functions (incomplete gamma, beta, ...), no inversion",
   "stable-integral": "a stable law evaluated from its integral representation and tail series, no inversion",
+  mixture:
+    "a mixture (possibly scaled or shifted) answered from its components, each by its own route (the notes name them); values and bounds are the weighted sums",
   inversion: "the measures from the law's cdf and quantiles as /density and /quantiles answer them (their method in the notes)",
   "discretised-bounds":
     "a compound of per-claim layers bracketed between the compounds of the claims rounded down and up; each value is the middle of the bracket, its error half the width",
@@ -27,11 +29,11 @@ export const METHOD_MEANINGS = {
 
 export type MethodName = keyof typeof METHOD_MEANINGS;
 
-export const DENSITY_METHODS = ["fft", "gil-pelaez", "fft-damped", "gil-pelaez-damped", "lattice-table", "discretised", "lattice-fft", "atoms", "closed-form", "special-function", "stable-integral"] as const satisfies readonly MethodName[];
+export const DENSITY_METHODS = ["fft", "gil-pelaez", "fft-damped", "gil-pelaez-damped", "lattice-table", "discretised", "lattice-fft", "atoms", "mixture", "closed-form", "special-function", "stable-integral"] as const satisfies readonly MethodName[];
 /** POST /risk: a lattice table's route, the inversion routes, or the layered bracket */
 export const RISK_METHODS = ["lattice-table", "discretised", "lattice-fft", "inversion", "discretised-bounds"] as const satisfies readonly MethodName[];
 export type RiskMethod = (typeof RISK_METHODS)[number];
-export const QUANTILE_METHODS = ["gil-pelaez", "gil-pelaez-damped", "lattice-table", "discretised", "lattice-fft", "atoms", "closed-form", "special-function", "stable-integral"] as const satisfies readonly MethodName[];
+export const QUANTILE_METHODS = ["gil-pelaez", "gil-pelaez-damped", "lattice-table", "discretised", "lattice-fft", "atoms", "mixture", "closed-form", "special-function", "stable-integral"] as const satisfies readonly MethodName[];
 
 /** what the request option method = "discretise" does (the request schemas' descriptions) */
 export const DISCRETISE_OPT_IN =
