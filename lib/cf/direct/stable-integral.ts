@@ -11,6 +11,12 @@ import { solveY, stableSide, yAtW, type StableSide, type ThetaNode } from "./sta
  * y = w + log(Theta_low / Theta_high), exponentially convergent for integrands analytic in a strip (Trefethen &
  * Weideman 2014, SIAM Review 56(3), sec. 5). Error estimate: the difference to the sum on every second node,
  * plus rigorous bounds on the parts left out, plus the effect of each node's error in w.
+ *
+ * The far left of the kernel (v = log h + w below V_TAIL, where K(v) = sum_k (-1)^k e^{(k+1) v} / k! converges fast)
+ * is summed from prefix sums of the stored grid: sum_{i <= j} c_i e^{m v_i} = e^{m v_j} sum_{i <= j} c_i e^{m (w_i - w_j)},
+ * the last factor stored per node for m = 1..TAIL_TERMS, so each point marches only over the kernel's bulk. The sums
+ * are the same trapezoid sums (also the every-second-node sum of the error estimate), up to the omitted terms, which
+ * are bounded and added to the error.
  */
 export interface StableIntegrals {
   I0: number;
@@ -27,6 +33,10 @@ const DY = 0.25;
 const CAP = 1 << 16;
 /** parts left out are bounded below this fraction of the sum so far (their bound joins the error estimate) */
 const REL = 1e-13;
+/** below this v the left tail comes from the prefix sums; e^V_TAIL = 2.5e-3 */
+const V_TAIL = -6;
+/** terms of the series of K(v) summed from the prefix sums; the omitted part is below e^{(M+1) v} / M! per node */
+const TAIL_TERMS = 5;
 
 interface Row {
   w: number;
@@ -50,6 +60,17 @@ class NodeGrid {
   jFirst = -Infinity;
   jLast = Infinity;
   private hint = { from: 0 as 0 | 1, t: NaN };
+  /**
+   * pre[(3 * (m - 1) + t)][i] = sum_{k <= i} c_t(k) e^{m (w_k - w_i)} with c_0 = ww tl, c_1 = ww th, c_2 = wt;
+   * alt[...] the same with (-1)^(k+1) c_t(k) (the difference of the every-node and every-second-node sums);
+   * qre[t][i] = sum_{k <= i} c_t(k) q(k) e^{w_k - w_i}, q = 4 eps |w| + res (each node's error in v)
+   */
+  pre: Float64Array[] = [];
+  alt: Float64Array[] = [];
+  qre: Float64Array[] = [];
+  /** index of the first stored node that exists */
+  iFirst = 0;
+  private preDirty = true;
   yHint = { from: 0 as 0 | 1, t: NaN };
   private node: ThetaNode = { w: 0, thLow: 0, thHigh: 0, dw: 0, dth: 0, res: 0 };
   constructor(readonly side: StableSide) {}
@@ -92,6 +113,7 @@ class NodeGrid {
     this.res = grow(this.res);
     this.lo = lo;
     this.n = size;
+    this.preDirty = true;
     const r: Row = { w: 0, tl: 0, th: 0, ww: 0, wt: 0, res: 0 };
     const fill = (j: number) => {
       const i = j - lo;
@@ -116,6 +138,52 @@ class NodeGrid {
       for (let j = oldLo + oldN; j <= hi; j++) fill(j);
     }
     return true;
+  }
+  /** the prefix sums of the stored grid (recomputed after the grid grew) */
+  prefix(): void {
+    if (!this.preDirty) return;
+    this.preDirty = false;
+    const n = this.n;
+    const mk = (k: number) => Array.from({ length: k }, () => new Float64Array(n));
+    this.pre = mk(3 * TAIL_TERMS);
+    this.alt = mk(3 * TAIL_TERMS);
+    this.qre = mk(3);
+    const accP = new Float64Array(3 * TAIL_TERMS);
+    const accA = new Float64Array(3 * TAIL_TERMS);
+    const accQ = new Float64Array(3);
+    const c = new Float64Array(3);
+    let wPrev = NaN;
+    this.iFirst = n;
+    for (let i = 0; i < n; i++) {
+      const tl = this.tl[i];
+      if (tl === tl) {
+        if (this.iFirst === n) this.iFirst = i;
+        const w = this.w[i];
+        const d = wPrev === wPrev ? w - wPrev : Infinity;
+        const e1 = Math.exp(-d);
+        c[0] = this.ww[i] * tl;
+        c[1] = this.ww[i] * this.th[i];
+        c[2] = this.wt[i];
+        const sg = (this.lo + i) & 1 ? 1 : -1;
+        const q = 4 * Number.EPSILON * Math.abs(w) + this.res[i];
+        let f = 1;
+        for (let m = 1; m <= TAIL_TERMS; m++) {
+          f *= e1;
+          for (let t = 0; t < 3; t++) {
+            const k = 3 * (m - 1) + t;
+            accP[k] = accP[k] * f + c[t];
+            accA[k] = accA[k] * f + sg * c[t];
+          }
+        }
+        for (let t = 0; t < 3; t++) accQ[t] = accQ[t] * e1 + c[t] * q;
+        wPrev = w;
+      }
+      for (let k = 0; k < 3 * TAIL_TERMS; k++) {
+        this.pre[k][i] = accP[k];
+        this.alt[k][i] = accA[k];
+      }
+      for (let t = 0; t < 3; t++) this.qre[t][i] = accQ[t];
+    }
   }
   /** row j from the store, else computed on the fly; false when the node does not exist */
   row(j: number, out: Row): boolean {
@@ -243,19 +311,82 @@ export function stableIntegrals(alpha: number, beta: number, lhAbs: number): Sta
       break;
     }
   }
-  // march left (v decreasing)
+  // march left (v decreasing); far left, the stored grid's prefix sums give the rest of the sums at once
   let l0 = 0, l1 = 0, lp = 0;
-  for (let j = jStart - 1; ; j--) {
-    if (!g.row(j, r)) {
-      l0 = l1 = lp = 0;
-      break;
-    }
-    const v = add(j);
+  let T0 = 0, T1 = 0, Tp = 0;
+  const leftRemainder = (v: number) => {
     const below = bounded ? Math.exp(-Math.exp(vEnd)) * -Math.expm1(-(Math.exp(v) - Math.exp(vEnd))) : -Math.expm1(-Math.exp(v));
     const kLeft = v <= 0 ? kernel(v) : bounded && vEnd > 0 ? kernel(vEnd) : 1 / Math.E;
     l0 = r.tl * below;
     l1 = L * below;
     lp = kLeft * r.tl;
+  };
+  for (let j = jStart - 1; ; j--) {
+    if (!g.row(j, r)) {
+      l0 = l1 = lp = 0;
+      break;
+    }
+    const vj = lh + r.w;
+    const i = j - g.lo;
+    if (vj <= V_TAIL && i >= 0 && i < g.n) {
+      g.prefix();
+      // sum over the stored nodes k <= j of c_t(k) K(v_k), K(v) = sum_{m >= 1} (-1)^(m-1) e^{m v} / (m-1)!
+      const x = Math.exp(vj);
+      let xm = 1;
+      let fact = 1;
+      const S = [0, 0, 0];
+      const D = [0, 0, 0];
+      for (let m = 1; m <= TAIL_TERMS; m++) {
+        xm *= x;
+        if (m > 1) fact *= m - 1;
+        const cm = ((m & 1 ? 1 : -1) * xm) / fact;
+        for (let t = 0; t < 3; t++) {
+          S[t] += cm * g.pre[3 * (m - 1) + t][i];
+          D[t] += cm * g.alt[3 * (m - 1) + t][i];
+        }
+      }
+      A0 += S[0];
+      A1 += S[1];
+      Ap += S[2];
+      // D = (every-node sum) - (every-second-node sum) of the tail
+      B0 += S[0] - D[0];
+      B1 += S[1] - D[1];
+      Bp += S[2] - D[2];
+      // omitted terms of the series (below x^M / M! of the first) and each node's error in v (|dK/dv| <= e^v)
+      const omit = (xm * x) / (fact * TAIL_TERMS);
+      T0 = omit * g.pre[0][i];
+      T1 = omit * g.pre[1][i];
+      Tp = omit * g.pre[2][i];
+      P0 += x * g.qre[0][i];
+      P1 += x * g.qre[1][i];
+      Pp += x * g.qre[2][i];
+      out.nodes += 2 * TAIL_TERMS;
+      // what lies left of the stored grid
+      const iF = g.iFirst;
+      const jF = g.lo + iF;
+      if (jF <= g.jFirst || iF > 0) {
+        l0 = l1 = lp = 0;
+        break;
+      }
+      g.row(jF, r);
+      leftRemainder(lh + r.w);
+      if (l0 <= REL * A0 && l1 <= REL * A1 && lp <= REL * Ap) break;
+      if (r.tl === 0) break;
+      // rare: the stored grid ends before the kernel is negligible; march on beyond it
+      for (let jj = jF - 1; ; jj--) {
+        if (!g.row(jj, r)) {
+          l0 = l1 = lp = 0;
+          break;
+        }
+        const v = add(jj);
+        leftRemainder(v);
+        if (l0 <= REL * A0 && l1 <= REL * A1 && lp <= REL * Ap) break;
+        if (r.tl === 0) break;
+      }
+      break;
+    }
+    const v = add(j);
+    leftRemainder(v);
     if (l0 <= REL * A0 && l1 <= REL * A1 && lp <= REL * Ap) break;
     if (r.tl === 0) break;
   }
@@ -266,8 +397,8 @@ export function stableIntegrals(alpha: number, beta: number, lhAbs: number): Sta
   out.Ip = Ap;
   const round = 1e-15;
   // for an exponentially convergent rule the error of the h-sum is far below its difference to the 2h-sum
-  out.e0 = Math.abs(A0 - B0) + r0 + l0 + P0 + round * A0 + 1e-13 * A0;
-  out.e1 = Math.abs(A1 - B1) + r1 + l1 + P1 + round * (A1 + b1) + 1e-13 * A1;
-  out.ep = Math.abs(Ap - Bp) + rp + lp + Pp + round * Ap + 1e-13 * Ap;
+  out.e0 = Math.abs(A0 - B0) + r0 + l0 + P0 + T0 + round * A0 + 1e-13 * A0;
+  out.e1 = Math.abs(A1 - B1) + r1 + l1 + P1 + T1 + round * (A1 + b1) + 1e-13 * A1;
+  out.ep = Math.abs(Ap - Bp) + rp + lp + Pp + Tp + round * Ap + 1e-13 * Ap;
   return out;
 }

@@ -20,14 +20,42 @@ export interface SeriesValue {
 
 const MAX_TERMS = 60;
 
-export function stableTailSeries(alpha: number, beta: number, z: number): SeriesValue | null {
-  if (!(z > 0) || alpha === 1) return null;
-  // beta = -1 leaves no power tail on this side (the law's right tail is lighter than any power)
-  if (beta === -1) return null;
+/** Per-law coefficients of the series (the lgamma and sine of each term do not depend on z). */
+interface Coeffs {
+  /** log(c^k Gamma(k alpha) / k!) and log(c^k Gamma(k alpha + 1) / k!), k = 1 .. MAX_TERMS + 1 */
+  lSf: Float64Array;
+  lPdf: Float64Array;
+  /** (-1)^(k+1) sin(k alpha (pi/2 + theta0)) */
+  sgn: Float64Array;
+}
+const cache = new Map<string, Coeffs>();
+
+function coeffsFor(alpha: number, beta: number): Coeffs {
+  const key = `${alpha}:${beta}`;
+  let c = cache.get(key);
+  if (c) return c;
   const tb = beta * Math.tan((Math.PI * alpha) / 2);
   const theta0 = alpha < 1 && beta === 1 ? Math.PI / 2 : alpha > 1 && beta === -1 ? Math.PI / alpha - Math.PI / 2 : Math.atan(tb) / alpha;
   const logc = 0.5 * Math.log1p(tb * tb);
   const phase = alpha * (Math.PI / 2 + theta0);
+  const n = MAX_TERMS + 2;
+  c = { lSf: new Float64Array(n), lPdf: new Float64Array(n), sgn: new Float64Array(n) };
+  for (let k = 1; k < n; k++) {
+    const base = k * logc - lgamma(k + 1);
+    c.lSf[k] = base + lgamma(k * alpha);
+    c.lPdf[k] = base + lgamma(k * alpha + 1);
+    c.sgn[k] = (k % 2 ? 1 : -1) * Math.sin(k * phase);
+  }
+  if (cache.size > 64) cache.clear();
+  cache.set(key, c);
+  return c;
+}
+
+export function stableTailSeries(alpha: number, beta: number, z: number): SeriesValue | null {
+  if (!(z > 0) || alpha === 1) return null;
+  // beta = -1 leaves no power tail on this side (the law's right tail is lighter than any power)
+  if (beta === -1) return null;
+  const { lSf, lPdf, sgn } = coeffsFor(alpha, beta);
   const lz = Math.log(z);
   let sf = 0;
   let pdf = 0;
@@ -38,24 +66,24 @@ export function stableTailSeries(alpha: number, beta: number, z: number): Series
   let lastPdf = 0;
   let converged = false;
   for (let k = 1; k <= MAX_TERMS; k++) {
-    const sn = Math.sin(k * phase);
-    const base = k * logc - lgamma(k + 1) - k * alpha * lz;
-    const tSf = (k % 2 ? 1 : -1) * sn * Math.exp(base + lgamma(k * alpha));
-    const tPdf = (k % 2 ? 1 : -1) * sn * Math.exp(base + lgamma(k * alpha + 1) - lz);
-    const mag = Math.exp(base + lgamma(k * alpha));
+    const kal = k * alpha * lz;
+    // the size of a term regardless of its sine (which may vanish by accident)
+    const mag = Math.exp(lSf[k] - kal);
+    const magPdf = Math.exp(lPdf[k] - kal - lz);
+    const tSf = sgn[k] * mag;
+    const tPdf = sgn[k] * magPdf;
     // a series whose terms grow from the start (z too small) or overflow is not used
     if (!Number.isFinite(mag) || (k === 2 && mag > prevSf)) return null;
     // each term is exp(argument): its relative error is about eps times the argument's size (plus lgamma's ~1e-15)
-    const termRel = 2e-14 + 4 * Number.EPSILON * Math.abs(base + lgamma(k * alpha + 1));
-    // the size of a term regardless of its sine (which may vanish by accident)
+    const termRel = 2e-14 + 4 * Number.EPSILON * Math.abs(lPdf[k] - kal);
     if (mag > prevSf && alpha > 1) break; // asymptotic series: stop before the terms grow
-    if (k > 1 && mag <= 1e-13 * Math.abs(sf) && Math.exp(base + lgamma(k * alpha + 1) - lz) <= 1e-13 * Math.abs(pdf)) {
+    if (k > 1 && mag <= 1e-13 * Math.abs(sf) && magPdf <= 1e-13 * Math.abs(pdf)) {
       lastSf = Math.abs(tSf) + mag * 1e-3;
-      lastPdf = Math.abs(tPdf) + Math.exp(base + lgamma(k * alpha + 1) - lz) * 1e-3;
+      lastPdf = Math.abs(tPdf) + magPdf * 1e-3;
       // one more term's size as the omitted part (the sine may be small at this k but not at the next)
-      const base2 = (k + 1) * logc - lgamma(k + 2) - (k + 1) * alpha * lz;
-      lastSf = Math.max(lastSf, Math.exp(base2 + lgamma((k + 1) * alpha)));
-      lastPdf = Math.max(lastPdf, Math.exp(base2 + lgamma((k + 1) * alpha + 1) - lz));
+      const kal2 = (k + 1) * alpha * lz;
+      lastSf = Math.max(lastSf, Math.exp(lSf[k + 1] - kal2));
+      lastPdf = Math.max(lastPdf, Math.exp(lPdf[k + 1] - kal2 - lz));
       converged = true;
       break;
     }
