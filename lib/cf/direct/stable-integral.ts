@@ -243,6 +243,7 @@ export function stableIntegrals(alpha: number, beta: number, lhAbs: number): Sta
   const lh = lhAbs + side.wRef;
   const bounded = Number.isFinite(side.wLowEnd);
   const vEnd = bounded ? lh : -Infinity; // v at the finite end (w = 0 there)
+  const eEnd = Math.exp(vEnd);
   // start where v = 0, or at the finite end when all of log V lies above -lh
   let yStart = NaN;
   const n = g.n;
@@ -267,11 +268,16 @@ export function stableIntegrals(alpha: number, beta: number, lhAbs: number): Sta
   g.ensure(jStart - 2 * span, jStart + span);
   const r: Row = { w: 0, tl: 0, th: 0, ww: 0, wt: 0, res: 0 };
   let A0 = 0, A1 = 0, Ap = 0, B0 = 0, B1 = 0, Bp = 0, P0 = 0, P1 = 0, Pp = 0;
+  // e^v and K(v) of the last node added
+  let sLast = 0;
+  let kLast = 0;
   const add = (j: number): number => {
     const v = lh + r.w;
     const s = Math.exp(v);
     // K = exp(v - e^v) without forming e^v e^{-e^v} (which is Inf * 0 when e^v overflows)
     const K = Math.exp(v - s);
+    sLast = s;
+    kLast = K;
     if (K === 0) {
       out.nodes++;
       return v;
@@ -301,10 +307,10 @@ export function stableIntegrals(alpha: number, beta: number, lhAbs: number): Sta
   for (let j = jStart; ; j++) {
     if (!g.row(j, r)) break; // at the high end: nothing is left out
     const v = add(j);
-    const ex = Math.exp(-Math.exp(v));
+    const ex = Math.exp(-sLast);
     r0 = L * ex;
     r1 = r.th * ex;
-    rp = (v > 0 ? kernel(v) : 1 / Math.E) * r.th;
+    rp = (v > 0 ? kLast : 1 / Math.E) * r.th;
     if (v > 0 && r0 <= REL * A0 && r1 <= REL * A1 && rp <= REL * Ap) break;
     if (ex === 0) {
       r0 = r1 = rp = 0;
@@ -315,8 +321,10 @@ export function stableIntegrals(alpha: number, beta: number, lhAbs: number): Sta
   let l0 = 0, l1 = 0, lp = 0;
   let T0 = 0, T1 = 0, Tp = 0;
   const leftRemainder = (v: number) => {
-    const below = bounded ? Math.exp(-Math.exp(vEnd)) * -Math.expm1(-(Math.exp(v) - Math.exp(vEnd))) : -Math.expm1(-Math.exp(v));
-    const kLeft = v <= 0 ? kernel(v) : bounded && vEnd > 0 ? kernel(vEnd) : 1 / Math.E;
+    // with a finite end: exp(-h V_end) (1 - exp(-(h V - h V_end))), 0 when exp(-h V_end) underflows (Inf - Inf is NaN)
+    const fEnd = bounded ? Math.exp(-eEnd) : 1;
+    const below = bounded ? (fEnd === 0 ? 0 : fEnd * -Math.expm1(-(sLast - eEnd))) : -Math.expm1(-sLast);
+    const kLeft = v <= 0 ? kLast : bounded && vEnd > 0 ? kernel(vEnd) : 1 / Math.E;
     l0 = r.tl * below;
     l1 = L * below;
     lp = kLeft * r.tl;
@@ -334,24 +342,26 @@ export function stableIntegrals(alpha: number, beta: number, lhAbs: number): Sta
       const x = Math.exp(vj);
       let xm = 1;
       let fact = 1;
-      const S = [0, 0, 0];
-      const D = [0, 0, 0];
+      let S0 = 0, S1 = 0, Sp = 0, D0 = 0, D1 = 0, Dp = 0;
       for (let m = 1; m <= TAIL_TERMS; m++) {
         xm *= x;
         if (m > 1) fact *= m - 1;
         const cm = ((m & 1 ? 1 : -1) * xm) / fact;
-        for (let t = 0; t < 3; t++) {
-          S[t] += cm * g.pre[3 * (m - 1) + t][i];
-          D[t] += cm * g.alt[3 * (m - 1) + t][i];
-        }
+        const k = 3 * (m - 1);
+        S0 += cm * g.pre[k][i];
+        S1 += cm * g.pre[k + 1][i];
+        Sp += cm * g.pre[k + 2][i];
+        D0 += cm * g.alt[k][i];
+        D1 += cm * g.alt[k + 1][i];
+        Dp += cm * g.alt[k + 2][i];
       }
-      A0 += S[0];
-      A1 += S[1];
-      Ap += S[2];
+      A0 += S0;
+      A1 += S1;
+      Ap += Sp;
       // D = (every-node sum) - (every-second-node sum) of the tail
-      B0 += S[0] - D[0];
-      B1 += S[1] - D[1];
-      Bp += S[2] - D[2];
+      B0 += S0 - D0;
+      B1 += S1 - D1;
+      Bp += Sp - Dp;
       // omitted terms of the series (below x^M / M! of the first) and each node's error in v (|dK/dv| <= e^v)
       const omit = (xm * x) / (fact * TAIL_TERMS);
       T0 = omit * g.pre[0][i];
@@ -369,7 +379,10 @@ export function stableIntegrals(alpha: number, beta: number, lhAbs: number): Sta
         break;
       }
       g.row(jF, r);
-      leftRemainder(lh + r.w);
+      const vF = lh + r.w;
+      sLast = Math.exp(vF);
+      kLast = Math.exp(vF - sLast);
+      leftRemainder(vF);
       if (l0 <= REL * A0 && l1 <= REL * A1 && lp <= REL * Ap) break;
       if (r.tl === 0) break;
       // rare: the stored grid ends before the kernel is negligible; march on beyond it
@@ -386,6 +399,9 @@ export function stableIntegrals(alpha: number, beta: number, lhAbs: number): Sta
       break;
     }
     const v = add(j);
+    // above V_TAIL on the stored grid the prefix sums take over further left: no remainder to check yet (with a
+    // finite end, v may stay above V_TAIL down to the end, and the remainder decides where to stop)
+    if (!bounded && i > 0 && i < g.n) continue;
     leftRemainder(v);
     if (l0 <= REL * A0 && l1 <= REL * A1 && lp <= REL * Ap) break;
     if (r.tl === 0) break;
