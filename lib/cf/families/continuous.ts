@@ -1,6 +1,7 @@
 import { bernoulliNumbers, factorial, lgamma, logBesselKScaled } from "./special";
 import { cumulantList, NONE_MOMENT, rawToCumulants, type Node } from "../node";
 import { gammaDamped } from "../damped-cf";
+import { arithmeticNodes, expSumArithmetic } from "./cf-quadrature";
 
 const B = bernoulliNumbers(40);
 const CONT = { type: "continuous" } as const;
@@ -301,13 +302,19 @@ export function studentT(nu: number, loc: number, scale: number): Node {
     const log1 = peakSum((u) => half * u - a * Math.expm1(u) - b * Math.expm1(-u), width);
     return top + log1 - log0;
   };
+  const one = (z: number) =>
+    z === 0 ? 0 : z === Infinity ? -Infinity : nu > 100 && z < 1e100 ? mixtureLogCf(z) : c0 + half * Math.log(z) + logBesselKScaled(half, z) - z;
   return base({
     logCf(t, re, im) {
-      for (let k = 0; k < t.length; k++) {
-        const z = sq * Math.abs(t[k]);
-        re[k] = z === 0 ? 0 : z === Infinity ? -Infinity : nu > 100 && z < 1e100 ? mixtureLogCf(z) : c0 + half * Math.log(z) + logBesselKScaled(half, z) - z;
-        im[k] = loc * t[k];
+      let k0 = 0;
+      // equispaced t (the inversion's nodes) up to z = 64: one trapezoidal rule for every z (below)
+      if (nu <= 100 && arithmeticNodes(t)) {
+        while (k0 < t.length && sq * t[k0] <= BATCH_Z) k0++;
+        if (k0 >= 64) besselBatch(half, t.subarray(0, k0), sq, c0, re);
+        else k0 = 0;
       }
+      for (let k = k0; k < t.length; k++) re[k] = one(sq * Math.abs(t[k]));
+      for (let k = 0; k < t.length; k++) im[k] = loc * t[k];
     },
     momentIndex: nu,
     cumulants: (n) => {
@@ -321,4 +328,43 @@ export function studentT(nu: number, loc: number, scale: number): Node {
     support: [-Infinity, Infinity],
     tails: { left: nu, right: nu },
   });
+}
+
+/** the largest z = sqrt(nu) scale t that besselBatch takes (beyond, one rule per z) */
+const BATCH_Z = 64;
+
+/**
+ * log of c0 z^nu K_nu(z) at z_k = sq t_k for equispaced t_k > 0 (the Student t CF), from
+ * e^z K_nu(z) = int_0^inf e^{-z (cosh u - 1)} cosh(nu u) du (A&S 9.6.24) by the trapezoidal rule on the even
+ * integrand with one step for every z of the batch: h = min(0.1, 0.25 / sqrt(max(z_max, nu, 1))), no larger than the
+ * step logBesselKScaled takes for any single z (width / 4 of the peak, at most 0.1); the nodes reach U where the
+ * integrand at the smallest z is below 1e-18 of the u = 0 term and falls by e^{-1} per step or faster. The terms are positive (no cancellation), summed by
+ * expSumArithmetic in the Laplace form exp(-z (cosh u_j - 1)).
+ */
+function besselBatch(nu: number, t: Float64Array, sq: number, c0: number, re: Float64Array): void {
+  const K = t.length;
+  const zMin = sq * t[0];
+  const zMax = sq * t[K - 1];
+  const h = Math.min(0.1, 0.25 / Math.sqrt(Math.max(zMax, nu, 1)));
+  let n = 1;
+  for (; n < 1e6; n++) {
+    const u = n * h;
+    if (-zMin * (Math.cosh(u) - 1) + nu * u < -41.5 && zMin * Math.sinh(u) >= nu + 1 / h) break;
+  }
+  const cRe = new Float64Array(n + 1);
+  const cIm = new Float64Array(n + 1);
+  const e = new Float64Array(n + 1);
+  for (let j = 0; j <= n; j++) {
+    const u = j * h;
+    cRe[j] = (j === 0 ? 0.5 : 1) * h * Math.cosh(nu * u);
+    // cosh u - 1 = 2 sinh^2(u/2), without cancellation near u = 0
+    e[j] = 2 * Math.sinh(u / 2) ** 2;
+  }
+  const sr = new Float64Array(K);
+  const si = new Float64Array(K);
+  expSumArithmetic(cRe, cIm, e, -sq, 0, t, sr, si);
+  for (let k = 0; k < K; k++) {
+    const z = sq * t[k];
+    re[k] = c0 + nu * Math.log(z) + Math.log(sr[k]) - z;
+  }
 }

@@ -1,9 +1,10 @@
-import { gamma as gammaFn } from "./special";
+import { gamma as gammaFn, lgamma } from "./special";
 import { cumulantList, rawToCumulants, type Node } from "../node";
 import { checkDeadline } from "../deadline";
 import { CfError } from "../errors";
 import { fromPhiDamped } from "../damped-cf";
-import { fromPhi } from "./cf-quadrature";
+import { arithmeticNodes, expSumArithmetic, fromPhi } from "./cf-quadrature";
+import { unwrapFrom } from "../complex";
 import { paretoExpansion, paretoSeries, weibullAsymptotic, weibullExpansion, weibullSeries } from "./asymptotic";
 
 /** Stated accuracy of the numerically computed CFs below (absolute error in phi). */
@@ -30,6 +31,28 @@ function arithmetic(t: Float64Array): boolean {
   if (!(d > 0)) return false;
   for (let k = 1; k < K; k += Math.max(1, K >> 6)) if (Math.abs(t[k] - (t[0] + k * d)) > 1e-9 * t[k]) return false;
   return true;
+}
+
+/**
+ * log phi at equispaced t > 0 from the sums S_k of expSumArithmetic: phi_k = scale S_k e^{i (phase0 + phaseSlope t_k)};
+ * the imaginary part unwrapped along t.
+ */
+function logFromSums(
+  t: Float64Array,
+  sr: Float64Array,
+  si: Float64Array,
+  re: Float64Array,
+  im: Float64Array,
+  logScale: number,
+  phase0: number,
+  phaseSlope: number,
+): void {
+  for (let k = 0; k < t.length; k++) {
+    re[k] = logScale + Math.log(Math.hypot(sr[k], si[k]));
+    im[k] = Math.atan2(si[k], sr[k]);
+  }
+  unwrapFrom(im, 0);
+  for (let k = 0; k < t.length; k++) im[k] += phase0 + phaseSlope * t[k];
 }
 
 /**
@@ -126,6 +149,29 @@ export function lognormal(mu: number, sigma: number): Node {
       im[k] = Math.atan2(si[k], sr[k]);
     }
   };
+  // the same rule at beta = 0 for equispaced t (the inversion's nodes): term j is w_j g e^{-i c v_j} exp(t e_j i e^{i theta}),
+  // e_j = e^{mu + sigma v_j}, summed by expSumArithmetic
+  const qRe = new Float64Array(n);
+  const qIm = new Float64Array(n);
+  const qE = new Float64Array(n);
+  const g0 = Math.exp(0.5 * c * c);
+  for (let j = 0; j < n; j++) {
+    qRe[j] = w[j] * g0 * Math.cos(-c * v[j]);
+    qIm[j] = w[j] * g0 * Math.sin(-c * v[j]);
+    qE[j] = em * ev[j];
+  }
+  const logCfArithmetic = (t: Float64Array, re: Float64Array, im: Float64Array) => {
+    const sr = new Float64Array(t.length);
+    const si = new Float64Array(t.length);
+    expSumArithmetic(qRe, qIm, qE, -Math.sin(theta), Math.cos(theta), t, sr, si);
+    logFromSums(t, sr, si, re, im, 0, 0, 0);
+  };
+  // the bound expSumArithmetic adds (moments, recurrence), from the rule's terms: sum |c_j| = e^{c^2/2} sum w_j
+  let wSum = 0;
+  for (let j = 0; j < n; j++) wSum += w[j];
+  const shortcutError = wSum * g0 * (2e-25 + 80 * Number.EPSILON) + n * 1e-21;
+  // rule (1e-16), rounding of the direct sums (16 eps each way) and the shortcuts; stated as it is, even above 1e-13
+  const cfError = Math.max(1e-16 + 16 * Number.EPSILON * g0, shortcutError + 1e-16);
   const s2 = sigma * sigma;
   const d = Math.expm1(s2);
   return {
@@ -133,10 +179,10 @@ export function lognormal(mu: number, sigma: number): Node {
     momentIndex: Infinity,
     tails: { left: Infinity, right: Infinity },
     nodes: 1,
-    notes: [`lognormal CF computed by quadrature on a shifted contour (absolute error <= ${NUMERIC_CF_ABS_ERROR})`],
+    notes: [`lognormal CF computed by quadrature on a shifted contour (absolute error <= ${Math.max(cfError, NUMERIC_CF_ABS_ERROR).toPrecision(2)})`],
     // the step and range make the rule's own error below 1e-16; rounding: the terms' magnitudes sum to at most
     // e^{c^2/2} (the Gaussian weight on the shifted path), 16 eps each way
-    cfAbsError: Math.min(NUMERIC_CF_ABS_ERROR, 1e-16 + 16 * Number.EPSILON * Math.exp(0.5 * c * c)),
+    cfAbsError: cfError,
     dampedLogCf: (beta, t, re, im) => (arithmetic(t) ? batch(beta, t, re, im) : single(beta, t, re, im)),
     // density (JKB vol. 1, ch. 14); upper tail: P(Z > z) <= exp(-z^2/2) (Chernoff bound, common practice)
     severity: {
@@ -153,7 +199,7 @@ export function lognormal(mu: number, sigma: number): Node {
     location: Math.exp(mu + s2 / 2),
     scale: Math.exp(mu + s2 / 2) * Math.sqrt(d),
     support: [0, Infinity],
-    logCf: (t, re, im) => fromPhi(t, re, im, (x, out) => phiAt(x, 0, out)),
+    logCf: (t, re, im) => (arithmeticNodes(t) ? logCfArithmetic(t, re, im) : fromPhi(t, re, im, (x, out) => phiAt(x, 0, out))),
     cumulants: (m) => lognormalCumulants(mu, sigma, m),
   };
 }
@@ -271,6 +317,26 @@ export function weibull(k: number, lambda: number): Node {
     out[0] = sr;
     out[1] = si;
   };
+  // the same rule for equispaced t (the inversion's nodes), valid at every t (the series above is not needed):
+  // term j is amp0_j e^{i ph0_j} exp(t e_j i e^{i theta}), e_j = lambda e^{s_j}, summed by expSumArithmetic
+  const qRe = new Float64Array(n);
+  const qIm = new Float64Array(n);
+  const qE = new Float64Array(n);
+  let aSum = 0;
+  for (let j = 0; j < n; j++) {
+    qRe[j] = amp0[j] * Math.cos(ph0[j]);
+    qIm[j] = amp0[j] * Math.sin(ph0[j]);
+    qE[j] = lambda * es[j];
+    aSum += amp0[j];
+  }
+  const logCfArithmetic = (t: Float64Array, re: Float64Array, im: Float64Array) => {
+    const sr = new Float64Array(t.length);
+    const si = new Float64Array(t.length);
+    expSumArithmetic(qRe, qIm, qE, -Math.sin(theta), Math.cos(theta), t, sr, si);
+    logFromSums(t, sr, si, re, im, 0, 0, 0);
+  };
+  // sum |c_j| ~ 1 / cos(k theta) <= sqrt 2: the shortcuts add ~ 4e-14, inside the stated 1e-13
+  const cfError = Math.max(NUMERIC_CF_ABS_ERROR, 1e-16 + aSum * (2e-25 + 96 * Number.EPSILON) + n * 1e-21);
   const raw = (m: number) => lambda ** m * gammaFn(1 + m / k);
   const mean = raw(1);
   return {
@@ -278,8 +344,8 @@ export function weibull(k: number, lambda: number): Node {
     momentIndex: Infinity,
     tails: { left: Infinity, right: Infinity },
     nodes: 1,
-    notes: [`weibull CF computed by quadrature on a rotated contour (absolute error <= ${NUMERIC_CF_ABS_ERROR})`],
-    cfAbsError: NUMERIC_CF_ABS_ERROR,
+    notes: [`weibull CF computed by quadrature on a rotated contour (absolute error <= ${cfError.toPrecision(2)})`],
+    cfAbsError: cfError,
     dampedLogCf: fromPhiDamped(phiAt),
     laplaceExpansion: weibullExpansion(k, lambda),
     // density (k/lambda)(x/lambda)^(k-1) e^{-(x/lambda)^k}, sf e^{-(x/lambda)^k} (JKB vol. 1, ch. 21)
@@ -295,7 +361,7 @@ export function weibull(k: number, lambda: number): Node {
     location: mean,
     scale: Math.sqrt(Math.max(raw(2) - mean * mean, 0)) || lambda,
     support: [0, Infinity],
-    logCf: (t, re, im) => fromPhi(t, re, im, (x, out) => phiAt(x, 0, out)),
+    logCf: (t, re, im) => (arithmeticNodes(t) ? logCfArithmetic(t, re, im) : fromPhi(t, re, im, (x, out) => phiAt(x, 0, out))),
     // E X^n = lambda^n Gamma(1 + n/k) (JKB vol. 1, ch. 21)
     cumulants: (m) => rawToCumulants(Array.from({ length: m }, (_, i) => raw(i + 1))),
   };
@@ -354,14 +420,49 @@ export function pareto(alpha: number, xm: number): Node {
     out[0] = ar * c - ai * sn;
     out[1] = ar * sn + ai * c;
   };
-const raw = (m: number) => (alpha * xm ** m) / (alpha - m);
+  // equispaced t (the inversion's nodes): with u = tau r the same integral is a Laplace transform,
+  // phi(t) = e^{i tau} i alpha int_0^inf e^{-tau r} (1 + i r)^{-alpha-1} dr, and with r = e^v the trapezoidal rule
+  // of the same step h (the same strip and bound, on a shifted grid) has nodes that do not depend on tau: the sum
+  // over j of h r_j (1 + i r_j)^{-alpha-1} exp(-tau r_j) goes to expSumArithmetic. Range: the part r < r_lo is below
+  // alpha r_lo <= 1e-19; beyond r_hi, below alpha min(e^{-tau r_hi}/tau, r_hi^{-alpha}/alpha) <= 1e-19 at the
+  // smallest tau.
+  const logCfArithmetic = (t: Float64Array, re: Float64Array, im: Float64Array) => {
+    const K = t.length;
+    const tauMin = xm * t[0];
+    const rLo = 1e-19 / alpha;
+    const rHi = Math.max(1, Math.min((Math.log(alpha / tauMin) + 19 * Math.LN10) / tauMin, Math.pow(1e19, 1 / alpha)));
+    const v0 = Math.log(rLo);
+    const m = Math.ceil((Math.log(rHi) - v0) / h) + 1;
+    const cRe = new Float64Array(m);
+    const cIm = new Float64Array(m);
+    const e = new Float64Array(m);
+    for (let j = 0; j < m; j++) {
+      const r = Math.exp(v0 + j * h);
+      // (1 + i r)^{-q} = (1 + r^2)^{-q/2} e^{-i q atan r}
+      const mag = h * r * Math.exp(-0.5 * q * Math.log1p(r * r));
+      const ph = -q * Math.atan(r);
+      cRe[j] = mag * Math.cos(ph);
+      cIm[j] = mag * Math.sin(ph);
+      e[j] = r;
+    }
+    const sr = new Float64Array(K);
+    const si = new Float64Array(K);
+    expSumArithmetic(cRe, cIm, e, -xm, 0, t, sr, si);
+    // times i alpha e^{i tau}
+    logFromSums(t, sr, si, re, im, Math.log(alpha), Math.PI / 2, xm);
+  };
+  // sum_j |c_j| ~ int_0^inf (1 + r^2)^{-q/2} dr = (sqrt(pi)/2) Gamma(alpha/2) / Gamma((alpha+1)/2) (DLMF 5.12.1 with
+  // r^2 = s / (1 - s)), 1% added for the rule; times alpha for the prefactor
+  const cSum = 1.01 * 0.5 * Math.sqrt(Math.PI) * Math.exp(lgamma(alpha / 2) - lgamma((alpha + 1) / 2));
+  const cfError = Math.max(NUMERIC_CF_ABS_ERROR, alpha * (1e-16 + cSum * (2e-25 + 96 * Number.EPSILON) + 1e-18));
+  const raw = (m: number) => (alpha * xm ** m) / (alpha - m);
   return {
     kind: { type: "continuous" },
     momentIndex: alpha,
     tails: { left: Infinity, right: alpha },
     nodes: 1,
-    notes: [`pareto CF computed by quadrature on a rotated contour (absolute error <= ${NUMERIC_CF_ABS_ERROR})`],
-    cfAbsError: NUMERIC_CF_ABS_ERROR,
+    notes: [`pareto CF computed by quadrature on a rotated contour (absolute error <= ${cfError.toPrecision(2)})`],
+    cfAbsError: cfError,
     dampedLogCf: fromPhiDamped(phiAt),
     laplaceExpansion: paretoExpansion(alpha, xm),
     // density alpha xm^alpha x^(-alpha-1) on [xm, inf), sf (xm/x)^alpha (JKB vol. 1, ch. 20)
@@ -377,7 +478,7 @@ const raw = (m: number) => (alpha * xm ** m) / (alpha - m);
     location: alpha > 1 ? raw(1) : xm * 2 ** (1 / alpha),
     scale: alpha > 2 ? Math.sqrt(raw(2) - raw(1) ** 2) : xm,
     support: [xm, Infinity],
-    logCf: (t, re, im) => fromPhi(t, re, im, (x, out) => phiAt(x, 0, out)),
+    logCf: (t, re, im) => (arithmeticNodes(t) ? logCfArithmetic(t, re, im) : fromPhi(t, re, im, (x, out) => phiAt(x, 0, out))),
     // E X^n = alpha xm^n / (alpha - n), n < alpha (JKB vol. 1, ch. 20)
     cumulants: (m) => rawToCumulants(cumulantList(m, alpha, raw)),
   };
