@@ -11,6 +11,7 @@ import { MAX_LATTICE } from "./limits";
 import type { DirectLaw } from "./families/dist";
 import type { SeverityLaw } from "./discretise";
 import { restrictedIntegral } from "./quadrature";
+import { checkDeadline } from "./deadline";
 
 /** Stated absolute accuracy of the layer's CF and of its raw moments (relative) by composite Gauss-Legendre. */
 export const LAYER_CF_ABS_ERROR = 1e-12;
@@ -121,6 +122,8 @@ export function layerNode(X: Node, terms: Partial<LayerTerms>): Node {
     support: [0, c * Math.min(l, Math.max(0, X.support[1] - d))],
     logCf(t, re, im) {
       for (let k = 0; k < t.length; k++) {
+        // one quadrature per frequency (thousands of panels at high |t|): the deadline is checked at each
+        checkDeadline("layer-cf");
         const s = c * t[k];
         const [pr, pi] = integrate(
           (u) => [Math.cos(s * u), Math.sin(s * u)],

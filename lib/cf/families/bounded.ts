@@ -3,6 +3,7 @@ import { rawToCumulants, type Node } from "../node";
 import { sortedAnchor, unwrapFrom } from "../complex";
 import { lgamma } from "./special";
 import { triangularDist } from "./dist";
+import { checkDeadline } from "../deadline";
 
 /** Stated absolute accuracy of the beta CF (series, shifted-line and endpoint-contour quadratures below). */
 export const BETA_CF_ABS_ERROR = 1e-13;
@@ -140,6 +141,8 @@ export function betaLaw(alpha: number, beta: number, a: number, b: number, name 
     support: [a, b],
     logCf(t, re, im) {
       for (let k = 0; k < t.length; k++) {
+        // a series or a quadrature per frequency: the deadline is checked every 64 of them
+        if ((k & 63) === 0) checkDeadline("beta-cf");
         const x = t[k];
         if (x === 0) {
           re[k] = 0;
