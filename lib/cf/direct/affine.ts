@@ -1,4 +1,4 @@
-import type { DirectLaw, DirectPoint } from "./types";
+import { directPoint, type DirectLaw, type DirectPoint } from "./types";
 
 /**
  * The law of a X + b from the law of X (a != 0 finite): F_Y(y) = F_X((y - b)/a) for a > 0, S_X((y - b)/a) for a < 0,
@@ -11,6 +11,7 @@ export function affineDirect(law: DirectLaw, a: number, b: number): DirectLaw {
   const lo = a > 0 ? a * law.support[0] + b : a * law.support[1] + b;
   const hi = a > 0 ? a * law.support[1] + b : a * law.support[0] + b;
   const q = law.quantile;
+  const near = directPoint();
   return {
     method: law.method,
     support: [Number.isNaN(lo) ? -Infinity : lo, Number.isNaN(hi) ? Infinity : hi],
@@ -19,7 +20,17 @@ export function affineDirect(law: DirectLaw, a: number, b: number): DirectLaw {
     notes: law.notes,
     at(y: number, out: DirectPoint) {
       const x = (y - b) / a;
+      // (y - b)/a is off by at most 2 ulps of its inputs: the cdf moves by f_X times that, or, where f_X is infinite
+      // (a power singularity at the support's end), by at most F_X(x + dx) - F_X(x - dx) (both with their bounds)
+      const dx = 2 * Number.EPSILON * (Math.abs(y) + Math.abs(b)) / aa + Number.EPSILON * Math.abs(x);
       law.at(x, out);
+      let move = out.pdf * dx;
+      if (!Number.isFinite(out.pdf)) {
+        law.at(x + dx, near);
+        const up = near.cdf + near.cdfErr;
+        law.at(x - dx, near);
+        move = Math.max(up - (near.cdf - near.cdfErr), 0);
+      }
       if (a < 0) {
         const c = out.cdf;
         const ce = out.cdfErr;
@@ -28,10 +39,8 @@ export function affineDirect(law: DirectLaw, a: number, b: number): DirectLaw {
         out.sf = c;
         out.sfErr = ce;
       }
-      // (y - b)/a is off by at most 2 ulps of its inputs: the cdf moves by f_X times that
-      const dx = 2 * Number.EPSILON * (Math.abs(y) + Math.abs(b)) / aa + Number.EPSILON * Math.abs(x);
-      out.cdfErr += out.pdf * dx;
-      out.sfErr += out.pdf * dx;
+      out.cdfErr += move;
+      out.sfErr += move;
       out.pdf /= aa;
       out.pdfErr = out.pdfErr / aa + 2 * Number.EPSILON * out.pdf;
     },

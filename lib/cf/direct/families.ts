@@ -47,11 +47,17 @@ function law(method: DirectLaw["method"], support: [number, number], center: num
   };
 }
 
-/** relative error r on each value, plus pdf times the rounding dx of the argument */
+/**
+ * relative error r on each value, plus pdf times the rounding dx of the argument. An infinite pdf (a power
+ * singularity at the support's end, met exactly there, dx = 0) is the exact limit: its own error and its effect on
+ * the cdf are 0 (Infinity * 0 would make every bound of the answer NaN).
+ */
 function bounds(o: DirectPoint, r: number, rPdf: number, dx: number) {
-  o.cdfErr = r * o.cdf + o.pdf * dx;
-  o.sfErr = r * o.sf + o.pdf * dx;
-  o.pdfErr = rPdf * o.pdf;
+  const finite = Number.isFinite(o.pdf);
+  const moved = finite && dx > 0 ? o.pdf * dx : 0;
+  o.cdfErr = r * o.cdf + moved;
+  o.sfErr = r * o.sf + moved;
+  o.pdfErr = finite ? rPdf * o.pdf : 0;
 }
 
 export function normalDirect(mu: number, sigma: number): DirectLaw {
@@ -161,7 +167,7 @@ export function weibullDirect(shape: number, scale: number): DirectLaw {
       const u = x / scale;
       const lu = Math.log(u);
       const t = Math.exp(shape * lu);
-      const dt = t * 4 * EPS * (1 + Math.abs(shape * lu));
+      const dt = t > 0 ? t * 4 * EPS * (1 + Math.abs(shape * lu)) : 0; // t = 0 at x = 0 (0 * Infinity there)
       o.sf = Math.exp(-t);
       o.cdf = -Math.expm1(-t);
       o.pdf = x === 0 ? (shape < 1 ? Infinity : shape === 1 ? 1 / scale : 0) : ((shape / x) * t) * o.sf;
