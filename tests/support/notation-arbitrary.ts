@@ -81,7 +81,7 @@ const countFamilies: A[] = [
 /** probabilities from integer weights (at least one positive), normalised */
 const probs = (min: number, max: number) =>
   fc.array(int(0, 100), { minLength: min, maxLength: max }).map((w) => {
-    if (w.every((v) => v === 0)) w[0] = 1;
+    if (!w.some((v) => v > 0)) w[0] = 1;
     const s = w.reduce((a, b) => a + b, 0);
     return w.map((v) => v / s);
   });
@@ -96,7 +96,7 @@ const sample = (value: fc.Arbitrary<number>): A =>
     .map(([s, weighted, w]) => {
       if (!weighted) return { sample: s } as Model;
       const ws = s.map((_, i) => w[i]);
-      if (ws.every((v) => v === 0)) ws[0] = 1;
+      if (!ws.some((v) => v > 0)) ws[0] = 1;
       return { sample: s, weights: ws } as Model;
     });
 
