@@ -142,32 +142,36 @@ interface Solved {
   eu: number;
 }
 
-/** Solve log V - wRef = T for the distance u to the end (from = 0 low, 1 high) by Newton in s = 1/u, where log V is close to linear. */
+/**
+ * Solve log V - wRef = T for the distance u to the end (from = 0 low, 1 high) by Newton in s = 1/u, where log V is
+ * close to linear far out; c is the slope of log V in s at the end, for the first guess.
+ */
 function solveFar(side: StableSide, from: 0 | 1, T: number, c: number, out: Solved): boolean {
   const o = { lv: 0, d: 0, mag: 0 };
-  let s = Math.abs(T) / c;
-  const sMin = 4 / side.L;
-  for (let it = 0; it < 40; it++) {
-    if (!(s > sMin)) return false;
+  const sMin = 1 / side.L;
+  let s = Math.max(Math.abs(T) / c, 2 / side.L);
+  for (let it = 0; it < 60; it++) {
     const u = 1 / s;
     side.logV(from, u, o);
     const g = o.lv - T;
     const tol = 4 * Number.EPSILON * (o.mag + Math.abs(T));
-    const dlds = -o.d * u * u;
     if (Math.abs(g) <= tol) {
       out.u = u;
       out.dth = 1 / Math.abs(o.d);
       out.eu = (Math.abs(g) + 2 * tol) / Math.abs(o.d) + 2 * Number.EPSILON * u;
       return true;
     }
-    const sn = s - g / dlds;
+    const dlds = -o.d * u * u;
+    let sn = s - g / dlds;
     if (!Number.isFinite(sn)) return false;
+    // keep u inside the interval: halve the way to its far end instead of stepping past it
+    if (!(sn > sMin)) sn = 0.5 * (s + sMin);
     if (Math.abs(sn - s) <= 1e-15 * s) {
       side.logV(from, 1 / sn, o);
       out.u = 1 / sn;
       out.dth = 1 / Math.abs(o.d);
       out.eu = (Math.abs(o.lv - T) + 2 * tol) / Math.abs(o.d) + 2 * Number.EPSILON * out.u;
-      return true;
+      return Math.abs(o.lv - T) <= 1e3 * tol;
     }
     s = sn;
   }
@@ -177,6 +181,8 @@ function solveFar(side: StableSide, from: 0 | 1, T: number, c: number, out: Solv
 /**
  * Far-tail integrals of the alpha = 1 side with beta in (0, 1] at log h = lhAbs, or null when the window is not far
  * enough out (|log h| below FAR_W, the light end of beta = 1) or the two rules disagree by more than 1e-11 relative.
+ * Small beta makes log V steep in theta everywhere (slope ~ 1/beta), so Theta is smooth on the kernel's scale even
+ * where a node's solution lies in the middle of the interval; each node is solved from the end nearer to it.
  */
 export function stableOneFar(beta: number, lhAbs: number): StableIntegrals | null {
   if (!(beta > 0 && beta <= 1)) return null;
@@ -184,45 +190,63 @@ export function stableOneFar(beta: number, lhAbs: number): StableIntegrals | nul
   const lh = lhAbs + side.wRef;
   const w0 = -lh;
   if (!(Math.abs(w0) >= FAR_W)) return null;
-  // the kernel's side: the high end (theta -> pi/2, log V ~ (pi/2)(1 + beta) / (beta u)) when w0 > 0, else the low
-  // end (theta -> -pi/2, log V ~ -(pi/2)(1 - beta) / (beta u)); beta = 1 has a finite low end (no far window there)
-  const from: 0 | 1 = w0 > 0 ? 1 : 0;
-  if (from === 0 && beta === 1) return null;
-  const c = from === 1 ? (HALF_PI * (1 + beta)) / beta : (HALF_PI * (1 - beta)) / beta;
+  // near the high end (theta -> pi/2) log V ~ (pi/2)(1 + beta) / (beta u), near the low end (theta -> -pi/2)
+  // log V ~ -(pi/2)(1 - beta) / (beta u); beta = 1 has a finite low end (no far window below the body there)
+  if (w0 < 0 && beta === 1) return null;
+  const cHigh = (HALF_PI * (1 + beta)) / beta;
+  const cLow = (HALF_PI * (1 - beta)) / beta;
+  const L = side.L;
   const { hi, lo } = theRules();
   const sol: Solved = { u: 0, dth: 0, eu: 0 };
-  const sum = (r: Rule, acc: { t: number; p: number; et: number; ep: number }): boolean => {
-    acc.t = acc.p = acc.et = acc.ep = 0;
+  const sum = (r: Rule, acc: Acc): boolean => {
+    acc.tl = acc.th = acc.p = acc.et = acc.ep = 0;
+    acc.fromHigh = acc.fromLow = false;
     for (let i = 0; i < r.v.length; i++) {
-      if (!solveFar(side, from, w0 + r.v[i], c, sol)) return false;
-      acc.t += r.W[i] * sol.u;
+      const T = w0 + r.v[i];
+      const from: 0 | 1 = T > side.wMid ? 1 : 0;
+      if (from === 0 && beta === 1) return false;
+      if (!solveFar(side, from, T, from === 1 ? cHigh : cLow, sol)) return false;
+      // the distance to the nearer end directly, the other as L minus it
+      const tl = from === 0 ? sol.u : L - sol.u;
+      const th = from === 1 ? sol.u : L - sol.u;
+      if (from === 1) acc.fromHigh = true;
+      else acc.fromLow = true;
+      acc.tl += r.W[i] * tl;
+      acc.th += r.W[i] * th;
       acc.p += r.W[i] * sol.dth;
       acc.et += r.W[i] * sol.eu;
       // the node's error in w moves Theta' by about Theta'' dw, Theta'' ~ 2 Theta' / |w| far out
-      acc.ep += r.W[i] * sol.dth * (2 * (sol.eu / sol.dth) / Math.abs(w0 + r.v[i]) + 4 * Number.EPSILON);
+      acc.ep += r.W[i] * sol.dth * (2 * (sol.eu / sol.dth) / Math.max(1, Math.abs(T)) + 4 * Number.EPSILON);
     }
     return true;
   };
-  const A = { t: 0, p: 0, et: 0, ep: 0 };
-  const B = { t: 0, p: 0, et: 0, ep: 0 };
+  const A: Acc = { tl: 0, th: 0, p: 0, et: 0, ep: 0, fromHigh: false, fromLow: false };
+  const B: Acc = { tl: 0, th: 0, p: 0, et: 0, ep: 0, fromHigh: false, fromLow: false };
   if (!sum(hi, A) || !sum(lo, B)) return null;
-  const L = side.L;
-  // the kernel's mass on the other side of the body (where Theta is not c/|w|) is below exp(-|w0| + 5)
+  // the kernel's mass beyond the body (where the rule's polynomial model of Theta is not meant to hold) is below
+  // exp(-|w0| + 5)
   const outside = L * Math.exp(-Math.abs(w0) + 5);
-  const et = 10 * Math.abs(A.t - B.t) + A.et + 8 * Number.EPSILON * A.t + outside;
-  const ep = 10 * Math.abs(A.p - B.p) + A.ep + 8 * Number.EPSILON * A.p + outside;
-  if (!(et <= 1e-11 * A.t && ep <= 1e-11 * A.p)) return null;
-  // beta = 1 on the heavy side: the finite low end leaves L (1 - exp(-h V_end)) in I1 (h V_end = e^lh, tiny here)
-  const b1 = side.wLowEnd > -Infinity ? -L * Math.expm1(-Math.exp(lh)) : 0;
-  const res: StableIntegrals = { I0: 0, I1: 0, Ip: A.p, e0: et, e1: et, ep, nodes: N_HI + N_LO };
-  if (from === 1) {
-    res.I1 = A.t + b1;
+  const round = 8 * Number.EPSILON;
+  const eLow = 10 * Math.abs(A.tl - B.tl) + A.et + round * A.tl + outside + (A.fromHigh ? 4 * Number.EPSILON * L : 0);
+  const eHigh = 10 * Math.abs(A.th - B.th) + A.et + round * A.th + outside + (A.fromLow ? 4 * Number.EPSILON * L : 0);
+  const ep = 10 * Math.abs(A.p - B.p) + A.ep + round * A.p + outside;
+  if (!(eLow <= 1e-11 * A.tl && eHigh <= 1e-11 * A.th && ep <= 1e-11 * A.p)) return null;
+  const res: StableIntegrals = { I0: A.tl, I1: A.th, Ip: A.p, e0: eLow, e1: eHigh, ep, nodes: N_HI + N_LO };
+  if (side.wLowEnd > -Infinity) {
+    // beta = 1 (w0 > 0): the finite low end leaves L (1 - exp(-h V_end)) in I1 (h V_end = e^lh, tiny here)
+    res.I1 = A.th - L * Math.expm1(-Math.exp(lh));
     res.I0 = L - res.I1;
-    res.e0 = et + 4 * Number.EPSILON * L;
-  } else {
-    res.I0 = A.t;
-    res.I1 = L - A.t;
-    res.e1 = et + 4 * Number.EPSILON * L;
+    res.e0 = eHigh + 4 * Number.EPSILON * L;
   }
   return res;
+}
+
+interface Acc {
+  tl: number;
+  th: number;
+  p: number;
+  et: number;
+  ep: number;
+  fromHigh: boolean;
+  fromLow: boolean;
 }
