@@ -1,6 +1,7 @@
 // npm run bench:direct — single named laws through lib/cf's public entry points, answered without CF inversion:
 // stable laws at 1 000 arbitrary points (body and far tails, |x| up to 1e8), and seven quantiles (with ES) of single
 // families. Prints medians (wall clock) and the CPU time per call, so that a loaded machine still shows the cost.
+import { readFileSync } from "node:fs";
 import { cpus, loadavg } from "node:os";
 import { compile } from "@/lib/cf/compile";
 import { density } from "@/lib/cf/invert/density";
@@ -14,7 +15,7 @@ function median(xs: number[]): number {
 }
 
 /** median wall ms and median CPU ms (user + system of this process) over runs after warm-up */
-function time(fn: () => unknown, runs = 5, warm = 1): { wall: number; cpu: number; worst: number } {
+function time(fn: () => unknown, runs = 7, warm = 1): { wall: number; cpu: number; cpuMin: number; worst: number } {
   for (let i = 0; i < warm; i++) fn();
   const w: number[] = [];
   const c: number[] = [];
@@ -26,7 +27,7 @@ function time(fn: () => unknown, runs = 5, warm = 1): { wall: number; cpu: numbe
     const d = process.cpuUsage(c0);
     c.push((d.user + d.system) / 1000);
   }
-  return { wall: median(w), cpu: median(c), worst: Math.max(...w) };
+  return { wall: median(w), cpu: median(c), cpuMin: Math.min(...c), worst: Math.max(...w) };
 }
 
 let seed = 20261203;
@@ -53,6 +54,13 @@ const stable: [number, number, "S0" | "S1"][] = [
   [1.5, 0.7, "S0"],
   [1.5, -1, "S1"],
   [1.9, 0.9, "S1"],
+  // the edges: alpha = 1 with |beta| = 1, alpha next to 1 and 2, alpha = 0.3 totally skewed
+  [1, 1, "S1"],
+  [1, -1, "S0"],
+  [0.999, 0.5, "S1"],
+  [1.001, -0.5, "S0"],
+  [0.3, 1, "S1"],
+  [1.999, -1, "S1"],
 ];
 for (const [alpha, beta, param] of stable) {
   const m = compile({ family: "stable", alpha, beta, param } as Model);
@@ -63,9 +71,40 @@ for (const [alpha, beta, param] of stable) {
   const t = time(() => density(m, { x }));
   console.log(
     `stable(${alpha}, ${beta}, ${param}) 1000 arbitrary points`.padEnd(52) +
-      `${t.wall.toFixed(2)} ms wall, ${t.cpu.toFixed(2)} ms cpu (first call with node set-up ${firstMs.toFixed(1)} ms)  ` +
+      `${t.wall.toFixed(2)} ms wall, ${t.cpu.toFixed(2)} ms cpu (least ${t.cpuMin.toFixed(2)}; first call with node set-up ${firstMs.toFixed(1)} ms)  ` +
       `method ${r.diagnostics.method}, max bound pdf ${r.diagnostics.error.pdf!.toExponential(1)} cdf ${r.diagnostics.error.cdf.toExponential(1)}`,
   );
+}
+
+// accuracy over a sample of the points above (every 100th and 100th + 1 of each of the first ten laws) against the
+// mpmath references of tests/fixtures/stable/bench-sample.json (written by tests/fixtures/stable/generate.py --bench)
+{
+  const sample = JSON.parse(readFileSync(new URL("../tests/fixtures/stable/bench-sample.json", import.meta.url), "utf8")) as {
+    points: { model: Model & { alpha: number; beta: number; param: string }; x: number; pdf: string; cdf: string; sf: string }[];
+  };
+  const byLaw = new Map<string, typeof sample.points>();
+  for (const r of sample.points) {
+    const k = JSON.stringify(r.model);
+    byLaw.set(k, [...(byLaw.get(k) ?? []), r]);
+  }
+  let worstAll = 0;
+  for (const [k, rows] of byLaw) {
+    const m = compile(JSON.parse(k) as Model);
+    const d = density(m, { x: rows.map((r) => r.x) });
+    let worstRel = 0;
+    let under = 0;
+    rows.forEach((r, i) => {
+      const e = d.diagnostics.error;
+      for (const [v, ref, bound] of [[d.pdf![i], Number(r.pdf), e.pdf!], [d.cdf[i], Number(r.cdf), e.cdf], [d.sf[i], Number(r.sf), e.cdf]]) {
+        if (ref > 1e-300) worstRel = Math.max(worstRel, Math.abs(v - ref) / ref);
+        if (Math.abs(v - ref) > bound + 1e-18 * ref) under++;
+      }
+    });
+    worstAll = Math.max(worstAll, worstRel);
+    const l = rows[0].model;
+    console.log(`stable(${l.alpha}, ${l.beta}, ${l.param}) ${rows.length} sampled points vs mpmath`.padEnd(52) + `max relative error (pdf, cdf, sf) ${worstRel.toExponential(1)}, bounds below the error: ${under}`);
+  }
+  console.log(`stable sampled points: worst relative error ${worstAll.toExponential(1)} (target 1e-6)`);
 }
 
 const levels = [0.001, 0.01, 0.1, 0.5, 0.9, 0.99, 0.999];

@@ -16,8 +16,12 @@ interface Row {
   check: string | null;
   rel_diff: number | null;
 }
-const fixture = JSON.parse(readFileSync(new URL("../fixtures/stable/stable.json", import.meta.url), "utf8")) as { points: Row[] };
-const SOURCE = "tests/fixtures/stable/stable.json (mpmath: Nolan 1997 integral, Levy closed form, or the alpha = 1 contour integral; checked by Fourier inversion, tail series or Nolan)";
+const load = (name: string) => JSON.parse(readFileSync(new URL(`../fixtures/stable/${name}`, import.meta.url), "utf8")) as { points: Row[] };
+// the chosen cases, and a sample of the points scripts/bench-direct.ts draws (every 100th and 100th + 1 of each law)
+const fixture = { points: [...load("stable.json").points, ...load("bench-sample.json").points] };
+const SOURCE =
+  "tests/fixtures/stable/stable.json and bench-sample.json (mpmath: Nolan 1997 integral, Levy closed form, or the alpha = 1 contour integral; " +
+  "checked by Fourier inversion, tail series, Nolan, or for alpha = 1 Nolan's integrals by parts in log V)";
 /** relative tolerance wherever the reference is above 1e-300 (and 1e-9 absolute on cdf/sf, whichever is larger) */
 const REL = 1e-6;
 
