@@ -84,7 +84,7 @@ for (const [alpha, beta, param] of stable) {
   };
   const byLaw = new Map<string, typeof sample.points>();
   for (const r of sample.points) {
-    const k = JSON.stringify(r.model);
+    const k = JSON.stringify({ family: "stable", alpha: r.model.alpha, beta: r.model.beta, param: r.model.param });
     byLaw.set(k, [...(byLaw.get(k) ?? []), r]);
   }
   let worstAll = 0;

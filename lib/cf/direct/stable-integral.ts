@@ -33,6 +33,9 @@ const DY = 0.25;
 const CAP = 1 << 16;
 /** parts left out are bounded below this fraction of the sum so far (their bound joins the error estimate) */
 const REL = 1e-13;
+/** nodes stored left and right of the kernel's centre for each point (the marches extend the store when short) */
+const WINDOW_LEFT = 200;
+const WINDOW_RIGHT = 64;
 /** below this v the left tail comes from the prefix sums; e^V_TAIL = 2.5e-3 */
 const V_TAIL = -6;
 /** terms of the series of K(v) summed from the prefix sums; the omitted part is below e^{(M+1) v} / M! per node */
@@ -201,7 +204,9 @@ class NodeGrid {
     }
     if (j < this.jFirst || j > this.jLast) return false;
     if (!(i >= 0 && i < this.n)) {
-      if (!this.ensure(j, j)) return this.compute(j, out);
+      // grow by a block in the direction of the march, so that a march beyond the store does not regrow it per node
+      const grown = j < this.lo ? this.ensure(j - 63, j) : this.ensure(j, j + 63);
+      if (!grown) return this.compute(j, out);
       i = j - this.lo;
     }
     if (Number.isNaN(this.tl[i])) return false;
@@ -264,8 +269,8 @@ export function stableIntegrals(alpha: number, beta: number, lhAbs: number): Sta
     // find the first existing node near the end
     jStart = Math.round(-40 / DY);
   }
-  const span = Math.ceil(60 / DY);
-  g.ensure(jStart - 2 * span, jStart + span);
+  // the window the marches usually need: v down to about -40 (prefix sums and the left remainder), up to about +4
+  g.ensure(jStart - WINDOW_LEFT, jStart + WINDOW_RIGHT);
   const r: Row = { w: 0, tl: 0, th: 0, ww: 0, wt: 0, res: 0 };
   let A0 = 0, A1 = 0, Ap = 0, B0 = 0, B1 = 0, Bp = 0, P0 = 0, P1 = 0, Pp = 0;
   // e^v and K(v) of the last node added
