@@ -2,7 +2,7 @@ import type { Node, NodeKind } from "./node";
 import { commonStep, onLattice, panjer, powerTable, restep, convolveTables } from "./lattice";
 import type { LatticeTable } from "./types";
 import { compoundDamped } from "./damped-cf";
-import { compoundKernels } from "./damped-kernels";
+import { KERNEL_ORDER, compoundSeries, kernelsOfSeries, type GammaKernel, type TransformSeries } from "./damped-kernels";
 import { builtNote, chooseSpan, isPoissonCount, discretisedCompound, methodNote, type DiscretiseOptions, type DiscretisedCompound } from "./discretise";
 
 const collectNotes = (cs: Node[]) => [...new Set(cs.flatMap((c) => c.notes))];
@@ -99,8 +99,11 @@ export function compoundNode(N: Node, X: Node, discretise: DiscretiseOptions | n
     },
   };
   if (node.dampedLogCf && X.laplaceExpansion && X.kind.type === "continuous" && N.table) {
-    const kernels = kernelsFor(N, X);
-    if (kernels.length > 0) node.dampedKernels = { cf: node.dampedLogCf, kernels };
+    const k = kernelsFor(N, X);
+    if (k) {
+      node.transformSeries = k.series;
+      if (k.kernels.length > 0) node.dampedKernels = { cf: node.dampedLogCf, kernels: k.kernels, rate: k.rate };
+    }
   }
   if (kind.type === "lattice" && X.table) {
     node.table = (maxLength) => compoundTable(N, X, kind as { step: number }, maxLength, node);
@@ -165,23 +168,21 @@ function discretisedNode(N: Node, X: Node, o: DiscretiseOptions): Node {
 
 /** severities whose compounds are inverted as continuous laws (damped transform) unless discretisation is asked for */
 const CONTINUOUS_BY_DEFAULT = new Set(["lognormal", "pareto", "weibull", "lomax", "burr", "loglogistic"]);
-/** order of the endpoint expansion removed by kernels: what is left decays like |s|^{-e}, e > KERNEL_ORDER */
-const KERNEL_ORDER = 4;
-
-function kernelsFor(N: Node, X: Node): ReturnType<typeof compoundKernels> {
+/** the compound's transform series and its kernels (rate: the severity's own scale near its endpoint) */
+function kernelsFor(N: Node, X: Node): { series: TransformSeries; kernels: GammaKernel[]; rate: number } | null {
   const sev = X.laplaceExpansion!;
   const e0 = Math.min(...sev.exps);
   const nMax = Math.floor(KERNEL_ORDER / e0) + 1;
   const t = N.table!(nMax + 1);
-  if (!t || t.step !== 1 || !Number.isInteger(t.origin) || t.origin < 0) return [];
+  if (!t || t.step !== 1 || !Number.isInteger(t.origin) || t.origin < 0) return null;
   const pn = new Float64Array(nMax + 1);
-  for (let n = 1; n <= nMax; n++) {
+  for (let n = 0; n <= nMax; n++) {
     const i = n - t.origin;
     pn[n] = i >= 0 && i < t.p.length ? t.p[i] : 0;
   }
-  // kernel rate: the severity's own scale near its endpoint
   const rate = 1 / Math.max(X.severity?.scale ?? X.scale, 1e-300);
-  return compoundKernels(pn, sev, rate, KERNEL_ORDER);
+  const series = compoundSeries(pn, sev);
+  return { series, kernels: kernelsOfSeries(series, rate), rate };
 }
 
 function compoundErrors(N: Node, X: Node): { cfAbsError: number; cfRelError: number } {

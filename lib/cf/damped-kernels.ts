@@ -70,30 +70,94 @@ function toKernels(series: Map<number, number>, at: number, rate: number, eMax: 
   return out;
 }
 
+/** order of the endpoint expansion removed by kernels: what is left decays like |s|^{-e}, e > KERNEL_ORDER */
+export const KERNEL_ORDER = 4;
+
+/**
+ * A whole law's Laplace transform for large s (Re s >= 0) as blocks at endpoints,
+ * E e^{-s X} ~ sum_blocks e^{-s at} sum_e c_e s^{-e}, exponents up to KERNEL_ORDER kept; an exponent 0 is an atom at
+ * `at`. An empty list: the transform decays faster than any power (a density flat to all orders at its start).
+ * Independent sums multiply the blocks, mixtures add them weighted, scale and shift move them (Watson's lemma
+ * termwise; Erdelyi, Asymptotic Expansions, ch. 2).
+ */
+export type TransformSeries = { at: number; series: Map<number, number> }[];
+
+function sameAt(a: number, b: number) {
+  return Math.abs(a - b) <= 1e-12 * Math.max(1, Math.abs(a), Math.abs(b));
+}
+
+function addBlock(out: TransformSeries, at: number, series: Map<number, number>, w = 1) {
+  let b = out.find((x) => sameAt(x.at, at));
+  if (!b) out.push((b = { at, series: new Map() }));
+  for (const [e, c] of series) add(b.series, e, w * c);
+}
+
+/** a severity's endpoint series as a transform series */
+export function seriesOfExpansion(sev: EndpointSeries): TransformSeries {
+  const m = new Map<number, number>();
+  sev.exps.forEach((e, j) => {
+    if (e <= KERNEL_ORDER + SAME) add(m, e, sev.coefs[j]);
+  });
+  return [{ at: sev.at, series: m }];
+}
+
+export const pointSeries = (x: number): TransformSeries => [{ at: x, series: new Map([[0, 1]]) }];
+
+export function productSeries(a: TransformSeries, b: TransformSeries): TransformSeries {
+  const out: TransformSeries = [];
+  for (const x of a) for (const y of b) addBlock(out, x.at + y.at, mul(x.series, y.series, KERNEL_ORDER));
+  return out;
+}
+
+export function mixSeries(ws: number[], ss: TransformSeries[]): TransformSeries {
+  const out: TransformSeries = [];
+  ss.forEach((s, j) => {
+    for (const x of s) addBlock(out, x.at, x.series, ws[j]);
+  });
+  return out;
+}
+
+/** aX, a > 0: E e^{-s a X} at s -> a s: c s^{-e} -> c a^{-e} s^{-e} */
+export function scaleSeries(a: number, s: TransformSeries): TransformSeries {
+  return s.map((x) => ({ at: a * x.at, series: new Map([...x.series].map(([e, c]) => [e, c * Math.pow(a, -e)])) }));
+}
+
+export const shiftSeries = (b: number, s: TransformSeries): TransformSeries => s.map((x) => ({ at: x.at + b, series: x.series }));
+
+/**
+ * The compound's transform P_N(phi(s)) = p_0 + sum_{n >= 1} p_n phi(s)^n: the atom p_0 at 0 and, up to s^{-eMax},
+ * the blocks of phi^n (endpoints n at, series G^n with G the severity's).
+ */
+export function compoundSeries(pn: ArrayLike<number>, sev: EndpointSeries): TransformSeries {
+  const G = seriesOfExpansion(sev)[0].series;
+  const e0 = Math.min(...sev.exps);
+  const out: TransformSeries = [{ at: 0, series: new Map([[0, pn[0]]]) }];
+  if (!(e0 > 0) || G.size === 0) return out;
+  let pow = new Map<number, number>([[0, 1]]);
+  for (let n = 1; n < pn.length && n * e0 <= KERNEL_ORDER + SAME; n++) {
+    pow = mul(pow, G, KERNEL_ORDER);
+    addBlock(out, n * sev.at, pow, pn[n]);
+  }
+  return out;
+}
+
+/** gamma kernels (one rate) matching every term of a transform series except the atoms (exponent 0) */
+export function kernelsOfSeries(s: TransformSeries, rate: number): GammaKernel[] {
+  const out: GammaKernel[] = [];
+  for (const b of s) {
+    const m = new Map([...b.series].filter(([e]) => e > SAME));
+    out.push(...toKernels(m, b.at, rate, KERNEL_ORDER));
+  }
+  return out.filter((k) => k.w !== 0 && Number.isFinite(k.w));
+}
+
 /**
  * Gamma kernels for the compound's continuous part psi(s) = sum_{n >= 1} p_n phi(s)^n: the terms of its endpoint
- * expansion up to s^{-eMax} (endpoints n at, series G^n with G the severity's), each matched by a kernel. After
- * subtraction the transform decays like |s|^{-e} with e > eMax instead of the severity's slow power.
+ * expansion up to s^{-KERNEL_ORDER} (endpoints n at, series G^n with G the severity's), each matched by a kernel. After
+ * subtraction the transform decays like |s|^{-e} with e > KERNEL_ORDER instead of the severity's slow power.
  */
-export function compoundKernels(pn: ArrayLike<number>, sev: EndpointSeries, rate: number, eMax: number): GammaKernel[] {
-  const G = new Map<number, number>();
-  sev.exps.forEach((e, j) => {
-    if (e <= eMax + SAME) add(G, e, sev.coefs[j]);
-  });
-  const e0 = Math.min(...sev.exps);
-  if (!(e0 > 0) || G.size === 0) return [];
-  const perEnd = new Map<number, Map<number, number>>();
-  let pow = new Map<number, number>([[0, 1]]);
-  for (let n = 1; n < pn.length && n * e0 <= eMax + SAME; n++) {
-    pow = mul(pow, G, eMax);
-    const key = sev.at === 0 ? 0 : n;
-    const acc = perEnd.get(key) ?? new Map<number, number>();
-    for (const [e, c] of pow) add(acc, e, pn[n] * c);
-    perEnd.set(key, acc);
-  }
-  const out: GammaKernel[] = [];
-  for (const [key, series] of perEnd) out.push(...toKernels(series, key * sev.at, rate, eMax));
-  return out.filter((k) => k.w !== 0 && Number.isFinite(k.w));
+export function compoundKernels(pn: ArrayLike<number>, sev: EndpointSeries, rate: number): GammaKernel[] {
+  return kernelsOfSeries(compoundSeries(pn, sev), rate);
 }
 
 /** sum_k w_k e^{-s (at_k - lo)} (rate_k/(rate_k + s))^shape_k at s = beta - i t, subtracted from (re, im) */

@@ -1,7 +1,7 @@
 import type { Atom, LatticeTable } from "./types";
 import type { CompoundBracket, SeverityLaw } from "./discretise";
 import type { DampedLogCf } from "./damped-cf";
-import type { EndpointSeries, GammaKernel } from "./damped-kernels";
+import type { EndpointSeries, GammaKernel, TransformSeries } from "./damped-kernels";
 import type { DirectLaw } from "./direct/types";
 import type { DirectLaw as DistLaw } from "./families/dist";
 
@@ -62,8 +62,11 @@ export interface Node {
   cfRelError?: number;
   /** severities: the endpoint expansion of the Laplace transform (compounds choose gamma kernels from it) */
   laplaceExpansion?: EndpointSeries;
-  /** compounds: gamma kernels subtracted from the damped transform, valid only with the dampedLogCf named here */
-  dampedKernels?: { cf: DampedLogCf; kernels: GammaKernel[] };
+  /** gamma kernels subtracted from the damped transform (compounds, and sums and mixtures holding them), valid only
+   *  with the dampedLogCf named here; rate: the kernels' common rate */
+  dampedKernels?: { cf: DampedLogCf; kernels: GammaKernel[]; rate: number };
+  /** the whole transform's expansion at its lower endpoint(s), where known (sums and mixtures build kernels from it) */
+  transformSeries?: TransformSeries;
   /** counts: sup |P'(z) / P(z)| over the unit disc (finite for Poisson and negative binomial) */
   cgfSlope?: number;
 }

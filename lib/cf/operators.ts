@@ -1,4 +1,5 @@
 import { mixDamped, scaleDamped, shiftDamped, sumDamped } from "./damped-cf";
+import { carryMixKernels, carryScaleKernels, carryShiftKernels, carrySumKernels } from "./kernel-carry";
 import type { Node, NodeKind } from "./node";
 import { cumulantsToRaw, rawToCumulants } from "./node";
 import { nearestZero, sortedAnchor, unwrapFrom } from "./complex";
@@ -119,6 +120,7 @@ export function sumNode(cs: Node[]): Node {
     cfAbsError: cs.reduce((e, c) => e + (c.cfAbsError ?? 0), 0),
     cfRelError: cs.reduce((e, c) => e + (c.cfRelError ?? 0), 0),
   };
+  carrySumKernels(node, cs);
   if (kind.type === "lattice" && cs.every((c) => c.table)) {
     node.table = (maxLength) => {
       const tabs = cs.map((c) => c.table!(maxLength));
@@ -173,6 +175,7 @@ export function scaleNode(a: number, c: Node): Node {
     cfAbsError: c.cfAbsError,
     cfRelError: c.cfRelError,
   };
+  carryScaleKernels(node, a, c);
   if (c.table && c.kind.type === "lattice") {
     node.table = (maxLength) => {
       const tab = c.table!(maxLength);
@@ -218,6 +221,7 @@ export function shiftNode(b: number, c: Node): Node {
     cfAbsError: c.cfAbsError,
     cfRelError: c.cfRelError,
   };
+  carryShiftKernels(node, b, c);
   if (c.table && c.kind.type === "lattice") {
     node.table = (maxLength) => {
       const tab = c.table!(maxLength);
@@ -359,6 +363,7 @@ export function mixNode(ws: number[], cs: Node[]): Node {
       return rawToCumulants(mixed);
     },
   };
+  carryMixKernels(node, ws, cs);
   if (kind.type === "lattice" && cs.every((c) => c.table)) {
     node.table = (maxLength) => {
       const tabs = cs.map((c) => c.table!(maxLength));

@@ -1,6 +1,7 @@
 import { binomialPmf, eulerianRow, negativeBinomialPmf, poissonPmf } from "./special";
 import type { Node } from "../node";
 import { pointDamped } from "../damped-cf";
+import { pointSeries } from "../damped-kernels";
 import { nearestZero, unwrapFrom } from "../complex";
 import type { LatticeTable } from "../types";
 
@@ -29,6 +30,7 @@ export function point(at: number): Node {
     cumulants: (n) => Array.from({ length: n }, (_, i) => (i === 0 ? at : 0)),
     table: () => ({ origin: at, step: 1, p: Float64Array.of(1), tailMass: 0 }),
     dampedLogCf: pointDamped(at),
+    transformSeries: pointSeries(at),
     countCgf(wr, wi, re, im) {
       for (let k = 0; k < wr.length; k++) {
         re[k] = at * wr[k];

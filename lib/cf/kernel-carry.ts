@@ -1,0 +1,54 @@
+import type { Node } from "./node";
+import { kernelsOfSeries, mixSeries, productSeries, scaleSeries, seriesOfExpansion, shiftSeries, type TransformSeries } from "./damped-kernels";
+
+/**
+ * Gamma kernels through the operators: a compound whose transform decays slowly (pareto, weibull, lomax, burr
+ * severities) keeps its kernels when it is scaled or shifted (a gamma kernel moves to a gamma kernel: aX has rate / a,
+ * X + b starts at + b), and inside an independent sum or a mixture the kernels are rebuilt from the whole law's
+ * endpoint expansion (the children's series multiplied or mixed), so the damped inversion of the sum sees a transform
+ * that decays fast again. Only where every child's expansion is known; otherwise the node has no kernels.
+ */
+export function seriesOf(n: Node): TransformSeries | undefined {
+  if (n.transformSeries) return n.transformSeries;
+  if (n.laplaceExpansion && n.kind.type === "continuous") return seriesOfExpansion(n.laplaceExpansion);
+  return undefined;
+}
+
+function rebuild(node: Node, cs: Node[], series: TransformSeries | undefined) {
+  if (!series) return;
+  node.transformSeries = series;
+  const rates = cs.flatMap((c) => (c.dampedKernels && c.dampedKernels.cf === c.dampedLogCf ? [c.dampedKernels.rate] : []));
+  if (rates.length === 0 || !node.dampedLogCf) return;
+  const rate = Math.min(...rates);
+  const kernels = kernelsOfSeries(series, rate);
+  if (kernels.length > 0) node.dampedKernels = { cf: node.dampedLogCf, kernels, rate };
+}
+
+export function carrySumKernels(node: Node, cs: Node[]) {
+  const ss = cs.map(seriesOf);
+  if (ss.some((s) => !s)) return;
+  rebuild(node, cs, ss.reduce((a, b) => productSeries(a!, b!)));
+}
+
+export function carryMixKernels(node: Node, ws: number[], cs: Node[]) {
+  const ss = cs.map(seriesOf);
+  if (ss.some((s) => !s)) return;
+  rebuild(node, cs, mixSeries(ws, ss as TransformSeries[]));
+}
+
+export function carryScaleKernels(node: Node, a: number, c: Node) {
+  if (!(a > 0)) return;
+  const s = seriesOf(c);
+  if (s) node.transformSeries = scaleSeries(a, s);
+  const k = c.dampedKernels;
+  if (k && k.cf === c.dampedLogCf && node.dampedLogCf)
+    node.dampedKernels = { cf: node.dampedLogCf, kernels: k.kernels.map((x) => ({ ...x, at: a * x.at, rate: x.rate / a })), rate: k.rate / a };
+}
+
+export function carryShiftKernels(node: Node, b: number, c: Node) {
+  const s = seriesOf(c);
+  if (s) node.transformSeries = shiftSeries(b, s);
+  const k = c.dampedKernels;
+  if (k && k.cf === c.dampedLogCf && node.dampedLogCf)
+    node.dampedKernels = { cf: node.dampedLogCf, kernels: k.kernels.map((x) => ({ ...x, at: x.at + b })), rate: k.rate };
+}
