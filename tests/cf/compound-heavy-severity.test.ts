@@ -1,10 +1,10 @@
-// Compounds of pareto and weibull severities are continuous laws (atom at 0 plus a density), inverted through the
-// damped transform with gamma kernels at the severity's endpoint taken out. References:
+// Compounds of pareto, weibull, lomax and Burr XII severities are continuous laws (atom at 0 plus a density), inverted
+// through the damped transform with gamma kernels at the severity's endpoint taken out. References:
 // - weibull with shape 1 is the exponential law (Johnson, Kotz & Balakrishnan vol. 1, ch. 21), so the Erlang-mixture
 //   references of tests/fixtures/compound/compound.json (generate.py, mpmath) apply to weibull(1, 1/rate) severities;
-// - tests/fixtures/compound/heavy.json (generate.py beside it): pareto and weibull severities by mpmath at 30 digits
-//   (de Hoog inversion of the Laplace transform, the severity's transform by mpmath's expint / quad), cross-checked
-//   by a second method whose difference is written into the fixture.
+// - tests/fixtures/compound/heavy.json (generate.py beside it): rounded-down lattice compounds extrapolated in the
+//   span, cross-checked by a second method whose difference is written into the fixture (a finite sum for pareto,
+//   mpmath's de Hoog inversion of the Laplace transform for weibull, lomax and burr).
 // Every value within the bound the engine states; the targets (cdf 1e-9 absolute, quantiles 1e-7 relative) are
 // listed when missed, not hidden.
 import { existsSync, readFileSync } from "node:fs";
