@@ -135,6 +135,8 @@ export function toCompiled(node: Node): CompiledModel {
     cfAbsError: node.cfAbsError ?? 0,
     cfRelError: node.cfRelError ?? 0,
     ...(node.direct ? { direct: node.direct } : {}),
+    ...(node.tailTerm && continuous ? { tailTerm: node.tailTerm } : {}),
+    ...(node.powerIndices && node.powerIndices.length > 1 ? { powerIndices: node.powerIndices } : {}),
     ...(node.bounds ? { bounds: node.bounds } : {}),
     ...(node.mixParts ? { components: lazyComponents(node.mixParts) } : {}),
     // read on access: a discretised compound adds its error bound to its notes when its table is built

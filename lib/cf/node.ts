@@ -1,4 +1,4 @@
-import type { Atom, LatticeTable } from "./types";
+import type { Atom, LatticeTable, TailTerm } from "./types";
 import type { CompoundBracket, SeverityLaw } from "./discretise";
 import type { DampedLogCf } from "./damped-cf";
 import type { EndpointSeries, GammaKernel, TransformSeries } from "./damped-kernels";
@@ -69,6 +69,10 @@ export interface Node {
   transformSeries?: TransformSeries;
   /** counts: sup |P'(z) / P(z)| over the unit disc (finite for Poisson and negative binomial) */
   cgfSlope?: number;
+  /** sums (and their scalings): every power-tail index of the terms, where more than one may show in the tails */
+  powerIndices?: number[];
+  /** sums: the term with strictly the heaviest power tail, when it has a direct law */
+  tailTerm?: TailTerm;
 }
 
 export const NONE_MOMENT = (n: number): (number | null)[] => new Array<number | null>(n).fill(null);

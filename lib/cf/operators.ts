@@ -5,7 +5,8 @@ import { cumulantsToRaw, rawToCumulants } from "./node";
 import { nearestZero, sortedAnchor, unwrapFrom } from "./complex";
 import { convolveAtoms, MAX_ATOMS, mergeAtoms, mixKinds, repeatKind, scaleKind, shiftKind, sumKinds } from "./kinds";
 import { convolveTables, powerTable, restep } from "./lattice";
-import type { Atom, LatticeTable } from "./types";
+import type { Atom, LatticeTable, TailTerm } from "./types";
+import { affineDirect } from "./direct/affine";
 
 export { compoundNode, pgfAt } from "./compound";
 export { atomsNode, latticeNode, sampleNode } from "./tabulated";
@@ -84,6 +85,49 @@ function beyondWindow(node: Node, origin: number, step: number, maxLength: numbe
   return (k[0] + 20 * Math.sqrt(Math.max(k[1], 0)) - origin) / step > maxLength;
 }
 
+/** Every finite power-tail index of the terms (either side), distinct and increasing. */
+function powerIndicesOf(cs: Node[]): number[] {
+  const all = cs.flatMap((c) => c.powerIndices ?? [c.tails.left, c.tails.right]).filter((b) => Number.isFinite(b));
+  return [...new Set(all)].sort((u, v) => u - v);
+}
+
+/**
+ * The term of a continuous sum whose power tail is strictly the heaviest (smallest index, on either side) and that has a
+ * direct law, with the other terms' mean (they must have one); null otherwise.
+ */
+function heaviestTerm(cs: Node[]): TailTerm | null {
+  const index = (c: Node) => Math.min(c.tails.left, c.tails.right);
+  let best = -1;
+  for (let j = 0; j < cs.length; j++) if (best < 0 || index(cs[j]) < index(cs[best])) best = j;
+  const D = cs[best];
+  const a = index(D);
+  if (!D.direct || !Number.isFinite(a) || D.kind.type !== "continuous") return null;
+  const rest = cs.filter((_, j) => j !== best);
+  const restIndex = Math.min(...rest.map(index));
+  if (!(restIndex > a)) return null;
+  const restMoment = Math.min(...rest.map((c) => c.momentIndex));
+  if (!(restMoment > 1)) return null;
+  let shift = 0;
+  for (const c of rest) {
+    const m = c.cumulants(1)[0];
+    if (m === null || !Number.isFinite(m)) return null;
+    shift += m;
+  }
+  const restIndices = [...new Set(rest.flatMap((c) => [c.tails.left, c.tails.right]).filter((b) => Number.isFinite(b)))];
+  const indices = [...restIndices, a + 2, ...restIndices.filter((b) => b < 3).map((b) => a + b - 1)];
+  const dm = D.momentIndex > 1 ? D.cumulants(1)[0] : null;
+  return {
+    logCf: (t, re, im) => D.logCf(t, re, im),
+    direct: shift === 0 ? D.direct : affineDirect(D.direct, 1, shift),
+    shift,
+    mean: dm === null || !Number.isFinite(dm) ? NaN : dm,
+    tails: D.tails,
+    remainderAlpha: Math.min(...indices),
+    indices,
+    cfAbsError: (D.cfAbsError ?? 0) + (D.cfRelError ?? 0),
+  };
+}
+
 /** Independent sum: log phi = sum of log phi_j (each on its continuous branch). */
 export function sumNode(cs: Node[]): Node {
   if (cs.length === 1) return cs[0];
@@ -95,6 +139,7 @@ export function sumNode(cs: Node[]): Node {
     kind,
     momentIndex: Math.min(...cs.map((c) => c.momentIndex)),
     tails: { left: Math.min(...cs.map((c) => c.tails.left)), right: Math.min(...cs.map((c) => c.tails.right)) },
+    powerIndices: powerIndicesOf(cs),
     nodes: 1 + cs.reduce((s, c) => s + c.nodes, 0),
     get notes() {
       return collectNotes(cs);
@@ -121,6 +166,8 @@ export function sumNode(cs: Node[]): Node {
     cfRelError: cs.reduce((e, c) => e + (c.cfRelError ?? 0), 0),
   };
   carrySumKernels(node, cs);
+  const tail = heaviestTerm(cs);
+  if (tail) node.tailTerm = tail;
   if (kind.type === "lattice" && cs.every((c) => c.table)) {
     node.table = (maxLength) => {
       const tabs = cs.map((c) => c.table!(maxLength));
@@ -156,6 +203,7 @@ export function scaleNode(a: number, c: Node): Node {
     kind: scaleKind(c.kind, a),
     momentIndex: c.momentIndex,
     tails: a > 0 ? c.tails : { left: c.tails.right, right: c.tails.left },
+    powerIndices: c.powerIndices,
     nodes: 1 + c.nodes,
     get notes() {
       return c.notes;

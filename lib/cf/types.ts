@@ -60,6 +60,10 @@ export interface CompiledModel {
   /** a single named law, possibly scaled or shifted, evaluated without its CF (closed form, special function or
    *  integral representation); density() and quantiles() use it when present */
   readonly direct?: DirectLaw;
+  /** sums: every power-tail index of the terms (Richardson in the period takes its exponents from all of them) */
+  readonly powerIndices?: number[];
+  /** sums: the term with the heaviest power tail, when it has a direct law (see TailTerm) */
+  readonly tailTerm?: TailTerm;
   /** when the law is lattice and can be tabulated (finite lattices, Panjer for compounds, or the opt-in
    *  discretisation of a continuous severity, whose table carries its cdfError), return the pmf starting at
    *  `origin` on `step`, truncated with the dropped tail mass reported; otherwise null. */
@@ -69,6 +73,31 @@ export interface CompiledModel {
   /** a discretised compound of claims with their own cdf (per-claim layers): the compounds with every claim rounded
    *  down and rounded up onto the table's lattice, which bracket the law in the usual stochastic order */
   bounds?(): CompoundBracket | null;
+}
+
+/**
+ * The term D of a sum X = D + Y whose power tail is strictly the heaviest, when D has a direct law (pdf, cdf, sf with
+ * bounds). The power-tail inversion subtracts the CF of G = D + E[Y] and adds G back directly: the tails of
+ * X - G cancel to first and second order (E S_D(x - Y) - S_D(x - E Y) ~ S_D''(x) Var(Y) / 2), so the remainder
+ * decays like |x|^{-remainderAlpha} and shorter periods suffice.
+ */
+export interface TailTerm {
+  /** log-CF of D alone */
+  logCf(t: Float64Array, re: Float64Array, im: Float64Array): void;
+  /** the direct law of G = D + E[Y] */
+  direct: DirectLaw;
+  /** E[Y]: the other terms' mean */
+  shift: number;
+  /** E[D] (NaN when infinite) */
+  mean: number;
+  tails: { left: number; right: number };
+  /** power-tail index of what is left: the smallest of `indices` */
+  remainderAlpha: number;
+  /** the power terms y^{-b} the tails of what is left may hold: the other terms' indices b, D's index a + 2 (second
+   *  order of E S_D(x - Y) - S_D(x - E Y)) and a + b - 1 for each b < 3 (the same when Y has no variance) */
+  indices: number[];
+  /** bound on the absolute error of D's CF values */
+  cfAbsError: number;
 }
 
 /** compile(model) in ./compile.ts has this signature; throws CfError. */

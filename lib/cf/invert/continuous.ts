@@ -6,7 +6,7 @@ import { sumPointwise } from "./pointwise";
 import { heavyWindow, lawShape, lightWindow, type LawShape } from "./range";
 import { gammaPdf } from "./incgamma";
 import type { ErrorEstimate } from "./types";
-import { heavyPath } from "./heavy";
+import { heavyPath, maybeTailLaw } from "./heavy";
 import {
   MAX_FFT,
   addKernels,
@@ -86,6 +86,12 @@ export function invertContinuous(model: CompiledModel, atoms: Atom[], req: Reque
       ? heavyWindow(shape, xmin, xmax)
       : lightWindow(shape, aliasTarget / 8, Number.isFinite(xmin) ? xmin : shape.center, Number.isFinite(xmax) ? xmax : shape.center);
   let env = probeEnvelope(part, shape.spread);
+  let alpha = shape.alpha;
+  let bases: number[] | undefined;
+  if (shape.heavy && !opt.range) {
+    ({ part, env, alpha, bases } = maybeTailLaw(part, env, shape, tol));
+    if (part.tail) notes.push(`the heaviest-tailed term, shifted by the other terms' mean, is evaluated directly and only the rest is inverted (its tails have index ${alpha.toPrecision(3)})`);
+  }
   ({ part, env } = maybeKernels(part, env, shape, win, truncTarget, opt.wantPdf, notes));
   let tmax = opt.maxFrequency ?? cutoffFor(env, opt.wantPdf ? truncTarget : Infinity, truncTarget);
   if (!Number.isFinite(tmax)) tmax = env.t[env.t.length - 1];
@@ -94,7 +100,7 @@ export function invertContinuous(model: CompiledModel, atoms: Atom[], req: Reque
   if (!shape.heavy || opt.range) {
     return lightPath(part, env, shape, req, opt, win, tmax, aliasTarget, notes, method);
   }
-  return heavyPath(part, env, shape, req, opt, win, tmax, notes, method);
+  return heavyPath(part, env, { ...shape, alpha, tailBases: bases }, req, opt, win, tmax, notes, method);
 }
 
 /**

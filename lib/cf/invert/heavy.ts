@@ -1,9 +1,9 @@
 import type { Atom, CompiledModel } from "../types";
 import { buildNodes, cutoffFor, probeEnvelope, truncationAt, type Envelope, type Nodes } from "./nodes";
-import { makePart, type ContinuousPart } from "./part";
+import { makePart, withTailLaw, type ContinuousPart } from "./part";
 import { sumPointwise } from "./pointwise";
 import { lawShape, type LawShape } from "./range";
-import { richardsonAmplification, richardsonChange, richardsonExponents, richardsonRow, richardsonRowArrays } from "./richardson";
+import { richardsonAmplification, richardsonChange, richardsonExponents, richardsonExponentsMulti, richardsonRow, richardsonRowArrays } from "./richardson";
 import {
   MAX_FFT,
   MAX_LEVELS,
@@ -48,8 +48,8 @@ export function heavyPath(
 ): PartOutput {
   const n = nPoints(req);
   const alpha = Math.max(shape.alpha, 0.1);
-  const expC = richardsonExponents(alpha, 0, MAX_LEVELS);
-  const expP = richardsonExponents(alpha, 1, MAX_LEVELS);
+  const expC = exponentsFor(shape.tailBases, alpha, 0, MAX_LEVELS);
+  const expP = exponentsFor(shape.tailBases, alpha, 1, MAX_LEVELS);
   const [lo, hi] = shape.support;
   const anchor: "left" | "right" | "center" = Number.isFinite(lo) ? "left" : Number.isFinite(hi) ? "right" : "center";
   const tol = opt.tolerance;
@@ -136,7 +136,11 @@ export function heavyPath(
     if (lev >= 2 && error.cdf <= tol && (!opt.wantPdf || error.pdf <= tol)) break;
   }
   notes.push(`power tails (index ${shape.alpha}): period doubled ${result!.levels - 1} times with Richardson extrapolation`);
-  if (part.kernels.length) addKernels(part, requestPoints(req), result!.pdf, result!.cdf, result!.sf);
+  if (part.kernels.length || part.tail) {
+    const added = addKernels(part, requestPoints(req), result!.pdf, result!.cdf, result!.sf);
+    result!.error.cdf += added.errCdf;
+    if (opt.wantPdf) result!.error.pdf += added.errPdf;
+  }
   const pts = new Float64Array([result!.window.a, result!.window.b]);
   const c2 = new Float64Array(2);
   const s2 = new Float64Array(2);
@@ -163,20 +167,51 @@ export interface HeavyLadder {
   trP: number;
 }
 
+/** Richardson exponents from every power term the tails may hold when known, else from the smallest index alone. */
+export function exponentsFor(bases: number[] | undefined, alpha: number, shift: number, count: number): number[] {
+  return bases && bases.length ? richardsonExponentsMulti(bases, shift, count) : richardsonExponents(alpha, shift, count);
+}
+
+/**
+ * Subtract the sum's heaviest-tailed term (see TailTerm) when what is left is clearly lighter and the frequency cut-off
+ * does not move out much (the term's own CF must decay about as fast as the sum's); the power-tail index of what is
+ * inverted is then the remainder's, and Richardson takes its exponents from the remainder's power terms.
+ */
+export function maybeTailLaw(
+  part: ContinuousPart,
+  env: Envelope,
+  shape: LawShape,
+  tol: number,
+): { part: ContinuousPart; env: Envelope; alpha: number; bases?: number[] } {
+  const alpha = Math.max(shape.alpha, 0.1);
+  const p2 = withTailLaw(part);
+  if (p2 === part || !p2.tail) return { part, env, alpha, bases: shape.tailBases };
+  // worth it only when what is left is clearly lighter
+  if (!(p2.tail.remainderAlpha >= alpha + 0.5)) return { part, env, alpha, bases: shape.tailBases };
+  const e2 = probeEnvelope(p2, shape.spread);
+  const c1 = cutoffFor(env, tol / 16, tol / 16);
+  const c2 = cutoffFor(e2, tol / 16, tol / 16);
+  // up to 4 times the cut-off: the remainder needs two or three fewer period doublings (each doubling the node count)
+  if (!(c2 <= 4 * c1)) return { part, env, alpha, bases: shape.tailBases };
+  return { part: p2, env: e2, alpha: Math.max(p2.tail.remainderAlpha, alpha), bases: p2.tail.indices };
+}
+
 /** Build the ladder for a power-tailed continuous part (see heavyPath for the expansion behind it). */
 export function heavyLadder(model: CompiledModel, atoms: Atom[], T0: number, levels: number, tol: number): HeavyLadder {
   const shape = lawShape(model);
   let part = makePart(model, atoms, shape.center);
   let env = probeEnvelope(part, shape.spread);
+  let alpha: number;
+  let bases: number[] | undefined;
+  ({ part, env, alpha, bases } = maybeTailLaw(part, env, shape, tol));
   ({ part, env } = maybeKernels(part, env, shape, { a: shape.center - T0 / 2, b: shape.center + T0 / 2 }, tol / 16, true, []));
   let tmax = cutoffFor(env, tol / 16, tol / 16);
   if (!Number.isFinite(tmax)) tmax = env.t[env.t.length - 1];
-  const alpha = Math.max(shape.alpha, 0.1);
   const lad: HeavyLadder = {
     part,
     levels: [],
-    expC: richardsonExponents(alpha, 0, MAX_LEVELS),
-    expP: richardsonExponents(alpha, 1, MAX_LEVELS),
+    expC: exponentsFor(bases, alpha, 0, MAX_LEVELS),
+    expP: exponentsFor(bases, alpha, 1, MAX_LEVELS),
     sumErrCdf: 0,
     sumErrPdf: 0,
     T0,
@@ -186,7 +221,9 @@ export function heavyLadder(model: CompiledModel, atoms: Atom[], T0: number, lev
     trC: 0,
     trP: 0,
   };
-  for (let l = 0; l < levels; l++) growLadder(lad);
+  // the remainder's faster decay needs fewer doublings to start with (more are added when the probes ask for them)
+  const start = part.tail ? Math.min(levels, 3) : levels;
+  for (let l = 0; l < start; l++) growLadder(lad);
   return lad;
 }
 
@@ -235,7 +272,7 @@ export function evalLadder(
     pdf: P[b][b] + k.pdf,
     cdf: C[b][b] + k.cdf,
     sf: S[b][b] + k.sf,
-    errCdf: Math.max(d(C), d(S)) + lad.sumErrCdf,
-    errPdf: d(P) + lad.sumErrPdf,
+    errCdf: Math.max(d(C), d(S)) + lad.sumErrCdf + k.errCdf,
+    errPdf: d(P) + lad.sumErrPdf + k.errPdf,
   };
 }

@@ -1,4 +1,5 @@
-import type { Atom, CompiledModel } from "../types";
+import type { Atom, CompiledModel, TailTerm } from "../types";
+import { directPoint } from "../direct/types";
 import { gammaPdf, incGamma } from "./incgamma";
 
 /**
@@ -32,6 +33,8 @@ export interface ContinuousPart {
   mass: number;
   /** absolute error of the model's CF values where it states one (numerical CFs), else 0 */
   cfAbsError: number;
+  /** the heaviest-tailed term G of a sum, subtracted from the CF and added back from its direct law */
+  tail?: TailTerm;
 }
 
 /** The model's typed bound on the absolute error of its CF values. */
@@ -54,7 +57,25 @@ export function withKernels(part: ContinuousPart, ks: EndpointKernels[]): Contin
 }
 
 /**
- * phi_part(t) = [ (phi(t) - sum_j p_j e^{i t x_j}) / w  -  kernels(t) ] e^{-i t c}, written into (re, im).
+ * Subtract the sum's heaviest-tailed term G = D + E[rest] (model.tailTerm): the part's power tails then start at the
+ * remainder's index. Only for parts without atoms (the tail term is a continuous law of the whole sum).
+ */
+export function withTailLaw(part: ContinuousPart): ContinuousPart {
+  const term = part.model.tailTerm;
+  if (!term || part.atoms.length > 0 || part.tail) return part;
+  // |phi_G| <= 1: the difference's rounding, and G's own CF error, count at every node
+  return { ...part, tail: term, mass: part.mass - 1, cfAbsError: part.cfAbsError + term.cfAbsError + 8 * Number.EPSILON };
+}
+
+/** G's pdf, cdf, sf at x from its direct law, with their bounds. */
+export function tailLawAt(term: TailTerm, x: number): { pdf: number; cdf: number; sf: number; errCdf: number; errPdf: number } {
+  const o = directPoint();
+  term.direct.at(x, o);
+  return { pdf: o.pdf, cdf: o.cdf, sf: o.sf, errCdf: Math.max(o.cdfErr, o.sfErr), errPdf: o.pdfErr };
+}
+
+/**
+ * phi_part(t) = [ (phi(t) - sum_j p_j e^{i t x_j}) / w  -  kernels(t) - phi_G(t) ] e^{-i t c}, written into (re, im).
  * Scratch-free apart from what the model needs; called once per node block, never per x.
  */
 export function evalPart(part: ContinuousPart, t: Float64Array, re: Float64Array, im: Float64Array): void {
@@ -64,6 +85,14 @@ export function evalPart(part: ContinuousPart, t: Float64Array, re: Float64Array
   const atoms = part.atoms;
   const invW = 1 / part.weight;
   const ks = part.kernels;
+  let gr: Float64Array | null = null;
+  let gi: Float64Array | null = null;
+  if (part.tail) {
+    gr = new Float64Array(n);
+    gi = new Float64Array(n);
+    part.tail.logCf(t, gr, gi);
+  }
+  const gShift = part.tail ? part.tail.shift : 0;
   for (let i = 0; i < n; i++) {
     const ti = t[i];
     let r = re[i];
@@ -105,6 +134,12 @@ export function evalPart(part: ContinuousPart, t: Float64Array, re: Float64Array
       const sa = Math.sin(ti * k.at);
       r -= sr * ca - si * sa;
       m -= sr * sa + si * ca;
+    }
+    if (gr && gi) {
+      const mg = Math.exp(gr[i]);
+      const ag = gi[i] + ti * gShift;
+      r -= mg * Math.cos(ag);
+      m -= mg * Math.sin(ag);
     }
     if (c !== 0) {
       const ca = Math.cos(ti * c);

@@ -11,6 +11,8 @@ export interface LawShape {
   heavy: boolean;
   /** smallest finite tail index (Infinity when both tails are light) */
   alpha: number;
+  /** all power terms the tails may hold, where known (Richardson exponents from them instead of alpha alone) */
+  tailBases?: number[];
   support: readonly [number, number];
 }
 
@@ -26,7 +28,7 @@ export function lawShape(m: CompiledModel): LawShape {
     return { center: mu, spread: sd, skew, exKurt, heavy, alpha, support: m.support };
   }
   const scale = m.scale > 0 && Number.isFinite(m.scale) ? m.scale : 1;
-  return { center: m.location, spread: scale, skew: 0, exKurt: 0, heavy, alpha, support: m.support };
+  return { center: m.location, spread: scale, skew: 0, exKurt: 0, heavy, alpha, support: m.support, tailBases: m.powerIndices };
 }
 
 function safeCumulants(m: CompiledModel): (number | null)[] {

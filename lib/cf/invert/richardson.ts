@@ -16,6 +16,34 @@ export function richardsonExponents(alpha: number, shift: number, count: number)
   return [...set].filter((v) => v > 0).sort((u, v) => u - v).slice(0, count);
 }
 
+/**
+ * Exponents {sum_k j_k b_k + i + shift : j_k >= 0, sum_k j_k >= 1, i >= 0}, distinct, increasing, the first `count`:
+ * the same expansion when the tails hold several power terms y^{-b_k} (a sum of terms with different tail indices)
+ * and their products.
+ */
+export function richardsonExponentsMulti(bases: readonly number[], shift: number, count: number): number[] {
+  const bs = [...new Set(bases.filter((b) => Number.isFinite(b) && b > 0).map((b) => Math.round(b * 1e9) / 1e9))].sort((u, v) => u - v);
+  if (bs.length === 0) return [];
+  const limit = bs[0] * Math.max(12, count) + count;
+  let frontier = new Set<number>(bs);
+  const all = new Set<number>(bs);
+  while (frontier.size) {
+    const next = new Set<number>();
+    for (const v of frontier) {
+      for (const b of [...bs, 1]) {
+        const w = Math.round((v + b) * 1e9) / 1e9;
+        if (w <= limit && !all.has(w)) {
+          all.add(w);
+          next.add(w);
+        }
+      }
+    }
+    frontier = next;
+    if (all.size > 4096) break;
+  }
+  return [...all].map((v) => Math.round((v + shift) * 1e9) / 1e9).filter((v) => v > 0).sort((u, v) => u - v).slice(0, count);
+}
+
 /** One elimination step for period ratio 2: R = fine + (fine - coarse) / (2^p - 1). */
 export function richardsonStep(fine: number, coarse: number, p: number): number {
   return fine + (fine - coarse) / (2 ** p - 1);

@@ -2,7 +2,7 @@ import { nextPowerOfTwo } from "../fftplan";
 import type { Atom } from "../types";
 import { sumOnGrid } from "./fft";
 import type { Envelope, Nodes } from "./nodes";
-import { kernelAt, type ContinuousPart } from "./part";
+import { kernelAt, tailLawAt, type ContinuousPart } from "./part";
 import { sumPointwise } from "./pointwise";
 import type { LawShape } from "./range";
 import type { ErrorEstimate } from "./types";
@@ -62,7 +62,8 @@ export const MAX_FFT = 1 << 22;
 export const MAX_POINTWISE_WORK = 4e8;
 export const MAX_LEVELS = 9;
 
-export function kernelTotals(part: ContinuousPart, x: number): { pdf: number; cdf: number; sf: number } {
+/** What the inversion sums leave out at x: the kernels (closed form, exact) and the subtracted tail law (with its bounds). */
+export function kernelTotals(part: ContinuousPart, x: number): { pdf: number; cdf: number; sf: number; errCdf: number; errPdf: number } {
   let pdf = 0;
   let cdf = 0;
   let sf = 0;
@@ -72,17 +73,39 @@ export function kernelTotals(part: ContinuousPart, x: number): { pdf: number; cd
     cdf += v.cdf;
     sf += v.sf;
   }
-  return { pdf, cdf, sf };
+  let errCdf = 0;
+  let errPdf = 0;
+  if (part.tail) {
+    const g = tailLawAt(part.tail, x);
+    pdf += g.pdf;
+    cdf += g.cdf;
+    sf += g.sf;
+    errCdf = g.errCdf;
+    errPdf = g.errPdf;
+  }
+  return { pdf, cdf, sf, errCdf, errPdf };
 }
 
-export function addKernels(part: ContinuousPart, xs: ArrayLike<number>, pdf: Float64Array | null, cdf: Float64Array, sf: Float64Array) {
-  if (part.kernels.length === 0) return;
+/** Add kernelTotals at every point; returns the largest bounds of what was added (0 for kernels alone). */
+export function addKernels(
+  part: ContinuousPart,
+  xs: ArrayLike<number>,
+  pdf: Float64Array | null,
+  cdf: Float64Array,
+  sf: Float64Array,
+): { errCdf: number; errPdf: number } {
+  let errCdf = 0;
+  let errPdf = 0;
+  if (part.kernels.length === 0 && !part.tail) return { errCdf, errPdf };
   for (let i = 0; i < xs.length; i++) {
     const v = kernelTotals(part, xs[i]);
     if (pdf) pdf[i] += v.pdf;
     cdf[i] += v.cdf;
     sf[i] += v.sf;
+    errCdf = Math.max(errCdf, v.errCdf);
+    errPdf = Math.max(errPdf, v.errPdf);
   }
+  return { errCdf, errPdf };
 }
 
 export function kernelAbs(part: ContinuousPart): number {

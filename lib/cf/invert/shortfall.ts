@@ -1,11 +1,14 @@
 import type { Atom, CompiledModel } from "../types";
 import { maybeKernels, type PartSolution } from "./continuous";
+import { exponentsFor, maybeTailLaw } from "./heavy";
+import { directShortfall } from "../direct/answer";
+import { directPoint } from "../direct/types";
 import { incGamma } from "./incgamma";
 import { buildNodes, probeEnvelope, truncationAt, type Nodes } from "./nodes";
 import { makePart, type EndpointKernels } from "./part";
 import { integrateSf } from "./pointwise";
 import type { lawShape } from "./range";
-import { richardsonAmplification, richardsonExponents, richardsonRow } from "./richardson";
+import { richardsonAmplification, richardsonRow } from "./richardson";
 
 /**
  * Expected shortfall ES_p = q_p + E[(X - q_p)^+] / (1 - p) (Acerbi & Tasche 2002): the tail integral
@@ -84,6 +87,9 @@ export function heavyShortfall(
 ): (q: number, target: number) => { value: number; error: number } {
   let part = makePart(model, atoms, shape.center);
   let env = probeEnvelope(part, shape.spread);
+  let alphaR: number;
+  let bases: number[] | undefined;
+  ({ part, env, alpha: alphaR, bases } = maybeTailLaw(part, env, shape, tol));
   ({ part, env } = maybeKernels(part, env, shape, { a: shape.center - 64 * shape.spread, b: shape.center + 64 * shape.spread }, tol / 16, false, []));
   // the weights 1/t^2 make the tail beyond T at most (2/pi) int_T E/t^2 <= 2 tailCdf(T)/T: cut where that is small
   let tmax = env.t[env.t.length - 1];
@@ -100,8 +106,11 @@ export function heavyShortfall(
   // mean of the inverted (signed) measure: continuous part minus its kernels (gamma means at/side a/lambda)
   let muC = (mean - pm) / w;
   for (const k of part.kernels) for (let q = 0; q < k.b.length; q++) muC -= k.b[q] * (k.at + (k.side * (k.power + q)) / k.rate);
-  const alpha = Math.max(shape.alpha, 1.01);
-  const exps = richardsonExponents(alpha, -1, 8);
+  // and minus the subtracted tail law G (mean E D + E rest)
+  const G = part.tail;
+  if (G) muC -= G.mean + G.shift;
+  const alpha = Math.max(alphaR, 1.01);
+  const exps = exponentsFor(bases?.map((b) => Math.max(b, 1.01)), alpha, -1, 8);
   // one period ladder for every level asked (nodes built once, on first use)
   const T0 = Math.max(64 * shape.spread, 4 * span);
   const cache: Nodes[] = [];
@@ -156,8 +165,20 @@ export function heavyShortfall(
     for (const a of atoms) if (a.x > q) atomPart += a.p * (a.x - q);
     let kernelPart = 0;
     for (const k of part.kernels) kernelPart += kernelSfIntegral(k, q);
+    // G's own E[(G - q)^+] from its direct law: directShortfall at level 1/2 returns q + 2 E[(G - q)^+]
+    let gErr = 0;
+    if (G) {
+      // below G's median through the lower tail (directShortfall at level 1/4: q + (E G - q + int_-inf^q F_G) / (3/4)),
+      // above it through the upper tail (level 1/2: q + 2 int_q^inf S_G)
+      const pt = directPoint();
+      G.direct.at(q, pt);
+      const lv = pt.cdf < 0.5 ? 0.25 : 0.5;
+      const r = directShortfall(G.direct, q, 0, lv, G.tails, G.mean + G.shift);
+      kernelPart += (r.value - q) * (1 - lv);
+      gErr = r.error * (1 - lv) + 4 * Number.EPSILON * Math.abs(r.value);
+    }
     // for the signed remainder of mass M: int (x - q)^+ = (int |x - q| + mu - q M) / 2
     const value = atomPart + w * ((absC + muC - q * part.mass) / 2 + kernelPart);
-    return { value, error: (w * error) / 2 + 8 * Number.EPSILON * Math.abs(absC) };
+    return { value, error: (w * error) / 2 + w * gErr + 8 * Number.EPSILON * Math.abs(absC) };
   };
 }
