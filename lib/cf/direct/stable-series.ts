@@ -27,6 +27,10 @@ interface Coeffs {
   lPdf: Float64Array;
   /** (-1)^(k+1) sin(k alpha (pi/2 + theta0)) */
   sgn: Float64Array;
+  /** |k log c| + lgamma(k + 1) + |lgamma(k alpha + 1)|: the size of the parts of each exponent (their rounding) */
+  size: Float64Array;
+  /** alpha (pi/2 + theta0): the sine of k times it is off by up to k eps phase */
+  phase: number;
 }
 const cache = new Map<string, Coeffs>();
 
@@ -39,12 +43,13 @@ function coeffsFor(alpha: number, beta: number): Coeffs {
   const logc = 0.5 * Math.log1p(tb * tb);
   const phase = alpha * (Math.PI / 2 + theta0);
   const n = MAX_TERMS + 2;
-  c = { lSf: new Float64Array(n), lPdf: new Float64Array(n), sgn: new Float64Array(n) };
+  c = { lSf: new Float64Array(n), lPdf: new Float64Array(n), sgn: new Float64Array(n), size: new Float64Array(n), phase };
   for (let k = 1; k < n; k++) {
     const base = k * logc - lgamma(k + 1);
     c.lSf[k] = base + lgamma(k * alpha);
     c.lPdf[k] = base + lgamma(k * alpha + 1);
     c.sgn[k] = (k % 2 ? 1 : -1) * Math.sin(k * phase);
+    c.size[k] = Math.abs(k * logc) + lgamma(k + 1) + Math.abs(lgamma(k * alpha)) + Math.abs(lgamma(k * alpha + 1));
   }
   if (cache.size > 64) cache.clear();
   cache.set(key, c);
@@ -55,12 +60,14 @@ export function stableTailSeries(alpha: number, beta: number, z: number): Series
   if (!(z > 0) || alpha === 1) return null;
   // beta = -1 leaves no power tail on this side (the law's right tail is lighter than any power)
   if (beta === -1) return null;
-  const { lSf, lPdf, sgn } = coeffsFor(alpha, beta);
+  const { lSf, lPdf, sgn, size, phase } = coeffsFor(alpha, beta);
   const lz = Math.log(z);
   let sf = 0;
   let pdf = 0;
-  let absSf = 0;
-  let absPdf = 0;
+  // rounding of the summed terms: each exponent is off by eps times the size of its parts (plus lgamma's own error),
+  // each sine by k eps phase (absolute, so a sine near zero still counts), each product and sum by a few eps
+  let errSf = 0;
+  let errPdf = 0;
   let prevSf = Infinity;
   let lastSf = 0;
   let lastPdf = 0;
@@ -74,8 +81,8 @@ export function stableTailSeries(alpha: number, beta: number, z: number): Series
     const tPdf = sgn[k] * magPdf;
     // a series whose terms grow from the start (z too small) or overflow is not used
     if (!Number.isFinite(mag) || (k === 2 && mag > prevSf)) return null;
-    // each term is exp(argument): its relative error is about eps times the argument's size (plus lgamma's ~1e-15)
-    const termRel = 2e-14 + 4 * Number.EPSILON * Math.abs(lPdf[k] - kal);
+    const termRel = 2e-14 + 4 * Number.EPSILON * (size[k] + Math.abs(kal) + Math.abs(lz));
+    const sineAbs = 4 * Number.EPSILON * k * Math.abs(phase);
     if (mag > prevSf && alpha > 1) break; // asymptotic series: stop before the terms grow
     if (k > 1 && mag <= 1e-13 * Math.abs(sf) && magPdf <= 1e-13 * Math.abs(pdf)) {
       lastSf = Math.abs(tSf) + mag * 1e-3;
@@ -89,14 +96,13 @@ export function stableTailSeries(alpha: number, beta: number, z: number): Series
     }
     sf += tSf;
     pdf += tPdf;
-    absSf += Math.abs(tSf) * (1 + termRel / (8 * Number.EPSILON));
-    absPdf += Math.abs(tPdf) * (1 + termRel / (8 * Number.EPSILON));
+    errSf += 8 * Number.EPSILON * Math.abs(tSf) + Math.abs(tSf) * termRel + mag * sineAbs;
+    errPdf += 8 * Number.EPSILON * Math.abs(tPdf) + Math.abs(tPdf) * termRel + magPdf * sineAbs;
     prevSf = mag;
   }
   if (!converged || !(sf > 0) || !(pdf > 0)) return null;
-  const eps = Number.EPSILON;
-  const sfErr = (10 * lastSf + 8 * eps * absSf) / Math.PI;
-  const pdfErr = (10 * lastPdf + 8 * eps * absPdf) / Math.PI;
+  const sfErr = (10 * lastSf + errSf) / Math.PI;
+  const pdfErr = (10 * lastPdf + errPdf) / Math.PI;
   sf /= Math.PI;
   pdf /= Math.PI;
   if (sfErr > 1e-9 * sf || pdfErr > 1e-9 * pdf) return null;
