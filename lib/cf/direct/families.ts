@@ -50,14 +50,15 @@ function law(method: DirectLaw["method"], support: [number, number], center: num
 /**
  * relative error r on each value, plus pdf times the rounding dx of the argument. An infinite pdf (a power
  * singularity at the support's end, met exactly there, dx = 0) is the exact limit: its own error and its effect on
- * the cdf are 0 (Infinity * 0 would make every bound of the answer NaN).
+ * the cdf are 0 (Infinity * 0 would make every bound of the answer NaN); so is a pdf of 0 there.
  */
 function bounds(o: DirectPoint, r: number, rPdf: number, dx: number) {
   const finite = Number.isFinite(o.pdf);
   const moved = finite && dx > 0 ? o.pdf * dx : 0;
   o.cdfErr = r * o.cdf + moved;
   o.sfErr = r * o.sf + moved;
-  o.pdfErr = finite ? rPdf * o.pdf : 0;
+  // a pdf of exactly 0 (the limit at a support end, where rPdf may hold log 0) is exact too
+  o.pdfErr = finite && o.pdf !== 0 ? rPdf * o.pdf : 0;
 }
 
 export function normalDirect(mu: number, sigma: number): DirectLaw {
