@@ -177,13 +177,21 @@ export interface Nodes {
   mass: number;
 }
 
+const NODE_BLOCK = 1 << 16;
+
 export function buildNodes(part: ContinuousPart, h: number, K: number): Nodes {
   checkDeadline("nodes");
   const t = new Float64Array(K);
   for (let k = 0; k < K; k++) t[k] = (k + 0.5) * h;
   const re = new Float64Array(K);
   const im = new Float64Array(K);
-  evalPart(part, t, re, im);
+  // in blocks (as probeEnvelope does), with the deadline checked between them: K reaches millions for densities
+  // with kinks, and one call over all nodes ran for many seconds past a deadline
+  for (let i0 = 0; i0 < K; i0 += NODE_BLOCK) {
+    if (i0 > 0) checkDeadline("nodes");
+    const i1 = Math.min(K, i0 + NODE_BLOCK);
+    evalPart(part, t.subarray(i0, i1), re.subarray(i0, i1), im.subarray(i0, i1));
+  }
   const wre = new Float64Array(K);
   const wim = new Float64Array(K);
   let ac = 0;

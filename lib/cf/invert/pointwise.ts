@@ -33,6 +33,8 @@ export function sumPointwise(
     let accC = 0;
     let k = 0;
     while (k < K) {
+      // one point may take millions of nodes (densities with kinks): the deadline is checked every 2^16 of them
+      if (k > 0 && (k & 0xffff) === 0) checkDeadline("pointwise");
       const a0 = (k + 0.5) * th;
       let zr = Math.cos(a0);
       let zi = -Math.sin(a0);
