@@ -1,4 +1,4 @@
-// Every computation has a deadline: laws whose CF is a quadrature per frequency (per-claim layers, beta) check it
+// Every computation has a deadline: laws whose CF is a quadrature per frequency (per-claim layers, beta, truncated normal) check it
 // inside that loop. Before, the loop ran to its end however long it took: inverting a sum of two weibull layers
 // overran a 3 s deadline by more than eight minutes and a beta law a 1 s deadline by more than a minute (found by
 // tests/cf/properties.test.ts). Here the deadline has already passed when the CF is asked for many frequencies, so
@@ -22,6 +22,11 @@ const cases: { name: string; stage: string; model: Model }[] = [
     } as Model,
   },
   { name: "a beta law on [-0.452, 2.661]", stage: "beta-cf", model: { family: "beta", alpha: 2.054, beta: 1.54, a: -0.452, b: 2.661 } as Model },
+  {
+    name: "a truncated normal law",
+    stage: "truncated-normal-cf",
+    model: { family: "truncated_normal", mu: 0.005, sigma: 1.424, lower: -2.408, upper: 1.228 } as Model,
+  },
 ];
 
 afterEach(() => clearDeadline());

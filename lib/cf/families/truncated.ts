@@ -3,6 +3,7 @@ import { rawToCumulants, type Node } from "../node";
 import { sortedAnchor, unwrapFrom } from "../complex";
 import { normalCdf, normalPdf, type DirectLaw } from "./dist";
 import { restrictedIntegral } from "../quadrature";
+import { checkDeadline } from "../deadline";
 
 /** Stated absolute accuracy of the truncated normal CF (composite Gauss-Legendre on the density). */
 export const TRUNCATED_NORMAL_CF_ABS_ERROR = 1e-12;
@@ -70,6 +71,8 @@ export function truncatedNormal(mu: number, sigma: number, lower?: number, upper
     support: [a, b],
     logCf(t, re, im) {
       for (let k = 0; k < t.length; k++) {
+        // a quadrature per frequency (its panels grow with |t|): the deadline is checked every 64 of them
+        if ((k & 63) === 0) checkDeadline("truncated-normal-cf");
         const [r, i] = t[k] === 0 ? [1, 0] : phi(t[k]);
         re[k] = Math.log(Math.hypot(r, i));
         im[k] = Math.atan2(i, r);
