@@ -236,7 +236,10 @@ function compoundTable(N: Node, X: Node, kind: { step: number }, maxLength: numb
     for (let i = 0; i < pw.p.length; i++) s += pw.p[i];
     return { origin: 0, step: g, p: pw.p, tailMass: Math.max(0, 1 - s) };
   }
-  if (N.panjer) {
+  // binomial-type counts (a < 0) make the recursion unstable (Panjer & Wang 1993, On the stability of recursive
+  // formulas): rounding grows along the table (a Bernoulli count gave a table summing to 1.001 with mass beyond
+  // the largest possible total); their finite count table takes the direct sum below instead
+  if (N.panjer && N.panjer.a >= 0) {
     if (len * sev.length <= 4e8) {
       const p = panjer({ a: N.panjer.a, b: N.panjer.b, c1: N.panjer.c1, pgf: (z) => pgfAt(N, z) }, sev, len);
       if (p) {

@@ -185,8 +185,9 @@ function atomsOnly(atomsIn: Atom[], options: DensityOptions): DensityResult {
   const sf = new Float64Array(n);
   for (let i = 0; i < n; i++) {
     const { below, above } = atomMass(atoms, xs[i]);
-    cdf[i] = below;
-    sf[i] = above;
+    // sums of the atoms' masses may round past 1 (a sample's masses w_i / sum w): the true values lie in [0, 1]
+    cdf[i] = Math.min(1, below);
+    sf[i] = Math.min(1, above);
     for (const a of atoms) if (a.x === xs[i]) pmf[i] += a.p;
   }
   const err = 4 * Number.EPSILON * Math.max(1, atoms.length);
