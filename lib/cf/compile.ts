@@ -151,6 +151,7 @@ export function toCompiled(node: Node): CompiledModel {
       damped(beta, t, re, im);
     };
     if (node.dampedKernels && node.dampedKernels.cf === damped) compiled.dampedKernels = node.dampedKernels.kernels;
+    if (node.dampedSeverity && node.dampedSeverity.cf === damped) compiled.dampedSeverity = node.dampedSeverity.kernel;
   }
   if (node.kind.type === "lattice" && node.table) {
     const table = node.table;

@@ -105,6 +105,11 @@ export function compoundNode(N: Node, X: Node, discretise: DiscretiseOptions | n
       if (k.kernels.length > 0) node.dampedKernels = { cf: node.dampedLogCf, kernels: k.kernels, rate: k.rate };
     }
   }
+  if (node.dampedLogCf && !node.dampedKernels && X.severityKernel && X.kind.type === "continuous" && X.support[0] === 0 && node.support[0] === 0 && N.table) {
+    const t = N.table(2);
+    const p1 = t && t.step === 1 && t.origin <= 1 && 1 - t.origin < t.p.length ? t.p[1 - t.origin] : 0;
+    if (p1 > 0) node.dampedSeverity = { cf: node.dampedLogCf, kernel: X.severityKernel(p1) };
+  }
   if (kind.type === "lattice" && X.table) {
     node.table = (maxLength) => compoundTable(N, X, kind as { step: number }, maxLength, node);
   }

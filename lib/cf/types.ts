@@ -55,6 +55,9 @@ export interface CompiledModel {
   /** gamma kernels the damped inversion subtracts from the transform and adds back in closed form (compounds of
    *  severities with a slowly decaying CF: a jump or a power singularity at the support's lower end) */
   dampedKernels?: readonly import("./damped-kernels").GammaKernel[];
+  /** the one-claim term of a compound (P(N = 1) times a closed-form severity law) the damped inversion takes out of
+   *  the transform and adds back in closed form */
+  dampedSeverity?: import("./severity-kernel").SeverityKernel;
   /** notes on approximations already made (e.g. "lognormal severity discretised on step h, mean-preserving"). */
   readonly notes: string[];
   /** a single named law, possibly scaled or shifted, evaluated without its CF (closed form, special function or

@@ -1,3 +1,4 @@
+import { lognormalKernel } from "../severity-kernel";
 import { gamma as gammaFn, lgamma } from "./special";
 import { cumulantList, rawToCumulants, type Node } from "../node";
 import { checkDeadline } from "../deadline";
@@ -174,6 +175,7 @@ export function lognormal(mu: number, sigma: number): Node {
   const cfError = Math.max(1e-16 + 16 * Number.EPSILON * g0, shortcutError + 1e-16);
   const s2 = sigma * sigma;
   const d = Math.expm1(s2);
+  const damped = (beta: number, t: Float64Array, re: Float64Array, im: Float64Array) => (arithmetic(t) ? batch(beta, t, re, im) : single(beta, t, re, im));
   return {
     kind: { type: "continuous" },
     momentIndex: Infinity,
@@ -183,7 +185,9 @@ export function lognormal(mu: number, sigma: number): Node {
     // the step and range make the rule's own error below 1e-16; rounding: the terms' magnitudes sum to at most
     // e^{c^2/2} (the Gaussian weight on the shifted path), 16 eps each way
     cfAbsError: cfError,
-    dampedLogCf: (beta, t, re, im) => (arithmetic(t) ? batch(beta, t, re, im) : single(beta, t, re, im)),
+    dampedLogCf: damped,
+    // compounds take the one-claim term out of their damped transform and add it back in closed form
+    severityKernel: (w: number) => lognormalKernel(w, mu, sigma, damped),
     // density (JKB vol. 1, ch. 14); upper tail: P(Z > z) <= exp(-z^2/2) (Chernoff bound, common practice)
     severity: {
       name: "lognormal",

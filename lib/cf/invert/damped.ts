@@ -1,5 +1,6 @@
 import type { Atom, CompiledModel } from "../types";
 import type { GammaKernel } from "../damped-kernels";
+import type { SeverityKernel } from "../severity-kernel";
 import { nextPowerOfTwo } from "../fftplan";
 import { checkDeadline } from "../deadline";
 import { sumOnGrid } from "./fft";
@@ -25,7 +26,7 @@ import { cutoffFor, envelopeOf, probeFrequencies, truncationAt, type Envelope, t
 /** per-node noise of psi_c: rounding of the atom subtraction plus twice the CF's declared absolute error */
 function noiseOf(model: CompiledModel, atoms: Atom[]): number {
   const pa = atoms.reduce((s, a) => s + a.p, 0);
-  const kw = kernelsMass(model.dampedKernels ?? []);
+  const kw = kernelsMass(model.dampedKernels ?? []) + (model.dampedSeverity?.w ?? 0);
   // a relative CF error acts on the atoms' share of psi as an absolute one; the kernels' closed forms round too
   return 16 * EPS * (1 + pa + kw) + 2 * (model.cfAbsError ?? 0) + 2 * pa * (model.cfRelError ?? 0);
 }
@@ -67,6 +68,8 @@ export interface DampedSolution {
   capped: boolean;
   /** gamma kernels taken out of psi_c (added back in closed form) */
   kernels: readonly GammaKernel[];
+  /** the one-claim term taken out of psi_c (added back in closed form) */
+  severity: SeverityKernel | null;
   notes: string[];
 }
 
@@ -110,7 +113,28 @@ function psiOf(model: CompiledModel, atoms: Atom[], beta: number) {
       im[k] = i;
     }
     if (model.dampedKernels) subtractKernels(model.dampedKernels, lo, beta, t, re, im);
+    if (model.dampedSeverity) subtractSeverity(model.dampedSeverity, beta, t, re, im);
   };
+}
+
+/** psi -= w E[e^{(i t - beta) X}] (the one-claim term; the compound's support starts at 0 like the severity's) */
+function subtractSeverity(k: SeverityKernel, beta: number, t: Float64Array, re: Float64Array, im: Float64Array) {
+  const r = new Float64Array(t.length);
+  const i = new Float64Array(t.length);
+  k.dampedLogCf(beta, t, r, i);
+  for (let j = 0; j < t.length; j++) {
+    const m = k.w * Math.exp(r[j]);
+    re[j] -= m * Math.cos(i[j]);
+    im[j] -= m * Math.sin(i[j]);
+  }
+}
+
+/** the gamma kernels and the one-claim term at x: what the inverted remainder leaves out */
+function takenOutAt(s: DampedSolution, x: number): { F: number; f: number; I: number; err: number; errf: number; errI: number } {
+  const kv = s.kernels.length ? kernelsAt(s.kernels, x) : { F: 0, f: 0, I: 0, err: 0, errf: 0, errI: 0 };
+  if (!s.severity) return kv;
+  const v = s.severity.at(x);
+  return { F: kv.F + v.F, f: kv.f + v.f, I: kv.I + v.I, err: kv.err + v.err, errf: kv.errf + v.errf, errI: kv.errI + v.errI };
 }
 
 function probe(model: CompiledModel, atoms: Atom[], beta: number, noise: number): Envelope {
@@ -132,7 +156,7 @@ export function dampedPlan(model: CompiledModel, atoms: Atom[], R: number, tol: 
   const lo = model.support[0];
   const span = Math.max(R - lo, 1e-6 * Math.max(model.scale, Math.abs(lo), 1e-300));
   // the inverted function is the continuous part less the kernels: its size bounds the images
-  const Mc = Math.max(1 - atoms.reduce((s, a) => s + a.p, 0), 1e-300) + kernelsMass(model.dampedKernels ?? []);
+  const Mc = Math.max(1 - atoms.reduce((s, a) => s + a.p, 0), 1e-300) + kernelsMass(model.dampedKernels ?? []) + (model.dampedSeverity?.w ?? 0);
   const A = Math.max(Math.log((8 * Mc) / tol), 2);
   const noise = noiseOf(model, atoms);
   const env0 = probe(model, atoms, 4 / span, noise);
@@ -234,12 +258,18 @@ export function dampedSetup(model: CompiledModel, atoms: Atom[], R: number, o: D
   const ks = model.dampedKernels ?? [];
   const fTail =
     (mean !== null && Number.isFinite(mean) && model.momentIndex > 1 ? (4 * Math.max(mean - lo, 0)) / (T * T) : (2 * Mc) / T) +
-    (ks.length ? kernelsDensityBeyond(ks, lo + T) : 0);
-  const Mr = Mc + kernelsMass(ks);
+    (ks.length ? kernelsDensityBeyond(ks, lo + T) : 0) +
+    (model.dampedSeverity ? model.dampedSeverity.densityBeyond(lo + T) : 0);
+  const Mr = Mc + kernelsMass(ks) + (model.dampedSeverity?.w ?? 0);
   notes.push(
     `damped inversion (exponential damping beta = ${beta.toPrecision(4)} before the transform, Abate & Whitt 1992; ` +
       `Grubel & Hermesmeier 1999): period ${T.toPrecision(4)} from ${lo}, ${K} frequency terms, atoms separated exactly`,
   );
+  if (model.dampedSeverity)
+    notes.push(
+      `the one-claim term (P(N = 1) = ${model.dampedSeverity.w.toPrecision(4)} times the ${model.dampedSeverity.name} severity) taken out of ` +
+        `the transform before the inversion and added back in closed form, so the remainder decays like the severity's transform squared`,
+    );
   if (ks.length)
     notes.push(
       `${ks.length} gamma kernels matching the endpoint expansion of the transform (Watson's lemma) taken out before the ` +
@@ -268,6 +298,7 @@ export function dampedSetup(model: CompiledModel, atoms: Atom[], R: number, o: D
     aliasPdf: fTail * geo,
     aliasIntCoef: Mr * geo,
     kernels: ks,
+    severity: model.dampedSeverity ?? null,
     q,
     maxFrequency: K * h,
     capped,
@@ -314,7 +345,7 @@ export function dampedAt(s: DampedSolution, x: number, wantPdf: boolean, wantInt
   }
   const g = Math.exp(s.beta * y);
   const f = (g * h) / Math.PI;
-  const kv = s.kernels.length ? kernelsAt(s.kernels, x) : { F: 0, f: 0, I: 0, err: 0, errf: 0, errI: 0 };
+  const kv = takenOutAt(s, x);
   // the phase recurrence drifts by ~ eps per step between resyncs: inside the rounding allowance of the setup;
   // clamping to the known range [0, Mc] only moves a value toward the truth
   const Fc = Math.min(Math.max(f * aC + kv.F, 0), s.Mc);
@@ -362,7 +393,7 @@ export function dampedGrid(
     const y = from + j * dx - s.lo;
     if (y < 0) continue;
     const g = Math.exp(s.beta * y);
-    const kv = s.kernels.length ? kernelsAt(s.kernels, from + j * dx) : { F: 0, f: 0, err: 0, errf: 0 };
+    const kv = takenOutAt(s, from + j * dx);
     Fc[j] = Math.min(Math.max(g * gC[j] + kv.F, 0), s.Mc);
     fc[j] = wantPdf ? Math.max(g * gP[j] + kv.f, 0) : 0;
     errF[j] = g * s.sumCdf + s.aliasCdf + kv.err;

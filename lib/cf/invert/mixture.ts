@@ -88,7 +88,7 @@ function dampedComponent(w: number, m: CompiledModel, R0: number, tol: number, t
   const lo = m.support[0];
   const atoms = m.kind.type === "mixed" ? [...m.kind.atoms].sort((u, v) => u.x - v.x) : [];
   const Mc = Math.max(1 - atoms.reduce((s, a) => s + a.p, 0), 0);
-  const budget = m.dampedKernels?.length ? MAX_K : DAMPED_BUDGET;
+  const budget = m.dampedKernels?.length || m.dampedSeverity ? MAX_K : DAMPED_BUDGET;
   const mean = m.momentIndex > 1 ? m.cumulants(1)[0] : null;
   const setup = (R: number) => dampedSetup(m, atoms, R, { tolerance: tol, wantPdf: true, budget });
   let R = R0;

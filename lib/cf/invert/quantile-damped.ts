@@ -33,7 +33,7 @@ export function dampedQuantiles(model: CompiledModel, atoms: Atom[], p: Float64A
   // locate R with cheap loose inversions (growth 1.5), then invert once at the tolerance
   const loose = Math.max(tol, Math.min(1e-7, tail / 100));
   // kernels taken out (pareto, weibull severities): what is left decays fast, so a long range is worth its terms
-  const budget = model.dampedKernels?.length ? MAX_K : DAMPED_BUDGET;
+  const budget = model.dampedKernels?.length || model.dampedSeverity ? MAX_K : DAMPED_BUDGET;
   for (let it = 0; it < 40; it++) {
     const probe = dampedSetup(model, atoms, R, { tolerance: loose, wantPdf: false, budget });
     if (!probe) return null;
