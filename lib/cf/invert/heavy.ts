@@ -186,8 +186,8 @@ export function maybeTailLaw(
   const alpha = Math.max(shape.alpha, 0.1);
   const p2 = withTailLaw(part);
   if (p2 === part || !p2.tail) return { part, env, alpha, bases: shape.tailBases };
-  // worth it only when what is left is clearly lighter
-  if (!(p2.tail.remainderAlpha >= alpha + 0.5)) return { part, env, alpha, bases: shape.tailBases };
+  // worth it only when what is left is lighter (the Richardson exponents then come from the remainder's power terms)
+  if (!(p2.tail.remainderAlpha > alpha + 0.05)) return { part, env, alpha, bases: shape.tailBases };
   const e2 = probeEnvelope(p2, shape.spread);
   const c1 = cutoffFor(env, tol / 16, tol / 16);
   const c2 = cutoffFor(e2, tol / 16, tol / 16);
