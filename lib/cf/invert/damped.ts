@@ -62,6 +62,12 @@ export interface DampedSolution {
   aliasCdf: number;
   aliasPdf: number;
   aliasIntCoef: number;
+  /**
+   * images of the integrated cdf taken out in closed form (null when the law has no second moment): for z far out,
+   * int_lo^z (F_c - K_F) = A (z - lo) - B + r(z) with A = M_c - sum w, B = E[(X - lo); continuous part] - sum w E[Y_k],
+   * so sum_m (-1)^m q^m (A (y + m T) - B) is subtracted exactly and only sum_m q^m |r(y + m T)| <= rest(y) is left
+   */
+  intImages: { A: number; B: number; second: number } | null;
   q: number;
   maxFrequency: number;
   /** the frequency cut-off was capped: the truncation term is what it is, not the target */
@@ -261,6 +267,28 @@ export function dampedSetup(model: CompiledModel, atoms: Atom[], R: number, o: D
     (ks.length ? kernelsDensityBeyond(ks, lo + T) : 0) +
     (model.dampedSeverity ? model.dampedSeverity.densityBeyond(lo + T) : 0);
   const Mr = Mc + kernelsMass(ks) + (model.dampedSeverity?.w ?? 0);
+  // second moments about lo (continuous part and kernels) for the images of the integrated cdf
+  let intImages: DampedSolution["intImages"] = null;
+  const k2 = model.cumulants(2);
+  // (not with a one-claim severity term taken out: its moments are not at hand here; the coarser bound stays)
+  if (!model.dampedSeverity && model.momentIndex > 2 && k2[0] !== null && k2[1] !== null && Number.isFinite(k2[0]) && Number.isFinite(k2[1])) {
+    const m1 = k2[0] - lo;
+    let mc = m1;
+    let second = k2[1] + m1 * m1;
+    for (const a of atoms) {
+      mc -= a.p * (a.x - lo);
+      second -= a.p * (a.x - lo) ** 2;
+    }
+    let W = 0;
+    let mK = 0;
+    for (const k of ks) {
+      const d = k.at - lo;
+      W += k.w;
+      mK += k.w * (d + k.shape / k.rate);
+      second += Math.abs(k.w) * (d * d + (2 * d * k.shape) / k.rate + (k.shape * (k.shape + 1)) / (k.rate * k.rate));
+    }
+    if (Number.isFinite(mc) && Number.isFinite(second)) intImages = { A: Mc - W, B: mc - mK, second: Math.max(second, 0) };
+  }
   notes.push(
     `damped inversion (exponential damping beta = ${beta.toPrecision(4)} before the transform, Abate & Whitt 1992; ` +
       `Grubel & Hermesmeier 1999): period ${T.toPrecision(4)} from ${lo}, ${K} frequency terms, atoms separated exactly`,
@@ -297,6 +325,7 @@ export function dampedSetup(model: CompiledModel, atoms: Atom[], R: number, o: D
     aliasCdf: Mr * geo,
     aliasPdf: fTail * geo,
     aliasIntCoef: Mr * geo,
+    intImages,
     kernels: ks,
     severity: model.dampedSeverity ?? null,
     q,
@@ -350,14 +379,25 @@ export function dampedAt(s: DampedSolution, x: number, wantPdf: boolean, wantInt
   // clamping to the known range [0, Mc] only moves a value toward the truth
   const Fc = Math.min(Math.max(f * aC + kv.F, 0), s.Mc);
   const fc = Math.max(f * aP + kv.f, 0);
-  const Ic = Math.min(Math.max(f * aI + kv.I, 0), s.Mc * y);
+  // images of the integrated cdf: sum_{m >= 1} (-1)^m q^m (A (y + m T) - B) in closed form
+  // (sum (-1)^m q^m = -q/(1+q), sum (-1)^m m q^m = -q/(1+q)^2); what is left is at most
+  // q/(1-q) E[(Y - (y + T))^+] <= q/(1-q) E[Y^2] / (4 (y + T)) for Y >= 0 ((u - c)^+ <= u^2 / (4c), common practice)
+  let images = 0;
+  let aliasI = s.aliasIntCoef * (y + s.T / (1 - s.q));
+  if (s.intImages) {
+    const { A, B, second } = s.intImages;
+    const r = s.q / (1 + s.q);
+    images = -r * (A * y - B) - (A * s.T * r) / (1 + s.q);
+    aliasI = Math.min(aliasI, (s.q / (1 - s.q)) * (second / (4 * (y + s.T))) + 8 * EPS * (Math.abs(A) * (y + s.T) + Math.abs(B)) * r);
+  }
+  const Ic = Math.min(Math.max(f * aI - images + kv.I, 0), s.Mc * y);
   return {
     Fc,
     fc,
     Ic,
     errF: g * s.sumCdf + s.aliasCdf + kv.err,
     errf: g * s.sumPdf + s.aliasPdf + kv.errf,
-    errI: g * s.sumInt + s.aliasIntCoef * (y + s.T / (1 - s.q)) + kv.errI,
+    errI: g * s.sumInt + aliasI + kv.errI,
   };
 }
 
