@@ -388,7 +388,7 @@ export function dampedAt(s: DampedSolution, x: number, wantPdf: boolean, wantInt
     const { A, B, second } = s.intImages;
     const r = s.q / (1 + s.q);
     images = -r * (A * y - B) - (A * s.T * r) / (1 + s.q);
-    aliasI = Math.min(aliasI, (s.q / (1 - s.q)) * (second / (4 * (y + s.T))) + 8 * EPS * (Math.abs(A) * (y + s.T) + Math.abs(B)) * r);
+    aliasI = (s.q / (1 - s.q)) * (second / (4 * (y + s.T))) + 8 * EPS * (Math.abs(A) * (y + s.T) + Math.abs(B)) * r;
   }
   const Ic = Math.min(Math.max(f * aI - images + kv.I, 0), s.Mc * y);
   return {
