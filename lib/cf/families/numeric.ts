@@ -456,9 +456,10 @@ export function pareto(alpha: number, xm: number): Node {
     logFromSums(t, sr, si, re, im, Math.log(alpha), Math.PI / 2, xm);
   };
   // sum_j |c_j| ~ int_0^inf (1 + r^2)^{-q/2} dr = (sqrt(pi)/2) Gamma(alpha/2) / Gamma((alpha+1)/2) (DLMF 5.12.1 with
-  // r^2 = s / (1 - s)), 1% added for the rule; times alpha for the prefactor
-  const cSum = 1.01 * 0.5 * Math.sqrt(Math.PI) * Math.exp(lgamma(alpha / 2) - lgamma((alpha + 1) / 2));
-  const cfError = Math.max(NUMERIC_CF_ABS_ERROR, alpha * (1e-16 + cSum * (2e-25 + 96 * Number.EPSILON) + 1e-18));
+  // r^2 = s / (1 - s)), 1% added for the rule; times alpha for the prefactor, in logs (Gamma(alpha/2) ~ 2/alpha overflows
+  // for alpha near the smallest doubles while alpha Gamma(alpha/2) stays near 2)
+  const aSum = 1.01 * 0.5 * Math.sqrt(Math.PI) * Math.exp(Math.log(alpha) + lgamma(alpha / 2) - lgamma((alpha + 1) / 2));
+  const cfError = Math.max(NUMERIC_CF_ABS_ERROR, alpha * (1e-16 + 1e-18) + aSum * (2e-25 + 96 * Number.EPSILON));
   const raw = (m: number) => (alpha * xm ** m) / (alpha - m);
   return {
     kind: { type: "continuous" },
