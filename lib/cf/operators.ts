@@ -414,9 +414,13 @@ export function mixNode(ws: number[], cs: Node[]): Node {
   carryMixKernels(node, ws, cs);
   if (kind.type === "lattice" && cs.every((c) => c.table)) {
     node.table = (maxLength) => {
-      const tabs = cs.map((c) => c.table!(maxLength));
-      if (tabs.some((x) => !x)) return null;
       const g = kind.step || 1;
+      // each component's table is spread from its own step onto the common step g: ask for no more than fits
+      const spread = (c: Node) => (c.kind.type === "lattice" && c.kind.step > 0 ? Math.max(1, Math.round(c.kind.step / g)) : 1);
+      const tabs = cs.map((c) => c.table!(Math.floor((maxLength - 1) / spread(c)) + 1));
+      if (tabs.some((x) => !x)) return null;
+      // a component on a coarse step spread onto a fine common step can need billions of entries: no table then
+      if ((tabs as LatticeTable[]).some((x) => (x.p.length - 1) * Math.round(x.step / g) + 1 > maxLength)) return null;
       const st = (tabs as LatticeTable[]).map((x) => restep(x, g));
       const lo = Math.min(...st.map((x) => x.origin));
       const hi = Math.max(...st.map((x) => x.origin + (x.p.length - 1) * g));
