@@ -18,8 +18,10 @@ function rebuild(node: Node, cs: Node[], series: TransformSeries | undefined) {
   if (!series) return;
   node.transformSeries = series;
   const rates = cs.flatMap((c) => (c.dampedKernels && c.dampedKernels.cf === c.dampedLogCf ? [c.dampedKernels.rate] : []));
-  if (rates.length === 0 || !node.dampedLogCf) return;
-  const rate = Math.min(...rates);
+  if (!node.dampedLogCf) return;
+  // no child with kernels of its own (e.g. a gamma term beside a compound's atom): the smallest child scale, so that
+  // the kernels' rate is near the terms' own (a far rate makes large kernel weights of opposite signs)
+  const rate = rates.length ? Math.min(...rates) : 1 / Math.max(Math.min(...cs.map((c) => c.scale)), 1e-300);
   const kernels = kernelsOfSeries(series, rate);
   if (kernels.length > 0) node.dampedKernels = { cf: node.dampedLogCf, kernels, rate };
 }

@@ -188,6 +188,9 @@ export function lognormal(mu: number, sigma: number): Node {
     dampedLogCf: damped,
     // compounds take the one-claim term out of their damped transform and add it back in closed form
     severityKernel: (w: number) => lognormalKernel(w, mu, sigma, damped),
+    // the density vanishes at 0 faster than any power, so every term of the endpoint expansion is 0 (Watson's lemma):
+    // a compound's transform is P(N = 0) plus o(s^-n), and sums holding it build their kernels from the other terms
+    laplaceExpansion: { at: 0, exps: [], coefs: [] },
     // density (JKB vol. 1, ch. 14); upper tail: P(Z > z) <= exp(-z^2/2) (Chernoff bound, common practice)
     severity: {
       name: "lognormal",
