@@ -440,6 +440,8 @@ export function pareto(alpha: number, xm: number): Node {
     const rHi = Math.max(1, Math.min((Math.log(alpha / tauMin) + 19 * Math.LN10) / tauMin, Math.pow(1e19, 1 / alpha)));
     const v0 = Math.log(rLo);
     const m = Math.ceil((Math.log(rHi) - v0) / h) + 1;
+    // extreme tail indices (range empty or too long): the rule per frequency
+    if (!(m >= 2 && m <= MAX_QUADRATURE_NODES)) return fromPhi(t, re, im, (x, out) => phiAt(x, 0, out));
     const cRe = new Float64Array(m);
     const cIm = new Float64Array(m);
     const e = new Float64Array(m);
