@@ -170,7 +170,7 @@ export function checkMoments(model: Model): MomentOutcome {
         abs += Math.abs(x) ** k;
       }
       const tail = Math.sqrt(second[k - 1] * outside);
-      if (tail > 1e-6 * Math.max(Math.abs(exact[k - 1]), sd ** k)) return "heavy";
+      if (tail > 1e-4 * Math.max(Math.abs(exact[k - 1]), sd ** k)) return "heavy";
       const allow = ep * abs + tail + 1e-12 * Math.max(Math.abs(exact[k - 1]), sd ** k);
       if (!(Math.abs(s - exact[k - 1]) <= allow))
         fail(`raw moment ${k} differs from the numerical moment of the computed pmf`, { exact: exact[k - 1], numerical: s, difference: s - exact[k - 1], allowance: allow, pmfBound: ep, tail, range: [a, b] });
@@ -206,7 +206,7 @@ export function checkMoments(model: Model): MomentOutcome {
     if (b < 0) numerical += b ** k * Fc[n - 1];
     for (const t of atoms) numerical += t.x ** k * t.p;
     const tail = Math.sqrt(second[k - 1] * outsideRight) + Math.sqrt(second[k - 1] * outsideLeft);
-    if (tail > 1e-6 * Math.max(Math.abs(exact[k - 1]), sd ** k)) return "heavy";
+    if (tail > 1e-4 * Math.max(Math.abs(exact[k - 1]), sd ** k)) return "heavy";
     const absG = Math.abs(b) ** k + (a < 0 ? Math.abs(a) ** k : 0);
     const allow = e * absG + 2 * Math.abs(t1 - t2) + tail + 1e-12 * Math.max(Math.abs(exact[k - 1]), sd ** k);
     if (!(Math.abs(numerical - exact[k - 1]) <= allow))

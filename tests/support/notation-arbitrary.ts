@@ -166,18 +166,18 @@ const weights = (n: number) =>
     return w.map((v) => v / s);
   });
 
+/** 2 to 8 terms, most often 2 or 3 (as in the models people send) */
+const terms = fc
+  .oneof({ weight: 3, arbitrary: int(2, 3) }, { weight: 1, arbitrary: int(4, 8) })
+  .chain((n) => fc.array(leaf, { minLength: n, maxLength: n }));
+
 /** A model of the whole notation: a term alone, scaled or shifted, or a sum or mix of up to 8 terms. */
 export const modelArbitrary: A = fc.oneof(
-  { weight: 3, arbitrary: leaf },
+  { weight: 4, arbitrary: leaf },
   { weight: 1, arbitrary: fc.tuple(fc.oneof(num(0.2, 5), num(-3, -0.2)), leaf).map(([scale, of]) => ({ scale, of }) as Model) },
   { weight: 1, arbitrary: fc.tuple(num(-5, 5), leaf).map(([shift, of]) => ({ shift, of }) as Model) },
-  { weight: 4, arbitrary: fc.array(leaf, { minLength: 2, maxLength: 8 }).map((sum) => ({ sum }) as Model) },
-  {
-    weight: 3,
-    arbitrary: fc
-      .array(leaf, { minLength: 2, maxLength: 8 })
-      .chain((terms) => weights(terms.length).map((w) => ({ mix: terms.map((of, i) => ({ weight: w[i], of })) }) as Model)),
-  },
+  { weight: 3, arbitrary: terms.map((sum) => ({ sum }) as Model) },
+  { weight: 2, arbitrary: terms.chain((ts) => weights(ts.length).map((w) => ({ mix: ts.map((of, i) => ({ weight: w[i], of })) }) as Model)) },
 );
 
 /** the aggregate-claims corner of the notation: compounds alone, scaled, shifted, summed and mixed */
