@@ -1,6 +1,7 @@
 import type { Node, NodeKind } from "./node";
 import { commonStep, onLattice, panjer, powerTable, restep, convolveTables } from "./lattice";
 import type { LatticeTable } from "./types";
+import { checkDeadline } from "./deadline";
 import { compoundDamped } from "./damped-cf";
 import { KERNEL_ORDER, compoundSeries, kernelsOfSeries, type GammaKernel, type TransformSeries } from "./damped-kernels";
 import { builtNote, chooseSpan, isPoissonCount, discretisedCompound, methodNote, type DiscretiseOptions, type DiscretisedCompound } from "./discretise";
@@ -277,6 +278,7 @@ function compoundTable(N: Node, X: Node, kind: { step: number }, maxLength: numb
     let cur: LatticeTable = { origin: 0, step: g, p: Float64Array.of(1), tailMass: 0 };
     const kmax = nt.origin + nt.p.length - 1;
     for (let kk = 0; kk <= kmax; kk++) {
+      checkDeadline("compound-table");
       const w = kk >= nt.origin ? nt.p[kk - nt.origin] : 0;
       if (w > 0) for (let i = 0; i < cur.p.length && i < len; i++) out[i] += w * cur.p[i];
       if (kk < kmax) cur = convolveTables([cur, sevTab], len);

@@ -1,5 +1,6 @@
 import { getFftPlan, nextPowerOfTwo } from "./fftplan";
 import { CfError } from "./errors";
+import { checkDeadline } from "./deadline";
 import { MAX_LATTICE } from "./limits";
 import type { LatticeTable } from "./types";
 
@@ -135,6 +136,7 @@ export function convolveTables(tables: LatticeTable[], maxLength = MAX_LATTICE):
   if (tables.length === 0) throw new CfError("invalid_model", "", "Nothing to convolve.");
   let g = 0;
   for (const t of tables) {
+    checkDeadline("convolve");
     if (t.p.length === 1) continue;
     const c = commonStep(g, t.step);
     if (c === null) throw new CfError("not_applicable", "", `Lattice steps ${g} and ${t.step} are not commensurate; the sum is not a lattice law.`);
@@ -266,6 +268,8 @@ export function panjer(count: PanjerCount, f: Float64Array, length: number): Flo
   const c = 1 / (1 - a * f0);
   const Lf = f.length;
   for (let k = 1; k < length; k++) {
+    // O(length * support) work: the deadline is checked every 1024 entries
+    if ((k & 1023) === 0) checkDeadline("panjer");
     let s = 0;
     const jmax = Math.min(k, Lf - 1);
     const bk = b / k;
