@@ -1,13 +1,14 @@
 import type { Atom, CompiledModel } from "../types";
 import { checkDeadline } from "../deadline";
+import { mergeAtoms } from "../kinds";
 import { directPoint, type DirectLaw, type DirectPoint } from "../direct/types";
 import { directQuantile, directShortfall } from "../direct/answer";
 import { DAMPED_BUDGET, MAX_K, dampable, dampedAt, dampedSetup, type DampedSolution } from "./damped";
 import type { QuantileOptions, QuantileResult } from "./quantile";
 import type { DensityOptions, DensityResult } from "./types";
 import { invertContinuous } from "./continuous";
-import { kernelAt } from "./part";
-import { sumPointwise } from "./pointwise";
+import { atomMass, solutionAt } from "./shared";
+import { dampedExcess } from "./quantile-damped";
 import { lawShape } from "./range";
 import { shortfallLight } from "./shortfall";
 
@@ -95,18 +96,9 @@ function dampedComponent(w: number, m: CompiledModel, R0: number, tol: number, t
   let s: DampedSolution | null = setup(R);
   if (!s) return null;
   let grows = 0;
-  const split = (x: number) => {
-    let below = 0;
-    let above = 0;
-    for (const a of atoms) {
-      if (a.x <= x) below += a.p;
-      else above += a.p;
-    }
-    return { below, above };
-  };
   const inside = (x: number): Value => {
     const v = dampedAt(s!, x, true, false);
-    const a = split(x);
+    const a = atomMass(atoms, x);
     return { F: a.below + v.Fc, S: a.above + (Mc - v.Fc), f: v.fc, eF: v.errF, eS: v.errF };
   };
   // beyond the range: the range grows (at most 8 times) when the tail left there matters, otherwise the
@@ -135,11 +127,7 @@ function dampedComponent(w: number, m: CompiledModel, R0: number, tol: number, t
     excess(q) {
       if (mean === null || !Number.isFinite(mean) || !(m.momentIndex > 1)) return null;
       if (q > R && !grow(q)) return { value: 0, error: Infinity };
-      const v = dampedAt(s!, q, false, true);
-      let atomInt = 0;
-      for (const a of atoms) if (a.x <= q) atomInt += a.p * (q - a.x);
-      const value = Math.max(mean - q + atomInt + v.Ic, 0);
-      return { value, error: v.errI + 8 * Number.EPSILON * (Math.abs(mean) + Math.abs(q) + atomInt + Math.abs(v.Ic)) };
+      return dampedExcess(s!, atoms, mean, q);
     },
     terms: () => s!.K,
     notes: () => s!.notes,
@@ -167,31 +155,9 @@ function lightComponent(w: number, m: CompiledModel, tolIn: number): Component |
   }
   const sol = out.solution!;
   const e = wc * sol.error.cdf + 4 * Number.EPSILON;
-  const one = new Float64Array(1);
-  const f1 = new Float64Array(1);
-  const c1 = new Float64Array(1);
-  const s1 = new Float64Array(1);
   const { a, b } = sol.window;
-  const inside = (x: number): Value => {
-    one[0] = x;
-    sumPointwise(sol.nodes, sol.part.center, one, f1, c1, s1);
-    let f = f1[0];
-    let F = c1[0];
-    let S = s1[0];
-    for (const k of sol.part.kernels) {
-      const v = kernelAt(k, x);
-      f += v.pdf;
-      F += v.cdf;
-      S += v.sf;
-    }
-    let below = 0;
-    let above = 0;
-    for (const t of atoms) {
-      if (t.x <= x) below += t.p;
-      else above += t.p;
-    }
-    return { F: below + wc * F, S: above + wc * S, f: wc * f, eF: e, eS: e };
-  };
+  const values = solutionAt(sol, atoms, wc);
+  const inside = (x: number): Value => ({ ...values(x), eF: e, eS: e });
   const [slo, shi] = m.support;
   const at = (x: number): Value => {
     if (x < slo) return { F: 0, S: 1, f: 0, eF: 0, eS: 0 };
@@ -259,9 +225,7 @@ function components(leaves: { w: number; m: CompiledModel }[], tol: number, tail
 
 /** The mixture's atoms: the components' atoms weighted, equal points merged, sorted. */
 function mixtureAtoms(cs: Component[]): Atom[] {
-  const byX = new Map<number, number>();
-  for (const c of cs) for (const a of c.atoms) byX.set(a.x, (byX.get(a.x) ?? 0) + c.w * a.p);
-  return [...byX].map(([x, p]) => ({ x, p })).sort((u, v) => u.x - v.x);
+  return mergeAtoms(cs.flatMap((c) => c.atoms.map((a) => ({ x: a.x, p: c.w * a.p }))));
 }
 
 function mixtureLaw(model: CompiledModel, cs: Component[]): DirectLaw {
@@ -459,7 +423,7 @@ export function mixtureDensity(
   const cdf = new Float64Array(n);
   const sf = new Float64Array(n);
   const e = { aliasing: 0, truncation: 0, rounding: 0, pdf: 0, cdf: 0 };
-  const byX = new Map<number, number>();
+  const weighted: Atom[] = [];
   const counts = new Map<string, number>();
   const notes: string[] = [];
   let terms = 0;
@@ -476,7 +440,7 @@ export function mixtureDensity(
       cdf[i] += w * r.cdf[i];
       sf[i] += w * r.sf[i];
     }
-    for (const a of r.atoms) byX.set(a.x, (byX.get(a.x) ?? 0) + w * a.p);
+    for (const a of r.atoms) weighted.push({ x: a.x, p: w * a.p });
     const d = r.diagnostics;
     for (const k of ["aliasing", "truncation", "rounding", "pdf", "cdf"] as const) e[k] += w * d.error[k];
     counts.set(d.method, (counts.get(d.method) ?? 0) + 1);
@@ -504,7 +468,7 @@ export function mixtureDensity(
     ...(pdf ? { pdf } : {}),
     cdf,
     sf,
-    atoms: [...byX].map(([x, p]) => ({ x, p })).sort((u, v) => u.x - v.x),
+    atoms: mergeAtoms(weighted),
     diagnostics: {
       method: "mixture",
       gridSize,

@@ -75,13 +75,9 @@ export function dampedQuantiles(model: CompiledModel, atoms: Atom[], p: Float64A
           esErr[i] = err[i];
           continue;
         }
-        const v = dampedAt(s, q, false, true);
-        let atomInt = 0;
-        for (const a of atoms) if (a.x <= q) atomInt += a.p * (q - a.x);
-        const excess = Math.max(mean - q + atomInt + v.Ic, 0);
-        es[i] = q + excess / (1 - p[i]);
-        const round = 8 * Number.EPSILON * (Math.abs(mean) + Math.abs(q) + atomInt + v.Ic);
-        esErr[i] = (v.errI + ev.errCdf * err[i] + round) / (1 - p[i]) + 4 * Number.EPSILON * Math.abs(es[i]);
+        const ex = dampedExcess(s, atoms, mean, q);
+        es[i] = q + ex.value / (1 - p[i]);
+        esErr[i] = (ex.error + ev.errCdf * err[i]) / (1 - p[i]) + 4 * Number.EPSILON * Math.abs(es[i]);
       }
       notes.push("expected shortfall from E X - q + int_lo^q F, the integral by the damped transform psi / (beta - i t)^2");
     }
@@ -100,4 +96,13 @@ export function dampedQuantiles(model: CompiledModel, atoms: Atom[], p: Float64A
       notes,
     },
   };
+}
+
+/** E[(X - q)^+] = E X - q + int_lo^q F (atoms exactly, the continuous part's integral from the damped sums) and its bound */
+export function dampedExcess(s: DampedSolution, atoms: Atom[], mean: number, q: number): { value: number; error: number } {
+  const v = dampedAt(s, q, false, true);
+  let atomInt = 0;
+  for (const a of atoms) if (a.x <= q) atomInt += a.p * (q - a.x);
+  const value = Math.max(mean - q + atomInt + v.Ic, 0);
+  return { value, error: v.errI + 8 * Number.EPSILON * (Math.abs(mean) + Math.abs(q) + atomInt + v.Ic) };
 }

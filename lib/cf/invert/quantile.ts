@@ -3,9 +3,7 @@ import type { DirectMethod } from "../direct/types";
 import { directQuantiles } from "../direct/answer";
 import type { Atom, CompiledModel } from "../types";
 import { evalLadder, growLadder, heavyLadder, invertContinuous } from "./continuous";
-import { atomMass } from "./shared";
-import { kernelAt } from "./part";
-import { sumPointwise } from "./pointwise";
+import { atomMass, solutionAt } from "./shared";
 import { lawShape } from "./range";
 import { atomQuantiles, latticeQuantiles } from "./quantile-table";
 import { heavyShortfall, shortfallLight } from "./shortfall";
@@ -100,26 +98,8 @@ function lightQuantiles(model: CompiledModel, atoms: Atom[], w: number, p: Float
   }
   const sol = out.solution!;
   const errCdf = w * sol.error.cdf + 4 * Number.EPSILON;
-  const one = new Float64Array(1);
-  const f1 = new Float64Array(1);
-  const c1 = new Float64Array(1);
-  const s1 = new Float64Array(1);
   const ev: Evaluator = {
-    eval(x: number) {
-      one[0] = x;
-      sumPointwise(sol.nodes, sol.part.center, one, f1, c1, s1);
-      let f = f1[0];
-      let F = c1[0];
-      let S = s1[0];
-      for (const k of sol.part.kernels) {
-        const v = kernelAt(k, x);
-        f += v.pdf;
-        F += v.cdf;
-        S += v.sf;
-      }
-      const m = atomMass(atoms, x);
-      return { F: m.below + w * F, S: m.above + w * S, f: w * f };
-    },
+    eval: solutionAt(sol, atoms, w),
     errCdf,
     lo: sol.window.a,
     hi: sol.window.b,

@@ -218,6 +218,32 @@ export function maxDiff(u: Float64Array, v: Float64Array): number {
   return m;
 }
 
+/**
+ * cdf, sf and density of the whole law (atoms plus w times the continuous part) at one point from a solution's
+ * mid-point sums and its endpoint kernels: the evaluation behind the quantile search.
+ */
+export function solutionAt(sol: PartSolution, atoms: Atom[], w: number): (x: number) => { F: number; S: number; f: number } {
+  const one = new Float64Array(1);
+  const f1 = new Float64Array(1);
+  const c1 = new Float64Array(1);
+  const s1 = new Float64Array(1);
+  return (x) => {
+    one[0] = x;
+    sumPointwise(sol.nodes, sol.part.center, one, f1, c1, s1);
+    let f = f1[0];
+    let F = c1[0];
+    let S = s1[0];
+    for (const k of sol.part.kernels) {
+      const v = kernelAt(k, x);
+      f += v.pdf;
+      F += v.cdf;
+      S += v.sf;
+    }
+    const m = atomMass(atoms, x);
+    return { F: m.below + w * F, S: m.above + w * S, f: w * f };
+  };
+}
+
 /** Atom mass at or below x, and above x. */
 export function atomMass(atoms: Atom[], x: number): { below: number; above: number } {
   let below = 0;
