@@ -1,0 +1,241 @@
+/** The components of a mixture, each answered by its own route (direct law, damped inversion, Gil-Pelaez); see mixture.ts. */
+import type { Atom, CompiledModel } from "../types";
+import { checkDeadline } from "../deadline";
+import { mergeAtoms } from "../kinds";
+import { directPoint, type DirectLaw, type DirectPoint } from "../direct/types";
+import { directShortfall } from "../direct/answer";
+import { DAMPED_BUDGET, MAX_K, dampable, dampedAt, dampedSetup, type DampedSolution } from "./damped";
+import { invertContinuous } from "./continuous";
+import { atomMass, solutionAt } from "./shared";
+import { dampedExcess } from "./quantile-damped";
+import { lawShape } from "./range";
+import { shortfallLight } from "./shortfall";
+
+interface Value {
+  F: number;
+  S: number;
+  f: number;
+  /** bounds on |F - F_true| and |S - S_true| */
+  eF: number;
+  eS: number;
+}
+
+interface Component {
+  w: number;
+  atoms: Atom[];
+  at(x: number): Value;
+  /** E[(X - q)^+] and its bound; null when the mean does not exist */
+  excess(q: number): { value: number; error: number } | null;
+  terms(): number;
+  notes(): string[];
+  method: string;
+}
+
+function directComponent(w: number, m: CompiledModel): Component {
+  const law = m.direct!;
+  const pt = directPoint();
+  const mean = m.momentIndex > 1 ? m.cumulants(1)[0] : null;
+  const at = (x: number): Value => {
+    law.at(x, pt);
+    return { F: pt.cdf, S: pt.sf, f: pt.pdf, eF: pt.cdfErr, eS: pt.sfErr };
+  };
+  return {
+    w,
+    atoms: [],
+    at,
+    excess(q) {
+      if (mean === null || !Number.isFinite(mean) || !(m.tails.right > 1)) return null;
+      const v = at(q);
+      // directShortfall gives q + E[(X - q)^+] / (1 - p) with p the component's own level at q
+      const p = Math.min(Math.max(v.F, 0), 1);
+      if (p >= 1 || v.S <= 0) return { value: 0, error: v.eS * Math.max(law.spread, 1) };
+      const r = directShortfall(law, q, 0, p, m.tails, mean);
+      const tail = 1 - p;
+      return { value: (r.value - q) * tail, error: r.error * tail + 4 * Number.EPSILON * Math.abs(q) };
+    },
+    terms: () => 0,
+    notes: () => law.notes,
+    method: law.method,
+  };
+}
+
+function dampedComponent(w: number, m: CompiledModel, R0: number, tol: number, target: number): Component | null {
+  const lo = m.support[0];
+  const atoms = m.kind.type === "mixed" ? [...m.kind.atoms].sort((u, v) => u.x - v.x) : [];
+  const Mc = Math.max(1 - atoms.reduce((s, a) => s + a.p, 0), 0);
+  const budget = m.dampedKernels?.length || m.dampedSeverity ? MAX_K : DAMPED_BUDGET;
+  const mean = m.momentIndex > 1 ? m.cumulants(1)[0] : null;
+  const setup = (R: number) => dampedSetup(m, atoms, R, { tolerance: tol, wantPdf: true, budget });
+  let R = R0;
+  let s: DampedSolution | null = setup(R);
+  if (!s) return null;
+  let grows = 0;
+  const inside = (x: number): Value => {
+    const v = dampedAt(s!, x, true, false);
+    const a = atomMass(atoms, x);
+    return { F: a.below + v.Fc, S: a.above + (Mc - v.Fc), f: v.fc, eF: v.errF, eS: v.errF };
+  };
+  // beyond the range: the range grows (at most 8 times) when the tail left there matters, otherwise the
+  // monotone bound S(x) in [0, S(R)] answers
+  const grow = (x: number): boolean => {
+    if (grows >= 8) return false;
+    const next = setup(lo + 2 * (x - lo));
+    if (!next) return false;
+    grows++;
+    s = next;
+    R = lo + 2 * (x - lo);
+    return true;
+  };
+  const at = (x: number): Value => {
+    if (x < lo) return { F: 0, S: 1, f: 0, eF: 0, eS: 0 };
+    if (x <= R) return inside(x);
+    const r = inside(R);
+    const sR = Math.max(r.S, 0) + r.eS;
+    if (w * sR > target && grow(x)) return inside(x);
+    return { F: 1 - sR / 2, S: sR / 2, f: 0, eF: sR / 2, eS: sR / 2 };
+  };
+  return {
+    w,
+    atoms,
+    at,
+    excess(q) {
+      if (mean === null || !Number.isFinite(mean) || !(m.momentIndex > 1)) return null;
+      if (q > R && !grow(q)) return { value: 0, error: Infinity };
+      return dampedExcess(s!, atoms, mean, q);
+    },
+    terms: () => s!.K,
+    notes: () => s!.notes,
+    method: "gil-pelaez-damped",
+  };
+}
+
+/**
+ * A light-tailed component by the mid-point Gil-Pelaez sums (./continuous, with its endpoint kernels): values on the
+ * inversion window [a, b]; outside it the monotone bounds F(x) <= F(a) and S(x) <= S(b).
+ */
+function lightComponent(w: number, m: CompiledModel, tolIn: number): Component | null {
+  const atoms = m.kind.type === "mixed" ? [...m.kind.atoms].sort((u, v) => u.x - v.x) : [];
+  const wc = 1 - atoms.reduce((s, a) => s + a.p, 0);
+  const shape = lawShape(m);
+  if (shape.heavy) return null;
+  let tol = tolIn;
+  const solve = () =>
+    invertContinuous(m, atoms, { kind: "points", x: new Float64Array([shape.center]) }, { method: "gil-pelaez", tolerance: tol / wc, wantPdf: false });
+  let out = solve();
+  // a slowly decaying CF: relax the target (the bounds follow) rather than spend seconds per evaluation
+  while (out.solution!.nodes.K > 1 << 17 && tol < 1e-9) {
+    tol *= 100;
+    out = solve();
+  }
+  const sol = out.solution!;
+  const e = wc * sol.error.cdf + 4 * Number.EPSILON;
+  const { a, b } = sol.window;
+  const values = solutionAt(sol, atoms, wc);
+  const inside = (x: number): Value => ({ ...values(x), eF: e, eS: e });
+  const [slo, shi] = m.support;
+  const at = (x: number): Value => {
+    if (x < slo) return { F: 0, S: 1, f: 0, eF: 0, eS: 0 };
+    if (x > shi) return { F: 1, S: 0, f: 0, eF: 0, eS: 0 };
+    if (x < a) {
+      const r = inside(a);
+      const fa = Math.max(r.F, 0) + r.eF;
+      return { F: fa / 2, S: 1 - fa / 2, f: 0, eF: fa / 2, eS: fa / 2 };
+    }
+    if (x > b) {
+      const r = inside(b);
+      const sb = Math.max(r.S, 0) + r.eS;
+      return { F: 1 - sb / 2, S: sb / 2, f: 0, eF: sb / 2, eS: sb / 2 };
+    }
+    return inside(x);
+  };
+  const mean = m.momentIndex > 1 ? m.cumulants(1)[0] : null;
+  return {
+    w,
+    atoms,
+    at,
+    excess(q) {
+      if (mean === null || !Number.isFinite(mean)) return null;
+      if (q >= b) {
+        // beyond the window: S(y) <= S(b) there, over at most 8 spreads of a light tail (as shortfallLight assumes)
+        const sb = Math.max(inside(b).S, 0) + e;
+        return { value: 0, error: sb * 8 * shape.spread };
+      }
+      // below the window: E[(X - q)^+] = E[(X - a)^+] + (a - q) - int_q^a F, the last within (a - q) F(a)
+      const qq = Math.max(q, a);
+      const r = shortfallLight(sol, atoms, wc, qq, 0, e, 0, shape.spread);
+      const fa = q < a ? Math.max(inside(a).F, 0) + e : 0;
+      return { value: r.value - qq + (qq - q), error: r.error + (qq - q) * fa };
+    },
+    terms: () => sol.nodes.K,
+    notes: () => out.notes,
+    method: "gil-pelaez",
+  };
+}
+
+/** A first range [lo, R] for a damped component: R past the mean by 6 sd, and by the power tail's level asked for. */
+function firstRange(m: CompiledModel, tail: number): number {
+  const lo = m.support[0];
+  const k = m.cumulants(2);
+  const mean = k[0];
+  const sd = k[1] !== null && k[1] >= 0 ? Math.sqrt(k[1]) : null;
+  let R = mean !== null && sd !== null && Number.isFinite(mean) ? mean + 8 * sd : m.location + 8 * m.scale;
+  if (Number.isFinite(m.tails.right)) R = Math.max(R, lo + (m.location - lo + m.scale) * Math.pow(2 / tail, 1 / Math.max(m.tails.right, 0.1)));
+  return R > lo ? R : lo + Math.max(m.scale, 1e-300);
+}
+
+export function components(leaves: { w: number; m: CompiledModel }[], tol: number, tail: number): Component[] | null {
+  const out: Component[] = [];
+  for (const { w, m } of leaves) {
+    checkDeadline("mixture-components");
+    if (m.direct) out.push(directComponent(w, m));
+    else {
+      const c = (dampable(m) ? dampedComponent(w, m, firstRange(m, tail), tol, tol / (4 * leaves.length)) : null) ?? lightComponent(w, m, tol);
+      if (!c) return null;
+      out.push(c);
+    }
+  }
+  return out;
+}
+
+/** The mixture's atoms: the components' atoms weighted, equal points merged, sorted. */
+export function mixtureAtoms(cs: Component[]): Atom[] {
+  return mergeAtoms(cs.flatMap((c) => c.atoms.map((a) => ({ x: a.x, p: c.w * a.p }))));
+}
+
+export function mixtureLaw(model: CompiledModel, cs: Component[]): DirectLaw {
+  return {
+    method: "closed-form",
+    support: model.support,
+    center: model.location,
+    spread: model.scale,
+    notes: [],
+    at(x: number, out: DirectPoint) {
+      let F = 0;
+      let S = 0;
+      let f = 0;
+      let eF = 0;
+      let eS = 0;
+      for (const c of cs) {
+        const v = c.at(x);
+        F += c.w * v.F;
+        S += c.w * v.S;
+        f += c.w * v.f;
+        eF += c.w * v.eF;
+        eS += c.w * v.eS;
+      }
+      const round = 4 * Number.EPSILON * cs.length;
+      out.pdf = f;
+      out.cdf = Math.min(Math.max(F, 0), 1);
+      out.sf = Math.min(Math.max(S, 0), 1);
+      out.pdfErr = Infinity;
+      out.cdfErr = eF + round * Math.max(F, 1e-300);
+      out.sfErr = eS + round * Math.max(S, 1e-300);
+    },
+  };
+}
+
+export function methodsNote(cs: Component[]): string {
+  const counts = new Map<string, number>();
+  for (const c of cs) counts.set(c.method, (counts.get(c.method) ?? 0) + 1);
+  return `mixture answered from its ${cs.length} components (${[...counts].map(([k, n]) => `${n} by ${k}`).join(", ")})`;
+}

@@ -1,0 +1,118 @@
+/** The mixture node: CF, cumulants, kind and carried kernels of a weighted mix of laws. */
+import { mixDamped } from "./damped-cf";
+import { carryMixKernels } from "./kernel-carry";
+import type { Node } from "./node";
+import { cumulantsToRaw, rawToCumulants } from "./node";
+import { nearestZero, sortedAnchor, unwrapFrom } from "./complex";
+import { mixKinds } from "./kinds";
+import { restep } from "./lattice";
+import type { LatticeTable } from "./types";
+import { collectNotes, carryApproximation, completeAtoms } from "./operators-shared";
+
+/**
+ * log sum_j w_j exp(L_j) over arrays, computed about a common centre (subtracting i mu t before summing), then the
+ * imaginary part is unwrapped along the index from `anchor` (when >= 0).
+ */
+function logMix(ws: number[], parts: { re: Float64Array; im: Float64Array }[], lin: Float64Array | null, re: Float64Array, im: Float64Array, anchor: number) {
+  const n = re.length;
+  for (let k = 0; k < n; k++) {
+    let sr = 0;
+    let si = 0;
+    const off = lin ? lin[k] : 0;
+    for (let j = 0; j < ws.length; j++) {
+      const m = ws[j] * Math.exp(parts[j].re[k]);
+      const ph = parts[j].im[k] - off;
+      sr += m * Math.cos(ph);
+      si += m * Math.sin(ph);
+    }
+    re[k] = Math.log(Math.hypot(sr, si));
+    im[k] = Math.atan2(si, sr);
+  }
+  if (anchor >= 0) unwrapFrom(im, anchor);
+  if (lin) for (let k = 0; k < n; k++) im[k] += lin[k];
+}
+
+/** Mixture: phi = sum_j w_j phi_j; raw moments mix linearly. */
+export function mixNode(ws: number[], cs: Node[]): Node {
+  if (cs.length === 1) return cs[0];
+  const kind = completeAtoms(mixKinds(ws, cs.map((c) => c.kind)), cs, ws);
+  const mu = cs.reduce((s, c, j) => s + ws[j] * c.location, 0);
+  const node: Node = {
+    kind,
+    momentIndex: Math.min(...cs.map((c) => c.momentIndex)),
+    tails: { left: Math.min(...cs.map((c) => c.tails.left)), right: Math.min(...cs.map((c) => c.tails.right)) },
+    nodes: 1 + cs.reduce((s, c) => s + c.nodes, 0),
+    get notes() {
+      return collectNotes(cs);
+    },
+    location: mu,
+    scale: Math.sqrt(cs.reduce((s, c, j) => s + ws[j] * (c.scale * c.scale + (c.location - mu) ** 2), 0)),
+    support: [Math.min(...cs.map((c) => c.support[0])), Math.max(...cs.map((c) => c.support[1]))],
+    logCf(t, re, im) {
+      const parts = cs.map((c) => {
+        const r = new Float64Array(t.length);
+        const i = new Float64Array(t.length);
+        c.logCf(t, r, i);
+        return { re: r, im: i };
+      });
+      const lin = t.map((x) => mu * x);
+      logMix(ws, parts, lin, re, im, sortedAnchor(t));
+    },
+    dampedLogCf: mixDamped(ws, cs),
+    hasCompound: cs.some((c) => c.hasCompound),
+    // |phi_j| <= 1: relative errors of the parts become absolute ones of the mixture
+    cfAbsError: cs.reduce((e, c, j) => e + ws[j] * ((c.cfAbsError ?? 0) + (c.cfRelError ?? 0)), 0),
+    cumulants(n) {
+      const raws = cs.map((c) => cumulantsToRaw(c.cumulants(n)));
+      const mixed: (number | null)[] = [];
+      for (let k = 0; k < n; k++) {
+        let s: number | null = 0;
+        for (let j = 0; j < cs.length; j++) s = s === null || raws[j][k] === null ? null : s + ws[j] * (raws[j][k] as number);
+        mixed.push(s);
+      }
+      return rawToCumulants(mixed);
+    },
+  };
+  carryMixKernels(node, ws, cs);
+  if (kind.type === "lattice" && cs.every((c) => c.table)) {
+    node.table = (maxLength) => {
+      const g = kind.step || 1;
+      // each component's table is spread from its own step onto the common step g: ask for no more than fits
+      const spread = (c: Node) => (c.kind.type === "lattice" && c.kind.step > 0 ? Math.max(1, Math.round(c.kind.step / g)) : 1);
+      const tabs = cs.map((c) => c.table!(Math.floor((maxLength - 1) / spread(c)) + 1));
+      if (tabs.some((x) => !x)) return null;
+      // a component on a coarse step spread onto a fine common step can need billions of entries: no table then
+      if ((tabs as LatticeTable[]).some((x) => (x.p.length - 1) * Math.round(x.step / g) + 1 > maxLength)) return null;
+      const st = (tabs as LatticeTable[]).map((x) => restep(x, g));
+      const lo = Math.min(...st.map((x) => x.origin));
+      const hi = Math.max(...st.map((x) => x.origin + (x.p.length - 1) * g));
+      const len = Math.round((hi - lo) / g) + 1;
+      const out = new Float64Array(Math.min(len, maxLength));
+      let tail = 0;
+      st.forEach((x, j) => {
+        const off = Math.round((x.origin - lo) / g);
+        for (let k = 0; k < x.p.length; k++) {
+          const v = ws[j] * x.p[k];
+          if (off + k < out.length) out[off + k] += v;
+          else tail += v;
+        }
+        tail += ws[j] * x.tailMass;
+      });
+      return { origin: lo, step: g, p: out, tailMass: tail };
+    };
+    carryApproximation(node, cs, ws);
+  }
+  if (cs.every((c) => c.countCgf)) {
+    node.countCgf = (wr, wi, re, im) => {
+      const parts = cs.map((c) => {
+        const r = new Float64Array(wr.length);
+        const i = new Float64Array(wr.length);
+        c.countCgf!(wr, wi, r, i);
+        return { re: r, im: i };
+      });
+      logMix(ws, parts, null, re, im, nearestZero(wr, wi));
+    };
+    node.p0 = cs.reduce((s, c, j) => s + ws[j] * (c.p0 ?? 0), 0);
+  }
+  return node;
+}
