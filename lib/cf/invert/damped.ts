@@ -1,11 +1,12 @@
 import type { Atom, CompiledModel } from "../types";
 import type { GammaKernel } from "../damped-kernels";
 import type { SeverityKernel } from "../severity-kernel";
-import { nextPowerOfTwo } from "../fftplan";
-import { checkDeadline } from "../deadline";
-import { sumOnGrid } from "./fft";
-import { kernelsAt, kernelsDensityBeyond, kernelsMass, subtractKernels } from "../damped-kernels";
-import { cutoffFor, envelopeOf, probeFrequencies, truncationAt, type Envelope, type Nodes } from "./nodes";
+import { kernelsDensityBeyond, kernelsMass } from "../damped-kernels";
+import { truncationAt } from "./nodes";
+import { dampedPlan, psiOf, type DampedPlan } from "./damped-transform";
+
+export { dampedPlan, type DampedPlan } from "./damped-transform";
+export { dampedAt, dampedGrid, gridPeriod, type DampedPoint } from "./damped-eval";
 
 /**
  * Damped inversion of an aggregate law bounded below (support [lo, inf)), after Abate & Whitt (1992) and
@@ -23,13 +24,6 @@ import { cutoffFor, envelopeOf, probeFrequencies, truncationAt, type Envelope, t
  * terms) are subtracted from psi_c and their cdf, density and integrated cdf added back in closed form.
  */
 
-/** per-node noise of psi_c: rounding of the atom subtraction plus twice the CF's declared absolute error */
-function noiseOf(model: CompiledModel, atoms: Atom[]): number {
-  const pa = atoms.reduce((s, a) => s + a.p, 0);
-  const kw = kernelsMass(model.dampedKernels ?? []) + (model.dampedSeverity?.w ?? 0);
-  // a relative CF error acts on the atoms' share of psi as an absolute one; the kernels' closed forms round too
-  return 16 * EPS * (1 + pa + kw) + 2 * (model.cfAbsError ?? 0) + 2 * pa * (model.cfRelError ?? 0);
-}
 export const MAX_K = 1 << 21;
 /** default budget of frequency terms before the undamped routes are preferred */
 export const DAMPED_BUDGET = 1 << 19;
@@ -88,106 +82,6 @@ export interface DampedOptions {
   budget?: number;
   /** a plan made for this range already (grids: to fix the period first) */
   plan?: DampedPlan;
-}
-
-/** Plan for the range [lo, R]: beta (R - lo) = U, e^{-beta T} <= tol / (8 M_c), and the envelope of |psi_c|. */
-export interface DampedPlan {
-  beta: number;
-  T: number;
-  U: number;
-  env: Envelope;
-  tmax: number;
-  noise: number;
-}
-
-function psiOf(model: CompiledModel, atoms: Atom[], beta: number) {
-  const lo = model.support[0];
-  return (t: Float64Array, re: Float64Array, im: Float64Array) => {
-    model.dampedLogCf!(beta, t, re, im);
-    for (let k = 0; k < t.length; k++) {
-      const m = Math.exp(re[k] + beta * lo);
-      const ph = im[k] - t[k] * lo;
-      let r = m * Math.cos(ph);
-      let i = m * Math.sin(ph);
-      for (const a of atoms) {
-        const d = a.x - lo;
-        const am = a.p * Math.exp(-beta * d);
-        r -= am * Math.cos(t[k] * d);
-        i -= am * Math.sin(t[k] * d);
-      }
-      re[k] = r;
-      im[k] = i;
-    }
-    if (model.dampedKernels) subtractKernels(model.dampedKernels, lo, beta, t, re, im);
-    if (model.dampedSeverity) subtractSeverity(model.dampedSeverity, beta, t, re, im);
-  };
-}
-
-/** psi -= w E[e^{(i t - beta) X}] (the one-claim term; the compound's support starts at 0 like the severity's) */
-function subtractSeverity(k: SeverityKernel, beta: number, t: Float64Array, re: Float64Array, im: Float64Array) {
-  const r = new Float64Array(t.length);
-  const i = new Float64Array(t.length);
-  k.dampedLogCf(beta, t, r, i);
-  for (let j = 0; j < t.length; j++) {
-    const m = k.w * Math.exp(r[j]);
-    re[j] -= m * Math.cos(i[j]);
-    im[j] -= m * Math.sin(i[j]);
-  }
-}
-
-/** the gamma kernels and the one-claim term at x: what the inverted remainder leaves out */
-function takenOutAt(s: DampedSolution, x: number): { F: number; f: number; I: number; err: number; errf: number; errI: number } {
-  const kv = s.kernels.length ? kernelsAt(s.kernels, x) : { F: 0, f: 0, I: 0, err: 0, errf: 0, errI: 0 };
-  if (!s.severity) return kv;
-  const v = s.severity.at(x);
-  return { F: kv.F + v.F, f: kv.f + v.f, I: kv.I + v.I, err: kv.err + v.err, errf: kv.errf + v.errf, errI: kv.errI + v.errI };
-}
-
-function probe(model: CompiledModel, atoms: Atom[], beta: number, noise: number): Envelope {
-  const tp = probeFrequencies(Math.max(model.scale, 1e-300));
-  const pr = new Float64Array(tp.length);
-  const pi = new Float64Array(tp.length);
-  psiOf(model, atoms, beta)(tp, pr, pi);
-  const mag = new Float64Array(tp.length);
-  for (let i = 0; i < tp.length; i++) mag[i] = Math.hypot(pr[i], pi[i]);
-  // values below the rounding of the atom subtraction and the CF's own error are not resolved
-  return envelopeOf(tp, mag, () => noise);
-}
-
-/**
- * U trades the period (T = span A / U) against the frequency cut-off (the sums' target is tol / (8 e^U)) and the
- * rounding that e^U amplifies: the U in [2, 8] with the fewest terms whose rounding estimate stays below tol / 4.
- */
-export function dampedPlan(model: CompiledModel, atoms: Atom[], R: number, tol: number, wantPdf: boolean): DampedPlan {
-  const lo = model.support[0];
-  const span = Math.max(R - lo, 1e-6 * Math.max(model.scale, Math.abs(lo), 1e-300));
-  // the inverted function is the continuous part less the kernels: its size bounds the images
-  const Mc = Math.max(1 - atoms.reduce((s, a) => s + a.p, 0), 1e-300) + kernelsMass(model.dampedKernels ?? []) + (model.dampedSeverity?.w ?? 0);
-  const A = Math.max(Math.log((8 * Mc) / tol), 2);
-  const noise = noiseOf(model, atoms);
-  const env0 = probe(model, atoms, 4 / span, noise);
-  let best = { U: 4, K: Infinity, bad: Infinity };
-  for (let U = 2; U <= 8; U += 0.5) {
-    const beta = U / span;
-    const T = Math.max((span * A) / U, span * 1.25);
-    const target = tol / (8 * Math.exp(U));
-    let tmax = cutoffFor(env0, wantPdf ? target : Infinity, target);
-    if (!Number.isFinite(tmax)) tmax = env0.t[env0.t.length - 1];
-    const K = Math.max(16, (tmax * T) / (2 * Math.PI));
-    // scale of the cdf sum: (1/pi) int |psi_c| / |beta - i t| up to tmax
-    let S = (Mc * env0.t[0]) / (Math.PI * beta);
-    for (let i = 0; i + 1 < env0.t.length && env0.t[i] < tmax; i++) S += (env0.env[i] * (env0.t[i + 1] - env0.t[i])) / (Math.PI * Math.max(env0.t[i], beta));
-    const round = Math.exp(U) * (1e-14 + 8 * EPS * Math.sqrt(K) + 2 * (model.cfRelError ?? 0)) * S;
-    const bad = round / (tol / 4);
-    if ((bad <= 1 && (best.bad > 1 || K < best.K)) || (bad > 1 && best.bad > 1 && bad < best.bad)) best = { U, K, bad };
-  }
-  const U = best.U;
-  const beta = U / span;
-  const env = probe(model, atoms, beta, noise);
-  const target = tol / (8 * Math.exp(U));
-  let tmax = cutoffFor(env, wantPdf ? target : Infinity, target);
-  if (!Number.isFinite(tmax)) tmax = env.t[env.t.length - 1];
-  return { beta, T: Math.max((span * A) / U, span * 1.25), U, env, tmax, noise };
 }
 
 /** Whether the damped inversion applies: a compound-type law bounded below with its damped transform. */
@@ -333,119 +227,4 @@ export function dampedSetup(model: CompiledModel, atoms: Atom[], R: number, o: D
     capped,
     notes,
   };
-}
-
-/** Values and error bounds of the continuous part at x (cdf, density, integrated cdf). */
-export interface DampedPoint {
-  Fc: number;
-  fc: number;
-  Ic: number;
-  errF: number;
-  errf: number;
-  errI: number;
-}
-
-/** The three mid-point sums at one point (phase advanced by a rotation, resynchronised every 64 terms). */
-export function dampedAt(s: DampedSolution, x: number, wantPdf: boolean, wantInt: boolean): DampedPoint {
-  const y = x - s.lo;
-  if (y < 0) return { Fc: 0, fc: 0, Ic: 0, errF: 0, errf: 0, errI: 0 };
-  const { h, K, pRe, pIm, cRe, cIm, iRe, iIm } = s;
-  const th = h * y;
-  const rc = Math.cos(th);
-  const rs = -Math.sin(th);
-  let aP = 0;
-  let aC = 0;
-  let aI = 0;
-  let k = 0;
-  checkDeadline("pointwise");
-  while (k < K) {
-    const a0 = (k + 0.5) * th;
-    let zr = Math.cos(a0);
-    let zi = -Math.sin(a0);
-    const end = Math.min(K, k + 64);
-    for (; k < end; k++) {
-      aC += zr * cRe[k] - zi * cIm[k];
-      if (wantPdf) aP += zr * pRe[k] - zi * pIm[k];
-      if (wantInt) aI += zr * iRe[k] - zi * iIm[k];
-      const nr = zr * rc - zi * rs;
-      zi = zr * rs + zi * rc;
-      zr = nr;
-    }
-  }
-  const g = Math.exp(s.beta * y);
-  const f = (g * h) / Math.PI;
-  const kv = takenOutAt(s, x);
-  // the phase recurrence drifts by ~ eps per step between resyncs: inside the rounding allowance of the setup;
-  // clamping to the known range [0, Mc] only moves a value toward the truth
-  const Fc = Math.min(Math.max(f * aC + kv.F, 0), s.Mc);
-  const fc = Math.max(f * aP + kv.f, 0);
-  // images of the integrated cdf: sum_{m >= 1} (-1)^m q^m (A (y + m T) - B) in closed form
-  // (sum (-1)^m q^m = -q/(1+q), sum (-1)^m m q^m = -q/(1+q)^2); what is left is at most
-  // q/(1-q) E[(Y - (y + T))^+] <= q/(1-q) E[Y^2] / (4 (y + T)) for Y >= 0 ((u - c)^+ <= u^2 / (4c), common practice)
-  let images = 0;
-  let aliasI = s.aliasIntCoef * (y + s.T / (1 - s.q));
-  if (s.intImages) {
-    const { A, B, second } = s.intImages;
-    const r = s.q / (1 + s.q);
-    images = -r * (A * y - B) - (A * s.T * r) / (1 + s.q);
-    aliasI = (s.q / (1 - s.q)) * (second / (4 * (y + s.T))) + 8 * EPS * (Math.abs(A) * (y + s.T) + Math.abs(B)) * r;
-  }
-  const Ic = Math.min(Math.max(f * aI - images + kv.I, 0), s.Mc * y);
-  return {
-    Fc,
-    fc,
-    Ic,
-    errF: g * s.sumCdf + s.aliasCdf + kv.err,
-    errf: g * s.sumPdf + s.aliasPdf + kv.errf,
-    errI: g * s.sumInt + aliasI + kv.errI,
-  };
-}
-
-/** Density and cdf of the continuous part on a uniform grid by two FFTs (the period is N dx). */
-export function dampedGrid(
-  s: DampedSolution,
-  from: number,
-  dx: number,
-  count: number,
-  N: number,
-  wantPdf: boolean,
-): { fc: Float64Array; Fc: Float64Array; errF: Float64Array; errf: Float64Array } {
-  const mk = (re: Float64Array, im: Float64Array): Nodes => ({
-    h: s.h,
-    K: s.K,
-    re,
-    im,
-    wre: re,
-    wim: im,
-    absCdf: 0,
-    absPdf: 0,
-    mass: 0,
-  });
-  const gC = new Float64Array(count);
-  const gP = new Float64Array(count);
-  sumOnGrid(mk(s.cRe, s.cIm), s.lo, from, N, 0, count, gC, null, null);
-  if (wantPdf) sumOnGrid(mk(s.pRe, s.pIm), s.lo, from, N, 0, count, gP, null, null);
-  const fc = new Float64Array(count);
-  const Fc = new Float64Array(count);
-  const errF = new Float64Array(count);
-  const errf = new Float64Array(count);
-  for (let j = 0; j < count; j++) {
-    const y = from + j * dx - s.lo;
-    if (y < 0) continue;
-    const g = Math.exp(s.beta * y);
-    const kv = takenOutAt(s, from + j * dx);
-    Fc[j] = Math.min(Math.max(g * gC[j] + kv.F, 0), s.Mc);
-    fc[j] = wantPdf ? Math.max(g * gP[j] + kv.f, 0) : 0;
-    errF[j] = g * s.sumCdf + s.aliasCdf + kv.err;
-    errf[j] = g * s.sumPdf + s.aliasPdf + kv.errf;
-  }
-  return { fc, Fc, errF, errf };
-}
-
-/** FFT size and period for a grid: N dx >= the period the tolerance needs and the grid fits in [lo, lo + N dx). */
-export function gridPeriod(lo: number, from: number, dx: number, count: number, T: number): { N: number; T: number } {
-  const last = from + (count - 1) * dx;
-  const need = Math.max(T, last - Math.min(lo, from) + dx);
-  const N = nextPowerOfTwo(Math.max(count, Math.ceil(need / dx)));
-  return { N, T: N * dx };
 }

@@ -1,0 +1,210 @@
+// Lognormal law: CF by quadrature on a shifted contour, and cumulants without cancellation.
+import { lognormalKernel } from "../severity-kernel";
+import { checkDeadline } from "../deadline";
+import type { Node } from "../node";
+import { fromPhiDamped } from "../damped-cf";
+import { arithmeticNodes, expSumArithmetic, fromPhi } from "./cf-quadrature";
+import { NUMERIC_CF_ABS_ERROR, arithmetic, logFromSums, quadratureNodes } from "./numeric-rule";
+
+/**
+ * Lognormal(mu, sigma): phi(t) = int N(y; mu, sigma^2) exp(i t e^y) dy. For t > 0 the integrand is entire in y and the
+ * path is moved to Im y = theta (Cauchy's theorem), where exp(i t e^{y+i theta}) decays; the trapezoidal rule then
+ * converges geometrically (Trefethen & Weideman 2014, SIAM Review 56, recalled from memory). theta = min(pi/2, 2.5 sigma) bounds the
+ * Gaussian's growth on the shifted path by e^{c^2/2}, c = theta/sigma; the step is set for an error below 1e-16.
+ */
+export function lognormal(mu: number, sigma: number): Node {
+  const theta = Math.min(Math.PI / 2, 2.5 * sigma);
+  const c = theta / sigma;
+  const h = Math.min((2 * Math.PI * c) / (2 * c * c + 40), 0.5);
+  const V = Math.sqrt(2 * (40 + 2.5 * c * c));
+  const n = quadratureNodes(Math.ceil((2 * V) / h) + 1, `the lognormal sigma ${sigma}`, "use a sigma up to 1e4.");
+  const v = new Float64Array(n);
+  const w = new Float64Array(n);
+  const ev = new Float64Array(n);
+  for (let j = 0; j < n; j++) {
+    v[j] = -V + j * h;
+    w[j] = (h / Math.sqrt(2 * Math.PI)) * Math.exp(-0.5 * v[j] * v[j]);
+    ev[j] = Math.exp(sigma * v[j]);
+  }
+  const em = Math.exp(mu);
+  // E exp(i z X) at z = x + i beta (beta >= 0): on the path Im y = th/sigma, i z e^{i th} has real part
+  // -|z| sin(arg z + th), largest decay at th = pi/2 - arg z; th <= theta keeps the step's error bound
+  const phiAt = (x: number, beta: number, out: Float64Array) => {
+    const th = Math.min(theta, Math.atan2(x, beta));
+    const cc = th / sigma;
+    const g = Math.exp(0.5 * cc * cc);
+    const sn = Math.sin(th);
+    const cs = Math.cos(th);
+    const a = x * em;
+    const b = beta * em;
+    const dr = a * sn + b * cs;
+    const pr = a * cs - b * sn;
+    let sr = 0;
+    let si = 0;
+    for (let j = 0; j < n; j++) {
+      const damp = dr * ev[j];
+      if (damp > 45) break;
+      const amp = w[j] * Math.exp(-damp);
+      const ph = pr * ev[j] - cc * v[j];
+      sr += amp * Math.cos(ph);
+      si += amp * Math.sin(ph);
+    }
+    out[0] = g * sr;
+    out[1] = g * si;
+  };
+  const single = fromPhiDamped(phiAt);
+  // equispaced t_k = t_0 + k d (the damped inversion's nodes): for a fixed path angle each quadrature term is a
+  // geometric sequence in k, advanced by one complex multiply and recomputed every 64 steps
+  const batch = (beta: number, t: Float64Array, re: Float64Array, im: Float64Array) => {
+    const K = t.length;
+    const d = t[1] - t[0];
+    let k1 = 0;
+    while (k1 < K && Math.atan2(t[k1], beta) < 0.9 * theta) k1++;
+    if (k1 > 0) single(beta, t.subarray(0, k1), re.subarray(0, k1), im.subarray(0, k1));
+    if (k1 >= K) return;
+    const th = Math.min(theta, Math.atan2(t[k1], beta));
+    const cc = th / sigma;
+    const g = Math.exp(0.5 * cc * cc);
+    const sn = Math.sin(th);
+    const cs = Math.cos(th);
+    const sr = new Float64Array(K);
+    const si = new Float64Array(K);
+    for (let j = 0; j < n; j++) {
+      checkDeadline("cf-quadrature");
+      const e = em * ev[j];
+      const wj = w[j] * g;
+      const stepAmp = Math.exp(-e * d * sn);
+      const stepPh = e * d * cs;
+      const rr = stepAmp * Math.cos(stepPh);
+      const ri = stepAmp * Math.sin(stepPh);
+      let k = k1;
+      while (k < K) {
+        const damp = e * (t[k] * sn + beta * cs);
+        if (damp > 45) break;
+        const amp = wj * Math.exp(-damp);
+        const ph = e * (t[k] * cs - beta * sn) - cc * v[j];
+        let zr = amp * Math.cos(ph);
+        let zi = amp * Math.sin(ph);
+        const end = Math.min(K, k + 64);
+        for (; k < end; k++) {
+          sr[k] += zr;
+          si[k] += zi;
+          const nr = zr * rr - zi * ri;
+          zi = zr * ri + zi * rr;
+          zr = nr;
+        }
+      }
+    }
+    for (let k = k1; k < K; k++) {
+      re[k] = Math.log(Math.hypot(sr[k], si[k]));
+      im[k] = Math.atan2(si[k], sr[k]);
+    }
+  };
+  // the same rule at beta = 0 for equispaced t (the inversion's nodes): term j is w_j g e^{-i c v_j} exp(t e_j i e^{i theta}),
+  // e_j = e^{mu + sigma v_j}, summed by expSumArithmetic
+  const qRe = new Float64Array(n);
+  const qIm = new Float64Array(n);
+  const qE = new Float64Array(n);
+  const g0 = Math.exp(0.5 * c * c);
+  for (let j = 0; j < n; j++) {
+    qRe[j] = w[j] * g0 * Math.cos(-c * v[j]);
+    qIm[j] = w[j] * g0 * Math.sin(-c * v[j]);
+    qE[j] = em * ev[j];
+  }
+  const logCfArithmetic = (t: Float64Array, re: Float64Array, im: Float64Array) => {
+    const sr = new Float64Array(t.length);
+    const si = new Float64Array(t.length);
+    expSumArithmetic(qRe, qIm, qE, -Math.sin(theta), Math.cos(theta), t, sr, si);
+    logFromSums(t, sr, si, re, im, 0, 0, 0);
+  };
+  // the bound expSumArithmetic adds (moments, recurrence), from the rule's terms: sum |c_j| = e^{c^2/2} sum w_j
+  let wSum = 0;
+  for (let j = 0; j < n; j++) wSum += w[j];
+  const shortcutError = wSum * g0 * (2e-25 + 80 * Number.EPSILON) + n * 1e-21;
+  // rule (1e-16), rounding of the direct sums (16 eps each way) and the shortcuts; stated as it is, even above 1e-13
+  const cfError = Math.max(1e-16 + 16 * Number.EPSILON * g0, shortcutError + 1e-16);
+  const s2 = sigma * sigma;
+  const d = Math.expm1(s2);
+  const damped = (beta: number, t: Float64Array, re: Float64Array, im: Float64Array) => (arithmetic(t) ? batch(beta, t, re, im) : single(beta, t, re, im));
+  return {
+    kind: { type: "continuous" },
+    momentIndex: Infinity,
+    tails: { left: Infinity, right: Infinity },
+    nodes: 1,
+    notes: [`lognormal CF computed by quadrature on a shifted contour (absolute error <= ${Math.max(cfError, NUMERIC_CF_ABS_ERROR).toPrecision(2)})`],
+    // the step and range make the rule's own error below 1e-16; rounding: the terms' magnitudes sum to at most
+    // e^{c^2/2} (the Gaussian weight on the shifted path), 16 eps each way
+    cfAbsError: cfError,
+    dampedLogCf: damped,
+    // compounds take the one-claim term out of their damped transform and add it back in closed form
+    severityKernel: (w: number) => lognormalKernel(w, mu, sigma, damped),
+    // the density vanishes at 0 faster than any power, so every term of the endpoint expansion is 0 (Watson's lemma):
+    // a compound's transform is P(N = 0) plus o(s^-n), and sums holding it build their kernels from the other terms
+    laplaceExpansion: { at: 0, exps: [], coefs: [] },
+    // density (JKB vol. 1, ch. 14); upper tail: P(Z > z) <= exp(-z^2/2) (Chernoff bound, common practice)
+    severity: {
+      name: "lognormal",
+      pdf: (x) => (x > 0 ? Math.exp(-0.5 * ((Math.log(x) - mu) / sigma) ** 2) / (x * sigma * Math.sqrt(2 * Math.PI)) : 0),
+      lo: 0,
+      upper: (q) => Math.exp(mu + sigma * Math.sqrt(-2 * Math.log(q))),
+      scale: Math.exp(mu),
+      rootAtZero: 1,
+      // measured on compound Poisson(20), mu 1: by its CF sigma 0.8 takes ~0.1 s (cdf error 1e-11), sigma 1 0.6 s,
+      // sigma 1.3 3.5 s; Poisson(5) with sigma 2 a minute
+      tailIndex: Infinity,
+    },
+    location: Math.exp(mu + s2 / 2),
+    scale: Math.exp(mu + s2 / 2) * Math.sqrt(d),
+    support: [0, Infinity],
+    logCf: (t, re, im) => (arithmeticNodes(t) ? logCfArithmetic(t, re, im) : fromPhi(t, re, im, (x, out) => phiAt(x, 0, out))),
+    cumulants: (m) => lognormalCumulants(mu, sigma, m),
+  };
+}
+
+// Connected labelled graphs on n vertices counted by edges: C_n(d) = G_n(d) - sum_{k<n} C(n-1,k-1) C_k(d) G_{n-k}(d),
+// G_n(d) = (1+d)^{C(n,2)} (Harary & Palmer, Graphical Enumeration, ch. 1, recalled from memory).
+const connected: bigint[][] = [];
+function binomBig(n: number, k: number): bigint {
+  let c = 1n;
+  for (let j = 1; j <= k; j++) c = (c * BigInt(n - k + j)) / BigInt(j);
+  return c;
+}
+function polyMul(a: bigint[], b: bigint[]): bigint[] {
+  const out = new Array<bigint>(a.length + b.length - 1).fill(0n);
+  for (let i = 0; i < a.length; i++) for (let j = 0; j < b.length; j++) out[i + j] += a[i] * b[j];
+  return out;
+}
+function allGraphs(n: number): bigint[] {
+  const e = (n * (n - 1)) / 2;
+  return Array.from({ length: e + 1 }, (_, k) => binomBig(e, k));
+}
+function connectedPoly(n: number): bigint[] {
+  for (let m = connected.length + 1; m <= n; m++) {
+    const g = allGraphs(m).slice();
+    for (let k = 1; k < m; k++) {
+      const term = polyMul(connected[k - 1], allGraphs(m - k));
+      const f = binomBig(m - 1, k - 1);
+      for (let i = 0; i < term.length; i++) g[i] -= f * term[i];
+    }
+    connected.push(g);
+  }
+  return connected[n - 1];
+}
+
+/**
+ * Lognormal cumulants without cancellation: with Y = X / E X the raw moments are w^{C(n,2)}, w = e^{sigma^2}, so
+ * kappa_n(Y) = sum over connected labelled graphs on n vertices of d^{edges}, d = w - 1 (non-negative coefficients);
+ * kappa_n(X) = (E X)^n kappa_n(Y). Raw moments E X^n = exp(n mu + n^2 sigma^2 / 2) (JKB vol. 1, ch. 14).
+ */
+export function lognormalCumulants(mu: number, sigma: number, n: number): number[] {
+  const d = Math.expm1(sigma * sigma);
+  const m1 = Math.exp(mu + (sigma * sigma) / 2);
+  const out: number[] = [];
+  for (let k = 1; k <= n; k++) {
+    const p = connectedPoly(k);
+    let s = 0;
+    for (let i = p.length - 1; i >= 0; i--) s = s * d + Number(p[i]);
+    out.push(s * m1 ** k);
+  }
+  return out;
+}

@@ -1,0 +1,51 @@
+// Quadrature rules shared by the numerically computed CFs (lognormal, weibull, pareto): node limits, equispaced nodes, logs.
+import { CfError } from "../errors";
+import { unwrapFrom } from "../complex";
+
+/** Stated accuracy of the numerically computed CFs below (absolute error in phi). */
+export const NUMERIC_CF_ABS_ERROR = 1e-13;
+
+/** The most nodes one quadrature rule of a CF may use; parameters that would need more are refused. */
+export const MAX_QUADRATURE_NODES = 2 ** 20;
+
+/** The node count n of a quadrature rule, or limit_exceeded naming the parameter that asks for too many. */
+export function quadratureNodes(n: number, what: string, advice: string): number {
+  if (n <= MAX_QUADRATURE_NODES) return n;
+  throw new CfError(
+    "limit_exceeded",
+    "",
+    `${what} needs ${Number.isFinite(n) ? n.toExponential(2) : "unboundedly many"} quadrature nodes for its CF (the limit is ${MAX_QUADRATURE_NODES}); ${advice}`,
+  );
+}
+
+/** t equispaced and positive (within rounding), long enough for the recurrence to pay. */
+export function arithmetic(t: Float64Array): boolean {
+  const K = t.length;
+  if (K < 64 || !(t[0] > 0)) return false;
+  const d = (t[K - 1] - t[0]) / (K - 1);
+  if (!(d > 0)) return false;
+  for (let k = 1; k < K; k += Math.max(1, K >> 6)) if (Math.abs(t[k] - (t[0] + k * d)) > 1e-9 * t[k]) return false;
+  return true;
+}
+
+/**
+ * log phi at equispaced t > 0 from the sums S_k of expSumArithmetic: phi_k = scale S_k e^{i (phase0 + phaseSlope t_k)};
+ * the imaginary part unwrapped along t.
+ */
+export function logFromSums(
+  t: Float64Array,
+  sr: Float64Array,
+  si: Float64Array,
+  re: Float64Array,
+  im: Float64Array,
+  logScale: number,
+  phase0: number,
+  phaseSlope: number,
+): void {
+  for (let k = 0; k < t.length; k++) {
+    re[k] = logScale + Math.log(Math.hypot(sr[k], si[k]));
+    im[k] = Math.atan2(si[k], sr[k]);
+  }
+  unwrapFrom(im, 0);
+  for (let k = 0; k < t.length; k++) im[k] += phase0 + phaseSlope * t[k];
+}

@@ -1,0 +1,107 @@
+// The damped transform psi_c of the continuous part less what is taken out in closed form, and the plan (beta, period, cut-off).
+import type { Atom, CompiledModel } from "../types";
+import type { SeverityKernel } from "../severity-kernel";
+import { kernelsMass, subtractKernels } from "../damped-kernels";
+import { cutoffFor, envelopeOf, probeFrequencies, type Envelope } from "./nodes";
+
+const EPS = Number.EPSILON;
+
+/** per-node noise of psi_c: rounding of the atom subtraction plus twice the CF's declared absolute error */
+export function noiseOf(model: CompiledModel, atoms: Atom[]): number {
+  const pa = atoms.reduce((s, a) => s + a.p, 0);
+  const kw = kernelsMass(model.dampedKernels ?? []) + (model.dampedSeverity?.w ?? 0);
+  // a relative CF error acts on the atoms' share of psi as an absolute one; the kernels' closed forms round too
+  return 16 * EPS * (1 + pa + kw) + 2 * (model.cfAbsError ?? 0) + 2 * pa * (model.cfRelError ?? 0);
+}
+
+/** Plan for the range [lo, R]: beta (R - lo) = U, e^{-beta T} <= tol / (8 M_c), and the envelope of |psi_c|. */
+export interface DampedPlan {
+  beta: number;
+  T: number;
+  U: number;
+  env: Envelope;
+  tmax: number;
+  noise: number;
+}
+
+export function psiOf(model: CompiledModel, atoms: Atom[], beta: number) {
+  const lo = model.support[0];
+  return (t: Float64Array, re: Float64Array, im: Float64Array) => {
+    model.dampedLogCf!(beta, t, re, im);
+    for (let k = 0; k < t.length; k++) {
+      const m = Math.exp(re[k] + beta * lo);
+      const ph = im[k] - t[k] * lo;
+      let r = m * Math.cos(ph);
+      let i = m * Math.sin(ph);
+      for (const a of atoms) {
+        const d = a.x - lo;
+        const am = a.p * Math.exp(-beta * d);
+        r -= am * Math.cos(t[k] * d);
+        i -= am * Math.sin(t[k] * d);
+      }
+      re[k] = r;
+      im[k] = i;
+    }
+    if (model.dampedKernels) subtractKernels(model.dampedKernels, lo, beta, t, re, im);
+    if (model.dampedSeverity) subtractSeverity(model.dampedSeverity, beta, t, re, im);
+  };
+}
+
+/** psi -= w E[e^{(i t - beta) X}] (the one-claim term; the compound's support starts at 0 like the severity's) */
+function subtractSeverity(k: SeverityKernel, beta: number, t: Float64Array, re: Float64Array, im: Float64Array) {
+  const r = new Float64Array(t.length);
+  const i = new Float64Array(t.length);
+  k.dampedLogCf(beta, t, r, i);
+  for (let j = 0; j < t.length; j++) {
+    const m = k.w * Math.exp(r[j]);
+    re[j] -= m * Math.cos(i[j]);
+    im[j] -= m * Math.sin(i[j]);
+  }
+}
+
+function probe(model: CompiledModel, atoms: Atom[], beta: number, noise: number): Envelope {
+  const tp = probeFrequencies(Math.max(model.scale, 1e-300));
+  const pr = new Float64Array(tp.length);
+  const pi = new Float64Array(tp.length);
+  psiOf(model, atoms, beta)(tp, pr, pi);
+  const mag = new Float64Array(tp.length);
+  for (let i = 0; i < tp.length; i++) mag[i] = Math.hypot(pr[i], pi[i]);
+  // values below the rounding of the atom subtraction and the CF's own error are not resolved
+  return envelopeOf(tp, mag, () => noise);
+}
+
+/**
+ * U trades the period (T = span A / U) against the frequency cut-off (the sums' target is tol / (8 e^U)) and the
+ * rounding that e^U amplifies: the U in [2, 8] with the fewest terms whose rounding estimate stays below tol / 4.
+ */
+export function dampedPlan(model: CompiledModel, atoms: Atom[], R: number, tol: number, wantPdf: boolean): DampedPlan {
+  const lo = model.support[0];
+  const span = Math.max(R - lo, 1e-6 * Math.max(model.scale, Math.abs(lo), 1e-300));
+  // the inverted function is the continuous part less the kernels: its size bounds the images
+  const Mc = Math.max(1 - atoms.reduce((s, a) => s + a.p, 0), 1e-300) + kernelsMass(model.dampedKernels ?? []) + (model.dampedSeverity?.w ?? 0);
+  const A = Math.max(Math.log((8 * Mc) / tol), 2);
+  const noise = noiseOf(model, atoms);
+  const env0 = probe(model, atoms, 4 / span, noise);
+  let best = { U: 4, K: Infinity, bad: Infinity };
+  for (let U = 2; U <= 8; U += 0.5) {
+    const beta = U / span;
+    const T = Math.max((span * A) / U, span * 1.25);
+    const target = tol / (8 * Math.exp(U));
+    let tmax = cutoffFor(env0, wantPdf ? target : Infinity, target);
+    if (!Number.isFinite(tmax)) tmax = env0.t[env0.t.length - 1];
+    const K = Math.max(16, (tmax * T) / (2 * Math.PI));
+    // scale of the cdf sum: (1/pi) int |psi_c| / |beta - i t| up to tmax
+    let S = (Mc * env0.t[0]) / (Math.PI * beta);
+    for (let i = 0; i + 1 < env0.t.length && env0.t[i] < tmax; i++) S += (env0.env[i] * (env0.t[i + 1] - env0.t[i])) / (Math.PI * Math.max(env0.t[i], beta));
+    const round = Math.exp(U) * (1e-14 + 8 * EPS * Math.sqrt(K) + 2 * (model.cfRelError ?? 0)) * S;
+    const bad = round / (tol / 4);
+    if ((bad <= 1 && (best.bad > 1 || K < best.K)) || (bad > 1 && best.bad > 1 && bad < best.bad)) best = { U, K, bad };
+  }
+  const U = best.U;
+  const beta = U / span;
+  const env = probe(model, atoms, beta, noise);
+  const target = tol / (8 * Math.exp(U));
+  let tmax = cutoffFor(env, wantPdf ? target : Infinity, target);
+  if (!Number.isFinite(tmax)) tmax = env.t[env.t.length - 1];
+  return { beta, T: Math.max((span * A) / U, span * 1.25), U, env, tmax, noise };
+}
