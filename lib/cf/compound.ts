@@ -109,7 +109,11 @@ export function compoundNode(N: Node, X: Node, discretise: DiscretiseOptions | n
   if (node.dampedLogCf && !node.dampedKernels && X.severityKernel && X.kind.type === "continuous" && X.support[0] === 0 && node.support[0] === 0 && N.table) {
     const t = N.table(2);
     const p1 = t && t.step === 1 && t.origin <= 1 && 1 - t.origin < t.p.length ? t.p[1 - t.origin] : 0;
-    if (p1 > 0) node.dampedSeverity = { cf: node.dampedLogCf, kernel: X.severityKernel(p1) };
+    const mean = N.cumulants(1)[0];
+    if (p1 > 0 && N.countCgf && mean !== null && Number.isFinite(mean)) {
+      const count = { cgf: N.countCgf, mean, absError: N.cfAbsError ?? 0, relError: N.cfRelError ?? 0 };
+      node.dampedSeverity = { cf: node.dampedLogCf, kernel: { ...X.severityKernel(p1), count } };
+    }
   }
   if (kind.type === "lattice" && X.table) {
     node.table = (maxLength) => compoundTable(N, X, kind as { step: number }, maxLength, node);

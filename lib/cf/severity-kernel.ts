@@ -18,6 +18,16 @@ export interface SeverityKernel {
   densityBeyond(from: number): number;
   /** for the notes */
   name: string;
+  /** E X and E X^2 of the severity (unweighted), for the images of the integrated cdf */
+  moments: readonly [number, number];
+  /** bound on the absolute error of the severity's damped transform values */
+  cfAbsError: number;
+  /**
+   * the count's cumulant function log P_N(e^w) and E N (set by the compound): psi is then computed from the same
+   * severity transform values as the one-claim term, so an error d in phi moves the remainder P_N(phi) - p_1 phi by at
+   * most sup |P_N'(z) - p_1| d <= E N (|phi| + d) d (|z| <= 1), not by (E N + p_1) d
+   */
+  count?: { cgf(wr: Float64Array, wi: Float64Array, re: Float64Array, im: Float64Array): void; mean: number; absError: number; relError: number };
 }
 
 /** relative accuracy of normalCdf (./families/dist: erfc through the incomplete gamma, 1e-14 with margin) */
@@ -33,6 +43,7 @@ export function lognormalKernel(
   mu: number,
   sigma: number,
   dampedLogCf: (beta: number, t: Float64Array, re: Float64Array, im: Float64Array) => void,
+  cfAbsError: number,
 ): SeverityKernel {
   const m1 = Math.exp(mu + (sigma * sigma) / 2);
   const mode = Math.exp(mu - sigma * sigma);
@@ -41,6 +52,9 @@ export function lognormalKernel(
     w,
     dampedLogCf,
     name: "lognormal",
+    // E X^n = exp(n mu + n^2 sigma^2 / 2) (JKB vol. 1, ch. 14)
+    moments: [m1, Math.exp(2 * mu + 2 * sigma * sigma)],
+    cfAbsError,
     at(x) {
       if (!(x > 0)) return { F: 0, f: 0, I: 0, err: 0, errf: 0, errI: 0 };
       const z = (Math.log(x) - mu) / sigma;

@@ -24,9 +24,17 @@ export interface DampedPlan {
   noise: number;
 }
 
+/**
+ * psi_c at the nodes t (atoms, kernels and the one-claim term taken out); with `noise` given, also a bound on each
+ * node's absolute error from the CF values (the constant noiseOf, or per node where the one-claim term shares the
+ * severity transform values with psi)
+ */
 export function psiOf(model: CompiledModel, atoms: Atom[], beta: number) {
   const lo = model.support[0];
-  return (t: Float64Array, re: Float64Array, im: Float64Array) => {
+  const sev = model.dampedSeverity;
+  if (sev?.count && lo === 0) return severityPsi(sev, sev.count, atoms, beta);
+  const base = noiseOf(model, atoms);
+  return (t: Float64Array, re: Float64Array, im: Float64Array, noise?: Float64Array) => {
     model.dampedLogCf!(beta, t, re, im);
     for (let k = 0; k < t.length; k++) {
       const m = Math.exp(re[k] + beta * lo);
@@ -43,7 +51,40 @@ export function psiOf(model: CompiledModel, atoms: Atom[], beta: number) {
       im[k] = i;
     }
     if (model.dampedKernels) subtractKernels(model.dampedKernels, lo, beta, t, re, im);
-    if (model.dampedSeverity) subtractSeverity(model.dampedSeverity, beta, t, re, im);
+    if (sev) subtractSeverity(sev, beta, t, re, im);
+    if (noise) noise.fill(base);
+  };
+}
+
+/**
+ * psi_c = P_N(phi) - atoms - p_1 phi for a compound whose support starts at 0, phi the severity's damped transform
+ * evaluated once for both terms. Per-node error: rounding (16 eps per unit of magnitude), the count's own CF error,
+ * and E N (|phi| + d) d for an error d in phi (see SeverityKernel.count), which falls with |phi|.
+ */
+function severityPsi(sev: SeverityKernel, count: NonNullable<SeverityKernel["count"]>, atoms: Atom[], beta: number) {
+  const pa = atoms.reduce((s, a) => s + a.p, 0);
+  const d = sev.cfAbsError;
+  return (t: Float64Array, re: Float64Array, im: Float64Array, noise?: Float64Array) => {
+    const a = new Float64Array(t.length);
+    const b = new Float64Array(t.length);
+    sev.dampedLogCf(beta, t, a, b);
+    count.cgf(a, b, re, im);
+    for (let k = 0; k < t.length; k++) {
+      const m = Math.exp(re[k]);
+      let r = m * Math.cos(im[k]);
+      let i = m * Math.sin(im[k]);
+      for (const at of atoms) {
+        const am = at.p * Math.exp(-beta * at.x);
+        r -= am * Math.cos(t[k] * at.x);
+        i -= am * Math.sin(t[k] * at.x);
+      }
+      const ph = Math.exp(a[k]);
+      r -= sev.w * ph * Math.cos(b[k]);
+      i -= sev.w * ph * Math.sin(b[k]);
+      re[k] = r;
+      im[k] = i;
+      if (noise) noise[k] = 16 * EPS * (1 + pa + sev.w) + count.absError + 2 * count.relError * (m + pa) + count.mean * (ph + d) * d;
+    }
   };
 }
 
@@ -59,15 +100,19 @@ function subtractSeverity(k: SeverityKernel, beta: number, t: Float64Array, re: 
   }
 }
 
-function probe(model: CompiledModel, atoms: Atom[], beta: number, noise: number): Envelope {
+function probe(model: CompiledModel, atoms: Atom[], beta: number): Envelope {
   const tp = probeFrequencies(Math.max(model.scale, 1e-300));
   const pr = new Float64Array(tp.length);
   const pi = new Float64Array(tp.length);
-  psiOf(model, atoms, beta)(tp, pr, pi);
+  const nz = new Float64Array(tp.length);
+  psiOf(model, atoms, beta)(tp, pr, pi, nz);
   const mag = new Float64Array(tp.length);
   for (let i = 0; i < tp.length; i++) mag[i] = Math.hypot(pr[i], pi[i]);
-  // values below the rounding of the atom subtraction and the CF's own error are not resolved
-  return envelopeOf(tp, mag, () => noise);
+  // values below the rounding of the atom subtraction and the CF's own error are not resolved (envelopeOf asks
+  // for the floor at each probe frequency in turn)
+  const at = new Map<number, number>();
+  for (let i = 0; i < tp.length; i++) at.set(tp[i], nz[i]);
+  return envelopeOf(tp, mag, (t) => at.get(t) ?? nz[0]);
 }
 
 /**
@@ -81,7 +126,7 @@ export function dampedPlan(model: CompiledModel, atoms: Atom[], R: number, tol: 
   const Mc = Math.max(1 - atoms.reduce((s, a) => s + a.p, 0), 1e-300) + kernelsMass(model.dampedKernels ?? []) + (model.dampedSeverity?.w ?? 0);
   const A = Math.max(Math.log((8 * Mc) / tol), 2);
   const noise = noiseOf(model, atoms);
-  const env0 = probe(model, atoms, 4 / span, noise);
+  const env0 = probe(model, atoms, 4 / span);
   let best = { U: 4, K: Infinity, bad: Infinity };
   for (let U = 2; U <= 8; U += 0.5) {
     const beta = U / span;
@@ -99,7 +144,7 @@ export function dampedPlan(model: CompiledModel, atoms: Atom[], R: number, tol: 
   }
   const U = best.U;
   const beta = U / span;
-  const env = probe(model, atoms, beta, noise);
+  const env = probe(model, atoms, beta);
   const target = tol / (8 * Math.exp(U));
   let tmax = cutoffFor(env, wantPdf ? target : Infinity, target);
   if (!Number.isFinite(tmax)) tmax = env.t[env.t.length - 1];

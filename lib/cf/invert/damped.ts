@@ -101,7 +101,6 @@ export function dampedSetup(model: CompiledModel, atoms: Atom[], R: number, o: D
   const notes: string[] = [];
   const psi = psiOf(model, atoms, beta);
   const env = plan.env;
-  const noise = plan.noise;
   const tmax = plan.tmax;
   const h = (2 * Math.PI) / T;
   let K = Math.max(16, Math.ceil(tmax / h));
@@ -118,7 +117,8 @@ export function dampedSetup(model: CompiledModel, atoms: Atom[], R: number, o: D
   for (let k = 0; k < K; k++) t[k] = (k + 0.5) * h;
   const pRe = new Float64Array(K);
   const pIm = new Float64Array(K);
-  psi(t, pRe, pIm);
+  const nz = new Float64Array(K);
+  psi(t, pRe, pIm, nz);
   const cRe = new Float64Array(K);
   const cIm = new Float64Array(K);
   const iRe = new Float64Array(K);
@@ -126,8 +126,9 @@ export function dampedSetup(model: CompiledModel, atoms: Atom[], R: number, o: D
   let absP = 0;
   let absC = 0;
   let absI = 0;
-  let wC = 0;
-  let wI = 0;
+  let nP = 0;
+  let nC = 0;
+  let nI = 0;
   for (let k = 0; k < K; k++) {
     // 1 / (beta - i t) = (beta + i t) / (beta^2 + t^2)
     const d = beta * beta + t[k] * t[k];
@@ -141,15 +142,16 @@ export function dampedSetup(model: CompiledModel, atoms: Atom[], R: number, o: D
     absP += a;
     absC += a / Math.sqrt(d);
     absI += a / d;
-    wC += 1 / Math.sqrt(d);
-    wI += 1 / d;
+    nP += nz[k];
+    nC += nz[k] / Math.sqrt(d);
+    nI += nz[k] / d;
   }
   const trunc = truncationAt(env, K * h);
   // per node: relative rounding of the CF and the accumulation, plus the absolute noise (atoms, numerical CF)
   const rel = 1e-14 + 8 * EPS * Math.sqrt(K) + 2 * (model.cfRelError ?? 0);
-  const sumPdf = 2 * trunc.pdf + (h / Math.PI) * (rel * absP + noise * K);
-  const sumCdf = 2 * trunc.cdf + (h / Math.PI) * (rel * absC + noise * wC);
-  const sumInt = (2 * trunc.cdf) / (K * h) + (h / Math.PI) * (rel * absI + noise * wI);
+  const sumPdf = 2 * trunc.pdf + (h / Math.PI) * (rel * absP + nP);
+  const sumCdf = 2 * trunc.cdf + (h / Math.PI) * (rel * absC + nC);
+  const sumInt = (2 * trunc.cdf) / (K * h) + (h / Math.PI) * (rel * absI + nI);
   const q = Math.exp(-beta * T);
   const geo = q / (1 - q);
   const mean = model.cumulants(1)[0];
@@ -164,8 +166,8 @@ export function dampedSetup(model: CompiledModel, atoms: Atom[], R: number, o: D
   // second moments about lo (continuous part and kernels) for the images of the integrated cdf
   let intImages: DampedSolution["intImages"] = null;
   const k2 = model.cumulants(2);
-  // (not with a one-claim severity term taken out: its moments are not at hand here; the coarser bound stays)
-  if (!model.dampedSeverity && model.momentIndex > 2 && k2[0] !== null && k2[1] !== null && Number.isFinite(k2[0]) && Number.isFinite(k2[1])) {
+  const sev = model.dampedSeverity;
+  if (model.momentIndex > 2 && k2[0] !== null && k2[1] !== null && Number.isFinite(k2[0]) && Number.isFinite(k2[1])) {
     const m1 = k2[0] - lo;
     let mc = m1;
     let second = k2[1] + m1 * m1;
@@ -180,6 +182,13 @@ export function dampedSetup(model: CompiledModel, atoms: Atom[], R: number, o: D
       W += k.w;
       mK += k.w * (d + k.shape / k.rate);
       second += Math.abs(k.w) * (d * d + (2 * d * k.shape) / k.rate + (k.shape * (k.shape + 1)) / (k.rate * k.rate));
+    }
+    // the one-claim term w F_X (X from 0, like the compound): weight w, mean w E X, second moment w E X^2 about lo
+    if (sev) {
+      const d = -lo;
+      W += sev.w;
+      mK += sev.w * (d + sev.moments[0]);
+      second += sev.w * (d * d + 2 * d * sev.moments[0] + sev.moments[1]);
     }
     if (Number.isFinite(mc) && Number.isFinite(second)) intImages = { A: Mc - W, B: mc - mK, second: Math.max(second, 0) };
   }
