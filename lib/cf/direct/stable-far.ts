@@ -27,7 +27,7 @@ const N_LO = 7;
 /** |w0| from which the far rule is tried (the grid serves nearer windows) */
 export const FAR_W = 60;
 
-interface Rule {
+export interface Rule {
   v: Float64Array;
   W: Float64Array;
 }
@@ -117,7 +117,8 @@ export function gumbelGaussRule(n: number): Rule {
 }
 
 let rules: { hi: Rule; lo: Rule } | null = null;
-function theRules() {
+/** the N_HI- and N_LO-node rules for the weight K (computed once) */
+export function theRules(): { hi: Rule; lo: Rule } {
   if (!rules) rules = { hi: gumbelGaussRule(N_HI), lo: gumbelGaussRule(N_LO) };
   return rules;
 }

@@ -31,27 +31,57 @@ export interface StableSide {
 
 const HALF_PI = Math.PI / 2;
 
+/**
+ * tan(pi alpha / 2) with full relative precision next to alpha = 1: there it equals -1 / tan(pi (alpha - 1) / 2), whose
+ * argument is exact (alpha - 1 has no rounding error for alpha in [1/2, 2]); tan(pi alpha / 2) itself loses the
+ * rounding of pi alpha / 2 times 1 / |pi (alpha - 1) / 2| (1e-13 relative at alpha = 1.001), and log V multiplies
+ * that by 1 / (alpha - 1) again.
+ */
+export function tanHalfPi(alpha: number): number {
+  return alpha >= 0.5 && alpha <= 1.5 ? -1 / Math.tan(HALF_PI * (alpha - 1)) : Math.tan(HALF_PI * alpha);
+}
+
 export function stableSide(alpha: number, beta: number): StableSide {
   if (alpha === 1) return sideOne(beta);
   const am1 = alpha - 1;
-  const tb = beta * Math.tan(HALF_PI * alpha);
+  const tb = beta * tanHalfPi(alpha);
+  // theta0 = atan(tb) / alpha, and the distances a = pi/2 - theta0 (theta = pi/2 to the left end), c = pi - alpha
+  // (theta0 + pi/2) and the interval's length L = pi/2 + theta0 written through atan(1/|tb|) and x = pi (alpha - 1)/2,
+  // which carry no cancellation: next to alpha = 1 the plain forms are differences of numbers near pi/2 (c ~ 1e-4 with
+  // an absolute rounding of 4e-16), and log V multiplies their relative error by 1 / (alpha - 1)
+  const x = HALF_PI * am1;
+  const at1 = Math.atan(1 / Math.abs(tb));
   let theta0 = Math.atan(tb) / alpha;
+  let a: number;
+  let c: number;
+  let L: number;
+  if (tb >= 0) {
+    a = (x + at1) / alpha;
+    c = at1 - x;
+    L = HALF_PI + theta0;
+  } else {
+    a = HALF_PI - theta0;
+    c = Math.PI - at1 - x;
+    L = (x + at1) / alpha;
+  }
   // ends where two factors of V vanish together: |beta| = 1 on the light side (exact zeros, not rounded ones)
-  let a = HALF_PI - theta0;
-  let c = Math.PI - alpha * (theta0 + HALF_PI);
   if (alpha < 1 && beta === 1) {
     theta0 = HALF_PI;
     a = 0;
-    c = Math.PI - alpha * Math.PI;
+    c = Math.PI * (1 - alpha);
+    L = Math.PI;
   }
   if (alpha > 1 && beta === -1) {
     theta0 = Math.PI / alpha - HALF_PI;
-    a = HALF_PI - theta0;
+    a = (Math.PI * am1) / alpha;
     c = 0;
+    L = Math.PI / alpha;
   }
-  if (alpha < 1 && beta === -1) theta0 = -HALF_PI; // the interval is empty: no mass above zeta
+  if (alpha < 1 && beta === -1) {
+    theta0 = -HALF_PI; // the interval is empty: no mass above zeta
+    L = 0;
+  }
   const K = (-0.5 * Math.log1p(tb * tb)) / am1;
-  const L = HALF_PI + theta0;
   const e1 = 1 / am1;
   const ea = alpha / am1;
   const ea2 = (alpha * alpha) / am1;

@@ -1,4 +1,5 @@
 import { lgamma } from "../families/special";
+import { tanHalfPi } from "./stable-kernel";
 
 /**
  * Tail series of the standard S1 stable law (scale 1, location 0), alpha != 1, at z > 0 (Zolotarev 1986,
@@ -38,7 +39,7 @@ function coeffsFor(alpha: number, beta: number): Coeffs {
   const key = `${alpha}:${beta}`;
   let c = cache.get(key);
   if (c) return c;
-  const tb = beta * Math.tan((Math.PI * alpha) / 2);
+  const tb = beta * tanHalfPi(alpha);
   const theta0 = alpha < 1 && beta === 1 ? Math.PI / 2 : alpha > 1 && beta === -1 ? Math.PI / alpha - Math.PI / 2 : Math.atan(tb) / alpha;
   const logc = 0.5 * Math.log1p(tb * tb);
   const phase = alpha * (Math.PI / 2 + theta0);

@@ -1,5 +1,7 @@
 import { stableIntegrals } from "./stable-integral";
 import { stableOneFar } from "./stable-far";
+import { stableNearOne } from "./stable-near-one";
+import { tanHalfPi } from "./stable-kernel";
 import { stableTailSeries } from "./stable-series";
 import type { DirectLaw, DirectPoint } from "./types";
 import { lgamma } from "../families/special";
@@ -27,7 +29,7 @@ export function stableDirect(alpha: number, beta: number, scale: number, loc: nu
   if (!(alpha > 0 && alpha < 2)) return null;
   const g = scale;
   // the S1 location: d1 = d0 - beta g tan(pi alpha/2) (alpha != 1), d0 - beta (2/pi) g log g (alpha = 1)
-  const shift10 = alpha === 1 ? beta * (2 / Math.PI) * g * Math.log(g) : beta * g * Math.tan(HALF_PI * alpha);
+  const shift10 = alpha === 1 ? beta * (2 / Math.PI) * g * Math.log(g) : beta * g * tanHalfPi(alpha);
   const d1 = param === "S1" ? loc : loc - shift10;
   let support: [number, number] = [-Infinity, Infinity];
   if (alpha < 1 && beta === 1) support = [d1, Infinity];
@@ -85,13 +87,13 @@ function theta0Of(alpha: number, beta: number): number {
   if (alpha < 1 && beta === -1) return -HALF_PI;
   if (alpha > 1 && beta === -1) return Math.PI / alpha - HALF_PI;
   if (alpha > 1 && beta === 1) return -(Math.PI / alpha - HALF_PI);
-  return Math.atan(beta * Math.tan(HALF_PI * alpha)) / alpha;
+  return Math.atan(beta * tanHalfPi(alpha)) / alpha;
 }
 
 /** x = zeta (z = 0): f = Gamma(1 + 1/alpha) cos(theta0) / (pi (1 + zeta^2)^(1/(2 alpha))), F = (pi/2 - theta0)/pi. */
 function atZeta(alpha: number, beta: number, out: DirectPoint) {
   const th0 = theta0Of(alpha, beta);
-  const zeta = -beta * Math.tan(HALF_PI * alpha);
+  const zeta = -beta * tanHalfPi(alpha);
   out.pdf = (Math.exp(lgamma(1 + 1 / alpha)) * Math.cos(th0)) / (Math.PI * Math.pow(1 + zeta * zeta, 1 / (2 * alpha)));
   out.cdf = (HALF_PI - th0) / Math.PI;
   out.sf = (HALF_PI + th0) / Math.PI;
@@ -114,7 +116,8 @@ function sideAt(alpha: number, beta: number, z: number, out: DirectPoint) {
     return;
   }
   const lh = (alpha / (alpha - 1)) * Math.log(z);
-  const r = stableIntegrals(alpha, beta, lh);
+  // alpha next to 1: a Gauss rule in log V where it converges (./stable-near-one.ts), else the grid
+  const r = stableNearOne(alpha, beta, lh) ?? stableIntegrals(alpha, beta, lh);
   const pref = alpha / (Math.PI * Math.abs(alpha - 1) * z);
   out.pdf = pref * r.Ip;
   out.pdfErr = pref * r.ep + 4 * Number.EPSILON * out.pdf;

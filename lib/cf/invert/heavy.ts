@@ -165,6 +165,9 @@ export interface HeavyLadder {
   amp: number;
   trC: number;
   trP: number;
+  /** power-tail index and power terms of what is inverted (for other Richardson tables on the same nodes) */
+  alpha: number;
+  bases?: number[];
 }
 
 /** Richardson exponents from every power term the tails may hold when known, else from the smallest index alone. */
@@ -220,6 +223,8 @@ export function heavyLadder(model: CompiledModel, atoms: Atom[], T0: number, lev
     amp: 1,
     trC: 0,
     trP: 0,
+    alpha,
+    bases,
   };
   // the remainder's faster decay needs fewer doublings to start with (more are added when the probes ask for them)
   const start = part.tail ? Math.min(levels, 3) : levels;

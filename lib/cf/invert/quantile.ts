@@ -1,6 +1,6 @@
 import { CfError } from "../errors";
 import type { DirectMethod } from "../direct/types";
-import { directQuantiles } from "../direct/answer";
+import { directQuantile, directQuantiles } from "../direct/answer";
 import type { Atom, CompiledModel } from "../types";
 import { evalLadder, growLadder, heavyLadder, invertContinuous } from "./continuous";
 import { atomMass, solutionAt } from "./shared";
@@ -135,9 +135,7 @@ function lightQuantiles(model: CompiledModel, atoms: Atom[], w: number, p: Float
 }
 
 function heavyQuantiles(model: CompiledModel, atoms: Atom[], w: number, p: Float64Array, o: QuantileOptions): QuantileResult {
-  const tol = o.tolerance ?? 1e-10;
   const shape = lawShape(model);
-  const notes: string[] = [];
   const alpha = Math.max(shape.alpha, 0.1);
   // rough extent of the requested levels from the power tail S(x) ~ (scale/x)^alpha
   let ext = shape.spread;
@@ -146,8 +144,53 @@ function heavyQuantiles(model: CompiledModel, atoms: Atom[], w: number, p: Float
     if (tp > 0) ext = Math.max(ext, shape.spread * Math.pow(2 / tp, 1 / alpha));
   }
   const T0 = Math.max(64 * shape.spread, 8 * ext);
+  // the combined scale overstates the heaviest tail's constant when the other terms are wide: the levels of the
+  // heaviest-tailed term's own law (plus a few spreads for the rest) give a shorter first period. The answer is kept
+  // only when every quantile lies inside an eighth of that period, as the estimate above intends; else it is redone.
+  const near = tailTermExtent(model, atoms, p, shape.center, shape.spread);
+  if (near !== null) {
+    const T1 = Math.max(64 * shape.spread, 8 * near);
+    if (T1 < T0 / 2) {
+      const r = heavyQuantilesAt(model, atoms, w, p, o, T1, shape);
+      let inside = true;
+      for (let i = 0; i < p.length; i++) {
+        if (p[i] <= 0 || p[i] >= 1) continue;
+        if (!(Math.abs(r.x[i] - shape.center) <= T1 / 8 && Number.isFinite(r.diagnostics.quantileError[i]))) inside = false;
+      }
+      if (inside) return r;
+    }
+  }
+  return heavyQuantilesAt(model, atoms, w, p, o, T0, shape);
+}
+
+/** max |q_G(p) - center| + 8 spreads over the levels, from the direct law of the sum's heaviest-tailed term G; null without one */
+function tailTermExtent(model: CompiledModel, atoms: Atom[], p: Float64Array, center: number, spread: number): number | null {
+  const G = model.tailTerm;
+  if (!G || atoms.length) return null;
+  let ext = 0;
+  for (let i = 0; i < p.length; i++) {
+    if (!(p[i] > 0 && p[i] < 1)) continue;
+    const q = directQuantile(G.direct, p[i]).x;
+    if (!Number.isFinite(q)) return null;
+    ext = Math.max(ext, Math.abs(q - center));
+  }
+  return ext + 8 * spread;
+}
+
+function heavyQuantilesAt(
+  model: CompiledModel,
+  atoms: Atom[],
+  w: number,
+  p: Float64Array,
+  o: QuantileOptions,
+  T0: number,
+  shape: ReturnType<typeof lawShape>,
+): QuantileResult {
+  const tol = o.tolerance ?? 1e-10;
+  const notes: string[] = [];
   const scratch = { pdf: new Float64Array(1), cdf: new Float64Array(1), sf: new Float64Array(1), one: new Float64Array(1) };
   const lad = heavyLadder(model, atoms, T0, 5, tol);
+  const ext = T0 / 8;
   const probes = [shape.center - ext, shape.center, shape.center + ext];
   for (let more = 0; more < 3; more++) {
     const worst = Math.max(...probes.map((x) => evalLadder(lad, x, scratch).errCdf));
@@ -207,7 +250,7 @@ function heavyQuantiles(model: CompiledModel, atoms: Atom[], w: number, p: Float
     } else {
       let span = 0;
       for (let i = 0; i < p.length; i++) if (Number.isFinite(xs[i])) span = Math.max(span, Math.abs(xs[i] - shape.center));
-      const sh = heavyShortfall(model, atoms, w, mean, shape, tol, span);
+      const sh = heavyShortfall(model, atoms, w, mean, shape, tol, span, lad);
       for (let i = 0; i < p.length; i++) {
         if (!Number.isFinite(xs[i]) || p[i] >= 1) continue;
         // ES needs E[(X - q)^+] to about 1e-8 (1 - p) relative to the scale of q

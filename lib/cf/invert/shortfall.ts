@@ -1,11 +1,11 @@
 import type { Atom, CompiledModel } from "../types";
 import { maybeKernels, type PartSolution } from "./continuous";
-import { exponentsFor, maybeTailLaw } from "./heavy";
+import { exponentsFor, maybeTailLaw, type HeavyLadder } from "./heavy";
 import { directShortfall } from "../direct/answer";
 import { directPoint } from "../direct/types";
 import { incGamma } from "./incgamma";
-import { buildNodes, probeEnvelope, truncationAt, type Nodes } from "./nodes";
-import { makePart, type EndpointKernels } from "./part";
+import { buildNodes, probeEnvelope, truncationAt, type Envelope, type Nodes } from "./nodes";
+import { makePart, type ContinuousPart, type EndpointKernels } from "./part";
 import { integrateSf } from "./pointwise";
 import type { lawShape } from "./range";
 import { richardsonAmplification, richardsonRow } from "./richardson";
@@ -84,13 +84,21 @@ export function heavyShortfall(
   shape: ReturnType<typeof lawShape>,
   tol: number,
   span: number,
+  ladder?: HeavyLadder,
 ): (q: number, target: number) => { value: number; error: number } {
-  let part = makePart(model, atoms, shape.center);
-  let env = probeEnvelope(part, shape.spread);
+  let part: ContinuousPart;
+  let env: Envelope;
   let alphaR: number;
   let bases: number[] | undefined;
-  ({ part, env, alpha: alphaR, bases } = maybeTailLaw(part, env, shape, tol));
-  ({ part, env } = maybeKernels(part, env, shape, { a: shape.center - 64 * shape.spread, b: shape.center + 64 * shape.spread }, tol / 16, false, []));
+  if (ladder) {
+    // the quantiles' ladder: the same part (tail term, kernels) and, where they reach far enough, the same nodes
+    ({ part, env, alpha: alphaR, bases } = ladder);
+  } else {
+    part = makePart(model, atoms, shape.center);
+    env = probeEnvelope(part, shape.spread);
+    ({ part, env, alpha: alphaR, bases } = maybeTailLaw(part, env, shape, tol));
+    ({ part, env } = maybeKernels(part, env, shape, { a: shape.center - 64 * shape.spread, b: shape.center + 64 * shape.spread }, tol / 16, false, []));
+  }
   // the weights 1/t^2 make the tail beyond T at most (2/pi) int_T E/t^2 <= 2 tailCdf(T)/T: cut where that is small
   let tmax = env.t[env.t.length - 1];
   let truncES = (2 * env.tailCdf[env.t.length - 1]) / tmax;
@@ -112,12 +120,16 @@ export function heavyShortfall(
   const alpha = Math.max(alphaR, 1.01);
   const exps = exponentsFor(bases?.map((b) => Math.max(b, 1.01)), alpha, -1, 8);
   // one period ladder for every level asked (nodes built once, on first use)
-  const T0 = Math.max(64 * shape.spread, 4 * span);
+  const T0 = ladder && ladder.T0 >= 4 * span ? ladder.T0 : Math.max(64 * shape.spread, 4 * span);
   const cache: Nodes[] = [];
   const nodesAt = (lev: number) => {
     while (cache.length <= lev) {
-      const h = (2 * Math.PI) / (T0 * 2 ** cache.length);
-      cache.push(buildNodes(part, h, Math.min(Math.max(8, Math.ceil(tmax / h)), 1 << 21)));
+      const l = cache.length;
+      const h = (2 * Math.PI) / (T0 * 2 ** l);
+      const K = Math.min(Math.max(8, Math.ceil(tmax / h)), 1 << 21);
+      const own = ladder && ladder.T0 === T0 && l < ladder.levels.length ? ladder.levels[l] : null;
+      // the ladder's nodes serve when they reach tmax (the sums below stop at K)
+      cache.push(own && own.K >= K ? { ...own, K } : buildNodes(part, h, K));
     }
     return cache[lev];
   };
