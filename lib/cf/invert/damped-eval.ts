@@ -9,7 +9,7 @@ import type { Nodes } from "./nodes";
 const EPS = Number.EPSILON;
 
 /** the gamma kernels and the one-claim term at x: what the inverted remainder leaves out */
-function takenOutAt(s: DampedSolution, x: number): { F: number; f: number; I: number; err: number; errf: number; errI: number } {
+export function takenOutAt(s: DampedSolution, x: number): { F: number; f: number; I: number; err: number; errf: number; errI: number } {
   const kv = s.kernels.length ? kernelsAt(s.kernels, x) : { F: 0, f: 0, I: 0, err: 0, errf: 0, errI: 0 };
   if (!s.severity) return kv;
   const v = s.severity.at(x);
