@@ -58,7 +58,7 @@ export function dampedAt(s: DampedSolution, x: number, wantPdf: boolean, wantInt
   const kv = takenOutAt(s, x);
   // the phase recurrence drifts by ~ eps per step between resyncs: inside the rounding allowance of the setup;
   // clamping to the known range [0, Mc] only moves a value toward the truth
-  const Fc = Math.min(Math.max(f * aC + kv.F, 0), s.Mc);
+  const Fc = Math.min(Math.max(f * aC + kv.F + s.cdfShift, 0), s.Mc);
   const fc = Math.max(f * aP + kv.f, 0);
   // images of the integrated cdf: sum_{m >= 1} (-1)^m q^m (A (y + m T) - B) in closed form
   // (sum (-1)^m q^m = -q/(1+q), sum (-1)^m m q^m = -q/(1+q)^2); what is left is at most
@@ -115,7 +115,7 @@ export function dampedGrid(
     if (y < 0) continue;
     const g = Math.exp(s.beta * y);
     const kv = takenOutAt(s, from + j * dx);
-    Fc[j] = Math.min(Math.max(g * gC[j] + kv.F, 0), s.Mc);
+    Fc[j] = Math.min(Math.max(g * gC[j] + kv.F + s.cdfShift, 0), s.Mc);
     fc[j] = wantPdf ? Math.max(g * gP[j] + kv.f, 0) : 0;
     errF[j] = g * s.sumCdf + s.aliasCdf + kv.err;
     errf[j] = g * s.sumPdf + s.aliasPdf + kv.errf;

@@ -108,7 +108,7 @@ export function dampedPoints(
     for (let a = 0; a < M; a++) leb += Math.abs(w[a]);
     const g = Math.exp(s.beta * y);
     const kv = takenOutAt(s, x);
-    Fc[i] = Math.min(Math.max(g * vC + kv.F, 0), s.Mc);
+    Fc[i] = Math.min(Math.max(g * vC + kv.F + s.cdfShift, 0), s.Mc);
     fc[i] = gP ? Math.max(g * vP + kv.f, 0) : 0;
     // the truncation part of the sums' bound holds at every y (no stencil factor); their rounding and CF-value parts
     // sit in the grid values and pass through the weights (times the Lebesgue sum)

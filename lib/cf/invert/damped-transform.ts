@@ -126,11 +126,24 @@ export function dampedPlan(model: CompiledModel, atoms: Atom[], R: number, tol: 
   const Mc = Math.max(1 - atoms.reduce((s, a) => s + a.p, 0), 1e-300) + kernelsMass(model.dampedKernels ?? []) + (model.dampedSeverity?.w ?? 0);
   const A = Math.max(Math.log((8 * Mc) / tol), 2);
   const noise = noiseOf(model, atoms);
+  // with the cdf's images taken out (imageMoments) the aliasing is q second / T^2 instead of q Mc: beta T need only be
+  // log(8 second / (T^2 tol)), solved by a few fixed-point steps (the period shrinks, which raises the need again)
+  const im = imageMoments(model, atoms);
+  const periodFor = (U: number) => {
+    let a = A;
+    let T = Math.max((span * a) / U, span * 1.25);
+    if (!im) return T;
+    for (let it = 0; it < 4; it++) {
+      a = Math.min(A, Math.max(2, Math.log((8 * (im.second / (T * T) + 4 * EPS * Math.abs(im.A))) / tol)));
+      T = Math.max((span * a) / U, span * 1.25);
+    }
+    return T;
+  };
   const env0 = probe(model, atoms, 4 / span);
   let best = { U: 4, K: Infinity, bad: Infinity };
   for (let U = 2; U <= 8; U += 0.5) {
     const beta = U / span;
-    const T = Math.max((span * A) / U, span * 1.25);
+    const T = periodFor(U);
     const target = tol / (8 * Math.exp(U));
     let tmax = cutoffFor(env0, wantPdf ? target : Infinity, target);
     if (!Number.isFinite(tmax)) tmax = env0.t[env0.t.length - 1];
@@ -148,5 +161,42 @@ export function dampedPlan(model: CompiledModel, atoms: Atom[], R: number, tol: 
   const target = tol / (8 * Math.exp(U));
   let tmax = cutoffFor(env, wantPdf ? target : Infinity, target);
   if (!Number.isFinite(tmax)) tmax = env.t[env.t.length - 1];
-  return { beta, T: Math.max((span * A) / U, span * 1.25), U, env, tmax, noise };
+  return { beta, T: periodFor(U), U, env, tmax, noise };
+}
+
+/**
+ * Limits and second moment of the inverted function G (continuous part less kernels and the one-claim term) for its
+ * images: G(z) -> A and int_lo^z G = A (z - lo) - B + r(z) far out, |G(z) - A| <= second / (z - lo)^2, |r(z)| <=
+ * second / (4 (z - lo)); null without a finite second moment.
+ */
+export function imageMoments(model: CompiledModel, atoms: Atom[]): { A: number; B: number; second: number } | null {
+  const lo = model.support[0];
+  const k2 = model.cumulants(2);
+  if (!(model.momentIndex > 2) || k2[0] === null || k2[1] === null || !Number.isFinite(k2[0]) || !Number.isFinite(k2[1])) return null;
+  const Mc = Math.max(1 - atoms.reduce((s, a) => s + a.p, 0), 0);
+  const m1 = k2[0] - lo;
+  let mc = m1;
+  let second = k2[1] + m1 * m1;
+  for (const a of atoms) {
+    mc -= a.p * (a.x - lo);
+    second -= a.p * (a.x - lo) ** 2;
+  }
+  let W = 0;
+  let mK = 0;
+  for (const k of model.dampedKernels ?? []) {
+    const d = k.at - lo;
+    W += k.w;
+    mK += k.w * (d + k.shape / k.rate);
+    second += Math.abs(k.w) * (d * d + (2 * d * k.shape) / k.rate + (k.shape * (k.shape + 1)) / (k.rate * k.rate));
+  }
+  // the one-claim term w F_X (X from 0, like the compound): weight w, mean w E X, second moment w E X^2 about lo
+  const sev = model.dampedSeverity;
+  if (sev) {
+    const d = -lo;
+    W += sev.w;
+    mK += sev.w * (d + sev.moments[0]);
+    second += sev.w * (d * d + 2 * d * sev.moments[0] + sev.moments[1]);
+  }
+  if (!Number.isFinite(mc) || !Number.isFinite(second)) return null;
+  return { A: Mc - W, B: mc - mK, second: Math.max(second, 0) };
 }

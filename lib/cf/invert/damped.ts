@@ -3,7 +3,7 @@ import type { GammaKernel } from "../damped-kernels";
 import type { SeverityKernel } from "../severity-kernel";
 import { kernelsDensityBeyond, kernelsMass } from "../damped-kernels";
 import { truncationAt } from "./nodes";
-import { dampedPlan, psiOf, type DampedPlan } from "./damped-transform";
+import { dampedPlan, imageMoments, psiOf, type DampedPlan } from "./damped-transform";
 
 export { dampedPlan, type DampedPlan } from "./damped-transform";
 export { dampedAt, dampedGrid, gridPeriod, type DampedPoint } from "./damped-eval";
@@ -53,6 +53,8 @@ export interface DampedSolution {
   sumCdf: number;
   sumInt: number;
   /** aliasing bounds after undamping: cdf (uniform), density, integrated cdf (its factor of (x - lo + T/(1 - q))) */
+  /** the cdf's images taken out in closed form: added to every cdf value (0 when they are only bounded) */
+  cdfShift: number;
   aliasCdf: number;
   aliasPdf: number;
   aliasIntCoef: number;
@@ -163,34 +165,17 @@ export function dampedSetup(model: CompiledModel, atoms: Atom[], R: number, o: D
     (ks.length ? kernelsDensityBeyond(ks, lo + T) : 0) +
     (model.dampedSeverity ? model.dampedSeverity.densityBeyond(lo + T) : 0);
   const Mr = Mc + kernelsMass(ks) + (model.dampedSeverity?.w ?? 0);
-  // second moments about lo (continuous part and kernels) for the images of the integrated cdf
-  let intImages: DampedSolution["intImages"] = null;
-  const k2 = model.cumulants(2);
-  const sev = model.dampedSeverity;
-  if (model.momentIndex > 2 && k2[0] !== null && k2[1] !== null && Number.isFinite(k2[0]) && Number.isFinite(k2[1])) {
-    const m1 = k2[0] - lo;
-    let mc = m1;
-    let second = k2[1] + m1 * m1;
-    for (const a of atoms) {
-      mc -= a.p * (a.x - lo);
-      second -= a.p * (a.x - lo) ** 2;
-    }
-    let W = 0;
-    let mK = 0;
-    for (const k of ks) {
-      const d = k.at - lo;
-      W += k.w;
-      mK += k.w * (d + k.shape / k.rate);
-      second += Math.abs(k.w) * (d * d + (2 * d * k.shape) / k.rate + (k.shape * (k.shape + 1)) / (k.rate * k.rate));
-    }
-    // the one-claim term w F_X (X from 0, like the compound): weight w, mean w E X, second moment w E X^2 about lo
-    if (sev) {
-      const d = -lo;
-      W += sev.w;
-      mK += sev.w * (d + sev.moments[0]);
-      second += sev.w * (d * d + 2 * d * sev.moments[0] + sev.moments[1]);
-    }
-    if (Number.isFinite(mc) && Number.isFinite(second)) intImages = { A: Mc - W, B: mc - mK, second: Math.max(second, 0) };
+  // the images of the cdf and of its integral taken out in closed form (their limits A, B and the second moment)
+  const intImages = imageMoments(model, atoms);
+  let aliasCdf = Mr * geo;
+  let cdfShift = 0;
+  if (intImages) {
+    // sum_{m >= 1} (-1)^m q^m G(y + m T) with G -> A far out: -A q / (1 + q) in closed form; what is left is at most
+    // sum q^m |G(y + m T) - A| <= q / (1 - q) second / T^2 (Markov's inequality on Y^2 for the tail masses)
+    cdfShift = (intImages.A * q) / (1 + q);
+    const rest = geo * (intImages.second / (T * T)) + 4 * EPS * Math.abs(cdfShift);
+    if (rest < aliasCdf) aliasCdf = rest;
+    else cdfShift = 0;
   }
   notes.push(
     `damped inversion (exponential damping beta = ${beta.toPrecision(4)} before the transform, Abate & Whitt 1992; ` +
@@ -225,7 +210,8 @@ export function dampedSetup(model: CompiledModel, atoms: Atom[], R: number, o: D
     sumPdf,
     sumCdf,
     sumInt,
-    aliasCdf: Mr * geo,
+    aliasCdf,
+    cdfShift,
     aliasPdf: fTail * geo,
     aliasIntCoef: Mr * geo,
     intImages,

@@ -34,11 +34,28 @@ export function dampedQuantiles(model: CompiledModel, atoms: Atom[], p: Float64A
   const loose = Math.max(tol, Math.min(1e-7, tail / 100));
   // kernels taken out (pareto, weibull severities): what is left decays fast, so a long range is worth its terms
   const budget = model.dampedKernels?.length || model.dampedSeverity ? MAX_K : DAMPED_BUDGET;
+  const sfBound = (s: DampedSolution, x: number) => {
+    const v = dampedAt(s, x, false, false);
+    return split(x).above + Mc - v.Fc + v.errF;
+  };
+  let prev = lo;
   for (let it = 0; it < 40; it++) {
     const probe = dampedSetup(model, atoms, R, { tolerance: loose, wantPdf: false, budget });
     if (!probe) return null;
-    const v = dampedAt(probe, R, false, false);
-    if (split(R).above + Mc - v.Fc + v.errF < tail / 2) break;
+    if (sfBound(probe, R) < tail / 2) {
+      // the last step overshoots by up to 1.5x, and the final inversion's terms grow with the range: the smallest R
+      // past the previous one where the loose inversion still shows S + bound < tail / 2 (bisection, 12 steps)
+      let a = prev;
+      let b = R;
+      for (let j = 0; j < 12 && b - a > 1e-3 * (b - lo); j++) {
+        const mid = 0.5 * (a + b);
+        if (sfBound(probe, mid) < tail / 2) b = mid;
+        else a = mid;
+      }
+      R = b;
+      break;
+    }
+    prev = R;
     R = lo + 1.5 * (R - lo);
   }
   const sol: DampedSolution | null = dampedSetup(model, atoms, R, { tolerance: tol, wantPdf: true, budget });
