@@ -1,0 +1,442 @@
+// npm run bench:bounds — how honest and how tight the engine's stated error bounds are, on every reference fixture
+// under tests/fixtures/ (each generated outside the engine by the generator beside it). For each fixture set and
+// quantity (pdf/pmf, cdf, sf, quantile, ES, moments) it prints the number of values, the worst actual/bound ratio
+// (above 1 is a broken bound: listed loudly at the end), and the worst and median bound/actual looseness (the aim
+// is within 100x). Values whose actual error is 0 or below the reference's own precision (its cross-check
+// difference, its digits, or the rounding of the reference to a double) cannot measure looseness; they are counted
+// apart, and so are far-tail points (reference cdf or sf below 1e-6), where an absolute bound cannot follow the value.
+// A model's points go in one call and its levels in another, as a client asks (BOUND_AUDIT_PER_POINT=1: one call per
+// point, each value's own best bound). Moments carry no bound in the engine's answer: their actual relative errors are
+// printed, flagged. Pure lib/cf; every call runs under a deadline (BOUND_AUDIT_DEADLINE_MS, default 300 s wall).
+import { readFileSync } from "node:fs";
+import { join } from "node:path";
+import { compile } from "@/lib/cf/compile";
+import { clearDeadline, setDeadline } from "@/lib/cf/deadline";
+import { density } from "@/lib/cf/invert/density";
+import { quantiles } from "@/lib/cf/invert/quantile";
+import { moments } from "@/lib/cf/moments";
+import type { CompiledModel, Model } from "@/lib/cf/types";
+
+const ROOT = join(import.meta.dirname, "../tests/fixtures");
+const DEADLINE_MS = Number(process.env.BOUND_AUDIT_DEADLINE_MS ?? 300_000);
+/** only the sets whose name contains this (e.g. BOUND_AUDIT_ONLY=stable) */
+const ONLY = process.env.BOUND_AUDIT_ONLY ?? "";
+const PER_POINT = process.env.BOUND_AUDIT_PER_POINT === "1";
+/** points whose reference cdf or sf is below this are far-tail points, counted apart in the looseness columns */
+const TAIL = 1e-6;
+/** a reference read into a double is itself only known to about one rounding */
+const DOUBLE = 2 ** -52;
+
+type Quantity = "pdf" | "pmf" | "cdf" | "sf" | "quantile" | "ES" | "moment";
+const QUANTITIES: Quantity[] = ["pdf", "pmf", "cdf", "sf", "quantile", "ES", "moment"];
+
+interface Sample {
+  set: string;
+  quantity: Quantity;
+  label: string;
+  got: number;
+  want: number;
+  /** the reference's own uncertainty (absolute) */
+  refErr: number;
+  /** the engine's stated bound (absolute); NaN when the answer carries none */
+  bound: number;
+  /** a point in a far tail (reference cdf or sf below TAIL): an absolute bound cannot follow its value there */
+  tail: boolean;
+}
+const samples: Sample[] = [];
+const failures: string[] = [];
+
+const num = (v: string | number) => (typeof v === "string" ? Number(v) : v);
+const read = <T>(path: string): T => JSON.parse(readFileSync(join(ROOT, path), "utf8")) as T;
+
+const slow: string[] = [];
+function guarded<T>(what: string, fn: () => T): T | undefined {
+  setDeadline(Date.now() + DEADLINE_MS);
+  const c0 = process.cpuUsage();
+  try {
+    return fn();
+  } catch (e) {
+    failures.push(`${what}: ${(e as Error).message}`);
+    return undefined;
+  } finally {
+    clearDeadline();
+    const c = process.cpuUsage(c0);
+    const ms = (c.user + c.system) / 1000;
+    if (ms > 2000) {
+      slow.push(`${what}: ${(ms / 1000).toFixed(1)} s CPU`);
+      console.error(`slow: ${what}: ${(ms / 1000).toFixed(1)} s CPU`);
+    }
+  }
+}
+
+function push(set: string, quantity: Quantity, label: string, got: number, want: number, refErr: number, bound: number, tail = false) {
+  samples.push({ set, quantity, label, got, want, refErr: Math.max(refErr, DOUBLE * Math.abs(want)), bound, tail });
+}
+
+interface PointRef {
+  x: number;
+  pdf?: number;
+  pmf?: number;
+  cdf?: number;
+  sf?: number;
+}
+interface LevelRef {
+  p: number;
+  q?: number;
+  qErr?: number;
+  es?: number | null;
+  esErr?: number;
+}
+
+/**
+ * pdf (or pmf), cdf and sf at the points, each with its stated bound: by default one call for all of a model's points
+ * (as a client would ask, so the bound is the call's bound over every point), with BOUND_AUDIT_PER_POINT=1 one call
+ * per point (each value's own best bound).
+ */
+function points(set: string, model: Model, c: CompiledModel, refs: PointRef[], refErr: (v: number, i: number) => number) {
+  const groups = PER_POINT ? refs.map((r, i) => [[r, i] as const]) : [refs.map((r, i) => [r, i] as const)];
+  for (const g of groups) {
+    const xs = g.map(([r]) => r.x);
+    const r = guarded(`${set} ${JSON.stringify(model)} x=${xs.length === 1 ? xs[0] : `${xs.length} points`}`, () => density(c, { x: xs }));
+    if (!r) continue;
+    const e = r.diagnostics.error;
+    g.forEach(([ref, i], j) => {
+      const label = `${JSON.stringify(model)} x=${ref.x}`;
+      const tail = Math.min(ref.cdf ?? 1, ref.sf ?? 1) < TAIL;
+      const add = (quantity: Quantity, got: number, want: number, refErr: number, bound: number) => push(set, quantity, label, got, want, refErr, bound, tail);
+      if (ref.pdf !== undefined && r.pdf) add("pdf", r.pdf[j], ref.pdf, refErr(ref.pdf, i), e.pdf);
+      if (ref.pmf !== undefined && r.pmf) add("pmf", r.pmf[j], ref.pmf, refErr(ref.pmf, i), e.pdf);
+      if (ref.pdf !== undefined && !r.pdf && r.pmf) failures.push(`${set} ${label}: a pdf reference but the engine answered a pmf`);
+      if (ref.cdf !== undefined) add("cdf", r.cdf[j], ref.cdf, refErr(ref.cdf, i), e.cdf);
+      if (ref.sf !== undefined) add("sf", r.sf[j], ref.sf, refErr(ref.sf, i), e.cdf);
+    });
+  }
+}
+
+/** quantiles (and ES) at the levels, each with its own stated bound (per level in the answer): one call per model */
+function levels(set: string, model: Model, c: CompiledModel, refs: LevelRef[]) {
+  if (!refs.length) return;
+  const wantEs = refs.some((l) => l.es !== undefined && l.es !== null);
+  const r = guarded(`${set} ${JSON.stringify(model)} ${refs.length} levels`, () => quantiles(c, refs.map((l) => l.p), { expectedShortfall: wantEs }));
+  if (!r) return;
+  refs.forEach((ref, i) => {
+    const label = `${JSON.stringify(model)} p=${ref.p}`;
+    if (ref.q !== undefined) push(set, "quantile", label, r.x[i], ref.q, ref.qErr ?? 0, r.diagnostics.quantileError[i]);
+    if (ref.es !== undefined && ref.es !== null) push(set, "ES", label, r.expectedShortfall![i], ref.es, ref.esErr ?? 0, r.diagnostics.expectedShortfallError![i]);
+  });
+}
+
+function rawMoments(set: string, model: Model, c: CompiledModel, raw: number[], relErr: number) {
+  if (!raw.length) return;
+  const m = guarded(`${set} ${JSON.stringify(model)} moments`, () => moments(c, raw.length));
+  if (!m) return;
+  raw.forEach((want, k) => {
+    const got = m.raw[k];
+    if (got === null || !Number.isFinite(want)) return;
+    // quadrature references of a moment that is 0 (a symmetric law) carry an absolute noise of ~1e-20
+    push(set, "moment", `${JSON.stringify(model)} E X^${k + 1}`, got, want, relErr * Math.abs(want) + 1e-20, NaN);
+  });
+}
+
+const compiled = (set: string, model: Model) => guarded(`${set} compile ${JSON.stringify(model)}`, () => compile(model));
+
+// ---- the fixture sets --------------------------------------------------------------------------------------
+
+function directFamilies() {
+  const set = "direct/families";
+  const f = read<{ families: { model: Model; points: { x: string; pdf: string; cdf: string; sf: string; rel_diff: number | null }[]; quantiles: { p: number; x: string }[] }[] }>("direct/families.json");
+  for (const fam of f.families) {
+    const c = compiled(set, fam.model);
+    if (!c) continue;
+    // 20 significant digits written; rel_diff is the second method's difference
+    const rel = fam.points.map((p) => Math.max(p.rel_diff ?? 1e-19, 1e-19));
+    points(set, fam.model, c, fam.points.map((p) => ({ x: num(p.x), pdf: num(p.pdf), cdf: num(p.cdf), sf: num(p.sf) })), (v, i) => rel[i] * Math.abs(v));
+    levels(set, fam.model, c, fam.quantiles.map((q) => ({ p: q.p, q: num(q.x), qErr: 1e-19 * Math.abs(num(q.x)) })));
+  }
+}
+
+function referenceFamilies() {
+  const set = "reference-families";
+  const f = read<{ cases: { model: Model; cdf?: { x: number; cdf: number; sf: number }[]; raw?: number[]; cdfSource?: string }[] }>("reference-families/families.json");
+  for (const k of f.cases) {
+    const c = compiled(set, k.model);
+    if (!c) continue;
+    // scipy's cdf and sf: trusted to a few units in the 15th digit (scipy.stats, double precision)
+    points(set, k.model, c, (k.cdf ?? []).map((p) => ({ x: p.x, cdf: p.cdf, sf: p.sf })), (v) => 1e-14 * Math.abs(v) + 1e-16);
+    if (k.raw) rawMoments(set, k.model, c, k.raw, 1e-14);
+  }
+}
+
+function truncnorm() {
+  const set = "reference-truncnorm";
+  const f = read<{ cases: { model: Model; cdf: { x: number; cdf: number; sf: number }[]; raw: number[] }[] }>("reference-truncnorm/truncnorm.json");
+  for (const k of f.cases) {
+    const c = compiled(set, k.model);
+    if (!c) continue;
+    points(set, k.model, c, k.cdf.map((p) => ({ x: p.x, cdf: p.cdf, sf: p.sf })), (v) => 1e-14 * Math.abs(v) + 1e-16);
+    rawMoments(set, k.model, c, k.raw, 1e-13);
+  }
+}
+
+function counts() {
+  const set = "reference-counts";
+  const f = read<{ cases: { model: Model; pmf: number[] }[] }>("reference-counts/counts.json");
+  for (const k of f.cases) {
+    const c = compiled(set, k.model);
+    if (!c) continue;
+    let cdf = 0;
+    const refs = k.pmf.map((p, x) => {
+      cdf += p;
+      return { x, pmf: p, cdf: Math.min(cdf, 1) };
+    });
+    // exact fractions written as doubles: the running sum carries one rounding per term
+    points(set, k.model, c, refs, (v, x) => (x + 2) * DOUBLE * Math.abs(v));
+  }
+}
+
+function cumulants() {
+  const set = "cumulants";
+  const f = read<{ cases: Record<string, { model: Model; mean: number; variance: number; cumulants: number[] }> }>("cumulants/cumulants.json");
+  for (const k of Object.values(f.cases)) {
+    const c = compiled(set, k.model);
+    if (!c) continue;
+    const m = guarded(`${set} moments`, () => moments(c, 4));
+    if (!m) continue;
+    k.cumulants.forEach((want, i) => {
+      const got = m.cumulants[i];
+      if (got !== null) push(set, "moment", `${JSON.stringify(k.model)} kappa_${i + 1}`, got, want, 1e-15 * Math.abs(want), NaN);
+    });
+  }
+}
+
+function vgNigTails() {
+  const set = "cf-reference/vg-nig-tails";
+  const f = read<{ laws: { model: Model; points: { x: string; pdf: string; cdf: string; sf: string; rel_diff: number }[] }[] }>("cf-reference/vg-nig-tails.json");
+  for (const law of f.laws) {
+    const c = compiled(set, law.model);
+    if (!c) continue;
+    const rel = law.points.map((p) => Math.max(p.rel_diff ?? 1e-19, 1e-19));
+    points(set, law.model, c, law.points.map((p) => ({ x: num(p.x), pdf: num(p.pdf), cdf: num(p.cdf), sf: num(p.sf) })), (v, i) => rel[i] * Math.abs(v));
+  }
+}
+
+function compoundContinuous() {
+  interface Case {
+    model: Model;
+    mean: number;
+    points: { x: number; pdf: number; cdf: number; sf: number }[];
+    levels: { p: number; q: number; es: number | null }[];
+    crossCheck: { maxCdfDifference: number };
+  }
+  const f = read<{ exponential: Case[]; lognormal: Case[] }>("compound/compound.json");
+  for (const kind of ["exponential", "lognormal"] as const) {
+    const set = `compound/${kind}`;
+    for (const k of f[kind]) {
+      const c = compiled(set, k.model);
+      if (!c) continue;
+      const e = k.crossCheck.maxCdfDifference;
+      points(set, k.model, c, k.points, () => e);
+      // no per-level uncertainty is written: the cdf cross-check over the density at q (from the points' scale) is not
+      // available either, so the quantile's reference precision is the double's own (the counted floor)
+      levels(set, k.model, c, k.levels);
+      push(set, "moment", `${JSON.stringify(k.model)} mean`, guarded(`${set} mean`, () => moments(c, 1).raw[0]) ?? NaN, k.mean, 1e-15 * k.mean, NaN);
+    }
+  }
+}
+
+function compoundHeavy(file: string, set: string) {
+  interface Case {
+    model: Model;
+    mean?: number;
+    points: { x: number; cdf: number; sf: number; cdfErr: number }[];
+    levels: { p: number; q: number; qErr: number; es: number; esErr: number }[];
+  }
+  const f = read<{ cases: Case[] }>(file);
+  for (const k of f.cases) {
+    const c = compiled(set, k.model);
+    if (!c) continue;
+    points(set, k.model, c, k.points, (_, i) => k.points[i].cdfErr);
+    levels(set, k.model, c, k.levels);
+  }
+}
+
+function sums() {
+  const set = "sums";
+  const f = read<{ cases: { model: Model; levels: { p: string; x: string; x_check: number; es: string; es_check: number; pdf: string }[] }[] }>("sums/sums.json");
+  for (const k of f.cases) {
+    const c = compiled(set, k.model);
+    if (!c) continue;
+    levels(set, k.model, c, k.levels.map((l) => ({ p: num(l.p), q: num(l.x), qErr: Math.abs(l.x_check) + 1e-22, es: num(l.es), esErr: Math.abs(l.es_check) })));
+    // at the reference quantile the cdf is p and the density the written one
+    points(set, k.model, c, k.levels.map((l) => ({ x: num(l.x), pdf: num(l.pdf), cdf: num(l.p) })), (v) => 1e-20 * Math.abs(v));
+  }
+}
+
+function stable() {
+  const set = "stable";
+  const f = read<{ points: { model: Model; x: number; pdf: string; cdf: string; sf: string; rel_diff: number | null }[] }>("stable/stable.json");
+  const byLaw = new Map<string, typeof f.points>();
+  for (const p of f.points) byLaw.set(JSON.stringify(p.model), [...(byLaw.get(JSON.stringify(p.model)) ?? []), p]);
+  for (const pts of byLaw.values()) {
+    const c = compiled(set, pts[0].model);
+    if (!c) continue;
+    const rel = pts.map((p) => Math.max(p.rel_diff ?? 1e-19, 1e-19));
+    points(set, pts[0].model, c, pts.map((p) => ({ x: p.x, pdf: num(p.pdf), cdf: num(p.cdf), sf: num(p.sf) })), (v, i) => rel[i] * Math.abs(v));
+  }
+}
+
+function layered() {
+  const set = "reference-layered";
+  const f = read<{ exponential: { model: Model; mean: number; var: { p: number; value: number }[]; es: { p: number; value: number }[]; exceedance: { x: number; value: number }[] }[] }>("reference-layered/layered.json");
+  for (const k of f.exponential) {
+    const c = compiled(set, k.model);
+    if (!c) continue;
+    points(set, k.model, c, k.exceedance.map((e) => ({ x: e.x, sf: e.value })), (v) => 1e-14 * Math.abs(v) + 1e-16);
+    const es = new Map(k.es.map((e) => [e.p, e.value]));
+    levels(set, k.model, c, k.var.map((v) => ({ p: v.p, q: v.value, qErr: 1e-14 * v.value, es: es.get(v.p) ?? null, esErr: 1e-14 * (es.get(v.p) ?? 0) })));
+  }
+  const g = read<{ lognormal: { model: Model; var: { p: number; lo: number; hi: number }[]; es: { p: number; lo: number; hi: number }[]; exceedance: { x: number; lo: number; hi: number }[] }[] }>("reference-layered/lognormal.json");
+  const lset = "reference-layered/lognormal (brackets)";
+  for (const k of g.lognormal) {
+    const c = compiled(lset, k.model);
+    if (!c) continue;
+    const mid = (b: { lo: number; hi: number }) => [(b.lo + b.hi) / 2, (b.hi - b.lo) / 2] as const;
+    points(lset, k.model, c, k.exceedance.map((e) => ({ x: e.x, sf: mid(e)[0] })), (_, i) => mid(k.exceedance[i])[1]);
+    levels(lset, k.model, c, k.var.map((v, i) => ({ p: v.p, q: mid(v)[0], qErr: mid(v)[1], es: mid(k.es[i])[0], esErr: mid(k.es[i])[1] })));
+  }
+}
+
+function risk() {
+  const set = "reference-risk";
+  const f = read<{ normal: { model: Model; exceedance: { x: number; value: number }[] }[]; compoundPoissonExponential: { model: Model; exceedance: { x: number; value: number }[] }[]; layers: { model: Model; mean: number }[] }>("reference-risk/risk.json");
+  for (const k of [...f.normal, ...f.compoundPoissonExponential]) {
+    const c = compiled(set, k.model);
+    if (!c) continue;
+    points(set, k.model, c, k.exceedance.map((e) => ({ x: e.x, sf: e.value })), (v) => 1e-14 * Math.abs(v) + 1e-16);
+  }
+  for (const k of f.layers) {
+    const c = compiled(set, k.model);
+    if (!c) continue;
+    const m = guarded(`${set} mean`, () => moments(c, 1).raw[0]);
+    if (m !== undefined && m !== null) push(set, "moment", `${JSON.stringify(k.model)} mean`, m, k.mean, 1e-12 * Math.abs(k.mean), NaN);
+  }
+}
+
+const SETS: [string, () => void][] = [
+  ["direct/families", directFamilies],
+  ["reference-families", referenceFamilies],
+  ["reference-truncnorm", truncnorm],
+  ["reference-counts", counts],
+  ["cumulants", cumulants],
+  ["cf-reference/vg-nig-tails", vgNigTails],
+  ["compound/compound", compoundContinuous],
+  ["compound/heavy", () => compoundHeavy("compound/heavy.json", "compound/heavy")],
+  ["compound/heavy-sums", () => compoundHeavy("compound/heavy-sums.json", "compound/heavy-sums")],
+  ["sums", sums],
+  ["stable", stable],
+  ["reference-layered", layered],
+  ["reference-risk", risk],
+];
+
+// ---- the table ---------------------------------------------------------------------------------------------
+
+const median = (xs: number[]) => {
+  if (!xs.length) return NaN;
+  const s = [...xs].sort((a, b) => a - b);
+  const m = s.length >> 1;
+  return s.length % 2 ? s[m] : Math.sqrt(s[m - 1] * s[m]);
+};
+const fmt = (v: number) => (Number.isNaN(v) ? "-" : v === Infinity ? "inf" : v === 0 ? "0" : v.toExponential(1));
+
+const t0 = process.cpuUsage();
+for (const [name, run] of SETS) {
+  if (ONLY && !name.includes(ONLY)) continue;
+  const c = process.cpuUsage();
+  run();
+  const d = process.cpuUsage(c);
+  console.error(`${name}: ${((d.user + d.system) / 1e6).toFixed(1)} s CPU`);
+}
+const cpu = process.cpuUsage(t0);
+
+const header = ["set", "quantity", "n", "worst act/bound", "floor", "worst bound/act", "median bound/act", ">100x", "tail n", "tail bound>|value|"];
+const rows: string[][] = [];
+const violations: string[] = [];
+const loose: string[] = [];
+const sets = [...new Set(samples.map((s) => s.set))];
+for (const set of sets) {
+  for (const quantity of QUANTITIES) {
+    const xs = samples.filter((s) => s.set === set && s.quantity === quantity);
+    if (!xs.length) continue;
+    let worstRatio = 0;
+    let floor = 0;
+    let over100 = 0;
+    let tail = 0;
+    let tailUseless = 0;
+    const looseness: number[] = [];
+    const noBound = xs.every((s) => Number.isNaN(s.bound));
+    for (const s of xs) {
+      const actual = Math.abs(s.got - s.want);
+      if (!Number.isFinite(s.got)) {
+        violations.push(`${set} ${quantity} ${s.label}: the engine answered ${s.got} (reference ${s.want})`);
+        continue;
+      }
+      if (Number.isNaN(s.bound)) {
+        // moments: no bound travels with them; the relative error stands in the looseness columns
+        if (actual > s.refErr) looseness.push(actual / Math.abs(s.want || 1));
+        else floor++;
+        continue;
+      }
+      // a bound is broken only when the difference exceeds it by more than the reference's own uncertainty
+      const ratio = s.bound > 0 ? Math.max(actual - s.refErr, 0) / s.bound : actual > s.refErr ? Infinity : 0;
+      worstRatio = Math.max(worstRatio, ratio);
+      if (ratio > 1)
+        violations.push(`${set} ${quantity} ${s.label}: engine ${s.got}, reference ${s.want}, actual ${actual.toExponential(3)}, stated bound ${s.bound.toExponential(3)}, reference uncertainty ${s.refErr.toExponential(2)}`);
+      if (s.tail) {
+        tail++;
+        if (s.bound > Math.abs(s.want)) tailUseless++;
+        continue;
+      }
+      if (actual <= s.refErr) {
+        floor++;
+        continue;
+      }
+      const l = s.bound / actual;
+      looseness.push(l);
+      if (l > 100) {
+        over100++;
+        loose.push(`${set} ${quantity} ${s.label}: bound/actual ${l.toExponential(2)} (actual ${actual.toExponential(2)}, bound ${s.bound.toExponential(2)}, reference ${s.want})`);
+      }
+    }
+    if (noBound)
+      rows.push([set, quantity, String(xs.length), "NO BOUND", String(floor), `rel err ${fmt(looseness.length ? Math.max(...looseness) : NaN)}`, `rel err ${fmt(median(looseness))}`, "-", "-", "-"]);
+    else
+      rows.push([set, quantity, String(xs.length), fmt(worstRatio) + (worstRatio > 1 ? " !!" : ""), String(floor), fmt(looseness.length ? Math.max(...looseness) : NaN), fmt(median(looseness)), String(over100), String(tail), String(tailUseless)]);
+  }
+}
+
+const widths = header.map((h, i) => Math.max(h.length, ...rows.map((r) => r[i].length)));
+const line = (r: string[]) => "| " + r.map((c, i) => c.padEnd(widths[i])).join(" | ") + " |";
+console.log(`bound audit at ${new Date().toISOString()}: ${samples.length} values from ${sets.length} fixture sets, ${PER_POINT ? "one call per point" : "one call per model"}, ${((cpu.user + cpu.system) / 1e6).toFixed(1)} s CPU`);
+console.log(
+  `actual = |engine - reference|; floor = values whose actual error is 0 or within the reference's own precision; tail = points whose reference cdf or sf is below ${TAIL} (neither is in the looseness columns; "tail bound>|value|" counts tail values whose bound exceeds the value itself); moments carry no bound: their relative errors stand in the looseness columns`,
+);
+console.log(line(header));
+console.log("|" + widths.map((w) => "-".repeat(w + 2)).join("|") + "|");
+for (const r of rows) console.log(line(r));
+if (slow.length) {
+  console.log(`\n${slow.length} calls took over 2 s of CPU:`);
+  for (const s of slow) console.log("  " + s);
+}
+if (failures.length) {
+  console.log(`\n${failures.length} calls failed (deadline ${DEADLINE_MS} ms or refusal):`);
+  for (const f of failures) console.log("  " + f);
+}
+if (loose.length && process.env.BOUND_AUDIT_VERBOSE) {
+  console.log(`\nlooser than 100x (${loose.length}):`);
+  for (const l of loose) console.log("  " + l);
+}
+if (violations.length) {
+  console.log(`\n!!! ${violations.length} BOUND VIOLATIONS (actual error above the stated bound):`);
+  for (const v of violations) console.log("  !!! " + v);
+  process.exitCode = 1;
+} else console.log("\nno bound below its actual error");
