@@ -5,7 +5,8 @@ import betainc from "@stdlib/math-base-special-betainc";
 import betaincinv from "@stdlib/math-base-special-betaincinv";
 import normalQuantile from "@stdlib/stats-base-dists-normal-quantile";
 import { lgamma } from "../families/special";
-import type { DirectLaw, DirectPoint } from "./types";
+import type { DirectLaw } from "./types";
+import { bounds, ELEM, EPS, law, SPECIAL, SQRT2PI } from "./law";
 
 /**
  * Closed-form and special-function laws for the direct route. Formulas: Johnson, Kotz & Balakrishnan, Continuous
@@ -15,52 +16,6 @@ import type { DirectLaw, DirectPoint } from "./types";
  * (their documented ports of Boost/Cephes reach ~1e-14; we claim 1e-12 and verify against mpmath in
  * tests/cf/direct-families.test.ts), plus the effect of rounding the argument, pdf * |dx|.
  */
-const EPS = Number.EPSILON;
-const ELEM = 32 * EPS;
-const SPECIAL = 1e-12;
-const SQRT2PI = Math.sqrt(2 * Math.PI);
-const NOTE = "evaluated from the family's closed form or special functions; no CF inversion";
-
-type Fill = (x: number, o: DirectPoint) => void;
-
-function law(method: DirectLaw["method"], support: [number, number], center: number, spread: number, fill: Fill, quantile?: (p: number) => number, extra?: string): DirectLaw {
-  return {
-    method,
-    support,
-    center,
-    spread,
-    notes: [extra ? `${NOTE}; ${extra}` : NOTE],
-    at(x, o) {
-      if (x < support[0] || x > support[1]) {
-        const below = x < support[0];
-        o.pdf = 0;
-        o.pdfErr = 0;
-        o.cdf = below ? 0 : 1;
-        o.sf = below ? 1 : 0;
-        o.cdfErr = 0;
-        o.sfErr = 0;
-        return;
-      }
-      fill(x, o);
-    },
-    ...(quantile ? { quantile } : {}),
-  };
-}
-
-/**
- * relative error r on each value, plus pdf times the rounding dx of the argument. An infinite pdf (a power
- * singularity at the support's end, met exactly there, dx = 0) is the exact limit: its own error and its effect on
- * the cdf are 0 (Infinity * 0 would make every bound of the answer NaN); so is a pdf of 0 there.
- */
-function bounds(o: DirectPoint, r: number, rPdf: number, dx: number) {
-  const finite = Number.isFinite(o.pdf);
-  const moved = finite && dx > 0 ? o.pdf * dx : 0;
-  o.cdfErr = r * o.cdf + moved;
-  o.sfErr = r * o.sf + moved;
-  // a pdf of exactly 0 (the limit at a support end, where rPdf may hold log 0) is exact too
-  o.pdfErr = finite && o.pdf !== 0 ? rPdf * o.pdf : 0;
-}
-
 export function normalDirect(mu: number, sigma: number): DirectLaw {
   return law(
     "special-function",

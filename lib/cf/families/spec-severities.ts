@@ -6,6 +6,8 @@ import { truncatedNormal } from "./truncated";
 import { betaDist, gammaDist } from "./dist";
 import type { FamilyName, FamilySpec } from "./spec-types";
 import { real, pos, withDist, shiftBuilt } from "./spec-types";
+import * as DS from "../direct/severities";
+import * as DB from "../direct/bounded";
 
 export const SEVERITY_SPECS: Pick<Record<FamilyName, FamilySpec>, "lomax" | "generalized_pareto" | "burr" | "loglogistic" | "inverse_gaussian" | "inverse_gamma" | "beta" | "pert" | "triangular" | "truncated_normal"> = {
   lomax: {
@@ -20,6 +22,7 @@ export const SEVERITY_SPECS: Pick<Record<FamilyName, FamilySpec>, "lomax" | "gen
     cfMethod: "numerical quadrature",
     discrete: false,
     source: "Klugman, Panjer & Willmot, Loss Models (5th ed.), app. A.2.3.1 (Pareto); JKB vol. 1, ch. 20, sec. 3 (Pareto II)",
+    direct: (p) => DS.lomaxDirect(p.alpha as number, p.theta as number),
     layerable: true,
     build: (p) => lomax(p.alpha, p.theta),
   },
@@ -35,6 +38,7 @@ export const SEVERITY_SPECS: Pick<Record<FamilyName, FamilySpec>, "lomax" | "gen
     cfMethod: "numerical quadrature",
     discrete: false,
     source: "Embrechts, Klueppelberg & Mikosch, Modelling Extremal Events (1997), sec. 3.4, def. 3.4.9; S(x) = (1 + xi (x - mu)/sigma)^(-1/xi)",
+    direct: (p) => DS.generalizedParetoDirect(p.xi as number, p.sigma as number, (p.mu as number | undefined) ?? 0),
     layerable: true,
     build: (p) => {
       const { xi, sigma, mu } = p;
@@ -55,6 +59,7 @@ export const SEVERITY_SPECS: Pick<Record<FamilyName, FamilySpec>, "lomax" | "gen
     cfMethod: "numerical quadrature",
     discrete: false,
     source: "Klugman, Panjer & Willmot, Loss Models (5th ed.), app. A.2.2.2 (Burr); Burr (1942), Ann. Math. Statist. 13, form XII",
+    direct: (p) => DS.burrDirect(p.alpha as number, p.gamma as number, p.theta as number),
     layerable: true,
     build: (p) => burr(p.alpha, p.gamma, p.theta),
   },
@@ -70,6 +75,7 @@ export const SEVERITY_SPECS: Pick<Record<FamilyName, FamilySpec>, "lomax" | "gen
     cfMethod: "numerical quadrature",
     discrete: false,
     source: "Klugman, Panjer & Willmot, Loss Models (5th ed.), app. A.2.2.4 (loglogistic)",
+    direct: (p) => DS.burrDirect(1, p.gamma as number, p.theta as number, "log-logistic"),
     layerable: true,
     build: (p) => burr(1, p.gamma, p.theta, "loglogistic"),
   },
@@ -84,6 +90,7 @@ export const SEVERITY_SPECS: Pick<Record<FamilyName, FamilySpec>, "lomax" | "gen
     cfMethod: "closed form",
     discrete: false,
     source: "Johnson, Kotz & Balakrishnan vol. 1, ch. 15, eqs. 15.4-15.6",
+    direct: (p) => DS.inverseGaussianDirect(p.mu as number, p.lambda as number),
     layerable: true,
     build: (p) => inverseGaussian(p.mu, p.lambda),
   },
@@ -99,6 +106,7 @@ export const SEVERITY_SPECS: Pick<Record<FamilyName, FamilySpec>, "lomax" | "gen
     cfMethod: "numerical quadrature",
     discrete: false,
     source: "Klugman, Panjer & Willmot, Loss Models (5th ed.), app. A.2.3.3 (inverse gamma); JKB vol. 1, ch. 17",
+    direct: (p) => DS.inverseGammaDirect(p.alpha as number, p.theta as number),
     layerable: true,
     build: (p) => inverseGamma(p.alpha, p.theta),
   },
@@ -114,6 +122,7 @@ export const SEVERITY_SPECS: Pick<Record<FamilyName, FamilySpec>, "lomax" | "gen
     discrete: false,
     source: "Johnson, Kotz & Balakrishnan vol. 2, ch. 25, eqs. 25.1-25.13 (four-parameter beta); Kummer's function A&S 13.1.2",
     check: (p) => (p.b > p.a ? null : { param: "b", detail: `beta.b (${p.b}) must be greater than beta.a (${p.a}).` }),
+    direct: (p) => DB.betaDirect(p.alpha as number, p.beta as number, (p.a as number | undefined) ?? 0, (p.b as number | undefined) ?? 1),
     layerable: true,
     build: (p) => withDist(betaLaw(p.alpha, p.beta, p.a, p.b), betaDist(p.alpha, p.beta, p.a, p.b)),
   },
@@ -130,6 +139,7 @@ export const SEVERITY_SPECS: Pick<Record<FamilyName, FamilySpec>, "lomax" | "gen
     source: "Vose, Risk Analysis: A Quantitative Guide (3rd ed., 2008), ch. 9, PERT and modified PERT (recalled from memory); Malcolm et al. (1959), Operations Research 7",
     check: (p) =>
       !(p.b > p.a) ? { param: "b", detail: `pert.b (${p.b}) must be greater than pert.a (${p.a}).` } : p.m < p.a || p.m > p.b ? { param: "m", detail: `pert.m (${p.m}) must lie in [a, b] = [${p.a}, ${p.b}].` } : null,
+    direct: (p) => DB.pertDirect(p.a as number, p.m as number, p.b as number, (p.lambda as number | undefined) ?? 4),
     layerable: true,
     build: (p) => {
       const al = 1 + (p.lambda * (p.m - p.a)) / (p.b - p.a);
@@ -150,6 +160,7 @@ export const SEVERITY_SPECS: Pick<Record<FamilyName, FamilySpec>, "lomax" | "gen
     source: "Johnson, Kotz & Balakrishnan vol. 2, ch. 26, sec. 9 (triangular)",
     check: (p) =>
       !(p.b > p.a) ? { param: "b", detail: `triangular.b (${p.b}) must be greater than triangular.a (${p.a}).` } : p.c < p.a || p.c > p.b ? { param: "c", detail: `triangular.c (${p.c}) must lie in [a, b] = [${p.a}, ${p.b}].` } : null,
+    direct: (p) => DB.triangularDirect(p.a as number, p.c as number, p.b as number),
     layerable: true,
     build: (p) => triangular(p.a, p.c, p.b),
   },
@@ -170,6 +181,7 @@ export const SEVERITY_SPECS: Pick<Record<FamilyName, FamilySpec>, "lomax" | "gen
         : (p.lower !== undefined && (p.lower - p.mu) / p.sigma > 37) || (p.upper !== undefined && (p.upper - p.mu) / p.sigma < -37)
           ? { param: p.lower !== undefined && (p.lower - p.mu) / p.sigma > 37 ? "lower" : "upper", detail: "The truncation interval lies more than 37 standard deviations from mu; its probability underflows. Move mu or the ends." }
           : null,
+    direct: (p) => DB.truncatedNormalDirect(p.mu as number, p.sigma as number, p.lower as number | undefined, p.upper as number | undefined),
     layerable: true,
     build: (p) => truncatedNormal(p.mu, p.sigma, p.lower, p.upper),
   },

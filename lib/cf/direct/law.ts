@@ -1,0 +1,48 @@
+import type { DirectLaw, DirectPoint } from "./types";
+
+/** Shared pieces of the closed-form and special-function direct laws (./families.ts, ./severities.ts, ./bounded.ts). */
+export const EPS = Number.EPSILON;
+export const ELEM = 32 * EPS;
+export const SPECIAL = 1e-12;
+export const SQRT2PI = Math.sqrt(2 * Math.PI);
+const NOTE = "evaluated from the family's closed form or special functions; no CF inversion";
+
+export type Fill = (x: number, o: DirectPoint) => void;
+
+export function law(method: DirectLaw["method"], support: [number, number], center: number, spread: number, fill: Fill, quantile?: (p: number) => number, extra?: string): DirectLaw {
+  return {
+    method,
+    support,
+    center,
+    spread,
+    notes: [extra ? `${NOTE}; ${extra}` : NOTE],
+    at(x, o) {
+      if (x < support[0] || x > support[1]) {
+        const below = x < support[0];
+        o.pdf = 0;
+        o.pdfErr = 0;
+        o.cdf = below ? 0 : 1;
+        o.sf = below ? 1 : 0;
+        o.cdfErr = 0;
+        o.sfErr = 0;
+        return;
+      }
+      fill(x, o);
+    },
+    ...(quantile ? { quantile } : {}),
+  };
+}
+
+/**
+ * relative error r on each value, plus pdf times the rounding dx of the argument. An infinite pdf (a power
+ * singularity at the support's end, met exactly there, dx = 0) is the exact limit: its own error and its effect on
+ * the cdf are 0 (Infinity * 0 would make every bound of the answer NaN); so is a pdf of 0 there.
+ */
+export function bounds(o: DirectPoint, r: number, rPdf: number, dx: number) {
+  const finite = Number.isFinite(o.pdf);
+  const moved = finite && dx > 0 ? o.pdf * dx : 0;
+  o.cdfErr = r * o.cdf + moved;
+  o.sfErr = r * o.sf + moved;
+  // a pdf of exactly 0 (the limit at a support end, where rPdf may hold log 0) is exact too
+  o.pdfErr = finite && o.pdf !== 0 ? rPdf * o.pdf : 0;
+}
