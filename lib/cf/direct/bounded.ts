@@ -13,13 +13,17 @@ import { bounds, ELEM, EPS, law, SPECIAL, SQRT2PI } from "./law";
  * argument.
  */
 
+const BETA_SHAPE_MAX = 1e4;
+
 /**
  * Beta(alpha, beta) on [a, b]: F(x) = I_z(alpha, beta), z = (x - a)/(b - a) (JKB vol. 2, ch. 25, eq. 25.2). Above the
  * middle the complement y = (b - x)/(b - a) is formed directly and F = 1 - I_y(beta, alpha), S = I_y(beta, alpha)
  * (A&S 26.5.2), which keeps relative accuracy next to b. Quantiles by stdlib's inverse incomplete beta, in z below the
  * median and in y above it.
  */
-export function betaDirect(alpha: number, beta: number, a: number, b: number, name = "beta"): DirectLaw {
+export function betaDirect(alpha: number, beta: number, a: number, b: number, name = "beta"): DirectLaw | null {
+  // stdlib's incomplete beta is checked against mpmath for shapes up to BETA_SHAPE_MAX; above, the CF route answers
+  if (!(Math.max(alpha, beta) <= BETA_SHAPE_MAX)) return null;
   const w = b - a;
   const lgs = [lgamma(alpha), lgamma(beta), lgamma(alpha + beta)];
   const logB = lgs[0] + lgs[1] - lgs[2];
@@ -64,7 +68,7 @@ export function betaDirect(alpha: number, beta: number, a: number, b: number, na
 }
 
 /** PERT(a, m, b, lambda): beta on [a, b] with alpha = 1 + lambda (m - a)/(b - a), beta = 1 + lambda (b - m)/(b - a) (Vose 2008, ch. 9). */
-export function pertDirect(a: number, m: number, b: number, lambda: number): DirectLaw {
+export function pertDirect(a: number, m: number, b: number, lambda: number): DirectLaw | null {
   return betaDirect(1 + (lambda * (m - a)) / (b - a), 1 + (lambda * (b - m)) / (b - a), a, b, "PERT (a beta)");
 }
 
@@ -157,8 +161,11 @@ export function truncatedNormalDirect(mu: number, sigma: number, lower?: number,
   const PA = Phi(A);
   const QB = Phi(-B);
   // Z = Phi(B) - Phi(A): from the lower tail when B <= 0, else 1 - Phi(A) - Q(B) (both <= 1/2 there)
-  const Z = B <= 0 ? Phi(B) - PA : 1 - PA - QB;
-  const eZ = ELEM * (B <= 0 ? Phi(B) + PA : 1 + PA + QB);
+  // a short interval (the difference would cancel) by the strip's series
+  const short = (hi - lo) / sigma * (Math.max(Math.abs(A), Math.abs(B)) + 1) <= 0.1;
+  const zs = short ? strip(A, (hi - lo) / sigma) : null;
+  const Z = zs ? zs.v : B <= 0 ? Phi(B) - PA : 1 - PA - QB;
+  const eZ = zs ? zs.e + zs.v * 4 * EPS * (Math.abs(hi) + Math.abs(lo)) / (hi - lo) : ELEM * (B <= 0 ? Phi(B) + PA : 1 + PA + QB);
   const logZ = Math.log(Z);
   const center = Math.min(Math.max(mu, lo), hi);
   const spread = Math.min(sigma, Number.isFinite(hi - lo) ? (hi - lo) / 2 : Infinity, al > 0 ? sigma / al : Infinity, be < 0 ? sigma / -be : Infinity);

@@ -28,6 +28,11 @@ export function law(method: DirectLaw["method"], support: [number, number], cent
         return;
       }
       fill(x, o);
+      // extreme parameters (a shape of 1e12, say) can overflow an error term: a probability is never off by more
+      // than 1, and a density bound that cannot be computed is the largest finite number (never NaN, never below)
+      if (!(o.cdfErr <= 1)) o.cdfErr = 1;
+      if (!(o.sfErr <= 1)) o.sfErr = 1;
+      if (!(o.pdfErr <= Number.MAX_VALUE)) o.pdfErr = Number.isFinite(o.pdf) ? Number.MAX_VALUE : 0;
     },
     ...(quantile ? { quantile } : {}),
   };

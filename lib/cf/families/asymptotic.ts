@@ -129,13 +129,17 @@ export function paretoSeries(alpha: number, r: number, arg: number, out: Float64
 
 /** exponents of the endpoint expansions kept (compounds subtract gamma kernels up to a lower order) */
 const EXPANSION_MAX = 8;
+/** an expansion whose exponents step by less than this needs over 1024 terms to reach EXPANSION_MAX: none is declared
+ *  (a shape of 1e-300 looped for ever building it) */
+const MIN_STEP = EXPANSION_MAX / 1024;
 
 /**
  * Weibull(k, lambda) density at 0: (k/lambda) (x/lambda)^{k-1} e^{-(x/lambda)^k} = sum_j (-1)^j/j! k lambda^{-k(j+1)}
  * x^{k(j+1)-1}; termwise Laplace transform (Watson's lemma): E e^{-sX} ~ sum_j (-1)^j/j! k Gamma(k(j+1))
  * lambda^{-k(j+1)} s^{-k(j+1)}.
  */
-export function weibullExpansion(k: number, lambda: number): EndpointSeries {
+export function weibullExpansion(k: number, lambda: number): EndpointSeries | undefined {
+  if (!(k >= MIN_STEP)) return undefined;
   const exps: number[] = [];
   const coefs: number[] = [];
   for (let j = 0; k * (j + 1) <= EXPANSION_MAX; j++) {
@@ -167,7 +171,8 @@ export function paretoExpansion(alpha: number, xm: number): EndpointSeries {
  * = alpha gamma sum_j (-1)^j (alpha+1)_j / j! theta^{-gamma(j+1)} x^{gamma(j+1)-1} (binomial series, |x| < theta), so
  * E e^{-sX} ~ sum_j alpha gamma (-1)^j (alpha+1)_j / j! Gamma(gamma(j+1)) (theta s)^{-gamma(j+1)} (Watson's lemma).
  */
-export function burrExpansion(alpha: number, gamma: number, theta: number): EndpointSeries {
+export function burrExpansion(alpha: number, gamma: number, theta: number): EndpointSeries | undefined {
+  if (!(gamma >= MIN_STEP)) return undefined;
   const exps: number[] = [];
   const coefs: number[] = [];
   let c = alpha * gamma;

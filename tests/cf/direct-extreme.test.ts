@@ -1,0 +1,30 @@
+// Named laws alone at extreme parameters answer with finite, covering bounds and without looping. References are
+// facts of the laws: a log-logistic's median is theta, F(theta) = 1/2 (Loss Models, 5th ed., app. A.2.2.4); Burr XII
+// has F(theta) = 1 - 2^-alpha (app. A.2.2.2); a normal density is flat within (h/sigma)^2 relative over an interval of
+// length h, so a short truncation is uniform to that accuracy (common practice).
+import { describe, expect, it } from "vitest";
+import { compile, density } from "@/lib/cf";
+import type { Model } from "@/lib/cf/types";
+
+const cases: { model: Model; x: number; cdf: number; tol: number; what: string }[] = [
+  { model: { family: "loglogistic", gamma: 1e-300, theta: 2 } as Model, x: 2, cdf: 0.5, tol: 1e-15, what: "log-logistic gamma 1e-300 at its median" },
+  { model: { family: "burr", alpha: 1e-300, gamma: 1e-300, theta: 1 } as Model, x: 1, cdf: -Math.expm1(-1e-300 * Math.LN2), tol: 1e-310, what: "burr alpha = gamma = 1e-300 at theta" },
+  { model: { family: "burr", alpha: 2.5, gamma: 1e300, theta: 1 } as Model, x: 1, cdf: 1 - Math.pow(2, -2.5), tol: 1e-15, what: "burr gamma 1e300 at theta" },
+  { model: { family: "truncated_normal", mu: -3, sigma: 1e12, lower: -3.00000001, upper: -2.99999998 } as Model, x: -3, cdf: 1 / 3, tol: 1e-6, what: "a 3e-8 wide truncation of a normal with sigma 1e12" },
+];
+
+describe("direct laws at extreme parameters", () => {
+  for (const c of cases) {
+    it(c.what, () => {
+      const m = compile(c.model);
+      expect(m.direct, c.what).toBeDefined();
+      const r = density(m, { x: [c.x] });
+      const e = r.diagnostics.error;
+      const msg = `${JSON.stringify(c.model)} at ${c.x}: cdf ${r.cdf[0]}, expected ${c.cdf}, bounds ${JSON.stringify(e)}`;
+      expect(Number.isFinite(e.cdf) && e.cdf <= 1, msg).toBe(true);
+      expect(e.pdf !== null && Number.isFinite(e.pdf), msg).toBe(true);
+      expect(Math.abs(r.cdf[0] - c.cdf), msg).toBeLessThanOrEqual(c.tol);
+      expect(Math.abs(r.cdf[0] - c.cdf), msg).toBeLessThanOrEqual(e.cdf + 1e-15 * c.cdf);
+    });
+  }
+});
