@@ -76,7 +76,11 @@ export const Diagnostics = z
         pdf: z.number().nullable(),
         cdf: z.number(),
       })
-      .openapi({ description: "upper estimates of the absolute error over the returned points" }),
+      .openapi({ description: "upper estimates of the absolute error over the returned points (pdf: over the points where the density is finite)" }),
+    unboundedDensityAt: z
+      .array(z.number())
+      .optional()
+      .openapi({ description: "points x where the density is infinite (its limit there is +infinity, exactly; the pdf entry is null); cdf and sf at those points are finite and bounded as usual" }),
     levels: z.number(),
     notes: z.array(z.string()),
   })

@@ -51,14 +51,16 @@ export function runDensity(body: z.infer<typeof DensityBody>) {
     range: body.range,
     maxFrequency: body.maxFrequency,
   });
+  // a density that is infinite at a point (a power singularity met exactly) has no JSON number: null, listed by x
+  const unbounded = r.pdf ? Array.from(r.x).filter((_, i) => r.pdf![i] === Infinity) : [];
   return {
     x: list(r.x),
-    ...(r.pdf ? { pdf: list(r.pdf) } : {}),
+    ...(r.pdf ? { pdf: nullable(r.pdf) } : {}),
     ...(r.pmf ? { pmf: list(r.pmf) } : {}),
     cdf: list(r.cdf),
     sf: list(r.sf),
     atoms: r.atoms,
-    diagnostics: r.diagnostics,
+    diagnostics: (unbounded.length > 0 ? { ...r.diagnostics, unboundedDensityAt: unbounded } : r.diagnostics) as typeof r.diagnostics & { unboundedDensityAt?: number[] },
   };
 }
 

@@ -27,7 +27,13 @@ export const { doc: DensityRequest, body: DensityBody } = modelRequest("DensityR
 export const DensityResponse = z
   .object({
     x: z.array(z.number()),
-    pdf: z.array(z.number()).optional().openapi({ description: "density of the continuous part (absent for lattice or discrete laws)" }),
+    pdf: z
+      .array(z.number().nullable())
+      .optional()
+      .openapi({
+        description:
+          "density of the continuous part (absent for lattice or discrete laws); null where the density is unbounded at that very point (a power singularity at an end of the support, e.g. gamma with shape < 1 at 0): JSON has no infinity, and those points are listed in diagnostics.unboundedDensityAt",
+      }),
     pmf: z.array(z.number()).optional().openapi({ description: "probability at each x (lattice and discrete laws)" }),
     cdf: z.array(z.number()),
     sf: z.array(z.number()).openapi({ description: "P(X > x), computed directly: accurate in relative terms in the upper tail" }),

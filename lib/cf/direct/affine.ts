@@ -42,7 +42,8 @@ export function affineDirect(law: DirectLaw, a: number, b: number): DirectLaw {
       out.cdfErr += move;
       out.sfErr += move;
       out.pdf /= aa;
-      out.pdfErr = out.pdfErr / aa + 2 * Number.EPSILON * out.pdf;
+      // an infinite density (a power singularity met exactly) is the exact limit: its bound stays 0
+      out.pdfErr = out.pdfErr / aa + (Number.isFinite(out.pdf) ? 2 * Number.EPSILON * out.pdf : 0);
     },
     ...(q ? { quantile: (p: number) => (a > 0 ? a * q(p) + b : a * q(1 - p) + b) } : {}),
   };

@@ -225,7 +225,8 @@ export function mixtureDensity(
   // summing n terms rounds by at most n ulps of the result
   const round = 2 * Number.EPSILON * parts.length;
   e.cdf += round;
-  e.pdf += round * (pdf ? Math.max(...pdf.map(Math.abs)) : 0);
+  // over the finite values: an infinite density at a point (a component's power singularity) is exact there
+  e.pdf += round * (pdf ? pdf.reduce((m, v) => (Number.isFinite(v) ? Math.max(m, Math.abs(v)) : m), 0) : 0);
   for (let i = 0; i < n; i++) {
     cdf[i] = Math.min(Math.max(cdf[i], 0), 1);
     sf[i] = Math.min(Math.max(sf[i], 0), 1);
