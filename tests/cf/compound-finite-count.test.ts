@@ -3,7 +3,7 @@
 // sum sum_k P(N = k) X^{*k}. Reference: that sum enumerated here in plain arithmetic from the definitions
 // (P(N = k) = C(n, k) p^k (1 - p)^(n - k), convolution of the severity's probabilities; common practice).
 // Before, a Bernoulli(0.822) count gave a table summing to 1.00106 and sf(0) = 0.866 against 0.822 (found by
-// tests/cf/properties.test.ts).
+// tests/cf/properties-*.test.ts).
 import { describe, expect, it } from "vitest";
 import { compile } from "@/lib/cf/compile";
 import { density } from "@/lib/cf/invert/density";

@@ -1,7 +1,7 @@
 // Every computation has a deadline: laws whose CF is a quadrature per frequency (per-claim layers, beta, truncated normal) check it
 // inside that loop. Before, the loop ran to its end however long it took: inverting a sum of two weibull layers
 // overran a 3 s deadline by more than eight minutes and a beta law a 1 s deadline by more than a minute (found by
-// tests/cf/properties.test.ts). Here the deadline has already passed when the CF is asked for many frequencies, so
+// tests/cf/properties-*.test.ts). Here the deadline has already passed when the CF is asked for many frequencies, so
 // the loop must throw DeadlineExceeded naming its stage, without timing anything.
 import { afterEach, describe, expect, it } from "vitest";
 import { compile } from "@/lib/cf/compile";

@@ -1,6 +1,6 @@
 // A law evaluated directly whose density is infinite (gamma and weibull with shape < 1) or 0 (weibull with shape > 1)
 // at the end of its support answers there with finite error bounds: before, Infinity * 0 made every bound of the answer NaN (found by
-// tests/cf/properties.test.ts on a shifted gamma). Reference: F(lower end) = 0 and S = 1 for a law with a density
+// tests/cf/properties-*.test.ts on a shifted gamma). Reference: F(lower end) = 0 and S = 1 for a law with a density
 // (common practice); the bound is only required to be a finite number that covers the error.
 import { describe, expect, it } from "vitest";
 import { compile } from "@/lib/cf/compile";

@@ -1,7 +1,7 @@
 // A mixture of lattice laws on very different steps (a compound on step 0.5 from origin 0.623 beside a compound
 // on whole numbers: a common step of 0.001) has no table of useful length: latticeTable answers null (its contract in
 // lib/cf/types.ts) instead of allocating billions of entries (it threw "RangeError: Invalid typed array length:
-// 4956084376", found by tests/cf/properties.test.ts, seed 20261204, path 169).
+// 4956084376", found by tests/cf/properties-1.test.ts, seed 20261204, path 169).
 import { describe, expect, it } from "vitest";
 import { compile } from "@/lib/cf/compile";
 import type { Model } from "@/lib/cf/types";
