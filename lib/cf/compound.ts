@@ -177,7 +177,7 @@ function discretisedNode(N: Node, X: Node, o: DiscretiseOptions): Node {
 }
 
 /** severities whose compounds are inverted as continuous laws (damped transform) unless discretisation is asked for */
-const CONTINUOUS_BY_DEFAULT = new Set(["lognormal", "pareto", "weibull", "lomax", "burr", "loglogistic"]);
+const CONTINUOUS_BY_DEFAULT = new Set(["lognormal", "pareto", "weibull", "lomax", "burr", "loglogistic", "inverse_gamma"]);
 /** the compound's transform series and its kernels (rate: the severity's own scale near its endpoint) */
 function kernelsFor(N: Node, X: Node): { series: TransformSeries; kernels: GammaKernel[]; rate: number } | null {
   const sev = X.laplaceExpansion!;

@@ -40,7 +40,7 @@ export interface DiscretiseOptions {
   tolerance?: number;
   /** explicit span h (overrides the choice) */
   span?: number;
-  /** default route: the severities with a damped transform (lognormal, pareto, weibull, lomax, burr, log-logistic)
+  /** default route: the severities with a damped transform (lognormal, pareto, weibull, lomax, burr, log-logistic, inverse gamma)
    *  stay continuous; the others are discretised */
   auto?: boolean;
   /** largest number of lattice points kept (power of two; default 2^16, 2^18 with a tolerance) */
