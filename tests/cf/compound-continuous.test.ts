@@ -46,16 +46,19 @@ const all = [...fixture.exponential.map((c) => ["exponential", c] as const), ...
 describe("compound laws of continuous severities: atom at 0 plus a density, every bound honest", () => {
   it.each(all.map(([k, c]) => [k, JSON.stringify(c.model), c] as const))("%s: %s", (_kind, _name, c) => {
     const m = compile(c.model);
-    expect(m.kind.type).toBe("mixed");
-    const atoms = (m.kind as { atoms: { x: number; p: number }[] }).atoms;
-    // P(S = 0) = P(N = 0) (Loss Models, compound distributions: the severities have no atom at 0)
-    expect(atoms.length).toBe(1);
-    expect(atoms[0].x).toBe(0);
-    expect(Math.abs(atoms[0].p - c.atom0)).toBeLessThanOrEqual(1e-15 + 1e-12 * c.atom0);
+    // P(S = 0) = P(N = 0) (Loss Models, compound distributions: the severities have no atom at 0); for lambda = 1 000
+    // and more e^-lambda is below the smallest double and the law is continuous
+    expect(m.kind.type).toBe(c.atom0 > 0 ? "mixed" : "continuous");
+    const atoms = c.atom0 > 0 ? (m.kind as { atoms: { x: number; p: number }[] }).atoms : [];
+    if (c.atom0 > 0) {
+      expect(atoms.length).toBe(1);
+      expect(atoms[0].x).toBe(0);
+      expect(Math.abs(atoms[0].p - c.atom0)).toBeLessThanOrEqual(1e-15 + 1e-12 * c.atom0);
+    }
     const refErr = c.crossCheck.maxCdfDifference;
     const r = density(m, { x: c.points.map((p) => p.x) });
     expect(r.pdf).toBeDefined();
-    expect(r.atoms).toEqual(atoms);
+    expect(r.atoms ?? []).toEqual(atoms);
     c.points.forEach((p, i) => {
       within(`cdf x=${p.x} ${c.source}`, r.cdf[i], p.cdf, r.diagnostics.error.cdf, refErr);
       within(`sf x=${p.x}`, r.sf[i], p.sf, r.diagnostics.error.cdf, refErr);
@@ -63,7 +66,10 @@ describe("compound laws of continuous severities: atom at 0 plus a density, ever
       target(`cdf ${JSON.stringify(c.model)} x=${p.x}`, Math.abs(r.cdf[i] - p.cdf) - refErr, 1e-9);
     });
     // lognormal claims: the one-claim term is taken out of the transform and added back in closed form
-    if (_kind === "lognormal") expect(r.diagnostics.notes.some((n) => n.includes("one-claim term"))).toBe(true);
+    // (not for lambda >= 1 000, where P(N = 1) is negligible; nor for sigma >= 2: the damped transform would need more
+    // terms than its budget, and the undamped route answers)
+    const sigma = (c.model as { compound: { each: { sigma?: number } } }).compound.each.sigma ?? 0;
+    if (_kind === "lognormal" && sigma < 2 && c.atom0 > 0) expect(r.diagnostics.notes.some((n) => n.includes("one-claim term"))).toBe(true);
     // every level of the fixture, 0.9999 included
     const levels = c.levels;
     const ps = levels.map((l) => l.p);
@@ -77,7 +83,8 @@ describe("compound laws of continuous severities: atom at 0 plus a density, ever
         target(`ES ${JSON.stringify(c.model)} p=${l.p}`, Math.abs(q.expectedShortfall![i] - l.es) / l.es, 1e-6);
       }
     });
-  });
+    // sigma >= 2 still goes by the undamped route and takes tens of seconds on a loaded machine (misses listed below)
+  }, 300_000);
 
   // many points at once take the interpolation route (the sums on one FFT grid, a 10-point Lagrange stencil): the
   // fixture's points, placed among 1 000 others, keep their values within the stated bounds
