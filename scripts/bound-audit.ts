@@ -358,7 +358,7 @@ for (const [name, run] of SETS) {
 }
 const cpu = process.cpuUsage(t0);
 
-const header = ["set", "quantity", "n", "worst act/bound", "floor", "worst bound/act", "median bound/act", ">100x", "tail n", "tail bound>|value|"];
+const header = ["set", "quantity", "n", "worst act/bound", "floor", "worst bound/act", "median bound/act", ">100x", "tail n", "tail bound>|value|", "bound inf"];
 const rows: string[][] = [];
 const violations: string[] = [];
 const loose: string[] = [];
@@ -372,6 +372,7 @@ for (const set of sets) {
     let over100 = 0;
     let tail = 0;
     let tailUseless = 0;
+    let infinite = 0;
     const looseness: number[] = [];
     const noBound = xs.every((s) => Number.isNaN(s.bound));
     for (const s of xs) {
@@ -384,6 +385,11 @@ for (const set of sets) {
         // moments: no bound travels with them; the relative error stands in the looseness columns
         if (actual > s.refErr) looseness.push(actual / Math.abs(s.want || 1));
         else floor++;
+        continue;
+      }
+      if (s.bound === Infinity) {
+        // an unresolved value says so with an infinite bound: honest, but it bounds nothing
+        infinite++;
         continue;
       }
       // a bound is broken only when the difference exceeds it by more than the reference's own uncertainty
@@ -408,9 +414,9 @@ for (const set of sets) {
       }
     }
     if (noBound)
-      rows.push([set, quantity, String(xs.length), "NO BOUND", String(floor), `rel err ${fmt(looseness.length ? Math.max(...looseness) : NaN)}`, `rel err ${fmt(median(looseness))}`, "-", "-", "-"]);
+      rows.push([set, quantity, String(xs.length), "NO BOUND", String(floor), `rel err ${fmt(looseness.length ? Math.max(...looseness) : NaN)}`, `rel err ${fmt(median(looseness))}`, "-", "-", "-", "-"]);
     else
-      rows.push([set, quantity, String(xs.length), fmt(worstRatio) + (worstRatio > 1 ? " !!" : ""), String(floor), fmt(looseness.length ? Math.max(...looseness) : NaN), fmt(median(looseness)), String(over100), String(tail), String(tailUseless)]);
+      rows.push([set, quantity, String(xs.length), fmt(worstRatio) + (worstRatio > 1 ? " !!" : ""), String(floor), fmt(looseness.length ? Math.max(...looseness) : NaN), fmt(median(looseness)), String(over100), String(tail), String(tailUseless), String(infinite)]);
   }
 }
 
