@@ -229,9 +229,15 @@ function compoundContinuous() {
     crossCheck: { maxCdfDifference: number };
   }
   const f = read<{ exponential: Case[]; lognormal: Case[] }>("compound/compound.json");
-  for (const kind of ["exponential", "lognormal"] as const) {
-    const set = `compound/${kind}`;
-    for (const k of f[kind]) {
+  // sigma 1.5 .. 2.5 and lambda 1 000 .. 10 000 (generate.py --wide-only)
+  const wide = read<{ lognormal: Case[] }>("compound/compound-wide.json");
+  const groups: [string, Case[]][] = [
+    ["compound/exponential", f.exponential],
+    ["compound/lognormal", f.lognormal],
+    ["compound/lognormal-wide", wide.lognormal],
+  ];
+  for (const [set, cases] of groups) {
+    for (const k of cases) {
       const c = compiled(set, k.model);
       if (!c) continue;
       const e = k.crossCheck.maxCdfDifference;
