@@ -36,6 +36,29 @@ describe("inverse gamma: E exp(i z X) at complex z (the damped transform)", () =
   });
 });
 
+describe("inverse gamma: the same values on equispaced frequencies (the batch rule summed by recurrence)", () => {
+  for (const [alpha, theta] of [[3, 2], [1.5, 0.5], [4.99, 0.502]] as const) {
+    for (const beta of [0, 0.2, 0.3, 1]) {
+      const cs = cf.cases.filter((c) => c.alpha === alpha && c.theta === theta && c.beta === beta && c.t > 0);
+      if (cs.length === 0) continue;
+      it(`alpha ${alpha}, theta ${theta}, beta ${beta}: t = 0.1, 0.2, ..., 8`, () => {
+        const node = inverseGamma(alpha, theta);
+        const t = Float64Array.from({ length: 80 }, (_, k) => (k + 1) / 10);
+        const re = new Float64Array(t.length);
+        const im = new Float64Array(t.length);
+        node.dampedLogCf!(beta, t, re, im);
+        for (const c of cs) {
+          const k = Math.round(c.t * 10) - 1;
+          const m = Math.exp(re[k]);
+          const diff = Math.hypot(m * Math.cos(im[k]) - Number(c.re), m * Math.sin(im[k]) - Number(c.im));
+          // the node's stated CF error (the rule's plus the recurrence's, lib/cf/families/severities.ts)
+          expect(diff, `t = ${t[k]}, beta ${beta}: phi = ${m * Math.cos(im[k])} + ${m * Math.sin(im[k])} i, expected ${c.re} + ${c.im} i, difference ${diff}, tolerance ${node.cfAbsError}`).toBeLessThanOrEqual(node.cfAbsError!);
+        }
+      });
+    }
+  }
+});
+
 describe("compounds of an inverse gamma severity stay continuous", () => {
   const fam = direct.families.find((f) => f.model.family === "inverse_gamma" && f.model.alpha === 3 && f.model.theta === 2)!;
   const pts = fam.points.filter((p) => Number(p.x) > 0.05 && Number(p.x) < 200);
