@@ -1,7 +1,9 @@
 // Sums of a power-tailed term and a lighter one (Student t + weibull, Student t + normal, pareto + normal): seven
 // quantiles and expected shortfall through the power-tail inversion, against mpmath numerical convolution at 24 digits
-// (tests/fixtures/sums/generate.py: each value by two convolutions with the roles of the terms swapped). Each answer
-// must lie within its own reported bound (honest) and meet the accuracy aimed at (quantiles 1e-7 relative, ES 1e-6).
+// (tests/fixtures/sums/generate.py: each value by two convolutions with the roles of the terms swapped); and sums led by
+// a stable term (with normal, uniform, Laplace, gamma terms, or a second stable), against mpmath Fourier inversion of
+// their closed-form CF at 20 digits (tests/fixtures/sums/generate_cf.py: tanh-sinh, checked by a second quadrature). Each
+// answer must lie within its own reported bound (honest) and meet the accuracy aimed at (quantiles 1e-7 relative, ES 1e-6).
 import { afterAll, describe, expect, it } from "vitest";
 import { readFileSync } from "node:fs";
 import { compile, quantiles } from "@/lib/cf";
@@ -19,11 +21,12 @@ interface Case {
   model: unknown;
   levels: Level[];
 }
-const fixture = JSON.parse(readFileSync(new URL("../fixtures/sums/sums.json", import.meta.url), "utf8")) as { cases: Case[] };
+const load = (name: string) => (JSON.parse(readFileSync(new URL(`../fixtures/sums/${name}`, import.meta.url), "utf8")) as { cases: Case[] }).cases;
+const fixture = { cases: [...load("sums.json"), ...load("cf-sums.json")] };
 
 afterAll(() => console.log("worst errors vs mpmath convolution (and error / reported bound):", JSON.stringify(worst)));
 
-describe("sums with power tails vs mpmath convolution (tests/fixtures/sums)", () => {
+describe("sums with power tails vs mpmath convolution and CF inversion (tests/fixtures/sums)", () => {
   it.each(fixture.cases.map((c) => [c.name, c] as const))("%s", (_name, c) => {
     const p = c.levels.map((l) => Number(l.p));
     const r = quantiles(compile(c.model as never), p, { expectedShortfall: true });

@@ -1,9 +1,10 @@
-import type { Atom, CompiledModel } from "../types";
+import type { Atom, CompiledModel, TailTerm } from "../types";
+import { imageScratch, imageSums, type ImageScratch } from "./images";
 import { buildNodes, cutoffFor, probeEnvelope, truncationAt, type Envelope, type Nodes } from "./nodes";
 import { makePart, withTailLaw, type ContinuousPart } from "./part";
 import { sumPointwise } from "./pointwise";
 import { lawShape, type LawShape } from "./range";
-import { richardsonAmplification, richardsonChange, richardsonExponents, richardsonExponentsMulti, richardsonRow, richardsonRowArrays } from "./richardson";
+import { richardsonAmplification, richardsonLastStep, richardsonExponents, richardsonExponentsMulti, richardsonRow, richardsonRowArrays } from "./richardson";
 import {
   MAX_FFT,
   MAX_LEVELS,
@@ -168,6 +169,9 @@ export interface HeavyLadder {
   /** power-tail index and power terms of what is inverted (for other Richardson tables on the same nodes) */
   alpha: number;
   bases?: number[];
+  /** the heaviest-tailed term whose images are taken out of every level's sums from its direct law (./images.ts) */
+  images?: TailTerm;
+  imageScratch: ImageScratch;
 }
 
 /** Richardson exponents from every power term the tails may hold when known, else from the smallest index alone. */
@@ -206,7 +210,14 @@ export function heavyLadder(model: CompiledModel, atoms: Atom[], T0: number, lev
   let env = probeEnvelope(part, shape.spread);
   let alpha: number;
   let bases: number[] | undefined;
-  ({ part, env, alpha, bases } = maybeTailLaw(part, env, shape, tol));
+  // the heaviest-tailed term's images come out of the sums from its direct law, so its CF (which may fall off like
+  // 1/t) is never subtracted and the cut-off stays the whole sum's; failing that, its CF is subtracted (maybeTailLaw)
+  const G = model.tailTerm;
+  const images = G && atoms.length === 0 && G.remainderAlpha > Math.max(shape.alpha, 0.1) + 0.05 ? G : undefined;
+  if (images) {
+    alpha = Math.max(images.remainderAlpha, shape.alpha);
+    bases = images.indices;
+  } else ({ part, env, alpha, bases } = maybeTailLaw(part, env, shape, tol));
   ({ part, env } = maybeKernels(part, env, shape, { a: shape.center - T0 / 2, b: shape.center + T0 / 2 }, tol / 16, true, []));
   let tmax = cutoffFor(env, tol / 16, tol / 16);
   if (!Number.isFinite(tmax)) tmax = env.t[env.t.length - 1];
@@ -225,9 +236,11 @@ export function heavyLadder(model: CompiledModel, atoms: Atom[], T0: number, lev
     trP: 0,
     alpha,
     bases,
+    images,
+    imageScratch: imageScratch(),
   };
   // the remainder's faster decay needs fewer doublings to start with (more are added when the probes ask for them)
-  const start = part.tail ? Math.min(levels, 3) : levels;
+  const start = part.tail || images ? Math.min(levels, 3) : levels;
   for (let l = 0; l < start; l++) growLadder(lad);
   return lad;
 }
@@ -264,20 +277,36 @@ export function evalLadder(
   const C: number[][] = [];
   const S: number[][] = [];
   scratch.one[0] = x;
+  let imC = 0;
+  let imP = 0;
   for (let l = 0; l < L; l++) {
     sumPointwise(lad.levels[l], lad.part.center, scratch.one, scratch.pdf, scratch.cdf, scratch.sf);
-    P.push(richardsonRow(scratch.pdf[0], P[l - 1], lad.expP));
-    C.push(richardsonRow(scratch.cdf[0], C[l - 1], lad.expC));
-    S.push(richardsonRow(scratch.sf[0], S[l - 1], lad.expC));
+    let pdf = scratch.pdf[0];
+    let cdf = scratch.cdf[0];
+    let sf = scratch.sf[0];
+    if (lad.images) {
+      const im = imageSums(lad.images.direct, x, lad.T0 * 2 ** l, lad.imageScratch);
+      pdf -= im.pdf;
+      cdf -= im.cdf;
+      sf += im.cdf;
+      imC = Math.max(imC, im.errCdf);
+      imP = Math.max(imP, im.errPdf);
+    }
+    P.push(richardsonRow(pdf, P[l - 1], lad.expP));
+    C.push(richardsonRow(cdf, C[l - 1], lad.expC));
+    S.push(richardsonRow(sf, S[l - 1], lad.expC));
   }
   const b = L - 1;
-  const d = richardsonChange;
+  // the last elimination step's correction (an order above the error of R_LL), not the change from the previous diagonal
+  // entry (two orders above): the quantile bounds built on it were 1 000 - 10 000 times the actual error
+  const d = richardsonLastStep;
   const k = kernelTotals(lad.part, x);
+  // the images' bounds enter every level's value: amplified like the sums' own
   return {
     pdf: P[b][b] + k.pdf,
     cdf: C[b][b] + k.cdf,
     sf: S[b][b] + k.sf,
-    errCdf: Math.max(d(C), d(S)) + lad.sumErrCdf + k.errCdf,
-    errPdf: d(P) + lad.sumErrPdf + k.errPdf,
+    errCdf: Math.max(d(C), d(S)) + lad.sumErrCdf + lad.amp * imC + k.errCdf,
+    errPdf: d(P) + lad.sumErrPdf + richardsonAmplification(lad.expP, L) * imP + k.errPdf,
   };
 }

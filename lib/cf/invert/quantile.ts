@@ -2,9 +2,10 @@ import { CfError } from "../errors";
 import type { DirectMethod } from "../direct/types";
 import { directQuantile, directQuantiles } from "../direct/answer";
 import type { Atom, CompiledModel } from "../types";
-import { evalLadder, growLadder, heavyLadder, invertContinuous } from "./continuous";
+import { evalLadder, growLadder, heavyLadder, invertContinuous, type HeavyLadder } from "./continuous";
 import { atomMass, solutionAt } from "./shared";
 import { lawShape } from "./range";
+import { richardsonAmplification } from "./richardson";
 import { atomQuantiles, latticeQuantiles } from "./quantile-table";
 import { heavyShortfall, shortfallLight } from "./shortfall";
 import { solveLevels, type Evaluator } from "./solve-levels";
@@ -163,6 +164,31 @@ function heavyQuantiles(model: CompiledModel, atoms: Atom[], w: number, p: Float
   return heavyQuantilesAt(model, atoms, w, p, o, T0, shape);
 }
 
+/**
+ * A bound on |x - q_p| from the errors at two points beside x instead of the largest error seen anywhere: with e(y) the
+ * cdf bound at y, F_h(x - d) + e(x - d) < p and F_h(x + d) - e(x + d) > p put q_p in [x - d, x + d] (F is
+ * non-decreasing). d starts at (|F_h(x) - p| + 2 e(x)) / f_h(x) and doubles up to four times; Infinity when the bracket
+ * does not close (the caller keeps its own bound). Above the median the same on S = 1 - F.
+ */
+function localBracket(ev: Evaluator, lad: HeavyLadder, scratch: LadderScratch, w: number, x: number, p: number): number {
+  const upper = p > 0.5;
+  const at = (y: number) => {
+    const v = ev.eval(y);
+    const e = w * evalLadder(lad, y, scratch).errCdf + 4 * Number.EPSILON;
+    // signed distance of the level from the value, beyond the error: < 0 below q_p, > 0 above it
+    return { g: upper ? 1 - p - v.S : v.F - p, e, f: v.f };
+  };
+  const mid = at(x);
+  if (!(mid.f > 0)) return Infinity;
+  let d = (Math.abs(mid.g) + 2 * mid.e) / mid.f;
+  for (let k = 0; k < 5; k++, d *= 2) {
+    const l = at(x - d);
+    const r = at(x + d);
+    if (l.g + l.e < 0 && r.g - r.e > 0) return d;
+  }
+  return Infinity;
+}
+
 /** max |q_G(p) - center| + 8 spreads over the levels, from the direct law of the sum's heaviest-tailed term G; null without one */
 function tailTermExtent(model: CompiledModel, atoms: Atom[], p: Float64Array, center: number, spread: number): number | null {
   const G = model.tailTerm;
@@ -177,6 +203,8 @@ function tailTermExtent(model: CompiledModel, atoms: Atom[], p: Float64Array, ce
   return ext + 8 * spread;
 }
 
+type LadderScratch = { pdf: Float64Array; cdf: Float64Array; sf: Float64Array; one: Float64Array };
+
 function heavyQuantilesAt(
   model: CompiledModel,
   atoms: Atom[],
@@ -188,13 +216,15 @@ function heavyQuantilesAt(
 ): QuantileResult {
   const tol = o.tolerance ?? 1e-10;
   const notes: string[] = [];
-  const scratch = { pdf: new Float64Array(1), cdf: new Float64Array(1), sf: new Float64Array(1), one: new Float64Array(1) };
+  const scratch: LadderScratch = { pdf: new Float64Array(1), cdf: new Float64Array(1), sf: new Float64Array(1), one: new Float64Array(1) };
   const lad = heavyLadder(model, atoms, T0, 5, tol);
   const ext = T0 / 8;
   const probes = [shape.center - ext, shape.center, shape.center + ext];
   for (let more = 0; more < 3; more++) {
     const worst = Math.max(...probes.map((x) => evalLadder(lad, x, scratch).errCdf));
-    if (worst <= tol || !growLadder(lad)) break;
+    // the sums' own bound, amplified by one more extrapolation level, would already exceed what is reached
+    const floorNext = richardsonAmplification(lad.expC, lad.levels.length + 1) * lad.trC;
+    if (worst <= tol || floorNext >= worst || !growLadder(lad)) break;
   }
   let seenErr = 0;
   const ev: Evaluator = {
@@ -234,6 +264,7 @@ function heavyQuantilesAt(
     if (Number.isFinite(xs[i])) {
       const r = evalLadder(lad, xs[i], scratch);
       if (w * r.errCdf > ev.errCdf && r.pdf > 0) err[i] = Math.max(err[i], (2 * w * r.errCdf) / (w * r.pdf));
+      err[i] = Math.min(err[i], localBracket(ev, lad, scratch, w, xs[i], pi));
     }
   }
   const lastErr = ev.errCdf;

@@ -91,3 +91,15 @@ export function richardsonChange(rows: readonly (readonly number[])[]): number {
   const d = rows[b][b];
   return 2 * Math.max(Math.abs(d - rows[b - 1][b - 1]), Math.abs(d - rows[b][b - 1]));
 }
+
+/**
+ * Error estimate of the last diagonal entry from its own last elimination step: 2 |R_LL - R_{L,L-1}|, the correction
+ * that step made (the error of R_{L,L-1} in the asymptotic regime, an order above that of R_LL); Infinity before two
+ * levels. Tighter than richardsonChange, which also counts the change from the previous diagonal entry (the error of
+ * R_{L-1,L-1}, two orders above).
+ */
+export function richardsonLastStep(rows: readonly (readonly number[])[]): number {
+  const b = rows.length - 1;
+  if (b < 1) return Infinity;
+  return 2 * Math.abs(rows[b][b] - rows[b][b - 1]);
+}

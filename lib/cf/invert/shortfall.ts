@@ -3,6 +3,7 @@ import { maybeKernels, type PartSolution } from "./continuous";
 import { exponentsFor, maybeTailLaw, type HeavyLadder } from "./heavy";
 import { directShortfall } from "../direct/answer";
 import { directPoint } from "../direct/types";
+import { imageScratch, shortfallImages } from "./images";
 import { incGamma } from "./incgamma";
 import { buildNodes, probeEnvelope, truncationAt, type Envelope, type Nodes } from "./nodes";
 import { makePart, type ContinuousPart, type EndpointKernels } from "./part";
@@ -90,9 +91,14 @@ export function heavyShortfall(
   let env: Envelope;
   let alphaR: number;
   let bases: number[] | undefined;
-  if (ladder) {
-    // the quantiles' ladder: the same part (tail term, kernels) and, where they reach far enough, the same nodes
-    ({ part, env, alpha: alphaR, bases } = ladder);
+  // the quantiles' ladder: the same part (tail term, kernels) and, where they reach far enough, the same nodes; when its
+  // sums have a term's images taken out, the ES sums take out that term's images too (./images.ts), where its law is in
+  // closed form (each image is a Gauss-Laguerre rule over a tail: a few hundred evaluations of the law per level)
+  const useLadder = ladder && (!ladder.images || ladder.images.direct.method === "closed-form") ? ladder : undefined;
+  const images = useLadder?.images;
+  const scratch = imageScratch();
+  if (useLadder) {
+    ({ part, env, alpha: alphaR, bases } = useLadder);
   } else {
     part = makePart(model, atoms, shape.center);
     env = probeEnvelope(part, shape.spread);
@@ -120,18 +126,32 @@ export function heavyShortfall(
   const alpha = Math.max(alphaR, 1.01);
   const exps = exponentsFor(bases?.map((b) => Math.max(b, 1.01)), alpha, -1, 8);
   // one period ladder for every level asked (nodes built once, on first use)
-  const T0 = ladder && ladder.T0 >= 4 * span ? ladder.T0 : Math.max(64 * shape.spread, 4 * span);
+  const T0 = useLadder && (useLadder.T0 >= 4 * span || images) ? useLadder.T0 : Math.max(64 * shape.spread, 4 * span);
   const cache: Nodes[] = [];
   const nodesAt = (lev: number) => {
     while (cache.length <= lev) {
       const l = cache.length;
       const h = (2 * Math.PI) / (T0 * 2 ** l);
       const K = Math.min(Math.max(8, Math.ceil(tmax / h)), 1 << 21);
-      const own = ladder && ladder.T0 === T0 && l < ladder.levels.length ? ladder.levels[l] : null;
+      const own = useLadder && useLadder.T0 === T0 && l < useLadder.levels.length ? useLadder.levels[l] : null;
       // the ladder's nodes serve when they reach tmax (the sums below stop at K)
       cache.push(own && own.K >= K ? { ...own, K } : buildNodes(part, h, K));
     }
     return cache[lev];
+  };
+  // sum_k |phi_k| / t_k^2 per level (for the rounding bound; independent of q)
+  const absSums: number[] = [];
+  const absAt = (lev: number) => {
+    while (absSums.length <= lev) {
+      const nd = nodesAt(absSums.length);
+      let a = 0;
+      for (let k = 0; k < nd.K; k++) {
+        const tk = (k + 0.5) * nd.h;
+        a += Math.hypot(nd.re[k], nd.im[k]) / (tk * tk);
+      }
+      absSums.push(a);
+    }
+    return absSums[lev];
   };
   return (q: number, target: number) => {
     const y = q - part.center;
@@ -145,16 +165,17 @@ export function heavyShortfall(
       const nodes = nodesAt(lev);
       const h = nodes.h;
       const K = nodes.K;
-      let acc = 0;
-      let abs = 0;
-      for (let k = 0; k < K; k++) {
-        const tk = (k + 0.5) * h;
-        acc += (nodes.re[k] * Math.cos(tk * y) + nodes.im[k] * Math.sin(tk * y)) / (tk * tk);
-        abs += Math.hypot(nodes.re[k], nodes.im[k]) / (tk * tk);
+      const acc = weightedCosSum(nodes, K, y);
+      const abs = absAt(lev);
+      let v = (part.mass * T) / 2 - (2 * h * acc) / Math.PI;
+      let imErr = 0;
+      if (images) {
+        const im = shortfallImages(images.direct, images.tails, q, T, scratch);
+        v -= im.value;
+        imErr = im.error;
       }
-      const v = (part.mass * T) / 2 - (2 * h * acc) / Math.PI;
       // V is a difference of terms of size T/2: its rounding, amplified by the extrapolation below
-      round = Math.max(round, 4 * Number.EPSILON * Math.sqrt(K) * ((part.mass * T) / 2 + (2 * h * abs) / Math.PI) + 1e-14 * (2 * h * abs) / Math.PI);
+      round = Math.max(round, 4 * Number.EPSILON * Math.sqrt(K) * ((part.mass * T) / 2 + (2 * h * abs) / Math.PI) + 1e-14 * (2 * h * abs) / Math.PI + imErr);
       const amp = richardsonAmplification(exps, lev + 1);
       const row = richardsonRow(v, rows[lev - 1], exps);
       rows.push(row);
@@ -167,6 +188,9 @@ export function heavyShortfall(
           best = cand;
         }
         if (bestTotal <= Math.max(target, tol)) break;
+        // the floor amp (round + truncES) only grows with the level (amp does, round is a running maximum): once the
+        // next level's floor reaches the best total, no further level can lower it
+        if (richardsonAmplification(exps, lev + 2) * (round + truncES) >= bestTotal) break;
       }
       prev = cand;
     }
@@ -193,4 +217,31 @@ export function heavyShortfall(
     const value = atomPart + w * ((absC + muC - q * part.mass) / 2 + kernelPart);
     return { value, error: (w * error) / 2 + w * gErr + 8 * Number.EPSILON * Math.abs(absC) };
   };
+}
+
+/**
+ * sum_{k < K} Re(phi_k e^{-i t_k y}) / t_k^2 with t_k = (k + 1/2) h: the phase advanced by one complex multiply per node
+ * and recomputed every 64 nodes (as in ./pointwise.ts), instead of a cosine and a sine per node.
+ */
+function weightedCosSum(nodes: Nodes, K: number, y: number): number {
+  const { h, re, im } = nodes;
+  const th = h * y;
+  const rc = Math.cos(th);
+  const rs = Math.sin(th);
+  let acc = 0;
+  let k = 0;
+  while (k < K) {
+    const a0 = (k + 0.5) * th;
+    let c = Math.cos(a0);
+    let sn = Math.sin(a0);
+    const end = Math.min(K, k + 64);
+    for (; k < end; k++) {
+      const tk = (k + 0.5) * h;
+      acc += (re[k] * c + im[k] * sn) / (tk * tk);
+      const nc = c * rc - sn * rs;
+      sn = sn * rc + c * rs;
+      c = nc;
+    }
+  }
+  return acc;
 }
