@@ -107,12 +107,13 @@ export function compoundNode(N: Node, X: Node, discretise: DiscretiseOptions | n
     }
   }
   if (node.dampedLogCf && !node.dampedKernels && X.severityKernel && X.kind.type === "continuous" && X.support[0] === 0 && node.support[0] === 0 && N.table) {
-    const t = N.table(2);
-    const p1 = t && t.step === 1 && t.origin <= 1 && 1 - t.origin < t.p.length ? t.p[1 - t.origin] : 0;
+    const t = N.table(3);
+    const pAt = (n: number) => (t && t.step === 1 && t.origin <= n && n - t.origin < t.p.length ? t.p[n - t.origin] : 0);
+    const p1 = pAt(1);
     const mean = N.cumulants(1)[0];
     if (p1 > 0 && N.countCgf && mean !== null && Number.isFinite(mean)) {
       const count = { cgf: N.countCgf, mean, absError: N.cfAbsError ?? 0, relError: N.cfRelError ?? 0 };
-      node.dampedSeverity = { cf: node.dampedLogCf, kernel: { ...X.severityKernel(p1), count } };
+      node.dampedSeverity = { cf: node.dampedLogCf, kernel: { ...X.severityKernel(p1, pAt(2)), count } };
     }
   }
   if (kind.type === "lattice" && X.table) {

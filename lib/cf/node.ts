@@ -63,7 +63,7 @@ export interface Node {
   /** severities: the endpoint expansion of the Laplace transform (compounds choose gamma kernels from it) */
   laplaceExpansion?: EndpointSeries;
   /** severities with a closed-form law: the one-claim term P(N = 1) F_X a compound takes out of its damped transform */
-  severityKernel?: (w: number) => import("./severity-kernel").SeverityKernel;
+  severityKernel?: (w: number, w2: number) => import("./severity-kernel").SeverityKernel;
   /** compounds: the one-claim term taken out of the damped transform, valid only with the dampedLogCf named here */
   dampedSeverity?: { cf: DampedLogCf; kernel: import("./severity-kernel").SeverityKernel };
   /** gamma kernels subtracted from the damped transform (compounds, and sums and mixtures holding them), valid only

@@ -1,4 +1,5 @@
 import { normalCdf } from "./families/dist";
+import { lognormalPair, type PairValues } from "./lognormal-pair";
 
 /**
  * The one-claim term of a compound, P(N = 1) times the severity's law, taken out of the damped transform and added
@@ -28,6 +29,12 @@ export interface SeverityKernel {
    * most sup |P_N'(z) - p_1| d <= E N (|phi| + d) d (|z| <= 1), not by (E N + p_1) d
    */
   count?: { cgf(wr: Float64Array, wi: Float64Array, re: Float64Array, im: Float64Array): void; mean: number; absError: number; relError: number };
+  /**
+   * the two-claim term P(N = 2) times the law of X_1 + X_2 (transform phi^2), when the severity has a computable
+   * one (values weighted by w, with their bounds); the inversion takes it out too where that saves more terms than
+   * its evaluation costs at the points asked for
+   */
+  pair?: { w: number; at(x: number): PairValues; densityBeyond(from: number): number; moments: readonly [number, number] };
 }
 
 /** relative accuracy of normalCdf (./families/dist: erfc through the incomplete gamma, 1e-14 with margin) */
@@ -44,6 +51,7 @@ export function lognormalKernel(
   sigma: number,
   dampedLogCf: (beta: number, t: Float64Array, re: Float64Array, im: Float64Array) => void,
   cfAbsError: number,
+  w2 = 0,
 ): SeverityKernel {
   const m1 = Math.exp(mu + (sigma * sigma) / 2);
   const mode = Math.exp(mu - sigma * sigma);
@@ -73,5 +81,19 @@ export function lognormalKernel(
       };
     },
     densityBeyond: (from) => w * pdf(Math.max(from, mode)),
+    ...(w2 > 0 ? { pair: weightedPair(w2, lognormalPair(mu, sigma), m1, Math.exp(2 * mu + 2 * sigma * sigma)) } : {}),
+  };
+}
+
+/** w2 times the two-claim law (values and bounds), with E[X_1 + X_2] = 2 m1 and E[(X_1 + X_2)^2] = 2 m2 + 2 m1^2 */
+function weightedPair(w2: number, law: ReturnType<typeof lognormalPair>, m1: number, m2: number): NonNullable<SeverityKernel["pair"]> {
+  return {
+    w: w2,
+    at(x) {
+      const v = law.at(x);
+      return { F: w2 * v.F, f: w2 * v.f, I: w2 * v.I, errF: w2 * v.errF, errf: w2 * v.errf, errI: w2 * v.errI };
+    },
+    densityBeyond: (from) => w2 * law.densityBeyond(from),
+    moments: [2 * m1, 2 * m2 + 2 * m1 * m1],
   };
 }

@@ -137,7 +137,7 @@ export function lognormal(mu: number, sigma: number): Node {
     cfAbsError: cfError,
     dampedLogCf: damped,
     // compounds take the one-claim term out of their damped transform and add it back in closed form
-    severityKernel: (w: number) => lognormalKernel(w, mu, sigma, damped, cfError),
+    severityKernel: (w: number, w2: number) => lognormalKernel(w, mu, sigma, damped, cfError, w2),
     // the density vanishes at 0 faster than any power, so every term of the endpoint expansion is 0 (Watson's lemma):
     // a compound's transform is P(N = 0) plus o(s^-n), and sums holding it build their kernels from the other terms
     laplaceExpansion: { at: 0, exps: [], coefs: [] },

@@ -13,7 +13,10 @@ export function takenOutAt(s: DampedSolution, x: number): { F: number; f: number
   const kv = s.kernels.length ? kernelsAt(s.kernels, x) : { F: 0, f: 0, I: 0, err: 0, errf: 0, errI: 0 };
   if (!s.severity) return kv;
   const v = s.severity.at(x);
-  return { F: kv.F + v.F, f: kv.f + v.f, I: kv.I + v.I, err: kv.err + v.err, errf: kv.errf + v.errf, errI: kv.errI + v.errI };
+  const out = { F: kv.F + v.F, f: kv.f + v.f, I: kv.I + v.I, err: kv.err + v.err, errf: kv.errf + v.errf, errI: kv.errI + v.errI };
+  if (!s.pair) return out;
+  const u = s.pair.at(x);
+  return { F: out.F + u.F, f: out.f + u.f, I: out.I + u.I, err: out.err + u.errF, errf: out.errf + u.errf, errI: out.errI + u.errI };
 }
 
 /** Values and error bounds of the continuous part at x (cdf, density, integrated cdf). */

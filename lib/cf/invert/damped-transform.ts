@@ -22,6 +22,8 @@ export interface DampedPlan {
   env: Envelope;
   tmax: number;
   noise: number;
+  /** the two-claim term is taken out of psi too (see SeverityKernel.pair) */
+  pairOut: boolean;
 }
 
 /**
@@ -29,10 +31,10 @@ export interface DampedPlan {
  * node's absolute error from the CF values (the constant noiseOf, or per node where the one-claim term shares the
  * severity transform values with psi)
  */
-export function psiOf(model: CompiledModel, atoms: Atom[], beta: number) {
+export function psiOf(model: CompiledModel, atoms: Atom[], beta: number, pairOut = false) {
   const lo = model.support[0];
   const sev = model.dampedSeverity;
-  if (sev?.count && lo === 0) return severityPsi(sev, sev.count, atoms, beta);
+  if (sev?.count && lo === 0) return severityPsi(sev, sev.count, atoms, beta, pairOut ? (sev.pair?.w ?? 0) : 0);
   const base = noiseOf(model, atoms);
   return (t: Float64Array, re: Float64Array, im: Float64Array, noise?: Float64Array) => {
     model.dampedLogCf!(beta, t, re, im);
@@ -57,11 +59,12 @@ export function psiOf(model: CompiledModel, atoms: Atom[], beta: number) {
 }
 
 /**
- * psi_c = P_N(phi) - atoms - p_1 phi for a compound whose support starts at 0, phi the severity's damped transform
- * evaluated once for both terms. Per-node error: rounding (16 eps per unit of magnitude), the count's own CF error,
- * and E N (|phi| + d) d for an error d in phi (see SeverityKernel.count), which falls with |phi|.
+ * psi_c = P_N(phi) - atoms - p_1 phi (- p_2 phi^2 with the two-claim term out) for a compound whose support starts at
+ * 0, phi the severity's damped transform evaluated once for every term. Per-node error: rounding (16 eps per unit of
+ * magnitude), the count's own CF error, and for an error d in phi sup |P_N'(z) - p_1 (- 2 p_2 z)| d <= E N |z|^j d,
+ * |z| <= |phi| + d, j = 1 (2 with the two-claim term out: the sum then starts at n = 3), which falls with |phi|.
  */
-function severityPsi(sev: SeverityKernel, count: NonNullable<SeverityKernel["count"]>, atoms: Atom[], beta: number) {
+function severityPsi(sev: SeverityKernel, count: NonNullable<SeverityKernel["count"]>, atoms: Atom[], beta: number, w2: number) {
   const pa = atoms.reduce((s, a) => s + a.p, 0);
   const d = sev.cfAbsError;
   return (t: Float64Array, re: Float64Array, im: Float64Array, noise?: Float64Array) => {
@@ -81,9 +84,16 @@ function severityPsi(sev: SeverityKernel, count: NonNullable<SeverityKernel["cou
       const ph = Math.exp(a[k]);
       r -= sev.w * ph * Math.cos(b[k]);
       i -= sev.w * ph * Math.sin(b[k]);
+      if (w2 > 0) {
+        r -= w2 * ph * ph * Math.cos(2 * b[k]);
+        i -= w2 * ph * ph * Math.sin(2 * b[k]);
+      }
       re[k] = r;
       im[k] = i;
-      if (noise) noise[k] = 16 * EPS * (1 + pa + sev.w) + count.absError + 2 * count.relError * (m + pa) + count.mean * (ph + d) * d;
+      if (noise) {
+        const z = ph + d;
+        noise[k] = 16 * EPS * (1 + pa + sev.w + w2) + count.absError + 2 * count.relError * (m + pa) + count.mean * (w2 > 0 ? z * z : z) * d;
+      }
     }
   };
 }
@@ -100,12 +110,12 @@ function subtractSeverity(k: SeverityKernel, beta: number, t: Float64Array, re: 
   }
 }
 
-function probe(model: CompiledModel, atoms: Atom[], beta: number): Envelope {
+function probe(model: CompiledModel, atoms: Atom[], beta: number, pairOut: boolean): Envelope {
   const tp = probeFrequencies(Math.max(model.scale, 1e-300));
   const pr = new Float64Array(tp.length);
   const pi = new Float64Array(tp.length);
   const nz = new Float64Array(tp.length);
-  psiOf(model, atoms, beta)(tp, pr, pi, nz);
+  psiOf(model, atoms, beta, pairOut)(tp, pr, pi, nz);
   const mag = new Float64Array(tp.length);
   for (let i = 0; i < tp.length; i++) mag[i] = Math.hypot(pr[i], pi[i]);
   // values below the rounding of the atom subtraction and the CF's own error are not resolved (envelopeOf asks
@@ -115,20 +125,34 @@ function probe(model: CompiledModel, atoms: Atom[], beta: number): Envelope {
   return envelopeOf(tp, mag, (t) => at.get(t) ?? nz[0]);
 }
 
+/** cost of the two-claim term at one point, in units of one frequency term (its panels against the transform's work) */
+const PAIR_COST = 60;
+
 /**
  * U trades the period (T = span A / U) against the frequency cut-off (the sums' target is tol / (8 e^U)) and the
  * rounding that e^U amplifies: the U in [2, 8] with the fewest terms whose rounding estimate stays below tol / 4.
+ * With a two-claim term available, both plans are made and the cheaper for `points` evaluation points is kept.
  */
-export function dampedPlan(model: CompiledModel, atoms: Atom[], R: number, tol: number, wantPdf: boolean): DampedPlan {
+export function dampedPlan(model: CompiledModel, atoms: Atom[], R: number, tol: number, wantPdf: boolean, points = 256): DampedPlan {
+  const plain = planFor(model, atoms, R, tol, wantPdf, false);
+  // the second plan only where it can pay: the plain plan's terms exceed what the term costs at the points
+  const can = model.dampedSeverity?.count && model.dampedSeverity.pair && model.support[0] === 0 && plain.K > PAIR_COST * points;
+  const pair = can ? planFor(model, atoms, R, tol, wantPdf, true) : null;
+  if (!pair) return plain.plan;
+  return pair.K + PAIR_COST * points < plain.K ? pair.plan : plain.plan;
+}
+
+function planFor(model: CompiledModel, atoms: Atom[], R: number, tol: number, wantPdf: boolean, pairOut: boolean): { plan: DampedPlan; K: number } {
   const lo = model.support[0];
   const span = Math.max(R - lo, 1e-6 * Math.max(model.scale, Math.abs(lo), 1e-300));
   // the inverted function is the continuous part less the kernels: its size bounds the images
-  const Mc = Math.max(1 - atoms.reduce((s, a) => s + a.p, 0), 1e-300) + kernelsMass(model.dampedKernels ?? []) + (model.dampedSeverity?.w ?? 0);
+  const w2 = pairOut ? (model.dampedSeverity?.pair?.w ?? 0) : 0;
+  const Mc = Math.max(1 - atoms.reduce((s, a) => s + a.p, 0), 1e-300) + kernelsMass(model.dampedKernels ?? []) + (model.dampedSeverity?.w ?? 0) + w2;
   const A = Math.max(Math.log((8 * Mc) / tol), 2);
   const noise = noiseOf(model, atoms);
   // with the cdf's images taken out (imageMoments) the aliasing is q second / T^2 instead of q Mc: beta T need only be
   // log(8 second / (T^2 tol)), solved by a few fixed-point steps (the period shrinks, which raises the need again)
-  const im = imageMoments(model, atoms);
+  const im = imageMoments(model, atoms, pairOut);
   const periodFor = (U: number) => {
     let a = A;
     let T = Math.max((span * a) / U, span * 1.25);
@@ -139,7 +163,7 @@ export function dampedPlan(model: CompiledModel, atoms: Atom[], R: number, tol: 
     }
     return T;
   };
-  const env0 = probe(model, atoms, 4 / span);
+  const env0 = probe(model, atoms, 4 / span, pairOut);
   let best = { U: 4, K: Infinity, bad: Infinity };
   for (let U = 2; U <= 8; U += 0.5) {
     const beta = U / span;
@@ -157,11 +181,12 @@ export function dampedPlan(model: CompiledModel, atoms: Atom[], R: number, tol: 
   }
   const U = best.U;
   const beta = U / span;
-  const env = probe(model, atoms, beta);
+  const env = probe(model, atoms, beta, pairOut);
   const target = tol / (8 * Math.exp(U));
   let tmax = cutoffFor(env, wantPdf ? target : Infinity, target);
   if (!Number.isFinite(tmax)) tmax = env.t[env.t.length - 1];
-  return { beta, T: periodFor(U), U, env, tmax, noise };
+  const T = periodFor(U);
+  return { plan: { beta, T, U, env, tmax, noise, pairOut }, K: (tmax * T) / (2 * Math.PI) };
 }
 
 /**
@@ -169,7 +194,7 @@ export function dampedPlan(model: CompiledModel, atoms: Atom[], R: number, tol: 
  * images: G(z) -> A and int_lo^z G = A (z - lo) - B + r(z) far out, |G(z) - A| <= second / (z - lo)^2, |r(z)| <=
  * second / (4 (z - lo)); null without a finite second moment.
  */
-export function imageMoments(model: CompiledModel, atoms: Atom[]): { A: number; B: number; second: number } | null {
+export function imageMoments(model: CompiledModel, atoms: Atom[], pairOut: boolean): { A: number; B: number; second: number } | null {
   const lo = model.support[0];
   const k2 = model.cumulants(2);
   if (!(model.momentIndex > 2) || k2[0] === null || k2[1] === null || !Number.isFinite(k2[0]) || !Number.isFinite(k2[1])) return null;
@@ -196,6 +221,13 @@ export function imageMoments(model: CompiledModel, atoms: Atom[]): { A: number; 
     W += sev.w;
     mK += sev.w * (d + sev.moments[0]);
     second += sev.w * (d * d + 2 * d * sev.moments[0] + sev.moments[1]);
+    // and the two-claim term w2 F_{X_1 + X_2}
+    const pr = sev.pair;
+    if (pairOut && pr) {
+      W += pr.w;
+      mK += pr.w * (d + pr.moments[0]);
+      second += pr.w * (d * d + 2 * d * pr.moments[0] + pr.moments[1]);
+    }
   }
   if (!Number.isFinite(mc) || !Number.isFinite(second)) return null;
   return { A: Mc - W, B: mc - mK, second: Math.max(second, 0) };

@@ -72,6 +72,8 @@ export interface DampedSolution {
   kernels: readonly GammaKernel[];
   /** the one-claim term taken out of psi_c (added back in closed form) */
   severity: SeverityKernel | null;
+  /** the two-claim term taken out of psi_c (added back by quadrature), or null */
+  pair: SeverityKernel["pair"] | null;
   notes: string[];
 }
 
@@ -84,6 +86,8 @@ export interface DampedOptions {
   budget?: number;
   /** a plan made for this range already (grids: to fix the period first) */
   plan?: DampedPlan;
+  /** how many points the solution will be evaluated at (weighs the two-claim term's cost; default 256) */
+  points?: number;
 }
 
 /** Whether the damped inversion applies: a compound-type law bounded below with its damped transform. */
@@ -97,11 +101,12 @@ export function dampedSetup(model: CompiledModel, atoms: Atom[], R: number, o: D
   const pa = atoms.reduce((s, a) => s + a.p, 0);
   const Mc = Math.max(1 - pa, 0);
   const tol = o.tolerance;
-  const plan = o.plan ?? dampedPlan(model, atoms, R, tol, o.wantPdf);
+  const plan = o.plan ?? dampedPlan(model, atoms, R, tol, o.wantPdf, o.points);
   const beta = plan.beta;
   const T = o.period ?? plan.T;
   const notes: string[] = [];
-  const psi = psiOf(model, atoms, beta);
+  const psi = psiOf(model, atoms, beta, plan.pairOut);
+  const pair = plan.pairOut ? (model.dampedSeverity?.pair ?? null) : null;
   const env = plan.env;
   const tmax = plan.tmax;
   const h = (2 * Math.PI) / T;
@@ -163,10 +168,11 @@ export function dampedSetup(model: CompiledModel, atoms: Atom[], R: number, o: D
   const fTail =
     (mean !== null && Number.isFinite(mean) && model.momentIndex > 1 ? (4 * Math.max(mean - lo, 0)) / (T * T) : (2 * Mc) / T) +
     (ks.length ? kernelsDensityBeyond(ks, lo + T) : 0) +
-    (model.dampedSeverity ? model.dampedSeverity.densityBeyond(lo + T) : 0);
-  const Mr = Mc + kernelsMass(ks) + (model.dampedSeverity?.w ?? 0);
+    (model.dampedSeverity ? model.dampedSeverity.densityBeyond(lo + T) : 0) +
+    (pair ? pair.densityBeyond(lo + T) : 0);
+  const Mr = Mc + kernelsMass(ks) + (model.dampedSeverity?.w ?? 0) + (pair?.w ?? 0);
   // the images of the cdf and of its integral taken out in closed form (their limits A, B and the second moment)
-  const intImages = imageMoments(model, atoms);
+  const intImages = imageMoments(model, atoms, plan.pairOut);
   let aliasCdf = Mr * geo;
   let cdfShift = 0;
   if (intImages) {
@@ -185,6 +191,11 @@ export function dampedSetup(model: CompiledModel, atoms: Atom[], R: number, o: D
     notes.push(
       `the one-claim term (P(N = 1) = ${model.dampedSeverity.w.toPrecision(4)} times the ${model.dampedSeverity.name} severity) taken out of ` +
         `the transform before the inversion and added back in closed form, so the remainder decays like the severity's transform squared`,
+    );
+  if (pair)
+    notes.push(
+      `the two-claim term (P(N = 2) = ${pair.w.toPrecision(4)} times the law of two claims) taken out as well and added back by ` +
+        `Gauss-Legendre panels with a Bernstein-ellipse error bound, so the remainder decays like the transform cubed`,
     );
   if (ks.length)
     notes.push(
@@ -217,6 +228,7 @@ export function dampedSetup(model: CompiledModel, atoms: Atom[], R: number, o: D
     intImages,
     kernels: ks,
     severity: model.dampedSeverity ?? null,
+    pair,
     q,
     maxFrequency: K * h,
     capped,

@@ -42,7 +42,7 @@ export function dampedDensity(
   let sol;
   const notes0: string[] = [];
   if (req.kind === "grid" && useFft) {
-    const plan = dampedPlan(model, atoms, R, tol, wantPdf);
+    const plan = dampedPlan(model, atoms, R, tol, wantPdf, n);
     const g = gridPeriod(lo, req.from, req.dx, req.count, plan.T);
     sol = dampedSetup(model, atoms, R, { tolerance: tol, wantPdf, period: g.T, budget, plan });
     if (!sol) return null;
@@ -55,7 +55,7 @@ export function dampedDensity(
     method = "fft-damped";
     gridSize = g.N;
   } else {
-    sol = dampedSetup(model, atoms, R, { tolerance: tol, wantPdf, budget });
+    sol = dampedSetup(model, atoms, R, { tolerance: tol, wantPdf, budget, points: n });
     if (!sol) return null;
     // many points: the sums once on a fine FFT grid and interpolated, the interpolation error inside tol / 16
     const pp = n >= 32 ? pointsPlan(sol, n, tol / (16 * Math.exp(sol.beta * (R - lo))), wantPdf) : null;
