@@ -204,6 +204,9 @@ export function subtractKernels(ks: readonly GammaKernel[], lo: number, beta: nu
   }
 }
 
+/** stated relative accuracy of incGamma's directly computed P or Q (see the note in kernelsAt) */
+const ACC = 1e-13;
+
 /** the kernels' cdf, density and integrated cdf (int_{-inf}^x F) at x, with a bound on their rounding */
 export function kernelsAt(ks: readonly GammaKernel[], x: number): { F: number; f: number; I: number; err: number; errf: number; errI: number } {
   let F = 0;
@@ -212,23 +215,38 @@ export function kernelsAt(ks: readonly GammaKernel[], x: number): { F: number; f
   let scale = 0;
   let scaleI = 0;
   let scaleF = 0;
+  let errP = 0;
+  let errP1 = 0;
+  let errIy = 0;
   for (const k of ks) {
     const y = x - k.at;
     if (!(y > 0)) continue;
     const z = k.rate * y;
-    const P = incGamma(k.shape, z).P;
-    const P1 = incGamma(k.shape + 1, z).P;
+    const g0 = incGamma(k.shape, z);
+    const g1 = incGamma(k.shape + 1, z);
+    const P = g0.P;
+    const P1 = g1.P;
     F += k.w * P;
+    // incGamma computes P directly below z = a + 1 (series) and Q above (continued fraction, or the finite sum for
+    // integer a when Q < 0.5, where P > Q): the relative accuracy applies to that quantity, the other is 1 minus it
+    // (exp of a z-sized exponent adds z eps relative)
+    const acc = ACC + 4 * Number.EPSILON * z;
+    const eP = Math.abs(k.w) * (acc * (z < k.shape + 1 ? P : g0.Q) + 4 * Number.EPSILON);
+    errP += eP;
+    errIy += eP * y;
+    errP1 += (Math.abs(k.w) * k.shape * (acc * (z < k.shape + 2 ? P1 : g1.Q) + 4 * Number.EPSILON)) / k.rate;
     const g = gammaPdf(k.shape, k.rate, y);
     f += k.w * g;
     scaleF += Math.abs(k.w * g);
     // int_0^y P(a, r u) du = y P(a, r y) - (a / r) P(a + 1, r y)
     I += k.w * (y * P - (k.shape / k.rate) * P1);
     scale += Math.abs(k.w);
-    scaleI += Math.abs(k.w) * (y + k.shape / k.rate);
+    scaleI += Math.abs(k.w) * y;
   }
-  // incomplete gamma to ~1e-14 relative (series / continued fraction to 1e-16-1e-17, lgamma's own error) and the sum
-  return { F, f, I, err: 1e-13 * scale, errf: 1e-13 * scaleF, errI: 1e-13 * scaleI };
+  // incomplete gamma to ~1e-14 relative (series / continued fraction to 1e-16-1e-17, lgamma's own error), ACC with
+  // room, on the quantity computed directly; plus the sums' rounding
+  const sumRound = 4 * Number.EPSILON * scale;
+  return { F, f, I, err: errP + sumRound, errf: ACC * scaleF, errI: errIy + errP1 + 8 * Number.EPSILON * scaleI + sumRound * (1 + scaleI / Math.max(scale, 1e-300)) };
 }
 
 /** sup over x >= from of the kernels' total |density| (each gamma density is decreasing beyond its mode) */
