@@ -1,4 +1,5 @@
 import erfc from "@stdlib/math-base-special-erfc";
+import { gaussLegendre as unitRule } from "./quadrature";
 
 /**
  * The law of X_1 + X_2, X_i iid lognormal(mu, sigma): cdf F_2, density f_2 and integrated cdf I_2 = int_0^x F_2 at x,
@@ -36,36 +37,15 @@ const LEFT = 7.7e-24;
 const PANEL_TOL = 1e-16;
 const MAX_IM = 1.5;
 
-/** Gauss-Legendre nodes and weights on [-1, 1] (Newton on P_n from the Chebyshev guesses; Golub & Welsch give the same) */
-function gaussLegendre(n: number): { x: Float64Array; w: Float64Array } {
-  const x = new Float64Array(n);
-  const w = new Float64Array(n);
-  for (let i = 0; i < n; i++) {
-    let z = Math.cos((Math.PI * (i + 0.75)) / (n + 0.5));
-    let dp = 1;
-    for (let it = 0; it < 100; it++) {
-      let p0 = 1;
-      let p1 = z;
-      for (let k = 2; k <= n; k++) {
-        const p2 = ((2 * k - 1) * z * p1 - (k - 1) * p0) / k;
-        p0 = p1;
-        p1 = p2;
-      }
-      dp = (n * (z * p1 - p0)) / (z * z - 1);
-      const dz = p1 / dp;
-      z -= dz;
-      if (Math.abs(dz) < 1e-16) break;
-    }
-    x[i] = z;
-    w[i] = 2 / ((1 - z * z) * dp * dp);
-  }
-  return { x, w };
-}
-
 const RULES = new Map<number, { x: Float64Array; w: Float64Array }>();
+/** Gauss-Legendre nodes and weights on [-1, 1]: quadrature.ts's rule on [0, 1] mapped by z = 1 - 2u, cached per n */
 const rule = (n: number) => {
   let r = RULES.get(n);
-  if (!r) RULES.set(n, (r = gaussLegendre(n)));
+  if (!r) {
+    const u = unitRule(n);
+    r = { x: u.x.map((v) => 1 - 2 * v), w: u.w.map((v) => 2 * v) };
+    RULES.set(n, r);
+  }
   return r;
 };
 
