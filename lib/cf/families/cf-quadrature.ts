@@ -72,6 +72,42 @@ export function contourPhi(c: Contour): (a: number, out: Float64Array) => void {
 }
 
 
+/**
+ * contourPhi's rule for many equispaced t > 0 at once (the inversion's nodes): on the fixed path Im s = theta term j is
+ * c_j exp(t e_j i e^{i theta}) with c_j = h exp(L(v_j + i theta)) and e_j = scale e^{v_j}, so the terms are summed across
+ * t by recurrence (expSumArithmetic) instead of a full rule per t. The path ends are those of the smallest t (beyond
+ * them every larger t's integrand is smaller still), the step and its error are contourPhi's. Writes log phi(t) (the
+ * imaginary part unwrapped) and returns the shortcuts' bound (see expSumArithmetic).
+ */
+export function contourLogCfArithmetic(c: Contour, scale: number, t: Float64Array, re: Float64Array, im: Float64Array): number {
+  const h = (2 * Math.PI * c.strip) / (40 + Math.max(0, c.logM));
+  const [lo, hi] = c.range(t[0] * scale);
+  const n = Math.max(2, Math.ceil((hi - lo) / h) + 1);
+  const cRe = new Float64Array(n);
+  const cIm = new Float64Array(n);
+  const e = new Float64Array(n);
+  const l = new Float64Array(2);
+  for (let j = 0; j < n; j++) {
+    const v = lo + j * h;
+    e[j] = scale * Math.exp(v);
+    c.L(v, l);
+    if (l[0] < -800) continue;
+    const mag = h * Math.exp(l[0]);
+    cRe[j] = mag * Math.cos(l[1]);
+    cIm[j] = mag * Math.sin(l[1]);
+  }
+  const K = t.length;
+  const sr = new Float64Array(K);
+  const si = new Float64Array(K);
+  const bound = expSumArithmetic(cRe, cIm, e, -Math.sin(c.theta), Math.cos(c.theta), t, sr, si);
+  for (let k = 0; k < K; k++) {
+    re[k] = Math.log(Math.hypot(sr[k], si[k]));
+    im[k] = Math.atan2(si[k], sr[k]);
+  }
+  unwrapFrom(im, 0);
+  return bound;
+}
+
 /** Taylor order used for the nodes summed through their moments in expSumArithmetic. */
 const MOMENT_ORDER = 24;
 /** e / 25!: Taylor remainder of exp(z) after the z^24 term for |z| <= 1. */

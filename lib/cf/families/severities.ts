@@ -1,8 +1,8 @@
 /** Severity laws of the trade: lomax, Burr XII (and log-logistic), inverse gamma, inverse Gaussian. */
 import { cumulantList, rawToCumulants, type Node } from "../node";
-import { arithmeticNodes, contourPhi, expSumArithmetic, fromPhi, type Contour } from "./cf-quadrature";
+import { arithmeticNodes, contourLogCfArithmetic, contourPhi, expSumArithmetic, fromPhi, type Contour } from "./cf-quadrature";
 import { lgamma, factorial } from "./special";
-import { NUMERIC_CF_ABS_ERROR, pareto } from "./numeric";
+import { MAX_QUADRATURE_NODES, NUMERIC_CF_ABS_ERROR, pareto } from "./numeric";
 import { logFromSums, quadratureNodes } from "./numeric-rule";
 import { shiftDamped } from "../damped-cf";
 import { burrExpansion, burrSeries, paretoExpansion, weibullAsymptotic } from "./asymptotic";
@@ -103,6 +103,14 @@ export function burr(alpha: number, gamma: number, theta: number, name = "burr")
     out[0] = sr * hD;
     out[1] = si * hD;
   };
+  // equispaced t (the inversion's nodes): the same rule summed across t (contourLogCfArithmetic). Its shortcuts add
+  // sum_j |c_j| (e/25! + 80 eps) + n 1e-21, and sum_j |c_j| is the rule for int |exp L(v + i th)| dv: as cos(gamma th) >= 0,
+  // |1 + e^{gamma s}|^2 >= 1 + e^{2 gamma v}, so with u = e^{gamma v} the integral is at most
+  // alpha int_0^inf (1 + u^2)^{-(alpha+1)/2} du = alpha (sqrt(pi)/2) Gamma(alpha/2) / Gamma((alpha+1)/2) (DLMF 5.12.1),
+  // 1% added for the rule; a batch whose own bound comes out larger goes back to the rule per t
+  const absSum = 1.01 * 0.5 * Math.sqrt(Math.PI) * Math.exp(Math.log(alpha) + lgamma(alpha / 2) - lgamma((alpha + 1) / 2));
+  const batchError = absSum * (2e-25 + 80 * Number.EPSILON) + MAX_QUADRATURE_NODES * 1e-21;
+  const perT = (t: Float64Array, re: Float64Array, im: Float64Array) => fromPhi(t, re, im, (x, out) => phi(x * theta, out));
   const raw = (r: number) => theta ** r * Math.exp(lgamma(1 + r / gamma) + lgamma(alpha - r / gamma) - lgamma(alpha));
   const tail = alpha * gamma;
   const dist = burrDist(alpha, gamma, theta);
@@ -112,8 +120,8 @@ export function burr(alpha: number, gamma: number, theta: number, name = "burr")
     momentIndex: tail,
     tails: { left: Infinity, right: tail },
     nodes: 1,
-    notes: [`${name} CF computed by quadrature on a shifted contour (absolute error <= ${NUMERIC_CF_ABS_ERROR})`],
-    cfAbsError: NUMERIC_CF_ABS_ERROR,
+    notes: [`${name} CF computed by quadrature on a shifted contour (absolute error <= ${(NUMERIC_CF_ABS_ERROR + batchError).toPrecision(2)})`],
+    cfAbsError: NUMERIC_CF_ABS_ERROR + batchError,
     dampedLogCf: fromPhiDamped(phiDamped),
     laplaceExpansion: burrExpansion(alpha, gamma, theta),
     severity: {
@@ -129,7 +137,9 @@ export function burr(alpha: number, gamma: number, theta: number, name = "burr")
     location: mean,
     scale: tail > 2 ? Math.sqrt(Math.max(raw(2) - raw(1) ** 2, 0)) : theta,
     support: [0, Infinity],
-    logCf: (t, re, im) => fromPhi(t, re, im, (x, out) => phi(x * theta, out)),
+    logCf: (t, re, im) => {
+      if (!arithmeticNodes(t) || contourLogCfArithmetic(contour, theta, t, re, im) > batchError) perT(t, re, im);
+    },
     cumulants: (m) => rawToCumulants(cumulantList(m, tail, raw)),
   };
 }
@@ -264,7 +274,10 @@ export function inverseGamma(alpha: number, theta: number): Node {
     location: alpha > 1 ? raw(1) : theta,
     scale: alpha > 2 ? Math.sqrt(raw(2) - raw(1) ** 2) : theta,
     support: [0, Infinity],
-    logCf: (t, re, im) => fromPhi(t, re, im, (x, out) => phi(x * theta, out)),
+    // equispaced t: the real-t path summed across t as the batch above does at beta = 0 (the same terms and bound)
+    logCf: (t, re, im) => {
+      if (!arithmeticNodes(t) || contourLogCfArithmetic(contour, theta, t, re, im) > batchError) fromPhi(t, re, im, (x, out) => phi(x * theta, out));
+    },
     cumulants: (m) => rawToCumulants(cumulantList(m, alpha, raw)),
   };
 }

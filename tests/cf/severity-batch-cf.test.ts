@@ -1,0 +1,60 @@
+// The Burr XII / log-logistic and inverse gamma CFs on the inversion's equispaced frequencies, where the contour rule's
+// terms are summed across t by recurrence instead of a full rule per frequency (lib/cf/families/cf-quadrature.ts,
+// contourLogCfArithmetic). References: Burr XII by mpmath.quad on a turned ray, cross-checked by mpmath.quad/quadosc on
+// the real line (tests/fixtures/severity-cf/generate-burr.py); inverse gamma by the Bessel closed form
+// 2 (-i theta t)^(alpha/2) K_alpha(2 sqrt(-i theta t)) / Gamma(alpha) (Gradshteyn & Ryzhik 3.471.9; mpmath.besselk,
+// cross-checked by mpmath.quad: tests/fixtures/severity-cf/generate.py). Tolerance: the node's stated CF error.
+import { describe, expect, it } from "vitest";
+import { readFileSync } from "node:fs";
+import { burr, inverseGamma } from "@/lib/cf/families/severities";
+import type { Node } from "@/lib/cf/node";
+
+interface Case { alpha: number; gamma?: number; theta: number; t: number; beta?: number; re: string; im: string; abs_diff: number }
+const load = (f: string) => (JSON.parse(readFileSync(new URL(`../fixtures/severity-cf/${f}`, import.meta.url), "utf8")) as { cases: Case[] }).cases;
+const burrCases = load("burr.json");
+const igCases = load("inverse-gamma.json").filter((c) => c.beta === 0 && c.t > 0);
+
+/** phi on t = 0.1, 0.2, ..., 8 (80 equispaced frequencies, the batch route) and at each t alone (the rule per t) */
+function check(node: Node, cases: Case[], label: string) {
+  const t = Float64Array.from({ length: 80 }, (_, k) => (k + 1) / 10);
+  const re = new Float64Array(t.length);
+  const im = new Float64Array(t.length);
+  node.logCf(t, re, im);
+  const one = new Float64Array(1);
+  const oneIm = new Float64Array(1);
+  for (const c of cases) {
+    const k = Math.round(c.t * 10) - 1;
+    for (const [route, lr, li] of [
+      ["equispaced", re[k], im[k]],
+      ["alone", (node.logCf(Float64Array.of(c.t), one, oneIm), one[0]), oneIm[0]],
+    ] as const) {
+      const m = Math.exp(lr);
+      const pr = m * Math.cos(li);
+      const pi = m * Math.sin(li);
+      const diff = Math.hypot(pr - Number(c.re), pi - Number(c.im));
+      expect(diff, `${label}, t = ${c.t} (${route}): phi = ${pr} + ${pi} i, expected ${c.re} + ${c.im} i, difference ${diff}, tolerance ${node.cfAbsError}`).toBeLessThanOrEqual(node.cfAbsError!);
+    }
+  }
+}
+
+describe("Burr XII and log-logistic CFs on equispaced frequencies", () => {
+  it("the fixture's two methods agree within 1e-16", () => {
+    for (const c of burrCases) expect(c.abs_diff, JSON.stringify(c)).toBeLessThan(1e-16);
+    expect(burrCases.length).toBeGreaterThanOrEqual(24);
+  });
+  const params = [...new Set(burrCases.map((c) => `${c.alpha},${c.gamma},${c.theta}`))];
+  it.each(params)("alpha, gamma, theta = %s", (p) => {
+    const [alpha, gamma, theta] = p.split(",").map(Number);
+    const cs = burrCases.filter((c) => `${c.alpha},${c.gamma},${c.theta}` === p);
+    check(burr(alpha, gamma, theta), cs, `burr(${p})`);
+  });
+});
+
+describe("inverse gamma CF on equispaced real frequencies", () => {
+  const params = [...new Set(igCases.map((c) => `${c.alpha},${c.theta}`))];
+  it("has cases", () => expect(params.length).toBeGreaterThanOrEqual(3));
+  it.each(params)("alpha, theta = %s", (p) => {
+    const [alpha, theta] = p.split(",").map(Number);
+    check(inverseGamma(alpha, theta), igCases.filter((c) => `${c.alpha},${c.theta}` === p), `inverse_gamma(${p})`);
+  });
+});
