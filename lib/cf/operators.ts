@@ -42,7 +42,9 @@ function heaviestTerm(cs: Node[]): TailTerm | null {
   const restIndices = [...new Set(rest.flatMap((c) => [c.tails.left, c.tails.right]).filter((b) => Number.isFinite(b)))];
   const indices = [...restIndices, a + 2, ...restIndices.filter((b) => b < 3).map((b) => a + b - 1)];
   const dm = D.momentIndex > 1 ? D.cumulants(1)[0] : null;
+  const images = imageTerms(cs, best, shift, dm);
   return {
+    ...(images ? { images } : {}),
     logCf: (t, re, im) => D.logCf(t, re, im),
     direct: shift === 0 ? D.direct : affineDirect(D.direct, 1, shift),
     shift,
@@ -51,6 +53,39 @@ function heaviestTerm(cs: Node[]): TailTerm | null {
     remainderAlpha: Math.min(...indices),
     indices,
     cfAbsError: (D.cfAbsError ?? 0) + (D.cfRelError ?? 0),
+  };
+}
+
+/**
+ * The images of the heaviest term D = cs[best] and of the next heaviest, when that one too has a direct law and a power
+ * tail strictly heavier than the rest (see TailTerm.images): G_2 = D_2 + E[X - D_2] needs D's mean as well.
+ */
+function imageTerms(cs: Node[], best: number, shift: number, dm: number | null): TailTerm["images"] | null {
+  if (cs.length < 2 || dm === null || !Number.isFinite(dm)) return null;
+  const index = (c: Node) => Math.min(c.tails.left, c.tails.right);
+  let second = -1;
+  for (let j = 0; j < cs.length; j++) if (j !== best && (second < 0 || index(cs[j]) < index(cs[second]))) second = j;
+  const D2 = cs[second];
+  const a2 = index(D2);
+  if (!D2.direct || !Number.isFinite(a2) || D2.kind.type !== "continuous" || !(D2.momentIndex > 1)) return null;
+  const others = cs.filter((_, j) => j !== best && j !== second);
+  if (!(Math.min(...others.map(index)) > a2)) return null;
+  const m2 = D2.cumulants(1)[0];
+  if (m2 === null || !Number.isFinite(m2)) return null;
+  // E[X - D_2] = E[rest of D] - E[D_2] + E[D]
+  const shift2 = shift - m2 + dm;
+  const D = cs[best];
+  const a1 = index(D);
+  const finite = (c: Node) => [c.tails.left, c.tails.right].filter((b) => Number.isFinite(b));
+  const otherIdx = [...new Set(others.flatMap(finite))];
+  const indices = [...new Set([...otherIdx, a1 + 2, a2 + 2, ...[...otherIdx, ...finite(D2)].filter((b) => b < 3).map((b) => a1 + b - 1), ...[...otherIdx, ...finite(D)].filter((b) => b < 3).map((b) => a2 + b - 1)])];
+  return {
+    laws: [
+      { direct: shift === 0 ? D.direct! : affineDirect(D.direct!, 1, shift), tails: D.tails },
+      { direct: shift2 === 0 ? D2.direct : affineDirect(D2.direct, 1, shift2), tails: D2.tails },
+    ],
+    remainderAlpha: Math.min(...indices),
+    indices,
   };
 }
 

@@ -101,6 +101,14 @@ export interface TailTerm {
   indices: number[];
   /** bound on the absolute error of D's CF values */
   cfAbsError: number;
+  /**
+   * Two or more terms with power tails and direct laws (D first, then the next heaviest): the images the pointwise sums
+   * take out of every term's law G_i = D_i + E[X - D_i] (./invert/images.ts). What is left then has power terms
+   * `indices`: the other terms' indices b, a_i + 2 per term, and a_i + b - 1 for every other term's index b < 3
+   * (X - G_1 - G_2 ... in the tails: S_X(y) = sum_i S_{D_i}(y - E[X - D_i]) + O(y^{-a_i - b + 1}, y^{-a_i - 2}),
+   * the same expansion as for one term, with the next heaviest term's own tail taken out too).
+   */
+  images?: { laws: { direct: DirectLaw; tails: { left: number; right: number } }[]; remainderAlpha: number; indices: number[] };
 }
 
 /** compile(model) in ./compile.ts has this signature; throws CfError. */

@@ -1,4 +1,11 @@
-import type { Atom, CompiledModel, TailTerm } from "../types";
+import type { Atom, CompiledModel } from "../types";
+import type { DirectLaw } from "../direct/types";
+
+/** a term's law whose images are taken out of the pointwise sums (./images.ts) */
+export interface ImageLaw {
+  direct: DirectLaw;
+  tails: { left: number; right: number };
+}
 import { imageScratch, imageSums, type ImageScratch } from "./images";
 import { buildNodes, cutoffFor, probeEnvelope, truncationAt, type Envelope, type Nodes } from "./nodes";
 import { makePart, withTailLaw, type ContinuousPart } from "./part";
@@ -169,8 +176,8 @@ export interface HeavyLadder {
   /** power-tail index and power terms of what is inverted (for other Richardson tables on the same nodes) */
   alpha: number;
   bases?: number[];
-  /** the heaviest-tailed term whose images are taken out of every level's sums from its direct law (./images.ts) */
-  images?: TailTerm;
+  /** the power-tailed terms whose images are taken out of every level's sums from their direct laws (./images.ts) */
+  images: ImageLaw[];
   imageScratch: ImageScratch;
 }
 
@@ -212,11 +219,14 @@ export function heavyLadder(model: CompiledModel, atoms: Atom[], T0: number, lev
   let bases: number[] | undefined;
   // the heaviest-tailed term's images come out of the sums from its direct law, so its CF (which may fall off like
   // 1/t) is never subtracted and the cut-off stays the whole sum's; failing that, its CF is subtracted (maybeTailLaw)
+  // (and the next heaviest term's too when it has a direct law: TailTerm.images)
   const G = model.tailTerm;
-  const images = G && atoms.length === 0 && G.remainderAlpha > Math.max(shape.alpha, 0.1) + 0.05 ? G : undefined;
-  if (images) {
-    alpha = Math.max(images.remainderAlpha, shape.alpha);
-    bases = images.indices;
+  const a0 = Math.max(shape.alpha, 0.1) + 0.05;
+  const plan = !G || atoms.length ? null : G.images && G.images.remainderAlpha > Math.max(G.remainderAlpha, a0) ? G.images : G.remainderAlpha > a0 ? { laws: [{ direct: G.direct, tails: G.tails }], remainderAlpha: G.remainderAlpha, indices: G.indices } : null;
+  const images: ImageLaw[] = plan ? plan.laws : [];
+  if (plan) {
+    alpha = Math.max(plan.remainderAlpha, shape.alpha);
+    bases = plan.indices;
   } else ({ part, env, alpha, bases } = maybeTailLaw(part, env, shape, tol));
   ({ part, env } = maybeKernels(part, env, shape, { a: shape.center - T0 / 2, b: shape.center + T0 / 2 }, tol / 16, true, []));
   let tmax = cutoffFor(env, tol / 16, tol / 16);
@@ -240,7 +250,7 @@ export function heavyLadder(model: CompiledModel, atoms: Atom[], T0: number, lev
     imageScratch: imageScratch(),
   };
   // the remainder's faster decay needs fewer doublings to start with (more are added when the probes ask for them)
-  const start = part.tail || images ? Math.min(levels, 3) : levels;
+  const start = part.tail || images.length ? Math.min(levels, 3) : levels;
   for (let l = 0; l < start; l++) growLadder(lad);
   return lad;
 }
@@ -284,14 +294,18 @@ export function evalLadder(
     let pdf = scratch.pdf[0];
     let cdf = scratch.cdf[0];
     let sf = scratch.sf[0];
-    if (lad.images) {
-      const im = imageSums(lad.images.direct, x, lad.T0 * 2 ** l, lad.imageScratch);
+    let eC = 0;
+    let eP = 0;
+    for (const law of lad.images) {
+      const im = imageSums(law.direct, x, lad.T0 * 2 ** l, lad.imageScratch);
       pdf -= im.pdf;
       cdf -= im.cdf;
       sf += im.cdf;
-      imC = Math.max(imC, im.errCdf);
-      imP = Math.max(imP, im.errPdf);
+      eC += im.errCdf;
+      eP += im.errPdf;
     }
+    imC = Math.max(imC, eC);
+    imP = Math.max(imP, eP);
     P.push(richardsonRow(pdf, P[l - 1], lad.expP));
     C.push(richardsonRow(cdf, C[l - 1], lad.expC));
     S.push(richardsonRow(sf, S[l - 1], lad.expC));

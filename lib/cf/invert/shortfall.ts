@@ -94,8 +94,8 @@ export function heavyShortfall(
   // the quantiles' ladder: the same part (tail term, kernels) and, where they reach far enough, the same nodes; when its
   // sums have a term's images taken out, the ES sums take out that term's images too (./images.ts), where its law is in
   // closed form (each image is a Gauss-Laguerre rule over a tail: a few hundred evaluations of the law per level)
-  const useLadder = ladder && (!ladder.images || ladder.images.direct.method === "closed-form") ? ladder : undefined;
-  const images = useLadder?.images;
+  const useLadder = ladder && ladder.images.every((g) => g.direct.method === "closed-form") ? ladder : undefined;
+  const images = useLadder?.images ?? [];
   const scratch = imageScratch();
   if (useLadder) {
     ({ part, env, alpha: alphaR, bases } = useLadder);
@@ -126,7 +126,7 @@ export function heavyShortfall(
   const alpha = Math.max(alphaR, 1.01);
   const exps = exponentsFor(bases?.map((b) => Math.max(b, 1.01)), alpha, -1, 8);
   // one period ladder for every level asked (nodes built once, on first use)
-  const T0 = useLadder && (useLadder.T0 >= 4 * span || images) ? useLadder.T0 : Math.max(64 * shape.spread, 4 * span);
+  const T0 = useLadder && (useLadder.T0 >= 4 * span || images.length) ? useLadder.T0 : Math.max(64 * shape.spread, 4 * span);
   const cache: Nodes[] = [];
   const nodesAt = (lev: number) => {
     while (cache.length <= lev) {
@@ -169,10 +169,10 @@ export function heavyShortfall(
       const abs = absAt(lev);
       let v = (part.mass * T) / 2 - (2 * h * acc) / Math.PI;
       let imErr = 0;
-      if (images) {
-        const im = shortfallImages(images.direct, images.tails, q, T, scratch);
+      for (const g of images) {
+        const im = shortfallImages(g.direct, g.tails, q, T, scratch);
         v -= im.value;
-        imErr = im.error;
+        imErr += im.error;
       }
       // V is a difference of terms of size T/2: its rounding, amplified by the extrapolation below
       round = Math.max(round, 4 * Number.EPSILON * Math.sqrt(K) * ((part.mass * T) / 2 + (2 * h * abs) / Math.PI) + 1e-14 * (2 * h * abs) / Math.PI + imErr);
