@@ -1,33 +1,38 @@
 // The Burr XII / log-logistic and inverse gamma CFs on the inversion's equispaced frequencies, where the contour rule's
 // terms are summed across t by recurrence instead of a full rule per frequency (lib/cf/families/cf-quadrature.ts,
-// contourLogCfArithmetic). References: Burr XII by mpmath.quad on a turned ray, cross-checked by mpmath.quad/quadosc on
+// contourLogCfArithmetic; Burr's damped transform at z = t + i beta in lib/cf/families/burr.ts). References: Burr XII by mpmath.quad on a turned ray, cross-checked by mpmath.quad/quadosc on
 // the real line (tests/fixtures/severity-cf/generate-burr.py); inverse gamma by the Bessel closed form
 // 2 (-i theta t)^(alpha/2) K_alpha(2 sqrt(-i theta t)) / Gamma(alpha) (Gradshteyn & Ryzhik 3.471.9; mpmath.besselk,
 // cross-checked by mpmath.quad: tests/fixtures/severity-cf/generate.py). Tolerance: the node's stated CF error.
 import { describe, expect, it } from "vitest";
 import { readFileSync } from "node:fs";
-import { burr, inverseGamma } from "@/lib/cf/families/severities";
+import { burr } from "@/lib/cf/families/burr";
+import { inverseGamma } from "@/lib/cf/families/severities";
 import type { Node } from "@/lib/cf/node";
 
 interface Case { alpha: number; gamma?: number; theta: number; t: number; beta?: number; re: string; im: string; abs_diff: number }
 const load = (f: string) => (JSON.parse(readFileSync(new URL(`../fixtures/severity-cf/${f}`, import.meta.url), "utf8")) as { cases: Case[] }).cases;
 const burrCases = load("burr.json");
-const igCases = load("inverse-gamma.json").filter((c) => c.beta === 0 && c.t > 0);
+const igCases = load("inverse-gamma.json").filter((c) => c.beta === 0 && c.t > 0 && Number.isInteger(c.t * 20));
 
-/** phi on t = 0.1, 0.2, ..., 8 (80 equispaced frequencies, the batch route) and at each t alone (the rule per t) */
+/**
+ * phi on t = 0.05, 0.1, ..., 8 (160 equispaced frequencies, the batch route) and at each t alone (the rule per t); at
+ * beta > 0 the damped transform E exp(i (t + i beta) X) on the same frequencies
+ */
 function check(node: Node, cases: Case[], label: string) {
-  const t = Float64Array.from({ length: 80 }, (_, k) => (k + 1) / 10);
-  const re = new Float64Array(t.length);
-  const im = new Float64Array(t.length);
-  node.logCf(t, re, im);
+  const t = Float64Array.from({ length: 160 }, (_, k) => (k + 1) / 20);
   const one = new Float64Array(1);
   const oneIm = new Float64Array(1);
   for (const c of cases) {
-    const k = Math.round(c.t * 10) - 1;
-    for (const [route, lr, li] of [
-      ["equispaced", re[k], im[k]],
-      ["alone", (node.logCf(Float64Array.of(c.t), one, oneIm), one[0]), oneIm[0]],
-    ] as const) {
+    const beta = c.beta ?? 0;
+    const re = new Float64Array(t.length);
+    const im = new Float64Array(t.length);
+    if (beta === 0) node.logCf(t, re, im);
+    else node.dampedLogCf!(beta, t, re, im);
+    const k = Math.round(c.t * 20) - 1;
+    const routes: (readonly [string, number, number])[] = [[beta === 0 ? "equispaced" : `equispaced, damped by ${beta}`, re[k], im[k]]];
+    if (beta === 0) routes.push(["alone", (node.logCf(Float64Array.of(c.t), one, oneIm), one[0]), oneIm[0]]);
+    for (const [route, lr, li] of routes) {
       const m = Math.exp(lr);
       const pr = m * Math.cos(li);
       const pi = m * Math.sin(li);
@@ -37,10 +42,10 @@ function check(node: Node, cases: Case[], label: string) {
   }
 }
 
-describe("Burr XII and log-logistic CFs on equispaced frequencies", () => {
+describe("Burr XII and log-logistic CFs on equispaced frequencies (and their damped transforms)", () => {
   it("the fixture's two methods agree within 1e-16", () => {
     for (const c of burrCases) expect(c.abs_diff, JSON.stringify(c)).toBeLessThan(1e-16);
-    expect(burrCases.length).toBeGreaterThanOrEqual(24);
+    expect(burrCases.length).toBeGreaterThanOrEqual(54);
   });
   const params = [...new Set(burrCases.map((c) => `${c.alpha},${c.gamma},${c.theta}`))];
   it.each(params)("alpha, gamma, theta = %s", (p) => {
