@@ -4,9 +4,12 @@ import { sortedAnchor, unwrapFrom } from "../complex";
 import { lgamma } from "./special";
 import { triangularDist } from "./dist";
 import { checkDeadline } from "../deadline";
+import { arithmeticNodes, expSumArithmetic } from "./cf-quadrature";
 
 /** Stated absolute accuracy of the beta CF (series, shifted-line and endpoint-contour quadratures below). */
 export const BETA_CF_ABS_ERROR = 1e-13;
+/** the most the recurrence of the batched rays (raysBatch) may add: a batch whose own bound is larger is not used */
+const BETA_BATCH_ERROR = 2e-14;
 
 /**
  * Beta(alpha, beta) on [0, 1] at tau > 0, three routes, each within 1e-13 absolute:
@@ -101,11 +104,88 @@ function betaUnit(alpha: number, beta: number) {
     out[0] = sr * h;
     out[1] = si * h;
   };
-  return (tau: number, out: Float64Array) => {
+  const useRays = (tau: number) => tau > 2 && (contourLog(tau) < 3 * Math.LN10 || tau > 4000);
+  const at = (tau: number, out: Float64Array) => {
     if (tau <= 2) return series(tau, out);
-    if (contourLog(tau) < 3 * Math.LN10 || tau > 4000) return rays(tau, out);
+    if (useRays(tau)) return rays(tau, out);
     return line(tau, out);
   };
+  return { at, useRays, raysBatch: (tau0: number, dtau: number, K: number, re: Float64Array, im: Float64Array, allowance: number) => raysBatch(alpha, beta, lB, tau0, dtau, K, re, im, allowance) };
+}
+
+/** The rule's terms of one ray of betaUnit in v = log y (nodes independent of tau; step and ends of the smallest tau0). */
+function rayNodes(p: number, q: number, sign: number, lB: number, tau0: number) {
+  // step: rayIntegral's at tau0 (its logM only grows as tau falls)
+  const logM = p * Math.log(Math.SQRT2 * (p + Math.abs(q - 1)) + 1) + Math.abs(q - 1) * Math.log(2 + 64 / tau0) + 2;
+  const h = (2 * Math.PI * (Math.PI / 4)) / (40 + Math.max(logM, 0));
+  // ends in w = log(tau0) + v as rayIntegral's at tau0: the part left of them is the same for every tau (exp(-tau y) ~ 1
+  // there), the part right of them only smaller for a larger tau
+  const vLo = (-42 - Math.max(0, logM)) / p - Math.log(tau0);
+  const vHi = Math.log(60 + 4 * (p + Math.abs(q - 1))) - Math.log(tau0);
+  const n = Math.ceil((vHi - vLo) / h) + 1;
+  const cRe = new Float64Array(n);
+  const cIm = new Float64Array(n);
+  const e = new Float64Array(n);
+  for (let j = 0; j < n; j++) {
+    const v = vLo + j * h;
+    const y = Math.exp(v);
+    const u = sign * y; // 1 + i u
+    const mag = h * Math.exp(p * v + 0.5 * Math.log1p(u * u) * (q - 1) - lB);
+    const ph = Math.atan(u) * (q - 1);
+    cRe[j] = mag * Math.cos(ph);
+    cIm[j] = mag * Math.sin(ph);
+    e[j] = y;
+  }
+  return { cRe, cIm, e };
+}
+
+/** expSumArithmetic's bound for these terms from tau0 on, before summing (each term's drift counted at |c_j|, O(n)) */
+function predictedBound(r: { cRe: Float64Array; cIm: Float64Array; e: Float64Array }, tau0: number): number {
+  let b = 0;
+  for (let j = 0; j < r.e.length; j++) b += Math.hypot(r.cRe[j], r.cIm[j]) * (2e-25 + 80 * Number.EPSILON * Math.exp(-tau0 * r.e[j]));
+  return b + r.e.length * 1e-21;
+}
+
+/**
+ * The two ray integrals of betaUnit at equispaced tau_k = tau0 + k dtau, k < K, all at once: with e^w = tau y, y = e^v,
+ *   I1 = i e^{i pi (alpha-1)/2} / B int e^{alpha v} (1 - i e^v)^{beta-1} exp(-tau e^v) dv,
+ *   I2 = e^{i tau} i e^{-i pi (beta-1)/2} / B int e^{beta v} (1 + i e^v)^{alpha-1} exp(-tau e^v) dv,
+ * the same trapezoidal rule on nodes that do not depend on tau, so each sum over j of c_j exp(-tau e_j) goes to
+ * expSumArithmetic. The batch starts at the first k whose predicted bound is within `allowance` (the terms' sizes at tau0
+ * fall as tau0 grows); writes phi = I1 - I2 from there and returns that k (K when none), or -1 when the bound came out
+ * above the allowance after all.
+ */
+function raysBatch(alpha: number, beta: number, lB: number, tau0: number, dtau: number, K: number, re: Float64Array, im: Float64Array, allowance: number): number {
+  let k0 = 0;
+  let r1 = rayNodes(alpha, beta, -1, lB, tau0);
+  let r2 = rayNodes(beta, alpha, 1, lB, tau0);
+  while (predictedBound(r1, tau0 + k0 * dtau) + predictedBound(r2, tau0 + k0 * dtau) > allowance) {
+    // start where tau is twice as large (and rebuild the nodes for that tau: a shorter range, a longer step)
+    const tNext = 2 * (tau0 + k0 * dtau);
+    k0 = Math.max(k0 + 1, Math.ceil((tNext - tau0) / dtau));
+    if (K - k0 < 16) return K;
+    r1 = rayNodes(alpha, beta, -1, lB, tau0 + k0 * dtau);
+    r2 = rayNodes(beta, alpha, 1, lB, tau0 + k0 * dtau);
+  }
+  const n = K - k0;
+  const tk = Float64Array.from({ length: n }, (_, k) => tau0 + (k0 + k) * dtau);
+  const sr1 = new Float64Array(n);
+  const si1 = new Float64Array(n);
+  const sr2 = new Float64Array(n);
+  const si2 = new Float64Array(n);
+  const bound = expSumArithmetic(r1.cRe, r1.cIm, r1.e, -1, 0, tk, sr1, si1) + expSumArithmetic(r2.cRe, r2.cIm, r2.e, -1, 0, tk, sr2, si2);
+  if (!(bound <= allowance)) return -1;
+  const ph1 = Math.PI / 2 + (Math.PI * (alpha - 1)) / 2;
+  const c1 = Math.cos(ph1);
+  const s1 = Math.sin(ph1);
+  for (let k = 0; k < n; k++) {
+    const ph2 = tk[k] + Math.PI / 2 - (Math.PI * (beta - 1)) / 2;
+    const c2 = Math.cos(ph2);
+    const s2 = Math.sin(ph2);
+    re[k0 + k] = sr1[k] * c1 - si1[k] * s1 - (sr2[k] * c2 - si2[k] * s2);
+    im[k0 + k] = sr1[k] * s1 + si1[k] * c1 - (sr2[k] * s2 + si2[k] * c2);
+  }
+  return k0;
 }
 
 /** E Y^k = prod_{j<k} (alpha + j)/(alpha + beta + j) for Y ~ Beta(alpha, beta) (JKB vol. 2, ch. 25, eq. 25.13). */
@@ -134,13 +214,34 @@ export function betaLaw(alpha: number, beta: number, a: number, b: number, name 
     momentIndex: Infinity,
     tails: { left: Infinity, right: Infinity },
     nodes: 1,
-    notes: [`${name} CF computed by series and quadrature (absolute error <= ${BETA_CF_ABS_ERROR})`],
-    cfAbsError: BETA_CF_ABS_ERROR,
+    notes: [`${name} CF computed by series and quadrature (absolute error <= ${(BETA_CF_ABS_ERROR + BETA_BATCH_ERROR).toPrecision(2)})`],
+    cfAbsError: BETA_CF_ABS_ERROR + BETA_BATCH_ERROR,
     location: mean,
     scale: sd,
     support: [a, b],
     logCf(t, re, im) {
-      for (let k = 0; k < t.length; k++) {
+      // equispaced t: from the first frequency on the rays' route every later one is on it too (contourLog falls with
+      // tau); the rays are summed across t (raysBatch) from where the shortcuts' bound is within BETA_BATCH_ERROR
+      let k0 = t.length;
+      if (arithmeticNodes(t, 16)) {
+        let kr = 0;
+        while (kr < t.length && !unit.useRays(t[kr] * w)) kr++;
+        if (t.length - kr >= 16) {
+          const K = t.length - kr;
+          const d = ((t[t.length - 1] - t[kr]) / (K - 1)) * w;
+          const br = new Float64Array(K);
+          const bi = new Float64Array(K);
+          const kb = unit.raysBatch(t[kr] * w, d, K, br, bi, BETA_BATCH_ERROR);
+          if (kb >= 0 && kb < K) {
+            k0 = kr + kb;
+            for (let k = kb; k < K; k++) {
+              re[kr + k] = Math.log(Math.hypot(br[k], bi[k]));
+              im[kr + k] = Math.atan2(bi[k], br[k]);
+            }
+          }
+        }
+      }
+      for (let k = 0; k < k0; k++) {
         // a series or a quadrature per frequency: the deadline is checked every 64 of them
         if ((k & 63) === 0) checkDeadline("beta-cf");
         const x = t[k];
@@ -149,7 +250,7 @@ export function betaLaw(alpha: number, beta: number, a: number, b: number, name 
           im[k] = 0;
           continue;
         }
-        unit(Math.abs(x) * w, tmp);
+        unit.at(Math.abs(x) * w, tmp);
         re[k] = Math.log(Math.hypot(tmp[0], tmp[1]));
         im[k] = (x < 0 ? -1 : 1) * Math.atan2(tmp[1], tmp[0]);
       }

@@ -124,7 +124,8 @@ const DROP = 1e-21;
  * |R| <= e / 25! for |z| <= 1 (Taylor, Lagrange remainder); the others by the recurrence
  * z_{k+1} = z_k exp(d e_j w) (one complex multiply, restarted directly every 16 steps: relative drift below
  * 16 (sqrt 5 + 2) eps), dropped once |c_j exp(t e_j w)| < 1e-21 (the magnitude only decreases after that).
- * Returns the bound on |S_k - rule| these shortcuts add: sum_j |c_j| (e/25! + 80 eps) + n 1e-21.
+ * Returns the bound on |S_k - rule| these shortcuts add: sum_j |c_j| (e/25! + 80 eps) + n 1e-21, where the drift of a
+ * term summed by recurrence counts with its size at the first frequency, |c_j| exp(t_0 e_j Re w) <= |c_j|.
  */
 export function expSumArithmetic(
   cRe: Float64Array,
@@ -184,9 +185,10 @@ export function expSumArithmetic(
     if ((j & 63) === 0) checkDeadline("cf-quadrature");
     const a = Math.hypot(cRe[j], cIm[j]);
     if (a === 0) continue;
-    absSum += a;
     const er = e[j] * wRe;
     const ei = e[j] * wIm;
+    // the recurrence's drift is relative to the term's own size, at most |c_j| exp(t_0 e_j Re w) (Re w < 0, t >= t_0)
+    absSum += a * Math.exp(tk[0] * er);
     const cut = Math.log(DROP / a);
     const sa = Math.exp(d * er);
     const rr = sa * Math.cos(d * ei);
