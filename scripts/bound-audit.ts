@@ -134,7 +134,7 @@ function rawMoments(set: string, model: Model, c: CompiledModel, raw: number[], 
     const got = m.raw[k];
     if (got === null || !Number.isFinite(want)) return;
     // quadrature references of a moment that is 0 (a symmetric law) carry an absolute noise of ~1e-20
-    push(set, "moment", `${JSON.stringify(model)} E X^${k + 1}`, got, want, relErr * Math.abs(want) + 1e-20, NaN);
+    push(set, "moment", `${JSON.stringify(model)} E X^${k + 1}`, got, want, relErr * Math.abs(want) + 1e-20, m.rawError[k] ?? Infinity);
   });
 }
 
@@ -204,8 +204,38 @@ function cumulants() {
     if (!m) continue;
     k.cumulants.forEach((want, i) => {
       const got = m.cumulants[i];
-      if (got !== null) push(set, "moment", `${JSON.stringify(k.model)} kappa_${i + 1}`, got, want, 1e-15 * Math.abs(want), NaN);
+      if (got !== null) push(set, "moment", `${JSON.stringify(k.model)} kappa_${i + 1}`, got, want, 1e-15 * Math.abs(want), m.cumulantError[i] ?? Infinity);
     });
+  }
+}
+
+/**
+ * tests/fixtures/moments: raw and central moments, cumulants and the ratios of models across the notation (mpmath at
+ * 40 digits, two methods); each reference is hi + lo, so the reference's uncertainty against hi is |lo|, far below
+ * the DOUBLE floor the other sets use
+ */
+function momentSet() {
+  const set = "moments";
+  type Pair = [number, number] | null;
+  const f = read<{ cases: { name: string; model: Model; order: number; raw: Pair[]; central: Pair[]; cumulants: Pair[]; skewness: Pair; excessKurtosis: Pair }[] }>("moments/moments.json");
+  for (const k of f.cases) {
+    const c = compiled(set, k.model);
+    if (!c) continue;
+    const m = guarded(`${set} moments ${k.name}`, () => moments(c, k.order));
+    if (!m) continue;
+    // an order-k quantity's scale (an exact 0 of the 40-digit reference can come out as 1e-40 of it)
+    const sd = k.cumulants[1] ? Math.sqrt(Math.abs(k.cumulants[1][0])) : 1;
+    const add = (label: string, got: number | null, bound: number | null, ref: Pair, scale = 1) => {
+      if (ref === null || got === null) return;
+      samples.push({ set, quantity: "moment", label: `${k.name} ${label}`, got, want: ref[0], refErr: Math.abs(ref[1]) + 1e-30 * Math.max(Math.abs(ref[0]), scale), bound: bound ?? Infinity, tail: false });
+    };
+    for (let j = 0; j < k.order; j++) {
+      add(`E X^${j + 1}`, m.raw[j], m.rawError[j], k.raw[j]);
+      add(`central ${j + 1}`, m.central[j], m.centralError[j], k.central[j], sd ** (j + 1));
+      add(`kappa_${j + 1}`, m.cumulants[j], m.cumulantError[j], k.cumulants[j], sd ** (j + 1));
+    }
+    add("skewness", m.skewness, m.skewnessError, k.skewness);
+    add("excess kurtosis", m.excessKurtosis, m.excessKurtosisError, k.excessKurtosis);
   }
 }
 
@@ -334,6 +364,7 @@ const SETS: [string, () => void][] = [
   ["reference-truncnorm", truncnorm],
   ["reference-counts", counts],
   ["cumulants", cumulants],
+  ["moments", momentSet],
   ["cf-reference/vg-nig-tails", vgNigTails],
   ["compound/compound", compoundContinuous],
   ["compound/heavy", () => compoundHeavy("compound/heavy.json", "compound/heavy")],

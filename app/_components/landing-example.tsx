@@ -1,6 +1,7 @@
 import { runMoments } from "@/lib/api/operations";
 
 const fmt = (v: number | null) => (v === null ? "null" : Number(v.toPrecision(8)));
+const fmtErr = (v: number | null) => (v === null ? "null" : Number(v.toPrecision(2)));
 
 /** A real request and the engine's own answer to it (computed when the page is built). */
 export function LandingExample({ model, base }: { model: unknown; base: string }) {
@@ -11,7 +12,16 @@ export function LandingExample({ model, base }: { model: unknown; base: string }
   -d '${JSON.stringify(body, null, 1).replace(/\n\s*/g, " ")}'`;
   const r = runMoments(body);
   const answer = JSON.stringify(
-    { mean: fmt(r.mean), variance: fmt(r.variance), skewness: fmt(r.skewness), cumulants: r.cumulants.map(fmt), exists: r.exists },
+    {
+      mean: fmt(r.mean),
+      meanError: fmtErr(r.meanError),
+      variance: fmt(r.variance),
+      varianceError: fmtErr(r.varianceError),
+      skewness: fmt(r.skewness),
+      cumulants: r.cumulants.map(fmt),
+      cumulantError: r.cumulantError.map(fmtErr),
+      exists: r.exists,
+    },
     null,
     2,
   );

@@ -9,6 +9,8 @@ import { MAX_LATTICE } from "./limits";
 import { layerNode } from "./layer";
 import type { DiscretiseOptions } from "./discretise";
 import { compoundNode, latticeNode, mixNode, repeatNode, sampleNode, scaleNode, shiftNode, sumNode } from "./operators";
+import { cumulantEst, withCumulantErrors } from "./cumulant-bounds";
+import { latticeE, sampleE } from "./cumulant-ops";
 
 /** Options of compile(). */
 export interface CompileOptions {
@@ -69,8 +71,8 @@ function operatorNode(mIn: Model, buildNode_: (x: Model) => Node, opts: CompileO
     return node;
   }
   if ("compound" in m) return compoundNode(buildNode_(m.compound.count), buildNode_(m.compound.each), opts.discretise === false ? null : (opts.discretise ?? { auto: true }));
-  if ("lattice" in m) return latticeNode(m.lattice.origin, m.lattice.step, m.lattice.p);
-  if ("sample" in m) return sampleNode(m.sample, MAX_LATTICE, m.weights);
+  if ("lattice" in m) return withCumulantErrors(latticeNode(m.lattice.origin, m.lattice.step, m.lattice.p), latticeE(m.lattice.origin, m.lattice.step, m.lattice.p));
+  if ("sample" in m) return withCumulantErrors(sampleNode(m.sample, MAX_LATTICE, m.weights), sampleE(m.sample, m.weights));
   throw new Error("unreachable: validated model without a known node");
 }
 
@@ -127,6 +129,7 @@ export function toCompiled(node: Node): CompiledModel {
     kind: toLawKind(node.kind),
     momentIndex: node.momentIndex,
     cumulants: (n) => node.cumulants(Math.max(0, Math.min(Math.floor(n), 64))),
+    cumulantErrors: (n) => cumulantEst(node, Math.max(0, Math.min(Math.floor(n), 64))).map((v) => (v === null ? null : v.e)),
     location: node.location,
     scale: node.scale > 0 && Number.isFinite(node.scale) ? node.scale : 1,
     support: node.support,

@@ -5,6 +5,8 @@ import { checkDeadline } from "./deadline";
 import { compoundDamped } from "./damped-cf";
 import { KERNEL_ORDER, compoundSeries, kernelsOfSeries, type GammaKernel, type TransformSeries } from "./damped-kernels";
 import { builtNote, chooseSpan, isPoissonCount, discretisedCompound, methodNote, type DiscretiseOptions, type DiscretisedCompound } from "./discretise";
+import { withCumulantErrors } from "./cumulant-bounds";
+import { compoundE } from "./cumulant-ops";
 
 const collectNotes = (cs: Node[]) => [...new Set(cs.flatMap((c) => c.notes))];
 
@@ -99,6 +101,7 @@ export function compoundNode(N: Node, X: Node, discretise: DiscretiseOptions | n
       return out;
     },
   };
+  withCumulantErrors(node, compoundE(N, X));
   if (node.dampedLogCf && X.laplaceExpansion && X.kind.type === "continuous" && N.table) {
     const k = kernelsFor(N, X);
     if (k) {

@@ -8,6 +8,8 @@ import { mixKinds } from "./kinds";
 import { restep } from "./lattice";
 import type { LatticeTable } from "./types";
 import { collectNotes, carryApproximation, completeAtoms } from "./operators-shared";
+import { withCumulantErrors } from "./cumulant-bounds";
+import { mixE } from "./cumulant-ops";
 
 /**
  * log sum_j w_j exp(L_j) over arrays, computed about a common centre (subtracting i mu t before summing), then the
@@ -73,6 +75,7 @@ export function mixNode(ws: number[], cs: Node[]): Node {
       return rawToCumulants(mixed);
     },
   };
+  withCumulantErrors(node, mixE(ws, cs));
   carryMixKernels(node, ws, cs);
   if (kind.type === "lattice" && cs.every((c) => c.table)) {
     node.table = (maxLength) => {

@@ -6,6 +6,8 @@ import { convolveTables, powerTable } from "./lattice";
 import type { LatticeTable, TailTerm } from "./types";
 import { affineDirect } from "./direct/affine";
 import { collectNotes, carryApproximation, combineScales, addCumulants, completeAtoms, beyondWindow } from "./operators-shared";
+import { withCumulantErrors } from "./cumulant-bounds";
+import { repeatE, scaleE, shiftE, sumE } from "./cumulant-ops";
 
 export { compoundNode, pgfAt } from "./compound";
 export { atomsNode, latticeNode, sampleNode } from "./tabulated";
@@ -126,6 +128,7 @@ export function sumNode(cs: Node[]): Node {
     cfAbsError: cs.reduce((e, c) => e + (c.cfAbsError ?? 0), 0),
     cfRelError: cs.reduce((e, c) => e + (c.cfRelError ?? 0), 0),
   };
+  withCumulantErrors(node, sumE(cs));
   carrySumKernels(node, cs);
   const tail = heaviestTerm(cs);
   if (tail) node.tailTerm = tail;
@@ -184,6 +187,7 @@ export function scaleNode(a: number, c: Node): Node {
     cfAbsError: c.cfAbsError,
     cfRelError: c.cfRelError,
   };
+  withCumulantErrors(node, scaleE(a, c));
   carryScaleKernels(node, a, c);
   if (c.table && c.kind.type === "lattice") {
     node.table = (maxLength) => {
@@ -230,6 +234,7 @@ export function shiftNode(b: number, c: Node): Node {
     cfAbsError: c.cfAbsError,
     cfRelError: c.cfRelError,
   };
+  withCumulantErrors(node, shiftE(b, c));
   carryShiftKernels(node, b, c);
   if (c.table && c.kind.type === "lattice") {
     node.table = (maxLength) => {
@@ -286,6 +291,7 @@ export function repeatNode(n: number, c: Node): Node {
     cfAbsError: n * (c.cfAbsError ?? 0),
     cfRelError: n * (c.cfRelError ?? 0),
   };
+  withCumulantErrors(node, repeatE(n, c));
   if (c.table && c.kind.type === "lattice") {
     node.table = (maxLength) => {
       const tab = c.table!(maxLength);

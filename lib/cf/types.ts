@@ -37,6 +37,8 @@ export interface CompiledModel {
   readonly momentIndex: number;
   /** exact cumulants kappa_1..kappa_n (index 0 = kappa_1), null where the order does not exist. */
   cumulants(n: number): (number | null)[];
+  /** bounds on the absolute error of cumulants(n) (running error analysis, moment-error.ts); Infinity where none is derived */
+  cumulantErrors?(n: number): (number | null)[];
   /** robust location and positive scale for range choice when cumulants do not exist. */
   readonly location: number;
   readonly scale: number;

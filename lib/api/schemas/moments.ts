@@ -10,6 +10,11 @@ export const { doc: MomentsRequest, body: MomentsBody } = modelRequest("MomentsR
 });
 
 const orders = z.array(z.number().nullable()).openapi({ description: "index 0 is order 1; null where the order does not exist" });
+const errors = (of: string) =>
+  z.array(z.number().nullable()).openapi({
+    description: `bound on the absolute error of each entry of ${of} (same indices), derived by running error analysis through the model and the conversions; null where the value is null or no bound is derived (a note says so)`,
+  });
+const error = (of: string) => z.number().nullable().openapi({ description: `bound on the absolute error of ${of}; null where ${of} is null or no bound is derived` });
 
 export const MomentsResponse = z
   .object({
@@ -20,6 +25,13 @@ export const MomentsResponse = z
     variance: z.number().nullable(),
     skewness: z.number().nullable(),
     excessKurtosis: z.number().nullable(),
+    rawError: errors("raw"),
+    centralError: errors("central"),
+    cumulantError: errors("cumulants"),
+    meanError: error("mean"),
+    varianceError: error("variance"),
+    skewnessError: error("skewness"),
+    excessKurtosisError: error("excessKurtosis"),
     exists: z.array(z.boolean()).openapi({ description: "whether E|X|^n is finite, for n = 1..order" }),
     momentIndex: z.number().nullable().openapi({ description: "sup{ r : E|X|^r < inf }; null when every moment exists" }),
     notes: z.array(z.string()),

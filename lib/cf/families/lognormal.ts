@@ -178,7 +178,7 @@ function allGraphs(n: number): bigint[] {
   const e = (n * (n - 1)) / 2;
   return Array.from({ length: e + 1 }, (_, k) => binomBig(e, k));
 }
-function connectedPoly(n: number): bigint[] {
+export function connectedPoly(n: number): bigint[] {
   for (let m = connected.length + 1; m <= n; m++) {
     const g = allGraphs(m).slice();
     for (let k = 1; k < m; k++) {

@@ -7,6 +7,10 @@ import { lognormal, pareto, weibull } from "./numeric";
 import { gammaDist, lognormalDist, normalDist, paretoDist, uniformDist, weibullDist } from "./dist";
 import type { FamilyName, FamilySpec } from "./spec-types";
 import { real, pos, withDist } from "./spec-types";
+import { withCumulantErrors } from "../cumulant-bounds";
+import * as CE from "./cumulant-errors";
+import { connectedPoly } from "./lognormal";
+import { estList, rawToCumulantsE } from "../moment-error";
 
 export const CONTINUOUS_SPECS: Pick<Record<FamilyName, FamilySpec>, "normal" | "cauchy" | "uniform" | "exponential" | "gamma" | "chi_squared" | "laplace" | "logistic" | "student_t" | "stable" | "variance_gamma" | "nig" | "lognormal" | "pareto" | "weibull"> = {
   normal: {
@@ -21,7 +25,7 @@ export const CONTINUOUS_SPECS: Pick<Record<FamilyName, FamilySpec>, "normal" | "
     source: "Johnson, Kotz & Balakrishnan, Continuous Univariate Distributions vol. 1, ch. 13",
     direct: (p) => D.normalDirect(p.mu as number, p.sigma as number),
     layerable: true,
-    build: (p) => withDist(normal(p.mu, p.sigma), normalDist(p.mu, p.sigma)),
+    build: (p) => withCumulantErrors(withDist(normal(p.mu, p.sigma), normalDist(p.mu, p.sigma)), CE.normalE(p.mu, p.sigma)),
     tailIndex: "none",
   },
   cauchy: {
@@ -51,7 +55,7 @@ export const CONTINUOUS_SPECS: Pick<Record<FamilyName, FamilySpec>, "normal" | "
     source: "Johnson, Kotz & Balakrishnan vol. 2, ch. 26",
     direct: (p) => D.uniformDirect(p.a as number, p.b as number),
     layerable: true,
-    build: (p) => withDist(uniform(p.a, p.b), uniformDist(p.a, p.b)),
+    build: (p) => withCumulantErrors(withDist(uniform(p.a, p.b), uniformDist(p.a, p.b)), CE.uniformE(p.a, p.b)),
     check: (p) => (p.b > p.a ? null : { param: "b", detail: `uniform.b (${p.b}) must be greater than uniform.a (${p.a}).` }),
     tailIndex: "bounded",
   },
@@ -67,7 +71,7 @@ export const CONTINUOUS_SPECS: Pick<Record<FamilyName, FamilySpec>, "normal" | "
     source: "Johnson, Kotz & Balakrishnan vol. 1, ch. 19",
     direct: (p) => D.gammaDirect(1, p.rate as number),
     layerable: true,
-    build: (p) => withDist(gammaLaw(1, p.rate), gammaDist(1, p.rate)),
+    build: (p) => withCumulantErrors(withDist(gammaLaw(1, p.rate), gammaDist(1, p.rate)), CE.gammaE_(1, p.rate)),
     tailIndex: "none",
   },
   gamma: {
@@ -82,7 +86,7 @@ export const CONTINUOUS_SPECS: Pick<Record<FamilyName, FamilySpec>, "normal" | "
     source: "Johnson, Kotz & Balakrishnan vol. 1, ch. 17",
     direct: (p) => D.gammaDirect(p.shape as number, p.rate as number),
     layerable: true,
-    build: (p) => withDist(gammaLaw(p.shape, p.rate), gammaDist(p.shape, p.rate)),
+    build: (p) => withCumulantErrors(withDist(gammaLaw(p.shape, p.rate), gammaDist(p.shape, p.rate)), CE.gammaE_(p.shape, p.rate)),
     tailIndex: "none",
   },
   chi_squared: {
@@ -97,7 +101,7 @@ export const CONTINUOUS_SPECS: Pick<Record<FamilyName, FamilySpec>, "normal" | "
     source: "Johnson, Kotz & Balakrishnan vol. 1, ch. 18",
     direct: (p) => D.gammaDirect((p.k as number) / 2, 0.5),
     layerable: true,
-    build: (p) => withDist(gammaLaw(p.k / 2, 0.5), gammaDist(p.k / 2, 0.5)),
+    build: (p) => withCumulantErrors(withDist(gammaLaw(p.k / 2, 0.5), gammaDist(p.k / 2, 0.5)), CE.gammaE_(p.k / 2, 0.5)),
     tailIndex: "none",
   },
   laplace: {
@@ -111,7 +115,7 @@ export const CONTINUOUS_SPECS: Pick<Record<FamilyName, FamilySpec>, "normal" | "
     discrete: false,
     source: "Johnson, Kotz & Balakrishnan vol. 2, ch. 24",
     direct: (p) => D.laplaceDirect(p.loc as number, p.scale as number),
-    build: (p) => laplace(p.loc, p.scale),
+    build: (p) => withCumulantErrors(laplace(p.loc, p.scale), CE.laplaceE(p.loc, p.scale)),
     tailIndex: "none",
   },
   logistic: {
@@ -125,7 +129,7 @@ export const CONTINUOUS_SPECS: Pick<Record<FamilyName, FamilySpec>, "normal" | "
     discrete: false,
     source: "Johnson, Kotz & Balakrishnan vol. 2, ch. 23",
     direct: (p) => D.logisticDirect(p.loc as number, p.scale as number),
-    build: (p) => logistic(p.loc, p.scale),
+    build: (p) => withCumulantErrors(logistic(p.loc, p.scale), CE.logisticE(p.loc, p.scale)),
     tailIndex: "none",
   },
   student_t: {
@@ -139,7 +143,7 @@ export const CONTINUOUS_SPECS: Pick<Record<FamilyName, FamilySpec>, "normal" | "
     discrete: false,
     source: "Johnson, Kotz & Balakrishnan vol. 2, ch. 28; Bessel K by Abramowitz & Stegun 9.6.24",
     direct: (p) => D.studentDirect(p.nu as number, (p.loc as number | undefined) ?? 0, (p.scale as number | undefined) ?? 1),
-    build: (p) => studentT(p.nu, p.loc ?? 0, p.scale ?? 1),
+    build: (p) => withCumulantErrors(studentT(p.nu, p.loc ?? 0, p.scale ?? 1), CE.studentTE(p.nu, p.loc ?? 0, p.scale ?? 1)),
     momentExistence: "below:nu",
     tailIndex: "nu",
   },
@@ -174,7 +178,7 @@ export const CONTINUOUS_SPECS: Pick<Record<FamilyName, FamilySpec>, "normal" | "
     discrete: false,
     source: "Nolan, Univariate Stable Distributions (2020), ch. 1, parameterisations S0 and S1",
     direct: (p) => stableDirect(p.alpha as number, p.beta as number, (p.scale as number | undefined) ?? 1, (p.loc as number | undefined) ?? 0, (p.param as "S0" | "S1" | undefined) ?? "S1"),
-    build: (p) => stable(p.alpha, p.beta, p.scale ?? 1, p.loc ?? 0, p.param ?? "S1"),
+    build: (p) => withCumulantErrors(stable(p.alpha, p.beta, p.scale ?? 1, p.loc ?? 0, p.param ?? "S1"), CE.stableE(p.alpha, p.beta, p.scale ?? 1, p.loc ?? 0, p.param ?? "S1")),
     momentExistence: "below:alpha (all when alpha = 2)",
     tailIndex: "alpha (none when alpha = 2; one-sided when beta = +-1)",
   },
@@ -188,7 +192,7 @@ export const CONTINUOUS_SPECS: Pick<Record<FamilyName, FamilySpec>, "normal" | "
     cfMethod: "closed form",
     discrete: false,
     source: "Madan, Carr & Chang (1998), Eur. Finance Review 2 (recalled from memory)",
-    build: (p) => varianceGamma(p.sigma, p.nu, p.theta, p.loc ?? 0),
+    build: (p) => withCumulantErrors(varianceGamma(p.sigma, p.nu, p.theta, p.loc ?? 0), CE.varianceGammaE(p.sigma, p.nu, p.theta, p.loc ?? 0)),
     tailIndex: "none",
   },
   nig: {
@@ -201,7 +205,7 @@ export const CONTINUOUS_SPECS: Pick<Record<FamilyName, FamilySpec>, "normal" | "
     cfMethod: "closed form",
     discrete: false,
     source: "Barndorff-Nielsen (1997), Scand. J. Statist. 24, sec. 2",
-    build: (p) => nig(p.alpha, p.beta, p.delta, p.mu ?? 0),
+    build: (p) => withCumulantErrors(nig(p.alpha, p.beta, p.delta, p.mu ?? 0), CE.nigE(p.alpha, p.beta, p.delta, p.mu ?? 0)),
     check: (p) => (Math.abs(p.beta) < p.alpha ? null : { param: "beta", detail: `nig.beta (${p.beta}) must satisfy |beta| < alpha (${p.alpha}).` }),
     tailIndex: "none",
   },
@@ -217,7 +221,7 @@ export const CONTINUOUS_SPECS: Pick<Record<FamilyName, FamilySpec>, "normal" | "
     source: "Johnson, Kotz & Balakrishnan vol. 1, ch. 14",
     direct: (p) => D.lognormalDirect(p.mu as number, p.sigma as number),
     layerable: true,
-    build: (p) => withDist(lognormal(p.mu, p.sigma), lognormalDist(p.mu, p.sigma)),
+    build: (p) => withCumulantErrors(withDist(lognormal(p.mu, p.sigma), lognormalDist(p.mu, p.sigma)), CE.lognormalE(p.mu, p.sigma, connectedPoly)),
     tailIndex: "none (heavier than any exponential)",
   },
   pareto: {
@@ -232,7 +236,7 @@ export const CONTINUOUS_SPECS: Pick<Record<FamilyName, FamilySpec>, "normal" | "
     source: "Johnson, Kotz & Balakrishnan vol. 1, ch. 20",
     direct: (p) => D.paretoDirect(p.alpha as number, p.xm as number),
     layerable: true,
-    build: (p) => withDist(pareto(p.alpha, p.xm), paretoDist(p.alpha, p.xm)),
+    build: (p) => withCumulantErrors(withDist(pareto(p.alpha, p.xm), paretoDist(p.alpha, p.xm)), (m) => rawToCumulantsE(estList(m, p.alpha, CE.paretoRawE(p.alpha, p.xm)))),
     momentExistence: "below:alpha",
     tailIndex: "alpha",
   },
@@ -248,7 +252,7 @@ export const CONTINUOUS_SPECS: Pick<Record<FamilyName, FamilySpec>, "normal" | "
     source: "Johnson, Kotz & Balakrishnan vol. 1, ch. 21",
     direct: (p) => D.weibullDirect(p.shape as number, p.scale as number),
     layerable: true,
-    build: (p) => withDist(weibull(p.shape, p.scale), weibullDist(p.shape, p.scale)),
+    build: (p) => withCumulantErrors(withDist(weibull(p.shape, p.scale), weibullDist(p.shape, p.scale)), (m) => rawToCumulantsE(Array.from({ length: m }, (_, i) => CE.weibullRawE(p.shape, p.scale)(i + 1)))),
     tailIndex: "none",
   },
 };

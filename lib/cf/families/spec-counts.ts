@@ -3,6 +3,11 @@ import { binomial, negativeBinomial, point, poisson } from "./discrete";
 import { logarithmic, zeroModified } from "./counts";
 import type { FamilyName, FamilySpec } from "./spec-types";
 import { R, real, pos, prob } from "./spec-types";
+import { withCumulantErrors } from "../cumulant-bounds";
+import * as CE from "./cumulant-errors";
+import { exact, rawToCumulantsE } from "../moment-error";
+
+const logE = (p: number) => (n: number) => rawToCumulantsE(Array.from({ length: n }, (_, i) => CE.logarithmicRawE(p)(i + 1)));
 
 export const COUNT_SPECS: Pick<Record<FamilyName, FamilySpec>, "point" | "bernoulli" | "binomial" | "poisson" | "negative_binomial" | "geometric" | "logarithmic" | "zero_modified_logarithmic" | "zero_truncated_poisson" | "zero_truncated_negative_binomial" | "zero_truncated_binomial" | "zero_modified_poisson" | "zero_modified_negative_binomial" | "zero_modified_binomial"> = {
   point: {
@@ -15,7 +20,7 @@ export const COUNT_SPECS: Pick<Record<FamilyName, FamilySpec>, "point" | "bernou
     cfMethod: "closed form",
     discrete: true,
     source: "common practice",
-    build: (p) => point(p.at),
+    build: (p) => withCumulantErrors(point(p.at), (n) => Array.from({ length: n }, (_, i) => exact(i === 0 ? p.at : 0))),
     tailIndex: "bounded",
   },
   bernoulli: {
@@ -28,7 +33,7 @@ export const COUNT_SPECS: Pick<Record<FamilyName, FamilySpec>, "point" | "bernou
     cfMethod: "closed form",
     discrete: true,
     source: "Johnson, Kemp & Kotz, Univariate Discrete Distributions, ch. 3",
-    build: (p) => binomial(1, p.p),
+    build: (p) => withCumulantErrors(binomial(1, p.p), CE.binomialE(1, p.p)),
     count: true,
     tailIndex: "bounded",
   },
@@ -42,7 +47,7 @@ export const COUNT_SPECS: Pick<Record<FamilyName, FamilySpec>, "point" | "bernou
     cfMethod: "closed form",
     discrete: true,
     source: "Johnson, Kemp & Kotz, ch. 3",
-    build: (p) => binomial(p.n, p.p),
+    build: (p) => withCumulantErrors(binomial(p.n, p.p), CE.binomialE(p.n, p.p)),
     count: true,
     tailIndex: "bounded",
   },
@@ -56,7 +61,7 @@ export const COUNT_SPECS: Pick<Record<FamilyName, FamilySpec>, "point" | "bernou
     cfMethod: "closed form",
     discrete: true,
     source: "Johnson, Kemp & Kotz, ch. 4",
-    build: (p) => poisson(p.lambda),
+    build: (p) => withCumulantErrors(poisson(p.lambda), CE.poissonE(p.lambda)),
     count: true,
     tailIndex: "none",
   },
@@ -70,7 +75,7 @@ export const COUNT_SPECS: Pick<Record<FamilyName, FamilySpec>, "point" | "bernou
     cfMethod: "closed form",
     discrete: true,
     source: "Johnson, Kemp & Kotz, ch. 5",
-    build: (p) => negativeBinomial(p.r, p.p),
+    build: (p) => withCumulantErrors(negativeBinomial(p.r, p.p), CE.negativeBinomialE(p.r, p.p)),
     count: true,
     tailIndex: "none",
   },
@@ -84,7 +89,7 @@ export const COUNT_SPECS: Pick<Record<FamilyName, FamilySpec>, "point" | "bernou
     cfMethod: "closed form",
     discrete: true,
     source: "Johnson, Kemp & Kotz, ch. 5",
-    build: (p) => negativeBinomial(1, p.p),
+    build: (p) => withCumulantErrors(negativeBinomial(1, p.p), CE.negativeBinomialE(1, p.p)),
     count: true,
     tailIndex: "none",
   },
@@ -100,7 +105,7 @@ export const COUNT_SPECS: Pick<Record<FamilyName, FamilySpec>, "point" | "bernou
     discrete: true,
     count: true,
     source: "Johnson, Kemp & Kotz, Univariate Discrete Distributions (3rd ed.), ch. 7; Loss Models (5th ed.), sec. 6.6, (a, b, 1) class with a = p, b = -p",
-    build: (p) => logarithmic(p.p),
+    build: (p) => withCumulantErrors(logarithmic(p.p), logE(p.p)),
   },
   zero_modified_logarithmic: {
     name: "zero_modified_logarithmic",
@@ -114,7 +119,7 @@ export const COUNT_SPECS: Pick<Record<FamilyName, FamilySpec>, "point" | "bernou
     discrete: true,
     count: true,
     source: "Klugman, Panjer & Willmot, Loss Models (5th ed.), sec. 6.6 and app. B.3.3 (zero-modified logarithmic, (a, b, 1) class with a = p, b = -p)",
-    build: (p) => zeroModified(logarithmic(p.p), p.p0, 1),
+    build: (p) => withCumulantErrors(zeroModified(logarithmic(p.p), p.p0, 1), CE.zeroModifiedE(logE(p.p), p.p0, exact(1))),
   },
   zero_truncated_poisson: {
     name: "zero_truncated_poisson",
@@ -128,7 +133,7 @@ export const COUNT_SPECS: Pick<Record<FamilyName, FamilySpec>, "point" | "bernou
     discrete: true,
     count: true,
     source: "Klugman, Panjer & Willmot, Loss Models (5th ed.), sec. 6.6 and app. B.3.1; Johnson, Kemp & Kotz, ch. 4, sec. 10",
-    build: (p) => zeroModified(poisson(p.lambda), 0, -Math.expm1(-p.lambda)),
+    build: (p) => withCumulantErrors(zeroModified(poisson(p.lambda), 0, -Math.expm1(-p.lambda)), CE.zeroModifiedE(CE.poissonE(p.lambda), 0, CE.oneMinusP0E.poisson(p.lambda))),
   },
   zero_truncated_negative_binomial: {
     name: "zero_truncated_negative_binomial",
@@ -142,7 +147,7 @@ export const COUNT_SPECS: Pick<Record<FamilyName, FamilySpec>, "point" | "bernou
     discrete: true,
     count: true,
     source: "Klugman, Panjer & Willmot, Loss Models (5th ed.), sec. 6.6 and app. B.3.1",
-    build: (p) => zeroModified(negativeBinomial(p.r, p.p), 0, -Math.expm1(p.r * Math.log(p.p))),
+    build: (p) => withCumulantErrors(zeroModified(negativeBinomial(p.r, p.p), 0, -Math.expm1(p.r * Math.log(p.p))), CE.zeroModifiedE(CE.negativeBinomialE(p.r, p.p), 0, CE.oneMinusP0E.negativeBinomial(p.r, p.p))),
   },
   zero_truncated_binomial: {
     name: "zero_truncated_binomial",
@@ -156,7 +161,7 @@ export const COUNT_SPECS: Pick<Record<FamilyName, FamilySpec>, "point" | "bernou
     discrete: true,
     count: true,
     source: "Klugman, Panjer & Willmot, Loss Models (5th ed.), sec. 6.6 and app. B.3.1",
-    build: (p) => zeroModified(binomial(p.n, p.p), 0, -Math.expm1(p.n * Math.log1p(-p.p))),
+    build: (p) => withCumulantErrors(zeroModified(binomial(p.n, p.p), 0, -Math.expm1(p.n * Math.log1p(-p.p))), CE.zeroModifiedE(CE.binomialE(p.n, p.p), 0, CE.oneMinusP0E.binomial(p.n, p.p))),
   },
   zero_modified_poisson: {
     name: "zero_modified_poisson",
@@ -170,7 +175,7 @@ export const COUNT_SPECS: Pick<Record<FamilyName, FamilySpec>, "point" | "bernou
     discrete: true,
     count: true,
     source: "Klugman, Panjer & Willmot, Loss Models (5th ed.), sec. 6.6 and app. B.3.2",
-    build: (p) => zeroModified(poisson(p.lambda), p.p0, -Math.expm1(-p.lambda)),
+    build: (p) => withCumulantErrors(zeroModified(poisson(p.lambda), p.p0, -Math.expm1(-p.lambda)), CE.zeroModifiedE(CE.poissonE(p.lambda), p.p0, CE.oneMinusP0E.poisson(p.lambda))),
   },
   zero_modified_negative_binomial: {
     name: "zero_modified_negative_binomial",
@@ -184,7 +189,7 @@ export const COUNT_SPECS: Pick<Record<FamilyName, FamilySpec>, "point" | "bernou
     discrete: true,
     count: true,
     source: "Klugman, Panjer & Willmot, Loss Models (5th ed.), sec. 6.6 and app. B.3.2",
-    build: (p) => zeroModified(negativeBinomial(p.r, p.p), p.p0, -Math.expm1(p.r * Math.log(p.p))),
+    build: (p) => withCumulantErrors(zeroModified(negativeBinomial(p.r, p.p), p.p0, -Math.expm1(p.r * Math.log(p.p))), CE.zeroModifiedE(CE.negativeBinomialE(p.r, p.p), p.p0, CE.oneMinusP0E.negativeBinomial(p.r, p.p))),
   },
   zero_modified_binomial: {
     name: "zero_modified_binomial",
@@ -198,6 +203,6 @@ export const COUNT_SPECS: Pick<Record<FamilyName, FamilySpec>, "point" | "bernou
     discrete: true,
     count: true,
     source: "Klugman, Panjer & Willmot, Loss Models (5th ed.), sec. 6.6 and app. B.3.2",
-    build: (p) => zeroModified(binomial(p.n, p.p), p.p0, -Math.expm1(p.n * Math.log1p(-p.p))),
+    build: (p) => withCumulantErrors(zeroModified(binomial(p.n, p.p), p.p0, -Math.expm1(p.n * Math.log1p(-p.p))), CE.zeroModifiedE(CE.binomialE(p.n, p.p), p.p0, CE.oneMinusP0E.binomial(p.n, p.p))),
   },
 };

@@ -8,6 +8,9 @@ import type { FamilyName, FamilySpec } from "./spec-types";
 import { real, pos, withDist, shiftBuilt } from "./spec-types";
 import * as DS from "../direct/severities";
 import * as DB from "../direct/bounded";
+import { withCumulantErrors } from "../cumulant-bounds";
+import * as CE from "./cumulant-errors";
+import { add, div, estList, exact, mul, rawToCumulantsE, sub } from "../moment-error";
 
 export const SEVERITY_SPECS: Pick<Record<FamilyName, FamilySpec>, "lomax" | "generalized_pareto" | "burr" | "loglogistic" | "inverse_gaussian" | "inverse_gamma" | "beta" | "pert" | "triangular" | "truncated_normal"> = {
   lomax: {
@@ -24,7 +27,7 @@ export const SEVERITY_SPECS: Pick<Record<FamilyName, FamilySpec>, "lomax" | "gen
     source: "Klugman, Panjer & Willmot, Loss Models (5th ed.), app. A.2.3.1 (Pareto); JKB vol. 1, ch. 20, sec. 3 (Pareto II)",
     direct: (p) => DS.lomaxDirect(p.alpha as number, p.theta as number),
     layerable: true,
-    build: (p) => lomax(p.alpha, p.theta),
+    build: (p) => withCumulantErrors(lomax(p.alpha, p.theta), (m) => rawToCumulantsE(estList(m, p.alpha, CE.lomaxRawE(p.alpha, p.theta)))),
   },
   generalized_pareto: {
     name: "generalized_pareto",
@@ -42,9 +45,14 @@ export const SEVERITY_SPECS: Pick<Record<FamilyName, FamilySpec>, "lomax" | "gen
     layerable: true,
     build: (p) => {
       const { xi, sigma, mu } = p;
-      if (xi > 0) return shiftBuilt(lomax(1 / xi, sigma / xi), mu);
-      if (xi === 0) return shiftBuilt(withDist(gammaLaw(1, 1 / sigma), gammaDist(1, 1 / sigma)), mu);
-      return withDist(betaLaw(1, -1 / xi, mu, mu - sigma / xi, "generalized_pareto"), betaDist(1, -1 / xi, mu, mu - sigma / xi));
+      // the derived parameters are rounded: their bounds go into the cumulants' bounds
+      const q = (u: number, v: number) => div(exact(u), exact(v));
+      if (xi > 0) return shiftBuilt(withCumulantErrors(lomax(1 / xi, sigma / xi), (m) => rawToCumulantsE(estList(m, 1 / xi, CE.lomaxRawE(q(1, xi), q(sigma, xi))))), mu);
+      if (xi === 0) return shiftBuilt(withCumulantErrors(withDist(gammaLaw(1, 1 / sigma), gammaDist(1, 1 / sigma)), CE.gammaE_(1, q(1, sigma))), mu);
+      return withCumulantErrors(
+        withDist(betaLaw(1, -1 / xi, mu, mu - sigma / xi, "generalized_pareto"), betaDist(1, -1 / xi, mu, mu - sigma / xi)),
+        CE.betaE(1, q(-1, xi), mu, sub(exact(mu), q(sigma, xi))),
+      );
     },
   },
   burr: {
@@ -61,7 +69,7 @@ export const SEVERITY_SPECS: Pick<Record<FamilyName, FamilySpec>, "lomax" | "gen
     source: "Klugman, Panjer & Willmot, Loss Models (5th ed.), app. A.2.2.2 (Burr); Burr (1942), Ann. Math. Statist. 13, form XII",
     direct: (p) => DS.burrDirect(p.alpha as number, p.gamma as number, p.theta as number),
     layerable: true,
-    build: (p) => burr(p.alpha, p.gamma, p.theta),
+    build: (p) => withCumulantErrors(burr(p.alpha, p.gamma, p.theta), (m) => rawToCumulantsE(estList(m, p.alpha * p.gamma, CE.burrRawE(p.alpha, p.gamma, p.theta)))),
   },
   loglogistic: {
     name: "loglogistic",
@@ -77,7 +85,7 @@ export const SEVERITY_SPECS: Pick<Record<FamilyName, FamilySpec>, "lomax" | "gen
     source: "Klugman, Panjer & Willmot, Loss Models (5th ed.), app. A.2.2.4 (loglogistic)",
     direct: (p) => DS.burrDirect(1, p.gamma as number, p.theta as number, "log-logistic"),
     layerable: true,
-    build: (p) => burr(1, p.gamma, p.theta, "loglogistic"),
+    build: (p) => withCumulantErrors(burr(1, p.gamma, p.theta, "loglogistic"), (m) => rawToCumulantsE(estList(m, p.gamma, CE.burrRawE(1, p.gamma, p.theta)))),
   },
   inverse_gaussian: {
     name: "inverse_gaussian",
@@ -92,7 +100,7 @@ export const SEVERITY_SPECS: Pick<Record<FamilyName, FamilySpec>, "lomax" | "gen
     source: "Johnson, Kotz & Balakrishnan vol. 1, ch. 15, eqs. 15.4-15.6",
     direct: (p) => DS.inverseGaussianDirect(p.mu as number, p.lambda as number),
     layerable: true,
-    build: (p) => inverseGaussian(p.mu, p.lambda),
+    build: (p) => withCumulantErrors(inverseGaussian(p.mu, p.lambda), CE.inverseGaussianE(p.mu, p.lambda)),
   },
   inverse_gamma: {
     name: "inverse_gamma",
@@ -108,7 +116,7 @@ export const SEVERITY_SPECS: Pick<Record<FamilyName, FamilySpec>, "lomax" | "gen
     source: "Klugman, Panjer & Willmot, Loss Models (5th ed.), app. A.2.3.3 (inverse gamma); JKB vol. 1, ch. 17",
     direct: (p) => DS.inverseGammaDirect(p.alpha as number, p.theta as number),
     layerable: true,
-    build: (p) => inverseGamma(p.alpha, p.theta),
+    build: (p) => withCumulantErrors(inverseGamma(p.alpha, p.theta), (m) => rawToCumulantsE(estList(m, p.alpha, CE.inverseGammaRawE(p.alpha, p.theta)))),
   },
   beta: {
     name: "beta",
@@ -124,7 +132,7 @@ export const SEVERITY_SPECS: Pick<Record<FamilyName, FamilySpec>, "lomax" | "gen
     check: (p) => (p.b > p.a ? null : { param: "b", detail: `beta.b (${p.b}) must be greater than beta.a (${p.a}).` }),
     direct: (p) => DB.betaDirect(p.alpha as number, p.beta as number, (p.a as number | undefined) ?? 0, (p.b as number | undefined) ?? 1),
     layerable: true,
-    build: (p) => withDist(betaLaw(p.alpha, p.beta, p.a, p.b), betaDist(p.alpha, p.beta, p.a, p.b)),
+    build: (p) => withCumulantErrors(withDist(betaLaw(p.alpha, p.beta, p.a, p.b), betaDist(p.alpha, p.beta, p.a, p.b)), CE.betaE(p.alpha, p.beta, p.a, p.b)),
   },
   pert: {
     name: "pert",
@@ -144,7 +152,11 @@ export const SEVERITY_SPECS: Pick<Record<FamilyName, FamilySpec>, "lomax" | "gen
     build: (p) => {
       const al = 1 + (p.lambda * (p.m - p.a)) / (p.b - p.a);
       const be = 1 + (p.lambda * (p.b - p.m)) / (p.b - p.a);
-      return withDist(betaLaw(al, be, p.a, p.b, "pert"), betaDist(al, be, p.a, p.b));
+      const width = sub(exact(p.b), exact(p.a));
+      const lam = exact(p.lambda);
+      const alE = add(exact(1), div(mul(lam, sub(exact(p.m), exact(p.a))), width));
+      const beE = add(exact(1), div(mul(lam, sub(exact(p.b), exact(p.m))), width));
+      return withCumulantErrors(withDist(betaLaw(al, be, p.a, p.b, "pert"), betaDist(al, be, p.a, p.b)), CE.betaE(alE, beE, p.a, p.b));
     },
   },
   triangular: {
@@ -162,7 +174,7 @@ export const SEVERITY_SPECS: Pick<Record<FamilyName, FamilySpec>, "lomax" | "gen
       !(p.b > p.a) ? { param: "b", detail: `triangular.b (${p.b}) must be greater than triangular.a (${p.a}).` } : p.c < p.a || p.c > p.b ? { param: "c", detail: `triangular.c (${p.c}) must lie in [a, b] = [${p.a}, ${p.b}].` } : null,
     direct: (p) => DB.triangularDirect(p.a as number, p.c as number, p.b as number),
     layerable: true,
-    build: (p) => triangular(p.a, p.c, p.b),
+    build: (p) => withCumulantErrors(triangular(p.a, p.c, p.b), CE.triangularE(p.a, p.c, p.b)),
   },
   truncated_normal: {
     name: "truncated_normal",

@@ -3,6 +3,8 @@ import type { DirectLaw } from "../direct/types";
 import type { Node } from "../node";
 import { shiftDamped } from "../damped-cf";
 import { affineDist, type DirectLaw as DistLaw } from "./dist";
+import { cumulantEst, withCumulantErrors } from "../cumulant-bounds";
+import { add, exact } from "../moment-error";
 
 /** The validated model fields of one family (defaults not yet filled in). */
 export type FamilyParams = Readonly<Record<string, number | string | undefined>>;
@@ -125,7 +127,7 @@ export const prob = (name: string, doc: string, loOpen = false) => real(name, do
 /** A family node moved by b (location parameters of families built from others). */
 export function shiftBuilt(n: Node, b: number): Node {
   if (b === 0) return n;
-  return {
+  const moved: Node = {
     ...n,
     location: n.location + b,
     support: [n.support[0] + b, n.support[1] + b],
@@ -141,4 +143,5 @@ export function shiftBuilt(n: Node, b: number): Node {
     ...(n.severity && b > 0 ? { severity: { ...n.severity, lo: n.severity.lo + b, pdf: (x: number) => n.severity!.pdf(x - b), upper: (q: number) => n.severity!.upper(q) + b } } : {}),
     ...(n.severity && b < 0 ? { severity: undefined } : {}),
   };
+  return withCumulantErrors(moved, (m) => cumulantEst(n, m).map((v, k) => (k === 0 && v ? add(v, exact(b)) : v)));
 }

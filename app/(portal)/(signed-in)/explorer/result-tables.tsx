@@ -4,6 +4,9 @@ import type { Results } from "./run";
 
 const num = (v: number | null | undefined) => (v === null || v === undefined || !Number.isFinite(v) ? "does not exist" : Number(v.toPrecision(8)).toString());
 const pretty = (v: unknown) => JSON.stringify(v, null, 2);
+/** a moment's error bound, shown beside it ("no bound" where the engine derived none) */
+const bound = (v: number | null | undefined, e: number | null | undefined) =>
+  v === null || v === undefined || !Number.isFinite(v) ? null : e === null || e === undefined ? "no bound" : `± ${Number(e.toPrecision(2))}`;
 
 /** Quantiles with expected shortfall, moments, and the inversion's diagnostics. */
 export function ResultTables({ results }: { results: Results }) {
@@ -33,15 +36,24 @@ export function ResultTables({ results }: { results: Results }) {
       </section>
       <section aria-labelledby="m-h" className="rounded-xl border border-paper-line bg-white p-4">
         <h2 id="m-h" className="font-display text-lg font-semibold">Moments</h2>
+        <p className="text-xs text-ink-faint">Each value with a bound on its absolute error (± , derived from the arithmetic).</p>
         <dl className="mt-2 grid grid-cols-2 gap-x-4 gap-y-1 text-sm tabular-nums">
           <dt className="text-ink-faint">Mean</dt>
-          <dd>{num(m.mean)}</dd>
+          <dd>
+            {num(m.mean)} <span className="text-ink-faint">{bound(m.mean, m.meanError)}</span>
+          </dd>
           <dt className="text-ink-faint">Variance</dt>
-          <dd>{num(m.variance)}</dd>
+          <dd>
+            {num(m.variance)} <span className="text-ink-faint">{bound(m.variance, m.varianceError)}</span>
+          </dd>
           <dt className="text-ink-faint">Skewness</dt>
-          <dd>{num(m.skewness)}</dd>
+          <dd>
+            {num(m.skewness)} <span className="text-ink-faint">{bound(m.skewness, m.skewnessError)}</span>
+          </dd>
           <dt className="text-ink-faint">Excess kurtosis</dt>
-          <dd>{num(m.excessKurtosis)}</dd>
+          <dd>
+            {num(m.excessKurtosis)} <span className="text-ink-faint">{bound(m.excessKurtosis, m.excessKurtosisError)}</span>
+          </dd>
         </dl>
         {m.notes?.length ? (
           <ul className="mt-2 list-disc pl-5 text-sm text-ink-soft">

@@ -24,6 +24,10 @@ export interface MomentResult {
   variance: number | null;
   skewness: number | null;
   excessKurtosis: number | null;
+  meanError?: number | null;
+  varianceError?: number | null;
+  skewnessError?: number | null;
+  excessKurtosisError?: number | null;
   notes: string[];
 }
 export type DensityResult = LawTable & { diagnostics: Record<string, unknown> };
