@@ -37,23 +37,19 @@ export function ResultTables({ results }: { results: Results }) {
       <section aria-labelledby="m-h" className="rounded-xl border border-paper-line bg-white p-4">
         <h2 id="m-h" className="font-display text-lg font-semibold">Moments</h2>
         <p className="text-xs text-ink-faint">Each value with a bound on its absolute error (± , derived from the arithmetic).</p>
-        <dl className="mt-2 grid grid-cols-2 gap-x-4 gap-y-1 text-sm tabular-nums">
+        <dl className="mt-2 grid grid-cols-[auto_auto_1fr] gap-x-4 gap-y-1 text-sm tabular-nums">
           <dt className="text-ink-faint">Mean</dt>
-          <dd>
-            {num(m.mean)} <span className="text-ink-faint">{bound(m.mean, m.meanError)}</span>
-          </dd>
+          <dd>{num(m.mean)}</dd>
+          <dd className="text-ink-faint">{bound(m.mean, m.meanError)}</dd>
           <dt className="text-ink-faint">Variance</dt>
-          <dd>
-            {num(m.variance)} <span className="text-ink-faint">{bound(m.variance, m.varianceError)}</span>
-          </dd>
+          <dd>{num(m.variance)}</dd>
+          <dd className="text-ink-faint">{bound(m.variance, m.varianceError)}</dd>
           <dt className="text-ink-faint">Skewness</dt>
-          <dd>
-            {num(m.skewness)} <span className="text-ink-faint">{bound(m.skewness, m.skewnessError)}</span>
-          </dd>
+          <dd>{num(m.skewness)}</dd>
+          <dd className="text-ink-faint">{bound(m.skewness, m.skewnessError)}</dd>
           <dt className="text-ink-faint">Excess kurtosis</dt>
-          <dd>
-            {num(m.excessKurtosis)} <span className="text-ink-faint">{bound(m.excessKurtosis, m.excessKurtosisError)}</span>
-          </dd>
+          <dd>{num(m.excessKurtosis)}</dd>
+          <dd className="text-ink-faint">{bound(m.excessKurtosis, m.excessKurtosisError)}</dd>
         </dl>
         {m.notes?.length ? (
           <ul className="mt-2 list-disc pl-5 text-sm text-ink-soft">
