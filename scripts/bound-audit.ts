@@ -461,7 +461,7 @@ const widths = header.map((h, i) => Math.max(h.length, ...rows.map((r) => r[i].l
 const line = (r: string[]) => "| " + r.map((c, i) => c.padEnd(widths[i])).join(" | ") + " |";
 console.log(`bound audit at ${new Date().toISOString()}: ${samples.length} values from ${sets.length} fixture sets, ${PER_POINT ? "one call per point" : "one call per model"}, ${((cpu.user + cpu.system) / 1e6).toFixed(1)} s CPU`);
 console.log(
-  `actual = |engine - reference|; floor = values whose actual error is 0 or within the reference's own precision; tail = points whose reference cdf or sf is below ${TAIL} (neither is in the looseness columns; "tail bound>|value|" counts tail values whose bound exceeds the value itself); moments carry no bound: their relative errors stand in the looseness columns`,
+  `actual = |engine - reference|; floor = values whose actual error is 0 or within the reference's own precision; tail = points whose reference cdf or sf is below ${TAIL} (neither is in the looseness columns; "tail bound>|value|" counts tail values whose bound exceeds the value itself); a value whose answer carries no bound shows its relative error in the looseness columns ("NO BOUND")`,
 );
 console.log(line(header));
 console.log("|" + widths.map((w) => "-".repeat(w + 2)).join("|") + "|");

@@ -44,7 +44,7 @@ function twoSumErr(a: number, b: number, s: number): number {
 
 const SPLIT = 134217729; // 2^27 + 1
 const BIG = 2 ** 995;
-const SMALL = 2 ** -969;
+const SMALL = 2 ** -900;
 
 /** Dekker's TwoProduct: p + err = a b exactly when neither splitting overflows nor the product underflows. */
 function twoProdErr(a: number, b: number, p: number): number | null {
