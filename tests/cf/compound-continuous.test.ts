@@ -29,6 +29,10 @@ const misses: string[] = [];
 const target = (label: string, err: number, tol: number) => {
   if (!(err <= tol)) misses.push(`${label}: ${err.toExponential(2)} > ${tol}`);
 };
+/** the same targets, asserted (the damped route meets them) */
+const assertTarget = (label: string, err: number, tol: number) => {
+  if (!(err <= tol)) expect.fail(`${label}: relative error ${err.toExponential(2)} above the target ${tol}`);
+};
 const note = (k: string, actual: number, bound: number) => {
   const r = bound > 0 ? actual / bound : actual > 0 ? Infinity : 0;
   ratios[k] = Math.max(ratios[k] ?? 0, r);
@@ -66,24 +70,31 @@ describe("compound laws of continuous severities: atom at 0 plus a density, ever
       target(`cdf ${JSON.stringify(c.model)} x=${p.x}`, Math.abs(r.cdf[i] - p.cdf) - refErr, 1e-9);
     });
     // lognormal claims: the one-claim term is taken out of the transform and added back in closed form
-    // (not for lambda >= 1 000, where P(N = 1) is negligible; nor for sigma >= 2: the damped transform would need more
-    // terms than its budget, and the undamped route answers)
+    // (not for lambda >= 1 000, where P(N = 1) is negligible)
     const sigma = (c.model as { compound: { each: { sigma?: number } } }).compound.each.sigma ?? 0;
-    if (_kind === "lognormal" && sigma < 2 && c.atom0 > 0) expect(r.diagnostics.notes.some((n) => n.includes("one-claim term"))).toBe(true);
-    // every level of the fixture, 0.9999 included
-    // (sigma >= 2 with lambda >= 1: the quantiles still take the undamped route at about 6 s a level on a quiet machine,
-    // so two levels (0.5, 0.99) are checked there, keeping the file inside the suite's budget on a busy one)
-    const slow = sigma >= 2 && !(c.atom0 > Math.exp(-0.5));
-    const levels = slow ? c.levels.filter((l) => [0.5, 0.99].includes(l.p)) : c.levels;
-    const ps = levels.map((l) => l.p);
-    const q = quantiles(m, ps, { expectedShortfall: true });
+    if (_kind === "lognormal" && c.atom0 > 0) expect(r.diagnostics.notes.some((n) => n.includes("one-claim term"))).toBe(true);
+    // every level of the fixture, 0.9999 included, on the damped route, where the accuracy targets are asserted
+    // (quantiles 1e-7, ES 1e-6 relative). Two sigma >= 2 tails still need more frequency terms than the damped
+    // route's budget: Poisson(10)-lognormal(0, 2) at 0.9999 and Poisson(1)-lognormal(0, 2.5) from 0.99 up. They take
+    // the undamped route (10 s and more a level), are left to the bound audit (npm run bench:bounds) and listed here
+    const undamped = (p: number) => sigma >= 2 && (sigma >= 2.5 ? p >= 0.99 : p >= 0.9999);
+    const levels = c.levels.filter((l) => !undamped(l.p));
+    for (const l of c.levels.filter((l) => undamped(l.p))) misses.push(`${JSON.stringify(c.model)} p=${l.p}: not checked here (undamped route)`);
+    const q = quantiles(
+      m,
+      levels.map((l) => l.p),
+      { expectedShortfall: true },
+    );
+    if (_kind === "lognormal" && c.atom0 > 0) expect(q.diagnostics.method).toBe("gil-pelaez-damped");
+    const damped = q.diagnostics.method === "gil-pelaez-damped";
     levels.forEach((l, i) => {
       const qe = q.diagnostics.quantileError[i];
       within(`quantile p=${l.p}`, q.x[i], l.q, qe, 0);
-      if (l.q > 0) target(`quantile ${JSON.stringify(c.model)} p=${l.p}`, Math.abs(q.x[i] - l.q) / l.q, 1e-7);
+      const label = `${JSON.stringify(c.model)} p=${l.p}`;
+      if (l.q > 0) (damped ? assertTarget : target)(`quantile ${label}`, Math.abs(q.x[i] - l.q) / l.q, 1e-7);
       if (l.es !== null) {
         within(`ES p=${l.p}`, q.expectedShortfall![i], l.es, q.diagnostics.expectedShortfallError![i], 0);
-        target(`ES ${JSON.stringify(c.model)} p=${l.p}`, Math.abs(q.expectedShortfall![i] - l.es) / l.es, 1e-6);
+        (damped ? assertTarget : target)(`ES ${label}`, Math.abs(q.expectedShortfall![i] - l.es) / l.es, 1e-6);
       }
     });
   }, 300_000);

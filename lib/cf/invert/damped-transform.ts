@@ -6,6 +6,37 @@ import { cutoffFor, envelopeOf, probeFrequencies, type Envelope } from "./nodes"
 
 const EPS = Number.EPSILON;
 
+/**
+ * Relative rounding of one frequency term and its share of the accumulation in the pointwise sums (damped-eval.ts
+ * dampedAt), per unit of |coefficient|: the phase e^{-i t_k y} from an exact argument (t_k exact, t_k y split by
+ * Dekker's product) to within 4 eps, the block table e^{-i j h y} to 4 eps, their product 2 eps, the term's products
+ * 2 eps (16 eps in all, with margin); sums of 8 terms, 8 of those per block and the blocks compensated (Neumaier):
+ * gamma_7 + gamma_7 + 2 eps < 9 eps (Higham, Accuracy and Stability of Numerical Algorithms, 2nd ed., eq. 4.4 and
+ * sec. 4.3). 32 eps leaves the rest as margin.
+ */
+export const SUM_REL = 32 * EPS;
+
+/**
+ * The frequency step rounded down to 29 significant bits: then t_k = (k + 1/2) h is exact for every k < 2^22, so the
+ * transform and the phases of the pointwise sums see the same nodes, with no rounding in between.
+ */
+export function exactStep(h: number): number {
+  const q = Math.pow(2, Math.floor(Math.log2(h)) - 28);
+  return Math.floor(h / q) * q;
+}
+
+/**
+ * Relative allowance per unit of sum(|c_k|) for rounding in the sums and in the CF values: the derived SUM_REL when
+ * the sums are taken point by point with exact nodes (dampedAt), otherwise the FFT routes' allowance; the CF's
+ * relative error twice, except where psi is formed from the severity's transform (severityPsi), whose per-node noise
+ * already carries the propagated CF error.
+ */
+export function sumAllowance(model: CompiledModel, K: number, pointwise: boolean): number {
+  const cf = 2 * (model.cfRelError ?? 0);
+  if (!pointwise) return 1e-14 + 8 * EPS * Math.sqrt(K) + cf;
+  return SUM_REL + (model.dampedSeverity?.count && model.support[0] === 0 ? 0 : cf);
+}
+
 /** per-node noise of psi_c: rounding of the atom subtraction plus twice the CF's declared absolute error */
 export function noiseOf(model: CompiledModel, atoms: Atom[]): number {
   const pa = atoms.reduce((s, a) => s + a.p, 0);
@@ -92,7 +123,13 @@ function severityPsi(sev: SeverityKernel, count: NonNullable<SeverityKernel["cou
       im[k] = i;
       if (noise) {
         const z = ph + d;
-        noise[k] = 16 * EPS * (1 + pa + sev.w + w2) + count.absError + 2 * count.relError * (m + pa) + count.mean * (w2 > 0 ? z * z : z) * d;
+        // exp of the cumulant function: its rounding (a few eps of |re| + |im|) is relative to m
+        noise[k] =
+          16 * EPS * (1 + pa + sev.w + w2) +
+          EPS * (4 + 2 * Math.abs(re[k]) + 2 * Math.abs(im[k])) * m +
+          count.absError +
+          2 * count.relError * (m + pa) +
+          count.mean * (w2 > 0 ? z * z : z) * d;
       }
     }
   };
@@ -133,16 +170,16 @@ const PAIR_COST = 60;
  * rounding that e^U amplifies: the U in [2, 8] with the fewest terms whose rounding estimate stays below tol / 4.
  * With a two-claim term available, both plans are made and the cheaper for `points` evaluation points is kept.
  */
-export function dampedPlan(model: CompiledModel, atoms: Atom[], R: number, tol: number, wantPdf: boolean, points = 256): DampedPlan {
-  const plain = planFor(model, atoms, R, tol, wantPdf, false);
+export function dampedPlan(model: CompiledModel, atoms: Atom[], R: number, tol: number, wantPdf: boolean, points = 256, pointwise = false): DampedPlan {
+  const plain = planFor(model, atoms, R, tol, wantPdf, false, pointwise);
   // the second plan only where it can pay: the plain plan's terms exceed what the term costs at the points
   const can = model.dampedSeverity?.count && model.dampedSeverity.pair && model.support[0] === 0 && plain.K > PAIR_COST * points;
-  const pair = can ? planFor(model, atoms, R, tol, wantPdf, true) : null;
+  const pair = can ? planFor(model, atoms, R, tol, wantPdf, true, pointwise) : null;
   if (!pair) return plain.plan;
   return pair.K + PAIR_COST * points < plain.K ? pair.plan : plain.plan;
 }
 
-function planFor(model: CompiledModel, atoms: Atom[], R: number, tol: number, wantPdf: boolean, pairOut: boolean): { plan: DampedPlan; K: number } {
+function planFor(model: CompiledModel, atoms: Atom[], R: number, tol: number, wantPdf: boolean, pairOut: boolean, pointwise: boolean): { plan: DampedPlan; K: number } {
   const lo = model.support[0];
   const span = Math.max(R - lo, 1e-6 * Math.max(model.scale, Math.abs(lo), 1e-300));
   // the inverted function is the continuous part less the kernels: its size bounds the images
@@ -175,7 +212,7 @@ function planFor(model: CompiledModel, atoms: Atom[], R: number, tol: number, wa
     // scale of the cdf sum: (1/pi) int |psi_c| / |beta - i t| up to tmax
     let S = (Mc * env0.t[0]) / (Math.PI * beta);
     for (let i = 0; i + 1 < env0.t.length && env0.t[i] < tmax; i++) S += (env0.env[i] * (env0.t[i + 1] - env0.t[i])) / (Math.PI * Math.max(env0.t[i], beta));
-    const round = Math.exp(U) * (1e-14 + 8 * EPS * Math.sqrt(K) + 2 * (model.cfRelError ?? 0)) * S;
+    const round = Math.exp(U) * sumAllowance(model, K, pointwise) * S;
     const bad = round / (tol / 4);
     if ((bad <= 1 && (best.bad > 1 || K < best.K)) || (bad > 1 && best.bad > 1 && bad < best.bad)) best = { U, K, bad };
   }

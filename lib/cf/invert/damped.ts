@@ -3,7 +3,7 @@ import type { GammaKernel } from "../damped-kernels";
 import type { SeverityKernel } from "../severity-kernel";
 import { kernelsDensityBeyond, kernelsMass } from "../damped-kernels";
 import { truncationAt } from "./nodes";
-import { dampedPlan, imageMoments, psiOf, type DampedPlan } from "./damped-transform";
+import { dampedPlan, exactStep, imageMoments, psiOf, sumAllowance, type DampedPlan } from "./damped-transform";
 
 export { dampedPlan, type DampedPlan } from "./damped-transform";
 export { dampedAt, dampedGrid, gridPeriod, type DampedPoint } from "./damped-eval";
@@ -68,6 +68,8 @@ export interface DampedSolution {
   maxFrequency: number;
   /** the frequency cut-off was capped: the truncation term is what it is, not the target */
   capped: boolean;
+  /** the nodes t_k = (k + 1/2) h are exact doubles and the sums' bounds carry the pointwise allowance (SUM_REL) */
+  pointwise: boolean;
   /** gamma kernels taken out of psi_c (added back in closed form) */
   kernels: readonly GammaKernel[];
   /** the one-claim term taken out of psi_c (added back in closed form) */
@@ -88,6 +90,11 @@ export interface DampedOptions {
   plan?: DampedPlan;
   /** how many points the solution will be evaluated at (weighs the two-claim term's cost; default 256) */
   points?: number;
+  /**
+   * the solution is evaluated by dampedAt only (no FFT): exact nodes and the derived rounding allowance SUM_REL, which
+   * lets the plan take a larger damping (fewer terms). Ignored when the period is fixed by a grid.
+   */
+  pointwise?: boolean;
 }
 
 /** Whether the damped inversion applies: a compound-type law bounded below with its damped transform. */
@@ -101,15 +108,17 @@ export function dampedSetup(model: CompiledModel, atoms: Atom[], R: number, o: D
   const pa = atoms.reduce((s, a) => s + a.p, 0);
   const Mc = Math.max(1 - pa, 0);
   const tol = o.tolerance;
-  const plan = o.plan ?? dampedPlan(model, atoms, R, tol, o.wantPdf, o.points);
+  const pointwise = !!o.pointwise && o.period === undefined;
+  const plan = o.plan ?? dampedPlan(model, atoms, R, tol, o.wantPdf, o.points, pointwise);
   const beta = plan.beta;
-  const T = o.period ?? plan.T;
+  // pointwise: the step rounded down to an exact one (the period grows by at most 2^-28 relative)
+  const h = pointwise ? exactStep((2 * Math.PI) / plan.T) : (2 * Math.PI) / (o.period ?? plan.T);
+  const T = pointwise ? (2 * Math.PI) / h : (o.period ?? plan.T);
   const notes: string[] = [];
   const psi = psiOf(model, atoms, beta, plan.pairOut);
   const pair = plan.pairOut ? (model.dampedSeverity?.pair ?? null) : null;
   const env = plan.env;
   const tmax = plan.tmax;
-  const h = (2 * Math.PI) / T;
   let K = Math.max(16, Math.ceil(tmax / h));
   let capped = false;
   // a slowly decaying transform (a density with a jump or a pole, e.g. at the support's start): the undamped
@@ -155,7 +164,7 @@ export function dampedSetup(model: CompiledModel, atoms: Atom[], R: number, o: D
   }
   const trunc = truncationAt(env, K * h);
   // per node: relative rounding of the CF and the accumulation, plus the absolute noise (atoms, numerical CF)
-  const rel = 1e-14 + 8 * EPS * Math.sqrt(K) + 2 * (model.cfRelError ?? 0);
+  const rel = sumAllowance(model, K, pointwise);
   const sumPdf = 2 * trunc.pdf + (h / Math.PI) * (rel * absP + nP);
   const sumCdf = 2 * trunc.cdf + (h / Math.PI) * (rel * absC + nC);
   const sumInt = (2 * trunc.cdf) / (K * h) + (h / Math.PI) * (rel * absI + nI);
@@ -232,6 +241,7 @@ export function dampedSetup(model: CompiledModel, atoms: Atom[], R: number, o: D
     q,
     maxFrequency: K * h,
     capped,
+    pointwise,
     notes,
   };
 }

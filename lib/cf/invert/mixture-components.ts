@@ -65,7 +65,7 @@ function dampedComponent(w: number, m: CompiledModel, R0: number, tol: number, t
   const Mc = Math.max(1 - atoms.reduce((s, a) => s + a.p, 0), 0);
   const budget = m.dampedKernels?.length || m.dampedSeverity ? MAX_K : DAMPED_BUDGET;
   const mean = m.momentIndex > 1 ? m.cumulants(1)[0] : null;
-  const setup = (R: number) => dampedSetup(m, atoms, R, { tolerance: tol, wantPdf: true, budget });
+  const setup = (R: number) => dampedSetup(m, atoms, R, { tolerance: tol, wantPdf: true, budget, pointwise: true });
   let R = R0;
   let s: DampedSolution | null = setup(R);
   if (!s) return null;

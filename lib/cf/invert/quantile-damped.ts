@@ -40,7 +40,7 @@ export function dampedQuantiles(model: CompiledModel, atoms: Atom[], p: Float64A
   };
   let prev = lo;
   for (let it = 0; it < 40; it++) {
-    const probe = dampedSetup(model, atoms, R, { tolerance: loose, wantPdf: false, budget });
+    const probe = dampedSetup(model, atoms, R, { tolerance: loose, wantPdf: false, budget, pointwise: true });
     if (!probe) return null;
     if (sfBound(probe, R) < tail / 2) {
       // the last step overshoots by up to 1.5x, and the final inversion's terms grow with the range: the smallest R
@@ -58,7 +58,7 @@ export function dampedQuantiles(model: CompiledModel, atoms: Atom[], p: Float64A
     prev = R;
     R = lo + 1.5 * (R - lo);
   }
-  const sol: DampedSolution | null = dampedSetup(model, atoms, R, { tolerance: tol, wantPdf: true, budget });
+  const sol: DampedSolution | null = dampedSetup(model, atoms, R, { tolerance: tol, wantPdf: true, budget, pointwise: true });
   if (!sol) return null;
   const errCdf = dampedAt(sol, R, false, false).errF;
   const s = sol!;
@@ -69,6 +69,8 @@ export function dampedQuantiles(model: CompiledModel, atoms: Atom[], p: Float64A
       return { F: m.below + v.Fc, S: m.above + (Mc - v.Fc), f: v.fc };
     },
     errCdf: errCdf + 4 * Number.EPSILON,
+    // the bound grows with x (the factor e^{beta (x - lo)} on the sums' errors): at the quantile it is far below errCdf
+    errAt: (x: number) => dampedAt(s, x, false, false).errF + 4 * Number.EPSILON,
     lo: lo - 1e-9 * Math.max(R - lo, 1e-300),
     hi: R,
     terms: s.K,

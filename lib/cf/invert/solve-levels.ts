@@ -5,6 +5,8 @@ import { checkDeadline } from "../deadline";
 export interface Evaluator {
   eval(x: number): { F: number; S: number; f: number };
   errCdf: number;
+  /** the cdf bound at one point where the backend has one (never above errCdf); the quantile's error then uses it */
+  errAt?: (x: number) => number;
   lo: number;
   hi: number;
   terms: number;
@@ -88,6 +90,12 @@ export function solveLevels(
       err[i] = qHi - q + dx;
       if (!warnedFlat) notes.push("a level falls on a flat stretch of the cdf: the left end is returned, the error spans the stretch");
       warnedFlat = true;
+    } else if (r.f > 0 && ev.errAt) {
+      // the bound at the bracket's upper end (the larger of the two where the bound grows with x, as the damped
+      // route's does), checked against the bracket it implies
+      const e0 = Math.min(ev.errAt(q + (2 * e) / r.f), e);
+      const eq = Math.max(e0, ev.errAt(q + (2 * e0) / r.f), ev.errAt(q - (2 * e0) / r.f));
+      err[i] = (2 * Math.min(eq, e)) / r.f + r.width;
     } else {
       err[i] = r.f > 0 ? (2 * e) / r.f + r.width : Infinity;
     }
