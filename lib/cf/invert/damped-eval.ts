@@ -31,7 +31,7 @@ export interface DampedPoint {
 
 /** Dekker's exact product (Ogita, Rump & Oishi 2005, TwoProduct): a b = out[0] + out[1] exactly (no overflow) */
 const SPLIT = 134217729;
-function twoProduct(a: number, b: number, out: Float64Array): void {
+export function twoProduct(a: number, b: number, out: Float64Array): void {
   const p = a * b;
   let c = SPLIT * a;
   const ah = c - (c - a);

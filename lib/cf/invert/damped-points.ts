@@ -4,7 +4,8 @@ import type { DampedSolution } from "./damped";
 import { nextPowerOfTwo } from "../fftplan";
 import { checkDeadline } from "../deadline";
 import { sumOnGrid } from "./fft";
-import { takenOutAt } from "./damped-eval";
+import { takenOutAt, twoProduct } from "./damped-eval";
+import { FFT_REL } from "./damped-transform";
 import type { Nodes } from "./nodes";
 
 /** interpolation stencil: M equispaced grid values around the point (M/2 on each side) */
@@ -37,16 +38,23 @@ for (let j = 2; j <= M; j++) FACT *= j;
  * (the remainder of Lagrange interpolation, e.g. Atkinson, An Introduction to Numerical Analysis, thm 3.2).
  * Null when the FFT would cost more than the n pointwise sums.
  */
-export function pointsPlan(s: DampedSolution, n: number, target: number, wantPdf: boolean): { N: number; dC: number; dP: number } | null {
+export function pointsPlan(s: DampedSolution, n: number, target: number, wantPdf: boolean): PointsPlan | null {
   let dC = 0;
   let dP = 0;
+  let dP1 = 0;
   for (let k = 0; k < s.K; k++) {
-    const tm = Math.pow((k + 0.5) * s.h, M);
+    const t = (k + 0.5) * s.h;
+    const tm = Math.pow(t, M);
     dC += tm * Math.hypot(s.cRe[k], s.cIm[k]);
-    if (wantPdf) dP += tm * Math.hypot(s.pRe[k], s.pIm[k]);
+    if (wantPdf) {
+      const a = Math.hypot(s.pRe[k], s.pIm[k]);
+      dP += tm * a;
+      dP1 += t * a;
+    }
   }
   dC *= s.h / Math.PI;
   dP *= s.h / Math.PI;
+  dP1 *= s.h / Math.PI;
   const D = Math.max(dC, dP);
   if (!(D > 0) || !(target > 0)) return null;
   const dx = Math.pow((target * FACT) / (NODE_POLY * D), 1 / M);
@@ -55,7 +63,47 @@ export function pointsPlan(s: DampedSolution, n: number, target: number, wantPdf
   // cost in multiply-adds: the FFTs (5 N log2 N each) and the node loads, against n K per pointwise sum
   const passes = wantPdf ? 2 : 1;
   if (passes * (5 * N * Math.log2(N) + s.K) + n * M * passes >= passes * n * s.K) return null;
-  return { N, dC, dP };
+  return { N, dC, dP, dP1 };
+}
+
+/** the plan: FFT size, bounds on the M-th derivatives of the cdf and density sums, and on the density sum's first */
+export interface PointsPlan {
+  N: number;
+  dC: number;
+  dP: number;
+  dP1: number;
+}
+
+const TWO_PI_HI = 6.283185307179586;
+const TWO_PI_LO = 2.4492935982947064e-16;
+const tp = new Float64Array(2);
+
+/**
+ * The position u = (x - lo) N h / (2 pi) of x on the grid of spacing 2 pi / (N h), as its integer part and the fraction
+ * (out[0], out[1]), from y = x - lo split exactly (TwoSum), y h by Dekker's product and the division by 2 pi in
+ * double-double: the fraction is within a few eps of the exact one, whatever the size of u
+ */
+export function gridPosition(x: number, lo: number, h: number, N: number, out: Float64Array): void {
+  const yh = x - lo;
+  const bv = yh - x;
+  const yl = x - (yh - bv) + (-lo - bv);
+  twoProduct(yh, h, tp);
+  const p = tp[0] * N;
+  const e = (tp[1] + yl * h) * N;
+  const q1 = p / TWO_PI_HI;
+  twoProduct(q1, TWO_PI_HI, tp);
+  const q2 = (p - tp[0] - tp[1] + e - q1 * TWO_PI_LO) / TWO_PI_HI;
+  let j = Math.floor(q1);
+  let r = q1 - j + q2;
+  if (r < 0) {
+    j -= 1;
+    r += 1;
+  } else if (r >= 1) {
+    j += 1;
+    r -= 1;
+  }
+  out[0] = j;
+  out[1] = r;
 }
 
 /** Density and cdf of the continuous part at arbitrary points by the plan above, each value with its bound. */
@@ -63,7 +111,7 @@ export function dampedPoints(
   s: DampedSolution,
   xs: Float64Array,
   wantPdf: boolean,
-  plan: { N: number; dC: number; dP: number },
+  plan: PointsPlan,
 ): { fc: Float64Array; Fc: Float64Array; errF: Float64Array; errf: Float64Array } {
   const { N } = plan;
   const dx = s.T / N;
@@ -80,26 +128,52 @@ export function dampedPoints(
   const w = new Float64Array(M);
   // the truncated sums are anti-periodic with period T: g(y + T) = -g(y) (t_k T = (k + 1/2) 2 pi)
   const at = (g: Float64Array, j: number) => (j < 0 ? -g[j + N] : j >= N ? -g[j - N] : g[j]);
+  // with exact nodes the grid's points are exactly j 2 pi / (N h): each point's grid position is found in double-double,
+  // so only the FFT's own rounding (FFT_REL, and the wrapped bins' sums) is left; without them, the setup's allowance
+  const exact = !!s.pointwise;
+  const wrap = exact ? (Math.ceil(s.K / N) + 1) * Number.EPSILON : 0;
+  const excess = exact ? Math.max(0, FFT_REL + wrap - s.rel) : 0;
+  const pos = new Float64Array(2);
   for (let i = 0; i < n; i++) {
     if ((i & 1023) === 0) checkDeadline("pointwise");
     const x = xs[i];
     const y = x - s.lo;
     if (y < 0) continue;
-    const u = y / dx;
-    const j0 = Math.floor(u) - M / 2 + 1;
-    // Lagrange weights on the stencil j0 .. j0 + M - 1 at u, and the node polynomial at u
+    let j: number;
+    let r: number;
+    if (exact) {
+      gridPosition(x, s.lo, s.h, N, pos);
+      j = pos[0];
+      r = pos[1];
+    } else {
+      const u = y / dx;
+      j = Math.floor(u);
+      r = u - j;
+    }
+    const j0 = j - M / 2 + 1;
+    // rho = u - j0: the point's position on the stencil j0 .. j0 + M - 1
+    const rho = r + (M / 2 - 1);
+    // Lagrange weights on the stencil at rho, and the node polynomial at rho
     let node = 1;
     for (let a = 0; a < M; a++) {
       let l = 1;
-      for (let b = 0; b < M; b++) if (b !== a) l *= (u - (j0 + b)) / (a - b);
+      for (let b = 0; b < M; b++) if (b !== a) l *= (rho - b) / (a - b);
       w[a] = l;
-      node *= Math.abs(u - (j0 + a));
+      node *= Math.abs(rho - a);
     }
     let vC = 0;
     let vP = 0;
+    let aC = 0;
+    let aP = 0;
     for (let a = 0; a < M; a++) {
-      vC += w[a] * at(gC, j0 + a);
-      if (gP) vP += w[a] * at(gP, j0 + a);
+      const tc = w[a] * at(gC, j0 + a);
+      vC += tc;
+      aC += Math.abs(tc);
+      if (gP) {
+        const tq = w[a] * at(gP, j0 + a);
+        vP += tq;
+        aP += Math.abs(tq);
+      }
     }
     const interpC = (plan.dC * Math.pow(dx, M) * node) / FACT;
     const interpP = (plan.dP * Math.pow(dx, M) * node) / FACT;
@@ -111,11 +185,15 @@ export function dampedPoints(
     Fc[i] = Math.min(Math.max(g * vC + kv.F + s.cdfShift, 0), s.Mc);
     fc[i] = gP ? Math.max(g * vP + kv.f, 0) : 0;
     // the truncation part of the sums' bound holds at every y (no stencil factor); their rounding and CF-value parts
-    // sit in the grid values and pass through the weights (times the Lebesgue sum)
-    const roundC = s.sumCdf - s.truncCdf;
-    const roundP = s.sumPdf - s.truncPdf;
-    errF[i] = g * (s.truncCdf + leb * roundC + interpC + 4 * M * Number.EPSILON * leb * Math.abs(vC)) + s.aliasCdf + kv.err;
-    errf[i] = g * (s.truncPdf + leb * roundP + interpP + 4 * M * Number.EPSILON * leb * Math.abs(vP)) + s.aliasPdf + kv.errf;
+    // sit in the grid values and pass through the weights (times the Lebesgue sum); the weights and the stencil's sum
+    // round within (3 M + 4) eps of sum |w_a g_a|; rho's own rounding (4 eps of a grid step) moves the point by
+    // 4 eps dx, over which the sums change by at most their derivative's bound (h/pi) sum t_k |c_k| <= scaleP
+    const roundC = s.sumCdf - s.truncCdf + excess * s.scaleC;
+    const roundP = s.sumPdf - s.truncPdf + excess * s.scaleP;
+    const wr = (3 * M + 4) * Number.EPSILON;
+    const shift = 8 * Number.EPSILON * dx;
+    errF[i] = g * (s.truncCdf + leb * roundC + interpC + wr * aC + shift * s.scaleP) + s.aliasCdf + kv.err;
+    errf[i] = g * (s.truncPdf + leb * roundP + interpP + wr * aP + shift * plan.dP1) + s.aliasPdf + kv.errf;
   }
   return { fc, Fc, errF, errf };
 }

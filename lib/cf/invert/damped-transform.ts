@@ -31,11 +31,28 @@ export function exactStep(h: number): number {
  * relative error twice, except where psi is formed from the severity's transform (severityPsi), whose per-node noise
  * already carries the propagated CF error.
  */
-export function sumAllowance(model: CompiledModel, K: number, pointwise: boolean): number {
+export function sumAllowance(model: CompiledModel, K: number, pointwise: Exactness): number {
   const cf = 2 * (model.cfRelError ?? 0);
   if (!pointwise) return 1e-14 + 8 * EPS * Math.sqrt(K) + cf;
-  return SUM_REL + (model.dampedSeverity?.count && model.support[0] === 0 ? 0 : cf);
+  return (pointwise === "interpolated" ? FFT_REL : SUM_REL) + (model.dampedSeverity?.count && model.support[0] === 0 ? 0 : cf);
 }
+
+/**
+ * How the sums of a solution are evaluated: false (FFT on a grid the request fixes: nodes rounded, the allowance
+ * 1e-14 + 8 eps sqrt(K)), true (exact nodes, pointwise sums only: SUM_REL), "interpolated" (exact nodes, the sums by one
+ * FFT on the solution's own grid, see damped-points.ts, or pointwise: FFT_REL)
+ */
+export type Exactness = boolean | "interpolated";
+
+/**
+ * Rounding of an FFT of the sums per unit of sum |c_k| on the solution's own grid (no pre-rotation, exact nodes): each
+ * radix-2 level of the transform adds at most about 4.5 unit roundoffs of the inputs' absolute sum (a twiddle multiply
+ * and an add; the partial transforms at one level partition the inputs, so their errors add to at most that per
+ * level: Higham, Accuracy and Stability of Numerical Algorithms, 2nd ed., sec. 24.1, componentwise), taken as 8 eps a
+ * level for N up to 2^22, plus 16 eps for the post-rotation and the output products. The wrapped bins' accumulation
+ * (K/N terms a bin) is added where N is known (damped-points.ts).
+ */
+export const FFT_REL = (8 * 22 + 16) * EPS;
 
 /** per-node noise of psi_c: rounding of the atom subtraction plus twice the CF's declared absolute error */
 export function noiseOf(model: CompiledModel, atoms: Atom[]): number {
@@ -170,7 +187,7 @@ const PAIR_COST = 60;
  * rounding that e^U amplifies: the U in [2, 8] with the fewest terms whose rounding estimate stays below tol / 4.
  * With a two-claim term available, both plans are made and the cheaper for `points` evaluation points is kept.
  */
-export function dampedPlan(model: CompiledModel, atoms: Atom[], R: number, tol: number, wantPdf: boolean, points = 256, pointwise = false): DampedPlan {
+export function dampedPlan(model: CompiledModel, atoms: Atom[], R: number, tol: number, wantPdf: boolean, points = 256, pointwise: Exactness = false): DampedPlan {
   const plain = planFor(model, atoms, R, tol, wantPdf, false, pointwise);
   // the second plan only where it can pay: the plain plan's terms exceed what the term costs at the points
   const can = model.dampedSeverity?.count && model.dampedSeverity.pair && model.support[0] === 0 && plain.K > PAIR_COST * points;
@@ -179,7 +196,7 @@ export function dampedPlan(model: CompiledModel, atoms: Atom[], R: number, tol: 
   return pair.K + PAIR_COST * points < plain.K ? pair.plan : plain.plan;
 }
 
-function planFor(model: CompiledModel, atoms: Atom[], R: number, tol: number, wantPdf: boolean, pairOut: boolean, pointwise: boolean): { plan: DampedPlan; K: number } {
+function planFor(model: CompiledModel, atoms: Atom[], R: number, tol: number, wantPdf: boolean, pairOut: boolean, pointwise: Exactness): { plan: DampedPlan; K: number } {
   const lo = model.support[0];
   const span = Math.max(R - lo, 1e-6 * Math.max(model.scale, Math.abs(lo), 1e-300));
   // the inverted function is the continuous part less the kernels: its size bounds the images

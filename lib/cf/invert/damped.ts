@@ -3,7 +3,7 @@ import type { GammaKernel } from "../damped-kernels";
 import type { SeverityKernel } from "../severity-kernel";
 import { kernelsDensityBeyond, kernelsMass } from "../damped-kernels";
 import { truncationAt } from "./nodes";
-import { dampedPlan, exactStep, imageMoments, psiOf, sumAllowance, type DampedPlan } from "./damped-transform";
+import { dampedPlan, exactStep, imageMoments, psiOf, sumAllowance, type DampedPlan, type Exactness } from "./damped-transform";
 
 export { dampedPlan, type DampedPlan } from "./damped-transform";
 export { dampedAt, dampedGrid, gridPeriod, type DampedPoint } from "./damped-eval";
@@ -68,8 +68,12 @@ export interface DampedSolution {
   maxFrequency: number;
   /** the frequency cut-off was capped: the truncation term is what it is, not the target */
   capped: boolean;
-  /** the nodes t_k = (k + 1/2) h are exact doubles and the sums' bounds carry the pointwise allowance (SUM_REL) */
-  pointwise: boolean;
+  /** exact nodes t_k = (k + 1/2) h, and which rounding allowance the sums' bounds carry (see Exactness) */
+  pointwise: Exactness;
+  /** the allowance per unit of sum |c_k| in sumCdf etc., and (h/pi) sum |c_k|, (h/pi) sum |psi_k| it multiplies */
+  rel: number;
+  scaleC: number;
+  scaleP: number;
   /** gamma kernels taken out of psi_c (added back in closed form) */
   kernels: readonly GammaKernel[];
   /** the one-claim term taken out of psi_c (added back in closed form) */
@@ -94,7 +98,7 @@ export interface DampedOptions {
    * the solution is evaluated by dampedAt only (no FFT): exact nodes and the derived rounding allowance SUM_REL, which
    * lets the plan take a larger damping (fewer terms). Ignored when the period is fixed by a grid.
    */
-  pointwise?: boolean;
+  pointwise?: Exactness;
 }
 
 /** Whether the damped inversion applies: a compound-type law bounded below with its damped transform. */
@@ -108,7 +112,7 @@ export function dampedSetup(model: CompiledModel, atoms: Atom[], R: number, o: D
   const pa = atoms.reduce((s, a) => s + a.p, 0);
   const Mc = Math.max(1 - pa, 0);
   const tol = o.tolerance;
-  const pointwise = !!o.pointwise && o.period === undefined;
+  const pointwise: Exactness = o.period === undefined ? (o.pointwise ?? false) : false;
   const plan = o.plan ?? dampedPlan(model, atoms, R, tol, o.wantPdf, o.points, pointwise);
   const beta = plan.beta;
   // pointwise: the step rounded down to an exact one (the period grows by at most 2^-28 relative)
@@ -242,6 +246,9 @@ export function dampedSetup(model: CompiledModel, atoms: Atom[], R: number, o: D
     maxFrequency: K * h,
     capped,
     pointwise,
+    rel,
+    scaleC: (h / Math.PI) * absC,
+    scaleP: (h / Math.PI) * absP,
     notes,
   };
 }

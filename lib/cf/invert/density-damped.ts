@@ -55,7 +55,7 @@ export function dampedDensity(
     method = "fft-damped";
     gridSize = g.N;
   } else {
-    sol = dampedSetup(model, atoms, R, { tolerance: tol, wantPdf, budget, points: n, pointwise: n < 32 });
+    sol = dampedSetup(model, atoms, R, { tolerance: tol, wantPdf, budget, points: n, pointwise: n < 32 ? true : "interpolated" });
     if (!sol) return null;
     // many points: the sums once on a fine FFT grid and interpolated, the interpolation error inside tol / 16
     const pp = n >= 32 ? pointsPlan(sol, n, tol / (16 * Math.exp(sol.beta * (R - lo))), wantPdf) : null;
