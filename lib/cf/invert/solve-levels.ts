@@ -73,7 +73,7 @@ export function solveLevels(
     const upper = pi > 0.5;
     const target = upper ? 1 - pi : pi;
     const g = (v: { F: number; S: number }) => (upper ? target - v.S : v.F - target);
-    const r = rootMonotone(ev, g, L, R, spread);
+    const r = rootMonotone(ev, g, L, R, spread, { upper, target }, 1e-4 * e);
     let q = r.x;
     // flat stretch: F already within e of p a little to the left -> move to the stretch's left end
     // a step over which F must rise by 8 e unless the cdf is flat there
@@ -91,11 +91,8 @@ export function solveLevels(
       if (!warnedFlat) notes.push("a level falls on a flat stretch of the cdf: the left end is returned, the error spans the stretch");
       warnedFlat = true;
     } else if (r.f > 0 && ev.errAt) {
-      // the bound at the bracket's upper end (the larger of the two where the bound grows with x, as the damped
-      // route's does), checked against the bracket it implies
-      const e0 = Math.min(ev.errAt(q + (2 * e) / r.f), e);
-      const eq = Math.max(e0, ev.errAt(q + (2 * e0) / r.f), ev.errAt(q - (2 * e0) / r.f));
-      err[i] = (2 * Math.min(eq, e)) / r.f + r.width;
+      // |F(q) - p| <= |F(q) - F_h(q)| + |F_h(q) - p|: the cdf bound at q itself (the second part is in r.width)
+      err[i] = (2 * Math.min(ev.errAt(q), e)) / r.f + r.width;
     } else {
       err[i] = r.f > 0 ? (2 * e) / r.f + r.width : Infinity;
     }
@@ -104,6 +101,8 @@ export function solveLevels(
   return { x, err };
 }
 
+const LN8 = Math.log(8);
+
 /** Smallest root of a non-decreasing g on [L, R] (g(L) < 0 <= g(R)) by Newton steps kept inside the bracket. */
 export function rootMonotone(
   ev: Evaluator,
@@ -111,6 +110,8 @@ export function rootMonotone(
   L0: number,
   R0: number,
   spread: number,
+  tail?: { upper: boolean; target: number },
+  gTol = 0,
 ): { x: number; f: number; width: number } {
   let L = L0;
   let R = R0;
@@ -121,9 +122,23 @@ export function rootMonotone(
     const v = ev.eval(x);
     const gv = g(v);
     f = v.f;
+    // already within a small share of the cdf bound: further steps only chase rounding (the rest goes in the width)
+    if (gTol > 0 && Math.abs(gv) <= gTol && f > 0) return { x, f, width: 8 * Number.EPSILON * Math.max(Math.abs(x), 1e-3 * spread) + Math.abs(gv) / f };
     if (gv < 0) L = x;
     else R = x;
     let nx = f > 0 ? x - gv / f : NaN;
+    // far from the root a tail is closer to a power of x than to a line: Newton's step on log S (or log F) against
+    // log x, which a power law solves in one step; any step is kept inside the bracket, as before
+    if (!(nx > L && nx < R) && tail && x > 0 && f > 0) {
+      const m = tail.upper ? v.S : v.F;
+      if (m > 0 && tail.target > 0) {
+        // at most a factor 8 a step: near a density's singularity (f large) one step could otherwise land where a
+        // Newton step is below the stopping rule's size far from the root
+        const du = Math.max(-LN8, Math.min(LN8, (Math.log(m / tail.target) * m) / (x * f)));
+        const lx = x * Math.exp(tail.upper ? du : -du);
+        if (lx > L && lx < R) nx = lx;
+      }
+    }
     if (!(nx > L && nx < R)) nx = 0.5 * (L + R);
     const tolX = 4 * Number.EPSILON * Math.max(Math.abs(nx), 1e-3 * spread);
     if (Math.abs(nx - x) <= tolX || R - L <= tolX) {
