@@ -6,6 +6,8 @@ import { solveLevels, type Evaluator } from "./solve-levels";
 
 /** default cdf target of the quantile search (the request's tolerance when given) */
 const QUANTILE_TOLERANCE = 1e-10;
+/** growth of the range between the loose probes (the last one is trimmed by bisection before the final inversion) */
+const GROWTH = 2;
 
 /**
  * Quantiles and expected shortfall of an aggregate law bounded below by the damped inversion (./damped): the range
@@ -30,7 +32,7 @@ export function dampedQuantiles(model: CompiledModel, atoms: Atom[], p: Float64A
   if (!(R > lo)) R = lo + Math.max(model.scale, 1e-300);
   const Mc = Math.max(1 - atoms.reduce((s, a) => s + a.p, 0), 0);
   const split = (x: number) => atomMass(atoms, x);
-  // locate R with cheap loose inversions (growth 1.5), then invert once at the tolerance
+  // locate R with cheap loose inversions (growth GROWTH), then invert once at the tolerance
   const loose = Math.max(tol, Math.min(1e-7, tail / 100));
   // kernels taken out (pareto, weibull severities): what is left decays fast, so a long range is worth its terms
   const budget = model.dampedKernels?.length || model.dampedSeverity ? MAX_K : DAMPED_BUDGET;
@@ -43,7 +45,7 @@ export function dampedQuantiles(model: CompiledModel, atoms: Atom[], p: Float64A
     const probe = dampedSetup(model, atoms, R, { tolerance: loose, wantPdf: false, budget, pointwise: true });
     if (!probe) return null;
     if (sfBound(probe, R) < tail / 2) {
-      // the last step overshoots by up to 1.5x, and the final inversion's terms grow with the range: the smallest R
+      // the last step overshoots by up to GROWTH times, and the final inversion's terms grow with the range: the smallest R
       // past the previous one where the loose inversion still shows S + bound < tail / 2 (bisection, 12 steps)
       let a = prev;
       let b = R;
@@ -56,7 +58,7 @@ export function dampedQuantiles(model: CompiledModel, atoms: Atom[], p: Float64A
       break;
     }
     prev = R;
-    R = lo + 1.5 * (R - lo);
+    R = lo + GROWTH * (R - lo);
   }
   const sol: DampedSolution | null = dampedSetup(model, atoms, R, { tolerance: tol, wantPdf: true, budget, pointwise: true });
   if (!sol) return null;
