@@ -164,7 +164,7 @@ function subtractSeverity(k: SeverityKernel, beta: number, t: Float64Array, re: 
   }
 }
 
-function probe(model: CompiledModel, atoms: Atom[], beta: number, pairOut: boolean): Envelope {
+function probe(model: CompiledModel, atoms: Atom[], beta: number, pairOut: boolean): Envelope & { noise: Float64Array } {
   const tp = probeFrequencies(Math.max(model.scale, 1e-300));
   const pr = new Float64Array(tp.length);
   const pi = new Float64Array(tp.length);
@@ -176,7 +176,7 @@ function probe(model: CompiledModel, atoms: Atom[], beta: number, pairOut: boole
   // for the floor at each probe frequency in turn)
   const at = new Map<number, number>();
   for (let i = 0; i < tp.length; i++) at.set(tp[i], nz[i]);
-  return envelopeOf(tp, mag, (t) => at.get(t) ?? nz[0]);
+  return { ...envelopeOf(tp, mag, (t) => at.get(t) ?? nz[0]), noise: nz };
 }
 
 /** cost of the two-claim term at one point, in units of one frequency term (its panels against the transform's work) */
@@ -187,16 +187,34 @@ const PAIR_COST = 60;
  * rounding that e^U amplifies: the U in [2, 8] with the fewest terms whose rounding estimate stays below tol / 4.
  * With a two-claim term available, both plans are made and the cheaper for `points` evaluation points is kept.
  */
-export function dampedPlan(model: CompiledModel, atoms: Atom[], R: number, tol: number, wantPdf: boolean, points = 256, pointwise: Exactness = false): DampedPlan {
-  const plain = planFor(model, atoms, R, tol, wantPdf, false, pointwise);
+export function dampedPlan(
+  model: CompiledModel,
+  atoms: Atom[],
+  R: number,
+  tol: number,
+  wantPdf: boolean,
+  points = 256,
+  pointwise: Exactness = false,
+  budget = Infinity,
+): DampedPlan {
+  const plain = planFor(model, atoms, R, tol, wantPdf, false, pointwise, budget);
   // the second plan only where it can pay: the plain plan's terms exceed what the term costs at the points
   const can = model.dampedSeverity?.count && model.dampedSeverity.pair && model.support[0] === 0 && plain.K > PAIR_COST * points;
-  const pair = can ? planFor(model, atoms, R, tol, wantPdf, true, pointwise) : null;
+  const pair = can ? planFor(model, atoms, R, tol, wantPdf, true, pointwise, budget) : null;
   if (!pair) return plain.plan;
   return pair.K + PAIR_COST * points < plain.K ? pair.plan : plain.plan;
 }
 
-function planFor(model: CompiledModel, atoms: Atom[], R: number, tol: number, wantPdf: boolean, pairOut: boolean, pointwise: Exactness): { plan: DampedPlan; K: number } {
+function planFor(
+  model: CompiledModel,
+  atoms: Atom[],
+  R: number,
+  tol: number,
+  wantPdf: boolean,
+  pairOut: boolean,
+  pointwise: Exactness,
+  budget: number,
+): { plan: DampedPlan; K: number } {
   const lo = model.support[0];
   const span = Math.max(R - lo, 1e-6 * Math.max(model.scale, Math.abs(lo), 1e-300));
   // the inverted function is the continuous part less the kernels: its size bounds the images
@@ -227,11 +245,23 @@ function planFor(model: CompiledModel, atoms: Atom[], R: number, tol: number, wa
     if (!Number.isFinite(tmax)) tmax = env0.t[env0.t.length - 1];
     const K = Math.max(16, (tmax * T) / (2 * Math.PI));
     // scale of the cdf sum: (1/pi) int |psi_c| / |beta - i t| up to tmax
+    // and of the CF values' own noise, the same integral of the per-node noise (the probe's, largest first)
     let S = (Mc * env0.t[0]) / (Math.PI * beta);
-    for (let i = 0; i + 1 < env0.t.length && env0.t[i] < tmax; i++) S += (env0.env[i] * (env0.t[i + 1] - env0.t[i])) / (Math.PI * Math.max(env0.t[i], beta));
-    const round = Math.exp(U) * sumAllowance(model, K, pointwise) * S;
+    let Z = (env0.noise[0] * env0.t[0]) / (Math.PI * beta);
+    for (let i = 0; i + 1 < env0.t.length && env0.t[i] < tmax; i++) {
+      const w = (env0.t[i + 1] - env0.t[i]) / (Math.PI * Math.max(env0.t[i], beta));
+      S += env0.env[i] * w;
+      Z += env0.noise[i] * w;
+    }
+    const round = Math.exp(U) * (sumAllowance(model, K, pointwise) * S + (pointwise ? Z : 0));
     const bad = round / (tol / 4);
-    if ((bad <= 1 && (best.bad > 1 || K < best.K)) || (bad > 1 && best.bad > 1 && bad < best.bad)) best = { U, K, bad };
+    // within the budget of terms first (a plan past it is refused by the setup): there the fewest terms whose rounding
+    // is below tol / 4, else the smallest rounding (the bounds then state what is reached)
+    const fits = K <= budget;
+    const bestFits = best.K <= budget;
+    if (fits !== bestFits) {
+      if (fits) best = { U, K, bad };
+    } else if ((bad <= 1 && (best.bad > 1 || K < best.K)) || (bad > 1 && best.bad > 1 && bad < best.bad)) best = { U, K, bad };
   }
   const U = best.U;
   const beta = U / span;
