@@ -222,6 +222,7 @@ export function betaLaw(alpha: number, beta: number, a: number, b: number, name 
     logCf(t, re, im) {
       // equispaced t: from the first frequency on the rays' route every later one is on it too (contourLog falls with
       // tau); the rays are summed across t (raysBatch) from where the shortcuts' bound is within BETA_BATCH_ERROR
+      checkDeadline("beta-cf");
       let k0 = t.length;
       if (arithmeticNodes(t, 16)) {
         let kr = 0;
