@@ -3,6 +3,9 @@
 // the exact inputs and the double it returns, and a result that is exact must carry 0.
 import { describe, expect, it } from "vitest";
 import { add, div, exact, mul, powInt, sqrt, sub } from "@/lib/cf/moment-error";
+import { cumulantEst } from "@/lib/cf/cumulant-bounds";
+import { buildNode } from "@/lib/cf/compile";
+import type { Node } from "@/lib/cf/node";
 
 type Frac = { n: bigint; d: bigint };
 
@@ -94,5 +97,14 @@ describe("running-error arithmetic covers the exact rational result (BigInt frac
         expect(le(T, fmul(hi, hi)), `sqrt(${t}) below ${q.v + q.e}`).toBe(true);
       }
     }
+  });
+});
+
+describe("a node's running-error cumulants stay paired with its cumulants", () => {
+  it("a copy that replaces cumulants without attaching new ones has no bound (Infinity), never the stale one", () => {
+    const n = buildNode({ family: "gamma", shape: 2, rate: 3 });
+    expect(cumulantEst(n, 3).every((c) => c !== null && Number.isFinite(c.e))).toBe(true);
+    const moved: Node = { ...n, cumulants: (m) => n.cumulants(m).map((v, k) => (k === 0 && v !== null ? v + 1 : v)) };
+    expect(cumulantEst(moved, 3).map((c) => c?.e)).toEqual([Infinity, Infinity, Infinity]);
   });
 });
