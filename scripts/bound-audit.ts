@@ -217,8 +217,9 @@ function cumulants() {
 function momentSet() {
   const set = "moments";
   type Pair = [number, number] | null;
-  const f = read<{ cases: { name: string; model: Model; order: number; raw: Pair[]; central: Pair[]; cumulants: Pair[]; skewness: Pair; excessKurtosis: Pair }[] }>("moments/moments.json");
-  for (const k of f.cases) {
+  type MomentCase = { name: string; model: Model; order: number; raw: Pair[]; central: Pair[]; cumulants: Pair[]; skewness: Pair; excessKurtosis: Pair };
+  const cases = ["moments/moments.json", "moments/truncnorm.json"].flatMap((file) => read<{ cases: MomentCase[] }>(file).cases);
+  for (const k of cases) {
     const c = compiled(set, k.model);
     if (!c) continue;
     const m = guarded(`${set} moments ${k.name}`, () => moments(c, k.order));

@@ -20,7 +20,9 @@ interface Case {
   excessKurtosis: Pair;
   crossCheck: { maxRelativeDifference: number };
 }
-const fixture = JSON.parse(readFileSync(join(__dirname, "../fixtures/moments/moments.json"), "utf8")) as { cases: Case[] };
+const read = (file: string) => (JSON.parse(readFileSync(join(__dirname, "../fixtures/moments", file), "utf8")) as { cases: Case[] }).cases;
+// moments.json: generate.py; truncnorm.json: generate_truncnorm.py (both mpmath, two methods)
+const fixture = { cases: [...read("moments.json"), ...read("truncnorm.json")] };
 
 /** accuracy target for moments (relative) */
 const TARGET = 1e-10;

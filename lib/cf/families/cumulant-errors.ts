@@ -8,6 +8,7 @@ import {
   type Est, type EstList,
 } from "../moment-error";
 import { eulerianRow } from "./special";
+import { normalCdf } from "./dist";
 
 const E0 = exact(0);
 const x = exact;
@@ -266,3 +267,26 @@ export const oneMinusP0E = {
   negativeBinomial: (r: number, p: number) => neg(expm1(mul(x(r), log(x(p))))),
   binomial: (n: number, p: number) => neg(expm1(mul(x(n), log1p(x(-p))))),
 };
+
+/**
+ * truncated normal on [a, b]: the raw-moment recursion with Z = Phi(be) - Phi(al) and the end densities as the
+ * family computes them; Phi carries the relative accuracy its module documents (`accuracy` of normalDist,
+ * families/dist.ts) plus its slope (at most 1/sqrt(2 pi)) times the error of its rounded argument
+ */
+export function truncatedNormalE(mu: number, sigma: number, a: number, b: number, cdfAccuracy: number): (n: number) => EstList {
+  const z = (t: number): Est | null => (Number.isFinite(t) ? div(sub(x(t), x(mu)), x(sigma)) : null);
+  const al = z(a);
+  const be = z(b);
+  const PHI_SLOPE = 0.3989422804014328; // 1/sqrt(2 pi), rounded up
+  const Phi = (t: Est | null, sign: number, inf: number): Est => {
+    if (t === null) return x(inf);
+    const v = normalCdf(sign * t.v);
+    return { v, e: (cdfAccuracy * Math.abs(v) + PHI_SLOPE * t.e) * (1 + 2 ** -40) };
+  };
+  const upper = al !== null && al.v > 0;
+  const Z = upper ? sub(Phi(al, -1, 0), Phi(be, -1, 0)) : sub(Phi(be, 1, 1), Phi(al, 1, 0));
+  const sqrt2pi = sqrt(mul(x(2), PI));
+  const pdf = (t: Est | null): Est => (t === null ? E0 : div(exp(mul(x(-0.5), mul(t, t))), sqrt2pi));
+  const raw = truncatedNormalRawE(mu, sigma, a, b, Z, pdf(al), pdf(be));
+  return (n) => rawToCumulantsE(raw(n));
+}
