@@ -309,6 +309,18 @@ function sums() {
   }
 }
 
+function latticeSums() {
+  const set = "lattice-sums";
+  const f = read<{ cases: { model: Model; points: { x: number; pdf: string; cdf: string; sf: string; cdfErr: number }[]; levels: { p: number; q: string; qErr: number }[] }[] }>("lattice-sums/lattice-sums.json");
+  for (const k of f.cases) {
+    const c = compiled(set, k.model);
+    if (!c) continue;
+    // 22 significant digits written; cdfErr is the second method's difference
+    points(set, k.model, c, k.points.map((p) => ({ x: p.x, pdf: num(p.pdf), cdf: num(p.cdf), sf: num(p.sf) })), (v, i) => k.points[i].cdfErr + 1e-21 * Math.abs(v));
+    levels(set, k.model, c, k.levels.map((l) => ({ p: l.p, q: num(l.q), qErr: l.qErr })));
+  }
+}
+
 function stable() {
   const set = "stable";
   const f = read<{ points: { model: Model; x: number; pdf: string; cdf: string; sf: string; rel_diff: number | null }[] }>("stable/stable.json");
@@ -371,6 +383,7 @@ const SETS: [string, () => void][] = [
   ["compound/heavy", () => compoundHeavy("compound/heavy.json", "compound/heavy")],
   ["compound/heavy-sums", () => compoundHeavy("compound/heavy-sums.json", "compound/heavy-sums")],
   ["sums", sums],
+  ["lattice-sums", latticeSums],
   ["stable", stable],
   ["reference-layered", layered],
   ["reference-risk", risk],

@@ -7,6 +7,7 @@ import { validateModel } from "./validate";
 import { toLawKind } from "./kinds";
 import { MAX_LATTICE } from "./limits";
 import { layerNode } from "./layer";
+import { MONOTONE_ABS_CF, mixMajorant, repeatMajorant, scaleMajorant, selfMajorant, sumMajorant, uniformMajorant } from "./majorant";
 import type { DiscretiseOptions } from "./discretise";
 import { compoundNode, latticeNode, mixNode, repeatNode, sampleNode, scaleNode, shiftNode, sumNode } from "./operators";
 import { cumulantEst, withCumulantErrors } from "./cumulant-bounds";
@@ -32,9 +33,26 @@ export function buildNode(m: Model, opts: CompileOptions = {}): Node {
     const node = FAMILY_SPECS[m.family].build(m);
     const direct = FAMILY_SPECS[m.family].direct?.(m as unknown as FamilyParams);
     if (direct) node.direct = direct;
+    if (MONOTONE_ABS_CF.has(m.family)) node.logMajorant = selfMajorant(node);
+    // the Bessel form c0 + nu log z + log(sum) - z cancels terms of size |c0| + nu |log z| + z (|log z| <= 12 over the
+    // inversion's frequencies): its error is relative to them, not to |log phi| (checked against mpmath in
+    // tests/cf/numeric-cf-grid.test.ts)
+    if (m.family === "student_t") node.extraUlps = 16 * (2 + 12 * (m as unknown as { nu: number }).nu);
+    else if (m.family === "uniform") {
+      const u = m as unknown as { a: number; b: number };
+      node.logMajorant = uniformMajorant(u.b - u.a);
+    }
     return node;
   }
-  if ("sum" in m) return sumNode(m.sum.map(buildNode_));
+  if ("sum" in m) {
+    const cs = m.sum.map(buildNode_);
+    const node = sumNode(cs);
+    if (cs.length > 1) {
+      node.logMajorant = sumMajorant(cs);
+      node.extraUlps = childUlps(cs);
+    }
+    return node;
+  }
   if ("scale" in m) return scaled(m.scale, buildNode_(m.of));
   if ("shift" in m) return shifted(m.shift, buildNode_(m.of));
   return operatorNode(m, buildNode_, opts);
@@ -43,6 +61,8 @@ export function buildNode(m: Model, opts: CompileOptions = {}): Node {
 /** a X: the direct evaluation and a mixture's components follow the scale */
 function scaled(a: number, child: Node): Node {
   const node = scaleNode(a, child);
+  node.logMajorant = scaleMajorant(a, child);
+  node.extraUlps = child.extraUlps;
   if (!(a !== 0 && Number.isFinite(a))) return node;
   if (child.direct) node.direct = affineDirect(child.direct, a, 0);
   if (child.mixParts) node.mixParts = { weights: child.mixParts.weights, parts: child.mixParts.parts.map((c) => scaled(a, c)) };
@@ -52,6 +72,8 @@ function scaled(a: number, child: Node): Node {
 /** X + b: the direct evaluation and a mixture's components follow the shift */
 function shifted(b: number, child: Node): Node {
   const node = shiftNode(b, child);
+  node.logMajorant = child.logMajorant;
+  node.extraUlps = child.extraUlps;
   if (!Number.isFinite(b)) return node;
   if (child.direct) node.direct = affineDirect(child.direct, 1, b);
   if (child.mixParts) node.mixParts = { weights: child.mixParts.weights, parts: child.mixParts.parts.map((c) => shifted(b, c)) };
@@ -62,19 +84,39 @@ function shifted(b: number, child: Node): Node {
 function operatorNode(mIn: Model, buildNode_: (x: Model) => Node, opts: CompileOptions): Node {
   const m = mIn as Exclude<Model, FamilyModel>;
   if ("layer" in m) return layerNode(buildNode_(m.of), m.layer);
-  if ("repeat" in m) return repeatNode(m.repeat, buildNode_(m.of));
+  if ("repeat" in m) {
+    const child = buildNode_(m.of);
+    const node = repeatNode(m.repeat, child);
+    node.logMajorant = repeatMajorant(m.repeat, child);
+    node.extraUlps = (child.extraUlps ?? 0) * m.repeat;
+    return node;
+  }
   if ("mix" in m) {
     const weights = m.mix.map((c) => c.weight);
     const parts = m.mix.map((c) => buildNode_(c.of));
     const node = mixNode(weights, parts);
+    node.logMajorant = mixMajorant(weights, parts);
+    node.extraUlps = childUlps(parts);
     if (parts.length > 1) node.mixParts = { weights, parts };
     return node;
   }
-  if ("compound" in m) return compoundNode(buildNode_(m.compound.count), buildNode_(m.compound.each), opts.discretise === false ? null : (opts.discretise ?? { auto: true }));
+  if ("compound" in m) {
+    const count = buildNode_(m.compound.count);
+    const sev = buildNode_(m.compound.each);
+    const node = compoundNode(count, sev, opts.discretise === false ? null : (opts.discretise ?? { auto: true }));
+    // log P(phi_X) moves with phi_X by at most the count's slope |P'/P| (|phi_X| <= 1)
+    if (sev.extraUlps) node.extraUlps = sev.extraUlps * Math.max(1, count.cgfSlope ?? 1);
+    return node;
+  }
   if ("lattice" in m) return withCumulantErrors(latticeNode(m.lattice.origin, m.lattice.step, m.lattice.p), latticeE(m.lattice.origin, m.lattice.step, m.lattice.p));
   if ("sample" in m) return withCumulantErrors(sampleNode(m.sample, MAX_LATTICE, m.weights), sampleE(m.sample, m.weights));
   throw new Error("unreachable: validated model without a known node");
 }
+
+const childUlps = (cs: Node[]) => {
+  const s = cs.reduce((acc, c) => acc + (c.extraUlps ?? 0), 0);
+  return s > 0 ? s : undefined;
+};
 
 /** latticeTable returns null rather than a table whose dropped mass exceeds this. */
 export const USEFUL_TAIL = 1e-11;
@@ -141,6 +183,8 @@ export function toCompiled(node: Node): CompiledModel {
     ...(node.tailTerm && continuous ? { tailTerm: node.tailTerm } : {}),
     ...(node.powerIndices && node.powerIndices.length > 1 ? { powerIndices: node.powerIndices } : {}),
     ...(node.bounds ? { bounds: node.bounds } : {}),
+    ...(node.logMajorant ? { logAbsMajorant: node.logMajorant } : {}),
+    logCfUlps: 8 * Math.max(1, node.nodes) + (node.extraUlps ?? 0),
     ...(node.mixParts ? { components: lazyComponents(node.mixParts) } : {}),
     // read on access: a discretised compound adds its error bound to its notes when its table is built
     get notes() {

@@ -79,6 +79,10 @@ export interface Node {
   powerIndices?: number[];
   /** sums: the term with strictly the heaviest power tail, when it has a direct law */
   tailTerm?: TailTerm;
+  /** log of a non-increasing majorant of |phi| on t >= 0, where the tree gives one (./majorant.ts) */
+  logMajorant?: import("./majorant").LogMajorant;
+  /** units of rounding of the tree's log-CF beyond 8 per node, relative to 1 + |L| (special functions that cancel) */
+  extraUlps?: number;
 }
 
 export const NONE_MOMENT = (n: number): (number | null)[] => new Array<number | null>(n).fill(null);

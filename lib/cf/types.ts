@@ -67,6 +67,10 @@ export interface CompiledModel {
   readonly direct?: DirectLaw;
   /** sums: every power-tail index of the terms (Richardson in the period takes its exponents from all of them) */
   readonly powerIndices?: number[];
+  /** units of rounding of logCf relative to 1 + |log phi| (lib/cf/invert/part.ts cfRelError) */
+  logCfUlps?: number;
+  /** log of a non-increasing majorant of |phi| on t >= 0 (M(t) >= sup_{s >= t} |phi(s)|), where the tree gives one */
+  logAbsMajorant?(t: Float64Array, out: Float64Array): void;
   /** sums: the term with the heaviest power tail, when it has a direct law (see TailTerm) */
   readonly tailTerm?: TailTerm;
   /** when the law is lattice and can be tabulated (finite lattices, Panjer for compounds, or the opt-in

@@ -5,7 +5,8 @@ import { describe, expect, it } from "vitest";
 import { checkAnswers, InvariantViolation } from "../support/invariants";
 import { KNOWN_DEFECTS } from "../support/known-defects";
 
-describe("known defects (skipped by the property tests)", () => {
+// an empty list (every defect fixed) skips the suite
+describe.skipIf(KNOWN_DEFECTS.length === 0)("known defects (skipped by the property tests)", () => {
   for (const d of KNOWN_DEFECTS) {
     it(`still there (remove the entry when this fails): ${d.what}`, () => {
       expect(() => checkAnswers(d.model)).toThrow(InvariantViolation);

@@ -2,11 +2,12 @@
 // equispaced frequency grids the inversion uses (one quadrature rule shared by all nodes) and one frequency at a time,
 // against mpmath at 30 digits (tests/fixtures/cf-reference/generate_grid.py: two independent methods per value, their
 // difference stored beside it). Tolerance: the absolute error bound the model declares (cfAbsError), and for a CF
-// declared closed-form (the Student t) the relative error the inversion assumes for such CFs (CF_REL).
+// declared closed-form (the Student t) the relative error the inversion derives for such CFs from |log phi|
+// (cfRelError in lib/cf/invert/part.ts).
 import { afterAll, describe, it } from "vitest";
 import { readFileSync } from "node:fs";
 import { compile } from "@/lib/cf";
-import { CF_REL } from "@/lib/cf/invert/shared";
+import { cfRelError, cfUlps } from "@/lib/cf/invert/part";
 import { closeC, record, worst } from "./model-assert";
 
 interface Row {
@@ -41,12 +42,16 @@ describe("numerical CFs on the inversion's equispaced grids vs mpmath (generate_
     const re = new Float64Array(K);
     const im = new Float64Array(K);
     model.cf(t, re, im);
+    const lre = new Float64Array(K);
+    const lim = new Float64Array(K);
+    model.logCf(t, lre, lim);
+    const relOf = (k: number) => cfRelError(cfUlps(model), lre[k], lim[k], t[k], 0);
     const one = new Float64Array(1);
     const r1 = new Float64Array(1);
     const i1 = new Float64Array(1);
     for (const r of rows) {
       if (t[r.k] !== r.t) throw new Error(`grid node ${r.k} is ${t[r.k]}, the fixture has ${r.t}`);
-      const tol = { abs: bound, rel: CF_REL };
+      const tol = { abs: bound, rel: relOf(r.k) };
       const er = Number(r.re);
       const ei = Number(r.im);
       const what = `${family} ${JSON.stringify(params)} at t = ${r.t} (grid h = ${h}, node ${r.k})`;
@@ -56,7 +61,7 @@ describe("numerical CFs on the inversion's equispaced grids vs mpmath (generate_
       model.cf(one, r1, i1);
       const dOne = closeC(r1[0], i1[0], er, ei, tol, `${what}, alone`);
       const mag = Math.hypot(er, ei);
-      const allowed = Math.max(bound, CF_REL * mag);
+      const allowed = Math.max(bound, relOf(r.k) * mag);
       record(`${family} grid`, (dGrid * (mag > 0 ? mag : 1)) / allowed);
       record(`${family} alone`, (dOne * (mag > 0 ? mag : 1)) / allowed);
     }

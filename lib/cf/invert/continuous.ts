@@ -18,6 +18,7 @@ import {
   nPoints,
   requestPoints,
   roundingOf,
+  ymaxOf,
   type Layout,
   type PartOptions,
   type PartOutput,
@@ -223,7 +224,7 @@ function lightPath(
     const es = new Float64Array(ex.length);
     sumPointwise(nodes, part.center, ex, null, ec, es);
     const trunc = truncationAt(env, K * h);
-    const round = roundingOf(part, nodes);
+    const round = roundingOf(part, nodes, ymaxOf(req, part.center, a, b), layout ? layout.N : 0);
     const kTail = kernelOutside(part, a, b);
     const sumErrCdf = 2 * trunc.cdf + round.cdf;
     const aliasCore = 2 * (Math.abs(ec[0]) + kTail);

@@ -26,6 +26,7 @@ import {
   nPoints,
   requestPoints,
   roundingOf,
+  ymaxOf,
   type Layout,
   type PartOptions,
   type PartOutput,
@@ -110,7 +111,7 @@ export function heavyPath(
     const amp = richardsonAmplification(expC, lev + 1);
     const best = { pdf: pdf ? rowP[lev] : null, cdf: rowC[lev], sf: rowS[lev] };
     const trunc = truncationAt(env, K * h);
-    const round = roundingOf(part, nodes);
+    const round = roundingOf(part, nodes, ymaxOf(req, part.center, a, a + T), layout ? layout.N : 0);
     if (prevBest) {
       cdfErr = 2 * Math.max(maxDiff(best.cdf, prevBest.cdf), maxDiff(best.sf, prevBest.sf), maxDiff(best.cdf, rowC[lev - 1]));
       pdfErr = best.pdf && prevBest.pdf ? 2 * Math.max(maxDiff(best.pdf, prevBest.pdf), maxDiff(best.pdf, rowP[lev - 1])) : NaN;

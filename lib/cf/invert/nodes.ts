@@ -80,7 +80,17 @@ export function probeEnvelope(part: ContinuousPart, scale: number): Envelope {
   }
   const mag = new Float64Array(n);
   for (let i = 0; i < n; i++) mag[i] = Math.hypot(re[i], im[i]);
-  return envelopeOf(t, mag, nf);
+  const sampled = envelopeOf(t, mag, nf);
+  // samples bound |phi| between probes only where it is monotone; the model's majorant (./majorant.ts) bounds it
+  // everywhere, and is used when it applies to the inverted part (no atoms, kernels or tail law subtracted) and decays
+  const maj = part.model.logAbsMajorant;
+  if (!maj || part.atoms.length > 0 || part.kernels.length > 0 || part.tail) return sampled;
+  const lm = new Float64Array(n);
+  maj(t, lm);
+  for (let i = 0; i < n; i++) mag[i] = Math.max(mag[i], Math.exp(lm[i]) / part.weight);
+  const bound = envelopeOf(t, mag, nf);
+  if (!Number.isFinite(bound.tailCdf[0])) return sampled;
+  return { ...bound, decay: sampled.decay, decayClean: sampled.decayClean };
 }
 
 /** Envelope from sampled magnitudes |phi(t_i)| on the geometric probe (PER_OCTAVE per octave), values below nf(t) as 0. */
@@ -175,6 +185,14 @@ export interface Nodes {
   absCdf: number;
   absPdf: number;
   mass: number;
+  /** (1/pi) sum e_k |phi_k| / (k+1/2) and (h/pi) sum e_k |phi_k|, e_k the relative error of phi_k (part.ts cfRelError) */
+  cfErrCdf?: number;
+  cfErrPdf?: number;
+  /** (h/pi) sum (k+1/2) |phi_k| (the phase rounding of the density sum grows with t_k) */
+  absPdfMoment?: number;
+  /** (1/pi) sqrt(sum |phi_k|^2 / (k+1/2)^2) and (h/pi) sqrt(sum |phi_k|^2): the 2-norms the FFT's rounding scales with */
+  l2Cdf?: number;
+  l2Pdf?: number;
 }
 
 const NODE_BLOCK = 1 << 16;
@@ -185,17 +203,23 @@ export function buildNodes(part: ContinuousPart, h: number, K: number): Nodes {
   for (let k = 0; k < K; k++) t[k] = (k + 0.5) * h;
   const re = new Float64Array(K);
   const im = new Float64Array(K);
+    const rel = new Float64Array(K);
   // in blocks (as probeEnvelope does), with the deadline checked between them: K reaches millions for densities
   // with kinks, and one call over all nodes ran for many seconds past a deadline
   for (let i0 = 0; i0 < K; i0 += NODE_BLOCK) {
     if (i0 > 0) checkDeadline("nodes");
     const i1 = Math.min(K, i0 + NODE_BLOCK);
-    evalPart(part, t.subarray(i0, i1), re.subarray(i0, i1), im.subarray(i0, i1));
+    evalPart(part, t.subarray(i0, i1), re.subarray(i0, i1), im.subarray(i0, i1), rel.subarray(i0, i1));
   }
   const wre = new Float64Array(K);
   const wim = new Float64Array(K);
   let ac = 0;
   let ap = 0;
+  let ec = 0;
+  let ep = 0;
+  let am = 0;
+  let q2c = 0;
+  let q2p = 0;
   for (let k = 0; k < K; k++) {
     const inv = 1 / (k + 0.5);
     wre[k] = re[k] * inv;
@@ -203,6 +227,28 @@ export function buildNodes(part: ContinuousPart, h: number, K: number): Nodes {
     const a = Math.hypot(re[k], im[k]);
     ac += a * inv;
     ap += a;
+    ec += rel[k] * a * inv;
+    ep += rel[k] * a;
+    am += (k + 0.5) * a;
+    q2c += a * inv * (a * inv);
+    q2p += a * a;
   }
-  return { h, K, re, im, wre, wim, absCdf: ac / Math.PI, absPdf: (ap * h) / Math.PI, mass: part.mass };
+  // the sums of non-negative terms above carry relative errors below K eps: 2 (1 + K eps) covers them
+  const g = 1 + K * Number.EPSILON;
+  return {
+    h,
+    K,
+    re,
+    im,
+    wre,
+    wim,
+    absCdf: (ac * g) / Math.PI,
+    absPdf: (ap * h * g) / Math.PI,
+    mass: part.mass,
+    cfErrCdf: (ec * g) / Math.PI,
+    cfErrPdf: (ep * h * g) / Math.PI,
+    absPdfMoment: (am * h * g) / Math.PI,
+    l2Cdf: (Math.sqrt(q2c * g) * g) / Math.PI,
+    l2Pdf: (Math.sqrt(q2p * g) * h * g) / Math.PI,
+  };
 }

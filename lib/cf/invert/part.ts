@@ -37,6 +37,22 @@ export interface ContinuousPart {
   tail?: TailTerm;
 }
 
+/**
+ * Relative error of one CF value phi = exp(L) e^{-i t c} computed from the model's log-CF L: each node of the tree
+ * computes its part of L to `ulps` units of rounding relative to 1 + |Re L| + |Im L| (closed forms of a few operations;
+ * terms of a sum add with no cancellation in Re L <= 0), exp(Re L) adds |Re L| u + u, cos and sin of Im L add
+ * |Im L| u + 2u, and the recentring phase t c adds 2 |t c| u (Higham, Accuracy and Stability of Numerical Algorithms,
+ * 2nd ed., sec. 2.2 and 3.1: one rounding per elementary operation, errors of the argument carried through exp, cos, sin).
+ */
+export function cfRelError(ulps: number, lr: number, li: number, t: number, center: number): number {
+  return Number.EPSILON * ((ulps + 1) * (1 + Math.abs(lr) + Math.abs(li)) + 2 * Math.abs(t * center) + 3);
+}
+
+/** units of rounding of the model's log-CF relative to 1 + |L|: 8 per node of the tree plus what special functions add */
+export function cfUlps(model: CompiledModel): number {
+  return model.logCfUlps ?? 8 * Math.max(1, model.nodes);
+}
+
 /** The model's typed bound on the absolute error of its CF values. */
 export function declaredCfError(model: CompiledModel): number {
   // |phi| <= 1: a relative error bound is an absolute one too
@@ -78,9 +94,23 @@ export function tailLawAt(term: TailTerm, x: number): { pdf: number; cdf: number
  * phi_part(t) = [ (phi(t) - sum_j p_j e^{i t x_j}) / w  -  kernels(t) - phi_G(t) ] e^{-i t c}, written into (re, im).
  * Scratch-free apart from what the model needs; called once per node block, never per x.
  */
-export function evalPart(part: ContinuousPart, t: Float64Array, re: Float64Array, im: Float64Array): void {
+export function evalPart(part: ContinuousPart, t: Float64Array, re: Float64Array, im: Float64Array, rel?: Float64Array): void {
   const n = t.length;
-  part.model.cf(t, re, im);
+  part.model.logCf(t, re, im);
+  const ulps = cfUlps(part.model);
+  for (let i = 0; i < n; i++) {
+    const lr = re[i];
+    const li = im[i];
+    if (rel) rel[i] = cfRelError(ulps, lr, li, t[i], part.center);
+    const m = Math.exp(lr);
+    if (m === 0 || Number.isNaN(m)) {
+      re[i] = m === 0 ? 0 : NaN;
+      im[i] = m === 0 ? 0 : NaN;
+    } else {
+      re[i] = m * Math.cos(li);
+      im[i] = m * Math.sin(li);
+    }
+  }
   const c = part.center;
   const atoms = part.atoms;
   const invW = 1 / part.weight;

@@ -1,7 +1,8 @@
 import { checkDeadline } from "../deadline";
 import type { Nodes } from "./nodes";
 
-const RESYNC = 64;
+/** nodes between exact phases (cos and sin of the node's angle); the recurrence drifts between them */
+export const RESYNC = 64;
 
 /**
  * Gil-Pelaez (1951) inversion by the mid-point trapezoid rule with nodes t_k = (k + 1/2) h, at arbitrary points:
@@ -39,22 +40,27 @@ export function sumPointwise(
       let zr = Math.cos(a0);
       let zi = -Math.sin(a0);
       const end = Math.min(K, k + RESYNC);
+      // each block summed on its own, then added: worst-case rounding gamma_{RESYNC + K / RESYNC} (shared.ts roundingOf)
+      let bP = 0;
+      let bC = 0;
       if (pdf) {
         for (; k < end; k++) {
-          accP += zr * re[k] - zi * im[k];
-          accC += zr * wim[k] + zi * wre[k];
+          bP += zr * re[k] - zi * im[k];
+          bC += zr * wim[k] + zi * wre[k];
           const nr = zr * rc - zi * rs;
           zi = zr * rs + zi * rc;
           zr = nr;
         }
       } else {
         for (; k < end; k++) {
-          accC += zr * wim[k] + zi * wre[k];
+          bC += zr * wim[k] + zi * wre[k];
           const nr = zr * rc - zi * rs;
           zi = zr * rs + zi * rc;
           zr = nr;
         }
       }
+      accP += bP;
+      accC += bC;
     }
     if (pdf) pdf[j] = (h / Math.PI) * accP;
     if (cdf) cdf[j] = half - accC / Math.PI;

@@ -3,7 +3,7 @@ import type { Atom } from "../types";
 import { sumOnGrid } from "./fft";
 import type { Envelope, Nodes } from "./nodes";
 import { kernelAt, tailLawAt, type ContinuousPart } from "./part";
-import { sumPointwise } from "./pointwise";
+import { RESYNC, sumPointwise } from "./pointwise";
 import type { LawShape } from "./range";
 import type { ErrorEstimate } from "./types";
 
@@ -55,8 +55,6 @@ export interface PartOutput {
 }
 
 export const EPS = Number.EPSILON;
-/** assumed relative error of the model's CF values (closed forms and sums through the log-CF) */
-export const CF_REL = 1e-14;
 export const MAX_TERMS = 1 << 22;
 export const MAX_FFT = 1 << 22;
 export const MAX_POINTWISE_WORK = 4e8;
@@ -114,9 +112,42 @@ export function kernelAbs(part: ContinuousPart): number {
   return s;
 }
 
-/** Rounding bounds of the sums (CF relative error, accumulation, atom subtraction) for cdf and pdf. */
-export function roundingOf(part: ContinuousPart, nodes: Nodes): { cdf: number; pdf: number } {
-  const acc = CF_REL + 8 * EPS * Math.sqrt(nodes.K);
+/**
+ * Rounding bounds of the mid-point sums (pointwise.ts, and fft.ts when fftN > 0) for cdf and pdf, derived term by term
+ * (Higham, Accuracy and Stability of Numerical Algorithms, 2nd ed.; u = eps / 2 rounded up to eps):
+ * - the CF values: their relative errors e_k (part.ts cfRelError) summed into nodes.cfErrCdf / cfErrPdf, and the
+ *   model's declared absolute error and the atom subtraction's rounding at every node;
+ * - the phases: the node angle t_k y is computed from y = x - c and h y with 3 roundings, an absolute phase error of
+ *   3 u t_k |y|; between exact phases (every RESYNC nodes) each rotation by (cos h y, sin h y) adds at most 5 u
+ *   (2 u in the rotation factor, 2 sqrt(2) u in the complex product), 5 u (RESYNC - 1) in all; the term's product and
+ *   the division by k + 1/2 add 4 u;
+ * - the summation: blocks of RESYNC terms, then the blocks, recursively: gamma_{RESYNC - 1 + ceil(K / RESYNC)} times
+ *   the sum of |terms| (sec. 4.2, eq. 4.4); on the FFT path each bin gathers ceil(K / N) nodes, and the radix-2
+ *   FFT's error is at most sqrt(N) log2(N) eta |c|_2 per value with eta = mu + gamma_4 (sqrt 2 + mu) <= 8 u for twiddles
+ *   from cos and sin (Theorem 24.2), |c|_2 <= sqrt(ceil(K / N)) times the nodes' 2-norm (l2Cdf, l2Pdf);
+ * - the final scaling by 1/pi and M/2 - s: 2 u of the result.
+ * ymax bounds |x - center| over the points (default: the period 2 pi / h, which holds the window).
+ */
+export function roundingOf(part: ContinuousPart, nodes: Nodes, ymax = (2 * Math.PI) / nodes.h, fftN = 0): { cdf: number; pdf: number } {
+  const U = EPS;
+  const K = nodes.K;
+  const blocks = Math.ceil(K / RESYNC);
+  const perTerm = U * (5 * (RESYNC - 1) + 4 + (RESYNC - 1 + blocks) + 2);
+  const phase = 3 * U * ymax;
+  let fftCdf = 0;
+  let fftPdf = 0;
+  if (fftN > 1) {
+    const fold = Math.ceil(K / fftN);
+    const lg = Math.log2(fftN);
+    const eta = 8 * U;
+    const c = Math.sqrt(fftN) * lg * eta * Math.sqrt(fold) / (1 - lg * eta);
+    fftCdf = c * (nodes.l2Cdf ?? nodes.absCdf) + U * fold * nodes.absCdf;
+    fftPdf = c * (nodes.l2Pdf ?? nodes.absPdf) + U * fold * nodes.absPdf;
+  }
+  // nodes built without the per-node sums (none today) fall back to the CF's rounding at 64 units
+  const cfCdf = nodes.cfErrCdf ?? 64 * U * nodes.absCdf;
+  const cfPdf = nodes.cfErrPdf ?? 64 * U * nodes.absPdf;
+  const moment = nodes.absPdfMoment ?? K * nodes.absPdf;
   let pa = 0;
   let xm = 0;
   for (const a of part.atoms) {
@@ -129,12 +160,25 @@ export function roundingOf(part: ContinuousPart, nodes: Nodes): { cdf: number; p
   // kernel values fall like lambda / t: summed over the nodes, h sum |G_1(t_k)| ~ lambda asinh(T / lambda)
   let kPdf = 0;
   for (const k of part.kernels) kPdf = Math.max(kPdf, k.rate * Math.asinh((nodes.K * nodes.h) / k.rate));
-  // a CF with a declared absolute error (numerical CFs) adds that error at every node
+  // a CF with a declared absolute error (numerical CFs) adds that error at every node: (1/pi) sum 1/(k + 1/2) <= (2 + ln K)/pi
   const cfAbs = part.cfAbsError / part.weight;
+  const harmonic = (2 + Math.log(K)) / Math.PI;
   return {
-    cdf: acc * nodes.absCdf + (atomTerm + cfAbs) * (Math.log(nodes.K + 1) + 1) + 8 * EPS * (1 + kAbs) * (Math.log(nodes.K + 1) + 1),
-    pdf: acc * nodes.absPdf + ((atomTerm + cfAbs) * nodes.K * nodes.h) / Math.PI + (8 * EPS * kAbs * kPdf) / Math.PI + 8 * EPS,
+    cdf:
+      perTerm * nodes.absCdf + phase * nodes.absPdf + cfCdf + fftCdf + 2 * U * (nodes.mass + nodes.absCdf) +
+      (atomTerm + cfAbs) * harmonic + 8 * EPS * (1 + kAbs) * (Math.log(nodes.K + 1) + 1),
+    pdf:
+      perTerm * nodes.absPdf + phase * nodes.h * moment + cfPdf + fftPdf + 2 * U * nodes.absPdf +
+      ((atomTerm + cfAbs) * nodes.K * nodes.h) / Math.PI + (8 * EPS * kAbs * kPdf) / Math.PI + 8 * EPS,
   };
+}
+
+/** Largest |x - center| over the request's points and the window [a, b] (the phases' size, for roundingOf). */
+export function ymaxOf(req: Request, center: number, a: number, b: number): number {
+  let m = Math.max(Math.abs(a - center), Math.abs(b - center));
+  if (req.kind === "grid") return Math.max(m, Math.abs(req.from - center), Math.abs(req.from + (req.count - 1) * req.dx - center));
+  for (let i = 0; i < req.x.length; i++) m = Math.max(m, Math.abs(req.x[i] - center));
+  return m;
 }
 
 export interface Layout {
