@@ -7,6 +7,7 @@ import { validateModel } from "./validate";
 import { toLawKind } from "./kinds";
 import { MAX_LATTICE } from "./limits";
 import { layerNode } from "./layer";
+import { lgamma } from "./families/special";
 import { MONOTONE_ABS_CF, mixMajorant, repeatMajorant, scaleMajorant, selfMajorant, sumMajorant, uniformMajorant } from "./majorant";
 import type { DiscretiseOptions } from "./discretise";
 import { compoundNode, latticeNode, mixNode, repeatNode, sampleNode, scaleNode, shiftNode, sumNode } from "./operators";
@@ -34,10 +35,10 @@ export function buildNode(m: Model, opts: CompileOptions = {}): Node {
     const direct = FAMILY_SPECS[m.family].direct?.(m as unknown as FamilyParams);
     if (direct) node.direct = direct;
     if (MONOTONE_ABS_CF.has(m.family)) node.logMajorant = selfMajorant(node);
-    // the Bessel form c0 + nu log z + log(sum) - z cancels terms of size |c0| + nu |log z| + z (|log z| <= 12 over the
-    // inversion's frequencies): its error is relative to them, not to |log phi| (checked against mpmath in
-    // tests/cf/numeric-cf-grid.test.ts)
-    if (m.family === "student_t") node.extraUlps = 16 * (2 + 12 * (m as unknown as { nu: number }).nu);
+    if (m.family === "student_t") {
+      const p = m as unknown as { nu: number; scale?: number };
+      node.logCfErr = studentTLogCfError(p.nu, p.scale ?? 1);
+    }
     else if (m.family === "uniform") {
       const u = m as unknown as { a: number; b: number };
       node.logMajorant = uniformMajorant(u.b - u.a);
@@ -49,7 +50,7 @@ export function buildNode(m: Model, opts: CompileOptions = {}): Node {
     const node = sumNode(cs);
     if (cs.length > 1) {
       node.logMajorant = sumMajorant(cs);
-      node.extraUlps = childUlps(cs);
+      node.logCfErr = sumErr(cs.map((c) => c.logCfErr));
     }
     return node;
   }
@@ -62,7 +63,8 @@ export function buildNode(m: Model, opts: CompileOptions = {}): Node {
 function scaled(a: number, child: Node): Node {
   const node = scaleNode(a, child);
   node.logMajorant = scaleMajorant(a, child);
-  node.extraUlps = child.extraUlps;
+  const ce = child.logCfErr;
+  if (ce) node.logCfErr = (t) => ce(Math.abs(a) * t);
   if (!(a !== 0 && Number.isFinite(a))) return node;
   if (child.direct) node.direct = affineDirect(child.direct, a, 0);
   if (child.mixParts) node.mixParts = { weights: child.mixParts.weights, parts: child.mixParts.parts.map((c) => scaled(a, c)) };
@@ -73,7 +75,7 @@ function scaled(a: number, child: Node): Node {
 function shifted(b: number, child: Node): Node {
   const node = shiftNode(b, child);
   node.logMajorant = child.logMajorant;
-  node.extraUlps = child.extraUlps;
+  node.logCfErr = child.logCfErr;
   if (!Number.isFinite(b)) return node;
   if (child.direct) node.direct = affineDirect(child.direct, 1, b);
   if (child.mixParts) node.mixParts = { weights: child.mixParts.weights, parts: child.mixParts.parts.map((c) => shifted(b, c)) };
@@ -88,7 +90,8 @@ function operatorNode(mIn: Model, buildNode_: (x: Model) => Node, opts: CompileO
     const child = buildNode_(m.of);
     const node = repeatNode(m.repeat, child);
     node.logMajorant = repeatMajorant(m.repeat, child);
-    node.extraUlps = (child.extraUlps ?? 0) * m.repeat;
+    const ce = child.logCfErr;
+    if (ce) node.logCfErr = (t) => m.repeat * ce(t);
     return node;
   }
   if ("mix" in m) {
@@ -96,7 +99,8 @@ function operatorNode(mIn: Model, buildNode_: (x: Model) => Node, opts: CompileO
     const parts = m.mix.map((c) => buildNode_(c.of));
     const node = mixNode(weights, parts);
     node.logMajorant = mixMajorant(weights, parts);
-    node.extraUlps = childUlps(parts);
+    // |sum w_j phi_j (1 + e_j)| against |sum w_j phi_j|: bounded by max e_j only where the parts do not cancel
+    node.logCfErr = sumErr(parts.map((c) => c.logCfErr));
     if (parts.length > 1) node.mixParts = { weights, parts };
     return node;
   }
@@ -105,7 +109,9 @@ function operatorNode(mIn: Model, buildNode_: (x: Model) => Node, opts: CompileO
     const sev = buildNode_(m.compound.each);
     const node = compoundNode(count, sev, opts.discretise === false ? null : (opts.discretise ?? { auto: true }));
     // log P(phi_X) moves with phi_X by at most the count's slope |P'/P| (|phi_X| <= 1)
-    if (sev.extraUlps) node.extraUlps = sev.extraUlps * Math.max(1, count.cgfSlope ?? 1);
+    const se = sev.logCfErr;
+    const slope = Math.max(1, count.cgfSlope ?? 1);
+    if (se) node.logCfErr = (t) => slope * se(t);
     return node;
   }
   if ("lattice" in m) return withCumulantErrors(latticeNode(m.lattice.origin, m.lattice.step, m.lattice.p), latticeE(m.lattice.origin, m.lattice.step, m.lattice.p));
@@ -113,10 +119,27 @@ function operatorNode(mIn: Model, buildNode_: (x: Model) => Node, opts: CompileO
   throw new Error("unreachable: validated model without a known node");
 }
 
-const childUlps = (cs: Node[]) => {
-  const s = cs.reduce((acc, c) => acc + (c.extraUlps ?? 0), 0);
-  return s > 0 ? s : undefined;
+const sumErr = (fs: (((t: number) => number) | undefined)[]) => {
+  const gs = fs.filter((f): f is (t: number) => number => !!f);
+  if (!gs.length) return undefined;
+  return (t: number) => gs.reduce((acc, g) => acc + g(t), 0);
 };
+
+/**
+ * Student t: the Bessel form c0 + nu log z + log(sum) - z (z = sqrt(nu) scale t) cancels terms of size |c0| + nu |log z|
+ * near t = 0 (and the normal-mixture form beyond nu = 100 sums O(1) terms about the peak); its error is relative to
+ * those terms, 16 units of rounding each (checked against mpmath in tests/cf/numeric-cf-grid.test.ts).
+ */
+function studentTLogCfError(nu: number, scale: number): (t: number) => number {
+  const c0 = Math.abs((1 - nu / 2) * Math.LN2 - lgamma(nu / 2));
+  const sq = Math.sqrt(nu) * scale;
+  const U = Number.EPSILON;
+  if (nu > 100) return () => 16 * U * (2 + 12 * Math.sqrt(nu));
+  return (t) => {
+    const z = sq * Math.abs(t);
+    return 16 * U * (2 + c0 + (z > 0 ? nu * Math.abs(Math.log(z)) : 0));
+  };
+}
 
 /** latticeTable returns null rather than a table whose dropped mass exceeds this. */
 export const USEFUL_TAIL = 1e-11;
@@ -184,7 +207,8 @@ export function toCompiled(node: Node): CompiledModel {
     ...(node.powerIndices && node.powerIndices.length > 1 ? { powerIndices: node.powerIndices } : {}),
     ...(node.bounds ? { bounds: node.bounds } : {}),
     ...(node.logMajorant ? { logAbsMajorant: node.logMajorant } : {}),
-    logCfUlps: 8 * Math.max(1, node.nodes) + (node.extraUlps ?? 0),
+    logCfUlps: 8 * Math.max(1, node.nodes),
+    ...(node.logCfErr ? { logCfExtraError: node.logCfErr } : {}),
     ...(node.mixParts ? { components: lazyComponents(node.mixParts) } : {}),
     // read on access: a discretised compound adds its error bound to its notes when its table is built
     get notes() {

@@ -81,8 +81,9 @@ export interface Node {
   tailTerm?: TailTerm;
   /** log of a non-increasing majorant of |phi| on t >= 0, where the tree gives one (./majorant.ts) */
   logMajorant?: import("./majorant").LogMajorant;
-  /** units of rounding of the tree's log-CF beyond 8 per node, relative to 1 + |L| (special functions that cancel) */
-  extraUlps?: number;
+  /** absolute error of log phi(t) beyond 8 units of rounding per node relative to 1 + |L| (special functions whose
+   *  terms cancel), at frequency t >= 0 */
+  logCfErr?: (t: number) => number;
 }
 
 export const NONE_MOMENT = (n: number): (number | null)[] => new Array<number | null>(n).fill(null);

@@ -69,6 +69,8 @@ export interface CompiledModel {
   readonly powerIndices?: number[];
   /** units of rounding of logCf relative to 1 + |log phi| (lib/cf/invert/part.ts cfRelError) */
   logCfUlps?: number;
+  /** absolute error of logCf at t beyond those units (special functions whose terms cancel) */
+  logCfExtraError?(t: number): number;
   /** log of a non-increasing majorant of |phi| on t >= 0 (M(t) >= sup_{s >= t} |phi(s)|), where the tree gives one */
   logAbsMajorant?(t: Float64Array, out: Float64Array): void;
   /** sums: the term with the heaviest power tail, when it has a direct law (see TailTerm) */

@@ -1,5 +1,6 @@
 import { evalPart, type ContinuousPart } from "./part";
 import { checkDeadline } from "../deadline";
+import { RESYNC } from "./pointwise";
 
 /**
  * Envelope of |phi_part(t)| sampled on a geometric probe (8 points per octave) and its tail integrals, used to
@@ -190,6 +191,10 @@ export interface Nodes {
   cfErrPdf?: number;
   /** (h/pi) sum (k+1/2) |phi_k| (the phase rounding of the density sum grows with t_k) */
   absPdfMoment?: number;
+  /** (1/pi) sum j_k |phi_k| / (k+1/2) and (h/pi) sum j_k |phi_k|, j_k = k mod RESYNC the rotations since the last exact
+   *  phase (the recurrence's drift grows with j_k) */
+  driftCdf?: number;
+  driftPdf?: number;
   /** (1/pi) sqrt(sum |phi_k|^2 / (k+1/2)^2) and (h/pi) sqrt(sum |phi_k|^2): the 2-norms the FFT's rounding scales with */
   l2Cdf?: number;
   l2Pdf?: number;
@@ -220,6 +225,8 @@ export function buildNodes(part: ContinuousPart, h: number, K: number): Nodes {
   let am = 0;
   let q2c = 0;
   let q2p = 0;
+  let dc = 0;
+  let dp = 0;
   for (let k = 0; k < K; k++) {
     const inv = 1 / (k + 0.5);
     wre[k] = re[k] * inv;
@@ -232,6 +239,9 @@ export function buildNodes(part: ContinuousPart, h: number, K: number): Nodes {
     am += (k + 0.5) * a;
     q2c += a * inv * (a * inv);
     q2p += a * a;
+    const j = k % RESYNC;
+    dc += j * a * inv;
+    dp += j * a;
   }
   // the sums of non-negative terms above carry relative errors below K eps: 2 (1 + K eps) covers them
   const g = 1 + K * Number.EPSILON;
@@ -250,5 +260,7 @@ export function buildNodes(part: ContinuousPart, h: number, K: number): Nodes {
     absPdfMoment: (am * h * g) / Math.PI,
     l2Cdf: (Math.sqrt(q2c * g) * g) / Math.PI,
     l2Pdf: (Math.sqrt(q2p * g) * h * g) / Math.PI,
+    driftCdf: (dc * g) / Math.PI,
+    driftPdf: (dp * h * g) / Math.PI,
   };
 }

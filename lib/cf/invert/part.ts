@@ -98,10 +98,11 @@ export function evalPart(part: ContinuousPart, t: Float64Array, re: Float64Array
   const n = t.length;
   part.model.logCf(t, re, im);
   const ulps = cfUlps(part.model);
+  const extra = part.model.logCfExtraError;
   for (let i = 0; i < n; i++) {
     const lr = re[i];
     const li = im[i];
-    if (rel) rel[i] = cfRelError(ulps, lr, li, t[i], part.center);
+    if (rel) rel[i] = cfRelError(ulps, lr, li, t[i], part.center) + (extra ? extra(t[i]) : 0);
     const m = Math.exp(lr);
     if (m === 0 || Number.isNaN(m)) {
       re[i] = m === 0 ? 0 : NaN;

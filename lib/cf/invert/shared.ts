@@ -119,8 +119,8 @@ export function kernelAbs(part: ContinuousPart): number {
  *   model's declared absolute error and the atom subtraction's rounding at every node;
  * - the phases: the node angle t_k y is computed from y = x - c and h y with 3 roundings, an absolute phase error of
  *   3 u t_k |y|; between exact phases (every RESYNC nodes) each rotation by (cos h y, sin h y) adds at most 5 u
- *   (2 u in the rotation factor, 2 sqrt(2) u in the complex product), 5 u (RESYNC - 1) in all; the term's product and
- *   the division by k + 1/2 add 4 u;
+ *   (2 u in the rotation factor, 2 sqrt(2) u in the complex product), 5 u (k mod RESYNC) at node k (nodes.driftCdf,
+ *   driftPdf); the term's product and the division by k + 1/2 add 4 u;
  * - the summation: blocks of RESYNC terms, then the blocks, recursively: gamma_{RESYNC - 1 + ceil(K / RESYNC)} times
  *   the sum of |terms| (sec. 4.2, eq. 4.4); on the FFT path each bin gathers ceil(K / N) nodes, and the radix-2
  *   FFT's error is at most sqrt(N) log2(N) eta |c|_2 per value with eta = mu + gamma_4 (sqrt 2 + mu) <= 8 u for twiddles
@@ -132,7 +132,10 @@ export function roundingOf(part: ContinuousPart, nodes: Nodes, ymax = (2 * Math.
   const U = EPS;
   const K = nodes.K;
   const blocks = Math.ceil(K / RESYNC);
-  const perTerm = U * (5 * (RESYNC - 1) + 4 + (RESYNC - 1 + blocks) + 2);
+  const perTerm = U * (4 + (Math.min(RESYNC, K) - 1 + blocks) + 2);
+  // the recurrence's drift, 5 u per rotation since the last exact phase, at each node's own position in its block
+  const driftCdf = 5 * U * (nodes.driftCdf ?? (RESYNC - 1) * nodes.absCdf);
+  const driftPdf = 5 * U * (nodes.driftPdf ?? (RESYNC - 1) * nodes.absPdf);
   const phase = 3 * U * ymax;
   let fftCdf = 0;
   let fftPdf = 0;
@@ -165,10 +168,10 @@ export function roundingOf(part: ContinuousPart, nodes: Nodes, ymax = (2 * Math.
   const harmonic = (2 + Math.log(K)) / Math.PI;
   return {
     cdf:
-      perTerm * nodes.absCdf + phase * nodes.absPdf + cfCdf + fftCdf + 2 * U * (nodes.mass + nodes.absCdf) +
+      perTerm * nodes.absCdf + driftCdf + phase * nodes.absPdf + cfCdf + fftCdf + 2 * U * (nodes.mass + nodes.absCdf) +
       (atomTerm + cfAbs) * harmonic + 8 * EPS * (1 + kAbs) * (Math.log(nodes.K + 1) + 1),
     pdf:
-      perTerm * nodes.absPdf + phase * nodes.h * moment + cfPdf + fftPdf + 2 * U * nodes.absPdf +
+      perTerm * nodes.absPdf + driftPdf + phase * nodes.h * moment + cfPdf + fftPdf + 2 * U * nodes.absPdf +
       ((atomTerm + cfAbs) * nodes.K * nodes.h) / Math.PI + (8 * EPS * kAbs * kPdf) / Math.PI + 8 * EPS,
   };
 }
