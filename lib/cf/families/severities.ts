@@ -16,7 +16,10 @@ import { inverseGammaDist, inverseGaussianDist, type DirectLaw } from "./dist";
  * E X^r = theta^r Gamma(alpha - r)/Gamma(alpha), r < alpha.
  */
 export function inverseGamma(alpha: number, theta: number): Node {
-  const th = Math.PI / 4;
+  // the path's density factor has modulus up to (1 / cos th)^alpha times the law's own: with th = pi/4 that is 2^(alpha/2),
+  // and the sum cancels to |phi| <= 1 (for alpha = 80 the CF was off by 1e-2, for alpha = 150 by 1e8, within its stated
+  // bound but useless); th <= 1.5 / sqrt(alpha) keeps the factor below e^1.2
+  const th = Math.min(Math.PI / 4, 1.5 / Math.sqrt(alpha));
   const strip = 0.75 * th;
   const lg = lgamma(alpha);
   const c1 = Math.cos(th);
@@ -86,8 +89,8 @@ export function inverseGamma(alpha: number, theta: number): Node {
     const aMin = Math.hypot(t[0], beta) * theta;
     let w = 1;
     for (let i = 0; i < 30; i++) w = Math.log((44 + Math.abs(lg) + alpha * Math.max(w, 0)) / c1);
-    // sin(psi + th) >= sin(pi/4) for psi in [0, pi/2]
-    const right = Math.min((44 - lg) / alpha, aMin > 0 ? Math.log(44 / (aMin * Math.SQRT1_2)) : Infinity);
+    // sin(psi + th) >= sin(th) for psi in [0, pi/2]
+    const right = Math.min((44 - lg) / alpha, aMin > 0 ? Math.log(44 / (aMin * s1)) : Infinity);
     const left = Math.min(-w, right - 45 / alpha);
     const n = quadratureNodes(Math.ceil((right - left) / hD) + 1, "inverse_gamma", "use a shape alpha nearer 1");
     const cRe = new Float64Array(n);
@@ -111,7 +114,7 @@ export function inverseGamma(alpha: number, theta: number): Node {
   };
   // the bound the batch's shortcuts add (expSumArithmetic): sum_j |c_j| <= the path density's integral (1/cos th)^alpha
   // (with beta >= 0 only lowering it), times (e/25! + 80 eps), plus 1e-21 per node
-  const batchError = Math.pow(Math.SQRT2, alpha) * 1.01 * (2e-25 + 80 * Number.EPSILON) + 1e-21 * 4096;
+  const batchError = Math.pow(1 / c1, alpha) * 1.01 * (2e-25 + 80 * Number.EPSILON) + 1e-21 * 4096;
   const dampedSingle = fromPhiDamped(phiDamped);
   const damped = (beta: number, t: Float64Array, re: Float64Array, im: Float64Array) => (arithmeticNodes(t) ? batch(beta, t, re, im) : dampedSingle(beta, t, re, im));
   const raw = (r: number) => theta ** r * Math.exp(lgamma(alpha - r) - lg);
