@@ -111,7 +111,8 @@ export function heavyPath(
     const amp = richardsonAmplification(expC, lev + 1);
     const best = { pdf: pdf ? rowP[lev] : null, cdf: rowC[lev], sf: rowS[lev] };
     const trunc = truncationAt(env, K * h);
-    const round = roundingOf(part, nodes, ymaxOf(req, part.center, a, a + T), layout ? layout.N : 0);
+    // the answer is for the request's points alone (no solution is kept for later points): their phases' size
+    const round = roundingOf(part, nodes, ymaxOf(req, part.center, part.center, part.center), layout ? layout.N : 0);
     if (prevBest) {
       cdfErr = 2 * Math.max(maxDiff(best.cdf, prevBest.cdf), maxDiff(best.sf, prevBest.sf), maxDiff(best.cdf, rowC[lev - 1]));
       pdfErr = best.pdf && prevBest.pdf ? 2 * Math.max(maxDiff(best.pdf, prevBest.pdf), maxDiff(best.pdf, rowP[lev - 1])) : NaN;
@@ -266,7 +267,8 @@ export function growLadder(lad: HeavyLadder): boolean {
   lad.levels.push(nd);
   lad.amp = richardsonAmplification(lad.expC, l + 1);
   const tr = truncationAt(lad.env, K * h);
-  const rd = roundingOf(lad.part, nd);
+  // phases up to |x - center| = T0 here; evalLadder adds what farther points need
+  const rd = roundingOf(lad.part, nd, lad.T0);
   lad.trC = Math.max(lad.trC, 2 * tr.cdf + rd.cdf);
   lad.trP = Math.max(lad.trP, 2 * tr.pdf + rd.pdf);
   lad.sumErrCdf = lad.amp * lad.trC;
@@ -312,6 +314,11 @@ export function evalLadder(
     S.push(richardsonRow(sf, S[l - 1], lad.expC));
   }
   const b = L - 1;
+  // the levels' rounding (growLadder) holds for |x - center| up to the first period T0; beyond it the phase rounding
+  // 3 u t_k |x - center| grows with the distance (shared.ts roundingOf)
+  let farPhase = 0;
+  const over = Math.abs(x - lad.part.center) - lad.T0;
+  if (over > 0) for (let l = 0; l < L; l++) farPhase = Math.max(farPhase, 3 * Number.EPSILON * over * lad.levels[l].absPdf);
   // the last elimination step's correction (an order above the error of R_LL), not the change from the previous diagonal
   // entry (two orders above): the quantile bounds built on it were 1 000 - 10 000 times the actual error
   const d = richardsonLastStep;
@@ -321,7 +328,7 @@ export function evalLadder(
     pdf: P[b][b] + k.pdf,
     cdf: C[b][b] + k.cdf,
     sf: S[b][b] + k.sf,
-    errCdf: Math.max(d(C), d(S)) + lad.sumErrCdf + lad.amp * imC + k.errCdf,
+    errCdf: Math.max(d(C), d(S)) + lad.sumErrCdf + lad.amp * (imC + farPhase) + k.errCdf,
     errPdf: d(P) + lad.sumErrPdf + richardsonAmplification(lad.expP, L) * imP + k.errPdf,
   };
 }
