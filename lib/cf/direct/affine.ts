@@ -46,5 +46,18 @@ export function affineDirect(law: DirectLaw, a: number, b: number): DirectLaw {
       out.pdfErr = out.pdfErr / aa + (Number.isFinite(out.pdf) ? 2 * Number.EPSILON * out.pdf : 0);
     },
     ...(q ? { quantile: (p: number) => (a > 0 ? a * q(p) + b : a * q(1 - p) + b) } : {}),
+    // int_c^inf S_Y = |a| int_{(c-b)/a}^inf S_X (a > 0), |a| int_-inf^{(c-b)/a} F_X (a < 0); likewise on the left; the
+    // rounding of (c - b)/a moves it by the tail mass there (at most 1) times that rounding
+    ...(law.stopLoss
+      ? {
+          stopLoss: (c: number, side: 1 | -1) => {
+            const x = (c - b) / a;
+            const r = law.stopLoss!(x, a > 0 ? side : ((-side) as 1 | -1));
+            if (!r) return null;
+            const dx = 2 * Number.EPSILON * (Math.abs(c) + Math.abs(b)) / aa + Number.EPSILON * Math.abs(x);
+            return { v: aa * r.v, e: aa * (r.e + dx) + 2 * Number.EPSILON * aa * r.v };
+          },
+        }
+      : {}),
   };
 }

@@ -191,8 +191,11 @@ export class NodeGrid {
 }
 
 const grids = new Map<string, NodeGrid>();
+// the last few laws asked for, compared as numbers (the map's string key is a cost of its own at every point)
+const recent: { alpha: number; beta: number; g: NodeGrid }[] = [];
 
 export function gridFor(alpha: number, beta: number): NodeGrid {
+  for (const r of recent) if (r.alpha === alpha && r.beta === beta) return r.g;
   const key = `${alpha}:${beta}`;
   let g = grids.get(key);
   if (!g) {
@@ -200,5 +203,7 @@ export function gridFor(alpha: number, beta: number): NodeGrid {
     g = new NodeGrid(stableSide(alpha, beta));
     grids.set(key, g);
   }
+  recent.unshift({ alpha, beta, g });
+  if (recent.length > 4) recent.pop();
   return g;
 }

@@ -34,11 +34,17 @@ interface Coeffs {
   phase: number;
 }
 const cache = new Map<string, Coeffs>();
+// the last few laws asked for, compared as numbers (the map's string key costs more than the series at far points)
+const recent: { alpha: number; beta: number; c: Coeffs }[] = [];
 
 function coeffsFor(alpha: number, beta: number): Coeffs {
+  for (const r of recent) if (r.alpha === alpha && r.beta === beta) return r.c;
   const key = `${alpha}:${beta}`;
   let c = cache.get(key);
-  if (c) return c;
+  if (c) {
+    remember(alpha, beta, c);
+    return c;
+  }
   const tb = beta * tanHalfPi(alpha);
   const theta0 = alpha < 1 && beta === 1 ? Math.PI / 2 : alpha > 1 && beta === -1 ? Math.PI / alpha - Math.PI / 2 : Math.atan(tb) / alpha;
   const logc = 0.5 * Math.log1p(tb * tb);
@@ -54,7 +60,13 @@ function coeffsFor(alpha: number, beta: number): Coeffs {
   }
   if (cache.size > 64) cache.clear();
   cache.set(key, c);
+  remember(alpha, beta, c);
   return c;
+}
+
+function remember(alpha: number, beta: number, c: Coeffs): void {
+  recent.unshift({ alpha, beta, c });
+  if (recent.length > 4) recent.pop();
 }
 
 export function stableTailSeries(alpha: number, beta: number, z: number): SeriesValue | null {
@@ -108,4 +120,37 @@ export function stableTailSeries(alpha: number, beta: number, z: number): Series
   pdf /= Math.PI;
   if (sfErr > 1e-9 * sf || pdfErr > 1e-9 * pdf) return null;
   return { pdf, sf, pdfErr, sfErr };
+}
+
+/**
+ * The stop-loss transform of the standard S1 law far in its right tail, pi(z) = int_z^inf sf(y) dy, from the tail series
+ * above integrated term by term (int_z^inf y^{-k alpha} dy = z^{1 - k alpha} / (k alpha - 1)); alpha > 1. Used only where
+ * the sf series itself is accepted at z (then at every y >= z too, its terms falling faster there), with the same rule:
+ * stop once a term is below 1e-13 of the sum, error 10 times the next term's size plus the terms' rounding.
+ */
+export function stableTailStopLoss(alpha: number, beta: number, z: number): { v: number; e: number } | null {
+  if (!(alpha > 1) || !stableTailSeries(alpha, beta, z)) return null;
+  const { lSf, sgn, size, phase } = coeffsFor(alpha, beta);
+  const lz = Math.log(z);
+  let v = 0;
+  let err = 0;
+  let prev = Infinity;
+  for (let k = 1; k <= MAX_TERMS; k++) {
+    const d = k * alpha - 1;
+    const lm = lSf[k] - (k * alpha - 1) * lz - Math.log(d);
+    const mag = Math.exp(lm);
+    if (!Number.isFinite(mag) || mag > prev) return null;
+    if (k > 1 && mag <= 1e-13 * Math.abs(v)) {
+      const d2 = (k + 1) * alpha - 1;
+      const next = Math.max(mag, Math.exp(lSf[k + 1] - d2 * lz - Math.log(d2)));
+      const e = (10 * next + err) / Math.PI;
+      v /= Math.PI;
+      return v > 0 && e <= 1e-9 * v ? { v, e } : null;
+    }
+    const t = sgn[k] * mag;
+    v += t;
+    err += 8 * Number.EPSILON * Math.abs(t) + Math.abs(t) * (2e-14 + 4 * Number.EPSILON * (size[k] + Math.abs(lm) + Math.abs(Math.log(d)))) + mag * 4 * Number.EPSILON * k * Math.abs(phase);
+    prev = mag;
+  }
+  return null;
 }

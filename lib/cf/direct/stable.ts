@@ -2,7 +2,7 @@ import { stableIntegrals } from "./stable-integral";
 import { stableOneFar } from "./stable-far";
 import { stableNearOne } from "./stable-near-one";
 import { tanHalfPi } from "./stable-kernel";
-import { stableTailSeries } from "./stable-series";
+import { stableTailSeries, stableTailStopLoss } from "./stable-series";
 import type { DirectLaw, DirectPoint } from "./types";
 import { lgamma } from "../families/special";
 import { cauchyDirect, normalDirect } from "./families";
@@ -52,6 +52,14 @@ export function stableDirect(alpha: number, beta: number, scale: number, loc: nu
     center: alpha < 1 && beta === 1 ? d1 + g : alpha < 1 && beta === -1 ? d1 - g : param === "S0" ? loc : d1,
     spread: g,
     at,
+    // far in a tail (alpha > 1, alpha != 2): the tail series integrated (./stable-series.ts); z < 0 by reflection
+    stopLoss: (c: number, side: 1 | -1) => {
+      const z = (side * (c - d1)) / g;
+      if (!(z > 0)) return null;
+      const r = stableTailStopLoss(alpha, side * beta, z);
+      // times g; the rounding of z moves pi by sf(z) |dz| g <= pi (2 eps (|c| + |d1|) / g) / z
+      return r ? { v: g * r.v, e: g * r.e + 4 * Number.EPSILON * g * r.v * (1 + (Math.abs(c) + Math.abs(d1)) / (g * z)) } : null;
+    },
     notes: [
       "stable law evaluated directly: Nolan (1997) integral representation in the body, tail series where converged; no CF inversion",
     ],

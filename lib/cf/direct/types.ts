@@ -25,6 +25,11 @@ export interface DirectLaw {
   readonly spread: number;
   at(x: number, out: DirectPoint): void;
   quantile?(p: number): number;
+  /**
+   * optional: the stop-loss transform int_c^inf S(y) dy (side 1) or int_-inf^c F(y) dy (side -1) with an absolute bound,
+   * where the law has one in closed form or by a converged series at c; null where it has not
+   */
+  stopLoss?(c: number, side: 1 | -1): { v: number; e: number } | null;
   /** short notes on the method (source of the formula, accuracy) */
   readonly notes: string[];
 }

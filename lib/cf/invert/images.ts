@@ -120,11 +120,14 @@ const LAG_LO = laguerreRule(10);
  * pi(c) = int_c^inf S(y) dy (side 1, c right of `center`) or int_-inf^c F(y) dy (side -1, c left of it) far in a tail
  * of power index `index`: with y = center + side d e^s (d = |c - center|) and r = (index - 1) s the integrand times e^r is
  * close to constant for a power tail, so a Gauss-Laguerre rule integrates it; the estimate is the difference between
- * the 16- and 10-node rules plus the law's own bounds.
+ * the 16- and 10-node rules plus the law's own bounds. A law with its own stop-loss transform at c (DirectLaw.stopLoss)
+ * answers from it.
  */
 function stopLoss(law: DirectLaw, c: number, side: 1 | -1, index: number, center: number, pt: DirectPoint): { v: number; e: number } {
   const end = side === 1 ? law.support[1] : law.support[0];
   if (side * (c - end) >= 0) return { v: 0, e: 0 };
+  const own = law.stopLoss?.(c, side);
+  if (own) return own;
   const d = Math.abs(c - center);
   const beta = Number.isFinite(index) ? Math.max(index - 1, 0.05) : 1;
   const rule = (R: { r: Float64Array; w: Float64Array }) => {

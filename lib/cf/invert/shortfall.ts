@@ -93,8 +93,9 @@ export function heavyShortfall(
   let bases: number[] | undefined;
   // the quantiles' ladder: the same part (tail term, kernels) and, where they reach far enough, the same nodes; when its
   // sums have a term's images taken out, the ES sums take out that term's images too (./images.ts), where its law is in
-  // closed form (each image is a Gauss-Laguerre rule over a tail: a few hundred evaluations of the law per level)
-  const useLadder = ladder && ladder.images.every((g) => g.direct.method === "closed-form") ? ladder : undefined;
+  // closed form or has its own stop-loss transform (each image is otherwise a Gauss-Laguerre rule over a tail: a few hundred
+  // evaluations of the law per level)
+  const useLadder = ladder && ladder.images.every((g) => g.direct.method === "closed-form" || g.direct.stopLoss) ? ladder : undefined;
   const images = useLadder?.images ?? [];
   const scratch = imageScratch();
   if (useLadder) {
