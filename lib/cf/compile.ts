@@ -25,6 +25,12 @@ export interface CompileOptions {
    * labelled so.
    */
   discretise?: DiscretiseOptions | false;
+  /**
+   * Compounds of per-claim layered claims: "continuous" (default) keeps the aggregate law continuous with its atoms at
+   * multiples of the limit listed; "bracket" rounds every claim down and up onto a lattice (the two compounds bracket
+   * the law, and hold its mean exactly). An explicit `discretise` object also brackets them.
+   */
+  layeredCompounds?: "continuous" | "bracket";
 }
 
 /** Build the node tree of a validated model. */
@@ -107,7 +113,7 @@ function operatorNode(mIn: Model, buildNode_: (x: Model) => Node, opts: CompileO
   if ("compound" in m) {
     const count = buildNode_(m.compound.count);
     const sev = buildNode_(m.compound.each);
-    const node = compoundNode(count, sev, opts.discretise === false ? null : (opts.discretise ?? { auto: true }));
+    const node = compoundNode(count, sev, opts.discretise === false ? null : (opts.discretise ?? { auto: true }), false, opts.layeredCompounds === "bracket");
     // log P(phi_X) moves with phi_X by at most the count's slope |P'/P| (|phi_X| <= 1)
     const se = sev.logCfErr;
     const slope = Math.max(1, count.cgfSlope ?? 1);
@@ -209,6 +215,7 @@ export function toCompiled(node: Node): CompiledModel {
     ...(node.logMajorant ? { logAbsMajorant: node.logMajorant } : {}),
     logCfUlps: 8 * Math.max(1, node.nodes),
     ...(node.logCfErr ? { logCfExtraError: node.logCfErr } : {}),
+    ...(node.densityJumps?.length ? { densityJumps: node.densityJumps } : {}),
     ...(node.mixParts ? { components: lazyComponents(node.mixParts) } : {}),
     // read on access: a discretised compound adds its error bound to its notes when its table is built
     get notes() {

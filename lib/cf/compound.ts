@@ -4,6 +4,7 @@ import type { LatticeTable } from "./types";
 import { checkDeadline } from "./deadline";
 import { compoundDamped } from "./damped-cf";
 import { KERNEL_ORDER, compoundSeries, kernelsOfSeries, type GammaKernel, type TransformSeries } from "./damped-kernels";
+import { layerCompoundAtoms, layerCompoundJumps, type LayerCompoundAtoms } from "./layer-compound";
 import { builtNote, chooseSpan, isPoissonCount, discretisedCompound, methodNote, type DiscretiseOptions, type DiscretisedCompound } from "./discretise";
 import { withCumulantErrors } from "./cumulant-bounds";
 import { compoundE } from "./cumulant-ops";
@@ -15,16 +16,27 @@ const collectNotes = (cs: Node[]) => [...new Set(cs.flatMap((c) => c.notes))];
  * at complex argument (Klugman, Panjer & Willmot, Loss Models, aggregate loss models chapter). Cumulants by composing the two cumulant
  * series, K_S(u) = K_N(K_X(u)).
  */
-export function compoundNode(N: Node, X: Node, discretise: DiscretiseOptions | null = {}, exact = false): Node {
+export function compoundNode(N: Node, X: Node, discretise: DiscretiseOptions | null = {}, exact = false, bracketLayers = false): Node {
   if (X.severity && X.kind.type === "continuous" && N.countCgf && discretise && !(discretise.auto && CONTINUOUS_BY_DEFAULT.has(X.severity.name)))
     return discretisedNode(N, X, discretise);
-  // a per-claim layer's severity has atoms (at 0 and at the limit) besides its density: always discretised
-  if (X.severity?.atoms && N.countCgf && !exact)
-    return discretisedNode(N, X, discretise ?? {});
+  // a per-claim layer's severity has atoms (at 0 and at the limit) besides its density: the compound keeps its
+  // continuous part and lists its atoms (at multiples of the limit) when the count allows; discretised on request
+  // or when the atoms cannot be listed
+  let layered: (LayerCompoundAtoms & { a0: number; a1: number; v: number }) | null = null;
+  if (X.severity?.atoms && N.countCgf && !exact) {
+    layered = (discretise && !discretise.auto) || bracketLayers ? null : layeredAtoms(N, X);
+    if (!layered) return discretisedNode(N, X, discretise ?? {});
+  }
   const P0 = N.p0 ?? 0;
   let kind: NodeKind;
   const own: string[] = [];
-  if (X.kind.type === "continuous") kind = P0 > 0 ? { type: "mixed", atoms: [{ x: 0, p: P0 }], atomsComplete: true } : { type: "continuous" };
+  if (layered) {
+    kind = { type: "mixed", atoms: layered.atoms, atomsComplete: true };
+    own.push(
+      `compound of layered claims kept continuous: ${layered.atoms.length} atom(s) at multiples of the limit listed (every claim at 0 or at the limit), mass left unlisted <= ${layered.unlisted.toExponential(2)} (counted in the CF error)`,
+    );
+  }
+  else if (X.kind.type === "continuous") kind = P0 > 0 ? { type: "mixed", atoms: [{ x: 0, p: P0 }], atomsComplete: true } : { type: "continuous" };
   else if (X.kind.type === "lattice") {
     const { origin, step } = X.kind;
     const g = step === 0 ? Math.abs(origin) : commonStep(step, origin);
@@ -60,7 +72,7 @@ export function compoundNode(N: Node, X: Node, discretise: DiscretiseOptions | n
     hasCompound: true,
     // |P_N(z + d) - P_N(z)| <= E[N] |d| for |z| <= 1 (|P_N'| <= E N on the unit disc); relative |dP / P| <= slope |d|
     // when the count's log-derivative is bounded (Poisson, negative binomial)
-    ...compoundErrors(N, X),
+    ...compoundErrors(N, X, layered?.unlisted ?? 0),
     cumulants(n) {
       const kx = X.cumulants(n);
       const kn = N.cumulants(n);
@@ -102,6 +114,10 @@ export function compoundNode(N: Node, X: Node, discretise: DiscretiseOptions | n
     },
   };
   withCumulantErrors(node, compoundE(N, X));
+  if (layered && X.severity?.edges) {
+    const { a0, a1, v } = layered;
+    node.densityJumps = layerCompoundJumps(N, a0, a1, v, layered.byCount, X.severity.edges);
+  }
   if (node.dampedLogCf && X.laplaceExpansion && X.kind.type === "continuous" && N.table) {
     const k = kernelsFor(N, X);
     if (k) {
@@ -199,11 +215,30 @@ function kernelsFor(N: Node, X: Node): { series: TransformSeries; kernels: Gamma
   return { series, kernels: kernelsOfSeries(series, rate), rate };
 }
 
-function compoundErrors(N: Node, X: Node): { cfAbsError: number; cfRelError: number } {
+/** `unlisted`: atom mass the compound's kind leaves out (it stays in the CF the continuous part is taken from) */
+function compoundErrors(N: Node, X: Node, unlisted: number): { cfAbsError: number; cfRelError: number } {
   const eX = (X.cfAbsError ?? 0) + (X.cfRelError ?? 0);
-  if (eX === 0) return { cfAbsError: N.cfAbsError ?? 0, cfRelError: N.cfRelError ?? 0 };
-  if (N.cgfSlope !== undefined && Number.isFinite(N.cgfSlope)) return { cfAbsError: N.cfAbsError ?? 0, cfRelError: N.cgfSlope * eX + (N.cfRelError ?? 0) };
-  return { cfAbsError: (N.cumulants(1)[0] ?? Infinity) * eX + (N.cfAbsError ?? 0), cfRelError: N.cfRelError ?? 0 };
+  const nAbs = (N.cfAbsError ?? 0) + unlisted;
+  if (eX === 0) return { cfAbsError: nAbs, cfRelError: N.cfRelError ?? 0 };
+  if (N.cgfSlope !== undefined && Number.isFinite(N.cgfSlope)) return { cfAbsError: nAbs, cfRelError: N.cgfSlope * eX + (N.cfRelError ?? 0) };
+  return { cfAbsError: (N.cumulants(1)[0] ?? Infinity) * eX + nAbs, cfRelError: N.cfRelError ?? 0 };
+}
+
+/** the atoms of a compound of per-claim layered claims (atom a0 at 0, a1 at the limit v), or null */
+function layeredAtoms(N: Node, X: Node): (LayerCompoundAtoms & { a0: number; a1: number; v: number }) | null {
+  if (X.kind.type !== "mixed" || !X.kind.atomsComplete || X.kind.atoms.length > 2) return null;
+  let a0 = 0;
+  let a1 = 0;
+  let v = Infinity;
+  for (const at of X.kind.atoms) {
+    if (at.x === 0) a0 += at.p;
+    else if (v === Infinity) {
+      v = at.x;
+      a1 = at.p;
+    } else return null;
+  }
+  const r = layerCompoundAtoms(N, a0, a1, v);
+  return r && { ...r, a0, a1, v };
 }
 
 function compoundSupport(n: readonly [number, number], x: readonly [number, number]): [number, number] {

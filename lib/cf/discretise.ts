@@ -11,6 +11,8 @@ export { bennettTail, isPoissonCount };
 export interface SeverityLaw {
   name: string;
   pdf(x: number): number;
+  /** a layered claim's density at the two ends of its continuous part (start+ and the limit-), where it jumps */
+  edges?: { start: number; fStart: number; fEnd: number };
   /** lower end of the support (density zero below) */
   lo: number;
   /** an x with P(X > x) <= q (upper bound on the upper q-quantile) */

@@ -1,4 +1,4 @@
-import type { Atom, LatticeTable, TailTerm } from "./types";
+import type { Atom, DensityJump, LatticeTable, TailTerm } from "./types";
 import type { CompoundBracket, SeverityLaw } from "./discretise";
 import type { DampedLogCf } from "./damped-cf";
 import type { EndpointSeries, GammaKernel, TransformSeries } from "./damped-kernels";
@@ -84,6 +84,8 @@ export interface Node {
   /** absolute error of log phi(t) beyond 8 units of rounding per node relative to 1 + |L| (special functions whose
    *  terms cancel), at frequency t >= 0 */
   logCfErr?: (t: number) => number;
+  /** interior points where the density of the law's continuous part jumps, with the jump sizes (f(x+) - f(x-)) */
+  densityJumps?: DensityJump[];
 }
 
 export const NONE_MOMENT = (n: number): (number | null)[] => new Array<number | null>(n).fill(null);

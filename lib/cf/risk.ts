@@ -52,7 +52,10 @@ export interface RiskResult {
 const EPS = Number.EPSILON;
 
 /** All requested measures of `model` (validated notation). Measures that do not exist come back null with a note. */
-export function riskMeasures(model: Model, req: RiskRequest, options: CompileOptions = {}): RiskResult {
+export function riskMeasures(model: Model, req: RiskRequest, optionsIn: CompileOptions = {}): RiskResult {
+  // layered compounds default to the bracket here: it holds means, stop-loss and layer means exactly, where the
+  // continuous route integrates its cdf over the whole range asked (slow and loose for retentions far out)
+  const options: CompileOptions = { layeredCompounds: "bracket", ...optionsIn };
   const c = compile(model, options);
   const bounds = c.bounds?.();
   if (bounds) return boundedMeasures(c, bounds, req, []);

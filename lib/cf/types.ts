@@ -84,6 +84,14 @@ export interface CompiledModel {
   /** a discretised compound of claims with their own cdf (per-claim layers): the compounds with every claim rounded
    *  down and rounded up onto the table's lattice, which bracket the law in the usual stochastic order */
   bounds?(): CompoundBracket | null;
+  /** points where the density of the continuous part jumps, with the sizes (the inversion takes them out as kernels) */
+  readonly densityJumps?: readonly DensityJump[];
+}
+
+/** A jump f(at+) - f(at-) = size of a density (in units of the whole law's probability, atoms included). */
+export interface DensityJump {
+  at: number;
+  size: number;
 }
 
 /**

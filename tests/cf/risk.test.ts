@@ -116,7 +116,7 @@ describe("measures that do not exist", () => {
 
 describe("per-claim layers of other claim laws (mpmath.quad on the claim density)", () => {
   for (const c of ref.layers as { name: string; model: unknown; mean: number; cf: { t: number; phi: [number, number] }[] }[]) {
-    it(`${c.name}: mean within 1e-11 relative and CF within the declared 1e-12`, () => {
+    it(`${c.name}: mean within 1e-11 relative and CF within the declared bound (at most 1e-12)`, () => {
       const m = moments(c.model, 1);
       close(m.mean!, c.mean, { rel: 1e-11 }, `${c.name} mean`);
       record("layer mean rel", Math.abs(m.mean! - c.mean) / c.mean);
@@ -128,8 +128,10 @@ describe("per-claim layers of other claim laws (mpmath.quad on the claim density
       c.cf.forEach((x, k) => {
         const e = Math.hypot(re[k] - x.phi[0], im[k] - x.phi[1]);
         record("layer cf abs", e);
-        if (!(e <= 1e-12)) expect.fail(`${c.name} phi(${x.t}): value ${re[k]}+${im[k]}i, expected ${x.phi[0]}+${x.phi[1]}i, difference ${e}, tolerance 1e-12`);
+        const declared = comp.cfAbsError ?? 0;
+        if (!(e <= declared)) expect.fail(`${c.name} phi(${x.t}): value ${re[k]}+${im[k]}i, expected ${x.phi[0]}+${x.phi[1]}i, difference ${e}, declared bound ${declared}`);
       });
+      expect(comp.cfAbsError).toBeLessThanOrEqual(1e-12);
     });
   }
 });

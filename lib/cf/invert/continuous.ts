@@ -1,5 +1,5 @@
 import type { Atom, CompiledModel } from "../types";
-import { fitEndpointKernels } from "./endpoint";
+import { fitEndpointKernels, jumpKernels } from "./endpoint";
 import { buildNodes, cutoffFor, probeEnvelope, truncationAt, type Envelope } from "./nodes";
 import { makePart, withKernels, type ContinuousPart, type EndpointKernels } from "./part";
 import { sumPointwise } from "./pointwise";
@@ -117,6 +117,15 @@ export function maybeKernels(
   wantPdf: boolean,
   notes: string[],
 ): { part: ContinuousPart; env: Envelope } {
+  // known jumps of the density (compounds of layered claims): exact kernels instead of a fit at the ends
+  // (a jump at the support's lower end alone is left to the endpoint fit below, which also matches higher orders)
+  if (part.model.densityJumps?.some((j) => j.at > shape.support[0])) {
+    const ks = jumpKernels(part, part.model.densityJumps, win.b);
+    if (ks.length === 0) return { part, env };
+    const p2 = withKernels(part, ks);
+    notes.push(`density jumps at ${ks.length} point(s) taken out as exponential kernels (inverted in closed form)`);
+    return { part: p2, env: probeEnvelope(p2, shape.spread) };
+  }
   const [lo, hi] = shape.support;
   const ends: { at: number; side: 1 | -1 }[] = [];
   if (Number.isFinite(lo)) ends.push({ at: lo, side: 1 });

@@ -139,3 +139,25 @@ function leastSquares(cols: Float64Array[], b: Float64Array): Float64Array | nul
   }
   return x;
 }
+
+/** At most this many jump kernels (the largest jumps first); the rest stay in what is inverted. */
+const MAX_JUMP_KERNELS = 256;
+
+/**
+ * Exponential kernels for known jumps of the density (f(z+) - f(z-) = J): b e^{itz} / (1 - it/lambda) with
+ * b lambda = J / w (w: the continuous part's weight) has the same jump at z, so what is left of the continuous part has
+ * a continuous density there and its CF loses the J e^{itz} / (-it) term (integration by parts, as above). Each kernel
+ * lives on [z, inf): its rate is chosen so that it is spent (e^{-60}) by the window's right end, b_hi; jumps at or
+ * beyond b_hi are left in. The kernels are added back exactly, so the jump sizes only affect how fast the rest decays.
+ */
+export function jumpKernels(part: ContinuousPart, jumps: readonly { at: number; size: number }[], hi: number): EndpointKernels[] {
+  if (!(part.weight > 0)) return [];
+  const use = jumps
+    .filter((j) => j.at < hi && Number.isFinite(j.size) && Math.abs(j.size) / part.weight > 1e-16)
+    .sort((u, v) => Math.abs(v.size) - Math.abs(u.size))
+    .slice(0, MAX_JUMP_KERNELS);
+  return use.map((j) => {
+    const rate = 60 / (hi - j.at);
+    return { at: j.at, side: 1 as const, rate, power: 1, b: [j.size / part.weight / rate] };
+  });
+}
