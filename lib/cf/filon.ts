@@ -121,14 +121,17 @@ export interface OscillatoryIntegral {
   at(s: number, out: Float64Array): void;
   /** bound on the absolute error of `at`, the same at every s */
   error: number;
+  /** number of panels the rule sums over (the cost of one frequency) */
+  panels: number;
 }
 
 /**
  * Prepare int_{b_0}^{b_last} f(u) e^{i s u} du on the panels `bounds` (each split into `split` equal parts).
  * `mass(a, b)` is int_a^b f exactly (from the law's cdf): panels below `negligible` mass are dropped with their mass
- * counted as error.
+ * counted as error; a panel whose interpolant misses by more than ~4 eps of its mass plus its share of 1e-15 is halved (at most
+ * 5 times).
  */
-export function oscillatoryIntegral(bounds: readonly number[], f: (u: number) => number, mass: (a: number, b: number) => number, split = 4, negligible = 1e-19): OscillatoryIntegral {
+export function oscillatoryIntegral(bounds: readonly number[], f: (u: number) => number, mass: (a: number, b: number) => number, split = 1, negligible = 1e-19): OscillatoryIntegral {
   const R = rule();
   const mids: number[] = [];
   const halves: number[] = [];
@@ -136,47 +139,67 @@ export function oscillatoryIntegral(bounds: readonly number[], f: (u: number) =>
   let error = 0;
   const gv = new Float64Array(M);
   const c = new Float64Array(M);
-  for (let j = 0; j + 1 < bounds.length; j++) {
+  // fit one panel: its Legendre coefficients into c, and the bound on int |f - p| over it
+  const fit = (a: number, b: number, pm: number): { err: number; absSum: number } => {
+    const mid = (a + b) / 2;
+    const half = (b - a) / 2;
+    for (let k = 0; k < M; k++) gv[k] = f(mid + half * R.x[k]);
+    let absSum = 0;
+    for (let n = 0; n < M; n++) {
+      let s = 0;
+      for (let k = 0; k < M; k++) s += R.w[k] * gv[k] * R.P[n * M + k];
+      c[n] = ((2 * n + 1) / 2) * s;
+      absSum += Math.abs(c[n]);
+    }
+    // the interpolant's error measured between the nodes (and at the ends), and from the last coefficients
+    let dev = 0;
+    for (let i = 0; i < CHECKS; i++) {
+      const x = Math.cos((Math.PI * (i + 0.5)) / CHECKS);
+      const e = Math.abs(f(mid + half * x) - legendreSum(c, 0, x));
+      if (!(e <= dev)) dev = Number.isFinite(e) ? Math.max(dev, e) : Infinity;
+    }
+    for (const x of [-1, 1]) {
+      const fx = f(mid + half * x);
+      if (Number.isFinite(fx)) dev = Math.max(dev, Math.abs(fx - legendreSum(c, 0, x)));
+    }
+    const tail = 2 * (Math.abs(c[M - 1]) + Math.abs(c[M - 2]));
+    // int |f - p| <= 2 half max|f - p|; where that exceeds the panel's mass plus int |p|, the latter holds exactly
+    const interp = 2 * half * Math.max(2 * dev, tail);
+    return { err: Math.min(interp, pm + 2 * half * absSum), absSum };
+  };
+  // each given panel is halved (up to MAX_DEPTH times) until its interpolant is within its error budget
+  const MAX_DEPTH = 5;
+  const span = Math.max(bounds[bounds.length - 1] - bounds[0], 1e-300);
+  const stack: [number, number, number][] = [];
+  for (let j = bounds.length - 2; j >= 0; j--) {
     const wAll = bounds[j + 1] - bounds[j];
     if (!(wAll > 0)) continue;
-    for (let q = 0; q < split; q++) {
+    for (let q = split - 1; q >= 0; q--) {
       const a = bounds[j] + (q * wAll) / split;
       const b = q + 1 === split ? bounds[j + 1] : bounds[j] + ((q + 1) * wAll) / split;
-      const mid = (a + b) / 2;
-      const half = (b - a) / 2;
-      const pm = mass(a, b);
-      if (pm < negligible) {
-        error += Math.max(pm, 0) + 1e-300;
-        continue;
-      }
-      for (let k = 0; k < M; k++) gv[k] = f(mid + half * R.x[k]);
-      let absSum = 0;
-      for (let n = 0; n < M; n++) {
-        let s = 0;
-        for (let k = 0; k < M; k++) s += R.w[k] * gv[k] * R.P[n * M + k];
-        c[n] = ((2 * n + 1) / 2) * s;
-        absSum += Math.abs(c[n]);
-      }
-      // the interpolant's error measured between the nodes (and at the ends), and from the last coefficients
-      let dev = 0;
-      for (let i = 0; i < CHECKS; i++) {
-        const x = Math.cos((Math.PI * (i + 0.5)) / CHECKS);
-        const e = Math.abs(f(mid + half * x) - legendreSum(c, 0, x));
-        if (!(e <= dev)) dev = Number.isFinite(e) ? Math.max(dev, e) : Infinity;
-      }
-      for (const x of [-1, 1]) {
-        const fx = f(mid + half * x);
-        if (Number.isFinite(fx)) dev = Math.max(dev, Math.abs(fx - legendreSum(c, 0, x)));
-      }
-      const tail = 2 * (Math.abs(c[M - 1]) + Math.abs(c[M - 2]));
-      // int |f - p| <= 2 half max|f - p|; where that exceeds the panel's mass plus int |p|, the latter holds exactly
-      const interp = 2 * half * Math.max(2 * dev, tail);
-      const trivially = pm + 2 * half * absSum;
-      error += Math.min(interp, trivially) + 8 * Number.EPSILON * 2 * half * absSum;
-      mids.push(mid);
-      halves.push(half);
-      for (let n = 0; n < M; n++) coefs.push(c[n]);
+      stack.push([a, b, 0]);
     }
+  }
+  while (stack.length) {
+    const [a, b, depth] = stack.pop()!;
+    const pm = mass(a, b);
+    if (pm < negligible) {
+      error += Math.max(pm, 0) + 1e-300;
+      continue;
+    }
+    const r = fit(a, b, pm);
+    // the budget: ~4 eps of the panel's mass plus its share of 1e-15 over the whole range, and never below the
+    // rounding floor of the measurement itself (a few ulps of f at the check points, which halving does not lower)
+    const budget = 4 * Number.EPSILON * pm + (1e-15 * (b - a)) / span + 64 * Number.EPSILON * (b - a) * r.absSum;
+    if (r.err > budget && depth < MAX_DEPTH) {
+      const m = (a + b) / 2;
+      stack.push([m, b, depth + 1], [a, m, depth + 1]);
+      continue;
+    }
+    error += r.err + 8 * Number.EPSILON * (b - a) * r.absSum;
+    mids.push((a + b) / 2);
+    halves.push((b - a) / 2);
+    for (let n = 0; n < M; n++) coefs.push(c[n]);
   }
   const P = mids.length;
   const mid = Float64Array.from(mids);
@@ -189,6 +212,7 @@ export function oscillatoryIntegral(bounds: readonly number[], f: (u: number) =>
   error += 4 * (M + EXTRA) * Number.EPSILON * coefAbs;
   return {
     error,
+    panels: P,
     at(s, out) {
       let sr = 0;
       let si = 0;
