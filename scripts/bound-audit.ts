@@ -276,7 +276,9 @@ function compoundContinuous() {
       // no per-level uncertainty is written: the cdf cross-check over the density at q (from the points' scale) is not
       // available either, so the quantile's reference precision is the double's own (the counted floor)
       levels(set, k.model, c, k.levels);
-      push(set, "moment", `${JSON.stringify(k.model)} mean`, guarded(`${set} mean`, () => moments(c, 1).raw[0]) ?? NaN, k.mean, 1e-15 * k.mean, NaN);
+      const mm = guarded(`${set} mean`, () => moments(c, 1));
+      // the mean's derived bound (meanError; null where none is derived, shown as NO BOUND)
+      push(set, "moment", `${JSON.stringify(k.model)} mean`, mm?.raw[0] ?? NaN, k.mean, 1e-15 * k.mean, mm?.meanError ?? NaN);
     }
   }
 }
@@ -366,8 +368,8 @@ function risk() {
   for (const k of f.layers) {
     const c = compiled(set, k.model);
     if (!c) continue;
-    const m = guarded(`${set} mean`, () => moments(c, 1).raw[0]);
-    if (m !== undefined && m !== null) push(set, "moment", `${JSON.stringify(k.model)} mean`, m, k.mean, 1e-12 * Math.abs(k.mean), NaN);
+    const m = guarded(`${set} mean`, () => moments(c, 1));
+    if (m && m.raw[0] !== null) push(set, "moment", `${JSON.stringify(k.model)} mean`, m.raw[0], k.mean, 1e-12 * Math.abs(k.mean), m.meanError ?? NaN);
   }
 }
 
