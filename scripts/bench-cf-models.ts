@@ -53,6 +53,7 @@ function report(label: string, target: number, rows: { ms: number; cpu: number; 
       `CPU median ${median(rows.map((r) => r.cpu)).toFixed(1)} ms, worst ${worstCpu.cpu.toFixed(1)} ms (load ${loadavg()[0].toFixed(1)})`,
   );
   console.log(`  worst model: ${JSON.stringify(worst.model)}${worst.error ? ` (error: ${worst.error})` : ""}`);
+  if (worstCpu !== worst) console.log(`  worst model by CPU: ${JSON.stringify(worstCpu.model)}${worstCpu.error ? ` (error: ${worstCpu.error})` : ""}`);
   const errs = rows.filter((r) => r.error);
   if (errs.length) console.log(`  ${errs.length} error(s), e.g. ${errs[0].error}`);
 }
