@@ -7,8 +7,19 @@ export function c2(): C2 {
 }
 
 /** Principal complex logarithm of (re, im) into out. */
+/**
+ * |re + i im| as sqrt(re^2 + im^2) wherever the sum of squares neither overflows nor underflows (relative error
+ * below 2 eps: one rounding in each square and in the sum, halved by the root, and one in the root; Higham, Accuracy
+ * and Stability of Numerical Algorithms, 2nd ed., sec. 3.1), else Math.hypot (which scales; NaN and infinities go
+ * there too). Math.hypot costs about six times as much in V8, and the inversion takes millions of magnitudes.
+ */
+export function cabs(re: number, im: number): number {
+  const s = re * re + im * im;
+  return s > 1e-290 && s < 1e290 ? Math.sqrt(s) : Math.hypot(re, im);
+}
+
 export function clog(re: number, im: number, out: C2): void {
-  out[0] = Math.log(Math.hypot(re, im));
+  out[0] = Math.log(cabs(re, im));
   out[1] = Math.atan2(im, re);
 }
 
@@ -26,7 +37,7 @@ export function csqrt(re: number, im: number, out: C2): void {
     out[1] = 0;
     return;
   }
-  const m = Math.hypot(re, im);
+  const m = cabs(re, im);
   if (re >= 0) {
     const s = Math.sqrt(0.5 * (m + re));
     out[0] = s;

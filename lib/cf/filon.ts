@@ -59,6 +59,13 @@ function legendreSum(c: Float64Array, off: number, x: number): number {
   return c[off] + x * b1 - 0.5 * b2;
 }
 
+/** 1 / (k (2n + 2k + 1)) at [n * 10 + k]: the ratios of successive terms of the power series of j_n, over -w^2 / 2 */
+const SERIES = (() => {
+  const r = new Float64Array(M * 10);
+  for (let n = 0; n < M; n++) for (let k = 1; k <= 9; k++) r[n * 10 + k] = 1 / (k * (2 * n + 2 * k + 1));
+  return r;
+})();
+
 /**
  * j_0..j_{M-1}(w) for w >= 0 into out. Upward recurrence where every order is below w (stable there), else Miller's
  * backward recurrence from order M + EXTRA + w, normalised by whichever of j_0, j_1 is larger (they are never both
@@ -71,17 +78,23 @@ export function sphericalBessel(w: number, out: Float64Array): void {
     return;
   }
   if (w < 0.5) {
-    // power series j_n(w) = w^n / (2n + 1)!! sum_k (-w^2 / 2)^k / (k! (2n + 3)(2n + 5)...(2n + 2k + 1)) (DLMF 10.53.1);
-    // 9 terms leave less than (w^2 / 2)^9 / 9! < 1e-16 relative
+    // power series j_n(w) = w^n / (2n + 1)!! sum_k (-w^2 / 2)^k / (k! (2n + 3)(2n + 5)...(2n + 2k + 1)) (DLMF 10.53.1),
+    // summed until a term is below 1e-18 of the sum: the ratios of the terms after it are below w^2 / 20 < 1/80, so
+    // what is left is below 1e-18 relative too; 9 terms at most leave less than (w^2 / 2)^9 / 9! < 1e-16 relative
     let lead = 1;
     const h = -(w * w) / 2;
     for (let n = 0; n < M; n++) {
       if (n > 0) lead *= w / (2 * n + 1);
+      if (lead === 0) {
+        out[n] = 0;
+        continue;
+      }
       let term = 1;
       let sum = 1;
       for (let k = 1; k <= 9; k++) {
-        term *= h / (k * (2 * n + 2 * k + 1));
+        term *= h * SERIES[n * 10 + k];
         sum += term;
+        if (Math.abs(term) < 1e-18 * Math.abs(sum)) break;
       }
       out[n] = lead * sum;
     }

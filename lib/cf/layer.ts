@@ -6,7 +6,7 @@ import type { Node } from "./node";
 import { rawToCumulants } from "./node";
 import { CfError } from "./errors";
 import { atomsNode } from "./tabulated";
-import { sortedAnchor, unwrapFrom } from "./complex";
+import { cabs, sortedAnchor, unwrapFrom } from "./complex";
 import { MAX_LATTICE } from "./limits";
 import type { DirectLaw } from "./families/dist";
 import type { SeverityLaw } from "./discretise";
@@ -157,7 +157,7 @@ export function layerNode(X: Node, terms: Partial<LayerTerms>): Node {
           r += Sdl * Math.cos(s * l);
           i += Sdl * Math.sin(s * l);
         }
-        re[k] = Math.log(Math.hypot(r, i));
+        re[k] = Math.log(cabs(r, i));
         im[k] = Math.atan2(i, r);
       }
       const a = sortedAnchor(t);

@@ -3,7 +3,7 @@ import { mixDamped } from "./damped-cf";
 import { carryMixKernels } from "./kernel-carry";
 import type { Node } from "./node";
 import { cumulantsToRaw, rawToCumulants } from "./node";
-import { nearestZero, sortedAnchor, unwrapFrom } from "./complex";
+import { cabs, nearestZero, sortedAnchor, unwrapFrom } from "./complex";
 import { mixKinds } from "./kinds";
 import { restep } from "./lattice";
 import type { LatticeTable } from "./types";
@@ -27,7 +27,7 @@ function logMix(ws: number[], parts: { re: Float64Array; im: Float64Array }[], l
       sr += m * Math.cos(ph);
       si += m * Math.sin(ph);
     }
-    re[k] = Math.log(Math.hypot(sr, si));
+    re[k] = Math.log(cabs(sr, si));
     im[k] = Math.atan2(si, sr);
   }
   if (anchor >= 0) unwrapFrom(im, anchor);

@@ -1,6 +1,6 @@
 import type { Node } from "./node";
 import { rawToCumulants } from "./node";
-import { nearestZero, sortedAnchor, unwrapFrom } from "./complex";
+import { cabs, nearestZero, sortedAnchor, unwrapFrom } from "./complex";
 import { MAX_ATOMS, mergeAtoms } from "./kinds";
 import { commonStep } from "./lattice";
 import type { Atom } from "./types";
@@ -47,7 +47,7 @@ export function latticeNode(origin: number, step: number, pIn: ArrayLike<number>
           si = sr * zi + si * zr;
           sr = nr;
         }
-        re[k] = Math.log(Math.hypot(sr, si)) + o * wr[k];
+        re[k] = Math.log(cabs(sr, si)) + o * wr[k];
         im[k] = Math.atan2(si, sr) + o * wi[k];
       }
       unwrapFrom(im, nearestZero(wr, wi));
@@ -95,7 +95,7 @@ export function atomsNode(xs: Float64Array, ps: Float64Array): Node {
             sr += m * Math.cos(xs[j] * wi[k]);
             si += m * Math.sin(xs[j] * wi[k]);
           }
-          re[k] = Math.log(Math.hypot(sr, si)) + top;
+          re[k] = Math.log(cabs(sr, si)) + top;
           im[k] = Math.atan2(si, sr);
         }
         unwrapFrom(im, nearestZero(wr, wi));
@@ -122,7 +122,7 @@ export function atomsNode(xs: Float64Array, ps: Float64Array): Node {
         for (let k = 0; k < m; k++) {
           const sr = re[k];
           const si = im[k];
-          re[k] = Math.log(Math.hypot(sr, si));
+          re[k] = Math.log(cabs(sr, si));
           im[k] = Math.atan2(si, sr);
         }
       } else for (let k = 0; k < m; k++) {
@@ -154,7 +154,7 @@ export function atomsNode(xs: Float64Array, ps: Float64Array): Node {
             si += ps[j] * Math.sin(a);
           }
         }
-        re[k] = Math.log(Math.hypot(sr, si));
+        re[k] = Math.log(cabs(sr, si));
         im[k] = Math.atan2(si, sr);
       }
       const anchor = sortedAnchor(t);

@@ -3,7 +3,7 @@
  * contour with its step set from the strip of analyticity (Trefethen & Weideman 2014, SIAM Review 56, sec. 5).
  * The families' own batched and damped variants (lognormal, weibull, pareto in ./numeric) use the same rule.
  */
-import { sortedAnchor, unwrapFrom } from "../complex";
+import { cabs, sortedAnchor, unwrapFrom } from "../complex";
 import { checkDeadline } from "../deadline";
 
 /**
@@ -21,7 +21,7 @@ export function fromPhi(t: Float64Array, re: Float64Array, im: Float64Array, phi
       continue;
     }
     phiPos(Math.abs(x), tmp);
-    re[k] = Math.log(Math.hypot(tmp[0], tmp[1]));
+    re[k] = Math.log(cabs(tmp[0], tmp[1]));
     im[k] = (x < 0 ? -1 : 1) * Math.atan2(tmp[1], tmp[0]);
   }
   const anchor = sortedAnchor(t);
@@ -101,7 +101,7 @@ export function contourLogCfArithmetic(c: Contour, scale: number, t: Float64Arra
   const si = new Float64Array(K);
   const bound = expSumArithmetic(cRe, cIm, e, -Math.sin(c.theta), Math.cos(c.theta), t, sr, si);
   for (let k = 0; k < K; k++) {
-    re[k] = Math.log(Math.hypot(sr[k], si[k]));
+    re[k] = Math.log(cabs(sr[k], si[k]));
     im[k] = Math.atan2(si[k], sr[k]);
   }
   unwrapFrom(im, 0);
@@ -141,7 +141,7 @@ export function expSumArithmetic(
   const K = tk.length;
   const d = (tk[K - 1] - tk[0]) / (K - 1);
   const tEnd = tk[K - 1];
-  const wAbs = Math.hypot(wRe, wIm);
+  const wAbs = cabs(wRe, wIm);
   outRe.fill(0, 0, K);
   outIm.fill(0, 0, K);
   let J0 = 0;
@@ -152,7 +152,7 @@ export function expSumArithmetic(
     const mr = new Float64Array(M + 1);
     const mi = new Float64Array(M + 1);
     for (let j = 0; j < J0; j++) {
-      absSum += Math.hypot(cRe[j], cIm[j]);
+      absSum += cabs(cRe[j], cIm[j]);
       let p = 1;
       for (let m = 0; m <= M; m++) {
         mr[m] += cRe[j] * p;
@@ -183,7 +183,7 @@ export function expSumArithmetic(
   }
   for (let j = J0; j < n; j++) {
     if ((j & 63) === 0) checkDeadline("cf-quadrature");
-    const a = Math.hypot(cRe[j], cIm[j]);
+    const a = cabs(cRe[j], cIm[j]);
     if (a === 0) continue;
     const er = e[j] * wRe;
     const ei = e[j] * wIm;

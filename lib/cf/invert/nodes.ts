@@ -1,3 +1,4 @@
+import { cabs } from "../complex";
 import { evalPart, type ContinuousPart } from "./part";
 import { checkDeadline } from "../deadline";
 import { RESYNC } from "./pointwise";
@@ -80,7 +81,7 @@ export function probeEnvelope(part: ContinuousPart, scale: number): Envelope {
     if (m === 0 && i0 > 0 && part.atoms.length === 0 && part.kernels.length === 0) break;
   }
   const mag = new Float64Array(n);
-  for (let i = 0; i < n; i++) mag[i] = Math.hypot(re[i], im[i]);
+  for (let i = 0; i < n; i++) mag[i] = cabs(re[i], im[i]);
   const sampled = envelopeOf(t, mag, nf);
   // samples bound |phi| between probes only where it is monotone; the model's majorant (./majorant.ts) bounds it
   // everywhere, and is used when it applies to the inverted part (no atoms, kernels or tail law subtracted) and decays
@@ -204,20 +205,14 @@ const NODE_BLOCK = 1 << 16;
 
 export function buildNodes(part: ContinuousPart, h: number, K: number): Nodes {
   checkDeadline("nodes");
-  const t = new Float64Array(K);
-  for (let k = 0; k < K; k++) t[k] = (k + 0.5) * h;
   const re = new Float64Array(K);
   const im = new Float64Array(K);
-    const rel = new Float64Array(K);
-  // in blocks (as probeEnvelope does), with the deadline checked between them: K reaches millions for densities
-  // with kinks, and one call over all nodes ran for many seconds past a deadline
-  for (let i0 = 0; i0 < K; i0 += NODE_BLOCK) {
-    if (i0 > 0) checkDeadline("nodes");
-    const i1 = Math.min(K, i0 + NODE_BLOCK);
-    evalPart(part, t.subarray(i0, i1), re.subarray(i0, i1), im.subarray(i0, i1), rel.subarray(i0, i1));
-  }
   const wre = new Float64Array(K);
   const wim = new Float64Array(K);
+  // the frequencies and the values' relative errors live one block at a time (K reaches millions)
+  const B = Math.min(K, NODE_BLOCK);
+  const tb = new Float64Array(B);
+  const rel = new Float64Array(B);
   let ac = 0;
   let ap = 0;
   let ec = 0;
@@ -227,21 +222,31 @@ export function buildNodes(part: ContinuousPart, h: number, K: number): Nodes {
   let q2p = 0;
   let dc = 0;
   let dp = 0;
-  for (let k = 0; k < K; k++) {
-    const inv = 1 / (k + 0.5);
-    wre[k] = re[k] * inv;
-    wim[k] = im[k] * inv;
-    const a = Math.hypot(re[k], im[k]);
-    ac += a * inv;
-    ap += a;
-    ec += rel[k] * a * inv;
-    ep += rel[k] * a;
-    am += (k + 0.5) * a;
-    q2c += a * inv * (a * inv);
-    q2p += a * a;
-    const j = k % RESYNC;
-    dc += j * a * inv;
-    dp += j * a;
+  // in blocks (as probeEnvelope does), with the deadline checked between them: K reaches millions for densities
+  // with kinks, and one call over all nodes ran for many seconds past a deadline
+  for (let i0 = 0; i0 < K; i0 += NODE_BLOCK) {
+    if (i0 > 0) checkDeadline("nodes");
+    const i1 = Math.min(K, i0 + NODE_BLOCK);
+    const n = i1 - i0;
+    for (let i = 0; i < n; i++) tb[i] = (i0 + i + 0.5) * h;
+    evalPart(part, n === B ? tb : tb.subarray(0, n), re.subarray(i0, i1), im.subarray(i0, i1), n === B ? rel : rel.subarray(0, n));
+    for (let k = i0; k < i1; k++) {
+      const inv = 1 / (k + 0.5);
+      wre[k] = re[k] * inv;
+      wim[k] = im[k] * inv;
+      const a = cabs(re[k], im[k]);
+      const r = rel[k - i0];
+      ac += a * inv;
+      ap += a;
+      ec += r * a * inv;
+      ep += r * a;
+      am += (k + 0.5) * a;
+      q2c += a * inv * (a * inv);
+      q2p += a * a;
+      const j = k % RESYNC;
+      dc += j * a * inv;
+      dp += j * a;
+    }
   }
   // the sums of non-negative terms above carry relative errors below K eps: 2 (1 + K eps) covers them
   const g = 1 + K * Number.EPSILON;

@@ -1,3 +1,4 @@
+import { cabs } from "../complex";
 import type { Atom, CompiledModel, TailTerm } from "../types";
 import { directPoint } from "../direct/types";
 import { gammaPdf, incGamma } from "./incgamma";
@@ -99,20 +100,26 @@ export function evalPart(part: ContinuousPart, t: Float64Array, re: Float64Array
   part.model.logCf(t, re, im);
   const ulps = cfUlps(part.model);
   const extra = part.model.logCfExtraError;
+  const c = part.center;
+  // nothing subtracted: the recentring phase joins Im L, one cos and sin per node instead of two (the angle
+  // Im L - t c carries |Im L| u + 2 |t c| u, inside what cfRelError allows for Im L and the recentring)
+  const plain = part.atoms.length === 0 && part.kernels.length === 0 && !part.tail;
+  const c0 = plain ? c : 0;
   for (let i = 0; i < n; i++) {
     const lr = re[i];
     const li = im[i];
-    if (rel) rel[i] = cfRelError(ulps, lr, li, t[i], part.center) + (extra ? extra(t[i]) : 0);
+    if (rel) rel[i] = cfRelError(ulps, lr, li, t[i], c) + (extra ? extra(t[i]) : 0);
     const m = Math.exp(lr);
     if (m === 0 || Number.isNaN(m)) {
       re[i] = m === 0 ? 0 : NaN;
       im[i] = m === 0 ? 0 : NaN;
     } else {
-      re[i] = m * Math.cos(li);
-      im[i] = m * Math.sin(li);
+      const a = li - t[i] * c0;
+      re[i] = m * Math.cos(a);
+      im[i] = m * Math.sin(a);
     }
   }
-  const c = part.center;
+  if (plain) return;
   const atoms = part.atoms;
   const invW = 1 / part.weight;
   const ks = part.kernels;
@@ -146,7 +153,7 @@ export function evalPart(part: ContinuousPart, t: Float64Array, re: Float64Array
       const vr = ur / den;
       const vi = -ui / den; // v = 1/(1 - i s t/lambda)
       // v^power by polar form (principal branch: Re v > 0), then one more factor v per kernel
-      const mag = Math.pow(Math.hypot(vr, vi), k.power);
+      const mag = Math.pow(cabs(vr, vi), k.power);
       const arg = Math.atan2(vi, vr) * k.power;
       let pr = k.power === 1 ? vr : mag * Math.cos(arg);
       let pi = k.power === 1 ? vi : mag * Math.sin(arg);

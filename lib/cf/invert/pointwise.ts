@@ -1,3 +1,4 @@
+import { cabs } from "../complex";
 import { checkDeadline } from "../deadline";
 import type { Nodes } from "./nodes";
 
@@ -90,7 +91,7 @@ export function integrateSf(nodes: Nodes, center: number, u: number, v: number):
     const di = sv - su;
     const wk = 1 / ((k + 0.5) * tk);
     acc += (re[k] * dr - im[k] * di) * wk;
-    abs += 2 * Math.hypot(re[k], im[k]) * wk;
+    abs += 2 * cabs(re[k], im[k]) * wk;
   }
   return { value: ((v - u) * mass) / 2 + acc / Math.PI, absSum: abs / Math.PI };
 }
