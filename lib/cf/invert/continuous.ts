@@ -29,6 +29,41 @@ import { checkDeadline } from "../deadline";
 export type { PartOptions, PartOutput, PartSolution, Request } from "./shared";
 export { evalLadder, growLadder, heavyLadder, type HeavyLadder } from "./heavy";
 
+/** Thrown by the light path before it builds more nodes than PartOptions.maxTerms allows. */
+export class TermsOverCap extends Error {
+  constructor(readonly terms: number) {
+    super(`the inversion would need ${terms} nodes`);
+    this.name = "TermsOverCap";
+  }
+}
+
+/**
+ * invertContinuous at the smallest of tol, 100 tol, 10^4 tol, ... whose nodes number at most `maxTerms`, relaxing
+ * only while the tolerance is below `upTo` (the last one is kept whatever it needs). A tolerance whose nodes would be
+ * too many stops before they are built (the light path counts them first), so each relaxation step costs an envelope
+ * probe instead of up to 2^22 CF values.
+ */
+export function invertWithinTerms(
+  model: CompiledModel,
+  atoms: Atom[],
+  req: Request,
+  opt: PartOptions,
+  maxTerms: number,
+  upTo: number,
+): PartOutput {
+  let tol = opt.tolerance;
+  for (;;) {
+    const capped = tol < upTo;
+    try {
+      const out = invertContinuous(model, atoms, req, { ...opt, tolerance: tol, ...(capped ? { maxTerms } : {}) });
+      if (!capped || out.solution!.nodes.K <= maxTerms) return out;
+    } catch (e) {
+      if (!(e instanceof TermsOverCap)) throw e;
+    }
+    tol *= 100;
+  }
+}
+
 /** Apply the continuous-part inversion to the request; the law's atoms have already been taken out. */
 export function invertContinuous(model: CompiledModel, atoms: Atom[], req: Request, opt: PartOptions): PartOutput {
   const shape = lawShape(model);
@@ -219,6 +254,8 @@ function lightPath(
     const T = b - a;
     const h = (2 * Math.PI) / T;
     const K = chooseTerms(tmax, h, method, n);
+    // the window only widens (h falls), so the count only grows from here
+    if (opt.maxTerms !== undefined && K > opt.maxTerms) throw new TermsOverCap(K);
     const nodes = buildNodes(part, h, K);
     evaluate(part, nodes, req, layout, opt.wantPdf, pdf, cdf, sf);
     // edge probes for the aliasing bounds

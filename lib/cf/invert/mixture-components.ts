@@ -5,7 +5,7 @@ import { mergeAtoms } from "../kinds";
 import { directPoint, type DirectLaw, type DirectPoint } from "../direct/types";
 import { directShortfall } from "../direct/answer";
 import { DAMPED_BUDGET, MAX_K, dampable, dampedAt, dampedSetup, type DampedSolution } from "./damped";
-import { invertContinuous } from "./continuous";
+import { invertWithinTerms } from "./continuous";
 import { atomMass, solutionAt } from "./shared";
 import { dampedExcess } from "./quantile-damped";
 import { lawShape } from "./range";
@@ -118,15 +118,15 @@ function lightComponent(w: number, m: CompiledModel, tolIn: number): Component |
   const wc = 1 - atoms.reduce((s, a) => s + a.p, 0);
   const shape = lawShape(m);
   if (shape.heavy) return null;
-  let tol = tolIn;
-  const solve = () =>
-    invertContinuous(m, atoms, { kind: "points", x: new Float64Array([shape.center]) }, { method: "gil-pelaez", tolerance: tol / wc, wantPdf: false });
-  let out = solve();
   // a slowly decaying CF: relax the target (the bounds follow) rather than spend seconds per evaluation
-  while (out.solution!.nodes.K > 1 << 17 && tol < 1e-9) {
-    tol *= 100;
-    out = solve();
-  }
+  const out = invertWithinTerms(
+    m,
+    atoms,
+    { kind: "points", x: new Float64Array([shape.center]) },
+    { method: "gil-pelaez", tolerance: tolIn / wc, wantPdf: false },
+    1 << 17,
+    1e-9 / wc,
+  );
   const sol = out.solution!;
   const e = wc * sol.error.cdf + 4 * Number.EPSILON;
   const { a, b } = sol.window;

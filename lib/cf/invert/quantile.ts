@@ -2,7 +2,7 @@ import { CfError } from "../errors";
 import type { DirectMethod } from "../direct/types";
 import { directQuantile, directQuantiles } from "../direct/answer";
 import type { Atom, CompiledModel } from "../types";
-import { evalLadder, growLadder, heavyLadder, invertContinuous, type HeavyLadder } from "./continuous";
+import { evalLadder, growLadder, heavyLadder, invertWithinTerms, type HeavyLadder } from "./continuous";
 import { atomMass, solutionAt } from "./shared";
 import { lawShape } from "./range";
 import { richardsonAmplification } from "./richardson";
@@ -82,21 +82,18 @@ function withModelNotes(model: CompiledModel, r: QuantileResult): QuantileResult
 }
 
 function lightQuantiles(model: CompiledModel, atoms: Atom[], w: number, p: Float64Array, o: QuantileOptions): QuantileResult {
-  let tol = o.tolerance ?? 1e-14;
   const shape = lawShape(model);
-  const solve = () =>
-    invertContinuous(model, atoms, { kind: "points", x: new Float64Array([shape.center]) }, {
-      method: "gil-pelaez",
-      tolerance: tol / w,
-      wantPdf: false,
-    });
-  let out = solve();
   // every root-finding step costs one pass over the nodes: when a slowly decaying CF needs very many, relax the
   // target (the error estimates follow) rather than spend seconds per level
-  while (out.solution!.nodes.K > 1 << 17 && tol < 1e-9 && o.tolerance === undefined) {
-    tol *= 100;
-    out = solve();
-  }
+  const tol = o.tolerance ?? 1e-14;
+  const out = invertWithinTerms(
+    model,
+    atoms,
+    { kind: "points", x: new Float64Array([shape.center]) },
+    { method: "gil-pelaez", tolerance: tol / w, wantPdf: false },
+    o.tolerance === undefined ? 1 << 17 : Infinity,
+    1e-9 / w,
+  );
   const sol = out.solution!;
   const errCdf = w * sol.error.cdf + 4 * Number.EPSILON;
   const ev: Evaluator = {

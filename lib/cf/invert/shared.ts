@@ -18,6 +18,8 @@ export interface PartOptions {
   wantPdf: boolean;
   range?: { from: number; to: number };
   maxFrequency?: number;
+  /** the light path stops (TermsOverCap) before building more nodes than this */
+  maxTerms?: number;
 }
 
 /** Everything a later caller (quantiles, expected shortfall) needs to evaluate more points cheaply. */
