@@ -3,7 +3,8 @@
 // checks (tests/support/invariants.ts checkAnswers) on each under the same per-model deadline with the same CPU-share
 // retry, and prints per shard the deadline-hit rate, per deadline stage the hits and the CPU ms the hit models used,
 // and a V8 CPU profile's self time grouped by lib/cf file (the top files) — CPU time, not wall time, since the
-// machine is shared. PROFILE_SHARDS=1,2 PROFILE_SCALE=0.5 (fraction of each shard's models) PROFILE_TOP=25.
+// machine is shared. PROFILE_SHARDS=1,2 PROFILE_SCALE=0.5 (fraction of each shard's models) PROFILE_TOP=25
+// PROFILE_LIST=<stage> (print the models that hit it).
 import { Session } from "node:inspector";
 import fc from "fast-check";
 import { clearDeadline, isDeadlineExceeded, setDeadline } from "@/lib/cf/deadline";
@@ -18,6 +19,8 @@ const DEADLINE_MS = Number(process.env.SUMFOLD_PROPERTY_DEADLINE_MS ?? 100);
 const SHARDS = (process.env.PROFILE_SHARDS ?? "1,2,3,4").split(",").map(Number);
 const SCALE = Number(process.env.PROFILE_SCALE ?? 1);
 const TOP = Number(process.env.PROFILE_TOP ?? 25);
+/** print the models that hit this deadline stage */
+const LIST = process.env.PROFILE_LIST;
 /** the shards' model counts (tests/cf/properties-<k>.test.ts: whole notation, aggregate claims) */
 const RUNS = { whole: 450, aggregate: 200 };
 
@@ -121,6 +124,7 @@ async function main() {
           s.hits++;
           s.cpu += o.cpu;
           for (const k of classes(m)) s.classes.set(k, (s.classes.get(k) ?? 0) + 1);
+          if (LIST === o.stage) console.log(`  [${o.stage}] ${JSON.stringify(m)}`);
           stages.set(o.stage, s);
         }
       }

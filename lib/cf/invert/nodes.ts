@@ -1,5 +1,6 @@
 import { cabs } from "../complex";
 import { evalPart, type ContinuousPart } from "./part";
+import type { CompiledModel } from "../types";
 import { checkDeadline } from "../deadline";
 import { RESYNC } from "./pointwise";
 
@@ -61,6 +62,25 @@ export function probeFrequencies(scale: number): Float64Array {
   return t;
 }
 
+/**
+ * The model's log-CF on a probe (t0 STEP^i, i < n), computed up to `done` and kept per compiled model: the same model is
+ * probed again and again (each endpoint-kernel fit, the tail-law split, quantiles after a density), and for numerical
+ * CFs each probe costs a quadrature per frequency. The values are those the model computes; nothing else is reused.
+ */
+const PROBES = new WeakMap<CompiledModel, { t0: number; n: number; re: Float64Array; im: Float64Array; done: number }[]>();
+function probeLogCf(model: CompiledModel, t0: number, n: number) {
+  let list = PROBES.get(model);
+  if (!list) PROBES.set(model, (list = []));
+  let own = list.find((p) => p.t0 === t0 && p.n === n);
+  if (!own) {
+    own = { t0, n, re: new Float64Array(n), im: new Float64Array(n), done: 0 };
+    // a handful of scales per model at most; the oldest goes first
+    if (list.length >= 4) list.shift();
+    list.push(own);
+  }
+  return own;
+}
+
 export function probeEnvelope(part: ContinuousPart, scale: number): Envelope {
   const nf = noiseFloor(part);
   const t0 = 1e-3 / scale;
@@ -73,9 +93,14 @@ export function probeEnvelope(part: ContinuousPart, scale: number): Envelope {
   // in blocks of two octaves, upward; once a whole block underflows to 0 the rest is 0 too (|phi| of
   // exp(-c t^a) type decays monotonically below 1e-300) and is not evaluated
   const B = 2 * PER_OCTAVE;
+  const own = probeLogCf(part.model, t0, n);
   for (let i0 = 0; i0 < n; i0 += B) {
     const i1 = Math.min(n, i0 + B);
-    evalPart(part, t.subarray(i0, i1), re.subarray(i0, i1), im.subarray(i0, i1));
+    if (own.done < i1) {
+      part.model.logCf(t.subarray(own.done, i1), own.re.subarray(own.done, i1), own.im.subarray(own.done, i1));
+      own.done = i1;
+    }
+    evalPart(part, t.subarray(i0, i1), re.subarray(i0, i1), im.subarray(i0, i1), undefined, { re: own.re.subarray(i0, i1), im: own.im.subarray(i0, i1) });
     let m = 0;
     for (let i = i0; i < i1; i++) m = Math.max(m, Math.abs(re[i]) + Math.abs(im[i]));
     if (m === 0 && i0 > 0 && part.atoms.length === 0 && part.kernels.length === 0) break;

@@ -95,9 +95,20 @@ export function tailLawAt(term: TailTerm, x: number): { pdf: number; cdf: number
  * phi_part(t) = [ (phi(t) - sum_j p_j e^{i t x_j}) / w  -  kernels(t) - phi_G(t) ] e^{-i t c}, written into (re, im).
  * Scratch-free apart from what the model needs; called once per node block, never per x.
  */
-export function evalPart(part: ContinuousPart, t: Float64Array, re: Float64Array, im: Float64Array, rel?: Float64Array): void {
+export function evalPart(
+  part: ContinuousPart,
+  t: Float64Array,
+  re: Float64Array,
+  im: Float64Array,
+  rel?: Float64Array,
+  logCf?: { re: Float64Array; im: Float64Array },
+): void {
   const n = t.length;
-  part.model.logCf(t, re, im);
+  // the model's log-CF at t, unless the caller has it already (probeEnvelope keeps it per model)
+  if (logCf) {
+    re.set(logCf.re);
+    im.set(logCf.im);
+  } else part.model.logCf(t, re, im);
   const ulps = cfUlps(part.model);
   const extra = part.model.logCfExtraError;
   const c = part.center;
