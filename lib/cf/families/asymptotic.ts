@@ -33,13 +33,15 @@ export function weibullSeries(k: number, terms = 400): WeibullSeries {
   return { lc, cr, ci, k };
 }
 
-/** the series is used only where its remainder and rounding bounds sum below this (a hundredth of the stated CF error) */
-export const SERIES_TOLERANCE = 1e-15;
+/** the series is summed until its remainder bound is below SERIES_REMAINDER, and used only where that and its rounding
+ *  bound together are below SERIES_TOLERANCE (a fifth of the stated error of the CFs that use it) */
+export const SERIES_REMAINDER = 1e-17;
+export const SERIES_TOLERANCE = 2e-14;
 const U = Number.EPSILON / 2;
 
 /**
- * The series of `ser` at |z| = a, arg z = -rot in [0, pi/2], summed while its remainder bound falls below
- * SERIES_TOLERANCE; false otherwise (then quadrature). Remainder: on the ray x = r e^{i w}, w = min(pi/2 + rot, pi/(2k)),
+ * The series of `ser` at |z| = a, arg z = -rot in [0, pi/2], summed until its remainder bound falls below
+ * SERIES_REMAINDER, used where that and the rounding are below SERIES_TOLERANCE; false otherwise (then quadrature). Remainder: on the ray x = r e^{i w}, w = min(pi/2 + rot, pi/(2k)),
  * the density's variable v = (x/scale)^k has Re v >= 0, where the remainders of e^{-v} (Weibull) and (1 + v)^{-alpha-1}
  * (Burr) after N terms are at most the first omitted term's modulus (Taylor's integral form: |e^{-sv}| <= 1 and
  * |1 + sv| >= 1 for Re v >= 0), and |e^{i z x}| = e^{-a r sin(w - rot)}: the error is at most term N with a replaced by
@@ -71,7 +73,8 @@ export function weibullAsymptotic(ser: WeibullSeries, a: number, out: Float64Arr
     if (lb > prev) return false;
     prev = lb;
     const rem = Math.exp(lb);
-    if (rem + U * (round + (j + 1) * mSum) <= SERIES_TOLERANCE) {
+    if (rem <= SERIES_REMAINDER) {
+      if (!(rem + U * (round + (j + 1) * mSum) <= SERIES_TOLERANCE)) return false;
       out[0] = sr;
       out[1] = si;
       return true;
@@ -219,7 +222,7 @@ export function burrExpansion(alpha: number, gamma: number, theta: number): Endp
  * The same large-|z| series for Burr XII (in the form weibullAsymptotic sums): term j of E exp(i z X) is
  * alpha gamma (-1)^j (alpha+1)_j / j! Gamma(gamma(j+1)) (-i z theta)^{-gamma(j+1)} (Watson's lemma on burrExpansion's
  * density series); the terms first fall, then grow (an asymptotic series), and it is used only where the remainder
- * bound of weibullAsymptotic falls below SERIES_TOLERANCE.
+ * bound of weibullAsymptotic falls below SERIES_REMAINDER.
  */
 export function burrSeries(alpha: number, gamma: number, terms = 400): WeibullSeries {
   const lc = new Float64Array(terms);
