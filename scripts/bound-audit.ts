@@ -373,6 +373,25 @@ function risk() {
   }
 }
 
+/** tests/fixtures/layer-moments: per-claim layer moments and compound Poisson cumulants of layers (mpmath, two methods, hi + lo) */
+function layerMoments() {
+  const set = "layer-moments";
+  type Pair = [number, number] | null;
+  const f = read<{ cases: { model: Model; raw: Pair[]; crossCheck: (number | null)[] }[]; compounds: { model: Model; cumulants: Pair[]; crossCheck: number[] }[] }>("layer-moments/layer-moments.json");
+  const add = (label: string, got: number | null, bound: number | null, ref: Pair, cross: number | null) => {
+    if (ref === null || got === null) return;
+    samples.push({ set, quantity: "moment", label, got, want: ref[0], refErr: Math.abs(ref[1]) + ((cross ?? 0) + 1e-30) * Math.abs(ref[0]), bound: bound ?? Infinity, tail: false });
+  };
+  for (const k of f.cases) {
+    const m = guarded(`${set} ${JSON.stringify(k.model)}`, () => moments(compile(k.model), 4));
+    if (m) k.raw.forEach((ref, j) => add(`${JSON.stringify(k.model)} E Y^${j + 1}`, m.raw[j], m.rawError[j], ref, k.crossCheck[j]));
+  }
+  for (const k of f.compounds) {
+    const m = guarded(`${set} ${JSON.stringify(k.model)}`, () => moments(compile(k.model), 4));
+    if (m) k.cumulants.forEach((ref, j) => add(`${JSON.stringify(k.model)} kappa_${j + 1}`, m.cumulants[j], m.cumulantError[j], ref, k.crossCheck[j]));
+  }
+}
+
 const SETS: [string, () => void][] = [
   ["direct/families", directFamilies],
   ["reference-families", referenceFamilies],
@@ -389,6 +408,7 @@ const SETS: [string, () => void][] = [
   ["stable", stable],
   ["reference-layered", layered],
   ["reference-risk", risk],
+  ["layer-moments", layerMoments],
 ];
 
 // ---- the table ---------------------------------------------------------------------------------------------

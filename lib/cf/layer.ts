@@ -13,10 +13,8 @@ import type { SeverityLaw } from "./discretise";
 import { restrictedIntegral } from "./quadrature";
 import { checkDeadline } from "./deadline";
 import { oscillatoryIntegral, type OscillatoryIntegral } from "./filon";
-
-/** Stated absolute accuracy of the layer's CF and of its raw moments (relative) by composite Gauss-Legendre. */
-export const LAYER_CF_ABS_ERROR = 1e-12;
-
+import { withCumulantErrors } from "./cumulant-bounds";
+import { exact, mul, powInt, rawToCumulantsE, type Est } from "./moment-error";
 
 /** Smallest u >= 0 (on a doubling search) with S(d + u) <= q. */
 function tailPoint(dist: DirectLaw, d: number, q: number, start: number): number {
@@ -80,13 +78,26 @@ export function layerNode(X: Node, terms: Partial<LayerTerms>): Node {
   const claimPdf = (u: number) => dist.pdf(d + u);
   const integrate = (g: (u: number) => [number, number], split: (w: number) => number): [number, number] =>
     restrictedIntegral(base, claimPdf, g, split);
-  // raw moments E Y^k = c^k (int (u)^k f(d + u) du + l^k S(d + l))
+  // raw moments E Y^k = c^k E[min((X - d)_+, l)^k]: in closed form with a derived bound where the claim law has one
+  // (families/layer-moments.ts), else by composite Gauss-Legendre, int u^k f(d + u) du + l^k S(d + l), without a bound
   const rawCache: number[] = [];
+  const rawEst: Est[] = [];
+  const closed = (k: number): Est | null => {
+    if (!dist.layerMoment) return null;
+    rawEst[k] ??= mul(powInt(exact(c), k), dist.layerMoment(k, d, l));
+    return Number.isFinite(rawEst[k].e) ? rawEst[k] : null;
+  };
   const raw = (k: number): number | null => {
     if (l === Infinity && k >= X.momentIndex) return null;
     if (rawCache[k] === undefined) {
-      const [v] = integrate((u) => [u ** k, 0], () => 4);
-      rawCache[k] = c ** k * (v + (l < Infinity ? l ** k * Sdl : 0));
+      const cf = closed(k);
+      // the closed form where it resolves the moment to 1e-9 of itself; either value's bound is the closed form's
+      // bound plus their difference (cumulantEst), so the choice only decides which value is reported
+      if (cf && cf.e <= 1e-9 * Math.abs(cf.v)) rawCache[k] = cf.v;
+      else {
+        const [v] = integrate((u) => [u ** k, 0], () => 4);
+        rawCache[k] = c ** k * (v + (l < Infinity ? l ** k * Sdl : 0));
+      }
     }
     return rawCache[k];
   };
@@ -139,7 +150,7 @@ export function layerNode(X: Node, terms: Partial<LayerTerms>): Node {
     },
     notes: [
       ...X.notes.filter((n) => !/CF computed/.test(n)),
-      `per-claim layer CF by a Filon-type rule on the claim density (Legendre interpolant on each panel, integrated exactly against e^{ist}; error measured per panel)${cut > 0 ? `; claim mass beyond ${d + L} left out: ${cut.toExponential(2)}` : ""}; moments by composite Gauss-Legendre quadrature (relative error <= ${LAYER_CF_ABS_ERROR})`,
+      `per-claim layer CF by a Filon-type rule on the claim density (Legendre interpolant on each panel, integrated exactly against e^{ist}; error measured per panel)${cut > 0 ? `; claim mass beyond ${d + L} left out: ${cut.toExponential(2)}` : ""}; ${dist.layerMoment ? "moments in closed form from the claim law's partial moments, each with a derived bound" : "moments by composite Gauss-Legendre quadrature, without a derived bound"}`,
     ],
     location: mean ?? c * Math.min(l, scaleX),
     scale: mean !== null && m2 !== null ? Math.sqrt(Math.max(m2 - mean * mean, 0)) || c * scaleX : c * Math.min(l, scaleX),
@@ -166,7 +177,10 @@ export function layerNode(X: Node, terms: Partial<LayerTerms>): Node {
     cumulants: (n) => rawToCumulants(Array.from({ length: n }, (_, i) => raw(i + 1))),
     severity: sev,
   };
-  return node;
+  if (!dist.layerMoment) return node;
+  return withCumulantErrors(node, (n) =>
+    rawToCumulantsE(Array.from({ length: n }, (_, i) => (l === Infinity && i + 1 >= X.momentIndex ? null : closed(i + 1)))),
+  );
 }
 
 /** Layer of a law with atoms (lattice, sample): each atom x moves to c min(max(x - d, 0), l), exactly. */

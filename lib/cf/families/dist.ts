@@ -2,6 +2,7 @@
 import { incGamma } from "../invert/incgamma";
 import { lgamma } from "./special";
 import betainc from "@stdlib/math-base-special-betainc";
+import type { LayerMoment } from "./layer-moments";
 
 export interface DirectLaw {
   pdf(x: number): number;
@@ -12,6 +13,8 @@ export interface DirectLaw {
   hi: number;
   /** relative accuracy of cdf and sf as computed (absolute for values near 1) */
   accuracy: number;
+  /** E[min((X - d)_+, l)^k] in closed form with a derived bound, where the family has one (layer-moments.ts) */
+  layerMoment?: LayerMoment;
 }
 
 /** Standard normal cdf Phi(z) = erfc(-z/sqrt 2)/2, with erfc(y) = Q(1/2, y^2) for y >= 0 (A&S 7.1.2, 6.5.17). */

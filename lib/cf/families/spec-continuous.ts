@@ -11,6 +11,12 @@ import { withCumulantErrors } from "../cumulant-bounds";
 import * as CE from "./cumulant-errors";
 import { connectedPoly } from "./lognormal";
 import { estList, rawToCumulantsE } from "../moment-error";
+import { gammaPartial, lognormalPartial, paretoPartial, weibullPartial, withLayerMoment } from "./layer-moments";
+
+const gammaWithLayers = (shape: number, rate: number) => {
+  const d = gammaDist(shape, rate);
+  return withLayerMoment(d, gammaPartial(shape, rate, d.accuracy));
+};
 
 export const CONTINUOUS_SPECS: Pick<Record<FamilyName, FamilySpec>, "normal" | "cauchy" | "uniform" | "exponential" | "gamma" | "chi_squared" | "laplace" | "logistic" | "student_t" | "stable" | "variance_gamma" | "nig" | "lognormal" | "pareto" | "weibull"> = {
   normal: {
@@ -71,7 +77,7 @@ export const CONTINUOUS_SPECS: Pick<Record<FamilyName, FamilySpec>, "normal" | "
     source: "Johnson, Kotz & Balakrishnan vol. 1, ch. 19",
     direct: (p) => D.gammaDirect(1, p.rate as number),
     layerable: true,
-    build: (p) => withCumulantErrors(withDist(gammaLaw(1, p.rate), gammaDist(1, p.rate)), CE.gammaE_(1, p.rate)),
+    build: (p) => withCumulantErrors(withDist(gammaLaw(1, p.rate), gammaWithLayers(1, p.rate)), CE.gammaE_(1, p.rate)),
     tailIndex: "none",
   },
   gamma: {
@@ -86,7 +92,7 @@ export const CONTINUOUS_SPECS: Pick<Record<FamilyName, FamilySpec>, "normal" | "
     source: "Johnson, Kotz & Balakrishnan vol. 1, ch. 17",
     direct: (p) => D.gammaDirect(p.shape as number, p.rate as number),
     layerable: true,
-    build: (p) => withCumulantErrors(withDist(gammaLaw(p.shape, p.rate), gammaDist(p.shape, p.rate)), CE.gammaE_(p.shape, p.rate)),
+    build: (p) => withCumulantErrors(withDist(gammaLaw(p.shape, p.rate), gammaWithLayers(p.shape, p.rate)), CE.gammaE_(p.shape, p.rate)),
     tailIndex: "none",
   },
   chi_squared: {
@@ -101,7 +107,7 @@ export const CONTINUOUS_SPECS: Pick<Record<FamilyName, FamilySpec>, "normal" | "
     source: "Johnson, Kotz & Balakrishnan vol. 1, ch. 18",
     direct: (p) => D.gammaDirect((p.k as number) / 2, 0.5),
     layerable: true,
-    build: (p) => withCumulantErrors(withDist(gammaLaw(p.k / 2, 0.5), gammaDist(p.k / 2, 0.5)), CE.gammaE_(p.k / 2, 0.5)),
+    build: (p) => withCumulantErrors(withDist(gammaLaw(p.k / 2, 0.5), gammaWithLayers(p.k / 2, 0.5)), CE.gammaE_(p.k / 2, 0.5)),
     tailIndex: "none",
   },
   laplace: {
@@ -221,7 +227,7 @@ export const CONTINUOUS_SPECS: Pick<Record<FamilyName, FamilySpec>, "normal" | "
     source: "Johnson, Kotz & Balakrishnan vol. 1, ch. 14",
     direct: (p) => D.lognormalDirect(p.mu as number, p.sigma as number),
     layerable: true,
-    build: (p) => withCumulantErrors(withDist(lognormal(p.mu, p.sigma), lognormalDist(p.mu, p.sigma)), CE.lognormalE(p.mu, p.sigma, connectedPoly)),
+    build: (p) => withCumulantErrors(withDist(lognormal(p.mu, p.sigma), withLayerMoment(lognormalDist(p.mu, p.sigma), lognormalPartial(p.mu, p.sigma, lognormalDist(p.mu, p.sigma).accuracy))), CE.lognormalE(p.mu, p.sigma, connectedPoly)),
     tailIndex: "none (heavier than any exponential)",
   },
   pareto: {
@@ -236,7 +242,7 @@ export const CONTINUOUS_SPECS: Pick<Record<FamilyName, FamilySpec>, "normal" | "
     source: "Johnson, Kotz & Balakrishnan vol. 1, ch. 20",
     direct: (p) => D.paretoDirect(p.alpha as number, p.xm as number),
     layerable: true,
-    build: (p) => withCumulantErrors(withDist(pareto(p.alpha, p.xm), paretoDist(p.alpha, p.xm)), (m) => rawToCumulantsE(estList(m, p.alpha, CE.paretoRawE(p.alpha, p.xm)))),
+    build: (p) => withCumulantErrors(withDist(pareto(p.alpha, p.xm), withLayerMoment(paretoDist(p.alpha, p.xm), paretoPartial(p.alpha, p.xm))), (m) => rawToCumulantsE(estList(m, p.alpha, CE.paretoRawE(p.alpha, p.xm)))),
     momentExistence: "below:alpha",
     tailIndex: "alpha",
   },
@@ -252,7 +258,7 @@ export const CONTINUOUS_SPECS: Pick<Record<FamilyName, FamilySpec>, "normal" | "
     source: "Johnson, Kotz & Balakrishnan vol. 1, ch. 21",
     direct: (p) => D.weibullDirect(p.shape as number, p.scale as number),
     layerable: true,
-    build: (p) => withCumulantErrors(withDist(weibull(p.shape, p.scale), weibullDist(p.shape, p.scale)), (m) => rawToCumulantsE(Array.from({ length: m }, (_, i) => CE.weibullRawE(p.shape, p.scale)(i + 1)))),
+    build: (p) => withCumulantErrors(withDist(weibull(p.shape, p.scale), withLayerMoment(weibullDist(p.shape, p.scale), weibullPartial(p.shape, p.scale, weibullDist(p.shape, p.scale).accuracy, CE.weibullRawE(p.shape, p.scale)))), (m) => rawToCumulantsE(Array.from({ length: m }, (_, i) => CE.weibullRawE(p.shape, p.scale)(i + 1)))),
     tailIndex: "none",
   },
 };

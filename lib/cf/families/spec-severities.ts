@@ -11,6 +11,7 @@ import * as DB from "../direct/bounded";
 import { withCumulantErrors } from "../cumulant-bounds";
 import * as CE from "./cumulant-errors";
 import { add, div, estList, exact, mul, rawToCumulantsE, sub } from "../moment-error";
+import { lomaxLayerMoment, withLayerMoment } from "./layer-moments";
 
 export const SEVERITY_SPECS: Pick<Record<FamilyName, FamilySpec>, "lomax" | "generalized_pareto" | "burr" | "loglogistic" | "inverse_gaussian" | "inverse_gamma" | "beta" | "pert" | "triangular" | "truncated_normal"> = {
   lomax: {
@@ -27,7 +28,11 @@ export const SEVERITY_SPECS: Pick<Record<FamilyName, FamilySpec>, "lomax" | "gen
     source: "Klugman, Panjer & Willmot, Loss Models (5th ed.), app. A.2.3.1 (Pareto); JKB vol. 1, ch. 20, sec. 3 (Pareto II)",
     direct: (p) => DS.lomaxDirect(p.alpha as number, p.theta as number),
     layerable: true,
-    build: (p) => withCumulantErrors(lomax(p.alpha, p.theta), (m) => rawToCumulantsE(estList(m, p.alpha, CE.lomaxRawE(p.alpha, p.theta)))),
+    build: (p) => {
+      const n = lomax(p.alpha, p.theta);
+      if (n.dist) n.dist = withLayerMoment(n.dist, lomaxLayerMoment(p.alpha, p.theta));
+      return withCumulantErrors(n, (m) => rawToCumulantsE(estList(m, p.alpha, CE.lomaxRawE(p.alpha, p.theta))));
+    },
   },
   generalized_pareto: {
     name: "generalized_pareto",
