@@ -164,7 +164,7 @@ function heavyQuantiles(model: CompiledModel, atoms: Atom[], w: number, p: Float
 /**
  * A bound on |x - q_p| from the errors at two points beside x instead of the largest error seen anywhere: with e(y) the
  * cdf bound at y, F_h(x - d) + e(x - d) < p and F_h(x + d) - e(x + d) > p put q_p in [x - d, x + d] (F is
- * non-decreasing). d starts at (|F_h(x) - p| + 2 e(x)) / f_h(x) and doubles up to four times; Infinity when the bracket
+ * non-decreasing). d starts at 1.0625 (|F_h(x) - p| + e(x)) / f_h(x) and doubles up to four times; Infinity when the bracket
  * does not close (the caller keeps its own bound). Above the median the same on S = 1 - F.
  */
 function localBracket(ev: Evaluator, lad: HeavyLadder, scratch: LadderScratch, w: number, x: number, p: number): number {
@@ -177,7 +177,8 @@ function localBracket(ev: Evaluator, lad: HeavyLadder, scratch: LadderScratch, w
   };
   const mid = at(x);
   if (!(mid.f > 0)) return Infinity;
-  let d = (Math.abs(mid.g) + 2 * mid.e) / mid.f;
+  // the bracket is verified below, so its first width may be the first-order one (slightly widened)
+  let d = ((Math.abs(mid.g) + mid.e) / mid.f) * 1.0625 + 8 * Number.EPSILON * Math.abs(x);
   for (let k = 0; k < 5; k++, d *= 2) {
     const l = at(x - d);
     const r = at(x + d);

@@ -90,15 +90,33 @@ export function solveLevels(
       err[i] = qHi - q + dx;
       if (!warnedFlat) notes.push("a level falls on a flat stretch of the cdf: the left end is returned, the error spans the stretch");
       warnedFlat = true;
-    } else if (r.f > 0 && ev.errAt) {
-      // |F(q) - p| <= |F(q) - F_h(q)| + |F_h(q) - p|: the cdf bound at q itself (the second part is in r.width)
-      err[i] = (2 * Math.min(ev.errAt(q), e)) / r.f + r.width;
+    } else if (r.f > 0) {
+      const eAt = (y: number) => (ev.errAt ? Math.min(ev.errAt(y), e) : e);
+      // a verified bracket where it closes; else the cdf bound at q over the density there, as before
+      err[i] = verifiedRadius(ev, g, q, r.f, eAt) ?? (2 * eAt(q)) / r.f + r.width;
     } else {
-      err[i] = r.f > 0 ? (2 * e) / r.f + r.width : Infinity;
+      err[i] = Infinity;
     }
     x[i] = q;
   }
   return { x, err };
+}
+
+/**
+ * A radius d with |q - q_p| <= d, verified at two points: g(y) = F_h(y) - p (or p - 1 + ... above the median) is within
+ * e(y) of the true G(y) = F(y) - p, so g(q - d) + e(q - d) < 0 < g(q + d) - e(q + d) gives F(q - d) < p <= F(q + d), and
+ * q_p (the smallest x with F(x) >= p) lies in (q - d, q + d] since F is non-decreasing. d starts at the first-order
+ * value (|g(q)| + e(q)) / f_h(q) (slightly widened) and doubles up to four times; null when no bracket closes inside
+ * the evaluator's window (where e holds).
+ */
+function verifiedRadius(ev: Evaluator, g: (v: { F: number; S: number }) => number, q: number, f: number, eAt: (y: number) => number): number | null {
+  let d = ((Math.abs(g(ev.eval(q))) + eAt(q)) / f) * 1.0625 + 8 * Number.EPSILON * Math.abs(q);
+  for (let k = 0; k < 5; k++, d *= 2) {
+    checkDeadline("quantile-bracket");
+    if (!(q - d >= ev.lo && q + d <= ev.hi)) return null;
+    if (g(ev.eval(q - d)) + eAt(q - d) < 0 && g(ev.eval(q + d)) - eAt(q + d) > 0) return d;
+  }
+  return null;
 }
 
 const LN8 = Math.log(8);
