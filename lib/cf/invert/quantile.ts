@@ -8,6 +8,7 @@ import { lawShape } from "./range";
 import { richardsonAmplification } from "./richardson";
 import { atomQuantiles, latticeQuantiles } from "./quantile-table";
 import { heavyShortfall, shortfallLight } from "./shortfall";
+import { stopLossBounds } from "./tail-moments";
 import { solveLevels, type Evaluator } from "./solve-levels";
 import { dampable } from "./damped";
 import { dampedQuantiles } from "./quantile-damped";
@@ -110,8 +111,9 @@ function lightQuantiles(model: CompiledModel, atoms: Atom[], w: number, p: Float
   if (o.expectedShortfall) {
     es = new Float64Array(p.length);
     esErr = new Float64Array(p.length);
+    const tails = stopLossBounds(model);
     for (let i = 0; i < p.length; i++) {
-      const r = shortfallLight(sol, atoms, w, x[i], p[i], errCdf, err[i], shape.spread);
+      const r = shortfallLight(sol, atoms, w, x[i], p[i], errCdf, err[i], shape.spread, tails);
       es[i] = r.value;
       esErr[i] = r.error;
     }

@@ -10,6 +10,7 @@ import { makePart, type ContinuousPart, type EndpointKernels } from "./part";
 import { integrateSf } from "./pointwise";
 import type { lawShape } from "./range";
 import { richardsonAmplification, richardsonRow } from "./richardson";
+import type { StopLossBounds } from "./tail-moments";
 
 /**
  * Expected shortfall ES_p = q_p + E[(X - q_p)^+] / (1 - p) (Acerbi & Tasche 2002): the tail integral
@@ -34,6 +35,27 @@ export function kernelSfIntegral(k: EndpointKernels, y: number): number {
   return s;
 }
 
+/**
+ * int of |F| left of a plus int of |S| right of u0 for the endpoint kernels (|b| times gamma laws at `at`, side +1:
+ * at + G, side -1: at - G): the kernels' share of the inverted measure's images in the ES integral. For G ~ Gamma(A, lambda)
+ * the tail integrals are E[(G - v)^+] (as kernelSfIntegral) or at most the distance to the kernel's end.
+ */
+function kernelImages(kernels: readonly EndpointKernels[], a: number, u0: number): number {
+  let s = 0;
+  for (const k of kernels) {
+    for (let q = 0; q < k.b.length; q++) {
+      const A = k.power + q;
+      const mean = A / k.rate;
+      // E[(G - v)^+], with an allowance for the cancellation of the two terms
+      const excess = (v: number) => (v <= 0 ? mean - v : Math.max(mean * incGamma(A + 1, k.rate * v).Q - v * incGamma(A, k.rate * v).Q, 0) + 1e-15 * (mean + v));
+      const left = k.side === 1 ? Math.max(a - k.at, 0) : excess(k.at - a);
+      const right = k.side === 1 ? excess(u0 - k.at) : Math.max(k.at - u0, 0);
+      s += Math.abs(k.b[q]) * (left + right);
+    }
+  }
+  return s;
+}
+
 export function shortfallLight(
   sol: PartSolution,
   atoms: Atom[],
@@ -43,6 +65,7 @@ export function shortfallLight(
   errCdf: number,
   errQ: number,
   spread: number,
+  tails: StopLossBounds | null = null,
 ): { value: number; error: number } {
   if (p >= 1) return { value: q, error: 0 };
   const b = sol.window.b;
@@ -64,9 +87,25 @@ export function shortfallLight(
   const excess = atomPart + w * part;
   const value = q + excess / (1 - p);
   // dES/dq = 1 - S(q)/(1 - p) vanishes at the exact quantile, so errQ enters at second order (bounded by errCdf errQ)
-  const error =
-    (w * (Math.max(b - q, 0) * alias + intRound + trunc + tailBeyond) + errCdf * errQ) / (1 - p) +
-    4 * Number.EPSILON * Math.abs(value);
+  let body = w * (Math.max(b - q, 0) * alias + intRound + trunc + tailBeyond);
+  if (tails && q < b) {
+    const a = sol.window.a;
+    const T = b - a;
+    // images: the sf error at y in [q, b] comes from F(y - mT) and S(y + mT), m >= 1; over y the shifted intervals are
+    // disjoint, so their integral is at most int_{-inf}^a |F| + int_{q+T}^inf |S|: the law's stop-loss bounds (the
+    // continuous part's mass is below the law's) plus the kernels'; the part beyond b is at most E[(X - b)^+]
+    // (each no larger than the window-wide terms above, which stay where they are smaller)
+    const images = Math.min(tails.left(a) + tails.right(q + T) + w * kernelImages(sol.part.kernels, a, q + T), w * Math.max(b - q, 0) * alias);
+    const beyond = Math.min(tails.right(b), w * tailBeyond);
+    // truncation: the terms t_k > t* = (K - 1/2) h of the integrated sum carry |phi_k| |e^{-i t_k b} - e^{-i t_k q}| / t_k^2
+    // <= 2 E(t_k) / t_k^2 with E non-increasing, so their sum is at most (2/pi) int_{t*}^inf E/t^2 <= 2 trunc_cdf(t*) / t*
+    // (doubled as the point bound above is)
+    const tStar = (sol.nodes.K - 0.5) * sol.nodes.h;
+    const truncInt = Math.min(trunc, (4 * truncationAt(sol.envelope, tStar).cdf) / tStar);
+    const derived = images + beyond + w * (intRound + truncInt);
+    if (Number.isFinite(derived)) body = derived;
+  }
+  const error = (body + errCdf * errQ) / (1 - p) + 4 * Number.EPSILON * Math.abs(value);
   return { value, error };
 }
 
