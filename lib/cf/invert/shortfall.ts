@@ -94,9 +94,10 @@ export function shortfallLight(
     // images: the sf error at y in [q, b] comes from F(y - mT) and S(y + mT), m >= 1; over y the shifted intervals are
     // disjoint, so their integral is at most int_{-inf}^a |F| + int_{q+T}^inf |S|: the law's stop-loss bounds (the
     // continuous part's mass is below the law's) plus the kernels'; the part beyond b is at most E[(X - b)^+]
-    // (each no larger than the window-wide terms above, which stay where they are smaller)
+    // (no larger than the window-wide term above, which stays where it is smaller)
     const images = Math.min(tails.left(a) + tails.right(q + T) + w * kernelImages(sol.part.kernels, a, q + T), w * Math.max(b - q, 0) * alias);
-    const beyond = Math.min(tails.right(b), w * tailBeyond);
+    // (the old allowance assumed a tail no longer than 8 spreads; the moment bound replaces it wherever it is finite)
+    const beyond = tails.right(b);
     // truncation: the terms t_k > t* = (K - 1/2) h of the integrated sum carry |phi_k| |e^{-i t_k b} - e^{-i t_k q}| / t_k^2
     // <= 2 E(t_k) / t_k^2 with E non-increasing, so their sum is at most (2/pi) int_{t*}^inf E/t^2 <= 2 trunc_cdf(t*) / t*
     // (doubled as the point bound above is)
