@@ -10,6 +10,7 @@ import { atomMass, solutionAt } from "./shared";
 import { dampedExcess } from "./quantile-damped";
 import { lawShape } from "./range";
 import { shortfallLight } from "./shortfall";
+import { stopLossBounds } from "./tail-moments";
 
 interface Value {
   F: number;
@@ -149,6 +150,7 @@ function lightComponent(w: number, m: CompiledModel, tolIn: number): Component |
     return inside(x);
   };
   const mean = m.momentIndex > 1 ? m.cumulants(1)[0] : null;
+  const tails = stopLossBounds(m);
   return {
     w,
     atoms,
@@ -156,13 +158,16 @@ function lightComponent(w: number, m: CompiledModel, tolIn: number): Component |
     excess(q) {
       if (mean === null || !Number.isFinite(mean)) return null;
       if (q >= b) {
-        // beyond the window: S(y) <= S(b) there, over at most 8 spreads of a light tail (as shortfallLight assumes)
+        // beyond the window: E[(X - q)^+] from the component's central moments (tail-moments.ts); without them S(y) <= S(b)
+        // over at most 8 spreads of a light tail (an allowance, not a derived bound)
+        const derived = tails ? tails.right(q) : Infinity;
+        if (Number.isFinite(derived)) return { value: 0, error: derived };
         const sb = Math.max(inside(b).S, 0) + e;
         return { value: 0, error: sb * 8 * shape.spread };
       }
       // below the window: E[(X - q)^+] = E[(X - a)^+] + (a - q) - int_q^a F, the last within (a - q) F(a)
       const qq = Math.max(q, a);
-      const r = shortfallLight(sol, atoms, wc, qq, 0, e, 0, shape.spread);
+      const r = shortfallLight(sol, atoms, wc, qq, 0, e, 0, shape.spread, tails);
       const fa = q < a ? Math.max(inside(a).F, 0) + e : 0;
       return { value: r.value - qq + (qq - q), error: r.error + (qq - q) * fa };
     },
