@@ -2,8 +2,9 @@
 // quantiles and expected shortfall through the power-tail inversion, against mpmath numerical convolution at 24 digits
 // (tests/fixtures/sums/generate.py: each value by two convolutions with the roles of the terms swapped); and sums led by
 // a stable term (with normal, uniform, Laplace, gamma terms, or a second stable), against mpmath Fourier inversion of
-// their closed-form CF at 20 digits (tests/fixtures/sums/generate_cf.py: tanh-sinh, checked by a second quadrature). Each
-// answer must lie within its own reported bound (honest) and meet the accuracy aimed at (quantiles 1e-7 relative, ES 1e-6).
+// their closed-form CF at 20 digits, E|X - q| at 30 (tests/fixtures/sums/generate_cf.py: tanh-sinh, checked by a second
+// quadrature). Each answer must lie within its own reported bound (honest), decided by a reference whose own uncertainty
+// is at most a tenth of that bound, and meet the accuracy aimed at (quantiles 1e-7 relative, ES 1e-6).
 import { afterAll, describe, expect, it } from "vitest";
 import { readFileSync } from "node:fs";
 import { compile, quantiles } from "@/lib/cf";
@@ -38,7 +39,10 @@ describe("sums with power tails vs mpmath convolution and CF inversion (tests/fi
       const esErr = r.diagnostics.expectedShortfallError![i];
       const dq = Math.abs(r.x[i] - x);
       const de = Math.abs(r.expectedShortfall![i] - es);
-      // the reported bounds hold (the reference's own uncertainty, x_check and es_check, is far below them)
+      // the reference can decide whether the bounds hold: its own uncertainty (x_check, es_check) is at most a tenth of them
+      expect(l.x_check, `${what}: reference quantile uncertainty vs reported bound ${qErr}`).toBeLessThanOrEqual(qErr / 10);
+      expect(l.es_check, `${what}: reference ES uncertainty vs reported bound ${esErr}`).toBeLessThanOrEqual(esErr / 10);
+      // the reported bounds hold
       expect(dq, `${what}: quantile ${r.x[i]} vs ${x}, reported bound ${qErr}`).toBeLessThanOrEqual(qErr + l.x_check);
       expect(de, `${what}: ES ${r.expectedShortfall![i]} vs ${es}, reported bound ${esErr}`).toBeLessThanOrEqual(esErr + l.es_check);
       // and the accuracy aimed at
@@ -48,6 +52,7 @@ describe("sums with power tails vs mpmath convolution and CF inversion (tests/fi
       record(`${c.name} ES rel`, de / Math.abs(es));
       record(`${c.name} quantile error / bound`, dq / qErr);
       record(`${c.name} ES error / bound`, de / esErr);
+      record(`${c.name} reference ES uncertainty / bound`, l.es_check / esErr);
     });
   });
 });
