@@ -299,15 +299,16 @@ function compoundHeavy(file: string, set: string) {
   }
 }
 
-function sums() {
-  const set = "sums";
-  const f = read<{ cases: { model: Model; levels: { p: string; x: string; x_check: number; es: string; es_check: number; pdf: string }[] }[] }>("sums/sums.json");
+/** sums.json (mpmath convolution, densities to 24 digits) and cf-sums.json (sums led by a stable term, mpmath Fourier
+ * inversion: its densities come from one quadrature, so only its quantiles and ES, each checked by a second one) */
+function sums(path: string, set: string, withPoints: boolean) {
+  const f = read<{ cases: { model: Model; levels: { p: string; x: string; x_check: number; es: string; es_check: number; pdf: string }[] }[] }>(path);
   for (const k of f.cases) {
     const c = compiled(set, k.model);
     if (!c) continue;
     levels(set, k.model, c, k.levels.map((l) => ({ p: num(l.p), q: num(l.x), qErr: Math.abs(l.x_check) + 1e-22, es: num(l.es), esErr: Math.abs(l.es_check) })));
     // at the reference quantile the cdf is p and the density the written one
-    points(set, k.model, c, k.levels.map((l) => ({ x: num(l.x), pdf: num(l.pdf), cdf: num(l.p) })), (v) => 1e-20 * Math.abs(v));
+    if (withPoints) points(set, k.model, c, k.levels.map((l) => ({ x: num(l.x), pdf: num(l.pdf), cdf: num(l.p) })), (v) => 1e-20 * Math.abs(v));
   }
 }
 
@@ -403,7 +404,8 @@ const SETS: [string, () => void][] = [
   ["compound/compound", compoundContinuous],
   ["compound/heavy", () => compoundHeavy("compound/heavy.json", "compound/heavy")],
   ["compound/heavy-sums", () => compoundHeavy("compound/heavy-sums.json", "compound/heavy-sums")],
-  ["sums", sums],
+  ["sums", () => sums("sums/sums.json", "sums", true)],
+  ["cf-sums", () => sums("sums/cf-sums.json", "cf-sums", false)],
   ["lattice-sums", latticeSums],
   ["stable", stable],
   ["reference-layered", layered],
