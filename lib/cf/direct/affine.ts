@@ -47,15 +47,20 @@ export function affineDirect(law: DirectLaw, a: number, b: number): DirectLaw {
     },
     ...(q ? { quantile: (p: number) => (a > 0 ? a * q(p) + b : a * q(1 - p) + b) } : {}),
     // int_c^inf S_Y = |a| int_{(c-b)/a}^inf S_X (a > 0), |a| int_-inf^{(c-b)/a} F_X (a < 0); likewise on the left; the
-    // rounding of (c - b)/a moves it by the tail mass there (at most 1) times that rounding
+    // rounding dx of (c - b)/a moves it by at most dx times the tail mass on [x - dx, x + dx], which (S_X falling, F_X
+    // rising) is at most the mass at the end nearer the body, with its bound (not 1: far out the mass is ~ x^-alpha)
     ...(law.stopLoss
       ? {
           stopLoss: (c: number, side: 1 | -1) => {
             const x = (c - b) / a;
-            const r = law.stopLoss!(x, a > 0 ? side : ((-side) as 1 | -1));
+            const s = a > 0 ? side : ((-side) as 1 | -1);
+            const r = law.stopLoss!(x, s);
             if (!r) return null;
             const dx = 2 * Number.EPSILON * (Math.abs(c) + Math.abs(b)) / aa + Number.EPSILON * Math.abs(x);
-            return { v: aa * r.v, e: aa * (r.e + dx) + 2 * Number.EPSILON * aa * r.v };
+            law.at(x - s * dx, near);
+            const m = s === 1 ? near.sf + near.sfErr : near.cdf + near.cdfErr;
+            const mass = m >= 0 && m < 1 ? m : 1;
+            return { v: aa * r.v, e: aa * (r.e + mass * dx) + 2 * Number.EPSILON * aa * r.v };
           },
         }
       : {}),
