@@ -96,7 +96,8 @@ export function lognormal(mu: number, sigma: number): Node {
       }
     }
     for (let k = k1; k < K; k++) {
-      re[k] = Math.log(Math.hypot(sr[k], si[k]));
+      const s2 = sr[k] * sr[k] + si[k] * si[k];
+      re[k] = s2 > 1e-290 ? 0.5 * Math.log(s2) : Math.log(Math.hypot(sr[k], si[k]));
       im[k] = Math.atan2(si[k], sr[k]);
     }
   };

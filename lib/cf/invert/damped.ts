@@ -158,7 +158,9 @@ export function dampedSetup(model: CompiledModel, atoms: Atom[], R: number, o: D
     cIm[k] = pRe[k] * ui + pIm[k] * ur;
     iRe[k] = cRe[k] * ur - cIm[k] * ui;
     iIm[k] = cRe[k] * ui + cIm[k] * ur;
-    const a = Math.hypot(pRe[k], pIm[k]);
+    // |psi_k| by the square root (a few ulps; the allowances carry far more), hypot only where the squares could underflow
+    const s2 = pRe[k] * pRe[k] + pIm[k] * pIm[k];
+    const a = s2 > 1e-290 ? Math.sqrt(s2) * (1 + 4 * EPS) : Math.hypot(pRe[k], pIm[k]);
     absP += a;
     absC += a / Math.sqrt(d);
     absI += a / d;

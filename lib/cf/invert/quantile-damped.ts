@@ -29,6 +29,9 @@ export function dampedQuantiles(model: CompiledModel, atoms: Atom[], p: Float64A
   const tol = o.tolerance ?? (Number.isFinite(model.tails.right) ? QUANTILE_TOLERANCE : Math.min(QUANTILE_TOLERANCE, Math.max(1e-6 * tail, 1e-14)));
   let R = mean !== null && sd !== null && Number.isFinite(mean) ? mean + 6 * sd : model.location + 6 * model.scale;
   if (Number.isFinite(model.tails.right)) R = Math.max(R, lo + (model.location - lo + model.scale) * Math.pow(2 / tail, 1 / Math.max(model.tails.right, 0.1)));
+  // a heavy tail puts mean + 6 sd far past the levels asked (Poisson(1)-lognormal(0, 2.5) at 0.95: 3 131 against 140),
+  // and a loose probe's terms grow with its range: start no further than 8 times the mean (the probes then double it)
+  if (mean !== null && Number.isFinite(mean) && mean > lo) R = Math.min(R, lo + 8 * (mean - lo));
   if (!(R > lo)) R = lo + Math.max(model.scale, 1e-300);
   const Mc = Math.max(1 - atoms.reduce((s, a) => s + a.p, 0), 0);
   const split = (x: number) => atomMass(atoms, x);
