@@ -24,7 +24,10 @@ export { dampedAt, dampedGrid, gridPeriod, type DampedPoint } from "./damped-eva
  * terms) are subtracted from psi_c and their cdf, density and integrated cdf added back in closed form.
  */
 
-export const MAX_K = 1 << 21;
+/** the most frequency terms a solution takes (the quantile search's last resort before the undamped route) */
+export const MAX_K = 1 << 22;
+/** budget when kernels or the one-claim term are taken out: what is left decays fast, so a long range is worth its terms */
+export const KERNEL_BUDGET = 1 << 21;
 /** default budget of frequency terms before the undamped routes are preferred */
 export const DAMPED_BUDGET = 1 << 19;
 const EPS = Number.EPSILON;

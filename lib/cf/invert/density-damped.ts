@@ -1,5 +1,5 @@
 import type { Atom, CompiledModel } from "../types";
-import { DAMPED_BUDGET, MAX_K, dampedAt, dampedGrid, dampedPlan, dampedSetup, gridPeriod } from "./damped";
+import { DAMPED_BUDGET, KERNEL_BUDGET, dampedAt, dampedGrid, dampedPlan, dampedSetup, gridPeriod } from "./damped";
 import { atomMass, type Request } from "./shared";
 import { dampedPoints, pointsPlan } from "./damped-points";
 import type { DensityResult } from "./types";
@@ -38,7 +38,7 @@ export function dampedDensity(
     if (pdf) pdf[i] = fc;
   };
   // a one-claim term or kernels taken out: what is left decays fast, so a long range is worth its terms (as for quantiles)
-  const budget = model.dampedKernels?.length || model.dampedSeverity ? MAX_K : DAMPED_BUDGET;
+  const budget = model.dampedKernels?.length || model.dampedSeverity ? KERNEL_BUDGET : DAMPED_BUDGET;
   let sol;
   const notes0: string[] = [];
   if (req.kind === "grid" && useFft) {

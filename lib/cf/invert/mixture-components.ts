@@ -4,7 +4,7 @@ import { checkDeadline } from "../deadline";
 import { mergeAtoms } from "../kinds";
 import { directPoint, type DirectLaw, type DirectPoint } from "../direct/types";
 import { directShortfall } from "../direct/answer";
-import { DAMPED_BUDGET, MAX_K, dampable, dampedAt, dampedSetup, type DampedSolution } from "./damped";
+import { DAMPED_BUDGET, KERNEL_BUDGET, dampable, dampedAt, dampedSetup, type DampedSolution } from "./damped";
 import { invertWithinTerms } from "./continuous";
 import { atomMass, solutionAt } from "./shared";
 import { dampedExcess } from "./quantile-damped";
@@ -64,7 +64,7 @@ function dampedComponent(w: number, m: CompiledModel, R0: number, tol: number, t
   const lo = m.support[0];
   const atoms = m.kind.type === "mixed" ? [...m.kind.atoms].sort((u, v) => u.x - v.x) : [];
   const Mc = Math.max(1 - atoms.reduce((s, a) => s + a.p, 0), 0);
-  const budget = m.dampedKernels?.length || m.dampedSeverity ? MAX_K : DAMPED_BUDGET;
+  const budget = m.dampedKernels?.length || m.dampedSeverity ? KERNEL_BUDGET : DAMPED_BUDGET;
   const mean = m.momentIndex > 1 ? m.cumulants(1)[0] : null;
   const setup = (R: number) => dampedSetup(m, atoms, R, { tolerance: tol, wantPdf: true, budget, pointwise: true });
   let R = R0;
