@@ -72,6 +72,8 @@ export interface DampedPlan {
   noise: number;
   /** the two-claim term is taken out of psi too (see SeverityKernel.pair) */
   pairOut: boolean;
+  /** the sums' estimated rounding (CF noise included) over tol / 4: above 1 the plan cannot reach the tolerance */
+  rounding: number;
 }
 
 /**
@@ -270,7 +272,7 @@ function planFor(
   let tmax = cutoffFor(env, wantPdf ? target : Infinity, target);
   if (!Number.isFinite(tmax)) tmax = env.t[env.t.length - 1];
   const T = periodFor(U);
-  return { plan: { beta, T, U, env, tmax, noise, pairOut }, K: (tmax * T) / (2 * Math.PI) };
+  return { plan: { beta, T, U, env, tmax, noise, pairOut, rounding: best.bad }, K: (tmax * T) / (2 * Math.PI) };
 }
 
 /**
