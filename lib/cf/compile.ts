@@ -239,6 +239,7 @@ export function toCompiled(node: Node): CompiledModel {
       return t && (t.tailMass <= USEFUL_TAIL || node.approximate) ? t : null;
     };
   }
+  if (node.kind.type === "lattice" && node.approximate) compiled.discretisedLattice = true;
   return compiled;
 }
 

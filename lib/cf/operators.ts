@@ -194,9 +194,14 @@ export function scaleNode(a: number, c: Node): Node {
       const tab = c.table!(maxLength);
       if (!tab) return null;
       if (a > 0) return { origin: a * tab.origin, step: a * tab.step, p: tab.p, tailMass: tab.tailMass, cdfError: tab.cdfError };
-      if (tab.tailMass > 0) return null; // reversing a truncated table would put the cut at the lower end
+      // reversing a truncated table puts the cut below its origin, where tailMass (an upper-tail mass) cannot go: an
+      // exact table falls back to the CF route (its CF is the lattice law's); a discretised one must not (its node's
+      // CF is the continuous law's, so an FFT of it on the lattice is not this table), and the cut mass joins its
+      // cdf error instead (every cdf and sf value moves by at most that mass)
+      if (tab.tailMass > 0 && tab.cdfError === undefined) return null;
       const p = tab.p.slice().reverse();
-      return { origin: a * (tab.origin + (tab.p.length - 1) * tab.step), step: aa * tab.step, p, tailMass: 0, cdfError: tab.cdfError };
+      const cdfError = tab.cdfError === undefined ? undefined : tab.cdfError + tab.tailMass;
+      return { origin: a * (tab.origin + (tab.p.length - 1) * tab.step), step: aa * tab.step, p, tailMass: 0, cdfError };
     };
     node.approximate = c.approximate;
   }

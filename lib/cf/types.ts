@@ -79,6 +79,9 @@ export interface CompiledModel {
    *  discretisation of a continuous severity, whose table carries its cdfError), return the pmf starting at
    *  `origin` on `step`, truncated with the dropped tail mass reported; otherwise null. */
   latticeTable?(maxLength: number): LatticeTable | null;
+  /** a lattice law that stands for a discretised continuous one: only its table describes it (its CF is the
+   *  continuous law's), so without a table it cannot be inverted as a lattice law */
+  discretisedLattice?: boolean;
   /** a mixture (possibly scaled or shifted): its weights and compiled components, each answerable by its own route */
   components?(): readonly { weight: number; model: CompiledModel }[];
   /** a discretised compound of claims with their own cdf (per-claim layers): the compounds with every claim rounded

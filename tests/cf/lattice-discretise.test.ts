@@ -174,6 +174,27 @@ describe("discretised compound vs the Erlang-mixture closed form (weibull shape 
     expect(actual).toBeGreaterThan(0);
     expect(r.diagnostics.error.cdf, `actual ${actual}, estimate ${r.diagnostics.error.cdf}`).toBeGreaterThanOrEqual(actual);
   });
+  it("reflected (scale -2): F(y) = 1 - F_S(-y/2) within the stated bound, and 0 below the support", () => {
+    // -2 S has no mass below -2 x_max and P(-2 S <= y) = P(S >= -y/2) = 1 - F_S(-y/2) where S is continuous (common
+    // practice); F_S from the Erlang mixture. The reversed table carries its cut tail mass in its cdf error.
+    const lambda = 2;
+    const scale = 1;
+    const c = compile({ scale: -2, of: poissonWeibull1(lambda, scale) }, { discretise: {} });
+    expect(c.kind.type).toBe("lattice");
+    const ys = Array.from({ length: 30 }, (_, i) => -0.37 - 0.61 * i);
+    const r = density(c, { x: ys });
+    expect(r.diagnostics.method).toBe("discretised");
+    const bound = r.diagnostics.error.cdf;
+    r.x.forEach((y, i) => {
+      const ref = 1 - erlangMixtureCdf(lambda, scale, -y / 2);
+      expect(Math.abs(r.cdf[i] - ref), `y=${y}: cdf ${r.cdf[i]}, reference ${ref}, bound ${bound}`).toBeLessThanOrEqual(bound);
+    });
+    // a discretised layered compound reflected: nothing below -a (2 limits), however the table is built
+    const layered = { scale: -1.706, of: { compound: { count: { lattice: { origin: 0, step: 1, p: [0.197, 0.533, 0.27] } }, each: { layer: { deductible: 1.842, limit: 9.997 }, of: { family: "weibull", shape: 0.816, scale: 1.839 } } } } };
+    const low = -1.706 * 2 * 9.997;
+    const rl = density(compile(layered), { x: [low - 0.5, low - 0.0036] });
+    rl.cdf.forEach((F, i) => expect(F, `cdf at ${rl.x[i]} below the support's end ${low}, bound ${rl.diagnostics.error.cdf}`).toBeLessThanOrEqual(rl.diagnostics.error.cdf));
+  });
   it("print worst errors", () => {
     console.log("worst errors (discretised compounds):", JSON.stringify(worst, null, 1));
     expect(Object.keys(worst).length).toBeGreaterThan(0);

@@ -1,6 +1,7 @@
 import type { CompiledModel, LatticeTable } from "../types";
 import { getFftPlan, nextPowerOfTwo } from "../fftplan";
 import { MAX_LATTICE } from "../limits";
+import { CfError } from "../errors";
 import { bulkWindow, lawShape } from "./range";
 
 export interface LatticeSolution {
@@ -40,6 +41,9 @@ export function solveLattice(model: CompiledModel, origin: number, step: number,
         notes,
       };
     }
+  }
+  if (model.discretisedLattice) {
+    throw new CfError("limit_exceeded", "", `the discretised law could not be tabulated within ${MAX_LATTICE} lattice points; choose a larger span or leave out method discretise`);
   }
   const shape = lawShape(model);
   const { from: left, to: right } = bulkWindow(shape, tol / 64, 64);
