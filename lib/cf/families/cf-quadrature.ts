@@ -52,8 +52,11 @@ export function contourPhi(c: Contour): (a: number, out: Float64Array) => void {
   const l = new Float64Array(2);
   return (a, out) => {
     const [lo, hi] = c.range(a);
+    // compensated (Kahan) sums: kr, ki carry each addition's rounding
     let sr = 0;
     let si = 0;
+    let kr = 0;
+    let ki = 0;
     const n = Math.ceil((hi - lo) / h);
     for (let j = 0; j <= n; j++) {
       const v = lo + j * h;
@@ -63,8 +66,14 @@ export function contourPhi(c: Contour): (a: number, out: Float64Array) => void {
       if (mr < -800) continue;
       const mag = Math.exp(mr);
       const ph = l[1] + a * ev * cs;
-      sr += mag * Math.cos(ph);
-      si += mag * Math.sin(ph);
+      const yr = mag * Math.cos(ph) - kr;
+      const tr_ = sr + yr;
+      kr = tr_ - sr - yr;
+      sr = tr_;
+      const yi = mag * Math.sin(ph) - ki;
+      const ti_ = si + yi;
+      ki = ti_ - si - yi;
+      si = ti_;
     }
     out[0] = sr * h;
     out[1] = si * h;
@@ -144,6 +153,9 @@ export function expSumArithmetic(
   const wAbs = cabs(wRe, wIm);
   outRe.fill(0, 0, K);
   outIm.fill(0, 0, K);
+  // compensated (Kahan) sums across the nodes: kr, ki carry each addition's rounding
+  const kr = new Float64Array(K);
+  const ki = new Float64Array(K);
   let J0 = 0;
   while (J0 < n && tEnd * e[J0] * wAbs <= 1) J0++;
   let absSum = 0;
@@ -151,12 +163,21 @@ export function expSumArithmetic(
     const M = MOMENT_ORDER;
     const mr = new Float64Array(M + 1);
     const mi = new Float64Array(M + 1);
+    // compensated (Kahan) moment sums: qr, qi carry each addition's rounding
+    const qr = new Float64Array(M + 1);
+    const qi = new Float64Array(M + 1);
     for (let j = 0; j < J0; j++) {
       absSum += cabs(cRe[j], cIm[j]);
       let p = 1;
       for (let m = 0; m <= M; m++) {
-        mr[m] += cRe[j] * p;
-        mi[m] += cIm[j] * p;
+        const yr = cRe[j] * p - qr[m];
+        const tr = mr[m] + yr;
+        qr[m] = tr - mr[m] - yr;
+        mr[m] = tr;
+        const yi = cIm[j] * p - qi[m];
+        const ti = mi[m] + yi;
+        qi[m] = ti - mi[m] - yi;
+        mi[m] = ti;
         p *= e[j];
       }
     }
@@ -205,8 +226,14 @@ export function expSumArithmetic(
       let zi = cRe[j] * sn + cIm[j] * cs;
       const end = Math.min(K, k + RESYNC);
       for (; k < end; k++) {
-        outRe[k] += zr;
-        outIm[k] += zi;
+        const yr = zr - kr[k];
+        const sr = outRe[k] + yr;
+        kr[k] = sr - outRe[k] - yr;
+        outRe[k] = sr;
+        const yi = zi - ki[k];
+        const si = outIm[k] + yi;
+        ki[k] = si - outIm[k] - yi;
+        outIm[k] = si;
         const nr = zr * rr - zi * ri;
         zi = zr * ri + zi * rr;
         zr = nr;

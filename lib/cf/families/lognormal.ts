@@ -4,7 +4,7 @@ import { checkDeadline } from "../deadline";
 import type { Node } from "../node";
 import { fromPhiDamped } from "../damped-cf";
 import { arithmeticNodes, expSumArithmetic, fromPhi } from "./cf-quadrature";
-import { NUMERIC_CF_ABS_ERROR, arithmetic, logFromSums, quadratureNodes } from "./numeric-rule";
+import { SUM_MOMENT_UNITS, arithmetic, logFromSums, quadratureNodes } from "./numeric-rule";
 
 /**
  * Lognormal(mu, sigma): phi(t) = int N(y; mu, sigma^2) exp(i t e^y) dy. For t > 0 the integrand is entire in y and the
@@ -15,8 +15,12 @@ import { NUMERIC_CF_ABS_ERROR, arithmetic, logFromSums, quadratureNodes } from "
 export function lognormal(mu: number, sigma: number): Node {
   const theta = Math.min(Math.PI / 2, 2.5 * sigma);
   const c = theta / sigma;
-  const h = Math.min((2 * Math.PI * c) / (2 * c * c + 40), 0.5);
-  const V = Math.sqrt(2 * (40 + 2.5 * c * c));
+  // step rounded down to 10 significant bits and the range out to a whole number of steps: the nodes -V + j h are
+  // exact (integers times one power of 2), while a smaller step and wider range only lower the rule's error
+  const h0 = Math.min((2 * Math.PI * c) / (2 * c * c + 40), 0.5);
+  const hExp = Math.pow(2, Math.floor(Math.log2(h0)) - 10);
+  const h = Math.floor(h0 / hExp) * hExp;
+  const V = Math.ceil(Math.sqrt(2 * (40 + 2.5 * c * c)) / h) * h;
   const n = quadratureNodes(Math.ceil((2 * V) / h) + 1, `the lognormal sigma ${sigma}`, "use a sigma up to 1e4.");
   const v = new Float64Array(n);
   const w = new Float64Array(n);
@@ -39,22 +43,31 @@ export function lognormal(mu: number, sigma: number): Node {
     const b = beta * em;
     const dr = a * sn + b * cs;
     const pr = a * cs - b * sn;
+    // compensated (Kahan) sums: kr, ki carry each addition's rounding
     let sr = 0;
     let si = 0;
+    let kr = 0;
+    let ki = 0;
     for (let j = 0; j < n; j++) {
       const damp = dr * ev[j];
       if (damp > 45) break;
       const amp = w[j] * Math.exp(-damp);
       const ph = pr * ev[j] - cc * v[j];
-      sr += amp * Math.cos(ph);
-      si += amp * Math.sin(ph);
+      const yr = amp * Math.cos(ph) - kr;
+      const tr_ = sr + yr;
+      kr = tr_ - sr - yr;
+      sr = tr_;
+      const yi = amp * Math.sin(ph) - ki;
+      const ti_ = si + yi;
+      ki = ti_ - si - yi;
+      si = ti_;
     }
     out[0] = g * sr;
     out[1] = g * si;
   };
   const single = fromPhiDamped(phiAt);
   // equispaced t_k = t_0 + k d (the damped inversion's nodes): for a fixed path angle each quadrature term is a
-  // geometric sequence in k, advanced by one complex multiply and recomputed every 64 steps
+  // geometric sequence in k, advanced by one complex multiply and recomputed every 16 steps
   const batch = (beta: number, t: Float64Array, re: Float64Array, im: Float64Array) => {
     const K = t.length;
     const d = t[1] - t[0];
@@ -85,7 +98,7 @@ export function lognormal(mu: number, sigma: number): Node {
         const ph = e * (t[k] * cs - beta * sn) - cc * v[j];
         let zr = amp * Math.cos(ph);
         let zi = amp * Math.sin(ph);
-        const end = Math.min(K, k + 64);
+        const end = Math.min(K, k + 16);
         for (; k < end; k++) {
           sr[k] += zr;
           si[k] += zi;
@@ -122,8 +135,7 @@ export function lognormal(mu: number, sigma: number): Node {
   let wSum = 0;
   for (let j = 0; j < n; j++) wSum += w[j];
   const shortcutError = wSum * g0 * (2e-25 + 80 * Number.EPSILON) + n * 1e-21;
-  // rule (1e-16), rounding of the direct sums (16 eps each way) and the shortcuts; stated as it is, even above 1e-13
-  const cfError = Math.max(1e-16 + 16 * Number.EPSILON * g0, shortcutError + 1e-16);
+  const cfError = 1e-16 + roundingBound(w, v, n, sigma, theta, c, shortcutError / g0) * g0;
   const s2 = sigma * sigma;
   const d = Math.expm1(s2);
   const damped = (beta: number, t: Float64Array, re: Float64Array, im: Float64Array) => (arithmetic(t) ? batch(beta, t, re, im) : single(beta, t, re, im));
@@ -132,9 +144,9 @@ export function lognormal(mu: number, sigma: number): Node {
     momentIndex: Infinity,
     tails: { left: Infinity, right: Infinity },
     nodes: 1,
-    notes: [`lognormal CF computed by quadrature on a shifted contour (absolute error <= ${Math.max(cfError, NUMERIC_CF_ABS_ERROR).toPrecision(2)})`],
-    // the step and range make the rule's own error below 1e-16; rounding: the terms' magnitudes sum to at most
-    // e^{c^2/2} (the Gaussian weight on the shifted path), 16 eps each way
+    notes: [`lognormal CF computed by quadrature on a shifted contour (absolute error <= ${cfError.toPrecision(2)})`],
+    // the step and range make the rule's own error below 1e-16; rounding of every route (roundingBound) and the
+    // shortcuts of the equispaced sums
     cfAbsError: cfError,
     dampedLogCf: damped,
     // compounds take the one-claim term out of their damped transform and add it back in closed form
@@ -160,6 +172,44 @@ export function lognormal(mu: number, sigma: number): Node {
     logCf: (t, re, im) => (arithmeticNodes(t) ? logCfArithmetic(t, re, im) : fromPhi(t, re, im, (x, out) => phiAt(x, 0, out))),
     cumulants: (m) => lognormalCumulants(mu, sigma, m),
   };
+}
+
+const U = Number.EPSILON / 2;
+
+/**
+ * Rounding of the lognormal rule's sums, divided by e^{c^2/2}, over every route (per frequency, the damped batch, the
+ * equispaced sums), with u = 2^-53, +-*\/ within u and exp, cos, sin within 2u (one ulp). Term j is
+ * w_j exp(-D_j) e^{i P_j}, D_j = d e_j, P_j = p e_j - c v_j, e_j = e^{sigma v_j}; relative to it:
+ *  - the weight (exp of -v^2/2): (v_j^2 + 8) u with the products and the final factor e^{c^2/2};
+ *  - the node v_j is exact (the step has 10 significant bits, j < 2^16);
+ *  - e_j within 2 (1 + sigma |v_j|) u, which D_j and P_j carry times (D_j + |p e_j|); on every path
+ *    |p| <= d cot(theta) (the path angle is theta or leaves p = 0), and e^{-D} (D + |p| e_j) <= (1 + cot theta) / e;
+ *  - c v_j: 2 c |v_j| u;
+ *  - the damped batch's at most 15 steps of recurrence between exact terms: (sqrt 5 + 4) u each, and the step's own
+ *    phase and decay 3 u d e_j (1 + cot(0.9 theta)) per step, whose sum over the steps is bounded by e^{-D} D as above;
+ *  - the compensated sum of n terms per frequency and in the equispaced sums: 2 sqrt 2 u + 8 n u^2 of the moduli
+ *    (Higham, Accuracy and Stability of Numerical Algorithms, 2nd ed., sec. 4.3), with the equispaced sums' moments
+ *    (SUM_MOMENT_UNITS, numeric-rule.ts); the damped batch's plain sum: sqrt 2 gamma_{n-1} (Higham sec. 4.2);
+ *  - a value comes from one route, so the bound takes the largest route's part, not their sum.
+ * The weights sum these with the rule's own weights w_j (sum w_j v_j^2 ~ 1), not with the largest |v_j|.
+ */
+function roundingBound(w: Float64Array, v: Float64Array, n: number, sigma: number, theta: number, c: number, shortcut: number): number {
+  const cot = 1 / Math.tan(theta);
+  const cot9 = 1 / Math.tan(0.9 * theta);
+  const kahan = 2 * Math.SQRT2 + 8 * n * U;
+  let base = 0;
+  let wSum = 0;
+  for (let j = 0; j < n; j++) {
+    const a = Math.abs(v[j]);
+    base += w[j] * (v[j] * v[j] + 8 + 2 * c * a + (2 * (1 + sigma * a) * (1 + cot)) / Math.E);
+    wSum += w[j];
+  }
+  // the routes are alternatives: per frequency (the sum alone), the damped batch (its recurrence and the sum), the
+  // equispaced sums (their moments and the sum, and their shortcuts `shortcut`, already divided by e^{c^2/2})
+  // the damped batch sums its nodes plainly (its inner loop is the hot one): gamma_{n-1} of each part's moduli
+  const damped = 15 * (Math.sqrt(5) + 4) + (3 * (1 + cot9)) / Math.E + (Math.SQRT2 * (n - 1)) / (1 - (n - 1) * U);
+  const equispaced = kahan + SUM_MOMENT_UNITS;
+  return U * base + Math.max(U * wSum * damped, U * wSum * equispaced + shortcut);
 }
 
 // Connected labelled graphs on n vertices counted by edges: C_n(d) = G_n(d) - sum_{k<n} C(n-1,k-1) C_k(d) G_{n-k}(d),

@@ -3,7 +3,7 @@ import { cumulantList, rawToCumulants, type Node } from "../node";
 import { fromPhiDamped } from "../damped-cf";
 import { arithmeticNodes, expSumArithmetic, fromPhi } from "./cf-quadrature";
 import { paretoExpansion, paretoSeries, weibullAsymptotic, weibullExpansion, weibullSeries } from "./asymptotic";
-import { MAX_QUADRATURE_NODES, NUMERIC_CF_ABS_ERROR, logFromSums, quadratureNodes } from "./numeric-rule";
+import { MAX_QUADRATURE_NODES, NUMERIC_CF_ABS_ERROR, logFromSums, quadratureNodes, ruleRounding } from "./numeric-rule";
 
 export { NUMERIC_CF_ABS_ERROR, MAX_QUADRATURE_NODES } from "./numeric-rule";
 export { lognormal, lognormalCumulants } from "./lognormal";
@@ -60,15 +60,24 @@ export function weibull(k: number, lambda: number): Node {
     const cs = Math.cos(th);
     const dr = (x * sn + beta * cs) * lambda;
     const pr = (x * cs - beta * sn) * lambda;
+    // compensated (Kahan) sums: kr, ki carry each addition's rounding
     let sr = 0;
     let si = 0;
+    let kr = 0;
+    let ki = 0;
     for (let j = 0; j < n; j++) {
       const damp = dr * es[j];
       if (damp > 45) break;
       const amp = A[j] * Math.exp(-damp);
       const ph = P[j] + pr * es[j];
-      sr += amp * Math.cos(ph);
-      si += amp * Math.sin(ph);
+      const yr = amp * Math.cos(ph) - kr;
+      const tr_ = sr + yr;
+      kr = tr_ - sr - yr;
+      sr = tr_;
+      const yi = amp * Math.sin(ph) - ki;
+      const ti_ = si + yi;
+      ki = ti_ - si - yi;
+      si = ti_;
     }
     out[0] = sr;
     out[1] = si;
@@ -91,8 +100,19 @@ export function weibull(k: number, lambda: number): Node {
     expSumArithmetic(qRe, qIm, qE, -Math.sin(theta), Math.cos(theta), t, sr, si);
     logFromSums(t, sr, si, re, im, 0, 0, 0);
   };
-  // sum |c_j| ~ 1 / cos(k theta) <= sqrt 2: the shortcuts add ~ 4e-14, inside the stated 1e-13
-  const cfError = Math.max(NUMERIC_CF_ABS_ERROR, 1e-16 + aSum * (2e-25 + 96 * Number.EPSILON) + n * 1e-21);
+  // sum |c_j| ~ 1 / cos(k theta) <= sqrt 2: the shortcuts add ~ 4e-14. Rounding of the terms, relative, in units of u:
+  // e^{ks} within 2 (1 + k|s|) (also on the shallower paths of the damped transform), carried into the weight's decay
+  // e^{ks} cos(k th) and phase e^{ks} sin(k th); e^s within 2 (1 + |s|), carried into the decay and phase of
+  // exp(i z x), which the decay bounds by (1 + cot theta) / e (as for the lognormal); 8 for the products and the
+  // library functions; then the sum (ruleRounding)
+  const cot = 1 / Math.tan(theta);
+  let termErrors = 0;
+  for (let j = 0; j < n; j++) {
+    const s = sLo + j * h;
+    const kap = 8 + 2 * (1 + k * Math.abs(s)) * (1 + 2 * eksA[j]) + (2 * (2 + Math.abs(s)) * (1 + cot)) / Math.E;
+    termErrors += amp0[j] * kap;
+  }
+  const cfError = Math.max(NUMERIC_CF_ABS_ERROR, 1e-16 + aSum * (2e-25 + 96 * Number.EPSILON) + n * 1e-21 + ruleRounding(n, aSum, termErrors));
   const raw = (m: number) => lambda ** m * gammaFn(1 + m / k);
   const mean = raw(1);
   return {
@@ -150,8 +170,11 @@ export function pareto(alpha: number, xm: number): Node {
     const ti = xm * beta;
     const t2 = tr * tr + ti * ti;
     const tau = Math.sqrt(t2);
+    // compensated (Kahan) sums: kr, ki carry each addition's rounding
     let sr = 0;
     let si = 0;
+    let kr = 0;
+    let ki = 0;
     if (!(tau > 40 + 3 * alpha && paretoSeries(alpha, tau, Math.atan2(ti, tr), out))) {
       for (let j = 0; j < n; j++) {
         const u = ev[j];
@@ -159,8 +182,14 @@ export function pareto(alpha: number, xm: number): Node {
         const wi = (u * tr) / t2;
         const mag = wv[j] * Math.exp(-0.5 * q * Math.log(wr * wr + wi * wi));
         const ph = -q * Math.atan2(wi, wr);
-        sr += mag * Math.cos(ph);
-        si += mag * Math.sin(ph);
+        const yr = mag * Math.cos(ph) - kr;
+        const tr_ = sr + yr;
+        kr = tr_ - sr - yr;
+        sr = tr_;
+        const yi = mag * Math.sin(ph) - ki;
+        const ti_ = si + yi;
+        ki = ti_ - si - yi;
+        si = ti_;
       }
       out[0] = sr;
       out[1] = si;
@@ -213,7 +242,14 @@ export function pareto(alpha: number, xm: number): Node {
   // r^2 = s / (1 - s)), 1% added for the rule; times alpha for the prefactor, in logs (Gamma(alpha/2) ~ 2/alpha overflows
   // for alpha near the smallest doubles while alpha Gamma(alpha/2) stays near 2)
   const aSum = 1.01 * 0.5 * Math.sqrt(Math.PI) * Math.exp(Math.log(alpha) + lgamma(alpha / 2) - lgamma((alpha + 1) / 2));
-  const cfError = Math.max(NUMERIC_CF_ABS_ERROR, alpha * (1e-16 + 1e-18) + aSum * (2e-25 + 96 * Number.EPSILON));
+  // Rounding (units of u, relative to each term): |1 + i u/tau|^2 and its log times q/2 (2 q + 4), the phase q atan2
+  // (2 q pi/2), exp, cos, sin and the products (8); the prefactor and e^{i tau} (8, and the phase tau within u tau, which
+  // |phi| <= alpha / tau turns into alpha u); then the sum of n terms, whose moduli times alpha / |tau| sum to at most
+  // aSum as the integral does (ruleRounding)
+  const cfError = Math.max(
+    NUMERIC_CF_ABS_ERROR,
+    alpha * (1e-16 + 1e-18) + aSum * (2e-25 + 96 * Number.EPSILON) + ruleRounding(n, aSum, aSum * (16 + (2 + Math.PI) * q)) + alpha * Number.EPSILON,
+  );
   const raw = (m: number) => (alpha * xm ** m) / (alpha - m);
   return {
     kind: { type: "continuous" },

@@ -4,7 +4,7 @@ import { cumulantList, rawToCumulants, type Node } from "../node";
 import { arithmeticNodes, contourLogCfArithmetic, contourPhi, expSumArithmetic, fromPhi, type Contour } from "./cf-quadrature";
 import { lgamma, factorial } from "./special";
 import { NUMERIC_CF_ABS_ERROR, pareto } from "./numeric";
-import { logFromSums, quadratureNodes } from "./numeric-rule";
+import { logFromSums, quadratureNodes, ruleRounding } from "./numeric-rule";
 import { shiftDamped } from "../damped-cf";
 import { paretoExpansion } from "./asymptotic";
 import { fromPhiDamped } from "../damped-cf";
@@ -65,8 +65,11 @@ export function inverseGamma(alpha: number, theta: number): Node {
     const left = Math.min(-w, right - 45 / alpha);
     const n = Math.ceil((right - left) / hD);
     quadratureNodes(n, "inverse_gamma", "use a shape alpha nearer 1");
+    // compensated (Kahan) sums: kr, ki carry each addition's rounding
     let sr = 0;
     let si = 0;
+    let kr = 0;
+    let ki = 0;
     for (let j = 0; j <= n; j++) {
       const v = left + j * hD;
       const e = Math.exp(-v);
@@ -75,8 +78,14 @@ export function inverseGamma(alpha: number, theta: number): Node {
       if (mr < -800) continue;
       const mag = Math.exp(mr);
       const ph = -alpha * p + e * ss + ev * cp;
-      sr += mag * Math.cos(ph);
-      si += mag * Math.sin(ph);
+      const yr = mag * Math.cos(ph) - kr;
+      const tr_ = sr + yr;
+      kr = tr_ - sr - yr;
+      sr = tr_;
+      const yi = mag * Math.sin(ph) - ki;
+      const ti_ = si + yi;
+      ki = ti_ - si - yi;
+      si = ti_;
     }
     out[0] = sr * hD;
     out[1] = si * hD;
@@ -115,6 +124,26 @@ export function inverseGamma(alpha: number, theta: number): Node {
   // the bound the batch's shortcuts add (expSumArithmetic): sum_j |c_j| <= the path density's integral (1/cos th)^alpha
   // (with beta >= 0 only lowering it), times (e/25! + 80 eps), plus 1e-21 per node
   const batchError = Math.pow(1 / c1, alpha) * 1.01 * (2e-25 + 80 * Number.EPSILON) + 1e-21 * 4096;
+  // Rounding of the rule per frequency (and of the batch's terms), relative to each term in units of u: the log-density
+  // -alpha v - e^{-v} cos p - log Gamma(alpha) and its phase (alpha |v| + |lg| + 2 (1 + |v|) e^{-v} (cos th + sin th)),
+  // e^v within 2 (1 + |v|) carried into the decay and phase of exp(i z x), bounded through the decay by (1 + cot th) / e
+  // (every path has psi + p >= th), 8 for exp, cos, sin and the products; weighted by the modulus
+  // exp(-alpha v - e^{-v} cos th - lg) (cos p >= cos th) over the widest range a rule uses (the smallest |z|, or 45 /
+  // alpha), whose sum is the batch's (1 / cos th)^alpha; then the sum of its nodes (ruleRounding)
+  let wIG = 1;
+  for (let i = 0; i < 30; i++) wIG = Math.log((44 + Math.abs(lg) + alpha * Math.max(wIG, 0)) / c1);
+  const vLoIG = Math.min(-wIG, (44 - lg) / alpha - 45 / alpha);
+  const nMaxIG = Math.ceil(Math.max(45 / alpha, (44 - lg) / alpha - vLoIG) / hD) + 2;
+  const cotTh = 1 / Math.tan(th);
+  let termErrors = 0;
+  for (let j = 0; j <= nMaxIG; j++) {
+    const v = vLoIG + j * hD;
+    const ex = Math.exp(-v);
+    const mod = hD * Math.exp(-alpha * v - ex * c1 - lg);
+    const av = Math.abs(v);
+    termErrors += mod * (8 + alpha * av + Math.abs(lg) + 2 * (1 + av) * ex * (c1 + s1) + (2 * (2 + av) * (1 + cotTh)) / Math.E);
+  }
+  const ruleError = Math.max(NUMERIC_CF_ABS_ERROR, 1e-16 + ruleRounding(nMaxIG, Math.pow(1 / c1, alpha) * 1.01, termErrors));
   const dampedSingle = fromPhiDamped(phiDamped);
   const damped = (beta: number, t: Float64Array, re: Float64Array, im: Float64Array) => (arithmeticNodes(t) ? batch(beta, t, re, im) : dampedSingle(beta, t, re, im));
   const raw = (r: number) => theta ** r * Math.exp(lgamma(alpha - r) - lg);
@@ -124,8 +153,8 @@ export function inverseGamma(alpha: number, theta: number): Node {
     momentIndex: alpha,
     tails: { left: Infinity, right: alpha },
     nodes: 1,
-    notes: [`inverse_gamma CF computed by quadrature on a shifted contour (absolute error <= ${NUMERIC_CF_ABS_ERROR})`],
-    cfAbsError: NUMERIC_CF_ABS_ERROR + batchError,
+    notes: [`inverse_gamma CF computed by quadrature on a shifted contour (absolute error <= ${(ruleError + batchError).toPrecision(2)})`],
+    cfAbsError: ruleError + batchError,
     dampedLogCf: damped,
     // the density theta^alpha x^(-alpha-1) e^(-theta/x)/Gamma(alpha) is flat to every order at 0: every term is 0
     laplaceExpansion: { at: 0, exps: [], coefs: [] },
@@ -168,7 +197,7 @@ export function lomax(alpha: number, theta: number): Node {
   };
   return {
     ...p,
-    notes: [`lomax CF computed by quadrature on a rotated contour (absolute error <= ${NUMERIC_CF_ABS_ERROR})`],
+    notes: [`lomax CF computed by quadrature on a rotated contour (absolute error <= ${p.cfAbsError!.toPrecision(2)})`],
     // X = P - theta with P pareto(alpha, theta): the damped transform and the endpoint expansion move with the shift
     dampedLogCf: shiftDamped(-theta, p),
     laplaceExpansion: { ...paretoExpansion(alpha, theta), at: 0 },
