@@ -1,6 +1,7 @@
 import type { FamilyModel, Model } from "./schema";
 import { FAMILY_SPECS, type FamilyParams } from "./families/spec";
 import { affineDirect } from "./direct/affine";
+import { affineDist } from "./families/dist";
 import type { CompiledModel } from "./types";
 import type { Node } from "./node";
 import { validateModel } from "./validate";
@@ -73,6 +74,7 @@ function scaled(a: number, child: Node): Node {
   if (ce) node.logCfErr = (t) => ce(Math.abs(a) * t);
   if (!(a !== 0 && Number.isFinite(a))) return node;
   if (child.direct) node.direct = affineDirect(child.direct, a, 0);
+  if (child.dist && a > 0) node.dist = affineDist(child.dist, a, 0);
   if (child.mixParts) node.mixParts = { weights: child.mixParts.weights, parts: child.mixParts.parts.map((c) => scaled(a, c)) };
   return node;
 }
@@ -84,6 +86,7 @@ function shifted(b: number, child: Node): Node {
   node.logCfErr = child.logCfErr;
   if (!Number.isFinite(b)) return node;
   if (child.direct) node.direct = affineDirect(child.direct, 1, b);
+  if (child.dist) node.dist = affineDist(child.dist, 1, b);
   if (child.mixParts) node.mixParts = { weights: child.mixParts.weights, parts: child.mixParts.parts.map((c) => shifted(b, c)) };
   return node;
 }

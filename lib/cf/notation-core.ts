@@ -49,6 +49,14 @@ export const LAYERABLE: ReadonlySet<string> = new Set(FAMILY_NAMES.filter((f) =>
 export function layerable(m: Model): boolean {
   if ("family" in m) return LAYERABLE.has(m.family);
   if ("lattice" in m || "sample" in m) return true;
+  return continuousLayerable(m);
+}
+
+/** a layerable named law, scaled by a positive factor or shifted (its law and layer moments follow the affine map) */
+function continuousLayerable(m: Model): boolean {
+  if ("family" in m) return LAYERABLE.has(m.family);
+  if ("scale" in m) return m.scale > 0 && continuousLayerable(m.of);
+  if ("shift" in m) return Number.isFinite(m.shift) && continuousLayerable(m.of);
   return false;
 }
 

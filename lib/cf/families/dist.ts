@@ -2,7 +2,7 @@
 import { incGamma } from "../invert/incgamma";
 import { lgamma } from "./special";
 import betainc from "@stdlib/math-base-special-betainc";
-import type { LayerMoment } from "./layer-moments";
+import { affineLayerMoment, type LayerMoment } from "./layer-moments";
 
 export interface DirectLaw {
   pdf(x: number): number;
@@ -189,9 +189,18 @@ export function betaDist(alpha: number, beta: number, a: number, b: number): Dir
   };
 }
 
-/** The law of b + s X for a direct law X (s != 0). */
+/** The law of b + s X for a direct law X (s != 0); for s > 0 its layer moments follow X's (affineLayerMoment). */
 export function affineDist(d: DirectLaw, s: number, b: number): DirectLaw {
   const inv = (y: number) => (y - b) / s;
-  if (s > 0) return { pdf: (y) => d.pdf(inv(y)) / s, cdf: (y) => d.cdf(inv(y)), sf: (y) => d.sf(inv(y)), lo: b + s * d.lo, hi: b + s * d.hi, accuracy: d.accuracy };
+  if (s > 0)
+    return {
+      pdf: (y) => d.pdf(inv(y)) / s,
+      cdf: (y) => d.cdf(inv(y)),
+      sf: (y) => d.sf(inv(y)),
+      lo: b + s * d.lo,
+      hi: b + s * d.hi,
+      accuracy: d.accuracy,
+      ...(d.layerMoment ? { layerMoment: affineLayerMoment(d.layerMoment, s, b) } : {}),
+    };
   return { pdf: (y) => d.pdf(inv(y)) / -s, cdf: (y) => d.sf(inv(y)), sf: (y) => d.cdf(inv(y)), lo: b + s * d.hi, hi: b + s * d.lo, accuracy: d.accuracy };
 }

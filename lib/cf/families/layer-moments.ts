@@ -12,7 +12,7 @@ import { add, div, exact, exp, expm1, log, mul, neg, pow, powInt, sub, type Est 
 import { normalCdf, normalPdf, type DirectLaw } from "./dist";
 import { gammaPdf, incGamma } from "../invert/incgamma";
 
-/** E[min((X - d)_+, l)^k] with its bound, for k >= 1, d >= 0 (l may be Infinity when E X^k is finite) */
+/** E[min((X - d)_+, l)^k] with its bound, for k >= 1 and real d (l may be Infinity when E X^k is finite) */
 export type LayerMoment = (k: number, d: number, l: number) => Est;
 
 /** a law's partial moments E[X^j; a < X <= b] (b may be Infinity) and survival function P(X > b), as estimates */
@@ -142,7 +142,7 @@ function choose(k: number, j: number): number {
 /** E[min((X - d)_+, l)^k] from a law's partial moments (the formula at the top) */
 export function layerMomentFrom(p: Partial): LayerMoment {
   return (k, d, l) => {
-    if (!(d >= 0) || !(l > 0)) return INF_E;
+    if (!Number.isFinite(d) || !(l > 0)) return INF_E;
     const b = d + l;
     const a = Math.max(d, p.lo);
     if (b <= p.lo) return powInt(exact(l), k); // every claim exceeds the layer's top: Z = l
@@ -181,4 +181,86 @@ export function lomaxLayerMoment(alpha: number, theta: number): LayerMoment {
 /** the law with its layer moments attached (the per-claim layer reads them for its moments and their bounds) */
 export function withLayerMoment(law: DirectLaw, p: Partial | LayerMoment): DirectLaw {
   return { ...law, layerMoment: typeof p === "function" ? p : layerMomentFrom(p) };
+}
+
+/** sqrt(2 pi) as a double: 2 pi rounds by at most u relative, the square root halves that and rounds once more */
+const SQRT2PI: Est = { v: Math.sqrt(2 * Math.PI), e: 2 ** -51 * Math.sqrt(2 * Math.PI) };
+
+/** z^i phi(z) for an estimated z (0 at an infinite z): exp and the products each round once (../moment-error.ts) */
+function zPowPhi(z: Est, i: number): Est {
+  if (!Number.isFinite(z.v)) return exact(0);
+  return div(mul(powInt(z, i), exp(mul(exact(-0.5), mul(z, z)))), SQRT2PI);
+}
+
+/**
+ * normal(mu, sigma): Y = X - d is normal(m, sigma), m = mu - d, and on 0 < Y <= l, with alpha = (d - mu)/sigma and
+ * beta = (d + l - mu)/sigma, E[Y^k; 0 < Y <= l] = sum_i C(k, i) m^{k-i} sigma^i J_i, J_i = E[Z^i; alpha < Z <= beta]
+ * for a standard normal Z, by J_0 = Phi(beta) - Phi(alpha), J_1 = phi(alpha) - phi(beta) and
+ * J_i = (i - 1) J_{i-2} + alpha^{i-1} phi(alpha) - beta^{i-1} phi(beta) (integration by parts of z^{i-1} z phi(z);
+ * JKB vol. 1, ch. 13, sec. 10.1, truncated normal moments); plus the atom l^k Phi(-beta). Expanding about d, not 0,
+ * keeps the binomial sum free of the cancellation a large mean would cause.
+ */
+export function normalLayerMoment(mu: number, sigma: number, acc: number): LayerMoment {
+  const s = exact(sigma);
+  return (k, d, l) => {
+    if (!(l > 0) || !Number.isFinite(d)) return INF_E;
+    const m = sub(exact(mu), exact(d));
+    const alpha = div(neg(m), s);
+    const beta = l === Infinity ? exact(Infinity) : div(sub(exact(l), m), s);
+    const j0 = alpha.v > 0 ? sub(phiE(neg(alpha), acc), phiE(neg(beta), acc)) : sub(phiE(beta, acc), phiE(alpha, acc));
+    const J: Est[] = [j0, sub(zPowPhi(alpha, 0), zPowPhi(beta, 0))];
+    for (let i = 2; i <= k; i++) J[i] = add(mul(exact(i - 1), J[i - 2]), sub(zPowPhi(alpha, i - 1), zPowPhi(beta, i - 1)));
+    let r = exact(0);
+    for (let i = 0; i <= k; i++) r = add(r, mul(mul(exact(choose(k, i)), powInt(m, k - i)), mul(powInt(s, i), J[i])));
+    if (l < Infinity) r = add(r, mul(powInt(exact(l), k), phiE(neg(beta), acc)));
+    return Number.isFinite(r.v) ? r : INF_E;
+  };
+}
+
+/**
+ * uniform(a, b): with p = max(a - d, 0) and q = min(b - d, l) (both 1-Lipschitz in the rounded difference),
+ * E[Y^k; 0 < Y <= l] = (q^{k+1} - p^{k+1}) / ((k + 1)(b - a)), plus the atom l^k (b - d - l)_+ / (b - a)
+ */
+export function uniformLayerMoment(a: number, b: number): LayerMoment {
+  const w = sub(exact(b), exact(a));
+  return (k, d, l) => {
+    if (!(l > 0) || !Number.isFinite(d)) return INF_E;
+    if (d >= b) return exact(0);
+    const bd = sub(exact(b), exact(d));
+    const ad = sub(exact(a), exact(d));
+    const p: Est = { v: Math.max(ad.v, 0), e: ad.e };
+    const q: Est = { v: Math.min(bd.v, l), e: bd.e };
+    let r = div(sub(powInt(q, k + 1), powInt(p, k + 1)), mul(exact(k + 1), w));
+    if (l < Infinity) {
+      const over = sub(bd, exact(l));
+      r = add(r, div(mul(powInt(exact(l), k), { v: Math.max(over.v, 0), e: over.e }), w));
+    }
+    return Number.isFinite(r.v) ? r : INF_E;
+  };
+}
+
+/**
+ * the layer of s X + b (s > 0): min((s X + b - d)_+, l) = s min((X - d')_+, l') with d' = (d - b)/s, l' = l/s, so
+ * E = s^k E'(d', l'). d' and l' round (two and one steps, their bounds from ../moment-error.ts); the moment of X moves
+ * by at most k l'^{k-1} per unit of either (its derivatives are -k E[Z^{k-1}; d' < X < d' + l'] in d' and
+ * k l'^{k-1} P(X > d' + l') in l'); for an unlimited layer the d'-derivative -k E[(X - d')_+^{k-1}] is largest in size
+ * at the interval's lower end, where X's own layer moment of order k - 1 bounds it (P(X > d') <= 1 at k = 1).
+ */
+export function affineLayerMoment(inner: LayerMoment, s: number, b: number): LayerMoment {
+  const se = exact(s);
+  return (k, d, l) => {
+    const dp = div(sub(exact(d), exact(b)), se);
+    const lp = l === Infinity ? exact(Infinity) : div(exact(l), se);
+    const r = inner(k, dp.v, lp.v);
+    if (!Number.isFinite(r.e) || !Number.isFinite(dp.e) || !Number.isFinite(lp.e)) return INF_E;
+    let slope: number;
+    if (l < Infinity) slope = k * (lp.v + lp.e) ** (k - 1);
+    else if (k === 1) slope = 1;
+    else {
+      const low = inner(k - 1, dp.v - dp.e * (1 + 2 ** -40), Infinity);
+      slope = k * (low.v + low.e);
+    }
+    const moved = dp.e + lp.e === 0 ? r : { v: r.v, e: r.e + slope * (dp.e + lp.e) * (1 + 2 ** -40) };
+    return mul(powInt(se, k), moved);
+  };
 }

@@ -11,7 +11,7 @@ import { withCumulantErrors } from "../cumulant-bounds";
 import * as CE from "./cumulant-errors";
 import { connectedPoly } from "./lognormal";
 import { estList, rawToCumulantsE } from "../moment-error";
-import { gammaPartial, lognormalPartial, paretoPartial, weibullPartial, withLayerMoment } from "./layer-moments";
+import { gammaPartial, lognormalPartial, normalLayerMoment, paretoPartial, uniformLayerMoment, weibullPartial, withLayerMoment } from "./layer-moments";
 
 const gammaWithLayers = (shape: number, rate: number) => {
   const d = gammaDist(shape, rate);
@@ -31,7 +31,7 @@ export const CONTINUOUS_SPECS: Pick<Record<FamilyName, FamilySpec>, "normal" | "
     source: "Johnson, Kotz & Balakrishnan, Continuous Univariate Distributions vol. 1, ch. 13",
     direct: (p) => D.normalDirect(p.mu as number, p.sigma as number),
     layerable: true,
-    build: (p) => withCumulantErrors(withDist(normal(p.mu, p.sigma), normalDist(p.mu, p.sigma)), CE.normalE(p.mu, p.sigma)),
+    build: (p) => withCumulantErrors(withDist(normal(p.mu, p.sigma), withLayerMoment(normalDist(p.mu, p.sigma), normalLayerMoment(p.mu, p.sigma, normalDist(p.mu, p.sigma).accuracy))), CE.normalE(p.mu, p.sigma)),
     tailIndex: "none",
   },
   cauchy: {
@@ -61,7 +61,7 @@ export const CONTINUOUS_SPECS: Pick<Record<FamilyName, FamilySpec>, "normal" | "
     source: "Johnson, Kotz & Balakrishnan vol. 2, ch. 26",
     direct: (p) => D.uniformDirect(p.a as number, p.b as number),
     layerable: true,
-    build: (p) => withCumulantErrors(withDist(uniform(p.a, p.b), uniformDist(p.a, p.b)), CE.uniformE(p.a, p.b)),
+    build: (p) => withCumulantErrors(withDist(uniform(p.a, p.b), withLayerMoment(uniformDist(p.a, p.b), uniformLayerMoment(p.a, p.b))), CE.uniformE(p.a, p.b)),
     check: (p) => (p.b > p.a ? null : { param: "b", detail: `uniform.b (${p.b}) must be greater than uniform.a (${p.a}).` }),
     tailIndex: "bounded",
   },
