@@ -207,12 +207,60 @@ export function normalLayerMoment(mu: number, sigma: number, acc: number): Layer
     const m = sub(exact(mu), exact(d));
     const alpha = div(neg(m), s);
     const beta = l === Infinity ? exact(Infinity) : div(sub(exact(l), m), s);
-    const j0 = alpha.v > 0 ? sub(phiE(neg(alpha), acc), phiE(neg(beta), acc)) : sub(phiE(beta, acc), phiE(alpha, acc));
-    const J: Est[] = [j0, sub(zPowPhi(alpha, 0), zPowPhi(beta, 0))];
-    for (let i = 2; i <= k; i++) J[i] = add(mul(exact(i - 1), J[i - 2]), sub(zPowPhi(alpha, i - 1), zPowPhi(beta, i - 1)));
-    let r = exact(0);
-    for (let i = 0; i <= k; i++) r = add(r, mul(mul(exact(choose(k, i)), powInt(m, k - i)), mul(powInt(s, i), J[i])));
+    let r = normalSlab(m, s, alpha, beta, k, acc);
     if (l < Infinity) r = add(r, mul(powInt(exact(l), k), phiE(neg(beta), acc)));
+    return Number.isFinite(r.v) ? r : INF_E;
+  };
+}
+
+/** P(alpha < Z <= beta) for a standard normal Z, as the difference of upper tails when both ends are above 0 */
+const normalMass = (alpha: Est, beta: Est, acc: number): Est =>
+  alpha.v > 0 ? sub(phiE(neg(alpha), acc), phiE(neg(beta), acc)) : sub(phiE(beta, acc), phiE(alpha, acc));
+
+/** E[(m + s Z)^k; alpha < Z <= beta] for a standard normal Z (the J_i recurrence above) */
+function normalSlab(m: Est, s: Est, alpha: Est, beta: Est, k: number, acc: number): Est {
+  const J: Est[] = [normalMass(alpha, beta, acc), sub(zPowPhi(alpha, 0), zPowPhi(beta, 0))];
+  for (let i = 2; i <= k; i++) J[i] = add(mul(exact(i - 1), J[i - 2]), sub(zPowPhi(alpha, i - 1), zPowPhi(beta, i - 1)));
+  let r = exact(0);
+  for (let i = 0; i <= k; i++) r = add(r, mul(mul(exact(choose(k, i)), powInt(m, k - i)), mul(powInt(s, i), J[i])));
+  return r;
+}
+
+/** max and min of estimates: both are 1-Lipschitz in each argument, so the larger bound carries over */
+const maxE = (a: Est, b: Est): Est => ({ v: Math.max(a.v, b.v), e: Math.max(a.e, b.e) });
+const minE = (a: Est, b: Est): Est => ({ v: Math.min(a.v, b.v), e: Math.max(a.e, b.e) });
+
+/**
+ * normal(mu, sigma) conditioned on [lower, upper]: the layer's integrand against the untruncated normal over the
+ * truncation interval, divided by its mass: (E[(X - d)^k; max(d, lower) < X <= min(d + l, upper)]
+ * + l^k P(max(d + l, lower) < X <= upper)) / P(lower < X <= upper), each piece by the normal slab above. Where a
+ * piece's interval is empty only within the rounding of its ends, no bound is given (INF).
+ */
+export function truncatedNormalLayerMoment(mu: number, sigma: number, lower: number, upper: number, acc: number): LayerMoment {
+  const s = exact(sigma);
+  const zOf = (x: number): Est => (Number.isFinite(x) ? div(sub(exact(x), exact(mu)), s) : exact(x));
+  const za = zOf(lower);
+  const zb = zOf(upper);
+  const mass = normalMass(za, zb, acc);
+  // an interval (lo, hi]: empty, non-empty, or undecided within the bounds of its ends
+  const state = (lo: Est, hi: Est) => (hi.v - hi.e > lo.v + lo.e ? 1 : hi.v + hi.e <= lo.v - lo.e ? 0 : -1);
+  return (k, d, l) => {
+    if (!(l > 0) || !Number.isFinite(d)) return INF_E;
+    const m = sub(exact(mu), exact(d));
+    const alpha = div(neg(m), s);
+    const beta = l === Infinity ? exact(Infinity) : div(sub(exact(l), m), s);
+    const lo = maxE(alpha, za);
+    const hi = minE(beta, zb);
+    const st = state(lo, hi);
+    if (st < 0) return INF_E;
+    let r = st ? normalSlab(m, s, lo, hi, k, acc) : exact(0);
+    if (l < Infinity) {
+      const alo = maxE(beta, za);
+      const sa = state(alo, zb);
+      if (sa < 0) return INF_E;
+      if (sa) r = add(r, mul(powInt(exact(l), k), normalMass(alo, zb, acc)));
+    }
+    r = div(r, mass);
     return Number.isFinite(r.v) ? r : INF_E;
   };
 }
