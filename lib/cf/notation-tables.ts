@@ -133,7 +133,7 @@ export const TABLE_OPERATOR_SPECS = [
     guide: "One claim's layer: c min(max(X − d, 0), l) (deductible 0, limit unlimited, share 1 when left out). X is a named law whose cdf the engine evaluates (every family on a half line or an interval: exponential, gamma, chi_squared, lognormal, pareto, weibull, lomax, generalized_pareto, burr, loglogistic, inverse_gaussian, inverse_gamma, beta, pert, triangular, uniform, truncated_normal; also normal), a lattice or a sample; other laws (cauchy, laplace, logistic, student_t, stable, variance_gamma, nig, sums, compounds) are refused with a 422 that lists the accepted ones. The law has atoms at 0 and at c l. Inside a compound with a Poisson, negative binomial, binomial, geometric or zero-modified count the aggregate law stays continuous: its atoms (at 0, c l, 2 c l, ... where every claim sits at 0 or at the limit) are listed with their masses, the layer's CF is computed by a Filon-type rule on the claim density, and the jumps of the aggregate density at the multiples of c l are taken out in closed form before inversion. /api/v1/risk, and method discretise elsewhere (and other counts), round every claim down and up onto a lattice that holds both atoms exactly; the two compounds bracket the law (and every quantile, stop-loss, layer mean and expected shortfall of it), and /api/v1/risk answers the middle of the bracket with half its width as the error bound.",
     name: "LayerNode",
     description:
-      "per-claim layer: share * min(max(X - deductible, 0), limit) for one claim X (deductible 0, limit unlimited, share 1 when left out); X a named law whose cdf the engine evaluates in closed form or by a special function (the accepted families are listed in the model guide), a lattice or a sample",
+      "per-claim layer: share * min(max(X - deductible, 0), limit) for one claim X (deductible 0, limit unlimited, share 1 when left out); X a named law whose cdf the engine evaluates in closed form or by a special function (the accepted families are listed in the model guide), such a law scaled by a positive factor or shifted, a lattice or a sample",
     zod: (model) =>
       z
         .object({
@@ -179,7 +179,7 @@ export const TABLE_OPERATOR_SPECS = [
         add(
           ctx,
           [...path, "of"],
-          `A per-claim layer applies to a named law whose cdf is evaluated in closed form or by a special function (${FAMILY_NAMES.filter((f) => LAYERABLE.has(f)).join(", ")}) or to a lattice or sample law; wrap sums and compounds the other way round (layer each claim, then compound).`,
+          `A per-claim layer applies to a named law whose cdf is evaluated in closed form or by a special function (${FAMILY_NAMES.filter((f) => LAYERABLE.has(f)).join(", ")}), such a law scaled by a positive factor or shifted, or a lattice or sample law; wrap sums and compounds the other way round (layer each claim, then compound).`,
         );
       return ctx.issues.length === before && !ctx.limit && of ? { layer: out, of } : null;
     },

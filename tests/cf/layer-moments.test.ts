@@ -2,7 +2,8 @@
 // tests/fixtures/layer-moments/layer-moments.json (generate.py beside it: mpmath at 40 digits, each moment by a density
 // integral and a survival integral, their difference written as crossCheck). Each value within 1e-10 relative of the
 // reference, the actual error never above the stated bound, the bound present (not null) and the looseness printed;
-// compound Poisson of a layer: the cumulants lambda E[Y^k] with their bounds.
+// compound Poisson of a layer: the cumulants lambda E[Y^k] with their bounds. Cases include normal, truncated normal and
+// uniform claims and scaled or shifted claims (a X + b, a > 0).
 import { readFileSync } from "node:fs";
 import { join } from "node:path";
 import { afterAll, describe, expect, it } from "vitest";
@@ -55,6 +56,10 @@ describe("per-claim layer moments against mpmath (tests/fixtures/layer-moments/g
       c.cumulants.forEach((ref, k) => check(`${JSON.stringify(c.model)} kappa_${k + 1}`, m.cumulants[k], m.cumulantError[k], ref, c.crossCheck[k]));
     });
   }
+  it("a layer of a negatively scaled claim, or of a scaled sum, is still refused at /of", () => {
+    expect(() => moments({ layer: { deductible: 1 }, of: { scale: -2, of: { family: "lognormal", mu: 0, sigma: 1 } } } as never, 2)).toThrow(/per-claim layer applies/);
+    expect(() => moments({ layer: { deductible: 1 }, of: { scale: 2, of: { sum: [{ family: "exponential", rate: 1 }, { family: "exponential", rate: 2 }] } } } as never, 2)).toThrow(/per-claim layer applies/);
+  });
   afterAll(() => {
     const s = [...looseness].sort((a, b) => a - b);
     if (s.length) console.log(`layer moments: ${s.length} values with a measurable error; bound/actual median ${s[s.length >> 1].toExponential(1)}, worst ${s[s.length - 1].toExponential(1)}`);

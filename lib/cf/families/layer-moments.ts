@@ -6,7 +6,8 @@
  * sec. 3.1 and 8.3, limited expected values). M_j is a difference of a normal or regularised incomplete gamma cdf
  * (lognormal, gamma, weibull; Loss Models app. A) or elementary (pareto). A cdf value carries the law's stated cdf
  * accuracy (DirectLaw.accuracy: Phi and P(a, z) as implemented, checked against scipy in tests/fixtures/reference-
- * families) plus the error of its argument times the density's maximum over the argument's interval.
+ * families) plus the error of its argument times the density's maximum over the argument's interval. Normal,
+ * truncated normal and uniform claims, and claims a X + b (a > 0) of any of these, take their own forms further down.
  */
 import { add, div, exact, exp, expm1, log, mul, neg, pow, powInt, sub, type Est } from "../moment-error";
 import { normalCdf, normalPdf, type DirectLaw } from "./dist";
