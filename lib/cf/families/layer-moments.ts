@@ -12,6 +12,7 @@
 import { add, div, exact, exp, expm1, log, mul, neg, pow, powInt, sub, type Est } from "../moment-error";
 import { normalCdf, normalPdf, type DirectLaw } from "./dist";
 import { gammaPdf, incGamma } from "../invert/incgamma";
+import betainc from "@stdlib/math-base-special-betainc";
 
 /** E[min((X - d)_+, l)^k] with its bound, for k >= 1 and real d (l may be Infinity when E X^k is finite) */
 export type LayerMoment = (k: number, d: number, l: number) => Est;
@@ -312,4 +313,41 @@ export function affineLayerMoment(inner: LayerMoment, s: number, b: number): Lay
     const moved = dp.e + lp.e === 0 ? r : { v: r.v, e: r.e + slope * (dp.e + lp.e) * (1 + 2 ** -40) };
     return mul(powInt(se, k), moved);
   };
+}
+
+/**
+ * beta(alpha, beta) on [0, 1]: M_j(a, b) = prod_{i<j} (alpha + i)/(alpha + beta + i) [I_b(alpha + j, beta) - I_a(alpha + j,
+ * beta)] (B(alpha + j, beta)/B(alpha, beta) as the product; Loss Models app. A.6.1.1, generalized beta with tau = 1).
+ * The arguments reach I as exact doubles (layerMomentFrom accounts for the rounding of d + l), so I carries only its
+ * stated accuracy acc (the beta law's cdf accuracy, relative); where alpha + j rounds, no bound is given.
+ */
+export function betaPartial(alpha: number, beta: number, acc: number): Partial {
+  const I = (x: number, p: number, upper: boolean): Est => {
+    if (x <= 0) return exact(upper ? 1 : 0);
+    if (x >= 1) return exact(upper ? 0 : 1);
+    const v = betainc(x, p, beta, true, upper);
+    return { v, e: acc * v };
+  };
+  return {
+    lo: 0,
+    partial(j, a, b) {
+      const p = add(exact(alpha), exact(j));
+      if (p.e > 0) return INF_E;
+      const ab = add(exact(alpha), exact(beta));
+      let pre = exact(1);
+      for (let i = 0; i < j; i++) pre = mul(pre, div(add(exact(alpha), exact(i)), add(ab, exact(i))));
+      // above the mean of Beta(alpha + j, beta) the upper tails' difference keeps its digits
+      const upper = a > p.v / (p.v + beta);
+      const diff = upper ? sub(I(a, p.v, true), I(b, p.v, true)) : sub(I(b, p.v, false), I(a, p.v, false));
+      return mul(pre, diff);
+    },
+    sf: (b) => I(b, alpha, true),
+  };
+}
+
+/** beta(alpha, beta) on [lo, hi]: lo + (hi - lo) V, V on [0, 1]; only where hi - lo is an exact double */
+export function betaLayerMoment(alpha: number, beta: number, lo: number, hi: number, acc: number): LayerMoment | null {
+  const w = sub(exact(hi), exact(lo));
+  if (w.e > 0 || !(w.v > 0)) return null;
+  return affineLayerMoment(layerMomentFrom(betaPartial(alpha, beta, acc)), w.v, lo);
 }

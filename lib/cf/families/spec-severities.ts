@@ -11,7 +11,7 @@ import * as DB from "../direct/bounded";
 import { withCumulantErrors } from "../cumulant-bounds";
 import * as CE from "./cumulant-errors";
 import { add, div, estList, exact, mul, rawToCumulantsE, sub } from "../moment-error";
-import { lomaxLayerMoment, withLayerMoment } from "./layer-moments";
+import { betaLayerMoment, lomaxLayerMoment, withLayerMoment } from "./layer-moments";
 
 export const SEVERITY_SPECS: Pick<Record<FamilyName, FamilySpec>, "lomax" | "generalized_pareto" | "burr" | "loglogistic" | "inverse_gaussian" | "inverse_gamma" | "beta" | "pert" | "triangular" | "truncated_normal"> = {
   lomax: {
@@ -137,7 +137,11 @@ export const SEVERITY_SPECS: Pick<Record<FamilyName, FamilySpec>, "lomax" | "gen
     check: (p) => (p.b > p.a ? null : { param: "b", detail: `beta.b (${p.b}) must be greater than beta.a (${p.a}).` }),
     direct: (p) => DB.betaDirect(p.alpha as number, p.beta as number, (p.a as number | undefined) ?? 0, (p.b as number | undefined) ?? 1),
     layerable: true,
-    build: (p) => withCumulantErrors(withDist(betaLaw(p.alpha, p.beta, p.a, p.b), betaDist(p.alpha, p.beta, p.a, p.b)), CE.betaE(p.alpha, p.beta, p.a, p.b)),
+    build: (p) => {
+      const d = betaDist(p.alpha, p.beta, p.a, p.b);
+      const lm = betaLayerMoment(p.alpha, p.beta, p.a, p.b, d.accuracy);
+      return withCumulantErrors(withDist(betaLaw(p.alpha, p.beta, p.a, p.b), lm ? withLayerMoment(d, lm) : d), CE.betaE(p.alpha, p.beta, p.a, p.b));
+    },
   },
   pert: {
     name: "pert",
