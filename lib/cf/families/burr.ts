@@ -118,7 +118,9 @@ export function burr(alpha: number, gamma: number, theta: number, name = "burr")
   const cotH = 1 / Math.tan(th / 2);
   const vLo = Math.min((-42 - lag) / gamma, -span);
   let termErrors = 0;
-  for (let j = 0; j <= nMax; j++) {
+  // a range wider than the node limit (gamma near 0) has no rule within it: no finite bound, and no loop over it
+  if (!(nMax <= MAX_QUADRATURE_NODES)) termErrors = Infinity;
+  else for (let j = 0; j <= nMax; j++) {
     const v = vLo + j * hD;
     const gv = gamma * v;
     const mod = hD * Math.exp(lag + gv - 0.5 * (alpha + 1) * (gv > 0 ? 2 * gv + Math.log1p(Math.exp(-2 * gv)) : Math.log1p(Math.exp(2 * gv))));

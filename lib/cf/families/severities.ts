@@ -4,7 +4,7 @@ import { cumulantList, rawToCumulants, type Node } from "../node";
 import { arithmeticNodes, contourLogCfArithmetic, contourPhi, expSumArithmetic, fromPhi, type Contour } from "./cf-quadrature";
 import { lgamma, factorial } from "./special";
 import { NUMERIC_CF_ABS_ERROR, pareto } from "./numeric";
-import { logFromSums, quadratureNodes, ruleRounding } from "./numeric-rule";
+import { MAX_QUADRATURE_NODES, logFromSums, quadratureNodes, ruleRounding } from "./numeric-rule";
 import { shiftDamped } from "../damped-cf";
 import { paretoExpansion } from "./asymptotic";
 import { fromPhiDamped } from "../damped-cf";
@@ -136,7 +136,9 @@ export function inverseGamma(alpha: number, theta: number): Node {
   const nMaxIG = Math.ceil(Math.max(45 / alpha, (44 - lg) / alpha - vLoIG) / hD) + 2;
   const cotTh = 1 / Math.tan(th);
   let termErrors = 0;
-  for (let j = 0; j <= nMaxIG; j++) {
+  // a range wider than the node limit (alpha near 0) has no rule within it (quadratureNodes refuses): no loop over it
+  if (!(nMaxIG <= MAX_QUADRATURE_NODES)) termErrors = Infinity;
+  else for (let j = 0; j <= nMaxIG; j++) {
     const v = vLoIG + j * hD;
     const ex = Math.exp(-v);
     const mod = hD * Math.exp(-alpha * v - ex * c1 - lg);
