@@ -28,3 +28,27 @@ describe("direct laws at extreme parameters", () => {
     });
   }
 });
+
+// In a sum the law's CF is needed, and its quadrature rule on the shifted contour needs about 45 / gamma / h nodes
+// per frequency (the integrand's width in log x grows like 1/gamma): beyond the node limit the model is refused with
+// limit_exceeded at once (a log-logistic with gamma 1e-5 in a sum used to run for minutes, unchecked by the deadline).
+describe("CF rules past the node limit are refused", () => {
+  const N01 = { family: "normal", mu: 0, sigma: 1 };
+  const refused: { model: Model; what: RegExp }[] = [
+    { model: { sum: [{ family: "loglogistic", gamma: 1e-5, theta: 2 }, N01] } as Model, what: /loglogistic with gamma = 0\.00001 needs .* quadrature nodes/ },
+    { model: { sum: [{ family: "burr", alpha: 2, gamma: 1e-6, theta: 1 }, N01] } as Model, what: /burr with alpha = 2, gamma = 0\.000001 needs .* quadrature nodes/ },
+  ];
+  for (const c of refused) {
+    it(JSON.stringify(c.model), () => {
+      let err: unknown;
+      try {
+        density(compile(c.model), { x: [0, 2] });
+      } catch (e) {
+        err = e;
+      }
+      expect(err, "the model was not refused").toBeDefined();
+      expect((err as { code?: string }).code).toBe("limit_exceeded");
+      expect((err as Error).message).toMatch(c.what);
+    });
+  }
+});

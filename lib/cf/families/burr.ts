@@ -2,10 +2,11 @@
 import { cumulantList, rawToCumulants, type Node } from "../node";
 import { arithmeticNodes, contourLogCfArithmetic, contourPhi, expSumArithmetic, fromPhi, type Contour } from "./cf-quadrature";
 import { lgamma } from "./special";
-import { MAX_QUADRATURE_NODES, NUMERIC_CF_ABS_ERROR, ruleRounding } from "./numeric-rule";
+import { MAX_QUADRATURE_NODES, NUMERIC_CF_ABS_ERROR, quadratureNodes, ruleRounding } from "./numeric-rule";
 import { burrExpansion, burrSeries, weibullAsymptotic } from "./asymptotic";
 import { fromPhiDamped } from "../damped-cf";
 import { burrDist } from "./dist";
+import { KahanComplex } from "./kahan";
 
 /**
  * Burr XII, Loss Models parameters: S(x) = (1 + (x/theta)^gamma)^(-alpha) (Klugman, Panjer & Willmot, Loss Models,
@@ -47,6 +48,8 @@ export function burr(alpha: number, gamma: number, theta: number, name = "burr")
     theta: th,
     strip,
     logM,
+    what: name === "burr" ? `the burr with alpha = ${alpha}, gamma = ${gamma}` : `the ${name} with gamma = ${gamma}`,
+    advice: "use a shape gamma (and alpha gamma) nearer 1",
     L: (v, out) => logDensity(v, cgi, sgi, gi, out),
     range(a) {
       // left: |L| ~ alpha gamma e^{gamma v}; right: e^{-alpha gamma v} and exp(-a e^v sin th)
@@ -62,6 +65,7 @@ export function burr(alpha: number, gamma: number, theta: number, name = "burr")
   const hD = (2 * Math.PI * strip) / (40 + Math.max(0, logM));
   const ser = burrSeries(alpha, gamma);
   const ld = new Float64Array(2);
+  const acc = new KahanComplex();
   const phiDamped = (x: number, beta: number, out: Float64Array) => {
     const a = Math.hypot(x, beta) * theta;
     if (a > 4 && weibullAsymptotic(ser, a, out, Math.atan2(x, beta) - Math.PI / 2)) return;
@@ -73,13 +77,9 @@ export function burr(alpha: number, gamma: number, theta: number, name = "burr")
     const sg = Math.sin(g);
     const right = Math.min((42 + Math.log(alpha * gamma)) / (alpha * gamma), Math.log(44 / (a * dec)));
     const left = Math.min((-42 - Math.log(alpha * gamma)) / gamma, right - 45 / gamma);
-    const n = Math.ceil((right - left) / hD);
+    const n = quadratureNodes(Math.ceil((right - left) / hD), contour.what, contour.advice);
     const cp = Math.cos(psi + p);
-    // compensated (Kahan) sums: kr, ki carry each addition's rounding
-    let sr = 0;
-    let si = 0;
-    let kr = 0;
-    let ki = 0;
+    acc.reset();
     for (let j = 0; j <= n; j++) {
       const v = left + j * hD;
       logDensity(v, cg, sg, g, ld);
@@ -88,17 +88,10 @@ export function burr(alpha: number, gamma: number, theta: number, name = "burr")
       if (mr < -800) continue;
       const mag = Math.exp(mr);
       const ph = ld[1] + ev * cp;
-      const yr = mag * Math.cos(ph) - kr;
-      const tr_ = sr + yr;
-      kr = tr_ - sr - yr;
-      sr = tr_;
-      const yi = mag * Math.sin(ph) - ki;
-      const ti_ = si + yi;
-      ki = ti_ - si - yi;
-      si = ti_;
+      acc.addPolar(mag, ph);
     }
-    out[0] = sr * hD;
-    out[1] = si * hD;
+    out[0] = acc.re * hD;
+    out[1] = acc.im * hD;
   };
   // equispaced t (the inversion's nodes): the same rule summed across t (contourLogCfArithmetic). Its shortcuts add
   // sum_j |c_j| (e/25! + 80 eps) + n 1e-21, and sum_j |c_j| is the rule for int |exp L(v + i th)| dv: as cos(gamma th) >= 0,

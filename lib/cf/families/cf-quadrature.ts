@@ -5,6 +5,8 @@
  */
 import { cabs, sortedAnchor, unwrapFrom } from "../complex";
 import { checkDeadline } from "../deadline";
+import { quadratureNodes } from "./numeric-rule";
+import { KahanComplex } from "./kahan";
 
 /**
  * Shared driver: phi(t) for t > 0 from a per-t quadrature, phi(-t) = conj phi(t), phi(0) = 1; then log with the
@@ -43,6 +45,9 @@ export interface Contour {
   L(v: number, out: Float64Array): void;
   /** path ends for a given a = t A: beyond them the integrand is below 1e-18 */
   range(a: number): [number, number];
+  /** the parameter that sets the rule's length and the advice, for the refusal past MAX_QUADRATURE_NODES */
+  what: string;
+  advice: string;
 }
 
 export function contourPhi(c: Contour): (a: number, out: Float64Array) => void {
@@ -50,14 +55,13 @@ export function contourPhi(c: Contour): (a: number, out: Float64Array) => void {
   const sn = Math.sin(c.theta);
   const cs = Math.cos(c.theta);
   const l = new Float64Array(2);
+  const acc = new KahanComplex();
   return (a, out) => {
     const [lo, hi] = c.range(a);
-    // compensated (Kahan) sums: kr, ki carry each addition's rounding
-    let sr = 0;
-    let si = 0;
-    let kr = 0;
-    let ki = 0;
-    const n = Math.ceil((hi - lo) / h);
+    acc.reset();
+    const n = quadratureNodes(Math.ceil((hi - lo) / h), c.what, c.advice);
+    // a long rule checks the deadline once per frequency (fromPhi checks every 256 frequencies)
+    if (n > 4096) checkDeadline("cf-quadrature");
     for (let j = 0; j <= n; j++) {
       const v = lo + j * h;
       const ev = Math.exp(v);
@@ -66,17 +70,10 @@ export function contourPhi(c: Contour): (a: number, out: Float64Array) => void {
       if (mr < -800) continue;
       const mag = Math.exp(mr);
       const ph = l[1] + a * ev * cs;
-      const yr = mag * Math.cos(ph) - kr;
-      const tr_ = sr + yr;
-      kr = tr_ - sr - yr;
-      sr = tr_;
-      const yi = mag * Math.sin(ph) - ki;
-      const ti_ = si + yi;
-      ki = ti_ - si - yi;
-      si = ti_;
+      acc.addPolar(mag, ph);
     }
-    out[0] = sr * h;
-    out[1] = si * h;
+    out[0] = acc.re * h;
+    out[1] = acc.im * h;
   };
 }
 
@@ -91,7 +88,7 @@ export function contourPhi(c: Contour): (a: number, out: Float64Array) => void {
 export function contourLogCfArithmetic(c: Contour, scale: number, t: Float64Array, re: Float64Array, im: Float64Array): number {
   const h = (2 * Math.PI * c.strip) / (40 + Math.max(0, c.logM));
   const [lo, hi] = c.range(t[0] * scale);
-  const n = Math.max(2, Math.ceil((hi - lo) / h) + 1);
+  const n = Math.max(2, quadratureNodes(Math.ceil((hi - lo) / h) + 1, c.what, c.advice));
   const cRe = new Float64Array(n);
   const cIm = new Float64Array(n);
   const e = new Float64Array(n);

@@ -5,6 +5,7 @@ import type { Node } from "../node";
 import { fromPhiDamped } from "../damped-cf";
 import { arithmeticNodes, expSumArithmetic, fromPhi } from "./cf-quadrature";
 import { SUM_MOMENT_UNITS, arithmetic, logFromSums, quadratureNodes } from "./numeric-rule";
+import { KahanComplex } from "./kahan";
 
 /**
  * Lognormal(mu, sigma): phi(t) = int N(y; mu, sigma^2) exp(i t e^y) dy. For t > 0 the integrand is entire in y and the
@@ -33,6 +34,7 @@ export function lognormal(mu: number, sigma: number): Node {
   const em = Math.exp(mu);
   // E exp(i z X) at z = x + i beta (beta >= 0): on the path Im y = th/sigma, i z e^{i th} has real part
   // -|z| sin(arg z + th), largest decay at th = pi/2 - arg z; th <= theta keeps the step's error bound
+  const acc = new KahanComplex();
   const phiAt = (x: number, beta: number, out: Float64Array) => {
     const th = Math.min(theta, Math.atan2(x, beta));
     const cc = th / sigma;
@@ -43,27 +45,16 @@ export function lognormal(mu: number, sigma: number): Node {
     const b = beta * em;
     const dr = a * sn + b * cs;
     const pr = a * cs - b * sn;
-    // compensated (Kahan) sums: kr, ki carry each addition's rounding
-    let sr = 0;
-    let si = 0;
-    let kr = 0;
-    let ki = 0;
+    acc.reset();
     for (let j = 0; j < n; j++) {
       const damp = dr * ev[j];
       if (damp > 45) break;
       const amp = w[j] * Math.exp(-damp);
       const ph = pr * ev[j] - cc * v[j];
-      const yr = amp * Math.cos(ph) - kr;
-      const tr_ = sr + yr;
-      kr = tr_ - sr - yr;
-      sr = tr_;
-      const yi = amp * Math.sin(ph) - ki;
-      const ti_ = si + yi;
-      ki = ti_ - si - yi;
-      si = ti_;
+      acc.addPolar(amp, ph);
     }
-    out[0] = g * sr;
-    out[1] = g * si;
+    out[0] = g * acc.re;
+    out[1] = g * acc.im;
   };
   const single = fromPhiDamped(phiAt);
   // equispaced t_k = t_0 + k d (the damped inversion's nodes): for a fixed path angle each quadrature term is a

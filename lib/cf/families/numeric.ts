@@ -4,6 +4,7 @@ import { fromPhiDamped } from "../damped-cf";
 import { arithmeticNodes, expSumArithmetic, fromPhi } from "./cf-quadrature";
 import { paretoExpansion, paretoSeries, weibullAsymptotic, weibullExpansion, weibullSeries } from "./asymptotic";
 import { MAX_QUADRATURE_NODES, NUMERIC_CF_ABS_ERROR, logFromSums, quadratureNodes, ruleRounding } from "./numeric-rule";
+import { KahanComplex } from "./kahan";
 
 export { NUMERIC_CF_ABS_ERROR, MAX_QUADRATURE_NODES } from "./numeric-rule";
 export { lognormal, lognormalCumulants } from "./lognormal";
@@ -38,6 +39,7 @@ export function weibull(k: number, lambda: number): Node {
   const amp1 = new Float64Array(n);
   const ph1 = new Float64Array(n);
   // at z = x + i beta the rotated path gives i z x e^{i theta} real part -(x sin theta + beta cos theta) x <= 0
+  const acc = new KahanComplex();
   const phiAt = (x: number, beta: number, out: Float64Array) => {
     const a = Math.hypot(x, beta) * lambda;
     // -i z lambda = a e^{-i phi}, phi = atan2(x, beta): the series terms turn by p (phi - pi/2) against beta = 0
@@ -60,27 +62,16 @@ export function weibull(k: number, lambda: number): Node {
     const cs = Math.cos(th);
     const dr = (x * sn + beta * cs) * lambda;
     const pr = (x * cs - beta * sn) * lambda;
-    // compensated (Kahan) sums: kr, ki carry each addition's rounding
-    let sr = 0;
-    let si = 0;
-    let kr = 0;
-    let ki = 0;
+    acc.reset();
     for (let j = 0; j < n; j++) {
       const damp = dr * es[j];
       if (damp > 45) break;
       const amp = A[j] * Math.exp(-damp);
       const ph = P[j] + pr * es[j];
-      const yr = amp * Math.cos(ph) - kr;
-      const tr_ = sr + yr;
-      kr = tr_ - sr - yr;
-      sr = tr_;
-      const yi = amp * Math.sin(ph) - ki;
-      const ti_ = si + yi;
-      ki = ti_ - si - yi;
-      si = ti_;
+      acc.addPolar(amp, ph);
     }
-    out[0] = sr;
-    out[1] = si;
+    out[0] = acc.re;
+    out[1] = acc.im;
   };
   // the same rule for equispaced t (the inversion's nodes), valid at every t (the series above is not needed):
   // term j is amp0_j e^{i ph0_j} exp(t e_j i e^{i theta}), e_j = lambda e^{s_j}, summed by expSumArithmetic
@@ -165,16 +156,13 @@ export function pareto(alpha: number, xm: number): Node {
   const q = alpha + 1;
   // at complex tau = xm (x + i beta) the same rotated integral holds (the path direction i / tau stays in the
   // right half-plane); (1 + i u / tau) and the factor (i alpha / tau) e^{i tau} in complex arithmetic
+  const acc = new KahanComplex();
   const phiAt = (x: number, beta: number, out: Float64Array) => {
     const tr = xm * x;
     const ti = xm * beta;
     const t2 = tr * tr + ti * ti;
     const tau = Math.sqrt(t2);
-    // compensated (Kahan) sums: kr, ki carry each addition's rounding
-    let sr = 0;
-    let si = 0;
-    let kr = 0;
-    let ki = 0;
+    acc.reset();
     if (!(tau > 40 + 3 * alpha && paretoSeries(alpha, tau, Math.atan2(ti, tr), out))) {
       for (let j = 0; j < n; j++) {
         const u = ev[j];
@@ -182,17 +170,10 @@ export function pareto(alpha: number, xm: number): Node {
         const wi = (u * tr) / t2;
         const mag = wv[j] * Math.exp(-0.5 * q * Math.log(wr * wr + wi * wi));
         const ph = -q * Math.atan2(wi, wr);
-        const yr = mag * Math.cos(ph) - kr;
-        const tr_ = sr + yr;
-        kr = tr_ - sr - yr;
-        sr = tr_;
-        const yi = mag * Math.sin(ph) - ki;
-        const ti_ = si + yi;
-        ki = ti_ - si - yi;
-        si = ti_;
+        acc.addPolar(mag, ph);
       }
-      out[0] = sr;
-      out[1] = si;
+      out[0] = acc.re;
+      out[1] = acc.im;
     }
     // multiply by i alpha conj(tau) / |tau|^2 = alpha (ti + i tr) / t2, then by e^{i tau} = e^{-ti} e^{i tr}
     const fr = (alpha * ti) / t2;

@@ -9,6 +9,7 @@ import { shiftDamped } from "../damped-cf";
 import { paretoExpansion } from "./asymptotic";
 import { fromPhiDamped } from "../damped-cf";
 import { inverseGammaDist, inverseGaussianDist, type DirectLaw } from "./dist";
+import { KahanComplex } from "./kahan";
 
 /**
  * Inverse gamma: X = theta / G, G ~ Gamma(alpha, 1); F(x) = Q(alpha, theta/x) (Loss Models app. A.2.3). With
@@ -31,6 +32,8 @@ export function inverseGamma(alpha: number, theta: number): Node {
     theta: th,
     strip,
     logM,
+    what: "inverse_gamma",
+    advice: "use a shape alpha nearer 1",
     L(v, out) {
       const e = Math.exp(-v);
       out[0] = -alpha * v - e * c1 - lg;
@@ -50,6 +53,7 @@ export function inverseGamma(alpha: number, theta: number): Node {
   // of half-width `strip` about the path keeps sin(psi + Im s) > 0 and cos(Im s) >= cos(th + strip) (where logM bounds
   // the density factor), so the trapezoid step and its error e^-40 relative to e^logM hold on every path
   const hD = (2 * Math.PI * strip) / (40 + Math.max(0, logM));
+  const acc = new KahanComplex();
   const phiDamped = (x: number, beta: number, out: Float64Array) => {
     const a = Math.hypot(x, beta) * theta;
     const psi = Math.atan2(beta, x);
@@ -65,11 +69,7 @@ export function inverseGamma(alpha: number, theta: number): Node {
     const left = Math.min(-w, right - 45 / alpha);
     const n = Math.ceil((right - left) / hD);
     quadratureNodes(n, "inverse_gamma", "use a shape alpha nearer 1");
-    // compensated (Kahan) sums: kr, ki carry each addition's rounding
-    let sr = 0;
-    let si = 0;
-    let kr = 0;
-    let ki = 0;
+    acc.reset();
     for (let j = 0; j <= n; j++) {
       const v = left + j * hD;
       const e = Math.exp(-v);
@@ -78,17 +78,10 @@ export function inverseGamma(alpha: number, theta: number): Node {
       if (mr < -800) continue;
       const mag = Math.exp(mr);
       const ph = -alpha * p + e * ss + ev * cp;
-      const yr = mag * Math.cos(ph) - kr;
-      const tr_ = sr + yr;
-      kr = tr_ - sr - yr;
-      sr = tr_;
-      const yi = mag * Math.sin(ph) - ki;
-      const ti_ = si + yi;
-      ki = ti_ - si - yi;
-      si = ti_;
+      acc.addPolar(mag, ph);
     }
-    out[0] = sr * hD;
-    out[1] = si * hD;
+    out[0] = acc.re * hD;
+    out[1] = acc.im * hD;
   };
   // Equispaced t >= 0 at one beta (the inversion's nodes): one path p = th serves every z = t + i beta (psi + p lies in
   // [pi/4, 3pi/4] and the strip about it keeps sin(psi + Im s) > 0 and cos(Im s) >= cos(th + strip): the same step and
