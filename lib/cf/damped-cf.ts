@@ -109,7 +109,7 @@ export function fromPhiDamped(phi: (t: number, beta: number, out: Float64Array) 
   const tmp = new Float64Array(2);
   return (beta, t, re, im) => {
     for (let k = 0; k < t.length; k++) {
-      if ((k & 255) === 0) checkDeadline("cf-quadrature");
+      if ((k & 15) === 0) checkDeadline("cf-quadrature");
       const x = t[k];
       phi(Math.abs(x), beta, tmp);
       re[k] = Math.log(Math.hypot(tmp[0], tmp[1]));

@@ -15,7 +15,7 @@ import { KahanComplex } from "./kahan";
 export function fromPhi(t: Float64Array, re: Float64Array, im: Float64Array, phiPos: (x: number, out: Float64Array) => void) {
   const tmp = new Float64Array(2);
   for (let k = 0; k < t.length; k++) {
-    if ((k & 255) === 0) checkDeadline("cf-quadrature");
+    if ((k & 15) === 0) checkDeadline("cf-quadrature");
     const x = t[k];
     if (x === 0) {
       re[k] = 0;
@@ -60,7 +60,7 @@ export function contourPhi(c: Contour): (a: number, out: Float64Array) => void {
     const [lo, hi] = c.range(a);
     acc.reset();
     const n = quadratureNodes(Math.ceil((hi - lo) / h), c.what, c.advice);
-    // a long rule checks the deadline once per frequency (fromPhi checks every 256 frequencies)
+    // a long rule checks the deadline once per frequency (fromPhi checks every 16 frequencies)
     if (n > 4096) checkDeadline("cf-quadrature");
     for (let j = 0; j <= n; j++) {
       const v = lo + j * h;
