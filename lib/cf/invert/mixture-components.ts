@@ -9,7 +9,9 @@ import { invertWithinTerms } from "./continuous";
 import { atomMass, solutionAt } from "./shared";
 import { dampedExcess } from "./quantile-damped";
 import { lawShape } from "./range";
-import { shortfallLight } from "./shortfall";
+import { evalLadder, growLadder, heavyLadder } from "./heavy";
+import { richardsonAmplification } from "./richardson";
+import { heavyShortfall, shortfallLight } from "./shortfall";
 import { stopLossBounds } from "./tail-moments";
 
 interface Value {
@@ -177,6 +179,74 @@ function lightComponent(w: number, m: CompiledModel, tolIn: number): Component |
   };
 }
 
+/**
+ * A power-tailed component with neither a direct law nor the damped route (e.g. a sum of a pareto and a NIG term): the
+ * period-doubling Gil-Pelaez sums with Richardson extrapolation of ./heavy, per point, with the quantile route's first
+ * period (T0 from the tail levels asked for, S(x) ~ (spread / x)^alpha) and its probe-driven doublings. Its values are
+ * taken inside the first period's window [c - T0/2, c + T0/2]; outside it the monotone bounds F(x) <= F(a), S(x) <= S(b).
+ * The error per point is twice the ladder's (as the quantile route's), so a mixture with a heavy component never falls
+ * back to one transform of the whole mixture (whose atoms and slowest component's CF it cannot separate).
+ */
+function heavyComponent(w: number, m: CompiledModel, tol: number, tail: number): Component | null {
+  const shape = lawShape(m);
+  if (!shape.heavy) return null;
+  const atoms = m.kind.type === "mixed" ? [...m.kind.atoms].sort((u, v) => u.x - v.x) : [];
+  const wc = 1 - atoms.reduce((s, a) => s + a.p, 0);
+  const alpha = Math.max(shape.alpha, 0.1);
+  const ext = shape.spread * Math.pow(2 / Math.min(Math.max(tail, 1e-300), 0.5), 1 / alpha);
+  const T0 = Math.max(64 * shape.spread, 8 * ext);
+  const lad = heavyLadder(m, atoms, T0, 5, tol);
+  const scratch = { pdf: new Float64Array(1), cdf: new Float64Array(1), sf: new Float64Array(1), one: new Float64Array(1) };
+  const probes = [shape.center - T0 / 8, shape.center, shape.center + T0 / 8];
+  for (let more = 0; more < 3; more++) {
+    checkDeadline("mixture-heavy-component");
+    const worst = Math.max(...probes.map((x) => evalLadder(lad, x, scratch).errCdf));
+    const floorNext = richardsonAmplification(lad.expC, lad.levels.length + 1) * lad.trC;
+    if (worst <= tol || floorNext >= worst || !growLadder(lad)) break;
+  }
+  const a = shape.center - T0 / 2;
+  const b = shape.center + T0 / 2;
+  const inside = (x: number): Value => {
+    const r = evalLadder(lad, x, scratch);
+    const mass = atomMass(atoms, x);
+    const e = 2 * wc * r.errCdf + 4 * Number.EPSILON;
+    return { F: mass.below + wc * r.cdf, S: mass.above + wc * r.sf, f: wc * r.pdf, eF: e, eS: e };
+  };
+  const [slo, shi] = m.support;
+  const at = (x: number): Value => {
+    if (x < slo) return { F: 0, S: 1, f: 0, eF: 0, eS: 0 };
+    if (x > shi) return { F: 1, S: 0, f: 0, eF: 0, eS: 0 };
+    if (x < a) {
+      const r = inside(a);
+      const fa = Math.max(r.F, 0) + r.eF;
+      return { F: fa / 2, S: 1 - fa / 2, f: 0, eF: fa / 2, eS: fa / 2 };
+    }
+    if (x > b) {
+      const r = inside(b);
+      const sb = Math.max(r.S, 0) + r.eS;
+      return { F: 1 - sb / 2, S: sb / 2, f: 0, eF: sb / 2, eS: sb / 2 };
+    }
+    return inside(x);
+  };
+  const mean = m.momentIndex > 1 ? m.cumulants(1)[0] : null;
+  let excessAt: ((q: number, target: number) => { value: number; error: number }) | null = null;
+  return {
+    w,
+    atoms,
+    at,
+    excess(q) {
+      if (mean === null || !Number.isFinite(mean) || !(m.momentIndex > 1)) return null;
+      excessAt ??= heavyShortfall(m, atoms, wc, mean, shape, tol, Math.max(ext, Math.abs(q - shape.center)), lad);
+      const v = at(q);
+      // E[(X - q)^+] to about 1e-8 of the tail mass beyond q, on the scale of q (as the quantile route's ES)
+      return excessAt(q, 1e-8 * Math.max(v.S, 1e-12) * Math.max(1, Math.abs(q), shape.spread));
+    },
+    terms: () => lad.levels[lad.levels.length - 1].K,
+    notes: () => [`power tails: ${lad.levels.length} period doublings from T = ${T0.toPrecision(4)}, Richardson extrapolation`],
+    method: "gil-pelaez",
+  };
+}
+
 /** A first range [lo, R] for a damped component: R past the mean by 6 sd, and by the power tail's level asked for. */
 function firstRange(m: CompiledModel, tail: number): number {
   const lo = m.support[0];
@@ -188,13 +258,14 @@ function firstRange(m: CompiledModel, tail: number): number {
   return R > lo ? R : lo + Math.max(m.scale, 1e-300);
 }
 
-export function components(leaves: { w: number; m: CompiledModel }[], tol: number, tail: number): Component[] | null {
+/** tail: the smallest upper tail level asked for (damped ranges); lowTail: the smallest of both tails (heavy periods) */
+export function components(leaves: { w: number; m: CompiledModel }[], tol: number, tail: number, lowTail = tail): Component[] | null {
   const out: Component[] = [];
   for (const { w, m } of leaves) {
     checkDeadline("mixture-components");
     if (m.direct) out.push(directComponent(w, m));
     else {
-      const c = (dampable(m) ? dampedComponent(w, m, firstRange(m, tail), tol, tol / (4 * leaves.length)) : null) ?? lightComponent(w, m, tol);
+      const c = (dampable(m) ? dampedComponent(w, m, firstRange(m, tail), tol, tol / (4 * leaves.length)) : null) ?? lightComponent(w, m, tol) ?? heavyComponent(w, m, tol, lowTail);
       if (!c) return null;
       out.push(c);
     }

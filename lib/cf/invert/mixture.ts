@@ -3,10 +3,8 @@ import { checkDeadline } from "../deadline";
 import { mergeAtoms } from "../kinds";
 import { directPoint, type DirectLaw, type DirectPoint } from "../direct/types";
 import { directQuantile } from "../direct/answer";
-import { dampable } from "./damped";
 import type { QuantileOptions, QuantileResult } from "./quantile";
 import type { DensityOptions, DensityResult } from "./types";
-import { lawShape } from "./range";
 import { components, mixtureAtoms, mixtureLaw, methodsNote } from "./mixture-components";
 
 /**
@@ -26,8 +24,6 @@ export function mixtureLeaves(model: CompiledModel): { w: number; m: CompiledMod
     const cs = m.components?.();
     if (cs && cs.length > 1) return cs.every((c) => walk(c.model, w * c.weight));
     if (m.kind.type !== "continuous" && m.kind.type !== "mixed") return false;
-    // a component with power tails and no direct evaluation would need the long-period route: the mixture's own is no worse
-    if (!m.direct && !dampable(m) && lawShape(m).heavy) return false;
     out.push({ w, m });
     return true;
   };
@@ -72,8 +68,13 @@ export function mixtureQuantiles(model: CompiledModel, p: Float64Array, o: Quant
   if (!leaves) return null;
   const tol = o.tolerance ?? 1e-10;
   let tail = 0.5;
-  for (let i = 0; i < p.length; i++) if (p[i] > 0 && p[i] < 1) tail = Math.min(tail, 1 - p[i]);
-  const cs = components(leaves, tol, tail);
+  let lowTail = 0.5;
+  for (let i = 0; i < p.length; i++) {
+    if (!(p[i] > 0 && p[i] < 1)) continue;
+    tail = Math.min(tail, 1 - p[i]);
+    lowTail = Math.min(lowTail, p[i], 1 - p[i]);
+  }
+  const cs = components(leaves, tol, tail, lowTail);
   if (!cs) return null;
   const law = mixtureLaw(model, cs);
   const atoms = mixtureAtoms(cs);
