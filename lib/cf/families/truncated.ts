@@ -33,12 +33,18 @@ export function truncatedNormal(mu: number, sigma: number, lower?: number, upper
   const pdf = (x: number) => (x < a || x > b ? 0 : Math.exp(-0.5 * ((x - mu) / sigma) ** 2 - logZ) / (sigma * Math.sqrt(2 * Math.PI)));
   const phiA = Number.isFinite(a) ? normalPdf(al) : 0;
   const phiB = Number.isFinite(b) ? normalPdf(be) : 0;
+  // raw moments by the recurrence m_k = mu m_{k-1} + (k - 1) sigma^2 m_{k-2} - sigma (b^{k-1} phi(beta) - a^{k-1} phi(alpha)) / Z,
+  // extended on demand (every order exists; a sum asks for as many as its other terms give)
   const raw: number[] = [1];
-  for (let k = 1; k <= 24; k++) {
-    const ta = Number.isFinite(a) ? a ** (k - 1) * phiA : 0;
-    const tb = Number.isFinite(b) ? b ** (k - 1) * phiB : 0;
-    raw.push(mu * raw[k - 1] + (k > 1 ? (k - 1) * sigma * sigma * raw[k - 2] : 0) - (sigma * (tb - ta)) / Z);
-  }
+  const rawUpTo = (n: number) => {
+    for (let k = raw.length; k <= n; k++) {
+      const ta = Number.isFinite(a) ? a ** (k - 1) * phiA : 0;
+      const tb = Number.isFinite(b) ? b ** (k - 1) * phiB : 0;
+      raw.push(mu * raw[k - 1] + (k > 1 ? (k - 1) * sigma * sigma * raw[k - 2] : 0) - (sigma * (tb - ta)) / Z);
+    }
+    return raw;
+  };
+  rawUpTo(2);
   const mean = raw[1];
   const sd = Math.sqrt(Math.max(raw[2] - mean * mean, 0)) || sigma;
   const dist: DirectLaw = {
@@ -83,6 +89,6 @@ export function truncatedNormal(mu: number, sigma: number, lower?: number, upper
       const an = sortedAnchor(t);
       if (an >= 0) unwrapFrom(im, an);
     },
-    cumulants: (n) => rawToCumulants(raw.slice(1, n + 1)),
+    cumulants: (n) => rawToCumulants(rawUpTo(n).slice(1, n + 1)),
   };
 }
