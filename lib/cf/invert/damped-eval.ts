@@ -160,10 +160,19 @@ export function dampedAt(s: DampedSolution, x: number, wantPdf: boolean, wantInt
     Fc,
     fc,
     Ic,
-    errF: g * s.sumCdf + s.aliasCdf + kv.err + fin * Math.abs(f * aC),
+    errF: g * s.sumCdf + aliasCdfAt(s, y) + kv.err + fin * Math.abs(f * aC),
     errf: g * s.sumPdf + s.aliasPdf + kv.errf + fin * Math.abs(f * aP),
     errI: g * s.sumInt + aliasI + kv.errI + fin * Math.abs(f * aI),
   };
+}
+
+/**
+ * The cdf's image remainder at y = x - lo: at most q / (1 - q) B(y + T) (B from ./damped-images.ts, non-increasing, so
+ * it bounds every image y + m T, m >= 1) plus the rounding of the closed-form shift; never above the uniform bound.
+ */
+export function aliasCdfAt(s: DampedSolution, y: number): number {
+  if (!s.imageTail) return s.aliasCdf;
+  return Math.min(s.aliasCdf, (s.q / (1 - s.q)) * s.imageTail(y + s.T) + 4 * EPS * Math.abs(s.cdfShift));
 }
 
 /** Density and cdf of the continuous part on a uniform grid by two FFTs (the period is N dx). */

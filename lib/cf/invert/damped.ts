@@ -4,6 +4,7 @@ import type { SeverityKernel } from "../severity-kernel";
 import { kernelsDensityBeyond, kernelsMass } from "../damped-kernels";
 import { truncationAt } from "./nodes";
 import { dampedPlan, exactStep, imageMoments, psiOf, sumAllowance, type DampedPlan, type Exactness } from "./damped-transform";
+import { imageTail } from "./damped-images";
 
 export { dampedPlan, type DampedPlan } from "./damped-transform";
 export { dampedAt, dampedGrid, gridPeriod, type DampedPoint } from "./damped-eval";
@@ -67,6 +68,9 @@ export interface DampedSolution {
    * so sum_m (-1)^m q^m (A (y + m T) - B) is subtracted exactly and only sum_m q^m |r(y + m T)| <= rest(y) is left
    */
   intImages: { A: number; B: number; second: number } | null;
+  /** where the cdf's images are shifted out: a bound on |G(lo + z) - A| non-increasing in z (./damped-images.ts), which
+   *  gives the remainder at a point, q / (1 - q) B(x - lo + T), in place of the uniform aliasCdf; null without one */
+  imageTail: ((z: number) => number) | null;
   q: number;
   maxFrequency: number;
   /** the frequency cut-off was capped: the truncation term is what it is, not the target */
@@ -244,6 +248,7 @@ export function dampedSetup(model: CompiledModel, atoms: Atom[], R: number, o: D
     aliasPdf: fTail * geo,
     aliasIntCoef: Mr * geo,
     intImages,
+    imageTail: cdfShift !== 0 ? imageTail(model, atoms, lo, ks, model.dampedSeverity ?? null, pair) : null,
     kernels: ks,
     severity: model.dampedSeverity ?? null,
     pair,
