@@ -6,7 +6,8 @@ import { readFileSync } from "node:fs";
 import { join } from "node:path";
 import { describe, expect, it } from "vitest";
 import { compile } from "@/lib/cf/compile";
-import { imageTail, momentBounds } from "@/lib/cf/invert/damped-images";
+import { imageTail } from "@/lib/cf/invert/damped-images";
+import { momentBounds } from "@/lib/cf/invert/moment-tails";
 import type { Atom, Model } from "@/lib/cf/types";
 
 const EPS = Number.EPSILON;

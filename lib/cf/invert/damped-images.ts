@@ -2,10 +2,9 @@ import type { Atom, CompiledModel } from "../types";
 import type { GammaKernel } from "../damped-kernels";
 import type { SeverityKernel } from "../severity-kernel";
 import { incGamma } from "./incgamma";
+import { markovTail, momentBounds, type MomentBounds } from "./moment-tails";
 
 const EPS = Number.EPSILON;
-/** highest moment order tried in Markov's inequality (the best order for a light tail grows with the distance) */
-const MAX_ORDER = 40;
 /** stated relative accuracy of incGamma's directly computed P or Q (as in damped-kernels.ts) */
 const INC_ACC = 1e-13;
 
@@ -13,9 +12,7 @@ const INC_ACC = 1e-13;
  * A bound B(z), non-increasing in z > 0, on |G(lo + z) - A|: G the damped route's inverted function (continuous part
  * less the gamma kernels, the one-claim and the two-claim terms), A its limit. G - A is minus the mass of those parts
  * beyond lo + z, so |G - A| <= S_c + sum |w_k| S_k + w S_1 + w_2 S_2:
- *   S_c(z) <= P(X - lo > z) <= E[(X - lo)^n] / z^n (Markov), the least over n < min(momentIndex, MAX_ORDER), the raw
- *     moments from the model's cumulants by the recursion m_n = sum_j C(n - 1, j - 1) kappa_j m_{n - j} (Smith 1995,
- *     Int. Stat. Review 63, eq. 5) carried with the cumulants' derived error bounds and the rounding of each step;
+ *   S_c(z) <= P(X - lo > z) <= E[(X - lo)^n] / z^n (Markov, ./moment-tails.ts), the least over the orders available;
  *   S_k: the gamma kernels' tails Q(shape, rate (x - at)) in closed form (incGamma, to its stated accuracy);
  *   S_1: the severity's own sf, w - w F_X from the one-claim term's closed form with its bound;
  *   S_2 <= 2 S_1(z / 2) (X_1 + X_2 > z needs one claim above z / 2).
@@ -35,15 +32,10 @@ export function imageTail(
   if (!model.cumulantErrors) return null;
   const Mc = Math.max(1 - atoms.reduce((s, a) => s + a.p, 0), 0);
   // the moments are computed on first use: the quantile search makes many loose solutions it evaluates at one point
-  let mom: { c: number; logU: Float64Array } | null | undefined;
+  let mom: MomentBounds | null | undefined;
   const continuous = (z: number) => {
     if (mom === undefined) mom = momentBounds(model, lo);
-    if (!mom) return Mc;
-    const lr = Math.log(z / mom.c);
-    let best = Infinity;
-    // each candidate with the rounding of its logarithms (log U_n, n log(z / c)) added: exp then errs by a few ulps
-    for (let n = 1; n < mom.logU.length; n++) best = Math.min(best, mom.logU[n] - n * lr + 4 * EPS * (Math.abs(mom.logU[n]) + n * Math.abs(lr) + n + 1));
-    return Math.min(Mc, Math.exp(best) * (1 + 4 * EPS));
+    return mom ? Math.min(Mc, markovTail(mom, z, false)) : Mc;
   };
   const sevTail = (x: number) => {
     if (!severity) return 0;
@@ -73,69 +65,4 @@ export function imageTail(
     }
     return b * (1 + 8 * EPS);
   };
-}
-
-/**
- * Upper bounds on E[((X - lo) / c)^n], n = 1 .. N, as logarithms (index 0 unused), c a scale that keeps them in range;
- * null when the cumulants or their bounds are missing. The recursion runs on values v_n with an absolute bound e_n:
- * each product C kappa_j v_{n - j} errs by |kappa_j| e + delta_j (|v| + e), plus (n + 4) 2 eps of sum |C kappa_j v| for
- * the products and the sum. An order whose upper bound is not a positive finite number ends the list.
- */
-export function momentBounds(model: CompiledModel, lo: number): { c: number; logU: Float64Array } | null {
-  const N = Number.isFinite(model.momentIndex) ? Math.min(MAX_ORDER, Math.ceil(model.momentIndex) - 1) : MAX_ORDER;
-  if (N < 1) return null;
-  const k = model.cumulants(N);
-  const ke = model.cumulantErrors!(N);
-  const k1 = k[0];
-  const k2 = N >= 2 ? k[1] : 0;
-  if (k1 === null || !Number.isFinite(k1)) return null;
-  const c = Math.max(Math.abs(k1 - lo) + Math.sqrt(Math.max(k2 ?? 0, 0)), 1e-300);
-  const kt: number[] = [0];
-  const dt: number[] = [0];
-  for (let j = 1; j <= N; j++) {
-    const kj = k[j - 1];
-    const ej = ke[j - 1];
-    if (kj === null || ej === null || !Number.isFinite(kj) || !Number.isFinite(ej)) break;
-    const cj = Math.pow(c, j);
-    const raw = j === 1 ? kj - lo : kj;
-    const v = raw / cj;
-    if (!Number.isFinite(v) || !Number.isFinite(cj)) break;
-    // kappa_1 - lo rounds once; pow and the division within (j + 4) eps
-    const e = (ej + (j === 1 ? EPS * (Math.abs(kj) + Math.abs(lo)) : 0)) / cj + (j + 4) * 2 * EPS * Math.abs(v);
-    kt.push(v);
-    dt.push(e);
-  }
-  const M = kt.length - 1;
-  if (M < 1) return null;
-  const v = new Float64Array(M + 1);
-  const e = new Float64Array(M + 1);
-  const logU: number[] = [0];
-  v[0] = 1;
-  // binomial coefficients C(n - 1, j - 1), exact in doubles up to n = 40 (below 2^53)
-  let row = [1];
-  for (let n = 1; n <= M; n++) {
-    if (n > 1) {
-      const next = [1];
-      for (let i = 1; i < n - 1; i++) next.push(row[i - 1] + row[i]);
-      next.push(1);
-      row = next;
-    }
-    let s = 0;
-    let sAbs = 0;
-    let err = 0;
-    for (let j = 1; j <= n; j++) {
-      const C = row[j - 1];
-      const t = C * kt[j] * v[n - j];
-      s += t;
-      sAbs += Math.abs(t);
-      err += C * (Math.abs(kt[j]) * e[n - j] + dt[j] * (Math.abs(v[n - j]) + e[n - j]));
-    }
-    err += (n + 4) * 2 * EPS * sAbs;
-    v[n] = s;
-    e[n] = err * (1 + 4 * n * EPS);
-    const U = s + e[n];
-    if (!(U > 0) || !Number.isFinite(U)) break;
-    logU.push(Math.log(U));
-  }
-  return logU.length > 1 ? { c, logU: Float64Array.from(logU) } : null;
 }

@@ -3,7 +3,7 @@ import type { DirectMethod } from "../direct/types";
 import { directQuantile, directQuantiles } from "../direct/answer";
 import type { Atom, CompiledModel } from "../types";
 import { evalLadder, growLadder, heavyLadder, invertWithinTerms, type HeavyLadder } from "./continuous";
-import { atomMass, solutionAt } from "./shared";
+import { atomMass, roundingOf, solutionAt } from "./shared";
 import { lawShape } from "./range";
 import { richardsonAmplification } from "./richardson";
 import { atomQuantiles, latticeQuantiles } from "./quantile-table";
@@ -13,6 +13,7 @@ import { solveLevels, type Evaluator } from "./solve-levels";
 import { dampable } from "./damped";
 import { dampedQuantiles } from "./quantile-damped";
 import { mixtureQuantiles } from "./mixture";
+import { lightAliasAt } from "./light-images";
 
 export interface QuantileOptions {
   /** also return the expected shortfall ES_p = q_p + E[(X - q_p)^+] / (1 - p) (TVaR) */
@@ -97,9 +98,20 @@ function lightQuantiles(model: CompiledModel, atoms: Atom[], w: number, p: Float
   );
   const sol = out.solution!;
   const errCdf = w * sol.error.cdf + 4 * Number.EPSILON;
+  // per point: the aliasing (./light-images.ts) and the rounding of the phases, which grows with |x - center| (shared.ts
+  // roundingOf), where they are below the window's uniform bounds; the truncation is the same everywhere
+  const aliasAt = lightAliasAt(model, sol, w);
+  const aliasCdf = sol.error.cdf - sol.sumErrCdf;
+  const roundCdf = sol.sumErrCdf - sol.error.truncation;
+  const errAt = (x: number) => {
+    const alias = aliasAt ? Math.min(aliasCdf, aliasAt(x)) : aliasCdf;
+    const round = Math.min(roundCdf, roundingOf(sol.part, sol.nodes, Math.abs(x - sol.part.center)).cdf);
+    return w * (sol.error.truncation + round + alias) * (1 + 4 * Number.EPSILON) + 4 * Number.EPSILON;
+  };
   const ev: Evaluator = {
     eval: solutionAt(sol, atoms, w),
     errCdf,
+    errAt,
     lo: sol.window.a,
     hi: sol.window.b,
     terms: sol.nodes.K,

@@ -1,0 +1,65 @@
+import type { CompiledModel } from "../types";
+import type { EndpointKernels } from "./part";
+import type { PartSolution } from "./shared";
+import { incGamma } from "./incgamma";
+import { markovTail, momentBounds, type MomentBounds } from "./moment-tails";
+
+const EPS = Number.EPSILON;
+/** stated relative accuracy of incGamma's directly computed P or Q (as in damped-kernels.ts) */
+const INC_ACC = 1e-13;
+
+/**
+ * The light route's aliasing at one point, in place of the window's uniform bound (continuous.ts lightPath: twice the
+ * computed F_h at the window's left end plus twice the sums' own error, since F_h(a) is only known to that error).
+ * With period T the mid-point Gil-Pelaez sums at x carry sum_{m >= 1} (-1)^{m+1} [S_P(x + m T) - F_P(x - m T)] for
+ * the inverted part P = (continuous part) / w - kernels.
+ *   The law's share: S_c and F_c are non-increasing in m, so each alternating sum lies between 0 and its first term,
+ *   and their difference is at most max(S_c(x + T), F_c(x - T)) / w; each tail at most Markov's bound on the even
+ *   central moments (./moment-tails.ts), P(|X - mu| >= r) <= E (X - mu)^n / r^n.
+ *   The kernels (signed weights b_j, no cancellation assumed): sum_j |b_j| sum_{m >= 1} G_j(r + (m - 1) T), G_j the
+ *   gamma(a, rate) tail beyond the distance r from the kernel's endpoint, non-increasing, so the sum is at most
+ *   G_j(r) + (1/T) int_r^inf G_j = Q(a, rate r) + (a / (rate T)) Q(a + 1, rate r) (the gamma law's stop-loss transform,
+ *   Klugman, Panjer & Willmot, Loss Models, app. A, less its negative term). A kernel whose images reach its own side
+ *   of the window is not covered: Infinity (the uniform bound stands).
+ * Null when the model has no cumulants with bounds.
+ */
+export function lightAliasAt(model: CompiledModel, sol: PartSolution, w: number): ((x: number) => number) | null {
+  if (!model.cumulantErrors || !(w > 0)) return null;
+  const k1 = model.cumulants(1)[0];
+  if (k1 === null || !Number.isFinite(k1)) return null;
+  const T = sol.window.b - sol.window.a;
+  let mom: MomentBounds | null | undefined;
+  const kernels = sol.part.kernels;
+  return (x: number) => {
+    if (mom === undefined) mom = momentBounds(model, k1);
+    if (!mom) return Infinity;
+    const right = x + T - k1;
+    const left = k1 - (x - T);
+    if (!(right > 0 && left > 0)) return Infinity;
+    let b = Math.max(markovTail(mom, right, true), markovTail(mom, left, true)) / w;
+    for (const k of kernels) b += kernelImages(k, x, T);
+    return b * (1 + 8 * EPS);
+  };
+}
+
+/** sum_j |b_j| sum_{m >= 1} of the kernel's mass beyond x + m T (side +1) or below x - m T (side -1); see above */
+export function kernelImages(k: EndpointKernels, x: number, T: number): number {
+  // images on the side the kernel lives: x + m T for side +1 at distance r from the endpoint; the other side's images
+  // must fall where the kernel has no mass
+  const r = k.side === 1 ? x + T - k.at : k.at - (x - T);
+  const other = k.side === 1 ? x - T - k.at : k.at - (x + T);
+  if (!(r > 0) || other > 0) return Infinity;
+  let s = 0;
+  const u = k.rate * r;
+  for (let j = 0; j < k.b.length; j++) {
+    const a = k.power + j;
+    const g0 = incGamma(a, u);
+    const g1 = incGamma(a + 1, u);
+    const acc = INC_ACC + 4 * EPS * u;
+    // each Q to its stated accuracy (relative where computed directly, Q = 1 - P once more below u = a + 1)
+    const q0 = g0.Q + (u < a + 1 ? acc * g0.P + 4 * EPS : acc * g0.Q);
+    const q1 = g1.Q + (u < a + 2 ? acc * g1.P + 4 * EPS : acc * g1.Q);
+    s += Math.abs(k.b[j]) * (q0 + (a / (k.rate * T)) * q1);
+  }
+  return s * (1 + 8 * EPS);
+}

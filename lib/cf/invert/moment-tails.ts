@@ -1,0 +1,96 @@
+import type { CompiledModel } from "../types";
+
+const EPS = Number.EPSILON;
+/** highest moment order tried in Markov's inequality (the best order for a light tail grows with the distance) */
+const MAX_ORDER = 40;
+
+/** log upper bounds on E[((X - lo) / c)^n], n = 1 .. (index 0 unused); NaN where no positive bound is known */
+export interface MomentBounds {
+  c: number;
+  logU: Float64Array;
+}
+
+/**
+ * Markov's inequality at its best order: P((X - lo) > r) <= E[(X - lo)^n] / r^n for X >= lo (every order), and
+ * P(|X - lo| >= r) <= E[(X - lo)^n] / r^n for even n whatever the support (evenOnly); each candidate carries the rounding
+ * of its logarithms (log U_n, n log(r / c)), so exp errs by a few ulps more. Infinity when no order is usable.
+ */
+export function markovTail(m: MomentBounds, r: number, evenOnly: boolean): number {
+  if (!(r > 0)) return Infinity;
+  const lr = Math.log(r / m.c);
+  let best = Infinity;
+  for (let n = evenOnly ? 2 : 1; n < m.logU.length; n += evenOnly ? 2 : 1) {
+    const l = m.logU[n];
+    if (Number.isNaN(l)) continue;
+    best = Math.min(best, l - n * lr + 4 * EPS * (Math.abs(l) + n * Math.abs(lr) + n + 1));
+  }
+  return Math.exp(best) * (1 + 4 * EPS);
+}
+
+/**
+ * Upper bounds on E[((X - lo) / c)^n], n = 1 .. N < min(momentIndex, MAX_ORDER + 1), as logarithms, c a scale that keeps
+ * them in range; null when the cumulants or their bounds are missing. The raw moments come from the cumulants by the
+ * recursion m_n = sum_j C(n - 1, j - 1) kappa_j m_{n - j} (Smith 1995, Int. Stat. Review 63, eq. 5; kappa_1 shifted by
+ * lo), run on values v_n with an absolute bound e_n: each product C kappa_j v_{n - j} errs by |kappa_j| e +
+ * delta_j (|v| + e) (delta_j the cumulant's derived bound, scaled), plus (n + 4) 2 eps of sum |C kappa_j v| for the
+ * products and the sum. An order whose upper bound is not positive gets NaN (an odd moment of a law on both sides of lo);
+ * a non-finite one ends the list.
+ */
+export function momentBounds(model: CompiledModel, lo: number): MomentBounds | null {
+  const N = Number.isFinite(model.momentIndex) ? Math.min(MAX_ORDER, Math.ceil(model.momentIndex) - 1) : MAX_ORDER;
+  if (N < 1) return null;
+  const k = model.cumulants(N);
+  const ke = model.cumulantErrors!(N);
+  const k1 = k[0];
+  const k2 = N >= 2 ? k[1] : 0;
+  if (k1 === null || !Number.isFinite(k1)) return null;
+  const c = Math.max(Math.abs(k1 - lo) + Math.sqrt(Math.max(k2 ?? 0, 0)), 1e-300);
+  const kt: number[] = [0];
+  const dt: number[] = [0];
+  for (let j = 1; j <= N; j++) {
+    const kj = k[j - 1];
+    const ej = ke[j - 1];
+    if (kj === null || ej === null || !Number.isFinite(kj) || !Number.isFinite(ej)) break;
+    const cj = Math.pow(c, j);
+    const raw = j === 1 ? kj - lo : kj;
+    const v = raw / cj;
+    if (!Number.isFinite(v) || !Number.isFinite(cj)) break;
+    // kappa_1 - lo rounds once; pow and the division within (j + 4) eps
+    const e = (ej + (j === 1 ? EPS * (Math.abs(kj) + Math.abs(lo)) : 0)) / cj + (j + 4) * 2 * EPS * Math.abs(v);
+    kt.push(v);
+    dt.push(e);
+  }
+  const M = kt.length - 1;
+  if (M < 1) return null;
+  const v = new Float64Array(M + 1);
+  const e = new Float64Array(M + 1);
+  const logU: number[] = [0];
+  v[0] = 1;
+  // binomial coefficients C(n - 1, j - 1), exact in doubles up to n = 40 (below 2^53)
+  let row = [1];
+  for (let n = 1; n <= M; n++) {
+    if (n > 1) {
+      const next = [1];
+      for (let i = 1; i < n - 1; i++) next.push(row[i - 1] + row[i]);
+      next.push(1);
+      row = next;
+    }
+    let s = 0;
+    let sAbs = 0;
+    let err = 0;
+    for (let j = 1; j <= n; j++) {
+      const C = row[j - 1];
+      const t = C * kt[j] * v[n - j];
+      s += t;
+      sAbs += Math.abs(t);
+      err += C * (Math.abs(kt[j]) * e[n - j] + dt[j] * (Math.abs(v[n - j]) + e[n - j]));
+    }
+    err += (n + 4) * 2 * EPS * sAbs;
+    v[n] = s;
+    e[n] = err * (1 + 4 * n * EPS);
+    const U = s + e[n];
+    if (!Number.isFinite(U)) break;
+    logU.push(U > 0 ? Math.log(U) : NaN);
+  }
+  return logU.length > 1 ? { c, logU: Float64Array.from(logU) } : null;
+}
