@@ -215,6 +215,40 @@ describe("quantiles of lattice and atomic laws", () => {
     }
   });
 
+  it("binomial(30, 0.35), table and FFT: the quantile's bound is 0 where the cdf bound separates the level from every jump, else it spans the points it cannot tell apart (jstat binomial pdf)", () => {
+    const n = 30;
+    const pr = 0.35;
+    const pmf = Array.from({ length: n + 1 }, (_, k) => J.binomial.pdf(k, n, pr));
+    const cdf: number[] = [];
+    pmf.reduce((s, v, k) => (cdf[k] = s + v), 0);
+    // levels on the reference's own jumps (F(7), F(11)) and between them; the reference quantile at a jump level is
+    // ambiguous within the reference's rounding, so the check there is only that the answer is within its bound of
+    // one of the two candidates
+    const onJump = [cdf[7], cdf[11]];
+    const between = [0.5 * (cdf[9] + cdf[10]), 0.37, 0.91];
+    const ps = [...onJump, ...between];
+    for (const withTable of [true, false]) {
+      const r = quantiles(binomialLattice(n, pr, withTable), ps);
+      const c = new Checker();
+      const e = r.diagnostics.cdfError;
+      ps.forEach((p, i) => {
+        let k = 0;
+        while (cdf[k] < p) k++;
+        const err = r.diagnostics.quantileError[i];
+        const separated = (k === 0 || cdf[k - 1] < p - 2 * e) && cdf[k] > p + 2 * e;
+        if (separated) {
+          c.abs(`q(${p}) table=${withTable}`, r.x[i], k, 0);
+          c.that(`q(${p}) table=${withTable}: bound 0 when the level is separated`, err === 0, String(err));
+        } else {
+          // k or k + 1 (p within the reference's rounding of F(k)); the bound reaches the other one
+          c.that(`q(${p}) table=${withTable}: answer ${r.x[i]} within its bound ${err} of ${k} and ${k + 1}`, Math.abs(r.x[i] - k) <= err || Math.abs(r.x[i] - (k + 1)) <= err);
+          c.that(`q(${p}) table=${withTable}: a jump level carries a bound of at least one step`, err >= 1, String(err));
+        }
+      });
+      c.done();
+    }
+  });
+
   it("a level equal to an atom's cdf returns that atom; p = 0 and p = 1 return the support ends", () => {
     const atoms = [
       { x: -1, p: 0.25 },

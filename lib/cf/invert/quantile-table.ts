@@ -35,7 +35,8 @@ export function tableQuantiles(
   const err = new Float64Array(p.length);
   const es = o.expectedShortfall ? new Float64Array(p.length) : undefined;
   const esErr = o.expectedShortfall ? new Float64Array(p.length) : undefined;
-  // exact tables carry only rounding in errCdf: it is the slack that keeps an exact level on its own atom. A table
+  // exact tables carry only rounding in errCdf: it is the slack that keeps an exact level on its own atom (the
+  // quantile's error then spans the points the slack cannot tell apart, below). A table
   // that approximates a continuous law (discretised) is searched at p itself, and the quantile's error is the
   // stretch of x where the true cdf can cross p: from the table's quantile at p - e (one cell lower, since the
   // continuous law's mass of that cell may lie anywhere in it) to its quantile at p + e.
@@ -51,6 +52,9 @@ export function tableQuantiles(
     }
     return k;
   };
+  // the whole law is on the listed points (atoms) or the table's bound covers the mass beyond it (lattices: tailMass is
+  // in errCdf): a level within errCdf of 1 may then lie past the last point only for a lattice
+  const closed = method === "atoms";
   for (let i = 0; i < p.length; i++) {
     const pi = p[i];
     const k = first(pi, slack);
@@ -62,7 +66,13 @@ export function tableQuantiles(
       const reached = hiLevel < 1 && (hiLevel > 0.5 ? sf[kHi] <= 1 - hiLevel : cdf[kHi] >= hiLevel);
       err[i] = reached ? Math.max(xs[k] - xs[kLo], xs[kHi] - xs[k]) : Infinity;
     } else {
-      err[i] = 0;
+      // a law on these points: with |F_table - F| <= errCdf at every point, F(x_j) >= p wherever F_table(x_j) >= p + e,
+      // and F(x_j) < p wherever F_table(x_j) < p - e, so q_p is one of the points from k (the first with F_table >= p - e)
+      // to the first with F_table >= p + e; 0 only when the cdf bound separates the level from every jump
+      const hiLevel = pi + errCdf;
+      const kHi = hiLevel >= 1 ? n - 1 : first(hiLevel, 0);
+      const reached = hiLevel >= 1 ? closed : hiLevel > 0.5 ? sf[kHi] <= 1 - hiLevel : cdf[kHi] >= hiLevel;
+      err[i] = pi <= 0 || pi >= 1 ? 0 : reached ? xs[kHi] - xs[k] : Infinity;
     }
     if (es && esErr) {
       if (pi >= 1) {
