@@ -28,13 +28,15 @@ export function imageTail(
   kernels: readonly GammaKernel[],
   severity: SeverityKernel | null,
   pair: SeverityKernel["pair"] | null,
+  T: number,
 ): ((z: number) => number) | null {
   if (!model.cumulantErrors) return null;
   const Mc = Math.max(1 - atoms.reduce((s, a) => s + a.p, 0), 0);
   // the moments are computed on first use: the quantile search makes many loose solutions it evaluates at one point
   let mom: MomentBounds | null | undefined;
   const continuous = (z: number) => {
-    if (mom === undefined) mom = momentBounds(model, lo);
+    // the nearest image is a period away
+    if (mom === undefined) mom = momentBounds(model, lo, T);
     return mom ? Math.min(Mc, markovTail(mom, z, false)) : Mc;
   };
   const sevTail = (x: number) => {

@@ -248,7 +248,7 @@ export function dampedSetup(model: CompiledModel, atoms: Atom[], R: number, o: D
     aliasPdf: fTail * geo,
     aliasIntCoef: Mr * geo,
     intImages,
-    imageTail: cdfShift !== 0 ? imageTail(model, atoms, lo, ks, model.dampedSeverity ?? null, pair) : null,
+    imageTail: cdfShift !== 0 ? imageTail(model, atoms, lo, ks, model.dampedSeverity ?? null, pair, T) : null,
     kernels: ks,
     severity: model.dampedSeverity ?? null,
     pair,

@@ -31,7 +31,8 @@ export function lightAliasAt(model: CompiledModel, sol: PartSolution, w: number)
   let mom: MomentBounds | null | undefined;
   const kernels = sol.part.kernels;
   return (x: number) => {
-    if (mom === undefined) mom = momentBounds(model, k1);
+    // every point of the window [a, b] is at least min(b - mu, mu - a) from its nearest image
+    if (mom === undefined) mom = momentBounds(model, k1, Math.max(Math.min(sol.window.b - k1, k1 - sol.window.a), 0));
     if (!mom) return Infinity;
     const right = x + T - k1;
     const left = k1 - (x - T);

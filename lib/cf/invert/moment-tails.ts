@@ -36,10 +36,37 @@ export function markovTail(m: MomentBounds, r: number, evenOnly: boolean): numbe
  * products and the sum. An order whose upper bound is not positive gets NaN (an odd moment of a law on both sides of lo);
  * a non-finite one ends the list.
  */
-export function momentBounds(model: CompiledModel, lo: number): MomentBounds | null {
-  const N = Number.isFinite(model.momentIndex) ? Math.min(MAX_ORDER, Math.ceil(model.momentIndex) - 1) : MAX_ORDER;
+export function momentBounds(model: CompiledModel, lo: number, r0 = Infinity): MomentBounds | null {
+  const top = Number.isFinite(model.momentIndex) ? Math.min(MAX_ORDER, Math.ceil(model.momentIndex) - 1) : MAX_ORDER;
+  if (top < 1) return null;
+  let memo = CACHE.get(model);
+  if (!memo) CACHE.set(model, (memo = new Map()));
+  // a model's high cumulants can be costly (Poisson(25)-lognormal: 2 ms to order 8, 2 s to order 40): orders are added
+  // (6, 12, 24, 40) only while the bound at the nearest distance r0 still falls with the order. The moments of |X - lo|
+  // are log-convex (Lyapunov's inequality), so once m_n / m_{n-2} >= r0^2 higher orders only raise the bound at r0;
+  // farther points keep a valid, if not their best, bound
+  for (let N = Math.min(6, top); ; N = Math.min(top, 2 * N)) {
+    const key = `${lo}:${N}`;
+    let res = memo.get(key);
+    if (res === undefined) memo.set(key, (res = boundsUpTo(model, lo, N)));
+    if (!res || N >= top) return res;
+    const L = res.logU;
+    const n = L.length - 1;
+    if (n < N || !(Number.isFinite(L[n]) && Number.isFinite(L[n - 2]))) return res;
+    if ((L[n] - L[n - 2]) / 2 >= Math.log(r0 / res.c)) return res;
+  }
+}
+
+const CACHE = new WeakMap<CompiledModel, Map<string, MomentBounds | null>>();
+
+function boundsUpTo(model: CompiledModel, lo: number, N0: number): MomentBounds | null {
+  // the orders the model states as finite numbers (a node may list fewer than asked, e.g. the truncated normal's 24;
+  // a sum of it then has NaN beyond): the error bounds are asked for those only
+  const all = model.cumulants(N0);
+  let N = 0;
+  while (N < N0 && N < all.length && typeof all[N] === "number" && Number.isFinite(all[N])) N++;
   if (N < 1) return null;
-  const k = model.cumulants(N);
+  const k = all.slice(0, N);
   const ke = model.cumulantErrors!(N);
   const k1 = k[0];
   const k2 = N >= 2 ? k[1] : 0;
