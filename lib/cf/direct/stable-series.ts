@@ -8,9 +8,19 @@ import { tanHalfPi } from "./stable-kernel";
  * c = 1/cos(alpha theta0):
  *   f(z)  = (1/pi) sum_{k>=1} (-1)^{k+1} c^k Gamma(k alpha + 1)/k! sin(k alpha (pi/2 + theta0)) z^{-k alpha - 1}
  *   sf(z) = (1/pi) sum_{k>=1} (-1)^{k+1} c^k Gamma(k alpha)/k!     sin(k alpha (pi/2 + theta0)) z^{-k alpha}
- * Convergent for alpha < 1, asymptotic for alpha > 1. Accepted only when the first omitted term is below
- * 1e-13 of the sum (and the sum is positive); the error bound is 10 times the first omitted term plus the
- * rounding of the terms, checked against the mpmath references in tests/fixtures/stable.
+ * Convergent for alpha < 1, asymptotic for alpha > 1.
+ *
+ * Remainder bound (derived here, for both): f(z) = (1/pi) Re int_0^inf e^{-izt} phi(t) dt, and the ray t = r e^{-i psi}
+ * may replace the real axis for every psi in (0, psi*], psi* = min(pi/2, pi/(2 alpha) - theta0): on the sector between
+ * them |e^{-izt}| <= 1 and s = c t^alpha e^{-i alpha theta0} keeps Re s >= 0 (alpha (arg + theta0) stays within
+ * [-pi/2, pi/2]), so the arc at infinity vanishes. On the ray, e^{-s} = sum_{k<n} (-s)^k/k! + R_n with
+ * |R_n| <= |s|^n / n! (Taylor's remainder in integral form, |e^{-us}| <= 1 for Re s >= 0); the polynomial terms give the
+ * series' first n - 1 terms (their ray integrals do not depend on psi), and the rest is at most
+ *   (1/pi) int_0^inf e^{-z r sin psi} c^n r^{n alpha} / n! dr = (1/pi) c^n Gamma(n alpha + 1) / n! (z sin psi*)^{-n alpha - 1},
+ * the size of the first omitted term times (sin psi*)^{-(n alpha + 1)}; integrated over (z, inf) it bounds the sf's
+ * remainder by the sf term's size times the same factor, and once more the stop-loss transform's. The sum stops where
+ * this bound is below the rounding of the sum (or, for the asymptotic series, where it stops falling) and is accepted
+ * when the bound plus the terms' rounding is below 1e-12 of the value.
  */
 export interface SeriesValue {
   pdf: number;
@@ -32,6 +42,8 @@ interface Coeffs {
   size: Float64Array;
   /** alpha (pi/2 + theta0): the sine of k times it is off by up to k eps phase */
   phase: number;
+  /** log sin psi*, psi* = min(pi/2, pi/(2 alpha) - theta0): the remainder's factor per power (see above) */
+  lsin: number;
 }
 const cache = new Map<string, Coeffs>();
 // the last few laws asked for, compared as numbers (the map's string key costs more than the series at far points)
@@ -49,8 +61,11 @@ function coeffsFor(alpha: number, beta: number): Coeffs {
   const theta0 = alpha < 1 && beta === 1 ? Math.PI / 2 : alpha > 1 && beta === -1 ? Math.PI / alpha - Math.PI / 2 : Math.atan(tb) / alpha;
   const logc = 0.5 * Math.log1p(tb * tb);
   const phase = alpha * (Math.PI / 2 + theta0);
+  // psi* rounded down by a few eps (a smaller angle keeps the sector condition; its sine is then a lower bound)
+  const psi = Math.min(Math.PI / 2, Math.PI / (2 * alpha) - theta0) * (1 - 8 * Number.EPSILON);
+  const lsin = psi > 0 ? Math.log(Math.sin(psi)) * (1 + 8 * Number.EPSILON) : -Infinity;
   const n = MAX_TERMS + 2;
-  c = { lSf: new Float64Array(n), lPdf: new Float64Array(n), sgn: new Float64Array(n), size: new Float64Array(n), phase };
+  c = { lSf: new Float64Array(n), lPdf: new Float64Array(n), sgn: new Float64Array(n), size: new Float64Array(n), phase, lsin };
   for (let k = 1; k < n; k++) {
     const base = k * logc - lgamma(k + 1);
     c.lSf[k] = base + lgamma(k * alpha);
@@ -69,11 +84,17 @@ function remember(alpha: number, beta: number, c: Coeffs): void {
   if (recent.length > 4) recent.pop();
 }
 
+/** the sum stops once the remainder's bound is below this fraction of it (under the sum's own rounding) */
+const STOP = 2 ** -56;
+/** accepted when the whole bound is below this fraction of the value (else the integral serves the point) */
+const ACCEPT = 1e-12;
+
 export function stableTailSeries(alpha: number, beta: number, z: number): SeriesValue | null {
   if (!(z > 0) || alpha === 1) return null;
   // beta = -1 leaves no power tail on this side (the law's right tail is lighter than any power)
   if (beta === -1) return null;
-  const { lSf, lPdf, sgn, size, phase } = coeffsFor(alpha, beta);
+  const { lSf, lPdf, sgn, size, phase, lsin } = coeffsFor(alpha, beta);
+  if (!(lsin > -Infinity)) return null;
   const lz = Math.log(z);
   let sf = 0;
   let pdf = 0;
@@ -81,76 +102,86 @@ export function stableTailSeries(alpha: number, beta: number, z: number): Series
   // each sine by k eps phase (absolute, so a sine near zero still counts), each product and sum by a few eps
   let errSf = 0;
   let errPdf = 0;
-  let prevSf = Infinity;
-  let lastSf = 0;
-  let lastPdf = 0;
-  let converged = false;
-  for (let k = 1; k <= MAX_TERMS; k++) {
+  // the remainder's bound when the sum stops before term k (see the module notes)
+  const bound = (k: number, out: { sf: number; pdf: number }) => {
+    const kal = k * alpha * lz;
+    const grow = -(k * alpha + 1) * lsin;
+    // each exponent's rounding (eps times the size of its parts, as for the terms) raises the bound by that factor
+    const up = 1 + 2e-14 + 4 * Number.EPSILON * (size[k] + Math.abs(kal) + Math.abs(grow) + Math.abs(lz));
+    out.sf = up * Math.exp(lSf[k] - kal + grow);
+    out.pdf = up * Math.exp(lPdf[k] - kal - lz + grow);
+  };
+  const rem = { sf: Infinity, pdf: Infinity };
+  const next = { sf: 0, pdf: 0 };
+  bound(1, rem);
+  for (let k = 1; ; k++) {
+    if (!Number.isFinite(rem.sf) || !Number.isFinite(rem.pdf)) return null;
+    if (k > 1 && rem.sf <= STOP * Math.abs(sf) && rem.pdf <= STOP * Math.abs(pdf)) break;
+    if (k > MAX_TERMS) break;
+    bound(k + 1, next);
+    // the asymptotic series (alpha > 1): the bound falls to a least value, then grows; stop at the least
+    if (k > 1 && (next.sf > rem.sf || next.pdf > rem.pdf)) break;
     const kal = k * alpha * lz;
     // the size of a term regardless of its sine (which may vanish by accident)
     const mag = Math.exp(lSf[k] - kal);
     const magPdf = Math.exp(lPdf[k] - kal - lz);
     const tSf = sgn[k] * mag;
     const tPdf = sgn[k] * magPdf;
-    // a series whose terms grow from the start (z too small) or overflow is not used
-    if (!Number.isFinite(mag) || (k === 2 && mag > prevSf)) return null;
     const termRel = 2e-14 + 4 * Number.EPSILON * (size[k] + Math.abs(kal) + Math.abs(lz));
     const sineAbs = 4 * Number.EPSILON * k * Math.abs(phase);
-    if (mag > prevSf && alpha > 1) break; // asymptotic series: stop before the terms grow
-    if (k > 1 && mag <= 1e-13 * Math.abs(sf) && magPdf <= 1e-13 * Math.abs(pdf)) {
-      lastSf = Math.abs(tSf) + mag * 1e-3;
-      lastPdf = Math.abs(tPdf) + magPdf * 1e-3;
-      // one more term's size as the omitted part (the sine may be small at this k but not at the next)
-      const kal2 = (k + 1) * alpha * lz;
-      lastSf = Math.max(lastSf, Math.exp(lSf[k + 1] - kal2));
-      lastPdf = Math.max(lastPdf, Math.exp(lPdf[k + 1] - kal2 - lz));
-      converged = true;
-      break;
-    }
     sf += tSf;
     pdf += tPdf;
     errSf += 8 * Number.EPSILON * Math.abs(tSf) + Math.abs(tSf) * termRel + mag * sineAbs;
     errPdf += 8 * Number.EPSILON * Math.abs(tPdf) + Math.abs(tPdf) * termRel + magPdf * sineAbs;
-    prevSf = mag;
+    rem.sf = next.sf;
+    rem.pdf = next.pdf;
   }
-  if (!converged || !(sf > 0) || !(pdf > 0)) return null;
-  const sfErr = (10 * lastSf + errSf) / Math.PI;
-  const pdfErr = (10 * lastPdf + errPdf) / Math.PI;
+  const remSf = rem.sf;
+  const remPdf = rem.pdf;
+  if (!(sf > 0) || !(pdf > 0)) return null;
+  const sfErr = (remSf + errSf) / Math.PI;
+  const pdfErr = (remPdf + errPdf) / Math.PI;
   sf /= Math.PI;
   pdf /= Math.PI;
-  if (sfErr > 1e-9 * sf || pdfErr > 1e-9 * pdf) return null;
+  if (!(sfErr <= ACCEPT * sf && pdfErr <= ACCEPT * pdf)) return null;
   return { pdf, sf, pdfErr, sfErr };
 }
 
 /**
  * The stop-loss transform of the standard S1 law far in its right tail, pi(z) = int_z^inf sf(y) dy, from the tail series
  * above integrated term by term (int_z^inf y^{-k alpha} dy = z^{1 - k alpha} / (k alpha - 1)); alpha > 1. Used only where
- * the sf series itself is accepted at z (then at every y >= z too, its terms falling faster there), with the same rule:
- * stop once a term is below 1e-13 of the sum, error 10 times the next term's size plus the terms' rounding.
+ * the sf series itself is accepted at z. The remainder after n - 1 terms is the sf remainder's bound integrated over
+ * (z, inf): (1/pi) c^n Gamma(n alpha) / n! (sin psi*)^{-(n alpha + 1)} z^{1 - n alpha} / (n alpha - 1) (module notes);
+ * the sum stops as the series above does.
  */
 export function stableTailStopLoss(alpha: number, beta: number, z: number): { v: number; e: number } | null {
   if (!(alpha > 1) || !stableTailSeries(alpha, beta, z)) return null;
-  const { lSf, sgn, size, phase } = coeffsFor(alpha, beta);
+  const { lSf, sgn, size, phase, lsin } = coeffsFor(alpha, beta);
   const lz = Math.log(z);
   let v = 0;
   let err = 0;
-  let prev = Infinity;
-  for (let k = 1; k <= MAX_TERMS; k++) {
+  const bound = (k: number) => {
     const d = k * alpha - 1;
-    const lm = lSf[k] - (k * alpha - 1) * lz - Math.log(d);
+    const grow = -(k * alpha + 1) * lsin;
+    const lm = lSf[k] - d * lz - Math.log(d) + grow;
+    return (1 + 2e-14 + 4 * Number.EPSILON * (size[k] + Math.abs(lm) + Math.abs(grow))) * Math.exp(lm);
+  };
+  let rem = bound(1);
+  for (let k = 1; ; k++) {
+    if (!Number.isFinite(rem)) return null;
+    if (k > 1 && rem <= STOP * Math.abs(v)) break;
+    if (k > MAX_TERMS) break;
+    const nextRem = bound(k + 1);
+    if (k > 1 && nextRem > rem) break;
+    const d = k * alpha - 1;
+    const lm = lSf[k] - d * lz - Math.log(d);
     const mag = Math.exp(lm);
-    if (!Number.isFinite(mag) || mag > prev) return null;
-    if (k > 1 && mag <= 1e-13 * Math.abs(v)) {
-      const d2 = (k + 1) * alpha - 1;
-      const next = Math.max(mag, Math.exp(lSf[k + 1] - d2 * lz - Math.log(d2)));
-      const e = (10 * next + err) / Math.PI;
-      v /= Math.PI;
-      return v > 0 && e <= 1e-9 * v ? { v, e } : null;
-    }
     const t = sgn[k] * mag;
     v += t;
     err += 8 * Number.EPSILON * Math.abs(t) + Math.abs(t) * (2e-14 + 4 * Number.EPSILON * (size[k] + Math.abs(lm) + Math.abs(Math.log(d)))) + mag * 4 * Number.EPSILON * k * Math.abs(phase);
-    prev = mag;
+    rem = nextRem;
   }
-  return null;
+  const e = (rem + err) / Math.PI;
+  v /= Math.PI;
+  return v > 0 && e <= 1e-9 * v ? { v, e } : null;
 }
