@@ -77,6 +77,10 @@ export function stableIntegrals(alpha: number, beta: number, lhAbs: number): Sta
   g.ensure(jStart - WINDOW_LEFT, jStart + WINDOW_RIGHT);
   const r: Row = { w: 0, tl: 0, th: 0, ww: 0, wt: 0, res: 0 };
   let A0 = 0, A1 = 0, Ap = 0, B0 = 0, B1 = 0, Bp = 0, P0 = 0, P1 = 0, Pp = 0;
+  // terms added one by one (their sum's rounding: (n - 1) eps/2 times the sum of these positive terms, Higham 2002,
+  // Accuracy and Stability of Numerical Algorithms, eq. 4.4), and the rounding of the prefix-sum part
+  let added = 0;
+  let R0 = 0, R1 = 0, Rp = 0;
   // e^v and K(v) of the last node added
   let sLast = 0;
   let kLast = 0;
@@ -103,8 +107,10 @@ export function stableIntegrals(alpha: number, beta: number, lhAbs: number): Sta
       B1 += 2 * a1;
       Bp += 2 * ap;
     }
-    // a shift dv of the node's v changes K by K (1 - s) dv
-    const q = Math.abs(1 - s) * (4 * Number.EPSILON * Math.abs(r.w) + r.res);
+    // a shift dv of the node's v changes K by K (1 - s) dv; the rounding of v - e^v (eps (|v| + s) absolute), of exp
+    // and of the two products adds eps (|v| + s + 4) relative
+    const q = Math.abs(1 - s) * (4 * Number.EPSILON * Math.abs(r.w) + r.res) + Number.EPSILON * (Math.abs(v) + s + 4);
+    added++;
     P0 += a0 * q;
     P1 += a1 * q;
     Pp += ap * q;
@@ -152,11 +158,18 @@ export function stableIntegrals(alpha: number, beta: number, lhAbs: number): Sta
       let xm = 1;
       let fact = 1;
       let S0 = 0, S1 = 0, Sp = 0, D0 = 0, D1 = 0, Dp = 0;
+      // each stored prefix sum is a sum of positive terms, each carried through at most (i - iFirst + 1) steps of
+      // acc * f + c with f = e1^m: (m + 3) eps relative per step; the sum over m adds 3 m + 3 eps per term
+      const steps = i - g.iFirst + 1;
       for (let m = 1; m <= TAIL_TERMS; m++) {
         xm *= x;
         if (m > 1) fact *= m - 1;
         const cm = ((m & 1 ? 1 : -1) * xm) / fact;
         const k = 3 * (m - 1);
+        const rel = Number.EPSILON * (steps * (m + 3) + 3 * m + 3);
+        R0 += Math.abs(cm) * g.pre[k][i] * rel;
+        R1 += Math.abs(cm) * g.pre[k + 1][i] * rel;
+        Rp += Math.abs(cm) * g.pre[k + 2][i] * rel;
         S0 += cm * g.pre[k][i];
         S1 += cm * g.pre[k + 1][i];
         Sp += cm * g.pre[k + 2][i];
@@ -220,10 +233,11 @@ export function stableIntegrals(alpha: number, beta: number, lhAbs: number): Sta
   out.I0 = A0;
   out.I1 = A1 + b1;
   out.Ip = Ap;
-  const round = 1e-15;
+  // the sums' rounding: the running sum of `added` positive terms plus the prefix part (and the boundary term's 3 eps)
+  const sum = (added + 2) * Number.EPSILON;
   // for an exponentially convergent rule the error of the h-sum is far below its difference to the 2h-sum
-  out.e0 = Math.abs(A0 - B0) + r0 + l0 + P0 + T0 + round * A0 + 1e-13 * A0;
-  out.e1 = Math.abs(A1 - B1) + r1 + l1 + P1 + T1 + round * (A1 + b1) + 1e-13 * A1;
-  out.ep = Math.abs(Ap - Bp) + rp + lp + Pp + Tp + round * Ap + 1e-13 * Ap;
+  out.e0 = Math.abs(A0 - B0) + r0 + l0 + P0 + T0 + R0 + sum * A0 + 1e-13 * A0;
+  out.e1 = Math.abs(A1 - B1) + r1 + l1 + P1 + T1 + R1 + sum * A1 + 3 * Number.EPSILON * b1 + 1e-13 * A1;
+  out.ep = Math.abs(Ap - Bp) + rp + lp + Pp + Tp + Rp + sum * Ap + 1e-13 * Ap;
   return out;
 }
