@@ -77,8 +77,11 @@ export function stableIntegrals(alpha: number, beta: number, lhAbs: number): Sta
   g.ensure(jStart - WINDOW_LEFT, jStart + WINDOW_RIGHT);
   const r: Row = { w: 0, tl: 0, th: 0, ww: 0, wt: 0, res: 0 };
   let A0 = 0, A1 = 0, Ap = 0, B0 = 0, B1 = 0, Bp = 0, P0 = 0, P1 = 0, Pp = 0;
-  // terms added one by one (their sum's rounding: (n - 1) eps/2 times the sum of these positive terms, Higham 2002,
-  // Accuracy and Stability of Numerical Algorithms, eq. 4.4), and the rounding of the prefix-sum part
+  // the sums A are compensated (TwoSum: Ogita, Rump & Oishi 2005, SIAM J. Sci. Comput. 26(6), Algorithm 4.4 "Sum2"):
+  // C collects each addition's exact rounding error, and the result A + C is off by at most u |A + C| plus
+  // gamma_{n-1}^2 times the sum of the (positive) terms, Proposition 4.5; `added` counts the terms, R the rounding of
+  // the prefix-sum part
+  let C0 = 0, C1 = 0, Cp = 0;
   let added = 0;
   let R0 = 0, R1 = 0, Rp = 0;
   // e^v and K(v) of the last node added
@@ -99,9 +102,18 @@ export function stableIntegrals(alpha: number, beta: number, lhAbs: number): Sta
     const a0 = wk * r.tl;
     const a1 = wk * r.th;
     const ap = r.wt * K;
-    A0 += a0;
-    A1 += a1;
-    Ap += ap;
+    let t = A0 + a0;
+    let z = t - A0;
+    C0 += A0 - (t - z) + (a0 - z);
+    A0 = t;
+    t = A1 + a1;
+    z = t - A1;
+    C1 += A1 - (t - z) + (a1 - z);
+    A1 = t;
+    t = Ap + ap;
+    z = t - Ap;
+    Cp += Ap - (t - z) + (ap - z);
+    Ap = t;
     if ((j & 1) === 0) {
       B0 += 2 * a0;
       B1 += 2 * a1;
@@ -180,6 +192,10 @@ export function stableIntegrals(alpha: number, beta: number, lhAbs: number): Sta
       A0 += S0;
       A1 += S1;
       Ap += Sp;
+      // (added plainly: its rounding, eps/2 of the new A, joins R)
+      R0 += 0.5 * Number.EPSILON * A0;
+      R1 += 0.5 * Number.EPSILON * A1;
+      Rp += 0.5 * Number.EPSILON * Ap;
       // D = (every-node sum) - (every-second-node sum) of the tail
       B0 += S0 - D0;
       B1 += S1 - D1;
@@ -230,11 +246,16 @@ export function stableIntegrals(alpha: number, beta: number, lhAbs: number): Sta
   }
   // a finite end of log V leaves the boundary term Theta_high(w_end) (1 - exp(-h V_end)) = L (1 - exp(-h V_end)) in I1
   const b1 = bounded ? -L * Math.expm1(-Math.exp(vEnd)) : 0;
+  A0 += C0;
+  A1 += C1;
+  Ap += Cp;
   out.I0 = A0;
   out.I1 = A1 + b1;
   out.Ip = Ap;
-  // the sums' rounding: the running sum of `added` positive terms plus the prefix part (and the boundary term's 3 eps)
-  const sum = (added + 2) * Number.EPSILON;
+  // the sums' rounding (Proposition 4.5 above, u = eps/2, plus the final addition of the boundary term's 3 eps)
+  const u = Number.EPSILON / 2;
+  const gam = ((added + 1) * u) / (1 - (added + 1) * u);
+  const sum = 2 * u + gam * gam;
   // for an exponentially convergent rule the error of the h-sum is far below its difference to the 2h-sum
   out.e0 = Math.abs(A0 - B0) + r0 + l0 + P0 + T0 + R0 + sum * A0 + 1e-13 * A0;
   out.e1 = Math.abs(A1 - B1) + r1 + l1 + P1 + T1 + R1 + sum * A1 + 3 * Number.EPSILON * b1 + 1e-13 * A1;

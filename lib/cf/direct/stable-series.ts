@@ -21,6 +21,11 @@ import { tanHalfPi } from "./stable-kernel";
  * remainder by the sf term's size times the same factor, and once more the stop-loss transform's. The sum stops where
  * this bound is below the rounding of the sum (or, for the asymptotic series, where it stops falling) and is accepted
  * when the bound plus the terms' rounding is below 1e-12 of the value.
+ * For alpha < 1 (convergent) the omitted terms' sizes also have a geometric majorant, which is far smaller where
+ * sin psi* is small (beta next to 1): by Wendel's inequality Gamma(x + s) <= x^s Gamma(x) (0 < s < 1; Wendel 1948,
+ * Amer. Math. Monthly 55) the ratio of consecutive sizes is at most c (k alpha)^alpha / (k + 1) z^-alpha for the sf
+ * (largest at k = alpha / (1 - alpha), falling beyond) and c (k alpha + 1)^alpha / (k + 1) z^-alpha for the pdf
+ * (falling in k), so from term k on the sizes sum to at most the k-th over (1 - the largest ratio from k on).
  */
 export interface SeriesValue {
   pdf: number;
@@ -44,6 +49,8 @@ interface Coeffs {
   phase: number;
   /** log sin psi*, psi* = min(pi/2, pi/(2 alpha) - theta0): the remainder's factor per power (see above) */
   lsin: number;
+  /** log c */
+  logc: number;
 }
 const cache = new Map<string, Coeffs>();
 // the last few laws asked for, compared as numbers (the map's string key costs more than the series at far points)
@@ -65,7 +72,7 @@ function coeffsFor(alpha: number, beta: number): Coeffs {
   const psi = Math.min(Math.PI / 2, Math.PI / (2 * alpha) - theta0) * (1 - 8 * Number.EPSILON);
   const lsin = psi > 0 ? Math.log(Math.sin(psi)) * (1 + 8 * Number.EPSILON) : -Infinity;
   const n = MAX_TERMS + 2;
-  c = { lSf: new Float64Array(n), lPdf: new Float64Array(n), sgn: new Float64Array(n), size: new Float64Array(n), phase, lsin };
+  c = { lSf: new Float64Array(n), lPdf: new Float64Array(n), sgn: new Float64Array(n), size: new Float64Array(n), phase, lsin, logc };
   for (let k = 1; k < n; k++) {
     const base = k * logc - lgamma(k + 1);
     c.lSf[k] = base + lgamma(k * alpha);
@@ -93,9 +100,11 @@ export function stableTailSeries(alpha: number, beta: number, z: number): Series
   if (!(z > 0) || alpha === 1) return null;
   // beta = -1 leaves no power tail on this side (the law's right tail is lighter than any power)
   if (beta === -1) return null;
-  const { lSf, lPdf, sgn, size, phase, lsin } = coeffsFor(alpha, beta);
+  const { lSf, lPdf, sgn, size, phase, lsin, logc } = coeffsFor(alpha, beta);
   if (!(lsin > -Infinity)) return null;
   const lz = Math.log(z);
+  const cz = Math.exp(logc - alpha * lz);
+  const kTop = alpha < 1 ? alpha / (1 - alpha) : 0;
   let sf = 0;
   let pdf = 0;
   // rounding of the summed terms: each exponent is off by eps times the size of its parts (plus lgamma's own error),
@@ -110,6 +119,13 @@ export function stableTailSeries(alpha: number, beta: number, z: number): Series
     const up = 1 + 2e-14 + 4 * Number.EPSILON * (size[k] + Math.abs(kal) + Math.abs(grow) + Math.abs(lz));
     out.sf = up * Math.exp(lSf[k] - kal + grow);
     out.pdf = up * Math.exp(lPdf[k] - kal - lz + grow);
+    if (alpha < 1) {
+      const kk = Math.max(k, kTop);
+      const rhoSf = (cz * Math.pow(kk * alpha, alpha)) / (kk + 1);
+      const rhoPdf = (cz * Math.pow(k * alpha + 1, alpha)) / (k + 1);
+      if (rhoSf < 1) out.sf = Math.min(out.sf, (up * Math.exp(lSf[k] - kal)) / (1 - rhoSf) * (1 + 8 * Number.EPSILON));
+      if (rhoPdf < 1) out.pdf = Math.min(out.pdf, (up * Math.exp(lPdf[k] - kal - lz)) / (1 - rhoPdf) * (1 + 8 * Number.EPSILON));
+    }
   };
   const rem = { sf: Infinity, pdf: Infinity };
   const next = { sf: 0, pdf: 0 };
