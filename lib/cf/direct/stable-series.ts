@@ -1,4 +1,4 @@
-import { lgamma } from "../families/special";
+import { lgamma, lgammaErr } from "../families/special";
 import { tanHalfPi } from "./stable-kernel";
 
 /**
@@ -51,6 +51,12 @@ interface Coeffs {
   lsin: number;
   /** log c */
   logc: number;
+  /**
+   * bounds on the absolute error of lSf[k] and lPdf[k] beyond the rounding of their sum: lgamma's own (lgammaErr) and
+   * k times that of log c (tan(pi alpha/2), beta times it and log1p: 4 u relative in tb, moving log c by <= 4 u)
+   */
+  eSf: Float64Array;
+  ePdf: Float64Array;
 }
 const cache = new Map<string, Coeffs>();
 // the last few laws asked for, compared as numbers (the map's string key costs more than the series at far points)
@@ -72,13 +78,16 @@ function coeffsFor(alpha: number, beta: number): Coeffs {
   const psi = Math.min(Math.PI / 2, Math.PI / (2 * alpha) - theta0) * (1 - 8 * Number.EPSILON);
   const lsin = psi > 0 ? Math.log(Math.sin(psi)) * (1 + 8 * Number.EPSILON) : -Infinity;
   const n = MAX_TERMS + 2;
-  c = { lSf: new Float64Array(n), lPdf: new Float64Array(n), sgn: new Float64Array(n), size: new Float64Array(n), phase, lsin, logc };
+  c = { lSf: new Float64Array(n), lPdf: new Float64Array(n), sgn: new Float64Array(n), size: new Float64Array(n), phase, lsin, logc, eSf: new Float64Array(n), ePdf: new Float64Array(n) };
   for (let k = 1; k < n; k++) {
     const base = k * logc - lgamma(k + 1);
     c.lSf[k] = base + lgamma(k * alpha);
     c.lPdf[k] = base + lgamma(k * alpha + 1);
     c.sgn[k] = (k % 2 ? 1 : -1) * Math.sin(k * phase);
     c.size[k] = Math.abs(k * logc) + lgamma(k + 1) + Math.abs(lgamma(k * alpha)) + Math.abs(lgamma(k * alpha + 1));
+    const eBase = lgammaErr(k + 1) + 2 * k * Number.EPSILON;
+    c.eSf[k] = eBase + lgammaErr(k * alpha);
+    c.ePdf[k] = eBase + lgammaErr(k * alpha + 1);
   }
   if (cache.size > 64) cache.clear();
   cache.set(key, c);
@@ -100,7 +109,7 @@ export function stableTailSeries(alpha: number, beta: number, z: number): Series
   if (!(z > 0) || alpha === 1) return null;
   // beta = -1 leaves no power tail on this side (the law's right tail is lighter than any power)
   if (beta === -1) return null;
-  const { lSf, lPdf, sgn, size, phase, lsin, logc } = coeffsFor(alpha, beta);
+  const { lSf, lPdf, sgn, size, phase, lsin, logc, eSf, ePdf } = coeffsFor(alpha, beta);
   if (!(lsin > -Infinity)) return null;
   const lz = Math.log(z);
   const cz = Math.exp(logc - alpha * lz);
@@ -116,15 +125,17 @@ export function stableTailSeries(alpha: number, beta: number, z: number): Series
     const kal = k * alpha * lz;
     const grow = -(k * alpha + 1) * lsin;
     // each exponent's rounding (eps times the size of its parts, as for the terms) raises the bound by that factor
-    const up = 1 + 2e-14 + 4 * Number.EPSILON * (size[k] + Math.abs(kal) + Math.abs(grow) + Math.abs(lz));
-    out.sf = up * Math.exp(lSf[k] - kal + grow);
-    out.pdf = up * Math.exp(lPdf[k] - kal - lz + grow);
+    const dExp = 4 * Number.EPSILON * (size[k] + Math.abs(kal) + Math.abs(grow) + Math.abs(lz));
+    const upSf = 1 + Math.expm1(dExp + eSf[k]) * (1 + Number.EPSILON);
+    const upPdf = 1 + Math.expm1(dExp + ePdf[k]) * (1 + Number.EPSILON);
+    out.sf = upSf * Math.exp(lSf[k] - kal + grow);
+    out.pdf = upPdf * Math.exp(lPdf[k] - kal - lz + grow);
     if (alpha < 1) {
       const kk = Math.max(k, kTop);
       const rhoSf = (cz * Math.pow(kk * alpha, alpha)) / (kk + 1);
       const rhoPdf = (cz * Math.pow(k * alpha + 1, alpha)) / (k + 1);
-      if (rhoSf < 1) out.sf = Math.min(out.sf, (up * Math.exp(lSf[k] - kal)) / (1 - rhoSf) * (1 + 8 * Number.EPSILON));
-      if (rhoPdf < 1) out.pdf = Math.min(out.pdf, (up * Math.exp(lPdf[k] - kal - lz)) / (1 - rhoPdf) * (1 + 8 * Number.EPSILON));
+      if (rhoSf < 1) out.sf = Math.min(out.sf, (upSf * Math.exp(lSf[k] - kal)) / (1 - rhoSf) * (1 + 8 * Number.EPSILON));
+      if (rhoPdf < 1) out.pdf = Math.min(out.pdf, (upPdf * Math.exp(lPdf[k] - kal - lz)) / (1 - rhoPdf) * (1 + 8 * Number.EPSILON));
     }
   };
   const rem = { sf: Infinity, pdf: Infinity };
@@ -143,12 +154,13 @@ export function stableTailSeries(alpha: number, beta: number, z: number): Series
     const magPdf = Math.exp(lPdf[k] - kal - lz);
     const tSf = sgn[k] * mag;
     const tPdf = sgn[k] * magPdf;
-    const termRel = 2e-14 + 4 * Number.EPSILON * (size[k] + Math.abs(kal) + Math.abs(lz));
+    // an exponent off by at most d moves the term by at most e^d - 1 of it
+    const termRel = 4 * Number.EPSILON * (size[k] + Math.abs(kal) + Math.abs(lz));
     const sineAbs = 4 * Number.EPSILON * k * Math.abs(phase);
     sf += tSf;
     pdf += tPdf;
-    errSf += 8 * Number.EPSILON * Math.abs(tSf) + Math.abs(tSf) * termRel + mag * sineAbs;
-    errPdf += 8 * Number.EPSILON * Math.abs(tPdf) + Math.abs(tPdf) * termRel + magPdf * sineAbs;
+    errSf += 8 * Number.EPSILON * Math.abs(tSf) + Math.abs(tSf) * Math.expm1(termRel + eSf[k]) + mag * sineAbs;
+    errPdf += 8 * Number.EPSILON * Math.abs(tPdf) + Math.abs(tPdf) * Math.expm1(termRel + ePdf[k]) + magPdf * sineAbs;
     rem.sf = next.sf;
     rem.pdf = next.pdf;
   }
@@ -172,7 +184,7 @@ export function stableTailSeries(alpha: number, beta: number, z: number): Series
  */
 export function stableTailStopLoss(alpha: number, beta: number, z: number): { v: number; e: number } | null {
   if (!(alpha > 1) || !stableTailSeries(alpha, beta, z)) return null;
-  const { lSf, sgn, size, phase, lsin } = coeffsFor(alpha, beta);
+  const { lSf, sgn, size, phase, lsin, eSf } = coeffsFor(alpha, beta);
   const lz = Math.log(z);
   let v = 0;
   let err = 0;
@@ -180,7 +192,7 @@ export function stableTailStopLoss(alpha: number, beta: number, z: number): { v:
     const d = k * alpha - 1;
     const grow = -(k * alpha + 1) * lsin;
     const lm = lSf[k] - d * lz - Math.log(d) + grow;
-    return (1 + 2e-14 + 4 * Number.EPSILON * (size[k] + Math.abs(lm) + Math.abs(grow))) * Math.exp(lm);
+    return (1 + Math.expm1(eSf[k] + 4 * Number.EPSILON * (size[k] + Math.abs(lm) + Math.abs(grow)))) * Math.exp(lm);
   };
   let rem = bound(1);
   for (let k = 1; ; k++) {
@@ -194,7 +206,7 @@ export function stableTailStopLoss(alpha: number, beta: number, z: number): { v:
     const mag = Math.exp(lm);
     const t = sgn[k] * mag;
     v += t;
-    err += 8 * Number.EPSILON * Math.abs(t) + Math.abs(t) * (2e-14 + 4 * Number.EPSILON * (size[k] + Math.abs(lm) + Math.abs(Math.log(d)))) + mag * 4 * Number.EPSILON * k * Math.abs(phase);
+    err += 8 * Number.EPSILON * Math.abs(t) + Math.abs(t) * Math.expm1(eSf[k] + 4 * Number.EPSILON * (size[k] + Math.abs(lm) + Math.abs(Math.log(d)))) + mag * 4 * Number.EPSILON * k * Math.abs(phase);
     rem = nextRem;
   }
   const e = (rem + err) / Math.PI;

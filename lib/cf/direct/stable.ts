@@ -4,7 +4,7 @@ import { stableNearOne } from "./stable-near-one";
 import { tanHalfPi } from "./stable-kernel";
 import { stableTailSeries, stableTailStopLoss } from "./stable-series";
 import type { DirectLaw, DirectPoint } from "./types";
-import { lgamma } from "../families/special";
+import { lgamma, lgammaErr } from "../families/special";
 import { cauchyDirect, normalDirect } from "./families";
 
 const HALF_PI = Math.PI / 2;
@@ -98,16 +98,31 @@ function theta0Of(alpha: number, beta: number): number {
   return Math.atan(beta * tanHalfPi(alpha)) / alpha;
 }
 
-/** x = zeta (z = 0): f = Gamma(1 + 1/alpha) cos(theta0) / (pi (1 + zeta^2)^(1/(2 alpha))), F = (pi/2 - theta0)/pi. */
+/**
+ * x = zeta (z = 0): f = Gamma(1 + 1/alpha) cos(theta0) / (pi (1 + zeta^2)^(1/(2 alpha))), F = (pi/2 - theta0)/pi.
+ * Error by running analysis of these steps (u = eps/2, the libm functions within one ulp): lgamma's (lgammaErr) plus its
+ * argument's rounding times |psi| <= log y + 1; theta0's (atan of tb, 4 u relative, moves it by <= 2 u / alpha, and
+ * its own two roundings) moves cos theta0 by |sin theta0| times it; the power's relative error p log(b) 2 u + p 10 u.
+ */
 function atZeta(alpha: number, beta: number, out: DirectPoint) {
+  const u = Number.EPSILON / 2;
   const th0 = theta0Of(alpha, beta);
   const zeta = -beta * tanHalfPi(alpha);
-  out.pdf = (Math.exp(lgamma(1 + 1 / alpha)) * Math.cos(th0)) / (Math.PI * Math.pow(1 + zeta * zeta, 1 / (2 * alpha)));
+  const y = 1 + 1 / alpha;
+  const eLg = lgammaErr(y) + (Math.log(y) + 1) * 2 * u * y;
+  const cosT = Math.cos(th0);
+  const dTh = 2 * u / alpha + 4 * u * (Math.abs(th0) + Math.PI / alpha);
+  const p = 1 / (2 * alpha);
+  const b = 1 + zeta * zeta;
+  const pw = Math.pow(b, p);
+  const ePow = p * Math.log(b) * 2 * u + p * 10 * u + 2 * u;
+  const g = Math.exp(lgamma(y));
+  out.pdf = (g * cosT) / (Math.PI * pw);
+  out.pdfErr = out.pdf * (Math.expm1(eLg) * (1 + 2 * u) + ePow + 8 * u) + (g / (Math.PI * pw)) * (Math.abs(Math.sin(th0)) * dTh + 2 * u * Math.abs(cosT)) * (1 + 16 * u);
   out.cdf = (HALF_PI - th0) / Math.PI;
   out.sf = (HALF_PI + th0) / Math.PI;
-  out.pdfErr = 1e-14 * out.pdf;
-  out.cdfErr = 4 * Number.EPSILON;
-  out.sfErr = 4 * Number.EPSILON;
+  out.cdfErr = (dTh + 4 * u * (HALF_PI + Math.abs(th0))) / Math.PI + 2 * u * out.cdf;
+  out.sfErr = (dTh + 4 * u * (HALF_PI + Math.abs(th0))) / Math.PI + 2 * u * out.sf;
 }
 
 function sideAt(alpha: number, beta: number, z: number, out: DirectPoint) {
