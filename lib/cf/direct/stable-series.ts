@@ -20,7 +20,7 @@ import { tanHalfPi } from "./stable-kernel";
  * the size of the first omitted term times (sin psi*)^{-(n alpha + 1)}; integrated over (z, inf) it bounds the sf's
  * remainder by the sf term's size times the same factor, and once more the stop-loss transform's. The sum stops where
  * this bound is below the rounding of the sum (or, for the asymptotic series, where it stops falling) and is accepted
- * when the bound plus the terms' rounding is below 1e-12 of the value.
+ * when the bound plus the terms' rounding is below 1e-10 of the value (the default tolerance), else the integral serves.
  * For alpha < 1 (convergent) the omitted terms' sizes also have a geometric majorant, which is far smaller where
  * sin psi* is small (beta next to 1): by Wendel's inequality Gamma(x + s) <= x^s Gamma(x) (0 < s < 1; Wendel 1948,
  * Amer. Math. Monthly 55) the ratio of consecutive sizes is at most c (k alpha)^alpha / (k + 1) z^-alpha for the sf
@@ -57,6 +57,10 @@ interface Coeffs {
    */
   eSf: Float64Array;
   ePdf: Float64Array;
+  /** (sin psi*)^{-(k alpha + 1)}; for alpha < 1 the ratio factors of the geometric majorant (z^-alpha c left out) */
+  grow: Float64Array;
+  rSf: Float64Array;
+  rPdf: Float64Array;
 }
 const cache = new Map<string, Coeffs>();
 // the last few laws asked for, compared as numbers (the map's string key costs more than the series at far points)
@@ -78,7 +82,8 @@ function coeffsFor(alpha: number, beta: number): Coeffs {
   const psi = Math.min(Math.PI / 2, Math.PI / (2 * alpha) - theta0) * (1 - 8 * Number.EPSILON);
   const lsin = psi > 0 ? Math.log(Math.sin(psi)) * (1 + 8 * Number.EPSILON) : -Infinity;
   const n = MAX_TERMS + 2;
-  c = { lSf: new Float64Array(n), lPdf: new Float64Array(n), sgn: new Float64Array(n), size: new Float64Array(n), phase, lsin, logc, eSf: new Float64Array(n), ePdf: new Float64Array(n) };
+  c = { lSf: new Float64Array(n), lPdf: new Float64Array(n), sgn: new Float64Array(n), size: new Float64Array(n), phase, lsin, logc, eSf: new Float64Array(n), ePdf: new Float64Array(n), grow: new Float64Array(n), rSf: new Float64Array(n), rPdf: new Float64Array(n) };
+  const kTop = alpha < 1 ? alpha / (1 - alpha) : 0;
   for (let k = 1; k < n; k++) {
     const base = k * logc - lgamma(k + 1);
     c.lSf[k] = base + lgamma(k * alpha);
@@ -88,6 +93,13 @@ function coeffsFor(alpha: number, beta: number): Coeffs {
     const eBase = lgammaErr(k + 1) + 2 * k * Number.EPSILON;
     c.eSf[k] = eBase + lgammaErr(k * alpha);
     c.ePdf[k] = eBase + lgammaErr(k * alpha + 1);
+    // rounded up: the factor's own rounding (exp of a product, 3 eps relative at most) is absorbed in 1 + 4 eps
+    c.grow[k] = Math.exp(-(k * alpha + 1) * lsin) * (1 + 4 * Number.EPSILON * (1 + Math.abs((k * alpha + 1) * lsin)));
+    if (alpha < 1) {
+      const kk = Math.max(k, kTop);
+      c.rSf[k] = (Math.pow(kk * alpha, alpha) / (kk + 1)) * (1 + 8 * Number.EPSILON);
+      c.rPdf[k] = (Math.pow(k * alpha + 1, alpha) / (k + 1)) * (1 + 8 * Number.EPSILON);
+    }
   }
   if (cache.size > 64) cache.clear();
   cache.set(key, c);
@@ -103,72 +115,80 @@ function remember(alpha: number, beta: number, c: Coeffs): void {
 /** the sum stops once the remainder's bound is below this fraction of it (under the sum's own rounding) */
 const STOP = 2 ** -56;
 /** accepted when the whole bound is below this fraction of the value (else the integral serves the point) */
-const ACCEPT = 1e-12;
+const ACCEPT = 1e-10;
 
 export function stableTailSeries(alpha: number, beta: number, z: number): SeriesValue | null {
   if (!(z > 0) || alpha === 1) return null;
   // beta = -1 leaves no power tail on this side (the law's right tail is lighter than any power)
   if (beta === -1) return null;
-  const { lSf, lPdf, sgn, size, phase, lsin, logc, eSf, ePdf } = coeffsFor(alpha, beta);
+  const { lSf, lPdf, sgn, size, phase, lsin, logc, eSf, ePdf, grow, rSf, rPdf } = coeffsFor(alpha, beta);
   if (!(lsin > -Infinity)) return null;
   const lz = Math.log(z);
-  const cz = Math.exp(logc - alpha * lz);
-  const kTop = alpha < 1 ? alpha / (1 - alpha) : 0;
+  const cz = Math.exp(logc - alpha * lz) * (1 + 4 * Number.EPSILON * (1 + Math.abs(logc) + Math.abs(alpha * lz)));
+  const absLz = Math.abs(lz);
   let sf = 0;
   let pdf = 0;
   // rounding of the summed terms: each exponent is off by eps times the size of its parts (plus lgamma's own error),
   // each sine by k eps phase (absolute, so a sine near zero still counts), each product and sum by a few eps
   let errSf = 0;
   let errPdf = 0;
-  // the remainder's bound when the sum stops before term k (see the module notes)
-  const bound = (k: number, out: { sf: number; pdf: number }) => {
-    const kal = k * alpha * lz;
-    const grow = -(k * alpha + 1) * lsin;
-    // each exponent's rounding (eps times the size of its parts, as for the terms) raises the bound by that factor
-    const dExp = 4 * Number.EPSILON * (size[k] + Math.abs(kal) + Math.abs(grow) + Math.abs(lz));
-    const upSf = 1 + Math.expm1(dExp + eSf[k]) * (1 + Number.EPSILON);
-    const upPdf = 1 + Math.expm1(dExp + ePdf[k]) * (1 + Number.EPSILON);
-    out.sf = upSf * Math.exp(lSf[k] - kal + grow);
-    out.pdf = upPdf * Math.exp(lPdf[k] - kal - lz + grow);
+  // the sizes of term k (computed once: as the remainder's bound before k, then as the term)
+  let magSf = Math.exp(lSf[1] - alpha * lz);
+  let magPdf = Math.exp(lPdf[1] - alpha * lz - lz);
+  // the remainder's bound when the sum stops before term k (see the module notes); an exponent off by at most d
+  // (d <= 1) moves its exponential by at most e^d - 1 <= d (1 + d) of it
+  let remSf = 0;
+  let remPdf = 0;
+  const bound = (k: number, mSf: number, mPdf: number) => {
+    const d = 4 * Number.EPSILON * (size[k] + k * alpha * absLz + absLz);
+    const dSf = d + eSf[k];
+    const dPdf = d + ePdf[k];
+    const upSf = 1 + dSf * (1 + dSf) * (1 + Number.EPSILON);
+    const upPdf = 1 + dPdf * (1 + dPdf) * (1 + Number.EPSILON);
+    remSf = upSf * mSf * grow[k];
+    remPdf = upPdf * mPdf * grow[k];
     if (alpha < 1) {
-      const kk = Math.max(k, kTop);
-      const rhoSf = (cz * Math.pow(kk * alpha, alpha)) / (kk + 1);
-      const rhoPdf = (cz * Math.pow(k * alpha + 1, alpha)) / (k + 1);
-      if (rhoSf < 1) out.sf = Math.min(out.sf, (upSf * Math.exp(lSf[k] - kal)) / (1 - rhoSf) * (1 + 8 * Number.EPSILON));
-      if (rhoPdf < 1) out.pdf = Math.min(out.pdf, (upPdf * Math.exp(lPdf[k] - kal - lz)) / (1 - rhoPdf) * (1 + 8 * Number.EPSILON));
+      const rhoSf = cz * rSf[k];
+      const rhoPdf = cz * rPdf[k];
+      if (rhoSf < 1) remSf = Math.min(remSf, ((upSf * mSf) / (1 - rhoSf)) * (1 + 8 * Number.EPSILON));
+      if (rhoPdf < 1) remPdf = Math.min(remPdf, ((upPdf * mPdf) / (1 - rhoPdf)) * (1 + 8 * Number.EPSILON));
     }
   };
-  const rem = { sf: Infinity, pdf: Infinity };
-  const next = { sf: 0, pdf: 0 };
-  bound(1, rem);
+  bound(1, magSf, magPdf);
   for (let k = 1; ; k++) {
-    if (!Number.isFinite(rem.sf) || !Number.isFinite(rem.pdf)) return null;
-    if (k > 1 && rem.sf <= STOP * Math.abs(sf) && rem.pdf <= STOP * Math.abs(pdf)) break;
+    if (!(remSf < Infinity && remPdf < Infinity)) return null;
+    // stop once the remainder is below the sum's rounding (or an eighth of the terms' rounding bound so far)
+    if (k > 1 && remSf <= Math.max(STOP * Math.abs(sf), errSf / 8) && remPdf <= Math.max(STOP * Math.abs(pdf), errPdf / 8)) break;
     if (k > MAX_TERMS) break;
-    bound(k + 1, next);
+    const kal1 = (k + 1) * alpha * lz;
+    const nSf = Math.exp(lSf[k + 1] - kal1);
+    const nPdf = Math.exp(lPdf[k + 1] - kal1 - lz);
+    const prevSf = remSf;
+    const prevPdf = remPdf;
+    bound(k + 1, nSf, nPdf);
     // the asymptotic series (alpha > 1): the bound falls to a least value, then grows; stop at the least
-    if (k > 1 && (next.sf > rem.sf || next.pdf > rem.pdf)) break;
-    const kal = k * alpha * lz;
+    if (k > 1 && (remSf > prevSf || remPdf > prevPdf)) {
+      remSf = prevSf;
+      remPdf = prevPdf;
+      break;
+    }
     // the size of a term regardless of its sine (which may vanish by accident)
-    const mag = Math.exp(lSf[k] - kal);
-    const magPdf = Math.exp(lPdf[k] - kal - lz);
-    const tSf = sgn[k] * mag;
+    const tSf = sgn[k] * magSf;
     const tPdf = sgn[k] * magPdf;
-    // an exponent off by at most d moves the term by at most e^d - 1 of it
-    const termRel = 4 * Number.EPSILON * (size[k] + Math.abs(kal) + Math.abs(lz));
+    const termRel = 4 * Number.EPSILON * (size[k] + k * alpha * absLz + absLz);
     const sineAbs = 4 * Number.EPSILON * k * Math.abs(phase);
+    const dSf = termRel + eSf[k];
+    const dPdf = termRel + ePdf[k];
     sf += tSf;
     pdf += tPdf;
-    errSf += 8 * Number.EPSILON * Math.abs(tSf) + Math.abs(tSf) * Math.expm1(termRel + eSf[k]) + mag * sineAbs;
-    errPdf += 8 * Number.EPSILON * Math.abs(tPdf) + Math.abs(tPdf) * Math.expm1(termRel + ePdf[k]) + magPdf * sineAbs;
-    rem.sf = next.sf;
-    rem.pdf = next.pdf;
+    errSf += Math.abs(tSf) * (8 * Number.EPSILON + dSf * (1 + dSf)) + magSf * sineAbs;
+    errPdf += Math.abs(tPdf) * (8 * Number.EPSILON + dPdf * (1 + dPdf)) + magPdf * sineAbs;
+    magSf = nSf;
+    magPdf = nPdf;
   }
-  const remSf = rem.sf;
-  const remPdf = rem.pdf;
   if (!(sf > 0) || !(pdf > 0)) return null;
-  const sfErr = (remSf + errSf) / Math.PI;
-  const pdfErr = (remPdf + errPdf) / Math.PI;
+  const sfErr = ((remSf + errSf) / Math.PI) * (1 + 4 * Number.EPSILON);
+  const pdfErr = ((remPdf + errPdf) / Math.PI) * (1 + 4 * Number.EPSILON);
   sf /= Math.PI;
   pdf /= Math.PI;
   if (!(sfErr <= ACCEPT * sf && pdfErr <= ACCEPT * pdf)) return null;
