@@ -77,6 +77,17 @@ export const Diagnostics = z
         cdf: z.number(),
       })
       .openapi({ description: "upper estimates of the absolute error over the returned points (pdf: over the points where the density is finite)" }),
+    pointError: z
+      .object({
+        pdf: z.array(z.number().nullable()).optional().openapi({ description: "bound on |pdf - true pdf| (or of the pmf) at each x; null where not finite" }),
+        cdf: z.array(z.number().nullable()).openapi({ description: "bound on |cdf - true cdf| at each x" }),
+        sf: z.array(z.number().nullable()).openapi({ description: "bound on |sf - true sf| at each x (tight in the upper tail, where sf is computed directly)" }),
+      })
+      .strict()
+      .openapi({
+        description:
+          "bounds at each returned point, in the order of x: a named law evaluated directly (and a mixture of such laws) bounds every point on its own, so a tail value carries its own, smaller bound; routes that bound the whole answer at once repeat the values of `error` here. Each entry is at most the matching whole-answer bound.",
+      }),
     unboundedDensityAt: z
       .array(z.number())
       .optional()

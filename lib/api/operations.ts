@@ -53,6 +53,15 @@ export function runDensity(body: z.infer<typeof DensityBody>) {
   });
   // a density that is infinite at a point (a power singularity met exactly) has no JSON number: null, listed by x
   const unbounded = r.pdf ? Array.from(r.x).filter((_, i) => r.pdf![i] === Infinity) : [];
+  const { pointError: pe, ...diagnostics } = r.diagnostics;
+  // per point: the route's own bounds, or the whole answer's where it bounds only that
+  const n = r.x.length;
+  const uniform = (v: number | null) => Array.from({ length: n }, () => (v !== null && Number.isFinite(v) ? v : null));
+  const pointError = {
+    ...(r.pdf || r.pmf ? { pdf: pe ? nullable(pe.pdf)! : uniform(diagnostics.error.pdf) } : {}),
+    cdf: pe ? nullable(pe.cdf)! : uniform(diagnostics.error.cdf),
+    sf: pe ? nullable(pe.sf)! : uniform(diagnostics.error.cdf),
+  };
   return {
     x: list(r.x),
     ...(r.pdf ? { pdf: nullable(r.pdf) } : {}),
@@ -60,7 +69,7 @@ export function runDensity(body: z.infer<typeof DensityBody>) {
     cdf: list(r.cdf),
     sf: list(r.sf),
     atoms: r.atoms,
-    diagnostics: (unbounded.length > 0 ? { ...r.diagnostics, unboundedDensityAt: unbounded } : r.diagnostics) as typeof r.diagnostics & { unboundedDensityAt?: number[] },
+    diagnostics: { ...diagnostics, pointError, ...(unbounded.length > 0 ? { unboundedDensityAt: unbounded } : {}) },
   };
 }
 

@@ -54,6 +54,26 @@ describe("POST /api/v1/density", () => {
     expect(res.body.diagnostics.error.cdf).toBeLessThan(1e-8);
   });
 
+  it("bounds each point of a directly evaluated law on its own: gamma(3, 2) tail values against jstat gamma.cdf", async () => {
+    const x = [0.2, 1.5, 6, 12];
+    const res = await post("/api/v1/density", { model: { family: "gamma", shape: 3, rate: 2 }, x });
+    expect(res.status, JSON.stringify(res.body)).toBe(200);
+    const d = res.body.diagnostics;
+    expect(d.pointError.cdf).toHaveLength(x.length);
+    expect(d.pointError.sf).toHaveLength(x.length);
+    expect(d.pointError.pdf).toHaveLength(x.length);
+    x.forEach((xi, i) => {
+      // jstat's gamma takes the scale 1/rate; its own error (about 1e-15 relative) is far below the bounds compared
+      const sfRef = 1 - jStat.gamma.cdf(xi, 3, 0.5);
+      expect(d.pointError.cdf[i]).toBeLessThanOrEqual(d.error.cdf);
+      expect(d.pointError.sf[i]).toBeLessThanOrEqual(d.error.cdf);
+      close(res.body.cdf[i], jStat.gamma.cdf(xi, 3, 0.5), { abs: d.pointError.cdf[i] + 1e-15 }, `cdf(${xi}) within its point bound`);
+      if (xi < 10) close(res.body.sf[i], sfRef, { abs: d.pointError.sf[i] + 1e-15 }, `sf(${xi}) within its point bound`);
+    });
+    // far in the upper tail (sf(12) = 1.4e-9) the point's sf bound is relative to sf, not the whole answer's
+    expect(d.pointError.sf[3]).toBeLessThan(1e-6 * res.body.sf[3]);
+  });
+
   it("returns the pmf of a lattice law: binomial(10, 0.3) against jstat binomial.pdf", async () => {
     const res = await post("/api/v1/density", { model: { family: "binomial", n: 10, p: 0.3 }, x: [0, 3, 7, 10] });
     expect(res.status, JSON.stringify(res.body)).toBe(200);

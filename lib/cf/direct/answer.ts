@@ -2,7 +2,7 @@ import type { DensityResult } from "../invert/types";
 import type { QuantileResult } from "../invert/quantile";
 import { directPoint, type DirectLaw, type DirectPoint } from "./types";
 
-/** Density, cdf and sf of a directly evaluated law at the points xs; errors are the largest bounds over the points. */
+/** Density, cdf and sf of a directly evaluated law at the points xs; each point's bounds, and the largest over the points. */
 export function directDensity(law: DirectLaw, xs: Float64Array, modelNotes: string[], out?: { pdf?: Float64Array; cdf?: Float64Array; sf?: Float64Array }): DensityResult {
   const n = xs.length;
   const fits = (b: Float64Array | undefined): b is Float64Array => !!b && b.length === n;
@@ -12,12 +12,16 @@ export function directDensity(law: DirectLaw, xs: Float64Array, modelNotes: stri
   const pt = directPoint();
   let ePdf = 0;
   let eCdf = 0;
+  const pointError = { pdf: new Float64Array(n), cdf: new Float64Array(n), sf: new Float64Array(n) };
   for (let i = 0; i < n; i++) {
     law.at(xs[i], pt);
     tighten(pt);
     pdf[i] = pt.pdf;
     cdf[i] = pt.cdf;
     sf[i] = pt.sf;
+    pointError.pdf[i] = pt.pdfErr;
+    pointError.cdf[i] = pt.cdfErr;
+    pointError.sf[i] = pt.sfErr;
     ePdf = Math.max(ePdf, pt.pdfErr);
     eCdf = Math.max(eCdf, pt.cdfErr, pt.sfErr);
   }
@@ -39,6 +43,7 @@ export function directDensity(law: DirectLaw, xs: Float64Array, modelNotes: stri
       error: { aliasing: 0, truncation: 0, rounding: Math.max(ePdf, eCdf), pdf: ePdf, cdf: eCdf },
       levels: 1,
       notes: [...law.notes, ...modelNotes],
+      pointError,
     },
   };
 }

@@ -4,7 +4,7 @@ import { mergeAtoms } from "../kinds";
 import { directPoint, type DirectLaw, type DirectPoint } from "../direct/types";
 import { directQuantile } from "../direct/answer";
 import type { QuantileOptions, QuantileResult } from "./quantile";
-import type { DensityOptions, DensityResult } from "./types";
+import type { DensityOptions, DensityResult, PointErrors } from "./types";
 import { components, mixtureAtoms, mixtureLaw, methodsNote } from "./mixture-components";
 
 /**
@@ -225,6 +225,24 @@ export function mixtureDensity(
   }
   // summing n terms rounds by at most n ulps of the result
   const round = 2 * Number.EPSILON * parts.length;
+  // per point: the weighted sums of the components' own point bounds, where every component has them
+  let pointError: PointErrors | undefined;
+  if (parts.every(({ r }) => r.diagnostics.pointError)) {
+    pointError = { pdf: new Float64Array(n), cdf: new Float64Array(n), sf: new Float64Array(n) };
+    for (const { w, r } of parts) {
+      const pe = r.diagnostics.pointError!;
+      for (let i = 0; i < n; i++) {
+        pointError.pdf[i] += w * pe.pdf[i];
+        pointError.cdf[i] += w * pe.cdf[i];
+        pointError.sf[i] += w * pe.sf[i];
+      }
+    }
+    for (let i = 0; i < n; i++) {
+      pointError.cdf[i] += round * cdf[i];
+      pointError.sf[i] += round * sf[i];
+      if (pdf) pointError.pdf[i] += round * (Number.isFinite(pdf[i]) ? Math.abs(pdf[i]) : 0);
+    }
+  }
   e.cdf += round;
   // over the finite values: an infinite density at a point (a component's power singularity) is exact there
   e.pdf += round * (pdf ? pdf.reduce((m, v) => (Number.isFinite(v) ? Math.max(m, Math.abs(v)) : m), 0) : 0);
@@ -250,6 +268,7 @@ export function mixtureDensity(
       error: e,
       levels,
       notes: [...new Set([note, ...notes])],
+      ...(pointError ? { pointError } : {}),
     },
   };
 }

@@ -58,6 +58,18 @@ export interface InversionDiagnostics {
   /** Richardson levels used for heavy tails (1 when none) */
   levels: number;
   notes: string[];
+  /**
+   * bounds at each returned point, where the route bounds every point on its own (direct laws, mixtures of them);
+   * each entry is at most the whole answer's bound in `error`. Absent where only the whole answer is bounded.
+   */
+  pointError?: PointErrors;
+}
+
+/** per-point bounds on the absolute error of pdf (or pmf), cdf and sf */
+export interface PointErrors {
+  pdf: Float64Array;
+  cdf: Float64Array;
+  sf: Float64Array;
 }
 
 export interface DensityResult {
