@@ -90,8 +90,8 @@ interface LevelRef {
 
 /**
  * pdf (or pmf), cdf and sf at the points, each with its stated bound: by default one call for all of a model's points
- * (as a client would ask, so the bound is the call's bound over every point), with BOUND_AUDIT_PER_POINT=1 one call
- * per point (each value's own best bound).
+ * (as a client would ask: the bound is the point's own where the answer has point bounds, else the call's bound over
+ * every point), with BOUND_AUDIT_PER_POINT=1 one call per point (each value's own best bound).
  */
 function points(set: string, model: Model, c: CompiledModel, refs: PointRef[], refErr: (v: number, i: number) => number) {
   const groups = PER_POINT ? refs.map((r, i) => [[r, i] as const]) : [refs.map((r, i) => [r, i] as const)];
@@ -100,15 +100,17 @@ function points(set: string, model: Model, c: CompiledModel, refs: PointRef[], r
     const r = guarded(`${set} ${JSON.stringify(model)} x=${xs.length === 1 ? xs[0] : `${xs.length} points`}`, () => density(c, { x: xs }));
     if (!r) continue;
     const e = r.diagnostics.error;
+    // each value's bound as the API answers it: its point bound where the route gives one, else the whole answer's
+    const pe = r.diagnostics.pointError;
     g.forEach(([ref, i], j) => {
       const label = `${JSON.stringify(model)} x=${ref.x}`;
       const tail = Math.min(ref.cdf ?? 1, ref.sf ?? 1) < TAIL;
       const add = (quantity: Quantity, got: number, want: number, refErr: number, bound: number) => push(set, quantity, label, got, want, refErr, bound, tail);
-      if (ref.pdf !== undefined && r.pdf) add("pdf", r.pdf[j], ref.pdf, refErr(ref.pdf, i), e.pdf);
-      if (ref.pmf !== undefined && r.pmf) add("pmf", r.pmf[j], ref.pmf, refErr(ref.pmf, i), e.pdf);
+      if (ref.pdf !== undefined && r.pdf) add("pdf", r.pdf[j], ref.pdf, refErr(ref.pdf, i), pe ? pe.pdf[j] : e.pdf);
+      if (ref.pmf !== undefined && r.pmf) add("pmf", r.pmf[j], ref.pmf, refErr(ref.pmf, i), pe ? pe.pdf[j] : e.pdf);
       if (ref.pdf !== undefined && !r.pdf && r.pmf) failures.push(`${set} ${label}: a pdf reference but the engine answered a pmf`);
-      if (ref.cdf !== undefined) add("cdf", r.cdf[j], ref.cdf, refErr(ref.cdf, i), e.cdf);
-      if (ref.sf !== undefined) add("sf", r.sf[j], ref.sf, refErr(ref.sf, i), e.cdf);
+      if (ref.cdf !== undefined) add("cdf", r.cdf[j], ref.cdf, refErr(ref.cdf, i), pe ? pe.cdf[j] : e.cdf);
+      if (ref.sf !== undefined) add("sf", r.sf[j], ref.sf, refErr(ref.sf, i), pe ? pe.sf[j] : e.cdf);
     });
   }
 }
