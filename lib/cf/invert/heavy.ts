@@ -6,7 +6,7 @@ export interface ImageLaw {
   direct: DirectLaw;
   tails: { left: number; right: number };
 }
-import { imageScratch, imageSums, type ImageScratch } from "./images";
+import { imageLadder, imageScratch, type ImageScratch, type ImageSums } from "./images";
 import { buildNodes, cutoffFor, probeEnvelope, truncationAt, type Envelope, type Nodes } from "./nodes";
 import { makePart, withTailLaw, type ContinuousPart } from "./part";
 import { sumPointwise } from "./pointwise";
@@ -181,6 +181,16 @@ export interface HeavyLadder {
   /** the power-tailed terms whose images are taken out of every level's sums from their direct laws (./images.ts) */
   images: ImageLaw[];
   imageScratch: ImageScratch;
+  /** evalLadder's answers at the current levels, by x (cleared when a level is added) */
+  memo?: Map<number, LadderValue>;
+}
+
+export interface LadderValue {
+  pdf: number;
+  cdf: number;
+  sf: number;
+  errCdf: number;
+  errPdf: number;
 }
 
 /** Richardson exponents from every power term the tails may hold when known, else from the smallest index alone. */
@@ -265,6 +275,7 @@ export function growLadder(lad: HeavyLadder): boolean {
   const K = Math.min(Math.max(8, Math.ceil(lad.tmax / h)), MAX_TERMS);
   const nd = buildNodes(lad.part, h, K);
   lad.levels.push(nd);
+  lad.memo?.clear();
   lad.amp = richardsonAmplification(lad.expC, l + 1);
   const tr = truncationAt(lad.env, K * h);
   // phases up to |x - center| = T0 here; evalLadder adds what farther points need
@@ -284,7 +295,18 @@ export function evalLadder(
   lad: HeavyLadder,
   x: number,
   scratch: { pdf: Float64Array; cdf: Float64Array; sf: Float64Array; one: Float64Array },
-): { pdf: number; cdf: number; sf: number; errCdf: number; errPdf: number } {
+): LadderValue {
+  // the root finders and the brackets come back to the same points: the same levels give the same answer
+  const memo = (lad.memo ??= new Map());
+  const seen = memo.get(x);
+  if (seen) return seen;
+  if (memo.size >= 4096) memo.clear();
+  const value = ladderAt(lad, x, scratch);
+  memo.set(x, value);
+  return value;
+}
+
+function ladderAt(lad: HeavyLadder, x: number, scratch: { pdf: Float64Array; cdf: Float64Array; sf: Float64Array; one: Float64Array }): LadderValue {
   const L = lad.levels.length;
   const P: number[][] = [];
   const C: number[][] = [];
@@ -292,6 +314,7 @@ export function evalLadder(
   scratch.one[0] = x;
   let imC = 0;
   let imP = 0;
+  const ims: ImageSums[][] = lad.images.map((law) => imageLadder(law.direct, x, lad.T0, L, lad.imageScratch));
   for (let l = 0; l < L; l++) {
     sumPointwise(lad.levels[l], lad.part.center, scratch.one, scratch.pdf, scratch.cdf, scratch.sf);
     let pdf = scratch.pdf[0];
@@ -299,8 +322,8 @@ export function evalLadder(
     let sf = scratch.sf[0];
     let eC = 0;
     let eP = 0;
-    for (const law of lad.images) {
-      const im = imageSums(law.direct, x, lad.T0 * 2 ** l, lad.imageScratch);
+    for (let g = 0; g < ims.length; g++) {
+      const im = ims[g][l];
       pdf -= im.pdf;
       cdf -= im.cdf;
       sf += im.cdf;

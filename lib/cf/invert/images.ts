@@ -44,42 +44,68 @@ export interface ImageScratch {
   a: Float64Array;
   b: Float64Array;
   pt: DirectPoint;
+  /** imageLadder's per-offset values (six per offset) and which offsets are filled */
+  by?: Float64Array;
+  seen?: Uint8Array;
 }
 
 export function imageScratch(): ImageScratch {
   return { a: new Float64Array(N), b: new Float64Array(N), pt: directPoint() };
 }
 
-/** G's images at x for period T (see the module notes). */
-export function imageSums(law: DirectLaw, x: number, T: number, s: ImageScratch): ImageSums {
+/**
+ * G's images at x for the periods T0 2^l, l < levels (the period-doubling ladder of ./heavy.ts). The image at
+ * x + m T0 2^l is the one at x + (m 2^l) T0 (the same floating-point offset: scaling by 2^l is exact), so each offset
+ * is evaluated once for all levels: N + (levels - 1) N/2 law evaluations per side instead of levels N. Each level's
+ * sums are those of the single-period form, term for term.
+ */
+export function imageLadder(law: DirectLaw, x: number, T0: number, levels: number, s: ImageScratch): ImageSums[] {
   const { a, b, pt } = s;
-  let eC = 0;
-  let eP = 0;
-  for (let k = 0; k < N; k++) {
-    const m = k + 1;
-    law.at(x + m * T, pt);
-    let ak = pt.sf;
-    let bk = pt.pdf;
-    eC += pt.sfErr;
-    eP += pt.pdfErr;
-    law.at(x - m * T, pt);
-    ak -= pt.cdf;
-    bk += pt.pdf;
-    eC += pt.cdfErr;
-    eP += pt.pdfErr;
-    a[k] = ak;
-    b[k] = bk;
+  const top = N << (levels - 1);
+  if (!s.by || s.by.length < 6 * (top + 1)) s.by = new Float64Array(6 * (top + 1));
+  if (!s.seen || s.seen.length < top + 1) s.seen = new Uint8Array(top + 1);
+  const by = s.by;
+  const seen = s.seen;
+  seen.fill(0, 0, top + 1);
+  const out: ImageSums[] = [];
+  for (let l = 0; l < levels; l++) {
+    let eC = 0;
+    let eP = 0;
+    for (let k = 0; k < N; k++) {
+      const n = (k + 1) << l;
+      const o = 6 * n;
+      if (!seen[n]) {
+        law.at(x + n * T0, pt);
+        by[o] = pt.sf;
+        by[o + 1] = pt.pdf;
+        by[o + 2] = pt.sfErr;
+        by[o + 3] = pt.pdfErr;
+        law.at(x - n * T0, pt);
+        by[o] -= pt.cdf;
+        by[o + 1] += pt.pdf;
+        by[o + 4] = pt.cdfErr;
+        by[o + 5] = pt.pdfErr;
+        seen[n] = 1;
+      }
+      eC += by[o + 2];
+      eP += by[o + 3];
+      eC += by[o + 4];
+      eP += by[o + 5];
+      a[k] = by[o];
+      b[k] = by[o + 1];
+    }
+    const c1 = cvz(a, N);
+    const p1 = -cvz(b, N);
+    const c0 = cvz(a, N_LO);
+    const p0 = -cvz(b, N_LO);
+    out.push({
+      cdf: c1,
+      pdf: p1,
+      errCdf: Math.abs(c1 - c0) + eC + 4 * Number.EPSILON * Math.abs(a[0]),
+      errPdf: Math.abs(p1 - p0) + eP + 4 * Number.EPSILON * Math.abs(b[0]),
+    });
   }
-  const c1 = cvz(a, N);
-  const p1 = -cvz(b, N);
-  const c0 = cvz(a, N_LO);
-  const p0 = -cvz(b, N_LO);
-  return {
-    cdf: c1,
-    pdf: p1,
-    errCdf: Math.abs(c1 - c0) + eC + 4 * Number.EPSILON * Math.abs(a[0]),
-    errPdf: Math.abs(p1 - p0) + eP + 4 * Number.EPSILON * Math.abs(b[0]),
-  };
+  return out;
 }
 
 /** Gauss-Laguerre rule (weight e^-r on [0, inf)) of n nodes by Newton on L_n from the usual starting guesses (Press et
