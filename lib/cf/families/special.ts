@@ -146,6 +146,10 @@ export function logBesselKScaled(nu: number, x: number): number {
   if (x === Infinity) return -Infinity;
   const m = nu - 0.5;
   if (Number.isInteger(m) && m <= 60) return logBesselKHalf(m, x);
+  if (x >= LARGE_X) {
+    const v = logBesselKLarge(nu, x);
+    if (v !== null) return v;
+  }
   // integrand g(u) = -x (cosh u - 1) + log cosh(nu u); find its peak u* (g' = -x sinh u + nu tanh(nu u) = 0)
   let lo = 0;
   let hi = Math.max(1, Math.asinh(nu / x) + 1);
@@ -189,6 +193,32 @@ export function logBesselKScaled(nu: number, x: number): number {
   if (uStop <= 0) s *= 0.5;
   return gmax + Math.log(s * h);
 }
+
+/** from this x on the asymptotic series is tried first (one rule costs some 70 exponentials there, the series a few terms) */
+const LARGE_X = 64;
+
+/**
+ * log(e^x K_nu(x)) for large x from the asymptotic series K_nu(x) = sqrt(pi/(2x)) e^{-x} sum_k a_k(nu) / x^k,
+ * a_k(nu) = prod_{j<=k} (4 nu^2 - (2j - 1)^2) / (k! 8^k) (A&S 9.7.2, DLMF 10.40.2). For real nu and x > 0 the remainder
+ * after l terms is at most the first neglected term in absolute value once l >= nu - 1/2 (DLMF 10.40(ii)): the sum stops
+ * at the first such term below 2^-56 of the partial sum (so the truncation is below a quarter unit of the result; the
+ * terms' rounding, a few units each on terms that fall off, keeps the total within the rule's). Null when the terms
+ * stop falling before that (large nu against x): the caller then takes the rule.
+ */
+function logBesselKLarge(nu: number, x: number): number | null {
+  const mu = 4 * nu * nu;
+  let term = 1;
+  let sum = 1;
+  for (let k = 1; k <= 60; k++) {
+    const next = (term * (mu - (2 * k - 1) ** 2)) / (8 * k * x);
+    if (k - 1 >= nu - 0.5 && Math.abs(next) <= TWO_M56 * Math.abs(sum)) return 0.5 * Math.log(Math.PI / (2 * x)) + Math.log(sum);
+    if (Math.abs(next) > Math.abs(term) && k - 1 >= nu - 0.5) return null;
+    term = next;
+    sum += term;
+  }
+  return null;
+}
+const TWO_M56 = 2 ** -56;
 
 /**
  * Half-integer order: K_{m+1/2}(x) = sqrt(pi/(2x)) e^{-x} sum_{k=0}^m (m+k)! / (k! (m-k)!) (2x)^{-k}
