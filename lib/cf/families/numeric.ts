@@ -85,10 +85,28 @@ export function weibull(k: number, lambda: number): Node {
     qE[j] = lambda * es[j];
     aSum += amp0[j];
   }
+  // From the top frequency down, as long as the large-t series holds there with its bound (phiAt's own route, within the
+  // same stated error), the series answers; the rule's sums run only over the frequencies below (their cost is per node
+  // and frequency, the series' a few terms per frequency). Below shape 0.75 the series needs more terms near a = 4 than
+  // the rule costs (measured: shape 0.5 took twice the rule's time, shapes 0.8 to 2.1 1.2 to 2.3 times less)
+  const seriesTop = k >= 0.75;
+  const one = new Float64Array(2);
   const logCfArithmetic = (t: Float64Array, re: Float64Array, im: Float64Array) => {
-    const sr = new Float64Array(t.length);
-    const si = new Float64Array(t.length);
-    expSumArithmetic(qRe, qIm, qE, -Math.sin(theta), Math.cos(theta), t, sr, si);
+    const K = t.length;
+    const sr = new Float64Array(K);
+    const si = new Float64Array(K);
+    let cut = K;
+    while (seriesTop && cut > 0 && t[cut - 1] * lambda > 4 && weibullAsymptotic(ser, t[cut - 1] * lambda, one, 0)) {
+      cut--;
+      sr[cut] = one[0];
+      si[cut] = one[1];
+    }
+    if (cut >= 2) expSumArithmetic(qRe, qIm, qE, -Math.sin(theta), Math.cos(theta), t.subarray(0, cut), sr.subarray(0, cut), si.subarray(0, cut));
+    else if (cut === 1) {
+      phiAt(t[0], 0, one);
+      sr[0] = one[0];
+      si[0] = one[1];
+    }
     logFromSums(t, sr, si, re, im, 0, 0, 0);
   };
   // sum |c_j| ~ 1 / cos(k theta) <= sqrt 2: the shortcuts add ~ 4e-14. Rounding of the terms, relative, in units of u:
