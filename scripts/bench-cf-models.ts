@@ -3,7 +3,9 @@
 // the default tolerance; then Poisson-lognormal compounds (cdf on a 4096-point grid at 1e-9, 1000 arbitrary points,
 // the quantile triple with ES). Prints median and worst times (the worst is the figure that counts), the model
 // behind the worst and every model over its target by CPU time (the targets are CPU times: the machine is shared).
-// BENCH_MODELS, BENCH_SEED, BENCH_DEADLINE_MS, BENCH_WARM (see below), BENCH_SKIP_LOGNORMAL=1. Pure lib/cf.
+// BENCH_MODELS, BENCH_SEED, BENCH_DEADLINE_MS, BENCH_WARM (see below), BENCH_SKIP_LOGNORMAL=1; BENCH_PART=random or
+// BENCH_PART=poisson-lognormal runs one part alone, BENCH_PLN_LAMBDAS / BENCH_PLN_SIGMAS (comma lists) choose the
+// compounds, BENCH_ROWS=1 prints each compound's CPU times and bounds. Pure lib/cf.
 import { loadavg } from "node:os";
 import { compile } from "@/lib/cf/compile";
 import { clearDeadline, setDeadline } from "@/lib/cf/deadline";
@@ -17,6 +19,11 @@ const TRIPLE = [0.99, 0.995, 0.999];
 const count = Number(process.env.BENCH_MODELS ?? 40);
 const seed = Number(process.env.BENCH_SEED ?? 20261203);
 const deadlineMs = Number(process.env.BENCH_DEADLINE_MS ?? 60000);
+const part = process.env.BENCH_PART ?? "all";
+const list = (v: string | undefined, d: number[]) => (v ? v.split(",").map(Number) : d);
+const plnLambdas = list(process.env.BENCH_PLN_LAMBDAS, [0.1, 1, 10, 100, 1000]);
+const plnSigmas = list(process.env.BENCH_PLN_SIGMAS, [0.5, 1, 1.5]);
+const printRows = process.env.BENCH_ROWS === "1";
 
 function median(xs: number[]): number {
   const s = [...xs].sort((a, b) => a - b);
@@ -71,7 +78,7 @@ function report(label: string, target: number, rows: { ms: number; cpu: number; 
 
 // BENCH_WARM=n: first run n models of another seed (not timed), so that the timed set meets a process whose code paths
 // are compiled, as a server's is after its first requests; the per-law caches do not carry over (other parameters)
-const warm = Number(process.env.BENCH_WARM ?? 0);
+const warm = part === "poisson-lognormal" ? 0 : Number(process.env.BENCH_WARM ?? 0);
 {
   const rw = rng(seed + 1);
   for (let i = 0; i < warm; i++) {
@@ -85,7 +92,7 @@ const r = rng(seed);
 type Row = { ms: number; cpu: number; model: Model; error?: string };
 const qRows: Row[] = [];
 const dRows: Row[] = [];
-for (let i = 0; i < count; i++) {
+for (let i = 0; part !== "poisson-lognormal" && i < count; i++) {
   const model = randomModel(r, 8, true);
   const c = compile(model);
   const q = timed(() => quantiles(c, SEVEN, { expectedShortfall: true }));
@@ -93,21 +100,40 @@ for (let i = 0; i < count; i++) {
   const d = timed(() => density(c, { grid: { from: c.location - 4 * c.scale, to: c.location + 8 * c.scale, count: 1000 } }));
   dRows.push({ ms: d.ms, cpu: d.cpu, model, error: d.error });
 }
-console.log(`seed ${seed}, ${count} random models (sums, mixes, compounds, scales, shifts; up to 8 terms)${warm ? `, after ${warm} untimed models of seed ${seed + 1}` : ""}`);
-report("seven quantiles with ES", 200, qRows);
-report("1000-point density", 100, dRows);
+if (part !== "poisson-lognormal") {
+  console.log(`seed ${seed}, ${count} random models (sums, mixes, compounds, scales, shifts; up to 8 terms)${warm ? `, after ${warm} untimed models of seed ${seed + 1}` : ""}`);
+  report("seven quantiles with ES", 200, qRows);
+  report("1000-point density", 100, dRows);
+}
 
 const lnRows: Record<string, Row[]> = { grid: [], points: [], triple: [] };
 // BENCH_SKIP_LOGNORMAL=1 leaves out the Poisson-lognormal rows (when working on the general models only)
-for (const lambda of process.env.BENCH_SKIP_LOGNORMAL ? [] : [1, 10, 100, 1000]) {
-  for (const sigma of [0.5, 1, 1.5]) {
+for (const lambda of process.env.BENCH_SKIP_LOGNORMAL || part === "random" ? [] : plnLambdas) {
+  for (const sigma of plnSigmas) {
     const model = { compound: { count: { family: "poisson", lambda }, each: { family: "lognormal", mu: 0, sigma } } } as Model;
-    const c = compile(model);
-    const hi = quantiles(c, [0.9999]).x[0];
-    lnRows.grid.push({ model, ...timed(() => density(c, { grid: { from: 0, to: hi, count: 4096 }, tolerance: 1e-9, cdfOnly: true })) });
+    // a fresh compile for each timed call, as each API request compiles its model: nothing cached on the model by an
+    // earlier call is charged to a later one
+    const hi = quantiles(compile(model), [0.9999]).x[0];
+    const c1 = compile(model);
+    const g = timed(() => density(c1, { grid: { from: 0, to: hi, count: 4096 }, tolerance: 1e-9, cdfOnly: true }));
+    lnRows.grid.push({ model, ...g });
     const xs = Array.from({ length: 1000 }, (_, i) => (hi * (i + 0.5)) / 1000);
-    lnRows.points.push({ model, ...timed(() => density(c, { x: xs, tolerance: 1e-9 })) });
-    lnRows.triple.push({ model, ...timed(() => quantiles(c, TRIPLE, { expectedShortfall: true })) });
+    const c2 = compile(model);
+    const p = timed(() => density(c2, { x: xs, tolerance: 1e-9 }));
+    lnRows.points.push({ model, ...p });
+    const c3 = compile(model);
+    const t = timed(() => quantiles(c3, TRIPLE, { expectedShortfall: true }));
+    lnRows.triple.push({ model, ...t });
+    if (printRows) {
+      const gb = g.value ? g.value.diagnostics.error.cdf : NaN;
+      const pb = p.value ? p.value.diagnostics.error.cdf : NaN;
+      const tb = t.value ? Math.max(...t.value.diagnostics.quantileError) : NaN;
+      console.log(
+        `  lambda ${lambda} sigma ${sigma}: grid CPU ${g.cpu.toFixed(1)} ms (cdf bound ${gb.toExponential(2)}${g.error ? `, error: ${g.error}` : ""}), ` +
+          `points ${p.cpu.toFixed(1)} ms (cdf bound ${pb.toExponential(2)}${p.error ? `, error: ${p.error}` : ""}), ` +
+          `triple ${t.cpu.toFixed(1)} ms (quantile bound ${tb.toExponential(2)}${t.error ? `, error: ${t.error}` : ""})`,
+      );
+    }
   }
 }
 report("Poisson(lambda <= 1000)-lognormal cdf, 4096-point grid at 1e-9", 50, lnRows.grid);
