@@ -130,8 +130,14 @@ export function compoundNode(N: Node, X: Node, discretise: DiscretiseOptions | n
     const pAt = (n: number) => (t && t.step === 1 && t.origin <= n && n - t.origin < t.p.length ? t.p[n - t.origin] : 0);
     const p1 = pAt(1);
     const mean = N.cumulants(1)[0];
-    if (p1 > 0 && N.countCgf && mean !== null && Number.isFinite(mean)) {
-      const count = { cgf: N.countCgf, mean, absError: N.cfAbsError ?? 0, relError: N.cfRelError ?? 0 };
+    // P(N = 1) = (a + b) P(N = 0) for an (a, b, 0) count is below |a + b| 2^-1074 where P(N = 0) underflows to 0
+    // (Poisson(1000)): the route (for its per-node bounds from a steep count's slope) then takes the one-claim term
+    // as 0, with that as an absolute error
+    const pj = N.panjer;
+    const tiny = p1 === 0 && pj && pj.p0 === 0 ? Math.abs(pj.a + pj.b) * 1e-323 : null;
+    if ((p1 > 0 || tiny !== null) && N.countCgf && mean !== null && Number.isFinite(mean)) {
+      const absError = (N.cfAbsError ?? 0) + (tiny ?? 0);
+      const count = { cgf: N.countCgf, logPgf: N.countLogPgf, slopeNear: N.countSlopeNear, mean, absError, relError: N.cfRelError ?? 0 };
       node.dampedSeverity = { cf: node.dampedLogCf, kernel: { ...X.severityKernel(p1, pAt(2)), count } };
     }
   }

@@ -35,6 +35,10 @@ export interface Node {
   table?(maxLength: number): LatticeTable | null;
   /** for laws on 0,1,2,...: log E[e^{w N}] at complex w (Re w <= 0), into (re, im), continuous along the index */
   countCgf?(wr: Float64Array, wi: Float64Array, re: Float64Array, im: Float64Array): void;
+  /** the same at z = e^w given as zr + i zi (|z| <= 1): log P_N(z), where it has a form with no log or exp of z (Poisson) */
+  countLogPgf?(zr: Float64Array, zi: Float64Array, re: Float64Array, im: Float64Array): void;
+  /** a bound on |P_N'(z)| over the disc |z - z0| <= d (|z| <= 1) given |P_N(z0)|, where the count has one (Poisson) */
+  countSlopeNear?(absPgf: number, d: number): number;
   /** (a, b, 0) class membership: P(N=k) = (a + b/k) P(N=k-1), k >= 1 (Loss Models, (a, b, 0) class; recalled from memory) */
   panjer?: { a: number; b: number; p0: number; c1?: number };
   /** infinitely divisible (a, b, 0) counts: the (a, b, 0) law whose m-fold sum is this one, with its pgf */

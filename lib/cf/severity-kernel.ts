@@ -28,7 +28,22 @@ export interface SeverityKernel {
    * severity transform values as the one-claim term, so an error d in phi moves the remainder P_N(phi) - p_1 phi by at
    * most sup |P_N'(z) - p_1| d <= E N (|phi| + d) d (|z| <= 1), not by (E N + p_1) d
    */
-  count?: { cgf(wr: Float64Array, wi: Float64Array, re: Float64Array, im: Float64Array): void; mean: number; absError: number; relError: number };
+  count?: {
+    cgf(wr: Float64Array, wi: Float64Array, re: Float64Array, im: Float64Array): void;
+    /** log P_N(z) at z = zr + i zi, where the count has it without a log or exp of z */
+    logPgf?(zr: Float64Array, zi: Float64Array, re: Float64Array, im: Float64Array): void;
+    /** a bound on |P_N'(z)| over |z - z0| <= d given |P_N(z0)| (steep counts: far below E N where |P_N| is small) */
+    slopeNear?(absPgf: number, d: number): number;
+    mean: number;
+    absError: number;
+    relError: number;
+  };
+  /**
+   * the severity's damped transform itself, E[e^{(i t - beta) X}] as re + i im (not its log), where the family sums it
+   * directly: with a count's logPgf the compound's transform then needs no log and exp of it. Returns the bound on
+   * these values' absolute error (at most cfAbsError; smaller where the route taken rounds less)
+   */
+  dampedCf?(beta: number, t: Float64Array, re: Float64Array, im: Float64Array): number;
   /**
    * the two-claim term P(N = 2) times the law of X_1 + X_2 (transform phi^2), when the severity has a computable
    * one (values weighted by w, with their bounds); the inversion takes it out too where that saves more terms than
@@ -52,6 +67,7 @@ export function lognormalKernel(
   dampedLogCf: (beta: number, t: Float64Array, re: Float64Array, im: Float64Array) => void,
   cfAbsError: number,
   w2 = 0,
+  dampedCf?: (beta: number, t: Float64Array, re: Float64Array, im: Float64Array) => number,
 ): SeverityKernel {
   const m1 = Math.exp(mu + (sigma * sigma) / 2);
   const mode = Math.exp(mu - sigma * sigma);
@@ -59,6 +75,7 @@ export function lognormalKernel(
   return {
     w,
     dampedLogCf,
+    ...(dampedCf ? { dampedCf } : {}),
     name: "lognormal",
     // E X^n = exp(n mu + n^2 sigma^2 / 2) (JKB vol. 1, ch. 14)
     moments: [m1, Math.exp(2 * mu + 2 * sigma * sigma)],

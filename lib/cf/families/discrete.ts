@@ -213,6 +213,15 @@ export function poisson(lambda: number): Node {
         im[k] = lambda * e * Math.sin(wi[k]);
       }
     },
+    // log P_N(z) = lambda (z - 1)
+    countLogPgf(zr, zi, re, im) {
+      for (let k = 0; k < zr.length; k++) {
+        re[k] = lambda * (zr[k] - 1);
+        im[k] = lambda * zi[k];
+      }
+    },
+    // P_N'(z) = lambda P_N(z) and P_N(z) = P_N(z0) e^{lambda (z - z0)}, so |P_N'(z)| <= lambda |P_N(z0)| e^{lambda d}
+    countSlopeNear: (absPgf, d) => lambda * absPgf * Math.exp(lambda * d),
     panjer: { a: 0, b: lambda, p0: Math.exp(-lambda) },
     // |P'(z) / P(z)| = lambda on the unit disc (P(z) = e^{lambda (z - 1)})
     cgfSlope: lambda,

@@ -57,52 +57,75 @@ export function lognormal(mu: number, sigma: number): Node {
     out[1] = g * acc.im;
   };
   const single = fromPhiDamped(phiAt);
+  // the transform itself (rectangular) per frequency; negative t by conjugation
+  const tmp = new Float64Array(2);
+  const singleRect = (beta: number, t: Float64Array, re: Float64Array, im: Float64Array) => {
+    for (let k = 0; k < t.length; k++) {
+      if ((k & 15) === 0) checkDeadline("cf-quadrature");
+      phiAt(Math.abs(t[k]), beta, tmp);
+      re[k] = tmp[0];
+      im[k] = t[k] < 0 ? -tmp[1] : tmp[1];
+    }
+  };
   // equispaced t_k = t_0 + k d (the damped inversion's nodes): for a fixed path angle each quadrature term is a
-  // geometric sequence in k, advanced by one complex multiply and recomputed every 16 steps
-  const batch = (beta: number, t: Float64Array, re: Float64Array, im: Float64Array) => {
+  // geometric sequence in k: evaluated directly at the start of each block of B steps, and within the block as that
+  // value times the step's m-th power from a table computed directly per node (no recurrence, so no drift); the sums
+  // go to sr, si
+  const stRe = new Float64Array(BLOCK);
+  const stIm = new Float64Array(BLOCK);
+  const batchRect = (beta: number, t: Float64Array, sr: Float64Array, si: Float64Array) => {
     const K = t.length;
     const d = t[1] - t[0];
     let k1 = 0;
     while (k1 < K && Math.atan2(t[k1], beta) < 0.9 * theta) k1++;
-    if (k1 > 0) single(beta, t.subarray(0, k1), re.subarray(0, k1), im.subarray(0, k1));
-    if (k1 >= K) return;
+    if (k1 > 0) singleRect(beta, t.subarray(0, k1), sr.subarray(0, k1), si.subarray(0, k1));
+    if (k1 >= K) return k1;
     const th = Math.min(theta, Math.atan2(t[k1], beta));
     const cc = th / sigma;
     const g = Math.exp(0.5 * cc * cc);
     const sn = Math.sin(th);
     const cs = Math.cos(th);
-    const sr = new Float64Array(K);
-    const si = new Float64Array(K);
+    sr.fill(0, k1);
+    si.fill(0, k1);
     for (let j = 0; j < n; j++) {
       checkDeadline("cf-quadrature");
       const e = em * ev[j];
       const wj = w[j] * g;
-      const stepAmp = Math.exp(-e * d * sn);
-      const stepPh = e * d * cs;
-      const rr = stepAmp * Math.cos(stepPh);
-      const ri = stepAmp * Math.sin(stepPh);
+      const a = e * d * sn;
+      const b = e * d * cs;
+      // the block: B steps, fewer where the term falls below e^-45 sooner (the table is then shorter)
+      const reach = Math.ceil(((45 / e - beta * cs) / sn - t[k1]) / d) + 1;
+      const L = Math.max(1, Math.min(BLOCK, reach, K - k1));
+      for (let m = 0; m < L; m++) {
+        const am = Math.exp(-m * a);
+        stRe[m] = am * Math.cos(m * b);
+        stIm[m] = am * Math.sin(m * b);
+      }
       let k = k1;
       while (k < K) {
         const damp = e * (t[k] * sn + beta * cs);
         if (damp > 45) break;
         const amp = wj * Math.exp(-damp);
         const ph = e * (t[k] * cs - beta * sn) - cc * v[j];
-        let zr = amp * Math.cos(ph);
-        let zi = amp * Math.sin(ph);
-        const end = Math.min(K, k + 16);
-        for (; k < end; k++) {
-          sr[k] += zr;
-          si[k] += zi;
-          const nr = zr * rr - zi * ri;
-          zi = zr * ri + zi * rr;
-          zr = nr;
+        const zr = amp * Math.cos(ph);
+        const zi = amp * Math.sin(ph);
+        const end = Math.min(K, k + L);
+        for (let m = 0; k < end; k++, m++) {
+          sr[k] += zr * stRe[m] - zi * stIm[m];
+          si[k] += zr * stIm[m] + zi * stRe[m];
         }
       }
     }
-    for (let k = k1; k < K; k++) {
-      const s2 = sr[k] * sr[k] + si[k] * si[k];
-      re[k] = s2 > 1e-290 ? 0.5 * Math.log(s2) : Math.log(Math.hypot(sr[k], si[k]));
-      im[k] = Math.atan2(si[k], sr[k]);
+    return k1;
+  };
+  const batch = (beta: number, t: Float64Array, re: Float64Array, im: Float64Array) => {
+    const k1 = batchRect(beta, t, re, im);
+    for (let k = 0; k < t.length; k++) {
+      const sr = re[k];
+      const si = im[k];
+      const s2 = sr * sr + si * si;
+      re[k] = s2 > 1e-290 && k >= k1 ? 0.5 * Math.log(s2) : Math.log(Math.hypot(sr, si));
+      im[k] = Math.atan2(si, sr);
     }
   };
   // the same rule at beta = 0 for equispaced t (the inversion's nodes): term j is w_j g e^{-i c v_j} exp(t e_j i e^{i theta}),
@@ -126,10 +149,22 @@ export function lognormal(mu: number, sigma: number): Node {
   let wSum = 0;
   for (let j = 0; j < n; j++) wSum += w[j];
   const shortcutError = wSum * g0 * (2e-25 + 80 * Number.EPSILON) + n * 1e-21;
-  const cfError = 1e-16 + roundingBound(w, v, n, sigma, theta, c, shortcutError / g0) * g0;
+  const rb = roundingBound(w, v, n, sigma, theta, c, shortcutError / g0);
+  const cfError = 1e-16 + rb.all * g0;
+  // the per-frequency route alone (compensated sums, no recurrence): what a short run of frequencies is charged
+  const cfErrorSingle = 1e-16 + rb.single * g0;
   const s2 = sigma * sigma;
   const d = Math.expm1(s2);
   const damped = (beta: number, t: Float64Array, re: Float64Array, im: Float64Array) => (arithmetic(t) ? batch(beta, t, re, im) : single(beta, t, re, im));
+  // a short run of frequencies (a few hundred quadratures, about 1 ms) takes the per-frequency route and its smaller bound
+  const dampedRect = (beta: number, t: Float64Array, re: Float64Array, im: Float64Array) => {
+    if (t.length > SHORT_RUN && arithmetic(t)) {
+      batchRect(beta, t, re, im);
+      return cfError;
+    }
+    singleRect(beta, t, re, im);
+    return cfErrorSingle;
+  };
   return {
     kind: { type: "continuous" },
     momentIndex: Infinity,
@@ -141,7 +176,7 @@ export function lognormal(mu: number, sigma: number): Node {
     cfAbsError: cfError,
     dampedLogCf: damped,
     // compounds take the one-claim term out of their damped transform and add it back in closed form
-    severityKernel: (w: number, w2: number) => lognormalKernel(w, mu, sigma, damped, cfError, w2),
+    severityKernel: (w: number, w2: number) => lognormalKernel(w, mu, sigma, damped, cfError, w2, dampedRect),
     // the density vanishes at 0 faster than any power, so every term of the endpoint expansion is 0 (Watson's lemma):
     // a compound's transform is P(N = 0) plus o(s^-n), and sums holding it build their kernels from the other terms
     laplaceExpansion: { at: 0, exps: [], coefs: [] },
@@ -166,6 +201,10 @@ export function lognormal(mu: number, sigma: number): Node {
 }
 
 const U = Number.EPSILON / 2;
+/** steps of the damped batch between direct evaluations (within a block: the direct value times a tabled power) */
+const BLOCK = 256;
+/** runs of frequencies up to this length take the per-frequency route when their values' bound is returned */
+const SHORT_RUN = 512;
 
 /**
  * Rounding of the lognormal rule's sums, divided by e^{c^2/2}, over every route (per frequency, the damped batch, the
@@ -176,15 +215,18 @@ const U = Number.EPSILON / 2;
  *  - e_j within 2 (1 + sigma |v_j|) u, which D_j and P_j carry times (D_j + |p e_j|); on every path
  *    |p| <= d cot(theta) (the path angle is theta or leaves p = 0), and e^{-D} (D + |p| e_j) <= (1 + cot theta) / e;
  *  - c v_j: 2 c |v_j| u;
- *  - the damped batch's at most 15 steps of recurrence between exact terms: (sqrt 5 + 4) u each, and the step's own
- *    phase and decay 3 u d e_j (1 + cot(0.9 theta)) per step, whose sum over the steps is bounded by e^{-D} D as above;
+ *  - the damped batch's terms inside a block: the direct value times the tabled power e^{-m a} e^{i m b} (a = d e_j sin th,
+ *    b = d e_j cos th, th >= 0.9 theta): exp and cos/sin within 2u each and their product u (5u), the complex product
+ *    3u, and the arguments m a, m b within 3u of themselves (e_j's own error is in D_j, P_j above), that is 3u (m a +
+ *    m b) <= 3u D (1 + cot(0.9 theta)), bounded through the decay by e^{-D} D <= 1/e as above;
  *  - the compensated sum of n terms per frequency and in the equispaced sums: 2 sqrt 2 u + 8 n u^2 of the moduli
  *    (Higham, Accuracy and Stability of Numerical Algorithms, 2nd ed., sec. 4.3), with the equispaced sums' moments
  *    (SUM_MOMENT_UNITS, numeric-rule.ts); the damped batch's plain sum: sqrt 2 gamma_{n-1} (Higham sec. 4.2);
- *  - a value comes from one route, so the bound takes the largest route's part, not their sum.
+ *  - a value comes from one route, so the bound takes the largest route's part, not their sum; `single` is the
+ *    per-frequency route's alone (its compensated sum, no recurrence or shortcuts).
  * The weights sum these with the rule's own weights w_j (sum w_j v_j^2 ~ 1), not with the largest |v_j|.
  */
-function roundingBound(w: Float64Array, v: Float64Array, n: number, sigma: number, theta: number, c: number, shortcut: number): number {
+function roundingBound(w: Float64Array, v: Float64Array, n: number, sigma: number, theta: number, c: number, shortcut: number): { all: number; single: number } {
   const cot = 1 / Math.tan(theta);
   const cot9 = 1 / Math.tan(0.9 * theta);
   const kahan = 2 * Math.SQRT2 + 8 * n * U;
@@ -195,12 +237,12 @@ function roundingBound(w: Float64Array, v: Float64Array, n: number, sigma: numbe
     base += w[j] * (v[j] * v[j] + 8 + 2 * c * a + (2 * (1 + sigma * a) * (1 + cot)) / Math.E);
     wSum += w[j];
   }
-  // the routes are alternatives: per frequency (the sum alone), the damped batch (its recurrence and the sum), the
+  // the routes are alternatives: per frequency (the sum alone), the damped batch (its tabled powers and the sum), the
   // equispaced sums (their moments and the sum, and their shortcuts `shortcut`, already divided by e^{c^2/2})
   // the damped batch sums its nodes plainly (its inner loop is the hot one): gamma_{n-1} of each part's moduli
-  const damped = 15 * (Math.sqrt(5) + 4) + (3 * (1 + cot9)) / Math.E + (Math.SQRT2 * (n - 1)) / (1 - (n - 1) * U);
+  const damped = 8 + (3 * (1 + cot9)) / Math.E + (Math.SQRT2 * (n - 1)) / (1 - (n - 1) * U);
   const equispaced = kahan + SUM_MOMENT_UNITS;
-  return U * base + Math.max(U * wSum * damped, U * wSum * equispaced + shortcut);
+  return { all: U * base + Math.max(U * wSum * damped, U * wSum * equispaced + shortcut), single: U * base + U * wSum * kahan };
 }
 
 // Connected labelled graphs on n vertices counted by edges: C_n(d) = G_n(d) - sum_{k<n} C(n-1,k-1) C_k(d) G_{n-k}(d),

@@ -8,8 +8,9 @@ import { takenOutAt, twoProduct } from "./damped-eval";
 import { FFT_REL } from "./damped-transform";
 import type { Nodes } from "./nodes";
 
-/** interpolation stencil: M equispaced grid values around the point (M/2 on each side) */
-const M = 10;
+/** interpolation stencils: M equispaced grid values around the point (M/2 on each side); the plan takes the M that
+ * needs the smallest FFT (a wider stencil lets the grid step approach the sums' Nyquist step pi / t_max) */
+const STENCILS = [10, 16, 24, 32] as const;
 /** largest FFT the interpolation route takes (above it the pointwise sums are used) */
 const MAX_N = 1 << 22;
 
@@ -17,7 +18,7 @@ const MAX_N = 1 << 22;
  * max over u in [0, 1] of prod_{j = -M/2 + 1}^{M/2} |u - j| (the node polynomial of the stencil on a unit grid),
  * sampled finely and widened by 1% (it is smooth, with its maximum at u = 1/2 for this symmetric stencil)
  */
-const NODE_POLY = (() => {
+function nodePoly(M: number): number {
   let best = 0;
   for (let i = 0; i <= 1000; i++) {
     const u = i / 1000;
@@ -26,49 +27,84 @@ const NODE_POLY = (() => {
     best = Math.max(best, p);
   }
   return 1.01 * best;
-})();
-
-let FACT = 1;
-for (let j = 2; j <= M; j++) FACT *= j;
+}
+const NODE_POLY = STENCILS.map(nodePoly);
+const FACT = STENCILS.map((M) => {
+  let f = 1;
+  for (let j = 2; j <= M; j++) f *= j;
+  return f;
+});
 
 /**
- * The plan of the interpolation route for n points up to R: the grid step dx = T / N such that the Lagrange
- * remainder D_M dx^M NODE_POLY / M! stays below `target` (before undamping), where D_M = (h/pi) sum_k t_k^M |c_k|
- * bounds the M-th derivative of the truncated damped sum g(y) = (h/pi) sum_k Re(e^{-i t_k y} c_k) everywhere
- * (the remainder of Lagrange interpolation, e.g. Atkinson, An Introduction to Numerical Analysis, thm 3.2).
- * Null when the FFT would cost more than the n pointwise sums.
+ * The plan of the interpolation route for n points up to R: the stencil width M and the grid step dx = T / N such that
+ * the Lagrange remainder D_M dx^M NODE_POLY / M! stays below `target` (before undamping), where
+ * D_M = (h/pi) sum_k t_k^M |c_k| bounds the M-th derivative of the truncated damped sum
+ * g(y) = (h/pi) sum_k Re(e^{-i t_k y} c_k) everywhere (the remainder of Lagrange interpolation, e.g. Atkinson, An
+ * Introduction to Numerical Analysis, thm 3.2). D_M is carried as tau^M Ds_M with tau = t_{K-1} and
+ * Ds_M = (h/pi) sum_k (t_k / tau)^M |c_k| (no overflow for any M). Null when the FFT would cost more than the n
+ * pointwise sums.
  */
 export function pointsPlan(s: DampedSolution, n: number, target: number, wantPdf: boolean): PointsPlan | null {
-  let dC = 0;
-  let dP = 0;
+  const L = STENCILS.length;
+  const dC = new Float64Array(L);
+  const dP = new Float64Array(L);
   let dP1 = 0;
+  const tau = (s.K - 0.5) * s.h;
+  const pw = new Float64Array(L);
   for (let k = 0; k < s.K; k++) {
     const t = (k + 0.5) * s.h;
-    const tm = Math.pow(t, M);
-    dC += tm * Math.hypot(s.cRe[k], s.cIm[k]);
-    if (wantPdf) {
-      const a = Math.hypot(s.pRe[k], s.pIm[k]);
-      dP += tm * a;
-      dP1 += t * a;
+    const r = t / tau;
+    const r2 = r * r;
+    const r4 = r2 * r2;
+    const r8 = r4 * r4;
+    const r16 = r8 * r8;
+    pw[0] = r8 * r2;
+    pw[1] = r16;
+    pw[2] = r16 * r8;
+    pw[3] = r16 * r16;
+    const c = Math.hypot(s.cRe[k], s.cIm[k]);
+    const a = wantPdf ? Math.hypot(s.pRe[k], s.pIm[k]) : 0;
+    for (let m = 0; m < L; m++) {
+      dC[m] += pw[m] * c;
+      dP[m] += pw[m] * a;
+    }
+    dP1 += t * a;
+  }
+  const f = s.h / Math.PI;
+  dP1 *= f;
+  // cost in multiply-adds: the FFTs (5 N log2 N each), the node loads and the stencil weights (M^2 a point), against
+  // n K per pointwise sum; the stencil with the cheapest route wins
+  const passes = wantPdf ? 2 : 1;
+  let best: PointsPlan | null = null;
+  let bestCost = passes * n * s.K;
+  for (let m = 0; m < L; m++) {
+    const M = STENCILS[m];
+    // the powers and moduli were rounded (M + 8 eps) and their sums of K positive terms (K eps): widen by both
+    const widen = 1 + (M + 8 + s.K) * Number.EPSILON;
+    const D = Math.max(dC[m], dP[m]) * f * widen;
+    if (!(D > 0) || !(target > 0)) return null;
+    const dx = Math.pow((target * FACT[m]) / (NODE_POLY[m] * D), 1 / M) / tau;
+    const N = nextPowerOfTwo(Math.max(2 * M, Math.ceil(s.T / dx)));
+    if (N > MAX_N) continue;
+    const cost = passes * (5 * N * Math.log2(N) + s.K) + n * M * (M + passes);
+    if (cost < bestCost) {
+      bestCost = cost;
+      best = { N, M, nodePoly: NODE_POLY[m], fact: FACT[m], tau, dC: dC[m] * f * widen, dP: dP[m] * f * widen, dP1: dP1 * widen };
     }
   }
-  dC *= s.h / Math.PI;
-  dP *= s.h / Math.PI;
-  dP1 *= s.h / Math.PI;
-  const D = Math.max(dC, dP);
-  if (!(D > 0) || !(target > 0)) return null;
-  const dx = Math.pow((target * FACT) / (NODE_POLY * D), 1 / M);
-  const N = nextPowerOfTwo(Math.max(2 * M, Math.ceil(s.T / dx)));
-  if (N > MAX_N) return null;
-  // cost in multiply-adds: the FFTs (5 N log2 N each) and the node loads, against n K per pointwise sum
-  const passes = wantPdf ? 2 : 1;
-  if (passes * (5 * N * Math.log2(N) + s.K) + n * M * passes >= passes * n * s.K) return null;
-  return { N, dC, dP, dP1 };
+  return best;
 }
 
-/** the plan: FFT size, bounds on the M-th derivatives of the cdf and density sums, and on the density sum's first */
+/**
+ * the plan: FFT size, stencil width M (its node polynomial's maximum and M!), and bounds on the M-th derivatives of the
+ * cdf and density sums divided by tau^M, and on the density sum's first derivative
+ */
 export interface PointsPlan {
   N: number;
+  M: number;
+  nodePoly: number;
+  fact: number;
+  tau: number;
   dC: number;
   dP: number;
   dP1: number;
@@ -113,7 +149,7 @@ export function dampedPoints(
   wantPdf: boolean,
   plan: PointsPlan,
 ): { fc: Float64Array; Fc: Float64Array; errF: Float64Array; errf: Float64Array } {
-  const { N } = plan;
+  const { N, M } = plan;
   const dx = s.T / N;
   const mk = (re: Float64Array, im: Float64Array): Nodes => ({ h: s.h, K: s.K, re, im, wre: re, wim: im, absCdf: 0, absPdf: 0, mass: 0 });
   const gC = new Float64Array(N);
@@ -175,8 +211,9 @@ export function dampedPoints(
         aP += Math.abs(tq);
       }
     }
-    const interpC = (plan.dC * Math.pow(dx, M) * node) / FACT;
-    const interpP = (plan.dP * Math.pow(dx, M) * node) / FACT;
+    const step = Math.pow(dx * plan.tau, M) * (1 + 4 * M * Number.EPSILON);
+    const interpC = (plan.dC * step * node) / plan.fact;
+    const interpP = (plan.dP * step * node) / plan.fact;
     // the Lebesgue sum of the weights: how much the grid values' errors can grow through the interpolation
     let leb = 0;
     for (let a = 0; a < M; a++) leb += Math.abs(w[a]);

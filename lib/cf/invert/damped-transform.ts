@@ -2,7 +2,7 @@
 import type { Atom, CompiledModel } from "../types";
 import type { SeverityKernel } from "../severity-kernel";
 import { kernelsMass, subtractKernels } from "../damped-kernels";
-import { cutoffFor, envelopeOf, probeFrequencies, type Envelope } from "./nodes";
+import { cutoffFor, envelopeOf, probeFrequencies, truncationAt, type Envelope } from "./nodes";
 
 const EPS = Number.EPSILON;
 
@@ -32,9 +32,9 @@ export function exactStep(h: number): number {
  * already carries the propagated CF error.
  */
 export function sumAllowance(model: CompiledModel, K: number, pointwise: Exactness): number {
-  const cf = 2 * (model.cfRelError ?? 0);
+  const cf = model.dampedSeverity?.count && model.support[0] === 0 ? 0 : 2 * (model.cfRelError ?? 0);
   if (!pointwise) return 1e-14 + 8 * EPS * Math.sqrt(K) + cf;
-  return (pointwise === "interpolated" ? FFT_REL : SUM_REL) + (model.dampedSeverity?.count && model.support[0] === 0 ? 0 : cf);
+  return (pointwise === "interpolated" ? FFT_REL : SUM_REL) + cf;
 }
 
 /**
@@ -81,10 +81,10 @@ export interface DampedPlan {
  * node's absolute error from the CF values (the constant noiseOf, or per node where the one-claim term shares the
  * severity transform values with psi)
  */
-export function psiOf(model: CompiledModel, atoms: Atom[], beta: number, pairOut = false) {
+export function psiOf(model: CompiledModel, atoms: Atom[], beta: number, pairOut = false, planning = false) {
   const lo = model.support[0];
   const sev = model.dampedSeverity;
-  if (sev?.count && lo === 0) return severityPsi(sev, sev.count, atoms, beta, pairOut ? (sev.pair?.w ?? 0) : 0);
+  if (sev?.count && lo === 0) return severityPsi(sev, sev.count, atoms, beta, pairOut ? (sev.pair?.w ?? 0) : 0, planning);
   const base = noiseOf(model, atoms);
   return (t: Float64Array, re: Float64Array, im: Float64Array, noise?: Float64Array) => {
     model.dampedLogCf!(beta, t, re, im);
@@ -112,43 +112,79 @@ export function psiOf(model: CompiledModel, atoms: Atom[], beta: number, pairOut
  * psi_c = P_N(phi) - atoms - p_1 phi (- p_2 phi^2 with the two-claim term out) for a compound whose support starts at
  * 0, phi the severity's damped transform evaluated once for every term. Per-node error: rounding (16 eps per unit of
  * magnitude), the count's own CF error, and for an error d in phi sup |P_N'(z) - p_1 (- 2 p_2 z)| d <= E N |z|^j d,
- * |z| <= |phi| + d, j = 1 (2 with the two-claim term out: the sum then starts at n = 3), which falls with |phi|.
+ * |z| <= |phi| + d, j = 1 (2 with the two-claim term out: the sum then starts at n = 3), which falls with |phi|; or,
+ * for a count that bounds its slope near a point (Poisson: |P_N'(z)| = lambda |P_N(z)| <= lambda |P_N(phi)| e^{lambda d}),
+ * (that slope + p_1 + 2 p_2 |z|) d, which falls with |P_N(phi)| (Poisson(1000): far below E N d away from t = 0).
+ * Where the severity and the count give phi and log P_N(phi) rectangular (no log and exp of phi), they are taken so,
+ * and d is the bound the severity's route returns for these values.
  */
-function severityPsi(sev: SeverityKernel, count: NonNullable<SeverityKernel["count"]>, atoms: Atom[], beta: number, w2: number) {
+function severityPsi(sev: SeverityKernel, count: NonNullable<SeverityKernel["count"]>, atoms: Atom[], beta: number, w2: number, planning: boolean) {
   const pa = atoms.reduce((s, a) => s + a.p, 0);
-  const d = sev.cfAbsError;
+  // the severity's transform and the count's log-pgf taken rectangular where both have that form: no log and exp of phi
+  const rect = !!(sev.dampedCf && count.logPgf);
   return (t: Float64Array, re: Float64Array, im: Float64Array, noise?: Float64Array) => {
     const a = new Float64Array(t.length);
     const b = new Float64Array(t.length);
-    sev.dampedLogCf(beta, t, a, b);
-    count.cgf(a, b, re, im);
+    // d: the bound on the severity transform values' absolute error (the route's own where it returns one; a plan's
+    // probe, whose short run takes the per-frequency route, is charged the bound of every route the setup may take)
+    let d = sev.cfAbsError;
+    if (rect) {
+      const dr = sev.dampedCf!(beta, t, a, b);
+      if (!planning) d = Math.min(d, dr);
+      count.logPgf!(a, b, re, im);
+    } else {
+      sev.dampedLogCf(beta, t, a, b);
+      count.cgf(a, b, re, im);
+    }
     for (let k = 0; k < t.length; k++) {
-      const m = Math.exp(re[k]);
-      let r = m * Math.cos(im[k]);
-      let i = m * Math.sin(im[k]);
+      // the count's cumulant function at phi (re, im are overwritten with psi below)
+      const cr = re[k];
+      const ci = im[k];
+      const m = Math.exp(cr);
+      let r = m * Math.cos(ci);
+      let i = m * Math.sin(ci);
       for (const at of atoms) {
         const am = at.p * Math.exp(-beta * at.x);
         r -= am * Math.cos(t[k] * at.x);
         i -= am * Math.sin(t[k] * at.x);
       }
-      const ph = Math.exp(a[k]);
-      r -= sev.w * ph * Math.cos(b[k]);
-      i -= sev.w * ph * Math.sin(b[k]);
+      // phi = fr + i fi, |phi| = ph
+      let fr: number;
+      let fi: number;
+      let ph: number;
+      if (rect) {
+        fr = a[k];
+        fi = b[k];
+        const s2 = fr * fr + fi * fi;
+        ph = s2 > 1e-290 ? Math.sqrt(s2) * (1 + 2 * EPS) : Math.hypot(fr, fi) * (1 + 2 * EPS);
+      } else {
+        ph = Math.exp(a[k]);
+        fr = ph * Math.cos(b[k]);
+        fi = ph * Math.sin(b[k]);
+      }
+      r -= sev.w * fr;
+      i -= sev.w * fi;
       if (w2 > 0) {
-        r -= w2 * ph * ph * Math.cos(2 * b[k]);
-        i -= w2 * ph * ph * Math.sin(2 * b[k]);
+        r -= w2 * (fr * fr - fi * fi);
+        i -= w2 * 2 * fr * fi;
       }
       re[k] = r;
       im[k] = i;
       if (noise) {
         const z = ph + d;
-        // exp of the cumulant function: its rounding (a few eps of |re| + |im|) is relative to m
+        // an error d in phi moves P_N(phi) - p_1 phi (- p_2 phi^2) by at most E N |z|^j d (see above), or, where the
+        // count bounds its slope near phi (|P_N'| far below E N where |P_N| is small), by (slope + p_1 + 2 p_2 z) d;
+        // m is |P_N(phi)| within its exp's rounding
+        const viaMean = count.mean * (w2 > 0 ? z * z : z) * d;
+        // exp of the cumulant function: its rounding (a few eps of |cr| + |ci|, the rounding of cr and ci) is relative to m
+        const expRound = EPS * (4 + 2 * Math.abs(cr) + 2 * Math.abs(ci));
+        const viaSlope = count.slopeNear ? (count.slopeNear(m * (1 + expRound), d) + sev.w + 2 * w2 * z) * d : Infinity;
         noise[k] =
           16 * EPS * (1 + pa + sev.w + w2) +
-          EPS * (4 + 2 * Math.abs(re[k]) + 2 * Math.abs(im[k])) * m +
+          expRound * m +
           count.absError +
           2 * count.relError * (m + pa) +
-          count.mean * (w2 > 0 ? z * z : z) * d;
+          Math.min(viaMean, viaSlope);
       }
     }
   };
@@ -171,7 +207,7 @@ function probe(model: CompiledModel, atoms: Atom[], beta: number, pairOut: boole
   const pr = new Float64Array(tp.length);
   const pi = new Float64Array(tp.length);
   const nz = new Float64Array(tp.length);
-  psiOf(model, atoms, beta, pairOut)(tp, pr, pi, nz);
+  psiOf(model, atoms, beta, pairOut, true)(tp, pr, pi, nz);
   const mag = new Float64Array(tp.length);
   for (let i = 0; i < tp.length; i++) mag[i] = Math.hypot(pr[i], pi[i]);
   // values below the rounding of the atom subtraction and the CF's own error are not resolved (envelopeOf asks
@@ -188,6 +224,8 @@ const PAIR_COST = 60;
  * U trades the period (T = span A / U) against the frequency cut-off (the sums' target is tol / (8 e^U)) and the
  * rounding that e^U amplifies: the U in [2, 8] with the fewest terms whose rounding estimate stays below tol / 4.
  * With a two-claim term available, both plans are made and the cheaper for `points` evaluation points is kept.
+ * `periodOf` maps the period a plan needs to the one it will get (an FFT grid's N dx, N a power of 2), so the terms
+ * are counted over the period actually used.
  */
 export function dampedPlan(
   model: CompiledModel,
@@ -198,11 +236,12 @@ export function dampedPlan(
   points = 256,
   pointwise: Exactness = false,
   budget = Infinity,
+  periodOf: (T: number) => number = (T) => T,
 ): DampedPlan {
-  const plain = planFor(model, atoms, R, tol, wantPdf, false, pointwise, budget);
+  const plain = planFor(model, atoms, R, tol, wantPdf, false, pointwise, budget, periodOf);
   // the second plan only where it can pay: the plain plan's terms exceed what the term costs at the points
   const can = model.dampedSeverity?.count && model.dampedSeverity.pair && model.support[0] === 0 && plain.K > PAIR_COST * points;
-  const pair = can ? planFor(model, atoms, R, tol, wantPdf, true, pointwise, budget) : null;
+  const pair = can ? planFor(model, atoms, R, tol, wantPdf, true, pointwise, budget, periodOf) : null;
   if (!pair) return plain.plan;
   return pair.K + PAIR_COST * points < plain.K ? pair.plan : plain.plan;
 }
@@ -216,6 +255,7 @@ function planFor(
   pairOut: boolean,
   pointwise: Exactness,
   budget: number,
+  periodOf: (T: number) => number,
 ): { plan: DampedPlan; K: number } {
   const lo = model.support[0];
   const span = Math.max(R - lo, 1e-6 * Math.max(model.scale, Math.abs(lo), 1e-300));
@@ -245,7 +285,7 @@ function planFor(
     const target = tol / (8 * Math.exp(U));
     let tmax = cutoffFor(env0, wantPdf ? target : Infinity, target);
     if (!Number.isFinite(tmax)) tmax = env0.t[env0.t.length - 1];
-    const K = Math.max(16, (tmax * T) / (2 * Math.PI));
+    const K = Math.max(16, (tmax * periodOf(T)) / (2 * Math.PI));
     // scale of the cdf sum: (1/pi) int |psi_c| / |beta - i t| up to tmax
     // and of the CF values' own noise, the same integral of the per-node noise (the probe's, largest first)
     let S = (Mc * env0.t[0]) / (Math.PI * beta);
@@ -256,7 +296,10 @@ function planFor(
       Z += env0.noise[i] * w;
     }
     const round = Math.exp(U) * (sumAllowance(model, K, pointwise) * S + (pointwise ? Z : 0));
-    const bad = round / (tol / 4);
+    // a cut-off that cannot reach the truncation target (cutoffFor then returns its best) counts against the plan too
+    const tr = truncationAt(env0, tmax);
+    const reach = Math.max(tr.cdf / target, wantPdf ? tr.pdf / target : 0);
+    const bad = Math.max(round / (tol / 4), reach);
     // within the budget of terms first (a plan past it is refused by the setup): there the fewest terms whose rounding
     // is below tol / 4, else the smallest rounding (the bounds then state what is reached)
     const fits = K <= budget;
@@ -272,7 +315,7 @@ function planFor(
   let tmax = cutoffFor(env, wantPdf ? target : Infinity, target);
   if (!Number.isFinite(tmax)) tmax = env.t[env.t.length - 1];
   const T = periodFor(U);
-  return { plan: { beta, T, U, env, tmax, noise, pairOut, rounding: best.bad }, K: (tmax * T) / (2 * Math.PI) };
+  return { plan: { beta, T, U, env, tmax, noise, pairOut, rounding: best.bad }, K: (tmax * periodOf(T)) / (2 * Math.PI) };
 }
 
 /**

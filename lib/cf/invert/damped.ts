@@ -106,6 +106,8 @@ export interface DampedOptions {
    * lets the plan take a larger damping (fewer terms). Ignored when the period is fixed by a grid.
    */
   pointwise?: Exactness;
+  /** the integrated cdf's coefficients are wanted (expected shortfall); without them sumInt is Infinity (default true) */
+  wantInt?: boolean;
 }
 
 /** Whether the damped inversion applies: a compound-type law bounded below with its damped transform. */
@@ -148,8 +150,9 @@ export function dampedSetup(model: CompiledModel, atoms: Atom[], R: number, o: D
   psi(t, pRe, pIm, nz);
   const cRe = new Float64Array(K);
   const cIm = new Float64Array(K);
-  const iRe = new Float64Array(K);
-  const iIm = new Float64Array(K);
+  const wantInt = o.wantInt ?? true;
+  const iRe = new Float64Array(wantInt ? K : 0);
+  const iIm = new Float64Array(wantInt ? K : 0);
   let absP = 0;
   let absC = 0;
   let absI = 0;
@@ -163,8 +166,10 @@ export function dampedSetup(model: CompiledModel, atoms: Atom[], R: number, o: D
     const ui = t[k] / d;
     cRe[k] = pRe[k] * ur - pIm[k] * ui;
     cIm[k] = pRe[k] * ui + pIm[k] * ur;
-    iRe[k] = cRe[k] * ur - cIm[k] * ui;
-    iIm[k] = cRe[k] * ui + cIm[k] * ur;
+    if (wantInt) {
+      iRe[k] = cRe[k] * ur - cIm[k] * ui;
+      iIm[k] = cRe[k] * ui + cIm[k] * ur;
+    }
     // |psi_k| by the square root (a few ulps; the allowances carry far more), hypot only where the squares could underflow
     const s2 = pRe[k] * pRe[k] + pIm[k] * pIm[k];
     const a = s2 > 1e-290 ? Math.sqrt(s2) * (1 + 4 * EPS) : Math.hypot(pRe[k], pIm[k]);
@@ -180,7 +185,7 @@ export function dampedSetup(model: CompiledModel, atoms: Atom[], R: number, o: D
   const rel = sumAllowance(model, K, pointwise);
   const sumPdf = 2 * trunc.pdf + (h / Math.PI) * (rel * absP + nP);
   const sumCdf = 2 * trunc.cdf + (h / Math.PI) * (rel * absC + nC);
-  const sumInt = (2 * trunc.cdf) / (K * h) + (h / Math.PI) * (rel * absI + nI);
+  const sumInt = wantInt ? (2 * trunc.cdf) / (K * h) + (h / Math.PI) * (rel * absI + nI) : Infinity;
   const q = Math.exp(-beta * T);
   const geo = q / (1 - q);
   const mean = model.cumulants(1)[0];
@@ -209,7 +214,7 @@ export function dampedSetup(model: CompiledModel, atoms: Atom[], R: number, o: D
     `damped inversion (exponential damping beta = ${beta.toPrecision(4)} before the transform, Abate & Whitt 1992; ` +
       `Grubel & Hermesmeier 1999): period ${T.toPrecision(4)} from ${lo}, ${K} frequency terms, atoms separated exactly`,
   );
-  if (model.dampedSeverity)
+  if (model.dampedSeverity && model.dampedSeverity.w > 0)
     notes.push(
       `the one-claim term (P(N = 1) = ${model.dampedSeverity.w.toPrecision(4)} times the ${model.dampedSeverity.name} severity) taken out of ` +
         `the transform before the inversion and added back in closed form, so the remainder decays like the severity's transform squared`,
