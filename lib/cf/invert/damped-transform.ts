@@ -225,7 +225,8 @@ const PAIR_COST = 60;
  * rounding that e^U amplifies: the U in [2, 8] with the fewest terms whose rounding estimate stays below tol / 4.
  * With a two-claim term available, both plans are made and the cheaper for `points` evaluation points is kept.
  * `periodOf` maps the period a plan needs to the one it will get (an FFT grid's N dx, N a power of 2), so the terms
- * are counted over the period actually used.
+ * are counted over the period actually used. `pdfReach`: the density is answered at the tolerance (density(), not a
+ * quantile's bracket), so a cut-off whose density truncation cannot reach its target counts against the plan.
  */
 export function dampedPlan(
   model: CompiledModel,
@@ -237,11 +238,12 @@ export function dampedPlan(
   pointwise: Exactness = false,
   budget = Infinity,
   periodOf: (T: number) => number = (T) => T,
+  pdfReach = wantPdf,
 ): DampedPlan {
-  const plain = planFor(model, atoms, R, tol, wantPdf, false, pointwise, budget, periodOf);
+  const plain = planFor(model, atoms, R, tol, wantPdf, false, pointwise, budget, periodOf, pdfReach);
   // the second plan only where it can pay: the plain plan's terms exceed what the term costs at the points
   const can = model.dampedSeverity?.count && model.dampedSeverity.pair && model.support[0] === 0 && plain.K > PAIR_COST * points;
-  const pair = can ? planFor(model, atoms, R, tol, wantPdf, true, pointwise, budget, periodOf) : null;
+  const pair = can ? planFor(model, atoms, R, tol, wantPdf, true, pointwise, budget, periodOf, pdfReach) : null;
   if (!pair) return plain.plan;
   return pair.K + PAIR_COST * points < plain.K ? pair.plan : plain.plan;
 }
@@ -256,6 +258,7 @@ function planFor(
   pointwise: Exactness,
   budget: number,
   periodOf: (T: number) => number,
+  pdfReach: boolean,
 ): { plan: DampedPlan; K: number } {
   const lo = model.support[0];
   const span = Math.max(R - lo, 1e-6 * Math.max(model.scale, Math.abs(lo), 1e-300));
@@ -298,7 +301,7 @@ function planFor(
     const round = Math.exp(U) * (sumAllowance(model, K, pointwise) * S + (pointwise ? Z : 0));
     // a cut-off that cannot reach the truncation target (cutoffFor then returns its best) counts against the plan too
     const tr = truncationAt(env0, tmax);
-    const reach = Math.max(tr.cdf / target, wantPdf ? tr.pdf / target : 0);
+    const reach = Math.max(tr.cdf / target, pdfReach ? tr.pdf / target : 0);
     const bad = Math.max(round / (tol / 4), reach);
     // within the budget of terms first (a plan past it is refused by the setup): there the fewest terms whose rounding
     // is below tol / 4, else the smallest rounding (the bounds then state what is reached)
