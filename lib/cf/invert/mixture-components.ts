@@ -113,6 +113,28 @@ function dampedComponent(w: number, m: CompiledModel, R0: number, tol: number, t
 }
 
 /**
+ * Values from an inversion window [a, b]: inside(x) within it, outside it the monotone bounds F(x) <= F(a) (left) and
+ * S(x) <= S(b) (right) answered as the midpoint of [0, bound], exact beyond the support.
+ */
+function windowed(inside: (x: number) => Value, a: number, b: number, [slo, shi]: readonly [number, number]): (x: number) => Value {
+  return (x) => {
+    if (x < slo) return { F: 0, S: 1, f: 0, eF: 0, eS: 0 };
+    if (x > shi) return { F: 1, S: 0, f: 0, eF: 0, eS: 0 };
+    if (x < a) {
+      const r = inside(a);
+      const fa = Math.max(r.F, 0) + r.eF;
+      return { F: fa / 2, S: 1 - fa / 2, f: 0, eF: fa / 2, eS: fa / 2 };
+    }
+    if (x > b) {
+      const r = inside(b);
+      const sb = Math.max(r.S, 0) + r.eS;
+      return { F: 1 - sb / 2, S: sb / 2, f: 0, eF: sb / 2, eS: sb / 2 };
+    }
+    return inside(x);
+  };
+}
+
+/**
  * A light-tailed component by the mid-point Gil-Pelaez sums (./continuous, with its endpoint kernels): values on the
  * inversion window [a, b]; outside it the monotone bounds F(x) <= F(a) and S(x) <= S(b).
  */
@@ -135,22 +157,7 @@ function lightComponent(w: number, m: CompiledModel, tolIn: number): Component |
   const { a, b } = sol.window;
   const values = solutionAt(sol, atoms, wc);
   const inside = (x: number): Value => ({ ...values(x), eF: e, eS: e });
-  const [slo, shi] = m.support;
-  const at = (x: number): Value => {
-    if (x < slo) return { F: 0, S: 1, f: 0, eF: 0, eS: 0 };
-    if (x > shi) return { F: 1, S: 0, f: 0, eF: 0, eS: 0 };
-    if (x < a) {
-      const r = inside(a);
-      const fa = Math.max(r.F, 0) + r.eF;
-      return { F: fa / 2, S: 1 - fa / 2, f: 0, eF: fa / 2, eS: fa / 2 };
-    }
-    if (x > b) {
-      const r = inside(b);
-      const sb = Math.max(r.S, 0) + r.eS;
-      return { F: 1 - sb / 2, S: sb / 2, f: 0, eF: sb / 2, eS: sb / 2 };
-    }
-    return inside(x);
-  };
+  const at = windowed(inside, a, b, m.support);
   const mean = m.momentIndex > 1 ? m.cumulants(1)[0] : null;
   const tails = stopLossBounds(m);
   return {
@@ -212,22 +219,7 @@ function heavyComponent(w: number, m: CompiledModel, tol: number, tail: number):
     const e = 2 * wc * r.errCdf + 4 * Number.EPSILON;
     return { F: mass.below + wc * r.cdf, S: mass.above + wc * r.sf, f: wc * r.pdf, eF: e, eS: e };
   };
-  const [slo, shi] = m.support;
-  const at = (x: number): Value => {
-    if (x < slo) return { F: 0, S: 1, f: 0, eF: 0, eS: 0 };
-    if (x > shi) return { F: 1, S: 0, f: 0, eF: 0, eS: 0 };
-    if (x < a) {
-      const r = inside(a);
-      const fa = Math.max(r.F, 0) + r.eF;
-      return { F: fa / 2, S: 1 - fa / 2, f: 0, eF: fa / 2, eS: fa / 2 };
-    }
-    if (x > b) {
-      const r = inside(b);
-      const sb = Math.max(r.S, 0) + r.eS;
-      return { F: 1 - sb / 2, S: sb / 2, f: 0, eF: sb / 2, eS: sb / 2 };
-    }
-    return inside(x);
-  };
+  const at = windowed(inside, a, b, m.support);
   const mean = m.momentIndex > 1 ? m.cumulants(1)[0] : null;
   let excessAt: ((q: number, target: number) => { value: number; error: number }) | null = null;
   return {
