@@ -12,19 +12,18 @@
 import { add, div, exact, exp, expm1, log, mul, neg, pow, powInt, sub, type Est } from "../moment-error";
 import { normalCdf, normalPdf, type DirectLaw } from "./dist";
 import { gammaPdf, incGamma } from "../invert/incgamma";
-import betainc from "@stdlib/math-base-special-betainc";
 
 /** E[min((X - d)_+, l)^k] with its bound, for k >= 1 and real d (l may be Infinity when E X^k is finite) */
 export type LayerMoment = (k: number, d: number, l: number) => Est;
 
 /** a law's partial moments E[X^j; a < X <= b] (b may be Infinity) and survival function P(X > b), as estimates */
-interface Partial {
+export interface Partial {
   lo: number;
   partial(j: number, a: number, b: number): Est;
   sf(b: number): Est;
 }
 
-const INF_E: Est = { v: NaN, e: Infinity };
+export const INF_E: Est = { v: NaN, e: Infinity };
 
 /** Phi(z) for an estimated z: the stated accuracy times the value plus max phi over [z - e, z + e] times e */
 function phiE(z: Est, acc: number): Est {
@@ -117,20 +116,22 @@ export function weibullPartial(k: number, lambda: number, acc: number, rawE: (m:
 
 /**
  * pareto(alpha, xm), a >= xm: M_j(a, b) = alpha xm^j (a/xm)^{j-alpha} (1 - (b/a)^{j-alpha}) / (alpha - j), the bracket as
- * -expm1((j - alpha) ln(b/a)) so that b near a keeps its digits; alpha xm^alpha ln(b/a) at j = alpha (Loss Models app. A.2.3.1)
+ * -expm1((j - alpha) ln(b/a)) so that b near a keeps its digits; alpha xm^alpha ln(b/a) at j = alpha (Loss Models app. A.2.3.1).
+ * alpha may be a rounded quantity (1 / xi) given as an estimate: the formula's arithmetic carries its bound.
  */
-export function paretoPartial(alpha: number, xm: number): Partial {
+export function paretoPartial(alpha: number | Est, xm: number): Partial {
+  const al = typeof alpha === "number" ? exact(alpha) : alpha;
   return {
     lo: xm,
     partial(j, a, b) {
-      const ja = sub(exact(j), exact(alpha));
-      const scale = mul(exact(alpha), powInt(exact(xm), j));
+      const ja = sub(exact(j), al);
+      const scale = mul(al, powInt(exact(xm), j));
       if (ja.v === 0 && ja.e === 0) return b === Infinity ? INF_E : mul(scale, log(div(exact(b), exact(a))));
       const head = exp(mul(ja, log(div(exact(a), exact(xm)))));
       const bracket = b === Infinity ? (ja.v < 0 ? exact(1) : INF_E) : neg(expm1(mul(ja, log(div(exact(b), exact(a))))));
       return div(mul(mul(scale, head), bracket), neg(ja));
     },
-    sf: (b) => (b === Infinity ? exact(0) : b <= xm ? exact(1) : exp(mul(exact(-alpha), log(div(exact(b), exact(xm)))))),
+    sf: (b) => (b === Infinity ? exact(0) : b <= xm ? exact(1) : exp(mul(neg(al), log(div(exact(b), exact(xm)))))),
   };
 }
 
@@ -168,15 +169,24 @@ export function layerMomentFrom(p: Partial): LayerMoment {
 /**
  * lomax(alpha, theta): X + theta is pareto(alpha, xm = theta), so its layer (d, l) is the pareto's layer (d + theta, l);
  * where d + theta rounds, the moment moves by at most k l^{k-1} |delta d| (its derivative in d is
- * -k E[Z^{k-1}; d < P < d + l], of size at most k l^{k-1})
+ * -k E[Z^{k-1}; d < P < d + l], of size at most k l^{k-1}; for an unlimited layer, k times the layer moment of order
+ * k - 1 at the interval's lower end)
  */
-export function lomaxLayerMoment(alpha: number, theta: number): LayerMoment {
+export function lomaxLayerMoment(alpha: number | Est, theta: number): LayerMoment {
   const pareto = layerMomentFrom(paretoPartial(alpha, theta));
   return (k, d, l) => {
     const dp = add(exact(d), exact(theta));
     const r = pareto(k, dp.v, l);
     if (dp.e === 0) return r;
-    return { v: r.v, e: r.e + k * l ** (k - 1) * dp.e * (1 + 2 ** -40) };
+    // unlimited: the derivative -k E[(P - d)_+^{k-1}] is largest in size at the interval's lower end (as in the affine map)
+    let slope: number;
+    if (l < Infinity) slope = k * l ** (k - 1);
+    else if (k === 1) slope = 1;
+    else {
+      const low = pareto(k - 1, dp.v - dp.e * (1 + 2 ** -40), Infinity);
+      slope = k * (low.v + low.e);
+    }
+    return { v: r.v, e: r.e + slope * dp.e * (1 + 2 ** -40) };
   };
 }
 
@@ -295,9 +305,11 @@ export function uniformLayerMoment(a: number, b: number): LayerMoment {
  * by at most k l'^{k-1} per unit of either (its derivatives are -k E[Z^{k-1}; d' < X < d' + l'] in d' and
  * k l'^{k-1} P(X > d' + l') in l'); for an unlimited layer the d'-derivative -k E[(X - d')_+^{k-1}] is largest in size
  * at the interval's lower end, where X's own layer moment of order k - 1 bounds it (P(X > d') <= 1 at k = 1).
+ * A factor s that is itself a rounded quantity (sigma / xi, b - a) comes as an estimate: d', l' and s^k carry its bound.
  */
-export function affineLayerMoment(inner: LayerMoment, s: number, b: number): LayerMoment {
-  const se = exact(s);
+export function affineLayerMoment(inner: LayerMoment, s: number | Est, b: number): LayerMoment {
+  const se = typeof s === "number" ? exact(s) : s;
+  if (!(se.v - se.e > 0)) return () => INF_E;
   return (k, d, l) => {
     const dp = div(sub(exact(d), exact(b)), se);
     const lp = l === Infinity ? exact(Infinity) : div(exact(l), se);
@@ -313,41 +325,4 @@ export function affineLayerMoment(inner: LayerMoment, s: number, b: number): Lay
     const moved = dp.e + lp.e === 0 ? r : { v: r.v, e: r.e + slope * (dp.e + lp.e) * (1 + 2 ** -40) };
     return mul(powInt(se, k), moved);
   };
-}
-
-/**
- * beta(alpha, beta) on [0, 1]: M_j(a, b) = prod_{i<j} (alpha + i)/(alpha + beta + i) [I_b(alpha + j, beta) - I_a(alpha + j,
- * beta)] (B(alpha + j, beta)/B(alpha, beta) as the product; Loss Models app. A.6.1.1, generalized beta with tau = 1).
- * The arguments reach I as exact doubles (layerMomentFrom accounts for the rounding of d + l), so I carries only its
- * stated accuracy acc (the beta law's cdf accuracy, relative); where alpha + j rounds, no bound is given.
- */
-export function betaPartial(alpha: number, beta: number, acc: number): Partial {
-  const I = (x: number, p: number, upper: boolean): Est => {
-    if (x <= 0) return exact(upper ? 1 : 0);
-    if (x >= 1) return exact(upper ? 0 : 1);
-    const v = betainc(x, p, beta, true, upper);
-    return { v, e: acc * v };
-  };
-  return {
-    lo: 0,
-    partial(j, a, b) {
-      const p = add(exact(alpha), exact(j));
-      if (p.e > 0) return INF_E;
-      const ab = add(exact(alpha), exact(beta));
-      let pre = exact(1);
-      for (let i = 0; i < j; i++) pre = mul(pre, div(add(exact(alpha), exact(i)), add(ab, exact(i))));
-      // above the mean of Beta(alpha + j, beta) the upper tails' difference keeps its digits
-      const upper = a > p.v / (p.v + beta);
-      const diff = upper ? sub(I(a, p.v, true), I(b, p.v, true)) : sub(I(b, p.v, false), I(a, p.v, false));
-      return mul(pre, diff);
-    },
-    sf: (b) => I(b, alpha, true),
-  };
-}
-
-/** beta(alpha, beta) on [lo, hi]: lo + (hi - lo) V, V on [0, 1]; only where hi - lo is an exact double */
-export function betaLayerMoment(alpha: number, beta: number, lo: number, hi: number, acc: number): LayerMoment | null {
-  const w = sub(exact(hi), exact(lo));
-  if (w.e > 0 || !(w.v > 0)) return null;
-  return affineLayerMoment(layerMomentFrom(betaPartial(alpha, beta, acc)), w.v, lo);
 }

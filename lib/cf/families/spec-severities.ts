@@ -3,7 +3,7 @@ import { gammaLaw } from "./continuous";
 import { burr, inverseGamma, inverseGaussian, lomax } from "./severities";
 import { betaLaw, triangular } from "./bounded";
 import { truncatedNormal } from "./truncated";
-import { betaDist, gammaDist, normalDist } from "./dist";
+import { betaDist, gammaDist, normalDist, type DirectLaw } from "./dist";
 import type { FamilyName, FamilySpec } from "./spec-types";
 import { real, pos, withDist, shiftBuilt } from "./spec-types";
 import * as DS from "../direct/severities";
@@ -11,7 +11,8 @@ import * as DB from "../direct/bounded";
 import { withCumulantErrors } from "../cumulant-bounds";
 import * as CE from "./cumulant-errors";
 import { add, div, estList, exact, mul, rawToCumulantsE, sub } from "../moment-error";
-import { betaLayerMoment, lomaxLayerMoment, withLayerMoment } from "./layer-moments";
+import { affineLayerMoment, lomaxLayerMoment, withLayerMoment } from "./layer-moments";
+import { betaLayerMoment, generalizedParetoLayerMoment, triangularLayerMoment } from "./layer-moments-shapes";
 
 export const SEVERITY_SPECS: Pick<Record<FamilyName, FamilySpec>, "lomax" | "generalized_pareto" | "burr" | "loglogistic" | "inverse_gaussian" | "inverse_gamma" | "beta" | "pert" | "triangular" | "truncated_normal"> = {
   lomax: {
@@ -52,10 +53,16 @@ export const SEVERITY_SPECS: Pick<Record<FamilyName, FamilySpec>, "lomax" | "gen
       const { xi, sigma, mu } = p;
       // the derived parameters are rounded: their bounds go into the cumulants' bounds
       const q = (u: number, v: number) => div(exact(u), exact(v));
-      if (xi > 0) return shiftBuilt(withCumulantErrors(lomax(1 / xi, sigma / xi), (m) => rawToCumulantsE(estList(m, 1 / xi, CE.lomaxRawE(q(1, xi), q(sigma, xi))))), mu);
-      if (xi === 0) return shiftBuilt(withCumulantErrors(withDist(gammaLaw(1, 1 / sigma), gammaDist(1, 1 / sigma)), CE.gammaE_(1, q(1, sigma))), mu);
+      // layer moments in the law's own parameters (the derived 1/xi and sigma/xi carry their rounding bounds)
+      const layered = <D extends DirectLaw>(d: D, b: number): D => withLayerMoment(d, affineLayerMoment(generalizedParetoLayerMoment(xi, sigma, d.accuracy), 1, b)) as D;
+      if (xi > 0) {
+        const n = lomax(1 / xi, sigma / xi);
+        if (n.dist) n.dist = layered(n.dist, 0);
+        return shiftBuilt(withCumulantErrors(n, (m) => rawToCumulantsE(estList(m, 1 / xi, CE.lomaxRawE(q(1, xi), q(sigma, xi))))), mu);
+      }
+      if (xi === 0) return shiftBuilt(withCumulantErrors(withDist(gammaLaw(1, 1 / sigma), layered(gammaDist(1, 1 / sigma), 0)), CE.gammaE_(1, q(1, sigma))), mu);
       return withCumulantErrors(
-        withDist(betaLaw(1, -1 / xi, mu, mu - sigma / xi, "generalized_pareto"), betaDist(1, -1 / xi, mu, mu - sigma / xi)),
+        withDist(betaLaw(1, -1 / xi, mu, mu - sigma / xi, "generalized_pareto"), layered(betaDist(1, -1 / xi, mu, mu - sigma / xi), mu)),
         CE.betaE(1, q(-1, xi), mu, sub(exact(mu), q(sigma, xi))),
       );
     },
@@ -165,7 +172,9 @@ export const SEVERITY_SPECS: Pick<Record<FamilyName, FamilySpec>, "lomax" | "gen
       const lam = exact(p.lambda);
       const alE = add(exact(1), div(mul(lam, sub(exact(p.m), exact(p.a))), width));
       const beE = add(exact(1), div(mul(lam, sub(exact(p.b), exact(p.m))), width));
-      return withCumulantErrors(withDist(betaLaw(al, be, p.a, p.b, "pert"), betaDist(al, be, p.a, p.b)), CE.betaE(alE, beE, p.a, p.b));
+      const d = betaDist(al, be, p.a, p.b);
+      const lm = betaLayerMoment(alE, beE, p.a, p.b, d.accuracy);
+      return withCumulantErrors(withDist(betaLaw(al, be, p.a, p.b, "pert"), lm ? withLayerMoment(d, lm) : d), CE.betaE(alE, beE, p.a, p.b));
     },
   },
   triangular: {
@@ -183,7 +192,12 @@ export const SEVERITY_SPECS: Pick<Record<FamilyName, FamilySpec>, "lomax" | "gen
       !(p.b > p.a) ? { param: "b", detail: `triangular.b (${p.b}) must be greater than triangular.a (${p.a}).` } : p.c < p.a || p.c > p.b ? { param: "c", detail: `triangular.c (${p.c}) must lie in [a, b] = [${p.a}, ${p.b}].` } : null,
     direct: (p) => DB.triangularDirect(p.a as number, p.c as number, p.b as number),
     layerable: true,
-    build: (p) => withCumulantErrors(triangular(p.a, p.c, p.b), CE.triangularE(p.a, p.c, p.b)),
+    build: (p) => {
+      const n = triangular(p.a, p.c, p.b);
+      const lm = triangularLayerMoment(p.a, p.c, p.b);
+      if (n.dist && lm) n.dist = withLayerMoment(n.dist, lm);
+      return withCumulantErrors(n, CE.triangularE(p.a, p.c, p.b));
+    },
   },
   truncated_normal: {
     name: "truncated_normal",
