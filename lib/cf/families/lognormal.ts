@@ -248,6 +248,7 @@ function roundingBound(w: Float64Array, v: Float64Array, n: number, sigma: numbe
 // Connected labelled graphs on n vertices counted by edges: C_n(d) = G_n(d) - sum_{k<n} C(n-1,k-1) C_k(d) G_{n-k}(d),
 // G_n(d) = (1+d)^{C(n,2)} (Harary & Palmer, Graphical Enumeration, ch. 1, recalled from memory).
 const connected: bigint[][] = [];
+const graphs: bigint[][] = [];
 function binomBig(n: number, k: number): bigint {
   let c = 1n;
   for (let j = 1; j <= k; j++) c = (c * BigInt(n - k + j)) / BigInt(j);
@@ -258,9 +259,16 @@ function polyMul(a: bigint[], b: bigint[]): bigint[] {
   for (let i = 0; i < a.length; i++) for (let j = 0; j < b.length; j++) out[i + j] += a[i] * b[j];
   return out;
 }
+/** the row C(e, 0..e), e = C(n, 2), by C(e, k + 1) = C(e, k) (e - k) / (k + 1) (exact: each step is a whole binomial), kept */
 function allGraphs(n: number): bigint[] {
+  let row = graphs[n];
+  if (row) return row;
   const e = (n * (n - 1)) / 2;
-  return Array.from({ length: e + 1 }, (_, k) => binomBig(e, k));
+  row = new Array<bigint>(e + 1);
+  row[0] = 1n;
+  for (let k = 0; k < e; k++) row[k + 1] = (row[k] * BigInt(e - k)) / BigInt(k + 1);
+  graphs[n] = row;
+  return row;
 }
 export function connectedPoly(n: number): bigint[] {
   for (let m = connected.length + 1; m <= n; m++) {
