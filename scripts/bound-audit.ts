@@ -339,6 +339,21 @@ function stable() {
   }
 }
 
+/** stable-sums.json: sums of stable terms of one alpha (mpmath: product-CF inversion vs the folded law, two methods) */
+function stableSums() {
+  const set = "stable-sums";
+  const f = read<{ cases: { model: Model; points: { x: number; pdf: string; cdf: string; sf: string; rel_diff: number | null }[]; levels: { p: number; x: string; x_check: number }[] }[] }>(
+    "stable-sums/stable-sums.json",
+  );
+  for (const k of f.cases) {
+    const c = compiled(set, k.model);
+    if (!c) continue;
+    const rel = k.points.map((p) => Math.max(p.rel_diff ?? 1e-21, 1e-21));
+    points(set, k.model, c, k.points.map((p) => ({ x: p.x, pdf: num(p.pdf), cdf: num(p.cdf), sf: num(p.sf) })), (v, i) => rel[i] * Math.abs(v));
+    levels(set, k.model, c, k.levels.map((l) => ({ p: l.p, q: num(l.x), qErr: Math.abs(l.x_check) + 1e-21 * Math.abs(num(l.x)) })));
+  }
+}
+
 function layered() {
   const set = "reference-layered";
   const f = read<{ exponential: { model: Model; mean: number; var: { p: number; value: number }[]; es: { p: number; value: number }[]; exceedance: { x: number; value: number }[] }[] }>("reference-layered/layered.json");
@@ -410,6 +425,7 @@ const SETS: [string, () => void][] = [
   ["cf-sums", () => sums("sums/cf-sums.json", "cf-sums", false)],
   ["lattice-sums", latticeSums],
   ["stable", stable],
+  ["stable-sums", stableSums],
   ["reference-layered", layered],
   ["reference-risk", risk],
   ["layer-moments", layerMoments],

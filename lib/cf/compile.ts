@@ -14,6 +14,7 @@ import type { DiscretiseOptions } from "./discretise";
 import { compoundNode, latticeNode, mixNode, repeatNode, sampleNode, scaleNode, shiftNode, sumNode } from "./operators";
 import { cumulantEst, withCumulantErrors } from "./cumulant-bounds";
 import { latticeE, sampleE } from "./cumulant-ops";
+import { foldStableSum } from "./stable-fold";
 
 /** Options of compile(). */
 export interface CompileOptions {
@@ -58,6 +59,9 @@ export function buildNode(m: Model, opts: CompileOptions = {}): Node {
     if (cs.length > 1) {
       node.logMajorant = sumMajorant(cs);
       node.logCfErr = sumErr(cs.map((c) => c.logCfErr));
+      // stable terms of one alpha: pdf, cdf and quantiles from the one stable law they add up to
+      const folded = foldStableSum(m.sum);
+      if (folded) node.direct = folded;
     }
     return node;
   }
