@@ -1,5 +1,6 @@
 import { stableSide, type StableSide } from "./stable-kernel";
 import type { StableIntegrals } from "./stable-integral";
+import { sinRange, stablePanels, type Box, type PanelSide } from "./stable-panels";
 
 const HALF_PI = Math.PI / 2;
 
@@ -134,6 +135,70 @@ function sideFor(beta: number): StableSide {
   return s;
 }
 
+
+/**
+ * Bounds on log V over a rectangle [x1, x2] x [-Y, Y] of u (alpha = 1, u from the low end when from = 0, the high end
+ * when from = 1): log V = log(2/pi) + log P - log sin u + s P cot(u) / beta, with P = pi/2 (1 - beta) + beta u, s = -1
+ * (low end) or P = pi/2 (1 + beta) - beta u, s = 1 (high end). For u = x + iy with x in (0, pi):
+ *   |P| in [Re P, |P|], |arg P| <= atan(beta Y / Re P);  |sin u|^2 = sin^2 x + sinh^2 y,  |arg sin u| = atan(|cot x| tanh |y|);
+ *   cot u = (sin 2x - i sinh 2y) / (cosh 2y - cos 2x) (Abramowitz & Stegun 4.3.58), cosh 2y - cos 2x = 2 (sin^2 x + sinh^2 y),
+ *   and P cot u by the product of ranges.
+ */
+function oneBox(beta: number): PanelSide["box"] {
+  const lg = Math.log(2 / Math.PI);
+  return (from, x1, x2, Y, out: Box) => {
+    if (!(x1 > 0 && x2 < Math.PI && Y > 0)) return false;
+    const sg = from === 0 ? -1 : 1;
+    const P0 = from === 0 ? HALF_PI * (1 - beta) : HALF_PI * (1 + beta);
+    const pa = P0 - sg * beta * x1;
+    const pb = P0 - sg * beta * x2;
+    const prLo = Math.min(pa, pb);
+    const prHi = Math.max(pa, pb);
+    if (!(prLo > 0)) return false;
+    const pi = beta * Y;
+    const [sLo, sHi] = sinRange(x1, x2);
+    if (!(sLo > 0)) return false;
+    const sh = Math.sinh(Y);
+    const cotMax = Math.max(Math.abs(1 / Math.tan(x1)), Math.abs(1 / Math.tan(x2)));
+    // cosh 2y - cos 2x = 2 (sin^2 x + sinh^2 y), without the cancellation of 1 - cos 2x at small x
+    const denLo = 2 * sLo * sLo;
+    const denHi = 2 * (sHi * sHi + sh * sh);
+    if (!(denLo > 0)) return false;
+    const [nLo, nHi] = sinRange(2 * x1, 2 * x2);
+    const crLo = nLo / (nLo >= 0 ? denHi : denLo);
+    const crHi = nHi / (nHi >= 0 ? denLo : denHi);
+    const ciMax = Math.sinh(2 * Y) / denLo;
+    const prods = [prLo * crLo, prLo * crHi, prHi * crLo, prHi * crHi];
+    const cross = pi * ciMax;
+    const reTLo = (Math.min(...prods) - cross) / beta;
+    const reTHi = (Math.max(...prods) + cross) / beta;
+    const imT = (prHi * ciMax + pi * Math.max(Math.abs(crLo), Math.abs(crHi))) / beta;
+    const lpLo = Math.log(prLo);
+    const lpHi = 0.5 * Math.log(prHi * prHi + pi * pi);
+    const lsLo = Math.log(sLo);
+    const lsHi = 0.5 * Math.log(sHi * sHi + sh * sh);
+    const lo = lg + lpLo - lsHi + (sg > 0 ? reTLo : -reTHi);
+    const hi = lg + lpHi - lsLo + (sg > 0 ? reTHi : -reTLo);
+    // the bounds' own rounding: a few eps of the magnitudes summed
+    const r = 16 * Number.EPSILON * (Math.abs(lg) + Math.abs(lpLo) + Math.abs(lpHi) + Math.abs(lsLo) + Math.abs(lsHi) + Math.abs(reTLo) + Math.abs(reTHi));
+    out.rLo = lo - r;
+    out.rHi = hi + r;
+    out.iMax = (Math.atan(pi / prLo) + Math.atan(cotMax * Math.tanh(Y)) + imT) * (1 + 16 * Number.EPSILON);
+    return true;
+  };
+}
+
+const panelSides = new Map<number, PanelSide>();
+function panelSideFor(beta: number): PanelSide {
+  let p = panelSides.get(beta);
+  if (!p) {
+    if (panelSides.size > 64) panelSides.clear();
+    p = { side: sideFor(beta), box: oneBox(beta) };
+    panelSides.set(beta, p);
+  }
+  return p;
+}
+
 interface Solved {
   /** distance to the end on the kernel's side */
   u: number;
@@ -250,4 +315,10 @@ interface Acc {
   ep: number;
   fromHigh: boolean;
   fromLow: boolean;
+}
+
+/** I0, I1, Ip of the alpha = 1 side with beta in (0, 1] at log h = lhAbs by Gauss-Legendre panels in theta with derived bounds (./stable-panels.ts). */
+export function stableOnePanels(beta: number, lhAbs: number, rel = 1e-11): StableIntegrals | null {
+  if (!(beta > 0 && beta <= 1)) return null;
+  return stablePanels(panelSideFor(beta), lhAbs, rel);
 }
