@@ -144,7 +144,7 @@ function sideFor(beta: number): StableSide {
  *   cot u = (sin 2x - i sinh 2y) / (cosh 2y - cos 2x) (Abramowitz & Stegun 4.3.58), cosh 2y - cos 2x = 2 (sin^2 x + sinh^2 y),
  *   and P cot u by the product of ranges.
  */
-function oneBox(beta: number): PanelSide["box"] {
+export function oneBox(beta: number): PanelSide["box"] {
   const lg = Math.log(2 / Math.PI);
   return (from, x1, x2, Y, out: Box) => {
     if (!(x1 > 0 && x2 < Math.PI && Y > 0)) return false;
