@@ -2,7 +2,7 @@
 // forms, and the rectangle bounds on log V (alpha = 1) against log V evaluated at complex points from its closed form
 // (Nolan 1997, Theorem 1: V(theta) = (2/pi) ((pi/2 + beta theta) / cos theta) exp((pi/2 + beta theta) tan(theta) / beta)).
 import { describe, expect, it } from "vitest";
-import { gaussLegendre } from "@/lib/cf/direct/stable-panels";
+import { gaussLegendre } from "@/lib/cf/direct/stable-panel-store";
 import { oneBox } from "@/lib/cf/direct/stable-far";
 import { close } from "./model-assert";
 

@@ -1,6 +1,7 @@
 import { stableSide, type StableSide } from "./stable-kernel";
 import type { StableIntegrals } from "./stable-integral";
-import { sinRange, stablePanels, type Box, type PanelSide } from "./stable-panels";
+import { stablePanels } from "./stable-panels";
+import { sinRange, type Box, type PanelSide } from "./stable-panel-store";
 
 const HALF_PI = Math.PI / 2;
 

@@ -27,6 +27,42 @@ export interface StableSide {
   wMid: number;
   /** log V and d log V / du at distance u from the low end (from = 0) or the high end (from = 1) */
   logV(from: 0 | 1, u: number, out: { lv: number; d: number; mag: number }): void;
+  /**
+   * bounds on Re log V (not less wRef) and |Im log V| over the rectangle [x1, x2] x [-Y, Y] of complex u (alpha != 1,
+   * see factorBox); false when the rectangle reaches a zero of a factor
+   */
+  box?(from: 0 | 1, x1: number, x2: number, Y: number, out: { rLo: number; rHi: number; iMax: number }): boolean;
+}
+
+/**
+ * Bounds on log sin(p + q u) over u in [x1, x2] x [-Y, Y] (q real), added times coef to acc = [Re low, Re high, |Im|]:
+ * with phi = p + q x in (0, pi) and eta = q y, |sin(phi + i eta)|^2 = sin^2 phi + sinh^2 eta and
+ * arg sin(phi + i eta) = atan(cot(phi) tanh(eta)) (Abramowitz & Stegun 4.3.55); |cot| is largest at an end of the
+ * phi interval. False when sin(phi) reaches 0 (a zero of the factor on the real segment).
+ */
+function factorBox(p: number, q: number, x1: number, x2: number, Y: number, coef: number, acc: number[]): boolean {
+  const a = Math.min(p + q * x1, p + q * x2);
+  const b = Math.max(p + q * x1, p + q * x2);
+  if (!(a > 0 && b < Math.PI)) return false;
+  const sa = Math.sin(a);
+  const sb = Math.sin(b);
+  const sLo = Math.min(sa, sb);
+  const sHi = a < HALF_PI && b > HALF_PI ? 1 : Math.max(sa, sb);
+  const H = Math.abs(q) * Y;
+  const sh = Math.sinh(H);
+  const lo = Math.log(sLo);
+  const hi = 0.5 * Math.log(sHi * sHi + sh * sh);
+  const cot = Math.max(Math.abs(Math.cos(a) / sa), Math.abs(Math.cos(b) / sb));
+  if (coef >= 0) {
+    acc[0] += coef * lo;
+    acc[1] += coef * hi;
+  } else {
+    acc[0] += coef * hi;
+    acc[1] += coef * lo;
+  }
+  acc[2] += Math.abs(coef) * Math.atan(cot * Math.tanh(H));
+  acc[3] += Math.abs(coef) * (Math.abs(lo) + Math.abs(hi));
+  return true;
 }
 
 const HALF_PI = Math.PI / 2;
@@ -117,6 +153,50 @@ export function stableSide(alpha: number, beta: number): StableSide {
   };
   const am = Math.abs(am1);
   const wRef = bounded ? wLowEnd : 0;
+  const acc = [0, 0, 0, 0];
+  // log V = K + e1 log(cos theta) - ea log(sin(alpha (theta0 + theta))) + log(cos(alpha theta0 + (alpha - 1) theta)), each
+  // factor sin(p + q u) from the end as in raw() below
+  const box = (from: 0 | 1, x1: number, x2: number, Y: number, out: { rLo: number; rHi: number; iMax: number }): boolean => {
+    // at a finite end log V - w_end = e1 ls(u) - ea ls(alpha u) + ls(|alpha - 1| u), ls(z) = log(sin z / z)
+    // = sum_k log(1 - z^2 / (k pi)^2) (A&S 4.3.89), so |ls(z)| <= log(r / sin r) for |z| <= r < pi; where this applies
+    // the bounds below are intersected with it (both hold)
+    let B = Infinity;
+    if (from === 0 && bounded) {
+      const r = Math.hypot(Math.max(-x1, x2), Y);
+      B = 0;
+      for (const [coef, q] of [[e1, 1], [ea, alpha], [1, am]]) {
+        const rq = q * r;
+        B = rq < 3 ? B + Math.abs(coef) * -logSinc(rq) : Infinity;
+      }
+      B = B * (1 + 1e-12) + 4 * Number.EPSILON * Math.abs(wLowEnd);
+    }
+    if (x1 <= 0) {
+      if (!(B < Infinity)) return false;
+      out.rLo = wLowEnd - B;
+      out.rHi = wLowEnd + B;
+      out.iMax = B;
+      return true;
+    }
+    const left = from === 0 ? lowIsLeft : !lowIsLeft;
+    acc[0] = acc[1] = K;
+    acc[2] = 0;
+    acc[3] = Math.abs(K);
+    const ok = left
+      ? factorBox(a, 1, x1, x2, Y, e1, acc) && factorBox(0, alpha, x1, x2, Y, -ea, acc) && factorBox(a, -am1, x1, x2, Y, 1, acc)
+      : factorBox(0, 1, x1, x2, Y, e1, acc) && factorBox(c, alpha, x1, x2, Y, -ea, acc) && factorBox(c, am1, x1, x2, Y, 1, acc);
+    if (!ok) return false;
+    // the bounds' own rounding: a few eps of the magnitudes summed
+    const r = 16 * Number.EPSILON * acc[3];
+    out.rLo = acc[0] - r;
+    out.rHi = acc[1] + r;
+    out.iMax = acc[2] * (1 + 16 * Number.EPSILON);
+    if (B < Infinity) {
+      out.rLo = Math.max(out.rLo, wLowEnd - B);
+      out.rHi = Math.min(out.rHi, wLowEnd + B);
+      out.iMax = Math.min(out.iMax, B);
+    }
+    return true;
+  };
   const side: StableSide = {
     alpha,
     beta,
@@ -124,6 +204,7 @@ export function stableSide(alpha: number, beta: number): StableSide {
     wLowEnd,
     wRef,
     wMid: 0,
+    box,
     logV(from, u, out) {
       if (from === 0 && bounded) {
         // at a finite end the factors of V vanish together; log V - w_end = e1 ls(u) - ea ls(alpha u) + ls(|alpha-1| u)

@@ -1,5 +1,5 @@
 import type { StableIntegrals } from "./stable-integral";
-import type { StableSide } from "./stable-kernel";
+import { AF, NODES, R_COARSE, R_FAR, THM, V1, gaussLegendre, type Panel, PanelStore, type PanelSide } from "./stable-panel-store";
 
 /**
  * The integrals of the stable representation in theta itself (./stable-integral.ts):
@@ -18,192 +18,11 @@ import type { StableSide } from "./stable-kernel";
  * Distances from either end are kept as such (u from the nearer end), so the tails keep their relative precision.
  */
 
-/** Bounds on log V (not less wRef) over a rectangle [x1, x2] x [-Y, Y] of u, the distance from one end. */
-export interface Box {
-  rLo: number;
-  rHi: number;
-  iMax: number;
-}
-
-export interface PanelSide {
-  side: StableSide;
-  /**
-   * bounds on Re log V and |Im log V| over the rectangle, u measured from the end `from` (0 low, 1 high); false when
-   * the rectangle leaves the region where the bounds hold (then the panel is split)
-   */
-  box(from: 0 | 1, x1: number, x2: number, Y: number, out: Box): boolean;
-}
-
-const RHO = 3;
-const NODES = 16;
-/** the window's high end in v: beyond it K(v) < 1e-27 and exp(-e^v) < 1e-28 */
-const V1 = 4.2;
-const BF = (RHO - 1 / RHO) / 2;
-const AF = (RHO + 1 / RHO) / 2;
-const THM = (64 / 15) * Math.pow(RHO, -2 * NODES) / (RHO * RHO - 1);
-
-let gl: { x: Float64Array; w: Float64Array } | null = null;
-/** Gauss-Legendre nodes and weights on [-1, 1] (Newton on the three-term recurrence of P_n; A&S 25.4.29). */
-export function gaussLegendre(): { x: Float64Array; w: Float64Array } {
-  if (gl) return gl;
-  const n = NODES;
-  const x = new Float64Array(n);
-  const w = new Float64Array(n);
-  for (let i = 0; i < n; i++) {
-    let z = Math.cos((Math.PI * (i + 0.75)) / (n + 0.5));
-    let dp = 0;
-    for (let it = 0; it < 100; it++) {
-      let p0 = 1;
-      let p1 = z;
-      for (let k = 2; k <= n; k++) {
-        const p2 = ((2 * k - 1) * z * p1 - (k - 1) * p0) / k;
-        p0 = p1;
-        p1 = p2;
-      }
-      dp = (n * (z * p1 - p0)) / (z * z - 1);
-      const dz = p1 / dp;
-      z -= dz;
-      if (Math.abs(dz) < 1e-16) break;
-    }
-    x[i] = z;
-    w[i] = 2 / ((1 - z * z) * dp * dp);
-  }
-  gl = { x, w };
-  return gl;
-}
-
 /** sup over R in [lo, hi] of exp(R - e^R c) (the bound of |K| for cos(Im v) >= c) */
 function supK(lo: number, hi: number, c: number): number {
   if (c <= 0) return Math.exp(hi - Math.exp(hi) * c);
   const r = Math.min(Math.max(-Math.log(c), lo), hi);
   return Math.exp(r - Math.exp(r) * c);
-}
-
-/** panels stored per end at most (far out at alpha = 1 the window moves by |log h| units of v, a few per panel) */
-const CAP = 4096;
-/**
- * |Im log V| allowed over a panel's rectangle: coarse panels serve where Re v <= -2.5 over the rectangle (there
- * |K| <= e^R exp(e^R) whatever Im v), fine ones (a coarse panel cut into equal parts) elsewhere, where |K| and
- * |exp(-e^v)| stay within 1/cos(1.2) = 2.8 of their size on the real line
- */
-const IMAX_COARSE = 6;
-const IMAX_FINE = 1.2;
-const R_COARSE = -2.5;
-
-/** One panel [lo, lo + 2 hl] of u: its rectangle's bounds on log V and its nodes. */
-interface Panel {
-  lo: number;
-  hl: number;
-  rLo: number;
-  rHi: number;
-  iMax: number;
-  /** per node: u, log V - wRef, |d log V / du|, the magnitude of log V's parts */
-  u: Float64Array;
-  lv: Float64Array;
-  d: Float64Array;
-  mag: Float64Array;
-}
-
-function makePanel(ps: PanelSide, from: 0 | 1, lo: number, hl: number, bx: Box): Panel {
-  const { x: gx } = gaussLegendre();
-  const o = { lv: 0, d: 0, mag: 0 };
-  const p: Panel = { lo, hl, rLo: bx.rLo, rHi: bx.rHi, iMax: bx.iMax, u: new Float64Array(NODES), lv: new Float64Array(NODES), d: new Float64Array(NODES), mag: new Float64Array(NODES) };
-  const m = lo + hl;
-  for (let i = 0; i < NODES; i++) {
-    const u = m + hl * gx[i];
-    ps.side.logV(from, u, o);
-    p.u[i] = u;
-    p.lv[i] = o.lv;
-    p.d[i] = Math.abs(o.d);
-    p.mag[i] = o.mag;
-  }
-  return p;
-}
-
-/**
- * The panels of one end, from the middle (u = L/2) towards the end (u -> 0), with log V at their upper ends; they do
- * not depend on log h (|Im v| = |Im log V|), so every point reuses them.
- */
-class PanelStore {
-  n = 0;
-  panels: Panel[] = [];
-  fine: (Panel[] | null | undefined)[] = [];
-  /** log V - wRef and its magnitude (rounding) at each panel's upper end */
-  lvHi: number[] = [];
-  magHi: number[] = [];
-  full = false;
-  private guess = Infinity;
-  private o = { lv: 0, d: 0, mag: 0 };
-  private bx: Box = { rLo: 0, rHi: 0, iMax: 0 };
-  constructor(
-    readonly ps: PanelSide,
-    readonly from: 0 | 1,
-  ) {}
-  /** one more panel below the last; false at the cap or when none can be placed */
-  extend(): boolean {
-    if (this.full) return false;
-    if (this.n >= CAP) {
-      this.full = true;
-      return false;
-    }
-    const side = this.ps.side;
-    const o = this.o;
-    const hi = this.n ? this.panels[this.n - 1].lo : side.L / 2;
-    side.logV(this.from, hi, o);
-    const lvHi = o.lv;
-    const magHi = o.mag;
-    // |Im log V| is about |d| Y over the rectangle; the rectangle stays clear of u = 0
-    let hl = Math.min(IMAX_COARSE / (Math.abs(o.d) * BF), (0.9 * hi) / (1 + AF), 2 * this.guess);
-    let ok = false;
-    for (let k = 0; k < 80 && hl > 1e-300; k++) {
-      const m = hi - hl;
-      if (this.ps.box(this.from, m - AF * hl, m + AF * hl, BF * hl, this.bx) && this.bx.iMax <= IMAX_COARSE) {
-        ok = true;
-        break;
-      }
-      hl *= 0.5;
-    }
-    if (!ok || !(hi - 2 * hl > 0)) {
-      this.full = true;
-      return false;
-    }
-    this.guess = hl;
-    this.panels.push(makePanel(this.ps, this.from, hi - 2 * hl, hl, this.bx));
-    this.fine.push(undefined);
-    this.lvHi.push(lvHi);
-    this.magHi.push(magHi);
-    this.n++;
-    return true;
-  }
-  /** panel k cut into equal parts whose rectangles keep |Im log V| <= IMAX_FINE; null when none is found */
-  fineOf(k: number): Panel[] | null {
-    const f = this.fine[k];
-    if (f !== undefined) return f;
-    const p = this.panels[k];
-    let parts: Panel[] | null = null;
-    for (let S = Math.max(2, Math.ceil(p.iMax / IMAX_FINE)); S <= 256 && !parts; S *= 2) {
-      const hl = p.hl / S;
-      const out: Panel[] = [];
-      for (let j = 0; j < S; j++) {
-        const lo = p.lo + 2 * hl * j;
-        const m = lo + hl;
-        if (!(this.ps.box(this.from, m - AF * hl, m + AF * hl, BF * hl, this.bx) && this.bx.iMax <= IMAX_FINE)) break;
-        out.push(makePanel(this.ps, this.from, lo, hl, this.bx));
-      }
-      if (out.length === S) parts = out;
-    }
-    this.fine[k] = parts;
-    return parts;
-  }
-  /** log V - wRef at u = lo of panel k (the upper end of panel k + 1), extending by one panel when needed */
-  lvLo(k: number): [number, number] {
-    if (k + 1 >= this.n && !this.extend()) {
-      const o = this.o;
-      this.ps.side.logV(this.from, this.panels[k].lo, o);
-      return [o.lv, o.mag];
-    }
-    return [this.lvHi[k + 1], this.magHi[k + 1]];
-  }
 }
 
 interface Sums {
@@ -264,7 +83,23 @@ function panel(p: Panel, lhAbs: number, lh: number, acc: Sums): void {
 /** panel k of st at log h: as it is where Re v <= R_COARSE over its rectangle, else its fine parts; false if none */
 function panelOrParts(st: PanelStore, k: number, lhAbs: number, lh: number, acc: Sums): boolean {
   const p = st.panels[k];
-  if (lhAbs + p.rHi <= R_COARSE) {
+  const vMax = lhAbs + p.rHi;
+  if (vMax <= R_FAR) {
+    // far left: e^v - e^2v <= K(v) <= e^v, e^v - e^2v / 2 <= 1 - exp(-e^v) <= e^v, so the panel's stored rule of V gives
+    // all three (I0 as the panel's length less I1's part), off by the rule's bound and e^2v
+    const s = Math.exp(vMax);
+    const b = s * p.J;
+    const e = s * p.eJ + s * b;
+    acc.i1 += b;
+    acc.ip += b;
+    acc.i0 += 2 * p.hl - b;
+    acc.e0 += e + 2 * Number.EPSILON * p.hl;
+    acc.e1 += e;
+    acc.ep += e;
+    acc.nodes += 1;
+    return true;
+  }
+  if (vMax <= R_COARSE) {
     panel(p, lhAbs, lh, acc);
     return true;
   }
@@ -282,6 +117,7 @@ function half(st: PanelStore, lhAbs: number, V0: number, acc: Sums): boolean {
   const side = st.ps.side;
   const lh = lhAbs + side.wRef;
   const L2 = side.L / 2;
+  const bounded = st.from === 0 && Number.isFinite(side.wLowEnd);
   if (st.n === 0 && !st.extend()) return false;
   // v at u (as evaluated) rounded down (lower) or up
   const vDown = (lv: number, mag: number) => lh + lv - 8 * Number.EPSILON * (mag + Math.abs(lh) + Math.abs(lv));
@@ -337,14 +173,25 @@ function half(st: PanelStore, lhAbs: number, V0: number, acc: Sums): boolean {
         return true;
       }
     } else {
+      // [0, lo]: v between v at the end (lh where log V has a finite end, else -inf) and vb; each integrand is monotone
+      // or unimodal in v there, so it lies between its values at the two, and [0, lo] takes the middle of that range
       const vb = vUp(e[0], e[1]);
-      const b = lo * Math.exp(vb);
-      if (vb <= V0 || (b <= 1e-17 * acc.ip && b <= 1e-17 * acc.i1)) {
-        // [0, lo]: v <= vb
-        acc.i0 += lo;
-        acc.e0 += b;
-        acc.e1 += b;
-        acc.ep += b;
+      const vm = bounded ? lh - 8 * Number.EPSILON * Math.abs(lh) : -Infinity;
+      const f0m = Math.exp(-Math.exp(vm));
+      // exp(-e^vm) - exp(-e^vb) without cancellation
+      const w = 0.5 * lo * f0m * -Math.expm1(-(Math.exp(vb) - Math.exp(vm)));
+      const kb = kernelAt(vb);
+      const km = bounded ? kernelAt(vm) : 0;
+      const kHi = vm <= 0 && vb >= 0 ? 1 / Math.E : Math.max(kb, km);
+      const wp = 0.5 * lo * (kHi - Math.min(kb, km));
+      if (vb <= V0 || (w <= 1e-17 * acc.i0 && w <= 1e-17 * acc.i1 && wp <= 1e-17 * acc.ip)) {
+        const r = 4 * Number.EPSILON * lo;
+        acc.i0 += lo * f0m - w;
+        acc.i1 += lo * -Math.expm1(-Math.exp(vm)) + w;
+        acc.ip += 0.5 * lo * (kHi + Math.min(kb, km));
+        acc.e0 += w + r;
+        acc.e1 += w + r;
+        acc.ep += wp + r;
         return true;
       }
     }
@@ -382,17 +229,4 @@ export function stablePanels(ps: PanelSide, lhAbs: number, rel: number): StableI
   };
   if (!(res.e0 <= rel * res.I0 && res.e1 <= rel * res.I1 && res.ep <= rel * res.Ip)) return null;
   return res;
-}
-
-/** min and max of sin over [a, b] */
-export function sinRange(a: number, b: number): [number, number] {
-  let lo = Math.min(Math.sin(a), Math.sin(b));
-  let hi = Math.max(Math.sin(a), Math.sin(b));
-  // critical points pi/2 + k pi inside
-  const k0 = Math.ceil((a - Math.PI / 2) / Math.PI);
-  for (let k = k0; Math.PI / 2 + k * Math.PI <= b; k++) {
-    if (k % 2 === 0) hi = 1;
-    else lo = -1;
-  }
-  return [lo, hi];
 }

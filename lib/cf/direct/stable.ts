@@ -1,7 +1,9 @@
 import { stableIntegrals } from "./stable-integral";
 import { FAR_W, stableOneFar, stableOnePanels } from "./stable-far";
 import { stableNearOne } from "./stable-near-one";
-import { tanHalfPi } from "./stable-kernel";
+import { stableSide, tanHalfPi } from "./stable-kernel";
+import { stablePanels } from "./stable-panels";
+import type { PanelSide } from "./stable-panel-store";
 import { stableTailSeries, stableTailStopLoss } from "./stable-series";
 import type { DirectLaw, DirectPoint } from "./types";
 import { lgamma, lgammaErr } from "../families/special";
@@ -125,6 +127,21 @@ function atZeta(alpha: number, beta: number, out: DirectPoint) {
   out.sfErr = (dTh + 4 * u * (HALF_PI + Math.abs(th0))) / Math.PI + 2 * u * out.sf;
 }
 
+/** |alpha - 1| from which the panels serve alpha != 1 */
+const PANELS_MIN_DIST = 0.1;
+const panelSides = new Map<string, PanelSide>();
+function panelSideOf(alpha: number, beta: number): PanelSide {
+  const key = `${alpha}:${beta}`;
+  let p = panelSides.get(key);
+  if (!p) {
+    if (panelSides.size > 64) panelSides.clear();
+    const side = stableSide(alpha, beta);
+    p = { side, box: side.box! };
+    panelSides.set(key, p);
+  }
+  return p;
+}
+
 function sideAt(alpha: number, beta: number, z: number, out: DirectPoint) {
   const th0 = theta0Of(alpha, beta);
   const c1 = (HALF_PI - th0) / Math.PI;
@@ -139,9 +156,12 @@ function sideAt(alpha: number, beta: number, z: number, out: DirectPoint) {
     return;
   }
   const lh = (alpha / (alpha - 1)) * Math.log(z);
-  // alpha next to 1: a Gauss rule in log V where it converges (./stable-near-one.ts), else the grid
-  const near = stableNearOne(alpha, beta, lh);
-  const r = near ?? stableIntegrals(alpha, beta, lh);
+  // Gauss-Legendre panels in theta with derived bounds (./stable-panels.ts) for alpha away from 1; next to 1 (where the
+  // factors of V cancel and their separate bounds are far too wide), or where the panels' bound is above 1e-11 of a
+  // value, a Gauss rule in log V (./stable-near-one.ts) or the grid, both with estimated errors
+  const panels = Math.abs(alpha - 1) >= PANELS_MIN_DIST ? stablePanels(panelSideOf(alpha, beta), lh, 1e-11) : null;
+  const near = panels ? null : stableNearOne(alpha, beta, lh);
+  const r = panels ?? near ?? stableIntegrals(alpha, beta, lh);
   const pref = alpha / (Math.PI * Math.abs(alpha - 1) * z);
   out.pdf = pref * r.Ip;
   out.pdfErr = pref * r.ep + 4 * Number.EPSILON * out.pdf;
