@@ -1,9 +1,12 @@
 // The pieces of the derived quadrature bound of lib/cf/direct/stable-panels.ts: the Gauss-Legendre rule against closed
 // forms, and the rectangle bounds on log V (alpha = 1) against log V evaluated at complex points from its closed form
-// (Nolan 1997, Theorem 1: V(theta) = (2/pi) ((pi/2 + beta theta) / cos theta) exp((pi/2 + beta theta) tan(theta) / beta)).
+// (Nolan 1997, Theorem 1: alpha = 1: V(theta) = (2/pi) ((pi/2 + beta theta) / cos theta) exp((pi/2 + beta theta) tan(theta) / beta);
+// alpha != 1: V(theta) = cos(alpha theta0)^(1/(alpha-1)) (cos theta / sin(alpha (theta0 + theta)))^(alpha/(alpha-1))
+// cos(alpha theta0 + (alpha - 1) theta) / cos theta, theta0 = atan(beta tan(pi alpha / 2)) / alpha).
 import { describe, expect, it } from "vitest";
 import { gaussLegendre } from "@/lib/cf/direct/stable-panel-store";
 import { oneBox } from "@/lib/cf/direct/stable-far";
+import { stableSide } from "@/lib/cf/direct/stable-kernel";
 import { close } from "./model-assert";
 
 describe("Gauss-Legendre rule of the panels", () => {
@@ -86,5 +89,54 @@ describe("rectangle bounds on log V (alpha = 1)", () => {
       }
     }
     expect(checked).toBeGreaterThan(10000);
+  });
+});
+
+/** log V for alpha != 1 at theta = the end `from` -/+ u (low end: -theta0 for alpha < 1, pi/2 for alpha > 1), closed form */
+function logVa(alpha: number, beta: number, from: 0 | 1, u: C): C {
+  const th0 = Math.atan(beta * Math.tan((Math.PI * alpha) / 2)) / alpha;
+  const left = (from === 0) === alpha < 1;
+  const theta: C = left ? [-th0 + u[0], u[1]] : [Math.PI / 2 - u[0], -u[1]];
+  const e = 1 / (alpha - 1);
+  const lc = log(cos(theta));
+  const ls = log(sin([alpha * (th0 + theta[0]), alpha * theta[1]]));
+  const lw = log(cos([alpha * th0 + (alpha - 1) * theta[0], (alpha - 1) * theta[1]]));
+  const k = e * Math.log(Math.cos(alpha * th0));
+  return [k + alpha * e * (lc[0] - ls[0]) + lw[0] - lc[0], alpha * e * (lc[1] - ls[1]) + lw[1] - lc[1]];
+}
+
+describe("rectangle bounds on log V (alpha != 1)", () => {
+  it("hold at points inside random rectangles (seeded), both ends, finite ends included", () => {
+    let seed = 777;
+    const rnd = () => {
+      seed = (seed * 1103515245 + 12345) % 2147483648;
+      return seed / 2147483648;
+    };
+    const out = { rLo: 0, rHi: 0, iMax: 0 };
+    let checked = 0;
+    const laws = [[0.3, 0.5], [0.5, 1], [0.8, 0], [0.8, -0.6], [1.1, 0.4], [1.5, -1], [1.5, 0.7], [1.9, 0.9], [1.999, -1], [1.999, 1]];
+    for (const [alpha, beta] of laws) {
+      const side = stableSide(alpha, beta);
+      for (let r = 0; r < 400; r++) {
+        const from = (r & 1) as 0 | 1;
+        // rectangles from near an end to the middle; at a finite end some reach across u = 0
+        const x1 = r % 4 === 0 ? -0.3 * rnd() : Math.exp(Math.log(1e-6) * rnd()) * 0.5 * side.L;
+        const x2 = Math.abs(x1) * (1 + 0.5 * rnd()) + 1e-7;
+        const Y = (x2 - x1) * 2 * rnd();
+        if (!side.box!(from, x1, x2, Y, out)) continue;
+        for (let k = 0; k < 20; k++) {
+          const u: C = [Math.max(x1, 0) + (x2 - Math.max(x1, 0)) * rnd(), Y * (2 * rnd() - 1)];
+          if (!(u[0] > 0)) continue;
+          const lv = logVa(alpha, beta, from, u);
+          const tol = 1e-9 * (1 + Math.abs(lv[0]));
+          if (!(lv[0] >= out.rLo - tol && lv[0] <= out.rHi + tol && Math.abs(lv[1]) <= out.iMax + tol))
+            expect.fail(
+              `alpha ${alpha}, beta ${beta}, end ${from}, rectangle [${x1}, ${x2}] x [-${Y}, ${Y}] at u = ${u}: log V = ${lv} outside Re [${out.rLo}, ${out.rHi}], |Im| <= ${out.iMax}`,
+            );
+          checked++;
+        }
+      }
+    }
+    expect(checked).toBeGreaterThan(20000);
   });
 });
