@@ -1,5 +1,5 @@
 import { stableIntegrals } from "./stable-integral";
-import { FAR_W, stableOneFar, stableOnePanels } from "./stable-far";
+import { stableOneFar, stableOnePanels } from "./stable-far";
 import { stableNearOne } from "./stable-near-one";
 import { stableSide, tanHalfPi } from "./stable-kernel";
 import { stablePanels } from "./stable-panels";
@@ -189,17 +189,17 @@ function sideAt(alpha: number, beta: number, z: number, out: DirectPoint) {
   clamp(out);
 }
 
-/** |log h| up to which the alpha = 1 far tails try the panels */
+/** |log h| up to which alpha = 1 tries the panels */
 const PANELS_MAX_LH = 4000;
 
 function oneAt(beta: number, z: number, out: DirectPoint) {
   const lh = (-Math.PI * z) / (2 * beta);
-  // far out in either tail (|log h| >= 60): Gauss-Legendre panels in theta with derived bounds (./stable-panels.ts);
-  // beyond |log h| = PANELS_MAX_LH (where the rounding of log h + log V, eps |log h| in v, pushes their bound above 1e-11
-  // of a value), where the bound is above that anyway, or at beta = 1 (a finite end), the Gauss rule in log V with its
-  // estimate (./stable-far.ts); the body takes the grid
-  const far = Math.abs(lh) >= FAR_W && Math.abs(lh) <= PANELS_MAX_LH;
-  const r = (far && beta < 1 ? stableOnePanels(beta, lh) : null) ?? stableOneFar(beta, lh) ?? stableIntegrals(1, beta, lh);
+  // Gauss-Legendre panels in theta with derived bounds (./stable-panels.ts) for |log h| up to PANELS_MAX_LH and beta < 1;
+  // beyond (where the rounding of log h + log V, eps |log h| in v, pushes their bound above 1e-11 of a value), where
+  // the bound is above that anyway, or at beta = 1 (a finite end), the Gauss rule in log V far out (./stable-far.ts)
+  // and the grid in the body, both with estimated errors
+  const panels = Math.abs(lh) <= PANELS_MAX_LH && beta < 1;
+  const r = (panels ? stableOnePanels(beta, lh) : null) ?? stableOneFar(beta, lh) ?? stableIntegrals(1, beta, lh);
   const dlh = 4 * Number.EPSILON * (1 + Math.abs(lh));
   out.pdf = r.Ip / (2 * beta);
   out.pdfErr = r.ep / (2 * beta) + 4 * Number.EPSILON * out.pdf;
