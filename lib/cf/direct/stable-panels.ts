@@ -89,7 +89,7 @@ function panelOrParts(st: PanelStore, k: number, lhAbs: number, lh: number, acc:
     // all three (I0 as the panel's length less I1's part), off by the rule's bound and e^2v
     const s = Math.exp(vMax);
     const b = s * p.J;
-    const e = s * p.eJ + s * b;
+    const e = s * p.eJ * (1 + s) + s * b;
     acc.i1 += b;
     acc.ip += b;
     acc.i0 += 2 * p.hl - b;
@@ -207,7 +207,8 @@ const stores = new Map<PanelSide, [PanelStore, PanelStore]>();
 export function stablePanels(ps: PanelSide, lhAbs: number, rel: number): StableIntegrals | null {
   let st = stores.get(ps);
   if (!st) {
-    if (stores.size > 64) stores.clear();
+    // a law's panels take up to a few MB far out at alpha = 1: keep the last few laws
+    if (stores.size > 16) stores.clear();
     st = [new PanelStore(ps, 0), new PanelStore(ps, 1)];
     stores.set(ps, st);
   }
