@@ -19,9 +19,12 @@ const HALF_PI = Math.PI / 2;
  *   alpha < 1:  F = (pi/2 - theta0)/pi + I0/pi,  sf = I1/pi
  *   alpha > 1:  F = (pi/2 - theta0)/pi + I1/pi,  sf = I0/pi
  *   f = alpha / (pi |alpha - 1| z) Ip,  log h = alpha/(alpha-1) log z
- * alpha = 1 (beta > 0): F = I0/pi, sf = I1/pi, f = Ip / (2 beta), log h = -pi z / (2 beta); where |log h| >= 60 (both
- * tails) the integrals come from a Gauss rule in log V (./stable-far.ts), since alpha = 1 has no convergent tail series.
+ * alpha = 1 (beta > 0): F = I0/pi, sf = I1/pi, f = Ip / (2 beta), log h = -pi z / (2 beta).
  * z < 0 reflects (z, beta) -> (-z, -beta) and swaps F and sf. I0, I1, Ip: see ./stable-integral.ts.
+ * The integrals come from Gauss-Legendre panels in theta with a derived error bound (./stable-panels.ts) for
+ * |alpha - 1| >= 0.1, and for alpha = 1 with beta < 1 and |log h| <= 4000. Elsewhere, and where the panels' bound is above
+ * 1e-11 of a value (light tails next to a finite end), the errors are estimates: the Gauss rule in log V next to
+ * alpha = 1 (./stable-near-one.ts) and far out at alpha = 1 (./stable-far.ts), else the grid (./stable-integral.ts).
  */
 export function stableDirect(alpha: number, beta: number, scale: number, loc: number, param: "S0" | "S1"): DirectLaw | null {
   if (!(scale > 0) || !Number.isFinite(loc)) return null;
