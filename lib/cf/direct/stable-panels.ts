@@ -84,7 +84,8 @@ function panel(p: Panel, lhAbs: number, lh: number, acc: Sums): void {
 function panelOrParts(st: PanelStore, k: number, lhAbs: number, lh: number, acc: Sums): boolean {
   const p = st.panels[k];
   const vMax = lhAbs + p.rHi;
-  if (vMax <= R_FAR) {
+  // far out at alpha = 1 the kernel's support in u is 1/|log h| of the far left's, whose e^2v share must stay small
+  if (vMax <= R_FAR - Math.log(Math.max(1, Math.abs(lhAbs)))) {
     // far left: e^v - e^2v <= K(v) <= e^v, e^v - e^2v / 2 <= 1 - exp(-e^v) <= e^v, so the panel's stored rule of V gives
     // all three (I0 as the panel's length less I1's part), off by the rule's bound and e^2v
     const s = Math.exp(vMax);
@@ -185,13 +186,16 @@ function half(st: PanelStore, lhAbs: number, V0: number, acc: Sums): boolean {
       const kHi = vm <= 0 && vb >= 0 ? 1 / Math.E : Math.max(kb, km);
       const wp = 0.5 * lo * (kHi - Math.min(kb, km));
       if (vb <= V0 || (w <= 1e-17 * acc.i0 && w <= 1e-17 * acc.i1 && wp <= 1e-17 * acc.ip)) {
-        const r = 4 * Number.EPSILON * lo;
-        acc.i0 += lo * f0m - w;
-        acc.i1 += lo * -Math.expm1(-Math.exp(vm)) + w;
-        acc.ip += 0.5 * lo * (kHi + Math.min(kb, km));
-        acc.e0 += w + r;
-        acc.e1 += w + r;
-        acc.ep += wp + r;
+        // each value's rounding: a few eps of itself
+        const a0 = lo * f0m - w;
+        const a1 = lo * -Math.expm1(-Math.exp(vm)) + w;
+        const ap = 0.5 * lo * (kHi + Math.min(kb, km));
+        acc.i0 += a0;
+        acc.i1 += a1;
+        acc.ip += ap;
+        acc.e0 += w + 8 * Number.EPSILON * (a0 + w);
+        acc.e1 += w + 8 * Number.EPSILON * (a1 + w);
+        acc.ep += wp + 8 * Number.EPSILON * (ap + wp);
         return true;
       }
     }
