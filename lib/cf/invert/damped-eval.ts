@@ -80,6 +80,7 @@ export function dampedAt(s: DampedSolution, x: number, wantPdf: boolean, wantInt
   if (y < 0) return { Fc: 0, fc: 0, Ic: 0, errF: 0, errf: 0, errI: 0 };
   const { h, K, pRe, pIm, cRe, cIm, iRe, iIm } = s;
   if (wantInt && iRe.length < K) throw new Error("dampedAt: the solution was set up without the integrated cdf");
+  if (wantPdf && pRe.length < K) throw new Error("dampedAt: the solution was set up without the density");
   const ph = new Float64Array(2);
   for (let j = 0; j < B; j++) {
     phase(j * h, yh, yl, ph);

@@ -3,6 +3,7 @@
 import type { DampedSolution } from "./damped";
 import { nextPowerOfTwo } from "../fftplan";
 import { checkDeadline } from "../deadline";
+import { scratch } from "../damped-scratch";
 import { sumOnGrid } from "./fft";
 import { takenOutAt, twoProduct } from "./damped-eval";
 import { FFT_REL } from "./damped-transform";
@@ -152,9 +153,10 @@ export function dampedPoints(
   const { N, M } = plan;
   const dx = s.T / N;
   const mk = (re: Float64Array, im: Float64Array): Nodes => ({ h: s.h, K: s.K, re, im, wre: re, wim: im, absCdf: 0, absPdf: 0, mass: 0 });
-  const gC = new Float64Array(N);
+  // the grid values are temporaries (reused buffers, ../damped-scratch.ts): every entry is written by sumOnGrid
+  const gC = scratch("gridC", N);
   sumOnGrid(mk(s.cRe, s.cIm), s.lo, s.lo, N, 0, N, gC, null, null);
-  const gP = wantPdf ? new Float64Array(N) : null;
+  const gP = wantPdf ? scratch("gridP", N) : null;
   if (gP) sumOnGrid(mk(s.pRe, s.pIm), s.lo, s.lo, N, 0, N, gP, null, null);
   const n = xs.length;
   const fc = new Float64Array(n);

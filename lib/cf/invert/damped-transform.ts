@@ -2,6 +2,7 @@
 import type { Atom, CompiledModel } from "../types";
 import type { SeverityKernel } from "../severity-kernel";
 import { kernelsMass, subtractKernels } from "../damped-kernels";
+import { scratch } from "../damped-scratch";
 import { cutoffFor, envelopeOf, probeFrequencies, truncationAt, type Envelope } from "./nodes";
 
 const EPS = Number.EPSILON;
@@ -123,8 +124,8 @@ function severityPsi(sev: SeverityKernel, count: NonNullable<SeverityKernel["cou
   // the severity's transform and the count's log-pgf taken rectangular where both have that form: no log and exp of phi
   const rect = !!(sev.dampedCf && count.logPgf);
   return (t: Float64Array, re: Float64Array, im: Float64Array, noise?: Float64Array) => {
-    const a = new Float64Array(t.length);
-    const b = new Float64Array(t.length);
+    const a = scratch("sevRe", t.length);
+    const b = scratch("sevIm", t.length);
     // d: the bound on the severity transform values' absolute error (the route's own where it returns one; a plan's
     // probe, whose short run takes the per-frequency route, is charged the bound of every route the setup may take)
     let d = sev.cfAbsError;

@@ -5,6 +5,7 @@ import { kernelsDensityBeyond, kernelsMass } from "../damped-kernels";
 import { truncationAt } from "./nodes";
 import { dampedPlan, exactStep, imageMoments, psiOf, sumAllowance, type DampedPlan, type Exactness } from "./damped-transform";
 import { imageTail } from "./damped-images";
+import { scratch } from "../damped-scratch";
 
 export { dampedPlan, type DampedPlan } from "./damped-transform";
 export { dampedAt, dampedGrid, gridPeriod, type DampedPoint } from "./damped-eval";
@@ -32,6 +33,7 @@ export const KERNEL_BUDGET = 1 << 21;
 /** default budget of frequency terms before the undamped routes are preferred */
 export const DAMPED_BUDGET = 1 << 19;
 const EPS = Number.EPSILON;
+const EMPTY = new Float64Array(0);
 
 export interface DampedSolution {
   lo: number;
@@ -42,7 +44,7 @@ export interface DampedSolution {
   atoms: Atom[];
   /** mass of the continuous part */
   Mc: number;
-  /** coefficient sets: density, cdf and integrated cdf */
+  /** coefficient sets: density (empty when set up without wantPdf), cdf and integrated cdf (empty without wantInt) */
   pRe: Float64Array;
   pIm: Float64Array;
   cRe: Float64Array;
@@ -142,11 +144,12 @@ export function dampedSetup(model: CompiledModel, atoms: Atom[], R: number, o: D
     capped = true;
     notes.push(`frequency cut-off capped at ${(K * h).toPrecision(4)} (${K} terms): the truncation bound is reported as reached, not the target`);
   }
-  const t = new Float64Array(K);
+  // the nodes, the noise and (without the density) psi itself are temporaries in reused buffers (./damped-scratch.ts)
+  const t = scratch("nodes", K);
   for (let k = 0; k < K; k++) t[k] = (k + 0.5) * h;
-  const pRe = new Float64Array(K);
-  const pIm = new Float64Array(K);
-  const nz = new Float64Array(K);
+  const pRe = o.wantPdf ? new Float64Array(K) : scratch("psiRe", K);
+  const pIm = o.wantPdf ? new Float64Array(K) : scratch("psiIm", K);
+  const nz = scratch("noise", K);
   psi(t, pRe, pIm, nz);
   const cRe = new Float64Array(K);
   const cIm = new Float64Array(K);
@@ -237,8 +240,8 @@ export function dampedSetup(model: CompiledModel, atoms: Atom[], R: number, o: D
     K,
     atoms,
     Mc,
-    pRe,
-    pIm,
+    pRe: o.wantPdf ? pRe : EMPTY,
+    pIm: o.wantPdf ? pIm : EMPTY,
     cRe,
     cIm,
     iRe,
