@@ -71,8 +71,6 @@ export function lognormal(mu: number, sigma: number): Node {
   // geometric sequence in k: evaluated directly at the start of each block of B steps, and within the block as that
   // value times the step's m-th power from a table computed directly per node (no recurrence, so no drift); the sums
   // go to sr, si
-  const stRe = new Float64Array(BLOCK);
-  const stIm = new Float64Array(BLOCK);
   const batchRect = (beta: number, t: Float64Array, sr: Float64Array, si: Float64Array) => {
     const K = t.length;
     const d = t[1] - t[0];
@@ -87,33 +85,70 @@ export function lognormal(mu: number, sigma: number): Node {
     const cs = Math.cos(th);
     sr.fill(0, k1);
     si.fill(0, k1);
+    // node j's tabled powers (L_j of them) and its run state: the next frequency, the position in its current block and
+    // the block's direct value. The frequencies go in tiles of TILE, every node over a tile before the next tile, so the
+    // sums sr, si of a tile stay in cache (node by node over all K frequencies they are re-read from memory n times);
+    // each term and each sum's order over j are as node by node, so the values are the same to the bit
+    const tRe = scratchTable(n * BLOCK, 0);
+    const tIm = scratchTable(n * BLOCK, 1);
+    const Ls = new Int32Array(n);
+    const next = new Int32Array(n);
+    const pos = new Int32Array(n);
+    const zRe = new Float64Array(n);
+    const zIm = new Float64Array(n);
     for (let j = 0; j < n; j++) {
-      checkDeadline("cf-quadrature");
       const e = em * ev[j];
-      const wj = w[j] * g;
       const a = e * d * sn;
       const b = e * d * cs;
       // the block: B steps, fewer where the term falls below e^-45 sooner (the table is then shorter)
       const reach = Math.ceil(((45 / e - beta * cs) / sn - t[k1]) / d) + 1;
       const L = Math.max(1, Math.min(BLOCK, reach, K - k1));
+      Ls[j] = L;
+      next[j] = k1;
+      const o = j * BLOCK;
       for (let m = 0; m < L; m++) {
         const am = Math.exp(-m * a);
-        stRe[m] = am * Math.cos(m * b);
-        stIm[m] = am * Math.sin(m * b);
+        tRe[o + m] = am * Math.cos(m * b);
+        tIm[o + m] = am * Math.sin(m * b);
       }
-      let k = k1;
-      while (k < K) {
-        const damp = e * (t[k] * sn + beta * cs);
-        if (damp > 45) break;
-        const amp = wj * Math.exp(-damp);
-        const ph = e * (t[k] * cs - beta * sn) - cc * v[j];
-        const zr = amp * Math.cos(ph);
-        const zi = amp * Math.sin(ph);
-        const end = Math.min(K, k + L);
-        for (let m = 0; k < end; k++, m++) {
-          sr[k] += zr * stRe[m] - zi * stIm[m];
-          si[k] += zr * stIm[m] + zi * stRe[m];
+    }
+    for (let k0 = k1; k0 < K; k0 += TILE) {
+      checkDeadline("cf-quadrature");
+      const kEnd = Math.min(K, k0 + TILE);
+      for (let j = 0; j < n; j++) {
+        let k = next[j];
+        if (k < 0) continue;
+        const e = em * ev[j];
+        const L = Ls[j];
+        const o = j * BLOCK;
+        let m = pos[j];
+        let zr = zRe[j];
+        let zi = zIm[j];
+        while (k < kEnd) {
+          if (m === 0) {
+            const damp = e * (t[k] * sn + beta * cs);
+            if (damp > 45) {
+              k = -1;
+              break;
+            }
+            const amp = w[j] * g * Math.exp(-damp);
+            const ph = e * (t[k] * cs - beta * sn) - cc * v[j];
+            zr = amp * Math.cos(ph);
+            zi = amp * Math.sin(ph);
+          }
+          const end = Math.min(kEnd, k + L - m);
+          for (; k < end; k++, m++) {
+            const wr = tRe[o + m];
+            const wi = tIm[o + m];
+            sr[k] += zr * wr - zi * wi;
+            si[k] += zr * wi + zi * wr;
+          }
+          if (m === L) m = 0;
         }
+        next[j] = k;
+        pos[j] = m;
+        zRe[j] = zr;
+        zIm[j] = zi;
       }
     }
     return k1;
@@ -201,6 +236,14 @@ export function lognormal(mu: number, sigma: number): Node {
 }
 
 const U = Number.EPSILON / 2;
+/** frequencies a tile of the damped batch (a multiple of BLOCK; the tile's sums, 2 TILE doubles, stay in cache) */
+const TILE = 2048;
+/** the damped batch's tables of powers, reused between calls (every entry used is written first) */
+const tables: Float64Array[] = [new Float64Array(0), new Float64Array(0)];
+function scratchTable(n: number, i: 0 | 1): Float64Array {
+  if (tables[i].length < n) tables[i] = new Float64Array(n);
+  return tables[i];
+}
 /** steps of the damped batch between direct evaluations (within a block: the direct value times a tabled power) */
 const BLOCK = 256;
 /** runs of frequencies up to this length take the per-frequency route when their values' bound is returned */
