@@ -1,7 +1,7 @@
 // Many arbitrary points of a damped solution: the damped sums once on a fine FFT grid, then local interpolation at
 // each point, with the interpolation error bounded from the sums' own coefficients.
 import type { DampedSolution } from "./damped";
-import { nextPowerOfTwo } from "../fftplan";
+import { getFftPlan, nextPowerOfTwo } from "../fftplan";
 import { checkDeadline } from "../deadline";
 import { scratch } from "../damped-scratch";
 import { sumOnGrid } from "./fft";
@@ -87,7 +87,8 @@ export function pointsPlan(s: DampedSolution, n: number, target: number, wantPdf
     const dx = Math.pow((target * FACT[m]) / (NODE_POLY[m] * D), 1 / M) / tau;
     const N = nextPowerOfTwo(Math.max(2 * M, Math.ceil(s.T / dx)));
     if (N > MAX_N) continue;
-    const cost = passes * (5 * N * Math.log2(N) + s.K) + n * M * (M + passes);
+    // one FFT serves both sums (packedSums)
+    const cost = 5 * N * Math.log2(N) + passes * s.K + n * M * (M + passes);
     if (cost < bestCost) {
       bestCost = cost;
       best = { N, M, nodePoly: NODE_POLY[m], fact: FACT[m], tau, dC: dC[m] * f * widen, dP: dP[m] * f * widen, dP1: dP1 * widen };
@@ -109,6 +110,56 @@ export interface PointsPlan {
   dC: number;
   dP: number;
   dP1: number;
+}
+
+/**
+ * The cdf and density sums g_C(y_j), g_P(y_j) = (h/pi) sum_k Re(e^{-i t_k y_j} c_k) on y_j = j T / N by one complex FFT
+ * of size N. With omega = e^{-2 pi i / N} and C_b the coefficients wrapped mod N (t_k y_j = (k + 1/2) 2 pi j / N),
+ * Re sum_b C_b omega^{(b + 1/2) j} = sum_b H_b omega^{(b + 1/2) j}, H_b = (C_b + conj(C_{N-1-b})) / 2 (the conjugate
+ * term's exponent -(b + 1/2) is (N - 1 - b) + 1/2 - N), a sum that is real for every j; so the transform of
+ * H^C + i s H^P gives g_C in its real part and s g_P in its imaginary part. s, a power of 2 (exact products), near
+ * sum |c_k| / sum |p_k| evens the two sums' shares of the rounding. Rounding of each output, per unit of the inputs'
+ * absolute sum sum |c_k| + s sum |p_k|: FFT_REL (the transform and the post-rotation) plus the wrapped bins (each bin
+ * sums up to 2 ceil(K / N) halves) and the half-sums (a few eps); the caller charges it. Returns s.
+ */
+function packedSums(s: DampedSolution, N: number, gC: Float64Array, gP: Float64Array, jHi: number, M: number): number {
+  const plan = getFftPlan(N);
+  const X = plan.a;
+  const out = plan.b;
+  X.fill(0);
+  const sc = s.scaleP > 0 && s.scaleC > 0 ? Math.pow(2, Math.round(Math.log2(s.scaleC / s.scaleP))) : 1;
+  const half = 0.5 * sc;
+  const { K, cRe, cIm, pRe, pIm } = s;
+  for (let k = 0; k < K; k++) {
+    const b = k & (N - 1);
+    const b2 = N - 1 - b;
+    const cr = 0.5 * cRe[k];
+    const ci = 0.5 * cIm[k];
+    const pr = half * pRe[k];
+    const pi = half * pIm[k];
+    X[2 * b] += cr - pi;
+    X[2 * b + 1] += ci + pr;
+    X[2 * b2] += cr + pi;
+    X[2 * b2 + 1] += pr - ci;
+  }
+  checkDeadline("fft");
+  plan.forward(X, out);
+  const f = s.h / Math.PI;
+  const step = Math.PI / N;
+  // only the grid values a stencil can reach: j <= jHi, and the last M (the anti-periodic images of j < 0)
+  const top = Math.min(N, jHi + 1);
+  for (let j = 0; j < N; j++) {
+    if (j === top) j = Math.max(top, N - M);
+    if (j >= N) break;
+    const a = j * step;
+    const er = Math.cos(a);
+    const ei = -Math.sin(a);
+    const zr = out[2 * j];
+    const zi = out[2 * j + 1];
+    gC[j] = f * (er * zr - ei * zi);
+    gP[j] = (f * (er * zi + ei * zr)) / sc;
+  }
+  return sc;
 }
 
 const TWO_PI_HI = 6.283185307179586;
@@ -155,9 +206,20 @@ export function dampedPoints(
   const mk = (re: Float64Array, im: Float64Array): Nodes => ({ h: s.h, K: s.K, re, im, wre: re, wim: im, absCdf: 0, absPdf: 0, mass: 0 });
   // the grid values are temporaries (reused buffers, ../damped-scratch.ts): every entry is written by sumOnGrid
   const gC = scratch("gridC", N);
-  sumOnGrid(mk(s.cRe, s.cIm), s.lo, s.lo, N, 0, N, gC, null, null);
   const gP = wantPdf ? scratch("gridP", N) : null;
-  if (gP) sumOnGrid(mk(s.pRe, s.pIm), s.lo, s.lo, N, 0, N, gP, null, null);
+  // with the density, one FFT for both sums: the rounding of each then counts the other's inputs too (times the scale)
+  let fftC = 0;
+  let fftP = 0;
+  if (gP) {
+    // the furthest grid index a stencil reaches: the largest point's position, its M/2 right neighbours, 2 for rounding
+    let yMax = 0;
+    for (let i = 0; i < xs.length; i++) if (xs[i] - s.lo > yMax) yMax = xs[i] - s.lo;
+    const jHi = Math.floor(yMax / dx) + M / 2 + 2;
+    const sc = packedSums(s, N, gC, gP, jHi, M);
+    const r = FFT_REL + (2 * Math.ceil(s.K / N) + 6) * Number.EPSILON;
+    fftC = r * (s.scaleC + sc * s.scaleP);
+    fftP = r * (s.scaleC / sc + s.scaleP);
+  } else sumOnGrid(mk(s.cRe, s.cIm), s.lo, s.lo, N, 0, N, gC, null, null);
   const n = xs.length;
   const fc = new Float64Array(n);
   const Fc = new Float64Array(n);
@@ -227,8 +289,8 @@ export function dampedPoints(
     // sit in the grid values and pass through the weights (times the Lebesgue sum); the weights and the stencil's sum
     // round within (3 M + 4) eps of sum |w_a g_a|; rho's own rounding (4 eps of a grid step) moves the point by
     // 4 eps dx, over which the sums change by at most their derivative's bound (h/pi) sum t_k |c_k| <= scaleP
-    const roundC = s.sumCdf - s.truncCdf + excess * s.scaleC;
-    const roundP = s.sumPdf - s.truncPdf + excess * s.scaleP;
+    const roundC = s.sumCdf - s.truncCdf + (gP ? fftC : excess * s.scaleC);
+    const roundP = s.sumPdf - s.truncPdf + fftP;
     const wr = (3 * M + 4) * Number.EPSILON;
     const shift = 8 * Number.EPSILON * dx;
     errF[i] = g * (s.truncCdf + leb * roundC + interpC + wr * aC + shift * s.scaleP) + s.aliasCdf + kv.err;
