@@ -80,11 +80,11 @@ export function dampedQuantiles(model: CompiledModel, atoms: Atom[], p: Float64A
   // no plan within the budget, or only one whose rounding cannot reach the tolerance: up to MAX_K terms before the
   // undamped route, which takes as many and resolves less (Poisson(1)-lognormal(0, 2.5) at p = 0.99: 4.0e6 terms,
   // quantile bound 4e-9 relative against 2.2 undamped; Poisson(10)-lognormal(0, 2) at 0.999: bound 1.5e-7 to 2.3e-8)
-  let plan = dampedPlan(model, atoms, R, tol, true, points, true, budget, undefined, false);
+  let plan = dampedPlan(model, atoms, R, tol, false, points, true, budget);
   let use = budget;
   const terms = (pl: DampedPlan) => (pl.tmax * pl.T) / (2 * Math.PI);
   if (budget === KERNEL_BUDGET && (plan.rounding > 1 || terms(plan) > budget)) {
-    const wide = dampedPlan(model, atoms, R, tol, true, points, true, MAX_K, undefined, false);
+    const wide = dampedPlan(model, atoms, R, tol, false, points, true, MAX_K);
     if (terms(wide) <= MAX_K && (wide.rounding <= 1 || terms(plan) > budget)) {
       plan = wide;
       use = MAX_K;
