@@ -8,7 +8,22 @@
  */
 const MAX_POOLED = 1 << 19;
 
-export type ScratchSlot = "nodes" | "noise" | "psiRe" | "psiIm" | "sevRe" | "sevIm" | "gridC" | "gridP";
+export type ScratchSlot =
+  | "nodes"
+  | "noise"
+  | "psiRe"
+  | "psiIm"
+  | "sevRe"
+  | "sevIm"
+  | "gridC"
+  | "gridP"
+  // a transient solution's coefficients (DampedOptions.transient)
+  | "solPRe"
+  | "solPIm"
+  | "solCRe"
+  | "solCIm"
+  | "solIRe"
+  | "solIIm";
 
 const slots = new Map<ScratchSlot, Float64Array>();
 

@@ -5,7 +5,7 @@ import { kernelsDensityBeyond, kernelsMass } from "../damped-kernels";
 import { truncationAt } from "./nodes";
 import { dampedPlan, exactStep, imageMoments, psiOf, sumAllowance, type DampedPlan, type Exactness } from "./damped-transform";
 import { imageTail } from "./damped-images";
-import { scratch } from "../damped-scratch";
+import { scratch, type ScratchSlot } from "../damped-scratch";
 
 export { dampedPlan, type DampedPlan } from "./damped-transform";
 export { dampedAt, dampedGrid, gridPeriod, type DampedPoint } from "./damped-eval";
@@ -110,6 +110,11 @@ export interface DampedOptions {
   pointwise?: Exactness;
   /** the integrated cdf's coefficients are wanted (expected shortfall); without them sumInt is Infinity (default true) */
   wantInt?: boolean;
+  /**
+   * the solution is used only until the caller's next dampedSetup (or its return): its coefficient arrays are reused
+   * buffers (../damped-scratch.ts), which the next transient setup overwrites (default false)
+   */
+  transient?: boolean;
 }
 
 /** Whether the damped inversion applies: a compound-type law bounded below with its damped transform. */
@@ -147,15 +152,17 @@ export function dampedSetup(model: CompiledModel, atoms: Atom[], R: number, o: D
   // the nodes, the noise and (without the density) psi itself are temporaries in reused buffers (./damped-scratch.ts)
   const t = scratch("nodes", K);
   for (let k = 0; k < K; k++) t[k] = (k + 0.5) * h;
-  const pRe = o.wantPdf ? new Float64Array(K) : scratch("psiRe", K);
-  const pIm = o.wantPdf ? new Float64Array(K) : scratch("psiIm", K);
+  // a transient solution's coefficients are reused buffers too (its caller drops it before the next setup)
+  const keep = (slot: ScratchSlot, n: number) => (o.transient ? scratch(slot, n) : new Float64Array(n));
+  const pRe = o.wantPdf ? keep("solPRe", K) : scratch("psiRe", K);
+  const pIm = o.wantPdf ? keep("solPIm", K) : scratch("psiIm", K);
   const nz = scratch("noise", K);
   psi(t, pRe, pIm, nz);
-  const cRe = new Float64Array(K);
-  const cIm = new Float64Array(K);
+  const cRe = keep("solCRe", K);
+  const cIm = keep("solCIm", K);
   const wantInt = o.wantInt ?? true;
-  const iRe = new Float64Array(wantInt ? K : 0);
-  const iIm = new Float64Array(wantInt ? K : 0);
+  const iRe = wantInt ? keep("solIRe", K) : EMPTY;
+  const iIm = wantInt ? keep("solIIm", K) : EMPTY;
   let absP = 0;
   let absC = 0;
   let absI = 0;

@@ -44,7 +44,7 @@ export function dampedDensity(
   if (req.kind === "grid" && useFft) {
     const plan = dampedPlan(model, atoms, R, tol, wantPdf, n, false, Infinity, (T) => gridPeriod(lo, req.from, req.dx, req.count, T).T);
     const g = gridPeriod(lo, req.from, req.dx, req.count, plan.T);
-    sol = dampedSetup(model, atoms, R, { tolerance: tol, wantPdf, period: g.T, budget, plan, wantInt: false });
+    sol = dampedSetup(model, atoms, R, { tolerance: tol, wantPdf, period: g.T, budget, plan, wantInt: false, transient: true });
     if (!sol) return null;
     const r = dampedGrid(sol, req.from, req.dx, req.count, g.N, wantPdf);
     for (let i = 0; i < n; i++) {
@@ -55,7 +55,7 @@ export function dampedDensity(
     method = "fft-damped";
     gridSize = g.N;
   } else {
-    sol = dampedSetup(model, atoms, R, { tolerance: tol, wantPdf, budget, points: n, pointwise: n < 32 ? true : "interpolated", wantInt: false });
+    sol = dampedSetup(model, atoms, R, { tolerance: tol, wantPdf, budget, points: n, pointwise: n < 32 ? true : "interpolated", wantInt: false, transient: true });
     if (!sol) return null;
     // many points: the sums once on a fine FFT grid and interpolated, the interpolation error inside tol / 16
     const pp = n >= 32 ? pointsPlan(sol, n, tol / (16 * Math.exp(sol.beta * (R - lo))), wantPdf) : null;

@@ -58,7 +58,7 @@ export function dampedQuantiles(model: CompiledModel, atoms: Atom[], p: Float64A
   };
   let prev = lo;
   for (let it = 0; it < 40; it++) {
-    const probe = dampedSetup(model, atoms, R, { tolerance: loose, wantPdf: false, budget, pointwise: true, points: PROBE_POINTS, wantInt: false });
+    const probe = dampedSetup(model, atoms, R, { tolerance: loose, wantPdf: false, budget, pointwise: true, points: PROBE_POINTS, wantInt: false, transient: true });
     if (!probe) return null;
     if (sfBound(probe, R) < REACH * tail) {
       // the last step overshoots by up to GROWTH times, and the final inversion's terms grow with the range: the smallest R
