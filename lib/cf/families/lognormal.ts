@@ -71,7 +71,7 @@ export function lognormal(mu: number, sigma: number): Node {
   // geometric sequence in k: evaluated directly at the start of each block of B steps, and within the block as that
   // value times the step's m-th power from a table computed directly per node (no recurrence, so no drift); the sums
   // go to sr, si
-  const batchRect = (beta: number, t: Float64Array, sr: Float64Array, si: Float64Array) => {
+  const batchRect = (beta: number, t: Float64Array, sr: Float64Array, si: Float64Array, j0 = 0) => {
     const K = t.length;
     const d = t[1] - t[0];
     let k1 = 0;
@@ -96,7 +96,7 @@ export function lognormal(mu: number, sigma: number): Node {
     const pos = new Int32Array(n);
     const zRe = new Float64Array(n);
     const zIm = new Float64Array(n);
-    for (let j = 0; j < n; j++) {
+    for (let j = j0; j < n; j++) {
       const e = em * ev[j];
       const a = e * d * sn;
       const b = e * d * cs;
@@ -115,7 +115,7 @@ export function lognormal(mu: number, sigma: number): Node {
     for (let k0 = k1; k0 < K; k0 += TILE) {
       checkDeadline("cf-quadrature");
       const kEnd = Math.min(K, k0 + TILE);
-      for (let j = 0; j < n; j++) {
+      for (let j = j0; j < n; j++) {
         let k = next[j];
         if (k < 0) continue;
         const e = em * ev[j];
@@ -188,14 +188,22 @@ export function lognormal(mu: number, sigma: number): Node {
   const cfError = 1e-16 + rb.all * g0;
   // the per-frequency route alone (compensated sums, no recurrence): what a short run of frequencies is charged
   const cfErrorSingle = 1e-16 + rb.single * g0;
+  // the rectangular batch (a compound's one-claim route) leaves out the first nodes, far left in the Gaussian: their
+  // e^{mu + sigma v} is so small that they reach every frequency, yet each term is at most w_j e^{cc^2/2} <= w_j g0
+  // (damp >= 0, the tabled powers at most 1), so leaving out nodes whose weights sum to DROP moves the value by at
+  // most g0 times that sum, which the route's bound adds
+  let jDrop = 0;
+  let dropped = 0;
+  while (jDrop < n && (dropped + w[jDrop]) * g0 * (1 + 1e-12) <= DROP) dropped += w[jDrop++];
+  const dropBound = dropped * g0 * (1 + 1e-12);
   const s2 = sigma * sigma;
   const d = Math.expm1(s2);
   const damped = (beta: number, t: Float64Array, re: Float64Array, im: Float64Array) => (arithmetic(t) ? batch(beta, t, re, im) : single(beta, t, re, im));
   // a short run of frequencies (a few hundred quadratures, about 1 ms) takes the per-frequency route and its smaller bound
   const dampedRect = (beta: number, t: Float64Array, re: Float64Array, im: Float64Array) => {
     if (t.length > SHORT_RUN && arithmetic(t)) {
-      batchRect(beta, t, re, im);
-      return cfError;
+      batchRect(beta, t, re, im, jDrop);
+      return cfError + dropBound;
     }
     singleRect(beta, t, re, im);
     return cfErrorSingle;
@@ -211,7 +219,7 @@ export function lognormal(mu: number, sigma: number): Node {
     cfAbsError: cfError,
     dampedLogCf: damped,
     // compounds take the one-claim term out of their damped transform and add it back in closed form
-    severityKernel: (w: number, w2: number) => lognormalKernel(w, mu, sigma, damped, cfError, w2, dampedRect),
+    severityKernel: (w: number, w2: number) => lognormalKernel(w, mu, sigma, damped, cfError + dropBound, w2, dampedRect),
     // the density vanishes at 0 faster than any power, so every term of the endpoint expansion is 0 (Watson's lemma):
     // a compound's transform is P(N = 0) plus o(s^-n), and sums holding it build their kernels from the other terms
     laplaceExpansion: { at: 0, exps: [], coefs: [] },
@@ -236,6 +244,8 @@ export function lognormal(mu: number, sigma: number): Node {
 }
 
 const U = Number.EPSILON / 2;
+/** total weight (times e^{c^2/2}) of the left-most nodes the rectangular damped batch may leave out */
+const DROP = 1e-15;
 /** frequencies a tile of the damped batch (a multiple of BLOCK; the tile's sums, 2 TILE doubles, stay in cache) */
 const TILE = 2048;
 /** the damped batch's tables of powers, reused between calls (every entry used is written first) */
