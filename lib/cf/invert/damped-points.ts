@@ -9,6 +9,12 @@ import { takenOutAt, twoProduct } from "./damped-eval";
 import { FFT_REL } from "./damped-transform";
 import type { Nodes } from "./nodes";
 
+/** |x + i y| at least: the square root of the squares widened by 4 eps (hypot, slower, where they could underflow) */
+function modulus(x: number, y: number): number {
+  const s2 = x * x + y * y;
+  return s2 > 1e-290 ? Math.sqrt(s2) * (1 + 4 * Number.EPSILON) : Math.hypot(x, y);
+}
+
 /** interpolation stencils: M equispaced grid values around the point (M/2 on each side); the plan takes the M that
  * needs the smallest FFT (a wider stencil lets the grid step approach the sums' Nyquist step pi / t_max) */
 const STENCILS = [10, 16, 24, 32] as const;
@@ -63,8 +69,8 @@ export function pointsPlan(s: DampedSolution, n: number, target: number, wantPdf
     pw[1] = r16;
     pw[2] = r16 * r8;
     pw[3] = r16 * r16;
-    const c = Math.hypot(s.cRe[k], s.cIm[k]);
-    const a = wantPdf ? Math.hypot(s.pRe[k], s.pIm[k]) : 0;
+    const c = modulus(s.cRe[k], s.cIm[k]);
+    const a = wantPdf ? modulus(s.pRe[k], s.pIm[k]) : 0;
     for (let m = 0; m < L; m++) {
       dC[m] += pw[m] * c;
       dP[m] += pw[m] * a;
