@@ -90,7 +90,8 @@ export function dampedQuantiles(model: CompiledModel, atoms: Atom[], p: Float64A
       use = MAX_K;
     }
   }
-  const sol = dampedSetup(model, atoms, R, { tolerance: tol, wantPdf: true, budget: use, pointwise: true, points, plan });
+  // transient: used only here, by dampedAt, until this function returns
+  const sol = dampedSetup(model, atoms, R, { tolerance: tol, wantPdf: true, budget: use, pointwise: true, points, plan, transient: true });
   if (!sol) return null;
   const errCdf = dampedAt(sol, R, false, false).errF;
   const s = sol!;
