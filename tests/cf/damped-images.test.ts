@@ -6,7 +6,7 @@ import { readFileSync } from "node:fs";
 import { join } from "node:path";
 import { describe, expect, it } from "vitest";
 import { compile } from "@/lib/cf/compile";
-import { imageTail } from "@/lib/cf/invert/damped-images";
+import { imageIntegralTail, imageTail } from "@/lib/cf/invert/damped-images";
 import { momentBounds } from "@/lib/cf/invert/moment-tails";
 import type { Atom, Model } from "@/lib/cf/types";
 
@@ -96,5 +96,23 @@ describe("damped images: the tail bound B(z) against the Erlang-mixture tails (t
     // far out the bound follows the light tail: at 20 times the largest fixture point it is below 1e-20 of the mass
     const far = 20 * c.points[c.points.length - 1].x;
     expect(B!(far)).toBeLessThan(1e-20);
+  });
+});
+
+describe("damped images: the integrated image tail against closed-form tail integrals", () => {
+  // B non-increasing with int_c^inf B in closed form: the exponential tail e^{-z} (int = e^{-c}) and the gamma(2, 1) tail
+  // (1 + z) e^{-z} (int = (2 + c) e^{-c}); second = 2 and 6 are their second moments (E Z^2 of exponential(1), gamma(2, 1)).
+  // The upper Riemann sum on steps [z_j, z_{j+1}] (ratio 1.25, later 2) is at least the integral, and at most its first step
+  // 0.25 c B(c) plus twice the integral (each later step is at most its ratio times the integral over the one before)
+  const cases = [
+    { name: "exponential(1) tail", B: (z: number) => Math.exp(-z), int: (c: number) => Math.exp(-c), second: 2 },
+    { name: "gamma(2, 1) tail", B: (z: number) => (1 + z) * Math.exp(-z), int: (c: number) => (2 + c) * Math.exp(-c), second: 6 },
+  ];
+  it.each(cases.flatMap((k) => [0.5, 3, 10, 40].map((c) => [`${k.name}, c = ${c}`, k, c] as const)))("%s", (_n, k, c) => {
+    const got = imageIntegralTail(k.B, c, k.second);
+    const exact = k.int(c);
+    if (!(got >= exact * (1 - 1e-14))) expect.fail(`bound ${got} below the exact tail integral ${exact}`);
+    const most = Math.min(k.second / (4 * c), 0.25 * c * k.B(c) + 2 * exact) * (1 + 1e-12) + 1e-300;
+    if (!(got <= most)) expect.fail(`bound ${got} above ${most} (exact ${exact})`);
   });
 });

@@ -5,6 +5,7 @@ import { checkDeadline } from "../deadline";
 import { sumOnGrid } from "./fft";
 import { kernelsAt } from "../damped-kernels";
 import type { Nodes } from "./nodes";
+import { imageIntegralTail } from "./damped-images";
 
 const EPS = Number.EPSILON;
 
@@ -153,7 +154,9 @@ export function dampedAt(s: DampedSolution, x: number, wantPdf: boolean, wantInt
     const { A, B, second } = s.intImages;
     const r = s.q / (1 + s.q);
     images = -r * (A * y - B) - (A * s.T * r) / (1 + s.q);
-    aliasI = (s.q / (1 - s.q)) * (second / (4 * (y + s.T))) + 8 * EPS * (Math.abs(A) * (y + s.T) + Math.abs(B)) * r;
+    // per point from the cdf's image tail where there is one (./damped-images.ts imageIntegralTail), else the second moment
+    const rest = s.imageTail ? imageIntegralTail(s.imageTail, y + s.T, second) : second / (4 * (y + s.T));
+    aliasI = (s.q / (1 - s.q)) * rest + 8 * EPS * (Math.abs(A) * (y + s.T) + Math.abs(B)) * r;
   }
   const Ic = Math.min(Math.max(f * aI - images + kv.I, 0), s.Mc * y);
   // the undamping product f * a: exp(beta y) within (1 + beta y) eps, the products within 4 eps

@@ -68,3 +68,36 @@ export function imageTail(
     return b * (1 + 8 * EPS);
   };
 }
+
+/** ratio of the geometric steps of imageIntegralTail's Riemann sum (the first FINE_STEPS, then FAR_RATIO), and their number */
+const INT_RATIO = 1.25;
+const FINE_STEPS = 24;
+const FAR_RATIO = 2;
+const INT_STEPS = 96;
+
+/**
+ * A bound on int_c^inf |G(lo + z) - A| dz (c > 0), what the images of the integrated cdf leave at c: B from imageTail is
+ * non-increasing, so on [z_j, z_{j+1}] the integrand is at most B(z_j) (an upper Riemann sum on z_0 = c, z_{j+1} = 1.25 z_j
+ * for 24 steps, then 2 z_j, so that the last point is far out), and beyond C = z_J at most E[(Y - C)^+] <= second / (4 C)
+ * ((u - C)^+ <= u^2 / (4 C), the bound the images used alone; `second` the second moment about lo of what G holds,
+ * ./damped-transform.ts imageMoments). Every J gives a bound; the least is returned (J = 0 is the second-moment bound
+ * itself), each sum's rounding within (J + 6) eps.
+ */
+export function imageIntegralTail(B: (z: number) => number, c: number, second: number): number {
+  if (!(c > 0)) return Infinity;
+  let best = second / (4 * c);
+  let sum = 0;
+  let z = c;
+  for (let j = 0; j < INT_STEPS; j++) {
+    const b = B(z);
+    if (!Number.isFinite(b)) break;
+    const next = z * (j < FINE_STEPS ? INT_RATIO : FAR_RATIO);
+    sum += b * (next - z);
+    z = next;
+    const cand = sum * (1 + (j + 6) * EPS) + second / (4 * z);
+    if (cand < best) best = cand;
+    // the tail bound alone is already below what the sum holds: more steps cannot lower the total much
+    if (second / (4 * z) < 1e-3 * sum) break;
+  }
+  return best * (1 + 4 * EPS);
+}
