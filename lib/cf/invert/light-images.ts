@@ -15,7 +15,8 @@ const INC_ACC = 1e-13;
  * the inverted part P = (continuous part) / w - kernels.
  *   The law's share: S_c and F_c are non-increasing in m, so each alternating sum lies between 0 and its first term,
  *   and their difference is at most max(S_c(x + T), F_c(x - T)) / w; each tail at most Markov's bound on the even
- *   central moments (./moment-tails.ts), P(|X - mu| >= r) <= E (X - mu)^n / r^n.
+ *   central moments (./moment-tails.ts), P(|X - mu| >= r) <= E (X - mu)^n / r^n, at the order best for the point's own
+ *   distance; an image beyond the support's end (x - T below its start, x + T at or above its end) holds no mass.
  *   The kernels (signed weights b_j, no cancellation assumed): sum_j |b_j| sum_{m >= 1} G_j(r + (m - 1) T), G_j the
  *   gamma(a, rate) tail beyond the distance r from the kernel's endpoint, non-increasing, so the sum is at most
  *   G_j(r) + (1/T) int_r^inf G_j = Q(a, rate r) + (a / (rate T)) Q(a + 1, rate r) (the gamma law's stop-loss transform,
@@ -28,16 +29,25 @@ export function lightAliasAt(model: CompiledModel, sol: PartSolution, w: number)
   const k1 = model.cumulants(1)[0];
   if (k1 === null || !Number.isFinite(k1)) return null;
   const T = sol.window.b - sol.window.a;
-  let mom: MomentBounds | null | undefined;
+  const [slo, shi] = model.support;
+  // every point of the window [a, b] is at least min(b - mu, mu - a) from its nearest image
+  const near = Math.max(Math.min(sol.window.b - k1, k1 - sol.window.a), 0);
   const kernels = sol.part.kernels;
   return (x: number) => {
-    // every point of the window [a, b] is at least min(b - mu, mu - a) from its nearest image
-    if (mom === undefined) mom = momentBounds(model, k1, Math.max(Math.min(sol.window.b - k1, k1 - sol.window.a), 0));
-    if (!mom) return Infinity;
+    // no mass below the support's start or above its end: that side's images add nothing
+    const leftGone = x - T < slo;
+    const rightGone = x + T >= shi;
     const right = x + T - k1;
     const left = k1 - (x - T);
-    if (!(right > 0 && left > 0)) return Infinity;
-    let b = Math.max(markovTail(mom, right, true), markovTail(mom, left, true)) / w;
+    if (!((rightGone || right > 0) && (leftGone || left > 0))) return Infinity;
+    // the moment orders are chosen for this point's own nearest image (./moment-tails.ts adds orders while the bound
+    // there still falls; the orders computed are kept per model)
+    const r0 = Math.max(near, Math.min(rightGone ? Infinity : right, leftGone ? Infinity : left));
+    const mom: MomentBounds | null = leftGone && rightGone ? null : momentBounds(model, k1, Number.isFinite(r0) ? r0 : near);
+    if (!mom && !(leftGone && rightGone)) return Infinity;
+    const tailR = rightGone ? 0 : markovTail(mom!, right, true);
+    const tailL = leftGone ? 0 : markovTail(mom!, left, true);
+    let b = Math.max(tailR, tailL) / w;
     for (const k of kernels) b += kernelImages(k, x, T);
     return b * (1 + 8 * EPS);
   };

@@ -14,6 +14,7 @@ import { dampable } from "./damped";
 import { dampedQuantiles } from "./quantile-damped";
 import { mixtureQuantiles } from "./mixture";
 import { lightAliasAt } from "./light-images";
+import { truncationAt } from "./nodes";
 
 export interface QuantileOptions {
   /** also return the expected shortfall ES_p = q_p + E[(X - q_p)^+] / (1 - p) (TVaR) */
@@ -97,16 +98,24 @@ function lightQuantiles(model: CompiledModel, atoms: Atom[], w: number, p: Float
     1e-9 / w,
   );
   const sol = out.solution!;
-  const errCdf = w * sol.error.cdf + 4 * Number.EPSILON;
+  // the sums' truncation: the terms k >= K carry |phi(t_k)| / (pi (k + 1/2)) <= (h / pi) E(t_k) / t_k with E the envelope
+  // (./nodes.ts) and E(t)/t non-increasing, so h E(t_k)/t_k <= int_{t_k - h}^{t_k} E/t and their sum is at most
+  // (1/pi) int_{(K - 1/2) h}^inf E(t)/t dt: the envelope's tail at the probe at or below (K - 1/2) h (the window's
+  // uniform bound doubles the tail at K h)
+  const tStar = (sol.nodes.K - 0.5) * sol.nodes.h;
+  const trunc = Math.min(sol.error.truncation, truncationAt(sol.envelope, tStar).cdf);
+  const roundCdf = sol.sumErrCdf - sol.error.truncation;
+  // the uniform aliasing is 2 |F_h(a)| plus twice the sums' own error at a (continuous.ts lightPath), that error now the
+  // tighter truncation plus the rounding
+  const aliasCdf = Math.min(sol.error.cdf - sol.sumErrCdf, sol.aliasCore + 2 * (trunc + roundCdf));
+  const errCdf = w * (trunc + roundCdf + aliasCdf) * (1 + 4 * Number.EPSILON) + 4 * Number.EPSILON;
   // per point: the aliasing (./light-images.ts) and the rounding of the phases, which grows with |x - center| (shared.ts
   // roundingOf), where they are below the window's uniform bounds; the truncation is the same everywhere
   const aliasAt = lightAliasAt(model, sol, w);
-  const aliasCdf = sol.error.cdf - sol.sumErrCdf;
-  const roundCdf = sol.sumErrCdf - sol.error.truncation;
   const errAt = (x: number) => {
     const alias = aliasAt ? Math.min(aliasCdf, aliasAt(x)) : aliasCdf;
     const round = Math.min(roundCdf, roundingOf(sol.part, sol.nodes, Math.abs(x - sol.part.center)).cdf);
-    return w * (sol.error.truncation + round + alias) * (1 + 4 * Number.EPSILON) + 4 * Number.EPSILON;
+    return w * (trunc + round + alias) * (1 + 4 * Number.EPSILON) + 4 * Number.EPSILON;
   };
   const ev: Evaluator = {
     eval: solutionAt(sol, atoms, w),

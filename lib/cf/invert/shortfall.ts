@@ -104,10 +104,10 @@ export function shortfallLight(
     // (the old allowance assumed a tail no longer than 8 spreads; the moment bound replaces it wherever it is finite)
     const beyond = tails.right(b);
     // truncation: the terms t_k > t* = (K - 1/2) h of the integrated sum carry |phi_k| |e^{-i t_k b} - e^{-i t_k q}| / t_k^2
-    // <= 2 E(t_k) / t_k^2 with E non-increasing, so their sum is at most (2/pi) int_{t*}^inf E/t^2 <= 2 trunc_cdf(t*) / t*
-    // (doubled as the point bound above is)
+    // <= 2 E(t_k) / t_k^2 with E non-increasing (h g(t_k) <= int_{t_k - h}^{t_k} g for a non-increasing g), so their sum is
+    // at most (2/pi) int_{t*}^inf E/t^2 <= 2 trunc_cdf(t*) / t*
     const tStar = (sol.nodes.K - 0.5) * sol.nodes.h;
-    const truncInt = Math.min(trunc, (4 * truncationAt(sol.envelope, tStar).cdf) / tStar);
+    const truncInt = Math.min(trunc, (2 * truncationAt(sol.envelope, tStar).cdf) / tStar);
     const derived = images + beyond + w * (intRound + truncInt);
     if (Number.isFinite(derived)) body = derived;
   }
