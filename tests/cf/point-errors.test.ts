@@ -2,8 +2,11 @@
 // point on its own. References: the lognormal and weibull cdf and sf in closed form through @stdlib erfc and exp
 // (Klugman, Panjer & Willmot, Loss Models, app. A); each point's actual error at most its own bound, each point bound
 // at most the whole answer's, and a far-tail sf bound relative to the tail.
+import { readFileSync } from "node:fs";
+import { join } from "node:path";
 import { describe, expect, it } from "vitest";
 import erfc from "@stdlib/math-base-special-erfc";
+import gammainc from "@stdlib/math-base-special-gammainc";
 import { compile, density } from "@/lib/cf";
 import type { Model } from "@/lib/cf/types";
 
@@ -44,4 +47,75 @@ describe("per-point error bounds", () => {
       expect(pe.sf[last]).toBeLessThan(d.error.cdf);
     });
   }
+});
+
+// Compounds by the damped inversion: every point's own bound (the sums' error grows with e^{beta (x - lo)}), checked
+// against the Erlang-mixture / closed-form Bessel references of tests/fixtures/compound/compound.json (generate.py
+// beside it, mpmath, its cross-check difference maxCdfDifference) at the fixture's points (the pointwise sums).
+describe("per-point error bounds of the damped inversion (tests/fixtures/compound, mpmath)", () => {
+  interface Case {
+    model: Model;
+    points: { x: number; pdf: number; cdf: number; sf: number }[];
+    crossCheck: { maxCdfDifference: number };
+  }
+  const f = JSON.parse(readFileSync(join(__dirname, "../fixtures/compound/compound.json"), "utf8")) as { exponential: Case[] };
+  for (const c of f.exponential) {
+    it(JSON.stringify(c.model), () => {
+      const m = compile(c.model);
+      const xs = c.points.map((p) => p.x);
+      const ref = c.crossCheck.maxCdfDifference + 1e-16;
+      const r = density(m, { x: xs });
+      const d = r.diagnostics;
+      expect(d.method).toBe("gil-pelaez-damped");
+      const pe = d.pointError!;
+      expect(pe, "point bounds present").toBeDefined();
+      c.points.forEach((p, i) => {
+        const msg = `${JSON.stringify(c.model)} at ${p.x}: cdf ${r.cdf[i]} reference ${p.cdf} sf ${r.sf[i]} reference ${p.sf} pdf ${r.pdf![i]} reference ${p.pdf}; point bounds ${pe.cdf[i]} ${pe.sf[i]} ${pe.pdf[i]}, whole ${d.error.cdf} ${d.error.pdf}`;
+        expect(pe.cdf[i], msg).toBeLessThanOrEqual(d.error.cdf);
+        expect(pe.sf[i], msg).toBeLessThanOrEqual(d.error.cdf);
+        expect(pe.pdf[i], msg).toBeLessThanOrEqual(d.error.pdf!);
+        expect(Math.abs(r.cdf[i] - p.cdf), msg).toBeLessThanOrEqual(pe.cdf[i] + ref);
+        expect(Math.abs(r.sf[i] - p.sf), msg).toBeLessThanOrEqual(pe.sf[i] + ref);
+        expect(Math.abs(r.pdf![i] - p.pdf), msg).toBeLessThanOrEqual(pe.pdf[i] + ref);
+      });
+      // the bound at the nearest point is below the largest one whenever the points spread over the range
+      expect(Math.min(...pe.cdf)).toBeLessThan(Math.max(...pe.cdf));
+    });
+  }
+});
+
+describe("per-point error bounds of the damped inversion on an FFT grid", () => {
+  // Poisson(2)-exponential(1): given N = n >= 1 claims the sum is gamma(n, 1), so F(x) = e^{-2} sum_n 2^n / n! P(n, x)
+  // (the Erlang mixture, Klugman, Panjer & Willmot, Loss Models, compound models with exponential severities), P the
+  // regularised lower incomplete gamma of @stdlib/math-base-special-gammainc, summed until the Poisson weights are
+  // below 1e-20; the reference's own rounding (40 terms of relative accuracy ~1e-15) allowed as 1e-14
+  const lambda = 2;
+  const erlangCdf = (x: number) => {
+    let pn = Math.exp(-lambda);
+    let s = pn;
+    for (let n = 1; n < 200 && pn > 1e-20; n++) {
+      pn *= lambda / n;
+      s += pn * gammainc(x, n);
+    }
+    return s;
+  };
+  it("Poisson(2)-exponential(1) on 0.05 .. 20", () => {
+    const r = density(compile({ compound: { count: { family: "poisson", lambda }, each: { family: "exponential", rate: 1 } } }), {
+      grid: { from: 0.05, to: 20, count: 400 },
+    });
+    const d = r.diagnostics;
+    expect(d.method).toBe("fft-damped");
+    const pe = d.pointError!;
+    expect(pe, "point bounds present").toBeDefined();
+    for (let i = 0; i < r.x.length; i++) {
+      const F = erlangCdf(r.x[i]);
+      const msg = `x = ${r.x[i]}: cdf ${r.cdf[i]} reference ${F}, point bound ${pe.cdf[i]}, whole ${d.error.cdf}`;
+      expect(pe.cdf[i], msg).toBeLessThanOrEqual(d.error.cdf);
+      expect(pe.sf[i], msg).toBeLessThanOrEqual(d.error.cdf);
+      expect(Math.abs(r.cdf[i] - F), msg).toBeLessThanOrEqual(pe.cdf[i] + 1e-14);
+      expect(Math.abs(r.sf[i] - (1 - F)), msg).toBeLessThanOrEqual(pe.sf[i] + 1e-14);
+    }
+    // the sums' error grows with e^{beta (x - lo)}: the first point's bound is below the last one's
+    expect(pe.cdf[0]).toBeLessThan(pe.cdf[r.x.length - 1]);
+  });
 });

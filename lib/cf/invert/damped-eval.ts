@@ -208,14 +208,17 @@ export function dampedGrid(
   const Fc = new Float64Array(count);
   const errF = new Float64Array(count);
   const errf = new Float64Array(count);
+  // the cdf's image bound at y holds at every larger y (aliasCdfAt is non-increasing in y): refreshed every 64 points
+  let alias = s.aliasCdf;
   for (let j = 0; j < count; j++) {
     const y = from + j * dx - s.lo;
     if (y < 0) continue;
+    if ((j & 63) === 0) alias = aliasCdfAt(s, y);
     const g = Math.exp(s.beta * y);
     const kv = takenOutAt(s, from + j * dx);
     Fc[j] = Math.min(Math.max(g * gC[j] + kv.F + s.cdfShift, 0), s.Mc);
     fc[j] = wantPdf ? Math.max(g * gP[j] + kv.f, 0) : 0;
-    errF[j] = g * s.sumCdf + s.aliasCdf + kv.err;
+    errF[j] = g * s.sumCdf + alias + kv.err;
     errf[j] = g * s.sumPdf + s.aliasPdf + kv.errf;
   }
   return { fc, Fc, errF, errf };

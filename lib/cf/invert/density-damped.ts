@@ -2,8 +2,7 @@ import type { Atom, CompiledModel } from "../types";
 import { DAMPED_BUDGET, KERNEL_BUDGET, dampedAt, dampedGrid, dampedPlan, dampedSetup, gridPeriod } from "./damped";
 import { atomMass, type Request } from "./shared";
 import { dampedPoints, pointsPlan } from "./damped-points";
-import type { DensityResult } from "./types";
-
+import type { DensityResult, PointErrors } from "./types";
 
 /**
  * density() for aggregate laws bounded below (compounds and their sums, scales, shifts and mixtures): the damped
@@ -28,10 +27,18 @@ export function dampedDensity(
   const pdf = wantPdf ? new Float64Array(n) : undefined;
   let errF = 0;
   let errf = 0;
+  // every value's own bound (the sums' error grows with e^{beta (x - lo)}, the images' shrink away from lo): the answer's
+  // bound is their largest
+  const ptF = new Float64Array(n);
+  const ptf = new Float64Array(n);
   let method: "fft-damped" | "gil-pelaez-damped";
   let gridSize: number;
   const Mc = Math.max(1 - atoms.reduce((s, a) => s + a.p, 0), 0);
-  const put = (i: number, Fc: number, fc: number) => {
+  const put = (i: number, Fc: number, fc: number, eF: number, ef: number) => {
+    ptF[i] = eF;
+    ptf[i] = ef;
+    errF = Math.max(errF, eF);
+    errf = Math.max(errf, ef);
     const m = atomMass(atoms, xs[i]);
     cdf[i] = Math.min(1, m.below + Fc);
     sf[i] = Math.max(0, m.above + (Mc - Fc));
@@ -48,9 +55,7 @@ export function dampedDensity(
     if (!sol) return null;
     const r = dampedGrid(sol, req.from, req.dx, req.count, g.N, wantPdf);
     for (let i = 0; i < n; i++) {
-      put(i, r.Fc[i], r.fc[i]);
-      errF = Math.max(errF, r.errF[i]);
-      errf = Math.max(errf, r.errf[i]);
+      put(i, r.Fc[i], r.fc[i], r.errF[i], r.errf[i]);
     }
     method = "fft-damped";
     gridSize = g.N;
@@ -62,23 +67,25 @@ export function dampedDensity(
     if (pp) {
       const r = dampedPoints(sol, xs, wantPdf, pp);
       for (let i = 0; i < n; i++) {
-        put(i, r.Fc[i], r.fc[i]);
-        errF = Math.max(errF, r.errF[i]);
-        errf = Math.max(errf, r.errf[i]);
+        put(i, r.Fc[i], r.fc[i], r.errF[i], r.errf[i]);
       }
       notes0.push(`the sums evaluated on an FFT grid of ${pp.N} points and interpolated at each point (${pp.M}-point Lagrange stencil, its remainder bounded from the sums' coefficients)`);
     } else {
       for (let i = 0; i < n; i++) {
         const v = dampedAt(sol, xs[i], wantPdf, false);
-        put(i, v.Fc, v.fc);
-        errF = Math.max(errF, v.errF);
-        errf = Math.max(errf, v.errf);
+        put(i, v.Fc, v.fc, v.errF, v.errf);
       }
     }
     method = "gil-pelaez-damped";
     gridSize = pp ? pp.N : sol.K;
   }
   const amp = Math.exp(sol.beta * (R - lo));
+  // the cdf's and the sf's error are the continuous part's (the atoms are exact); clamping only moves toward the truth
+  const pointError: PointErrors = {
+    pdf: wantPdf ? ptf.map((e) => e + 4 * Number.EPSILON) : new Float64Array(n).fill(NaN),
+    cdf: ptF.map((e) => e + 4 * Number.EPSILON),
+    sf: ptF.map((e) => e + 4 * Number.EPSILON),
+  };
   const notes = [...sol.notes, ...notes0];
   if (errF > tol || (wantPdf && errf > tol)) {
     notes.push(`tolerance ${tol} not reached: cdf bound ${errF.toExponential(2)}, density bound ${errf.toExponential(2)} (truncation and rounding grow by e^{beta (x - lo)} after undamping)`);
@@ -99,14 +106,16 @@ export function dampedDensity(
       range: { from: lo, to: lo + sol.T },
       capturedMass: 1 - sol.aliasCdf,
       error: {
-        aliasing: sol.aliasCdf,
+        // the images' bound is per point (at most each point's whole bound): never above the answer's
+        aliasing: Math.min(sol.aliasCdf, errF),
         truncation: amp * sol.truncCdf,
-        rounding: Math.max(errF - sol.aliasCdf - amp * sol.truncCdf, 0) + 4 * Number.EPSILON,
+        rounding: Math.max(errF - Math.min(sol.aliasCdf, errF) - amp * sol.truncCdf, 0) + 4 * Number.EPSILON,
         pdf: wantPdf ? errf + 4 * Number.EPSILON : NaN,
         cdf: errF + 4 * Number.EPSILON,
       },
       levels: 1,
       notes: [...notes, ...model.notes],
+      pointError,
     },
   };
 }
