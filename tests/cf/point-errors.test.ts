@@ -119,3 +119,36 @@ describe("per-point error bounds of the damped inversion on an FFT grid", () => 
     expect(pe.cdf[0]).toBeLessThan(pe.cdf[r.x.length - 1]);
   });
 });
+
+// The light route (pointwise mid-point sums on one window): each point's cdf and sf bound from its own rounding and
+// aliasing, checked against the lattice-sums references (tests/fixtures/lattice-sums/generate.py beside them, mpmath
+// at 22 digits, each value's second-method difference cdfErr) for the sums with light tails.
+describe("per-point error bounds of the light route (tests/fixtures/lattice-sums, mpmath)", () => {
+  interface Case {
+    model: Model;
+    points: { x: number; cdf: string; sf: string; cdfErr: number }[];
+  }
+  const f = JSON.parse(readFileSync(join(__dirname, "../fixtures/lattice-sums/lattice-sums.json"), "utf8")) as { cases: Case[] };
+  const light = f.cases.filter((c) => !JSON.stringify(c.model).includes("student_t"));
+  expect(light.length).toBeGreaterThanOrEqual(2);
+  for (const c of light) {
+    it(JSON.stringify(c.model), () => {
+      const r = density(compile(c.model), { x: c.points.map((p) => p.x) });
+      const d = r.diagnostics;
+      expect(d.method).toBe("gil-pelaez");
+      const pe = d.pointError!;
+      expect(pe, "point bounds present").toBeDefined();
+      c.points.forEach((p, i) => {
+        const F = Number(p.cdf);
+        const S = Number(p.sf);
+        // the reference's own precision: its second method's difference and the rounding to a double
+        const ref = p.cdfErr + 2.3e-16;
+        const msg = `${JSON.stringify(c.model)} at ${p.x}: cdf ${r.cdf[i]} reference ${F}, sf ${r.sf[i]} reference ${S}; point bounds ${pe.cdf[i]} ${pe.sf[i]}, whole ${d.error.cdf}`;
+        expect(pe.cdf[i], msg).toBeLessThanOrEqual(d.error.cdf);
+        expect(pe.sf[i], msg).toBeLessThanOrEqual(d.error.cdf);
+        expect(Math.abs(r.cdf[i] - F), msg).toBeLessThanOrEqual(pe.cdf[i] + ref);
+        expect(Math.abs(r.sf[i] - S), msg).toBeLessThanOrEqual(pe.sf[i] + ref * Math.max(1, S));
+      });
+    });
+  }
+});

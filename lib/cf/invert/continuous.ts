@@ -112,7 +112,10 @@ export function invertContinuous(model: CompiledModel, atoms: Atom[], req: Reque
         }
       }
       sub.notes.push(`${n - near.length} point(s) far beyond the bulk answered by the tail bounds (cdf 0 or 1, density 0)`);
-      return { ...sub, pdf, cdf, sf };
+      // the far points' values do not come from the solution's sums: marked, so that they keep the uniform bounds
+      const beyond = new Uint8Array(n).fill(1);
+      for (const i of near) beyond[i] = 0;
+      return { ...sub, pdf, cdf, sf, beyond };
     }
   }
   let part = makePart(model, atoms, shape.center);

@@ -9,6 +9,7 @@ import { dampedDensity } from "./density-damped";
 import { mixtureDensity } from "./mixture";
 import { bulkWindow, lawShape } from "./range";
 import { atomMass } from "./shared";
+import { lightPointErrors } from "./light-images";
 import type { DensityOptions, DensityResult, InversionDiagnostics } from "./types";
 
 export const DEFAULT_TOLERANCE = 1e-10;
@@ -112,6 +113,12 @@ export function density(model: CompiledModel, options: DensityOptions = {}): Den
     levels: out.levels,
     notes: [...out.notes, ...model.notes],
   };
+  // the light route's pointwise sums bound each point's cdf and sf on its own (./light-images.ts); the density keeps
+  // the whole answer's bound
+  if (out.method === "gil-pelaez" && out.solution && !lawShape(model).heavy) {
+    const pc = lightPointErrors(model, out.solution, w, xs, diagnostics.error.cdf, out.beyond);
+    if (pc) diagnostics.pointError = { pdf: new Float64Array(n).fill(wantPdf ? diagnostics.error.pdf : NaN), cdf: pc, sf: Float64Array.from(pc) };
+  }
   return { x: Float64Array.from(xs), pdf, cdf, sf, atoms, diagnostics };
 }
 

@@ -1,6 +1,7 @@
 import type { CompiledModel } from "../types";
 import type { EndpointKernels } from "./part";
-import type { PartSolution } from "./shared";
+import { roundingOf, type PartSolution } from "./shared";
+import { truncationAt } from "./nodes";
 import { incGamma } from "./incgamma";
 import { markovTail, momentBounds, type MomentBounds } from "./moment-tails";
 
@@ -73,4 +74,43 @@ export function kernelImages(k: EndpointKernels, x: number, T: number): number {
     s += Math.abs(k.b[j]) * (q0 + (a / (k.rate * T)) * q1);
   }
   return s * (1 + 8 * EPS);
+}
+
+/**
+ * Per-point cdf and sf bounds of a light-route answer from its pointwise sums (continuous.ts lightPath, method
+ * gil-pelaez), each at most the window's uniform bound `wholeCdf` (which stands for points outside the window): the
+ * truncation from the envelope's tail at (K - 1/2) h (the terms k >= K carry at most (h / pi) E(t_k) / t_k with E(t)/t
+ * non-increasing, so their sum is at most (1/pi) int_{(K - 1/2) h}^inf E/t; the window's bound doubles the tail at K h),
+ * the rounding at the point's own distance from the centre (shared.ts roundingOf) and the aliasing at the point
+ * (lightAliasAt above), or the window's 2 |F_h(a)| plus twice the sums' own error there. Scaled by the continuous
+ * part's weight w; points answered by the tail bounds (`beyond`) keep `wholeCdf`; null where the model gives no
+ * per-point aliasing.
+ */
+export function lightPointErrors(
+  model: CompiledModel,
+  sol: PartSolution,
+  w: number,
+  xs: ArrayLike<number>,
+  wholeCdf: number,
+  beyond?: Uint8Array,
+): Float64Array | null {
+  const aliasAt = lightAliasAt(model, sol, w);
+  if (!aliasAt) return null;
+  const { nodes, envelope, part, window } = sol;
+  const truncWindow = 2 * truncationAt(envelope, nodes.K * nodes.h).cdf;
+  const roundWindow = Math.max(sol.sumErrCdf - truncWindow, 0);
+  const trunc = Math.min(truncWindow, truncationAt(envelope, (nodes.K - 0.5) * nodes.h).cdf);
+  const aliasWindow = sol.aliasCore + 2 * (trunc + roundWindow);
+  const out = new Float64Array(xs.length);
+  for (let i = 0; i < xs.length; i++) {
+    const x = xs[i];
+    if (!(x >= window.a && x <= window.b) || beyond?.[i]) {
+      out[i] = wholeCdf;
+      continue;
+    }
+    const round = Math.min(roundWindow, roundingOf(part, nodes, Math.abs(x - part.center)).cdf);
+    const alias = Math.min(aliasWindow, aliasAt(x));
+    out[i] = Math.min(wholeCdf, w * (trunc + round + alias) * (1 + 4 * EPS) + 4 * EPS);
+  }
+  return out;
 }

@@ -54,6 +54,8 @@ export interface PartOutput {
   notes: string[];
   method: "fft" | "gil-pelaez";
   solution: PartSolution | null;
+  /** 1 where the value was answered by the tail bounds instead of the solution's sums (points far beyond the bulk) */
+  beyond?: Uint8Array;
 }
 
 export const EPS = Number.EPSILON;
