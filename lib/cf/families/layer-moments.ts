@@ -42,7 +42,7 @@ function phiE(z: Est, acc: number): Est {
  * times 2 (ln s + 2), which bounds |dP/ds| = |E[ln G; G < z] - P psi(s)| <= E|ln G| + |psi(s)| for s >= 1 (G ~ Gamma(s, 1):
  * E|ln G| <= sqrt(psi'(s) + psi(s)^2), psi'(s) <= 2, |psi(s)| <= ln s + 1; A&S 6.3, 6.4).
  */
-function incGammaE(s: Est, z: Est, upper: boolean, acc: number): Est {
+export function incGammaE(s: Est, z: Est, upper: boolean, acc: number): Est {
   if (z.v === Infinity) return exact(upper ? 0 : 1);
   if (!(z.v > 0)) return exact(upper ? 1 : 0);
   if (!Number.isFinite(z.e) || !Number.isFinite(s.e) || (s.e > 0 && s.v < 1) || z.e > 0.5 * z.v) return INF_E;

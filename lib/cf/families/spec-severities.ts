@@ -13,6 +13,12 @@ import * as CE from "./cumulant-errors";
 import { add, div, estList, exact, mul, rawToCumulantsE, sub } from "../moment-error";
 import { affineLayerMoment, lomaxLayerMoment, withLayerMoment } from "./layer-moments";
 import { betaLayerMoment, generalizedParetoLayerMoment, triangularLayerMoment } from "./layer-moments-shapes";
+import { burrLayerMoment, inverseGammaLayerMoment } from "./layer-moments-transformed";
+
+/** a built node's direct law with layer moments attached (the node keeps everything else) */
+const withLayered = <N extends { dist?: DirectLaw }>(n: N, attach: (d: DirectLaw) => DirectLaw): N => (n.dist ? { ...n, dist: attach(n.dist) } : n);
+/** @stdlib betainc's stated accuracy, as the beta law's cdf states it */
+const BETAINC_ACC = betaDist(1, 1, 0, 1).accuracy;
 
 export const SEVERITY_SPECS: Pick<Record<FamilyName, FamilySpec>, "lomax" | "generalized_pareto" | "burr" | "loglogistic" | "inverse_gaussian" | "inverse_gamma" | "beta" | "pert" | "triangular" | "truncated_normal"> = {
   lomax: {
@@ -81,7 +87,7 @@ export const SEVERITY_SPECS: Pick<Record<FamilyName, FamilySpec>, "lomax" | "gen
     source: "Klugman, Panjer & Willmot, Loss Models (5th ed.), app. A.2.2.2 (Burr); Burr (1942), Ann. Math. Statist. 13, form XII",
     direct: (p) => DS.burrDirect(p.alpha as number, p.gamma as number, p.theta as number),
     layerable: true,
-    build: (p) => withCumulantErrors(burr(p.alpha, p.gamma, p.theta), (m) => rawToCumulantsE(estList(m, p.alpha * p.gamma, CE.burrRawE(p.alpha, p.gamma, p.theta)))),
+    build: (p) => withCumulantErrors(withLayered(burr(p.alpha, p.gamma, p.theta), (d) => withLayerMoment(d, burrLayerMoment(p.alpha, p.gamma, p.theta, BETAINC_ACC, CE.burrRawE(p.alpha, p.gamma, p.theta)))), (m) => rawToCumulantsE(estList(m, p.alpha * p.gamma, CE.burrRawE(p.alpha, p.gamma, p.theta)))),
   },
   loglogistic: {
     name: "loglogistic",
@@ -97,7 +103,7 @@ export const SEVERITY_SPECS: Pick<Record<FamilyName, FamilySpec>, "lomax" | "gen
     source: "Klugman, Panjer & Willmot, Loss Models (5th ed.), app. A.2.2.4 (loglogistic)",
     direct: (p) => DS.burrDirect(1, p.gamma as number, p.theta as number, "log-logistic"),
     layerable: true,
-    build: (p) => withCumulantErrors(burr(1, p.gamma, p.theta, "loglogistic"), (m) => rawToCumulantsE(estList(m, p.gamma, CE.burrRawE(1, p.gamma, p.theta)))),
+    build: (p) => withCumulantErrors(withLayered(burr(1, p.gamma, p.theta, "loglogistic"), (d) => withLayerMoment(d, burrLayerMoment(1, p.gamma, p.theta, BETAINC_ACC, CE.burrRawE(1, p.gamma, p.theta)))), (m) => rawToCumulantsE(estList(m, p.gamma, CE.burrRawE(1, p.gamma, p.theta)))),
   },
   inverse_gaussian: {
     name: "inverse_gaussian",
@@ -128,7 +134,7 @@ export const SEVERITY_SPECS: Pick<Record<FamilyName, FamilySpec>, "lomax" | "gen
     source: "Klugman, Panjer & Willmot, Loss Models (5th ed.), app. A.2.3.3 (inverse gamma); JKB vol. 1, ch. 17",
     direct: (p) => DS.inverseGammaDirect(p.alpha as number, p.theta as number),
     layerable: true,
-    build: (p) => withCumulantErrors(inverseGamma(p.alpha, p.theta), (m) => rawToCumulantsE(estList(m, p.alpha, CE.inverseGammaRawE(p.alpha, p.theta)))),
+    build: (p) => withCumulantErrors(withLayered(inverseGamma(p.alpha, p.theta), (d) => withLayerMoment(d, inverseGammaLayerMoment(p.alpha, p.theta, d.accuracy, CE.inverseGammaRawE(p.alpha, p.theta)))), (m) => rawToCumulantsE(estList(m, p.alpha, CE.inverseGammaRawE(p.alpha, p.theta)))),
   },
   beta: {
     name: "beta",
