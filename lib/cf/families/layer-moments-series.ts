@@ -1,6 +1,6 @@
 /**
  * Partial moments of a Burr XII claim (log-logistic: alpha = 1) at an order j at or past its tail index alpha gamma,
- * over a bounded interval, with a derived bound. There E X^j is infinite and the regularised incomplete beta of
+ * over a bounded interval, with a derived bound (an inverse gamma claim's at the end of the file). There E X^j is infinite and the regularised incomplete beta of
  * ./layer-moments-transformed.ts has q = alpha - j/gamma <= 0, but a limited layer's partial moment is finite:
  *   M_j(a, b) = alpha theta^j  int_{v(a)}^{v(b)} v^{p-1} (1 - v)^{q-1} dv,   p = 1 + j/gamma,  v(x) = U/(1 + U),  U = (x/theta)^gamma
  * (V = U/(1 + U) is Beta(1, alpha): its density alpha (1 - v)^{alpha-1} times X^j = theta^j (v/(1 - v))^{j/gamma}).
@@ -20,7 +20,7 @@
  * factor x^{-delta} for the shape's move delta; at v_min = 0 the p-derivative is bounded by the closed form
  * int_0^x (-ln v) v^{c-1} dv = x^c (1/c^2 - ln(x)/c) times the largest (1 - v)^{q-1}.
  */
-import { add, div, exact, mul, powInt, type Est } from "../moment-error";
+import { add, div, exact, gammaE, mul, powInt, type Est } from "../moment-error";
 import { INF_E } from "./layer-moments";
 
 const U = 2 ** -53;
@@ -149,4 +149,122 @@ export function burrPartialBounded(alpha: number, gamma: number, theta: number, 
   }
   const pre = mul(exact(alpha), powInt(exact(theta), j));
   return mul(pre, { v: I, e: e * UP });
+}
+
+/**
+ * int_{g1}^{g2} g^{s-1} e^{-g} dg for 0 < g1 < g2 <= Infinity and s <= 1, with its bound: the inverse gamma claim's
+ * partial moment at an order at or past its index (s = alpha - j <= 0), where Gamma(s) has no regularised form.
+ * - g <= 1: e^{-g} = sum_k (-g)^k / k! against g^{s-1}; the terms' ratio is at most g_top / (k + 1).
+ * - g >= 1: panels [c, c + h], h <= c/4: g^{s-1} = c^{s-1} sum_k C(s - 1, k) (t/c)^k against int_0^h t^k e^{-t} dt
+ *   = e^{-h} h^{k+1}/(k + 1) sum_i h^i (k+1)!/(k+1+i)! (positive terms); the ratio of the panel's terms is at most
+ *   (1 + |s|/(k + 1)) h/c. Past the last panel, int_C^inf g^{s-1} e^{-g} <= C^{s-1} e^{-C} (g^{s-1} <= C^{s-1}).
+ */
+function gammaKernelIntegral(s: number, g1: number, g2: number): Series {
+  if (!(g2 > g1) || !(g1 > 0) || !(s <= 1)) return { v: NaN, e: Infinity };
+  let v = 0;
+  let e = 0;
+  // head: g in [g1, min(g2, 1)]
+  if (g1 < 1) {
+    const x2 = Math.min(g2, 1);
+    let c = 1;
+    let sum = 0;
+    let mag = 0;
+    let err = 0;
+    let done = false;
+    for (let k = 0; k < MAX_TERMS; k++) {
+      const t = powerIntegral(s + k, g1, x2);
+      const term = c * t.v;
+      if (!Number.isFinite(term)) return { v: NaN, e: Infinity };
+      sum += term;
+      mag += Math.abs(term);
+      err += Math.abs(term) * (t.r + 3 * k + 2) * U;
+      const R = x2 / (k + 2);
+      const tail = (Math.abs(term) * R) / (1 - R);
+      if (tail <= U * Math.abs(sum)) {
+        err += tail * 1.01 + (k + 1) * U * mag;
+        done = true;
+        break;
+      }
+      c *= -1 / (k + 1);
+    }
+    if (!done) return { v: NaN, e: Infinity };
+    v += sum;
+    e += err;
+  }
+  // body: panels from max(g1, 1)
+  let c = Math.max(g1, 1);
+  for (let panel = 0; panel < MAX_TERMS && c < g2; panel++) {
+    // what is left past c is at most c^{s-1} e^{-c}: stop once it is below the sum's last digit
+    const rest = Math.pow(c, s - 1) * Math.exp(-c);
+    if (g2 === Infinity && rest <= U * Math.abs(v)) {
+      e += rest * 1.01;
+      return { v, e: (e + U * Math.abs(v)) * UP };
+    }
+    const next = Math.min(c + c / 4, g2);
+    const h = next - c; // exact: next <= 2c
+    const pre = rest; // c^{s-1} e^{-c}
+    let coef = 1; // C(s - 1, k) / c^k
+    let sum = 0;
+    let mag = 0;
+    let err = 0;
+    let done = false;
+    const eh = Math.exp(-h);
+    let hk1 = h; // h^{k+1}
+    for (let k = 0; k < MAX_TERMS; k++) {
+      // G_k = int_0^h t^k e^{-t} dt = e^{-h} h^{k+1}/(k + 1) S_k, S_k = sum_i h^i (k+1)!/(k+1+i)! <= e^h
+      let Sk = 1;
+      let term = 1;
+      let i = 0;
+      for (; i < MAX_TERMS; i++) {
+        term *= h / (k + 2 + i);
+        Sk += term;
+        if (term <= U * Sk * (1 - h / (k + 3 + i))) break;
+      }
+      // the series' remainder after term i is at most term h/(k + 3 + i) / (1 - h/(k + 3 + i))
+      const q = h / (k + 3 + i);
+      const Gk = (eh * hk1 * Sk * (1 + (term * q) / (1 - q) / Sk)) / (k + 1);
+      const b = coef * Gk;
+      sum += b;
+      mag += Math.abs(b);
+      err += Math.abs(b) * (3 * i + 4 * k + 20) * U + Math.abs(coef) * ((eh * hk1 * term * q) / (1 - q) / (k + 1));
+      const R = ((1 + Math.abs(s) / (k + 1)) * h) / c;
+      if (R < 1) {
+        const tail = (Math.abs(b) * R) / (1 - R);
+        if (tail <= U * Math.abs(sum)) {
+          err += tail * 1.01 + (k + 1) * U * mag;
+          done = true;
+          break;
+        }
+      }
+      coef *= (s - 1 - k) / ((k + 1) * c);
+      hk1 *= h;
+    }
+    if (!done || !Number.isFinite(sum)) return { v: NaN, e: Infinity };
+    v += pre * sum;
+    e += pre * (err + 12 * U * Math.abs(sum));
+    c = next;
+  }
+  if (c < g2) return { v: NaN, e: Infinity };
+  return { v, e: (e + U * Math.abs(v)) * UP };
+}
+
+/**
+ * M_j(a, b) of inverse gamma(alpha, theta) for a finite b, any order j >= 1: theta^j / Gamma(alpha) int_{theta/b}^{theta/a}
+ * g^{s-1} e^{-g} dg with s = alpha - j (G = theta/X is Gamma(alpha, 1)); za, zb the ends theta/a, theta/b as estimates
+ */
+export function inverseGammaPartialBounded(alpha: number, theta: number, j: number, za: Est, zb: Est): Est {
+  const s = add(exact(alpha), exact(-j));
+  if (!(s.v <= 1) || !(zb.v > 0) || !Number.isFinite(zb.e) || !(zb.v - zb.e > 0)) return INF_E;
+  const top = za.v;
+  if (top !== Infinity && !(Number.isFinite(za.e) && za.v - za.e > 0)) return INF_E;
+  const I = gammaKernelIntegral(s.v, zb.v, top);
+  if (!Number.isFinite(I.v) || !Number.isFinite(I.e)) return INF_E;
+  // the ends' rounding: the integrand falls (s <= 1), so its largest over [z - e, z + e] is at z - e
+  const kernel = (g: number) => Math.pow(g, s.v - 1) * Math.exp(-g);
+  let e = I.e + 2 * kernel(zb.v - zb.e) * zb.e + (top === Infinity ? 0 : 2 * kernel(za.v - za.e) * za.e);
+  // a rounded shape: |dI/ds| <= |ln min(z_b, 1)| I + int_1^inf ln(g) g^{s-1} e^{-g} dg, the last <= int_1^inf g e^{-g} dg = 2/e < 1
+  // (ln g <= g, s <= 1), times g^{-delta} for the move delta
+  if (s.e > 0) e += s.e * (Math.abs(Math.log(Math.min(zb.v - zb.e, 1))) * (I.v + I.e) + 1) * Math.pow(Math.min(zb.v - zb.e, 1), -s.e) * 1.01;
+  const pre = div(powInt(exact(theta), j), gammaE(alpha));
+  return mul(pre, { v: I.v, e: e * UP });
 }

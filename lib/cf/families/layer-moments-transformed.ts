@@ -14,7 +14,8 @@
  * form: a Burr claim's partial moment over a bounded interval then goes by the series of ./layer-moments-series.ts,
  * which also takes every bounded interval with 0 < q <= 1 (there the incomplete beta's stated accuracy, relative to
  * E X^j with Gamma(q) large, bounded a log-logistic(1.2) layer's mean only to 1e-8 relative; the series to 1e-14);
- * an inverse gamma claim's is given without a bound there (INF), which the layer reports as a null error.
+ * an inverse gamma claim's over a bounded interval with s <= 1 goes by the series and panels there too. Over an
+ * unbounded interval such an order's moment is infinite (INF: the layer reports it as not existing or unbounded).
  *
  * The incomplete beta at an argument that is itself rounded (v = u/(1 + u), w = 1/(1 + u), u = (x/theta)^gamma):
  * the stated accuracy of I times its value, plus the Beta(p, q) density's maximum over the argument's interval times
@@ -27,7 +28,7 @@ import betainc from "@stdlib/math-base-special-betainc";
 import { add, div, exact, mul, pow, sub, type Est } from "../moment-error";
 import { lgamma } from "./special";
 import { incGammaE, INF_E, layerMomentFrom, type LayerMoment, type Partial } from "./layer-moments";
-import { burrPartialBounded } from "./layer-moments-series";
+import { burrPartialBounded, inverseGammaPartialBounded } from "./layer-moments-series";
 
 /** one ulp of slack on a bound computed in floating point */
 const UP = 1 + 2 ** -40;
@@ -114,9 +115,10 @@ export function inverseGammaPartial(alpha: number, theta: number, acc: number, r
     lo: 0,
     partial(j, a, b) {
       const s = sub(exact(alpha), exact(j));
-      if (!(s.v - s.e > 0)) return INF_E;
       const za = zOf(a); // the larger z
       const zb = zOf(b);
+      // at or past the index (finite only over a bounded interval), or s <= 1 there: by series (module comment)
+      if (!(s.v - s.e > 0) || (b !== Infinity && s.v <= 1)) return b === Infinity ? INF_E : inverseGammaPartialBounded(alpha, theta, j, za, zb);
       // X in (a, b] is G in [theta/b, theta/a): P(s, za) - P(s, zb), or Q(s, zb) - Q(s, za) when both are past s
       const upper = zb.v > s.v;
       const diff = upper ? sub(incGammaE(s, zb, true, acc), incGammaE(s, za, true, acc)) : sub(incGammaE(s, za, false, acc), incGammaE(s, zb, false, acc));
