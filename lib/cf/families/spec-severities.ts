@@ -14,6 +14,7 @@ import { add, div, estList, exact, mul, rawToCumulantsE, sub } from "../moment-e
 import { affineLayerMoment, lomaxLayerMoment, withLayerMoment } from "./layer-moments";
 import { betaLayerMoment, generalizedParetoLayerMoment, triangularLayerMoment } from "./layer-moments-shapes";
 import { burrLayerMoment, inverseGammaLayerMoment } from "./layer-moments-transformed";
+import { inverseGaussianLayerMoment } from "./layer-moments-ig";
 
 /** a built node's direct law with layer moments attached (the node keeps everything else) */
 const withLayered = <N extends { dist?: DirectLaw }>(n: N, attach: (d: DirectLaw) => DirectLaw): N => (n.dist ? { ...n, dist: attach(n.dist) } : n);
@@ -118,7 +119,7 @@ export const SEVERITY_SPECS: Pick<Record<FamilyName, FamilySpec>, "lomax" | "gen
     source: "Johnson, Kotz & Balakrishnan vol. 1, ch. 15, eqs. 15.4-15.6",
     direct: (p) => DS.inverseGaussianDirect(p.mu as number, p.lambda as number),
     layerable: true,
-    build: (p) => withCumulantErrors(inverseGaussian(p.mu, p.lambda), CE.inverseGaussianE(p.mu, p.lambda)),
+    build: (p) => withCumulantErrors(withLayered(inverseGaussian(p.mu, p.lambda), (d) => withLayerMoment(d, inverseGaussianLayerMoment(p.mu, p.lambda))), CE.inverseGaussianE(p.mu, p.lambda)),
   },
   inverse_gamma: {
     name: "inverse_gamma",
