@@ -19,7 +19,10 @@ describe("the concurrency cap across instances", () => {
     const running = Array.from({ length: cap }, () =>
       supertest(app).post("/api/v1/quantiles").set("authorization", `Bearer ${o.secret}`).set("content-type", "application/json").send(JSON.stringify(HEAVY)).then((r) => r),
     );
-    await new Promise((r) => setTimeout(r, 400));
+    // wait until both computations hold their leases (a fixed pause raced the in-process requests on a loaded machine)
+    const held = `sumfold:conc:key:${o.key.id}`;
+    for (let i = 0; i < 200 && Number(await leaseRedis().zcard(held)) < cap; i++) await new Promise((r) => setTimeout(r, 25));
+    expect(Number(await leaseRedis().zcard(held)), "the running computations hold the key's slots").toBe(cap);
     const other = await fetch(`${base}/api/v1/moments`, { method: "POST", headers: { authorization: `Bearer ${o.secret}`, "content-type": "application/json" }, body: JSON.stringify(CHEAP) });
     const body = (await other.json()) as { type?: string };
     expect(other.status, JSON.stringify(body)).toBe(429);
