@@ -5,6 +5,16 @@ export const EPS = Number.EPSILON;
 export const ELEM = 32 * EPS;
 export const SPECIAL = 1e-12;
 export const SQRT2PI = Math.sqrt(2 * Math.PI);
+
+/**
+ * A bound on |d log erfcx(y')/dy'| for every y' >= yLo (clamped at 0): erfcx'/erfcx = 2y - 2/(sqrt(pi) erfcx(y)), and
+ * 1/(y + sqrt(y^2 + 2)) < e^{y^2} int_y^inf e^{-t^2} dt <= 1/(y + sqrt(y^2 + 4/pi)) (A&S 7.1.13) put it in
+ * (y - sqrt(y^2 + 2), y - sqrt(y^2 + 4/pi)], so its size is below 2/(y + sqrt(y^2 + 2)) (at most sqrt 2), which falls in y.
+ */
+export function logErfcxSlope(yLo: number): number {
+  const y = Math.max(0, yLo);
+  return 2 / (y + Math.sqrt(y * y + 2));
+}
 const NOTE = "evaluated from the family's closed form or special functions; no CF inversion";
 
 export type Fill = (x: number, o: DirectPoint) => void;

@@ -4,7 +4,7 @@ import gammainc from "@stdlib/math-base-special-gammainc";
 import gammaincinv from "@stdlib/math-base-special-gammaincinv";
 import { lgamma } from "../families/special";
 import type { DirectLaw } from "./types";
-import { bounds, ELEM, EPS, law, SPECIAL } from "./law";
+import { bounds, ELEM, EPS, law, logErfcxSlope, SPECIAL } from "./law";
 
 /**
  * Direct laws of the claim-size families with closed-form or special-function distribution functions: lomax,
@@ -186,8 +186,8 @@ export function inverseGaussianDirect(mu: number, lambda: number): DirectLaw {
       const rga = Math.abs(a) * ea + 2 * EPS;
       const yb = b / Math.SQRT2;
       const xb = erfcx(yb);
-      // |d log erfcx(y)/dy| <= 6y + 3 for y >= 0 (erfcx' = 2y erfcx - 2/sqrt(pi), erfcx(y) >= 1/(sqrt(pi)(y + sqrt(y^2 + 2))))
-      const rxb = ELEM + ((6 * yb + 3) * eb) / Math.SQRT2;
+      // log erfcx's slope over the argument's interval (./law.ts logErfcxSlope, A&S 7.1.13: below sqrt 2)
+      const rxb = ELEM + logErfcxSlope(yb - eb / Math.SQRT2) * (eb / Math.SQRT2) * 1.01;
       const T = 0.5 * xb * ga;
       const eT = T * (rxb + rga + EPS);
       o.pdf = (r / (x * SQ2PI)) * ga;
@@ -195,7 +195,7 @@ export function inverseGaussianDirect(mu: number, lambda: number): DirectLaw {
       if (a >= 0) {
         const ya = a / Math.SQRT2;
         const xa = erfcx(ya);
-        const exa = xa * (ELEM + ((6 * ya + 3) * ea) / Math.SQRT2);
+        const exa = xa * (ELEM + logErfcxSlope(ya - ea / Math.SQRT2) * (ea / Math.SQRT2) * 1.01);
         o.sf = Math.max(0.5 * ga * (xa - xb), 0);
         o.sfErr = 0.5 * ga * (exa + xb * rxb) + o.sf * (rga + 2 * EPS) + EPS * T;
         const lowA = 0.5 * erfc(a / Math.SQRT2); // Phi(-a)

@@ -11,26 +11,15 @@
  * (common practice: integration by parts of the generalised inverse Gaussian kernel). Every step is carried in
  * running-error arithmetic (../moment-error.ts). Below the mean the lower pieces are used, above it the upper ones, so
  * a tail interval keeps its digits. erfc and erfcx are taken at ELEM (32 eps) relative as in ../direct/severities.ts,
- * their arguments' rounding as there, except that log erfcx's slope is bounded by A&S 7.1.13 (below sqrt 2) rather
- * than by 6y + 3.
+ * their arguments' rounding as there (log erfcx's slope by ../direct/law.ts logErfcxSlope, A&S 7.1.13).
  */
 import erfc from "@stdlib/math-base-special-erfc";
 import erfcx from "@stdlib/math-base-special-erfcx";
 import { add, div, exact, mul, powInt, sub, type Est } from "../moment-error";
-import { ELEM, EPS } from "../direct/law";
+import { ELEM, EPS, logErfcxSlope } from "../direct/law";
 import { INF_E, layerMomentFrom, type LayerMoment, type Partial } from "./layer-moments";
 
 const SQ2PI = Math.sqrt(2 * Math.PI);
-
-/**
- * |d log erfcx(y)/dy| at every y' >= y_lo (y_lo clamped at 0): erfcx'/erfcx = 2y - 2/(sqrt(pi) erfcx(y)), and
- * 1/(y + sqrt(y^2 + 2)) < e^{y^2} int_y^inf e^{-t^2} dt <= 1/(y + sqrt(y^2 + 4/pi)) (A&S 7.1.13) put it in
- * (y - sqrt(y^2 + 2), y - sqrt(y^2 + 4/pi)], so its size is below 2/(y + sqrt(y^2 + 2)), which falls in y
- */
-function logErfcxSlope(yLo: number): number {
-  const y = Math.max(0, yLo);
-  return 2 / (y + Math.sqrt(y * y + 2));
-}
 
 /** the pieces at one point x > 0 (finite): lower Phi(A) + T and mu (Phi(A) - T), upper Phi(-A) - T and mu (Phi(-A) + T), f(x) */
 interface Point {
