@@ -150,7 +150,7 @@ export function layerNode(X: Node, terms: Partial<LayerTerms>): Node {
     },
     notes: [
       ...X.notes.filter((n) => !/CF computed/.test(n)),
-      `per-claim layer CF by a Filon-type rule on the claim density (Legendre interpolant on each panel, integrated exactly against e^{ist}; error measured per panel)${cut > 0 ? `; claim mass beyond ${d + L} left out: ${cut.toExponential(2)}` : ""}; ${dist.layerMoment ? "moments in closed form from the claim law's partial moments, each with a derived bound (an order the closed form does not reach, at or past the claim's tail index, by composite Gauss-Legendre quadrature without one)" : "moments by composite Gauss-Legendre quadrature, without a derived bound"}`,
+      `per-claim layer CF by a Filon-type rule on the claim density (Legendre interpolant on each panel, integrated exactly against e^{ist}; error measured per panel)${cut > 0 ? `; claim mass beyond ${d + L} left out: ${cut.toExponential(2)}` : ""}; ${dist.layerMoment ? "moments in closed form from the claim law's partial moments, each with a derived bound (where none can be formed, e.g. a rounded argument next to a pole, the moment by composite Gauss-Legendre quadrature without one)" : "moments by composite Gauss-Legendre quadrature, without a derived bound"}`,
     ],
     location: mean ?? c * Math.min(l, scaleX),
     scale: mean !== null && m2 !== null ? Math.sqrt(Math.max(m2 - mean * mean, 0)) || c * scaleX : c * Math.min(l, scaleX),
