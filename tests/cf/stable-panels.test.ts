@@ -6,6 +6,7 @@
 import { describe, expect, it } from "vitest";
 import { gaussLegendre } from "@/lib/cf/direct/stable-panel-store";
 import { oneBox } from "@/lib/cf/direct/stable-far";
+import { oneTightBox } from "@/lib/cf/direct/stable-box";
 import { stableSide } from "@/lib/cf/direct/stable-kernel";
 import { close } from "./model-assert";
 
@@ -59,7 +60,11 @@ function logV(beta: number, from: 0 | 1, u: C): C {
 }
 
 describe("rectangle bounds on log V (alpha = 1)", () => {
-  it("hold at points inside random rectangles (seeded), both ends, beta from 0.01 to 1", () => {
+  it.each([
+    ["the factor-by-factor bounds (oneBox)", oneBox],
+    ["the centred second-order enclosure alone (stable-box.ts)", (beta: number) => oneTightBox(beta, () => false)],
+    ["the two intersected (the panels' box)", (beta: number) => oneTightBox(beta, oneBox(beta))],
+  ] as const)("%s hold at points inside random rectangles (seeded), both ends, beta from 0.01 to 1", (_name, boxOf) => {
     let seed = 12345;
     const rnd = () => {
       seed = (seed * 1103515245 + 12345) % 2147483648;
@@ -68,7 +73,7 @@ describe("rectangle bounds on log V (alpha = 1)", () => {
     const out = { rLo: 0, rHi: 0, iMax: 0 };
     let checked = 0;
     for (const beta of [0.01, 0.1, 0.5, 0.9, 1]) {
-      const box = oneBox(beta);
+      const box = boxOf(beta);
       for (let r = 0; r < 300; r++) {
         const from = (r & 1) as 0 | 1;
         // rectangles from near an end (u down to 1e-6) to the middle, of relative width up to one half

@@ -2,6 +2,7 @@ import { stableSide, type StableSide } from "./stable-kernel";
 import type { StableIntegrals } from "./stable-integral";
 import { stablePanels } from "./stable-panels";
 import { sinRange, type Box, type PanelSide } from "./stable-panel-store";
+import { oneTightBox } from "./stable-box";
 
 const HALF_PI = Math.PI / 2;
 
@@ -194,7 +195,7 @@ function panelSideFor(beta: number): PanelSide {
   let p = panelSides.get(beta);
   if (!p) {
     if (panelSides.size > 64) panelSides.clear();
-    p = { side: sideFor(beta), box: oneBox(beta) };
+    p = { side: sideFor(beta), box: oneTightBox(beta, oneBox(beta)) };
     panelSides.set(beta, p);
   }
   return p;

@@ -73,6 +73,9 @@ export const R_COARSE = 0;
 /** where Re v <= R_FAR over a panel's rectangle, K(v) = e^v to within e^(2 R_FAR) = 7e-13 relative (of a part that is itself small) */
 export const R_FAR = -14;
 
+/** |log V - wRef| up to which a node keeps e^(log V - wRef), so that e^v = e^lh e^(log V - wRef) takes one product */
+export const EV_MAX = 600;
+
 /** One panel [lo, lo + 2 hl] of u: its rectangle's bounds on log V and its nodes. */
 export interface Panel {
   lo: number;
@@ -80,11 +83,15 @@ export interface Panel {
   rLo: number;
   rHi: number;
   iMax: number;
-  /** per node: u, log V - wRef, |d log V / du|, the magnitude of log V's parts */
-  u: Float64Array;
+  /**
+   * per node: log V - wRef; e^(log V - wRef) where |log V - wRef| <= EV_MAX (else NaN); the weight hl w_i; the part of
+   * the bound on the error of v that does not depend on log h: 4 eps (magnitude of log V's parts) for their rounding
+   * plus 2 eps (u + 2 hl) |d log V / du| for the node's position (the computed Gauss-Legendre node is off by a few eps of hl)
+   */
   lv: Float64Array;
-  d: Float64Array;
-  mag: Float64Array;
+  elv: Float64Array;
+  wt: Float64Array;
+  dv0: Float64Array;
   /** the rule's sum of V e^-rHi over the panel (for the far left, where K(v) = e^v to within e^2v) and its error bound */
   J: number;
   eJ: number;
@@ -93,7 +100,7 @@ export interface Panel {
 function makePanel(ps: PanelSide, from: 0 | 1, lo: number, hl: number, bx: Box): Panel {
   const { x: gx } = gaussLegendre();
   const o = { lv: 0, d: 0, mag: 0 };
-  const p: Panel = { lo, hl, rLo: bx.rLo, rHi: bx.rHi, iMax: bx.iMax, u: new Float64Array(NODES), lv: new Float64Array(NODES), d: new Float64Array(NODES), mag: new Float64Array(NODES), J: 0, eJ: 0 };
+  const p: Panel = { lo, hl, rLo: bx.rLo, rHi: bx.rHi, iMax: bx.iMax, lv: new Float64Array(NODES), elv: new Float64Array(NODES), wt: new Float64Array(NODES), dv0: new Float64Array(NODES), J: 0, eJ: 0 };
   const m = lo + hl;
   const { w: gw } = gaussLegendre();
   // |V e^-rHi| <= 1 on the rectangle: Theorem 19.3 with M = 1, plus each node's rounding (as in panel())
@@ -102,13 +109,13 @@ function makePanel(ps: PanelSide, from: 0 | 1, lo: number, hl: number, bx: Box):
   for (let i = 0; i < NODES; i++) {
     const u = m + hl * gx[i];
     ps.side.logV(from, u, o);
-    p.u[i] = u;
     p.lv[i] = o.lv;
-    p.d[i] = Math.abs(o.d);
-    p.mag[i] = o.mag;
+    p.elv[i] = Math.abs(o.lv) <= EV_MAX ? Math.exp(o.lv) : NaN;
+    p.wt[i] = hl * gw[i];
+    p.dv0[i] = 4 * Number.EPSILON * o.mag + 2 * Number.EPSILON * (u + 2 * hl) * Math.abs(o.d);
     const t = hl * gw[i] * Math.exp(o.lv + ps.side.wRef - bx.rHi);
     J += t;
-    eJ += t * (4 * Number.EPSILON * (o.mag + Math.abs(bx.rHi) + 1) + 2 * Number.EPSILON * (u + 2 * hl) * p.d[i] + 8 * Number.EPSILON);
+    eJ += t * (4 * Number.EPSILON * (Math.abs(bx.rHi) + 1) + p.dv0[i] + 8 * Number.EPSILON);
   }
   p.J = J;
   p.eJ = eJ + NODES * Number.EPSILON * J;

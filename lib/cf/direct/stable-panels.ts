@@ -1,5 +1,5 @@
 import type { StableIntegrals } from "./stable-integral";
-import { AF, NODES, R_COARSE, R_FAR, THM, V1, gaussLegendre, type Panel, PanelStore, type PanelSide } from "./stable-panel-store";
+import { EV_MAX, NODES, R_COARSE, R_FAR, THM, V1, type Panel, PanelStore, type PanelSide } from "./stable-panel-store";
 
 /**
  * The integrals of the stable representation in theta itself (./stable-integral.ts):
@@ -41,7 +41,6 @@ function kernelAt(v: number): number {
 
 /** The nodes of panel p at log h (lhAbs), added to acc with the panel's bound (Theorem 19.3) and the nodes' rounding. */
 function panel(p: Panel, lhAbs: number, lh: number, acc: Sums): void {
-  const { w: gw } = gaussLegendre();
   const hl = p.hl;
   const rLo = lhAbs + p.rLo;
   const rHi = lhAbs + p.rHi;
@@ -50,25 +49,31 @@ function panel(p: Panel, lhAbs: number, lh: number, acc: Sums): void {
   const M0 = c >= 0 ? Math.exp(-Math.exp(rLo) * c) : Math.exp(-Math.exp(rHi) * c);
   const eh = Math.exp(rHi);
   const M1 = Math.min(1 + M0, eh * (c >= 0 ? 1 : Math.exp(-eh * c)));
+  // e^v as e^lh e^(log V - wRef) (one more rounding, 2 eps relative, counted in the rounding of v below) where both
+  // factors are in range
+  const elh = Math.abs(lh) <= EV_MAX ? Math.exp(lh) : NaN;
+  const dvh = 4 * Number.EPSILON * (Math.abs(lh) + 1);
   let s0 = 0, s1 = 0, sp = 0, q0 = 0, q1 = 0, qp = 0;
+  const { lv, elv, wt, dv0 } = p;
   for (let i = 0; i < NODES; i++) {
-    const v = lh + p.lv[i];
-    const ev = Math.exp(v);
+    const v = lh + lv[i];
+    const e = elh * elv[i];
+    const ev = e === e ? e : Math.exp(v);
     const f0 = Math.exp(-ev);
     // 1 - f0 has no cancellation once f0 <= 1/2
     const f1 = ev < 0.7 ? -Math.expm1(-ev) : 1 - f0;
     const fp = ev * f0;
-    const W = hl * gw[i];
+    const W = wt[i];
     s0 += W * f0;
     s1 += W * f1;
     sp += W * fp;
-    // error of v: rounding of log V and of lh + lv, and of the node's position (the computed Gauss-Legendre node is off
-    // by a few eps of hl); |d f / d v| is K for f0 and f1 and K |1 - e^v| for Ip; plus the rounding of exp, expm1, the
-    // products and the computed weight (8 eps)
-    const dv = 4 * Number.EPSILON * (p.mag[i] + Math.abs(lh) + Math.abs(v)) + 2 * Number.EPSILON * (p.u[i] + 2 * hl) * p.d[i];
-    q0 += W * (fp * dv + 8 * Number.EPSILON * f0);
-    q1 += W * (fp * dv + 8 * Number.EPSILON * f1);
-    qp += W * (fp * (Math.abs(1 - ev) * dv + 8 * Number.EPSILON));
+    // error of v: rounding of log V and of lh + lv, and of the node's position (dv0, stored); |d f / d v| is K for f0
+    // and f1 and K |1 - e^v| for Ip; plus the rounding of exp, expm1, the products and the computed weight (8 eps)
+    const dv = dv0[i] + dvh + 4 * Number.EPSILON * Math.abs(v);
+    const t = W * fp * dv;
+    q0 += t + W * 8 * Number.EPSILON * f0;
+    q1 += t + W * 8 * Number.EPSILON * f1;
+    qp += W * fp * (Math.abs(1 - ev) * dv + 8 * Number.EPSILON);
   }
   const t = hl * THM;
   acc.i0 += s0;
@@ -124,15 +129,30 @@ function half(st: PanelStore, lhAbs: number, V0: number, acc: Sums): boolean {
   const vDown = (lv: number, mag: number) => lh + lv - 8 * Number.EPSILON * (mag + Math.abs(lh) + Math.abs(lv));
   const vUp = (lv: number, mag: number) => lh + lv + 8 * Number.EPSILON * (mag + Math.abs(lh) + Math.abs(lv));
   // from the middle towards the end, v falls (low end) or rises (high end); skip the panels wholly beyond the window
-  let k = 0;
   const rising = st.from === 1;
-  for (;;) {
+  // v over panel k lies between v(hi_k) and v(lo_k): the window starts at the first panel that can reach [V0, V1]
+  // (monotone in k: bisection over the stored panels, then a walk with extensions)
+  const reaches = (k: number) => {
     const e = st.lvLo(k);
-    const vEnd = rising ? vUp(e[0], e[1]) : vDown(e[0], e[1]);
-    // v over panel k lies between v(hi_k) and v(lo_k): the window starts where it can reach [V0, V1]
-    if (rising ? vEnd > V0 : vEnd < V1) break;
-    k++;
-    if (k >= st.n && !st.extend()) return false;
+    return rising ? vUp(e[0], e[1]) > V0 : vDown(e[0], e[1]) < V1;
+  };
+  let k = 0;
+  const last = st.n - 2;
+  if (last >= 0 && reaches(last)) {
+    let a = -1;
+    k = last;
+    while (k - a > 1) {
+      const m = (a + k) >> 1;
+      if (reaches(m)) k = m;
+      else a = m;
+    }
+  } else {
+    k = Math.max(0, last + 1);
+    for (;;) {
+      if (k >= st.n && !st.extend()) return false;
+      if (reaches(k)) break;
+      k++;
+    }
   }
   // [hi_k, L/2] lies beyond the window: v <= v(hi_k) <= V0 (high end) or v >= v(hi_k) >= V1 (low end)
   const hiK = k === 0 ? L2 : st.panels[k - 1].lo;

@@ -22,7 +22,7 @@ const HALF_PI = Math.PI / 2;
  * alpha = 1 (beta > 0): F = I0/pi, sf = I1/pi, f = Ip / (2 beta), log h = -pi z / (2 beta).
  * z < 0 reflects (z, beta) -> (-z, -beta) and swaps F and sf. I0, I1, Ip: see ./stable-integral.ts.
  * The integrals come from Gauss-Legendre panels in theta with a derived error bound (./stable-panels.ts) for
- * |alpha - 1| >= 0.1, and for alpha = 1 with beta < 1 and |log h| <= 4000. Elsewhere, and where the panels' bound is above
+ * |alpha - 1| >= 0.1, and for alpha = 1 with beta < 1 and |log h| <= 4000 (the body included). Elsewhere, and where the panels' bound is above
  * 1e-11 of a value (light tails next to a finite end), the errors are estimates: the Gauss rule in log V next to
  * alpha = 1 (./stable-near-one.ts) and far out at alpha = 1 (./stable-far.ts), else the grid (./stable-integral.ts).
  */
@@ -71,8 +71,15 @@ export function stableDirect(alpha: number, beta: number, scale: number, loc: nu
   };
 }
 
+/** whether the last point stdAt answered carries a derived bound ("derived") or an estimated one ("estimate"): for scripts/stable-routes.ts */
+let lastRoute: "derived" | "estimate" = "derived";
+export function stableLastRoute(): "derived" | "estimate" {
+  return lastRoute;
+}
+
 /** Standard S1 stable (scale 1, location 0) at z. */
 export function stdAt(alpha: number, beta: number, z: number, out: DirectPoint): void {
+  lastRoute = "derived";
   if (alpha === 1) {
     if (beta < 0) {
       oneAt(-beta, -z, out);
@@ -165,6 +172,7 @@ function sideAt(alpha: number, beta: number, z: number, out: DirectPoint) {
   const panels = Math.abs(alpha - 1) >= PANELS_MIN_DIST ? stablePanels(panelSideOf(alpha, beta), lh, 1e-11) : null;
   const near = panels ? null : stableNearOne(alpha, beta, lh);
   const r = panels ?? near ?? stableIntegrals(alpha, beta, lh);
+  if (!panels) lastRoute = "estimate";
   const pref = alpha / (Math.PI * Math.abs(alpha - 1) * z);
   out.pdf = pref * r.Ip;
   out.pdfErr = pref * r.ep + 4 * Number.EPSILON * out.pdf;
@@ -192,20 +200,19 @@ function sideAt(alpha: number, beta: number, z: number, out: DirectPoint) {
   clamp(out);
 }
 
-/** |log h| from and up to which alpha = 1 tries the panels */
+/** |log h| up to which alpha = 1 tries the panels */
 const PANELS_MAX_LH = 4000;
-const PANELS_MIN_LH = 60;
 
 function oneAt(beta: number, z: number, out: DirectPoint) {
   const lh = (-Math.PI * z) / (2 * beta);
-  // Gauss-Legendre panels in theta with derived bounds (./stable-panels.ts) for PANELS_MIN_LH <= |log h| <= PANELS_MAX_LH
-  // and beta < 1; beyond (where the rounding of log h + log V, eps |log h| in v, pushes their bound above 1e-11 of a
-  // value), where the bound is above that anyway, or at beta = 1 (a finite end), the Gauss rule in log V far out
-  // (./stable-far.ts); the body takes the grid: both with estimated errors. The panels serve the body too (bound/actual
-  // within the audit), but there the rectangles' bound on Re(P cot u) is loose, the fine panels many, and 1 000 points
-  // took 20-25 ms CPU against 8-16 ms on the grid
-  const panels = Math.abs(lh) >= PANELS_MIN_LH && Math.abs(lh) <= PANELS_MAX_LH && beta < 1;
-  const r = (panels ? stableOnePanels(beta, lh) : null) ?? stableOneFar(beta, lh) ?? stableIntegrals(1, beta, lh);
+  // Gauss-Legendre panels in theta with derived bounds (./stable-panels.ts, their boxes tightened by ./stable-box.ts)
+  // for |log h| <= PANELS_MAX_LH and beta < 1; beyond (where the rounding of log h + log V, eps |log h| in v, pushes their
+  // bound above 1e-11 of a value), where the bound is above that anyway, or at beta = 1 (a finite end), the Gauss rule
+  // in log V far out (./stable-far.ts), else the grid: both with estimated errors
+  const panels = Math.abs(lh) <= PANELS_MAX_LH && beta < 1;
+  const rp = panels ? stableOnePanels(beta, lh) : null;
+  if (!rp) lastRoute = "estimate";
+  const r = rp ?? stableOneFar(beta, lh) ?? stableIntegrals(1, beta, lh);
   const dlh = 4 * Number.EPSILON * (1 + Math.abs(lh));
   out.pdf = r.Ip / (2 * beta);
   out.pdfErr = r.ep / (2 * beta) + 4 * Number.EPSILON * out.pdf;

@@ -1,0 +1,100 @@
+import type { Box, PanelSide } from "./stable-panel-store";
+
+const HALF_PI = Math.PI / 2;
+const EPS = Number.EPSILON;
+
+/**
+ * A second-order (centred) enclosure of log V over a rectangle [x1, x2] x [-Y, Y] of u, intersected with a first
+ * enclosure (the factor-by-factor rectangle bounds of ./stable-far.ts and ./stable-kernel.ts). With m the rectangle's
+ * centre on the real line and delta = u - m, Taylor's theorem with the integral remainder along the segment [m, u]
+ * (inside the convex rectangle) gives
+ *   log V(u) = log V(m) + (log V)'(m) delta + R,  |R| <= M2 |delta|^2 / 2,  M2 >= sup |(log V)''| over the rectangle,
+ * and log V(m), (log V)'(m) are real, so Re log V lies within log V(m) +- (|(log V)'(m)| (x2 - x1)/2 + |R|) and
+ * |Im log V| <= |(log V)'(m)| Y + |R|. Where the rectangle is small against its distance from the ends this is close
+ * to the true range (the product-of-ranges bound on P cot u is not: it pairs the extremes of its factors), so the
+ * panels next to the kernel need not be cut as finely.
+ */
+
+/** log V (not less wRef, as the boxes of ./stable-panel-store.ts) and its derivative at a real point with bounds on their rounding */
+interface Centre {
+  lv: number;
+  d: number;
+  elv: number;
+  ed: number;
+}
+
+function intersect(a: Box | null, b: Box | null, out: Box): boolean {
+  if (!a && !b) return false;
+  if (!a || !b) {
+    const c = (a ?? b)!;
+    out.rLo = c.rLo;
+    out.rHi = c.rHi;
+    out.iMax = c.iMax;
+    return true;
+  }
+  out.rLo = Math.max(a.rLo, b.rLo);
+  out.rHi = Math.min(a.rHi, b.rHi);
+  out.iMax = Math.min(a.iMax, b.iMax);
+  return true;
+}
+
+function centred(c: Centre, hx: number, Y: number, M2: number, out: Box): boolean {
+  if (!Number.isFinite(M2) || !Number.isFinite(c.lv) || !Number.isFinite(c.d)) return false;
+  const R = ((M2 * (hx * hx + Y * Y)) / 2) * (1 + 16 * EPS);
+  const ad = Math.abs(c.d) + c.ed;
+  const spread = ad * hx * (1 + 4 * EPS) + R + c.elv;
+  out.rLo = c.lv - spread - 4 * EPS * Math.abs(c.lv);
+  out.rHi = c.lv + spread + 4 * EPS * Math.abs(c.lv);
+  out.iMax = (ad * Y + R) * (1 + 8 * EPS);
+  return true;
+}
+
+/**
+ * alpha = 1: log V = log(2/pi) + log P - log sin u + s P cot(u) / beta, P = P0 - s beta u (s = -1, P0 = (pi/2)(1 - beta)
+ * from the low end; s = 1, P0 = (pi/2)(1 + beta) from the high end), so
+ *   (log V)' = -s beta / P - 2 cot u - s P csc^2(u) / beta,
+ *   (log V)'' = -beta^2 / P^2 + 3 csc^2 u + (2 s / beta) P csc^2(u) cot u,
+ * and over the rectangle (x in (0, pi), Re P >= P_lo > 0): |1/P| <= 1/P_lo, |P| <= hypot(P_hi, beta Y),
+ * |csc u|^2 = 1/(sin^2 x + sinh^2 y) <= 1/s_lo^2, |cos u| <= cosh Y (Abramowitz & Stegun 4.3.55, 4.3.56).
+ */
+export function oneTightBox(beta: number, first: NonNullable<PanelSide["box"]>): NonNullable<PanelSide["box"]> {
+  const lg = Math.log(2 / Math.PI);
+  const a: Box = { rLo: 0, rHi: 0, iMax: 0 };
+  const b: Box = { rLo: 0, rHi: 0, iMax: 0 };
+  const c: Centre = { lv: 0, d: 0, elv: 0, ed: 0 };
+  return (from, x1, x2, Y, out) => {
+    const okA = first(from, x1, x2, Y, a);
+    let okB = false;
+    if (x1 > 0 && x2 < Math.PI && Y >= 0) {
+      const s = from === 0 ? -1 : 1;
+      const P0 = from === 0 ? HALF_PI * (1 - beta) : HALF_PI * (1 + beta);
+      const pa = P0 - s * beta * x1;
+      const pb = P0 - s * beta * x2;
+      const pLo = Math.min(pa, pb) * (1 - 4 * EPS);
+      const pHi = Math.max(pa, pb) * (1 + 4 * EPS);
+      const sLo = Math.min(Math.sin(x1), Math.sin(x2)) * (1 - 4 * EPS);
+      if (pLo > 0 && sLo > 0) {
+        const cy = Math.cosh(Y);
+        const M2 = (beta * beta) / (pLo * pLo) + 3 / (sLo * sLo) + ((2 / beta) * Math.hypot(pHi, beta * Y) * cy) / (sLo * sLo * sLo);
+        const m = 0.5 * (x1 + x2);
+        const P = P0 - s * beta * m;
+        const sn = Math.sin(m);
+        const ct = Math.cos(m) / sn;
+        // log(P / sin m): for beta = 1 at the low end P = m exactly
+        const lr = Math.log(P) - Math.log(sn);
+        const T = (s * P * ct) / beta;
+        c.lv = lg + lr + T;
+        const t1 = beta / P;
+        const t3 = P / (beta * sn * sn);
+        c.d = -s * t1 - 2 * ct - s * t3;
+        // P's own rounding (relative 3 eps of P0 + beta m over P) moves log P, T and the terms of the derivative
+        const relP = (3 * EPS * (P0 + beta * m)) / P;
+        c.elv = relP * (1 + Math.abs(T)) + 8 * EPS * (Math.abs(lg) + Math.abs(Math.log(P)) + Math.abs(Math.log(sn)) + Math.abs(T) + 1);
+        c.ed = relP * (t1 + t3) + 8 * EPS * (t1 + 2 * Math.abs(ct) + t3);
+        // the computed centre is within 2 eps m of the middle
+        okB = centred(c, 0.5 * (x2 - x1) + 2 * EPS * m, Y, M2, b);
+      }
+    }
+    return intersect(okA ? a : null, okB ? b : null, out);
+  };
+}
