@@ -6,8 +6,8 @@
 import { describe, expect, it } from "vitest";
 import { gaussLegendre } from "@/lib/cf/direct/stable-panel-store";
 import { oneBox } from "@/lib/cf/direct/stable-far";
-import { oneTightBox } from "@/lib/cf/direct/stable-box";
-import { stableSide } from "@/lib/cf/direct/stable-kernel";
+import { alphaTightBox, oneTightBox } from "@/lib/cf/direct/stable-box";
+import { stableSide, type StableSide } from "@/lib/cf/direct/stable-kernel";
 import { close } from "./model-assert";
 
 describe("Gauss-Legendre rule of the panels", () => {
@@ -111,7 +111,11 @@ function logVa(alpha: number, beta: number, from: 0 | 1, u: C): C {
 }
 
 describe("rectangle bounds on log V (alpha != 1)", () => {
-  it("hold at points inside random rectangles (seeded), both ends, finite ends included", () => {
+  it.each([
+    ["the factor-by-factor bounds (stableSide's box)", (side: StableSide) => side.box!],
+    ["the centred second-order enclosure alone (stable-box.ts)", (side: StableSide) => alphaTightBox(side, () => false)],
+    ["the two intersected (the panels' box)", (side: StableSide) => alphaTightBox(side, side.box!)],
+  ] as const)("%s hold at points inside random rectangles (seeded), both ends, finite ends included", (_name, boxOf) => {
     let seed = 777;
     const rnd = () => {
       seed = (seed * 1103515245 + 12345) % 2147483648;
@@ -119,16 +123,17 @@ describe("rectangle bounds on log V (alpha != 1)", () => {
     };
     const out = { rLo: 0, rHi: 0, iMax: 0 };
     let checked = 0;
-    const laws = [[0.3, 0.5], [0.5, 1], [0.8, 0], [0.8, -0.6], [1.1, 0.4], [1.5, -1], [1.5, 0.7], [1.9, 0.9], [1.999, -1], [1.999, 1]];
+    const laws = [[0.3, 0.5], [0.5, 1], [0.8, 0], [0.8, -0.6], [1.1, 0.4], [1.5, -1], [1.5, 0.7], [1.9, 0.9], [1.999, -1], [1.999, 1], [0.99, 0.3], [0.995, 1], [1.01, -1], [0.999, 0.5], [1.001, -0.5]];
     for (const [alpha, beta] of laws) {
       const side = stableSide(alpha, beta);
+      const box = boxOf(side);
       for (let r = 0; r < 400; r++) {
         const from = (r & 1) as 0 | 1;
         // rectangles from near an end to the middle; at a finite end some reach across u = 0
         const x1 = r % 4 === 0 ? -0.3 * rnd() : Math.exp(Math.log(1e-6) * rnd()) * 0.5 * side.L;
         const x2 = Math.abs(x1) * (1 + 0.5 * rnd()) + 1e-7;
         const Y = (x2 - x1) * 2 * rnd();
-        if (!side.box!(from, x1, x2, Y, out)) continue;
+        if (!box(from, x1, x2, Y, out)) continue;
         for (let k = 0; k < 20; k++) {
           const u: C = [Math.max(x1, 0) + (x2 - Math.max(x1, 0)) * rnd(), Y * (2 * rnd() - 1)];
           if (!(u[0] > 0)) continue;

@@ -1,4 +1,5 @@
 import type { Box, PanelSide } from "./stable-panel-store";
+import type { StableSide } from "./stable-kernel";
 
 const HALF_PI = Math.PI / 2;
 const EPS = Number.EPSILON;
@@ -96,5 +97,89 @@ export function oneTightBox(beta: number, first: NonNullable<PanelSide["box"]>):
       }
     }
     return intersect(okA ? a : null, okB ? b : null, out);
+  };
+}
+
+/** min of sin over [a, b] inside (0, pi) */
+const sinMin = (a: number, b: number) => Math.min(Math.sin(a), Math.sin(b));
+
+/**
+ * alpha != 1: log V = K + sum_i c_i log sin(phi_i), phi_i = p_i + q_i u, with the factors of ./stable-kernel.ts
+ * (c_1 = 1/(alpha - 1), q_1 = 1; c_2 = -alpha/(alpha - 1), q_2 = alpha; c_3 = 1, q_3 = +-(alpha - 1)), so
+ *   (log V)' = sum_i c_i q_i cot(phi_i),  (log V)'' = -sum_i c_i q_i^2 csc^2(phi_i).
+ * Next to alpha = 1 the first two terms of (log V)'' cancel (both ~ csc^2 u / (alpha - 1)); written as
+ *   c_1 [alpha^3 csc^2(phi_2) - csc^2(phi_1)] = c_1 [(alpha^3 - 1) csc^2(phi_2) + (csc^2(phi_2) - csc^2(phi_1))]
+ * with |csc^2(phi_2) - csc^2(phi_1)| <= |phi_2 - phi_1| sup |2 csc^2 cot| over the segment between them (the mean
+ * value theorem along it), each is bounded without the factor 1/(alpha - 1) of the cancellation. Over the rectangle
+ * |csc phi|^2 <= 1/sin^2(Re phi) and |cot phi| <= cosh(Im phi)/sin(Re phi) (A&S 4.3.55, 4.3.56); the smaller of
+ * this and the plain sum of |c_i| q_i^2 / sin^2 serves.
+ */
+export function alphaTightBox(side: StableSide, first: NonNullable<PanelSide["box"]>): NonNullable<PanelSide["box"]> {
+  const f = side.factors!;
+  const alpha = side.alpha;
+  const a3 = Math.abs(alpha * alpha * alpha - 1);
+  const bA: Box = { rLo: 0, rHi: 0, iMax: 0 };
+  const bB: Box = { rLo: 0, rHi: 0, iMax: 0 };
+  const c: Centre = { lv: 0, d: 0, elv: 0, ed: 0 };
+  const lo = [0, 0, 0];
+  const hi = [0, 0, 0];
+  return (from, x1, x2, Y, out) => {
+    const okA = first(from, x1, x2, Y, bA);
+    let okB = false;
+    const fs = (from === 0) === f.lowIsLeft ? f.left : f.right;
+    let inside = x1 > 0 && Y >= 0;
+    for (let i = 0; i < 3 && inside; i++) {
+      const [p, q] = fs[i];
+      const e1 = p + q * x1;
+      const e2 = p + q * x2;
+      // the phases' rounding: a few eps of their size
+      const r = 4 * EPS * (Math.abs(p) + Math.abs(q) * x2);
+      lo[i] = Math.min(e1, e2) - r;
+      hi[i] = Math.max(e1, e2) + r;
+      inside = lo[i] > 0 && hi[i] < Math.PI;
+    }
+    if (inside) {
+      const m = 0.5 * (x1 + x2);
+      let lv = f.K;
+      let d = 0;
+      let mag = Math.abs(f.K);
+      let ed = 0;
+      let elv = 0;
+      let plain = 0;
+      const s = [0, 0, 0];
+      for (let i = 0; i < 3; i++) {
+        const [p, q, co] = fs[i];
+        const ph = p + q * m;
+        const sn = Math.sin(ph);
+        const ct = Math.cos(ph) / sn;
+        const l = co * Math.log(sn);
+        lv += l;
+        d += co * q * ct;
+        // the phase's rounding (2 eps of |p| + |q m|) moves log sin by cot times it and cot by csc^2 times it
+        const dph = 2 * EPS * (Math.abs(p) + Math.abs(q * m));
+        mag += Math.abs(l);
+        elv += Math.abs(co) * (Math.abs(ct) * dph + 2 * EPS);
+        ed += Math.abs(co * q) * (4 * EPS * Math.abs(ct) + dph / (sn * sn));
+        s[i] = sinMin(lo[i], hi[i]) * (1 - 4 * EPS);
+        plain += (Math.abs(co) * q * q) / (s[i] * s[i]);
+      }
+      // the segment between phi_1 and phi_2 (same u): real parts in the hull of their ranges, |Im| <= max(1, alpha) Y
+      const hLo = Math.min(lo[0], lo[1]);
+      const hHi = Math.max(hi[0], hi[1]);
+      let paired = Infinity;
+      if (hLo > 0 && hHi < Math.PI) {
+        const sh = sinMin(hLo, hHi) * (1 - 4 * EPS);
+        const dphi = Math.abs(fs[1][0] - fs[0][0]) + Math.abs(alpha - 1) * Math.hypot(x2, Y);
+        const q3 = fs[2][1];
+        paired =
+          Math.abs(fs[0][2]) * (a3 / (s[1] * s[1]) + (dphi * 2 * Math.cosh(Math.max(1, alpha) * Y)) / (sh * sh * sh)) + (q3 * q3) / (s[2] * s[2]);
+      }
+      c.lv = lv;
+      c.d = d;
+      c.elv = elv + 8 * EPS * mag;
+      c.ed = ed + 8 * EPS * Math.abs(d);
+      okB = centred(c, 0.5 * (x2 - x1) + 2 * EPS * m, Y, Math.min(plain, paired) * (1 + 16 * EPS), bB);
+    }
+    return intersect(okA ? bA : null, okB ? bB : null, out);
   };
 }

@@ -320,7 +320,7 @@ interface Acc {
 }
 
 /** I0, I1, Ip of the alpha = 1 side with beta in (0, 1] at log h = lhAbs by Gauss-Legendre panels in theta with derived bounds (./stable-panels.ts). */
-export function stableOnePanels(beta: number, lhAbs: number, rel = 1e-11): StableIntegrals | null {
+export function stableOnePanels(beta: number, lhAbs: number, rel = 1e-11, dl = 0): StableIntegrals | null {
   if (!(beta > 0 && beta <= 1)) return null;
-  return stablePanels(panelSideFor(beta), lhAbs, rel);
+  return stablePanels(panelSideFor(beta), lhAbs, rel, dl);
 }

@@ -32,6 +32,10 @@ export interface StableSide {
    * see factorBox); false when the rectangle reaches a zero of a factor
    */
   box?(from: 0 | 1, x1: number, x2: number, Y: number, out: { rLo: number; rHi: number; iMax: number }): boolean;
+  /** alpha != 1: log V = K + sum of coef log sin(p + q u) over the factors [p, q, coef] from the left or right end */
+  factors?: { K: number; left: number[][]; right: number[][]; lowIsLeft: boolean };
+  /** alpha != 1: (pi/2 - theta0)/pi as a / pi (no cancellation next to alpha = 1) and a bound on its rounding */
+  F0?: [number, number];
 }
 
 /**
@@ -91,12 +95,16 @@ export function stableSide(alpha: number, beta: number): StableSide {
   let a: number;
   let c: number;
   let L: number;
+  // the rounding of a: x (2 eps), at1 (6 eps: 1/|tb| within 5 eps, atan within 1), their sum and the division
+  let aErr: number;
   if (tb >= 0) {
     a = (x + at1) / alpha;
+    aErr = (8 * Number.EPSILON * (Math.abs(x) + at1)) / alpha;
     c = at1 - x;
     L = HALF_PI + theta0;
   } else {
     a = HALF_PI - theta0;
+    aErr = 8 * Number.EPSILON * (HALF_PI + Math.abs(theta0) + 4);
     c = Math.PI - at1 - x;
     L = (x + at1) / alpha;
   }
@@ -104,12 +112,14 @@ export function stableSide(alpha: number, beta: number): StableSide {
   if (alpha < 1 && beta === 1) {
     theta0 = HALF_PI;
     a = 0;
+    aErr = 0;
     c = Math.PI * (1 - alpha);
     L = Math.PI;
   }
   if (alpha > 1 && beta === -1) {
     theta0 = Math.PI / alpha - HALF_PI;
     a = (Math.PI * am1) / alpha;
+    aErr = 4 * Number.EPSILON * a;
     c = 0;
     L = Math.PI / alpha;
   }
@@ -205,6 +215,8 @@ export function stableSide(alpha: number, beta: number): StableSide {
     wRef,
     wMid: 0,
     box,
+    F0: [a / Math.PI, aErr / Math.PI + 2 * Number.EPSILON * (a / Math.PI)],
+    factors: { K, left: [[a, 1, e1], [0, alpha, -ea], [a, -am1, 1]], right: [[0, 1, e1], [c, alpha, -ea], [c, am1, 1]], lowIsLeft },
     logV(from, u, out) {
       if (from === 0 && bounded) {
         // at a finite end the factors of V vanish together; log V - w_end = e1 ls(u) - ea ls(alpha u) + ls(|alpha-1| u)

@@ -33,6 +33,8 @@ interface Sums {
   e1: number;
   ep: number;
   nodes: number;
+  /** a bound on the error of log h itself (from the rounding of the point), added to every v's */
+  dl: number;
 }
 
 function kernelAt(v: number): number {
@@ -52,7 +54,7 @@ function panel(p: Panel, lhAbs: number, lh: number, acc: Sums): void {
   // e^v as e^lh e^(log V - wRef) (one more rounding, 2 eps relative, counted in the rounding of v below) where both
   // factors are in range
   const elh = Math.abs(lh) <= EV_MAX ? Math.exp(lh) : NaN;
-  const dvh = 4 * Number.EPSILON * (Math.abs(lh) + 1);
+  const dvh = 4 * Number.EPSILON * (Math.abs(lh) + 1) + acc.dl;
   let s0 = 0, s1 = 0, sp = 0, q0 = 0, q1 = 0, qp = 0;
   const { lv, elv, wt, dv0 } = p;
   for (let i = 0; i < NODES; i++) {
@@ -62,7 +64,8 @@ function panel(p: Panel, lhAbs: number, lh: number, acc: Sums): void {
     const f0 = Math.exp(-ev);
     // 1 - f0 has no cancellation once f0 <= 1/2
     const f1 = ev < 0.7 ? -Math.expm1(-ev) : 1 - f0;
-    const fp = ev * f0;
+    // e^v exp(-e^v) is 0 where exp(-e^v) underflows (also for e^v = inf)
+    const fp = f0 > 0 ? ev * f0 : 0;
     const W = wt[i];
     s0 += W * f0;
     s1 += W * f1;
@@ -73,7 +76,7 @@ function panel(p: Panel, lhAbs: number, lh: number, acc: Sums): void {
     const t = W * fp * dv;
     q0 += t + W * 8 * Number.EPSILON * f0;
     q1 += t + W * 8 * Number.EPSILON * f1;
-    qp += W * fp * (Math.abs(1 - ev) * dv + 8 * Number.EPSILON);
+    if (fp > 0) qp += W * fp * (Math.abs(1 - ev) * dv + 8 * Number.EPSILON);
   }
   const t = hl * THM;
   acc.i0 += s0;
@@ -88,7 +91,7 @@ function panel(p: Panel, lhAbs: number, lh: number, acc: Sums): void {
 /** panel k of st at log h: as it is where Re v <= R_COARSE over its rectangle, else its fine parts; false if none */
 function panelOrParts(st: PanelStore, k: number, lhAbs: number, lh: number, acc: Sums): boolean {
   const p = st.panels[k];
-  const vMax = lhAbs + p.rHi;
+  const vMax = lhAbs + p.rHi + acc.dl;
   // far out at alpha = 1 the kernel's support in u is 1/|log h| of the far left's, whose e^2v share must stay small
   if (vMax <= R_FAR - Math.log(Math.max(1, Math.abs(lhAbs)))) {
     // far left: e^v - e^2v <= K(v) <= e^v, e^v - e^2v / 2 <= 1 - exp(-e^v) <= e^v, so the panel's stored rule of V gives
@@ -124,10 +127,21 @@ function half(st: PanelStore, lhAbs: number, V0: number, acc: Sums): boolean {
   const lh = lhAbs + side.wRef;
   const L2 = side.L / 2;
   const bounded = st.from === 0 && Number.isFinite(side.wLowEnd);
+  const vEndLow = lh - 8 * Number.EPSILON * Math.abs(lh) - acc.dl;
+  if (bounded && vEndLow >= V1) {
+    // v >= v(end) = lh >= V1 over the whole half (v falls towards the finite end): I1 takes it, I0 and Ip are at most
+    // its length times their values at V1 or beyond
+    acc.i1 += L2;
+    const b = L2 * Math.exp(-Math.exp(vEndLow));
+    acc.e0 += b;
+    acc.e1 += b + 2 * Number.EPSILON * L2;
+    acc.ep += L2 * kernelAt(vEndLow);
+    return true;
+  }
   if (st.n === 0 && !st.extend()) return false;
   // v at u (as evaluated) rounded down (lower) or up
-  const vDown = (lv: number, mag: number) => lh + lv - 8 * Number.EPSILON * (mag + Math.abs(lh) + Math.abs(lv));
-  const vUp = (lv: number, mag: number) => lh + lv + 8 * Number.EPSILON * (mag + Math.abs(lh) + Math.abs(lv));
+  const vDown = (lv: number, mag: number) => lh + lv - 8 * Number.EPSILON * (mag + Math.abs(lh) + Math.abs(lv)) - acc.dl;
+  const vUp = (lv: number, mag: number) => lh + lv + 8 * Number.EPSILON * (mag + Math.abs(lh) + Math.abs(lv)) + acc.dl;
   // from the middle towards the end, v falls (low end) or rises (high end); skip the panels wholly beyond the window
   const rising = st.from === 1;
   // v over panel k lies between v(hi_k) and v(lo_k): the window starts at the first panel that can reach [V0, V1]
@@ -197,7 +211,7 @@ function half(st: PanelStore, lhAbs: number, V0: number, acc: Sums): boolean {
       // [0, lo]: v between v at the end (lh where log V has a finite end, else -inf) and vb; each integrand is monotone
       // or unimodal in v there, so it lies between its values at the two, and [0, lo] takes the middle of that range
       const vb = vUp(e[0], e[1]);
-      const vm = bounded ? lh - 8 * Number.EPSILON * Math.abs(lh) : -Infinity;
+      const vm = bounded ? lh - 8 * Number.EPSILON * Math.abs(lh) - acc.dl : -Infinity;
       const f0m = Math.exp(-Math.exp(vm));
       // exp(-e^vm) - exp(-e^vb) without cancellation
       const w = 0.5 * lo * f0m * -Math.expm1(-(Math.exp(vb) - Math.exp(vm)));
@@ -225,10 +239,10 @@ function half(st: PanelStore, lhAbs: number, V0: number, acc: Sums): boolean {
 const stores = new Map<PanelSide, [PanelStore, PanelStore]>();
 
 /**
- * I0, I1, Ip of `ps` at log h = lhAbs by the panels, or null when the panels cannot reach the window or the bounds
- * exceed `rel` of a value (the caller then takes another route).
+ * I0, I1, Ip of `ps` at log h = lhAbs (known to within dl) by the panels, or null when the panels cannot reach the
+ * window or the bounds exceed `rel` of a value (the caller then takes another route).
  */
-export function stablePanels(ps: PanelSide, lhAbs: number, rel: number): StableIntegrals | null {
+export function stablePanels(ps: PanelSide, lhAbs: number, rel: number, dl = 0): StableIntegrals | null {
   let st = stores.get(ps);
   if (!st) {
     // a law's panels take up to a few MB far out at alpha = 1: keep the last few laws
@@ -238,7 +252,7 @@ export function stablePanels(ps: PanelSide, lhAbs: number, rel: number): StableI
   }
   // V0 falls with log h far out so that what lies below it stays under 1e-16 of the mass near the window
   const V0 = -37 - Math.log(Math.max(1, Math.abs(lhAbs)));
-  const acc: Sums = { i0: 0, i1: 0, ip: 0, e0: 0, e1: 0, ep: 0, nodes: 0 };
+  const acc: Sums = { i0: 0, i1: 0, ip: 0, e0: 0, e1: 0, ep: 0, nodes: 0, dl };
   if (!half(st[0], lhAbs, V0, acc) || !half(st[1], lhAbs, V0, acc)) return null;
   // the sums' rounding: at most (terms - 1) u times the sum of the (positive) terms (Higham 2002, eq. 4.4), terms
   // counted generously

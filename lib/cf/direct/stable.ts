@@ -3,6 +3,7 @@ import { stableOneFar, stableOnePanels } from "./stable-far";
 import { stableNearOne } from "./stable-near-one";
 import { stableSide, tanHalfPi } from "./stable-kernel";
 import { stablePanels } from "./stable-panels";
+import { alphaTightBox } from "./stable-box";
 import type { PanelSide } from "./stable-panel-store";
 import { stableTailSeries, stableTailStopLoss } from "./stable-series";
 import type { DirectLaw, DirectPoint } from "./types";
@@ -21,10 +22,11 @@ const HALF_PI = Math.PI / 2;
  *   f = alpha / (pi |alpha - 1| z) Ip,  log h = alpha/(alpha-1) log z
  * alpha = 1 (beta > 0): F = I0/pi, sf = I1/pi, f = Ip / (2 beta), log h = -pi z / (2 beta).
  * z < 0 reflects (z, beta) -> (-z, -beta) and swaps F and sf. I0, I1, Ip: see ./stable-integral.ts.
- * The integrals come from Gauss-Legendre panels in theta with a derived error bound (./stable-panels.ts) for
- * |alpha - 1| >= 0.1, and for alpha = 1 with beta < 1 and |log h| <= 4000 (the body included). Elsewhere, and where the panels' bound is above
- * 1e-11 of a value (light tails next to a finite end), the errors are estimates: the Gauss rule in log V next to
- * alpha = 1 (./stable-near-one.ts) and far out at alpha = 1 (./stable-far.ts), else the grid (./stable-integral.ts).
+ * The integrals come from Gauss-Legendre panels in theta with a derived error bound (./stable-panels.ts, their
+ * rectangles' bounds on log V tightened by ./stable-box.ts, which also keeps them usable next to alpha = 1) for
+ * alpha != 1, and for alpha = 1 with beta < 1 and |log h| <= 4000. Elsewhere, and where the panels' bound is above
+ * PANELS_REL of a value, the errors are estimates: the Gauss rule in log V next to alpha = 1 (./stable-near-one.ts)
+ * and far out at alpha = 1 (./stable-far.ts), else the grid (./stable-integral.ts).
  */
 export function stableDirect(alpha: number, beta: number, scale: number, loc: number, param: "S0" | "S1"): DirectLaw | null {
   if (!(scale > 0) || !Number.isFinite(loc)) return null;
@@ -42,11 +44,12 @@ export function stableDirect(alpha: number, beta: number, scale: number, loc: nu
   // half-line laws start at d1; otherwise z = 0 is an interior point handled by the closed forms at zeta
   const at = (x: number, out: DirectPoint) => {
     const z = (x - d1) / g;
-    stdAt(alpha, beta, z, out);
+    // rounding of z itself: x - d1 and the division (2 eps (|x| + |d1|)), d1's own (the S0 shift within 4 eps of
+    // itself); it moves F by f |dz| and the density through log h (stdAt)
+    const dz = (2 * Number.EPSILON * (Math.abs(x) + Math.abs(d1)) + (param === "S1" ? 0 : 4 * Number.EPSILON * Math.abs(shift10))) / g;
+    stdAt(alpha, beta, z, out, dz);
     out.pdf /= g;
     out.pdfErr /= g;
-    // rounding of z itself: a relative change 2 eps |z| moves F by f |dz|
-    const dz = 2 * Number.EPSILON * (Math.abs(x) + Math.abs(d1)) / g;
     out.cdfErr += out.pdf * g * dz;
     out.sfErr += out.pdf * g * dz;
     out.pdfErr += 4 * Number.EPSILON * out.pdf;
@@ -77,19 +80,19 @@ export function stableLastRoute(): "derived" | "estimate" {
   return lastRoute;
 }
 
-/** Standard S1 stable (scale 1, location 0) at z. */
-export function stdAt(alpha: number, beta: number, z: number, out: DirectPoint): void {
+/** Standard S1 stable (scale 1, location 0) at z, z known to within dz (the density's bound takes its effect). */
+export function stdAt(alpha: number, beta: number, z: number, out: DirectPoint, dz = 0): void {
   lastRoute = "derived";
   if (alpha === 1) {
     if (beta < 0) {
-      oneAt(-beta, -z, out);
+      oneAt(-beta, -z, out, dz);
       swap(out);
-    } else oneAt(beta, z, out);
+    } else oneAt(beta, z, out, dz);
     return;
   }
   if (z === 0) return atZeta(alpha, beta, out);
-  if (z > 0) return sideAt(alpha, beta, z, out);
-  sideAt(alpha, -beta, -z, out);
+  if (z > 0) return sideAt(alpha, beta, z, out, dz);
+  sideAt(alpha, -beta, -z, out, dz);
   swap(out);
 }
 
@@ -137,8 +140,11 @@ function atZeta(alpha: number, beta: number, out: DirectPoint) {
   out.sfErr = (dTh + 4 * u * (HALF_PI + Math.abs(th0))) / Math.PI + 2 * u * out.sf;
 }
 
-/** |alpha - 1| from which the panels serve alpha != 1 */
-const PANELS_MIN_DIST = 0.1;
+/**
+ * the panels' relative bound above which another route (with an estimate) is taken for alpha != 1: next to alpha = 1
+ * the rounding of log h = alpha/(alpha - 1) log z alone (eps |log h| in v) puts 2e-11 on the density at alpha = 0.999
+ */
+const PANELS_REL = 1e-9;
 const panelSides = new Map<string, PanelSide>();
 function panelSideOf(alpha: number, beta: number): PanelSide {
   const key = `${alpha}:${beta}`;
@@ -146,15 +152,16 @@ function panelSideOf(alpha: number, beta: number): PanelSide {
   if (!p) {
     if (panelSides.size > 64) panelSides.clear();
     const side = stableSide(alpha, beta);
-    p = { side, box: side.box! };
+    p = { side, box: alphaTightBox(side, side.box!) };
     panelSides.set(key, p);
   }
   return p;
 }
 
-function sideAt(alpha: number, beta: number, z: number, out: DirectPoint) {
-  const th0 = theta0Of(alpha, beta);
-  const c1 = (HALF_PI - th0) / Math.PI;
+function sideAt(alpha: number, beta: number, z: number, out: DirectPoint, dz: number) {
+  const ps = panelSideOf(alpha, beta);
+  // (pi/2 - theta0)/pi from the side's distance a (the plain form loses 3e-17 of 1e-3 next to alpha = 1)
+  const [c1, c1Err] = ps.side.F0!;
   const ser = stableTailSeries(alpha, beta, z);
   if (ser) {
     out.pdf = ser.pdf;
@@ -166,27 +173,37 @@ function sideAt(alpha: number, beta: number, z: number, out: DirectPoint) {
     return;
   }
   const lh = (alpha / (alpha - 1)) * Math.log(z);
-  // Gauss-Legendre panels in theta with derived bounds (./stable-panels.ts) for alpha away from 1; next to 1 (where the
-  // factors of V cancel and their separate bounds are far too wide), or where the panels' bound is above 1e-11 of a
-  // value, a Gauss rule in log V (./stable-near-one.ts) or the grid, both with estimated errors
-  const panels = Math.abs(alpha - 1) >= PANELS_MIN_DIST ? stablePanels(panelSideOf(alpha, beta), lh, 1e-11) : null;
+  // Gauss-Legendre panels in theta with derived bounds (./stable-panels.ts); where they cannot reach the window or their
+  // bound is above PANELS_REL of a value, a Gauss rule in log V next to 1 (./stable-near-one.ts) or the grid, both with
+  // estimated errors
+  // z's rounding moves log h by |alpha / (alpha - 1)| dz / z and the prefactor by dz / z relative; where dz / z is not
+  // small (z next to 0) the density moves by at most sup |f'| dz <= dz Gamma(2/alpha) / (alpha pi) instead
+  // (f' = -(1/pi) Re int t i e^{-itz} phi(t) dt with |phi(t)| = exp(-|t|^alpha): Nolan 2020, sec. 1.3)
+  let rz = dz / z;
+  let dzPdf = 0;
+  if (rz > 1e-8) {
+    dzPdf = (dz * Math.exp(lgamma(2 / alpha)) * (1 + 1e-12)) / (alpha * Math.PI);
+    rz = 0;
+  }
+  // an empty interval (alpha < 1, beta = -1 above zeta: no mass there) has integrals 0 exactly
+  const panels = ps.side.L > 0 ? stablePanels(ps, lh, PANELS_REL, Math.abs(alpha / (alpha - 1)) * rz) : { I0: 0, I1: 0, Ip: 0, e0: 0, e1: 0, ep: 0, nodes: 0 };
   const near = panels ? null : stableNearOne(alpha, beta, lh);
   const r = panels ?? near ?? stableIntegrals(alpha, beta, lh);
   if (!panels) lastRoute = "estimate";
   const pref = alpha / (Math.PI * Math.abs(alpha - 1) * z);
   out.pdf = pref * r.Ip;
-  out.pdfErr = pref * r.ep + 4 * Number.EPSILON * out.pdf;
+  out.pdfErr = pref * r.ep + (4 * Number.EPSILON + 2 * rz) * out.pdf + dzPdf;
   // a relative rounding 4 eps |lh| of log h moves each integral by at most that times f-like terms
   const dlh = 4 * Number.EPSILON * (1 + Math.abs(lh));
   if (alpha < 1) {
     out.cdf = c1 + r.I0 / Math.PI;
     out.sf = r.I1 / Math.PI;
-    out.cdfErr = (r.e0 + dlh * r.Ip) / Math.PI + 2 * Number.EPSILON * out.cdf;
+    out.cdfErr = (r.e0 + dlh * r.Ip) / Math.PI + 2 * Number.EPSILON * out.cdf + c1Err;
     out.sfErr = (r.e1 + dlh * r.Ip) / Math.PI + 2 * Number.EPSILON * out.sf;
   } else {
     out.cdf = c1 + r.I1 / Math.PI;
     out.sf = r.I0 / Math.PI;
-    out.cdfErr = (r.e1 + dlh * r.Ip) / Math.PI + 2 * Number.EPSILON * out.cdf;
+    out.cdfErr = (r.e1 + dlh * r.Ip) / Math.PI + 2 * Number.EPSILON * out.cdf + c1Err;
     out.sfErr = (r.e0 + dlh * r.Ip) / Math.PI + 2 * Number.EPSILON * out.sf;
   }
   // the near-one rule's error is an estimate (its two rules' difference), and its split between I0 and I1 came out
@@ -203,14 +220,15 @@ function sideAt(alpha: number, beta: number, z: number, out: DirectPoint) {
 /** |log h| up to which alpha = 1 tries the panels */
 const PANELS_MAX_LH = 4000;
 
-function oneAt(beta: number, z: number, out: DirectPoint) {
+function oneAt(beta: number, z: number, out: DirectPoint, dz: number) {
   const lh = (-Math.PI * z) / (2 * beta);
+  const dl = (Math.PI * dz) / (2 * beta);
   // Gauss-Legendre panels in theta with derived bounds (./stable-panels.ts, their boxes tightened by ./stable-box.ts)
   // for |log h| <= PANELS_MAX_LH and beta < 1; beyond (where the rounding of log h + log V, eps |log h| in v, pushes their
   // bound above 1e-11 of a value), where the bound is above that anyway, or at beta = 1 (a finite end), the Gauss rule
   // in log V far out (./stable-far.ts), else the grid: both with estimated errors
   const panels = Math.abs(lh) <= PANELS_MAX_LH && beta < 1;
-  const rp = panels ? stableOnePanels(beta, lh) : null;
+  const rp = panels ? stableOnePanels(beta, lh, 1e-11, dl) : null;
   if (!rp) lastRoute = "estimate";
   const r = rp ?? stableOneFar(beta, lh) ?? stableIntegrals(1, beta, lh);
   const dlh = 4 * Number.EPSILON * (1 + Math.abs(lh));
