@@ -1,3 +1,5 @@
+import { cotm, cotmPrime, logSinc } from "./stable-trig";
+
 /**
  * The function V(theta) of the stable integral representation (Nolan 1997, "Numerical calculation of stable
  * densities and distribution functions", Commun. Statist. Stochastic Models 13(4), Theorem 1; Zolotarev 1986,
@@ -392,32 +394,4 @@ export function yAtW(side: StableSide, w: number, hint?: { from: 0 | 1; t: numbe
   }
   const u = Math.exp(t);
   return w + sgn * KAPPA * (Math.log(u) - Math.log(side.L - u));
-}
-
-/** log(sin x / x), accurate for small x (series of log sinc: Abramowitz & Stegun 4.3.71 integrated; common practice). */
-export function logSinc(x: number): number {
-  if (Math.abs(x) < 0.25) {
-    const x2 = x * x;
-    return -x2 * (1 / 6 + x2 * (1 / 180 + x2 * (1 / 2835 + x2 * (1 / 37800 + x2 * (1 / 467775 + x2 / 6081075)))));
-  }
-  return Math.log(Math.sin(x) / x);
-}
-
-/** cot x - 1/x (A&S 4.3.70), accurate for small x. */
-export function cotm(x: number): number {
-  if (Math.abs(x) < 0.25) {
-    const x2 = x * x;
-    return -x * (1 / 3 + x2 * (1 / 45 + x2 * (2 / 945 + x2 * (1 / 4725 + x2 * (2 / 93555 + x2 * 1382 / 638512875)))));
-  }
-  return 1 / Math.tan(x) - 1 / x;
-}
-
-/** d/dx (cot x - 1/x) = 1/x^2 - 1/sin^2 x. */
-function cotmPrime(x: number): number {
-  if (Math.abs(x) < 0.25) {
-    const x2 = x * x;
-    return -(1 / 3 + x2 * (3 / 45 + x2 * (10 / 945 + x2 * (7 / 4725 + x2 * (18 / 93555 + x2 * 11 * 1382 / 638512875)))));
-  }
-  const sn = Math.sin(x);
-  return 1 / (x * x) - 1 / (sn * sn);
 }
