@@ -97,12 +97,27 @@ export interface Panel {
   eJ: number;
 }
 
-function makePanel(ps: PanelSide, from: 0 | 1, lo: number, hl: number, bx: Box): Panel {
-  const { x: gx } = gaussLegendre();
-  const o = { lv: 0, d: 0, mag: 0 };
-  const p: Panel = { lo, hl, rLo: bx.rLo, rHi: bx.rHi, iMax: bx.iMax, lv: new Float64Array(NODES), elv: new Float64Array(NODES), wt: new Float64Array(NODES), dv0: new Float64Array(NODES), J: 0, eJ: 0 };
+const EMPTY = new Float64Array(0);
+
+/** a panel's rectangle bounds; its nodes come with nodesOf on first use (the panels a point only skips never need them) */
+function makePanel(lo: number, hl: number, bx: Box): Panel {
+  return { lo, hl, rLo: bx.rLo, rHi: bx.rHi, iMax: bx.iMax, lv: EMPTY, elv: EMPTY, wt: EMPTY, dv0: EMPTY, J: 0, eJ: 0 };
+}
+
+const nodeOut = { lv: 0, d: 0, mag: 0 };
+/** panel p (of the end `from` of ps) with its nodes evaluated */
+export function nodesOf(ps: PanelSide, from: 0 | 1, p: Panel): Panel {
+  if (p.lv.length) return p;
+  const { x: gx, w: gw } = gaussLegendre();
+  const o = nodeOut;
+  const { lo, hl } = p;
+  // one buffer for the four arrays
+  const buf = new Float64Array(4 * NODES);
+  p.lv = buf.subarray(0, NODES);
+  p.elv = buf.subarray(NODES, 2 * NODES);
+  p.wt = buf.subarray(2 * NODES, 3 * NODES);
+  p.dv0 = buf.subarray(3 * NODES, 4 * NODES);
   const m = lo + hl;
-  const { w: gw } = gaussLegendre();
   // |V e^-rHi| <= 1 on the rectangle: Theorem 19.3 with M = 1, plus each node's rounding (as in panel())
   let J = 0;
   let eJ = hl * THM;
@@ -113,9 +128,9 @@ function makePanel(ps: PanelSide, from: 0 | 1, lo: number, hl: number, bx: Box):
     p.elv[i] = Math.abs(o.lv) <= EV_MAX ? Math.exp(o.lv) : NaN;
     p.wt[i] = hl * gw[i];
     p.dv0[i] = 4 * Number.EPSILON * o.mag + 2 * Number.EPSILON * (u + 2 * hl) * Math.abs(o.d);
-    const t = hl * gw[i] * Math.exp(o.lv + ps.side.wRef - bx.rHi);
+    const t = hl * gw[i] * Math.exp(o.lv + ps.side.wRef - p.rHi);
     J += t;
-    eJ += t * (4 * Number.EPSILON * (Math.abs(bx.rHi) + 1) + p.dv0[i] + 8 * Number.EPSILON);
+    eJ += t * (4 * Number.EPSILON * (Math.abs(p.rHi) + 1) + p.dv0[i] + 8 * Number.EPSILON);
   }
   p.J = J;
   p.eJ = eJ + NODES * Number.EPSILON * J;
@@ -158,7 +173,7 @@ export class PanelStore {
     if (this.from === 0 && Number.isFinite(side.wLowEnd)) {
       const h = hi / 2;
       if (this.ps.box(0, h - AF * h, h + AF * h, BF * h, this.bx) && this.bx.iMax <= IMAX_COARSE) {
-        this.panels.push(makePanel(this.ps, 0, 0, h, this.bx));
+        this.panels.push(makePanel(0, h, this.bx));
         this.fine.push(undefined);
         this.lvHi.push(lvHi);
         this.magHi.push(magHi);
@@ -183,7 +198,7 @@ export class PanelStore {
       return false;
     }
     this.guess = hl;
-    this.panels.push(makePanel(this.ps, this.from, hi - 2 * hl, hl, this.bx));
+    this.panels.push(makePanel(hi - 2 * hl, hl, this.bx));
     this.fine.push(undefined);
     this.lvHi.push(lvHi);
     this.magHi.push(magHi);
@@ -203,7 +218,7 @@ export class PanelStore {
         const lo = p.lo + 2 * hl * j;
         const m = lo + hl;
         if (!(this.ps.box(this.from, m - AF * hl, m + AF * hl, BF * hl, this.bx) && this.bx.iMax <= IMAX_FINE)) break;
-        out.push(makePanel(this.ps, this.from, lo, hl, this.bx));
+        out.push(makePanel(lo, hl, this.bx));
       }
       if (out.length === S) parts = out;
     }

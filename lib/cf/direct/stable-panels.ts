@@ -1,5 +1,5 @@
 import type { StableIntegrals } from "./stable-integral";
-import { EV_MAX, NODES, R_COARSE, R_FAR, THM, V1, type Panel, PanelStore, type PanelSide } from "./stable-panel-store";
+import { EV_MAX, NODES, R_COARSE, R_FAR, THM, V1, nodesOf, type Panel, PanelStore, type PanelSide } from "./stable-panel-store";
 
 /**
  * The integrals of the stable representation in theta itself (./stable-integral.ts):
@@ -95,10 +95,11 @@ function panelOrParts(st: PanelStore, k: number, lhAbs: number, lh: number, acc:
   // far out at alpha = 1 the kernel's support in u is 1/|log h| of the far left's, whose e^2v share must stay small
   if (vMax <= R_FAR - Math.log(Math.max(1, Math.abs(lhAbs)))) {
     // far left: e^v - e^2v <= K(v) <= e^v, e^v - e^2v / 2 <= 1 - exp(-e^v) <= e^v, so the panel's stored rule of V gives
-    // all three (I0 as the panel's length less I1's part), off by the rule's bound and e^2v
-    const s = Math.exp(vMax);
+    // all three (I0 as the panel's length less I1's part), off by the rule's bound, e^2v and log h's own error
+    nodesOf(st.ps, st.from, p);
+    const s = Math.exp(lhAbs + p.rHi);
     const b = s * p.J;
-    const e = s * p.eJ * (1 + s) + s * b;
+    const e = s * p.eJ * (1 + s) + s * b + 2 * acc.dl * b;
     acc.i1 += b;
     acc.ip += b;
     acc.i0 += 2 * p.hl - b;
@@ -109,12 +110,12 @@ function panelOrParts(st: PanelStore, k: number, lhAbs: number, lh: number, acc:
     return true;
   }
   if (vMax <= R_COARSE) {
-    panel(p, lhAbs, lh, acc);
+    panel(nodesOf(st.ps, st.from, p), lhAbs, lh, acc);
     return true;
   }
   const parts = st.fineOf(k);
   if (!parts) return false;
-  for (const q of parts) panel(q, lhAbs, lh, acc);
+  for (const q of parts) panel(nodesOf(st.ps, st.from, q), lhAbs, lh, acc);
   return true;
 }
 
