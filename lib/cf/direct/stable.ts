@@ -80,6 +80,9 @@ export function stableLastRoute(): "derived" | "estimate" {
   return lastRoute;
 }
 
+/** |z| below which alpha != 1 takes the values at zeta with the moves bounded */
+const NEAR_ZETA = 1e-12;
+
 /** Standard S1 stable (scale 1, location 0) at z, z known to within dz (the density's bound takes its effect). */
 export function stdAt(alpha: number, beta: number, z: number, out: DirectPoint, dz = 0): void {
   lastRoute = "derived";
@@ -91,6 +94,18 @@ export function stdAt(alpha: number, beta: number, z: number, out: DirectPoint, 
     return;
   }
   if (z === 0) return atZeta(alpha, beta, out);
+  if (Math.abs(z) < NEAR_ZETA) {
+    // within a rounding of zeta (where log h runs off and the integrals' bounds with it): the values at zeta, moved by
+    // at most sup f |z| and sup |f'| |z|, with sup f <= (1/pi) int |phi| = Gamma(1 + 1/alpha)/pi and
+    // sup |f'| <= (1/pi) int t |phi| = Gamma(2/alpha)/(alpha pi) (|phi(t)| = exp(-|t|^alpha); Nolan 2020, sec. 1.3)
+    atZeta(alpha, beta, out);
+    const az = Math.abs(z) * (1 + 1e-12);
+    const dF = (az * Math.exp(lgamma(1 + 1 / alpha))) / Math.PI;
+    out.pdfErr += (az * Math.exp(lgamma(2 / alpha))) / (alpha * Math.PI);
+    out.cdfErr += dF;
+    out.sfErr += dF;
+    return;
+  }
   if (z > 0) return sideAt(alpha, beta, z, out, dz);
   sideAt(alpha, -beta, -z, out, dz);
   swap(out);
