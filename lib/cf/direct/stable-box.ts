@@ -1,5 +1,6 @@
 import type { Box, PanelSide } from "./stable-panel-store";
 import type { StableSide } from "./stable-kernel";
+import { cotm, logSinc } from "./stable-trig";
 
 const HALF_PI = Math.PI / 2;
 const EPS = Number.EPSILON;
@@ -94,6 +95,21 @@ export function oneTightBox(beta: number, first: NonNullable<PanelSide["box"]>):
         c.ed = relP * (t1 + t3) + 8 * EPS * (t1 + 2 * Math.abs(ct) + t3);
         // the computed centre is within 2 eps m of the middle
         okB = centred(c, 0.5 * (x2 - x1) + 2 * EPS * m, Y, M2, b);
+      }
+    }
+    if (beta === 1 && from === 0) {
+      // the finite low end of beta = 1: log V - (log(2/pi) - 1) = -ls(u) - (u cot u - 1), ls(u) = log(sin u / u)
+      // = sum_k log(1 - u^2/(k pi)^2) and u cot u - 1 = sum_k 2 u^2 / (u^2 - (k pi)^2) (A&S 4.3.89, 4.3.70), so for
+      // |u| <= r < pi: |log V - (log(2/pi) - 1)| <= -ls(r) + (1 - r cot r), whatever the rectangle's distance from the end
+      const r = Math.hypot(Math.max(-x1, x2), Y);
+      if (r < 3) {
+        const B = (-logSinc(r) - r * cotm(r)) * (1 + 1e-12) + 4 * EPS * Math.abs(lg - 1);
+        const ok = okA || okB;
+        const c = okA && okB ? (intersect(a, b, a), a) : okA ? a : b;
+        out.rLo = Math.max(ok ? c.rLo : -Infinity, lg - 1 - B);
+        out.rHi = Math.min(ok ? c.rHi : Infinity, lg - 1 + B);
+        out.iMax = Math.min(ok ? c.iMax : Infinity, B);
+        return true;
       }
     }
     return intersect(okA ? a : null, okB ? b : null, out);

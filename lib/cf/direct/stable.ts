@@ -24,7 +24,7 @@ const HALF_PI = Math.PI / 2;
  * z < 0 reflects (z, beta) -> (-z, -beta) and swaps F and sf. I0, I1, Ip: see ./stable-integral.ts.
  * The integrals come from Gauss-Legendre panels in theta with a derived error bound (./stable-panels.ts, their
  * rectangles' bounds on log V tightened by ./stable-box.ts, which also keeps them usable next to alpha = 1) for
- * alpha != 1, and for alpha = 1 with beta < 1 and |log h| <= 4000. Elsewhere, and where the panels' bound is above
+ * alpha != 1, and for alpha = 1 with |log h| <= 4000. Elsewhere, and where the panels' bound is above
  * PANELS_REL of a value, the errors are estimates: the Gauss rule in log V next to alpha = 1 (./stable-near-one.ts)
  * and far out at alpha = 1 (./stable-far.ts), else the grid (./stable-integral.ts).
  */
@@ -238,11 +238,11 @@ const PANELS_MAX_LH = 4000;
 function oneAt(beta: number, z: number, out: DirectPoint, dz: number) {
   const lh = (-Math.PI * z) / (2 * beta);
   const dl = (Math.PI * dz) / (2 * beta);
-  // Gauss-Legendre panels in theta with derived bounds (./stable-panels.ts, their boxes tightened by ./stable-box.ts)
-  // for |log h| <= PANELS_MAX_LH and beta < 1; beyond (where the rounding of log h + log V, eps |log h| in v, pushes their
-  // bound above 1e-11 of a value), where the bound is above that anyway, or at beta = 1 (a finite end), the Gauss rule
-  // in log V far out (./stable-far.ts), else the grid: both with estimated errors
-  const panels = Math.abs(lh) <= PANELS_MAX_LH && beta < 1;
+  // Gauss-Legendre panels in theta with derived bounds (./stable-panels.ts, their boxes tightened by ./stable-box.ts,
+  // which also bounds log V up to the finite end of beta = 1) for |log h| <= PANELS_MAX_LH; beyond (where the rounding of
+  // log h + log V, eps |log h| in v, pushes their bound above 1e-11 of a value), or where the bound is above that
+  // anyway, the Gauss rule in log V far out (./stable-far.ts), else the grid: both with estimated errors
+  const panels = Math.abs(lh) <= PANELS_MAX_LH;
   const rp = panels ? stableOnePanels(beta, lh, 1e-11, dl) : null;
   if (!rp) lastRoute = "estimate";
   const r = rp ?? stableOneFar(beta, lh) ?? stableIntegrals(1, beta, lh);
