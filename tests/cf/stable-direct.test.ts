@@ -79,6 +79,10 @@ describe("stable, invariants on wide grids", () => {
     { alpha: 1.3, beta: -0.4 },
     { alpha: 1.7, beta: -1 },
     { alpha: 2 - 1e-3, beta: 0.3 },
+    // next to alpha = 1 and alpha = 1 totally skewed (the panels' boxes of lib/cf/direct/stable-box.ts)
+    { alpha: 0.999, beta: 0.5 },
+    { alpha: 1.001, beta: -0.9 },
+    { alpha: 1, beta: 1 },
   ];
   it.each(laws.flatMap((l) => (["S0", "S1"] as const).map((param) => [`alpha ${l.alpha} beta ${l.beta} ${param}`, { ...l, param }] as const)))(
     "%s: 0 <= cdf <= 1, non-decreasing within the bound, cdf + sf = 1 within the bound, pdf >= 0 (common practice)",
