@@ -3,7 +3,8 @@ import type { StableSide } from "./stable-kernel";
 /**
  * The stored panels of ./stable-panels.ts: per law and end, a partition of u (the distance from that end) into
  * Gauss-Legendre panels whose rectangles (the bounding boxes of their Bernstein ellipses E_rho) keep |Im log V| small,
- * with the rectangles' bounds on log V and the nodes' log V. None of it depends on log h, so every point reuses it.
+ * with the rectangles' bounds on log V (./stable-box.ts tightens the side's own) and the nodes' log V, evaluated on a
+ * panel's first use. None of it depends on log h, so every point reuses it.
  */
 
 /** Bounds on log V (not less wRef) over a rectangle [x1, x2] x [-Y, Y] of u, the distance from one end. */
