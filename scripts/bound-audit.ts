@@ -211,6 +211,23 @@ function cumulants() {
   }
 }
 
+/** tests/fixtures/lognormal-cumulants: kappa_1..kappa_40 (mpmath at 400 digits, two methods, hi + lo) */
+function lognormalCumulants() {
+  const set = "lognormal-cumulants";
+  const f = read<{ order: number; cases: { model: Model; cumulants: ([number, number] | null)[] }[] }>("lognormal-cumulants/lognormal-cumulants.json");
+  for (const k of f.cases) {
+    const c = compiled(set, k.model);
+    const got = c && guarded(`${set} cumulants`, () => ({ v: c.cumulants(f.order), e: c.cumulantErrors?.(f.order) ?? [] }));
+    if (!got) continue;
+    k.cumulants.forEach((ref, i) => {
+      const v = got.v[i];
+      // hi + lo: the reference's uncertainty against hi is |lo|, as in the moments set
+      if (ref && v !== null)
+        samples.push({ set, quantity: "moment", label: `${JSON.stringify(k.model)} kappa_${i + 1}`, got: v, want: ref[0], refErr: Math.abs(ref[1]) + 1e-30 * Math.abs(ref[0]), bound: got.e[i] ?? Infinity, tail: false });
+    });
+  }
+}
+
 /**
  * tests/fixtures/moments: raw and central moments, cumulants and the ratios of models across the notation (mpmath at
  * 40 digits, two methods); each reference is hi + lo, so the reference's uncertainty against hi is |lo|, far below
@@ -429,6 +446,7 @@ const SETS: [string, () => void][] = [
   ["reference-layered", layered],
   ["reference-risk", risk],
   ["layer-moments", layerMoments],
+  ["lognormal-cumulants", lognormalCumulants],
 ];
 
 // ---- the table ---------------------------------------------------------------------------------------------

@@ -7,6 +7,7 @@ import {
   add, bernoulliE, cumulantsToRawE, div, log, log1p, neg, exact, estList, expm1, exp, factorialE, gammaE, lgammaE, mul, PI, powInt, pow, rawToCumulantsE, sqrt, sub,
   type Est, type EstList,
 } from "../moment-error";
+import { connectedGraphSumsE } from "./connected-graphs";
 import { eulerianRow } from "./special";
 import { normalCdf } from "./dist";
 
@@ -116,22 +117,10 @@ export const inverseGaussianE = (mu: number, lambda: number) => (n: number): Est
     return div(mul(df, pow(x(mu), 2 * m - 1)), pow(x(lambda), m - 1));
   });
 
-/** lognormal: kappa_k = C_k(d) m1^k, C_k the connected-graph polynomial (non-negative integer coefficients) */
-export const lognormalE = (mu: number, sigma: number, poly: (k: number) => bigint[]) => (n: number): EstList => {
+/** lognormal: kappa_k = m1^k C_k(d), C_k the sum over connected graphs (./connected-graphs.ts, non-negative terms) */
+export const lognormalE = (mu: number, sigma: number) => (n: number): EstList => {
   const s2 = mul(x(sigma), x(sigma));
-  const d = expm1(s2);
-  const m1 = exp(add(x(mu), div(s2, x(2))));
-  const out: Est[] = [];
-  for (let k = 1; k <= n; k++) {
-    const p = poly(k);
-    let s = E0;
-    for (let i = p.length - 1; i >= 0; i--) {
-      const c = Number(p[i]);
-      s = add(mul(s, d), { v: c, e: BigInt(c) === p[i] ? 0 : Math.abs(c) * 2 ** -53 });
-    }
-    out.push(mul(s, powInt(m1, k)));
-  }
-  return out;
+  return connectedGraphSumsE(expm1(s2), exp(add(x(mu), div(s2, x(2)))), n);
 };
 
 /** beta on [a, b]: raw moments of Y by the product (alpha + k)/(alpha + beta + k), cumulants times w^n, kappa_1 = mean */

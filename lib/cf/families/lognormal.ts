@@ -6,6 +6,7 @@ import { fromPhiDamped } from "../damped-cf";
 import { arithmeticNodes, expSumArithmetic, fromPhi } from "./cf-quadrature";
 import { SUM_MOMENT_UNITS, arithmetic, logFromSums, quadratureNodes } from "./numeric-rule";
 import { KahanComplex } from "./kahan";
+import { connectedGraphSums } from "./connected-graphs";
 
 /**
  * Lognormal(mu, sigma): phi(t) = int N(y; mu, sigma^2) exp(i t e^y) dy. For t > 0 the integrand is entire in y and the
@@ -298,58 +299,11 @@ function roundingBound(w: Float64Array, v: Float64Array, n: number, sigma: numbe
   return { all: U * base + Math.max(U * wSum * damped, U * wSum * equispaced + shortcut), single: U * base + U * wSum * kahan };
 }
 
-// Connected labelled graphs on n vertices counted by edges: C_n(d) = G_n(d) - sum_{k<n} C(n-1,k-1) C_k(d) G_{n-k}(d),
-// G_n(d) = (1+d)^{C(n,2)} (Harary & Palmer, Graphical Enumeration, ch. 1, recalled from memory).
-const connected: bigint[][] = [];
-const graphs: bigint[][] = [];
-function binomBig(n: number, k: number): bigint {
-  let c = 1n;
-  for (let j = 1; j <= k; j++) c = (c * BigInt(n - k + j)) / BigInt(j);
-  return c;
-}
-function polyMul(a: bigint[], b: bigint[]): bigint[] {
-  const out = new Array<bigint>(a.length + b.length - 1).fill(0n);
-  for (let i = 0; i < a.length; i++) for (let j = 0; j < b.length; j++) out[i + j] += a[i] * b[j];
-  return out;
-}
-/** the row C(e, 0..e), e = C(n, 2), by C(e, k + 1) = C(e, k) (e - k) / (k + 1) (exact: each step is a whole binomial), kept */
-function allGraphs(n: number): bigint[] {
-  let row = graphs[n];
-  if (row) return row;
-  const e = (n * (n - 1)) / 2;
-  row = new Array<bigint>(e + 1);
-  row[0] = 1n;
-  for (let k = 0; k < e; k++) row[k + 1] = (row[k] * BigInt(e - k)) / BigInt(k + 1);
-  graphs[n] = row;
-  return row;
-}
-export function connectedPoly(n: number): bigint[] {
-  for (let m = connected.length + 1; m <= n; m++) {
-    const g = allGraphs(m).slice();
-    for (let k = 1; k < m; k++) {
-      const term = polyMul(connected[k - 1], allGraphs(m - k));
-      const f = binomBig(m - 1, k - 1);
-      for (let i = 0; i < term.length; i++) g[i] -= f * term[i];
-    }
-    connected.push(g);
-  }
-  return connected[n - 1];
-}
-
 /**
  * Lognormal cumulants without cancellation: with Y = X / E X the raw moments are w^{C(n,2)}, w = e^{sigma^2}, so
- * kappa_n(Y) = sum over connected labelled graphs on n vertices of d^{edges}, d = w - 1 (non-negative coefficients);
+ * kappa_n(Y) = sum over connected labelled graphs on n vertices of d^{edges}, d = w - 1 (non-negative terms only);
  * kappa_n(X) = (E X)^n kappa_n(Y). Raw moments E X^n = exp(n mu + n^2 sigma^2 / 2) (JKB vol. 1, ch. 14).
  */
 export function lognormalCumulants(mu: number, sigma: number, n: number): number[] {
-  const d = Math.expm1(sigma * sigma);
-  const m1 = Math.exp(mu + (sigma * sigma) / 2);
-  const out: number[] = [];
-  for (let k = 1; k <= n; k++) {
-    const p = connectedPoly(k);
-    let s = 0;
-    for (let i = p.length - 1; i >= 0; i--) s = s * d + Number(p[i]);
-    out.push(s * m1 ** k);
-  }
-  return out;
+  return connectedGraphSums(Math.expm1(sigma * sigma), Math.exp(mu + (sigma * sigma) / 2), n);
 }

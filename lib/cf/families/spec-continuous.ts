@@ -9,7 +9,6 @@ import type { FamilyName, FamilySpec } from "./spec-types";
 import { real, pos, withDist } from "./spec-types";
 import { withCumulantErrors } from "../cumulant-bounds";
 import * as CE from "./cumulant-errors";
-import { connectedPoly } from "./lognormal";
 import { estList, rawToCumulantsE } from "../moment-error";
 import { gammaPartial, lognormalPartial, normalLayerMoment, paretoPartial, uniformLayerMoment, weibullPartial, withLayerMoment } from "./layer-moments";
 
@@ -227,7 +226,7 @@ export const CONTINUOUS_SPECS: Pick<Record<FamilyName, FamilySpec>, "normal" | "
     source: "Johnson, Kotz & Balakrishnan vol. 1, ch. 14",
     direct: (p) => D.lognormalDirect(p.mu as number, p.sigma as number),
     layerable: true,
-    build: (p) => withCumulantErrors(withDist(lognormal(p.mu, p.sigma), withLayerMoment(lognormalDist(p.mu, p.sigma), lognormalPartial(p.mu, p.sigma, lognormalDist(p.mu, p.sigma).accuracy))), CE.lognormalE(p.mu, p.sigma, connectedPoly)),
+    build: (p) => withCumulantErrors(withDist(lognormal(p.mu, p.sigma), withLayerMoment(lognormalDist(p.mu, p.sigma), lognormalPartial(p.mu, p.sigma, lognormalDist(p.mu, p.sigma).accuracy))), CE.lognormalE(p.mu, p.sigma)),
     tailIndex: "none (heavier than any exponential)",
   },
   pareto: {
