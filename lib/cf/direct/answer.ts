@@ -71,9 +71,10 @@ interface Probe {
  * Quantile q_p of a continuous law from its direct cdf/sf: the closed-form quantile when the family has one, else a
  * bracketed secant-bisection on F(x) = p (or S(x) = 1 - p above the median, keeping relative accuracy in the upper
  * tail). The error bound is rigorous given the cdf bounds: points xl < q < xr are searched where F(xl) + e < p and
- * F(xr) - e > p, so the true quantile lies in [xl, xr]; the bound is max(q - xl, xr - q).
+ * F(xr) - e > p, so the true quantile lies in [xl, xr]; the bound is max(q - xl, xr - q). `known`: points already
+ * evaluated, from which the search starts its bracket.
  */
-export function directQuantile(law: DirectLaw, p: number): { x: number; err: number } {
+export function directQuantile(law: DirectLaw, p: number, known: readonly number[] = []): { x: number; err: number } {
   const [lo, hi] = law.support;
   if (p <= 0) return { x: lo, err: 0 };
   if (p >= 1) return { x: hi, err: 0 };
@@ -85,12 +86,22 @@ export function directQuantile(law: DirectLaw, p: number): { x: number; err: num
     if (upper) return { x, r: target - pt.sf, e: pt.sfErr, f: pt.pdf };
     return { x, r: pt.cdf - target, e: pt.cdfErr, f: pt.pdf };
   };
-  let x0 = law.quantile ? law.quantile(p) : NaN;
+  // points the caller has evaluated already (a law that remembers them answers again at no cost): the closest on each
+  // side of the root start the bracket, so that a run of levels in increasing order walks from the last answer
+  let ka: Probe | null = null;
+  let kb: Probe | null = null;
+  for (const x of known) {
+    if (!(x >= lo && x <= hi)) continue;
+    const k = probe(x);
+    if (k.r < 0 && (!ka || x > ka.x)) ka = k;
+    if (k.r > 0 && (!kb || x < kb.x)) kb = k;
+  }
+  let x0 = ka && kb ? ka.x : ka ? ka.x : kb ? kb.x : law.quantile ? law.quantile(p) : NaN;
   if (!Number.isFinite(x0)) x0 = law.center;
   x0 = Math.min(Math.max(x0, lo), hi);
   // bracket: a with r < 0, b with r > 0
   let a = probe(x0);
-  let b = a;
+  let b = ka && kb ? kb : a;
   if (a.r === 0) return refineBounds(probe, a, lo, hi);
   let step = law.spread;
   if (a.r < 0) {

@@ -20,7 +20,7 @@ export function takenOutAt(s: DampedSolution, x: number): { F: number; f: number
   return { F: out.F + u.F, f: out.f + u.f, I: out.I + u.I, err: out.err + u.errF, errf: out.errf + u.errf, errI: out.errI + u.errI };
 }
 
-/** Values and error bounds of the continuous part at x (cdf, density, integrated cdf). */
+/** Values and error bounds of the continuous part at x (cdf, density, integrated cdf: NaN with an infinite bound unless asked). */
 export interface DampedPoint {
   Fc: number;
   fc: number;
@@ -150,7 +150,10 @@ export function dampedAt(s: DampedSolution, x: number, wantPdf: boolean, wantInt
   // q/(1-q) E[(Y - (y + T))^+] <= q/(1-q) E[Y^2] / (4 (y + T)) for Y >= 0 ((u - c)^+ <= u^2 / (4c), common practice)
   let images = 0;
   let aliasI = s.aliasIntCoef * (y + s.T / (1 - s.q));
-  if (s.intImages) {
+  // the integrated cdf's image bound costs a Riemann sum of the tail bound: only when the integrated cdf is asked
+  // (without it Ic is NaN and its bound infinite)
+  if (!wantInt) aliasI = Infinity;
+  else if (s.intImages) {
     const { A, B, second } = s.intImages;
     const r = s.q / (1 + s.q);
     images = -r * (A * y - B) - (A * s.T * r) / (1 + s.q);
@@ -158,7 +161,7 @@ export function dampedAt(s: DampedSolution, x: number, wantPdf: boolean, wantInt
     const rest = s.imageTail ? imageIntegralTail(s.imageTail, y + s.T, second) : second / (4 * (y + s.T));
     aliasI = (s.q / (1 - s.q)) * rest + 8 * EPS * (Math.abs(A) * (y + s.T) + Math.abs(B)) * r;
   }
-  const Ic = Math.min(Math.max(f * aI - images + kv.I, 0), s.Mc * y);
+  const Ic = wantInt ? Math.min(Math.max(f * aI - images + kv.I, 0), s.Mc * y) : NaN;
   // the undamping product f * a: exp(beta y) within (1 + beta y) eps, the products within 4 eps
   const fin = (8 + s.beta * y) * EPS;
   return {

@@ -62,6 +62,25 @@ function leftEnd(law: DirectLaw, r: { x: number; err: number }, p: number, sprea
   return { x: hi, err: r.x + r.err - lo, flat: true };
 }
 
+/** The law with every point it was asked kept (each costs every component's evaluation), and those points. */
+function remembering(law: DirectLaw): { law: DirectLaw; seen: () => number[] } {
+  const memo = new Map<number, DirectPoint>();
+  return {
+    law: {
+      ...law,
+      at(x: number, out: DirectPoint) {
+        let v = memo.get(x);
+        if (!v) {
+          law.at(x, (v = directPoint()));
+          memo.set(x, v);
+        }
+        Object.assign(out, v);
+      },
+    },
+    seen: () => [...memo.keys()],
+  };
+}
+
 /** Quantiles and expected shortfall of a mixture from its components; null when a component has no route here. */
 export function mixtureQuantiles(model: CompiledModel, p: Float64Array, o: QuantileOptions): QuantileResult | null {
   const leaves = mixtureLeaves(model);
@@ -76,7 +95,7 @@ export function mixtureQuantiles(model: CompiledModel, p: Float64Array, o: Quant
   }
   const cs = components(leaves, tol, tail, lowTail);
   if (!cs) return null;
-  const law = mixtureLaw(model, cs);
+  const { law, seen } = remembering(mixtureLaw(model, cs));
   const atoms = mixtureAtoms(cs);
   const pt = directPoint();
   const n = p.length;
@@ -84,7 +103,10 @@ export function mixtureQuantiles(model: CompiledModel, p: Float64Array, o: Quant
   const err = new Float64Array(n);
   let cdfError = 0;
   let flat = false;
-  for (let i = 0; i < n; i++) {
+  // levels in increasing order: each search starts from the points the earlier ones evaluated (the last answer below
+  // it, the nearest point above)
+  const order = Array.from(p.keys()).sort((u, v) => p[u] - p[v]);
+  for (const i of order) {
     checkDeadline("mixture-quantile");
     const pi = p[i];
     // a level inside an atom's jump: the atom, exactly (the jump's ends clear of the bounds)
@@ -100,7 +122,7 @@ export function mixtureQuantiles(model: CompiledModel, p: Float64Array, o: Quant
       }
     }
     if (hit) continue;
-    const r = leftEnd(law, directQuantile(law, pi), pi, model.scale, pt);
+    const r = leftEnd(law, directQuantile(law, pi, seen()), pi, model.scale, pt);
     if (r.flat) flat = true;
     x[i] = r.x;
     err[i] = r.err;
