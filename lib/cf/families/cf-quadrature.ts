@@ -114,6 +114,26 @@ export function contourLogCfArithmetic(c: Contour, scale: number, t: Float64Arra
   return bound;
 }
 
+/** expSumArithmetic's recurrence for one real term c exp(t e w): the same steps as the complex one on real parts only */
+function realRecurrence(c: number, er: number, d: number, cut: number, tk: Float64Array, outRe: Float64Array, kr: Float64Array): void {
+  const K = tk.length;
+  const rr = Math.exp(d * er);
+  let k = 0;
+  while (k < K) {
+    const lm = tk[k] * er;
+    if (lm < cut) break;
+    let zr = c * Math.exp(lm);
+    const end = Math.min(K, k + RESYNC);
+    for (; k < end; k++) {
+      const yr = zr - kr[k];
+      const sr = outRe[k] + yr;
+      kr[k] = sr - outRe[k] - yr;
+      outRe[k] = sr;
+      zr *= rr;
+    }
+  }
+}
+
 /** Taylor order used for the nodes summed through their moments in expSumArithmetic. */
 const MOMENT_ORDER = 24;
 /** e / 25!: Taylor remainder of exp(z) after the z^24 term for |z| <= 1. */
@@ -199,6 +219,10 @@ export function expSumArithmetic(
       outIm[k] = ai;
     }
   }
+  // real weights and a real w (the Student t's Bessel rule): the imaginary parts are exact zeros throughout, so the real
+  // recurrence alone gives the same sums to the bit at half the work
+  let real = wIm === 0;
+  for (let j = J0; real && j < n; j++) real = cIm[j] === 0;
   for (let j = J0; j < n; j++) {
     if ((j & 63) === 0) checkDeadline("cf-quadrature");
     const a = cabs(cRe[j], cIm[j]);
@@ -208,6 +232,10 @@ export function expSumArithmetic(
     // the recurrence's drift is relative to the term's own size, at most |c_j| exp(t_0 e_j Re w) (Re w < 0, t >= t_0)
     absSum += a * Math.exp(tk[0] * er);
     const cut = Math.log(DROP / a);
+    if (real) {
+      realRecurrence(cRe[j], er, d, cut, tk, outRe, kr);
+      continue;
+    }
     const sa = Math.exp(d * er);
     const rr = sa * Math.cos(d * ei);
     const ri = sa * Math.sin(d * ei);
