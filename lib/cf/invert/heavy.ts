@@ -78,6 +78,9 @@ export function heavyPath(
   let cdfErr = Infinity;
   let prevBest: { pdf: Float64Array | null; cdf: Float64Array; sf: Float64Array } | null = null;
   let lastNodes: Nodes | null = null;
+  // the density from the level where its own bound was least: its floor (the sums' bound times the amplification) grows
+  // with the levels, so the level the cdf needs may hold a worse density than an earlier one
+  let bestPdf: { pdf: Float64Array; err: number } | null = null;
   for (let lev = 0; lev < MAX_LEVELS; lev++) {
     checkDeadline("refine");
     const T = T0 * 2 ** lev;
@@ -143,7 +146,19 @@ export function heavyPath(
       solution: null,
     };
     prevBest = best;
-    if (lev >= 2 && error.cdf <= tol && (!opt.wantPdf || error.pdf <= tol)) break;
+    if (result.pdf && error.pdf < (bestPdf?.err ?? Infinity)) bestPdf = { pdf: result.pdf, err: error.pdf };
+    const pdfErrBest = bestPdf?.err ?? Infinity;
+    if (lev >= 2 && error.cdf <= tol && (!opt.wantPdf || pdfErrBest <= tol)) break;
+    // the sums' own bound (truncation and rounding, which another doubling keeps), amplified by one more extrapolation
+    // level, already exceeds what is reached: a further level could not lower the error, only double the work
+    const ampNext = richardsonAmplification(expC, lev + 2);
+    const floorC = ampNext * (2 * trunc.cdf + round.cdf);
+    const floorP = ampNext * (2 * trunc.pdf + round.pdf);
+    if (lev >= 2 && (error.cdf <= tol || floorC >= error.cdf) && (!opt.wantPdf || pdfErrBest <= tol || floorP >= pdfErrBest)) break;
+  }
+  if (bestPdf && result!.pdf && bestPdf.err < result!.error.pdf) {
+    result!.pdf = bestPdf.pdf;
+    result!.error.pdf = bestPdf.err;
   }
   notes.push(`power tails (index ${shape.alpha}): period doubled ${result!.levels - 1} times with Richardson extrapolation`);
   if (part.kernels.length || part.tail) {
