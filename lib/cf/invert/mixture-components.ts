@@ -13,6 +13,7 @@ import { evalLadder, growLadder, heavyLadder } from "./heavy";
 import { richardsonAmplification } from "./richardson";
 import { heavyShortfall, shortfallLight } from "./shortfall";
 import { stopLossBounds } from "./tail-moments";
+import { markovExcess, markovTail, momentBounds } from "./moment-tails";
 
 interface Value {
   F: number;
@@ -89,11 +90,19 @@ function dampedComponent(w: number, m: CompiledModel, R0: number, tol: number, t
     R = lo + 2 * (x - lo);
     return true;
   };
+  // beyond the range, the law's moments bound its tail (Markov at the best order, ./moment-tails.ts): a light tail is
+  // then answered without growing the range, where the inversion's own bound at R (which grows toward the range's end)
+  // would ask for a setup two to four times as long
+  const moments = (x: number) => (Number.isFinite(lo) ? momentBounds(m, lo, x - lo) : null);
   const at = (x: number): Value => {
     if (x < lo) return { F: 0, S: 1, f: 0, eF: 0, eS: 0 };
     if (x <= R) return inside(x);
     const r = inside(R);
-    const sR = Math.max(r.S, 0) + r.eS;
+    let sR = Math.max(r.S, 0) + r.eS;
+    if (w * sR > target) {
+      const mb = moments(x);
+      if (mb) sR = Math.min(sR, markovTail(mb, x - lo, false));
+    }
     if (w * sR > target && grow(x)) return inside(x);
     return { F: 1 - sR / 2, S: sR / 2, f: 0, eF: sR / 2, eS: sR / 2 };
   };
@@ -103,7 +112,13 @@ function dampedComponent(w: number, m: CompiledModel, R0: number, tol: number, t
     at,
     excess(q) {
       if (mean === null || !Number.isFinite(mean) || !(m.momentIndex > 1)) return null;
-      if (q > R && !grow(q)) return { value: 0, error: Infinity };
+      if (q > R) {
+        // E[(X - q)^+] in [0, b] from the moments when w b is below the target, else a longer range
+        const mb = moments(q);
+        const b = mb ? markovExcess(mb, q - lo) : Infinity;
+        if (w * b <= target) return { value: b / 2, error: b / 2 };
+        if (!grow(q)) return { value: 0, error: Infinity };
+      }
       return dampedExcess(s!, atoms, mean, q);
     },
     terms: () => s!.K,

@@ -28,6 +28,24 @@ export function markovTail(m: MomentBounds, r: number, evenOnly: boolean): numbe
 }
 
 /**
+ * E[(X - lo - r)^+] for X >= lo, r > 0, at its best order: (y - r)^+ <= y^n (n - 1)^{n-1} / (n^n r^{n-1}) for y >= 0 and
+ * n >= 2 (the ratio (y - r) / y^n is largest at y = n r / (n - 1)), so E[(Y - r)^+] <= E[Y^n] (n - 1)^{n-1} / (n^n r^{n-1});
+ * each candidate carries the rounding of its logarithms as markovTail's do. Infinity when no order is usable.
+ */
+export function markovExcess(m: MomentBounds, r: number): number {
+  if (!(r > 0)) return Infinity;
+  const lr = Math.log(r / m.c);
+  let best = Infinity;
+  for (let n = 2; n < m.logU.length; n++) {
+    const l = m.logU[n];
+    if (Number.isNaN(l)) continue;
+    const shape = (n - 1) * Math.log(n - 1) - n * Math.log(n);
+    best = Math.min(best, l + shape - (n - 1) * lr + 8 * EPS * (Math.abs(l) + Math.abs(shape) + n * Math.abs(lr) + n + 1));
+  }
+  return m.c * Math.exp(best) * (1 + 8 * EPS);
+}
+
+/**
  * Upper bounds on E[((X - lo) / c)^n], n = 1 .. N < min(momentIndex, MAX_ORDER + 1), as logarithms, c a scale that keeps
  * them in range; null when the cumulants or their bounds are missing. The raw moments come from the cumulants by the
  * recursion m_n = sum_j C(n - 1, j - 1) kappa_j m_{n - j} (Smith 1995, Int. Stat. Review 63, eq. 5; kappa_1 shifted by
