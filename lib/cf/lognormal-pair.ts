@@ -33,7 +33,7 @@ const Phi = (z: number) => 0.5 * erfc(-z / Math.SQRT2);
 const V_LO = -10;
 /** Phi(-10), the mass the integrals leave out on the left (A&S 26.2.12: below phi(10)/10 = 7.7e-24) */
 const LEFT = 7.7e-24;
-/** per-panel quadrature target (on F_2, which is at most 1) */
+/** default per-panel quadrature target (on F_2, which is at most 1); a caller that needs less passes its own */
 const PANEL_TOL = 1e-16;
 const MAX_IM = 1.5;
 
@@ -49,7 +49,15 @@ const rule = (n: number) => {
   return r;
 };
 
-export function lognormalPair(mu: number, sigma: number): { at(x: number): PairValues; densityBeyond(from: number): number } {
+/**
+ * `at(x, wantPdf, wantInt, panelTol)`: a part not asked for is not formed (its value NaN, its bound Infinity), which
+ * saves its transcendental calls at every node (the cdf alone takes one exp, one log and one Phi a node of the five);
+ * panelTol is the per-panel target of the rule's bound (default 1e-16; the bounds returned hold for any target)
+ */
+export function lognormalPair(
+  mu: number,
+  sigma: number,
+): { at(x: number, wantPdf?: boolean, wantInt?: boolean, panelTol?: number): PairValues; densityBeyond(from: number): number } {
   const m1 = Math.exp(mu + (sigma * sigma) / 2);
   const d = Math.LN2 / sigma;
   // on the ellipses: |Phi(w)|, |phi(w)| <= e^{(arg / sigma)^2 / 2} with |arg(x - y)| <= pi/4
@@ -72,14 +80,21 @@ export function lognormalPair(mu: number, sigma: number): { at(x: number): PairV
       s += 2 * L;
     }
   }
-  const at = (x: number): PairValues => {
+  const at = (x: number, wantPdf = true, wantInt = true, panelTol = PANEL_TOL): PairValues => {
     if (!(x > 0)) return { F: 0, f: 0, I: 0, errF: 0, errf: 0, errI: 0 };
     const vm = (Math.log(x / 2) - mu) / sigma;
     const Pm = Phi(vm);
     if (vm <= V_LO) {
       // F_2(x) <= F(x)^2, f_2(x) <= 2 F(x/2) sup_{z >= x/2} f(z), I_2 <= x F_2(x): returned as 0 with those bounds
       const Fx = Phi(vm + d);
-      return { F: 0, f: 0, I: 0, errF: Fx * Fx, errf: 2 * Pm * pdf1(Math.max(x / 2, mode)), errI: x * Fx * Fx };
+      return {
+        F: 0,
+        f: wantPdf ? 0 : NaN,
+        I: wantInt ? 0 : NaN,
+        errF: Fx * Fx,
+        errf: wantPdf ? 2 * Pm * pdf1(Math.max(x / 2, mode)) : Infinity,
+        errI: wantInt ? x * Fx * Fx : Infinity,
+      };
     }
     let sF = 0;
     let sf = 0;
@@ -104,7 +119,7 @@ export function lognormalPair(mu: number, sigma: number): { at(x: number): PairV
       const k = ((64 / 15) * M * L) / (p.rho * p.rho - 1);
       // the fewest nodes from the list whose bound k rho^{-2n} is below the panel target
       let n = 4;
-      while (n < 48 && k * Math.pow(p.rho, -2 * n) > PANEL_TOL) n += 4;
+      while (n < 48 && k * Math.pow(p.rho, -2 * n) > panelTol) n += 4;
       qF += k * Math.pow(p.rho, -2 * n);
       const r = rule(n);
       for (let i = 0; i < n; i++) {
@@ -113,22 +128,25 @@ export function lognormalPair(mu: number, sigma: number): { at(x: number): PairV
         const z = x - Math.exp(mu + sigma * v);
         const wz = (Math.log(z) - mu) / sigma;
         const P = Phi(wz);
-        const P2 = Phi(wz - sigma);
         sF += wt * P;
-        const tf = (wt * Math.exp(-0.5 * wz * wz)) / (z * sigma * SQ2PI);
-        sf += tf;
-        // rounding of the density term: its exponent carries |wz| times the rounding of wz (logs of z and x)
-        rf += tf * Number.EPSILON * (16 + (2 * Math.abs(wz) * (Math.abs(Math.log(z)) + Math.abs(mu) + 1)) / sigma);
-        const i1 = z * P - m1 * P2;
-        sI += wt * i1;
         aF += wt * P;
-        aI += wt * (z * P + m1 * P2);
+        if (wantPdf) {
+          const tf = (wt * Math.exp(-0.5 * wz * wz)) / (z * sigma * SQ2PI);
+          sf += tf;
+          // rounding of the density term: its exponent carries |wz| times the rounding of wz (logs of z and x)
+          rf += tf * Number.EPSILON * (16 + (2 * Math.abs(wz) * (Math.abs(Math.log(z)) + Math.abs(mu) + 1)) / sigma);
+        }
+        if (wantInt) {
+          const P2 = Phi(wz - sigma);
+          sI += wt * (z * P - m1 * P2);
+          aI += wt * (z * P + m1 * P2);
+        }
       }
     }
-    const P2m = Phi(vm - sigma);
+    const P2m = wantInt ? Phi(vm - sigma) : NaN;
     const F = Math.min(Math.max(2 * sF - Pm * Pm, 0), 1);
-    const f = Math.max(2 * sf, 0);
-    const I = Math.max(2 * sI - x * Pm * Pm + 2 * Pm * m1 * P2m, 0);
+    const f = wantPdf ? Math.max(2 * sf, 0) : NaN;
+    const I = wantInt ? Math.max(2 * sI - x * Pm * Pm + 2 * Pm * m1 * P2m, 0) : NaN;
     // the rule's bound scales with M: for f_2 by |f(x - y)| / |Phi(w)| <= 1 / (sqrt(2 pi) sigma x (1 - 1/sqrt 2)),
     // for I_2 by |I_1(x - y)| / |Phi(w)| <= x (1 + 1/sqrt 2) + m1
     const fScale = 1 / (SQ2PI * sigma * x * (1 - Math.SQRT1_2));
@@ -141,8 +159,8 @@ export function lognormalPair(mu: number, sigma: number): { at(x: number): PairV
       f,
       I,
       errF: 2 * (qF + LEFT) + (ACC + round) * (2 * aF + Pm * Pm),
-      errf: 2 * (qF * fScale + LEFT * fMax) + 2 * rf + round * f,
-      errI: 2 * (qF * iScale + LEFT * x) + (ACC + round) * (2 * aI + x * Pm * Pm + 2 * Pm * m1 * P2m),
+      errf: wantPdf ? 2 * (qF * fScale + LEFT * fMax) + 2 * rf + round * f : Infinity,
+      errI: wantInt ? 2 * (qF * iScale + LEFT * x) + (ACC + round) * (2 * aI + x * Pm * Pm + 2 * Pm * m1 * P2m) : Infinity,
     };
   };
   // f_2(y) = 2 int_0^{y/2} f(u) f(y - u) du <= 2 sup_{z >= y/2} f(z) (f decreases beyond its mode)

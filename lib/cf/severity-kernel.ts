@@ -13,8 +13,8 @@ export interface SeverityKernel {
   w: number;
   /** log E[e^{(i t - beta) X}] of the severity (its damped transform) */
   dampedLogCf(beta: number, t: Float64Array, re: Float64Array, im: Float64Array): void;
-  /** w F_X(x), w f_X(x), w int_0^x F_X and bounds on their errors */
-  at(x: number): { F: number; f: number; I: number; err: number; errf: number; errI: number };
+  /** w F_X(x), w f_X(x), w int_0^x F_X and bounds on their errors (a part not asked for may be NaN, bound Infinity) */
+  at(x: number, wantPdf?: boolean, wantInt?: boolean): { F: number; f: number; I: number; err: number; errf: number; errI: number };
   /** a bound on w f_X(y) for every y >= from */
   densityBeyond(from: number): number;
   /** for the notes */
@@ -49,7 +49,13 @@ export interface SeverityKernel {
    * one (values weighted by w, with their bounds); the inversion takes it out too where that saves more terms than
    * its evaluation costs at the points asked for
    */
-  pair?: { w: number; at(x: number): PairValues; densityBeyond(from: number): number; moments: readonly [number, number] };
+  pair?: {
+    w: number;
+    /** w2 F_2(x), w2 f_2(x), w2 int_0^x F_2 with bounds; parts not asked NaN (bound Infinity); panelTol: the quadrature's target */
+    at(x: number, wantPdf?: boolean, wantInt?: boolean, panelTol?: number): PairValues;
+    densityBeyond(from: number): number;
+    moments: readonly [number, number];
+  };
 }
 
 /** relative accuracy of normalCdf (./families/dist: erfc through the incomplete gamma, 1e-14 with margin) */
@@ -106,8 +112,8 @@ export function lognormalKernel(
 function weightedPair(w2: number, law: ReturnType<typeof lognormalPair>, m1: number, m2: number): NonNullable<SeverityKernel["pair"]> {
   return {
     w: w2,
-    at(x) {
-      const v = law.at(x);
+    at(x, wantPdf, wantInt, panelTol) {
+      const v = law.at(x, wantPdf, wantInt, panelTol);
       return { F: w2 * v.F, f: w2 * v.f, I: w2 * v.I, errF: w2 * v.errF, errf: w2 * v.errf, errI: w2 * v.errI };
     },
     densityBeyond: (from) => w2 * law.densityBeyond(from),

@@ -34,6 +34,27 @@ describe("sum of two lognormal claims: cdf, density and integrated cdf within th
       }
     }
   });
+  // the damped route asks the quadrature for tol / 1000 a panel and only the parts it needs: the values asked for stay
+  // within their (larger) bounds against the same mpmath references; the parts not asked for are NaN with an Infinity bound
+  it.each(fixture.cases.map((c) => [c.mu, c.sigma, c] as const))("lognormal(%s, %s), panel target 1e-12, cdf alone and cdf with density", (_mu, _s, c) => {
+    const pair = lognormalPair(c.mu, c.sigma);
+    for (const p of c.points) {
+      for (const wantPdf of [false, true]) {
+        const v = pair.at(p.x, wantPdf, false, 1e-12);
+        const checks: [string, number, number, number, number][] = [["F", v.F, p.F, v.errF, c.crossCheck.maxAbsoluteDifference.F]];
+        if (wantPdf) checks.push(["f", v.f, p.f, v.errf, c.crossCheck.maxAbsoluteDifference.f]);
+        for (const [k, got, want, bound, ref] of checks) {
+          const d = Math.abs(got - want);
+          if (!(d <= bound + ref)) expect.fail(`${k}(${p.x}) mu ${c.mu} sigma ${c.sigma} (panel target 1e-12): got ${got}, reference ${want}, difference ${d}, bound ${bound}`);
+          // 46 panels at most, each within 1e-12: the bound stays below 1e-10 (times the density's scale for f)
+          expect(bound).toBeLessThanOrEqual(k === "f" ? 1e-10 * Math.max(1, p.f * 1e3) : 1e-10);
+        }
+        expect(v.I).toBeNaN();
+        expect(v.errI).toBe(Infinity);
+        if (!wantPdf) expect(v.errf).toBe(Infinity);
+      }
+    }
+  });
   it("prints the worst actual/bound ratios", () => {
     console.log("worst actual/bound ratios (lognormal-pair):", JSON.stringify(worst));
     expect(Object.keys(worst).length).toBe(3);

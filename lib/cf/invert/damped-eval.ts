@@ -9,18 +9,27 @@ import { imageIntegralTail } from "./damped-images";
 
 const EPS = Number.EPSILON;
 
-/** the gamma kernels and the one-claim term at x: what the inverted remainder leaves out */
-export function takenOutAt(s: DampedSolution, x: number): { F: number; f: number; I: number; err: number; errf: number; errI: number } {
+/**
+ * the gamma kernels and the one- and two-claim terms at x: what the inverted remainder leaves out. The density and the
+ * integrated cdf only where asked (the two-claim term's quadrature then skips their transcendental calls; a part not
+ * asked for may be NaN with an Infinity bound)
+ */
+export function takenOutAt(
+  s: DampedSolution,
+  x: number,
+  wantPdf = true,
+  wantInt = true,
+): { F: number; f: number; I: number; err: number; errf: number; errI: number } {
   const kv = s.kernels.length ? kernelsAt(s.kernels, x) : { F: 0, f: 0, I: 0, err: 0, errf: 0, errI: 0 };
   if (!s.severity) return kv;
-  const v = s.severity.at(x);
+  const v = s.severity.at(x, wantPdf, wantInt);
   const out = { F: kv.F + v.F, f: kv.f + v.f, I: kv.I + v.I, err: kv.err + v.err, errf: kv.errf + v.errf, errI: kv.errI + v.errI };
   if (!s.pair) return out;
-  const u = s.pair.at(x);
+  const u = s.pair.at(x, wantPdf, wantInt, s.pairTol);
   return { F: out.F + u.F, f: out.f + u.f, I: out.I + u.I, err: out.err + u.errF, errf: out.errf + u.errf, errI: out.errI + u.errI };
 }
 
-/** Values and error bounds of the continuous part at x (cdf, density, integrated cdf: NaN with an infinite bound unless asked). */
+/** Values and error bounds of the continuous part at x (cdf, density, integrated cdf; those not asked for NaN, bound Infinity). */
 export interface DampedPoint {
   Fc: number;
   fc: number;
@@ -141,17 +150,17 @@ export function dampedAt(s: DampedSolution, x: number, wantPdf: boolean, wantInt
   aI += eI;
   const g = Math.exp(s.beta * y);
   const f = (g * h) / Math.PI;
-  const kv = takenOutAt(s, x);
+  const kv = takenOutAt(s, x, wantPdf, wantInt);
   // clamping to the known range [0, Mc] only moves a value toward the truth
   const Fc = Math.min(Math.max(f * aC + kv.F + s.cdfShift, 0), s.Mc);
-  const fc = Math.max(f * aP + kv.f, 0);
+  const fc = wantPdf ? Math.max(f * aP + kv.f, 0) : NaN;
   // images of the integrated cdf: sum_{m >= 1} (-1)^m q^m (A (y + m T) - B) in closed form
   // (sum (-1)^m q^m = -q/(1+q), sum (-1)^m m q^m = -q/(1+q)^2); what is left is at most
   // q/(1-q) E[(Y - (y + T))^+] <= q/(1-q) E[Y^2] / (4 (y + T)) for Y >= 0 ((u - c)^+ <= u^2 / (4c), common practice)
   let images = 0;
   let aliasI = s.aliasIntCoef * (y + s.T / (1 - s.q));
-  // the integrated cdf's image bound costs a Riemann sum of the tail bound: only when the integrated cdf is asked
-  // (without it Ic is NaN and its bound infinite)
+  // without the integrated cdf asked for, its value and bound are not formed (the per-point image bound costs a Riemann
+  // sum of the tail bound): Ic is NaN and errI Infinity then
   if (!wantInt) aliasI = Infinity;
   else if (s.intImages) {
     const { A, B, second } = s.intImages;
@@ -169,7 +178,7 @@ export function dampedAt(s: DampedSolution, x: number, wantPdf: boolean, wantInt
     fc,
     Ic,
     errF: g * s.sumCdf + aliasCdfAt(s, y) + kv.err + fin * Math.abs(f * aC),
-    errf: g * s.sumPdf + s.aliasPdf + kv.errf + fin * Math.abs(f * aP),
+    errf: wantPdf ? g * s.sumPdf + s.aliasPdf + kv.errf + fin * Math.abs(f * aP) : Infinity,
     errI: g * s.sumInt + aliasI + kv.errI + fin * Math.abs(f * aI),
   };
 }
@@ -218,11 +227,11 @@ export function dampedGrid(
     if (y < 0) continue;
     if ((j & 63) === 0) alias = aliasCdfAt(s, y);
     const g = Math.exp(s.beta * y);
-    const kv = takenOutAt(s, from + j * dx);
+    const kv = takenOutAt(s, from + j * dx, wantPdf, false);
     Fc[j] = Math.min(Math.max(g * gC[j] + kv.F + s.cdfShift, 0), s.Mc);
     fc[j] = wantPdf ? Math.max(g * gP[j] + kv.f, 0) : 0;
     errF[j] = g * s.sumCdf + alias + kv.err;
-    errf[j] = g * s.sumPdf + s.aliasPdf + kv.errf;
+    errf[j] = wantPdf ? g * s.sumPdf + s.aliasPdf + kv.errf : NaN;
   }
   return { fc, Fc, errF, errf };
 }

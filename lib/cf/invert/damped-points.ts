@@ -126,27 +126,42 @@ export interface PointsPlan {
  * H^C + i s H^P gives g_C in its real part and s g_P in its imaginary part. s, a power of 2 (exact products), near
  * sum |c_k| / sum |p_k| evens the two sums' shares of the rounding. Rounding of each output, per unit of the inputs'
  * absolute sum sum |c_k| + s sum |p_k|: FFT_REL (the transform and the post-rotation) plus the wrapped bins (each bin
- * sums up to 2 ceil(K / N) halves) and the half-sums (a few eps); the caller charges it. Returns s.
+ * sums up to 2 ceil(K / N) halves) and the half-sums (a few eps); the caller charges it. Without the density (gP null)
+ * the transform takes H^C alone and s = 1. Returns s.
  */
-function packedSums(s: DampedSolution, N: number, gC: Float64Array, gP: Float64Array, jHi: number, M: number): number {
+function packedSums(s: DampedSolution, N: number, gC: Float64Array, gP: Float64Array | null, jHi: number, M: number): number {
   const plan = getFftPlan(N);
   const X = plan.a;
   const out = plan.b;
   X.fill(0);
-  const sc = s.scaleP > 0 && s.scaleC > 0 ? Math.pow(2, Math.round(Math.log2(s.scaleC / s.scaleP))) : 1;
+  const sc = gP && s.scaleP > 0 && s.scaleC > 0 ? Math.pow(2, Math.round(Math.log2(s.scaleC / s.scaleP))) : 1;
   const half = 0.5 * sc;
   const { K, cRe, cIm, pRe, pIm } = s;
-  for (let k = 0; k < K; k++) {
-    const b = k & (N - 1);
-    const b2 = N - 1 - b;
-    const cr = 0.5 * cRe[k];
-    const ci = 0.5 * cIm[k];
-    const pr = half * pRe[k];
-    const pi = half * pIm[k];
-    X[2 * b] += cr - pi;
-    X[2 * b + 1] += ci + pr;
-    X[2 * b2] += cr + pi;
-    X[2 * b2 + 1] += pr - ci;
+  if (gP) {
+    for (let k = 0; k < K; k++) {
+      const b = k & (N - 1);
+      const b2 = N - 1 - b;
+      const cr = 0.5 * cRe[k];
+      const ci = 0.5 * cIm[k];
+      const pr = half * pRe[k];
+      const pi = half * pIm[k];
+      X[2 * b] += cr - pi;
+      X[2 * b + 1] += ci + pr;
+      X[2 * b2] += cr + pi;
+      X[2 * b2 + 1] += pr - ci;
+    }
+  } else {
+    // the cdf sum alone: H^C in the real part, the imaginary part of the transform then holds rounding only
+    for (let k = 0; k < K; k++) {
+      const b = k & (N - 1);
+      const b2 = N - 1 - b;
+      const cr = 0.5 * cRe[k];
+      const ci = 0.5 * cIm[k];
+      X[2 * b] += cr;
+      X[2 * b + 1] += ci;
+      X[2 * b2] += cr;
+      X[2 * b2 + 1] -= ci;
+    }
   }
   checkDeadline("fft");
   plan.forward(X, out);
@@ -163,7 +178,7 @@ function packedSums(s: DampedSolution, N: number, gC: Float64Array, gP: Float64A
     const zr = out[2 * j];
     const zi = out[2 * j + 1];
     gC[j] = f * (er * zr - ei * zi);
-    gP[j] = (f * (er * zi + ei * zr)) / sc;
+    if (gP) gP[j] = (f * (er * zi + ei * zr)) / sc;
   }
   return sc;
 }
@@ -216,15 +231,16 @@ export function dampedPoints(
   // with the density, one FFT for both sums: the rounding of each then counts the other's inputs too (times the scale)
   let fftC = 0;
   let fftP = 0;
-  if (gP) {
+  if (gP || s.pointwise) {
     // the furthest grid index a stencil reaches: the largest point's position, its M/2 right neighbours, 2 for rounding
     let yMax = 0;
     for (let i = 0; i < xs.length; i++) if (xs[i] - s.lo > yMax) yMax = xs[i] - s.lo;
     const jHi = Math.floor(yMax / dx) + M / 2 + 2;
     const sc = packedSums(s, N, gC, gP, jHi, M);
     const r = FFT_REL + (2 * Math.ceil(s.K / N) + 6) * Number.EPSILON;
-    fftC = r * (s.scaleC + sc * s.scaleP);
-    fftP = r * (s.scaleC / sc + s.scaleP);
+    // the cdf alone: what the transform rounds beyond the setup's allowance s.rel, which sumCdf already charges to scaleC
+    fftC = gP ? r * (s.scaleC + sc * s.scaleP) : Math.max(0, r - s.rel) * s.scaleC;
+    fftP = gP ? r * (s.scaleC / sc + s.scaleP) : 0;
   } else sumOnGrid(mk(s.cRe, s.cIm), s.lo, s.lo, N, 0, N, gC, null, null);
   const n = xs.length;
   const fc = new Float64Array(n);
@@ -235,10 +251,7 @@ export function dampedPoints(
   // the truncated sums are anti-periodic with period T: g(y + T) = -g(y) (t_k T = (k + 1/2) 2 pi)
   const at = (g: Float64Array, j: number) => (j < 0 ? -g[j + N] : j >= N ? -g[j - N] : g[j]);
   // with exact nodes the grid's points are exactly j 2 pi / (N h): each point's grid position is found in double-double,
-  // so only the FFT's own rounding (FFT_REL, and the wrapped bins' sums) is left; without them, the setup's allowance
-  const exact = !!s.pointwise;
-  const wrap = exact ? (Math.ceil(s.K / N) + 1) * Number.EPSILON : 0;
-  const excess = exact ? Math.max(0, FFT_REL + wrap - s.rel) : 0;
+  // so only the FFT's own rounding (fftC: FFT_REL, and the wrapped bins' sums) is left; without them, the setup's allowance
   const pos = new Float64Array(2);
   for (let i = 0; i < n; i++) {
     if ((i & 1023) === 0) checkDeadline("pointwise");
@@ -247,7 +260,7 @@ export function dampedPoints(
     if (y < 0) continue;
     let j: number;
     let r: number;
-    if (exact) {
+    if (s.pointwise) {
       gridPosition(x, s.lo, s.h, N, pos);
       j = pos[0];
       r = pos[1];
@@ -288,19 +301,19 @@ export function dampedPoints(
     let leb = 0;
     for (let a = 0; a < M; a++) leb += Math.abs(w[a]);
     const g = Math.exp(s.beta * y);
-    const kv = takenOutAt(s, x);
+    const kv = takenOutAt(s, x, wantPdf, false);
     Fc[i] = Math.min(Math.max(g * vC + kv.F + s.cdfShift, 0), s.Mc);
     fc[i] = gP ? Math.max(g * vP + kv.f, 0) : 0;
     // the truncation part of the sums' bound holds at every y (no stencil factor); their rounding and CF-value parts
     // sit in the grid values and pass through the weights (times the Lebesgue sum); the weights and the stencil's sum
     // round within (3 M + 4) eps of sum |w_a g_a|; rho's own rounding (4 eps of a grid step) moves the point by
     // 4 eps dx, over which the sums change by at most their derivative's bound (h/pi) sum t_k |c_k| <= scaleP
-    const roundC = s.sumCdf - s.truncCdf + (gP ? fftC : excess * s.scaleC);
+    const roundC = s.sumCdf - s.truncCdf + fftC;
     const roundP = s.sumPdf - s.truncPdf + fftP;
     const wr = (3 * M + 4) * Number.EPSILON;
     const shift = 8 * Number.EPSILON * dx;
     errF[i] = g * (s.truncCdf + leb * roundC + interpC + wr * aC + shift * s.scaleP) + s.aliasCdf + kv.err;
-    errf[i] = g * (s.truncPdf + leb * roundP + interpP + wr * aP + shift * plan.dP1) + s.aliasPdf + kv.errf;
+    errf[i] = gP ? g * (s.truncPdf + leb * roundP + interpP + wr * aP + shift * plan.dP1) + s.aliasPdf + kv.errf : NaN;
   }
   return { fc, Fc, errF, errf };
 }

@@ -89,6 +89,11 @@ export interface DampedSolution {
   severity: SeverityKernel | null;
   /** the two-claim term taken out of psi_c (added back by quadrature), or null */
   pair: SeverityKernel["pair"] | null;
+  /**
+   * the two-claim term's per-panel quadrature target: tol / 1000, not below 1e-16 (some 25 panels, so the rule's part is
+   * a few hundredths of tol where every panel reaches it); the term's stated bound is what the answer carries
+   */
+  pairTol: number;
   notes: string[];
 }
 
@@ -267,6 +272,7 @@ export function dampedSetup(model: CompiledModel, atoms: Atom[], R: number, o: D
     kernels: ks,
     severity: model.dampedSeverity ?? null,
     pair,
+    pairTol: Math.max(tol / 1000, 1e-16),
     q,
     maxFrequency: K * h,
     capped,
