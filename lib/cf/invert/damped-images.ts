@@ -101,3 +101,47 @@ export function imageIntegralTail(B: (z: number) => number, c: number, second: n
   }
   return best * (1 + 4 * EPS);
 }
+
+/**
+ * Limits and second moment of the inverted function G (continuous part less kernels and the one-claim term) for its
+ * images: G(z) -> A and int_lo^z G = A (z - lo) - B + r(z) far out, |G(z) - A| <= second / (z - lo)^2, |r(z)| <=
+ * second / (4 (z - lo)); null without a finite second moment.
+ */
+export function imageMoments(model: CompiledModel, atoms: Atom[], pairOut: boolean): { A: number; B: number; second: number } | null {
+  const lo = model.support[0];
+  const k2 = model.cumulants(2);
+  if (!(model.momentIndex > 2) || k2[0] === null || k2[1] === null || !Number.isFinite(k2[0]) || !Number.isFinite(k2[1])) return null;
+  const Mc = Math.max(1 - atoms.reduce((s, a) => s + a.p, 0), 0);
+  const m1 = k2[0] - lo;
+  let mc = m1;
+  let second = k2[1] + m1 * m1;
+  for (const a of atoms) {
+    mc -= a.p * (a.x - lo);
+    second -= a.p * (a.x - lo) ** 2;
+  }
+  let W = 0;
+  let mK = 0;
+  for (const k of model.dampedKernels ?? []) {
+    const d = k.at - lo;
+    W += k.w;
+    mK += k.w * (d + k.shape / k.rate);
+    second += Math.abs(k.w) * (d * d + (2 * d * k.shape) / k.rate + (k.shape * (k.shape + 1)) / (k.rate * k.rate));
+  }
+  // the one-claim term w F_X (X from 0, like the compound): weight w, mean w E X, second moment w E X^2 about lo
+  const sev = model.dampedSeverity;
+  if (sev) {
+    const d = -lo;
+    W += sev.w;
+    mK += sev.w * (d + sev.moments[0]);
+    second += sev.w * (d * d + 2 * d * sev.moments[0] + sev.moments[1]);
+    // and the two-claim term w2 F_{X_1 + X_2}
+    const pr = sev.pair;
+    if (pairOut && pr) {
+      W += pr.w;
+      mK += pr.w * (d + pr.moments[0]);
+      second += pr.w * (d * d + 2 * d * pr.moments[0] + pr.moments[1]);
+    }
+  }
+  if (!Number.isFinite(mc) || !Number.isFinite(second)) return null;
+  return { A: Mc - W, B: mc - mK, second: Math.max(second, 0) };
+}

@@ -4,6 +4,7 @@ import type { SeverityKernel } from "../severity-kernel";
 import { kernelsMass, subtractKernels } from "../damped-kernels";
 import { scratch } from "../damped-scratch";
 import { cutoffFor, envelopeOf, probeFrequencies, truncationAt, type Envelope } from "./nodes";
+import { imageMoments } from "./damped-images";
 
 const EPS = Number.EPSILON;
 
@@ -123,7 +124,15 @@ function severityPsi(sev: SeverityKernel, count: NonNullable<SeverityKernel["cou
   const pa = atoms.reduce((s, a) => s + a.p, 0);
   // the severity's transform and the count's log-pgf taken rectangular where both have that form: no log and exp of phi
   const rect = !!(sev.dampedCf && count.logPgf);
-  return (t: Float64Array, re: Float64Array, im: Float64Array, noise?: Float64Array) => {
+  // `also`: the same remainder with the two-claim term out as well (weight also.w2), from the same transform values (a
+  // plan's probe makes both plans from one evaluation of the severity's transform)
+  return (
+    t: Float64Array,
+    re: Float64Array,
+    im: Float64Array,
+    noise?: Float64Array,
+    also?: { w2: number; re: Float64Array; im: Float64Array; noise: Float64Array },
+  ) => {
     const a = scratch("sevRe", t.length);
     const b = scratch("sevIm", t.length);
     // d: the bound on the severity transform values' absolute error (the route's own where it returns one; a plan's
@@ -165,28 +174,30 @@ function severityPsi(sev: SeverityKernel, count: NonNullable<SeverityKernel["cou
       }
       r -= sev.w * fr;
       i -= sev.w * fi;
+      // an error d in phi moves P_N(phi) - p_1 phi (- p_2 phi^2) by at most E N |z|^j d (see above), or, where the
+      // count bounds its slope near phi (|P_N'| far below E N where |P_N| is small), by (slope + p_1 + 2 p_2 z) d;
+      // m is |P_N(phi)| within its exp's rounding; exp of the cumulant function rounds within a few eps of |cr| + |ci|
+      let base = 0;
+      let slope = Infinity;
+      const z = ph + d;
+      if (noise) {
+        const expRound = EPS * (4 + 2 * Math.abs(cr) + 2 * Math.abs(ci));
+        base = 16 * EPS * (1 + pa + sev.w) + expRound * m + count.absError + 2 * count.relError * (m + pa);
+        if (count.slopeNear) slope = count.slopeNear(m * (1 + expRound), d);
+      }
+      if (also) {
+        const v = also.w2;
+        also.re[k] = r - v * (fr * fr - fi * fi);
+        also.im[k] = i - v * 2 * fr * fi;
+        also.noise[k] = base + 16 * EPS * v + Math.min(count.mean * (v > 0 ? z * z : z) * d, (slope + sev.w + 2 * v * z) * d);
+      }
       if (w2 > 0) {
         r -= w2 * (fr * fr - fi * fi);
         i -= w2 * 2 * fr * fi;
       }
       re[k] = r;
       im[k] = i;
-      if (noise) {
-        const z = ph + d;
-        // an error d in phi moves P_N(phi) - p_1 phi (- p_2 phi^2) by at most E N |z|^j d (see above), or, where the
-        // count bounds its slope near phi (|P_N'| far below E N where |P_N| is small), by (slope + p_1 + 2 p_2 z) d;
-        // m is |P_N(phi)| within its exp's rounding
-        const viaMean = count.mean * (w2 > 0 ? z * z : z) * d;
-        // exp of the cumulant function: its rounding (a few eps of |cr| + |ci|, the rounding of cr and ci) is relative to m
-        const expRound = EPS * (4 + 2 * Math.abs(cr) + 2 * Math.abs(ci));
-        const viaSlope = count.slopeNear ? (count.slopeNear(m * (1 + expRound), d) + sev.w + 2 * w2 * z) * d : Infinity;
-        noise[k] =
-          16 * EPS * (1 + pa + sev.w + w2) +
-          expRound * m +
-          count.absError +
-          2 * count.relError * (m + pa) +
-          Math.min(viaMean, viaSlope);
-      }
+      if (noise) noise[k] = base + 16 * EPS * w2 + Math.min(count.mean * (w2 > 0 ? z * z : z) * d, (slope + sev.w + 2 * w2 * z) * d);
     }
   };
 }
@@ -203,12 +214,48 @@ function subtractSeverity(k: SeverityKernel, beta: number, t: Float64Array, re: 
   }
 }
 
+/**
+ * the probes made per compiled model, by damping and whether the two-claim term is out: the quantile search plans each
+ * loose solution and the final one (twice where the wider budget is tried), and a plan probes at beta = 4 / span before
+ * probing its chosen beta, often the same one; the atoms are the model's own, so the key is complete
+ */
+const PROBES = new WeakMap<CompiledModel, Map<string, Envelope & { noise: Float64Array }>>();
+const MAX_PROBES = 32;
+
 function probe(model: CompiledModel, atoms: Atom[], beta: number, pairOut: boolean): Envelope & { noise: Float64Array } {
+  let memo = PROBES.get(model);
+  if (!memo) PROBES.set(model, (memo = new Map()));
+  const key = probeKey(beta, pairOut, atoms);
+  let hit = memo.get(key);
+  if (!hit) {
+    if (memo.size >= MAX_PROBES) memo.clear();
+    hit = probeAt(model, atoms, beta, pairOut, memo);
+    memo.set(key, hit);
+  }
+  return hit;
+}
+
+const probeKey = (beta: number, pairOut: boolean, atoms: Atom[]) => `${beta}|${pairOut}|${atoms.length}`;
+
+function probeAt(model: CompiledModel, atoms: Atom[], beta: number, pairOut: boolean, memo: Map<string, Envelope & { noise: Float64Array }>) {
   const tp = probeFrequencies(Math.max(model.scale, 1e-300));
-  const pr = new Float64Array(tp.length);
-  const pi = new Float64Array(tp.length);
-  const nz = new Float64Array(tp.length);
-  psiOf(model, atoms, beta, pairOut, true)(tp, pr, pi, nz);
+  const n = tp.length;
+  const pr = new Float64Array(n);
+  const pi = new Float64Array(n);
+  const nz = new Float64Array(n);
+  // a compound with a two-claim term: both remainders (with and without it) from one evaluation of the severity's
+  // transform, the other one kept for the plan that asks for it next
+  const sev = model.dampedSeverity;
+  const w2 = sev?.pair?.w ?? 0;
+  if (sev?.count && model.support[0] === 0 && w2 > 0) {
+    const other = { w2: pairOut ? 0 : w2, re: new Float64Array(n), im: new Float64Array(n), noise: new Float64Array(n) };
+    severityPsi(sev, sev.count, atoms, beta, pairOut ? w2 : 0, true)(tp, pr, pi, nz, other);
+    memo.set(probeKey(beta, !pairOut, atoms), envelopeFrom(tp, other.re, other.im, other.noise));
+  } else psiOf(model, atoms, beta, pairOut, true)(tp, pr, pi, nz);
+  return envelopeFrom(tp, pr, pi, nz);
+}
+
+function envelopeFrom(tp: Float64Array, pr: Float64Array, pi: Float64Array, nz: Float64Array): Envelope & { noise: Float64Array } {
   const mag = new Float64Array(tp.length);
   for (let i = 0; i < tp.length; i++) mag[i] = Math.hypot(pr[i], pi[i]);
   // values below the rounding of the atom subtraction and the CF's own error are not resolved (envelopeOf asks
@@ -320,48 +367,4 @@ function planFor(
   if (!Number.isFinite(tmax)) tmax = env.t[env.t.length - 1];
   const T = periodFor(U);
   return { plan: { beta, T, U, env, tmax, noise, pairOut, rounding: best.bad }, K: (tmax * periodOf(T)) / (2 * Math.PI) };
-}
-
-/**
- * Limits and second moment of the inverted function G (continuous part less kernels and the one-claim term) for its
- * images: G(z) -> A and int_lo^z G = A (z - lo) - B + r(z) far out, |G(z) - A| <= second / (z - lo)^2, |r(z)| <=
- * second / (4 (z - lo)); null without a finite second moment.
- */
-export function imageMoments(model: CompiledModel, atoms: Atom[], pairOut: boolean): { A: number; B: number; second: number } | null {
-  const lo = model.support[0];
-  const k2 = model.cumulants(2);
-  if (!(model.momentIndex > 2) || k2[0] === null || k2[1] === null || !Number.isFinite(k2[0]) || !Number.isFinite(k2[1])) return null;
-  const Mc = Math.max(1 - atoms.reduce((s, a) => s + a.p, 0), 0);
-  const m1 = k2[0] - lo;
-  let mc = m1;
-  let second = k2[1] + m1 * m1;
-  for (const a of atoms) {
-    mc -= a.p * (a.x - lo);
-    second -= a.p * (a.x - lo) ** 2;
-  }
-  let W = 0;
-  let mK = 0;
-  for (const k of model.dampedKernels ?? []) {
-    const d = k.at - lo;
-    W += k.w;
-    mK += k.w * (d + k.shape / k.rate);
-    second += Math.abs(k.w) * (d * d + (2 * d * k.shape) / k.rate + (k.shape * (k.shape + 1)) / (k.rate * k.rate));
-  }
-  // the one-claim term w F_X (X from 0, like the compound): weight w, mean w E X, second moment w E X^2 about lo
-  const sev = model.dampedSeverity;
-  if (sev) {
-    const d = -lo;
-    W += sev.w;
-    mK += sev.w * (d + sev.moments[0]);
-    second += sev.w * (d * d + 2 * d * sev.moments[0] + sev.moments[1]);
-    // and the two-claim term w2 F_{X_1 + X_2}
-    const pr = sev.pair;
-    if (pairOut && pr) {
-      W += pr.w;
-      mK += pr.w * (d + pr.moments[0]);
-      second += pr.w * (d * d + 2 * d * pr.moments[0] + pr.moments[1]);
-    }
-  }
-  if (!Number.isFinite(mc) || !Number.isFinite(second)) return null;
-  return { A: Mc - W, B: mc - mK, second: Math.max(second, 0) };
 }

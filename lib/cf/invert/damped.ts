@@ -3,8 +3,8 @@ import type { GammaKernel } from "../damped-kernels";
 import type { SeverityKernel } from "../severity-kernel";
 import { kernelsDensityBeyond, kernelsMass } from "../damped-kernels";
 import { truncationAt } from "./nodes";
-import { dampedPlan, exactStep, imageMoments, psiOf, sumAllowance, type DampedPlan, type Exactness } from "./damped-transform";
-import { imageTail } from "./damped-images";
+import { dampedPlan, exactStep, psiOf, sumAllowance, type DampedPlan, type Exactness } from "./damped-transform";
+import { imageMoments, imageTail } from "./damped-images";
 import { scratch, type ScratchSlot } from "../damped-scratch";
 
 export { dampedPlan, type DampedPlan } from "./damped-transform";
