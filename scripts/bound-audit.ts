@@ -153,7 +153,10 @@ function directFamilies() {
     // 20 significant digits written; rel_diff is the second method's difference
     const rel = fam.points.map((p) => Math.max(p.rel_diff ?? 1e-19, 1e-19));
     points(set, fam.model, c, fam.points.map((p) => ({ x: num(p.x), pdf: num(p.pdf), cdf: num(p.cdf), sf: num(p.sf) })), (v, i) => rel[i] * Math.abs(v));
-    levels(set, fam.model, c, fam.quantiles.map((q) => ({ p: q.p, q: num(q.x), qErr: 1e-19 * Math.abs(num(q.x)) })));
+    // quantiles: 20 digits written, found at 40 digits (absolute to ~1e-38 of the law's scale, which a quantile at 0
+    // of a symmetric law shows as a residue like -2e-41)
+    const scale = Math.max(...fam.quantiles.map((q) => Math.abs(num(q.x))));
+    levels(set, fam.model, c, fam.quantiles.map((q) => ({ p: q.p, q: num(q.x), qErr: 1e-19 * Math.abs(num(q.x)) + 1e-38 * scale })));
   }
 }
 
@@ -171,11 +174,13 @@ function referenceFamilies() {
 
 function truncnorm() {
   const set = "reference-truncnorm";
-  const f = read<{ cases: { model: Model; cdf: { x: number; cdf: number; sf: number }[]; raw: number[] }[] }>("reference-truncnorm/truncnorm.json");
+  const f = read<{ cases: { model: Model; cdf: { x: number; cdf: number; sf: number }[]; cdfSource: string; raw: number[] }[] }>("reference-truncnorm/truncnorm.json");
   for (const k of f.cases) {
     const c = compiled(set, k.model);
     if (!c) continue;
-    points(set, k.model, c, k.cdf.map((p) => ({ x: p.x, cdf: p.cdf, sf: p.sf })), (v) => 1e-14 * Math.abs(v) + 1e-16);
+    // mpmath at 50 digits: the value's rounding to a double (the DOUBLE floor) is its only uncertainty
+    const rel = k.cdfSource.startsWith("mpmath") ? 0 : 1e-14;
+    points(set, k.model, c, k.cdf.map((p) => ({ x: p.x, cdf: p.cdf, sf: p.sf })), (v) => rel * Math.abs(v) + (rel ? 1e-16 : 0));
     rawMoments(set, k.model, c, k.raw, 1e-13);
   }
 }

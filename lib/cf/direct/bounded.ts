@@ -37,9 +37,11 @@ export function betaDirect(alpha: number, beta: number, a: number, b: number, na
     mean,
     w * Math.sqrt((alpha * beta) / (s * s * (s + 1))),
     (x, o) => {
+      // x, a and b are doubles: x - a, b - x and w = b - a are each within one rounding, so z and y are each within
+      // 3 roundings relative (not absolute: next to an end the argument keeps its relative accuracy, as the law does)
       const z = (x - a) / w;
       const y = (b - x) / w;
-      const dz = (3 * EPS * (Math.abs(x) + Math.max(Math.abs(a), Math.abs(b)))) / w;
+      const rz = 3.01 * EPS;
       if (z <= 0 || y <= 0) {
         const lower = z <= 0;
         o.cdf = lower ? 0 : 1;
@@ -59,8 +61,10 @@ export function betaDirect(alpha: number, beta: number, a: number, b: number, na
         o.cdf = betainc(y, beta, alpha, true, true);
         o.sf = betainc(y, beta, alpha, true, false);
       }
-      const rPdf = 1e-13 + eLogB + 8 * EPS * (1 + Math.abs((alpha - 1) * lz) + Math.abs((beta - 1) * ly) + Math.abs(lp)) + (Math.abs(alpha - 1) / z + Math.abs(beta - 1) / y) * dz;
-      bounds(o, SPECIAL, rPdf, dz * w);
+      // log f moves by (alpha - 1) dz/z + (beta - 1) dy/y; F moves by f times the shift of the argument it was computed
+      // from (z below the middle, y above), rz (x - a) or rz (b - x); over so short a shift f changes by a factor below 1.01
+      const rPdf = 1e-13 + eLogB + 8 * EPS * (1 + Math.abs((alpha - 1) * lz) + Math.abs((beta - 1) * ly) + Math.abs(lp)) + (Math.abs(alpha - 1) + Math.abs(beta - 1)) * 1.01 * rz;
+      bounds(o, SPECIAL, rPdf, 1.01 * rz * (z <= 0.5 ? z : y) * w);
     },
     (p) => (p <= 0.5 ? a + w * betaincinv(p, alpha, beta, false) : b - w * betaincinv(1 - p, beta, alpha, false)),
     `${name} cdf by the regularised incomplete beta function (stdlib betainc)`,
@@ -170,6 +174,8 @@ export function truncatedNormalDirect(mu: number, sigma: number, lower?: number,
   const center = Math.min(Math.max(mu, lo), hi);
   const spread = Math.min(sigma, Number.isFinite(hi - lo) ? (hi - lo) / 2 : Infinity, al > 0 ? sigma / al : Infinity, be < 0 ? sigma / -be : Infinity);
   const dAbs = (x: number) => (2 * EPS * (Math.abs(x) + Math.abs(mu))) / sigma;
+  // the rounding of a finite end's standardised value (end - mu)/sigma
+  const dEnd = (end: number) => dAbs(end) + EPS * Math.abs((end - mu) / sigma);
   return law(
     "special-function",
     [lo, hi],
@@ -204,15 +210,22 @@ export function truncatedNormalDirect(mu: number, sigma: number, lower?: number,
       // next to a finite end the difference of two Phi values cancels: the strip's series instead
       const hLo = Number.isFinite(A) ? (flip ? hi - x : x - lo) / sigma : Infinity;
       const hUp = Number.isFinite(B) ? (flip ? x - lo : hi - x) / sigma : Infinity;
+      // x and the end are doubles, so the strip's width (x - end)/sigma is within 2 roundings relative; over the strip
+      // phi changes by at most e^{q + q^2/2} <= 1.12 (q <= 0.1), so the strip moves by at most 1.12 of its value times
+      // that; the end's own rounding dA (in A = (end - mu)/sigma) moves it by |phi(A + h) - phi(A)| dA <= 1.12 L (|A| + h) dA
+      let stripL = false;
+      let stripU = false;
       if (hLo * (Math.abs(A) + 1) <= 0.1) {
         const r = strip(A, hLo);
         L = r.v;
-        eL = r.e + (r.v * 2 * EPS * (Math.abs(x) + Math.abs(lo) + Math.abs(hi === Infinity ? 0 : hi))) / (sigma * hLo || 1);
+        eL = r.e + 1.12 * r.v * (2.01 * EPS + (Math.abs(A) + hLo) * dEnd(flip ? hi : lo));
+        stripL = true;
       }
       if (hUp * (Math.abs(B) + 1) <= 0.1) {
         const r = strip(-B, hUp);
         U = r.v;
-        eU = r.e + (r.v * 2 * EPS * (Math.abs(x) + Math.abs(hi) + Math.abs(lo === -Infinity ? 0 : lo))) / (sigma * hUp || 1);
+        eU = r.e + 1.12 * r.v * (2.01 * EPS + (Math.abs(B) + hUp) * dEnd(flip ? lo : hi));
+        stripU = true;
       }
       L = Math.max(L, 0);
       U = Math.max(U, 0);
@@ -223,9 +236,10 @@ export function truncatedNormalDirect(mu: number, sigma: number, lower?: number,
       const sf = U / Z;
       o.cdf = flip ? sf : cdf;
       o.sf = flip ? cdf : sf;
+      // the rounding of z moves a part computed from Phi(t); a part from the strip has counted its own argument's
       const moved = o.pdf * dz * sigma;
-      const eLo = eL / Z + cdf * rZ + 2 * EPS * cdf + moved;
-      const eUp = eU / Z + sf * rZ + 2 * EPS * sf + moved;
+      const eLo = eL / Z + cdf * rZ + 2 * EPS * cdf + (stripL ? 0 : moved);
+      const eUp = eU / Z + sf * rZ + 2 * EPS * sf + (stripU ? 0 : moved);
       o.cdfErr = flip ? eUp : eLo;
       o.sfErr = flip ? eLo : eUp;
       o.pdfErr = o.pdf * (rZ + 4 * EPS * (1 + Math.abs(lp)) + Math.abs(z) * dz);
