@@ -25,6 +25,13 @@ export interface LatticeTable {
   tailMass: number;
   /** when the table approximates a law that is not lattice (discretised severity): bound on |cdf error| vs that law */
   cdfError?: number;
+  /**
+   * where the table is a recursion from an accurate first term: a bound on the relative error of p[k] (the
+   * recursion's roundings up to k), non-decreasing in k; absent where only the whole table's bound is known
+   */
+  pointRel?: (k: number) => number;
+  /** with pointRel: a bound on p[k] for k past the table's end (the answer there is 0, so this bounds its error) */
+  beyond?: (k: number) => number;
 }
 
 export interface CompiledModel {

@@ -152,3 +152,35 @@ describe("per-point error bounds of the light route (tests/fixtures/lattice-sums
     });
   }
 });
+
+// Count laws tabulated by their recursions: each pmf within its own relative bound (and past the table within the bound
+// on the pmf there), each cdf within its own, against the (a, b, 1) class references (tests/fixtures/reference-counts/
+// generate.py beside them: exact fractions, or mpmath at 40 digits, written as doubles).
+describe("per-point error bounds of count tables (tests/fixtures/reference-counts, fractions and mpmath)", () => {
+  const f = JSON.parse(readFileSync(join(__dirname, "../fixtures/reference-counts/counts.json"), "utf8")) as { cases: { model: Model; pmf: number[] }[] };
+  expect(f.cases.length).toBeGreaterThanOrEqual(10);
+  for (const c of f.cases) {
+    it(JSON.stringify(c.model), () => {
+      const xs = c.pmf.map((_, k) => k);
+      const r = density(compile(c.model), { x: xs });
+      const d = r.diagnostics;
+      expect(d.method).toBe("lattice-table");
+      const pe = d.pointError!;
+      expect(pe, "point bounds present").toBeDefined();
+      let F = 0;
+      c.pmf.forEach((p, k) => {
+        F += p;
+        // the reference's own precision: each double within half an ulp, the running sum one rounding a term
+        const refP = 1.2e-16 * p;
+        const refF = (k + 2) * 2.3e-16 * F;
+        const msg = `${JSON.stringify(c.model)} at ${k}: pmf ${r.pmf![k]} reference ${p}, cdf ${r.cdf[k]} reference ${F}; point bounds ${pe.pdf[k]} ${pe.cdf[k]}, whole ${d.error.pdf} ${d.error.cdf}`;
+        expect(pe.pdf[k], msg).toBeLessThanOrEqual(d.error.pdf);
+        expect(pe.cdf[k], msg).toBeLessThanOrEqual(d.error.cdf);
+        expect(Math.abs(r.pmf![k] - p), msg).toBeLessThanOrEqual(pe.pdf[k] + refP);
+        expect(Math.abs(r.cdf[k] - Math.min(F, 1)), msg).toBeLessThanOrEqual(pe.cdf[k] + refF);
+      });
+      // the bounds follow the values: far below the whole table's bound where the pmf is small
+      expect(Math.min(...pe.pdf), JSON.stringify(c.model)).toBeLessThan(1e-2 * d.error.pdf);
+    });
+  }
+});

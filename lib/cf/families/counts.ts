@@ -60,7 +60,8 @@ export function logarithmic(p: number): Node {
         if (q < TAIL_EPS * total) break;
       }
       // dropped tail: sum_{j>=k} p1 p^{j-1}/j <= q / (1 - p)
-      return { origin: 0, step: 1, p: Float64Array.from(buf), tailMass: q / (1 - p) };
+      // p1 = -p / log1p(-p) within 2 eps (an ulp of log1p and a division); each step p (k - 1)/k times q: four roundings
+      return { origin: 0, step: 1, p: Float64Array.from(buf), tailMass: q / (1 - p), pointRel: (j) => 1.01 * (2 * Number.EPSILON + 2 * j * Number.EPSILON) };
     },
     countCgf(wr, wi, re, im) {
       for (let k = 0; k < wr.length; k++) {
@@ -123,7 +124,19 @@ export function zeroModified(base: Node, p0M: number, oneMinusP0: number): Node 
       const p = new Float64Array(t.p.length);
       for (let k = 1; k < p.length; k++) p[k] = beta * t.p[k];
       p[0] = p0M;
-      const out: LatticeTable = { origin: 0, step: 1, p, tailMass: beta * t.tailMass };
+      // beta = (1 - p0M) / oneMinusP0: 1 - p0M and the division within eps/2 each; oneMinusP0 = -expm1(y), y = log P(N = 0)
+      // within 1.5 eps relative, is within 1.5 eps + an ulp relative (|y| e^y / (1 - e^y) <= 1), or exact (1); the product
+      // beta p[k] one more rounding
+      const rel = t.pointRel;
+      const far = t.beyond;
+      const out: LatticeTable = {
+        origin: 0,
+        step: 1,
+        p,
+        tailMass: beta * t.tailMass,
+        ...(rel ? { pointRel: (j: number) => rel(j) + 4.5 * Number.EPSILON } : {}),
+        ...(rel && far ? { beyond: (j: number) => beta * far(j) * (1 + 5 * Number.EPSILON) } : {}),
+      };
       return out;
     },
     countCgf(wr, wi, re, im) {

@@ -41,8 +41,15 @@ export function point(at: number): Node {
   };
 }
 
-/** Finish a table: p[0..len) from a generator p_k = next(k, p_{k-1}), stopping when the tail is negligible. */
-function tabulate(maxLength: number, first: number, p0: number, ratio: (k: number) => number, hardEnd = Infinity): LatticeTable {
+const EPS = Number.EPSILON;
+
+/**
+ * Finish a table: p[0..len) from a generator p_k = next(k, p_{k-1}), stopping when the tail is negligible. rel0 bounds
+ * the relative error of p0 and step that of one ratio times its product (roundings of eps/2 each, Higham, Accuracy and
+ * Stability of Numerical Algorithms, sec. 3.1): p[k] is then within rel0 + k step relative (first order; the factor
+ * 1.01 covers the second).
+ */
+function tabulate(maxLength: number, first: number, p0: number, ratio: (k: number) => number, rel0: number, step: number, hardEnd = Infinity): LatticeTable {
   const buf: number[] = [p0];
   let k = 1;
   let prev = p0;
@@ -68,7 +75,17 @@ function tabulate(maxLength: number, first: number, p0: number, ratio: (k: numbe
     if (q <= TAIL_EPS * tail * 1e-3 && ratio(j) < 1) break;
     if (q === 0) break;
   }
-  return { origin: 0, step: 1, p: Float64Array.from(buf), tailMass: tail };
+  const len = buf.length;
+  const rel = (j: number) => 1.01 * (rel0 + j * step);
+  // past the end: the recursion continued from the last entry (within rel(j) of p_j); the dropped tail where that is far
+  const beyond = (j: number) => {
+    if (j > hardEnd) return 0;
+    if (j - len > 1e5) return tail * (1 + rel(len + 1e5));
+    let v = buf[len - 1];
+    for (let i = len; i <= j; i++) v *= ratio(i);
+    return v * (1 + 2 * rel(j));
+  };
+  return { origin: 0, step: 1, p: Float64Array.from(buf), tailMass: tail, pointRel: rel, beyond };
 }
 
 /**
@@ -178,7 +195,9 @@ function binomialTable(n: number, p: number, maxLength: number): LatticeTable {
   for (let k = 1; k < len; k++) out[k] = (out[k - 1] * (n - k + 1) * r) / k;
   let s = 0;
   for (let k = 0; k < len; k++) s += out[k];
-  return { origin: 0, step: 1, p: out, tailMass: len === n + 1 ? 0 : Math.max(0, 1 - s) };
+  // q = 1 - p within eps/2, so q^n within n eps/2 and pow's own ulp; each step: r = p/q within eps, three roundings
+  const rel0 = (n / 2 + 2) * EPS;
+  return { origin: 0, step: 1, p: out, tailMass: len === n + 1 ? 0 : Math.max(0, 1 - s), pointRel: (j) => 1.01 * (rel0 + 2.5 * j * EPS) };
 }
 
 /** Poisson(lambda): log phi = lambda (e^{it} - 1) (JKK ch. 4); entire, so the branch is continuous as written. */
@@ -202,7 +221,8 @@ export function poisson(lambda: number): Node {
     cumulants: (n) => new Array(n).fill(lambda),
     table(maxLength) {
       if (lambda === 0) return { origin: 0, step: 1, p: Float64Array.of(1), tailMass: 0 };
-      if (lambda < 700) return tabulate(maxLength, Math.ceil(lambda), Math.exp(-lambda), (k) => lambda / k);
+      // e^-lambda within an ulp; each step lambda/k and the product, two roundings
+      if (lambda < 700) return tabulate(maxLength, Math.ceil(lambda), Math.exp(-lambda), (k) => lambda / k, 2 * EPS, EPS);
       // large mean: saddle-point pmf over the bulk
       return bulkTable(lambda, Math.sqrt(lambda), Infinity, maxLength, (k) => poissonPmf(k, lambda));
     },
@@ -268,7 +288,11 @@ export function negativeBinomial(r: number, p: number): Node {
     table(maxLength) {
       if (single) return { origin: 0, step: 1, p: Float64Array.of(1), tailMass: 0 };
       const start = Math.exp(r * lp);
-      if (start > 1e-280) return tabulate(maxLength, Math.ceil((r * q) / p), start, (k) => (q * (r + k - 1)) / k);
+      // start = e^{r log p}: log p within an ulp and the product within eps/2 move the exponent by 1.5 eps |r log p|, exp adds
+      // an ulp; a step (q (r + k - 1))/k times p_{k-1}: q within eps/2, r + k - 1 within eps/2 of r + k and eps/2 of its own
+      // value (r + k <= (1 + 1/r)(r + k - 1): at most 2 past k = 1, whose excess goes in rel0), three more roundings
+      if (start > 1e-280)
+        return tabulate(maxLength, Math.ceil((r * q) / p), start, (k) => (q * (r + k - 1)) / k, (1.5 * Math.abs(r * lp) + 2 + (1 + 1 / r) / 2) * EPS, 4 * EPS);
       return bulkTable((r * q) / p, Math.sqrt(r * q) / p, Infinity, maxLength, (k) => negativeBinomialPmf(k, r, p));
     },
     // |P'(z) / P(z)| = r q / |1 - q z| <= r q / p on the unit disc, q = 1 - p

@@ -1,16 +1,16 @@
 import { CfError } from "../errors";
 import { directDensity } from "../direct/answer";
 import { MAX_GRID_POINTS } from "../limits";
-import type { Atom, CompiledModel } from "../types";
+import type { Atom, CompiledModel, LatticeTable } from "../types";
 import { invertContinuous, type PartOutput, type Request } from "./continuous";
-import { latticeCumulative, solveLattice } from "./lattice";
+import { latticeCumulative, solveLattice, type LatticeSolution } from "./lattice";
 import { dampable } from "./damped";
 import { dampedDensity } from "./density-damped";
 import { mixtureDensity } from "./mixture";
 import { bulkWindow, lawShape } from "./range";
 import { atomMass } from "./shared";
 import { lightPointErrors } from "./light-images";
-import type { DensityOptions, DensityResult, InversionDiagnostics } from "./types";
+import type { DensityOptions, DensityResult, InversionDiagnostics, PointErrors } from "./types";
 
 export const DEFAULT_TOLERANCE = 1e-10;
 /** power tails converge only algebraically in the period, so their default target is looser */
@@ -219,6 +219,38 @@ function atomsOnly(atomsIn: Atom[], options: DensityOptions): DensityResult {
   };
 }
 
+/**
+ * Per-point bounds of a table built by a recursion (t.pointRel): the pmf at k within pointRel(k) p_k, the cdf, a Kahan sum
+ * of the p_j up to k (each within pointRel(j) <= pointRel(k) relative), within (pointRel(k) + 2 eps) F(k) (Higham, sec.
+ * 4.3: Kahan's sum is within 2u + O(n u^2) of the sum of |terms|); past the table the pmf is answered 0, within the
+ * table's bound on p_k there (t.beyond); the cdf past the table and the sf (which carry the dropped tail) keep the whole
+ * table's bound, as does any point whose own bound would exceed it.
+ */
+function tablePointErrors(t: LatticeTable, xs: Float64Array, pmf: Float64Array, cdf: Float64Array, sol: LatticeSolution): PointErrors {
+  const n = xs.length;
+  const rel = t.pointRel!;
+  const out = { pdf: new Float64Array(n).fill(sol.errorPmf), cdf: new Float64Array(n).fill(sol.errorCdf), sf: new Float64Array(n).fill(sol.errorCdf) };
+  for (let i = 0; i < n; i++) {
+    const u = (xs[i] - t.origin) / t.step;
+    const k = Math.floor(u + 1e-9);
+    // a recursion's table starts at the law's first point: below it the pmf and cdf are exactly 0
+    if (k < 0) {
+      out.pdf[i] = out.cdf[i] = 0;
+      continue;
+    }
+    const onLattice = Math.abs(u - Math.round(u)) <= 1e-9 * Math.max(1, Math.abs(u));
+    if (k >= t.p.length) {
+      // answered 0 past the table: the error is the pmf itself
+      if (t.beyond) out.pdf[i] = Math.min(sol.errorPmf, onLattice ? t.beyond(Math.round(u)) : 0);
+      continue;
+    }
+    const r = rel(k);
+    out.pdf[i] = Math.min(sol.errorPmf, onLattice ? r * pmf[i] : 0);
+    out.cdf[i] = Math.min(sol.errorCdf, (r + 2 * Number.EPSILON) * cdf[i]);
+  }
+  return out;
+}
+
 function latticeResult(model: CompiledModel, origin: number, step: number, options: DensityOptions, tol: number): DensityResult {
   if (!(step > 0) || !Number.isFinite(origin)) throw new CfError("not_applicable", "", "lattice law with an invalid step");
   const sol = solveLattice(model, origin, step, tol);
@@ -275,6 +307,7 @@ function latticeResult(model: CompiledModel, origin: number, step: number, optio
       }
     }
   }
+  const pointError = sol.method === "lattice-table" && t.pointRel && t.origin === 0 ? tablePointErrors(t, xs, pmf, cdf, sol) : undefined;
   return {
     x: xs,
     pmf,
@@ -282,6 +315,7 @@ function latticeResult(model: CompiledModel, origin: number, step: number, optio
     sf,
     atoms: [],
     diagnostics: {
+      ...(pointError ? { pointError } : {}),
       method: sol.method,
       gridSize: sol.gridSize,
       terms: sol.method === "lattice-fft" ? sol.gridSize : 0,
