@@ -286,10 +286,14 @@ function compoundContinuous() {
   const f = read<{ exponential: Case[]; lognormal: Case[] }>("compound/compound.json");
   // sigma 1.5 .. 2.5 and lambda 1 000 .. 10 000 (generate.py --wide-only)
   const wide = read<{ lognormal: Case[] }>("compound/compound-wide.json");
+  // gamma claims, and sums of such compounds with gamma and normal terms (generate_gamma.py: mpmath at 32 digits, the
+  // gamma mixture over the count, checked by a numerical Laplace inversion)
+  const gamma = read<{ cases: Case[] }>("compound/compound-gamma.json");
   const groups: [string, Case[]][] = [
     ["compound/exponential", f.exponential],
     ["compound/lognormal", f.lognormal],
     ["compound/lognormal-wide", wide.lognormal],
+    ["compound/gamma", gamma.cases],
   ];
   for (const [set, cases] of groups) {
     for (const k of cases) {
