@@ -2,7 +2,7 @@ import type { Atom, CompiledModel } from "../types";
 import type { GammaKernel } from "../damped-kernels";
 import type { SeverityKernel } from "../severity-kernel";
 import { kernelsDensityBeyond, kernelsMass } from "../damped-kernels";
-import { truncationAt } from "./nodes";
+import { truncationFrom } from "./nodes";
 import { dampedPlan, exactStep, psiOf, sumAllowance, type DampedPlan, type Exactness } from "./damped-transform";
 import { imageMoments, imageTail } from "./damped-images";
 import { scratch, type ScratchSlot } from "../damped-scratch";
@@ -195,12 +195,17 @@ export function dampedSetup(model: CompiledModel, atoms: Atom[], R: number, o: D
     nC += nz[k] / Math.sqrt(d);
     nI += nz[k] / d;
   }
-  const trunc = truncationAt(env, K * h);
+  // the terms k >= K: |c_k| <= E(t_k) / t_k with E(t)/t non-increasing, so (h/pi) sum_{k >= K} E(t_k)/t_k is at most
+  // (1/pi) int_{(K - 1/2) h}^inf E/t (each term below the integral over its node's cell), the envelope's tail interpolated
+  // to that cut-off (likewise E for the density, and E/t^2 <= E/(t (K - 1/2) h) for the integral); it was twice the tail
+  // at the probe left of K h
+  const tK = (K - 0.5) * h;
+  const trunc = truncationFrom(env, tK);
   // per node: relative rounding of the CF and the accumulation, plus the absolute noise (atoms, numerical CF)
   const rel = sumAllowance(model, K, pointwise);
-  const sumPdf = 2 * trunc.pdf + (h / Math.PI) * (rel * absP + nP);
-  const sumCdf = 2 * trunc.cdf + (h / Math.PI) * (rel * absC + nC);
-  const sumInt = wantInt ? (2 * trunc.cdf) / (K * h) + (h / Math.PI) * (rel * absI + nI) : Infinity;
+  const sumPdf = trunc.pdf + (h / Math.PI) * (rel * absP + nP);
+  const sumCdf = trunc.cdf + (h / Math.PI) * (rel * absC + nC);
+  const sumInt = wantInt ? trunc.cdf / tK + (h / Math.PI) * (rel * absI + nI) : Infinity;
   const q = Math.exp(-beta * T);
   const geo = q / (1 - q);
   const mean = model.cumulants(1)[0];
@@ -258,8 +263,8 @@ export function dampedSetup(model: CompiledModel, atoms: Atom[], R: number, o: D
     cIm,
     iRe,
     iIm,
-    truncCdf: 2 * trunc.cdf,
-    truncPdf: 2 * trunc.pdf,
+    truncCdf: trunc.cdf,
+    truncPdf: trunc.pdf,
     sumPdf,
     sumCdf,
     sumInt,

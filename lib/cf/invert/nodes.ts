@@ -199,6 +199,25 @@ export function truncationAt(e: Envelope, T: number): { pdf: number; cdf: number
   return { pdf: e.tailPdf[i], cdf: e.tailCdf[i] };
 }
 
+/**
+ * Truncation bounds (1/pi) int_T^inf E(t)/t dt and (1/pi) int_T^inf E(t) dt of the envelope's step function (E = env[i]
+ * on [t_i, t_{i+1}), which the tails sum): the left probe's tail less the part of its step below T, env[i] log(T / t_i)
+ * (env[i] (T - t_i) for the density), so exact for that function rather than the left probe's over-estimate. Below the
+ * first probe, the first probe's tails.
+ */
+export function truncationFrom(e: Envelope, T: number): { pdf: number; cdf: number } {
+  if (!(T > e.t[0])) return { pdf: e.tailPdf[0], cdf: e.tailCdf[0] };
+  let i = 0;
+  while (i + 1 < e.t.length && e.t[i + 1] <= T) i++;
+  // past the last probe the tail is the fitted power law's, not a step: kept whole
+  if (i + 1 >= e.t.length) return { pdf: e.tailPdf[i], cdf: e.tailCdf[i] };
+  const v = e.env[i];
+  // the subtracted part is at most the step's own share of the tail, so the result stays at least the tails at t_{i+1}
+  const cdf = e.tailCdf[i] - (v * Math.log(T / e.t[i])) / Math.PI;
+  const pdf = e.tailPdf[i] - (v * (T - e.t[i])) / Math.PI;
+  return { pdf: Math.max(pdf, e.tailPdf[i + 1]), cdf: Math.max(cdf, e.tailCdf[i + 1]) };
+}
+
 /** Frequency nodes t_k = (k + 1/2) h, k < K, with phi_part and the sums needed by the error terms. */
 export interface Nodes {
   h: number;

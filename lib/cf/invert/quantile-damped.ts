@@ -129,7 +129,11 @@ export function dampedQuantiles(model: CompiledModel, atoms: Atom[], p: Float64A
         }
         const ex = dampedExcess(s, atoms, mean, q);
         es[i] = q + ex.value / (1 - p[i]);
-        esErr[i] = (ex.error + ev.errCdf * err[i]) / (1 - p[i]) + 4 * Number.EPSILON * Math.abs(es[i]);
+        // ES(q) - ES(q*) = int_{q*}^q (F - p) / (1 - p), F monotone with F(q*) = p: at most |q - q*| |F(q) - p| / (1 - p), and
+        // |F(q) - p| is within the residual at q plus the cdf's own bound there (not the range's largest)
+        const at = ev.eval(q);
+        const off = Math.min(Math.abs(at.F - p[i]), Math.abs(at.S - (1 - p[i]))) + ev.errAt!(q);
+        esErr[i] = (ex.error + off * err[i]) / (1 - p[i]) + 4 * Number.EPSILON * Math.abs(es[i]);
       }
       notes.push("expected shortfall from E X - q + int_lo^q F, the integral by the damped transform psi / (beta - i t)^2");
     }
