@@ -21,8 +21,9 @@ describe("stop-loss bounds from central moments", () => {
       const l = t.left(1 - 2 * k);
       expect(r, `right at ${k} sd: bound ${r} below the closed form ${exact}`).toBeGreaterThanOrEqual(exact);
       expect(l, `left at ${k} sd: bound ${l} below the closed form ${exact}`).toBeGreaterThanOrEqual(exact);
-      // the best even order: 2 sd (m_n / (k sd)^n)^..., with m_12 = 10395 sd^12 (normal central moments (n-1)!!)
-      const best = Math.min(...[2, 4, 6, 8, 10, 12].map((n) => 2 * k * (dfact(n - 1) / k ** n)));
+      // the best even order: k_n m_n / (k sd)^(n-1), k_n = (n-1)^(n-1) / n^n (the largest of (s - d)/s^n over s >= d, at
+      // s = n d / (n - 1)), with m_n = (n-1)!! sd^n (normal central moments)
+      const best = Math.min(...[2, 4, 6, 8, 10, 12].map((n) => 2 * k * (dfact(n - 1) / k ** n) * ((n - 1) ** (n - 1) / n ** n)));
       expect(r, `right at ${k} sd: ${r} vs the moment bound ${best}`).toBeLessThanOrEqual(best * (1 + 1e-9));
     }
   });

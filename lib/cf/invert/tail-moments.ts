@@ -4,8 +4,9 @@ import { MAX_MOMENT_ORDER } from "../limits";
 
 /**
  * Bounds on the stop-loss transforms E[(X - u)^+] and E[(u - X)^+] of the whole law from its central moments: for any
- * c < u and even n, (x - u)^+ <= (x - c)^n / (u - c)^{n-1} (for x >= u, x - c >= u - c > 0; below u the left side is 0),
- * so E[(X - u)^+] <= E (X - c)^n / (u - c)^{n-1}, the best of n = 2, 4, ..., 12. With c the computed mean mu_h and
+ * c < u and even n, (x - u)^+ <= k_n (x - c)^n / (u - c)^{n-1} with k_n = (n - 1)^{n-1} / n^n (below u the left side is
+ * 0; above, with s = x - c >= d = u - c, (s - d) / s^n is largest at s = n d / (n - 1), where it is k_n / d^{n-1}: 1/4 for
+ * n = 2, 0.105 for n = 4), so E[(X - u)^+] <= k_n E (X - c)^n / (u - c)^{n-1}, the best of n = 2, 4, ..., 12. With c the computed mean mu_h and
  * |mu - mu_h| <= e_mu, Minkowski's inequality gives (E (X - c)^n)^{1/n} <= (m_n + e_n)^{1/n} + e_mu, m_n the central
  * moment with its running-error bound e_n (moment-error.ts). Beyond an end of the model's support the transform is 0.
  * Null where the moments (or their bounds) are missing.
@@ -41,8 +42,8 @@ export function stopLossBounds(model: CompiledModel): StopLossBounds | null {
   const bound = (dist: number) => {
     if (!(dist > 0)) return Infinity;
     let best = Infinity;
-    // r^n / dist^(n-1) = dist (r / dist)^n, formed in logs so that neither power overflows
-    for (const [n, r] of roots) best = Math.min(best, dist * Math.exp(n * Math.log(r / dist)) * (1 + 1e-13));
+    // k_n r^n / dist^(n-1) = dist (r / dist)^n k_n, formed in logs so that neither power overflows
+    for (const [n, r] of roots) best = Math.min(best, dist * Math.exp(n * Math.log(r / dist) + (n - 1) * Math.log(n - 1) - n * Math.log(n)) * (1 + 1e-13));
     return best;
   };
   const [lo, hi] = model.support;
