@@ -289,6 +289,11 @@ function compoundContinuous() {
   // gamma claims, and sums of such compounds with gamma and normal terms (generate_gamma.py: mpmath at 32 digits, the
   // gamma mixture over the count, checked by a numerical Laplace inversion)
   const gamma = read<{ cases: Case[] }>("compound/compound-gamma.json");
+  // far-tail ES of Poisson-lognormal compounds to ~20 digits (generate_es.py: de Hoog and Talbot inversions at 30 digits):
+  // compound.json's ES there carries its FFT's double-precision summation times 1 / (1 - p) (8e-3 at p = 0.9999)
+  const fine = new Map<string, { q: string; es: string; esErr: number }>();
+  for (const k of read<{ cases: { model: Model; levels: { p: number; q: string; es: string; esErr: number }[] }[] }>("compound/compound-es.json").cases)
+    for (const l of k.levels) fine.set(`${JSON.stringify(k.model)} ${l.p}`, l);
   const groups: [string, Case[]][] = [
     ["compound/exponential", f.exponential],
     ["compound/lognormal", f.lognormal],
@@ -302,8 +307,17 @@ function compoundContinuous() {
       const e = k.crossCheck.maxCdfDifference;
       points(set, k.model, c, k.points, () => e);
       // no per-level uncertainty is written: the cdf cross-check over the density at q (from the points' scale) is not
-      // available either, so the quantile's reference precision is the double's own (the counted floor)
-      levels(set, k.model, c, k.levels);
+      // available either, so the quantile's reference precision is the double's own (the counted floor); where
+      // compound-es.json has the level, its quantile and ES replace these
+      levels(
+        set,
+        k.model,
+        c,
+        k.levels.map((l) => {
+          const f = fine.get(`${JSON.stringify(k.model)} ${l.p}`);
+          return f ? { p: l.p, q: num(f.q), es: num(f.es), esErr: f.esErr } : l;
+        }),
+      );
       const mm = guarded(`${set} mean`, () => moments(c, 1));
       // the mean's derived bound (meanError; null where none is derived, shown as NO BOUND)
       push(set, "moment", `${JSON.stringify(k.model)} mean`, mm?.raw[0] ?? NaN, k.mean, 1e-15 * k.mean, mm?.meanError ?? NaN);
