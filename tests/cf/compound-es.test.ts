@@ -36,3 +36,33 @@ describe("far-tail ES of Poisson-lognormal compounds within their bounds (mpmath
     });
   }
 });
+
+// A level at most P(N = 0) of a compound of positive claims has quantile 0 exactly, and ES_p = E S / (1 - p) with
+// E S = lambda e^{mu + sigma^2/2} (Loss Models, compound Poisson mean; lognormal mean, JKB vol. 1, ch. 14). Asked with
+// far-tail levels, Poisson(1)-lognormal(0, 2.5) goes by the heavy route, which answered -2170 +- 2170 at p = 0.001.
+describe("levels inside the atom at 0 of a compound (closed form)", () => {
+  it("Poisson(1)-lognormal(0, 2.5): q = 0 exactly and ES = E S / (1 - p) below P(N = 0) = e^-1", () => {
+    const model = { compound: { count: { family: "poisson", lambda: 1 }, each: { family: "lognormal", mu: 0, sigma: 2.5 } } } as Model;
+    // compound-wide.json's levels: with the far ones the damped route falls back to the heavy route
+    const levels = [0.001, 0.01, 0.1, 0.5, 0.9, 0.95, 0.99, 0.995, 0.999, 0.9999];
+    const r = quantiles(compile(model), levels, { expectedShortfall: true });
+    expect(r.diagnostics.method).toBe("gil-pelaez");
+    const mean = Math.exp(2.5 ** 2 / 2);
+    levels.forEach((p, i) => {
+      const q = r.x[i];
+      const eq = r.diagnostics.quantileError[i];
+      const ee = r.diagnostics.expectedShortfallError![i];
+      const msg = `p=${p}: q ${q} bound ${eq}, ES ${r.expectedShortfall![i]} bound ${ee}`;
+      // every answer in the support [0, inf) with its bound
+      expect(q, msg).toBeGreaterThanOrEqual(0);
+      if (p < Math.exp(-1)) {
+        expect(q, msg).toBe(0);
+        expect(eq, msg).toBe(0);
+        const want = mean / (1 - p);
+        expect(Math.abs(r.expectedShortfall![i] - want), msg).toBeLessThanOrEqual(ee + 4e-16 * want);
+        expect(ee, msg).toBeLessThan(1e-12 * want);
+      }
+    });
+    // the heavy route's far levels take tens of seconds of CPU on a shared machine
+  }, 240_000);
+});

@@ -68,14 +68,53 @@ export function quantiles(model: CompiledModel, pIn: ArrayLike<number>, options:
   if (w <= 1e-14) return atomQuantiles(atoms, p, options);
   if (model.components) {
     const r = mixtureQuantiles(model, p, options);
-    if (r) return withModelNotes(model, r);
+    if (r) return withModelNotes(model, inSupport(model, atoms, r));
   }
   if (dampable(model)) {
     const r = dampedQuantiles(model, atoms, p, options);
-    if (r) return withModelNotes(model, r);
+    if (r) return withModelNotes(model, inSupport(model, atoms, r));
   }
   const shape = lawShape(model);
-  return withModelNotes(model, shape.heavy ? heavyQuantiles(model, atoms, w, p, options) : lightQuantiles(model, atoms, w, p, options));
+  return withModelNotes(model, inSupport(model, atoms, shape.heavy ? heavyQuantiles(model, atoms, w, p, options) : lightQuantiles(model, atoms, w, p, options)));
+}
+
+/**
+ * The quantile lies in [x - e, x + e] and in the support [lo, hi]: an answer outside the support moves to the nearer end,
+ * its bound to what is left of the interval there (Poisson(1)-lognormal(0, 2.5) at p = 0.001: -2170 +- 2170 became 0 +-
+ * 0.036); a level at most the mass of an atom at a finite lower end (nothing lies below it) has that end as its exact
+ * quantile, and there ES_p = lo + (E X - lo) / (1 - p) (X >= lo), within the mean's derived bound over 1 - p (it was the
+ * route's integral at its own quantile: 24.4 +- 8.7 against 22.78 for that law at 0.001). Elsewhere the expected
+ * shortfall keeps the route's value and bound.
+ */
+function inSupport(model: CompiledModel, atoms: Atom[], r: QuantileResult): QuantileResult {
+  const [lo, hi] = model.support;
+  const base = Number.isFinite(lo) ? atoms.filter((a) => a.x === lo).reduce((s, a) => s + a.p, 0) : 0;
+  const { x, p } = r;
+  const err = r.diagnostics.quantileError;
+  const es = r.expectedShortfall;
+  const esErr = r.diagnostics.expectedShortfallError;
+  const mean = base > 0 && es && esErr && model.momentIndex > 1 && model.cumulantErrors ? [model.cumulants(1)[0], model.cumulantErrors(1)[0]] : null;
+  for (let i = 0; i < x.length; i++) {
+    if (base > 0 && p[i] <= base * (1 - 4 * Number.EPSILON)) {
+      x[i] = lo;
+      err[i] = 0;
+      if (mean && mean[0] !== null && mean[1] !== null && Number.isFinite(mean[0]) && Number.isFinite(mean[1])) {
+        const v = lo + (mean[0] - lo) / (1 - p[i]);
+        const e = (mean[1] + 4 * Number.EPSILON * (Math.abs(mean[0]) + Math.abs(lo))) / (1 - p[i]) + 4 * Number.EPSILON * Math.abs(v);
+        if (!(e >= esErr![i])) {
+          es![i] = v;
+          esErr![i] = e;
+        }
+      }
+    } else if (x[i] < lo && x[i] + err[i] >= lo) {
+      err[i] = Math.min(x[i] + err[i] - lo, err[i]) * (1 + 4 * Number.EPSILON);
+      x[i] = lo;
+    } else if (x[i] > hi && x[i] - err[i] <= hi) {
+      err[i] = Math.min(hi - (x[i] - err[i]), err[i]) * (1 + 4 * Number.EPSILON);
+      x[i] = hi;
+    }
+  }
+  return r;
 }
 
 /** Every approximation made in the model (CF quadratures, discretisations) is stated with the answer. */
