@@ -45,6 +45,11 @@ export interface SeverityKernel {
    */
   dampedCf?(beta: number, t: Float64Array, re: Float64Array, im: Float64Array): number;
   /**
+   * a bound on |d/dt E[e^{(i t - beta) X}]| = |E[X e^{(i t - beta) X}]| at t > 0, for every beta >= 0: it bounds the
+   * steps between the remainder's coefficients, which bound the truncated sums far from the period's ends (./invert/damped.ts)
+   */
+  slope?(t: number): number;
+  /**
    * the two-claim term P(N = 2) times the law of X_1 + X_2 (transform phi^2), when the severity has a computable
    * one (values weighted by w, with their bounds); the inversion takes it out too where that saves more terms than
    * its evaluation costs at the points asked for
@@ -83,6 +88,10 @@ export function lognormalKernel(
     dampedLogCf,
     ...(dampedCf ? { dampedCf } : {}),
     name: "lognormal",
+    // E[X e^{(i t - beta) X}] = int g e^{itx} with g = x e^{-beta x} f(x) = e^{-beta x} phi((log x - mu)/sigma)/sigma, unimodal
+    // (log-concave in log x) with sup g <= 1/(sigma sqrt(2 pi)): integrating by parts, |.| <= TV(g)/t = 2 sup g / t; and
+    // |.| <= E X = m1
+    slope: (t) => Math.min(m1, 2 / (sigma * Math.sqrt(2 * Math.PI) * t)) * (1 + 4 * Number.EPSILON),
     // E X^n = exp(n mu + n^2 sigma^2 / 2) (JKB vol. 1, ch. 14)
     moments: [m1, Math.exp(2 * mu + 2 * sigma * sigma)],
     cfAbsError,

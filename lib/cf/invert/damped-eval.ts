@@ -6,6 +6,7 @@ import { sumOnGrid } from "./fft";
 import { kernelsAt } from "../damped-kernels";
 import type { Nodes } from "./nodes";
 import { imageIntegralTail } from "./damped-images";
+import { truncationAtY } from "./damped-slope";
 
 const EPS = Number.EPSILON;
 
@@ -177,10 +178,16 @@ export function dampedAt(s: DampedSolution, x: number, wantPdf: boolean, wantInt
     Fc,
     fc,
     Ic,
-    errF: g * s.sumCdf + aliasCdfAt(s, y) + kv.err + fin * Math.abs(f * aC),
+    errF: g * sumCdfAt(s, y) + aliasCdfAt(s, y) + kv.err + fin * Math.abs(f * aC),
     errf: wantPdf ? g * s.sumPdf + s.aliasPdf + kv.errf + fin * Math.abs(f * aP) : Infinity,
     errI: g * s.sumInt + aliasI + kv.errI + fin * Math.abs(f * aI),
   };
+}
+
+/** the cdf sum's truncation and rounding bound at y = x - lo (before undamping): per point where the solution has tau */
+export function sumCdfAt(s: DampedSolution, y: number): number {
+  if (!(s.truncTau < s.truncCdf)) return s.sumCdf;
+  return s.roundCdf * (1 + 4 * EPS) + truncationAtY(s.truncCdf, s.truncTau, s.h, y);
 }
 
 /**

@@ -5,6 +5,7 @@ import { kernelsMass, subtractKernels } from "../damped-kernels";
 import { scratch } from "../damped-scratch";
 import { cutoffFor, envelopeOf, probeFrequencies, truncationAt, type Envelope } from "./nodes";
 import { imageMoments } from "./damped-images";
+import { slopeCutoff, slopeEnvelope, slopeTruncationAt } from "./damped-slope";
 
 const EPS = Number.EPSILON;
 
@@ -76,6 +77,11 @@ export interface DampedPlan {
   pairOut: boolean;
   /** the sums' estimated rounding (CF noise included) over tol / 4: above 1 the plan cannot reach the tolerance */
   rounding: number;
+  /**
+   * an envelope of |c'| (./damped-slope.ts) where the cut-off was chosen by the summation-by-parts bound at the range's
+   * end (pointwise cdf sums only: the bound then holds per point, away from the period's ends), else null
+   */
+  slope: Envelope | null;
 }
 
 /**
@@ -132,6 +138,7 @@ function severityPsi(sev: SeverityKernel, count: NonNullable<SeverityKernel["cou
     im: Float64Array,
     noise?: Float64Array,
     also?: { w2: number; re: Float64Array; im: Float64Array; noise: Float64Array },
+    phiAbs?: Float64Array,
   ) => {
     const a = scratch("sevRe", t.length);
     const b = scratch("sevIm", t.length);
@@ -172,6 +179,7 @@ function severityPsi(sev: SeverityKernel, count: NonNullable<SeverityKernel["cou
         fr = ph * Math.cos(b[k]);
         fi = ph * Math.sin(b[k]);
       }
+      if (phiAbs) phiAbs[k] = ph;
       r -= sev.w * fr;
       i -= sev.w * fi;
       // an error d in phi moves P_N(phi) - p_1 phi (- p_2 phi^2) by at most E N |z|^j d (see above), or, where the
@@ -219,10 +227,12 @@ function subtractSeverity(k: SeverityKernel, beta: number, t: Float64Array, re: 
  * loose solution and the final one (twice where the wider budget is tried), and a plan probes at beta = 4 / span before
  * probing its chosen beta, often the same one; the atoms are the model's own, so the key is complete
  */
-const PROBES = new WeakMap<CompiledModel, Map<string, Envelope & { noise: Float64Array }>>();
+/** a probe's envelope of |psi_c|, its per-node noise and, for a compound's remainder, |phi| of the severity (else null) */
+type Probed = Envelope & { noise: Float64Array; phi: Float64Array | null };
+const PROBES = new WeakMap<CompiledModel, Map<string, Probed>>();
 const MAX_PROBES = 32;
 
-function probe(model: CompiledModel, atoms: Atom[], beta: number, pairOut: boolean): Envelope & { noise: Float64Array } {
+function probe(model: CompiledModel, atoms: Atom[], beta: number, pairOut: boolean): Probed {
   let memo = PROBES.get(model);
   if (!memo) PROBES.set(model, (memo = new Map()));
   const key = probeKey(beta, pairOut, atoms);
@@ -237,7 +247,7 @@ function probe(model: CompiledModel, atoms: Atom[], beta: number, pairOut: boole
 
 const probeKey = (beta: number, pairOut: boolean, atoms: Atom[]) => `${beta}|${pairOut}|${atoms.length}`;
 
-function probeAt(model: CompiledModel, atoms: Atom[], beta: number, pairOut: boolean, memo: Map<string, Envelope & { noise: Float64Array }>) {
+function probeAt(model: CompiledModel, atoms: Atom[], beta: number, pairOut: boolean, memo: Map<string, Probed>) {
   const tp = probeFrequencies(Math.max(model.scale, 1e-300));
   const n = tp.length;
   const pr = new Float64Array(n);
@@ -249,20 +259,28 @@ function probeAt(model: CompiledModel, atoms: Atom[], beta: number, pairOut: boo
   const w2 = sev?.pair?.w ?? 0;
   if (sev?.count && model.support[0] === 0 && w2 > 0) {
     const other = { w2: pairOut ? 0 : w2, re: new Float64Array(n), im: new Float64Array(n), noise: new Float64Array(n) };
-    severityPsi(sev, sev.count, atoms, beta, pairOut ? w2 : 0, true)(tp, pr, pi, nz, other);
-    memo.set(probeKey(beta, !pairOut, atoms), envelopeFrom(tp, other.re, other.im, other.noise));
-  } else psiOf(model, atoms, beta, pairOut, true)(tp, pr, pi, nz);
-  return envelopeFrom(tp, pr, pi, nz);
+    const phi = new Float64Array(n);
+    severityPsi(sev, sev.count, atoms, beta, pairOut ? w2 : 0, true)(tp, pr, pi, nz, other, phi);
+    memo.set(probeKey(beta, !pairOut, atoms), envelopeFrom(tp, other.re, other.im, other.noise, phi));
+    return envelopeFrom(tp, pr, pi, nz, phi);
+  }
+  if (sev?.count && model.support[0] === 0) {
+    const phi = new Float64Array(n);
+    severityPsi(sev, sev.count, atoms, beta, pairOut ? w2 : 0, true)(tp, pr, pi, nz, undefined, phi);
+    return envelopeFrom(tp, pr, pi, nz, phi);
+  }
+  psiOf(model, atoms, beta, pairOut, true)(tp, pr, pi, nz);
+  return envelopeFrom(tp, pr, pi, nz, null);
 }
 
-function envelopeFrom(tp: Float64Array, pr: Float64Array, pi: Float64Array, nz: Float64Array): Envelope & { noise: Float64Array } {
+function envelopeFrom(tp: Float64Array, pr: Float64Array, pi: Float64Array, nz: Float64Array, phi: Float64Array | null): Probed {
   const mag = new Float64Array(tp.length);
   for (let i = 0; i < tp.length; i++) mag[i] = Math.hypot(pr[i], pi[i]);
   // values below the rounding of the atom subtraction and the CF's own error are not resolved (envelopeOf asks
   // for the floor at each probe frequency in turn)
   const at = new Map<number, number>();
   for (let i = 0; i < tp.length; i++) at.set(tp[i], nz[i]);
-  return { ...envelopeOf(tp, mag, (t) => at.get(t) ?? nz[0]), noise: nz };
+  return { ...envelopeOf(tp, mag, (t) => at.get(t) ?? nz[0]), noise: nz, phi };
 }
 
 /** cost of the two-claim term at one point, in units of one frequency term (its panels against the transform's work) */
@@ -275,6 +293,8 @@ const PAIR_COST = 60;
  * `periodOf` maps the period a plan needs to the one it will get (an FFT grid's N dx, N a power of 2), so the terms
  * are counted over the period actually used. `pdfReach`: the density is answered at the tolerance (density(), not a
  * quantile's bracket), so a cut-off whose density truncation cannot reach its target counts against the plan.
+ * `byParts`: the cdf alone is wanted, point by point, each with its own bound (the quantile search): the cut-off may come
+ * from the truncation bound by parts at the range's end (./damped-slope.ts).
  */
 export function dampedPlan(
   model: CompiledModel,
@@ -287,11 +307,12 @@ export function dampedPlan(
   budget = Infinity,
   periodOf: (T: number) => number = (T) => T,
   pdfReach = wantPdf,
+  byParts = false,
 ): DampedPlan {
-  const plain = planFor(model, atoms, R, tol, wantPdf, false, pointwise, budget, periodOf, pdfReach);
+  const plain = planFor(model, atoms, R, tol, wantPdf, false, pointwise, budget, periodOf, pdfReach, byParts);
   // the second plan only where it can pay: the plain plan's terms exceed what the term costs at the points
   const can = model.dampedSeverity?.count && model.dampedSeverity.pair && model.support[0] === 0 && plain.K > PAIR_COST * points;
-  const pair = can ? planFor(model, atoms, R, tol, wantPdf, true, pointwise, budget, periodOf, pdfReach) : null;
+  const pair = can ? planFor(model, atoms, R, tol, wantPdf, true, pointwise, budget, periodOf, pdfReach, byParts) : null;
   if (!pair) return plain.plan;
   return pair.K + PAIR_COST * points < plain.K ? pair.plan : plain.plan;
 }
@@ -307,6 +328,7 @@ function planFor(
   budget: number,
   periodOf: (T: number) => number,
   pdfReach: boolean,
+  byParts: boolean,
 ): { plan: DampedPlan; K: number } {
   const lo = model.support[0];
   const span = Math.max(R - lo, 1e-6 * Math.max(model.scale, Math.abs(lo), 1e-300));
@@ -329,12 +351,17 @@ function planFor(
     return T;
   };
   const env0 = probe(model, atoms, 4 / span, pairOut);
+  // the cdf alone, summed point by point: the cut-off may come from the summation-by-parts bound at y = span
+  const bySlope = byParts && pointwise === true && !wantPdf && !pdfReach;
+  const slope0 = bySlope ? slopeEnvelope(model, atoms, 4 / span, pairOut, env0, env0.noise, env0.phi) : null;
+  const cutoffEnd = (env: Envelope, sl: Envelope | null, T: number, target: number) =>
+    (sl ? slopeCutoff(env, sl, T, span, target) : undefined) ?? cutoffFor(env, wantPdf ? target : Infinity, target);
   let best = { U: 4, K: Infinity, bad: Infinity };
   for (let U = 2; U <= 8; U += 0.5) {
     const beta = U / span;
     const T = periodFor(U);
     const target = tol / (8 * Math.exp(U));
-    let tmax = cutoffFor(env0, wantPdf ? target : Infinity, target);
+    let tmax = cutoffEnd(env0, slope0, T, target);
     if (!Number.isFinite(tmax)) tmax = env0.t[env0.t.length - 1];
     const K = Math.max(16, (tmax * periodOf(T)) / (2 * Math.PI));
     // scale of the cdf sum: (1/pi) int |psi_c| / |beta - i t| up to tmax
@@ -349,7 +376,7 @@ function planFor(
     const round = Math.exp(U) * (sumAllowance(model, K, pointwise) * S + (pointwise ? Z : 0));
     // a cut-off that cannot reach the truncation target (cutoffFor then returns its best) counts against the plan too
     const tr = truncationAt(env0, tmax);
-    const reach = Math.max(tr.cdf / target, pdfReach ? tr.pdf / target : 0);
+    const reach = Math.max((slope0 ? slopeTruncationAt(env0, slope0, tmax, T, span) : tr.cdf) / target, pdfReach ? tr.pdf / target : 0);
     const bad = Math.max(round / (tol / 4), reach);
     // within the budget of terms first (a plan past it is refused by the setup): there the fewest terms whose rounding
     // is below tol / 4, else the smallest rounding (the bounds then state what is reached)
@@ -362,9 +389,10 @@ function planFor(
   const U = best.U;
   const beta = U / span;
   const env = probe(model, atoms, beta, pairOut);
+  const slope = bySlope ? slopeEnvelope(model, atoms, beta, pairOut, env, env.noise, env.phi) : null;
   const target = tol / (8 * Math.exp(U));
-  let tmax = cutoffFor(env, wantPdf ? target : Infinity, target);
-  if (!Number.isFinite(tmax)) tmax = env.t[env.t.length - 1];
   const T = periodFor(U);
-  return { plan: { beta, T, U, env, tmax, noise, pairOut, rounding: best.bad }, K: (tmax * periodOf(T)) / (2 * Math.PI) };
+  let tmax = cutoffEnd(env, slope, T, target);
+  if (!Number.isFinite(tmax)) tmax = env.t[env.t.length - 1];
+  return { plan: { beta, T, U, env, tmax, noise, pairOut, rounding: best.bad, slope }, K: (tmax * periodOf(T)) / (2 * Math.PI) };
 }

@@ -6,6 +6,7 @@ import { truncationFrom } from "./nodes";
 import { dampedPlan, exactStep, psiOf, sumAllowance, type DampedPlan, type Exactness } from "./damped-transform";
 import { imageMoments, imageTail } from "./damped-images";
 import { scratch, type ScratchSlot } from "../damped-scratch";
+import { slopeNumerator } from "./damped-slope";
 
 export { dampedPlan, type DampedPlan } from "./damped-transform";
 export { dampedAt, dampedGrid, gridPeriod, type DampedPoint } from "./damped-eval";
@@ -58,6 +59,12 @@ export interface DampedSolution {
   sumPdf: number;
   sumCdf: number;
   sumInt: number;
+  /**
+   * the cdf sum's truncation by summation by parts: at y = x - lo it is at most truncTau / |sin(h y / 2)| (./damped-slope.ts),
+   * used where below truncCdf (Infinity where the plan has no slope envelope); sumCdf - truncCdf is then roundCdf
+   */
+  truncTau: number;
+  roundCdf: number;
   /** aliasing bounds after undamping: cdf (uniform), density, integrated cdf (its factor of (x - lo + T/(1 - q))) */
   /** the cdf's images taken out in closed form: added to every cdf value (0 when they are only bounded) */
   cdfShift: number;
@@ -113,6 +120,11 @@ export interface DampedOptions {
    * lets the plan take a larger damping (fewer terms). Ignored when the period is fixed by a grid.
    */
   pointwise?: Exactness;
+  /**
+   * the solution answers the cdf point by point, each value with its own bound (the quantile search): the plan it makes
+   * may cut the frequencies by the truncation bound by parts at the range's end (./damped-slope.ts; default false)
+   */
+  byParts?: boolean;
   /** the integrated cdf's coefficients are wanted (expected shortfall); without them sumInt is Infinity (default true) */
   wantInt?: boolean;
   /**
@@ -134,7 +146,7 @@ export function dampedSetup(model: CompiledModel, atoms: Atom[], R: number, o: D
   const Mc = Math.max(1 - pa, 0);
   const tol = o.tolerance;
   const pointwise: Exactness = o.period === undefined ? (o.pointwise ?? false) : false;
-  const plan = o.plan ?? dampedPlan(model, atoms, R, tol, o.wantPdf, o.points, pointwise, o.budget ?? MAX_K);
+  const plan = o.plan ?? dampedPlan(model, atoms, R, tol, o.wantPdf, o.points, pointwise, o.budget ?? MAX_K, undefined, undefined, o.byParts ?? false);
   const beta = plan.beta;
   // pointwise: the step rounded down to an exact one (the period grows by at most 2^-28 relative)
   const h = pointwise ? exactStep((2 * Math.PI) / plan.T) : (2 * Math.PI) / (o.period ?? plan.T);
@@ -204,7 +216,10 @@ export function dampedSetup(model: CompiledModel, atoms: Atom[], R: number, o: D
   // per node: relative rounding of the CF and the accumulation, plus the absolute noise (atoms, numerical CF)
   const rel = sumAllowance(model, K, pointwise);
   const sumPdf = trunc.pdf + (h / Math.PI) * (rel * absP + nP);
-  const sumCdf = trunc.cdf + (h / Math.PI) * (rel * absC + nC);
+  const roundCdf = (h / Math.PI) * (rel * absC + nC);
+  const sumCdf = trunc.cdf + roundCdf;
+  // the summation-by-parts numerator, for sums taken point by point at the exact nodes only
+  const truncTau = plan.slope && pointwise === true && o.period === undefined ? slopeNumerator(plan.slope, h, tK) : Infinity;
   const sumInt = wantInt ? trunc.cdf / tK + (h / Math.PI) * (rel * absI + nI) : Infinity;
   const q = Math.exp(-beta * T);
   const geo = q / (1 - q);
@@ -244,6 +259,11 @@ export function dampedSetup(model: CompiledModel, atoms: Atom[], R: number, o: D
       `the two-claim term (P(N = 2) = ${pair.w.toPrecision(4)} times the law of two claims) taken out as well and added back by ` +
         `Gauss-Legendre panels with a Bernstein-ellipse error bound, so the remainder decays like the transform cubed`,
     );
+  if (truncTau < trunc.cdf)
+    notes.push(
+      `the truncated cdf sums bounded by summation by parts at each point (the steps of the remainder's coefficients, from the ` +
+        `severity transform's slope bound, over |sin(h y / 2)|), where below the envelope's bound`,
+    );
   if (ks.length)
     notes.push(
       `${ks.length} gamma kernels matching the endpoint expansion of the transform (Watson's lemma) taken out before the ` +
@@ -268,6 +288,8 @@ export function dampedSetup(model: CompiledModel, atoms: Atom[], R: number, o: D
     sumPdf,
     sumCdf,
     sumInt,
+    truncTau,
+    roundCdf,
     aliasCdf,
     cdfShift,
     aliasPdf: fTail * geo,

@@ -3,6 +3,8 @@ import { DAMPED_BUDGET, KERNEL_BUDGET, MAX_K, dampedAt, dampedPlan, dampedSetup,
 import type { QuantileOptions, QuantileResult } from "./quantile";
 import { atomMass } from "./shared";
 import { solveLevels, type Evaluator } from "./solve-levels";
+import { aliasCdfAt } from "./damped-eval";
+import { truncationAtY, truncationSup } from "./damped-slope";
 
 /** default cdf target of the quantile search (the request's tolerance when given) */
 const QUANTILE_TOLERANCE = 1e-10;
@@ -58,7 +60,7 @@ export function dampedQuantiles(model: CompiledModel, atoms: Atom[], p: Float64A
   };
   let prev = lo;
   for (let it = 0; it < 40; it++) {
-    const probe = dampedSetup(model, atoms, R, { tolerance: loose, wantPdf: false, budget, pointwise: true, points: PROBE_POINTS, wantInt: false, transient: true });
+    const probe = dampedSetup(model, atoms, R, { tolerance: loose, wantPdf: false, budget, pointwise: true, points: PROBE_POINTS, wantInt: false, transient: true, byParts: true });
     if (!probe) return null;
     if (sfBound(probe, R) < REACH * tail) {
       // the last step overshoots by up to GROWTH times, and the final inversion's terms grow with the range: the smallest R
@@ -78,13 +80,14 @@ export function dampedQuantiles(model: CompiledModel, atoms: Atom[], p: Float64A
   }
   const points = POINTS_PER_LEVEL * p.length + 8;
   // no plan within the budget, or only one whose rounding cannot reach the tolerance: up to MAX_K terms before the
-  // undamped route, which takes as many and resolves less (Poisson(1)-lognormal(0, 2.5) at p = 0.99: 4.0e6 terms,
-  // quantile bound 4e-9 relative against 2.2 undamped; Poisson(10)-lognormal(0, 2) at 0.999: bound 1.5e-7 to 2.3e-8)
-  let plan = dampedPlan(model, atoms, R, tol, false, points, true, budget);
+  // undamped route, which takes as many and resolves less. The cut-off comes from the truncation bound by parts where the
+  // severity bounds its transform's slope (./damped-slope.ts): Poisson(1)-lognormal(0, 2.5) at 0.99, 0.995, 0.999 once
+  // needed 13.1e6 terms (over MAX_K: the undamped route, 35-65% off), now 1.5e6, quantile bounds 1.4e-9 to 1.3e-8 relative
+  let plan = dampedPlan(model, atoms, R, tol, false, points, true, budget, undefined, undefined, true);
   let use = budget;
   const terms = (pl: DampedPlan) => (pl.tmax * pl.T) / (2 * Math.PI);
   if (budget === KERNEL_BUDGET && (plan.rounding > 1 || terms(plan) > budget)) {
-    const wide = dampedPlan(model, atoms, R, tol, false, points, true, MAX_K);
+    const wide = dampedPlan(model, atoms, R, tol, false, points, true, MAX_K, undefined, undefined, true);
     if (terms(wide) <= MAX_K && (wide.rounding <= 1 || terms(plan) > budget)) {
       plan = wide;
       use = MAX_K;
@@ -93,8 +96,15 @@ export function dampedQuantiles(model: CompiledModel, atoms: Atom[], p: Float64A
   // transient: used only here, by dampedAt, until this function returns
   const sol = dampedSetup(model, atoms, R, { tolerance: tol, wantPdf: true, budget: use, pointwise: true, points, plan, transient: true });
   if (!sol) return null;
-  const errCdf = dampedAt(sol, R, false, false).errF;
   const s = sol!;
+  // the bound over [lo, R] (errAt's never above it): the value at R, where every part but two grows with x; the cdf's image
+  // remainder falls with x (its uniform bound instead), and the truncation by parts (./damped-slope.ts) is largest at R or
+  // near lo, where the sine is small (its supremum over the range instead)
+  const yR = R - lo;
+  const gR = Math.exp(s.beta * yR);
+  let errCdf = dampedAt(s, R, false, false).errF + (s.aliasCdf - aliasCdfAt(s, yR));
+  if (s.truncTau < s.truncCdf)
+    errCdf += Math.max(truncationSup(s.truncCdf, s.truncTau, s.h, s.beta, yR) - gR * truncationAtY(s.truncCdf, s.truncTau, s.h, yR), 0) * (1 + 4 * Number.EPSILON);
   const ev: Evaluator = {
     eval(x: number) {
       const v = dampedAt(s, x, true, false);

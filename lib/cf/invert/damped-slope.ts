@@ -1,0 +1,104 @@
+// The truncated cdf sum bounded by summation by parts: far from the period's ends the remainder's coefficient steps bound it.
+import type { Atom, CompiledModel } from "../types";
+import { envelopeOf, truncationFrom, type Envelope } from "./nodes";
+
+const EPS = Number.EPSILON;
+
+/**
+ * A non-increasing envelope of |c'(t)|, c = psi_c / (beta - i t) the cdf sum's coefficient function, on the probe
+ * frequencies (as the envelope of |psi_c|: the samples' running maximum from the right), or null where it is not derived.
+ * For a compound of a severity with a slope bound (SeverityKernel.slope) whose atoms all sit at lo = 0 (constant in t):
+ * psi_c = P_N(phi) - p_0 - p_1 phi (- p_2 phi^2), so psi_c' = (P_N'(phi) - p_1 (- 2 p_2 phi)) phi' and, for |z| <= 1,
+ * |P_N'(z) - p_1 - 2 p_2 z| = |sum_{n >= 3} n p_n z^{n-1}| <= (E N - p_1 - 2 p_2) |z|^2 (|z| once, without p_2: n >= 2);
+ * |c'| <= |psi_c'| / |beta - i t| + |psi_c| / |beta - i t|^2, with |phi| + d for phi (d its values' bound) and
+ * |psi_c| + its noise. `env` is the plan's envelope of |psi_c| at this beta, `noise` its per-probe noise and `phi` |phi| at
+ * its probe frequencies (the probe's own values, within their rounding).
+ */
+export function slopeEnvelope(
+  model: CompiledModel,
+  atoms: Atom[],
+  beta: number,
+  pairOut: boolean,
+  env: Envelope,
+  noise: Float64Array,
+  phi: Float64Array | null,
+): Envelope | null {
+  const sev = model.dampedSeverity;
+  if (!sev?.count || !sev.slope || !phi || model.support[0] !== 0 || !atoms.every((a) => a.x === 0)) return null;
+  const tp = env.t;
+  const n = tp.length;
+  const w2 = pairOut ? (sev.pair?.w ?? 0) : 0;
+  const W = Math.max(sev.count.mean - sev.w - 2 * w2, 0) * (1 + 8 * EPS);
+  const mag = new Float64Array(n);
+  for (let i = 0; i < n; i++) {
+    const z = Math.min(1, phi[i] * (1 + 4 * EPS) + sev.cfAbsError);
+    const dpsi = W * (pairOut ? z * z : z) * sev.slope(tp[i]);
+    const d2 = beta * beta + tp[i] * tp[i];
+    mag[i] = (dpsi / Math.sqrt(d2) + (env.env[i] + noise[i]) / d2) * (1 + 8 * EPS);
+    if (!Number.isFinite(mag[i])) return null;
+  }
+  return envelopeOf(tp, mag, () => 0);
+}
+
+/**
+ * The truncation numerator tau at the cut-off tK: (h/pi) sum_{k >= K} |c_k - c_{k+1}| <= (h/pi) int_{tK}^inf |c'| = h times
+ * the slope envelope's density-type tail. By summation by parts (Abel), with partial sums of e^{-i t_k y} at most
+ * 1 / |sin(h y / 2)|, the truncated sum at y is at most tau / |sin(h y / 2)|.
+ */
+export function slopeNumerator(slope: Envelope, h: number, tK: number): number {
+  return h * truncationFrom(slope, tK).pdf * (1 + 4 * EPS);
+}
+
+/** the cdf sum's truncation bound at y = x - lo: the smaller of the envelope's (uniform) and tau / |sin(h y / 2)| */
+export function truncationAtY(uniform: number, tau: number, h: number, y: number): number {
+  if (!(tau < uniform)) return uniform;
+  // the argument h y / 2 rounds within eps of itself and sin within an ulp
+  const arg = 0.5 * h * y;
+  const s = Math.abs(Math.sin(arg)) - 4 * EPS * (1 + arg);
+  return s > 0 ? Math.min(uniform, tau / s) : uniform;
+}
+
+/**
+ * sup over y in [0, Y] of e^{beta y} truncationAtY(y), Y < T = 2 pi / h. With s(y) the sine less its rounding allowance
+ * (concave on (0, pi), so f(y) = e^{beta y} tau / s(y) is log-convex where s > 0) and y0 the smallest y with
+ * sin(h y / 2) = tau / uniform: below y0 the bound is the uniform one, at most e^{beta y0} uniform; on [y0, min(Y, T/2)]
+ * it is at most f, so at most f(y0) or, where f is largest at the right end, its value there (the smaller of f and
+ * e^{beta y} uniform, both non-decreasing up to there); past T / 2 both increase up to Y. Never above e^{beta Y} uniform.
+ */
+export function truncationSup(uniform: number, tau: number, h: number, beta: number, Y: number): number {
+  const T = (2 * Math.PI) / h;
+  const g = (y: number) => Math.exp(beta * y) * (1 + 8 * EPS * (1 + beta * y));
+  const whole = g(Y) * uniform;
+  if (!(tau < uniform)) return whole;
+  const y0 = (2 / h) * Math.asin(Math.min(1, tau / uniform));
+  if (!(y0 < Y)) return whole;
+  const a0 = 0.5 * h * y0;
+  const s0 = Math.abs(Math.sin(a0)) - 4 * EPS * (1 + a0);
+  if (!(s0 > 0)) return whole;
+  const mid = Math.min(Y, T / 2);
+  let sup = Math.max(g(y0) * uniform, (g(y0) * tau) / s0);
+  sup = Math.max(sup, g(mid) * truncationAtY(uniform, tau, h, mid));
+  if (Y > mid) sup = Math.max(sup, g(Y) * truncationAtY(uniform, tau, h, Y));
+  return Math.min(whole, sup * (1 + 16 * EPS));
+}
+
+/** the cdf truncation at y = span for a cut-off at probe i of the plan's envelopes: the envelope's, or tau / sin(h span / 2) */
+function truncationEnd(env: Envelope, slope: Envelope, i: number, T: number, span: number): number {
+  const u = env.tailCdf[i];
+  const h = (2 * Math.PI) / T;
+  const sn = Math.abs(Math.sin(0.5 * h * span)) - 4 * EPS * (1 + h * span);
+  return sn > 0 ? Math.min(u, (h * slope.tailPdf[i]) / sn) : u;
+}
+
+/** the smallest probe frequency where the truncation at the range's end reaches the target (undefined if none) */
+export function slopeCutoff(env: Envelope, slope: Envelope, T: number, span: number, target: number): number | undefined {
+  for (let i = 0; i < env.t.length; i++) if (truncationEnd(env, slope, i, T, span) <= target) return env.t[i];
+  return undefined;
+}
+
+/** the truncation at the range's end for a cut-off tmax (the probe on its left: an over-estimate) */
+export function slopeTruncationAt(env: Envelope, slope: Envelope, tmax: number, T: number, span: number): number {
+  let i = 0;
+  while (i + 1 < env.t.length && env.t[i + 1] <= tmax) i++;
+  return truncationEnd(env, slope, i, T, span);
+}
