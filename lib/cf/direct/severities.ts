@@ -164,6 +164,33 @@ export function inverseGammaDirect(alpha: number, theta: number): DirectLaw {
  * erfcx(b/sqrt2))/2, where the difference may cancel: its bound is ELEM times the sum of the terms. The quantile has no
  * closed form: the bracketed search of ./answer.ts.
  */
+/**
+ * The pieces shared by the inverse Gaussian's direct law and its layer moments (../families/layer-moments-ig.ts) at
+ * x > 0: r = sqrt(lambda/x), A and its bound, e^{-A^2/2} and its relative bound, erfcx(B/sqrt2) and its relative bound,
+ * and T = e^{2 lambda/mu} Phi(-B) = erfcx(B/sqrt2) e^{-A^2/2}/2 (the docs of inverseGaussianDirect below).
+ */
+export function inverseGaussianTerms(mu: number, lambda: number, x: number) {
+  const r = Math.sqrt(lambda / x);
+  const a = ((x - mu) / mu) * r;
+  const b = ((x + mu) / mu) * r;
+  const ea = 6 * EPS * Math.abs(a) + (2 * EPS * (x + mu) * r) / mu;
+  const eb = 6 * EPS * b;
+  const ga = Math.exp(-0.5 * a * a);
+  const rga = Math.abs(a) * ea + 2 * EPS;
+  const yb = b / Math.SQRT2;
+  const xb = erfcx(yb);
+  // log erfcx's slope over the argument's interval (./law.ts logErfcxSlope, A&S 7.1.13: below sqrt 2)
+  const rxb = ELEM + logErfcxSlope(yb - eb / Math.SQRT2) * (eb / Math.SQRT2) * 1.01;
+  return { r, a, ea, ga, rga, xb, rxb, T: 0.5 * xb * ga };
+}
+
+/** erfcx(A/sqrt2) for A >= 0 with its bound (ELEM plus the argument's move by log erfcx's slope) */
+export function inverseGaussianUpper(a: number, ea: number) {
+  const ya = a / Math.SQRT2;
+  const xa = erfcx(ya);
+  return { xa, exa: xa * (ELEM + logErfcxSlope(ya - ea / Math.SQRT2) * (ea / Math.SQRT2) * 1.01) };
+}
+
 export function inverseGaussianDirect(mu: number, lambda: number): DirectLaw {
   const SQ2PI = Math.sqrt(2 * Math.PI);
   return law(
@@ -177,25 +204,12 @@ export function inverseGaussianDirect(mu: number, lambda: number): DirectLaw {
         o.sf = 1;
         return;
       }
-      const r = Math.sqrt(lambda / x);
-      const a = ((x - mu) / mu) * r;
-      const b = ((x + mu) / mu) * r;
-      const ea = 6 * EPS * Math.abs(a) + (2 * EPS * (x + mu) * r) / mu;
-      const eb = 6 * EPS * b;
-      const ga = Math.exp(-0.5 * a * a);
-      const rga = Math.abs(a) * ea + 2 * EPS;
-      const yb = b / Math.SQRT2;
-      const xb = erfcx(yb);
-      // log erfcx's slope over the argument's interval (./law.ts logErfcxSlope, A&S 7.1.13: below sqrt 2)
-      const rxb = ELEM + logErfcxSlope(yb - eb / Math.SQRT2) * (eb / Math.SQRT2) * 1.01;
-      const T = 0.5 * xb * ga;
+      const { r, a, ea, ga, rga, xb, rxb, T } = inverseGaussianTerms(mu, lambda, x);
       const eT = T * (rxb + rga + EPS);
       o.pdf = (r / (x * SQ2PI)) * ga;
       const rPdf = rga + 6 * EPS;
       if (a >= 0) {
-        const ya = a / Math.SQRT2;
-        const xa = erfcx(ya);
-        const exa = xa * (ELEM + logErfcxSlope(ya - ea / Math.SQRT2) * (ea / Math.SQRT2) * 1.01);
+        const { xa, exa } = inverseGaussianUpper(a, ea);
         o.sf = Math.max(0.5 * ga * (xa - xb), 0);
         o.sfErr = 0.5 * ga * (exa + xb * rxb) + o.sf * (rga + 2 * EPS) + EPS * T;
         const lowA = 0.5 * erfc(a / Math.SQRT2); // Phi(-a)

@@ -11,12 +11,12 @@
  * (common practice: integration by parts of the generalised inverse Gaussian kernel). Every step is carried in
  * running-error arithmetic (../moment-error.ts). Below the mean the lower pieces are used, above it the upper ones, so
  * a tail interval keeps its digits. erfc and erfcx are taken at ELEM (32 eps) relative as in ../direct/severities.ts,
- * their arguments' rounding as there (log erfcx's slope by ../direct/law.ts logErfcxSlope, A&S 7.1.13).
+ * their arguments' rounding as there (the shared pieces: inverseGaussianTerms there).
  */
 import erfc from "@stdlib/math-base-special-erfc";
-import erfcx from "@stdlib/math-base-special-erfcx";
 import { add, div, exact, mul, powInt, sub, type Est } from "../moment-error";
-import { ELEM, EPS, logErfcxSlope } from "../direct/law";
+import { ELEM, EPS } from "../direct/law";
+import { inverseGaussianTerms, inverseGaussianUpper } from "../direct/severities";
 import { INF_E, layerMomentFrom, type LayerMoment, type Partial } from "./layer-moments";
 
 const SQ2PI = Math.sqrt(2 * Math.PI);
@@ -31,18 +31,7 @@ interface Point {
 }
 
 function pointOf(mu: number, lambda: number, x: number): Point {
-  const r = Math.sqrt(lambda / x);
-  const a = ((x - mu) / mu) * r;
-  const b = ((x + mu) / mu) * r;
-  // the arguments' rounding, as ../direct/severities.ts
-  const ea = 6 * EPS * Math.abs(a) + (2 * EPS * (x + mu) * r) / mu;
-  const eb = 6 * EPS * b;
-  const ga = Math.exp(-0.5 * a * a);
-  const rga = Math.abs(a) * ea + 2 * EPS;
-  const yb = b / Math.SQRT2;
-  const xb = erfcx(yb);
-  const rxb = ELEM + logErfcxSlope(yb - eb / Math.SQRT2) * (eb / Math.SQRT2) * 1.01;
-  const T = 0.5 * xb * ga;
+  const { r, a, ea, ga, rga, xb, rxb, T } = inverseGaussianTerms(mu, lambda, x);
   const eT = T * (rxb + rga + 2 * EPS);
   // Phi(-|A|) with its bound: the function's accuracy and the argument's move times the density
   const pm = 0.5 * erfc(Math.abs(a) / Math.SQRT2);
@@ -53,9 +42,7 @@ function pointOf(mu: number, lambda: number, x: number): Point {
   let up0: Est;
   if (a >= 0) {
     // Phi(-A) - T = e^{-A^2/2} (erfcx(A/sqrt2) - erfcx(B/sqrt2)) / 2: both terms' bounds on the difference
-    const ya = a / Math.SQRT2;
-    const xa = erfcx(ya);
-    const exa = xa * (ELEM + logErfcxSlope(ya - ea / Math.SQRT2) * (ea / Math.SQRT2) * 1.01);
+    const { xa, exa } = inverseGaussianUpper(a, ea);
     const v = 0.5 * ga * (xa - xb);
     up0 = { v, e: 0.5 * ga * (exa + xb * rxb) + Math.abs(v) * (rga + 2 * EPS) + EPS * T };
   } else up0 = sub(phiMinusA, t);
