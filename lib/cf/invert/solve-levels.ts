@@ -35,6 +35,7 @@ export function solveLevels(
   const eH = ev.eval(ev.hi);
   let warned = false;
   let warnedFlat = false;
+  let warnedOpen = false;
   for (let i = 0; i < n; i++) {
     const pi = p[i];
     if (pi === 0) {
@@ -92,8 +93,10 @@ export function solveLevels(
       warnedFlat = true;
     } else if (r.f > 0) {
       const eAt = (y: number) => (ev.errAt ? Math.min(ev.errAt(y), e) : e);
-      // a verified bracket where it closes; else the cdf bound at q over the density there, as before
-      err[i] = verifiedRadius(ev, g, q, r.f, eAt) ?? (2 * eAt(q)) / r.f + r.width;
+      // a verified bracket; where none closes inside the evaluator's window the level's error is unbounded
+      err[i] = verifiedRadius(ev, g, q, r.f, eAt);
+      if (err[i] === Infinity && !warnedOpen) notes.push("a quantile's bracket does not close inside the resolved range: its error is reported as unbounded");
+      if (err[i] === Infinity) warnedOpen = true;
     } else {
       err[i] = Infinity;
     }
@@ -104,19 +107,27 @@ export function solveLevels(
 
 /**
  * A radius d with |q - q_p| <= d, verified at two points: g(y) = F_h(y) - p (or p - 1 + ... above the median) is within
- * e(y) of the true G(y) = F(y) - p, so g(q - d) + e(q - d) < 0 < g(q + d) - e(q + d) gives F(q - d) < p <= F(q + d), and
- * q_p (the smallest x with F(x) >= p) lies in (q - d, q + d] since F is non-decreasing. d starts at the first-order
- * value (|g(q)| + e(q)) / f_h(q) (slightly widened) and doubles up to four times; null when no bracket closes inside
- * the evaluator's window (where e holds).
+ * e(y) of the true G(y) = F(y) - p, so g(q - a) + e(q - a) < 0 < g(q + b) - e(q + b) gives F(q - a) < p <= F(q + b), and
+ * q_p (the smallest x with F(x) >= p) lies in (q - a, q + b] since F is non-decreasing; d = max(a, b). Each side starts
+ * at the first-order value (|g(q)| + e(q)) / f_h(q) (slightly widened) and doubles until it closes, the last try at the
+ * evaluator's window end (where e holds); Infinity when a side does not close there.
  */
-function verifiedRadius(ev: Evaluator, g: (v: { F: number; S: number }) => number, q: number, f: number, eAt: (y: number) => number): number | null {
-  let d = ((Math.abs(g(ev.eval(q))) + eAt(q)) / f) * 1.0625 + 8 * Number.EPSILON * Math.abs(q);
-  for (let k = 0; k < 5; k++, d *= 2) {
-    checkDeadline("quantile-bracket");
-    if (!(q - d >= ev.lo && q + d <= ev.hi)) return null;
-    if (g(ev.eval(q - d)) + eAt(q - d) < 0 && g(ev.eval(q + d)) - eAt(q + d) > 0) return d;
-  }
-  return null;
+function verifiedRadius(ev: Evaluator, g: (v: { F: number; S: number }) => number, q: number, f: number, eAt: (y: number) => number): number {
+  const d0 = ((Math.abs(g(ev.eval(q))) + eAt(q)) / f) * 1.0625 + 8 * Number.EPSILON * Math.abs(q);
+  const side = (s: -1 | 1): number => {
+    const end = s < 0 ? ev.lo : ev.hi;
+    for (let d = d0, k = 0; k < 1100; k++, d *= 2) {
+      checkDeadline("quantile-bracket");
+      const beyond = s < 0 ? q - d <= end : q + d >= end;
+      const y = beyond ? end : q + s * d;
+      const gy = g(ev.eval(y));
+      if (s < 0 ? gy + eAt(y) < 0 : gy - eAt(y) > 0) return Math.abs(y - q);
+      if (beyond) return Infinity;
+    }
+    return Infinity;
+  };
+  const a = side(-1);
+  return a === Infinity ? a : Math.max(a, side(1));
 }
 
 const LN8 = Math.log(8);
