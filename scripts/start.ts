@@ -17,9 +17,8 @@ async function shutdown(code: number) {
   if (stopping) return;
   stopping = true;
   log("stopping...");
-  await stopChild(next);
-  await stopChild(worker);
-  await services?.stop();
+  // Everything at once, so a supervisor's SIGKILL after its grace period finds nothing half-stopped.
+  await Promise.all([stopChild(next), stopChild(worker), services?.stop()]);
   log("stopped");
   process.exit(code);
 }

@@ -9,7 +9,8 @@ export interface RedisConfig {
   port: number;
 }
 
-const pidFile = (c: RedisConfig) => join(c.root, "redis.pid");
+export const redisPidFile = (c: RedisConfig) => join(c.root, "redis.pid");
+const pidFile = redisPidFile;
 
 export function redisPing(c: RedisConfig): boolean {
   const r = spawnSync("redis-cli", ["-h", "127.0.0.1", "-p", String(c.port), "ping"], { encoding: "utf8" });

@@ -1,12 +1,13 @@
 import { spawn, type ChildProcess } from "node:child_process";
-import { existsSync, mkdirSync, readdirSync, statSync } from "node:fs";
+import { existsSync, mkdirSync, readdirSync, rmSync, statSync, writeFileSync } from "node:fs";
 import { join, resolve } from "node:path";
 import { ensureDebianPackages } from "./apt";
 import { appEnv, REPO, type Layout, type Secrets } from "./config";
-import { databaseUrl, startMariaDb, stopMariaDb, writeClientDefaults } from "./mariadb";
+import { databaseUrl, runningPid, startMariaDb, stopMariaDb, writeClientDefaults } from "./mariadb";
+import { isAlive, readPid, stopPid } from "./proc";
 import { applyMigrations } from "./migrate";
 import { syncPlans } from "./plans";
-import { startRedis, stopRedis } from "./redis";
+import { redisPidFile, startRedis, stopRedis } from "./redis";
 import { startRedisRest } from "../fakes/redis-rest";
 import { startSmtpSink } from "../fakes/smtp-sink";
 import { buildComputeWorker, COMPUTE_WORKER_FILE } from "../build-worker";
@@ -24,16 +25,16 @@ export interface Services {
 export async function startServices(l: Layout, secrets: Secrets): Promise<Services> {
   ensureDebianPackages({ "mariadb-server": "mariadbd", "mariadb-client": "mariadb", "redis-server": "redis-server", "redis-tools": "redis-cli" }, log);
   mkdirSync(l.root, { recursive: true });
+  await reclaimStale(l);
+  writeFileSync(ownerFile(l), String(process.pid));
   const stops: (() => Promise<void>)[] = [];
+  // All at once: a supervisor that sends SIGTERM and then SIGKILL after a grace period must not find the database
+  // still waiting its turn behind the web server (a detached mariadbd would outlive the kill).
   const stop = async () => {
-    for (const s of stops.reverse()) {
-      try {
-        await s();
-      } catch (e) {
-        log(`while stopping: ${(e as Error).message}`);
-      }
-    }
-    stops.length = 0;
+    const running = stops.splice(0);
+    const results = await Promise.allSettled(running.map((s) => s()));
+    for (const r of results) if (r.status === "rejected") log(`while stopping: ${(r.reason as Error).message}`);
+    rmSync(ownerFile(l), { force: true });
   };
   try {
     const t0 = Date.now();
@@ -65,6 +66,27 @@ export async function startServices(l: Layout, secrets: Secrets): Promise<Servic
     await stop();
     throw e;
   }
+}
+
+/** The pid of the command that owns a layout's services (npm start or the test run), beside their data. */
+const ownerFile = (l: Layout) => join(l.root, "owner.pid");
+
+/**
+ * A previous owner that was killed outright (SIGKILL, a closed terminal) leaves its detached database and Redis
+ * running on the layout's data dir. When that owner is gone, stop them so this start can take over; when it is
+ * still alive, refuse with a plain message instead of fighting it for the ports.
+ */
+async function reclaimStale(l: Layout): Promise<void> {
+  const owner = readPid(ownerFile(l));
+  if (owner !== null && owner !== process.pid && isAlive(owner)) {
+    throw new Error(`another Sumfold ${l.name} run (pid ${owner}) owns ${l.root}; stop it first`);
+  }
+  const db = runningPid(l.db);
+  const redis = readPid(redisPidFile(l.redis));
+  const stale = [db !== null ? "MariaDB" : null, redis !== null && isAlive(redis) ? "redis-server" : null].filter(Boolean);
+  if (stale.length === 0) return;
+  log(`stopping ${stale.join(" and ")} left running by an earlier run that was killed`);
+  await Promise.all([db !== null ? stopMariaDb(l.db) : null, redis !== null ? stopPid(redis) : null]);
 }
 
 const BUILD_INPUTS = ["app", "lib", "public", "openapi", "next.config.ts", "tailwind.config.ts", "postcss.config.mjs", "tsconfig.json", "package-lock.json"];

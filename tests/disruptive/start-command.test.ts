@@ -1,5 +1,6 @@
 // `npm start` on its own data dir and ports: the first run initialises and seeds, the second run reuses
-// everything (no install, no init, no seed, no build), and a second MariaDB on the same data dir is refused.
+// everything (no install, no init, no seed, no build), and a second MariaDB on the same data dir is refused. A run
+// killed outright (SIGKILL: its detached MariaDB and Redis outlive it) is cleaned up by the next run, which starts.
 import { spawn } from "node:child_process";
 import { closeSync, mkdtempSync, openSync, readFileSync, rmSync } from "node:fs";
 import { join } from "node:path";
@@ -26,8 +27,11 @@ const env: NodeJS.ProcessEnv = {
 let runs = 0;
 afterAll(() => rmSync(dir, { recursive: true, force: true }));
 
-/** Runs `npm start` until it is ready, calls `whileUp`, then stops it with SIGTERM and returns its log. */
-async function runStart(whileUp: () => Promise<void> = async () => {}): Promise<string> {
+/**
+ * Runs `npm start` until it is ready, calls `whileUp`, then stops it with SIGTERM (or kills its whole process group
+ * with SIGKILL, which leaves the detached database and Redis behind) and returns its log.
+ */
+async function runStart(whileUp: () => Promise<void> = async () => {}, signal: "SIGTERM" | "SIGKILL" = "SIGTERM"): Promise<string> {
   // Output goes to a file, not a pipe: npm exits at once on SIGTERM while the start script is still
   // stopping its services, and a pipe would lose the rest of the log.
   const logFile = join(dir, `start-${++runs}.log`);
@@ -45,7 +49,11 @@ async function runStart(whileUp: () => Promise<void> = async () => {}): Promise<
     expect(res.status).toBe(200);
     await whileUp();
   } finally {
-    process.kill(-child.pid!, "SIGTERM");
+    process.kill(-child.pid!, signal);
+    if (signal === "SIGKILL") {
+      while (child.exitCode === null && child.signalCode === null) await new Promise((r) => setTimeout(r, 100));
+      return read();
+    }
     const stopBy = Date.now() + 30_000;
     while (!/\[sumfold\] stopped/.test(read()) && Date.now() < stopBy) await new Promise((r) => setTimeout(r, 100));
   }
@@ -63,14 +71,20 @@ describe("npm start", () => {
     expect(first).toMatch(/seeded the demo scenario/);
     expect(first).toMatch(/\[sumfold\] stopped/);
 
-    const second = await runStart();
+    const second = await runStart(async () => {}, "SIGKILL");
     expect(second).not.toMatch(/initialising/);
     expect(second).not.toMatch(/seeded the demo scenario/);
     expect(second).not.toMatch(/installing/);
     expect(second).not.toMatch(/building the web app/);
     expect(second).toMatch(/demo data already present/);
-    expect(second).toMatch(/\[sumfold\] stopped/);
+    expect(second).not.toMatch(/\[sumfold\] stopped/);
     const ready = Number(/ready in ([\d.]+) s/.exec(second)![1]);
     console.log(`second npm start ready in ${ready} s`);
+
+    // the killed run's mariadbd and redis-server are still up on the data dir; the next run stops them and starts
+    const third = await runStart();
+    expect(third).toMatch(/stopping MariaDB and redis-server left running by an earlier run that was killed/);
+    expect(third).toMatch(/demo data already present/);
+    expect(third).toMatch(/\[sumfold\] stopped/);
   }, 600_000);
 });
