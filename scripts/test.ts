@@ -31,10 +31,7 @@ let cleaned = false;
 async function cleanup() {
   if (cleaned) return;
   cleaned = true;
-  await stopChild(current);
-  await stopChild(next);
-  await stopChild(worker);
-  await services?.stop();
+  await Promise.all([stopChild(current), stopChild(next), stopChild(worker), services?.stop()]);
   rmSync(root, { recursive: true, force: true });
 }
 
