@@ -1,221 +1,35 @@
 import "server-only";
-import { CURRENCY, FREE_PLAN, formatMoney, isPlanName, PLANS, type PlanName } from "@/lib/api/plans";
+// Billing operations: period close, dunning, plan changes and checkout, the provider's webhooks, and the reads the portal shows.
+import { FREE_PLAN, formatMoney, isPlanName, PLANS, type PlanName } from "@/lib/api/plans";
 import { recordAudit } from "@/lib/db/audit";
 import {
   claimProcessedEvent,
-  createBillingAccount,
-  findOrCreateInvoice,
   getBillingAccount,
   getInvoiceById,
   getInvoiceByProviderId,
   getInvoiceInOrg,
   getUserName,
-  hasBillingAccount,
   isEventProcessed,
   listAccountsDueForClose,
   listAccountsPastDueSince,
-  listBillingContactEmails,
   listInvoiceLines,
   listIssuedInvoices,
   listOpenPeriodInvoices,
   recordPlanChange,
-  setOrganizationPlan,
-  updateBillingAccount,
   updateInvoice,
-  withBillingAccountLocked,
   type Tx,
 } from "@/lib/db/billing-ledger";
-import { getOrgById, listEmailsByRole } from "@/lib/db/portal";
 import { sumUnits } from "@/lib/db/portal-usage";
-import type { Organization } from "@/lib/db/schema";
-import type { BillingAccount, Invoice } from "@/lib/db/schema-billing";
-import { paymentFailedMail, planChangeMail, planRestoredMail, receiptMail, restrictedMail, type MailContent } from "@/lib/mail/templates";
-import { sendMail } from "@/lib/mail/transport";
+import type { BillingAccount } from "@/lib/db/schema-billing";
+import { planChangeMail, restrictedMail } from "@/lib/mail/templates";
 import { notFound, PortalError } from "@/lib/portal/http";
 import { baseUrl } from "@/lib/portal/tokens";
 import { linesTotal, periodLabel, periodLines, periodOf, prorationMinor, type Line } from "./money";
 import { provider, type Stripe } from "./provider";
+import { billingRecipients, billingUrl, type Ctx, currencyLower, DAY_MS, ensureAccount, ensureCustomer, GRACE_DAYS, mail, planName, setAccount, setEffectivePlan, withAccount } from "./account";
+import { charge, claimInvoice, markPaid, markPastDue, sendToProvider, type PayOutcome } from "./invoicing";
 
-/** Days an invoice may stay unpaid after a failed payment before the organisation drops to the Free plan's limits. */
-export const GRACE_DAYS = 7;
-const DAY_MS = 86_400_000;
-
-/** What a locked operation works on; mails wait in `after` until the transaction has committed. */
-interface Ctx {
-  tx: Tx;
-  acct: BillingAccount;
-  org: Organization;
-  now: Date;
-  after: (() => Promise<unknown>)[];
-}
-
-const planName = (code: string): PlanName => (isPlanName(code) ? code : FREE_PLAN);
-const currencyLower = CURRENCY.toLowerCase();
-
-/** The billing row of an organisation, created on first use (on the plan the organisation holds, this month). */
-export async function ensureAccount(organizationId: number, now = new Date()): Promise<void> {
-  // A plain read first: INSERT IGNORE on a row another transaction holds locked would wait on (and can deadlock with) it.
-  if (await hasBillingAccount({ organizationId })) return;
-  const org = await getOrgById({ organizationId });
-  if (!org) throw notFound("This organisation");
-  const p = periodOf(now);
-  await createBillingAccount({ organizationId, planCode: planName(org.plan), periodStart: p.start, periodEnd: p.end });
-}
-
-const isDeadlock = (e: unknown) => {
-  for (let c: unknown = e; c; c = (c as { cause?: unknown }).cause) if ((c as { errno?: number }).errno === 1213 || (c as { code?: string }).code === "ER_LOCK_DEADLOCK") return true;
-  return false;
-};
-
-/**
- * Runs `fn` with the organisation's billing row locked (SELECT ... FOR UPDATE), then sends the queued mail. A
- * deadlock (the database picked this transaction to undo) is retried; the provider calls inside carry
- * idempotency keys or are no-ops when repeated (paying a paid invoice).
- */
-async function withAccount<T>(organizationId: number, now: Date, fn: (ctx: Ctx) => Promise<T>): Promise<T> {
-  await ensureAccount(organizationId, now);
-  for (let attempt = 1; ; attempt++) {
-    const after: Ctx["after"] = [];
-    try {
-      const out = await withBillingAccountLocked({ organizationId }, ({ tx, acct, org }) => fn({ tx, acct, org, now, after }));
-      for (const job of after) await job().catch((e) => console.error("[sumfold] billing follow-up failed", e));
-      return out;
-    } catch (e) {
-      if (attempt >= 3 || !isDeadlock(e)) throw e;
-      await new Promise((r) => setTimeout(r, 50 * attempt + Math.random() * 50));
-    }
-  }
-}
-
-async function setAccount(ctx: Ctx, patch: Partial<BillingAccount>) {
-  await updateBillingAccount({ organizationId: ctx.acct.organizationId, patch: { ...patch, updatedAt: ctx.now } }, ctx.tx);
-  Object.assign(ctx.acct, patch);
-}
-
-/** Sets the plan whose limits apply (read by the key gate, so the limiter follows within its one-second cache). */
-async function setEffectivePlan(ctx: Ctx, plan: PlanName) {
-  if (ctx.org.plan === plan) return;
-  await setOrganizationPlan({ organizationId: ctx.org.id, plan }, ctx.tx);
-  ctx.org.plan = plan;
-}
-
-/** Who receives billing mail: the billing contacts and the billing members, or the admins when there are none. */
-export async function billingRecipients(organizationId: number): Promise<string[]> {
-  const contacts = await listBillingContactEmails({ organizationId });
-  const billing = await listEmailsByRole({ organizationId, roles: ["billing"] });
-  const all = [...new Set([...contacts, ...billing])];
-  return all.length > 0 ? all : listEmailsByRole({ organizationId, roles: ["admin"] });
-}
-
-function mail(ctx: Ctx, content: MailContent) {
-  const organizationId = ctx.org.id;
-  ctx.after.push(async () => sendMail(await billingRecipients(organizationId), content));
-}
-
-async function ensureCustomer(ctx: Ctx): Promise<string> {
-  if (ctx.acct.providerCustomerId) return ctx.acct.providerCustomerId;
-  const [email] = await billingRecipients(ctx.org.id);
-  const c = await provider().customers.create(
-    { name: ctx.acct.billingName ?? ctx.org.name, email, metadata: { organization_id: String(ctx.org.id) } },
-    { idempotencyKey: `sumfold-customer-${ctx.org.id}-${ctx.acct.createdAt.getTime()}` },
-  );
-  await setAccount(ctx, { providerCustomerId: c.id });
-  return c.id;
-}
-
-const cardLabel = (a: BillingAccount) => (a.cardLast4 ? `${a.cardBrand ?? "card"} ending ${a.cardLast4}` : "the saved card");
-const invoiceUrl = (ctx: Ctx, id: number) => `${baseUrl()}/billing/invoices/${id}?org=${encodeURIComponent(ctx.org.slug)}`;
-const billingUrl = (ctx: Ctx) => `${baseUrl()}/billing?org=${encodeURIComponent(ctx.org.slug)}`;
-
-// ---------------------------------------------------------------- invoices
-
-/** Finds or creates the local invoice row for (kind, dedupeKey): the unique key makes a repeated run a no-op. */
-async function claimInvoice(ctx: Ctx, p: { kind: "period" | "proration"; dedupeKey: string; planCode: string; period: { start: Date; end: Date }; lines: Line[]; metered: number }): Promise<Invoice> {
-  return findOrCreateInvoice(
-    { organizationId: ctx.org.id, kind: p.kind, dedupeKey: p.dedupeKey, planCode: p.planCode, period: p.period, currency: CURRENCY, totalMinor: linesTotal(p.lines), metered: p.metered, year: ctx.now.getUTCFullYear(), lines: p.lines },
-    ctx.tx,
-  );
-}
-
-/** Creates the invoice at the provider (one item per line) and finalises it; every call carries an idempotency key. */
-async function sendToProvider(ctx: Ctx, row: Invoice): Promise<Invoice> {
-  if (row.status !== "draft") return row;
-  const customer = await ensureCustomer(ctx);
-  const lines = await listInvoiceLines({ invoiceId: row.id }, ctx.tx);
-  const key = `sumfold-${row.number}`;
-  let pinv = await provider().invoices.create(
-    {
-      customer,
-      currency: currencyLower,
-      collection_method: "charge_automatically",
-      auto_advance: false,
-      pending_invoice_items_behavior: "exclude",
-      description: `Sumfold ${row.number}`,
-      metadata: { organization_id: String(ctx.org.id), invoice_number: row.number },
-    },
-    { idempotencyKey: `${key}-invoice` },
-  );
-  for (const l of lines) {
-    await provider().invoiceItems.create(
-      { customer, invoice: pinv.id, currency: currencyLower, amount: l.amountMinor, description: `${l.description} (${l.quantity.toLocaleString("en-GB")} × ${l.unitLabel})`, metadata: { position: String(l.position) } },
-      { idempotencyKey: `${key}-line-${l.position}` },
-    );
-  }
-  if (pinv.status === "draft") pinv = await provider().invoices.finalizeInvoice(pinv.id!, {}, { idempotencyKey: `${key}-finalize` });
-  await updateInvoice({ invoiceId: row.id, patch: { providerInvoiceId: pinv.id, status: "open" } }, ctx.tx);
-  return { ...row, providerInvoiceId: pinv.id ?? null, status: "open" };
-}
-
-type PayOutcome = { paid: true } | { paid: false; message: string };
-
-/** Charges an open invoice to the saved payment method through the provider. */
-async function charge(ctx: Ctx, row: Invoice): Promise<PayOutcome> {
-  if (row.status === "paid") return { paid: true };
-  try {
-    const pinv = await provider().invoices.pay(row.providerInvoiceId!, ctx.acct.paymentMethodId ? { payment_method: ctx.acct.paymentMethodId } : {});
-    if (pinv.status === "paid") {
-      await markPaid(ctx, row);
-      return { paid: true };
-    }
-    return { paid: false, message: `The provider reports the invoice as ${pinv.status}.` };
-  } catch (e) {
-    const err = e as { type?: string; statusCode?: number; message?: string };
-    if (err.statusCode === 402 || err.type === "StripeCardError") {
-      const message = err.message ?? "The payment was declined.";
-      await updateInvoice({ invoiceId: row.id, patch: { lastPaymentError: message.slice(0, 300) } }, ctx.tx);
-      return { paid: false, message };
-    }
-    throw e;
-  }
-}
-
-async function markPaid(ctx: Ctx, row: Invoice) {
-  const cur = await getInvoiceById({ invoiceId: row.id }, ctx.tx);
-  if (cur!.status === "paid") return;
-  await updateInvoice({ invoiceId: row.id, patch: { status: "paid", paidAt: ctx.now, lastPaymentError: null } }, ctx.tx);
-  mail(ctx, receiptMail({ organization: ctx.org.name, number: row.number, total: formatMoney(row.totalMinor, row.currency), period: periodLabel({ start: row.periodStart, end: row.periodEnd }), card: cardLabel(ctx.acct), url: invoiceUrl(ctx, row.id) }));
-  await restoreIfSettled(ctx);
-}
-
-/** A past-due or restricted organisation with no open period invoice left gets its plan back. */
-async function restoreIfSettled(ctx: Ctx) {
-  if (ctx.acct.status === "active") return;
-  const open = await listOpenPeriodInvoices({ organizationId: ctx.org.id }, ctx.tx);
-  if (open.length > 0) return;
-  await setAccount(ctx, { status: "active", pastDueSince: null });
-  await setEffectivePlan(ctx, planName(ctx.acct.planCode));
-  await recordAudit({ organizationId: ctx.org.id, actorType: "system", action: "billing.plan_restored", targetType: "organization", targetId: String(ctx.org.id), detail: { plan: ctx.acct.planCode } }, ctx.tx);
-  mail(ctx, planRestoredMail({ organization: ctx.org.name, plan: PLANS[planName(ctx.acct.planCode)].label, url: billingUrl(ctx) }));
-}
-
-/** A period invoice whose payment failed: the organisation is past due (once), and the billing contacts are told. */
-async function markPastDue(ctx: Ctx, row: Invoice) {
-  if (ctx.acct.status !== "active") return;
-  await setAccount(ctx, { status: "past_due", pastDueSince: ctx.now });
-  await recordAudit({ organizationId: ctx.org.id, actorType: "system", action: "billing.past_due", targetType: "invoice", targetId: row.number }, ctx.tx);
-  const restrictOn = new Date(ctx.now.getTime() + GRACE_DAYS * DAY_MS);
-  mail(ctx, paymentFailedMail({ organization: ctx.org.name, number: row.number, total: formatMoney(row.totalMinor, row.currency), graceDays: GRACE_DAYS, restrictOn: restrictOn.toUTCString(), url: invoiceUrl(ctx, row.id) }));
-}
+export { billingRecipients, ensureAccount, GRACE_DAYS };
 
 // ---------------------------------------------------------------- period close
 
