@@ -34,6 +34,7 @@ const header = ["set", "quantity", "n", "worst act/bound", "floor", "worst bound
 const rows: string[][] = [];
 const violations: string[] = [];
 const loose: string[] = [];
+const worstAt = new Map<string, string>();
 const sets = [...new Set(samples.map((s) => s.set))];
 for (const set of sets) {
   for (const quantity of QUANTITIES) {
@@ -66,6 +67,7 @@ for (const set of sets) {
       }
       // a bound is broken only when the difference exceeds it by more than the reference's own uncertainty
       const ratio = s.bound > 0 ? Math.max(actual - s.refErr, 0) / s.bound : actual > s.refErr ? Infinity : 0;
+      if (ratio > worstRatio) worstAt.set(`${set} ${quantity}`, `${set} ${quantity} ${s.label}: actual/bound ${ratio.toFixed(3)} (engine ${s.got}, reference ${s.want}, actual ${actual.toExponential(3)}, bound ${s.bound.toExponential(3)})`);
       worstRatio = Math.max(worstRatio, ratio);
       if (ratio > 1)
         violations.push(`${set} ${quantity} ${s.label}: engine ${s.got}, reference ${s.want}, actual ${actual.toExponential(3)}, stated bound ${s.bound.toExponential(3)}, reference uncertainty ${s.refErr.toExponential(2)}`);
@@ -108,6 +110,10 @@ if (slow.length) {
 if (failures.length) {
   console.log(`\n${failures.length} calls failed (deadline ${DEADLINE_MS} ms or refusal):`);
   for (const f of failures) console.log("  " + f);
+}
+if (process.env.BOUND_AUDIT_VERBOSE) {
+  console.log(`\ntightest bound per row (the worst act/bound column):`);
+  for (const w of worstAt.values()) console.log("  " + w);
 }
 if (loose.length && process.env.BOUND_AUDIT_VERBOSE) {
   console.log(`\nlooser than 100x (${loose.length}):`);
