@@ -50,6 +50,14 @@ export interface SeverityKernel {
    */
   slope?(t: number): number;
   /**
+   * |E[X e^{(i t - beta) X}]| at each t (out), the values' own error included, where the family has that transform from
+   * its own (lognormal: x f(x) is E X times the density of e^{sigma^2} X), at most slope(t); sampled like the transform's
+   * envelope
+   */
+  slopeAt?(beta: number, t: Float64Array, out: Float64Array): void;
+  /** a bound on |E[e^{(i t - beta) X}]| at t > 0 for every beta >= 0, in closed form (it falls to 0 where values cannot) */
+  absBound?(t: number): number;
+  /**
    * the two-claim term P(N = 2) times the law of X_1 + X_2 (transform phi^2), when the severity has a computable
    * one (values weighted by w, with their bounds); the inversion takes it out too where that saves more terms than
    * its evaluation costs at the points asked for
@@ -82,6 +90,7 @@ export function lognormalKernel(
 ): SeverityKernel {
   const m1 = Math.exp(mu + (sigma * sigma) / 2);
   const mode = Math.exp(mu - sigma * sigma);
+  const slopeOf = (t: number) => Math.min(m1, 2 / (sigma * Math.sqrt(2 * Math.PI) * t)) * (1 + 4 * Number.EPSILON);
   const pdf = (x: number) => (x > 0 ? Math.exp(-0.5 * ((Math.log(x) - mu) / sigma) ** 2) / (x * sigma * Math.sqrt(2 * Math.PI)) : 0);
   return {
     w,
@@ -91,7 +100,26 @@ export function lognormalKernel(
     // E[X e^{(i t - beta) X}] = int g e^{itx} with g = x e^{-beta x} f(x) = e^{-beta x} phi((log x - mu)/sigma)/sigma, unimodal
     // (log-concave in log x) with sup g <= 1/(sigma sqrt(2 pi)): integrating by parts, |.| <= TV(g)/t = 2 sup g / t; and
     // |.| <= E X = m1
-    slope: (t) => Math.min(m1, 2 / (sigma * Math.sqrt(2 * Math.PI) * t)) * (1 + 4 * Number.EPSILON),
+    slope: slopeOf,
+    // likewise f e^{-beta x} is unimodal (x times its log's derivative, -1 - (log x - mu)/sigma^2 - beta x, falls) and at most
+    // f(mode) = e^{sigma^2/2 - mu} / (sigma sqrt(2 pi)): |phi| <= 2 f(mode) / t
+    absBound: (t) => ((2 * Math.exp(0.5 * sigma * sigma - mu)) / (sigma * Math.sqrt(2 * Math.PI) * t)) * (1 + 8 * Number.EPSILON),
+    // x f(x) = m1 f_{X'}(x), X' = c X lognormal(mu + sigma^2, sigma), c = e^{sigma^2}: so E[X e^{(it - beta) X}] is m1 times the
+    // transform at (c t, c beta); an error d in those values, and the arguments' rounding (eps relative each, which moves
+    // the transform by at most E X' = c m1 times the argument's change), are added
+    slopeAt(beta, t, out) {
+      const c = Math.exp(sigma * sigma);
+      const n = t.length;
+      const tc = new Float64Array(n);
+      const re = new Float64Array(n);
+      const im = new Float64Array(n);
+      for (let i = 0; i < n; i++) tc[i] = c * t[i];
+      dampedLogCf(c * beta, tc, re, im);
+      for (let i = 0; i < n; i++) {
+        const v = Math.exp(re[i]) * (1 + 8 * Number.EPSILON) + cfAbsError + c * m1 * 4 * Number.EPSILON * (tc[i] + c * beta);
+        out[i] = Math.min(slopeOf(t[i]), m1 * v * (1 + 4 * Number.EPSILON));
+      }
+    },
     // E X^n = exp(n mu + n^2 sigma^2 / 2) (JKB vol. 1, ch. 14)
     moments: [m1, Math.exp(2 * mu + 2 * sigma * sigma)],
     cfAbsError,

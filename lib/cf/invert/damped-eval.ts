@@ -179,7 +179,7 @@ export function dampedAt(s: DampedSolution, x: number, wantPdf: boolean, wantInt
     fc,
     Ic,
     errF: g * sumCdfAt(s, y) + aliasCdfAt(s, y) + kv.err + fin * Math.abs(f * aC),
-    errf: wantPdf ? g * s.sumPdf + s.aliasPdf + kv.errf + fin * Math.abs(f * aP) : Infinity,
+    errf: wantPdf ? g * sumPdfAt(s, y) + s.aliasPdf + kv.errf + fin * Math.abs(f * aP) : Infinity,
     errI: g * s.sumInt + aliasI + kv.errI + fin * Math.abs(f * aI),
   };
 }
@@ -188,6 +188,12 @@ export function dampedAt(s: DampedSolution, x: number, wantPdf: boolean, wantInt
 export function sumCdfAt(s: DampedSolution, y: number): number {
   if (!(s.truncTau < s.truncCdf)) return s.sumCdf;
   return s.roundCdf * (1 + 4 * EPS) + truncationAtY(s.truncCdf, s.truncTau, s.h, y);
+}
+
+/** the density sum's truncation and rounding bound at y (before undamping): per point where the solution has its tau */
+export function sumPdfAt(s: DampedSolution, y: number): number {
+  if (!(s.truncTauPdf < s.truncPdf)) return s.sumPdf;
+  return s.roundPdf * (1 + 4 * EPS) + truncationAtY(s.truncPdf, s.truncTauPdf, s.h, y);
 }
 
 /**
@@ -237,8 +243,8 @@ export function dampedGrid(
     const kv = takenOutAt(s, from + j * dx, wantPdf, false);
     Fc[j] = Math.min(Math.max(g * gC[j] + kv.F + s.cdfShift, 0), s.Mc);
     fc[j] = wantPdf ? Math.max(g * gP[j] + kv.f, 0) : 0;
-    errF[j] = g * s.sumCdf + alias + kv.err;
-    errf[j] = wantPdf ? g * s.sumPdf + s.aliasPdf + kv.errf : NaN;
+    errF[j] = g * sumCdfAt(s, y) + alias + kv.err;
+    errf[j] = wantPdf ? g * sumPdfAt(s, y) + s.aliasPdf + kv.errf : NaN;
   }
   return { fc, Fc, errF, errf };
 }

@@ -7,6 +7,7 @@ import { scratch } from "../damped-scratch";
 import { sumOnGrid } from "./fft";
 import { takenOutAt, twoProduct } from "./damped-eval";
 import { FFT_REL } from "./damped-transform";
+import { truncationAtY } from "./damped-slope";
 import type { Nodes } from "./nodes";
 
 /** |x + i y| at least: the square root of the squares widened by 4 eps (hypot, slower, where they could underflow) */
@@ -304,16 +305,16 @@ export function dampedPoints(
     const kv = takenOutAt(s, x, wantPdf, false);
     Fc[i] = Math.min(Math.max(g * vC + kv.F + s.cdfShift, 0), s.Mc);
     fc[i] = gP ? Math.max(g * vP + kv.f, 0) : 0;
-    // the truncation part of the sums' bound holds at every y (no stencil factor); their rounding and CF-value parts
+    // the truncation part of the sums' bound holds at every y (no stencil factor; by parts where the solution has tau); their rounding and CF-value parts
     // sit in the grid values and pass through the weights (times the Lebesgue sum); the weights and the stencil's sum
     // round within (3 M + 4) eps of sum |w_a g_a|; rho's own rounding (4 eps of a grid step) moves the point by
     // 4 eps dx, over which the sums change by at most their derivative's bound (h/pi) sum t_k |c_k| <= scaleP
-    const roundC = s.sumCdf - s.truncCdf + fftC;
-    const roundP = s.sumPdf - s.truncPdf + fftP;
+    const roundC = s.roundCdf + fftC;
+    const roundP = s.roundPdf + fftP;
     const wr = (3 * M + 4) * Number.EPSILON;
     const shift = 8 * Number.EPSILON * dx;
-    errF[i] = g * (s.truncCdf + leb * roundC + interpC + wr * aC + shift * s.scaleP) + s.aliasCdf + kv.err;
-    errf[i] = gP ? g * (s.truncPdf + leb * roundP + interpP + wr * aP + shift * plan.dP1) + s.aliasPdf + kv.errf : NaN;
+    errF[i] = g * (truncationAtY(s.truncCdf, s.truncTau, s.h, y) + leb * roundC + interpC + wr * aC + shift * s.scaleP) + s.aliasCdf + kv.err;
+    errf[i] = gP ? g * (truncationAtY(s.truncPdf, s.truncTauPdf, s.h, y) + leb * roundP + interpP + wr * aP + shift * plan.dP1) + s.aliasPdf + kv.errf : NaN;
   }
   return { fc, Fc, errF, errf };
 }

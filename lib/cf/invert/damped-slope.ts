@@ -11,8 +11,9 @@ const EPS = Number.EPSILON;
  * psi_c = P_N(phi) - p_0 - p_1 phi (- p_2 phi^2), so psi_c' = (P_N'(phi) - p_1 (- 2 p_2 phi)) phi' and, for |z| <= 1,
  * |P_N'(z) - p_1 - 2 p_2 z| = |sum_{n >= 3} n p_n z^{n-1}| <= (E N - p_1 - 2 p_2) |z|^2 (|z| once, without p_2: n >= 2);
  * |c'| <= |psi_c'| / |beta - i t| + |psi_c| / |beta - i t|^2, with |phi| + d for phi (d its values' bound) and
- * |psi_c| + its noise. `env` is the plan's envelope of |psi_c| at this beta, `noise` its per-probe noise and `phi` |phi| at
- * its probe frequencies (the probe's own values, within their rounding).
+ * |psi_c| + its noise (`of` = "pdf": the density sum's coefficients psi_c, |psi_c'| alone). `env` is the plan's envelope of |psi_c| at this beta, `noise` its per-probe noise and `phi` |phi| at
+ * its probe frequencies (the probe's own values, within their rounding), `dphi` |phi'| there where the severity gives it
+ * (SeverityKernel.slopeAt: far below the closed-form slope bound, which falls only like 1/t), else that bound.
  */
 export function slopeEnvelope(
   model: CompiledModel,
@@ -22,6 +23,8 @@ export function slopeEnvelope(
   env: Envelope,
   noise: Float64Array,
   phi: Float64Array | null,
+  of: "cdf" | "pdf" = "cdf",
+  dphi: Float64Array | null = null,
 ): Envelope | null {
   const sev = model.dampedSeverity;
   if (!sev?.count || !sev.slope || !phi || model.support[0] !== 0 || !atoms.every((a) => a.x === 0)) return null;
@@ -31,13 +34,34 @@ export function slopeEnvelope(
   const W = Math.max(sev.count.mean - sev.w - 2 * w2, 0) * (1 + 8 * EPS);
   const mag = new Float64Array(n);
   for (let i = 0; i < n; i++) {
-    const z = Math.min(1, phi[i] * (1 + 4 * EPS) + sev.cfAbsError);
-    const dpsi = W * (pairOut ? z * z : z) * sev.slope(tp[i]);
+    // |phi| within its values' bound, and never above the severity's closed-form bound where it has one
+    const z = Math.min(1, phi[i] * (1 + 4 * EPS) + sev.cfAbsError, sev.absBound ? sev.absBound(tp[i]) : 1);
+    const dpsi = W * (pairOut ? z * z : z) * (dphi ? dphi[i] : sev.slope(tp[i]));
     const d2 = beta * beta + tp[i] * tp[i];
-    mag[i] = (dpsi / Math.sqrt(d2) + (env.env[i] + noise[i]) / d2) * (1 + 8 * EPS);
+    // the density sum's coefficients are psi_c itself: |psi_c'| alone
+    mag[i] = (of === "pdf" ? dpsi : dpsi / Math.sqrt(d2) + (env.env[i] + noise[i]) / d2) * (1 + 8 * EPS);
     if (!Number.isFinite(mag[i])) return null;
   }
-  return envelopeOf(tp, mag, () => 0);
+  const e = envelopeOf(tp, mag, () => 0);
+  if (of === "pdf" && sev.absBound) {
+    // past the last probe the density-type tail from the closed forms, not the last octave's decay (there |phi| + d sits
+    // on its floor d, so |psi_c'| looks like 1/t and its tail infinite): |phi| <= A / t and |phi'| <= S / t give
+    // |psi_c'| <= W A^j S / t^{j+1}, whose integral from t_n is W A^j S / (j t_n^j); the steps below the last probe kept
+    const tn = tp[n - 1];
+    const A = sev.absBound(tn) * tn;
+    const S = sev.slope(tn) * tn;
+    const j = pairOut ? 2 : 1;
+    let sp = ((W * Math.pow(A, j) * S) / (j * Math.pow(tn, j))) * (1 + 16 * EPS);
+    if (!Number.isFinite(sp)) return e;
+    const tailPdf = new Float64Array(n);
+    tailPdf[n - 1] = sp / Math.PI;
+    for (let i = n - 2; i >= 0; i--) {
+      sp += e.env[i] * (tp[i + 1] - tp[i]);
+      tailPdf[i] = (sp / Math.PI) * (1 + 4 * EPS);
+    }
+    return { ...e, tailPdf };
+  }
+  return e;
 }
 
 /**
@@ -101,4 +125,27 @@ export function slopeTruncationAt(env: Envelope, slope: Envelope, tmax: number, 
   let i = 0;
   while (i + 1 < env.t.length && env.t[i + 1] <= tmax) i++;
   return truncationEnd(env, slope, i, T, span);
+}
+
+/**
+ * The truncation over the whole range [0, span] after undamping, for a cut-off at probe i: sup_y e^{beta y} times the
+ * smaller of the envelope's uniform tail (`uniform`: the cdf's or the density's) and tau / |sin(h y / 2)| (truncationSup),
+ * with tau from the slope envelope's tail at that probe; for sums answered at every point of the range (grids, points)
+ */
+function truncationRange(uniform: Float64Array, slope: Envelope, i: number, T: number, beta: number, span: number): number {
+  const h = (2 * Math.PI) / T;
+  return truncationSup(uniform[i], h * slope.tailPdf[i] * (1 + 4 * EPS), h, beta, span);
+}
+
+/** the smallest probe frequency where truncationRange reaches `target` (after undamping; undefined if none) */
+export function slopeCutoffRange(uniform: Float64Array, t: Float64Array, slope: Envelope, T: number, beta: number, span: number, target: number): number | undefined {
+  for (let i = 0; i < t.length; i++) if (truncationRange(uniform, slope, i, T, beta, span) <= target) return t[i];
+  return undefined;
+}
+
+/** truncationRange for a cut-off tmax (the probe on its left: an over-estimate) */
+export function slopeTruncationRange(uniform: Float64Array, t: Float64Array, slope: Envelope, tmax: number, T: number, beta: number, span: number): number {
+  let i = 0;
+  while (i + 1 < t.length && t[i + 1] <= tmax) i++;
+  return truncationRange(uniform, slope, i, T, beta, span);
 }

@@ -1,11 +1,12 @@
-// The damped transform psi_c of the continuous part less what is taken out in closed form, and the plan (beta, period, cut-off).
+// The damped inversion's plan (beta, period, cut-off) and the sums' rounding allowances; psi_c itself in ./damped-psi.ts.
 import type { Atom, CompiledModel } from "../types";
-import type { SeverityKernel } from "../severity-kernel";
-import { kernelsMass, subtractKernels } from "../damped-kernels";
-import { scratch } from "../damped-scratch";
-import { cutoffFor, envelopeOf, probeFrequencies, truncationAt, type Envelope } from "./nodes";
+import { kernelsMass } from "../damped-kernels";
+import { cutoffFor, truncationAt, type Envelope } from "./nodes";
+import { noiseOf, probe, slopeValues, type Probed } from "./damped-psi";
 import { imageMoments } from "./damped-images";
-import { slopeCutoff, slopeEnvelope, slopeTruncationAt } from "./damped-slope";
+import { slopeCutoff, slopeCutoffRange, slopeEnvelope, slopeTruncationAt, slopeTruncationRange } from "./damped-slope";
+
+export { noiseOf, psiOf } from "./damped-psi";
 
 const EPS = Number.EPSILON;
 
@@ -57,14 +58,6 @@ export type Exactness = boolean | "interpolated";
  */
 export const FFT_REL = (8 * 22 + 16) * EPS;
 
-/** per-node noise of psi_c: rounding of the atom subtraction plus twice the CF's declared absolute error */
-export function noiseOf(model: CompiledModel, atoms: Atom[]): number {
-  const pa = atoms.reduce((s, a) => s + a.p, 0);
-  const kw = kernelsMass(model.dampedKernels ?? []) + (model.dampedSeverity?.w ?? 0);
-  // a relative CF error acts on the atoms' share of psi as an absolute one; the kernels' closed forms round too
-  return 16 * EPS * (1 + pa + kw) + 2 * (model.cfAbsError ?? 0) + 2 * pa * (model.cfRelError ?? 0);
-}
-
 /** Plan for the range [lo, R]: beta (R - lo) = U, e^{-beta T} <= tol / (8 M_c), and the envelope of |psi_c|. */
 export interface DampedPlan {
   beta: number;
@@ -82,206 +75,17 @@ export interface DampedPlan {
    * end (pointwise cdf sums only: the bound then holds per point, away from the period's ends), else null
    */
   slope: Envelope | null;
+  /** the density's counterpart (an envelope of |psi_c'|), where the range's density is bounded by parts too; else null */
+  slopePdf: Envelope | null;
 }
 
 /**
- * psi_c at the nodes t (atoms, kernels and the one-claim term taken out); with `noise` given, also a bound on each
- * node's absolute error from the CF values (the constant noiseOf, or per node where the one-claim term shares the
- * severity transform values with psi)
+ * How the truncated sums may be bounded by summation by parts (./damped-slope.ts): false (not: the envelope's uniform
+ * tail), true (the cdf alone at the exact nodes, point by point, the cut-off from the bound at the range's end: the
+ * quantile search, which bounds the rest of the range itself), "range" (every point of the range carries its own bound,
+ * grids and arbitrary points, cdf and density: the cut-off from the bound's supremum over the range after undamping)
  */
-export function psiOf(model: CompiledModel, atoms: Atom[], beta: number, pairOut = false, planning = false) {
-  const lo = model.support[0];
-  const sev = model.dampedSeverity;
-  if (sev?.count && lo === 0) return severityPsi(sev, sev.count, atoms, beta, pairOut ? (sev.pair?.w ?? 0) : 0, planning);
-  const base = noiseOf(model, atoms);
-  return (t: Float64Array, re: Float64Array, im: Float64Array, noise?: Float64Array) => {
-    model.dampedLogCf!(beta, t, re, im);
-    for (let k = 0; k < t.length; k++) {
-      const m = Math.exp(re[k] + beta * lo);
-      const ph = im[k] - t[k] * lo;
-      let r = m * Math.cos(ph);
-      let i = m * Math.sin(ph);
-      for (const a of atoms) {
-        const d = a.x - lo;
-        const am = a.p * Math.exp(-beta * d);
-        r -= am * Math.cos(t[k] * d);
-        i -= am * Math.sin(t[k] * d);
-      }
-      re[k] = r;
-      im[k] = i;
-    }
-    if (model.dampedKernels) subtractKernels(model.dampedKernels, lo, beta, t, re, im);
-    if (sev) subtractSeverity(sev, beta, t, re, im);
-    if (noise) noise.fill(base);
-  };
-}
-
-/**
- * psi_c = P_N(phi) - atoms - p_1 phi (- p_2 phi^2 with the two-claim term out) for a compound whose support starts at
- * 0, phi the severity's damped transform evaluated once for every term. Per-node error: rounding (16 eps per unit of
- * magnitude), the count's own CF error, and for an error d in phi sup |P_N'(z) - p_1 (- 2 p_2 z)| d <= E N |z|^j d,
- * |z| <= |phi| + d, j = 1 (2 with the two-claim term out: the sum then starts at n = 3), which falls with |phi|; or,
- * for a count that bounds its slope near a point (Poisson: |P_N'(z)| = lambda |P_N(z)| <= lambda |P_N(phi)| e^{lambda d}),
- * (that slope + p_1 + 2 p_2 |z|) d, which falls with |P_N(phi)| (Poisson(1000): far below E N d away from t = 0).
- * Where the severity and the count give phi and log P_N(phi) rectangular (no log and exp of phi), they are taken so,
- * and d is the bound the severity's route returns for these values.
- */
-function severityPsi(sev: SeverityKernel, count: NonNullable<SeverityKernel["count"]>, atoms: Atom[], beta: number, w2: number, planning: boolean) {
-  const pa = atoms.reduce((s, a) => s + a.p, 0);
-  // the severity's transform and the count's log-pgf taken rectangular where both have that form: no log and exp of phi
-  const rect = !!(sev.dampedCf && count.logPgf);
-  // `also`: the same remainder with the two-claim term out as well (weight also.w2), from the same transform values (a
-  // plan's probe makes both plans from one evaluation of the severity's transform)
-  return (
-    t: Float64Array,
-    re: Float64Array,
-    im: Float64Array,
-    noise?: Float64Array,
-    also?: { w2: number; re: Float64Array; im: Float64Array; noise: Float64Array },
-    phiAbs?: Float64Array,
-  ) => {
-    const a = scratch("sevRe", t.length);
-    const b = scratch("sevIm", t.length);
-    // d: the bound on the severity transform values' absolute error (the route's own where it returns one; a plan's
-    // probe, whose short run takes the per-frequency route, is charged the bound of every route the setup may take)
-    let d = sev.cfAbsError;
-    if (rect) {
-      const dr = sev.dampedCf!(beta, t, a, b);
-      if (!planning) d = Math.min(d, dr);
-      count.logPgf!(a, b, re, im);
-    } else {
-      sev.dampedLogCf(beta, t, a, b);
-      count.cgf(a, b, re, im);
-    }
-    for (let k = 0; k < t.length; k++) {
-      // the count's cumulant function at phi (re, im are overwritten with psi below)
-      const cr = re[k];
-      const ci = im[k];
-      const m = Math.exp(cr);
-      let r = m * Math.cos(ci);
-      let i = m * Math.sin(ci);
-      for (const at of atoms) {
-        const am = at.p * Math.exp(-beta * at.x);
-        r -= am * Math.cos(t[k] * at.x);
-        i -= am * Math.sin(t[k] * at.x);
-      }
-      // phi = fr + i fi, |phi| = ph
-      let fr: number;
-      let fi: number;
-      let ph: number;
-      if (rect) {
-        fr = a[k];
-        fi = b[k];
-        const s2 = fr * fr + fi * fi;
-        ph = s2 > 1e-290 ? Math.sqrt(s2) * (1 + 2 * EPS) : Math.hypot(fr, fi) * (1 + 2 * EPS);
-      } else {
-        ph = Math.exp(a[k]);
-        fr = ph * Math.cos(b[k]);
-        fi = ph * Math.sin(b[k]);
-      }
-      if (phiAbs) phiAbs[k] = ph;
-      r -= sev.w * fr;
-      i -= sev.w * fi;
-      // an error d in phi moves P_N(phi) - p_1 phi (- p_2 phi^2) by at most E N |z|^j d (see above), or, where the
-      // count bounds its slope near phi (|P_N'| far below E N where |P_N| is small), by (slope + p_1 + 2 p_2 z) d;
-      // m is |P_N(phi)| within its exp's rounding; exp of the cumulant function rounds within a few eps of |cr| + |ci|
-      let base = 0;
-      let slope = Infinity;
-      const z = ph + d;
-      if (noise) {
-        const expRound = EPS * (4 + 2 * Math.abs(cr) + 2 * Math.abs(ci));
-        base = 16 * EPS * (1 + pa + sev.w) + expRound * m + count.absError + 2 * count.relError * (m + pa);
-        if (count.slopeNear) slope = count.slopeNear(m * (1 + expRound), d);
-      }
-      if (also) {
-        const v = also.w2;
-        also.re[k] = r - v * (fr * fr - fi * fi);
-        also.im[k] = i - v * 2 * fr * fi;
-        also.noise[k] = base + 16 * EPS * v + Math.min(count.mean * (v > 0 ? z * z : z) * d, (slope + sev.w + 2 * v * z) * d);
-      }
-      if (w2 > 0) {
-        r -= w2 * (fr * fr - fi * fi);
-        i -= w2 * 2 * fr * fi;
-      }
-      re[k] = r;
-      im[k] = i;
-      if (noise) noise[k] = base + 16 * EPS * w2 + Math.min(count.mean * (w2 > 0 ? z * z : z) * d, (slope + sev.w + 2 * w2 * z) * d);
-    }
-  };
-}
-
-/** psi -= w E[e^{(i t - beta) X}] (the one-claim term; the compound's support starts at 0 like the severity's) */
-function subtractSeverity(k: SeverityKernel, beta: number, t: Float64Array, re: Float64Array, im: Float64Array) {
-  const r = new Float64Array(t.length);
-  const i = new Float64Array(t.length);
-  k.dampedLogCf(beta, t, r, i);
-  for (let j = 0; j < t.length; j++) {
-    const m = k.w * Math.exp(r[j]);
-    re[j] -= m * Math.cos(i[j]);
-    im[j] -= m * Math.sin(i[j]);
-  }
-}
-
-/**
- * the probes made per compiled model, by damping and whether the two-claim term is out: the quantile search plans each
- * loose solution and the final one (twice where the wider budget is tried), and a plan probes at beta = 4 / span before
- * probing its chosen beta, often the same one; the atoms are the model's own, so the key is complete
- */
-/** a probe's envelope of |psi_c|, its per-node noise and, for a compound's remainder, |phi| of the severity (else null) */
-type Probed = Envelope & { noise: Float64Array; phi: Float64Array | null };
-const PROBES = new WeakMap<CompiledModel, Map<string, Probed>>();
-const MAX_PROBES = 32;
-
-function probe(model: CompiledModel, atoms: Atom[], beta: number, pairOut: boolean): Probed {
-  let memo = PROBES.get(model);
-  if (!memo) PROBES.set(model, (memo = new Map()));
-  const key = probeKey(beta, pairOut, atoms);
-  let hit = memo.get(key);
-  if (!hit) {
-    if (memo.size >= MAX_PROBES) memo.clear();
-    hit = probeAt(model, atoms, beta, pairOut, memo);
-    memo.set(key, hit);
-  }
-  return hit;
-}
-
-const probeKey = (beta: number, pairOut: boolean, atoms: Atom[]) => `${beta}|${pairOut}|${atoms.length}`;
-
-function probeAt(model: CompiledModel, atoms: Atom[], beta: number, pairOut: boolean, memo: Map<string, Probed>) {
-  const tp = probeFrequencies(Math.max(model.scale, 1e-300));
-  const n = tp.length;
-  const pr = new Float64Array(n);
-  const pi = new Float64Array(n);
-  const nz = new Float64Array(n);
-  // a compound with a two-claim term: both remainders (with and without it) from one evaluation of the severity's
-  // transform, the other one kept for the plan that asks for it next
-  const sev = model.dampedSeverity;
-  const w2 = sev?.pair?.w ?? 0;
-  if (sev?.count && model.support[0] === 0 && w2 > 0) {
-    const other = { w2: pairOut ? 0 : w2, re: new Float64Array(n), im: new Float64Array(n), noise: new Float64Array(n) };
-    const phi = new Float64Array(n);
-    severityPsi(sev, sev.count, atoms, beta, pairOut ? w2 : 0, true)(tp, pr, pi, nz, other, phi);
-    memo.set(probeKey(beta, !pairOut, atoms), envelopeFrom(tp, other.re, other.im, other.noise, phi));
-    return envelopeFrom(tp, pr, pi, nz, phi);
-  }
-  if (sev?.count && model.support[0] === 0) {
-    const phi = new Float64Array(n);
-    severityPsi(sev, sev.count, atoms, beta, pairOut ? w2 : 0, true)(tp, pr, pi, nz, undefined, phi);
-    return envelopeFrom(tp, pr, pi, nz, phi);
-  }
-  psiOf(model, atoms, beta, pairOut, true)(tp, pr, pi, nz);
-  return envelopeFrom(tp, pr, pi, nz, null);
-}
-
-function envelopeFrom(tp: Float64Array, pr: Float64Array, pi: Float64Array, nz: Float64Array, phi: Float64Array | null): Probed {
-  const mag = new Float64Array(tp.length);
-  for (let i = 0; i < tp.length; i++) mag[i] = Math.hypot(pr[i], pi[i]);
-  // values below the rounding of the atom subtraction and the CF's own error are not resolved (envelopeOf asks
-  // for the floor at each probe frequency in turn)
-  const at = new Map<number, number>();
-  for (let i = 0; i < tp.length; i++) at.set(tp[i], nz[i]);
-  return { ...envelopeOf(tp, mag, (t) => at.get(t) ?? nz[0]), noise: nz, phi };
-}
+export type ByParts = boolean | "range";
 
 /** cost of the two-claim term at one point, in units of one frequency term (its panels against the transform's work) */
 const PAIR_COST = 60;
@@ -293,8 +97,7 @@ const PAIR_COST = 60;
  * `periodOf` maps the period a plan needs to the one it will get (an FFT grid's N dx, N a power of 2), so the terms
  * are counted over the period actually used. `pdfReach`: the density is answered at the tolerance (density(), not a
  * quantile's bracket), so a cut-off whose density truncation cannot reach its target counts against the plan.
- * `byParts`: the cdf alone is wanted, point by point, each with its own bound (the quantile search): the cut-off may come
- * from the truncation bound by parts at the range's end (./damped-slope.ts).
+ * `byParts`: the truncated sums may be bounded by parts (see ByParts).
  */
 export function dampedPlan(
   model: CompiledModel,
@@ -307,7 +110,7 @@ export function dampedPlan(
   budget = Infinity,
   periodOf: (T: number) => number = (T) => T,
   pdfReach = wantPdf,
-  byParts = false,
+  byParts: ByParts = false,
 ): DampedPlan {
   const plain = planFor(model, atoms, R, tol, wantPdf, false, pointwise, budget, periodOf, pdfReach, byParts);
   // the second plan only where it can pay: the plain plan's terms exceed what the term costs at the points
@@ -328,7 +131,7 @@ function planFor(
   budget: number,
   periodOf: (T: number) => number,
   pdfReach: boolean,
-  byParts: boolean,
+  byParts: ByParts,
 ): { plan: DampedPlan; K: number } {
   const lo = model.support[0];
   const span = Math.max(R - lo, 1e-6 * Math.max(model.scale, Math.abs(lo), 1e-300));
@@ -352,31 +155,66 @@ function planFor(
   };
   const env0 = probe(model, atoms, 4 / span, pairOut);
   // the cdf alone, summed point by point: the cut-off may come from the summation-by-parts bound at y = span
-  const bySlope = byParts && pointwise === true && !wantPdf && !pdfReach;
-  const slope0 = bySlope ? slopeEnvelope(model, atoms, 4 / span, pairOut, env0, env0.noise, env0.phi) : null;
-  const cutoffEnd = (env: Envelope, sl: Envelope | null, T: number, target: number) =>
-    (sl ? slopeCutoff(env, sl, T, span, target) : undefined) ?? cutoffFor(env, wantPdf ? target : Infinity, target);
+  const bySlope = byParts === true && pointwise === true && !wantPdf && !pdfReach;
+  const byRange = byParts === "range";
+  const slopes = (beta: number, env: Probed) => {
+    if (!(bySlope || byRange)) return { c: null, p: null };
+    // the sampled |phi'| only where every point's bound is kept over the range: the quantile search's cut-off at the range's
+    // end alone would fall further with it, while its bound over the whole range (the search's bracket) grows (Poisson(1)-
+    // lognormal(0, 2.5) at 0.9999: 1.8e6 terms instead of 3.9e6, but a quantile bound of 24 instead of 1.2e-3)
+    const dp = byRange ? slopeValues(model, beta, env) : null;
+    const c = slopeEnvelope(model, atoms, beta, pairOut, env, env.noise, env.phi, "cdf", dp);
+    const p = byRange && c && (wantPdf || pdfReach) ? slopeEnvelope(model, atoms, beta, pairOut, env, env.noise, env.phi, "pdf", dp) : null;
+    return { c, p };
+  };
+  // the cut-off and the truncation it leaves (over the target: above 1 the target is not reached), for the cdf and, where
+  // asked, the density; "range": the supremum after undamping over [0, span] against e^U target, the period as used
+  const cutoffOf = (env: Envelope, sl: { c: Envelope | null; p: Envelope | null }, beta: number, U: number, T: number, target: number) => {
+    const Tp = periodOf(T);
+    const amp = target * Math.exp(U);
+    const pdfToo = wantPdf || pdfReach;
+    let tmax: number;
+    if (byRange && sl.c && (!pdfToo || sl.p)) {
+      const tc = slopeCutoffRange(env.tailCdf, env.t, sl.c, Tp, beta, span, amp) ?? cutoffFor(env, Infinity, target);
+      const tp = pdfToo ? (slopeCutoffRange(env.tailPdf, env.t, sl.p!, Tp, beta, span, amp) ?? cutoffFor(env, target, Infinity)) : 0;
+      tmax = Math.max(tc, tp);
+    } else tmax = (sl.c && bySlope ? slopeCutoff(env, sl.c, T, span, target) : undefined) ?? cutoffFor(env, wantPdf ? target : Infinity, target);
+    if (!Number.isFinite(tmax)) tmax = env.t[env.t.length - 1];
+    const tr = truncationAt(env, tmax);
+    let rc = tr.cdf / target;
+    let rp = tr.pdf / target;
+    if (byRange && sl.c) rc = Math.min(rc, slopeTruncationRange(env.tailCdf, env.t, sl.c, tmax, Tp, beta, span) / amp);
+    else if (sl.c && bySlope) rc = slopeTruncationAt(env, sl.c, tmax, T, span) / target;
+    if (byRange && sl.p) rp = Math.min(rp, slopeTruncationRange(env.tailPdf, env.t, sl.p, tmax, Tp, beta, span) / amp);
+    return { tmax, reach: Math.max(rc, pdfReach ? rp : 0) };
+  };
   let best = { U: 4, K: Infinity, bad: Infinity };
+  const sl0 = slopes(4 / span, env0);
   for (let U = 2; U <= 8; U += 0.5) {
     const beta = U / span;
     const T = periodFor(U);
     const target = tol / (8 * Math.exp(U));
-    let tmax = cutoffEnd(env0, slope0, T, target);
-    if (!Number.isFinite(tmax)) tmax = env0.t[env0.t.length - 1];
+    const { tmax, reach } = cutoffOf(env0, sl0, beta, U, T, target);
     const K = Math.max(16, (tmax * periodOf(T)) / (2 * Math.PI));
     // scale of the cdf sum: (1/pi) int |psi_c| / |beta - i t| up to tmax
     // and of the CF values' own noise, the same integral of the per-node noise (the probe's, largest first)
+    // ("range" with the density: its sum's scale (1/pi) int |psi_c| too, which the cut-off by parts no longer keeps small)
+    const pdfRound = byRange && (wantPdf || pdfReach);
     let S = (Mc * env0.t[0]) / (Math.PI * beta);
     let Z = (env0.noise[0] * env0.t[0]) / (Math.PI * beta);
+    let Sp = (Mc * env0.t[0]) / Math.PI;
+    let Zp = (env0.noise[0] * env0.t[0]) / Math.PI;
     for (let i = 0; i + 1 < env0.t.length && env0.t[i] < tmax; i++) {
-      const w = (env0.t[i + 1] - env0.t[i]) / (Math.PI * Math.max(env0.t[i], beta));
+      const dt = env0.t[i + 1] - env0.t[i];
+      const w = dt / (Math.PI * Math.max(env0.t[i], beta));
       S += env0.env[i] * w;
       Z += env0.noise[i] * w;
+      Sp += (env0.env[i] * dt) / Math.PI;
+      Zp += (env0.noise[i] * dt) / Math.PI;
     }
-    const round = Math.exp(U) * (sumAllowance(model, K, pointwise) * S + (pointwise ? Z : 0));
+    const allow = sumAllowance(model, K, pointwise);
+    const round = Math.exp(U) * Math.max(allow * S + (pointwise ? Z : 0), pdfRound ? allow * Sp + (pointwise ? Zp : 0) : 0);
     // a cut-off that cannot reach the truncation target (cutoffFor then returns its best) counts against the plan too
-    const tr = truncationAt(env0, tmax);
-    const reach = Math.max((slope0 ? slopeTruncationAt(env0, slope0, tmax, T, span) : tr.cdf) / target, pdfReach ? tr.pdf / target : 0);
     const bad = Math.max(round / (tol / 4), reach);
     // within the budget of terms first (a plan past it is refused by the setup): there the fewest terms whose rounding
     // is below tol / 4, else the smallest rounding (the bounds then state what is reached)
@@ -389,10 +227,11 @@ function planFor(
   const U = best.U;
   const beta = U / span;
   const env = probe(model, atoms, beta, pairOut);
-  const slope = bySlope ? slopeEnvelope(model, atoms, beta, pairOut, env, env.noise, env.phi) : null;
+  const sl = slopes(beta, env);
   const target = tol / (8 * Math.exp(U));
   const T = periodFor(U);
-  let tmax = cutoffEnd(env, slope, T, target);
-  if (!Number.isFinite(tmax)) tmax = env.t[env.t.length - 1];
-  return { plan: { beta, T, U, env, tmax, noise, pairOut, rounding: best.bad, slope }, K: (tmax * periodOf(T)) / (2 * Math.PI) };
+  const { tmax } = cutoffOf(env, sl, beta, U, T, target);
+  const slope = sl.c;
+  const slopePdf = sl.p;
+  return { plan: { beta, T, U, env, tmax, noise, pairOut, rounding: best.bad, slope, slopePdf }, K: (tmax * periodOf(T)) / (2 * Math.PI) };
 }

@@ -3,7 +3,7 @@ import type { GammaKernel } from "../damped-kernels";
 import type { SeverityKernel } from "../severity-kernel";
 import { kernelsDensityBeyond, kernelsMass } from "../damped-kernels";
 import { truncationFrom } from "./nodes";
-import { dampedPlan, exactStep, psiOf, sumAllowance, type DampedPlan, type Exactness } from "./damped-transform";
+import { dampedPlan, exactStep, psiOf, sumAllowance, type ByParts, type DampedPlan, type Exactness } from "./damped-transform";
 import { imageMoments, imageTail } from "./damped-images";
 import { scratch, type ScratchSlot } from "../damped-scratch";
 import { slopeNumerator } from "./damped-slope";
@@ -65,6 +65,9 @@ export interface DampedSolution {
    */
   truncTau: number;
   roundCdf: number;
+  /** the density sum's counterpart: at y at most truncTauPdf / |sin(h y / 2)| (Infinity without one); roundPdf = sumPdf - truncPdf */
+  truncTauPdf: number;
+  roundPdf: number;
   /** aliasing bounds after undamping: cdf (uniform), density, integrated cdf (its factor of (x - lo + T/(1 - q))) */
   /** the cdf's images taken out in closed form: added to every cdf value (0 when they are only bounded) */
   cdfShift: number;
@@ -121,10 +124,10 @@ export interface DampedOptions {
    */
   pointwise?: Exactness;
   /**
-   * the solution answers the cdf point by point, each value with its own bound (the quantile search): the plan it makes
-   * may cut the frequencies by the truncation bound by parts at the range's end (./damped-slope.ts; default false)
+   * the truncated sums may be bounded by parts (./damped-slope.ts; see ByParts, default false): true for the quantile
+   * search's pointwise cdf, "range" where every answered point of [lo, R] carries its own bound (grids, points)
    */
-  byParts?: boolean;
+  byParts?: ByParts;
   /** the integrated cdf's coefficients are wanted (expected shortfall); without them sumInt is Infinity (default true) */
   wantInt?: boolean;
   /**
@@ -215,11 +218,14 @@ export function dampedSetup(model: CompiledModel, atoms: Atom[], R: number, o: D
   const trunc = truncationFrom(env, tK);
   // per node: relative rounding of the CF and the accumulation, plus the absolute noise (atoms, numerical CF)
   const rel = sumAllowance(model, K, pointwise);
-  const sumPdf = trunc.pdf + (h / Math.PI) * (rel * absP + nP);
+  const roundPdf = (h / Math.PI) * (rel * absP + nP);
+  const sumPdf = trunc.pdf + roundPdf;
   const roundCdf = (h / Math.PI) * (rel * absC + nC);
   const sumCdf = trunc.cdf + roundCdf;
-  // the summation-by-parts numerator, for sums taken point by point at the exact nodes only
-  const truncTau = plan.slope && pointwise === true && o.period === undefined ? slopeNumerator(plan.slope, h, tK) : Infinity;
+  // the summation-by-parts numerators: the bound holds for the truncated series at every y, however its first K terms are
+  // summed (the plan keeps a slope envelope only where it chose the cut-off by it)
+  const truncTau = plan.slope ? slopeNumerator(plan.slope, h, tK) : Infinity;
+  const truncTauPdf = plan.slopePdf ? slopeNumerator(plan.slopePdf, h, tK) : Infinity;
   const sumInt = wantInt ? trunc.cdf / tK + (h / Math.PI) * (rel * absI + nI) : Infinity;
   const q = Math.exp(-beta * T);
   const geo = q / (1 - q);
@@ -261,7 +267,7 @@ export function dampedSetup(model: CompiledModel, atoms: Atom[], R: number, o: D
     );
   if (truncTau < trunc.cdf)
     notes.push(
-      `the truncated cdf sums bounded by summation by parts at each point (the steps of the remainder's coefficients, from the ` +
+      `the truncated ${truncTauPdf < trunc.pdf ? "cdf and density" : "cdf"} sums bounded by summation by parts at each point (the steps of the remainder's coefficients, from the ` +
         `severity transform's slope bound, over |sin(h y / 2)|), where below the envelope's bound`,
     );
   if (ks.length)
@@ -290,6 +296,8 @@ export function dampedSetup(model: CompiledModel, atoms: Atom[], R: number, o: D
     sumInt,
     truncTau,
     roundCdf,
+    truncTauPdf,
+    roundPdf,
     aliasCdf,
     cdfShift,
     aliasPdf: fTail * geo,

@@ -2,6 +2,7 @@ import type { Atom, CompiledModel } from "../types";
 import { DAMPED_BUDGET, KERNEL_BUDGET, dampedAt, dampedGrid, dampedPlan, dampedSetup, gridPeriod } from "./damped";
 import { atomMass, type Request } from "./shared";
 import { dampedPoints, pointsPlan } from "./damped-points";
+import { truncationSup } from "./damped-slope";
 import type { DensityResult, PointErrors } from "./types";
 
 /**
@@ -49,7 +50,7 @@ export function dampedDensity(
   let sol;
   const notes0: string[] = [];
   if (req.kind === "grid" && useFft) {
-    const plan = dampedPlan(model, atoms, R, tol, wantPdf, n, false, Infinity, (T) => gridPeriod(lo, req.from, req.dx, req.count, T).T);
+    const plan = dampedPlan(model, atoms, R, tol, wantPdf, n, false, Infinity, (T) => gridPeriod(lo, req.from, req.dx, req.count, T).T, wantPdf, "range");
     const g = gridPeriod(lo, req.from, req.dx, req.count, plan.T);
     sol = dampedSetup(model, atoms, R, { tolerance: tol, wantPdf, period: g.T, budget, plan, wantInt: false, transient: true });
     if (!sol) return null;
@@ -60,7 +61,7 @@ export function dampedDensity(
     method = "fft-damped";
     gridSize = g.N;
   } else {
-    sol = dampedSetup(model, atoms, R, { tolerance: tol, wantPdf, budget, points: n, pointwise: n < 32 ? true : "interpolated", wantInt: false, transient: true });
+    sol = dampedSetup(model, atoms, R, { tolerance: tol, wantPdf, budget, points: n, pointwise: n < 32 ? true : "interpolated", wantInt: false, transient: true, byParts: "range" });
     if (!sol) return null;
     // many points: the sums once on a fine FFT grid and interpolated, the interpolation error inside tol / 16
     const pp = n >= 32 ? pointsPlan(sol, n, tol / (16 * Math.exp(sol.beta * (R - lo))), wantPdf) : null;
@@ -80,6 +81,8 @@ export function dampedDensity(
     gridSize = pp ? pp.N : sol.K;
   }
   const amp = Math.exp(sol.beta * (R - lo));
+  // the truncation's largest share over the range (by parts where the solution has tau: then not at R alone)
+  const trunc = truncationSup(sol.truncCdf, sol.truncTau, sol.h, sol.beta, R - lo);
   // the cdf's and the sf's error are the continuous part's (the atoms are exact); clamping only moves toward the truth
   const pointError: PointErrors = {
     pdf: wantPdf ? ptf.map((e) => e + 4 * Number.EPSILON) : new Float64Array(n).fill(NaN),
@@ -108,8 +111,8 @@ export function dampedDensity(
       error: {
         // the images' bound is per point (at most each point's whole bound): never above the answer's
         aliasing: Math.min(sol.aliasCdf, errF),
-        truncation: amp * sol.truncCdf,
-        rounding: Math.max(errF - Math.min(sol.aliasCdf, errF) - amp * sol.truncCdf, 0) + 4 * Number.EPSILON,
+        truncation: trunc,
+        rounding: Math.max(errF - Math.min(sol.aliasCdf, errF) - trunc, 0) + 4 * Number.EPSILON,
         pdf: wantPdf ? errf + 4 * Number.EPSILON : NaN,
         cdf: errF + 4 * Number.EPSILON,
       },
