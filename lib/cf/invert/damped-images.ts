@@ -3,6 +3,7 @@ import type { GammaKernel } from "../damped-kernels";
 import type { SeverityKernel } from "../severity-kernel";
 import { incGamma } from "./incgamma";
 import { markovTail, momentBounds, type MomentBounds } from "./moment-tails";
+import { kernelsDensityBeyond } from "../damped-kernels";
 
 const EPS = Number.EPSILON;
 /** stated relative accuracy of incGamma's directly computed P or Q (as in damped-kernels.ts) */
@@ -67,6 +68,32 @@ export function imageTail(
     }
     return b * (1 + 8 * EPS);
   };
+}
+
+/**
+ * A bound on the inverted function's density beyond lo + T (its images are at most q / (1 - q) times it): for a density
+ * non-increasing there f_c(y) <= S_c(lo + (y - lo) / 2) / ((y - lo) / 2), with S_c(lo + z) <= P(X - lo > z) by Markov's
+ * inequality at its best order (./moment-tails.ts, where the model bounds its cumulants), by the first order E[X - lo] / z
+ * (where the mean exists) and by the continuous mass; plus the gamma kernels', the one-claim and the two-claim terms' own
+ * densities beyond lo + T
+ */
+export function densityBeyondWindow(model: CompiledModel, atoms: Atom[], T: number, pair: SeverityKernel["pair"] | null): number {
+  const lo = model.support[0];
+  const Mc = Math.max(1 - atoms.reduce((s, a) => s + a.p, 0), 0);
+  const mean = model.cumulants(1)[0];
+  const z = T / 2;
+  let S = Mc;
+  if (mean !== null && Number.isFinite(mean) && model.momentIndex > 1) S = Math.min(S, (Math.max(mean - lo, 0) / z) * (1 + 4 * EPS));
+  const mom = model.cumulantErrors ? momentBounds(model, lo, z) : null;
+  if (mom) S = Math.min(S, markovTail(mom, z, false));
+  const ks = model.dampedKernels ?? [];
+  const sev = model.dampedSeverity;
+  return (
+    (S / z) * (1 + 4 * EPS) +
+    (ks.length ? kernelsDensityBeyond(ks, lo + T) : 0) +
+    (sev ? sev.densityBeyond(lo + T) : 0) +
+    (pair ? pair.densityBeyond(lo + T) : 0)
+  );
 }
 
 /** ratio of the geometric steps of imageIntegralTail's Riemann sum (the first FINE_STEPS, then FAR_RATIO), and their number */

@@ -5,7 +5,7 @@ import { getFftPlan, nextPowerOfTwo } from "../fftplan";
 import { checkDeadline } from "../deadline";
 import { scratch } from "../damped-scratch";
 import { sumOnGrid } from "./fft";
-import { takenOutAt, twoProduct } from "./damped-eval";
+import { aliasCdfAt, takenOutAt, twoProduct } from "./damped-eval";
 import { FFT_REL } from "./damped-transform";
 import { truncationAtY } from "./damped-slope";
 import type { Nodes } from "./nodes";
@@ -254,6 +254,13 @@ export function dampedPoints(
   // with exact nodes the grid's points are exactly j 2 pi / (N h): each point's grid position is found in double-double,
   // so only the FFT's own rounding (fftC: FFT_REL, and the wrapped bins' sums) is left; without them, the setup's allowance
   const pos = new Float64Array(2);
+  // the cdf's image bound is non-increasing in y (aliasCdfAt): its values at 65 steps of [0, yMax] bound every point at or
+  // right of each step
+  let yTop = 0;
+  for (let i = 0; i < n; i++) if (xs[i] - s.lo > yTop) yTop = xs[i] - s.lo;
+  const yStep = yTop > 0 ? yTop / 64 : 1;
+  const alias = new Float64Array(65);
+  for (let k = 0; k <= 64; k++) alias[k] = aliasCdfAt(s, k * yStep);
   for (let i = 0; i < n; i++) {
     if ((i & 1023) === 0) checkDeadline("pointwise");
     const x = xs[i];
@@ -313,7 +320,7 @@ export function dampedPoints(
     const roundP = s.roundPdf + fftP;
     const wr = (3 * M + 4) * Number.EPSILON;
     const shift = 8 * Number.EPSILON * dx;
-    errF[i] = g * (truncationAtY(s.truncCdf, s.truncTau, s.h, y) + leb * roundC + interpC + wr * aC + shift * s.scaleP) + s.aliasCdf + kv.err;
+    errF[i] = g * (truncationAtY(s.truncCdf, s.truncTau, s.h, y) + leb * roundC + interpC + wr * aC + shift * s.scaleP) + alias[Math.min(64, Math.floor(y / yStep))] + kv.err;
     errf[i] = gP ? g * (truncationAtY(s.truncPdf, s.truncTauPdf, s.h, y) + leb * roundP + interpP + wr * aP + shift * plan.dP1) + s.aliasPdf + kv.errf : NaN;
   }
   return { fc, Fc, errF, errf };

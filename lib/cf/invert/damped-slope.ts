@@ -137,10 +137,21 @@ function truncationRange(uniform: Float64Array, slope: Envelope, i: number, T: n
   return truncationSup(uniform[i], h * slope.tailPdf[i] * (1 + 4 * EPS), h, beta, span);
 }
 
-/** the smallest probe frequency where truncationRange reaches `target` (after undamping; undefined if none) */
+/**
+ * a small probe frequency where truncationRange reaches `target` (after undamping; undefined if none): an octave at a
+ * time, then back probe by probe to the first one of that octave that reaches it (the density's uniform tail carries a
+ * noise allowance that grows with t, so the bound is not monotone along all the probes; any probe that reaches the
+ * target is a valid cut-off, the setup bounds the sums it keeps)
+ */
 export function slopeCutoffRange(uniform: Float64Array, t: Float64Array, slope: Envelope, T: number, beta: number, span: number, target: number): number | undefined {
-  for (let i = 0; i < t.length; i++) if (truncationRange(uniform, slope, i, T, beta, span) <= target) return t[i];
-  return undefined;
+  const ok = (i: number) => truncationRange(uniform, slope, i, T, beta, span) <= target;
+  for (let j = 0; j < t.length; j += 8) {
+    if (!ok(j)) continue;
+    let i = j;
+    while (i > 0 && i > j - 8 && ok(i - 1)) i--;
+    return t[i];
+  }
+  return ok(t.length - 1) ? t[t.length - 1] : undefined;
 }
 
 /** truncationRange for a cut-off tmax (the probe on its left: an over-estimate) */

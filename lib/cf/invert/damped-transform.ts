@@ -3,7 +3,7 @@ import type { Atom, CompiledModel } from "../types";
 import { kernelsMass } from "../damped-kernels";
 import { cutoffFor, truncationAt, type Envelope } from "./nodes";
 import { noiseOf, probe, slopeValues, type Probed } from "./damped-psi";
-import { imageMoments } from "./damped-images";
+import { densityBeyondWindow, imageMoments, imageTail } from "./damped-images";
 import { slopeCutoff, slopeCutoffRange, slopeEnvelope, slopeTruncationAt, slopeTruncationRange } from "./damped-slope";
 
 export { noiseOf, psiOf } from "./damped-psi";
@@ -143,12 +143,26 @@ function planFor(
   // with the cdf's images taken out (imageMoments) the aliasing is q second / T^2 instead of q Mc: beta T need only be
   // log(8 second / (T^2 tol)), solved by a few fixed-point steps (the period shrinks, which raises the need again)
   const im = imageMoments(model, atoms, pairOut);
+  // "range": every point takes its own image bound q / (1 - q) B(y + T) <= q / (1 - q) B(T) (./damped-images.ts imageTail:
+  // Markov's inequality at its best order and the closed forms' tails, far below second / T^2 for a tail like the
+  // lognormal's), so the need is B(T); and the density's images, at most q / (1 - q) times densityBeyondWindow, where it is answered
+  const sev = model.dampedSeverity ?? null;
+  const pairK = pairOut ? (sev?.pair ?? null) : null;
+  const need = (T: number) => {
+    let c = im!.second / (T * T);
+    if (byParts === "range") {
+      const B = imageTail(model, atoms, lo, model.dampedKernels ?? [], sev, pairK, T);
+      if (B) c = Math.min(c, B(T));
+      if (wantPdf || pdfReach) c = Math.max(c, densityBeyondWindow(model, atoms, T, pairK));
+    }
+    return c + 4 * EPS * Math.abs(im!.A);
+  };
   const periodFor = (U: number) => {
     let a = A;
     let T = Math.max((span * a) / U, span * 1.25);
     if (!im) return T;
     for (let it = 0; it < 4; it++) {
-      a = Math.min(A, Math.max(2, Math.log((8 * (im.second / (T * T) + 4 * EPS * Math.abs(im.A))) / tol)));
+      a = Math.min(A, Math.max(2, Math.log((8 * need(T)) / tol)));
       T = Math.max((span * a) / U, span * 1.25);
     }
     return T;

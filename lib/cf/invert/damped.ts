@@ -1,10 +1,10 @@
 import type { Atom, CompiledModel } from "../types";
 import type { GammaKernel } from "../damped-kernels";
 import type { SeverityKernel } from "../severity-kernel";
-import { kernelsDensityBeyond, kernelsMass } from "../damped-kernels";
+import { kernelsMass } from "../damped-kernels";
 import { truncationFrom } from "./nodes";
 import { dampedPlan, exactStep, psiOf, sumAllowance, type ByParts, type DampedPlan, type Exactness } from "./damped-transform";
-import { imageMoments, imageTail } from "./damped-images";
+import { densityBeyondWindow, imageMoments, imageTail } from "./damped-images";
 import { scratch, type ScratchSlot } from "../damped-scratch";
 import { slopeNumerator } from "./damped-slope";
 
@@ -229,15 +229,8 @@ export function dampedSetup(model: CompiledModel, atoms: Atom[], R: number, o: D
   const sumInt = wantInt ? trunc.cdf / tK + (h / Math.PI) * (rel * absI + nI) : Infinity;
   const q = Math.exp(-beta * T);
   const geo = q / (1 - q);
-  const mean = model.cumulants(1)[0];
-  // density beyond the window: f(y) <= S(lo + (y - lo)/2) / ((y - lo)/2) for a density non-increasing there,
-  // with Markov's S(z) <= E[X - lo] / (z - lo) when the mean exists
   const ks = model.dampedKernels ?? [];
-  const fTail =
-    (mean !== null && Number.isFinite(mean) && model.momentIndex > 1 ? (4 * Math.max(mean - lo, 0)) / (T * T) : (2 * Mc) / T) +
-    (ks.length ? kernelsDensityBeyond(ks, lo + T) : 0) +
-    (model.dampedSeverity ? model.dampedSeverity.densityBeyond(lo + T) : 0) +
-    (pair ? pair.densityBeyond(lo + T) : 0);
+  const fTail = densityBeyondWindow(model, atoms, T, pair);
   const Mr = Mc + kernelsMass(ks) + (model.dampedSeverity?.w ?? 0) + (pair?.w ?? 0);
   // the images of the cdf and of its integral taken out in closed form (their limits A, B and the second moment)
   const intImages = imageMoments(model, atoms, plan.pairOut);

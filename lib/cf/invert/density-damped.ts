@@ -3,6 +3,7 @@ import { DAMPED_BUDGET, KERNEL_BUDGET, dampedAt, dampedGrid, dampedPlan, dampedS
 import { atomMass, type Request } from "./shared";
 import { dampedPoints, pointsPlan } from "./damped-points";
 import { truncationSup } from "./damped-slope";
+import { aliasCdfAt } from "./damped-eval";
 import type { DensityResult, PointErrors } from "./types";
 
 /**
@@ -83,6 +84,8 @@ export function dampedDensity(
   const amp = Math.exp(sol.beta * (R - lo));
   // the truncation's largest share over the range (by parts where the solution has tau: then not at R alone)
   const trunc = truncationSup(sol.truncCdf, sol.truncTau, sol.h, sol.beta, R - lo);
+  // the images' bound per point is largest at lo (aliasCdfAt is non-increasing), and never above a point's whole bound
+  const alias = Math.min(aliasCdfAt(sol, 0), errF);
   // the cdf's and the sf's error are the continuous part's (the atoms are exact); clamping only moves toward the truth
   const pointError: PointErrors = {
     pdf: wantPdf ? ptf.map((e) => e + 4 * Number.EPSILON) : new Float64Array(n).fill(NaN),
@@ -109,10 +112,9 @@ export function dampedDensity(
       range: { from: lo, to: lo + sol.T },
       capturedMass: 1 - sol.aliasCdf,
       error: {
-        // the images' bound is per point (at most each point's whole bound): never above the answer's
-        aliasing: Math.min(sol.aliasCdf, errF),
+        aliasing: alias,
         truncation: trunc,
-        rounding: Math.max(errF - Math.min(sol.aliasCdf, errF) - trunc, 0) + 4 * Number.EPSILON,
+        rounding: Math.max(errF - alias - trunc, 0) + 4 * Number.EPSILON,
         pdf: wantPdf ? errf + 4 * Number.EPSILON : NaN,
         cdf: errF + 4 * Number.EPSILON,
       },
