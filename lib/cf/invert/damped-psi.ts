@@ -158,7 +158,7 @@ function subtractSeverity(k: SeverityKernel, beta: number, t: Float64Array, re: 
  * probing its chosen beta, often the same one; the atoms are the model's own, so the key is complete
  */
 /** a probe's envelope of |psi_c|, its per-node noise and, for a compound's remainder, |phi| of the severity (else null) */
-export type Probed = Envelope & { noise: Float64Array; phi: Float64Array | null; dphi?: Float64Array | null };
+export type Probed = Envelope & { noise: Float64Array; phi: Float64Array | null; dphi?: Float64Array; dphiFrom?: number };
 const PROBES = new WeakMap<CompiledModel, Map<string, Probed>>();
 const MAX_PROBES = 32;
 
@@ -213,14 +213,24 @@ function envelopeFrom(tp: Float64Array, pr: Float64Array, pi: Float64Array, nz: 
   return { ...envelopeOf(tp, mag, (t) => at.get(t) ?? nz[0]), noise: nz, phi };
 }
 
-/** |phi'| at the probe's frequencies where the severity gives it (SeverityKernel.slopeAt), kept with the probe */
-export function slopeValues(model: CompiledModel, beta: number, env: Probed): Float64Array | null {
-  if (env.dphi !== undefined) return env.dphi;
+/**
+ * |phi'| at the probe's frequencies from index `from` on where the severity gives it (SeverityKernel.slopeAt), its
+ * closed-form bound (SeverityKernel.slope) below; kept with the probe and extended downwards when a later plan asks
+ */
+export function slopeValues(model: CompiledModel, beta: number, env: Probed, from = 0): Float64Array | null {
   const sev = model.dampedSeverity;
-  env.dphi = null;
-  if (sev?.slopeAt && env.phi) {
-    env.dphi = new Float64Array(env.t.length);
-    sev.slopeAt(beta, env.t, env.dphi);
+  if (!sev?.slopeAt || !sev.slope || !env.phi) return null;
+  const n = env.t.length;
+  const lo = Math.max(0, Math.min(from, n));
+  if (!env.dphi) {
+    env.dphi = new Float64Array(n);
+    for (let i = 0; i < n; i++) env.dphi[i] = sev.slope(env.t[i]);
+    env.dphiFrom = n;
+  }
+  const done = env.dphiFrom ?? n;
+  if (lo < done) {
+    sev.slopeAt(beta, env.t.subarray(lo, done), env.dphi.subarray(lo, done));
+    env.dphiFrom = lo;
   }
   return env.dphi;
 }

@@ -183,7 +183,13 @@ function planFor(
   const byRange = byParts === "range";
   const slopes = (beta: number, env: Probed) => {
     if (!(bySlope || byRange)) return { c: null, p: null };
-    const dp = slopeValues(model, beta, env);
+    // the sampled |phi'| only from the first probe where the uniform cdf tail is within reach: below it no cut-off can meet the
+    // target ("range": the bound's supremum is at least the uniform tail; the quantile search's keeps it within END_SLACK
+    // times e^U target), and the closed-form slope bound serves there (the low frequencies' quadratures cost the most)
+    const reachable = tol * (byRange ? 1 : END_SLACK);
+    let from = 0;
+    while (from < env.t.length && env.tailCdf[from] > reachable) from++;
+    const dp = slopeValues(model, beta, env, Math.max(from - 8, 0));
     const c = slopeEnvelope(model, atoms, beta, pairOut, env, env.noise, env.phi, "cdf", dp);
     const p = byRange && c && (wantPdf || pdfReach) ? slopeEnvelope(model, atoms, beta, pairOut, env, env.noise, env.phi, "pdf", dp) : null;
     return { c, p };

@@ -59,6 +59,22 @@ export function dampedQuantiles(model: CompiledModel, atoms: Atom[], p: Float64A
     return split(x).above + Mc - v.Fc + v.errF;
   };
   let prev = lo;
+  // a compound exceeds x whenever one claim does: S(x) >= P(N >= 1) S_X(x), with S_X from the one-claim term's closed form
+  // (less its bound), so no range where that is still above the smallest tail level can end the search: the doublings
+  // start past it (each loose inversion costs two probes of the transform; Poisson(0.1)-lognormal(0, 1.5) at 0.999 started
+  // at 8 E X = 2.5, some six doublings short of where it ends)
+  const sev = model.dampedSeverity;
+  if (sev && sev.count && sev.w > 0 && lo === 0) {
+    const pn = Math.max(1 - atoms.reduce((s, a) => s + (a.x === 0 ? a.p : 0), 0), 0);
+    const below = (x: number) => {
+      const v = sev.at(x, false, false);
+      return pn * (Math.max(sev.w - v.F - v.err, 0) / sev.w) * (1 - 8 * Number.EPSILON) > tail;
+    };
+    for (let it = 0; it < 60 && below(R); it++) {
+      prev = R;
+      R = lo + GROWTH * (R - lo);
+    }
+  }
   for (let it = 0; it < 40; it++) {
     const probe = dampedSetup(model, atoms, R, { tolerance: loose, wantPdf: false, budget, pointwise: true, points: PROBE_POINTS, wantInt: false, transient: true, byParts: true });
     if (!probe) return null;
