@@ -137,7 +137,15 @@ export function compoundNode(N: Node, X: Node, discretise: DiscretiseOptions | n
     const tiny = p1 === 0 && pj && pj.p0 === 0 ? Math.abs(pj.a + pj.b) * 1e-323 : null;
     if ((p1 > 0 || tiny !== null) && N.countCgf && mean !== null && Number.isFinite(mean)) {
       const absError = (N.cfAbsError ?? 0) + (tiny ?? 0);
-      const count = { cgf: N.countCgf, logPgf: N.countLogPgf, slopeNear: N.countSlopeNear, mean, absError, relError: N.cfRelError ?? 0 };
+      const count = {
+        cgf: N.countCgf,
+        logPgf: N.countLogPgf,
+        slopeNear: N.countSlopeNear,
+        derivTail: countDerivTail(N.table(DERIV_TERMS), mean),
+        mean,
+        absError,
+        relError: N.cfRelError ?? 0,
+      };
       node.dampedSeverity = { cf: node.dampedLogCf, kernel: { ...X.severityKernel(p1, pAt(2)), count } };
     }
   }
@@ -339,3 +347,25 @@ function compoundTable(N: Node, X: Node, kind: { step: number }, maxLength: numb
   return null;
 }
 
+
+/** terms of the count's table summed by countDerivTail (past them s^{M-1} E N, negligible where the bound is used: s small) */
+const DERIV_TERMS = 32;
+
+/**
+ * sum_{n >= from} n p_n s^{n-1} <= sum_{from <= n < M} n p_n (1 + rel_n) s^{n-1} + s^{M-1} E N for 0 <= s <= 1 (every term
+ * non-negative; the table's p_n within pointRel relative, n p_n summed to at most E N past it), the powers and the sum
+ * within (M + 4) 2 eps; undefined without a table from a recursion with per-point bounds (the callers keep E N s^{from-1})
+ */
+function countDerivTail(t: LatticeTable | null, mean: number): ((s: number, from: number) => number) | undefined {
+  if (!t || t.step !== 1 || t.origin !== 0 || !t.pointRel || !(mean >= 0)) return undefined;
+  const M = t.p.length;
+  const w = new Float64Array(M);
+  for (let n = 0; n < M; n++) w[n] = n * t.p[n] * (1 + t.pointRel(n));
+  return (s: number, from: number) => {
+    if (!(s >= 0 && s <= 1)) return Infinity;
+    let sum = 0;
+    let pw = Math.pow(s, Math.max(from - 1, 0));
+    for (let n = Math.max(from, 1); n < M; n++, pw *= s) sum += w[n] * pw;
+    return (sum + Math.pow(s, Math.max(M - 1, 0)) * mean) * (1 + 2 * (M + 4) * Number.EPSILON);
+  };
+}

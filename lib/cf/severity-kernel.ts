@@ -34,6 +34,11 @@ export interface SeverityKernel {
     logPgf?(zr: Float64Array, zi: Float64Array, re: Float64Array, im: Float64Array): void;
     /** a bound on |P_N'(z)| over |z - z0| <= d given |P_N(z0)| (steep counts: far below E N where |P_N| is small) */
     slopeNear?(absPgf: number, d: number): number;
+    /**
+     * an upper bound on sum_{n >= from} n p_n s^{n-1} at 0 <= s <= 1, which bounds |sum_{n >= from} n p_n z^{n-1}| for
+     * |z| <= s (far below (sum_{n >= from} n p_n) s^{from - 1} for a count with little mass at from where s is small)
+     */
+    derivTail?(s: number, from: number): number;
     mean: number;
     absError: number;
     relError: number;

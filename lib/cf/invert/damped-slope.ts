@@ -9,7 +9,8 @@ const EPS = Number.EPSILON;
  * frequencies (as the envelope of |psi_c|: the samples' running maximum from the right), or null where it is not derived.
  * For a compound of a severity with a slope bound (SeverityKernel.slope) whose atoms all sit at lo = 0 (constant in t):
  * psi_c = P_N(phi) - p_0 - p_1 phi (- p_2 phi^2), so psi_c' = (P_N'(phi) - p_1 (- 2 p_2 phi)) phi' and, for |z| <= 1,
- * |P_N'(z) - p_1 - 2 p_2 z| = |sum_{n >= 3} n p_n z^{n-1}| <= (E N - p_1 - 2 p_2) |z|^2 (|z| once, without p_2: n >= 2);
+ * |P_N'(z) - p_1 - 2 p_2 z| = |sum_{n >= 3} n p_n z^{n-1}| <= (E N - p_1 - 2 p_2) |z|^2 (|z| once, without p_2: n >= 2),
+ * or the series itself at s = |z| where the count bounds it (count.derivTail: 3 p_3 |z|^2 and up, far below E N |z|^2);
  * |c'| <= |psi_c'| / |beta - i t| + |psi_c| / |beta - i t|^2, with |phi| + d for phi (d its values' bound) and
  * |psi_c| + its noise (`of` = "pdf": the density sum's coefficients psi_c, |psi_c'| alone). `env` is the plan's envelope of |psi_c| at this beta, `noise` its per-probe noise and `phi` |phi| at
  * its probe frequencies (the probe's own values, within their rounding), `dphi` |phi'| there where the severity gives it
@@ -36,7 +37,10 @@ export function slopeEnvelope(
   for (let i = 0; i < n; i++) {
     // |phi| within its values' bound, and never above the severity's closed-form bound where it has one
     const z = Math.min(1, phi[i] * (1 + 4 * EPS) + sev.cfAbsError, sev.absBound ? sev.absBound(tp[i]) : 1);
-    const dpsi = W * (pairOut ? z * z : z) * (dphi ? dphi[i] : sev.slope(tp[i]));
+    // sum_{n >= j + 1} n p_n z^{n-1} (j = 2 with the two-claim term out) within the count's own series where it has one
+    const zj = pairOut ? z * z : z;
+    const series = sev.count.derivTail ? sev.count.derivTail(z, pairOut ? 3 : 2) : Infinity;
+    const dpsi = Math.min(W * zj, series) * (dphi ? dphi[i] : sev.slope(tp[i]));
     const d2 = beta * beta + tp[i] * tp[i];
     // the density sum's coefficients are psi_c itself: |psi_c'| alone
     mag[i] = (of === "pdf" ? dpsi : dpsi / Math.sqrt(d2) + (env.env[i] + noise[i]) / d2) * (1 + 8 * EPS);

@@ -75,9 +75,11 @@ export function dampedQuantiles(model: CompiledModel, atoms: Atom[], p: Float64A
       R = lo + GROWTH * (R - lo);
     }
   }
+  let last: DampedSolution | null = null;
   for (let it = 0; it < 40; it++) {
     const probe = dampedSetup(model, atoms, R, { tolerance: loose, wantPdf: false, budget, pointwise: true, points: PROBE_POINTS, wantInt: false, transient: true, byParts: true });
     if (!probe) return null;
+    last = probe;
     if (sfBound(probe, R) < REACH * tail) {
       // the last step overshoots by up to GROWTH times, and the final inversion's terms grow with the range: the smallest R
       // past the previous one where the loose inversion still shows S + bound < REACH tail (bisection, 12 steps)
@@ -94,16 +96,20 @@ export function dampedQuantiles(model: CompiledModel, atoms: Atom[], p: Float64A
     prev = R;
     R = lo + GROWTH * (R - lo);
   }
+  // a lower bound on every level's quantile (less lo), from the last loose inversion: x with F + bound < p for the lowest
+  // level above the atom at lo lies left of its quantile. The plan keeps the bound within the target there as at R
+  // (the truncation by parts falls away from lo, and a low level sits near it: Poisson(10)-lognormal(0, 2) at 0.001)
+  const yLow = last ? lowestLevelBelow(last, atoms, p, lo, R, tol) : undefined;
   const points = POINTS_PER_LEVEL * p.length + 8;
   // no plan within the budget, or only one whose rounding cannot reach the tolerance: up to MAX_K terms before the
   // undamped route, which takes as many and resolves less. The cut-off comes from the truncation bound by parts where the
   // severity bounds its transform's slope (./damped-slope.ts): Poisson(1)-lognormal(0, 2.5) at 0.99, 0.995, 0.999 once
   // needed 13.1e6 terms (over MAX_K: the undamped route, 35-65% off), now 1.5e6, quantile bounds 1.4e-9 to 1.3e-8 relative
-  let plan = dampedPlan(model, atoms, R, tol, false, points, true, budget, undefined, undefined, true);
+  let plan = dampedPlan(model, atoms, R, tol, false, points, true, budget, undefined, undefined, true, yLow);
   let use = budget;
   const terms = (pl: DampedPlan) => (pl.tmax * pl.T) / (2 * Math.PI);
   if (budget === KERNEL_BUDGET && (plan.rounding > 1 || terms(plan) > budget)) {
-    const wide = dampedPlan(model, atoms, R, tol, false, points, true, MAX_K, undefined, undefined, true);
+    const wide = dampedPlan(model, atoms, R, tol, false, points, true, MAX_K, undefined, undefined, true, yLow);
     if (terms(wide) <= MAX_K && (wide.rounding <= 1 || terms(plan) > budget)) {
       plan = wide;
       use = MAX_K;
@@ -187,4 +193,28 @@ export function dampedExcess(s: DampedSolution, atoms: Atom[], mean: number, q: 
   for (const a of atoms) if (a.x <= q) atomInt += a.p * (q - a.x);
   const value = Math.max(mean - q + atomInt + v.Ic, 0);
   return { value, error: v.errI + 8 * Number.EPSILON * (Math.abs(mean) + Math.abs(q) + atomInt + v.Ic) };
+}
+
+/**
+ * y = x - lo of a point left of every level's quantile, by 24 bisection steps on a loose solution: F(x) + its bound < p_min
+ * there (p_min the lowest level above the mass at lo plus tol; lower ones are the atom's or within tol of it), so F < p_min;
+ * undefined where no such point is found right of lo
+ */
+function lowestLevelBelow(s: DampedSolution, atoms: Atom[], p: Float64Array, lo: number, R: number, tol: number): number | undefined {
+  const at0 = atoms.reduce((m, a) => m + (a.x <= lo ? a.p : 0), 0);
+  let pMin = Infinity;
+  for (let i = 0; i < p.length; i++) if (p[i] > at0 + tol && p[i] < 1) pMin = Math.min(pMin, p[i]);
+  if (!Number.isFinite(pMin)) return undefined;
+  const left = (x: number) => {
+    const v = dampedAt(s, x, false, false);
+    return atomMass(atoms, x).below + v.Fc + v.errF < pMin;
+  };
+  let a = lo;
+  let b = R;
+  for (let j = 0; j < 24; j++) {
+    const mid = 0.5 * (a + b);
+    if (left(mid)) a = mid;
+    else b = mid;
+  }
+  return a > lo && left(a) ? a - lo : undefined;
 }
