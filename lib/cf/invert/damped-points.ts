@@ -18,7 +18,7 @@ function modulus(x: number, y: number): number {
 
 /** interpolation stencils: M equispaced grid values around the point (M/2 on each side); the plan takes the M that
  * needs the smallest FFT (a wider stencil lets the grid step approach the sums' Nyquist step pi / t_max) */
-const STENCILS = [10, 16, 24, 32] as const;
+const STENCILS = [10, 16, 24, 32, 48, 64] as const;
 /** largest FFT the interpolation route takes (above it the pointwise sums are used) */
 const MAX_N = 1 << 22;
 
@@ -37,6 +37,14 @@ function nodePoly(M: number): number {
   return 1.01 * best;
 }
 const NODE_POLY = STENCILS.map(nodePoly);
+/** 1 / prod_{b != a} (a - b) = (-1)^{M-1-a} / (a! (M-1-a)!) for each stencil width (its factorials within M eps relative) */
+const INV_DEN: Record<number, Float64Array> = {};
+for (const M of STENCILS) {
+  const f = new Float64Array(M);
+  f[0] = 1;
+  for (let j = 1; j < M; j++) f[j] = f[j - 1] * j;
+  INV_DEN[M] = Float64Array.from({ length: M }, (_, a) => ((M - 1 - a) % 2 === 0 ? 1 : -1) / (f[a] * f[M - 1 - a]));
+}
 const FACT = STENCILS.map((M) => {
   let f = 1;
   for (let j = 2; j <= M; j++) f *= j;
@@ -70,6 +78,8 @@ export function pointsPlan(s: DampedSolution, n: number, target: number, wantPdf
     pw[1] = r16;
     pw[2] = r16 * r8;
     pw[3] = r16 * r16;
+    pw[4] = pw[3] * r16;
+    pw[5] = pw[3] * pw[3];
     const c = modulus(s.cRe[k], s.cIm[k]);
     const a = wantPdf ? modulus(s.pRe[k], s.pIm[k]) : 0;
     for (let m = 0; m < L; m++) {
@@ -95,7 +105,7 @@ export function pointsPlan(s: DampedSolution, n: number, target: number, wantPdf
     const N = nextPowerOfTwo(Math.max(2 * M, Math.ceil(s.T / dx)));
     if (N > MAX_N) continue;
     // one FFT serves both sums (packedSums)
-    const cost = 5 * N * Math.log2(N) + passes * s.K + n * M * (M + passes);
+    const cost = 5 * N * Math.log2(N) + passes * s.K + n * M * (4 + passes);
     if (cost < bestCost) {
       bestCost = cost;
       best = { N, M, nodePoly: NODE_POLY[m], fact: FACT[m], tau, dC: dC[m] * f * widen, dP: dP[m] * f * widen, dP1: dP1 * widen };
@@ -280,14 +290,20 @@ export function dampedPoints(
     const j0 = j - M / 2 + 1;
     // rho = u - j0: the point's position on the stencil j0 .. j0 + M - 1
     const rho = r + (M / 2 - 1);
-    // Lagrange weights on the stencil at rho, and the node polynomial at rho
+    // Lagrange weights on the stencil at rho, l_a = prod_{b != a} (rho - b) / (a - b) = node(rho) c_a / (rho - a) with
+    // c_a = 1 / prod_{b != a} (a - b) (each weight within (2 M + 4) eps relative: the product, c_a's factorials, the
+    // division and the product), e_a where rho is a node; and the node polynomial at rho
     let node = 1;
+    let signed = 1;
+    let onNode = -1;
     for (let a = 0; a < M; a++) {
-      let l = 1;
-      for (let b = 0; b < M; b++) if (b !== a) l *= (rho - b) / (a - b);
-      w[a] = l;
-      node *= Math.abs(rho - a);
+      const d = rho - a;
+      if (d === 0) onNode = a;
+      signed *= d;
+      node *= Math.abs(d);
     }
+    const ca = INV_DEN[M];
+    for (let a = 0; a < M; a++) w[a] = onNode >= 0 ? (a === onNode ? 1 : 0) : (signed * ca[a]) / (rho - a);
     let vC = 0;
     let vP = 0;
     let aC = 0;

@@ -206,11 +206,8 @@ function probeAt(model: CompiledModel, atoms: Atom[], beta: number, pairOut: boo
 function envelopeFrom(tp: Float64Array, pr: Float64Array, pi: Float64Array, nz: Float64Array, phi: Float64Array | null): Probed {
   const mag = new Float64Array(tp.length);
   for (let i = 0; i < tp.length; i++) mag[i] = Math.hypot(pr[i], pi[i]);
-  // values below the rounding of the atom subtraction and the CF's own error are not resolved (envelopeOf asks
-  // for the floor at each probe frequency in turn)
-  const at = new Map<number, number>();
-  for (let i = 0; i < tp.length; i++) at.set(tp[i], nz[i]);
-  return { ...envelopeOf(tp, mag, (t) => at.get(t) ?? nz[0]), noise: nz, phi };
+  // values below the rounding of the atom subtraction and the CF's own error are not resolved (the floor at each probe)
+  return { ...envelopeOf(tp, mag, (_t, i) => nz[i]), noise: nz, phi };
 }
 
 /**

@@ -132,35 +132,44 @@ export function slopeTruncationAt(env: Envelope, slope: Envelope, tmax: number, 
 }
 
 /**
- * The truncation over the whole range [0, span] after undamping, for a cut-off at probe i: sup_y e^{beta y} times the
- * smaller of the envelope's uniform tail (`uniform`: the cdf's or the density's) and tau / |sin(h y / 2)| (truncationSup),
- * with tau from the slope envelope's tail at that probe; for sums answered at every point of the range (grids, points)
+ * The truncation over the whole range [0, span] after undamping, for a cut-off t: sup_y e^{beta y} times the smaller of
+ * the envelope's uniform tail (the cdf's or the density's, `of`) and tau / |sin(h y / 2)| (truncationSup), with tau from
+ * the slope envelope's tail, both interpolated to t as the setup does (truncationFrom); for sums answered at every point
+ * of the range (grids, points)
  */
-function truncationRange(uniform: Float64Array, slope: Envelope, i: number, T: number, beta: number, span: number): number {
+function truncationRange(env: Envelope, of: "cdf" | "pdf", slope: Envelope, t: number, T: number, beta: number, span: number): number {
   const h = (2 * Math.PI) / T;
-  return truncationSup(uniform[i], h * slope.tailPdf[i] * (1 + 4 * EPS), h, beta, span);
+  return truncationSup(truncationFrom(env, t)[of], h * truncationFrom(slope, t).pdf * (1 + 4 * EPS), h, beta, span);
 }
 
 /**
- * a small probe frequency where truncationRange reaches `target` (after undamping; undefined if none): an octave at a
- * time, then back probe by probe to the first one of that octave that reaches it (the density's uniform tail carries a
- * noise allowance that grows with t, so the bound is not monotone along all the probes; any probe that reaches the
- * target is a valid cut-off, the setup bounds the sums it keeps)
+ * a small cut-off where truncationRange reaches `target` (after undamping; undefined if none): an octave of probes at a
+ * time, back probe by probe to the first one of that octave that reaches it (the density's uniform tail carries a noise
+ * allowance that grows with t, so the bound is not monotone along all the probes; any cut-off that reaches the target
+ * is valid, the setup bounds the sums it keeps), then by bisection between that probe and the one before (the probes
+ * are 9% apart)
  */
-export function slopeCutoffRange(uniform: Float64Array, t: Float64Array, slope: Envelope, T: number, beta: number, span: number, target: number): number | undefined {
-  const ok = (i: number) => truncationRange(uniform, slope, i, T, beta, span) <= target;
+export function slopeCutoffRange(env: Envelope, of: "cdf" | "pdf", slope: Envelope, T: number, beta: number, span: number, target: number): number | undefined {
+  const t = env.t;
+  const ok = (x: number) => truncationRange(env, of, slope, x, T, beta, span) <= target;
   for (let j = 0; j < t.length; j += 8) {
-    if (!ok(j)) continue;
+    if (!ok(t[j])) continue;
     let i = j;
-    while (i > 0 && i > j - 8 && ok(i - 1)) i--;
-    return t[i];
+    while (i > 0 && i > j - 8 && ok(t[i - 1])) i--;
+    if (i === 0) return t[0];
+    let a = t[i - 1];
+    let b = t[i];
+    for (let k = 0; k < 8; k++) {
+      const m = 0.5 * (a + b);
+      if (ok(m)) b = m;
+      else a = m;
+    }
+    return b;
   }
-  return ok(t.length - 1) ? t[t.length - 1] : undefined;
+  return ok(t[t.length - 1]) ? t[t.length - 1] : undefined;
 }
 
-/** truncationRange for a cut-off tmax (the probe on its left: an over-estimate) */
-export function slopeTruncationRange(uniform: Float64Array, t: Float64Array, slope: Envelope, tmax: number, T: number, beta: number, span: number): number {
-  let i = 0;
-  while (i + 1 < t.length && t[i + 1] <= tmax) i++;
-  return truncationRange(uniform, slope, i, T, beta, span);
+/** truncationRange at a cut-off tmax */
+export function slopeTruncationRange(env: Envelope, of: "cdf" | "pdf", slope: Envelope, tmax: number, T: number, beta: number, span: number): number {
+  return truncationRange(env, of, slope, tmax, T, beta, span);
 }

@@ -120,14 +120,14 @@ export function probeEnvelope(part: ContinuousPart, scale: number): Envelope {
   return { ...bound, decay: sampled.decay, decayClean: sampled.decayClean };
 }
 
-/** Envelope from sampled magnitudes |phi(t_i)| on the geometric probe (PER_OCTAVE per octave), values below nf(t) as 0. */
-export function envelopeOf(t: Float64Array, mag: Float64Array, nf: (t: number) => number): Envelope {
+/** Envelope from sampled magnitudes |phi(t_i)| on the geometric probe (PER_OCTAVE per octave), values below nf(t_i, i) as 0. */
+export function envelopeOf(t: Float64Array, mag: Float64Array, nf: (t: number, i: number) => number): Envelope {
   const n = t.length;
   const env = new Float64Array(n);
   let run = 0;
   for (let i = n - 1; i >= 0; i--) {
     const a = mag[i];
-    const floor = nf(t[i]);
+    const floor = nf(t[i], i);
     const v = Number.isFinite(a) ? (a > floor ? a : 0) : Infinity;
     if (v > run) run = v;
     env[i] = run;
@@ -144,7 +144,7 @@ export function envelopeOf(t: Float64Array, mag: Float64Array, nf: (t: number) =
     sp = decay > 1.05 ? (last * t[n - 1]) / (decay - 1) : Infinity;
     sc = decay > 0.05 ? last / decay : Infinity;
   }
-  const lastFloor = nf(t[n - 1]);
+  const lastFloor = nf(t[n - 1], n - 1);
   tailPdf[n - 1] = (sp + lastFloor * t[n - 1]) / Math.PI;
   tailCdf[n - 1] = (sc + lastFloor) / Math.PI;
   const lnStep = Math.log(STEP);
@@ -152,7 +152,7 @@ export function envelopeOf(t: Float64Array, mag: Float64Array, nf: (t: number) =
     sp += env[i] * (t[i + 1] - t[i]);
     sc += env[i] * lnStep;
     // allowance for sub-floor values over the next octave
-    const floor = nf(t[i]);
+    const floor = nf(t[i], i);
     tailPdf[i] = (sp + floor * t[i]) / Math.PI;
     tailCdf[i] = (sc + floor) / Math.PI;
   }
@@ -160,7 +160,7 @@ export function envelopeOf(t: Float64Array, mag: Float64Array, nf: (t: number) =
   let decayClean = decay;
   const span = 6 * PER_OCTAVE;
   for (let i = n - 1; i >= span; i--) {
-    if (env[i] > Math.max(1e-10 * env[0], 1e6 * nf(t[i]), 1e-290)) {
+    if (env[i] > Math.max(1e-10 * env[0], 1e6 * nf(t[i], i), 1e-290)) {
       decayClean = env[i - span] > 0 ? Math.log2(env[i - span] / env[i]) / 6 : 0;
       break;
     }
