@@ -192,10 +192,24 @@ export function cutoffFor(e: Envelope, targetPdf: number, targetCdf: number): nu
   return e.t[best];
 }
 
+/** the last probe index i with t[i + 1] > T (0 when T is below t[1]): t is increasing, so by bisection */
+function probeLeftOf(t: Float64Array, T: number): number {
+  // invariant: t[a] <= T or a = 0; b = n - 1 or t[b] > T
+  let a = 0;
+  let b = t.length - 1;
+  if (Number.isNaN(T)) return 0;
+  if (!(t[b] > T)) return b;
+  while (b - a > 1) {
+    const m = (a + b) >> 1;
+    if (t[m] <= T) a = m;
+    else b = m;
+  }
+  return a;
+}
+
 /** Truncation bounds at an arbitrary cut-off T (envelope tail, interpolated to the probe on the left: an over-estimate). */
 export function truncationAt(e: Envelope, T: number): { pdf: number; cdf: number } {
-  let i = 0;
-  while (i + 1 < e.t.length && e.t[i + 1] <= T) i++;
+  const i = probeLeftOf(e.t, T);
   return { pdf: e.tailPdf[i], cdf: e.tailCdf[i] };
 }
 
@@ -207,8 +221,7 @@ export function truncationAt(e: Envelope, T: number): { pdf: number; cdf: number
  */
 export function truncationFrom(e: Envelope, T: number): { pdf: number; cdf: number } {
   if (!(T > e.t[0])) return { pdf: e.tailPdf[0], cdf: e.tailCdf[0] };
-  let i = 0;
-  while (i + 1 < e.t.length && e.t[i + 1] <= T) i++;
+  const i = probeLeftOf(e.t, T);
   // past the last probe the tail is the fitted power law's, not a step: kept whole
   if (i + 1 >= e.t.length) return { pdf: e.tailPdf[i], cdf: e.tailCdf[i] };
   const v = e.env[i];
