@@ -249,9 +249,10 @@ export function dampedPoints(
     const jHi = Math.floor(yMax / dx) + M / 2 + 2;
     const sc = packedSums(s, N, gC, gP, jHi, M);
     const r = FFT_REL + (2 * Math.ceil(s.K / N) + 6) * Number.EPSILON;
-    // the cdf alone: what the transform rounds beyond the setup's allowance s.rel, which sumCdf already charges to scaleC
-    fftC = gP ? r * (s.scaleC + sc * s.scaleP) : Math.max(0, r - s.rel) * s.scaleC;
-    fftP = gP ? r * (s.scaleC / sc + s.scaleP) : 0;
+    // what the transform rounds beyond the setup's allowance s.rel, which the sums' bounds already charge to their own
+    // scale (scaleC, scaleP); packed, each sum's outputs also carry the other's inputs (times the scale)
+    fftC = Math.max(0, r - s.rel) * s.scaleC + (gP ? r * sc * s.scaleP : 0);
+    fftP = gP ? (r * s.scaleC) / sc + Math.max(0, r - s.rel) * s.scaleP : 0;
   } else sumOnGrid(mk(s.cRe, s.cIm), s.lo, s.lo, N, 0, N, gC, null, null);
   const n = xs.length;
   const fc = new Float64Array(n);
