@@ -146,16 +146,20 @@ function truncationRange(env: Envelope, of: "cdf" | "pdf", slope: Envelope, t: n
  * a small cut-off where truncationRange reaches `target` (after undamping; undefined if none): an octave of probes at a
  * time, back probe by probe to the first one of that octave that reaches it (the density's uniform tail carries a noise
  * allowance that grows with t, so the bound is not monotone along all the probes; any cut-off that reaches the target
- * is valid, the setup bounds the sums it keeps), then by bisection between that probe and the one before (the probes
- * are 9% apart)
+ * is valid, the setup bounds the sums it keeps), from the first probe whose uniform tail is within the target (the bound
+ * is never below it), then by bisection between that probe and the one before (the probes are 9% apart)
  */
 export function slopeCutoffRange(env: Envelope, of: "cdf" | "pdf", slope: Envelope, T: number, beta: number, span: number, target: number): number | undefined {
   const t = env.t;
   const ok = (x: number) => truncationRange(env, of, slope, x, T, beta, span) <= target;
-  for (let j = 0; j < t.length; j += 8) {
+  // the bound is at least the uniform tail itself (truncationSup never falls below it): no probe above the target can do
+  const tail = of === "cdf" ? env.tailCdf : env.tailPdf;
+  let i0 = 0;
+  while (i0 < t.length && tail[i0] > target) i0++;
+  for (let j = i0; j < t.length; j += 8) {
     if (!ok(t[j])) continue;
     let i = j;
-    while (i > 0 && i > j - 8 && ok(t[i - 1])) i--;
+    while (i > i0 && i > j - 8 && ok(t[i - 1])) i--;
     if (i === 0) return t[0];
     let a = t[i - 1];
     let b = t[i];
