@@ -206,21 +206,30 @@ function heavyQuantiles(model: CompiledModel, atoms: Atom[], w: number, p: Float
   const T0 = Math.max(64 * shape.spread, 8 * ext);
   // the combined scale overstates the heaviest tail's constant when the other terms are wide: the levels of the
   // heaviest-tailed term's own law (plus a few spreads for the rest) give a shorter first period. The answer is kept
-  // only when every quantile lies inside an eighth of that period, as the estimate above intends; else it is redone.
+  // only when every quantile lies inside an eighth of that period, as the estimate above intends (checked before the
+  // expected shortfall is computed); else once more with the period from the quantiles just found (a quarter to spare),
+  // and failing that with the estimate above.
   const near = tailTermExtent(model, atoms, p, shape.center, shape.spread);
   if (near !== null) {
-    const T1 = Math.max(64 * shape.spread, 8 * near);
-    if (T1 < T0 / 2) {
-      const r = heavyQuantilesAt(model, atoms, w, p, o, T1, shape);
-      let inside = true;
-      for (let i = 0; i < p.length; i++) {
-        if (p[i] <= 0 || p[i] >= 1) continue;
-        if (!(Math.abs(r.x[i] - shape.center) <= T1 / 8 && Number.isFinite(r.diagnostics.quantileError[i]))) inside = false;
-      }
-      if (inside) return r;
+    let T1 = Math.max(64 * shape.spread, 8 * near);
+    for (let k = 0; k < 2 && T1 < T0 / 2; k++) {
+      let far = 0;
+      const inside = (x: Float64Array, err: Float64Array) => {
+        let ok = true;
+        for (let i = 0; i < p.length; i++) {
+          if (p[i] <= 0 || p[i] >= 1) continue;
+          far = Math.max(far, Math.abs(x[i] - shape.center));
+          if (!(Math.abs(x[i] - shape.center) <= T1 / 8 && Number.isFinite(err[i]))) ok = false;
+        }
+        return ok;
+      };
+      const r = heavyQuantilesAt(model, atoms, w, p, o, T1, shape, inside);
+      if (r) return r;
+      if (!Number.isFinite(far)) break;
+      T1 = Math.max(2 * T1, 10 * far);
     }
   }
-  return heavyQuantilesAt(model, atoms, w, p, o, T0, shape);
+  return heavyQuantilesAt(model, atoms, w, p, o, T0, shape)!;
 }
 
 /**
@@ -273,7 +282,8 @@ function heavyQuantilesAt(
   o: QuantileOptions,
   T0: number,
   shape: ReturnType<typeof lawShape>,
-): QuantileResult {
+  keep?: (x: Float64Array, err: Float64Array) => boolean,
+): QuantileResult | null {
   const tol = o.tolerance ?? 1e-10;
   const notes: string[] = [];
   const scratch: LadderScratch = { pdf: new Float64Array(1), cdf: new Float64Array(1), sf: new Float64Array(1), one: new Float64Array(1) };
@@ -327,6 +337,8 @@ function heavyQuantilesAt(
       err[i] = Math.min(err[i], localBracket(ev, lad, scratch, w, xs[i], pi));
     }
   }
+  // a period the caller does not keep: no expected shortfall spent on it
+  if (keep && !keep(xs, err)) return null;
   const lastErr = ev.errCdf;
   const terms = ev.terms;
   const range = { from: shape.center - T0 / 2, to: shape.center + T0 / 2 };
