@@ -158,6 +158,19 @@ describe("mixtures answered from their components", () => {
     c.done();
   });
 
+  it("compound Poisson(3)- and Poisson(12)-exponential(1): the upper levels lie past the first component's range, which grows once to their brackets (Erlang mixtures, Loss Models, sec. 9.3)", () => {
+    const c = new Checker();
+    const cp = (lambda: number) => ({ compound: { count: { family: "poisson", lambda }, each: { family: "exponential", rate: 1 } } });
+    const model = { mix: [{ weight: 0.5, of: cp(3) }, { weight: 0.5, of: cp(12) }] } as Model;
+    const ref = mixRef([
+      { w: 0.5, r: cpExp(3) },
+      { w: 0.5, r: cpExp(12) },
+    ]);
+    // the atom 0.5 (e^{-3} + e^{-12}) = 0.0249 at 0 holds levels 0.001 and 0.01
+    checkLaw(c, "CP3+CP12", model, ref, [0.5, 3, 10, 25, 45], 0, 400, [0.001, 0.01]);
+    c.done();
+  });
+
   it("a scaled and shifted mixture is the mixture of the scaled and shifted components (common practice)", () => {
     const c = new Checker();
     const inner = {

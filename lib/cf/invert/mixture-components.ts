@@ -33,6 +33,18 @@ interface Component {
   terms(): number;
   notes(): string[];
   method: string;
+  /**
+   * A component with a range (the damped route): deferred(true) answers points beyond it from the monotone bound
+   * S(x) in [0, S(R)] without growing the range, and remembers the farthest such point where the tail mattered (beyond()),
+   * so that the range is grown once, to what the answers need (cover), instead of to twice every probe a search's bracket
+   * walk throws past it.
+   */
+  deferred?(on: boolean): void;
+  beyond?(): number;
+  reach?(): number;
+  /** x lies past the range and the component's tail there is above its share of the target */
+  needs?(x: number): boolean;
+  cover?(x: number): boolean;
 }
 
 function directComponent(w: number, m: CompiledModel): Component {
@@ -81,29 +93,39 @@ function dampedComponent(w: number, m: CompiledModel, R0: number, tol: number, t
   };
   // beyond the range: the range grows (at most 8 times) when the tail left there matters, otherwise the
   // monotone bound S(x) in [0, S(R)] answers
-  const grow = (x: number): boolean => {
+  const grow = (x: number, factor = 2): boolean => {
     if (grows >= 8) return false;
-    const next = setup(lo + 2 * (x - lo));
+    const next = setup(lo + factor * (x - lo));
     if (!next) return false;
     grows++;
     s = next;
-    R = lo + 2 * (x - lo);
+    R = lo + factor * (x - lo);
     return true;
   };
+  let defer = false;
+  let far = -Infinity;
   // beyond the range, the law's moments bound its tail (Markov at the best order, ./moment-tails.ts): a light tail is
   // then answered without growing the range, where the inversion's own bound at R (which grows toward the range's end)
   // would ask for a setup two to four times as long
   const moments = (x: number) => (Number.isFinite(lo) ? momentBounds(m, lo, x - lo) : null);
-  const at = (x: number): Value => {
-    if (x < lo) return { F: 0, S: 1, f: 0, eF: 0, eS: 0 };
-    if (x <= R) return inside(x);
+  // the bound on S(x) past the range: S(R) and its bound, or the moments' where that is smaller
+  const tailBound = (x: number): number => {
     const r = inside(R);
     let sR = Math.max(r.S, 0) + r.eS;
     if (w * sR > target) {
       const mb = moments(x);
       if (mb) sR = Math.min(sR, markovTail(mb, x - lo, false));
     }
-    if (w * sR > target && grow(x)) return inside(x);
+    return sR;
+  };
+  const at = (x: number): Value => {
+    if (x < lo) return { F: 0, S: 1, f: 0, eF: 0, eS: 0 };
+    if (x <= R) return inside(x);
+    const sR = tailBound(x);
+    if (w * sR > target) {
+      if (defer) far = Math.max(far, x);
+      else if (grow(x)) return inside(x);
+    }
     return { F: 1 - sR / 2, S: sR / 2, f: 0, eF: sR / 2, eS: sR / 2 };
   };
   return {
@@ -124,6 +146,15 @@ function dampedComponent(w: number, m: CompiledModel, R0: number, tol: number, t
     terms: () => s!.K,
     notes: () => s!.notes,
     method: "gil-pelaez-damped",
+    deferred(on) {
+      defer = on;
+      if (on) far = -Infinity;
+    },
+    beyond: () => far,
+    reach: () => R,
+    needs: (x) => x > R && w * tailBound(x) > target,
+    // x at four fifths of the range: the sums' bound grows toward the range's end, where the plan meets the tolerance
+    cover: (x) => x <= R || grow(x, 1.25),
   };
 }
 

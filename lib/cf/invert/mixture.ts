@@ -63,7 +63,7 @@ function leftEnd(law: DirectLaw, r: { x: number; err: number }, p: number, sprea
 }
 
 /** The law with every point it was asked kept (each costs every component's evaluation), and those points. */
-function remembering(law: DirectLaw): { law: DirectLaw; seen: () => number[] } {
+function remembering(law: DirectLaw): { law: DirectLaw; seen: () => number[]; forget: (drop: (x: number) => boolean) => void } {
   const memo = new Map<number, DirectPoint>();
   return {
     law: {
@@ -78,6 +78,9 @@ function remembering(law: DirectLaw): { law: DirectLaw; seen: () => number[] } {
       },
     },
     seen: () => [...memo.keys()],
+    forget(drop) {
+      for (const x of [...memo.keys()]) if (drop(x)) memo.delete(x);
+    },
   };
 }
 
@@ -95,42 +98,92 @@ export function mixtureQuantiles(model: CompiledModel, p: Float64Array, o: Quant
   }
   const cs = components(leaves, tol, tail, lowTail);
   if (!cs) return null;
-  const { law, seen } = remembering(mixtureLaw(model, cs));
+  const { law, seen, forget } = remembering(mixtureLaw(model, cs));
   const atoms = mixtureAtoms(cs);
   const pt = directPoint();
   const n = p.length;
   const x = new Float64Array(n);
   const err = new Float64Array(n);
-  let cdfError = 0;
-  let flat = false;
+  // per level: answered by an atom (its cdf bound is the one at the atom), on a flat stretch
+  const atAtom = new Uint8Array(n);
+  const onFlat = new Uint8Array(n);
   // levels in increasing order: each search starts from the points the earlier ones evaluated (the last answer below
   // it, the nearest point above)
   const order = Array.from(p.keys()).sort((u, v) => p[u] - p[v]);
-  for (const i of order) {
+  // final: the stretch's left end too (leftEnd); a first search, whose values past a range may be wide, leaves it out
+  const solve = (i: number, final: boolean) => {
     checkDeadline("mixture-quantile");
     const pi = p[i];
     // a level inside an atom's jump: the atom, exactly (the jump's ends clear of the bounds)
-    let hit = false;
     for (const a of atoms) {
       law.at(a.x, pt);
       if (pt.cdf - a.p + pt.cdfErr < pi && pi <= pt.cdf - pt.cdfErr) {
         x[i] = a.x;
         err[i] = 0;
-        cdfError = Math.max(cdfError, pt.cdfErr);
-        hit = true;
-        break;
+        atAtom[i] = 1;
+        return;
       }
     }
-    if (hit) continue;
-    const r = leftEnd(law, directQuantile(law, pi, seen()), pi, model.scale, pt);
-    if (r.flat) flat = true;
+    const q = directQuantile(law, pi, seen());
+    const r = final ? leftEnd(law, q, pi, model.scale, pt) : { ...q, flat: false };
+    onFlat[i] = r.flat ? 1 : 0;
     x[i] = r.x;
     err[i] = r.err;
-    if (Number.isFinite(r.x)) {
-      law.at(r.x, pt);
-      cdfError = Math.max(cdfError, pt.cdfErr, pt.sfErr);
+  };
+  // first with the ranged components deferring their growth: a point past a range is answered from the monotone
+  // bound there (wide where the tail matters, so the search cannot settle on it); then each such range grows once to
+  // cover the answers' brackets that need its tail (or, where a level found none, the farthest point that did), and
+  // those levels are searched again: the points they evaluated inside their first brackets past an old range's end
+  // are evaluated afresh, the others (honest, and decided beyond their bounds) still bracket the roots
+  for (const c of cs) c.deferred?.(true);
+  for (const i of order) solve(i, false);
+  for (const c of cs) c.deferred?.(false);
+  const settled = (i: number) => !(p[i] > 0 && p[i] < 1) || (Number.isFinite(x[i]) && Number.isFinite(err[i]));
+  const again = new Uint8Array(n);
+  let changed = Infinity;
+  for (const c of cs) {
+    const far = c.beyond?.() ?? -Infinity;
+    if (!c.cover || !(far > -Infinity)) continue;
+    // the farthest bracket end that needs this component's tail past its range, and the levels whose brackets do
+    let want = -Infinity;
+    const hit: number[] = [];
+    for (let i = 0; i < n; i++) {
+      if (!settled(i)) {
+        want = Math.max(want, far);
+        hit.push(i);
+        continue;
+      }
+      const y = x[i] + err[i];
+      if (c.needs!(y)) {
+        want = Math.max(want, y);
+        hit.push(i);
+      }
+    }
+    const R = c.reach!();
+    if (want > R && c.cover(want)) {
+      changed = Math.min(changed, R);
+      for (const i of hit) again[i] = 1;
     }
   }
+  if (changed < Infinity) {
+    forget((y) => y > changed && order.some((i) => again[i] === 1 && (!settled(i) || Math.abs(y - x[i]) <= err[i])));
+  }
+  for (const i of order) {
+    if (again[i]) solve(i, true);
+    else if (!atAtom[i]) {
+      const r = leftEnd(law, { x: x[i], err: err[i] }, p[i], model.scale, pt);
+      onFlat[i] = r.flat ? 1 : 0;
+      x[i] = r.x;
+      err[i] = r.err;
+    }
+  }
+  let cdfError = 0;
+  for (let i = 0; i < n; i++) {
+    if (!Number.isFinite(x[i])) continue;
+    law.at(x[i], pt);
+    cdfError = Math.max(cdfError, pt.cdfErr, atAtom[i] ? 0 : pt.sfErr);
+  }
+  const flat = onFlat.some((v) => v === 1);
   const notes = [methodsNote(cs)];
   if (flat) notes.push("a level falls on a flat stretch of the cdf: the left end is returned, the error spans the stretch");
   let es: Float64Array | undefined;
