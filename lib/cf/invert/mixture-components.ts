@@ -109,9 +109,14 @@ function dampedComponent(w: number, m: CompiledModel, R0: number, tol: number, t
   // would ask for a setup two to four times as long
   const moments = (x: number) => (Number.isFinite(lo) ? momentBounds(m, lo, x - lo) : null);
   // the bound on S(x) past the range: S(R) and its bound, or the moments' where that is smaller
+  let atR: { R: number; s: number } | null = null;
   const tailBound = (x: number): number => {
-    const r = inside(R);
-    let sR = Math.max(r.S, 0) + r.eS;
+    // S(R) and its bound, once per range
+    if (!atR || atR.R !== R) {
+      const r = inside(R);
+      atR = { R, s: Math.max(r.S, 0) + r.eS };
+    }
+    let sR = atR.s;
     if (w * sR > target) {
       const mb = moments(x);
       if (mb) sR = Math.min(sR, markovTail(mb, x - lo, false));
