@@ -117,6 +117,43 @@ const STOP = 2 ** -56;
 /** accepted when the whole bound is below this fraction of the value (else the integral serves the point) */
 const ACCEPT = 1e-10;
 
+/** the series' state for remainderBound: its inputs at one z, and the remainder's bound it sets */
+interface BoundState {
+  alpha: number;
+  absLz: number;
+  cz: number;
+  size: Float64Array;
+  eSf: Float64Array;
+  ePdf: Float64Array;
+  grow: Float64Array;
+  rSf: Float64Array;
+  rPdf: Float64Array;
+  remSf: number;
+  remPdf: number;
+}
+
+/**
+ * The remainder's bound when the sum stops before term k (see the module notes); an exponent off by at most d (d <= 1)
+ * moves its exponential by at most e^d - 1 <= d (1 + d) of it. A module function, not a closure per call: the series
+ * runs once per point of every stable term's law.
+ */
+function remainderBound(st: BoundState, k: number, mSf: number, mPdf: number): void {
+  const { alpha, absLz, cz } = st;
+  const d = 4 * Number.EPSILON * (st.size[k] + k * alpha * absLz + absLz);
+  const dSf = d + st.eSf[k];
+  const dPdf = d + st.ePdf[k];
+  const upSf = 1 + dSf * (1 + dSf) * (1 + Number.EPSILON);
+  const upPdf = 1 + dPdf * (1 + dPdf) * (1 + Number.EPSILON);
+  st.remSf = upSf * mSf * st.grow[k];
+  st.remPdf = upPdf * mPdf * st.grow[k];
+  if (alpha < 1) {
+    const rhoSf = cz * st.rSf[k];
+    const rhoPdf = cz * st.rPdf[k];
+    if (rhoSf < 1) st.remSf = Math.min(st.remSf, ((upSf * mSf) / (1 - rhoSf)) * (1 + 8 * Number.EPSILON));
+    if (rhoPdf < 1) st.remPdf = Math.min(st.remPdf, ((upPdf * mPdf) / (1 - rhoPdf)) * (1 + 8 * Number.EPSILON));
+  }
+}
+
 export function stableTailSeries(alpha: number, beta: number, z: number): SeriesValue | null {
   if (!(z > 0) || alpha === 1) return null;
   // beta = -1 leaves no power tail on this side (the law's right tail is lighter than any power)
@@ -135,41 +172,24 @@ export function stableTailSeries(alpha: number, beta: number, z: number): Series
   // the sizes of term k (computed once: as the remainder's bound before k, then as the term)
   let magSf = Math.exp(lSf[1] - alpha * lz);
   let magPdf = Math.exp(lPdf[1] - alpha * lz - lz);
-  // the remainder's bound when the sum stops before term k (see the module notes); an exponent off by at most d
-  // (d <= 1) moves its exponential by at most e^d - 1 <= d (1 + d) of it
-  let remSf = 0;
-  let remPdf = 0;
-  const bound = (k: number, mSf: number, mPdf: number) => {
-    const d = 4 * Number.EPSILON * (size[k] + k * alpha * absLz + absLz);
-    const dSf = d + eSf[k];
-    const dPdf = d + ePdf[k];
-    const upSf = 1 + dSf * (1 + dSf) * (1 + Number.EPSILON);
-    const upPdf = 1 + dPdf * (1 + dPdf) * (1 + Number.EPSILON);
-    remSf = upSf * mSf * grow[k];
-    remPdf = upPdf * mPdf * grow[k];
-    if (alpha < 1) {
-      const rhoSf = cz * rSf[k];
-      const rhoPdf = cz * rPdf[k];
-      if (rhoSf < 1) remSf = Math.min(remSf, ((upSf * mSf) / (1 - rhoSf)) * (1 + 8 * Number.EPSILON));
-      if (rhoPdf < 1) remPdf = Math.min(remPdf, ((upPdf * mPdf) / (1 - rhoPdf)) * (1 + 8 * Number.EPSILON));
-    }
-  };
-  bound(1, magSf, magPdf);
+  // the remainder's bound when the sum stops before term k, set by remainderBound
+  const st: BoundState = { alpha, absLz, cz, size, eSf, ePdf, grow, rSf, rPdf, remSf: 0, remPdf: 0 };
+  remainderBound(st, 1, magSf, magPdf);
   for (let k = 1; ; k++) {
-    if (!(remSf < Infinity && remPdf < Infinity)) return null;
+    if (!(st.remSf < Infinity && st.remPdf < Infinity)) return null;
     // stop once the remainder is below the sum's rounding (or an eighth of the terms' rounding bound so far)
-    if (k > 1 && remSf <= Math.max(STOP * Math.abs(sf), errSf / 8) && remPdf <= Math.max(STOP * Math.abs(pdf), errPdf / 8)) break;
+    if (k > 1 && st.remSf <= Math.max(STOP * Math.abs(sf), errSf / 8) && st.remPdf <= Math.max(STOP * Math.abs(pdf), errPdf / 8)) break;
     if (k > MAX_TERMS) break;
     const kal1 = (k + 1) * alpha * lz;
     const nSf = Math.exp(lSf[k + 1] - kal1);
     const nPdf = Math.exp(lPdf[k + 1] - kal1 - lz);
-    const prevSf = remSf;
-    const prevPdf = remPdf;
-    bound(k + 1, nSf, nPdf);
+    const prevSf = st.remSf;
+    const prevPdf = st.remPdf;
+    remainderBound(st, k + 1, nSf, nPdf);
     // the asymptotic series (alpha > 1): the bound falls to a least value, then grows; stop at the least
-    if (k > 1 && (remSf > prevSf || remPdf > prevPdf)) {
-      remSf = prevSf;
-      remPdf = prevPdf;
+    if (k > 1 && (st.remSf > prevSf || st.remPdf > prevPdf)) {
+      st.remSf = prevSf;
+      st.remPdf = prevPdf;
       break;
     }
     // the size of a term regardless of its sine (which may vanish by accident)
@@ -187,8 +207,8 @@ export function stableTailSeries(alpha: number, beta: number, z: number): Series
     magPdf = nPdf;
   }
   if (!(sf > 0) || !(pdf > 0)) return null;
-  const sfErr = ((remSf + errSf) / Math.PI) * (1 + 4 * Number.EPSILON);
-  const pdfErr = ((remPdf + errPdf) / Math.PI) * (1 + 4 * Number.EPSILON);
+  const sfErr = ((st.remSf + errSf) / Math.PI) * (1 + 4 * Number.EPSILON);
+  const pdfErr = ((st.remPdf + errPdf) / Math.PI) * (1 + 4 * Number.EPSILON);
   sf /= Math.PI;
   pdf /= Math.PI;
   if (!(sfErr <= ACCEPT * sf && pdfErr <= ACCEPT * pdf)) return null;
