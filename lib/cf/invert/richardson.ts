@@ -24,24 +24,26 @@ export function richardsonExponents(alpha: number, shift: number, count: number)
 export function richardsonExponentsMulti(bases: readonly number[], shift: number, count: number): number[] {
   const bs = [...new Set(bases.filter((b) => Number.isFinite(b) && b > 0).map((b) => Math.round(b * 1e9) / 1e9))].sort((u, v) => u - v);
   if (bs.length === 0) return [];
-  const limit = bs[0] * Math.max(12, count) + count;
-  let frontier = new Set<number>(bs);
-  const all = new Set<number>(bs);
-  while (frontier.size) {
-    const next = new Set<number>();
-    for (const v of frontier) {
-      for (const b of [...bs, 1]) {
-        const w = Math.round((v + b) * 1e9) / 1e9;
-        if (w <= limit && !all.has(w)) {
-          all.add(w);
-          next.add(w);
-        }
-      }
+  // the closure of the bases under adding a base or 1 (each sum rounded to 1e-9), smallest first: every value enters the
+  // queue when a smaller one leaves it, so the first `count` taken (those positive after the shift) are the smallest
+  const steps = [...bs, 1];
+  const seen = new Set<number>(bs);
+  const queue = [...bs];
+  const out: number[] = [];
+  while (out.length < count && queue.length) {
+    const v = queue.shift()!;
+    const e = Math.round((v + shift) * 1e9) / 1e9;
+    if (e > 0) out.push(e);
+    for (const b of steps) {
+      const w = Math.round((v + b) * 1e9) / 1e9;
+      if (seen.has(w)) continue;
+      seen.add(w);
+      let i = queue.length;
+      while (i > 0 && queue[i - 1] > w) i--;
+      queue.splice(i, 0, w);
     }
-    frontier = next;
-    if (all.size > 4096) break;
   }
-  return [...all].map((v) => Math.round((v + shift) * 1e9) / 1e9).filter((v) => v > 0).sort((u, v) => u - v).slice(0, count);
+  return out;
 }
 
 /** One elimination step for period ratio 2: R = fine + (fine - coarse) / (2^p - 1). */
