@@ -133,42 +133,45 @@ export function mixtureQuantiles(model: CompiledModel, p: Float64Array, o: Quant
   };
   // first with the ranged components deferring their growth: a point past a range is answered from the monotone
   // bound there (wide where the tail matters, so the search cannot settle on it); then each such range grows once to
-  // cover the answers' brackets that need its tail (or, where a level found none, the farthest point that did), and
-  // those levels are searched again: the points they evaluated inside their first brackets past an old range's end
-  // are evaluated afresh, the others (honest, and decided beyond their bounds) still bracket the roots
+  // cover the answers' brackets that need its tail, and those levels are searched again: the points they evaluated
+  // inside their first brackets past an old range's end are evaluated afresh, the others (honest, and decided beyond
+  // their bounds) still bracket the roots. A level left without an answer is searched again as before this deferral
+  // (every range growing to twice the farthest point that needs it), its points past any deferring range forgotten.
   for (const c of cs) c.deferred?.(true);
   for (const i of order) solve(i, false);
   for (const c of cs) c.deferred?.(false);
   const settled = (i: number) => !(p[i] > 0 && p[i] < 1) || (Number.isFinite(x[i]) && Number.isFinite(err[i]));
   const again = new Uint8Array(n);
   let changed = Infinity;
+  let deferredFrom = Infinity;
   for (const c of cs) {
-    const far = c.beyond?.() ?? -Infinity;
-    if (!c.cover || !(far > -Infinity)) continue;
+    if (!c.cover || !((c.beyond?.() ?? -Infinity) > -Infinity)) continue;
+    const R = c.reach!();
+    deferredFrom = Math.min(deferredFrom, R);
     // the farthest bracket end that needs this component's tail past its range, and the levels whose brackets do
     let want = -Infinity;
     const hit: number[] = [];
     for (let i = 0; i < n; i++) {
-      if (!settled(i)) {
-        want = Math.max(want, far);
-        hit.push(i);
-        continue;
-      }
+      // the tail bound falls with x: it matters somewhere in the bracket past R when it does at the bracket's first
+      // point past R
       const y = x[i] + err[i];
-      if (c.needs!(y)) {
+      if (settled(i) && y > R && c.needs!(Math.max(x[i] - err[i], R + Math.abs(R) * 1e-12 + Number.MIN_VALUE))) {
         want = Math.max(want, y);
         hit.push(i);
       }
     }
-    const R = c.reach!();
     if (want > R && c.cover(want)) {
       changed = Math.min(changed, R);
       for (const i of hit) again[i] = 1;
     }
   }
-  if (changed < Infinity) {
-    forget((y) => y > changed && order.some((i) => again[i] === 1 && (!settled(i) || Math.abs(y - x[i]) <= err[i])));
+  let open = false;
+  for (let i = 0; i < n; i++) {
+    if (settled(i)) continue;
+    open = true;
+    again[i] = 1;
   }
+  forget((y) => (open && y > deferredFrom) || (y > changed && order.some((i) => again[i] === 1 && Math.abs(y - x[i]) <= err[i])));
   for (const i of order) {
     if (again[i]) solve(i, true);
     else if (!atAtom[i]) {
