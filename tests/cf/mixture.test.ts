@@ -168,6 +168,16 @@ describe("mixtures answered from their components", () => {
     ]);
     // the atom 0.5 (e^{-3} + e^{-12}) = 0.0249 at 0 holds levels 0.001 and 0.01
     checkLaw(c, "CP3+CP12", model, ref, [0.5, 3, 10, 25, 45], 0, 400, [0.001, 0.01]);
+    // far levels: their first brackets lie past the first component's range, where its values are wide until it grows;
+    // at 1 - 1e-9 the cdf bound (~1e-10) over the density (~1e-9) leaves a few 1e-6 relative
+    const far = [1 - 1e-7, 1 - 1e-9];
+    const r = quantiles(compile(model), far, { expectedShortfall: false });
+    far.forEach((p, i) => {
+      const q = refQuantile(ref, p, 0, 400);
+      c.honest(`CP3+CP12 q(${p})`, r.x[i], q, r.diagnostics.quantileError[i]);
+      c.rel(`CP3+CP12 q(${p})`, r.x[i], q, 1e-5);
+      c.that(`CP3+CP12 q(${p}) bound within 1e-5 relative`, r.diagnostics.quantileError[i] <= 1e-5 * q, String(r.diagnostics.quantileError[i]));
+    });
     c.done();
   });
 
