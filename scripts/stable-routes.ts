@@ -1,5 +1,6 @@
-// npx tsx scripts/stable-routes.ts — which stable fixture points (tests/fixtures/stable/stable.json, bench-sample.json)
-// the direct route answers with a derived bound and which with an estimate, per law, with the CPU time of the first
+// npx tsx scripts/stable-routes.ts — how the direct route bounds each stable fixture point (tests/fixtures/stable/
+// stable.json, bench-sample.json), per law: by its panels ("derived"), by a rule's value compared with panels (the
+// distance plus the panels' bound, "compared": derived too) or not at all (Infinity, "none"), with the CPU time of the first
 // call per law (the panels' set-up) and of a second pass over the same points.
 import { readFileSync } from "node:fs";
 import { stableLastRoute, stdAt } from "@/lib/cf/direct/stable";
@@ -23,6 +24,7 @@ const cpu = () => {
   return (u.user + u.system) / 1000;
 };
 let est = 0;
+let cmp = 0;
 let estMain = 0;
 let n = 0;
 const out = directPoint();
@@ -40,11 +42,16 @@ for (const [k, pts] of byLaw) {
   const c1 = cpu();
   for (const z of zs) stdAt(alpha, beta, z, out);
   const c2 = cpu();
-  const e = marks.filter((m) => m === "estimate").length;
-  estMain += pts.filter((p, i) => marks[i] === "estimate" && main.includes(p)).length;
+  const e = marks.filter((m) => m === "none").length;
+  const c = marks.filter((m) => m === "compared").length;
+  estMain += pts.filter((p, i) => marks[i] === "none" && main.includes(p)).length;
   est += e;
+  cmp += c;
   n += pts.length;
-  const where = zs.filter((_, i) => marks[i] === "estimate").map((z) => z.toPrecision(3));
-  console.log(`${k.padEnd(18)} ${String(pts.length).padStart(3)} points, ${String(e).padStart(3)} estimated  first ${(c1 - c0).toFixed(1)} ms, again ${(c2 - c1).toFixed(1)} ms CPU${e ? `  z: ${where.join(" ")}` : ""}`);
+  const where = (m: string) => zs.filter((_, i) => marks[i] === m).map((z) => z.toPrecision(3));
+  console.log(
+    `${k.padEnd(18)} ${String(pts.length).padStart(3)} points, ${String(c).padStart(3)} compared, ${String(e).padStart(3)} unbounded  first ${(c1 - c0).toFixed(1)} ms, again ${(c2 - c1).toFixed(1)} ms CPU` +
+      `${c ? `  compared z: ${where("compared").join(" ")}` : ""}${e ? `  unbounded z: ${where("none").join(" ")}` : ""}`,
+  );
 }
-console.log(`${est} of ${n} points answered with an estimate (stable.json: ${estMain} of ${main.length})`);
+console.log(`${est} of ${n} points without a bound (stable.json: ${estMain} of ${main.length}); ${cmp} bounded by comparison with panels`);

@@ -1,6 +1,6 @@
 import { stableSide, type StableSide } from "./stable-kernel";
 import type { StableIntegrals } from "./stable-integral";
-import { stablePanels } from "./stable-panels";
+import { stablePanels, stableWindowPanels } from "./stable-panels";
 import { sinRange, type Box, type PanelSide } from "./stable-panel-store";
 import { oneTightBox } from "./stable-box";
 
@@ -323,4 +323,10 @@ interface Acc {
 export function stableOnePanels(beta: number, lhAbs: number, rel = 1e-11, dl = 0): StableIntegrals | null {
   if (!(beta > 0 && beta <= 1)) return null;
   return stablePanels(panelSideFor(beta), lhAbs, rel, dl);
+}
+
+/** The same with panels of the point's own placed at its window (./stable-panels.ts stableWindowPanels); bounds derived, whatever their size. */
+export function stableOneWindow(beta: number, lhAbs: number, dl = 0): StableIntegrals | null {
+  if (!(beta > 0 && beta <= 1)) return null;
+  return stableWindowPanels(panelSideFor(beta), lhAbs, dl);
 }

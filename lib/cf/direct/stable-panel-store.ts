@@ -153,10 +153,15 @@ export class PanelStore {
   private guess = Infinity;
   private o = { lv: 0, d: 0, mag: 0 };
   private bx: Box = { rLo: 0, rHi: 0, iMax: 0 };
+  /** the u where the panels start (towards the end): L/2 for the shared stores, nearer the window for one point's own */
+  readonly start: number;
   constructor(
     readonly ps: PanelSide,
     readonly from: 0 | 1,
-  ) {}
+    start?: number,
+  ) {
+    this.start = start ?? ps.side.L / 2;
+  }
   /** one more panel below the last; false at the cap or when none can be placed */
   extend(): boolean {
     if (this.full) return false;
@@ -166,7 +171,7 @@ export class PanelStore {
     }
     const side = this.ps.side;
     const o = this.o;
-    const hi = this.n ? this.panels[this.n - 1].lo : side.L / 2;
+    const hi = this.n ? this.panels[this.n - 1].lo : this.start;
     side.logV(this.from, hi, o);
     const lvHi = o.lv;
     const magHi = o.mag;

@@ -170,7 +170,7 @@ function half(st: PanelStore, lhAbs: number, V0: number, acc: Sums): boolean {
     }
   }
   // [hi_k, L/2] lies beyond the window: v <= v(hi_k) <= V0 (high end) or v >= v(hi_k) >= V1 (low end)
-  const hiK = k === 0 ? L2 : st.panels[k - 1].lo;
+  const hiK = k === 0 ? st.start : st.panels[k - 1].lo;
   const len = L2 - hiK;
   if (len > 0) {
     const lvk = st.lvHi[k];
@@ -239,6 +239,35 @@ function half(st: PanelStore, lhAbs: number, V0: number, acc: Sums): boolean {
 
 const stores = new Map<PanelSide, [PanelStore, PanelStore]>();
 
+/** V0: v below it leaves under 1e-16 of the mass near the window (it falls with log h far out) */
+function lowCut(lhAbs: number): number {
+  return -37 - Math.log(Math.max(1, Math.abs(lhAbs)));
+}
+
+/** both halves on the stores st at log h = lhAbs, with the sums' rounding; null when a store cannot reach its window */
+function integrals(st: [PanelStore, PanelStore], lhAbs: number, dl: number): StableIntegrals | null {
+  const V0 = lowCut(lhAbs);
+  const acc: Sums = { i0: 0, i1: 0, ip: 0, e0: 0, e1: 0, ep: 0, nodes: 0, dl };
+  if (!half(st[0], lhAbs, V0, acc) || !half(st[1], lhAbs, V0, acc)) return null;
+  // the sums' rounding: at most (terms - 1) u times the sum of the (positive) terms (Higham 2002, eq. 4.4), terms
+  // counted generously
+  const g = (acc.nodes + 16) * Number.EPSILON;
+  return {
+    I0: acc.i0,
+    I1: acc.i1,
+    Ip: acc.ip,
+    e0: acc.e0 + g * acc.i0,
+    e1: acc.e1 + g * acc.i1,
+    ep: acc.ep + g * acc.ip,
+    nodes: acc.nodes,
+  };
+}
+
+/** whether each of r's bounds is within rel of its value */
+export function within(r: StableIntegrals, rel: number): boolean {
+  return r.e0 <= rel * r.I0 && r.e1 <= rel * r.I1 && r.ep <= rel * r.Ip;
+}
+
 /**
  * I0, I1, Ip of `ps` at log h = lhAbs (known to within dl) by the panels, or null when the panels cannot reach the
  * window or the bounds exceed `rel` of a value (the caller then takes another route).
@@ -251,22 +280,60 @@ export function stablePanels(ps: PanelSide, lhAbs: number, rel: number, dl = 0):
     st = [new PanelStore(ps, 0), new PanelStore(ps, 1)];
     stores.set(ps, st);
   }
-  // V0 falls with log h far out so that what lies below it stays under 1e-16 of the mass near the window
-  const V0 = -37 - Math.log(Math.max(1, Math.abs(lhAbs)));
-  const acc: Sums = { i0: 0, i1: 0, ip: 0, e0: 0, e1: 0, ep: 0, nodes: 0, dl };
-  if (!half(st[0], lhAbs, V0, acc) || !half(st[1], lhAbs, V0, acc)) return null;
-  // the sums' rounding: at most (terms - 1) u times the sum of the (positive) terms (Higham 2002, eq. 4.4), terms
-  // counted generously
-  const g = (acc.nodes + 16) * Number.EPSILON;
-  const res: StableIntegrals = {
-    I0: acc.i0,
-    I1: acc.i1,
-    Ip: acc.ip,
-    e0: acc.e0 + g * acc.i0,
-    e1: acc.e1 + g * acc.i1,
-    ep: acc.ep + g * acc.ip,
-    nodes: acc.nodes,
-  };
-  if (!(res.e0 <= rel * res.I0 && res.e1 <= rel * res.I1 && res.ep <= rel * res.Ip)) return null;
-  return res;
+  const res = integrals(st, lhAbs, dl);
+  return res && within(res, rel) ? res : null;
+}
+
+/**
+ * The same integrals with panels of this point's own, started next to its window instead of marched from the middle
+ * (the shared stores stop at their cap far out at alpha = 1 and next to it, where the window sits at u ~ 1/|log h|):
+ * at each end the start is where v is about one unit beyond the window on the middle's side (Newton on log V in
+ * log u), and what lies between it and the middle is bounded in bulk by half() like any region beyond the window.
+ * Where the solve misses, the start stays at the middle. The bounds are the panels' own (derived); null when the
+ * panels cannot be placed.
+ */
+export function stableWindowPanels(ps: PanelSide, lhAbs: number, dl = 0): StableIntegrals | null {
+  const side = ps.side;
+  const lh = lhAbs + side.wRef;
+  const V0 = lowCut(lhAbs);
+  // from the low end v falls towards the end (the middle's side lies above V1), from the high end it rises
+  const s0 = uWhere(side, 0, V1 + 1 - lh);
+  const s1 = uWhere(side, 1, V0 - 1 - lh);
+  return integrals([new PanelStore(ps, 0, s0), new PanelStore(ps, 1, s1)], lhAbs, dl);
+}
+
+const solveOut = { lv: 0, d: 0, mag: 0 };
+/**
+ * u in (0, L/2] (from the end `from`) where log V - wRef is about T, when the middle lies on the far side of T from
+ * the end; else L/2. Bracketed Newton in t = log u.
+ */
+function uWhere(side: PanelSide["side"], from: 0 | 1, T: number): number {
+  const L2 = side.L / 2;
+  const o = solveOut;
+  side.logV(from, L2, o);
+  // g(t) = sgn (log V(e^t) - T) rises in t; the start is needed only where g(log L/2) > 0
+  const sgn = from === 0 ? 1 : -1;
+  if (!(sgn * (o.lv - T) > 0)) return L2;
+  let tA = -700;
+  let tB = Math.log(L2);
+  side.logV(from, Math.exp(tA), o);
+  if (!(sgn * (o.lv - T) < 0)) return L2;
+  let t = tB - 1;
+  let gPrev = Infinity;
+  for (let it = 0; it < 200; it++) {
+    side.logV(from, Math.exp(t), o);
+    const g = sgn * (o.lv - T);
+    if (g > 0) tB = t;
+    else tA = t;
+    if (Math.abs(g) < 0.25) break;
+    let tn = t - g / (sgn * o.d * Math.exp(t));
+    // Newton while it at least halves the residual, else bisection
+    const slow = Math.abs(g) > 0.5 * gPrev;
+    gPrev = Math.abs(g);
+    if (slow || !(tn > tA && tn < tB) || !Number.isFinite(tn)) tn = 0.5 * (tA + tB);
+    t = tn;
+    if (tB - tA < 1e-14 * Math.max(1, Math.abs(t))) break;
+  }
+  const u = Math.exp(t);
+  return u > 0 && u < L2 ? u : L2;
 }

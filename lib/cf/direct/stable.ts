@@ -1,11 +1,12 @@
-import { stableIntegrals } from "./stable-integral";
-import { stableOneFar, stableOnePanels } from "./stable-far";
+import { stableIntegrals, type StableIntegrals } from "./stable-integral";
+import { stableOneFar, stableOnePanels, stableOneWindow } from "./stable-far";
 import { stableNearOne } from "./stable-near-one";
 import { stableSide, tanHalfPi } from "./stable-kernel";
-import { stablePanels } from "./stable-panels";
+import { stablePanels, stableWindowPanels, within } from "./stable-panels";
 import { alphaTightBox } from "./stable-box";
 import type { PanelSide } from "./stable-panel-store";
 import { stableTailSeries, stableTailStopLoss } from "./stable-series";
+import { stableOneTail } from "./stable-one-tail";
 import type { DirectLaw, DirectPoint } from "./types";
 import { lgamma, lgammaErr } from "../families/special";
 import { cauchyDirect, normalDirect } from "./families";
@@ -23,10 +24,13 @@ const HALF_PI = Math.PI / 2;
  * alpha = 1 (beta > 0): F = I0/pi, sf = I1/pi, f = Ip / (2 beta), log h = -pi z / (2 beta).
  * z < 0 reflects (z, beta) -> (-z, -beta) and swaps F and sf. I0, I1, Ip: see ./stable-integral.ts.
  * The integrals come from Gauss-Legendre panels in theta with a derived error bound (./stable-panels.ts, their
- * rectangles' bounds on log V tightened by ./stable-box.ts, which also keeps them usable next to alpha = 1) for
- * |alpha - 1| >= 9e-4, and for alpha = 1 with |log h| <= 4000. Elsewhere, and where the panels' bound is above
- * PANELS_REL of a value, the errors are estimates: the Gauss rule in log V next to alpha = 1 (./stable-near-one.ts)
- * and far out at alpha = 1 (./stable-far.ts), else the grid (./stable-integral.ts).
+ * rectangles' bounds on log V tightened by ./stable-box.ts, which also keeps them usable next to alpha = 1): the shared
+ * panels for |alpha - 1| >= 9e-4 and for alpha = 1 with |log h| <= 4000, else panels of the point's own placed at its
+ * window. alpha = 1 far out (|z| >= 30) takes its tail series with a derived remainder (./stable-one-tail.ts) first.
+ * Where the panels' bound is above PANELS_REL of a value, the value comes from another rule (the Gauss rule in log V
+ * next to alpha = 1, ./stable-near-one.ts, far out at alpha = 1, ./stable-far.ts, else the grid, ./stable-integral.ts)
+ * and its bound is its distance to the panels plus theirs (derivedBound); where no panels can be placed the bound is
+ * Infinity.
  */
 export function stableDirect(alpha: number, beta: number, scale: number, loc: number, param: "S0" | "S1"): DirectLaw | null {
   if (!(scale > 0) || !Number.isFinite(loc)) return null;
@@ -74,9 +78,13 @@ export function stableDirect(alpha: number, beta: number, scale: number, loc: nu
   };
 }
 
-/** whether the last point stdAt answered carries a derived bound ("derived") or an estimated one ("estimate"): for scripts/stable-routes.ts */
-let lastRoute: "derived" | "estimate" = "derived";
-export function stableLastRoute(): "derived" | "estimate" {
+/**
+ * how the last point stdAt answered got its bound, for scripts/stable-routes.ts: "derived" (the panels' own bound or a
+ * closed form's), "compared" (a rule's value, its bound its distance to panels plus theirs: derived too), "none"
+ * (no panels could be placed: the bound is Infinity)
+ */
+let lastRoute: "derived" | "compared" | "none" = "derived";
+export function stableLastRoute(): "derived" | "compared" | "none" {
   return lastRoute;
 }
 
@@ -194,9 +202,8 @@ function sideAt(alpha: number, beta: number, z: number, out: DirectPoint, dz: nu
     return;
   }
   const lh = (alpha / (alpha - 1)) * Math.log(z);
-  // Gauss-Legendre panels in theta with derived bounds (./stable-panels.ts); where they cannot reach the window or their
-  // bound is above PANELS_REL of a value, a Gauss rule in log V next to 1 (./stable-near-one.ts) or the grid, both with
-  // estimated errors
+  // Gauss-Legendre panels in theta with derived bounds (./stable-panels.ts); where their bound is above PANELS_REL of a
+  // value, the value of a Gauss rule in log V next to 1 (./stable-near-one.ts) or of the grid, bounded by comparison
   // z's rounding moves log h by |alpha / (alpha - 1)| dz / z and the prefactor by dz / z relative; where dz / z is not
   // small (z next to 0) the density moves by at most sup |f'| dz <= dz Gamma(2/alpha) / (alpha pi) instead
   // (f' = -(1/pi) Re int t i e^{-itz} phi(t) dt with |phi(t)| = exp(-|t|^alpha): Nolan 2020, sec. 1.3)
@@ -207,14 +214,20 @@ function sideAt(alpha: number, beta: number, z: number, out: DirectPoint, dz: nu
     rz = 0;
   }
   // an empty interval (alpha < 1, beta = -1 above zeta: no mass there) has integrals 0 exactly
-  const panels = !(ps.side.L > 0)
-    ? { I0: 0, I1: 0, Ip: 0, e0: 0, e1: 0, ep: 0, nodes: 0 }
-    : Math.abs(alpha - 1) >= PANELS_MIN_DIST
-      ? stablePanels(ps, lh, PANELS_REL, Math.abs(alpha / (alpha - 1)) * rz)
-      : null;
-  const near = panels ? null : stableNearOne(alpha, beta, lh);
-  const r = panels ?? near ?? stableIntegrals(alpha, beta, lh);
-  if (!panels) lastRoute = "estimate";
+  const dl = Math.abs(alpha / (alpha - 1)) * rz;
+  let r: StableIntegrals;
+  let near: StableIntegrals | null = null;
+  if (!(ps.side.L > 0)) r = { I0: 0, I1: 0, Ip: 0, e0: 0, e1: 0, ep: 0, nodes: 0 };
+  else {
+    // the shared panels; where they cannot reach (their cap, next to alpha = 1) the point's own at its window
+    let pan = Math.abs(alpha - 1) >= PANELS_MIN_DIST ? stablePanels(ps, lh, Infinity, dl) : null;
+    if (!pan) pan = stableWindowPanels(ps, lh, dl);
+    if (pan && within(pan, PANELS_REL)) r = pan;
+    else {
+      near = stableNearOne(alpha, beta, lh);
+      r = derivedBound(near ?? stableIntegrals(alpha, beta, lh), pan);
+    }
+  }
   const pref = alpha / (Math.PI * Math.abs(alpha - 1) * z);
   out.pdf = pref * r.Ip;
   out.pdfErr = pref * r.ep + (4 * Number.EPSILON + 2 * rz) * out.pdf + dzPdf;
@@ -242,20 +255,59 @@ function sideAt(alpha: number, beta: number, z: number, out: DirectPoint, dz: nu
   clamp(out);
 }
 
-/** |log h| up to which alpha = 1 tries the panels */
+/** |log h| up to which alpha = 1 tries the shared panels (beyond, the point's own at its window) */
 const PANELS_MAX_LH = 4000;
+/** alpha = 1: the panels' relative bound above which the value comes from the Gauss rule far out (./stable-far.ts) */
+const ONE_REL = 1e-11;
+
+/**
+ * The value of a rule whose error is only estimated (next to alpha = 1, far out at alpha = 1, the grid), with a bound
+ * derived from panels with derived bounds: |value - exact| <= |value - panels| + panels' bound. Without panels (none
+ * could be placed) the bound is Infinity: no estimate stands in for a bound.
+ */
+function derivedBound(est: StableIntegrals, pan: StableIntegrals | null): StableIntegrals {
+  if (!(pan && [pan.I0, pan.I1, pan.Ip, pan.e0, pan.e1, pan.ep].every(Number.isFinite))) {
+    lastRoute = "none";
+    return { ...est, e0: Infinity, e1: Infinity, ep: Infinity };
+  }
+  lastRoute = "compared";
+  return {
+    ...est,
+    // (plus the difference's own rounding)
+    e0: (Math.abs(est.I0 - pan.I0) + pan.e0) * (1 + 4 * Number.EPSILON) + Number.EPSILON * est.I0,
+    e1: (Math.abs(est.I1 - pan.I1) + pan.e1) * (1 + 4 * Number.EPSILON) + Number.EPSILON * est.I1,
+    ep: (Math.abs(est.Ip - pan.Ip) + pan.ep) * (1 + 4 * Number.EPSILON) + Number.EPSILON * est.Ip,
+  };
+}
 
 function oneAt(beta: number, z: number, out: DirectPoint, dz: number) {
+  // far out: the tail series with its derived remainder (./stable-one-tail.ts); z < 0 as -z with skewness -beta
+  const ser = stableOneTail(z > 0 ? beta : -beta, Math.abs(z), ONE_REL, dz);
+  if (ser) {
+    out.pdf = ser.pdf;
+    out.pdfErr = ser.pdfErr;
+    const far = ser.sf;
+    const near = 1 - ser.sf;
+    const nearErr = ser.sfErr + Number.EPSILON * near;
+    out.sf = z > 0 ? far : near;
+    out.sfErr = z > 0 ? ser.sfErr : nearErr;
+    out.cdf = z > 0 ? near : far;
+    out.cdfErr = z > 0 ? nearErr : ser.sfErr;
+    clamp(out);
+    return;
+  }
   const lh = (-Math.PI * z) / (2 * beta);
   const dl = (Math.PI * dz) / (2 * beta);
   // Gauss-Legendre panels in theta with derived bounds (./stable-panels.ts, their boxes tightened by ./stable-box.ts,
-  // which also bounds log V up to the finite end of beta = 1) for |log h| <= PANELS_MAX_LH; beyond (where the rounding of
-  // log h + log V, eps |log h| in v, pushes their bound above 1e-11 of a value), or where the bound is above that
-  // anyway, the Gauss rule in log V far out (./stable-far.ts), else the grid: both with estimated errors
-  const panels = Math.abs(lh) <= PANELS_MAX_LH;
-  const rp = panels ? stableOnePanels(beta, lh, 1e-11, dl) : null;
-  if (!rp) lastRoute = "estimate";
-  const r = rp ?? stableOneFar(beta, lh) ?? stableIntegrals(1, beta, lh);
+  // which also bounds log V up to the finite end of beta = 1): the shared ones for |log h| <= PANELS_MAX_LH (beyond, they
+  // reach their cap of panels), else the point's own; where their bound is above ONE_REL (the rounding of log h + log V,
+  // eps |log h| in v, grows with |log h|), the value of the Gauss rule far out (./stable-far.ts) or of the grid, bounded
+  // by comparison
+  let r = Math.abs(lh) <= PANELS_MAX_LH ? stableOnePanels(beta, lh, ONE_REL, dl) : null;
+  if (!r) {
+    const win = stableOneWindow(beta, lh, dl);
+    r = win && within(win, ONE_REL) ? win : derivedBound(stableOneFar(beta, lh) ?? stableIntegrals(1, beta, lh), win);
+  }
   const dlh = 4 * Number.EPSILON * (1 + Math.abs(lh));
   out.pdf = r.Ip / (2 * beta);
   out.pdfErr = r.ep / (2 * beta) + 4 * Number.EPSILON * out.pdf;
