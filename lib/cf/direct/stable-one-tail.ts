@@ -17,8 +17,8 @@ import type { SeriesValue } from "./stable-series";
  * Series: e^w = sum_{n<N} w^n/n! + R_N with |R_N| <= |w|^N / N! max(1, e^{Re w}) (Taylor's remainder in integral form),
  * Re w = -B r log r <= |B|/e on [0, 1]. The terms, integrated over (0, inf):
  *   int_0^inf e^{-zr} r^n (log r)^j dr = z^{-n-1} sum_i C(j, i) (-log z)^{j-i} Gamma^(i)(n + 1)
- * (x = zr), less their parts over (1, inf), each at most int_1^inf e^{-zr} r^{n+j} dr <= e^{-z/2} (n+j)! (2/z)^{n+j+1}
- * (log r <= r). With |log r| <= log z + |log x|, the remainder's integral is at most
+ * (x = zr), less their parts over (1, inf), each at most int_1^inf e^{-zr} r^m dr <= e^{-z} / (z - m), m = n + j < z
+ * (log r <= r - 1, so r^m e^{-zr} <= e^{-z} e^{-(z - m)(r - 1)}). With |log r| <= log z + |log x|, the remainder's integral is at most
  *   e^{|B|/e} / N! z^{-N-1} sum_i C(N, i) (c + |B| log z)^{N-i} |B|^i M(N, i),  M(N, i) = int_0^inf e^{-x} x^N |log x|^i dx,
  * M(N, i) = Gamma^(i)(N + 1) for even i and at most the mean of its two even neighbours for odd i (|y|^i <= (y^(i-1) +
  * y^(i+1))/2); for the sf r^N becomes r^(N-1). Gamma^(i)(1) comes from psi(1) = -gamma and psi^(m)(1) =
@@ -228,8 +228,10 @@ export function stableOneTail(b: number, z: number, rel = 1e-12, dz = 0): Series
   let remF = Infinity;
   let remS = Infinity;
   let zs = 1; // z^-n, the sf's factor; the pdf's is z^-(n+1)
-  let fact = 1; // (n + 1)!
-  for (let n = 1; n < NMAX; n++) {
+  let fact = 1; // n!, then (n + 1)! for the remainder
+  // terms n < z/2 only (their parts over (1, inf) are bounded for n + j < z)
+  const nTop = Math.min(NMAX - 1, Math.ceil(z / 2) - 2);
+  for (let n = 1; n <= nTop; n++) {
     zs *= zi;
     const zp = zs * zi;
     const pf = L.pf[n];
@@ -263,12 +265,13 @@ export function stableOneTail(b: number, z: number, rel = 1e-12, dz = 0): Series
     // Horner's rounding (gamma_(2n+2) times the majorant, Higham 2002 eq. 5.3) and z^-n's (n + 1 products)
     ef += zp * ((3 * n + 5) * U * (Qf + Ef) * 1.01 + Ef + Df * 1.01);
     es += zs * ((3 * n + 4) * U * (Qs + Es) * 1.01 + Es + Ds * 1.01);
-    const cn = Math.pow(c + absB, n) * fallingRatio(n);
-    tailF += cn * Math.pow(2 * zi, n + 1);
-    tailS += cn * Math.pow(2 * zi, n);
+    // sum_j |coef_j| <= (c + |B|)^n / n!, and m = n + j <= 2n (pdf), n - 1 + j <= 2n - 1 (sf)
+    const cn = Math.pow(c + absB, n) / fact;
+    tailF += cn / (z - 2 * n);
+    tailS += cn / (z - 2 * n + 1);
     // the remainder after terms 1..n (N = n + 1), once the terms have become small
     fact *= n + 1;
-    if ((Math.abs(tf) <= 1e-17 * Math.abs(f) && Math.abs(ts) <= 1e-17 * Math.abs(s)) || n === NMAX - 1) {
+    if ((Math.abs(tf) <= 1e-17 * Math.abs(f) && Math.abs(ts) <= 1e-17 * Math.abs(s)) || n === nTop) {
       const N = n + 1;
       let sf = 0;
       let ss = 0;
@@ -287,7 +290,7 @@ export function stableOneTail(b: number, z: number, rel = 1e-12, dz = 0): Series
   }
   // the path's second piece and the terms' parts over (1, inf)
   const piece = (2 / Math.PI) * Math.exp(absB - z) * (1 + 1e-12);
-  const tails = (Math.exp(-z / 2) * (1 + 1e-12)) / Math.PI;
+  const tails = (Math.exp(-z) * (1 + 1e-12)) / Math.PI;
   const pdf = f / Math.PI;
   const sf = s / Math.PI;
   // the sums' rounding (at most NMAX terms, Higham 2002 eq. 4.4) and the division by pi
@@ -310,10 +313,3 @@ export function stableOneTail(b: number, z: number, rel = 1e-12, dz = 0): Series
 
 /** z from which the series is tried (below, its terms fall too slowly to reach a useful bound within NMAX terms) */
 const Z_MIN = 30;
-
-/** (2n)! / n!: sum_j |coef_j| (n + j)! <= (c + |B|)^n (2n)!/n!, the terms' parts over (1, inf) (see above) */
-function fallingRatio(n: number): number {
-  let r = 1;
-  for (let k = n + 1; k <= 2 * n; k++) r *= k;
-  return r;
-}
