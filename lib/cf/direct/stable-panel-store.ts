@@ -61,8 +61,12 @@ export function gaussLegendre(): { x: Float64Array; w: Float64Array } {
   return gl;
 }
 
-/** panels stored per end at most (far out at alpha = 1 the window moves by |log h| units of v, a few per panel) */
-const CAP = 4096;
+/**
+ * panels stored per end at most: next to alpha = 1 the window moves by alpha/(alpha - 1) log z units of v, a few per
+ * panel (at alpha = 1.0003 the body's points need up to about 5 000); a panel without nodes is a small object, and
+ * nodes are evaluated only for the panels a window reaches
+ */
+const CAP = 16384;
 /**
  * |Im log V| allowed over a panel's rectangle: coarse panels serve where Re v <= 0 over the rectangle (there
  * |K| <= e^R exp(e^R) <= e whatever Im v), fine ones (a coarse panel cut into equal parts) elsewhere, where |K| and
@@ -101,23 +105,43 @@ export interface Panel {
 const EMPTY = new Float64Array(0);
 
 /** a panel's rectangle bounds; its nodes come with nodesOf on first use (the panels a point only skips never need them) */
-function makePanel(lo: number, hl: number, bx: Box): Panel {
+export function makePanel(lo: number, hl: number, bx: Box): Panel {
   return { lo, hl, rLo: bx.rLo, rHi: bx.rHi, iMax: bx.iMax, lv: EMPTY, elv: EMPTY, wt: EMPTY, dv0: EMPTY, J: 0, eJ: 0 };
 }
 
 const nodeOut = { lv: 0, d: 0, mag: 0 };
-/** panel p (of the end `from` of ps) with its nodes evaluated */
-export function nodesOf(ps: PanelSide, from: 0 | 1, p: Panel): Panel {
-  if (p.lv.length) return p;
-  const { x: gx, w: gw } = gaussLegendre();
-  const o = nodeOut;
-  const { lo, hl } = p;
-  // one buffer for the four arrays
-  const buf = new Float64Array(4 * NODES);
+/** one buffer for a panel's four node arrays */
+function nodeArrays(p: Panel, buf: Float64Array) {
   p.lv = buf.subarray(0, NODES);
   p.elv = buf.subarray(NODES, 2 * NODES);
   p.wt = buf.subarray(2 * NODES, 3 * NODES);
   p.dv0 = buf.subarray(3 * NODES, 4 * NODES);
+}
+
+/**
+ * Node buffers for the panels of one point's own (./stable-panels.ts stableWindowPanels, ./stable-light.ts): taken in
+ * turn and handed out again from the start by reset() at the next point, whose panels replace them (allocating a
+ * typed array per panel took a tenth of the time there)
+ */
+export class NodePool {
+  private bufs: Float64Array[] = [];
+  private used = 0;
+  take(): Float64Array {
+    if (this.used === this.bufs.length) this.bufs.push(new Float64Array(4 * NODES));
+    return this.bufs[this.used++];
+  }
+  reset(): void {
+    this.used = 0;
+  }
+}
+
+/** panel p (of the end `from` of ps) with its nodes evaluated */
+export function nodesOf(ps: PanelSide, from: 0 | 1, p: Panel, pool?: NodePool): Panel {
+  if (p.lv.length) return p;
+  const { x: gx, w: gw } = gaussLegendre();
+  const o = nodeOut;
+  const { lo, hl } = p;
+  nodeArrays(p, pool ? pool.take() : new Float64Array(4 * NODES));
   const m = lo + hl;
   // |V e^-rHi| <= 1 on the rectangle: Theorem 19.3 with M = 1, plus each node's rounding (as in panel())
   let J = 0;
@@ -159,6 +183,8 @@ export class PanelStore {
     readonly ps: PanelSide,
     readonly from: 0 | 1,
     start?: number,
+    /** one point's own store: its nodes' buffers come from (and go back to) this pool */
+    readonly pool?: NodePool,
   ) {
     this.start = start ?? ps.side.L / 2;
   }

@@ -1,5 +1,5 @@
 import type { StableIntegrals } from "./stable-integral";
-import { EV_MAX, NODES, R_COARSE, R_FAR, THM, V1, nodesOf, type Panel, PanelStore, type PanelSide } from "./stable-panel-store";
+import { EV_MAX, NODES, NodePool, R_COARSE, R_FAR, THM, V1, nodesOf, type Panel, PanelStore, type PanelSide } from "./stable-panel-store";
 
 /**
  * The integrals of the stable representation in theta itself (./stable-integral.ts):
@@ -25,7 +25,7 @@ function supK(lo: number, hi: number, c: number): number {
   return Math.exp(r - Math.exp(r) * c);
 }
 
-interface Sums {
+export interface Sums {
   i0: number;
   i1: number;
   ip: number;
@@ -37,12 +37,12 @@ interface Sums {
   dl: number;
 }
 
-function kernelAt(v: number): number {
+export function kernelAt(v: number): number {
   return Math.exp(v - Math.exp(v));
 }
 
 /** The nodes of panel p at log h (lhAbs), added to acc with the panel's bound (Theorem 19.3) and the nodes' rounding. */
-function panel(p: Panel, lhAbs: number, lh: number, acc: Sums): void {
+export function panel(p: Panel, lhAbs: number, lh: number, acc: Sums): void {
   const hl = p.hl;
   const rLo = lhAbs + p.rLo;
   const rHi = lhAbs + p.rHi;
@@ -96,7 +96,7 @@ function panelOrParts(st: PanelStore, k: number, lhAbs: number, lh: number, acc:
   if (vMax <= R_FAR - Math.log(Math.max(1, Math.abs(lhAbs)))) {
     // far left: e^v - e^2v <= K(v) <= e^v, e^v - e^2v / 2 <= 1 - exp(-e^v) <= e^v, so the panel's stored rule of V gives
     // all three (I0 as the panel's length less I1's part), off by the rule's bound, e^2v and log h's own error
-    nodesOf(st.ps, st.from, p);
+    nodesOf(st.ps, st.from, p, st.pool);
     const s = Math.exp(lhAbs + p.rHi);
     const b = s * p.J;
     const e = s * p.eJ * (1 + s) + s * b + 2 * acc.dl * b;
@@ -110,12 +110,12 @@ function panelOrParts(st: PanelStore, k: number, lhAbs: number, lh: number, acc:
     return true;
   }
   if (vMax <= R_COARSE) {
-    panel(nodesOf(st.ps, st.from, p), lhAbs, lh, acc);
+    panel(nodesOf(st.ps, st.from, p, st.pool), lhAbs, lh, acc);
     return true;
   }
   const parts = st.fineOf(k);
   if (!parts) return false;
-  for (const q of parts) panel(nodesOf(st.ps, st.from, q), lhAbs, lh, acc);
+  for (const q of parts) panel(nodesOf(st.ps, st.from, q, st.pool), lhAbs, lh, acc);
   return true;
 }
 
@@ -123,7 +123,7 @@ function panelOrParts(st: PanelStore, k: number, lhAbs: number, lh: number, acc:
  * One end's half of the integrals (u in (0, L/2] from the end `from`): the region beyond the window in bulk, the
  * window by its panels, the rest up to the end in bulk. False when the store cannot reach the window.
  */
-function half(st: PanelStore, lhAbs: number, V0: number, acc: Sums): boolean {
+export function half(st: PanelStore, lhAbs: number, V0: number, acc: Sums): boolean {
   const side = st.ps.side;
   const lh = lhAbs + side.wRef;
   const L2 = side.L / 2;
@@ -240,7 +240,7 @@ function half(st: PanelStore, lhAbs: number, V0: number, acc: Sums): boolean {
 const stores = new Map<PanelSide, [PanelStore, PanelStore]>();
 
 /** V0: v below it leaves under 1e-16 of the mass near the window (it falls with log h far out) */
-function lowCut(lhAbs: number): number {
+export function lowCut(lhAbs: number): number {
   return -37 - Math.log(Math.max(1, Math.abs(lhAbs)));
 }
 
@@ -249,6 +249,11 @@ function integrals(st: [PanelStore, PanelStore], lhAbs: number, dl: number): Sta
   const V0 = lowCut(lhAbs);
   const acc: Sums = { i0: 0, i1: 0, ip: 0, e0: 0, e1: 0, ep: 0, nodes: 0, dl };
   if (!half(st[0], lhAbs, V0, acc) || !half(st[1], lhAbs, V0, acc)) return null;
+  return finish(acc);
+}
+
+/** the integrals of acc with the sums' rounding */
+export function finish(acc: Sums): StableIntegrals {
   // the sums' rounding: at most (terms - 1) u times the sum of the (positive) terms (Higham 2002, eq. 4.4), terms
   // counted generously
   const g = (acc.nodes + 16) * Number.EPSILON;
@@ -263,6 +268,18 @@ function integrals(st: [PanelStore, PanelStore], lhAbs: number, dl: number): Sta
   };
 }
 
+/** the shared stores of ps (both ends, from the middle) */
+export function sharedStores(ps: PanelSide): [PanelStore, PanelStore] {
+  let st = stores.get(ps);
+  if (!st) {
+    // a law's panels take up to a few MB next to alpha = 1: keep the last few laws
+    if (stores.size > 8) stores.clear();
+    st = [new PanelStore(ps, 0), new PanelStore(ps, 1)];
+    stores.set(ps, st);
+  }
+  return st;
+}
+
 /** whether each of r's bounds is within rel of its value */
 export function within(r: StableIntegrals, rel: number): boolean {
   return r.e0 <= rel * r.I0 && r.e1 <= rel * r.I1 && r.ep <= rel * r.Ip;
@@ -273,14 +290,7 @@ export function within(r: StableIntegrals, rel: number): boolean {
  * window or the bounds exceed `rel` of a value (the caller then takes another route).
  */
 export function stablePanels(ps: PanelSide, lhAbs: number, rel: number, dl = 0): StableIntegrals | null {
-  let st = stores.get(ps);
-  if (!st) {
-    // a law's panels take up to a few MB far out at alpha = 1: keep the last few laws
-    if (stores.size > 16) stores.clear();
-    st = [new PanelStore(ps, 0), new PanelStore(ps, 1)];
-    stores.set(ps, st);
-  }
-  const res = integrals(st, lhAbs, dl);
+  const res = integrals(sharedStores(ps), lhAbs, dl);
   return res && within(res, rel) ? res : null;
 }
 
@@ -299,15 +309,19 @@ export function stableWindowPanels(ps: PanelSide, lhAbs: number, dl = 0): Stable
   // from the low end v falls towards the end (the middle's side lies above V1), from the high end it rises
   const s0 = uWhere(side, 0, V1 + 1 - lh);
   const s1 = uWhere(side, 1, V0 - 1 - lh);
-  return integrals([new PanelStore(ps, 0, s0), new PanelStore(ps, 1, s1)], lhAbs, dl);
+  pointPool.reset();
+  return integrals([new PanelStore(ps, 0, s0, pointPool), new PanelStore(ps, 1, s1, pointPool)], lhAbs, dl);
 }
+
+/** the node buffers of one point's own panels (reused from point to point) */
+export const pointPool = new NodePool();
 
 const solveOut = { lv: 0, d: 0, mag: 0 };
 /**
  * u in (0, L/2] (from the end `from`) where log V - wRef is about T, when the middle lies on the far side of T from
  * the end; else L/2. Bracketed Newton in t = log u.
  */
-function uWhere(side: PanelSide["side"], from: 0 | 1, T: number): number {
+export function uWhere(side: PanelSide["side"], from: 0 | 1, T: number): number {
   const L2 = side.L / 2;
   const o = solveOut;
   side.logV(from, L2, o);

@@ -4,6 +4,7 @@ import { stableNearOne } from "./stable-near-one";
 import { stableSide, tanHalfPi } from "./stable-kernel";
 import { stablePanels, stableWindowPanels, within } from "./stable-panels";
 import { alphaTightBox } from "./stable-box";
+import { stableLightPanels } from "./stable-light";
 import type { PanelSide } from "./stable-panel-store";
 import { stableTailSeries, stableTailStopLoss } from "./stable-series";
 import { stableOneTail } from "./stable-one-tail";
@@ -25,7 +26,7 @@ const HALF_PI = Math.PI / 2;
  * z < 0 reflects (z, beta) -> (-z, -beta) and swaps F and sf. I0, I1, Ip: see ./stable-integral.ts.
  * The integrals come from Gauss-Legendre panels in theta with a derived error bound (./stable-panels.ts, their
  * rectangles' bounds on log V tightened by ./stable-box.ts, which also keeps them usable next to alpha = 1): the shared
- * panels for |alpha - 1| >= 9e-4 and for alpha = 1 with |log h| <= 4000, else panels of the point's own placed at its
+ * panels (from the middle of the theta interval, up to their cap) and for alpha = 1 with |log h| <= 4000, else panels of the point's own placed at its
  * window. alpha = 1 far out (|z| >= 30) takes its tail series with a derived remainder (./stable-one-tail.ts) first.
  * Where the panels' bound is above PANELS_REL of a value, the value comes from another rule (the Gauss rule in log V
  * next to alpha = 1, ./stable-near-one.ts, far out at alpha = 1, ./stable-far.ts, else the grid, ./stable-integral.ts)
@@ -168,12 +169,6 @@ function atZeta(alpha: number, beta: number, out: DirectPoint) {
  * the rounding of log h = alpha/(alpha - 1) log z alone (eps |log h| in v) puts 2e-11 on the density at alpha = 0.999
  */
 const PANELS_REL = 1e-9;
-/**
- * |alpha - 1| below which alpha != 1 skips the panels: log V then spans thousands of units per 1/|alpha - 1| and the
- * panels needed to reach a window run into the store's cap (at 1.0001, 1 000 points took 25-40 ms CPU, against
- * 12-17 ms for the Gauss rule in log V, whose errors are estimates)
- */
-const PANELS_MIN_DIST = 9e-4;
 const panelSides = new Map<string, PanelSide>();
 function panelSideOf(alpha: number, beta: number): PanelSide {
   const key = `${alpha}:${beta}`;
@@ -220,8 +215,10 @@ function sideAt(alpha: number, beta: number, z: number, out: DirectPoint, dz: nu
   if (!(ps.side.L > 0)) r = { I0: 0, I1: 0, Ip: 0, e0: 0, e1: 0, ep: 0, nodes: 0 };
   else {
     // the shared panels; where they cannot reach (their cap, next to alpha = 1) the point's own at its window
-    let pan = Math.abs(alpha - 1) >= PANELS_MIN_DIST ? stablePanels(ps, lh, Infinity, dl) : null;
+    let pan = stablePanels(ps, lh, Infinity, dl);
     if (!pan) pan = stableWindowPanels(ps, lh, dl);
+    // a light side far out: the low half's panels of the point's own, fitted to exp(-e^v) at the end (./stable-light.ts)
+    if (!(pan && within(pan, PANELS_REL)) && Number.isFinite(ps.side.wLowEnd)) pan = stableLightPanels(ps, lh, dl) ?? pan;
     if (pan && within(pan, PANELS_REL)) r = pan;
     else {
       near = stableNearOne(alpha, beta, lh);
