@@ -55,7 +55,7 @@ export function solveLattice(model: CompiledModel, origin: number, step: number,
     if (N > MAX_LATTICE) N = MAX_LATTICE;
     const p = latticeByFft(model, origin, step, k0, N);
     const est = aliasEstimate(p, Number.isFinite(lo) && origin + k0 * step <= lo, Number.isFinite(hi) && origin + (k0 + N - 1) * step >= hi);
-    const round = 16 * Number.EPSILON * Math.sqrt(N) + 1e-14;
+    const round = latticeRounding(model, origin + k0 * step, step, N);
     out = {
       table: { origin: origin + k0 * step, step, p, tailMass: est },
       errorPmf: 2 * est + round,
@@ -72,6 +72,36 @@ export function solveLattice(model: CompiledModel, origin: number, step: number,
     N *= 2;
   }
   return out!;
+}
+
+/**
+ * Rounding of latticeByFft's pmf per lattice point, derived for its steps (u = eps/2; every |phi_j| <= 1, so
+ * (1/N) sum |phi_j| <= 1 and each step's relative error per term is one per unit of the pmf):
+ *  - t_j = 2 pi jj / (N step) within 4 u of itself (2 pi, the product, N step, the division); the CF taken there is off
+ *    from phi(t_j) e^{-i t_j x0} by at most |t_j - t^_j| E|X - x0| (d/dt E e^{it(X - x0)} = E[i (X - x0) e^{it(X - x0)}]),
+ *    with E|X - x0| <= sqrt(kappa_2 + (kappa_1 - x0)^2) (Cauchy-Schwarz), or kappa_1 + |x0| on [0, inf) without a
+ *    variance; none without a mean (the bound is then Infinity);
+ *  - the phase -t^_j x0 one rounding (u |t_j x0|), cos and sin within an ulp each (2 u) and the complex product
+ *    2 sqrt(2) u (Higham, Accuracy and Stability of Numerical Algorithms, 2nd ed., sec. 3.6): with |t_j| <= pi/step,
+ *    u ((pi/step)(4 E|X - x0| + |x0|) + 6) per term, plus the CF's own declared error;
+ *  - the transform: Higham sec. 24.1, Thm 24.2 (radix 2, twiddles off by at most mu), ||y^ - y||_2 <= log2(N) eta
+ *    ||y||_2 / (1 - log2(N) eta), eta = mu + gamma_4 (sqrt(2) + mu); fft.js (radix 4, each stage the work of two radix-2
+ *    levels, twiddles from Math.cos/sin of 2 pi k/N, mu <= (2 pi + 2) u) gives eta <= 16 u; per output, the levels'
+ *    errors are at most eta times the absolute sum of the inputs they combine, which partition the inputs: log2(N) eta
+ *    per unit of (1/N) sum |x_j| <= 1.
+ * This is the pmf's bound per point; the cdf's (a sum of up to N of them) takes sqrt(N) times it: ||e||_1 over a run of
+ * points <= sqrt(N) ||e||_2, and both parts have ||e||_2 at most the same per-term bound (||F d||_2 = sqrt(N) ||d||_2).
+ */
+export function latticeRounding(model: CompiledModel, x0: number, step: number, N: number): number {
+  const u = Number.EPSILON / 2;
+  const [k1, k2] = model.cumulants(2);
+  let spread = Infinity;
+  if (k1 !== null && Number.isFinite(k1) && k2 !== null && Number.isFinite(k2)) spread = Math.sqrt(Math.max(k2, 0) + (k1 - x0) ** 2) * (1 + 4 * u);
+  else if (k1 !== null && Number.isFinite(k1) && model.support[0] >= 0) spread = (k1 + Math.abs(x0)) * (1 + 2 * u);
+  const perTerm = u * ((Math.PI / step) * (4 * spread + Math.abs(x0)) * (1 + 4 * u) + 6) + (model.cfRelError ?? 0) + (model.cfAbsError ?? 0);
+  const eta = 16 * u;
+  const levels = Math.log2(N);
+  return (perTerm + (levels * eta) / (1 - levels * eta)) * (1 + 1e-10);
 }
 
 function latticeByFft(model: CompiledModel, origin: number, step: number, k0: number, N: number): Float64Array {
