@@ -233,6 +233,26 @@ export function dampedGrid(
   const Fc = new Float64Array(count);
   const errF = new Float64Array(count);
   const errf = new Float64Array(count);
+  // the grid's own rounding beyond sumAllowance's GRID_REL (./fft.ts): the pre-rotation's angle (k + 1/2) h y0 is off
+  // by at most 3 u t_k |y0| (y0 = from - lo, h y0 and the product); h = 2 pi / (N dx) within 3 u, so the transform's
+  // exact kernel puts the values at points within 3 u N dx of the grid's, and the node (k + 1/2) h one more rounding:
+  // 4 u t_k N dx in all; each bin sums ceil(K/N) terms ((ceil(K/N) - 1) u of their moduli, Higham 2002 eq. 4.4):
+  // (h/pi) u sum |c_k| (t_k (3 |y0| + 4 N dx) + ceil(K/N))
+  const u = Number.EPSILON / 2;
+  const y0 = 3 * Math.abs(from - s.lo) + 4 * N * dx;
+  const bins = Math.ceil(s.K / N);
+  const own = (re: Float64Array, im: Float64Array) => {
+    let a = 0;
+    let at = 0;
+    for (let k = 0; k < s.K; k++) {
+      const m = Math.hypot(re[k], im[k]);
+      a += m;
+      at += m * (k + 0.5) * s.h;
+    }
+    return (s.h / Math.PI) * u * (y0 * at + bins * a) * (1 + 1e-10);
+  };
+  const ownC = own(s.cRe, s.cIm);
+  const ownP = wantPdf ? own(s.pRe, s.pIm) : 0;
   // the cdf's image bound at y holds at every larger y (aliasCdfAt is non-increasing in y): refreshed every 64 points
   let alias = s.aliasCdf;
   for (let j = 0; j < count; j++) {
@@ -243,8 +263,8 @@ export function dampedGrid(
     const kv = takenOutAt(s, from + j * dx, wantPdf, false);
     Fc[j] = Math.min(Math.max(g * gC[j] + kv.F + s.cdfShift, 0), s.Mc);
     fc[j] = wantPdf ? Math.max(g * gP[j] + kv.f, 0) : 0;
-    errF[j] = g * sumCdfAt(s, y) + alias + kv.err;
-    errf[j] = wantPdf ? g * sumPdfAt(s, y) + s.aliasPdf + kv.errf : NaN;
+    errF[j] = g * (sumCdfAt(s, y) + ownC) + alias + kv.err;
+    errf[j] = wantPdf ? g * (sumPdfAt(s, y) + ownP) + s.aliasPdf + kv.errf : NaN;
   }
   return { fc, Fc, errF, errf };
 }

@@ -7,6 +7,7 @@ import { densityBeyondWindow, imageMoments, imageTail } from "./damped-images";
 import { slopeCutoff, slopeCutoffRange, slopeEnvelope, slopeTruncationAt, slopeTruncationRange } from "./damped-slope";
 
 export { noiseOf, psiOf } from "./damped-psi";
+import { GRID_REL } from "./fft";
 
 const EPS = Number.EPSILON;
 
@@ -37,13 +38,13 @@ export function exactStep(h: number): number {
  */
 export function sumAllowance(model: CompiledModel, K: number, pointwise: Exactness): number {
   const cf = model.dampedSeverity?.count && model.support[0] === 0 ? 0 : 2 * (model.cfRelError ?? 0);
-  if (!pointwise) return 1e-14 + 8 * EPS * Math.sqrt(K) + cf;
+  if (!pointwise) return GRID_REL + cf;
   return (pointwise === "interpolated" ? FFT_REL : SUM_REL) + cf;
 }
 
 /**
  * How the sums of a solution are evaluated: false (FFT on a grid the request fixes: nodes rounded, the allowance
- * 1e-14 + 8 eps sqrt(K)), true (exact nodes, pointwise sums only: SUM_REL), "interpolated" (exact nodes, the sums by one
+ * GRID_REL plus the grid's own part, see dampedGrid), true (exact nodes, pointwise sums only: SUM_REL), "interpolated" (exact nodes, the sums by one
  * FFT on the solution's own grid, see damped-points.ts, or pointwise: FFT_REL)
  */
 export type Exactness = boolean | "interpolated";

@@ -3,6 +3,17 @@ import type { Nodes } from "./nodes";
 import { checkDeadline } from "../deadline";
 
 /**
+ * Rounding of sumOnGrid per unit of sum |c_k| (u = eps/2), the part that does not depend on the grid: the transform and
+ * the post-rotation, each radix-2 level at most about 4.5 u of the inputs' absolute sum (Higham, Accuracy and Stability
+ * of Numerical Algorithms, 2nd ed., sec. 24.1, componentwise), taken as 16 u a level for N up to 2^22 plus 32 u; the
+ * pre-rotation's drift, each block of 64 terms starting from cos and sin of its angle (2 sqrt(2) u) and each step
+ * rotating by (cos h y0, sin h y0), whose rounding and the complex product add at most 6 u (Higham sec. 3.6), 63 steps
+ * a block; the term's product 3 u. The angle's own rounding, 3 u t_k |y0|, and the bins' sums (ceil(K/N) terms a bin,
+ * Higham eq. 4.4) depend on the grid: the caller adds them (damped-eval.ts dampedGrid).
+ */
+export const GRID_REL = ((16 * 22 + 32 + 6 * 63 + 3 + 3) * Number.EPSILON) / 2;
+
+/**
  * The mid-point Gil-Pelaez / density sums of ./pointwise evaluated on a whole grid x_j = x0 + j dx (j < N)
  * with one FFT each, when h dx = 2 pi / N:
  *   e^{-i t_k x_j} = e^{-i t_k (x0 - c)} e^{-i pi j / N} e^{-2 pi i k j / N},

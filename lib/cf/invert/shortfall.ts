@@ -79,7 +79,17 @@ export function shortfallLight(
   if (q < b) {
     const r = integrateSf(sol.nodes, sol.part.center, q, b);
     part = r.value;
-    intRound = (1e-14 + 8 * Number.EPSILON * Math.sqrt(sol.nodes.K)) * r.absSum + 8 * Number.EPSILON * Math.abs(b - q);
+    // integrateSf's rounding (./pointwise.ts) per unit of its absSum (the terms' moduli 2 |phi_k| w_k / pi, u = eps/2):
+    // each phase t_k y (t_k, y = x - center and the product: 3 u |t_k y|) at both ends with cos and sin within an ulp,
+    // the differences, the complex product and the weight w_k (12 u with the ends' cos/sin), the blocked, compensated
+    // sum (66 u of the moduli's sum, see integrateSf; Higham, Accuracy and Stability of Numerical Algorithms, 2nd ed.,
+    // eq. 4.4 and sec. 4.3; the compensation's second-order term below K u^2) and the division by pi:
+    // u (1.5 (|y_q| + |y_b|) phaseSum + (79 + K eps) absSum), phaseSum the moduli weighted by t_k
+    const K = sol.nodes.K;
+    const c = sol.part.center;
+    intRound =
+      (Number.EPSILON / 2) * (1.5 * (Math.abs(q - c) + Math.abs(b - c)) * r.phaseSum + (79 + K * Number.EPSILON) * r.absSum) * (1 + 1e-10) +
+      8 * Number.EPSILON * Math.abs(b - q);
     for (const k of sol.part.kernels) part += kernelSfIntegral(k, q) - kernelSfIntegral(k, b);
   }
   let atomPart = 0;
@@ -185,17 +195,27 @@ export function heavyShortfall(
     }
     return cache[lev];
   };
-  // sum_k |phi_k| / t_k^2 per level (for the rounding bound; independent of q)
+  // sum_k |phi_k| / t_k^2 and sum_k |phi_k| / t_k per level (for the rounding bound; independent of q)
+  // and sum_k (k mod 64) |phi_k| / t_k^2 (the rotations since the block's start, for weightedCosSum's drift)
   const absSums: number[] = [];
+  const phaseSums: number[] = [];
+  const driftSums: number[] = [];
   const absAt = (lev: number) => {
     while (absSums.length <= lev) {
       const nd = nodesAt(absSums.length);
       let a = 0;
+      let b = 0;
+      let d = 0;
       for (let k = 0; k < nd.K; k++) {
         const tk = (k + 0.5) * nd.h;
-        a += Math.hypot(nd.re[k], nd.im[k]) / (tk * tk);
+        const m = Math.hypot(nd.re[k], nd.im[k]) / tk;
+        a += m / tk;
+        b += m;
+        d += (k & 63) * (m / tk);
       }
-      absSums.push(a);
+      absSums.push(a * (1 + 4 * Number.EPSILON));
+      phaseSums.push(b * (1 + 4 * Number.EPSILON));
+      driftSums.push(d * (1 + 4 * Number.EPSILON));
     }
     return absSums[lev];
   };
@@ -221,7 +241,16 @@ export function heavyShortfall(
         imErr += im.error;
       }
       // V is a difference of terms of size T/2: its rounding, amplified by the extrapolation below
-      round = Math.max(round, 4 * Number.EPSILON * Math.sqrt(K) * ((part.mass * T) / 2 + (2 * h * abs) / Math.PI) + 1e-14 * (2 * h * abs) / Math.PI + imErr);
+      // weightedCosSum's rounding (u = eps/2), per unit of (2h/pi) |phi_k| / t_k^2 at node k: each block of 64 starts
+      // its phase from (k + 1/2) h y (h y, y = q - center and the product: 3 u t_k |y|), cos and sin within an ulp;
+      // each rotation by (cos h y, sin h y) adds 2 u |h y| to the angle (inside the 3 u t_k |y|) and at most 6 u to
+      // the modulus (the factor's cos/sin and the complex product, Higham 2002 sec. 3.6), k mod 64 of them at node k;
+      // the term's products and the division by t_k^2 6 u; the blocked, compensated sum 66 u + K u^2; the scaling 3 u.
+      // V = mass T/2 - (2h/pi) acc rounds once more (u of each part).
+      const rel = (Number.EPSILON / 2) * (9 + 66 + 3 + K * Number.EPSILON);
+      const phase = (Number.EPSILON / 2) * (3 * Math.abs(y) * phaseSums[lev] + 6 * driftSums[lev]) * ((2 * h) / Math.PI);
+      const sumRound = rel * ((2 * h * abs) / Math.PI) + phase + (Number.EPSILON / 2) * ((part.mass * T) / 2 + Math.abs((2 * h * acc) / Math.PI));
+      round = Math.max(round, sumRound * (1 + 1e-10) + imErr);
       const amp = richardsonAmplification(exps, lev + 1);
       const row = richardsonRow(v, rows[lev - 1], exps);
       rows.push(row);
@@ -274,20 +303,27 @@ function weightedCosSum(nodes: Nodes, K: number, y: number): number {
   const th = h * y;
   const rc = Math.cos(th);
   const rs = Math.sin(th);
+  // blocks of 64 summed in turn, the block sums compensated (Neumaier): the sum's rounding is at most 65 u of the
+  // moduli's sum plus O(K u^2) (Higham 2002, eq. 4.4 and sec. 4.3), instead of (K - 1) u
   let acc = 0;
+  let comp = 0;
   let k = 0;
   while (k < K) {
     const a0 = (k + 0.5) * th;
     let c = Math.cos(a0);
     let sn = Math.sin(a0);
     const end = Math.min(K, k + 64);
+    let blk = 0;
     for (; k < end; k++) {
       const tk = (k + 0.5) * h;
-      acc += (re[k] * c + im[k] * sn) / (tk * tk);
+      blk += (re[k] * c + im[k] * sn) / (tk * tk);
       const nc = c * rc - sn * rs;
       sn = sn * rc + c * rs;
       c = nc;
     }
+    const t = acc + blk;
+    comp += Math.abs(acc) >= Math.abs(blk) ? acc - t + blk : blk - t + acc;
+    acc = t;
   }
-  return acc;
+  return acc + comp;
 }
