@@ -1,6 +1,6 @@
 import type { StableIntegrals } from "./stable-integral";
-import { AF, BF, IMAX_FINE, makePanel, nodesOf, PanelStore, type Box, type PanelSide } from "./stable-panel-store";
-import { finish, half, kernelAt, lowCut, panel, pointPool, sharedStores, uWhere, type Sums } from "./stable-panels";
+import { AF, BF, IMAX_FINE, makePanel, nodesOf, type Box, type PanelSide } from "./stable-panel-store";
+import { finish, half, kernelAt, lowCut, panel, pointPool, sharedStores, windowStore, type Sums } from "./stable-panels";
 
 /**
  * The integrals of ./stable-panels.ts on a light side (|beta| = 1 where log V has a finite low end, v(end) = log h)
@@ -93,7 +93,7 @@ export function stableLightPanels(ps: PanelSide, lhAbs: number, dl = 0): StableI
   const mark = { ...acc };
   if (!half(sharedStores(ps)[1], lhAbs, V0, acc)) {
     Object.assign(acc, mark);
-    if (!half(new PanelStore(ps, 1, uWhere(side, 1, V0 - 1 - (lhAbs + side.wRef)), pointPool), lhAbs, V0, acc)) return null;
+    if (!half(windowStore(ps, 1, lhAbs), lhAbs, V0, acc)) return null;
   }
   return finish(acc);
 }

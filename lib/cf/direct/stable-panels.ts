@@ -295,22 +295,40 @@ export function stablePanels(ps: PanelSide, lhAbs: number, rel: number, dl = 0):
 }
 
 /**
- * The same integrals with panels of this point's own, started next to its window instead of marched from the middle
- * (the shared stores stop at their cap far out at alpha = 1 and next to it, where the window sits at u ~ 1/|log h|):
- * at each end the start is where v is about one unit beyond the window on the middle's side (Newton on log V in
- * log u), and what lies between it and the middle is bounded in bulk by half() like any region beyond the window.
- * Where the solve misses, the start stays at the middle. The bounds are the panels' own (derived); null when the
- * panels cannot be placed.
+ * The same integrals with panels started next to the window instead of marched from the middle (the shared stores
+ * stop at their cap far out at alpha = 1 and next to it, where log V spans ~1e5 units and the body's windows lie far
+ * from the middle): at each end the start is where log V is about a level T_b on the middle's side of the window,
+ * T_b a multiple of BUCKET units of v (Newton on log V in log u), so the points whose windows lie in one bucket share
+ * one store (panels and nodes kept, as the shared ones); what lies between the start and the middle is bounded in bulk
+ * by half() like any region beyond the window. Where the solve misses, the start stays at the middle. The bounds are
+ * the panels' own (derived); null when the panels cannot be placed.
  */
 export function stableWindowPanels(ps: PanelSide, lhAbs: number, dl = 0): StableIntegrals | null {
-  const side = ps.side;
-  const lh = lhAbs + side.wRef;
-  const V0 = lowCut(lhAbs);
+  return integrals([windowStore(ps, 0, lhAbs), windowStore(ps, 1, lhAbs)], lhAbs, dl);
+}
+
+/** width in v of the levels at which the window stores start (a point's store marches at most this far to its window) */
+const BUCKET = 256;
+const buckets = new Map<PanelSide, [Map<number, PanelStore>, Map<number, PanelStore>]>();
+/** the store of end `from` whose start serves the window at log h = lhAbs (see stableWindowPanels) */
+export function windowStore(ps: PanelSide, from: 0 | 1, lhAbs: number): PanelStore {
+  const lh = lhAbs + ps.side.wRef;
   // from the low end v falls towards the end (the middle's side lies above V1), from the high end it rises
-  const s0 = uWhere(side, 0, V1 + 1 - lh);
-  const s1 = uWhere(side, 1, V0 - 1 - lh);
-  pointPool.reset();
-  return integrals([new PanelStore(ps, 0, s0, pointPool), new PanelStore(ps, 1, s1, pointPool)], lhAbs, dl);
+  const level = from === 0 ? BUCKET * Math.ceil((V1 + 1 - lh) / BUCKET) : BUCKET * Math.floor((lowCut(lhAbs) - 1 - lh) / BUCKET);
+  let m = buckets.get(ps);
+  if (!m) {
+    if (buckets.size > 8) buckets.clear();
+    m = [new Map(), new Map()];
+    buckets.set(ps, m);
+  }
+  let st = m[from].get(level);
+  if (!st) {
+    // a law's stores stay within a few MB
+    if (m[from].size > 256) m[from].clear();
+    st = new PanelStore(ps, from, uWhere(ps.side, from, level));
+    m[from].set(level, st);
+  }
+  return st;
 }
 
 /** the node buffers of one point's own panels (reused from point to point) */
