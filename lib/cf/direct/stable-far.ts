@@ -21,7 +21,9 @@ const HALF_PI = Math.PI / 2;
  *
  * Error estimate: the difference between the rules of N_HI and N_LO nodes (the lower rule's error dominates it),
  * times 10, plus the effect of each node's residual in log V, plus the rounding of the sums. The caller falls back
- * to the grid when the estimate is above 1e-10 of the value.
+ * to the grid when the estimate is above 1e-10 of the value. The estimate is never reported as a bound: far out the
+ * tail series (./stable-one-tail.ts) answers, and where this rule's value is taken ./stable.ts bounds it by its
+ * distance to panels with derived bounds (derivedBound).
  */
 
 /** node counts of the two rules; far out the error of the N-node rule falls like (width / |w|)^(2N) */

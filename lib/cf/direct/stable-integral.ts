@@ -11,7 +11,8 @@ import { DY, TAIL_TERMS, gridFor, type Row } from "./stable-grid";
  * every h and I1 never forms 1 - exp(-hV) by subtraction. Each is a trapezoid sum on a uniform grid in
  * y = w + log(Theta_low / Theta_high), exponentially convergent for integrands analytic in a strip (Trefethen &
  * Weideman 2014, SIAM Review 56(3), sec. 5). Error estimate: the difference to the sum on every second node,
- * plus rigorous bounds on the parts left out, plus the effect of each node's error in w.
+ * plus rigorous bounds on the parts left out, plus the effect of each node's error in w. Never reported as a bound:
+ * ./stable.ts takes the grid's value only where the panels' derived bound is loose and bounds it by comparison.
  *
  * The far left of the kernel (v = log h + w below V_TAIL, where K(v) = sum_k (-1)^k e^{(k+1) v} / k! converges fast)
  * is summed from prefix sums of the stored grid: sum_{i <= j} c_i e^{m v_i} = e^{m v_j} sum_{i <= j} c_i e^{m (w_i - w_j)},

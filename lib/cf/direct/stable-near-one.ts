@@ -16,7 +16,8 @@ import { stableSide, type StableSide } from "./stable-kernel";
  *
  * Error estimate: the difference between the rules of 10 and 7 nodes (the lower rule's error dominates it), times 10,
  * plus the effect of each node's residual in log V and the rounding of the sums. The caller falls back to the grid
- * when the estimate is above 1e-11 of a value.
+ * when the estimate is above 1e-11 of a value. The estimate is never reported as a bound: ./stable.ts takes this
+ * rule's value only where the panels' derived bound is loose, and bounds it by its distance to them (derivedBound).
  */
 
 /** the rule is tried for |alpha - 1| up to this (the scale 1/|alpha - 1| of Theta is then >= 20 kernel widths) */
