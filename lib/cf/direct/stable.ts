@@ -95,6 +95,8 @@ const NEAR_ZETA = 1e-12;
 /** Standard S1 stable (scale 1, location 0) at z, z known to within dz (the density's bound takes its effect). */
 export function stdAt(alpha: number, beta: number, z: number, out: DirectPoint, dz = 0): void {
   lastRoute = "derived";
+  // alpha = 1, beta = 0: the Cauchy law (stableDirect never comes here with it; log h would be infinite)
+  if (alpha === 1 && beta === 0) return cauchyDirect(0, 1)!.at(z, out);
   if (alpha === 1) {
     if (beta < 0) {
       oneAt(-beta, -z, out, dz);
