@@ -3,6 +3,7 @@ import type { StableIntegrals } from "./stable-integral";
 import { stablePanels, stableWindowPanels } from "./stable-panels";
 import { sinRange, type Box, type PanelSide } from "./stable-panel-store";
 import { oneTightBox } from "./stable-box";
+import { stableLightPanels } from "./stable-light";
 
 const HALF_PI = Math.PI / 2;
 
@@ -331,4 +332,9 @@ export function stableOnePanels(beta: number, lhAbs: number, rel = 1e-11, dl = 0
 export function stableOneWindow(beta: number, lhAbs: number, dl = 0): StableIntegrals | null {
   if (!(beta > 0 && beta <= 1)) return null;
   return stableWindowPanels(panelSideFor(beta), lhAbs, dl);
+}
+
+/** beta = 1 on its light side far out, by ./stable-light.ts (null where it does not apply or cannot place its panels) */
+export function stableOneLight(lhAbs: number, dl = 0): StableIntegrals | null {
+  return stableLightPanels(panelSideFor(1), lhAbs, dl);
 }

@@ -1,5 +1,5 @@
 import { stableIntegrals, type StableIntegrals } from "./stable-integral";
-import { stableOneFar, stableOnePanels, stableOneWindow } from "./stable-far";
+import { stableOneFar, stableOneLight, stableOnePanels, stableOneWindow } from "./stable-far";
 import { stableNearOne } from "./stable-near-one";
 import { stableSide, tanHalfPi } from "./stable-kernel";
 import { stablePanels, stableWindowPanels, within } from "./stable-panels";
@@ -304,7 +304,9 @@ function oneAt(beta: number, z: number, out: DirectPoint, dz: number) {
   // by comparison
   let r = Math.abs(lh) <= PANELS_MAX_LH ? stableOnePanels(beta, lh, ONE_REL, dl) : null;
   if (!r) {
-    const win = stableOneWindow(beta, lh, dl);
+    let win = stableOneWindow(beta, lh, dl);
+    // beta = 1 on its light side (finite end of log V): the low half fitted to exp(-e^v) at the end (./stable-light.ts)
+    if (beta === 1 && !(win && within(win, ONE_REL))) win = stableOneLight(lh, dl) ?? win;
     r = win && within(win, ONE_REL) ? win : derivedBound(stableOneFar(beta, lh) ?? stableIntegrals(1, beta, lh), win);
   }
   const dlh = 4 * Number.EPSILON * (1 + Math.abs(lh));
