@@ -17,8 +17,10 @@ async function shutdown(code: number) {
   if (stopping) return;
   stopping = true;
   log("stopping...");
-  // Everything at once, so a supervisor's SIGKILL after its grace period finds nothing half-stopped.
-  await Promise.all([stopChild(next), stopChild(worker), services?.stop()]);
+  // Two phases, each all at once: the web server and the worker first (they flush usage to the database and Redis
+  // on SIGTERM), then the services together, so a supervisor's SIGKILL after its grace finds nothing waiting its turn.
+  await Promise.all([stopChild(next), stopChild(worker)]);
+  await services?.stop();
   log("stopped");
   process.exit(code);
 }

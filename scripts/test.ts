@@ -31,7 +31,8 @@ let cleaned = false;
 async function cleanup() {
   if (cleaned) return;
   cleaned = true;
-  await Promise.all([stopChild(current), stopChild(next), stopChild(worker), services?.stop()]);
+  await Promise.all([stopChild(current), stopChild(next), stopChild(worker)]);
+  await services?.stop();
   rmSync(root, { recursive: true, force: true });
 }
 
