@@ -10,6 +10,7 @@ import { real, pos, withDist } from "./spec-types";
 import { withCumulantErrors } from "../cumulant-bounds";
 import * as CE from "./cumulant-errors";
 import { estList, rawToCumulantsE } from "../moment-error";
+import { nigDirect, varianceGammaDirect } from "../direct/vg-nig";
 import { gammaPartial, lognormalPartial, normalLayerMoment, paretoPartial, uniformLayerMoment, weibullPartial, withLayerMoment } from "./layer-moments";
 
 const gammaWithLayers = (shape: number, rate: number) => {
@@ -197,6 +198,7 @@ export const CONTINUOUS_SPECS: Pick<Record<FamilyName, FamilySpec>, "normal" | "
     cfMethod: "closed form",
     discrete: false,
     source: "Madan, Carr & Chang (1998), Eur. Finance Review 2 (recalled from memory)",
+    direct: (p) => varianceGammaDirect(p.sigma as number, p.nu as number, p.theta as number, (p.loc as number | undefined) ?? 0),
     build: (p) => withCumulantErrors(varianceGamma(p.sigma, p.nu, p.theta, p.loc ?? 0), CE.varianceGammaE(p.sigma, p.nu, p.theta, p.loc ?? 0)),
     tailIndex: "none",
   },
@@ -210,6 +212,7 @@ export const CONTINUOUS_SPECS: Pick<Record<FamilyName, FamilySpec>, "normal" | "
     cfMethod: "closed form",
     discrete: false,
     source: "Barndorff-Nielsen (1997), Scand. J. Statist. 24, sec. 2",
+    direct: (p) => nigDirect(p.alpha as number, p.beta as number, p.delta as number, (p.mu as number | undefined) ?? 0),
     build: (p) => withCumulantErrors(nig(p.alpha, p.beta, p.delta, p.mu ?? 0), CE.nigE(p.alpha, p.beta, p.delta, p.mu ?? 0)),
     check: (p) => (Math.abs(p.beta) < p.alpha ? null : { param: "beta", detail: `nig.beta (${p.beta}) must satisfy |beta| < alpha (${p.alpha}).` }),
     tailIndex: "none",

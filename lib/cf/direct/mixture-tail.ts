@@ -1,0 +1,178 @@
+import erfc from "@stdlib/math-base-special-erfc";
+import erfcx from "@stdlib/math-base-special-erfcx";
+import gammainc from "@stdlib/math-base-special-gammainc";
+import { lgamma, lgammaErr } from "../families/special";
+import { logBesselKScaledBounded, type Bounded } from "../families/bessel-bounded";
+import { ELEM } from "./law";
+
+/**
+ * Tail probabilities of the normal variance-mean mixtures X = loc + theta V + sigma sqrt(V) W (W standard normal):
+ * variance-gamma (V gamma; Madan, Carr & Chang 1998, sec. 2) and NIG (V inverse Gaussian; Barndorff-Nielsen 1997,
+ * sec. 2). With V = s0 e^t,
+ *   P(X > x) = T(p, q) = int rho(t) Qbar(p e^{-t/2} - q e^{t/2}) dt,  p = (x - loc)/(sigma sqrt s0), q = theta sqrt s0 / sigma,
+ * Qbar the standard normal upper tail, and P(X <= x) = T(-p, -q). rho is the density of t = log(V/s0):
+ *   gamma (V/s0 ~ Gamma(k, 1), s0 = nu): rho = exp(k t - e^t)/Gamma(k);
+ *   inverse Gaussian (mean delta/gamma, shape delta^2; s0 = delta/gamma, D = delta gamma): rho = sqrt(D/2pi) e^{-t/2 - D (cosh t - 1)}.
+ * T is the trapezoidal rule on the full line, whose error is at most 2M/(e^{2 pi a/h} - 1) (Trefethen & Weideman 2014,
+ * Thm 5.1). M bounds int |f(t + ib)| dt for |b| < a: |rho(t + ib)| <= rho_a(t) (cos b >= cos a in the e^t terms), and
+ * with w = p e^{-t/2} - q e^{t/2}, Re w(t + ib) = cos(b/2) w(t), |erfc(z)| <= e^{(Im z)^2} erfc(Re z) (integrate
+ * e^{-s^2} along z + [0, inf)), so |Qbar(w)| <= [w(t) < 0] + exp(-(cos b/2)(p^2 e^{-t} + q^2 e^t) + pq) / 2 (for
+ * Re w < 0 through Qbar(w) = 1 - Qbar(-w)). Both pieces integrate in closed form: int e^{nu t - P e^t - Q e^{-t}} dt
+ * = 2 (Q/P)^{nu/2} K_nu(2 sqrt(PQ)) (DLMF 10.32.10), and the mass of rho_a on a half line by the incomplete gamma or
+ * by bounding the e^{-t} (or e^t) factor at the end. The sum stops where the rest is below a geometric series: log rho is
+ * concave, so rho(t) <= rho(t_R) e^{psi'(t_R)(t - t_R)}, and Qbar(w(t)) <= Qbar(w(t_R)) while w is monotone that way.
+ */
+export type Mixing = { kind: "gamma"; k: number } | { kind: "ig"; D: number };
+
+const U = Number.EPSILON / 2;
+const EPS_T = 1e-18;
+
+/** log of int e^{nu t - P e^t - Q e^{-t}} dt (P > 0, Q >= 0), an upper bound (DLMF 10.32.10) */
+function logKInt(nu: number, P: number, Q: number): number {
+  if (Q === 0) return lgamma(nu) - nu * Math.log(P) + 1e-12;
+  if (nu === -0.5) return 0.5 * Math.log(Math.PI / Q) - 2 * Math.sqrt(P * Q) + 1e-12;
+  const z = 2 * Math.sqrt(P * Q);
+  const k = logBesselKScaledBounded(nu, z);
+  return Math.LN2 + (nu / 2) * Math.log(Q / P) + k.v + k.e - z + 1e-12;
+}
+
+const lse = (a: number, b: number) => (a === -Infinity ? b : b === -Infinity ? a : Math.max(a, b) + Math.log1p(Math.exp(-Math.abs(a - b))));
+
+/** log M for the strip |Im t| < a (c = cos a); c = 1 gives an upper bound on T itself */
+export function logStripBound(mix: Mixing, p: number, q: number, c: number): number {
+  let m1: number;
+  let m2 = -Infinity;
+  const pq = p * q;
+  if (mix.kind === "gamma") {
+    const k = mix.k;
+    m1 = -Math.LN2 - lgamma(k) + pq + logKInt(k, c * (1 + (q * q) / 2), (c * p * p) / 2);
+  } else {
+    const D = mix.D;
+    m1 = -Math.LN2 + 0.5 * Math.log(D / (2 * Math.PI)) + D + pq + logKInt(-0.5, (c * (D + q * q)) / 2, (c * (D + p * p)) / 2);
+  }
+  // the region w(t) < 0, i.e. p < q e^t: all t, t > t0 or t < t0 with e^{t0} = p/q
+  const side = q > 0 ? (p <= 0 ? "all" : "right") : p >= 0 ? "none" : q === 0 ? "all" : "left";
+  if (side !== "none") {
+    const E0 = side === "all" ? 0 : p / q;
+    if (mix.kind === "gamma") {
+      const k = mix.k;
+      const frac = side === "all" ? 1 : gammainc(c * E0, k, true, side === "right");
+      m2 = Math.log(Math.min(1, frac * (1 + 1e-10) + 1e-300)) - k * Math.log(c);
+    } else {
+      const D = mix.D;
+      const all = D * (1 - c) - 0.5 * Math.log(c);
+      const lc = 0.5 * Math.log(D / (2 * Math.PI)) + D + Math.log(2 / (D * c));
+      // t > t0: e^{-t/2} e^{-D c e^t / 2} integrated from E0 (dropping e^{-t}); t < t0 likewise in e^{-t}
+      const half = side === "right" ? lc - 1.5 * Math.log(E0) - (D * c * E0) / 2 : side === "left" ? lc + 0.5 * Math.log(E0) - (D * c) / (2 * E0) : Infinity;
+      m2 = Math.min(all, half);
+    }
+  }
+  return lse(m1, m2);
+}
+
+/** log Qbar(w) by erfc, or erfcx beyond w = 1 (keeps it finite far out) */
+function logQbar(w: number): number {
+  if (w > 1) return Math.log(0.5 * erfcx(w / Math.SQRT2)) - 0.5 * w * w;
+  return Math.log(0.5 * erfc(w / Math.SQRT2));
+}
+
+/**
+ * T(p, q) with an absolute error bound. dp, dq: bounds on the rounding of p and q (the law's exact arguments move T by
+ * at most E[phi(w) (|dp| e^{-t/2} + |dq| e^{t/2})], counted term by term with phi(w)/Qbar(w) <= max(w, 0) + 1,
+ * A&S 7.1.13 as in ./law.ts logErfcxSlope); dPar: relative rounding of k or D.
+ */
+export function mixtureTail(mix: Mixing, p: number, q: number, dp: number, dq: number, dPar: number): Bounded {
+  const gammaMix = mix.kind === "gamma";
+  const k = gammaMix ? mix.k : 0;
+  const D = gammaMix ? 0 : mix.D;
+  const logC = gammaMix ? -lgamma(k) : 0.5 * Math.log(D / (2 * Math.PI));
+  // constants' errors: lgamma(k) and its move with k's rounding (|psi(k)| <= |log k| + 1/k), or log C
+  const eC = gammaMix ? lgammaErr(k) + 2 * U * Math.abs(logC) + dPar * k * (Math.abs(Math.log(k)) + 1 / k) : 4 * U * (1 + Math.abs(logC)) + dPar;
+  const psi = (t: number) => (gammaMix ? k * t - Math.exp(t) : -0.5 * t - 2 * D * Math.sinh(0.5 * t) ** 2);
+  const dpsi = (t: number) => (gammaMix ? k - Math.exp(t) : -0.5 - D * Math.sinh(t));
+  // the scale of T and the strip: log M(a) - log M(0) is about (1 - cos a) Z + (gamma) k log(1/cos a), Z = 2 sqrt(PQ) of
+  // the Chernoff piece, so h = 2 pi a / (L + a^2 Z / 2) is widest near a = sqrt(2L/Z); the exact M is taken at three a
+  const logEst = logStripBound(mix, p, q, 1);
+  const Z = gammaMix ? 2 * Math.sqrt((1 + (q * q) / 2) * ((p * p) / 2)) + k : Math.sqrt((D + q * q) * (D + p * p)) + D;
+  const aStar = Math.min(1.4, Math.sqrt((2 * 42) / Math.max(Z, 1e-300)));
+  let h = 0;
+  let logM = 0;
+  let aBest = 0;
+  for (const a of [aStar / 1.6, aStar, Math.min(1.45, aStar * 1.6)]) {
+    const lm = logStripBound(mix, p, q, Math.cos(a));
+    const L = Math.LN2 + lm - logEst - Math.log(EPS_T);
+    const hh = (2 * Math.PI * a) / Math.max(L, 1);
+    if (hh > h) {
+      h = hh;
+      logM = lm;
+      aBest = a;
+    }
+  }
+  // start at the peak of rho e^{-w^2/2} (the saddle of the Chernoff form), rounded to a multiple of h
+  const E = gammaMix
+    ? (k + Math.sqrt(k * k + 2 * p * p * (1 + (q * q) / 2))) / (2 + q * q)
+    : (-0.5 + Math.sqrt(0.25 + (D + q * q) * (D + p * p))) / (D + q * q);
+  const t0 = Math.round(Math.log(E) / h) * h;
+  const logF = (t: number) => psi(t) + logQbar(p * Math.exp(-0.5 * t) - q * Math.exp(0.5 * t));
+  const G = logF(t0);
+  let s = 0;
+  let run = 0;
+  let terr = 0;
+  let tailR = Infinity;
+  let tailL = Infinity;
+  const term = (t: number): number => {
+    const ep = Math.exp(-0.5 * t);
+    const eq = Math.exp(0.5 * t);
+    const w = p * ep - q * eq;
+    const ps = psi(t);
+    const lq = logQbar(w);
+    const v = Math.exp(ps + lq - G);
+    // errors in log f: psi's rounding (and k's or D's), Qbar's ELEM, w's rounding (with p's and q's) times the Mills
+    // ratio bound, the node's rounding times |d log f/dt|, the sum ps + lq - G and exp
+    const mills = Math.max(w, 0) + 1;
+    const wAbs = Math.abs(p) * ep + Math.abs(q) * eq;
+    const dw = 4 * U * wAbs + dp * ep + dq * eq;
+    const dPs = gammaMix ? 3 * U * (Math.abs(k * t) + Math.exp(t)) * (1 + Math.abs(t)) + dPar * k * Math.abs(t) : 8 * U * (0.5 * Math.abs(t) + D * Math.cosh(t)) * (1 + Math.abs(t)) + dPar * D * (Math.cosh(t) - 1);
+    const slope = Math.abs(dpsi(t)) + mills * 0.5 * wAbs;
+    const d = dPs + ELEM + mills * dw + U * 2 * Math.abs(t) * slope + 2 * U * (Math.abs(ps) + Math.abs(lq) + Math.abs(G)) + U + U * w * w;
+    terr += v * (d < 0.01 ? d * 1.01 : Math.expm1(d));
+    return v;
+  };
+  // right of t0
+  for (let j = 0; j < 200000; j++) {
+    const t = t0 + j * h;
+    const v = term(t);
+    s += v;
+    run += U * s;
+    const r = -dpsi(t);
+    if (r > 0) {
+      // w nondecreasing from t on when q <= 0 and w'(t) >= 0 (-q e^t >= p)
+      const mono = q <= 0 && -q * Math.exp(t) >= p;
+      const base = mono ? v : Math.exp(psi(t) - G);
+      const z = Math.exp(-r * h);
+      tailR = (base * 1.01 * z) / (1 - z);
+      if (tailR <= 2 ** -60 * s || (base === 0 && j > 0)) break;
+    }
+  }
+  for (let j = 1; j < 200000; j++) {
+    const t = t0 - j * h;
+    const v = term(t);
+    s += v;
+    run += U * s;
+    const r = dpsi(t);
+    if (r > 0) {
+      // w nonincreasing up to t when p >= 0 and p + q e^t >= 0
+      const mono = p >= 0 && p + q * Math.exp(t) >= 0;
+      const base = mono ? v : Math.exp(psi(t) - G);
+      const z = Math.exp(-r * h);
+      tailL = (base * 1.01 * z) / (1 - z);
+      if (tailL <= 2 ** -60 * s || (base === 0 && j > 1)) break;
+    }
+  }
+  const logV = G + logC + Math.log(s * h);
+  const value = Math.exp(logV);
+  const disc = (2 * Math.exp(logM - logV)) / Math.expm1((2 * Math.PI * aBest) / h);
+  const rel = (tailR + tailL + terr + run) / s + disc + eC * 1.01 + 2 * U * (Math.abs(G) + Math.abs(logC) + Math.abs(Math.log(s * h)) + Math.abs(logV)) + 3 * U;
+  const e = value * (rel < 0.5 ? rel * 1.01 : Math.expm1(rel));
+  return { v: value, e: value === 0 ? Number.MIN_VALUE : e };
+}
