@@ -3,6 +3,7 @@ import erfcx from "@stdlib/math-base-special-erfcx";
 import gammainc from "@stdlib/math-base-special-gammainc";
 import { lgamma, lgammaErr } from "../families/special";
 import { logBesselKScaledBounded, type Bounded } from "../families/bessel-bounded";
+import { checkDeadline } from "../deadline";
 import { ELEM } from "./law";
 
 /**
@@ -78,8 +79,8 @@ function logQbar(w: number): number {
 
 /**
  * T(p, q) with an absolute error bound. dp, dq: bounds on the rounding of p and q (the law's exact arguments move T by
- * at most E[phi(w) (|dp| e^{-t/2} + |dq| e^{t/2})], counted term by term with phi(w)/Qbar(w) <= max(w, 0) + 1,
- * A&S 7.1.13 as in ./law.ts logErfcxSlope); dPar: relative rounding of k or D.
+ * at most E[phi(w) (|dp| e^{-t/2} + |dq| e^{t/2})], counted term by term with phi(w)/Qbar(w) <= w + 1 for w > 0
+ * (A&S 7.1.13, as in ./law.ts logErfcxSlope) and <= 2 phi(w) for w <= 0); dPar: relative rounding of k or D.
  */
 export function mixtureTail(mix: Mixing, p: number, q: number, dp: number, dq: number, dPar: number): Bounded {
   const gammaMix = mix.kind === "gamma";
@@ -91,14 +92,14 @@ export function mixtureTail(mix: Mixing, p: number, q: number, dp: number, dq: n
   const psi = (t: number) => (gammaMix ? k * t - Math.exp(t) : -0.5 * t - 2 * D * Math.sinh(0.5 * t) ** 2);
   const dpsi = (t: number) => (gammaMix ? k - Math.exp(t) : -0.5 - D * Math.sinh(t));
   // the scale of T and the strip: log M(a) - log M(0) is about (1 - cos a) Z + (gamma) k log(1/cos a), Z = 2 sqrt(PQ) of
-  // the Chernoff piece, so h = 2 pi a / (L + a^2 Z / 2) is widest near a = sqrt(2L/Z); the exact M is taken at three a
+  // the Chernoff piece, so h = 2 pi a / (L + a^2 Z / 2) is widest near a = sqrt(2L/Z); the exact M is taken there
   const logEst = logStripBound(mix, p, q, 1);
   const Z = gammaMix ? 2 * Math.sqrt((1 + (q * q) / 2) * ((p * p) / 2)) + k : Math.sqrt((D + q * q) * (D + p * p)) + D;
   const aStar = Math.min(1.4, Math.sqrt((2 * 42) / Math.max(Z, 1e-300)));
   let h = 0;
   let logM = 0;
   let aBest = 0;
-  for (const a of [aStar / 1.6, aStar, Math.min(1.45, aStar * 1.6)]) {
+  for (const a of [aStar]) {
     const lm = logStripBound(mix, p, q, Math.cos(a));
     const L = Math.LN2 + lm - logEst - Math.log(EPS_T);
     const hh = (2 * Math.PI * a) / Math.max(L, 1);
@@ -108,6 +109,8 @@ export function mixtureTail(mix: Mixing, p: number, q: number, dp: number, dq: n
       aBest = a;
     }
   }
+  // a strip bound that cannot be formed (parameters beyond the doubles' range): the probability is only known to be in [0, 1]
+  if (!(h > 0 && Number.isFinite(h) && Number.isFinite(logM))) return { v: 0.5, e: 0.5 };
   // start at the peak of rho e^{-w^2/2} (the saddle of the Chernoff form), rounded to a multiple of h
   const E = gammaMix
     ? (k + Math.sqrt(k * k + 2 * p * p * (1 + (q * q) / 2))) / (2 + q * q)
@@ -129,17 +132,19 @@ export function mixtureTail(mix: Mixing, p: number, q: number, dp: number, dq: n
     const v = Math.exp(ps + lq - G);
     // errors in log f: psi's rounding (and k's or D's), Qbar's ELEM, w's rounding (with p's and q's) times the Mills
     // ratio bound, the node's rounding times |d log f/dt|, the sum ps + lq - G and exp
-    const mills = Math.max(w, 0) + 1;
+    // |d log Qbar/dw| = phi(w)/Qbar(w): below w + 1 for w > 0, below 2 phi(w) for w <= 0 (Qbar >= 1/2 there)
+    const mills = w > 0 ? w + 1 : 0.8 * Math.exp(-0.5 * w * w);
     const wAbs = Math.abs(p) * ep + Math.abs(q) * eq;
     const dw = 4 * U * wAbs + dp * ep + dq * eq;
     const dPs = gammaMix ? 3 * U * (Math.abs(k * t) + Math.exp(t)) * (1 + Math.abs(t)) + dPar * k * Math.abs(t) : 8 * U * (0.5 * Math.abs(t) + D * Math.cosh(t)) * (1 + Math.abs(t)) + dPar * D * (Math.cosh(t) - 1);
     const slope = Math.abs(dpsi(t)) + mills * 0.5 * wAbs;
-    const d = dPs + ELEM + mills * dw + U * 2 * Math.abs(t) * slope + 2 * U * (Math.abs(ps) + Math.abs(lq) + Math.abs(G)) + U + U * w * w;
+    const d = dPs + ELEM + mills * dw + U * 2 * Math.abs(t) * slope + 2 * U * (Math.abs(ps) + Math.abs(lq) + Math.abs(G)) + U + (w > 1 ? U * w * w : 0);
     terr += v * (d < 0.01 ? d * 1.01 : Math.expm1(d));
     return v;
   };
   // right of t0
   for (let j = 0; j < 200000; j++) {
+    if ((j & 4095) === 4095) checkDeadline("mixture tail sum");
     const t = t0 + j * h;
     const v = term(t);
     s += v;
@@ -155,6 +160,7 @@ export function mixtureTail(mix: Mixing, p: number, q: number, dp: number, dq: n
     }
   }
   for (let j = 1; j < 200000; j++) {
+    if ((j & 4095) === 4095) checkDeadline("mixture tail sum");
     const t = t0 - j * h;
     const v = term(t);
     s += v;
