@@ -1,8 +1,7 @@
 import erfc from "@stdlib/math-base-special-erfc";
 import erfcx from "@stdlib/math-base-special-erfcx";
-import gammainc from "@stdlib/math-base-special-gammainc";
 import { lgamma, lgammaErr } from "../families/special";
-import { logBesselKScaledBounded, type Bounded } from "../families/bessel-bounded";
+import type { Bounded } from "../families/bessel-bounded";
 import { checkDeadline } from "../deadline";
 import { ELEM } from "./law";
 
@@ -28,13 +27,18 @@ export type Mixing = { kind: "gamma"; k: number } | { kind: "ig"; D: number };
 const U = Number.EPSILON / 2;
 const EPS_T = 1e-18;
 
-/** log of int e^{nu t - P e^t - Q e^{-t}} dt (P > 0, Q >= 0), an upper bound (DLMF 10.32.10) */
+/**
+ * An upper bound on log int e^{nu t - P e^t - Q e^{-t}} dt = log(2 (Q/P)^{nu/2} K_nu(2 sqrt(PQ))) (P > 0, Q >= 0, nu > 0
+ * or nu = -1/2; DLMF 10.32.10). K is bounded in closed form (only the strip's M needs it, and a factor there moves the
+ * step by a few per cent): K_nu(z) <= sqrt(pi/(2z)) e^{-z + nu^2/(2z)} (cosh u >= 1 + u^2/2 in DLMF 10.32.9) and
+ * K_nu(z) <= Gamma(nu)/2 (2/z)^nu (drop e^{-z^2/(4s)} in DLMF 10.32.10 written in s = z^2/(4t)); K_{1/2} exactly.
+ */
 function logKInt(nu: number, P: number, Q: number): number {
   if (Q === 0) return lgamma(nu) - nu * Math.log(P) + 1e-12;
   if (nu === -0.5) return 0.5 * Math.log(Math.PI / Q) - 2 * Math.sqrt(P * Q) + 1e-12;
   const z = 2 * Math.sqrt(P * Q);
-  const k = logBesselKScaledBounded(nu, z);
-  return Math.LN2 + (nu / 2) * Math.log(Q / P) + k.v + k.e - z + 1e-12;
+  const logK = Math.min(0.5 * Math.log(Math.PI / (2 * z)) - z + (nu * nu) / (2 * z), lgamma(nu) - Math.LN2 + nu * Math.log(2 / z));
+  return Math.LN2 + (nu / 2) * Math.log(Q / P) + logK + 1e-12;
 }
 
 const lse = (a: number, b: number) => (a === -Infinity ? b : b === -Infinity ? a : Math.max(a, b) + Math.log1p(Math.exp(-Math.abs(a - b))));
@@ -57,8 +61,12 @@ export function logStripBound(mix: Mixing, p: number, q: number, c: number): num
     const E0 = side === "all" ? 0 : p / q;
     if (mix.kind === "gamma") {
       const k = mix.k;
-      const frac = side === "all" ? 1 : gammainc(c * E0, k, true, side === "right");
-      m2 = Math.log(Math.min(1, frac * (1 + 1e-10) + 1e-300)) - k * Math.log(c);
+      // the regularised incomplete gamma at x = c E0, bounded in closed form: Gamma(k, x) <= x^{k-1} e^{-x} (k <= 1) or
+      // x^{k-1} e^{-x} / (1 - (k-1)/x) (k > 1, x > k - 1), from t^{k-1} <= x^{k-1} e^{(k-1)(t-x)/x}; gamma(k, x) <= x^k / k
+      const x = c * E0;
+      const lx = Math.log(x);
+      const lf = side === "all" ? 0 : side === "left" ? k * lx - lgamma(k + 1) : k <= 1 ? (k - 1) * lx - x - lgamma(k) : x > 2 * (k - 1) ? (k - 1) * lx - x - lgamma(k) + Math.LN2 : 0;
+      m2 = Math.min(0, lf + 1e-12) - k * Math.log(c);
     } else {
       const D = mix.D;
       const all = D * (1 - c) - 0.5 * Math.log(c);
