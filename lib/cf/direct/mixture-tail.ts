@@ -98,7 +98,6 @@ export function mixtureTail(mix: Mixing, p: number, q: number, dp: number, dq: n
   // constants' errors: lgamma(k) and its move with k's rounding (|psi(k)| <= |log k| + 1/k), or log C
   const eC = gammaMix ? lgammaErr(k) + 2 * U * Math.abs(logC) + dPar * k * (Math.abs(Math.log(k)) + 1 / k) : 4 * U * (1 + Math.abs(logC)) + dPar;
   const psi = (t: number) => (gammaMix ? k * t - Math.exp(t) : -0.5 * t - 2 * D * Math.sinh(0.5 * t) ** 2);
-  const dpsi = (t: number) => (gammaMix ? k - Math.exp(t) : -0.5 - D * Math.sinh(t));
   // the scale of T and the strip: log M(a) - log M(0) is about (1 - cos a) Z + (gamma) k log(1/cos a), Z = 2 sqrt(PQ) of
   // the Chernoff piece, so h = 2 pi a / (L + a^2 Z / 2) is widest near a = sqrt(2L/Z); the exact M is taken there
   const logEst = logStripBound(mix, p, q, 1);
@@ -131,25 +130,47 @@ export function mixtureTail(mix: Mixing, p: number, q: number, dp: number, dq: n
   let terr = 0;
   let tailR = Infinity;
   let tailL = Infinity;
+  // the last term's e^t, psi and psi' (the loops' stopping rules use them)
+  let lastEt = 0;
+  let lastPs = 0;
+  let lastDpsi = 0;
+  let lastW = 0;
   const term = (t: number): number => {
-    const ep = Math.exp(-0.5 * t);
     const eq = Math.exp(0.5 * t);
+    const ep = 1 / eq;
+    const et = eq * eq;
     const w = p * ep - q * eq;
-    const ps = psi(t);
+    let ps: number;
+    let dPs: number;
+    if (gammaMix) {
+      ps = k * t - et;
+      lastDpsi = k - et;
+      dPs = 4 * U * (Math.abs(k * t) + et) * (1 + Math.abs(t)) + dPar * k * Math.abs(t);
+    } else {
+      const sh = 0.5 * (eq - ep);
+      const ch = 0.5 * (eq + ep);
+      const cm1 = 2 * sh * sh; // cosh t - 1
+      ps = -0.5 * t - D * cm1;
+      lastDpsi = -0.5 - 2 * D * sh * ch;
+      dPs = 8 * U * (0.5 * Math.abs(t) + D * (1 + cm1)) * (1 + Math.abs(t)) + dPar * D * cm1;
+    }
+    lastEt = et;
+    lastPs = ps;
+    lastW = w;
     const lq = logQbar(w);
     const v = Math.exp(ps + lq - G);
     // errors in log f: psi's rounding (and k's or D's), Qbar's ELEM, w's rounding (with p's and q's) times the Mills
-    // ratio bound, the node's rounding times |d log f/dt|, the sum ps + lq - G and exp
-    // |d log Qbar/dw| = phi(w)/Qbar(w): below w + 1 for w > 0, below 2 phi(w) for w <= 0 (Qbar >= 1/2 there)
-    const mills = w > 0 ? w + 1 : 0.8 * Math.exp(-0.5 * w * w);
+    // ratio bound, the node's rounding times |d log f/dt|, the sum ps + lq - G and exp.
+    // |d log Qbar/dw| = phi(w)/Qbar(w): below w + 1 for w > 0, below 2 phi(w) <= 0.8 e^{-w^2/2} for w <= 0 (Qbar >= 1/2)
+    const mills = w > 0 ? w + 1 : w > -8 ? 0.8 : 0.8 * Math.exp(-0.5 * w * w);
     const wAbs = Math.abs(p) * ep + Math.abs(q) * eq;
-    const dw = 4 * U * wAbs + dp * ep + dq * eq;
-    const dPs = gammaMix ? 3 * U * (Math.abs(k * t) + Math.exp(t)) * (1 + Math.abs(t)) + dPar * k * Math.abs(t) : 8 * U * (0.5 * Math.abs(t) + D * Math.cosh(t)) * (1 + Math.abs(t)) + dPar * D * (Math.cosh(t) - 1);
-    const slope = Math.abs(dpsi(t)) + mills * 0.5 * wAbs;
+    const dw = 5 * U * wAbs + dp * ep + dq * eq;
+    const slope = Math.abs(lastDpsi) + mills * 0.5 * wAbs;
     const d = dPs + ELEM + mills * dw + U * 2 * Math.abs(t) * slope + 2 * U * (Math.abs(ps) + Math.abs(lq) + Math.abs(G)) + U + (w > 1 ? U * w * w : 0);
     terr += v * (d < 0.01 ? d * 1.01 : Math.expm1(d));
     return v;
   };
+
   // right of t0
   for (let j = 0; j < 200000; j++) {
     if ((j & 4095) === 4095) checkDeadline("mixture tail sum");
@@ -157,11 +178,11 @@ export function mixtureTail(mix: Mixing, p: number, q: number, dp: number, dq: n
     const v = term(t);
     s += v;
     run += U * s;
-    const r = -dpsi(t);
+    const r = -lastDpsi;
     if (r > 0) {
       // w nondecreasing from t on when q <= 0 and w'(t) >= 0 (-q e^t >= p)
-      const mono = q <= 0 && -q * Math.exp(t) >= p;
-      const base = mono ? v : Math.exp(psi(t) - G);
+      const mono = q <= 0 && -q * lastEt >= p;
+      const base = mono ? v : Math.exp(lastPs - G);
       const z = Math.exp(-r * h);
       tailR = (base * 1.01 * z) / (1 - z);
       if (tailR <= 2 ** -60 * s || (base === 0 && j > 0)) break;
@@ -173,11 +194,29 @@ export function mixtureTail(mix: Mixing, p: number, q: number, dp: number, dq: n
     const v = term(t);
     s += v;
     run += U * s;
-    const r = dpsi(t);
+    const r = lastDpsi;
+    // gamma mixing decays only as e^{kt} to the left: the rest of the nodes t_j = t - jh is summed in closed form,
+    // sum e^{k t_j} = e^{kt} z/(1 - z) (z = e^{-kh}), times e^{-e^{t_j}} in [e^{-e^t}, 1] and Qbar(w_j) between its limit
+    // (1, 1/2 or 0 as p < 0, = 0, > 0) and Qbar(w(t)) while w is monotone there (p + q e^s keeps the sign of p)
+    if (gammaMix && r > 0 && lastEt < 1e-3 && (p === 0 || Math.sign(p + q * lastEt) === Math.sign(p))) {
+      const lim = p < 0 ? 1 : p === 0 ? 0.5 : 0;
+      const qt = 0.5 * erfc(lastW / Math.SQRT2);
+      const zk = Math.exp(-k * h);
+      const geo = (Math.exp(k * t - G) * zk) / (1 - zk);
+      const hi = geo * Math.max(lim, qt);
+      const lo = geo * Math.exp(-lastEt) * Math.min(lim, qt);
+      const width = 0.5 * (hi - lo) + 1e-14 * hi;
+      if (width <= 2 ** -60 * s) {
+        s += 0.5 * (hi + lo);
+        run += U * s;
+        tailL = width;
+        break;
+      }
+    }
     if (r > 0) {
       // w nonincreasing up to t when p >= 0 and p + q e^t >= 0
-      const mono = p >= 0 && p + q * Math.exp(t) >= 0;
-      const base = mono ? v : Math.exp(psi(t) - G);
+      const mono = p >= 0 && p + q * lastEt >= 0;
+      const base = mono ? v : Math.exp(lastPs - G);
       const z = Math.exp(-r * h);
       tailL = (base * 1.01 * z) / (1 - z);
       if (tailL <= 2 ** -60 * s || (base === 0 && j > 1)) break;
