@@ -195,18 +195,24 @@ export function mixtureTail(mix: Mixing, p: number, q: number, dp: number, dq: n
     s += v;
     run += U * s;
     const r = lastDpsi;
-    // gamma mixing decays only as e^{kt} to the left: the rest of the nodes t_j = t - jh is summed in closed form,
-    // sum e^{k t_j} = e^{kt} z/(1 - z) (z = e^{-kh}), times e^{-e^{t_j}} in [e^{-e^t}, 1] and Qbar(w_j) between its limit
-    // (1, 1/2 or 0 as p < 0, = 0, > 0) and Qbar(w(t)) while w is monotone there (p + q e^s keeps the sign of p)
+    // gamma mixing decays only as e^{kt} to the left: the rest of the nodes t_j = t - jh is summed in closed form with
+    // 1 - x <= e^{-x} <= 1 - x + x^2/2 on e^{-e^{t_j}}: sum e^{m t_j} = e^{mt} z/(1 - z), z = e^{-mh}, m = k, k+1, k+2;
+    // Qbar(w_j) lies between its limit (1, 1/2 or 0 as p < 0, = 0, > 0) and Qbar(w(t)) while w is monotone there (p + q e^s
+    // keeps the sign of p); the mid-point is added, half the width (and 8 roundings of the sums) is the error
     if (gammaMix && r > 0 && lastEt < 1e-3 && (p === 0 || Math.sign(p + q * lastEt) === Math.sign(p))) {
       const lim = p < 0 ? 1 : p === 0 ? 0.5 : 0;
       const qt = 0.5 * erfc(lastW / Math.SQRT2);
-      const zk = Math.exp(-k * h);
-      const geo = (Math.exp(k * t - G) * zk) / (1 - zk);
-      const hi = geo * Math.max(lim, qt);
-      const lo = geo * Math.exp(-lastEt) * Math.min(lim, qt);
-      const width = 0.5 * (hi - lo) + 1e-14 * hi;
-      if (width <= 2 ** -60 * s) {
+      const geo = (m: number) => {
+        const z = Math.exp(-m * h);
+        return (Math.exp(m * t - G) * z) / (1 - z);
+      };
+      const g1 = geo(k + 1);
+      const loSum = geo(k) - g1;
+      const hiSum = loSum + 0.5 * geo(k + 2);
+      const hi = hiSum * Math.max(lim, qt);
+      const lo = loSum * Math.min(lim, qt);
+      const width = 0.5 * (hi - lo) + 8 * U * (hi + g1);
+      if (width <= 1e-17 * s) {
         s += 0.5 * (hi + lo);
         run += U * s;
         tailL = width;
