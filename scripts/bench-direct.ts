@@ -76,6 +76,27 @@ for (const [alpha, beta, param] of stable) {
   );
 }
 
+// variance-gamma and NIG (density by Bessel K, cdf/sf by the mixture integral): 1 000 points, half far out
+const vgNig: Model[] = [
+  { family: "variance_gamma", sigma: 0.4, nu: 0.2, theta: 0.1, loc: 0 },
+  { family: "variance_gamma", sigma: 1, nu: 2, theta: 0.5, loc: 0 },
+  { family: "variance_gamma", sigma: 0.5, nu: 3, theta: -0.4, loc: 0.2 },
+  { family: "nig", alpha: 3, beta: 1, delta: 0.8, mu: 0 },
+  { family: "nig", alpha: 1.2, beta: -0.7, delta: 2, mu: 0.5 },
+] as Model[];
+for (const m of vgNig) {
+  const c = compile(m);
+  // half uniform in [-10, 10], half log-uniform in |x| over [1e-3, 60] with random sign (tails down to ~1e-40 and beyond)
+  const x = new Float64Array(1000);
+  for (let i = 0; i < 1000; i++) x[i] = i % 2 ? (rnd() < 0.5 ? -1 : 1) * 10 ** (-3 + 4.78 * rnd()) : -10 + 20 * rnd();
+  const r = density(c, { x });
+  const t = time(() => density(c, { x }));
+  console.log(
+    `${JSON.stringify(m).slice(0, 70)} 1000 points`.padEnd(88) +
+      `${t.wall.toFixed(2)} ms wall, ${t.cpu.toFixed(2)} ms cpu (least ${t.cpuMin.toFixed(2)})  method ${r.diagnostics.method}, max bound pdf ${r.diagnostics.error.pdf!.toExponential(1)} cdf ${r.diagnostics.error.cdf.toExponential(1)}`,
+  );
+}
+
 // accuracy over a sample of the points above (every 100th and 100th + 1 of each of the first ten laws) against the
 // mpmath references of tests/fixtures/stable/bench-sample.json (written by tests/fixtures/stable/generate.py --bench)
 {
@@ -116,6 +137,8 @@ const singles: Model[] = [
   { family: "student_t", nu: 3.5, loc: 0, scale: 1 },
   { scale: 2, of: { shift: 1, of: { family: "normal", mu: 0, sigma: 1 } } },
   { family: "stable", alpha: 1.28, beta: 0.59 },
+  { family: "variance_gamma", sigma: 0.5, nu: 3, theta: -0.4, loc: 0.2 },
+  { family: "nig", alpha: 3, beta: 1, delta: 0.8, mu: 0 },
 ] as Model[];
 for (const m of singles) {
   const c = compile(m);
