@@ -25,6 +25,23 @@ export function affineDirect(law: DirectLaw, a: number, b: number): DirectLaw {
       const dx = 2 * Number.EPSILON * (Math.abs(y) + Math.abs(b)) / aa + Number.EPSILON * Math.abs(x);
       law.at(x, out);
       let move = out.pdf * dx;
+      // within a rounding of a singular point the density moves by much more than its relative bound: bound it by the
+      // values at x -+ dx (monotone there on each side of the singular point), infinite if the rounding reaches it
+      let pdfMove = 0;
+      if (law.singular && Number.isFinite(out.pdf) && law.singular.some((s) => Math.abs(x - s) <= 1e6 * dx)) {
+        const f0 = out.pdf;
+        const e0 = out.pdfErr;
+        if (law.singular.some((s) => Math.abs(x - s) <= dx)) pdfMove = Infinity;
+        else {
+          const save = { ...out };
+          for (const xe of [x - dx, x + dx]) {
+            law.at(xe, near);
+            pdfMove = Math.max(pdfMove, Math.abs(near.pdf - f0) + near.pdfErr + e0);
+            move = Math.max(move, (near.pdf + near.pdfErr) * dx);
+          }
+          Object.assign(out, save);
+        }
+      }
       if (!Number.isFinite(out.pdf)) {
         law.at(x + dx, near);
         const up = near.cdf + near.cdfErr;
@@ -43,7 +60,8 @@ export function affineDirect(law: DirectLaw, a: number, b: number): DirectLaw {
       out.sfErr += move;
       out.pdf /= aa;
       // an infinite density (a power singularity met exactly) is the exact limit: its bound stays 0
-      out.pdfErr = out.pdfErr / aa + (Number.isFinite(out.pdf) ? 2 * Number.EPSILON * out.pdf : 0);
+      out.pdfErr = out.pdfErr / aa + (Number.isFinite(out.pdf) ? 2 * Number.EPSILON * out.pdf + pdfMove / aa : 0);
+      if (!(out.pdfErr <= Number.MAX_VALUE)) out.pdfErr = Number.MAX_VALUE;
     },
     ...(q ? { quantile: (p: number) => (a > 0 ? a * q(p) + b : a * q(1 - p) + b) } : {}),
     // int_c^inf S_Y = |a| int_{(c-b)/a}^inf S_X (a > 0), |a| int_-inf^{(c-b)/a} F_X (a < 0); likewise on the left; the

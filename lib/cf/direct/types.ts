@@ -30,6 +30,12 @@ export interface DirectLaw {
    * where the law has one in closed form or by a converged series at c; null where it has not
    */
   stopLoss?(c: number, side: 1 | -1): { v: number; e: number } | null;
+  /**
+   * optional: points where the density is infinite inside the support (a variance-gamma law with nu >= 2 at its
+   * location); next to one the density is ill-conditioned in x, and a caller that rounds x (./affine.ts) bounds the
+   * density's change over that rounding from the values either side
+   */
+  readonly singular?: readonly number[];
   /** short notes on the method (source of the formula, accuracy) */
   readonly notes: string[];
 }

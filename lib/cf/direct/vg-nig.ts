@@ -87,7 +87,7 @@ export function varianceGammaDirect(sigma: number, nu: number, theta: number, lo
     eAtLoc = atLoc * (eConst + lgammaErr(lam) + 8 * U * (Math.abs(lgl) + Math.abs(l2) + Math.abs(lam * Math.log(c0)) + 1) + 8 * U * lam);
   }
   const tS2 = theta / s2;
-  return mixtureLaw(
+  const L = mixtureLaw(
     {
       mean: loc + theta,
       sd: Math.sqrt(s2 + theta * theta * nu),
@@ -118,6 +118,8 @@ export function varianceGammaDirect(sigma: number, nu: number, theta: number, lo
     },
     "variance-gamma density by its Bessel-K closed form, cdf and sf by the normal variance-mean mixture integral (trapezoidal rule, Trefethen-Weideman bound)",
   );
+  // nu >= 2: the density is infinite at loc
+  return lam > 0 ? L : { ...L, singular: [loc] };
 }
 
 /**
