@@ -313,8 +313,29 @@ function layerMoments() {
   }
 }
 
+/**
+ * tests/fixtures/direct/vg-nig.json: variance-gamma and NIG (alone, scaled, shifted) in bodies and tails down to 1e-40
+ * (mpmath at 60 digits, Bessel-K closed form with quadrature tails; checked by the mixture integrals); an infinite
+ * reference density (variance-gamma with nu >= 2 at its location) is checked by tests/cf/direct-vg-nig.test.ts instead
+ */
+function directVgNig() {
+  const set = "direct/vg-nig";
+  const f = read<{ laws: { model: Model; points: { x: string; pdf: string; cdf: string; sf: string; rel_diff: number }[]; quantiles: { p: number; x: string; rel_diff: number }[] }[] }>("direct/vg-nig.json");
+  for (const law of f.laws) {
+    const c = compiled(set, law.model);
+    if (!c) continue;
+    const rel = law.points.map((p) => Math.max(p.rel_diff, 1e-19));
+    points(set, law.model, c, law.points.map((p) => ({ x: num(p.x), ...(Number.isFinite(num(p.pdf)) ? { pdf: num(p.pdf) } : {}), cdf: num(p.cdf), sf: num(p.sf) })), (v, i) => rel[i] * Math.abs(v));
+    // 20 digits written, found to 1e-45 of the scale; the check's tail difference moves it by at most that much of the
+    // tail over the density, well below 1e-19 relative here
+    const scale = Math.max(...law.quantiles.map((q) => Math.abs(num(q.x))));
+    levels(set, law.model, c, law.quantiles.map((q) => ({ p: q.p, q: num(q.x), qErr: 1e-19 * Math.abs(num(q.x)) + 1e-38 * scale })));
+  }
+}
+
 export const SETS: [string, () => void][] = [
   ["direct/families", directFamilies],
+  ["direct/vg-nig", directVgNig],
   ["reference-families", referenceFamilies],
   ["reference-truncnorm", truncnorm],
   ["reference-counts", counts],
