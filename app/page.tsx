@@ -36,7 +36,7 @@ export default function Home() {
             <p className="mt-5 max-w-xl text-lg text-ink-soft">
               Describe independent pieces as JSON — named families, sums, scalings, mixtures, random-count sums, tabulated
               lattices, your own samples. Sumfold multiplies their characteristic functions and inverts the product to a
-              density, CDF, quantiles and expected shortfall, each with an error estimate you can rely on, plus exact moments
+              density, CDF, quantiles and expected shortfall, each with a derived error bound that is never below the actual error, plus exact moments
               and cumulants where they exist.
             </p>
             <div className="mt-8 flex flex-wrap gap-3">
