@@ -166,7 +166,10 @@ export function cauchyDirect(loc: number, scale: number): DirectLaw {
       o.pdf = 1 / (Math.PI * scale * (1 + z * z));
       o.cdf = Math.atan2(1, -z) / Math.PI;
       o.sf = Math.atan2(1, z) / Math.PI;
-      bounds(o, ELEM, ELEM + 2 * Math.abs(z) * dz, dz * scale);
+      // the pdf moves by |(1 + z^2) / (1 + (z + d)^2) - 1| <= (2 |z| d + d^2) / (1 + (|z| - d)^2) for |d| <= dz (at most
+      // 2 dz / |z| far out, not 2 |z| dz), plus the rounding of 1 + z z and of the product and quotient (4 eps)
+      const za = Math.max(Math.abs(z) - dz, 0);
+      bounds(o, ELEM, ELEM + 4 * EPS + ((2 * Math.abs(z) * dz + dz * dz) / (1 + za * za)) * (1 + 4 * EPS), dz * scale);
     },
     (p) => (p < 0.5 ? loc - scale / Math.tan(Math.PI * p) : p === 0.5 ? loc : loc + scale / Math.tan(Math.PI * (1 - p))),
   );
