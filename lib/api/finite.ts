@@ -52,16 +52,6 @@ function unreached(detail: string, pointer: string | null): ApiError {
   return new ApiError("tolerance_unreached", detail, pointer ? { errors: [{ detail, pointer }] } : {});
 }
 
-/**
- * A density of +infinity is the law's own value at a singular point (gamma or weibull with shape < 1 at 0, a
- * variance-gamma with nu >= 2 at its location), not a failure to converge: JSON has no infinity, so the point is
- * refused as not applicable, with the cdf and sf named as the finite alternative.
- */
-function unbounded(x: number, pointer: string | null): ApiError {
-  const detail = `The density is unbounded at x = ${x}: the law has a singular point there (its pdf is +infinity). The cdf and sf are finite at that point; ask for the density beside it, or for the cdf.`;
-  return new ApiError("not_applicable", detail, pointer ? { errors: [{ detail, pointer }] } : {});
-}
-
 /** The request field a density value at index i comes from: the i-th point, or the grid. */
 const sourceOf = (body: Json, i: number) => (Array.isArray(body.x) ? `/x/${i}` : body.grid ? "/grid" : "");
 
@@ -87,12 +77,14 @@ function clampDensity(body: Json, r: Json): void {
         );
     }
   }
-  const pdf = r.pdf as number[] | undefined;
+  const pdf = r.pdf as (number | null)[] | undefined;
+  const unboundedAt = new Set((diag as { unboundedDensityAt?: number[] }).unboundedDensityAt ?? []);
   if (pdf) {
     for (let i = 0; i < pdf.length; i++) {
       const v = pdf[i];
-      if (v === Infinity) throw unbounded(x[i], sourceOf(body, i));
-      if (!Number.isFinite(v)) throw unreached(`The pdf at x = ${x[i]} could not be computed (${v}); ${tol} could not be reached there.`, sourceOf(body, i));
+      // the documented null: the law's density is +infinity at that very point (listed in diagnostics.unboundedDensityAt)
+      if ((v === null || v === Infinity) && unboundedAt.has(x[i])) continue;
+      if (v === null || !Number.isFinite(v)) throw unreached(`The pdf at x = ${x[i]} could not be computed (${v}); ${tol} could not be reached there.`, sourceOf(body, i));
       if (v >= 0) continue;
       if (Number.isFinite(errPdf) && -v <= errPdf) pdf[i] = 0;
       else throw unreached(`The pdf at x = ${x[i]} came out as ${v}, below 0 by more than its error bound (${Number.isFinite(errPdf) ? errPdf.toExponential(2) : "unbounded"}): ${tol} could not be reached there.`, sourceOf(body, i));

@@ -54,6 +54,15 @@ describe("POST /api/v1/density", () => {
     expect(res.body.diagnostics.error.cdf).toBeLessThan(1e-8);
   });
 
+  it("answers a density that is +infinity at a requested point as the documented null, listed in unboundedDensityAt (gamma(0.5, 1) at 0; jstat gamma.pdf beside it)", async () => {
+    const res = await post("/api/v1/density", { model: { family: "gamma", shape: 0.5, rate: 1 }, x: [0, 0.5] });
+    expect(res.status, JSON.stringify(res.body)).toBe(200);
+    expect(res.body.pdf[0]).toBeNull();
+    expect(res.body.diagnostics.unboundedDensityAt).toEqual([0]);
+    expect(res.body.cdf[0]).toBe(0);
+    close(res.body.pdf[1], jStat.gamma.pdf(0.5, 0.5, 1), { rel: 1e-12 }, "pdf(0.5)");
+  });
+
   it("bounds each point of a directly evaluated law on its own: gamma(3, 2) tail values against jstat gamma.cdf", async () => {
     const x = [0.2, 1.5, 6, 12];
     const res = await post("/api/v1/density", { model: { family: "gamma", shape: 3, rate: 2 }, x });

@@ -84,16 +84,11 @@ describe("clamping within the bound, refusing beyond it", () => {
     expect(err?.errors?.[0].pointer).toBe("/x/2");
   });
 
-  it("answers a pdf of +infinity (a singular point of the law) as not applicable, pointing at the point", () => {
-    let err: ApiError | null = null;
-    try {
-      finiteResult("density", body, density([0, 0.5, 0.9], [Infinity, 0.3, 0.1], 1e-13, 1e-13));
-    } catch (e) {
-      err = e as ApiError;
-    }
-    expect(err?.code).toBe("not_applicable");
-    expect(err?.detail).toMatch(/unbounded at x = 1: the law has a singular point/);
-    expect(err?.errors?.[0].pointer).toBe("/x/0");
+  it("passes the documented null of a density that is +infinity at a point listed in unboundedDensityAt, refuses any other", () => {
+    const r = density([0, 0.5, 0.9], [null as unknown as number, 0.3, 0.1], 1e-13, 1e-13);
+    expect(() => finiteResult("density", body, r)).toThrow(/could not be computed/);
+    (r.diagnostics as Record<string, unknown>).unboundedDensityAt = [1];
+    expect((finiteResult("density", body, r).pdf as unknown[])[0]).toBeNull();
   });
 
   it("refuses a negative pdf beyond its bound", () => {
