@@ -9,7 +9,8 @@ import { apiServer, orgWithKey } from "../support/api";
 const app = apiServer();
 const base = process.env.SUMFOLD_TEST_BASE_URL;
 // heavy: a sum that still needs the CF inversion, stopped at the plan's deadline (see isolation.test.ts)
-const HEAVY = { model: { sum: [{ family: "pareto", alpha: 3, xm: 1 }, { family: "weibull", shape: 0.5, scale: 1 }] }, p: [0.9999999999999999] };
+// 32 levels from 1 - 2^-53 down: far past every plan's deadline (see tests/api/isolation.test.ts)
+const HEAVY = { model: { sum: [{ family: "pareto", alpha: 3, xm: 1 }, { family: "weibull", shape: 0.5, scale: 1 }] }, p: Array.from({ length: 32 }, (_, k) => 1 - (k + 1) * 2 ** -53) };
 const CHEAP = { model: { family: "normal", mu: 0, sigma: 1 } };
 
 describe("the concurrency cap across instances", () => {
