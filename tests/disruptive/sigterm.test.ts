@@ -23,11 +23,12 @@ describe("SIGTERM", () => {
       if (ok) break;
       await new Promise((r) => setTimeout(r, 200));
     }
-    const o = await orgWithKey({ plan: "dedicated" }); // a 10 s deadline: the stop must not wait for it
+    // a 10 s deadline: the stop must not wait for it; 32 levels from 1 - 2^-53 down keep it busy far past that
+    const o = await orgWithKey({ plan: "dedicated" });
     const pending = fetch(`http://127.0.0.1:${port}/api/v1/quantiles`, {
       method: "POST",
       headers: { authorization: `Bearer ${o.secret}`, "content-type": "application/json" },
-      body: JSON.stringify({ model: { sum: [{ family: "pareto", alpha: 3, xm: 1 }, { family: "weibull", shape: 0.5, scale: 1 }] }, p: [0.9999999999999999] }),
+      body: JSON.stringify({ model: { sum: [{ family: "pareto", alpha: 3, xm: 1 }, { family: "weibull", shape: 0.5, scale: 1 }] }, p: Array.from({ length: 32 }, (_, k) => 1 - (k + 1) * 2 ** -53) }),
     }).then(
       async (r) => ({ status: r.status, body: await r.json().catch(() => null) }),
       () => ({ status: 0, body: null }),
