@@ -1,6 +1,6 @@
 import type { StableIntegrals } from "./stable-integral";
 import { AF, BF, IMAX_FINE, makePanel, nodesOf, type Box, type PanelSide } from "./stable-panel-store";
-import { finish, half, kernelAt, lowCut, panel, pointPool, sharedStores, windowStore, type Sums } from "./stable-panels";
+import { finish, flatHigh, half, lowCut, panel, pointPool, sharedStores, windowStore, type Sums } from "./stable-panels";
 
 /**
  * The integrals of ./stable-panels.ts on a light side (|beta| = 1 where log V has a finite low end, v(end) = log h)
@@ -65,11 +65,7 @@ function lightHalf(ps: PanelSide, lhAbs: number, acc: Sums): boolean {
     const vb = lh + o.lv - 8 * Number.EPSILON * (o.mag + Math.abs(lh) + Math.abs(o.lv)) - acc.dl;
     if (Math.exp(vb) >= E + STOP || hi >= L2) {
       const rest = Math.max(0, L2 - hi);
-      acc.i1 += rest;
-      const b = rest * Math.exp(-Math.exp(vb));
-      acc.e0 += b;
-      acc.e1 += b + 2 * Number.EPSILON * L2;
-      acc.ep += rest * kernelAt(vb);
+      flatHigh(acc, rest, vb, 2 * Number.EPSILON * L2);
       return true;
     }
     lo = hi;

@@ -41,6 +41,18 @@ export function kernelAt(v: number): number {
   return Math.exp(v - Math.exp(v));
 }
 
+/**
+ * A stretch of length len over which v >= vb >= V1: I1 takes it whole, I0 and Ip are at most len times their
+ * integrands at vb (each falls as v grows); `extra` joins I1's bound (the rounding of a length taken from L2).
+ */
+export function flatHigh(acc: Sums, len: number, vb: number, extra = 0): void {
+  acc.i1 += len;
+  const b = len * Math.exp(-Math.exp(vb));
+  acc.e0 += b;
+  acc.e1 += b + extra;
+  acc.ep += len * kernelAt(vb);
+}
+
 /** The nodes of panel p at log h (lhAbs), added to acc with the panel's bound (Theorem 19.3) and the nodes' rounding. */
 export function panel(p: Panel, lhAbs: number, lh: number, acc: Sums): void {
   const hl = p.hl;
@@ -132,11 +144,7 @@ export function half(st: PanelStore, lhAbs: number, V0: number, acc: Sums): bool
   if (bounded && vEndLow >= V1) {
     // v >= v(end) = lh >= V1 over the whole half (v falls towards the finite end): I1 takes it, I0 and Ip are at most
     // its length times their values at V1 or beyond
-    acc.i1 += L2;
-    const b = L2 * Math.exp(-Math.exp(vEndLow));
-    acc.e0 += b;
-    acc.e1 += b + 2 * Number.EPSILON * L2;
-    acc.ep += L2 * kernelAt(vEndLow);
+    flatHigh(acc, L2, vEndLow, 2 * Number.EPSILON * L2);
     return true;
   }
   if (st.n === 0 && !st.extend()) return false;
@@ -184,11 +192,7 @@ export function half(st: PanelStore, lhAbs: number, V0: number, acc: Sums): bool
       acc.ep += b;
     } else {
       const vb = vDown(lvk, mk);
-      acc.i1 += len;
-      const b = len * Math.exp(-Math.exp(vb));
-      acc.e0 += b;
-      acc.e1 += b + 2 * Number.EPSILON * L2;
-      acc.ep += len * kernelAt(vb);
+      flatHigh(acc, len, vb, 2 * Number.EPSILON * L2);
     }
   }
   // the window, panel by panel, until the rest up to the end is negligible
@@ -201,11 +205,7 @@ export function half(st: PanelStore, lhAbs: number, V0: number, acc: Sums): bool
       const vb = vDown(e[0], e[1]);
       if (vb >= V1) {
         // [0, lo]: v >= vb
-        acc.i1 += lo;
-        const b = lo * Math.exp(-Math.exp(vb));
-        acc.e0 += b;
-        acc.e1 += b;
-        acc.ep += lo * kernelAt(vb);
+        flatHigh(acc, lo, vb);
         return true;
       }
     } else {
