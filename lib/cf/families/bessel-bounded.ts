@@ -36,7 +36,7 @@ export function logBesselKScaledBounded(nu: number, x: number): Bounded {
   nu = Math.abs(nu);
   if (!(x > 0) || !Number.isFinite(x) || !Number.isFinite(nu)) return { v: NaN, e: Infinity };
   const m = nu - 0.5;
-  if (Number.isInteger(m) && m <= 60) return half(m, x);
+  if (Number.isInteger(m) && m <= 60) return logBesselKHalfBounded(m, x);
   if (x >= 24) {
     const r = large(nu, x);
     if (r) return r;
@@ -44,7 +44,8 @@ export function logBesselKScaledBounded(nu: number, x: number): Bounded {
   return trapezoid(nu, x);
 }
 
-function half(m: number, x: number): Bounded {
+/** Half-integer order nu = m + 1/2: the positive finite sum (DLMF 10.49.12) in scaled form, with its rounding bound. */
+export function logBesselKHalfBounded(m: number, x: number): Bounded {
   // c_k = (m+k)!/(k!(m-k)!) by c_{k+1} = c_k (m+k+1)(m-k)/(k+1): 3 roundings a step
   const y = 1 / (2 * x);
   let s = 0;

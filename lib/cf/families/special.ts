@@ -1,4 +1,5 @@
 /** Special functions and combinatorial tables used by the family modules (pure, double precision). */
+import { logBesselKHalfBounded } from "./bessel-bounded";
 
 /** Bernoulli numbers B_0..B_n as exact fractions (Akiyama-Tanigawa algorithm, B_1 = +1/2), returned as doubles. */
 export function bernoulliNumbers(n: number): number[] {
@@ -225,26 +226,8 @@ const TWO_M56 = 2 ** -56;
  * (A&S sec. 10.2, modified spherical Bessel functions); a sum of positive terms, evaluated in scaled form for small x.
  */
 function logBesselKHalf(m: number, x: number): number {
-  const c: number[] = [];
-  for (let k = 0; k <= m; k++) c.push(Math.exp(lgammaInt(m + k + 1) - lgammaInt(k + 1) - lgammaInt(m - k + 1)));
-  const y = 1 / (2 * x);
-  let s = 0;
-  let lead = 0;
-  if (y <= 1) {
-    for (let k = m; k >= 0; k--) s = s * y + c[k];
-  } else {
-    // y^m sum_k c_k y^{k-m}, Horner in 1/y
-    const iy = 1 / y;
-    for (let k = 0; k <= m; k++) s = s * iy + c[k];
-    lead = m * Math.log(y);
-  }
-  return 0.5 * Math.log(Math.PI / (2 * x)) + lead + Math.log(s);
-}
-
-function lgammaInt(n: number): number {
-  let f = 0;
-  for (let k = 2; k < n; k++) f += Math.log(k);
-  return f;
+  // the coefficients by their exact-ratio recurrence (./bessel-bounded.ts), not exp of log-factorial differences
+  return logBesselKHalfBounded(m, x).v;
 }
 
 /** K_nu(x) for x > 0 (may under/overflow; use logBesselKScaled in products). */
