@@ -2,23 +2,12 @@
 // tests/fixtures/stable/generate.py: relative accuracy 1e-6 wherever the probability is above 1e-300, bounds never
 // below the actual error, no negative probabilities, cdf monotone, and the public entry points use this route.
 import { afterAll, describe, expect, it } from "vitest";
-import { readFileSync } from "node:fs";
+import { stableReferencePoints, type StableRow as Row } from "./stable-fixture";
 import { compile, density, quantiles } from "@/lib/cf";
 import { record, worst } from "./model-assert";
 
-interface Row {
-  model: { family: "stable"; alpha: number; beta: number; scale: number; loc: number; param: "S0" | "S1" };
-  x: number;
-  pdf: string;
-  cdf: string;
-  sf: string;
-  source: string;
-  check: string | null;
-  rel_diff: number | null;
-}
-const load = (name: string) => JSON.parse(readFileSync(new URL(`../fixtures/stable/${name}`, import.meta.url), "utf8")) as { points: Row[] };
 // the chosen cases, and a sample of the points scripts/bench-direct.ts draws (every 100th and 100th + 1 of each law)
-const fixture = { points: [...load("stable.json").points, ...load("bench-sample.json").points] };
+const fixture = { points: stableReferencePoints() };
 const SOURCE =
   "tests/fixtures/stable/stable.json and bench-sample.json (mpmath: Nolan 1997 integral, Levy closed form, or the alpha = 1 contour integral; " +
   "checked by Fourier inversion, tail series, Nolan, or for alpha = 1 Nolan's integrals by parts in log V)";

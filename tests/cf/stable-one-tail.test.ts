@@ -2,19 +2,11 @@
 // mpmath references of tests/fixtures/stable (generate.py: the rotated Fourier integral or Nolan's integrals integrated
 // by parts in log V, each cross-checked by a second method): the value within its bound, the bound a derived one of at
 // most 1e-12 relative.
-import { readFileSync } from "node:fs";
+import { stableReferencePoints } from "./stable-fixture";
 import { describe, expect, it } from "vitest";
 import { stableOneTail } from "@/lib/cf/direct/stable-one-tail";
 import { close } from "./model-assert";
 
-interface Row {
-  model: { alpha: number; beta: number; scale: number; loc: number; param: "S0" | "S1" };
-  x: number;
-  pdf: string;
-  cdf: string;
-  sf: string;
-}
-const load = (name: string) => JSON.parse(readFileSync(new URL(`../fixtures/stable/${name}`, import.meta.url), "utf8")) as { points: Row[] };
 
 /** |value - reference| <= bound (plus the 20-digit reference's own rounding), and the bound at most rel of the value */
 function within(v: number, e: number, ref: number, rel: number, what: string) {
@@ -34,7 +26,7 @@ describe("alpha = 1 tail series", () => {
     within(r.sf, r.sfErr + 4 * Number.EPSILON * sf, sf, 1e-12, `sf at ${z}`);
   });
 
-  const rows = [...load("stable.json").points, ...load("bench-sample.json").points].filter((r) => r.model.alpha === 1 && r.model.beta !== 0);
+  const rows = stableReferencePoints().filter((r) => r.model.alpha === 1 && r.model.beta !== 0);
   const far = rows
     .map((r) => {
       const { beta, scale: g, loc, param } = r.model;

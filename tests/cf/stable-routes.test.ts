@@ -2,21 +2,13 @@
 // panels, tail series or closed form ("derived"), not a rule's value bounded by its distance to looser panels
 // ("compared") nor an Infinity bound ("none"), and that bound at most 1e-8 of the value and above the actual error.
 // (scripts/stable-routes.ts prints the same per law.)
-import { readFileSync } from "node:fs";
+import { stableReferencePoints } from "./stable-fixture";
 import { describe, expect, it } from "vitest";
 import { stableLastRoute, stdAt } from "@/lib/cf/direct/stable";
 import { tanHalfPi } from "@/lib/cf/direct/stable-kernel";
 import { directPoint } from "@/lib/cf/direct/types";
 
-interface Row {
-  model: { alpha: number; beta: number; scale: number; loc: number; param: "S0" | "S1" };
-  x: number;
-  pdf: string;
-  cdf: string;
-  sf: string;
-}
-const load = (name: string) => JSON.parse(readFileSync(new URL(`../fixtures/stable/${name}`, import.meta.url), "utf8")) as { points: Row[] };
-const rows = [...load("stable.json").points, ...load("bench-sample.json").points];
+const rows = stableReferencePoints();
 
 describe("stable routes: derived bounds at every fixture point", () => {
   it.each(rows.map((r) => [`${r.model.alpha}/${r.model.beta}/${r.model.param} x=${r.x}`, r] as const))("%s", (_n, r) => {
