@@ -38,6 +38,11 @@ describe("explorer", () => {
     // Median of the stack = sum of the part means, 12 + 8.5 + 21 + 5 + 31 = 77.5 mm (each part is symmetric; common practice).
     const median = Number((await rows.nth(1).locator("td").nth(1).innerText()).trim());
     expect(Math.abs(median - 77.5)).toBeLessThan(1e-6);
+    // each quantile and shortfall shows its error bound beside it (the API's quantileError / expectedShortfallError)
+    const medianBound = (await rows.nth(1).locator("td").nth(2).innerText()).trim();
+    expect(medianBound).toMatch(/^± \d/);
+    expect(Number(medianBound.slice(2))).toBeLessThan(1e-6);
+    await expect(rows.nth(1).locator("td").nth(4).innerText()).resolves.toMatch(/^± \d/);
     await shot(page, "explorer-stack");
 
     // The axis follows the quantiles 0.0001..0.9999 (nice ends just outside them), not the inversion's window, which

@@ -3,6 +3,8 @@
 import type { Results } from "./run";
 
 const num = (v: number | null | undefined) => (v === null || v === undefined || !Number.isFinite(v) ? "does not exist" : Number(v.toPrecision(8)).toString());
+/** a typed array of error bounds from the diagnostics (null entries: no bound derived) */
+const numbers = (v: unknown) => (Array.isArray(v) ? (v as (number | null)[]) : undefined);
 const pretty = (v: unknown) => JSON.stringify(v, null, 2);
 /** a moment's error bound, shown beside it ("no bound" where the engine derived none) */
 const bound = (v: number | null | undefined, e: number | null | undefined) =>
@@ -11,16 +13,25 @@ const bound = (v: number | null | undefined, e: number | null | undefined) =>
 /** Quantiles with expected shortfall, moments, and the inversion's diagnostics. */
 export function ResultTables({ results }: { results: Results }) {
   const { quantiles: q, moments: m } = results;
+  const qErr = numbers(q.diagnostics.quantileError);
+  const esErr = numbers(q.diagnostics.expectedShortfallError);
   return (
     <>
       <section aria-labelledby="q-h" className="rounded-xl border border-paper-line bg-white p-4">
         <h2 id="q-h" className="font-display text-lg font-semibold">Quantiles and expected shortfall</h2>
+        <p className="text-xs text-ink-faint">Each value with a bound on its absolute error (± , from the cdf bound and the density over the bracket).</p>
         <table className="mt-2 w-full text-sm">
           <thead className="text-left text-xs uppercase text-ink-faint">
             <tr>
               <th scope="col" className="py-1">p</th>
               <th scope="col" className="py-1 text-right">Quantile (VaR)</th>
+              <th scope="col" className="py-1 pl-2 text-left">
+                <span className="sr-only">Quantile error bound</span>
+              </th>
               <th scope="col" className="py-1 text-right">Expected shortfall</th>
+              <th scope="col" className="py-1 pl-2 text-left">
+                <span className="sr-only">Expected shortfall error bound</span>
+              </th>
             </tr>
           </thead>
           <tbody className="tabular-nums">
@@ -28,7 +39,9 @@ export function ResultTables({ results }: { results: Results }) {
               <tr key={p} className="border-t border-paper-line">
                 <td className="py-1">{p}</td>
                 <td className="py-1 text-right">{num(q.x[i])}</td>
+                <td className="py-1 pl-2 text-left text-xs text-ink-faint">{bound(q.x[i], qErr?.[i])}</td>
                 <td className="py-1 text-right">{num(q.expectedShortfall?.[i])}</td>
+                <td className="py-1 pl-2 text-left text-xs text-ink-faint">{bound(q.expectedShortfall?.[i], esErr?.[i])}</td>
               </tr>
             ))}
           </tbody>
