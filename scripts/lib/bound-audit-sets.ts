@@ -229,6 +229,18 @@ function latticeSums() {
   }
 }
 
+/** lattice-alias.json: lattice laws inverted by FFT of the CF (mpmath closed forms vs recursions / incomplete gamma and beta) */
+function latticeAlias() {
+  const set = "lattice-alias";
+  const f = read<{ cases: { model: Model; points: { x: number; pmf: string; cdf: string; sf: string; crossCheck: number }[] }[] }>("lattice-alias/lattice-alias.json");
+  for (const k of f.cases) {
+    const c = compiled(set, k.model);
+    if (!c) continue;
+    // 25 significant digits written; crossCheck is the second method's difference
+    points(set, k.model, c, k.points.map((p) => ({ x: p.x, pmf: num(p.pmf), cdf: num(p.cdf), sf: num(p.sf) })), (v, i) => k.points[i].crossCheck + 1e-24 * Math.abs(v));
+  }
+}
+
 function stable() {
   const set = "stable";
   const f = read<{ points: { model: Model; x: number; pdf: string; cdf: string; sf: string; rel_diff: number | null }[] }>("stable/stable.json");
@@ -348,6 +360,7 @@ export const SETS: [string, () => void][] = [
   ["sums", () => sums("sums/sums.json", "sums", true)],
   ["cf-sums", () => sums("sums/cf-sums.json", "cf-sums", false)],
   ["lattice-sums", latticeSums],
+  ["lattice-alias", latticeAlias],
   ["stable", stable],
   ["stable-sums", stableSums],
   ["reference-layered", layered],

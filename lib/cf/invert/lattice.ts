@@ -3,6 +3,11 @@ import { getFftPlan, nextPowerOfTwo } from "../fftplan";
 import { MAX_LATTICE } from "../limits";
 import { CfError } from "../errors";
 import { bulkWindow, lawShape } from "./range";
+import { markovTail, momentBounds } from "./moment-tails";
+
+const EPS = Number.EPSILON;
+/** a table grows past the tolerance, until its rounding dominates the aliasing bound, only while below this size */
+const TIGHT_LATTICE = 1 << 14;
 
 export interface LatticeSolution {
   table: LatticeTable;
@@ -19,9 +24,10 @@ export interface LatticeSolution {
 /**
  * pmf of a lattice law origin + k step. Exact tabulation from the model when it offers one; otherwise the
  * inverse DFT of the CF on t_j = 2 pi j / (N step): p_hat_k = (1/N) sum_j phi(t_j) e^{-i t_j x_k}
- * = sum_m p_{k + mN} (aliasing, e.g. Brigham, The FFT and its Applications, ch. 6). The mass lost to aliasing
- * is estimated from the decay of the two outer bands of the window (geometric extrapolation); the window
- * grows until that estimate is below the tolerance.
+ * = sum_m p_{k + mN} (aliasing, e.g. Brigham, The FFT and its Applications, ch. 6): every point outside the window lands
+ * on exactly one table point, so the mass outside it, bounded from the law's moments (aliasBound), bounds each pmf
+ * value's aliasing and their sum. The window grows while that bound is above the tolerance, and (while the table is
+ * small) while it is above the rounding's.
  */
 export function solveLattice(model: CompiledModel, origin: number, step: number, tol: number): LatticeSolution {
   const notes: string[] = [];
@@ -54,21 +60,25 @@ export function solveLattice(model: CompiledModel, origin: number, step: number,
   for (let iter = 0; iter < 6; iter++) {
     if (N > MAX_LATTICE) N = MAX_LATTICE;
     const p = latticeByFft(model, origin, step, k0, N);
-    const est = aliasEstimate(p, Number.isFinite(lo) && origin + k0 * step <= lo, Number.isFinite(hi) && origin + (k0 + N - 1) * step >= hi);
+    const leftOpen = !(Number.isFinite(lo) && origin + k0 * step <= lo);
+    const rightOpen = !(Number.isFinite(hi) && origin + (k0 + N - 1) * step >= hi);
+    const outside = aliasBound(model, origin, step, leftOpen ? k0 - 1 : null, rightOpen ? k0 + N : null);
     const round = latticeRounding(model, origin + k0 * step, step, N);
+    // tailMass: the mass outside the window (the density route reports 1 - tailMass as captured; risk adds it to S).
+    // pmf: the aliasing of a point is at most that mass; cdf and sf: their aliased sums and the mass left out both are
     out = {
-      table: { origin: origin + k0 * step, step, p, tailMass: est },
-      errorPmf: 2 * est + round,
-      errorCdf: 2 * est + round * Math.sqrt(N),
+      table: { origin: origin + k0 * step, step, p, tailMass: outside },
+      errorPmf: 2 * outside + round,
+      errorCdf: 2 * outside + round * Math.sqrt(N),
       method: "lattice-fft",
       gridSize: N,
       notes,
     };
-    if (2 * est <= tol || N >= MAX_LATTICE) break;
-    const grow = N / 2;
-    const leftOpen = !(Number.isFinite(lo) && origin + k0 * step <= lo);
-    const rightOpen = !(Number.isFinite(hi) && origin + (k0 + N - 1) * step >= hi);
-    if (leftOpen) k0 -= Math.floor(grow / (rightOpen ? 2 : 1));
+    // past the tolerance, a small table grows on until the rounding dominates its bound (one more doubling divides a
+    // light tail's moment bound by many orders)
+    if ((2 * outside <= tol && (2 * outside <= round || N >= TIGHT_LATTICE)) || N >= MAX_LATTICE) break;
+    // the N new points go to the open sides, halved when both are
+    if (leftOpen) k0 -= rightOpen ? N / 2 : N;
     N *= 2;
   }
   return out!;
@@ -129,23 +139,45 @@ function latticeByFft(model: CompiledModel, origin: number, step: number, k0: nu
   return p;
 }
 
-/** Mass beyond each open edge, extrapolating the outer band's decay geometrically (Infinity when it does not decay). */
-function aliasEstimate(p: Float64Array, leftClosed: boolean, rightClosed: boolean): number {
-  const N = p.length;
-  const B = Math.max(1, N >> 5);
-  const band = (from: number, to: number) => {
-    let s = 0;
-    for (let i = from; i < to; i++) s += Math.abs(p[i]);
-    return s;
+/**
+ * P(X <= origin + kLeft step) + P(X >= origin + kRight step) (a side null when the window covers the support's end
+ * there): Markov's inequality at its best even order on |X - c|, c the computed mean, at the nearer open edge
+ * (P(X - c >= d_r) + P(c - X >= d_l) <= E|X - c|^n / min(d_l, d_r)^n), and with one side open and the other end of
+ * the support finite also on the distance from that end (X - lo >= 0 or hi - X >= 0: every order), the smaller taken;
+ * the moments' bounds come from the model's cumulants and their running-error bounds (./moment-tails.ts). Each
+ * distance is shortened by the rounding of the edge (origin + k step, two roundings) and of the subtraction.
+ * Infinity where the mean or the moments' bounds are missing, or an open edge does not lie past the mean.
+ */
+export function aliasBound(model: CompiledModel, origin: number, step: number, kLeft: number | null, kRight: number | null): number {
+  if (kLeft === null && kRight === null) return 0;
+  if (!model.cumulantErrors) return Infinity;
+  const k1 = model.cumulants(1)[0];
+  if (k1 === null || !Number.isFinite(k1)) return Infinity;
+  const dist = (from: number, k: number, sign: number) => {
+    const x = origin + k * step;
+    const d = sign * (x - from);
+    return d - 4 * EPS * (Math.abs(origin) + Math.abs(k * step) + Math.abs(from));
   };
-  const side = (m1: number, m2: number) => {
-    if (m1 < 1e-300) return 0;
-    const r = m1 / Math.max(m2, 1e-300);
-    return r < 0.9 ? (m1 * r) / (1 - r) + m1 : Infinity;
-  };
-  const l = leftClosed ? 0 : side(band(0, B), band(B, 2 * B));
-  const r = rightClosed ? 0 : side(band(N - B, N), band(N - 2 * B, N - B));
-  return l + r;
+  const dl = kLeft === null ? Infinity : dist(k1, kLeft, -1);
+  const dr = kRight === null ? Infinity : dist(k1, kRight, 1);
+  const d = Math.min(dl, dr);
+  let best = Infinity;
+  if (d > 0) {
+    const central = momentBounds(model, k1, d);
+    if (central) best = markovTail(central, d, true);
+  }
+  const [lo, hi] = model.support;
+  if (kLeft === null && Number.isFinite(lo)) {
+    const r = dist(lo, kRight!, 1);
+    const mb = r > 0 ? momentBounds(model, lo, r) : null;
+    if (mb) best = Math.min(best, markovTail(mb, r, false));
+  }
+  if (kRight === null && Number.isFinite(hi)) {
+    const r = dist(hi, kLeft!, -1);
+    const mb = r > 0 ? momentBounds(model, hi, r) : null;
+    if (mb) best = Math.min(best, markovTail(mb, r, true));
+  }
+  return Number.isFinite(best) ? Math.min(best, 1) : Infinity;
 }
 
 /** cdf and sf at each lattice point, sf summed from the right so upper tails keep relative accuracy. */
