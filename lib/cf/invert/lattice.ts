@@ -63,7 +63,7 @@ export function solveLattice(model: CompiledModel, origin: number, step: number,
     const leftOpen = !(Number.isFinite(lo) && origin + k0 * step <= lo);
     const rightOpen = !(Number.isFinite(hi) && origin + (k0 + N - 1) * step >= hi);
     const outside = aliasBound(model, origin, step, leftOpen ? k0 - 1 : null, rightOpen ? k0 + N : null);
-    const round = latticeRounding(model, origin + k0 * step, step, N);
+    const round = latticeRounding(model, origin, step, N);
     // tailMass: the mass outside the window (the density route reports 1 - tailMass as captured; risk adds it to S).
     // pmf: the aliasing of a point is at most that mass; cdf and sf: their aliased sums and the mass left out both are
     out = {
@@ -88,12 +88,14 @@ export function solveLattice(model: CompiledModel, origin: number, step: number,
  * Rounding of latticeByFft's pmf per lattice point, derived for its steps (u = eps/2; every |phi_j| <= 1, so
  * (1/N) sum |phi_j| <= 1 and each step's relative error per term is one per unit of the pmf):
  *  - t_j = 2 pi jj / (N step) within 4 u of itself (2 pi, the product, N step, the division); the CF taken there is off
- *    from phi(t_j) e^{-i t_j x0} by at most |t_j - t^_j| E|X - x0| (d/dt E e^{it(X - x0)} = E[i (X - x0) e^{it(X - x0)}]),
- *    with E|X - x0| <= sqrt(kappa_2 + (kappa_1 - x0)^2) (Cauchy-Schwarz), or kappa_1 + |x0| on [0, inf) without a
- *    variance; none without a mean (the bound is then Infinity);
- *  - the phase -t^_j x0 one rounding (u |t_j x0|), cos and sin within an ulp each (2 u) and the complex product
- *    2 sqrt(2) u (Higham, Accuracy and Stability of Numerical Algorithms, 2nd ed., sec. 3.6): with |t_j| <= pi/step,
- *    u ((pi/step)(4 E|X - x0| + |x0|) + 6) per term, plus the CF's own declared error;
+ *    from phi(t_j) e^{-i t_j o} (o the lattice's origin) by at most |t_j - t^_j| E|X - o| (d/dt E e^{it(X - o)} =
+ *    E[i (X - o) e^{it(X - o)}]), with E|X - o| <= sqrt(kappa_2 + (kappa_1 - o)^2) (Cauchy-Schwarz), or kappa_1 + |o| on
+ *    [0, inf) without a variance; none without a mean (the bound is then Infinity);
+ *  - the window's first point x0 = o + k0 step enters through e^{-i t_j k0 step} = e^{-2 pi i m / N}, m = jj k0 mod N an
+ *    exact integer, so the phase -t^_j o - 2 pi m / N (|2 pi m / N| <= pi) errs by u |t_j o| (the product), 2 pi u (2 pi
+ *    and the product by m; the division by N is exact) and u (|t_j o| + pi) (the sum); cos and sin within an ulp each
+ *    (2 u) and the complex product 2 sqrt(2) u (Higham, Accuracy and Stability of Numerical Algorithms, 2nd ed., sec.
+ *    3.6): with |t_j| <= pi/step, u ((pi/step)(4 E|X - o| + 2 |o|) + 15) per term, plus the CF's own declared error;
  *  - the transform: Higham sec. 24.1, Thm 24.2 (radix 2, twiddles off by at most mu), ||y^ - y||_2 <= log2(N) eta
  *    ||y||_2 / (1 - log2(N) eta), eta = mu + gamma_4 (sqrt(2) + mu); fft.js (radix 4, each stage the work of two radix-2
  *    levels, twiddles from Math.cos/sin of 2 pi k/N, mu <= (2 pi + 2) u) gives eta <= 16 u; per output, the levels'
@@ -102,13 +104,13 @@ export function solveLattice(model: CompiledModel, origin: number, step: number,
  * This is the pmf's bound per point; the cdf's (a sum of up to N of them) takes sqrt(N) times it: ||e||_1 over a run of
  * points <= sqrt(N) ||e||_2, and both parts have ||e||_2 at most the same per-term bound (||F d||_2 = sqrt(N) ||d||_2).
  */
-export function latticeRounding(model: CompiledModel, x0: number, step: number, N: number): number {
+export function latticeRounding(model: CompiledModel, origin: number, step: number, N: number): number {
   const u = Number.EPSILON / 2;
   const [k1, k2] = model.cumulants(2);
   let spread = Infinity;
-  if (k1 !== null && Number.isFinite(k1) && k2 !== null && Number.isFinite(k2)) spread = Math.sqrt(Math.max(k2, 0) + (k1 - x0) ** 2) * (1 + 4 * u);
-  else if (k1 !== null && Number.isFinite(k1) && model.support[0] >= 0) spread = (k1 + Math.abs(x0)) * (1 + 2 * u);
-  const perTerm = u * ((Math.PI / step) * (4 * spread + Math.abs(x0)) * (1 + 4 * u) + 6) + (model.cfRelError ?? 0) + (model.cfAbsError ?? 0);
+  if (k1 !== null && Number.isFinite(k1) && k2 !== null && Number.isFinite(k2)) spread = Math.sqrt(Math.max(k2, 0) + (k1 - origin) ** 2) * (1 + 4 * u);
+  else if (k1 !== null && Number.isFinite(k1) && model.support[0] >= 0) spread = (k1 + Math.abs(origin)) * (1 + 2 * u);
+  const perTerm = u * ((Math.PI / step) * (4 * spread + 2 * Math.abs(origin)) * (1 + 4 * u) + 15) + (model.cfRelError ?? 0) + (model.cfAbsError ?? 0);
   const eta = 16 * u;
   const levels = Math.log2(N);
   return (perTerm + (levels * eta) / (1 - levels * eta)) * (1 + 1e-10);
@@ -125,9 +127,13 @@ function latticeByFft(model: CompiledModel, origin: number, step: number, k0: nu
   model.cf(t, re, im);
   const plan = getFftPlan(N);
   const inp = plan.a;
-  const x0 = origin + k0 * step;
+  // e^{-i t_j x0} = e^{-i t_j origin} e^{-2 pi i m / N}, m = jj k0 mod N taken in exact integers (each factor below N)
+  const kr = ((k0 % N) + N) % N;
   for (let j = 0; j < N; j++) {
-    const a = -t[j] * x0;
+    const jj = j <= N / 2 ? j : j - N;
+    let m = (((jj + N) % N) * kr) % N;
+    if (m > N / 2) m -= N;
+    const a = -t[j] * origin - (2 * Math.PI * m) / N;
     const c = Math.cos(a);
     const s = Math.sin(a);
     inp[2 * j] = re[j] * c - im[j] * s;
