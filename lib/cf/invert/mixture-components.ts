@@ -218,12 +218,11 @@ function lightComponent(w: number, m: CompiledModel, tolIn: number): Component |
     excess(q) {
       if (mean === null || !Number.isFinite(mean)) return null;
       if (q >= b) {
-        // beyond the window: E[(X - q)^+] from the component's central moments (tail-moments.ts); without them S(y) <= S(b)
-        // over at most 8 spreads of a light tail (an allowance, not a derived bound)
-        const derived = tails ? tails.right(q) : Infinity;
-        if (Number.isFinite(derived)) return { value: 0, error: derived };
-        const sb = Math.max(inside(b).S, 0) + e;
-        return { value: 0, error: sb * 8 * shape.spread };
+        // beyond the window E[(X - q)^+] lies in [0, B] (answered as its midpoint), B the least of the moments' bounds:
+        // central moments to order 12 (tail-moments.ts), and Markov's at its best order (moment-tails.ts) on the distance
+        // from the mean (even orders) and from a finite lower end (every order); no bound without them
+        const B = Math.min(tails ? tails.right(q) : Infinity, excessFromMoments(m, mean, q));
+        return Number.isFinite(B) ? { value: B / 2, error: B / 2 } : { value: 0, error: Infinity };
       }
       // below the window: E[(X - q)^+] = E[(X - a)^+] + (a - q) - int_q^a F, the last within (a - q) F(a)
       const qq = Math.max(q, a);
@@ -235,6 +234,22 @@ function lightComponent(w: number, m: CompiledModel, tolIn: number): Component |
     notes: () => out.notes,
     method: "gil-pelaez",
   };
+}
+
+/** E[(X - q)^+] <= the least Markov bound at the best order: on |X - mean| (even orders), and on X - lo where lo is finite */
+function excessFromMoments(m: CompiledModel, mean: number, q: number): number {
+  if (!m.cumulantErrors) return Infinity;
+  let best = Infinity;
+  if (q > mean) {
+    const mb = momentBounds(m, mean, q - mean);
+    if (mb) best = markovExcess(mb, q - mean, true);
+  }
+  const lo = m.support[0];
+  if (Number.isFinite(lo) && q > lo) {
+    const mb = momentBounds(m, lo, q - lo);
+    if (mb) best = Math.min(best, markovExcess(mb, q - lo));
+  }
+  return best;
 }
 
 /**

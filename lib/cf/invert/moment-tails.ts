@@ -30,13 +30,15 @@ export function markovTail(m: MomentBounds, r: number, evenOnly: boolean): numbe
 /**
  * E[(X - lo - r)^+] for X >= lo, r > 0, at its best order: (y - r)^+ <= y^n (n - 1)^{n-1} / (n^n r^{n-1}) for y >= 0 and
  * n >= 2 (the ratio (y - r) / y^n is largest at y = n r / (n - 1)), so E[(Y - r)^+] <= E[Y^n] (n - 1)^{n-1} / (n^n r^{n-1});
- * each candidate carries the rounding of its logarithms as markovTail's do. Infinity when no order is usable.
+ * each candidate carries the rounding of its logarithms as markovTail's do. With evenOnly, X on either side of lo: for even n
+ * the same inequality holds for every real y (both sides are >= 0, the left one 0 for y <= r), so E[(X - lo - r)^+] <=
+ * E[(X - lo)^n] (n - 1)^{n-1} / (n^n r^{n-1}). Infinity when no order is usable.
  */
-export function markovExcess(m: MomentBounds, r: number): number {
+export function markovExcess(m: MomentBounds, r: number, evenOnly = false): number {
   if (!(r > 0)) return Infinity;
   const lr = Math.log(r / m.c);
   let best = Infinity;
-  for (let n = 2; n < m.logU.length; n++) {
+  for (let n = 2; n < m.logU.length; n += evenOnly ? 2 : 1) {
     const l = m.logU[n];
     if (Number.isNaN(l)) continue;
     const shape = (n - 1) * Math.log(n - 1) - n * Math.log(n);
