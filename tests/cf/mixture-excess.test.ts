@@ -67,3 +67,22 @@ describe("mixture expected shortfall past a light component's window (reference:
     c.done();
   });
 });
+
+describe("expected shortfall of a light law by the Gil-Pelaez sums (shortfall.ts): the part past the window", () => {
+  const SUM: Model = { sum: [{ family: "normal", mu: 0, sigma: 1 }, { family: "laplace", loc: 0, scale: 1 }] };
+  it("N(0, 1) + Laplace(0, 1): finite ES bounds with the moments; Infinity without their error bounds", () => {
+    const c = new Checker();
+    const levels = [0.9, 0.999];
+    const r = quantiles(compile(SUM), levels, { expectedShortfall: true });
+    c.that("method", r.diagnostics.method === "gil-pelaez", r.diagnostics.method);
+    // the law is symmetric with E|X| > 0, so ES_p > q_p > 0 for p >= 0.9 (a check of direction, not of the bound)
+    levels.forEach((p, i) => c.that(`ES above q at p = ${p}`, r.expectedShortfall![i] > r.x[i] && r.x[i] > 0));
+    levels.forEach((p, i) => c.that(`ES bound at p = ${p} finite`, Number.isFinite(r.diagnostics.expectedShortfallError![i])));
+    // without the cumulants' error bounds the mass past the window's end b has no derived bound (it was 8 spreads of S(b))
+    const m = compile(SUM);
+    delete (m as { cumulantErrors?: unknown }).cumulantErrors;
+    const s = quantiles(m, levels, { expectedShortfall: true });
+    levels.forEach((p, i) => c.that(`ES bound at p = ${p} without moment bounds is Infinity`, s.diagnostics.expectedShortfallError![i] === Infinity, String(s.diagnostics.expectedShortfallError![i])));
+    c.done();
+  });
+});

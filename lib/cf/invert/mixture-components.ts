@@ -226,7 +226,7 @@ function lightComponent(w: number, m: CompiledModel, tolIn: number): Component |
       }
       // below the window: E[(X - q)^+] = E[(X - a)^+] + (a - q) - int_q^a F, the last within (a - q) F(a)
       const qq = Math.max(q, a);
-      const r = shortfallLight(sol, atoms, wc, qq, 0, e, 0, shape.spread, tails);
+      const r = shortfallLight(sol, atoms, wc, qq, 0, e, 0, tails);
       const fa = q < a ? Math.max(inside(a).F, 0) + e : 0;
       return { value: r.value - qq + (qq - q), error: r.error + (qq - q) * fa };
     },

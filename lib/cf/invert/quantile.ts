@@ -173,7 +173,7 @@ function lightQuantiles(model: CompiledModel, atoms: Atom[], w: number, p: Float
     esErr = new Float64Array(p.length);
     const tails = stopLossBounds(model);
     for (let i = 0; i < p.length; i++) {
-      const r = shortfallLight(sol, atoms, w, x[i], p[i], errCdf, err[i], shape.spread, tails);
+      const r = shortfallLight(sol, atoms, w, x[i], p[i], errCdf, err[i], tails);
       es[i] = r.value;
       esErr[i] = r.error;
     }

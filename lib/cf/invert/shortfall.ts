@@ -69,7 +69,6 @@ export function shortfallLight(
   p: number,
   errCdf: number,
   errQ: number,
-  spread: number,
   tails: StopLossBounds | null = null,
 ): { value: number; error: number } {
   if (p >= 1) return { value: q, error: 0 };
@@ -97,12 +96,14 @@ export function shortfallLight(
   // images: for y in [q, b] the sf error is within [-S(y + T), F(y - T)], both below F(a) <= aliasCore + sum error
   const alias = sol.aliasCore + 2 * sol.sumErrCdf;
   const trunc = truncationAt(sol.envelope, sol.nodes.K * sol.nodes.h).cdf * 2 * Math.abs(b - q);
-  // mass beyond b: S(b) <= alias, spread over a tail length of at most 8 standard deviations (light tails)
-  const tailBeyond = alias * spread * 8;
+  // past b (and past q when q >= b) the inverted sums say nothing: the law's own E[(X - max(q, b))^+] bounds what is left
+  // there (the continuous part's share, weighted, is at most the law's), from its moments (tail-moments.ts); without them
+  // no bound
+  const tailBeyond = tails ? tails.right(Math.max(q, b)) : Infinity;
   const excess = atomPart + w * part;
   const value = q + excess / (1 - p);
   // dES/dq = 1 - S(q)/(1 - p) vanishes at the exact quantile, so errQ enters at second order (bounded by errCdf errQ)
-  let body = w * (Math.max(b - q, 0) * alias + intRound + trunc + tailBeyond);
+  let body = w * (Math.max(b - q, 0) * alias + intRound + trunc) + tailBeyond;
   if (tails && q < b) {
     const a = sol.window.a;
     const T = b - a;
@@ -111,7 +112,6 @@ export function shortfallLight(
     // continuous part's mass is below the law's) plus the kernels'; the part beyond b is at most E[(X - b)^+]
     // (no larger than the window-wide term above, which stays where it is smaller)
     const images = Math.min(tails.left(a) + tails.right(q + T) + w * kernelImages(sol.part.kernels, a, q + T), w * Math.max(b - q, 0) * alias);
-    // (the old allowance assumed a tail no longer than 8 spreads; the moment bound replaces it wherever it is finite)
     const beyond = tails.right(b);
     // truncation: the terms t_k > t* = (K - 1/2) h of the integrated sum carry |phi_k| |e^{-i t_k b} - e^{-i t_k q}| / t_k^2
     // <= 2 E(t_k) / t_k^2 with E non-increasing (h g(t_k) <= int_{t_k - h}^{t_k} g for a non-increasing g), so their sum is
