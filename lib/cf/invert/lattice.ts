@@ -59,17 +59,17 @@ export function solveLattice(model: CompiledModel, origin: number, step: number,
   let out: LatticeSolution | null = null;
   for (let iter = 0; iter < 6; iter++) {
     if (N > MAX_LATTICE) N = MAX_LATTICE;
-    const p = latticeByFft(model, origin, step, k0, N);
+    const { p, pmf: round, cdf: roundCdf } = latticeByFft(model, origin, step, k0, N);
     const leftOpen = !(Number.isFinite(lo) && origin + k0 * step <= lo);
     const rightOpen = !(Number.isFinite(hi) && origin + (k0 + N - 1) * step >= hi);
     const outside = aliasBound(model, origin, step, leftOpen ? k0 - 1 : null, rightOpen ? k0 + N : null);
-    const round = latticeRounding(model, origin, step, N);
     // tailMass: the mass outside the window (the density route reports 1 - tailMass as captured; risk adds it to S).
     // pmf: the aliasing of a point is at most that mass; cdf and sf: their aliased sums and the mass left out both are
     out = {
       table: { origin: origin + k0 * step, step, p, tailMass: outside },
       errorPmf: 2 * outside + round,
-      errorCdf: 2 * outside + round * Math.sqrt(N),
+      // the cumulative sums (latticeCumulative, compensated) add at most 2 u (1 + O(N u)) of the sum of |p|: 4 u of it
+      errorCdf: 2 * outside + roundCdf + 2 * Number.EPSILON * sumAbs(p),
       method: "lattice-fft",
       gridSize: N,
       notes,
@@ -85,38 +85,31 @@ export function solveLattice(model: CompiledModel, origin: number, step: number,
 }
 
 /**
- * Rounding of latticeByFft's pmf per lattice point, derived for its steps (u = eps/2; every |phi_j| <= 1, so
- * (1/N) sum |phi_j| <= 1 and each step's relative error per term is one per unit of the pmf):
- *  - t_j = 2 pi jj / (N step) within 4 u of itself (2 pi, the product, N step, the division); the CF taken there is off
- *    from phi(t_j) e^{-i t_j o} (o the lattice's origin) by at most |t_j - t^_j| E|X - o| (d/dt E e^{it(X - o)} =
- *    E[i (X - o) e^{it(X - o)}]), with E|X - o| <= sqrt(kappa_2 + (kappa_1 - o)^2) (Cauchy-Schwarz), or kappa_1 + |o| on
- *    [0, inf) without a variance; none without a mean (the bound is then Infinity);
- *  - the window's first point x0 = o + k0 step enters through e^{-i t_j k0 step} = e^{-2 pi i m / N}, m = jj k0 mod N an
- *    exact integer, so the phase -t^_j o - 2 pi m / N (|2 pi m / N| <= pi) errs by u |t_j o| (the product), 2 pi u (2 pi
- *    and the product by m; the division by N is exact) and u (|t_j o| + pi) (the sum); cos and sin within an ulp each
- *    (2 u) and the complex product 2 sqrt(2) u (Higham, Accuracy and Stability of Numerical Algorithms, 2nd ed., sec.
- *    3.6): with |t_j| <= pi/step, u ((pi/step)(4 E|X - o| + 2 |o|) + 15) per term, plus the CF's own declared error;
- *  - the transform: Higham sec. 24.1, Thm 24.2 (radix 2, twiddles off by at most mu), ||y^ - y||_2 <= log2(N) eta
- *    ||y||_2 / (1 - log2(N) eta), eta = mu + gamma_4 (sqrt(2) + mu); fft.js (radix 4, each stage the work of two radix-2
- *    levels, twiddles from Math.cos/sin of 2 pi k/N, mu <= (2 pi + 2) u) gives eta <= 16 u; per output, the levels'
- *    errors are at most eta times the absolute sum of the inputs they combine, which partition the inputs: log2(N) eta
- *    per unit of (1/N) sum |x_j| <= 1.
- * This is the pmf's bound per point; the cdf's (a sum of up to N of them) takes sqrt(N) times it: ||e||_1 over a run of
- * points <= sqrt(N) ||e||_2, and both parts have ||e||_2 at most the same per-term bound (||F d||_2 = sqrt(N) ||d||_2).
+ * The pmf on the window x0 + q step, q < N (x0 = origin + k0 step), by one inverse DFT of the CF, with bounds on its
+ * rounding derived for its steps from the CF values actually used (u = eps/2). Each input x_j = phi(t^_j) times the
+ * phase errs by at most e_j:
+ *  - t_j = 2 pi jj / (N step) within 4 u of itself (2 pi, the product, N step, the division); the CF taken there and
+ *    turned by the reference point r's phase is off from phi(t_j) e^{-i t_j r} by at most |t_j - t^_j| E|X - r|
+ *    (d/dt E e^{it(X - r)} = E[i (X - r) e^{it(X - r)}]), with E|X - r| <= sqrt(kappa_2 + (kappa_1 - r)^2) (Cauchy-
+ *    Schwarz), or kappa_1 + |r| on [0, inf) without a variance; none without a mean (the bound is then Infinity);
+ *  - the phase, about the reference r = origin + M step whose bound is the smallest of three (M = 0, k0, or the lattice
+ *    point nearest the mean): r as computed is off the lattice point by d (the product's and the sum's rounding found
+ *    exactly: Dekker's product and Knuth's sum, error-free transformations, Higham, Accuracy and Stability of Numerical
+ *    Algorithms, 2nd ed., sec. 4.3; 0 for the origin), and the offset from r to x0 enters through e^{-i t_j (k0 - M)
+ *    step} = e^{-2 pi i m / N}, m = jj (k0 - M) mod N an exact integer; the angle -t^_j r - 2 pi m / N (|2 pi m / N| <=
+ *    pi) errs by u |t_j r| (the product), |t_j| d, 2 pi u (2 pi and the product by m; / N is exact) and u (|t_j r| + pi)
+ *    (the sum), only by u |t_j r| + |t_j| d when m = 0 (M = k0); cos and sin within an ulp each, and the complex product
+ *    2 sqrt(2) u (Higham sec. 3.6): 6 u beside the angle's error, all times |phi^_j|; plus the CF's own declared error.
+ * The transform: Higham sec. 24.1, Thm 24.2 (radix 2, twiddles off by at most mu), ||y^ - y||_2 <= log2(N) eta ||y||_2 /
+ * (1 - log2(N) eta), eta = mu + gamma_4 (sqrt(2) + mu); fft.js (radix 4, each stage the work of two radix-2 levels,
+ * twiddles from Math.cos/sin of 2 pi k/N, mu <= (2 pi + 2) u) gives eta <= 16 u; per output, the levels' errors are at
+ * most eta times the absolute sum of the inputs they combine, which partition the inputs.
+ * pmf (each point): (1/N) (sum_j e_j + L sum_j |x_j|), L = log2(N) eta / (1 - log2(N) eta). cdf and sf (a run of up to
+ * N points): ||.||_1 <= sqrt(N) ||.||_2 and ||F d||_2 = sqrt(N) ||d||_2 give sqrt(sum_j e_j^2) + L sqrt(sum_j |x_j|^2).
+ * Both carry (1 + 2 N u) for the rounding of these sums of positive terms.
  */
-export function latticeRounding(model: CompiledModel, origin: number, step: number, N: number): number {
+function latticeByFft(model: CompiledModel, origin: number, step: number, k0: number, N: number): { p: Float64Array; pmf: number; cdf: number } {
   const u = Number.EPSILON / 2;
-  const [k1, k2] = model.cumulants(2);
-  let spread = Infinity;
-  if (k1 !== null && Number.isFinite(k1) && k2 !== null && Number.isFinite(k2)) spread = Math.sqrt(Math.max(k2, 0) + (k1 - origin) ** 2) * (1 + 4 * u);
-  else if (k1 !== null && Number.isFinite(k1) && model.support[0] >= 0) spread = (k1 + Math.abs(origin)) * (1 + 2 * u);
-  const perTerm = u * ((Math.PI / step) * (4 * spread + 2 * Math.abs(origin)) * (1 + 4 * u) + 15) + (model.cfRelError ?? 0) + (model.cfAbsError ?? 0);
-  const eta = 16 * u;
-  const levels = Math.log2(N);
-  return (perTerm + (levels * eta) / (1 - levels * eta)) * (1 + 1e-10);
-}
-
-function latticeByFft(model: CompiledModel, origin: number, step: number, k0: number, N: number): Float64Array {
   const t = new Float64Array(N);
   for (let j = 0; j < N; j++) {
     const jj = j <= N / 2 ? j : j - N;
@@ -125,24 +118,90 @@ function latticeByFft(model: CompiledModel, origin: number, step: number, k0: nu
   const re = new Float64Array(N);
   const im = new Float64Array(N);
   model.cf(t, re, im);
+  // the route of the phase: the one whose bound is smaller over these CF values
+  const [k1, k2] = model.cumulants(2);
+  const spread = (r: number) => {
+    if (k1 !== null && Number.isFinite(k1) && k2 !== null && Number.isFinite(k2)) return Math.sqrt(Math.max(k2, 0) + (k1 - r) ** 2) * (1 + 4 * u);
+    if (k1 !== null && Number.isFinite(k1) && model.support[0] >= 0) return (k1 + Math.abs(r)) * (1 + 2 * u);
+    return Infinity;
+  };
+  let sumT = 0;
+  let sumM = 0;
+  let sumMT = 0;
+  const mag = new Float64Array(N);
+  const cfRel = model.cfRelError ?? 0;
+  const cfAbs = model.cfAbsError ?? 0;
+  for (let j = 0; j < N; j++) {
+    mag[j] = Math.hypot(re[j], im[j]) * (1 + 2 * u);
+    sumT += Math.abs(t[j]);
+    sumM += mag[j];
+    sumMT += mag[j] * Math.abs(t[j]);
+  }
+  // reference points r = origin + M step: the origin, the window's first point, the lattice point nearest the mean
+  const dt = 4 * u * (1 + 8 * u);
+  const near = k1 !== null && Number.isFinite(k1) ? Math.round((k1 - origin) / step) : 0;
+  // (k0 - M) mod N must be exact: every M within the safe integers of k0
+  const routes = [0, k0, Number.isSafeInteger(near - k0) && Number.isSafeInteger(near) ? near : 0].map((M) => {
+    const { x: r, off } = M === 0 ? { x: origin, off: 0 } : latticePoint(origin, M, step);
+    const exact = M === k0;
+    return { M, r, e: dt * spread(r), a: (exact ? 1 : 2) * u * Math.abs(r) * (1 + 2 * u) + off, b: (exact ? 6 : 3 * Math.PI + 6) * u };
+  });
+  const cost = (v: (typeof routes)[number]) => v.e * sumT + v.a * sumMT + v.b * sumM;
+  const v = routes.reduce((best, r) => (cost(r) < cost(best) ? r : best));
   const plan = getFftPlan(N);
   const inp = plan.a;
-  // e^{-i t_j x0} = e^{-i t_j origin} e^{-2 pi i m / N}, m = jj k0 mod N taken in exact integers (each factor below N)
-  const kr = ((k0 % N) + N) % N;
+  // e^{-i t_j x0} = e^{-i t_j r} e^{-2 pi i m / N}, m = jj (k0 - M) mod N in exact integers (each factor below N)
+  const kr = (((k0 - v.M) % N) + N) % N;
+  let sumE = 0;
+  let sumE2 = 0;
+  let sumX = 0;
+  let sumX2 = 0;
   for (let j = 0; j < N; j++) {
     const jj = j <= N / 2 ? j : j - N;
     let m = (((jj + N) % N) * kr) % N;
     if (m > N / 2) m -= N;
-    const a = -t[j] * origin - (2 * Math.PI * m) / N;
+    const a = m === 0 ? -t[j] * v.r : -t[j] * v.r - (2 * Math.PI * m) / N;
     const c = Math.cos(a);
     const s = Math.sin(a);
     inp[2 * j] = re[j] * c - im[j] * s;
     inp[2 * j + 1] = re[j] * s + im[j] * c;
+    const tj = Math.abs(t[j]);
+    const e = v.e * tj + mag[j] * (v.a * tj + v.b + cfRel) + cfAbs;
+    const x = mag[j] * (1 + 6 * u);
+    sumE += e;
+    sumE2 += e * e;
+    sumX += x;
+    sumX2 += x * x;
   }
   plan.forward(inp, plan.b);
   const p = new Float64Array(N);
   for (let q = 0; q < N; q++) p[q] = plan.b[2 * q] / N;
-  return p;
+  const levels = Math.log2(N);
+  const L = (levels * 16 * u) / (1 - levels * 16 * u);
+  const sums = 1 + 2 * N * u;
+  return { p, pmf: ((sumE + L * sumX) / N) * sums, cdf: (Math.sqrt(sumE2) + L * Math.sqrt(sumX2)) * sums * (1 + 2 * u) };
+}
+
+/**
+ * x = fl(origin + fl(k step)) and a bound on |x - (origin + k step)|: the product's and the sum's rounding errors found
+ * exactly (Dekker's TwoProduct by Veltkamp splitting, Knuth's TwoSum; Higham, Accuracy and Stability of Numerical
+ * Algorithms, 2nd ed., sec. 4.3), their sum taken with one more rounding; Infinity where the splitting overflows.
+ */
+function latticePoint(origin: number, k: number, step: number): { x: number; off: number } {
+  const split = (a: number) => {
+    const c = 134217729 * a;
+    const hi = c - (c - a);
+    return [hi, a - hi];
+  };
+  const p = k * step;
+  const [kh, kl] = split(k);
+  const [sh, sl] = split(step);
+  const ep = kh * sh - p + kh * sl + kl * sh + kl * sl;
+  const x = origin + p;
+  const bb = x - origin;
+  const es = origin - (x - bb) + (p - bb);
+  const off = (Math.abs(ep) + Math.abs(es)) * (1 + Number.EPSILON);
+  return { x, off: Number.isFinite(off) ? off : Infinity };
 }
 
 /**
@@ -184,6 +243,12 @@ export function aliasBound(model: CompiledModel, origin: number, step: number, k
     if (mb) best = Math.min(best, markovTail(mb, r, true));
   }
   return Number.isFinite(best) ? Math.min(best, 1) : Infinity;
+}
+
+function sumAbs(p: Float64Array): number {
+  let s = 0;
+  for (let i = 0; i < p.length; i++) s += Math.abs(p[i]);
+  return s * (1 + p.length * Number.EPSILON);
 }
 
 /** cdf and sf at each lattice point, sf summed from the right so upper tails keep relative accuracy. */
