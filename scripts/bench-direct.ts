@@ -1,4 +1,4 @@
-// npm run bench:direct — single named laws through lib/cf's public entry points, answered without CF inversion:
+// npm run bench:direct (BENCH_DIRECT_ONLY=<section> for one section) — single named laws through lib/cf's public entry points, answered without CF inversion:
 // stable laws at 1 000 arbitrary points (body and far tails, |x| up to 1e8), and seven quantiles (with ES) of single
 // families. Prints medians (wall clock) and the CPU time per call, so that a loaded machine still shows the cost.
 import { readFileSync } from "node:fs";
@@ -42,6 +42,9 @@ function points(n: number): Float64Array {
   return x;
 }
 
+/** BENCH_DIRECT_ONLY=stable|vg-nig|incgamma|quantiles runs that section alone */
+const ONLY = process.env.BENCH_DIRECT_ONLY ?? "";
+const run = (name: string) => !ONLY || ONLY === name;
 console.log(`bench:direct (medians; load average ${loadavg()[0].toFixed(1)} on ${cpus().length} cores)`);
 const stable: [number, number, "S0" | "S1"][] = [
   [0.3, 0.5, "S1"],
@@ -62,7 +65,7 @@ const stable: [number, number, "S0" | "S1"][] = [
   [0.3, 1, "S1"],
   [1.999, -1, "S1"],
 ];
-for (const [alpha, beta, param] of stable) {
+for (const [alpha, beta, param] of run("stable") ? stable : []) {
   const m = compile({ family: "stable", alpha, beta, param } as Model);
   const x = points(1000);
   const first = performance.now();
@@ -84,7 +87,7 @@ const vgNig: Model[] = [
   { family: "nig", alpha: 3, beta: 1, delta: 0.8, mu: 0 },
   { family: "nig", alpha: 1.2, beta: -0.7, delta: 2, mu: 0.5 },
 ] as Model[];
-for (const m of vgNig) {
+for (const m of run("vg-nig") ? vgNig : []) {
   const c = compile(m);
   // half uniform in [-10, 10], half log-uniform in |x| over [1e-3, 60] with random sign (tails down to ~1e-40 and beyond)
   const x = new Float64Array(1000);
@@ -97,9 +100,31 @@ for (const m of vgNig) {
   );
 }
 
+// incomplete-gamma laws (cdf/sf by lib/cf/families/incgamma-bounded.ts): 1 000 points each, half uniform over
+// [0, mean + 8 sd], half log-uniform over [mean/1e3, 50 mean] (both tails, down to 1e-300 and below)
+const incGamma: [Model, number, number][] = [
+  [{ family: "gamma", shape: 1.56, rate: 2 } as Model, 0.78, 0.62],
+  [{ family: "gamma", shape: 0.3, rate: 1.5 } as Model, 0.2, 0.37],
+  [{ family: "gamma", shape: 25, rate: 4 } as Model, 6.25, 1.25],
+  [{ family: "chi_squared", k: 7 } as Model, 7, 3.74],
+  [{ family: "gamma", shape: 1e4, rate: 1 } as Model, 1e4, 100],
+  [{ family: "inverse_gamma", alpha: 3, theta: 2 } as Model, 1, 1],
+];
+for (const [m, mean, sd] of run("incgamma") ? incGamma : []) {
+  const c = compile(m);
+  const x = new Float64Array(1000);
+  for (let i = 0; i < 1000; i++) x[i] = i % 2 ? mean * 10 ** (-3 + 4.7 * rnd()) : (mean + 8 * sd) * rnd();
+  const r = density(c, { x });
+  const t = time(() => density(c, { x }));
+  console.log(
+    `${JSON.stringify(m)} 1000 points`.padEnd(60) +
+      `${t.wall.toFixed(2)} ms wall, ${t.cpu.toFixed(2)} ms cpu (least ${t.cpuMin.toFixed(2)})  method ${r.diagnostics.method}, max bound pdf ${r.diagnostics.error.pdf!.toExponential(1)} cdf ${r.diagnostics.error.cdf.toExponential(1)}`,
+  );
+}
+
 // accuracy over a sample of the points above (every 100th and 100th + 1 of each of the first ten laws) against the
 // mpmath references of tests/fixtures/stable/bench-sample.json (written by tests/fixtures/stable/generate.py --bench)
-{
+if (run("stable")) {
   const sample = JSON.parse(readFileSync(new URL("../tests/fixtures/stable/bench-sample.json", import.meta.url), "utf8")) as {
     points: { model: Model & { alpha: number; beta: number; param: string }; x: number; pdf: string; cdf: string; sf: string }[];
   };
@@ -140,7 +165,7 @@ const singles: Model[] = [
   { family: "variance_gamma", sigma: 0.5, nu: 3, theta: -0.4, loc: 0.2 },
   { family: "nig", alpha: 3, beta: 1, delta: 0.8, mu: 0 },
 ] as Model[];
-for (const m of singles) {
+for (const m of run("quantiles") ? singles : []) {
   const c = compile(m);
   const t = time(() => quantiles(c, levels, { expectedShortfall: true }));
   const r = quantiles(c, levels, { expectedShortfall: true });

@@ -1,20 +1,22 @@
 import erfc from "@stdlib/math-base-special-erfc";
-import gammainc from "@stdlib/math-base-special-gammainc";
 import gammaincinv from "@stdlib/math-base-special-gammaincinv";
 import betainc from "@stdlib/math-base-special-betainc";
 import betaincinv from "@stdlib/math-base-special-betaincinv";
 import normalQuantile from "@stdlib/stats-base-dists-normal-quantile";
-import { lgamma } from "../families/special";
+import { lgamma, lgammaErr } from "../families/special";
+import { incGammaBounded, incGammaShape, type IncGamma } from "../families/incgamma-bounded";
 import type { DirectLaw } from "./types";
 import { bounds, ELEM, EPS, law, SPECIAL, SQRT2PI } from "./law";
+
+const U = EPS / 2;
 
 /**
  * Closed-form and special-function laws for the direct route. Formulas: Johnson, Kotz & Balakrishnan, Continuous
  * Univariate Distributions vols. 1-2 (chapter per family in lib/cf/families/spec.ts); cdf and sf are each computed in
  * the form that keeps relative accuracy in its own tail (erfc, expm1, log1p, atan2, the upper incomplete functions).
- * Error bounds: ELEM relative for elementary functions, SPECIAL relative for the stdlib incomplete gamma/beta
- * (their documented ports of Boost/Cephes reach ~1e-14; we claim 1e-12 and verify against mpmath in
- * tests/cf/direct-families.test.ts), plus the effect of rounding the argument, pdf * |dx|.
+ * Error bounds: ELEM relative for elementary functions; the incomplete gamma's own derived bounds
+ * (../families/incgamma-bounded.ts); SPECIAL relative for stdlib's incomplete beta (Student t: a figure checked against
+ * mpmath in tests/cf/direct-families.test.ts, not derived); plus the effect of rounding the argument, pdf * |dx|.
  */
 export function normalDirect(mu: number, sigma: number): DirectLaw {
   return law(
@@ -62,8 +64,18 @@ export function lognormalDirect(mu: number, sigma: number): DirectLaw {
   );
 }
 
+/**
+ * Gamma(shape, rate): F = P(shape, rate x), S = Q(shape, rate x) by ../families/incgamma-bounded.ts, each with its
+ * bound; f = exp(shape log rate - log Gamma(shape) + (shape - 1) log x - rate x), whose exponent's error is summed
+ * term by term (log within 2u relative, each product and sum u, log Gamma by lgammaErr).
+ */
 export function gammaDirect(shape: number, rate: number): DirectLaw {
-  const lognorm = shape * Math.log(rate) - lgamma(shape);
+  const lr = shape * Math.log(rate);
+  const lgs = lgamma(shape);
+  const lognorm = lr - lgs;
+  const eNorm = 1.01 * U * (3 * Math.abs(lr) + Math.abs(lognorm)) + lgammaErr(shape);
+  const ig = incGammaShape(shape);
+  const r: IncGamma = { p: 0, q: 0, pErr: 0, qErr: 0 };
   const mean = shape / rate;
   const exp1 = shape === 1;
   return law(
@@ -81,13 +93,22 @@ export function gammaDirect(shape: number, rate: number): DirectLaw {
         bounds(o, ELEM, ELEM + 2 * EPS * y, dx);
         return;
       }
-      o.pdf = x === 0 ? (shape < 1 ? Infinity : shape === 1 ? rate : 0) : Math.exp(lognorm + (shape - 1) * Math.log(x) - y);
-      o.cdf = gammainc(y, shape, true, false);
-      o.sf = gammainc(y, shape, true, true);
-      bounds(o, SPECIAL, 1e-13 + 4 * EPS * (Math.abs(lognorm) + Math.abs((shape - 1) * Math.log(x || 1)) + y), Number.isFinite(o.pdf) ? dx : 0);
+      const lx = (shape - 1) * Math.log(x || 1);
+      const s1 = lognorm + lx;
+      const arg = s1 - y;
+      o.pdf = x === 0 ? (shape < 1 ? Infinity : shape === 1 ? rate : 0) : Math.exp(arg);
+      incGammaBounded(ig, y, r);
+      o.cdf = r.p;
+      o.sf = r.q;
+      // the exponent: lognorm's error, (shape - 1) log x within 4u (the difference, the log, the product), y within u,
+      // the two sums u each; exp 2u
+      const eArg = eNorm + U * (4 * Math.abs(lx) + y + Math.abs(s1) + Math.abs(arg));
+      bounds(o, 0, 1.01 * (Math.expm1(eArg) + 2 * U), Number.isFinite(o.pdf) ? dx : 0);
+      o.cdfErr += r.pErr;
+      o.sfErr += r.qErr;
     },
     exp1 ? (p) => -Math.log1p(-p) / rate : (p) => (p > 0.5 ? gammaincinv(1 - p, shape, true) : gammaincinv(p, shape, false)) / rate,
-    exp1 ? "exponential cdf by expm1" : "gamma cdf by the regularised incomplete gamma function (stdlib gammainc)",
+    exp1 ? "exponential cdf by expm1" : "gamma cdf by the regularised incomplete gamma function (series and continued fraction with derived bounds)",
   );
 }
 

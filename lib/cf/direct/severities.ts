@@ -1,10 +1,10 @@
 import erfc from "@stdlib/math-base-special-erfc";
 import erfcx from "@stdlib/math-base-special-erfcx";
-import gammainc from "@stdlib/math-base-special-gammainc";
 import gammaincinv from "@stdlib/math-base-special-gammaincinv";
-import { lgamma } from "../families/special";
+import { lgamma, lgammaErr } from "../families/special";
+import { incGammaBounded, incGammaShape, type IncGamma } from "../families/incgamma-bounded";
 import type { DirectLaw } from "./types";
-import { bounds, ELEM, EPS, law, logErfcxSlope, SPECIAL } from "./law";
+import { bounds, ELEM, EPS, law, logErfcxSlope } from "./law";
 
 /**
  * Direct laws of the claim-size families with closed-form or special-function distribution functions: lomax,
@@ -12,9 +12,9 @@ import { bounds, ELEM, EPS, law, logErfcxSlope, SPECIAL } from "./law";
  * Loss Models (5th ed.), app. A; Embrechts, Klueppelberg & Mikosch (1997), def. 3.4.9; JKB vol. 1, ch. 15.
  *
  * Error bounds are carried through each step (first-order propagation with a factor of 2 or more of margin): an
- * elementary operation adds EPS relative, log1p and exp add ELEM relative, stdlib's incomplete gamma SPECIAL relative
- * (checked against mpmath in tests/cf/direct-families.test.ts). For S = exp(L), an absolute error eL on L gives S eL
- * on both S and 1 - S = -expm1(L).
+ * elementary operation adds EPS relative, log1p and exp add ELEM relative, the incomplete gamma its own derived bounds
+ * (../families/incgamma-bounded.ts). For S = exp(L), an absolute error eL on L gives S eL on both S and 1 - S =
+ * -expm1(L).
  */
 
 /** S = exp(L) and F = -expm1(L) with an absolute error eL on L; the pdf f with relative error rf. */
@@ -128,10 +128,14 @@ export function burrDirect(alpha: number, gamma: number, theta: number, name = "
 
 /**
  * Inverse gamma (alpha, theta): F(x) = Q(alpha, theta/x), S(x) = P(alpha, theta/x), f = y^alpha e^-y / (x Gamma(alpha)),
- * y = theta/x (Loss Models app. A.2.3.3), by stdlib's regularised incomplete gamma; q_p = theta / Q^{-1}(alpha, p).
+ * y = theta/x (Loss Models app. A.2.3.3), by ../families/incgamma-bounded.ts with its bounds; q_p = theta / Q^{-1}(alpha, p).
  */
 export function inverseGammaDirect(alpha: number, theta: number): DirectLaw {
   const lg = lgamma(alpha);
+  const eLg = lgammaErr(alpha);
+  const ig = incGammaShape(alpha);
+  const r: IncGamma = { p: 0, q: 0, pErr: 0, qErr: 0 };
+  const u = EPS / 2;
   return law(
     "special-function",
     [0, Infinity],
@@ -145,15 +149,24 @@ export function inverseGammaDirect(alpha: number, theta: number): DirectLaw {
       }
       const y = theta / x;
       const ly = Math.log(y);
-      const lp = alpha * ly - y - lg - Math.log(x);
+      const al = alpha * ly;
+      const s1 = al - y;
+      const s2 = s1 - lg;
+      const lx = Math.log(x);
+      const lp = s2 - lx;
       o.pdf = Math.exp(lp);
-      o.cdf = gammainc(y, alpha, true, true);
-      o.sf = gammainc(y, alpha, true, false);
-      // y is within EPS relative: x moves by EPS x
-      bounds(o, SPECIAL, 1e-13 + 8 * EPS * (1 + alpha * Math.abs(ly) + y + Math.abs(lg) + Math.abs(Math.log(x))) + 2 * EPS * (alpha + y), 2 * EPS * x);
+      incGammaBounded(ig, y, r);
+      o.cdf = r.q;
+      o.sf = r.p;
+      // the exponent: y within u relative moves log y by u and y by u y; log within 2u relative, the product and the
+      // three subtractions u each, log Gamma by lgammaErr; exp 2u. For F and S, y within u relative is x moved by u x
+      const eLp = alpha * u * (1 + 2 * Math.abs(ly)) + u * (Math.abs(al) + y + Math.abs(s1) + Math.abs(s2) + 2 * Math.abs(lx) + Math.abs(lp)) + eLg;
+      bounds(o, 0, 1.01 * (Math.expm1(eLp) + 2 * u), 2 * EPS * x);
+      o.cdfErr += r.qErr;
+      o.sfErr += r.pErr;
     },
     (p) => theta / (p < 0.5 ? gammaincinv(p, alpha, true) : gammaincinv(1 - p, alpha, false)),
-    "inverse gamma cdf by the regularised incomplete gamma function of theta/x (stdlib gammainc)",
+    "inverse gamma cdf by the regularised incomplete gamma function of theta/x (series and continued fraction with derived bounds)",
   );
 }
 
