@@ -1,4 +1,4 @@
-import { incGamma, gammaPdf } from "./invert/incgamma";
+import { incGamma, gammaPdf, gammaPdfErr } from "./invert/incgamma";
 import { lgamma } from "./families/special";
 
 /**
@@ -204,9 +204,6 @@ export function subtractKernels(ks: readonly GammaKernel[], lo: number, beta: nu
   }
 }
 
-/** stated relative accuracy of incGamma's directly computed P or Q (see the note in kernelsAt) */
-const ACC = 1e-13;
-
 /** the kernels' cdf, density and integrated cdf (int_{-inf}^x F) at x, with a bound on their rounding */
 export function kernelsAt(ks: readonly GammaKernel[], x: number): { F: number; f: number; I: number; err: number; errf: number; errI: number } {
   let F = 0;
@@ -218,6 +215,7 @@ export function kernelsAt(ks: readonly GammaKernel[], x: number): { F: number; f
   let errP = 0;
   let errP1 = 0;
   let errIy = 0;
+  let errF = 0;
   for (const k of ks) {
     const y = x - k.at;
     if (!(y > 0)) continue;
@@ -227,26 +225,23 @@ export function kernelsAt(ks: readonly GammaKernel[], x: number): { F: number; f
     const P = g0.P;
     const P1 = g1.P;
     F += k.w * P;
-    // incGamma computes P directly below z = a + 1 (series) and Q above (continued fraction, or the finite sum for
-    // integer a when Q < 0.5, where P > Q): the relative accuracy applies to that quantity, the other is 1 minus it
-    // (exp of a z-sized exponent adds z eps relative)
-    const acc = ACC + 4 * Number.EPSILON * z;
-    const eP = Math.abs(k.w) * (acc * (z < k.shape + 1 ? P : g0.Q) + 4 * Number.EPSILON);
+    // P's derived bound (./invert/incgamma.ts)
+    const eP = Math.abs(k.w) * g0.eP;
     errP += eP;
     errIy += eP * y;
-    errP1 += (Math.abs(k.w) * k.shape * (acc * (z < k.shape + 2 ? P1 : g1.Q) + 4 * Number.EPSILON)) / k.rate;
+    errP1 += (Math.abs(k.w) * k.shape * g1.eP) / k.rate;
     const g = gammaPdf(k.shape, k.rate, y);
     f += k.w * g;
     scaleF += Math.abs(k.w * g);
+    errF += Math.abs(k.w * g) * gammaPdfErr(k.shape, k.rate, y);
     // int_0^y P(a, r u) du = y P(a, r y) - (a / r) P(a + 1, r y)
     I += k.w * (y * P - (k.shape / k.rate) * P1);
     scale += Math.abs(k.w);
     scaleI += Math.abs(k.w) * y;
   }
-  // incomplete gamma to ~1e-14 relative (series / continued fraction to 1e-16-1e-17, lgamma's own error), ACC with
-  // room, on the quantity computed directly; plus the sums' rounding
+  // the incomplete gamma's and the densities' derived bounds (./invert/incgamma.ts), plus the sums' rounding
   const sumRound = 4 * Number.EPSILON * scale;
-  return { F, f, I, err: errP + sumRound, errf: ACC * scaleF, errI: errIy + errP1 + 8 * Number.EPSILON * scaleI + sumRound * (1 + scaleI / Math.max(scale, 1e-300)) };
+  return { F, f, I, err: errP + sumRound, errf: errF + 4 * Number.EPSILON * scaleF, errI: errIy + errP1 + 8 * Number.EPSILON * scaleI + sumRound * (1 + scaleI / Math.max(scale, 1e-300)) };
 }
 
 /** sup over x >= from of the kernels' total |density| (each gamma density is decreasing beyond its mode) */

@@ -129,7 +129,7 @@ export function triangularLayerMoment(a: number, c: number, b: number): LayerMom
  * the rounded 1/xi and sigma/xi are estimates whose bounds the partial moments and the affine map carry.
  */
 export function generalizedParetoLayerMoment(xi: number, sigma: number, acc: number): LayerMoment {
-  if (xi === 0) return affineLayerMoment(layerMomentFrom(gammaPartial(1, 1, acc)), sigma, 0);
+  if (xi === 0) return affineLayerMoment(layerMomentFrom(gammaPartial(1, 1)), sigma, 0);
   const inv = div(exact(1), exact(Math.abs(xi)));
   const s = div(exact(sigma), exact(Math.abs(xi)));
   if (xi > 0) return affineLayerMoment(lomaxLayerMoment(inv, 1), s, 0);

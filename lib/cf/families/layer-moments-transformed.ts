@@ -107,8 +107,8 @@ export function burrPartial(alpha: number, gamma: number, theta: number, acc: nu
   };
 }
 
-/** inverse gamma(alpha, theta) partial moments (module comment); rawE(j) = E X^j with its bound; acc: P's accuracy */
-export function inverseGammaPartial(alpha: number, theta: number, acc: number, rawE: (j: number) => Est): Partial {
+/** inverse gamma(alpha, theta) partial moments (module comment); rawE(j) = E X^j with its bound */
+export function inverseGammaPartial(alpha: number, theta: number, rawE: (j: number) => Est): Partial {
   // z = theta / x: Infinity at x = 0, 0 at x = Infinity
   const zOf = (x: number): Est => (x <= 0 ? exact(Infinity) : x === Infinity ? exact(0) : div(exact(theta), exact(x)));
   return {
@@ -121,11 +121,11 @@ export function inverseGammaPartial(alpha: number, theta: number, acc: number, r
       if (!(s.v - s.e > 0) || (b !== Infinity && s.v <= 1)) return b === Infinity ? INF_E : inverseGammaPartialBounded(alpha, theta, j, za, zb);
       // X in (a, b] is G in [theta/b, theta/a): P(s, za) - P(s, zb), or Q(s, zb) - Q(s, za) when both are past s
       const upper = zb.v > s.v;
-      const diff = upper ? sub(incGammaE(s, zb, true, acc), incGammaE(s, za, true, acc)) : sub(incGammaE(s, za, false, acc), incGammaE(s, zb, false, acc));
+      const diff = upper ? sub(incGammaE(s, zb, true), incGammaE(s, za, true)) : sub(incGammaE(s, za, false), incGammaE(s, zb, false));
       return j === 0 ? diff : mul(rawE(j), diff);
     },
     // P(X > b) = P(G < theta/b) = P(alpha, theta/b)
-    sf: (b) => incGammaE(exact(alpha), zOf(b), false, acc),
+    sf: (b) => incGammaE(exact(alpha), zOf(b), false),
   };
 }
 
@@ -135,6 +135,6 @@ export function burrLayerMoment(alpha: number, gamma: number, theta: number, acc
 }
 
 /** the layer moments of an inverse gamma claim */
-export function inverseGammaLayerMoment(alpha: number, theta: number, acc: number, rawE: (j: number) => Est): LayerMoment {
-  return layerMomentFrom(inverseGammaPartial(alpha, theta, acc, rawE));
+export function inverseGammaLayerMoment(alpha: number, theta: number, rawE: (j: number) => Est): LayerMoment {
+  return layerMomentFrom(inverseGammaPartial(alpha, theta, rawE));
 }

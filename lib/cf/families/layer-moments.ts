@@ -4,9 +4,10 @@
  *   E Z^k = sum_{j=0}^k C(k, j) (-d)^{k-j} M_j(max(d, lo), d + l) + l^k S(d + l)
  * (the binomial expansion of (X - d)^k on d < X <= d + l, plus the atom at l; Klugman, Panjer & Willmot, Loss Models,
  * sec. 3.1 and 8.3, limited expected values). M_j is a difference of a normal or regularised incomplete gamma cdf
- * (lognormal, gamma, weibull; Loss Models app. A) or elementary (pareto). A cdf value carries the law's stated cdf
- * accuracy (DirectLaw.accuracy: Phi and P(a, z) as implemented, checked against scipy in tests/fixtures/reference-
- * families) plus the error of its argument times the density's maximum over the argument's interval. Normal,
+ * (lognormal, gamma, weibull; Loss Models app. A) or elementary (pareto). A normal cdf value carries the law's stated
+ * accuracy (DirectLaw.accuracy: Phi as implemented, checked against scipy in tests/fixtures/reference-families), an
+ * incomplete gamma value its derived bound (../invert/incgamma.ts); each plus the error of its argument times the
+ * density's maximum over the argument's interval. Normal,
  * truncated normal and uniform claims, and claims a X + b (a > 0) of any of these, take their own forms further down.
  */
 import { add, div, exact, exp, expm1, log, mul, neg, pow, powInt, sub, type Est } from "../moment-error";
@@ -37,12 +38,12 @@ function phiE(z: Est, acc: number): Est {
 }
 
 /**
- * P(s, z) (upper = false) or Q(s, z) for an estimated shape s and argument z: the stated accuracy times the value,
- * plus the density's maximum over [z - e, z + e] times e (dP/dz is the Gamma(s, 1) density), plus the shape's error
+ * P(s, z) (upper = false) or Q(s, z) for an estimated shape s and argument z: the incomplete gamma's derived bound
+ * (../invert/incgamma.ts), plus the density's maximum over [z - e, z + e] times e (dP/dz is the Gamma(s, 1) density), plus the shape's error
  * times 2 (ln s + 2), which bounds |dP/ds| = |E[ln G; G < z] - P psi(s)| <= E|ln G| + |psi(s)| for s >= 1 (G ~ Gamma(s, 1):
  * E|ln G| <= sqrt(psi'(s) + psi(s)^2), psi'(s) <= 2, |psi(s)| <= ln s + 1; A&S 6.3, 6.4).
  */
-export function incGammaE(s: Est, z: Est, upper: boolean, acc: number): Est {
+export function incGammaE(s: Est, z: Est, upper: boolean): Est {
   if (z.v === Infinity) return exact(upper ? 0 : 1);
   if (!(z.v > 0)) return exact(upper ? 1 : 0);
   if (!Number.isFinite(z.e) || !Number.isFinite(s.e) || (s.e > 0 && s.v < 1) || z.e > 0.5 * z.v) return INF_E;
@@ -53,7 +54,7 @@ export function incGammaE(s: Est, z: Est, upper: boolean, acc: number): Est {
   // the Gamma(s, 1) density is unimodal with its mode at s - 1: its maximum over [lo, hi]
   const at = s.v - 1 >= lo && s.v - 1 <= hi ? s.v - 1 : s.v - 1 < lo ? lo : hi;
   const dens = at > 0 ? gammaPdf(s.v, 1, at) : s.v === 1 ? 1 : 0;
-  return { v, e: acc * v + 2 * dens * z.e + 2 * (Math.log(s.v) + 2) * s.e };
+  return { v, e: (upper ? g.eQ : g.eP) + 2 * dens * z.e + 2 * (Math.log(s.v) + 2) * s.e };
 }
 
 /** lognormal(mu, sigma): M_j(a, b) = e^{j mu + j^2 sigma^2 / 2} [Phi(beta_j) - Phi(alpha_j)], z - j sigma (Loss Models app. A.4.1.1) */
@@ -79,7 +80,7 @@ export function lognormalPartial(mu: number, sigma: number, acc: number): Partia
 }
 
 /** gamma(shape s, rate r): M_j(a, b) = s (s+1) ... (s+j-1) r^{-j} [P(s+j, r b) - P(s+j, r a)] (Loss Models app. A.3.2.1) */
-export function gammaPartial(shape: number, rate: number, acc: number): Partial {
+export function gammaPartial(shape: number, rate: number): Partial {
   const z = (x: number): Est => (x === Infinity ? { v: Infinity, e: 0 } : mul(exact(rate), exact(x)));
   const sh = (j: number) => add(exact(shape), exact(j));
   return {
@@ -91,15 +92,15 @@ export function gammaPartial(shape: number, rate: number, acc: number): Partial 
       const s = sh(j);
       const za = z(a);
       const upper = za.v > s.v;
-      const diff = upper ? sub(incGammaE(s, za, true, acc), incGammaE(s, z(b), true, acc)) : sub(incGammaE(s, z(b), false, acc), incGammaE(s, za, false, acc));
+      const diff = upper ? sub(incGammaE(s, za, true), incGammaE(s, z(b), true)) : sub(incGammaE(s, z(b), false), incGammaE(s, za, false));
       return mul(pre, diff);
     },
-    sf: (b) => incGammaE(sh(0), z(b), true, acc),
+    sf: (b) => incGammaE(sh(0), z(b), true),
   };
 }
 
 /** weibull(k, lambda): M_j(a, b) = lambda^j Gamma(1 + j/k) [P(1 + j/k, (b/lambda)^k) - P(1 + j/k, (a/lambda)^k)] (Loss Models app. A.3.2.3) */
-export function weibullPartial(k: number, lambda: number, acc: number, rawE: (m: number) => Est): Partial {
+export function weibullPartial(k: number, lambda: number, rawE: (m: number) => Est): Partial {
   const z = (x: number): Est => (x === Infinity ? { v: Infinity, e: 0 } : pow(div(exact(x), exact(lambda)), k));
   return {
     lo: 0,
@@ -107,7 +108,7 @@ export function weibullPartial(k: number, lambda: number, acc: number, rawE: (m:
       const s = add(exact(1), div(exact(j), exact(k)));
       const za = z(a);
       const upper = za.v > s.v;
-      const diff = upper ? sub(incGammaE(s, za, true, acc), incGammaE(s, z(b), true, acc)) : sub(incGammaE(s, z(b), false, acc), incGammaE(s, za, false, acc));
+      const diff = upper ? sub(incGammaE(s, za, true), incGammaE(s, z(b), true)) : sub(incGammaE(s, z(b), false), incGammaE(s, za, false));
       return mul(j === 0 ? exact(1) : rawE(j), diff);
     },
     sf: (b) => (b === Infinity ? exact(0) : exp(neg(z(b)))),

@@ -15,7 +15,7 @@ import { gammaPartial, lognormalPartial, normalLayerMoment, paretoPartial, unifo
 
 const gammaWithLayers = (shape: number, rate: number) => {
   const d = gammaDist(shape, rate);
-  return withLayerMoment(d, gammaPartial(shape, rate, d.accuracy));
+  return withLayerMoment(d, gammaPartial(shape, rate));
 };
 
 export const CONTINUOUS_SPECS: Pick<Record<FamilyName, FamilySpec>, "normal" | "cauchy" | "uniform" | "exponential" | "gamma" | "chi_squared" | "laplace" | "logistic" | "student_t" | "stable" | "variance_gamma" | "nig" | "lognormal" | "pareto" | "weibull"> = {
@@ -260,7 +260,7 @@ export const CONTINUOUS_SPECS: Pick<Record<FamilyName, FamilySpec>, "normal" | "
     source: "Johnson, Kotz & Balakrishnan vol. 1, ch. 21",
     direct: (p) => D.weibullDirect(p.shape as number, p.scale as number),
     layerable: true,
-    build: (p) => withCumulantErrors(withDist(weibull(p.shape, p.scale), withLayerMoment(weibullDist(p.shape, p.scale), weibullPartial(p.shape, p.scale, weibullDist(p.shape, p.scale).accuracy, CE.weibullRawE(p.shape, p.scale)))), (m) => rawToCumulantsE(Array.from({ length: m }, (_, i) => CE.weibullRawE(p.shape, p.scale)(i + 1)))),
+    build: (p) => withCumulantErrors(withDist(weibull(p.shape, p.scale), withLayerMoment(weibullDist(p.shape, p.scale), weibullPartial(p.shape, p.scale, CE.weibullRawE(p.shape, p.scale)))), (m) => rawToCumulantsE(Array.from({ length: m }, (_, i) => CE.weibullRawE(p.shape, p.scale)(i + 1)))),
     tailIndex: "none",
   },
 };

@@ -135,7 +135,7 @@ export const SEVERITY_SPECS: Pick<Record<FamilyName, FamilySpec>, "lomax" | "gen
     source: "Klugman, Panjer & Willmot, Loss Models (5th ed.), app. A.2.3.3 (inverse gamma); JKB vol. 1, ch. 17",
     direct: (p) => DS.inverseGammaDirect(p.alpha as number, p.theta as number),
     layerable: true,
-    build: (p) => withCumulantErrors(withLayered(inverseGamma(p.alpha, p.theta), (d) => withLayerMoment(d, inverseGammaLayerMoment(p.alpha, p.theta, d.accuracy, CE.inverseGammaRawE(p.alpha, p.theta)))), (m) => rawToCumulantsE(estList(m, p.alpha, CE.inverseGammaRawE(p.alpha, p.theta)))),
+    build: (p) => withCumulantErrors(withLayered(inverseGamma(p.alpha, p.theta), (d) => withLayerMoment(d, inverseGammaLayerMoment(p.alpha, p.theta, CE.inverseGammaRawE(p.alpha, p.theta)))), (m) => rawToCumulantsE(estList(m, p.alpha, CE.inverseGammaRawE(p.alpha, p.theta)))),
   },
   beta: {
     name: "beta",

@@ -6,8 +6,6 @@ import { markovTail, momentBounds, type MomentBounds } from "./moment-tails";
 import { kernelsDensityBeyond } from "../damped-kernels";
 
 const EPS = Number.EPSILON;
-/** stated relative accuracy of incGamma's directly computed P or Q (as in damped-kernels.ts) */
-const INC_ACC = 1e-13;
 
 /**
  * A bound B(z), non-increasing in z > 0, on |G(lo + z) - A|: G the damped route's inverted function (continuous part
@@ -57,10 +55,8 @@ export function imageTail(
       }
       const u = k.rate * y;
       const g = incGamma(k.shape, u);
-      // the stated accuracy is relative to the quantity computed directly (P below u = shape + 1, Q = 1 - P rounding
-      // once more; Q above)
-      const acc = INC_ACC + 4 * EPS * u;
-      b += Math.abs(k.w) * (g.Q + (u < k.shape + 1 ? acc * g.P + 4 * EPS : acc * g.Q));
+      // Q plus its derived bound (./incgamma.ts)
+      b += Math.abs(k.w) * (g.Q + g.eQ);
     }
     if (severity) b += sevTail(x);
     if (pair && pair.w > 0) {

@@ -6,8 +6,6 @@ import { incGamma } from "./incgamma";
 import { markovTail, momentBounds, type MomentBounds } from "./moment-tails";
 
 const EPS = Number.EPSILON;
-/** stated relative accuracy of incGamma's directly computed P or Q (as in damped-kernels.ts) */
-const INC_ACC = 1e-13;
 
 /**
  * The light route's aliasing at one point, in place of the window's uniform bound (continuous.ts lightPath: twice the
@@ -67,10 +65,9 @@ export function kernelImages(k: EndpointKernels, x: number, T: number): number {
     const a = k.power + j;
     const g0 = incGamma(a, u);
     const g1 = incGamma(a + 1, u);
-    const acc = INC_ACC + 4 * EPS * u;
-    // each Q to its stated accuracy (relative where computed directly, Q = 1 - P once more below u = a + 1)
-    const q0 = g0.Q + (u < a + 1 ? acc * g0.P + 4 * EPS : acc * g0.Q);
-    const q1 = g1.Q + (u < a + 2 ? acc * g1.P + 4 * EPS : acc * g1.Q);
+    // each Q plus its derived bound (./incgamma.ts)
+    const q0 = g0.Q + g0.eQ;
+    const q1 = g1.Q + g1.eQ;
     s += Math.abs(k.b[j]) * (q0 + (a / (k.rate * T)) * q1);
   }
   return s * (1 + 8 * EPS);

@@ -46,12 +46,16 @@ function kernelImages(kernels: readonly EndpointKernels[], a: number, u0: number
     for (let q = 0; q < k.b.length; q++) {
       const A = k.power + q;
       const mean = A / k.rate;
-      // E[(G - v)^+]; the two terms' own errors (incomplete gamma to 1e-13 relative, gammaDist's accuracy) allowed 10x
+      // E[(G - v)^+] plus the two terms' derived bounds (./incgamma.ts) and the rounding of the products and the
+      // difference (k.rate v within u moves each Q by at most its density times u k.rate v, below u (a + k.rate v))
       const excess = (v: number) => {
         if (v <= 0) return mean - v;
-        const t1 = mean * incGamma(A + 1, k.rate * v).Q;
-        const t0 = v * incGamma(A, k.rate * v).Q;
-        return Math.max(t1 - t0, 0) + 1e-12 * (t1 + t0);
+        const g1 = incGamma(A + 1, k.rate * v);
+        const g0 = incGamma(A, k.rate * v);
+        const t1 = mean * g1.Q;
+        const t0 = v * g0.Q;
+        const u = Number.EPSILON / 2;
+        return Math.max(t1 - t0, 0) + mean * g1.eQ + v * g0.eQ + 4 * u * (t1 + t0) + u * (A + 1 + k.rate * v) * (mean + v);
       };
       const left = k.side === 1 ? Math.max(a - k.at, 0) : excess(k.at - a);
       const right = k.side === 1 ? excess(u0 - k.at) : Math.max(k.at - u0, 0);
