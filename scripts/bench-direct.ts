@@ -42,7 +42,7 @@ function points(n: number): Float64Array {
   return x;
 }
 
-/** BENCH_DIRECT_ONLY=stable|vg-nig|incgamma|quantiles runs that section alone */
+/** BENCH_DIRECT_ONLY=stable|vg-nig|special|quantiles runs that section alone */
 const ONLY = process.env.BENCH_DIRECT_ONLY ?? "";
 const run = (name: string) => !ONLY || ONLY === name;
 console.log(`bench:direct (medians; load average ${loadavg()[0].toFixed(1)} on ${cpus().length} cores)`);
@@ -100,8 +100,9 @@ for (const m of run("vg-nig") ? vgNig : []) {
   );
 }
 
-// incomplete-gamma laws (cdf/sf by lib/cf/families/incgamma-bounded.ts): 1 000 points each, half uniform over
-// [0, mean + 8 sd], half log-uniform over [mean/1e3, 50 mean] (both tails, down to 1e-300 and below)
+// incomplete-gamma and incomplete-beta laws (cdf/sf by lib/cf/families/incgamma-bounded.ts, incbeta-bounded.ts):
+// 1 000 points each, half uniform over [0, mean + 8 sd], half log-uniform over [mean/1e3, 50 mean] (both tails, down
+// to 1e-300 and below; for the Student t and beta laws some points fall in the far end of the support or beyond)
 const incGamma: [Model, number, number][] = [
   [{ family: "gamma", shape: 1.56, rate: 2 } as Model, 0.78, 0.62],
   [{ family: "gamma", shape: 0.3, rate: 1.5 } as Model, 0.2, 0.37],
@@ -109,8 +110,12 @@ const incGamma: [Model, number, number][] = [
   [{ family: "chi_squared", k: 7 } as Model, 7, 3.74],
   [{ family: "gamma", shape: 1e4, rate: 1 } as Model, 1e4, 100],
   [{ family: "inverse_gamma", alpha: 3, theta: 2 } as Model, 1, 1],
+  [{ family: "student_t", nu: 3.5, loc: 0, scale: 1 } as Model, 1, 1.5],
+  [{ family: "student_t", nu: 300, loc: 0, scale: 1 } as Model, 1, 0.5],
+  [{ family: "beta", alpha: 2, beta: 3 } as Model, 0.1, 0.1],
+  [{ family: "beta", alpha: 50, beta: 20 } as Model, 0.1, 0.1],
 ];
-for (const [m, mean, sd] of run("incgamma") ? incGamma : []) {
+for (const [m, mean, sd] of run("special") ? incGamma : []) {
   const c = compile(m);
   const x = new Float64Array(1000);
   for (let i = 0; i < 1000; i++) x[i] = i % 2 ? mean * 10 ** (-3 + 4.7 * rnd()) : (mean + 8 * sd) * rnd();

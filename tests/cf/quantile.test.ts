@@ -162,9 +162,17 @@ describe("quantiles and expected shortfall of continuous laws", () => {
     for (let i = 0; i < ps.length; i++) {
       let lo = -1e4;
       let hi = 1e4;
-      // upper levels bisect on the survival function S(x) = (atan(sqrt3/x) - sqrt3 x/(3+x^2))/pi (x > 0), which keeps
-      // its relative accuracy where 1 - F would cancel
-      const S = (x: number) => (Math.atan(Math.sqrt(3) / x) - (Math.sqrt(3) * x) / (3 + x * x)) / Math.PI;
+      // upper levels bisect on the survival function S(x) = (atan(w) - w/(1+w^2))/pi, w = sqrt3/x (x > 0), which keeps
+      // its relative accuracy where 1 - F would cancel; for w < 1/2 the two terms cancel too (S near 1e-6 at x = 103
+      // lost 1e-11 of the quantile), so there by their series sum_k (-1)^(k+1) 2k/(2k+1) w^(2k+1) (atan's Taylor series,
+      // A&S 4.4.42, less w/(1+w^2) = sum_k (-1)^k w^(2k+1)), 40 terms, the rest below w^81
+      const S = (x: number) => {
+        const w = Math.sqrt(3) / x;
+        if (w >= 0.5) return (Math.atan(w) - w / (1 + w * w)) / Math.PI;
+        let s = 0;
+        for (let k = 40; k >= 1; k--) s = (k % 2 ? 1 : -1) * ((2 * k) / (2 * k + 1)) * w ** (2 * k + 1) + s;
+        return s / Math.PI;
+      };
       for (let k = 0; k < 300; k++) {
         const mid = 0.5 * (lo + hi);
         if (ps[i] > 0.5 && mid > 0 ? S(mid) > 1 - ps[i] : F(mid) < ps[i]) lo = mid;

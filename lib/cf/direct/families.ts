@@ -1,12 +1,12 @@
 import erfc from "@stdlib/math-base-special-erfc";
 import gammaincinv from "@stdlib/math-base-special-gammaincinv";
-import betainc from "@stdlib/math-base-special-betainc";
 import betaincinv from "@stdlib/math-base-special-betaincinv";
 import normalQuantile from "@stdlib/stats-base-dists-normal-quantile";
 import { lgamma, lgammaErr } from "../families/special";
 import { incGammaBounded, incGammaShape, type IncGamma } from "../families/incgamma-bounded";
+import { incBetaBounded, incBetaShape } from "../families/incbeta-bounded";
 import type { DirectLaw } from "./types";
-import { bounds, ELEM, EPS, law, SPECIAL, SQRT2PI } from "./law";
+import { bounds, ELEM, EPS, law, SQRT2PI } from "./law";
 
 const U = EPS / 2;
 
@@ -15,8 +15,9 @@ const U = EPS / 2;
  * Univariate Distributions vols. 1-2 (chapter per family in lib/cf/families/spec.ts); cdf and sf are each computed in
  * the form that keeps relative accuracy in its own tail (erfc, expm1, log1p, atan2, the upper incomplete functions).
  * Error bounds: ELEM relative for elementary functions; the incomplete gamma's own derived bounds
- * (../families/incgamma-bounded.ts); SPECIAL relative for stdlib's incomplete beta (Student t: a figure checked against
- * mpmath in tests/cf/direct-families.test.ts, not derived); plus the effect of rounding the argument, pdf * |dx|.
+ * (../families/incgamma-bounded.ts) and incomplete beta (../families/incbeta-bounded.ts); plus the effect of rounding
+ * the argument, pdf * |dx|. stdlib's inverse functions only start the quantile searches (./answer.ts brackets them with
+ * the bounded cdf).
  */
 export function normalDirect(mu: number, sigma: number): DirectLaw {
   return law(
@@ -236,7 +237,19 @@ export function laplaceDirect(loc: number, scale: number): DirectLaw {
 
 /** Student t: F(t) = I_{nu/(nu+t^2)}(nu/2, 1/2)/2 for t < 0 (A&S 26.7.1 with 26.5.27). */
 export function studentDirect(nu: number, loc: number, scale: number): DirectLaw {
-  const lc = lgamma((nu + 1) / 2) - lgamma(nu / 2) - 0.5 * Math.log(nu * Math.PI) - Math.log(scale);
+  const bs = incBetaShape(nu / 2, 0.5);
+  const g1 = lgamma((nu + 1) / 2);
+  const g2 = lgamma(nu / 2);
+  const l3 = 0.5 * Math.log(nu * Math.PI);
+  const l4 = Math.log(scale);
+  const lc = g1 - g2 - l3 - l4;
+  // the two log Gammas (nu/2 exact; nu + 1's rounding, found exactly by TwoSum, halved and times |psi| <= max(log x,
+  // 1/x + 0.6)), the logs 2u relative (nu pi within 2u), the sums u
+  const n1 = nu + 1;
+  const dn = Math.abs(nu - (n1 - (n1 - nu)) + (1 - (n1 - nu)));
+  const h1 = n1 / 2;
+  const eLc =
+    lgammaErr(h1) + lgammaErr(nu / 2) + Math.max(Math.log(h1), 1 / h1 + 0.6) * dn * 0.505 + U * (2 * Math.abs(l3) + 2 + 2 * Math.abs(l4) + Math.abs(g1 - g2) + Math.abs(g1 - g2 - l3) + Math.abs(lc));
   return law(
     "special-function",
     [-Infinity, Infinity],
@@ -248,13 +261,32 @@ export function studentDirect(nu: number, loc: number, scale: number): DirectLaw
       const t2 = t * t;
       const lp = lc - ((nu + 1) / 2) * Math.log1p(t2 / nu);
       o.pdf = Math.exp(lp);
-      const xb = nu / (nu + t2);
-      // tail: half the regularised incomplete beta; body: through its complement in t^2/(nu + t^2)
-      const tail = t2 > nu ? 0.5 * betainc(xb, nu / 2, 0.5, true, false) : 0.5 * betainc(t2 / (nu + t2), 0.5, nu / 2, true, true);
-      const body = 1 - tail;
+      const nt = nu + t2;
+      const xb = nu / nt;
+      // the pdf: lc's derived bound; log1p of w = t2/nu (w within 2u relative moves it by 2u w/(1 + w) <= 2u log1p(w)),
+      // its own 2u, (nu + 1)/2 and the product 2u; the sum u; exp 2u; and t's rounding dt times |d log f/dt| =
+      // (nu + 1)|t|/(nu + t2)
+      const rPdf = 1.01 * (Math.expm1(eLc + U * (6 * Math.abs(lp - lc) + Math.abs(lp)) + ((nu + 1) * Math.abs(t) * dt) / (nu + t2)) + 2 * U);
+      // tail: half the regularised incomplete beta I_xb(nu/2, 1/2), xb and 1 - xb = t2/(nu + t2) each within 3u
+      // relative (t2, the sum, the quotient); a shift of 3u in the argument summed is a shift in t of 3u (nu + t2)/(2|t|)
+      // (in xb) or 3u |t| (nu + t2)/(2 nu) (in 1 - xb)
+      // (the rare point past the default budget with a larger one; past that, only what is known: a probability in [0, 1])
+      const r = incBetaBounded(bs, xb, t2 / nt, 3.01 * U) ?? incBetaBounded(bs, xb, t2 / nt, 3.01 * U, 1e6);
+      if (!r) {
+        o.cdf = o.sf = o.cdfErr = o.sfErr = 0.5;
+        o.pdfErr = rPdf * o.pdf;
+        return;
+      }
+      const tail = 0.5 * r.v;
+      const body = 0.5 + 0.5 * r.c;
       o.cdf = t < 0 ? tail : body;
       o.sf = t < 0 ? body : tail;
-      bounds(o, SPECIAL, 1e-13 + 4 * EPS * (Math.abs(lp) + 1), dt * scale);
+      const dArg = 1.01 * 3.01 * U * (r.fromY ? (Math.abs(t) * nt) / (2 * nu) : nt / (2 * Math.abs(t)));
+      bounds(o, 0, rPdf, (dt + dArg) * scale);
+      const eTail = 0.5 * r.e;
+      const eBody = 0.5 * r.ce + U * body;
+      o.cdfErr += t < 0 ? eTail : eBody;
+      o.sfErr += t < 0 ? eBody : eTail;
     },
     (p) => {
       const q = Math.min(p, 1 - p);
@@ -263,6 +295,6 @@ export function studentDirect(nu: number, loc: number, scale: number): DirectLaw
       const t = Math.sqrt(nu * (1 / xb - 1));
       return loc + scale * (p < 0.5 ? -t : t);
     },
-    "Student t cdf by the regularised incomplete beta function (stdlib betainc)",
+    "Student t cdf by the regularised incomplete beta function (positive series with derived bounds)",
   );
 }

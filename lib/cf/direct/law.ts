@@ -3,7 +3,6 @@ import type { DirectLaw, DirectPoint } from "./types";
 /** Shared pieces of the closed-form and special-function direct laws (./families.ts, ./severities.ts, ./bounded.ts). */
 export const EPS = Number.EPSILON;
 export const ELEM = 32 * EPS;
-export const SPECIAL = 1e-12;
 export const SQRT2PI = Math.sqrt(2 * Math.PI);
 
 /**
