@@ -6,7 +6,7 @@
  */
 import { add, div, exact, mul, sub, type Est } from "../moment-error";
 import { affineLayerMoment, gammaPartial, INF_E, layerMomentFrom, lomaxLayerMoment, type LayerMoment, type Partial } from "./layer-moments";
-import betainc from "@stdlib/math-base-special-betainc";
+import { incBetaValue } from "./incbeta-bounded";
 
 const asEst = (x: number | Est): Est => (typeof x === "number" ? exact(x) : x);
 /** one ulp of slack on a bound computed in floating point */
@@ -18,21 +18,23 @@ const trigammaMajorant = (x: number) => 1 / x + 1 / (x * x);
 /**
  * beta(alpha, beta) on [0, 1]: M_j(a, b) = prod_{i<j} (alpha + i)/(alpha + beta + i) [I_b(alpha + j, beta) - I_a(alpha + j,
  * beta)] (B(alpha + j, beta)/B(alpha, beta) as the product; Loss Models app. A.6.1.1, generalized beta with tau = 1).
- * The arguments reach I as exact doubles (layerMomentFrom accounts for the rounding of d + l); I carries its stated
- * accuracy acc (the beta law's cdf accuracy, relative). Where p = alpha + j or q = beta is not exact (a rounded sum, or
+ * The arguments reach I as exact doubles (layerMomentFrom accounts for the rounding of d + l); I carries its derived
+ * bound (./incbeta-bounded.ts incBetaValue). Where p = alpha + j or q = beta is not exact (a rounded sum, or
  * a shape that is itself rounded), I's move is bounded by its derivatives: for V ~ Beta(p, q),
  * dI_x/dp = E[(ln V - E ln V) 1{V <= x}], at most sd(ln V) = sqrt(psi'(p) - psi'(p + q)) <= sqrt(psi'(p)) in size
  * (Cauchy-Schwarz; Var ln V from JKB vol. 2, ch. 25, eq. 25.17), and likewise sqrt(psi'(q)) for q with ln(1 - V);
  * psi' decreases, so its value at the interval's lower end bounds it over the interval.
  */
-export function betaPartial(alpha: number | Est, beta: number | Est, acc: number): Partial {
+export function betaPartial(alpha: number | Est, beta: number | Est): Partial {
   const al = asEst(alpha);
   const be = asEst(beta);
   const I = (x: number, p: Est, upper: boolean): Est => {
     if (x <= 0) return exact(upper ? 1 : 0);
     if (x >= 1) return exact(upper ? 0 : 1);
-    const v = betainc(x, p.v, be.v, true, upper);
-    let e = acc * v;
+    const r = incBetaValue(p.v, be.v, x);
+    if (!r) return INF_E;
+    const v = upper ? r.c : r.v;
+    let e = upper ? r.ce : r.e;
     for (const s of [p, be]) {
       if (s.e === 0) continue;
       if (!(s.v - s.e > 0)) return INF_E;
@@ -57,10 +59,10 @@ export function betaPartial(alpha: number | Est, beta: number | Est, acc: number
 }
 
 /** beta(alpha, beta) on [lo, hi]: lo + (hi - lo) V, V on [0, 1]; hi - lo and the shapes may round */
-export function betaLayerMoment(alpha: number | Est, beta: number | Est, lo: number, hi: number, acc: number): LayerMoment | null {
+export function betaLayerMoment(alpha: number | Est, beta: number | Est, lo: number, hi: number): LayerMoment | null {
   const w = sub(exact(hi), exact(lo));
   if (!(w.v - w.e > 0)) return null;
-  return affineLayerMoment(layerMomentFrom(betaPartial(alpha, beta, acc)), w, lo);
+  return affineLayerMoment(layerMomentFrom(betaPartial(alpha, beta)), w, lo);
 }
 
 /**
@@ -128,10 +130,10 @@ export function triangularLayerMoment(a: number, c: number, b: number): LayerMom
  * sigma Exp(1) for xi = 0, sigma/|xi| Beta(1, 1/|xi|) for xi < 0 (Embrechts, Klueppelberg & Mikosch 1997, sec. 3.4);
  * the rounded 1/xi and sigma/xi are estimates whose bounds the partial moments and the affine map carry.
  */
-export function generalizedParetoLayerMoment(xi: number, sigma: number, acc: number): LayerMoment {
+export function generalizedParetoLayerMoment(xi: number, sigma: number): LayerMoment {
   if (xi === 0) return affineLayerMoment(layerMomentFrom(gammaPartial(1, 1)), sigma, 0);
   const inv = div(exact(1), exact(Math.abs(xi)));
   const s = div(exact(sigma), exact(Math.abs(xi)));
   if (xi > 0) return affineLayerMoment(lomaxLayerMoment(inv, 1), s, 0);
-  return affineLayerMoment(layerMomentFrom(betaPartial(1, inv, acc)), s, 0);
+  return affineLayerMoment(layerMomentFrom(betaPartial(1, inv)), s, 0);
 }

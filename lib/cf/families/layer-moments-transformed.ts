@@ -18,13 +18,13 @@
  * unbounded interval such an order's moment is infinite (INF: the layer reports it as not existing or unbounded).
  *
  * The incomplete beta at an argument that is itself rounded (v = u/(1 + u), w = 1/(1 + u), u = (x/theta)^gamma):
- * the stated accuracy of I times its value, plus the Beta(p, q) density's maximum over the argument's interval times
+ * I's derived bound (./incbeta-bounded.ts incBetaValue), plus the Beta(p, q) density's maximum over the argument's interval times
  * its bound (the density is unimodal, monotone or U-shaped: log f = (p-1) ln v + (q-1) ln(1-v) + c is concave for
  * p, q >= 1 and convex for p, q <= 1, and monotone otherwise, so the maximum is at the mode if it lies inside, else at
  * an end), plus each rounded shape's move times sqrt(psi'(shape)) (|dI/dp| <= sd(ln V); as in ./layer-moments-shapes.ts).
  * The upper tail is taken as I_w(q, p) from w = 1/(1 + u) directly, so a point far in the tail keeps its digits.
  */
-import betainc from "@stdlib/math-base-special-betainc";
+import { incBetaValue } from "./incbeta-bounded";
 import { add, div, exact, mul, pow, sub, type Est } from "../moment-error";
 import { lgamma } from "./special";
 import { incGammaE, INF_E, layerMomentFrom, type LayerMoment, type Partial } from "./layer-moments";
@@ -55,16 +55,19 @@ function betaDensityMax(p: number, q: number, lo: number, hi: number): number {
  * I_x(p, q) (upper = false) or 1 - I_x(p, q) = I_{1-x}(q, p), given x and y = 1 - x as estimates (the one named by
  * `upper` is the argument actually used), with its bound (module comment)
  */
-function incBetaE(x: Est, y: Est, p: Est, q: Est, upper: boolean, acc: number): Est {
+function incBetaE(x: Est, y: Est, p: Est, q: Est, upper: boolean): Est {
   // the tail asked for, as I_z(a, b) with z its own estimate
   const [z, a, b] = upper ? [y, q, p] : [x, p, q];
   if (z.v <= 0 && z.e === 0) return exact(0);
   if (z.v >= 1 && z.e === 0) return exact(1);
   if (!Number.isFinite(z.e) || !Number.isFinite(a.e) || !Number.isFinite(b.e)) return INF_E;
-  const v = betainc(Math.min(Math.max(z.v, 0), 1), a.v, b.v, true, false);
+  const zc = Math.min(Math.max(z.v, 0), 1);
+  const r = incBetaValue(a.v, b.v, zc);
+  if (!r) return INF_E;
+  const v = r.v;
   const lo = Math.max(z.v - z.e, 0);
   const hi = Math.min(z.v + z.e, 1);
-  let e = acc * v + (z.e > 0 ? betaDensityMax(a.v, b.v, lo, hi) * z.e : 0);
+  let e = r.e + (z.e > 0 ? betaDensityMax(a.v, b.v, lo, hi) * z.e : 0);
   for (const s of [a, b]) {
     if (s.e === 0) continue;
     if (!(s.v - s.e > 0)) return INF_E;
@@ -74,7 +77,7 @@ function incBetaE(x: Est, y: Est, p: Est, q: Est, upper: boolean, acc: number): 
 }
 
 /** Burr XII(alpha, gamma, theta) partial moments (module comment); rawE(j) = E X^j with its bound */
-export function burrPartial(alpha: number, gamma: number, theta: number, acc: number, rawE: (j: number) => Est): Partial {
+export function burrPartial(alpha: number, gamma: number, theta: number, rawE: (j: number) => Est): Partial {
   // U = (x/theta)^gamma, V = U/(1 + U), W = 1/(1 + U)
   const vw = (x: number): [Est, Est] => {
     if (x <= 0) return [exact(0), exact(1)];
@@ -96,7 +99,7 @@ export function burrPartial(alpha: number, gamma: number, theta: number, acc: nu
       if (!(q.v - q.e > 0) || (b !== Infinity && q.v <= 1)) return b === Infinity ? INF_E : burrPartialBounded(alpha, gamma, theta, j, { va, wa, vb, wb });
       // above the mean p/(p + q) the difference of upper tails keeps its digits
       const upper = va.v > p.v / (p.v + q.v);
-      const diff = upper ? sub(incBetaE(va, wa, p, q, true, acc), incBetaE(vb, wb, p, q, true, acc)) : sub(incBetaE(vb, wb, p, q, false, acc), incBetaE(va, wa, p, q, false, acc));
+      const diff = upper ? sub(incBetaE(va, wa, p, q, true), incBetaE(vb, wb, p, q, true)) : sub(incBetaE(vb, wb, p, q, false), incBetaE(va, wa, p, q, false));
       return j === 0 ? diff : mul(rawE(j), diff);
     },
     // S(b) = W^alpha
@@ -130,8 +133,8 @@ export function inverseGammaPartial(alpha: number, theta: number, rawE: (j: numb
 }
 
 /** the layer moments of a Burr XII claim (log-logistic: alpha = 1) */
-export function burrLayerMoment(alpha: number, gamma: number, theta: number, acc: number, rawE: (j: number) => Est): LayerMoment {
-  return layerMomentFrom(burrPartial(alpha, gamma, theta, acc, rawE));
+export function burrLayerMoment(alpha: number, gamma: number, theta: number, rawE: (j: number) => Est): LayerMoment {
+  return layerMomentFrom(burrPartial(alpha, gamma, theta, rawE));
 }
 
 /** the layer moments of an inverse gamma claim */

@@ -18,8 +18,6 @@ import { inverseGaussianLayerMoment } from "./layer-moments-ig";
 
 /** a built node's direct law with layer moments attached (the node keeps everything else) */
 const withLayered = <N extends { dist?: DirectLaw }>(n: N, attach: (d: DirectLaw) => DirectLaw): N => (n.dist ? { ...n, dist: attach(n.dist) } : n);
-/** @stdlib betainc's stated accuracy, as the beta law's cdf states it */
-const BETAINC_ACC = betaDist(1, 1, 0, 1).accuracy;
 
 export const SEVERITY_SPECS: Pick<Record<FamilyName, FamilySpec>, "lomax" | "generalized_pareto" | "burr" | "loglogistic" | "inverse_gaussian" | "inverse_gamma" | "beta" | "pert" | "triangular" | "truncated_normal"> = {
   lomax: {
@@ -61,7 +59,7 @@ export const SEVERITY_SPECS: Pick<Record<FamilyName, FamilySpec>, "lomax" | "gen
       // the derived parameters are rounded: their bounds go into the cumulants' bounds
       const q = (u: number, v: number) => div(exact(u), exact(v));
       // layer moments in the law's own parameters (the derived 1/xi and sigma/xi carry their rounding bounds)
-      const layered = <D extends DirectLaw>(d: D, b: number): D => withLayerMoment(d, affineLayerMoment(generalizedParetoLayerMoment(xi, sigma, d.accuracy), 1, b)) as D;
+      const layered = <D extends DirectLaw>(d: D, b: number): D => withLayerMoment(d, affineLayerMoment(generalizedParetoLayerMoment(xi, sigma), 1, b)) as D;
       if (xi > 0) {
         const n = lomax(1 / xi, sigma / xi);
         if (n.dist) n.dist = layered(n.dist, 0);
@@ -88,7 +86,7 @@ export const SEVERITY_SPECS: Pick<Record<FamilyName, FamilySpec>, "lomax" | "gen
     source: "Klugman, Panjer & Willmot, Loss Models (5th ed.), app. A.2.2.2 (Burr); Burr (1942), Ann. Math. Statist. 13, form XII",
     direct: (p) => DS.burrDirect(p.alpha as number, p.gamma as number, p.theta as number),
     layerable: true,
-    build: (p) => withCumulantErrors(withLayered(burr(p.alpha, p.gamma, p.theta), (d) => withLayerMoment(d, burrLayerMoment(p.alpha, p.gamma, p.theta, BETAINC_ACC, CE.burrRawE(p.alpha, p.gamma, p.theta)))), (m) => rawToCumulantsE(estList(m, p.alpha * p.gamma, CE.burrRawE(p.alpha, p.gamma, p.theta)))),
+    build: (p) => withCumulantErrors(withLayered(burr(p.alpha, p.gamma, p.theta), (d) => withLayerMoment(d, burrLayerMoment(p.alpha, p.gamma, p.theta, CE.burrRawE(p.alpha, p.gamma, p.theta)))), (m) => rawToCumulantsE(estList(m, p.alpha * p.gamma, CE.burrRawE(p.alpha, p.gamma, p.theta)))),
   },
   loglogistic: {
     name: "loglogistic",
@@ -104,7 +102,7 @@ export const SEVERITY_SPECS: Pick<Record<FamilyName, FamilySpec>, "lomax" | "gen
     source: "Klugman, Panjer & Willmot, Loss Models (5th ed.), app. A.2.2.4 (loglogistic)",
     direct: (p) => DS.burrDirect(1, p.gamma as number, p.theta as number, "log-logistic"),
     layerable: true,
-    build: (p) => withCumulantErrors(withLayered(burr(1, p.gamma, p.theta, "loglogistic"), (d) => withLayerMoment(d, burrLayerMoment(1, p.gamma, p.theta, BETAINC_ACC, CE.burrRawE(1, p.gamma, p.theta)))), (m) => rawToCumulantsE(estList(m, p.gamma, CE.burrRawE(1, p.gamma, p.theta)))),
+    build: (p) => withCumulantErrors(withLayered(burr(1, p.gamma, p.theta, "loglogistic"), (d) => withLayerMoment(d, burrLayerMoment(1, p.gamma, p.theta, CE.burrRawE(1, p.gamma, p.theta)))), (m) => rawToCumulantsE(estList(m, p.gamma, CE.burrRawE(1, p.gamma, p.theta)))),
   },
   inverse_gaussian: {
     name: "inverse_gaussian",
@@ -153,7 +151,7 @@ export const SEVERITY_SPECS: Pick<Record<FamilyName, FamilySpec>, "lomax" | "gen
     layerable: true,
     build: (p) => {
       const d = betaDist(p.alpha, p.beta, p.a, p.b);
-      const lm = betaLayerMoment(p.alpha, p.beta, p.a, p.b, d.accuracy);
+      const lm = betaLayerMoment(p.alpha, p.beta, p.a, p.b);
       return withCumulantErrors(withDist(betaLaw(p.alpha, p.beta, p.a, p.b), lm ? withLayerMoment(d, lm) : d), CE.betaE(p.alpha, p.beta, p.a, p.b));
     },
   },
@@ -180,7 +178,7 @@ export const SEVERITY_SPECS: Pick<Record<FamilyName, FamilySpec>, "lomax" | "gen
       const alE = add(exact(1), div(mul(lam, sub(exact(p.m), exact(p.a))), width));
       const beE = add(exact(1), div(mul(lam, sub(exact(p.b), exact(p.m))), width));
       const d = betaDist(al, be, p.a, p.b);
-      const lm = betaLayerMoment(alE, beE, p.a, p.b, d.accuracy);
+      const lm = betaLayerMoment(alE, beE, p.a, p.b);
       return withCumulantErrors(withDist(betaLaw(al, be, p.a, p.b, "pert"), lm ? withLayerMoment(d, lm) : d), CE.betaE(alE, beE, p.a, p.b));
     },
   },
