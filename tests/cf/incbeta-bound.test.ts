@@ -4,7 +4,7 @@
 // smaller side keeps its relative accuracy, and the bounds are not uselessly loose (median bound/actual within 100).
 import { describe, expect, it } from "vitest";
 import { readFileSync } from "node:fs";
-import { incBetaBounded, incBetaShape } from "@/lib/cf/families/incbeta-bounded";
+import { incBetaBounded, incBetaShape, incBetaValue } from "@/lib/cf/families/incbeta-bounded";
 
 const f = JSON.parse(readFileSync(new URL("../fixtures/incbeta/incbeta.json", import.meta.url), "utf8")) as {
   points: { a: string; b: string; x: string; v: string; c: string; rel_diff: number; c_rel_diff: number }[];
@@ -50,5 +50,24 @@ describe("incBetaBounded against mpmath", () => {
     expect(worstRel.r).toBeLessThan(1e-9);
     // the series answers the great majority (those it leaves: shapes far apart with x between the mean and 1)
     expect(none.length).toBeLessThan(0.2 * f.points.length);
+  });
+
+  it("incBetaValue (exact x, 1 - x formed inside, as the layer moments call it) bounds its error at every point", () => {
+    for (const pt of f.points) {
+      const [a, b, x] = [Number(pt.a), Number(pt.b), Number(pt.x)];
+      const r = incBetaValue(a, b, x);
+      if (!r) expect.fail(`incBetaValue(${a}, ${b}, ${x}) gave no value`);
+      for (const [name, v, e, ref] of [["I", r.v, r.e, Number(pt.v)], ["1 - I", r.c, r.ce, Number(pt.c)]] as const) {
+        const diff = Math.abs(v - ref);
+        if (!(diff <= e + U * ref)) expect.fail(`${name}_${x}(${a}, ${b}) = ${v}, expected ${ref} (${SOURCE}), difference ${diff}, bound ${e}`);
+      }
+    }
+  });
+
+  it("special inputs: x = 0 and x = 1 exact, NaN gives no value", () => {
+    const s = incBetaShape(2, 3);
+    expect(incBetaBounded(s, 0, 1, 0)).toMatchObject({ v: 0, c: 1, e: 0, ce: 0 });
+    expect(incBetaBounded(s, 1, 0, 0)).toMatchObject({ v: 1, c: 0, e: 0, ce: 0 });
+    expect(incBetaBounded(s, NaN, NaN, 0)).toBeNull();
   });
 });
