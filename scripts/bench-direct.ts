@@ -122,7 +122,7 @@ for (const [m, mean, sd] of run("special") ? incGamma : []) {
   const r = density(c, { x });
   const t = time(() => density(c, { x }));
   console.log(
-    `${JSON.stringify(m)} 1000 points`.padEnd(60) +
+    `${JSON.stringify(m)} 1000 points`.padEnd(64) +
       `${t.wall.toFixed(2)} ms wall, ${t.cpu.toFixed(2)} ms cpu (least ${t.cpuMin.toFixed(2)})  method ${r.diagnostics.method}, max bound pdf ${r.diagnostics.error.pdf!.toExponential(1)} cdf ${r.diagnostics.error.cdf.toExponential(1)}`,
   );
 }
