@@ -4,7 +4,7 @@ import { checkDeadline } from "../deadline";
 import { mergeAtoms } from "../kinds";
 import { directPoint, type DirectLaw, type DirectPoint } from "../direct/types";
 import { directShortfall } from "../direct/answer";
-import { DAMPED_BUDGET, KERNEL_BUDGET, dampable, dampedAt, dampedSetup, type DampedSolution } from "./damped";
+import { DAMPED_BUDGET, KERNEL_BUDGET, dampable, dampedAt, dampedPlan, dampedSetup, type DampedSolution } from "./damped";
 import { invertWithinTerms } from "./continuous";
 import { atomMass, solutionAt } from "./shared";
 import { dampedExcess } from "./quantile-damped";
@@ -81,7 +81,10 @@ function dampedComponent(w: number, m: CompiledModel, R0: number, tol: number, t
   const Mc = Math.max(1 - atoms.reduce((s, a) => s + a.p, 0), 0);
   const budget = m.dampedKernels?.length || m.dampedSeverity ? KERNEL_BUDGET : DAMPED_BUDGET;
   const mean = m.momentIndex > 1 ? m.cumulants(1)[0] : null;
-  const setup = (R: number) => dampedSetup(m, atoms, R, { tolerance: tol, wantPdf: true, budget, pointwise: true });
+  // the cut-off from the cdf's truncation alone, as the quantile route's (./quantile-damped.ts): every bracket is decided
+  // by the cdf's bounds, and the density only guides the search's steps (it carries the bound that cut-off leaves it)
+  const setup = (R: number) =>
+    dampedSetup(m, atoms, R, { tolerance: tol, wantPdf: true, budget, pointwise: true, plan: dampedPlan(m, atoms, R, tol, false, undefined, true, budget) });
   let R = R0;
   let s: DampedSolution | null = setup(R);
   if (!s) return null;
@@ -316,14 +319,20 @@ function firstRange(m: CompiledModel, tail: number): number {
   return R > lo ? R : lo + Math.max(m.scale, 1e-300);
 }
 
-/** tail: the smallest upper tail level asked for (damped ranges); lowTail: the smallest of both tails (heavy periods) */
-export function components(leaves: { w: number; m: CompiledModel }[], tol: number, tail: number, lowTail = tail): Component[] | null {
+/**
+ * tail: the smallest upper tail level asked for (damped ranges); lowTail: the smallest of both tails (heavy periods);
+ * asked: the tolerance was the request's (else tol is the default, and a damped component's cdf target shrinks with a
+ * light tail's level, as the quantile route's: its plan takes the cdf alone, and a level far in that tail needs the sf to
+ * a relative accuracy)
+ */
+export function components(leaves: { w: number; m: CompiledModel }[], tol: number, tail: number, lowTail = tail, asked = true): Component[] | null {
   const out: Component[] = [];
   for (const { w, m } of leaves) {
     checkDeadline("mixture-components");
     if (m.direct) out.push(directComponent(w, m));
     else {
-      const c = (dampable(m) ? dampedComponent(w, m, firstRange(m, tail), tol, tol / (4 * leaves.length)) : null) ?? lightComponent(w, m, tol) ?? heavyComponent(w, m, tol, lowTail);
+      const own = asked || Number.isFinite(m.tails.right) ? tol : Math.min(tol, Math.max(1e-6 * tail, 1e-14));
+      const c = (dampable(m) ? dampedComponent(w, m, firstRange(m, tail), own, tol / (4 * leaves.length)) : null) ?? lightComponent(w, m, tol) ?? heavyComponent(w, m, tol, lowTail);
       if (!c) return null;
       out.push(c);
     }
