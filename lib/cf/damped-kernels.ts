@@ -12,6 +12,11 @@ export interface EndpointSeries {
   at: number;
   exps: number[];
   coefs: number[];
+  /**
+   * the rate at which the series is one gamma kernel exactly (a gamma law's own rate): a compound's kernels at that rate
+   * are its first claims' laws themselves, so what is left starts with the first claim count the kernels do not reach
+   */
+  rate?: number;
 }
 
 /**

@@ -98,7 +98,7 @@ export function gammaLaw(shape: number, rate: number): Node {
  * Gamma(a, r) Laplace transform at large s: (1 + s/r)^{-a} = (r/s)^a (1 + r/s)^{-a} = sum_j (-1)^j (a)_j / j! r^{a+j}
  * s^{-a-j} (binomial series, |r/s| < 1); compounds of gamma severities subtract gamma kernels from it.
  */
-function gammaExpansion(a: number, r: number): { at: number; exps: number[]; coefs: number[] } {
+function gammaExpansion(a: number, r: number): { at: number; exps: number[]; coefs: number[]; rate: number } {
   const exps: number[] = [];
   const coefs: number[] = [];
   let c = Math.pow(r, a);
@@ -107,7 +107,7 @@ function gammaExpansion(a: number, r: number): { at: number; exps: number[]; coe
     coefs.push(c);
     c *= (-(a + j) * r) / (j + 1);
   }
-  return { at: 0, exps, coefs };
+  return { at: 0, exps, coefs, rate: r };
 }
 
 /** Laplace(loc, b): phi = e^{i loc t} / (1 + b^2 t^2) (JKB vol. 2, ch. 24). */
