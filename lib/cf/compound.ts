@@ -3,7 +3,7 @@ import { commonStep, onLattice, panjer, powerTable, restep, convolveTables } fro
 import type { LatticeTable } from "./types";
 import { checkDeadline } from "./deadline";
 import { compoundDamped } from "./damped-cf";
-import { KERNEL_ORDER, compoundSeries, kernelsOfSeries, type GammaKernel, type TransformSeries } from "./damped-kernels";
+import { GAMMA_ORDER, KERNEL_ORDER, compoundSeries, kernelsOfSeries, type GammaKernel, type TransformSeries } from "./damped-kernels";
 import { layerCompoundAtoms, layerCompoundJumps, type LayerCompoundAtoms } from "./layer-compound";
 import { builtNote, chooseSpan, isPoissonCount, discretisedCompound, methodNote, type DiscretiseOptions, type DiscretisedCompound } from "./discretise";
 import { withCumulantErrors } from "./cumulant-bounds";
@@ -217,17 +217,23 @@ function kernelsFor(N: Node, X: Node): { series: TransformSeries; kernels: Gamma
   const sev = X.laplaceExpansion!;
   const e0 = Math.min(...sev.exps);
   const nMax = Math.floor(KERNEL_ORDER / e0) + 1;
-  const t = N.table!(nMax + 1);
+  // a gamma severity (sev.rate): phi^n is the gamma(n a, r) law itself, so the n-claim laws are the kernels exactly, up to
+  // n a <= GAMMA_ORDER (at most 8 of them, never fewer than the series would take): what is left decays like |s|^-((n + 1) a)
+  const nGamma = sev.rate !== undefined ? Math.max(Math.min(Math.floor(GAMMA_ORDER / e0), 8), nMax - 1) : 0;
+  const t = N.table!(Math.max(nMax, nGamma) + 1);
   if (!t || t.step !== 1 || !Number.isInteger(t.origin) || t.origin < 0) return null;
-  const pn = new Float64Array(nMax + 1);
-  for (let n = 0; n <= nMax; n++) {
+  const pn = new Float64Array(Math.max(nMax, nGamma) + 1);
+  for (let n = 0; n < pn.length; n++) {
     const i = n - t.origin;
     pn[n] = i >= 0 && i < t.p.length ? t.p[i] : 0;
   }
-  // a gamma severity's own rate: its n-claim laws are then kernels exactly (at 1 / sd the first claim's leaves a term of
-  // one power more: NB(3.9, 0.31)-gamma(3.68, 1.26) decayed like |s|^-4.68, not |s|^-7.36, and took 5 times the terms)
-  const rate = sev.rate ?? 1 / Math.max(X.severity?.scale ?? X.scale, 1e-300);
-  const series = compoundSeries(pn, sev);
+  const series = compoundSeries(pn.subarray(0, nMax + 1), sev);
+  if (sev.rate !== undefined) {
+    const kernels: GammaKernel[] = [];
+    for (let n = 1; n <= nGamma; n++) if (pn[n] > 0) kernels.push({ at: n * sev.at, shape: n * e0, rate: sev.rate, w: pn[n] });
+    return { series, kernels, rate: sev.rate };
+  }
+  const rate = 1 / Math.max(X.severity?.scale ?? X.scale, 1e-300);
   return { series, kernels: kernelsOfSeries(series, rate), rate };
 }
 

@@ -77,6 +77,8 @@ function toKernels(series: Map<number, number>, at: number, rate: number, eMax: 
 
 /** order of the endpoint expansion removed by kernels: what is left decays like |s|^{-e}, e > KERNEL_ORDER */
 export const KERNEL_ORDER = 4;
+/** the order to which a gamma severity's compound takes its n-claim laws as kernels (exact, no series: see compound.ts) */
+export const GAMMA_ORDER = 8;
 
 /**
  * A whole law's Laplace transform for large s (Re s >= 0) as blocks at endpoints,
@@ -209,8 +211,11 @@ export function subtractKernels(ks: readonly GammaKernel[], lo: number, beta: nu
   }
 }
 
-/** the kernels' cdf, density and integrated cdf (int_{-inf}^x F) at x, with a bound on their rounding */
-export function kernelsAt(ks: readonly GammaKernel[], x: number): { F: number; f: number; I: number; err: number; errf: number; errI: number } {
+/**
+ * the kernels' cdf, density and integrated cdf (int_{-inf}^x F) at x, with a bound on their rounding; without wantInt the
+ * integrated cdf is not formed (its P(a + 1) costs as much as the cdf's): I is NaN and errI Infinity
+ */
+export function kernelsAt(ks: readonly GammaKernel[], x: number, wantInt = true): { F: number; f: number; I: number; err: number; errf: number; errI: number } {
   let F = 0;
   let f = 0;
   let I = 0;
@@ -226,27 +231,30 @@ export function kernelsAt(ks: readonly GammaKernel[], x: number): { F: number; f
     if (!(y > 0)) continue;
     const z = k.rate * y;
     const g0 = incGamma(k.shape, z);
-    const g1 = incGamma(k.shape + 1, z);
     const P = g0.P;
-    const P1 = g1.P;
     F += k.w * P;
     // P's derived bound (./invert/incgamma.ts)
     const eP = Math.abs(k.w) * g0.eP;
     errP += eP;
-    errIy += eP * y;
-    errP1 += (Math.abs(k.w) * k.shape * g1.eP) / k.rate;
     const g = gammaPdf(k.shape, k.rate, y);
     f += k.w * g;
     scaleF += Math.abs(k.w * g);
     errF += Math.abs(k.w * g) * gammaPdfErr(k.shape, k.rate, y);
+    scale += Math.abs(k.w);
+    if (!wantInt) continue;
+    const g1 = incGamma(k.shape + 1, z);
+    const P1 = g1.P;
+    errIy += eP * y;
+    errP1 += (Math.abs(k.w) * k.shape * g1.eP) / k.rate;
     // int_0^y P(a, r u) du = y P(a, r y) - (a / r) P(a + 1, r y)
     I += k.w * (y * P - (k.shape / k.rate) * P1);
-    scale += Math.abs(k.w);
     scaleI += Math.abs(k.w) * y;
   }
   // the incomplete gamma's and the densities' derived bounds (./invert/incgamma.ts), plus the sums' rounding
   const sumRound = 4 * Number.EPSILON * scale;
-  return { F, f, I, err: errP + sumRound, errf: errF + 4 * Number.EPSILON * scaleF, errI: errIy + errP1 + 8 * Number.EPSILON * scaleI + sumRound * (1 + scaleI / Math.max(scale, 1e-300)) };
+  const errf = errF + 4 * Number.EPSILON * scaleF;
+  if (!wantInt) return { F, f, I: NaN, err: errP + sumRound, errf, errI: Infinity };
+  return { F, f, I, err: errP + sumRound, errf, errI: errIy + errP1 + 8 * Number.EPSILON * scaleI + sumRound * (1 + scaleI / Math.max(scale, 1e-300)) };
 }
 
 /** sup over x >= from of the kernels' total |density| (each gamma density is decreasing beyond its mode) */

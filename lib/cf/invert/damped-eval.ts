@@ -21,7 +21,7 @@ export function takenOutAt(
   wantPdf = true,
   wantInt = true,
 ): { F: number; f: number; I: number; err: number; errf: number; errI: number } {
-  const kv = s.kernels.length ? kernelsAt(s.kernels, x) : { F: 0, f: 0, I: 0, err: 0, errf: 0, errI: 0 };
+  const kv = s.kernels.length ? kernelsAt(s.kernels, x, wantInt) : { F: 0, f: 0, I: 0, err: 0, errf: 0, errI: 0 };
   if (!s.severity) return kv;
   const v = s.severity.at(x, wantPdf, wantInt);
   const out = { F: kv.F + v.F, f: kv.f + v.f, I: kv.I + v.I, err: kv.err + v.err, errf: kv.errf + v.errf, errI: kv.errI + v.errI };
