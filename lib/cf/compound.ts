@@ -228,12 +228,14 @@ function kernelsFor(N: Node, X: Node): { series: TransformSeries; kernels: Gamma
     pn[n] = i >= 0 && i < t.p.length ? t.p[i] : 0;
   }
   const series = compoundSeries(pn.subarray(0, nMax + 1), sev);
+  // the rate a sum or mixture rebuilding its kernels from the series starts from (./kernel-carry.ts): 1 / sd, as before the
+  // exact kernels (at the gamma's own rate NB(3.70, 0.29)-gamma(2.89, 0.513) + three terms took 143 267 terms against 92 897)
+  const rate = 1 / Math.max(X.severity?.scale ?? X.scale, 1e-300);
   if (sev.rate !== undefined) {
     const kernels: GammaKernel[] = [];
     for (let n = 1; n <= nGamma; n++) if (pn[n] > 0) kernels.push({ at: n * sev.at, shape: n * e0, rate: sev.rate, w: pn[n] });
-    return { series, kernels, rate: sev.rate };
+    return { series, kernels, rate };
   }
-  const rate = 1 / Math.max(X.severity?.scale ?? X.scale, 1e-300);
   return { series, kernels: kernelsOfSeries(series, rate), rate };
 }
 

@@ -73,7 +73,8 @@ export interface Node {
   /** compounds: the one-claim term taken out of the damped transform, valid only with the dampedLogCf named here */
   dampedSeverity?: { cf: DampedLogCf; kernel: import("./severity-kernel").SeverityKernel };
   /** gamma kernels subtracted from the damped transform (compounds, and sums and mixtures holding them), valid only
-   *  with the dampedLogCf named here; rate: the kernels' common rate */
+   *  with the dampedLogCf named here; rate: the rate a sum or mixture holding the node rebuilds its kernels at (the kernels'
+   *  common rate; 1 / sd for a compound of gamma claims, whose kernels are its n-claim laws at the gamma's own rate) */
   dampedKernels?: { cf: DampedLogCf; kernels: GammaKernel[]; rate: number };
   /** the whole transform's expansion at its lower endpoint(s), where known (sums and mixtures build kernels from it) */
   transformSeries?: TransformSeries;
