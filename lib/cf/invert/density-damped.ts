@@ -4,6 +4,7 @@ import { atomMass, type Request } from "./shared";
 import { dampedPoints, pointsPlan } from "./damped-points";
 import { truncationSup } from "./damped-slope";
 import { aliasCdfAt } from "./damped-eval";
+import { markovTail, momentBounds } from "./moment-tails";
 import type { DensityResult, PointErrors } from "./types";
 
 /**
@@ -92,6 +93,11 @@ export function dampedDensity(
     cdf: ptF.map((e) => e + 4 * Number.EPSILON),
     sf: ptF.map((e) => e + 4 * Number.EPSILON),
   };
+  // the mass past the window [lo, lo + T): at most the images' uniform bound, or Markov's inequality at its best order on
+  // the law's moments (./moment-tails.ts) where that is smaller (a fast-decaying remainder lets the plan take a short period,
+  // for which the uniform bound q / (1 - q) E[Y^2] / T^2 is loose: Poisson(2)-exponential(1), T = 82, 2.8e-9)
+  const mb = momentBounds(model, lo, sol.T);
+  const beyond = Math.min(sol.aliasCdf, mb ? markovTail(mb, sol.T, false) : Infinity);
   const notes = [...sol.notes, ...notes0];
   if (errF > tol || (wantPdf && errf > tol)) {
     notes.push(`tolerance ${tol} not reached: cdf bound ${errF.toExponential(2)}, density bound ${errf.toExponential(2)} (truncation and rounding grow by e^{beta (x - lo)} after undamping)`);
@@ -110,7 +116,7 @@ export function dampedDensity(
       frequencyStep: sol.h,
       maxFrequency: sol.maxFrequency,
       range: { from: lo, to: lo + sol.T },
-      capturedMass: 1 - sol.aliasCdf,
+      capturedMass: 1 - beyond,
       error: {
         aliasing: alias,
         truncation: trunc,
