@@ -65,9 +65,10 @@ export function solveLattice(model: CompiledModel, origin: number, step: number,
     const outside = aliasBound(model, origin, step, leftOpen ? k0 - 1 : null, rightOpen ? k0 + N : null);
     // tailMass: the mass outside the window (the density route reports 1 - tailMass as captured; risk adds it to S).
     // pmf: the aliasing of a point is at most that mass; cdf and sf: their aliased sums and the mass left out both are
+    // (and risk's S, which adds tailMass, is off by at most twice it)
     out = {
       table: { origin: origin + k0 * step, step, p, tailMass: outside },
-      errorPmf: 2 * outside + round,
+      errorPmf: outside + round,
       // the cumulative sums (latticeCumulative, compensated) add at most 2 u (1 + O(N u)) of the sum of |p|: 4 u of it
       errorCdf: 2 * outside + roundCdf + 2 * Number.EPSILON * sumAbs(p),
       method: "lattice-fft",
@@ -76,7 +77,7 @@ export function solveLattice(model: CompiledModel, origin: number, step: number,
     };
     // past the tolerance, a small table grows on until the rounding dominates its bound (one more doubling divides a
     // light tail's moment bound by many orders)
-    if ((2 * outside <= tol && (2 * outside <= round || N >= TIGHT_LATTICE)) || N >= MAX_LATTICE) break;
+    if ((2 * outside <= tol && (outside <= round || N >= TIGHT_LATTICE)) || N >= MAX_LATTICE) break;
     // the N new points go to the open sides, halved when both are
     if (leftOpen) k0 -= rightOpen ? N / 2 : N;
     N *= 2;
