@@ -9,7 +9,8 @@ import { toLawKind } from "./kinds";
 import { MAX_LATTICE } from "./limits";
 import { layerNode } from "./layer";
 import { lgamma } from "./families/special";
-import { MONOTONE_ABS_CF, mixMajorant, repeatMajorant, scaleMajorant, selfMajorant, sumMajorant, uniformMajorant } from "./majorant";
+import { MONOTONE_ABS_CF, mixMajorant, repeatMajorant, scaleMajorant, selfMajorant, shiftMajorant, sumMajorant, uniformMajorant } from "./majorant";
+import { familyMajorant, monotoneExtras } from "./family-majorants";
 import type { DiscretiseOptions } from "./discretise";
 import { compoundNode, latticeNode, mixNode, repeatNode, sampleNode, scaleNode, shiftNode, sumNode } from "./operators";
 import { cumulantEst, withCumulantErrors } from "./cumulant-bounds";
@@ -42,14 +43,21 @@ export function buildNode(m: Model, opts: CompileOptions = {}): Node {
     const node = FAMILY_SPECS[m.family].build(m);
     const direct = FAMILY_SPECS[m.family].direct?.(m as unknown as FamilyParams);
     if (direct) node.direct = direct;
-    if (MONOTONE_ABS_CF.has(m.family)) node.logMajorant = selfMajorant(node);
+    const params = m as unknown as Record<string, number>;
+    if (MONOTONE_ABS_CF.has(m.family)) {
+      const x = monotoneExtras(m.family, params);
+      node.logMajorant = selfMajorant(node, x.q, x.slope);
+    } else {
+      const fm = familyMajorant(m.family, params);
+      if (fm) node.logMajorant = fm;
+    }
     if (m.family === "student_t") {
       const p = m as unknown as { nu: number; scale?: number };
       node.logCfErr = studentTLogCfError(p.nu, p.scale ?? 1);
     }
     else if (m.family === "uniform") {
       const u = m as unknown as { a: number; b: number };
-      node.logMajorant = uniformMajorant(u.b - u.a);
+      node.logMajorant = uniformMajorant(u.a, u.b);
     }
     return node;
   }
@@ -86,7 +94,7 @@ function scaled(a: number, child: Node): Node {
 /** X + b: the direct evaluation and a mixture's components follow the shift */
 function shifted(b: number, child: Node): Node {
   const node = shiftNode(b, child);
-  node.logMajorant = child.logMajorant;
+  node.logMajorant = shiftMajorant(b, child);
   node.logCfErr = child.logCfErr;
   if (!Number.isFinite(b)) return node;
   if (child.direct) node.direct = affineDirect(child.direct, 1, b);

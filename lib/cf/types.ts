@@ -79,7 +79,7 @@ export interface CompiledModel {
   /** absolute error of logCf at t beyond those units (special functions whose terms cancel) */
   logCfExtraError?(t: number): number;
   /** log of a non-increasing majorant of |phi| on t >= 0 (M(t) >= sup_{s >= t} |phi(s)|), where the tree gives one */
-  logAbsMajorant?(t: Float64Array, out: Float64Array): void;
+  logAbsMajorant?: import("./majorant").LogMajorant;
   /** sums: the term with the heaviest power tail, when it has a direct law (see TailTerm) */
   readonly tailTerm?: TailTerm;
   /** when the law is lattice and can be tabulated (finite lattices, Panjer for compounds, or the opt-in

@@ -3,6 +3,7 @@ import { evalPart, type ContinuousPart } from "./part";
 import type { CompiledModel } from "../types";
 import { checkDeadline } from "../deadline";
 import { RESYNC } from "./pointwise";
+import { majorantEnvelope } from "./envelope-bound";
 
 /**
  * Envelope of |phi_part(t)| sampled on a geometric probe (8 points per octave) and its tail integrals, used to
@@ -94,6 +95,7 @@ export function probeEnvelope(part: ContinuousPart, scale: number): Envelope {
   // exp(-c t^a) type decays monotonically below 1e-300) and is not evaluated
   const B = 2 * PER_OCTAVE;
   const own = probeLogCf(part.model, t0, n);
+  let evaluated = 0;
   for (let i0 = 0; i0 < n; i0 += B) {
     const i1 = Math.min(n, i0 + B);
     if (own.done < i1) {
@@ -101,6 +103,7 @@ export function probeEnvelope(part: ContinuousPart, scale: number): Envelope {
       own.done = i1;
     }
     evalPart(part, t.subarray(i0, i1), re.subarray(i0, i1), im.subarray(i0, i1), undefined, { re: own.re.subarray(i0, i1), im: own.im.subarray(i0, i1) });
+    evaluated = i1;
     let m = 0;
     for (let i = i0; i < i1; i++) m = Math.max(m, Math.abs(re[i]) + Math.abs(im[i]));
     if (m === 0 && i0 > 0 && part.atoms.length === 0 && part.kernels.length === 0) break;
@@ -108,16 +111,15 @@ export function probeEnvelope(part: ContinuousPart, scale: number): Envelope {
   const mag = new Float64Array(n);
   for (let i = 0; i < n; i++) mag[i] = cabs(re[i], im[i]);
   const sampled = envelopeOf(t, mag, nf);
-  // samples bound |phi| between probes only where it is monotone; the model's majorant (./majorant.ts) bounds it
-  // everywhere, and is used when it applies to the inverted part (no atoms, kernels or tail law subtracted) and decays
+  // samples bound |phi| between probes only where it is monotone; the model's derived majorant (../majorant.ts) bounds
+  // it everywhere, and is used when it applies to the inverted part (no atoms, kernels or tail law subtracted)
   const maj = part.model.logAbsMajorant;
   if (!maj || part.atoms.length > 0 || part.kernels.length > 0 || part.tail) return sampled;
-  const lm = new Float64Array(n);
-  maj(t, lm);
-  for (let i = 0; i < n; i++) mag[i] = Math.max(mag[i], Math.exp(lm[i]) / part.weight);
-  const bound = envelopeOf(t, mag, nf);
+  const bound = majorantEnvelope(part, maj, t, mag, own.re, own.im, evaluated, sampled, nf);
+  // a majorant without a derived decay past the probes (a mixture with a component bounded by 1) gives no finite
+  // tail: the sampled envelope is kept there (not derived between probes; see majorant.ts)
   if (!Number.isFinite(bound.tailCdf[0])) return sampled;
-  return { ...bound, decay: sampled.decay, decayClean: sampled.decayClean };
+  return bound;
 }
 
 /** Envelope from sampled magnitudes |phi(t_i)| on the geometric probe (PER_OCTAVE per octave), values below nf(t_i, i) as 0. */
