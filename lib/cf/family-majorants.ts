@@ -236,6 +236,22 @@ function unimodalMajorant(family: string, p: Record<string, number>): LogMajoran
       const fmax = g === 1 ? a / th : burrPdf(a, g, th, th * Math.pow((g - 1) / (a * g + 1), 1 / g));
       return powerMajorant([[1], [0, 2 * fmax * m]]);
     }
+    case "beta":
+    case "pert": {
+      // beta on [a, b] with both shapes >= 1: unimodal, sup f at the mode y* = (alpha - 1) / (alpha + beta - 2) of
+      // y^{alpha-1} (1 - y)^{beta-1} / (B(alpha, beta) (b - a)) (JKB vol. 2 ch. 25); pert is the beta with
+      // alpha = 1 + lambda (m - a) / (b - a), beta = 1 + lambda (b - m) / (b - a)
+      const a = family === "beta" ? (p.a ?? 0) : p.a;
+      const b = family === "beta" ? (p.b ?? 1) : p.b;
+      const lam = p.lambda ?? 4;
+      const al = family === "beta" ? p.alpha : 1 + (lam * (p.m - a)) / (b - a);
+      const be = family === "beta" ? p.beta : 1 + (lam * (b - p.m)) / (b - a);
+      if (!(al >= 1 && be >= 1)) return undefined;
+      const y = al + be > 2 ? (al - 1) / (al + be - 2) : 0.5;
+      const lb = lgamma(al) + lgamma(be) - lgamma(al + be);
+      const lf = (al > 1 ? (al - 1) * Math.log(y) : 0) + (be > 1 ? (be - 1) * Math.log(1 - y) : 0) - lb - Math.log(b - a);
+      return powerMajorant([[1], [0, 2 * Math.exp(lf) * (1 + 1e-11)]]);
+    }
     case "inverse_gaussian": {
       const { mu, lambda } = p;
       const x = mu * (Math.sqrt(1 + (9 * mu * mu) / (4 * lambda * lambda)) - (3 * mu) / (2 * lambda));
