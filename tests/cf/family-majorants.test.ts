@@ -70,3 +70,58 @@ describe(`family majorants of |phi| and |phi'| (reference: ${fixture.source})`, 
     }
   }
 });
+
+// Sums, scales, shifts and mixtures (lib/cf/majorant.ts): against the same fixture rows (lognormal(0, 1) and
+// weibull(2, 1), method 1 values) and the uniform's closed form |sin(u)| / u, u = w t / 2, with its centred derivative
+// (w / 2) |u cos u - sin u| / u^2 (common practice). The grid is geometric with 3 points per octave, so t / 2 is three rows down.
+describe("majorants of sums, scales, shifts and mixtures (reference: cf-abs.json rows and the uniform's closed form)", () => {
+  const rows = (family: string, key: string) => fixture.cases.find((c) => c.family === family && Object.values(c.params).join(",") === key)!.rows;
+  const ln = rows("lognormal", "0,1");
+  const wb = rows("weibull", "2,1");
+  const t = Float64Array.from(ln.map((r) => r.t));
+  const w = 2;
+  const sinc = (s: number) => Math.abs(Math.sin(0.5 * w * s) / (0.5 * w * s));
+  const dsinc = (s: number) => {
+    const u = 0.5 * w * s;
+    return 0.5 * w * Math.abs((u * Math.cos(u) - Math.sin(u)) / (u * u));
+  };
+  const values = (m: Model) => {
+    const maj = compile(m).logAbsMajorant!;
+    const out = new Float64Array(t.length);
+    maj(t, out);
+    return { maj, M: Array.from(out, Math.exp) };
+  };
+  const atLeastFromRight = (c: Checker, label: string, bound: number[], ref: (i: number) => number) => {
+    let sup = 0;
+    for (let i = bound.length - 1; i >= 0; i--) {
+      sup = Math.max(sup, ref(i) - SLACK);
+      c.that(`${label} at row ${i}`, bound[i] >= sup, `bound ${bound[i]} below ${sup}`);
+    }
+  };
+
+  it("lognormal(0, 1) + uniform(0, 2) moved by 3: M >= |phi_L| |phi_U|; slope >= |phi_L'| |phi_U| + |phi_L| |(phi_U e^{-i t c_U})'|", () => {
+    const { maj, M } = values({ sum: [{ family: "lognormal", mu: 0, sigma: 1 }, { shift: 3, of: { family: "uniform", a: 0, b: w } }] } as unknown as Model);
+    const c = new Checker();
+    atLeastFromRight(c, "M", M, (i) => ln[i].abs * sinc(t[i]));
+    c.that("slope centre 0 + 3 + 1", maj.slope?.center === 4, String(maj.slope?.center));
+    const s = new Float64Array(t.length);
+    maj.slope!.at(t, s);
+    atLeastFromRight(c, "slope", Array.from(s), (i) => ln[i].absMoment! * sinc(t[i]) + ln[i].abs * dsinc(t[i]));
+    c.done();
+  });
+
+  it("0.5 lognormal(0, 1): M(t_{i+3}) >= |phi_L(t_i)| (t_{i+3} / 2 = t_i)", () => {
+    const { M } = values({ scale: 0.5, of: { family: "lognormal", mu: 0, sigma: 1 } } as unknown as Model);
+    const c = new Checker();
+    c.that("grid ratio", Math.abs(t[3] / t[0] - 2) < 1e-12);
+    atLeastFromRight(c, "M", M.slice(3), (i) => ln[i].abs);
+    c.done();
+  });
+
+  it("0.3 lognormal(0, 1) + 0.7 weibull(2, 1) mixture: M >= 0.3 |phi_L| + 0.7 |phi_W|", () => {
+    const { M } = values({ mix: [{ weight: 0.3, of: { family: "lognormal", mu: 0, sigma: 1 } }, { weight: 0.7, of: { family: "weibull", shape: 2, scale: 1 } }] } as unknown as Model);
+    const c = new Checker();
+    atLeastFromRight(c, "M", M, (i) => 0.3 * ln[i].abs + 0.7 * wb[i].abs);
+    c.done();
+  });
+});
