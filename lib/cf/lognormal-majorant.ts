@@ -9,7 +9,7 @@ const SQRT_2PI = Math.sqrt(2 * Math.PI);
  * d/dx = e^{-u} d/du turns (a, p) into (a + 1, (p' - (z + a sigma) p) / sigma). h^{(k)} vanishes at x = 0 and x = inf,
  * its polynomial p_k has k simple real zeros and p_{k+1} has k + 1, one between each two consecutive zeros of p_k and one
  * beyond each end (Rolle: h^{(k)} -> 0 at both ends), so h^{(k)} has k + 1 extrema of alternating sign and
- * TV(h^{(k)}) = 2 sum_j |h^{(k)}(extremum_j)|. The extrema are bracketed by sign changes of p_{k+1} and bisected; at each
+ * TV(h^{(k)}) = 2 sum_j |h^{(k)}(extremum_j)|. The extrema are bracketed by sign changes of p_{k+1} and the brackets narrowed by regula falsi; at each
  * the value is bounded by the larger end of its bracket plus the bracket's width times the derivative's size at its ends
  * (the derivative is monotone across a simple zero in a bracket this small). Returns TV(h), TV(h'), ..., TV(h^{(K)}).
  */
@@ -46,11 +46,29 @@ export function derivativeVariations(mu: number, sigma: number, a0: number, c0: 
     for (let j = 0; j + 1 < ends.length; j++) {
       let lo = ends[j];
       let hi = ends[j + 1];
-      const slo = Math.sign(peval(pn, lo));
-      for (let it = 0; it < 80 && hi - lo > 1e-10 * (1 + Math.abs(lo)); it++) {
-        const m = 0.5 * (lo + hi);
-        if (Math.sign(peval(pn, m)) === slo) lo = m;
-        else hi = m;
+      // regula falsi with the Illinois modification (the bracket shrinks from both sides; a few steps per zero)
+      let flo = peval(pn, lo);
+      let fhi = peval(pn, hi);
+      let side = 0;
+      for (let it = 0; it < 100 && hi - lo > 1e-10 * (1 + Math.abs(lo)); it++) {
+        let m = (lo * fhi - hi * flo) / (fhi - flo);
+        if (!(m > lo && m < hi)) m = 0.5 * (lo + hi);
+        const fm = peval(pn, m);
+        if (fm === 0) {
+          lo = hi = m;
+          break;
+        }
+        if (Math.sign(fm) === Math.sign(flo)) {
+          lo = m;
+          flo = fm;
+          if (side === -1) fhi *= 0.5;
+          side = -1;
+        } else {
+          hi = m;
+          fhi = fm;
+          if (side === 1) flo *= 0.5;
+          side = 1;
+        }
       }
       next.push(0.5 * (lo + hi));
       // dh/dz = sigma e^{u} h^{(k+1)}: its size at the bracket's ends
