@@ -17,6 +17,8 @@ export function affineDirect(law: DirectLaw, a: number, b: number): DirectLaw {
     support: [Number.isNaN(lo) ? -Infinity : lo, Number.isNaN(hi) ? Infinity : hi],
     center: a * law.center + b,
     spread: aa * law.spread,
+    ...(law.mode !== undefined ? { mode: a * law.mode + b } : {}),
+    ...(law.unimodal ? { unimodal: true } : {}),
     notes: law.notes,
     at(y: number, out: DirectPoint) {
       const x = (y - b) / a;

@@ -1,6 +1,7 @@
 import type { DensityResult } from "../invert/types";
 import type { QuantileResult } from "../invert/quantile";
 import { directPoint, type DirectLaw, type DirectPoint } from "./types";
+import { directShortfall, type RestBound } from "./shortfall";
 
 /** Density, cdf and sf of a directly evaluated law at the points xs; each point's bounds, and the largest over the points. */
 export function directDensity(law: DirectLaw, xs: Float64Array, modelNotes: string[], out?: { pdf?: Float64Array; cdf?: Float64Array; sf?: Float64Array }): DensityResult {
@@ -175,78 +176,6 @@ function refineBounds(probe: (x: number) => Probe, c: Probe, lo: number, hi: num
   return { x, err: Math.max(eL, eR) };
 }
 
-/**
- * Expected shortfall ES_p = q + E[(X - q)^+]/(1 - p) (Acerbi & Tasche 2002). Above the median
- * E[(X - q)^+] = int_q^inf S(y) dy; below it, where that integral would be most of the mean and ES a small difference,
- * E[(X - q)^+] = (mean - q) + int_-inf^q F(y) dy. Each tail integral is a trapezoid sum in t with y = q +- s e^t
- * (s the law's spread), every second node giving the error estimate. The part beyond the last node is bounded by
- * y S(y) / (index - 1) for a power tail of that index (Karamata; here with a factor 4 of margin) and by 8 s S(y) for
- * lighter tails. A law without a finite mean (index <= 1) has no ES: NaN.
- */
-export function directShortfall(
-  law: DirectLaw,
-  q: number,
-  qErr: number,
-  p: number,
-  index: { left: number; right: number },
-  mean: number | null,
-): { value: number; error: number } {
-  if (p >= 1) return { value: q, error: qErr };
-  if (index.right <= 1 || mean === null) return { value: NaN, error: NaN };
-  const lower = p < 0.5 && index.left > 1;
-  const dir = lower ? -1 : 1;
-  const tailIndex = lower ? index.left : index.right;
-  const s = law.spread;
-  const h = 0.25;
-  const pt = directPoint();
-  const tailOf = (o: DirectPoint) => (lower ? o.cdf : o.sf);
-  const tailErr = (o: DirectPoint) => (lower ? o.cdfErr : o.sfErr);
-  let A = 0;
-  let B = 0;
-  let E = 0;
-  let tail = 0;
-  let k = 0;
-  const t0 = -32;
-  // a finite support end on the integration side: y = q + dir D e^t / (1 + e^t), D the distance to the end
-  const end = lower ? law.support[0] : law.support[1];
-  const D = Math.abs(end - q);
-  const finite = Number.isFinite(end);
-  for (let t = t0; t < 400; t += h, k++) {
-    let d: number;
-    let jac: number;
-    if (finite) {
-      const e = Math.exp(-Math.abs(t));
-      const sg = t >= 0 ? 1 / (1 + e) : e / (1 + e);
-      d = D * sg;
-      jac = D * sg * (1 - sg);
-    } else {
-      d = s * Math.exp(t);
-      jac = d;
-    }
-    const y = q + dir * d;
-    law.at(y, pt);
-    const term = h * jac * tailOf(pt);
-    A += term;
-    if (k % 2 === 0) B += 2 * term;
-    E += h * jac * tailErr(pt);
-    if (t > 0 && term <= 1e-17 * A) {
-      if (finite) tail = D * Math.exp(-t) * tailOf(pt);
-      else tail = Number.isFinite(tailIndex) ? (4 * Math.abs(y) * tailOf(pt)) / (tailIndex - 1) : 8 * s * tailOf(pt);
-      if (tail <= 1e-13 * A) break;
-    }
-  }
-  // the part within (s or D) e^t0 of q is at most that length times the tail probability at q
-  law.at(q, pt);
-  const head = (finite ? D : s) * Math.exp(t0) * tailOf(pt);
-  const w = 1 - p;
-  const excess = lower ? mean - q + A + head / 2 : A + head / 2;
-  const value = q + excess / w;
-  const meanErr = lower ? 4 * Number.EPSILON * (Math.abs(mean) + Math.abs(q)) : 0;
-  // ES(q') - ES(q) = (q' - q)(1 - S(xi)/(1 - p)) for xi between: second order in |q' - q| <= qErr
-  const error = (4 * Math.abs(A - B) + tail + E + head + meanErr + 8 * Number.EPSILON * A) / w + (2 * pt.pdf * qErr * qErr) / w + 4 * Number.EPSILON * Math.abs(value);
-  return { value, error };
-}
-
 /** Quantiles (and ES) of a directly evaluated law, shaped like the inversion's result. */
 export function directQuantiles(
   law: DirectLaw,
@@ -255,6 +184,7 @@ export function directQuantiles(
   index: { left: number; right: number },
   mean: number | null,
   modelNotes: string[],
+  rest?: RestBound,
 ): QuantileResult {
   const n = p.length;
   const x = new Float64Array(n);
@@ -276,7 +206,7 @@ export function directQuantiles(
     es = new Float64Array(n);
     esErr = new Float64Array(n);
     for (let i = 0; i < n; i++) {
-      const r = directShortfall(law, x[i], err[i], p[i], index, mean);
+      const r = directShortfall(law, x[i], err[i], p[i], index, mean, rest);
       es[i] = r.value;
       esErr[i] = r.error;
     }

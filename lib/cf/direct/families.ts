@@ -5,8 +5,8 @@ import normalQuantile from "@stdlib/stats-base-dists-normal-quantile";
 import { lgamma, lgammaErr } from "../families/special";
 import { incGammaBounded, incGammaShape, type IncGamma } from "../families/incgamma-bounded";
 import { incBetaBounded, incBetaShape } from "../families/incbeta-bounded";
-import type { DirectLaw } from "./types";
-import { bounds, ELEM, EPS, law, SQRT2PI } from "./law";
+import { directPoint, type DirectLaw } from "./types";
+import { bounds, ELEM, EPS, law, SQRT2PI, withMode } from "./law";
 
 const U = EPS / 2;
 
@@ -20,7 +20,7 @@ const U = EPS / 2;
  * the bounded cdf).
  */
 export function normalDirect(mu: number, sigma: number): DirectLaw {
-  return law(
+  return withMode(mu, law(
     "special-function",
     [-Infinity, Infinity],
     mu,
@@ -35,12 +35,12 @@ export function normalDirect(mu: number, sigma: number): DirectLaw {
     },
     (p) => mu + sigma * normalQuantile(p, 0, 1),
     "normal cdf by erfc (stdlib)",
-  );
+  ));
 }
 
 export function lognormalDirect(mu: number, sigma: number): DirectLaw {
   const med = Math.exp(mu);
-  return law(
+  return withMode(Math.exp(mu - sigma * sigma), law(
     "special-function",
     [0, Infinity],
     med,
@@ -62,7 +62,7 @@ export function lognormalDirect(mu: number, sigma: number): DirectLaw {
     },
     (p) => Math.exp(mu + sigma * normalQuantile(p, 0, 1)),
     "lognormal cdf by erfc of log x (stdlib)",
-  );
+  ));
 }
 
 /**
@@ -79,7 +79,7 @@ export function gammaDirect(shape: number, rate: number): DirectLaw {
   const r: IncGamma = { p: 0, q: 0, pErr: 0, qErr: 0 };
   const mean = shape / rate;
   const exp1 = shape === 1;
-  return law(
+  return withMode(shape > 1 ? (shape - 1) / rate : 0, law(
     exp1 ? "closed-form" : "special-function",
     [0, Infinity],
     mean,
@@ -110,7 +110,7 @@ export function gammaDirect(shape: number, rate: number): DirectLaw {
     },
     exp1 ? (p) => -Math.log1p(-p) / rate : (p) => (p > 0.5 ? gammaincinv(1 - p, shape, true) : gammaincinv(p, shape, false)) / rate,
     exp1 ? "exponential cdf by expm1" : "gamma cdf by the regularised incomplete gamma function (series and continued fraction with derived bounds)",
-  );
+  ));
 }
 
 export function paretoDirect(alpha: number, xm: number): DirectLaw {
@@ -136,7 +136,7 @@ export function paretoDirect(alpha: number, xm: number): DirectLaw {
 }
 
 export function weibullDirect(shape: number, scale: number): DirectLaw {
-  return law(
+  return withMode(shape > 1 ? scale * Math.pow((shape - 1) / shape, 1 / shape) : 0, law(
     "closed-form",
     [0, Infinity],
     scale * Math.pow(Math.LN2, 1 / shape),
@@ -155,7 +155,7 @@ export function weibullDirect(shape: number, scale: number): DirectLaw {
       if (!Number.isFinite(o.pdf)) o.pdfErr = 0;
     },
     (p) => scale * Math.exp(Math.log(-Math.log1p(-p)) / shape),
-  );
+  ));
 }
 
 export function uniformDirect(a: number, b: number): DirectLaw {
@@ -198,7 +198,7 @@ export function cauchyDirect(loc: number, scale: number): DirectLaw {
 }
 
 export function logisticDirect(loc: number, scale: number): DirectLaw {
-  return law(
+  return withMode(loc, law(
     "closed-form",
     [-Infinity, Infinity],
     loc,
@@ -213,11 +213,11 @@ export function logisticDirect(loc: number, scale: number): DirectLaw {
       bounds(o, ELEM, ELEM + 2 * dz, dz * scale);
     },
     (p) => loc + scale * (Math.log(p) - Math.log1p(-p)),
-  );
+  ));
 }
 
 export function laplaceDirect(loc: number, scale: number): DirectLaw {
-  return law(
+  return withMode(loc, law(
     "closed-form",
     [-Infinity, Infinity],
     loc,
@@ -232,7 +232,7 @@ export function laplaceDirect(loc: number, scale: number): DirectLaw {
       bounds(o, ELEM, ELEM + 2 * dz, dz * scale);
     },
     (p) => (p < 0.5 ? loc + scale * Math.log(2 * p) : loc - scale * Math.log(2 * (1 - p))),
-  );
+  ));
 }
 
 /** Student t: F(t) = I_{nu/(nu+t^2)}(nu/2, 1/2)/2 for t < 0 (A&S 26.7.1 with 26.5.27). */
@@ -250,7 +250,7 @@ export function studentDirect(nu: number, loc: number, scale: number): DirectLaw
   const h1 = n1 / 2;
   const eLc =
     lgammaErr(h1) + lgammaErr(nu / 2) + Math.max(Math.log(h1), 1 / h1 + 0.6) * dn * 0.505 + U * (2 * Math.abs(l3) + 2 + 2 * Math.abs(l4) + Math.abs(g1 - g2) + Math.abs(g1 - g2 - l3) + Math.abs(lc));
-  return law(
+  const L = law(
     "special-function",
     [-Infinity, Infinity],
     loc,
@@ -297,4 +297,25 @@ export function studentDirect(nu: number, loc: number, scale: number): DirectLaw
     },
     "Student t cdf by the regularised incomplete beta function (positive series with derived bounds)",
   );
+  if (!(nu > 1)) return withMode(loc, L);
+  const pt = directPoint();
+  return withMode(loc, {
+    ...L,
+    // E[(X - c)^+] = scale^2 (nu + z^2)/(nu - 1) f(c) - (c - loc) S(c), z = (c - loc)/scale (from d/dt [(nu + t^2) f_nu(t)] =
+    // -(nu - 1) t f_nu(t), McNeil, Frey & Embrechts 2015, Example 2.15), and E[(c - X)^+] with F and + (c - loc) by
+    // symmetry; each term within its values' own bounds, plus 16u of their sizes for z's rounding and the arithmetic.
+    // The two terms of the upper one, for z > 0, cancel to about 1/nu of their size.
+    stopLoss(c: number, side: 1 | -1) {
+      L.at(c, pt);
+      const d = c - loc;
+      const z = d / scale;
+      const k = (scale * scale * (nu + z * z)) / (nu - 1);
+      const m = side === 1 ? pt.sf : pt.cdf;
+      const em = side === 1 ? pt.sfErr : pt.cdfErr;
+      const t1 = k * pt.pdf;
+      const t2 = side * d * m;
+      const v = t1 - t2;
+      return { v, e: k * pt.pdfErr + Math.abs(d) * em + 16 * U * (Math.abs(t1) + Math.abs(t2)) };
+    },
+  });
 }

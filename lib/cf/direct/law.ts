@@ -47,6 +47,16 @@ export function law(method: DirectLaw["method"], support: [number, number], cent
   };
 }
 
+/** The law with its mode (DirectLaw.mode), for a family whose mode has a closed form (Johnson, Kotz & Balakrishnan). */
+export function withMode(mode: number, l: DirectLaw): DirectLaw {
+  return Number.isFinite(mode) ? { ...l, mode } : l;
+}
+
+/** The law marked unimodal (DirectLaw.unimodal), for a family known to be unimodal without a closed-form mode. */
+export function unimodal(l: DirectLaw): DirectLaw {
+  return { ...l, unimodal: true };
+}
+
 /**
  * relative error r on each value, plus pdf times the rounding dx of the argument. An infinite pdf (a power
  * singularity at the support's end, met exactly there, dx = 0) is the exact limit: its own error and its effect on

@@ -64,6 +64,8 @@ export function stableDirect(alpha: number, beta: number, scale: number, loc: nu
     support,
     center: alpha < 1 && beta === 1 ? d1 + g : alpha < 1 && beta === -1 ? d1 - g : param === "S0" ? loc : d1,
     spread: g,
+    // stable laws are unimodal (Yamazato 1978, Ann. Probab. 6)
+    unimodal: true,
     at,
     // far in a tail (alpha > 1, alpha != 2): the tail series integrated (./stable-series.ts); z < 0 by reflection
     stopLoss: (c: number, side: 1 | -1) => {

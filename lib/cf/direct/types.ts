@@ -31,6 +31,14 @@ export interface DirectLaw {
    */
   stopLoss?(c: number, side: 1 | -1): { v: number; e: number } | null;
   /**
+   * optional: a mode, where known in closed form: the density is non-decreasing below it and non-increasing above it
+   * (so S is convex above it and F below it, as ./answer.ts's shortfall bound uses), within a few ulps of its rounding;
+   * absent where not known
+   */
+  readonly mode?: number;
+  /** optional: the law is unimodal (a mode exists, not known in closed form): ./answer.ts derives an interval holding it */
+  readonly unimodal?: boolean;
+  /**
    * optional: points where the density is infinite inside the support (a variance-gamma law with nu >= 2 at its
    * location); next to one the density is ill-conditioned in x, and a caller that rounds x (./affine.ts) bounds the
    * density's change over that rounding from the values either side

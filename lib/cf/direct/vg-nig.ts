@@ -1,7 +1,7 @@
 import { lgamma, lgammaErr } from "../families/special";
 import { besselKLogSlope, logBesselKScaledBounded } from "../families/bessel-bounded";
 import type { DirectLaw, DirectPoint } from "./types";
-import { EPS, law } from "./law";
+import { EPS, law, unimodal } from "./law";
 import { mixtureTail, type Mixing } from "./mixture-tail";
 
 /**
@@ -28,7 +28,9 @@ interface Parts {
 function mixtureLaw(P: Parts, note: string): DirectLaw {
   const { mean, loc, sp, q, mix, dPar } = P;
   const dq = 6 * U * Math.abs(q);
-  return law(
+  // unimodal: normal variance-mean mixtures with a generalised inverse Gaussian mixing law (gamma, inverse Gaussian)
+  // are self-decomposable (Halgreen 1979, Z. Wahrsch. 47), hence unimodal (Yamazato 1978, Ann. Probab. 6)
+  return unimodal(law(
     "special-function",
     [-Infinity, Infinity],
     mean,
@@ -57,7 +59,7 @@ function mixtureLaw(P: Parts, note: string): DirectLaw {
     },
     undefined,
     note,
-  );
+  ));
 }
 
 /**

@@ -3,7 +3,7 @@ import type { Atom, CompiledModel } from "../types";
 import { checkDeadline } from "../deadline";
 import { mergeAtoms } from "../kinds";
 import { directPoint, type DirectLaw, type DirectPoint } from "../direct/types";
-import { directShortfall } from "../direct/answer";
+import { directShortfall, momentRest, type RestBound } from "../direct/shortfall";
 import { DAMPED_BUDGET, KERNEL_BUDGET, dampable, dampedAt, dampedPlan, dampedSetup, type DampedSolution } from "./damped";
 import { invertWithinTerms } from "./continuous";
 import { atomMass, solutionAt } from "./shared";
@@ -51,6 +51,8 @@ function directComponent(w: number, m: CompiledModel): Component {
   const law = m.direct!;
   const pt = directPoint();
   const mean = m.momentIndex > 1 ? m.cumulants(1)[0] : null;
+  // the derived bound on the tail past directShortfall's last node, formed at the first ES asked
+  let rest: RestBound | null | undefined;
   const at = (x: number): Value => {
     law.at(x, pt);
     return { F: pt.cdf, S: pt.sf, f: pt.pdf, eF: pt.cdfErr, eS: pt.sfErr };
@@ -65,7 +67,8 @@ function directComponent(w: number, m: CompiledModel): Component {
       // directShortfall gives q + E[(X - q)^+] / (1 - p) with p the component's own level at q
       const p = Math.min(Math.max(v.F, 0), 1);
       if (p >= 1 || v.S <= 0) return { value: 0, error: v.eS * Math.max(law.spread, 1) };
-      const r = directShortfall(law, q, 0, p, m.tails, mean);
+      if (rest === undefined) rest = momentRest(m) ?? null;
+      const r = directShortfall(law, q, 0, p, m.tails, mean, rest ?? undefined);
       const tail = 1 - p;
       return { value: (r.value - q) * tail, error: r.error * tail + 4 * Number.EPSILON * Math.abs(q) };
     },

@@ -1,6 +1,7 @@
 import { CfError } from "../errors";
 import type { DirectMethod } from "../direct/types";
 import { directQuantile, directQuantiles } from "../direct/answer";
+import { momentRest } from "../direct/shortfall";
 import type { Atom, CompiledModel } from "../types";
 import { evalLadder, growLadder, heavyLadder, invertWithinTerms, type HeavyLadder } from "./continuous";
 import { atomMass, roundingOf, solutionAt } from "./shared";
@@ -56,7 +57,10 @@ export function quantiles(model: CompiledModel, pIn: ArrayLike<number>, options:
     if (!(p[i] >= 0 && p[i] <= 1)) throw new CfError("invalid_model", `/p/${i}`, "each level p must be a number in [0, 1]");
   }
   // a single named law (or scaled / shifted) with a direct evaluation: no inversion
-  if (model.direct) return directQuantiles(model.direct, p, options.expectedShortfall ?? false, model.tails, model.momentIndex > 1 ? model.cumulants(1)[0] : null, model.notes);
+  if (model.direct) {
+    const mean = model.momentIndex > 1 ? model.cumulants(1)[0] : null;
+    return directQuantiles(model.direct, p, options.expectedShortfall ?? false, model.tails, mean, model.notes, options.expectedShortfall ? momentRest(model) : undefined);
+  }
   const kind = model.kind;
   if (kind.type === "lattice") return withModelNotes(model, latticeQuantiles(model, kind.origin, kind.step, p, options));
   if (kind.type === "discrete") {

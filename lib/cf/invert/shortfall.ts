@@ -1,7 +1,7 @@
 import type { Atom, CompiledModel } from "../types";
 import { maybeKernels, type PartSolution } from "./continuous";
 import { exponentsFor, maybeTailLaw, type HeavyLadder } from "./heavy";
-import { directShortfall } from "../direct/answer";
+import { directShortfall } from "../direct/shortfall";
 import { directPoint } from "../direct/types";
 import { imageScratch, shortfallImages } from "./images";
 import { incGamma } from "./incgamma";
