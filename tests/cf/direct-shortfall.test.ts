@@ -74,6 +74,29 @@ const CASES: Case[] = [
   // lognormal(mu, sigma): ES = e^{mu + sigma^2/2} Phi(sigma - z_p)/(1 - p) (common practice: E[X 1{X > q}] by completing
   // the square), Phi(sigma - z) = erfc((z - sigma)/sqrt 2)/2 by @stdlib erfc
   { label: "lognormal(0.5, 0.8)", model: { family: "lognormal", mu: 0.5, sigma: 0.8 } as Model, es: (p) => (Math.exp(0.5 + 0.32) * 0.5 * erfcRef((zOf(p) - 0.8) / Math.SQRT2)) / (1 - p) },
+  // power tails, ES = q_p + e(q_p) with the mean excess e (Embrechts, Klueppelberg & Mikosch, Modelling Extremal Events,
+  // Table 3.4.7 and Theorem 3.4.13(e); recalled) and q_p from S = 1 - p in closed form
+  {
+    label: "pareto(2.5, 1.5)",
+    model: { family: "pareto", alpha: 2.5, xm: 1.5 } as Model,
+    es: (p) => (2.5 / 1.5) * 1.5 * Math.exp(-Math.log1p(-p) / 2.5),
+  },
+  {
+    label: "lomax(3, 2)",
+    model: { family: "lomax", alpha: 3, theta: 2 } as Model,
+    es: (p) => {
+      const q = 2 * Math.expm1(-Math.log1p(-p) / 3);
+      return q + (2 + q) / 2;
+    },
+  },
+  {
+    label: "generalized_pareto(0.3, 2, 1)",
+    model: { family: "generalized_pareto", xi: 0.3, sigma: 2, mu: 1 } as Model,
+    es: (p) => {
+      const q = 1 + (2 * Math.expm1(-0.3 * Math.log1p(-p))) / 0.3;
+      return q + (2 + 0.3 * (q - 1)) / 0.7;
+    },
+  },
   // scaled and shifted: ES of a X + b is a ES_X + b for a > 0 (common practice)
   {
     label: "3 normal(1, 2) + 5",

@@ -6,7 +6,7 @@ import { lgamma, lgammaErr } from "../families/special";
 import { incGammaBounded, incGammaShape, type IncGamma } from "../families/incgamma-bounded";
 import { incBetaBounded, incBetaShape } from "../families/incbeta-bounded";
 import { directPoint, type DirectLaw } from "./types";
-import { bounds, ELEM, EPS, law, SQRT2PI, withMode } from "./law";
+import { bounds, ELEM, EPS, law, SQRT2PI, withExcess, withMode } from "./law";
 
 const U = EPS / 2;
 
@@ -114,24 +114,29 @@ export function gammaDirect(shape: number, rate: number): DirectLaw {
 }
 
 export function paretoDirect(alpha: number, xm: number): DirectLaw {
-  return law(
-    "closed-form",
-    [xm, Infinity],
-    xm * Math.pow(2, 1 / alpha),
+  return withExcess(
+    law(
+      "closed-form",
+      [xm, Infinity],
+      xm * Math.pow(2, 1 / alpha),
+      xm,
+      (x, o) => {
+        // log(xm / x) = -log1p((x - xm)/xm): x - xm is exact near xm (Sterbenz), which keeps the cdf's relative accuracy there
+        const l = x < 2 * xm ? -Math.log1p((x - xm) / xm) : Math.log(xm / x);
+        const dl = 4 * EPS * (1 + Math.abs(l)) * alpha;
+        o.sf = Math.exp(alpha * l);
+        o.cdf = -Math.expm1(alpha * l);
+        o.pdf = (alpha / x) * o.sf;
+        bounds(o, ELEM, ELEM + dl, 0);
+        // rounding of alpha log(xm / x) moves sf by sf dl
+        o.sfErr += o.sf * dl;
+        o.cdfErr += o.sf * dl;
+      },
+      (p) => xm * Math.exp(-Math.log1p(-p) / alpha),
+    ),
     xm,
-    (x, o) => {
-      // log(xm / x) = -log1p((x - xm)/xm): x - xm is exact near xm (Sterbenz), which keeps the cdf's relative accuracy there
-      const l = x < 2 * xm ? -Math.log1p((x - xm) / xm) : Math.log(xm / x);
-      const dl = 4 * EPS * (1 + Math.abs(l)) * alpha;
-      o.sf = Math.exp(alpha * l);
-      o.cdf = -Math.expm1(alpha * l);
-      o.pdf = (alpha / x) * o.sf;
-      bounds(o, ELEM, ELEM + dl, 0);
-      // rounding of alpha log(xm / x) moves sf by sf dl
-      o.sfErr += o.sf * dl;
-      o.cdfErr += o.sf * dl;
-    },
-    (p) => xm * Math.exp(-Math.log1p(-p) / alpha),
+    // mean excess c/(alpha - 1) (Embrechts, Klueppelberg & Mikosch 1997, Table 3.4.7; recalled)
+    (c) => c / (alpha - 1),
   );
 }
 

@@ -1,4 +1,4 @@
-import type { DirectLaw, DirectPoint } from "./types";
+import { directPoint, type DirectLaw, type DirectPoint } from "./types";
 
 /** Shared pieces of the closed-form and special-function direct laws (./families.ts, ./severities.ts, ./bounded.ts). */
 export const EPS = Number.EPSILON;
@@ -55,6 +55,33 @@ export function withMode(mode: number, l: DirectLaw): DirectLaw {
 /** The law marked unimodal (DirectLaw.unimodal), for a family known to be unimodal without a closed-form mode. */
 export function unimodal(l: DirectLaw): DirectLaw {
   return { ...l, unimodal: true };
+}
+
+/**
+ * The law with its mode and its upper stop-loss transform int_c^inf S = e(c) S(c), e(c) = E[X - c | X > c] the family's
+ * closed-form mean excess, formed within 4u relative (each at most a sum, a product and a quotient of exact-ish inputs;
+ * alpha - 1 and 1 - xi round by half an ulp of themselves); below the support's lower end lo, (lo - c) + e(lo). The
+ * lower transform is left to the quadrature (null). Where e(c) is not a finite positive number (no mean): null.
+ */
+export function withExcess(l: DirectLaw, mode: number, excess: (c: number) => number): DirectLaw {
+  const pt = directPoint();
+  const lo = l.support[0];
+  return {
+    ...l,
+    mode,
+    stopLoss(c: number, side: 1 | -1) {
+      if (side !== 1) return null;
+      const x = c < lo ? lo : c;
+      l.at(x, pt);
+      const e = excess(x);
+      if (!(e >= 0 && Number.isFinite(e))) return null;
+      const v = e * pt.sf;
+      const ev = e * pt.sfErr + 8 * EPS * v;
+      if (c >= lo) return { v, e: ev };
+      const d = lo - c;
+      return { v: d + v, e: ev + 2 * EPS * (d + v) };
+    },
+  };
 }
 
 /**

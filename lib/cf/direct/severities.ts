@@ -4,7 +4,7 @@ import gammaincinv from "@stdlib/math-base-special-gammaincinv";
 import { lgamma, lgammaErr } from "../families/special";
 import { incGammaBounded, incGammaShape, type IncGamma } from "../families/incgamma-bounded";
 import type { DirectLaw } from "./types";
-import { bounds, ELEM, EPS, law, logErfcxSlope } from "./law";
+import { bounds, ELEM, EPS, law, logErfcxSlope, withExcess } from "./law";
 
 /**
  * Direct laws of the claim-size families with closed-form or special-function distribution functions: lomax,
@@ -34,60 +34,70 @@ function fromLogSf(o: { pdf: number; cdf: number; sf: number; pdfErr: number; cd
  */
 export function generalizedParetoDirect(xi: number, sigma: number, mu: number): DirectLaw {
   const hi = xi < 0 ? mu - sigma / xi : Infinity;
-  return law(
-    "closed-form",
-    [mu, hi],
-    mu + sigma * (xi === 0 ? Math.LN2 : Math.expm1(xi * Math.LN2) / xi),
-    sigma,
-    (x, o) => {
-      const z = (x - mu) / sigma;
-      const dz = (2 * EPS * (Math.abs(x) + Math.abs(mu))) / sigma + EPS * z;
-      if (xi === 0) {
-        fromLogSf(o, -z, dz + EPS * z, Math.exp(-z) / sigma, ELEM + 2 * dz + 2 * EPS * z);
-        return;
-      }
-      const t = xi * z;
-      const et = Math.abs(xi) * dz + EPS * Math.abs(t);
-      if (t <= -1) {
-        // the upper end of a bounded law (xi < 0)
-        o.sf = 0;
-        o.cdf = 1;
-        o.pdf = xi > -1 ? 0 : xi === -1 ? 1 / sigma : Infinity;
-        o.sfErr = o.cdfErr = o.pdfErr = 0;
-        return;
-      }
-      const l = Math.log1p(t);
-      const el = et / (1 + t) + ELEM * Math.abs(l);
-      const L = -l / xi;
-      const eL = el / Math.abs(xi) + 2 * EPS * Math.abs(L);
-      const k = 1 / xi + 1;
-      const lp = -k * l;
-      const pdf = Math.exp(lp) / sigma;
-      fromLogSf(o, L, eL, pdf, ELEM + Math.abs(k) * el + 4 * EPS * (1 + Math.abs(lp)));
-    },
-    xi === 0 ? (p) => mu - sigma * Math.log1p(-p) : (p) => mu + (sigma * Math.expm1(-xi * Math.log1p(-p))) / xi,
-    "generalised pareto S = (1 + xi z)^(-1/xi) by log1p and expm1",
+  return withExcess(
+    law(
+      "closed-form",
+      [mu, hi],
+      mu + sigma * (xi === 0 ? Math.LN2 : Math.expm1(xi * Math.LN2) / xi),
+      sigma,
+      (x, o) => {
+        const z = (x - mu) / sigma;
+        const dz = (2 * EPS * (Math.abs(x) + Math.abs(mu))) / sigma + EPS * z;
+        if (xi === 0) {
+          fromLogSf(o, -z, dz + EPS * z, Math.exp(-z) / sigma, ELEM + 2 * dz + 2 * EPS * z);
+          return;
+        }
+        const t = xi * z;
+        const et = Math.abs(xi) * dz + EPS * Math.abs(t);
+        if (t <= -1) {
+          // the upper end of a bounded law (xi < 0)
+          o.sf = 0;
+          o.cdf = 1;
+          o.pdf = xi > -1 ? 0 : xi === -1 ? 1 / sigma : Infinity;
+          o.sfErr = o.cdfErr = o.pdfErr = 0;
+          return;
+        }
+        const l = Math.log1p(t);
+        const el = et / (1 + t) + ELEM * Math.abs(l);
+        const L = -l / xi;
+        const eL = el / Math.abs(xi) + 2 * EPS * Math.abs(L);
+        const k = 1 / xi + 1;
+        const lp = -k * l;
+        const pdf = Math.exp(lp) / sigma;
+        fromLogSf(o, L, eL, pdf, ELEM + Math.abs(k) * el + 4 * EPS * (1 + Math.abs(lp)));
+      },
+      xi === 0 ? (p) => mu - sigma * Math.log1p(-p) : (p) => mu + (sigma * Math.expm1(-xi * Math.log1p(-p))) / xi,
+      "generalised pareto S = (1 + xi z)^(-1/xi) by log1p and expm1",
+    ),
+    mu,
+    // mean excess (sigma + xi (c - mu))/(1 - xi), xi < 1 (Embrechts, Klueppelberg & Mikosch 1997, Theorem 3.4.13(e); recalled)
+    (c) => (c >= hi ? 0 : (sigma + xi * (c - mu)) / (1 - xi)),
   );
 }
 
 /** Lomax (pareto II): S = (1 + x/theta)^-alpha (Loss Models app. A.2.3.1); q_p = theta ((1 - p)^(-1/alpha) - 1). */
 export function lomaxDirect(alpha: number, theta: number): DirectLaw {
-  return law(
-    "closed-form",
-    [0, Infinity],
-    theta * Math.expm1(Math.LN2 / alpha),
-    theta,
-    (x, o) => {
-      const u = x / theta;
-      const l = Math.log1p(u);
-      const el = EPS * u / (1 + u) + ELEM * l;
-      const L = -alpha * l;
-      const eL = alpha * el + 2 * EPS * Math.abs(L);
-      const lp = -(alpha + 1) * l;
-      fromLogSf(o, L, eL, (alpha / theta) * Math.exp(lp), ELEM + (alpha + 1) * el + 4 * EPS * (1 + Math.abs(lp)));
-    },
-    (p) => theta * Math.expm1(-Math.log1p(-p) / alpha),
-    "lomax S = (1 + x/theta)^-alpha by log1p and expm1",
+  return withExcess(
+    law(
+      "closed-form",
+      [0, Infinity],
+      theta * Math.expm1(Math.LN2 / alpha),
+      theta,
+      (x, o) => {
+        const u = x / theta;
+        const l = Math.log1p(u);
+        const el = EPS * u / (1 + u) + ELEM * l;
+        const L = -alpha * l;
+        const eL = alpha * el + 2 * EPS * Math.abs(L);
+        const lp = -(alpha + 1) * l;
+        fromLogSf(o, L, eL, (alpha / theta) * Math.exp(lp), ELEM + (alpha + 1) * el + 4 * EPS * (1 + Math.abs(lp)));
+      },
+      (p) => theta * Math.expm1(-Math.log1p(-p) / alpha),
+      "lomax S = (1 + x/theta)^-alpha by log1p and expm1",
+    ),
+    0,
+    // mean excess (theta + c)/(alpha - 1) (Embrechts, Klueppelberg & Mikosch 1997, Table 3.4.7; recalled)
+    (c) => (theta + c) / (alpha - 1),
   );
 }
 
