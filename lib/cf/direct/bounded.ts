@@ -3,7 +3,7 @@ import betaincinv from "@stdlib/math-base-special-betaincinv";
 import normalQuantile from "@stdlib/stats-base-dists-normal-quantile";
 import { incBetaBounded, incBetaShape } from "../families/incbeta-bounded";
 import type { DirectLaw } from "./types";
-import { bounds, ELEM, EPS, law, SQRT2PI } from "./law";
+import { bounds, ELEM, EPS, law, SQRT2PI, withMode } from "./law";
 
 /**
  * Direct laws of the bounded and truncated families: beta on [a, b] (and PERT, a beta), triangular, truncated normal.
@@ -22,6 +22,17 @@ const LONG = 1e6;
  * (S = I_y(beta, alpha), A&S 26.5.2), which keeps relative accuracy next to b. Quantile searches start from stdlib's
  * inverse incomplete beta, in z below the median and in y above it (./answer.ts brackets them with the bounded cdf).
  */
+/**
+ * The beta law's mode on [a, b]: a + (b - a)(alpha - 1)/(alpha + beta - 2) for both shapes >= 1 (the midpoint for the
+ * uniform), a for a falling density (alpha < 1 <= beta), b for a rising one; none for a U-shaped law (JKB vol. 2, ch. 25)
+ */
+function betaMode(alpha: number, beta: number, a: number, b: number): number {
+  if (alpha >= 1 && beta >= 1) return alpha + beta > 2 ? a + ((b - a) * (alpha - 1)) / (alpha + beta - 2) : (a + b) / 2;
+  if (alpha < 1 && beta >= 1) return a;
+  if (alpha >= 1 && beta < 1) return b;
+  return NaN;
+}
+
 export function betaDirect(alpha: number, beta: number, a: number, b: number, name = "beta"): DirectLaw | null {
   // the incomplete beta's series grow with the shapes (near their square root at the mean); above, the CF route answers
   if (!(Math.max(alpha, beta) <= BETA_SHAPE_MAX)) return null;
@@ -31,7 +42,7 @@ export function betaDirect(alpha: number, beta: number, a: number, b: number, na
   const s = alpha + beta;
   const mean = a + (w * alpha) / s;
   const end = (shape: number, other: number) => (shape < 1 ? Infinity : shape === 1 ? other / w : 0); // f at the end: other / w = 1/(w B(1, other))
-  return law(
+  return withMode(betaMode(alpha, beta, a, b), law(
     "special-function",
     [a, b],
     mean,
@@ -79,7 +90,7 @@ export function betaDirect(alpha: number, beta: number, a: number, b: number, na
     },
     (p) => (p <= 0.5 ? a + w * betaincinv(p, alpha, beta, false) : b - w * betaincinv(1 - p, beta, alpha, false)),
     `${name} cdf by the regularised incomplete beta function (positive series with derived bounds)`,
-  );
+  ));
 }
 
 /** PERT(a, m, b, lambda): beta on [a, b] with alpha = 1 + lambda (m - a)/(b - a), beta = 1 + lambda (b - m)/(b - a) (Vose 2008, ch. 9). */
@@ -97,7 +108,7 @@ export function triangularDirect(a: number, c: number, b: number): DirectLaw {
   const left = c - a;
   const right = b - c;
   const scale = Math.max(Math.abs(a), Math.abs(b), Math.abs(c));
-  return law(
+  return withMode(c, law(
     "closed-form",
     [a, b],
     (a + b + c) / 3,
@@ -121,7 +132,7 @@ export function triangularDirect(a: number, c: number, b: number): DirectLaw {
     },
     (p) => (p * w <= left ? a + Math.sqrt(p * w * left) : b - Math.sqrt((1 - p) * w * right)),
     "triangular cdf in closed form",
-  );
+  ));
 }
 
 /** Standard normal lower tail Phi(t) = erfc(-t/sqrt 2)/2 (A&S 7.1.2, 26.2.29). */
@@ -187,7 +198,7 @@ export function truncatedNormalDirect(mu: number, sigma: number, lower?: number,
   const dAbs = (x: number) => (2 * EPS * (Math.abs(x) + Math.abs(mu))) / sigma;
   // the rounding of a finite end's standardised value (end - mu)/sigma
   const dEnd = (end: number) => dAbs(end) + EPS * Math.abs((end - mu) / sigma);
-  return law(
+  return withMode(center, law(
     "special-function",
     [lo, hi],
     center,
@@ -263,5 +274,5 @@ export function truncatedNormalDirect(mu: number, sigma: number, lower?: number,
       return Math.min(Math.max(x, lo), hi);
     },
     "truncated normal cdf by differences of erfc (stdlib)",
-  );
+  ));
 }

@@ -165,7 +165,8 @@ export function weibullDirect(shape: number, scale: number): DirectLaw {
 
 export function uniformDirect(a: number, b: number): DirectLaw {
   const w = b - a;
-  return law(
+  // the density is flat on [a, b]: any point of it is a mode
+  return withMode(a, law(
     "closed-form",
     [a, b],
     0.5 * (a + b),
@@ -178,7 +179,7 @@ export function uniformDirect(a: number, b: number): DirectLaw {
       bounds(o, ELEM, ELEM, dx);
     },
     (p) => (p <= 0.5 ? a + p * w : b - (1 - p) * w),
-  );
+  ));
 }
 
 export function cauchyDirect(loc: number, scale: number): DirectLaw {

@@ -4,7 +4,7 @@ import gammaincinv from "@stdlib/math-base-special-gammaincinv";
 import { lgamma, lgammaErr } from "../families/special";
 import { incGammaBounded, incGammaShape, type IncGamma } from "../families/incgamma-bounded";
 import type { DirectLaw } from "./types";
-import { bounds, ELEM, EPS, law, logErfcxSlope, withExcess } from "./law";
+import { bounds, ELEM, EPS, law, logErfcxSlope, withExcess, withMode } from "./law";
 
 /**
  * Direct laws of the claim-size families with closed-form or special-function distribution functions: lomax,
@@ -106,7 +106,7 @@ export function lomaxDirect(alpha: number, theta: number): DirectLaw {
  * (Loss Models app. A.2.2.2); log-logistic is alpha = 1 (app. A.2.2.4). q_p = theta ((1 - p)^(-1/alpha) - 1)^(1/gamma).
  */
 export function burrDirect(alpha: number, gamma: number, theta: number, name = "burr XII"): DirectLaw {
-  return law(
+  return withMode(gamma > 1 ? theta * Math.pow((gamma - 1) / (alpha * gamma + 1), 1 / gamma) : 0, law(
     "closed-form",
     [0, Infinity],
     theta * Math.exp(Math.log(Math.expm1(Math.LN2 / alpha)) / gamma),
@@ -133,7 +133,7 @@ export function burrDirect(alpha: number, gamma: number, theta: number, name = "
     },
     (p) => theta * Math.exp(Math.log(Math.expm1(-Math.log1p(-p) / alpha)) / gamma),
     `${name} S = (1 + (x/theta)^gamma)^-alpha by log1p and expm1`,
-  );
+  ));
 }
 
 /**
@@ -146,7 +146,7 @@ export function inverseGammaDirect(alpha: number, theta: number): DirectLaw {
   const ig = incGammaShape(alpha);
   const r: IncGamma = { p: 0, q: 0, pErr: 0, qErr: 0 };
   const u = EPS / 2;
-  return law(
+  return withMode(theta / (alpha + 1), law(
     "special-function",
     [0, Infinity],
     alpha > 1 ? theta / (alpha - 1) : theta / Math.max(alpha, 0.1),
@@ -177,7 +177,7 @@ export function inverseGammaDirect(alpha: number, theta: number): DirectLaw {
     },
     (p) => theta / (p < 0.5 ? gammaincinv(p, alpha, true) : gammaincinv(1 - p, alpha, false)),
     "inverse gamma cdf by the regularised incomplete gamma function of theta/x (series and continued fraction with derived bounds)",
-  );
+  ));
 }
 
 /**
@@ -216,7 +216,7 @@ export function inverseGaussianUpper(a: number, ea: number) {
 
 export function inverseGaussianDirect(mu: number, lambda: number): DirectLaw {
   const SQ2PI = Math.sqrt(2 * Math.PI);
-  return law(
+  return withMode(mu * (Math.sqrt(1 + (9 * mu * mu) / (4 * lambda * lambda)) - (3 * mu) / (2 * lambda)), law(
     "special-function",
     [0, Infinity],
     mu,
@@ -251,5 +251,5 @@ export function inverseGaussianDirect(mu: number, lambda: number): DirectLaw {
     },
     undefined,
     "inverse Gaussian cdf by erfc and the scaled erfcx (stdlib)",
-  );
+  ));
 }
