@@ -3,10 +3,11 @@ import { carryScaleKernels, carryShiftKernels, carrySumKernels } from "./kernel-
 import type { Node, NodeKind } from "./node";
 import { repeatKind, scaleKind, shiftKind, sumKinds } from "./kinds";
 import { convolveTables, powerTable } from "./lattice";
-import type { LatticeTable, TailTerm } from "./types";
+import type { CompiledModel, LatticeTable, TailTerm } from "./types";
 import { affineDirect } from "./direct/affine";
 import { collectNotes, carryApproximation, combineScales, addCumulants, completeAtoms, beyondWindow } from "./operators-shared";
-import { withCumulantErrors } from "./cumulant-bounds";
+import { cumulantEst, withCumulantErrors } from "./cumulant-bounds";
+import { stopLossBounds, type StopLossBounds } from "./invert/tail-moments";
 import { repeatE, scaleE, shiftE, sumE } from "./cumulant-ops";
 
 export { compoundNode, pgfAt } from "./compound";
@@ -45,8 +46,19 @@ function heaviestTerm(cs: Node[]): TailTerm | null {
   const indices = [...restIndices, a + 2, ...restIndices.filter((b) => b < 3).map((b) => a + b - 1)];
   const dm = D.momentIndex > 1 ? D.cumulants(1)[0] : null;
   const images = imageTerms(cs, best, shift, dm);
+  // D's stop-loss bounds from its moments, formed at the first use; G = D + shift moves u by the shift, rounded by at most
+  // dv: the upper transform falls and the lower one rises in u, so each is taken dv towards the body
+  let sl: StopLossBounds | null | undefined;
+  const restBound = (u: number, side: 1 | -1): number => {
+    if (sl === undefined) sl = D.momentIndex > 2 ? stopLossBounds(nodeMoments(D)) : null;
+    if (!sl) return Infinity;
+    const v = u - shift;
+    const dv = Number.EPSILON * (Math.abs(u) + Math.abs(shift));
+    return side === 1 ? sl.right(v - dv) : sl.left(v + dv);
+  };
   return {
     ...(images ? { images } : {}),
+    rest: restBound,
     logCf: (t, re, im) => D.logCf(t, re, im),
     direct: shift === 0 ? D.direct : affineDirect(D.direct, 1, shift),
     shift,
@@ -56,6 +68,17 @@ function heaviestTerm(cs: Node[]): TailTerm | null {
     indices,
     cfAbsError: (D.cfAbsError ?? 0) + (D.cfRelError ?? 0),
   };
+}
+
+/** What stopLossBounds reads of a model, from a node: its moment index, cumulants with their bounds, and support. */
+function nodeMoments(D: Node): CompiledModel {
+  const view: Pick<CompiledModel, "momentIndex" | "cumulants" | "cumulantErrors" | "support"> = {
+    momentIndex: D.momentIndex,
+    cumulants: (n) => D.cumulants(n),
+    cumulantErrors: (n) => cumulantEst(D, Math.max(0, Math.min(Math.floor(n), 64))).map((v) => (v === null ? null : v.e)),
+    support: D.support,
+  };
+  return view as CompiledModel;
 }
 
 /**

@@ -128,6 +128,11 @@ export interface TailTerm {
   /** bound on the absolute error of D's CF values */
   cfAbsError: number;
   /**
+   * optional: derived bounds on G's stop-loss transforms E[(G - u)^+] (side 1) and E[(u - G)^+] (side -1) from D's moments
+   * (invert/tail-moments.ts), Infinity where none; the part of G's ES integral past its last node (direct/shortfall.ts)
+   */
+  rest?(u: number, side: 1 | -1): number;
+  /**
    * Two or more terms with power tails and direct laws (D first, then the next heaviest): the images the pointwise sums
    * take out of every term's law G_i = D_i + E[X - D_i] (./invert/images.ts). What is left then has power terms
    * `indices`: the other terms' indices b, a_i + 2 per term, and a_i + b - 1 for every other term's index b < 3

@@ -134,6 +134,8 @@ function tailBracket(law: DirectLaw, q: number, dir: 1 | -1, rest: RestBound | u
     if (a < mL && b > mL) b = mL;
     else if (a < mH && b > mH) b = mH;
     if (b >= D) b = D;
+    // a slow tail without a bound on what is left walks out until the steps overflow: nothing more to gain
+    if (!Number.isFinite(b)) break;
     const wd = b - a;
     law.at(q + dir * b, pt);
     const g = lower ? pt.cdf : pt.sf;
@@ -186,6 +188,7 @@ function tailBracket(law: DirectLaw, q: number, dir: 1 | -1, rest: RestBound | u
   if (past === Infinity && Number.isFinite(D)) past = (D - a) * Math.min(gA + eA, 1);
   else if (past === Infinity) past = restAt(law, rest, q + dir * a, dir);
   hi += past;
+  if (!(hi >= lo)) return { lo: 0, hi: Infinity };
   // each panel's few roundings, relative to the sum of their sizes
   return { lo: lo * (1 - 16 * Number.EPSILON), hi: hi * (1 + 16 * Number.EPSILON) };
 }
