@@ -128,6 +128,7 @@ function tailBracket(law: DirectLaw, q: number, dir: 1 | -1, rest: RestBound | u
   let lo = 0;
   let hi = 0;
   let past = Infinity;
+  let slack = 0;
   for (let n = 0; n < ES_PANELS; n++) {
     let b = a + step;
     // a node at each side of the mode, and at the support's end
@@ -144,8 +145,15 @@ function tailBracket(law: DirectLaw, q: number, dir: 1 | -1, rest: RestBound | u
     const ef = pt.pdfErr;
     const aLo = Math.max(gA - eA, 0);
     const aHi = Math.min(gA + eA, 1);
-    const bLo = Math.max(g - eg, 0);
+    // at a finite end G is 0 exactly (where the node, rounded, may fall just short of it)
+    const atEnd = b >= D;
+    const bLo = atEnd ? 0 : Math.max(g - eg, 0);
     const bHi = Math.min(g + eg, 1);
+    // the nodes q + dir d are formed within u (|q| + d): G there is off by the mass so close, taken as twice the density
+    // at the node times that distance (a density changing by a factor 2 within 1e-16 relative is met only at a
+    // singular point, where a node has no reason to fall), the whole panel's width where the density is infinite
+    const fEnd = (fx: number, ex: number, d: number) => (Number.isFinite(fx + ex) ? 2 * (fx + ex) * Number.EPSILON * (Math.abs(q) + d) : 1);
+    slack += wd * (fEnd(fA, efA, a) + (atEnd ? 0 : fEnd(f, ef, b)));
     // monotone: between the right and left Riemann sums
     let pLo = wd * bLo;
     let pHi = wd * aHi;
@@ -187,7 +195,8 @@ function tailBracket(law: DirectLaw, q: number, dir: 1 | -1, rest: RestBound | u
   }
   if (past === Infinity && Number.isFinite(D)) past = (D - a) * Math.min(gA + eA, 1);
   else if (past === Infinity) past = restAt(law, rest, q + dir * a, dir);
-  hi += past;
+  hi += past + slack;
+  lo -= slack;
   if (!(hi >= lo)) return { lo: 0, hi: Infinity };
   // each panel's few roundings, relative to the sum of their sizes
   return { lo: lo * (1 - 16 * Number.EPSILON), hi: hi * (1 + 16 * Number.EPSILON) };
