@@ -1,5 +1,6 @@
 import type { CompiledModel } from "../types";
 import { stopLossBounds } from "../invert/tail-moments";
+import { checkDeadline } from "../deadline";
 import { directPoint, type DirectLaw, type DirectPoint } from "./types";
 
 // Expected shortfall of a directly evaluated law, with a derived bound on its tail integral.
@@ -130,6 +131,8 @@ function tailBracket(law: DirectLaw, q: number, dir: 1 | -1, rest: RestBound | u
   let past = Infinity;
   let slack = 0;
   for (let n = 0; n < ES_PANELS; n++) {
+    // up to 20 000 evaluations of a law that may take tens of microseconds each (stable, VG, NIG)
+    if ((n & 255) === 255) checkDeadline("direct shortfall bracket");
     let b = a + step;
     // a node at each side of the mode, and at the support's end
     if (a < mL && b > mL) b = mL;
