@@ -20,7 +20,8 @@ export function momentRest(model: CompiledModel): RestBound | undefined {
 /**
  * Expected shortfall ES_p = q + E[(X - q)^+]/(1 - p) (Acerbi & Tasche 2002). Above the median
  * E[(X - q)^+] = int_q^inf S(y) dy; below it, where that integral would be most of the mean and ES a small difference,
- * E[(X - q)^+] = (mean - q) + int_-inf^q F(y) dy. The value: the tail integral as a trapezoid sum in t with y = q +- s e^t
+ * E[(X - q)^+] = (mean - q) + int_-inf^q F(y) dy. A law with its own stop-loss transform at q (DirectLaw.stopLoss) gives the
+ * tail integral and its bound. Else the value: the tail integral as a trapezoid sum in t with y = q +- s e^t
  * (s the law's spread; towards a finite end D e^t / (1 + e^t)), the part within s e^t0 of q as half its largest size.
  * Its error: the distance to the farther end of a derived bracket on the same integral (tailBracket), never an estimate.
  * A law without a finite mean (index <= 1) has no ES: NaN.
@@ -43,12 +44,15 @@ export function directShortfall(
   const h = 0.25;
   const pt = directPoint();
   const tailOf = (o: DirectPoint) => (lower ? o.cdf : o.sf);
-  let A = 0;
+  // a law with its own stop-loss transform at q answers the tail integral from it, value and bound
+  const own = law.stopLoss?.(q, dir);
+  const closed = own && Number.isFinite(own.v) && Number.isFinite(own.e) ? own : null;
+  let A = closed ? closed.v : 0;
   const t0 = -32;
   const end = lower ? law.support[0] : law.support[1];
   const D = Math.abs(end - q);
   const finite = Number.isFinite(end);
-  for (let t = t0; t < 400; t += h) {
+  for (let t = t0; !closed && t < 400; t += h) {
     let d: number;
     let jac: number;
     if (finite) {
@@ -71,10 +75,9 @@ export function directShortfall(
     }
   }
   law.at(q, pt);
-  A += ((finite ? D : s) * Math.exp(t0) * tailOf(pt)) / 2;
+  if (!closed) A += ((finite ? D : s) * Math.exp(t0) * tailOf(pt)) / 2;
   const fq = pt.pdf + pt.pdfErr;
-  const own = law.stopLoss?.(q, dir);
-  const br = own && Number.isFinite(own.e) ? { lo: own.v - own.e, hi: own.v + own.e } : tailBracket(law, q, dir, rest, pt);
+  const br = closed ? { lo: closed.v - closed.e, hi: closed.v + closed.e } : tailBracket(law, q, dir, rest, pt);
   const w = 1 - p;
   const excess = lower ? mean - q + A : A;
   const value = q + excess / w;
