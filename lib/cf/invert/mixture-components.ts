@@ -7,7 +7,7 @@ import { directShortfall, momentRest, type RestBound } from "../direct/shortfall
 import { DAMPED_BUDGET, KERNEL_BUDGET, dampable, dampedAt, dampedPlan, dampedSetup, type DampedSolution } from "./damped";
 import { invertWithinTerms } from "./continuous";
 import { atomMass, solutionAt } from "./shared";
-import { dampedExcess } from "./quantile-damped";
+import { dampedExcess, lightTailTarget } from "./quantile-damped";
 import { lawShape } from "./range";
 import { evalLadder, growLadder, heavyLadder } from "./heavy";
 import { richardsonAmplification } from "./richardson";
@@ -334,7 +334,7 @@ export function components(leaves: { w: number; m: CompiledModel }[], tol: numbe
     checkDeadline("mixture-components");
     if (m.direct) out.push(directComponent(w, m));
     else {
-      const own = asked || Number.isFinite(m.tails.right) ? tol : Math.min(tol, Math.max(1e-6 * tail, 1e-14));
+      const own = asked ? tol : lightTailTarget(m, tol, tail);
       const c = (dampable(m) ? dampedComponent(w, m, firstRange(m, tail), own, tol / (4 * leaves.length)) : null) ?? lightComponent(w, m, tol) ?? heavyComponent(w, m, tol, lowTail);
       if (!c) return null;
       out.push(c);

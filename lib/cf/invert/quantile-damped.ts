@@ -8,6 +8,14 @@ import { truncationAtY, truncationSup } from "./damped-slope";
 
 /** default cdf target of the quantile search (the request's tolerance when given) */
 const QUANTILE_TOLERANCE = 1e-10;
+
+/**
+ * The default cdf target for levels down to `tail` in the upper tail: a level far in a light tail needs the sf to a
+ * relative accuracy, so the target shrinks with the tail asked (1e-6 of it, at least 1e-14); a power tail keeps tol.
+ */
+export function lightTailTarget(model: CompiledModel, tol: number, tail: number): number {
+  return Number.isFinite(model.tails.right) ? tol : Math.min(tol, Math.max(1e-6 * tail, 1e-14));
+}
 /** growth of the range between the loose probes (the last one is trimmed by bisection before the final inversion) */
 const GROWTH = 2;
 /**
@@ -40,8 +48,7 @@ export function dampedQuantiles(model: CompiledModel, atoms: Atom[], p: Float64A
   let tail = 0.5;
   for (let i = 0; i < p.length; i++) if (p[i] > 0 && p[i] < 1) tail = Math.min(tail, 1 - p[i]);
   const spread = sd ?? model.scale;
-  // a level far in a light tail needs the sf to a relative accuracy: the default target shrinks with the tail asked
-  const tol = o.tolerance ?? (Number.isFinite(model.tails.right) ? QUANTILE_TOLERANCE : Math.min(QUANTILE_TOLERANCE, Math.max(1e-6 * tail, 1e-14)));
+  const tol = o.tolerance ?? lightTailTarget(model, QUANTILE_TOLERANCE, tail);
   let R = mean !== null && sd !== null && Number.isFinite(mean) ? mean + 6 * sd : model.location + 6 * model.scale;
   if (Number.isFinite(model.tails.right)) R = Math.max(R, lo + (model.location - lo + model.scale) * Math.pow(2 / tail, 1 / Math.max(model.tails.right, 0.1)));
   // a heavy tail puts mean + 6 sd far past the levels asked (Poisson(1)-lognormal(0, 2.5) at 0.95: 3 131 against 140),
