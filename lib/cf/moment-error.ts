@@ -37,7 +37,7 @@ export const finite = (a: Est) => Number.isFinite(a.v) && Number.isFinite(a.e);
 const bad = (v: number): Est => ({ v, e: Infinity });
 
 /** TwoSum (Knuth): s + err = a + b exactly when no overflow. */
-function twoSumErr(a: number, b: number, s: number): number {
+export function twoSumErr(a: number, b: number, s: number): number {
   const bb = s - a;
   return a - (s - bb) + (b - bb);
 }
@@ -47,7 +47,7 @@ const BIG = 2 ** 995;
 const SMALL = 2 ** -900;
 
 /** Dekker's TwoProduct: p + err = a b exactly when neither splitting overflows nor the product underflows. */
-function twoProdErr(a: number, b: number, p: number): number | null {
+export function twoProdErr(a: number, b: number, p: number): number | null {
   const aa = Math.abs(a);
   const ab = Math.abs(b);
   if (aa > BIG || ab > BIG || (p !== 0 && Math.abs(p) < SMALL) || (p === 0 && a !== 0 && b !== 0)) return null;

@@ -4,6 +4,7 @@ import { MAX_LATTICE } from "../limits";
 import { CfError } from "../errors";
 import { bulkWindow, lawShape } from "./range";
 import { markovTail, momentBounds } from "./moment-tails";
+import { twoProdErr, twoSumErr } from "../moment-error";
 
 const EPS = Number.EPSILON;
 /** a table grows past the tolerance, until its rounding dominates the aliasing bound, only while below this size */
@@ -185,23 +186,16 @@ function latticeByFft(model: CompiledModel, origin: number, step: number, k0: nu
 
 /**
  * x = fl(origin + fl(k step)) and a bound on |x - (origin + k step)|: the product's and the sum's rounding errors found
- * exactly (Dekker's TwoProduct by Veltkamp splitting, Knuth's TwoSum; Higham, Accuracy and Stability of Numerical
- * Algorithms, 2nd ed., sec. 4.3), their sum taken with one more rounding; Infinity where the splitting overflows.
+ * exactly (Dekker's TwoProduct and Knuth's TwoSum, ../moment-error.ts; Higham, Accuracy and Stability of Numerical
+ * Algorithms, 2nd ed., sec. 4.3), their sum taken with one more rounding; Infinity where TwoProduct does not apply
+ * (a splitting overflows or the product underflows).
  */
 function latticePoint(origin: number, k: number, step: number): { x: number; off: number } {
-  const split = (a: number) => {
-    const c = 134217729 * a;
-    const hi = c - (c - a);
-    return [hi, a - hi];
-  };
   const p = k * step;
-  const [kh, kl] = split(k);
-  const [sh, sl] = split(step);
-  const ep = kh * sh - p + kh * sl + kl * sh + kl * sl;
   const x = origin + p;
-  const bb = x - origin;
-  const es = origin - (x - bb) + (p - bb);
-  const off = (Math.abs(ep) + Math.abs(es)) * (1 + Number.EPSILON);
+  const ep = twoProdErr(k, step, p);
+  if (ep === null) return { x, off: Infinity };
+  const off = (Math.abs(ep) + Math.abs(twoSumErr(origin, p, x))) * (1 + Number.EPSILON);
   return { x, off: Number.isFinite(off) ? off : Infinity };
 }
 
