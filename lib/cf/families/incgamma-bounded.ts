@@ -19,7 +19,7 @@
  * Rounding: u = 2^-53 per operation, Math.log/log1p/exp within one ulp (2u relative), the errors of each step carried
  * to first order with a 1% margin.
  */
-import { lgamma, lgammaErr } from "./special";
+import { lgamma, lgammaErr, STIRLING } from "./special";
 
 const U = Number.EPSILON / 2;
 /**
@@ -27,11 +27,10 @@ const U = Number.EPSILON / 2;
  * above 2^-1020 no step of it was subnormal (e^L alone is at least e^-700 where it is formed)
  */
 const tiny = (v: number) => (v < 2 ** -1020 ? 8 * Number.MIN_VALUE : 0);
-const HALF_LOG_2PI = 0.9189385332046728;
-// Stirling's remainder mu(a) = sum_k B_2k / (2k (2k-1) a^(2k-1)), k = 1..8, and the size of the first omitted term's
-// coefficient (B_18 / (18 * 17) = 43867/244188)
-const MU = [1 / 12, -1 / 360, 1 / 1260, -1 / 1680, 1 / 1188, -691 / 360360, 1 / 156, -3617 / 122400];
-const MU_NEXT = 43867 / 244188;
+// Stirling's remainder mu(a) = sum_k B_2k / (2k (2k-1) a^(2k-1)), k = 1..8 (./special.ts's coefficients), and the size
+// of the first omitted term's coefficient (B_18 / (18 * 17) = 43867/244188, with room for its rounding)
+const MU = STIRLING.slice(0, 8);
+const MU_NEXT = Math.abs(STIRLING[8]) * (1 + 4 * U);
 
 export interface IncGamma {
   p: number;

@@ -30,8 +30,8 @@ export function bernoulliNumbers(n: number): number[] {
 }
 
 const B = bernoulliNumbers(30);
-// Stirling series coefficients B_{2k} / (2k (2k-1)), k = 1..10 (Abramowitz & Stegun 6.1.40)
-const STIRLING = Array.from({ length: 10 }, (_, i) => B[2 * i + 2] / ((2 * i + 2) * (2 * i + 1)));
+// Stirling series coefficients B_{2k} / (2k (2k-1)), k = 1..10 (Abramowitz & Stegun 6.1.40), each within 2u relative
+export const STIRLING = Array.from({ length: 10 }, (_, i) => B[2 * i + 2] / ((2 * i + 2) * (2 * i + 1)));
 const HALF_LOG_2PI = 0.9189385332046728;
 
 /** log Gamma(x) for x > 0: Stirling series (A&S 6.1.40) after shifting x up to >= 16 (A&S 6.1.15). */
