@@ -1,6 +1,7 @@
 // Expected shortfall of directly evaluated laws (lib/cf/direct/answer.ts directShortfall) against closed forms evaluated
-// with reference libraries: the value within 1e-7 relative, its derived bound never below the actual error (the
-// references' own rounding, stated as REF, added), and the bound within 1e-5 relative (a bound that has grown loose fails).
+// with reference libraries and, for the power tails, mpmath values (tests/fixtures/power-shortfall): the value within
+// 1e-7 relative, its derived bound never below the actual error (the references' own rounding, stated as REF, added), and
+// the bound within 1e-5 relative (a bound that has grown loose fails).
 import { describe, it } from "vitest";
 import erfcRef from "@stdlib/math-base-special-erfc";
 import gammainc from "@stdlib/math-base-special-gammainc";
@@ -8,6 +9,7 @@ import gammaincinv from "@stdlib/math-base-special-gammaincinv";
 import betainc from "@stdlib/math-base-special-betainc";
 import gammaFn from "@stdlib/math-base-special-gamma";
 import normalQuantile from "@stdlib/stats-base-dists-normal-quantile";
+import { readFileSync } from "node:fs";
 import jStat from "jstat";
 import { compile } from "@/lib/cf/compile";
 import { quantiles } from "@/lib/cf/invert/quantile";
@@ -26,11 +28,26 @@ function zOf(p: number): number {
   return p <= 0.5 ? z0 - (0.5 * erfcRef(-z0 / Math.SQRT2) - p) / phi(z0) : z0 + (0.5 * erfcRef(z0 / Math.SQRT2) - (1 - p)) / phi(z0);
 }
 
+const POWER = JSON.parse(readFileSync(new URL("../fixtures/power-shortfall/power-shortfall.json", import.meta.url), "utf8")) as {
+  laws: Record<string, { p: string; es: string; rel_diff: number }[]>;
+};
+/** ES_p of a power-tailed law from the mpmath fixture, at the test's levels (each level must be in the fixture) */
+function fixtureEs(label: string): (p: number) => number {
+  const rows = POWER.laws[label];
+  return (p) => {
+    const row = rows.find((r) => Number(r.p) === p);
+    if (!row || !(row.rel_diff < 1e-20)) throw new Error(`no cross-checked fixture value for ${label} at p = ${p}`);
+    return Number(row.es);
+  };
+}
+
 interface Case {
   label: string;
   model: Model;
   /** ES_p from its closed form */
   es(p: number): number;
+  /** the reference's relative rounding when it is not REF (a fixture value parsed to a double: half an ulp) */
+  refRel?: number;
 }
 
 const CASES: Case[] = [
@@ -74,29 +91,15 @@ const CASES: Case[] = [
   // lognormal(mu, sigma): ES = e^{mu + sigma^2/2} Phi(sigma - z_p)/(1 - p) (common practice: E[X 1{X > q}] by completing
   // the square), Phi(sigma - z) = erfc((z - sigma)/sqrt 2)/2 by @stdlib erfc
   { label: "lognormal(0.5, 0.8)", model: { family: "lognormal", mu: 0.5, sigma: 0.8 } as Model, es: (p) => (Math.exp(0.5 + 0.32) * 0.5 * erfcRef((zOf(p) - 0.8) / Math.SQRT2)) / (1 - p) },
-  // power tails, ES = q_p + e(q_p) with the mean excess e (Embrechts, Klueppelberg & Mikosch, Modelling Extremal Events,
-  // Table 3.4.7 and Theorem 3.4.13(e); recalled) and q_p from S = 1 - p in closed form
-  {
-    label: "pareto(2.5, 1.5)",
-    model: { family: "pareto", alpha: 2.5, xm: 1.5 } as Model,
-    es: (p) => (2.5 / 1.5) * 1.5 * Math.exp(-Math.log1p(-p) / 2.5),
-  },
-  {
-    label: "lomax(3, 2)",
-    model: { family: "lomax", alpha: 3, theta: 2 } as Model,
-    es: (p) => {
-      const q = 2 * Math.expm1(-Math.log1p(-p) / 3);
-      return q + (2 + q) / 2;
-    },
-  },
-  {
-    label: "generalized_pareto(0.3, 2, 1)",
-    model: { family: "generalized_pareto", xi: 0.3, sigma: 2, mu: 1 } as Model,
-    es: (p) => {
-      const q = 1 + (2 * Math.expm1(-0.3 * Math.log1p(-p))) / 0.3;
-      return q + (2 + 0.3 * (q - 1)) / 0.7;
-    },
-  },
+  // power tails: ES by mpmath at 40 digits (tests/fixtures/power-shortfall/generate.py: root of S plus the stop-loss
+  // integral of S, checked by the integral of the closed-form quantile; "rel_diff" in the fixture)
+  ...(
+    [
+      ["pareto(2.5, 1.5)", { family: "pareto", alpha: 2.5, xm: 1.5 }],
+      ["lomax(3, 2)", { family: "lomax", alpha: 3, theta: 2 }],
+      ["generalized_pareto(0.3, 2, 1)", { family: "generalized_pareto", xi: 0.3, sigma: 2, mu: 1 }],
+    ] as [string, Model][]
+  ).map(([label, model]) => ({ label, model, es: fixtureEs(label), refRel: 2 ** -53 })),
   // scaled and shifted: ES of a X + b is a ES_X + b for a > 0 (common practice)
   {
     label: "3 normal(1, 2) + 5",
@@ -116,7 +119,7 @@ describe("expected shortfall of direct laws: derived bounds against closed forms
       for (let i = 0; i < LEVELS.length; i++) {
         const p = LEVELS[i];
         const ref = cs.es(p);
-        const tol = REF * Math.abs(ref);
+        const tol = (cs.refRel ?? REF) * Math.abs(ref);
         c.rel(`ES(${p})`, es[i], ref, 1e-7);
         c.honest(`ES(${p})`, es[i], ref, err[i] + tol);
         c.that(`ES(${p}) bound`, err[i] <= 1e-5 * Math.max(Math.abs(ref), 1), `${err[i]} against |ES| ${ref}`);
