@@ -5,6 +5,7 @@ import { atomMass } from "./shared";
 import { solveLevels, type Evaluator } from "./solve-levels";
 import { aliasCdfAt } from "./damped-eval";
 import { truncationAtY, truncationSup } from "./damped-slope";
+import { dampedReach, startRange } from "./damped-reach";
 
 /** default cdf target of the quantile search (the request's tolerance when given) */
 const QUANTILE_TOLERANCE = 1e-10;
@@ -16,8 +17,6 @@ const QUANTILE_TOLERANCE = 1e-10;
 export function lightTailTarget(model: CompiledModel, tol: number, tail: number): number {
   return Number.isFinite(model.tails.right) ? tol : Math.min(tol, Math.max(1e-6 * tail, 1e-14));
 }
-/** growth of the range between the loose probes (the last one is trimmed by bisection before the final inversion) */
-const GROWTH = 2;
 /**
  * the range ends where S + bound (the loose probe's) is below REACH times the smallest tail level asked: then F(R) > p for
  * every level, so each lies inside [lo, R]; the final inversion's terms grow with R, and for a heavy tail the point where
@@ -25,11 +24,9 @@ const GROWTH = 2;
  */
 const REACH = 0.8;
 /**
- * points each solution is evaluated at (they weigh the two-claim term's cost against the terms it saves): a probe at R
- * and 12 bisection steps; the final solution 8 to 11 search steps a level (measured on Poisson-lognormal compounds,
- * sigma 1 to 2.5), the level's ES and bound
+ * points the final solution is evaluated at per level (they weigh the two-claim term's cost against the terms it saves):
+ * 8 to 11 search steps a level (measured on Poisson-lognormal compounds, sigma 1 to 2.5), the level's ES and bound
  */
-const PROBE_POINTS = 14;
 const POINTS_PER_LEVEL = 14;
 
 /**
@@ -49,60 +46,16 @@ export function dampedQuantiles(model: CompiledModel, atoms: Atom[], p: Float64A
   for (let i = 0; i < p.length; i++) if (p[i] > 0 && p[i] < 1) tail = Math.min(tail, 1 - p[i]);
   const spread = sd ?? model.scale;
   const tol = o.tolerance ?? lightTailTarget(model, QUANTILE_TOLERANCE, tail);
-  let R = mean !== null && sd !== null && Number.isFinite(mean) ? mean + 6 * sd : model.location + 6 * model.scale;
-  if (Number.isFinite(model.tails.right)) R = Math.max(R, lo + (model.location - lo + model.scale) * Math.pow(2 / tail, 1 / Math.max(model.tails.right, 0.1)));
-  // a heavy tail puts mean + 6 sd far past the levels asked (Poisson(1)-lognormal(0, 2.5) at 0.95: 3 131 against 140),
-  // and a loose probe's terms grow with its range: start no further than 8 times the mean (the probes then double it)
-  if (mean !== null && Number.isFinite(mean) && mean > lo) R = Math.min(R, lo + 8 * (mean - lo));
-  if (!(R > lo)) R = lo + Math.max(model.scale, 1e-300);
+  const R0 = startRange(model, tail);
   const Mc = Math.max(1 - atoms.reduce((s, a) => s + a.p, 0), 0);
   const split = (x: number) => atomMass(atoms, x);
-  // locate R with cheap loose inversions (growth GROWTH), then invert once at the tolerance
+  // locate R with cheap loose inversions, then invert once at the tolerance
   const loose = Math.max(tol, Math.min(1e-7, tail / 100));
   // kernels taken out (pareto, weibull severities): what is left decays fast, so a long range is worth its terms
   const budget = model.dampedKernels?.length || model.dampedSeverity ? KERNEL_BUDGET : DAMPED_BUDGET;
-  const sfBound = (s: DampedSolution, x: number) => {
-    const v = dampedAt(s, x, false, false);
-    return split(x).above + Mc - v.Fc + v.errF;
-  };
-  let prev = lo;
-  // a compound exceeds x whenever one claim does: S(x) >= P(N >= 1) S_X(x), with S_X from the one-claim term's closed form
-  // (less its bound), so no range where that is still above the smallest tail level can end the search: the doublings
-  // start past it (each loose inversion costs two probes of the transform; Poisson(0.1)-lognormal(0, 1.5) at 0.999 started
-  // at 8 E X = 2.5, some six doublings short of where it ends)
-  const sev = model.dampedSeverity;
-  if (sev && sev.count && sev.w > 0 && lo === 0) {
-    const pn = Math.max(1 - atoms.reduce((s, a) => s + (a.x === 0 ? a.p : 0), 0), 0);
-    const below = (x: number) => {
-      const v = sev.at(x, false, false);
-      return pn * (Math.max(sev.w - v.F - v.err, 0) / sev.w) * (1 - 8 * Number.EPSILON) > tail;
-    };
-    for (let it = 0; it < 60 && below(R); it++) {
-      prev = R;
-      R = lo + GROWTH * (R - lo);
-    }
-  }
-  let last: DampedSolution | null = null;
-  for (let it = 0; it < 40; it++) {
-    const probe = dampedSetup(model, atoms, R, { tolerance: loose, wantPdf: false, budget, pointwise: true, points: PROBE_POINTS, wantInt: false, transient: true, byParts: true });
-    if (!probe) return null;
-    last = probe;
-    if (sfBound(probe, R) < REACH * tail) {
-      // the last step overshoots by up to GROWTH times, and the final inversion's terms grow with the range: the smallest R
-      // past the previous one where the loose inversion still shows S + bound < REACH tail (bisection, 12 steps)
-      let a = prev;
-      let b = R;
-      for (let j = 0; j < 12 && b - a > 1e-3 * (b - lo); j++) {
-        const mid = 0.5 * (a + b);
-        if (sfBound(probe, mid) < REACH * tail) b = mid;
-        else a = mid;
-      }
-      R = b;
-      break;
-    }
-    prev = R;
-    R = lo + GROWTH * (R - lo);
-  }
+  const reach = dampedReach(model, atoms, R0, REACH * tail, loose, budget);
+  if (!reach) return null;
+  const { R, last } = reach;
   // a lower bound on every level's quantile (less lo), from the last loose inversion: x with F + bound < p for the lowest
   // level above the atom at lo lies left of its quantile. The plan keeps the bound within the target there as at R
   // (the truncation by parts falls away from lo, and a low level sits near it: Poisson(10)-lognormal(0, 2) at 0.001)
