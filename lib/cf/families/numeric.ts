@@ -210,7 +210,12 @@ export function pareto(alpha: number, xm: number): Node {
   // over j of h r_j (1 + i r_j)^{-alpha-1} exp(-tau r_j) goes to expSumArithmetic. Range: the part r < r_lo is below
   // alpha r_lo <= 1e-19; beyond r_hi, below alpha min(e^{-tau r_hi}/tau, r_hi^{-alpha}/alpha) <= 1e-19 at the
   // smallest tau.
-  const logCfArithmetic = (t: Float64Array, re: Float64Array, im: Float64Array) => {
+  // damped (beta > 0): at tau = xm (t + i beta) the same Laplace form holds while Re(tau r) >= 0 on the rule's strip
+  // |arg r| < pi/4, i.e. arg tau <= pi/4 (t >= beta), where |exp(-tau r)| <= 1 as at real tau: the same step and bound.
+  // exp(-tau r_j) = exp(-xm t r_j) exp(-i xm beta r_j), the second factor folded into the weights (its phase rounds within
+  // u xm beta r_j of a term of size exp(-xm t r_j) <= exp(-xm beta r_j): below u / e of |c_j|), and the prefactor
+  // e^{i tau} = e^{i xm t} e^{-xm beta}.
+  const logCfArithmetic = (t: Float64Array, re: Float64Array, im: Float64Array, beta = 0) => {
     const K = t.length;
     const tauMin = xm * t[0];
     const rLo = 1e-19 / alpha;
@@ -218,15 +223,15 @@ export function pareto(alpha: number, xm: number): Node {
     const v0 = Math.log(rLo);
     const m = Math.ceil((Math.log(rHi) - v0) / h) + 1;
     // extreme tail indices (range empty or too long): the rule per frequency
-    if (!(m >= 2 && m <= MAX_QUADRATURE_NODES)) return fromPhi(t, re, im, (x, out) => phiAt(x, 0, out));
+    if (!(m >= 2 && m <= MAX_QUADRATURE_NODES)) return fromPhi(t, re, im, (x, out) => phiAt(x, beta, out));
     const cRe = new Float64Array(m);
     const cIm = new Float64Array(m);
     const e = new Float64Array(m);
     for (let j = 0; j < m; j++) {
       const r = Math.exp(v0 + j * h);
-      // (1 + i r)^{-q} = (1 + r^2)^{-q/2} e^{-i q atan r}
+      // (1 + i r)^{-q} = (1 + r^2)^{-q/2} e^{-i q atan r}, times e^{-i xm beta r}
       const mag = h * r * Math.exp(-0.5 * q * Math.log1p(r * r));
-      const ph = -q * Math.atan(r);
+      const ph = -q * Math.atan(r) - xm * beta * r;
       cRe[j] = mag * Math.cos(ph);
       cIm[j] = mag * Math.sin(ph);
       e[j] = r;
@@ -235,7 +240,17 @@ export function pareto(alpha: number, xm: number): Node {
     const si = new Float64Array(K);
     expSumArithmetic(cRe, cIm, e, -xm, 0, t, sr, si);
     // times i alpha e^{i tau}
-    logFromSums(t, sr, si, re, im, Math.log(alpha), Math.PI / 2, xm);
+    logFromSums(t, sr, si, re, im, Math.log(alpha) - xm * beta, Math.PI / 2, xm);
+  };
+  const perFrequency = fromPhiDamped(phiAt);
+  // the damped route's equispaced frequencies: those below beta (and t <= 0) per frequency, the rest by the fixed nodes
+  const dampedLogCf = (beta: number, t: Float64Array, re: Float64Array, im: Float64Array) => {
+    let k0 = 0;
+    while (k0 < t.length && !(t[k0] > 0 && t[k0] >= beta)) k0++;
+    const tail = t.subarray(k0);
+    if (!(beta >= 0) || !arithmeticNodes(tail)) return perFrequency(beta, t, re, im);
+    if (k0 > 0) perFrequency(beta, t.subarray(0, k0), re.subarray(0, k0), im.subarray(0, k0));
+    logCfArithmetic(tail, re.subarray(k0), im.subarray(k0), beta);
   };
   // sum_j |c_j| ~ int_0^inf (1 + r^2)^{-q/2} dr = (sqrt(pi)/2) Gamma(alpha/2) / Gamma((alpha+1)/2) (DLMF 5.12.1 with
   // r^2 = s / (1 - s)), 1% added for the rule; times alpha for the prefactor, in logs (Gamma(alpha/2) ~ 2/alpha overflows
@@ -244,10 +259,11 @@ export function pareto(alpha: number, xm: number): Node {
   // Rounding (units of u, relative to each term): |1 + i u/tau|^2 and its log times q/2 (2 q + 4), the phase q atan2
   // (2 q pi/2), exp, cos, sin and the products (8); the prefactor and e^{i tau} (8, and the phase tau within u tau, which
   // |phi| <= alpha / tau turns into alpha u); then the sum of n terms, whose moduli times alpha / |tau| sum to at most
-  // aSum as the integral does (ruleRounding)
+  // aSum as the integral does (ruleRounding); the fixed nodes' shortcuts (expSumArithmetic: 80 eps and e/25! of aSum) and,
+  // damped, their folded phase (below u / e of each weight: one eps more)
   const cfError = Math.max(
     NUMERIC_CF_ABS_ERROR,
-    alpha * (1e-16 + 1e-18) + aSum * (2e-25 + 96 * Number.EPSILON) + ruleRounding(n, aSum, aSum * (16 + (2 + Math.PI) * q)) + alpha * Number.EPSILON,
+    alpha * (1e-16 + 1e-18) + aSum * (2e-25 + 97 * Number.EPSILON) + ruleRounding(n, aSum, aSum * (16 + (2 + Math.PI) * q)) + alpha * Number.EPSILON,
   );
   const raw = (m: number) => (alpha * xm ** m) / (alpha - m);
   return {
@@ -257,7 +273,7 @@ export function pareto(alpha: number, xm: number): Node {
     nodes: 1,
     notes: [`pareto CF computed by quadrature on a rotated contour (absolute error <= ${cfError.toPrecision(2)})`],
     cfAbsError: cfError,
-    dampedLogCf: fromPhiDamped(phiAt),
+    dampedLogCf,
     laplaceExpansion: paretoExpansion(alpha, xm),
     // density alpha xm^alpha x^(-alpha-1) on [xm, inf), sf (xm/x)^alpha (JKB vol. 1, ch. 20)
     severity: {
