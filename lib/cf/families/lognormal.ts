@@ -11,8 +11,9 @@ import { connectedGraphSums } from "./connected-graphs";
 /**
  * Lognormal(mu, sigma): phi(t) = int N(y; mu, sigma^2) exp(i t e^y) dy. For t > 0 the integrand is entire in y and the
  * path is moved to Im y = theta (Cauchy's theorem), where exp(i t e^{y+i theta}) decays; the trapezoidal rule then
- * converges geometrically (Trefethen & Weideman 2014, SIAM Review 56, recalled from memory). theta = min(pi/2, 2.5 sigma) bounds the
- * Gaussian's growth on the shifted path by e^{c^2/2}, c = theta/sigma; the step is set for an error below 1e-16.
+ * converges geometrically (Trefethen & Weideman 2014, SIAM Review 56(3), thm 5.1). theta = min(pi/2, 2.5 sigma) bounds the
+ * Gaussian's growth on the shifted path by e^{c^2/2}, c = theta/sigma; the step is set so that the rule's derived error
+ * (ruleError below) is near e^-40.
  */
 export function lognormal(mu: number, sigma: number): Node {
   const theta = Math.min(Math.PI / 2, 2.5 * sigma);
@@ -186,9 +187,9 @@ export function lognormal(mu: number, sigma: number): Node {
   for (let j = 0; j < n; j++) wSum += w[j];
   const shortcutError = wSum * g0 * (2e-25 + 80 * Number.EPSILON) + n * 1e-21;
   const rb = roundingBound(w, v, n, sigma, theta, c, shortcutError / g0);
-  const cfError = 1e-16 + rb.all * g0;
+  const cfError = ruleError(c, h, V, wSum, true) + rb.all * g0;
   // the per-frequency route alone (compensated sums, no recurrence): what a short run of frequencies is charged
-  const cfErrorSingle = 1e-16 + rb.single * g0;
+  const cfErrorSingle = ruleError(c, h, V, wSum, false) + rb.single * g0;
   // the rectangular batch (a compound's one-claim route) leaves out the first nodes, far left in the Gaussian: their
   // e^{mu + sigma v} is so small that they reach every frequency, yet each term is at most w_j e^{cc^2/2} <= w_j g0
   // (damp >= 0, the tabled powers at most 1), so leaving out nodes whose weights sum to DROP moves the value by at
@@ -215,8 +216,8 @@ export function lognormal(mu: number, sigma: number): Node {
     tails: { left: Infinity, right: Infinity },
     nodes: 1,
     notes: [`lognormal CF computed by quadrature on a shifted contour (absolute error <= ${cfError.toPrecision(2)})`],
-    // the step and range make the rule's own error below 1e-16; rounding of every route (roundingBound) and the
-    // shortcuts of the equispaced sums
+    // the rule's own error (ruleError: step, range and cut-off) plus the rounding of every route (roundingBound) and
+    // the shortcuts of the equispaced sums
     cfAbsError: cfError,
     dampedLogCf: damped,
     // compounds take the one-claim term out of their damped transform and add it back in closed form
@@ -259,6 +260,32 @@ function scratchTable(n: number, i: 0 | 1): Float64Array {
 const BLOCK = 256;
 /** runs of frequencies up to this length take the per-frequency route when their values' bound is returned */
 const SHORT_RUN = 512;
+
+/**
+ * The rule's own error, any route, frequency z = t + i beta (t, beta >= 0). In v the integrand on the path at angle th
+ * (= min(theta, pi/2 - psi), psi = arg z) is F(v) = phi(v + i cc) exp(i z e^mu e^{sigma (v + i cc)}), cc = th/sigma <= c,
+ * entire. At v = s + i b: |e^{-(v + i cc)^2/2}| = e^{-s^2/2 + (cc + b)^2/2}, and the second factor has modulus
+ * exp(-|z| e^{mu + sigma s} sin(psi + th + sigma b)) <= 1 while 0 <= psi + th + sigma b <= pi: for b up to
+ * a+ = c (psi + th + theta <= pi/2 + theta <= pi) with int |F(s + i b)| ds <= M+ = e^{(cc + c)^2/2} <= e^{2 c^2}, and for b
+ * down to -a- with psi + th >= sigma a-: a- = c where th = min(theta, pi/2 - psi) (then psi + th >= theta), 0.9 c in the
+ * damped batch, `batch` (its path angle th >= 0.9 theta is that of the block's first frequency, psi only smaller after it),
+ * with M- <= e^{max(cc, a- - cc)^2/2} <= e^{c^2/2}. The trapezoid sum's error is the aliased transform
+ * sum_{k != 0} F^(2 pi k / h) (Poisson summation), each half bounded by moving the path to Im v = +-a (Trefethen & Weideman
+ * 2014, SIAM Review 56(3), thm 5.1 and its proof, taken one half-strip at a time): M+ / (e^{2 pi a+ / h} - 1) +
+ * M- / (e^{2 pi a- / h} - 1). The sum stops at |v| <= V: the terms beyond (each at most h phi(v_j) e^{cc^2/2}, the
+ * modulus factor at most 1 on the path) sum to at most 2 e^{c^2/2} phi(V)/V (Mills' ratio, A&S 26.2.12); and the
+ * routes leave out terms whose decay e^{-damp} is below e^-45, together at most e^{c^2/2} e^-45 sum_j w_j. The few
+ * exp of this bound are taken within one ulp (the project's standing assumption), covered by the factor 1 + 16 eps.
+ */
+function ruleError(c: number, h: number, V: number, wSum: number, batch: boolean): number {
+  const g0 = Math.exp(0.5 * c * c);
+  const aliasUp = Math.exp(2 * c * c) / Math.expm1((2 * Math.PI * c) / h);
+  const aliasDown = g0 / Math.expm1((2 * Math.PI * (batch ? 0.9 : 1) * c) / h);
+  const beyond = (2 * g0 * Math.exp(-0.5 * V * V)) / (Math.sqrt(2 * Math.PI) * V);
+  // (the computed sum of the weights within n eps of itself, n < 2^16 nodes)
+  const cut = g0 * Math.exp(-45) * wSum * (1 + 65536 * Number.EPSILON);
+  return (aliasUp + aliasDown + beyond + cut) * (1 + 16 * Number.EPSILON);
+}
 
 /**
  * Rounding of the lognormal rule's sums, divided by e^{c^2/2}, over every route (per frequency, the damped batch, the
