@@ -1,4 +1,4 @@
-import erfc from "@stdlib/math-base-special-erfc";
+import { normalCdfBounded, type Bounded } from "./families/normal-bounded";
 import { lognormalPair, type PairValues } from "./lognormal-pair";
 
 /**
@@ -76,18 +76,15 @@ export interface SeverityKernel {
   };
 }
 
-/**
- * relative accuracy of Phi through @stdlib erfc (about 1 ulp, as in ./lognormal-pair.ts; 1e-13 leaves room for the
- * argument's rounding): a few times cheaper than normalCdf's incomplete gamma (./families/dist), and the one-claim term
- * is evaluated at every point a damped grid or point set asks for
- */
-const ACC = 1e-13;
-const normalCdf = (z: number) => 0.5 * erfc(-z / Math.SQRT2);
+const U = Number.EPSILON / 2;
 
 /**
  * Lognormal(mu, sigma) (JKB vol. 1, ch. 14): F = Phi(z), z = (log x - mu)/sigma; f = phi(z)/(x sigma);
  * int_0^x F = x F(x) - E[X; X <= x] = x Phi(z) - e^{mu + sigma^2/2} Phi(z - sigma) (the limited expected value,
- * Klugman, Panjer & Willmot, Loss Models, app. A). The density decreases beyond its mode e^{mu - sigma^2}.
+ * Klugman, Panjer & Willmot, Loss Models, app. A). The density decreases beyond its mode e^{mu - sigma^2}. Phi with its
+ * derived bound (./families/normal-bounded.ts); z's rounding (log within one ulp, the project's standing assumption; the
+ * difference and the division u each) is at most 2u |log x| / sigma + 2u |z| to first order, z - sigma adds u |z - sigma|,
+ * each moving Phi by phi times it.
  */
 export function lognormalKernel(
   w: number,
@@ -99,6 +96,10 @@ export function lognormalKernel(
   dampedCf?: (beta: number, t: Float64Array, re: Float64Array, im: Float64Array) => number,
 ): SeverityKernel {
   const m1 = Math.exp(mu + (sigma * sigma) / 2);
+  // m1's relative error: the exponent within u (sigma^2 + |mu + sigma^2/2|), exp one ulp
+  const m1Rel = 1.01 * (U * (sigma * sigma + Math.abs(mu + (sigma * sigma) / 2)) + 2 * U);
+  const pF: Bounded = { v: NaN, e: NaN };
+  const pF2: Bounded = { v: NaN, e: NaN };
   const mode = Math.exp(mu - sigma * sigma);
   const slopeOf = (t: number) => Math.min(m1, 2 / (sigma * Math.sqrt(2 * Math.PI) * t)) * (1 + 4 * Number.EPSILON);
   const pdf = (x: number) => (x > 0 ? Math.exp(-0.5 * ((Math.log(x) - mu) / sigma) ** 2) / (x * sigma * Math.sqrt(2 * Math.PI)) : 0);
@@ -135,19 +136,30 @@ export function lognormalKernel(
     cfAbsError,
     at(x) {
       if (!(x > 0)) return { F: 0, f: 0, I: 0, err: 0, errf: 0, errI: 0 };
-      const z = (Math.log(x) - mu) / sigma;
-      const F = normalCdf(z);
-      const F2 = normalCdf(z - sigma);
+      const lx = Math.log(x);
+      const z = (lx - mu) / sigma;
+      const dz = 1.01 * ((2 * U * Math.abs(lx)) / sigma + 2 * U * Math.abs(z));
+      const z2 = z - sigma;
+      const dz2 = dz + U * Math.abs(z2);
+      normalCdfBounded(z, pF);
+      normalCdfBounded(z2, pF2);
+      const F = pF.v;
+      const F2 = pF2.v;
+      const q = 1 / Math.sqrt(2 * Math.PI);
+      // Phi's own bound plus phi(z) times z's rounding (phi(z) <= its computed value times 1 + 8u)
+      const eF = pF.e + q * Math.exp(-0.5 * z * z) * dz * (1 + 8 * U);
+      const eF2 = pF2.e + q * Math.exp(-0.5 * z2 * z2) * dz2 * (1 + 8 * U);
       const f = pdf(x);
-      // int_0^x F: the difference of two terms of size x F and m1 F2, each to ACC relative
+      // int_0^x F: the difference of x F and m1 F2, each with its value's error, the products' and m1's rounding, the
+      // difference u
       const I = Math.max(x * F - m1 * F2, 0);
       return {
         F: w * F,
         f: w * f,
         I: w * I,
-        err: w * (ACC * F + 4 * Number.EPSILON),
+        err: w * eF * (1 + 2 * U) + U * w * F,
         errf: w * 16 * Number.EPSILON * (1 + Math.abs(z) * Math.abs(z)) * f,
-        errI: w * (ACC + 4 * Number.EPSILON) * (x * F + m1 * F2),
+        errI: w * (x * eF + m1 * eF2 + (4 * U + m1Rel) * (x * F + m1 * F2)) * (1 + 4 * U) + U * w * I,
       };
     },
     densityBeyond: (from) => w * pdf(Math.max(from, mode)),
