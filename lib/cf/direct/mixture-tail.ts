@@ -32,14 +32,37 @@ const EPS_T = 1e-18;
  * or nu = -1/2; DLMF 10.32.10). K is bounded in closed form (only the strip's M needs it, and a factor there moves the
  * step by a few per cent): K_nu(z) <= sqrt(pi/(2z)) e^{-z + nu^2/(2z)} (cosh u >= 1 + u^2/2 in DLMF 10.32.9) and
  * K_nu(z) <= Gamma(nu)/2 (2/z)^nu (drop e^{-z^2/(4s)} in DLMF 10.32.10 written in s = z^2/(4t)); K_{1/2} exactly.
+ * The value is raised by its rounding (roundedUp): log within one ulp (the project's standing assumption), so each term
+ * (a product of at most three rounded factors, a log of a rounded argument adding 2u plus the argument's relative error)
+ * is within 8u of its magnitude plus 8u absolute, and lgamma within lgammaErr (../families/special.ts).
  */
 function logKInt(nu: number, P: number, Q: number): number {
-  if (Q === 0) return lgamma(nu) - nu * Math.log(P) + 1e-12;
-  if (nu === -0.5) return 0.5 * Math.log(Math.PI / Q) - 2 * Math.sqrt(P * Q) + 1e-12;
+  if (Q === 0) {
+    const a = lgamma(nu);
+    const b = nu * Math.log(P);
+    return roundedUp(a - b, Math.abs(a) + Math.abs(b) + Math.abs(nu), lgammaErr(nu));
+  }
+  if (nu === -0.5) {
+    const a = 0.5 * Math.log(Math.PI / Q);
+    const b = 2 * Math.sqrt(P * Q);
+    return roundedUp(a - b, Math.abs(a) + b, 0);
+  }
   const z = 2 * Math.sqrt(P * Q);
-  const logK = Math.min(0.5 * Math.log(Math.PI / (2 * z)) - z + (nu * nu) / (2 * z), lgamma(nu) - Math.LN2 + nu * Math.log(2 / z));
-  return Math.LN2 + (nu / 2) * Math.log(Q / P) + logK + 1e-12;
+  const a1 = 0.5 * Math.log(Math.PI / (2 * z));
+  const a2 = (nu * nu) / (2 * z);
+  const lg = lgamma(nu);
+  const b1 = nu * Math.log(2 / z);
+  const A = a1 - z + a2;
+  const B = lg - Math.LN2 + b1;
+  // the smaller of two upper bounds: each raised by its own rounding (z's 3u relative moves them by 3u (z + a2 + 1/2)
+  // and 3u |nu|, inside the terms' 8u)
+  const logK = Math.min(roundedUp(A, Math.abs(a1) + z + a2, 0), roundedUp(B, Math.abs(lg) + Math.LN2 + Math.abs(b1) + Math.abs(nu), lgammaErr(nu)));
+  const c = (nu / 2) * Math.log(Q / P);
+  return roundedUp(Math.LN2 + c + logK, Math.LN2 + Math.abs(c) + Math.abs(logK) + Math.abs(nu), 0);
 }
+
+/** v raised past its rounding: 8u of the magnitude of its terms, 8u absolute and `extra` (a special function's bound) */
+const roundedUp = (v: number, mag: number, extra: number) => v + 8 * U * (mag + 1) + extra;
 
 const lse = (a: number, b: number) => (a === -Infinity ? b : b === -Infinity ? a : Math.max(a, b) + Math.log1p(Math.exp(-Math.abs(a - b))));
 
@@ -50,10 +73,14 @@ export function logStripBound(mix: Mixing, p: number, q: number, c: number): num
   const pq = p * q;
   if (mix.kind === "gamma") {
     const k = mix.k;
-    m1 = -Math.LN2 - lgamma(k) + pq + logKInt(k, c * (1 + (q * q) / 2), (c * p * p) / 2);
+    const lg = lgamma(k);
+    const lk = logKInt(k, c * (1 + (q * q) / 2), (c * p * p) / 2);
+    m1 = roundedUp(-Math.LN2 - lg + pq + lk, Math.LN2 + Math.abs(lg) + Math.abs(pq) + Math.abs(lk), lgammaErr(k));
   } else {
     const D = mix.D;
-    m1 = -Math.LN2 + 0.5 * Math.log(D / (2 * Math.PI)) + D + pq + logKInt(-0.5, (c * (D + q * q)) / 2, (c * (D + p * p)) / 2);
+    const ld = 0.5 * Math.log(D / (2 * Math.PI));
+    const lk = logKInt(-0.5, (c * (D + q * q)) / 2, (c * (D + p * p)) / 2);
+    m1 = roundedUp(-Math.LN2 + ld + D + pq + lk, Math.LN2 + Math.abs(ld) + D + Math.abs(pq) + Math.abs(lk), 0);
   }
   // the region w(t) < 0, i.e. p < q e^t: all t, t > t0 or t < t0 with e^{t0} = p/q
   const side = q > 0 ? (p <= 0 ? "all" : "right") : p >= 0 ? "none" : q === 0 ? "all" : "left";
@@ -65,18 +92,33 @@ export function logStripBound(mix: Mixing, p: number, q: number, c: number): num
       // x^{k-1} e^{-x} / (1 - (k-1)/x) (k > 1, x > k - 1), from t^{k-1} <= x^{k-1} e^{(k-1)(t-x)/x}; gamma(k, x) <= x^k / k
       const x = c * E0;
       const lx = Math.log(x);
-      const lf = side === "all" ? 0 : side === "left" ? k * lx - lgamma(k + 1) : k <= 1 ? (k - 1) * lx - x - lgamma(k) : x > 2 * (k - 1) ? (k - 1) * lx - x - lgamma(k) + Math.LN2 : 0;
-      m2 = Math.min(0, lf + 1e-12) - k * Math.log(c);
+      const lf =
+        side === "all"
+          ? 0
+          : side === "left"
+            ? roundedUp(k * lx - lgamma(k + 1), Math.abs(k * lx) + Math.abs(lgamma(k + 1)) + k, lgammaErr(k + 1))
+            : k <= 1 || x > 2 * (k - 1)
+              ? roundedUp((k - 1) * lx - x - lgamma(k) + (k <= 1 ? 0 : Math.LN2), Math.abs((k - 1) * lx) + x + Math.abs(lgamma(k)) + 1 + k, lgammaErr(k))
+              : 0;
+      const lck = k * Math.log(c);
+      m2 = roundedUp(Math.min(0, lf) - lck, Math.abs(lck), 0);
     } else {
       const D = mix.D;
       const all = D * (1 - c) - 0.5 * Math.log(c);
-      const lc = 0.5 * Math.log(D / (2 * Math.PI)) + D + Math.log(2 / (D * c));
+      const l1 = 0.5 * Math.log(D / (2 * Math.PI));
+      const l2 = Math.log(2 / (D * c));
+      const lc = l1 + D + l2;
       // t > t0: e^{-t/2} e^{-D c e^t / 2} integrated from E0 (dropping e^{-t}); t < t0 likewise in e^{-t}
       const half = side === "right" ? lc - 1.5 * Math.log(E0) - (D * c * E0) / 2 : side === "left" ? lc + 0.5 * Math.log(E0) - (D * c) / (2 * E0) : Infinity;
-      m2 = Math.min(all, half);
+      // each raised by its rounding (the magnitudes of its terms)
+      const magAll = 2 * D + 0.5 * Math.abs(Math.log(c));
+      const magHalf = Math.abs(l1) + D + Math.abs(l2) + (side === "right" ? 1.5 * Math.abs(Math.log(E0)) + (D * c * E0) / 2 : 0.5 * Math.abs(Math.log(E0)) + (D * c) / (2 * E0));
+      m2 = Math.min(roundedUp(all, magAll, 0), side === "all" ? Infinity : roundedUp(half, magHalf, 0));
     }
   }
-  return lse(m1, m2);
+  // the log-sum-exp: log1p and exp within one ulp, the sum u
+  const m = lse(m1, m2);
+  return roundedUp(m, Math.abs(m), 0);
 }
 
 /** log Qbar(w) by erfc, or erfcx beyond w = 1 (keeps it finite far out) */
