@@ -238,8 +238,9 @@ export function boundedCompound(N: Node, sev: SeverityLaw, h: number, K: number)
     : lost === 0
       ? nMean * mu * h * (1 + 4 * EPS_D * up.length)
       : sev.tailMean && Number.isFinite(sev.tailMean(0))
-        ? // X_up <= X + h: below the last point the rounded-up cells exactly, beyond it E[X; X > R] + h P(X > R)
-          nMean * (mu * h * (1 + 4 * EPS_D * up.length) + sev.tailMean((len0 - 1) * h) * (1 + 1e-9) + 1e-12 * sev.tailMean(0) + h * lost)
+        ? // X_up <= X + h: below the last point the rounded-up cells exactly, beyond it E[X; X > R] (tailMean: an upper
+          // bound) + h P(X > R)
+          nMean * (mu * h * (1 + 4 * EPS_D * up.length) + sev.tailMean((len0 - 1) * h) + h * lost) * (1 + 4 * EPS_D)
         : mean !== undefined && Number.isFinite(mean)
           ? nMean * (mean * (1 + 1e-11) + h)
           : null;

@@ -35,7 +35,7 @@ export interface SeverityLaw {
   mean?: number;
   /** claims never exceed this (a per-claim layer with a limit) */
   bound?: number;
-  /** E[X 1{X > x}] (quadrature, relative accuracy about 1e-12) */
+  /** an upper bound on E[X 1{X > x}] (derived; Infinity where none can be formed) */
   tailMean?(x: number): number;
 }
 

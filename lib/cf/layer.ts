@@ -119,13 +119,11 @@ export function layerNode(X: Node, terms: Partial<LayerTerms>): Node {
     cdfAccuracy: dist.accuracy,
     mean: mean ?? undefined,
     ...(l < Infinity ? { bound: c * l } : {}),
-    // E[Y 1{Y > y}] = c int_{u > y/c} u f(d + u) du (+ the atom at c l), on the base panels clipped at y/c
-    tailMean: (y) => {
-      const from = Math.max(y / c, u0);
-      const cutPanels = [from, ...base.filter((b) => b > from)];
-      const [v] = cutPanels.length > 1 ? restrictedIntegral(cutPanels, claimPdf, (u) => [u, 0], () => 4) : [0];
-      return c * v + (l < Infinity && y < c * l ? c * l * Sdl : 0);
-    },
+    // an upper bound on E[Y 1{Y > y}]: with W = (X - d)_+ and b = y/c < l, E[Y; Y > y] = c (E min(W, l) - E min(W, b)) +
+    // y P(X > d + b), the two limited means from the claim law's layer moments with their derived bounds, the sf taken
+    // at a point rounded down past the argument's rounding (sf decreases; d + b within 2u |d + b| for d >= 0) and
+    // raised by its accuracy; Infinity without the closed form
+    tailMean: (y) => tailMeanBound(dist, c, d, l, y),
   };
   // the claim density's partial transform int f(d + u) e^{i s u} du, built once (Filon-type, cost independent of s)
   let osc: OscillatoryIntegral | null = null;
@@ -206,4 +204,23 @@ function discreteLayer(X: Node, d: number, l: number, c: number): Node {
   } else throw new CfError("not_applicable", "/of", "A per-claim layer needs a claim law with a closed-form cdf, or a lattice or sample law.");
   const ys = Float64Array.from(xs, (x) => c * Math.min(Math.max(x - d, 0), l));
   return atomsNode(ys, Float64Array.from(ps));
+}
+
+/** an upper bound on E[Y 1{Y > y}], Y = c min((X - d)_+, l) (see the severity's tailMean above) */
+function tailMeanBound(dist: DirectLaw, c: number, d: number, l: number, y: number): number {
+  const U = Number.EPSILON / 2;
+  const b = y / c;
+  if (!(b < l)) return 0;
+  if (!dist.layerMoment || !(d >= 0)) return Infinity;
+  const ml = dist.layerMoment(1, d, l);
+  const mb = b > 0 ? dist.layerMoment(1, d, b) : { v: 0, e: 0 };
+  if (!(Number.isFinite(ml.e) && Number.isFinite(mb.e))) return Infinity;
+  let sf = 0;
+  if (b > 0) {
+    const x = d + b;
+    const s = dist.sf(x - 4 * U * x);
+    sf = s * (1 + 2 * dist.accuracy) + (s > 0.5 ? dist.accuracy : 0);
+  }
+  const diff = ml.v + ml.e - (mb.v - mb.e);
+  return Math.max(0, c * diff * (1 + 4 * U) + y * sf * (1 + 2 * U)) * (1 + 2 * U);
 }
