@@ -9,7 +9,7 @@ import {
 } from "../moment-error";
 import { connectedGraphSumsE } from "./connected-graphs";
 import { eulerianRow } from "./special";
-import { normalCdf } from "./dist";
+import { normalCdfBounded } from "./normal-bounded";
 
 const E0 = exact(0);
 const x = exact;
@@ -259,18 +259,18 @@ export const oneMinusP0E = {
 
 /**
  * truncated normal on [a, b]: the raw-moment recursion with Z = Phi(be) - Phi(al) and the end densities as the
- * family computes them; Phi carries the relative accuracy its module documents (`accuracy` of normalDist,
- * families/dist.ts) plus its slope (at most 1/sqrt(2 pi)) times the error of its rounded argument
+ * family computes them; Phi carries its derived bound (./normal-bounded.ts) plus its slope (at most 1/sqrt(2 pi)) times
+ * the error of its rounded argument
  */
-export function truncatedNormalE(mu: number, sigma: number, a: number, b: number, cdfAccuracy: number): (n: number) => EstList {
+export function truncatedNormalE(mu: number, sigma: number, a: number, b: number): (n: number) => EstList {
   const z = (t: number): Est | null => (Number.isFinite(t) ? div(sub(x(t), x(mu)), x(sigma)) : null);
   const al = z(a);
   const be = z(b);
   const PHI_SLOPE = 0.3989422804014328; // 1/sqrt(2 pi), rounded up
   const Phi = (t: Est | null, sign: number, inf: number): Est => {
     if (t === null) return x(inf);
-    const v = normalCdf(sign * t.v);
-    return { v, e: (cdfAccuracy * Math.abs(v) + PHI_SLOPE * t.e) * (1 + 2 ** -40) };
+    const b = normalCdfBounded(sign * t.v);
+    return { v: b.v, e: (b.e + PHI_SLOPE * t.e) * (1 + 2 ** -40) };
   };
   const upper = al !== null && al.v > 0;
   const Z = upper ? sub(Phi(al, -1, 0), Phi(be, -1, 0)) : sub(Phi(be, 1, 1), Phi(al, 1, 0));

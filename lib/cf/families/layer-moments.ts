@@ -4,14 +4,14 @@
  *   E Z^k = sum_{j=0}^k C(k, j) (-d)^{k-j} M_j(max(d, lo), d + l) + l^k S(d + l)
  * (the binomial expansion of (X - d)^k on d < X <= d + l, plus the atom at l; Klugman, Panjer & Willmot, Loss Models,
  * sec. 3.1 and 8.3, limited expected values). M_j is a difference of a normal or regularised incomplete gamma cdf
- * (lognormal, gamma, weibull; Loss Models app. A) or elementary (pareto). A normal cdf value carries the law's stated
- * accuracy (DirectLaw.accuracy: Phi as implemented, checked against scipy in tests/fixtures/reference-families), an
- * incomplete gamma value its derived bound (../invert/incgamma.ts); each plus the error of its argument times the
+ * (lognormal, gamma, weibull; Loss Models app. A) or elementary (pareto). A normal cdf value carries its derived bound
+ * (./normal-bounded.ts), an incomplete gamma value its derived bound (../invert/incgamma.ts); each plus the error of its argument times the
  * density's maximum over the argument's interval. Normal,
  * truncated normal and uniform claims, and claims a X + b (a > 0) of any of these, take their own forms further down.
  */
 import { add, div, exact, exp, expm1, log, mul, neg, pow, powInt, sub, type Est } from "../moment-error";
-import { normalCdf, normalPdf, type DirectLaw } from "./dist";
+import { normalPdf, type DirectLaw } from "./dist";
+import { normalCdfBounded } from "./normal-bounded";
 import { gammaPdf, incGamma } from "../invert/incgamma";
 
 /** E[min((X - d)_+, l)^k] with its bound, for k >= 1 and real d (l may be Infinity when E X^k is finite) */
@@ -26,15 +26,15 @@ export interface Partial {
 
 export const INF_E: Est = { v: NaN, e: Infinity };
 
-/** Phi(z) for an estimated z: the stated accuracy times the value plus max phi over [z - e, z + e] times e */
-function phiE(z: Est, acc: number): Est {
+/** Phi(z) for an estimated z: Phi's derived bound at z's value plus max phi over [z - e, z + e] times e */
+function phiE(z: Est): Est {
   if (z.v === Infinity) return exact(1);
   if (z.v === -Infinity) return exact(0);
   if (!Number.isFinite(z.e)) return INF_E;
-  const v = normalCdf(z.v);
+  const b = normalCdfBounded(z.v);
   // phi is largest where |z| is smallest; 2x covers the rounding of normalPdf itself
   const lip = 2 * normalPdf(Math.max(0, Math.abs(z.v) - z.e));
-  return { v, e: acc * v + lip * z.e };
+  return { v: b.v, e: b.e + lip * z.e };
 }
 
 /**
@@ -58,7 +58,7 @@ export function incGammaE(s: Est, z: Est, upper: boolean): Est {
 }
 
 /** lognormal(mu, sigma): M_j(a, b) = e^{j mu + j^2 sigma^2 / 2} [Phi(beta_j) - Phi(alpha_j)], z - j sigma (Loss Models app. A.4.1.1) */
-export function lognormalPartial(mu: number, sigma: number, acc: number): Partial {
+export function lognormalPartial(mu: number, sigma: number): Partial {
   const zOf = (x: number, j: number): Est => {
     if (x === 0) return { v: -Infinity, e: 0 };
     if (x === Infinity) return { v: Infinity, e: 0 };
@@ -70,12 +70,12 @@ export function lognormalPartial(mu: number, sigma: number, acc: number): Partia
       const za = zOf(a, j);
       const zb = zOf(b, j);
       // both above the median: the difference of the upper tails keeps its digits
-      const diff = za.v > 0 ? sub(phiE(neg(za), acc), phiE(neg(zb), acc)) : sub(phiE(zb, acc), phiE(za, acc));
+      const diff = za.v > 0 ? sub(phiE(neg(za)), phiE(neg(zb))) : sub(phiE(zb), phiE(za));
       const s = exact(sigma);
       const pre = exp(add(mul(exact(j), exact(mu)), mul(exact((j * j) / 2), mul(s, s))));
       return mul(pre, diff);
     },
-    sf: (b) => phiE(neg(zOf(b, 0)), acc),
+    sf: (b) => phiE(neg(zOf(b, 0))),
   };
 }
 
@@ -213,26 +213,26 @@ function zPowPhi(z: Est, i: number): Est {
  * JKB vol. 1, ch. 13, sec. 10.1, truncated normal moments); plus the atom l^k Phi(-beta). Expanding about d, not 0,
  * keeps the binomial sum free of the cancellation a large mean would cause.
  */
-export function normalLayerMoment(mu: number, sigma: number, acc: number): LayerMoment {
+export function normalLayerMoment(mu: number, sigma: number): LayerMoment {
   const s = exact(sigma);
   return (k, d, l) => {
     if (!(l > 0) || !Number.isFinite(d)) return INF_E;
     const m = sub(exact(mu), exact(d));
     const alpha = div(neg(m), s);
     const beta = l === Infinity ? exact(Infinity) : div(sub(exact(l), m), s);
-    let r = normalSlab(m, s, alpha, beta, k, acc);
-    if (l < Infinity) r = add(r, mul(powInt(exact(l), k), phiE(neg(beta), acc)));
+    let r = normalSlab(m, s, alpha, beta, k);
+    if (l < Infinity) r = add(r, mul(powInt(exact(l), k), phiE(neg(beta))));
     return Number.isFinite(r.v) ? r : INF_E;
   };
 }
 
 /** P(alpha < Z <= beta) for a standard normal Z, as the difference of upper tails when both ends are above 0 */
-const normalMass = (alpha: Est, beta: Est, acc: number): Est =>
-  alpha.v > 0 ? sub(phiE(neg(alpha), acc), phiE(neg(beta), acc)) : sub(phiE(beta, acc), phiE(alpha, acc));
+const normalMass = (alpha: Est, beta: Est): Est =>
+  alpha.v > 0 ? sub(phiE(neg(alpha)), phiE(neg(beta))) : sub(phiE(beta), phiE(alpha));
 
 /** E[(m + s Z)^k; alpha < Z <= beta] for a standard normal Z (the J_i recurrence above) */
-function normalSlab(m: Est, s: Est, alpha: Est, beta: Est, k: number, acc: number): Est {
-  const J: Est[] = [normalMass(alpha, beta, acc), sub(zPowPhi(alpha, 0), zPowPhi(beta, 0))];
+function normalSlab(m: Est, s: Est, alpha: Est, beta: Est, k: number): Est {
+  const J: Est[] = [normalMass(alpha, beta), sub(zPowPhi(alpha, 0), zPowPhi(beta, 0))];
   for (let i = 2; i <= k; i++) J[i] = add(mul(exact(i - 1), J[i - 2]), sub(zPowPhi(alpha, i - 1), zPowPhi(beta, i - 1)));
   let r = exact(0);
   for (let i = 0; i <= k; i++) r = add(r, mul(mul(exact(choose(k, i)), powInt(m, k - i)), mul(powInt(s, i), J[i])));
@@ -249,12 +249,12 @@ const minE = (a: Est, b: Est): Est => ({ v: Math.min(a.v, b.v), e: Math.max(a.e,
  * + l^k P(max(d + l, lower) < X <= upper)) / P(lower < X <= upper), each piece by the normal slab above. Where a
  * piece's interval is empty only within the rounding of its ends, no bound is given (INF).
  */
-export function truncatedNormalLayerMoment(mu: number, sigma: number, lower: number, upper: number, acc: number): LayerMoment {
+export function truncatedNormalLayerMoment(mu: number, sigma: number, lower: number, upper: number): LayerMoment {
   const s = exact(sigma);
   const zOf = (x: number): Est => (Number.isFinite(x) ? div(sub(exact(x), exact(mu)), s) : exact(x));
   const za = zOf(lower);
   const zb = zOf(upper);
-  const mass = normalMass(za, zb, acc);
+  const mass = normalMass(za, zb);
   // an interval (lo, hi]: empty, non-empty, or undecided within the bounds of its ends
   const state = (lo: Est, hi: Est) => (hi.v - hi.e > lo.v + lo.e ? 1 : hi.v + hi.e <= lo.v - lo.e ? 0 : -1);
   return (k, d, l) => {
@@ -266,12 +266,12 @@ export function truncatedNormalLayerMoment(mu: number, sigma: number, lower: num
     const hi = minE(beta, zb);
     const st = state(lo, hi);
     if (st < 0) return INF_E;
-    let r = st ? normalSlab(m, s, lo, hi, k, acc) : exact(0);
+    let r = st ? normalSlab(m, s, lo, hi, k) : exact(0);
     if (l < Infinity) {
       const alo = maxE(beta, za);
       const sa = state(alo, zb);
       if (sa < 0) return INF_E;
-      if (sa) r = add(r, mul(powInt(exact(l), k), normalMass(alo, zb, acc)));
+      if (sa) r = add(r, mul(powInt(exact(l), k), normalMass(alo, zb)));
     }
     r = div(r, mass);
     return Number.isFinite(r.v) ? r : INF_E;

@@ -31,7 +31,7 @@ export const CONTINUOUS_SPECS: Pick<Record<FamilyName, FamilySpec>, "normal" | "
     source: "Johnson, Kotz & Balakrishnan, Continuous Univariate Distributions vol. 1, ch. 13",
     direct: (p) => D.normalDirect(p.mu as number, p.sigma as number),
     layerable: true,
-    build: (p) => withCumulantErrors(withDist(normal(p.mu, p.sigma), withLayerMoment(normalDist(p.mu, p.sigma), normalLayerMoment(p.mu, p.sigma, normalDist(p.mu, p.sigma).accuracy))), CE.normalE(p.mu, p.sigma)),
+    build: (p) => withCumulantErrors(withDist(normal(p.mu, p.sigma), withLayerMoment(normalDist(p.mu, p.sigma), normalLayerMoment(p.mu, p.sigma))), CE.normalE(p.mu, p.sigma)),
     tailIndex: "none",
   },
   cauchy: {
@@ -229,7 +229,7 @@ export const CONTINUOUS_SPECS: Pick<Record<FamilyName, FamilySpec>, "normal" | "
     source: "Johnson, Kotz & Balakrishnan vol. 1, ch. 14",
     direct: (p) => D.lognormalDirect(p.mu as number, p.sigma as number),
     layerable: true,
-    build: (p) => withCumulantErrors(withDist(lognormal(p.mu, p.sigma), withLayerMoment(lognormalDist(p.mu, p.sigma), lognormalPartial(p.mu, p.sigma, lognormalDist(p.mu, p.sigma).accuracy))), CE.lognormalE(p.mu, p.sigma)),
+    build: (p) => withCumulantErrors(withDist(lognormal(p.mu, p.sigma), withLayerMoment(lognormalDist(p.mu, p.sigma), lognormalPartial(p.mu, p.sigma))), CE.lognormalE(p.mu, p.sigma)),
     tailIndex: "none (heavier than any exponential)",
   },
   pareto: {

@@ -3,7 +3,7 @@ import { gammaLaw } from "./continuous";
 import { burr, inverseGamma, inverseGaussian, lomax } from "./severities";
 import { betaLaw, triangular } from "./bounded";
 import { truncatedNormal } from "./truncated";
-import { betaDist, gammaDist, normalDist, type DirectLaw } from "./dist";
+import { betaDist, gammaDist, type DirectLaw } from "./dist";
 import type { FamilyName, FamilySpec } from "./spec-types";
 import { real, pos, withDist, shiftBuilt } from "./spec-types";
 import * as DS from "../direct/severities";
@@ -223,6 +223,6 @@ export const SEVERITY_SPECS: Pick<Record<FamilyName, FamilySpec>, "lomax" | "gen
           : null,
     direct: (p) => DB.truncatedNormalDirect(p.mu as number, p.sigma as number, p.lower as number | undefined, p.upper as number | undefined),
     layerable: true,
-    build: (p) => withCumulantErrors(truncatedNormal(p.mu, p.sigma, p.lower, p.upper), CE.truncatedNormalE(p.mu, p.sigma, p.lower ?? -Infinity, p.upper ?? Infinity, normalDist(0, 1).accuracy)),
+    build: (p) => withCumulantErrors(truncatedNormal(p.mu, p.sigma, p.lower, p.upper), CE.truncatedNormalE(p.mu, p.sigma, p.lower ?? -Infinity, p.upper ?? Infinity)),
   },
 };

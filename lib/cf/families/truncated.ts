@@ -1,7 +1,7 @@
 /** Truncated normal on [lower, upper] (either end may be absent: unbounded). */
 import { rawToCumulants, type Node } from "../node";
 import { sortedAnchor, unwrapFrom } from "../complex";
-import { normalCdf, normalDist, normalPdf, type DirectLaw } from "./dist";
+import { normalCdf, normalPdf, type DirectLaw } from "./dist";
 import { truncatedNormalLayerMoment } from "./layer-moments";
 import { restrictedIntegral } from "../quadrature";
 import { checkDeadline } from "../deadline";
@@ -54,8 +54,8 @@ export function truncatedNormal(mu: number, sigma: number, lower?: number, upper
     lo: a,
     hi: b,
     accuracy: 1e-13,
-    // built from the normal Phi and its stated accuracy (normalDist), not from the conditioned cdf above
-    layerMoment: truncatedNormalLayerMoment(mu, sigma, a, b, normalDist(0, 1).accuracy),
+    // built from the normal Phi and its derived bound (./normal-bounded.ts), not from the conditioned cdf above
+    layerMoment: truncatedNormalLayerMoment(mu, sigma, a, b),
   };
   const phi = (t: number): [number, number] => {
     const width = to - from;
