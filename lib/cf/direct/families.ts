@@ -1,11 +1,11 @@
-import erfc from "@stdlib/math-base-special-erfc";
 import gammaincinv from "@stdlib/math-base-special-gammaincinv";
 import betaincinv from "@stdlib/math-base-special-betaincinv";
 import normalQuantile from "@stdlib/stats-base-dists-normal-quantile";
 import { lgamma, lgammaErr } from "../families/special";
 import { incGammaBounded, incGammaShape, type IncGamma } from "../families/incgamma-bounded";
 import { incBetaBounded, incBetaShape } from "../families/incbeta-bounded";
-import { directPoint, type DirectLaw } from "./types";
+import { normalCdfBounded, type Bounded } from "../families/normal-bounded";
+import { directPoint, type DirectLaw, type DirectPoint } from "./types";
 import { bounds, ELEM, EPS, law, SQRT2PI, withExcess, withMode } from "./law";
 
 const U = EPS / 2;
@@ -13,12 +13,20 @@ const U = EPS / 2;
 /**
  * Closed-form and special-function laws for the direct route. Formulas: Johnson, Kotz & Balakrishnan, Continuous
  * Univariate Distributions vols. 1-2 (chapter per family in lib/cf/families/spec.ts); cdf and sf are each computed in
- * the form that keeps relative accuracy in its own tail (erfc, expm1, log1p, atan2, the upper incomplete functions).
+ * the form that keeps relative accuracy in its own tail (Q(1/2, .), expm1, log1p, atan2, the upper incomplete functions).
  * Error bounds: ELEM relative for elementary functions; the incomplete gamma's own derived bounds
- * (../families/incgamma-bounded.ts) and incomplete beta (../families/incbeta-bounded.ts); plus the effect of rounding
+ * (../families/incgamma-bounded.ts; the normal's Phi through it, ../families/normal-bounded.ts) and incomplete beta (../families/incbeta-bounded.ts); plus the effect of rounding
  * the argument, pdf * |dx|. stdlib's inverse functions only start the quantile searches (./answer.ts brackets them with
  * the bounded cdf).
  */
+/** Phi(z) and Phi(-z) into o.cdf and o.sf, each with its derived bound in PHI, PHI_UP (../families/normal-bounded.ts) */
+const PHI: Bounded = { v: NaN, e: NaN };
+const PHI_UP: Bounded = { v: NaN, e: NaN };
+function phiBoth(z: number, o: DirectPoint) {
+  o.cdf = normalCdfBounded(z, PHI).v;
+  o.sf = normalCdfBounded(-z, PHI_UP).v;
+}
+
 export function normalDirect(mu: number, sigma: number): DirectLaw {
   return withMode(mu, law(
     "special-function",
@@ -29,12 +37,13 @@ export function normalDirect(mu: number, sigma: number): DirectLaw {
       const z = (x - mu) / sigma;
       const dz = 2 * EPS * (Math.abs(x) + Math.abs(mu)) / sigma + EPS * Math.abs(z);
       o.pdf = Math.exp(-0.5 * z * z) / (sigma * SQRT2PI);
-      o.cdf = 0.5 * erfc(-z / Math.SQRT2);
-      o.sf = 0.5 * erfc(z / Math.SQRT2);
-      bounds(o, ELEM, ELEM + (1 + z * z) * 2 * EPS + Math.abs(z) * dz, dz * sigma);
+      phiBoth(z, o);
+      bounds(o, 0, ELEM + (1 + z * z) * 2 * EPS + Math.abs(z) * dz, dz * sigma);
+      o.cdfErr += PHI.e;
+      o.sfErr += PHI_UP.e;
     },
     (p) => mu + sigma * normalQuantile(p, 0, 1),
-    "normal cdf by erfc (stdlib)",
+    "normal cdf by the bounded incomplete gamma, Q(1/2, z^2/2)/2",
   ));
 }
 
@@ -55,13 +64,14 @@ export function lognormalDirect(mu: number, sigma: number): DirectLaw {
       const z = (lx - mu) / sigma;
       const dz = (EPS * (1 + Math.abs(lx)) + 2 * EPS * Math.abs(mu)) / sigma + EPS * Math.abs(z);
       o.pdf = Math.exp(-0.5 * z * z) / (x * sigma * SQRT2PI);
-      o.cdf = 0.5 * erfc(-z / Math.SQRT2);
-      o.sf = 0.5 * erfc(z / Math.SQRT2);
+      phiBoth(z, o);
       // dF = phi(z) dz with phi(z) = x sigma f(x)
-      bounds(o, ELEM, ELEM + (1 + z * z) * 2 * EPS + Math.abs(z) * dz, dz * x * sigma);
+      bounds(o, 0, ELEM + (1 + z * z) * 2 * EPS + Math.abs(z) * dz, dz * x * sigma);
+      o.cdfErr += PHI.e;
+      o.sfErr += PHI_UP.e;
     },
     (p) => Math.exp(mu + sigma * normalQuantile(p, 0, 1)),
-    "lognormal cdf by erfc of log x (stdlib)",
+    "lognormal cdf by the bounded incomplete gamma of log x",
   ));
 }
 
