@@ -27,8 +27,19 @@ export function bennettTail(x: number, v: number, b: number): number {
  * the last point goes to that point when rounding down and is left out (sent to infinity) when rounding up.
  */
 function boundingSeverities(sev: SeverityLaw, h: number, len: number) {
-  const cdf = sev.cdf!;
-  const sf = sev.sf!;
+  // each value with its bound where the law gives them (cdfE, sfE), else the closed form taken within a stated 1e-13
+  let worst = 0;
+  const withErr = (f: (x: number) => number, fE: ((x: number) => { v: number; e: number }) | undefined) => (x: number) => {
+    if (!fE) {
+      worst = Math.max(worst, 1e-13);
+      return f(x);
+    }
+    const r = fE(x);
+    if (!(r.e <= worst)) worst = Math.max(worst, r.e) || Infinity;
+    return r.v;
+  };
+  const cdf = withErr(sev.cdf!, sev.cdfE);
+  const sf = withErr(sev.sf!, sev.sfE);
   const down = new Float64Array(len);
   const up = new Float64Array(len);
   const atoms = sev.atoms ?? [];
@@ -76,9 +87,9 @@ function boundingSeverities(sev: SeverityLaw, h: number, len: number) {
   }
   lost = useCdf ? Math.max(0, 1 - v0) : v0;
   down[len - 1] += lost;
-  const acc = sev.cdfAccuracy ?? 1e-13;
-  // the computed severity cdf at each lattice point is one computed cdf (or sf) value, within acc, plus the sum's rounding
-  return { down, up, lost, kolmogorov: 4 * acc + 2 * len * EPS_D };
+  // the computed severity cdf at each lattice point is one computed cdf (or sf) value, within the largest bound seen
+  // (worst), plus the sum's rounding
+  return { down, up, lost, kolmogorov: 4 * worst + 2 * len * EPS_D };
 }
 
 const EPS_D = Number.EPSILON;

@@ -29,8 +29,9 @@ export interface SeverityLaw {
    *  bracketed between the rounded-down and rounded-up discretisations, whose cell masses are cdf differences */
   cdf?(x: number): number;
   sf?(x: number): number;
-  /** absolute accuracy of cdf and sf as computed */
-  cdfAccuracy?: number;
+  /** cdf and sf with bounds on their absolute errors, where the law has them (a per-claim layer) */
+  cdfE?(x: number): { v: number; e: number };
+  sfE?(x: number): { v: number; e: number };
   /** E[X] when it exists */
   mean?: number;
   /** claims never exceed this (a per-claim layer with a limit) */

@@ -15,6 +15,7 @@ import { checkDeadline } from "./deadline";
 import { oscillatoryIntegral, type OscillatoryIntegral } from "./filon";
 import { withCumulantErrors } from "./cumulant-bounds";
 import { exact, mul, powInt, rawToCumulantsE, type Est } from "./moment-error";
+import { directPoint } from "./direct/types";
 
 /** Smallest u >= 0 (on a doubling search) with S(d + u) <= q. */
 function tailPoint(dist: DirectLaw, d: number, q: number, start: number): number {
@@ -59,13 +60,18 @@ export function layerNode(X: Node, terms: Partial<LayerTerms>): Node {
   if (X.kind.type !== "continuous") return discreteLayer(X, d, l, c);
   const dist = X.dist;
   if (!dist) throw new CfError("not_applicable", "/of", "A per-claim layer needs a claim law with a closed-form cdf.");
-  const Fd = dist.cdf(d);
-  const Sdl = l < Infinity ? dist.sf(d + l) : 0;
+  // the claim law's cdf and sf with bounds on their errors (claimCdf below)
+  const { cdfE, sfE } = claimCdf(X, dist);
+  const FdE = cdfE(d);
+  const SdlE = l < Infinity ? sfE(d + l) : { v: 0, e: 0 };
+  const Fd = FdE.v;
+  const Sdl = SdlE.v;
   const u0 = Math.max(0, dist.lo - d); // the density of X - d starts here
   const scaleX = Math.max(X.scale, 1e-300);
   const L = l < Infinity ? l : tailPoint(dist, d, 1e-18, Math.max(scaleX, u0 + scaleX));
   // the mass left out beyond d + L for an unlimited layer
-  const cut = l < Infinity ? 0 : dist.sf(d + L);
+  const cutE = l < Infinity ? { v: 0, e: 0 } : sfE(d + L);
+  const cut = cutE.v + cutE.e;
   // panels grow geometrically from the start of the claim density; when the layer starts at the support's end the
   // density may be singular there (gamma or weibull shapes below 1), so the first panel is tiny (mass ~ its width^shape)
   const w0 = (Math.min(scaleX, L) / 256) * (d <= dist.lo ? 2 ** -120 : 1);
@@ -116,23 +122,33 @@ export function layerNode(X: Node, terms: Partial<LayerTerms>): Node {
     // the layered claim's own cdf and sf (atoms included): the bounding discretisation takes cell masses from them
     cdf: (y) => (y < 0 ? 0 : y >= c * l ? 1 : dist.cdf(d + y / c)),
     sf: (y) => (y < 0 ? 1 : y >= c * l ? 0 : dist.sf(d + y / c)),
-    cdfAccuracy: dist.accuracy,
+    // the same with their bounds (the discretisation's bracket takes these where given)
+    cdfE: (y) => (y < 0 ? { v: 0, e: 0 } : y >= c * l ? { v: 1, e: 0 } : cdfE(d + y / c)),
+    sfE: (y) => (y < 0 ? { v: 1, e: 0 } : y >= c * l ? { v: 0, e: 0 } : sfE(d + y / c)),
     mean: mean ?? undefined,
     ...(l < Infinity ? { bound: c * l } : {}),
     // an upper bound on E[Y 1{Y > y}]: with W = (X - d)_+ and b = y/c < l, E[Y; Y > y] = c (E min(W, l) - E min(W, b)) +
     // y P(X > d + b), the two limited means from the claim law's layer moments with their derived bounds, the sf taken
     // at a point rounded down past the argument's rounding (sf decreases; d + b within 2u |d + b| for d >= 0) and
-    // raised by its accuracy; Infinity without the closed form
-    tailMean: (y) => tailMeanBound(dist, c, d, l, y),
+    // raised by its bound; Infinity without the closed form
+    tailMean: (y) => tailMeanBound(dist, sfE, c, d, l, y),
   };
   // the claim density's partial transform int f(d + u) e^{i s u} du, built once (Filon-type, cost independent of s)
   let osc: OscillatoryIntegral | null = null;
   const oscillatory = (): OscillatoryIntegral => {
     if (!osc) {
-      const F = (u: number) => dist.cdf(d + u);
-      const S = (u: number) => dist.sf(d + u);
-      // int_a^b f from the closed-form cdf (or sf past the median, where the cdf's difference would cancel)
-      const mass = (a: number, b: number) => (F(a) < 0.5 ? F(b) - F(a) : S(a) - S(b)) + 4 * dist.accuracy * Math.min(F(b), S(a));
+      // an upper bound on int_a^b f from the cdf (or sf past the median, where the cdf's difference would cancel) and
+      // the two values' bounds
+      const mass = (a: number, b: number) => {
+        const Fa = cdfE(d + a);
+        if (Fa.v < 0.5) {
+          const Fb = cdfE(d + b);
+          return Fb.v - Fa.v + (Fa.e + Fb.e) * (1 + 2 * Number.EPSILON) + Number.EPSILON * Fb.v;
+        }
+        const Sa = sfE(d + a);
+        const Sb = sfE(d + b);
+        return Sa.v - Sb.v + (Sa.e + Sb.e) * (1 + 2 * Number.EPSILON) + Number.EPSILON * Sa.v;
+      };
       osc = oscillatoryIntegral(base, claimPdf, mass);
     }
     return osc;
@@ -144,7 +160,7 @@ export function layerNode(X: Node, terms: Partial<LayerTerms>): Node {
     nodes: 1 + X.nodes,
     get cfAbsError() {
       // the Filon rule's interpolation and rounding error, the atoms' cdf accuracy and the claim mass left out
-      return oscillatory().error + dist.accuracy * (Fd + Sdl) + cut;
+      return oscillatory().error + FdE.e + SdlE.e + cut;
     },
     notes: [
       ...X.notes.filter((n) => !/CF computed/.test(n)),
@@ -207,7 +223,7 @@ function discreteLayer(X: Node, d: number, l: number, c: number): Node {
 }
 
 /** an upper bound on E[Y 1{Y > y}], Y = c min((X - d)_+, l) (see the severity's tailMean above) */
-function tailMeanBound(dist: DirectLaw, c: number, d: number, l: number, y: number): number {
+function tailMeanBound(dist: DirectLaw, sfE: (x: number) => Est, c: number, d: number, l: number, y: number): number {
   const U = Number.EPSILON / 2;
   const b = y / c;
   if (!(b < l)) return 0;
@@ -218,9 +234,31 @@ function tailMeanBound(dist: DirectLaw, c: number, d: number, l: number, y: numb
   let sf = 0;
   if (b > 0) {
     const x = d + b;
-    const s = dist.sf(x - 4 * U * x);
-    sf = s * (1 + 2 * dist.accuracy) + (s > 0.5 ? dist.accuracy : 0);
+    const s = sfE(x - 4 * U * x);
+    sf = (s.v + s.e) * (1 + 2 * U);
   }
   const diff = ml.v + ml.e - (mb.v - mb.e);
   return Math.max(0, c * diff * (1 + 4 * U) + y * sf * (1 + 2 * U)) * (1 + 2 * U);
+}
+
+/**
+ * The claim law's cdf and sf at x with bounds on their errors: from its direct route (per-value derived bounds,
+ * ./direct/types.ts) where it has one, plus the move of x's rounding by the caller (d + u: 2u |x|, times twice the
+ * density there); else the closed forms with their stated relative accuracy (families/dist.ts)
+ */
+function claimCdf(X: Node, dist: DirectLaw): { cdfE: (x: number) => Est; sfE: (x: number) => Est } {
+  const dl = X.direct;
+  if (!dl) return { cdfE: (x) => ({ v: dist.cdf(x), e: dist.accuracy * dist.cdf(x) }), sfE: (x) => ({ v: dist.sf(x), e: dist.accuracy * dist.sf(x) }) };
+  const pt = directPoint();
+  const moved = (x: number) => (x === 0 ? 0 : Number.isFinite(pt.pdf) ? 2 * pt.pdf * 2 * Number.EPSILON * Math.abs(x) : Infinity);
+  return {
+    cdfE(x) {
+      dl.at(x, pt);
+      return { v: pt.cdf, e: pt.cdfErr + moved(x) };
+    },
+    sfE(x) {
+      dl.at(x, pt);
+      return { v: pt.sf, e: pt.sfErr + moved(x) };
+    },
+  };
 }
