@@ -159,8 +159,12 @@ export function layerNode(X: Node, terms: Partial<LayerTerms>): Node {
     tails: { left: Infinity, right: l < Infinity ? Infinity : X.tails.right },
     nodes: 1 + X.nodes,
     get cfAbsError() {
-      // the Filon rule's interpolation and rounding error, the atoms' cdf accuracy and the claim mass left out
-      return oscillatory().error + FdE.e + SdlE.e + cut;
+      // the Filon rule's interpolation and rounding error, the atoms' masses' bounds and the claim mass left out; plus the
+      // assembly's rounding (u = eps/2): the sums and the product with cos/sin 5 sqrt(2) u of the moduli' sum (at most
+      // about 1), the log of |.| and its exp back 9u (cabs 2 eps, log and exp one ulp each, m |log m| <= 1/e), the angle
+      // through atan2 and cos/sin (2 pi + 2) u: below 16 eps together; the phase's own rounding u |s l| is in the
+      // node's units of rounding relative to |Im log phi| (invert/part.ts cfRelError)
+      return oscillatory().error + FdE.e + SdlE.e + cut + 16 * Number.EPSILON;
     },
     notes: [
       ...X.notes.filter((n) => !/CF computed/.test(n)),
