@@ -7,6 +7,7 @@ import { cabs, sortedAnchor, unwrapFrom } from "../complex";
 import { checkDeadline } from "../deadline";
 import { quadratureNodes } from "./numeric-rule";
 import { KahanComplex } from "./kahan";
+import { recurrenceSums } from "./exp-sum-recurrence";
 
 /**
  * Shared driver: phi(t) for t > 0 from a per-t quadrature, phi(-t) = conj phi(t), phi(0) = 1; then log with the
@@ -114,26 +115,6 @@ export function contourLogCfArithmetic(c: Contour, scale: number, t: Float64Arra
   return bound;
 }
 
-/** expSumArithmetic's recurrence for one real term c exp(t e w): the same steps as the complex one on real parts only */
-function realRecurrence(c: number, er: number, d: number, cut: number, tk: Float64Array, outRe: Float64Array, kr: Float64Array): void {
-  const K = tk.length;
-  const rr = Math.exp(d * er);
-  let k = 0;
-  while (k < K) {
-    const lm = tk[k] * er;
-    if (lm < cut) break;
-    let zr = c * Math.exp(lm);
-    const end = Math.min(K, k + RESYNC);
-    for (; k < end; k++) {
-      const yr = zr - kr[k];
-      const sr = outRe[k] + yr;
-      kr[k] = sr - outRe[k] - yr;
-      outRe[k] = sr;
-      zr *= rr;
-    }
-  }
-}
-
 /**
  * expSumArithmetic's moment route for real weights c_j and a real w, on real parts only (the same operations in the same
  * order as the complex route, whose imaginary parts are then exact zeros): writes the Taylor sums into outRe and
@@ -173,8 +154,6 @@ function realMoments(c: Float64Array, e: Float64Array, J0: number, w: number, tk
 const MOMENT_ORDER = 24;
 /** e / 25!: Taylor remainder of exp(z) after the z^24 term for |z| <= 1. */
 const MOMENT_REMAINDER = Math.E / 1.5511210043330986e25;
-/** the recurrence is restarted from a direct evaluation every RESYNC steps */
-const RESYNC = 16;
 /** terms below this magnitude (and decreasing from there on) are left out */
 const DROP = 1e-21;
 
@@ -244,7 +223,19 @@ export function expSumArithmetic(
       mr[m] /= f;
       mi[m] /= f;
     }
-    for (let k = 0; k < K; k++) {
+    for (let k = 0; k < K && wIm === 0; k++) {
+      // a real w (the pareto's Laplace form): the terms ai zi and ar zi are zeros, so two real Horner steps per order
+      const z = tk[k] * wRe;
+      let ar = mr[M];
+      let ai = mi[M];
+      for (let m = M - 1; m >= 0; m--) {
+        ar = ar * z + mr[m];
+        ai = ai * z + mi[m];
+      }
+      outRe[k] = ar;
+      outIm[k] = ai;
+    }
+    for (let k = 0; k < K && wIm !== 0; k++) {
       const t = tk[k];
       const zr = t * wRe;
       const zi = t * wIm;
@@ -259,48 +250,17 @@ export function expSumArithmetic(
       outIm[k] = ai;
     }
   }
+  const cut = new Float64Array(n);
+  const live = new Uint8Array(n);
   for (let j = J0; j < n; j++) {
-    if ((j & 63) === 0) checkDeadline("cf-quadrature");
     const a = cabs(cRe[j], cIm[j]);
     if (a === 0) continue;
-    const er = e[j] * wRe;
-    const ei = e[j] * wIm;
     // the recurrence's drift is relative to the term's own size, at most |c_j| exp(t_0 e_j Re w) (Re w < 0, t >= t_0)
-    absSum += a * Math.exp(tk[0] * er);
-    const cut = Math.log(DROP / a);
-    if (real) {
-      realRecurrence(cRe[j], er, d, cut, tk, outRe, kr);
-      continue;
-    }
-    const sa = Math.exp(d * er);
-    const rr = sa * Math.cos(d * ei);
-    const ri = sa * Math.sin(d * ei);
-    let k = 0;
-    while (k < K) {
-      const t = tk[k];
-      const lm = t * er;
-      if (lm < cut) break;
-      const m = Math.exp(lm);
-      const cs = m * Math.cos(t * ei);
-      const sn = m * Math.sin(t * ei);
-      let zr = cRe[j] * cs - cIm[j] * sn;
-      let zi = cRe[j] * sn + cIm[j] * cs;
-      const end = Math.min(K, k + RESYNC);
-      for (; k < end; k++) {
-        const yr = zr - kr[k];
-        const sr = outRe[k] + yr;
-        kr[k] = sr - outRe[k] - yr;
-        outRe[k] = sr;
-        const yi = zi - ki[k];
-        const si = outIm[k] + yi;
-        ki[k] = si - outIm[k] - yi;
-        outIm[k] = si;
-        const nr = zr * rr - zi * ri;
-        zi = zr * ri + zi * rr;
-        zr = nr;
-      }
-    }
+    absSum += a * Math.exp(tk[0] * (e[j] * wRe));
+    cut[j] = Math.log(DROP / a);
+    live[j] = 1;
   }
+  recurrenceSums(cRe, cIm, e, J0, wRe, wIm, tk, d, cut, live, real, outRe, outIm, kr, ki);
   return absSum * (MOMENT_REMAINDER + 80 * Number.EPSILON) + n * DROP;
 }
 
