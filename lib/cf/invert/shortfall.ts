@@ -6,7 +6,7 @@ import { directPoint } from "../direct/types";
 import { imageScratch, shortfallImages } from "./images";
 import { incGamma } from "./incgamma";
 import { buildNodes, probeEnvelope, truncationAt, type Envelope, type Nodes } from "./nodes";
-import { makePart, type ContinuousPart, type EndpointKernels } from "./part";
+import { evalPart, makePart, type ContinuousPart, type EndpointKernels } from "./part";
 import { integrateSf } from "./pointwise";
 import type { lawShape } from "./range";
 import { richardsonAmplification, richardsonRow } from "./richardson";
@@ -223,6 +223,25 @@ export function heavyShortfall(
     }
     return absSums[lev];
   };
+  // a lower bound on the rounding allowance `round` of level lev (below): its term rel (2h/pi) sum_k |phi_k| / t_k^2 over
+  // the first nodes alone (the terms are largest there, the rest are non-negative), rel without its K eps part, less
+  // 1e-6 for the rounding of this partial sum; independent of q
+  const roundFloors: number[] = [];
+  const roundFloorAt = (lev: number) => {
+    if (roundFloors[lev] !== undefined) return roundFloors[lev];
+    const h = (2 * Math.PI) / (T0 * 2 ** lev);
+    // the level's own node count (nodesAt): never more nodes than it has
+    const m = Math.min(64, Math.max(8, Math.ceil(tmax / h)), 1 << 21);
+    const t = new Float64Array(m);
+    for (let k = 0; k < m; k++) t[k] = (k + 0.5) * h;
+    const re = new Float64Array(m);
+    const im = new Float64Array(m);
+    evalPart(part, t, re, im);
+    let a = 0;
+    for (let k = 0; k < m; k++) a += Math.hypot(re[k], im[k]) / t[k] / t[k];
+    const floor = (Number.EPSILON / 2) * 78 * ((2 * h * a) / Math.PI) * (1 - 1e-6);
+    return (roundFloors[lev] = Number.isFinite(floor) ? floor : 0);
+  };
   return (q: number, target: number) => {
     const y = q - part.center;
     const rows: number[][] = [];
@@ -268,8 +287,9 @@ export function heavyShortfall(
         }
         if (bestTotal <= Math.max(target, tol)) break;
         // the floor amp (round + truncES) only grows with the level (amp does, round is a running maximum): once the
-        // next level's floor reaches the best total, no further level can lower it
-        if (richardsonAmplification(exps, lev + 2) * (round + truncES) >= bestTotal) break;
+        // next level's floor reaches the best total, no further level can lower it. The next level's rounding is known
+        // from below before its nodes are built (roundFloorAt): a level that could not be chosen is not built
+        if (richardsonAmplification(exps, lev + 2) * (Math.max(round, roundFloorAt(lev + 1)) + truncES) >= bestTotal) break;
       }
       prev = cand;
     }
