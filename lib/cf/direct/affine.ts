@@ -65,6 +65,22 @@ export function affineDirect(law: DirectLaw, a: number, b: number): DirectLaw {
       out.pdfErr = out.pdfErr / aa + (Number.isFinite(out.pdf) ? 2 * Number.EPSILON * out.pdf + pdfMove / aa : 0);
       if (!(out.pdfErr <= Number.MAX_VALUE)) out.pdfErr = Number.MAX_VALUE;
     },
+    // the split of X's tail at (y - b)/a, moved inward by its rounding (the sizes fall outward), the density per |a|
+    // and the stop-loss transform times |a|; the side turns over with a < 0
+    ...(law.monotoneSplit
+      ? {
+          monotoneSplit: (y: number, side: 1 | -1, step: number) => {
+            const x = (y - b) / a;
+            const s = a > 0 ? side : ((-side) as 1 | -1);
+            const dx = 2 * Number.EPSILON * (Math.abs(y) + Math.abs(b)) / aa + Number.EPSILON * Math.abs(x);
+            // the step rounded down: the rest's sum grows as the points close up
+            const r = law.monotoneSplit!(x - s * dx, s, (step / aa) * (1 - 4 * Number.EPSILON));
+            if (!r) return null;
+            const up = 1 + 4 * Number.EPSILON;
+            return { tail: r.tail, pdf: (r.pdf / aa) * up, stopLoss: aa * r.stopLoss * up, restTail: r.restTail, restPdf: (r.restPdf / aa) * up, restStopLoss: aa * r.restStopLoss * up };
+          },
+        }
+      : {}),
     ...(q ? { quantile: (p: number) => (a > 0 ? a * q(p) + b : a * q(1 - p) + b) } : {}),
     // int_c^inf S_Y = |a| int_{(c-b)/a}^inf S_X (a > 0), |a| int_-inf^{(c-b)/a} F_X (a < 0); likewise on the left; the
     // rounding dx of (c - b)/a moves it by at most dx times the tail mass on [x - dx, x + dx], which (S_X falling, F_X

@@ -6,7 +6,7 @@ import { incGammaBounded, incGammaShape, type IncGamma } from "../families/incga
 import { incBetaBounded, incBetaShape } from "../families/incbeta-bounded";
 import { normalCdfBounded, type Bounded } from "../families/normal-bounded";
 import { directPoint, type DirectLaw, type DirectPoint } from "./types";
-import { bounds, ELEM, EPS, law, SQRT2PI, withExcess, withMode } from "./law";
+import { bounds, ELEM, EPS, law, SQRT2PI, withExcess, withMode, withMonotoneTail } from "./law";
 
 const U = EPS / 2;
 
@@ -124,7 +124,7 @@ export function gammaDirect(shape: number, rate: number): DirectLaw {
 }
 
 export function paretoDirect(alpha: number, xm: number): DirectLaw {
-  return withExcess(
+  return withMonotoneTail(withExcess(
     law(
       "closed-form",
       [xm, Infinity],
@@ -147,7 +147,7 @@ export function paretoDirect(alpha: number, xm: number): DirectLaw {
     xm,
     // mean excess c/(alpha - 1) (Embrechts, Klueppelberg & Mikosch 1997, Table 3.4.7; recalled)
     (c) => c / (alpha - 1),
-  );
+  ));
 }
 
 export function weibullDirect(shape: number, scale: number): DirectLaw {
@@ -313,25 +313,47 @@ export function studentDirect(nu: number, loc: number, scale: number): DirectLaw
     },
     "Student t cdf by the regularised incomplete beta function (positive series with derived bounds)",
   );
-  if (!(nu > 1)) return withMode(loc, L);
   const pt = directPoint();
+  const stopLossT = (c: number, side: 1 | -1) => {
+    L.at(c, pt);
+    const d = c - loc;
+    const z = d / scale;
+    const k = (scale * scale * (nu + z * z)) / (nu - 1);
+    const m = side === 1 ? pt.sf : pt.cdf;
+    const em = side === 1 ? pt.sfErr : pt.cdfErr;
+    const t1 = k * pt.pdf;
+    const t2 = side * d * m;
+    const v = t1 - t2;
+    return { v, e: k * pt.pdfErr + Math.abs(d) * em + 16 * U * (Math.abs(t1) + Math.abs(t2)) };
+  };
+  const sp = directPoint();
+  // the upper tail S(z) = sum_k c_k x^(nu/2 + k), x = (1 + z^2/nu)^-1, c_k > 0 (I_x(a, 1/2) = x^a 2F1(a, 1/2; a + 1; x) /
+  // (a B(a, 1/2)), A&S 26.5.4 with 15.1.1), and x^s = (nu/z^2)^s (1 + nu/z^2)^-s = sum_j binom(-s, j) nu^(s + j) z^(-2s - 2j)
+  // for z^2 > nu: powers of z, completely monotone. Summed with |binom(-s, j)|, x^s becomes (nu/(z^2 - nu))^s, the same
+  // x at w = sqrt(z^2 - 2 nu): the split's sizes are the law's own S(w) and f(w), and int_z^inf S(sqrt(u^2 - 2 nu)) du <=
+  // the stop-loss transform at w (du = w dw / u, w <= u). Left: the mirror image. Taken where z^2 > 2 nu (1 + 1e-9).
+  const split = (y: number, side: 1 | -1) => {
+    const z = (y - loc) / scale;
+    // |z| less its rounding (as in at), w rounded down (a few ulps of margin): the sizes fall with w
+    const za = Math.abs(z) - (2 * EPS * (Math.abs(y) + Math.abs(loc))) / scale - EPS * Math.abs(z);
+    if (!(side * z > 0) || !(za * za > 2 * nu * (1 + 1e-9))) return null;
+    const w = Math.sqrt(za * za - 2 * nu) * (1 - 8 * EPS);
+    // the point rounded inward (the law evaluates (at - loc)/scale, at most w)
+    const at = loc + side * (scale * w - 4 * EPS * (Math.abs(loc) + scale * w));
+    L.at(at, sp);
+    const tail = (side === 1 ? sp.sf + sp.sfErr : sp.cdf + sp.cdfErr) * (1 + 4 * EPS);
+    const sl = nu > 1 ? stopLossT(at, side) : null;
+    const stopLoss = sl ? (sl.v + sl.e) * (1 + 4 * EPS) : Infinity;
+    return { tail, pdf: (sp.pdf + sp.pdfErr) * (1 + 4 * EPS), stopLoss, restTail: 0, restPdf: 0, restStopLoss: 0 };
+  };
+  if (!(nu > 1)) return withMode(loc, { ...L, monotoneSplit: split });
   return withMode(loc, {
     ...L,
+    monotoneSplit: split,
     // E[(X - c)^+] = scale^2 (nu + z^2)/(nu - 1) f(c) - (c - loc) S(c), z = (c - loc)/scale (from d/dt [(nu + t^2) f_nu(t)] =
     // -(nu - 1) t f_nu(t), McNeil, Frey & Embrechts 2015, Example 2.15), and E[(c - X)^+] with F and + (c - loc) by
     // symmetry; each term within its values' own bounds, plus 16u of their sizes for z's rounding and the arithmetic.
     // The two terms of the upper one, for z > 0, cancel to about 1/nu of their size.
-    stopLoss(c: number, side: 1 | -1) {
-      L.at(c, pt);
-      const d = c - loc;
-      const z = d / scale;
-      const k = (scale * scale * (nu + z * z)) / (nu - 1);
-      const m = side === 1 ? pt.sf : pt.cdf;
-      const em = side === 1 ? pt.sfErr : pt.cdfErr;
-      const t1 = k * pt.pdf;
-      const t2 = side * d * m;
-      const v = t1 - t2;
-      return { v, e: k * pt.pdfErr + Math.abs(d) * em + 16 * U * (Math.abs(t1) + Math.abs(t2)) };
-    },
+    stopLoss: stopLossT,
   });
 }

@@ -97,3 +97,24 @@ export function bounds(o: DirectPoint, r: number, rPdf: number, dx: number) {
   // a pdf of exactly 0 (the limit at a support end, where rPdf may hold log 0) is exact too
   o.pdfErr = finite && o.pdf !== 0 ? rPdf * o.pdf : 0;
 }
+
+/**
+ * The law marked with its own completely monotone upper tail (DirectLaw.monotoneSplit): S on [lo, inf) is a power of
+ * an affine function of y, c (y - y0)^-a or (1 + (y - lo)/s)^-a, or an exponential (pareto, lomax, generalised pareto
+ * with xi >= 0), so the split is the one term S itself, with the density and the stop-loss transform; left of lo the law
+ * has no mass (zero is completely monotone).
+ */
+export function withMonotoneTail(l: DirectLaw): DirectLaw {
+  const pt = directPoint();
+  const lo = l.support[0];
+  return {
+    ...l,
+    monotoneSplit(y: number, side: 1 | -1) {
+      if (side === -1) return y < lo ? { tail: 0, pdf: 0, stopLoss: 0, restTail: 0, restPdf: 0, restStopLoss: 0 } : null;
+      if (!(y >= lo)) return null;
+      l.at(y, pt);
+      const sl = l.stopLoss?.(y, 1);
+      return { tail: pt.sf + pt.sfErr, pdf: pt.pdf + pt.pdfErr, stopLoss: sl ? sl.v + sl.e : Infinity, restTail: 0, restPdf: 0, restStopLoss: 0 };
+    },
+  };
+}

@@ -4,7 +4,7 @@ import gammaincinv from "@stdlib/math-base-special-gammaincinv";
 import { lgamma, lgammaErr } from "../families/special";
 import { incGammaBounded, incGammaShape, type IncGamma } from "../families/incgamma-bounded";
 import type { DirectLaw } from "./types";
-import { bounds, ELEM, EPS, law, logErfcxSlope, withExcess, withMode } from "./law";
+import { bounds, ELEM, EPS, law, logErfcxSlope, withExcess, withMode, withMonotoneTail } from "./law";
 
 /**
  * Direct laws of the claim-size families with closed-form or special-function distribution functions: lomax,
@@ -34,7 +34,7 @@ function fromLogSf(o: { pdf: number; cdf: number; sf: number; pdfErr: number; cd
  */
 export function generalizedParetoDirect(xi: number, sigma: number, mu: number): DirectLaw {
   const hi = xi < 0 ? mu - sigma / xi : Infinity;
-  return withExcess(
+  const gp = withExcess(
     law(
       "closed-form",
       [mu, hi],
@@ -73,11 +73,13 @@ export function generalizedParetoDirect(xi: number, sigma: number, mu: number): 
     // mean excess (sigma + xi (c - mu))/(1 - xi), xi < 1 (Embrechts, Klueppelberg & Mikosch 1997, Theorem 3.4.13(e); recalled)
     (c) => (c >= hi ? 0 : (sigma + xi * (c - mu)) / (1 - xi)),
   );
+  // xi < 0: S = (1 - |xi| z)^(1/|xi|) reaches 0 at the upper end, not completely monotone
+  return xi >= 0 ? withMonotoneTail(gp) : gp;
 }
 
 /** Lomax (pareto II): S = (1 + x/theta)^-alpha (Loss Models app. A.2.3.1); q_p = theta ((1 - p)^(-1/alpha) - 1). */
 export function lomaxDirect(alpha: number, theta: number): DirectLaw {
-  return withExcess(
+  return withMonotoneTail(withExcess(
     law(
       "closed-form",
       [0, Infinity],
@@ -98,7 +100,7 @@ export function lomaxDirect(alpha: number, theta: number): DirectLaw {
     0,
     // mean excess (theta + c)/(alpha - 1) (Embrechts, Klueppelberg & Mikosch 1997, Table 3.4.7; recalled)
     (c) => (theta + c) / (alpha - 1),
-  );
+  ));
 }
 
 /**

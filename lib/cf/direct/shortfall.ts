@@ -213,7 +213,7 @@ function tailBracket(law: DirectLaw, q: number, dir: 1 | -1, rest: RestBound | u
  * one derived from density values with their bounds: f non-decreasing up to the mode M and non-increasing after, so
  * f(x1) < f(x2) (beyond both bounds) with x1 < x2 puts M above x1, and f(x1) > f(x2) puts it below x2; else unknown.
  */
-function modeRange(law: DirectLaw): readonly [number, number] {
+export function modeRange(law: DirectLaw): readonly [number, number] {
   if (law.mode !== undefined && Number.isFinite(law.mode)) return [law.mode, law.mode];
   if (!law.unimodal) return [-Infinity, Infinity];
   let r = MODES.get(law);

@@ -36,6 +36,16 @@ export interface DirectLaw {
    * absent where not known
    */
   readonly mode?: number;
+  /**
+   * optional: where the tail from y outward (side 1: S on [y, inf); side -1: F on (-inf, y], as functions of the distance
+   * from y) is sum_j c_j g_j + R with each g_j completely monotone (Bernstein: a Laplace transform of a positive measure,
+   * e.g. a power of the distance plus a constant): upper bounds at y on sum_j |c_j| g_j for the tail, for the density
+   * (the same split differentiated) and for the stop-loss transform (the same split integrated outward), and `rest*`
+   * bounds on sum_{m >= 0} |R| at the points y + side m step (zero where the split is exact); null where no such split is
+   * known at y. Values at an arithmetic progression outward are then a signed Hausdorff moment sequence plus R, and
+   * ../invert/images.ts bounds their accelerated alternating sums by the theorem for those.
+   */
+  monotoneSplit?(y: number, side: 1 | -1, step: number): MonotoneSplit | null;
   /** optional: the law is unimodal (a mode exists, not known in closed form): ./answer.ts derives an interval holding it */
   readonly unimodal?: boolean;
   /**
@@ -46,6 +56,16 @@ export interface DirectLaw {
   readonly singular?: readonly number[];
   /** short notes on the method (source of the formula, accuracy) */
   readonly notes: string[];
+}
+
+/** see DirectLaw.monotoneSplit */
+export interface MonotoneSplit {
+  tail: number;
+  pdf: number;
+  stopLoss: number;
+  restTail: number;
+  restPdf: number;
+  restStopLoss: number;
 }
 
 export type DirectMethod = "closed-form" | "special-function" | "stable-integral";

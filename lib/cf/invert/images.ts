@@ -1,3 +1,4 @@
+import { modeRange } from "../direct/shortfall";
 import { directPoint, type DirectLaw, type DirectPoint } from "../direct/types";
 
 /**
@@ -8,27 +9,88 @@ import { directPoint, type DirectLaw, type DirectPoint } from "../direct/types";
  * exactly where G has a direct law. What is left aliases like X - G, whose tails are lighter (see TailTerm), and the
  * CF of X (not X minus G, whose CF may fall off like 1/t, e.g. a pareto) is what is summed.
  *
- * The alternating series have terms that are smooth and monotone in m far out (power tails): they are summed by the
- * acceleration of Cohen, Rodriguez Villegas & Zagier (2000), Experimental Mathematics 9(1), Algorithm 1, which converges
- * like 5.8^-n for moments of a positive measure (e.g. (m + c)^-alpha). Error estimate: the difference between n = N and
- * n = N - 6 terms, plus the direct law's own bounds (every weight of the algorithm is at most 1 in size).
+ * Each side's alternating series (S(x + mT), F(x - mT), the densities) is summed by the acceleration of Cohen,
+ * Rodriguez Villegas & Zagier (2000), Experimental Mathematics 9(1), Algorithm 1, with n = N terms. Its error, derived:
+ *  - where the law splits its tail into completely monotone parts (DirectLaw.monotoneSplit), the terms from the first
+ *    image outward are a signed moment sequence int t^k dmu(t) on [0, 1] (Bernstein's theorem), and the theorem of that
+ *    paper (Proposition 1: S - S_n = int P_n(t)/(1 + t) dmu / d_n, |P_n| <= 1 on [0, 1]) bounds it by the split's
+ *    size at the first image over d_n = T_n(3) (about 5.8^n); a remainder R beside the split (a stable law's tail
+ *    series) adds at most twice sum_m |R| at the images (once in the series, once in the weighted sum);
+ *  - else by the alternating series test: the tail terms are non-increasing in m for every law, so the partial sums
+ *    bracket the limit; beyond the mode (DirectLaw.mode, or the interval ../direct/shortfall.ts derives for a unimodal
+ *    law) S and F are convex in the distance, and the rest after n - 2 terms lies between half the next term and that
+ *    plus half the next difference; the densities are non-increasing there (no mode known: no bound). The error is the
+ *    accelerated value's distance to the far end of the bracket.
+ * Plus the law's own bounds (every weight is at most 1 in size), the rounding of the weights and of the sums, and the
+ * rounding of the image points (the tails move by the density times it).
  */
 
-const N = 22;
-const N_LO = 16;
+export const N = 22;
 
-function cvz(a: Float64Array, n: number): number {
-  let d = Math.pow(3 + Math.sqrt(8), n);
-  d = (d + 1 / d) / 2;
-  let b = -1;
+/**
+ * The weights c_k / d_n of Algorithm 1 (n = N; the sum is sum_k w_k a_k, signs included), from the integers
+ * d_n = T_n(3) and c_k = b_k - c_{k-1}, c_{-1} = -d_n, b_k = (-1)^{k+1} n/(n + k) C(n + k, 2k) 4^k computed exactly;
+ * each weight is within 3.01 u of its size (two conversions and a quotient).
+ */
+function cvzWeights(n: number): { w: Float64Array; invD: number } {
+  let t0 = 1n;
+  let t1 = 3n;
+  for (let k = 1; k < n; k++) [t0, t1] = [t1, 6n * t1 - t0];
+  const d = t1;
+  const w = new Float64Array(n);
+  let b = -1n;
   let c = -d;
-  let s = 0;
   for (let k = 0; k < n; k++) {
     c = b - c;
-    s += c * a[k];
-    b = ((k + n) * (k - n) * b) / ((k + 0.5) * (k + 1));
+    w[k] = Number(c) / Number(d);
+    b = (2n * BigInt(k + n) * BigInt(k - n) * b) / BigInt((2 * k + 1) * (k + 1));
   }
-  return s / d;
+  // 1/d_n rounded up
+  return { w, invD: (1 / Number(d)) * (1 + 4 * Number.EPSILON) };
+}
+
+export const CVZ = cvzWeights(N);
+
+/** sum_k w_k a_k and the bound on its rounding: the weights' 3.01 u and the sum's (N + 1) u of sum |a_k| (|w_k| <= 1) */
+export function cvz(a: Float64Array): { v: number; round: number } {
+  const { w } = CVZ;
+  let s = 0;
+  let abs = 0;
+  for (let k = 0; k < N; k++) {
+    s += w[k] * a[k];
+    abs += Math.abs(a[k]);
+  }
+  return { v: s, round: (N + 6) * Number.EPSILON * abs };
+}
+
+/**
+ * [lo, hi] holding sum_{m >= 1} (-1)^{m+1} t_m from t_1..t_N (t[k] = t_{k+1}, each within e[k], all non-negative):
+ * with `convex` (t non-increasing and convex from t_{N-1} on) the rest after N - 2 terms is (-1)^N r, r in
+ * [t_{N-1}/2, t_{N-1} - t_N/2]; else (t non-increasing from t_N on) the rest after N - 1 terms is (-1)^(N-1) r, r in
+ * [0, t_N] (Knopp, Theory and Application of Infinite Series, sec. 82: the alternating series test; the convex case
+ * averages two such rests: r + r' = t_{M+1} and 0 <= r - r' <= t_{M+1} - t_{M+2}).
+ */
+export function alternatingBracket(t: Float64Array, e: Float64Array, convex: boolean): [number, number] {
+  const M = convex ? N - 2 : N - 1;
+  let p = 0;
+  let abs = 0;
+  let err = 0;
+  for (let k = 0; k < M; k++) {
+    p += k % 2 === 0 ? t[k] : -t[k];
+    abs += Math.abs(t[k]);
+    err += e[k];
+  }
+  const rLo = convex ? t[N - 2] / 2 : 0;
+  const rHi = convex ? t[N - 2] - t[N - 1] / 2 : t[N - 1];
+  err += convex ? e[N - 2] + e[N - 1] : e[N - 1];
+  const sg = M % 2 === 0 ? 1 : -1;
+  const slack = err + 2 * (N + 2) * Number.EPSILON * (abs + Math.abs(t[N - 2]) + Math.abs(t[N - 1]));
+  return [p + Math.min(sg * rLo, sg * rHi) - slack, p + Math.max(sg * rLo, sg * rHi) + slack];
+}
+
+/** |v - true| for a value v of a series whose limit lies in [lo, hi] */
+export function farEnd(v: number, [lo, hi]: [number, number]): number {
+  return Math.max(v - lo, hi - v, 0);
 }
 
 export interface ImageSums {
@@ -43,14 +105,42 @@ export interface ImageSums {
 export interface ImageScratch {
   a: Float64Array;
   b: Float64Array;
+  /** per side: tails, densities and their bounds at the N images of one level */
+  t: Float64Array[];
+  f: Float64Array[];
+  et: Float64Array[];
+  ef: Float64Array[];
   pt: DirectPoint;
-  /** imageLadder's per-offset values (six per offset) and which offsets are filled */
+  /** imageLadder's per-offset values (eight per offset) and which offsets are filled */
   by?: Float64Array;
   seen?: Uint8Array;
 }
 
 export function imageScratch(): ImageScratch {
-  return { a: new Float64Array(N), b: new Float64Array(N), pt: directPoint() };
+  const four = () => [new Float64Array(N), new Float64Array(N)];
+  return { a: new Float64Array(N), b: new Float64Array(N), t: four(), f: four(), et: four(), ef: four(), pt: directPoint() };
+}
+
+/**
+ * The truncation bound of one side's accelerated sums (cdf part and pdf part) at period T: from the law's completely
+ * monotone split at the first image y1 when it has one, else from the brackets (see the module notes).
+ */
+function sideBound(law: DirectLaw, side: 1 | -1, x: number, T: number, s: ImageScratch, i: number): { c: number; p: number } {
+  const y1 = x + side * T;
+  const split = law.monotoneSplit?.(y1, side, T);
+  const [mLo, mHi] = modeRange(law);
+  // distance outward of the image m from the mode: convex (tails) or monotone (densities) from there on
+  const beyond = (m: number) => (side === 1 ? x + m * T >= mHi : x - m * T <= mLo);
+  let c = farEnd(cvz(s.t[i]).v, alternatingBracket(s.t[i], s.et[i], beyond(N - 1)));
+  let p = beyond(N) ? farEnd(cvz(s.f[i]).v, alternatingBracket(s.f[i], s.ef[i], false)) : Infinity;
+  // both are bounds: the smaller serves (NaN-safe: a split's Infinity never wins)
+  if (split) {
+    const sc = split.tail * CVZ.invD + 2 * split.restTail;
+    const sp = split.pdf * CVZ.invD + 2 * split.restPdf;
+    if (sc < c) c = sc;
+    if (sp < p) p = sp;
+  }
+  return { c, p };
 }
 
 /**
@@ -62,7 +152,7 @@ export function imageScratch(): ImageScratch {
 export function imageLadder(law: DirectLaw, x: number, T0: number, levels: number, s: ImageScratch): ImageSums[] {
   const { a, b, pt } = s;
   const top = N << (levels - 1);
-  if (!s.by || s.by.length < 6 * (top + 1)) s.by = new Float64Array(6 * (top + 1));
+  if (!s.by || s.by.length < 8 * (top + 1)) s.by = new Float64Array(8 * (top + 1));
   if (!s.seen || s.seen.length < top + 1) s.seen = new Uint8Array(top + 1);
   const by = s.by;
   const seen = s.seen;
@@ -73,130 +163,48 @@ export function imageLadder(law: DirectLaw, x: number, T0: number, levels: numbe
     let eP = 0;
     for (let k = 0; k < N; k++) {
       const n = (k + 1) << l;
-      const o = 6 * n;
+      const o = 8 * n;
       if (!seen[n]) {
+        // the image points x +- n T0 and the sums' own period 2 pi / h are each within a few ulps of the exact ones:
+        // the tails move by the density times that
+        const dy = 4 * Number.EPSILON * (Math.abs(x) + 2 * Math.abs(n * T0));
         law.at(x + n * T0, pt);
         by[o] = pt.sf;
         by[o + 1] = pt.pdf;
-        by[o + 2] = pt.sfErr;
+        by[o + 2] = pt.sfErr + (pt.pdf + pt.pdfErr) * dy;
         by[o + 3] = pt.pdfErr;
         law.at(x - n * T0, pt);
-        by[o] -= pt.cdf;
-        by[o + 1] += pt.pdf;
-        by[o + 4] = pt.cdfErr;
-        by[o + 5] = pt.pdfErr;
+        by[o + 4] = pt.cdf;
+        by[o + 5] = pt.pdf;
+        by[o + 6] = pt.cdfErr + (pt.pdf + pt.pdfErr) * dy;
+        by[o + 7] = pt.pdfErr;
         seen[n] = 1;
       }
-      eC += by[o + 2];
-      eP += by[o + 3];
-      eC += by[o + 4];
-      eP += by[o + 5];
-      a[k] = by[o];
-      b[k] = by[o + 1];
+      for (let i = 0; i < 2; i++) {
+        s.t[i][k] = by[o + 4 * i];
+        s.f[i][k] = by[o + 4 * i + 1];
+        s.et[i][k] = by[o + 4 * i + 2];
+        s.ef[i][k] = by[o + 4 * i + 3];
+      }
+      const w = Math.abs(CVZ.w[k]);
+      eC += w * (by[o + 2] + by[o + 6]);
+      eP += w * (by[o + 3] + by[o + 7]);
+      a[k] = by[o] - by[o + 4];
+      b[k] = by[o + 1] + by[o + 5];
     }
-    const c1 = cvz(a, N);
-    const p1 = -cvz(b, N);
-    const c0 = cvz(a, N_LO);
-    const p0 = -cvz(b, N_LO);
+    const T = T0 * 2 ** l;
+    const up = sideBound(law, 1, x, T, s, 0);
+    const dn = sideBound(law, -1, x, T, s, 1);
+    const c1 = cvz(a);
+    const p1 = cvz(b);
+    // a_k's own rounding (the difference) counts with the sums'
     out.push({
-      cdf: c1,
-      pdf: p1,
-      errCdf: Math.abs(c1 - c0) + eC + 4 * Number.EPSILON * Math.abs(a[0]),
-      errPdf: Math.abs(p1 - p0) + eP + 4 * Number.EPSILON * Math.abs(b[0]),
+      cdf: c1.v,
+      pdf: -p1.v,
+      errCdf: (eC + up.c + dn.c + 2 * c1.round) * (1 + 4 * Number.EPSILON),
+      errPdf: (eP + up.p + dn.p + 2 * p1.round) * (1 + 4 * Number.EPSILON),
     });
   }
   return out;
 }
 
-/** Gauss-Laguerre rule (weight e^-r on [0, inf)) of n nodes by Newton on L_n from the usual starting guesses (Press et
- *  al., Numerical Recipes, 3rd ed., sec. 4.6, gaulag). */
-function laguerreRule(n: number): { r: Float64Array; w: Float64Array } {
-  const r = new Float64Array(n);
-  const w = new Float64Array(n);
-  let z = 0;
-  for (let i = 0; i < n; i++) {
-    if (i === 0) z = 3 / (1 + 2.4 * n);
-    else if (i === 1) z += 15 / (1 + 2.5 * n);
-    else z += ((1 + 2.55 * (i - 1)) / (1.9 * (i - 1))) * (z - r[i - 2]);
-    let pp = 0;
-    let p2 = 0;
-    for (let it = 0; it < 100; it++) {
-      let p1 = 1;
-      p2 = 0;
-      for (let j = 0; j < n; j++) {
-        const p3 = p2;
-        p2 = p1;
-        p1 = ((2 * j + 1 - z) * p2 - j * p3) / (j + 1);
-      }
-      pp = (n * p1 - n * p2) / z;
-      const z1 = z;
-      z = z1 - p1 / pp;
-      if (Math.abs(z - z1) <= 1e-15 * z) break;
-    }
-    r[i] = z;
-    w[i] = -1 / (pp * n * p2);
-  }
-  return { r, w };
-}
-
-const LAG_HI = laguerreRule(16);
-const LAG_LO = laguerreRule(10);
-
-/**
- * pi(c) = int_c^inf S(y) dy (side 1, c right of `center`) or int_-inf^c F(y) dy (side -1, c left of it) far in a tail
- * of power index `index`: with y = center + side d e^s (d = |c - center|) and r = (index - 1) s the integrand times e^r is
- * close to constant for a power tail, so a Gauss-Laguerre rule integrates it; the estimate is the difference between
- * the 16- and 10-node rules plus the law's own bounds. A law with its own stop-loss transform at c (DirectLaw.stopLoss)
- * answers from it.
- */
-function stopLoss(law: DirectLaw, c: number, side: 1 | -1, index: number, center: number, pt: DirectPoint): { v: number; e: number } {
-  const end = side === 1 ? law.support[1] : law.support[0];
-  if (side * (c - end) >= 0) return { v: 0, e: 0 };
-  const own = law.stopLoss?.(c, side);
-  if (own) return own;
-  const d = Math.abs(c - center);
-  const beta = Number.isFinite(index) ? Math.max(index - 1, 0.05) : 1;
-  const rule = (R: { r: Float64Array; w: Float64Array }) => {
-    let v = 0;
-    let e = 0;
-    for (let i = 0; i < R.r.length; i++) {
-      const g = Math.exp(R.r[i] / beta);
-      law.at(center + side * d * g, pt);
-      const tail = side === 1 ? pt.sf : pt.cdf;
-      const te = side === 1 ? pt.sfErr : pt.cdfErr;
-      const f = g * Math.exp(R.r[i]);
-      v += R.w[i] * tail * f;
-      e += R.w[i] * te * f;
-    }
-    return { v: (d / beta) * v, e: (d / beta) * e };
-  };
-  const hi = rule(LAG_HI);
-  const lo = rule(LAG_LO);
-  return { v: hi.v, e: Math.abs(hi.v - lo.v) + hi.e + 4 * Number.EPSILON * Math.abs(hi.v) };
-}
-
-/**
- * G's share of the mid-point sum for E|X - q| (./shortfall.ts), which equals E[tri_T(X - q)] with the triangle wave of
- * period 2T: tri_T(u) - |u| = 2 sum_{k >= 1} (-1)^k [(u - kT)^+ + (-u - kT)^+], so G's images add
- * 2 sum_{k >= 1} (-1)^k [pi_G(q + kT) + pi^-_G(q - kT)], summed by the same acceleration as above.
- */
-export function shortfallImages(
-  law: DirectLaw,
-  tails: { left: number; right: number },
-  q: number,
-  T: number,
-  s: ImageScratch,
-): { value: number; error: number } {
-  const { a, pt } = s;
-  let e = 0;
-  for (let k = 0; k < N; k++) {
-    const m = k + 1;
-    const up = stopLoss(law, q + m * T, 1, tails.right, law.center, pt);
-    const dn = stopLoss(law, q - m * T, -1, tails.left, law.center, pt);
-    a[k] = up.v + dn.v;
-    e += up.e + dn.e;
-  }
-  const v1 = -2 * cvz(a, N);
-  const v0 = -2 * cvz(a, N_LO);
-  return { value: v1, error: Math.abs(v1 - v0) + 2 * e + 8 * Number.EPSILON * Math.abs(a[0]) };
-}
