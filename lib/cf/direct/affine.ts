@@ -69,12 +69,12 @@ export function affineDirect(law: DirectLaw, a: number, b: number): DirectLaw {
     // and the stop-loss transform times |a|; the side turns over with a < 0
     ...(law.monotoneSplit
       ? {
-          monotoneSplit: (y: number, side: 1 | -1, step: number) => {
+          monotoneSplit: (y: number, side: 1 | -1, step: number, stopLoss: boolean) => {
             const x = (y - b) / a;
             const s = a > 0 ? side : ((-side) as 1 | -1);
             const dx = 2 * Number.EPSILON * (Math.abs(y) + Math.abs(b)) / aa + Number.EPSILON * Math.abs(x);
             // the step rounded down: the rest's sum grows as the points close up
-            const r = law.monotoneSplit!(x - s * dx, s, (step / aa) * (1 - 4 * Number.EPSILON));
+            const r = law.monotoneSplit!(x - s * dx, s, (step / aa) * (1 - 4 * Number.EPSILON), stopLoss);
             if (!r) return null;
             const up = 1 + 4 * Number.EPSILON;
             return { tail: r.tail, pdf: (r.pdf / aa) * up, stopLoss: aa * r.stopLoss * up, restTail: r.restTail, restPdf: (r.restPdf / aa) * up, restStopLoss: aa * r.restStopLoss * up };

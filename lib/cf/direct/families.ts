@@ -332,7 +332,7 @@ export function studentDirect(nu: number, loc: number, scale: number): DirectLaw
   // for z^2 > nu: powers of z, completely monotone. Summed with |binom(-s, j)|, x^s becomes (nu/(z^2 - nu))^s, the same
   // x at w = sqrt(z^2 - 2 nu): the split's sizes are the law's own S(w) and f(w), and int_z^inf S(sqrt(u^2 - 2 nu)) du <=
   // the stop-loss transform at w (du = w dw / u, w <= u). Left: the mirror image. Taken where z^2 > 2 nu (1 + 1e-9).
-  const split = (y: number, side: 1 | -1) => {
+  const split = (y: number, side: 1 | -1, _step: number, wantStopLoss: boolean) => {
     const z = (y - loc) / scale;
     // |z| less its rounding (as in at), w rounded down (a few ulps of margin): the sizes fall with w
     const za = Math.abs(z) - (2 * EPS * (Math.abs(y) + Math.abs(loc))) / scale - EPS * Math.abs(z);
@@ -340,11 +340,14 @@ export function studentDirect(nu: number, loc: number, scale: number): DirectLaw
     const w = Math.sqrt(za * za - 2 * nu) * (1 - 8 * EPS);
     // the point rounded inward (the law evaluates (at - loc)/scale, at most w)
     const at = loc + side * (scale * w - 4 * EPS * (Math.abs(loc) + scale * w));
+    if (wantStopLoss) {
+      const sl = nu > 1 ? stopLossT(at, side) : null;
+      const stopLoss = sl ? (sl.v + sl.e) * (1 + 4 * EPS) : Infinity;
+      return { tail: Infinity, pdf: Infinity, stopLoss, restTail: 0, restPdf: 0, restStopLoss: 0 };
+    }
     L.at(at, sp);
     const tail = (side === 1 ? sp.sf + sp.sfErr : sp.cdf + sp.cdfErr) * (1 + 4 * EPS);
-    const sl = nu > 1 ? stopLossT(at, side) : null;
-    const stopLoss = sl ? (sl.v + sl.e) * (1 + 4 * EPS) : Infinity;
-    return { tail, pdf: (sp.pdf + sp.pdfErr) * (1 + 4 * EPS), stopLoss, restTail: 0, restPdf: 0, restStopLoss: 0 };
+    return { tail, pdf: (sp.pdf + sp.pdfErr) * (1 + 4 * EPS), stopLoss: Infinity, restTail: 0, restPdf: 0, restStopLoss: 0 };
   };
   if (!(nu > 1)) return withMode(loc, { ...L, monotoneSplit: split });
   return withMode(loc, {

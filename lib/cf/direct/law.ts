@@ -109,12 +109,15 @@ export function withMonotoneTail(l: DirectLaw): DirectLaw {
   const lo = l.support[0];
   return {
     ...l,
-    monotoneSplit(y: number, side: 1 | -1) {
+    monotoneSplit(y: number, side: 1 | -1, _step: number, stopLoss: boolean) {
       if (side === -1) return y < lo ? { tail: 0, pdf: 0, stopLoss: 0, restTail: 0, restPdf: 0, restStopLoss: 0 } : null;
       if (!(y >= lo)) return null;
+      if (stopLoss) {
+        const sl = l.stopLoss?.(y, 1);
+        return { tail: Infinity, pdf: Infinity, stopLoss: sl ? sl.v + sl.e : Infinity, restTail: 0, restPdf: 0, restStopLoss: 0 };
+      }
       l.at(y, pt);
-      const sl = l.stopLoss?.(y, 1);
-      return { tail: pt.sf + pt.sfErr, pdf: pt.pdf + pt.pdfErr, stopLoss: sl ? sl.v + sl.e : Infinity, restTail: 0, restPdf: 0, restStopLoss: 0 };
+      return { tail: pt.sf + pt.sfErr, pdf: pt.pdf + pt.pdfErr, stopLoss: Infinity, restTail: 0, restPdf: 0, restStopLoss: 0 };
     },
   };
 }

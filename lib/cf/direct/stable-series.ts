@@ -260,48 +260,49 @@ export function stableTailStopLoss(alpha: number, beta: number, z: number): { v:
  * z; the sines are at most 1 in size), and the remainder's derived bound B(z') = the n-th size times
  * (sin psi*)^{-(n alpha + 1)} (module notes), which falls like z'^{-p} (p = n alpha for the sf, n alpha + 1 for the
  * density, n alpha - 1 for the stop-loss transform): summed over z + m step, m >= 0, at most B(z) (1 + z / ((p - 1) step))
- * (the sum of a decreasing function below its first value plus its integral). n is the one with the least remainder for
- * the sf. Each exponent within eps times its parts' sizes plus lgamma's bounds (as the series above): the sizes are
- * rounded up by that.
+ * (the sum of a decreasing function below its first value plus its integral). n: the first whose remainder is below
+ * 2^-64 of the first term (far below the law's own bounds), else the least one. Each exponent within eps times its
+ * parts' sizes plus lgamma's bounds (as the series above): the sizes are rounded up by that. The stop-loss sizes when
+ * `stopLoss` (alpha > 1), else the sf's and density's (the others Infinity).
  */
-export function stableTailSplit(alpha: number, beta: number, z: number, step: number) {
-  if (!(z > 0) || !(step > 0) || alpha === 1 || beta === -1) return null;
+export function stableTailSplit(alpha: number, beta: number, z: number, step: number, stopLoss: boolean) {
+  if (!(z > 0) || !(step > 0) || alpha === 1 || beta === -1 || (stopLoss && !(alpha > 1))) return null;
   const { lSf, lPdf, size, lsin, eSf, ePdf } = coeffsFor(alpha, beta);
   if (!(lsin > -Infinity)) return null;
   const lz = Math.log(z);
   const up = (l: number, e: number, k: number) => Math.exp(l) * (1 + Math.expm1(e + 8 * Number.EPSILON * (size[k] + Math.abs(l) + (k * alpha + 2) * (Math.abs(lz) + Math.abs(lsin)))));
-  // sizes of term k (sf, pdf, stop-loss), without the remainder's growth factor
+  // sizes of term k (sf, pdf, stop-loss), without the remainder's growth factor; sum over the images of z'^-p
   const mSf = (k: number) => up(lSf[k] - k * alpha * lz, eSf[k], k);
   const mPdf = (k: number) => up(lPdf[k] - (k * alpha + 1) * lz, ePdf[k], k);
-  const mSl = (k: number) => (k * alpha > 1 ? up(lSf[k] - (k * alpha - 1) * lz - Math.log(k * alpha - 1), eSf[k] + 4 * Number.EPSILON, k) : Infinity);
+  const mSl = (k: number) => up(lSf[k] - (k * alpha - 1) * lz - Math.log(k * alpha - 1), eSf[k] + 4 * Number.EPSILON, k);
   const grow = (k: number) => up(-(k * alpha + 1) * lsin, 0, k);
   const sum = (p: number) => (p > 1 ? 1 + z / ((p - 1) * step) : Infinity);
+  const lead = stopLoss ? mSl : mSf;
+  const shift = stopLoss ? -1 : 0;
+  const first = lead(1);
   let best = Infinity;
   let n = 2;
   for (let k = 2; k <= MAX_TERMS + 1; k++) {
-    const r = mSf(k) * grow(k) * sum(k * alpha);
+    const r = lead(k) * grow(k) * sum(k * alpha + shift);
     if (r < best) {
       best = r;
       n = k;
+      if (r <= 2 ** -64 * first) break;
     } else if (r > 4 * best) break;
   }
   if (!Number.isFinite(best)) return null;
+  const g = grow(n);
+  const r = (1 + 16 * Number.EPSILON) / Math.PI;
+  if (stopLoss) {
+    let sl = 0;
+    for (let k = 1; k < n; k++) sl += mSl(k);
+    return { tail: Infinity, pdf: Infinity, stopLoss: sl * r, restTail: 0, restPdf: 0, restStopLoss: mSl(n) * g * sum(n * alpha - 1) * r };
+  }
   let tail = 0;
   let pdf = 0;
-  let stopLoss = 0;
   for (let k = 1; k < n; k++) {
     tail += mSf(k);
     pdf += mPdf(k);
-    stopLoss += mSl(k);
   }
-  const g = grow(n);
-  const r = (1 + 16 * Number.EPSILON) / Math.PI;
-  return {
-    tail: tail * r,
-    pdf: pdf * r,
-    stopLoss: stopLoss * r,
-    restTail: mSf(n) * g * sum(n * alpha) * r,
-    restPdf: mPdf(n) * g * sum(n * alpha + 1) * r,
-    restStopLoss: mSl(n) * g * sum(n * alpha - 1) * r,
-  };
+  return { tail: tail * r, pdf: pdf * r, stopLoss: Infinity, restTail: mSf(n) * g * sum(n * alpha) * r, restPdf: mPdf(n) * g * sum(n * alpha + 1) * r, restStopLoss: 0 };
 }

@@ -77,10 +77,10 @@ export function stableDirect(alpha: number, beta: number, scale: number, loc: nu
     },
     // far in a tail (alpha != 1): the tail series' powers and its remainder (./stable-series.ts); z < 0 by reflection,
     // z taken inward by its rounding (the sizes fall outward), the step in units of g rounded down
-    monotoneSplit: (y: number, side: 1 | -1, step: number) => {
+    monotoneSplit: (y: number, side: 1 | -1, step: number, stopLoss: boolean) => {
       const dz = (2 * Number.EPSILON * (Math.abs(y) + Math.abs(d1)) + (param === "S1" ? 0 : 4 * Number.EPSILON * Math.abs(shift10))) / g;
       const z = (side * (y - d1)) / g - dz;
-      const r = stableTailSplit(alpha, side * beta, z * (1 - 2 * Number.EPSILON), (step / g) * (1 - 4 * Number.EPSILON));
+      const r = stableTailSplit(alpha, side * beta, z * (1 - 2 * Number.EPSILON), (step / g) * (1 - 4 * Number.EPSILON), stopLoss);
       if (!r) return null;
       const u = 1 + 4 * Number.EPSILON;
       return { tail: r.tail, pdf: (r.pdf / g) * u, stopLoss: r.stopLoss * g * u, restTail: r.restTail, restPdf: (r.restPdf / g) * u, restStopLoss: r.restStopLoss * g * u };

@@ -43,9 +43,10 @@ export interface DirectLaw {
    * (the same split differentiated) and for the stop-loss transform (the same split integrated outward), and `rest*`
    * bounds on sum_{m >= 0} |R| at the points y + side m step (zero where the split is exact); null where no such split is
    * known at y. Values at an arithmetic progression outward are then a signed Hausdorff moment sequence plus R, and
-   * ../invert/images.ts bounds their accelerated alternating sums by the theorem for those.
+   * ../invert/images.ts bounds their accelerated alternating sums by the theorem for those. The stop-loss sizes only
+   * when `stopLoss` is set (else Infinity), the tail and density sizes only when it is not (else Infinity).
    */
-  monotoneSplit?(y: number, side: 1 | -1, step: number): MonotoneSplit | null;
+  monotoneSplit?(y: number, side: 1 | -1, step: number, stopLoss: boolean): MonotoneSplit | null;
   /** optional: the law is unimodal (a mode exists, not known in closed form): ./answer.ts derives an interval holding it */
   readonly unimodal?: boolean;
   /**

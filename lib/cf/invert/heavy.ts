@@ -11,7 +11,7 @@ import { buildNodes, cutoffFor, probeEnvelope, truncationAt, type Envelope, type
 import { makePart, withTailLaw, type ContinuousPart } from "./part";
 import { sumPointwise } from "./pointwise";
 import { lawShape, type LawShape } from "./range";
-import { richardsonAmplification, richardsonLastStep, richardsonExponents, richardsonExponentsMulti, richardsonRow, richardsonRowArrays } from "./richardson";
+import { RICHARDSON_ESTIMATE_NOTE, richardsonAmplification, richardsonLastStep, richardsonExponents, richardsonExponentsMulti, richardsonRow, richardsonRowArrays } from "./richardson";
 import {
   MAX_FFT,
   MAX_LEVELS,
@@ -42,7 +42,8 @@ import { checkDeadline } from "../deadline";
  * combined by Richardson extrapolation with exponents {j alpha + i : j >= 1, i >= 0} in increasing order
  * (tails ~ sum_j c_j y^{-j alpha}, Bergstrom's series for stable laws; the images at x + mT expanded in x/T
  * add the integer steps), shifted by 1 for the density. The error estimate is twice the last change of the
- * extrapolated value, plus the truncation and rounding bounds times the extrapolation's amplification.
+ * extrapolated value (an estimate, not derived: the answer says so, RICHARDSON_ESTIMATE_NOTE), plus the truncation and
+ * rounding bounds times the extrapolation's amplification.
  */
 export function heavyPath(
   part: ContinuousPart,
@@ -161,6 +162,7 @@ export function heavyPath(
     result!.error.pdf = bestPdf.err;
   }
   notes.push(`power tails (index ${shape.alpha}): period doubled ${result!.levels - 1} times with Richardson extrapolation`);
+  notes.push(RICHARDSON_ESTIMATE_NOTE);
   if (part.kernels.length || part.tail) {
     const added = addKernels(part, requestPoints(req), result!.pdf, result!.cdf, result!.sf);
     result!.error.cdf += added.errCdf;

@@ -6,7 +6,8 @@ import { alternatingBracket, CVZ, cvz, farEnd, N, type ImageScratch } from "./im
  * stop-loss transforms pi(q + mT) and pi^-(q - mT) summed by the same acceleration, with a derived truncation bound
  * (the law's completely monotone split integrated outward, or the brackets: pi is non-increasing and convex in the
  * distance for every law, pi'' = f >= 0). Each transform comes from the law's own (DirectLaw.stopLoss) or, failing
- * that, from a Gauss-Laguerre rule whose error is only estimated (the answer then says `derived: false`).
+ * that, from a Gauss-Laguerre rule whose error is only estimated (inside the ES route's Richardson extrapolation, whose
+ * answer says its bound is partly estimated: RICHARDSON_ESTIMATE_NOTE).
  */
 
 /** Gauss-Laguerre rule (weight e^-r on [0, inf)) of n nodes by Newton on L_n from the usual starting guesses (Press et
@@ -48,20 +49,20 @@ const LAG_LO = laguerreRule(10);
  * left of a law with a lower end lo from the upper one: int_lo^c F = (c - lo) - pi(lo) + pi(c) (derived). Else, far in
  * a tail of power index `index`: with y = center + side d e^s (d = |c - center|) and r = (index - 1) s the integrand
  * times e^r is close to constant for a power tail, so a Gauss-Laguerre rule integrates it; its error is estimated as the
- * difference between the 16- and 10-node rules plus the law's own bounds (derived: false).
+ * difference between the 16- and 10-node rules plus the law's own bounds (an estimate).
  */
-function stopLoss(law: DirectLaw, c: number, side: 1 | -1, index: number, center: number, pt: DirectPoint): { v: number; e: number; derived: boolean } {
+function stopLoss(law: DirectLaw, c: number, side: 1 | -1, index: number, center: number, pt: DirectPoint): { v: number; e: number } {
   const end = side === 1 ? law.support[1] : law.support[0];
-  if (side * (c - end) >= 0) return { v: 0, e: 0, derived: true };
+  if (side * (c - end) >= 0) return { v: 0, e: 0 };
   const own = law.stopLoss?.(c, side);
-  if (own) return { ...own, derived: true };
+  if (own) return own;
   if (side === -1 && Number.isFinite(end)) {
     const atLo = law.stopLoss?.(end, 1);
     const atC = law.stopLoss?.(c, 1);
     if (atLo && atC) {
       const d = c - end;
       const v = Math.max(d - atLo.v + atC.v, 0);
-      return { v, e: atLo.e + atC.e + 4 * Number.EPSILON * (d + atLo.v + atC.v), derived: true };
+      return { v, e: atLo.e + atC.e + 4 * Number.EPSILON * (d + atLo.v + atC.v) };
     }
   }
   const d = Math.abs(c - center);
@@ -82,13 +83,13 @@ function stopLoss(law: DirectLaw, c: number, side: 1 | -1, index: number, center
   };
   const hi = rule(LAG_HI);
   const lo = rule(LAG_LO);
-  return { v: hi.v, e: Math.abs(hi.v - lo.v) + hi.e + 4 * Number.EPSILON * Math.abs(hi.v), derived: false };
+  return { v: hi.v, e: Math.abs(hi.v - lo.v) + hi.e + 4 * Number.EPSILON * Math.abs(hi.v) };
 }
 
 /**
  * G's share of the mid-point sum for E|X - q| (./shortfall.ts), which equals E[tri_T(X - q)] with the triangle wave of
  * period 2T: tri_T(u) - |u| = 2 sum_{k >= 1} (-1)^k [(u - kT)^+ + (-u - kT)^+], so G's images add
- * 2 sum_{k >= 1} (-1)^k [pi_G(q + kT) + pi^-_G(q - kT)]. `derived` says whether every transform had a derived bound.
+ * 2 sum_{k >= 1} (-1)^k [pi_G(q + kT) + pi^-_G(q - kT)].
  */
 export function shortfallImages(
   law: DirectLaw,
@@ -96,17 +97,15 @@ export function shortfallImages(
   q: number,
   T: number,
   s: ImageScratch,
-): { value: number; error: number; derived: boolean } {
+): { value: number; error: number } {
   const { a, pt } = s;
   const [tU, tD] = s.t;
   const [eU, eD] = s.et;
   let e = 0;
-  let derived = true;
   for (let k = 0; k < N; k++) {
     const m = k + 1;
     const up = stopLoss(law, q + m * T, 1, tails.right, law.center, pt);
     const dn = stopLoss(law, q - m * T, -1, tails.left, law.center, pt);
-    derived &&= up.derived && dn.derived;
     tU[k] = up.v;
     tD[k] = dn.v;
     eU[k] = up.e;
@@ -117,11 +116,10 @@ export function shortfallImages(
   // per side: the split's stop-loss size at the first image over d_n, or the convex bracket
   let trunc = 0;
   for (const [side, t, et] of [[1, tU, eU], [-1, tD, eD]] as const) {
-    const split = law.monotoneSplit?.(q + side * T, side, T);
-    const bracket = farEnd(cvz(t).v, alternatingBracket(t, et, true));
+    const split = law.monotoneSplit?.(q + side * T, side, T, true);
     const viaSplit = split ? split.stopLoss * CVZ.invD + 2 * split.restStopLoss : Infinity;
-    trunc += viaSplit < bracket ? viaSplit : bracket;
+    trunc += viaSplit < Infinity ? viaSplit : farEnd(cvz(t).v, alternatingBracket(t, et, true));
   }
   const r = cvz(a);
-  return { value: -2 * r.v, error: 2 * (e + trunc + 2 * r.round) * (1 + 4 * Number.EPSILON), derived };
+  return { value: -2 * r.v, error: 2 * (e + trunc + 2 * r.round) * (1 + 4 * Number.EPSILON) };
 }

@@ -126,20 +126,16 @@ export function imageScratch(): ImageScratch {
  * monotone split at the first image y1 when it has one, else from the brackets (see the module notes).
  */
 function sideBound(law: DirectLaw, side: 1 | -1, x: number, T: number, s: ImageScratch, i: number): { c: number; p: number } {
-  const y1 = x + side * T;
-  const split = law.monotoneSplit?.(y1, side, T);
+  const split = law.monotoneSplit?.(x + side * T, side, T, false);
+  let c = split ? split.tail * CVZ.invD + 2 * split.restTail : Infinity;
+  let p = split ? split.pdf * CVZ.invD + 2 * split.restPdf : Infinity;
+  // the brackets only where the split gives no finite bound (the mode of a law without a closed-form one costs a search)
+  if (c < Infinity && p < Infinity) return { c, p };
   const [mLo, mHi] = modeRange(law);
   // distance outward of the image m from the mode: convex (tails) or monotone (densities) from there on
   const beyond = (m: number) => (side === 1 ? x + m * T >= mHi : x - m * T <= mLo);
-  let c = farEnd(cvz(s.t[i]).v, alternatingBracket(s.t[i], s.et[i], beyond(N - 1)));
-  let p = beyond(N) ? farEnd(cvz(s.f[i]).v, alternatingBracket(s.f[i], s.ef[i], false)) : Infinity;
-  // both are bounds: the smaller serves (NaN-safe: a split's Infinity never wins)
-  if (split) {
-    const sc = split.tail * CVZ.invD + 2 * split.restTail;
-    const sp = split.pdf * CVZ.invD + 2 * split.restPdf;
-    if (sc < c) c = sc;
-    if (sp < p) p = sp;
-  }
+  if (!(c < Infinity)) c = farEnd(cvz(s.t[i]).v, alternatingBracket(s.t[i], s.et[i], beyond(N - 1)));
+  if (!(p < Infinity) && beyond(N)) p = farEnd(cvz(s.f[i]).v, alternatingBracket(s.f[i], s.ef[i], false));
   return { c, p };
 }
 

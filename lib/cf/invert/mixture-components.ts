@@ -11,7 +11,7 @@ import { dampedExcess, lightTailTarget } from "./quantile-damped";
 import { dampedReach, startRange } from "./damped-reach";
 import { lawShape } from "./range";
 import { evalLadder, growLadder, heavyLadder } from "./heavy";
-import { richardsonAmplification } from "./richardson";
+import { RICHARDSON_ESTIMATE_NOTE, richardsonAmplification } from "./richardson";
 import { heavyShortfall, shortfallLight } from "./shortfall";
 import { stopLossBounds } from "./tail-moments";
 import { markovExcess, markovTail, momentBounds } from "./moment-tails";
@@ -316,7 +316,7 @@ function heavyComponent(w: number, m: CompiledModel, tol: number, tail: number):
       return excessAt(q, 1e-8 * Math.max(v.S, 1e-12) * Math.max(1, Math.abs(q), shape.spread));
     },
     terms: () => lad.levels[lad.levels.length - 1].K,
-    notes: () => [`power tails: ${lad.levels.length} period doublings from T = ${T0.toPrecision(4)}, Richardson extrapolation`],
+    notes: () => [`power tails: ${lad.levels.length} period doublings from T = ${T0.toPrecision(4)}, Richardson extrapolation`, RICHARDSON_ESTIMATE_NOTE],
     method: "gil-pelaez",
   };
 }

@@ -6,7 +6,7 @@ import type { Atom, CompiledModel } from "../types";
 import { evalLadder, growLadder, heavyLadder, invertWithinTerms, type HeavyLadder } from "./continuous";
 import { atomMass, roundingOf, solutionAt } from "./shared";
 import { lawShape } from "./range";
-import { richardsonAmplification } from "./richardson";
+import { RICHARDSON_ESTIMATE_NOTE, richardsonAmplification } from "./richardson";
 import { atomQuantiles, latticeQuantiles } from "./quantile-table";
 import { heavyShortfall, shortfallLight } from "./shortfall";
 import { stopLossBounds } from "./tail-moments";
@@ -316,6 +316,7 @@ function heavyQuantilesAt(
   for (const x of probes) ev.eval(x);
   ev.errCdf = 2 * seenErr + 4 * Number.EPSILON;
   notes.push(`power tails: ${lad.levels.length} period doublings from T = ${T0.toPrecision(4)}, Richardson extrapolation`);
+  notes.push(RICHARDSON_ESTIMATE_NOTE);
   const [lo, hi] = shape.support;
   const xs = new Float64Array(p.length);
   const err = new Float64Array(p.length);

@@ -6,6 +6,14 @@
  */
 
 /**
+ * What an answer says wherever its error bound rests on richardsonLastStep or richardsonChange: the error left after the
+ * extrapolation is estimated, not derived (the parts around it, truncation, rounding and the images taken out of the sums
+ * from direct laws, ./images.ts, are bounded).
+ */
+export const RICHARDSON_ESTIMATE_NOTE =
+  "error bound partly estimated, not derived: the aliasing left after Richardson extrapolation in the period (power tails) is estimated as twice the last extrapolation step; frequency truncation, rounding and the images of the heaviest terms are bounded";
+
+/**
  * Exponents {j alpha + i + shift : j >= 1, i >= 0}, distinct, increasing, the first `count`, for tails
  * ~ sum_j c_j y^{-j alpha} whose images at x + mT are expanded in x/T (integer steps i).
  */

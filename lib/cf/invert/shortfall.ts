@@ -135,7 +135,8 @@ export function shortfallLight(
  * (e.g. Lukacs, Characteristic Functions, on absolute moments), whose mid-point sum equals E[tri_T(Y - q)] with
  * the triangle wave tri_T(u) = |u| on |u| <= T; the images beyond T give an error ~ T^{1-alpha}, removed by
  * doubling T and Richardson extrapolation with exponents j alpha + i - 1. Then E[(X-q)^+] = (E|X-q| + mu - q)/2,
- * atoms added exactly.
+ * atoms added exactly. The error left after the extrapolation is estimated from its last steps, not derived (callers
+ * say so: RICHARDSON_ESTIMATE_NOTE); the images taken out from direct laws carry derived bounds (./images-shortfall.ts).
  */
 export function heavyShortfall(
   model: CompiledModel,
