@@ -108,7 +108,7 @@ export function lomaxDirect(alpha: number, theta: number): DirectLaw {
  * (Loss Models app. A.2.2.2); log-logistic is alpha = 1 (app. A.2.2.4). q_p = theta ((1 - p)^(-1/alpha) - 1)^(1/gamma).
  */
 export function burrDirect(alpha: number, gamma: number, theta: number, name = "burr XII"): DirectLaw {
-  return withMode(gamma > 1 ? theta * Math.pow((gamma - 1) / (alpha * gamma + 1), 1 / gamma) : 0, law(
+  return withBurrSplit(alpha, gamma, theta, withMode(gamma > 1 ? theta * Math.pow((gamma - 1) / (alpha * gamma + 1), 1 / gamma) : 0, law(
     "closed-form",
     [0, Infinity],
     theta * Math.exp(Math.log(Math.expm1(Math.LN2 / alpha)) / gamma),
@@ -135,7 +135,34 @@ export function burrDirect(alpha: number, gamma: number, theta: number, name = "
     },
     (p) => theta * Math.exp(Math.log(Math.expm1(-Math.log1p(-p) / alpha)) / gamma),
     `${name} S = (1 + (x/theta)^gamma)^-alpha by log1p and expm1`,
-  ));
+  )));
+}
+
+/**
+ * Burr XII's tail split (DirectLaw.monotoneSplit): for u = (y/theta)^gamma > 1, S = u^-alpha (1 + 1/u)^-alpha =
+ * sum_j binom(-alpha, j) (y/theta)^(-gamma (alpha + j)), powers of y (completely monotone); with |binom(-alpha, j)| the sum
+ * is (u - 1)^-alpha, and its derivative's alpha gamma (u / y) (u - 1)^(-alpha - 1) bounds the density's split. u is
+ * taken low (high in the density's factor) by its rounding as in `at` (4 eps (1 + gamma |log(y/theta)|) + 2 eps gamma);
+ * the stop-loss transform's split is not given (Infinity). Left of 0 no mass.
+ */
+function withBurrSplit(alpha: number, gamma: number, theta: number, l: DirectLaw): DirectLaw {
+  const none = { tail: Infinity, pdf: Infinity, stopLoss: Infinity, restTail: 0, restPdf: 0, restStopLoss: 0 };
+  return {
+    ...l,
+    monotoneSplit(y: number, side: 1 | -1, _step: number, stopLoss: boolean) {
+      if (side === -1) return y < 0 ? { tail: 0, pdf: 0, stopLoss: 0, restTail: 0, restPdf: 0, restStopLoss: 0 } : null;
+      if (stopLoss || !(y > 0)) return stopLoss && y > 0 ? none : null;
+      const glu = gamma * Math.log(y / theta);
+      const u = Math.exp(glu);
+      const eu = 4 * EPS * (1 + Math.abs(glu)) + 2 * EPS * gamma + 4 * EPS;
+      const uLo = u * (1 - eu);
+      if (!(uLo > 1 + 1e-9)) return null;
+      const d = uLo - 1;
+      const ld = Math.log(d);
+      const up = 1 + 8 * EPS * (2 + (alpha + 1) * Math.abs(ld));
+      return { tail: Math.exp(-alpha * ld) * up, pdf: ((alpha * gamma * u * (1 + eu)) / y) * Math.exp(-(alpha + 1) * ld) * up, stopLoss: Infinity, restTail: 0, restPdf: 0, restStopLoss: 0 };
+    },
+  };
 }
 
 /**

@@ -1,0 +1,49 @@
+// The images of a single law that the power-tail inversion takes out of its periodised sums (lib/cf/invert/images.ts):
+// the accelerated alternating sums C(x, T) = sum_m (-1)^(m+1) [S(x + mT) - F(x - mT)] and P(x, T) = sum_m (-1)^m
+// [f(x + mT) + f(x - mT)] against mpmath at 30 digits (tests/fixtures/images/generate.py: Hurwitz zeta closed forms for
+// pareto and lomax, checked by mpmath.nsum with Levin's transform; Student t, burr XII and stable by nsum with Levin's
+// against Wynn's epsilon transform). Each value must lie within its derived bound (honest) and, with the law's split of its
+// tail into completely monotone parts (pareto, lomax, Student t, burr XII, stable), the bound must be tight (below 1e-13
+// absolute). The same law without its split (the alternating-series brackets, convex beyond the mode) must stay within
+// its bound too, the cdf's finite and below 1e-4.
+import { describe, expect, it } from "vitest";
+import { readFileSync } from "node:fs";
+import { compile } from "@/lib/cf";
+import { imageLadder, imageScratch } from "@/lib/cf/invert/images";
+
+interface Case {
+  model: { family?: string; of?: { family: string } };
+  x: number;
+  T0: number;
+  values: { level: number; cdf: string; pdf: string; rel_diff: number }[];
+  source: string;
+  check: string;
+}
+const fixture = JSON.parse(readFileSync(new URL("../fixtures/images/images.json", import.meta.url), "utf8")) as { cases: Case[] };
+
+describe("image sums of single laws vs mpmath (tests/fixtures/images)", () => {
+  it.each(fixture.cases.map((c) => [`${JSON.stringify(c.model)} x = ${c.x} T0 = ${c.T0}`, c] as const))("%s", (_name, c) => {
+    const law = compile(c.model as never).direct;
+    expect(law, "the family has a direct law").toBeDefined();
+    const levels = Math.max(...c.values.map((v) => v.level)) + 1;
+    expect(law!.monotoneSplit?.(c.x + c.T0, 1, c.T0, false), "the law splits its right tail").toBeTruthy();
+    for (const split of [true, false]) {
+      const r = imageLadder(split ? law! : { ...law!, monotoneSplit: undefined }, c.x, c.T0, levels, imageScratch());
+      for (const v of c.values) {
+        const got = r[v.level];
+        for (const [what, value, bound, ref] of [
+          ["cdf", got.cdf, got.errCdf, Number(v.cdf)],
+          ["pdf", got.pdf, got.errPdf, Number(v.pdf)],
+        ] as const) {
+          // the reference's own uncertainty: its cross-check difference and its 25 written digits
+          const refErr = (v.rel_diff + 1e-24) * Math.abs(ref) + 1e-300;
+          const diff = Math.abs(value - ref);
+          const info = `${JSON.stringify(c.model)} x ${c.x} T ${c.T0 * 2 ** v.level} ${what} (${split ? "split" : "brackets"}): engine ${value}, reference ${ref} (${c.source}, checked by ${c.check}), difference ${diff.toExponential(3)}, bound ${bound.toExponential(3)}`;
+          expect(diff, `${info}: within the bound`).toBeLessThanOrEqual(bound + refErr);
+          if (split) expect(bound, `${info}: bound below 1e-13`).toBeLessThanOrEqual(1e-13);
+          else if (what === "cdf") expect(bound, `${info}: bound below 1e-4`).toBeLessThanOrEqual(1e-4);
+        }
+      }
+    }
+  });
+});
