@@ -8,8 +8,9 @@
 // its bound too, the cdf's finite and below 1e-4.
 import { describe, expect, it } from "vitest";
 import { readFileSync } from "node:fs";
-import { compile } from "@/lib/cf";
+import { compile, density, quantiles } from "@/lib/cf";
 import { imageLadder, imageScratch } from "@/lib/cf/invert/images";
+import { RICHARDSON_ESTIMATE_NOTE } from "@/lib/cf/invert/richardson";
 
 interface Case {
   model: { family?: string; of?: { family: string } };
@@ -45,5 +46,21 @@ describe("image sums of single laws vs mpmath (tests/fixtures/images)", () => {
         }
       }
     }
+  });
+});
+
+// The error left after Richardson extrapolation is still estimated (lib/cf/invert/richardson.ts): every answer that rests
+// on it says so in its notes, and an answer that does not (a light-tailed sum) does not carry the note.
+describe("answers of the power-tail route say their bound is partly estimated", () => {
+  const heavy = { sum: [{ family: "pareto", alpha: 1.7, xm: 1.5 }, { family: "normal", mu: 0, sigma: 1 }] };
+  const light = { sum: [{ family: "gamma", shape: 2, rate: 1 }, { family: "normal", mu: 0, sigma: 1 }] };
+  const mix = { mix: [{ weight: 0.5, of: heavy }, { weight: 0.5, of: { family: "normal", mu: 0, sigma: 1 } }] };
+  it.each([
+    ["pareto + normal, density", () => density(compile(heavy as never), { x: [0, 2, 5] }).diagnostics.notes, true],
+    ["pareto + normal, quantiles and ES", () => quantiles(compile(heavy as never), [0.1, 0.9], { expectedShortfall: true }).diagnostics.notes, true],
+    ["mixture with pareto + normal, quantiles", () => quantiles(compile(mix as never), [0.5, 0.99]).diagnostics.notes, true],
+    ["gamma + normal, quantiles", () => quantiles(compile(light as never), [0.1, 0.9], { expectedShortfall: true }).diagnostics.notes, false],
+  ] as const)("%s", (_name, notes, estimated) => {
+    expect(notes().includes(RICHARDSON_ESTIMATE_NOTE), `notes: ${JSON.stringify(notes())}`).toBe(estimated);
   });
 });
