@@ -6,6 +6,7 @@ import { incGammaBounded, incGammaShape, type IncGamma } from "../families/incga
 import { incBetaBounded, incBetaShape } from "../families/incbeta-bounded";
 import { normalCdfBounded, type Bounded } from "../families/normal-bounded";
 import { directPoint, type DirectLaw, type DirectPoint } from "./types";
+import { oneTailSplit } from "./stable-one-tail";
 import { bounds, ELEM, EPS, law, SQRT2PI, withExcess, withMode, withMonotoneTail } from "./law";
 
 const U = EPS / 2;
@@ -193,6 +194,17 @@ export function uniformDirect(a: number, b: number): DirectLaw {
 }
 
 export function cauchyDirect(loc: number, scale: number): DirectLaw {
+  // the tail split of the alpha = 1 law with b = 0 (../direct/stable-one-tail.ts), z taken inward by its rounding
+  const split = (y: number, side: 1 | -1, step: number, stopLoss: boolean) => {
+    const z = ((side * (y - loc)) / scale - (2 * EPS * (Math.abs(y) + Math.abs(loc))) / scale) * (1 - 2 * EPS);
+    const r = stopLoss ? null : oneTailSplit(0, z, (step / scale) * (1 - 4 * EPS));
+    return r && { ...r, pdf: (r.pdf / scale) * (1 + 4 * EPS), restPdf: (r.restPdf / scale) * (1 + 4 * EPS) };
+  };
+  // symmetric and unimodal about loc (its density falls with |z|)
+  return withMode(loc, { ...cauchyLaw(loc, scale), monotoneSplit: split });
+}
+
+function cauchyLaw(loc: number, scale: number): DirectLaw {
   return law(
     "closed-form",
     [-Infinity, Infinity],

@@ -313,3 +313,23 @@ export function stableOneTail(b: number, z: number, rel = 1e-12, dz = 0): Series
 
 /** z from which the series is tried (below, its terms fall too slowly to reach a useful bound within NMAX terms) */
 const Z_MIN = 30;
+
+/**
+ * The split of the standard alpha = 1 law's tail at z > 0 (skewness b in [-1, 1) on that side, as above; b = 0 is the
+ * Cauchy law) into completely monotone parts (DirectLaw.monotoneSplit), from the same contour: the piece on the imaginary
+ * axis is a Laplace transform, f = (1/pi) int_0^1 e^{-zr} g(r) dr with g = Im e^{w(r)} (and g / r for the sf), whose
+ * positive and negative parts are completely monotone in z; |g| = e^{Re w} |sin(c r)| <= e^{|B|/e} c r, so their sizes
+ * are at most (c/pi) e^{|B|/e} / z^2 (density) and / z (sf). The piece along Im t = -1 is the remainder, at most
+ * (2/pi) e^{|B|} e^{-z'} at each z' (module notes), summed over z + m step: that over 1 - e^{-step}. For b = 0 (Cauchy)
+ * the Laplace form holds on all of (0, inf) with no remainder: 1/(1 + z^2) = int_0^inf e^{-zr} sin r dr and
+ * atan(1/z) = int_0^inf e^{-zr} sin(r)/r dr (the Laplace transforms of sin r and sin(r)/r; common practice), the same
+ * size bounds. No stop-loss transform (the mean is infinite).
+ */
+export function oneTailSplit(b: number, z: number, step: number) {
+  if (!(z > 0) || !(step > 0) || !(b >= -1 && b < 1)) return null;
+  const B = Math.abs((2 * b) / Math.PI);
+  const c = 1 + b;
+  const k = ((c / Math.PI) * Math.exp(B / Math.E)) * (1 + 16 * U);
+  const rest = b === 0 ? 0 : ((2 / Math.PI) * Math.exp(B - z) / -Math.expm1(-step)) * (1 + 16 * U);
+  return { tail: k / z, pdf: k / (z * z), stopLoss: Infinity, restTail: rest, restPdf: rest, restStopLoss: 0 };
+}

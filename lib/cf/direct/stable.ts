@@ -7,7 +7,7 @@ import { alphaTightBox } from "./stable-box";
 import { stableLightPanels } from "./stable-light";
 import type { PanelSide } from "./stable-panel-store";
 import { stableTailSeries, stableTailSplit, stableTailStopLoss } from "./stable-series";
-import { stableOneTail } from "./stable-one-tail";
+import { oneTailSplit, stableOneTail } from "./stable-one-tail";
 import type { DirectLaw, DirectPoint } from "./types";
 import { lgamma, lgammaErr } from "../families/special";
 import { cauchyDirect, normalDirect } from "./families";
@@ -75,12 +75,14 @@ export function stableDirect(alpha: number, beta: number, scale: number, loc: nu
       // times g; the rounding of z moves pi by sf(z) |dz| g <= pi (2 eps (|c| + |d1|) / g) / z
       return r ? { v: g * r.v, e: g * r.e + 4 * Number.EPSILON * g * r.v * (1 + (Math.abs(c) + Math.abs(d1)) / (g * z)) } : null;
     },
-    // far in a tail (alpha != 1): the tail series' powers and its remainder (./stable-series.ts); z < 0 by reflection,
+    // far in a tail: the tail series' powers and its remainder (./stable-series.ts; alpha = 1 ./stable-one-tail.ts); z < 0 by reflection,
     // z taken inward by its rounding (the sizes fall outward), the step in units of g rounded down
     monotoneSplit: (y: number, side: 1 | -1, step: number, stopLoss: boolean) => {
       const dz = (2 * Number.EPSILON * (Math.abs(y) + Math.abs(d1)) + (param === "S1" ? 0 : 4 * Number.EPSILON * Math.abs(shift10))) / g;
-      const z = (side * (y - d1)) / g - dz;
-      const r = stableTailSplit(alpha, side * beta, z * (1 - 2 * Number.EPSILON), (step / g) * (1 - 4 * Number.EPSILON), stopLoss);
+      const z = ((side * (y - d1)) / g - dz) * (1 - 2 * Number.EPSILON);
+      const st = (step / g) * (1 - 4 * Number.EPSILON);
+      // alpha = 1: the contour's Laplace-transform piece (./stable-one-tail.ts); no stop-loss transform (no mean)
+      const r = alpha === 1 ? (stopLoss ? null : oneTailSplit(side * beta, z, st)) : stableTailSplit(alpha, side * beta, z, st, stopLoss);
       if (!r) return null;
       const u = 1 + 4 * Number.EPSILON;
       return { tail: r.tail, pdf: (r.pdf / g) * u, stopLoss: r.stopLoss * g * u, restTail: r.restTail, restPdf: (r.restPdf / g) * u, restStopLoss: r.restStopLoss * g * u };
