@@ -175,7 +175,7 @@ export function inverseGammaDirect(alpha: number, theta: number): DirectLaw {
   const ig = incGammaShape(alpha);
   const r: IncGamma = { p: 0, q: 0, pErr: 0, qErr: 0 };
   const u = EPS / 2;
-  return withMode(theta / (alpha + 1), law(
+  return withInverseGammaSplit(alpha, theta, lg, eLg, withMode(theta / (alpha + 1), law(
     "special-function",
     [0, Infinity],
     alpha > 1 ? theta / (alpha - 1) : theta / Math.max(alpha, 0.1),
@@ -206,7 +206,32 @@ export function inverseGammaDirect(alpha: number, theta: number): DirectLaw {
     },
     (p) => theta / (p < 0.5 ? gammaincinv(p, alpha, true) : gammaincinv(1 - p, alpha, false)),
     "inverse gamma cdf by the regularised incomplete gamma function of theta/x (series and continued fraction with derived bounds)",
-  ));
+  )));
+}
+
+/**
+ * Inverse gamma's tail split (DirectLaw.monotoneSplit): with x = theta/y, S = P(alpha, x) = x^alpha sum_k (-x)^k /
+ * (k! (alpha + k) Gamma(alpha)) (A&S 6.5.29) and f = x^alpha e^-x / (y Gamma(alpha)), series in powers y^(-alpha - k)
+ * (completely monotone) for every y > 0; with the terms' sizes they sum to at most x^alpha e^x / Gamma(alpha + 1) and
+ * x^alpha e^x / (y Gamma(alpha)), and the stop-loss transform's (each power integrated outward, 1/(alpha + k - 1) <=
+ * 1/(alpha - 1)) to y/(alpha - 1) times the first. The exponent within eps times its parts' sizes plus lgamma's bound.
+ */
+function withInverseGammaSplit(alpha: number, theta: number, lg: number, eLg: number, l: DirectLaw): DirectLaw {
+  return {
+    ...l,
+    monotoneSplit(y: number, side: 1 | -1, _step: number, stopLoss: boolean) {
+      if (side === -1) return y < 0 ? { tail: 0, pdf: 0, stopLoss: 0, restTail: 0, restPdf: 0, restStopLoss: 0 } : null;
+      if (!(y > 0)) return null;
+      const x = theta / y;
+      const lx = Math.log(x);
+      const la = Math.log(alpha);
+      const E = alpha * lx + x - lg - la;
+      const up = Math.exp(eLg + 4 * EPS * (1 + 2 * alpha * Math.abs(lx) + 2 * x + Math.abs(lg) + 2 * Math.abs(la) + Math.abs(E))) * (1 + 4 * EPS);
+      const tail = Math.exp(E) * up;
+      if (stopLoss) return { tail: Infinity, pdf: Infinity, stopLoss: alpha > 1 ? ((tail * y) / (alpha - 1)) * (1 + 4 * EPS) : Infinity, restTail: 0, restPdf: 0, restStopLoss: 0 };
+      return { tail, pdf: ((tail * alpha) / y) * (1 + 4 * EPS), stopLoss: Infinity, restTail: 0, restPdf: 0, restStopLoss: 0 };
+    },
+  };
 }
 
 /**
