@@ -1,7 +1,7 @@
 import type { DensityResult } from "../invert/types";
 import type { QuantileResult } from "../invert/quantile";
 import { directPoint, type DirectLaw, type DirectPoint } from "./types";
-import { directShortfall, type RestBound } from "./shortfall";
+import { directShortfalls, type RestBound } from "./shortfall";
 
 /** Density, cdf and sf of a directly evaluated law at the points xs; each point's bounds, and the largest over the points. */
 export function directDensity(law: DirectLaw, xs: Float64Array, modelNotes: string[], out?: { pdf?: Float64Array; cdf?: Float64Array; sf?: Float64Array }): DensityResult {
@@ -203,13 +203,10 @@ export function directQuantiles(
   let es: Float64Array | undefined;
   let esErr: Float64Array | undefined;
   if (wantEs) {
-    es = new Float64Array(n);
-    esErr = new Float64Array(n);
-    for (let i = 0; i < n; i++) {
-      const r = directShortfall(law, x[i], err[i], p[i], index, mean, rest);
-      es[i] = r.value;
-      esErr[i] = r.error;
-    }
+    // the levels on each side of the median share one sweep of the tail (./shortfall.ts)
+    const r = directShortfalls(law, x, err, p, index, mean, rest);
+    es = r.value;
+    esErr = r.error;
   }
   return {
     p,

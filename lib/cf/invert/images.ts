@@ -1,4 +1,4 @@
-import { modeRange } from "../direct/shortfall";
+import { modeRange } from "../direct/shortfall-mode";
 import { directPoint, type DirectLaw, type DirectPoint } from "../direct/types";
 
 /**

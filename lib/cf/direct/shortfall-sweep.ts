@@ -1,0 +1,224 @@
+import { checkDeadline } from "../deadline";
+import { directPoint, type DirectLaw } from "./types";
+import { modeRange } from "./shortfall-mode";
+
+// One sweep of derived brackets on the tail integrals of a directly evaluated law, shared by every level on one side.
+
+/** A bound on the tail integral past u: int_u^inf S (side 1) or int_-inf^u F (side -1); Infinity where none is known. */
+export type RestBound = (u: number, side: 1 | -1) => number;
+
+/** One level's tail integral: a value inside the derived bracket [lo, hi] */
+export interface TailIntegral {
+  val: number;
+  lo: number;
+  hi: number;
+}
+
+/**
+ * the panels' bracket width allowed, relative to G(0) times their length: the bound is about ES_TOL times the tail
+ * integral times a few dozen (1e-7 costs 3x the evaluations for a 10x tighter bound)
+ */
+const ES_TOL = 1e-6;
+/** panels at most per level of the sweep (a derived bound is still returned, if a looser one) */
+const ES_PANELS = 20000;
+
+/**
+ * Derived brackets on int_{q_i}^inf S (dir 1) or int_-inf^{q_i} F (dir -1) for the points qs, ordered outwards
+ * (ascending for dir 1, descending for dir -1), in one sweep: G(d), the tail at qs[0] + dir d, is summed over panels
+ * [a, b] with a node at every q_i, and level i's integral is the sum of the panels past its node. G is non-increasing, so
+ * a panel's integral lies in [(b - a) G(b), (b - a) G(a)]; on the far side of the law's mode (DirectLaw.mode, or an
+ * interval derived for a unimodal law, ./shortfall-mode.ts) G is convex with slope -f, so it lies between the envelope of
+ * the two end tangents and the chord, and on the near side G is concave (chord and tangents swap); each value taken at
+ * the matching end of its own bound (sfErr/cdfErr, pdfErr). The panels grow while the bracket's width stays below
+ * ES_TOL G_i(0) (b - a) (times s / (a - d_i) past the spread s) for every level i whose node is passed: a panel is held
+ * to the tightest allowance among the levels it counts for, so each level keeps the accuracy its own sweep would have.
+ * Past the last node the integral is at most (D - d) G(d) towards a finite end at distance D, else the caller's derived
+ * bound (`rest`: the moments' stop-loss bound) and the law's own stop-loss transform (value and bound), else Infinity.
+ * The value: the panels' trapezoid sums with the end-slope correction, each kept inside its panel's bracket, plus an
+ * estimate of the part past the last node kept inside its bracket. An O(length^3) bracket per panel (the trapezoid's own error is far smaller): the bound is a few
+ * thousand times the actual error.
+ */
+export function tailSweep(law: DirectLaw, qs: readonly number[], dir: 1 | -1, rest: RestBound | undefined): TailIntegral[] {
+  const K = qs.length;
+  const q0 = qs[0];
+  const lower = dir < 0;
+  const end = lower ? law.support[0] : law.support[1];
+  const D = Number.isFinite(end) ? Math.abs(end - q0) : Infinity;
+  // the levels' distances from the first; the node at distance ds[i] is taken at qs[i] itself, off the sum of the
+  // widths by at most an ulp or two of |q_i| + |q_0| (covered per level below)
+  const ds = qs.map((q) => Math.min(Math.abs(q - q0), D));
+  // the mode's distance, where known: G is concave before mL and convex after mH (the mode is rounded by a few ulps,
+  // types.ts, the distance by one more: both are covered by the margin)
+  const range = modeRange(law);
+  const margin = 16 * Number.EPSILON * (Math.abs(range[0]) + Math.abs(range[1]) + Math.abs(q0));
+  const [m0, m1] = dir > 0 ? [range[0] - q0, range[1] - q0] : [q0 - range[1], q0 - range[0]];
+  const mL = Number.isFinite(m0) ? m0 - margin : -Infinity;
+  const mH = Number.isFinite(m1) ? Math.max(m1 + margin, 0) : Infinity;
+  const pt = directPoint();
+  law.at(q0, pt);
+  let gA = lower ? pt.cdf : pt.sf;
+  let eA = lower ? pt.cdfErr : pt.sfErr;
+  let fA = pt.pdf;
+  let efA = pt.pdfErr;
+  // per segment (the panels between level k's node and the next): value, bracket and the nodes' rounding slack
+  const segVal = new Float64Array(K);
+  const segLo = new Float64Array(K);
+  const segHi = new Float64Array(K);
+  const segSlack = new Float64Array(K);
+  // each level's G at its own node (upper end of its bound), and the slack for its node's offset
+  const G0 = new Float64Array(K);
+  const offset = new Float64Array(K);
+  G0[0] = Math.min(gA + eA, 1);
+  if (!(G0[0] > 0)) return qs.map(() => ({ val: 0, lo: 0, hi: 0 }));
+  const s = law.spread;
+  let cur = 0;
+  let a = 0;
+  let step = Math.min(s * 1e-3, D);
+  // the integral past the last node: within [pastLo, past]; pastEst, an estimate inside for the value only (the law's
+  // stop-loss value, else G^2/f, exact for an exponential tail)
+  let past = Infinity;
+  let pastLo = 0;
+  let pastEst = NaN;
+  let low = 0.5;
+  for (let n = 0; n < ES_PANELS * K; n++) {
+    // up to 20 000 evaluations a level of a law that may take tens of microseconds each (stable, VG, NIG)
+    if ((n & 255) === 255) checkDeadline("direct shortfall bracket");
+    const want = step;
+    let b = a + step;
+    // a node at each side of the mode, at the next level's point, and at the support's end
+    if (a < mL && b > mL) b = mL;
+    else if (a < mH && b > mH) b = mH;
+    const next = cur + 1 < K ? ds[cur + 1] : Infinity;
+    const atNext = b >= next;
+    if (atNext) b = next;
+    if (b >= D) b = D;
+    // a slow tail without a bound on what is left walks out until the steps overflow: nothing more to gain
+    if (!Number.isFinite(b)) break;
+    const wd = b - a;
+    law.at(atNext ? qs[cur + 1] : q0 + dir * b, pt);
+    const g = lower ? pt.cdf : pt.sf;
+    const eg = lower ? pt.cdfErr : pt.sfErr;
+    const f = pt.pdf;
+    const ef = pt.pdfErr;
+    const aLo = Math.max(gA - eA, 0);
+    const aHi = Math.min(gA + eA, 1);
+    // at a finite end G is 0 exactly (where the node, rounded, may fall just short of it)
+    const atEnd = b >= D;
+    const bLo = atEnd ? 0 : Math.max(g - eg, 0);
+    const bHi = Math.min(g + eg, 1);
+    // the nodes q + dir d are formed within u (|q| + d): G there is off by the mass so close, taken as twice the density
+    // at the node times that distance (a density changing by a factor 2 within 1e-16 relative is met only at a
+    // singular point, where a node has no reason to fall), the whole panel's width where the density is infinite
+    const fEnd = (fx: number, ex: number, d: number) => (Number.isFinite(fx + ex) ? 2 * (fx + ex) * Number.EPSILON * (Math.abs(q0) + d) : 1);
+    segSlack[cur] += wd * (fEnd(fA, efA, a) + (atEnd ? 0 : fEnd(f, ef, b)));
+    // monotone: between the right and left Riemann sums
+    let pLo = wd * bLo;
+    let pHi = wd * aHi;
+    const fin = Number.isFinite(fA + efA + f + ef);
+    if (a >= mH && fin) {
+      // convex: below the chord, above each tangent at a slope at least as steep as its own (right of a) or at most
+      // as steep (left of b)
+      pHi = Math.min(pHi, (wd * (aHi + bHi)) / 2);
+      pLo = Math.max(pLo, envelope(wd, aLo, -(fA + efA), bLo, -Math.max(f - ef, 0), 1));
+    } else if (b <= mL && fin) {
+      // concave: above the chord, below the tangents with the slopes swapped
+      pLo = Math.max(pLo, (wd * (aLo + bLo)) / 2);
+      pHi = Math.min(pHi, envelope(wd, aHi, -Math.max(fA - efA, 0), bHi, -(f + ef), -1));
+    }
+    const v = (wd * (gA + g)) / 2 + (fin ? (wd * wd * (f - fA)) / 12 : 0);
+    segVal[cur] += Math.min(Math.max(v, pLo), pHi);
+    segLo[cur] += pLo;
+    segHi[cur] += pHi;
+    a = b;
+    gA = g;
+    eA = eg;
+    fA = f;
+    efA = ef;
+    if (atNext) {
+      // every level whose point is here starts its sum; its node's offset from q_0 + dir d_i (half an ulp of d_i) moves
+      // its integral by at most that times G there: G(q_i) plus the density times the offset, doubled (aHi where the
+      // density is infinite)
+      for (; cur + 1 < K && ds[cur + 1] <= a; cur++) {
+        G0[cur + 1] = bHi;
+        const off = Number.EPSILON * ds[cur + 1];
+        offset[cur + 1] = off * (Number.isFinite(f + ef) ? bHi + 2 * (f + ef) * off : aHi);
+      }
+      // the allowance may have shrunk by the new level's tail: the next panel may be much shorter, once, and starts no
+      // longer than a level's own sweep would (its first panels, far below their allowance, keep its bound as tight)
+      low = 0.01;
+    }
+    if (a >= D || (cur === K - 1 && bHi === 0)) {
+      // G is 0 past here (the support's end, or an upper bound of 0 on a non-increasing tail)
+      past = 0;
+      break;
+    }
+    // far enough when what is left is below a quarter of the bracket's own tolerance for the farthest level (the smallest
+    // sum; a quarter: where a sweep stops moves with its panels, and no level's bound is to exceed its own sweep's)
+    if (cur === K - 1 && bHi * s <= ES_TOL * 1e-3 * segVal[cur]) {
+      const r = Number.isFinite(D) ? { lo: 0, hi: (D - a) * bHi, v: NaN } : restAt(law, rest, q0 + dir * a, dir);
+      [pastLo, past, pastEst] = [r.lo, r.hi, Number.isFinite(r.v) ? r.v : (g * g) / f];
+      if (past - pastLo <= ES_TOL * segVal[cur] / 4 || !Number.isFinite(past)) break;
+    }
+    // the next panel: the bracket's width grows like its length cubed, its allowance like the length (beyond the spread,
+    // like the length relative to the distance: a slow tail's long reach adds to the total only as its logarithm); the
+    // tightest allowance among the levels passed
+    let unit = Infinity;
+    for (let i = 0; i <= cur; i++) unit = Math.min(unit, ES_TOL * G0[i] * Math.min(1, s / (a - ds[i])));
+    const gap = pHi - pLo;
+    const grow = gap > 0 ? 0.9 * Math.sqrt((unit * wd) / gap) : 2;
+    // a panel cut short (by a node) does not hold back the next beyond twice the step it was meant to take
+    step = Math.min(Math.max(grow * wd, low * wd), 2 * Math.max(wd, want));
+    if (!(step > 0)) step = want;
+    if (low < 0.5) step = Math.min(step, s * 1e-3);
+    low = 0.5;
+  }
+  if (past === Infinity && Number.isFinite(D)) past = (D - a) * Math.min(gA + eA, 1);
+  else if (past === Infinity) ({ lo: pastLo, hi: past, v: pastEst } = restAt(law, rest, q0 + dir * a, dir));
+  if (!Number.isFinite(pastEst)) pastEst = (gA * gA) / fA;
+  const pastVal = Math.min(Math.max(Number.isFinite(pastEst) ? pastEst : 0, pastLo), past);
+  let val = 0;
+  let lo = 0;
+  let hi = 0;
+  let slack = 0;
+  const res = new Array<TailIntegral>(K);
+  for (let i = K - 1; i >= 0; i--) {
+    val += segVal[i];
+    lo += segLo[i];
+    hi += segHi[i];
+    slack += segSlack[i];
+    // a sweep stopped before a level's point (panels spent, steps overflowed): that level's integral lies in [0, past]
+    const reached = i <= cur;
+    const H = (reached ? hi : 0) + past + (reached ? slack + offset[i] : 0);
+    const L = reached ? lo + pastLo - slack - offset[i] : 0;
+    if (reached && !(G0[i] > 0)) res[i] = { val: 0, lo: 0, hi: 0 };
+    else if (!(H >= L)) res[i] = { val: NaN, lo: 0, hi: Infinity };
+    // each panel's few roundings, relative to the sum of their sizes
+    else res[i] = { val: reached ? val + pastVal : pastVal, lo: L * (1 - 16 * Number.EPSILON), hi: H * (1 + 16 * Number.EPSILON) };
+  }
+  return res;
+}
+
+/**
+ * int_0^w of the envelope of the lines L_a(x) = ga + sa x and L_b(x) = gb + sb (x - w): their maximum (kind 1, lower
+ * bound of a convex function) or minimum (kind -1, upper bound of a concave one), the lines meeting at x* in [0, w].
+ */
+function envelope(w: number, ga: number, sa: number, gb: number, sb: number, kind: 1 | -1): number {
+  if (!(kind * (sb - sa) > 0)) return kind * -Infinity;
+  const xs = Math.min(Math.max((gb - ga - sb * w) / (sa - sb), 0), w);
+  return xs * (ga + (sa * xs) / 2) + (w - xs) * (gb - (sb * (w - xs)) / 2);
+}
+
+/**
+ * The derived bracket on the tail integral past y: [0, the caller's bound (moments)], narrowed by the law's own stop-loss
+ * transform there (its value within its bound) where it has one.
+ */
+function restAt(law: DirectLaw, rest: RestBound | undefined, y: number, dir: 1 | -1): { lo: number; hi: number; v: number } {
+  let hi = rest ? rest(y, dir) : Infinity;
+  let lo = 0;
+  const o = law.stopLoss?.(y, dir);
+  if (o && Number.isFinite(o.v) && Number.isFinite(o.e)) {
+    hi = Math.min(hi, o.v + o.e);
+    lo = Math.max(lo, o.v - o.e);
+  }
+  return hi >= lo ? { lo, hi, v: o ? o.v : NaN } : { lo: 0, hi: Infinity, v: NaN };
+}
