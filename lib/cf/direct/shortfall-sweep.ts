@@ -12,6 +12,8 @@ export interface TailIntegral {
   val: number;
   lo: number;
   hi: number;
+  /** the sweep reached a narrow bracket on what lies past its last node: val is accurate (else a partial sum) */
+  whole: boolean;
 }
 
 /**
@@ -19,7 +21,7 @@ export interface TailIntegral {
  * integral times a few dozen (1e-7 costs 3x the evaluations for a 10x tighter bound)
  */
 const ES_TOL = 1e-6;
-/** panels at most per level of the sweep (a derived bound is still returned, if a looser one) */
+/** panels at most per level reached (a derived bound is still returned, if a looser one) */
 const ES_PANELS = 20000;
 
 /**
@@ -69,7 +71,7 @@ export function tailSweep(law: DirectLaw, qs: readonly number[], dir: 1 | -1, re
   const G0 = new Float64Array(K);
   const offset = new Float64Array(K);
   G0[0] = Math.min(gA + eA, 1);
-  if (!(G0[0] > 0)) return qs.map(() => ({ val: 0, lo: 0, hi: 0 }));
+  if (!(G0[0] > 0)) return qs.map(() => ({ val: 0, lo: 0, hi: 0, whole: true }));
   const s = law.spread;
   let cur = 0;
   let a = 0;
@@ -79,8 +81,13 @@ export function tailSweep(law: DirectLaw, qs: readonly number[], dir: 1 | -1, re
   let past = Infinity;
   let pastLo = 0;
   let pastEst = NaN;
+  let whole = false;
+  // where the law's own stop-loss transform is asked next (outside the gate below)
+  let check = law.stopLoss && !Number.isFinite(D) ? s : Infinity;
   let low = 0.5;
-  for (let n = 0; n < ES_PANELS * K; n++) {
+  // the panels' budget grows by ES_PANELS with each level reached: a sweep held up short of the next level (a law
+  // without a known mode: monotone bounds only) leaves the levels past it to sweeps of their own, as each alone had
+  for (let n = 0; n < ES_PANELS * (cur + 1); n++) {
     // up to 20 000 evaluations a level of a law that may take tens of microseconds each (stable, VG, NIG)
     if ((n & 255) === 255) checkDeadline("direct shortfall bracket");
     const want = step;
@@ -150,14 +157,22 @@ export function tailSweep(law: DirectLaw, qs: readonly number[], dir: 1 | -1, re
     if (a >= D || (cur === K - 1 && bHi === 0)) {
       // G is 0 past here (the support's end, or an upper bound of 0 on a non-increasing tail)
       past = 0;
+      whole = true;
       break;
     }
     // far enough when what is left is below a quarter of the bracket's own tolerance for the farthest level (the smallest
-    // sum; a quarter: where a sweep stops moves with its panels, and no level's bound is to exceed its own sweep's)
-    if (cur === K - 1 && bHi * s <= ES_TOL * 1e-3 * segVal[cur]) {
+    // sum; a quarter: where a sweep stops moves with its panels, and no level's bound is to exceed its own sweep's);
+    // a law with its own stop-loss transform is asked each time the distance doubles, and stops the sweep as soon as
+    // that transform's bracket is as narrow (a stable law's tail series, long before its power tail would be negligible)
+    const gate = bHi * s <= ES_TOL * 1e-3 * segVal[cur];
+    if (cur === K - 1 && (gate || a >= check)) {
+      if (a >= check) check = 2 * a;
       const r = Number.isFinite(D) ? { lo: 0, hi: (D - a) * bHi, v: NaN } : restAt(law, rest, q0 + dir * a, dir);
-      [pastLo, past, pastEst] = [r.lo, r.hi, Number.isFinite(r.v) ? r.v : (g * g) / f];
-      if (past - pastLo <= ES_TOL * segVal[cur] / 4 || !Number.isFinite(past)) break;
+      if (r.hi - r.lo <= ES_TOL * segVal[cur] / 4 || (gate && !Number.isFinite(r.hi))) {
+        [pastLo, past, pastEst] = [r.lo, r.hi, Number.isFinite(r.v) ? r.v : (g * g) / f];
+        whole = r.hi - r.lo <= ES_TOL * segVal[cur] / 4;
+        break;
+      }
     }
     // the next panel: the bracket's width grows like its length cubed, its allowance like the length (beyond the spread,
     // like the length relative to the distance: a slow tail's long reach adds to the total only as its logarithm); the
@@ -190,11 +205,12 @@ export function tailSweep(law: DirectLaw, qs: readonly number[], dir: 1 | -1, re
     const reached = i <= cur;
     const H = (reached ? hi : 0) + past + (reached ? slack + offset[i] : 0);
     const L = reached ? lo + pastLo - slack - offset[i] : 0;
-    if (reached && !(G0[i] > 0)) res[i] = { val: 0, lo: 0, hi: 0 };
-    else if (!(H >= L)) res[i] = { val: NaN, lo: 0, hi: Infinity };
+    if (reached && !(G0[i] > 0)) res[i] = { val: 0, lo: 0, hi: 0, whole: true };
+    else if (!(H >= L)) res[i] = { val: NaN, lo: 0, hi: Infinity, whole: false };
     // each panel's few roundings, relative to the sum of their sizes
-    else res[i] = { val: reached ? val + pastVal : pastVal, lo: L * (1 - 16 * Number.EPSILON), hi: H * (1 + 16 * Number.EPSILON) };
+    else res[i] = { val: reached ? val + pastVal : pastVal, lo: L * (1 - 16 * Number.EPSILON), hi: H * (1 + 16 * Number.EPSILON), whole: whole && reached };
   }
+  if (cur + 1 < K) tailSweep(law, qs.slice(cur + 1), dir, rest).forEach((r, k) => (res[cur + 1 + k] = r));
   return res;
 }
 

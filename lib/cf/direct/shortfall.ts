@@ -67,7 +67,7 @@ export function directShortfalls(
     const dir = p[i] < 0.5 && index.left > 1 ? -1 : 1;
     // a law with its own stop-loss transform at q answers the tail integral from it, value and bound
     const own = law.stopLoss?.(q[i], dir);
-    if (own && Number.isFinite(own.v) && Number.isFinite(own.e)) tails[i] = { val: own.v, lo: own.v - own.e, hi: own.v + own.e };
+    if (own && Number.isFinite(own.v) && Number.isFinite(own.e)) tails[i] = { val: own.v, lo: own.v - own.e, hi: own.v + own.e, whole: true };
     else sides[dir].push(i);
   }
   for (const dir of [1, -1] as const) {
@@ -84,7 +84,9 @@ export function directShortfalls(
     const lower = p[i] < 0.5 && index.left > 1;
     law.at(q[i], pt);
     const fq = pt.pdf + pt.pdfErr;
-    const A = t.val;
+    // a sweep that ran out of panels (a law without its mode: monotone bounds only) or of a bound on what lies past
+    // it keeps its derived bracket, but its sum is partial: the value is then estimated apart, inside the bracket
+    const A = t.whole ? t.val : Math.min(Math.max(logTrapezoid(law, q[i], lower ? -1 : 1, lower ? index.left : index.right), t.lo), t.hi);
     const w = 1 - p[i];
     const excess = lower ? mean! - q[i] + A : A;
     value[i] = q[i] + excess / w;
@@ -94,4 +96,46 @@ export function directShortfalls(
     error[i] = (quad + meanErr) / w + (2 * fq * qErr[i] * qErr[i]) / w + 4 * Number.EPSILON * Math.abs(value[i]);
   }
   return { value, error };
+}
+
+/**
+ * An estimate of the tail integral past q (no bound: the caller clamps it into its derived bracket): the trapezoid sum
+ * in t with y = q + dir s e^t (s the law's spread; towards a finite end at distance D, y = q + dir D e^t / (1 + e^t)),
+ * the part within s e^t0 of q as half its largest size, stopped where the terms and the tail's rough size past them
+ * are negligible.
+ */
+function logTrapezoid(law: DirectLaw, q: number, dir: 1 | -1, tailIndex: number): number {
+  const lower = dir < 0;
+  const pt = directPoint();
+  const tailOf = () => (lower ? pt.cdf : pt.sf);
+  const s = law.spread;
+  const h = 0.25;
+  const t0 = -32;
+  const end = lower ? law.support[0] : law.support[1];
+  const D = Math.abs(end - q);
+  const finite = Number.isFinite(end);
+  let A = 0;
+  for (let t = t0; t < 400; t += h) {
+    let d: number;
+    let jac: number;
+    if (finite) {
+      const e = Math.exp(-Math.abs(t));
+      const sg = t >= 0 ? 1 / (1 + e) : e / (1 + e);
+      d = D * sg;
+      jac = D * sg * (1 - sg);
+    } else {
+      d = s * Math.exp(t);
+      jac = d;
+    }
+    law.at(q + dir * d, pt);
+    const term = h * jac * tailOf();
+    A += term;
+    if (t > 0 && term <= 1e-17 * A) {
+      const g = tailOf();
+      const left = finite ? (D - d) * g : Number.isFinite(tailIndex) ? (4 * d * g) / (tailIndex - 1) : 8 * s * g;
+      if (left <= 1e-13 * A) break;
+    }
+  }
+  law.at(q, pt);
+  return A + ((finite ? D : s) * Math.exp(t0) * tailOf()) / 2;
 }

@@ -2,8 +2,8 @@
 import type { Atom, CompiledModel } from "../types";
 import { checkDeadline } from "../deadline";
 import { mergeAtoms } from "../kinds";
-import { directPoint, type DirectLaw, type DirectPoint } from "../direct/types";
-import { directShortfall, momentRest, type RestBound } from "../direct/shortfall";
+import type { DirectLaw, DirectPoint } from "../direct/types";
+import type { Component, Value } from "./mixture-component";
 import { DAMPED_BUDGET, KERNEL_BUDGET, dampable, dampedAt, dampedPlan, dampedSetup, type DampedSolution } from "./damped";
 import { invertWithinTerms } from "./continuous";
 import { atomMass, solutionAt } from "./shared";
@@ -15,69 +15,7 @@ import { RICHARDSON_ESTIMATE_NOTE, richardsonAmplification } from "./richardson"
 import { heavyShortfall, shortfallLight } from "./shortfall";
 import { stopLossBounds } from "./tail-moments";
 import { markovExcess, markovTail, momentBounds } from "./moment-tails";
-
-interface Value {
-  F: number;
-  S: number;
-  f: number;
-  /** bounds on |F - F_true| and |S - S_true| */
-  eF: number;
-  eS: number;
-}
-
-interface Component {
-  w: number;
-  atoms: Atom[];
-  at(x: number): Value;
-  /** E[(X - q)^+] and its bound; null when the mean does not exist */
-  excess(q: number): { value: number; error: number } | null;
-  terms(): number;
-  notes(): string[];
-  method: string;
-  /**
-   * A component with a range (the damped route): deferred(true) answers points beyond it from the monotone bound
-   * S(x) in [0, S(R)] without growing the range, and remembers the farthest such point where the tail mattered (beyond()),
-   * so that the range is grown once, to what the answers need (cover), instead of to twice every probe a search's bracket
-   * walk throws past it.
-   */
-  deferred?(on: boolean): void;
-  beyond?(): number;
-  reach?(): number;
-  /** x lies past the range and the component's tail there is above its share of the target */
-  needs?(x: number): boolean;
-  cover?(x: number): boolean;
-}
-
-function directComponent(w: number, m: CompiledModel): Component {
-  const law = m.direct!;
-  const pt = directPoint();
-  const mean = m.momentIndex > 1 ? m.cumulants(1)[0] : null;
-  // the derived bound on the tail past directShortfall's last node, formed at the first ES asked
-  let rest: RestBound | null | undefined;
-  const at = (x: number): Value => {
-    law.at(x, pt);
-    return { F: pt.cdf, S: pt.sf, f: pt.pdf, eF: pt.cdfErr, eS: pt.sfErr };
-  };
-  return {
-    w,
-    atoms: [],
-    at,
-    excess(q) {
-      if (mean === null || !Number.isFinite(mean) || !(m.tails.right > 1)) return null;
-      const v = at(q);
-      // directShortfall gives q + E[(X - q)^+] / (1 - p) with p the component's own level at q
-      const p = Math.min(Math.max(v.F, 0), 1);
-      if (p >= 1 || v.S <= 0) return { value: 0, error: v.eS * Math.max(law.spread, 1) };
-      if (rest === undefined) rest = momentRest(m) ?? null;
-      const r = directShortfall(law, q, 0, p, m.tails, mean, rest ?? undefined);
-      const tail = 1 - p;
-      return { value: (r.value - q) * tail, error: r.error * tail + 4 * Number.EPSILON * Math.abs(q) };
-    },
-    terms: () => 0,
-    notes: () => law.notes,
-    method: law.method,
-  };
-}
+import { directComponent } from "./mixture-direct";
 
 function dampedComponent(w: number, m: CompiledModel, tail: number, tol: number, target: number): Component | null {
   const lo = m.support[0];

@@ -196,7 +196,28 @@ export function mixtureQuantiles(model: CompiledModel, p: Float64Array, o: Quant
     es = new Float64Array(n).fill(NaN);
     esErr = new Float64Array(n).fill(Infinity);
     let exists = true;
-    for (let i = 0; i < n; i++) {
+    // each component's excess at every level asked, in one call where it can share work among them (a direct law's
+    // tail sweep); a component without a mean stops the rest
+    const asked: number[] = [];
+    for (let i = 0; i < n; i++) if (Number.isFinite(x[i]) && p[i] < 1) asked.push(i);
+    const value = new Float64Array(n);
+    const error = new Float64Array(n);
+    for (const c of asked.length ? cs : []) {
+      const qs = asked.map((i) => x[i]);
+      const rs = c.excesses ? c.excesses(qs) : [];
+      if (!c.excesses) for (let k = 0; k < qs.length && (k === 0 || rs[k - 1]); k++) rs.push(c.excess(qs[k]));
+      rs.length = qs.length;
+      asked.forEach((i, k) => {
+        const r = rs[k];
+        if (!r) exists = false;
+        else {
+          value[i] += c.w * r.value;
+          error[i] += c.w * r.error;
+        }
+      });
+      if (!exists) break;
+    }
+    for (let i = 0; i < n && exists; i++) {
       const q = x[i];
       if (!Number.isFinite(q)) continue;
       if (p[i] >= 1) {
@@ -204,25 +225,13 @@ export function mixtureQuantiles(model: CompiledModel, p: Float64Array, o: Quant
         esErr[i] = err[i];
         continue;
       }
-      let value = 0;
-      let error = 0;
-      for (const c of cs) {
-        const r = c.excess(q);
-        if (!r) {
-          exists = false;
-          break;
-        }
-        value += c.w * r.value;
-        error += c.w * r.error;
-      }
-      if (!exists) break;
       law.at(q, pt);
       const w = 1 - p[i];
-      es[i] = q + value / w;
+      es[i] = q + value[i] / w;
       // ES(q') - ES(q*) = int_{q*}^{q'} (S(q*) - S(y)) dy / (1 - p): at most (|S(q) - (1 - p)| + e + f dq) dq / (1 - p)
       const dq = err[i];
       const slope = Math.abs(pt.sf - w) + pt.sfErr + 2 * Math.max(pt.pdf, 0) * dq;
-      esErr[i] = (error + slope * dq) / w + 4 * Number.EPSILON * Math.abs(es[i]);
+      esErr[i] = (error[i] + slope * dq) / w + 4 * Number.EPSILON * Math.abs(es[i]);
     }
     if (!exists) {
       es.fill(NaN);
