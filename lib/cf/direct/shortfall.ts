@@ -93,7 +93,9 @@ export function directShortfalls(
     const meanErr = lower ? 4 * Number.EPSILON * (Math.abs(mean!) + Math.abs(q[i])) : 0;
     const quad = Math.max(A - t.lo, t.hi - A) + 8 * Number.EPSILON * Math.abs(A);
     // ES(q') - ES(q) = (q' - q)(1 - S(xi)/(1 - p)) for xi between: second order in |q' - q| <= qErr
-    error[i] = (quad + meanErr) / w + (2 * fq * qErr[i] * qErr[i]) / w + 4 * Number.EPSILON * Math.abs(value[i]);
+    // (an exact quantile adds nothing, even where the density is infinite there)
+    const move = qErr[i] > 0 ? (2 * fq * qErr[i] * qErr[i]) / w : 0;
+    error[i] = (quad + meanErr) / w + move + 4 * Number.EPSILON * Math.abs(value[i]);
   }
   return { value, error };
 }
