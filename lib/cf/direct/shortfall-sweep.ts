@@ -113,11 +113,7 @@ export function tailSweep(law: DirectLaw, qs: readonly number[], dir: 1 | -1, re
     const atEnd = b >= D;
     const bLo = atEnd ? 0 : Math.max(g - eg, 0);
     const bHi = Math.min(g + eg, 1);
-    // the nodes q + dir d are formed within u (|q| + d): G there is off by the mass so close, taken as twice the density
-    // at the node times that distance (a density changing by a factor 2 within 1e-16 relative is met only at a
-    // singular point, where a node has no reason to fall), the whole panel's width where the density is infinite
-    const fEnd = (fx: number, ex: number, d: number) => (Number.isFinite(fx + ex) ? 2 * (fx + ex) * Number.EPSILON * (Math.abs(q0) + d) : 1);
-    segSlack[cur] += wd * (fEnd(fA, efA, a) + (atEnd ? 0 : fEnd(f, ef, b)));
+    segSlack[cur] += wd * (nodeSlack(fA, efA, q0, a) + (atEnd ? 0 : nodeSlack(f, ef, q0, b)));
     // monotone: between the right and left Riemann sums
     let pLo = wd * bLo;
     let pHi = wd * aHi;
@@ -212,6 +208,15 @@ export function tailSweep(law: DirectLaw, qs: readonly number[], dir: 1 | -1, re
   }
   if (cur + 1 < K) tailSweep(law, qs.slice(cur + 1), dir, rest).forEach((r, k) => (res[cur + 1 + k] = r));
   return res;
+}
+
+/**
+ * The nodes q + dir d are formed within u (|q| + d): G there is off by the mass so close, taken as twice the density
+ * at the node times that distance (a density changing by a factor 2 within 1e-16 relative is met only at a singular
+ * point, where a node has no reason to fall), the whole panel's width where the density is infinite.
+ */
+function nodeSlack(f: number, ef: number, q: number, d: number): number {
+  return Number.isFinite(f + ef) ? 2 * (f + ef) * Number.EPSILON * (Math.abs(q) + d) : 1;
 }
 
 /**
