@@ -21,7 +21,7 @@ export interface TailIntegral {
  * integral times a few dozen (1e-7 costs 3x the evaluations for a 10x tighter bound)
  */
 const ES_TOL = 1e-6;
-/** panels at most per level reached (a derived bound is still returned, if a looser one) */
+/** panels at most between two levels' points, and past the last (a derived bound is still returned, if a looser one) */
 const ES_PANELS = 20000;
 
 /**
@@ -85,9 +85,10 @@ export function tailSweep(law: DirectLaw, qs: readonly number[], dir: 1 | -1, re
   // where the law's own stop-loss transform is asked next (outside the gate below)
   let check = law.stopLoss && !Number.isFinite(D) ? s : Infinity;
   let low = 0.5;
-  // the panels' budget grows by ES_PANELS with each level reached: a sweep held up short of the next level (a law
-  // without a known mode: monotone bounds only) leaves the levels past it to sweeps of their own, as each alone had
-  for (let n = 0; n < ES_PANELS * (cur + 1); n++) {
+  // ES_PANELS panels from each level's point on: a sweep held up short of the next level (a law without a known mode:
+  // monotone bounds only) leaves the levels past it to sweeps of their own, as each alone had
+  let segStart = 0;
+  for (let n = 0; n - segStart < ES_PANELS; n++) {
     // up to 20 000 evaluations a level of a law that may take tens of microseconds each (stable, VG, NIG)
     if ((n & 255) === 255) checkDeadline("direct shortfall bracket");
     const want = step;
@@ -149,6 +150,7 @@ export function tailSweep(law: DirectLaw, qs: readonly number[], dir: 1 | -1, re
       // the allowance may have shrunk by the new level's tail: the next panel may be much shorter, once, and starts no
       // longer than a level's own sweep would (its first panels, far below their allowance, keep its bound as tight)
       low = 0.01;
+      segStart = n + 1;
     }
     if (a >= D || (cur === K - 1 && bHi === 0)) {
       // G is 0 past here (the support's end, or an upper bound of 0 on a non-increasing tail)
