@@ -37,8 +37,9 @@ const ES_PANELS = 20000;
  * Past the last node the integral is at most (D - d) G(d) towards a finite end at distance D, else the caller's derived
  * bound (`rest`: the moments' stop-loss bound) and the law's own stop-loss transform (value and bound), else Infinity.
  * The value: the panels' trapezoid sums with the end-slope correction, each kept inside its panel's bracket, plus an
- * estimate of the part past the last node kept inside its bracket. An O(length^3) bracket per panel (the trapezoid's own error is far smaller): the bound is a few
- * thousand times the actual error.
+ * estimate of the part past the last node kept inside its bracket (`whole` false where that bracket stayed wide: the
+ * caller estimates apart). An O(length^3) bracket per panel (the trapezoid's own error is far smaller): the bound is a
+ * few thousand times the actual error.
  */
 export function tailSweep(law: DirectLaw, qs: readonly number[], dir: 1 | -1, rest: RestBound | undefined): TailIntegral[] {
   const K = qs.length;
@@ -46,8 +47,8 @@ export function tailSweep(law: DirectLaw, qs: readonly number[], dir: 1 | -1, re
   const lower = dir < 0;
   const end = lower ? law.support[0] : law.support[1];
   const D = Number.isFinite(end) ? Math.abs(end - q0) : Infinity;
-  // the levels' distances from the first; the node at distance ds[i] is taken at qs[i] itself, off the sum of the
-  // widths by at most an ulp or two of |q_i| + |q_0| (covered per level below)
+  // the levels' distances from the first; the node at distance ds[i] is taken at qs[i] itself, off q_0 + dir ds[i] by
+  // at most half an ulp of ds[i] (covered per level below)
   const ds = qs.map((q) => Math.min(Math.abs(q - q0), D));
   // the mode's distance, where known: G is concave before mL and convex after mH (the mode is rounded by a few ulps,
   // types.ts, the distance by one more: both are covered by the margin)
