@@ -28,6 +28,7 @@ import { cauchyDirect, normalDirect } from "./direct/families";
 import { stableDirect } from "./direct/stable";
 import { tanHalfPi } from "./direct/stable-kernel";
 import { directPoint, type DirectLaw, type DirectPoint } from "./direct/types";
+import { modeRange } from "./direct/shortfall-mode";
 
 const U = Number.EPSILON / 2;
 /** Math.pow within 2 ulps (fdlibm's e_pow.c, which V8 ships as ieee754::pow, is within 1) */
@@ -168,8 +169,16 @@ function widened(f: Folded): DirectLaw {
     // so that the rounded x -/+ wf still lie beyond x -/+ w
     return w * (1 + 4 * U) + 2 * U * Math.abs(x) + Number.MIN_VALUE;
   };
-  let mode: [number, number] | null = null;
-  const modeBox = () => (mode ??= modeBracket(law));
+  let mode: readonly [number, number] | null = null;
+  // the computed law's mode (closed form, or the interval derived from its bounded densities: ./direct/shortfall-mode.ts)
+  // moved by the box: the true law at x is the computed one at x' within box(x) of x, so its mode lies within the box of
+  // the computed one's
+  const modeBox = () => {
+    if (mode) return mode;
+    const [a, b] = modeRange(law);
+    mode = Number.isFinite(a) && Number.isFinite(b) ? [a - box(a), b + box(b)] : modeBracket(law);
+    return mode;
+  };
   const at = (x: number, out: DirectPoint) => {
     const wf = box(x);
     const xl = x - wf;
@@ -196,6 +205,11 @@ function widened(f: Folded): DirectLaw {
     support: [law.support[0] - (D + 1e-300) * 2, law.support[1] + (D + 1e-300) * 2],
     center: law.center,
     spread: law.spread,
+    // stable laws are unimodal (Yamazato 1978, above): the interval holding the mode, for the shortfall's brackets
+    unimodal: true,
+    get modeRange() {
+      return modeBox();
+    },
     at,
     ...(law.quantile ? { quantile: law.quantile } : {}),
     ...(sl

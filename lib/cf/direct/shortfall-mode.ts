@@ -9,6 +9,8 @@ import { directPoint, type DirectLaw } from "./types";
  */
 export function modeRange(law: DirectLaw): readonly [number, number] {
   if (law.mode !== undefined && Number.isFinite(law.mode)) return [law.mode, law.mode];
+  const given = law.modeRange;
+  if (given && Number.isFinite(given[0]) && Number.isFinite(given[1])) return given;
   if (!law.unimodal) return [-Infinity, Infinity];
   let r = MODES.get(law);
   if (!r) MODES.set(law, (r = searchMode(law)));

@@ -50,6 +50,11 @@ export interface DirectLaw {
   /** optional: the law is unimodal (a mode exists, not known in closed form): ./answer.ts derives an interval holding it */
   readonly unimodal?: boolean;
   /**
+   * optional: a derived interval holding the mode, where the law's parameters carry rounding (a folded stable sum:
+   * ../stable-fold.ts); taken before `unimodal`'s search, whose density bounds may not part the values near the peak
+   */
+  readonly modeRange?: readonly [number, number];
+  /**
    * optional: points where the density is infinite inside the support (a variance-gamma law with nu >= 2 at its
    * location); next to one the density is ill-conditioned in x, and a caller that rounds x (./affine.ts) bounds the
    * density's change over that rounding from the values either side
