@@ -1,6 +1,6 @@
 import { CfError } from "../errors";
 import type { DirectMethod } from "../direct/types";
-import { directQuantile, directQuantiles } from "../direct/answer";
+import { directQuantiles } from "../direct/answer";
 import { momentRest } from "../direct/shortfall";
 import type { Atom, CompiledModel } from "../types";
 import { evalLadder, growLadder, heavyLadder, invertWithinTerms, type HeavyLadder } from "./continuous";
@@ -16,6 +16,7 @@ import { dampedQuantiles } from "./quantile-damped";
 import { mixtureQuantiles } from "./mixture";
 import { lightAliasAt } from "./light-images";
 import { truncationAt } from "./nodes";
+import { tailTermExtent } from "./tail-extent";
 
 export interface QuantileOptions {
   /** also return the expected shortfall ES_p = q_p + E[(X - q_p)^+] / (1 - p) (TVaR) */
@@ -260,20 +261,6 @@ function localBracket(ev: Evaluator, lad: HeavyLadder, scratch: LadderScratch, w
     if (l.g + l.e < 0 && r.g - r.e > 0) return d;
   }
   return Infinity;
-}
-
-/** max |q_G(p) - center| + 8 spreads over the levels, from the direct law of the sum's heaviest-tailed term G; null without one */
-function tailTermExtent(model: CompiledModel, atoms: Atom[], p: Float64Array, center: number, spread: number): number | null {
-  const G = model.tailTerm;
-  if (!G || atoms.length) return null;
-  let ext = 0;
-  for (let i = 0; i < p.length; i++) {
-    if (!(p[i] > 0 && p[i] < 1)) continue;
-    const q = directQuantile(G.direct, p[i]).x;
-    if (!Number.isFinite(q)) return null;
-    ext = Math.max(ext, Math.abs(q - center));
-  }
-  return ext + 8 * spread;
 }
 
 type LadderScratch = { pdf: Float64Array; cdf: Float64Array; sf: Float64Array; one: Float64Array };
