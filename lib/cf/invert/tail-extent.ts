@@ -28,8 +28,9 @@ export function tailTermExtent(model: CompiledModel, atoms: Atom[], p: Float64Ar
 }
 
 /**
- * Power-tailed terms are subexponential: far out the sum's tail is about the sum of the terms' tails (Embrechts,
- * Kluppelberg & Mikosch 1997, Modelling Extremal Events, Lemma 1.3.4; common practice). From G's quantile x (where
+ * Power-tailed terms are subexponential: far out the sum's tail is about the sum of the terms' tails (common practice;
+ * a property of regularly varying tails, Embrechts, Kluppelberg & Mikosch 1997, Modelling Extremal Events, sec. 1.3,
+ * section recalled from memory). From G's quantile x (where
  * G's tail alone is the level's), while the laws' tails s_i at x add up to more than the level's, x moves out about G's
  * bulk (`center`) by the factor r solving sum_i s_i r^(-a_i) = level (each tail taken as a power y^(-a_i) of its own index,
  * by bisection; a light tail, a_i infinite, drops out); three steps at most, never inward.
