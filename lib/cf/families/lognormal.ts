@@ -176,10 +176,13 @@ export function lognormal(mu: number, sigma: number): Node {
     qIm[j] = w[j] * g0 * Math.sin(-c * v[j]);
     qE[j] = em * ev[j];
   }
+  // i e^{i theta} = -sin theta + i cos theta: at theta = pi/2 exactly -1 (cos(pi/2) rounds to 6e-17, which would only
+  // turn each term's phase by t e_j 6e-17 and keep the sums on the complex recurrence)
+  const wIm = theta === Math.PI / 2 ? 0 : Math.cos(theta);
   const logCfArithmetic = (t: Float64Array, re: Float64Array, im: Float64Array) => {
     const sr = new Float64Array(t.length);
     const si = new Float64Array(t.length);
-    expSumArithmetic(qRe, qIm, qE, -Math.sin(theta), Math.cos(theta), t, sr, si);
+    expSumArithmetic(qRe, qIm, qE, -Math.sin(theta), wIm, t, sr, si);
     logFromSums(t, sr, si, re, im, 0, 0, 0);
   };
   // the bound expSumArithmetic adds (moments, recurrence), from the rule's terms: sum |c_j| = e^{c^2/2} sum w_j
