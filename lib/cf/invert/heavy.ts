@@ -82,6 +82,9 @@ export function heavyPath(
   // the density from the level where its own bound was least: its floor (the sums' bound times the amplification) grows
   // with the levels, so the level the cdf needs may hold a worse density than an earlier one
   let bestPdf: { pdf: Float64Array; err: number } | null = null;
+  // once the density's floor alone reaches its best error (the test below that ends the levels), the levels the cdf still
+  // needs are summed without the density: their density would not be kept
+  let pdfDone = false;
   for (let lev = 0; lev < MAX_LEVELS; lev++) {
     checkDeadline("refine");
     const T = T0 * 2 ** lev;
@@ -102,10 +105,10 @@ export function heavyPath(
     if (lev > 0 && K * n > MAX_POINTWISE_WORK * 4 && m === "gil-pelaez") break;
     const nodes = buildNodes(part, h, K);
     lastNodes = nodes;
-    const pdf = opt.wantPdf ? new Float64Array(n) : null;
+    const pdf = opt.wantPdf && !pdfDone ? new Float64Array(n) : null;
     const cdf = new Float64Array(n);
     const sf = new Float64Array(n);
-    evaluate(part, nodes, req, layout, opt.wantPdf, pdf, cdf, sf);
+    evaluate(part, nodes, req, layout, pdf !== null, pdf, cdf, sf);
     const rowC = richardsonRowArrays(cdf, tabs.cdf[lev - 1], expC);
     const rowS = richardsonRowArrays(sf, tabs.sf[lev - 1], expC);
     const rowP = pdf ? richardsonRowArrays(pdf, tabs.pdf[lev - 1], expP) : [];
@@ -124,7 +127,7 @@ export function heavyPath(
     const sumC = amp * (2 * trunc.cdf + round.cdf);
     const sumP = amp * (2 * trunc.pdf + round.pdf);
     const error: ErrorEstimate = {
-      aliasing: opt.wantPdf ? Math.max(cdfErr, pdfErr) : cdfErr,
+      aliasing: opt.wantPdf && !pdfDone ? Math.max(cdfErr, pdfErr) : cdfErr,
       truncation: amp * 2 * (opt.wantPdf ? Math.max(trunc.cdf, trunc.pdf) : trunc.cdf),
       rounding: amp * (opt.wantPdf ? Math.max(round.cdf, round.pdf) : round.cdf),
       cdf: cdfErr + sumC,
@@ -156,8 +159,9 @@ export function heavyPath(
     const floorC = ampNext * (2 * trunc.cdf + round.cdf);
     const floorP = ampNext * (2 * trunc.pdf + round.pdf);
     if (lev >= 2 && (error.cdf <= tol || floorC >= error.cdf) && (!opt.wantPdf || pdfErrBest <= tol || floorP >= pdfErrBest)) break;
+    if (lev >= 2 && opt.wantPdf && floorP >= pdfErrBest) pdfDone = true;
   }
-  if (bestPdf && result!.pdf && bestPdf.err < result!.error.pdf) {
+  if (bestPdf && (!result!.pdf || bestPdf.err < result!.error.pdf)) {
     result!.pdf = bestPdf.pdf;
     result!.error.pdf = bestPdf.err;
   }
