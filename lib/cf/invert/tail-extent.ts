@@ -13,14 +13,21 @@ export function tailTermExtent(model: CompiledModel, atoms: Atom[], p: Float64Ar
   const G = model.tailTerm;
   if (!G || atoms.length) return null;
   const laws = G.images && G.images.laws.length > 1 ? G.images.laws : null;
-  let ext = 0;
-  let extSum = 0;
+  // q_p is non-decreasing in p, so |q_p - center| is largest at the smallest or the largest level: only those two are solved
+  let lo = Infinity;
+  let hi = -Infinity;
   for (let i = 0; i < p.length; i++) {
     if (!(p[i] > 0 && p[i] < 1)) continue;
-    const q = directQuantile(G.direct, p[i]).x;
+    lo = Math.min(lo, p[i]);
+    hi = Math.max(hi, p[i]);
+  }
+  let ext = 0;
+  let extSum = 0;
+  for (const level of lo <= hi ? (lo === hi ? [lo] : [lo, hi]) : []) {
+    const q = directQuantile(G.direct, level).x;
     if (!Number.isFinite(q)) return null;
     ext = Math.max(ext, Math.abs(q - center));
-    if (laws) extSum = Math.max(extSum, Math.abs(sumOfTails(laws, p[i], q, G.direct.center) - center));
+    if (laws) extSum = Math.max(extSum, Math.abs(sumOfTails(laws, level, q, G.direct.center) - center));
   }
   // the 8 spreads cover the other terms' share where it is small (the period is then the same as from G alone); where the
   // sum of the tails reaches beyond them, it takes G's place with the same 8 spreads
