@@ -159,7 +159,7 @@ export function heavyPath(
     const floorC = ampNext * (2 * trunc.cdf + round.cdf);
     const floorP = ampNext * (2 * trunc.pdf + round.pdf);
     if (lev >= 2 && (error.cdf <= tol || floorC >= error.cdf) && (!opt.wantPdf || pdfErrBest <= tol || floorP >= pdfErrBest)) break;
-    if (lev >= 2 && opt.wantPdf && floorP >= pdfErrBest) pdfDone = true;
+    if (lev >= 2 && opt.wantPdf && bestPdf && floorP >= bestPdf.err) pdfDone = true;
   }
   if (bestPdf && (!result!.pdf || bestPdf.err < result!.error.pdf)) {
     result!.pdf = bestPdf.pdf;
