@@ -98,6 +98,25 @@ describe(`numerical CFs (lognormal, weibull, pareto): absolute error <= ${NUMERI
     const r = cdiv([1, 0], [1, -50]);
     closeC(out[0], out[1], r[0], r[1], { rel: 1e-14 }, "shape 1 at a = 50");
   });
+  it("pareto near t = 0 (the rule's prefactor alpha / (xm t) is huge there): the expansion 1 + i t E X - t^2 E X^2 / 2 (JKB ch. 20)", () => {
+    // E X = alpha xm / (alpha - 1), E X^2 = alpha xm^2 / (alpha - 2) (JKB vol. 1, ch. 20); the rest of e^{iy} past
+    // 1 + iy - y^2/2 is at most min(|y|^3/6, y^2) (Taylor, common practice), whose mean over the Pareto law splits at
+    // x = c = 6 / t into t^3/6 E[X^3; X <= c] + t^2 E[X^2; X > c], both in closed form
+    const alpha = 2.5;
+    const xm = 1;
+    const c = compile({ family: "pareto", alpha, xm });
+    for (const t of [1e-12, 1e-10, 1e-8, 1e-6]) {
+      const m1 = (alpha * xm) / (alpha - 1);
+      const m2 = (alpha * xm * xm) / (alpha - 2);
+      const cut = 6 / t;
+      const rest = ((t ** 3 / 6) * alpha * xm ** alpha * (cut ** (3 - alpha) - xm ** (3 - alpha))) / (3 - alpha) + (t * t * alpha * xm ** alpha * cut ** (2 - alpha)) / (alpha - 2);
+      const re = new Float64Array(1);
+      const im = new Float64Array(1);
+      c.cf(Float64Array.of(t), re, im);
+      // the declared bound, the rest of the expansion, and the rounding of exp(log phi) back to phi (a few eps)
+      record("numeric CF abs error (pareto near 0)", closeC(re[0], im[0], 1 - (t * t * m2) / 2, t * m1, { abs: c.cfAbsError + rest + 8 * Number.EPSILON }, `t=${t}`));
+    }
+  });
   it("pareto vs quadrature of the density (JKB ch. 20) with an integration-by-parts tail", () => {
     const alpha = 2.5;
     const xm = 1;

@@ -3,7 +3,7 @@ import { cumulantList, rawToCumulants, type Node } from "../node";
 import { fromPhiDamped } from "../damped-cf";
 import { arithmeticNodes, expSumArithmetic, fromPhi } from "./cf-quadrature";
 import { SERIES_TOLERANCE, paretoExpansion, paretoSeries, weibullAsymptotic, weibullExpansion, weibullSeries } from "./asymptotic";
-import { MAX_QUADRATURE_NODES, NUMERIC_CF_ABS_ERROR, logFromSums, quadratureNodes, ruleRounding } from "./numeric-rule";
+import { MAX_QUADRATURE_NODES, logFromSums, quadratureNodes, ruleRounding } from "./numeric-rule";
 import { KahanComplex } from "./kahan";
 
 export { NUMERIC_CF_ABS_ERROR, MAX_QUADRATURE_NODES } from "./numeric-rule";
@@ -176,8 +176,28 @@ function weibullRuleError(k: number, theta: number, h: number, cosK: number): nu
 /**
  * Pareto(alpha, xm): phi(t) = e^{i t xm} int_0^inf e^{i t s} alpha xm^alpha (xm + s)^{-alpha-1} ds. For t > 0 the path is
  * rotated to s = i r (Jordan's lemma), giving phi(t) = e^{i t xm} (i alpha / tau) int_0^inf e^{-u} (1 + i u/tau)^{-alpha-1} du,
- * tau = xm t; computed with u = e^v by the trapezoidal rule (strip |Im v| < pi/4, step for an error below 1e-16).
+ * tau = xm t; computed with u = e^v by the trapezoidal rule (strip |Im v| < pi/4), its error derived in paretoRuleError.
+ * The nodes run from v = -40, and further down to log |tau| - 40 - log max(alpha, 1) for small |tau| (an extension built
+ * on demand): the terms below the range sum to at most e^{v_lo} (each at most h e^v, as |1 + i u / tau| >= 1), which the
+ * prefactor alpha / |tau| would otherwise lift past any fixed bound (at t = 1e-12 the fixed range was off by 1e-5).
  */
+/**
+ * The Pareto rule's own error on phi, every route and every tau (u = e^v, or u = tau r on the equispaced route, with the
+ * same step h and strip |Im v| < a = pi/4). On the strip |e^{v - e^v}| <= e^{Re v} and |1 + i rho e^{i gamma}| >=
+ * max(1/sqrt 2, rho - 1) (gamma within pi/4 of the right half-plane's directions), so int |f| <= |tau| sqrt(2)^q
+ * (1 + 1/sqrt 2 + 1/(sqrt 2 alpha)) (in rho = e^{Re v} / |tau|), which the prefactor alpha / |tau| turns into
+ * sqrt(2)^q (1.7072 alpha + 0.7072): the aliasing error is at most twice that over e^{2 pi a/h} - 1 (Trefethen & Weideman
+ * 2014, SIAM Review 56(3), thm 5.1). Below the range: e^{v_lo} alpha / |tau| <= e^-40 (v_lo chosen so, see pareto);
+ * above u = 45: alpha / |tau| int_45^inf e^{-u} min(1, (|tau| / u)^q) du <= alpha e^-45 / 45. exp within one ulp (the
+ * project's standing assumption), 1 + 16 eps.
+ */
+function paretoRuleError(alpha: number, h: number): number {
+  const q = alpha + 1;
+  // sqrt(2)^q / (e^{pi^2/(2h)} - 1) in logs (sqrt(2)^q overflows for large alpha; the step keeps the ratio small)
+  const alias = 2 * (1.7072 * alpha + 0.7072) * Math.exp(0.5 * q * Math.LN2 - (Math.PI * Math.PI) / (2 * h)) / -Math.expm1(-(Math.PI * Math.PI) / (2 * h));
+  return (alias + Math.exp(-40) + (alpha * Math.exp(-45)) / 45) * (1 + 16 * Number.EPSILON);
+}
+
 export function pareto(alpha: number, xm: number): Node {
   // log(2 M), M = sqrt(2)^(alpha + 2), without forming M (it overflows past alpha ~ 2044)
   const log2M = Math.LN2 + (alpha + 2) * 0.5 * Math.LN2;
@@ -193,30 +213,49 @@ export function pareto(alpha: number, xm: number): Node {
     wv[j] = h * Math.exp(vv - ev[j]);
   }
   const q = alpha + 1;
+  // the nodes below v = -40, v = -40 - k h (k = 1, 2, ...), built as far down as a call has needed
+  const lowU: number[] = [];
+  const lowW: number[] = [];
+  const lowFor = (tau: number) => {
+    const vNeed = Math.log(tau) - 40 - Math.log(Math.max(alpha, 1));
+    if (!(vNeed < vLo)) return 0;
+    const k = quadratureNodes(n + Math.ceil((vLo - vNeed) / h), `the pareto CF at t = ${tau / xm}`, "use a larger t.") - n;
+    for (let j = lowU.length + 1; j <= k; j++) {
+      const vv = vLo - j * h;
+      const u = Math.exp(vv);
+      lowU.push(u);
+      lowW.push(h * Math.exp(vv - u));
+    }
+    return k;
+  };
   // at complex tau = xm (x + i beta) the same rotated integral holds (the path direction i / tau stays in the
-  // right half-plane); (1 + i u / tau) and the factor (i alpha / tau) e^{i tau} in complex arithmetic
+  // right half-plane); (1 + i u / tau) and the factor (i alpha / tau) e^{i tau} in complex arithmetic, with tau's
+  // direction (cr, ci) = (tr, ti) / |tau| so that nothing squares a small |tau|
   const acc = new KahanComplex();
   const phiAt = (x: number, beta: number, out: Float64Array) => {
     const tr = xm * x;
     const ti = xm * beta;
-    const t2 = tr * tr + ti * ti;
-    const tau = Math.sqrt(t2);
+    const tau = Math.hypot(tr, ti);
+    const cr = tr / tau;
+    const ci = ti / tau;
     acc.reset();
     if (!(tau > 40 + 3 * alpha && paretoSeries(alpha, tau, Math.atan2(ti, tr), out))) {
-      for (let j = 0; j < n; j++) {
-        const u = ev[j];
-        const wr = 1 + (u * ti) / t2;
-        const wi = (u * tr) / t2;
-        const mag = wv[j] * Math.exp(-0.5 * q * Math.log(wr * wr + wi * wi));
+      const term = (u: number, w: number) => {
+        const ut = u / tau;
+        const wr = 1 + ut * ci;
+        const wi = ut * cr;
+        const mag = w * Math.exp(-0.5 * q * Math.log(wr * wr + wi * wi));
         const ph = -q * Math.atan2(wi, wr);
         acc.addPolar(mag, ph);
-      }
+      };
+      for (let j = lowFor(tau) - 1; j >= 0; j--) term(lowU[j], lowW[j]);
+      for (let j = 0; j < n; j++) term(ev[j], wv[j]);
       out[0] = acc.re;
       out[1] = acc.im;
     }
-    // multiply by i alpha conj(tau) / |tau|^2 = alpha (ti + i tr) / t2, then by e^{i tau} = e^{-ti} e^{i tr}
-    const fr = (alpha * ti) / t2;
-    const fi = (alpha * tr) / t2;
+    // multiply by i alpha conj(tau) / |tau|^2 = alpha (ti + i tr) / |tau|^2, then by e^{i tau} = e^{-ti} e^{i tr}
+    const fr = (alpha * ci) / tau;
+    const fi = (alpha * cr) / tau;
     const ar = out[0] * fr - out[1] * fi;
     const ai = out[0] * fi + out[1] * fr;
     const e = Math.exp(-ti);
@@ -282,10 +321,10 @@ export function pareto(alpha: number, xm: number): Node {
   // |phi| <= alpha / tau turns into alpha u); then the sum of n terms, whose moduli times alpha / |tau| sum to at most
   // aSum as the integral does (ruleRounding); the fixed nodes' shortcuts (expSumArithmetic: 80 eps and e/25! of aSum) and,
   // damped, their folded phase (below u / e of each weight: one eps more)
-  const cfError = Math.max(
-    NUMERIC_CF_ABS_ERROR,
-    alpha * (1e-16 + 1e-18) + aSum * (2e-25 + 97 * Number.EPSILON) + ruleRounding(n, aSum, aSum * (16 + (2 + Math.PI) * q)) + alpha * Number.EPSILON,
-  );
+  // the large-t series answers where its remainder (below its first omitted term, each factor (1 + i u/tau)^{-q-j} of
+  // Watson's remainder at most 1 in modulus) is below 1e-16 of its sum times alpha / tau < 1/3
+  const cfError =
+    paretoRuleError(alpha, h) + 1e-16 / 3 + aSum * (2e-25 + 97 * Number.EPSILON) + ruleRounding(n + Math.ceil(710 / h), aSum, aSum * (16 + (2 + Math.PI) * q)) + alpha * Number.EPSILON;
   const raw = (m: number) => (alpha * xm ** m) / (alpha - m);
   return {
     kind: { type: "continuous" },
