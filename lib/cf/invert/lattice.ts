@@ -38,11 +38,12 @@ export function solveLattice(model: CompiledModel, origin: number, step: number,
       // A table built by discretising a continuous severity carries its own cdf error bound (cdfError); a cell's
       // mass is a difference of two cdf values, so it may be off by twice that.
       const disc = t.cdfError ?? 0;
-      const err = t.tailMass + 4 * Number.EPSILON * Math.sqrt(t.p.length);
+      const round = tableRounding(t);
+      const err = t.tailMass + round.pmf;
       return {
         table: t,
         errorPmf: err + 2 * disc,
-        errorCdf: err + disc + 8 * Number.EPSILON * Math.sqrt(t.p.length),
+        errorCdf: t.tailMass + round.cdf + disc,
         method: t.cdfError !== undefined ? "discretised" : "lattice-table",
         gridSize: t.p.length,
         notes,
@@ -244,6 +245,32 @@ function sumAbs(p: Float64Array): number {
   let s = 0;
   for (let i = 0; i < p.length; i++) s += Math.abs(p[i]);
   return s * (1 + p.length * Number.EPSILON);
+}
+
+/**
+ * The rounding of a tabulated pmf and of its cumulative sums. A table from a recursion carries its per-point relative
+ * bound (pointRel, non-decreasing): each p_k within pointRel(k) p_k, so every cdf or sf value within sum_k pointRel(k) p_k
+ * plus the compensated sums' 2u + O(n u^2) of sum p (latticeCumulative; Higham, Accuracy and Stability of Numerical
+ * Algorithms, 2nd ed., sec. 4.3), taken as 4u. Other tables (convolutions, Panjer's recursion, powers) carry no derived
+ * bound yet: 4 eps sqrt(n) for the pmf and 8 eps sqrt(n) more for the cdf, a rounding estimate (random-walk growth),
+ * not a bound.
+ */
+function tableRounding(t: LatticeTable): { pmf: number; cdf: number } {
+  const n = t.p.length;
+  const rel = t.pointRel;
+  if (!rel) return { pmf: 4 * Number.EPSILON * Math.sqrt(n), cdf: 12 * Number.EPSILON * Math.sqrt(n) };
+  let pmf = 0;
+  let cdf = 0;
+  let sum = 0;
+  for (let k = 0; k < n; k++) {
+    const e = rel(k) * Math.max(t.p[k], 0);
+    if (e > pmf) pmf = e;
+    cdf += e;
+    sum += Math.max(t.p[k], 0);
+  }
+  // (these sums of non-negative terms within n u of themselves)
+  const grow = 1 + n * Number.EPSILON;
+  return { pmf, cdf: (cdf + 2 * Number.EPSILON * sum) * grow };
 }
 
 /** cdf and sf at each lattice point, sf summed from the right so upper tails keep relative accuracy. */
