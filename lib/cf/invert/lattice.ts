@@ -5,6 +5,7 @@ import { CfError } from "../errors";
 import { bulkWindow, lawShape } from "./range";
 import { markovTail, momentBounds } from "./moment-tails";
 import { twoProdErr, twoSumErr } from "../moment-error";
+import { cfRelError, cfUlps } from "./part";
 
 const EPS = Number.EPSILON;
 /** a table grows past the tolerance, until its rounding dominates the aliasing bound, only while below this size */
@@ -102,7 +103,9 @@ export function solveLattice(model: CompiledModel, origin: number, step: number,
  *    step} = e^{-2 pi i m / N}, m = jj (k0 - M) mod N an exact integer; the angle -t^_j r - 2 pi m / N (|2 pi m / N| <=
  *    pi) errs by u |t_j r| (the product), |t_j| d, 2 pi u (2 pi and the product by m; / N is exact) and u (|t_j r| + pi)
  *    (the sum), only by u |t_j r| + |t_j| d when m = 0 (M = k0); cos and sin within an ulp each, and the complex product
- *    2 sqrt(2) u (Higham sec. 3.6): 6 u beside the angle's error, all times |phi^_j|; plus the CF's own declared error.
+ *    2 sqrt(2) u (Higham sec. 3.6): 6 u beside the angle's error, all times |phi^_j|; plus the CF's own declared error
+ *    and the rounding of its value from the log-CF (cfRelError, ./part.ts: the model's units of rounding relative to
+ *    1 + |L|, exp, cos and sin of L).
  * The transform: Higham sec. 24.1, Thm 24.2 (radix 2, twiddles off by at most mu), ||y^ - y||_2 <= log2(N) eta ||y||_2 /
  * (1 - log2(N) eta), eta = mu + gamma_4 (sqrt(2) + mu); fft.js (radix 4, each stage the work of two radix-2 levels,
  * twiddles from Math.cos/sin of 2 pi k/N, mu <= (2 pi + 2) u) gives eta <= 16 u; per output, the levels' errors are at
@@ -120,7 +123,25 @@ function latticeByFft(model: CompiledModel, origin: number, step: number, k0: nu
   }
   const re = new Float64Array(N);
   const im = new Float64Array(N);
-  model.cf(t, re, im);
+  // phi from the log-CF as the compiled model's cf forms it, with the relative error of each value: the model's units
+  // of rounding relative to 1 + |L| and exp, cos, sin of L (cfRelError, ./part.ts), plus what special functions add
+  model.logCf(t, re, im);
+  const ulps = cfUlps(model);
+  const extra = model.logCfExtraError;
+  const valRel = new Float64Array(N);
+  for (let j = 0; j < N; j++) {
+    const lr = re[j];
+    const li = im[j];
+    valRel[j] = cfRelError(ulps, lr, li, t[j], 0) + (extra ? extra(Math.abs(t[j])) : 0);
+    const m = Math.exp(lr);
+    if (m === 0) {
+      re[j] = 0;
+      im[j] = 0;
+    } else {
+      re[j] = m * Math.cos(li);
+      im[j] = m * Math.sin(li);
+    }
+  }
   // the route of the phase: the one whose bound is smaller over these CF values
   const [k1, k2] = model.cumulants(2);
   const spread = (r: number) => {
@@ -169,7 +190,7 @@ function latticeByFft(model: CompiledModel, origin: number, step: number, k0: nu
     inp[2 * j] = re[j] * c - im[j] * s;
     inp[2 * j + 1] = re[j] * s + im[j] * c;
     const tj = Math.abs(t[j]);
-    const e = v.e * tj + mag[j] * (v.a * tj + v.b + cfRel) + cfAbs;
+    const e = v.e * tj + mag[j] * (v.a * tj + v.b + cfRel + valRel[j]) + cfAbs;
     const x = mag[j] * (1 + 6 * u);
     sumE += e;
     sumE2 += e * e;
