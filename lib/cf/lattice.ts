@@ -3,6 +3,7 @@ import { CfError } from "./errors";
 import { checkDeadline } from "./deadline";
 import { MAX_LATTICE } from "./limits";
 import type { LatticeTable } from "./types";
+import { convolvedRound, roundOf, type TableRound } from "./table-rounding";
 
 /** Relative tolerance for deciding that two steps (or an offset and a step) are commensurate. */
 export const COMMENSURATE_TOL = 1e-12;
@@ -103,9 +104,14 @@ export function convolve(a: Float64Array, b: Float64Array, out?: Float64Array): 
   const la = a.length;
   const lb = b.length;
   if (la === 0 || lb === 0) throw new CfError("invalid_model", "", "Cannot convolve an empty table.");
-  const N = nextPowerOfTwo(la + lb - 1);
-  if (Math.min(la, lb) <= 32 || la * lb <= 6 * N * Math.log2(N)) return convolveDirect(a, b, out);
+  if (!convolveByFft(la, lb)) return convolveDirect(a, b, out);
   return convolveFft(a, b, out);
+}
+
+/** whether convolve takes the FFT (else the direct sums) for inputs of these lengths */
+function convolveByFft(la: number, lb: number): boolean {
+  const N = nextPowerOfTwo(la + lb - 1);
+  return !(Math.min(la, lb) <= 32 || la * lb <= 6 * N * Math.log2(N));
 }
 
 function sum(p: Float64Array): number {
@@ -143,17 +149,24 @@ export function convolveTables(tables: LatticeTable[], maxLength = MAX_LATTICE):
     g = c;
   }
   if (g === 0) g = tables[0].step || 1;
-  const steps = tables.map((t) => restep(t, g)).sort((x, y) => x.p.length - y.p.length);
+  // each table's rounding bound, where known, follows the convolutions (./table-rounding.ts); restepping moves no value
+  const steps = tables.map((t) => ({ ...restep(t, g), round: roundOf(t) ?? undefined })).sort((x, y) => x.p.length - y.p.length);
   let acc = steps[0].p;
+  let round: TableRound | undefined = steps[0].round;
   let origin = steps[0].origin;
   let mass = sum(steps[0].p) + steps[0].tailMass;
   for (let i = 1; i < steps.length; i++) {
-    acc = truncate(convolve(truncate(acc, maxLength), truncate(steps[i].p, maxLength)), maxLength);
+    const a = truncate(acc, maxLength);
+    const b = truncate(steps[i].p, maxLength);
+    const c = convolve(a, b);
+    acc = truncate(c, maxLength);
+    const rb = steps[i].round;
+    round = round && rb ? convolvedRound(a, b, round, rb, convolveByFft(a.length, b.length), nextPowerOfTwo(a.length + b.length - 1), c, acc.length) : undefined;
     origin += steps[i].origin;
     mass *= sum(steps[i].p) + steps[i].tailMass;
   }
   const p = acc.length === acc.buffer.byteLength / 8 ? acc : acc.slice();
-  return { origin, step: g, p, tailMass: Math.max(0, mass - sum(p)) };
+  return { origin, step: g, p, tailMass: Math.max(0, mass - sum(p)), ...(round ? { round } : {}) };
 }
 
 /**

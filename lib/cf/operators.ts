@@ -3,6 +3,7 @@ import { carryScaleKernels, carryShiftKernels, carrySumKernels } from "./kernel-
 import type { Node, NodeKind } from "./node";
 import { repeatKind, scaleKind, shiftKind, sumKinds } from "./kinds";
 import { convolveTables, powerTable } from "./lattice";
+import { roundOf } from "./table-rounding";
 import type { CompiledModel, LatticeTable, TailTerm } from "./types";
 import { affineDirect } from "./direct/affine";
 import { collectNotes, carryApproximation, combineScales, addCumulants, completeAtoms, beyondWindow } from "./operators-shared";
@@ -216,7 +217,9 @@ export function scaleNode(a: number, c: Node): Node {
     node.table = (maxLength) => {
       const tab = c.table!(maxLength);
       if (!tab) return null;
-      if (a > 0) return { origin: a * tab.origin, step: a * tab.step, p: tab.p, tailMass: tab.tailMass, cdfError: tab.cdfError };
+      // (the values move nowhere: the table's rounding bound, where known, stays; ./table-rounding.ts)
+      const round = roundOf(tab) ?? undefined;
+      if (a > 0) return { origin: a * tab.origin, step: a * tab.step, p: tab.p, tailMass: tab.tailMass, cdfError: tab.cdfError, ...(round ? { round } : {}) };
       // reversing a truncated table puts the cut below its origin, where tailMass (an upper-tail mass) cannot go: an
       // exact table falls back to the CF route (its CF is the lattice law's); a discretised one must not (its node's
       // CF is the continuous law's, so an FFT of it on the lattice is not this table), and the cut mass joins its
@@ -224,7 +227,7 @@ export function scaleNode(a: number, c: Node): Node {
       if (tab.tailMass > 0 && tab.cdfError === undefined) return null;
       const p = tab.p.slice().reverse();
       const cdfError = tab.cdfError === undefined ? undefined : tab.cdfError + tab.tailMass;
-      return { origin: a * (tab.origin + (tab.p.length - 1) * tab.step), step: aa * tab.step, p, tailMass: 0, cdfError };
+      return { origin: a * (tab.origin + (tab.p.length - 1) * tab.step), step: aa * tab.step, p, tailMass: 0, cdfError, ...(round ? { round } : {}) };
     };
     node.approximate = c.approximate;
   }

@@ -18,6 +18,13 @@ export function latticeNode(origin: number, step: number, pIn: ArrayLike<number>
   let total = 0;
   for (let k = 0; k < p.length; k++) total += p[k];
   for (let k = 0; k < p.length; k++) p[k] /= total;
+  // the probabilities as given are the law; normalising rounds each within gamma_n relative (the sum n - 1 roundings,
+  // the division one; none when the sum is exactly 1): the table's rounding bound (./table-rounding.ts)
+  const u = Number.EPSILON / 2;
+  const rel = total === 1 ? 0 : (p.length * u) / (1 - p.length * u);
+  let pMax = 0;
+  for (let k = 0; k < p.length; k++) pMax = Math.max(pMax, p[k]);
+  const round = { pmf: rel * pMax * (1 + 2 * rel), l1: rel * (1 + 2 * rel) * (1 + p.length * Number.EPSILON) };
   const xs = Float64Array.from(p, (_, k) => o + k * step);
   const base = atomsNode(xs, p);
   const atoms: Atom[] | null = p.length <= MAX_ATOMS ? mergeAtoms(Array.from(p, (v, k) => ({ x: xs[k], p: v }))) : null;
@@ -27,10 +34,10 @@ export function latticeNode(origin: number, step: number, pIn: ArrayLike<number>
     notes: [...(note ? [note] : []), ...(Math.abs(total - 1) > 1e-14 ? [`lattice probabilities summed to ${total}; normalised to 1`] : [])],
     kind: { type: "lattice", origin: o, step, atoms },
     table: (maxLength) => {
-      if (p.length <= maxLength) return { origin: o, step, p: p.slice(), tailMass: 0 };
+      if (p.length <= maxLength) return { origin: o, step, p: p.slice(), tailMass: 0, round };
       let tail = 0;
       for (let k = maxLength; k < p.length; k++) tail += p[k];
-      return { origin: o, step, p: p.slice(0, maxLength), tailMass: tail };
+      return { origin: o, step, p: p.slice(0, maxLength), tailMass: tail, round };
     },
   };
   if (isCount) {

@@ -32,6 +32,8 @@ export interface LatticeTable {
   pointRel?: (k: number) => number;
   /** with pointRel: a bound on p[k] for k past the table's end (the answer there is 0, so this bounds its error) */
   beyond?: (k: number) => number;
+  /** bounds on the rounding of p: every entry (pmf) and their sum (l1), where derived (../table-rounding.ts) */
+  round?: { pmf: number; l1: number };
 }
 
 export interface CompiledModel {

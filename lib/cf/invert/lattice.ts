@@ -6,6 +6,7 @@ import { bulkWindow, lawShape } from "./range";
 import { markovTail, momentBounds } from "./moment-tails";
 import { twoProdErr, twoSumErr } from "../moment-error";
 import { cfRelError, cfUlps } from "./part";
+import { roundOf } from "../table-rounding";
 
 const EPS = Number.EPSILON;
 /** a table grows past the tolerance, until its rounding dominates the aliasing bound, only while below this size */
@@ -269,29 +270,21 @@ function sumAbs(p: Float64Array): number {
 }
 
 /**
- * The rounding of a tabulated pmf and of its cumulative sums. A table from a recursion carries its per-point relative
- * bound (pointRel, non-decreasing): each p_k within pointRel(k) p_k, so every cdf or sf value within sum_k pointRel(k) p_k
- * plus the compensated sums' 2u + O(n u^2) of sum p (latticeCumulative; Higham, Accuracy and Stability of Numerical
- * Algorithms, 2nd ed., sec. 4.3), taken as 4u. Other tables (convolutions, Panjer's recursion, powers) carry no derived
- * bound yet: 4 eps sqrt(n) for the pmf and 8 eps sqrt(n) more for the cdf, a rounding estimate (random-walk growth),
- * not a bound.
+ * The rounding of a tabulated pmf and of its cumulative sums. A table with a derived rounding bound (../table-rounding.ts
+ * roundOf: a recursion's per-point bounds, or bounds carried through convolutions) has every entry within its `pmf` and
+ * every cdf or sf value within its `l1` plus the compensated sums' 2u + O(n u^2) of sum p (latticeCumulative; Higham,
+ * Accuracy and Stability of Numerical Algorithms, 2nd ed., sec. 4.3), taken as 2 eps. Other tables (Panjer's recursion,
+ * powers, mixtures) carry no derived bound yet: 4 eps sqrt(n) for the pmf and 8 eps sqrt(n) more for the cdf, a
+ * rounding estimate (random-walk growth), not a bound.
  */
 function tableRounding(t: LatticeTable): { pmf: number; cdf: number } {
   const n = t.p.length;
-  const rel = t.pointRel;
-  if (!rel) return { pmf: 4 * Number.EPSILON * Math.sqrt(n), cdf: 12 * Number.EPSILON * Math.sqrt(n) };
-  let pmf = 0;
-  let cdf = 0;
+  const r = roundOf(t);
+  if (!r) return { pmf: 4 * Number.EPSILON * Math.sqrt(n), cdf: 12 * Number.EPSILON * Math.sqrt(n) };
   let sum = 0;
-  for (let k = 0; k < n; k++) {
-    const e = rel(k) * Math.max(t.p[k], 0);
-    if (e > pmf) pmf = e;
-    cdf += e;
-    sum += Math.max(t.p[k], 0);
-  }
-  // (these sums of non-negative terms within n u of themselves)
-  const grow = 1 + n * Number.EPSILON;
-  return { pmf, cdf: (cdf + 2 * Number.EPSILON * sum) * grow };
+  for (let k = 0; k < n; k++) sum += Math.max(t.p[k], 0);
+  // (the sum of non-negative terms within n u of itself)
+  return { pmf: r.pmf, cdf: r.l1 + 2 * Number.EPSILON * sum * (1 + n * Number.EPSILON) };
 }
 
 /** cdf and sf at each lattice point, sf summed from the right so upper tails keep relative accuracy. */
