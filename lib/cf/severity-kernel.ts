@@ -134,32 +134,37 @@ export function lognormalKernel(
     // E X^n = exp(n mu + n^2 sigma^2 / 2) (JKB vol. 1, ch. 14)
     moments: [m1, Math.exp(2 * mu + 2 * sigma * sigma)],
     cfAbsError,
-    at(x) {
+    at(x, wantPdf = true, wantInt = true) {
       if (!(x > 0)) return { F: 0, f: 0, I: 0, err: 0, errf: 0, errI: 0 };
       const lx = Math.log(x);
       const z = (lx - mu) / sigma;
       const dz = 1.01 * ((2 * U * Math.abs(lx)) / sigma + 2 * U * Math.abs(z));
-      const z2 = z - sigma;
-      const dz2 = dz + U * Math.abs(z2);
-      normalCdfBounded(z, pF);
-      normalCdfBounded(z2, pF2);
-      const F = pF.v;
-      const F2 = pF2.v;
       const q = 1 / Math.sqrt(2 * Math.PI);
+      normalCdfBounded(z, pF);
+      const F = pF.v;
       // Phi's own bound plus phi(z) times z's rounding (phi(z) <= its computed value times 1 + 8u)
       const eF = pF.e + q * Math.exp(-0.5 * z * z) * dz * (1 + 8 * U);
-      const eF2 = pF2.e + q * Math.exp(-0.5 * z2 * z2) * dz2 * (1 + 8 * U);
-      const f = pdf(x);
-      // int_0^x F: the difference of x F and m1 F2, each with its value's error, the products' and m1's rounding, the
-      // difference u
-      const I = Math.max(x * F - m1 * F2, 0);
+      const f = wantPdf ? pdf(x) : NaN;
+      let I = NaN;
+      let errI = Infinity;
+      if (wantInt) {
+        // int_0^x F: the difference of x F and m1 F2, each with its value's error, the products' and m1's rounding,
+        // the difference u (F2 only where asked: its Phi is the costly part)
+        const z2 = z - sigma;
+        const dz2 = dz + U * Math.abs(z2);
+        normalCdfBounded(z2, pF2);
+        const F2 = pF2.v;
+        const eF2 = pF2.e + q * Math.exp(-0.5 * z2 * z2) * dz2 * (1 + 8 * U);
+        I = Math.max(x * F - m1 * F2, 0);
+        errI = w * (x * eF + m1 * eF2 + (4 * U + m1Rel) * (x * F + m1 * F2)) * (1 + 4 * U) + U * w * I;
+      }
       return {
         F: w * F,
         f: w * f,
         I: w * I,
         err: w * eF * (1 + 2 * U) + U * w * F,
-        errf: w * 16 * Number.EPSILON * (1 + Math.abs(z) * Math.abs(z)) * f,
-        errI: w * (x * eF + m1 * eF2 + (4 * U + m1Rel) * (x * F + m1 * F2)) * (1 + 4 * U) + U * w * I,
+        errf: wantPdf ? w * 16 * Number.EPSILON * (1 + Math.abs(z) * Math.abs(z)) * f : Infinity,
+        errI,
       };
     },
     densityBeyond: (from) => w * pdf(Math.max(from, mode)),
