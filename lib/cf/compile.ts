@@ -7,7 +7,9 @@ import type { Node } from "./node";
 import { validateModel } from "./validate";
 import { toLawKind } from "./kinds";
 import { MAX_LATTICE } from "./limits";
-import { layerNode } from "./layer";
+import { layerNode, type LayerTerms } from "./layer";
+import { claimMode, layerContinuousMajorant } from "./layer-majorant";
+import { compoundMajorant } from "./compound-majorant";
 import { lgamma } from "./families/special";
 import { MONOTONE_ABS_CF, mixMajorant, repeatMajorant, scaleMajorant, selfMajorant, shiftMajorant, sumMajorant, uniformMajorant } from "./majorant";
 import { familyMajorant, monotoneExtras } from "./family-majorants";
@@ -106,7 +108,7 @@ function shifted(b: number, child: Node): Node {
 
 function operatorNode(mIn: Model, buildNode_: (x: Model) => Node, opts: CompileOptions): Node {
   const m = mIn as Exclude<Model, FamilyModel>;
-  if ("layer" in m) return layerNode(buildNode_(m.of), m.layer);
+  if ("layer" in m) return withLayerMajorant(m.of, m.layer, buildNode_(m.of));
   if ("repeat" in m) {
     const child = buildNode_(m.of);
     const node = repeatNode(m.repeat, child);
@@ -133,11 +135,30 @@ function operatorNode(mIn: Model, buildNode_: (x: Model) => Node, opts: CompileO
     const se = sev.logCfErr;
     const slope = Math.max(1, count.cgfSlope ?? 1);
     if (se) node.logCfErr = (t) => slope * se(t);
+    // a continuous severity with a derived majorant: the compound's continuous part (its atom at 0 taken out)
+    if (sev.kind.type === "continuous" && sev.logMajorant && (node.kind.type === "continuous" || (node.kind.type === "mixed" && node.kind.atomsComplete && node.kind.atoms.every((a) => a.x === 0)))) {
+      const cm = compoundMajorant(count, sev.logMajorant, node.kind.type === "mixed" ? node.kind.atoms : []);
+      if (cm && cm.atoms.length === 0) node.logMajorant = cm.maj;
+      else if (cm) node.continuousMajorant = cm;
+    }
     return node;
   }
   if ("lattice" in m) return withCumulantErrors(latticeNode(m.lattice.origin, m.lattice.step, m.lattice.p), latticeE(m.lattice.origin, m.lattice.step, m.lattice.p));
   if ("sample" in m) return withCumulantErrors(sampleNode(m.sample, MAX_LATTICE, m.weights), sampleE(m.sample, m.weights));
   throw new Error("unreachable: validated model without a known node");
+}
+
+/** A per-claim layer of a family claim with a unimodal density: the derived majorant of its continuous part. */
+function withLayerMajorant(of: Model, terms: Partial<LayerTerms>, X: Node): Node {
+  const node = layerNode(X, terms);
+  if (!("family" in of) || !X.dist || node.kind.type !== "mixed") return node;
+  const mode = claimMode(of.family, of as unknown as Record<string, number>);
+  if (mode === null) return node;
+  const cm = layerContinuousMajorant(X.dist, mode, terms.deductible ?? 0, terms.limit ?? Infinity, terms.share ?? 1, node.kind.atoms ?? []);
+  if (!cm) return node;
+  if (cm.atoms.length === 0) node.logMajorant = cm.maj;
+  else node.continuousMajorant = cm;
+  return node;
 }
 
 const sumErr = (fs: (((t: number) => number) | undefined)[]) => {
@@ -228,6 +249,7 @@ export function toCompiled(node: Node): CompiledModel {
     ...(node.powerIndices && node.powerIndices.length > 1 ? { powerIndices: node.powerIndices } : {}),
     ...(node.bounds ? { bounds: node.bounds } : {}),
     ...(node.logMajorant ? { logAbsMajorant: node.logMajorant } : {}),
+    ...(node.continuousMajorant ? { continuousMajorant: node.continuousMajorant } : {}),
     logCfUlps: 8 * Math.max(1, node.nodes),
     ...(node.logCfErr ? { logCfExtraError: node.logCfErr } : {}),
     ...(node.densityJumps?.length ? { densityJumps: node.densityJumps } : {}),

@@ -86,6 +86,8 @@ export interface Node {
   tailTerm?: TailTerm;
   /** log of a non-increasing majorant of |phi| on t >= 0, where the tree gives one (./majorant.ts) */
   logMajorant?: import("./majorant").LogMajorant;
+  /** a majorant of |phi - the listed atoms' terms| (the continuous part alone), where derived (./layer-majorant.ts) */
+  continuousMajorant?: import("./layer-majorant").ContinuousMajorant;
   /** absolute error of log phi(t) beyond 8 units of rounding per node relative to 1 + |L| (special functions whose
    *  terms cancel), at frequency t >= 0 */
   logCfErr?: (t: number) => number;

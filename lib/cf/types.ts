@@ -82,6 +82,8 @@ export interface CompiledModel {
   logCfExtraError?(t: number): number;
   /** log of a non-increasing majorant of |phi| on t >= 0 (M(t) >= sup_{s >= t} |phi(s)|), where the tree gives one */
   logAbsMajorant?: import("./majorant").LogMajorant;
+  /** a majorant of |phi(t) - sum_j p_j e^{i t x_j}| over the listed atoms (the continuous part alone), where derived */
+  continuousMajorant?: import("./layer-majorant").ContinuousMajorant;
   /** sums: the term with the heaviest power tail, when it has a direct law (see TailTerm) */
   readonly tailTerm?: TailTerm;
   /** when the law is lattice and can be tabulated (finite lattices, Panjer for compounds, or the opt-in

@@ -132,7 +132,10 @@ export function invertContinuous(model: CompiledModel, atoms: Atom[], req: Reque
     if (part.tail) notes.push(`the heaviest-tailed term, shifted by the other terms' mean, is evaluated directly and only the rest is inverted (its tails have index ${alpha.toPrecision(3)})`);
   }
   ({ part, env } = maybeKernels(part, env, shape, win, truncTarget, opt.wantPdf, notes));
-  let tmax = opt.maxFrequency ?? cutoffFor(env, opt.wantPdf ? truncTarget : Infinity, truncTarget);
+  // an envelope falling only like 1/t (a derived one for a density with jumps, where no kernels took them out) bounds no
+  // pdf truncation at any cut-off: the cdf's target alone sets it (the pdf's bound is then infinite, as stated)
+  const pdfTarget = opt.wantPdf && Number.isFinite(env.tailPdf[0]) ? truncTarget : Infinity;
+  let tmax = opt.maxFrequency ?? cutoffFor(env, pdfTarget, truncTarget);
   if (!Number.isFinite(tmax)) tmax = env.t[env.t.length - 1];
 
   const method = opt.method;

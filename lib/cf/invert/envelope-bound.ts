@@ -6,7 +6,8 @@ const EPS = Number.EPSILON;
 
 /**
  * The envelope of |phi_part| from the model's derived majorant M (../majorant.ts), for a part with nothing subtracted
- * (phi_part = phi e^{-i t c}). On each probe interval [t_i, t_{i+1}] |phi_part| is at most M(t_i) (M non-increasing) and,
+ * (phi_part = phi e^{-i t c}), or with the law's atoms taken out where M bounds the continuous part alone
+ * (../layer-majorant.ts; phi_part = (phi - sum p_j e^{i t x_j}) e^{-i t c} / w). On each probe interval [t_i, t_{i+1}] |phi_part| is at most M(t_i) (M non-increasing) and,
  * where the tree derives a non-increasing majorant S of |d/dt phi_part| (its slope about its own centre c0, plus
  * |c - c0| M for the recentring), at most max over the interval of the two lines a_i + S(t_i)(s - t_i) and
  * a_{i+1} + S(t_i)(t_{i+1} - s) (mean value theorem), i.e. (a_i + a_{i+1} + S(t_i) dt) / 2, a_i the computed |phi(t_i)|
@@ -38,7 +39,9 @@ export function majorantEnvelope(
       continue;
     }
     const rel = cfRelError(ulps, logRe[i], logIm[i], t[i], part.center) + (extra ? extra(t[i]) : 0);
-    a[i] = (mag[i] * (1 + rel) + part.cfAbsError / w) * (1 + 4 * EPS);
+    // with atoms taken out, phi's error is relative to |phi| (not to the part's value), and the subtraction's rounding
+    // is the noise floor's allowance
+    a[i] = part.atoms.length === 0 ? (mag[i] * (1 + rel) + part.cfAbsError / w) * (1 + 4 * EPS) : (mag[i] + (Math.exp(logRe[i]) * rel + part.cfAbsError) / w + nf(t[i])) * (1 + 4 * EPS);
   }
   let sl: Float64Array | null = null;
   let dc = 0;

@@ -112,14 +112,21 @@ export function probeEnvelope(part: ContinuousPart, scale: number): Envelope {
   for (let i = 0; i < n; i++) mag[i] = cabs(re[i], im[i]);
   const sampled = envelopeOf(t, mag, nf);
   // samples bound |phi| between probes only where it is monotone; the model's derived majorant (../majorant.ts) bounds
-  // it everywhere, and is used when it applies to the inverted part (no atoms, kernels or tail law subtracted)
-  const maj = part.model.logAbsMajorant;
-  if (!maj || part.atoms.length > 0 || part.kernels.length > 0 || part.tail) return sampled;
+  // it everywhere, and is used when it applies to the inverted part (no kernels or tail law subtracted; atoms only where
+  // the model derives a majorant of its continuous part with exactly those atoms taken out, ../layer-majorant.ts)
+  const maj = part.atoms.length === 0 ? part.model.logAbsMajorant : sameAtoms(part.atoms, part.model.continuousMajorant?.atoms) ? part.model.continuousMajorant!.maj : undefined;
+  if (!maj || part.kernels.length > 0 || part.tail) return sampled;
   const bound = majorantEnvelope(part, maj, t, mag, own.re, own.im, evaluated, sampled, nf);
   // a majorant without a derived decay past the probes (a mixture with a component bounded by 1) gives no finite
   // tail: the sampled envelope is kept there (not derived between probes; see majorant.ts)
   if (!Number.isFinite(bound.tailCdf[0])) return sampled;
   return bound;
+}
+
+/** the same atoms (positions and masses, in any order) */
+function sameAtoms(a: { x: number; p: number }[], b: { x: number; p: number }[] | undefined): boolean {
+  if (!b || a.length !== b.length) return false;
+  return a.every((u) => b.some((v) => v.x === u.x && v.p === u.p));
 }
 
 /** Envelope from sampled magnitudes |phi(t_i)| on the geometric probe (PER_OCTAVE per octave), values below nf(t_i, i) as 0. */
