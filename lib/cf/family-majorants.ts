@@ -2,6 +2,8 @@ import { gamma, lgamma } from "./families/special";
 import { majorant, type LogMajorant, type Slope } from "./majorant";
 import { least, powerMajorant, type PowerBounds } from "./power-majorant";
 import { lognormalMajorant } from "./lognormal-majorant";
+import { betaSingularMajorant, burrSingularMajorant } from "./singular-majorants";
+import { truncatedNormalMajorant } from "./layer-majorant";
 
 const EPS = Number.EPSILON;
 
@@ -208,10 +210,10 @@ export function monotoneExtras(family: string, p: Record<string, number>): { q?:
 /**
  * Unimodal densities vanishing at both ends (or jumping at the lower end and falling): TV(f) = 2 f(mode), |phi| <=
  * 2 f(mode) / t, with the closed-form modes (Klugman, Panjer & Willmot, Loss Models, app. A; JKB vol. 1 ch. 15 for the
- * inverse gaussian): burr (gamma >= 1) at theta ((gamma - 1) / (alpha gamma + 1))^{1/gamma}; loglogistic the burr with
+ * inverse gaussian): burr (gamma >= 1; below 1, and beta shapes below 1, in singular-majorants.ts) at theta ((gamma - 1) / (alpha gamma + 1))^{1/gamma}; loglogistic the burr with
  * alpha = 1; inverse gaussian at mu (sqrt(1 + 9 mu^2 / (4 lambda^2)) - 3 mu / (2 lambda)); inverse gamma at
  * theta / (alpha + 1). Generalized pareto (xi > -1): f falls from 1 / sigma at its lower end (a jump) to 0, so
- * TV(f) = 2 / sigma; for xi >= 0 f' rises monotonically from -(1 + xi) / sigma^2 to 0: J / t + 2 (1 + xi) / (sigma^2 t^2).
+ * TV(f) = 2 / sigma (xi = -1, the uniform on [mu, mu + sigma]: two jumps of 1 / sigma, the same); for xi >= 0 f' rises monotonically from -(1 + xi) / sigma^2 to 0: J / t + 2 (1 + xi) / (sigma^2 t^2).
  */
 function unimodalMajorant(family: string, p: Record<string, number>): LogMajorant | undefined {
   const m = 1 + 1e-12; // the densities' few exp, log and pow at the mode
@@ -222,7 +224,10 @@ function unimodalMajorant(family: string, p: Record<string, number>): LogMajoran
   switch (family) {
     case "generalized_pareto": {
       const { xi, sigma } = p;
-      if (!(xi > -1)) return undefined;
+      // xi < -1: Beta(1, -1 / xi) on [mu, mu - sigma / xi], singular at the upper end (singular-majorants.ts)
+      if (xi < -1) return betaSingularMajorant(1, -1 / xi, p.mu ?? 0, (p.mu ?? 0) - sigma / xi);
+      // xi = -1: uniform on [mu, mu + sigma], |phi| <= 2 / (sigma t), the bound below
+      if (!(xi >= -1)) return undefined;
       const bs: PowerBounds = [[1], [0, (2 / sigma) * m]];
       if (xi >= 0) bs.push([0, (1 / sigma) * m, ((2 * (1 + xi)) / (sigma * sigma)) * m]);
       return powerMajorant(bs);
@@ -232,6 +237,7 @@ function unimodalMajorant(family: string, p: Record<string, number>): LogMajoran
       const a = family === "burr" ? p.alpha : 1;
       const g = p.gamma;
       const th = p.theta;
+      if (g < 1) return burrSingularMajorant(a, g, th);
       if (!(g >= 1)) return undefined;
       const fmax = g === 1 ? a / th : burrPdf(a, g, th, th * Math.pow((g - 1) / (a * g + 1), 1 / g));
       return powerMajorant([[1], [0, 2 * fmax * m]]);
@@ -246,6 +252,8 @@ function unimodalMajorant(family: string, p: Record<string, number>): LogMajoran
       const lam = p.lambda ?? 4;
       const al = family === "beta" ? p.alpha : 1 + (lam * (p.m - a)) / (b - a);
       const be = family === "beta" ? p.beta : 1 + (lam * (b - p.m)) / (b - a);
+      // a shape below 1 (beta only: pert's shapes are 1 + lambda (...) >= 1): singular-majorants.ts
+      if (al > 0 && be > 0 && (al < 1 || be < 1)) return betaSingularMajorant(al, be, a, b);
       if (!(al >= 1 && be >= 1)) return undefined;
       const y = al + be > 2 ? (al - 1) / (al + be - 2) : 0.5;
       const lb = lgamma(al) + lgamma(be) - lgamma(al + be);
@@ -281,6 +289,8 @@ export function familyMajorant(family: string, p: Record<string, number>): LogMa
       return weibullMajorant(p.shape, p.scale);
     case "triangular":
       return triangularMajorant(p.a, p.c, p.b);
+    case "truncated_normal":
+      return truncatedNormalMajorant(p.mu, p.sigma, p.lower, p.upper);
     default:
       return unimodalMajorant(family, p);
   }

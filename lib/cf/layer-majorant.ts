@@ -1,6 +1,8 @@
 import type { Atom } from "./types";
 import type { DirectLaw } from "./families/dist";
+import { normalCdf, normalDist } from "./families/dist";
 import { majorant, type LogMajorant } from "./majorant";
+import { powerMajorant } from "./power-majorant";
 
 const EPS = Number.EPSILON;
 
@@ -102,4 +104,27 @@ export function layerContinuousMajorant(dist: DirectLaw, mode: number, d: number
     slope,
   );
   return { atoms, maj };
+}
+
+/**
+ * Truncated normal N(mu, sigma^2) on [a, b] (JKB vol. 1 ch. 13 sec. 10.1): f = phi(z) / (sigma Z), z = (x - mu) / sigma,
+ * unimodal with its largest value at clamp(mu, a, b), so TV(f) (jumps at finite ends included) = 2 f(clamp(mu, a, b));
+ * and with jumps f(a), f(b) at the ends, f' = -z f / sigma, |f'| <= phi(1) / (sigma^2 Z) (at z = +-1), and f' rises,
+ * falls and rises again, TV(f' on (a, b)) <= 4 max |f'|: |phi| <= (f(a) + f(b)) / t + 6 phi(1) / (sigma^2 Z t^2) (the
+ * bounded-variation bounds of power-majorant.ts). Z = Phi(beta) - Phi(alpha) (upper-tail form past the mean) is taken
+ * less twice the normal cdf's stated accuracy on each term.
+ */
+export function truncatedNormalMajorant(mu: number, sigma: number, lower?: number, upper?: number): LogMajorant | undefined {
+  const a = lower ?? -Infinity;
+  const b = upper ?? Infinity;
+  const al = (a - mu) / sigma;
+  const be = (b - mu) / sigma;
+  const [t1, t2] = al > 0 ? [normalCdf(-al), normalCdf(-be)] : [normalCdf(be), normalCdf(al)];
+  const Z = (t1 - t2) * (1 - 4 * EPS) - 2 * normalDist(0, 1).accuracy * (t1 + t2);
+  if (!(Z > 0) || !(sigma > 0)) return undefined;
+  const phi = (z: number) => (Number.isFinite(z) ? Math.exp(-0.5 * z * z) / Math.sqrt(2 * Math.PI) : 0);
+  const m = 1 + 64 * EPS;
+  const f = (z: number) => (phi(z) / (sigma * Z)) * m;
+  const zm = Math.min(Math.max(0, al), be);
+  return powerMajorant([[1], [0, 2 * f(zm)], [0, f(al) + f(be), (6 * phi(1) * m) / (sigma * sigma * Z)]]);
 }

@@ -1,8 +1,10 @@
+import { readFileSync } from "node:fs";
+import { join } from "node:path";
 import { describe, it } from "vitest";
 import { compile } from "@/lib/cf/compile";
 import { density } from "@/lib/cf/invert/density";
 import { makePart } from "@/lib/cf/invert/part";
-import { probeEnvelope } from "@/lib/cf/invert/nodes";
+import { envelopeOf, probeEnvelope, probeFrequencies } from "@/lib/cf/invert/nodes";
 import type { Model } from "@/lib/cf/types";
 import { Checker } from "./invert-helpers";
 
@@ -72,4 +74,52 @@ describe("envelope of |phi| between and beyond the probes (reference: closed-for
       c.done();
     });
   }
+});
+
+// Beta(1/2, 1/2) on [0, W] (a density singular at both ends: lib/cf/singular-majorants.ts) plus a gamma(3, 1):
+// |phi(s)| = |J0(W s / 2)| (1 + s^2)^{-3/2}, its largest value on 401 points of each probe interval from
+// tests/fixtures/cf-abs/generate.py (CASESET=peak: mpmath besselj, cross-checked with scipy.special.j0). W puts the probes
+// t_112, t_113 and t_114 near zeros of J0; the running maximum of the sampled |phi| then falls below the peaks between
+// them, which the test shows before checking the derived envelope.
+describe("envelope of |phi| with a singular-density term (reference: cf-abs-peak.json, mpmath besselj)", () => {
+  const f = JSON.parse(readFileSync(join(__dirname, "../fixtures/cf-abs/cf-abs-peak.json"), "utf8")) as {
+    W: number;
+    gammaShape: number;
+    gammaRate: number;
+    rows: { i: number; t: number; sup: number; supDiff: number }[];
+  };
+  const sumModel = { sum: [{ family: "beta", alpha: 0.5, beta: 0.5, a: 0, b: f.W }, { family: "gamma", shape: f.gammaShape, rate: f.gammaRate }] } as unknown as Model;
+  // the largest reference value over the fixture's intervals j >= i (a lower bound of sup_{s >= t_i} |phi(s)|), less its
+  // cross-check difference
+  const supFrom = new Map<number, number>();
+  let run = 0;
+  for (let k = f.rows.length - 1; k >= 0; k--) {
+    run = Math.max(run, f.rows[k].sup - f.rows[k].supDiff);
+    supFrom.set(f.rows[k].i, run);
+  }
+
+  it("the sampled envelope misses the peaks between t_112 and t_115 (the case is one that can fail)", () => {
+    const m = compile(sumModel);
+    const t = probeFrequencies(1);
+    const re = new Float64Array(t.length);
+    const im = new Float64Array(t.length);
+    m.cf(t, re, im);
+    const mag = Float64Array.from(re, (r, i) => Math.hypot(r, im[i]));
+    const sampled = envelopeOf(t, mag, () => 0);
+    const c = new Checker();
+    for (const i of [112, 113, 114]) c.that(`sampled env at t_${i} below the reference`, sampled.env[i] < supFrom.get(i)!, `sampled ${sampled.env[i]}, reference sup ${supFrom.get(i)}`);
+    c.done();
+  });
+
+  it("derived envelope: env(t_i) >= the reference sup over [t_i, inf) on the fixture's intervals", () => {
+    const m = compile(sumModel);
+    const c = new Checker();
+    c.that("has a derived majorant", !!m.logAbsMajorant?.tail);
+    const e = probeEnvelope(makePart(m, [], f.W / 2 + f.gammaShape / f.gammaRate), 1);
+    for (const r of f.rows) {
+      c.that("probe grid", Math.abs(e.t[r.i] / r.t - 1) < 1e-12, `${e.t[r.i]} vs ${r.t}`);
+      c.that(`env at t_${r.i}`, e.env[r.i] >= supFrom.get(r.i)!, `env ${e.env[r.i]} below the reference sup ${supFrom.get(r.i)}`);
+    }
+    c.done();
+  });
 });

@@ -6,9 +6,10 @@ import type { Model } from "@/lib/cf/types";
 import { Checker } from "./invert-helpers";
 
 // |phi(t)| and |E X e^{itX}| on a geometric grid (3 per octave, t in [0.05, 2000]) from
-// tests/fixtures/cf-abs/generate.py (cf-abs.json and cf-abs-2.json): mpmath 1.3 at 30 digits (quadosc/quad, or closed forms), cross-checked against a
-// second method (closed forms or scipy.integrate.quad; the difference is in each row). The majorants are derived in
-// lib/cf/family-majorants.ts and lib/cf/lognormal-majorant.ts; each must be at least the reference at every grid point
+// tests/fixtures/cf-abs/generate.py (cf-abs.json, cf-abs-2.json, cf-abs-3.json, cf-abs-4.json): mpmath at 30 digits (1.3 for the first two files, Debian's 1.2.1 for the others: each file's source says) (quadosc/quad, or closed forms), cross-checked against a
+// second method (closed forms, Kummer's function, the integral on the imaginary axis, or scipy.integrate.quad; the
+// difference is in each row). The majorants are derived in lib/cf/family-majorants.ts, lib/cf/singular-majorants.ts,
+// lib/cf/layer-majorant.ts (truncated normal) and lib/cf/lognormal-majorant.ts; each must be at least the reference at every grid point
 // s >= t, and its stated tail power must hold on the grid. The reference is taken less 1e-25 (its absolute precision).
 interface Row {
   t: number;
@@ -23,8 +24,10 @@ interface Case {
   rows: Row[];
 }
 const load = (f: string) => JSON.parse(readFileSync(join(__dirname, "../fixtures/cf-abs", f), "utf8")) as { source: string; cases: Case[] };
-// cf-abs-2.json: the families with first-order majorants (generate.py with CASESET=2)
-const sets = [load("cf-abs.json"), load("cf-abs-2.json")];
+// cf-abs-2.json: the families with first-order majorants (generate.py with CASESET=2); cf-abs-3.json: densities with a
+// power singularity at an end (beta shapes below 1, generalized pareto xi <= -1, burr and log-logistic gamma < 1; CASESET=3);
+// cf-abs-4.json: the truncated normal (CASESET=4, method 2 its closed form by the complex erf)
+const sets = [load("cf-abs.json"), load("cf-abs-2.json"), load("cf-abs-3.json"), load("cf-abs-4.json")];
 const fixture = { source: sets[0].source, cases: sets.flatMap((s) => s.cases) };
 const SLACK = 1e-25;
 
