@@ -167,47 +167,172 @@ export function compoundKernels(pn: ArrayLike<number>, sev: EndpointSeries, rate
   return kernelsOfSeries(compoundSeries(pn, sev), rate);
 }
 
-/** sum_k w_k e^{-s (at_k - lo)} (rate_k/(rate_k + s))^shape_k at s = beta - i t, subtracted from (re, im) */
-export function subtractKernels(ks: readonly GammaKernel[], lo: number, beta: number, t: Float64Array, re: Float64Array, im: Float64Array) {
-  // by rate, then endpoint, then shape: a shape one above the previous one multiplies its power by z = rate/(rate + s)
+/** the largest integer shape and end multiple taken by complex products in subtractKernels */
+const MAX_POWER = 16;
+
+/** how subtractKernels forms each kernel's factor z^shape e^{-s (at - lo)}: from the previous one, by products, or by exp */
+interface KernelStep {
+  k: GammaKernel;
+  /** a new rate: z (and its powers) are formed afresh */
+  newRate: boolean;
+  /** the previous kernel's factor times z (same end, shape one above) */
+  chained: boolean;
+  /** shape and end multiple for the product route (z^shape E^mult, E = e^{-s base}); 0: exp, cos and sin */
+  shape: number;
+  mult: number;
+  base: number;
+}
+
+/**
+ * the order of work for subtractKernels: by rate, then endpoint, then shape. An integer shape (<= MAX_POWER) at an end
+ * that is an integer multiple of the rate group's smallest positive end, exactly in floating point (a compound's n-claim
+ * ends n at), takes z^shape and e^{-s d} as powers of z and of one E = e^{-s base}, so a node costs one exp, cos and sin
+ * in all instead of one each per end (Poisson(2)-pareto: 4 ends, 10 kernels)
+ */
+function kernelSteps(ks: readonly GammaKernel[], lo: number): KernelStep[] {
   const sorted = [...ks].sort((a, b) => a.rate - b.rate || a.at - b.at || a.shape - b.shape);
+  const out: KernelStep[] = [];
+  let rate = NaN;
+  let base = 0;
+  let prev: GammaKernel | null = null;
+  for (const k of sorted) {
+    const newRate = k.rate !== rate;
+    if (newRate) {
+      rate = k.rate;
+      base = Infinity;
+      for (const x of sorted) if (x.rate === rate && x.at - lo > 0) base = Math.min(base, x.at - lo);
+      prev = null;
+    }
+    const chained = !!prev && prev.at === k.at && Math.abs(k.shape - prev.shape - 1) < 1e-12;
+    const d = k.at - lo;
+    const m = d === 0 ? 0 : Math.round(d / base);
+    const exact = Number.isInteger(k.shape) && k.shape >= 1 && k.shape <= MAX_POWER && m >= 0 && m <= MAX_POWER && (m === 0 ? d === 0 : m * base === d);
+    out.push({ k, newRate, chained, shape: exact ? k.shape : 0, mult: m, base: exact && m > 0 ? base : 0 });
+    prev = k;
+  }
+  return out;
+}
+
+/**
+ * a bound, at any t and beta >= 0, on the per-node rounding subtractKernels adds to `noise` (see there), for psi_c of size
+ * at most `size` before the kernels are subtracted: with |z| <= 1 and
+ * t |z|^shape <= rate for shape >= 1 (|z| <= rate / |t|), and e^{-beta d} beta d <= 1/e, a kernel at end d adds at most
+ * |w| eps (8 shape + 4 mult + 11 + rate d + 1/e), where |z|^shape |log |z|| shape <= 1/e bounds the exp route's
+ * magnitude error; a shape below 1 away from lo has no such bound (t |z|^shape grows): Infinity
+ */
+export function kernelsRounding(ks: readonly GammaKernel[], lo: number, size: number): number {
+  // each subtraction: eps / 2 of at most (size + the kernels' mass) per part, two parts
+  let s = ks.length * Number.EPSILON * (size + kernelsMass(ks));
+  for (const st of kernelSteps(ks, lo)) {
+    const d = Math.max(st.k.at - lo, 0);
+    const mult = st.shape > 0 ? st.mult : 1;
+    if (st.k.shape < 1 && d > 0) return Infinity;
+    s += Math.abs(st.k.w) * Number.EPSILON * (8 * Math.max(st.k.shape, 1) + 4 * mult + 11 + st.k.rate * d + 1 / Math.E);
+  }
+  return s;
+}
+
+const STEPS = new WeakMap<readonly GammaKernel[], { lo: number; steps: KernelStep[] }>();
+
+/**
+ * sum_k w_k e^{-s (at_k - lo)} (rate_k/(rate_k + s))^shape_k at s = beta - i t, subtracted from (re, im); with `noise`,
+ * each node's rounding of these factors added to it, |w| |factor| eps times: by products, (6 shape + 4 mult + 4) for z's
+ * rectangular form (4 eps), each complex product (2 eps >= sqrt(5) u, Higham, Accuracy and Stability, sec. 3.6), exp,
+ * cos and sin (1 eps each per power of E), plus the phase t d and the damping beta d rounded (eps / 2 each); by exp,
+ * shape (|log |z|| + 5) for the log and atan2, t d and beta d for the phase and magnitude, 10 for the rest.
+ * The product by w and each subtraction round by eps / 2 of their parts' sizes, added too (noiseOf's 16 eps per unit of
+ * weight leaves the kernels out)
+ */
+export function subtractKernels(ks: readonly GammaKernel[], lo: number, beta: number, t: Float64Array, re: Float64Array, im: Float64Array, noise?: Float64Array) {
+  let memo = STEPS.get(ks);
+  if (!memo || memo.lo !== lo) STEPS.set(ks, (memo = { lo, steps: kernelSteps(ks, lo) }));
+  const steps = memo.steps;
+  // powers z^1..z^n and E^1..E^n per node (index p - 1), filled up to what the current rate group needs
+  const zr = new Float64Array(MAX_POWER);
+  const zi = new Float64Array(MAX_POWER);
+  const er = new Float64Array(MAX_POWER);
+  const ei = new Float64Array(MAX_POWER);
   for (let j = 0; j < t.length; j++) {
-    let rate = NaN;
+    const tj = t[j];
     let lzr = 0;
     let lzi = 0;
-    let zr = 0;
-    let zi = 0;
-    let prev: GammaKernel | null = null;
+    let logs = false;
+    let nz = 0;
+    let ne = 0;
+    let base = 0;
     let pr = 0;
     let pi = 0;
-    for (const k of sorted) {
-      if (k.rate !== rate) {
-        rate = k.rate;
+    let rel = 0;
+    let err = 0;
+    let r = re[j];
+    let i = im[j];
+    for (const st of steps) {
+      const k = st.k;
+      if (st.newRate) {
         // z = 1 / (1 + s / rate), s = beta - i t
-        const ur = 1 + beta / rate;
-        const ui = -t[j] / rate;
+        const ur = 1 + beta / k.rate;
+        const ui = -tj / k.rate;
         const d2 = ur * ur + ui * ui;
-        zr = ur / d2;
-        zi = -ui / d2;
-        lzr = -0.5 * Math.log(d2);
-        lzi = -Math.atan2(ui, ur);
-        prev = null;
+        zr[0] = ur / d2;
+        zi[0] = -ui / d2;
+        nz = 1;
+        ne = 0;
+        logs = false;
       }
-      if (prev && prev.at === k.at && Math.abs(k.shape - prev.shape - 1) < 1e-12) {
-        const nr = pr * zr - pi * zi;
-        pi = pr * zi + pi * zr;
+      const d = k.at - lo;
+      if (st.chained) {
+        const nr = pr * zr[0] - pi * zi[0];
+        pi = pr * zi[0] + pi * zr[0];
         pr = nr;
+        rel += 6;
+      } else if (st.shape > 0) {
+        const s = st.shape;
+        for (; nz < s; nz++) {
+          zr[nz] = zr[nz - 1] * zr[0] - zi[nz - 1] * zi[0];
+          zi[nz] = zr[nz - 1] * zi[0] + zi[nz - 1] * zr[0];
+        }
+        pr = zr[s - 1];
+        pi = zi[s - 1];
+        const m = st.mult;
+        if (m > 0) {
+          if (ne === 0 || base !== st.base) {
+            base = st.base;
+            const a = Math.exp(-beta * base);
+            er[0] = a * Math.cos(tj * base);
+            ei[0] = a * Math.sin(tj * base);
+            ne = 1;
+          }
+          for (; ne < m; ne++) {
+            er[ne] = er[ne - 1] * er[0] - ei[ne - 1] * ei[0];
+            ei[ne] = er[ne - 1] * ei[0] + ei[ne - 1] * er[0];
+          }
+          const nr = pr * er[m - 1] - pi * ei[m - 1];
+          pi = pr * ei[m - 1] + pi * er[m - 1];
+          pr = nr;
+        }
+        rel = 6 * s + 4 * m + 4 + 0.5 * (tj * d + beta * d);
       } else {
-        const d = k.at - lo;
+        if (!logs) {
+          const ur = 1 + beta / k.rate;
+          const ui = -tj / k.rate;
+          lzr = -0.5 * Math.log(ur * ur + ui * ui);
+          lzi = -Math.atan2(ui, ur);
+          logs = true;
+        }
         const m = Math.exp(k.shape * lzr - beta * d);
-        const a = k.shape * lzi + t[j] * d;
+        const a = k.shape * lzi + tj * d;
         pr = m * Math.cos(a);
         pi = m * Math.sin(a);
+        rel = k.shape * (Math.abs(lzr) + 5) + tj * d + beta * d + 10;
       }
-      prev = k;
-      re[j] -= k.w * pr;
-      im[j] -= k.w * pi;
+      r -= k.w * pr;
+      i -= k.w * pi;
+      // the factor's rounding, the product by w's and the subtraction's (eps / 2 of each part)
+      err += Math.abs(k.w) * (Math.abs(pr) + Math.abs(pi)) * (rel + 0.5) + 0.5 * (Math.abs(r) + Math.abs(i));
     }
+    re[j] = r;
+    im[j] = i;
+    if (noise) noise[j] += err * Number.EPSILON * (1 + 1e-10);
   }
 }
 
