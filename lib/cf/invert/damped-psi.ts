@@ -1,7 +1,8 @@
 // The damped transform psi_c of a law's continuous part less what is taken out in closed form, and its probes (kept per model).
 import type { Atom, CompiledModel } from "../types";
 import type { SeverityKernel } from "../severity-kernel";
-import { kernelsMass, kernelsRounding, subtractKernels } from "../damped-kernels";
+import { kernelsMass } from "../damped-kernels";
+import { kernelsRounding, subtractKernels } from "../damped-kernels-sum";
 import { scratch } from "../damped-scratch";
 import { envelopeOf, probeFrequencies, type Envelope } from "./nodes";
 
