@@ -87,15 +87,15 @@ export function dampedQuantiles(model: CompiledModel, atoms: Atom[], p: Float64A
   let errCdf = dampedAt(s, R, false, false).errF + (s.aliasCdf - aliasCdfAt(s, yR));
   if (s.truncTau < s.truncCdf)
     errCdf += Math.max(truncationSup(s.truncCdf, s.truncTau, s.h, s.beta, yR) - gR * truncationAtY(s.truncCdf, s.truncTau, s.h, yR), 0) * (1 + 4 * Number.EPSILON);
-  // the search asks again for points it has seen (the solution, its bracket's ends, errAt beside eval at one x): the last
-  // few points with the density are kept, and their cdf bound serves errAt (the same sums; Poisson(2)-pareto, seven
-  // levels: 78 evaluations of 142k terms, 22 of them repeats)
+  // the search asks again for points it has seen (the solution, its bracket's ends, errAt beside eval at one x, each
+  // level's first steps): the last 32 points with the density are kept, and their cdf bound serves errAt (the same sums;
+  // Poisson(2)-pareto, seven levels: 78 evaluations of 142k terms, 29 of them repeats)
   const seen = new Map<number, DampedPoint>();
   const withPdf = (x: number) => {
     let v = seen.get(x);
     if (!v) {
       v = dampedAt(s, x, true, false);
-      if (seen.size >= 8) seen.delete(seen.keys().next().value!);
+      if (seen.size >= 32) seen.delete(seen.keys().next().value!);
       seen.set(x, v);
     }
     return v;
@@ -161,7 +161,8 @@ export function dampedQuantiles(model: CompiledModel, atoms: Atom[], p: Float64A
 
 /** E[(X - q)^+] = E X - q + int_lo^q F (atoms exactly, the continuous part's integral from the damped sums) and its bound */
 export function dampedExcess(s: DampedSolution, atoms: Atom[], mean: number, q: number): { value: number; error: number } {
-  const v = dampedAt(s, q, false, true);
+  // int_lo^q F_c is 0 exactly at or below lo (a level inside the atom at lo): no sums needed
+  const v = q <= s.lo ? { Ic: 0, errI: 0 } : dampedAt(s, q, false, true);
   let atomInt = 0;
   for (const a of atoms) if (a.x <= q) atomInt += a.p * (q - a.x);
   const value = Math.max(mean - q + atomInt + v.Ic, 0);
