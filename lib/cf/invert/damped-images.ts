@@ -168,3 +168,17 @@ export function imageMoments(model: CompiledModel, atoms: Atom[], pairOut: boole
   if (!Number.isFinite(mc) || !Number.isFinite(second)) return null;
   return { A: Mc - W, B: mc - mK, second: Math.max(second, 0) };
 }
+
+/**
+ * The limit A of the inverted function G far out (continuous mass less the kernels', the one-claim and, with pairOut, the
+ * two-claim terms' weights), finite whatever the moments: with imageTail's B it takes the cdf's images out where no second
+ * moment exists (a power tail of index <= 2), sum_{m >= 1} (-1)^m q^m G(y + m T) = -A q / (1 + q) + at most q / (1 - q) B(y + T)
+ */
+export function imageLimit(model: CompiledModel, atoms: Atom[], pairOut: boolean): number {
+  const Mc = Math.max(1 - atoms.reduce((s, a) => s + a.p, 0), 0);
+  let W = 0;
+  for (const k of model.dampedKernels ?? []) W += k.w;
+  const sev = model.dampedSeverity;
+  if (sev) W += sev.w + (pairOut && sev.pair ? sev.pair.w : 0);
+  return Mc - W;
+}

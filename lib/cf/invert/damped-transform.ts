@@ -3,7 +3,7 @@ import type { Atom, CompiledModel } from "../types";
 import { kernelsMass } from "../damped-kernels";
 import { cutoffFor, truncationAt, type Envelope } from "./nodes";
 import { noiseOf, probe, slopeValues, type Probed } from "./damped-psi";
-import { densityBeyondWindow, imageMoments, imageTail } from "./damped-images";
+import { densityBeyondWindow, imageLimit, imageMoments, imageTail } from "./damped-images";
 import { slopeCutoff, slopeCutoffRange, slopeEnvelope, slopeTruncationAt, slopeTruncationRange } from "./damped-slope";
 
 export { noiseOf, psiOf } from "./damped-psi";
@@ -121,7 +121,9 @@ const PAIR_COST = 45;
  * are counted over the period actually used. `pdfReach`: the density is answered at the tolerance (density(), not a
  * quantile's bracket), so a cut-off whose density truncation cannot reach its target counts against the plan.
  * `byParts`: the truncated sums may be bounded by parts (see ByParts). `yLow` (ByParts true): a lower bound on y = x - lo of
- * every level the quantile search will solve, where its bound must reach the target as at the range's end.
+ * every level the quantile search will solve, where its bound must reach the target as at the range's end. `withInt`: the
+ * integrated cdf's bound matters (expected shortfall); without it and without a second moment the period is set by the
+ * cdf's images after their closed-form shift (imageLimit, imageTail) instead of their whole mass.
  */
 export function dampedPlan(
   model: CompiledModel,
@@ -136,11 +138,12 @@ export function dampedPlan(
   pdfReach = wantPdf,
   byParts: ByParts = false,
   yLow?: number,
+  withInt = true,
 ): DampedPlan {
-  const plain = planFor(model, atoms, R, tol, wantPdf, false, pointwise, budget, periodOf, pdfReach, byParts, yLow);
+  const plain = planFor(model, atoms, R, tol, wantPdf, false, pointwise, budget, periodOf, pdfReach, byParts, yLow, withInt);
   // the second plan only where it can pay: the plain plan's terms exceed what the term costs at the points
   const can = model.dampedSeverity?.count && model.dampedSeverity.pair && model.support[0] === 0 && plain.K > PAIR_COST * points;
-  const pair = can ? planFor(model, atoms, R, tol, wantPdf, true, pointwise, budget, periodOf, pdfReach, byParts, yLow) : null;
+  const pair = can ? planFor(model, atoms, R, tol, wantPdf, true, pointwise, budget, periodOf, pdfReach, byParts, yLow, withInt) : null;
   if (!pair) return plain.plan;
   return pair.K + PAIR_COST * points < plain.K ? pair.plan : plain.plan;
 }
@@ -158,6 +161,7 @@ function planFor(
   pdfReach: boolean,
   byParts: ByParts,
   yLow: number | undefined,
+  withInt: boolean,
 ): { plan: DampedPlan; K: number } {
   const lo = model.support[0];
   const span = Math.max(R - lo, 1e-6 * Math.max(model.scale, Math.abs(lo), 1e-300));
@@ -174,19 +178,29 @@ function planFor(
   // lognormal's), so the need is B(T); and the density's images, at most q / (1 - q) times densityBeyondWindow, where it is answered
   const sev = model.dampedSeverity ?? null;
   const pairK = pairOut ? (sev?.pair ?? null) : null;
+  // without a second moment (a power tail of index <= 2: Poisson(2)-pareto(1.5)) the cdf's images still come out in closed
+  // form (imageLimit, as the setup does) and B(T) bounds what is left, so the period need not carry q Mc (beta T 28 -> 19
+  // there); not where the integrated cdf's bound matters: its images keep the whole mass without a second moment
+  const lim = im || withInt ? null : imageLimit(model, atoms, pairOut);
+  const tailOnly = lim !== null && Number.isFinite(lim) && imageTail(model, atoms, lo, model.dampedKernels ?? [], sev, pairK, span) !== null;
   const need = (T: number) => {
-    let c = im!.second / (T * T);
+    if (!im) {
+      let c = imageTail(model, atoms, lo, model.dampedKernels ?? [], sev, pairK, T)!(T);
+      if (byParts === "range" && (wantPdf || pdfReach)) c = Math.max(c, densityBeyondWindow(model, atoms, T, pairK));
+      return c + 4 * EPS * Math.abs(lim!);
+    }
+    let c = im.second / (T * T);
     if (byParts === "range") {
       const B = imageTail(model, atoms, lo, model.dampedKernels ?? [], sev, pairK, T);
       if (B) c = Math.min(c, B(T));
       if (wantPdf || pdfReach) c = Math.max(c, densityBeyondWindow(model, atoms, T, pairK));
     }
-    return c + 4 * EPS * Math.abs(im!.A);
+    return c + 4 * EPS * Math.abs(im.A);
   };
   const periodFor = (U: number) => {
     let a = A;
     let T = Math.max((span * a) / U, span * 1.25);
-    if (!im) return T;
+    if (!im && !tailOnly) return T;
     for (let it = 0; it < 4; it++) {
       a = Math.min(A, Math.max(2, Math.log((8 * need(T)) / tol)));
       T = Math.max((span * a) / U, span * 1.25);

@@ -4,7 +4,7 @@ import type { SeverityKernel } from "../severity-kernel";
 import { kernelsMass } from "../damped-kernels";
 import { truncationFrom } from "./nodes";
 import { dampedPlan, exactStep, psiOf, sumAllowance, type ByParts, type DampedPlan, type Exactness } from "./damped-transform";
-import { densityBeyondWindow, imageMoments, imageTail } from "./damped-images";
+import { densityBeyondWindow, imageLimit, imageMoments, imageTail } from "./damped-images";
 import { scratch, type ScratchSlot } from "../damped-scratch";
 import { slopeNumerator } from "./damped-slope";
 
@@ -243,6 +243,18 @@ export function dampedSetup(model: CompiledModel, atoms: Atom[], R: number, o: D
     const rest = geo * (intImages.second / (T * T)) + 4 * EPS * Math.abs(cdfShift);
     if (rest < aliasCdf) aliasCdf = rest;
     else cdfShift = 0;
+  } else {
+    // no second moment: the same shift with the limit alone, what is left at most q / (1 - q) B(T) (./damped-images.ts)
+    const lim = imageLimit(model, atoms, plan.pairOut);
+    const B = Number.isFinite(lim) ? imageTail(model, atoms, lo, ks, model.dampedSeverity ?? null, pair, T) : null;
+    if (B) {
+      const shift = (lim * q) / (1 + q);
+      const rest = geo * B(T) + 4 * EPS * Math.abs(shift);
+      if (rest < aliasCdf) {
+        aliasCdf = rest;
+        cdfShift = shift;
+      }
+    }
   }
   notes.push(
     `damped inversion (exponential damping beta = ${beta.toPrecision(4)} before the transform, Abate & Whitt 1992; ` +

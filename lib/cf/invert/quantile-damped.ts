@@ -65,11 +65,13 @@ export function dampedQuantiles(model: CompiledModel, atoms: Atom[], p: Float64A
   // undamped route, which takes as many and resolves less. The cut-off comes from the truncation bound by parts where the
   // severity bounds its transform's slope (./damped-slope.ts): Poisson(1)-lognormal(0, 2.5) at 0.99, 0.995, 0.999 once
   // needed 13.1e6 terms (over MAX_K: the undamped route, 35-65% off), now 1.5e6, quantile bounds 1.4e-9 to 1.3e-8 relative
-  let plan = dampedPlan(model, atoms, R, tol, false, points, true, budget, undefined, undefined, true, yLow);
+  // without ES the integrated cdf's bound is not used: the period may then rest on the cdf's shifted images alone
+  const withInt = !!o.expectedShortfall;
+  let plan = dampedPlan(model, atoms, R, tol, false, points, true, budget, undefined, undefined, true, yLow, withInt);
   let use = budget;
   const terms = (pl: DampedPlan) => (pl.tmax * pl.T) / (2 * Math.PI);
   if (budget === KERNEL_BUDGET && (plan.rounding > 1 || terms(plan) > budget)) {
-    const wide = dampedPlan(model, atoms, R, tol, false, points, true, MAX_K, undefined, undefined, true, yLow);
+    const wide = dampedPlan(model, atoms, R, tol, false, points, true, MAX_K, undefined, undefined, true, yLow, withInt);
     if (terms(wide) <= MAX_K && (wide.rounding <= 1 || terms(plan) > budget)) {
       plan = wide;
       use = MAX_K;
