@@ -16,6 +16,7 @@ import { oscillatoryIntegral, type OscillatoryIntegral } from "./filon";
 import { withCumulantErrors } from "./cumulant-bounds";
 import { exact, mul, powInt, rawToCumulantsE, type Est } from "./moment-error";
 import { directPoint } from "./direct/types";
+import { layerDirect } from "./direct/layer";
 
 /** Smallest u >= 0 (on a doubling search) with S(d + u) <= q. */
 function tailPoint(dist: DirectLaw, d: number, q: number, start: number): number {
@@ -196,6 +197,9 @@ export function layerNode(X: Node, terms: Partial<LayerTerms>): Node {
     severity: sev,
   };
   if (!dist.layerMoment) return node;
+  // a claim with a direct law: the layer's values, quantiles and ES from it (./direct/layer.ts), no inversion
+  const direct = X.direct ? layerDirect(X.direct, dist.layerMoment, d, l, c) : null;
+  if (direct) node.direct = direct;
   return withCumulantErrors(node, (n) =>
     rawToCumulantsE(Array.from({ length: n }, (_, i) => (l === Infinity && i + 1 >= X.momentIndex ? null : closed(i + 1)))),
   );

@@ -19,6 +19,19 @@ export function affineDirect(law: DirectLaw, a: number, b: number): DirectLaw {
     spread: aa * law.spread,
     ...(law.mode !== undefined ? { mode: a * law.mode + b } : {}),
     ...(law.unimodal ? { unimodal: true } : {}),
+    // atoms move with the law (a x + b, within the rounding of that product and sum: the location, not the mass)
+    // (a < 0 turns F(x-) into S(x) = 1 - F(x-) - p)
+    ...(law.atoms
+      ? {
+          atoms: law.atoms
+            .map((t) => {
+              const x = a * t.x + b;
+              const xErr = aa * t.xErr + 2 * Number.EPSILON * (Math.abs(a * t.x) + Math.abs(x));
+              return a > 0 ? { ...t, x, xErr } : { ...t, x, xErr, below: 1 - t.below - t.p, belowErr: t.belowErr + t.pErr + 2 * Number.EPSILON };
+            })
+            .sort((u, v) => u.x - v.x),
+        }
+      : {}),
     notes: law.notes,
     at(y: number, out: DirectPoint) {
       const x = (y - b) / a;

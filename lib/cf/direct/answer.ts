@@ -31,7 +31,7 @@ export function directDensity(law: DirectLaw, xs: Float64Array, modelNotes: stri
     pdf,
     cdf,
     sf,
-    atoms: [],
+    atoms: (law.atoms ?? []).map((a) => ({ x: a.x, p: a.p })),
     diagnostics: {
       method: law.method,
       gridSize: n,
@@ -192,7 +192,7 @@ export function directQuantiles(
   let maxCdf = 0;
   const pt = directPoint();
   for (let i = 0; i < n; i++) {
-    const r = directQuantile(law, p[i]);
+    const r = atAtom(law, p[i]) ?? directQuantile(law, p[i]);
     x[i] = r.x;
     err[i] = r.err;
     if (Number.isFinite(r.x)) {
@@ -222,6 +222,18 @@ export function directQuantiles(
       notes: [...law.notes, ...(wantEs && (index.right <= 1 || mean === null) ? ["expected shortfall does not exist: the law has no finite mean"] : []), ...modelNotes],
     },
   };
+}
+
+/**
+ * A level inside an atom's jump, decided beyond the bounds: F(a-) + its bound < p <= F(a-) + mass - both bounds gives
+ * q_p = a (within the atom's place's own rounding); null otherwise (the search answers, its bound honest at a jump too).
+ */
+function atAtom(law: DirectLaw, p: number): { x: number; err: number } | null {
+  if (!law.atoms || !(p > 0 && p < 1)) return null;
+  for (const a of law.atoms) {
+    if (a.below + a.belowErr + 2 * Number.EPSILON < p && p <= a.below + a.p - a.belowErr - a.pErr - 2 * Number.EPSILON) return { x: a.x, err: a.xErr };
+  }
+  return null;
 }
 
 /** Smallest and largest finite value of xs (the law's center when there is none). */

@@ -55,6 +55,11 @@ export interface DirectLaw {
    */
   readonly modeRange?: readonly [number, number];
   /**
+   * optional: the law's atoms (a per-claim layer: ./layer.ts), each mass with a bound on its error; `at` counts them in
+   * the cdf and sf and leaves them out of the density (the density of the rest)
+   */
+  readonly atoms?: readonly DirectAtom[];
+  /**
    * optional: points where the density is infinite inside the support (a variance-gamma law with nu >= 2 at its
    * location); next to one the density is ill-conditioned in x, and a caller that rounds x (./affine.ts) bounds the
    * density's change over that rounding from the values either side
@@ -75,6 +80,16 @@ export interface MonotoneSplit {
 }
 
 export type DirectMethod = "closed-form" | "special-function" | "stable-integral";
+
+/** An atom of a directly evaluated law: F(x-) = below within belowErr, the mass p within pErr, x within xErr of its place. */
+export interface DirectAtom {
+  x: number;
+  p: number;
+  pErr: number;
+  below: number;
+  belowErr: number;
+  xErr: number;
+}
 
 export interface DirectPoint {
   pdf: number;

@@ -13,6 +13,8 @@ export interface Value {
 export interface Component {
   w: number;
   atoms: Atom[];
+  /** a bound on the error of the atoms' masses, summed (0 or absent where they are exact) */
+  atomErr?: number;
   at(x: number): Value;
   /** E[(X - q)^+] and its bound; null when the mean does not exist */
   excess(q: number): { value: number; error: number } | null;

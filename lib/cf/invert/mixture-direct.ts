@@ -41,7 +41,8 @@ export function directComponent(w: number, m: CompiledModel): Component {
   };
   return {
     w,
-    atoms: [],
+    atoms: (law.atoms ?? []).map((a) => ({ x: a.x, p: a.p })),
+    atomErr: (law.atoms ?? []).reduce((s, a) => s + a.pErr, 0),
     at,
     excess(q) {
       return excesses([q])[0];

@@ -101,6 +101,7 @@ export function mixtureQuantiles(model: CompiledModel, p: Float64Array, o: Quant
   if (!cs) return null;
   const { law, seen, forget } = remembering(mixtureLaw(model, cs));
   const atoms = mixtureAtoms(cs);
+  const atomErr = cs.reduce((s, c) => s + c.w * (c.atomErr ?? 0), 0);
   const pt = directPoint();
   const n = p.length;
   const x = new Float64Array(n);
@@ -118,7 +119,8 @@ export function mixtureQuantiles(model: CompiledModel, p: Float64Array, o: Quant
     // a level inside an atom's jump: the atom, exactly (the jump's ends clear of the bounds)
     for (const a of atoms) {
       law.at(a.x, pt);
-      if (pt.cdf - a.p + pt.cdfErr < pi && pi <= pt.cdf - pt.cdfErr) {
+      // F(a-) = F(a) - mass: the masses' own bounds (a direct component's atoms) widen it
+      if (pt.cdf - a.p + pt.cdfErr + atomErr < pi && pi <= pt.cdf - pt.cdfErr) {
         x[i] = a.x;
         err[i] = 0;
         atAtom[i] = 1;
