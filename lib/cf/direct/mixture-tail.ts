@@ -127,6 +127,56 @@ function logQbar(w: number): number {
   return Math.log(0.5 * erfc(w / Math.SQRT2));
 }
 
+/** the sum's state: the law's arguments, log f at the start (G), the last term's e^t, psi, psi' and w, the terms' errors */
+type TermState = { p: number; q: number; k: number; D: number; gammaMix: boolean; dp: number; dq: number; dPar: number; G: number; lastEt: number; lastPs: number; lastDpsi: number; lastW: number; terr: number };
+
+/**
+ * The term f(t)/e^G of the sum, its error added to o.terr (a module-level function with its state in one object, not a
+ * closure per mixtureTail call: no set-up per call).
+ */
+function termAt(o: TermState, t: number): number {
+  const { p, q, k, D, gammaMix, dp, dq, dPar, G } = o;
+  const eq = Math.exp(0.5 * t);
+  const ep = 1 / eq;
+  const et = eq * eq;
+  const w = p * ep - q * eq;
+  let ps: number;
+  let dPs: number;
+  if (gammaMix) {
+    ps = k * t - et;
+    o.lastDpsi = k - et;
+    dPs = 4 * U * (Math.abs(k * t) + et) * (1 + Math.abs(t)) + dPar * k * Math.abs(t);
+  } else {
+    const sh = 0.5 * (eq - ep);
+    const ch = 0.5 * (eq + ep);
+    const cm1 = 2 * sh * sh; // cosh t - 1
+    ps = -0.5 * t - D * cm1;
+    o.lastDpsi = -0.5 - 2 * D * sh * ch;
+    dPs = 8 * U * (0.5 * Math.abs(t) + D * (1 + cm1)) * (1 + Math.abs(t)) + dPar * D * cm1;
+  }
+  o.lastEt = et;
+  o.lastPs = ps;
+  o.lastW = w;
+  const lq = logQbar(w);
+  const v = Math.exp(ps + lq - G);
+  // errors in log f: psi's rounding (and k's or D's), Qbar's ELEM, w's rounding (with p's and q's) times the Mills
+  // ratio bound, the node's rounding times |d log f/dt|, the sum ps + lq - G and exp.
+  // |d log Qbar/dw| = phi(w)/Qbar(w): below w + 1 for w > 0, below 2 phi(w) <= 0.8 e^{-w^2/2} for w <= 0 (Qbar >= 1/2)
+  const mills = w > 0 ? w + 1 : w > -8 ? 0.8 : 0.8 * Math.exp(-0.5 * w * w);
+  const wAbs = Math.abs(p) * ep + Math.abs(q) * eq;
+  const dw = 5 * U * wAbs + dp * ep + dq * eq;
+  const slope = Math.abs(o.lastDpsi) + mills * 0.5 * wAbs;
+  const d = dPs + ELEM + mills * dw + U * 2 * Math.abs(t) * slope + 2 * U * (Math.abs(ps) + Math.abs(lq) + Math.abs(G)) + U + (w > 1 ? U * w * w : 0);
+  o.terr += v * (d < 0.01 ? d * 1.01 : Math.expm1(d));
+  return v;
+}
+
+/** sum_{j>=1} e^{m (t - jh) - G} = e^{mt - G} z/(1 - z), z = e^{-mh} */
+function geo(m: number, h: number, t: number, G: number): number {
+  const z = Math.exp(-m * h);
+  return (Math.exp(m * t - G) * z) / (1 - z);
+}
+
 /**
  * T(p, q) with an absolute error bound. dp, dq: bounds on the rounding of p and q (the law's exact arguments move T by
  * at most E[phi(w) (|dp| e^{-t/2} + |dq| e^{t/2})], counted term by term with phi(w)/Qbar(w) <= w + 1 for w > 0
@@ -139,7 +189,6 @@ export function mixtureTail(mix: Mixing, p: number, q: number, dp: number, dq: n
   const logC = gammaMix ? -lgamma(k) : 0.5 * Math.log(D / (2 * Math.PI));
   // constants' errors: lgamma(k) and its move with k's rounding (|psi(k)| <= |log k| + 1/k), or log C
   const eC = gammaMix ? lgammaErr(k) + 2 * U * Math.abs(logC) + dPar * k * (Math.abs(Math.log(k)) + 1 / k) : 4 * U * (1 + Math.abs(logC)) + dPar;
-  const psi = (t: number) => (gammaMix ? k * t - Math.exp(t) : -0.5 * t - 2 * D * Math.sinh(0.5 * t) ** 2);
   // the scale of T and the strip: log M(a) - log M(0) is about (1 - cos a) Z + (gamma) k log(1/cos a), Z = 2 sqrt(PQ) of
   // the Chernoff piece, so h = 2 pi a / (L + a^2 Z / 2) is widest near a = sqrt(2L/Z); the exact M is taken there
   const logEst = logStripBound(mix, p, q, 1);
@@ -148,7 +197,8 @@ export function mixtureTail(mix: Mixing, p: number, q: number, dp: number, dq: n
   let h = 0;
   let logM = 0;
   let aBest = 0;
-  for (const a of [aStar]) {
+  {
+    const a = aStar;
     const lm = logStripBound(mix, p, q, Math.cos(a));
     const L = Math.LN2 + lm - logEst - Math.log(EPS_T);
     const hh = (2 * Math.PI * a) / Math.max(L, 1);
@@ -165,66 +215,26 @@ export function mixtureTail(mix: Mixing, p: number, q: number, dp: number, dq: n
     ? (k + Math.sqrt(k * k + 2 * p * p * (1 + (q * q) / 2))) / (2 + q * q)
     : (-0.5 + Math.sqrt(0.25 + (D + q * q) * (D + p * p))) / (D + q * q);
   const t0 = Math.round(Math.log(E) / h) * h;
-  const logF = (t: number) => psi(t) + logQbar(p * Math.exp(-0.5 * t) - q * Math.exp(0.5 * t));
-  const G = logF(t0);
+  // log f(t0) = psi(t0) + log Qbar(w(t0))
+  const psi0 = gammaMix ? k * t0 - Math.exp(t0) : -0.5 * t0 - 2 * D * Math.sinh(0.5 * t0) ** 2;
+  const G = psi0 + logQbar(p * Math.exp(-0.5 * t0) - q * Math.exp(0.5 * t0));
   let s = 0;
   let run = 0;
-  let terr = 0;
   let tailR = Infinity;
   let tailL = Infinity;
-  // the last term's e^t, psi and psi' (the loops' stopping rules use them)
-  let lastEt = 0;
-  let lastPs = 0;
-  let lastDpsi = 0;
-  let lastW = 0;
-  const term = (t: number): number => {
-    const eq = Math.exp(0.5 * t);
-    const ep = 1 / eq;
-    const et = eq * eq;
-    const w = p * ep - q * eq;
-    let ps: number;
-    let dPs: number;
-    if (gammaMix) {
-      ps = k * t - et;
-      lastDpsi = k - et;
-      dPs = 4 * U * (Math.abs(k * t) + et) * (1 + Math.abs(t)) + dPar * k * Math.abs(t);
-    } else {
-      const sh = 0.5 * (eq - ep);
-      const ch = 0.5 * (eq + ep);
-      const cm1 = 2 * sh * sh; // cosh t - 1
-      ps = -0.5 * t - D * cm1;
-      lastDpsi = -0.5 - 2 * D * sh * ch;
-      dPs = 8 * U * (0.5 * Math.abs(t) + D * (1 + cm1)) * (1 + Math.abs(t)) + dPar * D * cm1;
-    }
-    lastEt = et;
-    lastPs = ps;
-    lastW = w;
-    const lq = logQbar(w);
-    const v = Math.exp(ps + lq - G);
-    // errors in log f: psi's rounding (and k's or D's), Qbar's ELEM, w's rounding (with p's and q's) times the Mills
-    // ratio bound, the node's rounding times |d log f/dt|, the sum ps + lq - G and exp.
-    // |d log Qbar/dw| = phi(w)/Qbar(w): below w + 1 for w > 0, below 2 phi(w) <= 0.8 e^{-w^2/2} for w <= 0 (Qbar >= 1/2)
-    const mills = w > 0 ? w + 1 : w > -8 ? 0.8 : 0.8 * Math.exp(-0.5 * w * w);
-    const wAbs = Math.abs(p) * ep + Math.abs(q) * eq;
-    const dw = 5 * U * wAbs + dp * ep + dq * eq;
-    const slope = Math.abs(lastDpsi) + mills * 0.5 * wAbs;
-    const d = dPs + ELEM + mills * dw + U * 2 * Math.abs(t) * slope + 2 * U * (Math.abs(ps) + Math.abs(lq) + Math.abs(G)) + U + (w > 1 ? U * w * w : 0);
-    terr += v * (d < 0.01 ? d * 1.01 : Math.expm1(d));
-    return v;
-  };
-
+  const o: TermState = { p, q, k, D, gammaMix, dp, dq, dPar, G, lastEt: 0, lastPs: 0, lastDpsi: 0, lastW: 0, terr: 0 };
   // right of t0
   for (let j = 0; j < 200000; j++) {
     if ((j & 4095) === 4095) checkDeadline("mixture tail sum");
     const t = t0 + j * h;
-    const v = term(t);
+    const v = termAt(o, t);
     s += v;
     run += U * s;
-    const r = -lastDpsi;
+    const r = -o.lastDpsi;
     if (r > 0) {
       // w nondecreasing from t on when q <= 0 and w'(t) >= 0 (-q e^t >= p)
-      const mono = q <= 0 && -q * lastEt >= p;
-      const base = mono ? v : Math.exp(lastPs - G);
+      const mono = q <= 0 && -q * o.lastEt >= p;
+      const base = mono ? v : Math.exp(o.lastPs - G);
       const z = Math.exp(-r * h);
       tailR = (base * 1.01 * z) / (1 - z);
       if (tailR <= 2 ** -60 * s || (base === 0 && j > 0)) break;
@@ -233,24 +243,20 @@ export function mixtureTail(mix: Mixing, p: number, q: number, dp: number, dq: n
   for (let j = 1; j < 200000; j++) {
     if ((j & 4095) === 4095) checkDeadline("mixture tail sum");
     const t = t0 - j * h;
-    const v = term(t);
+    const v = termAt(o, t);
     s += v;
     run += U * s;
-    const r = lastDpsi;
+    const r = o.lastDpsi;
     // gamma mixing decays only as e^{kt} to the left: the rest of the nodes t_j = t - jh is summed in closed form with
     // 1 - x <= e^{-x} <= 1 - x + x^2/2 on e^{-e^{t_j}}: sum e^{m t_j} = e^{mt} z/(1 - z), z = e^{-mh}, m = k, k+1, k+2;
     // Qbar(w_j) lies between its limit (1, 1/2 or 0 as p < 0, = 0, > 0) and Qbar(w(t)) while w is monotone there (p + q e^s
     // keeps the sign of p); the mid-point is added, half the width (and 8 roundings of the sums) is the error
-    if (gammaMix && r > 0 && lastEt < 1e-3 && (p === 0 || Math.sign(p + q * lastEt) === Math.sign(p))) {
+    if (gammaMix && r > 0 && o.lastEt < 1e-3 && (p === 0 || Math.sign(p + q * o.lastEt) === Math.sign(p))) {
       const lim = p < 0 ? 1 : p === 0 ? 0.5 : 0;
-      const qt = 0.5 * erfc(lastW / Math.SQRT2);
-      const geo = (m: number) => {
-        const z = Math.exp(-m * h);
-        return (Math.exp(m * t - G) * z) / (1 - z);
-      };
-      const g1 = geo(k + 1);
-      const loSum = geo(k) - g1;
-      const hiSum = loSum + 0.5 * geo(k + 2);
+      const qt = 0.5 * erfc(o.lastW / Math.SQRT2);
+      const g1 = geo(k + 1, h, t, G);
+      const loSum = geo(k, h, t, G) - g1;
+      const hiSum = loSum + 0.5 * geo(k + 2, h, t, G);
       const hi = hiSum * Math.max(lim, qt);
       const lo = loSum * Math.min(lim, qt);
       const width = 0.5 * (hi - lo) + 8 * U * (hi + g1);
@@ -263,8 +269,8 @@ export function mixtureTail(mix: Mixing, p: number, q: number, dp: number, dq: n
     }
     if (r > 0) {
       // w nonincreasing up to t when p >= 0 and p + q e^t >= 0
-      const mono = p >= 0 && p + q * lastEt >= 0;
-      const base = mono ? v : Math.exp(lastPs - G);
+      const mono = p >= 0 && p + q * o.lastEt >= 0;
+      const base = mono ? v : Math.exp(o.lastPs - G);
       const z = Math.exp(-r * h);
       tailL = (base * 1.01 * z) / (1 - z);
       if (tailL <= 2 ** -60 * s || (base === 0 && j > 1)) break;
@@ -273,7 +279,7 @@ export function mixtureTail(mix: Mixing, p: number, q: number, dp: number, dq: n
   const logV = G + logC + Math.log(s * h);
   const value = Math.exp(logV);
   const disc = (2 * Math.exp(logM - logV)) / Math.expm1((2 * Math.PI * aBest) / h);
-  const rel = (tailR + tailL + terr + run) / s + disc + eC * 1.01 + 2 * U * (Math.abs(G) + Math.abs(logC) + Math.abs(Math.log(s * h)) + Math.abs(logV)) + 3 * U;
+  const rel = (tailR + tailL + o.terr + run) / s + disc + eC * 1.01 + 2 * U * (Math.abs(G) + Math.abs(logC) + Math.abs(Math.log(s * h)) + Math.abs(logV)) + 3 * U;
   const e = value * (rel < 0.5 ? rel * 1.01 : Math.expm1(rel));
   return { v: value, e: value === 0 ? Number.MIN_VALUE : e };
 }

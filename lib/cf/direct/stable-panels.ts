@@ -131,6 +131,22 @@ function panelOrParts(st: PanelStore, k: number, lhAbs: number, lh: number, acc:
   return true;
 }
 
+/** v at u (as evaluated) rounded down (lower), from log V - wRef = lv of magnitude mag, log h known to within dl */
+function vDown(lh: number, lv: number, mag: number, dl: number): number {
+  return lh + lv - 8 * Number.EPSILON * (mag + Math.abs(lh) + Math.abs(lv)) - dl;
+}
+
+/** v at u rounded up (see vDown) */
+function vUp(lh: number, lv: number, mag: number, dl: number): number {
+  return lh + lv + 8 * Number.EPSILON * (mag + Math.abs(lh) + Math.abs(lv)) + dl;
+}
+
+/** whether v over panel k of st can reach [V0, V1] (module-level, not a closure per half(): no set-up per call) */
+function reaches(st: PanelStore, k: number, rising: boolean, lh: number, dl: number, V0: number): boolean {
+  const e = st.lvLo(k);
+  return rising ? vUp(lh, e[0], e[1], dl) > V0 : vDown(lh, e[0], e[1], dl) < V1;
+}
+
 /**
  * One end's half of the integrals (u in (0, L/2] from the end `from`): the region beyond the window in bulk, the
  * window by its panels, the rest up to the end in bulk. False when the store cannot reach the window.
@@ -148,32 +164,26 @@ export function half(st: PanelStore, lhAbs: number, V0: number, acc: Sums): bool
     return true;
   }
   if (st.n === 0 && !st.extend()) return false;
-  // v at u (as evaluated) rounded down (lower) or up
-  const vDown = (lv: number, mag: number) => lh + lv - 8 * Number.EPSILON * (mag + Math.abs(lh) + Math.abs(lv)) - acc.dl;
-  const vUp = (lv: number, mag: number) => lh + lv + 8 * Number.EPSILON * (mag + Math.abs(lh) + Math.abs(lv)) + acc.dl;
+  const dl = acc.dl;
   // from the middle towards the end, v falls (low end) or rises (high end); skip the panels wholly beyond the window
   const rising = st.from === 1;
   // v over panel k lies between v(hi_k) and v(lo_k): the window starts at the first panel that can reach [V0, V1]
   // (monotone in k: bisection over the stored panels, then a walk with extensions)
-  const reaches = (k: number) => {
-    const e = st.lvLo(k);
-    return rising ? vUp(e[0], e[1]) > V0 : vDown(e[0], e[1]) < V1;
-  };
   let k = 0;
   const last = st.n - 2;
-  if (last >= 0 && reaches(last)) {
+  if (last >= 0 && reaches(st, last, rising, lh, dl, V0)) {
     let a = -1;
     k = last;
     while (k - a > 1) {
       const m = (a + k) >> 1;
-      if (reaches(m)) k = m;
+      if (reaches(st, m, rising, lh, dl, V0)) k = m;
       else a = m;
     }
   } else {
     k = Math.max(0, last + 1);
     for (;;) {
       if (k >= st.n && !st.extend()) return false;
-      if (reaches(k)) break;
+      if (reaches(st, k, rising, lh, dl, V0)) break;
       k++;
     }
   }
@@ -184,14 +194,14 @@ export function half(st: PanelStore, lhAbs: number, V0: number, acc: Sums): bool
     const lvk = st.lvHi[k];
     const mk = st.magHi[k];
     if (rising) {
-      const vb = vUp(lvk, mk);
+      const vb = vUp(lh, lvk, mk, dl);
       const b = len * Math.exp(vb);
       acc.i0 += len;
       acc.e0 += b + 2 * Number.EPSILON * L2;
       acc.e1 += b;
       acc.ep += b;
     } else {
-      const vb = vDown(lvk, mk);
+      const vb = vDown(lh, lvk, mk, dl);
       flatHigh(acc, len, vb, 2 * Number.EPSILON * L2);
     }
   }
@@ -202,7 +212,7 @@ export function half(st: PanelStore, lhAbs: number, V0: number, acc: Sums): bool
     const e = st.lvLo(k);
     const lo = st.panels[k].lo;
     if (rising) {
-      const vb = vDown(e[0], e[1]);
+      const vb = vDown(lh, e[0], e[1], dl);
       if (vb >= V1) {
         // [0, lo]: v >= vb
         flatHigh(acc, lo, vb);
@@ -211,7 +221,7 @@ export function half(st: PanelStore, lhAbs: number, V0: number, acc: Sums): bool
     } else {
       // [0, lo]: v between v at the end (lh where log V has a finite end, else -inf) and vb; each integrand is monotone
       // or unimodal in v there, so it lies between its values at the two, and [0, lo] takes the middle of that range
-      const vb = vUp(e[0], e[1]);
+      const vb = vUp(lh, e[0], e[1], dl);
       const vm = bounded ? lh - 8 * Number.EPSILON * Math.abs(lh) - acc.dl : -Infinity;
       const f0m = Math.exp(-Math.exp(vm));
       // exp(-e^vm) - exp(-e^vb) without cancellation

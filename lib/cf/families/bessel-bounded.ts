@@ -94,6 +94,11 @@ function large(nu: number, x: number): Bounded | null {
   return null;
 }
 
+/** log cosh v for v >= 0 (no overflow) */
+function logcosh(v: number): number {
+  return v + Math.log1p(Math.exp(-2 * v)) - Math.LN2;
+}
+
 const A_CANDIDATES = [0.3, 0.6, 0.9, 1.2, 1.4, 1.52];
 const TARGET = 2 ** -58;
 
@@ -115,24 +120,19 @@ function trapezoid(nu: number, x: number): Bounded {
   }
   const disc = (2 * Math.exp(logRatio)) / Math.expm1((2 * Math.PI * aBest) / h);
   // peak of g(u) = -x (cosh u - 1) + log cosh(nu u): 0 when nu^2 <= x (g' <= (nu^2 - x) u), else by bisection
-  const dg = (u: number) => -x * Math.sinh(u) + nu * Math.tanh(nu * u);
   let peak = 0;
   if (nu * nu > x) {
     let lo = 0;
     let hi = Math.max(1, Math.asinh(nu / x) + 1);
     for (let i = 0; i < 40; i++) {
       const mid = 0.5 * (lo + hi);
-      if (dg(mid) > 0) lo = mid;
+      if (-x * Math.sinh(mid) + nu * Math.tanh(nu * mid) > 0) lo = mid;
       else hi = mid;
     }
     peak = 0.5 * (lo + hi);
   }
-  const logcosh = (v: number) => v + Math.log1p(Math.exp(-2 * v)) - Math.LN2;
-  const g = (u: number) => {
-    const sh = Math.sinh(0.5 * u);
-    return -2 * x * sh * sh + logcosh(nu * u);
-  };
-  const G = g(peak);
+  const shPeak = Math.sinh(0.5 * peak);
+  const G = -2 * x * shPeak * shPeak + logcosh(nu * peak);
   // K e^x = h (f(0)/2 + sum_{j>=1} f(jh)) on the nodes jh of the full line (the integrand is even)
   let s = 0;
   let run = 0; // running rounding bound of the sum
