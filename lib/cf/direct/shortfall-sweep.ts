@@ -49,7 +49,9 @@ export function tailSweep(law: DirectLaw, qs: readonly number[], dir: 1 | -1, re
   const D = Number.isFinite(end) ? Math.abs(end - q0) : Infinity;
   // the levels' distances from the first; the node at distance ds[i] is taken at qs[i] itself, off q_0 + dir ds[i] by
   // at most half an ulp of ds[i] (covered per level below)
-  const ds = qs.map((q) => Math.min(Math.abs(q - q0), D));
+  // (a typed array: its map is one whatever the values, so the optimised sweep is not thrown away on meeting another)
+  const ds = new Float64Array(K);
+  for (let i = 0; i < K; i++) ds[i] = Math.min(Math.abs(qs[i] - q0), D);
   // the mode's distance, where known: G is concave before mL and convex after mH (the mode is rounded by a few ulps,
   // types.ts, the distance by one more: both are covered by the margin)
   const range = modeRange(law);
@@ -227,7 +229,10 @@ function nodeSlack(f: number, ef: number, q: number, d: number): number {
  * bound of a convex function) or minimum (kind -1, upper bound of a concave one), the lines meeting at x* in [0, w].
  */
 function envelope(w: number, ga: number, sa: number, gb: number, sb: number, kind: 1 | -1): number {
-  if (!(kind * (sb - sa) > 0)) return kind * -Infinity;
+  // the empty case's value is formed ahead of its test: a branch first taken after the sweep (which inlines this) is
+  // optimised throws that code away (a deopt and a recompile, tens of ms of compiler CPU on a cold call)
+  const none = kind * -Infinity;
+  if (!(kind * (sb - sa) > 0)) return none;
   const xs = Math.min(Math.max((gb - ga - sb * w) / (sa - sb), 0), w);
   return xs * (ga + (sa * xs) / 2) + (w - xs) * (gb - (sb * (w - xs)) / 2);
 }
