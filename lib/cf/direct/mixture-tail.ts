@@ -26,6 +26,9 @@ export type Mixing = { kind: "gamma"; k: number } | { kind: "ig"; D: number };
 
 const U = Number.EPSILON / 2;
 const EPS_T = 1e-18;
+/** the bound of an underflowed value (a module constant: its load needs no type feedback, so the first underflow, often
+ * met only after mixtureTail is optimised, does not throw that code away) */
+const TINY = Number.MIN_VALUE;
 
 /**
  * An upper bound on log int e^{nu t - P e^t - Q e^{-t}} dt = log(2 (Q/P)^{nu/2} K_nu(2 sqrt(PQ))) (P > 0, Q >= 0, nu > 0
@@ -281,5 +284,5 @@ export function mixtureTail(mix: Mixing, p: number, q: number, dp: number, dq: n
   const disc = (2 * Math.exp(logM - logV)) / Math.expm1((2 * Math.PI * aBest) / h);
   const rel = (tailR + tailL + o.terr + run) / s + disc + eC * 1.01 + 2 * U * (Math.abs(G) + Math.abs(logC) + Math.abs(Math.log(s * h)) + Math.abs(logV)) + 3 * U;
   const e = value * (rel < 0.5 ? rel * 1.01 : Math.expm1(rel));
-  return { v: value, e: value === 0 ? Number.MIN_VALUE : e };
+  return { v: value, e: value === 0 ? TINY : e };
 }
