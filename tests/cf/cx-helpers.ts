@@ -37,3 +37,33 @@ export function cfAt(model: unknown, ts: number[]): Cx[] {
   c.cf(t, re, im);
   return ts.map((_, k) => [re[k], im[k]]);
 }
+
+/**
+ * A severity's damped transform E exp(i z X), z = t + i beta, on the row t = 0.1, 0.2, ..., 8 (equispaced, as the damped
+ * route asks) and at each frequency alone, against reference values at row indices (t = (index + 1) / 10): each within
+ * the node's stated CF error.
+ */
+export function checkDampedRow(
+  node: { cfAbsError?: number; dampedLogCf?: (beta: number, t: Float64Array, re: Float64Array, im: Float64Array) => void },
+  beta: number,
+  refs: { index: number; re: string; im: string }[],
+  expect: (v: number, msg: string) => { toBeLessThanOrEqual(x: number): void },
+): void {
+  const tol = node.cfAbsError!;
+  const t = Float64Array.from({ length: 80 }, (_, i) => (i + 1) / 10);
+  const re = new Float64Array(t.length);
+  const im = new Float64Array(t.length);
+  node.dampedLogCf!(beta, t, re, im);
+  const one = { re: new Float64Array(1), im: new Float64Array(1) };
+  const value = (r: Float64Array, i: Float64Array, k: number): Cx => cexp([r[k], i[k]]);
+  for (const c of refs) {
+    const want = [Number(c.re), Number(c.im)];
+    const [pr, pi] = value(re, im, c.index);
+    const diff = Math.hypot(pr - want[0], pi - want[1]);
+    expect(diff, `row, t = ${t[c.index]}: phi = ${pr} + ${pi} i, expected ${c.re} + ${c.im} i, difference ${diff}, stated ${tol}`).toBeLessThanOrEqual(tol);
+    node.dampedLogCf!(beta, Float64Array.of(t[c.index]), one.re, one.im);
+    const [qr, qi] = value(one.re, one.im, 0);
+    const d1 = Math.hypot(qr - want[0], qi - want[1]);
+    expect(d1, `alone, t = ${t[c.index]}: phi = ${qr} + ${qi} i, expected ${c.re} + ${c.im} i, difference ${d1}, stated ${tol}`).toBeLessThanOrEqual(tol);
+  }
+}

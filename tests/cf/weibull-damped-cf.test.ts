@@ -3,16 +3,12 @@
 // the real axis at 30 digits, cross-checked on a rotated ray and, at shape 1, by the exponential law's
 // 1 / (1 - i lambda z) (tests/fixtures/severity-cf/generate-weibull.py), within the node's stated CF error.
 import { describe, expect, it } from "vitest";
+import { checkDampedRow } from "./cx-helpers";
 import { readFileSync } from "node:fs";
 import { weibull } from "@/lib/cf/families/numeric";
 
 interface Case { k: number; lambda: number; j: number; beta: number; re: string; im: string; abs_diff: number; closed_diff?: number }
 const ref = JSON.parse(readFileSync(new URL("../fixtures/severity-cf/weibull.json", import.meta.url), "utf8")) as { cases: Case[] };
-
-function value(re: Float64Array, im: Float64Array, k: number): [number, number] {
-  const m = Math.exp(re[k]);
-  return [m * Math.cos(im[k]), m * Math.sin(im[k])];
-}
 
 describe("weibull: E exp(i z X) at complex z (mpmath reference)", () => {
   it("the fixture's methods agree within 1e-25", () => {
@@ -30,23 +26,7 @@ describe("weibull: E exp(i z X) at complex z (mpmath reference)", () => {
   for (const [key, cs] of groups) {
     const [k, lambda, beta] = key.split(" ").map(Number);
     it(`shape ${k}, scale ${lambda}, beta ${beta}: t = 0.1, 0.2, ..., 8 in one row, and each frequency alone`, () => {
-      const node = weibull(k, lambda);
-      const tol = node.cfAbsError!;
-      const t = Float64Array.from({ length: 80 }, (_, i) => (i + 1) / 10);
-      const re = new Float64Array(t.length);
-      const im = new Float64Array(t.length);
-      node.dampedLogCf!(beta, t, re, im);
-      const one = { re: new Float64Array(1), im: new Float64Array(1) };
-      for (const c of cs) {
-        const want = [Number(c.re), Number(c.im)];
-        const [pr, pi] = value(re, im, c.j - 1);
-        const diff = Math.hypot(pr - want[0], pi - want[1]);
-        expect(diff, `row, t = ${t[c.j - 1]}: phi = ${pr} + ${pi} i, expected ${c.re} + ${c.im} i, difference ${diff}, stated ${tol}`).toBeLessThanOrEqual(tol);
-        node.dampedLogCf!(beta, Float64Array.of(t[c.j - 1]), one.re, one.im);
-        const [qr, qi] = value(one.re, one.im, 0);
-        const d1 = Math.hypot(qr - want[0], qi - want[1]);
-        expect(d1, `alone, t = ${t[c.j - 1]}: phi = ${qr} + ${qi} i, expected ${c.re} + ${c.im} i, difference ${d1}, stated ${tol}`).toBeLessThanOrEqual(tol);
-      }
+      checkDampedRow(weibull(k, lambda), beta, cs.map((c) => ({ index: c.j - 1, re: c.re, im: c.im })), expect);
     });
   }
 });
