@@ -11,7 +11,7 @@ import { layerNode, type LayerTerms } from "./layer";
 import { claimMode, layerContinuousMajorant } from "./layer-majorant";
 import { compoundMajorant } from "./compound-majorant";
 import { lgamma } from "./families/special";
-import { MONOTONE_ABS_CF, mixMajorant, repeatMajorant, scaleMajorant, selfMajorant, shiftMajorant, sumMajorant, uniformMajorant } from "./majorant";
+import { MONOTONE_ABS_CF, mixMajorant, repeatMajorant, scaleMajorant, scaledMajorant, selfMajorant, shiftMajorant, shiftedMajorant, sumMajorant, uniformMajorant } from "./majorant";
 import { familyMajorant, monotoneExtras } from "./family-majorants";
 import type { DiscretiseOptions } from "./discretise";
 import { compoundNode, latticeNode, mixNode, repeatNode, sampleNode, scaleNode, shiftNode, sumNode } from "./operators";
@@ -84,6 +84,10 @@ export function buildNode(m: Model, opts: CompileOptions = {}): Node {
 function scaled(a: number, child: Node): Node {
   const node = scaleNode(a, child);
   node.logMajorant = scaleMajorant(a, child);
+  // the continuous part's majorant follows, its atoms moved as ./kinds.ts scaleKind moves the node's (the inversion takes it only for exactly those atoms)
+  const cm = child.continuousMajorant;
+  const cmMaj = cm && scaledMajorant(a, cm.maj);
+  if (cm && cmMaj) node.continuousMajorant = { atoms: cm.atoms.map((x) => ({ x: a * x.x, p: x.p })), maj: cmMaj };
   const ce = child.logCfErr;
   if (ce) node.logCfErr = (t) => ce(Math.abs(a) * t);
   if (!(a !== 0 && Number.isFinite(a))) return node;
@@ -97,6 +101,9 @@ function scaled(a: number, child: Node): Node {
 function shifted(b: number, child: Node): Node {
   const node = shiftNode(b, child);
   node.logMajorant = shiftMajorant(b, child);
+  // the continuous part's majorant follows, its atoms moved as ./kinds.ts shiftKind moves the node's (the inversion takes it only for exactly those atoms)
+  const cm = child.continuousMajorant;
+  if (cm) node.continuousMajorant = { atoms: cm.atoms.map((x) => ({ x: x.x + b, p: x.p })), maj: shiftedMajorant(b, cm.maj) };
   node.logCfErr = child.logCfErr;
   if (!Number.isFinite(b)) return node;
   if (child.direct) node.direct = affineDirect(child.direct, 1, b);

@@ -147,8 +147,12 @@ export function sumMajorant(cs: Node[]): LogMajorant | undefined {
 
 /** a X: M(|a| t); the slope |a| S(|a| t) about a c. */
 export function scaleMajorant(a: number, c: Node): LogMajorant | undefined {
-  const m = c.logMajorant;
-  if (!m || !(a !== 0 && Number.isFinite(a))) return undefined;
+  return c.logMajorant ? scaledMajorant(a, c.logMajorant) : undefined;
+}
+
+/** the majorant of |phi(a t)| from one of |phi(t)| (a continuous part's too: scaling keeps its weight) */
+export function scaledMajorant(a: number, m: LogMajorant): LogMajorant | undefined {
+  if (!(a !== 0 && Number.isFinite(a))) return undefined;
   const aa = Math.abs(a);
   const fn = (t: Float64Array, out: Float64Array) => {
     const s = new Float64Array(t.length);
@@ -171,8 +175,12 @@ export function scaleMajorant(a: number, c: Node): LogMajorant | undefined {
 
 /** X + b: the same |phi|, the slope's centre moved by b. */
 export function shiftMajorant(b: number, c: Node): LogMajorant | undefined {
-  const m = c.logMajorant;
-  if (!m || !m.slope || !Number.isFinite(b)) return m;
+  return c.logMajorant ? shiftedMajorant(b, c.logMajorant) : undefined;
+}
+
+/** the majorant of the law moved by b from the law's own (a continuous part's too) */
+export function shiftedMajorant(b: number, m: LogMajorant): LogMajorant {
+  if (!m.slope || !Number.isFinite(b)) return m;
   const sl = m.slope;
   return majorant((t, out) => m(t, out), m.tail, { center: sl.center + b, at: sl.at });
 }
@@ -180,51 +188,64 @@ export function shiftMajorant(b: number, c: Node): LogMajorant | undefined {
 /** Mixture: |phi| <= sum w_j |phi_j| (components without a majorant bounded by 1). */
 export function mixMajorant(weights: number[], cs: Node[]): LogMajorant | undefined {
   if (!cs.some((c) => c.logMajorant)) return undefined;
+  return weightedMajorant(weights, cs.map((c) => c.logMajorant));
+}
+
+/**
+ * |phi_1| + |phi_2| + ...: a majorant of the size of a difference or sum of CFs (a sum's CF with its heaviest term's
+ * taken out, ./invert/part.ts withTailLaw), from each one's majorant.
+ */
+export function sumMajorants(ms: LogMajorant[]): LogMajorant {
+  return weightedMajorant(ms.map(() => 1), ms);
+}
+
+/** sum |w_j| M_j (an absent M_j counts as 1), with the tail powers and, where every M_j has one, the slopes */
+function weightedMajorant(weights: number[], ms: (LogMajorant | undefined)[]): LogMajorant {
   const fn = (t: Float64Array, out: Float64Array) => {
     const acc = new Float64Array(t.length);
     const tmp = new Float64Array(t.length);
-    cs.forEach((c, j) => {
+    ms.forEach((mj, j) => {
       const w = Math.abs(weights[j]);
-      if (!c.logMajorant) {
+      if (!mj) {
         for (let i = 0; i < t.length; i++) acc[i] += w;
         return;
       }
-      c.logMajorant(t, tmp);
+      mj(t, tmp);
       for (let i = 0; i < t.length; i++) acc[i] += w * Math.exp(tmp[i]);
     });
-    for (let i = 0; i < t.length; i++) out[i] = Math.log(acc[i] * (1 + 4 * cs.length * EPS));
+    for (let i = 0; i < t.length; i++) out[i] = Math.log(acc[i] * (1 + 4 * ms.length * EPS));
   };
   // sum w_j v_j (t/s)^{q_j} <= (sum w_j v_j) (t/s)^{min q_j}; a component without a majorant: v = 1, q = 0
   const tail = (t: number) => {
     let v = 0;
     let q = Infinity;
-    cs.forEach((c, j) => {
-      const r = c.logMajorant?.tail ? c.logMajorant.tail(t) : { log: 0, q: 0 };
+    ms.forEach((mj, j) => {
+      const r = mj?.tail ? mj.tail(t) : { log: 0, q: 0 };
       v += Math.abs(weights[j]) * Math.exp(r.log);
       q = Math.min(q, r.q);
     });
-    return { log: Math.log(v * (1 + 4 * cs.length * EPS)), q };
+    return { log: Math.log(v * (1 + 4 * ms.length * EPS)), q };
   };
   // about c = sum |w_j| c_j / sum |w_j|: (phi_j e^{-itc})' = (phi_j e^{-itc_j})' e^{-it(c - c_j)} - i (c - c_j) phi_j e^{-itc}
   const ws = weights.map(Math.abs);
   const W = ws.reduce((s, w) => s + w, 0);
-  const slope: Slope | undefined = cs.every((c) => c.logMajorant?.slope)
+  const slope: Slope | undefined = ms.every((mj) => mj?.slope)
     ? {
-        center: cs.reduce((s, c, j) => s + ws[j] * c.logMajorant!.slope!.center, 0) / W,
+        center: ms.reduce((s, mj, j) => s + ws[j] * mj!.slope!.center, 0) / W,
         at: (t, out) => {
           const n = t.length;
-          const center = cs.reduce((s, c, j) => s + ws[j] * c.logMajorant!.slope!.center, 0) / W;
+          const center = ms.reduce((s, mj, j) => s + ws[j] * mj!.slope!.center, 0) / W;
           const lm = new Float64Array(n);
           const sl = new Float64Array(n);
           out.fill(0, 0, n);
-          cs.forEach((c, j) => {
-            const m = c.logMajorant!;
+          ms.forEach((mj, j) => {
+            const m = mj!;
             m(t, lm);
             m.slope!.at(t, sl);
             const d = Math.abs(m.slope!.center - center) * (1 + 4 * EPS) + 4 * EPS * Math.abs(center);
             for (let i = 0; i < n; i++) out[i] += ws[j] * (sl[i] + d * Math.exp(lm[i]));
           });
-          for (let i = 0; i < n; i++) out[i] *= 1 + 8 * cs.length * EPS;
+          for (let i = 0; i < n; i++) out[i] *= 1 + 8 * ms.length * EPS;
         },
       }
     : undefined;

@@ -10,6 +10,7 @@ import { collectNotes, carryApproximation, combineScales, addCumulants, complete
 import { cumulantEst, withCumulantErrors } from "./cumulant-bounds";
 import { stopLossBounds, type StopLossBounds } from "./invert/tail-moments";
 import { repeatE, scaleE, shiftE, sumE } from "./cumulant-ops";
+import { shiftedMajorant } from "./majorant";
 
 export { compoundNode, pgfAt } from "./compound";
 export { atomsNode, latticeNode, sampleNode } from "./tabulated";
@@ -68,6 +69,7 @@ function heaviestTerm(cs: Node[]): TailTerm | null {
     remainderAlpha: Math.min(...indices),
     indices,
     cfAbsError: (D.cfAbsError ?? 0) + (D.cfRelError ?? 0),
+    ...(D.logMajorant ? { logAbsMajorant: shiftedMajorant(shift, D.logMajorant) } : {}),
   };
 }
 

@@ -131,6 +131,8 @@ export interface TailTerm {
   indices: number[];
   /** bound on the absolute error of D's CF values */
   cfAbsError: number;
+  /** optional: a derived majorant of |phi_G| = |phi_D| (D's, its slope about the centre moved by `shift`) */
+  logAbsMajorant?: import("./majorant").LogMajorant;
   /**
    * optional: derived bounds on G's stop-loss transforms E[(G - u)^+] (side 1) and E[(u - G)^+] (side -1) from D's moments
    * (invert/tail-moments.ts), Infinity where none; the part of G's ES integral past its last node (direct/shortfall.ts)

@@ -33,6 +33,9 @@ export function majorantEnvelope(
   const a = new Float64Array(n);
   const ulps = cfUlps(part.model);
   const extra = part.model.logCfExtraError;
+  // with the heaviest term's CF taken out (part.tail): its values' rounding, relative to |phi_G| (a few operations on
+  // log phi_G and the phase t shift, as cfRelError counts them for the model's), joins each value's bound
+  const gSize = part.tail ? tailCfRounding(part, t, evaluated) : null;
   for (let i = 0; i < n; i++) {
     if (i >= evaluated || !Number.isFinite(mag[i])) {
       a[i] = Infinity;
@@ -41,7 +44,12 @@ export function majorantEnvelope(
     const rel = cfRelError(ulps, logRe[i], logIm[i], t[i], part.center) + (extra ? extra(t[i]) : 0);
     // with atoms taken out, phi's error is relative to |phi| (not to the part's value), and the subtraction's rounding
     // is the noise floor's allowance
-    a[i] = part.atoms.length === 0 ? (mag[i] * (1 + rel) + part.cfAbsError / w) * (1 + 4 * EPS) : (mag[i] + (Math.exp(logRe[i]) * rel + part.cfAbsError) / w + nf(t[i])) * (1 + 4 * EPS);
+    // with atoms or the tail term taken out, phi's error is relative to |phi| (not to the part's value), and the
+    // subtraction's rounding is the noise floor's allowance
+    a[i] =
+      part.atoms.length === 0 && !gSize
+        ? (mag[i] * (1 + rel) + part.cfAbsError / w) * (1 + 4 * EPS)
+        : (mag[i] + (Math.exp(logRe[i]) * rel + (gSize ? gSize[i] : 0) + part.cfAbsError) / w + nf(t[i])) * (1 + 4 * EPS);
   }
   let sl: Float64Array | null = null;
   let dc = 0;
@@ -90,5 +98,20 @@ export function majorantEnvelope(
     tailPdf[i] = ((sp * g) + floor * t[i]) / Math.PI;
     tailCdf[i] = ((sc * g) + floor) / Math.PI;
   }
-  return { t, env, tailPdf, tailCdf, decay: sampled.decay, decayClean: sampled.decayClean };
+  return { t, env, tailPdf, tailCdf, decay: sampled.decay, decayClean: sampled.decayClean, derived: true };
+}
+
+/** |phi_G(t_i)| times the relative rounding of its value (cfRelError with 8 units for D's log-CF), at the evaluated probes */
+function tailCfRounding(part: ContinuousPart, t: Float64Array, evaluated: number): Float64Array {
+  const G = part.tail!;
+  const n = Math.min(evaluated, t.length);
+  const re = new Float64Array(n);
+  const im = new Float64Array(n);
+  G.logCf(t.subarray(0, n), re, im);
+  const out = new Float64Array(t.length);
+  for (let i = 0; i < n; i++) {
+    const phase = im[i] + t[i] * G.shift;
+    out[i] = Math.exp(re[i]) * (cfRelError(8, re[i], phase, t[i], part.center) + 2 * EPS * Math.abs(t[i] * G.shift));
+  }
+  return out;
 }

@@ -4,6 +4,7 @@ import type { CompiledModel } from "../types";
 import { checkDeadline } from "../deadline";
 import { RESYNC } from "./pointwise";
 import { majorantEnvelope } from "./envelope-bound";
+import { sumMajorants, type LogMajorant } from "../majorant";
 
 /**
  * Envelope of |phi_part(t)| sampled on a geometric probe (8 points per octave) and its tail integrals, used to
@@ -20,6 +21,8 @@ export interface Envelope {
   decay: number;
   /** decay exponent over the last octave where |phi| is still far above rounding noise (for the kernel power) */
   decayClean: number;
+  /** true where the envelope comes from a derived majorant (./envelope-bound.ts), absent where it is sampled */
+  derived?: true;
 }
 
 const PER_OCTAVE = 8;
@@ -112,15 +115,23 @@ export function probeEnvelope(part: ContinuousPart, scale: number): Envelope {
   for (let i = 0; i < n; i++) mag[i] = cabs(re[i], im[i]);
   const sampled = envelopeOf(t, mag, nf);
   // samples bound |phi| between probes only where it is monotone; the model's derived majorant (../majorant.ts) bounds
-  // it everywhere, and is used when it applies to the inverted part (no kernels or tail law subtracted; atoms only where
-  // the model derives a majorant of its continuous part with exactly those atoms taken out, ../layer-majorant.ts)
-  const maj = part.atoms.length === 0 ? part.model.logAbsMajorant : sameAtoms(part.atoms, part.model.continuousMajorant?.atoms) ? part.model.continuousMajorant!.maj : undefined;
-  if (!maj || part.kernels.length > 0 || part.tail) return sampled;
+  // it everywhere, and is used when it applies to the inverted part: no kernels subtracted; with the sum's heaviest term
+  // subtracted, the two majorants added; atoms only where the model derives a majorant of its continuous part with
+  // exactly those atoms taken out (../layer-majorant.ts)
+  const maj = part.tail ? tailPartMajorant(part) : part.atoms.length === 0 ? part.model.logAbsMajorant : sameAtoms(part.atoms, part.model.continuousMajorant?.atoms) ? part.model.continuousMajorant!.maj : undefined;
+  if (!maj || part.kernels.length > 0) return sampled;
   const bound = majorantEnvelope(part, maj, t, mag, own.re, own.im, evaluated, sampled, nf);
   // a majorant without a derived decay past the probes (a mixture with a component bounded by 1) gives no finite
   // tail: the sampled envelope is kept there (not derived between probes; see majorant.ts)
   if (!Number.isFinite(bound.tailCdf[0])) return sampled;
   return bound;
+}
+
+/** |phi - phi_G| <= M + M_G for a part with the sum's heaviest term taken out (no atoms then), where both are derived */
+function tailPartMajorant(part: ContinuousPart): LogMajorant | undefined {
+  const m = part.model.logAbsMajorant;
+  const g = part.tail?.logAbsMajorant;
+  return m && g && part.atoms.length === 0 ? sumMajorants([m, g]) : undefined;
 }
 
 /** the same atoms (positions and masses, in any order) */
