@@ -94,6 +94,14 @@ export const Diagnostics = z
       .openapi({ description: "points x where the density is infinite (its limit there is +infinity, exactly; the pdf entry is null); cdf and sf at those points are finite and bounded as usual" }),
     levels: z.number(),
     notes: z.array(z.string()),
+    tolerance: z
+      .object({ target: z.number(), met: z.boolean() })
+      .strict()
+      .optional()
+      .openapi({
+        description:
+          "the absolute error of pdf and cdf the answer was computed to (the request's tolerance, else the default: 1e-10, or 1e-8 for laws with power tails inverted by period doubling, whose error falls only algebraically with the period) and whether the bounds in `error` meet it; where they do not, a note says which bound was reached and why",
+      }),
   })
   .strict()
   .openapi("Diagnostics");

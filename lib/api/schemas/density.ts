@@ -15,7 +15,7 @@ export const { doc: DensityRequest, body: DensityBody } = modelRequest("DensityR
     .min(1e-14, { error: "tolerance below 1e-14 cannot be met in double precision" })
     .max(0.1, { error: "tolerance must be at most 0.1" })
     .optional()
-    .openapi({ description: "target absolute error of pdf and cdf (default 1e-10)" }),
+    .openapi({ description: "target absolute error of pdf and cdf (default 1e-10; 1e-8 for laws with power tails inverted by period doubling); diagnostics.tolerance says whether it was met" }),
   range: z
     .object({ from: z.number(), to: z.number() })
     .strict()

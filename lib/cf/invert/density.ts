@@ -25,6 +25,35 @@ const AUTO_GRID_POINTS = 1024;
  * above MAX_GRID_POINTS, CfError("invalid_model") for malformed requests (pointer into the options).
  */
 export function density(model: CompiledModel, options: DensityOptions = {}): DensityResult {
+  const r = densityOf(model, options);
+  const heavyTails = Number.isFinite(Math.min(model.tails.left, model.tails.right));
+  const damped = r.diagnostics.method === "fft-damped" || r.diagnostics.method === "gil-pelaez-damped";
+  return withTolerance(r, options.tolerance ?? (heavyTails && !damped ? DEFAULT_TOLERANCE_HEAVY : DEFAULT_TOLERANCE));
+}
+
+/**
+ * The target the answer was computed to and whether its bounds meet it (DensityDiagnostics.tolerance); where they do not,
+ * a note says so plainly, with the bounds reached and the part of the budget that kept them there.
+ */
+function withTolerance(r: DensityResult, target: number): DensityResult {
+  const d = r.diagnostics;
+  const e = d.error;
+  const pdfE = r.pdf || r.pmf ? e.pdf : NaN;
+  const met = e.cdf <= target && !(pdfE > target);
+  d.tolerance = { target, met };
+  if (met || d.notes.some((n) => n.startsWith("tolerance "))) return r;
+  const parts: [number, string][] = [
+    [e.aliasing, "the aliasing left in the periodised law (power tails shrink only algebraically with the period; the period doublings stop where the next one could not lower the bound)"],
+    [e.truncation, "the frequency cut-off (the characteristic function decays slowly)"],
+    [e.rounding, "floating-point rounding in the sums (cancellation; a tighter target is not attainable in double precision here)"],
+  ];
+  parts.sort((u, v) => v[0] - u[0]);
+  const why = parts[0][0] > 0 ? `; the largest part of the bound is ${parts[0][1]}` : "";
+  d.notes.push(`tolerance ${target} not reached: cdf bound ${e.cdf.toExponential(2)}${pdfE > 0 ? `, density bound ${pdfE.toExponential(2)}` : ""}${why}`);
+  return r;
+}
+
+function densityOf(model: CompiledModel, options: DensityOptions): DensityResult {
   const heavyTails = Number.isFinite(Math.min(model.tails.left, model.tails.right));
   const tol = options.tolerance ?? (heavyTails ? DEFAULT_TOLERANCE_HEAVY : DEFAULT_TOLERANCE);
   if (!(tol > 0 && Number.isFinite(tol))) throw new CfError("invalid_model", "/tolerance", "tolerance must be a positive finite number");

@@ -59,6 +59,11 @@ export interface InversionDiagnostics {
   levels: number;
   notes: string[];
   /**
+   * the absolute error the answer was computed to (the request's, else the default: 1e-10, or 1e-8 for laws with power
+   * tails inverted by period doubling) and whether the bounds in `error` meet it (if not, a note says why)
+   */
+  tolerance?: { target: number; met: boolean };
+  /**
    * bounds at each returned point, where the route bounds every point on its own (direct laws, mixtures of them);
    * each entry is at most the whole answer's bound in `error`. Absent where only the whole answer is bounded.
    */
