@@ -112,6 +112,11 @@ export const QuantileDiagnostics = z
     terms: z.number().openapi({ description: "frequency nodes (or table points) used" }),
     range: z.object({ from: z.number(), to: z.number() }),
     cdfError: z.number().openapi({ description: "bound on |F_computed - F| used by the root finder" }),
+    tolerance: z
+      .object({ target: z.number(), met: z.boolean() })
+      .strict()
+      .optional()
+      .openapi({ description: "the cdf error the levels were solved to (the request's tolerance, else 1e-10; the routes aim tighter where they can) and whether cdfError meets it; where it does not, a note says so" }),
     quantileError: z
       .array(z.number().nullable())
       .openapi({ description: "per level: bound on |x - q_p|, derived from cdfError and the density over the bracket (null: not resolved)" }),

@@ -94,6 +94,7 @@ export function runQuantiles(body: z.infer<typeof QuantilesBody>) {
       terms: d.terms,
       range: d.range,
       cdfError: d.cdfError,
+      ...(d.tolerance ? { tolerance: d.tolerance } : {}),
       quantileError: nullable(d.quantileError)!,
       ...(d.expectedShortfallError ? { expectedShortfallError: nullable(d.expectedShortfallError) } : {}),
       // every approximation made anywhere in the model is stated here too (CF quadratures, discretisations)

@@ -1,6 +1,7 @@
 import { describe, expect, it } from "vitest";
 import { compile } from "@/lib/cf/compile";
 import { density, DEFAULT_TOLERANCE, DEFAULT_TOLERANCE_HEAVY } from "@/lib/cf/invert/density";
+import { quantiles } from "@/lib/cf/invert/quantile";
 import type { Model } from "@/lib/cf/types";
 import erfc from "@stdlib/math-base-special-erfc";
 
@@ -41,5 +42,16 @@ describe("density answers state their tolerance", () => {
     const tight = density(m, { x: [-2, 0, 1, 3, 8], tolerance: 1e-14 });
     consistent(tight, 1e-14);
     expect(tight.diagnostics.tolerance?.met).toBe(false);
+  });
+
+  it("quantile answers state the cdf tolerance their levels were solved to", () => {
+    const light = quantiles(compile({ sum: [{ family: "normal", mu: 0, sigma: 1 }, { family: "exponential", rate: 2 }] } as Model), [0.01, 0.5, 0.99]);
+    expect(light.diagnostics.tolerance).toEqual({ target: 1e-10, met: light.diagnostics.cdfError <= 1e-10 });
+    expect(light.diagnostics.tolerance?.met).toBe(true);
+    const m = compile({ sum: [{ family: "weibull", shape: 2.079, scale: 1.96 }, { family: "student_t", nu: 3.818, loc: 0, scale: 1.193 }] } as Model);
+    const tight = quantiles(m, [0.5, 0.99], { tolerance: 1e-14 });
+    const met = tight.diagnostics.cdfError <= 1e-14;
+    expect(tight.diagnostics.tolerance).toEqual({ target: 1e-14, met });
+    expect(tight.diagnostics.notes.some((n) => n.startsWith("tolerance 1e-14 not reached")), tight.diagnostics.notes.join(" | ")).toBe(!met);
   });
 });

@@ -36,6 +36,8 @@ export interface QuantileDiagnostics {
   /** per level: bound on the absolute error of ES (present when requested) */
   expectedShortfallError?: Float64Array;
   notes: string[];
+  /** the cdf error the levels were solved to (the request's, else 1e-10: the routes aim tighter where they can) and whether cdfError meets it */
+  tolerance?: { target: number; met: boolean };
 }
 
 export interface QuantileResult {
@@ -53,6 +55,16 @@ export interface QuantileResult {
  * E[(X - q)^+] = int_q^inf S(y) dy integrated term by term in the same sums.
  */
 export function quantiles(model: CompiledModel, pIn: ArrayLike<number>, options: QuantileOptions = {}): QuantileResult {
+  const r = quantilesOf(model, pIn, options);
+  const d = r.diagnostics;
+  const target = options.tolerance ?? 1e-10;
+  const met = d.cdfError <= target;
+  d.tolerance = { target, met };
+  if (!met) d.notes.push(`tolerance ${target} not reached: the levels were solved with a cdf bound of ${d.cdfError.toExponential(2)} (their quantile and ES bounds carry it)`);
+  return r;
+}
+
+function quantilesOf(model: CompiledModel, pIn: ArrayLike<number>, options: QuantileOptions): QuantileResult {
   const p = Float64Array.from(pIn);
   for (let i = 0; i < p.length; i++) {
     if (!(p[i] >= 0 && p[i] <= 1)) throw new CfError("invalid_model", `/p/${i}`, "each level p must be a number in [0, 1]");
