@@ -116,10 +116,80 @@ function build(mu: number, sigma: number, K: number): LogMajorant {
         return b;
       }),
     ].filter((b) => b.every((x) => Number.isFinite(x)));
-  const fb = toBounds(derivativeVariations(mu, sigma, 1, c, K), 1);
-  const gb = toBounds(derivativeVariations(mu, sigma, 0, c, K), Math.exp(mu + 0.5 * sigma * sigma) * (1 + 16 * EPS));
+  const fb = toBounds(variations(mu, sigma, 1, K), 1);
+  const gb = toBounds(variations(mu, sigma, 0, K), Math.exp(mu + 0.5 * sigma * sigma) * (1 + 16 * EPS));
   const pm = powerMajorant(fb, { center: 0, bounds: gb });
   if (BUILT.size > 256) BUILT.clear();
   BUILT.set(key, pm);
   return pm;
+}
+
+/**
+ * Bounds on the lognormal's damped transform and its derivative, |E[e^{(it - beta) X}]| and |E[X e^{(it - beta) X}]|, at
+ * t > 0 for a damping beta >= 0, of every order k: g = e^{-beta x} h (h = f or x f) and all its derivatives vanish at 0
+ * and at infinity, so k integrations by parts give |int g e^{itx}| <= ||g^{(k)}||_1 / t^k (common practice; e.g.
+ * Katznelson, An Introduction to Harmonic Analysis, ch. I), and by Leibniz's rule with |e^{-beta x}| <= 1,
+ * ||g^{(k)}||_1 <= sum_j C(k, j) beta^{k - j} ||h^{(j)}||_1, ||h^{(0)}||_1 = int h (1, or E X) and ||h^{(j)}||_1 =
+ * TV(h^{(j - 1)}) (derivativeVariations). The least over k = 0..K, each term rounded up.
+ */
+/** derivativeVariations kept per (mu, sigma, a0, K): the undamped majorant and the damped bounds share them */
+const VARIATIONS = new Map<string, number[]>();
+function variations(mu: number, sigma: number, a0: number, K: number): number[] {
+  const key = `${mu},${sigma},${a0},${K}`;
+  let v = VARIATIONS.get(key);
+  if (!v) {
+    v = derivativeVariations(mu, sigma, a0, 1 / (sigma * SQRT_2PI), K);
+    if (VARIATIONS.size > 512) VARIATIONS.clear();
+    VARIATIONS.set(key, v);
+  }
+  return v;
+}
+
+export function lognormalDampedBounds(mu: number, sigma: number, K = 20): { abs(beta: number, t: number): number; slope(beta: number, t: number): number } {
+  // n_j = ||h^{(j)}||_1: int h, then the variations TV(h^{(j - 1)}) (computed on first use)
+  let norms: { f: number[]; g: number[] } | null = null;
+  const get = () =>
+    (norms ??= {
+      f: [1, ...variations(mu, sigma, 1, K)],
+      g: [Math.exp(mu + 0.5 * sigma * sigma) * (1 + 16 * EPS), ...variations(mu, sigma, 0, K)],
+    });
+  // per damping: each order's numerator N_k = sum_j C(k, j) beta^{k - j} n_j (a handful of dampings per model: the plan's
+  // probes and the chosen one); the bound of order k at t is N_k / t^k
+  const memo = new Map<string, Float64Array>();
+  const numerators = (which: "f" | "g", beta: number) => {
+    const key = `${which}${beta}`;
+    let c = memo.get(key);
+    if (c) return c;
+    const n = get()[which];
+    const out: number[] = [];
+    for (let k = 0; k < n.length; k++) {
+      let sum = 0;
+      let binom = 1; // C(k, j) from j = 0 up
+      for (let j = 0; j <= k; j++) {
+        if (j > 0) binom = (binom * (k - j + 1)) / j;
+        sum += j === k ? n[j] : binom * Math.pow(beta, k - j) * n[j];
+      }
+      if (!Number.isFinite(sum)) break;
+      out.push(sum);
+    }
+    c = Float64Array.from(out);
+    if (memo.size > 64) memo.clear();
+    memo.set(key, c);
+    return c;
+  };
+  // each numerator within a few ulps per term (binomials exact below 2^53, the power and products a few roundings, the sum
+  // of non-negative terms k + 1 more), the power of 1/t within k + 1 more: 8 K + 16 ulps covers them
+  const least = (which: "f" | "g", beta: number, t: number) => {
+    const N = numerators(which, beta);
+    const u = 1 / t;
+    let best = Infinity;
+    let uk = 1;
+    for (let k = 0; k < N.length; k++) {
+      const v = N[k] * uk;
+      if (v < best) best = v;
+      uk *= u;
+    }
+    return best * (1 + (8 * K + 16) * EPS);
+  };
+  return { abs: (beta, t) => least("f", beta, t), slope: (beta, t) => least("g", beta, t) };
 }

@@ -1,5 +1,6 @@
 import { normalCdfBounded, type Bounded } from "./families/normal-bounded";
 import { lognormalPair, type PairValues } from "./lognormal-pair";
+import { lognormalDampedBounds } from "./lognormal-majorant";
 
 /**
  * The one-claim term of a compound, P(N = 1) times the severity's law, taken out of the damped transform and added
@@ -63,6 +64,12 @@ export interface SeverityKernel {
   /** a bound on |E[e^{(i t - beta) X}]| at t > 0 for every beta >= 0, in closed form (it falls to 0 where values cannot) */
   absBound?(t: number): number;
   /**
+   * derived bounds at t > 0 for the damping beta on |E[e^{(i t - beta) X}]| (abs) and |E[X e^{(i t - beta) X}]| (slope), each
+   * non-increasing in t (so it bounds every frequency past t): the inversion's envelopes are never below them, whatever
+   * the probes sampled (./invert/damped-psi.ts, ./invert/damped-slope.ts)
+   */
+  dampedBounds?: { abs(beta: number, t: number): number; slope(beta: number, t: number): number };
+  /**
    * the two-claim term P(N = 2) times the law of X_1 + X_2 (transform phi^2), when the severity has a computable
    * one (values weighted by w, with their bounds); the inversion takes it out too where that saves more terms than
    * its evaluation costs at the points asked for
@@ -115,6 +122,8 @@ export function lognormalKernel(
     // likewise f e^{-beta x} is unimodal (x times its log's derivative, -1 - (log x - mu)/sigma^2 - beta x, falls) and at most
     // f(mode) = e^{sigma^2/2 - mu} / (sigma sqrt(2 pi)): |phi| <= 2 f(mode) / t
     absBound: (t) => ((2 * Math.exp(0.5 * sigma * sigma - mu)) / (sigma * Math.sqrt(2 * Math.PI) * t)) * (1 + 8 * Number.EPSILON),
+    // and of every order, from the total variations of the density's derivatives (../lognormal-majorant.ts)
+    dampedBounds: lognormalDampedBounds(mu, sigma),
     // x f(x) = m1 f_{X'}(x), X' = c X lognormal(mu + sigma^2, sigma), c = e^{sigma^2}: so E[X e^{(it - beta) X}] is m1 times the
     // transform at (c t, c beta); an error d in those values, and the arguments' rounding (eps relative each, which moves
     // the transform by at most E X' = c m1 times the argument's change), are added

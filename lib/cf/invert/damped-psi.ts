@@ -179,22 +179,30 @@ export type Probed = Envelope & { noise: Float64Array; phi: Float64Array | null;
 const PROBES = new WeakMap<CompiledModel, Map<string, Probed>>();
 const MAX_PROBES = 32;
 
-export function probe(model: CompiledModel, atoms: Atom[], beta: number, pairOut: boolean): Probed {
+/**
+ * `derived` false: the envelope from the samples alone even where the severity derives bounds (the plan's fallback where
+ * the derived envelope needs more terms than its budget; the answer then says so, DAMPED_SAMPLED_NOTE)
+ */
+export function probe(model: CompiledModel, atoms: Atom[], beta: number, pairOut: boolean, derived = true): Probed {
   let memo = PROBES.get(model);
   if (!memo) PROBES.set(model, (memo = new Map()));
-  const key = probeKey(beta, pairOut, atoms);
+  const key = probeKey(beta, pairOut, atoms, derived);
   let hit = memo.get(key);
   if (!hit) {
     if (memo.size >= MAX_PROBES) memo.clear();
-    hit = probeAt(model, atoms, beta, pairOut, memo);
+    hit = probeAt(model, atoms, beta, pairOut, memo, derived);
     memo.set(key, hit);
   }
   return hit;
 }
 
-const probeKey = (beta: number, pairOut: boolean, atoms: Atom[]) => `${beta}|${pairOut}|${atoms.length}`;
+/** what an answer says where its damped route's truncation bound rests on sampled sizes of the transform */
+export const DAMPED_SAMPLED_NOTE =
+  "frequency truncation bounded from the transform's size sampled at 8 frequencies per octave (no derived bound on this transform, or one that would need more terms than the route allows): an estimate between the samples";
 
-function probeAt(model: CompiledModel, atoms: Atom[], beta: number, pairOut: boolean, memo: Map<string, Probed>) {
+const probeKey = (beta: number, pairOut: boolean, atoms: Atom[], derived: boolean) => `${beta}|${pairOut}|${atoms.length}|${derived}`;
+
+function probeAt(model: CompiledModel, atoms: Atom[], beta: number, pairOut: boolean, memo: Map<string, Probed>, derived: boolean) {
   const tp = probeFrequencies(Math.max(model.scale, 1e-300));
   const n = tp.length;
   const pr = new Float64Array(n);
@@ -208,23 +216,144 @@ function probeAt(model: CompiledModel, atoms: Atom[], beta: number, pairOut: boo
     const other = { w2: pairOut ? 0 : w2, re: new Float64Array(n), im: new Float64Array(n), noise: new Float64Array(n) };
     const phi = new Float64Array(n);
     severityPsi(sev, sev.count, atoms, beta, pairOut ? w2 : 0, true)(tp, pr, pi, nz, other, phi);
-    memo.set(probeKey(beta, !pairOut, atoms), envelopeFrom(tp, other.re, other.im, other.noise, phi));
-    return envelopeFrom(tp, pr, pi, nz, phi);
+    memo.set(probeKey(beta, !pairOut, atoms, derived), envelopeFrom(tp, other.re, other.im, other.noise, phi, derived ? derivedFloor(sev, sev.count, atoms, beta, !pairOut, tp, phi) : null));
+    return envelopeFrom(tp, pr, pi, nz, phi, derived ? derivedFloor(sev, sev.count, atoms, beta, pairOut, tp, phi) : null);
   }
   if (sev?.count && model.support[0] === 0) {
     const phi = new Float64Array(n);
     severityPsi(sev, sev.count, atoms, beta, pairOut ? w2 : 0, true)(tp, pr, pi, nz, undefined, phi);
-    return envelopeFrom(tp, pr, pi, nz, phi);
+    return envelopeFrom(tp, pr, pi, nz, phi, derived ? derivedFloor(sev, sev.count, atoms, beta, pairOut && w2 > 0, tp, phi) : null);
   }
   psiOf(model, atoms, beta, pairOut, true)(tp, pr, pi, nz);
   return envelopeFrom(tp, pr, pi, nz, null);
 }
 
-function envelopeFrom(tp: Float64Array, pr: Float64Array, pi: Float64Array, nz: Float64Array, phi: Float64Array | null): Probed {
+function envelopeFrom(tp: Float64Array, pr: Float64Array, pi: Float64Array, nz: Float64Array, phi: Float64Array | null, bounds: DerivedBounds | null = null): Probed {
   const mag = new Float64Array(tp.length);
   for (let i = 0; i < tp.length; i++) mag[i] = Math.hypot(pr[i], pi[i]);
   // values below the rounding of the atom subtraction and the CF's own error are not resolved (the floor at each probe)
-  return { ...envelopeOf(tp, mag, (_t, i) => nz[i]), noise: nz, phi };
+  const e = envelopeOf(tp, mag, (_t, i) => nz[i]);
+  if (!bounds) return { ...e, noise: nz, phi };
+  return { ...derivedEnvelope(e, mag, nz, bounds), noise: nz, phi };
+}
+
+/** per probe: a non-increasing bound on |psi_c| past it (size), and one on |psi_c'| past it (slope) */
+interface DerivedBounds {
+  size: Float64Array;
+  slope: Float64Array;
+}
+
+/**
+ * The envelope of |psi_c| from derived bounds instead of samples alone (as ./envelope-bound.ts does for undamped laws):
+ * on [t_i, t_{i+1}] |psi_c| is at most size(t_i) and, by the mean value theorem, at most
+ * max(a_i, a_{i+1}, (a_i + a_{i+1} + slope(t_i) dt) / 2) with a_i the computed |psi_c(t_i)| raised by its error bound;
+ * the running maximum from the right then bounds every frequency past each probe. The tails integrate it, and past the
+ * last probe the size bound's own power.
+ */
+function derivedEnvelope(e: Envelope, mag: Float64Array, nz: Float64Array, b: DerivedBounds): Envelope {
+  const { t } = e;
+  const n = t.length;
+  const env = new Float64Array(n);
+  let run = 0;
+  for (let i = n - 1; i >= 0; i--) {
+    let v = b.size[i];
+    if (i + 1 < n) {
+      const a0 = (mag[i] + nz[i]) * (1 + 4 * EPS);
+      const a1 = (mag[i + 1] + nz[i + 1]) * (1 + 4 * EPS);
+      const lip = Math.max(a0, a1, 0.5 * (a0 + a1 + b.slope[i] * (t[i + 1] - t[i]))) * (1 + 4 * EPS);
+      if (lip < v) v = lip;
+    }
+    if (!(v <= Infinity)) v = Infinity;
+    if (v > run) run = v;
+    env[i] = run;
+  }
+  const tailPdf = new Float64Array(n);
+  const tailCdf = new Float64Array(n);
+  // past t_n: size = M^j-type with M(t) <= M(t_n) (t_n / t)^k for the order k >= 1 least at t_n (M(t_n) < 1 there), so
+  // size falls at least like t^-2 (j >= 2): int past t_n of size / t <= size(t_n) / 2, of size <= size(t_n) t_n
+  const last = b.size[n - 1];
+  let sp = last < 1 ? last * t[n - 1] : Infinity;
+  let sc = last < 1 ? last / 2 : Infinity;
+  tailPdf[n - 1] = sp;
+  tailCdf[n - 1] = sc;
+  const g = 1 + 2 * n * EPS;
+  for (let i = n - 2; i >= 0; i--) {
+    sp += env[i] * (t[i + 1] - t[i]);
+    sc += env[i] * Math.log(t[i + 1] / t[i]);
+    tailPdf[i] = (sp * g) / Math.PI;
+    tailCdf[i] = (sc * g) / Math.PI;
+  }
+  return { ...e, env, tailPdf, tailCdf, derived: true };
+}
+
+/**
+ * Per probe interval [t_i, t_{i+1}], bounds on the severity's damped transform there: m_i >= |phi| is the least of the
+ * derived bound M(t_i) (SeverityKernel.dampedBounds, non-increasing: it holds past t_i) and, by the mean value theorem with
+ * |phi'| <= M'(t_i) (the derived slope bound, also non-increasing), (|phi(t_i)| + |phi(t_{i+1})| + M' dt) / 2 with the values'
+ * error bound added (a steep count's remainder is set by how far |phi| is below 1, which the samples resolve where M is
+ * still 1); the last probe's m is M alone (it holds past it). dM_i = M'(t_i), within the closed-form slope bound. Null where
+ * the severity derives no such bounds.
+ */
+export function phiBounds(sev: SeverityKernel, beta: number, tp: Float64Array, phi: Float64Array): { m: Float64Array; dM: Float64Array } | null {
+  const db = sev.dampedBounds;
+  if (!db) return null;
+  const n = tp.length;
+  const m = new Float64Array(n);
+  const dM = new Float64Array(n);
+  const d = sev.cfAbsError;
+  for (let i = 0; i < n; i++) {
+    const M = db.abs(beta, tp[i]);
+    dM[i] = sev.slope ? Math.min(sev.slope(tp[i]), db.slope(beta, tp[i])) : db.slope(beta, tp[i]);
+    let v = M;
+    if (i + 1 < n) {
+      const a0 = phi[i] * (1 + 4 * EPS) + d;
+      const a1 = phi[i + 1] * (1 + 4 * EPS) + d;
+      v = Math.min(M, Math.max(a0, a1, 0.5 * (a0 + a1 + dM[i] * (tp[i + 1] - tp[i]))) * (1 + 4 * EPS));
+    }
+    m[i] = Math.min(1, v);
+  }
+  return { m, dM };
+}
+
+/**
+ * Derived bounds for a compound's remainder psi_c = sum_{n >= j} p_n phi^n (the atom at 0 and the one-claim term taken out,
+ * j = 2; with the two-claim term out too, j = 3), per probe interval, from phiBounds' m and M': |psi_c| <= sum_{n >= j} p_n m^n
+ * <= min(m^j, (m / j) D) and |psi_c'| <= D M' there, D >= sum_{n >= j} n p_n m^{n-1} from the count's own series bound
+ * (derivTail) or E N m^{j-1}; the last probe's hold past it. The masses taken out are the count's own within their
+ * rounding, which the per-node noise allows for (severityPsi). Null without such bounds or with atoms away from 0.
+ */
+function derivedFloor(sev: SeverityKernel, count: NonNullable<SeverityKernel["count"]>, atoms: Atom[], beta: number, pairOut: boolean, tp: Float64Array, phi: Float64Array): DerivedBounds | null {
+  const pb = atoms.every((a) => a.x === 0) ? phiBounds(sev, beta, tp, phi) : null;
+  if (!pb) return null;
+  const j = pairOut ? 3 : 2;
+  const n = tp.length;
+  const size = new Float64Array(n);
+  const slope = new Float64Array(n);
+  // P_N at real s in [0, 1] from the count's cumulant function at log s, within its stated errors (a steep count, Poisson(1000):
+  // P_N(0.98) = e^-20, where its table's series bound is still of the order E N)
+  const one = new Float64Array(1);
+  const zero = new Float64Array(1);
+  const outR = new Float64Array(1);
+  const outI = new Float64Array(1);
+  const pgf = (x: number) => {
+    if (!(x > 0)) return count.absError;
+    if (x >= 1) return 1;
+    one[0] = Math.log(x);
+    count.cgf(one, zero, outR, outI);
+    return Math.exp(outR[0]) * (1 + count.relError + 64 * EPS * (1 + Math.abs(outR[0]))) + count.absError;
+  };
+  for (let i = 0; i < n; i++) {
+    const m = pb.m[i];
+    const P = pgf(m);
+    // sum_{n >= j} n p_n m^{n-1} <= P_N'(m) <= (P_N(m') - P_N(m)) / (m' - m) for m < m' <= 1 (P_N' increases on [0, 1])
+    const m2 = m + 0.5 * (1 - m);
+    const secant = m < 1 ? (pgf(m2) - Math.max(0, P - 2 * count.absError - 2 * (count.relError + 64 * EPS) * P)) / (m2 - m) : Infinity;
+    const D = Math.min(count.derivTail ? count.derivTail(m, j) : Infinity, count.mean * Math.pow(m, j - 1), secant * (1 + 4 * EPS));
+    // sum_{n >= j} p_n m^n is at most P_N(m) itself, m^j, and (m / j) D
+    size[i] = Math.min(Math.pow(m, j), P, (m / j) * D) * (1 + 8 * EPS);
+    slope[i] = D * pb.dM[i] * (1 + 8 * EPS);
+  }
+  return { size, slope };
 }
 
 /**

@@ -1,6 +1,7 @@
 // The truncated cdf sum bounded by summation by parts: far from the period's ends the remainder's coefficient steps bound it.
 import type { Atom, CompiledModel } from "../types";
 import { envelopeOf, truncationFrom, type Envelope } from "./nodes";
+import { phiBounds } from "./damped-psi";
 
 const EPS = Number.EPSILON;
 
@@ -34,19 +35,29 @@ export function slopeEnvelope(
   const w2 = pairOut ? (sev.pair?.w ?? 0) : 0;
   const W = Math.max(sev.count.mean - sev.w - 2 * w2, 0) * (1 + 8 * EPS);
   const mag = new Float64Array(n);
+  // where the severity derives bounds on its damped transform and that one's slope (SeverityKernel.dampedBounds, each
+  // non-increasing in t), |phi| and |phi'| are taken at least at them: every value then bounds the true |c'| at every
+  // frequency past its probe, whatever the samples missed between probes (`derived` on the envelope)
+  // (only with the envelope of |psi_c| derived too: the plan's sampled fallback takes samples throughout)
+  const pb = env.derived ? phiBounds(sev, beta, tp, phi) : null;
   for (let i = 0; i < n; i++) {
-    // |phi| within its values' bound, and never above the severity's closed-form bound where it has one
-    const z = Math.min(1, phi[i] * (1 + 4 * EPS) + sev.cfAbsError, sev.absBound ? sev.absBound(tp[i]) : 1);
+    // |phi| within its values' bound, and never above the severity's closed-form bound where it has one; derived: over the
+    // probe's interval (phiBounds), so the running maximum below bounds every frequency past the probe
+    const sampled = phi[i] * (1 + 4 * EPS) + sev.cfAbsError;
+    const z = Math.min(1, pb ? Math.max(sampled, pb.m[i]) : sampled, sev.absBound ? sev.absBound(tp[i]) : 1);
     // sum_{n >= j + 1} n p_n z^{n-1} (j = 2 with the two-claim term out) within the count's own series where it has one
     const zj = pairOut ? z * z : z;
     const series = sev.count.derivTail ? sev.count.derivTail(z, pairOut ? 3 : 2) : Infinity;
-    const dpsi = Math.min(W * zj, series) * (dphi ? dphi[i] : sev.slope(tp[i]));
+    const dp = pb ? Math.max(pb.dM[i], dphi ? dphi[i] : 0) : dphi ? dphi[i] : sev.slope(tp[i]);
+    const dpsi = Math.min(W * zj, series) * dp;
     const d2 = beta * beta + tp[i] * tp[i];
     // the density sum's coefficients are psi_c itself: |psi_c'| alone
     mag[i] = (of === "pdf" ? dpsi : dpsi / Math.sqrt(d2) + (env.env[i] + noise[i]) / d2) * (1 + 8 * EPS);
     if (!Number.isFinite(mag[i])) return null;
   }
-  const e = envelopeOf(tp, mag, () => 0);
+  const e0 = envelopeOf(tp, mag, () => 0);
+  // (the envelope of |psi_c| is raised to its own derived floor where the severity has these bounds: ./damped-psi.ts)
+  const e: Envelope = pb ? { ...e0, derived: true } : e0;
   if (of === "pdf" && sev.absBound) {
     // past the last probe the density-type tail from the closed forms, not the last octave's decay (there |phi| + d sits
     // on its floor d, so |psi_c'| looks like 1/t and its tail infinite): |phi| <= A / t and |phi'| <= S / t give

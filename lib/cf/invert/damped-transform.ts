@@ -140,10 +140,18 @@ export function dampedPlan(
   yLow?: number,
   withInt = true,
 ): DampedPlan {
-  const plain = planFor(model, atoms, R, tol, wantPdf, false, pointwise, budget, periodOf, pdfReach, byParts, yLow, withInt);
+  // the envelope from the severity's derived bounds where it has them; where that plan needs more terms than the budget,
+  // the samples' envelope instead (its bound then an estimate between the samples, and the answer says so)
+  const plan = (pairOut: boolean) => {
+    const p = planFor(model, atoms, R, tol, wantPdf, pairOut, pointwise, budget, periodOf, pdfReach, byParts, yLow, withInt, true);
+    if (!(p.K > budget) || !p.plan.env.derived) return p;
+    const q = planFor(model, atoms, R, tol, wantPdf, pairOut, pointwise, budget, periodOf, pdfReach, byParts, yLow, withInt, false);
+    return q.K <= budget ? q : p;
+  };
+  const plain = plan(false);
   // the second plan only where it can pay: the plain plan's terms exceed what the term costs at the points
   const can = model.dampedSeverity?.count && model.dampedSeverity.pair && model.support[0] === 0 && plain.K > PAIR_COST * points;
-  const pair = can ? planFor(model, atoms, R, tol, wantPdf, true, pointwise, budget, periodOf, pdfReach, byParts, yLow, withInt) : null;
+  const pair = can ? plan(true) : null;
   if (!pair) return plain.plan;
   return pair.K + PAIR_COST * points < plain.K ? pair.plan : plain.plan;
 }
@@ -162,6 +170,7 @@ function planFor(
   byParts: ByParts,
   yLow: number | undefined,
   withInt: boolean,
+  derived: boolean,
 ): { plan: DampedPlan; K: number } {
   const lo = model.support[0];
   const span = Math.max(R - lo, 1e-6 * Math.max(model.scale, Math.abs(lo), 1e-300));
@@ -207,7 +216,7 @@ function planFor(
     }
     return T;
   };
-  const env0 = probe(model, atoms, 4 / span, pairOut);
+  const env0 = probe(model, atoms, 4 / span, pairOut, derived);
   // the cdf alone, summed point by point: the cut-off may come from the summation-by-parts bound at y = span
   const bySlope = byParts === true && pointwise === true && !wantPdf && !pdfReach;
   const byRange = byParts === "range";
@@ -299,7 +308,7 @@ function planFor(
   }
   const U = best.U;
   const beta = U / span;
-  const env = probe(model, atoms, beta, pairOut);
+  const env = probe(model, atoms, beta, pairOut, derived);
   const sl = slopes(beta, env);
   const target = tol / (8 * Math.exp(U));
   const T = periodFor(U);

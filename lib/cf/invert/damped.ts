@@ -4,6 +4,7 @@ import type { SeverityKernel } from "../severity-kernel";
 import { kernelsMass } from "../damped-kernels";
 import { truncationFrom } from "./nodes";
 import { dampedPlan, exactStep, psiOf, sumAllowance, type ByParts, type DampedPlan, type Exactness } from "./damped-transform";
+import { DAMPED_SAMPLED_NOTE } from "./damped-psi";
 import { densityBeyondWindow, imageLimit, imageMoments, imageTail } from "./damped-images";
 import { scratch, type ScratchSlot } from "../damped-scratch";
 import { slopeNumerator } from "./damped-slope";
@@ -259,6 +260,11 @@ export function dampedSetup(model: CompiledModel, atoms: Atom[], R: number, o: D
   notes.push(
     `damped inversion (exponential damping beta = ${beta.toPrecision(4)} before the transform, Abate & Whitt 1992; ` +
       `Grubel & Hermesmeier 1999): period ${T.toPrecision(4)} from ${lo}, ${K} frequency terms, atoms separated exactly`,
+  );
+  notes.push(
+    env.derived
+      ? "frequency truncation bounded from derived bounds on the transform's size and slope (from the severity density's derivatives), not from samples alone"
+      : DAMPED_SAMPLED_NOTE,
   );
   if (model.dampedSeverity && model.dampedSeverity.w > 0)
     notes.push(
