@@ -43,6 +43,8 @@ describe("explorer", () => {
     expect(medianBound).toMatch(/^± \d/);
     expect(Number(medianBound.slice(2))).toBeLessThan(1e-6);
     await expect(rows.nth(1).locator("td").nth(4).innerText()).resolves.toMatch(/^± \d/);
+    // every bound of this light-tailed sum is derived: no caveat box beside the table
+    await expect(page.getByTestId("bound-caveats").count()).resolves.toBe(0);
     await shot(page, "explorer-stack");
 
     // The axis follows the quantiles 0.0001..0.9999 (nice ends just outside them), not the inversion's window, which
@@ -76,6 +78,8 @@ describe("explorer", () => {
     await page.getByLabel("Model (JSON)").fill(JSON.stringify({ compound: { count: { family: "poisson", lambda: 3 }, each: { family: "gamma", shape: 2, rate: 0.001 } } }));
     const hi = await plotted();
     await expect(page.getByTestId("atom-marker").first().textContent()).resolves.toMatch(/P\(X = 0\) = 0\.04979/);
+    // its damped route bounds the frequency truncation from sampled sizes of the transform: said beside the table
+    await expect(page.getByTestId("bound-caveats").innerText()).resolves.toMatch(/estimate/);
     await shot(page, "explorer-atom");
 
     // Hover read-out of x, density, F and 1 - F.

@@ -15,6 +15,9 @@ export function ResultTables({ results }: { results: Results }) {
   const { quantiles: q, moments: m } = results;
   const qErr = numbers(q.diagnostics.quantileError);
   const esErr = numbers(q.diagnostics.expectedShortfallError);
+  // the notes that say a bound is partly estimated or a tolerance was missed: shown beside the table, not only in the JSON
+  const qNotes = Array.isArray(q.diagnostics.notes) ? (q.diagnostics.notes as unknown[]).filter((n): n is string => typeof n === "string") : [];
+  const caveats = qNotes.filter((n) => /estimat|not reached/i.test(n));
   return (
     <>
       <section aria-labelledby="q-h" className="rounded-xl border border-paper-line bg-white p-4">
@@ -46,6 +49,16 @@ export function ResultTables({ results }: { results: Results }) {
             ))}
           </tbody>
         </table>
+        {caveats.length ? (
+          <div role="note" data-testid="bound-caveats" className="mt-3 rounded-lg border border-caution-500/40 bg-caution-50 p-3 text-xs text-caution-700">
+            <p className="font-semibold">Where these bounds are not fully derived</p>
+            <ul className="mt-1 list-disc pl-5">
+              {caveats.map((n) => (
+                <li key={n}>{n}</li>
+              ))}
+            </ul>
+          </div>
+        ) : null}
       </section>
       <section aria-labelledby="m-h" className="rounded-xl border border-paper-line bg-white p-4">
         <h2 id="m-h" className="font-display text-lg font-semibold">Moments</h2>
