@@ -277,6 +277,7 @@ export function toCompiled(node: Node): CompiledModel {
       damped(beta, t, re, im);
     };
     if (node.dampedKernels && node.dampedKernels.cf === damped) compiled.dampedKernels = node.dampedKernels.kernels;
+    if (node.dampedKernels && node.dampedKernels.cf === damped && node.dampedRemainder && node.dampedRemainder.cf === damped) compiled.dampedRemainderBound = node.dampedRemainder.bound;
     if (node.dampedSeverity && node.dampedSeverity.cf === damped) compiled.dampedSeverity = node.dampedSeverity.kernel;
   }
   if (node.kind.type === "lattice" && node.table) {

@@ -123,6 +123,7 @@ export function compoundNode(N: Node, X: Node, discretise: DiscretiseOptions | n
     if (k) {
       node.transformSeries = k.series;
       if (k.kernels.length > 0) node.dampedKernels = { cf: node.dampedLogCf, kernels: k.kernels, rate: k.rate };
+      if (k.kernels.length > 0 && k.exact) node.dampedRemainder = { cf: node.dampedLogCf, bound: gammaRemainderBound(k.exact) };
     }
   }
   if (node.dampedLogCf && !node.dampedKernels && X.severityKernel && X.kind.type === "continuous" && X.support[0] === 0 && node.support[0] === 0 && N.table) {
@@ -213,7 +214,45 @@ function discretisedNode(N: Node, X: Node, o: DiscretiseOptions): Node {
 /** severities whose compounds are inverted as continuous laws (damped transform) unless discretisation is asked for */
 const CONTINUOUS_BY_DEFAULT = new Set(["lognormal", "pareto", "weibull", "lomax", "burr", "loglogistic", "inverse_gamma"]);
 /** the compound's transform series and its kernels (rate: the severity's own scale near its endpoint) */
-function kernelsFor(N: Node, X: Node): { series: TransformSeries; kernels: GammaKernel[]; rate: number } | null {
+/** a gamma severity's compound whose kernels are its first claims' laws exactly: what the remainder bound needs */
+interface ExactKernels {
+  /** p_0..p_J from the count's table (kernel n has weight p_n) */
+  pn: Float64Array;
+  shape: number;
+  rate: number;
+  /** log E[e^{w N}] at real w <= 0 (the count's cumulant function), where the count has it */
+  cgf?: (w: number) => number;
+}
+
+/**
+ * |psi_c(t)| for a compound of gamma(a, r) claims at 0 whose kernels are p_n gamma(n a, r), n = 1..J (kernelsFor): what is
+ * left of sum_{n >= 1} p_n phi^n is sum_{n > J} p_n phi^n, phi(t + i beta) = (1 - i (t + i beta) / r)^-a, so it is at most
+ * P(N > J) M^{J + 1} and at most P_N(M) (every term non-negative), M = (r / |r + beta - i t|)^a (exact, falling in t)
+ * (common practice: the compound's transform as the count's pgf at the severity's; a steep count, Poisson(500), has
+ * P(N > J) near 1 but P_N(0.9) = e^-50). The table's p_n carry a few ulps each (the kernels take the same numbers, so only
+ * the true p_n's distance from them enters, at most 16 (J + 1) u M in all), P(N > J) = 1 - sum_{n <= J} p_n is taken up
+ * by J + 2 ulps of its terms, and P_N(M) = exp(cgf(log M)) within 64 u (1 + |cgf|) of the exp and log.
+ */
+function gammaRemainderBound(k: ExactKernels): (beta: number, t: number) => number {
+  const J = k.pn.length - 1;
+  let head = 0;
+  for (let n = 0; n <= J; n++) head += k.pn[n];
+  const tail = Math.min(1, Math.max(0, 1 - head) + (J + 4) * Number.EPSILON * Math.max(1, head));
+  const slack = 16 * (J + 1) * Number.EPSILON;
+  return (beta, t) => {
+    const rb = k.rate + beta;
+    const M = Math.min(1, Math.pow(k.rate / Math.sqrt(rb * rb + t * t), k.shape) * (1 + 8 * Number.EPSILON));
+    let rest = tail * Math.pow(M, J + 1);
+    if (k.cgf && M > 0 && M < 1) {
+      const c = k.cgf(Math.log(M));
+      const P = Math.exp(c) * (1 + 64 * Number.EPSILON * (1 + Math.abs(c)));
+      if (P < rest) rest = P;
+    }
+    return (rest + slack * M) * (1 + 4 * Number.EPSILON);
+  };
+}
+
+function kernelsFor(N: Node, X: Node): { series: TransformSeries; kernels: GammaKernel[]; rate: number; exact?: ExactKernels } | null {
   const sev = X.laplaceExpansion!;
   const e0 = Math.min(...sev.exps);
   const nMax = Math.floor(KERNEL_ORDER / e0) + 1;
@@ -234,7 +273,17 @@ function kernelsFor(N: Node, X: Node): { series: TransformSeries; kernels: Gamma
   if (sev.rate !== undefined) {
     const kernels: GammaKernel[] = [];
     for (let n = 1; n <= nGamma; n++) if (pn[n] > 0) kernels.push({ at: n * sev.at, shape: n * e0, rate: sev.rate, w: pn[n] });
-    return { series, kernels, rate };
+    // claims from 0 with one gamma term (the expansion of the gamma family itself): the kernels are the n-claim laws
+    const cg = N.countCgf;
+    const cgf = cg
+      ? (w: number) => {
+          const o = new Float64Array(1);
+          cg(Float64Array.of(w), new Float64Array(1), o, new Float64Array(1));
+          return o[0];
+        }
+      : undefined;
+    const exact = sev.at === 0 && sev.exps.length > 0 && X.kind.type === "continuous" ? { pn: pn.slice(0, nGamma + 1), shape: e0, rate: sev.rate, ...(cgf ? { cgf } : {}) } : undefined;
+    return { series, kernels, rate, ...(exact ? { exact } : {}) };
   }
   return { series, kernels: kernelsOfSeries(series, rate), rate };
 }

@@ -76,6 +76,8 @@ export interface Node {
    *  with the dampedLogCf named here; rate: the rate a sum or mixture holding the node rebuilds its kernels at (the kernels'
    *  common rate; 1 / sd for a compound of gamma claims, whose kernels are its n-claim laws at the gamma's own rate) */
   dampedKernels?: { cf: DampedLogCf; kernels: GammaKernel[]; rate: number };
+  /** a derived bound on the damped transform's remainder after the atoms and kernels (CompiledModel.dampedRemainderBound) */
+  dampedRemainder?: { cf: DampedLogCf; bound(beta: number, t: number): number };
   /** the whole transform's expansion at its lower endpoint(s), where known (sums and mixtures build kernels from it) */
   transformSeries?: TransformSeries;
   /** counts: sup |P'(z) / P(z)| over the unit disc (finite for Poisson and negative binomial) */

@@ -66,6 +66,11 @@ export interface CompiledModel {
   /** gamma kernels the damped inversion subtracts from the transform and adds back in closed form (compounds of
    *  severities with a slowly decaying CF: a jump or a power singularity at the support's lower end) */
   dampedKernels?: readonly import("./damped-kernels").GammaKernel[];
+  /**
+   * a derived bound, non-increasing in t, on |psi_c(t)|: the damped transform less the atoms at 0 and dampedKernels (a
+   * compound of gamma claims, whose kernels are its first claims' laws): the damped envelope is then derived
+   */
+  dampedRemainderBound?(beta: number, t: number): number;
   /** the one-claim term of a compound (P(N = 1) times a closed-form severity law) the damped inversion takes out of
    *  the transform and adds back in closed form */
   dampedSeverity?: import("./severity-kernel").SeverityKernel;

@@ -225,6 +225,12 @@ function probeAt(model: CompiledModel, atoms: Atom[], beta: number, pairOut: boo
     return envelopeFrom(tp, pr, pi, nz, phi, derived ? derivedFloor(sev, sev.count, atoms, beta, pairOut && w2 > 0, tp, phi) : null);
   }
   psiOf(model, atoms, beta, pairOut, true)(tp, pr, pi, nz);
+  // the model's own bound on what is left after its atoms at 0 and kernels (a compound of gamma claims), non-increasing
+  const rb = model.dampedRemainderBound;
+  if (derived && rb && model.support[0] === 0 && atoms.every((a) => a.x === 0)) {
+    const size = Float64Array.from(tp, (t) => rb(beta, t));
+    return envelopeFrom(tp, pr, pi, nz, null, { size, slope: new Float64Array(n).fill(Infinity) });
+  }
   return envelopeFrom(tp, pr, pi, nz, null);
 }
 
