@@ -65,6 +65,16 @@ export function buildNode(m: Model, opts: CompileOptions = {}): Node {
   }
   if ("sum" in m) {
     const cs = m.sum.map(buildNode_);
+    // a term that is one point c (its support [c, c]: a point law, a compound whose count is 0) only moves the rest: the sum
+    // is the rest shifted by c, which keeps the rest's own routes (a direct law, its tail term); where several such terms
+    // add up, only when they sum exactly (all at 0, or one of them), so no rounding of the shift enters
+    const fixed = cs.filter((c) => c.support[0] === c.support[1] && Number.isFinite(c.support[0]));
+    const free = cs.filter((c) => !fixed.includes(c));
+    if (fixed.length > 0 && free.length > 0 && (fixed.length === 1 || fixed.every((c) => c.support[0] === 0))) {
+      const rest = free.length === 1 ? free[0] : buildNode_({ sum: m.sum.filter((_, j) => !fixed.includes(cs[j])) } as Model);
+      const at = fixed.length === 1 ? fixed[0].support[0] : 0;
+      return at === 0 ? rest : shifted(at, rest);
+    }
     const node = sumNode(cs);
     if (cs.length > 1) {
       node.logMajorant = sumMajorant(cs);

@@ -3,7 +3,8 @@ import { readFileSync } from "node:fs";
 import { compile } from "@/lib/cf/compile";
 import { density } from "@/lib/cf/invert/density";
 import { probeEnvelope } from "@/lib/cf/invert/nodes";
-import { evalPart, makePart, withTailLaw, type ContinuousPart } from "@/lib/cf/invert/part";
+import { evalPart, makePart, withKernels, withTailLaw, type ContinuousPart } from "@/lib/cf/invert/part";
+import gammainc from "@stdlib/math-base-special-gammainc";
 import { lawShape } from "@/lib/cf/invert/range";
 import type { Model } from "@/lib/cf/types";
 
@@ -93,5 +94,29 @@ describe("shifted and scaled compounds carry their continuous part's majorant", 
       const ci = (Math.exp(lr) * Math.sin(li) - p0 * Math.sin(b * t[i])) / (1 - p0);
       expect(Math.hypot(cr, ci), `t = ${t[i]}`).toBeLessThanOrEqual(Math.exp(lm[i]) * (1 + 1e-12) + 1e-15);
     }
+  });
+});
+
+// Found by the property tests: a sum whose other term is the zero law (a compound with N = 0 always) is the heaviest term
+// alone, here inverse gamma(4.97, 0.505), with F(x) = Q(alpha, theta / x) (Loss Models, app. A; @stdlib gammainc, upper).
+// With that term's CF taken out nothing is left to invert, and a part with the tail law and endpoint kernels must keep
+// mass 0 - sum b (it had 1 - sum b: cdf 0.5 at 0).
+describe("tail law with nothing left, and with kernels", () => {
+  it("0 + inverse gamma(4.97, 0.505): cdf within its bound of the closed form", () => {
+    const m = compile({ sum: [{ compound: { count: { family: "point", at: 0 }, each: { family: "normal", mu: 2.529, sigma: 1.981 } } }, { family: "inverse_gamma", alpha: 4.97, theta: 0.505 }] } as Model);
+    const xs = [0, 0.05, 0.1, 0.2, 0.5, 1, 2];
+    const r = density(m, { x: xs });
+    xs.forEach((x, i) => {
+      const ref = x > 0 ? gammainc(0.505 / x, 4.97, true, true) : 0;
+      expect(Math.abs(r.cdf[i] - ref), `x = ${x}: cdf ${r.cdf[i]} vs ${ref}`).toBeLessThanOrEqual(r.diagnostics.error.cdf + 1e-15);
+    });
+  });
+  it("withKernels keeps the tail law's mass", () => {
+    const m = compile({ sum: [{ family: "lomax", alpha: 4.883, theta: 2.992 }, { family: "uniform", a: 0.9, b: 1.5 }] } as Model);
+    const part = withTailLaw(makePart(m, [], 1));
+    expect(part.tail).toBeDefined();
+    expect(part.mass).toBe(0);
+    const k = withKernels(part, [{ at: 0.9, side: 1, rate: 1, power: 1, b: [0.25, 0.125] }]);
+    expect(k.mass).toBe(-0.375);
   });
 });

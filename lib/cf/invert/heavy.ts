@@ -239,7 +239,8 @@ export function maybeTailLaw(
   const c1 = cutoffFor(env, tol / 16, tol / 16);
   const c2 = cutoffFor(e2, tol / 16, tol / 16);
   // up to 4 times the cut-off: the remainder needs two or three fewer period doublings (each doubling the node count)
-  if (!(c2 <= 4 * c1)) return { part, env, alpha, bases: shape.tailBases };
+  // (and a finite one: where neither envelope reaches the target, the whole law's is kept)
+  if (!(c2 <= 4 * c1) || !Number.isFinite(c2)) return { part, env, alpha, bases: shape.tailBases };
   return { part: p2, env: e2, alpha: Math.max(p2.tail.remainderAlpha, alpha), bases: p2.tail.indices };
 }
 

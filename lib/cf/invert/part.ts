@@ -68,7 +68,8 @@ export function makePart(model: CompiledModel, atoms: Atom[], center: number): C
 }
 
 export function withKernels(part: ContinuousPart, ks: EndpointKernels[]): ContinuousPart {
-  let m = 1;
+  // the measure before the kernels: mass 1, or 0 with the heaviest term's law taken out (withTailLaw)
+  let m = part.tail ? 0 : 1;
   for (const k of ks) for (const b of k.b) m -= b;
   return { ...part, kernels: ks, mass: m };
 }
