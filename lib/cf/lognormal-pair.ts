@@ -1,4 +1,5 @@
-import erfc from "@stdlib/math-base-special-erfc";
+import type { Bounded } from "./families/normal-bounded";
+import { normalCdfFast } from "./families/normal-table";
 import { gaussLegendre as unitRule } from "./quadrature";
 
 /**
@@ -16,6 +17,14 @@ import { gaussLegendre as unitRule } from "./quadrature";
  *   |phi(v)| <= phi(Re v) e^{(Im v)^2/2},  |Phi(a + i b)| <= e^{b^2/2} Phi(a) <= e^{b^2/2} (integrate along Im = b),
  * and the error of an n-point rule is at most (64/15) M L rho^{-2n} / (rho^2 - 1) (Trefethen, Approximation Theory
  * and Approximation Practice, thm 19.3; L the half-length, M the bound on the ellipse E_rho).
+ * Rounding, carried per node to first order (u = 2^-53, Math.exp/log within one ulp, the project's standing assumption):
+ * Phi with its derived bound (./families/normal-table.ts) plus phi times its argument's rounding; the node v's own
+ * rounding moves phi(v) by |v| dv relative and w by at most dv (|dw/dv| = y/(x - y) <= 1 on the real panel); the sums'
+ * rounding by Higham's running bound (Accuracy and Stability of Numerical Algorithms, 2002, sec. 4.2). The panels'
+ * ends, formed in floating point, leave gaps or overlaps between neighbours: each costs its width times the
+ * integrand's size there. The split point v_m itself may be rounded: F_2 and I_2 as written are stationary in it (their
+ * derivative in v_m, 2 phi(v_m) (Phi(w(v_m)) - Phi(v_m)) and its I_2 counterpart, vanishes since w(v_m) = v_m).
+ * The Gauss-Legendre nodes and weights are taken as computed (./quadrature.ts).
  */
 export interface PairValues {
   F: number;
@@ -26,10 +35,8 @@ export interface PairValues {
   errI: number;
 }
 
-/** relative accuracy of Phi through @stdlib erfc (about 1 ulp; 1e-13 leaves room for the argument's rounding) */
-const ACC = 1e-13;
+const U = Number.EPSILON / 2;
 const SQ2PI = Math.sqrt(2 * Math.PI);
-const Phi = (z: number) => 0.5 * erfc(-z / Math.SQRT2);
 const V_LO = -10;
 /** Phi(-10), the mass the integrals leave out on the left (A&S 26.2.12: below phi(10)/10 = 7.7e-24) */
 const LEFT = 7.7e-24;
@@ -40,6 +47,14 @@ const PANEL_TOL = 1e-16;
  * nodes a point where 1.5 took 87 (sigma 0.5 to 2.5, 1 000 points, per-panel target 1e-12, the same stated bounds)
  */
 const MAX_IM = 2.5;
+
+/** phi(z), for the bounds only: its rounding (a few u) is below their 1% margins */
+const phi = (z: number) => Math.exp(-0.5 * z * z) / SQ2PI;
+// scratch for the Phi values (no allocation at the nodes)
+const PM: Bounded = { v: NaN, e: NaN };
+const PX: Bounded = { v: NaN, e: NaN };
+const PW: Bounded = { v: NaN, e: NaN };
+const PW2: Bounded = { v: NaN, e: NaN };
 
 const RULES = new Map<number, { x: Float64Array; w: Float64Array }>();
 /** Gauss-Legendre nodes and weights on [-1, 1]: quadrature.ts's rule on [0, 1] mapped by z = 1 - 2u, cached per n */
@@ -66,8 +81,23 @@ export function lognormalPair(
   const d = Math.LN2 / sigma;
   // on the ellipses: |Phi(w)|, |phi(w)| <= e^{(arg / sigma)^2 / 2} with |arg(x - y)| <= pi/4
   const gW = Math.exp((Math.PI / 4) ** 2 / (2 * sigma * sigma));
+  // m1's relative error: the exponent within u (sigma^2 + |mu + sigma^2/2|), exp one ulp
+  const m1Rel = 1.01 * (U * (sigma * sigma + Math.abs(mu + (sigma * sigma) / 2)) + 2 * U);
   const mode = Math.exp(mu - sigma * sigma);
-  const pdf1 = (z: number) => (z > 0 ? Math.exp(-0.5 * ((Math.log(z) - mu) / sigma) ** 2) / (z * sigma * SQ2PI) : 0);
+  const modeRel = 1.01 * U * (sigma * sigma + Math.abs(mu - sigma * sigma) + 2);
+  /**
+   * the density f(z) raised by its rounding (z within rz relative: log z moves by rz; the log 2u, the subtraction, the
+   * division, the square, exp, sigma SQ2PI and the rest a few u)
+   */
+  const pdfUp = (z: number, rz: number) => {
+    if (!(z > 0)) return 0;
+    const lz = Math.log(z);
+    const w = (lz - mu) / sigma;
+    const dw = (rz + U * (2 * Math.abs(lz) + Math.abs(lz - mu))) / sigma + U * Math.abs(w);
+    return (Math.exp(-0.5 * w * w) / (z * sigma * SQ2PI)) * (1 + 1.01 * (Math.abs(w) * dw + U * (w * w + 10)));
+  };
+  // sup f = f(mode) (the rounded mode is within modeRel of it, where f is stationary)
+  const fMax = pdfUp(mode, modeRel) * (1 + U);
   // the panels, as distances below v_m: [s_k, s_{k+1}] with half-length L and the ellipse parameter rho
   const panels: { s0: number; s1: number; L: number; rho: number }[] = [];
   {
@@ -86,31 +116,42 @@ export function lognormalPair(
   }
   const at = (x: number, wantPdf = true, wantInt = true, panelTol = PANEL_TOL): PairValues => {
     if (!(x > 0)) return { F: 0, f: 0, I: 0, errF: 0, errf: 0, errI: 0 };
-    const vm = (Math.log(x / 2) - mu) / sigma;
-    const Pm = Phi(vm);
+    const lh = Math.log(x / 2);
+    const vm = (lh - mu) / sigma;
+    const Pm = normalCdfFast(vm, PM);
     if (vm <= V_LO) {
-      // F_2(x) <= F(x)^2, f_2(x) <= 2 F(x/2) sup_{z >= x/2} f(z), I_2 <= x F_2(x): returned as 0 with those bounds
-      const Fx = Phi(vm + d);
+      // F_2(x) <= F(x)^2, f_2(x) <= 2 F(x/2) sup_{z >= x/2} f(z), I_2 <= x F_2(x): returned as 0 with those bounds, each
+      // Phi raised by its bound and by phi times its argument's rounding (log within 2u |lh|, the subtraction, the
+      // division and the sum u each; d = log 2 / sigma within 2u)
+      const dvm = 1.01 * ((U * (2 * Math.abs(lh) + Math.abs(lh - mu))) / sigma + U * Math.abs(vm));
+      const a = vm + d;
+      const Fx = normalCdfFast(a, PX);
+      const FxUp = Fx.v + Fx.e + 1.01 * phi(a) * (dvm + U * (2 * d + Math.abs(a)));
+      const PmUp = Pm.v + Pm.e + 1.01 * phi(vm) * dvm;
       return {
         F: 0,
         f: wantPdf ? 0 : NaN,
         I: wantInt ? 0 : NaN,
-        errF: Fx * Fx,
-        errf: wantPdf ? 2 * Pm * pdf1(Math.max(x / 2, mode)) : Infinity,
-        errI: wantInt ? x * Fx * Fx : Infinity,
+        errF: FxUp * FxUp * (1 + 4 * U),
+        errf: wantPdf ? 2 * PmUp * (x / 2 > mode ? pdfUp(x / 2, 0) : fMax) * (1 + 4 * U) : Infinity,
+        errI: wantInt ? x * FxUp * FxUp * (1 + 4 * U) : Infinity,
       };
     }
     let sF = 0;
     let sf = 0;
     let sI = 0;
-    let aF = 0;
-    let aI = 0;
-    let rf = 0;
+    // the terms' own errors and the sums' running rounding
+    let eF = 0;
+    let ef = 0;
+    let eI = 0;
+    // the gaps between the panels' ends, weighted by phi there
+    let gap = 0;
     let qF = 0;
     const span = vm - V_LO;
     for (const p of panels) {
       if (p.s0 >= span) break;
-      const s1 = Math.min(p.s1, span);
+      const cut = p.s1 > span;
+      const s1 = cut ? span : p.s1;
       const L = 0.5 * (s1 - p.s0);
       const c = vm - p.s0 - L;
       // the ellipse for this (possibly shortened) panel: same rho, smaller L, so it stays inside the region
@@ -121,54 +162,97 @@ export function lognormalPair(
       const minRe2 = lo <= 0 && hi >= 0 ? 0 : Math.min(lo * lo, hi * hi);
       const M = (Math.exp(-0.5 * minRe2 + 0.5 * Lb * Lb) / SQ2PI) * gW;
       const k = ((64 / 15) * M * L) / (p.rho * p.rho - 1);
+      // the ends c -+ L against v_m - s0 - 2L and v_m - s0: c's two roundings, s1 - s0's, and the last panel's end
+      // v_m - span against V_LO (span's rounding); the integrands there at most phi (times 1, sup f, x)
+      const a0 = c - L;
+      const a1 = c + L;
+      const near = a0 <= 0 && a1 >= 0 ? 0 : Math.min(Math.abs(a0), Math.abs(a1));
+      gap += (U * (2 * Math.abs(vm - p.s0) + 2 * Math.abs(c) + 2 * L + (cut ? span : 0))) * phi(near);
       // the fewest nodes from the list whose bound k rho^{-2n} is below the panel target
       let n = 4;
       while (n < 48 && k * Math.pow(p.rho, -2 * n) > panelTol) n += 4;
       qF += k * Math.pow(p.rho, -2 * n);
       const r = rule(n);
       for (let i = 0; i < n; i++) {
-        const v = c + L * r.x[i];
+        const Lx = L * r.x[i];
+        const v = c + Lx;
+        // v within dv of c + L x_i; the weight L w_i phi(v): v^2 u, exp 2u, SQ2PI 2u, three products and a division,
+        // and phi's move |v| dv with the node
+        const dv = U * (Math.abs(Lx) + Math.abs(v));
         const wt = L * r.w[i] * (Math.exp(-0.5 * v * v) / SQ2PI);
-        const z = x - Math.exp(mu + sigma * v);
+        const rw = U * (v * v + 9) + Math.abs(v) * dv;
+        const e = mu + sigma * v;
+        const y = Math.exp(e);
+        const z = x - y;
+        // y within ry relative (e's two roundings, the node's move sigma dv, exp); z within rz relative (y's error,
+        // the subtraction; y <= x/2 <= z on the real panel)
+        const ry = U * (Math.abs(sigma * v) + Math.abs(e) + 2) + sigma * dv;
+        const rz = (y * ry) / z + U;
         const lz = Math.log(z);
         const wz = (lz - mu) / sigma;
-        const P = Phi(wz);
-        sF += wt * P;
-        aF += wt * P;
+        // wz's error: log's 2u |lz| and z's rz, the subtraction and the division
+        const dw = (rz + U * (2 * Math.abs(lz) + Math.abs(lz - mu))) / sigma + U * Math.abs(wz);
+        const P = normalCdfFast(wz, PW);
+        const pw = phi(wz);
+        const eP = P.e + 1.01 * pw * dw;
+        const tF = wt * P.v;
+        sF += tF;
+        eF += wt * eP + tF * (rw + U) + U * sF;
         if (wantPdf) {
           const tf = (wt * Math.exp(-0.5 * wz * wz)) / (z * sigma * SQ2PI);
           sf += tf;
-          // rounding of the density term: its exponent carries |wz| times the rounding of wz (logs of z and x)
-          rf += tf * Number.EPSILON * (16 + (2 * Math.abs(wz) * (Math.abs(lz) + Math.abs(mu) + 1)) / sigma);
+          // exp(-wz^2/2) moves by |wz| dw and rounds u wz^2 + 2u; z, sigma SQ2PI (2u), two products and the division
+          ef += tf * (rw + 1.01 * Math.abs(wz) * dw + U * (wz * wz + 8) + rz) + U * sf;
         }
         if (wantInt) {
-          const P2 = Phi(wz - sigma);
-          sI += wt * (z * P - m1 * P2);
-          aI += wt * (z * P + m1 * P2);
+          const w2 = wz - sigma;
+          const P2 = normalCdfFast(w2, PW2);
+          const eP2 = P2.e + 1.01 * phi(w2) * (dw + U * Math.abs(w2));
+          const zP = z * P.v;
+          const mP = m1 * P2.v;
+          const g = zP - mP;
+          const tI = wt * g;
+          sI += tI;
+          // z P: z's rz, P's eP and the product; m1 P2: m1's m1Rel, P2's eP2 and the product; the difference
+          const eg = z * (P.v * (rz + U) + eP) + m1 * (P2.v * (m1Rel + U) + eP2) + U * Math.abs(g);
+          eI += wt * eg + Math.abs(tI) * (rw + U) + U * Math.abs(sI);
         }
       }
     }
-    const P2m = wantInt ? Phi(vm - sigma) : NaN;
-    const F = Math.min(Math.max(2 * sF - Pm * Pm, 0), 1);
+    gap *= 1.01;
+    const Pm2 = Pm.v * Pm.v;
+    const F0 = 2 * sF - Pm2;
+    const F = Math.min(Math.max(F0, 0), 1);
     const f = wantPdf ? Math.max(2 * sf, 0) : NaN;
-    const I = wantInt ? Math.max(2 * sI - x * Pm * Pm + 2 * Pm * m1 * P2m, 0) : NaN;
+    let I = NaN;
+    let roundI = Infinity;
+    if (wantInt) {
+      // P2m's argument v_m - sigma rounds by u |v_m - sigma| (v_m's own rounding is the stationary split point)
+      const a2 = vm - sigma;
+      const P2m = normalCdfFast(a2, PW2);
+      const eP2m = P2m.e + 1.01 * phi(a2) * U * Math.abs(a2);
+      const xP = x * Pm2;
+      const tail = 2 * Pm.v * m1 * P2m.v;
+      const I0 = 2 * sI - xP + tail;
+      I = Math.max(I0, 0);
+      // 2 sI's error; x Pm^2 (Pm's error, two products); 2 Pm m1 P2m (each factor's error, three products); two sums
+      roundI = 1.01 * (2 * eI + x * (2 * Pm.v * Pm.e + 2 * U * Pm2) + 2 * m1 * (Pm.e * P2m.v + Pm.v * eP2m) + tail * (m1Rel + 3 * U) + U * (Math.abs(2 * sI - xP) + Math.abs(I0)));
+    }
     // the rule's bound scales with M: for f_2 by |f(x - y)| / |Phi(w)| <= 1 / (sqrt(2 pi) sigma x (1 - 1/sqrt 2)),
     // for I_2 by |I_1(x - y)| / |Phi(w)| <= x (1 + 1/sqrt 2) + m1
     const fScale = 1 / (SQ2PI * sigma * x * (1 - Math.SQRT1_2));
     const iScale = x * (1 + Math.SQRT1_2) + m1;
-    // left of v_lo: the integrands are at most 1, sup f = f(mode), x
-    const fMax = pdf1(mode);
-    const round = 8 * Number.EPSILON;
+    // left of v_lo and in the gaps: the integrands are at most 1, sup f, x
     return {
       F,
       f,
       I,
-      errF: 2 * (qF + LEFT) + (ACC + round) * (2 * aF + Pm * Pm),
-      errf: wantPdf ? 2 * (qF * fScale + LEFT * fMax) + 2 * rf + round * f : Infinity,
-      errI: wantInt ? 2 * (qF * iScale + LEFT * x) + (ACC + round) * (2 * aI + x * Pm * Pm + 2 * Pm * m1 * P2m) : Infinity,
+      errF: 2 * (qF + LEFT + gap) + 1.01 * (2 * eF + 2 * Pm.v * Pm.e + U * (Pm2 + Math.abs(F0))),
+      errf: wantPdf ? 2 * (qF * fScale + (LEFT + gap) * fMax) + 1.01 * 2 * ef : Infinity,
+      errI: wantInt ? 2 * (qF * iScale + (LEFT + gap) * x) + roundI : Infinity,
     };
   };
   // f_2(y) = 2 int_0^{y/2} f(u) f(y - u) du <= 2 sup_{z >= y/2} f(z) (f decreases beyond its mode)
-  const densityBeyond = (from: number) => 2 * pdf1(Math.max(from / 2, mode));
+  const densityBeyond = (from: number) => 2 * (from / 2 > mode ? pdfUp(from / 2, 0) : fMax) * (1 + U);
   return { at, densityBeyond };
 }
