@@ -2,8 +2,8 @@
 import { cumulantList, rawToCumulants, type Node } from "../node";
 import { arithmeticNodes, contourLogCfArithmetic, contourPhi, expSumArithmetic, fromPhi, type Contour } from "./cf-quadrature";
 import { lgamma } from "./special";
-import { MAX_QUADRATURE_NODES, NUMERIC_CF_ABS_ERROR, quadratureNodes, ruleRounding } from "./numeric-rule";
-import { burrExpansion, burrSeries, weibullAsymptotic } from "./asymptotic";
+import { MAX_QUADRATURE_NODES, quadratureNodes, ruleRounding } from "./numeric-rule";
+import { SERIES_TOLERANCE, burrExpansion, burrSeries, weibullAsymptotic } from "./asymptotic";
 import { fromPhiDamped } from "../damped-cf";
 import { burrDist } from "./dist";
 import { KahanComplex } from "./kahan";
@@ -96,9 +96,13 @@ export function burr(alpha: number, gamma: number, theta: number, name = "burr")
   // equispaced t (the inversion's nodes): the same rule summed across t (contourLogCfArithmetic). Its shortcuts add
   // sum_j |c_j| (e/25! + 80 eps) + n 1e-21, and sum_j |c_j| is the rule for int |exp L(v + i th)| dv: as cos(gamma th) >= 0,
   // |1 + e^{gamma s}|^2 >= 1 + e^{2 gamma v}, so with u = e^{gamma v} the integral is at most
-  // alpha int_0^inf (1 + u^2)^{-(alpha+1)/2} du = alpha (sqrt(pi)/2) Gamma(alpha/2) / Gamma((alpha+1)/2) (DLMF 5.12.1),
-  // 1% added for the rule; a batch whose own bound comes out larger goes back to the rule per t
-  const absSum = 1.01 * 0.5 * Math.sqrt(Math.PI) * Math.exp(Math.log(alpha) + lgamma(alpha / 2) - lgamma((alpha + 1) / 2));
+  // alpha int_0^inf (1 + u^2)^{-(alpha+1)/2} du = alpha (sqrt(pi)/2) Gamma(alpha/2) / Gamma((alpha+1)/2) (DLMF 5.12.1);
+  // the rule's sum exceeds the integral by at most h times the integrand's peak (it is unimodal in v: in u its log's
+  // derivative has the sign of 1 + (1 - alpha) cos(gamma p) u - alpha u^2), which is at most alpha gamma (|1 + w| >=
+  // max(1, |w|) when cos(arg w) >= 0); 1% for lgamma's and the products' rounding. A batch whose own bound comes out
+  // larger goes back to the rule per t
+  const absInt = 0.5 * Math.sqrt(Math.PI) * Math.exp(Math.log(alpha) + lgamma(alpha / 2) - lgamma((alpha + 1) / 2));
+  const absSum = 1.01 * (absInt + hD * alpha * gamma);
   const batchError = absSum * (2e-25 + 80 * Number.EPSILON) + MAX_QUADRATURE_NODES * 1e-21;
   // Rounding of the rule per frequency (and of the batch's terms before they are summed), relative to each term in
   // units of u: the log-density lag + gamma v - (alpha + 1) log|1 + e^{gamma s}| and its phase ((alpha + 1)(2 gamma |v|
@@ -119,7 +123,9 @@ export function burr(alpha: number, gamma: number, theta: number, name = "burr")
     const mod = hD * Math.exp(lag + gv - 0.5 * (alpha + 1) * (gv > 0 ? 2 * gv + Math.log1p(Math.exp(-2 * gv)) : Math.log1p(Math.exp(2 * gv))));
     termErrors += mod * ((alpha + 1) * (2 * Math.abs(gv) + 8) + Math.abs(lag) + 2 * Math.abs(gv) + (2 * (2 + Math.abs(v)) * (1 + cotH)) / Math.E + 8);
   }
-  const ruleError = Math.max(NUMERIC_CF_ABS_ERROR, 1e-16 + ruleRounding(nMax, absSum, termErrors));
+  // the rules' own error (burrRuleError) and rounding, plus the batches' shortcuts; the damped transform's series
+  // (a > 4, a route of its own) within SERIES_TOLERANCE when taken
+  const cfError = Math.max(SERIES_TOLERANCE, burrRuleError(alpha, gamma, th, strip, hD, absInt) + ruleRounding(nMax, absSum, termErrors) + batchError);
   const perT = (t: Float64Array, re: Float64Array, im: Float64Array) => fromPhi(t, re, im, (x, out) => phi(x * theta, out));
   // Damped transform on equispaced t > 0 at one beta: one path Im s = p serves every z = t + i beta from the first t on
   // when p = min(th, pi/2 - arg z_0) (arg z falls as t grows, so psi + p stays in [p, pi/2] as on phiDamped's paths, and
@@ -132,7 +138,7 @@ export function burr(alpha: number, gamma: number, theta: number, name = "burr")
   const dampedBatch = (beta: number, t: Float64Array, re: Float64Array, im: Float64Array): boolean => {
     const K = t.length;
     let i0 = 0;
-    while (i0 < K && Math.PI / 2 - Math.atan2(beta, t[i0]) < th / 2) i0++;
+    while (i0 < K && Math.PI / 2 - Math.atan2(beta, t[i0]) < strip) i0++;
     if (K - i0 < 64) return false;
     const z0 = Math.hypot(t[i0], beta) * theta;
     const p = Math.min(th, Math.PI / 2 - Math.atan2(beta, t[i0]));
@@ -183,8 +189,8 @@ export function burr(alpha: number, gamma: number, theta: number, name = "burr")
     momentIndex: tail,
     tails: { left: Infinity, right: tail },
     nodes: 1,
-    notes: [`${name} CF computed by quadrature on a shifted contour (absolute error <= ${(ruleError + batchError).toPrecision(2)})`],
-    cfAbsError: ruleError + batchError,
+    notes: [`${name} CF computed by quadrature on a shifted contour (absolute error <= ${cfError.toPrecision(2)})`],
+    cfAbsError: cfError,
     dampedLogCf: damped,
     laplaceExpansion: burrExpansion(alpha, gamma, theta),
     severity: {
@@ -205,4 +211,29 @@ export function burr(alpha: number, gamma: number, theta: number, name = "burr")
     },
     cumulants: (m) => rawToCumulants(cumulantList(m, tail, raw)),
   };
+}
+
+/**
+ * The Burr rule's own error at z = t + i beta (t > 0, beta >= 0), every route (per t, per z, the equispaced batches),
+ * each a trapezoidal rule of step h on a path Im s = p <= th with the strip |Im s - p| < a = 0.75 th about it. At
+ * s = v + i phi in the strip, |exp(i z theta e^s)| = exp(-|z| theta e^v sin(psi + phi)) <= 1 (psi + phi stays in (0, pi),
+ * see burr's paths), and with u = e^{gamma v}, chi = gamma phi, int |exp L(s)| dv = int_0^inf alpha |1 + u e^{i chi}|^{-alpha-1}
+ * du: at most absInt where cos chi >= 0 (|1 + u e^{i chi}|^2 >= 1 + u^2), and where cos chi < 0 at most
+ * (alpha + 1) / sin(chi)^{alpha+1} (|1 + u e^{i chi}| >= sin(chi) max(1, u)); chi <= 1.75 gamma th < pi. So the aliasing
+ * error is at most 2M/(e^{2 pi a/h} - 1) (Trefethen & Weideman 2014, SIAM Review 56(3), thm 5.1). The ends: below the
+ * left one (v <= (-42 - log(alpha gamma))/gamma) the terms are at most h alpha gamma e^{gamma v} (|1 + w| >= 1) and sum to
+ * at most alpha e^{gamma v_lo} <= e^-42 / gamma; beyond the right one either the density's terms h alpha gamma
+ * e^{-alpha gamma v} (|1 + w| >= |w|) sum to at most e^-42 (1 + alpha gamma h) / (alpha gamma), or the decay there is
+ * e^-44 and the terms (density at most alpha gamma, decay exponent growing like 44 e^{jh} >= 44 (1 + jh)) sum to at most
+ * alpha gamma e^-44 / 44. Terms dropped below e^-800 add nothing in double. exp within one ulp (the project's standing
+ * assumption), 1 + 16 eps.
+ */
+function burrRuleError(alpha: number, gamma: number, th: number, a: number, h: number, absInt: number): number {
+  const chi = gamma * (th + a);
+  const logM = chi <= Math.PI / 2 ? Math.log(absInt) : Math.max(Math.log(absInt), Math.log(alpha + 1) - (alpha + 1) * Math.log(Math.sin(chi)));
+  const q = (2 * Math.PI * a) / h;
+  const alias = (2 * Math.exp(logM - q)) / -Math.expm1(-q);
+  const ag = alpha * gamma;
+  const ends = Math.exp(-42) / gamma + Math.max((Math.exp(-42) * (1 + ag * h)) / ag, (ag * Math.exp(-44)) / 44);
+  return (alias + ends) * (1 + 16 * Number.EPSILON);
 }

@@ -3,13 +3,46 @@ export { burr } from "./burr";
 import { cumulantList, rawToCumulants, type Node } from "../node";
 import { arithmeticNodes, contourLogCfArithmetic, contourPhi, expSumArithmetic, fromPhi, type Contour } from "./cf-quadrature";
 import { lgamma, factorial } from "./special";
-import { NUMERIC_CF_ABS_ERROR, pareto } from "./numeric";
+import { pareto } from "./numeric";
 import { MAX_QUADRATURE_NODES, logFromSums, quadratureNodes, ruleRounding } from "./numeric-rule";
 import { shiftDamped } from "../damped-cf";
 import { paretoExpansion } from "./asymptotic";
 import { fromPhiDamped } from "../damped-cf";
 import { inverseGammaDist, inverseGaussianDist, type DirectLaw } from "./dist";
 import { KahanComplex } from "./kahan";
+
+/**
+ * The inverse gamma rule's own error at z = t + i beta (t, beta >= 0), every route: a trapezoidal rule of step h on a
+ * path Im s = p <= th with the strip |Im s - p| < a = 0.75 th about it. At s = v + i phi in the strip
+ * |exp(i z theta e^s)| <= 1 (psi + phi in (0, pi), see the paths) and int |exp(-alpha s - e^{-s})| dv / Gamma(alpha) =
+ * int e^{alpha w - e^w cos phi} dw / Gamma(alpha) = cos(phi)^-alpha (y = e^w cos phi; |phi| <= 1.75 th < pi/2): the
+ * aliasing error is at most 2M/(e^{2 pi a/h} - 1), M = cos(1.75 th)^-alpha (Trefethen & Weideman 2014, SIAM Review
+ * 56(3), thm 5.1). The ends: on the left (w = -v past w_c, e^{w_c} c = 44 + |lg| + alpha w_c' with w_c' the previous
+ * iterate, c = cos p in [cos th, 1]) the exponent alpha w - e^w c - lg is at most -44 + alpha (w_c - w_c') there and
+ * falls at rate at least e^{w_c} c - alpha >= 44 + |lg| - alpha (1 - w_c'); the terms beyond sum to at most e^{that
+ * exponent} / rate. Both extreme c are worked out (the ends move monotonically with c). On the right either the density
+ * e^{-alpha v - lg} is e^-44 there and its terms sum to at most e^-44 / alpha, or the decay is e^-44 and the terms (density
+ * at most its peak e^logM, decay exponent growing like 44 e^{jh}) sum to at most e^{logM - 44} / 44. exp within one ulp
+ * (the project's standing assumption), 1 + 16 eps.
+ */
+function inverseGammaRuleError(alpha: number, th: number, a: number, h: number, lg: number, c1: number): number {
+  const q = (2 * Math.PI * a) / h;
+  const alias = (2 * Math.exp(-alpha * Math.log(Math.cos(th + a)) - q)) / -Math.expm1(-q);
+  let left = 0;
+  for (const c of [c1, 1]) {
+    let w = 1;
+    let prev = 1;
+    for (let i = 0; i < 30; i++) {
+      prev = w;
+      w = Math.log((44 + Math.abs(lg) + alpha * Math.max(w, 0)) / c);
+    }
+    const rate = 44 + Math.abs(lg) + alpha * Math.max(prev, 0) - alpha;
+    left = Math.max(left, rate > 1 ? Math.exp(-44 + alpha * Math.abs(w - prev)) / rate : Infinity);
+  }
+  const peak = alpha * Math.log(alpha / Math.cos(th)) - alpha - lg;
+  const right = Math.max(Math.exp(-44) / alpha, Math.exp(peak - 44) / 44);
+  return (alias + left + right) * (1 + 16 * Number.EPSILON);
+}
 
 /**
  * Inverse gamma: X = theta / G, G ~ Gamma(alpha, 1); F(x) = Q(alpha, theta/x) (Loss Models app. A.2.3). With
@@ -138,7 +171,7 @@ export function inverseGamma(alpha: number, theta: number): Node {
     const av = Math.abs(v);
     termErrors += mod * (8 + alpha * av + Math.abs(lg) + 2 * (1 + av) * ex * (c1 + s1) + (2 * (2 + av) * (1 + cotTh)) / Math.E);
   }
-  const ruleError = Math.max(NUMERIC_CF_ABS_ERROR, 1e-16 + ruleRounding(nMaxIG, Math.pow(1 / c1, alpha) * 1.01, termErrors));
+  const ruleError = inverseGammaRuleError(alpha, th, strip, hD, lg, c1) + ruleRounding(nMaxIG, Math.pow(1 / c1, alpha) * 1.01, termErrors);
   const dampedSingle = fromPhiDamped(phiDamped);
   const damped = (beta: number, t: Float64Array, re: Float64Array, im: Float64Array) => (arithmeticNodes(t) ? batch(beta, t, re, im) : dampedSingle(beta, t, re, im));
   const raw = (r: number) => theta ** r * Math.exp(lgamma(alpha - r) - lg);
