@@ -3,8 +3,8 @@
  * for the hot loops that take many values (../lognormal-pair.ts). Centres z_k = -k h, h = 1/16, k = 0..640 (down to
  * -40, below which Phi < 2^-1074); about a centre
  *   Phi(z_k + t) = Phi(z_k) + phi(z_k) sum_{n>=0} D_n t^{n+1} / (n+1)!,  D_n = phi^(n)(z_k) / phi(z_k) = (-1)^n He_n(z_k)
- * (A&S 26.2.4, 22.7.15: D_{n+1} = -z D_n - n D_{n-1}). The coefficients are formed exactly in integers (16^n D_n) and
- * rounded three times. The rest after N terms is phi^(N+1)(xi) t^{N+2} / (N+2)! with xi between z_k and z_k + t, at
+ * (A&S 26.2.4, 22.7.15: D_{n+1} = -z D_n - n D_{n-1}). The coefficients come from that recurrence in floating point
+ * with a running bound on their error. The rest after N terms is phi^(N+1)(xi) t^{N+2} / (N+2)! with xi between z_k and z_k + t, at
  * most max_{|s - xi| = r} |phi(s)| |t|^{N+2} / ((N+2) r^{N+1}) by Cauchy's estimate, and |phi(a + i b)| = phi(a) e^{b^2/2}.
  * The table's Phi(z_k) come from a chain of such steps from Phi(-40) (below 2^-1074, taken as 0) upwards: every step
  * adds a positive increment, so the absolute errors only add up (no cancellation). Above 0, Phi(z) = 1 - Phi(-z).
@@ -32,25 +32,37 @@ interface Table {
 }
 let table: Table | null = null;
 
-/** a_0 .. a_N for centre -k h, each within 3.01 u of itself (numerator, denominator, quotient) */
-function coefficients(k: number, N: number): number[] {
-  const out: number[] = [];
-  const kb = BigInt(k);
-  let e0 = 1n; // 16^n D_n: E_{n+1} = k E_n - 256 n E_{n-1}
-  let e1 = kb;
-  let fact = 1n;
+/**
+ * a_0 .. a_N for centre -k h into a, and bounds on their errors into da: D_n by its recurrence in floating point
+ * (D_{n+1} = (k/16) D_n - n D_{n-1}, k/16 exact) with a running bound on the error (each step carries the errors of
+ * D_n and D_{n-1} times their factors, and u of the two products and the difference), divided by (n+1)! (exact up to
+ * 22!, then within (n - 21) u by its own products) with one more rounding
+ */
+function coefficients(k: number, N: number, a: Float64Array, da: Float64Array) {
+  const zk = k / 16;
+  let d0 = 1;
+  let d1 = zk;
+  let e0 = 0;
+  let e1 = 0;
+  let fact = 1;
   for (let n = 0; n <= N; n++) {
+    const dn = n === 0 ? d0 : d1;
     const en = n === 0 ? e0 : e1;
-    fact *= BigInt(n + 1);
-    // 16^n (n+1)! rounded once (the power of 2 scales exactly)
-    out.push(Number(en) / (Number(fact) * 16 ** n));
+    fact *= n + 1;
+    const fRel = n + 1 > 22 ? (n - 21) * U : 0;
+    a[n] = dn / fact;
+    da[n] = (1.01 * (en + Math.abs(dn) * (fRel + U))) / fact;
     if (n >= 1) {
-      const next = kb * e1 - 256n * BigInt(n) * e0;
+      const P = zk * d1;
+      const Q = n * d0;
+      const next = P - Q;
+      const eNext = zk * e1 + n * e0 + U * (Math.abs(P) + Math.abs(Q) + Math.abs(next));
+      d0 = d1;
       e0 = e1;
-      e1 = next;
+      d1 = next;
+      e1 = eNext;
     }
   }
-  return out;
 }
 
 const RADII = [0.25, 0.5, 1, 2, 4];
@@ -58,18 +70,39 @@ const RADII = [0.25, 0.5, 1, 2, 4];
  * the fewest terms N whose rest at |t| about centre z (<= 0) is below target, and that rest: Cauchy's bound
  * M_r |t|^{N+2} / ((N+2) r^{N+1}), M_r = e^{r^2/2} phi(max(0, |z| - |t| - r)), the best of a few radii r
  */
+const CUR = new Float64Array(RADII.length);
 function terms(z: number, t: number, target: number): { N: number; tail: number } {
-  const cur = RADII.map((r) => {
+  for (let j = 0; j < RADII.length; j++) {
+    const r = RADII[j];
     const m = Math.max(0, -z - t - r);
-    return (Math.exp(0.5 * r * r - 0.5 * m * m) / SQ2PI) * r * (t / r) ** 4 / 4;
-  });
+    const q = t / r;
+    CUR[j] = ((Math.exp(0.5 * r * r - 0.5 * m * m) / SQ2PI) * r * q * q * q * q) / 4;
+  }
   let N = 2;
   for (;;) {
-    const tail = 1.01 * Math.min(...cur);
+    let best = CUR[0];
+    for (let j = 1; j < RADII.length; j++) if (CUR[j] < best) best = CUR[j];
+    const tail = 1.01 * best;
     if (tail <= target || N >= 80) return { N, tail };
-    for (let j = 0; j < RADII.length; j++) cur[j] *= ((t / RADII[j]) * (N + 2)) / (N + 3);
+    for (let j = 0; j < RADII.length; j++) CUR[j] *= ((t / RADII[j]) * (N + 2)) / (N + 3);
     N++;
   }
+}
+
+/** t sum_{n<=N} a_n t^n, t sum |a_n| t^n and t sum da_n t^n into HS (a small function: the build's hot loop, compiled early) */
+const HS = new Float64Array(3);
+function horner(a: Float64Array, da: Float64Array, N: number, t: number) {
+  let s = 0;
+  let A = 0;
+  let dA = 0;
+  for (let n = N; n >= 0; n--) {
+    s = s * t + a[n];
+    A = A * t + Math.abs(a[n]);
+    dA = dA * t + da[n];
+  }
+  HS[0] = s * t;
+  HS[1] = A * t;
+  HS[2] = dA * t;
 }
 
 function build(): Table {
@@ -77,48 +110,52 @@ function build(): Table {
   const phi = new Float64Array(K + 1);
   const err = new Float64Array(K + 1);
   const off = new Int32Array(K + 2);
+  const a = new Float64Array(81);
+  const da = new Float64Array(81);
   for (let k = 0; k <= K; k++) phi[k] = Math.exp(-(k * k) / 512) / SQ2PI;
-  // the chain from z_K = -40 upwards: Phi(z_{k-1}) = Phi(z_k) + phi(z_k) S_k(h)
+  // the chain from z_K = -40 upwards, Phi(z_{k-1}) = Phi(z_k) + phi(z_k) S_k(h), and the cells' coefficients for
+  // |t| <= h/2 (a leading part of the chain step's)
   let P = 0;
   let e = TINY;
   Phi[K] = P;
   err[K] = e;
-  for (let k = K; k >= 1; k--) {
+  const cells: { N: number; tail: number; A: number; dA: number; coef: Float64Array }[] = [];
+  for (let k = K; k >= 0; k--) {
     const z = -k * H;
     // a target relative to Phi near z (at least phi(z) |z| / (z^2 + 1), Gordon 1941)
-    const { N, tail } = terms(z, H, 2 ** -62 * phi[k] * Math.min(1, Math.max(-z, 1) / (z * z + 1)));
-    const a = coefficients(k, N);
-    let s = 0;
-    let A = 0;
-    for (let n = N; n >= 0; n--) {
-      s = s * H + a[n];
-      A = A * H + Math.abs(a[n]);
-    }
-    s *= H;
-    A *= H;
-    const inc = phi[k] * s;
+    const target = 2 ** -62 * phi[k] * Math.min(1, Math.max(-z, 1) / (z * z + 1));
+    const step = terms(z, H, target);
+    const cell = terms(z, H / 2, target);
+    coefficients(k, Math.max(step.N, cell.N), a, da);
+    horner(a, da, cell.N, H / 2);
+    cells[k] = { N: cell.N, tail: cell.tail, A: HS[1], dA: HS[2], coef: a.slice(0, cell.N + 1) };
+    if (k === 0) break;
+    const N = step.N;
+    horner(a, da, N, H);
+    const sm = HS[0];
+    const As = HS[1];
+    const dAs = HS[2];
+    const inc = phi[k] * sm;
     P += inc;
     // the increment: phi's rounding, the coefficients', Horner's, the product's, the rest; the sum u
-    e += 1.01 * (phi[k] * (A * (3.01 * U + 2 * (N + 2) * U) + PHI_REL * Math.abs(s) + tail) + U * Math.abs(inc) + U * P) + TINY;
+    e += 1.01 * (phi[k] * (dAs + As * 2 * (N + 2) * U + PHI_REL * Math.abs(sm) + step.tail) + U * Math.abs(inc) + U * P) + TINY;
     Phi[k - 1] = P;
     err[k - 1] = e;
   }
-  // the cells' coefficients and bounds for |t| <= h/2
-  const flat: number[] = [];
+  let total = 0;
+  for (let k = 0; k <= K; k++) total += cells[k].N + 1;
+  const coef = new Float64Array(total);
+  let at = 0;
   for (let k = 0; k <= K; k++) {
-    const z = -k * H;
-    off[k] = flat.length;
-    const { N, tail } = terms(z, H / 2, 2 ** -62 * phi[k] * Math.min(1, Math.max(-z, 1) / (z * z + 1)));
-    const a = coefficients(k, N);
-    let A = 0;
-    for (let n = N; n >= 0; n--) A = A * (H / 2) + Math.abs(a[n]);
-    A *= H / 2;
-    flat.push(...a);
+    const c = cells[k];
+    off[k] = at;
+    coef.set(c.coef, at);
+    at += c.N + 1;
     // the table value's error; the sum's (coefficients, Horner, phi, the product); the rest; the final sum u
-    err[k] = 1.01 * (err[k] + phi[k] * (A * (3.01 * U + (2 * N + 4) * U + PHI_REL) + tail) + U * (Phi[k] + phi[k] * A)) + TINY;
+    err[k] = 1.01 * (err[k] + phi[k] * (c.dA + c.A * ((2 * c.N + 4) * U + PHI_REL) + c.tail) + U * (Phi[k] + phi[k] * c.A)) + TINY;
   }
-  off[K + 1] = flat.length;
-  return { Phi, phi, err, coef: Float64Array.from(flat), off };
+  off[K + 1] = at;
+  return { Phi, phi, err, coef, off };
 }
 
 /** Phi(z) into `out` (reused) with a bound on its absolute error */
