@@ -38,8 +38,9 @@ export interface RaySet {
   cIm: Float64Array;
   /** y_j = e^{v_j}, ascending: term j at tau is c_j exp(-tau y_j) */
   e: Float64Array;
-  /** log |c_j| and the direction of c_j */
+  /** log |c_j| (and its largest value) and the direction of c_j */
   lc: Float64Array;
+  lcMax: number;
   cosP: Float64Array;
   sinP: Float64Array;
   /** the rule's error (aliasing, ends, rounding) for every tau >= T */
@@ -80,7 +81,7 @@ export function raySet(p: number, q: number, sign: number, lB: number, eLB: numb
   const cosP = new Float64Array(n);
   const sinP = new Float64Array(n);
   let round = 0;
-  let absSum = 0;
+  let lcMax = -Infinity;
   for (let j = 0; j < n; j++) {
     const v = vHi - j * h;
     const y = Math.exp(v);
@@ -109,7 +110,7 @@ export function raySet(p: number, q: number, sign: number, lB: number, eLB: numb
     const xs = 1 - A / B;
     const lw = xs > x0 ? Math.log(B) - xs : Math.log(A + x0 * B) - x0;
     round += Math.exp(lmag + lw);
-    absSum += Math.exp(lmag - 745);
+    if (lmag > lcMax) lcMax = lmag;
   }
   const logF = -p * Math.log(T) - lB;
   const lgp = lgamma(p);
@@ -117,8 +118,8 @@ export function raySet(p: number, q: number, sign: number, lB: number, eLB: numb
   const alias = (2 * Math.exp(logM - 40 - Math.max(0, Lc))) / (1 - Math.exp(-40));
   const low = Math.exp(p * vLo - lB + (qp / 2) * Math.log1p(Math.exp(2 * vLo))) * (1 / p + h);
   const high = Math.exp(logF + p * Math.log(E) - E + (qp / 2) * Math.log1p((E * E) / (T * T))) / (E - p - qp);
-  // the per-tau sum leaves out the terms past tau y = 745 (each below |c_j| e^-745)
-  return { cRe, cIm, e, lc, cosP, sinP, bound: alias + low + high + 1.01 * U * round + absSum };
+  // the per-tau sum stops where tau y_j - max log |c| passes 745: every term left out is below e^-745 < 2^-1074
+  return { cRe, cIm, e, lc, cosP, sinP, lcMax, bound: alias + low + high + 1.01 * U * round + n * Number.MIN_VALUE };
 }
 
 /**

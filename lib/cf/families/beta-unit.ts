@@ -78,7 +78,8 @@ export function betaUnit(alpha: number, beta: number, batchAllowance: number) {
     sumIm = 0;
     for (let j = 0; j < r.e.length; j++) {
       const x = tau * r.e[j];
-      if (x > 745) break;
+      // y ascending: past here every term is below e^-745
+      if (x - r.lcMax > 745) break;
       const d = Math.exp(r.lc[j] - x);
       const yr = r.cosP[j] * d - cr;
       const tr = sumRe + yr;
