@@ -6,6 +6,7 @@
  * along a line in the strip (Trefethen & Weideman 2014, SIAM Review 56(3), thm 5.1).
  */
 import { lgamma } from "./special";
+import { checkDeadline } from "../deadline";
 
 const U = Number.EPSILON / 2;
 const LOG2 = Math.LN2;
@@ -83,6 +84,8 @@ export function raySet(p: number, q: number, sign: number, lB: number, eLB: numb
   let round = 0;
   let lcMax = -Infinity;
   for (let j = 0; j < n; j++) {
+    // long rules (large shapes) check the deadline every 2^16 nodes
+    if ((j & 65535) === 65535) checkDeadline("beta-cf");
     const v = vHi - j * h;
     const y = Math.exp(v);
     const u = sign * y; // 1 + i u
@@ -147,6 +150,7 @@ export function lineSet(alpha: number, beta: number, lB: number, eLB: number, T:
   const x = new Float64Array(n);
   let round = 0;
   for (let j = 0; j < n; j++) {
+    if ((j & 65535) === 65535) checkDeadline("beta-cf");
     const s = sLo + j * h;
     // log x = -log(1 + e^{-s}), log(1 - x) = -log(1 + e^{s})
     const lx = s < 0 ? s - Math.log1p(Math.exp(s)) : -Math.log1p(Math.exp(-s));
