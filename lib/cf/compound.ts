@@ -1,7 +1,7 @@
 import type { Node, NodeKind } from "./node";
-import { commonStep, onLattice, panjer, powerTable, restep, convolveTables } from "./lattice";
+import { commonStep } from "./lattice";
+import { compoundTable, pgfAt } from "./compound-table";
 import type { LatticeTable } from "./types";
-import { checkDeadline } from "./deadline";
 import { compoundDamped } from "./damped-cf";
 import { GAMMA_ORDER, KERNEL_ORDER, compoundSeries, kernelsOfSeries, type GammaKernel, type TransformSeries } from "./damped-kernels";
 import { layerCompoundAtoms, layerCompoundJumps, type LayerCompoundAtoms } from "./layer-compound";
@@ -321,91 +321,7 @@ function compoundSupport(n: readonly [number, number], x: readonly [number, numb
   return [Math.min(...c), Math.max(...c)];
 }
 
-/** P_N(z) for real z in [0, 1]. */
-export function pgfAt(N: Node, z: number): number {
-  if (z === 0) return N.p0 ?? 0;
-  const re = new Float64Array(1);
-  const im = new Float64Array(1);
-  N.countCgf!(Float64Array.of(Math.log(z)), Float64Array.of(0), re, im);
-  return Math.exp(re[0]);
-}
-
-function compoundTable(N: Node, X: Node, kind: { step: number }, maxLength: number, S: Node): LatticeTable | null {
-  const g = kind.step;
-  if (g === 0) return { origin: 0, step: 1, p: Float64Array.of(1), tailMass: 0 };
-  // length from the compound's cumulants: mean + 40 sd in steps, capped
-  const k = S.cumulants(2);
-  const mean = k[0] ?? 0;
-  const sd = Math.sqrt(Math.max(k[1] ?? 0, 0));
-  let len = Math.ceil((mean + 40 * sd) / g) + 64;
-  len = Math.min(maxLength, Math.max(len, 1));
-  // g_k depends on the severity only up to index k, so a severity table truncated beyond len is exact here
-  const xt = X.table!(len + 1);
-  if (!xt) return null;
-  const r = restep(xt, g);
-  const m = Math.round(r.origin / g);
-  if (m < 0 || !onLattice(r.origin, g)) return null;
-  // a severity table cut short by its own tail (xt.tailMass) only lowers the computed masses; 1 - sum reports it
-  const sev = new Float64Array(Math.min(m + r.p.length, len + 1));
-  const cut = Math.max(0, sev.length - m);
-  if (cut > 0) sev.set(r.p.subarray(0, cut), m);
-  if (N.kind.type === "lattice" && N.kind.step === 0) {
-    // a fixed count k: the k-fold power
-    const kk = N.kind.origin;
-    if (kk === 0) return { origin: 0, step: g, p: Float64Array.of(1), tailMass: 0 };
-    const pw = powerTable({ origin: 0, step: g, p: sev, tailMass: 0 }, kk, len);
-    let s = 0;
-    for (let i = 0; i < pw.p.length; i++) s += pw.p[i];
-    return { origin: 0, step: g, p: pw.p, tailMass: Math.max(0, 1 - s) };
-  }
-  // binomial-type counts (a < 0) make the recursion unstable (Panjer & Wang 1993, On the stability of recursive
-  // formulas): rounding grows along the table (a Bernoulli count gave a table summing to 1.001 with mass beyond
-  // the largest possible total); their finite count table takes the direct sum below instead
-  if (N.panjer && N.panjer.a >= 0) {
-    if (len * sev.length <= 4e8) {
-      const p = panjer({ a: N.panjer.a, b: N.panjer.b, c1: N.panjer.c1, pgf: (z) => pgfAt(N, z) }, sev, len);
-      if (p) {
-        let s = 0;
-        for (let i = 0; i < p.length; i++) s += p[i];
-        return { origin: 0, step: g, p, tailMass: Math.max(0, 1 - s) };
-      }
-      // P(S = 0) underflows (large expected counts): run the recursion for the count divided into 2^m equal
-      // independent parts and take the 2^m-fold power (Loss Models, aggregate loss chapter; recalled from memory)
-      if (N.divide) {
-        for (let m = 2; m <= 2 ** 30; m *= 2) {
-          const part = N.divide(m);
-          if (part.pgf(sev[0]) > 1e-200) {
-            const q = panjer(part, sev, len);
-            if (!q) break;
-            const pw = powerTable({ origin: 0, step: g, p: q, tailMass: 0 }, m, len);
-            let s = 0;
-            for (let i = 0; i < pw.p.length; i++) s += pw.p[i];
-            return { origin: 0, step: g, p: pw.p, tailMass: Math.max(0, 1 - s) };
-          }
-        }
-      }
-    }
-  }
-  // count with a short table (its own dropped tail below 1e-16, carried into tailMass): sum_k P(N=k) X^{*k}
-  const nt = N.table?.(4097);
-  if (nt && nt.tailMass <= 1e-16 && nt.p.length <= 4096 && nt.origin >= 0 && nt.step === 1 && Number.isInteger(nt.origin)) {
-    const out = new Float64Array(len);
-    const sevTab: LatticeTable = { origin: 0, step: g, p: sev, tailMass: 0 };
-    let cur: LatticeTable = { origin: 0, step: g, p: Float64Array.of(1), tailMass: 0 };
-    const kmax = nt.origin + nt.p.length - 1;
-    for (let kk = 0; kk <= kmax; kk++) {
-      checkDeadline("compound-table");
-      const w = kk >= nt.origin ? nt.p[kk - nt.origin] : 0;
-      if (w > 0) for (let i = 0; i < cur.p.length && i < len; i++) out[i] += w * cur.p[i];
-      if (kk < kmax) cur = convolveTables([cur, sevTab], len);
-    }
-    let s = 0;
-    for (let i = 0; i < len; i++) s += out[i];
-    return { origin: 0, step: g, p: out, tailMass: Math.max(0, 1 - s) };
-  }
-  return null;
-}
-
+export { pgfAt };
 
 /** terms of the count's table summed by countDerivTail (past them s^{M-1} E N, negligible where the bound is used: s small) */
 const DERIV_TERMS = 32;

@@ -253,42 +253,4 @@ export function powerTable(t: LatticeTable, n: number, maxLength = MAX_LATTICE):
   return { origin: n * t.origin, step: t.step, p, tailMass: Math.max(0, inMass ** n - sum(p)) };
 }
 
-export interface PanjerCount {
-  /** (a, b, 0) class: P(N=k) = (a + b/k) P(N=k-1) */
-  a: number;
-  b: number;
-  /** (a, b, 1) class: P(N=k) = (a + b/k) P(N=k-1) from k = 2 on; c1 = P(N=1) - (a + b) P(N=0) (0 or absent for (a, b, 0)) */
-  c1?: number;
-  /** P_N(z) at real z in [0, 1] */
-  pgf(z: number): number;
-}
-
-/**
- * Panjer recursion for a compound sum S = X_1 + ... + X_N with N in the (a, b, 0) class and X on 0, h, 2h, ...:
- * g_0 = P_N(f_0), g_k = (1/(1 - a f_0)) sum_{j=1}^{k} (a + b j/k) f_j g_{k-j} (Klugman, Panjer & Willmot, Loss Models,
- * chapter on aggregate loss models, recalled from memory). Runs to `length` entries; cost length * len(f).
- * For the (a, b, 1) class the term c1 f_k joins the sum (Loss Models, (a, b, 1) recursion, recalled from memory).
- * Returns null when g_0 underflows (very large expected counts), where the recursion cannot start; g_0 = 0 is
- * exact (not an underflow) for an (a, b, 1) count with P(N = 0) = 0 and f_0 = 0.
- */
-export function panjer(count: PanjerCount, f: Float64Array, length: number): Float64Array | null {
-  const { a, b } = count;
-  const f0 = f[0];
-  const g = new Float64Array(length);
-  g[0] = count.pgf(f0);
-  const c1 = count.c1 ?? 0;
-  if (!(g[0] > 1e-280) && !(c1 !== 0 && g[0] === 0 && f0 === 0)) return null;
-  const c = 1 / (1 - a * f0);
-  const Lf = f.length;
-  for (let k = 1; k < length; k++) {
-    // O(length * support) work: the deadline is checked every 1024 entries
-    if ((k & 1023) === 0) checkDeadline("panjer");
-    let s = 0;
-    const jmax = Math.min(k, Lf - 1);
-    const bk = b / k;
-    for (let j = 1; j <= jmax; j++) s += (a + bk * j) * f[j] * g[k - j];
-    if (c1 !== 0 && k < Lf) s += c1 * f[k];
-    g[k] = c * s;
-  }
-  return g;
-}
+export { panjer, type PanjerCount } from "./panjer";

@@ -40,7 +40,14 @@ export interface Node {
   /** a bound on |P_N'(z)| over the disc |z - z0| <= d (|z| <= 1) given |P_N(z0)|, where the count has one (Poisson) */
   countSlopeNear?(absPgf: number, d: number): number;
   /** (a, b, 0) class membership: P(N=k) = (a + b/k) P(N=k-1), k >= 1 (Loss Models, (a, b, 0) class; recalled from memory) */
-  panjer?: { a: number; b: number; p0: number; c1?: number };
+  panjer?: {
+    a: number;
+    b: number;
+    p0: number;
+    c1?: number;
+    /** bounds on the stored values' errors: a, b and p0 relative, c1 absolute (./panjer.ts) */
+    err?: { a: number; b: number; p0: number; c1: number };
+  };
   /** infinitely divisible (a, b, 0) counts: the (a, b, 0) law whose m-fold sum is this one, with its pgf */
   divide?: (m: number) => { a: number; b: number; pgf: (z: number) => number };
   /** P(N = 0) for laws on 0,1,2,... */

@@ -70,7 +70,8 @@ export function logarithmic(p: number): Node {
       }
       unwrapFrom(im, nearestZero(wr, wi));
     },
-    panjer: { a: p, b: -p, p0: 0, c1: p1 },
+    // a = p and b = -p exactly; p1 within 2 eps (above)
+    panjer: { a: p, b: -p, p0: 0, c1: p1, err: { a: 0, b: 0, p0: 0, c1: 2.02 * Number.EPSILON * p1 } },
     p0: 0,
   };
 }
@@ -146,7 +147,29 @@ export function zeroModified(base: Node, p0M: number, oneMinusP0: number): Node 
     },
     // (a, b, 1): P(M = k) = (a + b/k) P(M = k-1) for k >= 2; c1 = p1M - (a + b) p0M with p1M = beta P(N = 1) and
     // P(N = 1) = (a + b) p0 + c1 of the base (c1 = 0 for an (a, b, 0) base; the logarithmic base has p0 = 0)
-    panjer: pan ? { a: pan.a, b: pan.b, p0: p0M, c1: beta * ((pan.a + pan.b) * p0 + (pan.c1 ?? 0)) - (pan.a + pan.b) * p0M } : undefined,
+    panjer: pan ? zeroModifiedPanjer(pan, p0, p0M, beta) : undefined,
     p0: p0M,
   };
+}
+
+/**
+ * The (a, b, 1) recursion of the zero-modified law: a and b the base's, P(M = 0) = p0M (exact, as given), c1 = beta ((a + b)
+ * p0 + c1_base) - (a + b) p0M, with the bound on its error: a + b within u of itself and a's and b's errors, p0 within
+ * its own, beta within 3.5 eps (above), each product, sum and difference one rounding (Higham, Accuracy and Stability of
+ * Numerical Algorithms, 2nd ed., sec. 3.1, first order; the factor 1.01 covers the second).
+ */
+function zeroModifiedPanjer(pan: NonNullable<Node["panjer"]>, p0: number, p0M: number, beta: number): NonNullable<Node["panjer"]> {
+  const U = Number.EPSILON / 2;
+  const A = pan.a + pan.b;
+  const X = A * p0 + (pan.c1 ?? 0);
+  const c1 = beta * X - A * p0M;
+  const out: NonNullable<Node["panjer"]> = { a: pan.a, b: pan.b, p0: p0M, c1 };
+  const e = pan.err;
+  if (!e) return out;
+  const eA = U * Math.abs(A) + e.a * Math.abs(pan.a) + e.b * Math.abs(pan.b);
+  const eAp0 = eA * p0 + Math.abs(A * p0) * (e.p0 + U);
+  const eX = eAp0 + e.c1 + U * Math.abs(X);
+  const eY = eA * p0M + U * Math.abs(A * p0M);
+  const c1Err = (Math.abs(beta * X) * (3.5 * Number.EPSILON + U) + Math.abs(beta) * eX + eY + U * Math.abs(c1)) * 1.01;
+  return { ...out, err: { a: e.a, b: e.b, p0: 0, c1: c1Err } };
 }

@@ -242,7 +242,8 @@ export function poisson(lambda: number): Node {
     },
     // P_N'(z) = lambda P_N(z) and P_N(z) = P_N(z0) e^{lambda (z - z0)}, so |P_N'(z)| <= lambda |P_N(z0)| e^{lambda d}
     countSlopeNear: (absPgf, d) => lambda * absPgf * Math.exp(lambda * d),
-    panjer: { a: 0, b: lambda, p0: Math.exp(-lambda) },
+    // a = 0 and b = lambda exactly; e^-lambda within an ulp
+    panjer: { a: 0, b: lambda, p0: Math.exp(-lambda), err: { a: 0, b: 0, p0: EPS, c1: 0 } },
     // |P'(z) / P(z)| = lambda on the unit disc (P(z) = e^{lambda (z - 1)})
     cgfSlope: lambda,
     divide: (m) => ({ a: 0, b: lambda / m, pgf: (z) => Math.exp((lambda / m) * (z - 1)) }),
@@ -303,7 +304,8 @@ export function negativeBinomial(r: number, p: number): Node {
         cgfAt(e * Math.cos(wi[k]), e * Math.sin(wi[k]), k, re, im);
       }
     },
-    panjer: { a: q, b: (r - 1) * q, p0: p ** r },
+    // a = fl(1 - p) within u; b = fl(fl(r - 1) q) within 3u (and q's u); p^r within pow's ulp
+    panjer: { a: q, b: (r - 1) * q, p0: p ** r, err: { a: EPS / 2, b: 2.02 * EPS, p0: EPS, c1: 0 } },
     divide: (m) => ({ a: q, b: (r / m - 1) * q, pgf: (z) => Math.exp((r / m) * (lp - Math.log1p(-q * z))) }),
     p0: p ** r,
   };
