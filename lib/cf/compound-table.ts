@@ -38,14 +38,16 @@ export function compoundTable(N: Node, X: Node, kind: { step: number }, maxLengt
   const sev = new Float64Array(Math.min(m + r.p.length, len + 1));
   const cut = Math.max(0, sev.length - m);
   if (cut > 0) sev.set(r.p.subarray(0, cut), m);
+  const sevRound = roundOf(xt) ?? undefined;
   if (N.kind.type === "lattice" && N.kind.step === 0) {
     // a fixed count k: the k-fold power
     const kk = N.kind.origin;
     if (kk === 0) return { origin: 0, step: g, p: Float64Array.of(1), tailMass: 0 };
-    const pw = powerTable({ origin: 0, step: g, p: sev, tailMass: 0 }, kk, len);
+    // (the severity's rounding bound, where known, is carried through the powers)
+    const pw = powerTable({ origin: 0, step: g, p: sev, tailMass: 0, ...(sevRound ? { round: sevRound } : {}) }, kk, len);
     let s = 0;
     for (let i = 0; i < pw.p.length; i++) s += pw.p[i];
-    return { origin: 0, step: g, p: pw.p, tailMass: Math.max(0, 1 - s) };
+    return { origin: 0, step: g, p: pw.p, tailMass: Math.max(0, 1 - s), ...(pw.round ? { round: pw.round } : {}) };
   }
   // binomial-type counts (a < 0) make the recursion unstable (Panjer & Wang 1993, On the stability of recursive
   // formulas): rounding grows along the table (a Bernoulli count gave a table summing to 1.001 with mass beyond
@@ -81,18 +83,37 @@ export function compoundTable(N: Node, X: Node, kind: { step: number }, maxLengt
   const nt = N.table?.(4097);
   if (nt && nt.tailMass <= 1e-16 && nt.p.length <= 4096 && nt.origin >= 0 && nt.step === 1 && Number.isInteger(nt.origin)) {
     const out = new Float64Array(len);
-    const sevTab: LatticeTable = { origin: 0, step: g, p: sev, tailMass: 0 };
+    const sevTab: LatticeTable = { origin: 0, step: g, p: sev, tailMass: 0, ...(sevRound ? { round: sevRound } : {}) };
+    // the rounding: each cur's bound (carried by convolveTables), weighted, and the weights' own (nt's l1 bound: each
+    // cur's entries and mass at most 1 + its l1), each entry a sum of at most kmax + 1 products (gamma_{kmax+2})
+    const nr = roundOf(nt);
+    let rp = 0;
+    let rl = 0;
+    let known = !!nr && !!sevRound;
     let cur: LatticeTable = { origin: 0, step: g, p: Float64Array.of(1), tailMass: 0 };
     const kmax = nt.origin + nt.p.length - 1;
     for (let kk = 0; kk <= kmax; kk++) {
       checkDeadline("compound-table");
       const w = kk >= nt.origin ? nt.p[kk - nt.origin] : 0;
-      if (w > 0) for (let i = 0; i < cur.p.length && i < len; i++) out[i] += w * cur.p[i];
+      if (w > 0) {
+        for (let i = 0; i < cur.p.length && i < len; i++) out[i] += w * cur.p[i];
+        const cr = roundOf(cur);
+        if (cr && nr) {
+          rp += w * cr.pmf + nr.l1 * cr.pmf;
+          rl += w * cr.l1 + nr.l1 * cr.l1;
+        } else known = false;
+      }
       if (kk < kmax) cur = convolveTables([cur, sevTab], len);
     }
     let s = 0;
-    for (let i = 0; i < len; i++) s += out[i];
-    return { origin: 0, step: g, p: out, tailMass: Math.max(0, 1 - s) };
+    let mx = 0;
+    for (let i = 0; i < len; i++) {
+      s += out[i];
+      if (out[i] > mx) mx = out[i];
+    }
+    const G = ((kmax + 2) * U) / (1 - (kmax + 2) * U);
+    const round = known ? { pmf: (rp + nr!.l1 + G * mx) * (1 + 8 * U), l1: (rl + nr!.l1 + G * s * (1 + len * 2 * U)) * (1 + 8 * U) } : undefined;
+    return { origin: 0, step: g, p: out, tailMass: Math.max(0, 1 - s), ...(round ? { round } : {}) };
   }
   return null;
 }

@@ -202,7 +202,7 @@ function discretisedNode(N: Node, X: Node, o: DiscretiseOptions): Node {
       if (t.p.length <= maxLength) return { ...t, p: t.p.slice(), cdfError: b.cdfError };
       let tail = t.tailMass;
       for (let i = maxLength; i < t.p.length; i++) tail += t.p[i];
-      return { origin: 0, step: h, p: t.p.slice(0, maxLength), tailMass: tail, cdfError: b.cdfError };
+      return { origin: 0, step: h, p: t.p.slice(0, maxLength), tailMass: tail, cdfError: b.cdfError, ...(t.round ? { round: t.round } : {}) };
     },
   };
   delete node.countCgf;

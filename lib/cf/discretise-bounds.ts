@@ -4,6 +4,10 @@ import type { Node } from "./node";
 import type { DiscretisedCompound, SeverityLaw } from "./discretise";
 import { getFftPlan } from "./fftplan";
 import { unwrapFrom } from "./complex";
+import { cumulantEst } from "./cumulant-bounds";
+import { compoundFftRound, countSlope, fftL, logRouteError, norm2 } from "./compound-fft-round";
+
+const U = Number.EPSILON / 2;
 
 /** The count is Poisson (its Panjer a = 0, not zero-modified). */
 export const isPoissonCount = (N: Node): boolean => !!N.panjer && N.panjer.a === 0 && N.panjer.c1 === undefined && N.panjer.b > 0;
@@ -27,11 +31,12 @@ export function bennettTail(x: number, v: number, b: number): number {
  * the last point goes to that point when rounding down and is left out (sent to infinity) when rounding up.
  */
 function boundingSeverities(sev: SeverityLaw, h: number, len: number) {
-  // each value with its bound where the law gives them (cdfE, sfE), else the closed form taken within a stated 1e-13
+  // each value with its bound where the law gives them (cdfE, sfE); a law without them has no derived bound here
+  // (every claim law that reaches this route, a per-claim layer, has them: ./layer.ts)
   let worst = 0;
   const withErr = (f: (x: number) => number, fE: ((x: number) => { v: number; e: number }) | undefined) => (x: number) => {
     if (!fE) {
-      worst = Math.max(worst, 1e-13);
+      worst = Infinity;
       return f(x);
     }
     const r = fE(x);
@@ -100,10 +105,18 @@ const EPS_D = Number.EPSILON;
  * from one transform of P_N(phi_f) + i P_N(phi_g) (common practice for pairs of real sequences; Press et al.,
  * Numerical Recipes, FFT of two real functions simultaneously). Two transforms of size M instead of four.
  */
-function compoundPairByFft(N: Node, f: Float64Array, g: Float64Array, M: number): [Float64Array, Float64Array] {
+export function compoundPairByFft(N: Node, f: Float64Array, g: Float64Array, M: number): [Float64Array, Float64Array, number] {
   const plan = getFftPlan(M);
   const a = plan.a;
   const b = plan.b;
+  // the rounding bound (./compound-fft-round.ts): each transform value within dZ (the pair's inputs f + i g: their
+  // absolute sum at most sum f + sum g), so each severity's (Z_j + conj Z_{M-j}) / 2 and its partner within dZ too
+  const nf = norm2(f);
+  const ng = norm2(g);
+  const dZ = fftL(M) * (nf.sum + ng.sum) * (1 + 2 * U);
+  let local2 = 0;
+  let out2 = 0;
+  const slope = countSlope(N, Math.max(0, Math.max(nf.sum, ng.sum) - 1));
   a.fill(0);
   for (let k = 0; k < f.length; k++) a[2 * (k % M)] += f[k];
   for (let k = 0; k < g.length; k++) a[2 * (k % M) + 1] += g[k];
@@ -111,9 +124,14 @@ function compoundPairByFft(N: Node, f: Float64Array, g: Float64Array, M: number)
   const H = M / 2;
   const n = H + 1;
   // P_N(phi) + i P_N(psi) at index j and, for 0 < j < H, the same of the conjugates at M - j
-  const put = (j: number, cf: number, df: number, cg: number, dg: number) => {
+  const put = (j: number, cf: number, df: number, cg: number, dg: number, e: number) => {
     a[2 * j] = cf - dg;
     a[2 * j + 1] = df + cg;
+    // the two values' errors and the sum's and difference's roundings
+    const ej = e + U * (Math.abs(cf) + Math.abs(dg) + Math.abs(df) + Math.abs(cg));
+    const w = j > 0 && j < H ? 2 : 1;
+    local2 += w * ej * ej;
+    out2 += w * (a[2 * j] * a[2 * j] + a[2 * j + 1] * a[2 * j + 1]);
     if (j > 0 && j < H) {
       a[2 * (M - j)] = cf + dg;
       a[2 * (M - j) + 1] = cg - df;
@@ -123,6 +141,7 @@ function compoundPairByFft(N: Node, f: Float64Array, g: Float64Array, M: number)
   if (pan && pan.a === 0 && pan.c1 === undefined && pan.b > 0) {
     // Poisson: P_N(z) = exp(lambda (z - 1)) straight from phi, without its logarithm
     const lam = pan.b;
+    // P_N = e^{lambda (z - 1)} is entire, |P_N'| = lambda |P_N|: within lambda |P_N(z^)| e^{lambda dZ} of the segment
     for (let j = 0; j <= H; j++) {
       const m = (M - j) % M;
       const zr = b[2 * j];
@@ -134,7 +153,14 @@ function compoundPairByFft(N: Node, f: Float64Array, g: Float64Array, M: number)
       const af = (-lam * (zi - yi)) / 2;
       const eg = Math.exp(lam * ((zi + yi) / 2 - 1));
       const ag = (-lam * (yr - zr)) / 2;
-      put(j, ef * Math.cos(af), ef * Math.sin(af), eg * Math.cos(ag), eg * Math.sin(ag));
+      // each value: the mean of the pair (u), minus 1 (u), times lambda (u), exp (2u); the angle (2u), cos and sin (2u
+      // each, on the value) and the products (u): relative to the value
+      const xf = (zr + yr) / 2;
+      const xg = (zi + yi) / 2;
+      const rf = EPS_D * (lam * (Math.abs(xf) + Math.abs(xf - 1)) + Math.abs(lam * (xf - 1)) + 2 * Math.abs(af) + 4) * 1.01;
+      const rg = EPS_D * (lam * (Math.abs(xg) + Math.abs(xg - 1)) + Math.abs(lam * (xg - 1)) + 2 * Math.abs(ag) + 4) * 1.01;
+      const e = (lam * Math.exp(lam * dZ) * dZ * (ef * (1 + rf) + eg * (1 + rg)) + ef * rf + eg * rg) * (1 + 4 * U);
+      put(j, ef * Math.cos(af), ef * Math.sin(af), eg * Math.cos(ag), eg * Math.sin(ag), e);
     }
   } else {
     const wr = new Float64Array(2 * n);
@@ -164,10 +190,12 @@ function compoundPairByFft(N: Node, f: Float64Array, g: Float64Array, M: number)
     unwrapFrom(wig, 0, n);
     N.countCgf!(wr.subarray(0, n), wi.subarray(0, n), re.subarray(0, n), im.subarray(0, n));
     N.countCgf!(wr.subarray(n), wig, re.subarray(n), im.subarray(n));
+    const ulps = 8 * Math.max(1, N.nodes);
     for (let j = 0; j <= H; j++) {
       const mf = Math.exp(re[j]);
       const mg = Math.exp(re[n + j]);
-      put(j, mf * Math.cos(im[j]), mf * Math.sin(im[j]), mg * Math.cos(im[n + j]), mg * Math.sin(im[n + j]));
+      const e = logRouteError(wr[j], wi[j], re[j], im[j], ulps, dZ, slope, N.cgfSlope) + logRouteError(wr[n + j], wig[j], re[n + j], im[n + j], ulps, dZ, slope, N.cgfSlope);
+      put(j, mf * Math.cos(im[j]), mf * Math.sin(im[j]), mg * Math.cos(im[n + j]), mg * Math.sin(im[n + j]), e);
     }
   }
   plan.forward(a, b);
@@ -177,7 +205,7 @@ function compoundPairByFft(N: Node, f: Float64Array, g: Float64Array, M: number)
     pf[k] = b[2 * k] / M;
     pg[k] = b[2 * k + 1] / M;
   }
-  return [pf, pg];
+  return [pf, pg, compoundFftRound(M, local2, out2 * (1 + 4 * M * EPS_D))];
 }
 
 /** The compound of a claim law with its own cdf (a per-claim layer): the bounding pair by FFT, and their 50/50 mixture as the table. */
@@ -185,7 +213,7 @@ export function boundedCompound(N: Node, sev: SeverityLaw, h: number, K: number)
   const M = 2 * K;
   const len0 = K + 1;
   const { down, up, lost, kolmogorov } = boundingSeverities(sev, h, len0);
-  const [pd, pu] = compoundPairByFft(N, down, up, M);
+  const [pd, pu, rPair] = compoundPairByFft(N, down, up, M);
   let aliasing = 0;
   let ad = 0;
   for (let k = K; k < M; k++) {
@@ -193,7 +221,10 @@ export function boundedCompound(N: Node, sev: SeverityLaw, h: number, K: number)
     ad += Math.abs(pd[k]);
   }
   aliasing = Math.max(aliasing, ad);
-  const nMean = N.cumulants(1)[0] ?? Infinity;
+  // E N raised (and lowered, for meanLow) by its derived bound (the count's running-error cumulants)
+  const nE = cumulantEst(N, 1)[0];
+  const nMean = nE && Number.isFinite(nE.e) ? (nE.v + nE.e) * (1 + 2 * U) : Infinity;
+  const nMeanLow = nE && Number.isFinite(nE.e) ? (nE.v - nE.e) * (1 - 2 * U) : Infinity;
   if (sev.tailIndex <= 1 && lost > 0) {
     // P(S >= x) <= E[N] P(X >= x / N) is not available in closed form here: bound P(S >= M h) <= P(N > n) + n P(X >= M h / n)
     // with n the count's 1 - 1e-12 point from its table when it has one
@@ -225,10 +256,14 @@ export function boundedCompound(N: Node, sev: SeverityLaw, h: number, K: number)
   if (isPoissonCount(N) && lost === 0 && sev.bound !== undefined && Number.isFinite(sev.bound)) {
     // the mass that wraps round is at most P(S_up >= M h) (S_down <= S_up), bounded by Bennett's inequality: the
     // rounded-up claims stay in [0, bound + h], E S_up = lambda E X_up, Var S_up = lambda E X_up^2
-    const v = nMean * mu2 * h * h * (1 + 1e-12);
-    aliasing = Math.max(aliasing, bennettTail(M * h - nMean * mu * h * (1 + 1e-12), v, sev.bound + h));
+    // (mu and mu2 sums of non-negative terms within gamma_n; the products a few roundings more)
+    const v = nMean * mu2 * h * h * (1 + 4 * EPS_D * up.length);
+    aliasing = Math.max(aliasing, bennettTail(M * h - nMean * mu * h * (1 + 4 * EPS_D * up.length), v, sev.bound + h));
   }
-  const round = 64 * Number.EPSILON * Math.sqrt(M);
+  // the rounding (./compound-fft-round.ts): each bounding compound's first K entries within sqrt(K) ||d(pd + i pu)||_2 in
+  // sum, the table (their clipped mean) within the same, and the running sums of K terms within gamma_K of 1 + that
+  const gK = (K * EPS_D) / (2 - K * EPS_D);
+  const round = (2 * Math.sqrt(K) * rPair + 4 * gK * (1 + Math.sqrt(K) * rPair)) * (1 + 4 * EPS_D);
   const slack = 2 * aliasing + nMean * (lost + kolmogorov) + round;
   let cd = 0;
   let cu = 0;
@@ -242,8 +277,8 @@ export function boundedCompound(N: Node, sev: SeverityLaw, h: number, K: number)
     cu += pu[k];
     half = Math.max(half, (cd - cu) / 2);
   }
-  const mean = sev.mean;
-  const meanLow = Number.isFinite(nMean) ? nMean * md * h * (1 - 4 * EPS_D * down.length) : null;
+  const meanE = sev.meanE;
+  const meanLow = Number.isFinite(nMeanLow) ? nMeanLow * md * h * (1 - 4 * EPS_D * down.length) : null;
   const meanHigh = !Number.isFinite(nMean)
     ? null
     : lost === 0
@@ -252,8 +287,9 @@ export function boundedCompound(N: Node, sev: SeverityLaw, h: number, K: number)
         ? // X_up <= X + h: below the last point the rounded-up cells exactly, beyond it E[X; X > R] (tailMean: an upper
           // bound) + h P(X > R)
           nMean * (mu * h * (1 + 4 * EPS_D * up.length) + sev.tailMean((len0 - 1) * h) + h * lost) * (1 + 4 * EPS_D)
-        : mean !== undefined && Number.isFinite(mean)
-          ? nMean * (mean * (1 + 1e-11) + h)
+        : meanE && Number.isFinite(meanE.e)
+          ? // E X_up <= E X + h, E X within its derived bound (the claim law's layer moment, ./layer.ts)
+            nMean * (meanE.v + meanE.e + h) * (1 + 4 * EPS_D)
           : null;
   return {
     table: { origin: 0, step: h, p: out, tailMass: Math.max(0, 1 - kept) },

@@ -1,5 +1,6 @@
 import type { Node } from "./node";
 import type { LatticeTable } from "./types";
+import { compoundFftRound, countSlope, fftL, logRouteError, norm2 } from "./compound-fft-round";
 import { getFftPlan } from "./fftplan";
 import { unwrapFrom } from "./complex";
 import { gaussLegendre } from "./quadrature";
@@ -34,6 +35,8 @@ export interface SeverityLaw {
   sfE?(x: number): { v: number; e: number };
   /** E[X] when it exists */
   mean?: number;
+  /** E[X] with a bound on its error, where derived (a per-claim layer's closed form) */
+  meanE?: { v: number; e: number };
   /** claims never exceed this (a per-claim layer with a limit) */
   bound?: number;
   /** an upper bound on E[X 1{X > x}] (derived; Infinity where none can be formed) */
@@ -138,7 +141,7 @@ export function discretiseSeverity(sev: SeverityLaw, h: number, len: number): { 
 }
 
 /** Scratch for one compound transform of size M. */
-interface Scratch {
+export interface Scratch {
   wr: Float64Array;
   wi: Float64Array;
   re: Float64Array;
@@ -150,8 +153,16 @@ interface Scratch {
  * p = IDFT( P_N(DFT f) ) on M points (Loss Models, aggregate losses by FFT; recalled from memory). Mass of S beyond
  * (M-1)h wraps round to the low indices (aliasing).
  */
-function compoundByFft(N: Node, f: Float64Array, M: number, s: Scratch): Float64Array {
+export function compoundByFft(N: Node, f: Float64Array, M: number, s: Scratch): { p: Float64Array; round: number } {
   const plan = getFftPlan(M);
+  // the rounding bound (./compound-fft-round.ts): each transform value within dZ, the generating function's slope
+  // (E N, where the masses sum past 1 a little more), each value's own evaluation error
+  const fin = norm2(f);
+  const slope = countSlope(N, Math.max(0, fin.sum - 1));
+  const dZ = fftL(M) * fin.sum * (1 + 2 * Number.EPSILON);
+  const ulps = 8 * Math.max(1, N.nodes);
+  let local2 = 0;
+  let out2 = 0;
   const a = plan.a;
   const b = plan.b;
   a.fill(0);
@@ -177,6 +188,10 @@ function compoundByFft(N: Node, f: Float64Array, M: number, s: Scratch): Float64
     const d = m * Math.sin(s.im[j]);
     a[2 * j] = c;
     a[2 * j + 1] = d;
+    const e = logRouteError(s.wr[j], s.wi[j], s.re[j], s.im[j], ulps, dZ, slope, N.cgfSlope);
+    const w = j > 0 && j < H ? 2 : 1;
+    local2 += w * e * e;
+    out2 += w * (c * c + d * d);
     if (j > 0 && j < H) {
       a[2 * (M - j)] = c;
       a[2 * (M - j) + 1] = -d;
@@ -185,7 +200,7 @@ function compoundByFft(N: Node, f: Float64Array, M: number, s: Scratch): Float64
   plan.forward(a, b);
   const p = new Float64Array(M);
   for (let k = 0; k < M; k++) p[k] = b[2 * k] / M;
-  return p;
+  return { p, round: compoundFftRound(M, local2, out2 * (1 + 4 * M * Number.EPSILON)) };
 }
 
 export interface DiscretisedCompound {
@@ -259,9 +274,9 @@ export function discretisedCompound(N: Node, sev: SeverityLaw, h: number, K: num
   const M = 2 * K;
   const { mp, down, up } = discretiseSeverity(sev, h, K + 1);
   const s: Scratch = { wr: new Float64Array(M), wi: new Float64Array(M), re: new Float64Array(M), im: new Float64Array(M) };
-  const p = compoundByFft(N, mp, M, s);
-  const pd = compoundByFft(N, down, M, s);
-  const pu = compoundByFft(N, up, M, s);
+  const { p, round: rp } = compoundByFft(N, mp, M, s);
+  const { p: pd, round: rd } = compoundByFft(N, down, M, s);
+  const { p: pu, round: ru } = compoundByFft(N, up, M, s);
   // wrapped mass P(S >= M h): bounded by the mass in the window's upper half when the tail is no heavier than
   // x^-1; for pareto tails with alpha <= 1, P(S >= x) <= sum_n P(N=n) n P(X >= x/n) = E[N^(1+alpha)] (xm/x)^alpha
   // <= E[N^2]^((1+alpha)/2) (xm/x)^alpha (Jensen)
@@ -285,9 +300,14 @@ export function discretisedCompound(N: Node, sev: SeverityLaw, h: number, K: num
     // F and F_h both lie in [F_up, F_down]: |F_h - F| <= max(F_down - F_h, F_h - F_up)
     bracket = Math.max(bracket, cd - kept, kept - cu);
   }
-  const round = 64 * Number.EPSILON * Math.sqrt(M);
+  // the rounding (./compound-fft-round.ts): the table's entries (clipped at 0) within sqrt(K) ||dp||_2 in sum, once
+  // for the table and once in the bracket, the bracket's bounding compounds within theirs; the three running sums of K terms
+  // within gamma_K of the sums of |p| (at most 1 + their own bounds each)
+  const gK = (K * Number.EPSILON) / (2 - K * Number.EPSILON);
+  const round = (Math.sqrt(K) * (2 * rp + Math.max(rd, ru)) + 3 * gK * (1 + Math.sqrt(K) * (rp + rd + ru))) * (1 + 4 * Number.EPSILON);
   return {
-    table: { origin: 0, step: h, p: out, tailMass: Math.max(0, 1 - kept) },
+    // (its rounding is in cdfError: no further bound on the table itself)
+    table: { origin: 0, step: h, p: out, tailMass: Math.max(0, 1 - kept), round: { pmf: 0, l1: 0 } },
     cdfError: bracket + 2 * aliasing + round,
     bracket,
     aliasing,

@@ -241,15 +241,29 @@ export function powerTable(t: LatticeTable, n: number, maxLength = MAX_LATTICE):
   } else {
     let result: Float64Array | null = null;
     let base = truncate(t.p, maxLength);
+    // the rounding bounds follow each product (./table-rounding.ts), where the input's is known
+    let rr: TableRound | undefined;
+    let rb: TableRound | undefined = roundOf(t) ?? undefined;
+    const step = (x: Float64Array, y: Float64Array, rx: TableRound | undefined, ry: TableRound | undefined): [Float64Array, TableRound | undefined] => {
+      const c = convolve(x, y);
+      const kept = truncate(c, maxLength);
+      const r = rx && ry ? convolvedRound(x, y, rx, ry, convolveByFft(x.length, y.length), nextPowerOfTwo(x.length + y.length - 1), c, kept.length) : undefined;
+      return [kept, r];
+    };
     let e = n;
     while (e > 0) {
-      if (e & 1) result = result ? truncate(convolve(result, base), maxLength) : base.slice();
+      if (e & 1) {
+        if (result) [result, rr] = step(result, base, rr, rb);
+        else [result, rr] = [base.slice(), rb];
+      }
       e >>= 1;
-      if (e > 0) base = truncate(convolve(base, base), maxLength);
+      if (e > 0) [base, rb] = step(base, base, rb, rb);
     }
     p = result as Float64Array;
     if (p.length !== p.buffer.byteLength / 8) p = p.slice();
+    return { origin: n * t.origin, step: t.step, p, tailMass: Math.max(0, inMass ** n - sum(p)), ...(rr ? { round: rr } : {}) };
   }
+  // (the frequency-domain power carries no derived rounding bound yet: the table is offered without one)
   return { origin: n * t.origin, step: t.step, p, tailMass: Math.max(0, inMass ** n - sum(p)) };
 }
 

@@ -127,6 +127,7 @@ export function layerNode(X: Node, terms: Partial<LayerTerms>): Node {
     cdfE: (y) => (y < 0 ? { v: 0, e: 0 } : y >= c * l ? { v: 1, e: 0 } : cdfE(d + y / c)),
     sfE: (y) => (y < 0 ? { v: 1, e: 0 } : y >= c * l ? { v: 0, e: 0 } : sfE(d + y / c)),
     mean: mean ?? undefined,
+    ...(closed(1) ? { meanE: closed(1)! } : {}),
     ...(l < Infinity ? { bound: c * l } : {}),
     // an upper bound on E[Y 1{Y > y}]: with W = (X - d)_+ and b = y/c < l, E[Y; Y > y] = c (E min(W, l) - E min(W, b)) +
     // y P(X > d + b), the two limited means from the claim law's layer moments with their derived bounds, the sf taken

@@ -6,6 +6,7 @@ import { cumulantsToRaw, rawToCumulants } from "./node";
 import { cabs, nearestZero, sortedAnchor, unwrapFrom } from "./complex";
 import { mixKinds } from "./kinds";
 import { restep } from "./lattice";
+import { roundOf, type TableRound } from "./table-rounding";
 import type { LatticeTable } from "./types";
 import { collectNotes, carryApproximation, completeAtoms } from "./operators-shared";
 import { withCumulantErrors } from "./cumulant-bounds";
@@ -101,7 +102,7 @@ export function mixNode(ws: number[], cs: Node[]): Node {
         }
         tail += ws[j] * x.tailMass;
       });
-      return { origin: lo, step: g, p: out, tailMass: tail };
+      return { origin: lo, step: g, p: out, tailMass: tail, ...mixedRound(ws, tabs as LatticeTable[], out) };
     };
     carryApproximation(node, cs, ws);
   }
@@ -118,4 +119,32 @@ export function mixNode(ws: number[], cs: Node[]): Node {
     node.p0 = cs.reduce((s, c, j) => s + ws[j] * (c.p0 ?? 0), 0);
   }
   return node;
+}
+
+/**
+ * The rounding bound of a mixture's table (./table-rounding.ts) where every component's is known: each entry a sum of at
+ * most J products w_j p_jk (the weights as given are the law), within gamma_{J+1} of itself (Higham, Accuracy and
+ * Stability of Numerical Algorithms, 2nd ed., sec. 3.1, 4.2: non-negative terms), plus the components' own errors
+ * weighted: every entry within sum_j w_j pmf_j + gamma_{J+1} max out, the sum within sum_j w_j l1_j + gamma_{J+1} sum out.
+ */
+function mixedRound(ws: number[], tabs: LatticeTable[], out: Float64Array): { round?: TableRound } {
+  let pmf = 0;
+  let l1 = 0;
+  for (let j = 0; j < tabs.length; j++) {
+    const r = roundOf(tabs[j]);
+    if (!r) return {};
+    pmf += ws[j] * r.pmf;
+    l1 += ws[j] * r.l1;
+  }
+  const U = Number.EPSILON / 2;
+  const J = tabs.length + 1;
+  const g = (J * U) / (1 - J * U);
+  let mx = 0;
+  let sum = 0;
+  for (let k = 0; k < out.length; k++) {
+    if (out[k] > mx) mx = out[k];
+    sum += out[k];
+  }
+  const grow = 1 + (tabs.length + 4) * Number.EPSILON;
+  return { round: { pmf: (pmf + g * mx) * grow, l1: (l1 + g * sum * (1 + out.length * Number.EPSILON)) * grow } };
 }

@@ -346,7 +346,11 @@ export function binomialLattice(n: number, p: number, withTable = false): Compil
         q[k] = c * p ** k * (1 - p) ** (n - k);
         c = (c * (n - k)) / (k + 1);
       }
-      return { origin: 0, step: 1, p: q, tailMass: 0 };
+      // each entry's rounding (the table's derived bound; an exact table without one is left for the CF route): c by
+      // k products and k divisions of exact integers (2k u), p^k and (1 - p)^(n - k) by pow (an ulp each; 1 - p rounded,
+      // (n - k) u), the two products 2u: within (n + k + 8) u relative (Higham, Accuracy and Stability of Numerical
+      // Algorithms, 2nd ed., sec. 3.1; 1.01 covers the second order)
+      return { origin: 0, step: 1, p: q, tailMass: 0, pointRel: (k: number) => 1.01 * (n + k + 8) * (Number.EPSILON / 2) };
     },
   };
 }

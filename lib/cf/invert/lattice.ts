@@ -36,16 +36,19 @@ export function solveLattice(model: CompiledModel, origin: number, step: number,
   const notes: string[] = [];
   if (model.latticeTable) {
     const t = model.latticeTable(MAX_LATTICE);
-    if (t) {
+    // an exact table without a derived rounding bound is left for the CF route below (its bounds are derived); a
+    // discretised one cannot be (its model's CF is the continuous law's): its bounds are then infinite
+    const round = t ? tableRounding(t) : null;
+    if (t && (round || t.cdfError !== undefined)) {
       // A table built by discretising a continuous severity carries its own cdf error bound (cdfError); a cell's
       // mass is a difference of two cdf values, so it may be off by twice that.
       const disc = t.cdfError ?? 0;
-      const round = tableRounding(t);
-      const err = t.tailMass + round.pmf;
+      const r = round ?? { pmf: Infinity, cdf: Infinity };
+      const err = t.tailMass + r.pmf;
       return {
         table: t,
         errorPmf: err + 2 * disc,
-        errorCdf: t.tailMass + round.cdf + disc,
+        errorCdf: t.tailMass + r.cdf + disc,
         method: t.cdfError !== undefined ? "discretised" : "lattice-table",
         gridSize: t.p.length,
         notes,
@@ -270,17 +273,16 @@ function sumAbs(p: Float64Array): number {
 }
 
 /**
- * The rounding of a tabulated pmf and of its cumulative sums. A table with a derived rounding bound (../table-rounding.ts
- * roundOf: a recursion's per-point bounds, or bounds carried through convolutions) has every entry within its `pmf` and
- * every cdf or sf value within its `l1` plus the compensated sums' 2u + O(n u^2) of sum p (latticeCumulative; Higham,
- * Accuracy and Stability of Numerical Algorithms, 2nd ed., sec. 4.3), taken as 2 eps. Other tables (Panjer's recursion,
- * powers, mixtures) carry no derived bound yet: 4 eps sqrt(n) for the pmf and 8 eps sqrt(n) more for the cdf, a
- * rounding estimate (random-walk growth), not a bound.
+ * The rounding of a tabulated pmf and of its cumulative sums, where the table carries a derived bound (../table-rounding.ts
+ * roundOf: a recursion's per-point bounds, Panjer's running bound, or bounds carried through convolutions, powers and
+ * mixtures): every entry within its `pmf` and every cdf or sf value within its `l1` plus the compensated sums' 2u + O(n
+ * u^2) of sum p (latticeCumulative; Higham, Accuracy and Stability of Numerical Algorithms, 2nd ed., sec. 4.3), taken as
+ * 2 eps. null for a table without one (the caller does not use it as an exact table).
  */
-function tableRounding(t: LatticeTable): { pmf: number; cdf: number } {
+function tableRounding(t: LatticeTable): { pmf: number; cdf: number } | null {
   const n = t.p.length;
   const r = roundOf(t);
-  if (!r) return { pmf: 4 * Number.EPSILON * Math.sqrt(n), cdf: 12 * Number.EPSILON * Math.sqrt(n) };
+  if (!r) return null;
   let sum = 0;
   for (let k = 0; k < n; k++) sum += Math.max(t.p[k], 0);
   // (the sum of non-negative terms within n u of itself)
