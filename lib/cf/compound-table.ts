@@ -33,6 +33,8 @@ export function compoundTable(N: Node, X: Node, kind: { step: number }, maxLengt
   if (!xt) return null;
   const r = restep(xt, g);
   const m = Math.round(r.origin / g);
+  // (the severity's first entry sits at index m of sev; below it zeros)
+  const sevShift = m;
   if (m < 0 || !onLattice(r.origin, g)) return null;
   // a severity table cut short by its own tail (xt.tailMass) only lowers the computed masses; 1 - sum reports it
   const sev = new Float64Array(Math.min(m + r.p.length, len + 1));
@@ -67,13 +69,15 @@ export function compoundTable(N: Node, X: Node, kind: { step: number }, maxLengt
       if (N.divide) {
         for (let m = 2; m <= 2 ** 30; m *= 2) {
           const part = N.divide(m);
-          if (part.pgf(sev[0]) > 1e-200) {
-            const q = panjerRun(part, sev, len, null)?.g;
-            if (!q) break;
-            const pw = powerTable({ origin: 0, step: g, p: q, tailMass: 0 }, m, len);
+          const g0 = part.pgf(sev[0]);
+          if (g0 > 1e-200) {
+            const run = panjerRun(part, sev, len, partInputs(N, part, xt, sev, sevShift, g0));
+            if (!run) break;
+            const q: LatticeTable = { origin: 0, step: g, p: run.g, tailMass: 0, ...(run.err ? { round: roundOfErrors(run.err) } : {}) };
+            const pw = powerTable(q, m, len, true);
             let s = 0;
             for (let i = 0; i < pw.p.length; i++) s += pw.p[i];
-            return { origin: 0, step: g, p: pw.p, tailMass: Math.max(0, 1 - s) };
+            return { origin: 0, step: g, p: pw.p, tailMass: Math.max(0, 1 - s), ...(pw.round ? { round: pw.round } : {}) };
           }
         }
       }
@@ -126,6 +130,35 @@ export function compoundTable(N: Node, X: Node, kind: { step: number }, maxLengt
 function panjerInputs(N: Node, xt: LatticeTable, sev: Float64Array, shift: number, g0: number): PanjerInputErrors | null {
   const e = N.panjer?.err;
   if (!e) return null;
+  const fRel = severityRel(xt, sev, shift);
+  if (!fRel) return null;
+  const nt = N.table?.(MAX_LATTICE);
+  const g0Abs = nt ? pgfBound(nt, sev[0], fRel[0], g0) : Infinity;
+  if (!Number.isFinite(g0Abs)) return null;
+  return { aRel: e.a, bRel: e.b, c1Abs: e.c1, g0Abs, fRel };
+}
+
+/**
+ * The inputs' errors for a Poisson count divided into m parts (N.divide): a = 0 and b = lambda / m exact (m a power of
+ * 2), g_0 = e^{b (f_0 - 1)}: f_0 - 1 one rounding (none from 1/2 up, Sterbenz), the product one, exp an ulp, and f_0's
+ * own error times b f_0. null for other counts.
+ */
+function partInputs(N: Node, part: { a: number; b: number }, xt: LatticeTable, sev: Float64Array, shift: number, g0: number): PanjerInputErrors | null {
+  const pan = N.panjer;
+  if (!pan || pan.a !== 0 || pan.c1 !== undefined || part.a !== 0 || !N.panjer?.err) return null;
+  const fRel = severityRel(xt, sev, shift);
+  if (!fRel) return null;
+  const z = sev[0];
+  const arg = Math.abs(part.b * (z - 1));
+  const g0Abs = g0 * (arg * (z >= 0.5 ? 1 : 2) * U + part.b * z * fRel[0] + 2 * U) * 1.01;
+  return { aRel: 0, bRel: 0, c1Abs: 0, g0Abs, fRel };
+}
+
+/**
+ * Each severity entry's relative error bound (relative to the stored value), non-decreasing: from the table's pointRel
+ * (itself non-decreasing, relative to the exact value), 0 for an exact table; null where neither is known.
+ */
+function severityRel(xt: LatticeTable, sev: Float64Array, shift: number): Float64Array | null {
   // sev[shift + q ms] = xt.p[q] (restepped onto the compound's step, ms >= 1), zeros elsewhere (exact): q <= j - shift
   const fRel = new Float64Array(sev.length);
   const rel = xt.pointRel;
@@ -141,10 +174,7 @@ function panjerInputs(N: Node, xt: LatticeTable, sev: Float64Array, shift: numbe
       fRel[j] = (r / (1 - r)) * (1 + U);
     }
   }
-  const nt = N.table?.(MAX_LATTICE);
-  const g0Abs = nt ? pgfBound(nt, sev[0], fRel[0], g0) : Infinity;
-  if (!Number.isFinite(g0Abs)) return null;
-  return { aRel: e.a, bRel: e.b, c1Abs: e.c1, g0Abs, fRel };
+  return fRel;
 }
 
 /**

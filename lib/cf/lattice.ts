@@ -170,18 +170,23 @@ export function convolveTables(tables: LatticeTable[], maxLength = MAX_LATTICE):
 }
 
 /**
- * n-fold convolution power of a lattice table. Small results by repeated squaring (direct or FFT convolutions);
- * large ones by one zero-padded FFT with the pointwise power |z|^n e^{i n arg z} (no wrap-around since the padded
- * size covers the full support n (L-1) + 1). Mass (sum p)^n is conserved to rounding.
+ * n-fold convolution power of a lattice table. Small results by repeated squaring (direct or FFT convolutions), which
+ * carry the input's rounding bound through each product (./table-rounding.ts convolvedRound); large ones by one
+ * zero-padded FFT with the pointwise power |z|^n e^{i n arg z} (no wrap-around since the padded size covers the full
+ * support n (L-1) + 1), without a derived bound (the table is then not used as exact), unless `bounded` asks for the
+ * squaring route. Mass (sum p)^n is conserved to rounding.
  */
-export function powerTable(t: LatticeTable, n: number, maxLength = MAX_LATTICE): LatticeTable {
+export function powerTable(t: LatticeTable, n: number, maxLength = MAX_LATTICE, bounded = false): LatticeTable {
   if (!Number.isInteger(n) || n < 1) throw new CfError("invalid_model", "/repeat", `repeat must be a whole number >= 1, got ${n}.`);
   const L = t.p.length;
   const full = n * (L - 1) + 1;
   const inMass = sum(t.p) + t.tailMass;
   if (L === 1) return { origin: n * t.origin, step: t.step, p: Float64Array.of(t.p[0] ** n), tailMass: Math.max(0, inMass ** n - t.p[0] ** n) };
   let p: Float64Array;
-  if (full > 8192 && full <= 2 ** 22 && n > 8) {
+  // `bounded`: a table with a derived rounding bound takes repeated squaring, whose bounds follow each product; the
+  // frequency-domain power (more accurate in the far tails, but without a derived bound yet) serves the others
+  const inRound = roundOf(t);
+  if (full > 8192 && full <= 2 ** 22 && n > 8 && !(bounded && inRound)) {
     const N = nextPowerOfTwo(full);
     const plan = getFftPlan(N);
     const z = plan.a;
@@ -243,7 +248,7 @@ export function powerTable(t: LatticeTable, n: number, maxLength = MAX_LATTICE):
     let base = truncate(t.p, maxLength);
     // the rounding bounds follow each product (./table-rounding.ts), where the input's is known
     let rr: TableRound | undefined;
-    let rb: TableRound | undefined = roundOf(t) ?? undefined;
+    let rb: TableRound | undefined = inRound ?? undefined;
     const step = (x: Float64Array, y: Float64Array, rx: TableRound | undefined, ry: TableRound | undefined): [Float64Array, TableRound | undefined] => {
       const c = convolve(x, y);
       const kept = truncate(c, maxLength);

@@ -12,6 +12,7 @@ interface Case {
   severity: { kind: "geometric" | "poisson"; th?: number; mu?: number };
   pmf: string[];
   xerr: string;
+  from?: number;
 }
 const fx: { cases: Case[] } = JSON.parse(readFileSync("tests/fixtures/panjer-bounds/panjer-bounds.json", "utf8"));
 
@@ -32,7 +33,8 @@ function modelOf(c: Case): unknown {
 
 describe("Panjer table rounding bound vs mpmath compound pmfs (tests/fixtures/panjer-bounds)", () => {
   afterAll(() => console.log("bound / actual:", JSON.stringify(worst)));
-  it.each(fx.cases.map((c) => [c.name, c] as const))("%s: every entry within round.pmf, the sum within round.l1", (_n, c) => {
+  // (cases from index 0; the window about a large count's mode is checked in table-rounding-bounds.test.ts)
+  it.each(fx.cases.filter((c) => c.from === undefined).map((c) => [c.name, c] as const))("%s: every entry within round.pmf, the sum within round.l1", (_n, c) => {
     const t = compile(modelOf(c)).latticeTable!(4096)!;
     // a dropped bound fails here: the table must carry its derived rounding
     expect(t.round, "derived rounding bound").toBeDefined();

@@ -11,7 +11,7 @@ import { boundedCompound, compoundPairByFft } from "@/lib/cf/discretise-bounds";
 import type { Node } from "@/lib/cf/node";
 import { record, worst } from "./model-assert";
 
-const fx: { cases: { name: string; pmf: string[]; xerr: string }[] } = JSON.parse(readFileSync("tests/fixtures/panjer-bounds/panjer-bounds.json", "utf8"));
+const fx: { cases: { name: string; pmf: string[]; xerr: string; from?: number }[] } = JSON.parse(readFileSync("tests/fixtures/panjer-bounds/panjer-bounds.json", "utf8"));
 const ref = (name: string) => {
   const c = fx.cases.find((x) => x.name === name)!;
   return { pmf: c.pmf.map(Number), xerr: Number(c.xerr) };
@@ -94,6 +94,19 @@ describe("tables through powers, mixtures and counts carry derived rounding boun
       if (d > t.round!.pmf + xerr) throw new Error(`k=${k}: ${d} > ${t.round!.pmf}`);
     }
     record("power pmf", t.round!.pmf / Math.max(w, 2 ** -53 * Math.max(...pmf)));
+  });
+  it("poisson(800)-geometric(0.4) (P(S = 0) underflows: the count in 2^m parts, Panjer's recursion for one, repeated squaring) about its mode", () => {
+    const t = compile({ compound: { count: { family: "poisson", lambda: 800 }, each: geo(0.4) } }).latticeTable!(1 << 14)!;
+    expect(t.round, "derived rounding bound").toBeDefined();
+    const c = fx.cases.find((x) => x.name === "poisson(800)-geometric(0.4)")! as { pmf: string[]; xerr: string; from: number };
+    const pmf = c.pmf.map(Number);
+    let w = 0;
+    for (let i = 0; i < pmf.length; i++) {
+      const d = Math.abs(t.p[c.from + i] - pmf[i]);
+      w = Math.max(w, d);
+      if (d > t.round!.pmf + Number(c.xerr)) throw new Error(`k=${c.from + i}: ${d} > ${t.round!.pmf}`);
+    }
+    record("divided count pmf", t.round!.pmf / Math.max(w, 2 ** -53 * Math.max(...pmf)));
   });
   it("mixture 0.3 poisson(3)-geometric(0.4) + 0.7 negative_binomial(0.5, 0.3)-geometric(0.6): weights add pointwise (common practice)", () => {
     const t = compile({
