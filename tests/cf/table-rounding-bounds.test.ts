@@ -108,6 +108,37 @@ describe("tables through powers, mixtures and counts carry derived rounding boun
     }
     record("divided count pmf", t.round!.pmf / Math.max(w, 2 ** -53 * Math.max(...pmf)));
   });
+  it("bulk tables of counts whose P(N = 0) underflows: poisson(900) vs mpmath, binomial(3000, 1/4) vs exact rationals", () => {
+    const t = compile({ family: "poisson", lambda: 900 }).latticeTable!(1 << 16)!;
+    expect(t.round, "poisson: derived bound").toBeDefined();
+    const c = fx.cases.find((x) => x.name === "poisson(900)")! as { pmf: string[]; xerr: string; from: number };
+    let w = 0;
+    for (let i = 0; i < c.pmf.length; i++) {
+      const want = Number(c.pmf[i]);
+      const d = Math.abs(t.p[c.from + i - t.origin] - want);
+      w = Math.max(w, d);
+      if (d > t.round!.pmf + Number(c.xerr)) throw new Error(`poisson(900) k=${c.from + i}: ${d} > ${t.round!.pmf}`);
+    }
+    record("bulk poisson(900) pmf", t.round!.pmf / w);
+    // binomial(3000, 1/4): P(k) = C(n, k) 3^(n-k) / 4^n exactly (common practice), each rounded once to a double
+    const b = compile({ family: "binomial", n: 3000, p: 0.25 }).latticeTable!(1 << 16)!;
+    expect(b.round, "binomial: derived bound").toBeDefined();
+    let cnk = 1n;
+    const total = 4n ** 3000n;
+    let wb = 0;
+    for (let k = 0; k <= 3000; k++) {
+      if (k > 0) cnk = (cnk * BigInt(3000 - k + 1)) / BigInt(k);
+      const i = k - b.origin;
+      if (i < 0 || i >= b.p.length) continue;
+      // (scaled by 2^1000: every kept entry exceeds 2^-900, so the quotient carries 100+ bits before its one rounding)
+      const want = Number(((cnk * 3n ** BigInt(3000 - k)) << 1000n) / total) / 2 ** 1000;
+      const d = Math.abs(b.p[i] - want);
+      expect(want > 0 && Number.isFinite(d), `binomial k=${k}: a finite reference`).toBe(true);
+      wb = Math.max(wb, d);
+      if (d > b.round!.pmf + 2 ** -53 * want) throw new Error(`binomial k=${k}: ${d} > ${b.round!.pmf}`);
+    }
+    record("bulk binomial(3000, 1/4) pmf", b.round!.pmf / wb);
+  });
   it("mixture 0.3 poisson(3)-geometric(0.4) + 0.7 negative_binomial(0.5, 0.3)-geometric(0.6): weights add pointwise (common practice)", () => {
     const t = compile({
       mix: [

@@ -4,6 +4,7 @@ import { pointDamped } from "../damped-cf";
 import { pointSeries } from "../damped-kernels";
 import { nearestZero, unwrapFrom } from "../complex";
 import type { LatticeTable } from "../types";
+import { bulkRound } from "./bulk-bound";
 
 const ALL = Infinity;
 const LIGHT = { left: ALL, right: ALL };
@@ -169,9 +170,10 @@ function binomialAtoms(n: number, p: number) {
 /**
  * Table of a law on 0, 1, 2, ... over its bulk [mean - 20 sd, mean + 20 sd] (beyond it the mass is far below 1e-40
  * for these near-Gaussian laws) from an accurate pmf, for laws whose P(N = 0) underflows; the origin is the first
- * index kept and tailMass = 1 - kept mass (both ends).
+ * index kept. With the law's ratio p_{k+1} / p_k (non-increasing, within relRatio of itself) the table carries a bound
+ * derived a posteriori (./bulk-bound.ts) and tailMass is its bound on the mass left out; else 1 - kept mass.
  */
-function bulkTable(mean: number, sd: number, top: number, maxLength: number, pmf: (k: number) => number): LatticeTable {
+function bulkTable(mean: number, sd: number, top: number, maxLength: number, pmf: (k: number) => number, ratio?: (k: number) => number, relRatio = 0): LatticeTable {
   const k0 = Math.max(0, Math.floor(mean - 20 * sd - 40));
   const k1 = Math.min(top, Math.ceil(mean + 20 * sd + 40), k0 + maxLength - 1);
   const out = new Float64Array(k1 - k0 + 1);
@@ -180,6 +182,8 @@ function bulkTable(mean: number, sd: number, top: number, maxLength: number, pmf
     out[k - k0] = pmf(k);
     s += out[k - k0];
   }
+  const b = ratio ? bulkRound(out, k0, ratio, relRatio, k0 === 0, k1 === top) : null;
+  if (b) return { origin: k0, step: 1, p: out, tailMass: b.tail, round: b.round };
   return { origin: k0, step: 1, p: out, tailMass: Math.max(0, 1 - s) };
 }
 
@@ -187,7 +191,8 @@ function bulkTable(mean: number, sd: number, top: number, maxLength: number, pmf
 function binomialTable(n: number, p: number, maxLength: number): LatticeTable {
   const q = 1 - p;
   const start = q ** n;
-  if (!(start > 1e-280 && n <= 1e5)) return bulkTable(n * p, Math.sqrt(n * p * q), n, maxLength, (k) => binomialPmf(k, n, p));
+  // ratio (n - k) / (k + 1) p / q: q = 1 - p (u), p / q (u), the integer quotient (u), the product (u)
+  if (!(start > 1e-280 && n <= 1e5)) return bulkTable(n * p, Math.sqrt(n * p * q), n, maxLength, (k) => binomialPmf(k, n, p), (k) => ((n - k) / (k + 1)) * (p / q), 2.02 * EPS);
   const len = Math.min(n + 1, maxLength);
   const out = new Float64Array(len);
   out[0] = start;
@@ -224,7 +229,8 @@ export function poisson(lambda: number): Node {
       // e^-lambda within an ulp; each step lambda/k and the product, two roundings
       if (lambda < 700) return tabulate(maxLength, Math.ceil(lambda), Math.exp(-lambda), (k) => lambda / k, 2 * EPS, EPS);
       // large mean: saddle-point pmf over the bulk
-      return bulkTable(lambda, Math.sqrt(lambda), Infinity, maxLength, (k) => poissonPmf(k, lambda));
+      // ratio lambda / (k + 1): one division
+      return bulkTable(lambda, Math.sqrt(lambda), Infinity, maxLength, (k) => poissonPmf(k, lambda), (k) => lambda / (k + 1), 0.51 * EPS);
     },
     countCgf(wr, wi, re, im) {
       for (let k = 0; k < wr.length; k++) {
@@ -294,7 +300,8 @@ export function negativeBinomial(r: number, p: number): Node {
       // value (r + k <= (1 + 1/r)(r + k - 1): at most 2 past k = 1, whose excess goes in rel0), three more roundings
       if (start > 1e-280)
         return tabulate(maxLength, Math.ceil((r * q) / p), start, (k) => (q * (r + k - 1)) / k, (1.5 * Math.abs(r * lp) + 2 + (1 + 1 / r) / 2) * EPS, 4 * EPS);
-      return bulkTable((r * q) / p, Math.sqrt(r * q) / p, Infinity, maxLength, (k) => negativeBinomialPmf(k, r, p));
+      // ratio q (r + k) / (k + 1) (non-increasing for r >= 1): q = 1 - p (u), r + k (u), the product and the division
+      return bulkTable((r * q) / p, Math.sqrt(r * q) / p, Infinity, maxLength, (k) => negativeBinomialPmf(k, r, p), r >= 1 ? (k) => (q * (r + k)) / (k + 1) : undefined, 2.02 * EPS);
     },
     // |P'(z) / P(z)| = r q / |1 - q z| <= r q / p on the unit disc, q = 1 - p
     cgfSlope: (r * (1 - p)) / p,
