@@ -78,21 +78,21 @@ export function compoundFftRound(M: number, local2: number, out2: number): numbe
  */
 export function localSlope(global: number, c: number | undefined, m: number, d: number): number {
   if (c === undefined || !Number.isFinite(c)) return global;
-  return Math.min(global, c * m * Math.exp(c * d) * (1 + 4 * U));
+  // (e^x <= 1 + 2x for 0 <= x <= 1)
+  const cd = c * d;
+  return Math.min(global, c * m * (cd <= 1 ? 1 + 2 * cd : Math.exp(cd)) * (1 + 4 * U));
 }
 
 /**
  * The error of a value fl(exp(K)) (cos, sin) from a log-generating function K computed at w = log z, |z| <= 1, the
  * point z off the exact one by dZ (the forward transform): w's own rounding (the log of |Z|^2 / 2: 1.5 u + 2 u |Re w|;
  * atan2 and the unwrapping: (3 |Im w| + 2 pi) u) moves z by |z| |dw| more; the value moves by the local slope times
- * that; the count's K within `ulps` units of rounding relative to 1 + |K| (the convention the CF route applies to every
+ * that (|z| <= 1 taken for |z|); the count's K within `ulps` units of rounding relative to 1 + |K| (the convention the CF route applies to every
  * model's log-CF, ./invert/part.ts cfRelError), exp, cos and sin of K adding |Re K| u + u and |Im K| u + 2u.
  */
-export function logRouteError(wr: number, wi: number, kr: number, ki: number, ulps: number, dZ: number, global: number, c: number | undefined): number {
-  const z = Math.exp(wr);
-  // (a point whose |Z|^2 underflowed to 0 stands at e^-745: 1e-323 more)
-  const dz = dZ + z * (1.5 + 2 * Math.abs(wr) + 3 * Math.abs(wi) + 2 * Math.PI) * U * 1.01 + 1e-323;
-  const m = Math.exp(kr);
+export function logRouteError(wr: number, wi: number, kr: number, ki: number, m: number, ulps: number, dZ: number, global: number, c: number | undefined): number {
+  // (|z| <= 1; a point whose |Z|^2 underflowed to 0 stands at e^-745: 1e-323 more; m = exp(K) as the caller formed it)
+  const dz = dZ + (1.5 + 2 * Math.abs(wr) + 3 * Math.abs(wi) + 2 * Math.PI) * U * 1.01 + 1e-323;
   const rel = Number.EPSILON * ((ulps + 1) * (1 + Math.abs(kr) + Math.abs(ki)) + 3);
   return (localSlope(global, c, m * (1 + rel), dz) * dz + m * rel) * 1.01;
 }

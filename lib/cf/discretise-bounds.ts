@@ -194,7 +194,7 @@ export function compoundPairByFft(N: Node, f: Float64Array, g: Float64Array, M: 
     for (let j = 0; j <= H; j++) {
       const mf = Math.exp(re[j]);
       const mg = Math.exp(re[n + j]);
-      const e = logRouteError(wr[j], wi[j], re[j], im[j], ulps, dZ, slope, N.cgfSlope) + logRouteError(wr[n + j], wig[j], re[n + j], im[n + j], ulps, dZ, slope, N.cgfSlope);
+      const e = logRouteError(wr[j], wi[j], re[j], im[j], mf, ulps, dZ, slope, N.cgfSlope) + logRouteError(wr[n + j], wig[j], re[n + j], im[n + j], mg, ulps, dZ, slope, N.cgfSlope);
       put(j, mf * Math.cos(im[j]), mf * Math.sin(im[j]), mg * Math.cos(im[n + j]), mg * Math.sin(im[n + j]), e);
     }
   }

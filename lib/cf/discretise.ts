@@ -188,7 +188,7 @@ export function compoundByFft(N: Node, f: Float64Array, M: number, s: Scratch): 
     const d = m * Math.sin(s.im[j]);
     a[2 * j] = c;
     a[2 * j + 1] = d;
-    const e = logRouteError(s.wr[j], s.wi[j], s.re[j], s.im[j], ulps, dZ, slope, N.cgfSlope);
+    const e = logRouteError(s.wr[j], s.wi[j], s.re[j], s.im[j], m, ulps, dZ, slope, N.cgfSlope);
     const w = j > 0 && j < H ? 2 : 1;
     local2 += w * e * e;
     out2 += w * (c * c + d * d);
