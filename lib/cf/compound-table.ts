@@ -7,6 +7,7 @@ import { roundOf, type TableRound } from "./table-rounding";
 import type { LatticeTable } from "./types";
 import { checkDeadline } from "./deadline";
 import { MAX_LATTICE } from "./limits";
+import { countSlope } from "./compound-fft-round";
 
 const U = Number.EPSILON / 2;
 
@@ -62,7 +63,9 @@ export function compoundTable(N: Node, X: Node, kind: { step: number }, maxLengt
         const p = run.g;
         let s = 0;
         for (let i = 0; i < p.length; i++) s += p[i];
-        return { origin: 0, step: g, p, tailMass: Math.max(0, 1 - s), ...(run.err ? { round: roundOfErrors(run.err) } : {}) };
+        const shift = run.err ? severityShift(N, xt, sev) : null;
+        const round = run.err && shift ? roundOfErrors(run.err) : null;
+        return { origin: 0, step: g, p, tailMass: Math.max(0, 1 - s), ...(round && shift ? { round: { pmf: round.pmf + shift.pmf, l1: round.l1 + shift.l1 } } : {}) };
       }
       // P(S = 0) underflows (large expected counts): run the recursion for the count divided into 2^m equal
       // independent parts and take the 2^m-fold power (Loss Models, aggregate loss chapter; recalled from memory)
@@ -73,7 +76,9 @@ export function compoundTable(N: Node, X: Node, kind: { step: number }, maxLengt
           if (g0 > 1e-200) {
             const run = panjerRun(part, sev, len, partInputs(N, part, xt, sev, sevShift, g0));
             if (!run) break;
-            const q: LatticeTable = { origin: 0, step: g, p: run.g, tailMass: 0, ...(run.err ? { round: roundOfErrors(run.err) } : {}) };
+            // (the severity's own errors only through pointRel or none here: the part's slope is not the count's)
+            const sh = run.err ? severityShift(N, xt, sev) : null;
+            const q: LatticeTable = { origin: 0, step: g, p: run.g, tailMass: 0, ...(run.err && sh && sh.pmf === 0 && sh.l1 === 0 ? { round: roundOfErrors(run.err) } : {}) };
             const pw = powerTable(q, m, len, true);
             let s = 0;
             for (let i = 0; i < pw.p.length; i++) s += pw.p[i];
@@ -163,8 +168,8 @@ function severityRel(xt: LatticeTable, sev: Float64Array, shift: number): Float6
   const fRel = new Float64Array(sev.length);
   const rel = xt.pointRel;
   if (!rel) {
-    const r = roundOf(xt);
-    if (!r || r.pmf !== 0 || r.l1 !== 0) return null;
+    // (a table with only absolute bounds: the recursion is bounded against the stored entries, severityShift adds theirs)
+    if (!roundOf(xt)) return null;
   } else {
     for (let j = 0; j < sev.length; j++) {
       // pointRel is non-decreasing in the table's index, which is at most j - shift; relative to the exact value, so
@@ -175,6 +180,25 @@ function severityRel(xt: LatticeTable, sev: Float64Array, shift: number): Float6
     }
   }
   return fRel;
+}
+
+/**
+ * The compound's move from a severity table known only to absolute bounds (no pointRel): the recursion is bounded
+ * against the stored entries, and the compound map is Lipschitz, ||f^{*n} - f'^{*n}|| <= n ||f - f'|| max(||f||_1,
+ * ||f'||_1)^{n-1} in the sup norm and in l1 (Young's inequality), so the table moves by at most P_N'(max mass) times
+ * the severity's bounds: E N where both masses are at most 1 (countSlope: E N + 2 delta E N^2 past it). 0 for a table
+ * with pointRel (its entries' errors are in the recursion's own bound); null without a count slope.
+ */
+function severityShift(N: Node, xt: LatticeTable, sev: Float64Array): TableRound | null {
+  if (xt.pointRel) return { pmf: 0, l1: 0 };
+  const r = roundOf(xt);
+  if (!r) return null;
+  if (r.pmf === 0 && r.l1 === 0) return r;
+  let mass = 0;
+  for (let j = 0; j < sev.length; j++) mass += sev[j];
+  const slope = countSlope(N, Math.max(0, mass * (1 + sev.length * Number.EPSILON) + r.l1 - 1));
+  if (!Number.isFinite(slope)) return null;
+  return { pmf: slope * r.pmf * (1 + 4 * U), l1: slope * r.l1 * (1 + 4 * U) };
 }
 
 /**

@@ -178,3 +178,30 @@ describe("tables through powers, mixtures and counts carry derived rounding boun
     }
   });
 });
+
+describe("a compound whose claim table has only absolute bounds (a sum of two lattices)", () => {
+  it("poisson(2) claims of die + die (2..12) vs exact-rational brute force of the definition: every entry within the bound", () => {
+    // claims X = D1 + D2, two fair dice (its table from a convolution: absolute bounds only); the compound's pmf by
+    // the definition sum_n P(N = n) X^{*n} with X^{*n} = 2n dice, exact rationals (common practice), and Poisson
+    // weights e^-2 2^n / n! rounded once each (their rounding counted in the tolerance below)
+    const die = { lattice: { origin: 1, step: 1, p: new Array(6).fill(1 / 6) } };
+    const t = compile({ compound: { count: { family: "poisson", lambda: 2 }, each: { sum: [die, die] } } }).latticeTable!(4096)!;
+    expect(t.round, "derived rounding bound").toBeDefined();
+    const K = 60;
+    const want = new Array(K).fill(0);
+    let w = Math.exp(-2);
+    for (let n = 0; n < 40; n++) {
+      const d = dice(2 * n, 6);
+      for (let k = 0; k < d.length && k + 2 * n < K; k++) want[k + 2 * n] += w * d[k];
+      w = (w * 2) / (n + 1);
+    }
+    let worstD = 0;
+    for (let k = 0; k < K; k++) {
+      const d = Math.abs(t.p[k] - want[k]);
+      worstD = Math.max(worstD, d);
+      // the reference's own rounding: 40 weights and products and sums, well within 1e-15 of want
+      if (d > t.round!.pmf + 1e-15 * want[k] + 1e-300) throw new Error(`k=${k}: ${d} > ${t.round!.pmf}`);
+    }
+    record("Panjer with an absolutely bounded claim table", t.round!.pmf / Math.max(worstD, 1e-18));
+  });
+});
