@@ -1,6 +1,6 @@
 // Evaluation of a damped solution (see damped.ts): the mid-point sums at a point and on an FFT grid, undamped, with bounds.
 import type { DampedSolution } from "./damped";
-import { nextPowerOfTwo } from "../fftplan";
+import { combineRounding, compositeSize } from "../fftplan";
 import { checkDeadline } from "../deadline";
 import { sumOnGrid } from "./fft";
 import { kernelsAt } from "../damped-kernels";
@@ -237,10 +237,11 @@ export function dampedGrid(
   // by at most 3 u t_k |y0| (y0 = from - lo, h y0 and the product); h = 2 pi / (N dx) within 3 u, so the transform's
   // exact kernel puts the values at points within 3 u N dx of the grid's, and the node (k + 1/2) h one more rounding:
   // 4 u t_k N dx in all; each bin sums ceil(K/N) terms ((ceil(K/N) - 1) u of their moduli, Higham 2002 eq. 4.4):
-  // (h/pi) u sum |c_k| (t_k (3 |y0| + 4 N dx) + ceil(K/N))
+  // (h/pi) u sum |c_k| (t_k (3 |y0| + 4 N dx) + ceil(K/N)); a composite N's combining step adds combineRounding(N) u of
+  // the bins' absolute sum, at most sum |c_k| (../fftplan.ts)
   const u = Number.EPSILON / 2;
   const y0 = 3 * Math.abs(from - s.lo) + 4 * N * dx;
-  const bins = Math.ceil(s.K / N);
+  const bins = Math.ceil(s.K / N) + combineRounding(N);
   const own = (re: Float64Array, im: Float64Array) => {
     let a = 0;
     let at = 0;
@@ -273,6 +274,7 @@ export function dampedGrid(
 export function gridPeriod(lo: number, from: number, dx: number, count: number, T: number): { N: number; T: number } {
   const last = from + (count - 1) * dx;
   const need = Math.max(T, last - Math.min(lo, from) + dx);
-  const N = nextPowerOfTwo(Math.max(count, Math.ceil(need / dx)));
+  // N = m 2^p (m odd, at most 15: ../fftplan.ts compositeSize), within 12.5% of what is needed: the terms grow with N dx
+  const N = compositeSize(Math.max(count, Math.ceil(need / dx)));
   return { N, T: N * dx };
 }

@@ -150,7 +150,7 @@ export function dampedSetup(model: CompiledModel, atoms: Atom[], R: number, o: D
   const Mc = Math.max(1 - pa, 0);
   const tol = o.tolerance;
   const pointwise: Exactness = o.period === undefined ? (o.pointwise ?? false) : false;
-  const plan = o.plan ?? dampedPlan(model, atoms, R, tol, o.wantPdf, o.points, pointwise, o.budget ?? MAX_K, undefined, undefined, o.byParts ?? false);
+  const plan = o.plan ?? dampedPlan(model, atoms, R, tol, o.wantPdf, o.points, pointwise, o.budget ?? MAX_K, undefined, undefined, o.byParts ?? false, undefined, o.wantInt ?? true);
   const beta = plan.beta;
   // pointwise: the step rounded down to an exact one (the period grows by at most 2^-28 relative)
   const h = pointwise ? exactStep((2 * Math.PI) / plan.T) : (2 * Math.PI) / (o.period ?? plan.T);

@@ -1,4 +1,4 @@
-import { getFftPlan } from "../fftplan";
+import { compositeInput, forwardRange, getFftPlan, splitSize } from "../fftplan";
 import type { Nodes } from "./nodes";
 import { checkDeadline } from "../deadline";
 
@@ -33,9 +33,13 @@ export function sumOnGrid(
   sf: Float64Array | null,
 ): void {
   const { h, K, re, im, wre, wim, mass } = nodes;
-  const plan = getFftPlan(N);
-  const inp = plan.a;
-  const out = plan.b;
+  // N a power of two (one transform) or m 2^p (forwardRange: only the outputs asked for, from m transforms of 2^p)
+  const odd = splitSize(N).m > 1;
+  const plan = odd ? null : getFftPlan(N);
+  const inp = plan ? plan.a : compositeInput(N);
+  const out = plan ? plan.b : new Float64Array(2 * count);
+  // where output j is read: out[2 (j - base)]
+  const base = odd ? offset : 0;
   const y0 = x0 - center;
   const th = h * y0;
   const passes: Array<[Float64Array, Float64Array, boolean]> = [];
@@ -47,29 +51,33 @@ export function sumOnGrid(
     const rc = Math.cos(th);
     const rs = -Math.sin(th);
     let k = 0;
+    // the bin of node k: k mod N, kept by a wrapping counter
+    let bin = 0;
     while (k < K) {
       const a0 = (k + 0.5) * th;
       let zr = Math.cos(a0);
       let zi = -Math.sin(a0);
       const end = Math.min(K, k + 64);
       for (; k < end; k++) {
-        const m = (k & (N - 1)) << 1;
+        const m = bin << 1;
         inp[m] += zr * pr[k] - zi * pi[k];
         inp[m + 1] += zr * pi[k] + zi * pr[k];
         const nr = zr * rc - zi * rs;
         zi = zr * rs + zi * rc;
         zr = nr;
+        if (++bin === N) bin = 0;
       }
     }
-    plan.forward(inp, out);
+    if (plan) plan.forward(inp, out);
+    else forwardRange(N, inp, offset, count, out);
     const step = Math.PI / N;
     for (let q = 0; q < count; q++) {
       const j = q + offset;
       const a = j * step;
       const er = Math.cos(a);
       const ei = -Math.sin(a);
-      const cr = out[2 * j];
-      const ci = out[2 * j + 1];
+      const cr = out[2 * (j - base)];
+      const ci = out[2 * (j - base) + 1];
       if (isPdf) {
         pdf![q] = (h / Math.PI) * (er * cr - ei * ci);
       } else {
