@@ -64,9 +64,12 @@ export function ruleRounding(n: number, absSum: number, termErrors: number): num
 }
 
 /**
- * The moment route of expSumArithmetic, in units of u times the moduli of the terms it takes: moment m = sum_j c_j e_j^m
+ * The moment routes of expSumArithmetic, in units of u times the moduli of the terms they take: moment m = sum_j c_j e_j^m
  * (compensated, 2 sqrt 2 u; e_j^m by m products, m u), divided by m! (m u), evaluated by Horner at z = t w (m u for the
  * powers of z, and (2 sqrt 2 + 1) u per complex multiply-add for m steps), so term m carries at most (7 m + 4) u of
- * |c_j| x^m / m!, x = t e_j |w| <= 1, whose sum over m is e^x (7 x + 4) <= 11 e.
+ * |c_j| x^m / m!, x = t e_j |w| <= 1, whose sum over m is e^x (7 x + 4) <= 11 e. About a block's first frequency t_a
+ * (real w < 0; cf-quadrature.ts shiftedMoments) the weight is c_j e^{-D}, D = t_a e_j |w|: exp of an argument within 2u of
+ * itself, within 2u D + 2u of the value, and the products u, so within (2 D e^{-D} + 3) u <= 4u of |c_j|; z = (t - t_a) w
+ * rounds twice (one m u more): (8 m + 8) u of |c_j| x^m / m!, summing to e^x (8 x + 8) <= 16 e, which is taken for both.
  */
-export const SUM_MOMENT_UNITS = 11 * Math.E;
+export const SUM_MOMENT_UNITS = 16 * Math.E;
