@@ -283,61 +283,7 @@ export function expSumArithmetic(
   for (let j = 0; real && j < n; j++) real = cIm[j] === 0;
   let absSum = 0;
   if (J0 > 0 && real) absSum = realMoments(cRe, e, J0, wRe, tk, outRe);
-  else if (J0 > 0) {
-    const M = MOMENT_ORDER;
-    const mr = new Float64Array(M + 1);
-    const mi = new Float64Array(M + 1);
-    // compensated (Kahan) moment sums: qr, qi carry each addition's rounding
-    const qr = new Float64Array(M + 1);
-    const qi = new Float64Array(M + 1);
-    for (let j = 0; j < J0; j++) {
-      absSum += cabs(cRe[j], cIm[j]);
-      let p = 1;
-      for (let m = 0; m <= M; m++) {
-        const yr = cRe[j] * p - qr[m];
-        const tr = mr[m] + yr;
-        qr[m] = tr - mr[m] - yr;
-        mr[m] = tr;
-        const yi = cIm[j] * p - qi[m];
-        const ti = mi[m] + yi;
-        qi[m] = ti - mi[m] - yi;
-        mi[m] = ti;
-        p *= e[j];
-      }
-    }
-    let f = 1;
-    for (let m = 1; m <= M; m++) {
-      f *= m;
-      mr[m] /= f;
-      mi[m] /= f;
-    }
-    for (let k = 0; k < K && wIm === 0; k++) {
-      // a real w (the pareto's Laplace form): the terms ai zi and ar zi are zeros, so two real Horner steps per order
-      const z = tk[k] * wRe;
-      let ar = mr[M];
-      let ai = mi[M];
-      for (let m = M - 1; m >= 0; m--) {
-        ar = ar * z + mr[m];
-        ai = ai * z + mi[m];
-      }
-      outRe[k] = ar;
-      outIm[k] = ai;
-    }
-    for (let k = 0; k < K && wIm !== 0; k++) {
-      const t = tk[k];
-      const zr = t * wRe;
-      const zi = t * wIm;
-      let ar = mr[M];
-      let ai = mi[M];
-      for (let m = M - 1; m >= 0; m--) {
-        const nr = ar * zr - ai * zi + mr[m];
-        ai = ar * zi + ai * zr + mi[m];
-        ar = nr;
-      }
-      outRe[k] = ar;
-      outIm[k] = ai;
-    }
-  }
+  else if (J0 > 0) absSum = complexMoments(cRe, cIm, e, J0, wRe, wIm, tk, outRe, outIm);
   // a real w: the nodes with SHIFT_BLOCK d e_j |w| <= 1 past J0 through their moments about each block's first frequency
   // (shiftedMoments); the recurrence takes the rest
   let J1 = J0;
@@ -345,16 +291,120 @@ export function expSumArithmetic(
   if (J1 > J0) absSum += shiftedMoments(cRe, cIm, e, J0, J1, wRe, tk, outRe, outIm, kr, ki);
   const cut = new Float64Array(n);
   const live = new Uint8Array(n);
-  for (let j = J1; j < n; j++) {
+  absSum += liveNodes(cRe, cIm, e, J1, wRe, tk[0], cut, live);
+  recurrenceSums(cRe, cIm, e, J1, wRe, wIm, tk, d, cut, live, real, outRe, outIm, kr, ki);
+  return absSum * (MOMENT_REMAINDER + 80 * Number.EPSILON) + n * DROP;
+}
+
+/**
+ * expSumArithmetic's moment route for complex weights or a complex w (the nodes j < J0, t e_j |w| <= 1 for every t): writes
+ * the Taylor sums into outRe, outIm and returns sum_j |c_j| over them. Its own function, as realMoments, so that an
+ * optimised loop here never meets a branch of the caller it has not seen (each such deopt recompiles the whole caller).
+ */
+function complexMoments(
+  cRe: Float64Array,
+  cIm: Float64Array,
+  e: Float64Array,
+  J0: number,
+  wRe: number,
+  wIm: number,
+  tk: Float64Array,
+  outRe: Float64Array,
+  outIm: Float64Array,
+): number {
+  const M = MOMENT_ORDER;
+  const mr = new Float64Array(M + 1);
+  const mi = new Float64Array(M + 1);
+  const absSum = momentSums(cRe, cIm, e, 0, J0, mr, mi);
+  let f = 1;
+  for (let m = 1; m <= M; m++) {
+    f *= m;
+    mr[m] /= f;
+    mi[m] /= f;
+  }
+  if (wIm === 0) hornerReal(mr, mi, wRe, tk, 0, tk.length, outRe, outIm);
+  else hornerComplex(mr, mi, wRe, wIm, tk, outRe, outIm);
+  return absSum;
+}
+
+/** mr[m] + i mi[m] = sum_{j0 <= j < j1} c_j e_j^m, m <= mr.length - 1, compensated (Kahan); returns sum |c_j| */
+function momentSums(cRe: Float64Array, cIm: Float64Array, e: Float64Array, j0: number, j1: number, mr: Float64Array, mi: Float64Array): number {
+  const M = mr.length - 1;
+  // qr, qi carry each addition's rounding
+  const qr = new Float64Array(M + 1);
+  const qi = new Float64Array(M + 1);
+  let absSum = 0;
+  for (let j = j0; j < j1; j++) {
+    absSum += cabs(cRe[j], cIm[j]);
+    let p = 1;
+    for (let m = 0; m <= M; m++) {
+      const yr = cRe[j] * p - qr[m];
+      const tr = mr[m] + yr;
+      qr[m] = tr - mr[m] - yr;
+      mr[m] = tr;
+      const yi = cIm[j] * p - qi[m];
+      const ti = mi[m] + yi;
+      qi[m] = ti - mi[m] - yi;
+      mi[m] = ti;
+      p *= e[j];
+    }
+  }
+  return absSum;
+}
+
+/**
+ * the Taylor sums at z = (t_k - t0) w for k in [k0, k1), w real (the pareto's Laplace form: the terms ai zi and ar zi are
+ * zeros, so two real Horner steps per order), written to out (t0 = 0: k0 = 0, the moments about 0)
+ */
+function hornerReal(mr: Float64Array, mi: Float64Array, w: number, tk: Float64Array, k0: number, k1: number, outRe: Float64Array, outIm: Float64Array): void {
+  const M = mr.length - 1;
+  const t0 = k0 === 0 ? 0 : tk[k0];
+  for (let k = k0; k < k1; k++) {
+    const z = (tk[k] - t0) * w;
+    let ar = mr[M];
+    let ai = mi[M];
+    for (let m = M - 1; m >= 0; m--) {
+      ar = ar * z + mr[m];
+      ai = ai * z + mi[m];
+    }
+    outRe[k] = ar;
+    outIm[k] = ai;
+  }
+}
+
+/** the Taylor sums at z = t_k w, w complex */
+function hornerComplex(mr: Float64Array, mi: Float64Array, wRe: number, wIm: number, tk: Float64Array, outRe: Float64Array, outIm: Float64Array): void {
+  const M = mr.length - 1;
+  for (let k = 0; k < tk.length; k++) {
+    const t = tk[k];
+    const zr = t * wRe;
+    const zi = t * wIm;
+    let ar = mr[M];
+    let ai = mi[M];
+    for (let m = M - 1; m >= 0; m--) {
+      const nr = ar * zr - ai * zi + mr[m];
+      ai = ar * zi + ai * zr + mi[m];
+      ar = nr;
+    }
+    outRe[k] = ar;
+    outIm[k] = ai;
+  }
+}
+
+/**
+ * the recurrence's nodes from J1 on: cut[j] = log(DROP / |c_j|) and live[j] = 1 where c_j is not 0; returns the sum of their
+ * sizes at the first frequency, |c_j| exp(t_0 e_j Re w) (Re w < 0, t >= t_0), to which the recurrence's drift is relative
+ */
+function liveNodes(cRe: Float64Array, cIm: Float64Array, e: Float64Array, J1: number, wRe: number, t0: number, cut: Float64Array, live: Uint8Array): number {
+  let absSum = 0;
+  for (let j = J1; j < e.length; j++) {
     const a = cabs(cRe[j], cIm[j]);
     if (a === 0) continue;
-    // the recurrence's drift is relative to the term's own size, at most |c_j| exp(t_0 e_j Re w) (Re w < 0, t >= t_0)
-    absSum += a * Math.exp(tk[0] * (e[j] * wRe));
+    absSum += a * Math.exp(t0 * (e[j] * wRe));
     cut[j] = Math.log(DROP / a);
     live[j] = 1;
   }
-  recurrenceSums(cRe, cIm, e, J1, wRe, wIm, tk, d, cut, live, real, outRe, outIm, kr, ki);
-  return absSum * (MOMENT_REMAINDER + 80 * Number.EPSILON) + n * DROP;
+  return absSum;
 }
 
 /**
