@@ -8,6 +8,7 @@ import { checkDeadline } from "../deadline";
 import { quadratureNodes } from "./numeric-rule";
 import { KahanComplex } from "./kahan";
 import { recurrenceSums } from "./exp-sum-recurrence";
+import { SHIFT_BLOCK, complexMoments, realMoments, shiftedMoments } from "./exp-sum-moments";
 
 /**
  * Shared driver: phi(t) for t > 0 from a per-t quadrature, phi(-t) = conj phi(t), phi(0) = 1; then log with the
@@ -115,131 +116,6 @@ export function contourLogCfArithmetic(c: Contour, scale: number, t: Float64Arra
   return bound;
 }
 
-/**
- * expSumArithmetic's moment route for real weights c_j and a real w, on real parts only (the same operations in the same
- * order as the complex route, whose imaginary parts are then exact zeros): writes the Taylor sums into outRe and
- * returns sum_j |c_j| over the J0 nodes taken.
- */
-function realMoments(c: Float64Array, e: Float64Array, J0: number, w: number, tk: Float64Array, outRe: Float64Array): number {
-  const M = MOMENT_ORDER;
-  const mr = new Float64Array(M + 1);
-  const qr = new Float64Array(M + 1);
-  let absSum = 0;
-  for (let j = 0; j < J0; j++) {
-    absSum += Math.abs(c[j]);
-    let p = 1;
-    for (let m = 0; m <= M; m++) {
-      const yr = c[j] * p - qr[m];
-      const tr = mr[m] + yr;
-      qr[m] = tr - mr[m] - yr;
-      mr[m] = tr;
-      p *= e[j];
-    }
-  }
-  let f = 1;
-  for (let m = 1; m <= M; m++) {
-    f *= m;
-    mr[m] /= f;
-  }
-  for (let k = 0; k < tk.length; k++) {
-    const z = tk[k] * w;
-    let a = mr[M];
-    for (let m = M - 1; m >= 0; m--) a = a * z + mr[m];
-    outRe[k] = a;
-  }
-  return absSum;
-}
-
-/** frequencies a block of shiftedMoments spans (its nodes have SHIFT_BLOCK d e_j |w| <= 1) */
-const SHIFT_BLOCK = 512;
-
-/**
- * expSumArithmetic's nodes J0 <= j < J1 for a real w < 0, block by block of SHIFT_BLOCK frequencies from t_a = tk[k0]:
- * c_j exp(t e_j w) = c'_j exp((t - t_a) e_j w) with c'_j = c_j exp(t_a e_j w), |c'_j| <= |c_j|, summed through the
- * moments sum_j c'_j e_j^m / m!, m <= MOMENT_ORDER, at z = (t - t_a) w, |z e_j| <= 1 (the same Taylor remainder as the
- * moments about 0); each block's total added into the sums compensated (Kahan), like a node's term. Returns sum |c_j|.
- * A node's cost is then a share of the blocks' moments, not a recurrence step at every frequency until it is dropped
- * (Poisson(2)-pareto(1.5)'s damped transform at 163 389 frequencies: some 30 nodes ran the whole range).
- */
-function shiftedMoments(
-  cRe: Float64Array,
-  cIm: Float64Array,
-  e: Float64Array,
-  J0: number,
-  J1: number,
-  w: number,
-  tk: Float64Array,
-  outRe: Float64Array,
-  outIm: Float64Array,
-  kr: Float64Array,
-  ki: Float64Array,
-): number {
-  const M = MOMENT_ORDER;
-  const K = tk.length;
-  const mr = new Float64Array(M + 1);
-  const mi = new Float64Array(M + 1);
-  const qr = new Float64Array(M + 1);
-  const qi = new Float64Array(M + 1);
-  const inv = new Float64Array(M + 1);
-  let f = 1;
-  for (let m = 0; m <= M; m++) {
-    if (m > 0) f *= m;
-    inv[m] = f;
-  }
-  let absSum = 0;
-  for (let j = J0; j < J1; j++) absSum += cabs(cRe[j], cIm[j]);
-  for (let k0 = 0; k0 < K; k0 += SHIFT_BLOCK) {
-    if ((k0 & 8191) === 0) checkDeadline("cf-quadrature");
-    const k1 = Math.min(K, k0 + SHIFT_BLOCK);
-    const ta = tk[k0];
-    mr.fill(0);
-    mi.fill(0);
-    qr.fill(0);
-    qi.fill(0);
-    for (let j = J0; j < J1; j++) {
-      const g = Math.exp(ta * (e[j] * w));
-      const ar = cRe[j] * g;
-      const ai = cIm[j] * g;
-      let p = 1;
-      for (let m = 0; m <= M; m++) {
-        const yr = ar * p - qr[m];
-        const tr = mr[m] + yr;
-        qr[m] = tr - mr[m] - yr;
-        mr[m] = tr;
-        const yi = ai * p - qi[m];
-        const ti = mi[m] + yi;
-        qi[m] = ti - mi[m] - yi;
-        mi[m] = ti;
-        p *= e[j];
-      }
-    }
-    for (let m = 1; m <= M; m++) {
-      mr[m] /= inv[m];
-      mi[m] /= inv[m];
-    }
-    for (let k = k0; k < k1; k++) {
-      const z = (tk[k] - ta) * w;
-      let ar = mr[M];
-      let ai = mi[M];
-      for (let m = M - 1; m >= 0; m--) {
-        ar = ar * z + mr[m];
-        ai = ai * z + mi[m];
-      }
-      const yr = ar - kr[k];
-      const sr = outRe[k] + yr;
-      kr[k] = sr - outRe[k] - yr;
-      outRe[k] = sr;
-      const yi = ai - ki[k];
-      const si = outIm[k] + yi;
-      ki[k] = si - outIm[k] - yi;
-      outIm[k] = si;
-    }
-  }
-  return absSum;
-}
-
-/** Taylor order used for the nodes summed through their moments in expSumArithmetic. */
-const MOMENT_ORDER = 24;
 /** e / 25!: Taylor remainder of exp(z) after the z^24 term for |z| <= 1. */
 const MOMENT_REMAINDER = Math.E / 1.5511210043330986e25;
 /** terms below this magnitude (and decreasing from there on) are left out */
@@ -249,7 +125,8 @@ const DROP = 1e-21;
  * Quadrature sums S_k = sum_j c_j exp(t_k e_j w) at equispaced frequencies t_k (step d, see arithmeticNodes), for the rules
  * above, in which the frequency enters only through exp(t e_j w) (nodes 0 < e_0 <= e_1 <= ..., Re w < 0).
  * Nodes with t_max e_j |w| <= 1 are summed through their moments, exp(z) = sum_{m <= 24} z^m / m! + R with
- * |R| <= e / 25! for |z| <= 1 (Taylor, Lagrange remainder); the others by the recurrence
+ * |R| <= e / 25! for |z| <= 1 (Taylor, Lagrange remainder), and with a real w those with SHIFT_BLOCK d e_j |w| <= 1 the same
+ * way about each block's first frequency (./exp-sum-moments.ts shiftedMoments); the others by the recurrence
  * z_{k+1} = z_k exp(d e_j w) (one complex multiply, restarted directly every 16 steps: relative drift below
  * 16 (sqrt 5 + 2) eps), dropped once |c_j exp(t e_j w)| < 1e-21 (the magnitude only decreases after that).
  * Returns the bound on |S_k - rule| these shortcuts add: sum_j |c_j| (e/25! + 80 eps) + n 1e-21, where the drift of a
@@ -294,101 +171,6 @@ export function expSumArithmetic(
   absSum += liveNodes(cRe, cIm, e, J1, wRe, tk[0], cut, live);
   recurrenceSums(cRe, cIm, e, J1, wRe, wIm, tk, d, cut, live, real, outRe, outIm, kr, ki);
   return absSum * (MOMENT_REMAINDER + 80 * Number.EPSILON) + n * DROP;
-}
-
-/**
- * expSumArithmetic's moment route for complex weights or a complex w (the nodes j < J0, t e_j |w| <= 1 for every t): writes
- * the Taylor sums into outRe, outIm and returns sum_j |c_j| over them. Its own function, as realMoments, so that an
- * optimised loop here never meets a branch of the caller it has not seen (each such deopt recompiles the whole caller).
- */
-function complexMoments(
-  cRe: Float64Array,
-  cIm: Float64Array,
-  e: Float64Array,
-  J0: number,
-  wRe: number,
-  wIm: number,
-  tk: Float64Array,
-  outRe: Float64Array,
-  outIm: Float64Array,
-): number {
-  const M = MOMENT_ORDER;
-  const mr = new Float64Array(M + 1);
-  const mi = new Float64Array(M + 1);
-  const absSum = momentSums(cRe, cIm, e, 0, J0, mr, mi);
-  let f = 1;
-  for (let m = 1; m <= M; m++) {
-    f *= m;
-    mr[m] /= f;
-    mi[m] /= f;
-  }
-  if (wIm === 0) hornerReal(mr, mi, wRe, tk, 0, tk.length, outRe, outIm);
-  else hornerComplex(mr, mi, wRe, wIm, tk, outRe, outIm);
-  return absSum;
-}
-
-/** mr[m] + i mi[m] = sum_{j0 <= j < j1} c_j e_j^m, m <= mr.length - 1, compensated (Kahan); returns sum |c_j| */
-function momentSums(cRe: Float64Array, cIm: Float64Array, e: Float64Array, j0: number, j1: number, mr: Float64Array, mi: Float64Array): number {
-  const M = mr.length - 1;
-  // qr, qi carry each addition's rounding
-  const qr = new Float64Array(M + 1);
-  const qi = new Float64Array(M + 1);
-  let absSum = 0;
-  for (let j = j0; j < j1; j++) {
-    absSum += cabs(cRe[j], cIm[j]);
-    let p = 1;
-    for (let m = 0; m <= M; m++) {
-      const yr = cRe[j] * p - qr[m];
-      const tr = mr[m] + yr;
-      qr[m] = tr - mr[m] - yr;
-      mr[m] = tr;
-      const yi = cIm[j] * p - qi[m];
-      const ti = mi[m] + yi;
-      qi[m] = ti - mi[m] - yi;
-      mi[m] = ti;
-      p *= e[j];
-    }
-  }
-  return absSum;
-}
-
-/**
- * the Taylor sums at z = (t_k - t0) w for k in [k0, k1), w real (the pareto's Laplace form: the terms ai zi and ar zi are
- * zeros, so two real Horner steps per order), written to out (t0 = 0: k0 = 0, the moments about 0)
- */
-function hornerReal(mr: Float64Array, mi: Float64Array, w: number, tk: Float64Array, k0: number, k1: number, outRe: Float64Array, outIm: Float64Array): void {
-  const M = mr.length - 1;
-  const t0 = k0 === 0 ? 0 : tk[k0];
-  for (let k = k0; k < k1; k++) {
-    const z = (tk[k] - t0) * w;
-    let ar = mr[M];
-    let ai = mi[M];
-    for (let m = M - 1; m >= 0; m--) {
-      ar = ar * z + mr[m];
-      ai = ai * z + mi[m];
-    }
-    outRe[k] = ar;
-    outIm[k] = ai;
-  }
-}
-
-/** the Taylor sums at z = t_k w, w complex */
-function hornerComplex(mr: Float64Array, mi: Float64Array, wRe: number, wIm: number, tk: Float64Array, outRe: Float64Array, outIm: Float64Array): void {
-  const M = mr.length - 1;
-  for (let k = 0; k < tk.length; k++) {
-    const t = tk[k];
-    const zr = t * wRe;
-    const zi = t * wIm;
-    let ar = mr[M];
-    let ai = mi[M];
-    for (let m = M - 1; m >= 0; m--) {
-      const nr = ar * zr - ai * zi + mr[m];
-      ai = ar * zi + ai * zr + mi[m];
-      ar = nr;
-    }
-    outRe[k] = ar;
-    outIm[k] = ai;
-  }
 }
 
 /**
