@@ -45,6 +45,25 @@ export function shiftDamped(b: number, c: Node): DampedLogCf | undefined {
   };
 }
 
+/**
+ * X + b for the rectangular transform (Node.dampedCf): phi_X e^{(i t - beta) b}. A node built by spreading another and
+ * moving it must set this with its shifted dampedLogCf (else a compound would take the unshifted transform).
+ */
+export function shiftDampedCf(b: number, c: Node): DampedLogCf | undefined {
+  if (!c.dampedCf) return undefined;
+  return (beta, t, re, im) => {
+    c.dampedCf!(beta, t, re, im);
+    const g = Math.exp(-beta * b);
+    for (let k = 0; k < t.length; k++) {
+      const cs = Math.cos(t[k] * b);
+      const sn = Math.sin(t[k] * b);
+      const r = re[k] * cs - im[k] * sn;
+      im[k] = g * (re[k] * sn + im[k] * cs);
+      re[k] = g * r;
+    }
+  };
+}
+
 /** Mixture: log sum_j w_j exp(L_j), with the largest real part factored out. */
 export function mixDamped(ws: number[], cs: Node[]): DampedLogCf | undefined {
   if (!cs.every((c) => c.dampedLogCf)) return undefined;
@@ -71,9 +90,22 @@ export function mixDamped(ws: number[], cs: Node[]): DampedLogCf | undefined {
   };
 }
 
-/** Compound: K_N(L_X), the count's cumulant function at the complex point L_X (Re <= 0). */
+/**
+ * Compound: K_N(L_X), the count's cumulant function at the complex point L_X (Re <= 0); where the severity gives its
+ * transform phi rectangular and the count log P_N(phi) from it (Poisson: lambda (phi - 1)), that, with no log and exp of phi
+ */
 export function compoundDamped(N: Node, X: Node): DampedLogCf | undefined {
   if (!N.countCgf || !X.dampedLogCf) return undefined;
+  if (X.dampedCf && N.countLogPgf) {
+    const rect = X.dampedCf;
+    const logPgf = N.countLogPgf;
+    return (beta, t, re, im) => {
+      const a = new Float64Array(t.length);
+      const b = new Float64Array(t.length);
+      rect(beta, t, a, b);
+      logPgf(a, b, re, im);
+    };
+  }
   return (beta, t, re, im) => {
     const a = new Float64Array(t.length);
     const b = new Float64Array(t.length);

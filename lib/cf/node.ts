@@ -67,6 +67,11 @@ export interface Node {
   approximate?: boolean;
   /** log E[exp((i t - beta) X)] for laws bounded below (damped inversion), where available */
   dampedLogCf?: DampedLogCf;
+  /**
+   * E[exp((i t - beta) X)] itself as re + i im, where the family sums it directly (no log and exp between its sums and a
+   * count's log-pgf: a Poisson compound of it, ./damped-cf.ts compoundDamped); within the same cfAbsError
+   */
+  dampedCf?: DampedLogCf;
   /** the tree holds a compound (the damped inversion is used for such laws) */
   hasCompound?: boolean;
   /** bound on the absolute error of the CF values phi(t) (0 for closed forms) */

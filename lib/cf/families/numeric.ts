@@ -5,6 +5,7 @@ import { arithmeticNodes, expSumArithmetic, fromPhi } from "./cf-quadrature";
 import { SERIES_TOLERANCE, paretoExpansion, paretoSeries, weibullAsymptotic, weibullExpansion, weibullSeries } from "./asymptotic";
 import { MAX_QUADRATURE_NODES, logFromSums, quadratureNodes, ruleRounding } from "./numeric-rule";
 import { KahanComplex } from "./kahan";
+import { checkDeadline } from "../deadline";
 
 export { NUMERIC_CF_ABS_ERROR, MAX_QUADRATURE_NODES } from "./numeric-rule";
 export { lognormal, lognormalCumulants } from "./lognormal";
@@ -275,7 +276,8 @@ export function pareto(alpha: number, xm: number): Node {
   // exp(-tau r_j) = exp(-xm t r_j) exp(-i xm beta r_j), the second factor folded into the weights (its phase rounds within
   // u xm beta r_j of a term of size exp(-xm t r_j) <= exp(-xm beta r_j): below u / e of |c_j|), and the prefactor
   // e^{i tau} = e^{i xm t} e^{-xm beta}.
-  const logCfArithmetic = (t: Float64Array, re: Float64Array, im: Float64Array, beta = 0) => {
+  // `rect`: phi itself into re, im (no log: a Poisson compound takes it as it is)
+  const logCfArithmetic = (t: Float64Array, re: Float64Array, im: Float64Array, beta = 0, rect = false) => {
     const K = t.length;
     const tauMin = xm * t[0];
     const rLo = 1e-19 / alpha;
@@ -283,7 +285,7 @@ export function pareto(alpha: number, xm: number): Node {
     const v0 = Math.log(rLo);
     const m = Math.ceil((Math.log(rHi) - v0) / h) + 1;
     // extreme tail indices (range empty or too long): the rule per frequency
-    if (!(m >= 2 && m <= MAX_QUADRATURE_NODES)) return fromPhi(t, re, im, (x, out) => phiAt(x, beta, out));
+    if (!(m >= 2 && m <= MAX_QUADRATURE_NODES)) return rect ? rectPhi(beta, t, re, im) : fromPhi(t, re, im, (x, out) => phiAt(x, beta, out));
     const cRe = new Float64Array(m);
     const cIm = new Float64Array(m);
     const e = new Float64Array(m);
@@ -300,9 +302,27 @@ export function pareto(alpha: number, xm: number): Node {
     const si = new Float64Array(K);
     expSumArithmetic(cRe, cIm, e, -xm, 0, t, sr, si);
     // times i alpha e^{i tau}
-    logFromSums(t, sr, si, re, im, Math.log(alpha) - xm * beta, Math.PI / 2, xm);
+    if (!rect) return logFromSums(t, sr, si, re, im, Math.log(alpha) - xm * beta, Math.PI / 2, xm);
+    const g = alpha * Math.exp(-xm * beta);
+    for (let k = 0; k < K; k++) {
+      const c = Math.cos(xm * t[k]);
+      const s = Math.sin(xm * t[k]);
+      // i (sr + i si) = -si + i sr
+      re[k] = g * (-si[k] * c - sr[k] * s);
+      im[k] = g * (-si[k] * s + sr[k] * c);
+    }
   };
   const perFrequency = fromPhiDamped(phiAt);
+  // phi at each t by its own rule (t < 0 by conjugation), rectangular
+  const tmp = new Float64Array(2);
+  const rectPhi = (beta: number, t: Float64Array, re: Float64Array, im: Float64Array) => {
+    for (let k = 0; k < t.length; k++) {
+      if ((k & 15) === 0) checkDeadline("cf-quadrature");
+      phiAt(Math.abs(t[k]), beta, tmp);
+      re[k] = tmp[0];
+      im[k] = t[k] < 0 ? -tmp[1] : tmp[1];
+    }
+  };
   // the damped route's equispaced frequencies: those below beta (and t <= 0) per frequency, the rest by the fixed nodes
   const dampedLogCf = (beta: number, t: Float64Array, re: Float64Array, im: Float64Array) => {
     let k0 = 0;
@@ -311,6 +331,15 @@ export function pareto(alpha: number, xm: number): Node {
     if (!(beta >= 0) || !arithmeticNodes(tail)) return perFrequency(beta, t, re, im);
     if (k0 > 0) perFrequency(beta, t.subarray(0, k0), re.subarray(0, k0), im.subarray(0, k0));
     logCfArithmetic(tail, re.subarray(k0), im.subarray(k0), beta);
+  };
+  // the same routes, phi rectangular (the prefactor's phase tau = xm t taken by cos and sin: within u tau, covered as above)
+  const dampedCf = (beta: number, t: Float64Array, re: Float64Array, im: Float64Array) => {
+    let k0 = 0;
+    while (k0 < t.length && !(t[k0] > 0 && t[k0] >= beta)) k0++;
+    const tail = t.subarray(k0);
+    if (!(beta >= 0) || !arithmeticNodes(tail)) return rectPhi(beta, t, re, im);
+    if (k0 > 0) rectPhi(beta, t.subarray(0, k0), re.subarray(0, k0), im.subarray(0, k0));
+    logCfArithmetic(tail, re.subarray(k0), im.subarray(k0), beta, true);
   };
   // sum_j |c_j| ~ int_0^inf (1 + r^2)^{-q/2} dr = (sqrt(pi)/2) Gamma(alpha/2) / Gamma((alpha+1)/2) (DLMF 5.12.1 with
   // r^2 = s / (1 - s)), 1% added for the rule; times alpha for the prefactor, in logs (Gamma(alpha/2) ~ 2/alpha overflows
@@ -334,6 +363,7 @@ export function pareto(alpha: number, xm: number): Node {
     notes: [`pareto CF computed by quadrature on a rotated contour (absolute error <= ${cfError.toPrecision(2)})`],
     cfAbsError: cfError,
     dampedLogCf,
+    dampedCf,
     laplaceExpansion: paretoExpansion(alpha, xm),
     // density alpha xm^alpha x^(-alpha-1) on [xm, inf), sf (xm/x)^alpha (JKB vol. 1, ch. 20)
     severity: {

@@ -5,7 +5,7 @@ import { arithmeticNodes, contourLogCfArithmetic, contourPhi, expSumArithmetic, 
 import { lgamma, factorial } from "./special";
 import { pareto } from "./numeric";
 import { MAX_QUADRATURE_NODES, logFromSums, quadratureNodes, ruleRounding } from "./numeric-rule";
-import { shiftDamped } from "../damped-cf";
+import { shiftDamped, shiftDampedCf } from "../damped-cf";
 import { paretoExpansion } from "./asymptotic";
 import { fromPhiDamped } from "../damped-cf";
 import { inverseGammaDist, inverseGaussianDist, type DirectLaw } from "./dist";
@@ -228,6 +228,7 @@ export function lomax(alpha: number, theta: number): Node {
     notes: [`lomax CF computed by quadrature on a rotated contour (absolute error <= ${p.cfAbsError!.toPrecision(2)})`],
     // X = P - theta with P pareto(alpha, theta): the damped transform and the endpoint expansion move with the shift
     dampedLogCf: shiftDamped(-theta, p),
+    dampedCf: shiftDampedCf(-theta, p),
     laplaceExpansion: { ...paretoExpansion(alpha, theta), at: 0 },
     severity: {
       ...p.severity!,

@@ -1,7 +1,7 @@
 /** Types and shared helpers of the family parameter table (lib/cf/families/spec.ts). */
 import type { DirectLaw } from "../direct/types";
 import type { Node } from "../node";
-import { shiftDamped } from "../damped-cf";
+import { shiftDamped, shiftDampedCf } from "../damped-cf";
 import { affineDist, type DirectLaw as DistLaw } from "./dist";
 import { cumulantEst, withCumulantErrors } from "../cumulant-bounds";
 import { add, exact } from "../moment-error";
@@ -139,6 +139,7 @@ export function shiftBuilt(n: Node, b: number): Node {
     ...(n.dist ? { dist: affineDist(n.dist, 1, b) } : {}),
     // the damped transform and the endpoint expansion move with the law (else a compound would use the unshifted ones)
     ...(n.dampedLogCf ? { dampedLogCf: shiftDamped(b, n) } : {}),
+    dampedCf: shiftDampedCf(b, n),
     ...(n.laplaceExpansion ? { laplaceExpansion: { ...n.laplaceExpansion, at: n.laplaceExpansion.at + b } } : {}),
     ...(n.severity && b > 0 ? { severity: { ...n.severity, lo: n.severity.lo + b, pdf: (x: number) => n.severity!.pdf(x - b), upper: (q: number) => n.severity!.upper(q) + b } } : {}),
     ...(n.severity && b < 0 ? { severity: undefined } : {}),
