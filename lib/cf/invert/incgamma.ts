@@ -19,6 +19,17 @@ export function incGamma(a: number, z: number): { P: number; Q: number; eP: numb
   return { P: r.p, Q: r.q, eP: r.pErr, eQ: r.qErr };
 }
 
+/** log Gamma(a) and its bound per shape (the kernels ask a few shapes at every point of a grid) */
+const logGammas = new Map<number, { lg: number; err: number }>();
+function logGammaOf(a: number): { lg: number; err: number } {
+  let v = logGammas.get(a);
+  if (!v) {
+    if (logGammas.size >= 256) logGammas.clear();
+    logGammas.set(a, (v = { lg: lgamma(a), err: lgammaErr(a) }));
+  }
+  return v;
+}
+
 /**
  * A bound on the relative error of gammaPdf(a, rate, y) at y > 0: the exponent a log rate + (a - 1) log y - rate y -
  * log Gamma(a) term by term (log within 2u relative, a - 1, each product and sum u, log Gamma by lgammaErr), then exp
@@ -32,13 +43,14 @@ export function gammaPdfErr(a: number, rate: number, y: number): number {
   const t3 = rate * y;
   const s1 = t1 + t2;
   const s2 = s1 - t3;
-  const arg = s2 - lgamma(a);
-  const e = 1.01 * u * (3 * Math.abs(t1) + 4 * Math.abs(t2) + t3 + Math.abs(s1) + Math.abs(s2) + Math.abs(arg)) + lgammaErr(a);
+  const lg = logGammaOf(a);
+  const arg = s2 - lg.lg;
+  const e = 1.01 * u * (3 * Math.abs(t1) + 4 * Math.abs(t2) + t3 + Math.abs(s1) + Math.abs(s2) + Math.abs(arg)) + lg.err;
   return 1.01 * (Math.expm1(e) + 2 * u);
 }
 
 /** Gamma(a, rate) density at y > 0. */
 export function gammaPdf(a: number, rate: number, y: number): number {
   if (!(y > 0)) return a === 1 && y === 0 ? rate : 0;
-  return Math.exp(a * Math.log(rate) + (a - 1) * Math.log(y) - rate * y - lgamma(a));
+  return Math.exp(a * Math.log(rate) + (a - 1) * Math.log(y) - rate * y - logGammaOf(a).lg);
 }
