@@ -1,5 +1,6 @@
 import type { Node } from "./node";
 import { checkDeadline } from "./deadline";
+import { scratch } from "./damped-scratch";
 
 /**
  * Damped (exponentially tilted) cumulant functions L(beta, t) = log E[exp((i t - beta) X)], beta >= 0, for laws
@@ -100,8 +101,10 @@ export function compoundDamped(N: Node, X: Node): DampedLogCf | undefined {
     const rect = X.dampedCf;
     const logPgf = N.countLogPgf;
     return (beta, t, re, im) => {
-      const a = new Float64Array(t.length);
-      const b = new Float64Array(t.length);
+      // reused buffers (./damped-scratch.ts): a severity with a rectangular transform is no compound, so no call below
+      // takes these slots
+      const a = scratch("cmpRe", t.length);
+      const b = scratch("cmpIm", t.length);
       rect(beta, t, a, b);
       logPgf(a, b, re, im);
     };

@@ -17,6 +17,15 @@ export type ScratchSlot =
   | "sevIm"
   | "gridC"
   | "gridP"
+  // a Poisson compound's severity transform (damped-cf.ts compoundDamped), and the equispaced quadrature sums with their
+  // compensations (families/cf-quadrature.ts expSumArithmetic, families/numeric.ts pareto): none of them calls another
+  // user of its slot while it holds it
+  | "cmpRe"
+  | "cmpIm"
+  | "expKr"
+  | "expKi"
+  | "expSr"
+  | "expSi"
   // a transient solution's coefficients (DampedOptions.transient)
   | "solPRe"
   | "solPIm"

@@ -5,6 +5,7 @@
  */
 import { cabs, sortedAnchor, unwrapFrom } from "../complex";
 import { checkDeadline } from "../deadline";
+import { scratch } from "../damped-scratch";
 import { quadratureNodes } from "./numeric-rule";
 import { KahanComplex } from "./kahan";
 import { recurrenceSums } from "./exp-sum-recurrence";
@@ -150,8 +151,8 @@ export function expSumArithmetic(
   outRe.fill(0, 0, K);
   outIm.fill(0, 0, K);
   // compensated (Kahan) sums across the nodes: kr, ki carry each addition's rounding
-  const kr = new Float64Array(K);
-  const ki = new Float64Array(K);
+  const kr = scratch("expKr", K).fill(0);
+  const ki = scratch("expKi", K).fill(0);
   let J0 = 0;
   while (J0 < n && tEnd * e[J0] * wAbs <= 1) J0++;
   // real weights and a real w (the Student t's Bessel rule): the imaginary parts are exact zeros throughout, so the real

@@ -6,6 +6,7 @@ import { SERIES_TOLERANCE, paretoExpansion, paretoSeries, weibullAsymptotic, wei
 import { MAX_QUADRATURE_NODES, logFromSums, quadratureNodes, ruleRounding } from "./numeric-rule";
 import { KahanComplex } from "./kahan";
 import { checkDeadline } from "../deadline";
+import { scratch } from "../damped-scratch";
 
 export { NUMERIC_CF_ABS_ERROR, MAX_QUADRATURE_NODES } from "./numeric-rule";
 export { lognormal, lognormalCumulants } from "./lognormal";
@@ -298,8 +299,9 @@ export function pareto(alpha: number, xm: number): Node {
       cIm[j] = mag * Math.sin(ph);
       e[j] = r;
     }
-    const sr = new Float64Array(K);
-    const si = new Float64Array(K);
+    // reused buffers (../damped-scratch.ts), read before this returns
+    const sr = scratch("expSr", K);
+    const si = scratch("expSi", K);
     expSumArithmetic(cRe, cIm, e, -xm, 0, t, sr, si);
     // times i alpha e^{i tau}
     if (!rect) return logFromSums(t, sr, si, re, im, Math.log(alpha) - xm * beta, Math.PI / 2, xm);

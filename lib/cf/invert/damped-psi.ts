@@ -36,6 +36,9 @@ export function psiOf(model: CompiledModel, atoms: Atom[], beta: number, pairOut
   if (sev?.count && lo === 0) return severityPsi(sev, sev.count, atoms, beta, pairOut ? (sev.pair?.w ?? 0) : 0, planning);
   const base = baseNoise(model, atoms);
   const floor = planning ? base + 16 * EPS * kernelsMass(model.dampedKernels ?? []) : 0;
+  // each atom's distance from lo and damped weight once (an atom at lo, as a compound's P(N = 0): no phase to take)
+  const ds = Float64Array.from(atoms, (a) => a.x - lo);
+  const ams = Float64Array.from(atoms, (a) => a.p * Math.exp(-beta * (a.x - lo)));
   return (t: Float64Array, re: Float64Array, im: Float64Array, noise?: Float64Array) => {
     if (noise) noise.fill(base);
     model.dampedLogCf!(beta, t, re, im);
@@ -44,11 +47,11 @@ export function psiOf(model: CompiledModel, atoms: Atom[], beta: number, pairOut
       const ph = im[k] - t[k] * lo;
       let r = m * Math.cos(ph);
       let i = m * Math.sin(ph);
-      for (const a of atoms) {
-        const d = a.x - lo;
-        const am = a.p * Math.exp(-beta * d);
-        r -= am * Math.cos(t[k] * d);
-        i -= am * Math.sin(t[k] * d);
+      for (let a = 0; a < ds.length; a++) {
+        const d = ds[a];
+        // cos 0 = 1 and sin 0 = 0 exactly: the same values without the calls
+        r -= d === 0 ? ams[a] : ams[a] * Math.cos(t[k] * d);
+        i -= d === 0 ? 0 : ams[a] * Math.sin(t[k] * d);
       }
       re[k] = r;
       im[k] = i;
