@@ -1,0 +1,221 @@
+// The pareto severity's CF by quadrature on a rotated contour, per frequency and for equispaced frequencies at once.
+import { lgamma } from "./special";
+import { cumulantList, rawToCumulants, type Node } from "../node";
+import { fromPhiDamped } from "../damped-cf";
+import { arithmeticNodes, expSumArithmetic, fromPhi } from "./cf-quadrature";
+import { paretoExpansion, paretoSeries } from "./asymptotic";
+import { MAX_QUADRATURE_NODES, logFromSums, quadratureNodes, ruleRounding } from "./numeric-rule";
+import { KahanComplex } from "./kahan";
+import { checkDeadline } from "../deadline";
+import { scratch } from "../damped-scratch";
+
+/**
+ * Pareto(alpha, xm): phi(t) = e^{i t xm} int_0^inf e^{i t s} alpha xm^alpha (xm + s)^{-alpha-1} ds. For t > 0 the path is
+ * rotated to s = i r (Jordan's lemma), giving phi(t) = e^{i t xm} (i alpha / tau) int_0^inf e^{-u} (1 + i u/tau)^{-alpha-1} du,
+ * tau = xm t; computed with u = e^v by the trapezoidal rule (strip |Im v| < pi/4), its error derived in paretoRuleError.
+ * The nodes run from v = -40, and further down to log |tau| - 40 - log max(alpha, 1) for small |tau| (an extension built
+ * on demand): the terms below the range sum to at most e^{v_lo} (each at most h e^v, as |1 + i u / tau| >= 1), which the
+ * prefactor alpha / |tau| would otherwise lift past any fixed bound (at t = 1e-12 the fixed range was off by 1e-5).
+ */
+/**
+ * The Pareto rule's own error on phi, every route and every tau (u = e^v, or u = tau r on the equispaced route, with the
+ * same step h and strip |Im v| < a = pi/4). On the strip |e^{v - e^v}| <= e^{Re v} and |1 + i rho e^{i gamma}| >=
+ * max(1/sqrt 2, rho - 1) (gamma within pi/4 of the right half-plane's directions), so int |f| <= |tau| sqrt(2)^q
+ * (1 + 1/sqrt 2 + 1/(sqrt 2 alpha)) (in rho = e^{Re v} / |tau|), which the prefactor alpha / |tau| turns into
+ * sqrt(2)^q (1.7072 alpha + 0.7072): the aliasing error is at most twice that over e^{2 pi a/h} - 1 (Trefethen & Weideman
+ * 2014, SIAM Review 56(3), thm 5.1). Below the range: e^{v_lo} alpha / |tau| <= e^-40 (v_lo chosen so, see pareto);
+ * above u = 45: alpha / |tau| int_45^inf e^{-u} min(1, (|tau| / u)^q) du <= alpha e^-45 / 45. exp within one ulp (the
+ * project's standing assumption), 1 + 16 eps.
+ */
+function paretoRuleError(alpha: number, h: number): number {
+  const q = alpha + 1;
+  // sqrt(2)^q / (e^{pi^2/(2h)} - 1) in logs (sqrt(2)^q overflows for large alpha; the step keeps the ratio small)
+  const alias = 2 * (1.7072 * alpha + 0.7072) * Math.exp(0.5 * q * Math.LN2 - (Math.PI * Math.PI) / (2 * h)) / -Math.expm1(-(Math.PI * Math.PI) / (2 * h));
+  return (alias + Math.exp(-40) + (alpha * Math.exp(-45)) / 45) * (1 + 16 * Number.EPSILON);
+}
+
+export function pareto(alpha: number, xm: number): Node {
+  // log(2 M), M = sqrt(2)^(alpha + 2), without forming M (it overflows past alpha ~ 2044)
+  const log2M = Math.LN2 + (alpha + 2) * 0.5 * Math.LN2;
+  const h = Math.min(0.15, (Math.PI * Math.PI) / 2 / (40 + log2M));
+  const vLo = -40;
+  const vHi = Math.log(45);
+  const n = quadratureNodes(Math.ceil((vHi - vLo) / h) + 1, `the tail index alpha = ${alpha}`, "use a tail index up to 3e5 (a larger one is a point mass at the minimum to double precision).");
+  const ev = new Float64Array(n);
+  const wv = new Float64Array(n);
+  for (let j = 0; j < n; j++) {
+    const vv = vLo + j * h;
+    ev[j] = Math.exp(vv);
+    wv[j] = h * Math.exp(vv - ev[j]);
+  }
+  const q = alpha + 1;
+  // the nodes below v = -40, v = -40 - k h (k = 1, 2, ...), built as far down as a call has needed
+  const lowU: number[] = [];
+  const lowW: number[] = [];
+  const lowFor = (tau: number) => {
+    const vNeed = Math.log(tau) - 40 - Math.log(Math.max(alpha, 1));
+    if (!(vNeed < vLo)) return 0;
+    const k = quadratureNodes(n + Math.ceil((vLo - vNeed) / h), `the pareto CF at t = ${tau / xm}`, "use a larger t.") - n;
+    for (let j = lowU.length + 1; j <= k; j++) {
+      const vv = vLo - j * h;
+      const u = Math.exp(vv);
+      lowU.push(u);
+      lowW.push(h * Math.exp(vv - u));
+    }
+    return k;
+  };
+  // at complex tau = xm (x + i beta) the same rotated integral holds (the path direction i / tau stays in the
+  // right half-plane); (1 + i u / tau) and the factor (i alpha / tau) e^{i tau} in complex arithmetic, with tau's
+  // direction (cr, ci) = (tr, ti) / |tau| so that nothing squares a small |tau|
+  const acc = new KahanComplex();
+  const phiAt = (x: number, beta: number, out: Float64Array) => {
+    const tr = xm * x;
+    const ti = xm * beta;
+    const tau = Math.hypot(tr, ti);
+    const cr = tr / tau;
+    const ci = ti / tau;
+    acc.reset();
+    if (!(tau > 40 + 3 * alpha && paretoSeries(alpha, tau, Math.atan2(ti, tr), out))) {
+      const term = (u: number, w: number) => {
+        const ut = u / tau;
+        const wr = 1 + ut * ci;
+        const wi = ut * cr;
+        const mag = w * Math.exp(-0.5 * q * Math.log(wr * wr + wi * wi));
+        const ph = -q * Math.atan2(wi, wr);
+        acc.addPolar(mag, ph);
+      };
+      for (let j = lowFor(tau) - 1; j >= 0; j--) term(lowU[j], lowW[j]);
+      for (let j = 0; j < n; j++) term(ev[j], wv[j]);
+      out[0] = acc.re;
+      out[1] = acc.im;
+    }
+    // multiply by i alpha conj(tau) / |tau|^2 = alpha (ti + i tr) / |tau|^2, then by e^{i tau} = e^{-ti} e^{i tr}
+    const fr = (alpha * ci) / tau;
+    const fi = (alpha * cr) / tau;
+    const ar = out[0] * fr - out[1] * fi;
+    const ai = out[0] * fi + out[1] * fr;
+    const e = Math.exp(-ti);
+    const c = Math.cos(tr) * e;
+    const sn = Math.sin(tr) * e;
+    out[0] = ar * c - ai * sn;
+    out[1] = ar * sn + ai * c;
+  };
+  // equispaced t (the inversion's nodes): with u = tau r the same integral is a Laplace transform,
+  // phi(t) = e^{i tau} i alpha int_0^inf e^{-tau r} (1 + i r)^{-alpha-1} dr, and with r = e^v the trapezoidal rule
+  // of the same step h (the same strip and bound, on a shifted grid) has nodes that do not depend on tau: the sum
+  // over j of h r_j (1 + i r_j)^{-alpha-1} exp(-tau r_j) goes to expSumArithmetic. Range: the part r < r_lo is below
+  // alpha r_lo <= 1e-19; beyond r_hi, below alpha min(e^{-tau r_hi}/tau, r_hi^{-alpha}/alpha) <= 1e-19 at the
+  // smallest tau.
+  // damped (beta > 0): at tau = xm (t + i beta) the same Laplace form holds while Re(tau r) >= 0 on the rule's strip
+  // |arg r| < pi/4, i.e. arg tau <= pi/4 (t >= beta), where |exp(-tau r)| <= 1 as at real tau: the same step and bound.
+  // exp(-tau r_j) = exp(-xm t r_j) exp(-i xm beta r_j), the second factor folded into the weights (its phase rounds within
+  // u xm beta r_j of a term of size exp(-xm t r_j) <= exp(-xm beta r_j): below u / e of |c_j|), and the prefactor
+  // e^{i tau} = e^{i xm t} e^{-xm beta}.
+  // `rect`: phi itself into re, im (no log: a Poisson compound takes it as it is)
+  const logCfArithmetic = (t: Float64Array, re: Float64Array, im: Float64Array, beta = 0, rect = false) => {
+    const K = t.length;
+    const tauMin = xm * t[0];
+    const rLo = 1e-19 / alpha;
+    const rHi = Math.max(1, Math.min((Math.log(alpha / tauMin) + 19 * Math.LN10) / tauMin, Math.pow(1e19, 1 / alpha)));
+    const v0 = Math.log(rLo);
+    const m = Math.ceil((Math.log(rHi) - v0) / h) + 1;
+    // extreme tail indices (range empty or too long): the rule per frequency
+    if (!(m >= 2 && m <= MAX_QUADRATURE_NODES)) return rect ? rectPhi(beta, t, re, im) : fromPhi(t, re, im, (x, out) => phiAt(x, beta, out));
+    const cRe = new Float64Array(m);
+    const cIm = new Float64Array(m);
+    const e = new Float64Array(m);
+    for (let j = 0; j < m; j++) {
+      const r = Math.exp(v0 + j * h);
+      // (1 + i r)^{-q} = (1 + r^2)^{-q/2} e^{-i q atan r}, times e^{-i xm beta r}
+      const mag = h * r * Math.exp(-0.5 * q * Math.log1p(r * r));
+      const ph = -q * Math.atan(r) - xm * beta * r;
+      cRe[j] = mag * Math.cos(ph);
+      cIm[j] = mag * Math.sin(ph);
+      e[j] = r;
+    }
+    // reused buffers (../damped-scratch.ts), read before this returns
+    const sr = scratch("expSr", K);
+    const si = scratch("expSi", K);
+    expSumArithmetic(cRe, cIm, e, -xm, 0, t, sr, si);
+    // times i alpha e^{i tau}
+    if (!rect) return logFromSums(t, sr, si, re, im, Math.log(alpha) - xm * beta, Math.PI / 2, xm);
+    const g = alpha * Math.exp(-xm * beta);
+    for (let k = 0; k < K; k++) {
+      const c = Math.cos(xm * t[k]);
+      const s = Math.sin(xm * t[k]);
+      // i (sr + i si) = -si + i sr
+      re[k] = g * (-si[k] * c - sr[k] * s);
+      im[k] = g * (-si[k] * s + sr[k] * c);
+    }
+  };
+  const perFrequency = fromPhiDamped(phiAt);
+  // phi at each t by its own rule (t < 0 by conjugation), rectangular
+  const tmp = new Float64Array(2);
+  const rectPhi = (beta: number, t: Float64Array, re: Float64Array, im: Float64Array) => {
+    for (let k = 0; k < t.length; k++) {
+      if ((k & 15) === 0) checkDeadline("cf-quadrature");
+      phiAt(Math.abs(t[k]), beta, tmp);
+      re[k] = tmp[0];
+      im[k] = t[k] < 0 ? -tmp[1] : tmp[1];
+    }
+  };
+  // the damped route's equispaced frequencies: those below beta (and t <= 0) per frequency, the rest by the fixed nodes
+  const dampedLogCf = (beta: number, t: Float64Array, re: Float64Array, im: Float64Array) => {
+    let k0 = 0;
+    while (k0 < t.length && !(t[k0] > 0 && t[k0] >= beta)) k0++;
+    const tail = t.subarray(k0);
+    if (!(beta >= 0) || !arithmeticNodes(tail)) return perFrequency(beta, t, re, im);
+    if (k0 > 0) perFrequency(beta, t.subarray(0, k0), re.subarray(0, k0), im.subarray(0, k0));
+    logCfArithmetic(tail, re.subarray(k0), im.subarray(k0), beta);
+  };
+  // the same routes, phi rectangular (the prefactor's phase tau = xm t taken by cos and sin: within u tau, covered as above)
+  const dampedCf = (beta: number, t: Float64Array, re: Float64Array, im: Float64Array) => {
+    let k0 = 0;
+    while (k0 < t.length && !(t[k0] > 0 && t[k0] >= beta)) k0++;
+    const tail = t.subarray(k0);
+    if (!(beta >= 0) || !arithmeticNodes(tail)) return rectPhi(beta, t, re, im);
+    if (k0 > 0) rectPhi(beta, t.subarray(0, k0), re.subarray(0, k0), im.subarray(0, k0));
+    logCfArithmetic(tail, re.subarray(k0), im.subarray(k0), beta, true);
+  };
+  // sum_j |c_j| ~ int_0^inf (1 + r^2)^{-q/2} dr = (sqrt(pi)/2) Gamma(alpha/2) / Gamma((alpha+1)/2) (DLMF 5.12.1 with
+  // r^2 = s / (1 - s)), 1% added for the rule; times alpha for the prefactor, in logs (Gamma(alpha/2) ~ 2/alpha overflows
+  // for alpha near the smallest doubles while alpha Gamma(alpha/2) stays near 2)
+  const aSum = 1.01 * 0.5 * Math.sqrt(Math.PI) * Math.exp(Math.log(alpha) + lgamma(alpha / 2) - lgamma((alpha + 1) / 2));
+  // Rounding (units of u, relative to each term): |1 + i u/tau|^2 and its log times q/2 (2 q + 4), the phase q atan2
+  // (2 q pi/2), exp, cos, sin and the products (8); the prefactor and e^{i tau} (8, and the phase tau within u tau, which
+  // |phi| <= alpha / tau turns into alpha u); then the sum of n terms, whose moduli times alpha / |tau| sum to at most
+  // aSum as the integral does (ruleRounding); the fixed nodes' shortcuts (expSumArithmetic: 80 eps and e/25! of aSum) and,
+  // damped, their folded phase (below u / e of each weight: one eps more)
+  // the large-t series answers where its remainder (below its first omitted term, each factor (1 + i u/tau)^{-q-j} of
+  // Watson's remainder at most 1 in modulus) is below 1e-16 of its sum times alpha / tau < 1/3
+  const cfError =
+    paretoRuleError(alpha, h) + 1e-16 / 3 + aSum * (2e-25 + 97 * Number.EPSILON) + ruleRounding(n + Math.ceil(710 / h), aSum, aSum * (16 + (2 + Math.PI) * q)) + alpha * Number.EPSILON;
+  const raw = (m: number) => (alpha * xm ** m) / (alpha - m);
+  return {
+    kind: { type: "continuous" },
+    momentIndex: alpha,
+    tails: { left: Infinity, right: alpha },
+    nodes: 1,
+    notes: [`pareto CF computed by quadrature on a rotated contour (absolute error <= ${cfError.toPrecision(2)})`],
+    cfAbsError: cfError,
+    dampedLogCf,
+    dampedCf,
+    laplaceExpansion: paretoExpansion(alpha, xm),
+    // density alpha xm^alpha x^(-alpha-1) on [xm, inf), sf (xm/x)^alpha (JKB vol. 1, ch. 20)
+    severity: {
+      name: "pareto",
+      pdf: (x) => (x >= xm ? (alpha / xm) * Math.exp(-(alpha + 1) * Math.log(x / xm)) : 0),
+      lo: xm,
+      upper: (q) => xm * q ** (-1 / alpha),
+      scale: xm,
+      rootAtZero: 1,
+      tailIndex: alpha,
+    },
+    location: alpha > 1 ? raw(1) : xm * 2 ** (1 / alpha),
+    scale: alpha > 2 ? Math.sqrt(raw(2) - raw(1) ** 2) : xm,
+    support: [xm, Infinity],
+    logCf: (t, re, im) => (arithmeticNodes(t) ? logCfArithmetic(t, re, im) : fromPhi(t, re, im, (x, out) => phiAt(x, 0, out))),
+    // E X^n = alpha xm^n / (alpha - n), n < alpha (JKB vol. 1, ch. 20)
+    cumulants: (m) => rawToCumulants(cumulantList(m, alpha, raw)),
+  };
+}
