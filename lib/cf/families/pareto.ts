@@ -34,6 +34,13 @@ function paretoRuleError(alpha: number, h: number): number {
   return (alias + Math.exp(-40) + (alpha * Math.exp(-45)) / 45) * (1 + 16 * Number.EPSILON);
 }
 
+/** t strictly ascending and positive (the per-frequency Laplace sums take their nodes from the smallest) */
+function ascending(t: Float64Array): boolean {
+  if (!(t.length > 0 && t[0] > 0)) return false;
+  for (let k = 1; k < t.length; k++) if (!(t[k] > t[k - 1])) return false;
+  return true;
+}
+
 export function pareto(alpha: number, xm: number): Node {
   // log(2 M), M = sqrt(2)^(alpha + 2), without forming M (it overflows past alpha ~ 2044)
   const log2M = Math.LN2 + (alpha + 2) * 0.5 * Math.LN2;
@@ -111,16 +118,14 @@ export function pareto(alpha: number, xm: number): Node {
   // exp(-tau r_j) = exp(-xm t r_j) exp(-i xm beta r_j), the second factor folded into the weights (its phase rounds within
   // u xm beta r_j of a term of size exp(-xm t r_j) <= exp(-xm beta r_j): below u / e of |c_j|), and the prefactor
   // e^{i tau} = e^{i xm t} e^{-xm beta}.
-  // `rect`: phi itself into re, im (no log: a Poisson compound takes it as it is)
-  const logCfArithmetic = (t: Float64Array, re: Float64Array, im: Float64Array, beta = 0, rect = false) => {
-    const K = t.length;
-    const tauMin = xm * t[0];
+  // the fixed nodes r_j and weights c_j of that rule for frequencies from tauMin = xm t_min on; null where the range is
+  // empty or too long (extreme tail indices: the rule per frequency instead)
+  const laplaceNodes = (tauMin: number, beta: number) => {
     const rLo = 1e-19 / alpha;
     const rHi = Math.max(1, Math.min((Math.log(alpha / tauMin) + 19 * Math.LN10) / tauMin, Math.pow(1e19, 1 / alpha)));
     const v0 = Math.log(rLo);
     const m = Math.ceil((Math.log(rHi) - v0) / h) + 1;
-    // extreme tail indices (range empty or too long): the rule per frequency
-    if (!(m >= 2 && m <= MAX_QUADRATURE_NODES)) return rect ? rectPhi(beta, t, re, im) : fromPhi(t, re, im, (x, out) => phiAt(x, beta, out));
+    if (!(m >= 2 && m <= MAX_QUADRATURE_NODES)) return null;
     const cRe = new Float64Array(m);
     const cIm = new Float64Array(m);
     const e = new Float64Array(m);
@@ -133,20 +138,69 @@ export function pareto(alpha: number, xm: number): Node {
       cIm[j] = mag * Math.sin(ph);
       e[j] = r;
     }
-    // reused buffers (../damped-scratch.ts), read before this returns
-    const sr = scratch("expSr", K);
-    const si = scratch("expSi", K);
-    expSumArithmetic(cRe, cIm, e, -xm, 0, t, sr, si);
-    // times i alpha e^{i tau}
+    return { cRe, cIm, e };
+  };
+  // times i alpha e^{i tau}: log phi (the phase unwrapped along t) or, `rect`, phi itself
+  const fromSums = (t: Float64Array, sr: Float64Array, si: Float64Array, re: Float64Array, im: Float64Array, beta: number, rect: boolean) => {
     if (!rect) return logFromSums(t, sr, si, re, im, Math.log(alpha) - xm * beta, Math.PI / 2, xm);
     const g = alpha * Math.exp(-xm * beta);
-    for (let k = 0; k < K; k++) {
+    for (let k = 0; k < t.length; k++) {
       const c = Math.cos(xm * t[k]);
       const s = Math.sin(xm * t[k]);
       // i (sr + i si) = -si + i sr
       re[k] = g * (-si[k] * c - sr[k] * s);
       im[k] = g * (-si[k] * s + sr[k] * c);
     }
+  };
+  // `rect`: phi itself into re, im (no log: a Poisson compound takes it as it is)
+  const logCfArithmetic = (t: Float64Array, re: Float64Array, im: Float64Array, beta = 0, rect = false) => {
+    const K = t.length;
+    const nodes = laplaceNodes(xm * t[0], beta);
+    if (!nodes) return rect ? rectPhi(beta, t, re, im) : fromPhi(t, re, im, (x, out) => phiAt(x, beta, out));
+    const { cRe, cIm, e } = nodes;
+    // reused buffers (../damped-scratch.ts), read before this returns
+    const sr = scratch("expSr", K);
+    const si = scratch("expSi", K);
+    expSumArithmetic(cRe, cIm, e, -xm, 0, t, sr, si);
+    fromSums(t, sr, si, re, im, beta, rect);
+  };
+  // t >= beta > 0 ascending but not equispaced (a plan's geometric probe): below the series' reach the same nodes and
+  // weights summed at each frequency on its own (compensated, every node: no recurrence and no shortcut, so within the
+  // equispaced route's bound; exp(-xm t r_j) from its argument as the recurrence's restarts take it), one exp a node in
+  // place of the u-rule's log, atan2, exp, cos and sin; the series' frequencies (tau > 40 + 3 alpha) by phiAt as before
+  const laplaceEach = (t: Float64Array, re: Float64Array, im: Float64Array, beta: number, rect: boolean): boolean => {
+    const K = t.length;
+    let kEnd = 0;
+    while (kEnd < K && xm * t[kEnd] <= 40 + 3 * alpha) kEnd++;
+    const nodes = kEnd > 0 ? laplaceNodes(xm * t[0], beta) : null;
+    if (!nodes) return false;
+    const { cRe, cIm, e } = nodes;
+    const sr = scratch("expSr", kEnd);
+    const si = scratch("expSi", kEnd);
+    for (let k = 0; k < kEnd; k++) {
+      if ((k & 15) === 0) checkDeadline("cf-quadrature");
+      const w = -xm * t[k];
+      let ar = 0;
+      let ai = 0;
+      let cr = 0;
+      let ci = 0;
+      for (let j = 0; j < e.length; j++) {
+        const x = Math.exp(w * e[j]);
+        const yr = cRe[j] * x - cr;
+        const tr = ar + yr;
+        cr = tr - ar - yr;
+        ar = tr;
+        const yi = cIm[j] * x - ci;
+        const ti = ai + yi;
+        ci = ti - ai - yi;
+        ai = ti;
+      }
+      sr[k] = ar;
+      si[k] = ai;
+    }
+    fromSums(t.subarray(0, kEnd), sr, si, re.subarray(0, kEnd), im.subarray(0, kEnd), beta, rect);
+    if (kEnd < K) (rect ? rectPhi : perFrequency)(beta, t.subarray(kEnd), re.subarray(kEnd), im.subarray(kEnd));
+    return true;
   };
   const perFrequency = fromPhiDamped(phiAt);
   // phi at each t by its own rule (t < 0 by conjugation), rectangular
@@ -164,18 +218,22 @@ export function pareto(alpha: number, xm: number): Node {
     let k0 = 0;
     while (k0 < t.length && !(t[k0] > 0 && t[k0] >= beta)) k0++;
     const tail = t.subarray(k0);
-    if (!(beta >= 0) || !arithmeticNodes(tail)) return perFrequency(beta, t, re, im);
+    const each = beta >= 0 && !arithmeticNodes(tail) && ascending(tail);
+    if (!(beta >= 0) || (!arithmeticNodes(tail) && !each)) return perFrequency(beta, t, re, im);
     if (k0 > 0) perFrequency(beta, t.subarray(0, k0), re.subarray(0, k0), im.subarray(0, k0));
-    logCfArithmetic(tail, re.subarray(k0), im.subarray(k0), beta);
+    if (!each) logCfArithmetic(tail, re.subarray(k0), im.subarray(k0), beta);
+    else if (!laplaceEach(tail, re.subarray(k0), im.subarray(k0), beta, false)) perFrequency(beta, tail, re.subarray(k0), im.subarray(k0));
   };
   // the same routes, phi rectangular (the prefactor's phase tau = xm t taken by cos and sin: within u tau, covered as above)
   const dampedCf = (beta: number, t: Float64Array, re: Float64Array, im: Float64Array) => {
     let k0 = 0;
     while (k0 < t.length && !(t[k0] > 0 && t[k0] >= beta)) k0++;
     const tail = t.subarray(k0);
-    if (!(beta >= 0) || !arithmeticNodes(tail)) return rectPhi(beta, t, re, im);
+    const each = beta >= 0 && !arithmeticNodes(tail) && ascending(tail);
+    if (!(beta >= 0) || (!arithmeticNodes(tail) && !each)) return rectPhi(beta, t, re, im);
     if (k0 > 0) rectPhi(beta, t.subarray(0, k0), re.subarray(0, k0), im.subarray(0, k0));
-    logCfArithmetic(tail, re.subarray(k0), im.subarray(k0), beta, true);
+    if (!each) logCfArithmetic(tail, re.subarray(k0), im.subarray(k0), beta, true);
+    else if (!laplaceEach(tail, re.subarray(k0), im.subarray(k0), beta, true)) rectPhi(beta, tail, re.subarray(k0), im.subarray(k0));
   };
   // sum_j |c_j| ~ int_0^inf (1 + r^2)^{-q/2} dr = (sqrt(pi)/2) Gamma(alpha/2) / Gamma((alpha+1)/2) (DLMF 5.12.1 with
   // r^2 = s / (1 - s)), 1% added for the rule; times alpha for the prefactor, in logs (Gamma(alpha/2) ~ 2/alpha overflows
