@@ -65,6 +65,8 @@ function heaviestTerm(cs: Node[]): TailTerm | null {
     direct: shift === 0 ? D.direct : affineDirect(D.direct, 1, shift),
     shift,
     mean: dm === null || !Number.isFinite(dm) ? NaN : dm,
+    // G = D + shift with this very shift: only D's mean carries an error
+    meanError: dm === null || !Number.isFinite(dm) ? Infinity : (cumulantEst(D, 1)[0]?.e ?? Infinity),
     tails: D.tails,
     remainderAlpha: Math.min(...indices),
     indices,

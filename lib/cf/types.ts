@@ -128,6 +128,8 @@ export interface TailTerm {
   shift: number;
   /** E[D] (NaN when infinite) */
   mean: number;
+  /** the derived bound on E[D]'s error (Infinity where none is known) */
+  meanError: number;
   tails: { left: number; right: number };
   /** power-tail index of what is left: the smallest of `indices` */
   remainderAlpha: number;

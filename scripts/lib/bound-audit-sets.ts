@@ -5,6 +5,7 @@ import { quantiles } from "@/lib/cf/invert/quantile";
 import { density } from "@/lib/cf/invert/density";
 import type { Model } from "@/lib/cf/types";
 import { compiled, DOUBLE, guarded, levels, num, points, push, rawMoments, read, samples } from "./bound-audit-core";
+import { directShortfall } from "./bound-audit-shortfall";
 // ---- the fixture sets --------------------------------------------------------------------------------------
 
 function directFamilies() {
@@ -348,6 +349,7 @@ function directVgNig() {
 export const SETS: [string, () => void][] = [
   ["direct/families", directFamilies],
   ["direct/vg-nig", directVgNig],
+  ["direct/shortfall", directShortfall],
   ["reference-families", referenceFamilies],
   ["reference-truncnorm", truncnorm],
   ["reference-counts", counts],

@@ -183,6 +183,8 @@ export function directQuantiles(
   wantEs: boolean,
   index: { left: number; right: number },
   mean: number | null,
+  /** the mean's derived bound (Infinity where none is known) */
+  meanErr: number,
   modelNotes: string[],
   rest?: RestBound,
 ): QuantileResult {
@@ -204,7 +206,7 @@ export function directQuantiles(
   let esErr: Float64Array | undefined;
   if (wantEs) {
     // the levels on each side of the median share one sweep of the tail (./shortfall.ts)
-    const r = directShortfalls(law, x, err, p, index, mean, rest);
+    const r = directShortfalls(law, x, err, p, index, mean, meanErr, rest);
     es = r.value;
     esErr = r.error;
   }

@@ -24,16 +24,19 @@ export function directShortfall(
   p: number,
   index: { left: number; right: number },
   mean: number | null,
+  meanErr: number,
   rest?: RestBound,
 ): { value: number; error: number } {
-  const r = directShortfalls(law, [q], [qErr], [p], index, mean, rest);
+  const r = directShortfalls(law, [q], [qErr], [p], index, mean, meanErr, rest);
   return { value: r.value[0], error: r.error[0] };
 }
 
 /**
  * Expected shortfall ES_p = q + E[(X - q)^+]/(1 - p) (Acerbi & Tasche 2002) at each level p[i] with its quantile q[i]
  * (within qErr[i]). Above the median E[(X - q)^+] = int_q^inf S(y) dy; below it, where that integral would be most of the
- * mean and ES a small difference, E[(X - q)^+] = (mean - q) + int_-inf^q F(y) dy. A law with its own stop-loss transform
+ * mean and ES a small difference, E[(X - q)^+] = (mean - q) + int_-inf^q F(y) dy, the mean within meanErr (its derived
+ * bound: a mean taken as exact left ES below the median up to 4x its bound, weibull(0.7, 3) at 1e-4; where no bound is
+ * known, Infinity, the levels below the median take the upper integral too). A law with its own stop-loss transform
  * at q (DirectLaw.stopLoss) gives the tail integral and its bound. Else the levels on each side share one sweep of
  * derived brackets (./shortfall-sweep.ts) with a node at each level's quantile: the value is its panels' corrected
  * trapezoid sum, the error the distance to the farther end of its bracket, never an estimate.
@@ -46,6 +49,7 @@ export function directShortfalls(
   p: ArrayLike<number>,
   index: { left: number; right: number },
   mean: number | null,
+  meanErr: number,
   rest?: RestBound,
 ): { value: Float64Array; error: Float64Array } {
   const n = q.length;
@@ -53,6 +57,8 @@ export function directShortfalls(
   const error = new Float64Array(n).fill(NaN);
   const tails = new Array<TailIntegral | null>(n).fill(null);
   const sides: Record<1 | -1, number[]> = { 1: [], [-1]: [] };
+  // below the median through the lower tail only with a bounded mean
+  const lowerOk = index.left > 1 && mean !== null && Number.isFinite(meanErr);
   for (let i = 0; i < n; i++) {
     if (p[i] >= 1) {
       value[i] = q[i];
@@ -64,7 +70,7 @@ export function directShortfalls(
       error[i] = Infinity;
       continue;
     }
-    const dir = p[i] < 0.5 && index.left > 1 ? -1 : 1;
+    const dir = p[i] < 0.5 && lowerOk ? -1 : 1;
     // a law with its own stop-loss transform at q answers the tail integral from it, value and bound
     const own = law.stopLoss?.(q[i], dir);
     if (own && Number.isFinite(own.v) && Number.isFinite(own.e)) tails[i] = { val: own.v, lo: own.v - own.e, hi: own.v + own.e, whole: true };
@@ -81,7 +87,7 @@ export function directShortfalls(
   for (let i = 0; i < n; i++) {
     const t = tails[i];
     if (!t) continue;
-    const lower = p[i] < 0.5 && index.left > 1;
+    const lower = p[i] < 0.5 && lowerOk;
     law.at(q[i], pt);
     const fq = pt.pdf + pt.pdfErr;
     // a sweep that ran out of panels (a law without its mode: monotone bounds only) or of a bound on what lies past
@@ -90,12 +96,12 @@ export function directShortfalls(
     const w = 1 - p[i];
     const excess = lower ? mean! - q[i] + A : A;
     value[i] = q[i] + excess / w;
-    const meanErr = lower ? 4 * Number.EPSILON * (Math.abs(mean!) + Math.abs(q[i])) : 0;
+    const meanPart = lower ? meanErr + 4 * Number.EPSILON * (Math.abs(mean!) + Math.abs(q[i])) : 0;
     const quad = Math.max(A - t.lo, t.hi - A) + 8 * Number.EPSILON * Math.abs(A);
     // ES(q') - ES(q) = (q' - q)(1 - S(xi)/(1 - p)) for xi between: second order in |q' - q| <= qErr
     // (an exact quantile adds nothing, even where the density is infinite there)
     const move = qErr[i] > 0 ? (2 * fq * qErr[i] * qErr[i]) / w : 0;
-    error[i] = (quad + meanErr) / w + move + 4 * Number.EPSILON * Math.abs(value[i]);
+    error[i] = (quad + meanPart) / w + move + 4 * Number.EPSILON * Math.abs(value[i]);
   }
   return { value, error };
 }

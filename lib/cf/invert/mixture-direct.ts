@@ -9,6 +9,8 @@ export function directComponent(w: number, m: CompiledModel): Component {
   const law = m.direct!;
   const pt = directPoint();
   const mean = m.momentIndex > 1 ? m.cumulants(1)[0] : null;
+  // formed at the first ES asked (Infinity where no bound is known: the shortfall then takes the upper tail's integral)
+  let meanErr: number | undefined;
   // the derived bound on the tail past the shortfall sweep's last node, formed at the first ES asked
   let rest: RestBound | null | undefined;
   const at = (x: number): Value => {
@@ -31,8 +33,9 @@ export function directComponent(w: number, m: CompiledModel): Component {
     }
     if (inside.length === 0) return out;
     if (rest === undefined) rest = momentRest(m) ?? null;
+    if (meanErr === undefined) meanErr = m.cumulantErrors?.(1)[0] ?? Infinity;
     const sub = inside.map((i) => qs[i]);
-    const r = directShortfalls(law, sub, new Float64Array(sub.length), inside.map((i) => ps[i]), m.tails, mean, rest ?? undefined);
+    const r = directShortfalls(law, sub, new Float64Array(sub.length), inside.map((i) => ps[i]), m.tails, mean, meanErr, rest ?? undefined);
     inside.forEach((i, k) => {
       const tail = 1 - ps[i];
       out[i] = { value: (r.value[k] - qs[i]) * tail, error: r.error[k] * tail + 4 * Number.EPSILON * Math.abs(qs[i]) };

@@ -72,7 +72,8 @@ function quantilesOf(model: CompiledModel, pIn: ArrayLike<number>, options: Quan
   // a single named law (or scaled / shifted) with a direct evaluation: no inversion
   if (model.direct) {
     const mean = model.momentIndex > 1 ? model.cumulants(1)[0] : null;
-    return directQuantiles(model.direct, p, options.expectedShortfall ?? false, model.tails, mean, model.notes, options.expectedShortfall ? momentRest(model) : undefined);
+    const meanErr = mean === null ? Infinity : (model.cumulantErrors?.(1)[0] ?? Infinity);
+    return directQuantiles(model.direct, p, options.expectedShortfall ?? false, model.tails, mean, meanErr, model.notes, options.expectedShortfall ? momentRest(model) : undefined);
   }
   const kind = model.kind;
   if (kind.type === "lattice") return withModelNotes(model, latticeQuantiles(model, kind.origin, kind.step, p, options));

@@ -310,7 +310,7 @@ export function heavyShortfall(
       const pt = directPoint();
       G.direct.at(q, pt);
       const lv = pt.cdf < 0.5 ? 0.25 : 0.5;
-      const r = directShortfall(G.direct, q, 0, lv, G.tails, G.mean + G.shift, G.rest ? (u, side) => G.rest!(u, side) : undefined);
+      const r = directShortfall(G.direct, q, 0, lv, G.tails, G.mean + G.shift, G.meanError, G.rest ? (u, side) => G.rest!(u, side) : undefined);
       kernelPart += (r.value - q) * (1 - lv);
       gErr = r.error * (1 - lv) + 4 * Number.EPSILON * Math.abs(r.value);
     }

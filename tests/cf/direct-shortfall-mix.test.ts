@@ -1,0 +1,46 @@
+// Expected shortfall of directly evaluated laws, per-claim layers and 2-3 component mixtures of them against mpmath
+// (tests/fixtures/shortfall/generate.py, 40 digits: the quantile by Newton's method on F or S, then the stop-loss transform
+// as a closed form, partial moment or normal-mixture integral, checked by the quadrature of S; the bound audit's
+// direct/shortfall set takes every level). Here a subset of levels in both tails: the value within its derived bound
+// (plus the reference's cross-check difference and 30 digits), and the bound not absurdly loose (at most 1e-5 of
+// max(|ES|, 1), as tests/cf/direct-shortfall.test.ts asks of single laws). A law without a finite ES must not be given one.
+import { describe, expect, it } from "vitest";
+import { readFileSync } from "node:fs";
+import { compile } from "@/lib/cf/compile";
+import { quantiles } from "@/lib/cf/invert/quantile";
+import type { Model } from "@/lib/cf/types";
+import { Checker } from "./invert-helpers";
+
+interface Row {
+  p: string;
+  q: string;
+  q_check: number;
+  es: string;
+  es_check: number;
+}
+const F = JSON.parse(readFileSync(new URL("../fixtures/shortfall/shortfall.json", import.meta.url), "utf8")) as { laws: { name: string; model: Model; levels: Row[] }[] };
+const SUBSET = ["0.0001", "0.01", "0.5", "0.99", "0.9999"];
+
+describe("ES of direct laws, layers and their mixtures vs mpmath (tests/fixtures/shortfall)", () => {
+  it.each(F.laws.map((l) => [l.name, l] as const))("%s", (_name, law) => {
+    const rows = law.levels.filter((r) => SUBSET.includes(r.p));
+    expect(rows.length, "the fixture has the subset's levels").toBe(SUBSET.length);
+    const r = quantiles(compile(law.model), rows.map((l) => Number(l.p)), { expectedShortfall: true });
+    const es = r.expectedShortfall!;
+    const err = r.diagnostics.expectedShortfallError!;
+    const c = new Checker();
+    rows.forEach((row, i) => {
+      if (row.es === "inf") {
+        c.that(`ES(${row.p})`, !Number.isFinite(es[i]), `answered ${es[i]} for a law without a finite ES`);
+        return;
+      }
+      const ref = Number(row.es);
+      const refErr = row.es_check + 1e-29 * Math.abs(ref) + 2 ** -53 * Math.abs(ref);
+      c.honest(`ES(${row.p})`, es[i], ref, err[i] + refErr);
+      c.that(`ES(${row.p}) bound`, err[i] <= 1e-5 * Math.max(Math.abs(ref), 1), `${err[i]} against |ES| ${ref}`);
+      // the quantile too, within its own bound and the root's residual
+      c.honest(`q(${row.p})`, r.x[i], Number(row.q), r.diagnostics.quantileError[i] + row.q_check + 1e-29 * Math.abs(Number(row.q)) + 2 ** -53 * Math.abs(Number(row.q)));
+    });
+    c.done();
+  });
+});
