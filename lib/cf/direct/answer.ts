@@ -221,7 +221,7 @@ export function directQuantiles(
       cdfError: maxCdf,
       quantileError: err,
       expectedShortfallError: esErr,
-      notes: [...law.notes, ...(wantEs && (index.right <= 1 || mean === null) ? ["expected shortfall does not exist: the law has no finite mean"] : []), ...modelNotes],
+      notes: [...law.notes, ...(wantEs && index.right <= 1 ? ["expected shortfall does not exist: the law's upper tail has no finite mean"] : []), ...modelNotes],
     },
   };
 }

@@ -40,7 +40,8 @@ export function directShortfall(
  * at q (DirectLaw.stopLoss) gives the tail integral and its bound. Else the levels on each side share one sweep of
  * derived brackets (./shortfall-sweep.ts) with a node at each level's quantile: the value is its panels' corrected
  * trapezoid sum, the error the distance to the farther end of its bracket, never an estimate.
- * A law without a finite mean (index <= 1) has no ES: NaN.
+ * A law whose upper tail has no finite mean (index.right <= 1) has no ES: NaN. One without a mean only through its lower
+ * tail (stable, alpha < 1, beta = -1: bounded above) has it, by the upper integral at every level (it was NaN).
  */
 export function directShortfalls(
   law: DirectLaw,
@@ -65,7 +66,7 @@ export function directShortfalls(
       error[i] = qErr[i];
       continue;
     }
-    if (index.right <= 1 || mean === null) continue;
+    if (index.right <= 1) continue;
     if (!Number.isFinite(q[i])) {
       error[i] = Infinity;
       continue;
