@@ -7,6 +7,19 @@
  */
 import { lgamma } from "./special";
 import { checkDeadline } from "../deadline";
+import { CfError } from "../errors";
+
+/** the most nodes a fixed rule may take (8 arrays of doubles: 256 MB); shapes past it are refused, not attempted */
+const MAX_RULE_NODES = 1 << 22;
+
+/** the node count of a rule, or a clear refusal where the shapes make it non-finite or past MAX_RULE_NODES */
+function ruleNodes(span: number, h: number, what: string): number {
+  const n = Math.ceil(span / h) + 1;
+  if (!(n >= 1 && n <= MAX_RULE_NODES)) {
+    throw new CfError("limit_exceeded", "/model", `the characteristic function's ${what} rule (beta, PERT, generalized Pareto with xi < 0) would need ${Number.isFinite(n) ? n.toExponential(2) : "unboundedly many"} nodes for these shapes (extremely small or large alpha, beta): outside what it can bound`);
+  }
+  return n;
+}
 
 const U = Number.EPSILON / 2;
 const LOG2 = Math.LN2;
@@ -74,7 +87,7 @@ export function raySet(p: number, q: number, sign: number, lB: number, eLB: numb
   const h = (2 * Math.PI * (Math.PI / 4)) / (40 + Math.max(Lc, 0));
   const vHi = Math.log(E) - Math.log(T);
   const vLo = (-42 - Math.max(0, Lc)) / p - Math.log(T);
-  const n = Math.ceil((vHi - vLo) / h) + 1;
+  const n = ruleNodes(vHi - vLo, h, "ray");
   const cRe = new Float64Array(n);
   const cIm = new Float64Array(n);
   const e = new Float64Array(n);
@@ -145,7 +158,7 @@ export function lineSet(alpha: number, beta: number, lB: number, eLB: number, T:
   const h = (2 * Math.PI * a) / (40 + Math.max(0, Lc));
   const sLo = (-42 - Math.max(0, -lB)) / alpha;
   const sHi = (42 + Math.max(0, -lB)) / beta;
-  const n = Math.ceil((sHi - sLo) / h) + 1;
+  const n = ruleNodes(sHi - sLo, h, "line");
   const m = new Float64Array(n);
   const x = new Float64Array(n);
   let round = 0;

@@ -5,6 +5,7 @@ import { triangularDist } from "./dist";
 import { checkDeadline } from "../deadline";
 import { arithmeticNodes } from "./cf-quadrature";
 import { betaUnit } from "./beta-unit";
+import { CfError } from "../errors";
 
 /** the most the recurrence of the batched rays (raysBatch) may add: a batch whose own bound is larger is not used */
 const BETA_BATCH_ERROR = 2e-14;
@@ -26,7 +27,16 @@ function betaRaw(alpha: number, beta: number, n: number): number[] {
  */
 export function betaLaw(alpha: number, beta: number, a: number, b: number, name = "beta"): Node {
   const w = b - a;
-  const unit = betaUnit(alpha, beta, BETA_BATCH_ERROR);
+  // shapes whose fixed rules would need unboundedly many nodes (alpha or beta near 0 or 1e300): the law keeps its moments
+  // and direct evaluation, and only a request for its characteristic function is refused, with the reason
+  let unit: ReturnType<typeof betaUnit> | null = null;
+  let refused: CfError | null = null;
+  try {
+    unit = betaUnit(alpha, beta, BETA_BATCH_ERROR);
+  } catch (e) {
+    if (!(e instanceof CfError)) throw e;
+    refused = e;
+  }
   const tmp = new Float64Array(2);
   const mean = a + (w * alpha) / (alpha + beta);
   const sd = (w * Math.sqrt((alpha * beta) / (alpha + beta + 1))) / (alpha + beta);
@@ -35,12 +45,13 @@ export function betaLaw(alpha: number, beta: number, a: number, b: number, name 
     momentIndex: Infinity,
     tails: { left: Infinity, right: Infinity },
     nodes: 1,
-    notes: [`${name} CF computed by series and quadrature (absolute error <= ${unit.cfError.toPrecision(2)})`],
-    cfAbsError: unit.cfError,
+    notes: [unit ? `${name} CF computed by series and quadrature (absolute error <= ${unit.cfError.toPrecision(2)})` : `${name} CF not available for these shapes: ${refused!.message}`],
+    cfAbsError: unit ? unit.cfError : Infinity,
     location: mean,
     scale: sd,
     support: [a, b],
     logCf(t, re, im) {
+      if (!unit) throw refused!;
       // equispaced t: from the first frequency on the rays' route every later one is on it too (contourLog falls with
       // tau); the rays are summed across t (raysBatch) from where the shortcuts' bound is within BETA_BATCH_ERROR
       checkDeadline("beta-cf");
