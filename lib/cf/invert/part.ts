@@ -57,8 +57,10 @@ export function cfUlps(model: CompiledModel): number {
 /** The model's typed bound on the absolute error of its CF values. */
 export function declaredCfError(model: CompiledModel): number {
   // |phi| <= 1: a relative error bound is an absolute one too
+  // a model that declares no finite bound (a compound of a numerical severity with a count without a mean) has none: it
+  // is not read as exact, so the inversion's bounds say so
   const e = (model.cfAbsError ?? 0) + (model.cfRelError ?? 0);
-  return Number.isFinite(e) ? e : 0;
+  return e >= 0 ? e : Infinity;
 }
 
 export function makePart(model: CompiledModel, atoms: Atom[], center: number): ContinuousPart {
