@@ -263,7 +263,7 @@ export function dampedSetup(model: CompiledModel, atoms: Atom[], R: number, o: D
   );
   notes.push(
     env.derived
-      ? "frequency truncation bounded from derived bounds on the transform's size and slope (from the severity density's derivatives), not from samples alone"
+      ? "frequency truncation bounded from derived bounds on the transform's size and slope (the claim law's transform in closed form or bounded through its density's derivatives), not from samples alone"
       : DAMPED_SAMPLED_NOTE,
   );
   if (model.dampedSeverity && model.dampedSeverity.w > 0)
