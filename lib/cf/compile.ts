@@ -68,26 +68,32 @@ export function buildNode(m: Model, opts: CompileOptions = {}): Node {
     // a term that is one point c (its support [c, c]: a point law, a compound whose count is 0) only moves the rest: the sum
     // is the rest shifted by c, which keeps the rest's own routes (a direct law, its tail term); where several such terms
     // add up, only when they sum exactly (all at 0, or one of them), so no rounding of the shift enters
-    const fixed = cs.filter((c) => c.support[0] === c.support[1] && Number.isFinite(c.support[0]));
-    const free = cs.filter((c) => !fixed.includes(c));
-    if (fixed.length > 0 && free.length > 0 && (fixed.length === 1 || fixed.every((c) => c.support[0] === 0))) {
-      const rest = free.length === 1 ? free[0] : buildNode_({ sum: m.sum.filter((_, j) => !fixed.includes(cs[j])) } as Model);
+    const isFixed = (c: Node) => c.support[0] === c.support[1] && Number.isFinite(c.support[0]);
+    const fixed = cs.filter(isFixed);
+    if (fixed.length > 0 && fixed.length < cs.length && (fixed.length === 1 || fixed.every((c) => c.support[0] === 0))) {
+      // the nodes already built, not built again
+      const rest = sumOf(cs.filter((c) => !isFixed(c)), m.sum.filter((_, j) => !isFixed(cs[j])));
       const at = fixed.length === 1 ? fixed[0].support[0] : 0;
       return at === 0 ? rest : shifted(at, rest);
     }
-    const node = sumNode(cs);
-    if (cs.length > 1) {
-      node.logMajorant = sumMajorant(cs);
-      node.logCfErr = sumErr(cs.map((c) => c.logCfErr));
-      // stable terms of one alpha: pdf, cdf and quantiles from the one stable law they add up to
-      const folded = foldStableSum(m.sum);
-      if (folded) node.direct = folded;
-    }
-    return node;
+    return sumOf(cs, m.sum);
   }
   if ("scale" in m) return scaled(m.scale, buildNode_(m.of));
   if ("shift" in m) return shifted(m.shift, buildNode_(m.of));
   return operatorNode(m, buildNode_, opts);
+}
+
+/** The independent sum of built terms (their models for the stable fold): one term is itself. */
+function sumOf(cs: Node[], terms: Model[]): Node {
+  const node = sumNode(cs);
+  if (cs.length > 1) {
+    node.logMajorant = sumMajorant(cs);
+    node.logCfErr = sumErr(cs.map((c) => c.logCfErr));
+    // stable terms of one alpha: pdf, cdf and quantiles from the one stable law they add up to
+    const folded = foldStableSum(terms);
+    if (folded) node.direct = folded;
+  }
+  return node;
 }
 
 /** a X: the direct evaluation and a mixture's components follow the scale */

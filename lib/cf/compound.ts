@@ -275,11 +275,16 @@ function kernelsFor(N: Node, X: Node): { series: TransformSeries; kernels: Gamma
     for (let n = 1; n <= nGamma; n++) if (pn[n] > 0) kernels.push({ at: n * sev.at, shape: n * e0, rate: sev.rate, w: pn[n] });
     // claims from 0 with one gamma term (the expansion of the gamma family itself): the kernels are the n-claim laws
     const cg = N.countCgf;
+    // one-element buffers kept with the closure (it is called once per probe frequency)
+    const wr = new Float64Array(1);
+    const wi = new Float64Array(1);
+    const or = new Float64Array(1);
+    const oi = new Float64Array(1);
     const cgf = cg
       ? (w: number) => {
-          const o = new Float64Array(1);
-          cg(Float64Array.of(w), new Float64Array(1), o, new Float64Array(1));
-          return o[0];
+          wr[0] = w;
+          cg(wr, wi, or, oi);
+          return or[0];
         }
       : undefined;
     const exact = sev.at === 0 && sev.exps.length > 0 && X.kind.type === "continuous" ? { pn: pn.slice(0, nGamma + 1), shape: e0, rate: sev.rate, ...(cgf ? { cgf } : {}) } : undefined;

@@ -178,7 +178,13 @@ function subtractSeverity(k: SeverityKernel, beta: number, t: Float64Array, re: 
  * probing its chosen beta, often the same one; the atoms are the model's own, so the key is complete
  */
 /** a probe's envelope of |psi_c|, its per-node noise and, for a compound's remainder, |phi| of the severity (else null) */
-export type Probed = Envelope & { noise: Float64Array; phi: Float64Array | null; dphi?: Float64Array; dphiFrom?: number };
+export type Probed = Envelope & { noise: Float64Array; phi: Float64Array | null; dphi?: Float64Array; dphiFrom?: number; phiBound?: PhiBounds };
+
+/** per probe interval: m_i >= |phi| there and dM_i >= |phi'| past t_i (phiBounds) */
+export interface PhiBounds {
+  m: Float64Array;
+  dM: Float64Array;
+}
 const PROBES = new WeakMap<CompiledModel, Map<string, Probed>>();
 const MAX_PROBES = 32;
 
@@ -219,13 +225,16 @@ function probeAt(model: CompiledModel, atoms: Atom[], beta: number, pairOut: boo
     const other = { w2: pairOut ? 0 : w2, re: new Float64Array(n), im: new Float64Array(n), noise: new Float64Array(n) };
     const phi = new Float64Array(n);
     severityPsi(sev, sev.count, atoms, beta, pairOut ? w2 : 0, true)(tp, pr, pi, nz, other, phi);
-    memo.set(probeKey(beta, !pairOut, atoms, derived), envelopeFrom(tp, other.re, other.im, other.noise, phi, derived ? derivedFloor(sev, sev.count, atoms, beta, !pairOut, tp, phi) : null));
-    return envelopeFrom(tp, pr, pi, nz, phi, derived ? derivedFloor(sev, sev.count, atoms, beta, pairOut, tp, phi) : null);
+    // the bounds on phi serve both remainders (the same transform values) and, kept with the probe, its slope envelope
+    const pb = derived && atoms.every((a) => a.x === 0) ? phiBounds(sev, beta, tp, phi) : null;
+    memo.set(probeKey(beta, !pairOut, atoms, derived), envelopeFrom(tp, other.re, other.im, other.noise, phi, pb && derivedFloor(sev.count, pb, !pairOut), pb));
+    return envelopeFrom(tp, pr, pi, nz, phi, pb && derivedFloor(sev.count, pb, pairOut), pb);
   }
   if (sev?.count && model.support[0] === 0) {
     const phi = new Float64Array(n);
     severityPsi(sev, sev.count, atoms, beta, pairOut ? w2 : 0, true)(tp, pr, pi, nz, undefined, phi);
-    return envelopeFrom(tp, pr, pi, nz, phi, derived ? derivedFloor(sev, sev.count, atoms, beta, pairOut && w2 > 0, tp, phi) : null);
+    const pb = derived && atoms.every((a) => a.x === 0) ? phiBounds(sev, beta, tp, phi) : null;
+    return envelopeFrom(tp, pr, pi, nz, phi, pb && derivedFloor(sev.count, pb, pairOut && w2 > 0), pb);
   }
   psiOf(model, atoms, beta, pairOut, true)(tp, pr, pi, nz);
   // the model's own bound on what is left after its atoms at 0 and kernels (a compound of gamma claims), non-increasing
@@ -237,13 +246,13 @@ function probeAt(model: CompiledModel, atoms: Atom[], beta: number, pairOut: boo
   return envelopeFrom(tp, pr, pi, nz, null);
 }
 
-function envelopeFrom(tp: Float64Array, pr: Float64Array, pi: Float64Array, nz: Float64Array, phi: Float64Array | null, bounds: DerivedBounds | null = null): Probed {
+function envelopeFrom(tp: Float64Array, pr: Float64Array, pi: Float64Array, nz: Float64Array, phi: Float64Array | null, bounds: DerivedBounds | null = null, phiBound: PhiBounds | null = null): Probed {
   const mag = new Float64Array(tp.length);
   for (let i = 0; i < tp.length; i++) mag[i] = Math.hypot(pr[i], pi[i]);
   // values below the rounding of the atom subtraction and the CF's own error are not resolved (the floor at each probe)
   const e = envelopeOf(tp, mag, (_t, i) => nz[i]);
   if (!bounds) return { ...e, noise: nz, phi };
-  return { ...derivedEnvelope(e, mag, nz, bounds), noise: nz, phi };
+  return { ...derivedEnvelope(e, mag, nz, bounds), noise: nz, phi, ...(phiBound ? { phiBound } : {}) };
 }
 
 /** per probe: a non-increasing bound on |psi_c| past it (size), and one on |psi_c'| past it (slope) */
@@ -303,7 +312,7 @@ function derivedEnvelope(e: Envelope, mag: Float64Array, nz: Float64Array, b: De
  * still 1); the last probe's m is M alone (it holds past it). dM_i = M'(t_i), within the closed-form slope bound. Null where
  * the severity derives no such bounds.
  */
-export function phiBounds(sev: SeverityKernel, beta: number, tp: Float64Array, phi: Float64Array): { m: Float64Array; dM: Float64Array } | null {
+function phiBounds(sev: SeverityKernel, beta: number, tp: Float64Array, phi: Float64Array): PhiBounds | null {
   const db = sev.dampedBounds;
   if (!db) return null;
   const n = tp.length;
@@ -329,13 +338,11 @@ export function phiBounds(sev: SeverityKernel, beta: number, tp: Float64Array, p
  * j = 2; with the two-claim term out too, j = 3), per probe interval, from phiBounds' m and M': |psi_c| <= sum_{n >= j} p_n m^n
  * <= min(m^j, (m / j) D) and |psi_c'| <= D M' there, D >= sum_{n >= j} n p_n m^{n-1} from the count's own series bound
  * (derivTail) or E N m^{j-1}; the last probe's hold past it. The masses taken out are the count's own within their
- * rounding, which the per-node noise allows for (severityPsi). Null without such bounds or with atoms away from 0.
+ * rounding, which the per-node noise allows for (severityPsi).
  */
-function derivedFloor(sev: SeverityKernel, count: NonNullable<SeverityKernel["count"]>, atoms: Atom[], beta: number, pairOut: boolean, tp: Float64Array, phi: Float64Array): DerivedBounds | null {
-  const pb = atoms.every((a) => a.x === 0) ? phiBounds(sev, beta, tp, phi) : null;
-  if (!pb) return null;
+function derivedFloor(count: NonNullable<SeverityKernel["count"]>, pb: PhiBounds, pairOut: boolean): DerivedBounds {
   const j = pairOut ? 3 : 2;
-  const n = tp.length;
+  const n = pb.m.length;
   const size = new Float64Array(n);
   const slope = new Float64Array(n);
   // P_N at real s in [0, 1] from the count's cumulant function at log s, within its stated errors (a steep count, Poisson(1000):

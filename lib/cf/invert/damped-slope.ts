@@ -1,7 +1,7 @@
 // The truncated cdf sum bounded by summation by parts: far from the period's ends the remainder's coefficient steps bound it.
 import type { Atom, CompiledModel } from "../types";
 import { envelopeOf, truncationFrom, type Envelope } from "./nodes";
-import { phiBounds } from "./damped-psi";
+import type { Probed } from "./damped-psi";
 
 const EPS = Number.EPSILON;
 
@@ -22,7 +22,7 @@ export function slopeEnvelope(
   atoms: Atom[],
   beta: number,
   pairOut: boolean,
-  env: Envelope,
+  env: Probed,
   noise: Float64Array,
   phi: Float64Array | null,
   of: "cdf" | "pdf" = "cdf",
@@ -39,7 +39,7 @@ export function slopeEnvelope(
   // non-increasing in t), |phi| and |phi'| are taken at least at them: every value then bounds the true |c'| at every
   // frequency past its probe, whatever the samples missed between probes (`derived` on the envelope)
   // (only with the envelope of |psi_c| derived too: the plan's sampled fallback takes samples throughout)
-  const pb = env.derived ? phiBounds(sev, beta, tp, phi) : null;
+  const pb = env.derived ? (env.phiBound ?? null) : null;
   for (let i = 0; i < n; i++) {
     // |phi| within its values' bound, and never above the severity's closed-form bound where it has one; derived: over the
     // probe's interval (phiBounds), so the running maximum below bounds every frequency past the probe
