@@ -1,4 +1,5 @@
 import type { Node } from "./node";
+import { scaledSeverityKernel } from "./severity-kernel-scale";
 import { kernelsOfSeries, mixSeries, productSeries, scaleSeries, seriesOfExpansion, shiftSeries, type TransformSeries } from "./damped-kernels";
 
 /**
@@ -45,6 +46,15 @@ export function carryScaleKernels(node: Node, a: number, c: Node) {
   const k = c.dampedKernels;
   if (k && k.cf === c.dampedLogCf && node.dampedLogCf)
     node.dampedKernels = { cf: node.dampedLogCf, kernels: k.kernels.map((x) => ({ ...x, at: a * x.at, rate: x.rate / a })), rate: k.rate / a };
+  // the remainder after the kernels is the child's at (a beta, a t): its derived bound, non-increasing in t, is taken at
+  // a t (1 - eps), below the rounded argument the values are computed at (a gamma compound's, ./compound.ts)
+  const r = c.dampedRemainder;
+  if (r && r.cf === c.dampedLogCf && node.dampedLogCf && node.dampedKernels)
+    node.dampedRemainder = { cf: node.dampedLogCf, bound: (beta, t) => r.bound(a * beta, a * t * (1 - Number.EPSILON)) };
+  // a compound's first claims carried through the scale (a lognormal compound's, ./severity-kernel-scale.ts)
+  const sev = c.dampedSeverity;
+  const sk = sev && sev.cf === c.dampedLogCf && node.dampedLogCf ? scaledSeverityKernel(sev.kernel, a) : null;
+  if (sk) node.dampedSeverity = { cf: node.dampedLogCf!, kernel: sk };
 }
 
 export function carryShiftKernels(node: Node, b: number, c: Node) {

@@ -70,6 +70,12 @@ export interface SeverityKernel {
    */
   dampedBounds?: { abs(beta: number, t: number): number; slope(beta: number, t: number): number };
   /**
+   * upper bounds on sup_y y f_X(y) (yf), sup_y y |f_X'(y)| (yfp) and sup f_X (fmax) of the severity (unweighted, its density
+   * unimodal): how far its values move when their argument is rounded, which a scaled compound needs
+   * (./severity-kernel-scale.ts)
+   */
+  scaleSensitivity?: { yf: number; yfp: number; fmax: number };
+  /**
    * the two-claim term P(N = 2) times the law of X_1 + X_2 (transform phi^2), when the severity has a computable
    * one (values weighted by w, with their bounds); the inversion takes it out too where that saves more terms than
    * its evaluation costs at the points asked for
@@ -124,6 +130,14 @@ export function lognormalKernel(
     absBound: (t) => ((2 * Math.exp(0.5 * sigma * sigma - mu)) / (sigma * Math.sqrt(2 * Math.PI) * t)) * (1 + 8 * Number.EPSILON),
     // and of every order, from the total variations of the density's derivatives (../lognormal-majorant.ts)
     dampedBounds: lognormalDampedBounds(mu, sigma),
+    // with y = e^{mu + sigma z}: y f(y) = phi(z) / sigma; f(y) = e^{sigma^2/2 - mu} phi(z + sigma) / sigma and y f'(y) = -f(y) (1 + z / sigma),
+    // so y |f'| <= e^{sigma^2/2 - mu} (1/sqrt(2 pi) + (phi(1) + sigma / sqrt(2 pi)) / sigma) / sigma (sup |w| phi(w) = phi(1))
+    scaleSensitivity: (() => {
+      const r = 1 / Math.sqrt(2 * Math.PI);
+      const top = Math.exp(0.5 * sigma * sigma - mu);
+      const g = 1 + 16 * Number.EPSILON;
+      return { yf: (r / sigma) * g, yfp: ((top * (r + (r * Math.exp(-0.5) + sigma * r) / sigma)) / sigma) * g, fmax: ((top * r) / sigma) * g };
+    })(),
     // x f(x) = m1 f_{X'}(x), X' = c X lognormal(mu + sigma^2, sigma), c = e^{sigma^2}: so E[X e^{(it - beta) X}] is m1 times the
     // transform at (c t, c beta); an error d in those values, and the arguments' rounding (eps relative each, which moves
     // the transform by at most E X' = c m1 times the argument's change), are added
