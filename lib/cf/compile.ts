@@ -14,6 +14,7 @@ import { lgamma } from "./families/special";
 import { MONOTONE_ABS_CF, mixMajorant, repeatMajorant, scaleMajorant, scaledMajorant, selfMajorant, shiftMajorant, shiftedMajorant, sumMajorant, uniformMajorant } from "./majorant";
 import { familyMajorant, monotoneExtras } from "./family-majorants";
 import type { DiscretiseOptions } from "./discretise";
+import { familyDampedMajorant } from "./damped-majorant";
 import { compoundNode, latticeNode, mixNode, repeatNode, sampleNode, scaleNode, shiftNode, sumNode } from "./operators";
 import { cumulantEst, withCumulantErrors } from "./cumulant-bounds";
 import { latticeE, sampleE } from "./cumulant-ops";
@@ -53,6 +54,8 @@ export function buildNode(m: Model, opts: CompileOptions = {}): Node {
       const fm = familyMajorant(m.family, params);
       if (fm) node.logMajorant = fm;
     }
+    const dm = familyDampedMajorant(m.family, params, node);
+    if (dm) node.dampedMajorant = dm;
     if (m.family === "student_t") {
       const p = m as unknown as { nu: number; scale?: number };
       node.logCfErr = studentTLogCfError(p.nu, p.scale ?? 1);
@@ -295,6 +298,7 @@ export function toCompiled(node: Node): CompiledModel {
     if (node.dampedKernels && node.dampedKernels.cf === damped) compiled.dampedKernels = node.dampedKernels.kernels;
     if (node.dampedKernels && node.dampedKernels.cf === damped && node.dampedRemainder && node.dampedRemainder.cf === damped) compiled.dampedRemainderBound = node.dampedRemainder.bound;
     if (node.dampedSeverity && node.dampedSeverity.cf === damped) compiled.dampedSeverity = node.dampedSeverity.kernel;
+    if (node.dampedMajorant && node.dampedMajorant.cf === damped) compiled.dampedMajorant = node.dampedMajorant;
   }
   if (node.kind.type === "lattice" && node.table) {
     const table = node.table;

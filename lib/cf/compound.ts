@@ -8,6 +8,7 @@ import { layerCompoundAtoms, layerCompoundJumps, type LayerCompoundAtoms } from 
 import { builtNote, chooseSpan, isPoissonCount, discretisedCompound, methodNote, type DiscretiseOptions, type DiscretisedCompound } from "./discretise";
 import { withCumulantErrors } from "./cumulant-bounds";
 import { compoundE } from "./cumulant-ops";
+import { compoundDampedMajorant } from "./damped-majorant";
 
 const collectNotes = (cs: Node[]) => [...new Set(cs.flatMap((c) => c.notes))];
 
@@ -150,6 +151,10 @@ export function compoundNode(N: Node, X: Node, discretise: DiscretiseOptions | n
       node.dampedSeverity = { cf: node.dampedLogCf, kernel: { ...X.severityKernel(p1, pAt(2)), count } };
     }
   }
+  // derived bounds on the transform past 0 for sums holding the compound (./damped-majorant.ts)
+  const mean1 = N.countCgf ? N.cumulants(1)[0] : null;
+  if (node.dampedLogCf && N.countCgf && mean1 !== null)
+    node.dampedMajorant = compoundDampedMajorant(node, X, { cgf: N.countCgf, mean: mean1, absError: N.cfAbsError ?? 0, relError: N.cfRelError ?? 0 });
   if (kind.type === "lattice" && X.table) {
     node.table = (maxLength) => compoundTable(N, X, kind as { step: number }, maxLength, node);
   }

@@ -145,7 +145,11 @@ function variations(mu: number, sigma: number, a0: number, K: number): number[] 
   return v;
 }
 
-export function lognormalDampedBounds(mu: number, sigma: number, K = 20): { abs(beta: number, t: number): number; slope(beta: number, t: number): number } {
+export function lognormalDampedBounds(
+  mu: number,
+  sigma: number,
+  K = 20,
+): { abs(beta: number, t: number): number; slope(beta: number, t: number): number; decay(beta: number, t0: number): { R: number; q: number } } {
   // n_j = ||h^{(j)}||_1: int h, then the variations TV(h^{(j - 1)}) (computed on first use)
   let norms: { f: number[]; g: number[] } | null = null;
   const get = () =>
@@ -191,5 +195,22 @@ export function lognormalDampedBounds(mu: number, sigma: number, K = 20): { abs(
     }
     return best * (1 + (8 * K + 16) * EPS);
   };
-  return { abs: (beta, t) => least("f", beta, t), slope: (beta, t) => least("g", beta, t) };
+  // the order least at t0 bounds every t >= t0 with its own power: abs(t) <= N_k / t^k = abs(t0) (t0 / t)^k
+  const decay = (beta: number, t0: number) => {
+    const N = numerators("f", beta);
+    const u = 1 / t0;
+    let best = Infinity;
+    let q = 0;
+    let uk = 1;
+    for (let k = 0; k < N.length; k++) {
+      const v = N[k] * uk;
+      if (v < best) {
+        best = v;
+        q = k;
+      }
+      uk *= u;
+    }
+    return { R: best * (1 + (8 * K + 16) * EPS), q };
+  };
+  return { abs: (beta, t) => least("f", beta, t), slope: (beta, t) => least("g", beta, t), decay };
 }

@@ -90,6 +90,8 @@ export interface Node {
   dampedKernels?: { cf: DampedLogCf; kernels: GammaKernel[]; rate: number };
   /** a derived bound on the damped transform's remainder after the atoms and kernels (CompiledModel.dampedRemainderBound) */
   dampedRemainder?: { cf: DampedLogCf; bound(beta: number, t: number): number };
+  /** derived bounds on the damped transform past the law's lower end (./damped-majorant.ts), valid only with the dampedLogCf named there */
+  dampedMajorant?: import("./damped-majorant").DampedMajorant;
   /** the whole transform's expansion at its lower endpoint(s), where known (sums and mixtures build kernels from it) */
   transformSeries?: TransformSeries;
   /** counts: sup |P'(z) / P(z)| over the unit disc (finite for Poisson and negative binomial) */

@@ -1,5 +1,6 @@
 import { scaleDamped, shiftDamped, sumDamped } from "./damped-cf";
 import { carryScaleKernels, carryShiftKernels, carrySumKernels } from "./kernel-carry";
+import { scaleDampedMajorant, shiftDampedMajorant, sumDampedMajorant } from "./damped-majorant";
 import type { Node, NodeKind } from "./node";
 import { repeatKind, scaleKind, shiftKind, sumKinds } from "./kinds";
 import { convolveTables, powerTable } from "./lattice";
@@ -158,6 +159,7 @@ export function sumNode(cs: Node[]): Node {
   };
   withCumulantErrors(node, sumE(cs));
   carrySumKernels(node, cs);
+  node.dampedMajorant = sumDampedMajorant(node, cs);
   const tail = heaviestTerm(cs);
   if (tail) node.tailTerm = tail;
   if (kind.type === "lattice" && cs.every((c) => c.table)) {
@@ -217,6 +219,7 @@ export function scaleNode(a: number, c: Node): Node {
   };
   withCumulantErrors(node, scaleE(a, c));
   carryScaleKernels(node, a, c);
+  node.dampedMajorant = scaleDampedMajorant(node, a, c);
   if (c.table && c.kind.type === "lattice") {
     node.table = (maxLength) => {
       const tab = c.table!(maxLength);
@@ -271,6 +274,7 @@ export function shiftNode(b: number, c: Node): Node {
   };
   withCumulantErrors(node, shiftE(b, c));
   carryShiftKernels(node, b, c);
+  node.dampedMajorant = shiftDampedMajorant(node, c);
   if (c.table && c.kind.type === "lattice") {
     node.table = (maxLength) => {
       const tab = c.table!(maxLength);

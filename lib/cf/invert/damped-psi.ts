@@ -178,7 +178,15 @@ function subtractSeverity(k: SeverityKernel, beta: number, t: Float64Array, re: 
  * probing its chosen beta, often the same one; the atoms are the model's own, so the key is complete
  */
 /** a probe's envelope of |psi_c|, its per-node noise and, for a compound's remainder, |phi| of the severity (else null) */
-export type Probed = Envelope & { noise: Float64Array; phi: Float64Array | null; dphi?: Float64Array; dphiFrom?: number; phiBound?: PhiBounds };
+export type Probed = Envelope & {
+  noise: Float64Array;
+  phi: Float64Array | null;
+  dphi?: Float64Array;
+  dphiFrom?: number;
+  phiBound?: PhiBounds;
+  /** derived through the operators' bounds (a sum of compounds and gamma terms), which do not see the kernels cancel */
+  throughOperators?: boolean;
+};
 
 /** per probe interval: m_i >= |phi| there and dM_i >= |phi'| past t_i (phiBounds) */
 export interface PhiBounds {
@@ -243,6 +251,44 @@ function probeAt(model: CompiledModel, atoms: Atom[], beta: number, pairOut: boo
     const size = Float64Array.from(tp, (t) => rb(beta, t));
     return envelopeFrom(tp, pr, pi, nz, null, { size, slope: new Float64Array(n).fill(Infinity) });
   }
+  // a sum of compounds and gamma terms: psi_c is the transform past lo less the atom there and the kernels, bounded through
+  // the operators (../damped-majorant.ts) plus each kernel's own size w e^{-beta (at - lo)} (rate / |rate + beta - i t|)^shape
+  // (and its slope, (|at - lo| + shape / |rate + beta - i t|) times that); an atom subtracted with another mass adds the difference
+  const dm = model.dampedMajorant;
+  const lo = model.support[0];
+  if (derived && dm && !sev && atoms.every((a) => a.x === lo)) {
+    const ks = model.dampedKernels ?? [];
+    const off = Math.abs(atoms.reduce((s, a) => s + a.p, 0) - dm.atom) * (1 + 4 * EPS);
+    const size = new Float64Array(n);
+    const slope = new Float64Array(n);
+    const tn = tp[n - 1];
+    const d = dm.decay(beta, tn);
+    let R = d.R;
+    let q = d.q;
+    for (let i = 0; i < n; i++) {
+      size[i] = dm.rest(beta, tp[i]) + off;
+      slope[i] = dm.slope(beta, tp[i]);
+    }
+    for (const k of ks) {
+      const w = Math.abs(k.w) * Math.exp(-beta * (k.at - lo)) * (1 + 8 * EPS);
+      for (let i = 0; i < n; i++) {
+        const r = Math.hypot(k.rate + beta, tp[i]);
+        const v = w * Math.pow(k.rate / r, k.shape) * (1 + 16 * EPS);
+        size[i] += v;
+        slope[i] += v * (k.at - lo + k.shape / r) * (1 + 4 * EPS);
+      }
+      R += w * Math.pow(k.rate / tn, k.shape) * (1 + 16 * EPS);
+      q = Math.min(q, k.shape);
+    }
+    for (let i = 0; i < n; i++) {
+      size[i] *= 1 + 4 * (ks.length + 2) * EPS;
+      slope[i] *= 1 + 4 * (ks.length + 2) * EPS;
+    }
+    // past the last probe: int R (t_n / t)^q / t = R / q (cdf) and int R (t_n / t)^q = R t_n / (q - 1) (density), the atom's
+    // difference not decaying
+    const tail = off > 0 || !(q > 0) ? null : { cdf: (R / q) * (1 + 4 * EPS), pdf: q > 1 ? ((R * tn) / (q - 1)) * (1 + 4 * EPS) : Infinity };
+    if (tail) return { ...envelopeFrom(tp, pr, pi, nz, null, { size, slope, tail }), throughOperators: true };
+  }
   return envelopeFrom(tp, pr, pi, nz, null);
 }
 
@@ -259,6 +305,8 @@ function envelopeFrom(tp: Float64Array, pr: Float64Array, pi: Float64Array, nz: 
 interface DerivedBounds {
   size: Float64Array;
   slope: Float64Array;
+  /** int past the last probe of the size bound over t (cdf) and of itself (density), where not the compound remainder's */
+  tail?: { cdf: number; pdf: number };
 }
 
 /**
@@ -290,8 +338,8 @@ function derivedEnvelope(e: Envelope, mag: Float64Array, nz: Float64Array, b: De
   // past t_n: size = M^j-type with M(t) <= M(t_n) (t_n / t)^k for the order k >= 1 least at t_n (M(t_n) < 1 there), so
   // size falls at least like t^-2 (j >= 2): int past t_n of size / t <= size(t_n) / 2, of size <= size(t_n) t_n
   const last = b.size[n - 1];
-  let sp = last < 1 ? last * t[n - 1] : Infinity;
-  let sc = last < 1 ? last / 2 : Infinity;
+  let sp = b.tail ? b.tail.pdf : last < 1 ? last * t[n - 1] : Infinity;
+  let sc = b.tail ? b.tail.cdf : last < 1 ? last / 2 : Infinity;
   tailPdf[n - 1] = sp;
   tailCdf[n - 1] = sc;
   const g = 1 + 2 * n * EPS;

@@ -1,0 +1,232 @@
+import type { Node } from "./node";
+import type { DampedLogCf } from "./damped-cf";
+import { lognormalDampedBounds } from "./lognormal-majorant";
+
+const EPS = Number.EPSILON;
+
+/**
+ * Derived bounds on a law's damped transform away from its lower end lo, through the operators: with atom = P(X = lo),
+ * rest(beta, t) >= |E[e^{(i t - beta)(X - lo)}; X > lo]| and slope(beta, t) >= |d/dt of it| at every frequency from t on
+ * (both non-increasing in t). For a sum of compounds and gamma terms (no kernels taken out: a lognormal compound has no
+ * endpoint expansion), psi_c = phi e^{beta lo} e^{-i t lo} - atom is exactly that remainder, so its frequency truncation
+ * is bounded from these instead of sampled sizes (./invert/damped-psi.ts). Valid only with the dampedLogCf named here.
+ *  - gamma(k, rho): E e^{(i t - beta) X} = (rho / (rho + beta - i t))^k (JKB vol. 1, ch. 17), derivative i k / (rho + beta - i t) times it;
+ *  - lognormal: the bounds of every order from the density's derivatives (./lognormal-majorant.ts);
+ *  - a compound of such claims (no atom, support from 0): the part past 0 is P_N(phi) - p_0 = sum_{n >= 1} p_n phi^n, at most
+ *    sum_{n >= 1} p_n m^n = P_N(m) - p_0 and (1 - p_0) m for |phi| <= m <= 1 (the count's pgf at m from its cumulant
+ *    function, within its stated errors); its derivative P_N'(phi) phi' is at most P_N'(m) m' with P_N'(m) <= E N and the
+ *    secant (P_N(m2) - P_N(m)) / (m2 - m) for m < m2 <= 1 (P_N' increases on [0, 1]);
+ *  - an independent sum: prod (a_i + psi_i) - prod a_i = sum_i (prod_{j < i} a_j) psi_i prod_{j > i} (a_j + psi_j), so
+ *    |.| <= sum_i (prod_{j < i} a_j) r_i prod_{j > i} (a_j + r_j) (no cancellation), the derivative by the product rule;
+ *  - a X (a > 0): the child's at (a beta, a t), the bounds taken at a t (1 - 2u) (below the rounded argument), slope times a;
+ *  - X + b: unchanged (the transform is taken relative to lo).
+ * Past a frequency t0 each also gives a power: rest(t) <= R (t0 / t)^q for t >= t0 (gamma: |rho + beta - i t| >= t, so
+ * R = (rho / t0)^k, q = k; lognormal: the order least at t0; a compound: (1 - p_0) times its claims'; a sum: each product
+ * above with the continuous factors' powers added, the atoms' factors held at their values at t0).
+ */
+export interface DampedMajorant {
+  cf: DampedLogCf;
+  atom: number;
+  rest(beta: number, t: number): number;
+  slope(beta: number, t: number): number;
+  /** rest(beta, t) <= R (t0 / t)^q for every t >= t0 (the tail past the last probe frequency) */
+  decay(beta: number, t0: number): { R: number; q: number };
+}
+
+const up = (v: number, k = 8) => v * (1 + k * EPS);
+
+/** the named families with such bounds, else undefined */
+export function familyDampedMajorant(family: string, p: Record<string, number>, node: Node): DampedMajorant | undefined {
+  const cf = node.dampedLogCf;
+  if (!cf) return undefined;
+  if (family === "gamma" || family === "exponential") {
+    const k = family === "gamma" ? p.shape : 1;
+    const rho = p.rate;
+    if (!(k > 0 && rho > 0 && Number.isFinite(k) && Number.isFinite(rho))) return undefined;
+    const size = (beta: number, t: number) => {
+      const r = Math.hypot(rho + beta, t);
+      return { r, v: Math.min(1, up(Math.pow(rho / r, k), 16)) };
+    };
+    return {
+      cf,
+      atom: 0,
+      rest: (beta, t) => size(beta, t).v,
+      decay: (_beta, t0) => ({ R: up(Math.pow(rho / t0, k), 16), q: k }),
+      slope: (beta, t) => {
+        const s = size(beta, t);
+        return up((k * s.v) / s.r, 8);
+      },
+    };
+  }
+  if (family === "lognormal") {
+    const b = lognormalDampedBounds(p.mu, p.sigma);
+    return {
+      cf,
+      atom: 0,
+      rest: (beta, t) => (t > 0 ? Math.min(1, b.abs(beta, t)) : 1),
+      slope: (beta, t) => (t > 0 ? b.slope(beta, t) : Infinity),
+      decay: (beta, t0) => (t0 > 0 ? b.decay(beta, t0) : { R: 1, q: 0 }),
+    };
+  }
+  return undefined;
+}
+
+/** the probability P(X = lo) as the node's kind lists it (0 for a continuous law) */
+function atomAtLo(node: Node): number | null {
+  const lo = node.support[0];
+  if (node.kind.type === "continuous") return 0;
+  if (node.kind.type !== "mixed" || !node.kind.atomsComplete) return null;
+  let p = 0;
+  for (const a of node.kind.atoms) {
+    if (a.x === lo) p += a.p;
+    else return null;
+  }
+  return p;
+}
+
+/** the count's pieces a compound needs (from ./compound.ts) */
+export interface CountForMajorant {
+  cgf(wr: Float64Array, wi: Float64Array, re: Float64Array, im: Float64Array): void;
+  mean: number;
+  absError: number;
+  relError: number;
+}
+
+export function compoundDampedMajorant(node: Node, X: Node, count: CountForMajorant | null): DampedMajorant | undefined {
+  const xm = X.dampedMajorant;
+  const cf = node.dampedLogCf;
+  if (!cf || !count || !xm || xm.cf !== X.dampedLogCf || xm.atom !== 0 || X.support[0] !== 0 || node.support[0] !== 0) return undefined;
+  const p0 = atomAtLo(node);
+  if (p0 === null || !(count.mean >= 0) || !Number.isFinite(count.mean)) return undefined;
+  const one = new Float64Array(1);
+  const zero = new Float64Array(1);
+  const outR = new Float64Array(1);
+  const outI = new Float64Array(1);
+  // P_N(s) for s in [0, 1], raised by its stated errors (as ./invert/damped-psi.ts derivedFloor takes it)
+  const pgf = (s: number) => {
+    if (!(s > 0)) return p0 + count.absError;
+    if (s >= 1) return 1;
+    one[0] = Math.log(s);
+    count.cgf(one, zero, outR, outI);
+    return Math.exp(outR[0]) * (1 + count.relError + 64 * EPS * (1 + Math.abs(outR[0]))) + count.absError;
+  };
+  const pgfLower = (s: number) => {
+    if (!(s > 0)) return Math.max(0, p0 - count.absError);
+    if (s >= 1) return 1 - count.absError;
+    one[0] = Math.log(s);
+    count.cgf(one, zero, outR, outI);
+    return Math.max(0, Math.exp(outR[0]) * (1 - count.relError - 64 * EPS * (1 + Math.abs(outR[0]))) - count.absError);
+  };
+  const p0lo = p0 * (1 - 64 * EPS) - count.absError;
+  const rest = (beta: number, t: number) => {
+    const m = Math.min(1, xm.rest(beta, t));
+    return Math.min(up((1 - p0lo) * m), Math.max(0, up(pgf(m) - p0lo)));
+  };
+  return {
+    cf,
+    atom: p0,
+    rest,
+    decay: (beta, t0) => {
+      const d = xm.decay(beta, t0);
+      return { R: up((1 - p0lo) * d.R), q: d.q };
+    },
+    slope: (beta, t) => {
+      const m = Math.min(1, xm.rest(beta, t));
+      const m2 = m + 0.5 * (1 - m);
+      const secant = m < 1 ? (pgf(m2) - pgfLower(m)) / (m2 - m) : Infinity;
+      return up(Math.min(count.mean, up(secant)) * xm.slope(beta, t));
+    },
+  };
+}
+
+export function sumDampedMajorant(node: Node, cs: Node[]): DampedMajorant | undefined {
+  const cf = node.dampedLogCf;
+  if (!cf || cs.length === 0) return undefined;
+  const ms: DampedMajorant[] = [];
+  for (const c of cs) {
+    const m = c.dampedMajorant;
+    if (!m || m.cf !== c.dampedLogCf) return undefined;
+    ms.push(m);
+  }
+  const n = ms.length;
+  const atom = ms.reduce((s, m) => s * m.atom, 1);
+  const r = new Float64Array(n);
+  const s = new Float64Array(n);
+  const eval_ = (beta: number, t: number, withSlope: boolean) => {
+    for (let i = 0; i < n; i++) {
+      r[i] = ms[i].rest(beta, t);
+      if (withSlope) s[i] = ms[i].slope(beta, t);
+    }
+  };
+  // each factor a_i + r_i <= 1 + r_i; products rounded up per factor
+  const g = 1 + 4 * n * EPS;
+  return {
+    cf,
+    atom,
+    rest(beta, t) {
+      eval_(beta, t, false);
+      let total = 0;
+      for (let i = 0; i < n; i++) {
+        let p = r[i];
+        for (let j = 0; j < i; j++) p *= ms[j].atom;
+        for (let j = i + 1; j < n; j++) p *= ms[j].atom + r[j];
+        total += p;
+      }
+      return total * g;
+    },
+    decay(beta, t0) {
+      eval_(beta, t0, false);
+      const ds = ms.map((m) => m.decay(beta, t0));
+      let R = 0;
+      let q = Infinity;
+      for (let i = 0; i < n; i++) {
+        let c = ds[i].R;
+        let Q = ds[i].q;
+        for (let j = 0; j < i; j++) c *= ms[j].atom;
+        for (let j = i + 1; j < n; j++) {
+          if (ms[j].atom > 0) c *= ms[j].atom + r[j];
+          else {
+            c *= ds[j].R;
+            Q += ds[j].q;
+          }
+        }
+        if (c > 0) {
+          R += c;
+          q = Math.min(q, Q);
+        }
+      }
+      return { R: R * g, q: Number.isFinite(q) ? q : 0 };
+    },
+    slope(beta, t) {
+      eval_(beta, t, true);
+      let total = 0;
+      for (let i = 0; i < n; i++) {
+        let p = s[i];
+        for (let j = 0; j < n; j++) if (j !== i) p *= ms[j].atom + r[j];
+        total += p;
+      }
+      return total * g;
+    },
+  };
+}
+
+export function scaleDampedMajorant(node: Node, a: number, c: Node): DampedMajorant | undefined {
+  const m = c.dampedMajorant;
+  const cf = node.dampedLogCf;
+  if (!cf || !m || m.cf !== c.dampedLogCf || !(a > 0) || !Number.isFinite(a)) return undefined;
+  const down = (t: number) => a * t * (1 - 2 * EPS);
+  return {
+    cf,
+    atom: m.atom,
+    rest: (beta, t) => m.rest(a * beta, down(t)),
+    slope: (beta, t) => up(a * m.slope(a * beta, down(t)), 4),
+    decay: (beta, t0) => m.decay(a * beta, down(t0)),
+  };
+}
+
+export function shiftDampedMajorant(node: Node, c: Node): DampedMajorant | undefined {
+  const m = c.dampedMajorant;
+  const cf = node.dampedLogCf;
+  if (!cf || !m || m.cf !== c.dampedLogCf) return undefined;
+  return { cf, atom: m.atom, rest: m.rest, slope: m.slope, decay: m.decay };
+}
