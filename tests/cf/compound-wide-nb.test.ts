@@ -53,6 +53,23 @@ describe("negative binomial compounds of lognormal(0, 2 and 2.5) claims (mpmath 
     });
   }, 300_000);
 
+  it("far in the tail (x up to the 0.9999 quantile) the damped route still answers with a derived bound, and says the tolerance was not met", () => {
+    // at x = q_p the cdf is p (the fixture's quantiles: de Hoog at 24 digits, cross-checked by Cohen's method)
+    const c = fixture.lognormal.find((k) => JSON.stringify(k.model).includes('"sigma":2.5'))!;
+    const far = c.levels.filter((l) => l.p >= 0.99);
+    const r = density(compile(c.model), { x: far.map((l) => l.q) });
+    expect(r.diagnostics.method).toBe("gil-pelaez-damped");
+    const e = r.diagnostics.error.cdf;
+    far.forEach((l, i) => {
+      if (!(Math.abs(r.cdf[i] - l.p) <= e + 1e-15)) expect.fail(`cdf at q_${l.p} = ${l.q}: ${r.cdf[i]} vs ${l.p}, bound ${e}`);
+    });
+    // before, this request fell back to the undamped route with a cdf bound of 4e-2 and a density bound of 18
+    expect(e).toBeLessThan(1e-4);
+    expect(r.diagnostics.error.pdf).toBeLessThan(1e-4);
+    expect(r.diagnostics.tolerance).toEqual({ target: 1e-10, met: false });
+    expect(r.diagnostics.notes.join("\n")).toMatch(/no damped plan reaches 1e-10 within the route's frequency budget/);
+  }, 300_000);
+
   it("prints the worst actual/bound ratios", () => {
     console.log("worst actual/bound ratios (compound-wide-nb):", JSON.stringify(ratios));
     expect(Object.keys(ratios).length).toBe(3);
