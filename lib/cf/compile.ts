@@ -177,10 +177,10 @@ function operatorNode(mIn: Model, buildNode_: (x: Model) => Node, opts: CompileO
 /** A per-claim layer of a family claim with a unimodal density: the derived majorant of its continuous part. */
 function withLayerMajorant(of: Model, terms: Partial<LayerTerms>, X: Node): Node {
   const node = layerNode(X, terms);
-  if (!("family" in of) || !X.dist || node.kind.type !== "mixed") return node;
+  if (!("family" in of) || !X.dist || !X.direct || node.kind.type !== "mixed") return node;
   const mode = claimMode(of.family, of as unknown as Record<string, number>);
   if (mode === null) return node;
-  const cm = layerContinuousMajorant(X.dist, mode, terms.deductible ?? 0, terms.limit ?? Infinity, terms.share ?? 1, node.kind.atoms ?? []);
+  const cm = layerContinuousMajorant(X.dist, X.direct, mode, terms.deductible ?? 0, terms.limit ?? Infinity, terms.share ?? 1, node.kind.atoms ?? []);
   if (!cm) return node;
   if (cm.atoms.length === 0) node.logMajorant = cm.maj;
   else node.continuousMajorant = cm;

@@ -1,6 +1,7 @@
 import type { Atom } from "./types";
 import type { DirectLaw } from "./families/dist";
-import { normalCdf, normalDist } from "./families/dist";
+import { normalCdfBounded } from "./families/normal-bounded";
+import { directPoint, type DirectLaw as DirectEval } from "./direct/types";
 import { majorant, type LogMajorant } from "./majorant";
 import { powerMajorant } from "./power-majorant";
 
@@ -72,21 +73,35 @@ export interface ContinuousMajorant {
  * that point and falls after it), so by the bounded-variation bound (common practice; Katznelson, An Introduction to
  * Harmonic Analysis, ch. I) |int_p^q f(x) e^{i t c (x - d)} dx| <= 2 f(clamp(x*, p, q)) / (c t), and <= w: tail power 1.
  * With a limit the derivative about the continuous part's middle y_c is at most w c (l - u0) / 2 (|y - y_c| on it).
- * `atoms` are the layer's two atoms (at 0 and c l), as the node lists them. f at the point: the closed-form pdf, taken
- * within 1e-10 of itself (a few exp, log and pow, or lgamma and special functions far below that).
+ * `atoms` are the layer's two atoms (at 0 and c l), as the node lists them. f at the point and the mass w from the claim's
+ * direct law (../direct/types.ts), each raised by its derived bound; at an end of the support the pdf may be given as its
+ * outer (zero) limit, so the largest of its values there and a few units of rounding to either side is taken.
  */
-export function layerContinuousMajorant(dist: DirectLaw, mode: number, d: number, l: number, c: number, atoms: Atom[]): ContinuousMajorant | undefined {
+export function layerContinuousMajorant(dist: DirectLaw, direct: DirectEval, mode: number, d: number, l: number, c: number, atoms: Atom[]): ContinuousMajorant | undefined {
   const p = Math.max(d, dist.lo);
   const q = d + l;
   if (!(q > p) || !(c > 0)) return undefined;
   const at = Math.min(Math.max(mode, p), q);
-  // at an end of the support the pdf may be given as its outer (zero) limit: the largest of it and its values a few
-  // units of rounding to either side (f moves by a relative |f'/f| 4u |x| there, far inside the 1e-10 allowed)
+  const pt = directPoint();
+  const up = (x: number) => {
+    direct.at(x, pt);
+    return pt.pdf + pt.pdfErr;
+  };
   const dx = 4 * EPS * Math.abs(at) + 1e-300;
-  const fmax = Math.max(dist.pdf(at), dist.pdf(at + dx), dist.pdf(at - dx));
+  const fmax = Math.max(up(at), up(at + dx), up(at - dx)) * (1 + 4 * EPS);
   if (!Number.isFinite(fmax)) return undefined;
-  const w = Math.min(1, (l < Infinity ? dist.cdf(q) - dist.cdf(p) : dist.sf(p)) * (1 + 4 * EPS) + 2 * dist.accuracy);
-  const J = (2 * fmax * (1 + 1e-10)) / c;
+  // w = F(q) - F(p), or S(p) without a limit: each value raised (lowered) by its bound
+  direct.at(p, pt);
+  const Fp = pt.cdf - pt.cdfErr;
+  const Sp = pt.sf + pt.sfErr;
+  let wUp = Sp;
+  if (l < Infinity) {
+    direct.at(q, pt);
+    wUp = Math.min(Sp, pt.cdf + pt.cdfErr - Fp);
+  }
+  if (!Number.isFinite(wUp)) return undefined;
+  const w = Math.min(1, Math.max(0, wUp) * (1 + 4 * EPS));
+  const J = ((2 * fmax) / c) * (1 + 4 * EPS);
   const value = (t: number) => Math.min(w, J / Math.abs(t));
   const u0 = p - d;
   const slope =
@@ -112,15 +127,23 @@ export function layerContinuousMajorant(dist: DirectLaw, mode: number, d: number
  * and with jumps f(a), f(b) at the ends, f' = -z f / sigma, |f'| <= phi(1) / (sigma^2 Z) (at z = +-1), and f' rises,
  * falls and rises again, TV(f' on (a, b)) <= 4 max |f'|: |phi| <= (f(a) + f(b)) / t + 6 phi(1) / (sigma^2 Z t^2) (the
  * bounded-variation bounds of power-majorant.ts). Z = Phi(beta) - Phi(alpha) (upper-tail form past the mean) is taken
- * less twice the normal cdf's stated accuracy on each term.
+ * less the derived bounds of both values.
  */
 export function truncatedNormalMajorant(mu: number, sigma: number, lower?: number, upper?: number): LogMajorant | undefined {
   const a = lower ?? -Infinity;
   const b = upper ?? Infinity;
   const al = (a - mu) / sigma;
   const be = (b - mu) / sigma;
-  const [t1, t2] = al > 0 ? [normalCdf(-al), normalCdf(-be)] : [normalCdf(be), normalCdf(al)];
-  const Z = (t1 - t2) * (1 - 4 * EPS) - 2 * normalDist(0, 1).accuracy * (t1 + t2);
+  // Phi with its derived bound (./families/normal-bounded.ts); the ends' own rounding (a difference and a quotient) moves
+  // each value by phi times 2u |z| at most
+  const Phi = (z: number) => {
+    if (z === Infinity) return { v: 1, e: 0 };
+    if (z === -Infinity) return { v: 0, e: 0 };
+    const b = normalCdfBounded(z);
+    return { v: b.v, e: b.e + (Math.exp(-0.5 * z * z) / Math.sqrt(2 * Math.PI)) * 2 * EPS * Math.abs(z) * 1.01 };
+  };
+  const [p1, p2] = al > 0 ? [Phi(-al), Phi(-be)] : [Phi(be), Phi(al)];
+  const Z = (p1.v - p1.e - (p2.v + p2.e)) * (1 - 4 * EPS);
   if (!(Z > 0) || !(sigma > 0)) return undefined;
   const phi = (z: number) => (Number.isFinite(z) ? Math.exp(-0.5 * z * z) / Math.sqrt(2 * Math.PI) : 0);
   const m = 1 + 64 * EPS;

@@ -253,11 +253,12 @@ function tailMeanBound(dist: DirectLaw, sfE: (x: number) => Est, c: number, d: n
 /**
  * The claim law's cdf and sf at x with bounds on their errors: from its direct route (per-value derived bounds,
  * ./direct/types.ts) where it has one, plus the move of x's rounding by the caller (d + u: 2u |x|, times twice the
- * density there); else the closed forms with their stated relative accuracy (families/dist.ts)
+ * density there); else the closed forms' values with no bound (Infinity)
  */
 function claimCdf(X: Node, dist: DirectLaw): { cdfE: (x: number) => Est; sfE: (x: number) => Est } {
   const dl = X.direct;
-  if (!dl) return { cdfE: (x) => ({ v: dist.cdf(x), e: dist.accuracy * dist.cdf(x) }), sfE: (x) => ({ v: dist.sf(x), e: dist.accuracy * dist.sf(x) }) };
+  // (a claim with closed forms always has its direct route: without one no bound is derived, so none is claimed)
+  if (!dl) return { cdfE: (x) => ({ v: dist.cdf(x), e: Infinity }), sfE: (x) => ({ v: dist.sf(x), e: Infinity }) };
   const pt = directPoint();
   const moved = (x: number) => (x === 0 ? 0 : Number.isFinite(pt.pdf) ? 2 * pt.pdf * 2 * Number.EPSILON * Math.abs(x) : Infinity);
   return {
