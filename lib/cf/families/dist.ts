@@ -11,8 +11,6 @@ export interface DirectLaw {
   /** support ends */
   lo: number;
   hi: number;
-  /** relative accuracy of cdf and sf as computed (absolute for values near 1) */
-  accuracy: number;
   /** E[min((X - d)_+, l)^k] in closed form with a derived bound, where the family has one (layer-moments.ts) */
   layerMoment?: LayerMoment;
 }
@@ -40,7 +38,6 @@ export function logNormalCdf(z: number): number {
 
 export const normalPdf = (z: number) => Math.exp(-0.5 * z * z) / Math.sqrt(2 * Math.PI);
 
-const ACC = 1e-14;
 
 export function normalDist(mu: number, sigma: number): DirectLaw {
   return {
@@ -49,14 +46,13 @@ export function normalDist(mu: number, sigma: number): DirectLaw {
     sf: (x) => normalCdf((mu - x) / sigma),
     lo: -Infinity,
     hi: Infinity,
-    accuracy: ACC,
   };
 }
 
 export function uniformDist(a: number, b: number): DirectLaw {
   const w = b - a;
   const cl = (v: number) => Math.min(1, Math.max(0, v));
-  return { pdf: (x) => (x >= a && x <= b ? 1 / w : 0), cdf: (x) => cl((x - a) / w), sf: (x) => cl((b - x) / w), lo: a, hi: b, accuracy: ACC };
+  return { pdf: (x) => (x >= a && x <= b ? 1 / w : 0), cdf: (x) => cl((x - a) / w), sf: (x) => cl((b - x) / w), lo: a, hi: b };
 }
 
 /** Gamma(shape, rate): regularised incomplete gamma P and Q (JKB vol. 1, ch. 17). */
@@ -68,7 +64,6 @@ export function gammaDist(shape: number, rate: number): DirectLaw {
     sf: (x) => (x > 0 ? incGamma(shape, rate * x).Q : 1),
     lo: 0,
     hi: Infinity,
-    accuracy: 1e-13,
   };
 }
 
@@ -80,7 +75,6 @@ export function lognormalDist(mu: number, sigma: number): DirectLaw {
     sf: (x) => (x > 0 ? normalCdf((mu - Math.log(x)) / sigma) : 1),
     lo: 0,
     hi: Infinity,
-    accuracy: ACC,
   };
 }
 
@@ -92,7 +86,6 @@ export function paretoDist(alpha: number, xm: number): DirectLaw {
     sf: (x) => (x > xm ? Math.exp(-alpha * Math.log(x / xm)) : 1),
     lo: xm,
     hi: Infinity,
-    accuracy: ACC,
   };
 }
 
@@ -104,7 +97,6 @@ export function weibullDist(k: number, lambda: number): DirectLaw {
     sf: (x) => (x > 0 ? Math.exp(-((x / lambda) ** k)) : 1),
     lo: 0,
     hi: Infinity,
-    accuracy: ACC,
   };
 }
 
@@ -121,7 +113,6 @@ export function burrDist(alpha: number, gamma: number, theta: number): DirectLaw
     sf: (x) => (x > 0 ? Math.exp(logS(x)) : 1),
     lo: 0,
     hi: Infinity,
-    accuracy: ACC,
   };
 }
 
@@ -134,7 +125,6 @@ export function inverseGammaDist(alpha: number, theta: number): DirectLaw {
     sf: (x) => (x > 0 ? incGamma(alpha, theta / x).P : 1),
     lo: 0,
     hi: Infinity,
-    accuracy: 1e-13,
   };
 }
 
@@ -150,7 +140,6 @@ export function inverseGaussianDist(mu: number, lambda: number): DirectLaw {
     sf: (x) => (x > 0 ? Math.max(0, normalCdf(-Math.sqrt(lambda / x) * (x / mu - 1)) - second(x)) : 1),
     lo: 0,
     hi: Infinity,
-    accuracy: 1e-12,
   };
 }
 
@@ -163,7 +152,6 @@ export function triangularDist(a: number, c: number, b: number): DirectLaw {
     sf: (x) => (x <= a ? 1 : x >= b ? 0 : x <= c ? 1 - (x - a) ** 2 / (w * (c - a)) : (b - x) ** 2 / (w * (b - c))),
     lo: a,
     hi: b,
-    accuracy: ACC,
   };
 }
 
@@ -185,7 +173,6 @@ export function betaDist(alpha: number, beta: number, a: number, b: number): Dir
     sf: (x) => (x <= a ? 1 : x >= b ? 0 : betainc((x - a) / w, alpha, beta, true, true)),
     lo: a,
     hi: b,
-    accuracy: 1e-13,
   };
 }
 
@@ -199,8 +186,7 @@ export function affineDist(d: DirectLaw, s: number, b: number): DirectLaw {
       sf: (y) => d.sf(inv(y)),
       lo: b + s * d.lo,
       hi: b + s * d.hi,
-      accuracy: d.accuracy,
       ...(d.layerMoment ? { layerMoment: affineLayerMoment(d.layerMoment, s, b) } : {}),
     };
-  return { pdf: (y) => d.pdf(inv(y)) / -s, cdf: (y) => d.sf(inv(y)), sf: (y) => d.cdf(inv(y)), lo: b + s * d.hi, hi: b + s * d.lo, accuracy: d.accuracy };
+  return { pdf: (y) => d.pdf(inv(y)) / -s, cdf: (y) => d.sf(inv(y)), sf: (y) => d.cdf(inv(y)), lo: b + s * d.hi, hi: b + s * d.lo };
 }

@@ -221,7 +221,6 @@ export function lomax(alpha: number, theta: number): Node {
     sf: (x) => (x > 0 ? Math.exp(-alpha * Math.log1p(x / theta)) : 1),
     lo: 0,
     hi: Infinity,
-    accuracy: 1e-14,
   };
   return {
     ...p,

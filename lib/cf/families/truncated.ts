@@ -53,7 +53,6 @@ export function truncatedNormal(mu: number, sigma: number, lower?: number, upper
     sf: (x) => (x <= a ? 1 : x >= b ? 0 : al > 0 ? (normalCdf(-(x - mu) / sigma) - normalCdf(-be)) / Z : (normalCdf(be) - normalCdf((x - mu) / sigma)) / Z),
     lo: a,
     hi: b,
-    accuracy: 1e-13,
     // built from the normal Phi and its derived bound (./normal-bounded.ts), not from the conditioned cdf above
     layerMoment: truncatedNormalLayerMoment(mu, sigma, a, b),
   };
