@@ -254,12 +254,17 @@ export function dampedGrid(
   };
   const ownC = own(s.cRe, s.cIm);
   const ownP = wantPdf ? own(s.pRe, s.pIm) : 0;
-  // the cdf's image bound at y holds at every larger y (aliasCdfAt is non-increasing in y): refreshed every 64 points
+  // the cdf's image bound at y holds at every larger y (aliasCdfAt is non-increasing in y): refreshed every 64 points from
+  // the first point in the support (a grid starting below lo kept the uniform bound, the largest, for up to 63 points)
   let alias = s.aliasCdf;
+  let refresh = 0;
   for (let j = 0; j < count; j++) {
     const y = from + j * dx - s.lo;
     if (y < 0) continue;
-    if ((j & 63) === 0) alias = aliasCdfAt(s, y);
+    if (j >= refresh) {
+      alias = aliasCdfAt(s, y);
+      refresh = j + 64;
+    }
     const g = Math.exp(s.beta * y);
     const kv = takenOutAt(s, from + j * dx, wantPdf, false);
     Fc[j] = Math.min(Math.max(g * gC[j] + kv.F + s.cdfShift, 0), s.Mc);
