@@ -63,6 +63,23 @@ function withTolerance(r: DensityResult, target: number): DensityResult {
   return r;
 }
 
+/** the cdf and sf (values and bounds) of a second damped solution without the density, where its bound is smaller */
+function withCdfOf(r: DensityResult, c: DensityResult | null) {
+  const d = r.diagnostics;
+  if (!c || !(c.diagnostics.error.cdf < d.error.cdf) || c.cdf.length !== r.cdf.length) return;
+  r.cdf.set(c.cdf);
+  r.sf.set(c.sf);
+  if (d.pointError && c.diagnostics.pointError) {
+    d.pointError.cdf = c.diagnostics.pointError.cdf;
+    d.pointError.sf = c.diagnostics.pointError.sf;
+  }
+  // the parts of the bound (aliasing, truncation, rounding) are the cdf's, so the second solution's
+  d.error = { ...c.diagnostics.error, pdf: d.error.pdf };
+  d.notes.push(
+    `cdf and sf from a second damped solution without the density (${c.diagnostics.terms} frequency terms), which reaches a cdf bound of ${c.diagnostics.error.cdf.toExponential(2)}`,
+  );
+}
+
 function densityOf(model: CompiledModel, options: DensityOptions): DensityResult {
   const heavyTails = Number.isFinite(Math.min(model.tails.left, model.tails.right));
   const tol = options.tolerance ?? (heavyTails ? DEFAULT_TOLERANCE_HEAVY : DEFAULT_TOLERANCE);
@@ -109,7 +126,17 @@ function densityOf(model: CompiledModel, options: DensityOptions): DensityResult
     for (let k = 1; !r && k <= DAMPED_RELAX_STEPS; k++) {
       const looser = t0 * DAMPED_RELAX ** k;
       r = dampedDensity(model, atoms, req, looser, wantPdf, method === "fft");
-      if (r) r.diagnostics.notes.push(`no damped plan reaches ${t0} within the route's frequency budget at these points; solved to ${looser} instead`);
+      if (r) {
+        r.diagnostics.notes.push(`no damped plan reaches ${t0} within the route's frequency budget at these points; solved to ${looser} instead`);
+        // the density's truncation is what needs the terms: the cdf and sf alone may still reach the target
+        for (let j = 0; wantPdf && j < k; j++) {
+          const c = dampedDensity(model, atoms, req, t0 * DAMPED_RELAX ** j, false, method === "fft");
+          if (c) {
+            withCdfOf(r, c);
+            break;
+          }
+        }
+      }
     }
     if (r) return r;
   }
