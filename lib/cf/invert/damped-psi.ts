@@ -275,7 +275,7 @@ function probeAt(model: CompiledModel, atoms: Atom[], beta: number, pairOut: boo
         const r = Math.hypot(k.rate + beta, tp[i]);
         const v = w * Math.pow(k.rate / r, k.shape) * (1 + 16 * EPS);
         size[i] += v;
-        slope[i] += v * (k.at - lo + k.shape / r) * (1 + 4 * EPS);
+        slope[i] += v * (Math.abs(k.at - lo) + k.shape / r) * (1 + 4 * EPS);
       }
       R += w * Math.pow(k.rate / tn, k.shape) * (1 + 16 * EPS);
       q = Math.min(q, k.shape);
