@@ -30,8 +30,9 @@ export function startRange(model: CompiledModel, tail: number): number {
  * The range [lo, R] of a damped inversion, bounded below at lo, whose upper tail S(R) is below `level`: cheap loose
  * inversions (cdf target `loose`) from R0, the range doubled until S(R) + its bound < level, then the smallest R past
  * the previous probe where the loose inversion still shows that (bisection, 12 steps): the last doubling overshoots by
- * up to twice, and the final inversion's terms grow with the range. Returns the range and the last loose solution (null
- * when none was made), or null when the transform decays too slowly for the damped route.
+ * up to twice, and the final inversion's terms grow with the range. Returns the range, the last loose solution (null
+ * when none was made) and the range it was set up for, or null when the transform decays too slowly for the damped route.
+ * `keep`: the last loose solution is kept (its own arrays) for the caller's use after further setups, not a transient one.
  */
 export function dampedReach(
   model: CompiledModel,
@@ -40,7 +41,8 @@ export function dampedReach(
   level: number,
   loose: number,
   budget: number,
-): { R: number; last: DampedSolution | null } | null {
+  keep = false,
+): { R: number; last: DampedSolution | null; probeR: number } | null {
   const lo = model.support[0];
   const Mc = Math.max(1 - atoms.reduce((s, a) => s + a.p, 0), 0);
   const sfBound = (s: DampedSolution, x: number) => {
@@ -66,10 +68,12 @@ export function dampedReach(
     }
   }
   let last: DampedSolution | null = null;
+  let probeR = R;
   for (let it = 0; it < 40; it++) {
-    const probe = dampedSetup(model, atoms, R, { tolerance: loose, wantPdf: false, budget, pointwise: true, points: PROBE_POINTS, wantInt: false, transient: true, byParts: true });
+    const probe = dampedSetup(model, atoms, R, { tolerance: loose, wantPdf: false, budget, pointwise: true, points: PROBE_POINTS, wantInt: false, transient: !keep, byParts: true });
     if (!probe) return null;
     last = probe;
+    probeR = R;
     if (sfBound(probe, R) < level) {
       let a = prev;
       let b = R;
@@ -84,5 +88,5 @@ export function dampedReach(
     prev = R;
     R = lo + GROWTH * (R - lo);
   }
-  return { R, last };
+  return { R, last, probeR };
 }

@@ -4,118 +4,18 @@ import { checkDeadline } from "../deadline";
 import { mergeAtoms } from "../kinds";
 import type { DirectLaw, DirectPoint } from "../direct/types";
 import type { Component, Value } from "./mixture-component";
-import { DAMPED_BUDGET, KERNEL_BUDGET, dampable, dampedAt, dampedPlan, dampedSetup, type DampedSolution } from "./damped";
+import { dampable } from "./damped";
 import { invertWithinTerms } from "./continuous";
 import { atomMass, solutionAt } from "./shared";
-import { dampedExcess, lightTailTarget } from "./quantile-damped";
-import { dampedReach, startRange } from "./damped-reach";
+import { lightTailTarget } from "./quantile-damped";
 import { lawShape } from "./range";
 import { evalLadder, growLadder, heavyLadder } from "./heavy";
 import { RICHARDSON_ESTIMATE_NOTE, richardsonAmplification } from "./richardson";
 import { heavyShortfall, shortfallLight } from "./shortfall";
 import { stopLossBounds } from "./tail-moments";
-import { markovExcess, markovTail, momentBounds } from "./moment-tails";
+import { markovExcess, momentBounds } from "./moment-tails";
 import { directComponent } from "./mixture-direct";
-
-function dampedComponent(w: number, m: CompiledModel, tail: number, tol: number, target: number): Component | null {
-  const lo = m.support[0];
-  const atoms = m.kind.type === "mixed" ? [...m.kind.atoms].sort((u, v) => u.x - v.x) : [];
-  const Mc = Math.max(1 - atoms.reduce((s, a) => s + a.p, 0), 0);
-  const budget = m.dampedKernels?.length || m.dampedSeverity ? KERNEL_BUDGET : DAMPED_BUDGET;
-  const mean = m.momentIndex > 1 ? m.cumulants(1)[0] : null;
-  // the cut-off from the cdf's truncation alone, as the quantile route's (./quantile-damped.ts): every bracket is decided
-  // by the cdf's bounds, and the density only guides the search's steps (it carries the bound that cut-off leaves it)
-  const setup = (R: number) =>
-    dampedSetup(m, atoms, R, { tolerance: tol, wantPdf: true, budget, pointwise: true, plan: dampedPlan(m, atoms, R, tol, false, undefined, true, budget) });
-  // the range: where S(R) falls below the smallest tail level asked (less a fifth), found by loose probes as the quantile
-  // route's (./damped-reach.ts). Then past every component's range the mixture's S is below that level, so the deferred
-  // first search (./mixture.ts) brackets each level within the farthest range; a component whose range ends left of a
-  // level's bracket grows once to cover it. Not S(R) below tail / w: a level's quantile may then lie past every range,
-  // where the deferred bounds leave its bracket open (two compounds weighted 0.3 and 0.7 at 0.9999: a bound of 7e4).
-  // A first guess from the tail index alone lay ten times too far for Poisson(2)-pareto(1.5, 1) weighted 0.5 at 0.999
-  // (1 662 against 165): 1.2e6 terms instead of 1.4e5.
-  const reach = dampedReach(m, atoms, startRange(m, tail), 0.8 * tail, Math.max(tol, Math.min(1e-7, tail / 100)), budget);
-  if (!reach) return null;
-  let R = reach.R;
-  let s: DampedSolution | null = setup(R);
-  if (!s) return null;
-  let grows = 0;
-  const inside = (x: number): Value => {
-    const v = dampedAt(s!, x, true, false);
-    const a = atomMass(atoms, x);
-    return { F: a.below + v.Fc, S: a.above + (Mc - v.Fc), f: v.fc, eF: v.errF, eS: v.errF };
-  };
-  // beyond the range: the range grows (at most 8 times) when the tail left there matters, otherwise the
-  // monotone bound S(x) in [0, S(R)] answers
-  const grow = (x: number, factor = 2): boolean => {
-    if (grows >= 8) return false;
-    const next = setup(lo + factor * (x - lo));
-    if (!next) return false;
-    grows++;
-    s = next;
-    R = lo + factor * (x - lo);
-    return true;
-  };
-  let defer = false;
-  let far = -Infinity;
-  // beyond the range, the law's moments bound its tail (Markov at the best order, ./moment-tails.ts): a light tail is
-  // then answered without growing the range, where the inversion's own bound at R (which grows toward the range's end)
-  // would ask for a setup two to four times as long
-  const moments = (x: number) => (Number.isFinite(lo) ? momentBounds(m, lo, x - lo) : null);
-  // the bound on S(x) past the range: S(R) and its bound, or the moments' where that is smaller
-  let atR: { R: number; s: number } | null = null;
-  const tailBound = (x: number): number => {
-    // S(R) and its bound, once per range
-    if (!atR || atR.R !== R) {
-      const r = inside(R);
-      atR = { R, s: Math.max(r.S, 0) + r.eS };
-    }
-    let sR = atR.s;
-    if (w * sR > target) {
-      const mb = moments(x);
-      if (mb) sR = Math.min(sR, markovTail(mb, x - lo, false));
-    }
-    return sR;
-  };
-  const at = (x: number): Value => {
-    if (x < lo) return { F: 0, S: 1, f: 0, eF: 0, eS: 0 };
-    if (x <= R) return inside(x);
-    const sR = tailBound(x);
-    if (w * sR > target) {
-      if (defer) far = Math.max(far, x);
-      else if (grow(x)) return inside(x);
-    }
-    return { F: 1 - sR / 2, S: sR / 2, f: 0, eF: sR / 2, eS: sR / 2 };
-  };
-  return {
-    w,
-    atoms,
-    at,
-    excess(q) {
-      if (mean === null || !Number.isFinite(mean) || !(m.momentIndex > 1)) return null;
-      if (q > R) {
-        // E[(X - q)^+] in [0, b] from the moments when w b is below the target, else a longer range
-        const mb = moments(q);
-        const b = mb ? markovExcess(mb, q - lo) : Infinity;
-        if (w * b <= target) return { value: b / 2, error: b / 2 };
-        if (!grow(q)) return { value: 0, error: Infinity };
-      }
-      return dampedExcess(s!, atoms, mean, q);
-    },
-    terms: () => s!.K,
-    notes: () => s!.notes,
-    method: "gil-pelaez-damped",
-    deferred(on) {
-      defer = on;
-      if (on) far = -Infinity;
-    },
-    beyond: () => far,
-    reach: () => R,
-    needs: (x) => x > R && w * tailBound(x) > target,
-    // x at four fifths of the range: the sums' bound grows toward the range's end, where the plan meets the tolerance
-    cover: (x) => x <= R || grow(x, 1.25),
-  };
-}
+import { dampedDraft, dampedRanges, type DampedDraft } from "./mixture-damped";
 
 /**
  * Values from an inversion window [a, b]: inside(x) within it, outside it the monotone bounds F(x) <= F(a) (left) and
@@ -263,21 +163,42 @@ function heavyComponent(w: number, m: CompiledModel, tol: number, tail: number):
  * tail: the smallest upper tail level asked for (damped ranges); lowTail: the smallest of both tails (heavy periods);
  * asked: the tolerance was the request's (else tol is the default, and a damped component's cdf target shrinks with a
  * light tail's level, as the quantile route's: its plan takes the cdf alone, and a level far in that tail needs the sf to
- * a relative accuracy)
+ * a relative accuracy); levels: the levels asked, whose quantiles past a damped component's own range set its range
  */
-export function components(leaves: { w: number; m: CompiledModel }[], tol: number, tail: number, lowTail = tail, asked = true): Component[] | null {
-  const out: Component[] = [];
+export function components(
+  leaves: { w: number; m: CompiledModel }[],
+  tol: number,
+  tail: number,
+  lowTail = tail,
+  asked = true,
+  levels: readonly number[] = [],
+): Component[] | null {
+  const out: (Component | null)[] = [];
+  const drafts: { i: number; w: number; m: CompiledModel; d: DampedDraft }[] = [];
   for (const { w, m } of leaves) {
     checkDeadline("mixture-components");
     if (m.direct) out.push(directComponent(w, m));
     else {
       const own = asked ? tol : lightTailTarget(m, tol, tail);
-      const c = (dampable(m) ? dampedComponent(w, m, tail, own, tol / (4 * leaves.length)) : null) ?? lightComponent(w, m, tol) ?? heavyComponent(w, m, tol, lowTail);
+      const d = dampable(m) ? dampedDraft(w, m, tail, own, tol / (4 * leaves.length)) : null;
+      if (d) {
+        drafts.push({ i: out.length, w, m, d });
+        out.push(null);
+        continue;
+      }
+      const c = lightComponent(w, m, tol) ?? heavyComponent(w, m, tol, lowTail);
       if (!c) return null;
       out.push(c);
     }
   }
-  return out;
+  // every damped component is set up once, over its own range or, where a level's quantile lies past it and its tail
+  // matters there, over one that covers that level (as a grown range, see cover)
+  const Rs = drafts.length ? dampedRanges(out, drafts, levels) : drafts.map(() => null);
+  drafts.forEach(({ i, w, m, d }, k) => {
+    checkDeadline("mixture-components");
+    out[i] = d.finish(Rs[k]) ?? lightComponent(w, m, tol) ?? heavyComponent(w, m, tol, lowTail);
+  });
+  return out.every((c) => c) ? (out as Component[]) : null;
 }
 
 /** The mixture's atoms: the components' atoms weighted, equal points merged, sorted. */

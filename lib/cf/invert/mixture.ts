@@ -97,7 +97,7 @@ export function mixtureQuantiles(model: CompiledModel, p: Float64Array, o: Quant
     tail = Math.min(tail, 1 - p[i]);
     lowTail = Math.min(lowTail, p[i], 1 - p[i]);
   }
-  const cs = components(leaves, tol, tail, lowTail, o.tolerance !== undefined);
+  const cs = components(leaves, tol, tail, lowTail, o.tolerance !== undefined, Array.from(p));
   if (!cs) return null;
   const { law, seen, forget } = remembering(mixtureLaw(model, cs));
   const atoms = mixtureAtoms(cs);
