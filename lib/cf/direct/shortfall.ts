@@ -40,6 +40,8 @@ export function directShortfall(
  * at q (DirectLaw.stopLoss) gives the tail integral and its bound. Else the levels on each side share one sweep of
  * derived brackets (./shortfall-sweep.ts) with a node at each level's quantile: the value is its panels' corrected
  * trapezoid sum, the error the distance to the farther end of its bracket, never an estimate.
+ * `allow`: per level, an absolute width its tail integral's bracket may take (0: none), which the sweep spends on fewer
+ * panels where it exceeds the level's own allowance (a mixture's component far in its tail, ../invert/mixture.ts).
  * A law whose upper tail has no finite mean (index.right <= 1) has no ES: NaN. One without a mean only through its lower
  * tail (stable, alpha < 1, beta = -1: bounded above) has it, by the upper integral at every level (it was NaN).
  */
@@ -52,6 +54,7 @@ export function directShortfalls(
   mean: number | null,
   meanErr: number,
   rest?: RestBound,
+  allow?: ArrayLike<number>,
 ): { value: Float64Array; error: Float64Array } {
   const n = q.length;
   const value = new Float64Array(n).fill(NaN);
@@ -81,7 +84,7 @@ export function directShortfalls(
     // outwards from the median: ascending above it, descending below
     const idx = sides[dir].sort((i, j) => dir * (q[i] - q[j]));
     if (idx.length === 0) continue;
-    const r = tailSweep(law, idx.map((i) => q[i]), dir, rest);
+    const r = tailSweep(law, idx.map((i) => q[i]), dir, rest, allow ? idx.map((i) => allow[i]) : undefined);
     idx.forEach((i, k) => (tails[i] = r[k]));
   }
   const pt = directPoint();

@@ -18,8 +18,11 @@ export interface Component {
   at(x: number): Value;
   /** E[(X - q)^+] and its bound; null when the mean does not exist */
   excess(q: number): { value: number; error: number } | null;
-  /** optional: excess at many points at once (a direct law sweeps its tail once for all of them) */
-  excesses?(qs: readonly number[]): ({ value: number; error: number } | null)[];
+  /**
+   * optional: excess at many points at once (a direct law sweeps its tail once for all of them); `allow`: per point, an
+   * absolute error the answer may take where that is coarser than its own accuracy (../direct/shortfall.ts)
+   */
+  excesses?(qs: readonly number[], allow?: readonly number[]): ({ value: number; error: number } | null)[];
   terms(): number;
   notes(): string[];
   method: string;

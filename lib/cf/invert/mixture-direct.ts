@@ -17,7 +17,7 @@ export function directComponent(w: number, m: CompiledModel): Component {
     law.at(x, pt);
     return { F: pt.cdf, S: pt.sf, f: pt.pdf, eF: pt.cdfErr, eS: pt.sfErr };
   };
-  const excesses = (qs: readonly number[]): ({ value: number; error: number } | null)[] => {
+  const excesses = (qs: readonly number[], allow?: readonly number[]): ({ value: number; error: number } | null)[] => {
     if (mean === null || !Number.isFinite(mean) || !(m.tails.right > 1)) return qs.map(() => null);
     const out: ({ value: number; error: number } | null)[] = [];
     // directShortfalls gives q + E[(X - q)^+] / (1 - p) with p the component's own level at q; the points inside the
@@ -35,7 +35,17 @@ export function directComponent(w: number, m: CompiledModel): Component {
     if (rest === undefined) rest = momentRest(m) ?? null;
     if (meanErr === undefined) meanErr = m.cumulantErrors?.(1)[0] ?? Infinity;
     const sub = inside.map((i) => qs[i]);
-    const r = directShortfalls(law, sub, new Float64Array(sub.length), inside.map((i) => ps[i]), m.tails, mean, meanErr, rest ?? undefined);
+    const r = directShortfalls(
+      law,
+      sub,
+      new Float64Array(sub.length),
+      inside.map((i) => ps[i]),
+      m.tails,
+      mean,
+      meanErr,
+      rest ?? undefined,
+      allow ? inside.map((i) => allow[i]) : undefined,
+    );
     inside.forEach((i, k) => {
       const tail = 1 - ps[i];
       out[i] = { value: (r.value[k] - qs[i]) * tail, error: r.error[k] * tail + 4 * Number.EPSILON * Math.abs(qs[i]) };

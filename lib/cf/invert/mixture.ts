@@ -7,6 +7,7 @@ import type { QuantileOptions, QuantileResult } from "./quantile";
 import type { DensityOptions, DensityResult, PointErrors } from "./types";
 import { DEFAULT_TOLERANCE, DEFAULT_TOLERANCE_HEAVY } from "./density";
 import { components, mixtureAtoms, mixtureLaw, methodsNote } from "./mixture-components";
+import { mixtureExcesses } from "./mixture-shortfall";
 
 /**
  * A mixture F = sum_j w_j F_j answered from its components: each component by its own route (a named law by its
@@ -204,21 +205,7 @@ export function mixtureQuantiles(model: CompiledModel, p: Float64Array, o: Quant
     for (let i = 0; i < n; i++) if (Number.isFinite(x[i]) && p[i] < 1) asked.push(i);
     const value = new Float64Array(n);
     const error = new Float64Array(n);
-    for (const c of asked.length ? cs : []) {
-      const qs = asked.map((i) => x[i]);
-      const rs = c.excesses ? c.excesses(qs) : [];
-      if (!c.excesses) for (let k = 0; k < qs.length && (k === 0 || rs[k - 1]); k++) rs.push(c.excess(qs[k]));
-      rs.length = qs.length;
-      asked.forEach((i, k) => {
-        const r = rs[k];
-        if (!r) exists = false;
-        else {
-          value[i] += c.w * r.value;
-          error[i] += c.w * r.error;
-        }
-      });
-      if (!exists) break;
-    }
+    if (asked.length) exists = mixtureExcesses(cs, x, p, asked, value, error);
     for (let i = 0; i < n && exists; i++) {
       const q = x[i];
       if (!Number.isFinite(q)) continue;
