@@ -9,6 +9,7 @@ import { builtNote, chooseSpan, isPoissonCount, discretisedCompound, methodNote,
 import { withCumulantErrors } from "./cumulant-bounds";
 import { compoundE } from "./cumulant-ops";
 import { compoundDampedMajorant } from "./damped-majorant";
+import { endpointKernelsRemainder } from "./compound-remainder";
 
 const collectNotes = (cs: Node[]) => [...new Set(cs.flatMap((c) => c.notes))];
 
@@ -125,6 +126,11 @@ export function compoundNode(N: Node, X: Node, discretise: DiscretiseOptions | n
       node.transformSeries = k.series;
       if (k.kernels.length > 0) node.dampedKernels = { cf: node.dampedLogCf, kernels: k.kernels, rate: k.rate };
       if (k.kernels.length > 0 && k.exact) node.dampedRemainder = { cf: node.dampedLogCf, bound: gammaRemainderBound(k.exact) };
+      // pareto and weibull claims: the kernels match the severity's expansion, whose Watson remainder the family bounds
+      // (the expansion object itself: a moved law carries a new one, and no bound)
+      const er = X.endpointRemainder;
+      const rb = k.kernels.length > 0 && !k.exact && er && er.series === X.laplaceExpansion ? endpointKernelsRemainder(N, er, k.kernels) : null;
+      if (rb) node.dampedRemainder = { cf: node.dampedLogCf, bound: rb };
     }
   }
   if (node.dampedLogCf && !node.dampedKernels && X.severityKernel && X.kind.type === "continuous" && X.support[0] === 0 && node.support[0] === 0 && N.table) {

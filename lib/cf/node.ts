@@ -80,6 +80,8 @@ export interface Node {
   cfRelError?: number;
   /** severities: the endpoint expansion of the Laplace transform (compounds choose gamma kernels from it) */
   laplaceExpansion?: EndpointSeries;
+  /** severities: a derived bound on what the transform leaves past laplaceExpansion's terms (compounds bound their kernels' remainder by it) */
+  endpointRemainder?: import("./endpoint-remainder").EndpointRemainder;
   /** severities with a closed-form law: the one-claim term P(N = 1) F_X a compound takes out of its damped transform */
   severityKernel?: (w: number, w2: number) => import("./severity-kernel").SeverityKernel;
   /** compounds: the one-claim term taken out of the damped transform, valid only with the dampedLogCf named here */

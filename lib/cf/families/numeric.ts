@@ -5,6 +5,7 @@ import { arithmeticNodes, expSumArithmetic, fromPhi } from "./cf-quadrature";
 import { SERIES_TOLERANCE, weibullAsymptotic, weibullExpansion, weibullSeries } from "./asymptotic";
 import { logFromSums, quadratureNodes, ruleRounding } from "./numeric-rule";
 import { KahanComplex } from "./kahan";
+import { weibullRemainder } from "../endpoint-remainder";
 
 export { NUMERIC_CF_ABS_ERROR, MAX_QUADRATURE_NODES } from "./numeric-rule";
 export { lognormal, lognormalCumulants } from "./lognormal";
@@ -126,6 +127,7 @@ export function weibull(k: number, lambda: number): Node {
   const cfError = Math.max(SERIES_TOLERANCE, weibullRuleError(k, theta, h, cosK) + aSum * (2e-25 + 96 * Number.EPSILON) + n * 1e-21 + ruleRounding(n, aSum, termErrors));
   const raw = (m: number) => lambda ** m * gammaFn(1 + m / k);
   const mean = raw(1);
+  const expansion = weibullExpansion(k, lambda);
   return {
     kind: { type: "continuous" },
     momentIndex: Infinity,
@@ -134,7 +136,9 @@ export function weibull(k: number, lambda: number): Node {
     notes: [`weibull CF computed by quadrature on a rotated contour (absolute error <= ${cfError.toPrecision(2)})`],
     cfAbsError: cfError,
     dampedLogCf: fromPhiDamped(phiAt),
-    laplaceExpansion: weibullExpansion(k, lambda),
+    laplaceExpansion: expansion,
+    // the expansion's Watson remainder, bounded on a rotated ray (../endpoint-remainder.ts)
+    ...(expansion ? { endpointRemainder: weibullRemainder(k, lambda, expansion) } : {}),
     // density (k/lambda)(x/lambda)^(k-1) e^{-(x/lambda)^k}, sf e^{-(x/lambda)^k} (JKB vol. 1, ch. 21)
     severity: {
       name: "weibull",

@@ -8,6 +8,7 @@ import { MAX_QUADRATURE_NODES, logFromSums, quadratureNodes, ruleRounding } from
 import { KahanComplex } from "./kahan";
 import { checkDeadline } from "../deadline";
 import { scratch } from "../damped-scratch";
+import { paretoRemainder } from "../endpoint-remainder";
 
 /**
  * Pareto(alpha, xm): phi(t) = e^{i t xm} int_0^inf e^{i t s} alpha xm^alpha (xm + s)^{-alpha-1} ds. For t > 0 the path is
@@ -249,6 +250,7 @@ export function pareto(alpha: number, xm: number): Node {
   const cfError =
     paretoRuleError(alpha, h) + 1e-16 / 3 + aSum * (2e-25 + 97 * Number.EPSILON) + ruleRounding(n + Math.ceil(710 / h), aSum, aSum * (16 + (2 + Math.PI) * q)) + alpha * Number.EPSILON;
   const raw = (m: number) => (alpha * xm ** m) / (alpha - m);
+  const expansion = paretoExpansion(alpha, xm);
   return {
     kind: { type: "continuous" },
     momentIndex: alpha,
@@ -258,7 +260,9 @@ export function pareto(alpha: number, xm: number): Node {
     cfAbsError: cfError,
     dampedLogCf,
     dampedCf,
-    laplaceExpansion: paretoExpansion(alpha, xm),
+    laplaceExpansion: expansion,
+    // the expansion's Watson remainder, bounded (../endpoint-remainder.ts): a compound's kernels leave a derived remainder
+    endpointRemainder: paretoRemainder(alpha, xm, expansion),
     // density alpha xm^alpha x^(-alpha-1) on [xm, inf), sf (xm/x)^alpha (JKB vol. 1, ch. 20)
     severity: {
       name: "pareto",

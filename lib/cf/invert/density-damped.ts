@@ -55,7 +55,7 @@ export function dampedDensity(
     // withInt false: the setup below forms no integrated cdf, so without a second moment the period is set by the cdf's
     // images after their closed-form shift (Poisson(2)-pareto(1.5): T 2 333 -> 1 607)
     const periodOf = (T: number) => gridPeriod(lo, req.from, req.dx, req.count, T).T;
-    const plan = dampedPlan(model, atoms, R, tol, wantPdf, n, false, Infinity, periodOf, wantPdf, "range", undefined, false);
+    const plan = dampedPlan(model, atoms, R, tol, wantPdf, n, false, budget, periodOf, wantPdf, "range", undefined, false);
     const g = gridPeriod(lo, req.from, req.dx, req.count, plan.T);
     sol = dampedSetup(model, atoms, R, { tolerance: tol, wantPdf, period: g.T, budget, plan, wantInt: false, transient: true });
     if (!sol) return null;
