@@ -143,7 +143,7 @@ export function compoundRemainderBound(inp: CompoundRemainderInput): (beta: numb
   // least of the orders keeps; a higher order pays with larger coefficients at small sigma
   const orders = [KERNEL_ORDER, KERNEL_ORDER + 2, KERNEL_ORDER + 4];
   const fine = orders.map((L) => ofOrder(inp, L, Nb));
-  return (beta, t) => {
+  const at = (beta: number, t: number) => {
     const sigma = Math.hypot(beta, t);
     // crude: sum_n p_n |phi|^n <= 1 - p_0, and each kernel |w| (r / |r + s|)^e, |r + s| >= hypot(r + beta, t)
     let crude = 1 - p0;
@@ -160,6 +160,33 @@ export function compoundRemainderBound(inp: CompoundRemainderInput): (beta: numb
     }
     return best;
   };
+  // every piece is non-increasing in beta (sigma grows with it, the dampings e^{-beta x} fall, the weibull ray's g grows) but
+  // the endpoints' rounding factor e^{beta d}, which ofOrder takes at its largest, e^{1/2}, for beta d <= 1/2: so the value at
+  // beta = 0 bounds every damping up to there, and one evaluation per frequency serves every probe of a plan (the probes of
+  // all dampings share their frequencies)
+  const dMax = Math.max(...kernels.map((k) => EPS * Math.abs(k.at)), 0);
+  const cache = new Map<number, number>();
+  return (beta, t) => {
+    if (!(beta >= 0 && beta * dMax <= 0.5)) return at(beta, t);
+    let v = cache.get(t);
+    if (v === undefined) {
+      if (cache.size > 4096) cache.clear();
+      cache.set(t, (v = at(0, t)));
+    }
+    return v;
+  };
+}
+
+/** the powers with equal exponents summed (one exp each when evaluated), largest exponent last */
+function merged(ps: Power[]): Power[] {
+  const sorted = [...ps].sort((p, q) => p[1] - q[1]);
+  const out: Power[] = [];
+  for (const [c, e] of sorted) {
+    const last = out[out.length - 1];
+    if (last && last[1] === e) last[0] = (last[0] + c) * (1 + EPS);
+    else out.push([c, e]);
+  }
+  return out;
 }
 
 const sumPow = (ps: Power[], ls: number) => {
@@ -223,7 +250,7 @@ function ofOrder(inp: CompoundRemainderInput, L: number, Nb: number) {
     if (!series.has(at)) series.set(at, []);
     series.get(at)!.push(...kept);
     // n a rounds within half an ulp (exact for n = 1, 2, 4)
-    blocks.push({ n, dropped, atErr: n === 1 || n === 2 || n === 4 ? 0 : EPS * Math.abs(at) });
+    blocks.push({ n, dropped: merged(dropped), atErr: n === 1 || n === 2 || n === 4 ? 0 : EPS * Math.abs(at) });
   }
   // the kernels' binomial series up to L, each term negated, into their block's list; and their rests past it
   const rests: { w: number; at: number; e: number; r: number; M: number }[] = [];
@@ -253,12 +280,14 @@ function ofOrder(inp: CompoundRemainderInput, L: number, Nb: number) {
       i = j;
     }
   }
+  const matchedM = merged(matched);
+  const rhoHM = merged(rhoH);
   return (beta: number, t: number, sigma: number, ls: number) => {
-    const rho = rem.rho(beta, t, J0) + sumPow(rhoH, ls);
+    const rho = rem.rho(beta, t, J0) + sumPow(rhoHM, ls);
     const alpha = sumPow(alphaP, ls);
     const m0 = Math.min(1, alpha + rho);
     const m = Math.exp(-beta * a) * m0;
-    let v = sumPow(matched, ls);
+    let v = sumPow(matchedM, ls);
     for (let n = 1; n <= Nb; n++) v += pErr(n) * Math.pow(m, n);
     for (const b of blocks) {
       const q = pn[b.n];
@@ -266,7 +295,7 @@ function ofOrder(inp: CompoundRemainderInput, L: number, Nb: number) {
       v += q * damp * b.n * rho * Math.pow(Math.max(m0, alpha), b.n - 1);
       v += damp * sumPow(b.dropped, ls);
       // sigma (alpha + rho)^n falls where n times the least exponent of its powers is at least 1
-      if (b.atErr > 0) v += b.n * e0 >= 1 ? 2 * q * sigma * b.atErr * Math.exp(beta * b.atErr) * Math.pow(alpha + rho, b.n) : Infinity;
+      if (b.atErr > 0) v += b.n * e0 >= 1 ? 2 * q * sigma * b.atErr * Math.exp(Math.max(beta * b.atErr, 0.5)) * Math.pow(alpha + rho, b.n) : Infinity;
     }
     for (const k of rests) v += k.w * Math.exp(-beta * k.at) * Math.pow(k.r / sigma, k.e) * binomRest(k.e, k.M, k.r / sigma);
     return { v, m };

@@ -37,8 +37,11 @@ function leastClosing(l: (j: number) => number, last: (J: number) => number, J0:
     const lj = l(J - 1);
     sum += Math.exp(lj);
     if (!(sum < best)) break;
-    const v = sum + Math.exp(last(J));
+    const close = Math.exp(last(J));
+    const v = sum + close;
     if (v < best) best = v;
+    // the candidates past here are at least sum, already within 1e-16 of the best
+    if (close < 1e-16 * sum) break;
   }
   return best * ROUND;
 }
@@ -75,39 +78,66 @@ export function paretoRemainder(alpha: number, xm: number, series: EndpointSerie
 /**
  * Weibull(k, lambda): f(x) = sum_{j<J} a_j x^{p_j - 1} + r_J(x), p_j = k (j + 1), a_j = (-1)^j k lambda^{-p_j} / j!, and
  * |r_J(x)| <= |a_J| |x|^{p_J - 1} wherever Re (x / lambda)^k >= 0 (Taylor's remainder of e^{-y} in integral form is at most
- * |y|^J / J! for Re y >= 0). The integral is turned onto the ray x = rho e^{i th}, th = min(psi, th0), psi = -arg s =
- * atan(t / beta), th0 = min(pi/2, pi/(2k)): f is analytic in the sector and bounded on its arcs by a power of |x| times
- * |exp(-(x/lambda)^k)| <= 1, while |e^{-s x}| = exp(-sigma rho cos(th' - psi)) decays on them (Cauchy's theorem; the
- * same rotation as the CF's own quadrature, ./families/numeric.ts). Term by term int a_j x^{p_j-1} e^{-s x} dx =
- * a_j Gamma(p_j) s^{-p_j}, and the remainder is at most |a_J| Gamma(p_J) g^{-p_J}, g = sigma cos(psi - th) (= sigma while
- * psi <= th0, else beta cos th0 + t sin th0: non-decreasing in t). So with A the terms p_j <= KERNEL_ORDER (j < J0),
- * |R| <= min_{J >= J0} sum_{j=J0}^{J-1} |a_j| Gamma(p_j) sigma^{-p_j} + |a_J| Gamma(p_J) g^{-p_J} (Watson's lemma with its
- * remainder; Olver, Asymptotics and Special Functions, ch. 3). The coefficients are weibullExpansion's
- * (k exp(lgamma(p) - lgamma(j + 1) - p log lambda)): lgamma within lgammaErr, the rest a few roundings of each argument,
- * and p = k (j + 1) itself within half an ulp of the true exponent, which moves lgamma(p) by |psi(p)| |dp| <= (1/p + p) |dp|
- * and p log lambda by |log lambda| |dp|.
+ * |y|^J / J! for Re y >= 0); then rayRemainder. The coefficients are weibullExpansion's (k exp(lgamma(p) - lgamma(j + 1) -
+ * p log lambda)).
  */
 export function weibullRemainder(k: number, lambda: number, series: EndpointSeries): EndpointRemainder {
-  const n = series.exps.length;
   const ll = Math.log(lambda);
+  // log |a_j Gamma(p_j)| = log k + lgamma(k (j + 1)) - lgamma(j + 1) - k (j + 1) log lambda
+  return rayRemainder(k, series, (j) => [Math.log(k), lgamma(j + 1), j > 0 ? lgammaErr(j + 1) : 0], ll, () => 0);
+}
+
+/**
+ * Burr XII(alpha, gamma, theta): f(x) = alpha gamma theta^{-gamma} x^{gamma-1} (1 + y)^{-alpha-1}, y = (x/theta)^gamma, and the
+ * binomial series' remainder after J terms is binom(-alpha-1, J) J y^J int_0^1 (1 - u)^{J-1} (1 + u y)^{-alpha-1-J} du (Taylor
+ * in integral form), at most |binom(-alpha-1, J)| |y|^J where Re y >= 0 (|1 + u y| >= 1): so |r_J(x)| <= |a_J| |x|^{p_J - 1},
+ * a_j = alpha gamma (-1)^j (alpha+1)_j / j! theta^{-p_j}, p_j = gamma (j + 1); f is analytic in |arg x| < pi/gamma (its poles
+ * sit on arg x = pi/gamma) and falls like |x|^{-alpha gamma - 1}, so rayRemainder applies with k = gamma. The coefficients are
+ * burrExpansion's (c_{j+1} = -c_j (alpha + 1 + j) / (j + 1), four roundings a step, times exp(lgamma(p) - p log theta)).
+ */
+export function burrRemainder(alpha: number, gamma: number, theta: number, series: EndpointSeries): EndpointRemainder {
+  // log((alpha + 1)_j / j!) by the same recursion (the 1e-12 slack of rayRemainder covers its roundings)
+  const lp: number[] = [0];
+  for (let j = 1; j <= series.exps.length + 61; j++) lp.push(lp[j - 1] + Math.log((alpha + j) / j));
+  return rayRemainder(gamma, series, (j) => [Math.log(alpha * gamma) + lp[j], 0, 0], Math.log(theta), (j) => (4 * j + 2) * EPS);
+}
+
+/**
+ * A density f(x) = sum_{j<J} a_j x^{p_j - 1} + r_J(x), p_j = k (j + 1), |r_J(x)| <= |a_J| |x|^{p_J - 1} for |arg x| <= th0 =
+ * min(pi/2, pi/(2k)), analytic there and bounded on its arcs by a power of |x|: the integral is turned onto the ray
+ * x = rho e^{i th}, th = min(psi, th0), psi = -arg s = atan(t / beta), where |e^{-s x}| = exp(-sigma rho cos(th' - psi)) <= 1
+ * on the arcs (Cauchy's theorem; the same rotation as the CFs' own quadratures, ./families/numeric.ts). Term by term
+ * int a_j x^{p_j-1} e^{-s x} dx = a_j Gamma(p_j) s^{-p_j}, and the remainder is at most |a_J| Gamma(p_J) g^{-p_J},
+ * g = sigma cos(psi - th) (= sigma while psi <= th0, else beta cos th0 + t sin th0: non-decreasing in t). So with A the first
+ * J0 terms, |R| <= min_{J >= J0} sum_{j=J0}^{J-1} |a_j| Gamma(p_j) sigma^{-p_j} + |a_J| Gamma(p_J) g^{-p_J} (Watson's lemma with
+ * its remainder; Olver, Asymptotics and Special Functions, ch. 3). `logs(j)` gives log |a_j| less the scale's
+ * -p_j log(scale) and lgamma(p_j) as [added, subtracted, the subtracted part's own error]; `ls0` = log(scale). The series' coefficients are
+ * sign * exp(added - subtracted + lgamma(p) - p ls) times the recursion's own rounding (`recRel(j)`): lgamma within
+ * lgammaErr, the rest a few roundings of each argument, and p = k (j + 1) within half an ulp of the true exponent (exact
+ * for j = 0), which moves lgamma(p) by |psi(p)| |dp| <= (1/p + p) |dp| and p log(scale) by |ls| |dp|.
+ */
+function rayRemainder(k: number, series: EndpointSeries, logs: (j: number) => [number, number, number], ls0: number, recRel: (j: number) => number): EndpointRemainder {
+  const n = series.exps.length;
   const coefErr: number[] = [];
   const expErr: number[] = [];
   for (let j = 0; j < n; j++) {
     const p = series.exps[j];
-    // p_0 = k itself; k (j + 1) within half an ulp
     const dp = j === 0 ? 0 : 0.5 * EPS * p;
+    const [add, sub, subErr] = logs(j);
     const g = lgamma(p);
-    const h = lgamma(j + 1);
-    const arg = g - h - p * ll;
+    const arg = add - sub + g - p * ls0;
     const dArg =
-      lgammaErr(p) + (j > 0 ? lgammaErr(j + 1) : 0) + EPS * (Math.abs(g) + Math.abs(h) + 2 * Math.abs(p * ll) + Math.abs(arg)) + (1 / p + p + Math.abs(ll)) * dp;
-    // exp within an ulp, times k one more
-    coefErr.push(Math.abs(series.coefs[j]) * (Math.expm1(dArg * 1.01) + 3 * EPS));
+      lgammaErr(p) + subErr + EPS * (Math.abs(add) + Math.abs(sub) + Math.abs(g) + 2 * Math.abs(p * ls0) + Math.abs(arg)) + (1 / p + p + Math.abs(ls0)) * dp;
+    // exp within an ulp, the product with the recursion's factor one more
+    coefErr.push(Math.abs(series.coefs[j]) * (Math.expm1(dArg * 1.01) + recRel(j) + 3 * EPS));
     expErr.push(dp);
   }
   // log |a_j Gamma(p_j)| for the true p_j, within 1e-10 (ROUND) of the values below; lgamma's error is far smaller
-  const la = (j: number) => Math.log(k) + lgamma(k * (j + 1)) - lgamma(j + 1) - k * (j + 1) * ll + 1e-12 * (1 + Math.abs(lgamma(k * (j + 1))));
-  const La = Array.from({ length: n + 61 }, (_, j) => la(j));
+  const La = Array.from({ length: n + 61 }, (_, j) => {
+    const [add, sub] = logs(j);
+    const g = lgamma(k * (j + 1));
+    return add - sub + g - k * (j + 1) * ls0 + 1e-12 * (1 + Math.abs(add) + Math.abs(sub) + Math.abs(g) + Math.abs(k * (j + 1) * ls0));
+  });
   const th0 = Math.min(Math.PI / 2, Math.PI / (2 * k));
   const c0 = Math.cos(th0);
   const s0 = Math.sin(th0);

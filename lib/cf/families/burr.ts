@@ -7,6 +7,7 @@ import { SERIES_TOLERANCE, burrExpansion, burrSeries, weibullAsymptotic } from "
 import { fromPhiDamped } from "../damped-cf";
 import { burrDist } from "./dist";
 import { KahanComplex } from "./kahan";
+import { burrRemainder } from "../endpoint-remainder";
 
 /**
  * Burr XII, Loss Models parameters: S(x) = (1 + (x/theta)^gamma)^(-alpha) (Klugman, Panjer & Willmot, Loss Models,
@@ -184,6 +185,7 @@ export function burr(alpha: number, gamma: number, theta: number, name = "burr")
   const tail = alpha * gamma;
   const dist = burrDist(alpha, gamma, theta);
   const mean = tail > 1 ? raw(1) : theta * (2 ** (1 / alpha) - 1) ** (1 / gamma);
+  const expansion = burrExpansion(alpha, gamma, theta);
   return {
     kind: { type: "continuous" },
     momentIndex: tail,
@@ -192,7 +194,9 @@ export function burr(alpha: number, gamma: number, theta: number, name = "burr")
     notes: [`${name} CF computed by quadrature on a shifted contour (absolute error <= ${cfError.toPrecision(2)})`],
     cfAbsError: cfError,
     dampedLogCf: damped,
-    laplaceExpansion: burrExpansion(alpha, gamma, theta),
+    laplaceExpansion: expansion,
+    // the expansion's Watson remainder, bounded on a rotated ray (../endpoint-remainder.ts)
+    ...(expansion ? { endpointRemainder: burrRemainder(alpha, gamma, theta, expansion) } : {}),
     severity: {
       name,
       pdf: dist.pdf,

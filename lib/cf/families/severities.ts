@@ -214,6 +214,7 @@ export function inverseGamma(alpha: number, theta: number): Node {
  */
 export function lomax(alpha: number, theta: number): Node {
   const p = pareto(alpha, theta);
+  const expansion = { ...paretoExpansion(alpha, theta), at: 0 };
   const raw = (n: number) => theta ** n * factorial(n) * Math.exp(lgamma(alpha - n) - lgamma(alpha));
   const dist: DirectLaw = {
     pdf: (x) => (x >= 0 ? (alpha / theta) * Math.exp(-(alpha + 1) * Math.log1p(x / theta)) : 0),
@@ -228,7 +229,9 @@ export function lomax(alpha: number, theta: number): Node {
     // X = P - theta with P pareto(alpha, theta): the damped transform and the endpoint expansion move with the shift
     dampedLogCf: shiftDamped(-theta, p),
     dampedCf: shiftDampedCf(-theta, p),
-    laplaceExpansion: { ...paretoExpansion(alpha, theta), at: 0 },
+    laplaceExpansion: expansion,
+    // e^{s 0} E e^{-s X} = e^{s theta} E e^{-s P}: the pareto's own remainder, its series moved to 0
+    ...(p.endpointRemainder ? { endpointRemainder: { ...p.endpointRemainder, series: expansion } } : {}),
     severity: {
       ...p.severity!,
       name: "lomax",
