@@ -5,7 +5,7 @@ import { SAME_EXPONENT, keptTerms, type EndpointRemainder } from "./endpoint-rem
 
 const EPS = Number.EPSILON;
 
-/** c sigma^{-e}, c >= 0: the bound's pieces that are plain powers (valid for sigma >= 1, where each falls) */
+/** c (sigma / r)^{-e}, c >= 0: the bound's pieces that are plain powers of sigma in the unit of the kernels' rate r (valid for sigma >= r, where each falls) */
 type Power = [c: number, e: number];
 /** a term c s^{-x} of a series, its exponent within unc of x and its coefficient within err of c */
 interface Term {
@@ -57,31 +57,31 @@ function sumError(a: number, b: number, s: number): number {
   return Math.abs(a - (s - bb) + (b - bb));
 }
 
-/** the terms of a series' n-th power with every exponent (no truncation), coefficients with their rounding (n products) */
-function power(base: Term[], n: number): Term[] {
-  let cur: Term[] = [{ x: 0, unc: 0, c: 1, err: 0 }];
-  for (let i = 0; i < n; i++) {
-    const next: Term[] = [];
-    for (const a of cur)
-      for (const b of base) {
-        const x = a.x + b.x;
-        const c = a.c * b.c;
-        // |a c + da||b c + db| - |a c b c| <= |a| db + |b| da + da db, plus the product's and the exponent sum's rounding
-        next.push({ x, unc: a.unc + b.unc + sumError(a.x, b.x, x), c, err: Math.abs(a.c) * b.err + Math.abs(b.c) * a.err + a.err * b.err + EPS * Math.abs(c) });
-      }
-    // terms of the same exponents (within their rounding) merged: a power of J terms keeps at most n J of them
-    next.sort((p, q) => p.x - q.x);
-    cur = [];
-    for (const t of next) {
-      const last = cur[cur.length - 1];
-      if (last && t.x - last.x <= 4 * EPS * t.x) {
-        const c = last.c + t.c;
-        cur[cur.length - 1] = { x: last.x, unc: Math.max(last.unc, t.unc) + (t.x - last.x), c, err: last.err + t.err + EPS * Math.abs(c) };
-      } else cur.push(t);
+/** the terms of cur times base with every exponent (no truncation), coefficients with their rounding */
+function times(cur: Term[], base: Term[]): Term[] {
+  const next: Term[] = [];
+  for (const a of cur)
+    for (const b of base) {
+      const x = a.x + b.x;
+      const c = a.c * b.c;
+      // |a c + da||b c + db| - |a c b c| <= |a| db + |b| da + da db, plus the product's and the exponent sum's rounding
+      next.push({ x, unc: a.unc + b.unc + sumError(a.x, b.x, x), c, err: Math.abs(a.c) * b.err + Math.abs(b.c) * a.err + a.err * b.err + EPS * Math.abs(c) });
     }
+  // terms of the same exponents (within their rounding) merged: a power of J terms keeps at most n J of them
+  next.sort((p, q) => p.x - q.x);
+  const out: Term[] = [];
+  for (const t of next) {
+    const last = out[out.length - 1];
+    if (last && t.x - last.x <= 4 * EPS * t.x) {
+      const c = last.c + t.c;
+      out[out.length - 1] = { x: last.x, unc: Math.max(last.unc, t.unc) + (t.x - last.x), c, err: last.err + t.err + EPS * Math.abs(c) };
+    } else out.push(t);
   }
-  return cur;
+  return out;
 }
+
+/** products of terms the bound may form (J0 terms to the powers 1..Nb: about (J0 Nb)^2 / 2): past it, no derived bound */
+export const MAX_SERIES_WORK = 200 * 200;
 
 export interface CompoundRemainderInput {
   rem: EndpointRemainder;
@@ -114,7 +114,7 @@ export interface CompoundRemainderInput {
  * of exponents (clusterPowers: the floats' cancellation is bounded, not assumed; up to KERNEL_ORDER they cancel but for
  * rounding, as toKernels built them so), and whose rest is at most |w| (r/sigma)^e sum_{m > M} (e)_m / m! (r/sigma)^m,
  * falling in sigma; A then holds the series' terms up to L and Ah^n's terms past L are the dropped ones. The least over
- * L = 4, 6, 8, each valid for sigma >= max(1, 2 r); below, and wherever smaller, the crude bound
+ * L = 4, 6, 8, each valid for sigma >= 2 r (in powers of sigma / r: ofOrder); below, and wherever smaller, the crude bound
  * 1 - p_0 + sum |w| (r / |r + s|)^e. A sum of bounds each non-increasing in t, and the least of such sums.
  */
 export function compoundRemainderBound(inp: CompoundRemainderInput): (beta: number, t: number) => number {
@@ -124,7 +124,8 @@ export function compoundRemainderBound(inp: CompoundRemainderInput): (beta: numb
   const e0 = s.exps[0];
   let Nb = 0;
   while (Nb + 1 < pn.length && (Nb + 1) * e0 <= KERNEL_ORDER + SAME_EXPONENT) Nb++;
-  const rMax = kernels.reduce((m, k) => Math.max(m, k.rate), 0);
+  // the kernels share one rate (compound.ts kernelsFor), the unit of ofOrder's powers
+  const r = kernels.length > 0 && kernels.every((k) => k.rate === kernels[0].rate) ? kernels[0].rate : NaN;
   let head = 0;
   let headErr = 0;
   for (let n = 0; n <= Nb; n++) {
@@ -141,19 +142,20 @@ export function compoundRemainderBound(inp: CompoundRemainderInput): (beta: numb
   // the same bound with the comparison carried to each order L: past KERNEL_ORDER the blocks' and the kernels' terms of
   // the same exponent cancel in part (Poisson(2)-pareto(1.5): sigma^-5 coefficients of some 100 each leave 19), which the
   // least of the orders keeps; a higher order pays with larger coefficients at small sigma
-  const orders = [KERNEL_ORDER, KERNEL_ORDER + 2, KERNEL_ORDER + 4];
-  const fine = orders.map((L) => ofOrder(inp, L, Nb));
+  // the orders whose series work stays within MAX_SERIES_WORK (shape 0.3 weibull claims: order 4 alone), built on first use
+  const orders = [KERNEL_ORDER, KERNEL_ORDER + 2, KERNEL_ORDER + 4].filter((L) => (keptTerms(s, L) * Nb) ** 2 <= MAX_SERIES_WORK);
+  let fineBuilt: ReturnType<typeof ofOrder>[] | null = null;
   const at = (beta: number, t: number) => {
     const sigma = Math.hypot(beta, t);
     // crude: sum_n p_n |phi|^n <= 1 - p_0, and each kernel |w| (r / |r + s|)^e, |r + s| >= hypot(r + beta, t)
     let crude = 1 - p0;
     for (const k of kernels) crude += Math.abs(k.w) * Math.exp(-beta * k.at) * Math.min(1, Math.pow(k.rate / Math.hypot(k.rate + beta, t), k.shape));
     crude *= 1 + 1e-12;
-    if (!(sigma >= Math.max(1, 2 * rMax))) return crude;
-    const ls = Math.log(sigma);
+    if (!(sigma >= 2 * r)) return crude;
+    const ls = Math.log(sigma / r);
     // the claims past the kernels' blocks, with m >= |phi| from the first order's A (all orders bound the same phi)
     let best = crude;
-    for (const f of fine) {
+    for (const f of (fineBuilt ??= orders.map((L) => ofOrder(inp, L, Nb)))) {
       const { v, m } = f(beta, t, sigma, ls);
       const all = (v + Math.min(tailP * Math.pow(m, Nb + 1), pgf(m))) * (1 + 1e-10);
       if (all < best) best = all;
@@ -223,27 +225,44 @@ function ofOrder(inp: CompoundRemainderInput, L: number, Nb: number) {
   const a = s.at;
   const e0 = s.exps[0];
   const J0 = keptTerms(s, L);
+  // everything in the unit of the kernels' rate r: c s^{-x} = (c r^{-x}) (s/r)^{-x}, so the powers are of sigma / r and hold
+  // from sigma = r on, whatever the law's scale (claims in millions); a kernel's binomial terms are then w times the
+  // binomial coefficient alone. r^{-x} within (2 + 2 |x log r|) eps
+  const logR = Math.log(kernels[0].rate);
+  const scaled = (c: number, x: number) => c * Math.exp(-x * logR);
+  const scaleErr = (x: number) => EPS * (2 + 2 * Math.abs(x * logR));
   const base: Term[] = [];
-  for (let j = 0; j < J0; j++) base.push({ x: s.exps[j], unc: 0, c: s.coefs[j], err: 0 });
-  // rho_h (Ah against A_true) and alpha >= |Ah|, plain powers
+  for (let j = 0; j < J0; j++) {
+    const c = scaled(s.coefs[j], s.exps[j]);
+    base.push({ x: s.exps[j], unc: 0, c, err: Math.abs(c) * scaleErr(s.exps[j]) });
+  }
+  // rho_h (Ah against A_true) and alpha >= |Ah|, plain powers of sigma / r
   const rhoH: Power[] = [];
   for (let j = 0; j < J0; j++) {
-    const x = s.exps[j] - rem.expErr[j];
-    rhoH.push([rem.coefErr[j], x]);
-    // the true exponent within expErr of the float: s^{-p} against s^{-p_h}, from x = p_h - expErr over a spread 2 expErr
-    logPowers(2 * Math.abs(s.coefs[j]), 2 * rem.expErr[j], x, rhoH);
+    const d = rem.expErr[j];
+    const x = s.exps[j] - d;
+    // (c - c_h) s^{-p}, the true p within d of p_h: r^{-p} <= r^{-p_h} e^{|log r| d}
+    const grow = Math.exp(Math.abs(logR) * d) * (1 + scaleErr(s.exps[j]));
+    rhoH.push([scaled(rem.coefErr[j], s.exps[j]) * grow, x]);
+    // c_h (s^{-p} - s^{-p_h}) = c_h r^{-p_h} ((r^{-(p - p_h)} - 1) (s/r)^{-p} + (s/r)^{-p} - (s/r)^{-p_h}): the first at most
+    // |log r| d e^{|log r| d} (s/r)^{-x}, the second as logPowers over the spread 2 d from x
+    const ch = Math.abs(scaled(s.coefs[j], s.exps[j])) * (1 + scaleErr(s.exps[j]));
+    if (d > 0) rhoH.push([ch * Math.abs(logR) * d * grow, x]);
+    logPowers(2 * ch, 2 * d, x, rhoH);
   }
-  const alphaP: Power[] = base.map((b) => [Math.abs(b.c), b.x]);
+  const alphaP: Power[] = base.map((b) => [Math.abs(b.c) + b.err, b.x]);
   // per block n: its terms past L (absolute), its terms up to L (signed, to compare with the kernels), its endpoint
   const blocks: { n: number; dropped: Power[]; atErr: number }[] = [];
   const series = new Map<number, Term[]>();
+  let pw: Term[] = [{ x: 0, unc: 0, c: 1, err: 0 }];
   for (let n = 1; n <= Nb; n++) {
+    pw = times(pw, base);
     const q = pn[n];
     if (!(q > 0)) continue;
     const at = n * a;
     const dropped: Power[] = [];
     const kept: Term[] = [];
-    for (const t of power(base, n)) {
+    for (const t of pw) {
       if (t.x <= L + SAME_EXPONENT) kept.push({ x: t.x, unc: t.unc, c: q * t.c, err: q * t.err + EPS * Math.abs(q * t.c) });
       else dropped.push([q * (Math.abs(t.c) + t.err) * (1 + 2 * EPS), t.x - t.unc]);
     }
@@ -262,9 +281,9 @@ function ofOrder(inp: CompoundRemainderInput, L: number, Nb: number) {
     for (; k.shape + m <= L + SAME_EXPONENT; m++) {
       if (m > 0) b *= -(k.shape + m - 1) / m;
       const x = k.shape + m;
-      const c = -k.w * Math.pow(k.rate, x) * b;
-      // the binomial coefficient's 2 m roundings, the pow within (2 + |x log r|) eps, the products 2
-      list.push({ x, unc: sumError(k.shape, m, x), c, err: Math.abs(c) * EPS * (2 * m + 6 + 2 * Math.abs(x * Math.log(k.rate))) });
+      // w (r/s)^x binom(-e, m) = w binom(-e, m) (s/r)^{-x}: the binomial coefficient's 2 m roundings and the product's
+      const c = -k.w * b;
+      list.push({ x, unc: sumError(k.shape, m, x), c, err: Math.abs(c) * EPS * (2 * m + 2) });
     }
     rests.push({ w: Math.abs(k.w), at: k.at, e: k.shape, r: k.rate, M: m - 1 });
   }
@@ -316,12 +335,14 @@ export function endpointKernelsRemainder(N: Node, rem: EndpointRemainder, kernel
   if (!t || t.step !== 1 || t.origin !== 0) return null;
   const pn = new Float64Array(nMax + 1);
   for (let n = 0; n < pn.length; n++) pn[n] = n < t.p.length ? t.p[n] : 0;
-  // past the table's end its p_n are 0 while the count's may not be: only with the table's own bound there
-  if (t.p.length < pn.length && !t.beyond) return null;
+  // past the table's end its p_n are 0 while the count's may not be (but past the count's support, binomial(3)): only with
+  // the table's own bound there
+  const top = N.support[1];
+  if (t.p.length < pn.length && !t.beyond && top >= t.p.length) return null;
   const rel = t.pointRel;
   const beyond = t.beyond;
   // a p_n past the table's end is 0 to the kernels: its own bound there (beyond) is its distance from the truth
-  const pErr = (n: number) => (n < t.p.length ? 1.01 * (rel ? rel(n) : 16 * (n + 1) * EPS) * pn[n] : beyond!(n));
+  const pErr = (n: number) => (n < t.p.length ? 1.01 * (rel ? rel(n) : 16 * (n + 1) * EPS) * pn[n] : n > top ? 0 : beyond!(n));
   const cg = N.countCgf;
   const wr = new Float64Array(1);
   const wi = new Float64Array(1);
@@ -334,5 +355,7 @@ export function endpointKernelsRemainder(N: Node, rem: EndpointRemainder, kernel
         return or[0];
       }
     : undefined;
+  // a severity with so many terms below KERNEL_ORDER (weibull shape below 0.28) that even order 4 passes the work limit: none
+  if ((keptTerms(rem.series) * (nMax - 1)) ** 2 > MAX_SERIES_WORK) return null;
   return compoundRemainderBound({ rem, pn, pErr, kernels, ...(cgf ? { cgf } : {}), relErr: N.cfRelError ?? 0, absErr: N.cfAbsError ?? 0 });
 }
