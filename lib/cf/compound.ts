@@ -126,7 +126,7 @@ export function compoundNode(N: Node, X: Node, discretise: DiscretiseOptions | n
       node.transformSeries = k.series;
       if (k.kernels.length > 0) node.dampedKernels = { cf: node.dampedLogCf, kernels: k.kernels, rate: k.rate };
       if (k.kernels.length > 0 && k.exact) node.dampedRemainder = { cf: node.dampedLogCf, bound: gammaRemainderBound(k.exact) };
-      // pareto and weibull claims: the kernels match the severity's expansion, whose Watson remainder the family bounds
+      // pareto, weibull, lomax and Burr claims: the kernels match the severity's expansion, whose Watson remainder the family bounds
       // (the expansion object itself: a moved law carries a new one, and no bound)
       const er = X.endpointRemainder;
       const rb = k.kernels.length > 0 && !k.exact && er && er.series === X.laplaceExpansion ? endpointKernelsRemainder(N, er, k.kernels) : null;

@@ -123,8 +123,28 @@ describe("compounds of pareto and weibull claims: the truncation bound is derive
     expect(r.diagnostics.notes.includes(DAMPED_SAMPLED_NOTE)).toBe(/weibull\(0\.7/.test(_n));
   });
 
+  // the density grid (FFT route) against the references on its nodes (x = 0.5, 1, ..., 100); shapes below 1 keep the
+  // samples' envelope there and say so
+  const onGrid = heavy.cases.filter((c) => /pareto|weibull|lomax|burr/.test(JSON.stringify(c.model)));
+  it.each(onGrid.map((c) => [JSON.stringify(c.model), c] as const))("%s: density grid's cdf within its bound (heavy.json)", (_n, c) => {
+    const r = density(compile(c.model), { grid: { from: 0.5, to: 100, count: 200 } });
+    expect(r.diagnostics.method).toMatch(/damped/);
+    const below1 = /"(shape|gamma)":0\./.test(_n);
+    expect(r.diagnostics.notes.includes(DAMPED_SAMPLED_NOTE), "sampled-envelope note").toBe(below1);
+    let n = 0;
+    for (const p of c.points) {
+      const i = Math.round((p.x - 0.5) / 0.5);
+      if (!(i >= 0 && i < 200 && Math.abs(0.5 + 0.5 * i - p.x) < 1e-12)) continue;
+      n++;
+      const d = Math.abs(r.cdf[i] - p.cdf);
+      const ref = p.cdfErr ?? c.crossCheck.maxCdfDifference;
+      if (!(d <= r.diagnostics.error.cdf + ref)) expect.fail(`x ${p.x}: cdf ${r.cdf[i]}, reference ${p.cdf}, difference ${d}, bound ${r.diagnostics.error.cdf}, reference uncertainty ${ref}`);
+    }
+    expect(n).toBeGreaterThanOrEqual(3);
+  });
+
   // the cdf alone (no density asked), so shape-below-1 weibull claims keep their derived bound too
-  const cases = heavy.cases.filter((c) => /pareto|weibull/.test(JSON.stringify(c.model)));
+  const cases = heavy.cases.filter((c) => /pareto|weibull|lomax|burr/.test(JSON.stringify(c.model)));
   it.each(cases.map((c) => [JSON.stringify(c.model), c] as const))("%s: cdf within its derived bound (heavy.json)", (_n, c) => {
     const r = density(compile(c.model), { x: c.points.map((p) => p.x), cdfOnly: true });
     expect(r.diagnostics.notes).not.toContain(DAMPED_SAMPLED_NOTE);

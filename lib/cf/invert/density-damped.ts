@@ -53,7 +53,8 @@ export function dampedDensity(
   const notes0: string[] = [];
   if (req.kind === "grid" && useFft) {
     // withInt false: the setup below forms no integrated cdf, so without a second moment the period is set by the cdf's
-    // images after their closed-form shift (Poisson(2)-pareto(1.5): T 2 333 -> 1 607)
+    // images after their closed-form shift (Poisson(2)-pareto(1.5): T 2 333 -> 1 607); the plan within the setup's budget, so
+    // that a derived envelope needing more terms gives way to the samples' one (dampedPlan) instead of leaving the route
     const periodOf = (T: number) => gridPeriod(lo, req.from, req.dx, req.count, T).T;
     const plan = dampedPlan(model, atoms, R, tol, wantPdf, n, false, budget, periodOf, wantPdf, "range", undefined, false);
     const g = gridPeriod(lo, req.from, req.dx, req.count, plan.T);
