@@ -61,6 +61,7 @@ function heaviestTerm(cs: Node[]): TailTerm | null {
   };
   return {
     ...(images ? { images } : {}),
+    others: othersMoments(rest),
     rest: restBound,
     logCf: (t, re, im) => D.logCf(t, re, im),
     direct: shift === 0 ? D.direct : affineDirect(D.direct, 1, shift),
@@ -83,6 +84,40 @@ function nodeMoments(D: Node): CompiledModel {
     cumulants: (n) => D.cumulants(n),
     cumulantErrors: (n) => cumulantEst(D, Math.max(0, Math.min(Math.floor(n), 64))).map((v) => (v === null ? null : v.e)),
     support: D.support,
+  };
+  return view as CompiledModel;
+}
+
+/**
+ * What momentBounds (invert/moment-tails.ts) reads of the sum Y of the other terms: the least moment index, the cumulants
+ * added, each with the sum of the terms' derived bounds plus the rounding of the addition (n - 1 roundings of partial sums
+ * at most sum |kappa| in size).
+ */
+function othersMoments(rest: Node[]): TailTerm["others"] {
+  const view: Pick<CompiledModel, "momentIndex" | "cumulants" | "cumulantErrors" | "support"> = {
+    momentIndex: Math.min(...rest.map((c) => c.momentIndex)),
+    cumulants: (n) => addCumulants(rest.map((c) => c.cumulants(n)), n),
+    cumulantErrors: (n) => {
+      const m = Math.max(0, Math.min(Math.floor(n), 64));
+      const per = rest.map((c) => cumulantEst(c, m));
+      const out: (number | null)[] = [];
+      for (let k = 0; k < m; k++) {
+        let e = 0;
+        let abs = 0;
+        for (const p of per) {
+          const v = p[k];
+          if (v === null || v === undefined) {
+            e = NaN;
+            break;
+          }
+          e += v.e;
+          abs += Math.abs(v.v);
+        }
+        out.push(Number.isNaN(e) ? null : e + rest.length * Number.EPSILON * abs);
+      }
+      return out;
+    },
+    support: [rest.reduce((s, c) => s + c.support[0], 0), rest.reduce((s, c) => s + c.support[1], 0)],
   };
   return view as CompiledModel;
 }

@@ -143,6 +143,8 @@ export interface TailTerm {
   indices: number[];
   /** bound on the absolute error of D's CF values */
   cfAbsError: number;
+  /** the law of Y = X - D as the moment routines read it (momentIndex, cumulants with derived bounds, support) */
+  others?: CompiledModel;
   /** optional: a derived majorant of |phi_G| = |phi_D| (D's, its slope about the centre moved by `shift`) */
   logAbsMajorant?: import("./majorant").LogMajorant;
   /**

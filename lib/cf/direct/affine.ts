@@ -1,3 +1,4 @@
+import { affinePowerTail } from "./power-tail";
 import { directPoint, type DirectLaw, type DirectPoint } from "./types";
 
 /**
@@ -19,6 +20,7 @@ export function affineDirect(law: DirectLaw, a: number, b: number): DirectLaw {
     spread: aa * law.spread,
     ...(law.mode !== undefined ? { mode: a * law.mode + b } : {}),
     ...(law.unimodal ? { unimodal: true } : {}),
+    ...(law.powerTail ? { powerTail: affinePowerTail(law.powerTail, a, b) } : {}),
     // atoms move with the law (a x + b, within the rounding of that product and sum: the location, not the mass)
     // (a < 0 turns F(x-) into S(x) = 1 - F(x-) - p)
     ...(law.atoms

@@ -7,6 +7,7 @@ import { incBetaBounded, incBetaShape } from "../families/incbeta-bounded";
 import { normalCdfBounded, type Bounded } from "../families/normal-bounded";
 import { directPoint, type DirectLaw, type DirectPoint } from "./types";
 import { oneTailSplit } from "./stable-one-tail";
+import { paretoPowerTail, studentPowerTail, type PowerTail } from "./power-tail";
 import { bounds, ELEM, EPS, law, SQRT2PI, withExcess, withMode, withMonotoneTail } from "./law";
 
 const U = EPS / 2;
@@ -125,7 +126,7 @@ export function gammaDirect(shape: number, rate: number): DirectLaw {
 }
 
 export function paretoDirect(alpha: number, xm: number): DirectLaw {
-  return withMonotoneTail(withExcess(
+  return withPowerTail(paretoPowerTail(alpha, xm), withMonotoneTail(withExcess(
     law(
       "closed-form",
       [xm, Infinity],
@@ -148,7 +149,11 @@ export function paretoDirect(alpha: number, xm: number): DirectLaw {
     xm,
     // mean excess c/(alpha - 1) (Embrechts, Klueppelberg & Mikosch 1997, Table 3.4.7; recalled)
     (c) => c / (alpha - 1),
-  ));
+  )));
+}
+
+function withPowerTail(powerTail: PowerTail, law: DirectLaw): DirectLaw {
+  return { ...law, powerTail };
 }
 
 export function weibullDirect(shape: number, scale: number): DirectLaw {
@@ -361,10 +366,12 @@ export function studentDirect(nu: number, loc: number, scale: number): DirectLaw
     const tail = (side === 1 ? sp.sf + sp.sfErr : sp.cdf + sp.cdfErr) * (1 + 4 * EPS);
     return { tail, pdf: (sp.pdf + sp.pdfErr) * (1 + 4 * EPS), stopLoss: Infinity, restTail: 0, restPdf: 0, restStopLoss: 0 };
   };
-  if (!(nu > 1)) return withMode(loc, { ...L, monotoneSplit: split });
+  const powerTail = studentPowerTail(nu, loc, scale, lc + eLc);
+  if (!(nu > 1)) return withMode(loc, { ...L, monotoneSplit: split, powerTail });
   return withMode(loc, {
     ...L,
     monotoneSplit: split,
+    powerTail,
     // E[(X - c)^+] = scale^2 (nu + z^2)/(nu - 1) f(c) - (c - loc) S(c), z = (c - loc)/scale (from d/dt [(nu + t^2) f_nu(t)] =
     // -(nu - 1) t f_nu(t), McNeil, Frey & Embrechts 2015, Example 2.15), and E[(c - X)^+] with F and + (c - loc) by
     // symmetry; each term within its values' own bounds, plus 16u of their sizes for z's rounding and the arithmetic.

@@ -7,6 +7,7 @@ import { alphaTightBox } from "./stable-box";
 import { stableLightPanels } from "./stable-light";
 import type { PanelSide } from "./stable-panel-store";
 import { stableTailSeries, stableTailSplit, stableTailStopLoss } from "./stable-series";
+import { stablePowerTail } from "./power-tail";
 import { oneTailSplit, stableOneTail } from "./stable-one-tail";
 import type { DirectLaw, DirectPoint } from "./types";
 import { lgamma, lgammaErr } from "../families/special";
@@ -46,6 +47,7 @@ export function stableDirect(alpha: number, beta: number, scale: number, loc: nu
   let support: [number, number] = [-Infinity, Infinity];
   if (alpha < 1 && beta === 1) support = [d1, Infinity];
   if (alpha < 1 && beta === -1) support = [-Infinity, d1];
+  const powerTail = stablePowerTail(alpha, beta, g, d1);
   // half-line laws start at d1; otherwise z = 0 is an interior point handled by the closed forms at zeta
   const at = (x: number, out: DirectPoint) => {
     const z = (x - d1) / g;
@@ -66,6 +68,7 @@ export function stableDirect(alpha: number, beta: number, scale: number, loc: nu
     spread: g,
     // stable laws are unimodal (Yamazato 1978, Ann. Probab. 6)
     unimodal: true,
+    ...(powerTail ? { powerTail } : {}),
     at,
     // far in a tail (alpha > 1, alpha != 2): the tail series integrated (./stable-series.ts); z < 0 by reflection
     stopLoss: (c: number, side: 1 | -1) => {
