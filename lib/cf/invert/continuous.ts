@@ -27,7 +27,7 @@ import {
 import { checkDeadline } from "../deadline";
 
 export type { PartOptions, PartOutput, PartSolution, Request } from "./shared";
-export { evalLadder, growLadder, heavyLadder, type HeavyLadder } from "./heavy";
+export { evalLadder, growLadder, heavyLadder, type HeavyLadder } from "./heavy-ladder";
 
 /** Thrown by the light path before it builds more nodes than PartOptions.maxTerms allows. */
 export class TermsOverCap extends Error {

@@ -1,4 +1,3 @@
-import type { Atom, CompiledModel } from "../types";
 import type { DirectLaw } from "../direct/types";
 
 /** a term's law whose images are taken out of the pointwise sums (./images.ts) */
@@ -6,22 +5,20 @@ export interface ImageLaw {
   direct: DirectLaw;
   tails: { left: number; right: number };
 }
-import { imageLadder, imageScratch, type ImageScratch, type ImageSums } from "./images";
 import { buildNodes, cutoffFor, probeEnvelope, truncationAt, type Envelope, type Nodes } from "./nodes";
-import { makePart, withTailLaw, type ContinuousPart } from "./part";
+import { withTailLaw, type ContinuousPart } from "./part";
 import { sumPointwise } from "./pointwise";
-import { lawShape, type LawShape } from "./range";
-import { RICHARDSON_ESTIMATE_NOTE, richardsonAmplification, richardsonLastStep, richardsonExponents, richardsonExponentsMulti, richardsonRow, richardsonRowArrays } from "./richardson";
+import { bestDerivedEntry, lastRowWeights, residualAliasing, residualLaw } from "./heavy-residual";
+import type { LawShape } from "./range";
+import { RICHARDSON_ESTIMATE_NOTE, richardsonAmplification, richardsonExponents, richardsonExponentsMulti, richardsonRowArrays } from "./richardson";
 import {
   MAX_FFT,
   MAX_LEVELS,
   MAX_POINTWISE_WORK,
-  MAX_TERMS,
   addKernels,
   chooseTerms,
   evaluate,
   gridLayout,
-  kernelTotals,
   maxDiff,
   nPoints,
   requestPoints,
@@ -32,7 +29,6 @@ import {
   type PartOutput,
   type Request,
 } from "./shared";
-import { maybeKernels } from "./continuous";
 import type { ErrorEstimate } from "./types";
 import { checkDeadline } from "../deadline";
 
@@ -85,6 +81,19 @@ export function heavyPath(
   // once the density's floor alone reaches its best error (the test below that ends the levels), the levels the cdf still
   // needs are summed without the density: their density would not be kept
   let pdfDone = false;
+  // a derived bound on the aliasing left (./heavy-residual.ts) where the heaviest term's CF is taken out and no endpoint
+  // kernels are: each level's own bound, and the last row's entry with the least one
+  const resid = part.tail && !part.kernels.length ? residualLaw(part.tail) : null;
+  const pts = requestPoints(req);
+  let xLo = Infinity;
+  let xHi = -Infinity;
+  for (let i = 0; i < pts.length; i++) {
+    xLo = Math.min(xLo, pts[i]);
+    xHi = Math.max(xHi, pts[i]);
+  }
+  const rawC: number[] = [];
+  const rawP: number[] = [];
+  let derived: { cdf: Float64Array; sf: Float64Array; pdf: Float64Array | null; errC: number; errP: number } | null = null;
   for (let lev = 0; lev < MAX_LEVELS; lev++) {
     checkDeadline("refine");
     const T = T0 * 2 ** lev;
@@ -152,6 +161,18 @@ export function heavyPath(
     prevBest = best;
     if (result.pdf && error.pdf < (bestPdf?.err ?? Infinity)) bestPdf = { pdf: result.pdf, err: error.pdf };
     const pdfErrBest = bestPdf?.err ?? Infinity;
+    if (resid && xLo <= xHi) {
+      const T = T0 * 2 ** lev;
+      rawC.push(residualAliasing(resid, xLo, xHi, T, "cdf") + 2 * trunc.cdf + round.cdf);
+      rawP.push(residualAliasing(resid, xLo, xHi, T, "pdf") + 2 * trunc.pdf + round.pdf);
+      const dc = bestDerivedEntry(lastRowWeights(expC, lev + 1), rawC);
+      // the density only while it is summed (pdfDone: its best level is kept, with its estimate)
+      const dp = pdf ? bestDerivedEntry(lastRowWeights(expP, lev + 1), rawP) : { j: 0, err: Infinity };
+      if (!derived || dc.err < derived.errC) derived = { cdf: rowC[dc.j], sf: rowS[dc.j], pdf: pdf ? rowP[dp.j] : null, errC: dc.err, errP: dp.err };
+    }
+    // levels go on for the derived bound until it reaches the tolerance (or the fifth level)
+    const wantD = resid !== null && lev < 4 && !(derived && derived.errC <= tol && (!opt.wantPdf || derived.errP <= tol));
+    if (wantD) continue;
     if (lev >= 2 && error.cdf <= tol && (!opt.wantPdf || pdfErrBest <= tol)) break;
     // the sums' own bound (truncation and rounding, which another doubling keeps), amplified by one more extrapolation
     // level, already exceeds what is reached: a further level could not lower the error, only double the work
@@ -166,52 +187,29 @@ export function heavyPath(
     result!.error.pdf = bestPdf.err;
   }
   notes.push(`power tails (index ${shape.alpha}): period doubled ${result!.levels - 1} times with Richardson extrapolation`);
-  notes.push(RICHARDSON_ESTIMATE_NOTE);
+  // the derived bound where it is at most the estimate or the tolerance (cdf, and pdf where asked): no note then
+  if (derived && derived.errC <= Math.max(result!.error.cdf, tol) && (!opt.wantPdf || (derived.pdf && derived.errP <= Math.max(result!.error.pdf, tol)))) {
+    result!.cdf = Float64Array.from(derived.cdf);
+    result!.sf = Float64Array.from(derived.sf);
+    result!.error.cdf = derived.errC;
+    result!.error.aliasing = derived.errC;
+    if (opt.wantPdf && derived.pdf) {
+      result!.pdf = Float64Array.from(derived.pdf);
+      result!.error.pdf = derived.errP;
+    }
+  } else notes.push(RICHARDSON_ESTIMATE_NOTE);
   if (part.kernels.length || part.tail) {
     const added = addKernels(part, requestPoints(req), result!.pdf, result!.cdf, result!.sf);
     result!.error.cdf += added.errCdf;
     if (opt.wantPdf) result!.error.pdf += added.errPdf;
   }
-  const pts = new Float64Array([result!.window.a, result!.window.b]);
+  const ends = new Float64Array([result!.window.a, result!.window.b]);
   const c2 = new Float64Array(2);
   const s2 = new Float64Array(2);
   // mass inside the last window, from its own (non-extrapolated) sums: informative, not part of the error budget
-  sumPointwise(lastNodes!, part.center, pts, null, c2, s2);
+  sumPointwise(lastNodes!, part.center, ends, null, c2, s2);
   result!.captured = Math.min(1, Math.max(0, s2[0] - s2[1]));
   return result!;
-}
-
-/** Frequency nodes for a fixed ladder of periods T0 2^l, reusable for any number of pointwise evaluations. */
-export interface HeavyLadder {
-  part: ContinuousPart;
-  levels: Nodes[];
-  expC: number[];
-  expP: number[];
-  /** truncation + rounding bound of the extrapolated cdf and pdf */
-  sumErrCdf: number;
-  sumErrPdf: number;
-  T0: number;
-  tmax: number;
-  env: Envelope;
-  amp: number;
-  trC: number;
-  trP: number;
-  /** power-tail index and power terms of what is inverted (for other Richardson tables on the same nodes) */
-  alpha: number;
-  bases?: number[];
-  /** the power-tailed terms whose images are taken out of every level's sums from their direct laws (./images.ts) */
-  images: ImageLaw[];
-  imageScratch: ImageScratch;
-  /** evalLadder's answers at the current levels, by x (cleared when a level is added) */
-  memo?: Map<number, LadderValue>;
-}
-
-export interface LadderValue {
-  pdf: number;
-  cdf: number;
-  sf: number;
-  errCdf: number;
-  errPdf: number;
 }
 
 /** Richardson exponents from every power term the tails may hold when known, else from the smallest index alone. */
@@ -244,136 +242,4 @@ export function maybeTailLaw(
   return { part: p2, env: e2, alpha: Math.max(p2.tail.remainderAlpha, alpha), bases: p2.tail.indices };
 }
 
-/** Build the ladder for a power-tailed continuous part (see heavyPath for the expansion behind it). */
-export function heavyLadder(model: CompiledModel, atoms: Atom[], T0: number, levels: number, tol: number): HeavyLadder {
-  const shape = lawShape(model);
-  let part = makePart(model, atoms, shape.center);
-  let env = probeEnvelope(part, shape.spread);
-  let alpha: number;
-  let bases: number[] | undefined;
-  // the heaviest-tailed term's images come out of the sums from its direct law, so its CF (which may fall off like
-  // 1/t) is never subtracted and the cut-off stays the whole sum's; failing that, its CF is subtracted (maybeTailLaw)
-  // (and the next heaviest term's too when it has a direct law: TailTerm.images)
-  const G = model.tailTerm;
-  const a0 = Math.max(shape.alpha, 0.1) + 0.05;
-  const plan = !G || atoms.length ? null : G.images && G.images.remainderAlpha > Math.max(G.remainderAlpha, a0) ? G.images : G.remainderAlpha > a0 ? { laws: [{ direct: G.direct, tails: G.tails }], remainderAlpha: G.remainderAlpha, indices: G.indices } : null;
-  const images: ImageLaw[] = plan ? plan.laws : [];
-  if (plan) {
-    alpha = Math.max(plan.remainderAlpha, shape.alpha);
-    bases = plan.indices;
-  } else ({ part, env, alpha, bases } = maybeTailLaw(part, env, shape, tol));
-  ({ part, env } = maybeKernels(part, env, shape, { a: shape.center - T0 / 2, b: shape.center + T0 / 2 }, tol / 16, true, []));
-  let tmax = cutoffFor(env, tol / 16, tol / 16);
-  if (!Number.isFinite(tmax)) tmax = env.t[env.t.length - 1];
-  const lad: HeavyLadder = {
-    part,
-    levels: [],
-    expC: exponentsFor(bases, alpha, 0, MAX_LEVELS),
-    expP: exponentsFor(bases, alpha, 1, MAX_LEVELS),
-    sumErrCdf: 0,
-    sumErrPdf: 0,
-    T0,
-    tmax,
-    env,
-    amp: 1,
-    trC: 0,
-    trP: 0,
-    alpha,
-    bases,
-    images,
-    imageScratch: imageScratch(),
-  };
-  // the remainder's faster decay needs fewer doublings to start with (more are added when the probes ask for them)
-  const start = part.tail || images.length ? Math.min(levels, 3) : levels;
-  for (let l = 0; l < start; l++) growLadder(lad);
-  return lad;
-}
-
-/** One more period doubling (the nodes of the earlier levels are kept). */
-export function growLadder(lad: HeavyLadder): boolean {
-  const l = lad.levels.length;
-  if (l >= lad.expC.length) return false;
-  const h = (2 * Math.PI) / (lad.T0 * 2 ** l);
-  const K = Math.min(Math.max(8, Math.ceil(lad.tmax / h)), MAX_TERMS);
-  const nd = buildNodes(lad.part, h, K);
-  lad.levels.push(nd);
-  lad.memo?.clear();
-  lad.amp = richardsonAmplification(lad.expC, l + 1);
-  const tr = truncationAt(lad.env, K * h);
-  // phases up to |x - center| = T0 here; evalLadder adds what farther points need
-  const rd = roundingOf(lad.part, nd, lad.T0);
-  lad.trC = Math.max(lad.trC, 2 * tr.cdf + rd.cdf);
-  lad.trP = Math.max(lad.trP, 2 * tr.pdf + rd.pdf);
-  lad.sumErrCdf = lad.amp * lad.trC;
-  lad.sumErrPdf = lad.amp * lad.trP;
-  return true;
-}
-
-/**
- * The extrapolated continuous-part values at x (endpoint kernels added in closed form) and the
- * error estimate 2 max(|R_LL - R_{L-1,L-1}|, |R_LL - R_{L,L-1}|) plus the sums' own bound.
- */
-export function evalLadder(
-  lad: HeavyLadder,
-  x: number,
-  scratch: { pdf: Float64Array; cdf: Float64Array; sf: Float64Array; one: Float64Array },
-): LadderValue {
-  // the root finders and the brackets come back to the same points: the same levels give the same answer
-  const memo = (lad.memo ??= new Map());
-  const seen = memo.get(x);
-  if (seen) return seen;
-  if (memo.size >= 4096) memo.clear();
-  const value = ladderAt(lad, x, scratch);
-  memo.set(x, value);
-  return value;
-}
-
-function ladderAt(lad: HeavyLadder, x: number, scratch: { pdf: Float64Array; cdf: Float64Array; sf: Float64Array; one: Float64Array }): LadderValue {
-  const L = lad.levels.length;
-  const P: number[][] = [];
-  const C: number[][] = [];
-  const S: number[][] = [];
-  scratch.one[0] = x;
-  let imC = 0;
-  let imP = 0;
-  const ims: ImageSums[][] = lad.images.map((law) => imageLadder(law.direct, x, lad.T0, L, lad.imageScratch));
-  for (let l = 0; l < L; l++) {
-    sumPointwise(lad.levels[l], lad.part.center, scratch.one, scratch.pdf, scratch.cdf, scratch.sf);
-    let pdf = scratch.pdf[0];
-    let cdf = scratch.cdf[0];
-    let sf = scratch.sf[0];
-    let eC = 0;
-    let eP = 0;
-    for (let g = 0; g < ims.length; g++) {
-      const im = ims[g][l];
-      pdf -= im.pdf;
-      cdf -= im.cdf;
-      sf += im.cdf;
-      eC += im.errCdf;
-      eP += im.errPdf;
-    }
-    imC = Math.max(imC, eC);
-    imP = Math.max(imP, eP);
-    P.push(richardsonRow(pdf, P[l - 1], lad.expP));
-    C.push(richardsonRow(cdf, C[l - 1], lad.expC));
-    S.push(richardsonRow(sf, S[l - 1], lad.expC));
-  }
-  const b = L - 1;
-  // the levels' rounding (growLadder) holds for |x - center| up to the first period T0; beyond it the phase rounding
-  // 3 u t_k |x - center| grows with the distance (shared.ts roundingOf)
-  let farPhase = 0;
-  const over = Math.abs(x - lad.part.center) - lad.T0;
-  if (over > 0) for (let l = 0; l < L; l++) farPhase = Math.max(farPhase, 3 * Number.EPSILON * over * lad.levels[l].absPdf);
-  // the last elimination step's correction (an order above the error of R_LL), not the change from the previous diagonal
-  // entry (two orders above): the quantile bounds built on it were 1 000 - 10 000 times the actual error
-  const d = richardsonLastStep;
-  const k = kernelTotals(lad.part, x);
-  // the images' bounds enter every level's value: amplified like the sums' own
-  return {
-    pdf: P[b][b] + k.pdf,
-    cdf: C[b][b] + k.cdf,
-    sf: S[b][b] + k.sf,
-    errCdf: Math.max(d(C), d(S)) + lad.sumErrCdf + lad.amp * (imC + farPhase) + k.errCdf,
-    errPdf: d(P) + lad.sumErrPdf + richardsonAmplification(lad.expP, L) * imP + k.errPdf,
-  };
-}
+export { evalLadder, growLadder, heavyLadder, type HeavyLadder, type LadderValue } from "./heavy-ladder";

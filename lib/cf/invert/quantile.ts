@@ -295,10 +295,13 @@ function heavyQuantilesAt(
   const ext = T0 / 8;
   const probes = [shape.center - ext, shape.center, shape.center + ext];
   for (let more = 0; more < 3; more++) {
-    const worst = Math.max(...probes.map((x) => evalLadder(lad, x, scratch).errCdf));
+    const vals = probes.map((x) => evalLadder(lad, x, scratch));
+    const worst = Math.max(...vals.map((v) => v.errCdf));
+    // where a derived bound is possible (./heavy-residual.ts), the levels grow until it reaches the tolerance too
+    const derivedShort = lad.resid !== null && Math.max(...vals.map((v) => v.derivedCdf)) > tol;
     // the sums' own bound, amplified by one more extrapolation level, would already exceed what is reached
     const floorNext = richardsonAmplification(lad.expC, lad.levels.length + 1) * lad.trC;
-    if (worst <= tol || floorNext >= worst || !growLadder(lad)) break;
+    if ((worst <= tol && !derivedShort) || (!derivedShort && floorNext >= worst) || !growLadder(lad)) break;
   }
   let seenErr = 0;
   const ev: Evaluator = {
@@ -316,7 +319,6 @@ function heavyQuantilesAt(
   for (const x of probes) ev.eval(x);
   ev.errCdf = 2 * seenErr + 4 * Number.EPSILON;
   notes.push(`power tails: ${lad.levels.length} period doublings from T = ${T0.toPrecision(4)}, Richardson extrapolation`);
-  notes.push(RICHARDSON_ESTIMATE_NOTE);
   const [lo, hi] = shape.support;
   const xs = new Float64Array(p.length);
   const err = new Float64Array(p.length);
@@ -344,6 +346,8 @@ function heavyQuantilesAt(
   }
   // a period the caller does not keep: no expected shortfall spent on it
   if (keep && !keep(xs, err)) return null;
+  // every value whose cdf bound was the Richardson estimate (not derived: ./heavy-residual.ts) marks the answer
+  let estimated = lad.estimated;
   const lastErr = ev.errCdf;
   const terms = ev.terms;
   const range = { from: shape.center - T0 / 2, to: shape.center + T0 / 2 };
@@ -365,10 +369,12 @@ function heavyQuantilesAt(
         const r = sh(xs[i], 1e-8 * (1 - p[i]) * Math.max(1, Math.abs(xs[i]), shape.spread));
         es[i] = xs[i] + r.value / (1 - p[i]);
         esErr[i] = (r.error + Math.max(lastErr, tol) * err[i]) / (1 - p[i]) + 4 * Number.EPSILON * Math.abs(es[i]);
+        if (r.estimated) estimated = true;
       }
       notes.push("expected shortfall of power tails: E|X - q| by the mid-point sum with period doubling and Richardson extrapolation");
     }
   }
+  if (estimated) notes.push(RICHARDSON_ESTIMATE_NOTE);
   return {
     p,
     x: xs,

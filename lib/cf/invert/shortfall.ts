@@ -1,6 +1,7 @@
 import type { Atom, CompiledModel } from "../types";
 import { maybeKernels, type PartSolution } from "./continuous";
 import { exponentsFor, maybeTailLaw, type HeavyLadder } from "./heavy";
+import { bestDerivedEntry, lastRowWeights, residualAliasing, residualLaw, type ResidualLaw } from "./heavy-residual";
 import { directShortfall } from "../direct/shortfall";
 import { directPoint } from "../direct/types";
 import { imageScratch } from "./images";
@@ -147,7 +148,7 @@ export function heavyShortfall(
   tol: number,
   span: number,
   ladder?: HeavyLadder,
-): (q: number, target: number) => { value: number; error: number } {
+): (q: number, target: number) => { value: number; error: number; estimated: boolean } {
   let part: ContinuousPart;
   let env: Envelope;
   let alphaR: number;
@@ -157,6 +158,7 @@ export function heavyShortfall(
   // closed form or has its own stop-loss transform (each image is otherwise a Gauss-Laguerre rule over a tail: a few hundred
   // evaluations of the law per level)
   const useLadder = ladder && ladder.images.every((g) => g.direct.method === "closed-form" || g.direct.stopLoss) ? ladder : undefined;
+  let resid: ResidualLaw | null = null;
   const images = useLadder?.images ?? [];
   const scratch = imageScratch();
   if (useLadder) {
@@ -167,6 +169,9 @@ export function heavyShortfall(
     ({ part, env, alpha: alphaR, bases } = maybeTailLaw(part, env, shape, tol));
     ({ part, env } = maybeKernels(part, env, shape, { a: shape.center - 64 * shape.spread, b: shape.center + 64 * shape.spread }, tol / 16, false, []));
   }
+  // a derived bound on the aliasing left where one term is taken out and no endpoint kernels are (./heavy-residual.ts)
+  if (useLadder) resid = useLadder.resid;
+  else if (part.tail && !part.kernels.length) resid = residualLaw(part.tail);
   // the weights 1/t^2 make the tail beyond T at most (2/pi) int_T E/t^2 <= 2 tailCdf(T)/T: cut where that is small
   let tmax = env.t[env.t.length - 1];
   let truncES = (2 * env.tailCdf[env.t.length - 1]) / tmax;
@@ -249,6 +254,10 @@ export function heavyShortfall(
     const rows: number[][] = [];
     let best = NaN;
     let bestTotal = Infinity;
+    // each raw level's derived bound, and the last row's entry with the least one (./heavy-residual.ts)
+    const raw: number[] = [];
+    let bestD = { value: NaN, err: Infinity };
+    const goal = Math.max(target, tol);
     let prev = NaN;
     let round = 0;
     for (let lev = 0; lev < 8; lev++) {
@@ -280,6 +289,13 @@ export function heavyShortfall(
       const row = richardsonRow(v, rows[lev - 1], exps);
       rows.push(row);
       const cand = row[lev];
+      if (resid) {
+        raw.push(residualAliasing(resid, q, q, T, "stopLoss") + sumRound * (1 + 1e-10) + imErr + truncES);
+        const d = bestDerivedEntry(lastRowWeights(exps, lev + 1), raw);
+        if (d.err < bestD.err) bestD = { value: row[d.j], err: d.err };
+      }
+      // levels go on for the derived bound while it falls towards the goal (at most 1e3 times it from the fourth level)
+      const wantD = resid !== null && bestD.err > goal && (lev < 3 || bestD.err < 1e3 * goal);
       if (lev >= 2) {
         // the cut-off at tmax is shared by every level, so the differences cannot see it: added separately
         const total = 2 * Math.max(Math.abs(cand - prev), Math.abs(cand - row[lev - 1])) + amp * (round + truncES);
@@ -287,17 +303,19 @@ export function heavyShortfall(
           bestTotal = total;
           best = cand;
         }
-        if (bestTotal <= Math.max(target, tol)) break;
+        if (bestTotal <= Math.max(target, tol) && !wantD) break;
         // the floor amp (round + truncES) only grows with the level (amp does, round is a running maximum): once the
         // next level's floor reaches the best total, no further level can lower it. The next level's rounding is known
         // from below before its nodes are built (roundFloorAt): a level that could not be chosen is not built
-        if (richardsonAmplification(exps, lev + 2) * (Math.max(round, roundFloorAt(lev + 1)) + truncES) >= bestTotal) break;
+        if (!wantD && richardsonAmplification(exps, lev + 2) * (Math.max(round, roundFloorAt(lev + 1)) + truncES) >= bestTotal) break;
       }
       prev = cand;
     }
-    // twice the smallest total: the choice among levels is itself made on estimates
-    const error = 2 * bestTotal;
-    const absC = best;
+    // twice the smallest total: the choice among levels is itself made on estimates; the derived bound where it is at most
+    // that or the goal
+    const derived = bestD.err <= Math.max(2 * bestTotal, goal);
+    const error = derived ? bestD.err : 2 * bestTotal;
+    const absC = derived ? bestD.value : best;
     let atomPart = 0;
     for (const a of atoms) if (a.x > q) atomPart += a.p * (a.x - q);
     let kernelPart = 0;
@@ -316,7 +334,7 @@ export function heavyShortfall(
     }
     // for the signed remainder of mass M: int (x - q)^+ = (int |x - q| + mu - q M) / 2
     const value = atomPart + w * ((absC + muC - q * part.mass) / 2 + kernelPart);
-    return { value, error: (w * error) / 2 + w * gErr + 8 * Number.EPSILON * Math.abs(absC) };
+    return { value, error: (w * error) / 2 + w * gErr + 8 * Number.EPSILON * Math.abs(absC), estimated: !derived };
   };
 }
 

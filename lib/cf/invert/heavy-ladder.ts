@@ -1,0 +1,227 @@
+import type { Atom, CompiledModel } from "../types";
+import { imageLadder, imageScratch, type ImageScratch, type ImageSums } from "./images";
+import { buildNodes, cutoffFor, probeEnvelope, truncationAt, type Envelope, type Nodes } from "./nodes";
+import { makePart, type ContinuousPart } from "./part";
+import { sumPointwise } from "./pointwise";
+import { lawShape } from "./range";
+import { richardsonAmplification, richardsonLastStep, richardsonRow } from "./richardson";
+import { MAX_LEVELS, MAX_TERMS, kernelTotals, roundingOf } from "./shared";
+import { maybeKernels } from "./continuous";
+import { exponentsFor, maybeTailLaw, type ImageLaw } from "./heavy";
+import { bestDerivedEntry, lastRowWeights, residualAliasing, residualLaw, type ResidualLaw } from "./heavy-residual";
+
+/** Frequency nodes for a fixed ladder of periods T0 2^l, reusable for any number of pointwise evaluations. */
+export interface HeavyLadder {
+  part: ContinuousPart;
+  levels: Nodes[];
+  expC: number[];
+  expP: number[];
+  /** truncation + rounding bound of the extrapolated cdf and pdf */
+  sumErrCdf: number;
+  sumErrPdf: number;
+  T0: number;
+  tmax: number;
+  env: Envelope;
+  amp: number;
+  trC: number;
+  trP: number;
+  /** power-tail index and power terms of what is inverted (for other Richardson tables on the same nodes) */
+  alpha: number;
+  bases?: number[];
+  /** the power-tailed terms whose images are taken out of every level's sums from their direct laws (./images.ts) */
+  images: ImageLaw[];
+  imageScratch: ImageScratch;
+  /** evalLadder's answers at the current levels, by x (cleared when a level is added) */
+  memo?: Map<number, LadderValue>;
+  /** the law behind a derived bound on the aliasing left (./heavy-residual.ts), where the route allows one */
+  resid: ResidualLaw | null;
+  /** each level's own truncation + rounding bound (cdf, pdf) */
+  trL: number[];
+  trPL: number[];
+  tol: number;
+  /** set once a value's cdf bound was the Richardson estimate (RICHARDSON_ESTIMATE_NOTE), not a derived one */
+  estimated: boolean;
+}
+
+export interface LadderValue {
+  pdf: number;
+  cdf: number;
+  sf: number;
+  errCdf: number;
+  errPdf: number;
+  /** the derived cdf bound (Infinity where none): the value's errCdf is this one when it is at most max(estimate, tol) */
+  derivedCdf: number;
+}
+
+
+/** Build the ladder for a power-tailed continuous part (see heavyPath for the expansion behind it). */
+export function heavyLadder(model: CompiledModel, atoms: Atom[], T0: number, levels: number, tol: number): HeavyLadder {
+  const shape = lawShape(model);
+  let part = makePart(model, atoms, shape.center);
+  let env = probeEnvelope(part, shape.spread);
+  let alpha: number;
+  let bases: number[] | undefined;
+  // the heaviest-tailed term's images come out of the sums from its direct law, so its CF (which may fall off like
+  // 1/t) is never subtracted and the cut-off stays the whole sum's; failing that, its CF is subtracted (maybeTailLaw)
+  // (and the next heaviest term's too when it has a direct law: TailTerm.images)
+  const G = model.tailTerm;
+  const a0 = Math.max(shape.alpha, 0.1) + 0.05;
+  const plan = !G || atoms.length ? null : G.images && G.images.remainderAlpha > Math.max(G.remainderAlpha, a0) ? G.images : G.remainderAlpha > a0 ? { laws: [{ direct: G.direct, tails: G.tails }], remainderAlpha: G.remainderAlpha, indices: G.indices } : null;
+  const images: ImageLaw[] = plan ? plan.laws : [];
+  if (plan) {
+    alpha = Math.max(plan.remainderAlpha, shape.alpha);
+    bases = plan.indices;
+  } else ({ part, env, alpha, bases } = maybeTailLaw(part, env, shape, tol));
+  ({ part, env } = maybeKernels(part, env, shape, { a: shape.center - T0 / 2, b: shape.center + T0 / 2 }, tol / 16, true, []));
+  let tmax = cutoffFor(env, tol / 16, tol / 16);
+  if (!Number.isFinite(tmax)) tmax = env.t[env.t.length - 1];
+  const lad: HeavyLadder = {
+    part,
+    levels: [],
+    expC: exponentsFor(bases, alpha, 0, MAX_LEVELS),
+    expP: exponentsFor(bases, alpha, 1, MAX_LEVELS),
+    sumErrCdf: 0,
+    sumErrPdf: 0,
+    T0,
+    tmax,
+    env,
+    amp: 1,
+    trC: 0,
+    trP: 0,
+    alpha,
+    bases,
+    images,
+    imageScratch: imageScratch(),
+    // a derived bound needs a single term taken out (its images or its CF) and no endpoint kernels (whose images the
+    // residual does not hold)
+    resid: part.kernels.length ? null : images.length === 1 && G && images[0].direct === G.direct ? residualLaw(G) : !images.length && part.tail ? residualLaw(part.tail) : null,
+    trL: [],
+    trPL: [],
+    estimated: false,
+    tol,
+  };
+  // the remainder's faster decay needs fewer doublings to start with (more are added when the probes ask for them)
+  const start = part.tail || images.length ? Math.min(levels, 3) : levels;
+  for (let l = 0; l < start; l++) growLadder(lad);
+  return lad;
+}
+
+/** One more period doubling (the nodes of the earlier levels are kept). */
+export function growLadder(lad: HeavyLadder): boolean {
+  const l = lad.levels.length;
+  if (l >= lad.expC.length) return false;
+  const h = (2 * Math.PI) / (lad.T0 * 2 ** l);
+  const K = Math.min(Math.max(8, Math.ceil(lad.tmax / h)), MAX_TERMS);
+  const nd = buildNodes(lad.part, h, K);
+  lad.levels.push(nd);
+  lad.memo?.clear();
+  // the values at the earlier levels are not answers any more
+  lad.estimated = false;
+  lad.amp = richardsonAmplification(lad.expC, l + 1);
+  const tr = truncationAt(lad.env, K * h);
+  // phases up to |x - center| = T0 here; evalLadder adds what farther points need
+  const rd = roundingOf(lad.part, nd, lad.T0);
+  lad.trL.push(2 * tr.cdf + rd.cdf);
+  lad.trPL.push(2 * tr.pdf + rd.pdf);
+  lad.trC = Math.max(lad.trC, 2 * tr.cdf + rd.cdf);
+  lad.trP = Math.max(lad.trP, 2 * tr.pdf + rd.pdf);
+  lad.sumErrCdf = lad.amp * lad.trC;
+  lad.sumErrPdf = lad.amp * lad.trP;
+  return true;
+}
+
+/**
+ * The extrapolated continuous-part values at x (endpoint kernels added in closed form) and the
+ * error estimate 2 max(|R_LL - R_{L-1,L-1}|, |R_LL - R_{L,L-1}|) plus the sums' own bound.
+ */
+export function evalLadder(
+  lad: HeavyLadder,
+  x: number,
+  scratch: { pdf: Float64Array; cdf: Float64Array; sf: Float64Array; one: Float64Array },
+): LadderValue {
+  // the root finders and the brackets come back to the same points: the same levels give the same answer
+  const memo = (lad.memo ??= new Map());
+  const seen = memo.get(x);
+  if (seen) return seen;
+  if (memo.size >= 4096) memo.clear();
+  const value = ladderAt(lad, x, scratch);
+  memo.set(x, value);
+  return value;
+}
+
+function ladderAt(lad: HeavyLadder, x: number, scratch: { pdf: Float64Array; cdf: Float64Array; sf: Float64Array; one: Float64Array }): LadderValue {
+  const L = lad.levels.length;
+  const P: number[][] = [];
+  const C: number[][] = [];
+  const S: number[][] = [];
+  scratch.one[0] = x;
+  let imC = 0;
+  let imP = 0;
+  const eCL: number[] = [];
+  const ePL: number[] = [];
+  const ims: ImageSums[][] = lad.images.map((law) => imageLadder(law.direct, x, lad.T0, L, lad.imageScratch));
+  for (let l = 0; l < L; l++) {
+    sumPointwise(lad.levels[l], lad.part.center, scratch.one, scratch.pdf, scratch.cdf, scratch.sf);
+    let pdf = scratch.pdf[0];
+    let cdf = scratch.cdf[0];
+    let sf = scratch.sf[0];
+    let eC = 0;
+    let eP = 0;
+    for (let g = 0; g < ims.length; g++) {
+      const im = ims[g][l];
+      pdf -= im.pdf;
+      cdf -= im.cdf;
+      sf += im.cdf;
+      eC += im.errCdf;
+      eP += im.errPdf;
+    }
+    imC = Math.max(imC, eC);
+    imP = Math.max(imP, eP);
+    eCL.push(eC);
+    ePL.push(eP);
+    P.push(richardsonRow(pdf, P[l - 1], lad.expP));
+    C.push(richardsonRow(cdf, C[l - 1], lad.expC));
+    S.push(richardsonRow(sf, S[l - 1], lad.expC));
+  }
+  const b = L - 1;
+  // the levels' rounding (growLadder) holds for |x - center| up to the first period T0; beyond it the phase rounding
+  // 3 u t_k |x - center| grows with the distance (shared.ts roundingOf)
+  let farPhase = 0;
+  const over = Math.abs(x - lad.part.center) - lad.T0;
+  if (over > 0) for (let l = 0; l < L; l++) farPhase = Math.max(farPhase, 3 * Number.EPSILON * over * lad.levels[l].absPdf);
+  // the last elimination step's correction (an order above the error of R_LL), not the change from the previous diagonal
+  // entry (two orders above): the quantile bounds built on it were 1 000 - 10 000 times the actual error
+  const d = richardsonLastStep;
+  const k = kernelTotals(lad.part, x);
+  // the images' bounds enter every level's value: amplified like the sums' own
+  const est = {
+    pdf: P[b][b] + k.pdf,
+    cdf: C[b][b] + k.cdf,
+    sf: S[b][b] + k.sf,
+    errCdf: Math.max(d(C), d(S)) + lad.sumErrCdf + lad.amp * (imC + farPhase) + k.errCdf,
+    errPdf: d(P) + lad.sumErrPdf + richardsonAmplification(lad.expP, L) * imP + k.errPdf,
+    derivedCdf: Infinity,
+  };
+  if (!lad.resid) {
+    lad.estimated = true;
+    return est;
+  }
+  // each level's own bound: the residual aliasing at its period, its images', truncation and rounding (and the far
+  // phases'); the last row's entry with the least bound through its weights in the levels (no asymptotic assumption)
+  const rC: number[] = [];
+  const rP: number[] = [];
+  for (let l = 0; l < L; l++) {
+    const T = lad.T0 * 2 ** l;
+    const far = over > 0 ? 3 * Number.EPSILON * over * lad.levels[l].absPdf : 0;
+    rC.push(residualAliasing(lad.resid, x, x, T, "cdf") + eCL[l] + lad.trL[l] + far);
+    rP.push(residualAliasing(lad.resid, x, x, T, "pdf") + ePL[l] + lad.trPL[l]);
+  }
+  const bc = bestDerivedEntry(lastRowWeights(lad.expC, L), rC);
+  const bp = bestDerivedEntry(lastRowWeights(lad.expP, L), rP);
+  const errCdf = bc.err + k.errCdf;
+  if (!(errCdf <= Math.max(est.errCdf, lad.tol))) {
+    lad.estimated = true;
+    return { ...est, derivedCdf: errCdf };
+  }
+  return { pdf: P[b][bp.j] + k.pdf, cdf: C[b][bc.j] + k.cdf, sf: S[b][bc.j] + k.sf, errCdf, errPdf: bp.err + k.errPdf, derivedCdf: errCdf };
+}
