@@ -1,4 +1,5 @@
 import type { PowerSide, PowerTail, PowerTerms } from "../direct/power-tail";
+import type { DirectLaw } from "../direct/types";
 import type { TailTerm } from "../types";
 import { momentBounds } from "./moment-tails";
 
@@ -28,11 +29,17 @@ const IMAGES = 8;
 const U = Number.EPSILON;
 
 export interface ResidualLaw {
+  /** G's law (its density at the images gives the second-order term of the stop-loss residual) */
+  law: DirectLaw;
   tail: PowerTail;
   /** log E|R|^n (even n; NaN where unknown) */
   lm: Float64Array;
   v: number;
   mu: number;
+  /** kappa_2 of Y (= Var R) and its derived bound; E|R|^3 <= sqrt(E R^2 E R^4) (Cauchy-Schwarz), Infinity without a fourth moment */
+  k2: number;
+  e2: number;
+  m3: number;
 }
 
 /** G's majorants and R's moments, when G's law has power-tail majorants and R has a finite variance with derived bounds */
@@ -48,7 +55,19 @@ export function residualLaw(term: TailTerm): ResidualLaw | null {
   const lc = Math.log(mb.c);
   const lm = new Float64Array(mb.logU.length).fill(NaN);
   for (let n = 2; n < mb.logU.length; n += 2) if (Number.isFinite(mb.logU[n])) lm[n] = mb.logU[n] + n * lc + 4 * U * (Math.abs(mb.logU[n]) + n * Math.abs(lc) + 1);
-  return { tail, lm, v: Math.exp(lm[2]) * (1 + 4 * U), mu: (Math.abs(k1 - term.shift) + e1) * (1 + 4 * U) };
+  const k2 = Y.cumulants(2)[1];
+  const e2 = Y.cumulantErrors?.(2)[1];
+  const ok2 = k2 !== null && e2 !== null && e2 !== undefined && Number.isFinite(k2) && Number.isFinite(e2);
+  return {
+    law: term.direct,
+    tail,
+    lm,
+    v: Math.exp(lm[2]) * (1 + 4 * U),
+    mu: (Math.abs(k1 - term.shift) + e1) * (1 + 4 * U),
+    k2: ok2 ? k2 : NaN,
+    e2: ok2 ? e2 : Infinity,
+    m3: lm.length > 4 && Number.isFinite(lm[4]) ? Math.exp((lm[2] + lm[4]) / 2) * (1 + 8 * U) : Infinity,
+  };
 }
 
 /** the even order n minimising E|R|^n / r^(n - k) (k = 0: P(|R| >= r); k = 1: E[|R| 1{|R| > r}]), n >= minN */
@@ -73,7 +92,17 @@ function momentOver(L: ResidualLaw, n: number, r: number, k: number): number {
   return Math.exp(L.lm[n] - (n - k) * lr + 4 * U * (Math.abs(L.lm[n]) + n * Math.abs(lr) + 1)) * (1 + 4 * U);
 }
 
-export type ResidualKind = "cdf" | "pdf" | "stopLoss";
+/**
+ * E[(|R| - r)^+] <= E|R|^n (n - 1)^(n-1) / (n^n r^(n-1)) for even n >= 2 ((y - r)^+ / y^n is largest at y = n r/(n - 1);
+ * as ./moment-tails.ts markovExcess), rounded up
+ */
+function excessOver(L: ResidualLaw, n: number, r: number): number {
+  if (!Number.isFinite(n)) return Infinity;
+  const shape = (n - 1) * Math.log(n - 1) - n * Math.log(n);
+  return momentOver(L, n, r, 1) * Math.exp(shape + 8 * U * (Math.abs(shape) + n)) * (1 + 4 * U);
+}
+
+export type ResidualKind = "cdf" | "pdf" | "stopLoss" | "stopLoss2";
 
 /** power terms of S_G from f_G's: int_z^inf a u^-p du = a z^(1-p)/(p - 1) */
 function integrated(t: PowerTerms): PowerTerms {
@@ -97,7 +126,7 @@ function pushScaled(out: Powers, t: PowerTerms, k: number, zScale: number, extra
  */
 function sideSum(L: ResidualLaw, side: PowerSide, z1: number, T: number, kind: ResidualKind): number {
   const fmax = L.tail.fmax;
-  const stop = kind === "stopLoss";
+  const stop = kind === "stopLoss" || kind === "stopLoss2";
   const minN = stop ? 4 : 2;
   if ("end" in side) {
     if (!(z1 > 0)) return Infinity;
@@ -116,42 +145,83 @@ function sideSum(L: ResidualLaw, side: PowerSide, z1: number, T: number, kind: R
     const A = (stop ? momentOver(L, n, 1, 1) : (kind === "pdf" ? fmax : 1) * momentOver(L, n, 1, 0));
     return (s + (A * Math.pow(zl, 1 - q)) / ((q - 1) * T)) * (1 + 1e-12);
   }
+  let best = Infinity;
+  for (const rho of RHOS) best = Math.min(best, powerSide(L, side, z1, T, kind, rho));
+  return best;
+}
+
+/** the split points r = rho z tried (the least bound is kept): a smaller rho keeps the window's majorant nearer its value at z */
+const RHOS = [1 / 2, 1 / 4, 1 / 8, 3 / 4];
+
+/**
+ * A tail side's images with the split at r = rho z: per image (v/2) win(z (1 - rho)) plus the parts beyond the split
+ * (see the module notes); the corrected stop-loss kind (its second-order term (kappa_2/2) f_G subtracted by the caller)
+ * (m3/6) f_G'(window) + 2 E(r) + f_G(z) E[R^2 1{|R| > r}]/2 + mu S_G(z) + (mu^2 + e2)/2 f_G(z) (Taylor to third order:
+ * pi_G(c - R) - pi_G(c) - R S_G(c) - R^2/2 f_G(c), at most |R|^3/6 sup |f_G'| inside the split and 2|R| + R^2/2 f_G(c)
+ * beyond it; E R^2 = kappa_2 + (E R)^2).
+ */
+function powerSide(L: ResidualLaw, side: { origin: number; from: number; d: [PowerTerms, PowerTerms, PowerTerms] }, z1: number, T: number, kind: ResidualKind, rho: number): number {
   const { from, d } = side;
-  if (!(z1 / 2 >= from) || !(z1 > 0)) return Infinity;
-  // the window's majorant (at z/2), the value's (at z) and the one multiplying the first moment
-  const win = stop ? d[0] : kind === "cdf" ? d[1] : d[2];
+  if (!(z1 * (1 - rho) >= from) || !(z1 > 0)) return Infinity;
+  const fmax = L.tail.fmax;
+  const second = kind === "stopLoss2";
+  if (second && !Number.isFinite(L.m3 + L.e2 + L.k2)) return Infinity;
+  const stop = kind === "stopLoss" || second;
+  const minN = stop ? 4 : 2;
+  // the window's majorant (at z (1 - rho)) and its coefficient, the value's majorant (at z) multiplying mu + E(r)
+  const win = second ? d[1] : stop ? d[0] : kind === "cdf" ? d[1] : d[2];
+  const cw = second ? L.m3 / 6 : L.v / 2;
   const own = stop ? integrated(d[0]) : kind === "cdf" ? d[0] : d[1];
-  const one = (z: number, nP: number, nE: number): number => {
-    const r = z / 2;
-    let b = (L.v / 2) * evalTerms(win, r);
+  // pi_G's majorant: f_G's integrated twice (p > 2 where G has a mean)
+  const pi2 = stop ? integrated(own) : own;
+  if (stop && !pi2.p.every((p) => p > 0)) return Infinity;
+  const pk = kind === "pdf" ? fmax : 1;
+  const one = (z: number): number => {
+    const r = rho * z;
+    const nE = bestOrder(L, r, 1, minN);
     const E = momentOver(L, nE, r, 1);
-    if (stop) b += E;
-    else b += (kind === "pdf" ? fmax : 1) * Math.min(1, momentOver(L, nP, r, 0));
+    let b = cw * evalTerms(win, z * (1 - rho));
+    const Pr = Math.min(1, momentOver(L, bestOrder(L, r, 0, minN), r, 0));
+    if (stop) {
+      // beyond the split: |pi_G(c - R) - pi_G(c)| <= pi_G(c - r) + (|R| - r)^+ (pi_G convex, falling, slope >= -1)
+      const nX = bestOrder(L, r, 1, minN);
+      b += evalTerms(pi2, z * (1 - rho)) * Pr + excessOver(L, nX, r);
+    }
+    if (second) {
+      const n2 = bestOrder(L, r, 2, 4);
+      const f0 = evalTerms(d[0], z);
+      return b + evalTerms(own, z) * (E + L.mu) + (f0 / 2) * momentOver(L, n2, r, 2) + ((L.mu * L.mu + L.e2) / 2) * f0;
+    }
+    if (!stop) b += pk * Pr;
     return b + evalTerms(own, z) * (L.mu + E);
   };
   let s = 0;
-  for (let m = 0; m < IMAGES; m++) {
-    const z = z1 + m * T;
-    s += one(z, bestOrder(L, z / 2, 0, minN), bestOrder(L, z / 2, 1, minN));
-  }
+  for (let m = 0; m < IMAGES; m++) s += one(z1 + m * T);
   const zl = z1 + (IMAGES - 1) * T;
-  const zt = zl + T;
-  const nP = bestOrder(L, zt / 2, 0, minN);
-  const nE = bestOrder(L, zt / 2, 1, minN);
-  if (!Number.isFinite(nP) || !Number.isFinite(nE)) return Infinity;
-  // the same bound as sums of powers of z (r = z/2): (v/2) win(z/2), P's and E's moments times 2^n z^-n, own(z) (mu + E)
+  const rt = rho * (zl + T);
+  const nP = bestOrder(L, rt, 0, minN);
+  const nE = bestOrder(L, rt, 1, minN);
+  const n2 = bestOrder(L, rt, 2, 4);
+  if (!Number.isFinite(nE) || !Number.isFinite(nP) || (second && !Number.isFinite(n2))) return Infinity;
+  // the same bounds as sums of powers of z past the explicit images (r = rho z; momentOver at r = rho gives E|R|^n rho^(k-n))
   const P: Powers = { A: [], q: [] };
-  pushScaled(P, win, L.v / 2, 0.5, 0);
-  const eA = momentOver(L, nE, 0.5, 1);
+  pushScaled(P, win, cw, 1 - rho, 0);
+  const eA = momentOver(L, nE, rho, 1);
   if (stop) {
-    P.A.push(eA);
+    if (!Number.isFinite(nP)) return Infinity;
+    pushScaled(P, pi2, momentOver(L, nP, rho, 0), 1 - rho, nP);
+    P.A.push(excessOver(L, nE, rho));
     P.q.push(nE - 1);
   } else {
-    P.A.push((kind === "pdf" ? fmax : 1) * momentOver(L, nP, 0.5, 0));
+    P.A.push(pk * momentOver(L, nP, rho, 0));
     P.q.push(nP);
   }
   pushScaled(P, own, L.mu, 1, 0);
   pushScaled(P, own, eA, 1, nE - 1);
+  if (second) {
+    pushScaled(P, d[0], momentOver(L, n2, rho, 2) / 2, 1, n2 - 2);
+    pushScaled(P, d[0], (L.mu * L.mu + L.e2) / 2, 1, 0);
+  }
   let tail = 0;
   for (let i = 0; i < P.A.length; i++) {
     if (!(P.q[i] > 1)) return Infinity;
@@ -181,7 +251,7 @@ export function residualAliasing(L: ResidualLaw, xLo: number, xHi: number, T: nu
   const zR = ("end" in r ? y1 - r.end : y1 - r.origin) - slack(y1, "end" in r ? r.end : r.origin);
   const zL = ("end" in l ? l.end - y2 : l.origin - y2) - slack(y2, "end" in l ? l.end : l.origin);
   const s = sideSum(L, r, zR, T, kind) + sideSum(L, l, zL, T, kind);
-  return (kind === "stopLoss" ? 2 * s : s) * (1 + 4 * U);
+  return (kind === "stopLoss" || kind === "stopLoss2" ? 2 * s : s) * (1 + 4 * U);
 }
 
 /**

@@ -1,6 +1,7 @@
 import type { Atom, CompiledModel } from "../types";
 import { maybeKernels, type PartSolution } from "./continuous";
 import { exponentsFor, maybeTailLaw, type HeavyLadder } from "./heavy";
+import { imageLadder } from "./images";
 import { bestDerivedEntry, lastRowWeights, residualAliasing, residualLaw, type ResidualLaw } from "./heavy-residual";
 import { directShortfall } from "../direct/shortfall";
 import { directPoint } from "../direct/types";
@@ -161,6 +162,7 @@ export function heavyShortfall(
   let resid: ResidualLaw | null = null;
   const images = useLadder?.images ?? [];
   const scratch = imageScratch();
+  const scratch2 = imageScratch();
   if (useLadder) {
     ({ part, env, alpha: alphaR, bases } = useLadder);
   } else {
@@ -257,6 +259,11 @@ export function heavyShortfall(
     // each raw level's derived bound, and the last row's entry with the least one (./heavy-residual.ts)
     const raw: number[] = [];
     let bestD = { value: NaN, err: Infinity };
+    // the same with G's second-order term kappa_2 sum_m (-1)^m [f_G(q + mT) + f_G(q - mT)] taken out of each level (G's
+    // density images from its direct law, ./images.ts, with their derived bound): the residual left is one order smaller
+    const second = resid !== null && Number.isFinite(resid.m3 + resid.k2 + resid.e2);
+    const raw2: number[] = [];
+    const rows2: number[][] = [];
     const goal = Math.max(target, tol);
     let prev = NaN;
     let round = 0;
@@ -290,12 +297,24 @@ export function heavyShortfall(
       rows.push(row);
       const cand = row[lev];
       if (resid) {
-        raw.push(residualAliasing(resid, q, q, T, "stopLoss") + sumRound * (1 + 1e-10) + imErr + truncES);
-        const d = bestDerivedEntry(lastRowWeights(exps, lev + 1), raw);
+        const own = sumRound * (1 + 1e-10) + imErr + truncES;
+        raw.push(residualAliasing(resid, q, q, T, "stopLoss") + own);
+        const W = lastRowWeights(exps, lev + 1);
+        const d = bestDerivedEntry(W, raw);
         if (d.err < bestD.err) bestD = { value: row[d.j], err: d.err };
+        if (second) {
+          const g = imageLadder(resid.law, q, T, 1, scratch2)[0];
+          const c = resid.k2 * g.pdf;
+          rows2.push(richardsonRow(v - c, rows2[lev - 1], exps));
+          // the term's bound: kappa_2's times the sum, the sum's times |kappa_2|, the product and difference rounded
+          raw2.push(residualAliasing(resid, q, q, T, "stopLoss2") + own + Math.abs(resid.k2) * g.errPdf + resid.e2 * (Math.abs(g.pdf) + g.errPdf) + 4 * Number.EPSILON * (Math.abs(c) + Math.abs(v)));
+          const d2 = bestDerivedEntry(W, raw2);
+          if (d2.err < bestD.err) bestD = { value: rows2[lev][d2.j], err: d2.err };
+        }
       }
-      // levels go on for the derived bound while it falls towards the goal (at most 1e3 times it from the fourth level)
-      const wantD = resid !== null && bestD.err > goal && (lev < 3 || bestD.err < 1e3 * goal);
+      // levels go on for the derived bound only where one more doubling may bring it to the goal (it falls by 2^(alpha + 1)
+      // or more per level, at least 4 for a finite mean): each level doubles the nodes
+      const wantD = resid !== null && bestD.err > goal && (lev < 2 || bestD.err <= 4 * goal);
       if (lev >= 2) {
         // the cut-off at tmax is shared by every level, so the differences cannot see it: added separately
         const total = 2 * Math.max(Math.abs(cand - prev), Math.abs(cand - row[lev - 1])) + amp * (round + truncES);
