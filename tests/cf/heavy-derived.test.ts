@@ -7,8 +7,9 @@
 // a rest of finite variance) the note stays.
 import { describe, expect, it } from "vitest";
 import { readFileSync } from "node:fs";
-import { compile, quantiles } from "@/lib/cf";
+import { compile, density, quantiles } from "@/lib/cf";
 import { RICHARDSON_ESTIMATE_NOTE } from "@/lib/cf/invert/richardson";
+import { evalLadder, heavyLadder } from "@/lib/cf/invert/heavy-ladder";
 
 interface Level {
   p: string;
@@ -66,5 +67,48 @@ describe("power-tail route: derived aliasing bound (no Richardson estimate) vs m
     };
     const r = quantiles(compile(model as never), [0.01, 0.5, 0.99], { expectedShortfall: true });
     expect(r.diagnostics.notes).toContain(RICHARDSON_ESTIMATE_NOTE);
+  });
+});
+
+// One period alone (no extrapolation): the raw sums' error is then the aliasing the derived bound covers (plus truncation,
+// rounding and the images' own bounds). At short periods that aliasing is large, so the check has teeth: the actual error
+// must be at most the bound, and for the shortest period at least a thousandth of it (the bound is not vacuous there).
+describe("derived aliasing bound of a single period vs mpmath references (cdf at the reference quantiles)", () => {
+  const names = ["weibull + student_t", "normal + student_t", "pareto + normal", "stable + gamma + normal", "stable + laplace"];
+  it.each(names.map((n) => [n, cases.find((c) => c.name === n)!] as const))("%s", (_n, c) => {
+    const model = compile(c.model as never);
+    const scratch = { pdf: new Float64Array(1), cdf: new Float64Array(1), sf: new Float64Array(1), one: new Float64Array(1) };
+    let worstShort = 0;
+    for (const T0 of [16, 32, 64, 128]) {
+      const lad = heavyLadder(model, [], T0 * model.scale, 1, 1e-10);
+      expect(lad.resid, `${c.name}: a derived bound applies`).not.toBeNull();
+      for (const l of c.levels) {
+        const x = Number(l.x);
+        const v = evalLadder(lad, x, scratch);
+        const err = Math.abs(v.cdf - Number(l.p));
+        expect(err, `${c.name} T0 = ${T0} scales, x = ${l.x}: cdf ${v.cdf} vs p = ${l.p}, diff ${err}, derived bound ${v.derivedCdf}`).toBeLessThanOrEqual(v.derivedCdf + l.x_check);
+        if (T0 === 16) worstShort = Math.max(worstShort, err / v.derivedCdf);
+      }
+    }
+    expect(worstShort, `${c.name}: actual error / bound at the shortest period`).toBeGreaterThan(1e-3);
+  });
+});
+
+// Points through the grid/point route (its CF subtraction of the heaviest term): density and cdf at the reference quantiles
+// within the answer's derived bounds, no note. (pareto + normal keeps the estimate there: the pareto's CF, falling like 1/t,
+// is not subtracted from those sums; the kernels taken out for the uniform and Laplace terms of the five-term sum have
+// images the residual bound does not hold.)
+describe("density at points: derived bounds vs mpmath references", () => {
+  const names = ["weibull + student_t", "normal + student_t", "stable + gamma + normal", "stable + laplace"];
+  it.each(names.map((n) => [n, cases.find((c) => c.name === n)!] as const))("%s", (_n, c) => {
+    const xs = c.levels.map((l) => Number(l.x));
+    const d = density(compile(c.model as never), { x: xs });
+    expect(d.diagnostics.notes, `${c.name}: notes`).not.toContain(RICHARDSON_ESTIMATE_NOTE);
+    c.levels.forEach((l, i) => {
+      const ec = Math.abs(d.cdf[i] - Number(l.p));
+      const ep = Math.abs(d.pdf![i] - Number((l as unknown as { pdf: string }).pdf));
+      expect(ec, `${c.name} x = ${l.x}: cdf ${d.cdf[i]} vs ${l.p}, diff ${ec}, bound ${d.diagnostics.error.cdf}`).toBeLessThanOrEqual(d.diagnostics.error.cdf);
+      expect(ep, `${c.name} x = ${l.x}: pdf ${d.pdf![i]}, diff ${ep}, bound ${d.diagnostics.error.pdf}`).toBeLessThanOrEqual(d.diagnostics.error.pdf);
+    });
   });
 });
