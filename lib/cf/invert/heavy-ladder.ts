@@ -8,6 +8,7 @@ import { richardsonAmplification, richardsonLastStep, richardsonRow } from "./ri
 import { MAX_LEVELS, MAX_TERMS, kernelTotals, roundingOf } from "./shared";
 import { maybeKernels } from "./continuous";
 import { exponentsFor, maybeTailLaw, type ImageLaw } from "./heavy";
+import { kernelAliasing } from "./kernel-images";
 import { bestDerivedEntry, lastRowWeights, residualAliasing, residualLaw, type ResidualLaw } from "./heavy-residual";
 
 /** Frequency nodes for a fixed ladder of periods T0 2^l, reusable for any number of pointwise evaluations. */
@@ -39,6 +40,8 @@ export interface HeavyLadder {
   trL: number[];
   trPL: number[];
   tol: number;
+  /** residualBucket's bounds by level and bucket */
+  residCache?: Map<string, { cdf: number; pdf: number }>;
   /** set once a value's cdf bound was the Richardson estimate (RICHARDSON_ESTIMATE_NOTE), not a derived one */
   estimated: boolean;
 }
@@ -92,9 +95,9 @@ export function heavyLadder(model: CompiledModel, atoms: Atom[], T0: number, lev
     bases,
     images,
     imageScratch: imageScratch(),
-    // a derived bound needs a single term taken out (its images or its CF) and no endpoint kernels (whose images the
-    // residual does not hold)
-    resid: part.kernels.length ? null : images.length === 1 && G && images[0].direct === G.direct ? residualLaw(G) : !images.length && part.tail ? residualLaw(part.tail) : null,
+    // a derived bound needs a single term taken out (its images or its CF); the endpoint kernels' images are bounded
+    // beside it (./kernel-images.ts)
+    resid: images.length === 1 && G && images[0].direct === G.direct ? residualLaw(G) : !images.length && part.tail ? residualLaw(part.tail) : null,
     trL: [],
     trPL: [],
     estimated: false,
@@ -213,8 +216,9 @@ function ladderAt(lad: HeavyLadder, x: number, scratch: { pdf: Float64Array; cdf
   for (let l = 0; l < L; l++) {
     const T = lad.T0 * 2 ** l;
     const far = over > 0 ? 3 * Number.EPSILON * over * lad.levels[l].absPdf : 0;
-    rC.push(residualAliasing(lad.resid, x, x, T, "cdf") + eCL[l] + lad.trL[l] + far);
-    rP.push(residualAliasing(lad.resid, x, x, T, "pdf") + ePL[l] + lad.trPL[l]);
+    const rb = residualBucket(lad, x, l);
+    rC.push(rb.cdf + eCL[l] + lad.trL[l] + far);
+    rP.push(rb.pdf + ePL[l] + lad.trPL[l]);
   }
   const bc = bestDerivedEntry(lastRowWeights(lad.expC, L), rC);
   const bp = bestDerivedEntry(lastRowWeights(lad.expP, L), rP);
@@ -224,4 +228,29 @@ function ladderAt(lad: HeavyLadder, x: number, scratch: { pdf: Float64Array; cdf
     return { ...est, derivedCdf: errCdf };
   }
   return { pdf: P[b][bp.j] + k.pdf, cdf: C[b][bc.j] + k.cdf, sf: S[b][bc.j] + k.sf, errCdf, errPdf: bp.err + k.errPdf, derivedCdf: errCdf };
+}
+
+/**
+ * The residual aliasing bound (and the kernels' images) at level l for every x in the bucket of width T0/256 holding x:
+ * computed once per bucket and level (the root finders evaluate hundreds of nearby points), the distances to the images
+ * changing by at most the bucket's width.
+ */
+function residualBucket(lad: HeavyLadder, x: number, l: number): { cdf: number; pdf: number } {
+  const w = lad.T0 / 256;
+  const k = Math.floor(x / w);
+  const key = `${l}:${k}`;
+  const cache = (lad.residCache ??= new Map());
+  const seen = cache.get(key);
+  if (seen) return seen;
+  const T = lad.T0 * 2 ** l;
+  // the bucket's ends, widened by a few ulps (k w rounds)
+  const lo = k * w - 4 * Number.EPSILON * (Math.abs(k * w) + w);
+  const hi = (k + 1) * w + 4 * Number.EPSILON * (Math.abs((k + 1) * w) + w);
+  const a = Math.min(lo, x);
+  const b = Math.max(hi, x);
+  const ki = lad.part.kernels.length ? kernelAliasing(lad.part.kernels, a, b, T) : { cdf: 0, pdf: 0 };
+  const v = { cdf: residualAliasing(lad.resid!, a, b, T, "cdf") + ki.cdf, pdf: residualAliasing(lad.resid!, a, b, T, "pdf") + ki.pdf };
+  if (cache.size > 8192) cache.clear();
+  cache.set(key, v);
+  return v;
 }

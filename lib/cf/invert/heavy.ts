@@ -8,6 +8,7 @@ export interface ImageLaw {
 import { buildNodes, cutoffFor, probeEnvelope, truncationAt, type Envelope, type Nodes } from "./nodes";
 import { withTailLaw, type ContinuousPart } from "./part";
 import { sumPointwise } from "./pointwise";
+import { kernelAliasing } from "./kernel-images";
 import { bestDerivedEntry, lastRowWeights, residualAliasing, residualLaw } from "./heavy-residual";
 import type { LawShape } from "./range";
 import { RICHARDSON_ESTIMATE_NOTE, richardsonAmplification, richardsonExponents, richardsonExponentsMulti, richardsonRowArrays } from "./richardson";
@@ -81,9 +82,9 @@ export function heavyPath(
   // once the density's floor alone reaches its best error (the test below that ends the levels), the levels the cdf still
   // needs are summed without the density: their density would not be kept
   let pdfDone = false;
-  // a derived bound on the aliasing left (./heavy-residual.ts) where the heaviest term's CF is taken out and no endpoint
-  // kernels are: each level's own bound, and the last row's entry with the least one
-  const resid = part.tail && !part.kernels.length ? residualLaw(part.tail) : null;
+  // a derived bound on the aliasing left (./heavy-residual.ts) where the heaviest term's CF is taken out (and the endpoint
+  // kernels' images, ./kernel-images.ts): each level's own bound, and the last row's entry with the least one
+  const resid = part.tail ? residualLaw(part.tail) : null;
   const pts = requestPoints(req);
   let xLo = Infinity;
   let xHi = -Infinity;
@@ -163,15 +164,18 @@ export function heavyPath(
     const pdfErrBest = bestPdf?.err ?? Infinity;
     if (resid && xLo <= xHi) {
       const T = T0 * 2 ** lev;
-      rawC.push(residualAliasing(resid, xLo, xHi, T, "cdf") + 2 * trunc.cdf + round.cdf);
-      rawP.push(residualAliasing(resid, xLo, xHi, T, "pdf") + 2 * trunc.pdf + round.pdf);
+      const ki = part.kernels.length ? kernelAliasing(part.kernels, xLo, xHi, T) : { cdf: 0, pdf: 0 };
+      rawC.push(residualAliasing(resid, xLo, xHi, T, "cdf") + ki.cdf + 2 * trunc.cdf + round.cdf);
+      rawP.push(residualAliasing(resid, xLo, xHi, T, "pdf") + ki.pdf + 2 * trunc.pdf + round.pdf);
       const dc = bestDerivedEntry(lastRowWeights(expC, lev + 1), rawC);
       // the density only while it is summed (pdfDone: its best level is kept, with its estimate)
       const dp = pdf ? bestDerivedEntry(lastRowWeights(expP, lev + 1), rawP) : { j: 0, err: Infinity };
       if (!derived || dc.err < derived.errC) derived = { cdf: rowC[dc.j], sf: rowS[dc.j], pdf: pdf ? rowP[dp.j] : null, errC: dc.err, errP: dp.err };
     }
-    // levels go on for the derived bound until it reaches the tolerance (or the fifth level)
-    const wantD = resid !== null && lev < 4 && !(derived && derived.errC <= tol && (!opt.wantPdf || derived.errP <= tol));
+    // levels go on for the derived bound until it reaches the tolerance (at most the fifth level), from the third only
+    // while it is within 64 times it (it falls by 2^(alpha + 2) >= 8 or so per level): each level doubles the nodes
+    const dWorst = derived ? Math.max(derived.errC, opt.wantPdf ? derived.errP : 0) : Infinity;
+    const wantD = resid !== null && lev < 4 && dWorst > tol && (lev < 2 || dWorst <= 64 * tol);
     if (wantD) continue;
     if (lev >= 2 && error.cdf <= tol && (!opt.wantPdf || pdfErrBest <= tol)) break;
     // the sums' own bound (truncation and rounding, which another doubling keeps), amplified by one more extrapolation

@@ -172,7 +172,7 @@ export function heavyShortfall(
     ({ part, env } = maybeKernels(part, env, shape, { a: shape.center - 64 * shape.spread, b: shape.center + 64 * shape.spread }, tol / 16, false, []));
   }
   // a derived bound on the aliasing left where one term is taken out and no endpoint kernels are (./heavy-residual.ts)
-  if (useLadder) resid = useLadder.resid;
+  if (useLadder) resid = part.kernels.length ? null : useLadder.resid;
   else if (part.tail && !part.kernels.length) resid = residualLaw(part.tail);
   // the weights 1/t^2 make the tail beyond T at most (2/pi) int_T E/t^2 <= 2 tailCdf(T)/T: cut where that is small
   let tmax = env.t[env.t.length - 1];
