@@ -145,6 +145,15 @@ function imageTerms(cs: Node[], best: number, shift: number, dm: number | null):
   const finite = (c: Node) => [c.tails.left, c.tails.right].filter((b) => Number.isFinite(b));
   const otherIdx = [...new Set(others.flatMap(finite))];
   const indices = [...new Set([...otherIdx, a1 + 2, a2 + 2, ...[...otherIdx, ...finite(D2)].filter((b) => b < 3).map((b) => a1 + b - 1), ...[...otherIdx, ...finite(D)].filter((b) => b < 3).map((b) => a2 + b - 1)])];
+  // for a derived bound on what the two terms' images leave (invert/heavy-residual2.ts): X = G_1 + G_2 - m + Z with
+  // m = E[X] as computed, Z = the other terms less (shift2 - dm), and a bound on the means' errors and roundings
+  const eMean = (c: Node) => cumulantEst(c, 1)[0]?.e ?? Infinity;
+  const pair = {
+    m: shift + dm,
+    zShift: shift2 - dm,
+    meanError: eMean(D) + eMean(D2) + 8 * Number.EPSILON * (Math.abs(shift) + Math.abs(dm) + Math.abs(m2) + Math.abs(shift2)),
+    others: others.length ? othersMoments(others)! : null,
+  };
   return {
     laws: [
       { direct: shift === 0 ? D.direct! : affineDirect(D.direct!, 1, shift), tails: D.tails },
@@ -152,6 +161,7 @@ function imageTerms(cs: Node[], best: number, shift: number, dm: number | null):
     ],
     remainderAlpha: Math.min(...indices),
     indices,
+    pair,
   };
 }
 

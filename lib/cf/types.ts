@@ -159,7 +159,16 @@ export interface TailTerm {
    * (X - G_1 - G_2 ... in the tails: S_X(y) = sum_i S_{D_i}(y - E[X - D_i]) + O(y^{-a_i - b + 1}, y^{-a_i - 2}),
    * the same expansion as for one term, with the next heaviest term's own tail taken out too).
    */
-  images?: { laws: { direct: DirectLaw; tails: { left: number; right: number } }[]; remainderAlpha: number; indices: number[] };
+  images?: {
+    laws: { direct: DirectLaw; tails: { left: number; right: number } }[];
+    remainderAlpha: number;
+    indices: number[];
+    /**
+     * X = G_1 + G_2 - m + Z: m = E[X] as computed, Z = the other terms (their law as the moment routines read it, null when
+     * there are none) less zShift, and a bound on the offsets of the means (E[G_1 - m], E[G_2 - m], E[Z] together)
+     */
+    pair?: { m: number; zShift: number; meanError: number; others: CompiledModel | null };
+  };
 }
 
 /** compile(model) in ./compile.ts has this signature; throws CfError. */

@@ -9,6 +9,7 @@ import { MAX_LEVELS, MAX_TERMS, kernelTotals, roundingOf } from "./shared";
 import { maybeKernels } from "./continuous";
 import { exponentsFor, maybeTailLaw, type ImageLaw } from "./heavy";
 import { kernelAliasing } from "./kernel-images";
+import { pairAliasing, pairLaw, type PairLaw } from "./heavy-residual2";
 import { bestDerivedEntry, lastRowWeights, residualAliasing, residualLaw, type ResidualLaw } from "./heavy-residual";
 
 /** Frequency nodes for a fixed ladder of periods T0 2^l, reusable for any number of pointwise evaluations. */
@@ -36,6 +37,7 @@ export interface HeavyLadder {
   memo?: Map<number, LadderValue>;
   /** the law behind a derived bound on the aliasing left (./heavy-residual.ts), where the route allows one */
   resid: ResidualLaw | null;
+  pair: PairLaw | null;
   /** each level's own truncation + rounding bound (cdf, pdf) */
   trL: number[];
   trPL: number[];
@@ -98,6 +100,8 @@ export function heavyLadder(model: CompiledModel, atoms: Atom[], T0: number, lev
     // a derived bound needs a single term taken out (its images or its CF); the endpoint kernels' images are bounded
     // beside it (./kernel-images.ts)
     resid: images.length === 1 && G && images[0].direct === G.direct ? residualLaw(G) : !images.length && part.tail ? residualLaw(part.tail) : null,
+    // two terms' images: the pair's bound (./heavy-residual2.ts), the cdf's alone
+    pair: images.length === 2 && G && plan === G.images ? pairLaw(G) : null,
     trL: [],
     trPL: [],
     estimated: false,
@@ -205,7 +209,7 @@ function ladderAt(lad: HeavyLadder, x: number, scratch: { pdf: Float64Array; cdf
     errPdf: d(P) + lad.sumErrPdf + richardsonAmplification(lad.expP, L) * imP + k.errPdf,
     derivedCdf: Infinity,
   };
-  if (!lad.resid) {
+  if (!lad.resid && !lad.pair) {
     lad.estimated = true;
     return est;
   }
@@ -227,7 +231,9 @@ function ladderAt(lad: HeavyLadder, x: number, scratch: { pdf: Float64Array; cdf
     lad.estimated = true;
     return { ...est, derivedCdf: errCdf };
   }
-  return { pdf: P[b][bp.j] + k.pdf, cdf: C[b][bc.j] + k.cdf, sf: S[b][bc.j] + k.sf, errCdf, errPdf: bp.err + k.errPdf, derivedCdf: errCdf };
+  // the density with its estimate where no bound of its own is derived (the pair's)
+  const pdfD = Number.isFinite(bp.err);
+  return { pdf: pdfD ? P[b][bp.j] + k.pdf : est.pdf, cdf: C[b][bc.j] + k.cdf, sf: S[b][bc.j] + k.sf, errCdf, errPdf: pdfD ? bp.err + k.errPdf : est.errPdf, derivedCdf: errCdf };
 }
 
 /**
@@ -249,7 +255,9 @@ function residualBucket(lad: HeavyLadder, x: number, l: number): { cdf: number; 
   const a = Math.min(lo, x);
   const b = Math.max(hi, x);
   const ki = lad.part.kernels.length ? kernelAliasing(lad.part.kernels, a, b, T) : { cdf: 0, pdf: 0 };
-  const v = { cdf: residualAliasing(lad.resid!, a, b, T, "cdf") + ki.cdf, pdf: residualAliasing(lad.resid!, a, b, T, "pdf") + ki.pdf };
+  const v = lad.resid
+    ? { cdf: residualAliasing(lad.resid, a, b, T, "cdf") + ki.cdf, pdf: residualAliasing(lad.resid, a, b, T, "pdf") + ki.pdf }
+    : { cdf: pairAliasing(lad.pair!, a, b, T, "cdf") + ki.cdf, pdf: Infinity };
   if (cache.size > 8192) cache.clear();
   cache.set(key, v);
   return v;

@@ -294,11 +294,18 @@ function heavyQuantilesAt(
   const lad = heavyLadder(model, atoms, T0, 5, tol);
   const ext = T0 / 8;
   const probes = [shape.center - ext, shape.center, shape.center + ext];
+  let prevD = NaN;
   for (let more = 0; more < 3; more++) {
     const vals = probes.map((x) => evalLadder(lad, x, scratch));
     const worst = Math.max(...vals.map((v) => v.errCdf));
-    // where a derived bound is possible (./heavy-residual.ts), the levels grow until it reaches the tolerance too
-    const derivedShort = lad.resid !== null && Math.max(...vals.map((v) => v.derivedCdf)) > tol;
+    // where a derived bound is possible (./heavy-residual.ts, ./heavy-residual2.ts), the levels grow until it reaches the
+    // tolerance too, while it is within reach of the doublings left: within 1e3 tol at first, then at the rate of the last
+    // doubling (each doubles the nodes)
+    const dWorst = Math.max(...vals.map((v) => v.derivedCdf));
+    const rate = Number.isFinite(prevD) && prevD > 0 ? Math.min(1, dWorst / prevD) : NaN;
+    const reach = Number.isFinite(rate) ? dWorst * rate ** (3 - more) <= tol : dWorst <= 1e3 * tol;
+    prevD = dWorst;
+    const derivedShort = (lad.resid !== null || lad.pair !== null) && dWorst > tol && reach;
     // the sums' own bound, amplified by one more extrapolation level, would already exceed what is reached
     const floorNext = richardsonAmplification(lad.expC, lad.levels.length + 1) * lad.trC;
     if ((worst <= tol && !derivedShort) || (!derivedShort && floorNext >= worst) || !growLadder(lad)) break;

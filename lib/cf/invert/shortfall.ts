@@ -2,7 +2,8 @@ import type { Atom, CompiledModel } from "../types";
 import { maybeKernels, type PartSolution } from "./continuous";
 import { exponentsFor, maybeTailLaw, type HeavyLadder } from "./heavy";
 import { imageLadder } from "./images";
-import { bestDerivedEntry, lastRowWeights, residualAliasing, residualLaw, type ResidualLaw } from "./heavy-residual";
+import { stopLossBuckets } from "./heavy-residual2";
+import { bestDerivedEntry, lastRowWeights, residualLaw, type ResidualLaw } from "./heavy-residual";
 import { directShortfall } from "../direct/shortfall";
 import { directPoint } from "../direct/types";
 import { imageScratch } from "./images";
@@ -174,6 +175,8 @@ export function heavyShortfall(
   // a derived bound on the aliasing left where one term is taken out and no endpoint kernels are (./heavy-residual.ts)
   if (useLadder) resid = part.kernels.length ? null : useLadder.resid;
   else if (part.tail && !part.kernels.length) resid = residualLaw(part.tail);
+  // two terms' images taken out: the pair's bound (./heavy-residual2.ts)
+  const pair = useLadder && !part.kernels.length && images.length === 2 ? useLadder.pair : null;
   // the weights 1/t^2 make the tail beyond T at most (2/pi) int_T E/t^2 <= 2 tailCdf(T)/T: cut where that is small
   let tmax = env.t[env.t.length - 1];
   let truncES = (2 * env.tailCdf[env.t.length - 1]) / tmax;
@@ -251,6 +254,7 @@ export function heavyShortfall(
     const floor = (Number.EPSILON / 2) * 78 * ((2 * h * a) / Math.PI) * (1 - 1e-6);
     return (roundFloors[lev] = Number.isFinite(floor) ? floor : 0);
   };
+  const boundAt = stopLossBuckets(resid, pair, T0);
   return (q: number, target: number) => {
     const y = q - part.center;
     const rows: number[][] = [];
@@ -265,6 +269,7 @@ export function heavyShortfall(
     const raw2: number[] = [];
     const rows2: number[][] = [];
     const goal = Math.max(target, tol);
+    let prevD = NaN;
     let prev = NaN;
     let round = 0;
     for (let lev = 0; lev < 8; lev++) {
@@ -296,25 +301,27 @@ export function heavyShortfall(
       const row = richardsonRow(v, rows[lev - 1], exps);
       rows.push(row);
       const cand = row[lev];
-      if (resid) {
+      if (resid || pair) {
         const own = sumRound * (1 + 1e-10) + imErr + truncES;
-        raw.push(residualAliasing(resid, q, q, T, "stopLoss") + own);
+        raw.push(boundAt(lev, T, q, "stopLoss") + own);
         const W = lastRowWeights(exps, lev + 1);
         const d = bestDerivedEntry(W, raw);
         if (d.err < bestD.err) bestD = { value: row[d.j], err: d.err };
-        if (second) {
+        if (second && resid) {
           const g = imageLadder(resid.law, q, T, 1, scratch2)[0];
           const c = resid.k2 * g.pdf;
           rows2.push(richardsonRow(v - c, rows2[lev - 1], exps));
           // the term's bound: kappa_2's times the sum, the sum's times |kappa_2|, the product and difference rounded
-          raw2.push(residualAliasing(resid, q, q, T, "stopLoss2") + own + Math.abs(resid.k2) * g.errPdf + resid.e2 * (Math.abs(g.pdf) + g.errPdf) + 4 * Number.EPSILON * (Math.abs(c) + Math.abs(v)));
+          raw2.push(boundAt(lev, T, q, "stopLoss2") + own + Math.abs(resid.k2) * g.errPdf + resid.e2 * (Math.abs(g.pdf) + g.errPdf) + 4 * Number.EPSILON * (Math.abs(c) + Math.abs(v)));
           const d2 = bestDerivedEntry(W, raw2);
           if (d2.err < bestD.err) bestD = { value: rows2[lev][d2.j], err: d2.err };
         }
       }
-      // levels go on for the derived bound only where one more doubling may bring it to the goal (it falls by 2^(alpha + 1)
-      // or more per level, at least 4 for a finite mean): each level doubles the nodes
-      const wantD = resid !== null && bestD.err > goal && (lev < 2 || bestD.err <= 4 * goal);
+      // levels go on for the derived bound only where one more doubling may bring it to the goal at the rate of the last
+      // one (each level doubles the nodes)
+      const rate = Number.isFinite(prevD) && prevD > 0 ? Math.min(1, bestD.err / prevD) : 1;
+      const wantD = (resid !== null || pair !== null) && bestD.err > goal && (lev < 2 || bestD.err * rate <= goal);
+      prevD = bestD.err;
       if (lev >= 2) {
         // the cut-off at tmax is shared by every level, so the differences cannot see it: added separately
         const total = 2 * Math.max(Math.abs(cand - prev), Math.abs(cand - row[lev - 1])) + amp * (round + truncES);

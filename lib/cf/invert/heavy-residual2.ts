@@ -1,0 +1,304 @@
+import type { PowerSide, PowerTail } from "../direct/power-tail";
+import type { TailTerm } from "../types";
+import { momentBounds } from "./moment-tails";
+import { residualAliasing, type ResidualLaw } from "./heavy-residual";
+
+/**
+ * A derived bound on the aliasing left when the images of two power-tailed terms are taken out (./images.ts,
+ * TailTerm.images): X = G_1 + G_2 - m + Z with A = G_1 - m, B = G_2 - m, Z independent, and the residual of one image
+ * (right side, u = y - m) D(u) = P(A + B + Z > u) - P(A > u) - P(B > u) (and the stop-loss transforms' likewise). Split
+ * on |B| <= r_b = u/3, then on |Z| <= r_z = u/6 and |A| <= r_a = u/6 (V = B + Z, W = A + Z):
+ *   P(A + V > u) - P(A > u) on |B| <= r_b: Taylor in V (integral remainder) on the good set, |V| <= u/2:
+ *     f_A(u) |E[V; good]| + (E[B^2; |B| <= r_b] + E Z^2) sup_{u/2} |f_A'| + P(|Z| > r_z);
+ *   on |B| > r_b: P(B > max(u - W, r_b)) + P(u - W < B < -r_b) - P(A > u) P(|B| > r_b), and
+ *     E S_B(max(u - W, r_b)) - S_B(u) = Taylor in W on |A| <= r_a, |Z| <= r_z (u - W >= r_b there) plus at most
+ *     2 S_B(r_b) (P(|A| > r_a) + P(|Z| > r_z)) elsewhere; P(u - W < B < -r_b) <= P(|B| > r_b) (P(|A| > r_a) + P(|Z| > r_z)).
+ * The stop-loss transform the same way, with pi_A, S_A, f_A one derivative lower, |pi'| <= 1 (so the bad part of the Z split
+ * costs r_b P(|Z| > r_z) + E[|Z|; |Z| > r_z]), and on |B| > r_b phi(t) = E[(B - t)^+; B > r_b] (= pi_B(t) for t >= r_b,
+ * at most pi_B(r_b) + (r_b - t) S_B(r_b) below): |phi(u - W) - pi_B(u)| <= pi_B(r_b) + pi_B(u) + |W| S_B(r_b) off the good
+ * set; E[(B + W - u)^+; B < -r_b] <= P(|B| > r_b) E[(W - u - r_b)^+], (a + b - t)^+ <= (a - t/2)^+ + (b - t/2)^+.
+ * The heavy parts' tails, truncated moments and density majorants come from their power-law majorants
+ * (../direct/power-tail.ts) in the distance t from m (for t >= t0, where the distance to the majorant's origin is at least
+ * 7t/8); Z's from Markov's inequality on its even moments (./moment-tails.ts). Every piece is then a sum of powers c u^-q
+ * (a posynomial in u), summed over the images: the first IMAGES one by one, the rest by the integral (each q > 1).
+ * The left side is the right side of the reflected variables.
+ */
+
+const IMAGES = 8;
+const U = Number.EPSILON;
+
+/** sum_i c_i u^(-q_i), c_i >= 0 */
+type Poly = { c: number[]; q: number[] };
+
+const mono = (c: number, q: number): Poly => ({ c: [c], q: [q] });
+const ZERO: Poly = { c: [], q: [] };
+function add(...ps: Poly[]): Poly {
+  return { c: ps.flatMap((p) => p.c), q: ps.flatMap((p) => p.q) };
+}
+function mul(a: Poly, b: Poly): Poly {
+  const out: Poly = { c: [], q: [] };
+  for (let i = 0; i < a.c.length; i++)
+    for (let j = 0; j < b.c.length; j++) {
+      out.c.push(a.c[i] * b.c[j] * (1 + 2 * U));
+      out.q.push(a.q[i] + b.q[j]);
+    }
+  return out;
+}
+/** p(rho u) as a polynomial in u */
+function at(p: Poly, rho: number): Poly {
+  return { c: p.c.map((c, i) => c * Math.pow(rho, -p.q[i]) * (1 + 4 * U * (2 + Math.abs(p.q[i])))), q: p.q };
+}
+function value(p: Poly, u: number): number {
+  let s = 0;
+  for (let i = 0; i < p.c.length; i++) s += p.c[i] * Math.pow(u, -p.q[i]);
+  return s * (1 + 4 * (p.c.length + 2) * U);
+}
+
+/** one heavy part H = G - m: its one-sided quantities per direction (1 right, -1 left) and two-sided ones, in t >= t0 */
+interface Heavy {
+  t0: number;
+  sf: [Poly, Poly];
+  pi: [Poly, Poly];
+  f0: [Poly, Poly];
+  f1: [Poly, Poly];
+  /** P(|H| > t), E[|H|; |H| > t], E[H^2; |H| <= t], E|H| */
+  P: Poly;
+  E1: Poly;
+  M2: Poly;
+  EA: number;
+}
+
+function heavyPart(tail: PowerTail, m: number, spread: number): Heavy | null {
+  // t0: every power side's origin within t0/8 of m and its `from` below 7 t0/8; every end within t0 of m
+  let t0 = 0;
+  for (const [d, s] of [[1, tail.right], [-1, tail.left]] as const) {
+    if ("end" in s) t0 = Math.max(t0, d * (s.end - m));
+    else t0 = Math.max(t0, 8 * Math.abs(m - s.origin), (8 / 7) * s.from);
+  }
+  t0 = t0 * (1 + 1e-12);
+  const one = (d: 1 | -1, s: PowerSide) => {
+    if ("end" in s) return { sf: ZERO, pi: ZERO, f0: ZERO, f1: ZERO };
+    // z = t + d (m - origin) >= t (1 - |m - origin| / t0) = kappa t
+    const kappa = 1 - Math.abs(m - s.origin) / t0;
+    const fj = (j: number): Poly => ({ c: s.d[j].a.map((a, i) => a * Math.pow(kappa, -s.d[j].p[i]) * (1 + 8 * U * (s.d[j].p[i] + 2))), q: s.d[j].p.slice() });
+    const f0 = fj(0);
+    const sf: Poly = { c: f0.c.map((c, i) => (c / (f0.q[i] - 1)) * (1 + 4 * U)), q: f0.q.map((q) => q - 1) };
+    const pi: Poly = { c: sf.c.map((c, i) => (sf.q[i] > 1 ? (c / (sf.q[i] - 1)) * (1 + 4 * U) : Infinity)), q: sf.q.map((q) => q - 1) };
+    return { sf, pi, f0, f1: fj(1) };
+  };
+  // below t0 the tails are bounded by 1: t0 at least where the majorant's P(|H| > t) falls to 1 (steps of 1.25 from a
+  // 64th of the law's spread), so that E|H| and E[H^2; ...] are not dominated by the majorant's blow-up at 0
+  t0 = Math.max(t0, spread / 64);
+  for (let it = 0; it < 400; it++) {
+    const r0 = one(1, tail.right);
+    const l0 = one(-1, tail.left);
+    if (value(add(r0.sf, l0.sf), t0) <= 1) break;
+    t0 *= 1.25;
+  }
+  const r = one(1, tail.right);
+  const l = one(-1, tail.left);
+  const P = add(r.sf, l.sf);
+  if (P.q.some((q) => !(q > 1))) return null;
+  // E[|H|; |H| > t] = t P(|H| > t) + E[(|H| - t)^+]
+  const E1 = add({ c: P.c.slice(), q: P.q.map((q) => q - 1) }, r.pi, l.pi);
+  // E[H^2; |H| <= r] <= t0^2 + int_t0^r 2 s P(|H| > s) ds: c s^-q gives 2c r^(2-q)/(2-q) for q < 2, 2c t0^(2-q)/(q-2) above
+  // (q next to 2 lowered a little first)
+  const M2: Poly = { c: [t0 * t0 * (1 + 2 * U)], q: [0] };
+  for (let i = 0; i < P.c.length; i++) {
+    let q = P.q[i];
+    let c = P.c[i];
+    if (Math.abs(q - 2) < 1e-6) {
+      // s^-q <= s^-q' t0^(q' - q) for s >= t0 and q' < q
+      const q2 = q - 2e-6;
+      c *= Math.pow(t0, q2 - q) * (1 + 8 * U);
+      q = q2;
+    }
+    if (q < 2) {
+      M2.c.push(((2 * c) / (2 - q)) * (1 + 8 * U));
+      M2.q.push(q - 2);
+    } else M2.c[0] += ((2 * c * Math.pow(t0, 2 - q)) / (q - 2)) * (1 + 8 * U);
+  }
+  let EA = t0;
+  for (let i = 0; i < P.c.length; i++) EA += (P.c[i] * Math.pow(t0, 1 - P.q[i])) / (P.q[i] - 1);
+  if (![E1, M2].every((p) => p.c.every((c) => Number.isFinite(c)))) return null;
+  return { t0, sf: [r.sf, l.sf], pi: [r.pi, l.pi], f0: [r.f0, l.f0], f1: [r.f1, l.f1], P, E1, M2, EA: EA * (1 + 4 * U) };
+}
+
+export interface PairLaw {
+  A: Heavy;
+  B: Heavy;
+  m: number;
+  /** log E|Z|^n (even n), E Z^2, |E Z| + the other offsets (delta) */
+  lz: Float64Array | null;
+  vZ: number;
+  delta: number;
+  /** imageBound's polynomials */
+  polys?: Map<string, Poly>;
+}
+
+/** the pair's law, where both terms have power-law majorants (and a mean) and the others have a variance */
+export function pairLaw(term: TailTerm): PairLaw | null {
+  const im = term.images;
+  const pair = im?.pair;
+  if (!im || !pair || im.laws.length !== 2 || !Number.isFinite(pair.meanError)) return null;
+  const [g1, g2] = im.laws;
+  if (!g1.direct.powerTail || !g2.direct.powerTail) return null;
+  const A = heavyPart(g1.direct.powerTail, pair.m, g1.direct.spread);
+  const B = heavyPart(g2.direct.powerTail, pair.m, g2.direct.spread);
+  if (!A || !B) return null;
+  let lz: Float64Array | null = null;
+  let vZ = 0;
+  let dz = 0;
+  const Y = pair.others;
+  if (Y) {
+    if (!(Y.momentIndex > 2)) return null;
+    const mb = momentBounds(Y, pair.zShift);
+    if (!mb || mb.logU.length < 3 || !Number.isFinite(mb.logU[2])) return null;
+    const k1 = Y.cumulants(1)[0];
+    const e1 = Y.cumulantErrors?.(1)[0];
+    if (k1 === null || e1 === null || e1 === undefined || !Number.isFinite(k1) || !Number.isFinite(e1)) return null;
+    const lc = Math.log(mb.c);
+    lz = new Float64Array(mb.logU.length).fill(NaN);
+    for (let n = 2; n < mb.logU.length; n += 2) if (Number.isFinite(mb.logU[n])) lz[n] = mb.logU[n] + n * lc + 4 * U * (Math.abs(mb.logU[n]) + n * Math.abs(lc) + 1);
+    vZ = Math.exp(lz[2]) * (1 + 4 * U);
+    dz = Math.abs(k1 - pair.zShift) + e1;
+  }
+  return { A, B, m: pair.m, lz, vZ, delta: (pair.meanError + dz) * (1 + 4 * U) };
+}
+
+/** the even order n of Z's moments best at r1 for E[|Z|; |Z| > r1] <= E|Z|^n r1^(1-n) (0 without Z, NaN without any) */
+function zOrder(L: PairLaw, r1: number): number {
+  if (!L.lz) return 0;
+  let best = NaN;
+  let bv = Infinity;
+  const lr = Math.log(r1);
+  for (let n = 2; n < L.lz.length; n += 2) {
+    const v = L.lz[n] - (n - 1) * lr;
+    if (v < bv) {
+      bv = v;
+      best = n;
+    }
+  }
+  return best;
+}
+
+/** Z's P(|Z| > r) and E[|Z|; |Z| > r] as monomials in r at the even order n (Markov) */
+function zTails(L: PairLaw, best: number): { P: Poly; E1: Poly } {
+  if (!L.lz || best === 0) return { P: ZERO, E1: ZERO };
+  if (!Number.isFinite(best)) return { P: mono(Infinity, 0), E1: mono(Infinity, 0) };
+  const mn = Math.exp(L.lz[best] + 4 * U * (Math.abs(L.lz[best]) + 1)) * (1 + 4 * U);
+  return { P: mono(mn, best), E1: mono(mn, best - 1) };
+}
+
+export type PairKind = "cdf" | "stopLoss";
+
+/** one side's per-image bound as a polynomial in u (d = 0 right, 1 left: the left tails of both parts), equal powers merged
+ *  and kept per side, kind and Z's moment order */
+function imageBound(L: PairLaw, d: 0 | 1, kind: PairKind, u1: number): Poly {
+  const n = zOrder(L, u1 / 6);
+  const key = `${d}:${kind}:${n}`;
+  const cache = (L.polys ??= new Map());
+  let p = cache.get(key);
+  if (!p) cache.set(key, (p = merge(imageBoundAt(L, d, kind, n))));
+  return p;
+}
+
+/** sum the coefficients of equal powers (each sum rounded up) */
+function merge(p: Poly): Poly {
+  const by = new Map<number, number>();
+  for (let i = 0; i < p.c.length; i++) if (p.c[i] !== 0) by.set(p.q[i], (by.get(p.q[i]) ?? 0) + p.c[i]);
+  const q = [...by.keys()];
+  return { c: q.map((k) => by.get(k)! * (1 + 4 * p.c.length * U)), q };
+}
+
+function imageBoundAt(L: PairLaw, d: 0 | 1, kind: PairKind, n: number): Poly {
+  const { A, B } = L;
+  const z = zTails(L, n);
+  const PZ = at(z.P, 1 / 6);
+  const E1Z = at(z.E1, 1 / 6);
+  const EZ = Math.sqrt(L.vZ) * (1 + 2 * U);
+  const PA = at(A.P, 1 / 6);
+  const PB = at(B.P, 1 / 3);
+  const E1A = at(A.E1, 1 / 6);
+  const E1B = at(B.E1, 1 / 3);
+  const c = (k: number) => mono(k, 0);
+  // |E[V; good]| and |E[W; good]| (V = B + Z, W = A + Z): the offsets and the parts off the good set
+  const offV = add(c(L.delta), E1B, mul(c(B.EA), PZ), E1Z, mul(c(EZ), PB));
+  const offW = add(c(L.delta), E1A, mul(c(A.EA), PZ), E1Z, mul(c(EZ), PA));
+  const m2V = add(at(B.M2, 1 / 3), c(L.vZ));
+  const m2W = add(at(A.M2, 1 / 6), c(L.vZ));
+  const bad = add(PA, PZ);
+  if (kind === "cdf") {
+    return add(
+      mul(A.f0[d], offV),
+      mul(m2V, at(A.f1[d], 1 / 2)),
+      PZ,
+      mul(B.f0[d], offW),
+      mul(m2W, at(B.f1[d], 2 / 3)),
+      mul(c(2), mul(at(B.sf[d], 1 / 3), bad)),
+      mul(PB, bad),
+      mul(A.sf[d], PB),
+    );
+  }
+  return add(
+    mul(A.sf[d], offV),
+    mul(m2V, at(A.f0[d], 1 / 2)),
+    // r_b P(|Z| > r_z) = (u/3) P(|Z| > u/6)
+    mono((PZ.c[0] ?? 0) / 3, (PZ.q[0] ?? 0) - 1),
+    E1Z,
+    mul(B.sf[d], offW),
+    mul(m2W, at(B.f0[d], 2 / 3)),
+    mul(add(at(B.pi[d], 1 / 3), B.pi[d]), bad),
+    mul(at(B.sf[d], 1 / 3), offW),
+    mul(PB, add(at(A.pi[d], 2 / 3), at(z.E1, 2 / 3))),
+    mul(A.pi[d], PB),
+  );
+}
+
+/** the images' sum of one side: the first IMAGES at u1 + k T one by one, the rest by the integral of each power */
+function sideSum(p: Poly, u1: number, T: number): number {
+  let s = 0;
+  for (let k = 0; k < IMAGES; k++) s += value(p, u1 + k * T);
+  const ul = u1 + (IMAGES - 1) * T;
+  for (let i = 0; i < p.c.length; i++) {
+    if (p.c[i] === 0) continue;
+    if (!(p.q[i] > 1) || !Number.isFinite(p.c[i])) return Infinity;
+    s += (p.c[i] * Math.pow(ul, 1 - p.q[i])) / ((p.q[i] - 1) * T);
+  }
+  return s * (1 + 1e-12);
+}
+
+/**
+ * Bound on the aliasing the two terms' images leave at period T, for every x in [xLo, xHi]; the stop-loss kind includes the
+ * factor 2 of the E|X - q| sum. Infinity where the nearest image is within 6 t0 of m (the parts' majorants need t >= t0).
+ */
+export function pairAliasing(L: PairLaw, xLo: number, xHi: number, T: number, kind: PairKind): number {
+  const slack = 8 * U * (Math.abs(xLo) + Math.abs(xHi) + Math.abs(L.m) + T);
+  const uR = xLo + T - L.m - slack;
+  const uL = L.m - xHi + T - slack;
+  const need = 6 * Math.max(L.A.t0, L.B.t0);
+  if (!(uR >= need && uL >= need)) return Infinity;
+  const s = sideSum(imageBound(L, 0, kind, uR), uR, T) + sideSum(imageBound(L, 1, kind, uL), uL, T);
+  return (kind === "stopLoss" ? 2 * s : s) * (1 + 4 * U);
+}
+
+/**
+ * The stop-loss residual bounds of the expected-shortfall ladder (./shortfall.ts) per level, for every q in a bucket of width
+ * T0/256 (one term's, or the pair's; the corrected kind only for one term), computed once per bucket and level.
+ */
+export function stopLossBuckets(resid: ResidualLaw | null, pair: PairLaw | null, T0: number): (lev: number, T: number, q: number, kind: "stopLoss" | "stopLoss2") => number {
+  const bounds = new Map<string, number>();
+  return (lev, T, q, kind) => {
+    const w = T0 / 256;
+    const k = Math.floor(q / w);
+    const key = `${kind}:${lev}:${k}`;
+    let v = bounds.get(key);
+    if (v === undefined) {
+      const lo = Math.min(q, k * w - 4 * U * (Math.abs(k * w) + w));
+      const hi = Math.max(q, (k + 1) * w + 4 * U * (Math.abs((k + 1) * w) + w));
+      v = resid ? residualAliasing(resid, lo, hi, T, kind) : pair && kind === "stopLoss" ? pairAliasing(pair, lo, hi, T, kind) : Infinity;
+      bounds.set(key, v);
+    }
+    return v;
+  };
+}
