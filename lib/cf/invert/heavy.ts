@@ -38,9 +38,12 @@ import { checkDeadline } from "../deadline";
  * (images at distance mT of tails ~ y^{-alpha}, expanded in 1/T), so the sums are repeated with T doubled and
  * combined by Richardson extrapolation with exponents {j alpha + i : j >= 1, i >= 0} in increasing order
  * (tails ~ sum_j c_j y^{-j alpha}, Bergstrom's series for stable laws; the images at x + mT expanded in x/T
- * add the integer steps), shifted by 1 for the density. The error estimate is twice the last change of the
- * extrapolated value (an estimate, not derived: the answer says so, RICHARDSON_ESTIMATE_NOTE), plus the truncation and
- * rounding bounds times the extrapolation's amplification.
+ * add the integer steps), shifted by 1 for the density. Where the heaviest term's CF is taken out and the rest has a
+ * variance, each level's aliasing has a derived bound (./heavy-residual.ts, with the endpoint kernels' images,
+ * ./kernel-images.ts), and the entry of the table's last row with the least bound through its weights in the levels is
+ * answered when that bound is at most the estimate or the tolerance. Otherwise the error estimate is twice the last change
+ * of the extrapolated value (an estimate, not derived: the answer says so, RICHARDSON_ESTIMATE_NOTE), plus the truncation
+ * and rounding bounds times the extrapolation's amplification.
  */
 export function heavyPath(
   part: ContinuousPart,

@@ -8,7 +8,8 @@
 /**
  * What an answer says wherever its error bound rests on richardsonLastStep or richardsonChange: the error left after the
  * extrapolation is estimated, not derived (the parts around it, truncation, rounding and the images taken out of the sums
- * from direct laws, ./images.ts, are bounded).
+ * from direct laws, ./images.ts, are bounded). Answers whose aliasing bound is derived (./heavy-residual.ts,
+ * ./heavy-residual2.ts) do not carry it.
  */
 export const RICHARDSON_ESTIMATE_NOTE =
   "error bound partly estimated, not derived: the aliasing left after Richardson extrapolation in the period (power tails) is estimated as twice the last extrapolation step; frequency truncation, rounding and the images of the heaviest terms are bounded";
