@@ -107,12 +107,12 @@ describe("derived aliasing bound of a single period vs mpmath references (cdf at
   });
 });
 
-// Points through the grid/point route (its CF subtraction of the heaviest term): density and cdf at the reference quantiles
-// within the answer's derived bounds, no note. (pareto + normal keeps the estimate there: the pareto's CF, falling like 1/t,
-// is not subtracted from those sums; the kernels taken out for the uniform and Laplace terms of the five-term sum have
-// images the residual bound does not hold.)
+// Points through the grid/point route (the heaviest term's CF subtracted, or for pareto + normal its images taken out of the
+// sums from its closed-form law): density and cdf at the reference quantiles within the answer's derived bounds, no note.
+// (The five-term sum led by a stable term keeps the estimate: its CF is not subtracted there, and its law is not in closed
+// form.)
 describe("density at points: derived bounds vs mpmath references", () => {
-  const names = ["weibull + student_t", "normal + student_t", "stable + gamma + normal", "stable + laplace"];
+  const names = ["weibull + student_t", "normal + student_t", "pareto + normal", "stable + gamma + normal", "stable + laplace"];
   it.each(names.map((n) => [n, cases.find((c) => c.name === n)!] as const))("%s", (_n, c) => {
     const xs = c.levels.map((l) => Number(l.x));
     const d = density(compile(c.model as never), { x: xs });

@@ -9,6 +9,7 @@ import { buildNodes, cutoffFor, probeEnvelope, truncationAt, type Envelope, type
 import { withTailLaw, type ContinuousPart } from "./part";
 import { sumPointwise } from "./pointwise";
 import { kernelAliasing } from "./kernel-images";
+import { imageLadder, imageScratch } from "./images";
 import { bestDerivedEntry, lastRowWeights, residualAliasing, residualLaw } from "./heavy-residual";
 import type { LawShape } from "./range";
 import { RICHARDSON_ESTIMATE_NOTE, richardsonAmplification, richardsonExponents, richardsonExponentsMulti, richardsonRowArrays } from "./richardson";
@@ -57,9 +58,19 @@ export function heavyPath(
   method: "fft" | "gil-pelaez",
 ): PartOutput {
   const n = nPoints(req);
-  const alpha = Math.max(shape.alpha, 0.1);
-  const expC = exponentsFor(shape.tailBases, alpha, 0, MAX_LEVELS);
-  const expP = exponentsFor(shape.tailBases, alpha, 1, MAX_LEVELS);
+  const alpha0 = Math.max(shape.alpha, 0.1);
+  // where the heaviest term's CF was not taken out (it would move the cut-off) but its law is in closed form, its images
+  // come out of every level's sums from that law (./images.ts), as the quantiles' ladder does: what is left aliases like
+  // the rest, with the remainder's exponents
+  const Gi = part.model.tailTerm;
+  const imageG = !part.tail && !part.atoms.length && Gi && Gi.direct.method === "closed-form" && Gi.remainderAlpha > alpha0 + 0.05 ? Gi : null;
+  const alpha = imageG ? Math.max(imageG.remainderAlpha, alpha0) : alpha0;
+  const bases = imageG ? imageG.indices : shape.tailBases;
+  const expC = exponentsFor(bases, alpha, 0, MAX_LEVELS);
+  const expP = exponentsFor(bases, alpha, 1, MAX_LEVELS);
+  const imgScratch = imageScratch();
+  let imC = 0;
+  let imP = 0;
   const [lo, hi] = shape.support;
   const anchor: "left" | "right" | "center" = Number.isFinite(lo) ? "left" : Number.isFinite(hi) ? "right" : "center";
   const tol = opt.tolerance;
@@ -87,7 +98,7 @@ export function heavyPath(
   let pdfDone = false;
   // a derived bound on the aliasing left (./heavy-residual.ts) where the heaviest term's CF is taken out (and the endpoint
   // kernels' images, ./kernel-images.ts): each level's own bound, and the last row's entry with the least one
-  const resid = part.tail ? residualLaw(part.tail) : null;
+  const resid = part.tail ? residualLaw(part.tail) : imageG ? residualLaw(imageG) : null;
   const pts = requestPoints(req);
   let xLo = Infinity;
   let xHi = -Infinity;
@@ -122,6 +133,22 @@ export function heavyPath(
     const cdf = new Float64Array(n);
     const sf = new Float64Array(n);
     evaluate(part, nodes, req, layout, pdf !== null, pdf, cdf, sf);
+    // the level's own image bounds (largest over the points) and their running maximum for the estimate's amplification
+    let lC = 0;
+    let lP = 0;
+    if (imageG) {
+      const T = T0 * 2 ** lev;
+      for (let i = 0; i < n; i++) {
+        const im = imageLadder(imageG.direct, pts[i], T, 1, imgScratch)[0];
+        cdf[i] -= im.cdf;
+        sf[i] += im.cdf;
+        if (pdf) pdf[i] -= im.pdf;
+        lC = Math.max(lC, im.errCdf);
+        lP = Math.max(lP, im.errPdf);
+      }
+      imC = Math.max(imC, lC);
+      imP = Math.max(imP, lP);
+    }
     const rowC = richardsonRowArrays(cdf, tabs.cdf[lev - 1], expC);
     const rowS = richardsonRowArrays(sf, tabs.sf[lev - 1], expC);
     const rowP = pdf ? richardsonRowArrays(pdf, tabs.pdf[lev - 1], expP) : [];
@@ -137,8 +164,8 @@ export function heavyPath(
       cdfErr = 2 * Math.max(maxDiff(best.cdf, prevBest.cdf), maxDiff(best.sf, prevBest.sf), maxDiff(best.cdf, rowC[lev - 1]));
       pdfErr = best.pdf && prevBest.pdf ? 2 * Math.max(maxDiff(best.pdf, prevBest.pdf), maxDiff(best.pdf, rowP[lev - 1])) : NaN;
     }
-    const sumC = amp * (2 * trunc.cdf + round.cdf);
-    const sumP = amp * (2 * trunc.pdf + round.pdf);
+    const sumC = amp * (2 * trunc.cdf + round.cdf + imC);
+    const sumP = amp * (2 * trunc.pdf + round.pdf + imP);
     const error: ErrorEstimate = {
       aliasing: opt.wantPdf && !pdfDone ? Math.max(cdfErr, pdfErr) : cdfErr,
       truncation: amp * 2 * (opt.wantPdf ? Math.max(trunc.cdf, trunc.pdf) : trunc.cdf),
@@ -168,8 +195,8 @@ export function heavyPath(
     if (resid && xLo <= xHi) {
       const T = T0 * 2 ** lev;
       const ki = part.kernels.length ? kernelAliasing(part.kernels, xLo, xHi, T) : { cdf: 0, pdf: 0 };
-      rawC.push(residualAliasing(resid, xLo, xHi, T, "cdf") + ki.cdf + 2 * trunc.cdf + round.cdf);
-      rawP.push(residualAliasing(resid, xLo, xHi, T, "pdf") + ki.pdf + 2 * trunc.pdf + round.pdf);
+      rawC.push(residualAliasing(resid, xLo, xHi, T, "cdf") + ki.cdf + 2 * trunc.cdf + round.cdf + lC);
+      rawP.push(residualAliasing(resid, xLo, xHi, T, "pdf") + ki.pdf + 2 * trunc.pdf + round.pdf + lP);
       const dc = bestDerivedEntry(lastRowWeights(expC, lev + 1), rawC);
       // the density only while it is summed (pdfDone: its best level is kept, with its estimate)
       const dp = pdf ? bestDerivedEntry(lastRowWeights(expP, lev + 1), rawP) : { j: 0, err: Infinity };
@@ -193,6 +220,7 @@ export function heavyPath(
     result!.pdf = bestPdf.pdf;
     result!.error.pdf = bestPdf.err;
   }
+  if (imageG) notes.push("the heaviest-tailed term's images are taken out of the sums from its closed-form law");
   notes.push(`power tails (index ${shape.alpha}): period doubled ${result!.levels - 1} times with Richardson extrapolation`);
   // the derived bound where it is at most the estimate or the tolerance (cdf, and pdf where asked): no note then
   if (derived && derived.errC <= Math.max(result!.error.cdf, tol) && (!opt.wantPdf || (derived.pdf && derived.errP <= Math.max(result!.error.pdf, tol)))) {
