@@ -107,11 +107,6 @@ export function heavyLadder(model: CompiledModel, atoms: Atom[], T0: number, lev
     estimated: false,
     tol,
   };
-  // a derived bound that cannot reach the tolerance even at the centre and the sixth level (the most the quantiles' ladder
-  // grows to) is not worth its evaluations: the estimate serves
-  const T5 = T0 * 32;
-  if (lad.pair && !(pairAliasing(lad.pair, shape.center, shape.center, T5, "cdf") <= tol)) lad.pair = null;
-  if (lad.resid && !(residualAliasing(lad.resid, shape.center, shape.center, T5, "cdf") <= tol)) lad.resid = null;
   // the remainder's faster decay needs fewer doublings to start with (more are added when the probes ask for them)
   const start = part.tail || images.length ? Math.min(levels, 3) : levels;
   for (let l = 0; l < start; l++) growLadder(lad);
@@ -266,4 +261,14 @@ function residualBucket(lad: HeavyLadder, x: number, l: number): { cdf: number; 
   if (cache.size > 8192) cache.clear();
   cache.set(key, v);
   return v;
+}
+
+/**
+ * Drop a derived bound that cannot reach `tol` at `x` even at the period T0 2^top (the most the caller grows the ladder to):
+ * its evaluations would be spent for nothing, the estimate serves.
+ */
+export function dropUnreachable(lad: HeavyLadder, x: number, top: number, tol: number): void {
+  const T = lad.T0 * 2 ** top;
+  if (lad.pair && !(pairAliasing(lad.pair, x, x, T, "cdf") <= tol)) lad.pair = null;
+  if (lad.resid && !(residualAliasing(lad.resid, x, x, T, "cdf") <= tol)) lad.resid = null;
 }

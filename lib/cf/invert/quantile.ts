@@ -4,6 +4,7 @@ import { directQuantiles } from "../direct/answer";
 import { momentRest } from "../direct/shortfall";
 import type { Atom, CompiledModel } from "../types";
 import { evalLadder, growLadder, heavyLadder, invertWithinTerms, type HeavyLadder } from "./continuous";
+import { dropUnreachable } from "./heavy-ladder";
 import { atomMass, roundingOf, solutionAt } from "./shared";
 import { lawShape } from "./range";
 import { RICHARDSON_ESTIMATE_NOTE, richardsonAmplification } from "./richardson";
@@ -292,6 +293,8 @@ function heavyQuantilesAt(
   const notes: string[] = [];
   const scratch: LadderScratch = { pdf: new Float64Array(1), cdf: new Float64Array(1), sf: new Float64Array(1), one: new Float64Array(1) };
   const lad = heavyLadder(model, atoms, T0, 5, tol);
+  // the ladder grows to six levels at most below
+  dropUnreachable(lad, shape.center, 5, tol);
   const ext = T0 / 8;
   const probes = [shape.center - ext, shape.center, shape.center + ext];
   let prevD = NaN;
