@@ -141,7 +141,9 @@ function heavyComponent(w: number, m: CompiledModel, tol: number, tail: number):
   };
   const at = windowed(inside, a, b, m.support);
   const mean = m.momentIndex > 1 ? m.cumulants(1)[0] : null;
-  let excessAt: ((q: number, target: number) => { value: number; error: number }) | null = null;
+  let excessAt: ((q: number, target: number) => { value: number; error: number; estimated?: boolean }) | null = null;
+  // whether any value answered rests on the Richardson estimate (the ladder's, or an expected shortfall's)
+  let esEstimated = false;
   return {
     w,
     atoms,
@@ -151,10 +153,15 @@ function heavyComponent(w: number, m: CompiledModel, tol: number, tail: number):
       excessAt ??= heavyShortfall(m, atoms, wc, mean, shape, tol, Math.max(ext, Math.abs(q - shape.center)), lad);
       const v = at(q);
       // E[(X - q)^+] to about 1e-8 of the tail mass beyond q, on the scale of q (as the quantile route's ES)
-      return excessAt(q, 1e-8 * Math.max(v.S, 1e-12) * Math.max(1, Math.abs(q), shape.spread));
+      const r = excessAt(q, 1e-8 * Math.max(v.S, 1e-12) * Math.max(1, Math.abs(q), shape.spread));
+      if (r.estimated) esEstimated = true;
+      return r;
     },
     terms: () => lad.levels[lad.levels.length - 1].K,
-    notes: () => [`power tails: ${lad.levels.length} period doublings from T = ${T0.toPrecision(4)}, Richardson extrapolation`, RICHARDSON_ESTIMATE_NOTE],
+    notes: () => [
+      `power tails: ${lad.levels.length} period doublings from T = ${T0.toPrecision(4)}, Richardson extrapolation`,
+      ...(lad.estimated || esEstimated ? [RICHARDSON_ESTIMATE_NOTE] : []),
+    ],
     method: "gil-pelaez",
   };
 }
