@@ -296,7 +296,10 @@ export function toCompiled(node: Node): CompiledModel {
       damped(beta, t, re, im);
     };
     if (node.dampedKernels && node.dampedKernels.cf === damped) compiled.dampedKernels = node.dampedKernels.kernels;
-    if (node.dampedKernels && node.dampedKernels.cf === damped && node.dampedRemainder && node.dampedRemainder.cf === damped) compiled.dampedRemainderBound = node.dampedRemainder.bound;
+    if (node.dampedKernels && node.dampedKernels.cf === damped && node.dampedRemainder && node.dampedRemainder.cf === damped) {
+      compiled.dampedRemainderBound = node.dampedRemainder.bound;
+      compiled.dampedRemainderDecay = node.dampedRemainder.decay;
+    }
     if (node.dampedSeverity && node.dampedSeverity.cf === damped) compiled.dampedSeverity = node.dampedSeverity.kernel;
     if (node.dampedMajorant && node.dampedMajorant.cf === damped) compiled.dampedMajorant = node.dampedMajorant;
   }

@@ -125,12 +125,15 @@ export function compoundNode(N: Node, X: Node, discretise: DiscretiseOptions | n
     if (k) {
       node.transformSeries = k.series;
       if (k.kernels.length > 0) node.dampedKernels = { cf: node.dampedLogCf, kernels: k.kernels, rate: k.rate };
-      if (k.kernels.length > 0 && k.exact) node.dampedRemainder = { cf: node.dampedLogCf, bound: gammaRemainderBound(k.exact) };
+      // its decay: the bound's slowest term falls like |phi| ~ t^-shape (the rounding allowance slack M)
+      if (k.kernels.length > 0 && k.exact) node.dampedRemainder = { cf: node.dampedLogCf, bound: gammaRemainderBound(k.exact), decay: k.exact.shape };
       // pareto, weibull, lomax and Burr claims: the kernels match the severity's expansion, whose Watson remainder the family bounds
       // (the expansion object itself: a moved law carries a new one, and no bound)
       const er = X.endpointRemainder;
       const rb = k.kernels.length > 0 && !k.exact && er && er.series === X.laplaceExpansion ? endpointKernelsRemainder(N, er, k.kernels) : null;
-      if (rb) node.dampedRemainder = { cf: node.dampedLogCf, bound: rb };
+      // every piece of that bound is a power sigma^-e with e at least the expansion's first exponent (the kernels' weights'
+      // rounding leaves such a term of the kernels' own order)
+      if (rb) node.dampedRemainder = { cf: node.dampedLogCf, bound: rb, decay: er!.series.exps[0] };
     }
   }
   if (node.dampedLogCf && !node.dampedKernels && X.severityKernel && X.kind.type === "continuous" && X.support[0] === 0 && node.support[0] === 0 && N.table) {

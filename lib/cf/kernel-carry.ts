@@ -50,7 +50,7 @@ export function carryScaleKernels(node: Node, a: number, c: Node) {
   // a t (1 - eps), below the rounded argument the values are computed at (a gamma compound's, ./compound.ts)
   const r = c.dampedRemainder;
   if (r && r.cf === c.dampedLogCf && node.dampedLogCf && node.dampedKernels)
-    node.dampedRemainder = { cf: node.dampedLogCf, bound: (beta, t) => r.bound(a * beta, a * t * (1 - Number.EPSILON)) };
+    node.dampedRemainder = { cf: node.dampedLogCf, bound: (beta, t) => r.bound(a * beta, a * t * (1 - Number.EPSILON)), decay: r.decay };
   // a compound's first claims carried through the scale (a lognormal compound's, ./severity-kernel-scale.ts)
   const sev = c.dampedSeverity;
   const sk = sev && sev.cf === c.dampedLogCf && node.dampedLogCf ? scaledSeverityKernel(sev.kernel, a) : null;

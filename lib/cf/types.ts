@@ -71,6 +71,8 @@ export interface CompiledModel {
    * compound of gamma claims, whose kernels are its first claims' laws): the damped envelope is then derived
    */
   dampedRemainderBound?(beta: number, t: number): number;
+  /** a power q > 0 with dampedRemainderBound(beta, t) <= R (t_0 / t)^q past any t_0 large against the kernels' rates (the tail past the probes) */
+  dampedRemainderDecay?: number;
   /**
    * derived bounds on the damped transform past the support's lower end lo (atom: P(X = lo)): a sum of compounds and
    * gamma terms without kernels bounds its remainder psi_c from them (../cf/damped-majorant.ts)

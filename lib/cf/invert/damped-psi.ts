@@ -249,7 +249,14 @@ function probeAt(model: CompiledModel, atoms: Atom[], beta: number, pairOut: boo
   const rb = model.dampedRemainderBound;
   if (derived && rb && model.support[0] === 0 && atoms.every((a) => a.x === 0)) {
     const size = Float64Array.from(tp, (t) => rb(beta, t));
-    return envelopeFrom(tp, pr, pi, nz, null, { size, slope: new Float64Array(n).fill(Infinity) });
+    // past the last probe t_n the bound falls at least like (t_n / t)^q: a term c sigma^-e, e >= q, is at most
+    // c sigma_n^-e (sigma_n / t_n)^e (t_n / t)^q (sigma = |rate + beta - i t| >= t), and sigma_n / t_n is 1 within 1e-20 there
+    // (the probes end 2^54 times past the law's scale); q <= 1 leaves the density-type tail unbounded
+    const q = model.dampedRemainderDecay ?? 0;
+    const tn = tp[n - 1];
+    const R = size[n - 1] * 1.001;
+    const tail = q > 0 && Math.max(model.scale, 1e-300) * tn > 1e10 ? { cdf: R / q, pdf: q > 1 ? (R * tn) / (q - 1) : Infinity } : { cdf: Infinity, pdf: Infinity };
+    return envelopeFrom(tp, pr, pi, nz, null, { size, slope: new Float64Array(n).fill(Infinity), tail });
   }
   // a sum of compounds and gamma terms: psi_c is the transform past lo less the atom there and the kernels, bounded through
   // the operators (../damped-majorant.ts) plus each kernel's own size w e^{-beta (at - lo)} (rate / |rate + beta - i t|)^shape
