@@ -1,4 +1,5 @@
 // A derived bound on what a compound's damped transform leaves after its atom at 0 and its endpoint gamma kernels.
+import { realCgf } from "./count-pgf";
 import { KERNEL_ORDER, type GammaKernel } from "./damped-kernels";
 import type { Node } from "./node";
 import { SAME_EXPONENT, keptTerms, type EndpointRemainder } from "./endpoint-remainder";
@@ -343,18 +344,7 @@ export function endpointKernelsRemainder(N: Node, rem: EndpointRemainder, kernel
   const beyond = t.beyond;
   // a p_n past the table's end is 0 to the kernels: its own bound there (beyond) is its distance from the truth
   const pErr = (n: number) => (n < t.p.length ? 1.01 * (rel ? rel(n) : 16 * (n + 1) * EPS) * pn[n] : n > top ? 0 : beyond!(n));
-  const cg = N.countCgf;
-  const wr = new Float64Array(1);
-  const wi = new Float64Array(1);
-  const or = new Float64Array(1);
-  const oi = new Float64Array(1);
-  const cgf = cg
-    ? (w: number) => {
-        wr[0] = w;
-        cg(wr, wi, or, oi);
-        return or[0];
-      }
-    : undefined;
+  const cgf = N.countCgf ? realCgf(N.countCgf) : undefined;
   // a severity with so many terms below KERNEL_ORDER (weibull shape below 0.28) that even order 4 passes the work limit: none
   if ((keptTerms(rem.series) * (nMax - 1)) ** 2 > MAX_SERIES_WORK) return null;
   return compoundRemainderBound({ rem, pn, pErr, kernels, ...(cgf ? { cgf } : {}), relErr: N.cfRelError ?? 0, absErr: N.cfAbsError ?? 0 });

@@ -9,6 +9,7 @@ import { builtNote, chooseSpan, isPoissonCount, discretisedCompound, methodNote,
 import { withCumulantErrors } from "./cumulant-bounds";
 import { compoundE } from "./cumulant-ops";
 import { compoundDampedMajorant } from "./damped-majorant";
+import { realCgf } from "./count-pgf";
 import { endpointKernelsRemainder } from "./compound-remainder";
 
 const collectNotes = (cs: Node[]) => [...new Set(cs.flatMap((c) => c.notes))];
@@ -288,19 +289,7 @@ function kernelsFor(N: Node, X: Node): { series: TransformSeries; kernels: Gamma
     const kernels: GammaKernel[] = [];
     for (let n = 1; n <= nGamma; n++) if (pn[n] > 0) kernels.push({ at: n * sev.at, shape: n * e0, rate: sev.rate, w: pn[n] });
     // claims from 0 with one gamma term (the expansion of the gamma family itself): the kernels are the n-claim laws
-    const cg = N.countCgf;
-    // one-element buffers kept with the closure (it is called once per probe frequency)
-    const wr = new Float64Array(1);
-    const wi = new Float64Array(1);
-    const or = new Float64Array(1);
-    const oi = new Float64Array(1);
-    const cgf = cg
-      ? (w: number) => {
-          wr[0] = w;
-          cg(wr, wi, or, oi);
-          return or[0];
-        }
-      : undefined;
+    const cgf = N.countCgf ? realCgf(N.countCgf) : undefined;
     const exact = sev.at === 0 && sev.exps.length > 0 && X.kind.type === "continuous" ? { pn: pn.slice(0, nGamma + 1), shape: e0, rate: sev.rate, ...(cgf ? { cgf } : {}) } : undefined;
     return { series, kernels, rate, ...(exact ? { exact } : {}) };
   }

@@ -1,6 +1,7 @@
 import type { Node } from "./node";
 import type { DampedLogCf } from "./damped-cf";
 import { lognormalDampedBounds } from "./lognormal-majorant";
+import { pgfBounds } from "./count-pgf";
 
 const EPS = Number.EPSILON;
 
@@ -98,25 +99,8 @@ export function compoundDampedMajorant(node: Node, X: Node, count: CountForMajor
   if (!cf || !count || !xm || xm.cf !== X.dampedLogCf || xm.atom !== 0 || X.support[0] !== 0 || node.support[0] !== 0) return undefined;
   const p0 = atomAtLo(node);
   if (p0 === null || !(count.mean >= 0) || !Number.isFinite(count.mean)) return undefined;
-  const one = new Float64Array(1);
-  const zero = new Float64Array(1);
-  const outR = new Float64Array(1);
-  const outI = new Float64Array(1);
-  // P_N(s) for s in [0, 1], raised by its stated errors (as ./invert/damped-psi.ts derivedFloor takes it)
-  const pgf = (s: number) => {
-    if (!(s > 0)) return p0 + count.absError;
-    if (s >= 1) return 1;
-    one[0] = Math.log(s);
-    count.cgf(one, zero, outR, outI);
-    return Math.exp(outR[0]) * (1 + count.relError + 64 * EPS * (1 + Math.abs(outR[0]))) + count.absError;
-  };
-  const pgfLower = (s: number) => {
-    if (!(s > 0)) return Math.max(0, p0 - count.absError);
-    if (s >= 1) return 1 - count.absError;
-    one[0] = Math.log(s);
-    count.cgf(one, zero, outR, outI);
-    return Math.max(0, Math.exp(outR[0]) * (1 - count.relError - 64 * EPS * (1 + Math.abs(outR[0]))) - count.absError);
-  };
+  // P_N(s) for s in [0, 1], raised (lowered) by its stated errors (../count-pgf.ts)
+  const { upper: pgf, lower: pgfLower } = pgfBounds(count, { upper: p0 + count.absError, lower: Math.max(0, p0 - count.absError) });
   const p0lo = p0 * (1 - 64 * EPS) - count.absError;
   const rest = (beta: number, t: number) => {
     const m = Math.min(1, xm.rest(beta, t));

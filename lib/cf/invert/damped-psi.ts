@@ -1,4 +1,5 @@
 // The damped transform psi_c of a law's continuous part less what is taken out in closed form, and its probes (kept per model).
+import { pgfBounds } from "../count-pgf";
 import type { Atom, CompiledModel } from "../types";
 import type { SeverityKernel } from "../severity-kernel";
 import { kernelsMass } from "../damped-kernels";
@@ -402,17 +403,7 @@ function derivedFloor(count: NonNullable<SeverityKernel["count"]>, pb: PhiBounds
   const slope = new Float64Array(n);
   // P_N at real s in [0, 1] from the count's cumulant function at log s, within its stated errors (a steep count, Poisson(1000):
   // P_N(0.98) = e^-20, where its table's series bound is still of the order E N)
-  const one = new Float64Array(1);
-  const zero = new Float64Array(1);
-  const outR = new Float64Array(1);
-  const outI = new Float64Array(1);
-  const pgf = (x: number) => {
-    if (!(x > 0)) return count.absError;
-    if (x >= 1) return 1;
-    one[0] = Math.log(x);
-    count.cgf(one, zero, outR, outI);
-    return Math.exp(outR[0]) * (1 + count.relError + 64 * EPS * (1 + Math.abs(outR[0]))) + count.absError;
-  };
+  const pgf = pgfBounds(count, { upper: count.absError, lower: 0 }).upper;
   for (let i = 0; i < n; i++) {
     const m = pb.m[i];
     const P = pgf(m);
