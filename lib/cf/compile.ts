@@ -299,6 +299,7 @@ export function toCompiled(node: Node): CompiledModel {
     if (node.dampedKernels && node.dampedKernels.cf === damped && node.dampedRemainder && node.dampedRemainder.cf === damped) {
       compiled.dampedRemainderBound = node.dampedRemainder.bound;
       compiled.dampedRemainderDecay = node.dampedRemainder.decay;
+      if (node.dampedRemainder.jump) compiled.dampedRemainderJump = node.dampedRemainder.jump;
     }
     if (node.dampedSeverity && node.dampedSeverity.cf === damped) compiled.dampedSeverity = node.dampedSeverity.kernel;
     if (node.dampedMajorant && node.dampedMajorant.cf === damped) compiled.dampedMajorant = node.dampedMajorant;

@@ -1,7 +1,7 @@
 import type { Node, NodeKind } from "./node";
 import { commonStep } from "./lattice";
 import { compoundTable, pgfAt } from "./compound-table";
-import type { LatticeTable } from "./types";
+import type { LatticeTable, RemainderJump } from "./types";
 import { compoundDamped } from "./damped-cf";
 import { GAMMA_ORDER, KERNEL_ORDER, compoundSeries, kernelsOfSeries, type GammaKernel, type TransformSeries } from "./damped-kernels";
 import { layerCompoundAtoms, layerCompoundJumps, type LayerCompoundAtoms } from "./layer-compound";
@@ -127,7 +127,10 @@ export function compoundNode(N: Node, X: Node, discretise: DiscretiseOptions | n
       node.transformSeries = k.series;
       if (k.kernels.length > 0) node.dampedKernels = { cf: node.dampedLogCf, kernels: k.kernels, rate: k.rate };
       // its decay: the bound's slowest term falls like |phi| ~ t^-shape (the rounding allowance slack M)
-      if (k.kernels.length > 0 && k.exact) node.dampedRemainder = { cf: node.dampedLogCf, bound: gammaRemainderBound(k.exact), decay: k.exact.shape };
+      if (k.kernels.length > 0 && k.exact) {
+        const jump = gammaRemainderJump(k.exact);
+        node.dampedRemainder = { cf: node.dampedLogCf, bound: gammaRemainderBound(k.exact), decay: k.exact.shape, ...(jump ? { jump } : {}) };
+      }
       // pareto, weibull, lomax and Burr claims: the kernels match the severity's expansion, whose Watson remainder the family bounds
       // (the expansion object itself: a moved law carries a new one, and no bound)
       const er = X.endpointRemainder;
@@ -264,6 +267,33 @@ function gammaRemainderBound(k: ExactKernels): (beta: number, t: number) => numb
       if (P < rest) rest = P;
     }
     return (rest + slack * M) * (1 + 4 * Number.EPSILON);
+  };
+}
+
+/**
+ * Exponential claims (shape 1): gammaRemainderBound's rounding part 16 (J + 1) u M falls only like 1 / t, so the density's
+ * truncation past the last probe is not bounded by integrating it. That part is G = sum_{n <= J} (p_n - p~_n) phi^n, the
+ * damped transform of g(y) = e^{-beta y} sum_n (p_n - p~_n) gamma(n, r)(y); each e^{-beta y} gamma(n, r)(y) is unimodal from
+ * 0 (a jump of r at 0 for n = 1) with its peak at most r (the gamma(n) mode's density r m^m e^-m / m! <= r, Stirling), so
+ * g's total variation is at most 2 r sum_n |p_n - p~_n| <= 2 r 16 (J + 1) u. The rest, F = sum_{n > J} p_n phi^n, is at
+ * most P(N > J) M^{J + 1}: it falls like t^-(J + 1). Other shapes: none (below 1 the n-claim laws' densities are unbounded
+ * at 0, above 1 the whole bound falls faster than 1 / t).
+ */
+function gammaRemainderJump(k: ExactKernels): RemainderJump | null {
+  const J = k.pn.length - 1;
+  if (k.shape !== 1 || J < 1) return null;
+  let head = 0;
+  for (let n = 0; n <= J; n++) head += k.pn[n];
+  const tail = Math.min(1, Math.max(0, 1 - head) + (J + 4) * Number.EPSILON * Math.max(1, head));
+  const slack = 16 * (J + 1) * Number.EPSILON;
+  return {
+    fast: (beta, t) => {
+      const rb = k.rate + beta;
+      const M = Math.min(1, (k.rate / Math.sqrt(rb * rb + t * t)) * (1 + 8 * Number.EPSILON));
+      return tail * Math.pow(M, J + 1) * (1 + 4 * Number.EPSILON);
+    },
+    decay: J + 1,
+    tv: () => 2 * k.rate * slack * (1 + 4 * Number.EPSILON),
   };
 }
 

@@ -49,8 +49,12 @@ export function carryScaleKernels(node: Node, a: number, c: Node) {
   // the remainder after the kernels is the child's at (a beta, a t): its derived bound, non-increasing in t, is taken at
   // a t (1 - eps), below the rounded argument the values are computed at (a gamma compound's, ./compound.ts)
   const r = c.dampedRemainder;
-  if (r && r.cf === c.dampedLogCf && node.dampedLogCf && node.dampedKernels)
-    node.dampedRemainder = { cf: node.dampedLogCf, bound: (beta, t) => r.bound(a * beta, a * t * (1 - Number.EPSILON)), decay: r.decay };
+  if (r && r.cf === c.dampedLogCf && node.dampedLogCf && node.dampedKernels) {
+    const j = r.jump;
+    // the slow rest's function is the child's at y / a, over a (its damping a beta): its total variation over a
+    const jump = j && { fast: (beta: number, t: number) => j.fast(a * beta, a * t * (1 - Number.EPSILON)), decay: j.decay, tv: (beta: number) => (j.tv(a * beta) / a) * (1 + 4 * Number.EPSILON) };
+    node.dampedRemainder = { cf: node.dampedLogCf, bound: (beta, t) => r.bound(a * beta, a * t * (1 - Number.EPSILON)), decay: r.decay, ...(jump ? { jump } : {}) };
+  }
   // a compound's first claims carried through the scale (a lognormal compound's, ./severity-kernel-scale.ts)
   const sev = c.dampedSeverity;
   const sk = sev && sev.cf === c.dampedLogCf && node.dampedLogCf ? scaledSeverityKernel(sev.kernel, a) : null;

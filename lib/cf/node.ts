@@ -91,7 +91,7 @@ export interface Node {
    *  common rate; 1 / sd for a compound of gamma claims, whose kernels are its n-claim laws at the gamma's own rate) */
   dampedKernels?: { cf: DampedLogCf; kernels: GammaKernel[]; rate: number };
   /** a derived bound on the damped transform's remainder after the atoms and kernels (CompiledModel.dampedRemainderBound) */
-  dampedRemainder?: { cf: DampedLogCf; bound(beta: number, t: number): number; decay: number };
+  dampedRemainder?: { cf: DampedLogCf; bound(beta: number, t: number): number; decay: number; jump?: import("./types").RemainderJump };
   /** derived bounds on the damped transform past the law's lower end (./damped-majorant.ts), valid only with the dampedLogCf named there */
   dampedMajorant?: import("./damped-majorant").DampedMajorant;
   /** the whole transform's expansion at its lower endpoint(s), where known (sums and mixtures build kernels from it) */

@@ -74,6 +74,13 @@ export interface CompiledModel {
   /** a power q > 0 with dampedRemainderBound(beta, t) <= R (t_0 / t)^q past any t_0 large against the kernels' rates (the tail past the probes) */
   dampedRemainderDecay?: number;
   /**
+   * where dampedRemainderDecay is 1 or less: psi_c = F + G with |F(t)| <= fast(beta, t), falling like t^-decay (decay > 1)
+   * past any t_0 large against the kernels' rates, and G the damped transform of a function of total variation at most
+   * tv(beta) (the kernels' weights' rounding: a few ulps of each n-claim law of exponential claims), whose truncated
+   * inversion is within a fixed multiple of tv at every point and cut-off (see ./invert/damped-psi.ts)
+   */
+  dampedRemainderJump?: RemainderJump;
+  /**
    * derived bounds on the damped transform past the support's lower end lo (atom: P(X = lo)): a sum of compounds and
    * gamma terms without kernels bounds its remainder psi_c from them (../cf/damped-majorant.ts)
    */
@@ -175,3 +182,10 @@ export interface TailTerm {
 
 /** compile(model) in ./compile.ts has this signature; throws CfError. */
 export type CompileFn = (model: Model) => CompiledModel;
+
+/** CompiledModel.dampedRemainderJump: the remainder's part falling fast, and the total variation of the slow rest */
+export interface RemainderJump {
+  fast(beta: number, t: number): number;
+  decay: number;
+  tv(beta: number): number;
+}

@@ -1,6 +1,6 @@
 // The damped transform psi_c of a law's continuous part less what is taken out in closed form, and its probes (kept per model).
 import { pgfBounds } from "../count-pgf";
-import type { Atom, CompiledModel } from "../types";
+import type { Atom, CompiledModel, RemainderJump } from "../types";
 import type { SeverityKernel } from "../severity-kernel";
 import { kernelsMass } from "../damped-kernels";
 import { kernelsRounding, subtractKernels } from "../damped-kernels-sum";
@@ -256,7 +256,8 @@ function probeAt(model: CompiledModel, atoms: Atom[], beta: number, pairOut: boo
     const q = model.dampedRemainderDecay ?? 0;
     const tn = tp[n - 1];
     const R = size[n - 1] * 1.001;
-    const tail = q > 0 && Math.max(model.scale, 1e-300) * tn > 1e10 ? { cdf: R / q, pdf: q > 1 ? (R * tn) / (q - 1) : Infinity } : { cdf: Infinity, pdf: Infinity };
+    const far = q > 0 && Math.max(model.scale, 1e-300) * tn > 1e10;
+    const tail = far ? { cdf: R / q, pdf: q > 1 ? (R * tn) / (q - 1) : jumpTail(model.dampedRemainderJump, beta, tn) } : { cdf: Infinity, pdf: Infinity };
     return envelopeFrom(tp, pr, pi, nz, null, { size, slope: new Float64Array(n).fill(Infinity), tail });
   }
   // a sum of compounds and gamma terms: psi_c is the transform past lo less the atom there and the kernels, bounded through
@@ -298,6 +299,22 @@ function probeAt(model: CompiledModel, atoms: Atom[], beta: number, pairOut: boo
     if (tail) return { ...envelopeFrom(tp, pr, pi, nz, null, { size, slope, tail }), throughOperators: true };
   }
   return envelopeFrom(tp, pr, pi, nz, null);
+}
+
+/**
+ * The density-type tail past t_n of a remainder whose bound falls like 1 / t (exponential claims' kernel weights' rounding):
+ * psi_c = F + G (CompiledModel.dampedRemainderJump). F's part is int_{t_n} of fast(t_n) (t_n / t)^d = fast(t_n) t_n / (d - 1).
+ * G's part is what the inversion of G misses past t_n, g - (g's inversion cut at t_n): for a function of bounded variation
+ * V, g = int H(y - u) dg(u) with H the unit step, whose inversion cut at T is 1/2 + Si(T y) / pi, within 1/2 of H at every
+ * y (common practice: the Gibbs phenomenon; Si(pi) / pi - 1/2 = 0.089), so at most V / 2 at every point; as a Fourier series
+ * the same holds of the periodised g, the sawtooth's partial sums in [0, Si(pi)], whose variation is at most V / (1 -
+ * e^{-beta T}) <= 2 V (beta T >= 2 in every plan, ./damped-transform.ts). The envelope's tails are divided by pi, so this
+ * part enters as pi V.
+ */
+function jumpTail(j: RemainderJump | undefined, beta: number, tn: number): number {
+  if (!j || !(j.decay > 1)) return Infinity;
+  const F = j.fast(beta, tn) * 1.001;
+  return ((F * tn) / (j.decay - 1) + Math.PI * j.tv(beta)) * (1 + 8 * EPS);
 }
 
 function envelopeFrom(tp: Float64Array, pr: Float64Array, pi: Float64Array, nz: Float64Array, phi: Float64Array | null, bounds: DerivedBounds | null = null, phiBound: PhiBounds | null = null): Probed {
