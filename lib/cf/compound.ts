@@ -137,7 +137,7 @@ export function compoundNode(N: Node, X: Node, discretise: DiscretiseOptions | n
       const rb = k.kernels.length > 0 && !k.exact && er && er.series === X.laplaceExpansion ? endpointKernelsRemainder(N, er, k.kernels) : null;
       // every piece of that bound is a power sigma^-e with e at least the expansion's first exponent (the kernels' weights'
       // rounding leaves such a term of the kernels' own order)
-      if (rb) node.dampedRemainder = { cf: node.dampedLogCf, bound: rb, decay: er!.series.exps[0] };
+      if (rb) node.dampedRemainder = { cf: node.dampedLogCf, bound: rb.bound, decay: er!.series.exps[0], ...(er!.series.exps[0] === 1 ? { jump: rb.jump } : {}) };
     }
   }
   if (node.dampedLogCf && !node.dampedKernels && X.severityKernel && X.kind.type === "continuous" && X.support[0] === 0 && node.support[0] === 0 && N.table) {

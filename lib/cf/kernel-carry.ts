@@ -52,7 +52,13 @@ export function carryScaleKernels(node: Node, a: number, c: Node) {
   if (r && r.cf === c.dampedLogCf && node.dampedLogCf && node.dampedKernels) {
     const j = r.jump;
     // the slow rest's function is the child's at y / a, over a (its damping a beta): its total variation over a
-    const jump = j && { fast: (beta: number, t: number) => j.fast(a * beta, a * t * (1 - Number.EPSILON)), decay: j.decay, tv: (beta: number) => (j.tv(a * beta) / a) * (1 + 4 * Number.EPSILON) };
+    const jump = j && {
+      fast: (beta: number, t: number) => j.fast(a * beta, a * t * (1 - Number.EPSILON)),
+      get decay() {
+        return j.decay;
+      },
+      tv: (beta: number) => (j.tv(a * beta) / a) * (1 + 4 * Number.EPSILON),
+    };
     node.dampedRemainder = { cf: node.dampedLogCf, bound: (beta, t) => r.bound(a * beta, a * t * (1 - Number.EPSILON)), decay: r.decay, ...(jump ? { jump } : {}) };
   }
   // a compound's first claims carried through the scale (a lognormal compound's, ./severity-kernel-scale.ts)
