@@ -205,6 +205,17 @@ function compoundHeavy(file: string, set: string) {
   }
 }
 
+/** endpoint-density.json: densities of pareto and lomax compounds (de Hoog and Talbot per n-claim term) */
+function endpointDensity() {
+  const set = "compound/endpoint-density";
+  const f = read<{ cases: { model: Model; points: { x: number; pdf: number; methodsDifference: number }[] }[] }>("compound/endpoint-density.json");
+  for (const k of f.cases) {
+    const c = compiled(set, k.model);
+    if (!c) continue;
+    points(set, k.model, c, k.points.map((p) => ({ x: p.x, pdf: p.pdf })), (_, i) => k.points[i].methodsDifference);
+  }
+}
+
 /** sums.json (mpmath convolution, densities to 24 digits) and cf-sums.json (sums led by a stable term, mpmath Fourier
  * inversion: its densities come from one quadrature, so only its quantiles and ES, each checked by a second one) */
 function sums(path: string, set: string, withPoints: boolean) {
@@ -358,6 +369,7 @@ export const SETS: [string, () => void][] = [
   ["cf-reference/vg-nig-tails", vgNigTails],
   ["compound/compound", compoundContinuous],
   ["compound/heavy", () => compoundHeavy("compound/heavy.json", "compound/heavy")],
+  ["compound/endpoint-density", endpointDensity],
   ["compound/heavy-sums", () => compoundHeavy("compound/heavy-sums.json", "compound/heavy-sums")],
   ["sums", () => sums("sums/sums.json", "sums", true)],
   ["cf-sums", () => sums("sums/cf-sums.json", "cf-sums", false)],
