@@ -24,14 +24,31 @@ const EPS = Number.EPSILON;
  * Past a frequency t0 each also gives a power: rest(t) <= R (t0 / t)^q for t >= t0 (gamma: |rho + beta - i t| >= t, so
  * R = (rho / t0)^k, q = k; lognormal: the order least at t0; a compound: (1 - p_0) times its claims'; a sum: each product
  * above with the continuous factors' powers added, the atoms' factors held at their values at t0).
+ * Where that power is 1 (exponential claims or terms), the density's truncation past t0 is not bounded by integrating it;
+ * `split` then writes the transform as F + G, |F| <= R (t0 / t)^q with q > 1 and G the damped transform of a function of
+ * total variation at most tv (whose truncated inversion is within tv everywhere: ./invert/damped-psi.ts jumpTail):
+ *  - exponential(rho) (gamma of shape 1): G is the whole transform, rho e^{-(rho + beta) y}: a jump of rho, then falling
+ *    (tv = 2 rho), F = 0;
+ *  - a compound: P_N(phi) - p_0 = p_1 G_X + (p_1 F_X + sum_{n >= 2} p_n phi^n), so tv = p_1 tv_X and |F| <= p_1 R_FX
+ *    (t0/t)^q_FX + (1 - p_0) m^2, m = R_X (t0/t)^q_X; p_1 <= (P_N(m') - p_0) / m' at m' = 2^-10 (every p_n >= 0);
+ *  - a sum: the terms of the telescoped product linear in one G_i with every other factor at its atom,
+ *    (prod_{j != i} a_j) G_i, make G (tv = sum of those weights times tv_i); the rest are (prod_{j != i} a_j) F_i and
+ *    products of two rests at least (their powers added);
+ *  - a X: tv / a (the function at y / a, over a), the child's at (a beta, a t); X + b: unchanged.
  */
 export interface DampedMajorant {
   cf: DampedLogCf;
   atom: number;
   rest(beta: number, t: number): number;
   slope(beta: number, t: number): number;
-  /** rest(beta, t) <= R (t0 / t)^q for every t >= t0 (the tail past the last probe frequency) */
-  decay(beta: number, t0: number): { R: number; q: number };
+  /** rest(beta, t) <= R (t0 / t)^q for every t >= t0 (the tail past the last probe frequency); split: see above */
+  decay(beta: number, t0: number): MajorantDecay;
+}
+
+export interface MajorantDecay {
+  R: number;
+  q: number;
+  split?: { R: number; q: number; tv: number };
 }
 
 const up = (v: number, k = 8) => v * (1 + k * EPS);
@@ -52,7 +69,7 @@ export function familyDampedMajorant(family: string, p: Record<string, number>, 
       cf,
       atom: 0,
       rest: (beta, t) => size(beta, t).v,
-      decay: (_beta, t0) => ({ R: up(Math.pow(rho / t0, k), 16), q: k }),
+      decay: (_beta, t0) => ({ R: up(Math.pow(rho / t0, k), 16), q: k, ...(k === 1 ? { split: { R: 0, q: Infinity, tv: up(2 * rho) } } : {}) }),
       slope: (beta, t) => {
         const s = size(beta, t);
         return up((k * s.v) / s.r, 8);
@@ -102,6 +119,8 @@ export function compoundDampedMajorant(node: Node, X: Node, count: CountForMajor
   // P_N(s) for s in [0, 1], raised (lowered) by its stated errors (../count-pgf.ts)
   const { upper: pgf, lower: pgfLower } = pgfBounds(count, { upper: p0 + count.absError, lower: Math.max(0, p0 - count.absError) });
   const p0lo = p0 * (1 - 64 * EPS) - count.absError;
+  // p_1 <= (P_N(m) - p_0) / m (P_N(m) - p_0 = sum_{n >= 1} p_n m^n), at m = 2^-10 (exact in binary)
+  const p1up = Math.min(1, Math.max(0, up(pgf(1 / 1024) - p0lo)) * 1024);
   const rest = (beta: number, t: number) => {
     const m = Math.min(1, xm.rest(beta, t));
     return Math.min(up((1 - p0lo) * m), Math.max(0, up(pgf(m) - p0lo)));
@@ -112,7 +131,12 @@ export function compoundDampedMajorant(node: Node, X: Node, count: CountForMajor
     rest,
     decay: (beta, t0) => {
       const d = xm.decay(beta, t0);
-      return { R: up((1 - p0lo) * d.R), q: d.q };
+      const whole = { R: up((1 - p0lo) * d.R), q: d.q };
+      if (!(d.q <= 1)) return whole;
+      const f = d.split ?? { R: d.R, q: d.q, tv: 0 };
+      const a = up(p1up * f.R);
+      const b = up((1 - p0lo) * d.R * d.R);
+      return { ...whole, split: { R: up(a + b), q: Math.min(f.q, 2 * d.q), tv: up(p1up * f.tv) } };
     },
     slope: (beta, t) => {
       const m = Math.min(1, xm.rest(beta, t));
@@ -179,7 +203,44 @@ export function sumDampedMajorant(node: Node, cs: Node[]): DampedMajorant | unde
           q = Math.min(q, Q);
         }
       }
-      return { R: R * g, q: Number.isFinite(q) ? q : 0 };
+      const whole = { R: R * g, q: Number.isFinite(q) ? q : 0 };
+      if (!(whole.q <= 1)) return whole;
+      // the split: (prod_{j != i} a_j) F_i and tv_i, plus every product with two rests or more, i.e. term i's factor
+      // prod_{j > i} (a_j + psi_j) less prod_{j > i} a_j, whose telescoped terms k > i hold r_k and the factors past k
+      let sR = 0;
+      let sq = Infinity;
+      let tv = 0;
+      for (let i = 0; i < n; i++) {
+        let others = 1;
+        for (let j = 0; j < n; j++) if (j !== i) others *= ms[j].atom;
+        const f = ds[i].split ?? { R: ds[i].R, q: ds[i].q, tv: 0 };
+        if (others > 0) {
+          if (f.R > 0) {
+            sR += others * f.R;
+            sq = Math.min(sq, f.q);
+          }
+          tv += others * f.tv;
+        }
+        let before = 1;
+        for (let j = 0; j < i; j++) before *= ms[j].atom;
+        for (let k = i + 1; k < n; k++) {
+          let c = before * ds[i].R * ds[k].R;
+          let Q = ds[i].q + ds[k].q;
+          for (let j = i + 1; j < k; j++) c *= ms[j].atom;
+          for (let j = k + 1; j < n; j++) {
+            if (ms[j].atom > 0) c *= ms[j].atom + r[j];
+            else {
+              c *= ds[j].R;
+              Q += ds[j].q;
+            }
+          }
+          if (c > 0) {
+            sR += c;
+            sq = Math.min(sq, Q);
+          }
+        }
+      }
+      return { ...whole, split: { R: sR * g, q: sq, tv: tv * g } };
     },
     slope(beta, t) {
       eval_(beta, t, true);
@@ -204,7 +265,10 @@ export function scaleDampedMajorant(node: Node, a: number, c: Node): DampedMajor
     atom: m.atom,
     rest: (beta, t) => m.rest(a * beta, down(t)),
     slope: (beta, t) => up(a * m.slope(a * beta, down(t)), 4),
-    decay: (beta, t0) => m.decay(a * beta, down(t0)),
+    decay: (beta, t0) => {
+      const d = m.decay(a * beta, down(t0));
+      return d.split ? { ...d, split: { ...d.split, tv: up(d.split.tv / a, 4) } } : d;
+    },
   };
 }
 

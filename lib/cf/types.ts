@@ -84,7 +84,7 @@ export interface CompiledModel {
    * derived bounds on the damped transform past the support's lower end lo (atom: P(X = lo)): a sum of compounds and
    * gamma terms without kernels bounds its remainder psi_c from them (../cf/damped-majorant.ts)
    */
-  dampedMajorant?: { atom: number; rest(beta: number, t: number): number; slope(beta: number, t: number): number; decay(beta: number, t0: number): { R: number; q: number } };
+  dampedMajorant?: { atom: number; rest(beta: number, t: number): number; slope(beta: number, t: number): number; decay(beta: number, t0: number): import("./damped-majorant").MajorantDecay };
   /** the one-claim term of a compound (P(N = 1) times a closed-form severity law) the damped inversion takes out of
    *  the transform and adds back in closed form */
   dampedSeverity?: import("./severity-kernel").SeverityKernel;

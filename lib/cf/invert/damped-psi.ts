@@ -278,8 +278,19 @@ function probeAt(model: CompiledModel, atoms: Atom[], beta: number, pairOut: boo
       size[i] = dm.rest(beta, tp[i]) + off;
       slope[i] = dm.slope(beta, tp[i]);
     }
+    // where the power is 1 (exponential claims or terms), the split's fast part and total variation (see jumpTail), each
+    // kernel of shape 1 adding its own: w r e^{-(r + beta) y} past its point, a jump and a fall (2 |w| r)
+    const sp = d.split ? { ...d.split } : null;
     for (const k of ks) {
       const w = Math.abs(k.w) * Math.exp(-beta * (k.at - lo)) * (1 + 8 * EPS);
+      if (sp) {
+        const v = w * Math.pow(k.rate / tn, k.shape) * (1 + 16 * EPS);
+        if (k.shape > 1) {
+          sp.R += v;
+          sp.q = Math.min(sp.q, k.shape);
+        } else if (k.shape === 1) sp.tv += 2 * w * k.rate * (1 + 4 * EPS);
+        else sp.tv = Infinity;
+      }
       for (let i = 0; i < n; i++) {
         const r = Math.hypot(k.rate + beta, tp[i]);
         const v = w * Math.pow(k.rate / r, k.shape) * (1 + 16 * EPS);
@@ -295,7 +306,8 @@ function probeAt(model: CompiledModel, atoms: Atom[], beta: number, pairOut: boo
     }
     // past the last probe: int R (t_n / t)^q / t = R / q (cdf) and int R (t_n / t)^q = R t_n / (q - 1) (density), the atom's
     // difference not decaying
-    const tail = off > 0 || !(q > 0) ? null : { cdf: (R / q) * (1 + 4 * EPS), pdf: q > 1 ? ((R * tn) / (q - 1)) * (1 + 4 * EPS) : Infinity };
+    const pdfSplit = sp ? jumpTail({ fast: () => sp.R / 1.001, decay: sp.q, tv: () => sp.tv }, beta, tn) : Infinity;
+    const tail = off > 0 || !(q > 0) ? null : { cdf: (R / q) * (1 + 4 * EPS), pdf: q > 1 ? ((R * tn) / (q - 1)) * (1 + 4 * EPS) : pdfSplit };
     if (tail) return { ...envelopeFrom(tp, pr, pi, nz, null, { size, slope, tail }), throughOperators: true };
   }
   return envelopeFrom(tp, pr, pi, nz, null);
