@@ -107,14 +107,17 @@ describe("derived aliasing bound of a single period vs mpmath references (cdf at
   });
 });
 
-// Points through the grid/point route (the heaviest term's CF subtracted, or for pareto + normal its images taken out of the
-// sums from its closed-form law): density and cdf at the reference quantiles within the answer's derived bounds, no note.
-// (The five-term sum led by a stable term keeps the estimate: its CF is not subtracted there, and its law is not in closed
-// form.)
+// Points through the grid/point route (the heaviest term's CF subtracted, or its images taken out of the sums from its
+// direct law: pareto + normal, and the five-term sum led by a stable term, whose CF is not subtracted there): density and
+// cdf at the reference quantiles within the answer's derived bounds, no note. With 400 more points spread over the
+// references' range, the images come from a few nodes with Taylor's bound (lib/cf/invert/image-blocks.ts), as for a grid.
 describe("density at points: derived bounds vs mpmath references", () => {
-  const names = ["weibull + student_t", "normal + student_t", "pareto + normal", "stable + gamma + normal", "stable + laplace"];
-  it.each(names.map((n) => [n, cases.find((c) => c.name === n)!] as const))("%s", (_n, c) => {
-    const xs = c.levels.map((l) => Number(l.x));
+  const names = ["weibull + student_t", "normal + student_t", "pareto + normal", "stable + gamma + normal", "stable + laplace", "stable + normal + uniform + laplace + normal"];
+  const check = (c: Case, fill: number) => {
+    const ref = c.levels.map((l) => Number(l.x));
+    const lo = Math.min(...ref);
+    const hi = Math.max(...ref);
+    const xs = [...ref, ...Array.from({ length: fill }, (_, i) => lo + ((hi - lo) * (i + 0.5)) / fill)];
     const d = density(compile(c.model as never), { x: xs });
     expect(d.diagnostics.notes, `${c.name}: notes`).not.toContain(RICHARDSON_ESTIMATE_NOTE);
     c.levels.forEach((l, i) => {
@@ -123,7 +126,9 @@ describe("density at points: derived bounds vs mpmath references", () => {
       expect(ec, `${c.name} x = ${l.x}: cdf ${d.cdf[i]} vs ${l.p}, diff ${ec}, bound ${d.diagnostics.error.cdf}`).toBeLessThanOrEqual(d.diagnostics.error.cdf);
       expect(ep, `${c.name} x = ${l.x}: pdf ${d.pdf![i]}, diff ${ep}, bound ${d.diagnostics.error.pdf}`).toBeLessThanOrEqual(d.diagnostics.error.pdf);
     });
-  });
+  };
+  it.each(names.map((n) => [n, cases.find((c) => c.name === n)!] as const))("%s", (_n, c) => check(c, 0));
+  it.each(["pareto + normal", "stable + normal + uniform + laplace + normal"].map((n) => [n, cases.find((c) => c.name === n)!] as const))("%s, with 400 more points", (_n, c) => check(c, 400));
 });
 
 // Two power-tailed terms and nothing else, one period alone, at points, against mpmath numerical convolution at 24 digits

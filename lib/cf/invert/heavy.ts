@@ -10,6 +10,7 @@ import { withTailLaw, type ContinuousPart } from "./part";
 import { sumPointwise } from "./pointwise";
 import { kernelAliasing } from "./kernel-images";
 import { imageLadder, imageScratch } from "./images";
+import { blockImages } from "./image-blocks";
 import { bestDerivedEntry, lastRowWeights, residualAliasing, residualLaw } from "./heavy-residual";
 import type { LawShape } from "./range";
 import { RICHARDSON_ESTIMATE_NOTE, richardsonAmplification, richardsonExponents, richardsonExponentsMulti, richardsonRowArrays } from "./richardson";
@@ -63,7 +64,9 @@ export function heavyPath(
   // come out of every level's sums from that law (./images.ts), as the quantiles' ladder does: what is left aliases like
   // the rest, with the remainder's exponents
   const Gi = part.model.tailTerm;
-  const imageG = !part.tail && !part.atoms.length && Gi && Gi.direct.method === "closed-form" && Gi.remainderAlpha > alpha0 + 0.05 ? Gi : null;
+  // (a law without a closed form, e.g. a stable one, where its images come from a few nodes: ./image-blocks.ts)
+  const imageG =
+    !part.tail && !part.atoms.length && Gi && (Gi.direct.method === "closed-form" || Gi.direct.powerTail) && Gi.remainderAlpha > alpha0 + 0.05 ? Gi : null;
   const alpha = imageG ? Math.max(imageG.remainderAlpha, alpha0) : alpha0;
   const bases = imageG ? imageG.indices : shape.tailBases;
   const expC = exponentsFor(bases, alpha, 0, MAX_LEVELS);
@@ -106,6 +109,8 @@ export function heavyPath(
     xLo = Math.min(xLo, pts[i]);
     xHi = Math.max(xHi, pts[i]);
   }
+  const imgC = new Float64Array(imageG ? n : 0);
+  const imgP = new Float64Array(imageG ? n : 0);
   const rawC: number[] = [];
   const rawP: number[] = [];
   let derived: { cdf: Float64Array; sf: Float64Array; pdf: Float64Array | null; errC: number; errP: number } | null = null;
@@ -138,7 +143,16 @@ export function heavyPath(
     let lP = 0;
     if (imageG) {
       const T = T0 * 2 ** lev;
-      for (let i = 0; i < n; i++) {
+      const blk = xLo < xHi ? blockImages(imageG.direct, pts, xLo, xHi, T, tol / 4096, imgScratch, imgC, imgP) : null;
+      if (blk) {
+        for (let i = 0; i < n; i++) {
+          cdf[i] -= imgC[i];
+          sf[i] += imgC[i];
+          if (pdf) pdf[i] -= imgP[i];
+        }
+        lC = blk.errCdf;
+        lP = blk.errPdf;
+      } else for (let i = 0; i < n; i++) {
         const im = imageLadder(imageG.direct, pts[i], T, 1, imgScratch)[0];
         cdf[i] -= im.cdf;
         sf[i] += im.cdf;
@@ -220,7 +234,7 @@ export function heavyPath(
     result!.pdf = bestPdf.pdf;
     result!.error.pdf = bestPdf.err;
   }
-  if (imageG) notes.push("the heaviest-tailed term's images are taken out of the sums from its closed-form law");
+  if (imageG) notes.push("the heaviest-tailed term's images are taken out of the sums from its direct law");
   notes.push(`power tails (index ${shape.alpha}): period doubled ${result!.levels - 1} times with Richardson extrapolation`);
   // the derived bound where it is at most the estimate or the tolerance (cdf, and pdf where asked): no note then
   if (derived && derived.errC <= Math.max(result!.error.cdf, tol) && (!opt.wantPdf || (derived.pdf && derived.errP <= Math.max(result!.error.pdf, tol)))) {
