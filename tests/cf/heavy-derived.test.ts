@@ -139,12 +139,13 @@ describe("density at points: derived bounds vs mpmath references", () => {
 // at the shortest period here), so the bound's teeth are checked at the period where the ratio is largest.
 describe("pair bound of a single period vs mpmath convolution (tests/fixtures/pair-sums)", () => {
   const pairs = (JSON.parse(readFileSync(new URL("../fixtures/pair-sums/pair-sums.json", import.meta.url), "utf8")) as {
-    cases: { name: string; model: unknown; points: { x: string; cdf: string; check: number }[] }[];
+    cases: { name: string; model: unknown; points: { x: string; cdf: string; check: number; pdf: string; pdf_check: number }[] }[];
   }).cases;
   it.each(pairs.map((c) => [c.name, c] as const))("%s", (_n, c) => {
     const model = compile(c.model as never);
     const scratch = { pdf: new Float64Array(1), cdf: new Float64Array(1), sf: new Float64Array(1), one: new Float64Array(1) };
     let worstShort = 0;
+    let worstPdf = 0;
     for (const T0 of [16, 32, 64, 128]) {
       const lad = heavyLadder(model, [], T0 * model.scale, 1, 1e-10);
       expect(c.name.startsWith("pareto") ? lad.pair : lad.resid, `${c.name}: the derived bound expected`).not.toBeNull();
@@ -153,8 +154,15 @@ describe("pair bound of a single period vs mpmath convolution (tests/fixtures/pa
         const err = Math.abs(v.cdf - Number(p.cdf));
         expect(err, `${c.name} T0 = ${T0} scales, x = ${p.x}: cdf ${v.cdf} vs ${p.cdf}, diff ${err}, derived bound ${v.derivedCdf}`).toBeLessThanOrEqual(v.derivedCdf + p.check);
         worstShort = Math.max(worstShort, err / v.derivedCdf);
+        // the density's bound where the cdf's is derived (a single level: the raw sums' own bound, pair's or one term's)
+        if (Number.isFinite(v.derivedCdf) && v.errCdf === v.derivedCdf) {
+          const ep = Math.abs(v.pdf - Number(p.pdf));
+          expect(ep, `${c.name} T0 = ${T0} scales, x = ${p.x}: pdf ${v.pdf} vs ${p.pdf}, diff ${ep}, bound ${v.errPdf}`).toBeLessThanOrEqual(v.errPdf + p.pdf_check);
+          worstPdf = Math.max(worstPdf, ep / v.errPdf);
+        }
       }
     }
     expect(worstShort, `${c.name}: largest actual error / bound`).toBeGreaterThan(1e-3);
+    expect(worstPdf, `${c.name}: largest actual pdf error / bound`).toBeGreaterThan(1e-4);
   });
 });

@@ -257,7 +257,7 @@ function residualBucket(lad: HeavyLadder, x: number, l: number): { cdf: number; 
   const ki = lad.part.kernels.length ? kernelAliasing(lad.part.kernels, a, b, T) : { cdf: 0, pdf: 0 };
   const v = lad.resid
     ? { cdf: residualAliasing(lad.resid, a, b, T, "cdf") + ki.cdf, pdf: residualAliasing(lad.resid, a, b, T, "pdf") + ki.pdf }
-    : { cdf: pairAliasing(lad.pair!, a, b, T, "cdf") + ki.cdf, pdf: Infinity };
+    : { cdf: pairAliasing(lad.pair!, a, b, T, "cdf") + ki.cdf, pdf: pairAliasing(lad.pair!, a, b, T, "pdf") + ki.pdf };
   if (cache.size > 8192) cache.clear();
   cache.set(key, v);
   return v;

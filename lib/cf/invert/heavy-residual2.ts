@@ -61,6 +61,9 @@ interface Heavy {
   pi: [Poly, Poly];
   f0: [Poly, Poly];
   f1: [Poly, Poly];
+  f2: [Poly, Poly];
+  /** sup of the density */
+  fmax: number;
   /** P(|H| > t), E[|H|; |H| > t], E[H^2; |H| <= t], E|H| */
   P: Poly;
   E1: Poly;
@@ -77,14 +80,14 @@ function heavyPart(tail: PowerTail, m: number, spread: number): Heavy | null {
   }
   t0 = t0 * (1 + 1e-12);
   const one = (d: 1 | -1, s: PowerSide) => {
-    if ("end" in s) return { sf: ZERO, pi: ZERO, f0: ZERO, f1: ZERO };
+    if ("end" in s) return { sf: ZERO, pi: ZERO, f0: ZERO, f1: ZERO, f2: ZERO };
     // z = t + d (m - origin) >= t (1 - |m - origin| / t0) = kappa t
     const kappa = 1 - Math.abs(m - s.origin) / t0;
     const fj = (j: number): Poly => ({ c: s.d[j].a.map((a, i) => a * Math.pow(kappa, -s.d[j].p[i]) * (1 + 8 * U * (s.d[j].p[i] + 2))), q: s.d[j].p.slice() });
     const f0 = fj(0);
     const sf: Poly = { c: f0.c.map((c, i) => (c / (f0.q[i] - 1)) * (1 + 4 * U)), q: f0.q.map((q) => q - 1) };
     const pi: Poly = { c: sf.c.map((c, i) => (sf.q[i] > 1 ? (c / (sf.q[i] - 1)) * (1 + 4 * U) : Infinity)), q: sf.q.map((q) => q - 1) };
-    return { sf, pi, f0, f1: fj(1) };
+    return { sf, pi, f0, f1: fj(1), f2: fj(2) };
   };
   // below t0 the tails are bounded by 1: t0 at least where the majorant's P(|H| > t) falls to 1 (steps of 1.25 from a
   // 64th of the law's spread), so that E|H| and E[H^2; ...] are not dominated by the majorant's blow-up at 0
@@ -121,7 +124,7 @@ function heavyPart(tail: PowerTail, m: number, spread: number): Heavy | null {
   let EA = t0;
   for (let i = 0; i < P.c.length; i++) EA += (P.c[i] * Math.pow(t0, 1 - P.q[i])) / (P.q[i] - 1);
   if (![E1, M2].every((p) => p.c.every((c) => Number.isFinite(c)))) return null;
-  return { t0, sf: [r.sf, l.sf], pi: [r.pi, l.pi], f0: [r.f0, l.f0], f1: [r.f1, l.f1], P, E1, M2, EA: EA * (1 + 4 * U) };
+  return { t0, sf: [r.sf, l.sf], pi: [r.pi, l.pi], f0: [r.f0, l.f0], f1: [r.f1, l.f1], f2: [r.f2, l.f2], fmax: tail.fmax, P, E1, M2, EA: EA * (1 + 4 * U) };
 }
 
 export interface PairLaw {
@@ -190,7 +193,7 @@ function zTails(L: PairLaw, best: number): { P: Poly; E1: Poly } {
   return { P: mono(mn, best), E1: mono(mn, best - 1) };
 }
 
-export type PairKind = "cdf" | "stopLoss";
+export type PairKind = "cdf" | "pdf" | "stopLoss";
 
 /** one side's per-image bound as a polynomial in u (d = 0 right, 1 left: the left tails of both parts), equal powers merged
  *  and kept per side, kind and Z's moment order */
@@ -228,6 +231,23 @@ function imageBoundAt(L: PairLaw, d: 0 | 1, kind: PairKind, n: number): Poly {
   const m2V = add(at(B.M2, 1 / 3), c(L.vZ));
   const m2W = add(at(A.M2, 1 / 6), c(L.vZ));
   const bad = add(PA, PZ);
+  if (kind === "pdf") {
+    // f_X(u) - f_A(u) - f_B(u) = [E f_A(u - V) 1{|B| <= r_b} - f_A(u) P(|B| <= r_b)] - f_A(u) P(|B| > r_b)
+    //   + [E f_B(u - W) 1{u - W > r_b} - f_B(u)] + E f_W(u - B) 1{B < -r_b}   (int_{|b| > r_b} f_B(b) f_W(u - b) db split
+    // at b = r_b and b = -r_b, W = A + Z): the cdf's pieces one derivative higher (Taylor with f'' on the good sets), the
+    // bad Z set at most 2 fmax_A P(|Z| > r_z) in the first, the bad set of the third at most (f_B(u/3) + f_B(u)) P(bad),
+    // and the last at most P(|B| > r_b) (f_A(u) + fmax_A P(|Z| > r_z)) (u - B - Z >= u on |Z| <= r_z there)
+    return add(
+      mul(A.f1[d], offV),
+      mul(m2V, at(A.f2[d], 1 / 2)),
+      mul(c(2 * A.fmax), PZ),
+      mul(A.f0[d], PB),
+      mul(B.f1[d], offW),
+      mul(m2W, at(B.f2[d], 2 / 3)),
+      mul(c(2), mul(at(B.f0[d], 1 / 3), bad)),
+      mul(PB, add(A.f0[d], mul(c(A.fmax), PZ))),
+    );
+  }
   if (kind === "cdf") {
     return add(
       mul(A.f0[d], offV),
