@@ -108,11 +108,12 @@ describe("derived aliasing bound of a single period vs mpmath references (cdf at
 });
 
 // Points through the grid/point route (the heaviest term's CF subtracted, or its images taken out of the sums from its
-// direct law: pareto + normal, and the five-term sum led by a stable term, whose CF is not subtracted there): density and
-// cdf at the reference quantiles within the answer's derived bounds, no note. With 400 more points spread over the
+// direct law: pareto + normal, and the five-term sum led by a stable term, whose CF is not subtracted there; for two stables
+// + uniform both stables' images, with the pair's cdf and pdf bounds, lib/cf/invert/heavy-residual2.ts): density and cdf
+// at the reference quantiles within the answer's derived bounds, no note. With 400 more points spread over the
 // references' range, the images come from a few nodes with Taylor's bound (lib/cf/invert/image-blocks.ts), as for a grid.
 describe("density at points: derived bounds vs mpmath references", () => {
-  const names = ["weibull + student_t", "normal + student_t", "pareto + normal", "stable + gamma + normal", "stable + laplace", "stable + normal + uniform + laplace + normal"];
+  const names = ["weibull + student_t", "normal + student_t", "pareto + normal", "stable + gamma + normal", "stable + laplace", "stable + normal + uniform + laplace + normal", "two stables + uniform"];
   const check = (c: Case, fill: number) => {
     const ref = c.levels.map((l) => Number(l.x));
     const lo = Math.min(...ref);
@@ -128,7 +129,7 @@ describe("density at points: derived bounds vs mpmath references", () => {
     });
   };
   it.each(names.map((n) => [n, cases.find((c) => c.name === n)!] as const))("%s", (_n, c) => check(c, 0));
-  it.each(["pareto + normal", "stable + normal + uniform + laplace + normal"].map((n) => [n, cases.find((c) => c.name === n)!] as const))("%s, with 400 more points", (_n, c) => check(c, 400));
+  it.each(["pareto + normal", "stable + normal + uniform + laplace + normal", "two stables + uniform"].map((n) => [n, cases.find((c) => c.name === n)!] as const))("%s, with 400 more points", (_n, c) => check(c, 400));
 });
 
 // Two power-tailed terms and nothing else, one period alone, at points, against mpmath numerical convolution at 24 digits

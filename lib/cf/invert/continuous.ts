@@ -6,7 +6,7 @@ import { sumPointwise } from "./pointwise";
 import { heavyWindow, lawShape, lightWindow, type LawShape } from "./range";
 import { gammaPdf } from "./incgamma";
 import type { ErrorEstimate } from "./types";
-import { heavyPath, maybeTailLaw } from "./heavy";
+import { heavyPath, imagePlan, maybeTailLaw, pairUsable } from "./heavy";
 import {
   MAX_FFT,
   addKernels,
@@ -127,7 +127,11 @@ export function invertContinuous(model: CompiledModel, atoms: Atom[], req: Reque
   let env = probeEnvelope(part, shape.spread);
   let alpha = shape.alpha;
   let bases: number[] | undefined;
-  if (shape.heavy && !opt.range) {
+  // two terms' images taken out with the pair's bound (./heavy.ts imagePlan) leave less than the heaviest term's CF
+  // subtracted, whose bound needs a variance of all the rest: the sums keep the whole CF then
+  const pairFirst =
+    shape.heavy && !opt.range && !atoms.length && Number.isFinite(xmin) && imagePlan(model.tailTerm, Math.max(shape.alpha, 0.1), pairUsable, xmin, xmax, 16 * (win.b - win.a))?.pair;
+  if (shape.heavy && !opt.range && !pairFirst) {
     ({ part, env, alpha, bases } = maybeTailLaw(part, env, shape, tol));
     if (part.tail) notes.push(`the heaviest-tailed term, shifted by the other terms' mean, is evaluated directly and only the rest is inverted (its tails have index ${alpha.toPrecision(3)})`);
   }

@@ -11,7 +11,9 @@ import { sumPointwise } from "./pointwise";
 import { kernelAliasing } from "./kernel-images";
 import { imageLadder, imageScratch } from "./images";
 import { blockImages } from "./image-blocks";
-import { bestDerivedEntry, lastRowWeights, residualAliasing, residualLaw } from "./heavy-residual";
+import { bestDerivedEntry, lastRowWeights, residualAliasing, residualLaw, type ResidualLaw } from "./heavy-residual";
+import { pairAliasing, pairLaw, type PairLaw } from "./heavy-residual2";
+import type { TailTerm } from "../types";
 import type { LawShape } from "./range";
 import { RICHARDSON_ESTIMATE_NOTE, richardsonAmplification, richardsonExponents, richardsonExponentsMulti, richardsonRowArrays } from "./richardson";
 import {
@@ -40,9 +42,9 @@ import { checkDeadline } from "../deadline";
  * (images at distance mT of tails ~ y^{-alpha}, expanded in 1/T), so the sums are repeated with T doubled and
  * combined by Richardson extrapolation with exponents {j alpha + i : j >= 1, i >= 0} in increasing order
  * (tails ~ sum_j c_j y^{-j alpha}, Bergstrom's series for stable laws; the images at x + mT expanded in x/T
- * add the integer steps), shifted by 1 for the density. Where the heaviest term's CF is taken out and the rest has a
- * variance, each level's aliasing has a derived bound (./heavy-residual.ts, with the endpoint kernels' images,
- * ./kernel-images.ts), and the entry of the table's last row with the least bound through its weights in the levels is
+ * add the integer steps), shifted by 1 for the density. Where the heaviest term's CF or images are taken out and the rest
+ * has a variance, or the two heaviest terms' images (imagePlan), each level's aliasing has a derived bound
+ * (./heavy-residual.ts, ./heavy-residual2.ts, with the endpoint kernels' images, ./kernel-images.ts), and the entry of the table's last row with the least bound through its weights in the levels is
  * answered when that bound is at most the estimate or the tolerance. Otherwise the error estimate is twice the last change
  * of the extrapolated value (an estimate, not derived: the answer says so, RICHARDSON_ESTIMATE_NOTE), plus the truncation
  * and rounding bounds times the extrapolation's amplification.
@@ -60,17 +62,10 @@ export function heavyPath(
 ): PartOutput {
   const n = nPoints(req);
   const alpha0 = Math.max(shape.alpha, 0.1);
-  // where the heaviest term's CF was not taken out (it would move the cut-off) but its law is in closed form, its images
-  // come out of every level's sums from that law (./images.ts), as the quantiles' ladder does: what is left aliases like
-  // the rest, with the remainder's exponents
-  const Gi = part.model.tailTerm;
-  // (a law without a closed form, e.g. a stable one, where its images come from a few nodes: ./image-blocks.ts)
-  const imageG =
-    !part.tail && !part.atoms.length && Gi && (Gi.direct.method === "closed-form" || Gi.direct.powerTail) && Gi.remainderAlpha > alpha0 + 0.05 ? Gi : null;
-  const alpha = imageG ? Math.max(imageG.remainderAlpha, alpha0) : alpha0;
-  const bases = imageG ? imageG.indices : shape.tailBases;
-  const expC = exponentsFor(bases, alpha, 0, MAX_LEVELS);
-  const expP = exponentsFor(bases, alpha, 1, MAX_LEVELS);
+  // where the heaviest term's CF was not taken out (it would move the cut-off) but its law is in closed form, or has
+  // power-law majorants (a stable or Student t law, its images then from a few nodes: ./image-blocks.ts), its images come
+  // out of every level's sums from that law (./images.ts), as the quantiles' ladder does, and the next heaviest term's too
+  // where that lightens what is left further (TailTerm.images): what is left aliases like the rest, with its exponents
   const imgScratch = imageScratch();
   let imC = 0;
   let imP = 0;
@@ -101,7 +96,7 @@ export function heavyPath(
   let pdfDone = false;
   // a derived bound on the aliasing left (./heavy-residual.ts) where the heaviest term's CF is taken out (and the endpoint
   // kernels' images, ./kernel-images.ts): each level's own bound, and the last row's entry with the least one
-  const resid = part.tail ? residualLaw(part.tail) : imageG ? residualLaw(imageG) : null;
+  // (two terms' images: the pair's bound, ./heavy-residual2.ts)
   const pts = requestPoints(req);
   let xLo = Infinity;
   let xHi = -Infinity;
@@ -109,8 +104,20 @@ export function heavyPath(
     xLo = Math.min(xLo, pts[i]);
     xHi = Math.max(xHi, pts[i]);
   }
-  const imgC = new Float64Array(imageG ? n : 0);
-  const imgP = new Float64Array(imageG ? n : 0);
+  // where the heaviest term's CF was not taken out (it would move the cut-off) but its law is in closed form, or has
+  // power-law majorants (a stable or Student t law, its images then from a few nodes: ./image-blocks.ts), its images come
+  // out of every level's sums from that law (./images.ts), as the quantiles' ladder does, and the next heaviest term's too
+  // where that leaves less (TailTerm.images): what is left aliases like the rest, with its exponents
+  const plan = part.tail || part.atoms.length ? null : imagePlan(part.model.tailTerm, alpha0, pairUsable, xLo <= xHi ? xLo : centerX, xLo <= xHi ? xHi : centerX, T0 * 16);
+  const laws = plan ? plan.laws.map((g) => g.direct) : [];
+  const alpha = plan ? Math.max(plan.remainderAlpha, alpha0) : alpha0;
+  const bases = plan ? plan.indices : shape.tailBases;
+  const expC = exponentsFor(bases, alpha, 0, MAX_LEVELS);
+  const expP = exponentsFor(bases, alpha, 1, MAX_LEVELS);
+  const resid = part.tail ? residualLaw(part.tail) : (plan?.resid ?? null);
+  const pair = plan?.pair ?? null;
+  const imgC = new Float64Array(laws.length ? n : 0);
+  const imgP = new Float64Array(laws.length ? n : 0);
   const rawC: number[] = [];
   const rawP: number[] = [];
   let derived: { cdf: Float64Array; sf: Float64Array; pdf: Float64Array | null; errC: number; errP: number } | null = null;
@@ -141,25 +148,33 @@ export function heavyPath(
     // the level's own image bounds (largest over the points) and their running maximum for the estimate's amplification
     let lC = 0;
     let lP = 0;
-    if (imageG) {
+    for (const law of laws) {
       const T = T0 * 2 ** lev;
-      const blk = xLo < xHi ? blockImages(imageG.direct, pts, xLo, xHi, T, tol / 4096, imgScratch, imgC, imgP) : null;
+      const blk = xLo < xHi ? blockImages(law, pts, xLo, xHi, T, tol / 4096, imgScratch, imgC, imgP) : null;
       if (blk) {
         for (let i = 0; i < n; i++) {
           cdf[i] -= imgC[i];
           sf[i] += imgC[i];
           if (pdf) pdf[i] -= imgP[i];
         }
-        lC = blk.errCdf;
-        lP = blk.errPdf;
-      } else for (let i = 0; i < n; i++) {
-        const im = imageLadder(imageG.direct, pts[i], T, 1, imgScratch)[0];
-        cdf[i] -= im.cdf;
-        sf[i] += im.cdf;
-        if (pdf) pdf[i] -= im.pdf;
-        lC = Math.max(lC, im.errCdf);
-        lP = Math.max(lP, im.errPdf);
+        lC += blk.errCdf;
+        lP += blk.errPdf;
+      } else {
+        let eC = 0;
+        let eP = 0;
+        for (let i = 0; i < n; i++) {
+          const im = imageLadder(law, pts[i], T, 1, imgScratch)[0];
+          cdf[i] -= im.cdf;
+          sf[i] += im.cdf;
+          if (pdf) pdf[i] -= im.pdf;
+          eC = Math.max(eC, im.errCdf);
+          eP = Math.max(eP, im.errPdf);
+        }
+        lC += eC;
+        lP += eP;
       }
+    }
+    if (laws.length) {
       imC = Math.max(imC, lC);
       imP = Math.max(imP, lP);
     }
@@ -206,11 +221,12 @@ export function heavyPath(
     prevBest = best;
     if (result.pdf && error.pdf < (bestPdf?.err ?? Infinity)) bestPdf = { pdf: result.pdf, err: error.pdf };
     const pdfErrBest = bestPdf?.err ?? Infinity;
-    if (resid && xLo <= xHi) {
+    if ((resid || pair) && xLo <= xHi) {
       const T = T0 * 2 ** lev;
+      const aliasing = (kind: "cdf" | "pdf") => (resid ? residualAliasing(resid, xLo, xHi, T, kind) : pairAliasing(pair!, xLo, xHi, T, kind));
       const ki = part.kernels.length ? kernelAliasing(part.kernels, xLo, xHi, T) : { cdf: 0, pdf: 0 };
-      rawC.push(residualAliasing(resid, xLo, xHi, T, "cdf") + ki.cdf + 2 * trunc.cdf + round.cdf + lC);
-      rawP.push(residualAliasing(resid, xLo, xHi, T, "pdf") + ki.pdf + 2 * trunc.pdf + round.pdf + lP);
+      rawC.push(aliasing("cdf") + ki.cdf + 2 * trunc.cdf + round.cdf + lC);
+      rawP.push(aliasing("pdf") + ki.pdf + 2 * trunc.pdf + round.pdf + lP);
       const dc = bestDerivedEntry(lastRowWeights(expC, lev + 1), rawC);
       // the density only while it is summed (pdfDone: its best level is kept, with its estimate)
       const dp = pdf ? bestDerivedEntry(lastRowWeights(expP, lev + 1), rawP) : { j: 0, err: Infinity };
@@ -219,7 +235,7 @@ export function heavyPath(
     // levels go on for the derived bound until it reaches the tolerance (at most the fifth level), from the third only
     // while it is within 64 times it (it falls by 2^(alpha + 2) >= 8 or so per level): each level doubles the nodes
     const dWorst = derived ? Math.max(derived.errC, opt.wantPdf ? derived.errP : 0) : Infinity;
-    const wantD = resid !== null && lev < 4 && dWorst > tol && (lev < 2 || dWorst <= 64 * tol);
+    const wantD = (resid !== null || pair !== null) && lev < 4 && dWorst > tol && (lev < 2 || dWorst <= 64 * tol);
     if (wantD) continue;
     if (lev >= 2 && error.cdf <= tol && (!opt.wantPdf || pdfErrBest <= tol)) break;
     // the sums' own bound (truncation and rounding, which another doubling keeps), amplified by one more extrapolation
@@ -234,7 +250,7 @@ export function heavyPath(
     result!.pdf = bestPdf.pdf;
     result!.error.pdf = bestPdf.err;
   }
-  if (imageG) notes.push("the heaviest-tailed term's images are taken out of the sums from its direct law");
+  if (laws.length) notes.push(laws.length === 1 ? "the heaviest-tailed term's images are taken out of the sums from its direct law" : "the two heaviest-tailed terms' images are taken out of the sums from their direct laws");
   notes.push(`power tails (index ${shape.alpha}): period doubled ${result!.levels - 1} times with Richardson extrapolation`);
   // the derived bound where it is at most the estimate or the tolerance (cdf, and pdf where asked): no note then
   if (derived && derived.errC <= Math.max(result!.error.cdf, tol) && (!opt.wantPdf || (derived.pdf && derived.errP <= Math.max(result!.error.pdf, tol)))) {
@@ -259,6 +275,37 @@ export function heavyPath(
   sumPointwise(lastNodes!, part.center, ends, null, c2, s2);
   result!.captured = Math.min(1, Math.max(0, s2[0] - s2[1]));
   return result!;
+}
+
+/** a law whose images the grid/point route takes out: in closed form, or with power-law majorants (./image-blocks.ts) */
+export const pairUsable = (d: DirectLaw): boolean => d.method === "closed-form" || d.powerTail !== undefined;
+
+/**
+ * Which terms' images come out of the sums from their direct laws (usable ones), with the law behind the derived bound on
+ * what they leave: the heaviest term's alone (./heavy-residual.ts), or with the next heaviest (TailTerm.images, the pair's
+ * bound ./heavy-residual2.ts) where that leaves lighter tails, or equally light ones with a smaller bound at the period
+ * Tref for the points [x0, x1] (the one-term bound's rest may hold a power-tailed term with only a second moment, whose
+ * Markov tail falls like T^-2 where the pair's majorants fall faster).
+ */
+export function imagePlan(
+  G: TailTerm | undefined,
+  alpha0: number,
+  usable: (d: DirectLaw) => boolean,
+  x0: number,
+  x1: number,
+  Tref: number,
+): { laws: ImageLaw[]; remainderAlpha: number; indices: number[]; resid: ResidualLaw | null; pair: PairLaw | null } | null {
+  if (!G) return null;
+  const one = usable(G.direct) && G.remainderAlpha > alpha0 + 0.05 ? { laws: [{ direct: G.direct, tails: G.tails }], remainderAlpha: G.remainderAlpha, indices: G.indices } : null;
+  const im = G.images;
+  const two = im && im.remainderAlpha >= G.remainderAlpha && im.remainderAlpha > alpha0 + 0.05 && im.laws.every((g) => usable(g.direct)) ? im : null;
+  if (!two) return one ? { ...one, resid: residualLaw(G), pair: null } : null;
+  const pair = two.laws.length === 2 ? pairLaw(G) : null;
+  if (!one || two.remainderAlpha > one.remainderAlpha) return { ...two, resid: null, pair };
+  const resid = residualLaw(G);
+  const bPair = pair ? pairAliasing(pair, x0, x1, Tref, "cdf") : Infinity;
+  const bOne = resid ? residualAliasing(resid, x0, x1, Tref, "cdf") : Infinity;
+  return bPair < bOne ? { ...two, resid: null, pair } : { ...one, resid, pair: null };
 }
 
 /** Richardson exponents from every power term the tails may hold when known, else from the smallest index alone. */
