@@ -148,11 +148,24 @@ function imageTerms(cs: Node[], best: number, shift: number, dm: number | null):
   // for a derived bound on what the two terms' images leave (invert/heavy-residual2.ts): X = G_1 + G_2 - m + Z with
   // m = E[X] as computed, Z = the other terms less (shift2 - dm), and a bound on the means' errors and roundings
   const eMean = (c: Node) => cumulantEst(c, 1)[0]?.e ?? Infinity;
+  // the other terms with power tails and density majorants apart (each about its mean as computed; any point serves)
+  const heavyZ = others.filter((c) => Number.isFinite(index(c)) && c.direct?.powerTail && c.kind.type === "continuous" && Number.isFinite(c.cumulants(1)[0] ?? NaN));
+  const lightZ = others.filter((c) => !heavyZ.includes(c));
+  const mZ = heavyZ.map((c) => c.cumulants(1)[0]!);
+  const split =
+    heavyZ.length && lightZ.every((c) => !Number.isFinite(index(c)))
+      ? {
+          heavy: heavyZ.map((c, i) => ({ tail: c.direct!.powerTail!, m: mZ[i], spread: c.direct!.spread })),
+          light: lightZ.length ? othersMoments(lightZ)! : null,
+          lShift: shift2 - dm - mZ.reduce((a, b) => a + b, 0),
+        }
+      : null;
   const pair = {
     m: shift + dm,
     zShift: shift2 - dm,
     meanError: eMean(D) + eMean(D2) + 8 * Number.EPSILON * (Math.abs(shift) + Math.abs(dm) + Math.abs(m2) + Math.abs(shift2)),
     others: others.length ? othersMoments(others)! : null,
+    ...(split ? { split } : {}),
   };
   return {
     laws: [

@@ -176,7 +176,18 @@ export interface TailTerm {
      * X = G_1 + G_2 - m + Z: m = E[X] as computed, Z = the other terms (their law as the moment routines read it, null when
      * there are none) less zShift, and a bound on the offsets of the means (E[G_1 - m], E[G_2 - m], E[Z] together)
      */
-    pair?: { m: number; zShift: number; meanError: number; others: CompiledModel | null };
+    pair?: {
+      m: number;
+      zShift: number;
+      meanError: number;
+      others: CompiledModel | null;
+      /**
+       * optional: Z split as sum_i (D_i - m_i) + (L - lShift), the other terms with power-law majorants of their densities
+       * (D_i, about the points m_i) apart from the rest L (its law as the moment routines read it, null when there is none),
+       * so that Z's tails fall like the D_i's rather than like Markov's bound on Z's highest even moment
+       */
+      split?: { heavy: { tail: import("./direct/power-tail").PowerTail; m: number; spread: number }[]; light: CompiledModel | null; lShift: number };
+    };
   };
 }
 

@@ -167,3 +167,33 @@ describe("pair bound of a single period vs mpmath convolution (tests/fixtures/pa
     expect(worstPdf, `${c.name}: largest actual pdf error / bound`).toBeGreaterThan(1e-4);
   });
 });
+
+// Two stables and a Student t (nu = 3) with a normal term, one period alone, against mpmath Fourier inversion of the
+// closed-form CF at 20 digits (tests/fixtures/pair-sums/generate_cf.py, two quadratures, their difference `check`): the
+// stables' images are taken out and the pair's bound reads the rest's tails from the Student t term's power-law majorants
+// and the normal term's moments (its split, lib/cf/invert/heavy-residual2.ts), not from Markov's bound on the rest's second
+// moment. The bound is loose here (actual / bound about 3e-4 at the shortest period), so its teeth are checked at 1e-5.
+describe("pair bound with a power-tailed rest, single period, vs mpmath (tests/fixtures/pair-sums/cf-pair-sums.json)", () => {
+  const cfPairs = (JSON.parse(readFileSync(new URL("../fixtures/pair-sums/cf-pair-sums.json", import.meta.url), "utf8")) as {
+    cases: { name: string; model: unknown; points: { x: string; cdf: string; check: number; pdf: string; pdf_check: number }[] }[];
+  }).cases;
+  it.each(cfPairs.map((c) => [c.name, c] as const))("%s", (_n, c) => {
+    const model = compile(c.model as never);
+    const scratch = { pdf: new Float64Array(1), cdf: new Float64Array(1), sf: new Float64Array(1), one: new Float64Array(1) };
+    let worst = 0;
+    for (const T0 of [16, 32, 64, 128]) {
+      const lad = heavyLadder(model, [], T0 * model.scale, 1, 1e-10);
+      expect(lad.pair?.zs, `${c.name}: the pair's bound with the rest split`).toBeTruthy();
+      for (const p of c.points) {
+        const v = evalLadder(lad, Number(p.x), scratch);
+        expect(Number.isFinite(v.derivedCdf), `${c.name} T0 = ${T0}: a derived bound at x = ${p.x}`).toBe(true);
+        const ec = Math.abs(v.cdf - Number(p.cdf));
+        const ep = Math.abs(v.pdf - Number(p.pdf));
+        expect(ec, `${c.name} T0 = ${T0} scales, x = ${p.x}: cdf ${v.cdf} vs ${p.cdf}, diff ${ec}, derived bound ${v.derivedCdf}`).toBeLessThanOrEqual(v.derivedCdf + p.check);
+        expect(ep, `${c.name} T0 = ${T0} scales, x = ${p.x}: pdf ${v.pdf} vs ${p.pdf}, diff ${ep}, bound ${v.errPdf}`).toBeLessThanOrEqual(v.errPdf + p.pdf_check);
+        worst = Math.max(worst, ec / v.derivedCdf);
+      }
+    }
+    expect(worst, `${c.name}: largest actual cdf error / bound`).toBeGreaterThan(1e-5);
+  });
+});

@@ -137,6 +137,51 @@ export interface PairLaw {
   delta: number;
   /** imageBound's polynomials */
   polys?: Map<string, Poly>;
+  /** Z split into power-tailed parts and a light rest (TailTerm.images.pair.split), where known */
+  zs: ZSplit | null;
+}
+
+/**
+ * Z = sum_i H_i + L' (J parts, H_i = D_i - m_i with power-law majorants, L' the rest with even moments, or the constant
+ * -lShift when there is none): on |Z| > r some part exceeds rho r, rho = (1 - 1/64)/J (the rounding of the shifts and a
+ * constant part c below r/64: r >= minR), so P(|Z| > r) <= sum_j P(|X_j| > rho r) and
+ * E[|Z|; |Z| > r] <= sum_j E[|X_j| 1{|X_j| > rho r}] + sum_j E|X_j| sum_i P(|X_i| > rho r) (independence).
+ */
+interface ZSplit {
+  H: Heavy[];
+  /** log E|L'|^n (even n), null without a light part */
+  lz: Float64Array | null;
+  rho: number;
+  /** sum_j E|X_j| */
+  EA: number;
+  /** the least r the bounds hold for (each H_i's t0 / rho, 64 times the constant part and the shifts' rounding) */
+  minR: number;
+}
+
+function zSplitOf(split: NonNullable<NonNullable<NonNullable<TailTerm["images"]>["pair"]>["split"]>, zShift: number): ZSplit | null {
+  const H: Heavy[] = [];
+  for (const h of split.heavy) {
+    const p = heavyPart(h.tail, h.m, h.spread);
+    if (!p) return null;
+    H.push(p);
+  }
+  const J = H.length + (split.light ? 1 : 0);
+  const rho = ((1 - 1 / 64) / J) * (1 - 4 * U);
+  let EA = H.reduce((a, h) => a + h.EA, 0);
+  let lz: Float64Array | null = null;
+  // the shifts' rounding: lShift = zShift - sum m_i within a few ulps of the sizes
+  const eps = 8 * U * (Math.abs(zShift) + Math.abs(split.lShift) + split.heavy.reduce((a, h) => a + Math.abs(h.m), 0));
+  let c = 0;
+  if (split.light) {
+    const mb = momentBounds(split.light, split.lShift);
+    if (!mb || mb.logU.length < 3 || !Number.isFinite(mb.logU[2])) return null;
+    const lc = Math.log(mb.c);
+    lz = new Float64Array(mb.logU.length).fill(NaN);
+    for (let n = 2; n < mb.logU.length; n += 2) if (Number.isFinite(mb.logU[n])) lz[n] = mb.logU[n] + n * lc + 4 * U * (Math.abs(mb.logU[n]) + n * Math.abs(lc) + 1);
+    EA += Math.exp(lz[2] / 2) * (1 + 4 * U);
+  } else c = Math.abs(split.lShift);
+  const minR = Math.max(...H.map((h) => h.t0 / rho), 64 * (c + eps));
+  return { H, lz, rho, EA: EA * (1 + 4 * U), minR };
 }
 
 /** the pair's law, where both terms have power-law majorants (and a mean) and the others have a variance */
@@ -166,17 +211,18 @@ export function pairLaw(term: TailTerm): PairLaw | null {
     vZ = Math.exp(lz[2]) * (1 + 4 * U);
     dz = Math.abs(k1 - pair.zShift) + e1;
   }
-  return { A, B, m: pair.m, lz, vZ, delta: (pair.meanError + dz) * (1 + 4 * U) };
+  const zs = pair.split && Y ? zSplitOf(pair.split, pair.zShift) : null;
+  return { A, B, m: pair.m, lz, vZ, delta: (pair.meanError + dz) * (1 + 4 * U), zs };
 }
 
 /** the even order n of Z's moments best at r1 for E[|Z|; |Z| > r1] <= E|Z|^n r1^(1-n) (0 without Z, NaN without any) */
-function zOrder(L: PairLaw, r1: number): number {
-  if (!L.lz) return 0;
+function zOrder(lzs: Float64Array | null, r1: number): number {
+  if (!lzs) return 0;
   let best = NaN;
   let bv = Infinity;
   const lr = Math.log(r1);
-  for (let n = 2; n < L.lz.length; n += 2) {
-    const v = L.lz[n] - (n - 1) * lr;
+  for (let n = 2; n < lzs.length; n += 2) {
+    const v = lzs[n] - (n - 1) * lr;
     if (v < bv) {
       bv = v;
       best = n;
@@ -186,23 +232,31 @@ function zOrder(L: PairLaw, r1: number): number {
 }
 
 /** Z's P(|Z| > r) and E[|Z|; |Z| > r] as monomials in r at the even order n (Markov) */
-function zTails(L: PairLaw, best: number): { P: Poly; E1: Poly } {
-  if (!L.lz || best === 0) return { P: ZERO, E1: ZERO };
+function zTails(lzs: Float64Array | null, best: number): { P: Poly; E1: Poly } {
+  if (!lzs || best === 0) return { P: ZERO, E1: ZERO };
   if (!Number.isFinite(best)) return { P: mono(Infinity, 0), E1: mono(Infinity, 0) };
-  const mn = Math.exp(L.lz[best] + 4 * U * (Math.abs(L.lz[best]) + 1)) * (1 + 4 * U);
+  const mn = Math.exp(lzs[best] + 4 * U * (Math.abs(lzs[best]) + 1)) * (1 + 4 * U);
   return { P: mono(mn, best), E1: mono(mn, best - 1) };
+}
+
+/** Z's P(|Z| > r) and E[|Z|; |Z| > r] from its split (ZSplit), for r >= minR; the light part's Markov order n */
+function zSplitTails(z: ZSplit, n: number): { P: Poly; E1: Poly } {
+  const l = zTails(z.lz, n);
+  const P = add(...z.H.map((h) => at(h.P, z.rho)), at(l.P, z.rho));
+  const E1 = add(...z.H.map((h) => at(h.E1, z.rho)), at(l.E1, z.rho), mul(mono(z.EA, 0), P));
+  return { P: merge(P), E1: merge(E1) };
 }
 
 export type PairKind = "cdf" | "pdf" | "stopLoss";
 
 /** one side's per-image bound as a polynomial in u (d = 0 right, 1 left: the left tails of both parts), equal powers merged
  *  and kept per side, kind and Z's moment order */
-function imageBound(L: PairLaw, d: 0 | 1, kind: PairKind, u1: number): Poly {
-  const n = zOrder(L, u1 / 6);
-  const key = `${d}:${kind}:${n}`;
+function imageBound(L: PairLaw, d: 0 | 1, kind: PairKind, u1: number, split: boolean): Poly {
+  const n = split ? zOrder(L.zs!.lz, (L.zs!.rho * u1) / 6) : zOrder(L.lz, u1 / 6);
+  const key = `${split ? "s" : "m"}:${d}:${kind}:${n}`;
   const cache = (L.polys ??= new Map());
   let p = cache.get(key);
-  if (!p) cache.set(key, (p = merge(imageBoundAt(L, d, kind, n))));
+  if (!p) cache.set(key, (p = merge(imageBoundAt(L, d, kind, split ? zSplitTails(L.zs!, n) : zTails(L.lz, n)))));
   return p;
 }
 
@@ -214,9 +268,8 @@ function merge(p: Poly): Poly {
   return { c: q.map((k) => by.get(k)! * (1 + 4 * p.c.length * U)), q };
 }
 
-function imageBoundAt(L: PairLaw, d: 0 | 1, kind: PairKind, n: number): Poly {
+function imageBoundAt(L: PairLaw, d: 0 | 1, kind: PairKind, z: { P: Poly; E1: Poly }): Poly {
   const { A, B } = L;
-  const z = zTails(L, n);
   const PZ = at(z.P, 1 / 6);
   const E1Z = at(z.E1, 1 / 6);
   const EZ = Math.sqrt(L.vZ) * (1 + 2 * U);
@@ -298,7 +351,9 @@ export function pairAliasing(L: PairLaw, xLo: number, xHi: number, T: number, ki
   const uL = L.m - xHi + T - slack;
   const need = 6 * Math.max(L.A.t0, L.B.t0);
   if (!(uR >= need && uL >= need)) return Infinity;
-  const s = sideSum(imageBound(L, 0, kind, uR), uR, T) + sideSum(imageBound(L, 1, kind, uL), uL, T);
+  let s = sideSum(imageBound(L, 0, kind, uR, false), uR, T) + sideSum(imageBound(L, 1, kind, uL, false), uL, T);
+  // with Z's tails from its split where the images are far enough for it (Z's tails are read at u/6 and beyond): the less
+  if (L.zs && Math.min(uR, uL) / 6 >= L.zs.minR) s = Math.min(s, sideSum(imageBound(L, 0, kind, uR, true), uR, T) + sideSum(imageBound(L, 1, kind, uL, true), uL, T));
   return (kind === "stopLoss" ? 2 * s : s) * (1 + 4 * U);
 }
 
