@@ -172,7 +172,7 @@ describe("pair bound of a single period vs mpmath convolution (tests/fixtures/pa
 // closed-form CF at 20 digits (tests/fixtures/pair-sums/generate_cf.py, two quadratures, their difference `check`): the
 // stables' images are taken out and the pair's bound reads the rest's tails from the Student t term's power-law majorants
 // and the normal term's moments (its split, lib/cf/invert/heavy-residual2.ts), not from Markov's bound on the rest's second
-// moment. The bound is loose here (actual / bound about 3e-4 at the shortest period), so its teeth are checked at 1e-5.
+// moment. Actual / bound is about 4e-3 at the shortest period; its teeth are checked at 1e-4.
 describe("pair bound with a power-tailed rest, single period, vs mpmath (tests/fixtures/pair-sums/cf-pair-sums.json)", () => {
   const cfPairs = (JSON.parse(readFileSync(new URL("../fixtures/pair-sums/cf-pair-sums.json", import.meta.url), "utf8")) as {
     cases: { name: string; model: unknown; points: { x: string; cdf: string; check: number; pdf: string; pdf_check: number }[] }[];
@@ -194,6 +194,6 @@ describe("pair bound with a power-tailed rest, single period, vs mpmath (tests/f
         worst = Math.max(worst, ec / v.derivedCdf);
       }
     }
-    expect(worst, `${c.name}: largest actual cdf error / bound`).toBeGreaterThan(1e-5);
+    expect(worst, `${c.name}: largest actual cdf error / bound`).toBeGreaterThan(1e-4);
   });
 });

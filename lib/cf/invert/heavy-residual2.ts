@@ -9,7 +9,8 @@ import { residualAliasing, type ResidualLaw } from "./heavy-residual";
  * (right side, u = y - m) D(u) = P(A + B + Z > u) - P(A > u) - P(B > u) (and the stop-loss transforms' likewise). Split
  * on |B| <= r_b = u/3, then on |Z| <= r_z = u/6 and |A| <= r_a = u/6 (V = B + Z, W = A + Z):
  *   P(A + V > u) - P(A > u) on |B| <= r_b: Taylor in V (integral remainder) on the good set, |V| <= u/2:
- *     f_A(u) |E[V; good]| + (E[B^2; |B| <= r_b] + E Z^2) sup_{u/2} |f_A'| + P(|Z| > r_z);
+ *     f_A(u) |E[V; good]| + (E[B^2; |B| <= r_b] + E Z^2) sup_{u/2} |f_A'| + S_A(u/6) P(|Z| > r_z) + P(|Z| > u/2)
+ *     (for r_z < |Z| <= u/2, u - V lies in [u/6, 11u/6], where S_A(u - V) and S_A(u) both lie in [0, S_A(u/6)]);
  *   on |B| > r_b: P(B > max(u - W, r_b)) + P(u - W < B < -r_b) - P(A > u) P(|B| > r_b), and
  *     E S_B(max(u - W, r_b)) - S_B(u) = Taylor in W on |A| <= r_a, |Z| <= r_z (u - W >= r_b there) plus at most
  *     2 S_B(r_b) (P(|A| > r_a) + P(|Z| > r_z)) elsewhere; P(u - W < B < -r_b) <= P(|B| > r_b) (P(|A| > r_a) + P(|Z| > r_z)).
@@ -284,16 +285,21 @@ function imageBoundAt(L: PairLaw, d: 0 | 1, kind: PairKind, z: { P: Poly; E1: Po
   const m2V = add(at(B.M2, 1 / 3), c(L.vZ));
   const m2W = add(at(A.M2, 1 / 6), c(L.vZ));
   const bad = add(PA, PZ);
+  // the bad Z set of the first piece split at |Z| = u/2: up to it u - V stays within [u/6, 11u/6] (|B| <= u/3), so the
+  // difference there is at most A's tail (density) at u/6; beyond it at most 1 (fmax_A)
+  const PZ2 = at(z.P, 1 / 2);
   if (kind === "pdf") {
     // f_X(u) - f_A(u) - f_B(u) = [E f_A(u - V) 1{|B| <= r_b} - f_A(u) P(|B| <= r_b)] - f_A(u) P(|B| > r_b)
     //   + [E f_B(u - W) 1{u - W > r_b} - f_B(u)] + E f_W(u - B) 1{B < -r_b}   (int_{|b| > r_b} f_B(b) f_W(u - b) db split
     // at b = r_b and b = -r_b, W = A + Z): the cdf's pieces one derivative higher (Taylor with f'' on the good sets), the
-    // bad Z set at most 2 fmax_A P(|Z| > r_z) in the first, the bad set of the third at most (f_B(u/3) + f_B(u)) P(bad),
+    // bad Z set at most f_A(u/6) P(|Z| > r_z) + fmax_A P(|Z| > u/2) in the first, the bad set of the third at most
+    // (f_B(u/3) + f_B(u)) P(bad),
     // and the last at most P(|B| > r_b) (f_A(u) + fmax_A P(|Z| > r_z)) (u - B - Z >= u on |Z| <= r_z there)
     return add(
       mul(A.f1[d], offV),
       mul(m2V, at(A.f2[d], 1 / 2)),
-      mul(c(2 * A.fmax), PZ),
+      mul(at(A.f0[d], 1 / 6), PZ),
+      mul(c(A.fmax), PZ2),
       mul(A.f0[d], PB),
       mul(B.f1[d], offW),
       mul(m2W, at(B.f2[d], 2 / 3)),
@@ -305,7 +311,8 @@ function imageBoundAt(L: PairLaw, d: 0 | 1, kind: PairKind, z: { P: Poly; E1: Po
     return add(
       mul(A.f0[d], offV),
       mul(m2V, at(A.f1[d], 1 / 2)),
-      PZ,
+      mul(at(A.sf[d], 1 / 6), PZ),
+      PZ2,
       mul(B.f0[d], offW),
       mul(m2W, at(B.f1[d], 2 / 3)),
       mul(c(2), mul(at(B.sf[d], 1 / 3), bad)),
@@ -317,7 +324,7 @@ function imageBoundAt(L: PairLaw, d: 0 | 1, kind: PairKind, z: { P: Poly; E1: Po
     mul(A.sf[d], offV),
     mul(m2V, at(A.f0[d], 1 / 2)),
     // r_b P(|Z| > r_z) = (u/3) P(|Z| > u/6)
-    mono((PZ.c[0] ?? 0) / 3, (PZ.q[0] ?? 0) - 1),
+    mul(mono(1 / 3, -1), PZ),
     E1Z,
     mul(B.sf[d], offW),
     mul(m2W, at(B.f0[d], 2 / 3)),
