@@ -15,7 +15,7 @@ import { residualAliasing, type ResidualLaw } from "./heavy-residual";
  *     E S_B(max(u - W, r_b)) - S_B(u) = Taylor in W on |A| <= r_a, |Z| <= r_z (u - W >= r_b there) plus at most
  *     2 S_B(r_b) (P(|A| > r_a) + P(|Z| > r_z)) elsewhere; P(u - W < B < -r_b) <= P(|B| > r_b) (P(|A| > r_a) + P(|Z| > r_z)).
  * The stop-loss transform the same way, with pi_A, S_A, f_A one derivative lower, |pi'| <= 1 (so the bad part of the Z split
- * costs r_b P(|Z| > r_z) + E[|Z|; |Z| > r_z]), and on |B| > r_b phi(t) = E[(B - t)^+; B > r_b] (= pi_B(t) for t >= r_b,
+ * costs pi_A(u/6) P(|Z| > r_z) + r_b P(|Z| > u/2) + E[|Z|; |Z| > u/2]), and on |B| > r_b phi(t) = E[(B - t)^+; B > r_b] (= pi_B(t) for t >= r_b,
  * at most pi_B(r_b) + (r_b - t) S_B(r_b) below): |phi(u - W) - pi_B(u)| <= pi_B(r_b) + pi_B(u) + |W| S_B(r_b) off the good
  * set; E[(B + W - u)^+; B < -r_b] <= P(|B| > r_b) E[(W - u - r_b)^+], (a + b - t)^+ <= (a - t/2)^+ + (b - t/2)^+.
  * The heavy parts' tails, truncated moments and density majorants come from their power-law majorants
@@ -323,9 +323,11 @@ function imageBoundAt(L: PairLaw, d: 0 | 1, kind: PairKind, z: { P: Poly; E1: Po
   return add(
     mul(A.sf[d], offV),
     mul(m2V, at(A.f0[d], 1 / 2)),
-    // r_b P(|Z| > r_z) = (u/3) P(|Z| > u/6)
-    mul(mono(1 / 3, -1), PZ),
-    E1Z,
+    // the bad Z set: pi_A(u/6) P(|Z| > u/6) up to |Z| = u/2 (u - V within [u/6, 11u/6] there), then |V| <= r_b + |Z|:
+    // (u/3) P(|Z| > u/2) + E[|Z|; |Z| > u/2]
+    mul(at(A.pi[d], 1 / 6), PZ),
+    mul(mono(1 / 3, -1), PZ2),
+    at(z.E1, 1 / 2),
     mul(B.sf[d], offW),
     mul(m2W, at(B.f0[d], 2 / 3)),
     mul(add(at(B.pi[d], 1 / 3), B.pi[d]), bad),
