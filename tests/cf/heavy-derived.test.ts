@@ -168,6 +168,34 @@ describe("pair bound of a single period vs mpmath convolution (tests/fixtures/pa
   });
 });
 
+// The same t(2.5) + t(4.5) with both terms' images taken out although they leave tails as heavy as the heavier term's alone
+// (heavyLadder's pairOnTie, as the quantiles without expected shortfall ask: the pair's bound is the smaller sixteen periods
+// out), cdf and pdf against the same convolution references.
+describe("pair bound on a tie of the tails, single period, vs mpmath convolution (tests/fixtures/pair-sums)", () => {
+  const c = (JSON.parse(readFileSync(new URL("../fixtures/pair-sums/pair-sums.json", import.meta.url), "utf8")) as {
+    cases: { name: string; model: unknown; points: { x: string; cdf: string; check: number; pdf: string; pdf_check: number }[] }[];
+  }).cases.find((k) => k.name === "student_t + student_t")!;
+  it("student_t + student_t", () => {
+    const model = compile(c.model as never);
+    const scratch = { pdf: new Float64Array(1), cdf: new Float64Array(1), sf: new Float64Array(1), one: new Float64Array(1) };
+    let worst = 0;
+    for (const T0 of [16, 32, 64, 128]) {
+      const lad = heavyLadder(model, [], T0 * model.scale, 1, 1e-10, true);
+      expect(lad.pair, "the pair's bound expected").not.toBeNull();
+      for (const p of c.points) {
+        const v = evalLadder(lad, Number(p.x), scratch);
+        if (!Number.isFinite(v.derivedCdf) || v.errCdf !== v.derivedCdf) continue;
+        const ec = Math.abs(v.cdf - Number(p.cdf));
+        const ep = Math.abs(v.pdf - Number(p.pdf));
+        expect(ec, `T0 = ${T0} scales, x = ${p.x}: cdf ${v.cdf} vs ${p.cdf}, diff ${ec}, derived bound ${v.derivedCdf}`).toBeLessThanOrEqual(v.derivedCdf + p.check);
+        expect(ep, `T0 = ${T0} scales, x = ${p.x}: pdf ${v.pdf} vs ${p.pdf}, diff ${ep}, bound ${v.errPdf}`).toBeLessThanOrEqual(v.errPdf + p.pdf_check);
+        worst = Math.max(worst, ec / v.derivedCdf);
+      }
+    }
+    expect(worst, "largest actual cdf error / bound").toBeGreaterThan(1e-3);
+  });
+});
+
 // Two stables and a Student t (nu = 3) with a normal term, one period alone, against mpmath Fourier inversion of the
 // closed-form CF at 20 digits (tests/fixtures/pair-sums/generate_cf.py, two quadratures, their difference `check`): the
 // stables' images are taken out and the pair's bound reads the rest's tails from the Student t term's power-law majorants

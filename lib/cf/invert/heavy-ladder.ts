@@ -7,7 +7,7 @@ import { lawShape } from "./range";
 import { richardsonAmplification, richardsonLastStep, richardsonRow } from "./richardson";
 import { MAX_LEVELS, MAX_TERMS, kernelTotals, roundingOf } from "./shared";
 import { maybeKernels } from "./continuous";
-import { exponentsFor, maybeTailLaw, type ImageLaw } from "./heavy";
+import { exponentsFor, imagePlan, maybeTailLaw, type ImageLaw } from "./heavy";
 import { kernelAliasing } from "./kernel-images";
 import { pairAliasing, pairLaw, type PairLaw } from "./heavy-residual2";
 import { bestDerivedEntry, lastRowWeights, residualAliasing, residualLaw, type ResidualLaw } from "./heavy-residual";
@@ -59,8 +59,13 @@ export interface LadderValue {
 }
 
 
-/** Build the ladder for a power-tailed continuous part (see heavyPath for the expansion behind it). */
-export function heavyLadder(model: CompiledModel, atoms: Atom[], T0: number, levels: number, tol: number): HeavyLadder {
+/**
+ * Build the ladder for a power-tailed continuous part (see heavyPath for the expansion behind it). With `pairOnTie` the two
+ * heaviest terms' images are taken out also where they leave tails as heavy as the heaviest term's alone, when the pair's
+ * bound is the smaller sixteen periods out (imagePlan): the quantiles alone then reach a derived bound, at the price of
+ * more levels (an expected shortfall on the same ladder would pay for them with every level's two laws' images).
+ */
+export function heavyLadder(model: CompiledModel, atoms: Atom[], T0: number, levels: number, tol: number, pairOnTie = false): HeavyLadder {
   const shape = lawShape(model);
   let part = makePart(model, atoms, shape.center);
   let env = probeEnvelope(part, shape.spread);
@@ -71,7 +76,16 @@ export function heavyLadder(model: CompiledModel, atoms: Atom[], T0: number, lev
   // (and the next heaviest term's too when it has a direct law: TailTerm.images)
   const G = model.tailTerm;
   const a0 = Math.max(shape.alpha, 0.1) + 0.05;
-  const plan = !G || atoms.length ? null : G.images && G.images.remainderAlpha > Math.max(G.remainderAlpha, a0) ? G.images : G.remainderAlpha > a0 ? { laws: [{ direct: G.direct, tails: G.tails }], remainderAlpha: G.remainderAlpha, indices: G.indices } : null;
+  const tie = pairOnTie && G && !atoms.length ? imagePlan(G, Math.max(shape.alpha, 0.1), () => true, shape.center, shape.center, 16 * T0) : null;
+  const plan = tie?.pair
+    ? tie
+    : !G || atoms.length
+      ? null
+      : G.images && G.images.remainderAlpha > Math.max(G.remainderAlpha, a0)
+        ? G.images
+        : G.remainderAlpha > a0
+          ? { laws: [{ direct: G.direct, tails: G.tails }], remainderAlpha: G.remainderAlpha, indices: G.indices }
+          : null;
   const images: ImageLaw[] = plan ? plan.laws : [];
   if (plan) {
     alpha = Math.max(plan.remainderAlpha, shape.alpha);
@@ -101,7 +115,7 @@ export function heavyLadder(model: CompiledModel, atoms: Atom[], T0: number, lev
     // beside it (./kernel-images.ts)
     resid: images.length === 1 && G && images[0].direct === G.direct ? residualLaw(G) : !images.length && part.tail ? residualLaw(part.tail) : null,
     // two terms' images: the pair's bound (./heavy-residual2.ts), the cdf's alone
-    pair: images.length === 2 && G && plan === G.images ? pairLaw(G) : null,
+    pair: tie?.pair ? tie.pair : images.length === 2 && G && plan === G.images ? pairLaw(G) : null,
     trL: [],
     trPL: [],
     estimated: false,

@@ -292,7 +292,7 @@ function heavyQuantilesAt(
   const tol = o.tolerance ?? 1e-10;
   const notes: string[] = [];
   const scratch: LadderScratch = { pdf: new Float64Array(1), cdf: new Float64Array(1), sf: new Float64Array(1), one: new Float64Array(1) };
-  const lad = heavyLadder(model, atoms, T0, 5, tol);
+  const lad = heavyLadder(model, atoms, T0, 5, tol, !o.expectedShortfall);
   // the ladder grows to six levels at most below
   dropUnreachable(lad, shape.center, 5, tol);
   const ext = T0 / 8;
