@@ -2,6 +2,7 @@ import type { Node } from "./node";
 import type { DampedLogCf } from "./damped-cf";
 import { lognormalDampedBounds } from "./lognormal-majorant";
 import { pgfBounds } from "./count-pgf";
+import type { KernelRest } from "./damped-kernel-rest";
 
 const EPS = Number.EPSILON;
 
@@ -43,6 +44,10 @@ export interface DampedMajorant {
   slope(beta: number, t: number): number;
   /** rest(beta, t) <= R (t0 / t)^q for every t >= t0 (the tail past the last probe frequency); split: see above */
   decay(beta: number, t0: number): MajorantDecay;
+  /** an exact gamma(shape, rate) term from its lower end (its transform in closed form): a sum sees its kernels cancel it */
+  gamma?: { shape: number; rate: number };
+  /** a sum's bounds on the transform past lo less the atom and its gamma kernels (`kernels`, the node's own), ./damped-kernel-rest.ts */
+  kernelRest?: KernelRest;
 }
 
 export interface MajorantDecay {
@@ -68,6 +73,7 @@ export function familyDampedMajorant(family: string, p: Record<string, number>, 
     return {
       cf,
       atom: 0,
+      gamma: { shape: k, rate: rho },
       rest: (beta, t) => size(beta, t).v,
       decay: (_beta, t0) => ({ R: up(Math.pow(rho / t0, k), 16), q: k, ...(k === 1 ? { split: { R: 0, q: Infinity, tv: up(2 * rho) } } : {}) }),
       slope: (beta, t) => {
@@ -260,9 +266,12 @@ export function scaleDampedMajorant(node: Node, a: number, c: Node): DampedMajor
   const cf = node.dampedLogCf;
   if (!cf || !m || m.cf !== c.dampedLogCf || !(a > 0) || !Number.isFinite(a)) return undefined;
   const down = (t: number) => a * t * (1 - 2 * EPS);
+  // a X of a gamma(k, rho) term is gamma(k, rho / a); kept only where that rate is exact (a a power of 2) or not needed
+  const gamma = m.gamma && Number.isInteger(Math.log2(a)) ? { shape: m.gamma.shape, rate: m.gamma.rate / a } : undefined;
   return {
     cf,
     atom: m.atom,
+    ...(gamma ? { gamma } : {}),
     rest: (beta, t) => m.rest(a * beta, down(t)),
     slope: (beta, t) => up(a * m.slope(a * beta, down(t)), 4),
     decay: (beta, t0) => {
@@ -276,5 +285,5 @@ export function shiftDampedMajorant(node: Node, c: Node): DampedMajorant | undef
   const m = c.dampedMajorant;
   const cf = node.dampedLogCf;
   if (!cf || !m || m.cf !== c.dampedLogCf) return undefined;
-  return { cf, atom: m.atom, rest: m.rest, slope: m.slope, decay: m.decay };
+  return { cf, atom: m.atom, rest: m.rest, slope: m.slope, decay: m.decay, ...(m.gamma ? { gamma: m.gamma } : {}) };
 }

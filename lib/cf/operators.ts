@@ -1,5 +1,6 @@
 import { scaleDamped, shiftDamped, sumDamped } from "./damped-cf";
 import { carryScaleKernels, carryShiftKernels, carrySumKernels } from "./kernel-carry";
+import { sumKernelRest } from "./damped-kernel-rest";
 import { scaleDampedMajorant, shiftDampedMajorant, sumDampedMajorant } from "./damped-majorant";
 import type { Node, NodeKind } from "./node";
 import { repeatKind, scaleKind, shiftKind, sumKinds } from "./kinds";
@@ -218,6 +219,10 @@ export function sumNode(cs: Node[]): Node {
   withCumulantErrors(node, sumE(cs));
   carrySumKernels(node, cs);
   node.dampedMajorant = sumDampedMajorant(node, cs);
+  if (node.dampedMajorant && node.dampedKernels && node.dampedKernels.cf === node.dampedLogCf) {
+    const kr = sumKernelRest(cs.map((c) => c.dampedMajorant!), node.dampedKernels.kernels, node.support[0]);
+    if (kr) node.dampedMajorant.kernelRest = kr;
+  }
   const tail = heaviestTerm(cs);
   if (tail) node.tailTerm = tail;
   if (kind.type === "lattice" && cs.every((c) => c.table)) {

@@ -84,7 +84,14 @@ export interface CompiledModel {
    * derived bounds on the damped transform past the support's lower end lo (atom: P(X = lo)): a sum of compounds and
    * gamma terms without kernels bounds its remainder psi_c from them (../cf/damped-majorant.ts)
    */
-  dampedMajorant?: { atom: number; rest(beta: number, t: number): number; slope(beta: number, t: number): number; decay(beta: number, t0: number): import("./damped-majorant").MajorantDecay };
+  dampedMajorant?: {
+    atom: number;
+    rest(beta: number, t: number): number;
+    slope(beta: number, t: number): number;
+    decay(beta: number, t0: number): import("./damped-majorant").MajorantDecay;
+    /** the same less the model's gamma kernels (where `kernels` is model.dampedKernels), seeing them cancel (../cf/damped-kernel-rest.ts) */
+    kernelRest?: import("./damped-kernel-rest").KernelRest;
+  };
   /** the one-claim term of a compound (P(N = 1) times a closed-form severity law) the damped inversion takes out of
    *  the transform and adds back in closed form */
   dampedSeverity?: import("./severity-kernel").SeverityKernel;

@@ -271,6 +271,8 @@ function probeAt(model: CompiledModel, atoms: Atom[], beta: number, pairOut: boo
     const size = new Float64Array(n);
     const slope = new Float64Array(n);
     const tn = tp[n - 1];
+    // a sum whose bounds see its own kernels cancel its gamma terms (../damped-kernel-rest.ts): the least of both
+    const kr = dm.kernelRest && dm.kernelRest.kernels === model.dampedKernels ? dm.kernelRest : null;
     const d = dm.decay(beta, tn);
     let R = d.R;
     let q = d.q;
@@ -304,10 +306,22 @@ function probeAt(model: CompiledModel, atoms: Atom[], beta: number, pairOut: boo
       size[i] *= 1 + 4 * (ks.length + 2) * EPS;
       slope[i] *= 1 + 4 * (ks.length + 2) * EPS;
     }
+    if (kr) {
+      const dk = kr.decay(beta, tn);
+      if (dk.q > 0 && dk.R / dk.q < R / q) {
+        R = dk.R;
+        q = dk.q;
+      }
+      for (let i = 0; i < n; i++) {
+        const b = kr.at(beta, tp[i]);
+        size[i] = Math.min(size[i], (b.rest + off) * (1 + 4 * EPS));
+        slope[i] = Math.min(slope[i], b.slope);
+      }
+    }
     // past the last probe: int R (t_n / t)^q / t = R / q (cdf) and int R (t_n / t)^q = R t_n / (q - 1) (density), the atom's
     // difference not decaying
     const pdfSplit = sp ? jumpTail({ fast: () => sp.R / 1.001, decay: sp.q, tv: () => sp.tv }, beta, tn) : Infinity;
-    const tail = off > 0 || !(q > 0) ? null : { cdf: (R / q) * (1 + 4 * EPS), pdf: q > 1 ? ((R * tn) / (q - 1)) * (1 + 4 * EPS) : pdfSplit };
+    const tail = off > 0 || !(q > 0) ? null : { cdf: (R / q) * (1 + 4 * EPS), pdf: Math.min(q > 1 ? ((R * tn) / (q - 1)) * (1 + 4 * EPS) : Infinity, pdfSplit) };
     if (tail) return { ...envelopeFrom(tp, pr, pi, nz, null, { size, slope, tail }), throughOperators: true };
   }
   return envelopeFrom(tp, pr, pi, nz, null);
