@@ -56,14 +56,15 @@ export function sumKernelRest(cs: readonly ChildBounds[], kernels: readonly Gamm
   const E = gs.reduce((s, g) => s + g.shape, 0);
   const A = os.reduce((s, c) => s * c.atom, 1);
   const logC = gs.reduce((s, g) => s + g.shape * Math.log(g.rate), 0);
-  const acRel = (8 + 4 * gs.length + 4 * Math.abs(logC)) * EPS;
+  // A C: the product of the atoms (one rounding each), exp of the log-sum (its terms and sum rounded, exp within an ulp)
+  const acRel = (8 + 2 * os.length + 4 * gs.length + 4 * Math.abs(logC)) * EPS;
   const AC = A * Math.exp(logC) * (1 + acRel);
   const d = gs.map((g) => Math.abs(r - g.rate) * (1 + 2 * EPS));
   const dMax = Math.max(...d);
   const order = Math.max(...kernels.map((k) => k.shape));
   const N = Math.floor(order - E + SAME);
-  // b_n and B_n, n <= N, by multiplying the factors' binomial series: B_n carries the rounding of b_n (every partial
-  // product is at most its majorant's; each step a few roundings)
+  // b_n and B_n, n <= N, by multiplying the factors' binomial series (B_n below raised by the rounding of both: every
+  // partial product is at most its majorant's, each step a few roundings)
   const b = new Float64Array(Math.max(N + 1, 1));
   const B = new Float64Array(Math.max(N + 1, 1));
   // Bp: the same coefficients as computed (not rounded up), for the tail T = F - sum Bp x^n with its rounding allowed for
