@@ -151,8 +151,9 @@ export function dampedPlan(
   // the samples' envelope instead (its bound then an estimate between the samples, and the answer says so)
   const plan = (pairOut: boolean) => {
     const p = planFor(model, atoms, R, tol, wantPdf, pairOut, pointwise, budget, periodOf, pdfReach, byParts, yLow, withInt, true);
-    // bounds through the operators (a sum of compounds and gamma terms) do not see the kernels cancel the transform's
-    // leading term: where their plan needs more than OPERATOR_COST times the samples' terms, the samples' plan is kept
+    // bounds through the operators (a sum of compounds and gamma terms) see the kernels cancel only the gamma terms' powers
+    // (../damped-kernel-rest.ts), not a compound's claims or the samples' faster local decay: where their plan needs more
+    // than OPERATOR_COST times the samples' terms, the samples' plan is kept
     const through = (p.plan.env as Probed).throughOperators === true;
     if (!(p.K > budget) && !through) return p;
     if (!p.plan.env.derived) return p;
