@@ -6,6 +6,8 @@ const EPS = Number.EPSILON;
 const SAME = 1e-9;
 /** the binomial series in 1/z is used where max |d_i| / |z| is at most this (its tail then falls geometrically) */
 const RADIUS = 0.5;
+/** the power a near kernel's exponent residual gives up past the last probe (see decay) */
+const NEAR_EPS = 1 / 32;
 
 /** the pieces of a child's bounds the remainder needs (a DampedMajorant of ./damped-majorant.ts) */
 export interface ChildBounds {
@@ -231,10 +233,16 @@ export function sumKernelRest(cs: readonly ChildBounds[], kernels: readonly Gamm
         R += cAbs[n] * zn;
         zn *= x;
       }
-      // |z^{-delta} - 1| <= |z|^{off} e^{off pi / 2} + 1: a power off less than the kernel's own
-      for (const v of near) R += v.wr * (Math.pow(x, v.e - v.off) * Math.exp((v.off * Math.PI) / 2) + Math.pow(x, v.e)) * (1 + (8 + 4 * v.e) * EPS);
+      // |z^{-delta} - 1| <= e^y - 1 <= y e^y, y = off (ln |z| + pi / 2), with ln |z| <= ln t0 + c0 + ln u (u = t / t0 >= 1,
+      // |z| <= t + r + beta, c0 = ln(1 + (r + beta) / t0)) and ln u <= u^NEAR_EPS / NEAR_EPS: at most
+      // e^{Y0} (Y0 + off / NEAR_EPS) u^{off + NEAR_EPS}, Y0 = off (ln t0 + c0 + pi / 2), so a power off + NEAR_EPS less than e
+      const c0 = Math.log1p((r + beta) / t0);
+      for (const v of near) {
+        const Y0 = v.off * (Math.log(t0) + c0 + Math.PI / 2);
+        R += v.wr * Math.pow(x, v.e) * Math.exp(Y0) * (Y0 + v.off / NEAR_EPS) * (1 + (16 + 4 * v.e) * EPS);
+      }
       for (const k of others) R += Math.abs(k.w) * Math.pow(r * x, k.shape) * (1 + 16 * EPS);
-      const q = Math.min(E - dE, ...near.map((v) => v.e - v.off), ...others.map((k) => k.shape));
+      const q = Math.min(E - dE, ...near.map((v) => v.e - v.off - NEAR_EPS), ...others.map((k) => k.shape));
       return { R: up(R, 16 + 2 * N + 2 * others.length), q };
     },
   };

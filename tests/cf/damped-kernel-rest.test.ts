@@ -36,6 +36,16 @@ const cases: { name: string; terms: Term[] }[] = [
     terms: [gammaTerm(0.6, 1.3), compoundTerm({ family: "poisson", lambda: 1.5 } as Model, poisson(1.5), 0.8, 0.9)],
   },
   {
+    name: "five terms, one gamma(1.318, 1.534) and compounds with gamma and exponential claims: kernels at 1.318 + n and 3.943",
+    terms: [
+      compoundTerm({ family: "negative_binomial", r: 3.703, p: 0.286 } as Model, negbin(3.703, 0.286), 2.89, 0.513),
+      compoundTerm({ family: "poisson", lambda: 2 } as Model, poisson(2), 3.002, 1.021),
+      gammaTerm(1.318, 1.534),
+      compoundTerm({ family: "negative_binomial", r: 0.579, p: 0.622 } as Model, negbin(0.579, 0.622), 1, 0.605),
+      compoundTerm({ family: "poisson", lambda: 0.5 } as Model, poisson(0.5), 2.625, 1.419),
+    ],
+  },
+  {
     name: "2 gamma(1.5, 1) + NB(2, 0.5) x exponential(1): a claim's kernel on a matched power",
     terms: [scaled(2, gammaTerm(1.5, 1)), compoundTerm({ family: "negative_binomial", r: 2, p: 0.5 } as Model, negbin(2, 0.5), 1, 1)],
   },
@@ -94,6 +104,10 @@ describe("a sum's transform less its gamma kernels: the derived bounds are never
         prev = cur;
         prevB = b;
       }
+      // past the probes (the last near 1e13 / scale) the density-type tail R t0 / (q - 1) is negligible where q > 1: the
+      // kernels' exponent residuals are not charged as whole kernels there (that tail once set a density's cut-off)
+      const far = kr.decay(beta, 1e12);
+      if (far.q > 1) expect((far.R * 1e12) / (far.q - 1)).toBeLessThan(1e-12);
       // the power past t0: |psi - K| <= R (t0 / t)^q
       for (const t0 of [1e2, 1e5]) {
         const d = kr.decay(beta, t0);
