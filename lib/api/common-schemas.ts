@@ -116,7 +116,10 @@ export const QuantileDiagnostics = z
       .object({ target: z.number(), met: z.boolean() })
       .strict()
       .optional()
-      .openapi({ description: "the cdf error the levels were solved to (the request's tolerance, else 1e-10; the routes aim tighter where they can) and whether cdfError meets it; where it does not, a note says so" }),
+      .openapi({
+        description:
+          "the cdf error the levels were solved to (the request's tolerance, else 1e-10; the routes aim tighter where they can) and whether cdfError meets it and every expected shortfall's bound meets its goal (1e-8 (1 - p) times the scale of the quantile, for power tails inverted by period doubling); where not, a note says which was reached",
+      }),
     quantileError: z
       .array(z.number().nullable())
       .openapi({ description: "per level: bound on |x - q_p|, derived from cdfError and the density over the bracket (null: not resolved)" }),

@@ -54,7 +54,7 @@ export interface LadderValue {
   sf: number;
   errCdf: number;
   errPdf: number;
-  /** the derived cdf bound (Infinity where none): the value's errCdf is this one when it is at most max(estimate, tol) */
+  /** the derived cdf bound (Infinity where none): the value's errCdf is this one wherever it is finite */
   derivedCdf: number;
 }
 
@@ -241,7 +241,9 @@ function ladderAt(lad: HeavyLadder, x: number, scratch: { pdf: Float64Array; cdf
   const bc = bestDerivedEntry(lastRowWeights(lad.expC, L), rC);
   const bp = bestDerivedEntry(lastRowWeights(lad.expP, L), rP);
   const errCdf = bc.err + k.errCdf;
-  if (!(errCdf <= Math.max(est.errCdf, lad.tol))) {
+  // the derived bound wherever it is finite, even above the estimate or the tolerance (the answer's tolerance report then
+  // says the tolerance was not met); the estimate only where none is derived
+  if (!Number.isFinite(errCdf)) {
     lad.estimated = true;
     return { ...est, derivedCdf: errCdf };
   }
@@ -275,14 +277,4 @@ function residualBucket(lad: HeavyLadder, x: number, l: number): { cdf: number; 
   if (cache.size > 8192) cache.clear();
   cache.set(key, v);
   return v;
-}
-
-/**
- * Drop a derived bound that cannot reach `tol` at `x` even at the period T0 2^top (the most the caller grows the ladder to):
- * its evaluations would be spent for nothing, the estimate serves.
- */
-export function dropUnreachable(lad: HeavyLadder, x: number, top: number, tol: number): void {
-  const T = lad.T0 * 2 ** top;
-  if (lad.pair && !(pairAliasing(lad.pair, x, x, T, "cdf") <= tol)) lad.pair = null;
-  if (lad.resid && !(residualAliasing(lad.resid, x, x, T, "cdf") <= tol)) lad.resid = null;
 }

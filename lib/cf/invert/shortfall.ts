@@ -138,8 +138,9 @@ export function shortfallLight(
  * (e.g. Lukacs, Characteristic Functions, on absolute moments), whose mid-point sum equals E[tri_T(Y - q)] with
  * the triangle wave tri_T(u) = |u| on |u| <= T; the images beyond T give an error ~ T^{1-alpha}, removed by
  * doubling T and Richardson extrapolation with exponents j alpha + i - 1. Then E[(X-q)^+] = (E|X-q| + mu - q)/2,
- * atoms added exactly. The error left after the extrapolation is estimated from its last steps, not derived (callers
- * say so: RICHARDSON_ESTIMATE_NOTE); the images taken out from direct laws carry derived bounds (./images-shortfall.ts).
+ * atoms added exactly. The error left after the extrapolation is bounded where one or two terms' images are taken out
+ * (./heavy-residual.ts, ./heavy-residual2.ts), else estimated from its last steps (callers say so: RICHARDSON_ESTIMATE_NOTE);
+ * `reached` says whether the bound is within the goal max(target, tol) on E|X - q| (callers say so where it is not).
  */
 export function heavyShortfall(
   model: CompiledModel,
@@ -150,7 +151,7 @@ export function heavyShortfall(
   tol: number,
   span: number,
   ladder?: HeavyLadder,
-): (q: number, target: number) => { value: number; error: number; estimated: boolean } {
+): (q: number, target: number) => { value: number; error: number; estimated: boolean; reached: boolean } {
   let part: ContinuousPart;
   let env: Envelope;
   let alphaR: number;
@@ -337,9 +338,10 @@ export function heavyShortfall(
       }
       prev = cand;
     }
-    // twice the smallest total: the choice among levels is itself made on estimates; the derived bound where it is at most
-    // that or the goal
-    const derived = bestD.err <= Math.max(2 * bestTotal, goal);
+    // every number carries a bound never below its error: the derived bound (with its own entry) wherever one is finite,
+    // even above the goal (the caller reports the goal as not reached); twice the smallest total, an estimate made on the
+    // levels' differences, only where no bound is derived
+    const derived = Number.isFinite(bestD.err);
     const error = derived ? bestD.err : 2 * bestTotal;
     const absC = derived ? bestD.value : best;
     let atomPart = 0;
@@ -360,7 +362,7 @@ export function heavyShortfall(
     }
     // for the signed remainder of mass M: int (x - q)^+ = (int |x - q| + mu - q M) / 2
     const value = atomPart + w * ((absC + muC - q * part.mass) / 2 + kernelPart);
-    return { value, error: (w * error) / 2 + w * gErr + 8 * Number.EPSILON * Math.abs(absC), estimated: !derived };
+    return { value, error: (w * error) / 2 + w * gErr + 8 * Number.EPSILON * Math.abs(absC), estimated: !derived, reached: error <= goal };
   };
 }
 
