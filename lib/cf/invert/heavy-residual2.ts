@@ -9,7 +9,8 @@ import { residualAliasing, type ResidualLaw } from "./heavy-residual";
  * (right side, u = y - m) D(u) = P(A + B + Z > u) - P(A > u) - P(B > u) (and the stop-loss transforms' likewise). Split
  * on |B| <= r_b = u/3, then on |Z| <= r_z = u/6 and |A| <= r_a = u/6 (V = B + Z, W = A + Z):
  *   P(A + V > u) - P(A > u) on |B| <= r_b: Taylor in V (integral remainder) on the good set, |V| <= u/2:
- *     f_A(u) |E[V; good]| + (E[B^2; |B| <= r_b] + E Z^2) sup_{u/2} |f_A'| + S_A(u/6) P(|Z| > r_z) + P(|Z| > u/2)
+ *     f_A(u) |E[V; good]| + (E[B^2; |B| <= r_b] / 2 + E Z^2 / 2 + E|B| (|E Z| + E[|Z|; |Z| > r_z])) sup_{u/2} |f_A'|
+ *     + S_A(u/6) P(|Z| > r_z) + P(|Z| > u/2)
  *     (for r_z < |Z| <= u/2, u - V lies in [u/6, 11u/6], where S_A(u - V) and S_A(u) both lie in [0, S_A(u/6)]);
  *   on |B| > r_b: P(B > max(u - W, r_b)) + P(u - W < B < -r_b) - P(A > u) P(|B| > r_b), and
  *     E S_B(max(u - W, r_b)) - S_B(u) = Taylor in W on |A| <= r_a, |Z| <= r_z (u - W >= r_b there) plus at most
@@ -282,8 +283,12 @@ function imageBoundAt(L: PairLaw, d: 0 | 1, kind: PairKind, z: { P: Poly; E1: Po
   // |E[V; good]| and |E[W; good]| (V = B + Z, W = A + Z): the offsets and the parts off the good set
   const offV = add(c(L.delta), E1B, mul(c(B.EA), PZ), E1Z, mul(c(EZ), PB));
   const offW = add(c(L.delta), E1A, mul(c(A.EA), PZ), E1Z, mul(c(EZ), PA));
-  const m2V = add(at(B.M2, 1 / 3), c(L.vZ));
-  const m2W = add(at(A.M2, 1 / 6), c(L.vZ));
+  // Taylor's remainder in V on the good set G = {|B| <= r_b, |Z| <= r_z}: |g(V) - g(0) - V g'(0)| <= (V^2 / 2) sup |g''|, and
+  // (B, Z independent) E[V^2; G] <= E[B^2; |B| <= r_b] + E Z^2 + 2 |E[B; |B| <= r_b]| |E[Z; |Z| <= r_z]|, with
+  // |E[B; |B| <= r_b]| <= E|B| and |E[Z; |Z| <= r_z]| <= |E Z| + E[|Z|; |Z| > r_z] <= delta + E1Z: so half the second
+  // moments plus the cross term (before: the whole second moments, from (B + Z)^2 <= 2 B^2 + 2 Z^2); W = A + Z alike
+  const m2V = add(mul(c(0.5), add(at(B.M2, 1 / 3), c(L.vZ))), mul(c(B.EA), add(c(L.delta), E1Z)));
+  const m2W = add(mul(c(0.5), add(at(A.M2, 1 / 6), c(L.vZ))), mul(c(A.EA), add(c(L.delta), E1Z)));
   const bad = add(PA, PZ);
   // the bad Z set of the first piece split at |Z| = u/2: up to it u - V stays within [u/6, 11u/6] (|B| <= u/3), so the
   // difference there is at most A's tail (density) at u/6; beyond it at most 1 (fmax_A)
