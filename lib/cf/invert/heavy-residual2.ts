@@ -139,6 +139,8 @@ export interface PairLaw {
   delta: number;
   /** imageBound's polynomials */
   polys?: Map<string, Poly>;
+  /** pairAliasing's radii set by kind and period (RADII's index) */
+  radii?: Map<string, number>;
   /** Z split into power-tailed parts and a light rest (TailTerm.images.pair.split), where known */
   zs: ZSplit | null;
 }
@@ -253,14 +255,35 @@ export type PairKind = "cdf" | "pdf" | "stopLoss";
 
 /** one side's per-image bound as a polynomial in u (d = 0 right, 1 left: the left tails of both parts), equal powers merged
  *  and kept per side, kind and Z's moment order */
-function imageBound(L: PairLaw, d: 0 | 1, kind: PairKind, u1: number, split: boolean): Poly {
-  const n = split ? zOrder(L.zs!.lz, (L.zs!.rho * u1) / 6) : zOrder(L.lz, u1 / 6);
-  const key = `${split ? "s" : "m"}:${d}:${kind}:${n}`;
+function imageBound(L: PairLaw, d: 0 | 1, kind: PairKind, u1: number, split: boolean, r: number): Poly {
+  const R = RADII[r];
+  const n = split ? zOrder(L.zs!.lz, L.zs!.rho * u1 * R.z) : zOrder(L.lz, u1 * R.z);
+  const key = `${split ? "s" : "m"}:${d}:${kind}:${n}:${r}`;
   const cache = (L.polys ??= new Map());
   let p = cache.get(key);
-  if (!p) cache.set(key, (p = merge(imageBoundAt(L, d, kind, split ? zSplitTails(L.zs!, n) : zTails(L.lz, n)))));
+  if (!p) cache.set(key, (p = merge(imageBoundAt(L, d, kind, split ? zSplitTails(L.zs!, n) : zTails(L.lz, n), R))));
   return p;
 }
+
+/**
+ * The split radii as fractions of u: r_b = b u, r_a = a u, r_z = z u, and k u where the bad Z set of the first piece is
+ * split again (1/3, 1/6, 1/6, 1/2 in the comment at the top). Each set keeps the conditions the pieces use: b + k < 1 (u - V
+ * >= (1 - b - k) u on |Z| <= k u), a + z <= 1 - b (u - W >= r_b on the second piece's good set), z <= b (u - B - Z >= u on
+ * B < -r_b, |Z| <= r_z, for the density), z <= k; every bound holds for each set, so their least is taken per period and
+ * point (pairAliasing). The majorants are read at (1 - b - z) u, (1 - a - z) u, (1 - b - k) u, b u, a u (all at least t0).
+ */
+const RADII = [
+  { b: 1 / 3, a: 1 / 6, z: 1 / 6, k: 1 / 2 },
+  { b: 1 / 4, a: 1 / 4, z: 1 / 8, k: 1 / 2 },
+  { b: 1 / 4, a: 1 / 8, z: 1 / 8, k: 1 / 2 },
+  { b: 3 / 8, a: 3 / 16, z: 1 / 8, k: 5 / 16 },
+] as const;
+type Radii = (typeof RADII)[number];
+/** a fraction rounded down (majorants decreasing in t are read there) or up (E[H^2; |H| <= r] and r itself) */
+const down = (x: number) => x * (1 - 4 * U);
+const up = (x: number) => x * (1 + 4 * U);
+/** the least fraction of u any majorant is read at */
+const leastRead = (R: Radii) => down(Math.min(R.a, R.b, 1 - R.b - R.k, 1 - R.b - R.z, 1 - R.a - R.z));
 
 /** sum the coefficients of equal powers (each sum rounded up) */
 function merge(p: Poly): Poly {
@@ -270,15 +293,21 @@ function merge(p: Poly): Poly {
   return { c: q.map((k) => by.get(k)! * (1 + 4 * p.c.length * U)), q };
 }
 
-function imageBoundAt(L: PairLaw, d: 0 | 1, kind: PairKind, z: { P: Poly; E1: Poly }): Poly {
+function imageBoundAt(L: PairLaw, d: 0 | 1, kind: PairKind, z: { P: Poly; E1: Poly }, R: Radii): Poly {
   const { A, B } = L;
-  const PZ = at(z.P, 1 / 6);
-  const E1Z = at(z.E1, 1 / 6);
+  const [rz, ra, rb, k] = [down(R.z), down(R.a), down(R.b), down(R.k)];
+  // where the Taylor terms read A's and B's derivatives, where the bad Z set reads A's, and the split of (W - u - r_b)^+
+  const tA = down(1 - R.b - R.z);
+  const tB = down(1 - R.a - R.z);
+  const bz = down(1 - R.b - R.k);
+  const half = down((1 + R.b) / 2);
+  const PZ = at(z.P, rz);
+  const E1Z = at(z.E1, rz);
   const EZ = Math.sqrt(L.vZ) * (1 + 2 * U);
-  const PA = at(A.P, 1 / 6);
-  const PB = at(B.P, 1 / 3);
-  const E1A = at(A.E1, 1 / 6);
-  const E1B = at(B.E1, 1 / 3);
+  const PA = at(A.P, ra);
+  const PB = at(B.P, rb);
+  const E1A = at(A.E1, ra);
+  const E1B = at(B.E1, rb);
   const c = (k: number) => mono(k, 0);
   // |E[V; good]| and |E[W; good]| (V = B + Z, W = A + Z): the offsets and the parts off the good set
   const offV = add(c(L.delta), E1B, mul(c(B.EA), PZ), E1Z, mul(c(EZ), PB));
@@ -287,12 +316,12 @@ function imageBoundAt(L: PairLaw, d: 0 | 1, kind: PairKind, z: { P: Poly; E1: Po
   // (B, Z independent) E[V^2; G] <= E[B^2; |B| <= r_b] + E Z^2 + 2 |E[B; |B| <= r_b]| |E[Z; |Z| <= r_z]|, with
   // |E[B; |B| <= r_b]| <= E|B| and |E[Z; |Z| <= r_z]| <= |E Z| + E[|Z|; |Z| > r_z] <= delta + E1Z: so half the second
   // moments plus the cross term (before: the whole second moments, from (B + Z)^2 <= 2 B^2 + 2 Z^2); W = A + Z alike
-  const m2V = add(mul(c(0.5), add(at(B.M2, 1 / 3), c(L.vZ))), mul(c(B.EA), add(c(L.delta), E1Z)));
-  const m2W = add(mul(c(0.5), add(at(A.M2, 1 / 6), c(L.vZ))), mul(c(A.EA), add(c(L.delta), E1Z)));
+  const m2V = add(mul(c(0.5), add(at(B.M2, up(R.b)), c(L.vZ))), mul(c(B.EA), add(c(L.delta), E1Z)));
+  const m2W = add(mul(c(0.5), add(at(A.M2, up(R.a)), c(L.vZ))), mul(c(A.EA), add(c(L.delta), E1Z)));
   const bad = add(PA, PZ);
   // the bad Z set of the first piece split at |Z| = u/2: up to it u - V stays within [u/6, 11u/6] (|B| <= u/3), so the
   // difference there is at most A's tail (density) at u/6; beyond it at most 1 (fmax_A)
-  const PZ2 = at(z.P, 1 / 2);
+  const PZ2 = at(z.P, k);
   if (kind === "pdf") {
     // f_X(u) - f_A(u) - f_B(u) = [E f_A(u - V) 1{|B| <= r_b} - f_A(u) P(|B| <= r_b)] - f_A(u) P(|B| > r_b)
     //   + [E f_B(u - W) 1{u - W > r_b} - f_B(u)] + E f_W(u - B) 1{B < -r_b}   (int_{|b| > r_b} f_B(b) f_W(u - b) db split
@@ -302,42 +331,42 @@ function imageBoundAt(L: PairLaw, d: 0 | 1, kind: PairKind, z: { P: Poly; E1: Po
     // and the last at most P(|B| > r_b) (f_A(u) + fmax_A P(|Z| > r_z)) (u - B - Z >= u on |Z| <= r_z there)
     return add(
       mul(A.f1[d], offV),
-      mul(m2V, at(A.f2[d], 1 / 2)),
-      mul(at(A.f0[d], 1 / 6), PZ),
+      mul(m2V, at(A.f2[d], tA)),
+      mul(at(A.f0[d], bz), PZ),
       mul(c(A.fmax), PZ2),
       mul(A.f0[d], PB),
       mul(B.f1[d], offW),
-      mul(m2W, at(B.f2[d], 2 / 3)),
-      mul(c(2), mul(at(B.f0[d], 1 / 3), bad)),
+      mul(m2W, at(B.f2[d], tB)),
+      mul(c(2), mul(at(B.f0[d], rb), bad)),
       mul(PB, add(A.f0[d], mul(c(A.fmax), PZ))),
     );
   }
   if (kind === "cdf") {
     return add(
       mul(A.f0[d], offV),
-      mul(m2V, at(A.f1[d], 1 / 2)),
-      mul(at(A.sf[d], 1 / 6), PZ),
+      mul(m2V, at(A.f1[d], tA)),
+      mul(at(A.sf[d], bz), PZ),
       PZ2,
       mul(B.f0[d], offW),
-      mul(m2W, at(B.f1[d], 2 / 3)),
-      mul(c(2), mul(at(B.sf[d], 1 / 3), bad)),
+      mul(m2W, at(B.f1[d], tB)),
+      mul(c(2), mul(at(B.sf[d], rb), bad)),
       mul(PB, bad),
       mul(A.sf[d], PB),
     );
   }
   return add(
     mul(A.sf[d], offV),
-    mul(m2V, at(A.f0[d], 1 / 2)),
+    mul(m2V, at(A.f0[d], tA)),
     // the bad Z set: pi_A(u/6) P(|Z| > u/6) up to |Z| = u/2 (u - V within [u/6, 11u/6] there), then |V| <= r_b + |Z|:
     // (u/3) P(|Z| > u/2) + E[|Z|; |Z| > u/2]
-    mul(at(A.pi[d], 1 / 6), PZ),
-    mul(mono(1 / 3, -1), PZ2),
-    at(z.E1, 1 / 2),
+    mul(at(A.pi[d], bz), PZ),
+    mul(mono(up(R.b), -1), PZ2),
+    at(z.E1, k),
     mul(B.sf[d], offW),
-    mul(m2W, at(B.f0[d], 2 / 3)),
-    mul(add(at(B.pi[d], 1 / 3), B.pi[d]), bad),
-    mul(at(B.sf[d], 1 / 3), offW),
-    mul(PB, add(at(A.pi[d], 2 / 3), at(z.E1, 2 / 3))),
+    mul(m2W, at(B.f0[d], tB)),
+    mul(add(at(B.pi[d], rb), B.pi[d]), bad),
+    mul(at(B.sf[d], rb), offW),
+    mul(PB, add(at(A.pi[d], half), at(z.E1, half))),
     mul(A.pi[d], PB),
   );
 }
@@ -357,17 +386,38 @@ function sideSum(p: Poly, u1: number, T: number): number {
 
 /**
  * Bound on the aliasing the two terms' images leave at period T, for every x in [xLo, xHi]; the stop-loss kind includes the
- * factor 2 of the E|X - q| sum. Infinity where the nearest image is within 6 t0 of m (the parts' majorants need t >= t0).
+ * factor 2 of the E|X - q| sum. Infinity where the nearest image is too near m for every radii set (the parts' majorants
+ * need t >= t0: 6 t0 for the first set).
  */
 export function pairAliasing(L: PairLaw, xLo: number, xHi: number, T: number, kind: PairKind): number {
   const slack = 8 * U * (Math.abs(xLo) + Math.abs(xHi) + Math.abs(L.m) + T);
   const uR = xLo + T - L.m - slack;
   const uL = L.m - xHi + T - slack;
-  const need = 6 * Math.max(L.A.t0, L.B.t0);
-  if (!(uR >= need && uL >= need)) return Infinity;
-  let s = sideSum(imageBound(L, 0, kind, uR, false), uR, T) + sideSum(imageBound(L, 1, kind, uL, false), uL, T);
-  // with Z's tails from its split where the images are far enough for it (Z's tails are read at u/6 and beyond): the less
-  if (L.zs && Math.min(uR, uL) / 6 >= L.zs.minR) s = Math.min(s, sideSum(imageBound(L, 0, kind, uR, true), uR, T) + sideSum(imageBound(L, 1, kind, uL, true), uL, T));
+  // every radii set gives a bound: the first call at a period tries them all and keeps the best one's index for the later
+  // calls at that period (the root finders ask for hundreds of nearby points; the choice does not change what is bounded)
+  // (all of them again where the one kept does not apply at this point)
+  const key = `${kind}:${T}`;
+  const chosen = (L.radii ??= new Map()).get(key);
+  const withRadii = (r: number) => {
+    const need = up(Math.max(L.A.t0, L.B.t0) / leastRead(RADII[r]));
+    if (!(uR >= need && uL >= need)) return Infinity;
+    const v = sideSum(imageBound(L, 0, kind, uR, false, r), uR, T) + sideSum(imageBound(L, 1, kind, uL, false, r), uL, T);
+    // with Z's tails from its split where the images are far enough for it (Z's tails are read at r_z and beyond): the less
+    if (!L.zs || !(down(Math.min(uR, uL) * RADII[r].z) >= L.zs.minR)) return v;
+    return Math.min(v, sideSum(imageBound(L, 0, kind, uR, true, r), uR, T) + sideSum(imageBound(L, 1, kind, uL, true, r), uL, T));
+  };
+  let s = chosen === undefined ? Infinity : withRadii(chosen);
+  if (!(s < Infinity)) {
+    let best = -1;
+    for (let r = 0; r < RADII.length; r++) {
+      const v = withRadii(r);
+      if (v < s) {
+        s = v;
+        best = r;
+      }
+    }
+    if (chosen === undefined && best >= 0) L.radii.set(key, best);
+  }
   return (kind === "stopLoss" ? 2 * s : s) * (1 + 4 * U);
 }
 
