@@ -102,10 +102,45 @@ export function heavyPart(tail: PowerTail, m: number, spread: number): Heavy | n
       M2.q.push(q - 2);
     } else M2.c[0] += ((2 * c * Math.pow(t0, 2 - q)) / (q - 2)) * (1 + 8 * U);
   }
-  let EA = t0;
+  const below = belowT0(tail, m, t0);
+  M2.c[0] += below.m2 - t0 * t0 * (1 + 2 * U);
+  let EA = below.e1;
   for (let i = 0; i < P.c.length; i++) EA += (P.c[i] * Math.pow(t0, 1 - P.q[i])) / (P.q[i] - 1);
   if (![E1, M2].every((p) => p.c.every((c) => Number.isFinite(c)))) return null;
   return { t0, sf: [r.sf, l.sf], pi: [r.pi, l.pi], f0: [r.f0, l.f0], f1: [r.f1, l.f1], f2: [r.f2, l.f2], fmax: tail.fmax, P, E1, M2, EA: EA * (1 + 4 * U) };
+}
+
+/**
+ * int_0^t0 P(|H| > s) ds and int_0^t0 2 s P(|H| > s) ds (the parts of E|H| and E[H^2; |H| <= r] below t0), at most t0 and
+ * t0^2: P(|H| > s) is non-increasing, so on each piece [s_j, s_{j+1}] of a geometric grid (t0 2^(-j/4), down to t0 / 256,
+ * then [0, t0 / 256] with P <= 1) it is at most its value at s_j, each side's from the majorant in the distance from its
+ * origin z = s + d (m - origin) where z >= from (that distance itself, not the lower bound kappa s used beyond t0: the
+ * majorants' origin may lie several units from m, where t0 = 8 |m - origin| made t0^2 the whole of E[B^2; ...]), else 1;
+ * a side with an end has none beyond it. Every product and sum rounded up (64 u overall).
+ */
+function belowT0(tail: PowerTail, m: number, t0: number): { e1: number; m2: number } {
+  const side = (d: 1 | -1, sd: PowerSide, t: number): number => {
+    if ("end" in sd) return t >= d * (sd.end - m) ? 0 : 1;
+    const z = t + d * (m - sd.origin);
+    if (!(z >= sd.from && z > 0)) return 1;
+    let v = 0;
+    const f = sd.d[0];
+    for (let i = 0; i < f.a.length; i++) v += f.p[i] > 1 ? ((f.a[i] * Math.pow(z, 1 - f.p[i])) / (f.p[i] - 1)) * (1 + 8 * U * (f.p[i] + 3)) : Infinity;
+    return v * (1 + 4 * (f.a.length + 2) * U);
+  };
+  const P = (t: number) => Math.min(1, side(1, tail.right, t) + side(-1, tail.left, t));
+  const N = 32;
+  let lo = t0 * 2 ** (-N / 4);
+  let e1 = lo;
+  let m2 = lo * lo;
+  for (let j = N - 1; j >= 0; j--) {
+    const hi = j === 0 ? t0 : t0 * 2 ** (-j / 4);
+    const p = P(lo);
+    e1 += (hi - lo) * p;
+    m2 += (hi * hi - lo * lo) * p;
+    lo = hi;
+  }
+  return { e1: Math.min(t0, e1 * (1 + 64 * U)), m2: Math.min(t0 * t0, m2 * (1 + 64 * U)) * (1 + 2 * U) };
 }
 
 /** sum the coefficients of equal powers (each sum rounded up) */
