@@ -14,11 +14,14 @@ import { residualAliasing, type ResidualLaw } from "./heavy-residual";
  *     (for r_z < |Z| <= u/2, u - V lies in [u/6, 11u/6], where S_A(u - V) and S_A(u) both lie in [0, S_A(u/6)]);
  *   on |B| > r_b: P(B > max(u - W, r_b)) + P(u - W < B < -r_b) - P(A > u) P(|B| > r_b), and
  *     E S_B(max(u - W, r_b)) - S_B(u) = Taylor in W on |A| <= r_a, |Z| <= r_z (u - W >= r_b there) plus at most
- *     2 S_B(r_b) (P(|A| > r_a) + P(|Z| > r_z)) elsewhere; P(u - W < B < -r_b) <= P(|B| > r_b) (P(|A| > r_a) + P(|Z| > r_z)).
+ *     S_B(r_b) (P(|A| > r_a) + P(|Z| > r_z)) elsewhere (both terms lie in [0, S_B(r_b)], so their difference is at most
+ *     the larger); P(u - W < B < -r_b) <= P(|B| > r_b) (P(|A| > r_a) + P(|Z| > r_z)).
  * The stop-loss transform the same way, with pi_A, S_A, f_A one derivative lower, |pi'| <= 1 (so the bad part of the Z split
  * costs pi_A(u/6) P(|Z| > r_z) + r_b P(|Z| > u/2) + E[|Z|; |Z| > u/2]), and on |B| > r_b phi(t) = E[(B - t)^+; B > r_b] (= pi_B(t) for t >= r_b,
- * at most pi_B(r_b) + (r_b - t) S_B(r_b) below): |phi(u - W) - pi_B(u)| <= pi_B(r_b) + pi_B(u) + |W| S_B(r_b) off the good
- * set; E[(B + W - u)^+; B < -r_b] <= P(|B| > r_b) E[(W - u - r_b)^+], (a + b - t)^+ <= (a - t/2)^+ + (b - t/2)^+.
+ * pi_B(r_b) + (r_b - t) S_B(r_b) below): off the good set both phi(u - W) and pi_B(u) lie in [0, pi_B(r_b) +
+ * (W - u + r_b)^+ S_B(r_b)], so |phi(u - W) - pi_B(u)| is at most that, and E[(W - (u - r_b))^+] <= pi_A((u - r_b)/2) +
+ * E[|Z|; |Z| > (u - r_b)/2]; E[(B + W - u)^+; B < -r_b] <= P(|B| > r_b) E[(W - u - r_b)^+], (a + b - t)^+ <= (a - t/2)^+ +
+ * (b - t/2)^+.
  * The heavy parts' tails, truncated moments and density majorants come from their power-law majorants
  * (../direct/power-tail.ts) in the distance t from m (for t >= t0, where the distance to the majorant's origin is at least
  * 7t/8); Z's from Markov's inequality on its even moments (./moment-tails.ts). Every piece is then a sum of powers c u^-q
@@ -193,6 +196,7 @@ function imageBoundAt(L: PairLaw, d: 0 | 1, kind: PairKind, z: { P: Poly; E1: Po
   const tB = down(1 - R.a - R.z);
   const bz = down(1 - R.b - R.k);
   const half = down((1 + R.b) / 2);
+  const far = down((1 - R.b) / 2);
   const PZ = at(z.P, rz);
   const E1Z = at(z.E1, rz);
   const EZ = Math.sqrt(L.vZ) * (1 + 2 * U);
@@ -219,7 +223,7 @@ function imageBoundAt(L: PairLaw, d: 0 | 1, kind: PairKind, z: { P: Poly; E1: Po
     //   + [E f_B(u - W) 1{u - W > r_b} - f_B(u)] + E f_W(u - B) 1{B < -r_b}   (int_{|b| > r_b} f_B(b) f_W(u - b) db split
     // at b = r_b and b = -r_b, W = A + Z): the cdf's pieces one derivative higher (Taylor with f'' on the good sets), the
     // bad Z set at most f_A(u/6) P(|Z| > r_z) + fmax_A P(|Z| > u/2) in the first, the bad set of the third at most
-    // (f_B(u/3) + f_B(u)) P(bad),
+    // f_B's majorant at r_b times P(bad) (both f_B(u - W) 1{u - W > r_b} and f_B(u) lie between 0 and it),
     // and the last at most P(|B| > r_b) (f_A(u) + fmax_A P(|Z| > r_z)) (u - B - Z >= u on |Z| <= r_z there)
     return add(
       mul(A.f1[d], offV),
@@ -229,7 +233,7 @@ function imageBoundAt(L: PairLaw, d: 0 | 1, kind: PairKind, z: { P: Poly; E1: Po
       mul(A.f0[d], PB),
       mul(B.f1[d], offW),
       mul(m2W, at(B.f2[d], tB)),
-      mul(c(2), mul(at(B.f0[d], rb), bad)),
+      mul(at(B.f0[d], rb), bad),
       mul(PB, add(A.f0[d], mul(c(A.fmax), PZ))),
     );
   }
@@ -241,7 +245,7 @@ function imageBoundAt(L: PairLaw, d: 0 | 1, kind: PairKind, z: { P: Poly; E1: Po
       PZ2,
       mul(B.f0[d], offW),
       mul(m2W, at(B.f1[d], tB)),
-      mul(c(2), mul(at(B.sf[d], rb), bad)),
+      mul(at(B.sf[d], rb), bad),
       mul(PB, bad),
       mul(A.sf[d], PB),
     );
@@ -256,8 +260,8 @@ function imageBoundAt(L: PairLaw, d: 0 | 1, kind: PairKind, z: { P: Poly; E1: Po
     at(z.E1, k),
     mul(B.sf[d], offW),
     mul(m2W, at(B.f0[d], tB)),
-    mul(add(at(B.pi[d], rb), B.pi[d]), bad),
-    mul(at(B.sf[d], rb), offW),
+    mul(at(B.pi[d], rb), bad),
+    mul(at(B.sf[d], rb), add(at(A.pi[d], far), at(z.E1, far))),
     mul(PB, add(at(A.pi[d], half), at(z.E1, half))),
     mul(A.pi[d], PB),
   );
