@@ -84,9 +84,9 @@ export function runQuantiles(body: z.infer<typeof QuantilesBody>) {
     const rn = quantiles(neg, body.p.map((p) => 1 - p), { expectedShortfall: true, tolerance: body.tolerance });
     r.expectedShortfall = rn.expectedShortfall?.map((v) => -v);
     d.expectedShortfallError = rn.diagnostics.expectedShortfallError;
-    // its bounds' caveats and a shortfall goal it missed belong to this answer too
-    if (d.tolerance && rn.diagnostics.shortfallGoalMissed) d.tolerance.met = false;
-    d.notes.push(...rn.diagnostics.notes.map((n) => `lower-tail expected shortfall (the negated law's upper tail): ${n}`));
+    // its bounds' caveats and a shortfall goal it missed belong to this answer too (its notes not already said)
+    if (d.tolerance && rn.diagnostics.tolerance && !rn.diagnostics.tolerance.met) d.tolerance.met = false;
+    for (const n of rn.diagnostics.notes) if (!d.notes.includes(n)) d.notes.push(`lower-tail expected shortfall (the negated law's upper tail): ${n}`);
   }
   return {
     p: body.p,
