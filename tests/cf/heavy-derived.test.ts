@@ -3,8 +3,8 @@
 // RICHARDSON_ESTIMATE_NOTE and its quantile and ES bounds hold against references computed outside the engine: mpmath
 // numerical convolution at 24 digits (tests/fixtures/sums/generate.py, two convolutions with the roles swapped) and
 // mpmath Fourier inversion of the closed-form CF at 20 digits, E|X - q| at 30 (tests/fixtures/sums/generate_cf.py,
-// tanh-sinh checked by Gauss-Legendre). Where no bound can be derived (two stable terms: no single heaviest term with
-// a rest of finite variance) the note stays.
+// tanh-sinh checked by Gauss-Legendre). Two stable terms of different alpha have the pair's bound (./heavy-residual2.ts);
+// where no bound can be derived (two stables of equal alpha: no heaviest term, no pair) the note stays.
 import { describe, expect, it } from "vitest";
 import { readFileSync } from "node:fs";
 import { compile, density, quantiles } from "@/lib/cf";
