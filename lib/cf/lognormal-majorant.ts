@@ -159,11 +159,20 @@ export function lognormalDampedBounds(
     });
   // per damping: each order's numerator N_k = sum_j C(k, j) beta^{k - j} n_j (a handful of dampings per model: the plan's
   // probes and the chosen one); the bound of order k at t is N_k / t^k
+  // the last damping's pair first: a probe asks at one beta for each of its ~430 frequencies, and a string key per call
+  // (the number's formatting) cost as much as the bounds themselves
   const memo = new Map<string, Float64Array>();
+  const last: Record<"f" | "g", { beta: number; c: Float64Array }> = { f: { beta: NaN, c: new Float64Array(0) }, g: { beta: NaN, c: new Float64Array(0) } };
   const numerators = (which: "f" | "g", beta: number) => {
+    const l = last[which];
+    if (l.beta === beta) return l.c;
     const key = `${which}${beta}`;
     let c = memo.get(key);
-    if (c) return c;
+    if (c) {
+      l.beta = beta;
+      l.c = c;
+      return c;
+    }
     const n = get()[which];
     const out: number[] = [];
     for (let k = 0; k < n.length; k++) {
@@ -179,6 +188,8 @@ export function lognormalDampedBounds(
     c = Float64Array.from(out);
     if (memo.size > 64) memo.clear();
     memo.set(key, c);
+    l.beta = beta;
+    l.c = c;
     return c;
   };
   // each numerator within a few ulps per term (binomials exact below 2^53, the power and products a few roundings, the sum

@@ -117,6 +117,28 @@ export function phiBounds(sev: SeverityKernel, beta: number, tp: Float64Array, p
  * (derivTail) or E N m^{j-1}; the last probe's hold past it. The masses taken out are the count's own within their
  * rounding, which the per-node noise allows for (severityPsi).
  */
+/**
+ * P_N's upper bounds at m and at m + (1 - m) / 2 for every probe's m, kept with the bounds: a compound with a two-claim term
+ * makes both remainders' floors (j = 2 and 3) from one probe, and the count's cumulant function at each is most of their cost
+ */
+const PGF_AT = new WeakMap<PhiBounds, { count: object; P: Float64Array; P2: Float64Array }>();
+function pgfAt(count: NonNullable<SeverityKernel["count"]>, pb: PhiBounds) {
+  const hit = PGF_AT.get(pb);
+  if (hit && hit.count === count) return hit;
+  const pgf = pgfBounds(count, { upper: count.absError, lower: 0 }).upper;
+  const n = pb.m.length;
+  const P = new Float64Array(n);
+  const P2 = new Float64Array(n);
+  for (let i = 0; i < n; i++) {
+    const m = pb.m[i];
+    P[i] = pgf(m);
+    if (m < 1) P2[i] = pgf(m + 0.5 * (1 - m));
+  }
+  const v = { count, P, P2 };
+  PGF_AT.set(pb, v);
+  return v;
+}
+
 export function derivedFloor(count: NonNullable<SeverityKernel["count"]>, pb: PhiBounds, pairOut: boolean): DerivedBounds {
   const j = pairOut ? 3 : 2;
   const n = pb.m.length;
@@ -124,13 +146,13 @@ export function derivedFloor(count: NonNullable<SeverityKernel["count"]>, pb: Ph
   const slope = new Float64Array(n);
   // P_N at real s in [0, 1] from the count's cumulant function at log s, within its stated errors (a steep count, Poisson(1000):
   // P_N(0.98) = e^-20, where its table's series bound is still of the order E N)
-  const pgf = pgfBounds(count, { upper: count.absError, lower: 0 }).upper;
+  const { P: Pm, P2 } = pgfAt(count, pb);
   for (let i = 0; i < n; i++) {
     const m = pb.m[i];
-    const P = pgf(m);
+    const P = Pm[i];
     // sum_{n >= j} n p_n m^{n-1} <= P_N'(m) <= (P_N(m') - P_N(m)) / (m' - m) for m < m' <= 1 (P_N' increases on [0, 1])
     const m2 = m + 0.5 * (1 - m);
-    const secant = m < 1 ? (pgf(m2) - Math.max(0, P - 2 * count.absError - 2 * (count.relError + 64 * EPS) * P)) / (m2 - m) : Infinity;
+    const secant = m < 1 ? (P2[i] - Math.max(0, P - 2 * count.absError - 2 * (count.relError + 64 * EPS) * P)) / (m2 - m) : Infinity;
     const D = Math.min(count.derivTail ? count.derivTail(m, j) : Infinity, count.mean * Math.pow(m, j - 1), secant * (1 + 4 * EPS));
     // sum_{n >= j} p_n m^n is at most P_N(m) itself, m^j, and (m / j) D
     size[i] = Math.min(Math.pow(m, j), P, (m / j) * D) * (1 + 8 * EPS);
