@@ -184,6 +184,8 @@ export function dampedPlan(
   const can = model.dampedSeverity?.count && model.dampedSeverity.pair && model.support[0] === 0 && plain.K > PAIR_COST * points;
   const pair = can ? plan(true) : null;
   if (!pair) return plain.plan;
+  // here too a plan that reaches the truncation target before one that does not, then the cost at the points
+  if (pair.reach <= 1 !== plain.reach <= 1) return pair.reach <= 1 ? pair.plan : plain.plan;
   return pair.K + PAIR_COST * points < plain.K ? pair.plan : plain.plan;
 }
 

@@ -59,12 +59,17 @@ export function noiseFloor(part: ContinuousPart): (t: number) => number {
 
 /** Geometric probe frequencies PER_OCTAVE per octave from 1e-3 / scale over 54 octaves. */
 export function probeFrequencies(scale: number): Float64Array {
+  // the last scale's frequencies again (every probe of a model asks for them; never written to by their users)
+  if (lastProbe.scale === scale) return lastProbe.t;
   const t0 = 1e-3 / scale;
   const n = 54 * PER_OCTAVE + 1;
   const t = new Float64Array(n);
   for (let i = 0; i < n; i++) t[i] = t0 * Math.pow(STEP, i);
+  lastProbe.scale = scale;
+  lastProbe.t = t;
   return t;
 }
+const lastProbe = { scale: NaN, t: new Float64Array(0) as Float64Array };
 
 /**
  * The model's log-CF on a probe (t0 STEP^i, i < n), computed up to `done` and kept per compiled model: the same model is
