@@ -91,4 +91,12 @@ describe("answers of the power-tail route say their bound is partly estimated", 
     expect(d.tolerance?.met, `tolerance: ${JSON.stringify(d.tolerance)}, notes: ${JSON.stringify(d.notes)}`).toBe(false);
     expect(d.notes.some((n) => /^expected shortfall goal .* not reached at p = .*0\.9999/.test(n)), `notes: ${JSON.stringify(d.notes)}`).toBe(true);
   });
+
+  it("a mixture holding two stables + uniform: its component's missed ES goal reaches the mixture's tolerance report", () => {
+    const m = { mix: [{ weight: 0.5, of: twoStables }, { weight: 0.5, of: { family: "normal", mu: 0, sigma: 1 } }] };
+    const d = quantiles(compile(m as never), [0.0001, 0.9999], { expectedShortfall: true }).diagnostics;
+    expect(d.notes.includes(RICHARDSON_ESTIMATE_NOTE), `notes: ${JSON.stringify(d.notes)}`).toBe(false);
+    expect(d.tolerance?.met, `tolerance: ${JSON.stringify(d.tolerance)}, notes: ${JSON.stringify(d.notes)}`).toBe(false);
+    expect(d.notes.some((n) => /expected shortfall goal not reached in a power-tailed component/.test(n)), `notes: ${JSON.stringify(d.notes)}`).toBe(true);
+  });
 });

@@ -25,6 +25,8 @@ export interface Component {
   excesses?(qs: readonly number[], allow?: readonly number[]): ({ value: number; error: number } | null)[];
   terms(): number;
   notes(): string[];
+  /** optional: whether an expected shortfall answered fell short of its goal (a power-tail component's derived bound) */
+  shortfallMissed?(): boolean;
   method: string;
   /**
    * A component with a range (the damped route): deferred(true) answers points beyond it from the monotone bound

@@ -141,9 +141,11 @@ function heavyComponent(w: number, m: CompiledModel, tol: number, tail: number):
   };
   const at = windowed(inside, a, b, m.support);
   const mean = m.momentIndex > 1 ? m.cumulants(1)[0] : null;
-  let excessAt: ((q: number, target: number) => { value: number; error: number; estimated?: boolean }) | null = null;
+  let excessAt: ((q: number, target: number) => { value: number; error: number; estimated?: boolean; reached?: boolean }) | null = null;
   // whether any value answered rests on the Richardson estimate (the ladder's, or an expected shortfall's)
   let esEstimated = false;
+  // whether a derived stop-loss bound stayed above its goal (reported, not replaced by the estimate: ./shortfall.ts)
+  let esMissed = false;
   return {
     w,
     atoms,
@@ -155,13 +157,16 @@ function heavyComponent(w: number, m: CompiledModel, tol: number, tail: number):
       // E[(X - q)^+] to about 1e-8 of the tail mass beyond q, on the scale of q (as the quantile route's ES)
       const r = excessAt(q, 1e-8 * Math.max(v.S, 1e-12) * Math.max(1, Math.abs(q), shape.spread));
       if (r.estimated) esEstimated = true;
+      else if (!r.reached) esMissed = true;
       return r;
     },
     terms: () => lad.levels[lad.levels.length - 1].K,
     notes: () => [
       `power tails: ${lad.levels.length} period doublings from T = ${T0.toPrecision(4)}, Richardson extrapolation`,
       ...(lad.estimated || esEstimated ? [RICHARDSON_ESTIMATE_NOTE] : []),
+      ...(esMissed ? ["expected shortfall goal not reached in a power-tailed component: its derived stop-loss bound is larger; the expectedShortfallError entries carry it"] : []),
     ],
+    shortfallMissed: () => esMissed,
     method: "gil-pelaez",
   };
 }

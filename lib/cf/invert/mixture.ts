@@ -244,6 +244,7 @@ export function mixtureQuantiles(model: CompiledModel, p: Float64Array, o: Quant
       quantileError: err,
       expectedShortfallError: esErr,
       notes: [...new Set(notes)],
+      ...(cs.some((c) => c.shortfallMissed?.()) ? { shortfallGoalMissed: true } : {}),
     },
   };
 }
