@@ -7,7 +7,7 @@ import { describe, expect, it } from "vitest";
 import { readFileSync } from "node:fs";
 import { compile } from "@/lib/cf";
 import { heavyLadder } from "@/lib/cf/invert/heavy-ladder";
-import { heavyShortfall } from "@/lib/cf/invert/shortfall";
+import { heavyShortfall } from "@/lib/cf/invert/shortfall-heavy";
 import { lawShape } from "@/lib/cf/invert/range";
 
 const c = (
