@@ -117,6 +117,8 @@ export function compoundNode(N: Node, X: Node, discretise: DiscretiseOptions | n
     },
   };
   withCumulantErrors(node, compoundE(N, X));
+  const relAt = dampedRelErrorAt(N, X);
+  if (relAt && node.dampedLogCf) node.dampedRelErrorAt = { cf: node.dampedLogCf, at: relAt };
   if (layered && X.severity?.edges) {
     const { a0, a1, v } = layered;
     node.densityJumps = layerCompoundJumps(N, a0, a1, v, layered.byCount, X.severity.edges);
@@ -333,6 +335,20 @@ function compoundErrors(N: Node, X: Node, unlisted: number): { cfAbsError: numbe
   if (eX === 0) return { cfAbsError: nAbs, cfRelError: N.cfRelError ?? 0 };
   if (N.cgfSlope !== undefined && Number.isFinite(N.cgfSlope)) return { cfAbsError: nAbs, cfRelError: N.cgfSlope * eX + (N.cfRelError ?? 0) };
   return { cfAbsError: (N.cumulants(1)[0] ?? Infinity) * eX + nAbs, cfRelError: N.cfRelError ?? 0 };
+}
+
+/**
+ * compoundErrors' relative error at frequency t, damping beta, where the severity bounds its damped transform's error per
+ * frequency (Node.dampedErrorAt, for the transforms compoundDamped takes) and the count's cumulant function has a slope
+ */
+function dampedRelErrorAt(N: Node, X: Node): ((beta: number, t: number) => number) | null {
+  const e = X.dampedErrorAt;
+  const s = N.cgfSlope;
+  if (!e || e.cf !== X.dampedLogCf || e.rect !== X.dampedCf || s === undefined || !Number.isFinite(s)) return null;
+  const xRel = X.cfRelError ?? 0;
+  const nRel = N.cfRelError ?? 0;
+  const whole = compoundErrors(N, X, 0).cfRelError;
+  return (beta, t) => Math.min(whole, s * (e.at(beta, t) + xRel) + nRel);
 }
 
 /** the atoms of a compound of per-claim layered claims (atom a0 at 0, a1 at the limit v), or null */

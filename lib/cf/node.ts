@@ -78,6 +78,13 @@ export interface Node {
   cfAbsError?: number;
   /** bound on the relative error of the CF values (compounds of numerical CFs: |dP/P| <= slope |d phi_X|) */
   cfRelError?: number;
+  /**
+   * severities: a bound at frequency t, damping beta, on the damped transform's absolute error (at most cfAbsError), valid
+   * only with the dampedLogCf and dampedCf named there; `shifted(b)`: the same for the law moved by b
+   */
+  dampedErrorAt?: { cf: DampedLogCf; rect?: DampedLogCf; at(beta: number, t: number): number; shifted?(b: number): (beta: number, t: number) => number };
+  /** compounds: a bound at t, damping beta, on the damped transform's relative error (at most cfRelError), valid only with the dampedLogCf named there */
+  dampedRelErrorAt?: { cf: DampedLogCf; at(beta: number, t: number): number };
   /** severities: the endpoint expansion of the Laplace transform (compounds choose gamma kernels from it) */
   laplaceExpansion?: EndpointSeries;
   /** severities: a derived bound on what the transform leaves past laplaceExpansion's terms (compounds bound their kernels' remainder by it) */

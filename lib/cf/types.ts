@@ -61,6 +61,8 @@ export interface CompiledModel {
   readonly cfAbsError?: number;
   /** bound on the relative error of the CF values (compounds of numerical severities) */
   readonly cfRelError?: number;
+  /** a bound at frequency t, damping beta, on dampedLogCf's relative error, at most cfRelError (compounds whose severity bounds its own per frequency) */
+  dampedRelErrorAt?(beta: number, t: number): number;
   /** log E[exp((i t - beta) X)], beta >= 0, for aggregate laws bounded below (compounds): the damped inversion's input */
   dampedLogCf?(beta: number, t: Float64Array, re: Float64Array, im: Float64Array): void;
   /** gamma kernels the damped inversion subtracts from the transform and adds back in closed form (compounds of

@@ -249,6 +249,29 @@ export function pareto(alpha: number, xm: number): Node {
   // Watson's remainder at most 1 in modulus) is below 1e-16 of its sum times alpha / tau < 1/3
   const cfError =
     paretoRuleError(alpha, h) + 1e-16 / 3 + aSum * (2e-25 + 97 * Number.EPSILON) + ruleRounding(n + Math.ceil(710 / h), aSum, aSum * (16 + (2 + Math.PI) * q)) + alpha * Number.EPSILON;
+  // Per frequency (Node.dampedErrorAt): every rounding above is relative to the moduli of the terms summed, and those fall
+  // like 1 / (xm t). Laplace route: |c_j| <= h r_j, so the terms' moduli sum to at most sum_j h r_j e^{-xm t r_j}, the
+  // trapezoidal rule for int_0^inf e^{-tau r} dr = 1 / tau (tau = xm t) in v = log r, within 2 sqrt(2) / tau over
+  // e^{pi^2 / (2 h)} - 1 (< 1e-13 for h <= 0.15) on the strip |Im v| < pi/4 (there |e^{v - tau e^v}| <= e^{x - tau e^x / sqrt 2},
+  // whose integral is sqrt(2) / tau; the same theorem); expSumArithmetic's shortcut errors are relative to |c_j| e^{-D} with
+  // D within 1 of xm t r_j (moment nodes: t_end e_j |w| <= 1; shifted blocks: SHIFT_BLOCK d e_j |w| <= 1; the recurrence:
+  // relative to the current term), a factor e at most; the damped phase folded into c_j rounds within u xm beta r_j of
+  // each term, summing to u xm beta / tau^2 <= u / tau (t >= beta). The u-rule: |1 + i u / tau| >= 1 and sum_j w_j is the
+  // same rule for int e^{v - e^v} dv = 1, so the moduli times alpha / |tau| are at most alpha (1 + 1e-13) / (xm t). The
+  // series (tau > 40 + 3 alpha): terms (alpha + 1)_j / |tau|^j, non-increasing, at most 2^-j while the ratio is below 1/2
+  // and at most 2^-18 for the |tau| or fewer beyond, summing to below 2.001. All times e^{-xm beta} (|e^{i tau}|). So the
+  // rounding part, per unit of aSum, is charged on min(aSum, e alpha e^{-xm beta} (1 + 1e-13) / (xm t)); the rule's
+  // aliasing and range, the series' remainder, the phase tau's alpha u and the dropped terms (expSumArithmetic: each below
+  // 1e-21 times g <= alpha, at most mMax of them, the Laplace range's node count at any tau) stay constant.
+  const roundPart = aSum * (2e-25 + 97 * Number.EPSILON) + ruleRounding(n + Math.ceil(710 / h), aSum, aSum * (16 + (2 + Math.PI) * q));
+  const mMax = Math.min(MAX_QUADRATURE_NODES, Math.ceil((Math.max(0, (19 * Math.LN10) / alpha) + 19 * Math.LN10 + Math.max(0, Math.log(alpha))) / h) + 2);
+  const constPart = paretoRuleError(alpha, h) + 1e-16 / 3 + alpha * Number.EPSILON + alpha * mMax * 1e-21;
+  /** the error at frequency t (damping beta) of the damped transform moved by `shift` (its factor e^{-beta shift}) */
+  const errorAt = (shift: number) => (beta: number, t: number) => {
+    const fall = (Math.E * alpha * Math.exp(-xm * beta) * (1 + 1e-13)) / (xm * Math.abs(t));
+    const e = (constPart + (roundPart / aSum) * Math.min(aSum, fall)) * Math.exp(-beta * shift) * (1 + 8 * Number.EPSILON);
+    return Math.min(cfError, e);
+  };
   const raw = (m: number) => (alpha * xm ** m) / (alpha - m);
   const expansion = paretoExpansion(alpha, xm);
   return {
@@ -260,6 +283,7 @@ export function pareto(alpha: number, xm: number): Node {
     cfAbsError: cfError,
     dampedLogCf,
     dampedCf,
+    dampedErrorAt: { cf: dampedLogCf, rect: dampedCf, at: errorAt(0), shifted: errorAt },
     laplaceExpansion: expansion,
     // the expansion's Watson remainder, bounded (../endpoint-remainder.ts): a compound's kernels leave a derived remainder
     endpointRemainder: paretoRemainder(alpha, xm, expansion),

@@ -223,12 +223,17 @@ export function lomax(alpha: number, theta: number): Node {
     lo: 0,
     hi: Infinity,
   };
+  const dampedLogCf = shiftDamped(-theta, p);
+  const dampedCf = shiftDampedCf(-theta, p);
+  const pe = p.dampedErrorAt;
   return {
     ...p,
     notes: [`lomax CF computed by quadrature on a rotated contour (absolute error <= ${p.cfAbsError!.toPrecision(2)})`],
     // X = P - theta with P pareto(alpha, theta): the damped transform and the endpoint expansion move with the shift
-    dampedLogCf: shiftDamped(-theta, p),
-    dampedCf: shiftDampedCf(-theta, p),
+    dampedLogCf,
+    dampedCf,
+    // the pareto's per-frequency bound times the shift's factor e^{beta theta}
+    ...(pe?.shifted && dampedLogCf ? { dampedErrorAt: { cf: dampedLogCf, rect: dampedCf, at: pe.shifted(-theta) } } : { dampedErrorAt: undefined }),
     laplaceExpansion: expansion,
     // e^{s 0} E e^{-s X} = e^{s theta} E e^{-s P}: the pareto's own remainder, its series moved to 0
     ...(p.endpointRemainder ? { endpointRemainder: { ...p.endpointRemainder, series: expansion } } : {}),
