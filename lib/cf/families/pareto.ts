@@ -267,10 +267,14 @@ export function pareto(alpha: number, xm: number): Node {
   const mMax = Math.min(MAX_QUADRATURE_NODES, Math.ceil((Math.max(0, (19 * Math.LN10) / alpha) + 19 * Math.LN10 + Math.max(0, Math.log(alpha))) / h) + 2);
   const constPart = paretoRuleError(alpha, h) + 1e-16 / 3 + alpha * Number.EPSILON + alpha * mMax * 1e-21;
   /** the error at frequency t (damping beta) of the damped transform moved by `shift` (its factor e^{-beta shift}) */
+  // (the two exponents in one exp: lomax's cancel exactly, where e^{-xm beta} alone could underflow; a numerator below 1e-290,
+  // perhaps underflowed, is taken as 1e-290, and a denominator below it, t = 0 included, takes the constant)
   const errorAt = (shift: number) => (beta: number, t: number) => {
-    const fall = (Math.E * alpha * Math.exp(-xm * beta) * (1 + 1e-13)) / (xm * Math.abs(t));
-    const e = (constPart + (roundPart / aSum) * Math.min(aSum, fall)) * Math.exp(-beta * shift) * (1 + 8 * Number.EPSILON);
-    return Math.min(cfError, e);
+    const g = Math.exp(-beta * shift);
+    const num = Math.E * alpha * Math.exp(-xm * beta - beta * shift) * (1 + 1e-13);
+    const den = xm * Math.abs(t);
+    const f = den >= 1e-290 ? Math.min(aSum * g, Math.max(num, 1e-290) / den) : aSum * g;
+    return Math.min(cfError, (constPart * g + (roundPart / aSum) * f) * (1 + 8 * Number.EPSILON));
   };
   const raw = (m: number) => (alpha * xm ** m) / (alpha - m);
   const expansion = paretoExpansion(alpha, xm);
