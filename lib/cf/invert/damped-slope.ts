@@ -6,6 +6,25 @@ import type { Probed } from "./damped-psi";
 const EPS = Number.EPSILON;
 
 /**
+ * A slope envelope, with `far` where its steps end at the last probe t_n and no slope bound is derived past it
+ * (./damped-sum-slope.ts): there sum_{k >= K} |c_k - c_{k+1}| takes, besides the steps' integral up to t_n, at most
+ * 2 sum of |c_k| over the nodes from the last one at or below t_n, and (h / pi) times that is at most h step + tail for
+ * h <= hMax (the proof with farNumerator there); Infinity for a larger step
+ */
+export type SlopeEnvelope = Envelope & { far?: { step: number; tail: number; hMax: number } };
+
+/** the far part of the numerator at step h (0 without one) */
+function farPart(slope: SlopeEnvelope, h: number): number {
+  const f = slope.far;
+  return !f ? 0 : h <= f.hMax ? h * f.step + f.tail : Infinity;
+}
+
+/** h times the slope envelope's density-type tail at t (interpolated as the setup does), plus its far part */
+function tauAt(slope: SlopeEnvelope, h: number, t: number): number {
+  return (h * truncationFrom(slope, t).pdf + farPart(slope, h)) * (1 + 4 * EPS);
+}
+
+/**
  * A non-increasing envelope of |c'(t)|, c = psi_c / (beta - i t) the cdf sum's coefficient function, on the probe
  * frequencies (as the envelope of |psi_c|: the samples' running maximum from the right), or null where it is not derived.
  * For a compound of a severity with a slope bound (SeverityKernel.slope) whose atoms all sit at lo = 0 (constant in t):
@@ -84,8 +103,8 @@ export function slopeEnvelope(
  * the slope envelope's density-type tail. By summation by parts (Abel), with partial sums of e^{-i t_k y} at most
  * 1 / |sin(h y / 2)|, the truncated sum at y is at most tau / |sin(h y / 2)|.
  */
-export function slopeNumerator(slope: Envelope, h: number, tK: number): number {
-  return h * truncationFrom(slope, tK).pdf * (1 + 4 * EPS);
+export function slopeNumerator(slope: SlopeEnvelope, h: number, tK: number): number {
+  return tauAt(slope, h, tK);
 }
 
 /** the cdf sum's truncation bound at y = x - lo: the smaller of the envelope's (uniform) and tau / |sin(h y / 2)| */
@@ -122,21 +141,21 @@ export function truncationSup(uniform: number, tau: number, h: number, beta: num
 }
 
 /** the cdf truncation at y = span for a cut-off at probe i of the plan's envelopes: the envelope's, or tau / sin(h span / 2) */
-function truncationEnd(env: Envelope, slope: Envelope, i: number, T: number, span: number): number {
+function truncationEnd(env: Envelope, slope: SlopeEnvelope, i: number, T: number, span: number): number {
   const u = env.tailCdf[i];
   const h = (2 * Math.PI) / T;
   const sn = Math.abs(Math.sin(0.5 * h * span)) - 4 * EPS * (1 + h * span);
-  return sn > 0 ? Math.min(u, (h * slope.tailPdf[i]) / sn) : u;
+  return sn > 0 ? Math.min(u, (h * slope.tailPdf[i] + farPart(slope, h)) / sn) : u;
 }
 
 /** the smallest probe frequency where the truncation at the range's end reaches the target (undefined if none) */
-export function slopeCutoff(env: Envelope, slope: Envelope, T: number, span: number, target: number): number | undefined {
+export function slopeCutoff(env: Envelope, slope: SlopeEnvelope, T: number, span: number, target: number): number | undefined {
   for (let i = 0; i < env.t.length; i++) if (truncationEnd(env, slope, i, T, span) <= target) return env.t[i];
   return undefined;
 }
 
 /** the truncation at the range's end for a cut-off tmax (the probe on its left: an over-estimate) */
-export function slopeTruncationAt(env: Envelope, slope: Envelope, tmax: number, T: number, span: number): number {
+export function slopeTruncationAt(env: Envelope, slope: SlopeEnvelope, tmax: number, T: number, span: number): number {
   let i = 0;
   while (i + 1 < env.t.length && env.t[i + 1] <= tmax) i++;
   return truncationEnd(env, slope, i, T, span);
@@ -148,9 +167,9 @@ export function slopeTruncationAt(env: Envelope, slope: Envelope, tmax: number, 
  * the slope envelope's tail, both interpolated to t as the setup does (truncationFrom); for sums answered at every point
  * of the range (grids, points)
  */
-function truncationRange(env: Envelope, of: "cdf" | "pdf", slope: Envelope, t: number, T: number, beta: number, span: number): number {
+function truncationRange(env: Envelope, of: "cdf" | "pdf", slope: SlopeEnvelope, t: number, T: number, beta: number, span: number): number {
   const h = (2 * Math.PI) / T;
-  return truncationSup(truncationFrom(env, t)[of], h * truncationFrom(slope, t).pdf * (1 + 4 * EPS), h, beta, span);
+  return truncationSup(truncationFrom(env, t)[of], tauAt(slope, h, t), h, beta, span);
 }
 
 /**
@@ -160,7 +179,7 @@ function truncationRange(env: Envelope, of: "cdf" | "pdf", slope: Envelope, t: n
  * is valid, the setup bounds the sums it keeps), from the first probe whose uniform tail is within the target (the bound
  * is never below it), then by bisection between that probe and the one before (the probes are 9% apart)
  */
-export function slopeCutoffRange(env: Envelope, of: "cdf" | "pdf", slope: Envelope, T: number, beta: number, span: number, target: number): number | undefined {
+export function slopeCutoffRange(env: Envelope, of: "cdf" | "pdf", slope: SlopeEnvelope, T: number, beta: number, span: number, target: number): number | undefined {
   const t = env.t;
   const ok = (x: number) => truncationRange(env, of, slope, x, T, beta, span) <= target;
   // the bound is at least the uniform tail itself (truncationSup never falls below it): no probe above the target can do
@@ -185,6 +204,6 @@ export function slopeCutoffRange(env: Envelope, of: "cdf" | "pdf", slope: Envelo
 }
 
 /** truncationRange at a cut-off tmax */
-export function slopeTruncationRange(env: Envelope, of: "cdf" | "pdf", slope: Envelope, tmax: number, T: number, beta: number, span: number): number {
+export function slopeTruncationRange(env: Envelope, of: "cdf" | "pdf", slope: SlopeEnvelope, tmax: number, T: number, beta: number, span: number): number {
   return truncationRange(env, of, slope, tmax, T, beta, span);
 }
