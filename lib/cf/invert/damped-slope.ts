@@ -21,6 +21,8 @@ function farPart(slope: SlopeEnvelope, h: number): number {
 
 /** h times the slope envelope's density-type tail at t (interpolated as the setup does), plus its far part */
 function tauAt(slope: SlopeEnvelope, h: number, t: number): number {
+  // below the first probe no slope bound holds (each holds from its probe on): the steps' integral starts there
+  if (slope.far && !(t >= slope.t[0])) return Infinity;
   return (h * truncationFrom(slope, t).pdf + farPart(slope, h)) * (1 + 4 * EPS);
 }
 

@@ -50,8 +50,8 @@ export function sumSlopeBounds(model: CompiledModel, atoms: Atom[], beta: number
  * where K > N). With E_i >= |c| at every t >= t_i (the derived envelope of |psi_c|; over |beta - i t| >= t for the cdf)
  * and h <= t_n - t_{n-2} (then t_N > t_n - h >= t_{n-2}): |c_N| <= E_{n-2}, the first node past t_n <= E_{n-1}, each
  * further one at most (1 / h) times the integral over the cell before it of the size bound past t_n, in all I / h with
- * I = int_{t_n}^inf of it <= pi times the derived envelope's tail at t_n (tailPdf, tailCdf: either is that integral, or it
- * over pi). So (h / pi) 2 sum |c_k| <= h (2 / pi) (E_{n-2} + E_{n-1}) + 2 tail(t_n) (`far`; the tail Infinity where not derived).
+ * I = int_{t_n}^inf of it (the cdf's: the derived envelope's tailCdf at t_n, R / q, that integral or it over pi; the
+ * density's from the size bound's power, see below). So (h / pi) 2 sum |c_k| <= h (2 / pi) (E_{n-2} + E_{n-1}) + 2 tail(t_n) (`far`; the tail Infinity where not derived).
  */
 export function sumSlopeEnvelopes(model: CompiledModel, atoms: Atom[], beta: number, env: Probed, pdf: boolean): { c: SlopeEnvelope; p: SlopeEnvelope | null } | null {
   const s = sumSlopeBounds(model, atoms, beta, env);
@@ -63,6 +63,11 @@ export function sumSlopeEnvelopes(model: CompiledModel, atoms: Atom[], beta: num
     const d2 = beta * beta + tp[i] * tp[i];
     mc[i] = (s[i] / Math.sqrt(d2) + env.env[i] / d2) * (1 + 8 * EPS);
   }
+  // the density's I: not the envelope's tailPdf, which where the power is 1 is the split's (jumpTail: what G's inversion
+  // misses, not an integral of |psi_c|), but the size bound's own power past t_n, R (t_n / t)^q, as ./damped-psi.ts probeAt
+  // forms it: int = R t_n / (q - 1) for q > 1, else none (over pi for the tail's units; 2 tail then bounds 2 I / pi)
+  const { R, q } = sizePower(model, beta, tp[n - 1]);
+  const farPdf = q > 1 ? ((R * tp[n - 1]) / ((q - 1) * Math.PI)) * (1 + 8 * EPS) : Infinity;
   const make = (mag: Float64Array, of: "cdf" | "pdf"): SlopeEnvelope => {
     const e = envelopeOf(tp, mag, () => 0);
     const tailPdf = new Float64Array(n);
@@ -73,9 +78,34 @@ export function sumSlopeEnvelopes(model: CompiledModel, atoms: Atom[], beta: num
     }
     // E_i: |psi_c| itself for the density, over |beta - i t| >= t_i for the cdf
     const E = (i: number) => (of === "pdf" ? env.env[i] : env.env[i] / tp[i]);
-    const tail = of === "pdf" ? env.tailPdf[n - 1] : env.tailCdf[n - 1];
+    const tail = of === "pdf" ? farPdf : env.tailCdf[n - 1];
     const far = { step: ((2 * (E(n - 2) + E(n - 1))) / Math.PI) * (1 + 8 * EPS), tail: 2 * tail * (1 + 4 * EPS), hMax: tp[n - 1] - tp[n - 2] };
     return { ...e, tailPdf, derived: true, far };
   };
   return { c: make(mc, "cdf"), p: pdf ? make(s, "pdf") : null };
+}
+
+/**
+ * R and q with |psi_c(t)| <= R (t_n / t)^q for t >= t_n, as ./damped-psi.ts probeAt takes them for the tail of a sum bounded
+ * through the operators: the operators' decay (../damped-majorant.ts), each kernel adding w e^{-beta (at - lo)} (rate / t_n)^shape
+ * (r >= t) at power shape, or the kernel rest's (../damped-kernel-rest.ts) where its R / q is the smaller (the atom's
+ * difference is 0 here: probeAt derives no tail otherwise)
+ */
+function sizePower(model: CompiledModel, beta: number, tn: number): { R: number; q: number } {
+  const dm = model.dampedMajorant!;
+  const lo = model.support[0];
+  const d = dm.decay(beta, tn);
+  let R = d.R;
+  let q = d.q;
+  for (const k of model.dampedKernels ?? []) {
+    const w = Math.abs(k.w) * Math.exp(-beta * (k.at - lo)) * (1 + 8 * EPS);
+    R += w * Math.pow(k.rate / tn, k.shape) * (1 + 16 * EPS);
+    q = Math.min(q, k.shape);
+  }
+  const kr = dm.kernelRest && dm.kernelRest.kernels === model.dampedKernels ? dm.kernelRest : null;
+  if (kr) {
+    const dk = kr.decay(beta, tn);
+    if (dk.q > 0 && dk.R / dk.q < R / q) return dk;
+  }
+  return { R, q };
 }
