@@ -79,15 +79,19 @@ export function slopeEnvelope(
   const e0 = envelopeOf(tp, mag, () => 0);
   // (the envelope of |psi_c| is raised to its own derived floor where the severity has these bounds: ./damped-psi.ts)
   const e: Envelope = pb ? { ...e0, derived: true } : e0;
-  if (of === "pdf" && sev.absBound) {
+  if (sev.absBound) {
     // past the last probe the density-type tail from the closed forms, not the last octave's decay (there |phi| + d sits
     // on its floor d, so |psi_c'| looks like 1/t and its tail infinite): |phi| <= A / t and |phi'| <= S / t give
-    // |psi_c'| <= W A^j S / t^{j+1}, whose integral from t_n is W A^j S / (j t_n^j); the steps below the last probe kept
+    // |psi_c'| <= W A^j S / t^{j+1}, whose integral from t_n is W A^j S / (j t_n^j); the steps below the last probe kept.
+    // The cdf's |c'| <= |psi_c'| / t + |psi_c| / t^2 (|beta - i t| >= t): W A^j S / ((j + 1) t_n^{j+1}) and, |psi_c| past
+    // t_n within the last probe's envelope value (with its noise), that value over t_n
     const tn = tp[n - 1];
     const A = sev.absBound(tn) * tn;
     const S = sev.slope(tn) * tn;
     const j = pairOut ? 2 : 1;
-    let sp = ((W * Math.pow(A, j) * S) / (j * Math.pow(tn, j))) * (1 + 16 * EPS);
+    let sp =
+      (of === "pdf" ? (W * Math.pow(A, j) * S) / (j * Math.pow(tn, j)) : (W * Math.pow(A, j) * S) / ((j + 1) * Math.pow(tn, j + 1)) + (env.env[n - 1] + noise[n - 1]) / tn) *
+      (1 + 16 * EPS);
     if (!Number.isFinite(sp)) return e;
     const tailPdf = new Float64Array(n);
     tailPdf[n - 1] = sp / Math.PI;
