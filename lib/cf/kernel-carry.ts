@@ -73,4 +73,8 @@ export function carryShiftKernels(node: Node, b: number, c: Node) {
   const k = c.dampedKernels;
   if (k && k.cf === c.dampedLogCf && node.dampedLogCf)
     node.dampedKernels = { cf: node.dampedLogCf, kernels: k.kernels.map((x) => ({ ...x, at: x.at + b })), rate: k.rate };
+  // the remainder after the atom at lo and the kernels, taken relative to lo (../invert/damped-psi.ts psiOf), is the
+  // child's own: e^{(i t - beta) b} cancels against the lower end's b; its bound and split carry unchanged
+  const r = c.dampedRemainder;
+  if (r && r.cf === c.dampedLogCf && node.dampedLogCf && node.dampedKernels) node.dampedRemainder = { ...r, cf: node.dampedLogCf };
 }

@@ -45,16 +45,20 @@ function erlangMixture(c: Count, rate: number, scale: number) {
 
 describe("compound of exponential claims: density grid with a derived bound", () => {
   it.each([
-    [{ family: "poisson", lambda: 21.561 } as Count, 0.331, 1],
-    [{ family: "negative_binomial", r: 1.733, p: 0.519 } as Count, 1.029, 1],
-    [{ family: "poisson", lambda: 2 } as Count, 1, 1000],
-  ])("%j x exponential(%s), scaled by %s", (count, rate, scale) => {
+    [{ family: "poisson", lambda: 21.561 } as Count, 0.331, 1, 0],
+    [{ family: "negative_binomial", r: 1.733, p: 0.519 } as Count, 1.029, 1, 0],
+    [{ family: "poisson", lambda: 2 } as Count, 1, 1000, 0],
+    // shifted: the remainder taken relative to the lower end is the compound's own (lib/cf/kernel-carry.ts)
+    [{ family: "poisson", lambda: 2 } as Count, 1.974, 1, -0.852],
+  ])("%j x exponential(%s), scaled by %s, shifted by %s", (count, rate, scale, shift = 0) => {
     const compound = { compound: { count, each: { family: "exponential", rate } } };
-    const model = (scale === 1 ? compound : { scale, of: compound }) as Model;
+    const scaled = scale === 1 ? compound : { scale, of: compound };
+    const model = (shift === 0 ? scaled : { shift, of: scaled }) as Model;
     const c = compile(model);
-    const ref = erlangMixture(count, rate, scale);
+    const base = erlangMixture(count, rate, scale);
+    const ref = (x: number) => base(x - shift);
     const hi = c.location + 8 * c.scale;
-    const d = density(c, { grid: { from: 0, to: hi, count: 1000 } });
+    const d = density(c, { grid: { from: shift, to: hi, count: 1000 } });
     expect(d.diagnostics.method).toBe("fft-damped");
     const notes = d.diagnostics.notes.join(" ");
     expect(notes, "derived truncation bound").toContain("derived bounds on the transform's size");

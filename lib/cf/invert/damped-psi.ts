@@ -252,7 +252,8 @@ function probeAt(model: CompiledModel, atoms: Atom[], beta: number, pairOut: boo
   psiOf(model, atoms, beta, pairOut, true)(tp, pr, pi, nz);
   // the model's own bound on what is left after its atoms at 0 and kernels (a compound of gamma claims), non-increasing
   const rb = model.dampedRemainderBound;
-  if (derived && rb && model.support[0] === 0 && atoms.every((a) => a.x === 0)) {
+  // (relative to lo, as psiOf takes it: a shifted compound's remainder is the compound's own, ../kernel-carry.ts)
+  if (derived && rb && Number.isFinite(model.support[0]) && atoms.every((a) => a.x === model.support[0])) {
     const size = Float64Array.from(tp, (t) => rb(beta, t));
     // past the last probe t_n the bound falls at least like (t_n / t)^q: a term c sigma^-e, e >= q, is at most
     // c sigma_n^-e (sigma_n / t_n)^e (t_n / t)^q (sigma = |rate + beta - i t| >= t), and sigma_n / t_n is 1 within 1e-20 there
