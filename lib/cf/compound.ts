@@ -253,12 +253,16 @@ interface ExactKernels {
  * the true p_n's distance from them enters, at most 16 (J + 1) u M in all), P(N > J) = 1 - sum_{n <= J} p_n is taken up
  * by J + 2 ulps of its terms, and P_N(M) = exp(cgf(log M)) within 64 u (1 + |cgf|) of the exp and log.
  */
-function gammaRemainderBound(k: ExactKernels): (beta: number, t: number) => number {
+/** J, P(N > J) within the rounding of its terms, and the weights' allowance 16 (J + 1) u (see gammaRemainderBound) */
+function gammaTail(k: ExactKernels): { J: number; tail: number; slack: number } {
   const J = k.pn.length - 1;
   let head = 0;
   for (let n = 0; n <= J; n++) head += k.pn[n];
-  const tail = Math.min(1, Math.max(0, 1 - head) + (J + 4) * Number.EPSILON * Math.max(1, head));
-  const slack = 16 * (J + 1) * Number.EPSILON;
+  return { J, tail: Math.min(1, Math.max(0, 1 - head) + (J + 4) * Number.EPSILON * Math.max(1, head)), slack: 16 * (J + 1) * Number.EPSILON };
+}
+
+function gammaRemainderBound(k: ExactKernels): (beta: number, t: number) => number {
+  const { J, tail, slack } = gammaTail(k);
   return (beta, t) => {
     const rb = k.rate + beta;
     const M = Math.min(1, Math.pow(k.rate / Math.sqrt(rb * rb + t * t), k.shape) * (1 + 8 * Number.EPSILON));
@@ -282,12 +286,8 @@ function gammaRemainderBound(k: ExactKernels): (beta: number, t: number) => numb
  * at 0, above 1 the whole bound falls faster than 1 / t).
  */
 function gammaRemainderJump(k: ExactKernels): RemainderJump | null {
-  const J = k.pn.length - 1;
+  const { J, tail, slack } = gammaTail(k);
   if (k.shape !== 1 || J < 1) return null;
-  let head = 0;
-  for (let n = 0; n <= J; n++) head += k.pn[n];
-  const tail = Math.min(1, Math.max(0, 1 - head) + (J + 4) * Number.EPSILON * Math.max(1, head));
-  const slack = 16 * (J + 1) * Number.EPSILON;
   return {
     fast: (beta, t) => {
       const rb = k.rate + beta;

@@ -24,11 +24,14 @@ export interface PhiBounds {
  * part enters as pi V.
  */
 export function jumpTail(j: RemainderJump | undefined, beta: number, tn: number): number {
-  if (!j || !(j.decay > 1)) return Infinity;
-  const F = j.fast(beta, tn) * 1.001;
-  return ((F * tn) / (j.decay - 1) + Math.PI * j.tv(beta)) * (1 + 8 * EPS);
+  return j ? splitTail(j.fast(beta, tn) * 1.001, j.decay, j.tv(beta), tn) : Infinity;
 }
 
+/** the same from the fast part's size F past t_n (its power `decay`) and the slow part's total variation tv */
+export function splitTail(F: number, decay: number, tv: number, tn: number): number {
+  if (!(decay > 1)) return Infinity;
+  return ((F * tn) / (decay - 1) + Math.PI * tv) * (1 + 8 * EPS);
+}
 
 /** per probe: a non-increasing bound on |psi_c| past it (size), and one on |psi_c'| past it (slope) */
 export interface DerivedBounds {

@@ -5,7 +5,7 @@ import { kernelsMass } from "../damped-kernels";
 import { kernelsRounding, subtractKernels } from "../damped-kernels-sum";
 import { scratch } from "../damped-scratch";
 import { envelopeOf, probeFrequencies, type Envelope } from "./nodes";
-import { derivedEnvelope, derivedFloor, jumpTail, phiBounds, type DerivedBounds, type PhiBounds } from "./damped-envelope";
+import { derivedEnvelope, derivedFloor, jumpTail, phiBounds, splitTail, type DerivedBounds, type PhiBounds } from "./damped-envelope";
 
 export type { PhiBounds };
 
@@ -325,7 +325,7 @@ function probeAt(model: CompiledModel, atoms: Atom[], beta: number, pairOut: boo
     }
     // past the last probe: int R (t_n / t)^q / t = R / q (cdf) and int R (t_n / t)^q = R t_n / (q - 1) (density), the atom's
     // difference not decaying
-    const pdfSplit = sp ? jumpTail({ fast: () => sp.R / 1.001, decay: sp.q, tv: () => sp.tv }, beta, tn) : Infinity;
+    const pdfSplit = sp ? splitTail(sp.R, sp.q, sp.tv, tn) : Infinity;
     const tail = off > 0 || !(q > 0) ? null : { cdf: (R / q) * (1 + 4 * EPS), pdf: Math.min(q > 1 ? ((R * tn) / (q - 1)) * (1 + 4 * EPS) : Infinity, pdfSplit) };
     if (tail) return { ...envelopeFrom(tp, pr, pi, nz, null, { size, slope, tail }), throughOperators: true };
   }
