@@ -8,6 +8,7 @@ import { normalCdfBounded, type Bounded } from "../families/normal-bounded";
 import { directPoint, type DirectLaw, type DirectPoint } from "./types";
 import { oneTailSplit } from "./stable-one-tail";
 import { paretoPowerTail, studentPowerTail, type PowerTail } from "./power-tail";
+import { gammaStopLoss, lognormalStopLoss, normalStopLoss } from "./stop-loss";
 import { bounds, ELEM, EPS, law, SQRT2PI, withExcess, withMode, withMonotoneTail } from "./law";
 
 const U = EPS / 2;
@@ -30,7 +31,7 @@ function phiBoth(z: number, o: DirectPoint) {
 }
 
 export function normalDirect(mu: number, sigma: number): DirectLaw {
-  return withMode(mu, law(
+  return normalStopLoss(withMode(mu, law(
     "special-function",
     [-Infinity, Infinity],
     mu,
@@ -46,12 +47,12 @@ export function normalDirect(mu: number, sigma: number): DirectLaw {
     },
     (p) => mu + sigma * normalQuantile(p, 0, 1),
     "normal cdf by the bounded incomplete gamma, Q(1/2, z^2/2)/2",
-  ));
+  )), mu, sigma);
 }
 
 export function lognormalDirect(mu: number, sigma: number): DirectLaw {
   const med = Math.exp(mu);
-  return withMode(Math.exp(mu - sigma * sigma), law(
+  return lognormalStopLoss(withMode(Math.exp(mu - sigma * sigma), law(
     "special-function",
     [0, Infinity],
     med,
@@ -74,7 +75,7 @@ export function lognormalDirect(mu: number, sigma: number): DirectLaw {
     },
     (p) => Math.exp(mu + sigma * normalQuantile(p, 0, 1)),
     "lognormal cdf by the bounded incomplete gamma of log x",
-  ));
+  )), mu, sigma);
 }
 
 /**
@@ -91,7 +92,7 @@ export function gammaDirect(shape: number, rate: number): DirectLaw {
   const r: IncGamma = { p: 0, q: 0, pErr: 0, qErr: 0 };
   const mean = shape / rate;
   const exp1 = shape === 1;
-  return withMode(shape > 1 ? (shape - 1) / rate : 0, law(
+  return gammaStopLoss(withMode(shape > 1 ? (shape - 1) / rate : 0, law(
     exp1 ? "closed-form" : "special-function",
     [0, Infinity],
     mean,
@@ -122,7 +123,7 @@ export function gammaDirect(shape: number, rate: number): DirectLaw {
     },
     exp1 ? (p) => -Math.log1p(-p) / rate : (p) => (p > 0.5 ? gammaincinv(1 - p, shape, true) : gammaincinv(p, shape, false)) / rate,
     exp1 ? "exponential cdf by expm1" : "gamma cdf by the regularised incomplete gamma function (series and continued fraction with derived bounds)",
-  ));
+  )), shape, rate);
 }
 
 export function paretoDirect(alpha: number, xm: number): DirectLaw {

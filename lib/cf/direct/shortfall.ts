@@ -60,6 +60,8 @@ export function directShortfalls(
   const value = new Float64Array(n).fill(NaN);
   const error = new Float64Array(n).fill(NaN);
   const tails = new Array<TailIntegral | null>(n).fill(null);
+  // per level: its tail integral is the lower one, int_-inf^q F (else the upper, int_q^inf S)
+  const lowerAt = new Uint8Array(n);
   const sides: Record<1 | -1, number[]> = { 1: [], [-1]: [] };
   // below the median through the lower tail only with a bounded mean
   const lowerOk = index.left > 1 && mean !== null && Number.isFinite(meanErr);
@@ -75,10 +77,19 @@ export function directShortfalls(
       continue;
     }
     const dir = p[i] < 0.5 && lowerOk ? -1 : 1;
-    // a law with its own stop-loss transform at q answers the tail integral from it, value and bound
-    const own = law.stopLoss?.(q[i], dir);
-    if (own && Number.isFinite(own.v) && Number.isFinite(own.e)) tails[i] = { val: own.v, lo: own.v - own.e, hi: own.v + own.e, whole: true };
-    else sides[dir].push(i);
+    // a law with its own stop-loss transform at q answers the tail integral from it, value and bound; below the median
+    // a law with only the upper one answers E[(X - q)^+] from it directly (no mean needed: the sweep's brackets are
+    // O(panel^3) and stay thousands of times the closed form's rounding)
+    let own = law.stopLoss?.(q[i], dir);
+    let ownDir = dir;
+    if (!(own && Number.isFinite(own.v) && Number.isFinite(own.e)) && dir === -1) [own, ownDir] = [law.stopLoss?.(q[i], 1), 1];
+    if (own && Number.isFinite(own.v) && Number.isFinite(own.e)) {
+      tails[i] = { val: own.v, lo: own.v - own.e, hi: own.v + own.e, whole: true };
+      lowerAt[i] = ownDir === -1 ? 1 : 0;
+    } else {
+      sides[dir].push(i);
+      lowerAt[i] = dir === -1 ? 1 : 0;
+    }
   }
   for (const dir of [1, -1] as const) {
     // outwards from the median: ascending above it, descending below
@@ -91,7 +102,7 @@ export function directShortfalls(
   for (let i = 0; i < n; i++) {
     const t = tails[i];
     if (!t) continue;
-    const lower = p[i] < 0.5 && lowerOk;
+    const lower = lowerAt[i] === 1;
     law.at(q[i], pt);
     const fq = pt.pdf + pt.pdfErr;
     // a sweep that ran out of panels (a law without its mode: monotone bounds only) or of a bound on what lies past
