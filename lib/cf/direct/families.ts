@@ -8,7 +8,7 @@ import { normalCdfBounded, type Bounded } from "../families/normal-bounded";
 import { directPoint, type DirectLaw, type DirectPoint } from "./types";
 import { oneTailSplit } from "./stable-one-tail";
 import { paretoPowerTail, studentPowerTail, type PowerTail } from "./power-tail";
-import { gammaStopLoss, lognormalStopLoss, normalStopLoss } from "./stop-loss";
+import { gammaStopLoss, lognormalStopLoss, normalStopLoss, weibullStopLoss } from "./stop-loss";
 import { bounds, ELEM, EPS, law, SQRT2PI, withExcess, withMode, withMonotoneTail } from "./law";
 
 const U = EPS / 2;
@@ -158,7 +158,7 @@ function withPowerTail(powerTail: PowerTail, law: DirectLaw): DirectLaw {
 }
 
 export function weibullDirect(shape: number, scale: number): DirectLaw {
-  return withMode(shape > 1 ? scale * Math.pow((shape - 1) / shape, 1 / shape) : 0, law(
+  return weibullStopLoss(withMode(shape > 1 ? scale * Math.pow((shape - 1) / shape, 1 / shape) : 0, law(
     "closed-form",
     [0, Infinity],
     scale * Math.pow(Math.LN2, 1 / shape),
@@ -177,7 +177,7 @@ export function weibullDirect(shape: number, scale: number): DirectLaw {
       if (!Number.isFinite(o.pdf)) o.pdfErr = 0;
     },
     (p) => scale * Math.exp(Math.log(-Math.log1p(-p)) / shape),
-  ));
+  )), shape, scale);
 }
 
 export function uniformDirect(a: number, b: number): DirectLaw {
