@@ -190,8 +190,12 @@ export function tailSweep(law: DirectLaw, qs: readonly number[], dir: 1 | -1, re
     // the next panel: the bracket's width grows like its length cubed, its allowance like the length (beyond the spread,
     // like the length relative to the distance: a slow tail's long reach adds to the total only as its logarithm); the
     // tightest allowance among the levels passed
+    // (never below ES_TOL G(b): the panel's own integral is at least its length times that, so such widths stay ES_TOL
+    // relative to every level's integral; a law whose tail stays near 1 over many spreads, the far side of a heavy
+    // lower tail, then takes long panels instead of running out of them)
     let unit = Infinity;
     for (let i = 0; i <= cur; i++) unit = Math.min(unit, ES_TOL * Math.max(G0[i], floor[i]) * Math.min(1, s / (a - ds[i])));
+    unit = Math.max(unit, (ES_TOL * bLo) / 16);
     const gap = pHi - pLo;
     const grow = gap > 0 ? 0.9 * Math.sqrt((unit * wd) / gap) : 2;
     // a panel cut short (by a node) does not hold back the next beyond twice the step it was meant to take
