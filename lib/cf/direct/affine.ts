@@ -1,5 +1,6 @@
 import { affinePowerTail } from "./power-tail";
 import { directPoint, type DirectLaw, type DirectPoint } from "./types";
+import { twoProdErr, twoSumErr } from "../moment-error";
 
 /**
  * The law of a X + b from the law of X (a != 0 finite): F_Y(y) = F_X((y - b)/a) for a > 0, S_X((y - b)/a) for a < 0,
@@ -48,7 +49,23 @@ export function affineDirect(law: DirectLaw, a: number, b: number): DirectLaw {
       if (law.singular && Number.isFinite(out.pdf) && law.singular.some((s) => Math.abs(x - s) <= 1e6 * dx)) {
         const f0 = out.pdf;
         const e0 = out.pdfErr;
-        if (law.singular.some((s) => Math.abs(x - s) <= dx)) pdfMove = Infinity;
+        // the rounding interval around a singular point: the cdf moves by the mass on it (the density is unbounded there)
+        if (law.singular.some((s) => Math.abs(x - s) <= dx)) move = Math.max(move, massAround(law, x, dx, near));
+        // a law that takes the offset from its one singular point exactly: that offset by error-free transformations,
+        // the density there and its move over the offset's own (relative) rounding, monotone on that side of the point
+        const off = law.singularPdf && law.singular.length === 1 ? exactOffset(y, a, b, law.singular[0]) : null;
+        if (off && off.e < Math.abs(off.d)) {
+          law.singularPdf!(off.d, near);
+          const fd = near.pdf;
+          const ed = near.pdfErr;
+          for (const dd of [off.d - off.e, off.d + off.e]) {
+            law.singularPdf!(dd, near);
+            pdfMove = Math.max(pdfMove, Math.abs(near.pdf - fd) + near.pdfErr + ed);
+          }
+          out.pdf = fd;
+          out.pdfErr = ed;
+          if (!Number.isFinite(pdfMove)) pdfMove = Infinity;
+        } else if (law.singular.some((s) => Math.abs(x - s) <= dx)) pdfMove = Infinity;
         else {
           const save = { ...out };
           for (const xe of [x - dx, x + dx]) {
@@ -116,4 +133,35 @@ export function affineDirect(law: DirectLaw, a: number, b: number): DirectLaw {
         }
       : {}),
   };
+}
+
+/**
+ * (y - b)/a - s with a bound on its error: y - b and a s each as an unevaluated sum by error-free transformations (Knuth's
+ * TwoSum, Dekker's TwoProduct; Higham, Accuracy and Stability of Numerical Algorithms, 2nd ed., sec. 4.3), their
+ * difference's leading part with its own TwoSum error, the three small parts summed (two roundings of at most u times
+ * their sizes) and added (u of the result), then the quotient (u of it); 1% for the bounds' own rounding. Null where
+ * TwoProduct does not apply.
+ */
+function exactOffset(y: number, a: number, b: number, s: number): { d: number; e: number } | null {
+  const u = Number.EPSILON / 2;
+  const hi = y - b;
+  const e1 = twoSumErr(y, -b, hi);
+  const P = a * s;
+  const e2 = twoProdErr(a, s, P);
+  if (e2 === null) return null;
+  const n1 = hi - P;
+  const e3 = twoSumErr(hi, -P, n1);
+  const n = n1 + (e1 - e2 + e3);
+  const eN = u * Math.abs(n) + 2 * u * (Math.abs(e1) + Math.abs(e2) + Math.abs(e3));
+  const d = n / a;
+  const e = 1.01 * (eN / Math.abs(a) + u * Math.abs(d));
+  return Number.isFinite(d) && Number.isFinite(e) ? { d, e } : null;
+}
+
+/** F(x + dx) - F(x - dx) from above, each end within its bound (a point's rounding interval around a singular point) */
+function massAround(law: DirectLaw, x: number, dx: number, near: DirectPoint): number {
+  law.at(x + dx, near);
+  const up = near.cdf + near.cdfErr;
+  law.at(x - dx, near);
+  return Math.max(up - (near.cdf - near.cdfErr), 0);
 }

@@ -67,6 +67,12 @@ export interface DirectLaw {
    * density's change over that rounding from the values either side
    */
   readonly singular?: readonly number[];
+  /**
+   * optional, with `singular`: the density at singular[0] + d for an offset d given exactly (pdf and pdfErr into out),
+   * so that a caller which knows the offset better than a rounded point (./affine.ts: (y - b)/a - s by error-free
+   * transformations) need not round it through x
+   */
+  singularPdf?(d: number, out: DirectPoint): void;
   /** short notes on the method (source of the formula, accuracy) */
   readonly notes: string[];
 }

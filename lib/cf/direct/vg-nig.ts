@@ -89,6 +89,25 @@ export function varianceGammaDirect(sigma: number, nu: number, theta: number, lo
     eAtLoc = atLoc * (eConst + lgammaErr(lam) + 8 * U * (Math.abs(lgl) + Math.abs(l2) + Math.abs(lam * Math.log(c0)) + 1) + 8 * U * lam);
   }
   const tS2 = theta / s2;
+  const pdfAt = (y: number, o: DirectPoint) => {
+    if (y === 0) {
+      o.pdf = atLoc;
+      o.pdfErr = Number.isFinite(atLoc) ? eAtLoc : 0;
+      return;
+    }
+    const ay = Math.abs(y);
+    const z = ay * b0;
+    const K = logBesselKScaledBounded(lam, z);
+    const ly = Math.log(ay);
+    const ex = tS2 * y;
+    const lf = logConst + ex + lam * ly + K.v - z;
+    o.pdf = Math.exp(lf);
+    // z within 6 roundings (c0, b0, the product); y within one, which moves log f along its slope
+    const slopeZ = besselKLogSlope(lam, z);
+    const slopeY = Math.abs(tS2) + Math.abs(lam) / ay + b0 * slopeZ;
+    const e = eConst + K.e + 6 * U * z * slopeZ + U * ay * slopeY + 4 * U * (Math.abs(ex) + Math.abs(lam * ly) + Math.abs(K.v) + z + Math.abs(lf)) + 2 * U * k * Math.abs(ly);
+    o.pdfErr = o.pdf * (e < 0.5 ? e * 1.01 : Math.expm1(e));
+  };
   const L = mixtureLaw(
     {
       mean: loc + theta,
@@ -98,30 +117,12 @@ export function varianceGammaDirect(sigma: number, nu: number, theta: number, lo
       q: (theta * Math.sqrt(nu)) / sigma,
       mix: { kind: "gamma", k },
       dPar: U,
-      pdf(y, o) {
-        if (y === 0) {
-          o.pdf = atLoc;
-          o.pdfErr = Number.isFinite(atLoc) ? eAtLoc : 0;
-          return;
-        }
-        const ay = Math.abs(y);
-        const z = ay * b0;
-        const K = logBesselKScaledBounded(lam, z);
-        const ly = Math.log(ay);
-        const ex = tS2 * y;
-        const lf = logConst + ex + lam * ly + K.v - z;
-        o.pdf = Math.exp(lf);
-        // z within 6 roundings (c0, b0, the product); y within one, which moves log f along its slope
-        const slopeZ = besselKLogSlope(lam, z);
-        const slopeY = Math.abs(tS2) + Math.abs(lam) / ay + b0 * slopeZ;
-        const e = eConst + K.e + 6 * U * z * slopeZ + U * ay * slopeY + 4 * U * (Math.abs(ex) + Math.abs(lam * ly) + Math.abs(K.v) + z + Math.abs(lf)) + 2 * U * k * Math.abs(ly);
-        o.pdfErr = o.pdf * (e < 0.5 ? e * 1.01 : Math.expm1(e));
-      },
+      pdf: pdfAt,
     },
     "variance-gamma density by its Bessel-K closed form, cdf and sf by the normal variance-mean mixture integral (trapezoidal rule, Trefethen-Weideman bound)",
   );
   // nu >= 2: the density is infinite at loc
-  return lam > 0 ? L : { ...L, singular: [loc] };
+  return lam > 0 ? L : { ...L, singular: [loc], singularPdf: (d: number, o: DirectPoint) => pdfAt(d, o) };
 }
 
 /**
