@@ -5,6 +5,7 @@ import { lgamma, lgammaErr } from "../families/special";
 import { incGammaBounded, incGammaShape, type IncGamma } from "../families/incgamma-bounded";
 import type { DirectLaw } from "./types";
 import { bounds, ELEM, EPS, law, logErfcxSlope, withExcess, withMode, withMonotoneTail } from "./law";
+import { twoProdErr, twoSumErr } from "../moment-error";
 
 /**
  * Direct laws of the claim-size families with closed-form or special-function distribution functions: lomax,
@@ -47,9 +48,12 @@ export function generalizedParetoDirect(xi: number, sigma: number, mu: number): 
           fromLogSf(o, -z, dz + EPS * z, Math.exp(-z) / sigma, ELEM + 2 * dz + 2 * EPS * z);
           return;
         }
-        const t = xi * z;
-        const et = Math.abs(xi) * dz + EPS * Math.abs(t);
-        if (t <= -1) {
+        // near a bounded law's upper end (1 + xi z below 1/2) the sum 1 + xi z by error-free transformations; elsewhere
+        // xi z keeps its relative accuracy (t - 1 from that sum would not, for small t)
+        const w1 = xi * z < -0.5 ? onePlus(xi, sigma, mu, x) : null;
+        const t = w1 ? w1.w - 1 : xi * z;
+        const et = w1 ? w1.e : Math.abs(xi) * dz + EPS * Math.abs(t);
+        if (w1 ? w1.w <= 0 : t <= -1) {
           // the upper end of a bounded law (xi < 0)
           o.sf = 0;
           o.cdf = 1;
@@ -57,7 +61,7 @@ export function generalizedParetoDirect(xi: number, sigma: number, mu: number): 
           o.sfErr = o.cdfErr = o.pdfErr = 0;
           return;
         }
-        const l = Math.log1p(t);
+        const l = w1 ? Math.log(w1.w) : Math.log1p(t);
         const el = et / (1 + t) + ELEM * Math.abs(l);
         const L = -l / xi;
         const eL = el / Math.abs(xi) + 2 * EPS * Math.abs(L);
@@ -75,6 +79,30 @@ export function generalizedParetoDirect(xi: number, sigma: number, mu: number): 
   );
   // xi < 0: S = (1 - |xi| z)^(1/|xi|) reaches 0 at the upper end, not completely monotone
   return xi >= 0 ? withMonotoneTail(gp) : gp;
+}
+
+/**
+ * w = 1 + xi (x - mu)/sigma = (sigma + xi (x - mu))/sigma with a bound on its error: x - mu, xi times it and sigma plus
+ * that each as an unevaluated sum (TwoSum, TwoProduct: Higham, Accuracy and Stability of Numerical Algorithms, 2nd ed.,
+ * sec. 4.3), the small parts summed (two roundings, 2u of their sizes), added (u |N|), divided (u |w|); 1% margin.
+ * Near a bounded law's upper end (w small) the plain product xi z kept u |xi z| of error, 1/w times w's size (a relative
+ * error of 1e-10 at w = 1e-6). Null where TwoProduct does not apply (the caller takes xi z).
+ */
+function onePlus(xi: number, sigma: number, mu: number, x: number): { w: number; e: number } | null {
+  const U = EPS / 2;
+  const d = x - mu;
+  const ed = twoSumErr(x, -mu, d);
+  const P = xi * d;
+  const eP = twoProdErr(xi, d, P);
+  if (eP === null) return null;
+  const Nh = sigma + P;
+  const eN = twoSumErr(sigma, P, Nh);
+  const small = eP + eN + xi * ed;
+  const N = Nh + small;
+  const errN = U * Math.abs(N) + 2 * U * (Math.abs(eP) + Math.abs(eN) + 2 * Math.abs(xi * ed));
+  const w = N / sigma;
+  const e = 1.01 * (errN / sigma + U * Math.abs(w));
+  return Number.isFinite(w) && Number.isFinite(e) ? { w, e } : null;
 }
 
 /** Lomax (pareto II): S = (1 + x/theta)^-alpha (Loss Models app. A.2.3.1); q_p = theta ((1 - p)^(-1/alpha) - 1). */
