@@ -42,6 +42,8 @@ export function directShortfall(
  * trapezoid sum, the error the distance to the farther end of its bracket, never an estimate.
  * `allow`: per level, an absolute width its tail integral's bracket may take (0: none), which the sweep spends on fewer
  * panels where it exceeds the level's own allowance (a mixture's component far in its tail, ../invert/mixture.ts).
+ * Also returned: E[(X - q)^+] itself at the q given (`excess`, within `excessError`: the tail integral's bracket and the
+ * mean's part, no quantile move), for a caller that sums it over components (a mixture) instead of taking ES - q back.
  * A law whose upper tail has no finite mean (index.right <= 1) has no ES: NaN. One without a mean only through its lower
  * tail (stable, alpha < 1, beta = -1: bounded above) has it, by the upper integral at every level (it was NaN).
  */
@@ -55,10 +57,12 @@ export function directShortfalls(
   meanErr: number,
   rest?: RestBound,
   allow?: ArrayLike<number>,
-): { value: Float64Array; error: Float64Array } {
+): { value: Float64Array; error: Float64Array; excess: Float64Array; excessError: Float64Array } {
   const n = q.length;
   const value = new Float64Array(n).fill(NaN);
   const error = new Float64Array(n).fill(NaN);
+  const excessV = new Float64Array(n).fill(NaN);
+  const excessE = new Float64Array(n).fill(NaN);
   const tails = new Array<TailIntegral | null>(n).fill(null);
   // per level: its tail integral is the lower one, int_-inf^q F (else the upper, int_q^inf S)
   const lowerAt = new Uint8Array(n);
@@ -117,8 +121,10 @@ export function directShortfalls(
     // (an exact quantile adds nothing, even where the density is infinite there)
     const move = qErr[i] > 0 ? (2 * fq * qErr[i] * qErr[i]) / w : 0;
     error[i] = (quad + meanPart) / w + move + 4 * Number.EPSILON * Math.abs(value[i]);
+    excessV[i] = excess;
+    excessE[i] = quad + meanPart;
   }
-  return { value, error };
+  return { value, error, excess: excessV, excessError: excessE };
 }
 
 /**

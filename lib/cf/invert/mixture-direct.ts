@@ -46,9 +46,9 @@ export function directComponent(w: number, m: CompiledModel): Component {
       rest ?? undefined,
       allow ? inside.map((i) => allow[i]) : undefined,
     );
+    // E[(X - q)^+] as the shortfall formed it (taking it back from q + excess / (1 - p) cost 4 eps |q| of rounding)
     inside.forEach((i, k) => {
-      const tail = 1 - ps[i];
-      out[i] = { value: (r.value[k] - qs[i]) * tail, error: r.error[k] * tail + 4 * Number.EPSILON * Math.abs(qs[i]) };
+      out[i] = Number.isFinite(r.excess[k]) ? { value: r.excess[k], error: r.excessError[k] } : { value: NaN, error: Infinity };
     });
     return out;
   };
