@@ -1,6 +1,7 @@
 import { lgamma, lgammaErr } from "../families/special";
 import { besselKLogSlope, logBesselKScaledBounded } from "../families/bessel-bounded";
-import type { DirectLaw, DirectPoint } from "./types";
+import { directPoint, type DirectLaw, type DirectPoint } from "./types";
+import { twoSumErr } from "../moment-error";
 import { EPS, law, unimodal } from "./law";
 import { mixtureTail, type Mixing } from "./mixture-tail";
 
@@ -63,23 +64,21 @@ function mixtureLaw(P: Parts, note: string): DirectLaw {
 }
 
 /**
- * Variance-gamma (sigma, nu, theta, loc) with the CF of lib/cf/families/continuous.ts, (1 - i theta nu t + sigma^2 nu
- * t^2/2)^{-1/nu}: X = loc + theta G + sigma sqrt(G) W, G ~ Gamma(shape 1/nu, scale nu). Density (MCC 1998, eq. 23):
- * 2 e^{theta y/sigma^2} / (nu^{1/nu} sqrt(2 pi) sigma Gamma(1/nu)) (|y|/c)^{lam} K_lam(|y| c / sigma^2), y = x - loc,
- * c = sqrt(2 sigma^2/nu + theta^2), lam = 1/nu - 1/2; at y = 0 its limit Gamma(lam)/2 (2 sigma^2/c^2)^lam times the
- * constant for nu < 2 (DLMF 10.30.2), +inf for nu >= 2.
+ * The density at y = x - loc of loc + theta V + sigma sqrt(V) W with V/nu ~ Gamma(kk, 1) (kk = 1/nu: the variance-gamma law;
+ * kk = 1/nu + 1: its size-biased mixing, E[V g(X)] / E[V]): 2 e^{theta y/sigma^2} / (nu^kk sqrt(2 pi) sigma Gamma(kk))
+ * (|y|/c)^lam K_lam(|y| c/sigma^2), lam = kk - 1/2, c = sqrt(2 sigma^2/nu + theta^2) (MCC 1998, eq. 23, with the shape
+ * kept apart from the scale: int v^{lam - 1} e^{-beta/v - gamma v} dv = 2 (beta/gamma)^{lam/2} K_lam(2 sqrt(beta gamma)));
+ * at y = 0 its limit Gamma(lam)/2 (2 sigma^2/c^2)^lam times the constant for lam > 0 (DLMF 10.30.2), +inf otherwise.
  */
-export function varianceGammaDirect(sigma: number, nu: number, theta: number, loc: number): DirectLaw | null {
-  if (!(sigma > 0 && nu > 0 && Number.isFinite(theta) && Number.isFinite(loc)) || nu > 1e3 || nu < 1e-3) return null;
-  const k = 1 / nu;
-  const lam = k - 0.5;
+function vgDensity(sigma: number, nu: number, theta: number, kk: number): (y: number, o: DirectPoint) => void {
+  const lam = kk - 0.5;
   const s2 = sigma * sigma;
   const c0 = Math.sqrt((2 * s2) / nu + theta * theta);
   const b0 = c0 / s2;
-  const lg = lgamma(k);
-  const base = [Math.LN2, -k * Math.log(nu), -0.5 * Math.log(2 * Math.PI), -Math.log(sigma), -lg];
+  const lg = lgamma(kk);
+  const base = [Math.LN2, -kk * Math.log(nu), -0.5 * Math.log(2 * Math.PI), -Math.log(sigma), -lg];
   const logConst = base.reduce((a, b) => a + b, 0) - lam * Math.log(c0);
-  const eConst = lgammaErr(k) + 4 * U * (base.reduce((a, b) => a + Math.abs(b), 0) + Math.abs(lam * Math.log(c0)) + k * Math.abs(Math.log(nu))) + 4 * U * Math.abs(lam);
+  const eConst = lgammaErr(kk) + 4 * U * (base.reduce((a, b) => a + Math.abs(b), 0) + Math.abs(lam * Math.log(c0)) + kk * Math.abs(Math.log(nu))) + 4 * U * Math.abs(lam);
   let atLoc = Infinity;
   let eAtLoc = 0;
   if (lam > 0) {
@@ -89,7 +88,7 @@ export function varianceGammaDirect(sigma: number, nu: number, theta: number, lo
     eAtLoc = atLoc * (eConst + lgammaErr(lam) + 8 * U * (Math.abs(lgl) + Math.abs(l2) + Math.abs(lam * Math.log(c0)) + 1) + 8 * U * lam);
   }
   const tS2 = theta / s2;
-  const pdfAt = (y: number, o: DirectPoint) => {
+  return (y: number, o: DirectPoint) => {
     if (y === 0) {
       o.pdf = atLoc;
       o.pdfErr = Number.isFinite(atLoc) ? eAtLoc : 0;
@@ -105,9 +104,23 @@ export function varianceGammaDirect(sigma: number, nu: number, theta: number, lo
     // z within 6 roundings (c0, b0, the product); y within one, which moves log f along its slope
     const slopeZ = besselKLogSlope(lam, z);
     const slopeY = Math.abs(tS2) + Math.abs(lam) / ay + b0 * slopeZ;
-    const e = eConst + K.e + 6 * U * z * slopeZ + U * ay * slopeY + 4 * U * (Math.abs(ex) + Math.abs(lam * ly) + Math.abs(K.v) + z + Math.abs(lf)) + 2 * U * k * Math.abs(ly);
+    const e = eConst + K.e + 6 * U * z * slopeZ + U * ay * slopeY + 4 * U * (Math.abs(ex) + Math.abs(lam * ly) + Math.abs(K.v) + z + Math.abs(lf)) + 2 * U * kk * Math.abs(ly);
     o.pdfErr = o.pdf * (e < 0.5 ? e * 1.01 : Math.expm1(e));
   };
+}
+
+/**
+ * Variance-gamma (sigma, nu, theta, loc) with the CF of lib/cf/families/continuous.ts, (1 - i theta nu t + sigma^2 nu
+ * t^2/2)^{-1/nu}: X = loc + theta G + sigma sqrt(G) W, G ~ Gamma(shape 1/nu, scale nu). Density (MCC 1998, eq. 23):
+ * 2 e^{theta y/sigma^2} / (nu^{1/nu} sqrt(2 pi) sigma Gamma(1/nu)) (|y|/c)^{lam} K_lam(|y| c / sigma^2), y = x - loc,
+ * c = sqrt(2 sigma^2/nu + theta^2), lam = 1/nu - 1/2; at y = 0 its limit Gamma(lam)/2 (2 sigma^2/c^2)^lam times the
+ * constant for nu < 2 (DLMF 10.30.2), +inf for nu >= 2.
+ */
+export function varianceGammaDirect(sigma: number, nu: number, theta: number, loc: number): DirectLaw | null {
+  if (!(sigma > 0 && nu > 0 && Number.isFinite(theta) && Number.isFinite(loc)) || nu > 1e3 || nu < 1e-3) return null;
+  const k = 1 / nu;
+  const s2 = sigma * sigma;
+  const pdfAt = vgDensity(sigma, nu, theta, k);
   const L = mixtureLaw(
     {
       mean: loc + theta,
@@ -121,8 +134,9 @@ export function varianceGammaDirect(sigma: number, nu: number, theta: number, lo
     },
     "variance-gamma density by its Bessel-K closed form, cdf and sf by the normal variance-mean mixture integral (trapezoidal rule, Trefethen-Weideman bound)",
   );
+  const withSl = vgStopLoss(L, sigma, nu, theta, loc, k);
   // nu >= 2: the density is infinite at loc
-  return lam > 0 ? L : { ...L, singular: [loc], singularPdf: (d: number, o: DirectPoint) => pdfAt(d, o) };
+  return k > 0.5 ? withSl : { ...withSl, singular: [loc], singularPdf: (d: number, o: DirectPoint) => pdfAt(d, o) };
 }
 
 /**
@@ -162,4 +176,52 @@ export function nigDirect(alpha: number, beta: number, delta: number, mu: number
     },
     "NIG density by its Bessel-K closed form, cdf and sf by the normal variance-mean mixture integral (trapezoidal rule, Trefethen-Weideman bound)",
   );
+}
+
+/**
+ * The variance-gamma law with its upper stop-loss transform: with X = loc + theta V + sigma sqrt(V) W,
+ * E[(X - c)^+] = (loc - c) S(c) + theta E[V 1{X > c}] + sigma E[sqrt(V) W 1{X > c}], and E[V 1{X > c}] = E V S~(c),
+ * sigma E[sqrt(V) phi(w)] = sigma^2 E V f~(c) (w = (c - loc - theta V)/(sigma sqrt V); E[W 1{W > w}] = phi(w)), where S~
+ * and f~ are the tail and density of the same mixture with V size-biased, V/nu ~ Gamma(k + 1, 1) (common practice for
+ * normal variance-mean mixtures): S~ by the mixture integral (./mixture-tail.ts, its own bound), f~ by vgDensity. E V =
+ * k nu within u. Each term within its bound, plus 16u of the terms' sizes. Only where k + 1 is exact in doubles (the
+ * size-biased shape is then the law's own k plus one); else, and on the lower side, null (the sweep answers).
+ * k = fl(1/nu) is off the law's shape by d <= u k, which f~ (at the shape k + 1) does not see: the mixing density moves by
+ * the factor (v/nu)^d Gamma(k + 1)/Gamma(k + 1 + d), within 1.01 d (100 + max(log(k + 1), 1)) of 1 for |log(v/nu)| <= 100
+ * (|psi(x)| <= max(log x, 1) for x >= 1), and the mixture's part from v < nu e^-100 is at most e^{-50 (2k + 1)} /
+ * (Gamma(k + 1) (k + 1/2) sigma sqrt(2 pi nu)) per law (the kernel below (2 pi sigma^2 v)^-1/2), from v > nu e^100 below
+ * e^{-e^100 / 2} (0 in doubles).
+ */
+function vgStopLoss(L: DirectLaw, sigma: number, nu: number, theta: number, loc: number, k: number): DirectLaw {
+  const k1 = k + 1;
+  if (twoSumErr(k, 1, k1) !== 0) return L;
+  const biased = vgDensity(sigma, nu, theta, k1);
+  const mix: Mixing = { kind: "gamma", k: k1 };
+  const sp = sigma * Math.sqrt(nu);
+  const q = (theta * Math.sqrt(nu)) / sigma;
+  const dq = 6 * U * Math.abs(q);
+  const EV = k * nu;
+  const s2 = sigma * sigma;
+  const shapeRel = 1.01 * U * k * (100 + Math.max(Math.log(k1), 1));
+  const lowV = (2 * Math.exp(-50 * (2 * k + 1) - lgamma(k1))) / ((k + 0.5) * sigma * Math.sqrt(2 * Math.PI * nu));
+  const pt = directPoint();
+  const fb = directPoint();
+  return {
+    ...L,
+    stopLoss(c: number, side: 1 | -1) {
+      if (side !== 1 || !Number.isFinite(c)) return null;
+      L.at(c, pt);
+      const y = c - loc;
+      const p = y / sp;
+      const St = mixtureTail(mix, p, q, 6 * U * Math.abs(p), dq, U);
+      biased(y, fb);
+      const t1 = (loc - c) * pt.sf;
+      const t2 = EV * theta * St.v;
+      const t3 = EV * s2 * fb.pdf;
+      const v = t1 + t2 + t3;
+      const e = Math.abs(loc - c) * pt.sfErr + EV * (Math.abs(theta) * St.e + s2 * (fb.pdfErr + shapeRel * fb.pdf + lowV)) + 16 * U * (Math.abs(t1) + Math.abs(t2) + Math.abs(t3));
+      if (!(Number.isFinite(v) && Number.isFinite(e))) return null;
+      return { v: Math.max(v, 0), e };
+    },
+  };
 }
