@@ -53,12 +53,13 @@ describe("ES of direct laws, layers and their mixtures vs mpmath (tests/fixtures
 });
 
 // Laws whose ES comes from a closed-form stop-loss transform (lib/cf/direct/stop-loss.ts, the mean excess of pareto and
-// lomax, Student t's, a layer's moments, variance-gamma's size-biased mixture in lib/cf/direct/vg-nig.ts): every level of the fixture, the bound at most 1e4 times the actual error (taken
-// as at least one ulp of ES: an answer exact to the last bit cannot show looseness) and its median over the levels at
-// most 500 (before the closed forms the swept brackets gave medians of 1e4-1e6 here; the normal cdf's own bound, about
-// 1e-13 relative near z = 2, keeps normal and lognormal near 100)
-// (and the mixtures of such laws, whose components' E[(X - q)^+] are summed as formed, not taken back from ES - q)
-const CLOSED = /^(normal|lognormal|gamma|weibull|pareto|lomax|student_t|vg|layer|mix (normal|gamma|weibull))/;
+// lomax, Student t's, a layer's moments, the size-biased mixtures of variance-gamma and NIG in lib/cf/direct/vg-nig.ts),
+// and mixtures of such laws (their components' E[(X - q)^+] summed as formed, not taken back from ES - q): every level
+// of the fixture, the bound at most 1e4 times the actual error (taken as at least one ulp of ES: an answer exact to the
+// last bit cannot show looseness) and its median over the levels at most 500 (before the closed forms the swept brackets
+// gave medians of 1e4-1e6 here; the normal cdf's own bound, about 1e-13 relative near z = 2, keeps normal and lognormal
+// near 100)
+const CLOSED = /^(normal|lognormal|gamma|weibull|pareto|lomax|student_t|vg|nig|layer|mix (normal|gamma|weibull|nig))/;
 describe("ES from closed-form stop-loss transforms: bounds within reach of the actual error (tests/fixtures/shortfall)", () => {
   it.each(F.laws.filter((l) => CLOSED.test(l.name)).map((l) => [l.name, l] as const))("%s", (_name, law) => {
     const rows = law.levels.filter((r) => r.es !== "inf");

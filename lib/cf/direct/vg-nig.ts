@@ -151,7 +151,7 @@ export function nigDirect(alpha: number, beta: number, delta: number, mu: number
   if (!(D > 1e-6 && D < 1e6)) return null;
   const lc = Math.log((alpha * delta) / Math.PI) + D;
   const eC = 8 * U * (Math.abs(lc) + 2 * D + 1);
-  return mixtureLaw(
+  return nigStopLoss(alpha, beta, delta, mu, g, mixtureLaw(
     {
       mean: mu + (delta * beta) / g,
       sd: Math.sqrt((delta * alpha * alpha) / (g * g * g)),
@@ -175,7 +175,54 @@ export function nigDirect(alpha: number, beta: number, delta: number, mu: number
       },
     },
     "NIG density by its Bessel-K closed form, cdf and sf by the normal variance-mean mixture integral (trapezoidal rule, Trefethen-Weideman bound)",
-  );
+  ));
+}
+
+/**
+ * NIG's upper stop-loss transform as variance-gamma's (vgStopLoss): E[(X - c)^+] = (mu - c) S(c) + E Z (beta S~(c) +
+ * f~(c)), Z's law size-biased. With t = log(Z/s0), s0 = delta/gamma = E Z, the size-biased density of t is e^t rho(t) =
+ * rho(-t) (rho even in cosh t, times e^{-t/2}), so S~(c) = T(-q, -p) of the same mixture integral (./mixture-tail.ts:
+ * t -> -t turns p e^{-t/2} - q e^{t/2} into -q e^{-t/2} + p e^{t/2}), and f~ is the generalised hyperbolic density with
+ * lambda = 1/2 (Barndorff-Nielsen 1977; GIG(1/2) mixing): (gamma/pi) e^{delta gamma + beta y} K_0(alpha r), r =
+ * sqrt(delta^2 + y^2) (checked against the mixture integral with mpmath to 1e-31), bounded as nigDirect's density (K_0 by
+ * logBesselKScaledBounded). E Z within 6u. Upper side only (the lower levels use it too, ./shortfall.ts).
+ */
+function nigStopLoss(alpha: number, beta: number, delta: number, mu: number, g: number, L: DirectLaw): DirectLaw {
+  const D = delta * g;
+  const s0 = delta / g;
+  const sp = Math.sqrt(s0);
+  const q = beta * sp;
+  const dq = 6 * U * Math.abs(q);
+  const mix: Mixing = { kind: "ig", D };
+  const lc = Math.log(g / Math.PI) + D;
+  const eC = 8 * U * (Math.abs(lc) + 2 * D + 1);
+  const pt = directPoint();
+  return {
+    ...L,
+    stopLoss(c: number, side: 1 | -1) {
+      if (side !== 1 || !Number.isFinite(c)) return null;
+      L.at(c, pt);
+      const y = c - mu;
+      const p = y / sp;
+      const St = mixtureTail(mix, -q, -p, dq, 6 * U * Math.abs(p), 4 * U);
+      const r = Math.hypot(delta, y);
+      const z = alpha * r;
+      const K = logBesselKScaledBounded(0, z);
+      const by = beta * y;
+      const lf = lc + by + K.v - z;
+      const f = Math.exp(lf);
+      const slopeZ = besselKLogSlope(0, z);
+      const ef = eC + K.e + 3 * U * z * slopeZ + 2 * U * (Math.abs(y) * (Math.abs(beta) + alpha * slopeZ) + 1) + 4 * U * (Math.abs(by) + Math.abs(K.v) + z + Math.abs(lf));
+      const eF = f * (ef < 0.5 ? ef * 1.01 : Math.expm1(ef));
+      const t1 = (mu - c) * pt.sf;
+      const t2 = s0 * beta * St.v;
+      const t3 = s0 * f;
+      const v = t1 + t2 + t3;
+      const e = Math.abs(mu - c) * pt.sfErr + s0 * (Math.abs(beta) * St.e + eF) + 6 * U * (Math.abs(t2) + Math.abs(t3)) + 16 * U * (Math.abs(t1) + Math.abs(t2) + Math.abs(t3));
+      if (!(Number.isFinite(v) && Number.isFinite(e))) return null;
+      return { v: Math.max(v, 0), e };
+    },
+  };
 }
 
 /**
