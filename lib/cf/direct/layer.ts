@@ -14,8 +14,8 @@ const U = Number.EPSILON / 2;
  * continuous part's value and 1, and is answered with that interval. The stop-loss transforms, on which expected
  * shortfall rests, come from the claim's layer moments in closed form with their derived bounds:
  *   E[(Y - y)_+] = c E[min((X - d - y/c)_+, l - y/c)],   E[(y - Y)_+] = y - c E[min((X - d)_+, y/c)]   (0 <= y < c l),
- * each 1-Lipschitz in its layer's ends (their derivatives are probabilities), so the arguments' roundings add at most
- * their sizes. Null where the terms are not a proper layer.
+ * each Lipschitz in its layer's ends with the claim's tail probabilities there as rates, so the arguments' roundings add
+ * their sizes times S_X at the lowest point they reach. Null where the terms are not a proper layer.
  */
 export function layerDirect(x: DirectLaw, layerMoment: LayerMoment, d: number, l: number, c: number): DirectLaw | null {
   if (!(c > 0 && Number.isFinite(c) && l > 0 && Number.isFinite(d))) return null;
@@ -44,6 +44,12 @@ export function layerDirect(x: DirectLaw, layerMoment: LayerMoment, d: number, l
     const m = Number.isFinite(move) ? move : 1;
     if (pt.sf > 0) atoms.push({ x: top, p: pt.sf, pErr: pt.sfErr + m, below: pt.cdf, belowErr: pt.cdfErr + m, xErr: exact ? 0 : 2 * U * top });
   }
+  // S_X at z from above (its bound; at most 1), a rate for the stop-loss transforms' argument roundings below
+  const xp = directPoint();
+  const sfAbove = (z: number) => {
+    x.at(z, xp);
+    return Math.min(xp.sf + xp.sfErr, 1) * (1 + 2 * U);
+  };
   const lower = A.support[0] > 0 ? A.support[0] : 0;
   const upper = finite ? top : A.support[1];
   const q = A.quantile;
@@ -79,8 +85,11 @@ export function layerDirect(x: DirectLaw, layerMoment: LayerMoment, d: number, l
         const ll = l - t;
         const r = layerMoment(1, dd, ll);
         if (!Number.isFinite(r.v) || !Number.isFinite(r.e)) return null;
-        // t within u t, d + t and l - t within u of themselves (infinite l: none)
-        const arg = U * (Math.abs(t) + Math.abs(dd) + (finite ? Math.abs(ll) : 0));
+        // t within u t, d + t and l - t within u of themselves (infinite l: none); E min((X - a)^+, b) moves with a at
+        // rate S_X(a) and with b at rate S_X(a + b), each at most its value at the lowest point the roundings reach
+        const da = U * (Math.abs(t) + Math.abs(dd));
+        const db = finite ? U * (Math.abs(t) + Math.abs(ll)) : 0;
+        const arg = da * sfAbove(dd - 2 * da) + (finite ? db * sfAbove(dd + ll - 2 * (da + db)) : 0);
         const v = c * Math.max(r.v, 0);
         return { v, e: c * (r.e + arg) + 2 * U * v };
       }
@@ -91,7 +100,9 @@ export function layerDirect(x: DirectLaw, layerMoment: LayerMoment, d: number, l
       if (!Number.isFinite(r.v) || !Number.isFinite(r.e)) return null;
       const m = c * r.v;
       const v = Math.max(y - m, 0);
-      return { v, e: c * (r.e + U * Math.abs(t)) + 2 * U * (Math.abs(y) + Math.abs(m)) };
+      // t within u t moves E min((X - d)^+, t) at rate S_X(d + t) (at most its value at the lowest point reached)
+      const dt = U * Math.abs(t);
+      return { v, e: c * (r.e + dt * sfAbove(d + t - 2 * dt - 2 * U * Math.abs(d + t))) + 2 * U * (Math.abs(y) + Math.abs(m)) };
     },
   };
 }
