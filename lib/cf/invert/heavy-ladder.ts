@@ -46,6 +46,21 @@ export interface HeavyLadder {
   residCache?: Map<string, { cdf: number; pdf: number }>;
   /** set once a value's cdf bound was the Richardson estimate (RICHARDSON_ESTIMATE_NOTE), not a derived one */
   estimated: boolean;
+  /**
+   * The top level alone (setTop), where a derived bound answers: that bound's least entry of the last row is always the
+   * raw last level's (bestDerivedEntry: the weight of R_{b,j} on level b is prod (1 + 1/(2^p - 1)) >= 1 for j > 0), so
+   * its values are the top level's sums less the images, the lower levels serving only the estimate. Those are built
+   * (fullLadder) only where a value has no derived bound; null where the ladder is built level by level (growLadder).
+   */
+  top: TopLevel | null;
+}
+
+export interface TopLevel {
+  l: number;
+  nodes: Nodes;
+  /** the level's truncation + rounding bound (cdf, pdf), as growLadder's trL, trPL */
+  tr: number;
+  trP: number;
 }
 
 export interface LadderValue {
@@ -65,7 +80,7 @@ export interface LadderValue {
  * bound is the smaller sixteen periods out (imagePlan): the quantiles alone then reach a derived bound, at the price of
  * more levels (an expected shortfall on the same ladder would pay for them with every level's two laws' images).
  */
-export function heavyLadder(model: CompiledModel, atoms: Atom[], T0: number, levels: number, tol: number, pairOnTie = false): HeavyLadder {
+export function heavyLadder(model: CompiledModel, atoms: Atom[], T0: number, levels: number, tol: number, pairOnTie = false, topOnly = false): HeavyLadder {
   const shape = lawShape(model);
   let part = makePart(model, atoms, shape.center);
   let env = probeEnvelope(part, shape.spread);
@@ -120,32 +135,65 @@ export function heavyLadder(model: CompiledModel, atoms: Atom[], T0: number, lev
     trPL: [],
     estimated: false,
     tol,
+    top: null,
   };
+  // with `topOnly` and a derived bound to answer, no level yet: the caller picks the top one (./heavy-top.ts)
+  if (topOnly && (lad.resid || lad.pair)) return lad;
   // the remainder's faster decay needs fewer doublings to start with (more are added when the probes ask for them)
   const start = part.tail || images.length ? Math.min(levels, 3) : levels;
   for (let l = 0; l < start; l++) growLadder(lad);
   return lad;
 }
 
-/** One more period doubling (the nodes of the earlier levels are kept). */
-export function growLadder(lad: HeavyLadder): boolean {
-  const l = lad.levels.length;
-  if (l >= lad.expC.length) return false;
+/** the nodes of level l: K = tmax / h (at least 8, at most MAX_TERMS) */
+export function levelNodes(lad: HeavyLadder, l: number): Nodes {
   const h = (2 * Math.PI) / (lad.T0 * 2 ** l);
   const K = Math.min(Math.max(8, Math.ceil(lad.tmax / h)), MAX_TERMS);
-  const nd = buildNodes(lad.part, h, K);
+  return buildNodes(lad.part, h, K);
+}
+
+/** level l's own truncation + rounding bound (cdf, pdf): phases up to |x - center| = T0 (evalLadder adds what farther points need) */
+function levelBound(lad: HeavyLadder, nd: Nodes): { cdf: number; pdf: number } {
+  const tr = truncationAt(lad.env, nd.K * nd.h);
+  const rd = roundingOf(lad.part, nd, lad.T0);
+  return { cdf: 2 * tr.cdf + rd.cdf, pdf: 2 * tr.pdf + rd.pdf };
+}
+
+/** Answer from level l alone (see HeavyLadder.top); the levels built so far are dropped. */
+export function setTop(lad: HeavyLadder, l: number): void {
+  const nodes = levelNodes(lad, l);
+  const b = levelBound(lad, nodes);
+  lad.levels = [];
+  lad.top = { l, nodes, tr: b.cdf, trP: b.pdf };
+  lad.memo?.clear();
+  lad.estimated = false;
+}
+
+/** The levels below the top one, for the estimate (the top level's nodes kept as the last). */
+function fullLadder(lad: HeavyLadder): void {
+  const top = lad.top!;
+  while (lad.levels.length < top.l) growLadder(lad);
+  if (lad.levels.length === top.l) growLadder(lad, top.nodes);
+}
+
+/** One more period doubling (the nodes of the earlier levels are kept). */
+export function growLadder(lad: HeavyLadder, built?: Nodes): boolean {
+  const l = lad.levels.length;
+  if (l >= lad.expC.length) return false;
+  if (lad.top && l > lad.top.l) return false;
+  const nd = built ?? levelNodes(lad, l);
+  const K = nd.K;
+  const h = nd.h;
   lad.levels.push(nd);
   lad.memo?.clear();
   // the values at the earlier levels are not answers any more
   lad.estimated = false;
   lad.amp = richardsonAmplification(lad.expC, l + 1);
-  const tr = truncationAt(lad.env, K * h);
-  // phases up to |x - center| = T0 here; evalLadder adds what farther points need
-  const rd = roundingOf(lad.part, nd, lad.T0);
-  lad.trL.push(2 * tr.cdf + rd.cdf);
-  lad.trPL.push(2 * tr.pdf + rd.pdf);
-  lad.trC = Math.max(lad.trC, 2 * tr.cdf + rd.cdf);
-  lad.trP = Math.max(lad.trP, 2 * tr.pdf + rd.pdf);
+  const b = levelBound(lad, nd);
+  lad.trL.push(b.cdf);
+  lad.trPL.push(b.pdf);
+  lad.trC = Math.max(lad.trC, b.cdf);
+  lad.trP = Math.max(lad.trP, b.pdf);
   lad.sumErrCdf = lad.amp * lad.trC;
   lad.sumErrPdf = lad.amp * lad.trP;
   return true;
@@ -170,7 +218,48 @@ export function evalLadder(
   return value;
 }
 
-function ladderAt(lad: HeavyLadder, x: number, scratch: { pdf: Float64Array; cdf: Float64Array; sf: Float64Array; one: Float64Array }): LadderValue {
+type Scratch = { pdf: Float64Array; cdf: Float64Array; sf: Float64Array; one: Float64Array };
+
+/**
+ * The top level's answer (HeavyLadder.top): its sums less the images, with its own derived bound (the residual's, the
+ * images', truncation and rounding, the far phases'), term for term the last row's least-bound entry of the full table;
+ * null where the cdf's bound is not finite (the full table's estimate answers). A density without a derived bound of
+ * its own (the pair's where its majorants do not reach) comes with an infinite bound.
+ */
+function topAt(lad: HeavyLadder, top: TopLevel, x: number, scratch: Scratch): LadderValue | null {
+  const { l, nodes } = top;
+  scratch.one[0] = x;
+  sumPointwise(nodes, lad.part.center, scratch.one, scratch.pdf, scratch.cdf, scratch.sf);
+  let pdf = scratch.pdf[0];
+  let cdf = scratch.cdf[0];
+  let sf = scratch.sf[0];
+  let eC = 0;
+  let eP = 0;
+  // the images at x + m T0 2^l: the same points and bounds as imageLadder's level l (scaling by 2^l is exact)
+  for (const law of lad.images) {
+    const im = imageLadder(law.direct, x, lad.T0 * 2 ** l, 1, lad.imageScratch)[0];
+    pdf -= im.pdf;
+    cdf -= im.cdf;
+    sf += im.cdf;
+    eC += im.errCdf;
+    eP += im.errPdf;
+  }
+  const over = Math.abs(x - lad.part.center) - lad.T0;
+  const far = over > 0 ? 3 * Number.EPSILON * over * nodes.absPdf : 0;
+  const rb = residualBucket(lad, x, l);
+  const k = kernelTotals(lad.part, x);
+  const errCdf = (rb.cdf + eC + top.tr + far) * (1 + 1e-12) + k.errCdf;
+  if (!Number.isFinite(errCdf)) return null;
+  const errPdf = (rb.pdf + eP + top.trP) * (1 + 1e-12) + k.errPdf;
+  return { pdf: pdf + k.pdf, cdf: cdf + k.cdf, sf: sf + k.sf, errCdf, errPdf: Number.isFinite(errPdf) ? errPdf : Infinity, derivedCdf: errCdf };
+}
+
+function ladderAt(lad: HeavyLadder, x: number, scratch: Scratch): LadderValue {
+  if (lad.top) {
+    const v = topAt(lad, lad.top, x, scratch);
+    if (v) return v;
+    fullLadder(lad);
+  }
   const L = lad.levels.length;
   const P: number[][] = [];
   const C: number[][] = [];
@@ -257,7 +346,7 @@ function ladderAt(lad: HeavyLadder, x: number, scratch: { pdf: Float64Array; cdf
  * computed once per bucket and level (the root finders evaluate hundreds of nearby points), the distances to the images
  * changing by at most the bucket's width.
  */
-function residualBucket(lad: HeavyLadder, x: number, l: number): { cdf: number; pdf: number } {
+export function residualBucket(lad: HeavyLadder, x: number, l: number): { cdf: number; pdf: number } {
   const w = lad.T0 / 256;
   const k = Math.floor(x / w);
   const key = `${l}:${k}`;

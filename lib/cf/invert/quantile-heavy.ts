@@ -6,6 +6,7 @@ import { atomMass } from "./shared";
 import { lawShape } from "./range";
 import { RICHARDSON_ESTIMATE_NOTE, richardsonAmplification } from "./richardson";
 import { heavyShortfall } from "./shortfall-heavy";
+import { chooseTop } from "./heavy-top";
 import { solveLevels, type Evaluator } from "./solve-levels";
 import { tailTermExtent } from "./tail-extent";
 import type { QuantileOptions, QuantileResult } from "./quantile";
@@ -89,13 +90,15 @@ function heavyQuantilesAt(
   const tol = o.tolerance ?? 1e-10;
   const notes: string[] = [];
   const scratch: LadderScratch = { pdf: new Float64Array(1), cdf: new Float64Array(1), sf: new Float64Array(1), one: new Float64Array(1) };
-  const lad = heavyLadder(model, atoms, T0, 5, tol, !o.expectedShortfall);
+  // where a derived bound answers, the top level alone (./heavy-top.ts), else level by level
+  const lad = heavyLadder(model, atoms, T0, 5, tol, !o.expectedShortfall, true);
   // a derived bound is kept even where it cannot reach tol within the levels below (six at most): a finite bound is
   // reported before an estimate, the tolerance report says it was not met
   const ext = T0 / 8;
   const probes = [shape.center - ext, shape.center, shape.center + ext];
+  if (!lad.levels.length && !chooseTop(lad, probes, tol)) for (let l = 0; l < 3; l++) growLadder(lad);
   let prevD = NaN;
-  for (let more = 0; more < 3; more++) {
+  for (let more = 0; more < 3 && !lad.top; more++) {
     const vals = probes.map((x) => evalLadder(lad, x, scratch));
     const worst = Math.max(...vals.map((v) => v.errCdf));
     // where a derived bound is possible (./heavy-residual.ts, ./heavy-residual2.ts), the levels grow until it reaches the
@@ -121,11 +124,15 @@ function heavyQuantilesAt(
     errCdf: 0,
     lo: -Infinity,
     hi: Infinity,
-    terms: lad.levels[lad.levels.length - 1].K,
+    terms: (lad.top?.nodes ?? lad.levels[lad.levels.length - 1]).K,
   };
   for (const x of probes) ev.eval(x);
   ev.errCdf = 2 * seenErr + 4 * Number.EPSILON;
-  notes.push(`power tails: ${lad.levels.length} period doublings from T = ${T0.toPrecision(4)}, Richardson extrapolation`);
+  notes.push(
+    lad.top && lad.levels.length === 0
+      ? `power tails: period T = ${T0.toPrecision(4)} doubled ${lad.top.l} times, the last period's sums with the derived bound of the images left`
+      : `power tails: ${lad.levels.length} period doublings from T = ${T0.toPrecision(4)}, Richardson extrapolation`,
+  );
   const [lo, hi] = shape.support;
   const xs = new Float64Array(p.length);
   const err = new Float64Array(p.length);

@@ -84,16 +84,16 @@ export function heavyShortfall(
   // one period ladder for every level asked (nodes built once, on first use)
   const T0 = useLadder && (useLadder.T0 >= 4 * span || images.length) ? useLadder.T0 : Math.max(64 * shape.spread, 4 * span);
   const cache: Nodes[] = [];
-  const nodesAt = (lev: number) => {
-    while (cache.length <= lev) {
-      const l = cache.length;
+  const nodesAt = (l: number) => {
+    if (!cache[l]) {
       const h = (2 * Math.PI) / (T0 * 2 ** l);
       const K = Math.min(Math.max(8, Math.ceil(tmax / h)), 1 << 21);
-      const own = useLadder && useLadder.T0 === T0 && l < useLadder.levels.length ? useLadder.levels[l] : null;
+      const sameT = useLadder && useLadder.T0 === T0;
+      const own = sameT ? (l < useLadder.levels.length ? useLadder.levels[l] : useLadder.top?.l === l ? useLadder.top.nodes : null) : null;
       // the ladder's nodes serve when they reach tmax (the sums below stop at K)
-      cache.push(own && own.K >= K ? { ...own, K } : buildNodes(part, h, K));
+      cache[l] = own && own.K >= K ? { ...own, K } : buildNodes(part, h, K);
     }
-    return cache[lev];
+    return cache[l];
   };
   // sum_k |phi_k| / t_k^2 and sum_k |phi_k| / t_k per level (for the rounding bound; independent of q)
   // and sum_k (k mod 64) |phi_k| / t_k^2 (the rotations since the block's start, for weightedCosSum's drift)
@@ -101,8 +101,8 @@ export function heavyShortfall(
   const phaseSums: number[] = [];
   const driftSums: number[] = [];
   const absAt = (lev: number) => {
-    while (absSums.length <= lev) {
-      const nd = nodesAt(absSums.length);
+    if (absSums[lev] === undefined) {
+      const nd = nodesAt(lev);
       let a = 0;
       let b = 0;
       let d = 0;
@@ -113,9 +113,9 @@ export function heavyShortfall(
         b += m;
         d += (k & 63) * (m / tk);
       }
-      absSums.push(a * (1 + 4 * Number.EPSILON));
-      phaseSums.push(b * (1 + 4 * Number.EPSILON));
-      driftSums.push(d * (1 + 4 * Number.EPSILON));
+      absSums[lev] = a * (1 + 4 * Number.EPSILON);
+      phaseSums[lev] = b * (1 + 4 * Number.EPSILON);
+      driftSums[lev] = d * (1 + 4 * Number.EPSILON);
     }
     return absSums[lev];
   };
@@ -139,64 +139,120 @@ export function heavyShortfall(
     return (roundFloors[lev] = Number.isFinite(floor) ? floor : 0);
   };
   const boundAt = stopLossBuckets(resid, pair, T0);
+  // level lev's sum V = mass T/2 - (2h/pi) sum_k Re(phi_k e^{-i t_k y}) / t_k^2 less the images, its rounding and the images' bound
+  const levelSum = (lev: number, q: number, y: number) => {
+    const T = T0 * 2 ** lev;
+    const nodes = nodesAt(lev);
+    const h = nodes.h;
+    const K = nodes.K;
+    const acc = weightedCosSum(nodes, K, y);
+    const abs = absAt(lev);
+    let v = (part.mass * T) / 2 - (2 * h * acc) / Math.PI;
+    let imErr = 0;
+    for (const g of images) {
+      const im = shortfallImages(g.direct, g.tails, q, T, scratch);
+      v -= im.value;
+      imErr += im.error;
+    }
+    // V is a difference of terms of size T/2: its rounding, amplified by the extrapolation below
+    // weightedCosSum's rounding (u = eps/2), per unit of (2h/pi) |phi_k| / t_k^2 at node k: each block of 64 starts
+    // its phase from (k + 1/2) h y (h y, y = q - center and the product: 3 u t_k |y|), cos and sin within an ulp;
+    // each rotation by (cos h y, sin h y) adds 2 u |h y| to the angle (inside the 3 u t_k |y|) and at most 6 u to
+    // the modulus (the factor's cos/sin and the complex product, Higham 2002 sec. 3.6), k mod 64 of them at node k;
+    // the term's products and the division by t_k^2 6 u; the blocked, compensated sum 66 u + K u^2; the scaling 3 u.
+    // V = mass T/2 - (2h/pi) acc rounds once more (u of each part).
+    const rel = (Number.EPSILON / 2) * (9 + 66 + 3 + K * Number.EPSILON);
+    const phase = (Number.EPSILON / 2) * (3 * Math.abs(y) * phaseSums[lev] + 6 * driftSums[lev]) * ((2 * h) / Math.PI);
+    const sumRound = rel * ((2 * h * abs) / Math.PI) + phase + (Number.EPSILON / 2) * ((part.mass * T) / 2 + Math.abs((2 * h * acc) / Math.PI));
+    return { T, v, imErr, sumRound };
+  };
+  // the level's derived bound (and, with G's second-order term kappa_2 sum_m (-1)^m [f_G(q + mT) + f_G(q - mT)] taken out,
+  // the corrected value's: G's density images from its direct law, ./images.ts, with their derived bound)
+  const second = resid !== null && Number.isFinite(resid.m3 + resid.k2 + resid.e2);
+  const levelRaw = (lev: number, q: number, L: { T: number; v: number; imErr: number; sumRound: number }) => {
+    const own = L.sumRound * (1 + 1e-10) + L.imErr + truncES;
+    const raw = boundAt(lev, L.T, q, "stopLoss") + own;
+    if (!(second && resid)) return { raw, raw2: NaN, v2: NaN };
+    const g = imageLadder(resid.law, q, L.T, 1, scratch2)[0];
+    const c = resid.k2 * g.pdf;
+    // the term's bound: kappa_2's times the sum, the sum's times |kappa_2|, the product and difference rounded
+    const raw2 = boundAt(lev, L.T, q, "stopLoss2") + own + Math.abs(resid.k2) * g.errPdf + resid.e2 * (Math.abs(g.pdf) + g.errPdf) + 4 * Number.EPSILON * (Math.abs(c) + Math.abs(L.v));
+    return { raw, raw2, v2: L.v - c };
+  };
+  // the quantiles' ladder answering from its top level (HeavyLadder.top): the stop-loss sums likewise, from that level up
+  // (the derived bound's least entry is a raw level's, ./heavy-ladder.ts), the lower levels only where no bound is derived
+  const topL = useLadder?.top && useLadder.T0 === T0 && (resid || pair) ? useLadder.top.l : null;
+  // E[(X - q)^+] from the extrapolated (or raw) E|X - q| sum absC with its error: atoms, kernels and G's own part added
+  const finish = (q: number, absC: number, error: number, derived: boolean, goal: number) => {
+    let atomPart = 0;
+    for (const a of atoms) if (a.x > q) atomPart += a.p * (a.x - q);
+    let kernelPart = 0;
+    for (const k of part.kernels) kernelPart += kernelSfIntegral(k, q);
+    // G's own E[(G - q)^+] from its direct law: directShortfall at level 1/2 returns q + 2 E[(G - q)^+]
+    let gErr = 0;
+    if (G) {
+      // below G's median through the lower tail (directShortfall at level 1/4: q + (E G - q + int_-inf^q F_G) / (3/4)),
+      // above it through the upper tail (level 1/2: q + 2 int_q^inf S_G)
+      const pt = directPoint();
+      G.direct.at(q, pt);
+      const lv = pt.cdf < 0.5 ? 0.25 : 0.5;
+      const r = directShortfall(G.direct, q, 0, lv, G.tails, G.mean + G.shift, G.meanError, G.rest ? (u, side) => G.rest!(u, side) : undefined);
+      kernelPart += (r.value - q) * (1 - lv);
+      gErr = r.error * (1 - lv) + 4 * Number.EPSILON * Math.abs(r.value);
+    }
+    // for the signed remainder of mass M: int (x - q)^+ = (int |x - q| + mu - q M) / 2
+    const value = atomPart + w * ((absC + muC - q * part.mass) / 2 + kernelPart);
+    return { value, error: (w * error) / 2 + w * gErr + 8 * Number.EPSILON * Math.abs(absC), estimated: !derived, reached: error <= goal };
+  };
   return (q: number, target: number) => {
     const y = q - part.center;
+    const goal = Math.max(target, tol);
+    // each raw level's derived bound, and the last row's entry with the least one (./heavy-residual.ts)
+    let bestD = { value: NaN, err: Infinity };
+    if (topL !== null) {
+      // from the top level, one more doubling while the bound may reach the goal at the rate of the last one (the
+      // residual's, known without the nodes)
+      for (let lev = topL; lev < 8; lev++) {
+        const L = levelSum(lev, q, y);
+        const r = levelRaw(lev, q, L);
+        const e1 = r.raw * (1 + 1e-12);
+        const e2 = r.raw2 * (1 + 1e-12);
+        if (e1 < bestD.err) bestD = { value: L.v, err: e1 };
+        if (e2 < bestD.err) bestD = { value: r.v2, err: e2 };
+        if (!(bestD.err < Infinity) || bestD.err <= goal || lev === 0) break;
+        const kind = e2 < e1 ? "stopLoss2" : "stopLoss";
+        const bNow = boundAt(lev, T0 * 2 ** lev, q, kind);
+        const bPrev = boundAt(lev - 1, T0 * 2 ** (lev - 1), q, kind);
+        const rate = bPrev > 0 && Number.isFinite(bPrev) ? Math.min(1, bNow / bPrev) : 1;
+        if (!(bestD.err * rate <= goal)) break;
+      }
+      if (Number.isFinite(bestD.err)) return finish(q, bestD.value, bestD.err, true, goal);
+    }
     const rows: number[][] = [];
     let best = NaN;
     let bestTotal = Infinity;
-    // each raw level's derived bound, and the last row's entry with the least one (./heavy-residual.ts)
     const raw: number[] = [];
-    let bestD = { value: NaN, err: Infinity };
-    // the same with G's second-order term kappa_2 sum_m (-1)^m [f_G(q + mT) + f_G(q - mT)] taken out of each level (G's
-    // density images from its direct law, ./images.ts, with their derived bound): the residual left is one order smaller
-    const second = resid !== null && Number.isFinite(resid.m3 + resid.k2 + resid.e2);
     const raw2: number[] = [];
     const rows2: number[][] = [];
-    const goal = Math.max(target, tol);
     let prevD = NaN;
     let prev = NaN;
     let round = 0;
     for (let lev = 0; lev < 8; lev++) {
-      const T = T0 * 2 ** lev;
-      const nodes = nodesAt(lev);
-      const h = nodes.h;
-      const K = nodes.K;
-      const acc = weightedCosSum(nodes, K, y);
-      const abs = absAt(lev);
-      let v = (part.mass * T) / 2 - (2 * h * acc) / Math.PI;
-      let imErr = 0;
-      for (const g of images) {
-        const im = shortfallImages(g.direct, g.tails, q, T, scratch);
-        v -= im.value;
-        imErr += im.error;
-      }
-      // V is a difference of terms of size T/2: its rounding, amplified by the extrapolation below
-      // weightedCosSum's rounding (u = eps/2), per unit of (2h/pi) |phi_k| / t_k^2 at node k: each block of 64 starts
-      // its phase from (k + 1/2) h y (h y, y = q - center and the product: 3 u t_k |y|), cos and sin within an ulp;
-      // each rotation by (cos h y, sin h y) adds 2 u |h y| to the angle (inside the 3 u t_k |y|) and at most 6 u to
-      // the modulus (the factor's cos/sin and the complex product, Higham 2002 sec. 3.6), k mod 64 of them at node k;
-      // the term's products and the division by t_k^2 6 u; the blocked, compensated sum 66 u + K u^2; the scaling 3 u.
-      // V = mass T/2 - (2h/pi) acc rounds once more (u of each part).
-      const rel = (Number.EPSILON / 2) * (9 + 66 + 3 + K * Number.EPSILON);
-      const phase = (Number.EPSILON / 2) * (3 * Math.abs(y) * phaseSums[lev] + 6 * driftSums[lev]) * ((2 * h) / Math.PI);
-      const sumRound = rel * ((2 * h * abs) / Math.PI) + phase + (Number.EPSILON / 2) * ((part.mass * T) / 2 + Math.abs((2 * h * acc) / Math.PI));
-      round = Math.max(round, sumRound * (1 + 1e-10) + imErr);
+      const L = levelSum(lev, q, y);
+      round = Math.max(round, L.sumRound * (1 + 1e-10) + L.imErr);
       const amp = richardsonAmplification(exps, lev + 1);
-      const row = richardsonRow(v, rows[lev - 1], exps);
+      const row = richardsonRow(L.v, rows[lev - 1], exps);
       rows.push(row);
       const cand = row[lev];
       if (resid || pair) {
-        const own = sumRound * (1 + 1e-10) + imErr + truncES;
-        raw.push(boundAt(lev, T, q, "stopLoss") + own);
+        const r = levelRaw(lev, q, L);
+        raw.push(r.raw);
         const W = lastRowWeights(exps, lev + 1);
         const d = bestDerivedEntry(W, raw);
         if (d.err < bestD.err) bestD = { value: row[d.j], err: d.err };
         if (second && resid) {
-          const g = imageLadder(resid.law, q, T, 1, scratch2)[0];
-          const c = resid.k2 * g.pdf;
-          rows2.push(richardsonRow(v - c, rows2[lev - 1], exps));
-          // the term's bound: kappa_2's times the sum, the sum's times |kappa_2|, the product and difference rounded
-          raw2.push(boundAt(lev, T, q, "stopLoss2") + own + Math.abs(resid.k2) * g.errPdf + resid.e2 * (Math.abs(g.pdf) + g.errPdf) + 4 * Number.EPSILON * (Math.abs(c) + Math.abs(v)));
+          rows2.push(richardsonRow(r.v2, rows2[lev - 1], exps));
+          raw2.push(r.raw2);
           const d2 = bestDerivedEntry(W, raw2);
           if (d2.err < bestD.err) bestD = { value: rows2[lev][d2.j], err: d2.err };
         }
@@ -225,27 +281,7 @@ export function heavyShortfall(
     // even above the goal (the caller reports the goal as not reached); twice the smallest total, an estimate made on the
     // levels' differences, only where no bound is derived
     const derived = Number.isFinite(bestD.err);
-    const error = derived ? bestD.err : 2 * bestTotal;
-    const absC = derived ? bestD.value : best;
-    let atomPart = 0;
-    for (const a of atoms) if (a.x > q) atomPart += a.p * (a.x - q);
-    let kernelPart = 0;
-    for (const k of part.kernels) kernelPart += kernelSfIntegral(k, q);
-    // G's own E[(G - q)^+] from its direct law: directShortfall at level 1/2 returns q + 2 E[(G - q)^+]
-    let gErr = 0;
-    if (G) {
-      // below G's median through the lower tail (directShortfall at level 1/4: q + (E G - q + int_-inf^q F_G) / (3/4)),
-      // above it through the upper tail (level 1/2: q + 2 int_q^inf S_G)
-      const pt = directPoint();
-      G.direct.at(q, pt);
-      const lv = pt.cdf < 0.5 ? 0.25 : 0.5;
-      const r = directShortfall(G.direct, q, 0, lv, G.tails, G.mean + G.shift, G.meanError, G.rest ? (u, side) => G.rest!(u, side) : undefined);
-      kernelPart += (r.value - q) * (1 - lv);
-      gErr = r.error * (1 - lv) + 4 * Number.EPSILON * Math.abs(r.value);
-    }
-    // for the signed remainder of mass M: int (x - q)^+ = (int |x - q| + mu - q M) / 2
-    const value = atomPart + w * ((absC + muC - q * part.mass) / 2 + kernelPart);
-    return { value, error: (w * error) / 2 + w * gErr + 8 * Number.EPSILON * Math.abs(absC), estimated: !derived, reached: error <= goal };
+    return finish(q, derived ? bestD.value : best, derived ? bestD.err : 2 * bestTotal, derived, goal);
   };
 }
 
