@@ -6,12 +6,14 @@ import { imageLadder, type ImageScratch } from "./images";
  * A term G's images (./images.ts) at many points x in [xLo, xHi] from a few nodes c_k = xLo + k w, k = 0..B, when the
  * period T is long beside the span: the images' shares I_C(x) (cdf) and I_P(x) (pdf) are smooth there, with I_C' = I_P
  * (d/dx of sum_m (-1)^(m+1) [S(x + mT) - F(x - mT)] is sum_m (-1)^m [f(x + mT) + f(x - mT)]) and
- * |I_C''| <= S_1, |I_P''| <= S_2, S_j = sum_{m >= 1} sup |f^(j)| over the images of [xLo, xHi] (G's power-law majorants,
+ * |I_P''| <= S_2, S_2 = sum_{m >= 1} sup |f''| over the images of [xLo, xHi] (G's power-law majorants,
  * ../direct/power-tail.ts; each side's terms fall in m: the first plus the integral of the rest over the spacing T).
- * Taylor's theorem (common practice) gives, with A the accelerated values at the nodes and e their bounds:
- *   cdf: A_C(c) + (x - c) A_P(c), c the nearest node, within e_C(c) + (w/2) e_P(c) + (w^2/8) S_1;
- *   pdf: linear interpolation of A_P between the nodes either side, within max e_P + (w^2/8) S_2.
- * B is the least count that brings the Taylor parts within `target`; null where the majorants do not reach the images
+ * With A the accelerated values at the nodes and e their bounds, on the cell [c0, c1] holding x (common practice: the
+ * linear interpolant's error (s - c0)(c1 - s)/2 |I_P''| at most):
+ *   pdf: linear interpolation L of A_P between c0 and c1, within max e_P + (w^2/8) S_2;
+ *   cdf: A_C(c) + int_c^x L, c the cell's end nearer x (I_C' = I_P), within e_C(c) + |x - c| max e_P + (w^3/24) S_2
+ *   (int_0^{w/2} s (w - s)/2 ds = w^3/24).
+ * B is the least count that brings the interpolation parts within `target`; null where the majorants do not reach the images
  * (an image of the span inside a side's window, or across a support's end) or where the nodes would not be fewer than
  * the points (the pointwise images serve then).
  */
@@ -28,12 +30,12 @@ export function blockImages(
 ): { errCdf: number; errPdf: number } | null {
   const tail = law.powerTail;
   if (!tail || !(xHi >= xLo) || !(target > 0)) return null;
-  const S1 = imageMajorant(tail, 1, xLo, xHi, T);
   const S2 = imageMajorant(tail, 2, xLo, xHi, T);
-  if (!Number.isFinite(S1) || !Number.isFinite(S2)) return null;
+  if (!Number.isFinite(S2)) return null;
   const W = xHi - xLo;
-  // w^2/8 max(S_1, S_2) <= target
-  const B = W > 0 ? Math.max(1, Math.ceil(W / Math.sqrt((8 * target) / Math.max(S1, S2, 1e-300)))) : 0;
+  // w^2/8 S_2 <= target and w^3/24 S_2 <= target
+  const s2 = Math.max(S2, 1e-300);
+  const B = W > 0 ? Math.max(1, Math.ceil(W / Math.min(Math.sqrt((8 * target) / s2), Math.cbrt((24 * target) / s2)))) : 0;
   if (!(B + 1 < pts.length)) return null;
   const w = B > 0 ? W / B : 0;
   const vc = new Float64Array(B + 1);
@@ -48,7 +50,7 @@ export function blockImages(
     ep[k] = im.errPdf;
   }
   const U = Number.EPSILON;
-  const tC = ((w * w) / 8) * S1;
+  const tC = ((w * w * w) / 24) * S2;
   const tP = ((w * w) / 8) * S2;
   let errCdf = 0;
   let errPdf = 0;
@@ -57,25 +59,36 @@ export function blockImages(
     // the node's position and x - c within a few ulps of the span: the slope times that
     const u = B > 0 ? Math.min(B, Math.max(0, (x - xLo) / w)) : 0;
     const k0 = Math.min(B - 1, Math.floor(u));
-    const near = B > 0 ? Math.round(u) : 0;
-    const c = near === B ? xHi : xLo + near * w;
-    const d = x - c;
     const dx = 8 * U * (Math.abs(xLo) + Math.abs(xHi) + W);
-    outCdf[i] = vc[near] + d * vp[near];
-    const eC = ec[near] + (Math.abs(d) + dx) * ep[near] + tC + dx * Math.abs(vp[near]) + 4 * U * (Math.abs(vc[near]) + Math.abs(d * vp[near]));
     let vP: number;
     let eP: number;
     if (B > 0) {
       const th = Math.min(1, Math.max(0, u - k0));
+      // the cdf from the cell's nearer end: int_c^x L = w [p0 s + (p1 - p0) s^2 / 2] between th_c and th (th_c = 0 or 1)
+      const near = th <= 0.5 ? k0 : k0 + 1;
+      const tc = near - k0;
+      const p0 = vp[k0];
+      const dp = vp[k0 + 1] - p0;
+      const F = (t: number) => w * t * (p0 + (dp * t) / 2);
+      const I = F(th) - F(tc);
+      outCdf[i] = vc[near] + I;
+      // the node's and x's places each off by dx (the slope |I_P| <= max |A_P| + max e_P + (w^2/8) S_2 on the cell, times
+      // dx each), the integral's and the sum's rounding (a few ulps of their terms' sizes)
+      const ePm = Math.max(ep[k0], ep[k0 + 1]);
+      const slope = Math.max(Math.abs(p0), Math.abs(vp[k0 + 1])) + ePm + tP;
+      const eC =
+        ec[near] + Math.abs(th - tc) * w * ePm + tC + 2 * dx * slope + 16 * U * (Math.abs(vc[near]) + w * (Math.abs(p0) + Math.abs(dp)) + Math.abs(I));
+      errCdf = Math.max(errCdf, eC);
       vP = (1 - th) * vp[k0] + th * vp[k0 + 1];
       // the weights' rounding, and th off by dx / w (x's place among the nodes): the nodes' difference times that
       eP = Math.max(ep[k0], ep[k0 + 1]) + tP + 8 * U * (Math.abs(vp[k0]) + Math.abs(vp[k0 + 1])) + (dx / w) * Math.abs(vp[k0 + 1] - vp[k0]);
     } else {
+      outCdf[i] = vc[0];
+      errCdf = Math.max(errCdf, ec[0]);
       vP = vp[0];
       eP = ep[0];
     }
     outPdf[i] = vP;
-    errCdf = Math.max(errCdf, eC);
     errPdf = Math.max(errPdf, eP);
   }
   return { errCdf: errCdf * (1 + 1e-12), errPdf: errPdf * (1 + 1e-12) };
