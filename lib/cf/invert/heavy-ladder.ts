@@ -42,8 +42,8 @@ export interface HeavyLadder {
   trL: number[];
   trPL: number[];
   tol: number;
-  /** residualBucket's bounds by level and bucket */
-  residCache?: Map<string, { cdf: number; pdf: number }>;
+  /** residualBucket's bounds by level and bucket (the density's on first use), with the bucket's span and period */
+  residCache?: Map<string, { cdf: number; pdf: number | undefined; a: number; b: number; T: number; kPdf: number }>;
   /** set once a value's cdf bound was the Richardson estimate (RICHARDSON_ESTIMATE_NOTE), not a derived one */
   estimated: boolean;
   /**
@@ -61,6 +61,9 @@ export interface TopLevel {
   /** the level's truncation + rounding bound (cdf, pdf), as growLadder's trL, trPL */
   tr: number;
   trP: number;
+  /** whether the density's values carry their derived bound (else an infinite one: the quantiles read the density only
+   *  for their steps, their bounds from the cdf's) */
+  pdfBound: boolean;
 }
 
 export interface LadderValue {
@@ -160,11 +163,11 @@ function levelBound(lad: HeavyLadder, nd: Nodes): { cdf: number; pdf: number } {
 }
 
 /** Answer from level l alone (see HeavyLadder.top); the levels built so far are dropped. */
-export function setTop(lad: HeavyLadder, l: number): void {
+export function setTop(lad: HeavyLadder, l: number, pdfBound = false): void {
   const nodes = levelNodes(lad, l);
   const b = levelBound(lad, nodes);
   lad.levels = [];
-  lad.top = { l, nodes, tr: b.cdf, trP: b.pdf };
+  lad.top = { l, nodes, tr: b.cdf, trP: b.pdf, pdfBound };
   lad.memo?.clear();
   lad.estimated = false;
 }
@@ -224,7 +227,7 @@ type Scratch = { pdf: Float64Array; cdf: Float64Array; sf: Float64Array; one: Fl
  * The top level's answer (HeavyLadder.top): its sums less the images, with its own derived bound (the residual's, the
  * images', truncation and rounding, the far phases'), term for term the last row's least-bound entry of the full table;
  * null where the cdf's bound is not finite (the full table's estimate answers). A density without a derived bound of
- * its own (the pair's where its majorants do not reach) comes with an infinite bound.
+ * its own (the pair's where its majorants do not reach, or none asked: TopLevel.pdfBound) comes with an infinite bound.
  */
 function topAt(lad: HeavyLadder, top: TopLevel, x: number, scratch: Scratch): LadderValue | null {
   const { l, nodes } = top;
@@ -246,11 +249,11 @@ function topAt(lad: HeavyLadder, top: TopLevel, x: number, scratch: Scratch): La
   }
   const over = Math.abs(x - lad.part.center) - lad.T0;
   const far = over > 0 ? 3 * Number.EPSILON * over * nodes.absPdf : 0;
-  const rb = residualBucket(lad, x, l);
+  const rb = residualBucket(lad, x, l, top.pdfBound);
   const k = kernelTotals(lad.part, x);
   const errCdf = (rb.cdf + eC + top.tr + far) * (1 + 1e-12) + k.errCdf;
   if (!Number.isFinite(errCdf)) return null;
-  const errPdf = (rb.pdf + eP + top.trP) * (1 + 1e-12) + k.errPdf;
+  const errPdf = top.pdfBound ? (rb.pdf + eP + top.trP) * (1 + 1e-12) + k.errPdf : Infinity;
   return { pdf: pdf + k.pdf, cdf: cdf + k.cdf, sf: sf + k.sf, errCdf, errPdf: Number.isFinite(errPdf) ? errPdf : Infinity, derivedCdf: errCdf };
 }
 
@@ -346,24 +349,25 @@ function ladderAt(lad: HeavyLadder, x: number, scratch: Scratch): LadderValue {
  * computed once per bucket and level (the root finders evaluate hundreds of nearby points), the distances to the images
  * changing by at most the bucket's width.
  */
-export function residualBucket(lad: HeavyLadder, x: number, l: number): { cdf: number; pdf: number } {
+export function residualBucket(lad: HeavyLadder, x: number, l: number, wantPdf = true): { cdf: number; pdf: number } {
   const w = lad.T0 / 256;
   const k = Math.floor(x / w);
   const key = `${l}:${k}`;
   const cache = (lad.residCache ??= new Map());
-  const seen = cache.get(key);
-  if (seen) return seen;
-  const T = lad.T0 * 2 ** l;
-  // the bucket's ends, widened by a few ulps (k w rounds)
-  const lo = k * w - 4 * Number.EPSILON * (Math.abs(k * w) + w);
-  const hi = (k + 1) * w + 4 * Number.EPSILON * (Math.abs((k + 1) * w) + w);
-  const a = Math.min(lo, x);
-  const b = Math.max(hi, x);
-  const ki = lad.part.kernels.length ? kernelAliasing(lad.part.kernels, a, b, T) : { cdf: 0, pdf: 0 };
-  const v = lad.resid
-    ? { cdf: residualAliasing(lad.resid, a, b, T, "cdf") + ki.cdf, pdf: residualAliasing(lad.resid, a, b, T, "pdf") + ki.pdf }
-    : { cdf: pairAliasing(lad.pair!, a, b, T, "cdf") + ki.cdf, pdf: pairAliasing(lad.pair!, a, b, T, "pdf") + ki.pdf };
-  if (cache.size > 8192) cache.clear();
-  cache.set(key, v);
-  return v;
+  let v = cache.get(key);
+  if (!v) {
+    const T = lad.T0 * 2 ** l;
+    // the bucket's ends, widened by a few ulps (k w rounds)
+    const lo = k * w - 4 * Number.EPSILON * (Math.abs(k * w) + w);
+    const hi = (k + 1) * w + 4 * Number.EPSILON * (Math.abs((k + 1) * w) + w);
+    const a = Math.min(lo, x);
+    const b = Math.max(hi, x);
+    const ki = lad.part.kernels.length ? kernelAliasing(lad.part.kernels, a, b, T) : { cdf: 0, pdf: 0 };
+    v = { cdf: (lad.resid ? residualAliasing(lad.resid, a, b, T, "cdf") : pairAliasing(lad.pair!, a, b, T, "cdf")) + ki.cdf, pdf: undefined, a, b, T, kPdf: ki.pdf };
+    if (cache.size > 8192) cache.clear();
+    cache.set(key, v);
+  }
+  // the density's bound only when asked (the top level's choice reads the cdf's alone: ./heavy-top.ts)
+  if (wantPdf && v.pdf === undefined) v.pdf = (lad.resid ? residualAliasing(lad.resid, v.a, v.b, v.T, "pdf") : pairAliasing(lad.pair!, v.a, v.b, v.T, "pdf")) + v.kPdf;
+  return { cdf: v.cdf, pdf: v.pdf ?? NaN };
 }

@@ -15,7 +15,7 @@ function boundBefore(lad: HeavyLadder, x: number, l: number): number {
   const T = lad.T0 * 2 ** l;
   const h = (2 * Math.PI) / T;
   const K = Math.min(Math.max(8, Math.ceil(lad.tmax / h)), MAX_TERMS);
-  let e = residualBucket(lad, x, l).cdf + 2 * truncationAt(lad.env, K * h).cdf + kernelTotals(lad.part, x).errCdf;
+  let e = residualBucket(lad, x, l, false).cdf + 2 * truncationAt(lad.env, K * h).cdf + kernelTotals(lad.part, x).errCdf;
   for (const law of lad.images) e += imageLadder(law.direct, x, T, 1, lad.imageScratch)[0].errCdf;
   return e;
 }
