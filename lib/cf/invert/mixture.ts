@@ -5,9 +5,9 @@ import { directPoint, type DirectLaw, type DirectPoint } from "../direct/types";
 import { directQuantile } from "../direct/answer";
 import type { QuantileOptions, QuantileResult } from "./quantile";
 import type { DensityOptions, DensityResult, PointErrors } from "./types";
-import { DEFAULT_TOLERANCE, DEFAULT_TOLERANCE_HEAVY } from "./density";
 import { components, mixtureAtoms, mixtureLaw, methodsNote } from "./mixture-components";
 import { mixtureExcesses } from "./mixture-shortfall";
+import { componentDensities } from "./mixture-budget";
 
 /**
  * A mixture F = sum_j w_j F_j answered from its components: each component by its own route (a named law by its
@@ -260,34 +260,8 @@ export function mixtureDensity(
 ): DensityResult | null {
   const leaves = mixtureLeaves(model);
   if (!leaves) return null;
-  // the error budget: the weighted bounds sum to the mixture's. Components by inversion whose weight is below an equal
-  // share (w < 1/n of the n inverted) are answered last, at their share of what the others left of the target,
-  // (target - sum of the others' weighted bounds) / (n_light w), where that is looser than their own target: a
-  // component of weight 0.06 whose mass ends far below the grid's end then takes a period half as long. Never tighter
-  // than before. The target: the one asked, else the tightest of the inverted components' own defaults (a power-tailed
-  // one's looser default never loosens the others).
-  const ownTarget = (m: CompiledModel) => options.tolerance ?? (Number.isFinite(Math.min(m.tails.left, m.tails.right)) ? DEFAULT_TOLERANCE_HEAVY : DEFAULT_TOLERANCE);
-  const target = leaves.reduce((t, { m }) => (m.direct ? t : Math.min(t, ownTarget(m))), Infinity);
-  const inverted = leaves.filter(({ m }) => !m.direct).length;
-  const light = (l: { w: number; m: CompiledModel }) => !l.m.direct && l.w * inverted < 1;
-  const parts: { w: number; r: DensityResult }[] = new Array(leaves.length);
-  let used = 0;
-  leaves.forEach((l, i) => {
-    if (light(l)) return;
-    checkDeadline("mixture-density");
-    const r = one(l.m, { ...options, out: undefined });
-    parts[i] = { w: l.w, r };
-    used += l.w * Math.max(r.diagnostics.error.cdf, options.cdfOnly ? 0 : r.diagnostics.error.pdf);
-  });
-  const nLight = leaves.filter(light).length;
-  leaves.forEach((l, i) => {
-    if (!light(l)) return;
-    checkDeadline("mixture-density");
-    const own = ownTarget(l.m);
-    const share = used < target ? (target - used) / (nLight * l.w) : 0;
-    const tolerance = Math.min(Math.max(own, share), Math.max(own, 1e-6));
-    parts[i] = { w: l.w, r: one(l.m, { ...options, tolerance, out: undefined }) };
-  });
+  // each component at its share of the target (./mixture-budget.ts)
+  const parts = componentDensities(leaves, options, one);
   if (parts.some(({ r }) => !r.pdf && !options.cdfOnly)) return null;
   const n = parts[0].r.x.length;
   const pdf = options.cdfOnly ? undefined : new Float64Array(n);
