@@ -63,7 +63,7 @@ export function componentDensities(
 }
 
 /**
- * The cut-off the damped plan's first probe asks of a component at tolerance tol (0 where it is not inverted by the
+ * The cdf's cut-off the damped plan's first probe asks of a component at tolerance tol (0 where it is not inverted by the
  * damped route): its range ends at the request's farthest point (./density-damped.ts), so the probe is the one its plan
  * makes first (kept per model, ./damped-psi.ts); a cost proxy, no bound rests on it
  */
@@ -85,6 +85,7 @@ function cutoffAt(m: CompiledModel, o: DensityOptions, tol: number): number {
   const atoms = m.kind.type === "mixed" ? [...m.kind.atoms].sort((u, v) => u.x - v.x) : [];
   const target = tol / (8 * Math.exp(4));
   const env = probe(m, atoms, 4 / span, false, true);
-  const t = cutoffFor(env, o.cdfOnly ? Infinity : target, target);
+  // the cdf's alone: the density's uniform tail is loose where the plan bounds it otherwise (a jump's split, by parts)
+  const t = cutoffFor(env, Infinity, target);
   return Number.isFinite(t) ? t : Number.MAX_VALUE;
 }
