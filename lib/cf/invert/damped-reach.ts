@@ -1,6 +1,7 @@
 import type { Atom, CompiledModel } from "../types";
 import { dampedAt, dampedSetup, type DampedSolution } from "./damped";
 import { atomMass } from "./shared";
+import { markovTail, momentBounds } from "./moment-tails";
 
 /** growth of the range between the loose probes (the last one is trimmed by bisection before the final inversion) */
 const GROWTH = 2;
@@ -9,6 +10,35 @@ const GROWTH = 2;
  * bisection steps
  */
 const PROBE_POINTS = 14;
+
+/** how far past the first guess (as a multiple of its distance from lo) a range from Markov's inequality is taken first */
+const MARKOV_SPAN = 16;
+
+/**
+ * The least R past lo (to a thousandth) where Markov's inequality on the law's moments about lo, at its best order, puts
+ * P(X - lo > R - lo) at or below `level` (null without moment bounds, or where none is found within 2^20 times R0's
+ * distance); the moments' orders are those that serve R0 (./moment-tails.ts momentBounds), valid at every distance
+ */
+function markovRange(model: CompiledModel, R0: number, level: number): number | null {
+  const lo = model.support[0];
+  if (!Number.isFinite(lo) || !model.cumulantErrors || !(R0 > lo)) return null;
+  const mb = momentBounds(model, lo, R0 - lo);
+  if (!mb) return null;
+  const ok = (r: number) => markovTail(mb, r, false) <= level;
+  let b = R0 - lo;
+  let a = 0;
+  for (let k = 0; k < 20 && !ok(b); k++) {
+    a = b;
+    b *= 2;
+  }
+  if (!ok(b)) return null;
+  for (let k = 0; k < 40 && b - a > 1e-3 * b; k++) {
+    const mid = 0.5 * (a + b);
+    if (ok(mid)) b = mid;
+    else a = mid;
+  }
+  return lo + b;
+}
 
 /**
  * A first range end for a law bounded below: past the mean by 6 sd, and by the power tail's level `tail`; a heavy tail
@@ -67,10 +97,28 @@ export function dampedReach(
       R = lo + GROWTH * (R - lo);
     }
   }
+  // Markov's inequality at its best order (./moment-tails.ts) gives a range mR where S is surely below half the level, so a
+  // loose inversion there cannot fail (its bound is far below the level): no probe goes past it, and the first one is set up
+  // there where it lies within MARKOV_SPAN times the first guess's distance from lo (each doubling it spares costs two or
+  // three probes of the transform, more than the longer loose inversion's terms); the bisection below then trims it from the
+  // last range known short (or from lo). Seed 1 of the random bench, an 8-part mixture of compounds: 27 -> 21 probes in the
+  // loose inversions, the answers unchanged
+  const mR = markovRange(model, R, 0.5 * level);
+  const sure = mR !== null && mR > prev ? mR : Infinity;
+  let fromMarkov = sure <= lo + MARKOV_SPAN * (R - lo);
+  const R1 = R;
+  if (fromMarkov) R = sure;
   let last: DampedSolution | null = null;
   let probeR = R;
   for (let it = 0; it < 40; it++) {
-    const probe = dampedSetup(model, atoms, R, { tolerance: loose, wantPdf: false, budget, pointwise: true, points: PROBE_POINTS, wantInt: false, transient: !keep, byParts: true });
+    let probe = dampedSetup(model, atoms, R, { tolerance: loose, wantPdf: false, budget, pointwise: true, points: PROBE_POINTS, wantInt: false, transient: !keep, byParts: true });
+    // a Markov range past what the budget allows: the doublings from the first guess instead
+    if (!probe && fromMarkov) {
+      fromMarkov = false;
+      R = R1;
+      probe = dampedSetup(model, atoms, R, { tolerance: loose, wantPdf: false, budget, pointwise: true, points: PROBE_POINTS, wantInt: false, transient: !keep, byParts: true });
+    }
+    fromMarkov = false;
     if (!probe) return null;
     last = probe;
     probeR = R;
@@ -86,7 +134,7 @@ export function dampedReach(
       break;
     }
     prev = R;
-    R = lo + GROWTH * (R - lo);
+    R = Math.min(lo + GROWTH * (R - lo), sure > R ? sure : Infinity);
   }
   return { R, last, probeR };
 }
