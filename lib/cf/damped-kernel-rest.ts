@@ -6,6 +6,8 @@ const EPS = Number.EPSILON;
 const SAME = 1e-9;
 /** the binomial series in 1/z is used where max |d_i| / |z| is at most this (its tail then falls geometrically) */
 const RADIUS = 0.5;
+/** the series' terms past the kernels' order bounded one by one (see N) */
+const EXTRA = 2;
 /** the power a near kernel's exponent residual gives up past the last probe (see decay) */
 const NEAR_EPS = 1 / 32;
 
@@ -64,7 +66,9 @@ export function sumKernelRest(cs: readonly ChildBounds[], kernels: readonly Gamm
   const d = gs.map((g) => Math.abs(r - g.rate) * (1 + 2 * EPS));
   const dMax = Math.max(...d);
   const order = Math.max(...kernels.map((k) => k.shape));
-  const N = Math.floor(order - E + SAME);
+  // EXTRA orders past the kernels' own: their c_n = A C b_n (no kernel there) are bounded by their size, not by the majorant
+  // series' B_n, which sees no cancellation (at the kernels' rate the shape-weighted mean of the rho_i, b_1 = sum k_i d_i = 0)
+  const N = Math.floor(order - E + SAME) + EXTRA;
   // b_n and B_n, n <= N, by multiplying the factors' binomial series (B_n below raised by the rounding of both: every
   // partial product is at most its majorant's, each step a few roundings)
   const b = new Float64Array(Math.max(N + 1, 1));

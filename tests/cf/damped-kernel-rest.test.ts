@@ -123,3 +123,24 @@ describe("a sum's transform less its gamma kernels: the derived bounds are never
     expect(gain).toBeGreaterThan(2);
   });
 });
+
+describe("a sum of gamma terms takes its kernels at the shape-weighted mean rate", () => {
+  // prod_i (rho_i / (rho_i + s))^{k_i} = C z^{-E} prod_i (1 - (r - rho_i) / z)^{-k_i}, z = r + s (binomial series, common
+  // practice): at r = sum k_i rho_i / E the z^{-(E + 1)} coefficient sum k_i (r - rho_i) is 0, so after the kernel at E what
+  // is left of the gamma product falls like |z|^{-(E + 2)}, and the bound sees it
+  it("gamma(0.926, 1.181) + NB(3.168, 0.677) x gamma(2.884, 0.224) + gamma(3.068, 1.834)", () => {
+    const terms = cases[0].terms;
+    const m = compile({ sum: terms.map((x) => x.model) } as Model);
+    const ks = m.dampedKernels!;
+    const E = 0.926 + 3.068;
+    expect(ks.length).toBe(1);
+    expect(ks[0].shape).toBeCloseTo(E, 12);
+    expect(ks[0].rate).toBeCloseTo((0.926 * 1.181 + 3.068 * 1.834) / E, 12);
+    const kr = m.dampedMajorant!.kernelRest!;
+    for (const beta of [0, 0.05]) {
+      // from t = 400 to 1600 the bound falls by more than 4^(E + 1.5) (a remainder ~ |z|^{-(E + 1)} would fall by 4^(E + 1))
+      const ratio = kr.at(beta, 1600).rest / kr.at(beta, 400).rest;
+      expect(ratio).toBeLessThan(Math.pow(4, -(E + 1.5)));
+    }
+  });
+});
