@@ -169,7 +169,7 @@ export function compoundNode(N: Node, X: Node, discretise: DiscretiseOptions | n
   // derived bounds on the transform past 0 for sums holding the compound (./damped-majorant.ts)
   const mean1 = N.countCgf ? N.cumulants(1)[0] : null;
   if (node.dampedLogCf && N.countCgf && mean1 !== null)
-    node.dampedMajorant = compoundDampedMajorant(node, X, { cgf: N.countCgf, mean: mean1, absError: N.cfAbsError ?? 0, relError: N.cfRelError ?? 0 });
+    node.dampedMajorant = compoundDampedMajorant(node, X, { cgf: N.countCgf, mean: mean1, absError: N.cfAbsError ?? 0, relError: N.cfRelError ?? 0, ...(N.table ? { table: (n: number) => N.table!(n) } : {}) });
   if (kind.type === "lattice" && X.table) {
     node.table = (maxLength) => compoundTable(N, X, kind as { step: number }, maxLength, node);
   }

@@ -1,5 +1,6 @@
 // Derived bounds on a sum's damped transform less its gamma kernels, seeing the kernels cancel the gamma terms' leading powers.
 import type { GammaKernel } from "./damped-kernels";
+import { gammaMonomial, type GammaMonomial } from "./damped-kernel-monomials";
 
 const EPS = Number.EPSILON;
 /** exponents within this of E + n are the kernel matching that power (as the series' own merge, ./damped-kernels.ts) */
@@ -18,6 +19,21 @@ export interface ChildBounds {
   slope(beta: number, t: number): number;
   /** an exact gamma(shape, rate) term from its lower end: its transform is (rate / (rate + s))^shape */
   gamma?: { shape: number; rate: number };
+  /** a compound of exact gamma(shape, rate) claims (see Claims) */
+  claims?: Claims;
+}
+
+/**
+ * A compound of gamma(shape, rate) claims: its transform is sum_n p_n phi^n, phi = (rate / (rate + s))^shape, the count's
+ * p_0 .. p_M (p[0] the atom) each within pErr, and `mean` at least E N (so sum_{n > M} p_n <= 1 - sum_{n <= M} p_n and
+ * sum_{n > M} n p_n <= mean - sum_{n <= M} n p_n, the p_n taken at their least)
+ */
+export interface Claims {
+  shape: number;
+  rate: number;
+  p: Float64Array;
+  pErr: Float64Array;
+  mean: number;
 }
 
 /** bounds on |psi - atom - kernels| and its derivative at every frequency from t on, and a power past t0 */
@@ -29,150 +45,178 @@ export interface KernelRest {
 }
 
 const up = (v: number, k = 8) => v * (1 + k * EPS);
-
+/** at most this many products of gamma transforms (the claims' orders are lowered until the count fits) */
+const MAX_MONOMIALS = 256;
 /**
- * An independent sum of exact gamma terms G_i = (rho_i / (rho_i + s))^{k_i} (s = beta - i t) and other terms a_j + R_j
- * (atom a_j at their lower end, |R_j| and |R_j'| bounded through the operators), its transform past lo
- * psi = G P, G = prod G_i, P = prod_j (a_j + R_j), less its gamma kernels K (one rate r, all at lo: the endpoint
- * expansion's terms up to its order, ./kernel-carry.ts). With A = prod a_j:
- *   psi - K = G (P - A) + (A G - K),
- * |P - A| bounded as the operators do (sum_j (prod_{l < j} a_l) |R_j| prod_{l > j} (a_l + |R_l|), no cancellation).
- * With z = r + s and d_i = r - rho_i, rho_i + s = z - d_i, so A G = A C z^{-E} prod_i (1 - d_i / z)^{-k_i}, C = prod rho_i^{k_i},
- * E = sum k_i, and the binomial series gives A C sum_n b_n z^{-(E + n)} for |z| > max |d_i|, |b_n| <= B_n, the coefficients
- * of F(x) = prod_i (1 - |d_i| x)^{-k_i} (a majorant series: each factor's coefficients (k)_n / n! d^n are at most (k)_n / n! |d|^n).
- * A kernel w (r / z)^e is w r^e z^{-e}: those of exponent E + n, n <= N (N the largest with E + n <= the kernels' order),
- * cancel A C b_n z^{-(E + n)} up to their difference c_n, and what is left is
- *   |A G - K| <= sum_{n <= N} |c_n| |z|^{-(E + n)} + A C |z|^{-E} T(1/|z|) + sum_{other kernels} |w| (r / |z|)^e,
- * T(x) = F(x) - sum_{n <= N} B_n x^n (Cauchy's majorant, e.g. Henrici, Applied and Computational Complex Analysis vol. 1,
- * sec. 2.3), every term non-increasing in t (|z| = |r + beta - i t| grows with t). The derivative in t is -i d/dz:
- * |c_n| (E + n) |z|^{-(E + n + 1)}, A C |z|^{-E} (E x T(x) + x^2 T'(x)) (x = 1/|z|) and |w| e r^e |z|^{-e - 1}; and
- * |(G (P - A))'| <= |G| sum_i k_i / |rho_i + s| |P - A| + |G| |(P - A)'|. Where |z| is too small for the series the
- * caller's bounds stay (the operators' size plus the kernels' own sizes). Undefined where the sum has no gamma term, its
- * kernels are not of one rate at lo, or a value is not finite.
+ * An independent sum of exact gamma terms G_i = (rho_i / (rho_i + s))^{k_i} (s = beta - i t), compounds of exact gamma
+ * claims and other terms a_j + R_j (atom a_j at their lower end, |R_j| and |R_j'| bounded through the operators), its
+ * transform past lo psi = G P, G = prod G_i, P = prod_j (Q_j + R_j'), less its gamma kernels K (one rate r, all at lo: the
+ * endpoint expansion's terms up to its order, ./kernel-carry.ts). A compound of gamma(k_j, rho_j) claims is written
+ * Q_j = sum_{n <= M_j} p_n Gamma_j^n (Gamma_j = (rho_j / (rho_j + s))^{k_j}, exact) and R_j' = sum_{n > M_j} p_n Gamma_j^n,
+ * |R_j'| <= (sum_{n > M} p_n) m^{M + 1} and |R_j''| <= (sum_{n > M} n p_n) m^M |Gamma_j'| (m >= |Gamma_j|, every p_n >= 0);
+ * another term is Q_j = a_j, R_j' = R_j. Then
+ *   psi - K = G (P - prod Q) + (G prod Q - K),
+ * |P - prod Q| <= sum_j (prod_{l < j} |Q_l|) |R_j'| prod_{l > j} (|Q_l| + |R_l'|) (telescoped, no cancellation), its
+ * derivative by the product rule over the same terms. G prod Q is a sum of products of gamma transforms (monomials, each
+ * its coefficient times G and one Gamma_j^{n_j} per compound), each a series in z = r + s (./damped-kernel-monomials.ts:
+ * sum_n v_n z^{-(E_m + n)} up to N_m, the rest within AC_m |z|^{-E_m} T_m(1/|z|)). The terms of one power e (within SAME)
+ * and the kernel w (r / z)^e = w r^e z^{-e} of that power are summed to c_e (the kernels cancel them up to c_e), each term's
+ * own power e' off e by at most `off` (the shapes' sums rounded) leaving v (z^{-e'} - z^{-e}), |.| <= |v| |z|^{-e}
+ * (e^{off (|ln |z|| + pi / 2)} - 1) (|arg z| < pi / 2: Re z = r + beta > 0); kernels of no such power are bounded by their
+ * size |w| (r / |z|)^e. Every term is non-increasing in t (|z| = |r + beta - i t| grows with t). The derivative in t is
+ * -i d/dz: |c_e| e |z|^{-e - 1}, AC |z|^{-E} (E x T(x) + x^2 T'(x)) (x = 1/|z|) and |w| e r^e |z|^{-e - 1}; and
+ * |(G (P - prod Q))'| <= |G| sum_i k_i / |rho_i + s| |P - prod Q| + |G| |(P - prod Q)'|. Where |z| is too small for the
+ * series the caller's bounds stay (the operators' size plus the kernels' own sizes). Undefined where the sum has no gamma
+ * term, its kernels are not of one rate at lo, or a value is not finite.
  */
 export function sumKernelRest(cs: readonly ChildBounds[], kernels: readonly GammaKernel[] | undefined, lo: number): KernelRest | undefined {
   if (!kernels || kernels.length === 0) return undefined;
   const gs = cs.filter((c) => c.gamma).map((c) => c.gamma!);
-  const os = cs.filter((c) => !c.gamma);
   if (gs.length === 0) return undefined;
   const r = kernels[0].rate;
   if (!kernels.every((k) => k.rate === r && k.at === lo) || !(r > 0) || !Number.isFinite(r)) return undefined;
   const E = gs.reduce((s, g) => s + g.shape, 0);
-  const A = os.reduce((s, c) => s * c.atom, 1);
-  const logC = gs.reduce((s, g) => s + g.shape * Math.log(g.rate), 0);
-  // A C: the product of the atoms (one rounding each), exp of the log-sum (its terms and sum rounded, exp within an ulp)
-  const acRel = (8 + 2 * os.length + 4 * gs.length + 4 * Math.abs(logC)) * EPS;
-  const AC = A * Math.exp(logC) * (1 + acRel);
-  const d = gs.map((g) => Math.abs(r - g.rate) * (1 + 2 * EPS));
-  const dMax = Math.max(...d);
   const order = Math.max(...kernels.map((k) => k.shape));
-  // EXTRA orders past the kernels' own: their c_n = A C b_n (no kernel there) are bounded by their size, not by the majorant
-  // series' B_n, which sees no cancellation (at the kernels' rate the shape-weighted mean of the rho_i, b_1 = sum k_i d_i = 0)
-  const N = Math.floor(order - E + SAME) + EXTRA;
-  // b_n and B_n, n <= N, by multiplying the factors' binomial series (B_n below raised by the rounding of both: every
-  // partial product is at most its majorant's, each step a few roundings)
-  const b = new Float64Array(Math.max(N + 1, 1));
-  const B = new Float64Array(Math.max(N + 1, 1));
-  // Bp: the same coefficients as computed (not rounded up), for the tail T = F - sum Bp x^n with its rounding allowed for
-  const Bp = new Float64Array(Math.max(N + 1, 1));
-  b[0] = 1;
-  B[0] = 1;
-  Bp[0] = 1;
-  for (const g of gs) {
-    const f = new Float64Array(b.length);
-    const F = new Float64Array(b.length);
-    let c = 1;
-    let C = 1;
-    const dg = r - g.rate;
-    for (let n = 0; n < b.length; n++) {
-      if (n > 0) {
-        c *= ((g.shape + n - 1) / n) * dg;
-        C *= ((g.shape + n - 1) / n) * Math.abs(dg);
-      }
-      f[n] = c;
-      F[n] = C;
-    }
-    const nb = new Float64Array(b.length);
-    const nB = new Float64Array(b.length);
-    for (let n = 0; n < b.length; n++)
-      for (let m = 0; m <= n; m++) {
-        nb[n] += b[m] * f[n - m];
-        nB[n] += Bp[m] * F[n - m];
-      }
-    b.set(nb);
-    Bp.set(nB);
+  // EXTRA orders past the kernels' own: their terms are bounded by their size, not by the majorant series, which sees no
+  // cancellation (at the kernels' rate the shape-weighted mean of the rho_i, b_1 = sum k_i d_i = 0)
+  const top = order + EXTRA;
+  // each compound of gamma claims to the count M with E + (M + 1) k past top (what is left, G R', then falls faster than
+  // every power kept), at most its table; lowered while the monomials are too many
+  const os = cs.filter((c) => !c.gamma);
+  const Ms = os.map((c) => (c.claims ? Math.min(c.claims.p.length - 1, Math.max(0, Math.floor((top - E) / c.claims.shape))) : 0));
+  const count = () => Ms.reduce((s, M) => s * (M + 1), 1);
+  while (count() > MAX_MONOMIALS) {
+    const j = Ms.indexOf(Math.max(...Ms));
+    Ms[j]--;
   }
-  // each B_n as computed within (4 n + 8) eps a factor of the exact one (the factor's product and the convolution's sums)
-  const gB = (4 * N + 8) * gs.length * EPS;
-  for (let n = 0; n < B.length; n++) B[n] = Bp[n] * (1 + gB + 4 * EPS);
-  // E as computed is within dE of the exact sum of the shapes; every power of |z| below is widened by that (x^{-dE})
-  const dE = 4 * gs.length * EPS * E;
-  // c_n = A C b_n - sum of the kernels' w r^e at E + n (their computation's rounding allowed for), the other kernels apart;
-  // a kernel whose exponent e is off E + n by at most `off` (the shapes' sums rounded) leaves w r^e (z^{-e} - z^{-(E + n)}),
-  // |.| <= |w r^e| |z|^{-e} (e^{off (|ln |z|| + pi / 2)} - 1) (|arg z| < pi / 2: Re z = r + beta > 0)
-  const c = new Float64Array(b.length);
-  const cAbs = new Float64Array(b.length);
-  for (let n = 0; n <= N; n++) {
-    c[n] = AC * b[n];
-    cAbs[n] = AC * B[n] * (gB + 2 * acRel + 32 * (n + 2) * EPS);
-  }
-  const others: GammaKernel[] = [];
-  const near: { wr: number; e: number; off: number }[] = [];
-  for (const k of kernels) {
-    const n = Math.round(k.shape - E);
-    const wr = k.w * Math.pow(r, k.shape);
-    if (n >= 0 && n <= N && Math.abs(k.shape - E - n) <= SAME) {
-      c[n] -= wr;
-      cAbs[n] += Math.abs(wr) * 16 * EPS;
-      const off = Math.abs(k.shape - E - n) + dE + 4 * EPS * k.shape;
-      near.push({ wr: Math.abs(wr) * (1 + 16 * EPS), e: k.shape, off });
-    } else others.push(k);
-  }
-  for (let n = 0; n <= N; n++) cAbs[n] = up(cAbs[n] + Math.abs(c[n]), 4);
-  if (![AC, ...cAbs, ...B, ...near.map((v) => v.wr)].every(Number.isFinite)) return undefined;
-  // T(x) and T'(x) from F in closed form less the first N + 1 terms: the difference's rounding is a few eps of F (and F'),
-  // allowed for in full (it dwarfs T only where |z| is far past where the cut-offs fall)
-  const tails = (x: number) => {
-    let L = 0;
-    let D = 0;
-    for (let i = 0; i < gs.length; i++) {
-      L -= gs[i].shape * Math.log1p(-d[i] * x);
-      D += (gs[i].shape * d[i]) / (1 - d[i] * x);
-    }
-    const F = Math.exp(L) * (1 + (16 + 4 * gs.length + 2 * L) * EPS);
-    const F1 = F * D * (1 + 4 * gs.length * EPS);
+  // per other term: |Q| (q), |Q'| (dq), |R'| (rr), |R''| (dr) at (beta, t)
+  const tailSums = os.map((c, j) => {
+    const cl = c.claims;
+    const M = Ms[j];
+    if (!cl || M === 0) return null;
     let p = 0;
-    let p1 = 0;
-    let xn = 1;
-    for (let n = 0; n <= N; n++) {
-      p += Bp[n] * xn;
-      if (n > 0) p1 += n * Bp[n] * (xn / x);
-      xn *= x;
+    let np = 0;
+    for (let n = 0; n <= M; n++) {
+      const lowP = Math.max(0, cl.p[n] - cl.pErr[n]);
+      p += lowP;
+      np += n * lowP;
     }
-    // p within gB of sum B_n x^n <= F, the sums and powers a few eps more
-    const slack = gB + (16 + 4 * N) * EPS;
-    return { T: Math.max(F - p, 0) + slack * F, T1: Math.max(F1 - p1, 0) + slack * F1 };
-  };
-  // |P - A| and |(P - A)'| for the other terms
+    return { P: up(Math.max(0, 1 - p * (1 - 4 * (M + 1) * EPS)), 4), NP: up(Math.max(0, cl.mean - np * (1 - 4 * (M + 1) * EPS)), 4) };
+  });
+  const parts = (beta: number, t: number) =>
+    os.map((c, j) => {
+      const cl = c.claims;
+      const M = Ms[j];
+      const ts = tailSums[j];
+      if (!cl || !ts) return { q: c.atom, dq: 0, rr: c.rest(beta, t), dr: c.slope(beta, t) };
+      const h = Math.hypot(cl.rate + beta, t);
+      const m = Math.min(1, up(Math.pow(cl.rate / h, cl.shape), 16));
+      const dm = up((cl.shape * m) / h, 4);
+      let q = 0;
+      let dq = 0;
+      // mp = m^{n - 1}, mn = m^n
+      let mp = 0;
+      let mn = 1;
+      for (let n = 0; n <= M; n++) {
+        const pn = cl.p[n] + cl.pErr[n];
+        q += pn * mn;
+        if (n > 0) dq += n * pn * mp * dm;
+        mp = mn;
+        mn *= m;
+      }
+      // now mp = m^M, mn = m^{M + 1}
+      return { q: up(q, 2 * M + 8), dq: up(dq, 2 * M + 8), rr: up(ts.P * mn, 4), dr: up(ts.NP * mp * dm, 8) };
+    });
+  // |P - prod Q| and its derivative: sum_j (prod_{l < j} Q_l) R_j' (prod_{l > j} (Q_l + R_l')), each term by the product rule
   const restO = (beta: number, t: number, withSlope = true) => {
-    const n = os.length;
-    const rs = os.map((o) => o.rest(beta, t));
+    const v = parts(beta, t);
+    const n = v.length;
     let rest = 0;
     let slope = 0;
-    for (let i = 0; i < n; i++) {
-      let p = rs[i];
-      for (let j = 0; j < i; j++) p *= os[j].atom;
-      for (let j = i + 1; j < n; j++) p *= os[j].atom + rs[j];
-      rest += p;
-      if (withSlope) {
-        let q = os[i].slope(beta, t);
-        for (let j = 0; j < n; j++) if (j !== i) q *= os[j].atom + rs[j];
-        slope += q;
+    for (let j = 0; j < n; j++) {
+      let a = v[j].rr;
+      for (let l = 0; l < j; l++) a *= v[l].q;
+      for (let l = j + 1; l < n; l++) a *= v[l].q + v[l].rr;
+      rest += a;
+      if (!withSlope) continue;
+      // the derivative falls on R_j', on one Q_i before j or on one factor after j
+      let d = v[j].dr;
+      for (let l = 0; l < j; l++) d *= v[l].q;
+      for (let l = j + 1; l < n; l++) d *= v[l].q + v[l].rr;
+      for (let i = 0; i < n; i++) {
+        if (i === j) continue;
+        let e = v[j].rr * (i < j ? v[i].dq : v[i].dq + v[i].dr);
+        for (let l = 0; l < j; l++) if (l !== i) e *= v[l].q;
+        for (let l = j + 1; l < n; l++) if (l !== i) e *= v[l].q + v[l].rr;
+        d += e;
       }
+      slope += d;
     }
-    const g = 1 + 4 * (n + 1) * EPS;
+    const g = 1 + 4 * (n * n + 2) * EPS;
     return { rest: rest * g, slope: slope * g };
   };
+  // the monomials of G prod Q: one per choice of n_j <= M_j (n_j = 0: the atom), coefficient prod p_{n_j} (p_0 = the atom)
+  const monos: GammaMonomial[] = [];
+  const idx = new Array<number>(os.length).fill(0);
+  for (;;) {
+    let coef = 1;
+    let rel = 0;
+    const fs = [...gs];
+    for (let j = 0; j < os.length; j++) {
+      const cl = os[j].claims;
+      if (!cl || Ms[j] === 0) {
+        coef *= os[j].atom;
+        continue;
+      }
+      const n = idx[j];
+      coef *= cl.p[n];
+      rel += cl.p[n] > 0 ? cl.pErr[n] / cl.p[n] : 0;
+      if (n > 0) fs.push({ shape: n * cl.shape, rate: cl.rate });
+    }
+    if (coef !== 0) {
+      const Em = fs.reduce((s, f) => s + f.shape, 0);
+      monos.push(gammaMonomial(fs, coef, rel + 4 * (os.length + 1) * EPS, r, Math.floor(top - Em + SAME)));
+    }
+    let j = 0;
+    while (j < os.length && idx[j] === Ms[j]) idx[j++] = 0;
+    if (j === os.length) break;
+    idx[j]++;
+  }
+  // the terms by power: c_e, its error, and each term's distance from e (near)
+  const groups: { e: number; c: number; err: number; abs: number; n: number }[] = [];
+  const near: { g: number; v: number; off: number }[] = [];
+  const groupOf = (e: number) => {
+    let g = groups.find((x) => Math.abs(x.e - e) <= SAME);
+    if (!g) groups.push((g = { e, c: 0, err: 0, abs: 0, n: 0 }));
+    return g;
+  };
+  for (const m of monos)
+    for (let n = 0; n < m.v.length; n++) {
+      const e = m.E + n;
+      const g = groupOf(e);
+      g.c += m.v[n];
+      g.err += m.err[n];
+      g.abs += Math.abs(m.v[n]);
+      g.n++;
+      near.push({ g: g.e, v: Math.abs(m.v[n]) * (1 + 4 * EPS), off: Math.abs(e - g.e) + m.dE + 4 * (n + 1) * EPS * e });
+    }
+  const others: GammaKernel[] = [];
+  for (const k of kernels) {
+    const wr = k.w * Math.pow(r, k.shape);
+    const g = groups.find((x) => Math.abs(x.e - k.shape) <= SAME);
+    if (g) {
+      g.c -= wr;
+      g.err += Math.abs(wr) * 16 * EPS;
+      g.abs += Math.abs(wr);
+      g.n++;
+      near.push({ g: g.e, v: Math.abs(wr) * (1 + 16 * EPS), off: Math.abs(k.shape - g.e) + 4 * EPS * k.shape });
+    } else others.push(k);
+  }
+  // c_e as summed within (n + 1) eps of the sum of its terms' sizes (Higham, Accuracy and Stability, sec. 4.2)
+  const cAbs = groups.map((g) => ({ e: g.e, c: up(Math.abs(g.c) + g.err + (g.n + 1) * EPS * g.abs, 4) }));
+  const dMax = Math.max(0, ...monos.map((m) => m.dMax), ...gs.map((g) => Math.abs(r - g.rate)));
+  const nTerms = monos.length + groups.length + near.length + others.length;
+  if (![...cAbs.map((c) => c.c), ...near.map((v) => v.v), ...monos.map((m) => m.AC)].every(Number.isFinite)) return undefined;
   // |G| and sum k_i / |rho_i + s|
   const gamma = (beta: number, t: number) => {
     let lg = 0;
@@ -184,37 +228,40 @@ export function sumKernelRest(cs: readonly ChildBounds[], kernels: readonly Gamm
     }
     return { G: Math.exp(lg) * (1 + (8 + 4 * gs.length + 2 * Math.abs(lg)) * EPS), kr: up(kr, 4 * gs.length) };
   };
+  const pw = (x: number, e: number) => Math.pow(x, e) * (1 + (4 + 2 * e) * EPS);
   const bound = (beta: number, t: number) => {
     const zAbs = Math.hypot(r + beta, t) * (1 - 2 * EPS);
     const x = 1 / zAbs;
     if (!(dMax * x <= RADIUS)) return { rest: Infinity, slope: Infinity };
     const { G, kr } = gamma(beta, t);
     const o = restO(beta, t);
-    const { T, T1 } = tails(x);
     const lnz = Math.abs(Math.log(x)) + 1e-15;
-    const zE = Math.pow(x, E) * Math.exp(dE * lnz) * (1 + (4 + 2 * E) * EPS);
-    const Eu = E + dE;
-    let rest = G * o.rest + AC * zE * T;
-    let slope = G * (kr * o.rest + o.slope) + AC * zE * (Eu * x * T + x * x * T1);
-    let zn = zE;
-    for (let n = 0; n <= N; n++) {
-      rest += cAbs[n] * zn;
-      slope += cAbs[n] * (Eu + n) * zn * x;
-      zn *= x;
+    let rest = G * o.rest;
+    let slope = G * (kr * o.rest + o.slope);
+    for (const m of monos) {
+      const { T, T1 } = m.tails(x);
+      const zE = pw(x, m.E) * Math.exp(m.dE * lnz);
+      rest += m.AC * zE * T;
+      slope += m.AC * zE * ((m.E + m.dE) * x * T + x * x * T1);
+    }
+    for (const c of cAbs) {
+      const v = c.c * pw(x, c.e);
+      rest += v;
+      slope += v * c.e * x;
     }
     for (const v of near) {
-      // the derivative: w r^e z^{-e-1} ((E + n) (z^delta - 1) - delta), delta = e - (E + n)
-      const zr = v.wr * Math.pow(x, v.e) * (1 + (4 + 2 * v.e) * EPS);
-      const m = Math.expm1(v.off * (lnz + Math.PI / 2)) * (1 + 4 * EPS);
-      rest += zr * m;
-      slope += zr * x * ((v.e + v.off) * m + v.off);
+      // the derivative: v z^{-g-1} (g (z^delta - 1) - delta) with |delta| <= off
+      const zr = v.v * pw(x, v.g);
+      const mm = Math.expm1(v.off * (lnz + Math.PI / 2)) * (1 + 4 * EPS);
+      rest += zr * mm;
+      slope += zr * x * ((v.g + v.off) * mm + v.off);
     }
     for (const k of others) {
       const v = Math.abs(k.w) * Math.pow(r * x, k.shape) * (1 + 16 * EPS);
       rest += v;
       slope += v * k.shape * x;
     }
-    return { rest: up(rest, 16 + 2 * N + 2 * others.length), slope: up(slope, 16 + 2 * N + 2 * others.length) };
+    return { rest: up(rest, 16 + 2 * nTerms), slope: up(slope, 16 + 2 * nTerms) };
   };
   return {
     kernels,
@@ -228,26 +275,28 @@ export function sumKernelRest(cs: readonly ChildBounds[], kernels: readonly Gamm
       const { G } = gamma(beta, t0);
       const Gt = gs.reduce((s, g) => s * Math.pow(g.rate * x, g.shape), 1) * (1 + (8 + 8 * gs.length) * EPS);
       const o = restO(beta, t0, false);
-      const { T } = tails(x);
       const lnz = Math.abs(Math.log(x)) + 1e-15;
-      const zE = Math.pow(x, E) * Math.exp(dE * lnz) * (1 + (4 + 2 * E) * EPS);
-      let R = Math.max(G, Gt) * o.rest + AC * zE * T;
-      let zn = zE;
-      for (let n = 0; n <= N; n++) {
-        R += cAbs[n] * zn;
-        zn *= x;
+      let R = Math.max(G, Gt) * o.rest;
+      let q = E - 4 * gs.length * EPS * E;
+      for (const m of monos) {
+        R += m.AC * pw(x, m.E) * Math.exp(m.dE * lnz) * m.tails(x).T;
+        q = Math.min(q, m.E - m.dE);
       }
+      for (const c of cAbs) R += c.c * pw(x, c.e);
       // |z^{-delta} - 1| <= e^y - 1 <= y e^y, y = off (ln |z| + pi / 2), with ln |z| <= ln t0 + c0 + ln u (u = t / t0 >= 1,
       // |z| <= t + r + beta, c0 = ln(1 + (r + beta) / t0)) and ln u <= u^NEAR_EPS / NEAR_EPS: at most
-      // e^{Y0} (Y0 + off / NEAR_EPS) u^{off + NEAR_EPS}, Y0 = off (ln t0 + c0 + pi / 2), so a power off + NEAR_EPS less than e
+      // e^{Y0} (Y0 + off / NEAR_EPS) u^{off + NEAR_EPS}, Y0 = off (ln t0 + c0 + pi / 2), so a power off + NEAR_EPS less than g
       const c0 = Math.log1p((r + beta) / t0);
       for (const v of near) {
         const Y0 = v.off * (Math.log(t0) + c0 + Math.PI / 2);
-        R += v.wr * Math.pow(x, v.e) * Math.exp(Y0) * (Y0 + v.off / NEAR_EPS) * (1 + (16 + 4 * v.e) * EPS);
+        R += v.v * pw(x, v.g) * Math.exp(Y0) * (Y0 + v.off / NEAR_EPS) * (1 + 16 * EPS);
+        q = Math.min(q, v.g - v.off - NEAR_EPS);
       }
-      for (const k of others) R += Math.abs(k.w) * Math.pow(r * x, k.shape) * (1 + 16 * EPS);
-      const q = Math.min(E - dE, ...near.map((v) => v.e - v.off - NEAR_EPS), ...others.map((k) => k.shape));
-      return { R: up(R, 16 + 2 * N + 2 * others.length), q };
+      for (const k of others) {
+        R += Math.abs(k.w) * Math.pow(r * x, k.shape) * (1 + 16 * EPS);
+        q = Math.min(q, k.shape);
+      }
+      return { R: up(R, 16 + 2 * nTerms), q };
     },
   };
 }

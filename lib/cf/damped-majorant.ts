@@ -2,7 +2,8 @@ import type { Node } from "./node";
 import type { DampedLogCf } from "./damped-cf";
 import { lognormalDampedBounds } from "./lognormal-majorant";
 import { pgfBounds } from "./count-pgf";
-import type { KernelRest } from "./damped-kernel-rest";
+import type { Claims, KernelRest } from "./damped-kernel-rest";
+import type { LatticeTable } from "./types";
 
 const EPS = Number.EPSILON;
 
@@ -46,6 +47,8 @@ export interface DampedMajorant {
   decay(beta: number, t0: number): MajorantDecay;
   /** an exact gamma(shape, rate) term from its lower end (its transform in closed form): a sum sees its kernels cancel it */
   gamma?: { shape: number; rate: number };
+  /** a compound of exact gamma claims: its count's first probabilities (the kernel rest expands it, ./damped-kernel-rest.ts) */
+  claims?: Claims;
   /** a sum's bounds on the transform past lo less the atom and its gamma kernels (`kernels`, the node's own), ./damped-kernel-rest.ts */
   kernelRest?: KernelRest;
 }
@@ -114,6 +117,27 @@ export interface CountForMajorant {
   mean: number;
   absError: number;
   relError: number;
+  /** the count's pmf table (p_n within its pointRel), where it has one */
+  table?: (maxLength: number) => LatticeTable | null;
+}
+
+/** p_0 .. p_M of the count at most: a compound's expansion into claims beyond this is not taken */
+const CLAIMS_MAX = 12;
+
+/**
+ * the count's p_0 .. p_M from its table where each is stated within pointRel (bounded at 1.01 pointRel(n) p_n, as
+ * ./compound-remainder.ts takes them), else undefined
+ */
+function claimsOf(g: { shape: number; rate: number } | undefined, count: CountForMajorant, p0: number): Claims | undefined {
+  if (!g || !count.table) return undefined;
+  const t = count.table(CLAIMS_MAX + 1);
+  if (!t || t.step !== 1 || t.origin !== 0 || !t.pointRel || t.p.length < 2) return undefined;
+  const M = Math.min(CLAIMS_MAX, t.p.length - 1);
+  const p = Float64Array.from(t.p.subarray(0, M + 1));
+  const pErr = Float64Array.from(p, (v, n) => 1.01 * t.pointRel!(n) * v);
+  // the table's p_0 is the compound's atom (the count's own P(N = 0)) within its bound
+  if (!(Math.abs(p[0] - p0) <= pErr[0] + 4 * EPS * p0) || !p.every(Number.isFinite) || !pErr.every(Number.isFinite)) return undefined;
+  return { shape: g.shape, rate: g.rate, p, pErr, mean: up(count.mean, 16) };
 }
 
 export function compoundDampedMajorant(node: Node, X: Node, count: CountForMajorant | null): DampedMajorant | undefined {
@@ -131,9 +155,11 @@ export function compoundDampedMajorant(node: Node, X: Node, count: CountForMajor
     const m = Math.min(1, xm.rest(beta, t));
     return Math.min(up((1 - p0lo) * m), Math.max(0, up(pgf(m) - p0lo)));
   };
+  const claims = claimsOf(xm.gamma, count, p0);
   return {
     cf,
     atom: p0,
+    ...(claims ? { claims } : {}),
     rest,
     decay: (beta, t0) => {
       const d = xm.decay(beta, t0);

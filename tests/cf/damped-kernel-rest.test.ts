@@ -144,3 +144,33 @@ describe("a sum of gamma terms takes its kernels at the shape-weighted mean rate
     }
   });
 });
+
+describe("compounds of gamma claims are expanded into their first claim counts, whose products with the gamma terms the kernels cancel", () => {
+  // seed 2 model 10 of the random bench: the kernels at 2.318 and 3.318 (the gamma term times one and two exponential
+  // claims) and 3.943 (times one gamma(2.625) claim) cancel terms that the operators' size of the compounds (~ t^-1 for
+  // exponential claims) cannot see; with the counts' p_n the bound falls as the closed form does (~ t^-4.3 there)
+  it("five terms, one gamma(1.318, 1.534): within 100 times the closed form's largest size past each t in [20, 2000]", () => {
+    const terms = cases[3].terms;
+    const m = compile({ sum: terms.map((x) => x.model) } as Model);
+    const ks = m.dampedKernels!;
+    const kr = m.dampedMajorant!.kernelRest!;
+    const size = (beta: number, t: number) => {
+      let v: Cx = [1, 0];
+      for (const x of terms) v = cmul(v, x.cf(beta, t));
+      for (const k of ks) {
+        const g = cmul([k.w, 0], gammaT(k.shape, k.rate)(beta, t));
+        v = [v[0] - g[0], v[1] - g[1]];
+      }
+      return Math.hypot(v[0], v[1]);
+    };
+    for (const beta of [0, 0.01]) {
+      let worst = 0;
+      for (let t = 20; t <= 2000; t *= 1.1) {
+        let sup = 0;
+        for (let u = t; u <= 2 * t; u *= 1.01) sup = Math.max(sup, size(beta, u));
+        worst = Math.max(worst, kr.at(beta, t).rest / sup);
+      }
+      expect(worst).toBeLessThan(100);
+    }
+  });
+});
