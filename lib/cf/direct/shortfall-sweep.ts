@@ -22,6 +22,21 @@ export interface TailIntegral {
  */
 const ES_TOL = 1e-6;
 /**
+ * the same for a law with derived bounds on its density's derivatives (DirectLaw.pdfDeriv), whose panels' brackets are
+ * the corrected trapezoid rule's O(length^5) remainder: about the values' own rounding
+ */
+const ES_TOL_SMOOTH = 1e-13;
+/**
+ * panels at most under ES_TOL_SMOOTH from a level's point on; the rest of the segment takes ES_TOL's rule (the brackets
+ * still the narrower of both): a tail near 1 over many spreads (the far side of a heavy lower tail) would spend all the
+ * panels at that tolerance and end with the bound on what lies past them, far wider
+ */
+const SMOOTH_PANELS = 6000;
+/** 4-point Gauss-Legendre nodes on [-1, 1] and weights (Abramowitz & Stegun Table 25.4), and the remainder's constant */
+const GL4_T = [-0.8611363115940526, -0.3399810435848563, 0.3399810435848563, 0.8611363115940526];
+const GL4_W = [0.3478548451374538, 0.6521451548625461, 0.6521451548625461, 0.3478548451374538];
+const GL4_REM = (24 ** 4 / (9 * 40320 ** 3)) * (1 + 1e-12);
+/**
  * A caller's allowance A on a level's bracket (an absolute width it may take, e.g. a mixture's component whose tail is a
  * small part of the mixture's) acts as the floor A / (ES_TOL ALLOW_SPAN s) under G_i(0) in the panels' rule, which then
  * takes longer panels where the floor is the larger: the brackets stay derived, only their widths follow the floor. The
@@ -52,8 +67,12 @@ const ES_PANELS = 20000;
 export function tailSweep(law: DirectLaw, qs: readonly number[], dir: 1 | -1, rest: RestBound | undefined, allow?: readonly number[]): TailIntegral[] {
   const K = qs.length;
   // a level's allowance as a floor under its G_i(0) in the panels' rule (see ALLOW_SPAN)
-  const floor = new Float64Array(K);
-  if (allow && law.spread > 0) for (let i = 0; i < K; i++) floor[i] = Math.min(Math.max(allow[i], 0) / (ES_TOL * ALLOW_SPAN * law.spread), 1);
+  const deriv = law.pdfDeriv;
+  let smooth = deriv !== undefined;
+  let tol = smooth ? ES_TOL_SMOOTH : ES_TOL;
+  // the floors as absolute widths per unit length (at most tol each, as a G_i(0) of 1)
+  const floorAbs = new Float64Array(K);
+  if (allow && law.spread > 0) for (let i = 0; i < K; i++) floorAbs[i] = Math.max(allow[i], 0) / (ALLOW_SPAN * law.spread);
   const q0 = qs[0];
   const lower = dir < 0;
   const end = lower ? law.support[0] : law.support[1];
@@ -71,8 +90,10 @@ export function tailSweep(law: DirectLaw, qs: readonly number[], dir: 1 | -1, re
   const mL = Number.isFinite(m0) ? m0 - margin : -Infinity;
   const mH = Number.isFinite(m1) ? Math.max(m1 + margin, 0) : Infinity;
   const pt = directPoint();
+  const ptI = directPoint();
   law.at(q0, pt);
   let gA = lower ? pt.cdf : pt.sf;
+  let xA = q0;
   let eA = lower ? pt.cdfErr : pt.sfErr;
   let fA = pt.pdf;
   let efA = pt.pdfErr;
@@ -105,6 +126,7 @@ export function tailSweep(law: DirectLaw, qs: readonly number[], dir: 1 | -1, re
   for (let n = 0; n - segStart < ES_PANELS; n++) {
     // up to 20 000 evaluations a level of a law that may take tens of microseconds each (stable, VG, NIG)
     if ((n & 255) === 255) checkDeadline("direct shortfall bracket");
+    if (smooth && n - segStart >= SMOOTH_PANELS) [smooth, tol] = [false, ES_TOL];
     const want = step;
     let b = a + step;
     // a node at each side of the mode, at the next level's point, and at the support's end
@@ -117,7 +139,8 @@ export function tailSweep(law: DirectLaw, qs: readonly number[], dir: 1 | -1, re
     // a slow tail without a bound on what is left walks out until the steps overflow: nothing more to gain
     if (!Number.isFinite(b)) break;
     const wd = b - a;
-    law.at(atNext ? qs[cur + 1] : q0 + dir * b, pt);
+    const xB = atNext ? qs[cur + 1] : q0 + dir * b;
+    law.at(xB, pt);
     const g = lower ? pt.cdf : pt.sf;
     const eg = lower ? pt.cdfErr : pt.sfErr;
     const f = pt.pdf;
@@ -128,7 +151,7 @@ export function tailSweep(law: DirectLaw, qs: readonly number[], dir: 1 | -1, re
     const atEnd = b >= D;
     const bLo = atEnd ? 0 : Math.max(g - eg, 0);
     const bHi = Math.min(g + eg, 1);
-    segSlack[cur] += wd * (nodeSlack(fA, efA, q0, a) + (atEnd ? 0 : nodeSlack(f, ef, q0, b)));
+    segSlack[cur] += wd * (nodeSlack(fA, efA, xA) + (atEnd ? 0 : nodeSlack(f, ef, xB)));
     // monotone: between the right and left Riemann sums
     let pLo = wd * bLo;
     let pHi = wd * aHi;
@@ -143,11 +166,48 @@ export function tailSweep(law: DirectLaw, qs: readonly number[], dir: 1 | -1, re
       pLo = Math.max(pLo, (wd * (aLo + bLo)) / 2);
       pHi = Math.min(pHi, envelope(wd, aHi, -Math.max(fA - efA, 0), bHi, -(f + ef), -1));
     }
-    const v = (wd * (gA + g)) / 2 + (fin ? (wd * wd * (f - fA)) / 12 : 0);
+    let v = (wd * (gA + g)) / 2 + (fin ? (wd * wd * (f - fA)) / 12 : 0);
+    // with the density's derivatives bounded over the panel (DirectLaw.pdfDeriv): the 4-point Gauss-Legendre rule at
+    // interior nodes (remainder wd^9 (4!)^4 / (9 (8!)^3) |G^(8)|, G^(8) = -f^(7): Abramowitz & Stegun 25.4.30) while
+    // `smooth`, else the corrected trapezoid rule (remainder wd^5 |G^(4)| / 720, G^(4) = -f^(3)); either with the nodes'
+    // value bounds through the rule, their offsets (formed within 4 eps (|q| + b): G moves by the density times that;
+    // the end nodes' move of G is in segSlack) and the rule's roundings
+    let quadGap = NaN;
+    if (deriv !== undefined && fin) {
+      const xa = q0 + dir * a;
+      const xb = q0 + dir * b;
+      const [x0, x1] = xa < xb ? [xa, xb] : [xb, xa];
+      // (each node q0 + dir d is one rounding from its place: within an ulp of itself)
+      const off = 2 * Number.EPSILON * Math.max(Math.abs(x0), Math.abs(x1));
+      let rem: number;
+      let r: number;
+      if (smooth) {
+        let sum = 0;
+        let errs = 0;
+        for (let j = 0; j < 4; j++) {
+          law.at(q0 + dir * (a + (wd * (1 + GL4_T[j])) / 2), ptI);
+          sum += GL4_W[j] * (lower ? ptI.cdf : ptI.sf);
+          errs += GL4_W[j] * ((lower ? ptI.cdfErr : ptI.sfErr) + (ptI.pdf + ptI.pdfErr) * off);
+        }
+        v = (wd / 2) * sum;
+        rem = wd ** 9 * GL4_REM * deriv(7, x0, x1) * (1 + 8 * Number.EPSILON);
+        r = rem + (wd / 2) * errs + 16 * Number.EPSILON * v;
+      } else {
+        rem = (wd ** 5 / 720) * deriv(3, x0, x1) * (1 + 8 * Number.EPSILON);
+        const nodes = (wd * (eA + eg)) / 2 + (wd * wd * (efA + ef + deriv(1, x0, x1) * off)) / 12;
+        r = rem + nodes + 4 * Number.EPSILON * ((wd * (gA + g)) / 2 + (wd * wd * (f + fA)) / 12);
+      }
+      if (Number.isFinite(r)) {
+        pLo = Math.max(pLo, v - r);
+        pHi = Math.min(pHi, v + r);
+        if (smooth) quadGap = 2 * rem;
+      } else v = (wd * (gA + g)) / 2 + (wd * wd * (f - fA)) / 12;
+    }
     segVal[cur] += Math.min(Math.max(v, pLo), pHi);
     segLo[cur] += pLo;
     segHi[cur] += pHi;
     a = b;
+    xA = xB;
     gA = g;
     eA = eg;
     fA = f;
@@ -165,6 +225,7 @@ export function tailSweep(law: DirectLaw, qs: readonly number[], dir: 1 | -1, re
       // longer than a level's own sweep would (its first panels, far below their allowance, keep its bound as tight)
       low = 0.01;
       segStart = n + 1;
+      if (deriv !== undefined) [smooth, tol] = [true, ES_TOL_SMOOTH];
     }
     if (a >= D || (cur === K - 1 && bHi === 0)) {
       // G is 0 past here (the support's end, or an upper bound of 0 on a non-increasing tail)
@@ -176,14 +237,14 @@ export function tailSweep(law: DirectLaw, qs: readonly number[], dir: 1 | -1, re
     // sum; a quarter: where a sweep stops moves with its panels, and no level's bound is to exceed its own sweep's);
     // a law with its own stop-loss transform is asked each time the distance doubles, and stops the sweep as soon as
     // that transform's bracket is as narrow (a stable law's tail series, long before its power tail would be negligible)
-    const scale = Math.max(segVal[cur], floor[K - 1] * s);
-    const gate = bHi * s <= ES_TOL * 1e-3 * scale;
+    const scale = Math.max(segVal[cur], Math.min(floorAbs[K - 1], tol) * (s / tol));
+    const gate = bHi * s <= tol * 1e-3 * scale;
     if (cur === K - 1 && (gate || a >= check)) {
       if (a >= check) check = 2 * a;
       const r = Number.isFinite(D) ? { lo: 0, hi: (D - a) * bHi, v: NaN } : restAt(law, rest, q0 + dir * a, dir);
-      if (r.hi - r.lo <= (ES_TOL * scale) / 4 || (gate && !Number.isFinite(r.hi))) {
+      if (r.hi - r.lo <= (tol * scale) / 4 || (gate && !Number.isFinite(r.hi))) {
         [pastLo, past, pastEst] = [r.lo, r.hi, Number.isFinite(r.v) ? r.v : (g * g) / f];
-        whole = r.hi - r.lo <= (ES_TOL * scale) / 4;
+        whole = r.hi - r.lo <= (tol * scale) / 4;
         break;
       }
     }
@@ -194,10 +255,11 @@ export function tailSweep(law: DirectLaw, qs: readonly number[], dir: 1 | -1, re
     // relative to every level's integral; a law whose tail stays near 1 over many spreads, the far side of a heavy
     // lower tail, then takes long panels instead of running out of them)
     let unit = Infinity;
-    for (let i = 0; i <= cur; i++) unit = Math.min(unit, ES_TOL * Math.max(G0[i], floor[i]) * Math.min(1, s / (a - ds[i])));
-    unit = Math.max(unit, (ES_TOL * bLo) / 16);
+    for (let i = 0; i <= cur; i++) unit = Math.min(unit, Math.max(tol * G0[i], Math.min(floorAbs[i], tol)) * Math.min(1, s / (a - ds[i])));
+    unit = Math.max(unit, (tol * bLo) / 16);
+    // (the Gauss rule's remainder: its length^8 relative to the length; the nodes' bounds do not shrink with it)
     const gap = pHi - pLo;
-    const grow = gap > 0 ? 0.9 * Math.sqrt((unit * wd) / gap) : 2;
+    const grow = quadGap >= 0 ? (quadGap > 0 ? 0.9 * Math.pow((unit * wd) / quadGap, 1 / 8) : 2) : gap > 0 ? 0.9 * Math.sqrt((unit * wd) / gap) : 2;
     // a panel cut short (by a node) does not hold back the next beyond twice the step it was meant to take
     step = Math.min(Math.max(grow * wd, low * wd), 2 * Math.max(wd, want));
     if (!(step > 0)) step = want;
@@ -232,12 +294,13 @@ export function tailSweep(law: DirectLaw, qs: readonly number[], dir: 1 | -1, re
 }
 
 /**
- * The nodes q + dir d are formed within u (|q| + d): G there is off by the mass so close, taken as twice the density
- * at the node times that distance (a density changing by a factor 2 within 1e-16 relative is met only at a singular
- * point, where a node has no reason to fall), the whole panel's width where the density is infinite.
+ * A node q + dir d is formed in one rounding, within an ulp of x, its computed place: G there is off by the mass so
+ * close, taken as twice the density at the node times that distance (a density changing by a factor 2 within 1e-16
+ * relative is met only at a singular point, where a node has no reason to fall), the whole panel's width where the
+ * density is infinite.
  */
-function nodeSlack(f: number, ef: number, q: number, d: number): number {
-  return Number.isFinite(f + ef) ? 2 * (f + ef) * Number.EPSILON * (Math.abs(q) + d) : 1;
+function nodeSlack(f: number, ef: number, x: number): number {
+  return Number.isFinite(f + ef) ? 2 * (f + ef) * Number.EPSILON * Math.abs(x) : 1;
 }
 
 /**

@@ -8,6 +8,7 @@ import { stableLightPanels } from "./stable-light";
 import type { PanelSide } from "./stable-panel-store";
 import { stableTailSeries, stableTailSplit, stableTailStopLoss } from "./stable-series";
 import { stablePowerTail } from "./power-tail";
+import { smoothOver, stableSmooth } from "./stable-smooth";
 import { oneTailSplit, stableOneTail } from "./stable-one-tail";
 import type { DirectLaw, DirectPoint } from "./types";
 import { lgamma, lgammaErr } from "../families/special";
@@ -48,6 +49,7 @@ export function stableDirect(alpha: number, beta: number, scale: number, loc: nu
   if (alpha < 1 && beta === 1) support = [d1, Infinity];
   if (alpha < 1 && beta === -1) support = [-Infinity, d1];
   const powerTail = stablePowerTail(alpha, beta, g, d1);
+  const smooth = alpha === 1 ? null : { 1: stableSmooth(alpha, beta, 1), 3: stableSmooth(alpha, beta, 3), 7: stableSmooth(alpha, beta, 7) };
   // half-line laws start at d1; otherwise z = 0 is an interior point handled by the closed forms at zeta
   const at = (x: number, out: DirectPoint) => {
     const z = (x - d1) / g;
@@ -70,6 +72,16 @@ export function stableDirect(alpha: number, beta: number, scale: number, loc: nu
     unimodal: true,
     ...(powerTail ? { powerTail } : {}),
     at,
+    ...(smooth && smooth[1] && smooth[3] && smooth[7]
+      ? {
+          // the standard law's bound (./stable-smooth.ts) over z's interval widened by its rounding, over g^(k+1)
+          pdfDeriv: (k: 1 | 3 | 7, a: number, b: number) => {
+            const dz = (2 * Number.EPSILON * (Math.abs(a) + Math.abs(b) + Math.abs(d1)) + (param === "S1" ? 0 : 4 * Number.EPSILON * Math.abs(shift10))) / g;
+            const s = smooth[k]!;
+            return (smoothOver(s, (a - d1) / g - dz, (b - d1) / g + dz) / Math.pow(g, k + 1)) * (1 + 8 * Number.EPSILON);
+          },
+        }
+      : {}),
     // far in a tail (alpha > 1, alpha != 2): the tail series integrated (./stable-series.ts); z < 0 by reflection
     stopLoss: (c: number, side: 1 | -1) => {
       const z = (side * (c - d1)) / g;

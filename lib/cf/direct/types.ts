@@ -47,6 +47,11 @@ export interface DirectLaw {
    * when `stopLoss` is set (else Infinity), the tail and density sizes only when it is not (else Infinity).
    */
   monotoneSplit?(y: number, side: 1 | -1, step: number, stopLoss: boolean): MonotoneSplit | null;
+  /**
+   * optional: an upper bound on |f^(k)| (k = 1, 3 or 7) over [a, b], derived (a stable law's from its CF:
+   * ./stable-smooth.ts); ./shortfall-sweep.ts then brackets each panel by a Gauss rule's remainder
+   */
+  pdfDeriv?(k: 1 | 3 | 7, a: number, b: number): number;
   /** optional: power-law majorants of the density and its first two derivatives in the tails (./power-tail.ts) */
   readonly powerTail?: import("./power-tail").PowerTail;
   /** optional: the law is unimodal (a mode exists, not known in closed form): ./answer.ts derives an interval holding it */
