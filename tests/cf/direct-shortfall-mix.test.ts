@@ -115,3 +115,25 @@ describe("ES of stable laws from Gauss panels with derived remainders: bounds wi
     c.done();
   });
 });
+
+// ES of a X + b is a ES_X + b for a > 0 (common practice): the scaled and shifted stable law keeps the Gauss panels (its
+// density's derivative bounds follow the map, lib/cf/direct/affine.ts), every level within 1e3 of the actual error
+describe("ES of a scaled and shifted stable law: the same panels (tests/fixtures/shortfall)", () => {
+  const law = F.laws.find((l) => l.name === "stable(1.5, 0.7) S1")!;
+  it("2 stable(1.5, 0.7) + 3", () => {
+    const rows = law.levels.filter((r) => r.es !== "inf");
+    const model = { shift: 3, of: { scale: 2, of: law.model } } as Model;
+    const r = quantiles(compile(model), rows.map((l) => Number(l.p)), { expectedShortfall: true });
+    const c = new Checker();
+    rows.forEach((row, i) => {
+      const ref = 2 * Number(row.es) + 3;
+      const refErr = 2 * row.es_check + 1e-29 * Math.abs(ref) + 2 ** -52 * Math.abs(ref);
+      const es = r.expectedShortfall![i];
+      const err = r.diagnostics.expectedShortfallError![i];
+      c.honest(`ES(${row.p})`, es, ref, err + refErr);
+      const ratio = err / Math.max(Math.abs(es - ref), 2 ** -53 * Math.abs(ref));
+      c.that(`ES(${row.p}) looseness`, ratio <= 1e3, `bound ${err}, actual ${Math.abs(es - ref)}, ratio ${ratio}`);
+    });
+    c.done();
+  });
+});

@@ -22,6 +22,17 @@ export function affineDirect(law: DirectLaw, a: number, b: number): DirectLaw {
     ...(law.mode !== undefined ? { mode: a * law.mode + b } : {}),
     ...(law.unimodal ? { unimodal: true } : {}),
     ...(law.powerTail ? { powerTail: affinePowerTail(law.powerTail, a, b) } : {}),
+    // f_Y^(k)(y) = f_X^(k)((y - b)/a) / (a^k |a|): X's bound over the interval's image, widened by its rounding
+    ...(law.pdfDeriv
+      ? {
+          pdfDeriv: (k: 1 | 3 | 7, y0: number, y1: number) => {
+            const u = (y0 - b) / a;
+            const v = (y1 - b) / a;
+            const dx = (2 * Number.EPSILON * (Math.abs(y0) + Math.abs(y1) + Math.abs(b))) / aa + Number.EPSILON * (Math.abs(u) + Math.abs(v));
+            return (law.pdfDeriv!(k, Math.min(u, v) - dx, Math.max(u, v) + dx) / Math.pow(aa, k + 1)) * (1 + 8 * Number.EPSILON);
+          },
+        }
+      : {}),
     // atoms move with the law (a x + b, within the rounding of that product and sum: the location, not the mass)
     // (a < 0 turns F(x-) into S(x) = 1 - F(x-) - p)
     ...(law.atoms
