@@ -4,7 +4,7 @@ import { tanHalfPi } from "./stable-kernel";
 /**
  * Derived bounds on the derivatives of a stable density (alpha != 1, S1), from its CF alone: for the standard law with
  * phi(t) = exp(psi(t)), psi(t) = -|t|^alpha (1 - i beta tan(pi alpha/2) sign t), and any m with the integrals finite,
- *   |z|^m |f^(k)(z)| = |(1/2pi) int d^m/dt^m [(it)^k phi(t)] e^{-itz} dt| <= (1/pi) int_0^inf |d^m/dt^m [t^k phi(t)]| dt
+ *   |z|^m |f^(k)(z)| = |(1/2pi) int d^m/dt^m [(-it)^k phi(t)] e^{-itz} dt| <= (1/pi) int_0^inf |d^m/dt^m [t^k phi(t)]| dt
  * (m integrations by parts; phi(-t) is the conjugate of phi(t), so both half-lines give the same integral). On t > 0
  * psi^(r) = -(alpha)_r t^(alpha - r) (1 - i beta T) exactly ((alpha)_r the falling factorial), so phi^(j) = P_j phi with
  * P_j = sum_n p_jn t^(n alpha - j), p_(j+1)n = (n alpha - j) p_jn + c p_j(n-1), c = -alpha (1 - i beta T), and by
