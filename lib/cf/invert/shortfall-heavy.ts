@@ -210,8 +210,9 @@ export function heavyShortfall(
     // each raw level's derived bound, and the last row's entry with the least one (./heavy-residual.ts)
     let bestD = { value: NaN, err: Infinity };
     if (topL !== null) {
-      // from the top level, one more doubling while the bound may reach the goal at the rate of the last one (the
-      // residual's, known without the nodes)
+      // from the top level: where it misses the goal one more doubling (its nodes are shared by every q, one level's cost
+      // for the whole answer), then more while the bound may reach the goal at the rate of the last one (the residual's,
+      // known without the nodes)
       for (let lev = topL; lev < 8; lev++) {
         const L = levelSum(lev, q, y);
         const r = levelRaw(lev, q, L);
@@ -224,7 +225,7 @@ export function heavyShortfall(
         const bNow = boundAt(lev, T0 * 2 ** lev, q, kind);
         const bPrev = boundAt(lev - 1, T0 * 2 ** (lev - 1), q, kind);
         const rate = bPrev > 0 && Number.isFinite(bPrev) ? Math.min(1, bNow / bPrev) : 1;
-        if (!(bestD.err * rate <= goal)) break;
+        if (!(bestD.err * rate <= goal) && lev > topL) break;
       }
       if (Number.isFinite(bestD.err)) return finish(q, bestD.value, bestD.err, true, goal);
     }
