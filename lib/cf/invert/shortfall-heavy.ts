@@ -4,7 +4,7 @@ import type { Atom, CompiledModel } from "../types";
 import { maybeKernels } from "./continuous";
 import { exponentsFor, maybeTailLaw, type HeavyLadder } from "./heavy";
 import { imageLadder } from "./images";
-import { stopLossBuckets } from "./heavy-residual2";
+import { pairLaw, stopLossBuckets } from "./heavy-residual2";
 import { bestDerivedEntry, lastRowWeights, residualLaw, type ResidualLaw } from "./heavy-residual";
 import { directShortfall } from "../direct/shortfall";
 import { directPoint } from "../direct/types";
@@ -43,9 +43,10 @@ export function heavyShortfall(
   // sums have a term's images taken out, the ES sums take out that term's images too (./images.ts), where its law is in
   // closed form or has its own stop-loss transform (each image is otherwise a Gauss-Laguerre rule over a tail: a few hundred
   // evaluations of the law per level)
-  const useLadder = ladder && ladder.images.every((g) => g.direct.method === "closed-form" || g.direct.stopLoss) ? ladder : undefined;
+  const usable = (g: { direct: HeavyLadder["images"][number]["direct"] }) => g.direct.method === "closed-form" || !!g.direct.stopLoss;
+  const useLadder = ladder && ladder.images.every(usable) ? ladder : undefined;
   let resid: ResidualLaw | null = null;
-  const images = useLadder?.images ?? [];
+  let images = useLadder?.images ?? [];
   const scratch = imageScratch();
   const scratch2 = imageScratch();
   if (useLadder) {
@@ -60,7 +61,20 @@ export function heavyShortfall(
   if (useLadder) resid = part.kernels.length ? null : useLadder.resid;
   else if (part.tail && !part.kernels.length) resid = residualLaw(part.tail);
   // two terms' images taken out: the pair's bound (./heavy-residual2.ts)
-  const pair = useLadder && !part.kernels.length && images.length === 2 ? useLadder.pair : null;
+  let pair = useLadder && !part.kernels.length && images.length === 2 ? useLadder.pair : null;
+  // one term's images taken out whose rest R has no fourth moment (a second power tail of index <= 4, e.g. a Student t
+  // with nu < 4 beside a pareto): the stop-loss residual needs E R^4 (its images' sum of E[|R|; |R| > r] <= E R^n / r^(n-1)
+  // converges for n >= 4 only, ./heavy-residual.ts), the cdf's does not. The sums take out the next heaviest term's images
+  // as well (from its direct law: the nodes are the same) and the pair's bound answers, where the model has them
+  const twoLaws = model.tailTerm?.images?.laws;
+  if (useLadder && resid && !part.kernels.length && !resid.lm.some((v, n) => n >= 4 && Number.isFinite(v)) && twoLaws?.length === 2 && twoLaws.every(usable)) {
+    const pl = pairLaw(model.tailTerm!);
+    if (pl) {
+      images = twoLaws;
+      pair = pl;
+      resid = null;
+    }
+  }
   // the weights 1/t^2 make the tail beyond T at most (2/pi) int_T E/t^2 <= 2 tailCdf(T)/T: cut where that is small
   let tmax = env.t[env.t.length - 1];
   let truncES = (2 * env.tailCdf[env.t.length - 1]) / tmax;
