@@ -11,6 +11,7 @@ import { compoundE } from "./cumulant-ops";
 import { compoundDampedMajorant } from "./damped-majorant";
 import { realCgf } from "./count-pgf";
 import { endpointKernelsRemainder } from "./compound-remainder";
+import { compoundArgSlope } from "./arg-rounding";
 
 const collectNotes = (cs: Node[]) => [...new Set(cs.flatMap((c) => c.notes))];
 
@@ -76,6 +77,7 @@ export function compoundNode(N: Node, X: Node, discretise: DiscretiseOptions | n
     // |P_N(z + d) - P_N(z)| <= E[N] |d| for |z| <= 1 (|P_N'| <= E N on the unit disc); relative |dP / P| <= slope |d|
     // when the count's log-derivative is bounded (Poisson, negative binomial)
     ...compoundErrors(N, X, layered?.unlisted ?? 0),
+    argSlope: compoundArgSlope(N.cumulants(1)[0], X),
     cumulants(n) {
       const kx = X.cumulants(n);
       const kn = N.cumulants(n);

@@ -78,6 +78,9 @@ export interface Node {
   cfAbsError?: number;
   /** bound on the relative error of the CF values (compounds of numerical CFs: |dP/P| <= slope |d phi_X|) */
   cfRelError?: number;
+  /** a bound S on the CF values' absolute error per unit |t| (damped: per unit |t| + beta) from frequencies the tree
+   *  rounds (scaled arguments, ./arg-rounding.ts); absent is 0, NaN where not derived */
+  argSlope?: number;
   /**
    * severities: a bound at frequency t, damping beta, on the damped transform's absolute error (at most cfAbsError), valid
    * only with the dampedLogCf and dampedCf named there; `shifted(b)`: the same for the law moved by b

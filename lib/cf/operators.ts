@@ -11,6 +11,7 @@ import { collectNotes, carryApproximation, combineScales, addCumulants, complete
 import { withCumulantErrors } from "./cumulant-bounds";
 import { repeatE, scaleE, shiftE, sumE } from "./cumulant-ops";
 import { powerIndicesOf, heaviestTerm } from "./operators-tail";
+import { addArgSlopes, scaleArgSlope } from "./arg-rounding";
 
 export { compoundNode, pgfAt } from "./compound";
 export { atomsNode, latticeNode, sampleNode } from "./tabulated";
@@ -52,6 +53,7 @@ export function sumNode(cs: Node[]): Node {
     hasCompound: cs.some((c) => c.hasCompound),
     cfAbsError: cs.reduce((e, c) => e + (c.cfAbsError ?? 0), 0),
     cfRelError: cs.reduce((e, c) => e + (c.cfRelError ?? 0), 0),
+    argSlope: addArgSlopes(cs),
   };
   withCumulantErrors(node, sumE(cs));
   carrySumKernels(node, cs);
@@ -116,6 +118,7 @@ export function scaleNode(a: number, c: Node): Node {
     hasCompound: c.hasCompound,
     cfAbsError: c.cfAbsError,
     cfRelError: c.cfRelError,
+    argSlope: scaleArgSlope(a, c),
   };
   withCumulantErrors(node, scaleE(a, c));
   carryScaleKernels(node, a, c);
@@ -171,6 +174,7 @@ export function shiftNode(b: number, c: Node): Node {
     hasCompound: c.hasCompound,
     cfAbsError: c.cfAbsError,
     cfRelError: c.cfRelError,
+    argSlope: c.argSlope,
   };
   withCumulantErrors(node, shiftE(b, c));
   carryShiftKernels(node, b, c);
@@ -229,6 +233,7 @@ export function repeatNode(n: number, c: Node): Node {
     hasCompound: c.hasCompound,
     cfAbsError: n * (c.cfAbsError ?? 0),
     cfRelError: n * (c.cfRelError ?? 0),
+    argSlope: n * (c.argSlope ?? 0),
   };
   withCumulantErrors(node, repeatE(n, c));
   if (c.table && c.kind.type === "lattice") {

@@ -61,6 +61,9 @@ export interface CompiledModel {
   readonly cfAbsError?: number;
   /** bound on the relative error of the CF values (compounds of numerical severities) */
   readonly cfRelError?: number;
+  /** absolute error of the CF values per unit |t| (damped transform: per unit |t| + beta) from the frequencies the tree
+   *  rounds (scaled arguments, ../cf/arg-rounding.ts); 0 when none, NaN where not derived */
+  readonly cfArgSlope?: number;
   /** a bound at frequency t, damping beta, on dampedLogCf's relative error, at most cfRelError (compounds whose severity bounds its own per frequency) */
   dampedRelErrorAt?(beta: number, t: number): number;
   /** log E[exp((i t - beta) X)], beta >= 0, for aggregate laws bounded below (compounds): the damped inversion's input */

@@ -1,0 +1,92 @@
+import type { Node } from "./node";
+import { cumulantEst } from "./cumulant-bounds";
+
+/**
+ * The frequency's rounding before a CF is called. A node that scales its argument (aX: phi_X(a t)) evaluates its child
+ * at fl(a t) = a t (1 + d), |d| <= u = 2^-53 (one rounding, Higham, Accuracy and Stability of Numerical Algorithms, 2nd
+ * ed., sec. 2.2), and the inversions evaluate the model at fl((k + 1/2) h) in place of (k + 1/2) h. A CF is Lipschitz
+ * with constant E|X|: |phi(s) - phi(r)| = |E[e^{irX} (e^{i(s - r)X} - 1)]| <= |s - r| E|X| (|e^{iy} - 1| <= |y|); for
+ * the damped transform E[e^{(is - b)(X - lo)}] of a law bounded below the same holds in w = is - b with E|X - lo| (the
+ * derivative E[(X - lo) e^{w (X - lo)}] has |.| <= E[X - lo] for Re w <= 0). A slope of NaN says it is not derived (a
+ * law without a first absolute moment bound under a scale): the inversions then leave the term out and say so.
+ */
+
+const U = Number.EPSILON / 2;
+
+/**
+ * A bound on E|X - lo| + 2 |lo| >= E|X| for a node bounded below (E|X - lo| = kappa_1 - lo, kappa_1 with its derived
+ * error), else sqrt(kappa_2 + kappa_1^2) >= E|X| (Lyapunov); undefined when neither is known. The lower-end form also
+ * bounds the damped transform's slope: the child's transform at w~ in place of a w changes by |w~ - a w| (E|X - lo| + |lo|)
+ * once its factor e^{w lo} is counted (X's transform is e^{w lo} E[e^{w (X - lo)}], the caller's damping taken at lo).
+ */
+export function absFirstMoment(node: Node): number | undefined {
+  const k = node.momentIndex > 1 ? cumulantEst(node, node.momentIndex > 2 ? 2 : 1) : [];
+  const k1 = k[0];
+  if (!k1 || !Number.isFinite(k1.e)) return undefined;
+  const lo = node.support[0];
+  const hi = node.support[1];
+  const slack = 1 + 8 * Number.EPSILON;
+  if (Number.isFinite(lo)) return (Math.max(k1.v + k1.e - lo, 0) + 2 * Math.abs(lo)) * slack;
+  if (Number.isFinite(hi)) return (Math.max(hi - k1.v + k1.e, 0) + 2 * Math.abs(hi)) * slack;
+  const k2 = k[1];
+  if (!k2 || !Number.isFinite(k2.e)) return undefined;
+  const m1 = Math.abs(k1.v) + k1.e;
+  return Math.sqrt((k2.v + k2.e + m1 * m1) * slack) * slack;
+}
+
+/**
+ * Node.argSlope of aX: the child's own slope at |fl(a t)| <= |a t| (1 + u), plus u |a t| E|X| from the rounding of a t
+ * (both components of a damped argument, so |w| <= |t| + beta). 0 when a is a power of two (a t exact, barring under- and
+ * overflow, far outside the frequencies used); NaN (not derived) when X has no first absolute moment bound.
+ */
+export function scaleArgSlope(a: number, c: Node): number {
+  const aa = Math.abs(a);
+  const own = c.argSlope ?? 0;
+  // a power of two: a t is exact
+  if (Math.log2(aa) === Math.round(Math.log2(aa))) return aa * own;
+  const m = absFirstMoment(c);
+  if (m === undefined) return NaN;
+  return aa * (own * (1 + U) + U * m) * (1 + 4 * U);
+}
+
+/** Sums, mixtures (weights ws), n-fold sums: the children's slopes add (each factor or component has |phi| <= 1). */
+export function addArgSlopes(cs: readonly Node[], ws?: readonly number[]): number {
+  let s = 0;
+  cs.forEach((c, j) => (s += (ws ? Math.abs(ws[j]) : 1) * (c.argSlope ?? 0)));
+  return s * (1 + cs.length * Number.EPSILON);
+}
+
+/** A compound P_N(phi_X): |P_N'(z)| <= E N on the unit disc, so X's slope moves P_N by E N times it. */
+export function compoundArgSlope(meanN: number | null, X: Node): number {
+  const s = X.argSlope ?? 0;
+  if (s === 0) return 0;
+  return meanN !== null && Number.isFinite(meanN) ? meanN * s * (1 + 2 * Number.EPSILON) : Infinity;
+}
+
+/**
+ * A grid's nodes fl((k + 1/2) h), k < K, where the inversion takes its phases at the exact (k + 1/2) h: node k's value
+ * moves by at most (u L + S) t_k with L the Lipschitz constant of what is evaluated there (the transform and the phase
+ * it carries) and S the model's own slope (CompiledModel.cfArgSlope, divided by the part's weight by the caller). The
+ * cdf sum (1/pi) sum |e_k| / (k + 1/2) then moves by (u L + S) K h / pi, the pdf sum (h/pi) sum |e_k| by
+ * (u L + S) h^2 K^2 / (2 pi) (sum_{k < K} (k + 1/2) = K^2 / 2).
+ */
+export function gridRounding(lipschitz: number, slope: number, h: number, K: number): { cdf: number; pdf: number } {
+  const per = (U * lipschitz + slope) * (1 + 4 * Number.EPSILON);
+  return { cdf: (per * K * h) / Math.PI * (1 + 4 * Number.EPSILON), pdf: ((per * h * h * K * K) / (2 * Math.PI)) * (1 + 6 * Number.EPSILON) };
+}
+
+/** the same per node: (u L + S) t, for the routes that carry a noise per node */
+export function nodeRounding(lipschitz: number, slope: number, t: number): number {
+  return (U * lipschitz + slope) * t * (1 + 4 * Number.EPSILON);
+}
+
+/** h rounded down to 29 significant bits: (k + 1/2) h is then exact for 2k + 1 < 2^24 (the product has at most 53 bits) */
+export function exactGridStep(h: number): number {
+  const q = Math.pow(2, Math.floor(Math.log2(h)) - 28);
+  return Math.floor(h / q) * q;
+}
+
+/** whether every node (k + 1/2) h, k < K, is exact in floating point (h of at most 29 significant bits, 2K - 1 < 2^24) */
+export function exactGrid(h: number, K: number): boolean {
+  return h > 1e-290 && 2 * K - 1 < 2 ** 24 && exactGridStep(h) === h;
+}
