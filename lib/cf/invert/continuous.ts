@@ -25,6 +25,7 @@ import {
   type Request,
 } from "./shared";
 import { checkDeadline } from "../deadline";
+import { exactGridStep } from "../arg-rounding";
 
 export type { PartOptions, PartOutput, PartSolution, Request } from "./shared";
 export { evalLadder, growLadder, heavyLadder, type HeavyLadder } from "./heavy-ladder";
@@ -261,8 +262,11 @@ function lightPath(
         b = layout.x0 + layout.N * req.dx;
       }
     }
+    // point by point the step is rounded down to an exact one (the nodes (k + 1/2) h then exact, ../arg-rounding.ts; the
+    // period grows by at most 2^-28 relative); the FFT's step is tied to the grid's
+    const h = layout ? (2 * Math.PI) / (b - a) : exactGridStep((2 * Math.PI) / (b - a));
+    if (!layout) b = a + (2 * Math.PI) / h;
     const T = b - a;
-    const h = (2 * Math.PI) / T;
     const K = chooseTerms(tmax, h, method, n);
     // the window only widens (h falls), so the count only grows from here
     if (opt.maxTerms !== undefined && K > opt.maxTerms) throw new TermsOverCap(K);

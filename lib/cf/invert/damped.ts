@@ -8,6 +8,7 @@ import { DAMPED_SAMPLED_NOTE } from "./damped-psi";
 import { densityBeyondWindow, imageLimit, imageMoments, imageTail } from "./damped-images";
 import { scratch, type ScratchSlot } from "../damped-scratch";
 import { slopeNumerator } from "./damped-slope";
+import { addGridNoise } from "./grid-rounding";
 
 export { dampedPlan, type DampedPlan } from "./damped-transform";
 export { dampedAt, dampedGrid, gridPeriod, type DampedPoint } from "./damped-eval";
@@ -179,6 +180,7 @@ export function dampedSetup(model: CompiledModel, atoms: Atom[], R: number, o: D
   const pIm = o.wantPdf ? keep("solPIm", K) : scratch("psiIm", K);
   const nz = scratch("noise", K);
   psi(t, pRe, pIm, nz);
+  addGridNoise(model, atoms, beta, plan.pairOut ?? false, pointwise ? null : t, t, nz);
   const cRe = keep("solCRe", K);
   const cIm = keep("solCIm", K);
   const wantInt = o.wantInt ?? true;

@@ -5,6 +5,7 @@ import { checkDeadline } from "../deadline";
 import { RESYNC } from "./pointwise";
 import { majorantEnvelope } from "./envelope-bound";
 import { sumMajorants, type LogMajorant } from "../majorant";
+import { exactGrid } from "../arg-rounding";
 
 /**
  * Envelope of |phi_part(t)| sampled on a geometric probe (8 points per octave) and its tail integrals, used to
@@ -281,6 +282,8 @@ export interface Nodes {
   /** (1/pi) sqrt(sum |phi_k|^2 / (k+1/2)^2) and (h/pi) sqrt(sum |phi_k|^2): the 2-norms the FFT's rounding scales with */
   l2Cdf?: number;
   l2Pdf?: number;
+  /** every node (k + 1/2) h is exact in floating point (../arg-rounding.ts exactGrid) */
+  exact?: boolean;
 }
 
 const NODE_BLOCK = 1 << 16;
@@ -349,5 +352,6 @@ export function buildNodes(part: ContinuousPart, h: number, K: number): Nodes {
     l2Pdf: (Math.sqrt(q2p * g) * h * g) / Math.PI,
     driftCdf: (dc * g) / Math.PI,
     driftPdf: (dp * h * g) / Math.PI,
+    exact: exactGrid(h, K),
   };
 }

@@ -6,6 +6,8 @@ import { kernelAt, tailLawAt, type ContinuousPart } from "./part";
 import { RESYNC, sumPointwise } from "./pointwise";
 import type { LawShape } from "./range";
 import type { ErrorEstimate } from "./types";
+import { gridRounding } from "../arg-rounding";
+import { partLipschitz } from "./grid-rounding";
 
 /** Shared pieces of the continuous-part inversion (light and power-tailed paths, ladders). */
 export type Request =
@@ -129,7 +131,9 @@ export function kernelAbs(part: ContinuousPart): number {
  *   the sum of |terms| (sec. 4.2, eq. 4.4); on the FFT path each bin gathers ceil(K / N) nodes, and the radix-2
  *   FFT's error is at most sqrt(N) log2(N) eta |c|_2 per value with eta = mu + gamma_4 (sqrt 2 + mu) <= 8 u for twiddles
  *   from cos and sin (Theorem 24.2), |c|_2 <= sqrt(ceil(K / N)) times the nodes' 2-norm (l2Cdf, l2Pdf);
- * - the final scaling by 1/pi and M/2 - s: 2 u of the result.
+ * - the final scaling by 1/pi and M/2 - s: 2 u of the result;
+ * - the nodes themselves: the part is evaluated at fl((k + 1/2) h), its phases taken at (k + 1/2) h (../arg-rounding.ts
+ *   gridRounding, with the part's Lipschitz constant and the model's own argument slope; left out where not derived).
  * ymax bounds |x - center| over the points (default: the period 2 pi / h, which holds the window).
  */
 export function roundingOf(part: ContinuousPart, nodes: Nodes, ymax = (2 * Math.PI) / nodes.h, fftN = 0): { cdf: number; pdf: number } {
@@ -170,12 +174,13 @@ export function roundingOf(part: ContinuousPart, nodes: Nodes, ymax = (2 * Math.
   // a CF with a declared absolute error (numerical CFs) adds that error at every node: (1/pi) sum 1/(k + 1/2) <= (2 + ln K)/pi
   const cfAbs = part.cfAbsError / part.weight;
   const harmonic = (2 + Math.log(K)) / Math.PI;
+  const grid = gridTerm(part, nodes, fftN > 1);
   return {
     cdf:
-      perTerm * nodes.absCdf + driftCdf + phase * nodes.absPdf + cfCdf + fftCdf + 2 * U * (nodes.mass + nodes.absCdf) +
+      grid.cdf + perTerm * nodes.absCdf + driftCdf + phase * nodes.absPdf + cfCdf + fftCdf + 2 * U * (nodes.mass + nodes.absCdf) +
       (atomTerm + cfAbs) * harmonic + 8 * EPS * (1 + kAbs) * (Math.log(nodes.K + 1) + 1),
     pdf:
-      perTerm * nodes.absPdf + driftPdf + phase * nodes.h * moment + cfPdf + fftPdf + 2 * U * nodes.absPdf +
+      grid.pdf + perTerm * nodes.absPdf + driftPdf + phase * nodes.h * moment + cfPdf + fftPdf + 2 * U * nodes.absPdf +
       ((atomTerm + cfAbs) * nodes.K * nodes.h) / Math.PI + (8 * EPS * kAbs * kPdf) / Math.PI + 8 * EPS,
   };
 }
@@ -304,4 +309,13 @@ export function atomMass(atoms: Atom[], x: number): { below: number; above: numb
     else above += a.p;
   }
   return { below, above };
+}
+
+/** roundingOf's term for the rounded nodes (each of the part's Lipschitz constant and the model's slope left out where not derived) */
+function gridTerm(part: ContinuousPart, nodes: Nodes, fft: boolean): { cdf: number; pdf: number } {
+  // exact nodes move nothing; the FFT's phases are those of (k + 1/2) 2 pi / (N dx), which h itself misses by its rounding:
+  // the node is then off by up to 2 u t_k
+  const L = nodes.exact ? 0 : (fft ? 2 : 1) * partLipschitz(part);
+  const S = (part.model.cfArgSlope ?? 0) / part.weight;
+  return gridRounding(Number.isFinite(L) ? L : 0, Number.isFinite(S) ? S : 0, nodes.h, nodes.K);
 }
