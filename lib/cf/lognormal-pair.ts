@@ -1,6 +1,7 @@
 import type { Bounded } from "./families/normal-bounded";
 import { normalCdfFast } from "./families/normal-table";
 import { gaussLegendre as unitRule } from "./quadrature";
+import { glEnclosure } from "./gl-enclosure";
 
 /**
  * The law of X_1 + X_2, X_i iid lognormal(mu, sigma): cdf F_2, density f_2 and integrated cdf I_2 = int_0^x F_2 at x,
@@ -24,7 +25,9 @@ import { gaussLegendre as unitRule } from "./quadrature";
  * ends, formed in floating point, leave gaps or overlaps between neighbours: each costs its width times the
  * integrand's size there. The split point v_m itself may be rounded: F_2 and I_2 as written are stationary in it (their
  * derivative in v_m, 2 phi(v_m) (Phi(w(v_m)) - Phi(v_m)) and its I_2 counterpart, vanishes since w(v_m) = v_m).
- * The Gauss-Legendre nodes and weights are taken as computed (./quadrature.ts).
+ * The Gauss-Legendre nodes and weights as computed are within derived enclosures of the true ones (./gl-enclosure.ts): a
+ * node within 2 dx_i (and the map 1 - 2x's rounding) of its place, joining the node's move dv, a weight within dw_i / w_i
+ * relative, joining the weight's rounding.
  */
 export interface PairValues {
   F: number;
@@ -56,13 +59,20 @@ const PX: Bounded = { v: NaN, e: NaN };
 const PW: Bounded = { v: NaN, e: NaN };
 const PW2: Bounded = { v: NaN, e: NaN };
 
-const RULES = new Map<number, { x: Float64Array; w: Float64Array }>();
+const RULES = new Map<number, { x: Float64Array; w: Float64Array; dx: Float64Array; dwRel: Float64Array }>();
 /** Gauss-Legendre nodes and weights on [-1, 1]: quadrature.ts's rule on [0, 1] mapped by z = 1 - 2u, cached per n */
 const rule = (n: number) => {
   let r = RULES.get(n);
   if (!r) {
     const u = unitRule(n);
-    r = { x: u.x.map((v) => 1 - 2 * v), w: u.w.map((v) => 2 * v) };
+    const g = glEnclosure(n);
+    // on [-1, 1]: the node 1 - 2x within 2 dx of the true one plus the subtraction's rounding; 2w exact
+    r = {
+      x: u.x.map((v) => 1 - 2 * v),
+      w: u.w.map((v) => 2 * v),
+      dx: u.x.map((v, i) => (2 * g.dx[i] + U * Math.abs(1 - 2 * v)) * (1 + 4 * U)),
+      dwRel: u.w.map((v, i) => (g.dw[i] / v) * (1 + 4 * U)),
+    };
     RULES.set(n, r);
   }
   return r;
@@ -178,9 +188,9 @@ export function lognormalPair(
         const v = c + Lx;
         // v within dv of c + L x_i; the weight L w_i phi(v): v^2 u, exp 2u, SQ2PI 2u, three products and a division,
         // and phi's move |v| dv with the node
-        const dv = U * (Math.abs(Lx) + Math.abs(v));
+        const dv = U * (Math.abs(Lx) + Math.abs(v)) + L * r.dx[i];
         const wt = L * r.w[i] * (Math.exp(-0.5 * v * v) / SQ2PI);
-        const rw = U * (v * v + 9) + Math.abs(v) * dv;
+        const rw = U * (v * v + 9) + Math.abs(v) * dv + r.dwRel[i];
         const e = mu + sigma * v;
         const y = Math.exp(e);
         const z = x - y;

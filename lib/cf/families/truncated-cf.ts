@@ -1,5 +1,6 @@
 import { normalCdfBounded } from "./normal-bounded";
 import { gaussLegendre } from "../quadrature";
+import { glEnclosure } from "../gl-enclosure";
 
 const EPS = Number.EPSILON;
 const U = EPS / 2;
@@ -170,7 +171,13 @@ export function truncatedNormalCf(mu: number, sigma: number, a: number, b: numbe
     // exp, the products with the weights (within a few u of their values as computed, 8u), the node's position (2u |x| moves
     // the integrand by at most (|f'| / f + |t|) of it: 2u X (10 / sigma + tmax)), the phase t (x - mean) (u (|x - mean| + |t (x - mean)|)
     // of the angle), cos and sin
-    const rel = U * (10 * ((X + Math.abs(mu)) / sigma + 10) + 50 + 2 * Math.abs(logZ) + 16 + 2 * X * (10 / sigma + tmax) + 2 * tmax * (width + Math.abs(mean)) + 4);
+    // the rule's own nodes and weights (../gl-enclosure.ts): a weight within dwRel of it, a node within dx of the panel's
+    // [0, 1], i.e. w dx in x on a panel of width w <= min(sigma / 4, 1.5 / |t|), moving the integrand by at most
+    // w dx (10 / sigma + |t|) <= 4 dx of it
+    const gle = glEnclosure(GL_N);
+    const rel =
+      U * (10 * ((X + Math.abs(mu)) / sigma + 10) + 50 + 2 * Math.abs(logZ) + 16 + 2 * X * (10 / sigma + tmax) + 2 * tmax * (width + Math.abs(mean)) + 4) +
+      (gle.dwRel + 4 * gle.dxMax) * (1 + 1e-9);
     // nodes beyond |z| = 10: their weights sum to at most the width, f below phi(10) / (sigma Z), their relative rounding below
     // the same sum at |z| = 40
     const far = ((width * Math.exp(-50)) / (SQRT_2PI * sigma * Z)) * U * (40 * ((X + Math.abs(mu)) / sigma + 40) + 800 + rel / U);
