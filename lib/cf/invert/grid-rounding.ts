@@ -1,7 +1,6 @@
 import type { Atom, CompiledModel } from "../types";
 import type { GammaKernel } from "../damped-kernels";
 import type { ContinuousPart } from "./part";
-import { momentBounds } from "./moment-tails";
 import { nodeRounding } from "../arg-rounding";
 
 /**
@@ -12,18 +11,27 @@ import { nodeRounding } from "../arg-rounding";
 
 const EPS = Number.EPSILON;
 
-/** E|X - c| <= sqrt(E (X - c)^2) from the derived moment bounds (./moment-tails.ts); for X >= lo, E(X - lo) + |lo - c|. */
+/**
+ * E|X - c| <= sqrt(E (X - c)^2) = sqrt(kappa_2 + (kappa_1 - c)^2) (Lyapunov), the cumulants with their derived bounds
+ * (CompiledModel.cumulantErrors); for X >= lo also E(X - lo) + |lo - c|, the least of the two. NaN where neither is known.
+ */
 export function absMomentAbout(model: CompiledModel, c: number): number {
   const lo = model.support[0];
-  const m = momentBounds(model, c);
+  const order = model.momentIndex > 2 ? 2 : model.momentIndex > 1 ? 1 : 0;
+  if (order === 0) return NaN;
+  const k = model.cumulants(order);
+  const e = model.cumulantErrors?.(order) ?? [];
+  const k1 = k[0];
+  const e1 = e[0];
+  if (typeof k1 !== "number" || typeof e1 !== "number" || !Number.isFinite(k1 + e1)) return NaN;
   let best = Infinity;
-  if (m && m.logU.length > 2 && Number.isFinite(m.logU[2])) best = m.c * Math.exp(m.logU[2] / 2) * (1 + 8 * EPS);
-  if (Number.isFinite(lo)) {
-    const k1 = model.cumulants(1)[0];
-    const e1 = model.cumulantErrors?.(1)[0];
-    if (typeof k1 === "number" && typeof e1 === "number" && Number.isFinite(k1 + e1))
-      best = Math.min(best, (Math.max(k1 + e1 - lo, 0) + Math.abs(lo - c)) * (1 + 4 * EPS) + EPS * Math.abs(lo));
+  const k2 = k[1];
+  const e2 = e[1];
+  if (order === 2 && typeof k2 === "number" && typeof e2 === "number" && Number.isFinite(k2 + e2)) {
+    const d = (Math.abs(k1 - c) + e1) * (1 + EPS);
+    best = Math.sqrt((Math.max(k2, 0) + e2 + d * d) * (1 + 4 * EPS)) * (1 + 2 * EPS);
   }
+  if (Number.isFinite(lo)) best = Math.min(best, (Math.max(k1 + e1 - lo, 0) + Math.abs(lo - c)) * (1 + 4 * EPS) + EPS * Math.abs(lo));
   return Number.isFinite(best) ? best : NaN;
 }
 
