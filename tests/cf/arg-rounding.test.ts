@@ -1,6 +1,7 @@
 import { describe, expect, it } from "vitest";
 import { compile } from "@/lib/cf/compile";
 import { cfRelError, cfUlps, declaredCfError } from "@/lib/cf/invert/part";
+import { exactGrid, exactGridStep } from "@/lib/cf/arg-rounding";
 import type { Model } from "@/lib/cf/types";
 import ref from "../fixtures/arg-rounding/arg-rounding.json";
 
@@ -40,5 +41,37 @@ describe("argument rounding of scaled laws", () => {
       if (r.argEffect > 4 * allowance) above++;
     }
     expect(above).toBeGreaterThan(0);
+  });
+});
+
+// IEEE 754 binary64 (common practice): a product of a 24-bit and a 29-bit significand has at most 53 bits, so is exact. The
+// check computes (k + 1/2) h exactly in BigInt (h = m 2^e) and compares it with the double product.
+describe("exact inversion steps", () => {
+  const exactProduct = (k: number, h: number): boolean => {
+    let e = 0;
+    let m = h;
+    while (!Number.isInteger(m)) {
+      m *= 2;
+      e++;
+    }
+    // (2k + 1) m / 2^(e + 1) against the double (k + 0.5) * h scaled by the same power of two
+    const want = BigInt(2 * k + 1) * BigInt(m);
+    const got = (k + 0.5) * h * 2 ** (e + 1);
+    return Number.isInteger(got) && BigInt(got) === want;
+  };
+  it("(k + 1/2) h is exact for every k < K once h is rounded to 29 bits, and is not in general before", () => {
+    let inexactBefore = 0;
+    for (const h0 of [2 * Math.PI / 37.3, 1e-3 / 3, 0.7071067811865476, 2 * Math.PI / 1234567.8]) {
+      const h = exactGridStep(h0);
+      expect(h).toBeLessThanOrEqual(h0);
+      expect(h).toBeGreaterThan(h0 * (1 - 2 ** -27));
+      expect(exactGrid(h, 1 << 22)).toBe(true);
+      expect(exactGrid(h0, 1 << 22)).toBe(false);
+      for (const k of [0, 1, 12345, 999999, (1 << 22) - 1]) {
+        expect(exactProduct(k, h), `h ${h} k ${k}`).toBe(true);
+        if (!exactProduct(k, h0)) inexactBefore++;
+      }
+    }
+    expect(inexactBefore).toBeGreaterThan(0);
   });
 });
