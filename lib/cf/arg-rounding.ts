@@ -75,11 +75,6 @@ export function gridRounding(lipschitz: number, slope: number, h: number, K: num
   return { cdf: (per * K * h) / Math.PI * (1 + 4 * Number.EPSILON), pdf: ((per * h * h * K * K) / (2 * Math.PI)) * (1 + 6 * Number.EPSILON) };
 }
 
-/** the same per node: (u L + S) t, for the routes that carry a noise per node */
-export function nodeRounding(lipschitz: number, slope: number, t: number): number {
-  return (U * lipschitz + slope) * t * (1 + 4 * Number.EPSILON);
-}
-
 /** h rounded down to 29 significant bits: (k + 1/2) h is then exact for 2k + 1 < 2^24 (the product has at most 53 bits) */
 export function exactGridStep(h: number): number {
   const q = Math.pow(2, Math.floor(Math.log2(h)) - 28);

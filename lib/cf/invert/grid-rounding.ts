@@ -1,7 +1,7 @@
 import type { Atom, CompiledModel } from "../types";
 import type { GammaKernel } from "../damped-kernels";
 import type { ContinuousPart } from "./part";
-import { nodeRounding } from "../arg-rounding";
+import type { Envelope } from "./nodes";
 
 /**
  * Lipschitz constants, in t, of what the inversions evaluate at their rounded nodes fl((k + 1/2) h) (../arg-rounding.ts):
@@ -10,6 +10,7 @@ import { nodeRounding } from "../arg-rounding";
  */
 
 const EPS = Number.EPSILON;
+const U = EPS / 2;
 
 /**
  * E|X - c| <= sqrt(E (X - c)^2) = sqrt(kappa_2 + (kappa_1 - c)^2) (Lyapunov), the cumulants with their derived bounds
@@ -51,30 +52,48 @@ export function partLipschitz(part: ContinuousPart): number {
 
 /**
  * The damped psi(t) = e^{beta lo} [E e^{(it - beta) X} - atoms - kernels - one-claim terms] e^{-i t lo} (./damped-psi.ts
- * psiOf) at fixed beta: in t each piece's derivative is at most E[(Y - lo) e^{-beta (Y - lo)}] times its mass (Y >= lo its
- * law), at most its first moment about lo and at most its mass / (e beta) (y e^{-beta y} <= 1 / (e beta)): the model
- * (E(X - lo)), the atoms (p_j, x_j), the kernels (|w_k|, at_k - lo + shape_k / rate_k) and the severity's one- and
- * two-claim laws (w_1 E X_1, w_2 E X_2; they start at lo = 0).
+ * psiOf) at fixed beta: a bound on |psi'| over [t (1 - 2u), oo), piece by piece (each piece a measure Y >= lo of its mass,
+ * whose transform's derivative is at most E[(Y - lo) e^{-beta (Y - lo)}], at most its first moment about lo and at most its
+ * mass / (e beta), y e^{-beta y} <= 1 / (e beta)):
+ *  - the model: dampedMajorant.slope(beta, t) where the tree derives it (non-increasing in t), else E(X - lo) and 1 / (e beta);
+ *  - an atom at x: p (x - lo) e^{-beta (x - lo)} exactly (its transform's derivative has that size);
+ *  - a kernel w Gamma(shape, rate) from `at`: |w| e^{-beta (at - lo)} (rate / |rate + beta - i t|)^shape (at - lo + shape /
+ *    |rate + beta - i t|), falling in t;
+ *  - the severity's one- and two-claim laws: w_1 slope(t) where the severity states it, else w_1 E X_1 and w_1 / (e beta);
+ *    w_2 E X_2 and w_2 / (e beta).
  */
-export function dampedLipschitz(model: CompiledModel, atoms: Atom[], kernels: readonly GammaKernel[], pairOut: boolean, beta: number): number {
+export function dampedSlopeAt(model: CompiledModel, atoms: Atom[], kernels: readonly GammaKernel[], pairOut: boolean, beta: number): (t: number) => number {
   const lo = model.support[0];
   const cap = beta > 0 ? 1 / (Math.E * beta) : Infinity;
-  const piece = (mass: number, moment: number) => Math.min(mass * moment, mass * cap);
   const m = absMomentAbout(model, lo);
-  let s = piece(1, Number.isFinite(m) ? m : Infinity);
-  for (const a of atoms) s += piece(a.p, Math.abs(a.x - lo));
-  for (const k of kernels) s += piece(Math.abs(k.w), Math.abs(k.at - lo) + k.shape / k.rate);
+  const flat0 = Math.min(Number.isFinite(m) ? m : Infinity, cap);
+  let fixed = 0;
+  for (const a of atoms) fixed += a.p * (a.x - lo) * Math.exp(-beta * (a.x - lo));
   const sev = model.dampedSeverity;
-  if (sev) {
-    s += piece(Math.abs(sev.w), sev.moments[0]);
-    if (pairOut && sev.pair) s += piece(Math.abs(sev.pair.w), sev.pair.moments[0]);
-  }
-  return s * (1 + (8 + atoms.length + kernels.length) * EPS);
+  if (sev && !sev.slope) fixed += Math.abs(sev.w) * Math.min(sev.moments[0], cap);
+  if (sev && pairOut && sev.pair) fixed += Math.abs(sev.pair.w) * Math.min(sev.pair.moments[0], cap);
+  const dm = model.dampedMajorant;
+  const ks = kernels.map((k) => ({ w: Math.abs(k.w) * Math.exp(-beta * (k.at - lo)), d: Math.max(k.at - lo, 0), shape: k.shape, rate: k.rate }));
+  const grow = 1 + (16 + atoms.length + kernels.length) * EPS;
+  return (t: number) => {
+    const t0 = t * (1 - 2 * U);
+    let s = fixed + (dm ? Math.min(dm.slope(beta, t0), flat0) : flat0);
+    if (sev?.slope) s += Math.abs(sev.w) * Math.min(sev.slope(t0), sev.moments[0], cap);
+    for (const k of ks) {
+      const r = Math.hypot(k.rate + beta, t0);
+      s += k.w * Math.pow(k.rate / r, k.shape) * (k.d + k.shape / r);
+    }
+    return s * grow;
+  };
 }
 
 /**
  * The damped route's nodes: psi is evaluated at fl((k + 1/2) h) (`rounded`; null where the step makes them exact) and the
- * model's own slope acts on |w| <= t + beta; each node's noise grows by (u L + S) t_k + S beta (../arg-rounding.ts).
+ * model's own slope acts on |w| <= t + beta; each node's noise grows by (u L + S) t_k + S beta (../arg-rounding.ts), L =
+ * dampedSlopeAt's bound on |psi'| past t_k (1 - 2u). Where
+ * the plan's envelope `env` bounds |psi| on [t_i, t_{i+1}) (the step the truncation bound integrates), the node's move is
+ * also at most |psi(t~)| + |psi(t)| <= 2 env there (both points lie past t_k (1 - u)), the lesser of the two kept: far out,
+ * where psi is small, the Lipschitz bound u t_k L alone would grow with t_k.
  */
 export function addGridNoise(
   model: CompiledModel,
@@ -84,12 +103,25 @@ export function addGridNoise(
   rounded: Float64Array | null,
   t: Float64Array,
   noise: Float64Array,
+  env?: Envelope,
 ): void {
   const S0 = model.cfArgSlope ?? 0;
   const S = Number.isFinite(S0) ? S0 : 0;
-  const L0 = rounded ? dampedLipschitz(model, atoms, model.dampedKernels ?? [], pairOut, beta) : 0;
-  const L = Number.isFinite(L0) ? L0 : 0;
-  if (L === 0 && S === 0) return;
+  const slope = rounded ? dampedSlopeAt(model, atoms, model.dampedKernels ?? [], pairOut, beta) : null;
+  if (!slope && S === 0) return;
   const sb = S * beta * (1 + 2 * EPS);
-  for (let k = 0; k < t.length; k++) noise[k] += nodeRounding(L, S, t[k]) + sb;
+  const et = env?.t;
+  let i = 0;
+  for (let k = 0; k < t.length; k++) {
+    const L = slope ? slope(t[k]) : 0;
+    let move = Number.isFinite(L) ? U * L * t[k] * (1 + 4 * EPS) : Infinity;
+    if (et && move > 0) {
+      const lo = t[k] * (1 - 2 * U);
+      while (i + 1 < et.length && et[i + 1] <= lo) i++;
+      // inside the probed range only (past the last probe the envelope is a fitted tail)
+      if (et[0] <= lo && i + 1 < et.length) move = Math.min(move, 2 * env!.env[i] * (1 + 4 * EPS));
+    }
+    if (move === Infinity) move = 0; // neither bound derived: left out (the module's note)
+    noise[k] += move + S * t[k] * (1 + 4 * EPS) + sb;
+  }
 }
