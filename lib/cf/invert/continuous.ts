@@ -270,7 +270,7 @@ function lightPath(
     const K = chooseTerms(tmax, h, method, n);
     // the window only widens (h falls), so the count only grows from here
     if (opt.maxTerms !== undefined && K > opt.maxTerms) throw new TermsOverCap(K);
-    const nodes = buildNodes(part, h, K);
+    const nodes = buildNodes(part, h, K, env);
     evaluate(part, nodes, req, layout, opt.wantPdf, pdf, cdf, sf);
     // edge probes for the aliasing bounds
     const ds = [T / 128, T / 64, T / 32, T / 16, T / 8, T / 5];

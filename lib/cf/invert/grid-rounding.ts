@@ -125,3 +125,70 @@ export function addGridNoise(
     noise[k] += move + S * t[k] * (1 + 4 * EPS) + sb;
   }
 }
+
+/** u = 2^-53 with the products' and the caps' few roundings */
+const GRID_U = U * (1 + 8 * EPS);
+
+/**
+ * buildNodes' per-node moves of the part at the rounded nodes: m_k = min(j u t_k D(t_k), 2 env(t_k (1 - 2u))), j = 1 point by
+ * point and 2 on the FFT, D a bound on |psi'| past t_k (1 - 2u): partLipschitz's L, or for a part without atoms or a tail
+ * whose model derives a slope majorant S about c0, S(t) + |c - c0| M(t) (both non-increasing; ./envelope-bound.ts uses the
+ * same) plus each endpoint kernel's closed-form derivative |b| (|at - c| + m / |rate - i t|) |1 - i t / rate|^-m; env the
+ * step the truncation bound integrates (inside the probed range only). Null where L is not derived. `block` takes each
+ * block of nodes t_{i0 ..}, in order; `sums` the cdf and pdf sums (1/pi) sum m_k / (k + 1/2) and (h/pi) sum m_k.
+ */
+export function nodeMoves(part: ContinuousPart, env: Envelope, B: number) {
+  const lip = partLipschitz(part);
+  if (!Number.isFinite(lip)) return null;
+  const maj = part.atoms.length === 0 && !part.tail ? part.model.logAbsMajorant : undefined;
+  const slopeMaj = maj?.slope;
+  const kd = part.kernels.flatMap((k) => k.b.map((b, j) => ({ b: Math.abs(b), m: k.power + j, rate: k.rate, d: Math.abs(k.at - part.center) })));
+  const tl = new Float64Array(B);
+  const sv = slopeMaj ? new Float64Array(B) : null;
+  const mv = slopeMaj ? new Float64Array(B) : null;
+  const dCen = slopeMaj ? Math.abs(part.center - slopeMaj.center) * (1 + 4 * EPS) + 4 * EPS * Math.abs(part.center) : 0;
+  const et = env.t;
+  let ie = 0;
+  let gc1 = 0;
+  let gp1 = 0;
+  let gc2 = 0;
+  let gp2 = 0;
+  return {
+    block(tb: Float64Array, n: number, i0: number): void {
+      for (let i = 0; i < n; i++) tl[i] = tb[i] * (1 - 2 * GRID_U);
+      if (slopeMaj) {
+        slopeMaj.at(tl.subarray(0, n), sv!.subarray(0, n));
+        maj!(tl.subarray(0, n), mv!.subarray(0, n));
+      }
+      for (let i = 0; i < n; i++) {
+        const tk = tb[i];
+        let d = lip;
+        if (sv) {
+          let s = sv[i] + dCen * Math.exp(mv![i]);
+          for (const q of kd) {
+            const r = Math.hypot(1, tl[i] / q.rate);
+            s += q.b * (q.d + q.m / (q.rate * r)) * Math.pow(r, -q.m);
+          }
+          s *= 1 + (8 + kd.length) * EPS;
+          if (s < d) d = s;
+        }
+        const m1 = GRID_U * d * tk;
+        let cap = Infinity;
+        while (ie + 1 < et.length && et[ie + 1] <= tl[i]) ie++;
+        if (et[0] <= tl[i] && ie + 1 < et.length) cap = 2 * env.env[ie];
+        const a1 = Math.min(m1, cap);
+        const a2 = Math.min(2 * m1, cap);
+        const inv = 1 / (i0 + i + 0.5);
+        gc1 += a1 * inv;
+        gp1 += a1;
+        gc2 += a2 * inv;
+        gp2 += a2;
+      }
+    },
+    /** g: the running sums' relative allowance (1 + K eps) */
+    sums(h: number, g: number) {
+      const f = g * g;
+      return { grid: { cdf1: (gc1 * f) / Math.PI, pdf1: (gp1 * h * f) / Math.PI, cdf2: (gc2 * f) / Math.PI, pdf2: (gp2 * h * f) / Math.PI } };
+    },
+  };
+}

@@ -139,7 +139,7 @@ export function heavyPath(
     const h = (2 * Math.PI) / T;
     const K = chooseTerms(tmax, h, m, n);
     if (lev > 0 && K * n > MAX_POINTWISE_WORK * 4 && m === "gil-pelaez") break;
-    const nodes = buildNodes(part, h, K);
+    const nodes = buildNodes(part, h, K, env);
     lastNodes = nodes;
     const pdf = opt.wantPdf && !pdfDone ? new Float64Array(n) : null;
     const cdf = new Float64Array(n);

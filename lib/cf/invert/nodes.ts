@@ -6,6 +6,7 @@ import { RESYNC } from "./pointwise";
 import { majorantEnvelope } from "./envelope-bound";
 import { sumMajorants, type LogMajorant } from "../majorant";
 import { exactGrid } from "../arg-rounding";
+import { nodeMoves } from "./grid-rounding";
 
 /**
  * Envelope of |phi_part(t)| sampled on a geometric probe (8 points per octave) and its tail integrals, used to
@@ -284,11 +285,17 @@ export interface Nodes {
   l2Pdf?: number;
   /** every node (k + 1/2) h is exact in floating point (../arg-rounding.ts exactGrid) */
   exact?: boolean;
+  /**
+   * the rounded nodes' move of the part, summed as the cdf and pdf sums weigh it ((1/pi) sum m_k / (k + 1/2), (h/pi) sum
+   * m_k), m_k = min(j u t_k L, 2 env(t_k (1 - 2u))) for a node off by j u t_k (j = 1 point by point, 2 on the FFT):
+   * ./grid-rounding.ts; absent where not formed (no envelope given, or L not derived)
+   */
+  grid?: { cdf1: number; pdf1: number; cdf2: number; pdf2: number };
 }
 
 const NODE_BLOCK = 1 << 16;
 
-export function buildNodes(part: ContinuousPart, h: number, K: number): Nodes {
+export function buildNodes(part: ContinuousPart, h: number, K: number, env?: Envelope): Nodes {
   checkDeadline("nodes");
   const re = new Float64Array(K);
   const im = new Float64Array(K);
@@ -307,6 +314,9 @@ export function buildNodes(part: ContinuousPart, h: number, K: number): Nodes {
   let q2p = 0;
   let dc = 0;
   let dp = 0;
+  // the rounded nodes' moves (./grid-rounding.ts)
+  const exact = exactGrid(h, K);
+  const moves = env && !exact ? nodeMoves(part, env, B) : null;
   // in blocks (as probeEnvelope does), with the deadline checked between them: K reaches millions for densities
   // with kinks, and one call over all nodes ran for many seconds past a deadline
   for (let i0 = 0; i0 < K; i0 += NODE_BLOCK) {
@@ -315,6 +325,7 @@ export function buildNodes(part: ContinuousPart, h: number, K: number): Nodes {
     const n = i1 - i0;
     for (let i = 0; i < n; i++) tb[i] = (i0 + i + 0.5) * h;
     evalPart(part, n === B ? tb : tb.subarray(0, n), re.subarray(i0, i1), im.subarray(i0, i1), n === B ? rel : rel.subarray(0, n));
+    moves?.block(tb, n, i0);
     for (let k = i0; k < i1; k++) {
       const inv = 1 / (k + 0.5);
       wre[k] = re[k] * inv;
@@ -352,6 +363,7 @@ export function buildNodes(part: ContinuousPart, h: number, K: number): Nodes {
     l2Pdf: (Math.sqrt(q2p * g) * h * g) / Math.PI,
     driftCdf: (dc * g) / Math.PI,
     driftPdf: (dp * h * g) / Math.PI,
-    exact: exactGrid(h, K),
+    exact,
+    ...(moves?.sums(h, g) ?? {}),
   };
 }

@@ -315,7 +315,13 @@ export function atomMass(atoms: Atom[], x: number): { below: number; above: numb
 function gridTerm(part: ContinuousPart, nodes: Nodes, fft: boolean): { cdf: number; pdf: number } {
   // exact nodes move nothing; the FFT's phases are those of (k + 1/2) 2 pi / (N dx), which h itself misses by its rounding:
   // the node is then off by up to 2 u t_k
+  const S0 = (part.model.cfArgSlope ?? 0) / part.weight;
+  const S = Number.isFinite(S0) ? S0 : 0;
+  if (nodes.grid && !nodes.exact) {
+    // the part's move capped by the envelope node by node (buildNodes), the model's own slope as it is
+    const own = gridRounding(0, S, nodes.h, nodes.K);
+    return { cdf: own.cdf + (fft ? nodes.grid.cdf2 : nodes.grid.cdf1), pdf: own.pdf + (fft ? nodes.grid.pdf2 : nodes.grid.pdf1) };
+  }
   const L = nodes.exact ? 0 : (fft ? 2 : 1) * partLipschitz(part);
-  const S = (part.model.cfArgSlope ?? 0) / part.weight;
-  return gridRounding(Number.isFinite(L) ? L : 0, Number.isFinite(S) ? S : 0, nodes.h, nodes.K);
+  return gridRounding(Number.isFinite(L) ? L : 0, S, nodes.h, nodes.K);
 }
