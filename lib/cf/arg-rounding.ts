@@ -85,3 +85,62 @@ export function exactGridStep(h: number): number {
 export function exactGrid(h: number, K: number): boolean {
   return h > 1e-290 && 2 * K - 1 < 2 ** 24 && exactGridStep(h) === h;
 }
+
+/** a node's argument error at t >= 0: min(argSlope t, argErrAt(t)) (argErrAt where derived) */
+export function argErrorOf(c: Node): (t: number) => number {
+  const s = c.argSlope ?? 0;
+  const f = c.argErrAt;
+  return f ? (t) => Math.min(s * t, f(t)) : (t) => s * t;
+}
+
+const ONE_T = new Float64Array(1);
+const ONE_V = new Float64Array(1);
+const ONE_M = new Float64Array(1);
+
+/**
+ * Node.argErrAt of aX where X's tree derives a slope majorant S_X about c0 (../majorant.ts): phi_X moves between a t and
+ * fl(a t) by at most u |a t| sup |phi_X'| there, and |phi_X'(s)| <= S_X(s) + |c0| M_X(s) (both non-increasing: taken at
+ * |a t| (1 - u)), plus X's own error at |fl(a t)| <= |a t| (1 + u). Undefined where X has no slope majorant.
+ */
+export function scaleArgErrAt(a: number, c: Node): ((t: number) => number) | undefined {
+  const maj = c.logMajorant;
+  const sl = maj?.slope;
+  const m = absFirstMoment(c);
+  if (!maj || !sl) return undefined;
+  const aa = Math.abs(a);
+  const own = argErrorOf(c);
+  const c0 = Math.abs(sl.center);
+  const exact = Math.log2(aa) === Math.round(Math.log2(aa));
+  return (t) => {
+    const s = aa * t;
+    let d = 0;
+    if (!exact) {
+      ONE_T[0] = s * (1 - 2 * U);
+      sl.at(ONE_T, ONE_V);
+      maj(ONE_T, ONE_M);
+      d = (ONE_V[0] + c0 * Math.exp(ONE_M[0])) * (1 + 8 * Number.EPSILON);
+      if (m !== undefined && m < d) d = m;
+      d *= U * s;
+    }
+    return (own(s * (1 + U)) + d) * (1 + 4 * U);
+  };
+}
+
+/** sums (weights 1), mixtures (ws), n-fold sums (one child, weight n), compounds (E N): the children's errors at t added */
+export function addArgErrAt(cs: readonly Node[], ws?: readonly number[]): ((t: number) => number) | undefined {
+  if (!cs.some((c) => c.argErrAt)) return undefined;
+  const fs = cs.map(argErrorOf);
+  const w = cs.map((_, j) => (ws ? Math.abs(ws[j]) : 1));
+  return (t) => {
+    let e = 0;
+    for (let j = 0; j < fs.length; j++) e += w[j] * fs[j](t);
+    return e * (1 + (cs.length + 2) * Number.EPSILON);
+  };
+}
+
+/** a compound: E N times X's error at t (compoundArgSlope's argument) */
+export function compoundArgErrAt(meanN: number | null, X: Node): ((t: number) => number) | undefined {
+  if (!X.argErrAt || meanN === null || !Number.isFinite(meanN)) return undefined;
+  const f = argErrorOf(X);
+  return (t) => meanN * f(t) * (1 + 2 * Number.EPSILON);
+}

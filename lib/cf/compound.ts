@@ -11,7 +11,7 @@ import { compoundE } from "./cumulant-ops";
 import { compoundDampedMajorant } from "./damped-majorant";
 import { realCgf } from "./count-pgf";
 import { endpointKernelsRemainder } from "./compound-remainder";
-import { compoundArgSlope } from "./arg-rounding";
+import { compoundArgErrAt, compoundArgSlope } from "./arg-rounding";
 
 const collectNotes = (cs: Node[]) => [...new Set(cs.flatMap((c) => c.notes))];
 
@@ -78,6 +78,7 @@ export function compoundNode(N: Node, X: Node, discretise: DiscretiseOptions | n
     // when the count's log-derivative is bounded (Poisson, negative binomial)
     ...compoundErrors(N, X, layered?.unlisted ?? 0),
     argSlope: compoundArgSlope(N.cumulants(1)[0], X),
+    argErrAt: compoundArgErrAt(N.cumulants(1)[0], X),
     cumulants(n) {
       const kx = X.cumulants(n);
       const kn = N.cumulants(n);

@@ -10,7 +10,7 @@ import { roundOf, type TableRound } from "./table-rounding";
 import type { LatticeTable } from "./types";
 import { collectNotes, carryApproximation, completeAtoms } from "./operators-shared";
 import { withCumulantErrors } from "./cumulant-bounds";
-import { addArgSlopes } from "./arg-rounding";
+import { addArgErrAt, addArgSlopes } from "./arg-rounding";
 import { mixE } from "./cumulant-ops";
 
 /**
@@ -67,6 +67,7 @@ export function mixNode(ws: number[], cs: Node[]): Node {
     // |phi_j| <= 1: relative errors of the parts become absolute ones of the mixture
     cfAbsError: cs.reduce((e, c, j) => e + ws[j] * ((c.cfAbsError ?? 0) + (c.cfRelError ?? 0)), 0),
     argSlope: addArgSlopes(cs, ws),
+    argErrAt: addArgErrAt(cs, ws),
     cumulants(n) {
       const raws = cs.map((c) => cumulantsToRaw(c.cumulants(n)));
       const mixed: (number | null)[] = [];

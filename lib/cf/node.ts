@@ -81,6 +81,9 @@ export interface Node {
   /** a bound S on the CF values' absolute error per unit |t| (damped: per unit |t| + beta) from frequencies the tree
    *  rounds (scaled arguments, ./arg-rounding.ts); absent is 0, NaN where not derived */
   argSlope?: number;
+  /** the same error at frequency t >= 0 where a finer bound is derived (a scaled child's slope majorant): the error is at
+   *  most min(argSlope t, argErrAt(t)) (undamped CF only) */
+  argErrAt?: (t: number) => number;
   /**
    * severities: a bound at frequency t, damping beta, on the damped transform's absolute error (at most cfAbsError), valid
    * only with the dampedLogCf and dampedCf named there; `shifted(b)`: the same for the law moved by b

@@ -11,7 +11,7 @@ import { collectNotes, carryApproximation, combineScales, addCumulants, complete
 import { withCumulantErrors } from "./cumulant-bounds";
 import { repeatE, scaleE, shiftE, sumE } from "./cumulant-ops";
 import { powerIndicesOf, heaviestTerm } from "./operators-tail";
-import { addArgSlopes, scaleArgSlope } from "./arg-rounding";
+import { addArgErrAt, addArgSlopes, scaleArgErrAt, scaleArgSlope } from "./arg-rounding";
 
 export { compoundNode, pgfAt } from "./compound";
 export { atomsNode, latticeNode, sampleNode } from "./tabulated";
@@ -54,6 +54,7 @@ export function sumNode(cs: Node[]): Node {
     cfAbsError: cs.reduce((e, c) => e + (c.cfAbsError ?? 0), 0),
     cfRelError: cs.reduce((e, c) => e + (c.cfRelError ?? 0), 0),
     argSlope: addArgSlopes(cs),
+    argErrAt: addArgErrAt(cs),
   };
   withCumulantErrors(node, sumE(cs));
   carrySumKernels(node, cs);
@@ -119,6 +120,7 @@ export function scaleNode(a: number, c: Node): Node {
     cfAbsError: c.cfAbsError,
     cfRelError: c.cfRelError,
     argSlope: scaleArgSlope(a, c),
+    argErrAt: scaleArgErrAt(a, c),
   };
   withCumulantErrors(node, scaleE(a, c));
   carryScaleKernels(node, a, c);
@@ -175,6 +177,7 @@ export function shiftNode(b: number, c: Node): Node {
     cfAbsError: c.cfAbsError,
     cfRelError: c.cfRelError,
     argSlope: c.argSlope,
+    argErrAt: c.argErrAt,
   };
   withCumulantErrors(node, shiftE(b, c));
   carryShiftKernels(node, b, c);
@@ -234,6 +237,7 @@ export function repeatNode(n: number, c: Node): Node {
     cfAbsError: n * (c.cfAbsError ?? 0),
     cfRelError: n * (c.cfRelError ?? 0),
     argSlope: n * (c.argSlope ?? 0),
+    argErrAt: addArgErrAt([c], [n]),
   };
   withCumulantErrors(node, repeatE(n, c));
   if (c.table && c.kind.type === "lattice") {

@@ -64,6 +64,8 @@ export interface CompiledModel {
   /** absolute error of the CF values per unit |t| (damped transform: per unit |t| + beta) from the frequencies the tree
    *  rounds (scaled arguments, ../cf/arg-rounding.ts); 0 when none, NaN where not derived */
   readonly cfArgSlope?: number;
+  /** a finer bound on that error at t >= 0 (undamped CF), where derived: the error is at most min(cfArgSlope t, cfArgErrAt(t)) */
+  readonly cfArgErrAt?: (t: number) => number;
   /** a bound at frequency t, damping beta, on dampedLogCf's relative error, at most cfRelError (compounds whose severity bounds its own per frequency) */
   dampedRelErrorAt?(beta: number, t: number): number;
   /** log E[exp((i t - beta) X)], beta >= 0, for aggregate laws bounded below (compounds): the damped inversion's input */

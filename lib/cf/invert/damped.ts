@@ -180,7 +180,7 @@ export function dampedSetup(model: CompiledModel, atoms: Atom[], R: number, o: D
   const pIm = o.wantPdf ? keep("solPIm", K) : scratch("psiIm", K);
   const nz = scratch("noise", K);
   psi(t, pRe, pIm, nz);
-  addGridNoise(model, atoms, beta, plan.pairOut ?? false, pointwise ? null : t, t, nz, env);
+  addGridNoise(model, atoms, beta, plan.pairOut ?? false, pointwise ? null : t, t, nz, env, pRe, pIm);
   const cRe = keep("solCRe", K);
   const cIm = keep("solCIm", K);
   const wantInt = o.wantInt ?? true;

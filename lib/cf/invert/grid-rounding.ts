@@ -89,11 +89,9 @@ export function dampedSlopeAt(model: CompiledModel, atoms: Atom[], kernels: read
 
 /**
  * The damped route's nodes: psi is evaluated at fl((k + 1/2) h) (`rounded`; null where the step makes them exact) and the
- * model's own slope acts on |w| <= t + beta; each node's noise grows by (u L + S) t_k + S beta (../arg-rounding.ts), L =
- * dampedSlopeAt's bound on |psi'| past t_k (1 - 2u). Where
- * the plan's envelope `env` bounds |psi| on [t_i, t_{i+1}) (the step the truncation bound integrates), the node's move is
- * also at most |psi(t~)| + |psi(t)| <= 2 env there (both points lie past t_k (1 - u)), the lesser of the two kept: far out,
- * where psi is small, the Lipschitz bound u t_k L alone would grow with t_k.
+ * model's own slope S acts on |w| <= t + beta; each node's noise grows by u t_k D(t_k) + S (t_k + beta) (../arg-rounding.ts),
+ * D = dampedSlopeAt's bound on |psi'| past t_k (1 - 2u), or, where the plan's envelope covers t_k, by at most
+ * |psi~_k| + its noise + env(t_k) (the value computed there and the exact one), the lesser kept.
  */
 export function addGridNoise(
   model: CompiledModel,
@@ -103,26 +101,27 @@ export function addGridNoise(
   rounded: Float64Array | null,
   t: Float64Array,
   noise: Float64Array,
-  env?: Envelope,
+  env: Envelope | undefined,
+  re: Float64Array,
+  im: Float64Array,
 ): void {
   const S0 = model.cfArgSlope ?? 0;
-  const S = Number.isFinite(S0) ? S0 : 0;
+  const S = Number.isFinite(S0) ? S0 * (1 + 2 * EPS) : 0;
   const slope = rounded ? dampedSlopeAt(model, atoms, model.dampedKernels ?? [], pairOut, beta) : null;
   if (!slope && S === 0) return;
-  const sb = S * beta * (1 + 2 * EPS);
   const et = env?.t;
   let i = 0;
   for (let k = 0; k < t.length; k++) {
     const L = slope ? slope(t[k]) : 0;
-    let move = Number.isFinite(L) ? U * L * t[k] * (1 + 4 * EPS) : Infinity;
+    // neither bound derived (L not finite): left out (the module's note)
+    let move = (Number.isFinite(L) ? U * L * t[k] * (1 + 4 * EPS) : 0) + S * (t[k] + beta);
     if (et && move > 0) {
       const lo = t[k] * (1 - 2 * U);
       while (i + 1 < et.length && et[i + 1] <= lo) i++;
       // inside the probed range only (past the last probe the envelope is a fitted tail)
-      if (et[0] <= lo && i + 1 < et.length) move = Math.min(move, 2 * env!.env[i] * (1 + 4 * EPS));
+      if (et[0] <= lo && i + 1 < et.length) move = Math.min(move, (Math.hypot(re[k], im[k]) * (1 + 4 * EPS) + noise[k] + env!.env[i]) * (1 + 4 * EPS));
     }
-    if (move === Infinity) move = 0; // neither bound derived: left out (the module's note)
-    noise[k] += move + S * t[k] * (1 + 4 * EPS) + sb;
+    noise[k] += move;
   }
 }
 
@@ -130,19 +129,33 @@ export function addGridNoise(
 const GRID_U = U * (1 + 8 * EPS);
 
 /**
- * buildNodes' per-node moves of the part at the rounded nodes: m_k = min(j u t_k D(t_k), 2 env(t_k (1 - 2u))), j = 1 point by
- * point and 2 on the FFT, D a bound on |psi'| past t_k (1 - 2u): partLipschitz's L, or for a part without atoms or a tail
+ * buildNodes' per-node moves of the part: the rounded node (off by j u t_k, j = 1 point by point and 2 on the FFT; 0 where the
+ * nodes are exact) and the model's own rounded arguments (cfArgSlope S / w per unit t) move the value by at most
+ * j u t_k D(t_k) + S t_k / w, D a bound on |psi'| past t_k (1 - 2u): partLipschitz's L, or for a part without atoms or a tail
  * whose model derives a slope majorant S about c0, S(t) + |c - c0| M(t) (both non-increasing; ./envelope-bound.ts uses the
- * same) plus each endpoint kernel's closed-form derivative |b| (|at - c| + m / |rate - i t|) |1 - i t / rate|^-m; env the
- * step the truncation bound integrates (inside the probed range only). Null where L is not derived. `block` takes each
- * block of nodes t_{i0 ..}, in order; `sums` the cdf and pdf sums (1/pi) sum m_k / (k + 1/2) and (h/pi) sum m_k.
+ * same) plus each endpoint kernel's closed-form derivative |b| (|at - c| + m / |rate - i t|) |1 - i t / rate|^-m. And by at
+ * most |psi~_k| + its error + env(t_k): the value computed there (within its relative error and the declared absolute one)
+ * and the exact one (the step the truncation bound integrates, inside the probed range only). The lesser is kept; a bound
+ * not derived (L, S) is left out. `block` takes each block of nodes with their values, in order; `sums` the cdf and pdf
+ * sums (1/pi) sum m_k / (k + 1/2) and (h/pi) sum m_k.
  */
-export function nodeMoves(part: ContinuousPart, env: Envelope, B: number) {
-  const lip = partLipschitz(part);
-  if (!Number.isFinite(lip)) return null;
-  const maj = part.atoms.length === 0 && !part.tail ? part.model.logAbsMajorant : undefined;
+export function nodeMoves(part: ContinuousPart, env: Envelope, B: number, exact: boolean) {
+  const L = exact ? 0 : partLipschitz(part);
+  const lip = Number.isFinite(L) ? L : 0;
+  const S0 = (part.model.cfArgSlope ?? 0) / part.weight;
+  const S = Number.isFinite(S0) ? S0 * (1 + 2 * EPS) : 0;
+  // the model's finer bound at t where derived (a scaled child's slope majorant), per unit weight
+  const errAt = part.model.cfArgErrAt;
+  const iw = (1 + 4 * EPS) / part.weight;
+  const maj = part.atoms.length === 0 && !part.tail && lip > 0 ? part.model.logAbsMajorant : undefined;
   const slopeMaj = maj?.slope;
   const kd = part.kernels.flatMap((k) => k.b.map((b, j) => ({ b: Math.abs(b), m: k.power + j, rate: k.rate, d: Math.abs(k.at - part.center) })));
+  let pa = 0;
+  for (const a of part.atoms) pa += a.p;
+  let kb = 0;
+  for (const q of kd) kb += q.b;
+  // the computed value's absolute error beyond its relative one: the declared CF error, the subtractions' rounding
+  const abs0 = (2 * part.cfAbsError + 16 * EPS * (1 + pa + kb)) / part.weight;
   const tl = new Float64Array(B);
   const sv = slopeMaj ? new Float64Array(B) : null;
   const mv = slopeMaj ? new Float64Array(B) : null;
@@ -154,7 +167,8 @@ export function nodeMoves(part: ContinuousPart, env: Envelope, B: number) {
   let gc2 = 0;
   let gp2 = 0;
   return {
-    block(tb: Float64Array, n: number, i0: number): void {
+    block(tb: Float64Array, n: number, i0: number, re: Float64Array, im: Float64Array, rel: Float64Array): void {
+      if (lip === 0 && S === 0 && !errAt) return;
       for (let i = 0; i < n; i++) tl[i] = tb[i] * (1 - 2 * GRID_U);
       if (slopeMaj) {
         slopeMaj.at(tl.subarray(0, n), sv!.subarray(0, n));
@@ -172,12 +186,20 @@ export function nodeMoves(part: ContinuousPart, env: Envelope, B: number) {
           s *= 1 + (8 + kd.length) * EPS;
           if (s < d) d = s;
         }
+        let own = S * tk;
+        if (errAt) {
+          const e = errAt(tk) * iw;
+          if (Number.isFinite(e)) own = S > 0 ? Math.min(own, e) : e;
+        }
         const m1 = GRID_U * d * tk;
         let cap = Infinity;
         while (ie + 1 < et.length && et[ie + 1] <= tl[i]) ie++;
-        if (et[0] <= tl[i] && ie + 1 < et.length) cap = 2 * env.env[ie];
-        const a1 = Math.min(m1, cap);
-        const a2 = Math.min(2 * m1, cap);
+        if (et[0] <= tl[i] && ie + 1 < et.length) {
+          const a = Math.hypot(re[i0 + i], im[i0 + i]);
+          cap = (a * (1 + rel[i] + 4 * EPS) + abs0 + env.env[ie]) * (1 + 4 * EPS);
+        }
+        const a1 = Math.min(m1 + own, cap);
+        const a2 = Math.min(2 * m1 + own, cap);
         const inv = 1 / (i0 + i + 0.5);
         gc1 += a1 * inv;
         gp1 += a1;
@@ -187,7 +209,7 @@ export function nodeMoves(part: ContinuousPart, env: Envelope, B: number) {
     },
     /** g: the running sums' relative allowance (1 + K eps) */
     sums(h: number, g: number) {
-      const f = g * g;
+      const f = g * g * (1 + 4 * EPS);
       return { grid: { cdf1: (gc1 * f) / Math.PI, pdf1: (gp1 * h * f) / Math.PI, cdf2: (gc2 * f) / Math.PI, pdf2: (gp2 * h * f) / Math.PI } };
     },
   };

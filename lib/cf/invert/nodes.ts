@@ -316,7 +316,7 @@ export function buildNodes(part: ContinuousPart, h: number, K: number, env?: Env
   let dp = 0;
   // the rounded nodes' moves (./grid-rounding.ts)
   const exact = exactGrid(h, K);
-  const moves = env && !exact ? nodeMoves(part, env, B) : null;
+  const moves = env ? nodeMoves(part, env, B, exact) : null;
   // in blocks (as probeEnvelope does), with the deadline checked between them: K reaches millions for densities
   // with kinks, and one call over all nodes ran for many seconds past a deadline
   for (let i0 = 0; i0 < K; i0 += NODE_BLOCK) {
@@ -325,7 +325,7 @@ export function buildNodes(part: ContinuousPart, h: number, K: number, env?: Env
     const n = i1 - i0;
     for (let i = 0; i < n; i++) tb[i] = (i0 + i + 0.5) * h;
     evalPart(part, n === B ? tb : tb.subarray(0, n), re.subarray(i0, i1), im.subarray(i0, i1), n === B ? rel : rel.subarray(0, n));
-    moves?.block(tb, n, i0);
+    moves?.block(tb, n, i0, re, im, rel);
     for (let k = i0; k < i1; k++) {
       const inv = 1 / (k + 0.5);
       wre[k] = re[k] * inv;

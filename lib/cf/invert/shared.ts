@@ -317,11 +317,8 @@ function gridTerm(part: ContinuousPart, nodes: Nodes, fft: boolean): { cdf: numb
   // the node is then off by up to 2 u t_k
   const S0 = (part.model.cfArgSlope ?? 0) / part.weight;
   const S = Number.isFinite(S0) ? S0 : 0;
-  if (nodes.grid && !nodes.exact) {
-    // the part's move capped by the envelope node by node (buildNodes), the model's own slope as it is
-    const own = gridRounding(0, S, nodes.h, nodes.K);
-    return { cdf: own.cdf + (fft ? nodes.grid.cdf2 : nodes.grid.cdf1), pdf: own.pdf + (fft ? nodes.grid.pdf2 : nodes.grid.pdf1) };
-  }
+  // node by node where buildNodes had the envelope (the nodes' and the model's own moves together, capped there)
+  if (nodes.grid) return { cdf: fft ? nodes.grid.cdf2 : nodes.grid.cdf1, pdf: fft ? nodes.grid.pdf2 : nodes.grid.pdf1 };
   const L = nodes.exact ? 0 : (fft ? 2 : 1) * partLipschitz(part);
   return gridRounding(Number.isFinite(L) ? L : 0, S, nodes.h, nodes.K);
 }
