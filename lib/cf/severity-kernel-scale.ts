@@ -33,6 +33,7 @@ export function scaledSeverityKernel(k: SeverityKernel, a: number): SeverityKern
   const slopeAt = k.slopeAt;
   const absBound = k.absBound;
   const dampedCf = k.dampedCf;
+  const errAt = k.cfErrorAt;
   return {
     w,
     name: k.name,
@@ -40,6 +41,8 @@ export function scaledSeverityKernel(k: SeverityKernel, a: number): SeverityKern
     cfAbsError: k.cfAbsError,
     dampedLogCf: (beta, t, re, im) => k.dampedLogCf(a * beta, scaled(t), re, im),
     ...(dampedCf ? { dampedCf: (beta: number, t: Float64Array, re: Float64Array, im: Float64Array) => dampedCf(a * beta, scaled(t), re, im) } : {}),
+    // the values at (a beta, a t): a bound non-increasing in t, taken below the rounded argument
+    ...(errAt ? { cfErrorAt: (beta: number, t: number) => errAt(a * beta, down(a * Math.abs(t))) } : {}),
     // |E[a X e^{(i t - beta) a X}]| = a |E[X e^{(i a t - a beta) X}]|
     ...(slope ? { slope: (t: number) => a * slope(down(a * t)) * up } : {}),
     ...(slopeAt

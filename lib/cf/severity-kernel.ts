@@ -50,6 +50,8 @@ export interface SeverityKernel {
    * these values' absolute error (at most cfAbsError; smaller where the route taken rounds less)
    */
   dampedCf?(beta: number, t: Float64Array, re: Float64Array, im: Float64Array): number;
+  /** a bound at frequency t, damping beta, on the errors of dampedLogCf's and dampedCf's values (at most cfAbsError) */
+  cfErrorAt?(beta: number, t: number): number;
   /**
    * a bound on |d/dt E[e^{(i t - beta) X}]| = |E[X e^{(i t - beta) X}]| at t > 0, for every beta >= 0: it bounds the
    * steps between the remainder's coefficients, which bound the truncated sums far from the period's ends (./invert/damped.ts)
@@ -107,6 +109,7 @@ export function lognormalKernel(
   cfAbsError: number,
   w2 = 0,
   dampedCf?: (beta: number, t: Float64Array, re: Float64Array, im: Float64Array) => number,
+  cfErrorAt?: (beta: number, t: number) => number,
 ): SeverityKernel {
   const m1 = Math.exp(mu + (sigma * sigma) / 2);
   // m1's relative error: the exponent within u (sigma^2 + |mu + sigma^2/2|), exp one ulp
@@ -120,6 +123,7 @@ export function lognormalKernel(
     w,
     dampedLogCf,
     ...(dampedCf ? { dampedCf } : {}),
+    ...(cfErrorAt ? { cfErrorAt } : {}),
     name: "lognormal",
     // E[X e^{(i t - beta) X}] = int g e^{itx} with g = x e^{-beta x} f(x) = e^{-beta x} phi((log x - mu)/sigma)/sigma, unimodal
     // (log-concave in log x) with sup g <= 1/(sigma sqrt(2 pi)): integrating by parts, |.| <= TV(g)/t = 2 sup g / t; and

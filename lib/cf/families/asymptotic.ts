@@ -41,7 +41,8 @@ const U = Number.EPSILON / 2;
 
 /**
  * The series of `ser` at |z| = a, arg z = -rot in [0, pi/2], summed until its remainder bound falls below
- * SERIES_REMAINDER, used where that and the rounding are below SERIES_TOLERANCE; false otherwise (then quadrature). Remainder: on the ray x = r e^{i w}, w = min(pi/2 + rot, pi/(2k)),
+ * SERIES_REMAINDER, used where that and the rounding are below SERIES_TOLERANCE (that bound to err[0] where given); false
+ * otherwise (then quadrature). Remainder: on the ray x = r e^{i w}, w = min(pi/2 + rot, pi/(2k)),
  * the density's variable v = (x/scale)^k has Re v >= 0, where the remainders of e^{-v} (Weibull) and (1 + v)^{-alpha-1}
  * (Burr) after N terms are at most the first omitted term's modulus (Taylor's integral form: |e^{-sv}| <= 1 and
  * |1 + sv| >= 1 for Re v >= 0), and |e^{i z x}| = e^{-a r sin(w - rot)}: the error is at most term N with a replaced by
@@ -53,7 +54,7 @@ const U = Number.EPSILON / 2;
  * times the precomputed phase (2 u) and a rotation by k (j+1) rot (2 u + u k (j+1) |rot|), summed within (J+1) u of the
  * sum of the moduli (Higham, Accuracy and Stability of Numerical Algorithms, 2nd ed., sec. 4.2).
  */
-export function weibullAsymptotic(ser: WeibullSeries, a: number, out: Float64Array, rot = 0): boolean {
+export function weibullAsymptotic(ser: WeibullSeries, a: number, out: Float64Array, rot = 0, err?: Float64Array): boolean {
   const k = ser.k;
   const w = Math.min(Math.PI / 2 + rot, Math.PI / (2 * k));
   const f = Math.sin(w - rot);
@@ -74,7 +75,9 @@ export function weibullAsymptotic(ser: WeibullSeries, a: number, out: Float64Arr
     prev = lb;
     const rem = Math.exp(lb);
     if (rem <= SERIES_REMAINDER) {
-      if (!(rem + U * (round + (j + 1) * mSum) <= SERIES_TOLERANCE)) return false;
+      const bound = rem + U * (round + (j + 1) * mSum);
+      if (!(bound <= SERIES_TOLERANCE)) return false;
+      if (err) err[0] = bound;
       out[0] = sr;
       out[1] = si;
       return true;

@@ -7,6 +7,7 @@ import { arithmeticNodes, expSumArithmetic, fromPhi } from "./cf-quadrature";
 import { SUM_MOMENT_UNITS, arithmetic, logFromSums, quadratureNodes } from "./numeric-rule";
 import { KahanComplex } from "./kahan";
 import { connectedGraphSums } from "./connected-graphs";
+import { decayTable } from "./decay-table";
 
 /**
  * Lognormal(mu, sigma): phi(t) = int N(y; mu, sigma^2) exp(i t e^y) dy. For t > 0 the integrand is entire in y and the
@@ -201,6 +202,10 @@ export function lognormal(mu: number, sigma: number): Node {
   let dropped = 0;
   while (jDrop < n && (dropped + w[jDrop]) * g0 * (1 + 1e-12) <= DROP) dropped += w[jDrop++];
   const dropBound = dropped * g0 * (1 + 1e-12);
+  // per frequency: the damped transform's routes, and with the rectangular batch's dropped nodes (the one-claim kernel's)
+  const errorsAt = lognormalErrorAt(w, v, ev, n, sigma, mu, theta, c);
+  const errorAt = errorsAt(ruleError(c, h, V, wSum, true), cfError);
+  const kernelErrorAt = errorsAt(ruleError(c, h, V, wSum, true) + dropBound, cfError + dropBound);
   const s2 = sigma * sigma;
   const d = Math.expm1(s2);
   const damped = (beta: number, t: Float64Array, re: Float64Array, im: Float64Array) => (arithmetic(t) ? batch(beta, t, re, im) : single(beta, t, re, im));
@@ -223,8 +228,9 @@ export function lognormal(mu: number, sigma: number): Node {
     // the shortcuts of the equispaced sums
     cfAbsError: cfError,
     dampedLogCf: damped,
+    dampedErrorAt: { cf: damped, at: errorAt },
     // compounds take the one-claim term out of their damped transform and add it back in closed form
-    severityKernel: (w: number, w2: number) => lognormalKernel(w, mu, sigma, damped, cfError + dropBound, w2, dampedRect),
+    severityKernel: (w: number, w2: number) => lognormalKernel(w, mu, sigma, damped, cfError + dropBound, w2, dampedRect, kernelErrorAt),
     // the density vanishes at 0 faster than any power, so every term of the endpoint expansion is 0 (Watson's lemma):
     // a compound's transform is P(N = 0) plus o(s^-n), and sums holding it build their kernels from the other terms
     laplaceExpansion: { at: 0, exps: [], coefs: [] },
@@ -327,6 +333,40 @@ function roundingBound(w: Float64Array, v: Float64Array, n: number, sigma: numbe
   const damped = 8 + (3 * (1 + cot9)) / Math.E + (Math.SQRT2 * (n - 1)) / (1 - (n - 1) * U);
   const equispaced = kahan + SUM_MOMENT_UNITS;
   return { all: U * base + Math.max(U * wSum * damped, U * wSum * equispaced + shortcut), single: U * base + U * wSum * kahan };
+}
+
+/**
+ * The damped routes' error at frequency t, damping beta (every route: per frequency, the damped batch, the rectangular
+ * batch), at most `whole` (their constant bound). roundingBound's parts are each relative to the moduli of the terms at
+ * that frequency, w_j g e^{-D_j} with g <= e^{c^2/2} and D_j = dr e_j, dr >= e^mu t sin(0.9 theta) on every damped path (the
+ * path angle th = theta: dr >= e^mu t sin theta; th = pi/2 - arg z: dr = e^mu |z|; the batch: th >= 0.9 theta); the parts
+ * carried by D (e_j's rounding, the tabled powers' arguments) through D e^{-D} <= (2/e) e^{-D/2}, the cot(theta) there taken
+ * as cot(0.9 theta) (the batch's phase is at most cot(th) D); the sum's rounding the larger of the compensated (2 sqrt 2 +
+ * 8 n u) and the plain one (sqrt 2 gamma_{n-1}, with the batch's 8 units of its products), all against e^{-D_j / 2}
+ * (decayTable). Given `fixed`, what does not fall with t (the rule's own error, the rectangular batch's dropped nodes),
+ * and `whole`, the routes' constant bound.
+ */
+function lognormalErrorAt(
+  w: Float64Array,
+  v: Float64Array,
+  ev: Float64Array,
+  n: number,
+  sigma: number,
+  mu: number,
+  theta: number,
+  c: number,
+): (fixed: number, whole: number) => (beta: number, t: number) => number {
+  const cot9 = 1 / Math.tan(0.9 * theta);
+  const sum = Math.max(2 * Math.SQRT2 + 8 * n * U, 8 + (Math.SQRT2 * (n - 1)) / (1 - (n - 1) * U));
+  const perTerm = new Float64Array(n);
+  for (let j = 0; j < n; j++) {
+    const a = Math.abs(v[j]);
+    perTerm[j] = w[j] * (v[j] * v[j] + 8 + 2 * c * a + (2 * (2 * (1 + sigma * a) + 3) * (1 + cot9)) / Math.E + sum);
+  }
+  const table = decayTable(perTerm, ev);
+  const g0 = Math.exp(0.5 * c * c);
+  const rate = Math.exp(mu) * Math.sin(0.9 * theta);
+  return (fixed, whole) => (_beta, t) => Math.min(whole, (fixed + g0 * U * table((rate * Math.abs(t)) / 2)) * (1 + 16 * Number.EPSILON));
 }
 
 /**

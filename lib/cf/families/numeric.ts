@@ -6,9 +6,12 @@ import { SERIES_TOLERANCE, weibullAsymptotic, weibullExpansion, weibullSeries } 
 import { logFromSums, quadratureNodes, ruleRounding } from "./numeric-rule";
 import { KahanComplex } from "./kahan";
 import { weibullRemainder } from "../endpoint-remainder";
+import { decayTable } from "./decay-table";
 
 export { NUMERIC_CF_ABS_ERROR, MAX_QUADRATURE_NODES } from "./numeric-rule";
 export { lognormal, lognormalCumulants } from "./lognormal";
+
+const U = Number.EPSILON / 2;
 
 /**
  * Weibull(shape k, scale lambda): with x = lambda e^s, s has density k e^{ks} exp(-e^{ks}). For t > 0 the path is moved
@@ -125,6 +128,32 @@ export function weibull(k: number, lambda: number): Node {
   }
   // the large-t series answers only where its own bound (remainder and rounding) is below SERIES_TOLERANCE
   const cfError = Math.max(SERIES_TOLERANCE, weibullRuleError(k, theta, h, cosK) + aSum * (2e-25 + 96 * Number.EPSILON) + n * 1e-21 + ruleRounding(n, aSum, termErrors));
+  // Per frequency (Node.dampedErrorAt, the damped transform phiAt gives): where the series answers, its own bound; else
+  // the rule's error (weibullRuleError) and its rounding, each part of which is relative to the terms' moduli at that
+  // frequency, A_j e^{-D_j}, A_j <= amp0_j (the path angle th <= theta: cos(k th) >= cos(k theta)), D_j = dr e^{s_j} with
+  // dr >= lambda x sin(theta) (th = theta, or th = arg-complement of z and then dr = lambda |z|): the units of termErrors,
+  // with the e^s part (2 (2 + |s|) u (D + |phase|) <= 2 (2 + |s|) (1 + cot theta) u D, as the phase's part is at most
+  // cot(theta) D on every path) taken through D e^{-D} <= (2/e) e^{-D/2}, plus the compensated sum's 2 sqrt 2 + 8 n u, all
+  // against e^{-D_j / 2} (decayTable); exp, log within one ulp, the table's own rounding in decayTable
+  const perTerm = new Float64Array(n);
+  for (let j = 0; j < n; j++) {
+    const s = sLo + j * h;
+    const kap = 8 + 2 * (1 + k * Math.abs(s)) * (1 + 2 * eksA[j]) + (4 * (2 + Math.abs(s)) * (1 + cot)) / Math.E + 2 * Math.SQRT2 + 8 * n * U;
+    perTerm[j] = amp0[j] * kap;
+  }
+  const roundAt = decayTable(perTerm, es);
+  const ruleAt = weibullRuleError(k, theta, h, cosK);
+  const sinT = Math.sin(theta);
+  const serErr = new Float64Array(1);
+  const serOut = new Float64Array(2);
+  const errorAt = (beta: number, t: number) => {
+    const x = Math.abs(t);
+    if (!(x > 0)) return cfError;
+    const a = Math.hypot(x, beta) * lambda;
+    if (a > 4 && weibullAsymptotic(ser, a, serOut, Math.atan2(x, beta) - Math.PI / 2, serErr)) return Math.min(cfError, serErr[0] * (1 + 4 * Number.EPSILON));
+    return Math.min(cfError, (ruleAt + U * roundAt((lambda * x * sinT) / 2)) * (1 + 16 * Number.EPSILON));
+  };
+  const dampedLogCf = fromPhiDamped(phiAt);
   const raw = (m: number) => lambda ** m * gammaFn(1 + m / k);
   const mean = raw(1);
   const expansion = weibullExpansion(k, lambda);
@@ -135,7 +164,8 @@ export function weibull(k: number, lambda: number): Node {
     nodes: 1,
     notes: [`weibull CF computed by quadrature on a rotated contour (absolute error <= ${cfError.toPrecision(2)})`],
     cfAbsError: cfError,
-    dampedLogCf: fromPhiDamped(phiAt),
+    dampedLogCf,
+    dampedErrorAt: { cf: dampedLogCf, at: errorAt },
     laplaceExpansion: expansion,
     // the expansion's Watson remainder, bounded on a rotated ray (../endpoint-remainder.ts)
     ...(expansion ? { endpointRemainder: weibullRemainder(k, lambda, expansion) } : {}),

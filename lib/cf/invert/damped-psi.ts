@@ -49,7 +49,8 @@ export function psiOf(model: CompiledModel, atoms: Atom[], beta: number, pairOut
   return (t: Float64Array, re: Float64Array, im: Float64Array, noise?: Float64Array) => {
     // the relative error at each node where the model bounds it per frequency (a compound of pareto claims: the claims'
     // rounding falls like 1 / t), else the constant; a plan's probe keeps the constant (its floor is above it anyway)
-    if (noise && relAt && !planning) for (let k = 0; k < t.length; k++) noise[k] = base0 + 2 * pa * Math.min(rel, relAt(beta, t[k]));
+    const rk = noise && relAt && !planning ? new Float64Array(t.length) : null;
+    if (rk) for (let k = 0; k < t.length; k++) noise![k] = base0 + 2 * pa * (rk[k] = Math.min(rel, relAt!(beta, t[k])));
     else if (noise) noise.fill(base);
     model.dampedLogCf!(beta, t, re, im);
     for (let k = 0; k < t.length; k++) {
@@ -69,6 +70,8 @@ export function psiOf(model: CompiledModel, atoms: Atom[], beta: number, pairOut
     // the kernels' factors' rounding per node (it falls with |z|^shape)
     if (model.dampedKernels) subtractKernels(model.dampedKernels, lo, beta, t, re, im, noise);
     if (sev) subtractSeverity(sev, beta, t, re, im);
+    // and on psi itself: the relative CF error sumAllowance charges at a constant rate (perNodeRel), here per node
+    if (rk) for (let k = 0; k < t.length; k++) noise![k] += 2 * rk[k] * Math.hypot(re[k], im[k]) * (1 + 4 * EPS);
     // a plan's probe keeps at least the floor it had when the kernels were charged 16 eps per unit of weight at every node:
     // without it the cut-off chases values the per-node bound resolves at high t (Poisson(2)-pareto: 311k terms instead of
     // 240k, for a cdf bound 2% lower); a floor above the noise only adds allowance
@@ -147,17 +150,19 @@ function severityPsi(sev: SeverityKernel, count: NonNullable<SeverityKernel["cou
       // m is |P_N(phi)| within its exp's rounding; exp of the cumulant function rounds within a few eps of |cr| + |ci|
       let base = 0;
       let slope = Infinity;
-      const z = ph + d;
+      // the severity's bound at this frequency where it has one (a plan's probe keeps the constant)
+      const dk = sev.cfErrorAt && !planning ? Math.min(d, sev.cfErrorAt(beta, t[k])) : d;
+      const z = ph + dk;
       if (noise) {
         const expRound = EPS * (4 + 2 * Math.abs(cr) + 2 * Math.abs(ci));
         base = 16 * EPS * (1 + pa + sev.w) + expRound * m + count.absError + 2 * count.relError * (m + pa);
-        if (count.slopeNear) slope = count.slopeNear(m * (1 + expRound), d);
+        if (count.slopeNear) slope = count.slopeNear(m * (1 + expRound), dk);
       }
       if (also) {
         const v = also.w2;
         also.re[k] = r - v * (fr * fr - fi * fi);
         also.im[k] = i - v * 2 * fr * fi;
-        also.noise[k] = base + 16 * EPS * v + Math.min(count.mean * (v > 0 ? z * z : z) * d, (slope + sev.w + 2 * v * z) * d);
+        also.noise[k] = base + 16 * EPS * v + Math.min(count.mean * (v > 0 ? z * z : z) * dk, (slope + sev.w + 2 * v * z) * dk);
       }
       if (w2 > 0) {
         r -= w2 * (fr * fr - fi * fi);
@@ -165,7 +170,7 @@ function severityPsi(sev: SeverityKernel, count: NonNullable<SeverityKernel["cou
       }
       re[k] = r;
       im[k] = i;
-      if (noise) noise[k] = base + 16 * EPS * w2 + Math.min(count.mean * (w2 > 0 ? z * z : z) * d, (slope + sev.w + 2 * w2 * z) * d);
+      if (noise) noise[k] = base + 16 * EPS * w2 + Math.min(count.mean * (w2 > 0 ? z * z : z) * dk, (slope + sev.w + 2 * w2 * z) * dk);
     }
   };
 }

@@ -37,8 +37,10 @@ export function exactStep(h: number): number {
  * relative error twice, except where psi is formed from the severity's transform (severityPsi), whose per-node noise
  * already carries the propagated CF error.
  */
-export function sumAllowance(model: CompiledModel, K: number, pointwise: Exactness): number {
-  const cf = model.dampedSeverity?.count && model.support[0] === 0 ? 0 : 2 * (model.cfRelError ?? 0);
+export function sumAllowance(model: CompiledModel, K: number, pointwise: Exactness, perNodeRel = false): number {
+  // perNodeRel: psiOf's noise (not a plan's probe) carries the relative error per node where the model bounds it so
+  const sevPsi = model.dampedSeverity?.count && model.support[0] === 0;
+  const cf = sevPsi || (perNodeRel && model.dampedRelErrorAt) ? 0 : 2 * (model.cfRelError ?? 0);
   if (!pointwise) return GRID_REL + cf;
   return (pointwise === "interpolated" ? FFT_REL : SUM_REL) + cf;
 }

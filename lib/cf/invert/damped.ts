@@ -220,7 +220,7 @@ export function dampedSetup(model: CompiledModel, atoms: Atom[], R: number, o: D
   const tK = (K - 0.5) * h;
   const trunc = truncationFrom(env, tK);
   // per node: relative rounding of the CF and the accumulation, plus the absolute noise (atoms, numerical CF)
-  const rel = sumAllowance(model, K, pointwise);
+  const rel = sumAllowance(model, K, pointwise, true);
   const roundPdf = (h / Math.PI) * (rel * absP + nP);
   const sumPdf = trunc.pdf + roundPdf;
   const roundCdf = (h / Math.PI) * (rel * absC + nC);
