@@ -11,6 +11,7 @@ import { lognormal } from "@/lib/cf/families/lognormal";
 import { weibull } from "@/lib/cf/families/numeric";
 import { cfRelError } from "@/lib/cf/invert/part";
 import { scaledSeverityKernel } from "@/lib/cf/severity-kernel-scale";
+import { burr } from "@/lib/cf/families/burr";
 
 interface Case { family: string; params: Record<string, number>; t: number; a: number; re: string; im: string; abs_diff: number }
 const cases = (JSON.parse(readFileSync(new URL("../fixtures/severity-cf/audit.json", import.meta.url), "utf8")) as { cases: Case[] }).cases;
@@ -60,10 +61,10 @@ const groups = (family: string) => {
 };
 
 describe("per-frequency CF error bounds of the quadrature severities (mpmath audit fixture)", () => {
-  it("the fixture: two methods agree within 1e-16, lognormal and weibull from t = 1e-3 to 1e5", () => {
-    for (const f of ["lognormal", "weibull"]) {
+  it("the fixture: two methods agree within 1e-16, lognormal, weibull, burr and log-logistic from t = 1e-3 to 1e5", () => {
+    for (const f of ["lognormal", "weibull", "burr", "loglogistic"]) {
       const cs = cases.filter((c) => c.family === f);
-      expect(cs.length, f).toBeGreaterThan(80);
+      expect(cs.length, f).toBeGreaterThan(60);
       expect(Math.max(...cs.map((c) => c.t)), f).toBeGreaterThanOrEqual(1e5);
       for (const c of cs) expect(c.abs_diff, JSON.stringify(c)).toBeLessThanOrEqual(1e-16);
     }
@@ -94,6 +95,16 @@ describe("per-frequency CF error bounds of the quadrature severities (mpmath aud
     const e = node.dampedErrorAt!;
     expect(e.cf).toBe(node.dampedLogCf);
     check(`weibull ${p}`, cs, [["damped", node.dampedLogCf!, true]], e.at, node.cfAbsError!);
+    expect(e.at(0, 1e3)).toBeLessThan(node.cfAbsError! / 10);
+  });
+
+  // log-logistic(gamma, theta) is burr(1, gamma, theta) (Loss Models app. A.2.1), the same rule
+  it.each([...groups("burr"), ...groups("loglogistic")])("burr / log-logistic %s: the damped transform", (p, cs) => {
+    const q = JSON.parse(p) as { alpha?: number; gamma: number; theta: number };
+    const node = burr(q.alpha ?? 1, q.gamma, q.theta, q.alpha === undefined ? "loglogistic" : "burr");
+    const e = node.dampedErrorAt!;
+    expect(e.cf).toBe(node.dampedLogCf);
+    check(`burr ${p}`, cs, [["damped", node.dampedLogCf!, true]], e.at, node.cfAbsError!);
     expect(e.at(0, 1e3)).toBeLessThan(node.cfAbsError! / 10);
   });
 });

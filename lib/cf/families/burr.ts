@@ -8,6 +8,7 @@ import { fromPhiDamped } from "../damped-cf";
 import { burrDist } from "./dist";
 import { KahanComplex } from "./kahan";
 import { burrRemainder } from "../endpoint-remainder";
+import { burrErrorAt } from "./burr-error";
 
 /**
  * Burr XII, Loss Models parameters: S(x) = (1 + (x/theta)^gamma)^(-alpha) (Klugman, Panjer & Willmot, Loss Models,
@@ -181,6 +182,7 @@ export function burr(alpha: number, gamma: number, theta: number, name = "burr")
   const damped = (beta: number, t: Float64Array, re: Float64Array, im: Float64Array) => {
     if (!(arithmeticNodes(t) && dampedBatch(beta, t, re, im))) dampedSingle(beta, t, re, im);
   };
+  const errorAt = burrErrorAt(alpha, gamma, theta, th, hD, lag, vLo, cotH, nMax, cfError, burrRuleError(alpha, gamma, th, strip, hD, absInt), ser);
   const raw = (r: number) => theta ** r * Math.exp(lgamma(1 + r / gamma) + lgamma(alpha - r / gamma) - lgamma(alpha));
   const tail = alpha * gamma;
   const dist = burrDist(alpha, gamma, theta);
@@ -194,6 +196,7 @@ export function burr(alpha: number, gamma: number, theta: number, name = "burr")
     notes: [`${name} CF computed by quadrature on a shifted contour (absolute error <= ${cfError.toPrecision(2)})`],
     cfAbsError: cfError,
     dampedLogCf: damped,
+    ...(errorAt ? { dampedErrorAt: { cf: damped, at: errorAt } } : {}),
     laplaceExpansion: expansion,
     // the expansion's Watson remainder, bounded on a rotated ray (../endpoint-remainder.ts)
     ...(expansion ? { endpointRemainder: burrRemainder(alpha, gamma, theta, expansion) } : {}),
