@@ -306,6 +306,7 @@ export function toCompiled(node: Node): CompiledModel {
     if (node.dampedSeverity && node.dampedSeverity.cf === damped) compiled.dampedSeverity = node.dampedSeverity.kernel;
     if (node.dampedMajorant && node.dampedMajorant.cf === damped) compiled.dampedMajorant = node.dampedMajorant;
     if (node.dampedRelErrorAt && node.dampedRelErrorAt.cf === damped) compiled.dampedRelErrorAt = node.dampedRelErrorAt.at;
+    if (node.dampedErrorAt && node.dampedErrorAt.cf === damped) compiled.dampedAbsErrorAt = node.dampedErrorAt.at;
   }
   if (node.kind.type === "lattice" && node.table) {
     const table = node.table;

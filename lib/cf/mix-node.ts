@@ -12,6 +12,7 @@ import { collectNotes, carryApproximation, completeAtoms } from "./operators-sha
 import { withCumulantErrors } from "./cumulant-bounds";
 import { addArgErrAt, addArgSlopes } from "./arg-rounding";
 import { mixE } from "./cumulant-ops";
+import { carryMixErrors } from "./damped-error-carry";
 
 /**
  * log sum_j w_j exp(L_j) over arrays, computed about a common centre (subtracting i mu t before summing), then the
@@ -80,6 +81,7 @@ export function mixNode(ws: number[], cs: Node[]): Node {
     },
   };
   withCumulantErrors(node, mixE(ws, cs));
+  carryMixErrors(node, ws, cs);
   carryMixKernels(node, ws, cs);
   if (kind.type === "lattice" && cs.every((c) => c.table)) {
     node.table = (maxLength) => {

@@ -12,6 +12,7 @@ import { withCumulantErrors } from "./cumulant-bounds";
 import { repeatE, scaleE, shiftE, sumE } from "./cumulant-ops";
 import { powerIndicesOf, heaviestTerm } from "./operators-tail";
 import { addArgErrAt, addArgSlopes, scaleArgErrAt, scaleArgSlope } from "./arg-rounding";
+import { carrySumErrors } from "./damped-error-carry";
 
 export { compoundNode, pgfAt } from "./compound";
 export { atomsNode, latticeNode, sampleNode } from "./tabulated";
@@ -57,6 +58,7 @@ export function sumNode(cs: Node[]): Node {
     argErrAt: addArgErrAt(cs),
   };
   withCumulantErrors(node, sumE(cs));
+  carrySumErrors(node, cs);
   carrySumKernels(node, cs);
   node.dampedMajorant = sumDampedMajorant(node, cs);
   if (node.dampedMajorant && node.dampedKernels && node.dampedKernels.cf === node.dampedLogCf) {

@@ -68,6 +68,8 @@ export interface CompiledModel {
   readonly cfArgErrAt?: (t: number) => number;
   /** a bound at frequency t, damping beta, on dampedLogCf's relative error, at most cfRelError (compounds whose severity bounds its own per frequency) */
   dampedRelErrorAt?(beta: number, t: number): number;
+  /** the same for dampedLogCf's absolute error, at most cfAbsError (sums and mixtures holding severities that bound theirs per frequency) */
+  dampedAbsErrorAt?(beta: number, t: number): number;
   /** log E[exp((i t - beta) X)], beta >= 0, for aggregate laws bounded below (compounds): the damped inversion's input */
   dampedLogCf?(beta: number, t: Float64Array, re: Float64Array, im: Float64Array): void;
   /** gamma kernels the damped inversion subtracts from the transform and adds back in closed form (compounds of

@@ -20,12 +20,12 @@ export function noiseOf(model: CompiledModel, atoms: Atom[]): number {
   return baseNoise(model, atoms) + (ks ? kernelsRounding(ks, model.support[0], 1 + pa + (model.dampedSeverity?.w ?? 0)) : 0);
 }
 
-function baseNoise(model: CompiledModel, atoms: Atom[], rel = model.cfRelError ?? 0): number {
+function baseNoise(model: CompiledModel, atoms: Atom[], rel = model.cfRelError ?? 0, abs = model.cfAbsError ?? 0): number {
   const pa = atoms.reduce((s, a) => s + a.p, 0);
   const kw = model.dampedSeverity?.w ?? 0;
   // a relative CF error acts on the atoms' share of psi as an absolute one; the kernels' rounding is subtractKernels'
   // per node (it falls with |z|^shape)
-  return 16 * EPS * (1 + pa + kw) + 2 * (model.cfAbsError ?? 0) + 2 * pa * rel;
+  return 16 * EPS * (1 + pa + kw) + 2 * abs + 2 * pa * rel;
 }
 
 /**
@@ -39,9 +39,12 @@ export function psiOf(model: CompiledModel, atoms: Atom[], beta: number, pairOut
   if (sev?.count && lo === 0) return severityPsi(sev, sev.count, atoms, beta, pairOut ? (sev.pair?.w ?? 0) : 0, planning);
   const base = baseNoise(model, atoms);
   const rel = model.cfRelError ?? 0;
-  const relAt = model.dampedRelErrorAt;
+  const abs = model.cfAbsError ?? 0;
+  const absAt = model.dampedAbsErrorAt;
+  const relAt = model.dampedRelErrorAt ?? (absAt ? () => rel : undefined);
   const pa = atoms.reduce((s, a) => s + a.p, 0);
-  const base0 = baseNoise(model, atoms, 0);
+  // without the CF's own errors: those are added per node below where the model bounds them per frequency
+  const base0 = baseNoise(model, atoms, 0, absAt ? 0 : abs);
   const floor = planning ? base + 16 * EPS * kernelsMass(model.dampedKernels ?? []) : 0;
   // each atom's distance from lo and damped weight once (an atom at lo, as a compound's P(N = 0): no phase to take)
   const ds = Float64Array.from(atoms, (a) => a.x - lo);
@@ -50,7 +53,7 @@ export function psiOf(model: CompiledModel, atoms: Atom[], beta: number, pairOut
     // the relative error at each node where the model bounds it per frequency (a compound of pareto claims: the claims'
     // rounding falls like 1 / t), else the constant; a plan's probe keeps the constant (its floor is above it anyway)
     const rk = noise && relAt && !planning ? new Float64Array(t.length) : null;
-    if (rk) for (let k = 0; k < t.length; k++) noise![k] = base0 + 2 * pa * (rk[k] = Math.min(rel, relAt!(beta, t[k])));
+    if (rk) for (let k = 0; k < t.length; k++) noise![k] = base0 + 2 * pa * (rk[k] = Math.min(rel, relAt!(beta, t[k]))) + (absAt ? 2 * Math.min(abs, absAt(beta, t[k])) : 0);
     else if (noise) noise.fill(base);
     model.dampedLogCf!(beta, t, re, im);
     for (let k = 0; k < t.length; k++) {

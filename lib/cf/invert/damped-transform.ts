@@ -40,7 +40,7 @@ export function exactStep(h: number): number {
 export function sumAllowance(model: CompiledModel, K: number, pointwise: Exactness, perNodeRel = false): number {
   // perNodeRel: psiOf's noise (not a plan's probe) carries the relative error per node where the model bounds it so
   const sevPsi = model.dampedSeverity?.count && model.support[0] === 0;
-  const cf = sevPsi || (perNodeRel && model.dampedRelErrorAt) ? 0 : 2 * (model.cfRelError ?? 0);
+  const cf = sevPsi || (perNodeRel && (model.dampedRelErrorAt || model.dampedAbsErrorAt)) ? 0 : 2 * (model.cfRelError ?? 0);
   if (!pointwise) return GRID_REL + cf;
   return (pointwise === "interpolated" ? FFT_REL : SUM_REL) + cf;
 }
