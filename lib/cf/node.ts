@@ -86,11 +86,11 @@ export interface Node {
   argErrAt?: (t: number) => number;
   /**
    * severities (and sums and mixtures holding them or compounds of them, ./damped-error-carry.ts): a bound at frequency t,
-   * damping beta, on the damped transform's absolute error (at most cfAbsError), valid only with the dampedLogCf and
-   * dampedCf named there; `shifted(b)`: the same for the law moved by b
+   * damping beta, on the damped transform's absolute error (at most cfAbsError, non-increasing in |t|), valid only with
+   * the dampedLogCf and dampedCf named there; `shifted(b)`: the same for the law moved by b
    */
   dampedErrorAt?: { cf: DampedLogCf; rect?: DampedLogCf; at(beta: number, t: number): number; shifted?(b: number): (beta: number, t: number) => number };
-  /** compounds (and sums holding them): a bound at t, damping beta, on the damped transform's relative error (at most cfRelError), valid only with the dampedLogCf named there */
+  /** compounds (and sums holding them): a bound at t, damping beta, on the damped transform's relative error (at most cfRelError, non-increasing in |t|), valid only with the dampedLogCf named there */
   dampedRelErrorAt?: { cf: DampedLogCf; at(beta: number, t: number): number };
   /** severities: the endpoint expansion of the Laplace transform (compounds choose gamma kernels from it) */
   laplaceExpansion?: EndpointSeries;

@@ -50,7 +50,7 @@ export interface SeverityKernel {
    * these values' absolute error (at most cfAbsError; smaller where the route taken rounds less)
    */
   dampedCf?(beta: number, t: Float64Array, re: Float64Array, im: Float64Array): number;
-  /** a bound at frequency t, damping beta, on the errors of dampedLogCf's and dampedCf's values (at most cfAbsError) */
+  /** a bound at frequency t, damping beta, on the errors of dampedLogCf's and dampedCf's values (at most cfAbsError, non-increasing in |t|) */
   cfErrorAt?(beta: number, t: number): number;
   /**
    * a bound on |d/dt E[e^{(i t - beta) X}]| = |E[X e^{(i t - beta) X}]| at t > 0, for every beta >= 0: it bounds the

@@ -100,6 +100,63 @@ export function weibullAsymptotic(ser: WeibullSeries, a: number, out: Float64Arr
 }
 
 /**
+ * An upper bound at every a > 4 on the bound weibullAsymptotic returns where it answers, whatever rot (so that a
+ * per-frequency error bound need not sum the series again): on the cell [a_i, a_{i+1}) of a geometric grid, each term
+ * m_j(a) = e^{lc_j} a^{-k(j+1)} is at most m_j(a_i); the remainder test's exponent lc_j - (j+1) k log(a f) is at most its
+ * value at a_i and f_min (f = sin(w - rot) >= sin(pi / (2k)) for k > 1, f = 1 otherwise), so the series stops by the first
+ * J* where that is below log SERIES_REMAINDER, if not earlier or not at all; |log a| is at most its larger value on the
+ * cell and |rot| <= pi/2. So the bound is at most SERIES_REMAINDER + u (sum_{j < J*} m_j(a_i) (4 |lc_j| + 3 (j + 1) k L +
+ * k (j + 1) pi/2 + 12) + (J* + 1) sum_{j < J*} m_j(a_i)), 1% added for this sum's own rounding; 0 where no J* is within
+ * the terms (the series then never answers); the largest over the cells from a on (non-increasing in a). Past the grid
+ * (a >= 2^26) the last cell's where k log a >= 1 there, else no bound (Infinity). Built at the first call.
+ */
+export function seriesBoundEnvelope(ser: WeibullSeries): (a: number) => number {
+  const k = ser.k;
+  const fMin = k > 1 ? Math.sin(Math.PI / (2 * k)) : 1;
+  const STEPS = 8;
+  const CELLS = 24 * STEPS;
+  let env: Float64Array | null = null;
+  const build = () => {
+    const out = new Float64Array(CELLS);
+    for (let i = 0; i < CELLS; i++) {
+      const a0 = 4 * 2 ** (i / STEPS);
+      const L = Math.max(Math.abs(Math.log(a0)), Math.abs(Math.log(4 * 2 ** ((i + 1) / STEPS))));
+      const la = Math.log(a0);
+      const lf = Math.log(a0 * fMin);
+      let round = 0;
+      let mSum = 0;
+      let J = -1;
+      for (let j = 0; j < ser.lc.length; j++) {
+        if (ser.lc[j] - (j + 1) * k * lf <= Math.log(SERIES_REMAINDER)) {
+          J = j;
+          break;
+        }
+        const m = Math.exp(ser.lc[j] - (j + 1) * k * la);
+        mSum += m;
+        round += m * (4 * Math.abs(ser.lc[j]) + 3 * (j + 1) * k * L + (k * (j + 1) * Math.PI) / 2 + 12);
+      }
+      // no J* within the terms: the series never answers on the cell (it returns false past its last term)
+      out[i] = J < 0 ? 0 : (SERIES_REMAINDER + U * (round + (J + 1) * mSum)) * 1.01;
+    }
+    // the largest from each cell on: non-increasing in a (so are the per-frequency bounds built on it), still a bound
+    for (let i = CELLS - 2; i >= 0; i--) out[i] = Math.max(out[i], out[i + 1]);
+    env = out;
+  };
+  // past the grid the last cell's bound holds where each term's m_j(a) (c + d log a) does not increase, k log a >= 1
+  const aLast = 4 * 2 ** (CELLS / STEPS);
+  const pastGrid = k * Math.log(aLast) >= 1;
+  return (a: number) => {
+    if (!env) build();
+    // below a = 4 the series is never taken: the first cell's bound there keeps the envelope non-increasing
+    if (!(a > 4)) return env![0];
+    let i = Math.max(0, Math.floor(STEPS * Math.log2(a / 4)));
+    if (i >= CELLS) return pastGrid ? env![CELLS - 1] : Infinity;
+    if (i > 0 && 4 * 2 ** (i / STEPS) > a) i--;
+    return env![i];
+  };
+}
+
+/**
  * Large-t expansion of the Pareto CF from the density's expansion at xm (Watson's lemma):
  * phi(t) ~ e^{i tau} (i alpha / tau) sum_j (alpha+1)_j (-i/tau)^j, tau = xm t; the terms decrease while
  * j < tau - alpha - 1 and the smallest is about e^{-tau} tau^alpha; used when a term falls below 1e-16 first.

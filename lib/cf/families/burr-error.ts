@@ -1,7 +1,7 @@
 /** The Burr XII damped transform's error per frequency (Node.dampedErrorAt): burr.ts's rounding, taken at each frequency. */
 import { decayTable } from "./decay-table";
 import { MAX_QUADRATURE_NODES, SUM_MOMENT_UNITS } from "./numeric-rule";
-import { weibullAsymptotic, type WeibullSeries } from "./asymptotic";
+import { seriesBoundEnvelope, type WeibullSeries } from "./asymptotic";
 
 const U = Number.EPSILON / 2;
 
@@ -17,17 +17,18 @@ const U = Number.EPSILON / 2;
  *  - the routes' nodes are on grids of step h with any offset: each lies in one cell [u_i, u_i + h) of a fixed grid, where
  *    the modulus is at most alpha gamma min(e^{gamma u_{i+1}}, e^{-alpha gamma u_i}) and the decay at least that at u_i;
  *    the units (burr.ts's termErrors, linear in |v|) at most their value at the cell's larger |v|. Cells run from
- *    vMin (below every rule's left end for theta |z| up to 1e12) to the right end (42 + lag) / (alpha gamma); nodes below
- *    vMin (terms at most h alpha gamma e^{gamma v} times units K0 + K1 |v|, increasing in v there) sum to at most
+ *    vMin = vLo (burr.ts's widest range) to the right end (42 + lag) / (alpha gamma); nodes below vMin (a rule's left end
+ *    moves below it at large theta |z|) (terms at most h alpha gamma e^{gamma v} times units K0 + K1 |v|, increasing in v there) sum to at most
  *    the integral up to vMin + h, alpha gamma e^{gamma w} (K0 / gamma + K1 (|w| / gamma + 1 / gamma^2)), w = vMin + h;
  *  - the parts carried by D (e^v's rounding into the decay and phase, at most (1 + cot(th / 2)) D) through
  *    D e^{-D} <= (2/e) e^{-D/2}; the sums' rounding (compensated: 2 sqrt 2 + 8 n u; the batch's moments SUM_MOMENT_UNITS
  *    of |c_j| <= e |term| for its moment nodes, D <= 1 there; the recurrence's drift and Taylor remainder 80 eps + 2e-25
  *    of |c_j|, relative to the current term, times e); the batch's dropped terms (each below 1e-21 and below its modulus,
- *    at most nMax of them: its range is at most burr.ts's span) at most min(nMax 1e-21, the moduli's sum); all against
+ *    at most nMax of them: its range is at most burr.ts's span) at most min(nMax 1e-21, the moduli's sum, which is at most
+ *    the units' sum over K0, as each term carries at least K0); all against
  *    e^{-D_j / 2} (decayTable);
- *  - the series (|z| theta > 4, per frequency only): its own bound where it answers (weibullAsymptotic), the rule's
- *    otherwise, and the larger of the two where the batch might have taken the rule there.
+ *  - the series (|z| theta > 4, per frequency only): an upper bound on its own bound wherever it may answer
+ *    (seriesBoundEnvelope), taken with the rule's, as the batch may have taken the rule there.
  * The rule's own error (burrRuleError) does not fall with t. Null where the cells would pass the node limit.
  */
 export function burrErrorAt(
@@ -45,7 +46,7 @@ export function burrErrorAt(
   ser: WeibullSeries,
 ): ((beta: number, t: number) => number) | null {
   const ag = alpha * gamma;
-  const vMin = Math.min(vLo, Math.log(44e-12) - 45 / gamma);
+  const vMin = vLo;
   const vTop = (42 + lag) / ag + h;
   const cells = Math.ceil((vTop - vMin) / h) + 1;
   if (!(cells <= MAX_QUADRATURE_NODES)) return null;
@@ -53,38 +54,30 @@ export function burrErrorAt(
   const sumUnits = 2 * Math.SQRT2 + 8 * MAX_QUADRATURE_NODES * U + Math.E * (SUM_MOMENT_UNITS + (80 * Number.EPSILON + 2e-25) / U);
   const K0 = (alpha + 1) * 8 + Math.abs(lag) + 8 + (8 * (1 + cotH)) / Math.E + sumUnits;
   const K1 = (alpha + 1) * 2 * gamma + 2 * gamma + (4 * (1 + cotH)) / Math.E;
-  // built at the first call (a compound asks; the node alone never does)
-  let units: ((b: number) => number) | null = null;
-  let moduli: ((b: number) => number) | null = null;
-  const build = () => {
-    const cu = new Float64Array(cells);
-    const cm = new Float64Array(cells);
-    const e = new Float64Array(cells);
-    for (let i = 0; i < cells; i++) {
-      const u0 = vMin + i * h;
-      const u1 = u0 + h;
-      const mod = h * ag * Math.min(Math.exp(gamma * u1), Math.exp(-ag * u0)) * (1 + 8 * Number.EPSILON);
-      cm[i] = mod;
-      cu[i] = mod * (K0 + K1 * Math.max(Math.abs(u0), Math.abs(u1)));
-      e[i] = theta * Math.exp(u0) * (1 - 4 * Number.EPSILON);
-    }
-    units = decayTable(cu, e);
-    moduli = decayTable(cm, e);
-  };
+  const cu = new Float64Array(cells);
+  const e = new Float64Array(cells);
+  for (let i = 0; i < cells; i++) {
+    const u0 = vMin + i * h;
+    const u1 = u0 + h;
+    const mod = h * ag * Math.min(Math.exp(gamma * u1), Math.exp(-ag * u0)) * (1 + 8 * Number.EPSILON);
+    cu[i] = mod * (K0 + K1 * Math.max(Math.abs(u0), Math.abs(u1)));
+    e[i] = theta * Math.exp(u0) * (1 - 4 * Number.EPSILON);
+  }
+  const units = decayTable(cu, e);
   const w = vMin + h;
   const below = ag * Math.exp(gamma * w) * (K0 / gamma + K1 * (Math.abs(w) / gamma + 1 / (gamma * gamma)));
   const rate = theta * Math.sin(0.75 * th) * (1 - 4 * Number.EPSILON);
-  const serErr = new Float64Array(1);
-  const serOut = new Float64Array(2);
+  const series = seriesBoundEnvelope(ser);
   return (beta, t) => {
     const x = Math.abs(t);
     if (!(x > 0)) return whole;
-    if (!units) build();
     const b = (rate * x) / 2;
-    const drop = Math.min((nMax + 1) * 1e-21, moduli!(b) + ag * Math.exp(gamma * w) / gamma);
-    let e = (rule + U * (units!(b) + below) + drop) * (1 + 16 * Number.EPSILON);
+    // the moduli's sum is at most the units' over K0 (every term carries at least K0 units)
+    const sum = units(b) + below;
+    const drop = Math.min((nMax + 1) * 1e-21, sum / K0);
+    let e = (rule + U * sum + drop) * (1 + 16 * Number.EPSILON);
     const a = Math.hypot(x, beta) * theta;
-    if (a > 4 && weibullAsymptotic(ser, a, serOut, Math.atan2(x, beta) - Math.PI / 2, serErr)) e = Math.max(e, serErr[0] * (1 + 4 * Number.EPSILON));
+    e = Math.max(e, series(a));
     return Math.min(whole, e);
   };
 }

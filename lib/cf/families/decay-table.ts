@@ -5,6 +5,12 @@
  * those moduli, falls with the frequency as the terms decay (./lognormal.ts, ./numeric.ts).
  */
 export function decayTable(c: Float64Array, e: Float64Array): (b: number) => number {
+  // built at the first call: a node whose bound is never asked per frequency pays nothing
+  let table: ((b: number) => number) | null = null;
+  return (b) => (table ??= build(c, e))(b);
+}
+
+function build(c: Float64Array, e: Float64Array): (b: number) => number {
   const n = c.length;
   let eMin = Infinity;
   let eMax = 0;

@@ -2,7 +2,7 @@ import { gamma as gammaFn } from "./special";
 import { rawToCumulants, type Node } from "../node";
 import { fromPhiDamped } from "../damped-cf";
 import { arithmeticNodes, expSumArithmetic, fromPhi } from "./cf-quadrature";
-import { SERIES_TOLERANCE, weibullAsymptotic, weibullExpansion, weibullSeries } from "./asymptotic";
+import { SERIES_TOLERANCE, seriesBoundEnvelope, weibullAsymptotic, weibullExpansion, weibullSeries } from "./asymptotic";
 import { logFromSums, quadratureNodes, ruleRounding } from "./numeric-rule";
 import { KahanComplex } from "./kahan";
 import { weibullRemainder } from "../endpoint-remainder";
@@ -128,8 +128,9 @@ export function weibull(k: number, lambda: number): Node {
   }
   // the large-t series answers only where its own bound (remainder and rounding) is below SERIES_TOLERANCE
   const cfError = Math.max(SERIES_TOLERANCE, weibullRuleError(k, theta, h, cosK) + aSum * (2e-25 + 96 * Number.EPSILON) + n * 1e-21 + ruleRounding(n, aSum, termErrors));
-  // Per frequency (Node.dampedErrorAt, the damped transform phiAt gives): where the series answers, its own bound; else
-  // the rule's error (weibullRuleError) and its rounding, each part of which is relative to the terms' moduli at that
+  // Per frequency (Node.dampedErrorAt, the damped transform phiAt gives): where the series may answer, the larger of a
+  // bound on its own bound (seriesBoundEnvelope) and the rule's; the rule's error (weibullRuleError) and its rounding,
+  // each part of which is relative to the terms' moduli at that
   // frequency, A_j e^{-D_j}, A_j <= amp0_j (the path angle th <= theta: cos(k th) >= cos(k theta)), D_j = dr e^{s_j} with
   // dr >= lambda x sin(theta) (th = theta, or th = arg-complement of z and then dr = lambda |z|): the units of termErrors,
   // with the e^s part (2 (2 + |s|) u (D + |phase|) <= 2 (2 + |s|) (1 + cot theta) u D, as the phase's part is at most
@@ -144,14 +145,13 @@ export function weibull(k: number, lambda: number): Node {
   const roundAt = decayTable(perTerm, es);
   const ruleAt = weibullRuleError(k, theta, h, cosK);
   const sinT = Math.sin(theta);
-  const serErr = new Float64Array(1);
-  const serOut = new Float64Array(2);
+  const series = seriesBoundEnvelope(ser);
   const errorAt = (beta: number, t: number) => {
     const x = Math.abs(t);
     if (!(x > 0)) return cfError;
     const a = Math.hypot(x, beta) * lambda;
-    if (a > 4 && weibullAsymptotic(ser, a, serOut, Math.atan2(x, beta) - Math.PI / 2, serErr)) return Math.min(cfError, serErr[0] * (1 + 4 * Number.EPSILON));
-    return Math.min(cfError, (ruleAt + U * roundAt((lambda * x * sinT) / 2)) * (1 + 16 * Number.EPSILON));
+    const rule = (ruleAt + U * roundAt((lambda * x * sinT) / 2)) * (1 + 16 * Number.EPSILON);
+    return Math.min(cfError, Math.max(rule, series(a)));
   };
   const dampedLogCf = fromPhiDamped(phiAt);
   const raw = (m: number) => lambda ** m * gammaFn(1 + m / k);

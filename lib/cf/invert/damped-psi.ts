@@ -52,8 +52,9 @@ export function psiOf(model: CompiledModel, atoms: Atom[], beta: number, pairOut
   return (t: Float64Array, re: Float64Array, im: Float64Array, noise?: Float64Array) => {
     // the relative error at each node where the model bounds it per frequency (a compound of pareto claims: the claims'
     // rounding falls like 1 / t), else the constant; a plan's probe keeps the constant (its floor is above it anyway)
-    const rk = noise && relAt && !planning ? new Float64Array(t.length) : null;
-    if (rk) for (let k = 0; k < t.length; k++) noise![k] = base0 + 2 * pa * (rk[k] = Math.min(rel, relAt!(beta, t[k]))) + (absAt ? 2 * Math.min(abs, absAt(beta, t[k])) : 0);
+    const rk = noise && relAt && !planning ? stepwise(relAt, beta, t, rel) : null;
+    const ak = rk && absAt ? stepwise(absAt, beta, t, abs) : null;
+    if (rk) for (let k = 0; k < t.length; k++) noise![k] = base0 + 2 * pa * rk[k] + (ak ? 2 * ak[k] : 0);
     else if (noise) noise.fill(base);
     model.dampedLogCf!(beta, t, re, im);
     for (let k = 0; k < t.length; k++) {
@@ -81,6 +82,27 @@ export function psiOf(model: CompiledModel, atoms: Atom[], beta: number, pairOut
     if (noise && planning) for (let k = 0; k < t.length; k++) noise[k] = Math.max(noise[k], floor);
   };
 }
+
+/**
+ * f(beta, t_k), at most `whole`, at every node: f does not increase in |t| (Node.dampedErrorAt's contract), so on the
+ * inversion's increasing nodes it is evaluated once per run of STEP nodes and that value, taken at the run's smallest
+ * |t|, bounds the run (any node below the run's first is evaluated itself)
+ */
+function stepwise(f: (beta: number, t: number) => number, beta: number, t: Float64Array, whole: number): Float64Array {
+  const out = new Float64Array(t.length);
+  let from = Infinity;
+  let v = whole;
+  for (let k = 0; k < t.length; k++) {
+    const x = Math.abs(t[k]);
+    if (k % STEP === 0 || x < from) {
+      from = x;
+      v = Math.min(whole, f(beta, x));
+    }
+    out[k] = v;
+  }
+  return out;
+}
+const STEP = 32;
 
 /**
  * psi_c = P_N(phi) - atoms - p_1 phi (- p_2 phi^2 with the two-claim term out) for a compound whose support starts at
@@ -119,6 +141,8 @@ function severityPsi(sev: SeverityKernel, count: NonNullable<SeverityKernel["cou
       sev.dampedLogCf(beta, t, a, b);
       count.cgf(a, b, re, im);
     }
+    // the severity's bound at each frequency where it has one (a plan's probe keeps the constant)
+    const dAt = sev.cfErrorAt && !planning ? stepwise(sev.cfErrorAt, beta, t, d) : null;
     for (let k = 0; k < t.length; k++) {
       // the count's cumulant function at phi (re, im are overwritten with psi below)
       const cr = re[k];
@@ -153,8 +177,7 @@ function severityPsi(sev: SeverityKernel, count: NonNullable<SeverityKernel["cou
       // m is |P_N(phi)| within its exp's rounding; exp of the cumulant function rounds within a few eps of |cr| + |ci|
       let base = 0;
       let slope = Infinity;
-      // the severity's bound at this frequency where it has one (a plan's probe keeps the constant)
-      const dk = sev.cfErrorAt && !planning ? Math.min(d, sev.cfErrorAt(beta, t[k])) : d;
+      const dk = dAt ? Math.min(d, dAt[k]) : d;
       const z = ph + dk;
       if (noise) {
         const expRound = EPS * (4 + 2 * Math.abs(cr) + 2 * Math.abs(ci));
