@@ -49,7 +49,8 @@ export function burrErrorAt(
   const vMin = vLo;
   const vTop = (42 + lag) / ag + h;
   const cells = Math.ceil((vTop - vMin) / h) + 1;
-  if (!(cells <= MAX_QUADRATURE_NODES)) return null;
+  // (extreme shapes: a range past the node limit, or none a rule could use)
+  if (!(cells >= 2 && cells <= MAX_QUADRATURE_NODES)) return null;
   // units per term, relative (in u), against e^{-D/2}: K0 + K1 |v|
   const sumUnits = 2 * Math.SQRT2 + 8 * MAX_QUADRATURE_NODES * U + Math.E * (SUM_MOMENT_UNITS + (80 * Number.EPSILON + 2e-25) / U);
   const K0 = (alpha + 1) * 8 + Math.abs(lag) + 8 + (8 * (1 + cotH)) / Math.E + sumUnits;
