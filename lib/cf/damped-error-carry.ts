@@ -55,3 +55,29 @@ export function carryMixErrors(node: Node, ws: number[], cs: Node[]): void {
     at: (beta, t) => Math.min(whole, ws.reduce((s, w, j) => s + w * (value(abs[j], beta, t) + value(rel[j], beta, t)), 0) * (1 + 2 * (cs.length + 1) * Number.EPSILON)),
   };
 }
+
+/**
+ * aX, a > 0 (scaleDamped: the part's values at the rounded (a beta, a t)): the part's bounds at the same doubles (the
+ * arguments' own rounding is not the CF's error here, as for the constant scaleNode keeps)
+ */
+export function carryScaleErrors(node: Node, a: number, c: Node): void {
+  const cf = node.dampedLogCf;
+  if (!cf || !(a > 0)) return;
+  const abs = absAt(c);
+  const rel = relAt(c);
+  if (typeof abs === "function") node.dampedErrorAt = { cf, at: (beta, t) => abs(a * beta, a * Math.abs(t)) };
+  if (typeof rel === "function") node.dampedRelErrorAt = { cf, at: (beta, t) => rel(a * beta, a * Math.abs(t)) };
+}
+
+/**
+ * X + b (shiftDamped: the values times e^{(i t - beta) b}): relative errors unchanged; absolute ones times e^{-beta b},
+ * carried for b >= 0 only (there at most the constant shiftNode keeps)
+ */
+export function carryShiftErrors(node: Node, b: number, c: Node): void {
+  const cf = node.dampedLogCf;
+  if (!cf) return;
+  const abs = absAt(c);
+  const rel = relAt(c);
+  if (typeof abs === "function" && b >= 0) node.dampedErrorAt = { cf, at: (beta, t) => abs(beta, t) * Math.exp(-beta * b) * (1 + 4 * Number.EPSILON) };
+  if (typeof rel === "function") node.dampedRelErrorAt = { cf, at: rel };
+}

@@ -12,7 +12,7 @@ import { withCumulantErrors } from "./cumulant-bounds";
 import { repeatE, scaleE, shiftE, sumE } from "./cumulant-ops";
 import { powerIndicesOf, heaviestTerm } from "./operators-tail";
 import { addArgErrAt, addArgSlopes, scaleArgErrAt, scaleArgSlope } from "./arg-rounding";
-import { carrySumErrors } from "./damped-error-carry";
+import { carryScaleErrors, carryShiftErrors, carrySumErrors } from "./damped-error-carry";
 
 export { compoundNode, pgfAt } from "./compound";
 export { atomsNode, latticeNode, sampleNode } from "./tabulated";
@@ -125,6 +125,7 @@ export function scaleNode(a: number, c: Node): Node {
     argErrAt: scaleArgErrAt(a, c),
   };
   withCumulantErrors(node, scaleE(a, c));
+  carryScaleErrors(node, a, c);
   carryScaleKernels(node, a, c);
   node.dampedMajorant = scaleDampedMajorant(node, a, c);
   if (c.table && c.kind.type === "lattice") {
@@ -182,6 +183,7 @@ export function shiftNode(b: number, c: Node): Node {
     argErrAt: c.argErrAt,
   };
   withCumulantErrors(node, shiftE(b, c));
+  carryShiftErrors(node, b, c);
   carryShiftKernels(node, b, c);
   node.dampedMajorant = shiftDampedMajorant(node, c);
   if (c.table && c.kind.type === "lattice") {

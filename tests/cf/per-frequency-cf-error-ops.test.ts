@@ -1,6 +1,7 @@
-// Per-frequency CF error bounds carried through sums, mixtures and compounds (lib/cf/damped-error-carry.ts,
-// lib/cf/compound.ts dampedRelErrorAt): the damped transforms of lognormal(0, 1) + weibull(1.5, 1), of their 0.3 / 0.7
-// mixture, and of Poisson(2)-lognormal(0, 1) + weibull(1.5, 1), at the frequencies where the mpmath audit fixture has
+// Per-frequency CF error bounds carried through sums, mixtures, scalings, shifts and compounds
+// (lib/cf/damped-error-carry.ts, lib/cf/compound.ts dampedRelErrorAt): the damped transforms of lognormal(0, 1) +
+// weibull(1.5, 1), of that sum times 2 and moved by 1.5, of their 0.3 / 0.7 mixture, and of Poisson(2)-lognormal(0, 1) +
+// weibull(1.5, 1), at the frequencies where the mpmath audit fixture has
 // both severities (t from 1e-3 to 1e5, beta 0 and 1; tests/fixtures/severity-cf/generate-audit.py, 30 digits, two
 // turned rays per value). References: the product, the weighted sum, and exp(lambda (phi - 1)) times phi (the Poisson
 // pgf, common practice) of the fixture's values, formed in double: the few roundings of that (at most 16 eps of the
@@ -11,7 +12,7 @@ import { readFileSync } from "node:fs";
 import { compile } from "@/lib/cf";
 import { lognormal } from "@/lib/cf/families/lognormal";
 import { weibull } from "@/lib/cf/families/numeric";
-import { sumNode, mixNode } from "@/lib/cf/operators";
+import { sumNode, mixNode, scaleNode, shiftNode } from "@/lib/cf/operators";
 import { cfRelError } from "@/lib/cf/invert/part";
 
 interface Case { family: string; params: Record<string, number>; t: number; a: number; re: string; im: string }
@@ -62,6 +63,28 @@ describe("per-frequency CF errors through sums, mixtures and compounds (mpmath a
         expect(d, `${label} at ${t} + ${a} i: ${v[0]} + ${v[1]} i, reference ${want[0]} + ${want[1]} i, difference ${d}, bound ${allow}`).toBeLessThanOrEqual(allow);
       }
       expect(e.at(0, 1e3), label).toBeLessThan(node.cfAbsError! / 10);
+    }
+  });
+
+  it("the sum times 2 (at half the fixture's frequencies and damping) and moved by 1.5 (the reference times e^{(i t - beta) 1.5})", () => {
+    const sum = sumNode([lognormal(0, 1), weibull(1.5, 1)]);
+    const scaled = scaleNode(2, sum);
+    const moved = shiftNode(1.5, sum);
+    for (const [node, label] of [[scaled, "x 2"], [moved, "+ 1.5"]] as const) {
+      const e = node.dampedErrorAt!;
+      expect(e.cf, label).toBe(node.dampedLogCf);
+      for (const [t, a] of common) {
+        const prod = mul(cx(ln.get(`${t} ${a}`)!), cx(wb.get(`${t} ${a}`)!));
+        const [tt, aa, want] = label === "x 2" ? [t / 2, a / 2, prod] : [t, a, mul(prod, cexp([-a * 1.5, t * 1.5]))];
+        const { v, lr, li } = valueAt(node.dampedLogCf!, aa, tt);
+        const d = Math.hypot(v[0] - want[0], v[1] - want[1]);
+        const mod = Math.hypot(v[0], v[1]);
+        const b = e.at(aa, tt);
+        expect(b, `${label} bound at ${tt}`).toBeLessThanOrEqual(node.cfAbsError!);
+        // the reference's own phase t 1.5 in double: within 4 |t 1.5| eps of its modulus
+        const allow = b + mod * cfRelError(16, lr, li, tt, 0) + (16 + 4 * Math.abs(tt * 1.5)) * Number.EPSILON * Math.hypot(...want);
+        expect(d, `${label} at ${tt} + ${aa} i: ${v[0]} + ${v[1]} i, reference ${want[0]} + ${want[1]} i, difference ${d}, bound ${allow}`).toBeLessThanOrEqual(allow);
+      }
     }
   });
 
