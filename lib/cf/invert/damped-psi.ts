@@ -249,6 +249,11 @@ export function probe(model: CompiledModel, atoms: Atom[], beta: number, pairOut
   return hit;
 }
 
+/** whether probe() has this damping's envelope already (the plan then chooses it at no transform cost, see PROBE_COST) */
+export function probed(model: CompiledModel, atoms: Atom[], beta: number, pairOut: boolean, derived = true): boolean {
+  return PROBES.get(model)?.has(probeKey(beta, pairOut, atoms, derived)) ?? false;
+}
+
 /** what an answer says where its damped route's truncation bound rests on sampled sizes of the transform */
 export const DAMPED_SAMPLED_NOTE =
   "frequency truncation bounded from the transform's size sampled at 8 frequencies per octave (no derived bound on this transform, or one that would need more terms than the route allows): an estimate between the samples";
