@@ -39,6 +39,12 @@ export interface DerivedBounds {
   slope: Float64Array;
   /** int past the last probe of the size bound over t (cdf) and of itself (density), where not the compound remainder's */
   tail?: { cdf: number; pdf: number };
+  /**
+   * psi_c = F + G split as in jumpTail: fast[i] >= |F| past probe i, F's density-type tail past the last probe (fastTail,
+   * before the division by pi), and G's total variation tv. G's inversion cut at any frequency is within tv at every point
+   * (jumpTail), so the density's tail past probe i is also (1/pi) int_{t_i} F + tv: G's 1 / t size is not integrated
+   */
+  split?: { fast: Float64Array; fastTail: number; tv: number };
 }
 
 /**
@@ -80,6 +86,23 @@ export function derivedEnvelope(e: Envelope, mag: Float64Array, nz: Float64Array
     sc += env[i] * Math.log(t[i + 1] / t[i]);
     tailPdf[i] = (sp * g) / Math.PI;
     tailCdf[i] = (sc * g) / Math.PI;
+  }
+  if (b.split && b.split.tv < Infinity && b.split.fastTail < Infinity) {
+    // the split's density tail: F's running maximum from the right integrated (an upper sum, as above) plus tv for G
+    // (NB(3, 0.2)-exponential(1): the kernel weights' rounding, 16 (J + 1) u r / t, integrated over the probes to t_n
+    // ~ 2^54 / scale gave 3e-13 at every cut-off; its variation is 6.4e-14)
+    const { fast, fastTail, tv } = b.split;
+    let run = 0;
+    let sf = fastTail;
+    for (let i = n - 1; i >= 0; i--) {
+      if (i < n - 1) {
+        if (!(fast[i] <= Infinity)) break;
+        if (fast[i] > run) run = fast[i];
+        sf += run * (t[i + 1] - t[i]);
+      }
+      const v = ((sf * g) / Math.PI + tv) * (1 + 4 * EPS);
+      if (v < tailPdf[i]) tailPdf[i] = v;
+    }
   }
   return { ...e, env, tailPdf, tailCdf, derived: true };
 }

@@ -299,7 +299,10 @@ function probeAt(model: CompiledModel, atoms: Atom[], beta: number, pairOut: boo
     const R = size[n - 1] * 1.001;
     const far = q > 0 && Math.max(model.scale, 1e-300) * tn > 1e10;
     const tail = far ? { cdf: R / q, pdf: q > 1 ? (R * tn) / (q - 1) : jumpTail(model.dampedRemainderJump, beta, tn) } : { cdf: Infinity, pdf: Infinity };
-    return envelopeFrom(tp, pr, pi, nz, null, { size, slope: new Float64Array(n).fill(Infinity), tail });
+    // the remainder's split (F falling fast, G of bounded variation): the density's tails from F and G's variation
+    const j = model.dampedRemainderJump;
+    const split = far && j && j.decay > 1 ? { fast: Float64Array.from(tp, (t) => j.fast(beta, t) * 1.001), fastTail: (j.fast(beta, tn) * 1.001 * tn) / (j.decay - 1), tv: j.tv(beta) } : undefined;
+    return envelopeFrom(tp, pr, pi, nz, null, { size, slope: new Float64Array(n).fill(Infinity), tail, ...(split ? { split } : {}) });
   }
   // a sum of compounds and gamma terms: psi_c is the transform past lo less the atom there and the kernels, bounded through
   // the operators (../damped-majorant.ts) plus each kernel's own size w e^{-beta (at - lo)} (rate / |rate + beta - i t|)^shape
