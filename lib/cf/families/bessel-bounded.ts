@@ -102,9 +102,14 @@ function logcosh(v: number): number {
 const A_CANDIDATES = [0.3, 0.6, 0.9, 1.2, 1.4, 1.52];
 const TARGET = 2 ** -58;
 
-function trapezoid(nu: number, x: number): Bounded {
+/**
+ * The trapezoidal step for K_nu(x) = int_0^inf exp(-x cosh u) cosh(nu u) du (nu >= 0) from the strip bound
+ * 2 K(x cos a)/K(x) / (e^{2 pi a/h} - 1) <= TARGET (the module note), with the widest strip of A_CANDIDATES that pays off;
+ * disc is that bound at the step taken, relative to K_nu(x). The log-ratio (1 - cos a) x - max(nu, 1/2) log cos a grows
+ * with x, so the step and disc of x hold for every x' <= x as well (the Student t's batch, ./continuous.ts).
+ */
+export function besselTrapezoidStep(nu: number, x: number): { h: number; disc: number } {
   const nm = Math.max(nu, 0.5);
-  // step from the strip bound: 2 K(x cos a)/K(x) / (e^{2 pi a/h} - 1) <= TARGET, with the widest strip that pays off
   let h = 0;
   let logRatio = 0;
   let aBest = 0;
@@ -118,7 +123,11 @@ function trapezoid(nu: number, x: number): Bounded {
       aBest = a;
     }
   }
-  const disc = (2 * Math.exp(logRatio)) / Math.expm1((2 * Math.PI * aBest) / h);
+  return { h, disc: (2 * Math.exp(logRatio)) / Math.expm1((2 * Math.PI * aBest) / h) };
+}
+
+function trapezoid(nu: number, x: number): Bounded {
+  const { h, disc } = besselTrapezoidStep(nu, x);
   // peak of g(u) = -x (cosh u - 1) + log cosh(nu u): 0 when nu^2 <= x (g' <= (nu^2 - x) u), else by bisection
   let peak = 0;
   if (nu * nu > x) {

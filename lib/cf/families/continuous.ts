@@ -2,6 +2,7 @@ import { bernoulliNumbers, factorial, lgamma, logBesselKScaled } from "./special
 import { cumulantList, NONE_MOMENT, rawToCumulants, type Node } from "../node";
 import { gammaDamped } from "../damped-cf";
 import { arithmeticNodes, expSumArithmetic } from "./cf-quadrature";
+import { besselTrapezoidStep } from "./bessel-bounded";
 
 const B = bernoulliNumbers(40);
 const CONT = { type: "continuous" } as const;
@@ -336,16 +337,17 @@ const BATCH_Z = 64;
 /**
  * log of c0 z^nu K_nu(z) at z_k = sq t_k for equispaced t_k > 0 (the Student t CF), from
  * e^z K_nu(z) = int_0^inf e^{-z (cosh u - 1)} cosh(nu u) du (A&S 9.6.24) by the trapezoidal rule on the even
- * integrand with one step for every z of the batch: h = min(0.1, 0.25 / sqrt(max(z_max, nu, 1))), no larger than the
- * step logBesselKScaled takes for any single z (width / 4 of the peak, at most 0.1); the nodes reach U where the
- * integrand at the smallest z is below 1e-18 of the u = 0 term and falls by e^{-1} per step or faster. The terms are positive (no cancellation), summed by
+ * integrand with one step for every z of the batch: the step of z_max from the strip bound (besselTrapezoidStep,
+ * Trefethen & Weideman 2014, SIAM Review 56, Thm 5.1), whose discretisation error is at most 2^-58 of K_nu(z) for every
+ * z <= z_max (the bound grows with z); the nodes reach U where the integrand at the smallest z is below 1e-18 of the
+ * u = 0 term and falls by e^{-1} per step or faster. The terms are positive (no cancellation), summed by
  * expSumArithmetic in the Laplace form exp(-z (cosh u_j - 1)).
  */
 function besselBatch(nu: number, t: Float64Array, sq: number, c0: number, re: Float64Array): void {
   const K = t.length;
   const zMin = sq * t[0];
   const zMax = sq * t[K - 1];
-  const h = Math.min(0.1, 0.25 / Math.sqrt(Math.max(zMax, nu, 1)));
+  const { h } = besselTrapezoidStep(nu, zMax);
   let n = 1;
   for (; n < 1e6; n++) {
     const u = n * h;
