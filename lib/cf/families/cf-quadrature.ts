@@ -166,7 +166,7 @@ export function expSumArithmetic(
   // (shiftedMoments); the recurrence takes the rest
   let J1 = J0;
   if (wIm === 0 && K >= 2 * SHIFT_BLOCK) while (J1 < n && SHIFT_BLOCK * d * e[J1] * wAbs <= 1) J1++;
-  if (J1 > J0) absSum += shiftedMoments(cRe, cIm, e, J0, J1, wRe, tk, outRe, outIm, kr, ki);
+  if (J1 > J0) absSum += shiftedMoments(cRe, cIm, e, J0, J1, wRe, tk, outRe, outIm, kr, ki, real);
   const cut = new Float64Array(n);
   const live = new Uint8Array(n);
   absSum += liveNodes(cRe, cIm, e, J1, wRe, tk[0], cut, live);

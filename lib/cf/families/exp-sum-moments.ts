@@ -35,7 +35,32 @@ export function realMoments(c: Float64Array, e: Float64Array, J0: number, w: num
     f *= m;
     mr[m] /= f;
   }
-  for (let k = 0; k < tk.length; k++) {
+  // four frequencies' Horner chains side by side (each the same operations in the same order: the same values to the bit),
+  // so that one chain's latency hides behind the others'
+  const K = tk.length;
+  let k = 0;
+  for (; k + 4 <= K; k += 4) {
+    const z0 = tk[k] * w;
+    const z1 = tk[k + 1] * w;
+    const z2 = tk[k + 2] * w;
+    const z3 = tk[k + 3] * w;
+    let a0 = mr[M];
+    let a1 = a0;
+    let a2 = a0;
+    let a3 = a0;
+    for (let m = M - 1; m >= 0; m--) {
+      const c = mr[m];
+      a0 = a0 * z0 + c;
+      a1 = a1 * z1 + c;
+      a2 = a2 * z2 + c;
+      a3 = a3 * z3 + c;
+    }
+    outRe[k] = a0;
+    outRe[k + 1] = a1;
+    outRe[k + 2] = a2;
+    outRe[k + 3] = a3;
+  }
+  for (; k < K; k++) {
     const z = tk[k] * w;
     let a = mr[M];
     for (let m = M - 1; m >= 0; m--) a = a * z + mr[m];
@@ -67,7 +92,9 @@ export function shiftedMoments(
   outIm: Float64Array,
   kr: Float64Array,
   ki: Float64Array,
+  real = false,
 ): number {
+  if (real) return shiftedMomentsReal(cRe, e, J0, J1, w, tk, outRe, kr);
   const M = MOMENT_ORDER;
   const K = tk.length;
   const mr = new Float64Array(M + 1);
@@ -132,6 +159,81 @@ export function shiftedMoments(
   return absSum;
 }
 
+/** out[k] += a compensated by q[k] (Kahan) */
+function kahanAdd(out: Float64Array, q: Float64Array, k: number, a: number): void {
+  const y = a - q[k];
+  const s = out[k] + y;
+  q[k] = s - out[k] - y;
+  out[k] = s;
+}
+
+/**
+ * shiftedMoments for real weights (and the real w it takes): the real parts' operations alone, in the same order, so the
+ * same sums to the bit (the complex route's imaginary parts are then exact zeros) at half the work; outIm untouched.
+ */
+function shiftedMomentsReal(c: Float64Array, e: Float64Array, J0: number, J1: number, w: number, tk: Float64Array, outRe: Float64Array, kr: Float64Array): number {
+  const M = MOMENT_ORDER;
+  const K = tk.length;
+  const mr = new Float64Array(M + 1);
+  const qr = new Float64Array(M + 1);
+  const inv = new Float64Array(M + 1);
+  let f = 1;
+  for (let m = 0; m <= M; m++) {
+    if (m > 0) f *= m;
+    inv[m] = f;
+  }
+  let absSum = 0;
+  for (let j = J0; j < J1; j++) absSum += Math.abs(c[j]);
+  for (let k0 = 0; k0 < K; k0 += SHIFT_BLOCK) {
+    if ((k0 & 8191) === 0) checkDeadline("cf-quadrature");
+    const k1 = Math.min(K, k0 + SHIFT_BLOCK);
+    const ta = tk[k0];
+    mr.fill(0);
+    qr.fill(0);
+    for (let j = J0; j < J1; j++) {
+      const ar = c[j] * Math.exp(ta * (e[j] * w));
+      let p = 1;
+      for (let m = 0; m <= M; m++) {
+        const yr = ar * p - qr[m];
+        const tr = mr[m] + yr;
+        qr[m] = tr - mr[m] - yr;
+        mr[m] = tr;
+        p *= e[j];
+      }
+    }
+    for (let m = 1; m <= M; m++) mr[m] /= inv[m];
+    // four Horner chains side by side, as in realMoments
+    let k = k0;
+    for (; k + 4 <= k1; k += 4) {
+      const z0 = (tk[k] - ta) * w;
+      const z1 = (tk[k + 1] - ta) * w;
+      const z2 = (tk[k + 2] - ta) * w;
+      const z3 = (tk[k + 3] - ta) * w;
+      let a0 = mr[M];
+      let a1 = a0;
+      let a2 = a0;
+      let a3 = a0;
+      for (let m = M - 1; m >= 0; m--) {
+        const c = mr[m];
+        a0 = a0 * z0 + c;
+        a1 = a1 * z1 + c;
+        a2 = a2 * z2 + c;
+        a3 = a3 * z3 + c;
+      }
+      kahanAdd(outRe, kr, k, a0);
+      kahanAdd(outRe, kr, k + 1, a1);
+      kahanAdd(outRe, kr, k + 2, a2);
+      kahanAdd(outRe, kr, k + 3, a3);
+    }
+    for (; k < k1; k++) {
+      const z = (tk[k] - ta) * w;
+      let ar = mr[M];
+      for (let m = M - 1; m >= 0; m--) ar = ar * z + mr[m];
+      kahanAdd(outRe, kr, k, ar);
+    }
+  }
+  return absSum;
+}
 
 /**
  * expSumArithmetic's moment route for complex weights or a complex w (the nodes j < J0, t e_j |w| <= 1 for every t): writes
