@@ -144,3 +144,22 @@ export function compoundArgErrAt(meanN: number | null, X: Node): ((t: number) =>
   const f = argErrorOf(X);
   return (t) => meanN * f(t) * (1 + 2 * Number.EPSILON);
 }
+
+/**
+ * Node.argErrDampedAt of sums (weights 1) and n-fold sums (one child, weight n), where a child derives it: each child's
+ * min(argSlope (t + beta), argErrDampedAt(beta, t)) added (the other factors' damped transforms, taken from the lower end,
+ * have modulus at most 1, as for argSlope)
+ */
+export function addArgErrDampedAt(cs: readonly Node[], ws?: readonly number[]): ((beta: number, t: number) => number) | undefined {
+  if (!cs.some((c) => c.argErrDampedAt)) return undefined;
+  const w = cs.map((_, j) => (ws ? Math.abs(ws[j]) : 1));
+  return (beta, t) => {
+    let e = 0;
+    for (let j = 0; j < cs.length; j++) {
+      const s = (cs[j].argSlope ?? 0) * (t + beta);
+      const f = cs[j].argErrDampedAt;
+      e += w[j] * (f ? Math.min(s, f(beta, t)) : s);
+    }
+    return e * (1 + (cs.length + 4) * Number.EPSILON);
+  };
+}

@@ -276,6 +276,7 @@ export function toCompiled(node: Node): CompiledModel {
     cfRelError: node.cfRelError ?? 0,
     cfArgSlope: node.argSlope ?? 0,
     ...(node.argErrAt ? { cfArgErrAt: node.argErrAt } : {}),
+    ...(node.argErrDampedAt ? { cfArgErrDampedAt: node.argErrDampedAt } : {}),
     ...(node.direct ? { direct: node.direct } : {}),
     ...(node.tailTerm && continuous ? { tailTerm: node.tailTerm } : {}),
     ...(node.powerIndices && node.powerIndices.length > 1 ? { powerIndices: node.powerIndices } : {}),

@@ -77,8 +77,7 @@ export function compoundNode(N: Node, X: Node, discretise: DiscretiseOptions | n
     // |P_N(z + d) - P_N(z)| <= E[N] |d| for |z| <= 1 (|P_N'| <= E N on the unit disc); relative |dP / P| <= slope |d|
     // when the count's log-derivative is bounded (Poisson, negative binomial)
     ...compoundErrors(N, X, layered?.unlisted ?? 0),
-    argSlope: compoundArgSlope(N.cumulants(1)[0], X),
-    argErrAt: compoundArgErrAt(N.cumulants(1)[0], X),
+    ...severityRounding(N.cumulants(1)[0], X, compoundArgSlope(N.cumulants(1)[0], X), compoundArgErrAt(N.cumulants(1)[0], X)),
     cumulants(n) {
       const kx = X.cumulants(n);
       const kn = N.cumulants(n);
@@ -352,6 +351,26 @@ function dampedRelErrorAt(N: Node, X: Node): ((beta: number, t: number) => numbe
   const nRel = N.cfRelError ?? 0;
   const whole = compoundErrors(N, X, 0).cfRelError;
   return (beta, t) => Math.min(whole, s * (e.at(beta, t) + xRel) + nRel);
+}
+
+/**
+ * The severity's own rounding, which scales with its |L_X| (the compound's allowance is relative to 1 + |L| of the
+ * compound's log only): |P_N'| <= E N on the unit disc, so phi moves by at most E N R |s| (Node.logRoundSlope R), carried as
+ * an argument slope (the CF values' absolute error per unit |t|) on top of the scaled children's; not derived (NaN) where the
+ * severity declares no R
+ */
+function severityRounding(meanN: number | null, X: Node, slope: number, errAt: ((t: number) => number) | undefined) {
+  const R = X.logRoundSlope;
+  const add = R === undefined ? NaN : meanN !== null && Number.isFinite(meanN) ? meanN * R * (1 + 2 * Number.EPSILON) : Infinity;
+  if (!(add > 0)) return { argSlope: slope, argErrAt: errAt };
+  const at = X.logRoundAt;
+  const child = errAt ?? ((t: number) => slope * t);
+  // per frequency where the severity derives it (E N times its R(t)), else the slope
+  const own = at && meanN !== null ? (t: number) => meanN * at(t) * (1 + 2 * Number.EPSILON) : (t: number) => add * t;
+  const dAt = X.logRoundDampedAt;
+  // damped: the children's slope (t + beta) plus E N R~(beta, t) where the severity derives it
+  const damped = dAt && meanN !== null ? { argErrDampedAt: (beta: number, t: number) => (slope * (t + beta) + meanN * dAt(beta, t)) * (1 + 4 * Number.EPSILON) } : {};
+  return { argSlope: (slope + add) * (1 + Number.EPSILON), argErrAt: (t: number) => (Math.min(child(t), slope * t) + own(t)) * (1 + 2 * Number.EPSILON), ...damped };
 }
 
 /** the atoms of a compound of per-claim layered claims (atom a0 at 0, a1 at the limit v), or null */

@@ -84,6 +84,15 @@ export interface Node {
   /** the same error at frequency t >= 0 where a finer bound is derived (a scaled child's slope majorant): the error is at
    *  most min(argSlope t, argErrAt(t)) (undamped CF only) */
   argErrAt?: (t: number) => number;
+  /** severities: a bound R with |phi(s)| times the rounding of the computed log phi(s) <= R |s| (damped: R (|t| + beta)), where
+   *  derived; a compound carries E N R as an argument slope (its own allowance is relative to its log only) */
+  logRoundSlope?: number;
+  /** the same at frequency t >= 0 (undamped), falling with t where |phi| does: at most logRoundSlope t */
+  logRoundAt?: (t: number) => number;
+  /** the same for the damped transform at damping beta, frequency t >= 0: at most logRoundSlope (t + beta) */
+  logRoundDampedAt?: (beta: number, t: number) => number;
+  /** compounds: argErrAt's damped counterpart (the error is at most min(argSlope (t + beta), argErrDampedAt(beta, t))) */
+  argErrDampedAt?: (beta: number, t: number) => number;
   /**
    * severities (and sums and mixtures holding them or compounds of them, ./damped-error-carry.ts): a bound at frequency t,
    * damping beta, on the damped transform's absolute error (at most cfAbsError, non-increasing in |t|), valid only with

@@ -11,7 +11,7 @@ import { collectNotes, carryApproximation, combineScales, addCumulants, complete
 import { withCumulantErrors } from "./cumulant-bounds";
 import { repeatE, scaleE, shiftE, sumE } from "./cumulant-ops";
 import { powerIndicesOf, heaviestTerm } from "./operators-tail";
-import { addArgErrAt, addArgSlopes, scaleArgErrAt, scaleArgSlope } from "./arg-rounding";
+import { addArgErrAt, addArgErrDampedAt, addArgSlopes, scaleArgErrAt, scaleArgSlope } from "./arg-rounding";
 import { carryScaleErrors, carryShiftErrors, carrySumErrors } from "./damped-error-carry";
 
 export { compoundNode, pgfAt } from "./compound";
@@ -56,6 +56,7 @@ export function sumNode(cs: Node[]): Node {
     cfRelError: cs.reduce((e, c) => e + (c.cfRelError ?? 0), 0),
     argSlope: addArgSlopes(cs),
     argErrAt: addArgErrAt(cs),
+    argErrDampedAt: addArgErrDampedAt(cs),
   };
   withCumulantErrors(node, sumE(cs));
   carrySumErrors(node, cs);
@@ -242,6 +243,7 @@ export function repeatNode(n: number, c: Node): Node {
     cfRelError: n * (c.cfRelError ?? 0),
     argSlope: n * (c.argSlope ?? 0),
     argErrAt: addArgErrAt([c], [n]),
+    argErrDampedAt: addArgErrDampedAt([c], [n]),
   };
   withCumulantErrors(node, repeatE(n, c));
   if (c.table && c.kind.type === "lattice") {

@@ -66,6 +66,8 @@ export interface CompiledModel {
   readonly cfArgSlope?: number;
   /** a finer bound on that error at t >= 0 (undamped CF), where derived: the error is at most min(cfArgSlope t, cfArgErrAt(t)) */
   readonly cfArgErrAt?: (t: number) => number;
+  /** the same for the damped transform at damping beta (compounds whose severity bounds its own rounding per frequency) */
+  readonly cfArgErrDampedAt?: (beta: number, t: number) => number;
   /** a bound at frequency t, damping beta, on dampedLogCf's relative error, at most cfRelError (compounds whose severity bounds its own per frequency) */
   dampedRelErrorAt?(beta: number, t: number): number;
   /** the same for dampedLogCf's absolute error, at most cfAbsError (sums and mixtures holding severities that bound theirs per frequency) */

@@ -9,6 +9,7 @@ import ref from "../fixtures/arg-rounding/arg-rounding.json";
 // mpmath's closed forms at the exact a t and at the IEEE product fl(a t) (tests/fixtures/arg-rounding/generate.py, two
 // methods, their difference in crossCheck). Model: a times compound Poisson(1) of gamma(1e8, 1), whose CF turns fast in
 // s (E X = 1e8) while its log stays small: the rounding of a t shows far above the units of rounding allowed for log phi.
+const compoundOnly = { compound: { count: { family: "poisson", lambda: ref.model.lambda }, each: { family: "gamma", shape: ref.model.shape, rate: ref.model.rate } } } as unknown as Model;
 const model = (a: number) =>
   ({ scale: a, of: { compound: { count: { family: "poisson", lambda: ref.model.lambda }, each: { family: "gamma", shape: ref.model.shape, rate: ref.model.rate } } } }) as unknown as Model;
 
@@ -22,8 +23,8 @@ describe("argument rounding of scaled laws", () => {
       const m = compile(model(r.a));
       const slope = m.cfArgSlope ?? 0;
       const bound = slope * r.t;
-      // a power of two scales exactly: nothing to bound (and the reference shows nothing)
-      if (r.a === 0.25) expect(slope, `a ${r.a}`).toBe(0);
+      // a power of two scales exactly: nothing added to the child's own slope (its severity's rounding, see below)
+      if (r.a === 0.25) expect(slope, `a ${r.a}`).toBe(0.25 * (compile(compoundOnly).cfArgSlope ?? NaN));
       expect(r.argEffect, `a ${r.a} t ${r.t}: argument effect ${r.argEffect}, bound ${bound}`).toBeLessThanOrEqual(bound);
     }
   });
@@ -73,5 +74,37 @@ describe("exact inversion steps", () => {
       }
     }
     expect(inexactBefore).toBeGreaterThan(0);
+  });
+});
+
+// The severity's own rounding: gamma(1e8, 1)'s log is i 1e8 atan(s) in phase, computed within a few ulps of |L_X| ~ 1e8 s,
+// so the compound's value moves by up to E N ulps u |phi_X| |L_X|, far above the compound's own allowance relative to its
+// small log. Reference: the fixture's rows at a = 0.25, where 0.25 t is exact and mpmath's value at it is the unscaled
+// compound's CF at sRounded (tests/fixtures/arg-rounding/generate.py, two methods).
+describe("a compound carries its severity's rounding", () => {
+  const m = compile(compoundOnly);
+  const rows = ref.rows.filter((x) => x.a === 0.25);
+  const errorAt = (s: number, exact: number[]) => {
+    const re = new Float64Array(1);
+    const im = new Float64Array(1);
+    m.logCf(Float64Array.of(s), re, im);
+    const own = Math.exp(re[0]) * cfRelError(cfUlps(m), re[0], im[0], s, 0) + declaredCfError(m);
+    return { err: Math.hypot(Math.exp(re[0]) * Math.cos(im[0]) - exact[0], Math.exp(re[0]) * Math.sin(im[0]) - exact[1]), own };
+  };
+
+  it("the compound's relative allowance alone is below the actual error somewhere (so the term is needed)", () => {
+    expect(rows.some((r) => errorAt(r.sRounded, r.exact).err > 4 * errorAt(r.sRounded, r.exact).own)).toBe(true);
+  });
+
+  it("the allowance plus the declared slope E N R s is never below the actual error, and within 100x of it where it is largest", () => {
+    const S = m.cfArgSlope ?? 0;
+    let tightest = Infinity;
+    for (const r of rows) {
+      const { err, own } = errorAt(r.sRounded, r.exact);
+      const bound = own + S * r.sRounded;
+      expect(err, `s ${r.sRounded}: error ${err}, bound ${bound}`).toBeLessThanOrEqual(bound);
+      if (err > 4 * own) tightest = Math.min(tightest, bound / err);
+    }
+    expect(tightest).toBeLessThan(100);
   });
 });

@@ -92,7 +92,43 @@ export function gammaLaw(shape: number, rate: number): Node {
     support: [0, Infinity],
     dampedLogCf: gammaDamped(shape, rate),
     laplaceExpansion: gammaExpansion(shape, rate),
+    logRoundSlope: gammaLogRoundSlope(shape, rate),
+    logRoundAt: gammaLogRoundAt(shape, rate),
+    logRoundDampedAt: gammaLogRoundDampedAt(shape, rate),
   });
+}
+
+/**
+ * Node.logRoundSlope of gamma(k, r): its log is computed within 8 ulps relative to |L| (the tree's allowance per node,
+ * ../invert/part.ts cfUlps), and |phi| |L| <= c E X |s|: |Im L| = k |atan(s / r)| <= k |s| / r with |phi| <= 1, and
+ * |phi| |Re L| = v e^-v (v = k log1p(y^2) / 2, y = s / r) <= min(1/e, k y^2 / 2) <= k |y| / sqrt(2 e k); damped at
+ * z = (beta - i t) / r: |log(1 + z)| <= |Re log| + |arg| <= 2 |z| (Re z >= 0) with |phi~| <= 1. So c = max(2, 1 + 1/sqrt(2 e k)).
+ */
+function gammaLogRoundSlope(shape: number, rate: number): number {
+  const c = Math.max(2, 1 + 1 / Math.sqrt(2 * Math.E * shape));
+  return 8 * Number.EPSILON * c * (shape / rate) * (1 + 8 * Number.EPSILON);
+}
+
+/** the same at t: 8 ulps of |phi| |L| <= (1 + y^2)^(-k/2) k (atan |y| + log1p(y^2) / 2), y = t / r, with its own roundings */
+function gammaLogRoundAt(shape: number, rate: number): (t: number) => number {
+  const slope = gammaLogRoundSlope(shape, rate);
+  return (t) => {
+    const y = Math.abs(t) / rate;
+    const l = Math.log1p(y * y);
+    const v = Math.exp(-0.5 * shape * l) * shape * (Math.atan(y) + 0.5 * l);
+    return Math.min(slope * Math.abs(t), 8 * Number.EPSILON * v * (1 + 64 * Number.EPSILON));
+  };
+}
+
+/** damped at z = (beta - i t) / r: |phi~| = |1 + z|^-k, |L~| <= k (log |1 + z| + atan(t / (r + beta))) */
+function gammaLogRoundDampedAt(shape: number, rate: number): (beta: number, t: number) => number {
+  const slope = gammaLogRoundSlope(shape, rate);
+  return (beta, t) => {
+    const a = Math.abs(t);
+    const lm = 0.5 * Math.log(((rate + beta) * (rate + beta) + a * a) / (rate * rate));
+    const v = Math.exp(-shape * lm) * shape * (lm + Math.atan(a / (rate + beta)));
+    return Math.min(slope * (a + beta), 8 * Number.EPSILON * v * (1 + 64 * Number.EPSILON));
+  };
 }
 
 /**

@@ -108,13 +108,16 @@ export function addGridNoise(
   const S0 = model.cfArgSlope ?? 0;
   const S = Number.isFinite(S0) ? S0 * (1 + 2 * EPS) : 0;
   const slope = rounded ? dampedSlopeAt(model, atoms, model.dampedKernels ?? [], pairOut, beta) : null;
+  // the model's finer bound per frequency where derived (a compound's severity rounding)
+  const errD = S > 0 ? model.cfArgErrDampedAt : undefined;
   if (!slope && S === 0) return;
   const et = env?.t;
   let i = 0;
   for (let k = 0; k < t.length; k++) {
     const L = slope ? slope(t[k]) : 0;
     // neither bound derived (L not finite): left out (the module's note)
-    let move = (Number.isFinite(L) ? U * L * t[k] * (1 + 4 * EPS) : 0) + S * (t[k] + beta);
+    const sk = errD ? Math.min(S * (t[k] + beta), errD(beta, t[k]) * (1 + 2 * EPS)) : S * (t[k] + beta);
+    let move = (Number.isFinite(L) ? U * L * t[k] * (1 + 4 * EPS) : 0) + sk;
     if (et && move > 0) {
       const lo = t[k] * (1 - 2 * U);
       while (i + 1 < et.length && et[i + 1] <= lo) i++;
