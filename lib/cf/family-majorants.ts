@@ -40,8 +40,22 @@ export function lomaxMajorant(alpha: number, theta: number): LogMajorant {
 export function triangularMajorant(a: number, c: number, b: number): LogMajorant {
   const w = b - a;
   const m = 1 + 16 * EPS;
-  const second = c > a && c < b ? [0, 0, (4 / ((c - a) * (b - c))) * m] : [0, (2 / w) * m, (4 / (w * w)) * m];
-  return powerMajorant([[1], [0, (4 / w) * m], second]);
+  const inner = c > a && c < b;
+  const second = inner ? [0, 0, (4 / ((c - a) * (b - c))) * m] : [0, (2 / w) * m, (4 / (w * w)) * m];
+  return powerMajorant([[1], [0, (4 / w) * m], second], triangularSlope(a, c, b));
+}
+
+/**
+ * The slope about the midpoint p: |phi'| = |int g e^{itx}|, g = (x - p) f, |x - p| <= w / 2. E|X - p| <= w / 2;
+ * by parts once TV(g) <= int f + (w / 2) TV(f) = 3; twice, g' = f + (x - p) f' with f' piecewise constant: g'' = 2 f' inside
+ * the pieces (int |g''| = 2 TV(f inside) <= 8 / w), the jumps of g' at most those of f (2 / w, mode at an end) plus w / 2
+ * times those of f' (4 / ((c - a)(b - c)) inside, 4 / w^2 with the mode at an end), and g's own jump (1, mode at an end).
+ */
+function triangularSlope(a: number, c: number, b: number): { center: number; bounds: number[][] } {
+  const w = b - a;
+  const m = 1 + 32 * EPS;
+  const second = c > a && c < b ? [0, 0, ((2 * w) / ((c - a) * (b - c)) + 8 / w) * m] : [0, m, (12 / w) * m];
+  return { center: 0.5 * (a + b), bounds: [[0.5 * w * m], [0, 3 * m], second] };
 }
 
 /**
