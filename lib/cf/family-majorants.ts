@@ -272,7 +272,12 @@ function unimodalMajorant(family: string, p: Record<string, number>): LogMajoran
       const y = al + be > 2 ? (al - 1) / (al + be - 2) : 0.5;
       const lb = lgamma(al) + lgamma(be) - lgamma(al + be);
       const lf = (al > 1 ? (al - 1) * Math.log(y) : 0) + (be > 1 ? (be - 1) * Math.log(1 - y) : 0) - lb - Math.log(b - a);
-      return powerMajorant([[1], [0, 2 * Math.exp(lf) * (1 + 1e-11)]]);
+      const fmax = Math.exp(lf) * (1 + 1e-11);
+      // the slope about the midpoint p: |int (x - p) f e^{itx}| <= |x - p| <= w / 2, and by parts TV((x - p) f) <= int f +
+      // (w / 2) TV(f) <= 1 + w fmax (f unimodal, its jumps from 0 at the ends included)
+      const w = b - a;
+      const slope = { center: 0.5 * (a + b), bounds: [[0.5 * w * (1 + 4 * EPS)], [0, (1 + w * fmax) * (1 + 8 * EPS)]] };
+      return powerMajorant([[1], [0, 2 * fmax]], slope);
     }
     case "inverse_gaussian": {
       const { mu, lambda } = p;

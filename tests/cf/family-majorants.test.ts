@@ -179,3 +179,48 @@ describe("triangular slope majorant (reference: the defining integral by composi
     });
   }
 });
+
+// Beta and pert with shapes >= 1: the slope about the midpoint against int (x - p) f(x) e^{is(x - p)} dx by composite Simpson
+// (common practice), densities with closed-form normalisers: beta(2, 3) 12 y (1 - y)^2, beta(1, 2.5) 2.5 (1 - y)^1.5, pert
+// (0, 1, 4; lambda 4) = beta(2, 4) on [0, 4], 20 y (1 - y)^3 / 4 (JKB vol. 2 ch. 25; pert's shapes 1 + lambda (m - a) / (b - a)
+// and 1 + lambda (b - m) / (b - a), common practice).
+describe("beta and pert slope majorants (reference: the defining integral by composite Simpson)", () => {
+  const cases: [Model, number, number, (y: number) => number][] = [
+    [{ family: "beta", alpha: 2, beta: 3 } as unknown as Model, 0, 1, (y) => 12 * y * (1 - y) ** 2],
+    [{ family: "beta", alpha: 1, beta: 2.5, a: -1, b: 2 } as unknown as Model, -1, 2, (y) => 2.5 * (1 - y) ** 1.5],
+    [{ family: "pert", a: 0, m: 1, b: 4 } as unknown as Model, 0, 4, (y) => 20 * y * (1 - y) ** 3],
+  ];
+  for (const [model, a, b, fy] of cases) {
+    it(JSON.stringify(model), () => {
+      const w = b - a;
+      const p = 0.5 * (a + b);
+      const deriv = (s: number) => {
+        let re = 0;
+        let im = 0;
+        const n = 200000;
+        const h = w / n;
+        for (let k = 0; k <= n; k++) {
+          const x = k === n ? b : a + k * h;
+          const v = ((k === 0 || k === n ? 1 : k % 2 ? 4 : 2) * (x - p) * (fy((x - a) / w) / w) * h) / 3;
+          re += v * Math.cos(s * (x - p));
+          im += v * Math.sin(s * (x - p));
+        }
+        return Math.hypot(re, im);
+      };
+      const sl = compile(model).logAbsMajorant!.slope!;
+      const ch = new Checker();
+      ch.that("slope about the midpoint", sl.center === p, String(sl.center));
+      const ts: number[] = [];
+      for (let t = 0.05; t <= 300; t *= Math.SQRT2) ts.push(t);
+      const t = Float64Array.from(ts);
+      const S = new Float64Array(t.length);
+      sl.at(t, S);
+      let sup = 0;
+      for (let i = t.length - 1; i >= 0; i--) {
+        sup = Math.max(sup, deriv(t[i]));
+        ch.that(`S(${t[i]})`, S[i] >= sup * (1 + 1e-9), `S ${S[i]} below sup |phi'| ${sup}`);
+      }
+      ch.done();
+    });
+  }
+});
