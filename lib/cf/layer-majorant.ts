@@ -149,5 +149,9 @@ export function truncatedNormalMajorant(mu: number, sigma: number, lower?: numbe
   const m = 1 + 64 * EPS;
   const f = (z: number) => (phi(z) / (sigma * Z)) * m;
   const zm = Math.min(Math.max(0, al), be);
-  return powerMajorant([[1], [0, 2 * f(zm)], [0, f(al) + f(be), (6 * phi(1) * m) / (sigma * sigma * Z)]]);
+  // the slope about mu: g = (x - mu) f = z phi(z) / Z; E|X - mu| <= sigma sqrt(2 / pi) / Z (and <= the farther end's
+  // distance), and g extended by 0 past the ends has at most two extrema, each |z phi(z)| <= phi(1), so TV(g) <= 4 phi(1) / Z
+  const reach = Math.max(Math.abs(a - mu), Math.abs(b - mu)) * (1 + 2 * EPS);
+  const slope = { center: mu, bounds: [[Math.min(reach, (sigma * Math.sqrt(2 / Math.PI) * m) / Z)], [0, (4 * phi(1) * m) / Z]] };
+  return powerMajorant([[1], [0, 2 * f(zm)], [0, f(al) + f(be), (6 * phi(1) * m) / (sigma * sigma * Z)]], slope);
 }
