@@ -163,3 +163,17 @@ export function addArgErrDampedAt(cs: readonly Node[], ws?: readonly number[]): 
     return e * (1 + (cs.length + 4) * Number.EPSILON);
   };
 }
+
+/**
+ * Node.argErrDampedAt of aX (a > 0) where X derives one: X's own error at the arguments it is evaluated at (fl(a beta),
+ * fl(a t)), at most its slope there, plus scaleArgSlope's u a E|X| (t + beta) from the rounding of those arguments
+ */
+export function scaleArgErrDampedAt(a: number, c: Node): ((beta: number, t: number) => number) | undefined {
+  const f = c.argErrDampedAt;
+  if (!f || !(a > 0)) return undefined;
+  const own = c.argSlope ?? 0;
+  const exact = Math.log2(a) === Math.round(Math.log2(a));
+  const m = exact ? 0 : absFirstMoment(c);
+  if (m === undefined) return undefined;
+  return (beta, t) => (Math.min(own * a * (t + beta) * (1 + U), f(a * beta, a * t)) + U * a * m * (t + beta)) * (1 + 4 * U);
+}

@@ -11,7 +11,7 @@ import { collectNotes, carryApproximation, combineScales, addCumulants, complete
 import { withCumulantErrors } from "./cumulant-bounds";
 import { repeatE, scaleE, shiftE, sumE } from "./cumulant-ops";
 import { powerIndicesOf, heaviestTerm } from "./operators-tail";
-import { addArgErrAt, addArgErrDampedAt, addArgSlopes, scaleArgErrAt, scaleArgSlope } from "./arg-rounding";
+import { addArgErrAt, addArgErrDampedAt, addArgSlopes, scaleArgErrAt, scaleArgErrDampedAt, scaleArgSlope } from "./arg-rounding";
 import { carryScaleErrors, carryShiftErrors, carrySumErrors } from "./damped-error-carry";
 
 export { compoundNode, pgfAt } from "./compound";
@@ -124,6 +124,7 @@ export function scaleNode(a: number, c: Node): Node {
     cfRelError: c.cfRelError,
     argSlope: scaleArgSlope(a, c),
     argErrAt: scaleArgErrAt(a, c),
+    argErrDampedAt: scaleArgErrDampedAt(a, c),
   };
   withCumulantErrors(node, scaleE(a, c));
   carryScaleErrors(node, a, c);
