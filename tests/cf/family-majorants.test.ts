@@ -129,6 +129,48 @@ describe("majorants of sums, scales, shifts and mixtures (reference: cf-abs.json
   });
 });
 
+/** int_lo^hi (x - p) f(x) e^{is(x - p)} dx by composite Simpson on n panels (common practice), as [re, im] */
+function simpsonSlope(lo: number, hi: number, p: number, f: (x: number) => number, s: number, n = 200000): [number, number] {
+  let re = 0;
+  let im = 0;
+  const h = (hi - lo) / n;
+  for (let k = 0; k <= n; k++) {
+    const x = k === n ? hi : lo + k * h;
+    const v = ((k === 0 || k === n ? 1 : k % 2 ? 4 : 2) * (x - p) * f(x) * h) / 3;
+    re += v * Math.cos(s * (x - p));
+    im += v * Math.sin(s * (x - p));
+  }
+  return [re, im];
+}
+
+/** int_lo^hi f(x) dx by composite Simpson on n panels (common practice) */
+function simpson(lo: number, hi: number, f: (x: number) => number, n = 200000): number {
+  const h = (hi - lo) / n;
+  let sum = 0;
+  for (let k = 0; k <= n; k++) sum += ((k === 0 || k === n ? 1 : k % 2 ? 4 : 2) * f(k === n ? hi : lo + k * h) * h) / 3;
+  return sum;
+}
+
+/**
+ * A slope majorant S(t) against the reference |phi'| from `deriv` on t = 0.05 .. 300 (ratio sqrt 2): S(t) at least the
+ * supremum of the reference over s >= t there. Returns S and that supremum at the top frequency, and that frequency t.
+ */
+function checkSlope(ch: Checker, sl: { at(t: Float64Array, out: Float64Array): void }, deriv: (s: number) => number): { top: number; sup: number; t: number } {
+  const ts: number[] = [];
+  for (let t = 0.05; t <= 300; t *= Math.SQRT2) ts.push(t);
+  const t = Float64Array.from(ts);
+  const S = new Float64Array(t.length);
+  sl.at(t, S);
+  let sup = 0;
+  let top = -1;
+  for (let i = t.length - 1; i >= 0; i--) {
+    sup = Math.max(sup, deriv(t[i]));
+    if (top < 0) top = sup;
+    ch.that(`S(${t[i]})`, S[i] >= sup * (1 + 1e-9), `S ${S[i]} below sup |phi'| ${sup}`);
+  }
+  return { top: S[t.length - 1], sup: top, t: t[t.length - 1] };
+}
+
 // Triangular(a, c, b): the slope about the midpoint p, S(t) >= |d/dt (phi(t) e^{-itp})| = |int (x - p) f(x) e^{it(x - p)} dx|
 // for s >= t, against that integral by composite Simpson on each linear piece (common practice; 2e5 panels a piece, so the
 // rule's error (h s)^4 stays below 1e-12 relative for s <= 300). Fails without the slope (none derived before).
@@ -148,14 +190,9 @@ describe("triangular slope majorant (reference: the defining integral by composi
         let im = 0;
         for (const [lo, hi, fp] of pieces) {
           if (hi <= lo) continue;
-          const n = 200000;
-          const h = (hi - lo) / n;
-          for (let k = 0; k <= n; k++) {
-            const x = k === n ? hi : lo + k * h;
-            const v = ((k === 0 || k === n ? 1 : k % 2 ? 4 : 2) * (x - p) * fp(x) * h) / 3;
-            re += v * Math.cos(s * (x - p));
-            im += v * Math.sin(s * (x - p));
-          }
+          const [r, i] = simpsonSlope(lo, hi, p, fp, s);
+          re += r;
+          im += i;
         }
         return Math.hypot(re, im);
       };
@@ -163,18 +200,9 @@ describe("triangular slope majorant (reference: the defining integral by composi
       const sl = m.logAbsMajorant!.slope!;
       const ch = new Checker();
       ch.that("slope about the midpoint", sl.center === p, String(sl.center));
-      const ts: number[] = [];
-      for (let t = 0.05; t <= 300; t *= Math.SQRT2) ts.push(t);
-      const t = Float64Array.from(ts);
-      const S = new Float64Array(t.length);
-      sl.at(t, S);
-      let sup = 0;
-      for (let i = t.length - 1; i >= 0; i--) {
-        sup = Math.max(sup, deriv(t[i]));
-        ch.that(`S(${t[i]})`, S[i] >= sup * (1 + 1e-9), `S ${S[i]} below sup |phi'| ${sup}`);
-      }
+      const { top, sup, t } = checkSlope(ch, sl, deriv);
       // falls like t^-2 inside (t^-1 with the mode at an end): within 50x of the reference's supremum at the top
-      ch.that("tight at the top", S[t.length - 1] < 50 * sup + (c > a && c < b ? 0 : 1 / t[t.length - 1]), `S ${S[t.length - 1]} sup ${sup}`);
+      ch.that("tight at the top", top < 50 * sup + (c > a && c < b ? 0 : 1 / t), `S ${top} sup ${sup}`);
       ch.done();
     });
   }
@@ -194,32 +222,11 @@ describe("beta and pert slope majorants (reference: the defining integral by com
     it(JSON.stringify(model), () => {
       const w = b - a;
       const p = 0.5 * (a + b);
-      const deriv = (s: number) => {
-        let re = 0;
-        let im = 0;
-        const n = 200000;
-        const h = w / n;
-        for (let k = 0; k <= n; k++) {
-          const x = k === n ? b : a + k * h;
-          const v = ((k === 0 || k === n ? 1 : k % 2 ? 4 : 2) * (x - p) * (fy((x - a) / w) / w) * h) / 3;
-          re += v * Math.cos(s * (x - p));
-          im += v * Math.sin(s * (x - p));
-        }
-        return Math.hypot(re, im);
-      };
+      const deriv = (s: number) => Math.hypot(...simpsonSlope(a, b, p, (x) => fy((x - a) / w) / w, s));
       const sl = compile(model).logAbsMajorant!.slope!;
       const ch = new Checker();
       ch.that("slope about the midpoint", sl.center === p, String(sl.center));
-      const ts: number[] = [];
-      for (let t = 0.05; t <= 300; t *= Math.SQRT2) ts.push(t);
-      const t = Float64Array.from(ts);
-      const S = new Float64Array(t.length);
-      sl.at(t, S);
-      let sup = 0;
-      for (let i = t.length - 1; i >= 0; i--) {
-        sup = Math.max(sup, deriv(t[i]));
-        ch.that(`S(${t[i]})`, S[i] >= sup * (1 + 1e-9), `S ${S[i]} below sup |phi'| ${sup}`);
-      }
+      checkSlope(ch, sl, deriv);
       ch.done();
     });
   }
@@ -238,36 +245,13 @@ describe("truncated normal slope majorant (reference: the defining integral by c
     it(JSON.stringify(cs), () => {
       const a = cs.lower;
       const b = cs.upper ?? cs.mu + 12 * cs.sigma;
-      const n = 200000;
-      const h = (b - a) / n;
       const dens = (x: number) => Math.exp(-0.5 * ((x - cs.mu) / cs.sigma) ** 2) / (cs.sigma * Math.sqrt(2 * Math.PI));
-      const wt = (k: number) => ((k === 0 || k === n ? 1 : k % 2 ? 4 : 2) * h) / 3;
-      let Z = 0;
-      for (let k = 0; k <= n; k++) Z += wt(k) * dens(a + k * h);
-      const deriv = (s: number) => {
-        let re = 0;
-        let im = 0;
-        for (let k = 0; k <= n; k++) {
-          const x = a + k * h;
-          const v = (wt(k) * (x - cs.mu) * dens(x)) / Z;
-          re += v * Math.cos(s * (x - cs.mu));
-          im += v * Math.sin(s * (x - cs.mu));
-        }
-        return Math.hypot(re, im);
-      };
+      const Z = simpson(a, b, dens);
+      const deriv = (s: number) => Math.hypot(...simpsonSlope(a, b, cs.mu, (x) => dens(x) / Z, s));
       const sl = compile({ family: "truncated_normal", ...cs } as unknown as Model).logAbsMajorant!.slope!;
       const ch = new Checker();
       ch.that("slope about mu", sl.center === cs.mu, String(sl.center));
-      const ts: number[] = [];
-      for (let t = 0.05; t <= 300; t *= Math.SQRT2) ts.push(t);
-      const t = Float64Array.from(ts);
-      const S = new Float64Array(t.length);
-      sl.at(t, S);
-      let sup = 0;
-      for (let i = t.length - 1; i >= 0; i--) {
-        sup = Math.max(sup, deriv(t[i]));
-        ch.that(`S(${t[i]})`, S[i] >= sup * (1 + 1e-9), `S ${S[i]} below sup |phi'| ${sup}`);
-      }
+      checkSlope(ch, sl, deriv);
       ch.done();
     });
   }
