@@ -35,8 +35,7 @@ export function realMoments(c: Float64Array, e: Float64Array, J0: number, w: num
     f *= m;
     mr[m] /= f;
   }
-  // four frequencies' Horner chains side by side (each the same operations in the same order: the same values to the bit),
-  // so that one chain's latency hides behind the others'
+  // four frequencies at a time (horner4)
   const K = tk.length;
   let k = 0;
   for (; k + 4 <= K; k += 4) {
@@ -44,21 +43,11 @@ export function realMoments(c: Float64Array, e: Float64Array, J0: number, w: num
     const z1 = tk[k + 1] * w;
     const z2 = tk[k + 2] * w;
     const z3 = tk[k + 3] * w;
-    let a0 = mr[M];
-    let a1 = a0;
-    let a2 = a0;
-    let a3 = a0;
-    for (let m = M - 1; m >= 0; m--) {
-      const c = mr[m];
-      a0 = a0 * z0 + c;
-      a1 = a1 * z1 + c;
-      a2 = a2 * z2 + c;
-      a3 = a3 * z3 + c;
-    }
-    outRe[k] = a0;
-    outRe[k + 1] = a1;
-    outRe[k + 2] = a2;
-    outRe[k + 3] = a3;
+    horner4(mr, M, z0, z1, z2, z3, H4);
+    outRe[k] = H4[0];
+    outRe[k + 1] = H4[1];
+    outRe[k + 2] = H4[2];
+    outRe[k + 3] = H4[3];
   }
   for (; k < K; k++) {
     const z = tk[k] * w;
@@ -209,21 +198,11 @@ function shiftedMomentsReal(c: Float64Array, e: Float64Array, J0: number, J1: nu
       const z1 = (tk[k + 1] - ta) * w;
       const z2 = (tk[k + 2] - ta) * w;
       const z3 = (tk[k + 3] - ta) * w;
-      let a0 = mr[M];
-      let a1 = a0;
-      let a2 = a0;
-      let a3 = a0;
-      for (let m = M - 1; m >= 0; m--) {
-        const c = mr[m];
-        a0 = a0 * z0 + c;
-        a1 = a1 * z1 + c;
-        a2 = a2 * z2 + c;
-        a3 = a3 * z3 + c;
-      }
-      kahanAdd(outRe, kr, k, a0);
-      kahanAdd(outRe, kr, k + 1, a1);
-      kahanAdd(outRe, kr, k + 2, a2);
-      kahanAdd(outRe, kr, k + 3, a3);
+      horner4(mr, M, z0, z1, z2, z3, H4);
+      kahanAdd(outRe, kr, k, H4[0]);
+      kahanAdd(outRe, kr, k + 1, H4[1]);
+      kahanAdd(outRe, kr, k + 2, H4[2]);
+      kahanAdd(outRe, kr, k + 3, H4[3]);
     }
     for (; k < k1; k++) {
       const z = (tk[k] - ta) * w;
@@ -330,3 +309,23 @@ function hornerComplex(mr: Float64Array, mi: Float64Array, wRe: number, wIm: num
   }
 }
 
+/** the polynomial sum_m mr[m] z^m (m <= M) at four points by Horner's rule side by side (one chain's latency hides behind
+ * the others'; each the same operations in the same order as one chain: the same values to the bit), written to out */
+function horner4(mr: Float64Array, M: number, z0: number, z1: number, z2: number, z3: number, out: Float64Array): void {
+  let a0 = mr[M];
+  let a1 = a0;
+  let a2 = a0;
+  let a3 = a0;
+  for (let m = M - 1; m >= 0; m--) {
+    const c = mr[m];
+    a0 = a0 * z0 + c;
+    a1 = a1 * z1 + c;
+    a2 = a2 * z2 + c;
+    a3 = a3 * z3 + c;
+  }
+  out[0] = a0;
+  out[1] = a1;
+  out[2] = a2;
+  out[3] = a3;
+}
+const H4 = new Float64Array(4);
