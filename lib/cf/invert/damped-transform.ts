@@ -112,13 +112,9 @@ const LOW_SLACK = 100;
  * cost of the two-claim term at one point, in units of one frequency term (its panels against the transform's work): 60
  * scaled by its nodes a point since the wider ellipses (87 -> 67, ../lognormal-pair.ts MAX_IM). Poisson(0.1)-lognormal(0,
  * 1.5) at 1 000 points then takes it (2 924 terms and an FFT of 2^14 against 49 080 and 2^18): least CPU of 12 runs on the
- * loaded machine 14.8 / 18.3 ms against 19.7 / 20.0. Measured again end to end on 1000-point density grids (least CPU of 7-11
- * runs, each plan forced): a plain plan's term 0.22-0.27 us (Poisson(0.5)-lognormal(0.91, 1.452): 101 021 terms 22.5 ms,
- * 90 531 terms 23.4 ms; Poisson(0.1)-lognormal(0, 1.5): 60 577 terms 15.0 ms, 196 227 terms 42.7 ms), the two-claim term
- * 10-18 us a point it is evaluated at (the same laws: 12.7-19.3 ms and 8.8-12.5 ms with 2 400-8 292 terms at 675-1 000
- * points), 42-75 terms, median about 50; its own quadrature alone 5-9 us a point (lognormalPair.at, sigma 0.5-1.5)
+ * loaded machine 14.8 / 18.3 ms against 19.7 / 20.0
  */
-const PAIR_COST = 50;
+const PAIR_COST = 45;
 /**
  * cost of one probe of the transform (433 frequencies, the derived bounds and slopes) in units of one frequency term: a
  * damping already probed is preferred to one whose estimated terms are fewer by less. Measured on the seed 1 8-part compound
