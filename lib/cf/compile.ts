@@ -10,7 +10,7 @@ import { MAX_LATTICE } from "./limits";
 import { layerNode, type LayerTerms } from "./layer";
 import { claimMode, layerContinuousMajorant } from "./layer-majorant";
 import { compoundMajorant } from "./compound-majorant";
-import { lgamma } from "./families/special";
+import { studentTLogCfError } from "./families/student-t";
 import { MONOTONE_ABS_CF, mixMajorant, repeatMajorant, scaleMajorant, scaledMajorant, selfMajorant, shiftMajorant, shiftedMajorant, sumMajorant, uniformMajorant } from "./majorant";
 import { familyMajorant, monotoneExtras } from "./family-majorants";
 import type { DiscretiseOptions } from "./discretise";
@@ -192,22 +192,6 @@ const sumErr = (fs: (((t: number) => number) | undefined)[]) => {
   if (!gs.length) return undefined;
   return (t: number) => gs.reduce((acc, g) => acc + g(t), 0);
 };
-
-/**
- * Student t: the Bessel form c0 + nu log z + log(sum) - z (z = sqrt(nu) scale t) cancels terms of size |c0| + nu |log z|
- * near t = 0 (and the normal-mixture form beyond nu = 100 sums O(1) terms about the peak); its error is relative to
- * those terms, 16 units of rounding each (checked against mpmath in tests/cf/numeric-cf-grid.test.ts).
- */
-function studentTLogCfError(nu: number, scale: number): (t: number) => number {
-  const c0 = Math.abs((1 - nu / 2) * Math.LN2 - lgamma(nu / 2));
-  const sq = Math.sqrt(nu) * scale;
-  const U = Number.EPSILON;
-  if (nu > 100) return () => 16 * U * (2 + 12 * Math.sqrt(nu));
-  return (t) => {
-    const z = sq * Math.abs(t);
-    return 16 * U * (2 + c0 + (z > 0 ? nu * Math.abs(Math.log(z)) : 0));
-  };
-}
 
 /** latticeTable returns null rather than a table whose dropped mass exceeds this. */
 export const USEFUL_TAIL = 1e-11;

@@ -120,7 +120,16 @@ export function contourLogCfArithmetic(c: Contour, scale: number, t: Float64Arra
 /** e / 25!: Taylor remainder of exp(z) after the z^24 term for |z| <= 1. */
 const MOMENT_REMAINDER = Math.E / 1.5511210043330986e25;
 /** terms below this magnitude (and decreasing from there on) are left out */
-const DROP = 1e-21;
+export const EXP_SUM_DROP = 1e-21;
+const DROP = EXP_SUM_DROP;
+/**
+ * expSumArithmetic's bound per frequency for positive weights c_j and a real w < 0 (every term positive): each node's
+ * share of the returned bound, |c_j| (e/25! + 80 eps), is taken at its expansion point (0 for the moments, t e_j |w| <= 1;
+ * a block's first frequency for the shifted moments, within d e_j |w| SHIFT_BLOCK <= 1 of t_k) or is relative to the term
+ * itself (the recurrence's drift), so it is at most e (e/25! + 80 eps) times the node's term at t_k; summed over the
+ * nodes, |S_k - rule_k| <= EXP_SUM_REL rule_k + n EXP_SUM_DROP.
+ */
+export const EXP_SUM_REL = Math.E * (MOMENT_REMAINDER + 80 * Number.EPSILON);
 
 /**
  * Quadrature sums S_k = sum_j c_j exp(t_k e_j w) at equispaced frequencies t_k (step d, see arithmeticNodes), for the rules

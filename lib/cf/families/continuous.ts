@@ -1,14 +1,12 @@
-import { bernoulliNumbers, factorial, lgamma, logBesselKScaled } from "./special";
-import { cumulantList, NONE_MOMENT, rawToCumulants, type Node } from "../node";
+import { bernoulliNumbers, factorial } from "./special";
+import { NONE_MOMENT, type Node } from "../node";
 import { gammaDamped } from "../damped-cf";
-import { arithmeticNodes, expSumArithmetic } from "./cf-quadrature";
-import { besselTrapezoidStep } from "./bessel-bounded";
 
 const B = bernoulliNumbers(40);
 const CONT = { type: "continuous" } as const;
 const ALL = Infinity;
 
-function base(p: Partial<Node> & Pick<Node, "logCf" | "cumulants" | "location" | "scale" | "support">): Node {
+export function base(p: Partial<Node> & Pick<Node, "logCf" | "cumulants" | "location" | "scale" | "support">): Node {
   return { kind: CONT, momentIndex: ALL, tails: { left: ALL, right: ALL }, nodes: 1, notes: [], ...p };
 }
 
@@ -290,119 +288,4 @@ export function nig(alpha: number, beta: number, delta: number, mu: number): Nod
     scale: Math.sqrt((delta * alpha * alpha) / (g * g * g)),
     support: [-Infinity, Infinity],
   });
-}
-
-/**
- * Student t (nu, loc, scale): phi = e^{i loc t} K_{nu/2}(z) z^{nu/2} / (Gamma(nu/2) 2^{nu/2-1}), z = sqrt(nu) scale |t|
- * (JKB vol. 2, ch. 28, sec. 2; Hurst 1995, recalled from memory); K by logBesselKScaled (A&S 9.6.24).
- */
-export function studentT(nu: number, loc: number, scale: number): Node {
-  const half = nu / 2;
-  const c0 = (1 - half) * Math.LN2 - lgamma(half);
-  const sq = Math.sqrt(nu) * scale;
-  // E T^{2k} = nu^k prod_{j=1}^k (2j-1)/(nu-2j) for 2k < nu (JKB vol. 2, ch. 28)
-  const raw = (m: number): number => {
-    if (m % 2 === 1) return 0;
-    let v = 1;
-    for (let j = 1; j <= m / 2; j++) v *= (nu * (2 * j - 1)) / (nu - 2 * j);
-    return v;
-  };
-  // For large nu the Bessel form cancels terms of size nu log nu; use the normal variance mixture instead:
-  // phi = E exp(-z^2 / (2V)), V ~ chi^2_nu (JKB vol. 2, ch. 28), as a ratio of two trapezoidal sums in y = log V,
-  // each taken about its own peak so that only O(1) quantities are added.
-  const peakSum = (f: (u: number) => number, w: number) => {
-    const h = w / 4;
-    let s = 1;
-    for (let j = 1; j < 100000; j++) {
-      const v = Math.exp(f(j * h));
-      s += v;
-      if (v < 1e-18) break;
-    }
-    for (let j = -1; j > -100000; j--) {
-      const v = Math.exp(f(j * h));
-      s += v;
-      if (v < 1e-18) break;
-    }
-    return Math.log(s * h);
-  };
-  const log0 = nu > 100 ? peakSum((u) => half * (u - Math.expm1(u)), 1 / Math.sqrt(half)) : 0;
-  const mixtureLogCf = (z: number) => {
-    const z2 = z * z;
-    const d = (2 * z2) / (nu + Math.sqrt(nu * nu + 4 * z2)); // e^{y1} - nu
-    const e1 = nu + d;
-    const x = d / nu;
-    const l1pmx = Math.abs(x) < 0.1 ? -x * x * (0.5 - x * (1 / 3 - x * (0.25 - x * (0.2 - x * (1 / 6 - x / 7))))) : Math.log1p(x) - x;
-    const top = half * l1pmx - (0.5 * z2) / e1; // H(y1) - H0(y0)
-    const a = 0.5 * e1;
-    const b = (0.5 * z2) / e1;
-    const width = 1 / Math.sqrt(a + b);
-    const log1 = peakSum((u) => half * u - a * Math.expm1(u) - b * Math.expm1(-u), width);
-    return top + log1 - log0;
-  };
-  const one = (z: number) =>
-    z === 0 ? 0 : z === Infinity ? -Infinity : nu > 100 && z < 1e100 ? mixtureLogCf(z) : c0 + half * Math.log(z) + logBesselKScaled(half, z) - z;
-  return base({
-    logCf(t, re, im) {
-      let k0 = 0;
-      // equispaced t (the inversion's nodes) up to z = 64: one trapezoidal rule for every z (below)
-      if (nu <= 100 && arithmeticNodes(t)) {
-        while (k0 < t.length && sq * t[k0] <= BATCH_Z) k0++;
-        if (k0 >= 64) besselBatch(half, t.subarray(0, k0), sq, c0, re);
-        else k0 = 0;
-      }
-      for (let k = k0; k < t.length; k++) re[k] = one(sq * Math.abs(t[k]));
-      for (let k = 0; k < t.length; k++) im[k] = loc * t[k];
-    },
-    momentIndex: nu,
-    cumulants: (n) => {
-      const raws: (number | null)[] = cumulantList(n, nu, (m) => raw(m) * scale ** m);
-      const k = rawToCumulants(raws);
-      if (n > 0 && k[0] !== null) k[0] = loc;
-      return k;
-    },
-    location: loc,
-    scale: nu > 2 ? scale * Math.sqrt(nu / (nu - 2)) : scale,
-    support: [-Infinity, Infinity],
-    tails: { left: nu, right: nu },
-  });
-}
-
-/** the largest z = sqrt(nu) scale t that besselBatch takes (beyond, one rule per z) */
-const BATCH_Z = 64;
-
-/**
- * log of c0 z^nu K_nu(z) at z_k = sq t_k for equispaced t_k > 0 (the Student t CF), from
- * e^z K_nu(z) = int_0^inf e^{-z (cosh u - 1)} cosh(nu u) du (A&S 9.6.24) by the trapezoidal rule on the even
- * integrand with one step for every z of the batch: the step of z_max from the strip bound (besselTrapezoidStep,
- * Trefethen & Weideman 2014, SIAM Review 56, Thm 5.1), whose discretisation error is at most 2^-58 of K_nu(z) for every
- * z <= z_max (the bound grows with z); the nodes reach U where the integrand at the smallest z is below 1e-18 of the
- * u = 0 term and falls by e^{-1} per step or faster. The terms are positive (no cancellation), summed by
- * expSumArithmetic in the Laplace form exp(-z (cosh u_j - 1)).
- */
-function besselBatch(nu: number, t: Float64Array, sq: number, c0: number, re: Float64Array): void {
-  const K = t.length;
-  const zMin = sq * t[0];
-  const zMax = sq * t[K - 1];
-  const { h } = besselTrapezoidStep(nu, zMax);
-  let n = 1;
-  for (; n < 1e6; n++) {
-    const u = n * h;
-    if (-zMin * (Math.cosh(u) - 1) + nu * u < -41.5 && zMin * Math.sinh(u) >= nu + 1 / h) break;
-  }
-  const cRe = new Float64Array(n + 1);
-  const cIm = new Float64Array(n + 1);
-  const e = new Float64Array(n + 1);
-  for (let j = 0; j <= n; j++) {
-    const u = j * h;
-    cRe[j] = (j === 0 ? 0.5 : 1) * h * Math.cosh(nu * u);
-    // cosh u - 1 = 2 sinh^2(u/2), without cancellation near u = 0
-    e[j] = 2 * Math.sinh(u / 2) ** 2;
-  }
-  const sr = new Float64Array(K);
-  const si = new Float64Array(K);
-  expSumArithmetic(cRe, cIm, e, -sq, 0, t, sr, si);
-  for (let k = 0; k < K; k++) {
-    const z = sq * t[k];
-    re[k] = c0 + nu * Math.log(z) + Math.log(sr[k]) - z;
-  }
 }

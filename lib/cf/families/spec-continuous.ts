@@ -1,7 +1,8 @@
 /** Parameter table entries of the continuous families on the line and the half-line (normal to weibull). */
 import { stableDirect } from "../direct/stable";
 import * as D from "../direct/families";
-import { cauchy, gammaLaw, laplace, logistic, nig, normal, studentT, uniform, varianceGamma } from "./continuous";
+import { cauchy, gammaLaw, laplace, logistic, nig, normal, uniform, varianceGamma } from "./continuous";
+import { studentT } from "./student-t";
 import { stable } from "./stable";
 import { lognormal, pareto, weibull } from "./numeric";
 import { gammaDist, lognormalDist, normalDist, paretoDist, uniformDist, weibullDist } from "./dist";
