@@ -2,14 +2,15 @@
  * Student t (nu, loc, scale): phi = e^{i loc t} K_{nu/2}(z) z^{nu/2} / (Gamma(nu/2) 2^{nu/2-1}), z = sqrt(nu) scale |t|
  * (JKB vol. 2, ch. 28, sec. 2; Hurst 1995, recalled from memory), and the derived bound on its log-CF's error
  * (studentTLogCfError). K by logBesselKScaledBounded (./bessel-bounded.ts) at single points and by one trapezoidal rule
- * for a batch of equispaced frequencies (besselBatch). Every nu takes the Bessel form: its error is relative to the
- * terms |c0| + (nu/2) |log z| it adds, and derived below for large nu as for small.
+ * for a batch of equispaced frequencies (besselBatch), up to nu = 100; beyond, where the Bessel form cancels terms of
+ * size nu log nu, the normal-mixture form with its own derived bound (./student-mixture.ts).
  */
 import { lgamma, lgammaErr } from "./special";
 import { cumulantList, rawToCumulants, type Node } from "../node";
 import { EXP_SUM_DROP, EXP_SUM_REL, arithmeticNodes, expSumArithmetic } from "./cf-quadrature";
 import { besselKLogSlope, besselTrapezoidStep, logBesselKScaledBounded } from "./bessel-bounded";
 import { base } from "./continuous";
+import { studentMixtureLog0, studentMixtureLogCf } from "./student-mixture";
 
 const U = Number.EPSILON / 2;
 
@@ -36,7 +37,10 @@ export function studentT(nu: number, loc: number, scale: number): Node {
     for (let j = 1; j <= m / 2; j++) v *= (nu * (2 * j - 1)) / (nu - 2 * j);
     return v;
   };
-  const one = (z: number) => (z === 0 ? 0 : z === Infinity ? -Infinity : c0 + half * Math.log(z) + logBesselKScaledBounded(half, z).v - z);
+  // for large nu the Bessel form cancels terms of size nu log nu: the normal-mixture form (./student-mixture.ts) instead
+  const log0 = nu > 100 ? studentMixtureLog0(half) : { v: 0, e: 0 };
+  const one = (z: number) =>
+    z === 0 ? 0 : z === Infinity ? -Infinity : nu > 100 && z < 1e100 ? studentMixtureLogCf(half, z, log0).v : c0 + half * Math.log(z) + logBesselKScaledBounded(half, z).v - z;
   return base({
     logCf(t, re, im) {
       let k0 = 0;
@@ -121,7 +125,8 @@ function besselBatch(nu: number, t: Float64Array, sq: number, c0: number, re: Fl
  * E[z (cosh u - 1)] <= max(nu', 1/2) (besselKLogSlope), z E[u sinh u] = 1 + nu' E[u tanh(nu' u)] (by parts) and
  * E[u] <= acosh(1 + max(nu', 1/2)/z) (Jensen, acosh(1 + x) concave); the rule's means are the integral's within its
  * discretisation (2^-58 relative, inside the 1% margin). Then log(sr) adds one ulp of |log sr|.
- * The batch takes nu <= 100 only; the bound is the larger of the two routes wherever the batch may apply.
+ * The batch takes nu <= 100 only; the bound is the larger of the two routes wherever the batch may apply. nu > 100
+ * (z < 1e100): the z term above plus studentMixtureLogCf's bound.
  */
 export function studentTLogCfError(nu: number, scale: number): (t: number) => number {
   const half = nu / 2;
@@ -129,14 +134,16 @@ export function studentTLogCfError(nu: number, scale: number): (t: number) => nu
   const c0Err = lgammaErr(half) + 2 * U * Math.abs((1 - half) * Math.LN2) + U * Math.abs(c0) + U * Math.abs(1 - half);
   const sq = Math.sqrt(nu) * scale;
   const nm = Math.max(half, 0.5);
+  const log0 = nu > 100 ? studentMixtureLog0(half) : null;
   return (t) => {
     const z = sq * Math.abs(t);
     if (z === 0) return 0;
     if (!Number.isFinite(z)) return Infinity;
+    const zMove = 3.03 * U * (z + Math.max(0, 0.5 - half)) * 1.01;
+    if (log0 && z < 1e100) return 1.01 * (zMove + studentMixtureLogCf(half, z, log0).e);
     const b = logBesselKScaledBounded(half, z);
     const lz = Math.log(z);
     const a = c0 + half * lz;
-    const zMove = 3.03 * U * (z + Math.max(0, 0.5 - half)) * 1.01;
     const common = zMove + c0Err + 3 * U * half * Math.abs(lz) + U * (Math.abs(a) + Math.abs(a + b.v) + Math.abs(a + b.v - z));
     let route = b.e;
     if (nu <= 100 && z <= BATCH_Z) {
