@@ -42,7 +42,7 @@ function peakBounded(half: number, a: number, b: number): Bounded & { m: number 
       const p2 = a * em;
       const p3 = b * ep;
       const f = p1 - p2 - p3;
-      const slope = Math.abs(half - a * Math.exp(u) + b * Math.exp(-u));
+      const slope = Math.abs(half - a * (em + 1) + b * (ep + 1));
       const df = U * (Math.abs(p1) + 3 * Math.abs(p2) + 3 * Math.abs(p3) + Math.abs(p1 - p2) + Math.abs(f)) + U * Math.abs(u) * slope;
       const v = Math.exp(f);
       s += v;

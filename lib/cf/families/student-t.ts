@@ -138,7 +138,9 @@ export function studentTLogCfError(nu: number, scale: number): (t: number) => nu
   return (t) => {
     const z = sq * Math.abs(t);
     if (z === 0) return 0;
-    if (!Number.isFinite(z)) return Infinity;
+    // phi(+-inf) = 0 exactly (the value -Infinity)
+    if (z === Infinity) return 0;
+    if (Number.isNaN(z)) return NaN;
     const zMove = 3.03 * U * (z + Math.max(0, 0.5 - half)) * 1.01;
     if (log0 && z < 1e100) return 1.01 * (zMove + studentMixtureLogCf(half, z, log0).e);
     const b = logBesselKScaledBounded(half, z);
