@@ -39,8 +39,15 @@ export function studentT(nu: number, loc: number, scale: number): Node {
   };
   // for large nu the Bessel form cancels terms of size nu log nu: the normal-mixture form (./student-mixture.ts) instead
   const log0 = nu > 100 ? studentMixtureLog0(half) : { v: 0, e: 0 };
+  const direct = nu <= 100 && half >= 0.5;
   const one = (z: number) =>
-    z === 0 ? 0 : z === Infinity ? -Infinity : nu > 100 && z < 1e100 ? studentMixtureLogCf(half, z, log0).v : c0 + half * Math.log(z) + logBesselKScaledBounded(half, z).v - z;
+    z === 0
+      ? 0
+      : z === Infinity
+        ? -Infinity
+        : nu > 100 && z < 1e100
+          ? studentMixtureLogCf(half, z, log0).v
+          : c0 + half * Math.log(z) + (direct && z <= BATCH_Z ? besselPoint(half, z) : logBesselKScaledBounded(half, z).v) - z;
   return base({
     logCf(t, re, im) {
       let k0 = 0;
@@ -111,6 +118,38 @@ function besselBatch(nu: number, t: Float64Array, sq: number, c0: number, re: Fl
 }
 
 /**
+ * log(e^z K_nu(z)) for 0 < z <= BATCH_Z, nu >= 1/2 (the single-point route up to nu = 100): the batch's rule for one z
+ * (A&S 9.6.24, step besselTrapezoidStep(nu, z): discretisation <= 2^-58), each term scaled by e^{-G}, G = max_u
+ * [nu u - z (cosh u - 1)] = nu asinh(nu/z) - (hypot(z, nu) - z) >= the log-integrand's peak (log cosh v <= v) and
+ * within log 2 of it, so that no term overflows; summed compensated (Kahan). It stops past the peak
+ * (z sinh u >= nu + 1/h: the log-term falls by 1 or more a step from there on) once a term is below 2^-60 of the sum,
+ * so the rest is below 0.582 2^-60 of it. Its bound is derived in studentTLogCfError (no per-z work).
+ */
+function besselPoint(nu: number, z: number): number {
+  const { h } = besselTrapezoidStep(nu, z);
+  const G = nu * Math.asinh(nu / z) - (Math.hypot(z, nu) - z);
+  let s = 0;
+  let c = 0;
+  for (let j = 0; j < 100000; j++) {
+    const u = j * h;
+    const sh = Math.sinh(0.5 * u);
+    const g = logcosh(nu * u) - 2 * z * sh * sh;
+    const v = h * Math.exp(g - G) * (j === 0 ? 0.5 : 1);
+    const y = v - c;
+    const tt = s + y;
+    c = tt - s - y;
+    s = tt;
+    if (v <= 2 ** -60 * s && z * Math.sinh(u) >= nu + 1 / h) return G + Math.log(s);
+  }
+  return NaN;
+}
+
+/** log cosh v for v >= 0 (no overflow) */
+function logcosh(v: number): number {
+  return v + Math.log1p(Math.exp(-2 * v)) - Math.LN2;
+}
+
+/**
  * A bound on the absolute error of the Student t's log-CF real part (studentT above) at t, for either route.
  * Common terms: z = (sqrt(nu) scale) |t| is rounded three times (3u relative), which moves the exact log-CF
  * F(z) = c0 + nu' log z + log K_nu'(z) (nu' = nu/2) by at most 3u z |F'|, F' = -K_{nu'-1}/K_nu' (DLMF 10.29.4) and
@@ -135,6 +174,8 @@ export function studentTLogCfError(nu: number, scale: number): (t: number) => nu
   const sq = Math.sqrt(nu) * scale;
   const nm = Math.max(half, 0.5);
   const log0 = nu > 100 ? studentMixtureLog0(half) : null;
+  const direct = nu <= 100 && half >= 0.5;
+  const lgH = lgamma(half) + lgammaErr(half);
   return (t) => {
     const z = sq * Math.abs(t);
     if (z === 0) return 0;
@@ -143,9 +184,26 @@ export function studentTLogCfError(nu: number, scale: number): (t: number) => nu
     if (Number.isNaN(z)) return NaN;
     const zMove = 3.03 * U * (z + Math.max(0, 0.5 - half)) * 1.01;
     if (log0 && z < 1e100) return 1.01 * (zMove + studentMixtureLogCf(half, z, log0).e);
-    const b = logBesselKScaledBounded(half, z);
     const lz = Math.log(z);
     const a = c0 + half * lz;
+    if (direct && z <= BATCH_Z) {
+      // L = log(e^z K) in [log sqrt(pi/(2z)), z + log(Gamma(nu') 2^{nu'-1}) - nu' log z] (K_nu' >= K_{1/2} for
+      // nu' >= 1/2; z^nu' K_nu'(z) decreasing to Gamma(nu') 2^{nu'-1}, DLMF 10.30.2)
+      const lUp = z + lgH + (half - 1) * Math.LN2 - half * lz;
+      const lLo = 0.5 * Math.log(Math.PI / (2 * z));
+      const L = 1.01 * Math.max(Math.abs(lUp), Math.abs(lLo)) + 1e-12;
+      const A = Math.acosh(1 + nm / z);
+      const G = Math.max(0, half * Math.asinh(half / z) - (Math.hypot(z, half) - z)) * 1.01 + 1e-12;
+      const common = zMove + c0Err + 3 * U * half * Math.abs(lz) + U * (Math.abs(a) + (Math.abs(a) + L) + (Math.abs(a) + L + z));
+      // the batch: its nodes' mean rounding; the point: u_j, nu' u_j, log cosh (4u (nu' u + 1)), 6u z (cosh u - 1),
+      // g and g - G, exp, h: U (9 nu' E[u] + 8 nm + G + 8) with E|g| <= nu' E[u] + nm, E|g - G| <= G + E|g|
+      const relB = BATCH_DISC + BATCH_TAIL + BATCH_REL + 2 * U + U * (5 + 6 * nm + 3 * half * A) * 1.01;
+      const relP = BATCH_DISC + 0.6 * 2 ** -60 + 2 * U + 1e-25 + U * (9 * half * A + 8 * nm + G + 8) * 1.01;
+      const eB = (1.01 * relB) / (1 - relB) + 2.02 * U * L;
+      const eP = (1.01 * relP) / (1 - relP) + 2.02 * U * (L + G) + U * L;
+      return 1.01 * (common + Math.max(eB, eP));
+    }
+    const b = logBesselKScaledBounded(half, z);
     const common = zMove + c0Err + 3 * U * half * Math.abs(lz) + U * (Math.abs(a) + Math.abs(a + b.v) + Math.abs(a + b.v - z));
     let route = b.e;
     if (nu <= 100 && z <= BATCH_Z) {
