@@ -1,14 +1,14 @@
 /**
  * Student t (nu, loc, scale): phi = e^{i loc t} K_{nu/2}(z) z^{nu/2} / (Gamma(nu/2) 2^{nu/2-1}), z = sqrt(nu) scale |t|
  * (JKB vol. 2, ch. 28, sec. 2; Hurst 1995, recalled from memory), and the derived bound on its log-CF's error
- * (studentTLogCfError). K by logBesselKScaledBounded (./bessel-bounded.ts) at single points and by one trapezoidal rule
- * for a batch of equispaced frequencies (besselBatch), up to nu = 100; beyond, where the Bessel form cancels terms of
+ * (studentTLogCfError). Up to nu = 100, K by one trapezoidal rule for a batch of equispaced frequencies (besselBatch),
+ * the same rule per point (besselPoint, z <= 64, nu >= 1) or logBesselKScaledBounded (./bessel-bounded.ts); beyond, where the Bessel form cancels terms of
  * size nu log nu, the normal-mixture form with its own derived bound (./student-mixture.ts).
  */
 import { lgamma, lgammaErr } from "./special";
 import { cumulantList, rawToCumulants, type Node } from "../node";
 import { EXP_SUM_DROP, EXP_SUM_REL, arithmeticNodes, expSumArithmetic } from "./cf-quadrature";
-import { besselKLogSlope, besselTrapezoidStep, logBesselKScaledBounded } from "./bessel-bounded";
+import { besselTrapezoidStep, logBesselKScaledBounded } from "./bessel-bounded";
 import { base } from "./continuous";
 import { studentMixtureLog0, studentMixtureLogCf } from "./student-mixture";
 
@@ -155,7 +155,9 @@ function logcosh(v: number): number {
  * F(z) = c0 + nu' log z + log K_nu'(z) (nu' = nu/2) by at most 3u z |F'|, F' = -K_{nu'-1}/K_nu' (DLMF 10.29.4) and
  * K_{nu'-1}/K_nu' <= 1 + max(0, 1/2 - nu')/z (besselKLogSlope, DLMF 10.29.2); c0 by lgammaErr plus its two roundings
  * and LN2's; nu' log z by the logarithm (one ulp) and the product; the three additions u of each partial sum.
- * Single point: logBesselKScaledBounded's own bound. Batch (z <= BATCH_Z): the sum's relative error is the
+ * Single point: logBesselKScaledBounded's own bound, or for besselPoint (nu' >= 1/2, z <= BATCH_Z) the batch's terms
+ * below without the shortcuts, with its stop (0.6 2^-60) and the scaling by G (the node note beside the code), |log(e^z K)|
+ * bracketed in closed form. Batch (z <= BATCH_Z): the sum's relative error is the
  * discretisation 2^-58 (besselTrapezoidStep), the truncation (BATCH_TAIL), the shortcuts (<= BATCH_REL, enforced by
  * besselBatch), the compensated summation of positive terms (2u), and the nodes' roundings: term j moves by at most
  * u (3 + 2 nu' u_j + u_j z sinh u_j + 6 z e_j) relative (cosh 2u and h u; u_j = jh and nu' u_j through the log-term's
