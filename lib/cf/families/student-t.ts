@@ -18,9 +18,10 @@ const U = Number.EPSILON / 2;
 const BATCH_Z = 64;
 /**
  * besselBatch keeps a frequency only where expSumArithmetic's bound there (per frequency for its positive terms,
- * EXP_SUM_REL of the sum plus n EXP_SUM_DROP) is at most this much of the sum (the others go to the single-point route).
+ * EXP_SUM_REL of the sum plus n EXP_SUM_DROP) is at most this much of the sum (the others go to the single-point route):
+ * the dropped terms at most 2^-54 of it.
  */
-const BATCH_REL = 2 ** -44;
+const BATCH_REL = EXP_SUM_REL + 2 ** -54;
 /** the batch's discretisation, relative to K (besselTrapezoidStep's TARGET, with 1% for the rounding of h) */
 const BATCH_DISC = 1.01 * 2 ** -58;
 /** the batch's truncation, relative to the sum: nodes past u_n are below h e^{-41.5} and fall by e^{-1} a step */
