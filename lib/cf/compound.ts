@@ -330,11 +330,21 @@ function kernelsFor(N: Node, X: Node): { series: TransformSeries; kernels: Gamma
   return { series, kernels: kernelsOfSeries(series, rate), rate };
 }
 
+/**
+ * The severity's value phi_X = exp(L_X) as the compound forms it: L_X within 8 units of rounding per node of its tree
+ * relative to 1 + |L_X| (./invert/part.ts cfUlps), and exp one more, so phi_X is off by up to (8 nodes + 1) u |phi_X| plus
+ * 8 nodes u |phi_X| |L_X|. The second part is the severity's logRound (severityRounding below); this is the first, which
+ * the count multiplies by up to E N (Poisson(1e4)-gamma(2, 0.5) at t = 1e-7: 1.5e-13 against the compound's own allowance
+ * of 6.2e-15, tests/cf/arg-rounding.test.ts). |phi_X| <= 1, so it is an absolute bound on phi_X.
+ */
+function valueRounding(X: Node): number {
+  return (8 * Math.max(1, X.nodes) + 1) * Number.EPSILON;
+}
+
 /** `unlisted`: atom mass the compound's kind leaves out (it stays in the CF the continuous part is taken from) */
 function compoundErrors(N: Node, X: Node, unlisted: number): { cfAbsError: number; cfRelError: number } {
-  const eX = (X.cfAbsError ?? 0) + (X.cfRelError ?? 0);
+  const eX = (X.cfAbsError ?? 0) + (X.cfRelError ?? 0) + valueRounding(X);
   const nAbs = (N.cfAbsError ?? 0) + unlisted;
-  if (eX === 0) return { cfAbsError: nAbs, cfRelError: N.cfRelError ?? 0 };
   if (N.cgfSlope !== undefined && Number.isFinite(N.cgfSlope)) return { cfAbsError: nAbs, cfRelError: N.cgfSlope * eX + (N.cfRelError ?? 0) };
   return { cfAbsError: (N.cumulants(1)[0] ?? Infinity) * eX + nAbs, cfRelError: N.cfRelError ?? 0 };
 }
@@ -350,7 +360,8 @@ function dampedRelErrorAt(N: Node, X: Node): ((beta: number, t: number) => numbe
   const xRel = X.cfRelError ?? 0;
   const nRel = N.cfRelError ?? 0;
   const whole = compoundErrors(N, X, 0).cfRelError;
-  return (beta, t) => Math.min(whole, s * (e.at(beta, t) + xRel) + nRel);
+  const own = valueRounding(X);
+  return (beta, t) => Math.min(whole, s * (e.at(beta, t) + xRel + own) + nRel);
 }
 
 /**

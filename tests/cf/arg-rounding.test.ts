@@ -3,6 +3,8 @@ import { compile } from "@/lib/cf/compile";
 import { cfRelError, cfUlps, declaredCfError } from "@/lib/cf/invert/part";
 import { exactGrid, exactGridStep } from "@/lib/cf/arg-rounding";
 import type { Model } from "@/lib/cf/types";
+import { readFileSync } from "node:fs";
+import { join } from "node:path";
 import ref from "../fixtures/arg-rounding/arg-rounding.json";
 
 // The frequency's rounding before a CF is called: a X evaluates phi_X at fl(a t), off by up to u |a t|. References:
@@ -106,5 +108,32 @@ describe("a compound carries its severity's rounding", () => {
       if (err > 4 * own) tightest = Math.min(tightest, bound / err);
     }
     expect(tightest).toBeLessThan(100);
+  });
+});
+
+// Many claims: the severity's value g = exp(L_X) is computed within a few ulps of |g| (and of |g| |L_X|, the term above),
+// and Poisson(1e4) multiplies that by lambda in the compound's log, far above the compound's allowance relative to its own
+// small log at small t. Reference: tests/fixtures/arg-rounding/large-count.json (generate_large_count.py beside it, mpmath,
+// two methods).
+describe("a compound of many claims carries its severity's rounding", () => {
+  const big = JSON.parse(readFileSync(join(__dirname, "../fixtures/arg-rounding/large-count.json"), "utf8")) as {
+    model: Model;
+    rows: { t: number; phi: number[]; crossCheck: number }[];
+  };
+  const m = compile(big.model);
+  it("the CF values are within the declared allowance plus the slope's, at every row, and within 100x where largest", () => {
+    const S = m.cfArgSlope ?? 0;
+    let closest = 0;
+    for (const r of big.rows) {
+      const re = new Float64Array(1);
+      const im = new Float64Array(1);
+      m.logCf(Float64Array.of(r.t), re, im);
+      const own = Math.exp(re[0]) * cfRelError(cfUlps(m), re[0], im[0], r.t, 0) + declaredCfError(m);
+      const err = Math.hypot(Math.exp(re[0]) * Math.cos(im[0]) - r.phi[0], Math.exp(re[0]) * Math.sin(im[0]) - r.phi[1]);
+      const bound = own + S * r.t + r.crossCheck;
+      expect(err, `t ${r.t}: error ${err}, bound ${bound} (allowance ${own}, slope ${S * r.t})`).toBeLessThanOrEqual(bound);
+      closest = Math.max(closest, err / bound);
+    }
+    expect(closest, "largest error / bound").toBeGreaterThan(1e-2);
   });
 });
