@@ -137,3 +137,45 @@ describe("a compound of many claims carries its severity's rounding", () => {
     expect(closest, "largest error / bound").toBeGreaterThan(1e-2);
   });
 });
+
+// Claim laws other than gamma with a large mean and a small spread: the claim's log-CF is large in phase (about E X t) while
+// |phi_X| stays near 1, so its rounding is far above the compound's own allowance; each family declares its logRound
+// (lib/cf/families: inverseGaussianLogRound, uniformLogRound, pointLogRound). Reference: tests/fixtures/arg-rounding/
+// claim-laws.json (generate_claim_laws.py beside it, mpmath 50 digits, two methods per claim law).
+describe("a compound carries the rounding of each closed-form claim law", () => {
+  const fx = JSON.parse(readFileSync(join(__dirname, "../fixtures/arg-rounding/claim-laws.json"), "utf8")) as {
+    cases: { name: string; model: Model; rows: { t: number; phi: number[]; crossCheck: number }[] }[];
+  };
+  for (const c of fx.cases) {
+    const m = compile(c.model);
+    const at = (t: number) => {
+      const re = new Float64Array(1);
+      const im = new Float64Array(1);
+      m.logCf(Float64Array.of(t), re, im);
+      return { re: re[0], im: im[0] };
+    };
+    const errorAt = (r: { t: number; phi: number[] }) => {
+      const { re, im } = at(r.t);
+      const own = Math.exp(re) * cfRelError(cfUlps(m), re, im, r.t, 0) + declaredCfError(m);
+      const err = Math.hypot(Math.exp(re) * Math.cos(im) - r.phi[0], Math.exp(re) * Math.sin(im) - r.phi[1]);
+      const S = m.cfArgSlope ?? 0;
+      const slope = Math.min(S * r.t, m.cfArgErrAt ? m.cfArgErrAt(r.t) : Infinity);
+      return { err, own, slope };
+    };
+    it(`${c.name}: the two methods agree, the slope is derived, and the allowance alone is below the error somewhere`, () => {
+      for (const r of c.rows) expect(r.crossCheck, `t ${r.t}`).toBeLessThan(1e-30);
+      expect(Number.isFinite(m.cfArgSlope ?? NaN) && (m.cfArgSlope ?? 0) > 0).toBe(true);
+      expect(c.rows.some((r) => errorAt(r).err > 4 * errorAt(r).own)).toBe(true);
+    });
+    it(`${c.name}: the allowance plus the declared slope (per frequency) is never below the actual error, within 100x where largest`, () => {
+      let tightest = Infinity;
+      for (const r of c.rows) {
+        const { err, own, slope } = errorAt(r);
+        const bound = own + slope + r.crossCheck;
+        expect(err, `t ${r.t}: error ${err}, bound ${bound} (allowance ${own}, slope ${slope})`).toBeLessThanOrEqual(bound);
+        if (err > 4 * own) tightest = Math.min(tightest, bound / err);
+      }
+      expect(tightest).toBeLessThan(100);
+    });
+  }
+});

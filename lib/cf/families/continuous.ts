@@ -70,7 +70,28 @@ export function uniform(a: number, b: number): Node {
     location: c,
     scale: w / Math.sqrt(12),
     support: [a, b],
+    ...uniformLogRound(c, h),
   });
+}
+
+/**
+ * Node.logRoundSlope of uniform(c - h, c + h): its log L = log|sinc(y)| + i (c t + pi floor(|y| / pi)), y = h t, is computed
+ * within 8 ulps relative to |L| (the tree's allowance per node, ../invert/part.ts cfUlps). |Im L| <= (|c| + h) |t|; with
+ * x = |phi| = |sinc y| in [0, 1], x |log x| <= 1 - x (equality at 1, derivative log x <= 0), and sinc y >= 1 - y^2 / 6 (sin y
+ * >= y - y^3 / 6, y >= 0), so |phi| |Re L| <= min(1/e, y^2 / 6) <= |y| / sqrt(6). R = 8 u (|c| + h (1 + 1/sqrt(6))).
+ * Per frequency, falling with t: |phi| <= min(1, 1/|y|), so |phi| |L| <= min(1/e, y^2 / 6) + min(1, 1/|y|) (|c| + h) |t|
+ * (majorants only, not the computed sin, whose value near its zeros is off relative to itself). No damped transform declared.
+ */
+function uniformLogRound(c: number, h: number): Pick<Node, "logRoundSlope" | "logRoundAt"> {
+  const slope = 8 * Number.EPSILON * (Math.abs(c) + h * (1 + 1 / Math.sqrt(6))) * (1 + 8 * Number.EPSILON);
+  return {
+    logRoundSlope: slope,
+    logRoundAt: (t) => {
+      const y = h * Math.abs(t);
+      const v = Math.min(1 / Math.E, (y * y) / 6) + Math.min(1, 1 / y) * (Math.abs(c) + h) * Math.abs(t);
+      return Math.min(slope * Math.abs(t), 8 * Number.EPSILON * v * (1 + 16 * Number.EPSILON));
+    },
+  };
 }
 
 /** Gamma(shape, rate): log phi = -shape log(1 - i t / rate) (JKB vol. 1, ch. 17); principal log is continuous. */

@@ -11,6 +11,20 @@ const LIGHT = { left: ALL, right: ALL };
 /** tables are extended until the remaining tail is below this (or the length limit is reached) */
 const TAIL_EPS = 1e-18;
 
+/**
+ * Node.logRoundSlope of the point mass at `at`: L = i at t within 8 ulps relative to |L| (../invert/part.ts cfUlps), |phi| = 1,
+ * so R = 8 u |at|, and per frequency the same (|phi| does not fall). Damped, L~ = at (i t - beta): |phi~| = e^{-beta at}
+ * (at >= 0 for a claim), |L~| = |at| hypot(t, beta) <= |at| (t + beta).
+ */
+function pointLogRound(at: number): Pick<Node, "logRoundSlope" | "logRoundAt" | "logRoundDampedAt"> {
+  const slope = 8 * Number.EPSILON * Math.abs(at) * (1 + 8 * Number.EPSILON);
+  return {
+    logRoundSlope: slope,
+    logRoundAt: (t) => slope * Math.abs(t),
+    logRoundDampedAt: (beta, t) => Math.min(1, Math.exp(-beta * at) * (1 + 4 * Number.EPSILON)) * slope * Math.hypot(t, beta) * (1 + 4 * Number.EPSILON),
+  };
+}
+
 /** Point mass at `at`: log phi = i at t. Kept as a lattice of step 0 internally (any step fits). */
 export function point(at: number): Node {
   return {
@@ -31,6 +45,7 @@ export function point(at: number): Node {
     cumulants: (n) => Array.from({ length: n }, (_, i) => (i === 0 ? at : 0)),
     table: () => ({ origin: at, step: 1, p: Float64Array.of(1), tailMass: 0 }),
     dampedLogCf: pointDamped(at),
+    ...pointLogRound(at),
     transformSeries: pointSeries(at),
     countCgf(wr, wi, re, im) {
       for (let k = 0; k < wr.length; k++) {
