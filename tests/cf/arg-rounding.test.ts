@@ -140,7 +140,8 @@ describe("a compound of many claims carries its severity's rounding", () => {
 
 // Claim laws other than gamma with a large mean and a small spread: the claim's log-CF is large in phase (about E X t) while
 // |phi_X| stays near 1, so its rounding is far above the compound's own allowance; each family declares its logRound
-// (lib/cf/families: inverseGaussianLogRound, uniformLogRound, pointLogRound). Reference: tests/fixtures/arg-rounding/
+// (lib/cf/families: inverseGaussianLogRound, uniformLogRound, pointLogRound, shiftLogRound for normal, Cauchy, Laplace and
+// logistic). Reference: tests/fixtures/arg-rounding/
 // claim-laws.json (generate_claim_laws.py beside it, mpmath 50 digits, two methods per claim law).
 describe("a compound carries the rounding of each closed-form claim law", () => {
   const fx = JSON.parse(readFileSync(join(__dirname, "../fixtures/arg-rounding/claim-laws.json"), "utf8")) as {

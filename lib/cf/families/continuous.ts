@@ -25,6 +25,8 @@ export function normal(mu: number, sigma: number): Node {
     location: mu,
     scale: sigma,
     support: [-Infinity, Infinity],
+    // v e^-v, v = (sigma t)^2 / 2: (w / 2) e^(-w^2 / 2) <= e^(-1/2) / 2 < 0.3033 per unit w = sigma |t| (largest at w = 1)
+    ...shiftLogRound(mu, 0.3033 * sigma, (x) => -0.5 * s2 * x * x),
   });
 }
 
@@ -43,6 +45,8 @@ export function cauchy(loc: number, scale: number): Node {
     scale,
     support: [-Infinity, Infinity],
     tails: { left: 1, right: 1 },
+    // v e^-v <= v = scale |t|
+    ...shiftLogRound(loc, scale, (x) => -scale * Math.abs(x)),
   });
 }
 
@@ -181,6 +185,8 @@ export function laplace(loc: number, b: number): Node {
     location: loc,
     scale: Math.SQRT2 * b,
     support: [-Infinity, Infinity],
+    // v e^-v = log1p(y^2) / (1 + y^2) <= y^2 / (1 + y^2) <= |y| / 2, y = b t
+    ...shiftLogRound(loc, 0.5 * b, (x) => -Math.log1p(b * x * b * x)),
   });
 }
 
@@ -223,6 +229,9 @@ export function logistic(loc: number, s: number): Node {
     location: loc,
     scale: (Math.PI * s) / Math.sqrt(3),
     support: [-Infinity, Infinity],
+    // v = log(sinh x / x) <= x^2 / 6 (sinh x / x = sum x^2k / (2k+1)! <= sum (x^2 / 6)^k / k!), x = pi s t, and v e^-v <= 1/e,
+    // so v e^-v <= min(1, x^2 / 6) <= |x| / sqrt(6)
+    ...shiftLogRound(loc, (Math.PI * s) / Math.sqrt(6), (x) => logXOverSinh(Math.PI * s * x)),
   });
 }
 
@@ -309,4 +318,23 @@ export function nig(alpha: number, beta: number, delta: number, mu: number): Nod
     scale: Math.sqrt((delta * alpha * alpha) / (g * g * g)),
     support: [-Infinity, Infinity],
   });
+}
+
+/**
+ * Node.logRoundSlope of a law whose log is i loc t + v(t), v real, <= 0 (normal, Cauchy, Laplace, logistic): computed within
+ * 8 ulps relative to |L| (the tree's allowance per node, ../invert/part.ts cfUlps), |phi| = e^v <= 1, so |phi| |L| <=
+ * |loc| |t| + |v| e^v <= (|loc| + k) |t|, k the family's bound on |v| e^v per unit |t| (derived beside each call); R = 8 u
+ * (|loc| + k). Per frequency, falling with t where |phi| does: e^v (|loc| |t| + |v|), v as the family computes it (a few
+ * ulps relative, so e^v within 64 u (1 + |v|) relative). No damped transform (support from -inf).
+ */
+function shiftLogRound(loc: number, k: number, v: (t: number) => number): Pick<Node, "logRoundSlope" | "logRoundAt"> {
+  const slope = 8 * Number.EPSILON * (Math.abs(loc) + k) * (1 + 8 * Number.EPSILON);
+  return {
+    logRoundSlope: slope,
+    logRoundAt: (t) => {
+      const a = Math.abs(t);
+      const w = Math.abs(v(a));
+      return Math.min(slope * a, 8 * Number.EPSILON * Math.exp(-w) * (Math.abs(loc) * a + w) * (1 + 64 * Number.EPSILON * (1 + w)));
+    },
+  };
 }
