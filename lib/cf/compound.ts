@@ -12,6 +12,7 @@ import { compoundDampedMajorant } from "./damped-majorant";
 import { realCgf } from "./count-pgf";
 import { endpointKernelsRemainder } from "./compound-remainder";
 import { compoundArgErrAt, compoundArgSlope } from "./arg-rounding";
+import { compoundErrors, dampedRelErrorAt, severityRounding } from "./compound-errors";
 
 const collectNotes = (cs: Node[]) => [...new Set(cs.flatMap((c) => c.notes))];
 
@@ -328,60 +329,6 @@ function kernelsFor(N: Node, X: Node): { series: TransformSeries; kernels: Gamma
     return { series, kernels, rate, ...(exact ? { exact } : {}) };
   }
   return { series, kernels: kernelsOfSeries(series, rate), rate };
-}
-
-/**
- * The severity's value phi_X = exp(L_X) as the compound forms it: L_X within 8 units of rounding per node of its tree
- * relative to 1 + |L_X| (./invert/part.ts cfUlps), and exp one more, so phi_X is off by up to (8 nodes + 1) u |phi_X| plus
- * 8 nodes u |phi_X| |L_X|. The second part is the severity's logRound (severityRounding below); this is the first, which
- * the count multiplies by up to E N (Poisson(1e4)-gamma(2, 0.5) at t = 1e-7: 1.5e-13 against the compound's own allowance
- * of 6.2e-15, tests/cf/arg-rounding.test.ts). |phi_X| <= 1, so it is an absolute bound on phi_X.
- */
-function valueRounding(X: Node): number {
-  return (8 * Math.max(1, X.nodes) + 1) * Number.EPSILON;
-}
-
-/** `unlisted`: atom mass the compound's kind leaves out (it stays in the CF the continuous part is taken from) */
-function compoundErrors(N: Node, X: Node, unlisted: number): { cfAbsError: number; cfRelError: number } {
-  const eX = (X.cfAbsError ?? 0) + (X.cfRelError ?? 0) + valueRounding(X);
-  const nAbs = (N.cfAbsError ?? 0) + unlisted;
-  if (N.cgfSlope !== undefined && Number.isFinite(N.cgfSlope)) return { cfAbsError: nAbs, cfRelError: N.cgfSlope * eX + (N.cfRelError ?? 0) };
-  return { cfAbsError: (N.cumulants(1)[0] ?? Infinity) * eX + nAbs, cfRelError: N.cfRelError ?? 0 };
-}
-
-/**
- * compoundErrors' relative error at frequency t, damping beta, where the severity bounds its damped transform's error per
- * frequency (Node.dampedErrorAt, for the transforms compoundDamped takes) and the count's cumulant function has a slope
- */
-function dampedRelErrorAt(N: Node, X: Node): ((beta: number, t: number) => number) | null {
-  const e = X.dampedErrorAt;
-  const s = N.cgfSlope;
-  if (!e || e.cf !== X.dampedLogCf || e.rect !== X.dampedCf || s === undefined || !Number.isFinite(s)) return null;
-  const xRel = X.cfRelError ?? 0;
-  const nRel = N.cfRelError ?? 0;
-  const whole = compoundErrors(N, X, 0).cfRelError;
-  const own = valueRounding(X);
-  return (beta, t) => Math.min(whole, s * (e.at(beta, t) + xRel + own) + nRel);
-}
-
-/**
- * The severity's own rounding, which scales with its |L_X| (the compound's allowance is relative to 1 + |L| of the
- * compound's log only): |P_N'| <= E N on the unit disc, so phi moves by at most E N R |s| (Node.logRoundSlope R), carried as
- * an argument slope (the CF values' absolute error per unit |t|) on top of the scaled children's; not derived (NaN) where the
- * severity declares no R
- */
-function severityRounding(meanN: number | null, X: Node, slope: number, errAt: ((t: number) => number) | undefined) {
-  const R = X.logRoundSlope;
-  const add = R === undefined ? NaN : meanN !== null && Number.isFinite(meanN) ? meanN * R * (1 + 2 * Number.EPSILON) : Infinity;
-  if (!(add > 0)) return { argSlope: slope, argErrAt: errAt };
-  const at = X.logRoundAt;
-  const child = errAt ?? ((t: number) => slope * t);
-  // per frequency where the severity derives it (E N times its R(t)), else the slope
-  const own = at && meanN !== null ? (t: number) => meanN * at(t) * (1 + 2 * Number.EPSILON) : (t: number) => add * t;
-  const dAt = X.logRoundDampedAt;
-  // damped: the children's slope (t + beta) plus E N R~(beta, t) where the severity derives it
-  const damped = dAt && meanN !== null ? { argErrDampedAt: (beta: number, t: number) => (slope * (t + beta) + meanN * dAt(beta, t)) * (1 + 4 * Number.EPSILON) } : {};
-  return { argSlope: (slope + add) * (1 + Number.EPSILON), argErrAt: (t: number) => (Math.min(child(t), slope * t) + own(t)) * (1 + 2 * Number.EPSILON), ...damped };
 }
 
 /** the atoms of a compound of per-claim layered claims (atom a0 at 0, a1 at the limit v), or null */
