@@ -72,7 +72,7 @@ export interface Node {
    * count's log-pgf: a Poisson compound of it, ./damped-cf.ts compoundDamped); within the same cfAbsError
    */
   dampedCf?: DampedLogCf;
-  /** the tree holds a compound (the damped inversion is used for such laws) */
+  /** the tree holds a compound (the damped inversion is used for such laws, and for laws bounded below with a power tail) */
   hasCompound?: boolean;
   /** bound on the absolute error of the CF values phi(t) (0 for closed forms) */
   cfAbsError?: number;

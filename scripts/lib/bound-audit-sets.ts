@@ -357,6 +357,23 @@ function directVgNig() {
   }
 }
 
+/** positive-sums.json: sums of two nonnegative terms, one power-tailed (mpmath convolution at 24 digits, both ways) */
+function positiveSums() {
+  const set = "positive-sums";
+  type P = { x: string; cdf: string; check: number; sf: string; sf_check: number; pdf: string; pdf_check: number };
+  type L = { p: string; q: string; check: number; es?: string; es_check?: number };
+  const f = read<{ cases: { model: Model; points: P[]; quantiles: L[] }[] }>("positive-sums/positive-sums.json");
+  for (const k of f.cases) {
+    const c = compiled(set, k.model);
+    if (!c) continue;
+    // the two integrals' difference, and the reference's own 24 digits
+    const pts = k.points.map((p) => ({ x: num(p.x), pdf: num(p.pdf), cdf: num(p.cdf), sf: num(p.sf) }));
+    const errs = k.points.map((p) => ({ pdf: p.pdf_check, cdf: p.check, sf: p.sf_check }));
+    points(set, k.model, c, pts, (v, i) => Math.max(errs[i].pdf, errs[i].cdf, errs[i].sf) + 1e-22 * Math.abs(v));
+    levels(set, k.model, c, k.quantiles.map((l) => ({ p: num(l.p), q: num(l.q), qErr: l.check + 1e-22, ...(l.es ? { es: num(l.es), esErr: (l.es_check ?? 0) + 1e-22 } : {}) })));
+  }
+}
+
 export const SETS: [string, () => void][] = [
   ["direct/families", directFamilies],
   ["direct/vg-nig", directVgNig],
@@ -373,6 +390,7 @@ export const SETS: [string, () => void][] = [
   ["compound/heavy-sums", () => compoundHeavy("compound/heavy-sums.json", "compound/heavy-sums")],
   ["sums", () => sums("sums/sums.json", "sums", true)],
   ["cf-sums", () => sums("sums/cf-sums.json", "cf-sums", false)],
+  ["positive-sums", positiveSums],
   ["lattice-sums", latticeSums],
   ["lattice-alias", latticeAlias],
   ["stable", stable],
