@@ -110,6 +110,7 @@ export function dampedReach(
   if (fromMarkov) R = sure;
   let last: DampedSolution | null = null;
   let probeR = R;
+  let shrinks = 0;
   for (let it = 0; it < 40; it++) {
     let probe = dampedSetup(model, atoms, R, { tolerance: loose, wantPdf: false, budget, pointwise: true, points: PROBE_POINTS, wantInt: false, transient: !keep, byParts: true });
     // a Markov range past what the budget allows: the doublings from the first guess instead
@@ -119,6 +120,14 @@ export function dampedReach(
       probe = dampedSetup(model, atoms, R, { tolerance: loose, wantPdf: false, budget, pointwise: true, points: PROBE_POINTS, wantInt: false, transient: !keep, byParts: true });
     }
     fromMarkov = false;
+    // the first guess past what the budget allows (a power tail's index below 1 puts it far out: pareto(0.8) + gamma(2) at
+    // 0.999 started at 77 000, ten times the range needed): quarter the distance from lo, at most four times, before
+    // giving the law up to the undamped route
+    if (!probe && last === null && shrinks < 4) {
+      shrinks++;
+      R = lo + 0.25 * (R - lo);
+      continue;
+    }
     if (!probe) return null;
     last = probe;
     probeR = R;
