@@ -40,9 +40,21 @@ export function dampedRelErrorAt(N: Node, X: Node): ((beta: number, t: number) =
 /**
  * The severity's own rounding, which scales with its |L_X| (the compound's allowance is relative to 1 + |L| of the
  * compound's log only): |P_N'| <= E N on the unit disc, so phi moves by at most E N R |s| (Node.logRoundSlope R), carried as
- * an argument slope (the CF values' absolute error per unit |t|) on top of the scaled children's; not derived (NaN) where the
- * severity declares no R
+ * an argument slope (the CF values' absolute error per unit |t|) on top of the scaled children's. Where the severity declares
+ * no R (./families/log-round.ts and the families beside it), or the count no finite mean, nothing is added and
+ * severityRoundingNote says so in the compound's notes.
  */
+export function severityRoundingNote(meanN: number | null, X: Node): string[] {
+  const R = X.logRoundSlope;
+  if (R === undefined || !Number.isFinite(R))
+    return [
+      "the claim law's rounding that grows with |log phi_X| (about E N u |phi_X| |log phi_X| in the CF) is not derived for this claim law and is left out of the error bounds: they are estimates where the claims' log-CF is large (a claim law with a large location and a small spread)",
+    ];
+  if (R > 0 && !(meanN !== null && Number.isFinite(meanN)))
+    return ["the claim law's rounding that grows with |log phi_X| is not bounded for a count without a finite mean and is left out of the error bounds"];
+  return X.logRoundNote ? [X.logRoundNote] : [];
+}
+
 export function severityRounding(meanN: number | null, X: Node, slope: number, errAt: ((t: number) => number) | undefined) {
   const R = X.logRoundSlope;
   const add = R === undefined ? NaN : meanN !== null && Number.isFinite(meanN) ? meanN * R * (1 + 2 * Number.EPSILON) : Infinity;
@@ -50,9 +62,9 @@ export function severityRounding(meanN: number | null, X: Node, slope: number, e
   const at = X.logRoundAt;
   const child = errAt ?? ((t: number) => slope * t);
   // per frequency where the severity derives it (E N times its R(t)), else the slope
-  const own = at && meanN !== null ? (t: number) => meanN * at(t) * (1 + 2 * Number.EPSILON) : (t: number) => add * t;
+  const own = at && meanN !== null ? (t: number) => meanN * at(t, X) * (1 + 2 * Number.EPSILON) : (t: number) => add * t;
   const dAt = X.logRoundDampedAt;
   // damped: the children's slope (t + beta) plus E N R~(beta, t) where the severity derives it
-  const damped = dAt && meanN !== null ? { argErrDampedAt: (beta: number, t: number) => (slope * (t + beta) + meanN * dAt(beta, t)) * (1 + 4 * Number.EPSILON) } : {};
+  const damped = dAt && meanN !== null ? { argErrDampedAt: (beta: number, t: number) => (slope * (t + beta) + meanN * dAt(beta, t, X)) * (1 + 4 * Number.EPSILON) } : {};
   return { argSlope: (slope + add) * (1 + Number.EPSILON), argErrAt: (t: number) => (Math.min(child(t), slope * t) + own(t)) * (1 + 2 * Number.EPSILON), ...damped };
 }

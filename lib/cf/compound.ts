@@ -12,7 +12,7 @@ import { compoundDampedMajorant } from "./damped-majorant";
 import { realCgf } from "./count-pgf";
 import { endpointKernelsRemainder } from "./compound-remainder";
 import { compoundArgErrAt, compoundArgSlope } from "./arg-rounding";
-import { compoundErrors, dampedRelErrorAt, severityRounding } from "./compound-errors";
+import { compoundErrors, dampedRelErrorAt, severityRounding, severityRoundingNote } from "./compound-errors";
 
 const collectNotes = (cs: Node[]) => [...new Set(cs.flatMap((c) => c.notes))];
 
@@ -55,6 +55,7 @@ export function compoundNode(N: Node, X: Node, discretise: DiscretiseOptions | n
     kind = { type: "mixed", atoms: P0 > 0 ? [{ x: 0, p: P0 }] : [], atomsComplete: false };
     own.push("compound of a severity with atoms and a continuous part: only the atom at 0 is listed");
   }
+  own.push(...severityRoundingNote(N.cumulants(1)[0], X));
   const nMean = N.cumulants(1)[0] ?? N.location;
   const node: Node = {
     kind,

@@ -87,10 +87,13 @@ export interface Node {
   /** severities: a bound R with |phi(s)| times the rounding of the computed log phi(s) <= R |s| (damped: R (|t| + beta)), where
    *  derived; a compound carries E N R as an argument slope (its own allowance is relative to its log only) */
   logRoundSlope?: number;
-  /** the same at frequency t >= 0 (undamped), falling with t where |phi| does: at most logRoundSlope t */
-  logRoundAt?: (t: number) => number;
+  /** the same at frequency t >= 0 (undamped), falling with t where |phi| does: at most logRoundSlope t; `self`: the node it
+   *  was read from (a family copied by spreading reads its majorants there) */
+  logRoundAt?: (t: number, self?: Node) => number;
   /** the same for the damped transform at damping beta, frequency t >= 0: at most logRoundSlope (t + beta) */
-  logRoundDampedAt?: (beta: number, t: number) => number;
+  logRoundDampedAt?: (beta: number, t: number, self?: Node) => number;
+  /** severities: what the logRound bound assumes, where it assumes anything (a compound of the law lists it in its notes) */
+  logRoundNote?: string;
   /** compounds: argErrAt's damped counterpart (the error is at most min(argSlope (t + beta), argErrDampedAt(beta, t))) */
   argErrDampedAt?: (beta: number, t: number) => number;
   /**

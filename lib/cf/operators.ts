@@ -1,4 +1,5 @@
 import { scaleDamped, shiftDamped, sumDamped } from "./damped-cf";
+import { scaledLogRound, shiftedLogRound, summedLogRound } from "./families/log-round";
 import { carryScaleKernels, carryShiftKernels, carrySumKernels } from "./kernel-carry";
 import { sumKernelRest } from "./damped-kernel-rest";
 import { scaleDampedMajorant, shiftDampedMajorant, sumDampedMajorant } from "./damped-majorant";
@@ -57,6 +58,7 @@ export function sumNode(cs: Node[]): Node {
     argSlope: addArgSlopes(cs),
     argErrAt: addArgErrAt(cs),
     argErrDampedAt: addArgErrDampedAt(cs),
+    ...summedLogRound(cs),
   };
   withCumulantErrors(node, sumE(cs));
   carrySumErrors(node, cs);
@@ -125,6 +127,7 @@ export function scaleNode(a: number, c: Node): Node {
     argSlope: scaleArgSlope(a, c),
     argErrAt: scaleArgErrAt(a, c),
     argErrDampedAt: scaleArgErrDampedAt(a, c),
+    ...scaledLogRound(c, a),
   };
   withCumulantErrors(node, scaleE(a, c));
   carryScaleErrors(node, a, c);
@@ -183,6 +186,7 @@ export function shiftNode(b: number, c: Node): Node {
     cfRelError: c.cfRelError,
     argSlope: c.argSlope,
     argErrAt: c.argErrAt,
+    ...shiftedLogRound(c, b),
   };
   withCumulantErrors(node, shiftE(b, c));
   carryShiftErrors(node, b, c);
@@ -245,6 +249,7 @@ export function repeatNode(n: number, c: Node): Node {
     argSlope: n * (c.argSlope ?? 0),
     argErrAt: addArgErrAt([c], [n]),
     argErrDampedAt: addArgErrDampedAt([c], [n]),
+    ...summedLogRound([c], [n]),
   };
   withCumulantErrors(node, repeatE(n, c));
   if (c.table && c.kind.type === "lattice") {

@@ -9,6 +9,7 @@ import { burrDist } from "./dist";
 import { KahanComplex } from "./kahan";
 import { burrRemainder } from "../endpoint-remainder";
 import { burrErrorAt } from "./burr-error";
+import { withGgcLogRound } from "./log-round";
 
 /**
  * Burr XII, Loss Models parameters: S(x) = (1 + (x/theta)^gamma)^(-alpha) (Klugman, Panjer & Willmot, Loss Models,
@@ -188,7 +189,7 @@ export function burr(alpha: number, gamma: number, theta: number, name = "burr")
   const dist = burrDist(alpha, gamma, theta);
   const mean = tail > 1 ? raw(1) : theta * (2 ** (1 / alpha) - 1) ** (1 / gamma);
   const expansion = burrExpansion(alpha, gamma, theta);
-  return {
+  const node: Node = {
     kind: { type: "continuous" },
     momentIndex: tail,
     tails: { left: Infinity, right: tail },
@@ -218,6 +219,10 @@ export function burr(alpha: number, gamma: number, theta: number, name = "burr")
     },
     cumulants: (m) => rawToCumulants(cumulantList(m, tail, raw)),
   };
+  // claim-law rounding: theta Y^{1/gamma}, Y Lomax (beta prime (1, alpha), hyperbolically completely monotone); HCM is closed
+  // under powers |q| >= 1 (Bondesson 1992), so for gamma <= 1 a generalized gamma convolution (./log-round.ts ggcLogRound),
+  // where the mean is finite (alpha gamma > 1); above, not derived
+  return gamma <= 1 && tail > 1 ? withGgcLogRound(node, raw(1)) : node;
 }
 
 /**

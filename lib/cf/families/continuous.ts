@@ -1,6 +1,7 @@
 import { bernoulliNumbers, factorial } from "./special";
 import { NONE_MOMENT, type Node } from "../node";
 import { gammaDamped } from "../damped-cf";
+import { linearLogRound, shiftLogRound } from "./log-round";
 
 const B = bernoulliNumbers(40);
 const CONT = { type: "continuous" } as const;
@@ -242,15 +243,7 @@ export function logistic(loc: number, s: number): Node {
 export function varianceGamma(sigma: number, nu: number, theta: number, loc: number): Node {
   const s2 = sigma * sigma;
   return base({
-    logCf(t, re, im) {
-      for (let k = 0; k < t.length; k++) {
-        const x = t[k];
-        const ur = 0.5 * s2 * nu * x * x;
-        const ui = -theta * nu * x;
-        re[k] = (-0.5 / nu) * Math.log1p(2 * ur + ur * ur + ui * ui);
-        im[k] = loc * x - Math.atan2(ui, 1 + ur) / nu;
-      }
-    },
+    logCf: vgLog,
     // factor 1 - theta nu u - sigma^2 nu u^2/2 = (1 - r1 u)(1 - r2 u); kappa_m = (m-1)! (r1^m + r2^m) / nu, with the
     // power sums p_m = theta nu p_{m-1} + (sigma^2 nu / 2) p_{m-2} (Newton's identities)
     cumulants: (n) => {
@@ -273,7 +266,19 @@ export function varianceGamma(sigma: number, nu: number, theta: number, loc: num
     location: loc + theta,
     scale: Math.sqrt(s2 + theta * theta * nu),
     support: [-Infinity, Infinity],
+    // L' = i loc + (i theta - sigma^2 t) / D, D = 1 - i theta nu t + sigma^2 nu t^2 / 2, |D| >= Re D >= max(1, sigma t sqrt(2 nu))
+    // (AM-GM): |L'| <= |loc| + |theta| + sigma / sqrt(2 nu), L(0) = 0 on the continuous branch
+    ...linearLogRound(Math.abs(loc) + Math.abs(theta) + sigma / Math.sqrt(2 * nu), vgLog),
   });
+  function vgLog(t: Float64Array, re: Float64Array, im: Float64Array) {
+    for (let k = 0; k < t.length; k++) {
+      const x = t[k];
+      const ur = 0.5 * s2 * nu * x * x;
+      const ui = -theta * nu * x;
+      re[k] = (-0.5 / nu) * Math.log1p(2 * ur + ur * ur + ui * ui);
+      im[k] = loc * x - Math.atan2(ui, 1 + ur) / nu;
+    }
+  }
 }
 
 /**
@@ -283,25 +288,7 @@ export function varianceGamma(sigma: number, nu: number, theta: number, loc: num
 export function nig(alpha: number, beta: number, delta: number, mu: number): Node {
   const g = Math.sqrt(alpha * alpha - beta * beta);
   return base({
-    logCf(t, re, im) {
-      for (let k = 0; k < t.length; k++) {
-        const x = t[k];
-        // s = sqrt(g^2 + x^2 - 2 i beta x), principal (Re > 0)
-        const zr = g * g + x * x;
-        const zi = -2 * beta * x;
-        const m = Math.hypot(zr, zi);
-        const sr = Math.sqrt(0.5 * (m + zr));
-        const si = zi / (2 * sr);
-        // (g - s) = (g^2 - s^2)/(g + s) = (-x^2 + 2 i beta x)/(g + s)
-        const nr = -x * x;
-        const ni = 2 * beta * x;
-        const dr = g + sr;
-        const di = si;
-        const d2 = dr * dr + di * di;
-        re[k] = (delta * (nr * dr + ni * di)) / d2;
-        im[k] = mu * x + (delta * (ni * dr - nr * di)) / d2;
-      }
-    },
+    logCf: nigLog,
     // K(u) = mu u + delta (g - sqrt(h(u))), h(u) = g^2 - 2 beta u - u^2: Taylor coefficients of sqrt(h) by the
     // square-root series recursion, kappa_m = -delta m! [u^m] sqrt(h)
     cumulants: (n) => {
@@ -317,24 +304,27 @@ export function nig(alpha: number, beta: number, delta: number, mu: number): Nod
     location: mu + (delta * beta) / g,
     scale: Math.sqrt((delta * alpha * alpha) / (g * g * g)),
     support: [-Infinity, Infinity],
+    // L' = i mu + i delta (beta + i t) / w^(1/2), w = g^2 + t^2 - 2 i beta t, |w| >= g^2 + t^2: |L'| <= |mu| + delta
+    // sqrt((beta^2 + t^2) / (g^2 + t^2)) <= |mu| + delta max(1, |beta| / g), L(0) = 0 on the continuous branch
+    ...linearLogRound(Math.abs(mu) + delta * Math.max(1, Math.abs(beta) / g), nigLog),
   });
-}
-
-/**
- * Node.logRoundSlope of a law whose log is i loc t + v(t), v real, <= 0 (normal, Cauchy, Laplace, logistic): computed within
- * 8 ulps relative to |L| (the tree's allowance per node, ../invert/part.ts cfUlps), |phi| = e^v <= 1, so |phi| |L| <=
- * |loc| |t| + |v| e^v <= (|loc| + k) |t|, k the family's bound on |v| e^v per unit |t| (derived beside each call); R = 8 u
- * (|loc| + k). Per frequency, falling with t where |phi| does: e^v (|loc| |t| + |v|), v as the family computes it (a few
- * ulps relative, so e^v within 64 u (1 + |v|) relative). No damped transform (support from -inf).
- */
-function shiftLogRound(loc: number, k: number, v: (t: number) => number): Pick<Node, "logRoundSlope" | "logRoundAt"> {
-  const slope = 8 * Number.EPSILON * (Math.abs(loc) + k) * (1 + 8 * Number.EPSILON);
-  return {
-    logRoundSlope: slope,
-    logRoundAt: (t) => {
-      const a = Math.abs(t);
-      const w = Math.abs(v(a));
-      return Math.min(slope * a, 8 * Number.EPSILON * Math.exp(-w) * (Math.abs(loc) * a + w) * (1 + 64 * Number.EPSILON * (1 + w)));
-    },
-  };
+  function nigLog(t: Float64Array, re: Float64Array, im: Float64Array) {
+    for (let k = 0; k < t.length; k++) {
+      const x = t[k];
+      // s = sqrt(g^2 + x^2 - 2 i beta x), principal (Re > 0)
+      const zr = g * g + x * x;
+      const zi = -2 * beta * x;
+      const m = Math.hypot(zr, zi);
+      const sr = Math.sqrt(0.5 * (m + zr));
+      const si = zi / (2 * sr);
+      // (g - s) = (g^2 - s^2)/(g + s) = (-x^2 + 2 i beta x)/(g + s)
+      const nr = -x * x;
+      const ni = 2 * beta * x;
+      const dr = g + sr;
+      const di = si;
+      const d2 = dr * dr + di * di;
+      re[k] = (delta * (nr * dr + ni * di)) / d2;
+      im[k] = mu * x + (delta * (ni * dr - nr * di)) / d2;
+    }
+  }
 }

@@ -5,6 +5,7 @@ import { pointSeries } from "../damped-kernels";
 import { nearestZero, unwrapFrom } from "../complex";
 import type { LatticeTable } from "../types";
 import { bulkRound } from "./bulk-bound";
+import { linearLogRound } from "./log-round";
 
 const ALL = Infinity;
 const LIGHT = { left: ALL, right: ALL };
@@ -137,7 +138,7 @@ export function binomial(n: number, p: number): Node {
   };
   const support: [number, number] = p === 0 ? [0, 0] : p === 1 ? [n, n] : [0, n];
   const single = p === 0 || p === 1 || n === 0;
-  return {
+  const node: Node = {
     kind: single
       ? { type: "lattice", origin: support[0], step: 0, atoms: [{ x: support[0], p: 1 }] }
       : { type: "lattice", origin: 0, step: 1, atoms: n <= 4096 ? binomialAtoms(n, p) : null },
@@ -175,6 +176,11 @@ export function binomial(n: number, p: number): Node {
     panjer: p < 1 ? { a: -p / q, b: ((n + 1) * p) / q, p0: q ** n } : undefined,
     p0: q ** n,
   };
+  // claim-law rounding (./log-round.ts): p <= 1/2, L = n log z, z = 1 - p + p e^{it}, Re z >= 1 - 2p >= 0, so |arg z| <=
+  // (pi/2) |Im z| / |z| and |phi| n |arg z| <= (pi/2) n p |t| |z|^{n-1}; |phi| |log|phi|| <= 1 - |phi| <= |1 - phi| <= n p |t|.
+  // p > 1/2: L = i n t + n log(1 - q + q e^{-it}), the same with q, plus n |t|. So c = (1 + pi/2) n p, or n + (1 + pi/2) n q
+  const c = p <= 0.5 ? (1 + Math.PI / 2) * n * p : n + (1 + Math.PI / 2) * n * q;
+  return Object.assign(node, linearLogRound(c * (1 + 8 * EPS), node.logCf));
 }
 
 function binomialAtoms(n: number, p: number) {
@@ -222,7 +228,7 @@ function binomialTable(n: number, p: number, maxLength: number): LatticeTable {
 
 /** Poisson(lambda): log phi = lambda (e^{it} - 1) (JKK ch. 4); entire, so the branch is continuous as written. */
 export function poisson(lambda: number): Node {
-  return {
+  const node: Node = {
     kind: lambda === 0 ? { type: "lattice", origin: 0, step: 0, atoms: [{ x: 0, p: 1 }] } : { type: "lattice", origin: 0, step: 1, atoms: null },
     momentIndex: ALL,
     tails: LIGHT,
@@ -270,6 +276,8 @@ export function poisson(lambda: number): Node {
     divide: (m) => ({ a: 0, b: lambda / m, pgf: (z) => Math.exp((lambda / m) * (z - 1)) }),
     p0: Math.exp(-lambda),
   };
+  // claim-law rounding (./log-round.ts): L = lambda (e^{it} - 1), |L| <= lambda |e^{it} - 1| <= lambda |t|
+  return Object.assign(node, linearLogRound(lambda * (1 + 8 * EPS), node.logCf));
 }
 
 /**
@@ -287,7 +295,7 @@ export function negativeBinomial(r: number, p: number): Node {
     re[k] = r * (lp - 0.5 * Math.log1p(2 * ar + ar * ar + ai * ai));
     im[k] = -r * Math.atan2(ai, 1 + ar);
   };
-  return {
+  const node: Node = {
     kind: single ? { type: "lattice", origin: 0, step: 0, atoms: [{ x: 0, p: 1 }] } : { type: "lattice", origin: 0, step: 1, atoms: null },
     momentIndex: ALL,
     tails: LIGHT,
@@ -296,8 +304,18 @@ export function negativeBinomial(r: number, p: number): Node {
     location: (r * q) / p,
     scale: Math.sqrt(r * q) / p || 1,
     support: [0, single ? 0 : Infinity],
+    // L = -r log((1 - q z) / p) = -r log(1 + w), w = -(q / p) (z - 1), z - 1 = (-2 sin^2(t/2), sin t) without cancellation
+    // (log p - log|1 - q z| loses r u |log p| near t = 0: 6e-9 at r = 1e8, t = 1e-8, against mpmath); Re(1 + w) = Re(1 - q z)
+    // / p >= 1, so the principal log is the continuous branch
     logCf(t, re, im) {
-      for (let k = 0; k < t.length; k++) cgfAt(Math.cos(t[k]), Math.sin(t[k]), k, re, im);
+      const f = q / p;
+      for (let k = 0; k < t.length; k++) {
+        const sh = Math.sin(0.5 * t[k]);
+        const wr = 2 * f * sh * sh;
+        const wi = -f * Math.sin(t[k]);
+        re[k] = -0.5 * r * Math.log1p(2 * wr + wr * wr + wi * wi);
+        im[k] = -r * Math.atan2(wi, 1 + wr);
+      }
     },
     // kappa_n = r q A_{n-1}(q) / p^n, A_m the Eulerian polynomial (from -log(1 - q e^u) = sum_j q^j e^{ju} / j)
     cumulants: (n) =>
@@ -331,4 +349,6 @@ export function negativeBinomial(r: number, p: number): Node {
     divide: (m) => ({ a: q, b: (r / m - 1) * q, pgf: (z) => Math.exp((r / m) * (lp - Math.log1p(-q * z))) }),
     p0: p ** r,
   };
+  // claim-law rounding (./log-round.ts): L' = i r q e^{it} / (1 - q e^{it}), |1 - q e^{it}| >= p: |L| <= (r q / p) |t| = E X |t|
+  return Object.assign(node, linearLogRound(((r * q) / p) * (1 + 8 * EPS), node.logCf));
 }

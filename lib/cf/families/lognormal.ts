@@ -3,6 +3,7 @@ import { lognormalKernel } from "../severity-kernel";
 import { checkDeadline } from "../deadline";
 import type { Node } from "../node";
 import { fromPhiDamped } from "../damped-cf";
+import { withGgcLogRound } from "./log-round";
 import { arithmeticNodes, expSumArithmetic, fromPhi } from "./cf-quadrature";
 import { SUM_MOMENT_UNITS, arithmetic, logFromSums, quadratureNodes } from "./numeric-rule";
 import { KahanComplex } from "./kahan";
@@ -218,7 +219,8 @@ export function lognormal(mu: number, sigma: number): Node {
     singleRect(beta, t, re, im);
     return cfErrorSingle;
   };
-  return {
+  // claim-law rounding: the lognormal is a generalized gamma convolution (Thorin 1977; ./log-round.ts ggcLogRound)
+  return withGgcLogRound({
     kind: { type: "continuous" },
     momentIndex: Infinity,
     tails: { left: Infinity, right: Infinity },
@@ -251,7 +253,7 @@ export function lognormal(mu: number, sigma: number): Node {
     support: [0, Infinity],
     logCf: (t, re, im) => (arithmeticNodes(t) ? logCfArithmetic(t, re, im) : fromPhi(t, re, im, (x, out) => phiAt(x, 0, out))),
     cumulants: (m) => lognormalCumulants(mu, sigma, m),
-  };
+  } as Node, Math.exp(mu + s2 / 2));
 }
 
 const U = Number.EPSILON / 2;

@@ -7,6 +7,7 @@ import { logFromSums, quadratureNodes, ruleRounding } from "./numeric-rule";
 import { KahanComplex } from "./kahan";
 import { weibullRemainder } from "../endpoint-remainder";
 import { decayTable } from "./decay-table";
+import { withGgcLogRound } from "./log-round";
 
 export { NUMERIC_CF_ABS_ERROR, MAX_QUADRATURE_NODES } from "./numeric-rule";
 export { lognormal, lognormalCumulants } from "./lognormal";
@@ -157,7 +158,7 @@ export function weibull(k: number, lambda: number): Node {
   const raw = (m: number) => lambda ** m * gammaFn(1 + m / k);
   const mean = raw(1);
   const expansion = weibullExpansion(k, lambda);
-  return {
+  const node: Node = {
     kind: { type: "continuous" },
     momentIndex: Infinity,
     tails: { left: Infinity, right: Infinity },
@@ -186,6 +187,9 @@ export function weibull(k: number, lambda: number): Node {
     // E X^n = lambda^n Gamma(1 + n/k) (JKB vol. 1, ch. 21)
     cumulants: (m) => rawToCumulants(Array.from({ length: m }, (_, i) => raw(i + 1))),
   };
+  // claim-law rounding: shape <= 1 is E^{1/k}, E exponential, hyperbolically completely monotone (HCM is closed under
+  // powers |q| >= 1, Bondesson 1992), so a generalized gamma convolution (./log-round.ts ggcLogRound); above, not derived
+  return k <= 1 ? withGgcLogRound(node, mean) : node;
 }
 
 /**

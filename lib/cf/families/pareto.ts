@@ -2,6 +2,7 @@
 import { lgamma } from "./special";
 import { cumulantList, rawToCumulants, type Node } from "../node";
 import { fromPhiDamped } from "../damped-cf";
+import { decreasingDensityModulus, withGgcLogRound } from "./log-round";
 import { arithmeticNodes, expSumArithmetic, fromPhi } from "./cf-quadrature";
 import { paretoExpansion, paretoSeries } from "./asymptotic";
 import { MAX_QUADRATURE_NODES, logFromSums, quadratureNodes, ruleRounding } from "./numeric-rule";
@@ -278,7 +279,7 @@ export function pareto(alpha: number, xm: number): Node {
   };
   const raw = (m: number) => (alpha * xm ** m) / (alpha - m);
   const expansion = paretoExpansion(alpha, xm);
-  return {
+  const node: Node = {
     kind: { type: "continuous" },
     momentIndex: alpha,
     tails: { left: Infinity, right: alpha },
@@ -308,4 +309,7 @@ export function pareto(alpha: number, xm: number): Node {
     // E X^n = alpha xm^n / (alpha - n), n < alpha (JKB vol. 1, ch. 20)
     cumulants: (m) => rawToCumulants(cumulantList(m, alpha, raw)),
   };
+  // claim-law rounding: xm (1 + Y), Y Lomax, a generalized gamma convolution moved right (Thorin 1977; ./log-round.ts
+  // ggcLogRound), for a finite mean; its density alpha xm^alpha x^(-alpha-1) decreases from alpha / xm
+  return alpha > 1 ? withGgcLogRound(node, raw(1), decreasingDensityModulus(xm, alpha / xm)) : node;
 }

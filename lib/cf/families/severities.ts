@@ -8,6 +8,7 @@ import { MAX_QUADRATURE_NODES, logFromSums, quadratureNodes, ruleRounding } from
 import { shiftDamped, shiftDampedCf } from "../damped-cf";
 import { paretoExpansion } from "./asymptotic";
 import { fromPhiDamped } from "../damped-cf";
+import { decreasingDensityModulus, withGgcLogRound } from "./log-round";
 import { inverseGammaDist, inverseGaussianDist, type DirectLaw } from "./dist";
 import { KahanComplex } from "./kahan";
 
@@ -176,7 +177,7 @@ export function inverseGamma(alpha: number, theta: number): Node {
   const damped = (beta: number, t: Float64Array, re: Float64Array, im: Float64Array) => (arithmeticNodes(t) ? batch(beta, t, re, im) : dampedSingle(beta, t, re, im));
   const raw = (r: number) => theta ** r * Math.exp(lgamma(alpha - r) - lg);
   const dist = inverseGammaDist(alpha, theta);
-  return {
+  const node: Node = {
     kind: { type: "continuous" },
     momentIndex: alpha,
     tails: { left: Infinity, right: alpha },
@@ -206,6 +207,9 @@ export function inverseGamma(alpha: number, theta: number): Node {
     },
     cumulants: (m) => rawToCumulants(cumulantList(m, alpha, raw)),
   };
+  // claim-law rounding: 1 / Gamma, hyperbolically completely monotone (Bondesson 1992), a generalized gamma convolution
+  // (./log-round.ts ggcLogRound), for a finite mean
+  return alpha > 1 ? withGgcLogRound(node, raw(1)) : node;
 }
 
 /**
@@ -226,8 +230,11 @@ export function lomax(alpha: number, theta: number): Node {
   const dampedLogCf = shiftDamped(-theta, p);
   const dampedCf = shiftDampedCf(-theta, p);
   const pe = p.dampedErrorAt;
-  return {
+  const node: Node = {
     ...p,
+    logRoundSlope: undefined,
+    logRoundAt: undefined,
+    logRoundNote: undefined,
     notes: [`lomax CF computed by quadrature on a rotated contour (absolute error <= ${p.cfAbsError!.toPrecision(2)})`],
     // X = P - theta with P pareto(alpha, theta): the damped transform and the endpoint expansion move with the shift
     dampedLogCf,
@@ -255,6 +262,10 @@ export function lomax(alpha: number, theta: number): Node {
     },
     cumulants: (m) => rawToCumulants(cumulantList(m, alpha, raw)),
   };
+  // claim-law rounding (./log-round.ts ggcLogRound): the pareto's log (8 ulps of |L_P|, L_P that of X + theta, mean
+  // m + theta) less i theta t (one more rounding, u |L|): 8 u (1 + pi) (m + theta + m / 8) per unit |t|; the density decreases
+  // from alpha / theta
+  return alpha > 1 ? withGgcLogRound(node, (raw(1) + theta + raw(1) / 8) * (1 + 4 * Number.EPSILON), decreasingDensityModulus(0, alpha / theta)) : node;
 }
 
 /**

@@ -1,4 +1,5 @@
 /** Types and shared helpers of the family parameter table (lib/cf/families/spec.ts). */
+import { shiftedLogRound } from "./log-round";
 import type { DirectLaw } from "../direct/types";
 import type { Node } from "../node";
 import { shiftDamped, shiftDampedCf } from "../damped-cf";
@@ -143,6 +144,8 @@ export function shiftBuilt(n: Node, b: number): Node {
     ...(n.laplaceExpansion ? { laplaceExpansion: { ...n.laplaceExpansion, at: n.laplaceExpansion.at + b } } : {}),
     ...(n.severity && b > 0 ? { severity: { ...n.severity, lo: n.severity.lo + b, pdf: (x: number) => n.severity!.pdf(x - b), upper: (q: number) => n.severity!.upper(q) + b } } : {}),
     ...(n.severity && b < 0 ? { severity: undefined } : {}),
+    // the claim-law rounding moves with the shift (./log-round.ts)
+    ...shiftedLogRound(n, b),
   };
   return withCumulantErrors(moved, (m) => cumulantEst(n, m).map((v, k) => (k === 0 && v ? add(v, exact(b)) : v)));
 }

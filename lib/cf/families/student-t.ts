@@ -11,6 +11,7 @@ import { EXP_SUM_DROP, EXP_SUM_REL, arithmeticNodes, expSumArithmetic } from "./
 import { besselTrapezoidStep, logBesselKScaledBounded } from "./bessel-bounded";
 import { base } from "./continuous";
 import { studentMixtureLog0, studentMixtureLogCf } from "./student-mixture";
+import { linearLogRound } from "./log-round";
 
 const U = Number.EPSILON / 2;
 
@@ -72,7 +73,22 @@ export function studentT(nu: number, loc: number, scale: number): Node {
     scale: nu > 2 ? scale * Math.sqrt(nu / (nu - 2)) : scale,
     support: [-Infinity, Infinity],
     tails: { left: nu, right: nu },
+    ...studentLogRound(nu, loc, scale),
   });
+}
+
+/**
+ * Node.logRoundSlope of Student t (./log-round.ts, L = i loc t + v, v real <= 0, |phi| |L| <= |loc| |t| + |v| e^v): |v| e^v <= 1 - e^v =
+ * E[1 - cos(t (X - loc))] <= |t| E|X - loc| (x |log x| <= 1 - x; 1 - cos y <= |y|), E|X - loc| = scale E|T_nu| = scale
+ * 2 sqrt(nu) Gamma((nu+1)/2) / (sqrt(pi) (nu - 1) Gamma(nu/2)) <= scale sqrt(2/pi) nu / (nu - 1) (Gamma(x + 1/2) / Gamma(x) <=
+ * sqrt x, Wendel 1948), and <= scale sqrt(nu / (nu - 2)) (the sd) for nu > 2; nu = 1 is Cauchy (v = -scale |t|). Below
+ * nu = 1, 1 - e^v grows like |t|^nu, faster than |t|: not derived. The slope alone, R |t| at every frequency (a Bessel rule per
+ * frequency would cost the inversions' node-by-node bounds more than their sums).
+ */
+function studentLogRound(nu: number, loc: number, scale: number): Pick<Node, "logRoundSlope" | "logRoundAt"> {
+  if (nu < 1) return {};
+  const k = nu === 1 ? scale : scale * Math.min((Math.sqrt(2 / Math.PI) * nu) / (nu - 1), nu > 2 ? Math.sqrt(nu / (nu - 2)) : Infinity) * (1 + 8 * Number.EPSILON);
+  return linearLogRound((Math.abs(loc) + k) * (1 + 8 * Number.EPSILON));
 }
 
 /**

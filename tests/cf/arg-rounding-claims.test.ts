@@ -1,0 +1,75 @@
+import { describe, expect, it } from "vitest";
+import { compile } from "@/lib/cf/compile";
+import { cfRelError, cfUlps, declaredCfError } from "@/lib/cf/invert/part";
+import type { Model } from "@/lib/cf/types";
+import { readFileSync } from "node:fs";
+import { join } from "node:path";
+
+// Claim laws beyond the nine of claim-laws.json, with a large mean and a small spread: the claim's log-CF is large in phase
+// (about E X t) while |phi_X| stays near 1, so its rounding is far above the compound's own allowance; each declares its
+// logRound (lib/cf/families/log-round.ts: variance gamma, NIG, Student t, stable, Poisson, binomial, negative binomial
+// claims, the lognormal as a generalized gamma convolution, and a scale and a shift node carrying their child's).
+// Reference: tests/fixtures/arg-rounding/claim-laws-more.json (generate_claim_laws_more.py beside it, mpmath 50 digits,
+// two methods per claim law: closed forms, mixtures, quadratures).
+describe("a compound carries the rounding of each further claim law", () => {
+  const fx = JSON.parse(readFileSync(join(__dirname, "../fixtures/arg-rounding/claim-laws-more.json"), "utf8")) as {
+    cases: { name: string; model: Model; grid?: { h: number; K: number }; rows: { t: number; k?: number; phi: number[]; crossCheck: number }[] }[];
+  };
+  for (const c of fx.cases) {
+    const m = compile(c.model);
+    // the quadrature claims on their equispaced grid (the phase unwrapped along it), the others one frequency at a time
+    const grid = c.grid ? Float64Array.from({ length: c.grid.K }, (_, i) => (i + 1) * c.grid!.h) : null;
+    const gRe = grid ? new Float64Array(grid.length) : null;
+    const gIm = grid ? new Float64Array(grid.length) : null;
+    if (grid) m.logCf(grid, gRe!, gIm!);
+    const errorAt = (r: { t: number; k?: number; phi: number[] }) => {
+      const re = new Float64Array(1);
+      const im = new Float64Array(1);
+      if (grid) {
+        expect(grid[r.k! - 1]).toBe(r.t);
+        re[0] = gRe![r.k! - 1];
+        im[0] = gIm![r.k! - 1];
+      } else m.logCf(Float64Array.of(r.t), re, im);
+      const own = Math.exp(re[0]) * cfRelError(cfUlps(m), re[0], im[0], r.t, 0) + declaredCfError(m);
+      const err = Math.hypot(Math.exp(re[0]) * Math.cos(im[0]) - r.phi[0], Math.exp(re[0]) * Math.sin(im[0]) - r.phi[1]);
+      const S = m.cfArgSlope ?? 0;
+      const slope = Math.min(S * r.t, m.cfArgErrAt ? m.cfArgErrAt(r.t) : Infinity);
+      return { err, own, slope };
+    };
+    it(`${c.name}: the two methods agree, the slope is derived, and the allowance alone is below the error somewhere`, () => {
+      for (const r of c.rows) expect(r.crossCheck, `t ${r.t}`).toBeLessThan(1e-30);
+      expect(Number.isFinite(m.cfArgSlope ?? NaN) && (m.cfArgSlope ?? 0) > 0).toBe(true);
+      // the quadrature claims' declared CF error (about 2e-15 / sigma for the lognormal, growing with alpha for the
+      // Pareto) stays above their phase's rounding (u E X t where |phi_X| is near 1, t up to about 1 / sd): their rows
+      // check the bound on the unwrapped grid, not that the term is needed
+      if (!grid) expect(c.rows.some((r) => errorAt(r).err > 4 * errorAt(r).own)).toBe(true);
+      else {
+        // the claim law's own phase on that grid is unwrapped far past pi (about E X t)
+        const each = compile((c.model as unknown as { compound: { each: Model } }).compound.each);
+        const xr = new Float64Array(grid.length);
+        const xi = new Float64Array(grid.length);
+        each.logCf(grid, xr, xi);
+        expect(Math.abs(xi[grid.length - 1])).toBeGreaterThan(1000);
+      }
+    });
+    it(`${c.name}: the allowance plus the declared slope (per frequency) is never below the actual error, within 100x where largest`, () => {
+      let tightest = Infinity;
+      for (const r of c.rows) {
+        const { err, own, slope } = errorAt(r);
+        const bound = own + slope + r.crossCheck;
+        expect(err, `t ${r.t}: error ${err}, bound ${bound} (allowance ${own}, slope ${slope})`).toBeLessThanOrEqual(bound);
+        if (err > 4 * own) tightest = Math.min(tightest, bound / err);
+      }
+      if (!grid) expect(tightest).toBeLessThan(100);
+    });
+  }
+});
+
+// A claim law that declares no such bound is not silently taken as exact: the compound's notes say the term is left out.
+describe("a claim law without a derived log rounding is named in the notes", () => {
+  it("a compound of beta claims (its log unwrapped along the grid) notes it; a gamma claim's does not", () => {
+    const note = (each: object) => compile({ compound: { count: { family: "poisson", lambda: 1 }, each } } as unknown as Model).notes.some((n) => n.includes("not derived for this claim law"));
+    expect(note({ family: "beta", alpha: 2, beta: 3 })).toBe(true);
+    expect(note({ family: "gamma", shape: 2, rate: 1 })).toBe(false);
+  });
+});
