@@ -55,16 +55,55 @@ export function severityRoundingNote(meanN: number | null, X: Node): string[] {
   return X.logRoundNote ? [X.logRoundNote] : [];
 }
 
-export function severityRounding(meanN: number | null, X: Node, slope: number, errAt: ((t: number) => number) | undefined) {
+export function severityRounding(
+  meanN: number | null,
+  X: Node,
+  slope: number,
+  errAt: ((t: number) => number) | undefined,
+  rectDamped = false,
+  count?: { cgfSlope: number | undefined; self: () => Node },
+) {
   const R = X.logRoundSlope;
   const add = R === undefined ? NaN : meanN !== null && Number.isFinite(meanN) ? meanN * R * (1 + 2 * Number.EPSILON) : Infinity;
   if (!(add > 0)) return { argSlope: slope, argErrAt: errAt };
   const at = X.logRoundAt;
   const child = errAt ?? ((t: number) => slope * t);
-  // per frequency where the severity derives it (E N times its R(t)), else the slope
-  const own = at && meanN !== null ? (t: number) => meanN * at(t, X) * (1 + 2 * Number.EPSILON) : (t: number) => add * t;
+  // |P_N'(z)| <= E N, and <= c |P_N(z)| where the count's log-derivative is bounded by c (Node.cgfSlope): |P_N(phi_X)| is
+  // the compound's |phi| (its majorants, read from the compound at the call, times 1 + 1e-9 for the move of z)
+  const n = meanN as number;
+  const c = count?.cgfSlope;
+  const gain = (m: number) => (c !== undefined && Number.isFinite(c) ? Math.min(n, c * Math.min(1, m) * (1 + 1e-9)) : n);
+  const T = new Float64Array(1);
+  const M = new Float64Array(1);
+  const undampedGain = (t: number) => {
+    const self = count?.self();
+    if (!self || c === undefined) return n;
+    T[0] = Math.abs(t) * (1 - 2 * Number.EPSILON);
+    if (self.logMajorant) {
+      self.logMajorant(T, M);
+      return gain(Math.exp(M[0]) * (1 + 4 * Number.EPSILON));
+    }
+    const cm = self.continuousMajorant;
+    if (!cm) return n;
+    cm.maj(T, M);
+    let p = 0;
+    for (const a of cm.atoms) p += a.p;
+    return gain((p + Math.exp(M[0])) * (1 + 4 * Number.EPSILON));
+  };
+  const dampedGain = (beta: number, t: number) => {
+    const self = count?.self();
+    const dm = self?.dampedMajorant;
+    if (!self || !dm || dm.cf !== self.dampedLogCf || !(self.support[0] >= 0)) return n;
+    return gain((dm.atom + dm.rest(beta, Math.abs(t))) * (1 + 4 * Number.EPSILON));
+  };
+  // per frequency where the severity derives it (E N, or the count's slope times |phi|, times its R(t)), else the slope
+  const own = at && meanN !== null ? (t: number) => undampedGain(t) * at(t, X) * (1 + 2 * Number.EPSILON) : (t: number) => add * t;
   const dAt = X.logRoundDampedAt;
-  // damped: the children's slope (t + beta) plus E N R~(beta, t) where the severity derives it
-  const damped = dAt && meanN !== null ? { argErrDampedAt: (beta: number, t: number) => (slope * (t + beta) + meanN * dAt(beta, t, X)) * (1 + 4 * Number.EPSILON) } : {};
+  // damped: the children's slope (t + beta) plus E N R~(beta, t) where the severity derives it; nothing where the damped
+  // transform takes the claim law's transform itself, no log between (`rectDamped`: ./damped-cf.ts compoundDamped's
+  // dampedCf and the count's log-pgf)
+  const damped = rectDamped
+    ? { argErrDampedAt: (beta: number, t: number) => slope * (t + beta) * (1 + 4 * Number.EPSILON) }
+    : dAt && meanN !== null ? { argErrDampedAt: (beta: number, t: number) => (slope * (t + beta) + dampedGain(beta, t) * dAt(beta, t, X)) * (1 + 4 * Number.EPSILON) } : {};
   return { argSlope: (slope + add) * (1 + Number.EPSILON), argErrAt: (t: number) => (Math.min(child(t), slope * t) + own(t)) * (1 + 2 * Number.EPSILON), ...damped };
 }

@@ -79,7 +79,10 @@ export function compoundNode(N: Node, X: Node, discretise: DiscretiseOptions | n
     // |P_N(z + d) - P_N(z)| <= E[N] |d| for |z| <= 1 (|P_N'| <= E N on the unit disc); relative |dP / P| <= slope |d|
     // when the count's log-derivative is bounded (Poisson, negative binomial)
     ...compoundErrors(N, X, layered?.unlisted ?? 0),
-    ...severityRounding(N.cumulants(1)[0], X, compoundArgSlope(N.cumulants(1)[0], X), compoundArgErrAt(N.cumulants(1)[0], X)),
+    ...severityRounding(N.cumulants(1)[0], X, compoundArgSlope(N.cumulants(1)[0], X), compoundArgErrAt(N.cumulants(1)[0], X), !!(X.dampedCf && N.countLogPgf), {
+      cgfSlope: N.cgfSlope,
+      self: () => node,
+    }),
     cumulants(n) {
       const kx = X.cumulants(n);
       const kn = N.cumulants(n);

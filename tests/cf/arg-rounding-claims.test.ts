@@ -73,3 +73,30 @@ describe("a claim law without a derived log rounding is named in the notes", () 
     expect(note({ family: "gamma", shape: 2, rate: 1 })).toBe(false);
   });
 });
+
+// The quadrature claims' per-frequency bound (lib/cf/families/log-round.ts ggcLogRound: |phi| |L| <= min(1/e, E X t) +
+// max(pi |phi|, min(|phi| E X t, int_0^t |phi'|)), the last through the family's derivative majorant), which a Poisson(1)
+// compound takes times |P'(phi_X)| = |exp(phi_X - 1)| (bounded through the compound's majorant), against that product with
+// |phi| |L| on the continuous branch. Reference: tests/fixtures/arg-rounding/ggc-log.json (generate_ggc_log.py beside it:
+// the Pareto CF by the exponential integral and by the incomplete gamma function, mpmath 30 digits, the argument unwrapped
+// on a fine grid); P' of the Poisson pgf in closed form (common practice).
+describe("the quadrature claims' log rounding per frequency", () => {
+  const fx = JSON.parse(readFileSync(join(__dirname, "../fixtures/arg-rounding/ggc-log.json"), "utf8")) as {
+    model: object;
+    rows: { t: number; absPhi: number; theta: number; phiTimesLog: number; crossCheck: number }[];
+  };
+  it("a Poisson(1) compound of Pareto(3, 1) claims bounds |P'(phi_X)| 8 u |phi_X| |L_X| at every row, within 20x, and tighter than the slope alone", () => {
+    const m = compile({ compound: { count: { family: "poisson", lambda: 1 }, each: fx.model } } as unknown as Model);
+    let slopeOnly = 0;
+    for (const r of fx.rows) {
+      expect(r.crossCheck, `t ${r.t}`).toBeLessThan(1e-25);
+      const dP = Math.exp(r.absPhi * Math.cos(r.theta) - 1);
+      const need = dP * 8 * Number.EPSILON * r.phiTimesLog;
+      const b = m.cfArgErrAt!(r.t);
+      expect(b, `t ${r.t}: bound ${b}, |P'| 8 u |phi| |L| ${need}`).toBeGreaterThanOrEqual(need);
+      expect(b / need, `t ${r.t}`).toBeLessThan(20);
+      slopeOnly = Math.max(slopeOnly, ((m.cfArgSlope ?? 0) * r.t) / need);
+    }
+    expect(slopeOnly).toBeGreaterThan(50);
+  });
+});

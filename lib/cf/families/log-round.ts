@@ -52,43 +52,90 @@ export function linearLogRound(c: number, logAt?: (t: Float64Array, re: Float64A
  * A positive law that is a generalized gamma convolution (Bondesson 1992, Generalized Gamma Convolutions and Related
  * Classes of Distributions and Densities, Springer, ch. 3-5: the lognormal, Pareto and Lomax, Weibull of shape <= 1,
  * Burr and log-logistic of power <= 1, inverse gamma are hyperbolically completely monotone, hence GGC), with mean m:
- * log phi(t) = i a t - int log(1 - i t / x) U(dx) (a >= 0, U >= 0), so its continuous argument a t + int atan(t / x) U(dx)
- * lies in [0, m t] (m = a + int U(dx) / x), and the damped one, a t + int atan(t / (x + beta)) U(dx), in [0, m t] too.
- * Any law: |phi| |log |phi|| <= 1 - |phi| <= |1 - phi| <= m hypot(t, beta) (x |log x| <= 1 - x on [0, 1]; |e^{iy} - 1| <= |y|),
- * and a principal argument (one frequency alone, the damped quadratures) is at most pi min(1, |1 - phi|) (|1 - w| = r < 1
- * gives |arg w| <= asin r <= pi r / 2). The quadrature families' logs are log|phi| plus atan2 plus multiples of fl(2 pi)
- * (../complex.ts unwrapFrom: 0.36 u relative plus the subtraction's rounding, inside the 8 ulps of |L|), continuous when
- * the grid resolves the argument (steps below pi), else principal: |phi| |L| <= (1 + pi) m (|t| + beta) in either case,
- * R = 8 u (1 + pi) m, for the damped transform too (with |t| + beta). Per frequency: |phi(t)| <= M(t) (the family's majorant
- * where it has one, read at the call), so |phi| |L| <= min(1/e, m t, M |log M| where M <= 1/e) + M(t) max(pi, m t); damped,
- * the same with |phi~(beta, t)| <= atom + rest(beta, t) from the family's damped majorant (../damped-majorant.ts, lo >= 0:
- * e^{-beta lo} <= 1) and m hypot(t, beta), m (t + beta). `modulus(beta, t)`: the family's own bound on |phi~| (beta = 0: |phi|)
- * where it derives one, taken where less. Where the unwrap misses a step (a grid coarser than about pi / m)
+ * log phi(t) = i a t - int log(1 - i t / x) U(dx) (a >= 0, U >= 0), so |phi| = exp(-int log(1 + t^2 / x^2) U(dx) / 2) does
+ * not increase in t and the continuous argument theta = a t + int atan(t / x) U(dx) lies in [0, m t] (m = a + int U(dx) / x);
+ * damped, |phi~(beta, t)| does not increase in t either and theta~ = a t + int atan(t / (x + beta)) U(dx) in [0, m t].
+ * Since theta' <= |phi'| / |phi| and |phi| does not increase, |phi(t)| theta(t) <= int_0^t |phi'(s)| ds =: I(t), bounded by
+ * the family's derivative majorant (../majorant.ts slope, or the damped majorant's) summed on a geometric grid (upper sums:
+ * the majorants do not increase). Any law: |phi| |log |phi|| <= min(1/e, 1 - |phi|) <= |1 - phi| <= m hypot(t, beta)
+ * (x |log x| <= 1 - x on [0, 1]; |e^{iy} - 1| <= |y|), and a principal argument (one frequency alone, the damped
+ * quadratures) is at most pi min(1, |1 - phi|) (|1 - w| = r < 1 gives |arg w| <= asin r <= pi r / 2). The quadrature
+ * families' logs are log|phi| plus atan2 plus multiples of fl(2 pi) (../complex.ts unwrapFrom: 0.36 u relative plus the
+ * subtraction's rounding, inside the 8 ulps of |L|), continuous when the grid resolves the argument (steps below pi), else
+ * principal: |phi| |L| <= (1 + pi) m (|t| + beta) either way, R = 8 u (1 + pi) m, damped with |t| + beta. Per frequency,
+ * with |phi| <= M (the family's majorant, or `modulus`, its own bound on |phi~| at (beta, t)), |phi| |L| <= min(1/e, m t,
+ * M |log M| where M <= 1/e) + max(pi M, min(M m t, I(t))). `shift` c: a family whose log is the quadrature's less i c t
+ * (the Lomax, X = P - c): the rounding is 8 ulps of |L_P| <= |L| + c (|t| + beta) plus u |L|, so R = 9 u (1 + pi) (m + c) and
+ * per frequency c (|t| + beta) M joins the argument. Where the unwrap misses a step (a grid coarser than about pi / m)
  * the bound assumes the computed argument stays on the continuous or the principal branch: `logRoundNote` says so, and the
  * compound lists it.
  */
-export function ggcLogRound(mean: number, node?: () => Node, modulus?: (beta: number, t: number) => number): LogRound & Pick<Node, "logRoundNote" | "logRoundDampedAt"> {
+export function ggcLogRound(
+  mean: number,
+  node?: () => Node,
+  modulus?: (beta: number, t: number) => number,
+  shift = 0,
+): LogRound & Pick<Node, "logRoundNote" | "logRoundDampedAt"> {
   if (!(mean >= 0 && Number.isFinite(mean))) return {};
-  const slope = U8 * (1 + Math.PI) * mean * (1 + U8);
+  const k = shift > 0 ? 1.125 : 1;
+  const slope = U8 * k * (1 + Math.PI) * (mean + shift) * (1 + U8);
   const T = new Float64Array(1);
   const M = new Float64Array(1);
-  // 8 u (|phi| |log|phi|| + |phi| |arg|) with |phi| <= m, |1 - phi| <= r, the continuous argument at most a
-  const part = (m: number, r: number, a: number) => {
+  const V = new Float64Array(1);
+  // the per-frequency bound: |phi| <= m, |1 - phi| <= r, int_0^t |phi'| <= I, the frequency (plus beta) w
+  const part = (m: number, r: number, I: number, w: number) => {
     const re = Math.min(1 / Math.E, r, m <= 1 / Math.E ? (m > 0 ? -m * Math.log(m) * (1 + 4 * Number.EPSILON) : 0) : Infinity);
-    return U8 * (re + m * Math.max(Math.PI, a)) * (1 + 8 * Number.EPSILON);
+    const arg = Math.max(Math.PI * m, Math.min(m * mean * w, I)) + m * shift * w;
+    return (U8 * k * (re + arg) + (shift > 0 ? Number.EPSILON * m * shift * w : 0)) * (1 + 16 * Number.EPSILON);
+  };
+  // I(t) of the undamped CF (per node: the majorants are the compiled node's), and of the damped one per beta
+  const undamped = new WeakMap<Node, (t: number) => number>();
+  const damped = new WeakMap<Node, Map<number, (t: number) => number>>();
+  const s0 = 1e-3 / Math.max(mean, Number.MIN_VALUE);
+  const integralOf = (n: Node): ((t: number) => number) | null => {
+    let f = undamped.get(n);
+    if (f) return f;
+    const maj = n.logMajorant;
+    const sl = maj?.slope;
+    if (!maj || !sl) return null;
+    const c = Math.abs(sl.center);
+    f = upperIntegral((s) => {
+      T[0] = s * (1 - 2 * Number.EPSILON);
+      sl.at(T, V);
+      maj(T, M);
+      return (V[0] + c * Math.exp(M[0])) * (1 + 8 * Number.EPSILON);
+    }, s0, mean);
+    undamped.set(n, f);
+    return f;
+  };
+  const dampedIntegralOf = (n: Node, beta: number): ((t: number) => number) | null => {
+    const dm = n.dampedMajorant;
+    const lo = n.support[0];
+    if (!dm || dm.cf !== n.dampedLogCf || !(lo >= 0)) return null;
+    let byBeta = damped.get(n);
+    if (!byBeta) damped.set(n, (byBeta = new Map()));
+    let f = byBeta.get(beta);
+    if (f) return f;
+    // d/dt of e^{(i t - beta) lo} (atom + rest part): at most lo (atom + rest) + slope (e^{-beta lo} <= 1)
+    f = upperIntegral((s) => (dm.slope(beta, s) + lo * (dm.atom + dm.rest(beta, s))) * (1 + 8 * Number.EPSILON), s0, mean);
+    if (byBeta.size > 16) byBeta.clear();
+    byBeta.set(beta, f);
+    return f;
   };
   return {
     logRoundSlope: slope,
     logRoundAt: (t, self) => {
       const a = Math.abs(t);
-      const maj = (self ?? node?.())?.logMajorant;
+      const n = self ?? node?.();
+      const maj = n?.logMajorant;
       let m = modulus ? modulus(0, a) : 1;
       if (maj) {
-        T[0] = a * (1 - Number.EPSILON);
+        T[0] = a * (1 - 2 * Number.EPSILON);
         maj(T, M);
         m = Math.min(m, Math.exp(M[0]) * (1 + 4 * Number.EPSILON));
       }
-      return m < 1 ? Math.min(slope * a, part(m, mean * a, mean * a)) : slope * a;
+      const I = n ? integralOf(n) : null;
+      return Math.min(slope * a, part(Math.min(1, m), mean * a, I ? I(a) : Infinity, a));
     },
     logRoundDampedAt: (beta, t, self) => {
       const a = Math.abs(t);
@@ -96,17 +143,55 @@ export function ggcLogRound(mean: number, node?: () => Node, modulus?: (beta: nu
       const dm = n?.dampedMajorant;
       let m = modulus ? modulus(beta, a) : 1;
       if (n && dm && dm.cf === n.dampedLogCf && n.support[0] >= 0) m = Math.min(m, (dm.atom + dm.rest(beta, a)) * (1 + 4 * Number.EPSILON));
-      if (!(m < 1)) return slope * (a + beta);
-      return Math.min(slope * (a + beta), part(m, mean * Math.hypot(a, beta) * (1 + 2 * Number.EPSILON), mean * (a + beta)));
+      const I = n ? dampedIntegralOf(n, beta) : null;
+      const r = mean * Math.hypot(a, beta) * (1 + 2 * Number.EPSILON);
+      return Math.min(slope * (a + beta), part(Math.min(1, m), r, I ? I(a) : Infinity, a + beta));
     },
     logRoundNote:
       "the quadrature claim law's log rounding is bounded with its phase on the continuous or the principal branch (the unwrap along a grid finer than about pi / E X)",
   };
 }
 
-/** `node` with ggcLogRound of its mean, its majorant read from the node at each call (compile sets it after the family) */
-export function withGgcLogRound<N extends Node>(node: N, mean: number, modulus?: (beta: number, t: number) => number): N {
-  return Object.assign(node, ggcLogRound(mean, () => node, modulus));
+/**
+ * An upper bound on int_0^t D(s) ds for a non-increasing D <= cap: upper sums on the grid s_j = s0 2^{j/4} (the interval
+ * [s_{j-1}, s_j] at D(s_{j-1}), [0, s0] at cap), the next grid point's sum at t; past the grid, its last sum plus
+ * (t - s_last) D(s_last). Built at the first call.
+ */
+function upperIntegral(D: (s: number) => number, s0: number, cap: number): (t: number) => number {
+  let grid: { s: Float64Array; I: Float64Array; dLast: number } | null = null;
+  const build = () => {
+    const s = new Float64Array(481);
+    const I = new Float64Array(481);
+    s[0] = s0;
+    I[0] = s0 * cap;
+    let d = Math.min(cap, D(s0));
+    let n = 1;
+    for (; n < 481 && d > 0; n++) {
+      s[n] = s0 * 2 ** (n / 4);
+      I[n] = (I[n - 1] + (s[n] - s[n - 1]) * d) * (1 + 4 * Number.EPSILON);
+      d = Math.min(d, D(s[n]));
+    }
+    return { s: s.subarray(0, n), I: I.subarray(0, n), dLast: d };
+  };
+  return (t) => {
+    if (!(t > s0)) return t * cap;
+    const g = (grid ??= build());
+    const last = g.s.length - 1;
+    if (t > g.s[last]) return (g.I[last] + (t - g.s[last]) * g.dLast) * (1 + 4 * Number.EPSILON);
+    let lo = 0;
+    let hi = last;
+    while (hi - lo > 1) {
+      const mid = (lo + hi) >> 1;
+      if (g.s[mid] >= t) hi = mid;
+      else lo = mid;
+    }
+    return g.I[hi];
+  };
+}
+
+/** `node` with ggcLogRound of its mean, its majorants read from the node at each call (compile sets them after the family) */
+export function withGgcLogRound<N extends Node>(node: N, mean: number, modulus?: (beta: number, t: number) => number, shift = 0): N {
+  return Object.assign(node, ggcLogRound(mean, () => node, modulus, shift));
 }
 
 type Carried = Pick<Node, "logRoundSlope" | "logRoundAt" | "logRoundDampedAt" | "logRoundNote">;

@@ -262,10 +262,9 @@ export function lomax(alpha: number, theta: number): Node {
     },
     cumulants: (m) => rawToCumulants(cumulantList(m, alpha, raw)),
   };
-  // claim-law rounding (./log-round.ts ggcLogRound): the pareto's log (8 ulps of |L_P|, L_P that of X + theta, mean
-  // m + theta) less i theta t (one more rounding, u |L|): 8 u (1 + pi) (m + theta + m / 8) per unit |t|; the density decreases
-  // from alpha / theta
-  return alpha > 1 ? withGgcLogRound(node, (raw(1) + theta + raw(1) / 8) * (1 + 4 * Number.EPSILON), decreasingDensityModulus(0, alpha / theta)) : node;
+  // claim-law rounding (./log-round.ts ggcLogRound): the pareto's log (X + theta) less i theta t, a shift of theta; the
+  // density decreases from alpha / theta
+  return alpha > 1 ? withGgcLogRound(node, raw(1), decreasingDensityModulus(0, alpha / theta), theta) : node;
 }
 
 /**
