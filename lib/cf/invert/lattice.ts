@@ -115,7 +115,10 @@ export function solveLattice(model: CompiledModel, origin: number, step: number,
  * twiddles from Math.cos/sin of 2 pi k/N, mu <= (2 pi + 2) u) gives eta <= 16 u; per output, the levels' errors are at
  * most eta times the absolute sum of the inputs they combine, which partition the inputs.
  * pmf (each point): (1/N) (sum_j e_j + L sum_j |x_j|), L = log2(N) eta / (1 - log2(N) eta). cdf and sf (a run of up to
- * N points): ||.||_1 <= sqrt(N) ||.||_2 and ||F d||_2 = sqrt(N) ||d||_2 give sqrt(sum_j e_j^2) + L sqrt(sum_j |x_j|^2).
+ * N points): ||.||_1 <= sqrt(N) ||.||_2 and ||F d||_2 = sqrt(N) ||d||_2 give sqrt(sum_j e_j^2) + L sqrt(sum_j |x_j|^2);
+ * for the inputs' part also, summing the run first, (1/N) sum_j e_j |sum_q w^{jq}| with the Dirichlet kernel's
+ * |sin(pi j m / N) / sin(pi j / N)| <= N / (2 |jj|) (sin(pi y) >= 2y on [0, 1/2]), m <= N at j = 0:
+ * e_0 + sum_{j != 0} e_j / (2 |jj|), the smaller of the two taken.
  * Both carry (1 + 2 N u) for the rounding of these sums of positive terms.
  */
 function latticeByFft(model: CompiledModel, origin: number, step: number, k0: number, N: number): { p: Float64Array; pmf: number; cdf: number } {
@@ -182,6 +185,7 @@ function latticeByFft(model: CompiledModel, origin: number, step: number, k0: nu
   const kr = (((k0 - v.M) % N) + N) % N;
   let sumE = 0;
   let sumE2 = 0;
+  let sumD = 0;
   let sumX = 0;
   let sumX2 = 0;
   for (let j = 0; j < N; j++) {
@@ -198,6 +202,7 @@ function latticeByFft(model: CompiledModel, origin: number, step: number, k0: nu
     const x = mag[j] * (1 + 6 * u);
     sumE += e;
     sumE2 += e * e;
+    sumD += jj === 0 ? e : e / (2 * Math.abs(jj));
     sumX += x;
     sumX2 += x * x;
   }
@@ -207,7 +212,7 @@ function latticeByFft(model: CompiledModel, origin: number, step: number, k0: nu
   const levels = Math.log2(N);
   const L = (levels * 16 * u) / (1 - levels * 16 * u);
   const sums = 1 + 2 * N * u;
-  return { p, pmf: ((sumE + L * sumX) / N) * sums, cdf: (Math.sqrt(sumE2) + L * Math.sqrt(sumX2)) * sums * (1 + 2 * u) };
+  return { p, pmf: ((sumE + L * sumX) / N) * sums, cdf: (Math.min(Math.sqrt(sumE2), sumD) + L * Math.sqrt(sumX2)) * sums * (1 + 2 * u) };
 }
 
 /**

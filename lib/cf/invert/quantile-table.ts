@@ -41,7 +41,10 @@ export function tableQuantiles(
   // stretch of x where the true cdf can cross p: from the table's quantile at p - e (one cell lower, since the
   // continuous law's mass of that cell may lie anywhere in it) to its quantile at p + e.
   const approx = method === "discretised";
-  const slack = approx ? 0 : errCdf;
+  // the levels p -+ e compared with the table's sums are themselves rounded (within u, every value in [0, 1]): 2 eps
+  // more keeps each comparison's conclusion about the exact cdf (F < p or F >= p) true
+  const e = errCdf + 2 * Number.EPSILON;
+  const slack = approx ? 0 : e;
   const first = (level: number, sl: number) => {
     let k = 0;
     if (level > 0.5) {
@@ -69,7 +72,7 @@ export function tableQuantiles(
       // a law on these points: with |F_table - F| <= errCdf at every point, F(x_j) >= p wherever F_table(x_j) >= p + e,
       // and F(x_j) < p wherever F_table(x_j) < p - e, so q_p is one of the points from k (the first with F_table >= p - e)
       // to the first with F_table >= p + e; 0 only when the cdf bound separates the level from every jump
-      const hiLevel = pi + errCdf;
+      const hiLevel = pi + e;
       const kHi = hiLevel >= 1 ? n - 1 : first(hiLevel, 0);
       const reached = hiLevel >= 1 ? closed : hiLevel > 0.5 ? sf[kHi] <= 1 - hiLevel : cdf[kHi] >= hiLevel;
       err[i] = pi <= 0 || pi >= 1 ? 0 : reached ? xs[kHi] - xs[k] : Infinity;
