@@ -2,7 +2,7 @@ import type { FamilyModel, Model } from "./schema";
 import { FAMILY_SPECS, type FamilyParams } from "./families/spec";
 import { affineDirect } from "./direct/affine";
 import { affineDist } from "./families/dist";
-import type { CompiledModel } from "./types";
+import type { CompiledModel, LatticeTable } from "./types";
 import type { Node } from "./node";
 import { validateModel } from "./validate";
 import { toLawKind } from "./kinds";
@@ -19,6 +19,10 @@ import { compoundNode, latticeNode, mixNode, repeatNode, sampleNode, scaleNode, 
 import { cumulantEst, withCumulantErrors } from "./cumulant-bounds";
 import { latticeE, sampleE } from "./cumulant-ops";
 import { foldStableSum } from "./stable-fold";
+import { latticeSumDirect, MAX_LATTICE_SUM_TERMS } from "./direct/lattice-sum";
+import type { DirectLaw } from "./direct/types";
+import { convolveRelTables, convolveTables } from "./lattice";
+import { roundOf } from "./table-rounding";
 
 /** Options of compile(). */
 export interface CompileOptions {
@@ -95,8 +99,63 @@ function sumOf(cs: Node[], terms: Model[]): Node {
     // stable terms of one alpha: pdf, cdf and quantiles from the one stable law they add up to
     const folded = foldStableSum(terms);
     if (folded) node.direct = folded;
+    else {
+      // one continuous term with a direct law plus lattice terms with a short table: summed over the lattice points
+      const withLattice = latticeSumOf(cs);
+      if (withLattice) node.direct = withLattice;
+    }
   }
   return node;
+}
+
+/**
+ * X + K1 + ... for one continuous term X with a direct law and lattice terms K_j whose (convolved) table has per-entry
+ * bounds and at most MAX_LATTICE_SUM_TERMS points (./direct/lattice-sum.ts); null otherwise. The terms' spread is checked
+ * from their variances before any table is built.
+ */
+/**
+ * A table whose dropped mass is a bound: a recursion's (continued past the table), or 0 where the table reaches the law's
+ * last point; any other (1 - sum, whose cancellation hides a mass below u) widened by that subtraction's error, the sum's
+ * rounding gamma_n sum p and the entries' l1 bound (the law's mass is 1): 1 - sum p_exact <= tail + l1 + gamma_n sum p + u.
+ */
+function withTrustedTail(t: LatticeTable, hi: number): LatticeTable {
+  if (t.pointRel) return t;
+  if (t.tailMass === 0 && t.origin + (t.p.length - 1) * t.step >= hi) return t;
+  const r = roundOf(t);
+  if (!r) return t;
+  let s = 0;
+  for (let k = 0; k < t.p.length; k++) s += Math.max(t.p[k], 0);
+  const u = Number.EPSILON / 2;
+  const g = ((t.p.length + 2) * u) / (1 - (t.p.length + 2) * u);
+  return { ...t, tailMass: (t.tailMass + r.l1 + g * s + u) * (1 + 4 * u) };
+}
+
+function latticeSumOf(cs: Node[]): DirectLaw | null {
+  const cont = cs.filter((c) => c.kind.type === "continuous");
+  if (cont.length !== 1 || !cont[0].direct) return null;
+  const lat = cs.filter((c) => c !== cont[0]);
+  if (!lat.every((c) => c.kind.type === "lattice" && c.table && !c.approximate)) return null;
+  let width = 0;
+  for (const c of lat) {
+    const step = (c.kind as { step: number }).step || 1;
+    const v = c.cumulants(2)[1];
+    const lo = c.support[0];
+    const mean = c.cumulants(1)[0];
+    if (v === null || mean === null || !Number.isFinite(v) || !Number.isFinite(lo) || !Number.isFinite(mean)) return null;
+    width += (mean - lo + 40 * Math.sqrt(Math.max(v, 0))) / step;
+  }
+  if (!(width <= 2 * MAX_LATTICE_SUM_TERMS)) return null;
+  const tabs: LatticeTable[] = [];
+  for (const c of lat) {
+    const t = c.table!(MAX_LATTICE_SUM_TERMS + 1);
+    if (!t) return null;
+    tabs.push(withTrustedTail(t, c.support[1]));
+  }
+  // tables with per-entry relative bounds keep them through direct sums; others take the whole-table bounds
+  let t: LatticeTable | null = tabs[0];
+  for (let i = 1; i < tabs.length && t; i++) t = convolveRelTables(t, tabs[i], MAX_LATTICE_SUM_TERMS + 1);
+  if (!t) t = convolveTables(tabs, MAX_LATTICE_SUM_TERMS + 1);
+  return latticeSumDirect(cont[0].direct, t, lat.reduce((s, c) => s + c.support[0], 0));
 }
 
 /** a X: the direct evaluation and a mixture's components follow the scale */

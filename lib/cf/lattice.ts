@@ -4,6 +4,7 @@ import { checkDeadline } from "./deadline";
 import { MAX_LATTICE } from "./limits";
 import type { LatticeTable } from "./types";
 import { convolvedRound, roundOf, type TableRound } from "./table-rounding";
+import { twoSumErr } from "./moment-error";
 
 /** Relative tolerance for deciding that two steps (or an offset and a step) are commensurate. */
 export const COMMENSURATE_TOL = 1e-12;
@@ -154,19 +155,69 @@ export function convolveTables(tables: LatticeTable[], maxLength = MAX_LATTICE):
   let acc = steps[0].p;
   let round: TableRound | undefined = steps[0].round;
   let origin = steps[0].origin;
-  let mass = sum(steps[0].p) + steps[0].tailMass;
+  // the mass past the table, carried as a product (the exact law A + B leaves the table A_T * B_T with mass
+  // tA (|B_T| + tB) + |A_T| tB, plus what the truncation drops), not as 1 - sum, whose cancellation loses it below u
+  let tail = steps[0].tailMass;
+  const U = Number.EPSILON / 2;
   for (let i = 1; i < steps.length; i++) {
     const a = truncate(acc, maxLength);
     const b = truncate(steps[i].p, maxLength);
+    const ta = tail + sum(acc.subarray(a.length));
+    const tb = steps[i].tailMass + sum(steps[i].p.subarray(b.length));
     const c = convolve(a, b);
     acc = truncate(c, maxLength);
     const rb = steps[i].round;
+    const la = round?.l1 ?? 0;
     round = round && rb ? convolvedRound(a, b, round, rb, convolveByFft(a.length, b.length), nextPowerOfTwo(a.length + b.length - 1), c, acc.length) : undefined;
     origin += steps[i].origin;
-    mass *= sum(steps[i].p) + steps[i].tailMass;
+    // (the exact tables' masses within their l1 bounds of the sums; the dropped entries within the product's)
+    const sa = sum(a) + la;
+    const sb = sum(b) + (rb?.l1 ?? 0);
+    const dropped = c.length > acc.length ? sum(c.subarray(acc.length)) + (round?.l1 ?? 0) : 0;
+    tail = (ta * (sb + tb) + sa * tb + dropped) * (1 + (a.length + b.length + c.length + 8) * 2 * U);
   }
   const p = acc.length === acc.buffer.byteLength / 8 ? acc : acc.slice();
-  return { origin, step: g, p, tailMass: Math.max(0, mass - sum(p)), ...(round ? { round } : {}) };
+  // (the inputs' cut tails land inside the result's range: tailFrom 0 says so to a reader that places them)
+  return { origin, step: g, p, tailMass: Math.min(tail, 1), tailFrom: 0, ...(round ? { round } : {}) };
+}
+
+/**
+ * The convolution of two tables with per-entry relative bounds (pointRel, non-decreasing) on one step, by direct sums,
+ * with such a bound again: c_k = sum_i a_i b_{k-i}, each product's inputs within rho_a(i) + rho_b(k - i) + their
+ * product <= rho_a(k) + rho_b(k) + their product (non-decreasing; capped at each table's last entry), and the sum of at
+ * most m = min(la, lb) non-negative products within gamma_{m+1} of itself (Higham, Accuracy and Stability of Numerical
+ * Algorithms, 2nd ed., sec. 3.1). The mass past the result: tA (|B| + tB) + |A| tB plus the entries past maxLength,
+ * each table's exact mass within its last entry's relative bound of its sum. Null where a table has no pointRel, the
+ * steps differ or the origins' sum rounds.
+ */
+export function convolveRelTables(a: LatticeTable, b: LatticeTable, maxLength = MAX_LATTICE): LatticeTable | null {
+  const ra = a.pointRel;
+  const rb = b.pointRel;
+  const origin = a.origin + b.origin;
+  if (!ra || !rb || a.step !== b.step || twoSumErr(a.origin, b.origin, origin) !== 0) return null;
+  const la = a.p.length;
+  const lb = b.p.length;
+  const c = convolveDirect(a.p, b.p);
+  const p = c.length > maxLength ? c.slice(0, maxLength) : c;
+  const u = Number.EPSILON / 2;
+  const m = Math.min(la, lb) + 1;
+  const g = (m * u) / (1 - m * u);
+  const rel = (k: number) => {
+    const x = ra(Math.min(k, la - 1));
+    const y = rb(Math.min(k, lb - 1));
+    return ((x + y + x * y + g) / (1 - g)) * (1 + 4 * u);
+  };
+  const up = 1 + (la + lb + c.length + 8) * 2 * u;
+  const sa = sum(a.p) * (1 + ra(la - 1)) * up;
+  const sb = sum(b.p) * (1 + rb(lb - 1)) * up;
+  const dropped = c.length > p.length ? sum(c.subarray(p.length)) * (1 + rel(c.length - 1)) * up : 0;
+  const tailMass = Math.min((a.tailMass * (sb + b.tailMass) + sa * b.tailMass + dropped) * up, 1);
+  // the mass a cut table misses lies from its cut on, plus the other's first index (0 at the least): the result misses
+  // mass from the nearer cut on, inside its own range
+  const cutA = a.tailMass > 0 ? (a.tailFrom ?? la) : Infinity;
+  const cutB = b.tailMass > 0 ? (b.tailFrom ?? lb) : Infinity;
+  const tailFrom = Math.min(cutA, cutB, dropped > 0 ? p.length : Infinity, p.length);
+  return { origin, step: a.step, p, tailMass, tailFrom, pointRel: rel };
 }
 
 /**

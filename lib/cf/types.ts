@@ -34,6 +34,11 @@ export interface LatticeTable {
   beyond?: (k: number) => number;
   /** bounds on the rounding of p: every entry (pmf) and their sum (l1), where derived (../table-rounding.ts) */
   round?: { pmf: number; l1: number };
+  /**
+   * where known, the first index at which the dropped mass (tailMass) may lie: the table's length for a recursion cut
+   * at its end; a convolution of cut tables misses mass inside its own range too (./lattice.ts convolveRelTables)
+   */
+  tailFrom?: number;
 }
 
 export interface CompiledModel {

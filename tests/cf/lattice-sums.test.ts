@@ -1,6 +1,8 @@
-// Sums of a continuous law and a lattice term (normal + Poisson, Student t + binomial, gamma + Poisson): their CF is almost periodic, |phi(2 pi k)| held up by the lattice terms, so
-// sampling |phi| a few times per octave under-states the truncation error (the engine bounds it with a majorant of
-// |phi| instead, lib/cf/majorant.ts). pdf, cdf, sf at points and quantiles at 0.01, 0.5, 0.99 against mpmath at 30
+// Sums of a continuous law and a lattice term (normal + Poisson, Student t + binomial, gamma + Poisson), by both routes:
+// summed over the lattice points (lib/cf/direct/lattice-sum.ts, the route compile picks) and inverted from the CF (the
+// same model without its direct law). Their CF is almost periodic, |phi(2 pi k)| held up by the lattice terms, so
+// sampling |phi| a few times per octave under-states the inversion's truncation error (the engine bounds it with a
+// majorant of |phi| instead, lib/cf/majorant.ts). pdf, cdf, sf at points and quantiles at 0.01, 0.5, 0.99 against mpmath at 30
 // digits (tests/fixtures/lattice-sums/generate.py: exact convolution of the lattice atoms with the continuous law, its
 // cdf by a special function or quadrature and checked by a second quadrature). Each answer must lie within its own
 // reported bound (honest) and meet the accuracy aimed at (cdf 1e-9 absolute, quantiles 1e-7 relative).
@@ -8,6 +10,19 @@ import { afterAll, describe, expect, it } from "vitest";
 import { readFileSync } from "node:fs";
 import { compile, density, quantiles } from "@/lib/cf";
 import { close, record, worst } from "./model-assert";
+import type { CompiledModel } from "@/lib/cf/types";
+
+/** the compiled model by the route named: "direct" as compiled (summed over the lattice points), "inverted" without it */
+function routed(model: unknown, route: "direct" | "inverted"): CompiledModel {
+  const c = compile(model as never);
+  if (route === "direct") {
+    expect(c.direct, "the sum is answered over its lattice points").toBeDefined();
+    return c;
+  }
+  const { direct: _direct, ...rest } = c;
+  return { ...rest, notes: c.notes } as CompiledModel;
+}
+const ROUTES = ["direct", "inverted"] as const;
 
 interface Case {
   name: string;
@@ -20,8 +35,8 @@ const fixture = JSON.parse(readFileSync(new URL("../fixtures/lattice-sums/lattic
 afterAll(() => console.log("worst errors vs mpmath (and error / reported bound):", JSON.stringify(worst)));
 
 describe("continuous law plus lattice terms vs mpmath convolution (tests/fixtures/lattice-sums)", () => {
-  it.each(fixture.cases.map((c) => [c.name, c] as const))("%s: points", (_name, c) => {
-    const r = density(compile(c.model as never), { x: c.points.map((p) => p.x) });
+  it.each(fixture.cases.flatMap((c) => ROUTES.map((route) => [c.name, route, c] as const)))("%s (%s): points", (_name, route, c) => {
+    const r = density(routed(c.model, route), { x: c.points.map((p) => p.x) });
     const e = r.diagnostics.error;
     c.points.forEach((p, i) => {
       const what = `${c.name} at x = ${p.x} (bounds ${JSON.stringify(e)})`;
@@ -39,8 +54,8 @@ describe("continuous law plus lattice terms vs mpmath convolution (tests/fixture
     });
   });
 
-  it.each(fixture.cases.map((c) => [c.name, c] as const))("%s: quantiles", (_name, c) => {
-    const r = quantiles(compile(c.model as never), c.levels.map((l) => l.p));
+  it.each(fixture.cases.flatMap((c) => ROUTES.map((route) => [c.name, route, c] as const)))("%s (%s): quantiles", (_name, route, c) => {
+    const r = quantiles(routed(c.model, route), c.levels.map((l) => l.p));
     c.levels.forEach((l, i) => {
       const q = Number(l.q);
       const d = Math.abs(r.x[i] - q);

@@ -122,7 +122,8 @@ describe("per-point error bounds of the damped inversion on an FFT grid", () => 
 
 // The light route (pointwise mid-point sums on one window): each point's cdf and sf bound from its own rounding and
 // aliasing, checked against the lattice-sums references (tests/fixtures/lattice-sums/generate.py beside them, mpmath
-// at 22 digits, each value's second-method difference cdfErr) for the sums with light tails.
+// at 22 digits, each value's second-method difference cdfErr) for the sums with light tails. compile answers these sums
+// over their lattice points (lib/cf/direct/lattice-sum.ts): the model without that direct law takes the inversion.
 describe("per-point error bounds of the light route (tests/fixtures/lattice-sums, mpmath)", () => {
   interface Case {
     model: Model;
@@ -133,7 +134,10 @@ describe("per-point error bounds of the light route (tests/fixtures/lattice-sums
   expect(light.length).toBeGreaterThanOrEqual(2);
   for (const c of light) {
     it(JSON.stringify(c.model), () => {
-      const r = density(compile(c.model), { x: c.points.map((p) => p.x) });
+      const compiled = compile(c.model);
+      expect(compiled.direct, "compile answers the sum over its lattice points").toBeDefined();
+      const { direct: _direct, ...inverted } = compiled;
+      const r = density({ ...inverted, notes: compiled.notes }, { x: c.points.map((p) => p.x) });
       const d = r.diagnostics;
       expect(d.method).toBe("gil-pelaez");
       const pe = d.pointError!;

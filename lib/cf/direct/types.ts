@@ -78,6 +78,12 @@ export interface DirectLaw {
    * transformations) need not round it through x
    */
   singularPdf?(d: number, out: DirectPoint): void;
+  /**
+   * optional: expected shortfall is not answered from this law (a sum over lattice points without a stop-loss bound for
+   * its dropped tail, ./lattice-sum.ts, whose tail sweep would cost every lattice point per step): a request with ES
+   * takes the model's inversion instead
+   */
+  readonly shortfallByInversion?: boolean;
   /** short notes on the method (source of the formula, accuracy) */
   readonly notes: string[];
 }

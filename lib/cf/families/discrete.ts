@@ -66,7 +66,7 @@ const EPS = Number.EPSILON;
  * Stability of Numerical Algorithms, sec. 3.1): p[k] is then within rel0 + k step relative (first order; the factor
  * 1.01 covers the second).
  */
-function tabulate(maxLength: number, first: number, p0: number, ratio: (k: number) => number, rel0: number, step: number, hardEnd = Infinity): LatticeTable {
+function tabulate(maxLength: number, first: number, p0: number, ratio: (k: number) => number, rel0: number, step: number, hardEnd = Infinity, ratioLimit = 0): LatticeTable {
   const buf: number[] = [p0];
   let k = 1;
   let prev = p0;
@@ -86,14 +86,25 @@ function tabulate(maxLength: number, first: number, p0: number, ratio: (k: numbe
   // remaining mass: continue the recursion past the table (bounded)
   let tail = 0;
   let q = prev;
-  for (let j = k; j <= hardEnd && j < k + 1e7; j++) {
+  let j = k;
+  let last = k;
+  for (; j <= hardEnd && j < k + 1e7; j++) {
     q *= ratio(j);
     tail += q;
+    last = j;
     if (q <= TAIL_EPS * tail * 1e-3 && ratio(j) < 1) break;
     if (q === 0) break;
   }
   const len = buf.length;
   const rel = (j: number) => 1.01 * (rel0 + j * step);
+  // an upper bound on that mass: the terms past the last one summed (at most q R / (1 - R), R the ratios' supremum
+  // there: the next ratio or their limit, the ratio being monotone in k), each term within rel(j) relative and their
+  // sum of m terms within gamma_m (Higham, sec. 3.1); a tail that cannot be bounded so stays as summed (hardEnd laws)
+  if (tail > 0 && !(last >= hardEnd)) {
+    const R = Math.max(ratio(last + 1), ratioLimit);
+    const m = last - k + 2;
+    tail = R < 1 ? (tail + (q * R) / (1 - R)) * (1 + rel(last + 1)) * (1 + (m + 2) * EPS) : tail;
+  }
   // past the end: the recursion continued from the last entry (within rel(j) of p_j); the dropped tail where that is far
   const beyond = (j: number) => {
     if (j > hardEnd) return 0;
@@ -332,7 +343,7 @@ export function negativeBinomial(r: number, p: number): Node {
       // an ulp; a step (q (r + k - 1))/k times p_{k-1}: q within eps/2, r + k - 1 within eps/2 of r + k and eps/2 of its own
       // value (r + k <= (1 + 1/r)(r + k - 1): at most 2 past k = 1, whose excess goes in rel0), three more roundings
       if (start > 1e-280)
-        return tabulate(maxLength, Math.ceil((r * q) / p), start, (k) => (q * (r + k - 1)) / k, (1.5 * Math.abs(r * lp) + 2 + (1 + 1 / r) / 2) * EPS, 4 * EPS);
+        return tabulate(maxLength, Math.ceil((r * q) / p), start, (k) => (q * (r + k - 1)) / k, (1.5 * Math.abs(r * lp) + 2 + (1 + 1 / r) / 2) * EPS, 4 * EPS, Infinity, q);
       // ratio q (r + k) / (k + 1) (non-increasing for r >= 1): q = 1 - p (u), r + k (u), the product and the division
       return bulkTable((r * q) / p, Math.sqrt(r * q) / p, Infinity, maxLength, (k) => negativeBinomialPmf(k, r, p), r >= 1 ? (k) => (q * (r + k)) / (k + 1) : undefined, 2.02 * EPS);
     },

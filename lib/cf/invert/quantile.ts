@@ -74,7 +74,7 @@ function quantilesOf(model: CompiledModel, pIn: ArrayLike<number>, options: Quan
     if (!(p[i] >= 0 && p[i] <= 1)) throw new CfError("invalid_model", `/p/${i}`, "each level p must be a number in [0, 1]");
   }
   // a single named law (or scaled / shifted) with a direct evaluation: no inversion
-  if (model.direct) {
+  if (model.direct && !(options.expectedShortfall && model.direct.shortfallByInversion)) {
     const mean = model.momentIndex > 1 ? model.cumulants(1)[0] : null;
     const meanErr = mean === null ? Infinity : (model.cumulantErrors?.(1)[0] ?? Infinity);
     return directQuantiles(model.direct, p, options.expectedShortfall ?? false, model.tails, mean, meanErr, model.notes, options.expectedShortfall ? momentRest(model) : undefined);
