@@ -49,6 +49,19 @@ describe("continuous law plus lattice terms vs mpmath convolution (tests/fixture
         expect(d, `${what}: ${q} ${got} vs ${want}, reported bound ${bound}`).toBeLessThanOrEqual(bound + p.cdfErr);
         record(`${c.name} ${q} error / bound`, d / bound);
       }
+      // the route over the lattice points bounds every point on its own: each value within its point bound too
+      const pe = r.diagnostics.pointError;
+      if (route === "direct") {
+        expect(pe, "point bounds").toBeDefined();
+        for (const [q, got, want, bound] of [
+          ["cdf", r.cdf[i], Number(p.cdf), pe!.cdf[i]],
+          ["sf", r.sf[i], Number(p.sf), pe!.sf[i]],
+          ["pdf", r.pdf![i], Number(p.pdf), pe!.pdf[i]],
+        ] as const) {
+          expect(Math.abs(got - want), `${what}: ${q} ${got} vs ${want}, point bound ${bound}`).toBeLessThanOrEqual(bound + p.cdfErr);
+          record(`${c.name} ${q} error / point bound`, Math.abs(got - want) / bound);
+        }
+      }
       close(r.cdf[i], Number(p.cdf), { abs: 1e-9 }, `${what}: cdf`);
       close(r.sf[i], Number(p.sf), { abs: 1e-9 }, `${what}: sf`);
     });

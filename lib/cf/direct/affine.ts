@@ -20,6 +20,8 @@ export function affineDirect(law: DirectLaw, a: number, b: number): DirectLaw {
     center: a * law.center + b,
     spread: aa * law.spread,
     ...(law.mode !== undefined ? { mode: a * law.mode + b } : {}),
+    // the moved mode stays exact where a m and a m + b are (TwoProduct and TwoSum find no rounding)
+    ...(law.modeExact && law.mode !== undefined && twoProdErr(a, law.mode, a * law.mode) === 0 && twoSumErr(a * law.mode, b, a * law.mode + b) === 0 ? { modeExact: true } : {}),
     ...(law.unimodal ? { unimodal: true } : {}),
     ...(law.powerTail ? { powerTail: affinePowerTail(law.powerTail, a, b) } : {}),
     // f_Y^(k)(y) = f_X^(k)((y - b)/a) / (a^k |a|): X's bound over the interval's image, widened by its rounding

@@ -9,7 +9,7 @@ import { directPoint, type DirectLaw, type DirectPoint } from "./types";
 import { oneTailSplit } from "./stable-one-tail";
 import { paretoPowerTail, studentPowerTail, type PowerTail } from "./power-tail";
 import { gammaStopLoss, lognormalStopLoss, normalStopLoss, weibullStopLoss } from "./stop-loss";
-import { bounds, ELEM, EPS, law, SQRT2PI, withExcess, withMode, withMonotoneTail } from "./law";
+import { bounds, ELEM, EPS, law, SQRT2PI, withExactMode, withExcess, withMode, withMonotoneTail } from "./law";
 
 const U = EPS / 2;
 
@@ -31,7 +31,7 @@ function phiBoth(z: number, o: DirectPoint) {
 }
 
 export function normalDirect(mu: number, sigma: number): DirectLaw {
-  return normalStopLoss(withMode(mu, law(
+  return normalStopLoss(withExactMode(mu, law(
     "special-function",
     [-Infinity, Infinity],
     mu,
@@ -183,7 +183,7 @@ export function weibullDirect(shape: number, scale: number): DirectLaw {
 export function uniformDirect(a: number, b: number): DirectLaw {
   const w = b - a;
   // the density is flat on [a, b]: any point of it is a mode
-  return withMode(a, law(
+  return withExactMode(a, law(
     "closed-form",
     [a, b],
     0.5 * (a + b),
@@ -207,7 +207,7 @@ export function cauchyDirect(loc: number, scale: number): DirectLaw {
     return r && { ...r, pdf: (r.pdf / scale) * (1 + 4 * EPS), restPdf: (r.restPdf / scale) * (1 + 4 * EPS) };
   };
   // symmetric and unimodal about loc (its density falls with |z|)
-  return withMode(loc, { ...cauchyLaw(loc, scale), monotoneSplit: split });
+  return withExactMode(loc, { ...cauchyLaw(loc, scale), monotoneSplit: split });
 }
 
 function cauchyLaw(loc: number, scale: number): DirectLaw {
@@ -232,7 +232,7 @@ function cauchyLaw(loc: number, scale: number): DirectLaw {
 }
 
 export function logisticDirect(loc: number, scale: number): DirectLaw {
-  return withMode(loc, law(
+  return withExactMode(loc, law(
     "closed-form",
     [-Infinity, Infinity],
     loc,
@@ -251,7 +251,7 @@ export function logisticDirect(loc: number, scale: number): DirectLaw {
 }
 
 export function laplaceDirect(loc: number, scale: number): DirectLaw {
-  return withMode(loc, law(
+  return withExactMode(loc, law(
     "closed-form",
     [-Infinity, Infinity],
     loc,
@@ -368,8 +368,8 @@ export function studentDirect(nu: number, loc: number, scale: number): DirectLaw
     return { tail, pdf: (sp.pdf + sp.pdfErr) * (1 + 4 * EPS), stopLoss: Infinity, restTail: 0, restPdf: 0, restStopLoss: 0 };
   };
   const powerTail = studentPowerTail(nu, loc, scale, lc + eLc);
-  if (!(nu > 1)) return withMode(loc, { ...L, monotoneSplit: split, powerTail });
-  return withMode(loc, {
+  if (!(nu > 1)) return withExactMode(loc, { ...L, monotoneSplit: split, powerTail });
+  return withExactMode(loc, {
     ...L,
     monotoneSplit: split,
     powerTail,

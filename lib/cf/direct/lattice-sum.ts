@@ -27,8 +27,9 @@ function nextToward(y: number, dir: number): number {
  * s_k exact in doubles) with a bound on each entry: f(x) = sum_k p_k f_X(x - s_k), F and S likewise (the law of the sum
  * conditioned on K; Feller, An Introduction to Probability Theory, vol. II, sec. V.4). Per point:
  *  - x - s_k as computed is y^ with its rounding d found exactly (Knuth's TwoSum); where d != 0 the exact y lies between
- *    y^ and its neighbouring double y', where f_X is monotone (X's mode, within a few ulps of its value, is not strictly
- *    inside): f_X(y) is within |f^(y') - f^(y^)| + its bound of f^(y^), and F_X, S_X move by at most |d| max f there;
+ *    y^ and its neighbouring double y', where F_X and S_X are monotone, and so is f_X where X's mode (within a few ulps
+ *    of its value, exact where a parameter) is not strictly inside: each value at y is within |g^(y') - g^(y^)| plus
+ *    the bound at y' of g^(y^); an infinite f_X at an exact y (a power singularity at X's support end) makes f infinite;
  *  - the products p_k g_k and their sum by Dot2 (Ogita, Rump & Oishi, Accurate sum and dot product, SIAM J. Sci.
  *    Comput. 26, 2005, alg. 5.3): within u |sum| + gamma_n^2 sum |p_k g_k|;
  *  - the inputs: sum_k p_k e_k (X's bounds) plus sum_k dp_k (g_k + e_k), the table's entry bounds dp_k (a recursion's
@@ -36,7 +37,8 @@ function nextToward(y: number, dir: number): number {
  *  - the table's dropped mass m (on the points from t.tailFrom on: a recursion's own end, inside the range for a
  *    convolution of cut tables, else anywhere; K's support starting at the table): F and S within m; f within the sum
  *    of bound(p_j) f_X(x - s_j) over those points right of X's mode (at most 64 past the table; p_j within m, or past a
- *    recursion's end its `beyond`), plus m f_X at the first point left of the mode (f_X rises there), else unbounded.
+ *    recursion's end its `beyond`), plus m f_X at the first point left of the mode (f_X rises there); or m f_X(mode)
+ *    where the mode is exact (DirectLaw.modeExact: f_X's largest value), the smaller; else unbounded.
  * Null where the route does not apply (X without a mode, or with atoms or singular points; a table without per-entry
  * bounds, with a discretisation error, too long, or on a lattice whose points round).
  */
@@ -75,8 +77,15 @@ export function latticeSumDirect(X: DirectLaw, t: LatticeTable, lowerEnd: number
   let v = 0;
   for (let k = 0; k < n; k++) v += p[k] * (s[k] - mean) ** 2;
   const sd = Math.sqrt(v / mass);
-  // X's mode is known within a few of its ulps: a rounding interval that meets that box is not known to be monotone
-  const w = 4 * Number.EPSILON * Math.abs(m);
+  // X's mode is known within a few of its ulps (exactly where it is a parameter): a rounding interval that meets that
+  // box is not known to be monotone. An exact mode gives f_X's largest value, f_X(m) with its bound
+  const w = X.modeExact ? 0 : 4 * Number.EPSILON * Math.abs(m);
+  let supF = Infinity;
+  if (X.modeExact) {
+    const o = directPoint();
+    X.at(m, o);
+    if (Number.isFinite(o.pdf) && Number.isFinite(o.pdfErr)) supF = (o.pdf + o.pdfErr) * (1 + 2 * U);
+  }
   const tail = t.tailMass;
   const g2 = gamma(n + 1) ** 2;
   const a = directPoint();
@@ -118,6 +127,8 @@ export function latticeSumDirect(X: DirectLaw, t: LatticeTable, lowerEnd: number
       let slack = 0;
       let ef = 0, eF = 0, eS = 0;
       let sumG = 0, maxG = 0, sumGc = 0, maxGc = 0, sumGs = 0, maxGs = 0;
+      let pdfInf = false;
+      let pdfUnbounded = false;
       for (let k = 0; k < n; k++) {
         const pk = p[k];
         const y = x - s[k];
@@ -127,18 +138,23 @@ export function latticeSumDirect(X: DirectLaw, t: LatticeTable, lowerEnd: number
         let Fe = a.cdfErr;
         let Se = a.sfErr;
         if (d !== 0 && Number.isFinite(d)) {
+          // F_X and S_X are monotone everywhere: their values at y lie between those at y^ and y'; f_X is where the
+          // interval stays off X's mode
           const y2 = nextToward(y, d);
-          if (w > 0 && Math.max(y, y2) > m - w && Math.min(y, y2) < m + w) {
-            fe = Fe = Se = Infinity;
-          } else {
-            X.at(y2, b);
-            fe = Math.max(fe, Math.abs(b.pdf - a.pdf) + b.pdfErr);
-            const top = Math.max(a.pdf + a.pdfErr, b.pdf + b.pdfErr);
-            const move = Math.abs(d) * top * (1 + 4 * U);
-            Fe += move;
-            Se += move;
-          }
+          X.at(y2, b);
+          Fe = Math.max(Fe, Math.abs(b.cdf - a.cdf) + b.cdfErr);
+          Se = Math.max(Se, Math.abs(b.sf - a.sf) + b.sfErr);
+          if (w > 0 && Math.max(y, y2) > m - w && Math.min(y, y2) < m + w) fe = Infinity;
+          else fe = Math.max(fe, Math.abs(b.pdf - a.pdf) + b.pdfErr);
         } else if (!Number.isFinite(d)) fe = Fe = Se = Infinity;
+        if (!Number.isFinite(a.pdf) || !Number.isFinite(fe)) {
+          // an infinite density at an exact y (X's power singularity met by this lattice point, with mass there for
+          // certain) makes the sum's density infinite, its exact limit; else an unbounded error
+          if (pk > 0 && a.pdf === Infinity && d === 0 && (rel || pk > round!.pmf)) pdfInf = true;
+          else if (pk > 0 || dp[k] > 0 || (round && round.pmf > 0)) pdfUnbounded = true;
+          fe = 0;
+          a.pdf = 0;
+        }
         // the products and sums, error-free where TwoProduct applies (else u of the product into the slack)
         const hf = pk * a.pdf;
         const hF = pk * a.cdf;
@@ -212,7 +228,8 @@ export function latticeSumDirect(X: DirectLaw, t: LatticeTable, lowerEnd: number
           X.at(yLo, a);
           sum += (beyond && j >= n ? Math.min(beyond(j), tail) : tail) * (a.pdf + a.pdfErr);
         }
-        tf = done ? sum : Infinity;
+        // (past the points bounded one by one, or in place of them: the whole mass times f_X's largest value)
+        tf = Math.min(done ? sum : Infinity, mul(tail, supF));
       }
       const vf = pf + cf;
       const vF = pF + cF;
@@ -224,7 +241,11 @@ export function latticeSumDirect(X: DirectLaw, t: LatticeTable, lowerEnd: number
       out.pdfErr = (U * Math.abs(vf) + g2 * absF + ef + tf + slack) * up;
       out.cdfErr = Math.min((U * Math.abs(vF) + g2 * absC + eF + tail + slack) * up, 1);
       out.sfErr = Math.min((U * Math.abs(vS) + g2 * absS + eS + tail + slack) * up, 1);
-      if (!(out.pdfErr <= Number.MAX_VALUE)) out.pdfErr = Infinity;
+      if (!(out.pdfErr <= Number.MAX_VALUE) || pdfUnbounded) out.pdfErr = Infinity;
+      if (pdfInf) {
+        out.pdf = Infinity;
+        out.pdfErr = pdfUnbounded ? Infinity : 0;
+      }
     },
   };
 }

@@ -52,6 +52,11 @@ export function withMode(mode: number, l: DirectLaw): DirectLaw {
   return Number.isFinite(mode) ? { ...l, mode } : l;
 }
 
+/** withMode for a mode that is a parameter of the family, exact as given (DirectLaw.modeExact) */
+export function withExactMode(mode: number, l: DirectLaw): DirectLaw {
+  return Number.isFinite(mode) ? { ...l, mode, modeExact: true } : l;
+}
+
 /** The law marked unimodal (DirectLaw.unimodal), for a family known to be unimodal without a closed-form mode. */
 export function unimodal(l: DirectLaw): DirectLaw {
   return { ...l, unimodal: true };

@@ -36,6 +36,8 @@ export interface DirectLaw {
    * absent where not known
    */
   readonly mode?: number;
+  /** optional, with `mode`: the mode is that double exactly (a parameter of the family), so f(mode) is f's largest value */
+  readonly modeExact?: boolean;
   /**
    * optional: where the tail from y outward (side 1: S on [y, inf); side -1: F on (-inf, y], as functions of the distance
    * from y) is sum_j c_j g_j + R with each g_j completely monotone (Bernstein: a Laplace transform of a positive measure,
