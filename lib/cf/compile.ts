@@ -19,10 +19,11 @@ import { compoundNode, latticeNode, mixNode, repeatNode, sampleNode, scaleNode, 
 import { cumulantEst, withCumulantErrors } from "./cumulant-bounds";
 import { latticeE, sampleE } from "./cumulant-ops";
 import { foldStableSum } from "./stable-fold";
-import { latticeSumDirect, MAX_LATTICE_SUM_TERMS } from "./direct/lattice-sum";
+import { latticeSumDirect, MAX_LATTICE_SUM_TERMS, trimTable } from "./direct/lattice-sum";
 import type { DirectLaw } from "./direct/types";
 import { convolveRelTables, convolveTables } from "./lattice";
 import { roundOf } from "./table-rounding";
+import { twoSumErr } from "./moment-error";
 
 /** Options of compile(). */
 export interface CompileOptions {
@@ -116,18 +117,31 @@ function sumOf(cs: Node[], terms: Model[]): Node {
 /**
  * A table whose dropped mass is a bound: a recursion's (continued past the table), or 0 where the table reaches the law's
  * last point; any other (1 - sum, whose cancellation hides a mass below u) widened by that subtraction's error, the sum's
- * rounding gamma_n sum p and the entries' l1 bound (the law's mass is 1): 1 - sum p_exact <= tail + l1 + gamma_n sum p + u.
+ * rounding and the entries' l1 bound (the law's mass is 1): 1 - sum p_exact <= 1 - s + l1 + 2u s + u (s summed again,
+ * compensated), whatever the table's own tailMass says; placed from the table's tailFrom on, else anywhere (0).
  */
 function withTrustedTail(t: LatticeTable, hi: number): LatticeTable {
   if (t.pointRel) return t;
   if (t.tailMass === 0 && t.origin + (t.p.length - 1) * t.step >= hi) return t;
   const r = roundOf(t);
   if (!r) return t;
+  // 1 - sum again, the sum compensated (Neumaier: within 2u |s| + gamma_n^2 sum |p|, Higham sec. 4.3) and the
+  // subtraction within u: the dropped mass is at most that plus the entries' l1 bound
   let s = 0;
-  for (let k = 0; k < t.p.length; k++) s += Math.max(t.p[k], 0);
+  let c = 0;
+  for (let k = 0; k < t.p.length; k++) {
+    const v = Math.max(t.p[k], 0);
+    const z = s + v;
+    c += twoSumErr(s, v, z);
+    s = z;
+  }
+  s += c;
   const u = Number.EPSILON / 2;
-  const g = ((t.p.length + 2) * u) / (1 - (t.p.length + 2) * u);
-  return { ...t, tailMass: (t.tailMass + r.l1 + g * s + u) * (1 + 4 * u) };
+  const n = t.p.length + 2;
+  const g2 = ((n * u) / (1 - n * u)) ** 2;
+  const rest = Math.max(0, 1 - s) + (2 * u + g2) * s + u;
+  // (that mass lies where the table says, else anywhere in its range: a compound's cut count misses claims inside it)
+  return { ...t, tailMass: (rest + r.l1) * (1 + 4 * u), tailFrom: t.tailFrom ?? 0 };
 }
 
 function latticeSumOf(cs: Node[]): DirectLaw | null {
@@ -149,7 +163,7 @@ function latticeSumOf(cs: Node[]): DirectLaw | null {
   for (const c of lat) {
     const t = c.table!(MAX_LATTICE_SUM_TERMS + 1);
     if (!t) return null;
-    tabs.push(withTrustedTail(t, c.support[1]));
+    tabs.push(withTrustedTail(trimTable(t), c.support[1]));
   }
   // tables with per-entry relative bounds keep them through direct sums; others take the whole-table bounds
   let t: LatticeTable | null = tabs[0];

@@ -65,7 +65,10 @@ export function compoundTable(N: Node, X: Node, kind: { step: number }, maxLengt
         for (let i = 0; i < p.length; i++) s += p[i];
         const shift = run.err ? severityShift(N, xt, sev) : null;
         const round = run.err && shift ? roundOfErrors(run.err) : null;
-        return { origin: 0, step: g, p, tailMass: Math.max(0, 1 - s), ...(round && shift ? { round: { pmf: round.pmf + shift.pmf, l1: round.l1 + shift.l1 } } : {}) };
+        // (each entry within its running bound plus the severity's shift, which round sums up; kept per entry too. The
+        // recursion gives every entry below len: the dropped mass lies past the table, tailFrom)
+        const pointErr = round && shift && run.err ? Float64Array.from(run.err, (e) => (e + shift.pmf) * (1 + Number.EPSILON)) : null;
+        return { origin: 0, step: g, p, tailMass: Math.max(0, 1 - s), tailFrom: p.length, ...(round && shift ? { round: { pmf: round.pmf + shift.pmf, l1: round.l1 + shift.l1 } } : {}), ...(pointErr ? { pointErr } : {}) };
       }
       // P(S = 0) underflows (large expected counts): run the recursion for the count divided into 2^m equal
       // independent parts and take the 2^m-fold power (Loss Models, aggregate loss chapter; recalled from memory)

@@ -23,6 +23,26 @@ function nextToward(y: number, dir: number): number {
 }
 
 /**
+ * A table with per-table bounds (round) cut back past its last entry above 1e-30 of its largest: the entries left out,
+ * each within round.pmf of itself, join the dropped mass (tailMass, lying from the cut on where the table's own dropped
+ * mass does: tailFrom). Tables with per-entry bounds (a recursion's, which end where their terms do) pass unchanged.
+ */
+export function trimTable(t: LatticeTable): LatticeTable {
+  const r = t.round;
+  if (t.pointRel || !r) return t;
+  const pe = t.pointErr && t.pointErr.length === t.p.length ? t.pointErr : null;
+  let pMax = 0;
+  for (let k = 0; k < t.p.length; k++) pMax = Math.max(pMax, t.p[k]);
+  let n = t.p.length;
+  while (n > 1 && t.p[n - 1] <= 1e-30 * pMax) n--;
+  if (n === t.p.length) return t;
+  let cut = 0;
+  for (let k = n; k < t.p.length; k++) cut += Math.max(t.p[k], 0) + (pe ? pe[k] : r.pmf);
+  const from = t.tailMass > 0 ? Math.min(t.tailFrom ?? 0, n) : n;
+  return { ...t, p: t.p.slice(0, n), tailMass: (t.tailMass + cut) * (1 + (t.p.length + 2) * Number.EPSILON), tailFrom: from, ...(pe ? { pointErr: pe.slice(0, n) } : {}) };
+}
+
+/**
  * X + K for X continuous with a direct law and K an independent lattice law tabulated on s_k = origin + k step (every
  * s_k exact in doubles) with a bound on each entry: f(x) = sum_k p_k f_X(x - s_k), F and S likewise (the law of the sum
  * conditioned on K; Feller, An Introduction to Probability Theory, vol. II, sec. V.4). Per point:
@@ -33,12 +53,12 @@ function nextToward(y: number, dir: number): number {
  *  - the products p_k g_k and their sum by Dot2 (Ogita, Rump & Oishi, Accurate sum and dot product, SIAM J. Sci.
  *    Comput. 26, 2005, alg. 5.3): within u |sum| + gamma_n^2 sum |p_k g_k|;
  *  - the inputs: sum_k p_k e_k (X's bounds) plus sum_k dp_k (g_k + e_k), the table's entry bounds dp_k (a recursion's
- *    pointRel(k) p_k, else min(pmf sum_k, l1 max_k) of the rounded table's two bounds);
+ *    pointRel(k) p_k, or the table's pointErr, else min(pmf sum_k, l1 max_k) of the rounded table's two bounds);
  *  - the table's dropped mass m (on the points from t.tailFrom on: a recursion's own end, inside the range for a
- *    convolution of cut tables, else anywhere; K's support starting at the table): F and S within m; f within the sum
- *    of bound(p_j) f_X(x - s_j) over those points right of X's mode (at most 64 past the table; p_j within m, or past a
- *    recursion's end its `beyond`), plus m f_X at the first point left of the mode (f_X rises there); or m f_X(mode)
- *    where the mode is exact (DirectLaw.modeExact: f_X's largest value), the smaller; else unbounded.
+ *    convolution of cut tables, else anywhere; K's support starting at the table): S within m, F within m F_X(x - s_j0),
+ *    f within the sum of bound(p_j) f_X(x - s_j) over those points right of X's mode (at most 64 past the table; p_j
+ *    within m, or past a recursion's end its `beyond`) plus m f_X at the first point left of the mode (f_X rises there),
+ *    or m f_X(mode) where the mode is exact (DirectLaw.modeExact: f_X's largest value), the smaller; else unbounded.
  * Null where the route does not apply (X without a mode, or with atoms or singular points; a table without per-entry
  * bounds, with a discretisation error, too long, or on a lattice whose points round).
  */
@@ -53,8 +73,12 @@ export function latticeSumDirect(X: DirectLaw, t: LatticeTable, lowerEnd: number
   const beyond = rel ? t.beyond : undefined;
   // the first index where the dropped mass may lie: a recursion's own end; else where the table says, or anywhere
   const j0 = Math.max(0, Math.min(n, t.tailFrom ?? (rel && t.beyond ? n : 0)));
-  const round = rel ? null : t.round;
-  if (!rel && !round) return null;
+  // per-entry bounds: a recursion's relative ones, or absolute ones where the table has them (a Panjer run's); else
+  // the whole table's
+  const pe = rel ? null : (t.pointErr && t.pointErr.length >= n ? t.pointErr : null);
+  const perEntry = !!rel || !!pe;
+  const round = perEntry ? null : t.round;
+  if (!perEntry && !round) return null;
   const s = new Float64Array(n + 1);
   for (let k = 0; k <= n; k++) {
     const a = k * t.step;
@@ -70,6 +94,7 @@ export function latticeSumDirect(X: DirectLaw, t: LatticeTable, lowerEnd: number
   for (let k = 0; k < n; k++) {
     if (!(p[k] >= 0)) return null;
     if (rel) dp[k] = rel(k) * p[k] * (1 + 2 * U);
+    else if (pe) dp[k] = pe[k];
     mean += p[k] * s[k];
     mass += p[k];
   }
@@ -107,7 +132,7 @@ export function latticeSumDirect(X: DirectLaw, t: LatticeTable, lowerEnd: number
             const r = sl(y, side);
             if (!r || !Number.isFinite(r.v) || !Number.isFinite(r.e)) return null;
             v += p[k] * r.v;
-            const dk = rel ? dp[k] : round!.pmf;
+            const dk = perEntry ? dp[k] : round!.pmf;
             e += p[k] * (r.e + Math.abs(d)) + dk * (Math.abs(r.v) + r.e + Math.abs(d));
           }
           return { v, e: (e + gamma(2 * n + 2) * Math.abs(v)) * (1 + gamma(2 * n + 4)) };
@@ -150,7 +175,7 @@ export function latticeSumDirect(X: DirectLaw, t: LatticeTable, lowerEnd: number
         if (!Number.isFinite(a.pdf) || !Number.isFinite(fe)) {
           // an infinite density at an exact y (X's power singularity met by this lattice point, with mass there for
           // certain) makes the sum's density infinite, its exact limit; else an unbounded error
-          if (pk > 0 && a.pdf === Infinity && d === 0 && (rel || pk > round!.pmf)) pdfInf = true;
+          if (pk > 0 && a.pdf === Infinity && d === 0 && (perEntry ? pk > dp[k] : pk > round!.pmf)) pdfInf = true;
           else if (pk > 0 || dp[k] > 0 || (round && round.pmf > 0)) pdfUnbounded = true;
           fe = 0;
           a.pdf = 0;
@@ -183,7 +208,7 @@ export function latticeSumDirect(X: DirectLaw, t: LatticeTable, lowerEnd: number
         const gf = a.pdf + fe;
         const gF = Math.min(a.cdf + Fe, 1);
         const gS = Math.min(a.sf + Se, 1);
-        if (rel) {
+        if (perEntry) {
           ef += mul(dp[k], gf);
           eF += mul(dp[k], gF);
           eS += mul(dp[k], gS);
@@ -202,6 +227,13 @@ export function latticeSumDirect(X: DirectLaw, t: LatticeTable, lowerEnd: number
         eS += Math.min(mul(round.pmf, sumGs), mul(round.l1, maxGs));
       }
       // the mass past the table: every value of F and S within it, f within it times f_X's largest value there
+      // the dropped mass lies at s_k >= s_j0, where F_X(x - s_k) <= F_X(x - s_j0) (at the double above, the rounding's
+      // side): the cdf's part of it is at most the mass times that
+      let tF = tail;
+      if (tail > 0) {
+        X.at(nextToward(x - s[j0], 1), b);
+        tF = tail * Math.min(1, b.cdf + b.cdfErr);
+      }
       let tf = 0;
       if (tail > 0) {
         // the points past the table right of X's mode (at most BEYOND_TERMS of them) each by its own bound on p_k (a
@@ -239,7 +271,7 @@ export function latticeSumDirect(X: DirectLaw, t: LatticeTable, lowerEnd: number
       out.cdf = Math.min(Math.max(vF, 0), 1);
       out.sf = Math.min(Math.max(vS, 0), 1);
       out.pdfErr = (U * Math.abs(vf) + g2 * absF + ef + tf + slack) * up;
-      out.cdfErr = Math.min((U * Math.abs(vF) + g2 * absC + eF + tail + slack) * up, 1);
+      out.cdfErr = Math.min((U * Math.abs(vF) + g2 * absC + eF + tF + slack) * up, 1);
       out.sfErr = Math.min((U * Math.abs(vS) + g2 * absS + eS + tail + slack) * up, 1);
       if (!(out.pdfErr <= Number.MAX_VALUE) || pdfUnbounded) out.pdfErr = Infinity;
       if (pdfInf) {
