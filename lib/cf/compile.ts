@@ -343,6 +343,7 @@ export function toCompiled(node: Node): CompiledModel {
     logCfUlps: 8 * Math.max(1, node.nodes),
     ...(node.logCfErr ? { logCfExtraError: node.logCfErr } : {}),
     ...(node.densityJumps?.length ? { densityJumps: node.densityJumps } : {}),
+    ...(node.densityKinks?.length ? { densityKinks: node.densityKinks } : {}),
     ...(node.mixParts ? { components: lazyComponents(node.mixParts) } : {}),
     // read on access: a discretised compound adds its error bound to its notes when its table is built
     get notes() {

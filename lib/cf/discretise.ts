@@ -12,8 +12,11 @@ export { bennettTail, isPoissonCount };
 export interface SeverityLaw {
   name: string;
   pdf(x: number): number;
-  /** a layered claim's density at the two ends of its continuous part (start+ and the limit-), where it jumps */
-  edges?: { start: number; fStart: number; fEnd: number };
+  /**
+   * a layered claim's density at the two ends of its continuous part (start+ and the limit-), where it jumps, and its
+   * slope there (dStart, dEnd; NaN where not formed), where the slope jumps
+   */
+  edges?: { start: number; fStart: number; fEnd: number; dStart?: number; dEnd?: number };
   /** lower end of the support (density zero below) */
   lo: number;
   /** an x with P(X > x) <= q (upper bound on the upper q-quantile) */

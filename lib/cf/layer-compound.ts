@@ -123,3 +123,56 @@ export function layerCompoundJumps(N: Node, a0: number, a1: number, v: number, b
   }
   return out.filter((j) => j.size !== 0);
 }
+
+/**
+ * Jumps of the slope of that density, f'(x+) - f'(x-), from the claim density g on (start, v) (its values fStart, fEnd
+ * and slopes dStart, dEnd at the two ends). One continuous claim among k at the limit (weight w_k as above) steps the
+ * slope by dStart w_k at k v + start and by -dEnd w_k at (k + 1) v. Two continuous claims (weight u_k = [z^k] P_N''(a0 +
+ * a1 z) / 2) give g * g, whose slope g' * g steps by fStart^2 at 2 start, -2 fStart fEnd at start + v and fEnd^2 at 2 v
+ * (each jump of g against the other factor's jumps), shifted by k v; three or more give a continuous slope. For the
+ * (a, b, 1) class, differentiating (1 - a s) P'(s) = (a + b) P(s) + c1 gives (1 - a s) P''(s) = (2 a + b) P'(s), so
+ * 2 u_k = ((2 a + b) w_k + 2 a a1 u_{k-1}) / (1 - a a0). Empty where a slope is not formed (NaN).
+ */
+export function layerCompoundKinks(
+  N: Node,
+  a0: number,
+  a1: number,
+  v: number,
+  byCount: number[],
+  edges: { start: number; fStart: number; fEnd: number; dStart?: number; dEnd?: number },
+): { at: number; size: number }[] {
+  const pan = N.panjer;
+  const { start: s, fStart: A, fEnd: B } = edges;
+  const DA = edges.dStart ?? NaN;
+  const DB = edges.dEnd ?? NaN;
+  if (!pan || ![A, B, DA, DB].every(Number.isFinite)) return [];
+  const { a, b } = pan;
+  const c1 = pan.c1 ?? 0;
+  const inv = 1 / (1 - a * a0);
+  const limited = Number.isFinite(v) && a1 > 0;
+  const K = limited ? byCount.length : 0;
+  // by position (the same floating-point expressions as the jumps' k v and k v + start, so the kernels pair up)
+  const at = new Map<number, number>();
+  const add = (x: number, size: number) => {
+    if (size !== 0 && Number.isFinite(size)) at.set(x, (at.get(x) ?? 0) + size);
+  };
+  let wPrev = 0;
+  let vPrev = 0;
+  for (let k = 0; k <= K; k++) {
+    const m = k < byCount.length ? byCount[k] : 0;
+    const w = ((a + b) * m + (k === 0 ? c1 : 0) + a * a1 * wPrev) * inv;
+    const v2 = ((2 * a + b) * w + a * a1 * vPrev) * inv;
+    const u = v2 / 2;
+    const kv = limited ? k * v : 0;
+    add(kv + s, DA * w);
+    add(kv + 2 * s, A * A * u);
+    if (limited) {
+      add((k + 1) * v, -DB * w);
+      add((k + 1) * v + s, -2 * A * B * u);
+      add((k + 2) * v, B * B * u);
+    }
+    wPrev = w;
+    vPrev = v2;
+  }
+  return [...at].map(([x, size]) => ({ at: x, size })).sort((p, q) => p.at - q.at);
+}

@@ -137,6 +137,8 @@ export interface Node {
   logCfErr?: (t: number) => number;
   /** interior points where the density of the law's continuous part jumps, with the jump sizes (f(x+) - f(x-)) */
   densityJumps?: DensityJump[];
+  /** the points where that density's slope jumps, with the sizes (f'(x+) - f'(x-)) */
+  densityKinks?: DensityJump[];
 }
 
 export const NONE_MOMENT = (n: number): (number | null)[] => new Array<number | null>(n).fill(null);

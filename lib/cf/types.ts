@@ -144,6 +144,8 @@ export interface CompiledModel {
   bounds?(): CompoundBracket | null;
   /** points where the density of the continuous part jumps, with the sizes (the inversion takes them out as kernels) */
   readonly densityJumps?: readonly DensityJump[];
+  /** points where the slope of that density jumps, f'(at+) - f'(at-) = size (taken out as shape-2 kernels beside the jumps) */
+  readonly densityKinks?: readonly DensityJump[];
 }
 
 /** A jump f(at+) - f(at-) = size of a density (in units of the whole law's probability, atoms included). */

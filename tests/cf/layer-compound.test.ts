@@ -2,8 +2,10 @@
 // P_N(a0 + a1 z) for the counts of the trade (common practice: the pgfs of Poisson, negative binomial and binomial, and
 // the coefficient extraction below, e.g. Klugman, Panjer & Willmot, Loss Models, the (a, b, 0) class).
 import { describe, expect, it } from "vitest";
-import { buildNode } from "@/lib/cf/compile";
-import { layerCompoundAtoms, layerCompoundJumps } from "@/lib/cf/layer-compound";
+import { readFileSync } from "node:fs";
+import { join } from "node:path";
+import { buildNode, compile } from "@/lib/cf/compile";
+import { layerCompoundAtoms, layerCompoundJumps, layerCompoundKinks } from "@/lib/cf/layer-compound";
 import type { Model } from "@/lib/cf/types";
 import gammaln from "@stdlib/math-base-special-gammaln";
 
@@ -107,4 +109,89 @@ describe("density jumps of a compound of layered claims", () => {
       expect(Math.abs(j.size - want), `k = ${k}`).toBeLessThanOrEqual(1e-11 * want);
     }
   });
+});
+
+describe("slope steps of the density of a compound of layered claims", () => {
+  // the claim density g on (start, v): values A, B and slopes DA, DB at its two ends (invented)
+  const A = 0.8;
+  const B = 0.05;
+  const DA = -0.3;
+  const DB = -0.02;
+  it("poisson(6): at k v the step is lambda (DA m_k - DB m_{k-1}) + lambda^2 (A^2 m_k - 2 A B m_{k-1} + B^2 m_{k-2}) / 2 (P_N'' = lambda^2 P_N)", () => {
+    const N = buildNode({ family: "poisson", lambda: 6 } as Model);
+    const r = layerCompoundAtoms(N, a0, a1, v)!;
+    const kinks = layerCompoundKinks(N, a0, a1, v, r.byCount, { start: 0, fStart: A, fEnd: B, dStart: DA, dEnd: DB });
+    const mk = (k: number) => (k >= 0 ? cases[0].mk(k) : 0);
+    let checked = 0;
+    for (const j of kinks) {
+      const k = Math.round(j.at / v);
+      expect(j.at).toBe(k * v);
+      // beyond the listed atoms m_k is taken as 0, as for the jumps
+      if (k >= r.byCount.length) continue;
+      const want = 6 * (DA * mk(k) - DB * mk(k - 1)) + 18 * (A * A * mk(k) - 2 * A * B * mk(k - 1) + B * B * mk(k - 2));
+      expect(Math.abs(j.size - want), `k = ${k}`).toBeLessThanOrEqual(1e-12 * Math.abs(want) + 1e-300);
+      checked++;
+    }
+    expect(checked).toBeGreaterThan(5);
+  });
+  it("negative binomial with the layer starting inside: steps at k v + start, k v + 2 start, (k + 1) v + start, (k + 1) v, (k + 2) v from P_N' and P_N'' in closed form", () => {
+    const r0 = 2.5;
+    const p = 0.3;
+    const q = 1 - p;
+    const s = 0.4;
+    const N = buildNode({ family: "negative_binomial", r: r0, p } as Model);
+    const r = layerCompoundAtoms(N, a0, a1, v)!;
+    const kinks = layerCompoundKinks(N, a0, a1, v, r.byCount, { start: s, fStart: A, fEnd: B, dStart: DA, dEnd: DB });
+    // [z^k] P^(j)(a0 + a1 z) = r (r + 1) .. (r + j - 1) q^j p^r (1 - q a0)^{-(r + j)} C(r + j - 1 + k, k) beta^k
+    const beta = (q * a1) / (1 - q * a0);
+    const coef = (j: number, k: number) =>
+      k < 0 || k >= r.byCount.length
+        ? 0
+        : Math.exp(lgamma(r0 + j) - lgamma(r0) + j * Math.log(q) + r0 * Math.log(p) - (r0 + j) * Math.log(1 - q * a0) + lgamma(r0 + j + k) - lgamma(r0 + j) - lgamma(k + 1) + k * Math.log(beta));
+    const w = (k: number) => coef(1, k);
+    const u = (k: number) => coef(2, k) / 2;
+    // every position m v + i s (i = 0, 1, 2) with its steps added
+    const want = new Map<number, number>();
+    const add = (x: number, d: number) => want.set(x, (want.get(x) ?? 0) + d);
+    for (let k = 0; k < r.byCount.length; k++) {
+      add(k * v + s, DA * w(k));
+      add((k + 1) * v, -DB * w(k));
+      add(k * v + 2 * s, A * A * u(k));
+      add((k + 1) * v + s, -2 * A * B * u(k));
+      add((k + 2) * v, B * B * u(k));
+    }
+    let checked = 0;
+    for (const j of kinks) {
+      const m = Math.floor(j.at / v + 1e-9);
+      // positions whose weights reach past the listed atoms are left out of the comparison
+      if (m >= r.byCount.length - 1) continue;
+      const x = want.get(j.at);
+      expect(x, `position ${j.at}`).toBeDefined();
+      expect(Math.abs(j.size - x!), `at ${j.at}`).toBeLessThanOrEqual(1e-11 * Math.abs(x!) + 1e-300);
+      checked++;
+    }
+    expect(checked).toBeGreaterThan(10);
+  });
+});
+
+describe("slope steps of a compiled compound of layered exponential claims against mpmath", () => {
+  // tests/fixtures/layer-compound/kinks.json (generate_kinks.py): the compound density's slope differentiated term by term
+  // from its direct series over the counts, cross-checked by the pgf-derivative form (difference written per value)
+  const f = JSON.parse(readFileSync(join(import.meta.dirname, "../fixtures/layer-compound/kinks.json"), "utf8")) as {
+    cases: { model: Model; kinks: { at: number; step: string; methodsDifference: number }[] }[];
+  };
+  for (const k of f.cases) {
+    it(`${JSON.stringify(k.model)}: the step at each multiple of the layer's width`, () => {
+      const c = compile(k.model);
+      const got = new Map((c.densityKinks ?? []).map((j) => [j.at, j.size]));
+      for (const ref of k.kinks) {
+        const want = Number(ref.step);
+        const v = got.get(ref.at);
+        expect(v, `at ${ref.at}`).toBeDefined();
+        // the claim density's end slopes come from its values by Richardson-combined differences (lib/cf/layer.ts
+        // edgeSlope, about 1e-10 relative): they only set the kernels' sizes, which are added back exactly
+        expect(Math.abs(v! - want), `at ${ref.at}: ${v} against ${want}`).toBeLessThanOrEqual(1e-8 * Math.abs(want) + ref.methodsDifference);
+      }
+    });
+  }
 });

@@ -148,16 +148,38 @@ const MAX_JUMP_KERNELS = 256;
  * b lambda = J / w (w: the continuous part's weight) has the same jump at z, so what is left of the continuous part has
  * a continuous density there and its CF loses the J e^{itz} / (-it) term (integration by parts, as above). Each kernel
  * lives on [z, inf): its rate is chosen so that it is spent (e^{-60}) by the window's right end, b_hi; jumps at or
- * beyond b_hi are left in. The kernels are added back exactly, so the jump sizes only affect how fast the rest decays.
+ * beyond b_hi are left in. With the density's slope steps known too (`kinks`, f'(z+) - f'(z-) = D), a shape-2 kernel
+ * b2 e^{itz} / (1 - it/lambda)^2 (density b2 lambda^2 y e^{-lambda y}, slope b2 lambda^2 at y = 0+) beside it takes out
+ * D / w less the exponential kernel's own slope step -b lambda^2, so the rest also loses its D e^{itz} / (-it)^2 term and
+ * decays like t^-3 (shape-2 kernels alone where a slope steps without a jump). The kernels are added back exactly, so
+ * the sizes only affect how fast the rest decays.
  */
-export function jumpKernels(part: ContinuousPart, jumps: readonly { at: number; size: number }[], hi: number): EndpointKernels[] {
-  if (!(part.weight > 0)) return [];
+export function jumpKernels(
+  part: ContinuousPart,
+  jumps: readonly { at: number; size: number }[],
+  hi: number,
+  kinks: readonly { at: number; size: number }[] = [],
+): EndpointKernels[] {
+  const w = part.weight;
+  if (!(w > 0)) return [];
+  const keep = (j: { at: number; size: number }) => j.at < hi && Number.isFinite(j.size) && Math.abs(j.size) / w > 1e-16;
   const use = jumps
-    .filter((j) => j.at < hi && Number.isFinite(j.size) && Math.abs(j.size) / part.weight > 1e-16)
+    .filter(keep)
     .sort((u, v) => Math.abs(v.size) - Math.abs(u.size))
     .slice(0, MAX_JUMP_KERNELS);
-  return use.map((j) => {
+  const slope = new Map(kinks.filter(keep).map((k) => [k.at, k.size]));
+  const out: EndpointKernels[] = use.map((j) => {
     const rate = 60 / (hi - j.at);
-    return { at: j.at, side: 1 as const, rate, power: 1, b: [j.size / part.weight / rate] };
+    const b = j.size / w / rate;
+    if (!kinks.length) return { at: j.at, side: 1 as const, rate, power: 1, b: [b] };
+    const d = slope.get(j.at) ?? 0;
+    slope.delete(j.at);
+    return { at: j.at, side: 1 as const, rate, power: 1, b: [b, d / w / (rate * rate) + b] };
   });
+  const rest = [...slope].sort((u, v) => Math.abs(v[1]) - Math.abs(u[1])).slice(0, Math.max(0, MAX_JUMP_KERNELS - out.length));
+  for (const [at, d] of rest) {
+    const rate = 60 / (hi - at);
+    out.push({ at, side: 1, rate, power: 2, b: [d / w / (rate * rate)] });
+  }
+  return out;
 }

@@ -159,14 +159,21 @@ export function roundingOf(part: ContinuousPart, nodes: Nodes, ymax = (2 * Math.
   const cfCdf = nodes.cfErrCdf ?? 64 * U * nodes.absCdf;
   const cfPdf = nodes.cfErrPdf ?? 64 * U * nodes.absPdf;
   const moment = nodes.absPdfMoment ?? K * nodes.absPdf;
+  // per node the atom subtraction (../invert/part.ts evalPart: r -= p_j cos(t x_j), likewise sin, then / w) leaves at
+  // most [sum_j p_j (u t |x_j| + 3 u) + n u (1 + pa) + u (1 + pa)] / w in each part (fl(t x_j) off by u t |x_j|, cos and
+  // the product 3 u, each of the n subtractions u of a partial sum <= 1 + pa): within eps (atomA + atomB t) per node,
+  // atomA = 2 (n + 4) (1 + pa) / w and atomB = 2 sum_j p_j |x_j| / w (twice the one-part bound: both parts, second-order
+  // slack); the phase part weighs each atom by its own mass, not every atom by the farthest one's distance
   let pa = 0;
-  let xm = 0;
+  let px = 0;
   for (const a of part.atoms) {
     pa += a.p;
-    xm = Math.max(xm, Math.abs(a.x));
+    px += a.p * Math.abs(a.x);
   }
-  // per node the atom subtraction leaves ~ eps (1 + pa)/w (1 + t |x|) (phase rounding grows with t)
-  const atomTerm = pa > 0 ? ((4 * EPS * (1 + pa)) / part.weight) * (1 + nodes.K * nodes.h * xm) : 0;
+  const n = part.atoms.length;
+  const atomA = n > 0 ? (2 * EPS * (n + 4) * (1 + pa)) / part.weight : 0;
+  const atomB = n > 0 ? (2 * EPS * px) / part.weight : 0;
+  const T = nodes.K * nodes.h;
   const kAbs = kernelAbs(part);
   // kernel values fall like lambda / t: summed over the nodes, h sum |G_1(t_k)| ~ lambda asinh(T / lambda)
   let kPdf = 0;
@@ -178,10 +185,12 @@ export function roundingOf(part: ContinuousPart, nodes: Nodes, ymax = (2 * Math.
   return {
     cdf:
       grid.cdf + perTerm * nodes.absCdf + driftCdf + phase * nodes.absPdf + cfCdf + fftCdf + 2 * U * (nodes.mass + nodes.absCdf) +
-      (atomTerm + cfAbs) * harmonic + 8 * EPS * (1 + kAbs) * (Math.log(nodes.K + 1) + 1),
+      // (h/pi) sum_k (atomA + atomB t_k + cfAbs) / t_k = (atomA + cfAbs) (1/pi) sum 1/(k + 1/2) + atomB K h / pi
+      (atomA + cfAbs) * harmonic + (atomB * T) / Math.PI + 8 * EPS * (1 + kAbs) * (Math.log(nodes.K + 1) + 1),
     pdf:
       grid.pdf + perTerm * nodes.absPdf + driftPdf + phase * nodes.h * moment + cfPdf + fftPdf + 2 * U * nodes.absPdf +
-      ((atomTerm + cfAbs) * nodes.K * nodes.h) / Math.PI + (8 * EPS * kAbs * kPdf) / Math.PI + 8 * EPS,
+      // (h/pi) sum_k (atomA + atomB t_k + cfAbs) <= ((atomA + cfAbs) T + atomB T^2 / 2) / pi (sum_k h t_k = T^2 / 2)
+      ((atomA + cfAbs) * T + (atomB * T * T) / 2) / Math.PI + (8 * EPS * kAbs * kPdf) / Math.PI + 8 * EPS,
   };
 }
 
