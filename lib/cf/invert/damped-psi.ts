@@ -44,7 +44,7 @@ export function psiOf(model: CompiledModel, atoms: Atom[], beta: number, pairOut
   const relAt = model.dampedRelErrorAt ?? (absAt ? () => rel : undefined);
   const pa = atoms.reduce((s, a) => s + a.p, 0);
   // without the CF's own errors: those are added per node below where the model bounds them per frequency
-  const base0 = baseNoise(model, atoms, 0, absAt ? 0 : abs);
+  const kw = sev?.w ?? 0;
   const floor = planning ? base + 16 * EPS * kernelsMass(model.dampedKernels ?? []) : 0;
   // each atom's distance from lo and damped weight once (an atom at lo, as a compound's P(N = 0): no phase to take)
   const ds = Float64Array.from(atoms, (a) => a.x - lo);
@@ -54,28 +54,48 @@ export function psiOf(model: CompiledModel, atoms: Atom[], beta: number, pairOut
     // rounding falls like 1 / t), else the constant; a plan's probe keeps the constant (its floor is above it anyway)
     const rk = noise && relAt && !planning ? stepwise(relAt, beta, t, rel) : null;
     const ak = rk && absAt ? stepwise(absAt, beta, t, abs) : null;
-    if (rk) for (let k = 0; k < t.length; k++) noise![k] = base0 + 2 * pa * rk[k] + (ak ? 2 * ak[k] : 0);
+    // the final setup's noise per node: the CF's errors and the arithmetic below at this node's own sizes (a plan's probe
+    // keeps the constant base, whose 16 eps (1 + pa) stands for the arithmetic)
+    const own = noise && !planning;
+    if (own) for (let k = 0; k < t.length; k++) noise![k] = 16 * EPS * kw + (ak ? 2 * ak[k] : 2 * abs) + (rk ? 0 : 2 * pa * rel);
     else if (noise) noise.fill(base);
     model.dampedLogCf!(beta, t, re, im);
+    const blo = beta * lo;
+    const n = ds.length;
     for (let k = 0; k < t.length; k++) {
-      const m = Math.exp(re[k] + beta * lo);
-      const ph = im[k] - t[k] * lo;
+      const arg = re[k] + blo;
+      const m = Math.exp(arg);
+      const tlo = t[k] * lo;
+      const ph = im[k] - tlo;
       let r = m * Math.cos(ph);
       let i = m * Math.sin(ph);
-      for (let a = 0; a < ds.length; a++) {
+      let sa = 0;
+      let atomsRound = 0;
+      for (let a = 0; a < n; a++) {
         const d = ds[a];
         // cos 0 = 1 and sin 0 = 0 exactly: the same values without the calls
         r -= d === 0 ? ams[a] : ams[a] * Math.cos(t[k] * d);
         i -= d === 0 ? 0 : ams[a] * Math.sin(t[k] * d);
+        sa += ams[a];
+        atomsRound += ams[a] * (6 + t[k] * d);
       }
       re[k] = r;
       im[k] = i;
+      if (own) {
+        // in units of eps = 2u, both parts together: m = exp(arg) within eps + u (|arg| + |beta lo|) relative (the sum and
+        // the product rounded, exp one ulp), the phase within u (|t lo| + |ph|), cos and sin one ulp each, the product u:
+        // m (5 + |arg| + |beta lo| + |t lo| + |ph|); each atom's weight (exp, a product) 1.5 eps, its cos and sin one ulp
+        // plus u t d for the rounded phase t d, the product u: (6 + t d) p e^{-beta d}; each of the n subtractions u of a
+        // partial sum <= m + sum of the weights (one rounding per operation, Higham, Accuracy and Stability, sec. 2.2;
+        // exp, cos and sin within one ulp); second-order terms inside the last factor
+        const arith = m * (5 + Math.abs(arg) + Math.abs(blo) + Math.abs(tlo) + Math.abs(ph)) + atomsRound + n * (m + sa);
+        // the CF's relative error acts on e^L, of modulus m (the atoms' share and psi's alike, kernels or not)
+        noise![k] += EPS * arith * (1 + 16 * EPS) + (rk ? 2 * rk[k] * m * (1 + 4 * EPS) : 0);
+      }
     }
     // the kernels' factors' rounding per node (it falls with |z|^shape)
     if (model.dampedKernels) subtractKernels(model.dampedKernels, lo, beta, t, re, im, noise);
     if (sev) subtractSeverity(sev, beta, t, re, im);
-    // and on psi itself: the relative CF error sumAllowance charges at a constant rate (perNodeRel), here per node
-    if (rk) for (let k = 0; k < t.length; k++) noise![k] += 2 * rk[k] * Math.hypot(re[k], im[k]) * (1 + 4 * EPS);
     // a plan's probe keeps at least the floor it had when the kernels were charged 16 eps per unit of weight at every node:
     // without it the cut-off chases values the per-node bound resolves at high t (Poisson(2)-pareto: 311k terms instead of
     // 240k, for a cdf bound 2% lower); a floor above the noise only adds allowance
