@@ -34,7 +34,9 @@ export function dampedRelErrorAt(N: Node, X: Node): ((beta: number, t: number) =
   const nRel = N.cfRelError ?? 0;
   const whole = compoundErrors(N, X, 0).cfRelError;
   const own = valueRounding(X);
-  return (beta, t) => Math.min(whole, s * (e.at(beta, t) + xRel + own) + nRel);
+  // the value rounding is relative to |phi_X|: where the severity bounds its modulus per frequency, scaled by it
+  const mod = e.modulus;
+  return (beta, t) => Math.min(whole, s * (e.at(beta, t) + xRel + (mod ? own * Math.min(1, mod(beta, t)) : own)) + nRel);
 }
 
 /**

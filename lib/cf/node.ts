@@ -99,9 +99,17 @@ export interface Node {
   /**
    * severities (and sums and mixtures holding them or compounds of them, ./damped-error-carry.ts): a bound at frequency t,
    * damping beta, on the damped transform's absolute error (at most cfAbsError, non-increasing in |t|), valid only with
-   * the dampedLogCf and dampedCf named there; `shifted(b)`: the same for the law moved by b
+   * the dampedLogCf and dampedCf named there; `shifted(b)`: the same for the law moved by b; `modulus`: a bound on the
+   * damped transform's modulus itself at (beta, t), non-increasing in |t| (a compound scales its claim law's value rounding
+   * by it)
    */
-  dampedErrorAt?: { cf: DampedLogCf; rect?: DampedLogCf; at(beta: number, t: number): number; shifted?(b: number): (beta: number, t: number) => number };
+  dampedErrorAt?: {
+    cf: DampedLogCf;
+    rect?: DampedLogCf;
+    at(beta: number, t: number): number;
+    shifted?(b: number): (beta: number, t: number) => number;
+    modulus?(beta: number, t: number): number;
+  };
   /** compounds (and sums holding them): a bound at t, damping beta, on the damped transform's relative error (at most cfRelError, non-increasing in |t|), valid only with the dampedLogCf named there */
   dampedRelErrorAt?: { cf: DampedLogCf; at(beta: number, t: number): number };
   /** severities: the endpoint expansion of the Laplace transform (compounds choose gamma kernels from it) */

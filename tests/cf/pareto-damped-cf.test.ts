@@ -62,5 +62,16 @@ describe("pareto: E exp(i z X) at complex z (mpmath.expint reference)", () => {
         expect(dl, `lomax, t = ${t[k]}: ${pr} + ${pi} i, expected ${vr} + ${vi} i, difference ${dl}, bound ${tl}`).toBeLessThanOrEqual(tl);
       }
     });
+    it(`alpha ${alpha}, xm ${xm}, beta ${beta}: the modulus bound (dampedErrorAt.modulus) holds the reference's modulus, pareto and lomax`, () => {
+      const pm = pareto(alpha, xm).dampedErrorAt!.modulus!;
+      const lm = lomax(alpha, xm).dampedErrorAt!.modulus!;
+      for (const c of cs) {
+        const t = c.k / 10;
+        const m = Math.hypot(Number(c.re), Number(c.im));
+        expect(m, `pareto t = ${t}`).toBeLessThanOrEqual(pm(beta, t));
+        // lomax: the same transform times e^{beta xm} in modulus
+        expect(m * Math.exp(beta * xm), `lomax t = ${t}`).toBeLessThanOrEqual(lm(beta, t));
+      }
+    });
   }
 });

@@ -277,6 +277,9 @@ export function pareto(alpha: number, xm: number): Node {
     const f = den >= 1e-290 ? Math.min(aSum * g, Math.max(num, 1e-290) / den) : aSum * g;
     return Math.min(cfError, (constPart * g + (roundPart / aSum) * f) * (1 + 8 * Number.EPSILON));
   };
+  // |E e^{(i t - beta) X}| <= e^{-beta xm}, and by parts with the density f decreasing from f(xm) = alpha / xm to 0:
+  // |int f e^{s x}| <= (f(xm) e^{-beta xm} + int |f'| e^{-beta x}) / |s| <= 2 (alpha / xm) e^{-beta xm} / |s|, s = i t - beta
+  const modulus = (beta: number, t: number) => Math.exp(-beta * xm) * Math.min(1, (2 * alpha) / (xm * Math.hypot(beta, t))) * (1 + 4 * Number.EPSILON);
   const raw = (m: number) => (alpha * xm ** m) / (alpha - m);
   const expansion = paretoExpansion(alpha, xm);
   const node: Node = {
@@ -288,7 +291,7 @@ export function pareto(alpha: number, xm: number): Node {
     cfAbsError: cfError,
     dampedLogCf,
     dampedCf,
-    dampedErrorAt: { cf: dampedLogCf, rect: dampedCf, at: errorAt(0), shifted: errorAt },
+    dampedErrorAt: { cf: dampedLogCf, rect: dampedCf, at: errorAt(0), shifted: errorAt, modulus },
     laplaceExpansion: expansion,
     // the expansion's Watson remainder, bounded (../endpoint-remainder.ts): a compound's kernels leave a derived remainder
     endpointRemainder: paretoRemainder(alpha, xm, expansion),

@@ -240,7 +240,17 @@ export function lomax(alpha: number, theta: number): Node {
     dampedLogCf,
     dampedCf,
     // the pareto's per-frequency bound times the shift's factor e^{beta theta}
-    ...(pe?.shifted && dampedLogCf ? { dampedErrorAt: { cf: dampedLogCf, rect: dampedCf, at: pe.shifted(-theta) } } : { dampedErrorAt: undefined }),
+    // (and its modulus bound likewise: |e^{(i t - beta)(-theta)}| = e^{beta theta})
+    ...(pe?.shifted && dampedLogCf
+      ? {
+          dampedErrorAt: {
+            cf: dampedLogCf,
+            rect: dampedCf,
+            at: pe.shifted(-theta),
+            ...(pe.modulus ? { modulus: (beta: number, t: number) => Math.min(1, Math.exp(beta * theta) * pe.modulus!(beta, t) * (1 + 4 * Number.EPSILON)) } : {}),
+          },
+        }
+      : { dampedErrorAt: undefined }),
     laplaceExpansion: expansion,
     // e^{s 0} E e^{-s X} = e^{s theta} E e^{-s P}: the pareto's own remainder, its series moved to 0
     ...(p.endpointRemainder ? { endpointRemainder: { ...p.endpointRemainder, series: expansion } } : {}),
