@@ -344,6 +344,7 @@ export function toCompiled(node: Node): CompiledModel {
     ...(node.logCfErr ? { logCfExtraError: node.logCfErr } : {}),
     ...(node.densityJumps?.length ? { densityJumps: node.densityJumps } : {}),
     ...(node.densityKinks?.length ? { densityKinks: node.densityKinks } : {}),
+    ...(node.densityBends?.length ? { densityBends: node.densityBends } : {}),
     ...(node.mixParts ? { components: lazyComponents(node.mixParts) } : {}),
     // read on access: a discretised compound adds its error bound to its notes when its table is built
     get notes() {

@@ -4,7 +4,7 @@ import { compoundTable, pgfAt } from "./compound-table";
 import type { LatticeTable, RemainderJump } from "./types";
 import { compoundDamped } from "./damped-cf";
 import { GAMMA_ORDER, KERNEL_ORDER, compoundSeries, kernelsOfSeries, type GammaKernel, type TransformSeries } from "./damped-kernels";
-import { layerCompoundAtoms, layerCompoundJumps, layerCompoundKinks, type LayerCompoundAtoms } from "./layer-compound";
+import { layerCompoundAtoms, layerCompoundJumps, layerCompoundKinks, layerCompoundBends, type LayerCompoundAtoms } from "./layer-compound";
 import { builtNote, chooseSpan, isPoissonCount, discretisedCompound, methodNote, type DiscretiseOptions, type DiscretisedCompound } from "./discretise";
 import { withCumulantErrors } from "./cumulant-bounds";
 import { compoundE } from "./cumulant-ops";
@@ -130,6 +130,7 @@ export function compoundNode(N: Node, X: Node, discretise: DiscretiseOptions | n
     const { a0, a1, v } = layered;
     node.densityJumps = layerCompoundJumps(N, a0, a1, v, layered.byCount, X.severity.edges);
     node.densityKinks = layerCompoundKinks(N, a0, a1, v, layered.byCount, X.severity.edges);
+    node.densityBends = layerCompoundBends(N, a0, a1, v, layered.byCount, X.severity.edges);
   }
   if (node.dampedLogCf && X.laplaceExpansion && X.kind.type === "continuous" && N.table) {
     const k = kernelsFor(N, X);

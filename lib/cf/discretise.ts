@@ -14,9 +14,9 @@ export interface SeverityLaw {
   pdf(x: number): number;
   /**
    * a layered claim's density at the two ends of its continuous part (start+ and the limit-), where it jumps, and its
-   * slope there (dStart, dEnd; NaN where not formed), where the slope jumps
+   * slope and second derivative there (dStart, dEnd, eStart, eEnd; NaN where not formed), where those jump
    */
-  edges?: { start: number; fStart: number; fEnd: number; dStart?: number; dEnd?: number };
+  edges?: { start: number; fStart: number; fEnd: number; dStart?: number; dEnd?: number; eStart?: number; eEnd?: number };
   /** lower end of the support (density zero below) */
   lo: number;
   /** an x with P(X > x) <= q (upper bound on the upper q-quantile) */

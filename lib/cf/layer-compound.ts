@@ -176,3 +176,65 @@ export function layerCompoundKinks(
   }
   return [...at].map(([x, size]) => ({ at: x, size })).sort((p, q) => p.at - q.at);
 }
+
+/**
+ * Jumps of the density's second derivative, f''(x+) - f''(x-), likewise (eStart, eEnd: g'' at the two ends). One continuous
+ * claim: eStart w_k at k v + start, -eEnd w_k at (k + 1) v. Two (u_k): (g * g)'' = g'' * g steps by 2 fStart dStart at
+ * 2 start, -2 (fStart dEnd + fEnd dStart) at start + v, 2 fEnd dEnd at 2 v (g'' = g''_reg + dStart d_start - dEnd d_v +
+ * fStart d'_start - fEnd d'_v against g). Three (r_k = [z^k] P_N'''(a0 + a1 z) / 6): (g^{*3})'' = g' * g' * g steps by
+ * fStart^3 at 3 start, -3 fStart^2 fEnd at 2 start + v, 3 fStart fEnd^2 at start + 2 v, -fEnd^3 at 3 v; four or more
+ * claims give a continuous second derivative. (1 - a s) P'''(s) = (3 a + b) P''(s) from the recursion once more, so
+ * 6 r_k = ((3 a + b) 2 u_k + 6 a a1 r_{k-1}) / (1 - a a0). Empty where a value is not formed (NaN).
+ */
+export function layerCompoundBends(
+  N: Node,
+  a0: number,
+  a1: number,
+  v: number,
+  byCount: number[],
+  edges: { start: number; fStart: number; fEnd: number; dStart?: number; dEnd?: number; eStart?: number; eEnd?: number },
+): { at: number; size: number }[] {
+  const pan = N.panjer;
+  const { start: s, fStart: A, fEnd: B } = edges;
+  const DA = edges.dStart ?? NaN;
+  const DB = edges.dEnd ?? NaN;
+  const EA = edges.eStart ?? NaN;
+  const EB = edges.eEnd ?? NaN;
+  if (!pan || ![A, B, DA, DB, EA, EB].every(Number.isFinite)) return [];
+  const { a, b } = pan;
+  const c1 = pan.c1 ?? 0;
+  const inv = 1 / (1 - a * a0);
+  const limited = Number.isFinite(v) && a1 > 0;
+  const K = limited ? byCount.length : 0;
+  const at = new Map<number, number>();
+  const add = (x: number, size: number) => {
+    if (size !== 0 && Number.isFinite(size)) at.set(x, (at.get(x) ?? 0) + size);
+  };
+  let wPrev = 0;
+  let v2Prev = 0;
+  let v3Prev = 0;
+  for (let k = 0; k <= K; k++) {
+    const m = k < byCount.length ? byCount[k] : 0;
+    const w = ((a + b) * m + (k === 0 ? c1 : 0) + a * a1 * wPrev) * inv;
+    const v2 = ((2 * a + b) * w + a * a1 * v2Prev) * inv;
+    const v3 = ((3 * a + b) * v2 + a * a1 * v3Prev) * inv;
+    const u = v2 / 2;
+    const r = v3 / 6;
+    const kv = limited ? k * v : 0;
+    add(kv + s, EA * w);
+    add(kv + 2 * s, 2 * A * DA * u);
+    add(kv + 3 * s, A * A * A * r);
+    if (limited) {
+      add((k + 1) * v, -EB * w);
+      add((k + 1) * v + s, -2 * (A * DB + B * DA) * u);
+      add((k + 2) * v, 2 * B * DB * u);
+      add((k + 1) * v + 2 * s, -3 * A * A * B * r);
+      add((k + 2) * v + s, 3 * A * B * B * r);
+      add((k + 3) * v, -B * B * B * r);
+    }
+    wPrev = w;
+    v2Prev = v2;
+    v3Prev = v3;
+  }
+  return [...at].map(([x, size]) => ({ at: x, size })).sort((p, q) => p.at - q.at);
+}

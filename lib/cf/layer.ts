@@ -60,6 +60,17 @@ function edgeSlope(dist: DirectLaw, x: number, side: 1 | -1, s: number): number 
   return Number.isFinite(v) ? v : NaN;
 }
 
+/**
+ * its second derivative there likewise: the cubic through x + side j s (j = 1..4), differentiated twice at x, (3 f1 - 8 f2 +
+ * 7 f3 - 2 f4) / s^2, at steps s and s / 2 combined by Richardson (error O(s^3)); the same role and caveat as edgeSlope
+ */
+function edgeCurve(dist: DirectLaw, x: number, side: 1 | -1, s: number): number {
+  const f = (h: number) => dist.pdf(x + side * h);
+  const d = (h: number) => (3 * f(h) - 8 * f(2 * h) + 7 * f(3 * h) - 2 * f(4 * h)) / (h * h);
+  const v = (4 * d(s / 2) - d(s)) / 3;
+  return Number.isFinite(v) ? v : NaN;
+}
+
 export interface LayerTerms {
   deductible: number;
   limit: number;
@@ -123,6 +134,7 @@ export function layerNode(X: Node, terms: Partial<LayerTerms>): Node {
   const mean = raw(1);
   const m2 = raw(2);
   const slopeStep = Math.min(3e-4 * scaleX, (L - u0) / 8);
+  const curveStep = Math.min(3e-3 * scaleX, (L - u0) / 8);
   const sev: SeverityLaw & { atoms: { x: number; p: number }[] } = {
     name: "layer",
     pdf: (y) => (y > 0 && y < c * l ? dist.pdf(d + y / c) / c : 0),
@@ -139,6 +151,8 @@ export function layerNode(X: Node, terms: Partial<LayerTerms>): Node {
       // the slopes there (steps well inside the layer: the three points from the limit stay above its start)
       dStart: edgeSlope(dist, d + u0, 1, slopeStep) / (c * c),
       dEnd: l < Infinity ? edgeSlope(dist, d + l, -1, slopeStep) / (c * c) : 0,
+      eStart: edgeCurve(dist, d + u0, 1, curveStep) / (c * c * c),
+      eEnd: l < Infinity ? edgeCurve(dist, d + l, -1, curveStep) / (c * c * c) : 0,
     },
     // the layered claim's own cdf and sf (atoms included): the bounding discretisation takes cell masses from them
     cdf: (y) => (y < 0 ? 0 : y >= c * l ? 1 : dist.cdf(d + y / c)),

@@ -147,6 +147,8 @@ export interface Node {
   densityJumps?: DensityJump[];
   /** the points where that density's slope jumps, with the sizes (f'(x+) - f'(x-)) */
   densityKinks?: DensityJump[];
+  /** and where its second derivative jumps (f''(x+) - f''(x-)) */
+  densityBends?: DensityJump[];
 }
 
 export const NONE_MOMENT = (n: number): (number | null)[] => new Array<number | null>(n).fill(null);

@@ -146,6 +146,8 @@ export interface CompiledModel {
   readonly densityJumps?: readonly DensityJump[];
   /** points where the slope of that density jumps, f'(at+) - f'(at-) = size (taken out as shape-2 kernels beside the jumps) */
   readonly densityKinks?: readonly DensityJump[];
+  /** and where its second derivative jumps, f''(at+) - f''(at-) = size (shape-3 kernels) */
+  readonly densityBends?: readonly DensityJump[];
 }
 
 /** A jump f(at+) - f(at-) = size of a density (in units of the whole law's probability, atoms included). */

@@ -174,11 +174,12 @@ describe("slope steps of the density of a compound of layered claims", () => {
   });
 });
 
-describe("slope steps of a compiled compound of layered exponential claims against mpmath", () => {
-  // tests/fixtures/layer-compound/kinks.json (generate_kinks.py): the compound density's slope differentiated term by term
-  // from its direct series over the counts, cross-checked by the pgf-derivative form (difference written per value)
+describe("slope and second-derivative steps of a compiled compound of layered exponential claims against mpmath", () => {
+  // tests/fixtures/layer-compound/kinks.json (generate_kinks.py): the compound density's first and second derivatives term
+  // by term from its direct series over the counts, cross-checked by the pgf-derivative forms (difference written per value)
+  type Step = { at: number; step: string; methodsDifference: number };
   const f = JSON.parse(readFileSync(join(import.meta.dirname, "../fixtures/layer-compound/kinks.json"), "utf8")) as {
-    cases: { model: Model; kinks: { at: number; step: string; methodsDifference: number }[] }[];
+    cases: { model: Model; kinks: Step[]; bends: Step[] }[];
   };
   for (const k of f.cases) {
     it(`${JSON.stringify(k.model)}: the step at each multiple of the layer's width`, () => {
@@ -191,6 +192,19 @@ describe("slope steps of a compiled compound of layered exponential claims again
         // the claim density's end slopes come from its values by Richardson-combined differences (lib/cf/layer.ts
         // edgeSlope, about 1e-10 relative): they only set the kernels' sizes, which are added back exactly
         expect(Math.abs(v! - want), `at ${ref.at}: ${v} against ${want}`).toBeLessThanOrEqual(1e-8 * Math.abs(want) + ref.methodsDifference);
+      }
+    });
+    it(`${JSON.stringify(k.model)}: the second derivative's step at each multiple of the layer's width`, () => {
+      const c = compile(k.model);
+      const got = new Map((c.densityBends ?? []).map((j) => [j.at, j.size]));
+      // the claim density's second derivative at its ends by Richardson-combined differences (edgeCurve, about 1e-8 of
+      // itself): a step made of several terms that cancel is off by that much of the largest step, not of its own size
+      const scale = Math.max(...k.bends.map((b) => Math.abs(Number(b.step))));
+      for (const ref of k.bends) {
+        const want = Number(ref.step);
+        const v = got.get(ref.at);
+        expect(v, `at ${ref.at}`).toBeDefined();
+        expect(Math.abs(v! - want), `at ${ref.at}: ${v} against ${want}`).toBeLessThanOrEqual(1e-6 * Math.abs(want) + 1e-8 * scale + ref.methodsDifference);
       }
     });
   }

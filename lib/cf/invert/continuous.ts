@@ -166,11 +166,11 @@ export function maybeKernels(
   // known jumps of the density (compounds of layered claims): exact kernels instead of a fit at the ends
   // (a jump at the support's lower end alone is left to the endpoint fit below, which also matches higher orders)
   if (part.model.densityJumps?.some((j) => j.at > shape.support[0])) {
-    const ks = jumpKernels(part, part.model.densityJumps, win.b, part.model.densityKinks);
+    const ks = jumpKernels(part, part.model.densityJumps, win.b, part.model.densityKinks, part.model.densityBends);
     if (ks.length === 0) return { part, env };
     const p2 = withKernels(part, ks);
     notes.push(
-      `density jumps at ${ks.length} point(s) taken out as exponential kernels${part.model.densityKinks?.length ? " and the steps of its slope as shape-2 kernels" : ""} (inverted in closed form)`,
+      `density jumps at ${ks.length} point(s) taken out as exponential kernels${part.model.densityKinks?.length ? `, the steps of its slope${part.model.densityBends?.length ? " and second derivative" : ""} as shape-2${part.model.densityBends?.length ? " and shape-3" : ""} kernels beside them` : ""} (inverted in closed form)`,
     );
     return { part: p2, env: probeEnvelope(p2, shape.spread) };
   }

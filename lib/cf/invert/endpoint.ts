@@ -148,38 +148,47 @@ const MAX_JUMP_KERNELS = 256;
  * b lambda = J / w (w: the continuous part's weight) has the same jump at z, so what is left of the continuous part has
  * a continuous density there and its CF loses the J e^{itz} / (-it) term (integration by parts, as above). Each kernel
  * lives on [z, inf): its rate is chosen so that it is spent (e^{-60}) by the window's right end, b_hi; jumps at or
- * beyond b_hi are left in. With the density's slope steps known too (`kinks`, f'(z+) - f'(z-) = D), a shape-2 kernel
- * b2 e^{itz} / (1 - it/lambda)^2 (density b2 lambda^2 y e^{-lambda y}, slope b2 lambda^2 at y = 0+) beside it takes out
- * D / w less the exponential kernel's own slope step -b lambda^2, so the rest also loses its D e^{itz} / (-it)^2 term and
- * decays like t^-3 (shape-2 kernels alone where a slope steps without a jump). The kernels are added back exactly, so
- * the sizes only affect how fast the rest decays.
+ * beyond b_hi are left in. With the steps of the density's slope and second derivative known too (`kinks`: D, `bends`:
+ * E), shape-2 and shape-3 kernels b2 e^{itz} / (1 - it/lambda)^2 + b3 e^{itz} / (1 - it/lambda)^3 beside it match them:
+ * the three gamma densities' values at y = 0+ are (b lambda, 0, 0), slopes (-b, b2, 0) lambda^2 and second derivatives
+ * (b, -2 b2, b3) lambda^3, so b2 = D / (w lambda^2) + b and b3 = E / (w lambda^3) - b + 2 b2, and the rest loses its
+ * D e^{itz} / (-it)^2 and E e^{itz} / (-it)^3 terms too (decaying like t^-4 with both). The kernels are added back
+ * exactly, so the sizes only affect how fast the rest decays. At most MAX_JUMP_KERNELS points, the largest weights first.
  */
 export function jumpKernels(
   part: ContinuousPart,
   jumps: readonly { at: number; size: number }[],
   hi: number,
   kinks: readonly { at: number; size: number }[] = [],
+  bends: readonly { at: number; size: number }[] = [],
 ): EndpointKernels[] {
   const w = part.weight;
   if (!(w > 0)) return [];
-  const keep = (j: { at: number; size: number }) => j.at < hi && Number.isFinite(j.size) && Math.abs(j.size) / w > 1e-16;
-  const use = jumps
-    .filter(keep)
-    .sort((u, v) => Math.abs(v.size) - Math.abs(u.size))
-    .slice(0, MAX_JUMP_KERNELS);
-  const slope = new Map(kinks.filter(keep).map((k) => [k.at, k.size]));
-  const out: EndpointKernels[] = use.map((j) => {
-    const rate = 60 / (hi - j.at);
-    const b = j.size / w / rate;
-    if (!kinks.length) return { at: j.at, side: 1 as const, rate, power: 1, b: [b] };
-    const d = slope.get(j.at) ?? 0;
-    slope.delete(j.at);
-    return { at: j.at, side: 1 as const, rate, power: 1, b: [b, d / w / (rate * rate) + b] };
-  });
-  const rest = [...slope].sort((u, v) => Math.abs(v[1]) - Math.abs(u[1])).slice(0, Math.max(0, MAX_JUMP_KERNELS - out.length));
-  for (const [at, d] of rest) {
+  const keep = (j: { at: number; size: number }) => j.at < hi && Number.isFinite(j.size) && j.size !== 0;
+  const pts = new Map<number, [number, number, number]>();
+  const put = (list: readonly { at: number; size: number }[], i: 0 | 1 | 2) => {
+    for (const j of list.filter(keep)) {
+      const e = pts.get(j.at) ?? [0, 0, 0];
+      e[i] += j.size;
+      pts.set(j.at, e);
+    }
+  };
+  put(jumps, 0);
+  put(kinks, 1);
+  put(bends, 2);
+  const orders = bends.length ? 3 : kinks.length ? 2 : 1;
+  const out = [...pts].map(([at, [J, D, E]]) => {
     const rate = 60 / (hi - at);
-    out.push({ at, side: 1, rate, power: 2, b: [d / w / (rate * rate)] });
-  }
-  return out;
+    const b1 = J / w / rate;
+    const b2 = D / w / (rate * rate) + b1;
+    const b3 = E / w / (rate * rate * rate) - b1 + 2 * b2;
+    const b = [b1, b2, b3].slice(0, orders);
+    // the steps in density units (a jump, a slope step over the rate, ...), relative to the part's weight
+    return { k: { at, side: 1 as const, rate, power: 1, b }, size: Math.max(Math.abs(J), Math.abs(D) / rate, Math.abs(E) / (rate * rate)) / w };
+  });
+  return out
+    .filter((o) => o.size > 1e-16 && Number.isFinite(o.size))
+    .sort((p, q) => q.size - p.size)
+    .slice(0, MAX_JUMP_KERNELS)
+    .map((o) => o.k);
 }

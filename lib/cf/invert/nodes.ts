@@ -1,5 +1,5 @@
 import { cabs } from "../complex";
-import { evalPart, type ContinuousPart } from "./part";
+import { cfRelError, cfUlps, evalPart, type ContinuousPart } from "./part";
 import type { CompiledModel } from "../types";
 import { checkDeadline } from "../deadline";
 import { RESYNC } from "./pointwise";
@@ -58,6 +58,34 @@ export function noiseFloor(part: ContinuousPart): (t: number) => number {
     let f = base + slope * t;
     for (const k of ks) f += k.amp * Math.min(1, Math.pow(k.rate / t, k.power)) * (1 + t * k.at);
     return f;
+  };
+}
+
+/**
+ * A bound on the computed part's own error at probe i (t the probe's frequency): the model's CF from its log (evalPart's
+ * cfRelError: the log's units of rounding relative to 1 + |L|, exp, cos and sin, the recentring phase) on its modulus
+ * e^{Re L}, its declared absolute error, the atom subtraction atom by atom (shared.ts roundingOf: (n + 4)(1 + pa) eps and
+ * each atom's phase eps t |x_j| p_j, doubled as there) and the kernels' rounding (noiseFloor's term), all over w and
+ * doubled (both parts of the difference a sample may carry); probes past the evaluated ones take the log-CF's bound at 1
+ */
+function valuesFloor(part: ContinuousPart, lr: Float64Array, li: Float64Array, done: number): (t: number, i: number) => number {
+  let pa = 0;
+  let px = 0;
+  for (const a of part.atoms) {
+    pa += a.p;
+    px += a.p * Math.abs(a.x);
+  }
+  const w = part.weight;
+  const n = part.atoms.length;
+  const ulps = cfUlps(part.model);
+  const extra = part.model.logCfExtraError;
+  const atomA = 2 * Number.EPSILON * (n + 4) * (1 + pa);
+  const atomB = 2 * Number.EPSILON * px;
+  const kernels = noiseFloor({ ...part, atoms: [], cfAbsError: 0 });
+  return (t: number, i: number) => {
+    const m = i < done ? Math.exp(lr[i]) : 1;
+    const rel = i < done ? cfRelError(ulps, lr[i], li[i], t, part.center) + (extra ? extra(t) : 0) : 1;
+    return (2 * (Math.min(rel, 1) * m + part.cfAbsError + atomA + atomB * t)) / w + kernels(t);
   };
 }
 
@@ -122,7 +150,9 @@ export function probeEnvelope(part: ContinuousPart, scale: number): Envelope {
   }
   const mag = new Float64Array(n);
   for (let i = 0; i < n; i++) mag[i] = cabs(re[i], im[i]);
-  const sampled = envelopeOf(t, mag, nf);
+  // with kernels subtracted the samples are the envelope (no majorant below): values count as noise only up to their own
+  // computed error at each probe (valuesFloor), rather than the heuristic floor's growth with the atoms' distance
+  const sampled = envelopeOf(t, mag, part.kernels.length > 0 && part.atoms.length > 0 ? valuesFloor(part, own.re, own.im, own.done) : nf);
   // samples bound |phi| between probes only where it is monotone; the model's derived majorant (../majorant.ts) bounds
   // it everywhere, and is used when it applies to the inverted part: no kernels subtracted; with the sum's heaviest term
   // subtracted, the two majorants added; atoms only where the model derives a majorant of its continuous part with
