@@ -303,9 +303,14 @@ export interface Nodes {
   absCdf: number;
   absPdf: number;
   mass: number;
-  /** (1/pi) sum e_k |phi_k| / (k+1/2) and (h/pi) sum e_k |phi_k|, e_k the relative error of phi_k (part.ts cfRelError) */
+  /**
+   * (1/pi) sum d_k / (k+1/2) and (h/pi) sum d_k, d_k = (e_k + cfRelTaken) |phi(t_k)| / w the part's error from the
+   * model's CF value at node k (e_k its relative error as computed from the log, part.ts cfRelError)
+   */
   cfErrCdf?: number;
   cfErrPdf?: number;
+  /** the model's declared relative CF error, charged per node in cfErrCdf / cfErrPdf (roundingOf leaves it out of the uniform part) */
+  cfRelTaken?: number;
   /** (h/pi) sum (k+1/2) |phi_k| (the phase rounding of the density sum grows with t_k) */
   absPdfMoment?: number;
   /** (1/pi) sum j_k |phi_k| / (k+1/2) and (h/pi) sum j_k |phi_k|, j_k = k mod RESYNC the rotations since the last exact
@@ -337,6 +342,12 @@ export function buildNodes(part: ContinuousPart, h: number, K: number, env?: Env
   const B = Math.min(K, NODE_BLOCK);
   const tb = new Float64Array(B);
   const rel = new Float64Array(B);
+  const mod = new Float64Array(B);
+  // phi's relative errors act on phi, of modulus e^{Re L}, not on the part left after the atoms, kernels or tail term are
+  // taken out: per node (e_k + the model's declared relative error) e^{Re L} / w, the declared one then left out of the
+  // uniform absolute allowance (roundingOf)
+  const w = part.weight;
+  const dRel = part.model.cfRelError !== undefined && part.model.cfRelError >= 0 && Number.isFinite(part.model.cfRelError) ? part.model.cfRelError : 0;
   let ac = 0;
   let ap = 0;
   let ec = 0;
@@ -356,7 +367,7 @@ export function buildNodes(part: ContinuousPart, h: number, K: number, env?: Env
     const i1 = Math.min(K, i0 + NODE_BLOCK);
     const n = i1 - i0;
     for (let i = 0; i < n; i++) tb[i] = (i0 + i + 0.5) * h;
-    evalPart(part, n === B ? tb : tb.subarray(0, n), re.subarray(i0, i1), im.subarray(i0, i1), n === B ? rel : rel.subarray(0, n));
+    evalPart(part, n === B ? tb : tb.subarray(0, n), re.subarray(i0, i1), im.subarray(i0, i1), n === B ? rel : rel.subarray(0, n), undefined, n === B ? mod : mod.subarray(0, n));
     moves?.block(tb, n, i0, re, im, rel);
     for (let k = i0; k < i1; k++) {
       const inv = 1 / (k + 0.5);
@@ -364,10 +375,13 @@ export function buildNodes(part: ContinuousPart, h: number, K: number, env?: Env
       wim[k] = im[k] * inv;
       const a = cabs(re[k], im[k]);
       const r = rel[k - i0];
+      // (the recentring's rounding in e_k acts on the part itself: the larger of the two moduli takes it)
+      const mk = mod[k - i0] / w;
+      const e = r * Math.max(mk, a) + dRel * mk;
       ac += a * inv;
       ap += a;
-      ec += r * a * inv;
-      ep += r * a;
+      ec += e * inv;
+      ep += e;
       am += (k + 0.5) * a;
       q2c += a * inv * (a * inv);
       q2p += a * a;
@@ -388,8 +402,9 @@ export function buildNodes(part: ContinuousPart, h: number, K: number, env?: Env
     absCdf: (ac * g) / Math.PI,
     absPdf: (ap * h * g) / Math.PI,
     mass: part.mass,
-    cfErrCdf: (ec * g) / Math.PI,
-    cfErrPdf: (ep * h * g) / Math.PI,
+    cfErrCdf: (ec * g * (1 + 4 * Number.EPSILON)) / Math.PI,
+    cfErrPdf: (ep * h * g * (1 + 4 * Number.EPSILON)) / Math.PI,
+    cfRelTaken: dRel,
     absPdfMoment: (am * h * g) / Math.PI,
     l2Cdf: (Math.sqrt(q2c * g) * g) / Math.PI,
     l2Pdf: (Math.sqrt(q2p * g) * h * g) / Math.PI,

@@ -95,7 +95,8 @@ export function tailLawAt(term: TailTerm, x: number): { pdf: number; cdf: number
 }
 
 /**
- * phi_part(t) = [ (phi(t) - sum_j p_j e^{i t x_j}) / w  -  kernels(t) - phi_G(t) ] e^{-i t c}, written into (re, im).
+ * phi_part(t) = [ (phi(t) - sum_j p_j e^{i t x_j}) / w  -  kernels(t) - phi_G(t) ] e^{-i t c}, written into (re, im);
+ * with `rel` the relative error of each phi(t) as computed from its log (cfRelError), with `mod` its modulus e^{Re L}.
  * Scratch-free apart from what the model needs; called once per node block, never per x.
  */
 export function evalPart(
@@ -105,6 +106,7 @@ export function evalPart(
   im: Float64Array,
   rel?: Float64Array,
   logCf?: { re: Float64Array; im: Float64Array },
+  mod?: Float64Array,
 ): void {
   const n = t.length;
   // the model's log-CF at t, unless the caller has it already (probeEnvelope keeps it per model)
@@ -124,6 +126,7 @@ export function evalPart(
     const li = im[i];
     if (rel) rel[i] = cfRelError(ulps, lr, li, t[i], c) + (extra ? extra(t[i]) : 0);
     const m = Math.exp(lr);
+    if (mod) mod[i] = m;
     if (m === 0 || Number.isNaN(m)) {
       re[i] = m === 0 ? 0 : NaN;
       im[i] = m === 0 ? 0 : NaN;

@@ -121,8 +121,9 @@ export function kernelAbs(part: ContinuousPart): number {
 /**
  * Rounding bounds of the mid-point sums (pointwise.ts, and fft.ts when fftN > 0) for cdf and pdf, derived term by term
  * (Higham, Accuracy and Stability of Numerical Algorithms, 2nd ed.; u = eps / 2 rounded up to eps):
- * - the CF values: their relative errors e_k (part.ts cfRelError) summed into nodes.cfErrCdf / cfErrPdf, and the
- *   model's declared absolute error and the atom subtraction's rounding at every node;
+ * - the CF values: their relative errors e_k (part.ts cfRelError) and the model's declared relative error on |phi(t_k)|
+ *   summed into nodes.cfErrCdf / cfErrPdf, and the model's declared absolute error and the atom subtraction's rounding
+ *   at every node;
  * - the phases: the node angle t_k y is computed from y = x - c and h y with 3 roundings, an absolute phase error of
  *   3 u t_k |y|; between exact phases (every RESYNC nodes) each rotation by (cos h y, sin h y) adds at most 5 u
  *   (2 u in the rotation factor, 2 sqrt(2) u in the complex product), 5 u (k mod RESYNC) at node k (nodes.driftCdf,
@@ -179,7 +180,8 @@ export function roundingOf(part: ContinuousPart, nodes: Nodes, ymax = (2 * Math.
   let kPdf = 0;
   for (const k of part.kernels) kPdf = Math.max(kPdf, k.rate * Math.asinh((nodes.K * nodes.h) / k.rate));
   // a CF with a declared absolute error (numerical CFs) adds that error at every node: (1/pi) sum 1/(k + 1/2) <= (2 + ln K)/pi
-  const cfAbs = part.cfAbsError / part.weight;
+  // (less the declared relative error where the nodes charged it per node on |phi(t_k)|)
+  const cfAbs = Math.max(part.cfAbsError - (nodes.cfRelTaken ?? 0), 0) / part.weight;
   const harmonic = (2 + Math.log(K)) / Math.PI;
   const grid = gridTerm(part, nodes, fftN > 1);
   return {
