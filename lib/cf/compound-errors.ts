@@ -63,7 +63,7 @@ export function severityRounding(
   slope: number,
   errAt: ((t: number) => number) | undefined,
   rectDamped = false,
-  count?: { cgfSlope: number | undefined; self: () => Node },
+  count?: { cgfSlope: number | undefined; self: () => Node; N: Node },
 ) {
   const R = X.logRoundSlope;
   const add = R === undefined ? NaN : meanN !== null && Number.isFinite(meanN) ? meanN * R * (1 + 2 * Number.EPSILON) : Infinity;
@@ -77,6 +77,22 @@ export function severityRounding(
   const gain = (m: number) => (c !== undefined && Number.isFinite(c) ? Math.min(n, c * Math.min(1, m) * (1 + 1e-9)) : n);
   const T = new Float64Array(1);
   const M = new Float64Array(1);
+  const Z = new Float64Array(1);
+  const PR = new Float64Array(1);
+  const PI = new Float64Array(1);
+  // where the compound has no majorant: |P_N(z)| <= P_N(|z|) (non-negative coefficients), |z| <= the claim law's own
+  // modulus bound (Node.logRoundModulus), P_N(m) from the count's cumulant function at log m (within its stated errors)
+  const byClaim = (beta: number, t: number) => {
+    const mod = X.logRoundModulus;
+    const N = count?.N;
+    if (!mod || !N?.countCgf) return n;
+    const m = mod(beta, Math.abs(t));
+    if (!(m < 1)) return n;
+    T[0] = Math.log(m);
+    Z[0] = 0;
+    N.countCgf(T, Z, PR, PI);
+    return gain(Math.exp(PR[0]) * (1 + 1e-9) + (N.cfAbsError ?? 0) + (N.cfRelError ?? 0));
+  };
   const undampedGain = (t: number) => {
     const self = count?.self();
     if (!self || c === undefined) return n;
@@ -86,7 +102,7 @@ export function severityRounding(
       return gain(Math.exp(M[0]) * (1 + 4 * Number.EPSILON));
     }
     const cm = self.continuousMajorant;
-    if (!cm) return n;
+    if (!cm) return byClaim(0, t);
     cm.maj(T, M);
     let p = 0;
     for (const a of cm.atoms) p += a.p;
@@ -95,7 +111,8 @@ export function severityRounding(
   const dampedGain = (beta: number, t: number) => {
     const self = count?.self();
     const dm = self?.dampedMajorant;
-    if (!self || !dm || dm.cf !== self.dampedLogCf || !(self.support[0] >= 0)) return n;
+    if (!self || c === undefined) return n;
+    if (!dm || dm.cf !== self.dampedLogCf || !(self.support[0] >= 0)) return byClaim(beta, t);
     return gain((dm.atom + dm.rest(beta, Math.abs(t))) * (1 + 4 * Number.EPSILON));
   };
   // per frequency where the severity derives it (E N, or the count's slope times |phi|, times its R(t)), else the slope

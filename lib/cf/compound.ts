@@ -82,6 +82,7 @@ export function compoundNode(N: Node, X: Node, discretise: DiscretiseOptions | n
     ...severityRounding(N.cumulants(1)[0], X, compoundArgSlope(N.cumulants(1)[0], X), compoundArgErrAt(N.cumulants(1)[0], X), !!(X.dampedCf && N.countLogPgf), {
       cgfSlope: N.cgfSlope,
       self: () => node,
+      N,
     }),
     cumulants(n) {
       const kx = X.cumulants(n);

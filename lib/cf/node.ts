@@ -92,6 +92,9 @@ export interface Node {
   logRoundAt?: (t: number, self?: Node) => number;
   /** the same for the damped transform at damping beta, frequency t >= 0: at most logRoundSlope (t + beta) */
   logRoundDampedAt?: (beta: number, t: number, self?: Node) => number;
+  /** severities: a bound on |phi~(beta, t)| (beta = 0: |phi(t)|) the family derives in closed form, where it does (a compound
+   *  bounds its count's factor |P_N'(phi_X)| <= cgfSlope P_N(that) with it, ./compound-errors.ts) */
+  logRoundModulus?: (beta: number, t: number) => number;
   /** severities: what the logRound bound assumes, where it assumes anything (a compound of the law lists it in its notes) */
   logRoundNote?: string;
   /** compounds: argErrAt's damped counterpart (the error is at most min(argSlope (t + beta), argErrDampedAt(beta, t))) */

@@ -75,7 +75,7 @@ export function ggcLogRound(
   node?: () => Node,
   modulus?: (beta: number, t: number) => number,
   shift = 0,
-): LogRound & Pick<Node, "logRoundNote" | "logRoundDampedAt"> {
+): LogRound & Pick<Node, "logRoundNote" | "logRoundDampedAt" | "logRoundModulus"> {
   if (!(mean >= 0 && Number.isFinite(mean))) return {};
   const k = shift > 0 ? 1.125 : 1;
   const slope = U8 * k * (1 + Math.PI) * (mean + shift) * (1 + U8);
@@ -149,6 +149,7 @@ export function ggcLogRound(
     },
     logRoundNote:
       "the quadrature claim law's log rounding is bounded with its phase on the continuous or the principal branch (the unwrap along a grid finer than about pi / E X)",
+    ...(modulus ? { logRoundModulus: modulus } : {}),
   };
 }
 
@@ -194,7 +195,7 @@ export function withGgcLogRound<N extends Node>(node: N, mean: number, modulus?:
   return Object.assign(node, ggcLogRound(mean, () => node, modulus, shift));
 }
 
-type Carried = Pick<Node, "logRoundSlope" | "logRoundAt" | "logRoundDampedAt" | "logRoundNote">;
+type Carried = Pick<Node, "logRoundSlope" | "logRoundAt" | "logRoundDampedAt" | "logRoundNote" | "logRoundModulus">;
 const noteOf = (cs: readonly Node[]) => cs.map((c) => c.logRoundNote).find((n) => n !== undefined);
 
 /**
@@ -204,8 +205,9 @@ const noteOf = (cs: readonly Node[]) => cs.map((c) => c.logRoundNote).find((n) =
  */
 export function shiftedLogRound(c: Node, b: number): Carried {
   const R = c.logRoundSlope;
-  if (b === 0) return { logRoundSlope: R, logRoundAt: c.logRoundAt, logRoundDampedAt: c.logRoundDampedAt, logRoundNote: c.logRoundNote };
-  if (R === undefined || !(b > 0)) return { logRoundSlope: undefined, logRoundAt: undefined, logRoundDampedAt: undefined, logRoundNote: undefined };
+  if (b === 0) return { logRoundSlope: R, logRoundAt: c.logRoundAt, logRoundDampedAt: c.logRoundDampedAt, logRoundNote: c.logRoundNote, logRoundModulus: c.logRoundModulus };
+  if (R === undefined || !(b > 0))
+    return { logRoundSlope: undefined, logRoundAt: undefined, logRoundDampedAt: undefined, logRoundNote: undefined, logRoundModulus: undefined };
   const k = (1 + 4 * Number.EPSILON);
   const own = 2 * Number.EPSILON * b;
   const at = c.logRoundAt;
@@ -215,6 +217,8 @@ export function shiftedLogRound(c: Node, b: number): Carried {
     logRoundAt: at ? (t) => (1.125 * at(t, c) + own * Math.abs(t)) * k : undefined,
     logRoundDampedAt: dAt ? (beta, t) => (1.125 * dAt(beta, t, c) + own * (Math.abs(t) + beta)) * k : undefined,
     logRoundNote: c.logRoundNote,
+    // |phi~| of X + b is e^{-beta b} times X's
+    logRoundModulus: c.logRoundModulus,
   };
 }
 
@@ -230,6 +234,7 @@ export function scaledLogRound(c: Node, a: number): Carried {
     logRoundAt: at ? (t) => at(a * t, c) * (1 + Number.EPSILON) : undefined,
     logRoundDampedAt: dAt ? (beta, t) => dAt(a * beta, a * t, c) * (1 + Number.EPSILON) : undefined,
     logRoundNote: c.logRoundNote,
+    logRoundModulus: c.logRoundModulus ? (beta, t) => c.logRoundModulus!(a * beta, a * t) : undefined,
   };
 }
 

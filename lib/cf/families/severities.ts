@@ -235,6 +235,8 @@ export function lomax(alpha: number, theta: number): Node {
     logRoundSlope: undefined,
     logRoundAt: undefined,
     logRoundNote: undefined,
+    logRoundDampedAt: undefined,
+    logRoundModulus: undefined,
     notes: [`lomax CF computed by quadrature on a rotated contour (absolute error <= ${p.cfAbsError!.toPrecision(2)})`],
     // X = P - theta with P pareto(alpha, theta): the damped transform and the endpoint expansion move with the shift
     dampedLogCf,
