@@ -50,8 +50,8 @@ export function linearLogRound(c: number, logAt?: (t: Float64Array, re: Float64A
 
 /**
  * A positive law that is a generalized gamma convolution (Bondesson 1992, Generalized Gamma Convolutions and Related
- * Classes of Distributions and Densities, Springer, ch. 3-5: the lognormal, Pareto and Lomax, Weibull of shape <= 1,
- * Burr and log-logistic of power <= 1, inverse gamma are hyperbolically completely monotone, hence GGC), with mean m:
+ * Classes of Distributions and Densities, Springer, recalled from memory: the lognormal, Pareto and Lomax, Weibull of shape
+ * <= 1, Burr and log-logistic of power <= 1, inverse gamma are hyperbolically completely monotone, hence GGC), with mean m:
  * log phi(t) = i a t - int log(1 - i t / x) U(dx) (a >= 0, U >= 0), so |phi| = exp(-int log(1 + t^2 / x^2) U(dx) / 2) does
  * not increase in t and the continuous argument theta = a t + int atan(t / x) U(dx) lies in [0, m t] (m = a + int U(dx) / x);
  * damped, |phi~(beta, t)| does not increase in t either and theta~ = a t + int atan(t / (x + beta)) U(dx) in [0, m t].

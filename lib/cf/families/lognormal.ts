@@ -219,7 +219,7 @@ export function lognormal(mu: number, sigma: number): Node {
     singleRect(beta, t, re, im);
     return cfErrorSingle;
   };
-  // claim-law rounding: the lognormal is a generalized gamma convolution (Thorin 1977; ./log-round.ts ggcLogRound)
+  // claim-law rounding: the lognormal is a generalized gamma convolution (Thorin 1977, Scand. Actuarial J., recalled from memory; ./log-round.ts ggcLogRound)
   return withGgcLogRound({
     kind: { type: "continuous" },
     momentIndex: Infinity,

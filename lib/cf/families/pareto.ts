@@ -312,7 +312,7 @@ export function pareto(alpha: number, xm: number): Node {
     // E X^n = alpha xm^n / (alpha - n), n < alpha (JKB vol. 1, ch. 20)
     cumulants: (m) => rawToCumulants(cumulantList(m, alpha, raw)),
   };
-  // claim-law rounding: xm (1 + Y), Y Lomax, a generalized gamma convolution moved right (Thorin 1977; ./log-round.ts
+  // claim-law rounding: xm (1 + Y), Y Lomax, a generalized gamma convolution moved right (Thorin 1977, Scand. Actuarial J., recalled from memory; ./log-round.ts
   // ggcLogRound), for a finite mean; its density alpha xm^alpha x^(-alpha-1) decreases from alpha / xm
   return alpha > 1 ? withGgcLogRound(node, raw(1), decreasingDensityModulus(xm, alpha / xm)) : node;
 }
