@@ -98,9 +98,13 @@ export function sumNode(cs: Node[]): Node {
   return node;
 }
 
+export const SCALE_ROUNDING_NOTE =
+  "the rounding of the scaled frequency a t is not bounded for a term without a first absolute moment: where the answer inverts the CF, that move of the CF values is left out of its error bounds";
+
 /** Law of aX: phi(t) = phi_X(a t); for a < 0, log phi_X(a t) = conj log phi_X(|a| t) keeps the branch continuous. */
 export function scaleNode(a: number, c: Node): Node {
   const aa = Math.abs(a);
+  const argSlope = scaleArgSlope(a, c);
   const node: Node = {
     kind: scaleKind(c.kind, a),
     momentIndex: c.momentIndex,
@@ -108,7 +112,9 @@ export function scaleNode(a: number, c: Node): Node {
     powerIndices: c.powerIndices,
     nodes: 1 + c.nodes,
     get notes() {
-      return c.notes;
+      // the rounding of a t moves phi(a t) by up to u |a t| E|X|: without a first absolute moment (Cauchy, stable alpha <= 1,
+      // pareto alpha <= 1) no such bound is derived, and the answer says so rather than take it as 0
+      return Number.isNaN(argSlope) ? [...c.notes, SCALE_ROUNDING_NOTE] : c.notes;
     },
     location: a * c.location,
     scale: aa * c.scale,
@@ -124,7 +130,7 @@ export function scaleNode(a: number, c: Node): Node {
     hasCompound: c.hasCompound,
     cfAbsError: c.cfAbsError,
     cfRelError: c.cfRelError,
-    argSlope: scaleArgSlope(a, c),
+    argSlope,
     argErrAt: scaleArgErrAt(a, c),
     argErrDampedAt: scaleArgErrDampedAt(a, c),
     ...scaledLogRound(c, a),

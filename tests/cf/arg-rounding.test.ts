@@ -180,3 +180,17 @@ describe("a compound carries the rounding of each closed-form claim law", () => 
     });
   }
 });
+
+// Without a first absolute moment (Cauchy, pareto alpha <= 1) the scale node derives no bound on the rounding of a t: the
+// answer must say so (a note), not take it as 0; with one (gamma), or at a power of two (a t exact), no such note.
+describe("a scaled term without a first absolute moment says its argument rounding is not bounded", () => {
+  const noted = (m: unknown) => compile(m as Model).notes.some((n) => /rounding of the scaled frequency a t is not bounded/.test(n));
+  it("Cauchy and pareto(0.9) scaled by 3 and 1.7: noted, also inside a sum", () => {
+    expect(noted({ scale: 3, of: { family: "cauchy", loc: 0, scale: 1 } })).toBe(true);
+    expect(noted({ sum: [{ scale: 1.7, of: { family: "pareto", alpha: 0.9, xm: 1 } }, { family: "gamma", shape: 2, rate: 1 }] })).toBe(true);
+  });
+  it("gamma scaled by 3, Cauchy scaled by 4 (exact): no note", () => {
+    expect(noted({ scale: 3, of: { family: "gamma", shape: 2, rate: 1 } })).toBe(false);
+    expect(noted({ scale: 4, of: { family: "cauchy", loc: 0, scale: 1 } })).toBe(false);
+  });
+});
