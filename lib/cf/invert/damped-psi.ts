@@ -42,7 +42,6 @@ export function psiOf(model: CompiledModel, atoms: Atom[], beta: number, pairOut
   const abs = model.cfAbsError ?? 0;
   const absAt = model.dampedAbsErrorAt;
   const relAt = model.dampedRelErrorAt ?? (absAt ? () => rel : undefined);
-  const pa = atoms.reduce((s, a) => s + a.p, 0);
   // without the CF's own errors: those are added per node below where the model bounds them per frequency
   const kw = sev?.w ?? 0;
   const floor = planning ? base + 16 * EPS * kernelsMass(model.dampedKernels ?? []) : 0;
@@ -57,7 +56,7 @@ export function psiOf(model: CompiledModel, atoms: Atom[], beta: number, pairOut
     // the final setup's noise per node: the CF's errors and the arithmetic below at this node's own sizes (a plan's probe
     // keeps the constant base, whose 16 eps (1 + pa) stands for the arithmetic)
     const own = noise && !planning;
-    if (own) for (let k = 0; k < t.length; k++) noise![k] = 16 * EPS * kw + (ak ? 2 * ak[k] : 2 * abs) + (rk ? 0 : 2 * pa * rel);
+    if (own) for (let k = 0; k < t.length; k++) noise![k] = 16 * EPS * kw + (ak ? 2 * ak[k] : 2 * abs);
     else if (noise) noise.fill(base);
     model.dampedLogCf!(beta, t, re, im);
     const blo = beta * lo;
@@ -89,8 +88,9 @@ export function psiOf(model: CompiledModel, atoms: Atom[], beta: number, pairOut
         // partial sum <= m + sum of the weights (one rounding per operation, Higham, Accuracy and Stability, sec. 2.2;
         // exp, cos and sin within one ulp); second-order terms inside the last factor
         const arith = m * (5 + Math.abs(arg) + Math.abs(blo) + Math.abs(tlo) + Math.abs(ph)) + atomsRound + n * (m + sa);
-        // the CF's relative error acts on e^L, of modulus m (the atoms' share and psi's alike, kernels or not)
-        noise![k] += EPS * arith * (1 + 16 * EPS) + (rk ? 2 * rk[k] * m * (1 + 4 * EPS) : 0);
+        // the CF's relative error acts on e^L, of modulus m (the atoms' share and psi's alike, kernels or not): per
+        // frequency where the model bounds it so, else the constant one (sumAllowance leaves it out of the final setup's)
+        noise![k] += EPS * arith * (1 + 16 * EPS) + 2 * (rk ? rk[k] : rel) * m * (1 + 4 * EPS);
       }
     }
     // the kernels' factors' rounding per node (it falls with |z|^shape)

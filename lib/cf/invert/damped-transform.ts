@@ -38,9 +38,10 @@ export function exactStep(h: number): number {
  * already carries the propagated CF error.
  */
 export function sumAllowance(model: CompiledModel, K: number, pointwise: Exactness, perNodeRel = false): number {
-  // perNodeRel: psiOf's noise (not a plan's probe) carries the relative error per node where the model bounds it so
+  // perNodeRel: psiOf's noise (not a plan's probe) carries the relative error per node, on |e^L| (per frequency where the
+  // model bounds it so, else the constant one)
   const sevPsi = model.dampedSeverity?.count && model.support[0] === 0;
-  const cf = sevPsi || (perNodeRel && (model.dampedRelErrorAt || model.dampedAbsErrorAt)) ? 0 : 2 * (model.cfRelError ?? 0);
+  const cf = sevPsi || perNodeRel ? 0 : 2 * (model.cfRelError ?? 0);
   if (!pointwise) return GRID_REL + cf;
   return (pointwise === "interpolated" ? FFT_REL : SUM_REL) + cf;
 }
