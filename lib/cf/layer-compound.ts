@@ -141,28 +141,14 @@ export function layerCompoundKinks(
   byCount: number[],
   edges: { start: number; fStart: number; fEnd: number; dStart?: number; dEnd?: number },
 ): { at: number; size: number }[] {
-  const pan = N.panjer;
   const { start: s, fStart: A, fEnd: B } = edges;
   const DA = edges.dStart ?? NaN;
   const DB = edges.dEnd ?? NaN;
-  if (!pan || ![A, B, DA, DB].every(Number.isFinite)) return [];
-  const { a, b } = pan;
-  const c1 = pan.c1 ?? 0;
-  const inv = 1 / (1 - a * a0);
-  const limited = Number.isFinite(v) && a1 > 0;
-  const K = limited ? byCount.length : 0;
+  if (![A, B, DA, DB].every(Number.isFinite)) return [];
   // by position (the same floating-point expressions as the jumps' k v and k v + start, so the kernels pair up)
-  const at = new Map<number, number>();
-  const add = (x: number, size: number) => {
-    if (size !== 0 && Number.isFinite(size)) at.set(x, (at.get(x) ?? 0) + size);
-  };
-  let wPrev = 0;
-  let vPrev = 0;
-  for (let k = 0; k <= K; k++) {
-    const m = k < byCount.length ? byCount[k] : 0;
-    const w = ((a + b) * m + (k === 0 ? c1 : 0) + a * a1 * wPrev) * inv;
-    const v2 = ((2 * a + b) * w + a * a1 * vPrev) * inv;
-    const u = v2 / 2;
+  return stepsByCount(N, a0, a1, v, byCount, 2, (k, d, limited, add) => {
+    const w = d[0];
+    const u = d[1] / 2;
     const kv = limited ? k * v : 0;
     add(kv + s, DA * w);
     add(kv + 2 * s, A * A * u);
@@ -171,10 +157,7 @@ export function layerCompoundKinks(
       add((k + 1) * v + s, -2 * A * B * u);
       add((k + 2) * v, B * B * u);
     }
-    wPrev = w;
-    vPrev = v2;
-  }
-  return [...at].map(([x, size]) => ({ at: x, size })).sort((p, q) => p.at - q.at);
+  });
 }
 
 /**
@@ -194,32 +177,16 @@ export function layerCompoundBends(
   byCount: number[],
   edges: { start: number; fStart: number; fEnd: number; dStart?: number; dEnd?: number; eStart?: number; eEnd?: number },
 ): { at: number; size: number }[] {
-  const pan = N.panjer;
   const { start: s, fStart: A, fEnd: B } = edges;
   const DA = edges.dStart ?? NaN;
   const DB = edges.dEnd ?? NaN;
   const EA = edges.eStart ?? NaN;
   const EB = edges.eEnd ?? NaN;
-  if (!pan || ![A, B, DA, DB, EA, EB].every(Number.isFinite)) return [];
-  const { a, b } = pan;
-  const c1 = pan.c1 ?? 0;
-  const inv = 1 / (1 - a * a0);
-  const limited = Number.isFinite(v) && a1 > 0;
-  const K = limited ? byCount.length : 0;
-  const at = new Map<number, number>();
-  const add = (x: number, size: number) => {
-    if (size !== 0 && Number.isFinite(size)) at.set(x, (at.get(x) ?? 0) + size);
-  };
-  let wPrev = 0;
-  let v2Prev = 0;
-  let v3Prev = 0;
-  for (let k = 0; k <= K; k++) {
-    const m = k < byCount.length ? byCount[k] : 0;
-    const w = ((a + b) * m + (k === 0 ? c1 : 0) + a * a1 * wPrev) * inv;
-    const v2 = ((2 * a + b) * w + a * a1 * v2Prev) * inv;
-    const v3 = ((3 * a + b) * v2 + a * a1 * v3Prev) * inv;
-    const u = v2 / 2;
-    const r = v3 / 6;
+  if (![A, B, DA, DB, EA, EB].every(Number.isFinite)) return [];
+  return stepsByCount(N, a0, a1, v, byCount, 3, (k, d, limited, add) => {
+    const w = d[0];
+    const u = d[1] / 2;
+    const r = d[2] / 6;
     const kv = limited ? k * v : 0;
     add(kv + s, EA * w);
     add(kv + 2 * s, 2 * A * DA * u);
@@ -232,9 +199,44 @@ export function layerCompoundBends(
       add((k + 2) * v + s, 3 * A * B * B * r);
       add((k + 3) * v, -B * B * B * r);
     }
-    wPrev = w;
-    v2Prev = v2;
-    v3Prev = v3;
+  });
+}
+
+/**
+ * The steps' common recursion: for k = 0..K (K = byCount.length where a limit caps the claims, else 0) the weights
+ * d_j = [z^k] P_N^{(j+1)}(a0 + a1 z), j < order (so w_k = d_0, u_k = d_1 / 2, r_k = d_2 / 6), from
+ * (1 - a s) P^{(j+1)}(s) = ((j + 1) a + b) P^{(j)}(s) (j >= 1) and (1 - a s) P'(s) = (a + b) P(s) + c1: d_0 = ((a + b) m_k
+ * + c1 [k = 0] + a a1 d_0(k-1)) / (1 - a a0), d_j = (((j + 1) a + b) d_{j-1} + a a1 d_j(k-1)) / (1 - a a0). `visit` adds
+ * each count's steps by position; the sum at each position, sorted. Empty without the count's (a, b, 1) recursion.
+ */
+function stepsByCount(
+  N: Node,
+  a0: number,
+  a1: number,
+  v: number,
+  byCount: number[],
+  order: number,
+  visit: (k: number, d: Float64Array, limited: boolean, add: (x: number, size: number) => void) => void,
+): { at: number; size: number }[] {
+  const pan = N.panjer;
+  if (!pan) return [];
+  const { a, b } = pan;
+  const c1 = pan.c1 ?? 0;
+  const inv = 1 / (1 - a * a0);
+  const limited = Number.isFinite(v) && a1 > 0;
+  const K = limited ? byCount.length : 0;
+  const at = new Map<number, number>();
+  const add = (x: number, size: number) => {
+    if (size !== 0 && Number.isFinite(size)) at.set(x, (at.get(x) ?? 0) + size);
+  };
+  const prev = new Float64Array(order);
+  const d = new Float64Array(order);
+  for (let k = 0; k <= K; k++) {
+    const m = k < byCount.length ? byCount[k] : 0;
+    d[0] = ((a + b) * m + (k === 0 ? c1 : 0) + a * a1 * prev[0]) * inv;
+    for (let j = 1; j < order; j++) d[j] = (((j + 1) * a + b) * d[j - 1] + a * a1 * prev[j]) * inv;
+    visit(k, d, limited, add);
+    prev.set(d);
   }
   return [...at].map(([x, size]) => ({ at: x, size })).sort((p, q) => p.at - q.at);
 }

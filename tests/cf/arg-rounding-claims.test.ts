@@ -1,6 +1,6 @@
 import { describe, expect, it } from "vitest";
 import { compile } from "@/lib/cf/compile";
-import { cfRelError, cfUlps, declaredCfError } from "@/lib/cf/invert/part";
+import { cfValueErrors } from "../support/cf-value-errors";
 import type { Model } from "@/lib/cf/types";
 import { readFileSync } from "node:fs";
 import { join } from "node:path";
@@ -30,11 +30,7 @@ describe("a compound carries the rounding of each further claim law", () => {
         re[0] = gRe![r.k! - 1];
         im[0] = gIm![r.k! - 1];
       } else m.logCf(Float64Array.of(r.t), re, im);
-      const own = Math.exp(re[0]) * cfRelError(cfUlps(m), re[0], im[0], r.t, 0) + declaredCfError(m);
-      const err = Math.hypot(Math.exp(re[0]) * Math.cos(im[0]) - r.phi[0], Math.exp(re[0]) * Math.sin(im[0]) - r.phi[1]);
-      const S = m.cfArgSlope ?? 0;
-      const slope = Math.min(S * r.t, m.cfArgErrAt ? m.cfArgErrAt(r.t) : Infinity);
-      return { err, own, slope };
+      return cfValueErrors(m, re[0], im[0], r.t, r.phi);
     };
     it(`${c.name}: the two methods agree, the slope is derived, and the allowance alone is below the error somewhere`, () => {
       for (const r of c.rows) expect(r.crossCheck, `t ${r.t}`).toBeLessThan(1e-30);

@@ -1,4 +1,5 @@
 import { describe, expect, it } from "vitest";
+import { cfValueErrors } from "../support/cf-value-errors";
 import { compile } from "@/lib/cf/compile";
 import { cfRelError, cfUlps, declaredCfError } from "@/lib/cf/invert/part";
 import { exactGrid, exactGridStep } from "@/lib/cf/arg-rounding";
@@ -157,11 +158,7 @@ describe("a compound carries the rounding of each closed-form claim law", () => 
     };
     const errorAt = (r: { t: number; phi: number[] }) => {
       const { re, im } = at(r.t);
-      const own = Math.exp(re) * cfRelError(cfUlps(m), re, im, r.t, 0) + declaredCfError(m);
-      const err = Math.hypot(Math.exp(re) * Math.cos(im) - r.phi[0], Math.exp(re) * Math.sin(im) - r.phi[1]);
-      const S = m.cfArgSlope ?? 0;
-      const slope = Math.min(S * r.t, m.cfArgErrAt ? m.cfArgErrAt(r.t) : Infinity);
-      return { err, own, slope };
+      return cfValueErrors(m, re, im, r.t, r.phi);
     };
     it(`${c.name}: the two methods agree, the slope is derived, and the allowance alone is below the error somewhere`, () => {
       for (const r of c.rows) expect(r.crossCheck, `t ${r.t}`).toBeLessThan(1e-30);
