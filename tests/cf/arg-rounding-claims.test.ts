@@ -1,6 +1,6 @@
 import { describe, expect, it } from "vitest";
 import { compile } from "@/lib/cf/compile";
-import { cfValueErrors } from "../support/cf-value-errors";
+import { cfValueErrors, tightestWithinBound } from "../support/cf-value-errors";
 import type { Model } from "@/lib/cf/types";
 import { readFileSync } from "node:fs";
 import { join } from "node:path";
@@ -49,13 +49,7 @@ describe("a compound carries the rounding of each further claim law", () => {
       }
     });
     it(`${c.name}: the allowance plus the declared slope (per frequency) is never below the actual error, within 100x where largest`, () => {
-      let tightest = Infinity;
-      for (const r of c.rows) {
-        const { err, own, slope } = errorAt(r);
-        const bound = own + slope + r.crossCheck;
-        expect(err, `t ${r.t}: error ${err}, bound ${bound} (allowance ${own}, slope ${slope})`).toBeLessThanOrEqual(bound);
-        if (err > 4 * own) tightest = Math.min(tightest, bound / err);
-      }
+      const tightest = tightestWithinBound(c.rows, errorAt);
       if (!grid) expect(tightest).toBeLessThan(100);
     });
   }

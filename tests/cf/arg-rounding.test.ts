@@ -1,5 +1,5 @@
 import { describe, expect, it } from "vitest";
-import { cfValueErrors } from "../support/cf-value-errors";
+import { cfValueErrors, tightestWithinBound } from "../support/cf-value-errors";
 import { compile } from "@/lib/cf/compile";
 import { cfRelError, cfUlps, declaredCfError } from "@/lib/cf/invert/part";
 import { exactGrid, exactGridStep } from "@/lib/cf/arg-rounding";
@@ -166,13 +166,7 @@ describe("a compound carries the rounding of each closed-form claim law", () => 
       expect(c.rows.some((r) => errorAt(r).err > 4 * errorAt(r).own)).toBe(true);
     });
     it(`${c.name}: the allowance plus the declared slope (per frequency) is never below the actual error, within 100x where largest`, () => {
-      let tightest = Infinity;
-      for (const r of c.rows) {
-        const { err, own, slope } = errorAt(r);
-        const bound = own + slope + r.crossCheck;
-        expect(err, `t ${r.t}: error ${err}, bound ${bound} (allowance ${own}, slope ${slope})`).toBeLessThanOrEqual(bound);
-        if (err > 4 * own) tightest = Math.min(tightest, bound / err);
-      }
+      const tightest = tightestWithinBound(c.rows, errorAt);
       expect(tightest).toBeLessThan(100);
     });
   }

@@ -277,9 +277,10 @@ export function pareto(alpha: number, xm: number): Node {
     const f = den >= 1e-290 ? Math.min(aSum * g, Math.max(num, 1e-290) / den) : aSum * g;
     return Math.min(cfError, (constPart * g + (roundPart / aSum) * f) * (1 + 8 * Number.EPSILON));
   };
-  // |E e^{(i t - beta) X}| <= e^{-beta xm}, and by parts with the density f decreasing from f(xm) = alpha / xm to 0:
-  // |int f e^{s x}| <= (f(xm) e^{-beta xm} + int |f'| e^{-beta x}) / |s| <= 2 (alpha / xm) e^{-beta xm} / |s|, s = i t - beta
-  const modulus = (beta: number, t: number) => Math.exp(-beta * xm) * Math.min(1, (2 * alpha) / (xm * Math.hypot(beta, t))) * (1 + 4 * Number.EPSILON);
+  // |E e^{(i t - beta) X}| <= e^{-beta xm} (X >= xm), and by parts with the density falling from alpha / xm to 0 at most
+  // 2 (alpha / xm) e^{-beta xm} / |i t - beta| (decreasingDensityModulus)
+  const byParts = decreasingDensityModulus(xm, alpha / xm);
+  const modulus = (beta: number, t: number) => Math.min(Math.exp(-beta * xm) * (1 + 4 * Number.EPSILON), byParts(beta, t));
   const raw = (m: number) => (alpha * xm ** m) / (alpha - m);
   const expansion = paretoExpansion(alpha, xm);
   const node: Node = {
@@ -314,5 +315,5 @@ export function pareto(alpha: number, xm: number): Node {
   };
   // claim-law rounding: xm (1 + Y), Y Lomax, a generalized gamma convolution moved right (Thorin 1977, Scand. Actuarial J., recalled from memory; ./log-round.ts
   // ggcLogRound), for a finite mean; its density alpha xm^alpha x^(-alpha-1) decreases from alpha / xm
-  return alpha > 1 ? withGgcLogRound(node, raw(1), decreasingDensityModulus(xm, alpha / xm)) : node;
+  return alpha > 1 ? withGgcLogRound(node, raw(1), byParts) : node;
 }
