@@ -105,7 +105,7 @@ export function familyDampedMajorant(family: string, p: Record<string, number>, 
 
 /**
  * Lomax(alpha, theta) from its lower end, and so pareto(alpha, xm) = xm + lomax(alpha, xm): the density
- * g(y) = (alpha / theta) (1 + y / theta)^{-alpha-1} (Loss Models app. A.2.3.1) falls from g(0) = alpha / theta to 0. With s = beta - i t:
+ * g(y) = (alpha / theta) (1 + y / theta)^{-alpha-1} (Loss Models app. A.2.3.1, section recalled from memory) falls from g(0) = alpha / theta to 0. With s = beta - i t:
  *  - psi(s) = int_0^inf e^{-s y} g = g(0) / s + (1 / s) int e^{-s y} g' (integration by parts), so |psi| <= 2 g(0) / |s|
  *    (decreasingDensityModulus, ./families/log-round.ts), and
  *    psi is the transform of h = g e^{-beta y}, a jump of g(0) at 0 then falling: total variation 2 g(0) (`split`: all of it,
