@@ -8,7 +8,7 @@ import { normalCdfBounded, type Bounded } from "../families/normal-bounded";
 import { directPoint, type DirectLaw, type DirectPoint } from "./types";
 import { oneTailSplit } from "./stable-one-tail";
 import { paretoPowerTail, studentPowerTail, type PowerTail } from "./power-tail";
-import { gammaStopLoss, lognormalStopLoss, normalStopLoss, weibullStopLoss } from "./stop-loss";
+import { gammaStopLoss, lognormalStopLoss, normalStopLoss, symmetricStopLoss, weibullStopLoss } from "./stop-loss";
 import { bounds, ELEM, EPS, law, SQRT2PI, withExactMode, withExcess, withMode, withMonotoneTail } from "./law";
 
 const U = EPS / 2;
@@ -232,7 +232,7 @@ function cauchyLaw(loc: number, scale: number): DirectLaw {
 }
 
 export function logisticDirect(loc: number, scale: number): DirectLaw {
-  return withExactMode(loc, law(
+  return symmetricStopLoss(withExactMode(loc, law(
     "closed-form",
     [-Infinity, Infinity],
     loc,
@@ -247,11 +247,11 @@ export function logisticDirect(loc: number, scale: number): DirectLaw {
       bounds(o, ELEM, ELEM + 2 * dz, dz * scale);
     },
     (p) => loc + scale * (Math.log(p) - Math.log1p(-p)),
-  ));
+  )), loc, scale, "logistic");
 }
 
 export function laplaceDirect(loc: number, scale: number): DirectLaw {
-  return withExactMode(loc, law(
+  return symmetricStopLoss(withExactMode(loc, law(
     "closed-form",
     [-Infinity, Infinity],
     loc,
@@ -266,7 +266,7 @@ export function laplaceDirect(loc: number, scale: number): DirectLaw {
       bounds(o, ELEM, ELEM + 2 * dz, dz * scale);
     },
     (p) => (p < 0.5 ? loc + scale * Math.log(2 * p) : loc - scale * Math.log(2 * (1 - p))),
-  ));
+  )), loc, scale, "laplace");
 }
 
 /** Student t: F(t) = I_{nu/(nu+t^2)}(nu/2, 1/2)/2 for t < 0 (A&S 26.7.1 with 26.5.27). */

@@ -2,7 +2,7 @@ import { normalCdfBounded, type Bounded } from "../families/normal-bounded";
 import { incGammaBounded, incGammaShape, type IncGamma } from "../families/incgamma-bounded";
 import { lgamma, lgammaErr } from "../families/special";
 import { directPoint, type DirectLaw } from "./types";
-import { EPS, SQRT2PI } from "./law";
+import { ELEM, EPS, SQRT2PI } from "./law";
 
 // Closed-form stop-loss transforms (DirectLaw.stopLoss) of named families, each from the law's own bounded values at c.
 // The expected shortfall takes them in place of its swept brackets (./shortfall.ts), whose O(panel^3) widths stay
@@ -138,6 +138,34 @@ export function weibullStopLoss(l: DirectLaw, k: number, theta: number): DirectL
       const e = theta * (eUp + 1.01 * da * dA + 1.01 * x * sHi * dt) + c * pt.sfErr + 8 * U * (t1 + t2);
       if (!(Number.isFinite(v) && Number.isFinite(e))) return null;
       return { v: Math.max(v, 0), e };
+    },
+  };
+}
+
+/**
+ * A law symmetric about loc whose stop-loss transform is max(-side d, 0) + g(|z|), d = c - loc, z = d / scale (the part
+ * past loc on the integrated side, plus the transform at the mirrored point; E[(X - c)^+] - E[(c - X)^+] = loc - c):
+ * Laplace g = (b/2) e^{-|z|} (E[(X - c)^+] = (b/2) e^{-z} for c >= loc; Kotz, Kozubowski & Podgorski, The Laplace
+ * Distribution and Generalizations, 2001, ch. 2, recalled from memory; it is the integral of S = e^{-z}/2 over (c, inf)),
+ * logistic g = s log1p(e^{-|z|}) (the integral of S = 1/(1 + e^z) over (c, inf) is s log(1 + e^{-z}); common practice).
+ * d within u |d|, z within 2u |z|, so e^{-|z|} within ELEM + 2u |z| relative (exp's allowance ELEM, ./law.ts) and log1p
+ * of it within the same plus ELEM (w / ((1 + w) log1p(w)) <= 1); the products and the sum 2u.
+ */
+export function symmetricStopLoss(l: DirectLaw, loc: number, scale: number, kind: "laplace" | "logistic"): DirectLaw {
+  return {
+    ...l,
+    stopLoss(c: number, side: 1 | -1) {
+      const d = c - loc;
+      const z = Math.abs(d / scale);
+      const e = Math.exp(-z);
+      const rel = ELEM + 2 * U * z * (1 + 4 * U);
+      const g = kind === "laplace" ? 0.5 * scale * e : scale * Math.log1p(e);
+      const eg = g * (kind === "laplace" ? rel + 2 * U : 2 * rel + 2 * U);
+      const past = Math.max(-side * d, 0);
+      const v = past + g;
+      const err = eg + U * past + 2 * U * v;
+      if (!(Number.isFinite(v) && Number.isFinite(err))) return null;
+      return { v, e: err };
     },
   };
 }

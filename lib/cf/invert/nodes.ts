@@ -251,6 +251,8 @@ export interface Nodes {
    */
   cfErrCdf?: number;
   cfErrPdf?: number;
+  /** the d_k themselves, node by node (an integral of the cdf weighs them by its own kernel: ./shortfall.ts) */
+  cfErrAt?: Float64Array;
   /** the model's declared relative CF error, charged per node in cfErrCdf / cfErrPdf (roundingOf leaves it out of the uniform part) */
   cfRelTaken?: number;
   /** (h/pi) sum (k+1/2) |phi_k| (the phase rounding of the density sum grows with t_k) */
@@ -280,6 +282,7 @@ export function buildNodes(part: ContinuousPart, h: number, K: number, env?: Env
   const im = new Float64Array(K);
   const wre = new Float64Array(K);
   const wim = new Float64Array(K);
+  const errAt = new Float64Array(K);
   // the frequencies and the values' relative errors live one block at a time (K reaches millions)
   const B = Math.min(K, NODE_BLOCK);
   const tb = new Float64Array(B);
@@ -320,6 +323,7 @@ export function buildNodes(part: ContinuousPart, h: number, K: number, env?: Env
       // (the recentring's rounding in e_k acts on the part itself: the larger of the two moduli takes it)
       const mk = mod[k - i0] / w;
       const e = r * Math.max(mk, a) + dRel * mk;
+      errAt[k] = e;
       ac += a * inv;
       ap += a;
       ec += e * inv;
@@ -347,6 +351,7 @@ export function buildNodes(part: ContinuousPart, h: number, K: number, env?: Env
     cfErrCdf: (ec * g * (1 + 4 * Number.EPSILON)) / Math.PI,
     cfErrPdf: (ep * h * g * (1 + 4 * Number.EPSILON)) / Math.PI,
     cfRelTaken: dRel,
+    cfErrAt: errAt,
     absPdfMoment: (am * h * g) / Math.PI,
     l2Cdf: (Math.sqrt(q2c * g) * g) / Math.PI,
     l2Pdf: (Math.sqrt(q2p * g) * h * g) / Math.PI,

@@ -39,6 +39,8 @@ export interface PartSolution {
   aliasCore: number;
   /** truncation plus rounding bound of one cdf value */
   sumErrCdf: number;
+  /** the node values' errors in it (roundingOf's valuesCdf: the CF values', the atoms' and kernels' subtraction, the nodes') */
+  valuesCdf?: number;
 }
 
 export interface PartOutput {
@@ -137,7 +139,7 @@ export function kernelAbs(part: ContinuousPart): number {
  *   gridRounding, with the part's Lipschitz constant and the model's own argument slope; left out where not derived).
  * ymax bounds |x - center| over the points (default: the period 2 pi / h, which holds the window).
  */
-export function roundingOf(part: ContinuousPart, nodes: Nodes, ymax = (2 * Math.PI) / nodes.h, fftN = 0): { cdf: number; pdf: number } {
+export function roundingOf(part: ContinuousPart, nodes: Nodes, ymax = (2 * Math.PI) / nodes.h, fftN = 0): { cdf: number; pdf: number; valuesCdf: number } {
   const U = EPS;
   const K = nodes.K;
   const blocks = Math.ceil(K / RESYNC);
@@ -184,11 +186,15 @@ export function roundingOf(part: ContinuousPart, nodes: Nodes, ymax = (2 * Math.
   const cfAbs = Math.max(part.cfAbsError - (nodes.cfRelTaken ?? 0), 0) / part.weight;
   const harmonic = (2 + Math.log(K)) / Math.PI;
   const grid = gridTerm(part, nodes, fftN > 1);
+  // the node values' own errors (the CF's, the atoms' subtraction, the kernels', the nodes' rounding), apart from the
+  // sums' arithmetic: an integral of the cdf weighs these by its own kernel (./shortfall.ts nodeValueErrors)
+  const valuesCdf =
+    grid.cdf + cfCdf +
+    // (h/pi) sum_k (atomA + atomB t_k + cfAbs) / t_k = (atomA + cfAbs) (1/pi) sum 1/(k + 1/2) + atomB K h / pi
+    (atomA + cfAbs) * harmonic + (atomB * T) / Math.PI + 8 * EPS * (1 + kAbs) * (Math.log(nodes.K + 1) + 1);
   return {
-    cdf:
-      grid.cdf + perTerm * nodes.absCdf + driftCdf + phase * nodes.absPdf + cfCdf + fftCdf + 2 * U * (nodes.mass + nodes.absCdf) +
-      // (h/pi) sum_k (atomA + atomB t_k + cfAbs) / t_k = (atomA + cfAbs) (1/pi) sum 1/(k + 1/2) + atomB K h / pi
-      (atomA + cfAbs) * harmonic + (atomB * T) / Math.PI + 8 * EPS * (1 + kAbs) * (Math.log(nodes.K + 1) + 1),
+    valuesCdf,
+    cdf: valuesCdf + perTerm * nodes.absCdf + driftCdf + phase * nodes.absPdf + fftCdf + 2 * U * (nodes.mass + nodes.absCdf),
     pdf:
       grid.pdf + perTerm * nodes.absPdf + driftPdf + phase * nodes.h * moment + cfPdf + fftPdf + 2 * U * nodes.absPdf +
       // (h/pi) sum_k (atomA + atomB t_k + cfAbs) <= ((atomA + cfAbs) T + atomB T^2 / 2) / pi (sum_k h t_k = T^2 / 2)
