@@ -87,10 +87,13 @@ export function dampedSlopeAt(model: CompiledModel, atoms: Atom[], kernels: read
   };
 }
 
+/** the growth of t over which addGridNoise keeps one slope bound: at most (1 + 2^-7)^p looser for a bound falling like t^-p */
+const SLOPE_RUN = 1 + 1 / 128;
+
 /**
  * The damped route's nodes: psi is evaluated at fl((k + 1/2) h) (`rounded`; null where the step makes them exact) and the
  * model's own slope S acts on |w| <= t + beta; each node's noise grows by u t_k D(t_k) + S (t_k + beta) (../arg-rounding.ts),
- * D = dampedSlopeAt's bound on |psi'| past t_k (1 - 2u), or, where the plan's envelope covers t_k, by at most
+ * D = dampedSlopeAt's bound on |psi'| past t_j (1 - 2u), t_j the first node of t_k's run (t_k <= t_j SLOPE_RUN), or, where the plan's envelope covers t_k, by at most
  * |psi~_k| + its noise + env(t_k) (the value computed there and the exact one), the lesser kept.
  */
 export function addGridNoise(
@@ -113,8 +116,18 @@ export function addGridNoise(
   if (!slope && S === 0) return;
   const et = env?.t;
   let i = 0;
+  // the slope bound holds past t (1 - 2u) and does not increase, so the value at a run's first node serves the run's later
+  // nodes: it is taken afresh once t has grown by SLOPE_RUN (a few hundred calls over 2^20 nodes instead of one a node)
+  let L = 0;
+  let from = Infinity;
+  let until = -Infinity;
   for (let k = 0; k < t.length; k++) {
-    const L = slope ? slope(t[k]) : 0;
+    if (slope && !(t[k] >= from && t[k] <= until)) {
+      L = slope(t[k]);
+      from = t[k];
+      // (a bound not derived there: asked again at the next node)
+      until = Number.isFinite(L) ? t[k] * SLOPE_RUN : -Infinity;
+    }
     // neither bound derived (L not finite): left out (the module's note)
     const sk = errD ? Math.min(S * (t[k] + beta), errD(beta, t[k]) * (1 + 2 * EPS)) : S * (t[k] + beta);
     let move = (Number.isFinite(L) ? U * L * t[k] * (1 + 4 * EPS) : 0) + sk;
