@@ -164,6 +164,22 @@ export function addArgErrDampedAt(cs: readonly Node[], ws?: readonly number[]): 
   };
 }
 
+/** addArgErrDampedAt over [t0, t1] (0 <= t0 <= t1): each child's bound over the run, its slope term at t1 (where every child
+ *  deriving argErrDampedAt derives this too) */
+export function addArgErrDampedOn(cs: readonly Node[], ws?: readonly number[]): ((beta: number, t0: number, t1: number) => number) | undefined {
+  if (!cs.some((c) => c.argErrDampedAt) || cs.some((c) => c.argErrDampedAt && !c.argErrDampedOn)) return undefined;
+  const w = cs.map((_, j) => (ws ? Math.abs(ws[j]) : 1));
+  return (beta, t0, t1) => {
+    let e = 0;
+    for (let j = 0; j < cs.length; j++) {
+      const s = (cs[j].argSlope ?? 0) * (Math.max(t0, t1) + beta);
+      const f = cs[j].argErrDampedAt ? cs[j].argErrDampedOn : undefined;
+      e += w[j] * (f ? Math.min(s, f(beta, t0, t1)) : s);
+    }
+    return e * (1 + (cs.length + 4) * Number.EPSILON);
+  };
+}
+
 /**
  * Node.argErrDampedAt of aX (a > 0) where X derives one: X's own error at the arguments it is evaluated at (fl(a beta),
  * fl(a t)), at most its slope there, plus scaleArgSlope's u a E|X| (t + beta) from the rounding of those arguments
@@ -176,4 +192,18 @@ export function scaleArgErrDampedAt(a: number, c: Node): ((beta: number, t: numb
   const m = exact ? 0 : absFirstMoment(c);
   if (m === undefined) return undefined;
   return (beta, t) => (Math.min(own * a * (t + beta) * (1 + U), f(a * beta, a * t)) + U * a * m * (t + beta)) * (1 + 4 * U);
+}
+
+/** scaleArgErrDampedAt over [t0, t1] (0 <= t0 <= t1): X's bound over [fl(a t0), fl(a t1)] (rounding is monotone), the rest at t1 */
+export function scaleArgErrDampedOn(a: number, c: Node): ((beta: number, t0: number, t1: number) => number) | undefined {
+  const f = c.argErrDampedAt ? c.argErrDampedOn : undefined;
+  if (!f || !(a > 0)) return undefined;
+  const own = c.argSlope ?? 0;
+  const exact = Math.log2(a) === Math.round(Math.log2(a));
+  const m = exact ? 0 : absFirstMoment(c);
+  if (m === undefined) return undefined;
+  return (beta, t0, t1) => {
+    const t = Math.max(t0, t1);
+    return (Math.min(own * a * (t + beta) * (1 + U), f(a * beta, a * t0, a * t1)) + U * a * m * (t + beta)) * (1 + 4 * U);
+  };
 }

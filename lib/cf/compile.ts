@@ -334,6 +334,7 @@ export function toCompiled(node: Node): CompiledModel {
     cfArgSlope: node.argSlope ?? 0,
     ...(node.argErrAt ? { cfArgErrAt: node.argErrAt } : {}),
     ...(node.argErrDampedAt ? { cfArgErrDampedAt: node.argErrDampedAt } : {}),
+    ...(node.argErrDampedAt && node.argErrDampedOn ? { cfArgErrDampedOn: node.argErrDampedOn } : {}),
     ...(node.direct ? { direct: node.direct } : {}),
     ...(node.tailTerm && continuous ? { tailTerm: node.tailTerm } : {}),
     ...(node.powerIndices && node.powerIndices.length > 1 ? { powerIndices: node.powerIndices } : {}),

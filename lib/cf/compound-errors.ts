@@ -121,8 +121,24 @@ export function severityRounding(
   // damped: the children's slope (t + beta) plus E N R~(beta, t) where the severity derives it; nothing where the damped
   // transform takes the claim law's transform itself, no log between (`rectDamped`: ./damped-cf.ts compoundDamped's
   // dampedCf and the count's log-pgf)
+  // over a run [t0, t1] of frequencies: the gain at t0 (the majorant's rest and the claim law's modulus bound |phi| from their
+  // frequency on, and the gain does not decrease with that bound), the slope's t + beta and the claim law's rounding over the run
+  const dOn = X.logRoundDampedOn;
   const damped = rectDamped
-    ? { argErrDampedAt: (beta: number, t: number) => slope * (t + beta) * (1 + 4 * Number.EPSILON) }
-    : dAt && meanN !== null ? { argErrDampedAt: (beta: number, t: number) => (slope * (t + beta) + dampedGain(beta, t) * dAt(beta, t, X)) * (1 + 4 * Number.EPSILON) } : {};
+    ? {
+        argErrDampedAt: (beta: number, t: number) => slope * (t + beta) * (1 + 4 * Number.EPSILON),
+        argErrDampedOn: (beta: number, t0: number, t1: number) => slope * (Math.max(t0, t1) + beta) * (1 + 4 * Number.EPSILON),
+      }
+    : dAt && meanN !== null
+      ? {
+          argErrDampedAt: (beta: number, t: number) => (slope * (t + beta) + dampedGain(beta, t) * dAt(beta, t, X)) * (1 + 4 * Number.EPSILON),
+          ...(dOn
+            ? {
+                argErrDampedOn: (beta: number, t0: number, t1: number) =>
+                  (slope * (Math.max(t0, t1) + beta) + dampedGain(beta, t0) * dOn(beta, t0, t1, X)) * (1 + 4 * Number.EPSILON),
+              }
+            : {}),
+        }
+      : {};
   return { argSlope: (slope + add) * (1 + Number.EPSILON), argErrAt: (t: number) => (Math.min(child(t), slope * t) + own(t)) * (1 + 2 * Number.EPSILON), ...damped };
 }

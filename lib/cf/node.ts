@@ -92,6 +92,9 @@ export interface Node {
   logRoundAt?: (t: number, self?: Node) => number;
   /** the same for the damped transform at damping beta, frequency t >= 0: at most logRoundSlope (t + beta) */
   logRoundDampedAt?: (beta: number, t: number, self?: Node) => number;
+  /** a bound on logRoundDampedAt over every frequency in [t0, t1] (0 <= t0 <= t1), from the pieces' monotone parts taken at
+   *  the interval's ends: one call for a run of nodes (../invert/grid-rounding.ts) */
+  logRoundDampedOn?: (beta: number, t0: number, t1: number, self?: Node) => number;
   /** severities: a bound on |phi~(beta, t)| (beta = 0: |phi(t)|) the family derives in closed form, where it does (a compound
    *  bounds its count's factor |P_N'(phi_X)| <= cgfSlope P_N(that) with it, ./compound-errors.ts) */
   logRoundModulus?: (beta: number, t: number) => number;
@@ -99,6 +102,8 @@ export interface Node {
   logRoundNote?: string;
   /** compounds: argErrAt's damped counterpart (the error is at most min(argSlope (t + beta), argErrDampedAt(beta, t))) */
   argErrDampedAt?: (beta: number, t: number) => number;
+  /** a bound on argErrDampedAt over every frequency in [t0, t1] (0 <= t0 <= t1), where derived */
+  argErrDampedOn?: (beta: number, t0: number, t1: number) => number;
   /**
    * severities (and sums and mixtures holding them or compounds of them, ./damped-error-carry.ts): a bound at frequency t,
    * damping beta, on the damped transform's absolute error (at most cfAbsError, non-increasing in |t|), valid only with

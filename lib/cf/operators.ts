@@ -12,7 +12,7 @@ import { collectNotes, carryApproximation, combineScales, addCumulants, complete
 import { withCumulantErrors } from "./cumulant-bounds";
 import { repeatE, scaleE, shiftE, sumE } from "./cumulant-ops";
 import { powerIndicesOf, heaviestTerm } from "./operators-tail";
-import { addArgErrAt, addArgErrDampedAt, addArgSlopes, scaleArgErrAt, scaleArgErrDampedAt, scaleArgSlope } from "./arg-rounding";
+import { addArgErrAt, addArgErrDampedAt, addArgErrDampedOn, addArgSlopes, scaleArgErrAt, scaleArgErrDampedAt, scaleArgErrDampedOn, scaleArgSlope } from "./arg-rounding";
 import { carryScaleErrors, carryShiftErrors, carrySumErrors } from "./damped-error-carry";
 
 export { compoundNode, pgfAt } from "./compound";
@@ -58,6 +58,7 @@ export function sumNode(cs: Node[]): Node {
     argSlope: addArgSlopes(cs),
     argErrAt: addArgErrAt(cs),
     argErrDampedAt: addArgErrDampedAt(cs),
+    argErrDampedOn: addArgErrDampedOn(cs),
     ...summedLogRound(cs),
   };
   withCumulantErrors(node, sumE(cs));
@@ -133,6 +134,7 @@ export function scaleNode(a: number, c: Node): Node {
     argSlope,
     argErrAt: scaleArgErrAt(a, c),
     argErrDampedAt: scaleArgErrDampedAt(a, c),
+    argErrDampedOn: scaleArgErrDampedOn(a, c),
     ...scaledLogRound(c, a),
   };
   withCumulantErrors(node, scaleE(a, c));
@@ -255,6 +257,7 @@ export function repeatNode(n: number, c: Node): Node {
     argSlope: n * (c.argSlope ?? 0),
     argErrAt: addArgErrAt([c], [n]),
     argErrDampedAt: addArgErrDampedAt([c], [n]),
+    argErrDampedOn: addArgErrDampedOn([c], [n]),
     ...summedLogRound([c], [n]),
   };
   withCumulantErrors(node, repeatE(n, c));

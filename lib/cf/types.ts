@@ -75,6 +75,8 @@ export interface CompiledModel {
   readonly cfArgErrAt?: (t: number) => number;
   /** the same for the damped transform at damping beta (compounds whose severity bounds its own rounding per frequency) */
   readonly cfArgErrDampedAt?: (beta: number, t: number) => number;
+  /** a bound on cfArgErrDampedAt over every frequency in [t0, t1] (0 <= t0 <= t1), where derived */
+  readonly cfArgErrDampedOn?: (beta: number, t0: number, t1: number) => number;
   /** a bound at frequency t, damping beta, on dampedLogCf's relative error, at most cfRelError (compounds whose severity bounds its own per frequency) */
   dampedRelErrorAt?(beta: number, t: number): number;
   /** the same for dampedLogCf's absolute error, at most cfAbsError (sums and mixtures holding severities that bound theirs per frequency) */

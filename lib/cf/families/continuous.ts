@@ -119,6 +119,7 @@ export function gammaLaw(shape: number, rate: number): Node {
     logRoundSlope: gammaLogRoundSlope(shape, rate),
     logRoundAt: gammaLogRoundAt(shape, rate),
     logRoundDampedAt: gammaLogRoundDampedAt(shape, rate),
+    logRoundDampedOn: gammaLogRoundDampedOn(shape, rate),
   });
 }
 
@@ -152,6 +153,19 @@ function gammaLogRoundDampedAt(shape: number, rate: number): (beta: number, t: n
     const lm = 0.5 * Math.log(((rate + beta) * (rate + beta) + a * a) / (rate * rate));
     const v = Math.exp(-shape * lm) * shape * (lm + Math.atan(a / (rate + beta)));
     return Math.min(slope * (a + beta), 8 * Number.EPSILON * v * (1 + 64 * Number.EPSILON));
+  };
+}
+
+/** the same over [t0, t1]: e^{-k lm} at t0, lm + atan(t / (r + beta)) and the slope's t + beta at t1 (each monotone in t) */
+function gammaLogRoundDampedOn(shape: number, rate: number): (beta: number, t0: number, t1: number) => number {
+  const slope = gammaLogRoundSlope(shape, rate);
+  return (beta, t0, t1) => {
+    const a0 = Math.abs(t0);
+    const a1 = Math.max(Math.abs(t1), a0);
+    const lm0 = 0.5 * Math.log(((rate + beta) * (rate + beta) + a0 * a0) / (rate * rate));
+    const lm1 = 0.5 * Math.log(((rate + beta) * (rate + beta) + a1 * a1) / (rate * rate));
+    const v = Math.exp(-shape * lm0) * shape * (lm1 + Math.atan(a1 / (rate + beta)));
+    return Math.min(slope * (a1 + beta), 8 * Number.EPSILON * v * (1 + 64 * Number.EPSILON));
   };
 }
 

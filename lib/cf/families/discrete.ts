@@ -17,12 +17,14 @@ const TAIL_EPS = 1e-18;
  * so R = 8 u |at|, and per frequency the same (|phi| does not fall). Damped, L~ = at (i t - beta): |phi~| = e^{-beta at}
  * (at >= 0 for a claim), |L~| = |at| hypot(t, beta) <= |at| (t + beta).
  */
-function pointLogRound(at: number): Pick<Node, "logRoundSlope" | "logRoundAt" | "logRoundDampedAt"> {
+function pointLogRound(at: number): Pick<Node, "logRoundSlope" | "logRoundAt" | "logRoundDampedAt" | "logRoundDampedOn"> {
   const slope = 8 * Number.EPSILON * Math.abs(at) * (1 + 8 * Number.EPSILON);
   return {
     logRoundSlope: slope,
     logRoundAt: (t) => slope * Math.abs(t),
     logRoundDampedAt: (beta, t) => Math.min(1, Math.exp(-beta * at) * (1 + 4 * Number.EPSILON)) * slope * Math.hypot(t, beta) * (1 + 4 * Number.EPSILON),
+    logRoundDampedOn: (beta, t0, t1) =>
+      Math.min(1, Math.exp(-beta * at) * (1 + 4 * Number.EPSILON)) * slope * Math.hypot(Math.max(Math.abs(t0), Math.abs(t1)), beta) * (1 + 4 * Number.EPSILON),
   };
 }
 

@@ -75,7 +75,7 @@ export function ggcLogRound(
   node?: () => Node,
   modulus?: (beta: number, t: number) => number,
   shift = 0,
-): LogRound & Pick<Node, "logRoundNote" | "logRoundDampedAt" | "logRoundModulus"> {
+): LogRound & Pick<Node, "logRoundNote" | "logRoundDampedAt" | "logRoundDampedOn" | "logRoundModulus"> {
   if (!(mean >= 0 && Number.isFinite(mean))) return {};
   const k = shift > 0 ? 1.125 : 1;
   const slope = U8 * k * (1 + Math.PI) * (mean + shift) * (1 + U8);
@@ -147,6 +147,19 @@ export function ggcLogRound(
       const r = mean * Math.hypot(a, beta) * (1 + 2 * Number.EPSILON);
       return Math.min(slope * (a + beta), part(Math.min(1, m), r, I ? I(a) : Infinity, a + beta));
     },
+    // over [t0, t1]: part does not decrease in any argument, the modulus bounds (`modulus`, the majorant's rest: each
+    // valid from its frequency on) are taken at t0, r, I and the frequency at t1
+    logRoundDampedOn: (beta, t0, t1, self) => {
+      const a0 = Math.abs(t0);
+      const a1 = Math.max(Math.abs(t1), a0);
+      const n = self ?? node?.();
+      const dm = n?.dampedMajorant;
+      let m = modulus ? modulus(beta, a0) : 1;
+      if (n && dm && dm.cf === n.dampedLogCf && n.support[0] >= 0) m = Math.min(m, (dm.atom + dm.rest(beta, a0)) * (1 + 4 * Number.EPSILON));
+      const I = n ? dampedIntegralOf(n, beta) : null;
+      const r = mean * Math.hypot(a1, beta) * (1 + 2 * Number.EPSILON);
+      return Math.min(slope * (a1 + beta), part(Math.min(1, m), r, I ? I(a1) : Infinity, a1 + beta));
+    },
     logRoundNote:
       "the quadrature claim law's log rounding is bounded with its phase on the continuous or the principal branch (the unwrap along a grid finer than about pi / E X)",
     ...(modulus ? { logRoundModulus: modulus } : {}),
@@ -195,7 +208,7 @@ export function withGgcLogRound<N extends Node>(node: N, mean: number, modulus?:
   return Object.assign(node, ggcLogRound(mean, () => node, modulus, shift));
 }
 
-type Carried = Pick<Node, "logRoundSlope" | "logRoundAt" | "logRoundDampedAt" | "logRoundNote" | "logRoundModulus">;
+type Carried = Pick<Node, "logRoundSlope" | "logRoundAt" | "logRoundDampedAt" | "logRoundDampedOn" | "logRoundNote" | "logRoundModulus">;
 const noteOf = (cs: readonly Node[]) => cs.map((c) => c.logRoundNote).find((n) => n !== undefined);
 
 /**
@@ -205,17 +218,20 @@ const noteOf = (cs: readonly Node[]) => cs.map((c) => c.logRoundNote).find((n) =
  */
 export function shiftedLogRound(c: Node, b: number): Carried {
   const R = c.logRoundSlope;
-  if (b === 0) return { logRoundSlope: R, logRoundAt: c.logRoundAt, logRoundDampedAt: c.logRoundDampedAt, logRoundNote: c.logRoundNote, logRoundModulus: c.logRoundModulus };
+  if (b === 0)
+    return { logRoundSlope: R, logRoundAt: c.logRoundAt, logRoundDampedAt: c.logRoundDampedAt, logRoundDampedOn: c.logRoundDampedOn, logRoundNote: c.logRoundNote, logRoundModulus: c.logRoundModulus };
   if (R === undefined || !(b > 0))
-    return { logRoundSlope: undefined, logRoundAt: undefined, logRoundDampedAt: undefined, logRoundNote: undefined, logRoundModulus: undefined };
+    return { logRoundSlope: undefined, logRoundAt: undefined, logRoundDampedAt: undefined, logRoundDampedOn: undefined, logRoundNote: undefined, logRoundModulus: undefined };
   const k = (1 + 4 * Number.EPSILON);
   const own = 2 * Number.EPSILON * b;
   const at = c.logRoundAt;
   const dAt = c.logRoundDampedAt;
+  const dOn = dAt ? c.logRoundDampedOn : undefined;
   return {
     logRoundSlope: (1.125 * R + own) * k,
     logRoundAt: at ? (t) => (1.125 * at(t, c) + own * Math.abs(t)) * k : undefined,
     logRoundDampedAt: dAt ? (beta, t) => (1.125 * dAt(beta, t, c) + own * (Math.abs(t) + beta)) * k : undefined,
+    logRoundDampedOn: dOn ? (beta, t0, t1) => (1.125 * dOn(beta, t0, t1, c) + own * (Math.max(Math.abs(t0), Math.abs(t1)) + beta)) * k : undefined,
     logRoundNote: c.logRoundNote,
     // |phi~| of X + b is e^{-beta b} times X's
     logRoundModulus: c.logRoundModulus,
@@ -229,10 +245,13 @@ export function scaledLogRound(c: Node, a: number): Carried {
   if (R === undefined || !(a > 0)) return {};
   const at = c.logRoundAt;
   const dAt = c.logRoundDampedAt;
+  const dOn = dAt ? c.logRoundDampedOn : undefined;
   return {
     logRoundSlope: a * R * (1 + Number.EPSILON),
     logRoundAt: at ? (t) => at(a * t, c) * (1 + Number.EPSILON) : undefined,
     logRoundDampedAt: dAt ? (beta, t) => dAt(a * beta, a * t, c) * (1 + Number.EPSILON) : undefined,
+    // fl(a t) lies in [fl(a t0), fl(a t1)] (rounding is monotone)
+    logRoundDampedOn: dOn ? (beta, t0, t1) => dOn(a * beta, a * t0, a * t1, c) * (1 + Number.EPSILON) : undefined,
     logRoundNote: c.logRoundNote,
     logRoundModulus: c.logRoundModulus ? (beta, t) => c.logRoundModulus!(a * beta, a * t) : undefined,
   };
@@ -252,6 +271,7 @@ export function summedLogRound(cs: readonly Node[], ws?: readonly number[]): Car
   cs.forEach((c, j) => (R += w[j] * (c.logRoundSlope as number)));
   const ats = cs.map((c) => c.logRoundAt ?? ((t: number) => (c.logRoundSlope as number) * Math.abs(t)));
   const dAts = cs.every((c) => c.logRoundDampedAt) ? cs.map((c) => c.logRoundDampedAt!) : null;
+  const dOns = dAts && cs.every((c) => c.logRoundDampedOn) ? cs.map((c) => c.logRoundDampedOn!) : null;
   return {
     logRoundSlope: R * f,
     logRoundAt: (t) => {
@@ -263,6 +283,13 @@ export function summedLogRound(cs: readonly Node[], ws?: readonly number[]): Car
       ? (beta, t) => {
           let s = 0;
           for (let j = 0; j < dAts.length; j++) s += w[j] * dAts[j](beta, t, cs[j]);
+          return s * f;
+        }
+      : undefined,
+    logRoundDampedOn: dOns
+      ? (beta, t0, t1) => {
+          let s = 0;
+          for (let j = 0; j < dOns.length; j++) s += w[j] * dOns[j](beta, t0, t1, cs[j]);
           return s * f;
         }
       : undefined,

@@ -87,7 +87,8 @@ export function dampedSlopeAt(model: CompiledModel, atoms: Atom[], kernels: read
   };
 }
 
-/** the growth of t over which addGridNoise keeps one slope bound: at most (1 + 2^-7)^p looser for a bound falling like t^-p */
+/** the growth of t over which addGridNoise keeps one slope and error bound: at most (1 + 2^-7)^p looser for a bound falling
+ *  like t^-p (or growing like t^p) */
 const SLOPE_RUN = 1 + 1 / 128;
 
 /**
@@ -113,23 +114,29 @@ export function addGridNoise(
   const slope = rounded ? dampedSlopeAt(model, atoms, model.dampedKernels ?? [], pairOut, beta) : null;
   // the model's finer bound per frequency where derived (a compound's severity rounding)
   const errD = S > 0 ? model.cfArgErrDampedAt : undefined;
+  const errOn = errD ? model.cfArgErrDampedOn : undefined;
   if (!slope && S === 0) return;
   const et = env?.t;
   let i = 0;
   // the slope bound holds past t (1 - 2u) and does not increase, so the value at a run's first node serves the run's later
-  // nodes: it is taken afresh once t has grown by SLOPE_RUN (a few hundred calls over 2^20 nodes instead of one a node)
+  // nodes, and the model's error bound over the run (cfArgErrDampedOn) serves each of them: both are taken afresh once t
+  // has grown by SLOPE_RUN (a few hundred calls over 2^20 nodes instead of one a node)
   let L = 0;
+  let E = NaN;
   let from = Infinity;
   let until = -Infinity;
   for (let k = 0; k < t.length; k++) {
-    if (slope && !(t[k] >= from && t[k] <= until)) {
-      L = slope(t[k]);
+    if ((slope || errOn) && !(t[k] >= from && t[k] <= until)) {
       from = t[k];
+      until = t[k] * SLOPE_RUN;
+      L = slope ? slope(t[k]) : 0;
+      E = errOn ? errOn(beta, t[k], until) : NaN;
       // (a bound not derived there: asked again at the next node)
-      until = Number.isFinite(L) ? t[k] * SLOPE_RUN : -Infinity;
+      if (!Number.isFinite(L) || (errOn && !(E >= 0))) until = -Infinity;
     }
     // neither bound derived (L not finite): left out (the module's note)
-    const sk = errD ? Math.min(S * (t[k] + beta), errD(beta, t[k]) * (1 + 2 * EPS)) : S * (t[k] + beta);
+    const ek = errD ? (E >= 0 ? E : errD(beta, t[k])) * (1 + 2 * EPS) : NaN;
+    const sk = errD ? Math.min(S * (t[k] + beta), ek) : S * (t[k] + beta);
     let move = (Number.isFinite(L) ? U * L * t[k] * (1 + 4 * EPS) : 0) + sk;
     if (et && move > 0) {
       const lo = t[k] * (1 - 2 * U);
