@@ -5,6 +5,7 @@ import { kernelsMass } from "../damped-kernels";
 import { kernelsRounding, subtractKernels } from "../damped-kernels-sum";
 import { severityPsi, stepwise } from "./damped-psi-severity";
 import { envelopeOf, probeFrequencies, type Envelope } from "./nodes";
+import { cabs } from "../complex";
 import { derivedEnvelope, derivedFloor, jumpTail, phiBounds, splitTail, type DerivedBounds, type PhiBounds } from "./damped-envelope";
 
 export type { PhiBounds };
@@ -275,7 +276,7 @@ function probeAt(model: CompiledModel, atoms: Atom[], beta: number, pairOut: boo
 
 function envelopeFrom(tp: Float64Array, pr: Float64Array, pi: Float64Array, nz: Float64Array, phi: Float64Array | null, bounds: DerivedBounds | null = null, phiBound: PhiBounds | null = null): Probed {
   const mag = new Float64Array(tp.length);
-  for (let i = 0; i < tp.length; i++) mag[i] = Math.hypot(pr[i], pi[i]);
+  for (let i = 0; i < tp.length; i++) mag[i] = cabs(pr[i], pi[i]);
   // values below the rounding of the atom subtraction and the CF's own error are not resolved (the floor at each probe)
   const e = envelopeOf(tp, mag, (_t, i) => nz[i]);
   if (!bounds) return { ...e, noise: nz, phi };

@@ -2,6 +2,7 @@ import type { Atom, CompiledModel } from "../types";
 import type { GammaKernel } from "../damped-kernels";
 import type { ContinuousPart } from "./part";
 import type { Envelope } from "./nodes";
+import { cabs } from "../complex";
 
 /**
  * Lipschitz constants, in t, of what the inversions evaluate at their rounded nodes fl((k + 1/2) h) (../arg-rounding.ts):
@@ -117,34 +118,47 @@ export function addGridNoise(
   const errOn = errD ? model.cfArgErrDampedOn : undefined;
   if (!slope && S === 0) return;
   const et = env?.t;
-  let i = 0;
+  const n = t.length;
   // the slope bound holds past t (1 - 2u) and does not increase, so the value at a run's first node serves the run's later
   // nodes, and the model's error bound over the run (cfArgErrDampedOn) serves each of them: both are taken afresh once t
-  // has grown by SLOPE_RUN (a few hundred calls over 2^20 nodes instead of one a node)
-  let L = 0;
-  let E = NaN;
-  let from = Infinity;
-  let until = -Infinity;
-  for (let k = 0; k < t.length; k++) {
-    if ((slope || errOn) && !(t[k] >= from && t[k] <= until)) {
-      from = t[k];
-      until = t[k] * SLOPE_RUN;
-      L = slope ? slope(t[k]) : 0;
-      E = errOn ? errOn(beta, t[k], until) : NaN;
-      // (a bound not derived there: asked again at the next node)
-      if (!Number.isFinite(L) || (errOn && !(E >= 0))) until = -Infinity;
-    }
+  // has grown by SLOPE_RUN (a few hundred calls over 2^20 nodes instead of one a node). The runs are found first, so the
+  // loop over the nodes below calls no closures (a closure of another model met there sent it back to the interpreter)
+  const runEnd: number[] = [];
+  const runL: number[] = [];
+  const runE: number[] = [];
+  for (let k = 0; k < n; ) {
+    const from = t[k];
+    const until = from * SLOPE_RUN;
+    const L = slope ? slope(from) : 0;
+    const E = errOn ? errOn(beta, from, until) : NaN;
+    let e = k + 1;
+    // (a bound not derived over the run, or errD without its run form: asked at the node alone, and again at the next one)
+    if ((slope || errOn) && Number.isFinite(L) && (!errD || E >= 0)) while (e < n && t[e] >= from && t[e] <= until) e++;
+    else if (!slope && !errD) e = n;
+    runEnd.push(e);
+    runL.push(L);
     // neither bound derived (L not finite): left out (the module's note)
-    const ek = errD ? (E >= 0 ? E : errD(beta, t[k])) * (1 + 2 * EPS) : NaN;
-    const sk = errD ? Math.min(S * (t[k] + beta), ek) : S * (t[k] + beta);
-    let move = (Number.isFinite(L) ? U * L * t[k] * (1 + 4 * EPS) : 0) + sk;
-    if (et && move > 0) {
-      const lo = t[k] * (1 - 2 * U);
-      while (i + 1 < et.length && et[i + 1] <= lo) i++;
-      // inside the probed range only (past the last probe the envelope is a fitted tail)
-      if (et[0] <= lo && i + 1 < et.length) move = Math.min(move, (Math.hypot(re[k], im[k]) * (1 + 4 * EPS) + noise[k] + env!.env[i]) * (1 + 4 * EPS));
+    runE.push(errD ? (E >= 0 ? E : errD(beta, from)) * (1 + 2 * EPS) : NaN);
+    k = e;
+  }
+  const withErr = !!errD;
+  let i = 0;
+  let k = 0;
+  for (let r = 0; r < runEnd.length; r++) {
+    const L = runL[r];
+    const lt = Number.isFinite(L) ? U * L * (1 + 4 * EPS) : 0;
+    const ek = runE[r];
+    for (const e = runEnd[r]; k < e; k++) {
+      const st = S * (t[k] + beta);
+      let move = lt * t[k] + (withErr ? Math.min(st, ek) : st);
+      if (et && move > 0) {
+        const lo = t[k] * (1 - 2 * U);
+        while (i + 1 < et.length && et[i + 1] <= lo) i++;
+        // inside the probed range only (past the last probe the envelope is a fitted tail)
+        if (et[0] <= lo && i + 1 < et.length) move = Math.min(move, (cabs(re[k], im[k]) * (1 + 4 * EPS) + noise[k] + env!.env[i]) * (1 + 4 * EPS));
+      }
+      noise[k] += move;
     }
-    noise[k] += move;
   }
 }
 
@@ -218,7 +232,7 @@ export function nodeMoves(part: ContinuousPart, env: Envelope, B: number, exact:
         let cap = Infinity;
         while (ie + 1 < et.length && et[ie + 1] <= tl[i]) ie++;
         if (et[0] <= tl[i] && ie + 1 < et.length) {
-          const a = Math.hypot(re[i0 + i], im[i0 + i]);
+          const a = cabs(re[i0 + i], im[i0 + i]);
           cap = (a * (1 + rel[i] + 4 * EPS) + abs0 + env.env[ie]) * (1 + 4 * EPS);
         }
         const a1 = Math.min(m1 + own, cap);

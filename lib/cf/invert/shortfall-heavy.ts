@@ -15,6 +15,7 @@ import { evalPart, makePart, type ContinuousPart } from "./part";
 import type { lawShape } from "./range";
 import { richardsonAmplification, richardsonRow } from "./richardson";
 import { kernelSfIntegral } from "./shortfall";
+import { cabs } from "../complex";
 
 /**
  * E[(X - q)^+] for power tails with a finite mean: E|Y - q| = (2/pi) int_0^inf (M - Re(phi(t) e^{-itq}))/t^2 dt
@@ -122,7 +123,7 @@ export function heavyShortfall(
       let d = 0;
       for (let k = 0; k < nd.K; k++) {
         const tk = (k + 0.5) * nd.h;
-        const m = Math.hypot(nd.re[k], nd.im[k]) / tk;
+        const m = cabs(nd.re[k], nd.im[k]) / tk;
         a += m / tk;
         b += m;
         d += (k & 63) * (m / tk);
@@ -148,7 +149,7 @@ export function heavyShortfall(
     const im = new Float64Array(m);
     evalPart(part, t, re, im);
     let a = 0;
-    for (let k = 0; k < m; k++) a += Math.hypot(re[k], im[k]) / t[k] / t[k];
+    for (let k = 0; k < m; k++) a += cabs(re[k], im[k]) / t[k] / t[k];
     const floor = (Number.EPSILON / 2) * 78 * ((2 * h * a) / Math.PI) * (1 - 1e-6);
     return (roundFloors[lev] = Number.isFinite(floor) ? floor : 0);
   };
