@@ -6,9 +6,9 @@ import { SAME_EXPONENT, keptTerms, type EndpointRemainder } from "./endpoint-rem
 const EPS = Number.EPSILON;
 
 /** c (sigma / r)^{-e}, c >= 0: the bound's pieces that are plain powers of sigma in the unit of the kernels' rate r (valid for sigma >= r, where each falls) */
-type Power = [c: number, e: number];
+export type Power = [c: number, e: number];
 /** a term c s^{-x} of a series, its exponent within unc of x and its coefficient within err of c */
-interface Term {
+export interface Term {
   x: number;
   unc: number;
   c: number;
@@ -20,7 +20,7 @@ interface Term {
  * sigma = |s| >= 1 and Re s >= 0 (s in the unit of the kernels' rate: ofOrder): at most |sum c_i| sigma^{-x0} + sum |c_i| |s^{-d_i} - 1| sigma^{-x0}, |s^{-d} - 1| <=
  * d |log s| e^{d |log s|} with |log s| <= log sigma + pi/2 (logPowers): plain powers, each falling in sigma
  */
-function clusterPowers(ts: Term[], out: Power[]) {
+export function clusterPowers(ts: Term[], out: Power[]) {
   let x0 = Infinity;
   let x1 = -Infinity;
   let sum = 0;
@@ -44,7 +44,7 @@ function clusterPowers(ts: Term[], out: Power[]) {
  * log sigma + pi/2 and e^{D log sigma} = sigma^D, so c D e^{D pi/2} (log sigma + pi/2) sigma^{-y}, y = x - D; and
  * log sigma <= sigma^{nu} / (e nu) (nu = y/8): plain powers of exponents 7y/8 and y
  */
-function logPowers(c: number, D: number, x: number, out: Power[]) {
+export function logPowers(c: number, D: number, x: number, out: Power[]) {
   if (!(D > 0)) return;
   const y = x - D;
   const k = c * D * Math.exp((D * Math.PI) / 2);
@@ -52,13 +52,13 @@ function logPowers(c: number, D: number, x: number, out: Power[]) {
 }
 
 /** |(a + b) - fl(a + b)|, exactly (Knuth's TwoSum): 0 where the sum is exact, as for integer exponents */
-function sumError(a: number, b: number, s: number): number {
+export function sumError(a: number, b: number, s: number): number {
   const bb = s - a;
   return Math.abs(a - (s - bb) + (b - bb));
 }
 
 /** the terms of cur times base with every exponent (no truncation), coefficients with their rounding */
-function times(cur: Term[], base: Term[]): Term[] {
+export function times(cur: Term[], base: Term[]): Term[] {
   const next: Term[] = [];
   for (const a of cur)
     for (const b of base) {
@@ -97,7 +97,7 @@ export interface CompoundRemainderInput {
 }
 
 /** the powers with equal exponents summed (one exp each when evaluated), largest exponent last */
-function merged(ps: Power[]): Power[] {
+export function merged(ps: Power[]): Power[] {
   const sorted = [...ps].sort((p, q) => p[1] - q[1]);
   const out: Power[] = [];
   for (const [c, e] of sorted) {
@@ -108,7 +108,7 @@ function merged(ps: Power[]): Power[] {
   return out;
 }
 
-const sumPow = (ps: Power[], ls: number) => {
+export const sumPow = (ps: Power[], ls: number) => {
   let v = 0;
   for (const [c, e] of ps) v += c * Math.exp(-e * ls);
   return v;
@@ -118,7 +118,7 @@ const sumPow = (ps: Power[], ls: number) => {
  * sum_{m > M} (e)_m / m! x^m, x = r / sigma <= 1/2: term by term until the rest is below 1e-17 of the sum, then the rest
  * by a geometric series (the ratio (e + m) / (m + 1) x falls in m for e >= 1; for e < 1 it is below x)
  */
-function binomRest(e: number, M: number, x: number): number {
+export function binomRest(e: number, M: number, x: number): number {
   let term = 1;
   for (let m = 1; m <= M + 1; m++) term *= ((e + m - 1) / m) * x;
   let sum = 0;
@@ -133,19 +133,57 @@ function binomRest(e: number, M: number, x: number): number {
 }
 
 /**
- * The bound's pieces for the blocks n <= Nb at order L (sigma >= max(1, 2 r)): A = the series' terms up to L, the blocks'
- * A^n and the kernels' binomial series compared up to L, what is past L bounded. Returns the sum and m >= |phi|.
+ * The kernels' binomial series up to L, w (r/(r + s))^e = w (r/s)^e sum_m binom(-e, m) (r/s)^m (|r/s| < 1), each term
+ * negated into its endpoint's list of `series`; returns their rests past L
  */
-export function ofOrder(inp: CompoundRemainderInput, L: number, Nb: number) {
-  const { rem, pn, pErr, kernels } = inp;
+export function kernelTerms(kernels: readonly GammaKernel[], L: number, series: Map<number, Term[]>): Rest[] {
+  const rests: Rest[] = [];
+  for (const k of kernels) {
+    let list = series.get(k.at);
+    if (!list) series.set(k.at, (list = []));
+    let b = 1;
+    let m = 0;
+    for (; k.shape + m <= L + SAME_EXPONENT; m++) {
+      if (m > 0) b *= -(k.shape + m - 1) / m;
+      const x = k.shape + m;
+      // w (r/s)^x binom(-e, m) = w binom(-e, m) (s/r)^{-x}: the binomial coefficient's 2 m roundings and the product's
+      const c = -k.w * b;
+      list.push({ x, unc: sumError(k.shape, m, x), c, err: Math.abs(c) * EPS * (2 * m + 2) });
+    }
+    rests.push({ w: Math.abs(k.w), at: k.at, e: k.shape, r: k.rate, M: m - 1 });
+  }
+  return rests;
+}
+
+/** every endpoint's series against its kernels' series, cluster by cluster (their endpoints' damping e^{-beta at} <= 1), merged */
+export function matchedPowers(series: Map<number, Term[]>): Power[] {
+  const matched: Power[] = [];
+  for (const list of series.values()) {
+    list.sort((p, q) => p.x - q.x);
+    let i = 0;
+    while (i < list.length) {
+      let j = i + 1;
+      while (j < list.length && list[j].x - list[j - 1].x <= 2 * SAME_EXPONENT) j++;
+      clusterPowers(list.slice(i, j), matched);
+      i = j;
+    }
+  }
+  return merged(matched);
+}
+
+/** |w| (r / sigma)^e sum_{m > M} (e)_m / m! (r / sigma)^m: a kernel's binomial series past its kept terms (sigma >= 2 r) */
+export function kernelRest(k: Rest, sigma: number): number {
+  return k.w * Math.pow(k.r / sigma, k.e) * binomRest(k.e, k.M, k.r / sigma);
+}
+
+/**
+ * The series' first J0 terms in the unit of the kernels' rate r (e^{logR}): everything as c s^{-x} = (c r^{-x}) (s/r)^{-x}, so
+ * the powers are of sigma / r and hold from sigma = r on, whatever the law's scale (claims in millions); a kernel's binomial
+ * terms are then w times the binomial coefficient alone. r^{-x} within (2 + 2 |x log r|) eps. Returns the terms (base),
+ * rho_h >= |A_true - Ah| and alpha >= |Ah|, plain powers of sigma / r.
+ */
+export function termsOf(rem: EndpointRemainder, J0: number, logR: number): { base: Term[]; rhoH: Power[]; alphaP: Power[] } {
   const s = rem.series;
-  const a = s.at;
-  const e0 = s.exps[0];
-  const J0 = keptTerms(s, L);
-  // everything in the unit of the kernels' rate r: c s^{-x} = (c r^{-x}) (s/r)^{-x}, so the powers are of sigma / r and hold
-  // from sigma = r on, whatever the law's scale (claims in millions); a kernel's binomial terms are then w times the
-  // binomial coefficient alone. r^{-x} within (2 + 2 |x log r|) eps
-  const logR = Math.log(kernels[0].rate);
   const scaled = (c: number, x: number) => c * Math.exp(-x * logR);
   const scaleErr = (x: number) => EPS * (2 + 2 * Math.abs(x * logR));
   const base: Term[] = [];
@@ -168,6 +206,21 @@ export function ofOrder(inp: CompoundRemainderInput, L: number, Nb: number) {
     logPowers(2 * ch, 2 * d, x, rhoH);
   }
   const alphaP: Power[] = base.map((b) => [Math.abs(b.c) + b.err, b.x]);
+  return { base, rhoH, alphaP };
+}
+
+/**
+ * The bound's pieces for the blocks n <= Nb at order L (sigma >= max(1, 2 r)): A = the series' terms up to L, the blocks'
+ * A^n and the kernels' binomial series compared up to L, what is past L bounded. Returns the sum and m >= |phi|.
+ */
+export function ofOrder(inp: CompoundRemainderInput, L: number, Nb: number) {
+  const { rem, pn, pErr, kernels } = inp;
+  const s = rem.series;
+  const a = s.at;
+  const e0 = s.exps[0];
+  const J0 = keptTerms(s, L);
+  const logR = Math.log(kernels[0].rate);
+  const { base, rhoH, alphaP } = termsOf(rem, J0, logR);
   // per block n: its terms past L (absolute), its terms up to L (signed, to compare with the kernels), its endpoint
   const blocks: Block[] = [];
   const series = new Map<number, Term[]>();
@@ -188,35 +241,8 @@ export function ofOrder(inp: CompoundRemainderInput, L: number, Nb: number) {
     // n a rounds within half an ulp (exact for n = 1, 2, 4)
     blocks.push({ n, dropped: merged(dropped), atErr: n === 1 || n === 2 || n === 4 ? 0 : EPS * Math.abs(at) });
   }
-  // the kernels' binomial series up to L, each term negated, into their block's list; and their rests past it
-  const rests: Rest[] = [];
-  for (const k of kernels) {
-    let list = series.get(k.at);
-    if (!list) series.set(k.at, (list = []));
-    let b = 1;
-    let m = 0;
-    for (; k.shape + m <= L + SAME_EXPONENT; m++) {
-      if (m > 0) b *= -(k.shape + m - 1) / m;
-      const x = k.shape + m;
-      // w (r/s)^x binom(-e, m) = w binom(-e, m) (s/r)^{-x}: the binomial coefficient's 2 m roundings and the product's
-      const c = -k.w * b;
-      list.push({ x, unc: sumError(k.shape, m, x), c, err: Math.abs(c) * EPS * (2 * m + 2) });
-    }
-    rests.push({ w: Math.abs(k.w), at: k.at, e: k.shape, r: k.rate, M: m - 1 });
-  }
-  // every block's series against its kernels' series, cluster by cluster (their endpoints' damping e^{-beta at} <= 1)
-  const matched: Power[] = [];
-  for (const list of series.values()) {
-    list.sort((p, q) => p.x - q.x);
-    let i = 0;
-    while (i < list.length) {
-      let j = i + 1;
-      while (j < list.length && list[j].x - list[j - 1].x <= 2 * SAME_EXPONENT) j++;
-      clusterPowers(list.slice(i, j), matched);
-      i = j;
-    }
-  }
-  const matchedM = merged(matched);
+  const rests = kernelTerms(kernels, L, series);
+  const matchedM = matchedPowers(series);
   const rhoHM = merged(rhoH);
   const jump = jumpSplit(inp, { J0, Nb, matchedM, rhoH, alphaP, blocks, rests });
   const bound = (beta: number, t: number, sigma: number, ls: number) => {
@@ -234,13 +260,13 @@ export function ofOrder(inp: CompoundRemainderInput, L: number, Nb: number) {
       // sigma (alpha + rho)^n falls where n times the least exponent of its powers is at least 1
       if (b.atErr > 0) v += b.n * e0 >= 1 ? 2 * q * sigma * b.atErr * Math.exp(Math.max(beta * b.atErr, 0.5)) * Math.pow(alpha + rho, b.n) : Infinity;
     }
-    for (const k of rests) v += k.w * Math.exp(-beta * k.at) * Math.pow(k.r / sigma, k.e) * binomRest(k.e, k.M, k.r / sigma);
+    for (const k of rests) v += Math.exp(-beta * k.at) * kernelRest(k, sigma);
     return { v, m };
   };
   return { bound, jump };
 }
 
-type Rest = { w: number; at: number; e: number; r: number; M: number };
+export type Rest = { w: number; at: number; e: number; r: number; M: number };
 type Block = { n: number; dropped: Power[]; atErr: number };
 
 /**
@@ -305,7 +331,7 @@ function jumpSplit(
       v += damp * sumPow(b.dropped, ls);
       if (b.atErr > 0) v += 2 * q * sigma * b.atErr * Math.exp(Math.max(beta * b.atErr, 0.5)) * Math.pow(alpha + rho, b.n);
     }
-    for (const k of o.rests) v += k.w * Math.exp(-beta * k.at) * Math.pow(k.r / sigma, k.e) * binomRest(k.e, k.M, k.r / sigma);
+    for (const k of o.rests) v += Math.exp(-beta * k.at) * kernelRest(k, sigma);
     v += tailP * Math.pow(m, o.Nb + 1);
     v += D1 * Math.exp(-2 * ls);
     return v * (1 + 1e-10);

@@ -1,6 +1,7 @@
 import { scaleDamped, shiftDamped, sumDamped } from "./damped-cf";
 import { scaledLogRound, shiftedLogRound, summedLogRound } from "./families/log-round";
 import { carryScaleKernels, carryShiftKernels, carrySumKernels } from "./kernel-carry";
+import { sumDampedRemainder } from "./sum-remainder";
 import { sumKernelRest } from "./damped-kernel-rest";
 import { scaleDampedMajorant, shiftDampedMajorant, sumDampedMajorant } from "./damped-majorant";
 import type { Node, NodeKind } from "./node";
@@ -69,6 +70,8 @@ export function sumNode(cs: Node[]): Node {
     const kr = sumKernelRest(cs.map((c) => c.dampedMajorant!), node.dampedKernels.kernels, node.support[0]);
     if (kr) node.dampedMajorant.kernelRest = kr;
   }
+  const sr = sumDampedRemainder(node, cs);
+  if (sr) node.dampedRemainder = sr;
   const tail = heaviestTerm(cs);
   if (tail) node.tailTerm = tail;
   if (kind.type === "lattice" && cs.every((c) => c.table)) {
