@@ -3,7 +3,7 @@ import { CfError } from "./errors";
 import { checkDeadline } from "./deadline";
 import { MAX_LATTICE } from "./limits";
 import type { LatticeTable } from "./types";
-import { convolvedRound, roundOf, type TableRound } from "./table-rounding";
+import { convolvedPointErr, convolvedRound, pointErrOf, roundOf, type TableRound } from "./table-rounding";
 import { twoSumErr } from "./moment-error";
 
 /** Relative tolerance for deciding that two steps (or an offset and a step) are commensurate. */
@@ -132,7 +132,14 @@ export function restep(t: LatticeTable, g: number): LatticeTable {
   if (m === 1) return { ...t, step: g };
   const out = new Float64Array((t.p.length - 1) * m + 1);
   for (let k = 0; k < t.p.length; k++) out[k * m] = t.p[k];
-  return { origin: t.origin, step: g, p: out, tailMass: t.tailMass };
+  // (the per-entry bounds spread alike: the entries between are exact zeros)
+  const pe = pointErrOf(t);
+  let pointErr: Float64Array | undefined;
+  if (pe) {
+    pointErr = new Float64Array(out.length);
+    for (let k = 0; k < pe.length; k++) pointErr[k * m] = pe[k];
+  }
+  return { origin: t.origin, step: g, p: out, tailMass: t.tailMass, ...(pointErr ? { pointErr } : {}) };
 }
 
 /**
@@ -154,6 +161,8 @@ export function convolveTables(tables: LatticeTable[], maxLength = MAX_LATTICE):
   const steps = tables.map((t) => ({ ...restep(t, g), round: roundOf(t) ?? undefined })).sort((x, y) => x.p.length - y.p.length);
   let acc = steps[0].p;
   let round: TableRound | undefined = steps[0].round;
+  // per-entry bounds, while every product is a direct one (./table-rounding.ts convolvedPointErr)
+  let accErr: Float64Array | null = pointErrOf(steps[0]);
   let origin = steps[0].origin;
   // the mass past the table, carried as a product (the exact law A + B leaves the table A_T * B_T with mass
   // tA (|B_T| + tB) + |A_T| tB, plus what the truncation drops), not as 1 - sum, whose cancellation loses it below u
@@ -166,6 +175,8 @@ export function convolveTables(tables: LatticeTable[], maxLength = MAX_LATTICE):
     const tb = steps[i].tailMass + sum(steps[i].p.subarray(b.length));
     const c = convolve(a, b);
     acc = truncate(c, maxLength);
+    const eb = pointErrOf(steps[i]);
+    accErr = accErr && eb && !convolveByFft(a.length, b.length) ? convolvedPointErr(a, b, accErr.subarray(0, a.length), eb.subarray(0, b.length), c, acc.length) : null;
     const rb = steps[i].round;
     const la = round?.l1 ?? 0;
     round = round && rb ? convolvedRound(a, b, round, rb, convolveByFft(a.length, b.length), nextPowerOfTwo(a.length + b.length - 1), c, acc.length) : undefined;
@@ -178,7 +189,7 @@ export function convolveTables(tables: LatticeTable[], maxLength = MAX_LATTICE):
   }
   const p = acc.length === acc.buffer.byteLength / 8 ? acc : acc.slice();
   // (the inputs' cut tails land inside the result's range: tailFrom 0 says so to a reader that places them)
-  return { origin, step: g, p, tailMass: Math.min(tail, 1), tailFrom: 0, ...(round ? { round } : {}) };
+  return { origin, step: g, p, tailMass: Math.min(tail, 1), tailFrom: 0, ...(round ? { round } : {}), ...(accErr && accErr.length === p.length ? { pointErr: accErr } : {}) };
 }
 
 /**

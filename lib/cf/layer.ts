@@ -250,7 +250,8 @@ function discreteLayer(X: Node, d: number, l: number, c: number): Node {
     ps = k.atoms.map((a) => a.p);
   } else if (X.table) {
     const t = X.table(MAX_LATTICE);
-    if (!t || (t.tailMass > 1e-15 && l === Infinity) || t.cdfError)
+    // (a table whose dropped mass may lie below it, a reversed one's, has no place to put that mass here)
+    if (!t || (t.tailMass > 1e-15 && l === Infinity) || t.cdfError || (t.tailMass > 0 && (t.tailBelow || !Number.isFinite(X.support[0]))))
       throw new CfError("not_applicable", "/of", "This claim law has too many atoms to lay out exactly under an unlimited layer; give the layer a limit.");
     for (let i = 0; i < t.p.length; i++) {
       xs.push(t.origin + i * t.step);

@@ -6,7 +6,7 @@ import { cumulantsToRaw, rawToCumulants } from "./node";
 import { cabs, nearestZero, sortedAnchor, unwrapFrom } from "./complex";
 import { mixKinds } from "./kinds";
 import { restep } from "./lattice";
-import { roundOf, type TableRound } from "./table-rounding";
+import { pointErrOf, roundOf, type TableRound } from "./table-rounding";
 import type { LatticeTable } from "./types";
 import { collectNotes, carryApproximation, completeAtoms } from "./operators-shared";
 import { withCumulantErrors } from "./cumulant-bounds";
@@ -107,7 +107,7 @@ export function mixNode(ws: number[], cs: Node[]): Node {
         }
         tail += ws[j] * x.tailMass;
       });
-      return { origin: lo, step: g, p: out, tailMass: tail, ...mixedRound(ws, tabs as LatticeTable[], out) };
+      return { origin: lo, step: g, p: out, tailMass: tail, ...mixedRound(ws, tabs as LatticeTable[], out), ...mixedPointErr(ws, st, lo, g, out) };
     };
     carryApproximation(node, cs, ws);
   }
@@ -124,6 +124,27 @@ export function mixNode(ws: number[], cs: Node[]): Node {
     node.p0 = cs.reduce((s, c, j) => s + ws[j] * (c.p0 ?? 0), 0);
   }
   return node;
+}
+
+/**
+ * Per-entry bounds of a mixture's table where every (restepped) component has them (./table-rounding.ts pointErrOf): entry
+ * k a sum of at most J products w_j p_jk, within gamma_{J+1} of itself (as in mixedRound below), plus sum_j w_j e_jk.
+ */
+function mixedPointErr(ws: number[], st: LatticeTable[], lo: number, g: number, out: Float64Array): { pointErr?: Float64Array } {
+  const pes = st.map((x) => pointErrOf(x));
+  if (pes.some((e) => !e)) return {};
+  const e = new Float64Array(out.length);
+  st.forEach((x, j) => {
+    const off = Math.round((x.origin - lo) / g);
+    const pe = pes[j]!;
+    for (let k = 0; k < pe.length && off + k < e.length; k++) e[off + k] += ws[j] * pe[k];
+  });
+  const U = Number.EPSILON / 2;
+  const J = st.length + 1;
+  const gm = (J * U) / (1 - J * U);
+  const grow = 1 + (st.length + 4) * Number.EPSILON;
+  for (let k = 0; k < e.length; k++) e[k] = (e[k] * (1 + gm) + gm * Math.abs(out[k])) * grow;
+  return { pointErr: e };
 }
 
 /**

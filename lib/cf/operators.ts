@@ -7,7 +7,7 @@ import { scaleDampedMajorant, shiftDampedMajorant, sumDampedMajorant } from "./d
 import type { Node, NodeKind } from "./node";
 import { repeatKind, scaleKind, shiftKind, sumKinds } from "./kinds";
 import { convolveTables, powerTable } from "./lattice";
-import { roundOf } from "./table-rounding";
+import { pointErrOf, roundOf } from "./table-rounding";
 import type { LatticeTable } from "./types";
 import { collectNotes, carryApproximation, combineScales, addCumulants, completeAtoms, beyondWindow } from "./operators-shared";
 import { withCumulantErrors } from "./cumulant-bounds";
@@ -150,15 +150,21 @@ export function scaleNode(a: number, c: Node): Node {
       if (!tab) return null;
       // (the values move nowhere: the table's rounding bound, where known, stays; ./table-rounding.ts)
       const round = roundOf(tab) ?? undefined;
-      if (a > 0) return { origin: a * tab.origin, step: a * tab.step, p: tab.p, tailMass: tab.tailMass, cdfError: tab.cdfError, ...(round ? { round } : {}) };
-      // reversing a truncated table puts the cut below its origin, where tailMass (an upper-tail mass) cannot go: an
-      // exact table falls back to the CF route (its CF is the lattice law's); a discretised one must not (its node's
-      // CF is the continuous law's, so an FFT of it on the lattice is not this table), and the cut mass joins its
-      // cdf error instead (every cdf and sf value moves by at most that mass)
-      if (tab.tailMass > 0 && tab.cdfError === undefined) return null;
+      // (and so do the per-entry bounds, reversed with the entries below)
+      const pe = pointErrOf(tab);
+      if (a > 0) return { origin: a * tab.origin, step: a * tab.step, p: tab.p, tailMass: tab.tailMass, cdfError: tab.cdfError, ...(round ? { round } : {}), ...(pe ? { pointErr: pe } : {}) };
+      // reversing a table cut at its upper end puts the cut below its origin: an exact table keeps the dropped mass there
+      // (tailBelow; a cut from both ends or inside, tailFrom below the end, is anywhere); a discretised one's cut mass
+      // joins its cdf error instead (every cdf and sf value moves by at most that mass)
       const p = tab.p.slice().reverse();
-      const cdfError = tab.cdfError === undefined ? undefined : tab.cdfError + tab.tailMass;
-      return { origin: a * (tab.origin + (tab.p.length - 1) * tab.step), step: aa * tab.step, p, tailMass: 0, cdfError, ...(round ? { round } : {}) };
+      const pointErr = pe ? pe.slice().reverse() : undefined;
+      const origin = a * (tab.origin + (tab.p.length - 1) * tab.step);
+      if (tab.cdfError === undefined) {
+        // (a recursion's table, pointRel, drops only what follows its end)
+        const below = tab.tailMass > 0 && (tab.tailFrom ?? (tab.pointRel ? tab.p.length : 0)) >= tab.p.length;
+        return { origin, step: aa * tab.step, p, tailMass: tab.tailMass, ...(below ? { tailBelow: true } : {}), ...(round ? { round } : {}), ...(pointErr ? { pointErr } : {}) };
+      }
+      return { origin, step: aa * tab.step, p, tailMass: 0, cdfError: tab.cdfError + tab.tailMass, ...(round ? { round } : {}), ...(pointErr ? { pointErr } : {}) };
     };
     node.approximate = c.approximate;
   }

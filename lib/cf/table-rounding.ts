@@ -32,6 +32,44 @@ export function roundOf(t: LatticeTable): TableRound | null {
   return { pmf, l1: l1 * (1 + t.p.length * Number.EPSILON) };
 }
 
+/**
+ * A bound on each entry's absolute rounding error where one is known: the table's own (pointErr), or from a recursion's
+ * per-point bounds (pointRel(k) p_k, rounded up), or zeros for a single point of mass 1 (exact); null otherwise.
+ */
+export function pointErrOf(t: LatticeTable): Float64Array | null {
+  if (t.pointErr && t.pointErr.length === t.p.length) return t.pointErr;
+  if (t.p.length === 1 && t.p[0] === 1) return new Float64Array(1);
+  const rel = t.pointRel;
+  if (!rel) return null;
+  const e = new Float64Array(t.p.length);
+  for (let k = 0; k < e.length; k++) e[k] = rel(k) * Math.max(t.p[k], 0) * (1 + 2 * U);
+  return e;
+}
+
+/**
+ * Per-entry bounds of c = a * b by direct sums (convolveDirect), from the inputs' per-entry bounds ea, eb: each c_k a sum
+ * of at most m = min(la, lb) non-negative products within gamma_{m+1} of itself (Higham, Accuracy and Stability of
+ * Numerical Algorithms, 2nd ed., sec. 3.1), and the inputs' errors |da * b + (a + da) * db| <= ea * b + (a + ea) * eb
+ * entry by entry (direct sums of non-negative terms, rounded up past their own rounding); kept to `kept` entries.
+ */
+export function convolvedPointErr(a: Float64Array, b: Float64Array, ea: Float64Array, eb: Float64Array, c: Float64Array, kept: number): Float64Array {
+  const la = a.length;
+  const lb = b.length;
+  const g = gamma(Math.min(la, lb) + 1);
+  const g2 = gamma(2 * Math.min(la, lb) + 4);
+  const out = new Float64Array(kept);
+  for (let k = 0; k < kept; k++) {
+    let s = 0;
+    const i0 = Math.max(0, k - lb + 1);
+    const i1 = Math.min(k, la - 1);
+    for (let i = i0; i <= i1; i++) s += ea[i] * Math.abs(b[k - i]) + (Math.abs(a[i]) + ea[i]) * eb[k - i];
+    // s: at most 2 m + 2 products and sums of non-negative terms, rounded up by gamma_{2m+4}; the computed products' sum
+    // within gamma_{m+1} of itself, so the rounding within g |c_k| / (1 - g)
+    out[k] = (s * (1 + g2) + g * Math.abs(c[k]) * (1 + 2 * g)) * (1 + 4 * U);
+  }
+  return out;
+}
+
 /** sum_k |x_k| and sqrt(sum_k x_k^2), each rounded up past its own rounding */
 function norms(x: Float64Array): { n1: number; n2: number } {
   let s1 = 0;

@@ -34,8 +34,14 @@ export interface LatticeTable {
   beyond?: (k: number) => number;
   /** bounds on the rounding of p: every entry (pmf) and their sum (l1), where derived (../table-rounding.ts) */
   round?: { pmf: number; l1: number };
-  /** with round, where known: a bound on each entry's absolute error (a Panjer run's running bound, ./compound-table.ts) */
+  /**
+   * where known: a bound on each entry's absolute error, the rounding only (a Panjer run's running bound,
+   * ./compound-table.ts; a bulk table's, ./families/bulk-bound.ts; carried through reversals, mixtures and direct
+   * convolutions, ./table-rounding.ts pointErrOf)
+   */
   pointErr?: Float64Array;
+  /** the dropped mass (tailMass) lies below the origin: a reversed table cut at its upper end (./operators.ts scaleNode) */
+  tailBelow?: boolean;
   /**
    * where known, the first index at which the dropped mass (tailMass) may lie: the table's length for a recursion cut
    * at its end; a convolution of cut tables misses mass inside its own range too (./lattice.ts convolveRelTables)

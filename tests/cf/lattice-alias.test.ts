@@ -1,5 +1,6 @@
-// Lattice laws inverted by FFT of the CF (lattice-fft): the aliasing bound (mass outside the window, from the law's
-// moments) and the pmf/cdf/sf bounds against mpmath references (tests/fixtures/lattice-alias/generate.py: closed forms
+// Lattice laws inverted by FFT of the CF (lattice-fft: the aliasing bound, mass outside the window from the law's moments)
+// or tabulated (lattice-table: reflected laws' tables reversed, their dropped mass below the origin, per-point bounds from
+// the entries' own), and the pmf/cdf/sf bounds against mpmath references (tests/fixtures/lattice-alias/generate.py: closed forms
 // vs recursions / incomplete gamma and beta / convolutions, the cross-check difference written per point).
 import { readFileSync } from "node:fs";
 import { join } from "node:path";
@@ -32,7 +33,7 @@ const median = (xs: number[]) => {
   return s.length ? s[s.length >> 1] : NaN;
 };
 
-describe("lattice-fft: stated bounds hold against mpmath references (tests/fixtures/lattice-alias)", () => {
+describe("lattice laws by FFT or table: stated bounds hold against mpmath references (tests/fixtures/lattice-alias)", () => {
   for (const k of FIX.cases) {
     for (const tolerance of [1e-10, 1e-13]) {
       it(`${k.name}, tolerance ${tolerance} (${k.source})`, () => {
@@ -40,21 +41,29 @@ describe("lattice-fft: stated bounds hold against mpmath references (tests/fixtu
         const xs = k.points.map((p) => p.x);
         const r = density(compile(k.model), { x: xs, tolerance });
         const e = r.diagnostics.error;
-        c.that("method", r.diagnostics.method === "lattice-fft", r.diagnostics.method);
+        const table = r.diagnostics.method === "lattice-table";
+        c.that("method", table || r.diagnostics.method === "lattice-fft", r.diagnostics.method);
+        // (the one law here with no table, a compound of a severity with a negative point, goes by FFT)
+        if (k.model && "compound" in k.model) c.that("the compound by FFT", r.diagnostics.method === "lattice-fft", r.diagnostics.method);
         c.that("bounds finite", Number.isFinite(e.pdf) && Number.isFinite(e.cdf), `pdf ${e.pdf} cdf ${e.cdf}`);
         // the window's outside mass: the reference's mass below range.from and above range.to, when the points reach them
+        // (a table's dropped mass is its truncation: 1 - capturedMass loses it below u)
         const { from, to } = r.diagnostics.range;
-        const outside = 1 - r.diagnostics.capturedMass;
+        const outside = table ? e.truncation : 1 - r.diagnostics.capturedMass;
         const left = k.points.find((p) => p.x === from - 1);
         const right = k.points.find((p) => p.x === to);
         if (left) c.that(`mass below ${from} within the bound ${outside}`, Number(left.cdf) <= outside + left.crossCheck, left.cdf);
         if (right) c.that(`mass above ${to} within the bound ${outside}`, Number(right.sf) <= outside + right.crossCheck, right.sf);
         const loose: number[] = [];
+        // each value's bound as the API answers it: its point bound where the route gives one (at most the whole answer's)
+        const pe = r.diagnostics.pointError;
+        if (table) c.that("a table's answer carries point bounds", pe !== undefined);
         k.points.forEach((p, i) => {
+          if (pe) c.that(`point bounds within the whole answer's at x = ${p.x}`, pe.pdf[i] <= e.pdf && pe.cdf[i] <= e.cdf && pe.sf[i] <= e.cdf);
           for (const [q, got, want, bound] of [
-            ["pmf", r.pmf![i], Number(p.pmf), e.pdf],
-            ["cdf", r.cdf[i], Number(p.cdf), e.cdf],
-            ["sf", r.sf[i], Number(p.sf), e.cdf],
+            ["pmf", r.pmf![i], Number(p.pmf), pe ? pe.pdf[i] : e.pdf],
+            ["cdf", r.cdf[i], Number(p.cdf), pe ? pe.cdf[i] : e.cdf],
+            ["sf", r.sf[i], Number(p.sf), pe ? pe.sf[i] : e.cdf],
           ] as const) {
             const slack = refErr(p, want);
             c.honest(`${q} at x = ${p.x}`, got, want, bound + slack);

@@ -391,3 +391,27 @@ describe("special inputs", () => {
 afterAll(() => {
   console.log("worst errors (lattice):", JSON.stringify(worst, null, 1));
 });
+
+describe("reflected lattice laws: the reversed table keeps its dropped mass below its origin", () => {
+  it("-Poisson(3): the table is Poisson(3)'s reversed (JKK ch. 4 pmf), its cut mass below it, and a per-claim layer refuses it", () => {
+    const t = compile({ scale: -1, of: { family: "poisson", lambda: 3 } }).latticeTable!(1 << 20)!;
+    const n = t.p.length;
+    expect(t.origin).toBe(-(n - 1));
+    expect(t.tailBelow).toBe(true);
+    // p_k = e^-3 3^k / k! at x = -k, each entry within its own bound (pointErr) of the closed form (the closed form's own
+    // rounding, a few ulps, is far below the entries' bounds of 1e-31 and up only at the smallest entries: compared with
+    // a relative slack of 1e-14)
+    let fact = 1;
+    for (let k = 0; k < n; k++) {
+      if (k > 0) fact *= k;
+      // the closed form by its power and factorial (not the engine's ratio recursion)
+      const pk = (Math.exp(-3) * 3 ** k) / fact;
+      const i = n - 1 - k;
+      expect(Math.abs(t.p[i] - pk)).toBeLessThanOrEqual(t.pointErr![i] + 1e-14 * pk);
+    }
+    // the mass below the table: at most its tailMass (the Poisson tail past n - 1, JKK ch. 4: below p_{n-1} 3 / (n - 3))
+    expect(t.tailMass).toBeGreaterThan(0);
+    expect(t.tailMass).toBeLessThanOrEqual(t.p[0] * (3 / (n - 3)) * 1.01);
+    expect(() => compile({ layer: { deductible: -5, limit: 3 }, of: { scale: -1, of: { family: "poisson", lambda: 3 } } } as never)).toThrow(CfError);
+  });
+});

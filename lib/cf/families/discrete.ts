@@ -5,6 +5,7 @@ import { pointSeries } from "../damped-kernels";
 import { nearestZero, unwrapFrom } from "../complex";
 import type { LatticeTable } from "../types";
 import { bulkRound } from "./bulk-bound";
+import { QUOTIENT_DW_REL, quotientDW, type DW } from "./dd-telescope";
 import { linearLogRound } from "./log-round";
 
 const ALL = Infinity;
@@ -207,7 +208,16 @@ function binomialAtoms(n: number, p: number) {
  * index kept. With the law's ratio p_{k+1} / p_k (non-increasing, within relRatio of itself) the table carries a bound
  * derived a posteriori (./bulk-bound.ts) and tailMass is its bound on the mass left out; else 1 - kept mass.
  */
-function bulkTable(mean: number, sd: number, top: number, maxLength: number, pmf: (k: number) => number, ratio?: (k: number) => number, relRatio = 0): LatticeTable {
+function bulkTable(
+  mean: number,
+  sd: number,
+  top: number,
+  maxLength: number,
+  pmf: (k: number) => number,
+  ratio?: (k: number) => number,
+  relRatio = 0,
+  ratioDW?: { at: (k: number) => DW | null; rel: number },
+): LatticeTable {
   const k0 = Math.max(0, Math.floor(mean - 20 * sd - 40));
   const k1 = Math.min(top, Math.ceil(mean + 20 * sd + 40), k0 + maxLength - 1);
   const out = new Float64Array(k1 - k0 + 1);
@@ -216,8 +226,8 @@ function bulkTable(mean: number, sd: number, top: number, maxLength: number, pmf
     out[k - k0] = pmf(k);
     s += out[k - k0];
   }
-  const b = ratio ? bulkRound(out, k0, ratio, relRatio, k0 === 0, k1 === top) : null;
-  if (b) return { origin: k0, step: 1, p: out, tailMass: b.tail, round: b.round };
+  const b = ratio ? bulkRound(out, k0, ratio, relRatio, k0 === 0, k1 === top, ratioDW) : null;
+  if (b) return { origin: k0, step: 1, p: out, tailMass: b.tail, round: b.round, pointErr: b.pointErr };
   return { origin: k0, step: 1, p: out, tailMass: Math.max(0, 1 - s) };
 }
 
@@ -264,7 +274,8 @@ export function poisson(lambda: number): Node {
       if (lambda < 700) return tabulate(maxLength, Math.ceil(lambda), Math.exp(-lambda), (k) => lambda / k, 2 * EPS, EPS);
       // large mean: saddle-point pmf over the bulk
       // ratio lambda / (k + 1): one division
-      return bulkTable(lambda, Math.sqrt(lambda), Infinity, maxLength, (k) => poissonPmf(k, lambda), (k) => lambda / (k + 1), 0.51 * EPS);
+      // (and as a double word, within 4 u^2: ./dd-telescope.ts)
+      return bulkTable(lambda, Math.sqrt(lambda), Infinity, maxLength, (k) => poissonPmf(k, lambda), (k) => lambda / (k + 1), 0.51 * EPS, { at: (k) => quotientDW(lambda, k), rel: QUOTIENT_DW_REL });
     },
     countCgf(wr, wi, re, im) {
       for (let k = 0; k < wr.length; k++) {

@@ -10,6 +10,8 @@ import { mixtureDensity } from "./mixture";
 import { bulkWindow, lawShape } from "./range";
 import { atomMass } from "./shared";
 import { lightPointErrors } from "./light-images";
+import { tableEntryErrors } from "./lattice-points";
+import { pointErrOf } from "../table-rounding";
 import type { DensityOptions, DensityResult, InversionDiagnostics, PointErrors } from "./types";
 
 export const DEFAULT_TOLERANCE = 1e-10;
@@ -332,7 +334,9 @@ function latticeResult(model: CompiledModel, origin: number, step: number, optio
   const t = sol.table;
   const { cdf: C, sf: S0 } = latticeCumulative(t.p);
   const S = S0;
-  if (sol.method !== "lattice-fft" && t.tailMass > 0) for (let i = 0; i < S.length; i++) S[i] += t.tailMass;
+  // the dropped mass may lie past any point (a reversed table's lies below every point: tailBelow, its sf misses none)
+  const above = sol.method !== "lattice-fft" && !t.tailBelow ? t.tailMass : 0;
+  if (above > 0) for (let i = 0; i < S.length; i++) S[i] += above;
   const n0 = t.p.length;
   let xs: Float64Array;
   let pmf: Float64Array;
@@ -373,8 +377,8 @@ function latticeResult(model: CompiledModel, origin: number, step: number, optio
         cdf[i] = 0;
         sf[i] = 1;
       } else if (k >= n0) {
-        cdf[i] = 1 - (sol.method !== "lattice-fft" ? t.tailMass : 0);
-        sf[i] = sol.method !== "lattice-fft" ? t.tailMass : 0;
+        cdf[i] = 1 - above;
+        sf[i] = above;
       } else {
         cdf[i] = Math.min(1, C[k]);
         sf[i] = Math.min(1, S[k]);
@@ -382,7 +386,10 @@ function latticeResult(model: CompiledModel, origin: number, step: number, optio
       }
     }
   }
-  const pointError = sol.method === "lattice-table" && t.pointRel && t.origin === 0 ? tablePointErrors(t, xs, pmf, cdf, sol) : undefined;
+  // per point: a recursion's relative bounds, else the entries' own bounds where the table carries them (./lattice-points.ts)
+  const pe = sol.method === "lattice-table" ? pointErrOf(t) : null;
+  const pointError =
+    sol.method === "lattice-table" && t.pointRel && t.origin === 0 ? tablePointErrors(t, xs, pmf, cdf, sol) : pe ? tableEntryErrors(t, pe, xs, cdf, sf, sol) : undefined;
   return {
     x: xs,
     pmf,
