@@ -1,5 +1,6 @@
 // The lattice table of a compound of a lattice count and a lattice severity: Panjer's recursion with its running error
-// bound where the count is in the (a, b, 0) or (a, b, 1) class with a >= 0, else powers and the count's short table.
+// bound where the count is in the (a, b, 0) or (a, b, 1) class with a >= 0, else powers and the count's short table
+// (a severity with points below 0: ./compound-table-signed.ts).
 import type { Node } from "./node";
 import { onLattice, powerTable, restep, convolveTables } from "./lattice";
 import { panjerRun, type PanjerInputErrors } from "./panjer";
@@ -8,6 +9,7 @@ import type { LatticeTable } from "./types";
 import { checkDeadline } from "./deadline";
 import { MAX_LATTICE } from "./limits";
 import { countSlope } from "./compound-fft-round";
+import { signedCompoundTable } from "./compound-table-signed";
 
 const U = Number.EPSILON / 2;
 
@@ -36,7 +38,15 @@ export function compoundTable(N: Node, X: Node, kind: { step: number }, maxLengt
   const m = Math.round(r.origin / g);
   // (the severity's first entry sits at index m of sev; below it zeros)
   const sevShift = m;
-  if (m < 0 || !onLattice(r.origin, g)) return null;
+  if (!onLattice(r.origin, g)) return null;
+  if (m < 0) {
+    // a severity with points below 0: the count's short table and whole powers (./compound-table-signed.ts)
+    const full = X.table!(maxLength);
+    const nt = N.table?.(4097);
+    if (!full || !nt || nt.p.length > 4096) return null;
+    const rf = restep(full, g);
+    return onLattice(rf.origin, g) ? signedCompoundTable(nt, rf, Math.round(rf.origin / g), g, maxLength) : null;
+  }
   // a severity table cut short by its own tail (xt.tailMass) only lowers the computed masses; 1 - sum reports it
   const sev = new Float64Array(Math.min(m + r.p.length, len + 1));
   const cut = Math.max(0, sev.length - m);

@@ -25,6 +25,8 @@ export function latticeNode(origin: number, step: number, pIn: ArrayLike<number>
   let pMax = 0;
   for (let k = 0; k < p.length; k++) pMax = Math.max(pMax, p[k]);
   const round = { pmf: rel * pMax * (1 + 2 * rel), l1: rel * (1 + 2 * rel) * (1 + p.length * Number.EPSILON) };
+  // and per entry, within rel of itself (./table-rounding.ts pointErrOf)
+  const pointErr = Float64Array.from(p, (v) => rel * v * (1 + 2 * rel));
   const xs = Float64Array.from(p, (_, k) => o + k * step);
   const base = atomsNode(xs, p);
   const atoms: Atom[] | null = p.length <= MAX_ATOMS ? mergeAtoms(Array.from(p, (v, k) => ({ x: xs[k], p: v }))) : null;
@@ -34,10 +36,10 @@ export function latticeNode(origin: number, step: number, pIn: ArrayLike<number>
     notes: [...(note ? [note] : []), ...(Math.abs(total - 1) > 1e-14 ? [`lattice probabilities summed to ${total}; normalised to 1`] : [])],
     kind: { type: "lattice", origin: o, step, atoms },
     table: (maxLength) => {
-      if (p.length <= maxLength) return { origin: o, step, p: p.slice(), tailMass: 0, round };
+      if (p.length <= maxLength) return { origin: o, step, p: p.slice(), tailMass: 0, round, pointErr };
       let tail = 0;
       for (let k = maxLength; k < p.length; k++) tail += p[k];
-      return { origin: o, step, p: p.slice(0, maxLength), tailMass: tail, round };
+      return { origin: o, step, p: p.slice(0, maxLength), tailMass: tail, round, pointErr: pointErr.slice(0, maxLength) };
     },
   };
   if (isCount) {

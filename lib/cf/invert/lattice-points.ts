@@ -11,7 +11,7 @@ const EPS = Number.EPSILON;
  * up to k) within sum_{j <= k} e_j + 2 eps F(k) (Higham, Accuracy and Stability of Numerical Algorithms, 2nd ed., sec.
  * 4.3: Kahan's sum within 2u + O(n u^2) of the sum of its non-negative terms), the sf (summed from the right) within
  * sum_{j > k} e_j + 2 eps S(k). The dropped mass: where it may lie at or below a point (anywhere, or below the origin:
- * tailBelow) the pmf and cdf there move by at most m; the sf answered with m added (not for tailBelow, whose sf misses
+ * tailBelow) the cdf there moves by at most m, and the pmf where it may lie at the point (not tailBelow's); the sf answered with m added (not for tailBelow, whose sf misses
  * nothing) is within m of the truth; none where the table says its dropped mass lies from tailFrom > 0 on, or past the
  * end of a recursion's table (pointRel). Past the table and below it the pmf is answered 0, the cdf 0 or 1 - m, the sf 1 or m.
  * Every bound at most the whole answer's (sol.errorPmf, sol.errorCdf).
@@ -50,7 +50,8 @@ export function tableEntryErrors(t: LatticeTable, e: Float64Array, xs: Float64Ar
       es = ec;
     } else {
       const here = from <= k ? m : 0;
-      ep = (onLattice ? e[Math.round(u)] * (1 + EPS) : 0) + (onLattice ? here : 0);
+      // (a reversed table's dropped mass lies below the origin: at no point of the table)
+      ep = onLattice ? e[Math.round(u)] * (1 + EPS) + (t.tailBelow ? 0 : here) : 0;
       ec = (pre[k + 1] * up + 2 * EPS * cdf[i] * up + here) * (1 + 2 * EPS);
       es = (suf[k + 1] * up + 2 * EPS * sf[i] * up + (t.tailBelow ? 0 : m)) * (1 + 4 * EPS);
     }
