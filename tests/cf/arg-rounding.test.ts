@@ -1,6 +1,8 @@
 import { describe, expect, it } from "vitest";
 import { cfValueErrors, tightestWithinBound } from "../support/cf-value-errors";
 import { compile } from "@/lib/cf/compile";
+import { quantiles } from "@/lib/cf/invert/quantile";
+import { density } from "@/lib/cf/invert/density";
 import { cfRelError, cfUlps, declaredCfError } from "@/lib/cf/invert/part";
 import { exactGrid, exactGridStep } from "@/lib/cf/arg-rounding";
 import type { Model } from "@/lib/cf/types";
@@ -183,5 +185,22 @@ describe("a scaled term without a first absolute moment says its argument roundi
   it("gamma scaled by 3, Cauchy scaled by 4 (exact): no note", () => {
     expect(noted({ scale: 3, of: { family: "gamma", shape: 2, rate: 1 } })).toBe(false);
     expect(noted({ scale: 4, of: { family: "cauchy", loc: 0, scale: 1 } })).toBe(false);
+  });
+});
+
+// The inversion's rounded nodes move the transform by at most u t_k times its Lipschitz constant, E|X - c| (common
+// practice: |d/dt E e^{it(X - c)}| <= E|X - c|). Without a bound on it (two-sided laws without a finite variance, or a
+// power-tail term subtracted from the part) that move is left out, and the answer must say so; a light sum keeps it.
+describe("an inversion whose part has no derived Lipschitz constant says its node rounding is left out", () => {
+  const said = (r: { diagnostics: { notes: string[] } }) => r.diagnostics.notes.some((n) => /frequency nodes are not exact doubles/.test(n));
+  const heavy: unknown = { sum: [{ family: "stable", alpha: 1.216, beta: 0.588, scale: 1, loc: 0, param: "S1" }, { family: "student_t", nu: 5.6, loc: 0, scale: 1 }] };
+  const light: unknown = { sum: [{ family: "gamma", shape: 2, rate: 1 }, { family: "normal", mu: 0, sigma: 1 }] };
+  it("stable(1.216) + Student t: noted by the quantiles and the density", () => {
+    expect(said(quantiles(compile(heavy as Model), [0.01, 0.5, 0.99]))).toBe(true);
+    expect(said(density(compile(heavy as Model), { x: [0, 1, 2] }))).toBe(true);
+  });
+  it("gamma + normal: no note", () => {
+    expect(said(quantiles(compile(light as Model), [0.01, 0.5, 0.99]))).toBe(false);
+    expect(said(density(compile(light as Model), { x: [0, 1, 2] }))).toBe(false);
   });
 });

@@ -2,6 +2,7 @@ import type { Atom, CompiledModel } from "../types";
 import { fitEndpointKernels, jumpKernels } from "./endpoint";
 import { buildNodes, cutoffFor, probeEnvelope, truncationAt, type Envelope } from "./nodes";
 import { makePart, withKernels, type ContinuousPart, type EndpointKernels } from "./part";
+import { nodeRoundingNotes } from "./grid-rounding";
 import { sumPointwise } from "./pointwise";
 import { heavyWindow, lawShape, lightWindow, type LawShape } from "./range";
 import { gammaPdf } from "./incgamma";
@@ -137,6 +138,7 @@ export function invertContinuous(model: CompiledModel, atoms: Atom[], req: Reque
     if (part.tail) notes.push(`the heaviest-tailed term, shifted by the other terms' mean, is evaluated directly and only the rest is inverted (its tails have index ${alpha.toPrecision(3)})`);
   }
   ({ part, env } = maybeKernels(part, env, shape, win, truncTarget, opt.wantPdf, notes));
+  notes.push(...nodeRoundingNotes(part));
   // an envelope falling only like 1/t (a derived one for a density with jumps, where no kernels took them out) bounds no
   // pdf truncation at any cut-off: the cdf's target alone sets it (the pdf's bound is then infinite, as stated)
   const pdfTarget = opt.wantPdf && Number.isFinite(env.tailPdf[0]) ? truncTarget : Infinity;

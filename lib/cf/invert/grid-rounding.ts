@@ -38,6 +38,19 @@ export function absMomentAbout(model: CompiledModel, c: number): number {
 }
 
 /**
+ * Said with an answer whose inverted part has no derived Lipschitz constant (partLipschitz NaN: a law without a finite
+ * variance on both sides, or a subtracted power-tail term): the rounded nodes' move is then left out of the bounds
+ * (`nodeMoves`, `roundingOf`) wherever the nodes are not exact doubles (the FFT's, the heavy route's).
+ */
+export const NODE_ROUNDING_NOTE =
+  "where the inversion's frequency nodes are not exact doubles, their rounding (2^-53 of each frequency) moves the transform by an amount not derived for this law (no bound on E|X - c| is known without a finite variance on both sides, or with a power-tail term subtracted) and left out of the error bounds";
+
+/** the note when the part's Lipschitz constant is not derived */
+export function nodeRoundingNotes(part: ContinuousPart): string[] {
+  return Number.isFinite(partLipschitz(part)) ? [] : [NODE_ROUNDING_NOTE];
+}
+
+/**
  * The undamped part phi_part(t) = [(phi - sum atoms) / w - kernels - phi_G] e^{-i t c} (./part.ts evalPart, all at the same
  * t): its derivative is at most (E|X - c| + sum p_j |x_j - c|) / w + sum |b| E|G_k - c| (+ E|G - c| for the tail term,
  * not derived here: NaN). Kernel k is Gamma(power + j, rate) on the side of `at`: E|G - c| <= |at - c| + (power + j) / rate.

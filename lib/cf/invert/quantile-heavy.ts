@@ -1,5 +1,6 @@
 // Quantiles and expected shortfall of laws with power tails: the period-doubling ladder with its derived (or estimated)
 // bounds, the levels solved on it, and the shortfall from its stop-loss sums (./quantile.ts dispatches here).
+import { nodeRoundingNotes } from "./grid-rounding";
 import type { Atom, CompiledModel } from "../types";
 import { evalLadder, growLadder, heavyLadder, type HeavyLadder } from "./continuous";
 import { atomMass } from "./shared";
@@ -128,6 +129,7 @@ function heavyQuantilesAt(
   };
   for (const x of probes) ev.eval(x);
   ev.errCdf = 2 * seenErr + 4 * Number.EPSILON;
+  notes.push(...nodeRoundingNotes(lad.part));
   notes.push(
     lad.top && lad.levels.length === 0
       ? `power tails: period T = ${T0.toPrecision(4)} doubled ${lad.top.l} times, the last period's sums with the derived bound of the images left`
