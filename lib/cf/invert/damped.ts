@@ -9,6 +9,7 @@ import { densityBeyondWindow, imageLimit, imageMoments, imageTail } from "./damp
 import { scratch, type ScratchSlot } from "../damped-scratch";
 import { slopeNumerator } from "./damped-slope";
 import { addGridNoise } from "./grid-rounding";
+import { cabs } from "../complex";
 
 export { dampedPlan, type DampedPlan } from "./damped-transform";
 export { dampedAt, dampedGrid, gridPeriod, type DampedPoint } from "./damped-eval";
@@ -186,33 +187,7 @@ export function dampedSetup(model: CompiledModel, atoms: Atom[], R: number, o: D
   const wantInt = o.wantInt ?? true;
   const iRe = wantInt ? keep("solIRe", K) : EMPTY;
   const iIm = wantInt ? keep("solIIm", K) : EMPTY;
-  let absP = 0;
-  let absC = 0;
-  let absI = 0;
-  let nP = 0;
-  let nC = 0;
-  let nI = 0;
-  for (let k = 0; k < K; k++) {
-    // 1 / (beta - i t) = (beta + i t) / (beta^2 + t^2)
-    const d = beta * beta + t[k] * t[k];
-    const ur = beta / d;
-    const ui = t[k] / d;
-    cRe[k] = pRe[k] * ur - pIm[k] * ui;
-    cIm[k] = pRe[k] * ui + pIm[k] * ur;
-    if (wantInt) {
-      iRe[k] = cRe[k] * ur - cIm[k] * ui;
-      iIm[k] = cRe[k] * ui + cIm[k] * ur;
-    }
-    // |psi_k| by the square root (a few ulps; the allowances carry far more), hypot only where the squares could underflow
-    const s2 = pRe[k] * pRe[k] + pIm[k] * pIm[k];
-    const a = s2 > 1e-290 ? Math.sqrt(s2) * (1 + 4 * EPS) : Math.hypot(pRe[k], pIm[k]);
-    absP += a;
-    absC += a / Math.sqrt(d);
-    absI += a / d;
-    nP += nz[k];
-    nC += nz[k] / Math.sqrt(d);
-    nI += nz[k] / d;
-  }
+  const { absP, absC, absI, nP, nC, nI } = coefficients(beta, K, t, pRe, pIm, nz, cRe, cIm, wantInt ? iRe : null, wantInt ? iIm : null);
   // the terms k >= K: |c_k| <= E(t_k) / t_k with E(t)/t non-increasing, so (h/pi) sum_{k >= K} E(t_k)/t_k is at most
   // (1/pi) int_{(K - 1/2) h}^inf E/t (each term below the integral over its node's cell), the envelope's tail interpolated
   // to that cut-off (likewise E for the density, and E/t^2 <= E/(t (K - 1/2) h) for the integral); it was twice the tail
@@ -330,4 +305,53 @@ export function dampedSetup(model: CompiledModel, atoms: Atom[], R: number, o: D
     scaleP: (h / Math.PI) * absP,
     notes,
   };
+}
+
+/**
+ * The cdf's and the integrated cdf's coefficients c_k = psi_k / (beta - i t_k), i_k = c_k / (beta - i t_k) (i only where
+ * asked), and the sums of |psi_k|, |c_k|, |i_k| and of the noise likewise weighted. A function of its own, so the loop is
+ * optimised with its own type feedback (inside dampedSetup, code past it not yet run sent it back to the interpreter).
+ */
+function coefficients(
+  beta: number,
+  K: number,
+  t: Float64Array,
+  pRe: Float64Array,
+  pIm: Float64Array,
+  nz: Float64Array,
+  cRe: Float64Array,
+  cIm: Float64Array,
+  iRe: Float64Array | null,
+  iIm: Float64Array | null,
+): { absP: number; absC: number; absI: number; nP: number; nC: number; nI: number } {
+  let absP = 0;
+  let absC = 0;
+  let absI = 0;
+  let nP = 0;
+  let nC = 0;
+  let nI = 0;
+  for (let k = 0; k < K; k++) {
+    // 1 / (beta - i t) = (beta + i t) / (beta^2 + t^2)
+    const d = beta * beta + t[k] * t[k];
+    const ur = beta / d;
+    const ui = t[k] / d;
+    const cr = pRe[k] * ur - pIm[k] * ui;
+    const ci = pRe[k] * ui + pIm[k] * ur;
+    cRe[k] = cr;
+    cIm[k] = ci;
+    if (iRe && iIm) {
+      iRe[k] = cr * ur - ci * ui;
+      iIm[k] = cr * ui + ci * ur;
+    }
+    // |psi_k| by the square root (a few ulps; the allowances carry far more), scaled only where the squares could underflow
+    const a = cabs(pRe[k], pIm[k]) * (1 + 4 * EPS);
+    const sd = Math.sqrt(d);
+    absP += a;
+    absC += a / sd;
+    absI += a / d;
+    nP += nz[k];
+    nC += nz[k] / sd;
+    nI += nz[k] / d;
+  }
+  return { absP, absC, absI, nP, nC, nI };
 }

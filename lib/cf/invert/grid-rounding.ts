@@ -130,7 +130,9 @@ export function addGridNoise(
   const errD = S > 0 ? model.cfArgErrDampedAt : undefined;
   const errOn = errD ? model.cfArgErrDampedOn : undefined;
   if (!slope && S === 0) return;
+  // (the envelope's arrays read once: envelopes of several shapes met in the loop sent it back to the interpreter)
   const et = env?.t;
+  const ev = env?.env;
   const n = t.length;
   // the slope bound holds past t (1 - 2u) and does not increase, so the value at a run's first node serves the run's later
   // nodes, and the model's error bound over the run (cfArgErrDampedOn) serves each of them: both are taken afresh once t
@@ -168,7 +170,7 @@ export function addGridNoise(
         const lo = t[k] * (1 - 2 * U);
         while (i + 1 < et.length && et[i + 1] <= lo) i++;
         // inside the probed range only (past the last probe the envelope is a fitted tail)
-        if (et[0] <= lo && i + 1 < et.length) move = Math.min(move, (cabs(re[k], im[k]) * (1 + 4 * EPS) + noise[k] + env!.env[i]) * (1 + 4 * EPS));
+        if (et[0] <= lo && i + 1 < et.length) move = Math.min(move, (cabs(re[k], im[k]) * (1 + 4 * EPS) + noise[k] + ev![i]) * (1 + 4 * EPS));
       }
       noise[k] += move;
     }

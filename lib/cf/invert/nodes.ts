@@ -171,8 +171,9 @@ export function envelopeOf(t: Float64Array, mag: Float64Array, nf: (t: number, i
 
 /** Smallest probed frequency beyond which the truncation bounds fall below the targets (Infinity if none). */
 export function cutoffFor(e: Envelope, targetPdf: number, targetCdf: number): number {
-  for (let i = 0; i < e.t.length; i++) {
-    if (e.tailCdf[i] <= targetCdf && e.tailPdf[i] <= targetPdf) return e.t[i];
+  const { t, tailCdf, tailPdf } = e;
+  for (let i = 0; i < t.length; i++) {
+    if (tailCdf[i] <= targetCdf && tailPdf[i] <= targetPdf) return t[i];
   }
   // unattainable (rounding floor of atom subtraction): the cut-off with the smallest bound, if it is finite
   let best = -1;
