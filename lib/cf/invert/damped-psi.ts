@@ -163,6 +163,33 @@ export const DAMPED_SAMPLED_NOTE =
 
 const probeKey = (beta: number, pairOut: boolean, atoms: Atom[], derived: boolean) => `${beta}|${pairOut}|${atoms.length}|${derived}`;
 
+/**
+ * the transform's samples at a probe (psi, its noise, |phi| of the severity), per compiled model and damping: the derived
+ * probe and the samples' one (the plan's fallback, dampedPlan) at the same damping share them; each probe takes copies
+ */
+type Samples = { pr: Float64Array; pi: Float64Array; nz: Float64Array; phi: Float64Array | null };
+const SAMPLES = new WeakMap<CompiledModel, Map<string, Samples>>();
+const sampleKey = (beta: number, pairOut: boolean, atoms: Atom[]) => `${beta}|${pairOut}|${atoms.length}`;
+function samplesOf(model: CompiledModel, atoms: Atom[], beta: number, pairOut: boolean): Samples | undefined {
+  return SAMPLES.get(model)?.get(sampleKey(beta, pairOut, atoms));
+}
+function keepSamples(model: CompiledModel, atoms: Atom[], beta: number, pairOut: boolean, s: Samples): void {
+  let memo = SAMPLES.get(model);
+  if (!memo) SAMPLES.set(model, (memo = new Map()));
+  if (memo.size >= MAX_PROBES) memo.clear();
+  memo.set(sampleKey(beta, pairOut, atoms), { pr: s.pr.slice(), pi: s.pi.slice(), nz: s.nz.slice(), phi: s.phi ? s.phi.slice() : null });
+}
+/** the kept samples copied into the probe's arrays (false: none kept) */
+function takeSamples(model: CompiledModel, atoms: Atom[], beta: number, pairOut: boolean, out: Samples): boolean {
+  const s = samplesOf(model, atoms, beta, pairOut);
+  if (!s || !!s.phi !== !!out.phi) return false;
+  out.pr.set(s.pr);
+  out.pi.set(s.pi);
+  out.nz.set(s.nz);
+  if (s.phi) out.phi!.set(s.phi);
+  return true;
+}
+
 function probeAt(model: CompiledModel, atoms: Atom[], beta: number, pairOut: boolean, memo: Map<string, Probed>, derived: boolean) {
   const tp = probeFrequencies(Math.max(model.scale, 1e-300));
   const n = tp.length;
@@ -176,7 +203,12 @@ function probeAt(model: CompiledModel, atoms: Atom[], beta: number, pairOut: boo
   if (sev?.count && model.support[0] === 0 && w2 > 0) {
     const other = { w2: pairOut ? 0 : w2, re: new Float64Array(n), im: new Float64Array(n), noise: new Float64Array(n) };
     const phi = new Float64Array(n);
-    severityPsi(sev, sev.count, atoms, beta, pairOut ? w2 : 0, true)(tp, pr, pi, nz, other, phi);
+    const phi2 = new Float64Array(n);
+    if (!takeSamples(model, atoms, beta, pairOut, { pr, pi, nz, phi }) || !takeSamples(model, atoms, beta, !pairOut, { pr: other.re, pi: other.im, nz: other.noise, phi: phi2 })) {
+      severityPsi(sev, sev.count, atoms, beta, pairOut ? w2 : 0, true)(tp, pr, pi, nz, other, phi);
+      keepSamples(model, atoms, beta, pairOut, { pr, pi, nz, phi });
+      keepSamples(model, atoms, beta, !pairOut, { pr: other.re, pi: other.im, nz: other.noise, phi });
+    }
     // the bounds on phi serve both remainders (the same transform values) and, kept with the probe, its slope envelope
     const pb = derived && atoms.every((a) => a.x === 0) ? phiBounds(sev, beta, tp, phi) : null;
     memo.set(probeKey(beta, !pairOut, atoms, derived), envelopeFrom(tp, other.re, other.im, other.noise, phi, pb && derivedFloor(sev.count, pb, !pairOut), pb));
@@ -184,11 +216,17 @@ function probeAt(model: CompiledModel, atoms: Atom[], beta: number, pairOut: boo
   }
   if (sev?.count && model.support[0] === 0) {
     const phi = new Float64Array(n);
-    severityPsi(sev, sev.count, atoms, beta, pairOut ? w2 : 0, true)(tp, pr, pi, nz, undefined, phi);
+    if (!takeSamples(model, atoms, beta, pairOut, { pr, pi, nz, phi })) {
+      severityPsi(sev, sev.count, atoms, beta, pairOut ? w2 : 0, true)(tp, pr, pi, nz, undefined, phi);
+      keepSamples(model, atoms, beta, pairOut, { pr, pi, nz, phi });
+    }
     const pb = derived && atoms.every((a) => a.x === 0) ? phiBounds(sev, beta, tp, phi) : null;
     return envelopeFrom(tp, pr, pi, nz, phi, pb && derivedFloor(sev.count, pb, pairOut && w2 > 0), pb);
   }
-  psiOf(model, atoms, beta, pairOut, true)(tp, pr, pi, nz);
+  if (!takeSamples(model, atoms, beta, pairOut, { pr, pi, nz, phi: null })) {
+    psiOf(model, atoms, beta, pairOut, true)(tp, pr, pi, nz);
+    keepSamples(model, atoms, beta, pairOut, { pr, pi, nz, phi: null });
+  }
   // the model's own bound on what is left after its atoms at 0 and kernels (a compound of gamma claims), non-increasing
   const rb = model.dampedRemainderBound;
   // (relative to lo, as psiOf takes it: a shifted compound's remainder is the compound's own, ../kernel-carry.ts)
