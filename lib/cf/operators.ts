@@ -114,7 +114,9 @@ export function scaleNode(a: number, c: Node): Node {
     momentIndex: c.momentIndex,
     tails: a > 0 ? c.tails : { left: c.tails.right, right: c.tails.left },
     powerIndices: c.powerIndices,
-    nodes: 1 + c.nodes,
+    // (nodes counts the tree's rounding nodes, 8 units each in the log-CF's bound: scaling t by a power of 2 and negating
+    // the imaginary part round nothing, so such a scale adds none)
+    nodes: (aa === 2 ** Math.round(Math.log2(aa)) ? 0 : 1) + c.nodes,
     get notes() {
       // the rounding of a t moves phi(a t) by up to u |a t| E|X|: without a first absolute moment (Cauchy, stable alpha <= 1,
       // pareto alpha <= 1) no such bound is derived, and the answer says so rather than take it as 0

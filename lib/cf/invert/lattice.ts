@@ -109,7 +109,8 @@ export function solveLattice(model: CompiledModel, origin: number, step: number,
  *    (the sum), only by u |t_j r| + |t_j| d when m = 0 (M = k0); cos and sin within an ulp each, and the complex product
  *    2 sqrt(2) u (Higham sec. 3.6): 6 u beside the angle's error, all times |phi^_j|; plus the CF's own declared error
  *    and the rounding of its value from the log-CF (cfRelError, ./part.ts: the model's units of rounding relative to
- *    1 + |L|, exp, cos and sin of L).
+ *    1 + |L|, exp, cos and sin of L); at t_0 = 0 the exact input is phi(0) = 1, so its error is the computed input's
+ *    distance from 1 (found exactly), where smaller.
  * The transform: Higham sec. 24.1, Thm 24.2 (radix 2, twiddles off by at most mu), ||y^ - y||_2 <= log2(N) eta ||y||_2 /
  * (1 - log2(N) eta), eta = mu + gamma_4 (sqrt(2) + mu); fft.js (radix 4, each stage the work of two radix-2 levels,
  * twiddles from Math.cos/sin of 2 pi k/N, mu <= (2 pi + 2) u) gives eta <= 16 u; per output, the levels' errors are at
@@ -198,7 +199,9 @@ function latticeByFft(model: CompiledModel, origin: number, step: number, k0: nu
     inp[2 * j] = re[j] * c - im[j] * s;
     inp[2 * j + 1] = re[j] * s + im[j] * c;
     const tj = Math.abs(t[j]);
-    const e = v.e * tj + mag[j] * (v.a * tj + v.b + cfRel + valRel[j]) + cfAbs;
+    const e0 = v.e * tj + mag[j] * (v.a * tj + v.b + cfRel + valRel[j]) + cfAbs;
+    // at t = 0 the exact input is phi(0) = 1: its error is what was computed there (inp - 1 exact in [1/2, 2], Sterbenz)
+    const e = j === 0 && inp[0] >= 0.5 && inp[0] <= 2 ? Math.min(e0, (Math.abs(inp[0] - 1) + Math.abs(inp[1])) * (1 + Number.EPSILON)) : e0;
     const x = mag[j] * (1 + 6 * u);
     sumE += e;
     sumE2 += e * e;
