@@ -33,7 +33,8 @@ export function compoundTable(N: Node, X: Node, kind: { step: number }, maxLengt
   len = Math.min(maxLength, Math.max(len, 1));
   // g_k depends on the severity only up to index k, so a severity table truncated beyond len is exact here
   const xt = X.table!(len + 1);
-  if (!xt) return null;
+  // (a severity table whose dropped mass may lie below it, a reversed one's: the tables below place it past their end)
+  if (!xt || (xt.tailMass > 0 && (xt.tailBelow || !Number.isFinite(X.support[0])))) return null;
   const r = restep(xt, g);
   const m = Math.round(r.origin / g);
   // (the severity's first entry sits at index m of sev; below it zeros)

@@ -1,6 +1,8 @@
 // Convolution of tabulated lattice laws (direct and FFT with zero padding), n-fold powers, Panjer recursion and
 // latticeTable of compiled models, against exact rationals and brute-force definitions.
 import gammainc from "@stdlib/math-base-special-gammainc";
+import erfc from "@stdlib/math-base-special-erfc";
+import { density } from "@/lib/cf/invert/density";
 import { afterAll, describe, expect, it } from "vitest";
 import { compile, convolve, convolveDirect, convolveFft, convolveTables, powerTable, panjer, CfError } from "@/lib/cf";
 import { close, record, worst } from "./model-assert";
@@ -413,5 +415,18 @@ describe("reflected lattice laws: the reversed table keeps its dropped mass belo
     expect(t.tailMass).toBeGreaterThan(0);
     expect(t.tailMass).toBeLessThanOrEqual(t.p[0] * (3 / (n - 3)) * 1.01);
     expect(() => compile({ layer: { deductible: -5, limit: 3 }, of: { scale: -1, of: { family: "poisson", lambda: 3 } } } as never)).toThrow(CfError);
+  });
+  it("0.5 normal(0, 1) + 0.5 (-Poisson(3)): the reflected atoms listed from the table, cdf = 0.5 Phi(x) + 0.5 P(N >= -x) (erfc, regularised incomplete gamma)", () => {
+    const r = density(compile({ mix: [{ weight: 0.5, of: { family: "normal", mu: 0, sigma: 1 } }, { weight: 0.5, of: { scale: -1, of: { family: "poisson", lambda: 3 } } }] }), { x: [-10, -3, -0.5, 0, 2] });
+    r.x.forEach((x, i) => {
+      // P(N >= k) = P(k, 3), the lower regularised incomplete gamma (JKK ch. 4), k = ceil(-x) >= 1; 1 for k <= 0
+      const k = Math.ceil(-x);
+      const tail = k <= 0 ? 1 : gammainc(3, k);
+      const want = 0.5 * (0.5 * erfc(-x / Math.SQRT2)) + 0.5 * tail;
+      const bound = r.diagnostics.pointError ? r.diagnostics.pointError.cdf[i] : r.diagnostics.error.cdf;
+      expect(bound).toBeLessThan(1e-9);
+      // (the references within a few ulps of their values)
+      expect(Math.abs(r.cdf[i] - want)).toBeLessThanOrEqual(bound + 1e-15 * want);
+    });
   });
 });
