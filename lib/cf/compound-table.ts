@@ -4,12 +4,13 @@
 import type { Node } from "./node";
 import { onLattice, powerTable, restep, convolveTables } from "./lattice";
 import { panjerRun, type PanjerInputErrors } from "./panjer";
-import { roundOf, type TableRound } from "./table-rounding";
+import { pointErrOf, roundOf, type TableRound } from "./table-rounding";
 import type { LatticeTable } from "./types";
 import { checkDeadline } from "./deadline";
 import { MAX_LATTICE } from "./limits";
 import { countSlope } from "./compound-fft-round";
 import { signedCompoundTable } from "./compound-table-signed";
+import { compoundTailBound, restBound } from "./compound-tail";
 
 const U = Number.EPSILON / 2;
 
@@ -79,7 +80,12 @@ export function compoundTable(N: Node, X: Node, kind: { step: number }, maxLengt
         // (each entry within its running bound plus the severity's shift, which round sums up; kept per entry too. The
         // recursion gives every entry below len: the dropped mass lies past the table, tailFrom)
         const pointErr = round && shift && run.err ? Float64Array.from(run.err, (e) => (e + shift.pmf) * (1 + Number.EPSILON)) : null;
-        return { origin: 0, step: g, p, tailMass: Math.max(0, 1 - s), tailFrom: p.length, ...(round && shift ? { round: { pmf: round.pmf + shift.pmf, l1: round.l1 + shift.l1 } } : {}), ...(pointErr ? { pointErr } : {}) };
+        // the dropped mass: from a whole severity, the smaller of the Chernoff bound (./compound-tail.ts) and 1 - sum widened
+        // by its rounding and the entries' bound (restBound): 1 - sum alone is mostly the entries' rounding once the table
+        // reaches far into the tail; else 1 - sum as computed
+        const chern = xt.tailMass === 0 && m + r.p.length <= sev.length ? severityTail(N, r, roundOf(xt), m, sev, p.length) : Infinity;
+        const tail = Number.isFinite(chern) ? Math.min(chern, round && shift ? restBound(p, round.l1 + shift.l1) : Infinity) : Math.max(0, 1 - s);
+        return { origin: 0, step: g, p, tailMass: tail, tailFrom: p.length, ...(round && shift ? { round: { pmf: round.pmf + shift.pmf, l1: round.l1 + shift.l1 } } : {}), ...(pointErr ? { pointErr } : {}) };
       }
       // P(S = 0) underflows (large expected counts): run the recursion for the count divided into 2^m equal
       // independent parts and take the 2^m-fold power (Loss Models, aggregate loss chapter; recalled from memory)
@@ -255,4 +261,13 @@ function roundOfErrors(err: Float64Array): TableRound {
     l1 += err[k];
   }
   return { pmf, l1: l1 * (1 + err.length * Number.EPSILON) };
+}
+
+/** the Chernoff bound on P(S >= L g) with the severity's per-entry bounds (or its whole-table one per entry) aligned to sev */
+function severityTail(N: Node, r: LatticeTable, whole: TableRound | null, m: number, sev: Float64Array, L: number): number {
+  const pe = pointErrOf(r);
+  if (!pe && !whole) return Infinity;
+  const err = new Float64Array(sev.length);
+  for (let j = 0; j < r.p.length && m + j < err.length; j++) err[m + j] = pe ? pe[j] : whole!.pmf;
+  return compoundTailBound(N, sev, err, L);
 }

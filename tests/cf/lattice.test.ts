@@ -2,6 +2,7 @@
 // latticeTable of compiled models, against exact rationals and brute-force definitions.
 import gammainc from "@stdlib/math-base-special-gammainc";
 import erfc from "@stdlib/math-base-special-erfc";
+import betainc from "@stdlib/math-base-special-betainc";
 import { density } from "@/lib/cf/invert/density";
 import { afterAll, describe, expect, it } from "vitest";
 import { compile, convolve, convolveDirect, convolveFft, convolveTables, powerTable, panjer, CfError } from "@/lib/cf";
@@ -429,4 +430,20 @@ describe("reflected lattice laws: the reversed table keeps its dropped mass belo
       expect(Math.abs(r.cdf[i] - want)).toBeLessThanOrEqual(bound + 1e-15 * want);
     });
   });
+});
+
+describe("the mass a compound's Panjer table leaves past its end: a Chernoff bound from a whole severity", () => {
+  // with one claim size 1 the compound is its count: P(S >= L) = I_{1-p}(L, r) for NB(r, p) (JKK ch. 5; regularised
+  // incomplete beta) and P(L, lambda) for Poisson(lambda) (JKK ch. 4; regularised lower incomplete gamma)
+  for (const [label, count, tail] of [
+    ["NB(3, 0.4)", { family: "negative_binomial", r: 3, p: 0.4 }, (L: number) => betainc(0.6, L, 3)],
+    ["Poisson(3)", { family: "poisson", lambda: 3 }, (L: number) => gammainc(3, L)],
+  ] as const) {
+    it(`${label} of a claim of 1: the table's tailMass bounds P(S >= L) and stays far below the entries' rounding`, () => {
+      const t = compile({ compound: { count, each: { lattice: { origin: 1, step: 1, p: [1] } } } } as never).latticeTable!(1 << 20)!;
+      const L = t.origin + t.p.length;
+      expect(t.tailMass).toBeGreaterThanOrEqual(tail(L));
+      expect(t.tailMass).toBeLessThan(1e-20);
+    });
+  }
 });
