@@ -115,22 +115,38 @@ export function heavyShortfall(
   const absSums: number[] = [];
   const phaseSums: number[] = [];
   const driftSums: number[] = [];
+  // the node values' own errors, weighted as the sum weighs them, sum_k (e_k + a) / t_k^2: e_k the CF value's error at
+  // node k (./nodes.ts cfErrAt: its relative errors on |phi|), a the part's declared absolute error and the subtractions'
+  // rounding at every node (as ./grid-rounding.ts nodeMoves' abs0). They were left out of the level's rounding.
+  const errSums: number[] = [];
+  let pa = 0;
+  for (const a of part.atoms) pa += a.p;
+  let kb = 0;
+  for (const k of part.kernels) for (const b of k.b) kb += Math.abs(b);
   const absAt = (lev: number) => {
     if (absSums[lev] === undefined) {
       const nd = nodesAt(lev);
+      const ek = nd.cfErrAt;
+      const perNode =
+        ((Math.max(part.cfAbsError - (nd.cfRelTaken ?? 0), 0) + 16 * Number.EPSILON * (1 + pa + kb)) / part.weight) * (1 + 4 * Number.EPSILON);
       let a = 0;
       let b = 0;
       let d = 0;
+      let e = 0;
       for (let k = 0; k < nd.K; k++) {
         const tk = (k + 0.5) * nd.h;
         const m = cabs(nd.re[k], nd.im[k]) / tk;
         a += m / tk;
         b += m;
         d += (k & 63) * (m / tk);
+        // without per-node errors (nodes built elsewhere), the CF's 64 units on |phi_k| as roundingOf assumes
+        e += ((ek ? ek[k] : 64 * Number.EPSILON * cabs(nd.re[k], nd.im[k])) + perNode) / (tk * tk);
       }
+      const g = 1 + (nd.K + 4) * Number.EPSILON;
       absSums[lev] = a * (1 + 4 * Number.EPSILON);
       phaseSums[lev] = b * (1 + 4 * Number.EPSILON);
       driftSums[lev] = d * (1 + 4 * Number.EPSILON);
+      errSums[lev] = e * g;
     }
     return absSums[lev];
   };
@@ -178,7 +194,8 @@ export function heavyShortfall(
     // V = mass T/2 - (2h/pi) acc rounds once more (u of each part).
     const rel = (Number.EPSILON / 2) * (9 + 66 + 3 + K * Number.EPSILON);
     const phase = (Number.EPSILON / 2) * (3 * Math.abs(y) * phaseSums[lev] + 6 * driftSums[lev]) * ((2 * h) / Math.PI);
-    const sumRound = rel * ((2 * h * abs) / Math.PI) + phase + (Number.EPSILON / 2) * ((part.mass * T) / 2 + Math.abs((2 * h * acc) / Math.PI));
+    const values = ((2 * h * errSums[lev]) / Math.PI) * (1 + 4 * Number.EPSILON);
+    const sumRound = rel * ((2 * h * abs) / Math.PI) + phase + (Number.EPSILON / 2) * ((part.mass * T) / 2 + Math.abs((2 * h * acc) / Math.PI)) + values;
     return { T, v, imErr, sumRound };
   };
   // the level's derived bound (and, with G's second-order term kappa_2 sum_m (-1)^m [f_G(q + mT) + f_G(q - mT)] taken out,
