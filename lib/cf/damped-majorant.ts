@@ -3,6 +3,7 @@ import type { DampedLogCf } from "./damped-cf";
 import { lognormalDampedBounds } from "./lognormal-majorant";
 import { pgfBounds } from "./count-pgf";
 import { decreasingDensityModulus } from "./families/log-round";
+import { weibullDampedMajorant } from "./weibull-majorant";
 import type { Claims, KernelRest } from "./damped-kernel-rest";
 import type { LatticeTable } from "./types";
 
@@ -16,6 +17,8 @@ const EPS = Number.EPSILON;
  * is bounded from these instead of sampled sizes (./invert/damped-psi.ts). Valid only with the dampedLogCf named here.
  *  - gamma(k, rho): E e^{(i t - beta) X} = (rho / (rho + beta - i t))^k (JKB vol. 1, ch. 17), derivative i k / (rho + beta - i t) times it;
  *  - lognormal: the bounds of every order from the density's derivatives (./lognormal-majorant.ts);
+ *  - weibull: by parts from the density (its singularity at 0 split off for shapes below 1) and along a rotated ray
+ *    (./weibull-majorant.ts);
  *  - a compound of such claims (no atom, support from 0): the part past 0 is P_N(phi) - p_0 = sum_{n >= 1} p_n phi^n, at most
  *    sum_{n >= 1} p_n m^n = P_N(m) - p_0 and (1 - p_0) m for |phi| <= m <= 1 (the count's pgf at m from its cumulant
  *    function, within its stated errors); its derivative P_N'(phi) phi' is at most P_N'(m) m' with P_N'(m) <= E N and the
@@ -88,6 +91,10 @@ export function familyDampedMajorant(family: string, p: Record<string, number>, 
   }
   if (family === "pareto" || family === "lomax") {
     const m = lomaxDampedMajorant(p.alpha, family === "pareto" ? p.xm : p.theta);
+    return m ? { cf, ...m } : undefined;
+  }
+  if (family === "weibull") {
+    const m = weibullDampedMajorant(p.shape, p.scale);
     return m ? { cf, ...m } : undefined;
   }
   if (family === "lognormal") {
