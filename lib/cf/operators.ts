@@ -1,7 +1,7 @@
 import { scaleDamped, shiftDamped, sumDamped } from "./damped-cf";
 import { scaledLogRound, shiftedLogRound, summedLogRound } from "./families/log-round";
 import { carryScaleKernels, carryShiftKernels, carrySumKernels } from "./kernel-carry";
-import { sumDampedRemainder } from "./sum-remainder";
+import { carryScaleRemainder, carryShiftRemainder, sumDampedRemainder } from "./sum-remainder";
 import { sumKernelRest } from "./damped-kernel-rest";
 import { scaleDampedMajorant, shiftDampedMajorant, sumDampedMajorant } from "./damped-majorant";
 import type { Node, NodeKind } from "./node";
@@ -146,6 +146,7 @@ export function scaleNode(a: number, c: Node): Node {
   carryScaleErrors(node, a, c);
   carryScaleKernels(node, a, c);
   node.dampedMajorant = scaleDampedMajorant(node, a, c);
+  carryScaleRemainder(node, a, c);
   if (c.table && c.kind.type === "lattice") {
     node.table = (maxLength) => {
       const tab = c.table!(maxLength);
@@ -211,6 +212,7 @@ export function shiftNode(b: number, c: Node): Node {
   carryShiftErrors(node, b, c);
   carryShiftKernels(node, b, c);
   node.dampedMajorant = shiftDampedMajorant(node, c);
+  carryShiftRemainder(node, b, c);
   if (c.table && c.kind.type === "lattice") {
     node.table = (maxLength) => {
       const tab = c.table!(maxLength);

@@ -157,25 +157,66 @@ function ofSumOrder(fs: Factor[], kernels: readonly GammaKernel[], r: number, L:
   return { bound, decay };
 }
 
+/** the endpoint remainders of scaled and shifted terms (carryScaleRemainder, carryShiftRemainder), by node */
+const MOVED = new WeakMap<Node, EndpointRemainder>();
+
 /**
- * A sum's node.dampedRemainder where every term is a law with a derived endpoint remainder (pareto, lomax, weibull, Burr, or
- * an exact gamma term) and the sum has kernels; else null
+ * A term's endpoint expansion with its derived remainder: the family's own (pareto, lomax, weibull, Burr: the expansion the
+ * node declares), an exact gamma term's binomial series, or a scaled or shifted one's; else null
+ */
+function remainderOf(c: Node): EndpointRemainder | null {
+  if (c.kind.type !== "continuous" || !c.dampedLogCf) return null;
+  const er = c.endpointRemainder;
+  if (er && er.series === c.laplaceExpansion) return er;
+  const m = c.dampedMajorant && c.dampedMajorant.cf === c.dampedLogCf ? c.dampedMajorant : undefined;
+  if (m?.gamma && c.laplaceExpansion) return gammaEndpointRemainder(m.gamma.shape, m.gamma.rate, c.laplaceExpansion);
+  return MOVED.get(c) ?? null;
+}
+
+/**
+ * a X (a > 0): E e^{-s a X} = phi_X(a s) = e^{-s a at} (sum_j c_j a^{-p_j} s^{-p_j} + R_X(a s)), so the coefficients c_j
+ * a^{-p_j} (exp(-p_j log a): within (3 + 2 |p_j log a|) eps, the child's coefficient error and its exponent's within
+ * |log a| d, a^{-p} moving by e^{|log a| d}) and rho(beta, t) = rho_X(a beta, a t), taken below the rounded arguments (rho_X
+ * is non-increasing in both). Only where fl(a at) is the node's lower end and exact (at = 0, or a a power of 2).
+ */
+export function carryScaleRemainder(node: Node, a: number, c: Node) {
+  const er = remainderOf(c);
+  if (!er || !(a > 0) || !Number.isFinite(a) || !node.dampedLogCf) return;
+  const s = er.series;
+  if (!(s.at === 0 || Number.isInteger(Math.log2(a))) || a * s.at !== node.support[0]) return;
+  const la = Math.log(a);
+  const coefs = s.coefs.map((v, j) => v * Math.exp(-s.exps[j] * la));
+  const coefErr = coefs.map((v, j) => {
+    const grow = Math.exp(Math.abs(la) * er.expErr[j]);
+    const pa = Math.exp(-s.exps[j] * la) * (1 + 4 * EPS);
+    return (er.coefErr[j] * grow + Math.abs(s.coefs[j]) * Math.expm1(Math.abs(la) * er.expErr[j] * (1 + 4 * EPS))) * pa + Math.abs(v) * (3 + 2 * Math.abs(s.exps[j] * la)) * EPS;
+  });
+  const down = a * (1 - 2 * EPS);
+  MOVED.set(node, { series: { at: a * s.at, exps: s.exps, coefs }, coefErr, expErr: er.expErr, rho: (beta, t, J) => er.rho(down * beta, down * t, J) });
+}
+
+/** X + b: e^{-s b} phi_X(s), the same expansion from at + b, where that sum is exact and the node's lower end */
+export function carryShiftRemainder(node: Node, b: number, c: Node) {
+  const er = remainderOf(c);
+  if (!er || !node.dampedLogCf) return;
+  const at = er.series.at + b;
+  if (sumError(er.series.at, b, at) !== 0 || at !== node.support[0]) return;
+  MOVED.set(node, { ...er, series: { ...er.series, at } });
+}
+
+/**
+ * A sum's node.dampedRemainder where every term is a law with a derived endpoint remainder (remainderOf) and the sum has
+ * kernels; else null
  */
 export function sumDampedRemainder(node: Node, cs: Node[]): Node["dampedRemainder"] | null {
   const k = node.dampedKernels;
   if (!node.dampedLogCf || !k || k.cf !== node.dampedLogCf || node.kind.type !== "continuous") return null;
   const fs: Factor[] = [];
   for (const c of cs) {
-    if (c.kind.type !== "continuous" || !c.dampedLogCf) return null;
+    const rem = remainderOf(c);
+    if (!rem) return null;
     const m = c.dampedMajorant && c.dampedMajorant.cf === c.dampedLogCf ? c.dampedMajorant : undefined;
-    const size = m ? (beta: number, t: number) => m.rest(beta, t) : undefined;
-    const er = c.endpointRemainder;
-    if (er && er.series === c.laplaceExpansion) fs.push({ rem: er, ...(size ? { size } : {}) });
-    else if (m?.gamma && c.laplaceExpansion) {
-      const g = gammaEndpointRemainder(m.gamma.shape, m.gamma.rate, c.laplaceExpansion);
-      if (!g) return null;
-      fs.push({ rem: g, ...(size ? { size } : {}) });
-    } else return null;
+    fs.push(m ? { rem, size: (beta: number, t: number) => m.rest(beta, t) } : { rem });
   }
   const b = sumRemainderBound(fs, k.kernels, node.support[0]);
   return b ? { cf: node.dampedLogCf, bound: b.bound, decay: b.decay } : null;
