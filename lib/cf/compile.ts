@@ -24,6 +24,7 @@ import type { DirectLaw } from "./direct/types";
 import { convolveRelTables, convolveTables } from "./lattice";
 import { roundOf } from "./table-rounding";
 import { twoSumErr } from "./moment-error";
+import { familyAbsMoment } from "./abs-moment";
 
 /** Options of compile(). */
 export interface CompileOptions {
@@ -59,6 +60,8 @@ export function buildNode(m: Model, opts: CompileOptions = {}): Node {
       const fm = familyMajorant(m.family, params);
       if (fm) node.logMajorant = fm;
     }
+    const am = familyAbsMoment(m.family, params);
+    if (am) node.absMomentAbout = am;
     const dm = familyDampedMajorant(m.family, params, node);
     if (dm) node.dampedMajorant = dm;
     if (m.family === "student_t") {
@@ -336,6 +339,7 @@ export function toCompiled(node: Node): CompiledModel {
     ...(node.argErrDampedAt ? { cfArgErrDampedAt: node.argErrDampedAt } : {}),
     ...(node.argErrDampedAt && node.argErrDampedOn ? { cfArgErrDampedOn: node.argErrDampedOn } : {}),
     ...(node.direct ? { direct: node.direct } : {}),
+    ...(node.absMomentAbout ? { absMomentAbout: node.absMomentAbout } : {}),
     ...(node.tailTerm && continuous ? { tailTerm: node.tailTerm } : {}),
     ...(node.powerIndices && node.powerIndices.length > 1 ? { powerIndices: node.powerIndices } : {}),
     ...(node.bounds ? { bounds: node.bounds } : {}),

@@ -13,6 +13,7 @@ import { withCumulantErrors } from "./cumulant-bounds";
 import { addArgErrAt, addArgSlopes } from "./arg-rounding";
 import { mixE } from "./cumulant-ops";
 import { carryMixErrors } from "./damped-error-carry";
+import { mixAbsMoment } from "./abs-moment";
 
 /**
  * log sum_j w_j exp(L_j) over arrays, computed about a common centre (subtracting i mu t before summing), then the
@@ -81,6 +82,8 @@ export function mixNode(ws: number[], cs: Node[]): Node {
     },
   };
   withCumulantErrors(node, mixE(ws, cs));
+  const am = mixAbsMoment(ws, cs);
+  if (am) node.absMomentAbout = am;
   carryMixErrors(node, ws, cs);
   carryMixKernels(node, ws, cs);
   if (kind.type === "lattice" && cs.every((c) => c.table)) {

@@ -74,6 +74,9 @@ export interface Node {
   dampedCf?: DampedLogCf;
   /** the tree holds a compound (the damped inversion is used for such laws, and for laws bounded below with a power tail) */
   hasCompound?: boolean;
+  /** an upper bound on E|X - c|, where the node derives one beyond its cumulants (Student t and stable laws without a
+   *  variance, and the operators holding them: ./abs-moment.ts); NaN where none */
+  absMomentAbout?: (c: number) => number;
   /** bound on the absolute error of the CF values phi(t) (0 for closed forms) */
   cfAbsError?: number;
   /** bound on the relative error of the CF values (compounds of numerical CFs: |dP/P| <= slope |d phi_X|) */

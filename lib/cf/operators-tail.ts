@@ -7,6 +7,7 @@ import { addCumulants } from "./operators-shared";
 import { cumulantEst } from "./cumulant-bounds";
 import { stopLossBounds, type StopLossBounds } from "./invert/tail-moments";
 import { shiftedMajorant } from "./majorant";
+import { tailAbsMoment } from "./abs-moment";
 
 
 /** Every finite power-tail index of the terms (either side), distinct and increasing. */
@@ -65,6 +66,7 @@ export function heaviestTerm(cs: Node[]): TailTerm | null {
     remainderAlpha: Math.min(...indices),
     indices,
     cfAbsError: (D.cfAbsError ?? 0) + (D.cfRelError ?? 0),
+    absMomentAbout: tailAbsMoment(D, shift),
     ...(D.logMajorant ? { logAbsMajorant: shiftedMajorant(shift, D.logMajorant) } : {}),
   };
 }

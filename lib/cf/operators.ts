@@ -15,6 +15,7 @@ import { repeatE, scaleE, shiftE, sumE } from "./cumulant-ops";
 import { powerIndicesOf, heaviestTerm } from "./operators-tail";
 import { addArgErrAt, addArgErrDampedAt, addArgErrDampedOn, addArgSlopes, scaleArgErrAt, scaleArgErrDampedAt, scaleArgErrDampedOn, scaleArgSlope } from "./arg-rounding";
 import { carryScaleErrors, carryShiftErrors, carrySumErrors } from "./damped-error-carry";
+import { repeatAbsMoment, scaleAbsMoment, shiftAbsMoment, sumAbsMoment } from "./abs-moment";
 
 export { compoundNode, pgfAt } from "./compound";
 export { atomsNode, latticeNode, sampleNode } from "./tabulated";
@@ -63,6 +64,8 @@ export function sumNode(cs: Node[]): Node {
     ...summedLogRound(cs),
   };
   withCumulantErrors(node, sumE(cs));
+  const am = sumAbsMoment(cs);
+  if (am) node.absMomentAbout = am;
   carrySumErrors(node, cs);
   carrySumKernels(node, cs);
   node.dampedMajorant = sumDampedMajorant(node, cs);
@@ -143,6 +146,8 @@ export function scaleNode(a: number, c: Node): Node {
     ...scaledLogRound(c, a),
   };
   withCumulantErrors(node, scaleE(a, c));
+  const am = scaleAbsMoment(a, c);
+  if (am) node.absMomentAbout = am;
   carryScaleErrors(node, a, c);
   carryScaleKernels(node, a, c);
   node.dampedMajorant = scaleDampedMajorant(node, a, c);
@@ -209,6 +214,8 @@ export function shiftNode(b: number, c: Node): Node {
     ...shiftedLogRound(c, b),
   };
   withCumulantErrors(node, shiftE(b, c));
+  const am = shiftAbsMoment(b, c);
+  if (am) node.absMomentAbout = am;
   carryShiftErrors(node, b, c);
   carryShiftKernels(node, b, c);
   node.dampedMajorant = shiftDampedMajorant(node, c);
@@ -274,6 +281,8 @@ export function repeatNode(n: number, c: Node): Node {
     ...summedLogRound([c], [n]),
   };
   withCumulantErrors(node, repeatE(n, c));
+  const am = repeatAbsMoment(n, c);
+  if (am) node.absMomentAbout = am;
   if (c.table && c.kind.type === "lattice") {
     node.table = (maxLength) => {
       const tab = c.table!(maxLength);

@@ -128,6 +128,8 @@ export interface CompiledModel {
   readonly direct?: DirectLaw;
   /** sums: every power-tail index of the terms (Richardson in the period takes its exponents from all of them) */
   readonly powerIndices?: number[];
+  /** an upper bound on E|X - c| beyond the cumulants' (laws without a variance on both sides, ./abs-moment.ts); NaN where none */
+  readonly absMomentAbout?: (c: number) => number;
   /** units of rounding of logCf relative to 1 + |log phi| (lib/cf/invert/part.ts cfRelError) */
   logCfUlps?: number;
   /** absolute error of logCf at t beyond those units (special functions whose terms cancel) */
@@ -189,6 +191,8 @@ export interface TailTerm {
   indices: number[];
   /** bound on the absolute error of D's CF values */
   cfAbsError: number;
+  /** an upper bound on E|G - c| (NaN where none is derived: D without a mean) */
+  absMomentAbout?: (c: number) => number;
   /** the law of Y = X - D as the moment routines read it (momentIndex, cumulants with derived bounds, support) */
   others?: CompiledModel;
   /** optional: a derived majorant of |phi_G| = |phi_D| (D's, its slope about the centre moved by `shift`) */

@@ -6,8 +6,8 @@ import { cabs } from "../complex";
 
 /**
  * Lipschitz constants, in t, of what the inversions evaluate at their rounded nodes fl((k + 1/2) h) (../arg-rounding.ts):
- * the first absolute moments of the measures whose transforms they are. NaN where no bound is derived (a law without
- * a first absolute moment bound, or a subtracted heavy tail term); the callers then leave the term out.
+ * the first absolute moments of the measures whose transforms they are. NaN where no bound is derived (a law or a
+ * subtracted heavy tail term without a first absolute moment bound); the callers then leave the term out.
  */
 
 const EPS = Number.EPSILON;
@@ -15,9 +15,18 @@ const U = EPS / 2;
 
 /**
  * E|X - c| <= sqrt(E (X - c)^2) = sqrt(kappa_2 + (kappa_1 - c)^2) (Lyapunov), the cumulants with their derived bounds
- * (CompiledModel.cumulantErrors); for X >= lo also E(X - lo) + |lo - c|, the least of the two. NaN where neither is known.
+ * (CompiledModel.cumulantErrors); for X >= lo also E(X - lo) + |lo - c|; and the tree's own bound where it derives one
+ * (CompiledModel.absMomentAbout: Student t and stable terms without a variance, ../abs-moment.ts); the least of them.
+ * NaN where none is known.
  */
 export function absMomentAbout(model: CompiledModel, c: number): number {
+  const own = model.absMomentAbout ? model.absMomentAbout(c) : NaN;
+  const fromK = absMomentFromCumulants(model, c);
+  const m = Math.min(Number.isFinite(own) ? own : Infinity, Number.isFinite(fromK) ? fromK : Infinity);
+  return Number.isFinite(m) ? m : NaN;
+}
+
+function absMomentFromCumulants(model: CompiledModel, c: number): number {
   const lo = model.support[0];
   const order = model.momentIndex > 2 ? 2 : model.momentIndex > 1 ? 1 : 0;
   if (order === 0) return NaN;
@@ -38,12 +47,13 @@ export function absMomentAbout(model: CompiledModel, c: number): number {
 }
 
 /**
- * Said with an answer whose inverted part has no derived Lipschitz constant (partLipschitz NaN: a law without a finite
- * variance on both sides, or a subtracted power-tail term): the rounded nodes' move is then left out of the bounds
- * (`nodeMoves`, `roundingOf`) wherever the nodes are not exact doubles (the FFT's, the heavy route's).
+ * Said with an answer whose inverted part has no derived Lipschitz constant (partLipschitz NaN: a law, or a subtracted
+ * power-tail term, without a derived bound on its first absolute moment: no mean, as a Cauchy term or a stable one with
+ * alpha <= 1, or a term of a kind ../abs-moment.ts does not bound): the rounded nodes' move is then left out of the
+ * bounds (`nodeMoves`, `roundingOf`) wherever the nodes are not exact doubles (the FFT's, the heavy route's).
  */
 export const NODE_ROUNDING_NOTE =
-  "where the inversion's frequency nodes are not exact doubles, their rounding (2^-53 of each frequency) moves the transform by an amount not derived for this law (no bound on E|X - c| is known without a finite variance on both sides, or with a power-tail term subtracted) and left out of the error bounds";
+  "where the inversion's frequency nodes are not exact doubles, their rounding (2^-53 of each frequency) moves the transform by an amount not derived for this law (no bound on E|X - c| is derived for it: a term without a mean, or one whose first absolute moment is not bounded) and left out of the error bounds";
 
 /** the note when the part's Lipschitz constant is not derived */
 export function nodeRoundingNotes(part: ContinuousPart): string[] {
@@ -52,14 +62,17 @@ export function nodeRoundingNotes(part: ContinuousPart): string[] {
 
 /**
  * The undamped part phi_part(t) = [(phi - sum atoms) / w - kernels - phi_G] e^{-i t c} (./part.ts evalPart, all at the same
- * t): its derivative is at most (E|X - c| + sum p_j |x_j - c|) / w + sum |b| E|G_k - c| (+ E|G - c| for the tail term,
- * not derived here: NaN). Kernel k is Gamma(power + j, rate) on the side of `at`: E|G - c| <= |at - c| + (power + j) / rate.
+ * t): its derivative is at most (E|X - c| + sum p_j |x_j - c|) / w + sum |b| E|G_k - c| + E|G - c| for the tail term
+ * (TailTerm.absMomentAbout; NaN where not derived). Kernel k is Gamma(power + j, rate) on the side of `at`: E|G - c| <=
+ * |at - c| + (power + j) / rate.
  */
 export function partLipschitz(part: ContinuousPart): number {
-  if (part.tail) return NaN;
+  const g = part.tail ? (part.tail.absMomentAbout ? part.tail.absMomentAbout(part.center) : NaN) : 0;
+  if (!Number.isFinite(g)) return NaN;
   let s = absMomentAbout(part.model, part.center);
   for (const a of part.atoms) s += a.p * Math.abs(a.x - part.center);
   s /= part.weight;
+  s += g;
   for (const k of part.kernels) k.b.forEach((b, j) => (s += Math.abs(b) * (Math.abs(k.at - part.center) + (k.power + j) / k.rate)));
   return s * (1 + (4 + part.atoms.length) * EPS);
 }
