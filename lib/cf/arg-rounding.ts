@@ -15,23 +15,31 @@ const U = Number.EPSILON / 2;
 
 /**
  * A bound on E|X - lo| + 2 |lo| >= E|X| for a node bounded below (E|X - lo| = kappa_1 - lo, kappa_1 with its derived
- * error), else sqrt(kappa_2 + kappa_1^2) >= E|X| (Lyapunov); undefined when neither is known. The lower-end form also
+ * error), else sqrt(kappa_2 + kappa_1^2) >= E|X| (Lyapunov), else the node's own bound on E|X| (Node.absMomentAbout: two-
+ * sided laws without a variance, ./abs-moment.ts); undefined when none is known. The lower-end form also
  * bounds the damped transform's slope: the child's transform at w~ in place of a w changes by |w~ - a w| (E|X - lo| + |lo|)
  * once its factor e^{w lo} is counted (X's transform is e^{w lo} E[e^{w (X - lo)}], the caller's damping taken at lo).
  */
 export function absFirstMoment(node: Node): number | undefined {
   const k = node.momentIndex > 1 ? cumulantEst(node, node.momentIndex > 2 ? 2 : 1) : [];
   const k1 = k[0];
-  if (!k1 || !Number.isFinite(k1.e)) return undefined;
+  if (!k1 || !Number.isFinite(k1.e)) return ownAbsMoment(node);
   const lo = node.support[0];
   const hi = node.support[1];
   const slack = 1 + 8 * Number.EPSILON;
   if (Number.isFinite(lo)) return (Math.max(k1.v + k1.e - lo, 0) + 2 * Math.abs(lo)) * slack;
   if (Number.isFinite(hi)) return (Math.max(hi - k1.v + k1.e, 0) + 2 * Math.abs(hi)) * slack;
   const k2 = k[1];
-  if (!k2 || !Number.isFinite(k2.e)) return undefined;
+  if (!k2 || !Number.isFinite(k2.e)) return ownAbsMoment(node);
   const m1 = Math.abs(k1.v) + k1.e;
   return Math.sqrt((k2.v + k2.e + m1 * m1) * slack) * slack;
+}
+
+/** E|X| from the node's own bound, for a law unbounded on both sides (no damped transform reads it) */
+function ownAbsMoment(node: Node): number | undefined {
+  if (Number.isFinite(node.support[0]) || Number.isFinite(node.support[1]) || !node.absMomentAbout) return undefined;
+  const m = node.absMomentAbout(0);
+  return Number.isFinite(m) ? m : undefined;
 }
 
 /**

@@ -184,6 +184,9 @@ describe("a scaled term without a first absolute moment says its argument roundi
   });
   it("gamma scaled by 3, Cauchy scaled by 4 (exact): no note", () => {
     expect(noted({ scale: 3, of: { family: "gamma", shape: 2, rate: 1 } })).toBe(false);
+    // no variance, but a first absolute moment (Student t nu 1.5, stable alpha 1.3: tests/cf/abs-moment.test.ts)
+    expect(noted({ scale: 1.7, of: { family: "student_t", nu: 1.5, loc: 0, scale: 1 } })).toBe(false);
+    expect(noted({ sum: [{ scale: 3, of: { family: "stable", alpha: 1.3, beta: 0.4, scale: 1, loc: 0 } }, { family: "normal", mu: 0, sigma: 1 }] })).toBe(false);
     expect(noted({ scale: 4, of: { family: "cauchy", loc: 0, scale: 1 } })).toBe(false);
   });
 });
