@@ -57,6 +57,38 @@ export function severityRoundingNote(meanN: number | null, X: Node): string[] {
   return X.logRoundNote ? [X.logRoundNote] : [];
 }
 
+const PT = new Float64Array(1);
+const PZ = new Float64Array(1);
+const PR = new Float64Array(1);
+const PI = new Float64Array(1);
+
+/** P_N(m), 0 < m <= 1, from the count's cumulant function K at log m: [lower, upper] within its stated errors, 1e-9 relative
+ *  for the move of z and 64 ulps of K's scale 1 + |K| + E N (`mean`; |K(log m)| <= E N |log m|, K convex) for its roundings */
+function pgfBounds(N: Node, m: number, mean = 0): [number, number] {
+  PT[0] = Math.log(m);
+  PZ[0] = 0;
+  N.countCgf!(PT, PZ, PR, PI);
+  const p = Math.exp(PR[0]);
+  const a = (N.cfAbsError ?? 0) + (N.cfRelError ?? 0);
+  const r = 1e-9 + 64 * Number.EPSILON * (1 + Math.abs(PR[0]) + mean);
+  return [p * (1 - r) - a, p * (1 + r) + a];
+}
+
+/**
+ * A bound on |P_N'(z)| for |z| <= m < 1: P_N'(|z|) <= P_N'(m) (non-negative coefficients), at most the chord
+ * (P_N(m2) - P_N(m)) / (m2 - m), m2 = min(1, 2 m + 1e-3) (P_N' does not decrease on [0, 1]); near P(N = 1) where m is small
+ * (NB(3, 0.4): 0.12 against c P_N(0) = 0.29, c the log-derivative's bound). Infinity without the count's cumulant function.
+ */
+export function countSlopeBound(N: Node, m: number): number {
+  const mean = N.cumulants(1)[0];
+  if (!N.countCgf || !(m > 0 && m < 1) || mean === null || !Number.isFinite(mean)) return Infinity;
+  const m2 = Math.min(1, 2 * m + 1e-3);
+  const lo = pgfBounds(N, m, mean)[0];
+  const up = m2 < 1 ? pgfBounds(N, m2, mean)[1] : 1 + (N.cfAbsError ?? 0) + (N.cfRelError ?? 0);
+  const v = ((up - lo) / ((m2 - m) * (1 - 2 * Number.EPSILON))) * (1 + 4 * Number.EPSILON);
+  return v >= 0 ? v : Infinity;
+}
+
 export function severityRounding(
   meanN: number | null,
   X: Node,
@@ -77,21 +109,16 @@ export function severityRounding(
   const gain = (m: number) => (c !== undefined && Number.isFinite(c) ? Math.min(n, c * Math.min(1, m) * (1 + 1e-9)) : n);
   const T = new Float64Array(1);
   const M = new Float64Array(1);
-  const Z = new Float64Array(1);
-  const PR = new Float64Array(1);
-  const PI = new Float64Array(1);
   // where the compound has no majorant: |P_N(z)| <= P_N(|z|) (non-negative coefficients), |z| <= the claim law's own
-  // modulus bound (Node.logRoundModulus), P_N(m) from the count's cumulant function at log m (within its stated errors)
+  // modulus bound m (Node.logRoundModulus), so the gain is at most c P_N(m), and at most countSlopeBound's P_N'(m) bound
   const byClaim = (beta: number, t: number) => {
     const mod = X.logRoundModulus;
     const N = count?.N;
     if (!mod || !N?.countCgf) return n;
-    const m = mod(beta, Math.abs(t));
+    // (a bound m below 1e-300 raised to it: P_N and P_N' do not decrease)
+    const m = Math.max(mod(beta, Math.abs(t)), 1e-300);
     if (!(m < 1)) return n;
-    T[0] = Math.log(m);
-    Z[0] = 0;
-    N.countCgf(T, Z, PR, PI);
-    return gain(Math.exp(PR[0]) * (1 + 1e-9) + (N.cfAbsError ?? 0) + (N.cfRelError ?? 0));
+    return Math.min(gain(pgfBounds(N, m, n)[1]), countSlopeBound(N, m));
   };
   const undampedGain = (t: number) => {
     const self = count?.self();
@@ -113,7 +140,7 @@ export function severityRounding(
     const dm = self?.dampedMajorant;
     if (!self || c === undefined) return n;
     if (!dm || dm.cf !== self.dampedLogCf || !(self.support[0] >= 0)) return byClaim(beta, t);
-    return gain((dm.atom + dm.rest(beta, Math.abs(t))) * (1 + 4 * Number.EPSILON));
+    return Math.min(gain((dm.atom + dm.rest(beta, Math.abs(t))) * (1 + 4 * Number.EPSILON)), byClaim(beta, t));
   };
   // per frequency where the severity derives it (E N, or the count's slope times |phi|, times its R(t)), else the slope
   const own = at && meanN !== null ? (t: number) => undampedGain(t) * at(t, X) * (1 + 2 * Number.EPSILON) : (t: number) => add * t;

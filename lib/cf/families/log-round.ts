@@ -66,7 +66,10 @@ export function linearLogRound(c: number, logAt?: (t: Float64Array, re: Float64A
  * with |phi| <= M (the family's majorant, or `modulus`, its own bound on |phi~| at (beta, t)), |phi| |L| <= min(1/e, m t,
  * M |log M| where M <= 1/e) + max(pi M, min(M m t, I(t))). `shift` c: a family whose log is the quadrature's less i c t
  * (the Lomax, X = P - c): the rounding is 8 ulps of |L_P| <= |L| + c (|t| + beta) plus u |L|, so R = 9 u (1 + pi) (m + c) and
- * per frequency c (|t| + beta) M joins the argument. Where the unwrap misses a step (a grid coarser than about pi / m)
+ * per frequency c (|t| + beta) M joins the argument. `thorin` {drift a, mass T}: a bound T on U's total mass (a law from 0
+ * with a density at 0 that is finite and positive: T <= 1, as |phi| = O(t^-U[0, x0]) would beat t |phi| -> f(0) > 0, by parts
+ * and Riemann-Lebesgue), so theta~ <= a t + T pi / 2 and the argument's part is also at most M (a w + T pi / 2) (pareto(alpha,
+ * xm): a = xm, T <= 1: M (xm w + pi / 2) against M E X w). Where the unwrap misses a step (a grid coarser than about pi / m)
  * the bound assumes the computed argument stays on the continuous or the principal branch: `logRoundNote` says so, and the
  * compound lists it.
  */
@@ -75,6 +78,7 @@ export function ggcLogRound(
   node?: () => Node,
   modulus?: (beta: number, t: number) => number,
   shift = 0,
+  thorin?: { drift: number; mass: number },
 ): LogRound & Pick<Node, "logRoundNote" | "logRoundDampedAt" | "logRoundDampedOn" | "logRoundModulus"> {
   if (!(mean >= 0 && Number.isFinite(mean))) return {};
   const k = shift > 0 ? 1.125 : 1;
@@ -85,7 +89,8 @@ export function ggcLogRound(
   // the per-frequency bound: |phi| <= m, |1 - phi| <= r, int_0^t |phi'| <= I, the frequency (plus beta) w
   const part = (m: number, r: number, I: number, w: number) => {
     const re = Math.min(1 / Math.E, r, m <= 1 / Math.E ? (m > 0 ? -m * Math.log(m) * (1 + 4 * Number.EPSILON) : 0) : Infinity);
-    const arg = Math.max(Math.PI * m, Math.min(m * mean * w, I)) + m * shift * w;
+    const th = thorin ? m * (thorin.drift * w + thorin.mass * (Math.PI / 2)) * (1 + 8 * Number.EPSILON) : Infinity;
+    const arg = Math.max(Math.PI * m, Math.min(m * mean * w, I, th)) + m * shift * w;
     return (U8 * k * (re + arg) + (shift > 0 ? Number.EPSILON * m * shift * w : 0)) * (1 + 16 * Number.EPSILON);
   };
   // I(t) of the undamped CF (per node: the majorants are the compiled node's), and of the damped one per beta
@@ -204,8 +209,14 @@ function upperIntegral(D: (s: number) => number, s0: number, cap: number): (t: n
 }
 
 /** `node` with ggcLogRound of its mean, its majorants read from the node at each call (compile sets them after the family) */
-export function withGgcLogRound<N extends Node>(node: N, mean: number, modulus?: (beta: number, t: number) => number, shift = 0): N {
-  return Object.assign(node, ggcLogRound(mean, () => node, modulus, shift));
+export function withGgcLogRound<N extends Node>(
+  node: N,
+  mean: number,
+  modulus?: (beta: number, t: number) => number,
+  shift = 0,
+  thorin?: { drift: number; mass: number },
+): N {
+  return Object.assign(node, ggcLogRound(mean, () => node, modulus, shift, thorin));
 }
 
 type Carried = Pick<Node, "logRoundSlope" | "logRoundAt" | "logRoundDampedAt" | "logRoundDampedOn" | "logRoundNote" | "logRoundModulus">;
@@ -303,4 +314,17 @@ export function summedLogRound(cs: readonly Node[], ws?: readonly number[]): Car
  */
 export function decreasingDensityModulus(lo: number, f0: number): (beta: number, t: number) => number {
   return (beta, t) => Math.min(1, ((2 * f0 * Math.exp(-beta * lo)) / Math.hypot(beta, t)) * (1 + 8 * Number.EPSILON));
+}
+
+/**
+ * decreasingDensityModulus for a density that is also convex with f'(lo) = -f1 (f' rises to 0): by parts twice,
+ * int e^{w x} f' = -e^{w lo} f'(lo) / w - int e^{w x} f'' / w with int |f''| = f1, so |E e^{(i t - beta) X}| <=
+ * e^{-beta lo} (f0 / |w| + 2 f1 / |w|^2), the lesser of that and the once-by-parts bound taken (half of it where |w| >> f1 / f0)
+ */
+export function convexDensityModulus(lo: number, f0: number, f1: number): (beta: number, t: number) => number {
+  const once = decreasingDensityModulus(lo, f0);
+  return (beta, t) => {
+    const w = Math.hypot(beta, t);
+    return Math.min(once(beta, t), ((f0 / w + (2 * f1) / (w * w)) * Math.exp(-beta * lo)) * (1 + 16 * Number.EPSILON));
+  };
 }

@@ -2,7 +2,7 @@
 import { lgamma } from "./special";
 import { cumulantList, rawToCumulants, type Node } from "../node";
 import { fromPhiDamped } from "../damped-cf";
-import { decreasingDensityModulus, withGgcLogRound } from "./log-round";
+import { convexDensityModulus, withGgcLogRound } from "./log-round";
 import { arithmeticNodes, expSumArithmetic, fromPhi } from "./cf-quadrature";
 import { paretoExpansion, paretoSeries } from "./asymptotic";
 import { MAX_QUADRATURE_NODES, logFromSums, quadratureNodes, ruleRounding } from "./numeric-rule";
@@ -278,8 +278,10 @@ export function pareto(alpha: number, xm: number): Node {
     return Math.min(cfError, (constPart * g + (roundPart / aSum) * f) * (1 + 8 * Number.EPSILON));
   };
   // |E e^{(i t - beta) X}| <= e^{-beta xm} (X >= xm), and by parts with the density falling from alpha / xm to 0 at most
-  // 2 (alpha / xm) e^{-beta xm} / |i t - beta| (decreasingDensityModulus)
-  const byParts = decreasingDensityModulus(xm, alpha / xm);
+  // 2 (alpha / xm) e^{-beta xm} / |i t - beta| (decreasingDensityModulus); the density is convex with f'(xm) =
+  // -alpha (alpha + 1) / xm^2, so also (alpha / xm) e^{-beta xm} / |w| + 2 alpha (alpha + 1) e^{-beta xm} / (xm^2 |w|^2)
+  // (convexDensityModulus)
+  const byParts = convexDensityModulus(xm, alpha / xm, (alpha * (alpha + 1)) / (xm * xm));
   const modulus = (beta: number, t: number) => Math.min(Math.exp(-beta * xm) * (1 + 4 * Number.EPSILON), byParts(beta, t));
   const raw = (m: number) => (alpha * xm ** m) / (alpha - m);
   const expansion = paretoExpansion(alpha, xm);
@@ -314,6 +316,7 @@ export function pareto(alpha: number, xm: number): Node {
     cumulants: (m) => rawToCumulants(cumulantList(m, alpha, raw)),
   };
   // claim-law rounding: xm (1 + Y), Y Lomax, a generalized gamma convolution moved right (Thorin 1977, Scand. Actuarial J., recalled from memory; ./log-round.ts
-  // ggcLogRound), for a finite mean; its density alpha xm^alpha x^(-alpha-1) decreases from alpha / xm
-  return alpha > 1 ? withGgcLogRound(node, raw(1), byParts) : node;
+  // ggcLogRound), for a finite mean; its density alpha xm^alpha x^(-alpha-1) decreases from alpha / xm; drift xm (the
+  // support's start), Thorin mass at most 1 (the Lomax's density at 0, alpha / xm, is finite and positive)
+  return alpha > 1 ? withGgcLogRound(node, raw(1), byParts, 0, { drift: xm, mass: 1 }) : node;
 }

@@ -8,7 +8,7 @@ import { MAX_QUADRATURE_NODES, logFromSums, quadratureNodes, ruleRounding } from
 import { shiftDamped, shiftDampedCf } from "../damped-cf";
 import { paretoExpansion } from "./asymptotic";
 import { fromPhiDamped } from "../damped-cf";
-import { decreasingDensityModulus, withGgcLogRound } from "./log-round";
+import { convexDensityModulus, withGgcLogRound } from "./log-round";
 import { inverseGammaDist, inverseGaussianDist, type DirectLaw } from "./dist";
 import { KahanComplex } from "./kahan";
 
@@ -275,8 +275,9 @@ export function lomax(alpha: number, theta: number): Node {
     cumulants: (m) => rawToCumulants(cumulantList(m, alpha, raw)),
   };
   // claim-law rounding (./log-round.ts ggcLogRound): the pareto's log (X + theta) less i theta t, a shift of theta; the
-  // density decreases from alpha / theta
-  return alpha > 1 ? withGgcLogRound(node, raw(1), decreasingDensityModulus(0, alpha / theta), theta) : node;
+  // density decreases from alpha / theta, convex with f'(0) = -alpha (alpha + 1) / theta^2 (convexDensityModulus); drift 0,
+  // Thorin mass at most 1 (its density at 0 is finite and positive)
+  return alpha > 1 ? withGgcLogRound(node, raw(1), convexDensityModulus(0, alpha / theta, (alpha * (alpha + 1)) / (theta * theta)), theta, { drift: 0, mass: 1 }) : node;
 }
 
 /**
