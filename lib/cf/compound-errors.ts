@@ -36,7 +36,22 @@ export function dampedRelErrorAt(N: Node, X: Node): ((beta: number, t: number) =
   const own = valueRounding(X);
   // the value rounding is relative to |phi_X|: where the severity bounds its modulus per frequency, scaled by it
   const mod = e.modulus;
-  return (beta, t) => Math.min(whole, s * (e.at(beta, t) + xRel + (mod ? own * Math.min(1, mod(beta, t)) : own)) + nRel);
+  // where |phi_X| <= m and P(N = 0) = p0 > 0: |P_N(z + d) - P_N(z)| <= |d| countSlopeBound(m + |d|), and |P_N(z)| >= p0 -
+  // sum_{n >= 1} p_n |z|^n = 2 p0 - P_N(m), so the count's factor is also that bound over 2 p0 - P_N(m) where positive
+  // (NB(3, 0.4) far out: about P(N = 1) / P(N = 0) = 1.8 against cgfSlope 4.5)
+  const mean = N.cumulants(1)[0];
+  const p0 = mod && N.countCgf && mean !== null && Number.isFinite(mean) ? pgfBounds(N, 1e-300, mean)[0] - 1e-300 * mean : 0;
+  const gain = (m: number, d: number) => {
+    if (!(p0 > 0 && m < 1)) return s;
+    const floor = 2 * p0 - pgfBounds(N, Math.max(m, 1e-300), mean as number)[1];
+    if (!(floor > 0)) return s;
+    return Math.min(s, (countSlopeBound(N, Math.max(m * (1 + 4 * Number.EPSILON) + d, 1e-300), mean) / floor) * (1 + 4 * Number.EPSILON));
+  };
+  return (beta, t) => {
+    const m = mod ? mod(beta, t) : 1;
+    const eX = e.at(beta, t) + xRel + own * Math.min(1, m);
+    return Math.min(whole, gain(m, eX) * eX + nRel);
+  };
 }
 
 /**
@@ -79,8 +94,7 @@ function pgfBounds(N: Node, m: number, mean = 0): [number, number] {
  * (P_N(m2) - P_N(m)) / (m2 - m), m2 = min(1, 2 m + 1e-3) (P_N' does not decrease on [0, 1]); near P(N = 1) where m is small
  * (NB(3, 0.4): 0.12 against c P_N(0) = 0.29, c the log-derivative's bound). Infinity without the count's cumulant function.
  */
-export function countSlopeBound(N: Node, m: number): number {
-  const mean = N.cumulants(1)[0];
+export function countSlopeBound(N: Node, m: number, mean: number | null = N.cumulants(1)[0]): number {
   if (!N.countCgf || !(m > 0 && m < 1) || mean === null || !Number.isFinite(mean)) return Infinity;
   const m2 = Math.min(1, 2 * m + 1e-3);
   const lo = pgfBounds(N, m, mean)[0];

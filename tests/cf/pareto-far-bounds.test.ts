@@ -9,7 +9,7 @@ import { describe, expect, it } from "vitest";
 import { readFileSync } from "node:fs";
 import { pareto } from "@/lib/cf/families/numeric";
 import { lomax } from "@/lib/cf/families/severities";
-import { buildNode } from "@/lib/cf/compile";
+import { buildNode, compile } from "@/lib/cf/compile";
 import { countSlopeBound } from "@/lib/cf/compound-errors";
 import type { Model } from "@/lib/cf/types";
 
@@ -56,6 +56,29 @@ describe("pareto far out: modulus, phase and log rounding bounds (mpmath.expint 
       // and not far above it where the phase dominates (the bound's part xm t + pi / 2 against xm t + a)
       if (c.t >= 300) expect(node.logRoundDampedAt!(c.beta, c.t, node)).toBeLessThan(3 * own);
     }
+  });
+});
+
+describe("a negative binomial (3, 0.4) compound of pareto claims far out: its damped transform within its per-frequency bounds", () => {
+  it("|P_N(phi~) computed - reference| <= rel(beta, t) |ref| + the claim-law rounding (cfArgErrDampedAt) + exp's rounding", () => {
+    let n = 0;
+    for (const c of ref.cases as (Case & { nb_re: string; nb_im: string; nb_diff: number })[]) {
+      expect(c.nb_diff).toBeLessThan(1e-35);
+      if (!(c.alpha > 1)) continue;
+      const m = compile({ compound: { count: { family: "negative_binomial", r: 3, p: 0.4 }, each: { family: "pareto", alpha: c.alpha, xm: c.xm } } } as Model);
+      const re = new Float64Array(1);
+      const im = new Float64Array(1);
+      m.dampedLogCf!(c.beta, Float64Array.of(c.t), re, im);
+      const v = Math.exp(re[0]);
+      const d = Math.hypot(v * Math.cos(im[0]) - Number(c.nb_re), v * Math.sin(im[0]) - Number(c.nb_im));
+      const r = Math.hypot(Number(c.nb_re), Number(c.nb_im));
+      const rel = m.dampedRelErrorAt!(c.beta, c.t);
+      const arg = Math.min((m.cfArgSlope ?? 0) * (c.t + c.beta), m.cfArgErrDampedAt!(c.beta, c.t));
+      const bound = rel * r + arg + 2 * Number.EPSILON * r * (3 + Math.hypot(re[0], im[0]));
+      expect(d, JSON.stringify({ ...c, d, rel, arg, bound })).toBeLessThanOrEqual(bound);
+      n++;
+    }
+    expect(n).toBeGreaterThanOrEqual(50);
   });
 });
 
