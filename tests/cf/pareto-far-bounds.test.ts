@@ -1,8 +1,8 @@
 // The pareto claim law's damped transform far out in t (to 1e4), against alpha E_(alpha+1)(-i xm z) (DLMF 8.19.3;
 // mpmath.expint at 40 digits, cross-checked by mpmath.quad on a rotated ray: tests/fixtures/severity-cf/generate-pareto-far.py):
 // the modulus bound twice by parts (lib/cf/families/log-round.ts convexDensityModulus), the Lomax part's phase within
-// [0, pi / 2] (a Thorin mass at most 1, ggcLogRound's `thorin`) and the claim-law rounding 8 u |phi| |L| within
-// logRoundDampedAt. And the count's slope bound (lib/cf/compound-errors.ts countSlopeBound) against the closed-form
+// [0, pi / 2] (a Thorin mass at most 1, ggcLogRound's `thorin`) and the claim-law rounding |phi| u (6 |Re L| + 3 |Im L| +
+// c) within logRoundDampedAt. And the count's slope bound (lib/cf/compound-errors.ts countSlopeBound) against the closed-form
 // pgf derivatives (Poisson lambda e^{lambda (m - 1)}, negative binomial r (1 - p) p^r / (1 - (1 - p) m)^{r + 1}; Loss
 // Models, app. B).
 import { describe, expect, it } from "vitest";
@@ -39,7 +39,7 @@ describe("pareto far out: modulus, phase and log rounding bounds (mpmath.expint 
     }
     expect(tight).toBeGreaterThanOrEqual(20);
   });
-  it("the Lomax part's phase arg(phi~ e^{-i xm t}) lies in [0, pi / 2], and 8 u |phi| |L| within logRoundDampedAt", () => {
+  it("the Lomax part's phase arg(phi~ e^{-i xm t}) lies in [0, pi / 2], and the log's rounding times |phi| within logRoundDampedAt", () => {
     for (const c of ref.cases) {
       const [re, im] = [Number(c.re), Number(c.im)];
       const [cs, sn] = [Math.cos(c.xm * c.t), Math.sin(c.xm * c.t)];
@@ -50,11 +50,19 @@ describe("pareto far out: modulus, phase and log rounding bounds (mpmath.expint 
       const node = pareto(c.alpha, c.xm);
       const m = Math.hypot(re, im);
       // the continuous log: log |phi~| + i (xm t + the Lomax part's phase)
-      const L = Math.hypot(Math.log(m), c.xm * c.t + a);
-      const own = 8 * Number.EPSILON * m * L;
+      // within u (6 |Re L| + 3 |Im L| + c) of rounding (pareto.ts `units`), times |phi|
+      const u = Number.EPSILON / 2;
+      const own = u * m * (6 * Math.abs(Math.log(m)) + 3 * (c.xm * c.t + a) + 3 * Math.abs(Math.log(c.alpha)) + 7 * Math.PI + 4);
       expect(own, JSON.stringify(c)).toBeLessThanOrEqual(node.logRoundDampedAt!(c.beta, c.t, node));
       // and not far above it where the phase dominates (the bound's part xm t + pi / 2 against xm t + a)
       if (c.t >= 300) expect(node.logRoundDampedAt!(c.beta, c.t, node)).toBeLessThan(3 * own);
+      // the value the compound forms, e^L from the node's damped log, within its CF error plus that rounding
+      const lr = new Float64Array(1);
+      const li = new Float64Array(1);
+      node.dampedLogCf!(c.beta, Float64Array.of(c.t), lr, li);
+      const v = Math.exp(lr[0]);
+      const d = Math.hypot(v * Math.cos(li[0]) - re, v * Math.sin(li[0]) - im);
+      expect(d, JSON.stringify(c)).toBeLessThanOrEqual(node.dampedErrorAt!.at(c.beta, c.t) + node.logRoundDampedAt!(c.beta, c.t, node));
     }
   });
 });

@@ -69,7 +69,9 @@ export function linearLogRound(c: number, logAt?: (t: Float64Array, re: Float64A
  * per frequency c (|t| + beta) M joins the argument. `thorin` {drift a, mass T}: a bound T on U's total mass (a law from 0
  * with a density at 0 that is finite and positive: T <= 1, as |phi| = O(t^-U[0, x0]) would beat t |phi| -> f(0) > 0, by parts
  * and Riemann-Lebesgue), so theta~ <= a t + T pi / 2 and the argument's part is also at most M (a w + T pi / 2) (pareto(alpha,
- * xm): a = xm, T <= 1: M (xm w + pi / 2) against M E X w). Where the unwrap misses a step (a grid coarser than about pi / m)
+ * xm): a = xm, T <= 1: M (xm w + pi / 2) against M E X w). `units` {re, im, c}: a family whose damped log rounds within
+ * u (re |Re L| + im |Im L| + c) (derived beside the call) takes that in place of 8 ulps of |L| in the damped bounds
+ * (logRoundDampedAt / On; shift 0). Where the unwrap misses a step (a grid coarser than about pi / m)
  * the bound assumes the computed argument stays on the continuous or the principal branch: `logRoundNote` says so, and the
  * compound lists it.
  */
@@ -79,6 +81,7 @@ export function ggcLogRound(
   modulus?: (beta: number, t: number) => number,
   shift = 0,
   thorin?: { drift: number; mass: number },
+  units?: { re: number; im: number; c: number },
 ): LogRound & Pick<Node, "logRoundNote" | "logRoundDampedAt" | "logRoundDampedOn" | "logRoundModulus"> {
   if (!(mean >= 0 && Number.isFinite(mean))) return {};
   const k = shift > 0 ? 1.125 : 1;
@@ -87,10 +90,15 @@ export function ggcLogRound(
   const M = new Float64Array(1);
   const V = new Float64Array(1);
   // the per-frequency bound: |phi| <= m, |1 - phi| <= r, int_0^t |phi'| <= I, the frequency (plus beta) w
-  const part = (m: number, r: number, I: number, w: number) => {
+  // `damped`: the damped transform's log, rounded within u (units.re |Re L| + units.im |Im L| + units.c) where the family
+  // derives it (shift 0 only): |phi| times that, with |phi| |Re L| <= re, |phi| |Im L| <= arg, |phi| <= m
+  // (the slope R (t + beta) rests on 8 ulps of |L| and is not taken beside it: `units` carries a constant part)
+  const dUnits = !!units && shift === 0;
+  const part = (m: number, r: number, I: number, w: number, damped = false) => {
     const re = Math.min(1 / Math.E, r, m <= 1 / Math.E ? (m > 0 ? -m * Math.log(m) * (1 + 4 * Number.EPSILON) : 0) : Infinity);
     const th = thorin ? m * (thorin.drift * w + thorin.mass * (Math.PI / 2)) * (1 + 8 * Number.EPSILON) : Infinity;
     const arg = Math.max(Math.PI * m, Math.min(m * mean * w, I, th)) + m * shift * w;
+    if (damped && dUnits) return (Number.EPSILON / 2) * (units!.re * re + units!.im * arg + units!.c * m) * (1 + 16 * Number.EPSILON);
     return (U8 * k * (re + arg) + (shift > 0 ? Number.EPSILON * m * shift * w : 0)) * (1 + 16 * Number.EPSILON);
   };
   // I(t) of the undamped CF (per node: the majorants are the compiled node's), and of the damped one per beta
@@ -150,7 +158,8 @@ export function ggcLogRound(
       if (n && dm && dm.cf === n.dampedLogCf && n.support[0] >= 0) m = Math.min(m, (dm.atom + dm.rest(beta, a)) * (1 + 4 * Number.EPSILON));
       const I = n ? dampedIntegralOf(n, beta) : null;
       const r = mean * Math.hypot(a, beta) * (1 + 2 * Number.EPSILON);
-      return Math.min(slope * (a + beta), part(Math.min(1, m), r, I ? I(a) : Infinity, a + beta));
+      const p = part(Math.min(1, m), r, I ? I(a) : Infinity, a + beta, true);
+      return dUnits ? p : Math.min(slope * (a + beta), p);
     },
     // over [t0, t1]: part does not decrease in any argument, the modulus bounds (`modulus`, the majorant's rest: each
     // valid from its frequency on) are taken at t0, r, I and the frequency at t1
@@ -163,7 +172,8 @@ export function ggcLogRound(
       if (n && dm && dm.cf === n.dampedLogCf && n.support[0] >= 0) m = Math.min(m, (dm.atom + dm.rest(beta, a0)) * (1 + 4 * Number.EPSILON));
       const I = n ? dampedIntegralOf(n, beta) : null;
       const r = mean * Math.hypot(a1, beta) * (1 + 2 * Number.EPSILON);
-      return Math.min(slope * (a1 + beta), part(Math.min(1, m), r, I ? I(a1) : Infinity, a1 + beta));
+      const p = part(Math.min(1, m), r, I ? I(a1) : Infinity, a1 + beta, true);
+      return dUnits ? p : Math.min(slope * (a1 + beta), p);
     },
     logRoundNote:
       "the quadrature claim law's log rounding is bounded with its phase on the continuous or the principal branch (the unwrap along a grid finer than about pi / E X)",
@@ -215,8 +225,9 @@ export function withGgcLogRound<N extends Node>(
   modulus?: (beta: number, t: number) => number,
   shift = 0,
   thorin?: { drift: number; mass: number },
+  units?: { re: number; im: number; c: number },
 ): N {
-  return Object.assign(node, ggcLogRound(mean, () => node, modulus, shift, thorin));
+  return Object.assign(node, ggcLogRound(mean, () => node, modulus, shift, thorin, units));
 }
 
 type Carried = Pick<Node, "logRoundSlope" | "logRoundAt" | "logRoundDampedAt" | "logRoundDampedOn" | "logRoundNote" | "logRoundModulus">;

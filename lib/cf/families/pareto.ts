@@ -266,7 +266,7 @@ export function pareto(alpha: number, xm: number): Node {
   // 1e-21 times g <= alpha, at most mMax of them, the Laplace range's node count at any tau) stay constant.
   const roundPart = aSum * (2e-25 + 97 * Number.EPSILON) + ruleRounding(n + Math.ceil(710 / h), aSum, aSum * (16 + (2 + Math.PI) * q));
   const mMax = Math.min(MAX_QUADRATURE_NODES, Math.ceil((Math.max(0, (19 * Math.LN10) / alpha) + 19 * Math.LN10 + Math.max(0, Math.log(alpha))) / h) + 2);
-  const constPart = paretoRuleError(alpha, h) + 1e-16 / 3 + alpha * Number.EPSILON + alpha * mMax * 1e-21;
+  const constPart = paretoRuleError(alpha, h) + 1e-16 / 3 + alpha * mMax * 1e-21;
   /** the error at frequency t (damping beta) of the damped transform moved by `shift` (its factor e^{-beta shift}) */
   // (the two exponents in one exp: lomax's cancel exactly, where e^{-xm beta} alone could underflow; a numerator below 1e-290,
   // perhaps underflowed, is taken as 1e-290, and a denominator below it, t = 0 included, takes the constant)
@@ -275,7 +275,11 @@ export function pareto(alpha: number, xm: number): Node {
     const num = Math.E * alpha * Math.exp(-xm * beta - beta * shift) * (1 + 1e-13);
     const den = xm * Math.abs(t);
     const f = den >= 1e-290 ? Math.min(aSum * g, Math.max(num, 1e-290) / den) : aSum * g;
-    return Math.min(cfError, (constPart * g + (roundPart / aSum) * f) * (1 + 8 * Number.EPSILON));
+    // the phase tau = xm t within u tau: alpha eps (the constant's), or per frequency u tau |phi~| <= u (alpha + 2 alpha
+    // (alpha + 1) / (xm t)) e^{-xm beta} (convexDensityModulus below: |w| >= t), half of it far out
+    const far = den >= 1e-290 ? 0.5 * Number.EPSILON * (alpha + (2 * alpha * (alpha + 1)) / den) * Math.exp(-xm * beta - beta * shift) * (1 + 1e-13) : Infinity;
+    const phase = Math.min(alpha * Number.EPSILON * g, far);
+    return Math.min(cfError, (constPart * g + phase + (roundPart / aSum) * f) * (1 + 8 * Number.EPSILON));
   };
   // |E e^{(i t - beta) X}| <= e^{-beta xm} (X >= xm), and by parts with the density falling from alpha / xm to 0 at most
   // 2 (alpha / xm) e^{-beta xm} / |i t - beta| (decreasingDensityModulus); the density is convex with f'(xm) =
@@ -317,6 +321,11 @@ export function pareto(alpha: number, xm: number): Node {
   };
   // claim-law rounding: xm (1 + Y), Y Lomax, a generalized gamma convolution moved right (Thorin 1977, Scand. Actuarial J., recalled from memory; ./log-round.ts
   // ggcLogRound), for a finite mean; its density alpha xm^alpha x^(-alpha-1) decreases from alpha / xm; drift xm (the
-  // support's start), Thorin mass at most 1 (the Lomax's density at 0, alpha / xm, is finite and positive)
-  return alpha > 1 ? withGgcLogRound(node, raw(1), byParts, 0, { drift: xm, mass: 1 }) : node;
+  // support's start), Thorin mass at most 1 (the Lomax's density at 0, alpha / xm, is finite and positive). Its damped log
+  // rounds within u (6 |Re L| + 3 |Im L| + 3 |log alpha| + 7 pi + 4): per frequency log|phi| (hypot 2u relative, log u |.|)
+  // and atan2 (4u pi); on the rule's sums (logFromSums) log alpha - xm beta + log|S| (xm beta <= |Re L|, as |phi~| <=
+  // e^{-xm beta}) and the phase a + pi/2 + xm t, a in [-pi/2, 0] (the Lomax part's, so no unwrap), three roundings of
+  // at most |Im L| + pi/2 each; fromPhi's unwrap one product and one difference (fl(2 pi) 0.36u relative) of |Im L| + pi
+  const units = { re: 6, im: 3, c: 3 * Math.abs(Math.log(alpha)) + 7 * Math.PI + 4 };
+  return alpha > 1 ? withGgcLogRound(node, raw(1), byParts, 0, { drift: xm, mass: 1 }, units) : node;
 }
