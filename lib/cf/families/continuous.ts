@@ -118,8 +118,7 @@ export function gammaLaw(shape: number, rate: number): Node {
     laplaceExpansion: gammaExpansion(shape, rate),
     logRoundSlope: gammaLogRoundSlope(shape, rate),
     logRoundAt: gammaLogRoundAt(shape, rate),
-    logRoundDampedAt: gammaLogRoundDampedAt(shape, rate),
-    logRoundDampedOn: gammaLogRoundDampedOn(shape, rate),
+    ...gammaLogRoundDamped(shape, rate),
   });
 }
 
@@ -146,27 +145,21 @@ function gammaLogRoundAt(shape: number, rate: number): (t: number) => number {
 }
 
 /** damped at z = (beta - i t) / r: |phi~| = |1 + z|^-k, |L~| <= k (log |1 + z| + atan(t / (r + beta))) */
-function gammaLogRoundDampedAt(shape: number, rate: number): (beta: number, t: number) => number {
+/**
+ * the same damped, over [t0, t1]: e^{-k lm} at t0, lm + atan(t / (r + beta)) and the slope's t + beta at t1 (each monotone
+ * in t); at one frequency the run [t, t]
+ */
+function gammaLogRoundDamped(shape: number, rate: number): Pick<Node, "logRoundDampedAt" | "logRoundDampedOn"> {
   const slope = gammaLogRoundSlope(shape, rate);
-  return (beta, t) => {
-    const a = Math.abs(t);
-    const lm = 0.5 * Math.log(((rate + beta) * (rate + beta) + a * a) / (rate * rate));
-    const v = Math.exp(-shape * lm) * shape * (lm + Math.atan(a / (rate + beta)));
-    return Math.min(slope * (a + beta), 8 * Number.EPSILON * v * (1 + 64 * Number.EPSILON));
-  };
-}
-
-/** the same over [t0, t1]: e^{-k lm} at t0, lm + atan(t / (r + beta)) and the slope's t + beta at t1 (each monotone in t) */
-function gammaLogRoundDampedOn(shape: number, rate: number): (beta: number, t0: number, t1: number) => number {
-  const slope = gammaLogRoundSlope(shape, rate);
-  return (beta, t0, t1) => {
+  const on = (beta: number, t0: number, t1: number) => {
     const a0 = Math.abs(t0);
     const a1 = Math.max(Math.abs(t1), a0);
     const lm0 = 0.5 * Math.log(((rate + beta) * (rate + beta) + a0 * a0) / (rate * rate));
-    const lm1 = 0.5 * Math.log(((rate + beta) * (rate + beta) + a1 * a1) / (rate * rate));
+    const lm1 = a1 === a0 ? lm0 : 0.5 * Math.log(((rate + beta) * (rate + beta) + a1 * a1) / (rate * rate));
     const v = Math.exp(-shape * lm0) * shape * (lm1 + Math.atan(a1 / (rate + beta)));
     return Math.min(slope * (a1 + beta), 8 * Number.EPSILON * v * (1 + 64 * Number.EPSILON));
   };
+  return { logRoundDampedAt: (beta, t) => on(beta, t, t), logRoundDampedOn: on };
 }
 
 /**

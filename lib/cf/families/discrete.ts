@@ -20,12 +20,14 @@ const TAIL_EPS = 1e-18;
  */
 function pointLogRound(at: number): Pick<Node, "logRoundSlope" | "logRoundAt" | "logRoundDampedAt" | "logRoundDampedOn"> {
   const slope = 8 * Number.EPSILON * Math.abs(at) * (1 + 8 * Number.EPSILON);
+  // over [t0, t1] at the larger frequency (|L~| grows with t); one frequency is the run [t, t]
+  const on = (beta: number, t0: number, t1: number) =>
+    Math.min(1, Math.exp(-beta * at) * (1 + 4 * Number.EPSILON)) * slope * Math.hypot(Math.max(Math.abs(t0), Math.abs(t1)), beta) * (1 + 4 * Number.EPSILON);
   return {
     logRoundSlope: slope,
     logRoundAt: (t) => slope * Math.abs(t),
-    logRoundDampedAt: (beta, t) => Math.min(1, Math.exp(-beta * at) * (1 + 4 * Number.EPSILON)) * slope * Math.hypot(t, beta) * (1 + 4 * Number.EPSILON),
-    logRoundDampedOn: (beta, t0, t1) =>
-      Math.min(1, Math.exp(-beta * at) * (1 + 4 * Number.EPSILON)) * slope * Math.hypot(Math.max(Math.abs(t0), Math.abs(t1)), beta) * (1 + 4 * Number.EPSILON),
+    logRoundDampedAt: (beta, t) => on(beta, t, t),
+    logRoundDampedOn: on,
   };
 }
 

@@ -135,6 +135,20 @@ export function ggcLogRound(
     byBeta.set(beta, f);
     return f;
   };
+  // over [t0, t1]: part does not decrease in any argument, the modulus bounds (`modulus`, the majorant's rest: each
+  // valid from its frequency on) are taken at t0, r, I and the frequency at t1; one frequency is the run [t, t]
+  const dampedOn = (beta: number, t0: number, t1: number, self?: Node): number => {
+    const a0 = Math.abs(t0);
+    const a1 = Math.max(Math.abs(t1), a0);
+    const n = self ?? node?.();
+    const dm = n?.dampedMajorant;
+    let m = modulus ? modulus(beta, a0) : 1;
+    if (n && dm && dm.cf === n.dampedLogCf && n.support[0] >= 0) m = Math.min(m, (dm.atom + dm.rest(beta, a0)) * (1 + 4 * Number.EPSILON));
+    const I = n ? dampedIntegralOf(n, beta) : null;
+    const r = mean * Math.hypot(a1, beta) * (1 + 2 * Number.EPSILON);
+    const p = part(Math.min(1, m), r, I ? I(a1) : Infinity, a1 + beta, true);
+    return dUnits ? p : Math.min(slope * (a1 + beta), p);
+  };
   return {
     logRoundSlope: slope,
     logRoundAt: (t, self) => {
@@ -150,31 +164,8 @@ export function ggcLogRound(
       const I = n ? integralOf(n) : null;
       return Math.min(slope * a, part(Math.min(1, m), mean * a, I ? I(a) : Infinity, a));
     },
-    logRoundDampedAt: (beta, t, self) => {
-      const a = Math.abs(t);
-      const n = self ?? node?.();
-      const dm = n?.dampedMajorant;
-      let m = modulus ? modulus(beta, a) : 1;
-      if (n && dm && dm.cf === n.dampedLogCf && n.support[0] >= 0) m = Math.min(m, (dm.atom + dm.rest(beta, a)) * (1 + 4 * Number.EPSILON));
-      const I = n ? dampedIntegralOf(n, beta) : null;
-      const r = mean * Math.hypot(a, beta) * (1 + 2 * Number.EPSILON);
-      const p = part(Math.min(1, m), r, I ? I(a) : Infinity, a + beta, true);
-      return dUnits ? p : Math.min(slope * (a + beta), p);
-    },
-    // over [t0, t1]: part does not decrease in any argument, the modulus bounds (`modulus`, the majorant's rest: each
-    // valid from its frequency on) are taken at t0, r, I and the frequency at t1
-    logRoundDampedOn: (beta, t0, t1, self) => {
-      const a0 = Math.abs(t0);
-      const a1 = Math.max(Math.abs(t1), a0);
-      const n = self ?? node?.();
-      const dm = n?.dampedMajorant;
-      let m = modulus ? modulus(beta, a0) : 1;
-      if (n && dm && dm.cf === n.dampedLogCf && n.support[0] >= 0) m = Math.min(m, (dm.atom + dm.rest(beta, a0)) * (1 + 4 * Number.EPSILON));
-      const I = n ? dampedIntegralOf(n, beta) : null;
-      const r = mean * Math.hypot(a1, beta) * (1 + 2 * Number.EPSILON);
-      const p = part(Math.min(1, m), r, I ? I(a1) : Infinity, a1 + beta, true);
-      return dUnits ? p : Math.min(slope * (a1 + beta), p);
-    },
+    logRoundDampedAt: (beta, t, self) => dampedOn(beta, t, t, self),
+    logRoundDampedOn: dampedOn,
     logRoundNote:
       "the quadrature claim law's log rounding is bounded with its phase on the continuous or the principal branch (the unwrap along a grid finer than about pi / E X)",
     ...(modulus ? { logRoundModulus: modulus } : {}),
