@@ -52,16 +52,27 @@ describe("summarize: unweighted sample against jstat", () => {
     });
   }
 
-  it("1..n against the closed forms of the discrete uniform law", () => {
-    // mean (n+1)/2, sample variance n(n+1)/12, g1 = 0, g2 = -6(n^2+1) / (5(n^2-1)) (common practice; the
-    // population moments of the discrete uniform law on n points, recalled from memory).
+  it("1..n against the exact moments of the discrete uniform law", () => {
+    // Each reference is an exact rational formed from the points themselves in BigInt (twice the deviations,
+    // d_i = 2 i - (n + 1), keep every sum whole): mean (n + 1) / 2, sample variance sum d^2 / (4 (n - 1)), population
+    // skewness sum d^3 (= 0 by symmetry, summed here) and excess kurtosis n sum d^4 / (sum d^2)^2 - 3 (common practice,
+    // the definitions of g1 and g2). Only the last division rounds, to 18 digits.
+    const ratio = (a: bigint, b: bigint) => Number((a * 10n ** 18n) / b) / 1e18;
     for (const n of [5, 100, 4097]) {
       const s = summarize(Float64Array.from({ length: n }, (_, i) => i + 1));
-      near(`mean n=${n}`, s.mean, (n + 1) / 2, 1e-14);
-      near(`sd n=${n}`, s.sd, Math.sqrt((n * (n + 1)) / 12), 1e-13);
-      near(`skewness n=${n}`, s.skewness, 0, 1e-12);
-      near(`kurtosis n=${n}`, s.kurtosis, (-6 * (n * n + 1)) / (5 * (n * n - 1)), 1e-12);
-      near(`median n=${n}`, s.median, (n + 1) / 2, 0);
+      let s2 = 0n, s3 = 0n, s4 = 0n;
+      for (let i = 1; i <= n; i++) {
+        const d = BigInt(2 * i - (n + 1));
+        s2 += d * d;
+        s3 += d * d * d;
+        s4 += d * d * d * d;
+      }
+      const N = BigInt(n);
+      near(`mean n=${n}`, s.mean, ratio(N + 1n, 2n), 1e-14);
+      near(`sd n=${n}`, s.sd, Math.sqrt(ratio(s2, 4n * (N - 1n))), 1e-13);
+      near(`skewness n=${n}`, s.skewness, ratio(s3, s2), 1e-12);
+      near(`kurtosis n=${n}`, s.kurtosis, ratio(N * s4, s2 * s2) - 3, 1e-12);
+      near(`median n=${n}`, s.median, ratio(N + 1n, 2n), 0);
     }
   });
 });
