@@ -3,7 +3,7 @@
 // has F(theta) = 1 - 2^-alpha (app. A.2.2.2); a normal density is flat within (h/sigma)^2 relative over an interval of
 // length h, so a short truncation is uniform to that accuracy (common practice).
 import { describe, expect, it } from "vitest";
-import { compile, density } from "@/lib/cf";
+import { compile, density, quantiles } from "@/lib/cf";
 import type { Model } from "@/lib/cf/types";
 
 const cases: { model: Model; x: number; cdf: number; tol: number; what: string }[] = [
@@ -49,6 +49,31 @@ describe("CF rules past the node limit are refused", () => {
       expect(err, "the model was not refused").toBeDefined();
       expect((err as { code?: string }).code).toBe("limit_exceeded");
       expect((err as Error).message).toMatch(c.what);
+    });
+  }
+});
+
+// A symmetric law's median is its centre (common practice). At a centre of 0 the normal's cdf is exact (Phi(0) = 1/2),
+// so the bracket's walk started at the smallest double: 200 steps of 1.5 never reached an offset where the cdf moves,
+// and POST /api/v1/quantiles answered the standard normal's median with 422 tolerance_unreached.
+describe("quantiles exactly at 0", () => {
+  const symmetric: Model[] = [
+    { family: "normal", mu: 0, sigma: 1 },
+    { family: "normal", mu: 0, sigma: 1e-200 },
+    { family: "logistic", loc: 0, scale: 3 },
+    { family: "laplace", loc: 0, scale: 0.5 },
+    { family: "student_t", nu: 3, loc: 0, scale: 1 },
+    { family: "cauchy", loc: 0, scale: 2 },
+    { family: "uniform", a: -1, b: 1 },
+  ] as Model[];
+  for (const m of symmetric) {
+    it(`the median of ${JSON.stringify(m)} is 0 within a finite bound, small against the spread`, () => {
+      const r = quantiles(compile(m), [0.5]);
+      const err = r.diagnostics.quantileError[0];
+      expect(err, "no bound").not.toBeNull();
+      expect(Math.abs(r.x[0])).toBeLessThanOrEqual(err!);
+      const spread = (m as unknown as { sigma?: number }).sigma ?? 1;
+      expect(err!).toBeLessThan(1e-12 * spread);
     });
   }
 });

@@ -153,22 +153,51 @@ export function directQuantile(law: DirectLaw, p: number, known: readonly number
   return refineBounds(probe, best, lo, hi);
 }
 
-/** Walk out from the estimate until the cdf bounds exclude p on both sides; the walk gives the error bound. */
+/**
+ * Walk out from the estimate until the cdf bounds exclude p on both sides; the walk gives the error bound. The walk
+ * grows by 1.5 a step; where 60 steps do not reach (a start at the smallest double: a quantile of exactly 0 whose cdf
+ * there is exact, as the normal's median), it goes on by 2^10 a step and then halves the last step's exponent down to
+ * the least offset whose bounds exclude p (every offset tried is tested, so the bound holds wherever it stops).
+ */
 function refineBounds(probe: (x: number) => Probe, c: Probe, lo: number, hi: number): { x: number; err: number } {
   const x = c.x;
   const base = Math.max(4 * Number.EPSILON * Math.abs(x), c.f > 0 ? (1.25 * (Math.abs(c.r) + c.e)) / c.f : 0, Number.MIN_VALUE);
   const walk = (dir: 1 | -1): number => {
-    let d = base;
-    for (let k = 0; k < 200; k++) {
-      let xe = x + dir * d;
+    // the offset d: its end past the support's (the support's end is then the bound), excluded (true) or not (false)
+    const test = (d: number): number | boolean => {
+      const xe = x + dir * d;
       if (dir < 0 && xe <= lo) return x - lo;
       if (dir > 0 && xe >= hi) return hi - x;
       const q = probe(xe);
-      if (dir < 0 ? q.r + q.e < 0 : q.r - q.e > 0) return d;
+      return dir < 0 ? q.r + q.e < 0 : q.r - q.e > 0;
+    };
+    let d = base;
+    for (let k = 0; k < 60; k++) {
+      const t = test(d);
+      if (typeof t === "number") return t;
+      if (t) return d;
       d *= 1.5;
-      xe = x + dir * d;
     }
-    return Infinity;
+    let fail = d;
+    for (let k = 0; k < 110; k++) {
+      const t = test(d);
+      if (typeof t === "number") return t;
+      if (t) break;
+      fail = d;
+      d *= 1024;
+      if (k === 109) return Infinity;
+    }
+    // fail is not excluded, d is: narrow the ratio d / fail (at most 2^10) to below 1.5 by halving its exponent
+    while (d / fail > 1.5) {
+      // the geometric mean without forming d * fail, which underflows for offsets near the smallest doubles
+      const m = Math.sqrt(d) * Math.sqrt(fail);
+      if (!(m > fail && m < d)) break;
+      const t = test(m);
+      if (typeof t === "number") return Math.min(t, d);
+      if (t) d = m;
+      else fail = m;
+    }
+    return d;
   };
   const eL = c.r - c.e > 0 ? base : walk(-1);
   const eR = c.r + c.e < 0 ? base : walk(1);
