@@ -25,4 +25,9 @@ export async function register() {
   process.on("SIGTERM", () => void stop("SIGTERM"));
   process.on("SIGINT", () => void stop("SIGINT"));
   void flushUsage().catch(() => {});
+  // The compute threads start with the server and warm the engine's code paths before the first requests.
+  void (await import("./lib/compute/pool")).startCompute().then((r) => {
+    const failed = r.flatMap((t) => t.failed);
+    if (failed.length) console.warn(`[sumfold] compute warm-up: ${failed.length} call(s) failed: ${failed.join("; ")}`);
+  });
 }

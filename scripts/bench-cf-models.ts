@@ -6,13 +6,15 @@
 // BENCH_MODELS, BENCH_SEED, BENCH_DEADLINE_MS, BENCH_WARM (see below), BENCH_SKIP_LOGNORMAL=1; BENCH_PART=random or
 // BENCH_PART=poisson-lognormal runs one part alone, BENCH_PLN_LAMBDAS / BENCH_PLN_SIGMAS (comma lists) choose the
 // compounds, BENCH_ROWS=1 prints each compound's CPU times and bounds, BENCH_REPEAT=n times each Poisson-lognormal call n
-// times (a fresh compile each) and keeps the least CPU time (default 1). Pure lib/cf.
+// times (a fresh compile each) and keeps the least CPU time (default 1). The timed calls follow the warm-up a server's
+// compute threads run at start (lib/compute/warm.ts; BENCH_COLD=1 leaves it out). Pure lib/cf and lib/api/operations.
 import { loadavg } from "node:os";
 import { compile } from "@/lib/cf/compile";
 import { clearDeadline, setDeadline } from "@/lib/cf/deadline";
 import { density } from "@/lib/cf/invert/density";
 import { quantiles } from "@/lib/cf/invert/quantile";
 import type { Model } from "@/lib/cf/types";
+import { warmEngine } from "@/lib/compute/warm";
 import { randomModel, rng } from "../tests/support/random-models";
 
 const SEVEN = [0.001, 0.01, 0.1, 0.5, 0.9, 0.99, 0.999];
@@ -83,6 +85,11 @@ function report(label: string, target: number, rows: { ms: number; cpu: number; 
   quantiles(compile(wm), TRIPLE, { expectedShortfall: true });
 }
 
+// the warm-up every compute thread runs when the server starts (lib/compute/warm.ts), so the timed calls meet the
+// engine as a server thread's first requests do; BENCH_COLD=1 leaves it out (a thread's very first calls)
+const cold = process.env.BENCH_COLD === "1";
+const engineWarm = cold ? null : warmEngine();
+
 // BENCH_WARM=n: first run n models of another seed (not timed), so that the timed set meets a process whose code paths
 // are compiled, as a server's is after its first requests; the per-law caches do not carry over (other parameters)
 const warm = part === "poisson-lognormal" ? 0 : Number(process.env.BENCH_WARM ?? 0);
@@ -108,7 +115,11 @@ for (let i = 0; part !== "poisson-lognormal" && i < count; i++) {
   dRows.push({ ms: d.ms, cpu: d.cpu, model, error: d.error });
 }
 if (part !== "poisson-lognormal") {
-  console.log(`seed ${seed}, ${count} random models (sums, mixes, compounds, scales, shifts; up to 8 terms)${warm ? `, after ${warm} untimed models of seed ${seed + 1}` : ""}`);
+  console.log(
+    `seed ${seed}, ${count} random models (sums, mixes, compounds, scales, shifts; up to 8 terms)` +
+      (engineWarm ? `, after the compute threads' warm-up (${engineWarm.done} calls, ${engineWarm.ms} ms)` : ", cold (BENCH_COLD=1)") +
+      (warm ? `, after ${warm} untimed models of seed ${seed + 1}` : ""),
+  );
   report("seven quantiles with ES", 200, qRows);
   report("1000-point density", 100, dRows);
 }

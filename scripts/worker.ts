@@ -2,11 +2,13 @@
 // them on its own compute threads; writes usage to MariaDB (DATABASE_URL) and units to the limiter's Redis. Run
 // any number of them, on any machine that reaches the same Redis and MariaDB. SIGTERM finishes the jobs in hand.
 import { flushUsage } from "../lib/api/metering";
-import { stopCompute } from "../lib/compute/pool";
+import { startCompute, stopCompute } from "../lib/compute/pool";
 import { startJobWorker, workerName } from "../lib/jobs/processor";
 import { ensureComputeWorker } from "./build-worker";
 
 await ensureComputeWorker();
+// the compute threads warm the engine's code paths while the worker connects
+void startCompute();
 const worker = startJobWorker();
 await worker.waitUntilReady();
 console.log(`[sumfold] job worker ${workerName()} ready`);

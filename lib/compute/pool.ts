@@ -43,6 +43,21 @@ function pool(): Piscina {
   return s.pool;
 }
 
+/**
+ * Starts the pool now rather than at the first request, and has each thread run the engine's warm-up once
+ * (lib/compute/warm.ts), so that the first requests meet compiled code. A request that arrives meanwhile waits for a
+ * thread like any other (its deadline counts from when a thread starts it). SUMFOLD_COMPUTE_WARM=0 skips the warm-up.
+ * Resolves when every thread has warmed, with what each did; never rejects.
+ */
+export async function startCompute(): Promise<{ done: number; failed: string[]; skipped: number; ms: number }[]> {
+  const p = pool();
+  if (process.env.SUMFOLD_COMPUTE_WARM === "0") return [];
+  const runs = Array.from({ length: computeThreads() }, () =>
+    p.run(null, { name: "warm" }).catch((e: Error) => ({ done: 0, failed: [`warm-up: ${e.message}`], skipped: 0, ms: 0 })),
+  );
+  return Promise.all(runs);
+}
+
 export interface ComputeRun {
   result: Record<string, unknown>;
   /** time the engine ran in its worker thread */

@@ -8,6 +8,7 @@ import { runCf, runConvolve, runDensity, runMoments, runQuantiles, runRisk } fro
 import { clearDeadline, deadlineProgress, isDeadlineExceeded, setDeadline } from "@/lib/cf/deadline";
 import { isCfError } from "@/lib/cf/errors";
 import type { ComputeOutcome, ComputeTask, OperationName } from "./types";
+import { warmEngine, type WarmReport } from "./warm";
 
 // When the engine and the request thread (health, key checks, metering) or the database compete for the cores,
 // the engine yields: this thread alone runs at a lower priority (on Linux a nice value belongs to one thread).
@@ -53,4 +54,9 @@ export default function compute(task: ComputeTask & { port?: MessagePort }): Com
   } finally {
     clearDeadline();
   }
+}
+
+/** The pool's `warm` task (lib/compute/warm.ts): run once per thread when the pool starts. */
+export function warm(): WarmReport {
+  return warmEngine();
 }
