@@ -169,6 +169,24 @@ export function heavyShortfall(
     const floor = (Number.EPSILON / 2) * 78 * ((2 * h * a) / Math.PI) * (1 - 1e-6);
     return (roundFloors[lev] = Number.isFinite(floor) ? floor : 0);
   };
+  // a lower bound on level lev's node-value allowance (levelSum's `values`), known before its nodes are built: each node's
+  // error is at least perNode of absAt (the declared absolute error less the most buildNodes charges per node instead), so
+  // values >= (2h/pi) perNode sum_{k < m} 1/t_k^2 over the first m <= K nodes, less 1e-8 for the sums' rounding (at most
+  // 2 K u relative, K <= 2^21). It grows with the level (1/h doubles, K does not fall), and every bound levelRaw gives
+  // is at least it: where it reaches the best bound so far, no level from lev on can lower that bound
+  const relTaken = part.model.cfRelError !== undefined && part.model.cfRelError >= 0 && Number.isFinite(part.model.cfRelError) ? part.model.cfRelError : 0;
+  const leastPerNode = ((Math.max(part.cfAbsError - relTaken, 0) + 16 * Number.EPSILON * (1 + pa + kb)) / part.weight) * (1 + 4 * Number.EPSILON);
+  const valuesFloorAt = (lev: number) => {
+    const h = (2 * Math.PI) / (T0 * 2 ** lev);
+    const m = Math.min(Math.max(8, Math.ceil(tmax / h)), 1 << 21, 1024);
+    let s = 0;
+    for (let k = 0; k < m; k++) {
+      const tk = (k + 0.5) * h;
+      s += leastPerNode / (tk * tk);
+    }
+    const floor = ((2 * h * s) / Math.PI) * (1 - 1e-8);
+    return Number.isFinite(floor) ? floor : 0;
+  };
   const boundAt = stopLossBuckets(resid, pair, T0);
   // level lev's sum V = mass T/2 - (2h/pi) sum_k Re(phi_k e^{-i t_k y}) / t_k^2 less the images, its rounding and the images' bound
   const levelSum = (lev: number, q: number, y: number) => {
@@ -258,6 +276,8 @@ export function heavyShortfall(
         const bPrev = boundAt(lev - 1, T0 * 2 ** (lev - 1), q, kind);
         const rate = bPrev > 0 && Number.isFinite(bPrev) ? Math.min(1, bNow / bPrev) : 1;
         if (!(bestD.err * rate <= goal) && lev > topL) break;
+        // the next levels' node values alone reach the best bound: none of them can lower it (their nodes not built)
+        if (valuesFloorAt(lev + 1) >= bestD.err) break;
       }
       if (Number.isFinite(bestD.err)) return finish(q, bestD.value, bestD.err, true, goal);
     }
