@@ -169,22 +169,33 @@ export function heavyShortfall(
     const floor = (Number.EPSILON / 2) * 78 * ((2 * h * a) / Math.PI) * (1 - 1e-6);
     return (roundFloors[lev] = Number.isFinite(floor) ? floor : 0);
   };
-  // a lower bound on level lev's node-value allowance (levelSum's `values`), known before its nodes are built: each node's
-  // error is at least perNode of absAt (the declared absolute error less the most buildNodes charges per node instead), so
-  // values >= (2h/pi) perNode sum_{k < m} 1/t_k^2 over the first m <= K nodes, less 1e-8 for the sums' rounding (at most
-  // 2 K u relative, K <= 2^21). It grows with the level (1/h doubles, K does not fall), and every bound levelRaw gives
-  // is at least it: where it reaches the best bound so far, no level from lev on can lower that bound
+  // a lower bound on level lev's node-value allowance (levelSum's `values`), known before its nodes are built: over its
+  // first m <= 64 nodes, (2h/pi) sum (e_k + perNode) / t_k^2 with e_k = (r_k + cfRelTaken) e^{Re L_k} / w, the least
+  // buildNodes charges node k (its e_k takes the larger of that modulus and the part's); perNode as absAt's with the most
+  // buildNodes may take off. The CF is evaluated here on those nodes alone, which may take another route than the
+  // level's block (a batched rule): both values lie within r_k of phi (r_k its derived relative error, here at most
+  // 1e-7, else no floor), so the level's e_k is at least (1 - 3 r_k) of this one; 1e-6 off covers that and the sums'
+  // rounding. Every bound levelRaw gives at level lev is at least it (independent of q: kept per level)
   const relTaken = part.model.cfRelError !== undefined && part.model.cfRelError >= 0 && Number.isFinite(part.model.cfRelError) ? part.model.cfRelError : 0;
   const leastPerNode = ((Math.max(part.cfAbsError - relTaken, 0) + 16 * Number.EPSILON * (1 + pa + kb)) / part.weight) * (1 + 4 * Number.EPSILON);
-  const valuesFloorAt = (lev: number) => {
+  const valuesFloors: number[] = [];
+  const valuesFloorAt = (lev: number) => (valuesFloors[lev] ??= valuesFloorOf(lev));
+  const valuesFloorOf = (lev: number) => {
     const h = (2 * Math.PI) / (T0 * 2 ** lev);
-    const m = Math.min(Math.max(8, Math.ceil(tmax / h)), 1 << 21, 1024);
+    const m = Math.min(Math.max(8, Math.ceil(tmax / h)), 1 << 21, 64);
+    const t = new Float64Array(m);
+    for (let k = 0; k < m; k++) t[k] = (k + 0.5) * h;
+    const re = new Float64Array(m);
+    const im = new Float64Array(m);
+    const rel = new Float64Array(m);
+    const mod = new Float64Array(m);
+    evalPart(part, t, re, im, rel, undefined, mod);
     let s = 0;
     for (let k = 0; k < m; k++) {
-      const tk = (k + 0.5) * h;
-      s += leastPerNode / (tk * tk);
+      if (!(rel[k] <= 1e-7)) return 0;
+      s += ((rel[k] + relTaken) * (mod[k] / part.weight) + leastPerNode) / (t[k] * t[k]);
     }
-    const floor = ((2 * h * s) / Math.PI) * (1 - 1e-8);
+    const floor = ((2 * h * s) / Math.PI) * (1 - 1e-6);
     return Number.isFinite(floor) ? floor : 0;
   };
   const boundAt = stopLossBuckets(resid, pair, T0);
@@ -276,8 +287,11 @@ export function heavyShortfall(
         const bPrev = boundAt(lev - 1, T0 * 2 ** (lev - 1), q, kind);
         const rate = bPrev > 0 && Number.isFinite(bPrev) ? Math.min(1, bNow / bPrev) : 1;
         if (!(bestD.err * rate <= goal) && lev > topL) break;
-        // the next levels' node values alone reach the best bound: none of them can lower it (their nodes not built)
-        if (valuesFloorAt(lev + 1) >= bestD.err) break;
+        // where every level left has node values whose allowance alone reaches the best bound, none can lower it: their
+        // nodes are not built
+        let open = false;
+        for (let j = lev + 1; j < 8 && !open; j++) open = !(valuesFloorAt(j) >= bestD.err);
+        if (!open) break;
       }
       if (Number.isFinite(bestD.err)) return finish(q, bestD.value, bestD.err, true, goal);
     }
