@@ -38,6 +38,8 @@ export function weibullSeries(k: number, terms = 400): WeibullSeries {
 export const SERIES_REMAINDER = 1e-17;
 export const SERIES_TOLERANCE = 2e-14;
 const U = Number.EPSILON / 2;
+/** log SERIES_REMAINDER plus a margin far above exp's and log's rounding: exp(x) > SERIES_REMAINDER for every x above it */
+const LOG_REMAINDER_HI = Math.log(SERIES_REMAINDER) + 1e-6;
 
 /**
  * The series of `ser` at |z| = a, arg z = -rot in [0, pi/2], summed until its remainder bound falls below
@@ -73,7 +75,8 @@ export function weibullAsymptotic(ser: WeibullSeries, a: number, out: Float64Arr
     const lb = lc[j] - (j + 1) * klf;
     if (lb > prev) return false;
     prev = lb;
-    const rem = Math.exp(lb);
+    // (exp(lb) is above SERIES_REMAINDER wherever lb is above LOG_REMAINDER_HI: the test below only where it may pass)
+    const rem = lb <= LOG_REMAINDER_HI ? Math.exp(lb) : Infinity;
     if (rem <= SERIES_REMAINDER) {
       const bound = rem + U * (round + (j + 1) * mSum);
       if (!(bound <= SERIES_TOLERANCE)) return false;
