@@ -197,8 +197,10 @@ const GRID_U = U * (1 + 8 * EPS);
  * buildNodes' per-node moves of the part: the rounded node (off by j u t_k, j = 1 point by point and 2 on the FFT; 0 where the
  * nodes are exact) and the model's own rounded arguments (cfArgSlope S / w per unit t) move the value by at most
  * j u t_k D(t_k) + S t_k / w, D a bound on |psi'| past t_k (1 - 2u): partLipschitz's L, or for a part without atoms or a tail
- * whose model derives a slope majorant S about c0, S(t) + |c - c0| M(t) (both non-increasing; ./envelope-bound.ts uses the
- * same) plus each endpoint kernel's closed-form derivative |b| (|at - c| + m / |rate - i t|) |1 - i t / rate|^-m. And by at
+ * whose model derives a slope majorant S about c0, S(t_j) + |c - c0| M(t_j) at t_j (1 - 2u), t_j the first node of t_k's run
+ * (t_k <= t_j SLOPE_RUN; both non-increasing, so at most (1 + 2^-7)^p looser for majorants falling like t^-p than at t_k
+ * itself, at a call per run instead of per node; ./envelope-bound.ts uses the same majorants) plus each endpoint kernel's
+ * closed-form derivative |b| (|at - c| + m / |rate - i t|) |1 - i t / rate|^-m at t_k. And by at
  * most |psi~_k| + its error + env(t_k): the value computed there (within its relative error and the declared absolute one)
  * and the exact one (the step the truncation bound integrates, inside the probed range only). The lesser is kept; a bound
  * not derived (L, S) is left out. `block` takes each block of nodes with their values, in order; `sums` the cdf and pdf
@@ -222,6 +224,10 @@ export function nodeMoves(part: ContinuousPart, env: Envelope, B: number, exact:
   // the computed value's absolute error beyond its relative one: the declared CF error, the subtractions' rounding
   const abs0 = (2 * part.cfAbsError + 16 * EPS * (1 + pa + kb)) / part.weight;
   const tl = new Float64Array(B);
+  // the majorants are taken at the first node of each run over which t grows by at most SLOPE_RUN (both are non-increasing,
+  // so the run's first value bounds its later nodes, as in addGridNoise): ts holds a block's run starts, run[i] node i's run
+  const ts = slopeMaj ? new Float64Array(B) : null;
+  const run = slopeMaj ? new Int32Array(B) : null;
   const sv = slopeMaj ? new Float64Array(B) : null;
   const mv = slopeMaj ? new Float64Array(B) : null;
   const dCen = slopeMaj ? Math.abs(part.center - slopeMaj.center) * (1 + 4 * EPS) + 4 * EPS * Math.abs(part.center) : 0;
@@ -231,19 +237,36 @@ export function nodeMoves(part: ContinuousPart, env: Envelope, B: number, exact:
   let gp1 = 0;
   let gc2 = 0;
   let gp2 = 0;
+  // the current run's end (t at most this) and its S(t_j) + |c - c0| M(t_j), carried from one block to the next
+  let runUntil = -Infinity;
+  let runS = 0;
   return {
     block(tb: Float64Array, n: number, i0: number, re: Float64Array, im: Float64Array, rel: Float64Array): void {
       if (lip === 0 && S === 0 && !errAt) return;
       for (let i = 0; i < n; i++) tl[i] = tb[i] * (1 - 2 * GRID_U);
+      let nr = 0;
       if (slopeMaj) {
-        slopeMaj.at(tl.subarray(0, n), sv!.subarray(0, n));
-        maj!(tl.subarray(0, n), mv!.subarray(0, n));
+        // run -1: the run carried over from the previous block
+        let until = runUntil;
+        for (let i = 0; i < n; i++) {
+          if (!(tl[i] >= 0 && tl[i] <= until)) {
+            ts![nr] = tl[i];
+            until = tl[i] * SLOPE_RUN;
+            nr++;
+          }
+          run![i] = nr - 1;
+        }
+        runUntil = until;
+        slopeMaj.at(ts!.subarray(0, nr), sv!.subarray(0, nr));
+        maj!(ts!.subarray(0, nr), mv!.subarray(0, nr));
+        for (let r = 0; r < nr; r++) sv![r] += dCen * Math.exp(mv![r]);
       }
       for (let i = 0; i < n; i++) {
         const tk = tb[i];
         let d = lip;
         if (sv) {
-          let s = sv[i] + dCen * Math.exp(mv![i]);
+          const r = run![i];
+          let s = r < 0 ? runS : sv[r];
           for (const q of kd) {
             const r = Math.hypot(1, tl[i] / q.rate);
             s += q.b * (q.d + q.m / (q.rate * r)) * Math.pow(r, -q.m);
@@ -271,6 +294,7 @@ export function nodeMoves(part: ContinuousPart, env: Envelope, B: number, exact:
         gc2 += a2 * inv;
         gp2 += a2;
       }
+      if (nr > 0) runS = sv![nr - 1];
     },
     /** g: the running sums' relative allowance (1 + K eps) */
     sums(h: number, g: number) {
