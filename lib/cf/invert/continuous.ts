@@ -9,24 +9,21 @@ import { gammaPdf } from "./incgamma";
 import type { ErrorEstimate } from "./types";
 import { heavyPath, imagePlan, maybeTailLaw, pairUsable } from "./heavy";
 import {
-  MAX_FFT,
   addKernels,
   chooseTerms,
   evaluate,
-  gridLayout,
   kernelOutside,
   kernelTotals,
   nPoints,
   requestPoints,
   roundingOf,
   ymaxOf,
-  type Layout,
   type PartOptions,
   type PartOutput,
   type Request,
 } from "./shared";
 import { checkDeadline } from "../deadline";
-import { exactGridStep } from "../arg-rounding";
+import { ITERATIONS, nextEvaluated, widened, windowGeometry } from "./window-skip";
 
 export type { PartOptions, PartOutput, PartSolution, Request } from "./shared";
 export { evalLadder, growLadder, heavyLadder, type HeavyLadder } from "./heavy-ladder";
@@ -249,31 +246,26 @@ function lightPath(
   const sf = new Float64Array(n);
   const [lo, hi] = shape.support;
   let last: PartOutput | null = null;
-  for (let iter = 0; iter < 5; iter++) {
+  // the windows before `next` are only widened, not evaluated (./window-skip.ts: predicted to miss the aliasing target);
+  // the last of the ITERATIONS is always evaluated
+  let next = 0;
+  for (let iter = 0; iter < ITERATIONS; iter++) {
     checkDeadline("refine");
-    let layout: Layout | null = null;
-    if (req.kind === "grid" && method === "fft") {
-      layout = gridLayout(req, a, b, {
-        left: !(Number.isFinite(lo) && a < lo),
-        right: !(Number.isFinite(hi) && b > hi),
-      });
-      if (layout.N > MAX_FFT) {
-        layout = null;
-        method = "gil-pelaez";
-        notes.push("grid too fine for the window: evaluated point by point");
-      } else {
-        a = layout.x0;
-        b = layout.x0 + layout.N * req.dx;
-      }
-    }
-    // point by point the step is rounded down to an exact one (the nodes (k + 1/2) h then exact, ../arg-rounding.ts; the
-    // period grows by at most 2^-28 relative); the FFT's step is tied to the grid's
-    const h = layout ? (2 * Math.PI) / (b - a) : exactGridStep((2 * Math.PI) / (b - a));
-    if (!layout) b = a + (2 * Math.PI) / h;
-    const T = b - a;
+    const g = windowGeometry(req, a, b, method, shape.support);
+    if (g.tooFine) notes.push("grid too fine for the window: evaluated point by point");
+    const { layout, h, T } = g;
+    method = g.method;
+    a = g.a;
+    b = g.b;
     const K = chooseTerms(tmax, h, method, n);
     // the window only widens (h falls), so the count only grows from here
     if (opt.maxTerms !== undefined && K > opt.maxTerms) throw new TermsOverCap(K);
+    if (iter < next) {
+      // widened as a failed window is (below)
+      const w = widened(g, shape.support);
+      if (w) ({ a, b } = w);
+      continue;
+    }
     const nodes = buildNodes(part, h, K, env);
     evaluate(part, nodes, req, layout, opt.wantPdf, pdf, cdf, sf);
     // edge probes for the aliasing bounds
@@ -346,12 +338,11 @@ function lightPath(
       aliasCore <= Math.max(aliasTarget, sumErrCdf) && (!opt.wantPdf || aliasPdf <= Math.max(aliasTarget, 1.01 * pdfFloor));
     if (ok || opt.range) break;
     // widen: open sides grow by a quarter of the width each
-    const grow = T / 4;
-    const leftOpen = !(Number.isFinite(lo) && a < lo);
-    const rightOpen = !(Number.isFinite(hi) && b > hi);
-    if (leftOpen) a -= grow;
-    if (rightOpen) b += grow;
-    if (!leftOpen && !rightOpen) break;
+    const w = widened(g, shape.support);
+    if (!w) break;
+    const probe = { a, b, T, ds, left: ec.subarray(1, 1 + ds.length), right: es.subarray(1 + ds.length), edge: Math.abs(ec[0]) };
+    next = nextEvaluated({ ...probe, aliasCore, aliasPdf, sumErrCdf, aliasTarget, wantPdf: opt.wantPdf }, iter, req, method, shape.support);
+    ({ a, b } = w);
   }
   if (part.kernels.length) addKernels(part, requestPoints(req), pdf, cdf, sf);
   return last!;
