@@ -18,7 +18,7 @@ export type ScratchSlot =
   | "gridC"
   | "gridP"
   // a Poisson compound's severity transform (damped-cf.ts compoundDamped), and the equispaced quadrature sums with their
-  // compensations (families/cf-quadrature.ts expSumArithmetic, families/numeric.ts pareto): none of them calls another
+  // compensations (families/cf-quadrature.ts expSumArithmetic; the pareto's, weibull's and lognormal's sums): none of them calls another
   // user of its slot while it holds it
   | "cmpRe"
   | "cmpIm"

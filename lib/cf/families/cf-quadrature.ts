@@ -9,7 +9,7 @@ import { scratch } from "../damped-scratch";
 import { quadratureNodes } from "./numeric-rule";
 import { KahanComplex } from "./kahan";
 import { recurrenceSums } from "./exp-sum-recurrence";
-import { SHIFT_BLOCK, complexMoments, realMoments, shiftedMoments } from "./exp-sum-moments";
+import { SHIFT_BLOCK, complexMoments, realMoments, shiftedMoments, shiftedMomentsComplexW } from "./exp-sum-moments";
 
 /**
  * Shared driver: phi(t) for t > 0 from a per-t quadrature, phi(-t) = conj phi(t), phi(0) = 1; then log with the
@@ -135,8 +135,9 @@ export const EXP_SUM_REL = Math.E * (MOMENT_REMAINDER + 80 * Number.EPSILON);
  * Quadrature sums S_k = sum_j c_j exp(t_k e_j w) at equispaced frequencies t_k (step d, see arithmeticNodes), for the rules
  * above, in which the frequency enters only through exp(t e_j w) (nodes 0 < e_0 <= e_1 <= ..., Re w < 0).
  * Nodes with t_max e_j |w| <= 1 are summed through their moments, exp(z) = sum_{m <= 24} z^m / m! + R with
- * |R| <= e / 25! for |z| <= 1 (Taylor, Lagrange remainder), and with a real w those with SHIFT_BLOCK d e_j |w| <= 1 the same
- * way about each block's first frequency (./exp-sum-moments.ts shiftedMoments); the others by the recurrence
+ * |R| <= e / 25! for |z| <= 1 (Taylor, Lagrange remainder), and with a real w (or a complex one, given `complexShift`: the
+ * caller's rounding bound then takes numeric-rule.ts complexShiftUnits) those with SHIFT_BLOCK d e_j |w| <= 1 the same
+ * way about each block's first frequency (./exp-sum-moments.ts shiftedMoments, shiftedMomentsComplexW); the others by the recurrence
  * z_{k+1} = z_k exp(d e_j w) (one complex multiply, restarted directly every 16 steps: relative drift below
  * 16 (sqrt 5 + 2) eps), dropped once |c_j exp(t e_j w)| < 1e-21 (the magnitude only decreases after that).
  * Returns the bound on |S_k - rule| these shortcuts add: sum_j |c_j| (e/25! + 80 eps) + n 1e-21, where the drift of a
@@ -151,6 +152,7 @@ export function expSumArithmetic(
   tk: Float64Array,
   outRe: Float64Array,
   outIm: Float64Array,
+  complexShift = false,
 ): number {
   const n = e.length;
   const K = tk.length;
@@ -174,8 +176,11 @@ export function expSumArithmetic(
   // a real w: the nodes with SHIFT_BLOCK d e_j |w| <= 1 past J0 through their moments about each block's first frequency
   // (shiftedMoments); the recurrence takes the rest
   let J1 = J0;
-  if (wIm === 0 && K >= 2 * SHIFT_BLOCK) while (J1 < n && SHIFT_BLOCK * d * e[J1] * wAbs <= 1) J1++;
-  if (J1 > J0) absSum += shiftedMoments(cRe, cIm, e, J0, J1, wRe, tk, outRe, outIm, kr, ki, real);
+  if ((wIm === 0 || complexShift) && K >= 2 * SHIFT_BLOCK) while (J1 < n && SHIFT_BLOCK * d * e[J1] * wAbs <= 1) J1++;
+  if (J1 > J0) {
+    absSum +=
+      wIm === 0 ? shiftedMoments(cRe, cIm, e, J0, J1, wRe, tk, outRe, outIm, kr, ki, real) : shiftedMomentsComplexW(cRe, cIm, e, J0, J1, wRe, wIm, tk, outRe, outIm, kr, ki);
+  }
   const cut = new Float64Array(n);
   const live = new Uint8Array(n);
   absSum += liveNodes(cRe, cIm, e, J1, wRe, tk[0], cut, live);

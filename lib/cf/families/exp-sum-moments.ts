@@ -154,6 +154,84 @@ export function shiftedMoments(
   return absSum;
 }
 
+/**
+ * shiftedMoments for a complex w (Re w < 0): the block's weights c'_j = c_j exp(t_a e_j w) (|c'_j| <= |c_j|), the moments
+ * sum_j c'_j e_j^m / m! compensated, and the Taylor sums at the complex z = (t - t_a) w, |z e_j| <= 1 (the same remainder),
+ * each block's total added into the sums compensated. Returns sum |c_j| over the nodes taken.
+ */
+export function shiftedMomentsComplexW(
+  cRe: Float64Array,
+  cIm: Float64Array,
+  e: Float64Array,
+  J0: number,
+  J1: number,
+  wRe: number,
+  wIm: number,
+  tk: Float64Array,
+  outRe: Float64Array,
+  outIm: Float64Array,
+  kr: Float64Array,
+  ki: Float64Array,
+): number {
+  const M = MOMENT_ORDER;
+  const K = tk.length;
+  const mr = new Float64Array(M + 1);
+  const mi = new Float64Array(M + 1);
+  const qr = new Float64Array(M + 1);
+  const qi = new Float64Array(M + 1);
+  const inv = FACTORIAL;
+  let absSum = 0;
+  for (let j = J0; j < J1; j++) absSum += cabs(cRe[j], cIm[j]);
+  for (let k0 = 0; k0 < K; k0 += SHIFT_BLOCK) {
+    if ((k0 & 8191) === 0) checkDeadline("cf-quadrature");
+    const k1 = Math.min(K, k0 + SHIFT_BLOCK);
+    const ta = tk[k0];
+    mr.fill(0);
+    mi.fill(0);
+    qr.fill(0);
+    qi.fill(0);
+    for (let j = J0; j < J1; j++) {
+      const g = Math.exp(ta * (e[j] * wRe));
+      const ph = ta * (e[j] * wIm);
+      const gr = g * Math.cos(ph);
+      const gi = g * Math.sin(ph);
+      const ar = cRe[j] * gr - cIm[j] * gi;
+      const ai = cRe[j] * gi + cIm[j] * gr;
+      let p = 1;
+      for (let m = 0; m <= M; m++) {
+        const yr = ar * p - qr[m];
+        const tr = mr[m] + yr;
+        qr[m] = tr - mr[m] - yr;
+        mr[m] = tr;
+        const yi = ai * p - qi[m];
+        const ti = mi[m] + yi;
+        qi[m] = ti - mi[m] - yi;
+        mi[m] = ti;
+        p *= e[j];
+      }
+    }
+    for (let m = 1; m <= M; m++) {
+      mr[m] /= inv[m];
+      mi[m] /= inv[m];
+    }
+    for (let k = k0; k < k1; k++) {
+      const dt = tk[k] - ta;
+      const zr = dt * wRe;
+      const zi = dt * wIm;
+      let ar = mr[M];
+      let ai = mi[M];
+      for (let m = M - 1; m >= 0; m--) {
+        const nr = ar * zr - ai * zi + mr[m];
+        ai = ar * zi + ai * zr + mi[m];
+        ar = nr;
+      }
+      kahanAdd(outRe, kr, k, ar);
+      kahanAdd(outIm, ki, k, ai);
+    }
+  }
+  return absSum;
+}
+
 /** out[k] += a compensated by q[k] (Kahan) */
 function kahanAdd(out: Float64Array, q: Float64Array, k: number, a: number): void {
   const y = a - q[k];

@@ -5,8 +5,9 @@ import type { Node } from "../node";
 import { fromPhiDamped } from "../damped-cf";
 import { withGgcLogRound } from "./log-round";
 import { arithmeticNodes, expSumArithmetic, fromPhi } from "./cf-quadrature";
-import { SUM_MOMENT_UNITS, arithmetic, logFromSums, quadratureNodes } from "./numeric-rule";
+import { COMPLEX_SHIFT_MAX_COT, SUM_MOMENT_UNITS, arithmetic, complexShiftUnits, logFromSums, quadratureNodes } from "./numeric-rule";
 import { KahanComplex } from "./kahan";
+import { scratch } from "../damped-scratch";
 import { connectedGraphSums } from "./connected-graphs";
 import { decayTable } from "./decay-table";
 
@@ -181,10 +182,13 @@ export function lognormal(mu: number, sigma: number): Node {
   // i e^{i theta} = -sin theta + i cos theta: at theta = pi/2 exactly -1 (cos(pi/2) rounds to 6e-17, which would only
   // turn each term's phase by t e_j 6e-17 and keep the sums on the complex recurrence)
   const wIm = theta === Math.PI / 2 ? 0 : Math.cos(theta);
+  // at a complex w the shifted moments too where cot theta is moderate (their rounding in roundingBound)
+  const shiftComplex = wIm !== 0 && 1 / Math.tan(theta) <= COMPLEX_SHIFT_MAX_COT;
   const logCfArithmetic = (t: Float64Array, re: Float64Array, im: Float64Array) => {
-    const sr = new Float64Array(t.length);
-    const si = new Float64Array(t.length);
-    expSumArithmetic(qRe, qIm, qE, -Math.sin(theta), wIm, t, sr, si);
+    // reused buffers (../damped-scratch.ts), every entry written by expSumArithmetic
+    const sr = scratch("expSr", t.length);
+    const si = scratch("expSi", t.length);
+    expSumArithmetic(qRe, qIm, qE, -Math.sin(theta), wIm, t, sr, si, shiftComplex);
     logFromSums(t, sr, si, re, im, 0, 0, 0);
   };
   // the bound expSumArithmetic adds (moments, recurrence), from the rule's terms: sum |c_j| = e^{c^2/2} sum w_j
@@ -313,7 +317,8 @@ function ruleError(c: number, h: number, V: number, wSum: number, batch: boolean
  *    m b) <= 3u D (1 + cot(0.9 theta)), bounded through the decay by e^{-D} D <= 1/e as above;
  *  - the compensated sum of n terms per frequency and in the equispaced sums: 2 sqrt 2 u + 8 n u^2 of the moduli
  *    (Higham, Accuracy and Stability of Numerical Algorithms, 2nd ed., sec. 4.3), with the equispaced sums' moments
- *    (SUM_MOMENT_UNITS, numeric-rule.ts); the damped batch's plain sum: sqrt 2 gamma_{n-1} (Higham sec. 4.2);
+ *    (SUM_MOMENT_UNITS, numeric-rule.ts; complexShiftUnits, at least as large, for the shifted moments at a complex w);
+ *    the damped batch's plain sum: sqrt 2 gamma_{n-1} (Higham sec. 4.2);
  *  - a value comes from one route, so the bound takes the largest route's part, not their sum; `single` is the
  *    per-frequency route's alone (its compensated sum, no recurrence or shortcuts).
  * The weights sum these with the rule's own weights w_j (sum w_j v_j^2 ~ 1), not with the largest |v_j|.
@@ -333,7 +338,7 @@ function roundingBound(w: Float64Array, v: Float64Array, n: number, sigma: numbe
   // equispaced sums (their moments and the sum, and their shortcuts `shortcut`, already divided by e^{c^2/2})
   // the damped batch sums its nodes plainly (its inner loop is the hot one): gamma_{n-1} of each part's moduli
   const damped = 8 + (3 * (1 + cot9)) / Math.E + (Math.SQRT2 * (n - 1)) / (1 - (n - 1) * U);
-  const equispaced = kahan + SUM_MOMENT_UNITS;
+  const equispaced = kahan + (theta !== Math.PI / 2 && cot <= COMPLEX_SHIFT_MAX_COT ? complexShiftUnits(cot) : SUM_MOMENT_UNITS);
   return { all: U * base + Math.max(U * wSum * damped, U * wSum * equispaced + shortcut), single: U * base + U * wSum * kahan };
 }
 

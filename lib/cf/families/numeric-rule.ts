@@ -61,11 +61,12 @@ export function logFromSums(
  *  - per frequency and across the batch's frequencies the sums are compensated (Kahan): the real and imaginary parts
  *    each within (2u + O(n u^2)) of their parts' moduli (Higham, Accuracy and Stability of Numerical Algorithms, 2nd
  *    ed., sec. 4.3), |Re| + |Im| <= sqrt 2 |x|, the O(n u^2) taken as 8 n u^2 (its size is below 1e-27 here);
- *  - the equispaced sums' 24 moments (SUM_MOMENT_UNITS) for the nodes summed through them.
+ *  - the equispaced sums' 24 moments (`momentUnits`: SUM_MOMENT_UNITS, complexShiftUnits where the shifted moments take a
+ *    complex w) for the nodes summed through them.
  */
-export function ruleRounding(n: number, absSum: number, termErrors: number): number {
+export function ruleRounding(n: number, absSum: number, termErrors: number, momentUnits = SUM_MOMENT_UNITS): number {
   const u = Number.EPSILON / 2;
-  return u * ((2 * Math.SQRT2 + 8 * n * u + SUM_MOMENT_UNITS) * absSum + termErrors);
+  return u * ((2 * Math.SQRT2 + 8 * n * u + momentUnits) * absSum + termErrors);
 }
 
 /**
@@ -78,3 +79,20 @@ export function ruleRounding(n: number, absSum: number, termErrors: number): num
  * rounds twice (one m u more): (8 m + 8) u of |c_j| x^m / m!, summing to e^x (8 x + 8) <= 16 e, which is taken for both.
  */
 export const SUM_MOMENT_UNITS = 16 * Math.E;
+
+/**
+ * The moment routes' units (as SUM_MOMENT_UNITS) where expSumArithmetic also takes the shifted moments with a complex
+ * w = -sin(th) + i cos(th) (its `complexShift`; cot = cot th >= 0): about a block's first frequency t_a the weight
+ * c_j e^{-D} e^{i phi}, D = t_a e_j sin th, phi = D cot th, each argument within 2u of itself (two products), exp, cos and
+ * sin within 2u (one ulp), the products by e^{-D} u and the complex product with c_j 2 sqrt 2 u: within
+ * (2 D + 2 sqrt 2 D cot + 2 + 5 sqrt 2) e^{-D} u <= (2 (1 + sqrt 2 cot) / e + 9.08) u of |c_j| (D e^{-D} <= 1/e); the
+ * moments and Horner at the complex z = (t - t_a) w as the moments about 0 ((7 m + 4) u) with z's two roundings (m u
+ * more): term m within (8 m + 13.08 + 2 (1 + sqrt 2 cot) / e) u of |c_j| x^m / m!, x <= 1, summing to at most
+ * 21.08 e + 2 (1 + sqrt 2 cot); the larger of that and SUM_MOMENT_UNITS.
+ */
+export function complexShiftUnits(cot: number): number {
+  return Math.max(SUM_MOMENT_UNITS, 21.1 * Math.E + 2 * (1 + Math.SQRT2 * cot));
+}
+
+/** the largest cot(th) for which a family takes the complex shifted moments (their units grow with it) */
+export const COMPLEX_SHIFT_MAX_COT = 4;

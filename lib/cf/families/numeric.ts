@@ -3,8 +3,9 @@ import { rawToCumulants, type Node } from "../node";
 import { fromPhiDamped } from "../damped-cf";
 import { arithmeticNodes, expSumArithmetic, fromPhi } from "./cf-quadrature";
 import { SERIES_TOLERANCE, seriesBoundEnvelope, weibullAsymptotic, weibullExpansion, weibullSeries } from "./asymptotic";
-import { logFromSums, quadratureNodes, ruleRounding } from "./numeric-rule";
+import { COMPLEX_SHIFT_MAX_COT, SUM_MOMENT_UNITS, complexShiftUnits, logFromSums, quadratureNodes, ruleRounding } from "./numeric-rule";
 import { KahanComplex } from "./kahan";
+import { scratch } from "../damped-scratch";
 import { weibullRemainder } from "../endpoint-remainder";
 import { decayTable } from "./decay-table";
 import { withGgcLogRound } from "./log-round";
@@ -80,7 +81,8 @@ export function weibull(k: number, lambda: number): Node {
     out[1] = acc.im;
   };
   // the same rule for equispaced t (the inversion's nodes), valid at every t (the series above is not needed):
-  // term j is amp0_j e^{i ph0_j} exp(t e_j i e^{i theta}), e_j = lambda e^{s_j}, summed by expSumArithmetic
+  // term j is amp0_j e^{i ph0_j} exp(t e_j i e^{i theta}), e_j = lambda e^{s_j}, summed by expSumArithmetic (with its
+  // shifted moments at the complex w = i e^{i theta}, their rounding in complexShiftUnits)
   const qRe = new Float64Array(n);
   const qIm = new Float64Array(n);
   const qE = new Float64Array(n);
@@ -96,18 +98,21 @@ export function weibull(k: number, lambda: number): Node {
   // and frequency, the series' a few terms per frequency). Below shape 0.75 the series needs more terms near a = 4 than
   // the rule costs (measured: shape 0.5 took twice the rule's time, shapes 0.8 to 2.1 1.2 to 2.3 times less)
   const seriesTop = k >= 0.75;
+  // the complex shifted moments (their rounding grows with cot theta: shapes up to about 3.2)
+  const shiftComplex = 1 / Math.tan(theta) <= COMPLEX_SHIFT_MAX_COT;
   const one = new Float64Array(2);
   const logCfArithmetic = (t: Float64Array, re: Float64Array, im: Float64Array) => {
     const K = t.length;
-    const sr = new Float64Array(K);
-    const si = new Float64Array(K);
+    // reused buffers (../damped-scratch.ts), every entry written below before it is read
+    const sr = scratch("expSr", K);
+    const si = scratch("expSi", K);
     let cut = K;
     while (seriesTop && cut > 0 && t[cut - 1] * lambda > 4 && weibullAsymptotic(ser, t[cut - 1] * lambda, one, 0)) {
       cut--;
       sr[cut] = one[0];
       si[cut] = one[1];
     }
-    if (cut >= 2) expSumArithmetic(qRe, qIm, qE, -Math.sin(theta), Math.cos(theta), t.subarray(0, cut), sr.subarray(0, cut), si.subarray(0, cut));
+    if (cut >= 2) expSumArithmetic(qRe, qIm, qE, -Math.sin(theta), Math.cos(theta), t.subarray(0, cut), sr.subarray(0, cut), si.subarray(0, cut), shiftComplex);
     else if (cut === 1) {
       phiAt(t[0], 0, one);
       sr[0] = one[0];
@@ -128,7 +133,10 @@ export function weibull(k: number, lambda: number): Node {
     termErrors += amp0[j] * kap;
   }
   // the large-t series answers only where its own bound (remainder and rounding) is below SERIES_TOLERANCE
-  const cfError = Math.max(SERIES_TOLERANCE, weibullRuleError(k, theta, h, cosK) + aSum * (2e-25 + 96 * Number.EPSILON) + n * 1e-21 + ruleRounding(n, aSum, termErrors));
+  const cfError = Math.max(
+    SERIES_TOLERANCE,
+    weibullRuleError(k, theta, h, cosK) + aSum * (2e-25 + 96 * Number.EPSILON) + n * 1e-21 + ruleRounding(n, aSum, termErrors, shiftComplex ? complexShiftUnits(cot) : SUM_MOMENT_UNITS),
+  );
   // Per frequency (Node.dampedErrorAt, the damped transform phiAt gives): where the series may answer, the larger of a
   // bound on its own bound (seriesBoundEnvelope) and the rule's; the rule's error (weibullRuleError) and its rounding,
   // each part of which is relative to the terms' moduli at that
