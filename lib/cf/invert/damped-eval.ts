@@ -60,6 +60,7 @@ const B = 64;
 const tabRe = new Float64Array(B);
 const tabIm = new Float64Array(B);
 const tp = new Float64Array(2);
+const ph = new Float64Array(2);
 
 /**
  * e^{-i a y} for an exact double a and y = yh + yl exactly: a yh split into p + e exactly, cos and sin of p (correctly
@@ -93,8 +94,9 @@ export function dampedAt(s: DampedSolution, x: number, wantPdf: boolean, wantInt
   const { h, K, pRe, pIm, cRe, cIm, iRe, iIm } = s;
   if (wantInt && iRe.length < K) throw new Error("dampedAt: the solution was set up without the integrated cdf");
   if (wantPdf && pRe.length < K) throw new Error("dampedAt: the solution was set up without the density");
-  const ph = new Float64Array(2);
-  for (let j = 0; j < B; j++) {
+  // the table's entries past the last term are not used (a solution of fewer than B terms)
+  const J = Math.min(B, K);
+  for (let j = 0; j < J; j++) {
     phase(j * h, yh, yl, ph);
     tabRe[j] = ph[0];
     tabIm[j] = ph[1];

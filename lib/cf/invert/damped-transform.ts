@@ -124,6 +124,12 @@ const PAIR_COST = 45;
  */
 const PROBE_COST = 800;
 /**
+ * a solution evaluated at no more than FEW_POINTS points one by one (a loose probe of the range), or on an FFT grid (the
+ * density's), pays for its terms about one transform value each, as a probe does for its 433 frequencies and their bounds:
+ * there a probe costs PROBE_COST terms whatever the plan's size (the cap at an eighth of its terms is for the searches' sums)
+ */
+const FEW_POINTS = 16;
+/**
  * A plan whose envelope is derived through the operators is kept while its terms are at most OPERATOR_COST times the
  * sampled plan's plus OPERATOR_SLACK (measured on the seeded random sums: within that, 9 of 10 sums of compounds and
  * gamma terms keep the derived bound at no more than twice the time; past it a few took 10-30 times the terms)
@@ -162,7 +168,7 @@ export function dampedPlan(
   // its cut-off cannot reach the truncation target, the samples' envelope instead (its bound then an estimate between the
   // samples, and the answer says so)
   const args = [model, atoms, R, tol, wantPdf] as const;
-  const rest = [pointwise, budget, periodOf, pdfReach, byParts, yLow, withInt] as const;
+  const rest = [pointwise, budget, periodOf, pdfReach, byParts, yLow, withInt, points] as const;
   const plan = (pairOut: boolean) => {
     const p = planFor(...args, pairOut, ...rest, true);
     if (!p.plan.env.derived) return p;
@@ -221,6 +227,7 @@ function planFor(
   byParts: ByParts,
   yLow: number | undefined,
   withInt: boolean,
+  points: number,
   derived: boolean,
   ownProbes = false,
 ): Planned {
@@ -329,14 +336,21 @@ function planFor(
   // lognormal(0, 1.5) at 1 000 points: U 6 -> 6.5, 40 811 -> 38 206 terms, under the interpolation's FFT of 2^17)
   const roundShare = byRange ? 1 / 3 : 1 / 4;
   let best = { U: 4, K: Infinity, bad: Infinity, cost: Infinity };
-  const sl0 = slopes(4 / span, env0);
+  // the slope envelopes made in the choice, by envelope: the chosen damping's are the same values (slopes is pure in them)
+  const made = new Map<Envelope, ReturnType<typeof slopes>>();
+  const slopesOf = (beta: number, env: Probed) => {
+    let s = made.get(env);
+    if (!s) made.set(env, (s = slopes(beta, env)));
+    return s;
+  };
+  const sl0 = slopesOf(4 / span, env0);
   for (let U = 2; U <= 8; U += 0.5) {
     const beta = U / span;
     const T = periodFor(U);
     const target = tol / (8 * Math.exp(U));
     // ownProbes: each damping's envelope probed at its own beta (a probe each, memoised per model), not all at U = 4
     const e = ownProbes ? probe(model, atoms, beta, pairOut, derived) : env0;
-    const { tmax, reach } = cutoffOf(e, ownProbes ? slopes(beta, e) : sl0, beta, U, T, target);
+    const { tmax, reach } = cutoffOf(e, ownProbes ? slopesOf(beta, e) : sl0, beta, U, T, target);
     const K = Math.max(16, (tmax * periodOf(T)) / (2 * Math.PI));
     // scale of the cdf sum: (1/pi) int |psi_c| / |beta - i t| up to tmax
     // and of the CF values' own noise, the same integral of the per-node noise (the probe's, largest first)
@@ -366,7 +380,7 @@ function planFor(
     // of its own: a small plan's sums, taken at every point the search evaluates, outweigh one probe)
     const fits = K <= budget;
     const bestFits = best.K <= budget;
-    const cost = K + (probed(model, atoms, beta, pairOut, derived) ? 0 : Math.min(PROBE_COST, K / 8));
+    const cost = K + (probed(model, atoms, beta, pairOut, derived) ? 0 : pointwise === false || points <= FEW_POINTS ? PROBE_COST : Math.min(PROBE_COST, K / 8));
     if (fits !== bestFits) {
       if (fits) best = { U, K, bad, cost };
     } else if ((bad <= 1 && (best.bad > 1 || cost < best.cost)) || (bad > 1 && best.bad > 1 && bad < best.bad)) best = { U, K, bad, cost };
@@ -374,7 +388,7 @@ function planFor(
   const U = best.U;
   const beta = U / span;
   const env = probe(model, atoms, beta, pairOut, derived);
-  const sl = slopes(beta, env);
+  const sl = slopesOf(beta, env);
   const target = tol / (8 * Math.exp(U));
   const T = periodFor(U);
   const { tmax, reach } = cutoffOf(env, sl, beta, U, T, target);

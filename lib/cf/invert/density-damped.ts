@@ -20,7 +20,13 @@ export function dampedDensity(
   useFft: boolean,
 ): DensityResult | null {
   const lo = model.support[0];
-  const xs = req.kind === "points" ? req.x : Float64Array.from({ length: req.count }, (_, i) => req.from + i * req.dx);
+  // (plain loops: Float64Array.from and map with a callback take V8's generic path, a few ms over a mixture's grids)
+  let xs: Float64Array;
+  if (req.kind === "points") xs = req.x;
+  else {
+    xs = new Float64Array(req.count);
+    for (let i = 0; i < req.count; i++) xs[i] = req.from + i * req.dx;
+  }
   const n = xs.length;
   let R = lo;
   for (let i = 0; i < n; i++) if (xs[i] > R) R = xs[i];
@@ -92,11 +98,12 @@ export function dampedDensity(
   // the images' bound per point is largest at lo (aliasCdfAt is non-increasing), and never above a point's whole bound
   const alias = Math.min(aliasCdfAt(sol, 0), errF);
   // the cdf's and the sf's error are the continuous part's (the atoms are exact); clamping only moves toward the truth
-  const pointError: PointErrors = {
-    pdf: wantPdf ? ptf.map((e) => e + 4 * Number.EPSILON) : new Float64Array(n).fill(NaN),
-    cdf: ptF.map((e) => e + 4 * Number.EPSILON),
-    sf: ptF.map((e) => e + 4 * Number.EPSILON),
-  };
+  const pointError: PointErrors = { pdf: new Float64Array(n), cdf: new Float64Array(n), sf: new Float64Array(n) };
+  for (let i = 0; i < n; i++) {
+    pointError.pdf[i] = wantPdf ? ptf[i] + 4 * Number.EPSILON : NaN;
+    pointError.cdf[i] = ptF[i] + 4 * Number.EPSILON;
+    pointError.sf[i] = ptF[i] + 4 * Number.EPSILON;
+  }
   // the mass past the window [lo, lo + T): at most the images' uniform bound, or Markov's inequality at its best order on
   // the law's moments (./moment-tails.ts) where that is smaller (a fast-decaying remainder lets the plan take a short period,
   // for which the uniform bound q / (1 - q) E[Y^2] / T^2 is loose: Poisson(2)-exponential(1), T = 82, 2.8e-9)
@@ -108,7 +115,7 @@ export function dampedDensity(
   }
   if (atoms.length) notes.push(`atoms separated exactly: ${atoms.map((a) => `P(X = ${a.x}) = ${a.p}`).join(", ")}; pdf is the density of the rest`);
   return {
-    x: Float64Array.from(xs),
+    x: req.kind === "points" ? xs.slice() : xs,
     pdf,
     cdf,
     sf,
