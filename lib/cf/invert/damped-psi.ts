@@ -157,6 +157,30 @@ export function probed(model: CompiledModel, atoms: Atom[], beta: number, pairOu
   return PROBES.get(model)?.has(probeKey(beta, pairOut, atoms, derived)) ?? false;
 }
 
+/**
+ * a probe of this model already made at a damping in [want / 2, 2 want] (pairOut, derived as asked), the nearest to want
+ * by ratio (want itself first), or null: a plan judges its dampings on it instead of probing want (see planFor)
+ */
+export function probedNear(model: CompiledModel, atoms: Atom[], want: number, pairOut: boolean, derived: boolean): { beta: number; env: Probed } | null {
+  const memo = PROBES.get(model);
+  if (!memo) return null;
+  const exact = memo.get(probeKey(want, pairOut, atoms, derived));
+  if (exact) return { beta: want, env: exact };
+  const tail = `|${pairOut}|${atoms.length}|${derived}`;
+  let best: { beta: number; env: Probed } | null = null;
+  let dist = Math.LN2;
+  for (const [key, env] of memo) {
+    if (!key.endsWith(tail)) continue;
+    const beta = Number(key.slice(0, key.length - tail.length));
+    const d = Math.abs(Math.log(beta / want));
+    if (beta > 0 && d <= dist) {
+      dist = d;
+      best = { beta, env };
+    }
+  }
+  return best;
+}
+
 /** what an answer says where its damped route's truncation bound rests on sampled sizes of the transform */
 export const DAMPED_SAMPLED_NOTE =
   "frequency truncation bounded from the transform's size sampled at 8 frequencies per octave (no derived bound on this transform, or one that would need more terms than the route allows): an estimate between the samples";
