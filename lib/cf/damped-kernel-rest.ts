@@ -184,7 +184,8 @@ export function sumKernelRest(cs: readonly ChildBounds[], kernels: readonly Gamm
   }
   // the terms by power: c_e, its error, and each term's distance from e (near)
   const groups: { e: number; c: number; err: number; abs: number; n: number }[] = [];
-  const near: { g: number; v: number; off: number }[] = [];
+  // (each near term's group by index too: x^g is formed once per group and frequency, the same value for its terms)
+  const near: { g: number; gi: number; v: number; off: number }[] = [];
   const groupOf = (e: number) => {
     let g = groups.find((x) => Math.abs(x.e - e) <= SAME);
     if (!g) groups.push((g = { e, c: 0, err: 0, abs: 0, n: 0 }));
@@ -198,7 +199,7 @@ export function sumKernelRest(cs: readonly ChildBounds[], kernels: readonly Gamm
       g.err += m.err[n];
       g.abs += Math.abs(m.v[n]);
       g.n++;
-      near.push({ g: g.e, v: Math.abs(m.v[n]) * (1 + 4 * EPS), off: Math.abs(e - g.e) + m.dE + 4 * (n + 1) * EPS * e });
+      near.push({ g: g.e, gi: groups.indexOf(g), v: Math.abs(m.v[n]) * (1 + 4 * EPS), off: Math.abs(e - g.e) + m.dE + 4 * (n + 1) * EPS * e });
     }
   const others: GammaKernel[] = [];
   for (const k of kernels) {
@@ -209,7 +210,7 @@ export function sumKernelRest(cs: readonly ChildBounds[], kernels: readonly Gamm
       g.err += Math.abs(wr) * 16 * EPS;
       g.abs += Math.abs(wr);
       g.n++;
-      near.push({ g: g.e, v: Math.abs(wr) * (1 + 16 * EPS), off: Math.abs(k.shape - g.e) + 4 * EPS * k.shape });
+      near.push({ g: g.e, gi: groups.indexOf(g), v: Math.abs(wr) * (1 + 16 * EPS), off: Math.abs(k.shape - g.e) + 4 * EPS * k.shape });
     } else others.push(k);
   }
   // c_e as summed within (n + 1) eps of the sum of its terms' sizes (Higham, Accuracy and Stability, sec. 4.2)
@@ -229,6 +230,8 @@ export function sumKernelRest(cs: readonly ChildBounds[], kernels: readonly Gamm
     return { G: Math.exp(lg) * (1 + (8 + 4 * gs.length + 2 * Math.abs(lg)) * EPS), kr: up(kr, 4 * gs.length) };
   };
   const pw = (x: number, e: number) => Math.pow(x, e) * (1 + (4 + 2 * e) * EPS);
+  // x^e of each group's power at the frequency in hand (cAbs[i].e is groups[i].e)
+  const xg = new Float64Array(groups.length);
   const bound = (beta: number, t: number) => {
     const zAbs = Math.hypot(r + beta, t) * (1 - 2 * EPS);
     const x = 1 / zAbs;
@@ -244,14 +247,16 @@ export function sumKernelRest(cs: readonly ChildBounds[], kernels: readonly Gamm
       rest += m.AC * zE * T;
       slope += m.AC * zE * ((m.E + m.dE) * x * T + x * x * T1);
     }
-    for (const c of cAbs) {
-      const v = c.c * pw(x, c.e);
+    for (let i = 0; i < cAbs.length; i++) {
+      const c = cAbs[i];
+      xg[i] = pw(x, c.e);
+      const v = c.c * xg[i];
       rest += v;
       slope += v * c.e * x;
     }
     for (const v of near) {
       // the derivative: v z^{-g-1} (g (z^delta - 1) - delta) with |delta| <= off
-      const zr = v.v * pw(x, v.g);
+      const zr = v.v * xg[v.gi];
       const mm = Math.expm1(v.off * (lnz + Math.PI / 2)) * (1 + 4 * EPS);
       rest += zr * mm;
       slope += zr * x * ((v.g + v.off) * mm + v.off);

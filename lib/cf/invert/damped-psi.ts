@@ -130,6 +130,12 @@ export type Probed = Envelope & {
   phiBound?: PhiBounds;
   /** derived through the operators' bounds (a sum of compounds and gamma terms), which do not see the kernels cancel */
   throughOperators?: boolean;
+  /**
+   * with throughOperators: the bound on |psi_c'| at every frequency from each probe on that the probe formed beside the size
+   * (the operators' slope, the kernels' and the kernel rest's, at the probe's damping beta), which ./damped-sum-slope.ts
+   * sumSlopeBounds forms the same way: kept so that it is not formed twice
+   */
+  opSlope?: { beta: number; s: Float64Array };
 };
 
 const PROBES = new WeakMap<CompiledModel, Map<string, Probed>>();
@@ -331,7 +337,7 @@ function probeAt(model: CompiledModel, atoms: Atom[], beta: number, pairOut: boo
     // difference not decaying
     const pdfSplit = sp ? splitTail(sp.R, sp.q, sp.tv, tn) : Infinity;
     const tail = off > 0 || !(q > 0) ? null : { cdf: (R / q) * (1 + 4 * EPS), pdf: Math.min(q > 1 ? ((R * tn) / (q - 1)) * (1 + 4 * EPS) : Infinity, pdfSplit) };
-    if (tail) return { ...envelopeFrom(tp, pr, pi, nz, null, { size, slope, tail }), throughOperators: true };
+    if (tail) return { ...envelopeFrom(tp, pr, pi, nz, null, { size, slope, tail }), throughOperators: true, opSlope: { beta, s: slope } };
   }
   return envelopeFrom(tp, pr, pi, nz, null);
 }

@@ -18,6 +18,12 @@ export function sumSlopeBounds(model: CompiledModel, atoms: Atom[], beta: number
   const dm = model.dampedMajorant;
   const lo = model.support[0];
   if (!env.derived || env.throughOperators !== true || !dm || model.dampedSeverity || !atoms.every((a) => a.x === lo)) return null;
+  // the probe formed these very bounds beside its sizes (the same operations, ./damped-psi.ts probeAt): taken from it
+  if (env.opSlope && env.opSlope.beta === beta) {
+    const s = env.opSlope.s;
+    for (let i = 0; i < s.length; i++) if (!(s[i] <= Infinity)) return null;
+    return s;
+  }
   const ks = model.dampedKernels ?? [];
   const kr = dm.kernelRest && dm.kernelRest.kernels === model.dampedKernels ? dm.kernelRest : null;
   const tp = env.t;
