@@ -103,8 +103,23 @@ export function sumKernelRest(cs: readonly ChildBounds[], kernels: readonly Gamm
     }
     return { P: up(Math.max(0, 1 - p * (1 - 4 * (M + 1) * EPS)), 4), NP: up(Math.max(0, cl.mean - np * (1 - 4 * (M + 1) * EPS)), 4) };
   });
-  const parts = (beta: number, t: number) =>
-    os.map((c, j) => {
+  // (into arrays kept with the bound, not an object per term and frequency: restO runs at every probe frequency)
+  const pq = new Float64Array(os.length);
+  const pdq = new Float64Array(os.length);
+  const prr = new Float64Array(os.length);
+  const pdr = new Float64Array(os.length);
+  const put = (j: number, v: { q: number; dq: number; rr: number; dr: number }) => {
+    pq[j] = v.q;
+    pdq[j] = v.dq;
+    prr[j] = v.rr;
+    pdr[j] = v.dr;
+  };
+  const parts = (beta: number, t: number) => {
+    for (let j = 0; j < os.length; j++) put(j, part(beta, t, j));
+    return { q: pq, dq: pdq, rr: prr, dr: pdr };
+  };
+  const part = (beta: number, t: number, j: number) => {
+      const c = os[j];
       const cl = c.claims;
       const M = Ms[j];
       const ts = tailSums[j];
@@ -126,28 +141,28 @@ export function sumKernelRest(cs: readonly ChildBounds[], kernels: readonly Gamm
       }
       // now mp = m^M, mn = m^{M + 1}
       return { q: up(q, 2 * M + 8), dq: up(dq, 2 * M + 8), rr: up(ts.P * mn, 4), dr: up(ts.NP * mp * dm, 8) };
-    });
+  };
   // |P - prod Q| and its derivative: sum_j (prod_{l < j} Q_l) R_j' (prod_{l > j} (Q_l + R_l')), each term by the product rule
   const restO = (beta: number, t: number, withSlope = true) => {
-    const v = parts(beta, t);
-    const n = v.length;
+    const { q, dq, rr, dr } = parts(beta, t);
+    const n = os.length;
     let rest = 0;
     let slope = 0;
     for (let j = 0; j < n; j++) {
-      let a = v[j].rr;
-      for (let l = 0; l < j; l++) a *= v[l].q;
-      for (let l = j + 1; l < n; l++) a *= v[l].q + v[l].rr;
+      let a = rr[j];
+      for (let l = 0; l < j; l++) a *= q[l];
+      for (let l = j + 1; l < n; l++) a *= q[l] + rr[l];
       rest += a;
       if (!withSlope) continue;
       // the derivative falls on R_j', on one Q_i before j or on one factor after j
-      let d = v[j].dr;
-      for (let l = 0; l < j; l++) d *= v[l].q;
-      for (let l = j + 1; l < n; l++) d *= v[l].q + v[l].rr;
+      let d = dr[j];
+      for (let l = 0; l < j; l++) d *= q[l];
+      for (let l = j + 1; l < n; l++) d *= q[l] + rr[l];
       for (let i = 0; i < n; i++) {
         if (i === j) continue;
-        let e = v[j].rr * (i < j ? v[i].dq : v[i].dq + v[i].dr);
-        for (let l = 0; l < j; l++) if (l !== i) e *= v[l].q;
-        for (let l = j + 1; l < n; l++) if (l !== i) e *= v[l].q + v[l].rr;
+        let e = rr[j] * (i < j ? dq[i] : dq[i] + dr[i]);
+        for (let l = 0; l < j; l++) if (l !== i) e *= q[l];
+        for (let l = j + 1; l < n; l++) if (l !== i) e *= q[l] + rr[l];
         d += e;
       }
       slope += d;
