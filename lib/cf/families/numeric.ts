@@ -9,6 +9,7 @@ import { scratch } from "../damped-scratch";
 import { weibullRemainder } from "../endpoint-remainder";
 import { decayTable } from "./decay-table";
 import { withGgcLogRound } from "./log-round";
+import { weibullPhaseTail, withTabulatedLogRound } from "./log-round-table";
 
 export { NUMERIC_CF_ABS_ERROR, MAX_QUADRATURE_NODES } from "./numeric-rule";
 export { lognormal, lognormalCumulants } from "./lognormal";
@@ -196,8 +197,11 @@ export function weibull(k: number, lambda: number): Node {
     cumulants: (m) => rawToCumulants(Array.from({ length: m }, (_, i) => raw(i + 1))),
   };
   // claim-law rounding: shape <= 1 is E^{1/k}, E exponential, hyperbolically completely monotone (HCM is closed under
-  // powers |q| >= 1, Bondesson 1992), so a generalized gamma convolution (./log-round.ts ggcLogRound); above, not derived
-  return k <= 1 ? withGgcLogRound(node, mean) : node;
+  // powers |q| >= 1, Bondesson 1992), so a generalized gamma convolution (./log-round.ts ggcLogRound); above, by the
+  // phase table from phiAt and its per-frequency error (./log-round-table.ts)
+  if (k <= 1) return withGgcLogRound(node, mean);
+  const tail = weibullPhaseTail(k, lambda);
+  return tail ? withTabulatedLogRound(node, { mean, logCf: node.logCf, err: cfError, slope: tail.slope, tail, budget: 2048 }) : node;
 }
 
 /**

@@ -1,0 +1,194 @@
+// Node.logRoundSlope / logRoundAt / logRoundDampedAt of a positive claim law that is no generalized gamma convolution
+// (Weibull shape > 1): |phi| need not decrease, so the continuous argument is bounded from a table of lower bounds on |phi|
+// (the law's own evaluation and its error bound, |phi'| <= E X) up to where the large-t expansion's first term dominates.
+// See ./log-round.ts for the rounding model (8 ulps of |L|, so 8 u |phi| |L|) and the compound's use (../compound-errors.ts).
+import type { Node } from "../node";
+import { lgamma } from "./special";
+
+const EPS = Number.EPSILON;
+const U8 = 8 * EPS;
+
+/** the law's own route: its log-CF at equispaced t (values within `err` in phi, the log's own rounding aside); past
+ *  |z| >= from, |phi~(beta, t)| <= modulus(|z|) (|z| = hypot(t, beta), non-increasing) and the undamped argument moves by
+ *  at most `drift` (any two frequencies past `from`) */
+export interface PhaseRoute {
+  mean: number;
+  logCf: (t: Float64Array, re: Float64Array, im: Float64Array) => void;
+  err: number;
+  /** a bound on |phi'| from t on (non-increasing), at most E X */
+  slope: (t: number) => number;
+  tail: { from: number; modulus: (absZ: number) => number; drift: number };
+  /** the most frequencies the table may take; past it the rounding is not derived */
+  budget: number;
+}
+
+interface Table {
+  d: number; // the cells [j d, (j + 1) d], up to `end`
+  B: Float64Array; // the cell's bound on 8 u |phi| |L|
+  slope: number; // R: sup over t of the bound / t, the damped one's (1 + pi) E X included
+  end: number; // K d >= tail.from
+  thetaEnd: number; // Theta past the table: its last value plus the tail's drift
+}
+
+/**
+ * The table (undamped), on cells [s_j, s_j + d] (s_j = j d, one batch of the law's own log-CF): lo_j <= |phi(s_j)| <= up_j
+ * (the computed modulus less or plus err and its log's and exp's rounding), D_j = slope(s_j) >= |phi'| on the cell, so
+ * there |phi| >= f_j = min(lo_j, lo_{j+1}, (lo_j + lo_{j+1} - D_j d) / 2) and <= h_j = (up_j + up_{j+1} + D_j d) / 2 (the
+ * crossing of the Lipschitz lines from both ends); the continuous argument's total variation Theta (int |theta'| <=
+ * int |phi'| / |phi|) grows by at most D_j d / f_j a cell. Past `from` the tail's drift. An unwrap from any t0 <= t (along a
+ * grid that resolves the argument) then gives |Im L(t)| <= pi min(1, m t0) (the principal argument at t0: |arg w| <= (pi / 2)
+ * |1 - w|) + Theta(t), and |phi| |log |phi|| <= min(1/e, 1 - |phi|, m t, h |log h| for |phi| <= h <= 1/e). The step d from
+ * the tail's floor at `from` (|phi| >= modulus / 3 there), halved up to three times where a floor is not positive; null
+ * where it stays so or the budget is spent.
+ */
+function buildTable(p: PhaseRoute): Table | null {
+  const m = p.mean * (1 + 4 * EPS);
+  const from = p.tail.from;
+  if (!(m > 0 && Number.isFinite(m) && from > 0 && Number.isFinite(from))) return null;
+  const lo0 = p.tail.modulus(from) / 3 - p.err;
+  let d = Math.min(from / 64, lo0 / (2 * Math.min(m, p.slope(from))));
+  for (let attempt = 0; attempt < 4 && d > 0; attempt++, d /= 2) {
+    const t = tryTable(p, m, d);
+    if (t) return t;
+  }
+  return null;
+}
+
+function tryTable(p: PhaseRoute, m: number, d: number): Table | null {
+  const K = Math.ceil(p.tail.from / d);
+  if (!(K <= p.budget)) return null;
+  const t = Float64Array.from({ length: K }, (_, j) => (j + 1) * d);
+  const re = new Float64Array(K);
+  const im = new Float64Array(K);
+  p.logCf(t, re, im);
+  const lo = (j: number) => (j === 0 ? 1 : Math.exp(re[j - 1]) * (1 - 4 * EPS * (2 + Math.abs(re[j - 1]))) - p.err);
+  const up = (j: number) => (j === 0 ? 1 : Math.exp(re[j - 1]) * (1 + 4 * EPS * (2 + Math.abs(re[j - 1]))) + p.err);
+  const B = new Float64Array(K);
+  let theta = 0;
+  let slope = U8 * (1 + Math.PI) * m;
+  for (let j = 0; j < K; j++) {
+    const s0 = j * d;
+    const s1 = (j + 1) * d;
+    const D = Math.min(m, p.slope(s0) * (1 + 4 * EPS));
+    const Dd = D * d * (1 + 4 * EPS);
+    const [l0, l1] = [lo(j), lo(j + 1)];
+    const f = Math.min(l0, l1, (l0 + l1 - Dd) / 2) * (1 - 4 * EPS);
+    if (!(f > 0)) return null;
+    const th0 = theta;
+    theta = (theta + Dd / f) * (1 + 8 * EPS);
+    const hi = Math.min(1, ((up(j) + up(j + 1) + Dd) / 2) * (1 + 4 * EPS));
+    const reB = Math.min(1 / Math.E, 1 - f, m * s1, hi <= 1 / Math.E ? -hi * Math.log(hi) * (1 + 4 * EPS) : Infinity);
+    B[j] = U8 * (reB + hi * (Math.PI * Math.min(1, m * s1) + theta)) * (1 + 16 * EPS);
+    // sup of the bound / t on the cell: Theta(t) <= th0 + D (t - s0) / f is largest over t at an end, m t and the
+    // principal part pi min(1, m t) at most m and pi min(m, 1 / s0) per unit t
+    const thT = j === 0 ? theta / s1 : Math.max(th0 / s0, theta / s1);
+    const own = j === 0 ? m : Math.min(m, reB / s0);
+    slope = Math.max(slope, U8 * (own + hi * (Math.PI * (j === 0 ? m : Math.min(m, 1 / s0)) + thT)) * (1 + 32 * EPS));
+  }
+  const end = K * d;
+  const thetaEnd = (theta + p.tail.drift) * (1 + 4 * EPS);
+  // past the table B(t) does not increase, so B / t is largest at its start
+  slope = Math.max(slope, tailBound(p, end, thetaEnd) / end) * (1 + 4 * EPS);
+  return { d, B, slope, end, thetaEnd };
+}
+
+/** past the table: |phi| <= M = modulus(t) (non-increasing), 8 u (min(1/e, M |log M|) + M (pi + Theta_end)) */
+function tailBound(p: PhaseRoute, t: number, thetaEnd: number): number {
+  const M = Math.min(1, p.tail.modulus(t));
+  const re = Math.min(1 / Math.E, M <= 1 / Math.E ? (M > 0 ? -M * Math.log(M) * (1 + 4 * EPS) : 0) : Infinity);
+  return U8 * (re + M * (Math.PI + thetaEnd)) * (1 + 16 * EPS);
+}
+
+/**
+ * The claim-law rounding of a positive law by its phase table (buildTable above) for the undamped CF (its log unwrapped
+ * along t), and for the damped transform, whose log is principal at each frequency (../damped-cf.ts fromPhiDamped):
+ * |phi~| |L~| <= min(1/e, m w, M |log M|) + pi min(M, m w), w = hypot(t, beta) (|1 - phi~| <= m w), M a bound on |phi~|
+ * (the tail's modulus past `from`, the node's damped majorant), so R (t + beta) with R >= 8 u (1 + pi) m holds for both.
+ * The table is built at the first read of the slope (lazily: a law outside a compound never pays it); where it fails
+ * (a lower bound on |phi| not positive, or past the budget) nothing is declared and the compound's notes say so.
+ */
+export function withTabulatedLogRound<N extends Node>(node: N, p: PhaseRoute): N {
+  let table: Table | null | undefined;
+  const get = () => (table === undefined ? (table = buildTable(p)) : table);
+  const m = p.mean * (1 + 4 * EPS);
+  const at = (t: number) => {
+    const g = get();
+    if (!g) return NaN;
+    const a = Math.abs(t);
+    if (a >= g.end) return Math.min(g.slope * a, tailBound(p, a, g.thetaEnd));
+    // the cell holding a (a cell's bound serves its two ends, so a rounded index is safe either way)
+    const j = Math.min(Math.floor(a / g.d), g.B.length - 1);
+    const b = j + 1 < g.B.length ? Math.max(g.B[j], g.B[j + 1]) : g.B[j];
+    return Math.min(g.slope * a, j > 0 ? Math.max(b, g.B[j - 1]) : b);
+  };
+  const dampedOn = (beta: number, t0: number, t1: number, self?: Node): number => {
+    const a0 = Math.abs(t0);
+    const w = Math.hypot(Math.max(a0, Math.abs(t1)), beta) * (1 + 2 * EPS);
+    const z0 = Math.hypot(a0, beta) * (1 - 2 * EPS);
+    let M = 1;
+    if (z0 >= p.tail.from) M = Math.min(M, p.tail.modulus(z0));
+    const n = self ?? node;
+    const dm = n.dampedMajorant;
+    if (dm && dm.cf === n.dampedLogCf && n.support[0] >= 0) M = Math.min(M, (dm.atom + dm.rest(beta, a0)) * (1 + 4 * EPS));
+    const re = Math.min(1 / Math.E, m * w, M <= 1 / Math.E ? (M > 0 ? -M * Math.log(M) * (1 + 4 * EPS) : 0) : Infinity);
+    return U8 * (re + Math.PI * Math.min(M, m * w)) * (1 + 16 * EPS);
+  };
+  Object.defineProperty(node, "logRoundSlope", { get: () => get()?.slope, enumerable: true, configurable: true });
+  return Object.assign(node, {
+    logRoundAt: (t: number) => at(t),
+    logRoundDampedAt: (beta: number, t: number, self?: Node) => (get() ? dampedOn(beta, t, t, self) : NaN),
+    logRoundDampedOn: (beta: number, t0: number, t1: number, self?: Node) => (get() ? dampedOn(beta, t0, t1, self) : NaN),
+    // |phi~(beta, t)| <= the tail's modulus past `from` (a compound without majorants bounds its count's factor with it)
+    logRoundModulus: (beta: number, t: number) => {
+      const z = Math.hypot(t, beta) * (1 - 2 * EPS);
+      return z >= p.tail.from ? p.tail.modulus(z) : 1;
+    },
+    logRoundNote:
+      "the claim law's log rounding is bounded with its phase unwrapped along a grid that resolves it (steps below pi) or principal",
+  });
+}
+
+/**
+ * Weibull(k > 1, lambda) past |z| >= W* / lambda (z = t + i beta): on the ray x = lambda y e^{i a}, a = min(pi/4, pi/(2k))
+ * (Re y^k e^{i k a} >= 0, and Re(-i z e^{i a}) >= |z| sin a), phi~ = sum_{j < J} (-1)^j k Gamma(k (j + 1)) / j! W^{-k (j + 1)}
+ * + R_J, W = -i lambda z, |R_J| <= k Gamma(k (J + 1)) / J! (|W| sin a)^{-k (J + 1)} (|e^{-y} - sum_{j<J} (-y)^j / j!| <= |y|^J / J!
+ * for Re y >= 0; the term j is int k y^{k-1} y^{kj} e^{-W y} dy). Where the terms j >= 1 and R_J add to at most half of the
+ * first, Gamma(k + 1) |W|^{-k}: |phi~| <= 1.5 Gamma(k + 1) |W|^{-k}, and phi / A_0 in the disc |w - 1| <= 1/2 (argument
+ * within pi/6), with arg A_0 = k pi / 2 constant on beta = 0: the undamped argument moves by at most pi / 3 past W*.
+ * |phi'(t)| <= lambda k Gamma(k + 1) (lambda t sin a)^{-k-1} on the same ray (`slope`, every t > 0).
+ * W* the least over J = 1..6 (found by doubling and bisection; the sum taken at 0.45 for its own rounding).
+ */
+export function weibullPhaseTail(k: number, lambda: number): { from: number; modulus: (absZ: number) => number; drift: number; slope: (t: number) => number } | null {
+  if (!(k > 1 && lambda > 0 && Number.isFinite(k))) return null;
+  const lsa = Math.log(Math.sin(Math.min(Math.PI / 4, Math.PI / (2 * k))));
+  const lk = Math.log(k);
+  const lg1 = lgamma(k + 1);
+  const q = (lW: number, J: number) => {
+    let s = Math.exp(lk + lgamma(k * (J + 1)) - lgamma(J + 1) - lg1 - k * (J + 1) * lsa - k * J * lW);
+    for (let j = 1; j < J; j++) s += Math.exp(lk + lgamma(k * (j + 1)) - lgamma(j + 1) - lg1 - k * j * lW);
+    return s;
+  };
+  let best = Infinity;
+  for (let J = 1; J <= 6; J++) {
+    let hi = 0;
+    while (!(q(hi, J) <= 0.45) && hi < 690) hi += 1;
+    if (!(q(hi, J) <= 0.45)) continue;
+    let lo = hi - 1;
+    for (let i = 0; i < 60; i++) {
+      const mid = (lo + hi) / 2;
+      if (q(mid, J) <= 0.45) hi = mid;
+      else lo = mid;
+    }
+    best = Math.min(best, hi);
+  }
+  if (!Number.isFinite(best)) return null;
+  const wStar = Math.exp(best) * (1 + 1e-12);
+  const l15 = Math.log(1.5) + lg1;
+  return {
+    from: (wStar / lambda) * (1 + 4 * EPS),
+    modulus: (z) => Math.min(1, Math.exp(l15 - k * Math.log(lambda * z)) * (1 + 1e-12)),
+    drift: Math.PI / 3,
+    // |phi'(t)| = |E X e^{i t X}| <= lambda k int y^k e^{-lambda t y sin a} dy on the same ray
+    slope: (t) => Math.exp(Math.log(lambda) + lk + lg1 - (k + 1) * (Math.log(lambda * t) + lsa)) * (1 + 1e-12),
+  };
+}
