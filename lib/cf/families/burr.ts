@@ -10,6 +10,7 @@ import { KahanComplex } from "./kahan";
 import { burrRemainder } from "../endpoint-remainder";
 import { burrErrorAt } from "./burr-error";
 import { withGgcLogRound } from "./log-round";
+import { burrPhaseTail, withTabulatedLogRound } from "./log-round-table";
 
 /**
  * Burr XII, Loss Models parameters: S(x) = (1 + (x/theta)^gamma)^(-alpha) (Klugman, Panjer & Willmot, Loss Models,
@@ -221,8 +222,11 @@ export function burr(alpha: number, gamma: number, theta: number, name = "burr")
   };
   // claim-law rounding: theta Y^{1/gamma}, Y Lomax (beta prime (1, alpha), hyperbolically completely monotone); HCM is closed
   // under powers |q| >= 1 (Bondesson 1992), so for gamma <= 1 a generalized gamma convolution (./log-round.ts ggcLogRound),
-  // where the mean is finite (alpha gamma > 1); above, not derived
-  return gamma <= 1 && tail > 1 ? withGgcLogRound(node, raw(1)) : node;
+  // where the mean is finite (alpha gamma > 1); above, by the phase table (./log-round-table.ts)
+  if (!(tail > 1)) return node;
+  if (gamma <= 1) return withGgcLogRound(node, raw(1));
+  const phase = burrPhaseTail(alpha, gamma, theta);
+  return phase ? withTabulatedLogRound(node, { mean: raw(1), logCf: node.logCf, err: cfError, slope: phase.slope, tail: phase, budget: 2048 }) : node;
 }
 
 /**

@@ -192,3 +192,26 @@ export function weibullPhaseTail(k: number, lambda: number): { from: number; mod
     slope: (t) => Math.exp(Math.log(lambda) + lk + lg1 - (k + 1) * (Math.log(lambda * t) + lsa)) * (1 + 1e-12),
   };
 }
+
+/**
+ * Burr XII (alpha, gamma > 1, theta; log-logistic alpha = 1), density alpha gamma y^{gamma-1} (1 + y^gamma)^{-alpha-1} of
+ * Y = X / theta (Loss Models, app. A.2.1): on the ray y = r e^{i a}, a = min(pi/4, pi/(2 gamma)), Re y^gamma >= 0, so
+ * |1 + y^gamma| >= 1, |(1 + y^gamma)^{-alpha-1}| <= 1 and |(1 + y^gamma)^{-alpha-1} - 1| <= (alpha + 1) r^gamma; the first
+ * term alpha Gamma(gamma + 1) W^{-gamma} (W = -i theta z) then holds phi~ within alpha gamma (alpha + 1) Gamma(2 gamma)
+ * (|W| sin a)^{-2 gamma}, half of it from |W|^gamma >= (alpha + 1) Gamma(2 gamma) / (0.45 Gamma(gamma)) sin(a)^{-2 gamma}:
+ * |phi~| <= 1.5 alpha Gamma(gamma + 1) |W|^{-gamma}, the argument moves by at most pi / 3 past it (arg of the first term
+ * gamma pi / 2 on beta = 0), and |phi'(t)| <= theta alpha gamma Gamma(gamma + 1) (theta t sin a)^{-gamma-1} at every t > 0.
+ */
+export function burrPhaseTail(alpha: number, gamma: number, theta: number): { from: number; modulus: (absZ: number) => number; drift: number; slope: (t: number) => number } | null {
+  if (!(gamma > 1 && alpha > 0 && theta > 0 && Number.isFinite(gamma) && Number.isFinite(alpha))) return null;
+  const lsa = Math.log(Math.sin(Math.min(Math.PI / 4, Math.PI / (2 * gamma))));
+  const lW = (Math.log(alpha + 1) + lgamma(2 * gamma) - lgamma(gamma) - 2 * gamma * lsa - Math.log(0.45)) / gamma;
+  const lA = Math.log(alpha) + lgamma(gamma + 1);
+  if (!Number.isFinite(lW)) return null;
+  return {
+    from: (Math.exp(lW) / theta) * (1 + 1e-12),
+    modulus: (z) => Math.min(1, Math.exp(Math.log(1.5) + lA - gamma * Math.log(theta * z)) * (1 + 1e-12)),
+    drift: Math.PI / 3,
+    slope: (t) => Math.exp(Math.log(theta) + lA + Math.log(gamma) - (gamma + 1) * (Math.log(theta * t) + lsa)) * (1 + 1e-12),
+  };
+}
