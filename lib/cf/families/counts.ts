@@ -73,6 +73,41 @@ export function logarithmic(p: number): Node {
     // a = p and b = -p exactly; p1 within 2 eps (above)
     panjer: { a: p, b: -p, p0: 0, c1: p1, err: { a: 0, b: 0, p0: 0, c1: 2.02 * Number.EPSILON * p1 } },
     p0: 0,
+    ...logarithmicLogRound(p, mean),
+  };
+}
+
+/**
+ * Node.logRoundSlope / logRoundAt of the logarithmic law as a claim (./log-round.ts: 8 u |phi| |L|): -log(1 - p e^{it}) =
+ * zeta G(zeta), zeta = p e^{it}, G(zeta) = int_0^1 ds / (1 - s zeta) with Re G >= int_0^1 (1 - s p) / (1 + s p)^2 ds =
+ * (2p / (1 + p) - log(1 + p)) / p =: G_lo > 0, so the continuous argument is t + g(t), |g| < pi / 2 and |g'| <= c =
+ * p G'(p) / G_lo (|G'(zeta)| <= G'(p) = (p / (1 - p) + log(1 - p)) / p^2, non-negative coefficients). An unwrap from any
+ * t0 <= t then gives |Im L(t)| <= pi min(1, m t0) + t + min(pi, c t), and |phi| |log |phi|| <= min(1/e, m t) (|1 - phi| <= m t):
+ * R = 8 u (m (1 + pi) + 1 + c); per frequency with |phi(t)| = |log(1 - p e^{it})| / -log(1 - p) in closed form.
+ */
+function logarithmicLogRound(p: number, m: number): Pick<Node, "logRoundSlope" | "logRoundAt" | "logRoundNote"> {
+  const EPS = Number.EPSILON;
+  const U8 = 8 * EPS;
+  const gLo = (((2 * p) / (1 + p) - Math.log1p(p)) / p) * (1 - 1e-12);
+  const dG = (p / (1 - p) + Math.log1p(-p)) / (p * p);
+  // (dG by cancellation for small p: at most its series' 1/2 + 2 p / 3 + ... <= 1 / (2 (1 - p)^2), taken where smaller than
+  // the computed value's rounding allows)
+  const c = ((p * Math.max(0, Math.min(dG * (1 + 1e-6) + 1e-9 / (p * p), 1 / (2 * (1 - p) * (1 - p))))) / gLo) * (1 + 1e-12);
+  const mm = m * (1 + 4 * EPS);
+  const slope = U8 * (mm * (1 + Math.PI) + 1 + c) * (1 + 16 * EPS);
+  const ell = -Math.log1p(-p);
+  return {
+    logRoundSlope: slope,
+    logRoundAt: (t) => {
+      const a = Math.abs(t);
+      const ar = 1 - p * Math.cos(a);
+      const ai = -p * Math.sin(a);
+      const M = Math.min(1, (Math.hypot(0.5 * Math.log(ar * ar + ai * ai), Math.atan2(ai, ar)) / ell) * (1 + 1e-12));
+      const re = Math.min(1 / Math.E, mm * a, M <= 1 / Math.E ? (M > 0 ? -M * Math.log(M) * (1 + 4 * EPS) : 0) : Infinity);
+      const b = U8 * (re + M * (Math.PI * Math.min(1, mm * a) + a + Math.min(Math.PI, c * a))) * (1 + 16 * EPS);
+      return Math.min(slope * a, b);
+    },
+    logRoundNote: "the claim law's log rounding is bounded with its phase unwrapped along a grid that resolves it (steps below pi) or principal",
   };
 }
 
