@@ -3,6 +3,7 @@ import { cumulantsToRaw, rawToCumulants, type Node } from "../node";
 import { nearestZero, sortedAnchor, unwrapFrom } from "../complex";
 import type { LatticeTable } from "../types";
 import { eulerianRow } from "./special";
+import { withPeriodicLogRound } from "./log-round-table";
 
 const TAIL_EPS = 1e-18;
 
@@ -138,7 +139,7 @@ export function zeroModified(base: Node, p0M: number, oneMinusP0: number): Node 
   const raw = (n: number) => baseRaw(n).map((v) => (v === null ? null : beta * v));
   const r2 = raw(2);
   const mean = r2[0] as number;
-  return {
+  const node: Node = {
     kind: { type: "lattice", origin: 0, step: 1, atoms: null },
     momentIndex: Infinity,
     tails: { left: Infinity, right: Infinity },
@@ -185,6 +186,13 @@ export function zeroModified(base: Node, p0M: number, oneMinusP0: number): Node 
     panjer: pan ? zeroModifiedPanjer(pan, p0, p0M, beta) : undefined,
     p0: p0M,
   };
+  // claim-law rounding (./log-round-table.ts withPeriodicLogRound, from this logCf over one period): its modulus within
+  // beta times the base value's error (declared, plus 8 u (1 + |L_N|) |phi_N| <= 8 u + R_N 2 pi, R_N the base's logRoundSlope;
+  // expm1, cos, sin a few u more) plus 1 + beta x's roundings, 2 u (1 + 2 beta) (|x| = |phi_N - 1| <= 2)
+  const RN = base.logRoundSlope;
+  if (!(RN !== undefined && Number.isFinite(RN) && mean > 0)) return node;
+  const err = (beta * ((base.cfAbsError ?? 0) + (base.cfRelError ?? 0) + 16 * Number.EPSILON + 2 * Math.PI * RN) + 2 * Number.EPSILON * (1 + 2 * beta)) * 1.01;
+  return withPeriodicLogRound(node, { mean, logCf: node.logCf, err, budget: 4096 });
 }
 
 /**

@@ -215,3 +215,108 @@ export function burrPhaseTail(alpha: number, gamma: number, theta: number): { fr
     slope: (t) => Math.exp(Math.log(theta) + lA + Math.log(gamma) - (gamma + 1) * (Math.log(theta * t) + lsa)) * (1 + 1e-12),
   };
 }
+
+/**
+ * The same for a law on the integers 0, 1, 2, ... (a count as a claim: the zero-modified and zero-truncated laws), whose
+ * CF has period 2 pi: the table over one period (K cells of d = 2 pi / K, K = 512 doubled up to `budget` where a floor is
+ * not positive) gives Theta_P, the argument's total variation over a period, so over [0, t] it is at most
+ * floor(t / 2 pi) Theta_P + Theta(t mod 2 pi), and |phi(t)| <= h_j of t mod 2 pi's cell. Where the computed phase
+ * resolves the argument (each cell's move and each value's argument error below pi / 4) it also gives the winding number
+ * w = (theta(2 pi) - theta(0)) / 2 pi exactly and A = sup |theta| over a period (the computed phase's largest plus pi / 2), so
+ * |theta(t)| <= A + 2 pi n |w|. An unwrap from any t0 <= t then gives |Im L(t)| <= pi min(1, m t) + the least of the total
+ * variation and |theta(t)| + |theta(t0)|; R from the first period's cells and, past it, per unit t over n >= 1 periods.
+ * No damped transform here.
+ */
+export function withPeriodicLogRound<N extends Node>(node: N, p: { mean: number; logCf: PhaseRoute["logCf"]; err: number; budget: number }): N {
+  const m = p.mean * (1 + 4 * EPS);
+  const P = 2 * Math.PI;
+  let table: { d: number; H: Float64Array; T: Float64Array; thetaP: number; slope: number; w: number; A: number } | null | undefined;
+  const build = () => {
+    if (!(m > 0 && Number.isFinite(m) && p.err >= 0)) return null;
+    for (let K = 512; K <= p.budget; ) {
+      const d = (P / K) * (1 + 2 * EPS);
+      const t = Float64Array.from({ length: K }, (_, j) => (j + 1) * d);
+      const re = new Float64Array(K);
+      const im = new Float64Array(K);
+      p.logCf(t, re, im);
+      const lo = (j: number) => (j === 0 ? 1 : Math.exp(re[j - 1]) * (1 - 4 * EPS * (2 + Math.abs(re[j - 1]))) - p.err);
+      const up = (j: number) => (j === 0 ? 1 : Math.exp(re[j - 1]) * (1 + 4 * EPS * (2 + Math.abs(re[j - 1]))) + p.err);
+      const H = new Float64Array(K);
+      const T = new Float64Array(K);
+      let theta = 0;
+      let slope = U8 * (1 + Math.PI) * m;
+      let ok = true;
+      for (let j = 0; j < K && ok; j++) {
+        const Dd = m * d * (1 + 4 * EPS);
+        const [l0, l1] = [lo(j), lo(j + 1)];
+        const f = Math.min(l0, l1, (l0 + l1 - Dd) / 2) * (1 - 4 * EPS);
+        if (!(f > 0)) ok = false;
+        const th0 = theta;
+        theta = (theta + Dd / f) * (1 + 8 * EPS);
+        H[j] = Math.min(1, ((up(j) + up(j + 1) + Dd) / 2) * (1 + 4 * EPS));
+        T[j] = theta;
+        const s0 = j * d;
+        const thT = j === 0 ? theta / d : Math.max(th0 / s0, theta / (s0 + d));
+        slope = Math.max(slope, U8 * (m + H[j] * (Math.PI * m + thT)) * (1 + 32 * EPS));
+      }
+      if (!ok) {
+        // a value within its error of 0 stays so at any step; else the step that the smallest lower bound asks for (a cost
+        // rule: the floors are checked again there)
+        let minLo = Infinity;
+        for (let j = 1; j <= K; j++) minLo = Math.min(minLo, lo(j));
+        if (!(minLo > 0)) return null;
+        K = Math.max(2 * K, 2 ** Math.ceil(Math.log2((2 * P * m) / minLo)));
+        continue;
+      }
+      // the winding number w = (theta(2 pi) - theta(0)) / 2 pi from the computed phase, unwrapped from d (principal there:
+      // m d < 1): exact where every cell's move (at most D d / f) and each value's argument error (asin of its error over
+      // its floor) stay below pi / 4, and |theta(K d - 2 pi)| (one step) below pi / 2; else |w| <= Theta_P / 2 pi
+      let exact = m * d < 0.5;
+      for (let j = 0; j < K && exact; j++) exact = (m * d) / Math.min(lo(j), lo(j + 1)) < Math.PI / 4 - 1e-9 && p.err / lo(j + 1) < 0.5;
+      const w = exact ? Math.abs(Math.round(im[K - 1] / P)) : theta / P;
+      // and then A = sup |theta| over a period: the computed phase's largest plus pi / 2 (a value's error and a cell's move)
+      let A = theta;
+      if (exact) {
+        A = 0;
+        for (let j = 0; j < K; j++) A = Math.max(A, Math.abs(im[j] - (j + 1 === K ? 2 * Math.PI * Math.round(im[K - 1] / P) : 0)));
+        A = Math.min(theta, (A + Math.PI / 2) * (1 + 4 * EPS));
+      }
+      // |theta(t)| <= A + 2 pi n |w|; an unwrap from t0 <= t: |theta(t)| + |theta(t0)|, or the total variation
+      const lin = Math.min(theta, 4 * Math.PI * w);
+      slope = Math.max(slope, U8 * ((1 / Math.E + Math.PI) / P + Math.min(theta / Math.PI, (2 * theta + lin) / P, (2 * A) / P + 2 * w)) * (1 + 32 * EPS));
+      return { d, H, T, thetaP: theta, slope, w, A };
+    }
+    return null;
+  };
+  const get = () => (table === undefined ? (table = build()) : table);
+  const at = (t: number) => {
+    const g = get();
+    if (!g) return NaN;
+    const a = Math.abs(t);
+    const n = Math.floor(a / P);
+    const K = g.H.length;
+    // t mod 2 pi's cell, and its neighbours (the reduction's rounding)
+    const j = Math.min(Math.max(Math.floor((a - n * P) / g.d), 0), K - 1);
+    let h = 0;
+    let th = 0;
+    for (const i of [j - 1, j, j + 1]) {
+      const k = (i + K) % K;
+      h = Math.max(h, g.H[k]);
+      th = Math.max(th, g.T[k]);
+    }
+    if (j + 1 >= K) th = g.thetaP;
+    const re = Math.min(1 / Math.E, m * a, h <= 1 / Math.E ? -h * Math.log(h) * (1 + 4 * EPS) : Infinity);
+    // n periods (one more at the period's ends, for the reduction's rounding): the total variation n Theta_P + Theta(s), or
+    // |theta(t)| + |theta(t0)| <= Theta(s) + Theta_P + 4 pi n |w|
+    const n1 = n + (j + 1 >= K || j === 0 ? 1 : 0);
+    const arg = Math.min(n1 * g.thetaP + th, th + g.thetaP + 4 * Math.PI * n1 * g.w, 2 * g.A + 4 * Math.PI * n1 * g.w);
+    const b = U8 * (re + h * (Math.PI * Math.min(1, m * a) + arg)) * (1 + 16 * EPS);
+    return Math.min(g.slope * a, b);
+  };
+  Object.defineProperty(node, "logRoundSlope", { get: () => get()?.slope, enumerable: true, configurable: true });
+  return Object.assign(node, {
+    logRoundAt: (t: number) => at(t),
+    logRoundNote:
+      "the claim law's log rounding is bounded with its phase unwrapped along a grid that resolves it (steps below pi) or principal",
+  });
+}
