@@ -5,6 +5,7 @@ import { MAX_ATOMS, mergeAtoms } from "./kinds";
 import { commonStep } from "./lattice";
 import type { Atom } from "./types";
 import { point } from "./families/discrete";
+import { withLatticeLogRound } from "./families/log-round-table";
 
 /** Lattice law on origin + k step: phi(t) = sum_k p_k e^{i t (origin + k step)} (direct sum, centred at the mean). */
 export function latticeNode(origin: number, step: number, pIn: ArrayLike<number>, note?: string): Node {
@@ -63,7 +64,8 @@ export function latticeNode(origin: number, step: number, pIn: ArrayLike<number>
     };
     node.p0 = o === 0 ? p[0] : 0;
   }
-  return node;
+  // claim-law rounding (./families/log-round-table.ts): the table's argument over one period
+  return withLatticeLogRound(node, o, step, p);
 }
 
 /** Finite discrete law: phi(t) = sum_j p_j e^{i t x_j}, summed about the mean with re-anchored rotations. */

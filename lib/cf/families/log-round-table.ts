@@ -4,6 +4,7 @@
 // See ./log-round.ts for the rounding model (8 ulps of |L|, so 8 u |phi| |L|) and the compound's use (../compound-errors.ts).
 import type { Node } from "../node";
 import { lgamma } from "./special";
+import { unwrapFrom } from "../complex";
 
 const EPS = Number.EPSILON;
 const U8 = 8 * EPS;
@@ -227,10 +228,14 @@ export function burrPhaseTail(alpha: number, gamma: number, theta: number): { fr
  * variation and |theta(t)| + |theta(t0)|; R from the first period's cells and, past it, per unit t over n >= 1 periods.
  * No damped transform here.
  */
-export function withPeriodicLogRound<N extends Node>(node: N, p: { mean: number; logCf: PhaseRoute["logCf"]; err: number; budget: number }): N {
+export function withPeriodicLogRound<N extends Node>(
+  node: N,
+  p: { mean: number; logCf: PhaseRoute["logCf"]; err: number; budget: number; period?: number; origin?: number },
+): N {
   const m = p.mean * (1 + 4 * EPS);
-  const P = 2 * Math.PI;
-  let table: { d: number; H: Float64Array; T: Float64Array; thetaP: number; slope: number; w: number; A: number } | null | undefined;
+  const P = p.period ?? 2 * Math.PI;
+  const o = p.origin ?? 0;
+  let table: { d: number; H: Float64Array; T: Float64Array; thetaP: number; slope: number; delta: number; A: number } | null | undefined;
   const build = () => {
     if (!(m > 0 && Number.isFinite(m) && p.err >= 0)) return null;
     for (let K = 512; K <= p.budget; ) {
@@ -273,18 +278,20 @@ export function withPeriodicLogRound<N extends Node>(node: N, p: { mean: number;
       // its floor) stay below pi / 4, and |theta(K d - 2 pi)| (one step) below pi / 2; else |w| <= Theta_P / 2 pi
       let exact = m * d < 0.5;
       for (let j = 0; j < K && exact; j++) exact = (m * d) / Math.min(lo(j), lo(j + 1)) < Math.PI / 4 - 1e-9 && p.err / lo(j + 1) < 0.5;
-      const w = exact ? Math.abs(Math.round(im[K - 1] / P)) : theta / P;
+      // the move over a period, theta(P) - theta(0) = o P + 2 pi w (phi(t + P) = e^{i o P} phi(t)), w an integer
+      const oP = o * P;
+      const w = Math.round((im[K - 1] - oP) / (2 * Math.PI));
+      const delta = exact ? Math.abs(oP + 2 * Math.PI * w) * (1 + 4 * EPS) : theta;
       // and then A = sup |theta| over a period: the computed phase's largest plus pi / 2 (a value's error and a cell's move)
       let A = theta;
       if (exact) {
         A = 0;
-        for (let j = 0; j < K; j++) A = Math.max(A, Math.abs(im[j] - (j + 1 === K ? 2 * Math.PI * Math.round(im[K - 1] / P) : 0)));
+        for (let j = 0; j < K; j++) A = Math.max(A, Math.abs(im[j]));
         A = Math.min(theta, (A + Math.PI / 2) * (1 + 4 * EPS));
       }
-      // |theta(t)| <= A + 2 pi n |w|; an unwrap from t0 <= t: |theta(t)| + |theta(t0)|, or the total variation
-      const lin = Math.min(theta, 4 * Math.PI * w);
-      slope = Math.max(slope, U8 * ((1 / Math.E + Math.PI) / P + Math.min(theta / Math.PI, (2 * theta + lin) / P, (2 * A) / P + 2 * w)) * (1 + 32 * EPS));
-      return { d, H, T, thetaP: theta, slope, w, A };
+      // |theta(t)| <= A + n |delta|; an unwrap from t0 <= t: |theta(t)| + |theta(t0)|, or the total variation
+      slope = Math.max(slope, U8 * ((1 / Math.E + Math.PI) / P + Math.min((2 * theta) / P, (2 * theta + 2 * delta) / P, (2 * A + 2 * delta) / P)) * (1 + 32 * EPS));
+      return { d, H, T, thetaP: theta, slope, delta, A };
     }
     return null;
   };
@@ -309,7 +316,7 @@ export function withPeriodicLogRound<N extends Node>(node: N, p: { mean: number;
     // n periods (one more at the period's ends, for the reduction's rounding): the total variation n Theta_P + Theta(s), or
     // |theta(t)| + |theta(t0)| <= Theta(s) + Theta_P + 4 pi n |w|
     const n1 = n + (j + 1 >= K || j === 0 ? 1 : 0);
-    const arg = Math.min(n1 * g.thetaP + th, th + g.thetaP + 4 * Math.PI * n1 * g.w, 2 * g.A + 4 * Math.PI * n1 * g.w);
+    const arg = Math.min(n1 * g.thetaP + th, th + g.thetaP + 2 * n1 * g.delta, 2 * g.A + 2 * n1 * g.delta);
     const b = U8 * (re + h * (Math.PI * Math.min(1, m * a) + arg)) * (1 + 16 * EPS);
     return Math.min(g.slope * a, b);
   };
@@ -319,4 +326,41 @@ export function withPeriodicLogRound<N extends Node>(node: N, p: { mean: number;
     logRoundNote:
       "the claim law's log rounding is bounded with its phase unwrapped along a grid that resolves it (steps below pi) or principal",
   });
+}
+
+/**
+ * A lattice table (origin o, step h, probabilities p_0..p_{n-1}) as a claim: withPeriodicLogRound over the period 2 pi / h
+ * with the phase drift o, its moduli |Q(e^{i h t})|, Q(z) = sum_k p_k z^k, by Horner (complex multiply-adds, each within
+ * (2 sqrt 2 + 2) u of its terms' moduli: 5 n u of sum p_k = 1, Higham, Accuracy and Stability of Numerical Algorithms, 2nd
+ * ed., sec. 5.1) at z within u h t + 2 u of e^{i h t} (|Q'| <= E K on the circle, t <= 2 pi / h: (2 pi + 2) u E K), and its
+ * phase o t + arg Q unwrapped along the period's grid. Tables of at most 256 entries (the table costs 512 n to 2048 n products).
+ */
+export function withLatticeLogRound<N extends Node>(node: N, o: number, h: number, p: ArrayLike<number>): N {
+  const n = p.length;
+  if (!(n >= 2 && n <= 256 && h > 0 && Number.isFinite(o))) return node;
+  let absMean = 0;
+  let eK = 0;
+  for (let k = 0; k < n; k++) {
+    absMean += p[k] * Math.abs(o + k * h);
+    eK += p[k] * k;
+  }
+  const err = (5 * n * (EPS / 2) + (2 * Math.PI + 2) * (EPS / 2) * eK) * 1.1 + 1e-300;
+  const logCf = (t: Float64Array, re: Float64Array, im: Float64Array) => {
+    for (let j = 0; j < t.length; j++) {
+      const zr = Math.cos(h * t[j]);
+      const zi = Math.sin(h * t[j]);
+      let sr = 0;
+      let si = 0;
+      for (let k = n - 1; k >= 0; k--) {
+        const nr = sr * zr - si * zi + p[k];
+        si = sr * zi + si * zr;
+        sr = nr;
+      }
+      re[j] = Math.log(Math.hypot(sr, si));
+      im[j] = Math.atan2(si, sr);
+    }
+    unwrapFrom(im, 0);
+    for (let j = 0; j < t.length; j++) im[j] += o * t[j];
+  };
+  return withPeriodicLogRound(node, { mean: absMean * (1 + n * EPS), logCf, err, budget: 2048, period: (2 * Math.PI) / h, origin: o });
 }
