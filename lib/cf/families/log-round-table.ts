@@ -66,7 +66,7 @@ function tryTable(p: PhaseRoute, m: number, d: number): Table | null {
   const up = (j: number) => (j === 0 ? 1 : Math.exp(re[j - 1]) * (1 + 4 * EPS * (2 + Math.abs(re[j - 1]))) + p.err);
   const B = new Float64Array(K);
   let theta = 0;
-  let slope = U8 * (1 + Math.PI) * m;
+  let slope = U8 * (1 + Math.PI) * m * (1 + 32 * EPS);
   for (let j = 0; j < K; j++) {
     const s0 = j * d;
     const s1 = (j + 1) * d;
