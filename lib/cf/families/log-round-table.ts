@@ -1,6 +1,7 @@
-// Node.logRoundSlope / logRoundAt / logRoundDampedAt of a positive claim law that is no generalized gamma convolution
-// (Weibull shape > 1): |phi| need not decrease, so the continuous argument is bounded from a table of lower bounds on |phi|
-// (the law's own evaluation and its error bound, |phi'| <= E X) up to where the large-t expansion's first term dominates.
+// Node.logRoundSlope / logRoundAt / logRoundDampedAt of claim laws whose |phi| need not decrease (no generalized gamma
+// convolution: Weibull shape > 1, Burr and log-logistic gamma > 1), so the continuous argument is bounded from a table of
+// lower bounds on |phi| (the law's own evaluation and its error bound, |phi'| <= E X) up to where the large-t expansion's
+// first term dominates; and of laws on a lattice (zero-modified counts, lattice tables) from such a table over one period.
 // See ./log-round.ts for the rounding model (8 ulps of |L|, so 8 u |phi| |L|) and the compound's use (../compound-errors.ts).
 import type { Node } from "../node";
 import { lgamma } from "./special";
