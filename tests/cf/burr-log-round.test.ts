@@ -10,6 +10,7 @@ import { burr } from "@/lib/cf/families/burr";
 import { burrPhaseTail } from "@/lib/cf/families/log-round-table";
 import { compile } from "@/lib/cf/compile";
 import type { Model } from "@/lib/cf/types";
+import { expectCompoundCarriesRounding, expectNodeLogCfOnGrid } from "../support/claim-log-round";
 
 interface Row { t: number; re: string; im: string; absPhi: number; logAbs: number; theta: number; phiTimesLog: number; absDeriv: number; crossCheck: number }
 interface Damped { beta: number; t: number; absPhi: number; principalLog: number; crossCheck: number }
@@ -87,21 +88,7 @@ describe("Burr and log-logistic gamma > 1: the claim law's log rounding (mpmath 
     });
 
     it(`${name}: the node's e^L on an equispaced grid within its CF error plus logRoundAt of the reference, its phase on the continuous branch`, () => {
-      const node = build(c.model);
-      const h = 0.05;
-      const K = 1000;
-      const t = Float64Array.from({ length: K }, (_, i) => (i + 1) * h);
-      const re = new Float64Array(K);
-      const im = new Float64Array(K);
-      node.logCf(t, re, im);
-      for (const r of c.rows) {
-        const j = Math.round(r.t / h) - 1;
-        if (j < 0 || Math.abs(t[j] - r.t) > 1e-12) continue;
-        const v = Math.exp(re[j]);
-        const d = Math.hypot(v * Math.cos(im[j]) - Number(r.re), v * Math.sin(im[j]) - Number(r.im));
-        expect(d, `t ${r.t}`).toBeLessThanOrEqual(node.cfAbsError! + node.logRoundAt!(r.t, node) + r.crossCheck);
-        expect(Math.abs(im[j] - r.theta), `t ${r.t}`).toBeLessThan(1e-6);
-      }
+      expectNodeLogCfOnGrid(build(c.model), c.rows);
     });
   }
 });
@@ -121,14 +108,6 @@ describe("compounds of Burr and log-logistic claims of gamma > 1 carry the claim
       const { family, ...p } = c.model;
       const each = family === "loglogistic" ? { family, gamma: p.gamma, theta: p.theta } : { family, ...p };
       const m = compile({ compound: { count: cc.count, each } } as unknown as Model);
-      expect(m.notes.some((n) => n.includes("not derived for this claim law"))).toBe(false);
-      let closest = 0;
-      for (const r of c.rows) {
-        const need = cc.dP(Number(r.re), Number(r.im)) * U8 * r.phiTimesLog;
-        const b = Math.min((m.cfArgSlope ?? 0) * r.t, m.cfArgErrAt!(r.t));
-        expect(b, `t ${r.t}`).toBeGreaterThanOrEqual(need);
-        closest = Math.max(closest, need / b);
-      }
-      expect(closest).toBeGreaterThan(0.1 / 8);
+      expectCompoundCarriesRounding(m, c.rows, cc.dP);
     });
 });

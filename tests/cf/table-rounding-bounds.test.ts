@@ -10,6 +10,7 @@ import { compoundByFft, type SeverityLaw } from "@/lib/cf/discretise";
 import { boundedCompound, compoundPairByFft } from "@/lib/cf/discretise-bounds";
 import type { Node } from "@/lib/cf/node";
 import { record, worst } from "./model-assert";
+import { diceExact } from "../support/lattice-exact";
 
 const fx: { cases: { name: string; pmf: string[]; xerr: string; from?: number }[] } = JSON.parse(readFileSync("tests/fixtures/panjer-bounds/panjer-bounds.json", "utf8"));
 const ref = (name: string) => {
@@ -18,17 +19,8 @@ const ref = (name: string) => {
 };
 const node = (m: unknown) => buildNode(validateModel(m as never), {}) as Node;
 
-/** P(sum of n fair s-sided dice = k) as exact rationals (integer counts / s^n), rounded once to a double */
-function dice(n: number, s: number): number[] {
-  let ways: bigint[] = [1n];
-  for (let d = 0; d < n; d++) {
-    const next = new Array<bigint>(ways.length + s - 1).fill(0n);
-    for (let i = 0; i < ways.length; i++) for (let f = 0; f < s; f++) next[i + f] += ways[i];
-    ways = next;
-  }
-  const total = BigInt(s) ** BigInt(n);
-  return ways.map((w) => Number((w << 80n) / total) / 2 ** 80);
-}
+// P(sum of n fair s-sided dice = k) as exact rationals (integer counts / s^n), rounded once to a double
+const dice = diceExact;
 
 afterAll(() => console.log("bound / actual:", JSON.stringify(worst)));
 

@@ -1,5 +1,6 @@
-// Exact references for lattice tests: dice and binomial laws as big-integer rationals (common practice: the
-// counts by dynamic programming and C(n, k) num^k (den - num)^(n - k) / den^n), rounded once to the nearest double.
+// Exact references for lattice tests (lattice, lattice-panjer, table-rounding-bounds): dice and binomial laws as
+// big-integer rationals (common practice: the counts by dynamic programming and C(n, k) num^k (den - num)^(n - k) /
+// den^n), rounded once to the nearest double.
 /** Exact probabilities of the sum of n fair s-sided dice: counts by integer dynamic programming / s^n. */
 export function diceExact(n: number, s: number): number[] {
   let ways: bigint[] = [1n];
