@@ -56,15 +56,24 @@ function buildTable(p: PhaseRoute): Table | null {
   return null;
 }
 
-function tryTable(p: PhaseRoute, m: number, d: number): Table | null {
-  const K = Math.ceil(p.tail.from / d);
-  if (!(K <= p.budget)) return null;
+/**
+ * The law's log-CF at t_j = j d (j = 1..K) in one batch, and lower / upper bounds on |phi(t_j)| from it (j = 0: t = 0,
+ * |phi| = 1): e^{Re L} within 4 eps (2 + |Re L|) relative for the exp's rounding, then the declared absolute CF error.
+ */
+function sampleModuli(p: { logCf: PhaseRoute["logCf"]; err: number }, d: number, K: number) {
   const t = Float64Array.from({ length: K }, (_, j) => (j + 1) * d);
   const re = new Float64Array(K);
   const im = new Float64Array(K);
   p.logCf(t, re, im);
   const lo = (j: number) => (j === 0 ? 1 : Math.exp(re[j - 1]) * (1 - 4 * EPS * (2 + Math.abs(re[j - 1]))) - p.err);
   const up = (j: number) => (j === 0 ? 1 : Math.exp(re[j - 1]) * (1 + 4 * EPS * (2 + Math.abs(re[j - 1]))) + p.err);
+  return { re, im, lo, up };
+}
+
+function tryTable(p: PhaseRoute, m: number, d: number): Table | null {
+  const K = Math.ceil(p.tail.from / d);
+  if (!(K <= p.budget)) return null;
+  const { im, lo, up } = sampleModuli(p, d, K);
   const B = new Float64Array(K);
   let theta = 0;
   let slope = U8 * (1 + Math.PI) * m * (1 + 32 * EPS);
@@ -241,12 +250,7 @@ export function withPeriodicLogRound<N extends Node>(
     if (!(m > 0 && Number.isFinite(m) && p.err >= 0)) return null;
     for (let K = 512; K <= p.budget; ) {
       const d = (P / K) * (1 + 2 * EPS);
-      const t = Float64Array.from({ length: K }, (_, j) => (j + 1) * d);
-      const re = new Float64Array(K);
-      const im = new Float64Array(K);
-      p.logCf(t, re, im);
-      const lo = (j: number) => (j === 0 ? 1 : Math.exp(re[j - 1]) * (1 - 4 * EPS * (2 + Math.abs(re[j - 1]))) - p.err);
-      const up = (j: number) => (j === 0 ? 1 : Math.exp(re[j - 1]) * (1 + 4 * EPS * (2 + Math.abs(re[j - 1]))) + p.err);
+      const { im, lo, up } = sampleModuli(p, d, K);
       const H = new Float64Array(K);
       const T = new Float64Array(K);
       let theta = 0;
