@@ -90,3 +90,27 @@ export function expectCompoundCarriesRounding(m: CompiledModel, rows: readonly L
   }
   expect(closest).toBeGreaterThan(0.1 / 8);
 }
+
+/**
+ * A claim node's own logRoundAt covers 8 u |phi| |L| of the reference (continuous and principal branch) at every row and
+ * lies within its slope R t, which covers it too; the closest row comes within 10x (a bound cut by 10 fails), and where
+ * |phi| |L| > 0.01 the bound stays within `within` of it (Weibull, Burr).
+ */
+export function expectLogRoundCovers(node: Node, rows: readonly LogRoundRow[], within: number): void {
+  const R = node.logRoundSlope!;
+  expect(Number.isFinite(R)).toBe(true);
+  let closest = 0;
+  let worst = 0;
+  for (const r of rows) {
+    const b = node.logRoundAt!(r.t, node);
+    const principal = Math.atan2(Number(r.im), Number(r.re));
+    const need = U8 * Math.max(r.phiTimesLog, r.absPhi * Math.hypot(r.logAbs, principal));
+    expect(b, `t ${r.t}: bound ${b}, 8 u |phi| |L| ${need}`).toBeGreaterThanOrEqual(need);
+    expect(R * r.t, `t ${r.t}`).toBeGreaterThanOrEqual(need);
+    expect(b).toBeLessThanOrEqual(R * r.t);
+    closest = Math.max(closest, need / b);
+    if (r.phiTimesLog > 0.01) worst = Math.max(worst, b / need);
+  }
+  expect(closest).toBeGreaterThan(0.1);
+  expect(worst).toBeLessThan(within);
+}
