@@ -5,7 +5,8 @@
 // behind the worst and every model over its target by CPU time (the targets are CPU times: the machine is shared).
 // BENCH_MODELS, BENCH_SEED, BENCH_DEADLINE_MS, BENCH_WARM (see below), BENCH_SKIP_LOGNORMAL=1; BENCH_PART=random or
 // BENCH_PART=poisson-lognormal runs one part alone, BENCH_PLN_LAMBDAS / BENCH_PLN_SIGMAS (comma lists) choose the
-// compounds, BENCH_ROWS=1 prints each compound's CPU times and bounds, BENCH_REPEAT=n times each Poisson-lognormal call n
+// compounds, BENCH_SEVERITIES=all lets the random compounds draw pareto and weibull claims too (default: lognormal,
+// gamma and exponential claims, the set the earlier figures were taken on), BENCH_ROWS=1 prints each compound's CPU times and bounds, BENCH_REPEAT=n times each Poisson-lognormal call n
 // times (a fresh compile each) and keeps the least CPU time (default 1). The timed calls follow the warm-up a server's
 // compute threads run at start (lib/compute/warm.ts; BENCH_COLD=1 leaves it out). Pure lib/cf and lib/api/operations.
 import { loadavg } from "node:os";
@@ -28,6 +29,7 @@ const plnLambdas = list(process.env.BENCH_PLN_LAMBDAS, [0.1, 1, 10, 100, 1000]);
 const plnSigmas = list(process.env.BENCH_PLN_SIGMAS, [0.5, 1, 1.5]);
 const printRows = process.env.BENCH_ROWS === "1";
 const repeat = Math.max(1, Number(process.env.BENCH_REPEAT ?? 1));
+const allSeverities = process.env.BENCH_SEVERITIES === "all";
 
 function median(xs: number[]): number {
   const s = [...xs].sort((a, b) => a - b);
@@ -96,7 +98,7 @@ const warm = part === "poisson-lognormal" ? 0 : Number(process.env.BENCH_WARM ??
 {
   const rw = rng(seed + 1);
   for (let i = 0; i < warm; i++) {
-    const c = compile(randomModel(rw, 8, true));
+    const c = compile(randomModel(rw, 8, true, allSeverities));
     timed(() => quantiles(c, SEVEN, { expectedShortfall: true }));
     timed(() => density(c, { grid: { from: c.location - 4 * c.scale, to: c.location + 8 * c.scale, count: 1000 } }));
   }
@@ -107,7 +109,7 @@ type Row = { ms: number; cpu: number; model: Model; error?: string };
 const qRows: Row[] = [];
 const dRows: Row[] = [];
 for (let i = 0; part !== "poisson-lognormal" && i < count; i++) {
-  const model = randomModel(r, 8, true);
+  const model = randomModel(r, 8, true, allSeverities);
   const c = compile(model);
   const q = timed(() => quantiles(c, SEVEN, { expectedShortfall: true }));
   qRows.push({ ms: q.ms, cpu: q.cpu, model, error: q.error });
@@ -116,7 +118,8 @@ for (let i = 0; part !== "poisson-lognormal" && i < count; i++) {
 }
 if (part !== "poisson-lognormal") {
   console.log(
-    `seed ${seed}, ${count} random models (sums, mixes, compounds, scales, shifts; up to 8 terms)` +
+    `seed ${seed}, ${count} random models (sums, mixes, compounds, scales, shifts; up to 8 terms` +
+      (allSeverities ? "; claims include pareto and weibull)" : ")") +
       (engineWarm ? `, after the compute threads' warm-up (${engineWarm.done} calls, ${engineWarm.ms} ms)` : ", cold (BENCH_COLD=1)") +
       (warm ? `, after ${warm} untimed models of seed ${seed + 1}` : ""),
   );

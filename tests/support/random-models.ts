@@ -25,7 +25,7 @@ function count(r: R): Model {
   ])() as Model;
 }
 
-/** Severities; `all` adds pareto and weibull, whose compounds are discretised by default (slow inside mixtures). */
+/** Severities; `all` adds pareto and weibull claims (their compounds' CFs decay slowly: slower inversions). */
 function severity(r: R, all = false): Model {
   const smooth: (() => Model)[] = [
     () => ({ family: "lognormal", mu: between(r, -1, 2), sigma: between(r, 0.3, 1.5) }) as Model,
