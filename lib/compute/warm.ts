@@ -14,7 +14,18 @@ type WarmRequest = { op: OperationName; body: Record<string, unknown> };
 const SEVEN = [0.001, 0.01, 0.1, 0.5, 0.9, 0.99, 0.999];
 const motor = { compound: { count: { family: "poisson", lambda: 3.2 }, each: { family: "lognormal", mu: 0.4, sigma: 0.9 } } };
 const property = { compound: { count: { family: "negative_binomial", r: 2.5, p: 0.55 }, each: { family: "gamma", shape: 1.7, rate: 0.6 } } };
-/** the routes' representatives: heavy two-sided sum, light sum with a quadrature term, positive power tail, damped sum, mixture */
+/** a book of several lines (a mixture whose components each take their own route: a closed form, damped compounds of
+ * exponential, gamma and lognormal claims), so that the mixture route's own code is compiled, not only its two-part case */
+const lines = {
+  mix: [
+    { weight: 0.2, of: { family: "gamma", shape: 2.1, rate: 0.8 } },
+    { weight: 0.3, of: { compound: { count: { family: "negative_binomial", r: 1.8, p: 0.5 }, each: { family: "exponential", rate: 1.1 } } } },
+    { weight: 0.15, of: { compound: { count: { family: "negative_binomial", r: 2.2, p: 0.6 }, each: { family: "lognormal", mu: 0.5, sigma: 1.2 } } } },
+    { weight: 0.25, of: { compound: { count: { family: "poisson", lambda: 12 }, each: { family: "gamma", shape: 1.5, rate: 1.3 } } } },
+    { weight: 0.1, of: { compound: { count: { family: "poisson", lambda: 0.6 }, each: { family: "lognormal", mu: 0.8, sigma: 1.4 } } } },
+  ],
+};
+/** the routes' representatives: heavy two-sided sum, light sum with a quadrature term, positive power tail, damped sum, mixtures */
 const MODELS: Record<string, unknown>[] = [
   {
     sum: [
@@ -27,6 +38,7 @@ const MODELS: Record<string, unknown>[] = [
   { sum: [{ family: "pareto", alpha: 2.4, xm: 1.2 }, { family: "gamma", shape: 3, rate: 1.5 }, { family: "normal", mu: 1, sigma: 0.5 }] },
   { sum: [motor, property, { family: "gamma", shape: 4, rate: 1 }] },
   { mix: [{ weight: 0.6, of: motor }, { weight: 0.4, of: property }] },
+  lines,
 ];
 
 export const WARM_REQUESTS: WarmRequest[] = [
