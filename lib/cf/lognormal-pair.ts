@@ -81,7 +81,8 @@ const rule = (n: number) => {
 /**
  * `at(x, wantPdf, wantInt, panelTol)`: a part not asked for is not formed (its value NaN, its bound Infinity), which
  * saves its transcendental calls at every node (the cdf alone takes one exp, one log and one Phi a node of the five);
- * panelTol is the per-panel target of the rule's bound (default 1e-16; the bounds returned hold for any target)
+ * panelTol is the per-panel target of the rule's bound on each part asked for (F_2, and f_2, I_2 through their scales of the
+ * rule's bound below; default 1e-16; the bounds returned hold for any target)
  */
 export function lognormalPair(
   mu: number,
@@ -158,6 +159,11 @@ export function lognormalPair(
     let gap = 0;
     let qF = 0;
     const span = vm - V_LO;
+    // the rule's bound on f_2 and I_2 is qF times fScale, iScale (see the return): the per-panel target on F_2 is cut by the larger
+    // of those asked for, so that each part asked for is within about panelTol a panel
+    const fScale = 1 / (SQ2PI * sigma * x * (1 - Math.SQRT1_2));
+    const iScale = x * (1 + Math.SQRT1_2) + m1;
+    const target = panelTol / Math.max(1, wantPdf ? fScale : 1, wantInt ? iScale : 1);
     for (const p of panels) {
       if (p.s0 >= span) break;
       const cut = p.s1 > span;
@@ -178,9 +184,17 @@ export function lognormalPair(
       const a1 = c + L;
       const near = a0 <= 0 && a1 >= 0 ? 0 : Math.min(Math.abs(a0), Math.abs(a1));
       gap += (U * (2 * Math.abs(vm - p.s0) + 2 * Math.abs(c) + 2 * L + (cut ? span : 0))) * phi(near);
-      // the fewest nodes from the list whose bound k rho^{-2n} is below the panel target
+      // a panel whose integrands are below the target over its whole length is left out: on the real segment
+      // phi(v) Phi(w) <= phi(v) <= phi(near), and f(x - y) <= 2 / (sqrt(2 pi) sigma x) <= fScale, I_1(x - y) <= x <= iScale
+      // (x - y >= x / 2), so its integrals are within 2 L phi(near) times 1, fScale, iScale, as the rule's bound is
+      const skip = 2.02 * L * phi(near);
+      if (skip <= target) {
+        qF += skip;
+        continue;
+      }
+      // the fewest nodes whose bound k rho^{-2n} is below the panel target (every count up to 16, then steps of 4)
       let n = 4;
-      while (n < 48 && k * Math.pow(p.rho, -2 * n) > panelTol) n += 4;
+      while (n < 48 && k * Math.pow(p.rho, -2 * n) > target) n += n < 16 ? 1 : 4;
       qF += k * Math.pow(p.rho, -2 * n);
       const r = rule(n);
       for (let i = 0; i < n; i++) {
@@ -203,13 +217,15 @@ export function lognormalPair(
         // wz's error: log's 2u |lz| and z's rz, the subtraction and the division
         const dw = (rz + U * (2 * Math.abs(lz) + Math.abs(lz - mu))) / sigma + U * Math.abs(wz);
         const P = normalCdfFast(wz, PW);
-        const pw = phi(wz);
+        // phi(wz) for P's bound and, where asked, the density's factor: one exp for both
+        const ew = Math.exp(-0.5 * wz * wz);
+        const pw = ew / SQ2PI;
         const eP = P.e + 1.01 * pw * dw;
         const tF = wt * P.v;
         sF += tF;
         eF += wt * eP + tF * (rw + U) + U * sF;
         if (wantPdf) {
-          const tf = (wt * Math.exp(-0.5 * wz * wz)) / (z * sigma * SQ2PI);
+          const tf = (wt * ew) / (z * sigma * SQ2PI);
           sf += tf;
           // exp(-wz^2/2) moves by |wz| dw and rounds u wz^2 + 2u; z, sigma SQ2PI (2u), two products and the division
           ef += tf * (rw + 1.01 * Math.abs(wz) * dw + U * (wz * wz + 8) + rz) + U * sf;
@@ -250,8 +266,6 @@ export function lognormalPair(
     }
     // the rule's bound scales with M: for f_2 by |f(x - y)| / |Phi(w)| <= 1 / (sqrt(2 pi) sigma x (1 - 1/sqrt 2)),
     // for I_2 by |I_1(x - y)| / |Phi(w)| <= x (1 + 1/sqrt 2) + m1
-    const fScale = 1 / (SQ2PI * sigma * x * (1 - Math.SQRT1_2));
-    const iScale = x * (1 + Math.SQRT1_2) + m1;
     // left of v_lo and in the gaps: the integrands are at most 1, sup f, x
     return {
       F,

@@ -36,18 +36,20 @@ describe("sum of two lognormal claims: cdf, density and integrated cdf within th
   });
   // the damped route asks the quadrature for tol / 1000 a panel and only the parts it needs: the values asked for stay
   // within their (larger) bounds against the same mpmath references; the parts not asked for are NaN with an Infinity bound
-  it.each(fixture.cases.map((c) => [c.mu, c.sigma, c] as const))("lognormal(%s, %s), panel target 1e-12, cdf alone and cdf with density", (_mu, _s, c) => {
+  // (a compound with little mass at two claims asks for tol / (1000 P(N = 2)) a panel, up to 1e-3: the looser target
+  // leaves out panels whose integrands are below it and takes fewer nodes; the values stay within their bounds)
+  it.each(fixture.cases.map((c) => [c.mu, c.sigma, c] as const))("lognormal(%s, %s), panel targets 1e-12 and 1e-6, cdf alone and cdf with density", (_mu, _s, c) => {
     const pair = lognormalPair(c.mu, c.sigma);
     for (const p of c.points) {
-      for (const wantPdf of [false, true]) {
-        const v = pair.at(p.x, wantPdf, false, 1e-12);
+      for (const [wantPdf, target] of [[false, 1e-12], [true, 1e-12], [false, 1e-6], [true, 1e-6]] as const) {
+        const v = pair.at(p.x, wantPdf, false, target);
         const checks: [string, number, number, number, number][] = [["F", v.F, p.F, v.errF, c.crossCheck.maxAbsoluteDifference.F]];
         if (wantPdf) checks.push(["f", v.f, p.f, v.errf, c.crossCheck.maxAbsoluteDifference.f]);
         for (const [k, got, want, bound, ref] of checks) {
           const d = Math.abs(got - want);
-          if (!(d <= bound + ref)) expect.fail(`${k}(${p.x}) mu ${c.mu} sigma ${c.sigma} (panel target 1e-12): got ${got}, reference ${want}, difference ${d}, bound ${bound}`);
-          // 46 panels at most, each within 1e-12: the bound stays below 1e-10 (times the density's scale for f)
-          expect(bound).toBeLessThanOrEqual(k === "f" ? 1e-10 * Math.max(1, p.f * 1e3) : 1e-10);
+          if (!(d <= bound + ref)) expect.fail(`${k}(${p.x}) mu ${c.mu} sigma ${c.sigma} (panel target ${target}): got ${got}, reference ${want}, difference ${d}, bound ${bound}`);
+          // 46 panels at most, each within the target: the bound stays below 100 times it (times the density's scale for f)
+          expect(bound).toBeLessThanOrEqual(k === "f" ? 100 * target * Math.max(1, p.f * 1e3) : 100 * target);
         }
         expect(v.I).toBeNaN();
         expect(v.errI).toBe(Infinity);

@@ -103,8 +103,9 @@ export interface DampedSolution {
   /** the two-claim term taken out of psi_c (added back by quadrature), or null */
   pair: SeverityKernel["pair"] | null;
   /**
-   * the two-claim term's per-panel quadrature target: tol / 1000, not below 1e-16 (some 25 panels, so the rule's part is
-   * a few hundredths of tol where every panel reaches it); the term's stated bound is what the answer carries
+   * the two-claim term's per-panel quadrature target on the unweighted law: tol / (1000 P(N = 2)), within [1e-16, 1e-3]
+   * (some 6 to 25 panels, so the rule's part of the weighted term is a few hundredths of tol where every panel reaches it);
+   * the term's stated bound is what the answer carries
    */
   pairTol: number;
   notes: string[];
@@ -295,7 +296,7 @@ export function dampedSetup(model: CompiledModel, atoms: Atom[], R: number, o: D
     kernels: ks,
     severity: model.dampedSeverity ?? null,
     pair,
-    pairTol: Math.max(tol / 1000, 1e-16),
+    pairTol: Math.min(Math.max(tol / (1000 * (pair ? pair.w : 1)), 1e-16), 1e-3),
     q,
     maxFrequency: K * h,
     capped,
