@@ -123,25 +123,34 @@ export function truncationAtY(uniform: number, tau: number, h: number, y: number
 }
 
 /**
- * sup over y in [0, Y] of e^{beta y} truncationAtY(y), Y < T = 2 pi / h. With s(y) the sine less its rounding allowance
- * (concave on (0, pi), so f(y) = e^{beta y} tau / s(y) is log-convex where s > 0) and y0 the smallest y with
- * sin(h y / 2) = tau / uniform: below y0 the bound is the uniform one, at most e^{beta y0} uniform; on [y0, min(Y, T/2)]
- * it is at most f, so at most f(y0) or, where f is largest at the right end, its value there (the smaller of f and
- * e^{beta y} uniform, both non-decreasing up to there); past T / 2 both increase up to Y. Never above e^{beta Y} uniform.
+ * sup over y in [yMin, Y] of e^{beta y} truncationAtY(y), 0 <= yMin <= Y < T = 2 pi / h. With s(y) the sine less its
+ * rounding allowance (concave on (0, pi), so f(y) = e^{beta y} tau / s(y) is log-convex where s > 0) and y0 the smallest y
+ * with sin(h y / 2) = tau / uniform: below y0 the bound is the uniform one, at most e^{beta y0} uniform; on
+ * [max(y0, yMin), min(Y, T/2)] it is at most f, so at most f at that interval's ends (the smaller of f and e^{beta y}
+ * uniform, both non-decreasing up to there); past T / 2 both increase up to Y. Never above e^{beta Y} uniform. yMin > 0
+ * (every point answered lies at or past it) leaves out the frequencies' uniform tail near lo, where the sine is small.
  */
-export function truncationSup(uniform: number, tau: number, h: number, beta: number, Y: number): number {
+export function truncationSup(uniform: number, tau: number, h: number, beta: number, Y: number, yMin = 0): number {
   const T = (2 * Math.PI) / h;
   const g = (y: number) => Math.exp(beta * y) * (1 + 8 * EPS * (1 + beta * y));
   const whole = g(Y) * uniform;
   if (!(tau < uniform)) return whole;
   const y0 = (2 / h) * Math.asin(Math.min(1, tau / uniform));
   if (!(y0 < Y)) return whole;
-  const a0 = 0.5 * h * y0;
-  const s0 = Math.abs(Math.sin(a0)) - 4 * EPS * (1 + a0);
-  if (!(s0 > 0)) return whole;
   const mid = Math.min(Y, T / 2);
-  let sup = Math.max(g(y0) * uniform, (g(y0) * tau) / s0);
-  sup = Math.max(sup, g(mid) * truncationAtY(uniform, tau, h, mid));
+  let sup: number;
+  const y1 = Math.min(Math.max(yMin, 0), Y);
+  if (y1 > y0) {
+    // the range starts past y0: f at its left end (or, past T / 2, the values increase up to Y)
+    sup = g(y1) * truncationAtY(uniform, tau, h, y1);
+    if (y1 < mid) sup = Math.max(sup, g(mid) * truncationAtY(uniform, tau, h, mid));
+  } else {
+    const a0 = 0.5 * h * y0;
+    const s0 = Math.abs(Math.sin(a0)) - 4 * EPS * (1 + a0);
+    if (!(s0 > 0)) return whole;
+    sup = Math.max(g(y0) * uniform, (g(y0) * tau) / s0);
+    sup = Math.max(sup, g(mid) * truncationAtY(uniform, tau, h, mid));
+  }
   if (Y > mid) sup = Math.max(sup, g(Y) * truncationAtY(uniform, tau, h, Y));
   return Math.min(whole, sup * (1 + 16 * EPS));
 }
@@ -168,14 +177,14 @@ export function slopeTruncationAt(env: Envelope, slope: SlopeEnvelope, tmax: num
 }
 
 /**
- * The truncation over the whole range [0, span] after undamping, for a cut-off t: sup_y e^{beta y} times the smaller of
+ * The truncation over the range [yMin, span] after undamping, for a cut-off t: sup_y e^{beta y} times the smaller of
  * the envelope's uniform tail (the cdf's or the density's, `of`) and tau / |sin(h y / 2)| (truncationSup), with tau from
  * the slope envelope's tail, both interpolated to t as the setup does (truncationFrom); for sums answered at every point
- * of the range (grids, points)
+ * of the range (grids, points; yMin the nearest to lo of them)
  */
-function truncationRange(env: Envelope, of: "cdf" | "pdf", slope: SlopeEnvelope, t: number, T: number, beta: number, span: number): number {
+function truncationRange(env: Envelope, of: "cdf" | "pdf", slope: SlopeEnvelope, t: number, T: number, beta: number, span: number, yMin = 0): number {
   const h = (2 * Math.PI) / T;
-  return truncationSup(truncationFrom(env, t)[of], tauAt(slope, h, t), h, beta, span);
+  return truncationSup(truncationFrom(env, t)[of], tauAt(slope, h, t), h, beta, span, yMin);
 }
 
 /**
@@ -185,13 +194,14 @@ function truncationRange(env: Envelope, of: "cdf" | "pdf", slope: SlopeEnvelope,
  * is valid, the setup bounds the sums it keeps), from the first probe whose uniform tail is within the target (the bound
  * is never below it), then by bisection between that probe and the one before (the probes are 9% apart)
  */
-export function slopeCutoffRange(env: Envelope, of: "cdf" | "pdf", slope: SlopeEnvelope, T: number, beta: number, span: number, target: number): number | undefined {
+export function slopeCutoffRange(env: Envelope, of: "cdf" | "pdf", slope: SlopeEnvelope, T: number, beta: number, span: number, target: number, yMin = 0): number | undefined {
   const t = env.t;
-  const ok = (x: number) => truncationRange(env, of, slope, x, T, beta, span) <= target;
-  // the bound is at least the uniform tail itself (truncationSup never falls below it): no probe above the target can do
+  const ok = (x: number) => truncationRange(env, of, slope, x, T, beta, span, yMin) <= target;
+  // over [0, span] the bound is at least the uniform tail itself (truncationSup never falls below it): no probe above the
+  // target can do (from yMin > 0 on it may fall below it: every probe is tried)
   const tail = of === "cdf" ? env.tailCdf : env.tailPdf;
   let i0 = 0;
-  while (i0 < t.length && tail[i0] > target) i0++;
+  while (yMin <= 0 && i0 < t.length && tail[i0] > target) i0++;
   for (let j = i0; j < t.length; j += 8) {
     if (!ok(t[j])) continue;
     let i = j;
@@ -210,6 +220,6 @@ export function slopeCutoffRange(env: Envelope, of: "cdf" | "pdf", slope: SlopeE
 }
 
 /** truncationRange at a cut-off tmax */
-export function slopeTruncationRange(env: Envelope, of: "cdf" | "pdf", slope: SlopeEnvelope, tmax: number, T: number, beta: number, span: number): number {
-  return truncationRange(env, of, slope, tmax, T, beta, span);
+export function slopeTruncationRange(env: Envelope, of: "cdf" | "pdf", slope: SlopeEnvelope, tmax: number, T: number, beta: number, span: number, yMin = 0): number {
+  return truncationRange(env, of, slope, tmax, T, beta, span, yMin);
 }

@@ -111,11 +111,12 @@ const LOW_SLACK = 100;
 
 /**
  * cost of the two-claim term at one point, in units of one frequency term (its panels against the transform's work): 60
- * scaled by its nodes a point since the wider ellipses (87 -> 67, ../lognormal-pair.ts MAX_IM). Poisson(0.1)-lognormal(0,
- * 1.5) at 1 000 points then takes it (2 924 terms and an FFT of 2^14 against 49 080 and 2^18): least CPU of 12 runs on the
+ * scaled by its nodes a point since the wider ellipses (87 -> 67, ../lognormal-pair.ts MAX_IM), and again since its panel
+ * target follows P(N = 2) and panels below it are left out (67 -> 42-50 at 1e-9). Poisson(0.1)-lognormal(0, 1.5) at
+ * 1 000 points then takes it (2 924 terms and an FFT of 2^14 against 49 080 and 2^18): least CPU of 12 runs on the
  * loaded machine 14.8 / 18.3 ms against 19.7 / 20.0
  */
-const PAIR_COST = 45;
+const PAIR_COST = 30;
 /**
  * cost of one probe of the transform (433 frequencies, the derived bounds and slopes) in units of one frequency term: a
  * damping already probed is preferred to one whose estimated terms are fewer by less. Measured on the seed 1 8-part compound
@@ -145,7 +146,8 @@ const OPERATOR_SLACK = 2048;
  * are counted over the period actually used. `pdfReach`: the density is answered at the tolerance (density(), not a
  * quantile's bracket), so a cut-off whose density truncation cannot reach its target counts against the plan.
  * `byParts`: the truncated sums may be bounded by parts (see ByParts). `yLow` (ByParts true): a lower bound on y = x - lo of
- * every level the quantile search will solve, where its bound must reach the target as at the range's end. `withInt`: the
+ * every level the quantile search will solve, where its bound must reach the target as at the range's end; ("range"): the
+ * smallest y of the points answered, from which on the truncation's supremum is taken. `withInt`: the
  * integrated cdf's bound matters (expected shortfall); without it and without a second moment the period is set by the
  * cdf's images after their closed-form shift (imageLimit, imageTail) instead of their whole mass.
  */
@@ -285,6 +287,8 @@ function planFor(
   // the cdf alone, summed point by point: the cut-off may come from the summation-by-parts bound at y = span
   const bySlope = byParts === true && pointwise === true && !wantPdf && !pdfReach;
   const byRange = byParts === "range";
+  // "range": every point answered lies at or past yLow from lo, so the truncation's supremum is taken over [yLow, span]
+  const yMin = byRange && yLow !== undefined && yLow > 0 ? Math.min(yLow, span) : 0;
   const lowOk = bySlope && yLow !== undefined && yLow > 0 && yLow < span;
   const slopes = (beta: number, env: Probed) => {
     if (!(bySlope || byRange)) return { c: null, p: null };
@@ -313,8 +317,8 @@ function planFor(
     const pdfToo = wantPdf || pdfReach;
     let tmax: number;
     if (byRange && sl.c && (!pdfToo || sl.p)) {
-      const tc = slopeCutoffRange(env, "cdf", sl.c, Tp, beta, span, amp) ?? cutoffFor(env, Infinity, target);
-      const tp = pdfToo ? (slopeCutoffRange(env, "pdf", sl.p!, Tp, beta, span, amp) ?? cutoffFor(env, target, Infinity)) : 0;
+      const tc = slopeCutoffRange(env, "cdf", sl.c, Tp, beta, span, amp, yMin) ?? cutoffFor(env, Infinity, target);
+      const tp = pdfToo ? (slopeCutoffRange(env, "pdf", sl.p!, Tp, beta, span, amp, yMin) ?? cutoffFor(env, target, Infinity)) : 0;
       // the setup's last node is within h / 2 below the cut-off asked (K = ceil(tmax / h), bounded from (K - 1/2) h)
       tmax = Math.max(tc, tp) + (2 * Math.PI) / Tp;
     } else {
@@ -329,12 +333,12 @@ function planFor(
     const tr = truncationAt(env, tmax);
     let rc = tr.cdf / target;
     let rp = tr.pdf / target;
-    if (byRange && sl.c) rc = Math.min(rc, slopeTruncationRange(env, "cdf", sl.c, tmax, Tp, beta, span) / amp);
+    if (byRange && sl.c) rc = Math.min(rc, slopeTruncationRange(env, "cdf", sl.c, tmax, Tp, beta, span, yMin) / amp);
     else if (sl.c && bySlope) {
       rc = slopeTruncationAt(env, sl.c, tmax, T, span) / target;
       if (lowOk) rc = Math.max(rc, (slopeTruncationAt(env, sl.c, tmax, T, yLow!) * Math.exp(beta * yLow!)) / (LOW_SLACK * amp));
     }
-    if (byRange && sl.p) rp = Math.min(rp, slopeTruncationRange(env, "pdf", sl.p, tmax, Tp, beta, span) / amp);
+    if (byRange && sl.p) rp = Math.min(rp, slopeTruncationRange(env, "pdf", sl.p, tmax, Tp, beta, span, yMin) / amp);
     return { tmax, reach: Math.max(rc, pdfReach ? rp : 0) };
   };
   // the rounding's share of the tolerance: tol / 4, or tol / 3 for "range" plans, whose truncation takes tol / 8 at most

@@ -132,6 +132,8 @@ export interface DampedOptions {
    * search's pointwise cdf, "range" where every answered point of [lo, R] carries its own bound (grids, points)
    */
   byParts?: ByParts;
+  /** byParts "range": the smallest y = x - lo of the points answered (none nearer lo), default 0 */
+  yLow?: number;
   /** the integrated cdf's coefficients are wanted (expected shortfall); without them sumInt is Infinity (default true) */
   wantInt?: boolean;
   /**
@@ -153,7 +155,7 @@ export function dampedSetup(model: CompiledModel, atoms: Atom[], R: number, o: D
   const Mc = Math.max(1 - pa, 0);
   const tol = o.tolerance;
   const pointwise: Exactness = o.period === undefined ? (o.pointwise ?? false) : false;
-  const plan = o.plan ?? dampedPlan(model, atoms, R, tol, o.wantPdf, o.points, pointwise, o.budget ?? MAX_K, undefined, undefined, o.byParts ?? false, undefined, o.wantInt ?? true);
+  const plan = o.plan ?? dampedPlan(model, atoms, R, tol, o.wantPdf, o.points, pointwise, o.budget ?? MAX_K, undefined, undefined, o.byParts ?? false, o.byParts === "range" ? o.yLow : undefined, o.wantInt ?? true);
   const beta = plan.beta;
   // pointwise: the step rounded down to an exact one (the period grows by at most 2^-28 relative)
   const h = pointwise ? exactStep((2 * Math.PI) / plan.T) : (2 * Math.PI) / (o.period ?? plan.T);

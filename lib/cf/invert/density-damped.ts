@@ -30,6 +30,11 @@ export function dampedDensity(
   const n = xs.length;
   let R = lo;
   for (let i = 0; i < n; i++) if (xs[i] > R) R = xs[i];
+  // the nearest point to lo at or past it: the truncation's supremum is taken from there (the sums' bound by parts grows
+  // towards lo, where the sine is small), each point keeping its own bound
+  let yLow = Infinity;
+  for (let i = 0; i < n; i++) if (xs[i] >= lo && xs[i] - lo < yLow) yLow = xs[i] - lo;
+  if (!(yLow < Infinity)) yLow = 0;
   if (R <= lo) R = lo + Math.max(model.scale, 1e-300);
   const cdf = new Float64Array(n);
   const sf = new Float64Array(n);
@@ -62,7 +67,7 @@ export function dampedDensity(
     // images after their closed-form shift (Poisson(2)-pareto(1.5): T 2 333 -> 1 607); the plan within the setup's budget, so
     // that a derived envelope needing more terms gives way to the samples' one (dampedPlan) instead of leaving the route
     const periodOf = (T: number) => gridPeriod(lo, req.from, req.dx, req.count, T).T;
-    const plan = dampedPlan(model, atoms, R, tol, wantPdf, n, false, budget, periodOf, wantPdf, "range", undefined, false);
+    const plan = dampedPlan(model, atoms, R, tol, wantPdf, n, false, budget, periodOf, wantPdf, "range", yLow, false);
     const g = gridPeriod(lo, req.from, req.dx, req.count, plan.T);
     sol = dampedSetup(model, atoms, R, { tolerance: tol, wantPdf, period: g.T, budget, plan, wantInt: false, transient: true });
     if (!sol) return null;
@@ -73,7 +78,7 @@ export function dampedDensity(
     method = "fft-damped";
     gridSize = g.N;
   } else {
-    sol = dampedSetup(model, atoms, R, { tolerance: tol, wantPdf, budget, points: n, pointwise: n < 32 ? true : "interpolated", wantInt: false, transient: true, byParts: "range" });
+    sol = dampedSetup(model, atoms, R, { tolerance: tol, wantPdf, budget, points: n, pointwise: n < 32 ? true : "interpolated", wantInt: false, transient: true, byParts: "range", yLow });
     if (!sol) return null;
     // many points: the sums once on a fine FFT grid and interpolated, the interpolation error inside tol / 16
     const pp = n >= 32 ? pointsPlan(sol, n, tol / (16 * Math.exp(sol.beta * (R - lo))), wantPdf) : null;
@@ -94,7 +99,7 @@ export function dampedDensity(
   }
   const amp = Math.exp(sol.beta * (R - lo));
   // the truncation's largest share over the range (by parts where the solution has tau: then not at R alone)
-  const trunc = truncationSup(sol.truncCdf, sol.truncTau, sol.h, sol.beta, R - lo);
+  const trunc = truncationSup(sol.truncCdf, sol.truncTau, sol.h, sol.beta, R - lo, yLow);
   // the images' bound per point is largest at lo (aliasCdfAt is non-increasing), and never above a point's whole bound
   const alias = Math.min(aliasCdfAt(sol, 0), errF);
   // the cdf's and the sf's error are the continuous part's (the atoms are exact); clamping only moves toward the truth
