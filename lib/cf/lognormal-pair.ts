@@ -58,6 +58,7 @@ const PM: Bounded = { v: NaN, e: NaN };
 const PX: Bounded = { v: NaN, e: NaN };
 const PW: Bounded = { v: NaN, e: NaN };
 const PW2: Bounded = { v: NaN, e: NaN };
+const PC: Bounded = { v: NaN, e: NaN };
 
 const RULES = new Map<number, { x: Float64Array; w: Float64Array; dx: Float64Array; dwRel: Float64Array }>();
 /** Gauss-Legendre nodes and weights on [-1, 1]: quadrature.ts's rule on [0, 1] mapped by z = 1 - 2u, cached per n */
@@ -148,7 +149,7 @@ export function lognormalPair(
         errI: wantInt ? x * FxUp * FxUp * (1 + 4 * U) : Infinity,
       };
     }
-    let sF = 0;
+    let sumF = 0;
     let sf = 0;
     let sI = 0;
     // the terms' own errors and the sums' running rounding
@@ -163,7 +164,18 @@ export function lognormalPair(
     // of those asked for, so that each part asked for is within about panelTol a panel
     const fScale = 1 / (SQ2PI * sigma * x * (1 - Math.SQRT1_2));
     const iScale = x * (1 + Math.SQRT1_2) + m1;
-    const target = panelTol / Math.max(1, wantPdf ? fScale : 1, wantInt ? iScale : 1);
+    // on every ellipse and on the real panel |x - y| >= x (1 - 1/sqrt 2), so Re w >= wMin (less a margin for its rounding):
+    // where wMin > 0, |phi(w)| <= gW phi(wMin) (the density's factor falls by e^{-wMin^2 / 2}), and |Phi(-w)| <= gW Phi(-wMin).
+    // Where wMin > 1 (and I_2, which takes Phi(w) itself, is not asked), F_2 is taken from the complement, 2 Phi(v_m) - Phi(v_m)^2 - 2 int phi(v) Phi(-w(v)) dv (Phi(w) =
+    // 1 - Phi(-w)), whose integrand is that small: far out most panels are then below the target and left out
+    const lMin = Math.log(x * (1 - Math.SQRT1_2));
+    const wMin = (lMin - mu) / sigma - (1e-9 * (1 + Math.abs(lMin) + Math.abs(mu))) / sigma;
+    const comp = wMin > 1 && !wantInt;
+    const sF = comp ? 1.01 * (normalCdfFast(-wMin, PC).v + PC.e) : 1;
+    const sfScale = wMin > 0 ? fScale * Math.exp(-0.5 * wMin * wMin) * 1.01 : fScale;
+    // each part's rule bound is qF times its scale (sF, sfScale, iScale): the per-panel target on qF is cut by the largest
+    // of those asked for, so that each part asked for is within about panelTol a panel
+    const target = panelTol / Math.max(sF, wantPdf ? sfScale : 0, wantInt ? iScale : 0);
     for (const p of panels) {
       if (p.s0 >= span) break;
       const cut = p.s1 > span;
@@ -185,8 +197,8 @@ export function lognormalPair(
       const near = a0 <= 0 && a1 >= 0 ? 0 : Math.min(Math.abs(a0), Math.abs(a1));
       gap += (U * (2 * Math.abs(vm - p.s0) + 2 * Math.abs(c) + 2 * L + (cut ? span : 0))) * phi(near);
       // a panel whose integrands are below the target over its whole length is left out: on the real segment
-      // phi(v) Phi(w) <= phi(v) <= phi(near), and f(x - y) <= 2 / (sqrt(2 pi) sigma x) <= fScale, I_1(x - y) <= x <= iScale
-      // (x - y >= x / 2), so its integrals are within 2 L phi(near) times 1, fScale, iScale, as the rule's bound is
+      // phi(v) Phi(+-w) <= phi(near) sF, and f(x - y) = phi(w) / (sigma (x - y)) <= sfScale, I_1(x - y) <= x <= iScale
+      // (x - y >= x / 2, w >= wMin), so its integrals are within 2 L phi(near) times sF, sfScale, iScale, as the rule's bound is
       const skip = 2.02 * L * phi(near);
       if (skip <= target) {
         qF += skip;
@@ -216,14 +228,15 @@ export function lognormalPair(
         const wz = (lz - mu) / sigma;
         // wz's error: log's 2u |lz| and z's rz, the subtraction and the division
         const dw = (rz + U * (2 * Math.abs(lz) + Math.abs(lz - mu))) / sigma + U * Math.abs(wz);
-        const P = normalCdfFast(wz, PW);
+        // Phi(-wz) for the complement (phi is even: the same bound)
+        const P = normalCdfFast(comp ? -wz : wz, PW);
         // phi(wz) for P's bound and, where asked, the density's factor: one exp for both
         const ew = Math.exp(-0.5 * wz * wz);
         const pw = ew / SQ2PI;
         const eP = P.e + 1.01 * pw * dw;
         const tF = wt * P.v;
-        sF += tF;
-        eF += wt * eP + tF * (rw + U) + U * sF;
+        sumF += tF;
+        eF += wt * eP + tF * (rw + U) + U * sumF;
         if (wantPdf) {
           const tf = (wt * ew) / (z * sigma * SQ2PI);
           sf += tf;
@@ -247,7 +260,9 @@ export function lognormalPair(
     }
     gap *= 1.01;
     const Pm2 = Pm.v * Pm.v;
-    const F0 = 2 * sF - Pm2;
+    // the complement: 2 Phi(v_m) exact but for Pm's error (its derivative 2 - 2 Phi at most 2), the difference rounded
+    const head = comp ? 2 * Pm.v - Pm2 : 0;
+    const F0 = comp ? head - 2 * sumF : 2 * sumF - Pm2;
     const F = Math.min(Math.max(F0, 0), 1);
     const f = wantPdf ? Math.max(2 * sf, 0) : NaN;
     let I = NaN;
@@ -271,8 +286,8 @@ export function lognormalPair(
       F,
       f,
       I,
-      errF: 2 * (qF + LEFT + gap) + 1.01 * (2 * eF + 2 * Pm.v * Pm.e + U * (Pm2 + Math.abs(F0))),
-      errf: wantPdf ? 2 * (qF * fScale + (LEFT + gap) * fMax) + 1.01 * 2 * ef : Infinity,
+      errF: 2 * (qF * sF + LEFT + gap) + 1.01 * (2 * eF + (comp ? 2 * Pm.e : 0) + 2 * Pm.v * Pm.e + U * (Pm2 + Math.abs(head) + Math.abs(F0))),
+      errf: wantPdf ? 2 * (qF * sfScale + (LEFT + gap) * fMax) + 1.01 * 2 * ef : Infinity,
       errI: wantInt ? 2 * (qF * iScale + (LEFT + gap) * x) + roundI : Infinity,
     };
   };

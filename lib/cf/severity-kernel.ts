@@ -1,4 +1,5 @@
-import { normalCdfBounded, type Bounded } from "./families/normal-bounded";
+import type { Bounded } from "./families/normal-bounded";
+import { normalCdfFast } from "./families/normal-table";
 import { lognormalPair, type PairValues } from "./lognormal-pair";
 import { lognormalDampedBounds } from "./lognormal-majorant";
 
@@ -97,7 +98,8 @@ const U = Number.EPSILON / 2;
  * Lognormal(mu, sigma) (JKB vol. 1, ch. 14): F = Phi(z), z = (log x - mu)/sigma; f = phi(z)/(x sigma);
  * int_0^x F = x F(x) - E[X; X <= x] = x Phi(z) - e^{mu + sigma^2/2} Phi(z - sigma) (the limited expected value,
  * Klugman, Panjer & Willmot, Loss Models, app. A). The density decreases beyond its mode e^{mu - sigma^2}. Phi with its
- * derived bound (./families/normal-bounded.ts); z's rounding (log within one ulp, the project's standing assumption; the
+ * derived bound (the tabled series of ./families/normal-table.ts, as the two-claim term takes it: a tenth of the incomplete
+ * gamma route's cost at every point of a grid); z's rounding (log within one ulp, the project's standing assumption; the
  * difference and the division u each) is at most 2u |log x| / sigma + 2u |z| to first order, z - sigma adds u |z - sigma|,
  * each moving Phi by phi times it.
  */
@@ -167,7 +169,7 @@ export function lognormalKernel(
       const z = (lx - mu) / sigma;
       const dz = 1.01 * ((2 * U * Math.abs(lx)) / sigma + 2 * U * Math.abs(z));
       const q = 1 / Math.sqrt(2 * Math.PI);
-      normalCdfBounded(z, pF);
+      normalCdfFast(z, pF);
       const F = pF.v;
       // Phi's own bound plus phi(z) times z's rounding (phi(z) <= its computed value times 1 + 8u)
       const eF = pF.e + q * Math.exp(-0.5 * z * z) * dz * (1 + 8 * U);
@@ -179,7 +181,7 @@ export function lognormalKernel(
         // the difference u (F2 only where asked: its Phi is the costly part)
         const z2 = z - sigma;
         const dz2 = dz + U * Math.abs(z2);
-        normalCdfBounded(z2, pF2);
+        normalCdfFast(z2, pF2);
         const F2 = pF2.v;
         const eF2 = pF2.e + q * Math.exp(-0.5 * z2 * z2) * dz2 * (1 + 8 * U);
         I = Math.max(x * F - m1 * F2, 0);

@@ -41,6 +41,10 @@ export function severityPsi(sev: SeverityKernel, count: NonNullable<SeverityKern
   const pa = atoms.reduce((s, a) => s + a.p, 0);
   // the severity's transform and the count's log-pgf taken rectangular where both have that form: no log and exp of phi
   const rect = !!(sev.dampedCf && count.logPgf);
+  // each atom's damped weight and position once (an atom at 0, the count's P(N = 0): no phase to take, cos 0 = 1 and sin 0 = 0
+  // exactly, the same values without the calls at every node)
+  const ax = atoms.map((a) => a.x);
+  const am = atoms.map((a) => a.p * Math.exp(-beta * a.x));
   // `also`: the same remainder with the two-claim term out as well (weight also.w2), from the same transform values (a
   // plan's probe makes both plans from one evaluation of the severity's transform)
   return (
@@ -73,10 +77,13 @@ export function severityPsi(sev: SeverityKernel, count: NonNullable<SeverityKern
       const m = Math.exp(cr);
       let r = m * Math.cos(ci);
       let i = m * Math.sin(ci);
-      for (const at of atoms) {
-        const am = at.p * Math.exp(-beta * at.x);
-        r -= am * Math.cos(t[k] * at.x);
-        i -= am * Math.sin(t[k] * at.x);
+      for (let a = 0; a < ax.length; a++) {
+        if (ax[a] === 0) {
+          r -= am[a];
+          continue;
+        }
+        r -= am[a] * Math.cos(t[k] * ax[a]);
+        i -= am[a] * Math.sin(t[k] * ax[a]);
       }
       // phi = fr + i fi, |phi| = ph
       let fr: number;
