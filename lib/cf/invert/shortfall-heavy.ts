@@ -285,8 +285,13 @@ export function heavyShortfall(
         const kind = e2 < e1 ? "stopLoss2" : "stopLoss";
         const bNow = boundAt(lev, T0 * 2 ** lev, q, kind);
         const bPrev = boundAt(lev - 1, T0 * 2 ** (lev - 1), q, kind);
-        const rate = bPrev > 0 && Number.isFinite(bPrev) ? Math.min(1, bNow / bPrev) : 1;
+        const known = bPrev > 0 && Number.isFinite(bPrev);
+        const rate = known ? Math.min(1, bNow / bPrev) : 1;
         if (!(bestD.err * rate <= goal) && lev > topL) break;
+        // the first level past the top only where the doublings left (to the eighth level) may bring the bound to its goal
+        // at that rate, or where another q built it already (one sum over its nodes): a bound 1e3 times its goal, falling
+        // by 2.7 a doubling, paid twice the top level's nodes for that factor alone
+        if (lev === topL && known && cache[lev + 1] === undefined && !(bestD.err * rate ** (7 - lev) <= goal)) break;
         // where every level left has node values whose allowance alone reaches the best bound, none can lower it: their
         // nodes are not built
         let open = false;
