@@ -100,8 +100,21 @@ function zSplitOf(split: NonNullable<NonNullable<NonNullable<TailTerm["images"]>
   return { H, lz, rho, rhoL, EA: EA * (1 + 4 * U), minR };
 }
 
-/** the pair's law, where both terms have power-law majorants (and a mean) and the others have a variance */
+/** pairLawOf per compiled term: its parts and polynomials (pure functions of the term) shared by every call on it */
+const LAWS = new WeakMap<TailTerm, PairLaw | null>();
+
+/**
+ * The pair's law, where both terms have power-law majorants (and a mean) and the others have a variance: built once per
+ * term (the quantiles' and the density's calls on a model share its parts and imageBound's polynomials), each call with
+ * its own radii choices (pairAliasing), so that an answer does not depend on the calls before it.
+ */
 export function pairLaw(term: TailTerm): PairLaw | null {
+  let L = LAWS.get(term);
+  if (L === undefined) LAWS.set(term, (L = pairLawOf(term)));
+  return L ? { ...L, radii: undefined } : null;
+}
+
+function pairLawOf(term: TailTerm): PairLaw | null {
   const im = term.images;
   const pair = im?.pair;
   if (!im || !pair || im.laws.length !== 2 || !Number.isFinite(pair.meanError)) return null;
@@ -134,7 +147,7 @@ export function pairLaw(term: TailTerm): PairLaw | null {
       if (z && (share === 0 || z.rhoL !== z.rho)) zs.push(z);
     }
   }
-  return { A, B, m: pair.m, lz, vZ, delta: (pair.meanError + dz) * (1 + 4 * U), zs };
+  return { A, B, m: pair.m, lz, vZ, delta: (pair.meanError + dz) * (1 + 4 * U), zs, polys: new Map() };
 }
 
 /** the even order n of Z's moments best at r1 for E[|Z|; |Z| > r1] <= E|Z|^n r1^(1-n) (0 without Z, NaN without any) */
@@ -328,33 +341,34 @@ export function pairAliasing(L: PairLaw, xLo: number, xHi: number, T: number, ki
   const slack = 8 * U * (Math.abs(xLo) + Math.abs(xHi) + Math.abs(L.m) + T);
   const uR = xLo + T - L.m - slack;
   const uL = L.m - xHi + T - slack;
-  // every radii set gives a bound: the first call at a period tries them all and keeps the best one's index for the later
-  // calls at that period (the root finders ask for hundreds of nearby points; the choice does not change what is bounded)
-  // (all of them again where the one kept does not apply at this point)
+  // every radii set, with Z's tails from its moments or from one of its splits (where the images are far enough for them:
+  // Z's tails are read at r_z and beyond), gives a bound: the first call at a period ranks them by the nearest images'
+  // terms (the images' sums fall like u^-q, q > 1, from there), sums the images for the best, and keeps that choice for
+  // the later calls at that period (the root finders ask for hundreds of nearby points; the choice does not change what
+  // is bounded), all of them again where the one kept does not apply at this point (or its sum is not finite)
   const key = `${kind}:${T}`;
   const chosen = (L.radii ??= new Map()).get(key);
-  const withRadii = (r: number) => {
+  const applies = (r: number, j: number) => {
     const need = up(Math.max(L.A.t0, L.B.t0) / leastRead(RADII[r]));
-    if (!(uR >= need && uL >= need)) return Infinity;
-    let v = sideSum(imageBound(L, 0, kind, uR, -1, r), uR, T) + sideSum(imageBound(L, 1, kind, uL, -1, r), uL, T);
-    // with Z's tails from its splits where the images are far enough for them (Z's tails are read at r_z and beyond): the least
-    for (let j = 0; j < L.zs.length; j++) {
-      if (!(down(Math.min(uR, uL) * RADII[r].z) >= L.zs[j].minR)) continue;
-      v = Math.min(v, sideSum(imageBound(L, 0, kind, uR, j, r), uR, T) + sideSum(imageBound(L, 1, kind, uL, j, r), uL, T));
-    }
-    return v;
+    if (!(uR >= need && uL >= need)) return false;
+    return j < 0 || down(Math.min(uR, uL) * RADII[r].z) >= L.zs[j].minR;
   };
-  let s = chosen === undefined ? Infinity : withRadii(chosen);
+  const full = (r: number, j: number) => sideSum(imageBound(L, 0, kind, uR, j, r), uR, T) + sideSum(imageBound(L, 1, kind, uL, j, r), uL, T);
+  let s = Infinity;
+  if (chosen !== undefined && applies(chosen >> 4, (chosen & 15) - 1)) s = full(chosen >> 4, (chosen & 15) - 1);
   if (!(s < Infinity)) {
-    let best = -1;
-    for (let r = 0; r < RADII.length; r++) {
-      const v = withRadii(r);
-      if (v < s) {
-        s = v;
-        best = r;
+    const cands: { r: number; j: number; near: number }[] = [];
+    for (let r = 0; r < RADII.length; r++)
+      for (let j = -1; j < L.zs.length; j++)
+        if (applies(r, j)) cands.push({ r, j, near: value(imageBound(L, 0, kind, uR, j, r), uR) + value(imageBound(L, 1, kind, uL, j, r), uL) });
+    cands.sort((a, b) => a.near - b.near);
+    for (const c of cands) {
+      s = full(c.r, c.j);
+      if (s < Infinity) {
+        if (chosen === undefined) L.radii.set(key, c.r * 16 + c.j + 1);
+        break;
       }
     }
-    if (chosen === undefined && best >= 0) L.radii.set(key, best);
   }
   return (kind === "stopLoss" ? 2 * s : s) * (1 + 4 * U);
 }
