@@ -13,6 +13,7 @@ import { imageLadder, imageScratch } from "./images";
 import { blockImages } from "./image-blocks";
 import { bestDerivedEntry, lastRowWeights, residualAliasing, residualLaw, type ResidualLaw } from "./heavy-residual";
 import { pairAliasing, pairLaw, type PairLaw } from "./heavy-residual2";
+import { densityTop } from "./heavy-density-top";
 import type { TailTerm } from "../types";
 import type { LawShape } from "./range";
 import { RICHARDSON_ESTIMATE_NOTE, richardsonAmplification, richardsonExponents, richardsonExponentsMulti, richardsonRowArrays } from "./richardson";
@@ -116,6 +117,9 @@ export function heavyPath(
   const expP = exponentsFor(bases, alpha, 1, MAX_LEVELS);
   const resid = part.tail ? residualLaw(part.tail) : (plan?.resid ?? null);
   const pair = plan?.pair ?? null;
+  // where a derived bound answers within the tolerance, from one period alone (./heavy-density-top.ts)
+  const top = densityTop({ part, env, req, opt, layout0, T0, a0, anchor, centerX, method, tmax, laws, resid, pair, pts, xLo, xHi, imgScratch, alpha: shape.alpha, notes });
+  if (top) return top;
   const imgC = new Float64Array(laws.length ? n : 0);
   const imgP = new Float64Array(laws.length ? n : 0);
   const rawC: number[] = [];
