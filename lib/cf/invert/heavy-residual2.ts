@@ -47,7 +47,7 @@ export interface PairLaw {
   /** pairAliasing's radii set by kind and period (RADII's index) */
   radii?: Map<string, number>;
   /** Z split into power-tailed parts and a light rest (TailTerm.images.pair.split), where known: the even shares and the
-   *  light part's 1/8 (ZSplit) */
+   *  light part's 1/8 and 1/32 (ZSplit) */
   zs: ZSplit[];
 }
 
@@ -56,8 +56,9 @@ export interface PairLaw {
  * -lShift when there is none): on |Z| > r some part exceeds rho_j r, sum_j rho_j = 1 - 1/64 (the rounding of the shifts
  * and a constant part c below r/64: r >= minR), so P(|Z| > r) <= sum_j P(|X_j| > rho_j r) and
  * E[|Z|; |Z| > r] <= sum_j E[|X_j| 1{|X_j| > rho_j r}] + sum_j E|X_j| sum_i P(|X_i| > rho_i r) (independence). The shares
- * are even (rho_j = (1 - 1/64)/J), or the light part's is 1/8 and the heavy parts share the rest: its Markov bound falls
- * fast, and the heavy parts' tails read at 0.86 r instead of 0.49 r (a pareto(2.55) beside the pair: 4x less).
+ * are even (rho_j = (1 - 1/64)/J), or the light part's is 1/8 or 1/32 and the heavy parts share the rest: its Markov bound
+ * falls fast, and the heavy parts' tails read at 0.86 r or 0.95 r instead of 0.49 r (a pareto(2.55) beside the pair: 4-5x
+ * less).
  */
 interface ZSplit {
   H: Heavy[];
@@ -142,7 +143,7 @@ function pairLawOf(term: TailTerm): PairLaw | null {
   }
   const zs: ZSplit[] = [];
   if (pair.split && Y) {
-    for (const share of [0, 1 / 8]) {
+    for (const share of [0, 1 / 8, 1 / 32]) {
       const z = zSplitOf(pair.split, pair.zShift, share);
       if (z && (share === 0 || z.rhoL !== z.rho)) zs.push(z);
     }
@@ -215,6 +216,10 @@ const RADII = [
   { b: 1 / 4, a: 1 / 4, z: 1 / 8, k: 1 / 2 },
   { b: 1 / 4, a: 1 / 8, z: 1 / 8, k: 1 / 2 },
   { b: 3 / 8, a: 3 / 16, z: 1 / 8, k: 5 / 16 },
+  // a third power tail in Z (a pareto beside the pair): its own images, P(Z > k u), want k near 1, the pair's pieces at
+  // small radii then far below it
+  { b: 1 / 8, a: 1 / 8, z: 1 / 16, k: 3 / 4 },
+  { b: 1 / 16, a: 1 / 16, z: 1 / 32, k: 7 / 8 },
 ] as const;
 type Radii = (typeof RADII)[number];
 /** a fraction rounded down (majorants decreasing in t are read there) or up (E[H^2; |H| <= r] and r itself) */
