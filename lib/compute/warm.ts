@@ -44,7 +44,7 @@ const regions = {
     { weight: 0.05, of: claims({ family: "poisson", lambda: 0.4 }, { family: "lognormal", mu: 1, sigma: 1.4 }) },
   ],
 };
-/** the routes' representatives: heavy two-sided sum, light sum with a quadrature term, positive power tail, damped sum, mixtures */
+/** the routes' representatives: heavy two-sided sum, light sum with a quadrature term, positive power tail, damped sum, mixtures, two-tail sums */
 const MODELS: Record<string, unknown>[] = [
   {
     sum: [
@@ -57,6 +57,15 @@ const MODELS: Record<string, unknown>[] = [
   { sum: [{ family: "pareto", alpha: 2.4, xm: 1.2 }, { family: "gamma", shape: 3, rate: 1.5 }, { family: "normal", mu: 1, sigma: 0.5 }] },
   { sum: [motor, property, { family: "gamma", shape: 4, rate: 1 }] },
   { mix: [{ weight: 0.6, of: motor }, { weight: 0.4, of: property }] },
+  // two power tails of close index: the heavy route's two-term residual (heavy-residual2.ts), one of each side
+  {
+    sum: [
+      { family: "stable", alpha: 1.3, beta: 0.5, scale: 1, loc: 0, param: "S1" },
+      { family: "stable", alpha: 1.35, beta: -0.2, scale: 0.8, loc: 0, param: "S1" },
+      { family: "laplace", loc: 0, scale: 1 },
+    ],
+  },
+  { sum: [{ family: "pareto", alpha: 2.3, xm: 1 }, { family: "pareto", alpha: 2.0, xm: 0.7 }, { family: "uniform", a: -1, b: 1.5 }] },
 ];
 const routeRequests = (model: Record<string, unknown>): WarmRequest[] => [
   { op: "quantiles", body: { model, p: SEVEN, expectedShortfall: true } },
