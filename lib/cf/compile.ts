@@ -9,6 +9,7 @@ import { toLawKind } from "./kinds";
 import { MAX_LATTICE } from "./limits";
 import { layerNode, type LayerTerms } from "./layer";
 import { claimMode, layerContinuousMajorant } from "./layer-majorant";
+import { densityDisc } from "./families/layer-analytic";
 import { compoundMajorant } from "./compound-majorant";
 import { studentTLogCfError } from "./families/student-t";
 import { MONOTONE_ABS_CF, mixMajorant, repeatMajorant, scaleMajorant, scaledMajorant, selfMajorant, shiftMajorant, shiftedMajorant, sumMajorant, uniformMajorant } from "./majorant";
@@ -252,7 +253,7 @@ function operatorNode(mIn: Model, buildNode_: (x: Model) => Node, opts: CompileO
 
 /** A per-claim layer of a family claim with a unimodal density: the derived majorant of its continuous part. */
 function withLayerMajorant(of: Model, terms: Partial<LayerTerms>, X: Node): Node {
-  const node = layerNode(X, terms);
+  const node = layerNode(X, terms, X.kind.type === "continuous" ? densityDisc(of) : null);
   if (!("family" in of) || !X.dist || !X.direct || node.kind.type !== "mixed") return node;
   const mode = claimMode(of.family, of as unknown as Record<string, number>);
   if (mode === null) return node;

@@ -4,11 +4,36 @@
  * integrals using derivatives", sec. 1; Filon 1928). On each panel f is replaced by its interpolant of degree M - 1 at
  * the M Gauss-Legendre nodes, written in Legendre polynomials, and each P_n is integrated against the exponential
  * exactly by Bauer's expansion, int_{-1}^{1} P_n(x) e^{i w x} dx = 2 i^n j_n(w) (DLMF 18.17.19; j_n the spherical
- * Bessel functions). The error is that of the interpolant, |int (f - p) e^{isu}| <= int |f - p|, which is the same at
- * every s; it is measured per panel at points between the nodes (a posteriori) and, for panels of negligible mass,
- * replaced by the exact bound |int f e^{isu}| <= mass (the panel is then dropped).
+ * Bessel functions). The error is that of the interpolant, |int (f - p) e^{isu}| <= int |f - p|, the same at every s.
+ * With a bound of f on complex discs (opts.disc) it is derived per panel (Hermite's formula, ./filon-remainder.ts, and
+ * the values' and coefficients' rounding, derivedFit below); without one it is measured at points between the nodes,
+ * an estimate. Panels of negligible mass take the exact bound |int f e^{isu}| <= mass (the panel is then dropped).
  */
 import { gaussLegendre } from "./quadrature";
+import { glEnclosure } from "./gl-enclosure";
+import { legendreTableError, panelRemainder } from "./filon-remainder";
+
+/** what makes the rule's error derived (see oscillatoryIntegral) */
+export interface FilonOptions {
+  /** log of an upper bound on |f(z)| over |z - m| <= R (f continued analytically from the panel), Infinity if none */
+  disc?: (m: number, R: number) => number;
+  /** a bound on the error of the computed f(u) */
+  fErr?: (u: number) => number;
+  /** f(u) is evaluated at offset + u (the argument's rounding moves it by u |offset + u|) */
+  offset?: number;
+  /** how many times a panel may be halved to meet its error budget (default 10 with a disc, else 5) */
+  maxDepth?: number;
+}
+
+/** the Gauss-Legendre nodes' enclosure on [-1, 1] (twice that on [0, 1]) */
+let PR: { dx: number; tab: Float64Array; absX: Float64Array } | null = null;
+const P_RULE = () => {
+  if (PR) return PR;
+  const R = rule();
+  // x = 2 v - 1 adds u to the enclosure of v's node (doubled on [-1, 1]); the table's own exact errors
+  PR = { dx: 2 * glEnclosure(M).dxMax + Number.EPSILON, tab: legendreTableError(R.x, R.P, M), absX: R.x.map(Math.abs) };
+  return PR;
+};
 
 /** nodes per panel (degree M - 1 interpolant) */
 const M = 16;
@@ -142,9 +167,16 @@ export interface OscillatoryIntegral {
  * Prepare int_{b_0}^{b_last} f(u) e^{i s u} du on the panels `bounds` (each split into `split` equal parts).
  * `mass(a, b)` is int_a^b f exactly (from the law's cdf): panels below `negligible` mass are dropped with their mass
  * counted as error; a panel whose interpolant misses by more than ~4 eps of its mass plus its share of 1e-15 is halved (at most
- * 5 times).
+ * opts.maxDepth times; with a disc bound only the interpolation part counts, the rounding floor is not lowered by halving).
  */
-export function oscillatoryIntegral(bounds: readonly number[], f: (u: number) => number, mass: (a: number, b: number) => number, split = 1, negligible = 1e-19): OscillatoryIntegral {
+export function oscillatoryIntegral(
+  bounds: readonly number[],
+  f: (u: number) => number,
+  mass: (a: number, b: number) => number,
+  opts: FilonOptions = {},
+  split = 1,
+  negligible = 1e-19,
+): OscillatoryIntegral {
   const R = rule();
   const mids: number[] = [];
   const halves: number[] = [];
@@ -152,8 +184,9 @@ export function oscillatoryIntegral(bounds: readonly number[], f: (u: number) =>
   let error = 0;
   const gv = new Float64Array(M);
   const c = new Float64Array(M);
+  const pr = P_RULE();
   // fit one panel: its Legendre coefficients into c, and the bound on int |f - p| over it
-  const fit = (a: number, b: number, pm: number): { err: number; absSum: number } => {
+  const fit = (a: number, b: number, pm: number): { err: number; floor: number; absSum: number } => {
     const mid = (a + b) / 2;
     const half = (b - a) / 2;
     for (let k = 0; k < M; k++) gv[k] = f(mid + half * R.x[k]);
@@ -164,7 +197,14 @@ export function oscillatoryIntegral(bounds: readonly number[], f: (u: number) =>
       c[n] = ((2 * n + 1) / 2) * s;
       absSum += Math.abs(c[n]);
     }
-    // the interpolant's error measured between the nodes (and at the ends), and from the last coefficients
+    const trivial = pm + 2 * half * absSum;
+    if (opts.disc) {
+      const e = derivedFit(opts, pr, mid, half, absSum);
+      // halving lowers the interpolation part, not the rounding floor
+      return e.interp + e.floor <= trivial ? { err: e.interp, floor: e.floor, absSum } : { err: trivial, floor: 0, absSum };
+    }
+    // no analytic bound for this claim law: the interpolant's error measured between the nodes (and at the ends), and
+    // from the last coefficients (an estimate, not a bound)
     let dev = 0;
     for (let i = 0; i < CHECKS; i++) {
       const x = Math.cos((Math.PI * (i + 0.5)) / CHECKS);
@@ -178,10 +218,57 @@ export function oscillatoryIntegral(bounds: readonly number[], f: (u: number) =>
     const tail = 2 * (Math.abs(c[M - 1]) + Math.abs(c[M - 2]));
     // int |f - p| <= 2 half max|f - p|; where that exceeds the panel's mass plus int |p|, the latter holds exactly
     const interp = 2 * half * Math.max(2 * dev, tail);
-    return { err: Math.min(interp, pm + 2 * half * absSum), absSum };
+    return { err: Math.min(interp, trivial), floor: 0, absSum };
+  };
+  /**
+   * the derived bound on int |f - p| over [mid - half, mid + half] (p with the coefficients c as computed): f - p = (f - p^)
+   * + (p^ - p), p^ the exact interpolant at the nodes u_k as placed, u_k = mid + half xi_k. The first by the disc
+   * (./filon-remainder.ts); the second, q = p^ - p, has degree M - 1 and q(xi_k) = r_k = f(u_k) - p(xi_k): with the true
+   * Gauss nodes x_k (|xi_k - x_k| <= e), weights w_k, int q^2 = sum w_k q(x_k)^2 (exact for degree 2M - 2), |q(x_k) -
+   * r_k| <= (M - 1)^2 Q e (Markov), and Q = ||q||_inf <= M / sqrt 2 ||q||_2 (Legendre expansion, Cauchy-Schwarz), so Q <=
+   * M r / (1 - M (M - 1)^2 e) and int_{-1}^{1} |q| <= sqrt 2 ||q||_2 <= 2 (r + (M - 1)^2 e Q), r = max |r_k|. |r_k| is
+   * the computed residual (its subtraction u of it) plus: the value's own bound (opts.fErr), the argument's rounding
+   * (|f'| u |offset + u_k|), p(x~_k)'s error as summed from the table (sum |c_n| tab_n, the table's exact errors, plus
+   * gamma_M sum |c_n P_n|, Higham 3.1) and p's move from x~_k to xi_k (sum |c_n| n (n + 1) / 2 |xi_k - x~_k|, |P_n'| <=
+   * n (n + 1) / 2, Szego 7.21; xi_k within u of the computed (u_k - mid) / half). The panel as stored ([mid - half,
+   * mid + half]) differs from [a, b] by 2u (|a| + |b|) at most at each end, where |f| <= fmax.
+   */
+  const derivedFit = (o: FilonOptions, prr: { dx: number; tab: Float64Array; absX: Float64Array }, mid: number, half: number, absSum: number): { interp: number; floor: number } => {
+    const U = Number.EPSILON;
+    const gM = (M * U) / (1 - M * U);
+    let d1 = 0;
+    let tabSum = 0;
+    for (let n = 1; n < M; n++) d1 += (Math.abs(c[n]) * n * (n + 1)) / 2;
+    for (let n = 0; n < M; n++) tabSum += Math.abs(c[n]) * prr.tab[n];
+    let shift = 0;
+    for (let k = 0; k < M; k++) shift = Math.max(shift, Math.abs((mid + half * R.x[k] - mid) / half - R.x[k]) + 1.01 * U);
+    const e = prr.dx + shift; // |xi_k - x_k| (true nodes on [-1, 1])
+    const rem = panelRemainder(o.disc!, mid, half, M, e, prr.absX);
+    if (!(rem.l1 < Infinity)) return { interp: Infinity, floor: 0 };
+    let r = 0;
+    for (let k = 0; k < M; k++) {
+      let p = 0;
+      let pa = 0;
+      for (let n = 0; n < M; n++) {
+        const t = c[n] * R.P[n * M + k];
+        p += t;
+        pa += Math.abs(t);
+      }
+      const u = mid + half * R.x[k];
+      const diff = Math.abs(gv[k] - p);
+      const rk = diff * (1 + U) + (o.fErr ? o.fErr(u) : Infinity) + rem.slope * U * (Math.abs(o.offset ?? 0) + Math.abs(u)) + gM * pa;
+      if (!(rk <= r)) r = Number.isNaN(rk) ? Infinity : Math.max(r, rk);
+    }
+    r = (r + tabSum + d1 * shift) * (1 + 4 * U);
+    const mu = M * (M - 1) * (M - 1) * e;
+    if (!(mu < 0.5)) return { interp: Infinity, floor: 0 };
+    const Q = (M * r) / (1 - mu);
+    const qInt = 2 * half * (r + (M - 1) * (M - 1) * e * Q);
+    const ends = 2 * 2 * U * (Math.abs(mid - half) + Math.abs(mid + half)) * rem.fmax;
+    return { interp: rem.l1 * (1 + 1e-12), floor: (qInt + ends) * (1 + 1e-12) };
   };
   // each given panel is halved (up to MAX_DEPTH times) until its interpolant is within its error budget
-  const MAX_DEPTH = 5;
+  const MAX_DEPTH = opts.maxDepth ?? (opts.disc ? 10 : 5);
   const span = Math.max(bounds[bounds.length - 1] - bounds[0], 1e-300);
   const stack: [number, number, number][] = [];
   for (let j = bounds.length - 2; j >= 0; j--) {
@@ -209,7 +296,7 @@ export function oscillatoryIntegral(bounds: readonly number[], f: (u: number) =>
       stack.push([m, b, depth + 1], [a, m, depth + 1]);
       continue;
     }
-    error += r.err + 8 * Number.EPSILON * (b - a) * r.absSum;
+    error += r.err + r.floor + 8 * Number.EPSILON * (b - a) * r.absSum;
     mids.push((a + b) / 2);
     halves.push((b - a) / 2);
     for (let n = 0; n < M; n++) coefs.push(c[n]);
