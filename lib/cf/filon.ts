@@ -341,3 +341,52 @@ export function oscillatoryIntegral(
     },
   };
 }
+
+/**
+ * A mesh on [lo, hi] (cut at `cuts`) for the rule with a disc bound: from each panel's left end the widest panel (grown
+ * by 1.5 from the last, shrunk by 1.5) whose derived interpolation part (filon-remainder.ts, no values needed) is
+ * within the rule's budget for it (64 u of its mass plus its share of 1e-15; the fit's own budget is at least that), or
+ * whose mass is below `negligible` (dropped). `first` is the first width tried. The fit halves any panel still over.
+ */
+export function discMesh(lo: number, hi: number, cuts: readonly number[], first: number, disc: (m: number, R: number) => number, mass: (a: number, b: number) => number, negligible = 1e-19): number[] {
+  const pr = P_RULE();
+  const span = Math.max(hi - lo, 1e-300);
+  const ok = (a: number, b: number) => {
+    const pm = mass(a, b);
+    if (pm < negligible) return true;
+    const mid = (a + b) / 2;
+    const half = (b - a) / 2;
+    const e = pr.dx + 1.01 * Number.EPSILON * (Math.abs(mid) / half + 2);
+    const rem = panelRemainder(disc, mid, half, M, e, pr.absX);
+    return rem.l1 <= 64 * Number.EPSILON * pm + (1e-15 * (b - a)) / span;
+  };
+  const ends = [...new Set([lo, ...cuts.filter((c) => c > lo && c < hi), hi])].sort((a, b) => a - b);
+  const out = [lo];
+  let w = first;
+  for (let j = 0; j + 1 < ends.length; j++) {
+    let a = ends[j];
+    const end = ends[j + 1];
+    while (a < end && out.length < 4000) {
+      let b = Math.min(end, a + w);
+      if (ok(a, b)) {
+        // grow while the wider panel still passes
+        while (b < end && ok(a, Math.min(end, a + w * 1.5))) {
+          w *= 1.5;
+          b = Math.min(end, a + w);
+        }
+      } else {
+        let tries = 0;
+        while (!ok(a, b) && tries++ < 60) {
+          w /= 1.5;
+          b = Math.min(end, a + w);
+        }
+      }
+      if (!(b > a)) break;
+      out.push(b);
+      a = b;
+      w *= 1.5;
+    }
+    if (out[out.length - 1] < end) out.push(end);
+  }
+  return out;
+}

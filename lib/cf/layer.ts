@@ -12,7 +12,7 @@ import type { DirectLaw } from "./families/dist";
 import type { SeverityLaw } from "./discretise";
 import { restrictedIntegral } from "./quadrature";
 import { checkDeadline } from "./deadline";
-import { oscillatoryIntegral, type OscillatoryIntegral } from "./filon";
+import { discMesh, oscillatoryIntegral, type OscillatoryIntegral } from "./filon";
 import { withCumulantErrors } from "./cumulant-bounds";
 import { exact, mul, powInt, rawToCumulantsE, type Est } from "./moment-error";
 import { directPoint } from "./direct/types";
@@ -173,14 +173,13 @@ export function layerNode(X: Node, terms: Partial<LayerTerms>, disc: DensityDisc
     // raised by its bound; Infinity without the closed form
     tailMean: (y) => tailMeanBound(dist, sfE, c, d, l, y),
   };
-  // with a derived remainder the rule needs far fewer panels: a coarse geometric mesh, halved where its bound asks;
-  // graded from a tiny first panel only where the density is not analytic at the layer's start
-  const filonPanels = () => {
+  // with a derived remainder the rule needs far fewer panels: each as wide as its bound allows (filon.ts discMesh),
+  // from a tiny first panel only where the density is not analytic at the layer's start
+  const filonPanels = (mass: (a: number, b: number) => number, logK: (m: number, R: number) => number) => {
     const x0 = d + u0;
     const smooth = disc!.logBound(x0, 1e-3 * Math.max(Math.abs(x0), scaleX)) < Infinity;
     const w = (Math.min(scaleX, L) / 8) * (smooth ? 1 : 2 ** -120);
-    const b0 = panels(L - u0, w, Infinity, 8000, 2).map((v) => v + u0);
-    return cuts.length ? [...new Set([...b0, ...cuts])].sort((a, b) => a - b) : b0;
+    return discMesh(u0, L, cuts, w, logK, mass);
   };
   // the claim density's partial transform int f(d + u) e^{i s u} du, built once (Filon-type, cost independent of s)
   let osc: OscillatoryIntegral | null = null;
@@ -211,7 +210,7 @@ export function layerNode(X: Node, terms: Partial<LayerTerms>, disc: DensityDisc
             offset: d,
           }
         : {};
-      osc = oscillatoryIntegral(disc && dl ? filonPanels() : base, claimPdf, mass, opts);
+      osc = oscillatoryIntegral(opts.disc ? filonPanels(mass, opts.disc) : base, claimPdf, mass, opts);
     }
     return osc;
   };
