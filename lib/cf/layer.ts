@@ -174,11 +174,13 @@ export function layerNode(X: Node, terms: Partial<LayerTerms>, disc: DensityDisc
     tailMean: (y) => tailMeanBound(dist, sfE, c, d, l, y),
   };
   // with a derived remainder the rule needs far fewer panels: each as wide as its bound allows (filon.ts discMesh),
-  // from a tiny first panel only where the density is not analytic at the layer's start
+  // from a first panel of negligible mass where the density is not analytic at the layer's start
   const filonPanels = (mass: (a: number, b: number) => number, logK: (m: number, R: number) => number) => {
     const x0 = d + u0;
     const smooth = disc!.logBound(x0, 1e-3 * Math.max(Math.abs(x0), scaleX)) < Infinity;
-    const w = (Math.min(scaleX, L) / 8) * (smooth ? 1 : 2 ** -120);
+    // not analytic at the start: the first panel is the widest (halving from scale / 8) of negligible mass, dropped
+    let w = Math.min(scaleX, L) / 8;
+    for (let i = 0; !smooth && i < 400 && !(mass(u0, u0 + w) < 1e-19); i++) w /= 2;
     return discMesh(u0, L, cuts, w, logK, mass);
   };
   // the claim density's partial transform int f(d + u) e^{i s u} du, built once (Filon-type, cost independent of s)
