@@ -10,7 +10,7 @@ const explain: Record<keyof typeof PROBLEMS, string> = {
   forbidden: "The key lacks the scope of this endpoint.",
   address_not_allowed:
     "The key is limited to client address ranges (set on the Keys page) and this request came from outside them. The detail names the address the server saw; ask an admin to add its range, or call from an allowed network.",
-  not_found: "The object does not exist in the key's organisation: a dataset named in a model (the pointer shows where, e.g. /model/compound/each/dataset), or the id in GET /api/v1/datasets/{id}. Another organisation's dataset reads as missing.",
+  not_found: "The object does not exist in the key's organisation: a dataset named in a model (the pointer shows where, e.g. /model/compound/each/dataset), or the id in GET /api/v1/datasets/{id}. Another organisation's dataset reads as missing. A path under /api/v1 that no endpoint serves answers the same type, naming the endpoint it is near (e.g. /api/v1/quantile: did you mean /api/v1/quantiles?).",
   method_not_allowed: "The path exists but not with this method; the Allow header lists the methods it serves.",
   payload_too_large: "The body exceeds 1 MiB. Upload large data as a dataset instead of inlining it.",
   unsupported_media_type: "The body must be sent as application/json.",
