@@ -8,6 +8,8 @@ export interface LawTable {
   cdf: number[];
   sf?: number[];
   atoms: { x: number; p: number }[];
+  /** the API's bounds at each x (density diagnostics.pointError), shown beside the values they bound */
+  diagnostics?: { pointError?: { pdf?: (number | null)[]; cdf?: (number | null)[]; sf?: (number | null)[] } };
 }
 
 export type PlotView = "density" | "cdf" | "exceedance";
@@ -18,16 +20,22 @@ export interface PlotRow {
   density: number | null;
   cdf: number;
   sf: number;
+  /** bounds on the absolute error of density, cdf and sf at x (null: none derived) */
+  err: { density: number | null; cdf: number | null; sf: number | null };
 }
 
 /** Rows of the plotted table, cropped to [from, to]; sf falls back to 1 - cdf when the response has none. */
 export function plotRows(t: LawTable, from = -Infinity, to = Infinity): PlotRow[] {
   const d = t.pdf ?? t.pmf;
+  const pe = t.diagnostics?.pointError;
+  const at = (a: (number | null)[] | undefined, i: number) => (a && typeof a[i] === "number" && Number.isFinite(a[i]) ? a[i] : null);
   const rows: PlotRow[] = [];
   for (let i = 0; i < t.x.length; i++) {
     const x = t.x[i];
     if (x < from || x > to) continue;
-    rows.push({ x, density: d ? d[i] : null, cdf: t.cdf[i], sf: t.sf ? t.sf[i] : 1 - t.cdf[i] });
+    // sf falls back to 1 - cdf, whose error is the cdf's
+    const sfErr = t.sf ? at(pe?.sf, i) : at(pe?.cdf, i);
+    rows.push({ x, density: d ? d[i] : null, cdf: t.cdf[i], sf: t.sf ? t.sf[i] : 1 - t.cdf[i], err: { density: d ? at(pe?.pdf, i) : null, cdf: at(pe?.cdf, i), sf: sfErr } });
   }
   return rows;
 }
@@ -107,11 +115,29 @@ export function nearestRow(rows: PlotRow[], x: number): number {
 /** The plotted table as CSV (RFC 4180, full precision), atoms listed after the grid. */
 export function plotCsv(t: LawTable, rows: PlotRow[]): string {
   const dname = t.pdf ? "pdf" : "pmf";
-  const lines = [`x,${dname},cdf,sf`];
-  for (const r of rows) lines.push(`${r.x},${r.density ?? ""},${r.cdf},${r.sf}`);
+  const lines = [`x,${dname},cdf,sf,${dname}_error,cdf_error,sf_error`];
+  for (const r of rows) lines.push(`${r.x},${r.density ?? ""},${r.cdf},${r.sf},${r.err.density ?? ""},${r.err.cdf ?? ""},${r.err.sf ?? ""}`);
   if (t.atoms.length) {
     lines.push("", "atom_x,atom_probability");
     for (const a of t.atoms) lines.push(`${a.x},${a.p}`);
   }
   return `${lines.join("\r\n")}\r\n`;
+}
+
+/** A value with its error bound for a read-out: "0.003282 ± 1.2e-12", or the value and "(no bound)" where none was derived. */
+export const withBound = (v: number | null, e: number | null) => (v === null ? "—" : `${fmt(v)} ${e === null ? "(no bound)" : `± ${e.toPrecision(2).replace("e+", "e")}`}`);
+
+/**
+ * The plotted range widened to take in the law's atoms that lie near it (within one span of either end), so an atom
+ * such as a compound's P(N = 0) at 0 is drawn with the density beside it; atoms farther out are listed, not drawn.
+ */
+export function rangeWithAtoms(lo: number, hi: number, atoms: { x: number }[]): { lo: number; hi: number; widened: boolean } {
+  const span = hi - lo;
+  let a = lo;
+  let b = hi;
+  for (const { x } of atoms) {
+    if (x < a && x >= lo - span) a = x;
+    if (x > b && x <= hi + span) b = x;
+  }
+  return { lo: a, hi: b, widened: a < lo || b > hi };
 }

@@ -103,7 +103,8 @@ describe("explorer", () => {
     await area.scrollIntoViewIfNeeded();
     const box = (await area.boundingBox())!;
     await area.hover({ position: { x: box.width * 0.4, y: box.height * 0.5 } });
-    await expect.poll(() => page.getByTestId("plot-readout").innerText()).toMatch(/x = .+ · (pdf|pmf) = .+ · F = .+ · 1 − F = /);
+    // each value read out with its bound
+    await expect.poll(() => page.getByTestId("plot-readout").innerText()).toMatch(/x = .+ · (pdf|pmf) = \S+ ± \S+ · F = \S+ ± \S+ · 1 − F = \S+ ± \S+$/);
     // Exceedance 1 - F on a log scale.
     await page.getByRole("radio", { name: "Exceedance 1 − F" }).check();
     // the view switches its y axis to log after the click has rendered: read both once the page has settled
@@ -118,7 +119,9 @@ describe("explorer", () => {
     // Export: the plotted table as CSV, the figure as SVG.
     const [csv] = await Promise.all([page.waitForEvent("download"), page.getByRole("button", { name: "CSV" }).click()]);
     const text = readFileSync((await csv.path())!, "utf8");
-    expect(text.split("\r\n")[0]).toMatch(/^x,(pdf|pmf),cdf,sf$/);
+    // each value with its per-point bound (the API's diagnostics.pointError)
+    expect(text.split("\r\n")[0]).toMatch(/^x,(pdf|pmf),cdf,sf,(pdf|pmf)_error,cdf_error,sf_error$/);
+    expect(text.split("\r\n")[1]).toMatch(/^[^,]+(,[^,]+){3},\d[^,]*,\d[^,]*,\d[^,]*$/);
     expect(text.split("\r\n").length).toBeGreaterThan(100);
     const [svg] = await Promise.all([page.waitForEvent("download"), page.getByRole("button", { name: "SVG" }).click()]);
     expect(readFileSync((await svg.path())!, "utf8")).toMatch(/<svg[^>]*xmlns="http:\/\/www.w3.org\/2000\/svg"/);
@@ -145,6 +148,11 @@ describe("explorer", () => {
     await page.getByRole("button", { name: /Aggregate claims/ }).click();
     await run(page);
     await page.getByTestId("law-plot").waitFor({ timeout: 30_000 });
+    // Poisson(42) claims: the atom P(N = 0) = e^-42 = 5.749e-19 (closed form) lies below the quantile range (about
+    // 200..1200); the plot widens to take it in and marks it beside the density, and the caption counts what is drawn
+    await expect(page.getByTestId("atom-marker").first().textContent()).resolves.toMatch(/P\(X = 0\) = 5\.7e-19/);
+    await expect(page.locator("figcaption").first().innerText()).resolves.toMatch(/1 atom, marked with its mass/);
+    expect((await plotRange(page))[0]).toBeLessThanOrEqual(0);
     // names the elements that stick out past the viewport, so a failure says where to look
     const { extra, wide } = await overflow(page);
     expect(extra, wide.join(" | ")).toBe(0);

@@ -1,7 +1,7 @@
 "use client";
 
 import { useEffect, useId, useMemo, useRef, useState } from "react";
-import { formatNumber, LOG_FLOOR, makeAxis, nearestRow, plotCsv, plotRows, yOf, type AxisKind, type LawTable, type PlotView } from "@/lib/portal/plot";
+import { formatNumber, LOG_FLOOR, makeAxis, nearestRow, plotCsv, plotRows, withBound, yOf, type AxisKind, type LawTable, type PlotView } from "@/lib/portal/plot";
 import { quietButtonClass } from "../../_components/ui";
 
 const HEIGHT = 320;
@@ -76,6 +76,8 @@ export function LawPlot({ data, range, onRange, busy }: { data: LawTable; range:
   const drawn = xk === "log" ? rows.filter((r) => r.x > 0) : rows;
   const ys = drawn.map((r) => yOf(view, r) ?? NaN);
   const atoms = data.atoms.filter((a) => !drawn.length || (a.x >= drawn[0].x && a.x <= drawn[drawn.length - 1].x));
+  // atoms off the plotted range (far from it, or at x <= 0 on a log x axis) are named under the caption, not dropped silently
+  const offRange = data.atoms.filter((a) => !atoms.includes(a));
   const x = makeAxis(
     [...drawn.map((r) => r.x), ...atoms.map((a) => a.x)],
     xk,
@@ -146,8 +148,14 @@ export function LawPlot({ data, range, onRange, busy }: { data: LawTable; range:
     <figure className="min-w-0 rounded-xl border border-paper-line bg-white p-4" aria-labelledby={`${id}-cap`}>
       <figcaption id={`${id}-cap`} className="font-display text-lg font-semibold">
         {view === "density" ? (data.pdf ? "Density" : "Probability mass") : view === "cdf" ? "Distribution function" : "Exceedance probability"}
-        {data.atoms.length ? <span className="ml-2 text-sm font-normal text-ink-soft">· {data.atoms.length === 1 ? "1 atom, marked with its mass" : `${data.atoms.length} atoms, marked with their masses`}</span> : null}
+        {atoms.length ? <span className="ml-2 text-sm font-normal text-ink-soft">· {atoms.length === 1 ? "1 atom, marked with its mass" : `${atoms.length} atoms, marked with their masses`}</span> : null}
       </figcaption>
+      {offRange.length ? (
+        <p data-testid="atoms-off-range" className="mt-1 text-sm text-ink-soft">
+          Outside the plotted range: {offRange.slice(0, 5).map((a) => `P(X = ${formatNumber(a.x)}) = ${formatNumber(a.p)}`).join("; ")}
+          {offRange.length > 5 ? ` and ${offRange.length - 5} more (in the CSV)` : ""}.
+        </p>
+      ) : null}
       <div className="mt-2 flex flex-wrap gap-x-5 gap-y-2 text-sm">
         <fieldset className="flex flex-wrap items-center gap-3">
           <legend className="sr-only">View</legend>
@@ -235,8 +243,8 @@ export function LawPlot({ data, range, onRange, busy }: { data: LawTable; range:
       </div>
       <p aria-live="polite" data-testid="plot-readout" className="mt-1 min-h-5 font-mono text-xs tabular-nums text-ink-soft">
         {h
-          ? `x = ${formatNumber(h.x)} · ${dLabel} = ${h.density === null ? "—" : formatNumber(h.density)} · F = ${formatNumber(h.cdf)} · 1 − F = ${formatNumber(h.sf)}`
-          : "Point at the plot to read x, the density, F and 1 − F."}
+          ? `x = ${formatNumber(h.x)} · ${dLabel} = ${withBound(h.density, h.err.density)} · F = ${withBound(h.cdf, h.err.cdf)} · 1 − F = ${withBound(h.sf, h.err.sf)}`
+          : "Point at the plot to read x, the density, F and 1 − F, each with its error bound."}
       </p>
       <div className="mt-3 flex flex-wrap items-end justify-between gap-3">
         <form onSubmit={applyRange} className="flex flex-wrap items-end gap-2 text-sm" noValidate>

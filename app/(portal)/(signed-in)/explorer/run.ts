@@ -1,6 +1,6 @@
 "use client";
 
-import type { LawTable } from "@/lib/portal/plot";
+import { rangeWithAtoms, type LawTable } from "@/lib/portal/plot";
 import { orgHeaders } from "../../_components/fetch";
 
 export interface FieldIssue {
@@ -72,12 +72,19 @@ export async function densityOnRange(model: unknown, range: { from: number; to: 
   const [lo, hi] = q.x;
   if (!(hi > lo)) return explore<DensityResult>("density", { model });
   const d = await explore<DensityResult>("density", { model, grid: { from: lo, to: hi, count: GRID_POINTS } });
-  if (d.pdf) return d;
+  if (d.pdf) {
+    // an atom just outside the quantile range (a compound's P(N = 0) at 0) is drawn with the density beside it
+    const w = rangeWithAtoms(lo, hi, d.atoms);
+    return w.widened ? explore<DensityResult>("density", { model, grid: { from: w.lo, to: w.hi, count: GRID_POINTS } }) : d;
+  }
   // Probabilities live on the law's own points (a lattice or a discretised law): take its table and crop it.
   const t = await explore<DensityResult>("density", { model });
   const keep = t.x.map((x) => x >= lo && x <= hi);
   const pick = <A,>(a: A[] | undefined) => a?.filter((_, i) => keep[i]);
-  return { ...t, x: pick(t.x)!, pdf: pick(t.pdf), pmf: pick(t.pmf), cdf: pick(t.cdf)!, sf: pick(t.sf) };
+  // the per-point bounds are cropped with the values they bound
+  const pe = (t.diagnostics as { pointError?: Record<string, (number | null)[]> }).pointError;
+  const pointError = pe ? Object.fromEntries(Object.entries(pe).map(([k, v]) => [k, pick(v)])) : undefined;
+  return { ...t, x: pick(t.x)!, pdf: pick(t.pdf), pmf: pick(t.pmf), cdf: pick(t.cdf)!, sf: pick(t.sf), diagnostics: { ...t.diagnostics, ...(pointError ? { pointError } : {}) } };
 }
 
 export async function runAll(model: unknown, p: number[], range: { from: number; to: number }): Promise<Results> {
