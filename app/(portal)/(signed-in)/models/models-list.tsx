@@ -88,7 +88,9 @@ export function ModelsList() {
                   <h2 className="font-display text-lg font-semibold break-words">{m.name}</h2>
                   {m.description ? <p className="text-sm text-ink-soft">{m.description}</p> : null}
                   <p className="mt-1 text-xs text-ink-faint">
-                    Version {m.latestVersion} · {m.shared ? "shared with the organisation" : "only you"} · saved by {m.mine ? "you" : (m.createdByName ?? "someone who left")} · {fmtDate(m.updatedAt ?? m.createdAt)}
+                    {/* no author on record (the demo's seeded models, or a person since removed): the clause is left out rather than guessed */}
+                    Version {m.latestVersion} · {m.shared ? "shared with the organisation" : "only you"}
+                    {m.mine ? " · saved by you" : m.createdByName ? ` · saved by ${m.createdByName}` : ""} · {fmtDate(m.updatedAt ?? m.createdAt)}
                   </p>
                 </div>
                 <div className="flex flex-wrap gap-2">
