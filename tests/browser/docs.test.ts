@@ -76,4 +76,35 @@ describe("/docs", () => {
     expect(await page.locator("#validation").innerText()).toContain("422");
     await page.close();
   });
+
+  it("every example of the notation guide works as copied: request bodies to their endpoint, models inside a quantiles request", { timeout: 180_000 }, async () => {
+    const { secret } = await orgWithKey();
+    const page = await session.browser.newPage();
+    await page.goto(`${baseUrl()}/docs/models`);
+    const blocks = await page.locator("main figure").evaluateAll((fs) => fs.map((f) => ({ label: f.querySelector("figcaption")?.textContent ?? "", code: f.querySelector("code")?.textContent ?? "" })));
+    await page.close();
+    const post = async (path: string, body: unknown) => {
+      const res = await fetch(`${baseUrl()}${path}`, { method: "POST", headers: { authorization: `Bearer ${secret}`, "content-type": "application/json" }, body: JSON.stringify(body) });
+      return { status: res.status, body: (await res.json()) as Record<string, unknown> };
+    };
+    const requests = blocks.filter((b) => b.label.startsWith("request body"));
+    // the reinsurance layer and the parts-per-million stack, each naming its endpoint
+    expect(requests.length).toBe(2);
+    for (const b of requests) {
+      const path = /POST (\/api\/v1\/\w+)$/.exec(b.label)?.[1];
+      expect(path, b.label).toBe("/api/v1/risk");
+      const r = await post(path!, JSON.parse(b.code));
+      expect(r.status, JSON.stringify(r.body).slice(0, 400)).toBe(200);
+      // every measure asked for comes back with its error bound
+      for (const k of Object.keys(JSON.parse(b.code)).filter((k) => k !== "model")) expect(r.body[k === "outside" ? "outside" : k], k).toHaveProperty("error");
+    }
+    const models = blocks.filter((b) => !b.label.startsWith("request body"));
+    expect(models.length).toBeGreaterThanOrEqual(5);
+    for (const b of models) {
+      const r = await post("/api/v1/quantiles", { model: JSON.parse(b.code), p: [0.5, 0.99], expectedShortfall: true });
+      expect(r.status, `${b.label}: ${JSON.stringify(r.body).slice(0, 400)}`).toBe(200);
+      const d = r.body.diagnostics as { quantileError: (number | null)[] };
+      expect(d.quantileError.every((e) => typeof e === "number" && e >= 0), b.label).toBe(true);
+    }
+  });
 });

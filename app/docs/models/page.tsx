@@ -24,6 +24,12 @@ export default function ModelsGuide() {
         parameter is checked, and an invalid model answers <code>422</code> with a JSON pointer to the offending field, e.g.{" "}
         <code>/model/sum/2/of/sigma</code>.
       </p>
+      <p>
+        The worked examples below show a model on its own; a request carries it as its <code>model</code> field, e.g.{" "}
+        <code>POST /api/v1/quantiles</code> with <code>{'{ "model": { … }, "p": [0.99], "expectedShortfall": true }'}</code>. Blocks
+        labelled <em>request body</em> are sent as they stand. The <Link className="text-fold-600 underline" href="/docs/snippets">code snippets</Link>{" "}
+        show whole calls.
+      </p>
       <table>
         <thead>
           <tr>
@@ -82,7 +88,7 @@ export default function ModelsGuide() {
         probabilities. Every value comes with its own error bound; a measure that does not exist answers null with the reason in{" "}
         <code>notes</code>.
       </p>
-      <Code label="request">
+      <Code label="request body, POST /api/v1/risk">
         {json({ model: reinsuranceLayerModel, var: { p: [0.995] }, es: { p: [0.995] }, stopLoss: [900], layerMean: [{ deductible: 900, limit: 300 }], returnPeriod: [200] })}
       </Code>
 
@@ -90,10 +96,10 @@ export default function ModelsGuide() {
       <p>
         Kestrel Precision Works (invented) stacks a pump shaft from a machined part (normal), two cast parts whose lengths are
         triangular between their lowest, likeliest and highest values, and a bought-in seal given by minimum, most likely and maximum
-        (PERT). The drawing allows 64.00 ± 0.08 mm. The <code>outside</code> measure gives P(S &lt; lsl) + P(S &gt; usl) and the same in
+        (PERT). The drawing allows 64.00 ± 0.08 mm. The <code>outside</code> measure of <code>POST /api/v1/risk</code> gives P(S &lt; lsl) + P(S &gt; usl) and the same in
         parts per million:
       </p>
-      <Code label="request">{json({ model: kestrelShaftStack, outside: { lsl: 63.92, usl: 64.08 } })}</Code>
+      <Code label="request body, POST /api/v1/risk">{json({ model: kestrelShaftStack, outside: { lsl: 63.92, usl: 64.08 } })}</Code>
 
       <h2>Reading the tails</h2>
       <p>
