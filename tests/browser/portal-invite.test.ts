@@ -60,9 +60,16 @@ describe("inviting a billing contact", () => {
       await shot(page, "usage-billing");
 
       // Going to the keys page by address: refused, with a reason, and the API agrees.
+      // The page does not ask for what the role may not see (a refused request would show as a console error).
+      const refused: string[] = [];
+      page.on("response", (r) => {
+        if (r.status() >= 400) refused.push(`${r.status()} ${r.url()}`);
+      });
       await page.goto(`${baseUrl()}/keys`);
       await page.getByRole("alert").filter({ hasText: /does not include API keys/i }).waitFor();
       await expect(page.getByRole("button", { name: "New key" }).count()).resolves.toBe(0);
+      await page.waitForLoadState("networkidle");
+      expect(refused).toEqual([]);
       await shot(page, "keys-billing-refused");
       const api = await page.evaluate(async () => {
         const list = await fetch("/api/portal/keys");

@@ -50,7 +50,11 @@ export function KeysManager() {
       })
       .catch((e: PortalFetchError) => setLoadError(e.problem?.error ?? "The keys could not be loaded."));
   }, []);
-  useEffect(load, [load]);
+  // a role without keys is told so below; asking the server anyway would only log a refused request in the console
+  const allowed = me ? has(me, "keys.own") : null;
+  useEffect(() => {
+    if (allowed) load();
+  }, [load, allowed]);
 
   if (me && !has(me, "keys.own")) {
     return <FormError message="Your role in this organisation does not include API keys. Usage and the monthly quota are on the Usage page." />;
