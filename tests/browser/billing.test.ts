@@ -3,6 +3,7 @@
 import { readFileSync } from "node:fs";
 import { extractText, getDocumentProxy } from "unpdf";
 import { describe, expect, it } from "vitest";
+import { formatMoney, PLANS } from "@/lib/api/plans";
 import { useBrowser } from "./browser-session";
 import { makeOrganization, makePerson, shot, signIn } from "./portal-support";
 
@@ -32,6 +33,11 @@ describe("billing in the portal", () => {
     await page.waitForURL(/\/billing\?org=.*checkout=upgraded/);
     await page.getByText("Your card is saved and the new plan applies now.").waitFor();
     await expect(page.getByTestId("current-plan").innerText()).resolves.toBe("Team");
+    // the quota bar runs to the cap; where the fee's included units end is said beside it (lib/api/plans.ts)
+    const team = PLANS.team;
+    await expect(page.getByTestId("included-units").innerText()).resolves.toBe(
+      `The fee includes ${team.includedUnits.toLocaleString("en-GB")} units; past them each further million costs ${formatMoney(team.overagePerMillionMinor)}, up to the cap of ${team.monthlyUnits.toLocaleString("en-GB")}.`,
+    );
     await expect(page.getByTestId("saved-card").innerText()).resolves.toMatch(/visa ending 4242/i);
     const row = page.locator("tr[data-invoice]").first();
     const number = await row.getAttribute("data-invoice");

@@ -108,6 +108,7 @@ export function BillingView() {
   if (!data) return <FormError message={error} />;
 
   const used = data.quota.usedUnits;
+  const current = data.plans?.find((p) => p.code === data.plan.code);
   const pct = Math.min(100, Math.round((used * 100) / Math.max(1, data.quota.monthlyUnits)));
   const quota = (
     <Section title="Plan and quota">
@@ -123,6 +124,14 @@ export function BillingView() {
       <div className="mt-3 h-2 w-full overflow-hidden rounded bg-paper-warm" role="meter" aria-label="Compute units used this month" aria-valuenow={pct} aria-valuemin={0} aria-valuemax={100}>
         <div className="h-2 bg-fold-600" style={{ width: `${pct}%` }} />
       </div>
+      {/* the bar runs to the monthly cap; what the fee covers ends earlier, and a billing contact needs to see where */}
+      {current && current.includedUnits < data.quota.monthlyUnits ? (
+        <p className="mt-2 text-xs text-ink-faint" data-testid="included-units">
+          The fee includes {units(current.includedUnits)} units; past them each further million costs{" "}
+          {money(current.overagePerMillionMinor, data.currency ?? "GBP")}, up to the cap of {units(data.quota.monthlyUnits)}.
+          {used > current.includedUnits ? ` ${units(used - current.includedUnits)} extra units so far.` : ""}
+        </p>
+      ) : null}
       {data.pendingPlan ? (
         <p className="mt-3 text-sm">
           Changes to <strong>{data.pendingPlan.label}</strong> on {day(data.pendingPlan.effectiveAt)}.
@@ -141,7 +150,6 @@ export function BillingView() {
   }
 
   const currency = data.currency ?? "GBP";
-  const current = data.plans.find((p) => p.code === data.plan.code);
   return (
     <div className="space-y-6">
       <PageHeader title="Billing" lead={`Plan, usage, payment and invoices of ${data.organization}. Amounts in ${currency}.`} />
