@@ -22,3 +22,16 @@ export function withinLimit<T extends z.ZodNumber | z.ZodArray<z.ZodType>>(schem
   });
   return bounded.openapi(schema instanceof z.ZodArray ? { maxItems: max } : { maximum: max }) as unknown as T;
 }
+
+/** A short rendering of what a client sent, for "(got ...)" in a message. */
+const shown = (v: unknown) => (typeof v === "string" ? JSON.stringify(v.length > 40 ? `${v.slice(0, 40)}…` : v) : v === undefined ? "nothing" : Array.isArray(v) ? "a list" : v === null ? "null" : typeof v === "object" ? "an object" : String(v));
+
+/** A probability level in (0, 1); each message names the value sent. */
+export const levelSchema = () =>
+  z
+    .number({ error: (iss) => `each level must be a number strictly between 0 and 1, e.g. 0.99 (got ${shown(iss.input)})` })
+    .gt(0, { error: (iss) => `levels must be strictly between 0 and 1 (got ${shown(iss.input)})` })
+    .lt(1, { error: (iss) => `levels must be strictly between 0 and 1 (got ${shown(iss.input)})` });
+
+/** A list of levels: a lone number or a string in its place is named, with the form expected. */
+export const levelList = () => z.array(levelSchema(), { error: (iss) => `levels are given as a list, e.g. [0.5, 0.99] (got ${shown(iss.input)})` });

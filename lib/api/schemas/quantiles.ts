@@ -1,18 +1,11 @@
 import { Meta, QuantileDiagnostics } from "@/lib/api/common-schemas";
 import { DISCRETISE_OPT_IN } from "@/lib/cf/methods";
 import { modelRequest } from "@/lib/api/model-field";
-import { withinLimit, z } from "@/lib/api/zod";
+import { levelList, withinLimit, z } from "@/lib/api/zod";
 
 export const { doc: QuantilesRequest, body: QuantilesBody } = modelRequest("QuantilesRequest", {
   p: withinLimit(
-    z
-      .array(
-        z
-          .number({ error: "each level must be a number" })
-          .gt(0, { error: "levels must be strictly between 0 and 1" })
-          .lt(1, { error: "levels must be strictly between 0 and 1" }),
-      )
-      .min(1, { error: "give at least one level p" }),
+    levelList().min(1, { error: "give at least one level p" }),
     1000,
     "at most 1000 levels per request",
   ).openapi({ description: "levels in (0, 1); the quantile is the smallest x with F(x) >= p" }),

@@ -1,13 +1,13 @@
 import { Meta } from "@/lib/api/common-schemas";
 import { DISCRETISE_OPT_IN, RISK_METHODS, describeMethods } from "@/lib/cf/methods";
 import { modelRequest } from "@/lib/api/model-field";
-import { withinLimit, z } from "@/lib/api/zod";
+import { levelList, withinLimit, z } from "@/lib/api/zod";
 
 const MAX_VALUES = 1000;
 const finite = (what: string) => z.number({ error: `${what} must be a finite number` });
 const list = (what: string, item: z.ZodNumber, description: string) =>
   withinLimit(z.array(item).min(1, { error: `give at least one ${what}` }), MAX_VALUES, `at most ${MAX_VALUES} values of ${what}`).optional().openapi({ description });
-const level = z.number({ error: "each level must be a number" }).gt(0, { error: "levels must be strictly between 0 and 1" }).lt(1, { error: "levels must be strictly between 0 and 1" });
+
 const tail = z
   .enum(["upper", "lower"])
   .optional()
@@ -15,7 +15,7 @@ const tail = z
 
 const Levels = (what: string, description: string) =>
   z
-    .object({ p: withinLimit(z.array(level).min(1, { error: `give at least one level for ${what}` }), MAX_VALUES, `at most ${MAX_VALUES} levels`), tail })
+    .object({ p: withinLimit(levelList().min(1, { error: `give at least one level for ${what}` }), MAX_VALUES, `at most ${MAX_VALUES} levels`), tail })
     .strict()
     .optional()
     .openapi({ description });
