@@ -66,7 +66,8 @@ export async function usageMonth(caller: Caller, now = new Date()) {
     days.push({ day, units, cumulative });
   }
   const plan = planOf(caller.plan);
-  return { month: from.toISOString().slice(0, 7), plan: plan.label, quota: plan.monthlyUnits, organizationUnits: orgUnits, days, scope: scope.createdBy ? "own" : "organization" };
+  // quota is the plan's monthly cap; included is what its fee covers (units past it are billed per extra million)
+  return { month: from.toISOString().slice(0, 7), plan: plan.label, quota: plan.monthlyUnits, included: plan.includedUnits, organizationUnits: orgUnits, days, scope: scope.createdBy ? "own" : "organization" };
 }
 
 const CSV_HEADER = ["day", "key_label", "key_prefix", "endpoint", "requests", "compute_units", "errors", "median_ms"];

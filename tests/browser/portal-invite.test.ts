@@ -1,6 +1,7 @@
 // An admin invites a billing contact -> the mail arrives -> the billing contact joins, sees usage, and can
 // neither see nor create keys.
 import { describe, expect, it } from "vitest";
+import { PLANS } from "@/lib/api/plans";
 import { launchBrowser } from "../support/browser";
 import { useBrowser } from "./browser-session";
 import { baseUrl } from "../support/layout";
@@ -57,6 +58,10 @@ describe("inviting a billing contact", () => {
       await page.getByRole("heading", { name: "Usage" }).waitFor();
       await page.getByText("No calls in this period").waitFor();
       await page.locator("figure svg").first().waitFor();
+      // the quota is the plan's cap; the sentence says where the fee's included units end (lib/api/plans.ts, Team)
+      const quotaText = await page.locator("#quota-h").locator("xpath=..").innerText();
+      expect(quotaText).toContain(`of ${PLANS.team.monthlyUnits.toLocaleString("en-GB")} compute units, the plan’s monthly cap (`);
+      expect(quotaText).toContain(`Team plan). The fee includes ${PLANS.team.includedUnits.toLocaleString("en-GB")} of them; units past those are billed per extra million (see Billing).`);
       await shot(page, "usage-billing");
 
       // Going to the keys page by address: refused, with a reason, and the API agrees.

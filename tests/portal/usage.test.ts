@@ -103,6 +103,9 @@ describe("usage table", () => {
   it("gives the month's daily units and running total against the plan quota", async () => {
     const res = await get(A.billing.id, "/api/portal/usage/month");
     expect(res.body.quota).toBe(PLANS.starter.monthlyUnits);
+    // the cap and, below it, the units the fee includes (the page says where billing for extra units starts)
+    expect(res.body.included).toBe(PLANS.starter.includedUnits);
+    expect(res.body.included).toBeLessThan(res.body.quota);
     const days = res.body.days as { day: string; units: number; cumulative: number }[];
     const now = new Date();
     expect(days[0].day).toBe(`${now.toISOString().slice(0, 7)}-01`);

@@ -6,6 +6,8 @@ export interface MonthData {
   month: string;
   plan: string;
   quota: number;
+  /** units the plan's fee includes (below the cap, quota) */
+  included?: number;
   organizationUnits: number;
   days: { day: string; units: number; cumulative: number }[];
   scope: "own" | "organization";
@@ -29,7 +31,9 @@ export function QuotaMeter({ data }: { data: MonthData }) {
       <h2 id="quota-h" className="font-display text-lg font-semibold">Monthly quota, {data.month}</h2>
       <p className="mt-1 text-sm text-ink-soft">
         The organisation has used <strong className="text-ink">{data.organizationUnits.toLocaleString("en-GB")}</strong> of{" "}
-        {data.quota.toLocaleString("en-GB")} compute units ({percentOf(data.organizationUnits, data.quota)}, {data.plan} plan). Units renew on the first of the month (UTC).
+        {data.quota.toLocaleString("en-GB")} compute units, the plan&rsquo;s monthly cap ({percentOf(data.organizationUnits, data.quota)}, {data.plan} plan).
+        {data.included !== undefined && data.included < data.quota ? ` The fee includes ${data.included.toLocaleString("en-GB")} of them; units past those are billed per extra million (see Billing).` : ""} Units renew on
+        the first of the month (UTC).
       </p>
       <div
         className="mt-3 h-3 w-full overflow-hidden rounded-full bg-paper-warm ring-1 ring-paper-line"
