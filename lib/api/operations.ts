@@ -6,6 +6,7 @@ import type { MomentsBody } from "@/lib/api/schemas/moments";
 import type { QuantilesBody } from "@/lib/api/schemas/quantiles";
 import type { RiskBody } from "@/lib/api/schemas/risk";
 import { compile, convolveTables, density, MAX_LATTICE, moments, powerTable, quantiles } from "@/lib/cf";
+import { cfValues } from "@/lib/cf/cf-values";
 import { riskMeasures } from "@/lib/cf/risk";
 import { ApiError } from "./errors";
 import { checkModel } from "./model-field";
@@ -27,10 +28,8 @@ function args(t: number[] | { from: number; to: number; count: number }): Float6
 export function runCf(body: z.infer<typeof CfBody>) {
   const compiled = compile(checkModel(body.model));
   const t = args(body.t);
-  const re = new Float64Array(t.length);
-  const im = new Float64Array(t.length);
-  compiled.cf(t, re, im);
-  return { t: list(t), re: list(re), im: list(im) };
+  const v = cfValues(compiled, t);
+  return { t: list(t), re: list(v.re), im: list(v.im), error: nullable(v.error)!, notes: v.notes };
 }
 
 /** The opt-in discretisation of continuous severities in compounds, at the request's tolerance. */
@@ -138,10 +137,14 @@ export function runConvolve(body: z.infer<typeof ConvolveRequest>) {
       errors: [{ detail: `The result would have ${length} points, above the limit of ${MAX_LATTICE}.`, pointer: body.power ? "/power" : "/terms" }],
     });
   }
-  const tables = body.terms.map((t) => ({ origin: t.origin, step: t.step, p: Float64Array.from(t.p), tailMass: 0 }));
+  // the terms as given are exact: each entry's rounding bound starts at 0 and follows the convolutions and powers
+  // (lib/cf/table-rounding.ts: per entry while the products are direct sums, else the largest entry's bound)
+  const tables = body.terms.map((t) => ({ origin: t.origin, step: t.step, p: Float64Array.from(t.p), tailMass: 0, round: { pmf: 0, l1: 0 }, pointErr: new Float64Array(t.p.length) }));
   const once = convolveTables(tables);
   const r = power > 1 ? powerTable(once, power) : once;
-  return { origin: r.origin, step: r.step, p: list(r.p), tailMass: r.tailMass };
+  const pe = r.pointErr && r.pointErr.length === r.p.length ? r.pointErr : null;
+  const pError = Array.from(r.p, (_, k) => (pe ? pe[k] : r.round ? r.round.pmf : null));
+  return { origin: r.origin, step: r.step, p: list(r.p), pError, tailMass: r.tailMass };
 }
 
 export function runRisk(body: z.infer<typeof RiskBody>) {

@@ -26,7 +26,12 @@ describe("POST /api/v1/cf", () => {
       const mod = Math.exp((-sigma * sigma * ti * ti) / 2);
       close(res.body.re[i], mod * Math.cos(mu * ti), { rel: 1e-12, abs: 1e-300 }, `Re phi(${ti})`);
       close(res.body.im[i], mod * Math.sin(mu * ti), { rel: 1e-12, abs: 1e-300 }, `Im phi(${ti})`);
+      // each value carries its bound: at or above the distance to the closed form, and small
+      const act = Math.hypot(res.body.re[i] - mod * Math.cos(mu * ti), res.body.im[i] - mod * Math.sin(mu * ti));
+      expect(res.body.error[i]).toBeGreaterThanOrEqual(Math.max(0, act - 1e-15));
+      expect(res.body.error[i]).toBeLessThan(1e-12);
     });
+    expect(res.body.notes).toEqual([]);
   });
 
   it("evaluates on a { from, to, count } grid; the Cauchy CF is exp(i loc t - scale |t|) (closed form, common practice)", async () => {
@@ -156,6 +161,12 @@ describe("POST /api/v1/convolve", () => {
     expect(res.body.origin).toBe(2);
     const exact = [1, 2, 3, 4, 5, 6, 5, 4, 3, 2, 1].map((k) => k / 36);
     exact.forEach((e, i) => close(res.body.p[i], e, { abs: 1e-15 }, `p(${i + 2})`));
+    // each entry's rounding bound covers its distance to k/36 (the inputs 1/6 as sent are exact; k/36 in double is
+    // and the sent 1/6 within 2^-53 relative of theirs: 2^-50 relative taken into the comparison)
+    exact.forEach((e, i) => {
+      expect(res.body.pError[i]).toBeGreaterThanOrEqual(Math.max(0, Math.abs(res.body.p[i] - e) - e * 2 ** -50));
+      expect(res.body.pError[i]).toBeLessThan(1e-14);
+    });
   });
 });
 

@@ -11,6 +11,10 @@ export const CfResponse = z
     t: z.array(z.number()),
     re: z.array(z.number()).openapi({ description: "Re phi(t)" }),
     im: z.array(z.number()).openapi({ description: "Im phi(t)" }),
+    error: z.array(z.number().nullable()).openapi({
+      description: "a bound on |computed phi(t) - phi(t)| at each t (rounding, the declared error of numerical CFs, the rounding of scaled frequencies); null where the model derives none (the notes say why)",
+    }),
+    notes: z.array(z.string()),
     meta: Meta,
   })
   .openapi("CfResponse");

@@ -30,6 +30,9 @@ export const ConvolveResponse = z
     origin: z.number(),
     step: z.number(),
     p: z.array(z.number()),
+    pError: z.array(z.number().nullable()).openapi({
+      description: "a bound on each p[k]'s floating-point error (the terms as given taken as exact; the FFT's rounding where the products are long); null where none is derived",
+    }),
     tailMass: z.number().openapi({ description: "mass dropped past the end of the table (0 unless the terms carried some)" }),
     meta: Meta,
   })
