@@ -94,18 +94,30 @@ export function compoundRemainderBound(inp: CompoundRemainderInput): { bound: (b
   // bounded variation, the rest falling faster (./compound-remainder-terms.ts jumpSplit); every order splits the same part
   // of the remainder (its s^-1 coefficient), so the least fast bound and the least D1 hold together
   const splits = () => built().map((f) => f.jump);
+  // the fast part's pieces are the bound's, each non-increasing in beta as above: its value at beta = 0 serves every
+  // damping up to beta d = 1/2, once per frequency (a plan's probes share their frequencies)
+  const fastCache = new Map<number, number>();
+  const fastAt = (beta: number, t: number) => {
+    const sigma = Math.hypot(beta, t);
+    if (!(sigma >= 2 * r)) return Infinity;
+    const ls = Math.log(sigma / r);
+    let best = Infinity;
+    for (const j of splits()) best = Math.min(best, j ? j.fast(beta, t, sigma, ls, tailP) : Infinity);
+    return best;
+  };
   const jump: RemainderJump = {
     get decay() {
       const js = splits();
       return js.length > 0 && js.every((j) => j !== null) ? Math.min(...js.map((j) => j!.decay)) : NaN;
     },
     fast(beta, t) {
-      const sigma = Math.hypot(beta, t);
-      if (!(sigma >= 2 * r)) return Infinity;
-      const ls = Math.log(sigma / r);
-      let best = Infinity;
-      for (const j of splits()) best = Math.min(best, j ? j.fast(beta, t, sigma, ls, tailP) : Infinity);
-      return best;
+      if (!(beta >= 0 && beta * dMax <= 0.5)) return fastAt(beta, t);
+      let v = fastCache.get(t);
+      if (v === undefined) {
+        if (fastCache.size > 4096) fastCache.clear();
+        fastCache.set(t, (v = fastAt(0, t)));
+      }
+      return v;
     },
     tv() {
       const js = splits();
