@@ -6,7 +6,8 @@ import type { Node } from "./node";
 import { rawToCumulants } from "./node";
 import { CfError } from "./errors";
 import { atomsNode } from "./tabulated";
-import { cabs, sortedAnchor, unwrapFrom } from "./complex";
+import { cabs } from "./complex";
+import { principalLogRound } from "./families/log-round-principal";
 import { MAX_LATTICE } from "./limits";
 import type { DirectLaw } from "./families/dist";
 import type { SeverityLaw } from "./discretise";
@@ -225,8 +226,8 @@ export function layerNode(X: Node, terms: Partial<LayerTerms>, disc: DensityDisc
       // the Filon rule's interpolation and rounding error, the atoms' masses' bounds and the claim mass left out; plus the
       // assembly's rounding (u = eps/2): the sums and the product with cos/sin 5 sqrt(2) u of the moduli' sum (at most
       // about 1), the log of |.| and its exp back 9u (cabs 2 eps, log and exp one ulp each, m |log m| <= 1/e), the angle
-      // through atan2 and cos/sin (2 pi + 2) u: below 16 eps together; the phase's own rounding u |s l| is in the
-      // node's units of rounding relative to |Im log phi| (invert/part.ts cfRelError)
+      // through atan2 (principal: |Im L| <= pi) and cos/sin (2 pi + 2) u: below 16 eps together; the rounded frequencies
+      // c t and s l are the node's argSlope (layerRounding below)
       return oscillatory().error + FdE.e + SdlE.e + cut + 16 * Number.EPSILON;
     },
     notes: [
@@ -250,13 +251,13 @@ export function layerNode(X: Node, terms: Partial<LayerTerms>, disc: DensityDisc
           i += Sdl * Math.sin(s * l);
         }
         re[k] = Math.log(cabs(r, i));
+        // the principal argument, no unwrap: its size is then bounded whatever the grid (families/log-round-principal.ts)
         im[k] = Math.atan2(i, r);
       }
-      const a = sortedAnchor(t);
-      if (a >= 0) unwrapFrom(im, a);
     },
     cumulants: (n) => rawToCumulants(Array.from({ length: n }, (_, i) => raw(i + 1))),
     severity: sev,
+    ...layerRounding(c, l, Sdl + SdlE.e, closed(1)),
   };
   if (!dist.layerMoment) return node;
   // a claim with a direct law: the layer's values, quantiles and ES from it (./direct/layer.ts), no inversion
@@ -333,4 +334,20 @@ function claimCdf(X: Node, dist: DirectLaw): { cdfE: (x: number) => Est; sfE: (x
       return { v: pt.sf, e: pt.sfErr + moved(x) };
     },
   };
+}
+
+/**
+ * The layer's rounded frequencies and its principal log (Y = c min((X - d)+, l) on [0, c l]): E Y <= m, the least of c l and
+ * the closed-form mean's upper end (none derived for an unlimited layer without it). fl(c t) moves phi_Y by at most u c |t|
+ * E[min((X - d)+, l)] = u |t| E Y (|d phi / ds| <= E Y / c at s = c t; none for c = 1), and fl(s l) the top atom's phase by
+ * u |s l|, so its value by S(d + l) u c l |t| (1 + u): the node's argSlope (its absolute CF error per unit |t|, on top of
+ * X's, which the Filon rule reads through X's density, not its CF: none). The log's rounding by principalLogRound(m, 0).
+ */
+function layerRounding(c: number, l: number, Sdl: number, mean: Est | null): Pick<Node, "argSlope" | "logRoundSlope" | "logRoundAt"> {
+  const EPS = Number.EPSILON;
+  const byMean = mean && Number.isFinite(mean.e) ? (mean.v + mean.e) * (1 + 2 * EPS) : Infinity;
+  const m = Math.min(l < Infinity ? c * l : Infinity, byMean);
+  if (!Number.isFinite(m)) return {};
+  const argSlope = ((c === 1 ? 0 : (EPS / 2) * m) + (l < Infinity && Sdl > 0 ? (EPS / 2) * c * l * Sdl * (1 + EPS) : 0)) * (1 + 4 * EPS);
+  return { argSlope, ...principalLogRound(m, 0) };
 }

@@ -17,7 +17,8 @@ export type NodeKind =
 
 /** One compiled node of the model tree. */
 export interface Node {
-  /** log phi(t) into (re, im); continuous branch when t is sorted. */
+  /** log phi(t) into (re, im); continuous branch when t is sorted (beta, PERT, truncated normal and per-claim layers:
+   *  principal at each frequency, ./families/log-round-principal.ts; consumers take e^L) */
   logCf(t: Float64Array, re: Float64Array, im: Float64Array): void;
   kind: NodeKind;
   momentIndex: number;

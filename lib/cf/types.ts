@@ -50,7 +50,8 @@ export interface LatticeTable {
 }
 
 export interface CompiledModel {
-  /** log phi(t) written into (re, im); im is the continuous branch (unwrapped from t=0 outward). */
+  /** log phi(t) written into (re, im); im is the continuous branch (unwrapped from t=0 outward), except below laws whose
+   *  log is principal at each frequency (Node.logCf: beta, PERT, truncated normal, per-claim layers) */
   logCf(t: Float64Array, re: Float64Array, im: Float64Array): void;
   /** phi(t) written into (re, im). */
   cf(t: Float64Array, re: Float64Array, im: Float64Array): void;

@@ -1,6 +1,7 @@
 /** Laws on a bounded interval: beta on [a, b] (and PERT), triangular. */
 import { rawToCumulants, type Node } from "../node";
 import { sortedAnchor, unwrapFrom } from "../complex";
+import { betaDensityVariation, principalLogRound } from "./log-round-principal";
 import { triangularDist } from "./dist";
 import { checkDeadline } from "../deadline";
 import { arithmeticNodes } from "./cf-quadrature";
@@ -40,7 +41,10 @@ export function betaLaw(alpha: number, beta: number, a: number, b: number, name 
   const tmp = new Float64Array(2);
   const mean = a + (w * alpha) / (alpha + beta);
   const sd = (w * Math.sqrt((alpha * beta) / (alpha + beta + 1))) / (alpha + beta);
+  // the claim-law rounding of the principal log, phi = e^{i a t} psi, E|X - a| = w alpha / (alpha + beta)
+  const logRound = principalLogRound((w * alpha) / (alpha + beta), a, betaDensityVariation(alpha, beta, w));
   return {
+    ...logRound,
     kind: { type: "continuous" },
     momentIndex: Infinity,
     tails: { left: Infinity, right: Infinity },
@@ -87,8 +91,7 @@ export function betaLaw(alpha: number, beta: number, a: number, b: number, name 
         re[k] = Math.log(Math.hypot(tmp[0], tmp[1]));
         im[k] = (x < 0 ? -1 : 1) * Math.atan2(tmp[1], tmp[0]);
       }
-      const anchor = sortedAnchor(t);
-      if (anchor >= 0) unwrapFrom(im, anchor);
+      // the principal argument, no unwrap: its size is then bounded whatever the grid (./log-round-principal.ts)
       for (let k = 0; k < t.length; k++) im[k] += a * t[k];
     },
     cumulants: (n) => {

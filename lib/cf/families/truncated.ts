@@ -1,6 +1,7 @@
 /** Truncated normal on [lower, upper] (either end may be absent: unbounded). */
 import { rawToCumulants, type Node } from "../node";
-import { sortedAnchor, unwrapFrom } from "../complex";
+import { principalLogRound } from "./log-round-principal";
+import { normalCdfBounded } from "./normal-bounded";
 import { normalCdf, normalPdf, type DirectLaw } from "./dist";
 import { truncatedNormalLayerMoment } from "./layer-moments";
 import { truncatedNormalCf } from "./truncated-cf";
@@ -58,6 +59,7 @@ export function truncatedNormal(mu: number, sigma: number, lower?: number, upper
   const cf = truncatedNormalCf(mu, sigma, a, b, mean);
   const phi = cf.phi;
   return {
+    ...principalLogRound(absMeanBound(mu, sigma, a, b), 0, densityVariation(mu, sigma, al, be)),
     kind: { type: "continuous" },
     momentIndex: Infinity,
     tails: { left: Infinity, right: Infinity },
@@ -74,11 +76,38 @@ export function truncatedNormal(mu: number, sigma: number, lower?: number, upper
         if ((k & 63) === 0) checkDeadline("truncated-normal-cf");
         const [r, i] = t[k] === 0 ? [1, 0] : phi(t[k]);
         re[k] = Math.log(Math.hypot(r, i));
+        // the principal argument, no unwrap: its size is then bounded whatever the grid (./log-round-principal.ts)
         im[k] = Math.atan2(i, r);
       }
-      const an = sortedAnchor(t);
-      if (an >= 0) unwrapFrom(im, an);
     },
     cumulants: (n) => rawToCumulants(rawUpTo(n).slice(1, n + 1)),
   };
+}
+
+/**
+ * An upper bound on E|X| for X = mu + sigma Z, Z standard normal conditioned on [al, be]: |mu| + sigma E|Z|, where
+ * E[Z | al <= Z <= be] <= E[Z | Z >= al] = phi(al) / (1 - Phi(al)) < (al + sqrt(al^2 + 4)) / 2 <= al + 1 for al >= 0 (Birnbaum,
+ * Ann. Math. Statist. 13 (1942), the inverse Mills ratio's upper bound; cutting the law above lowers its mean), likewise |be| + 1
+ * for be <= 0; for al < 0 < be each half's density decreases away from 0, so E[|Z| | Z in [0, be]] <= E[Z | Z > 0] = sqrt(2 / pi)
+ * (truncating a decreasing density above lowers its mean) and E|Z| is at most that. Both ends finite: also max(|a|, |b|).
+ */
+function absMeanBound(mu: number, sigma: number, a: number, b: number): number {
+  const al = (a - mu) / sigma;
+  const be = (b - mu) / sigma;
+  const ez = al >= 0 ? al + 1 : be <= 0 ? -be + 1 : Math.sqrt(2 / Math.PI);
+  const byZ = (Math.abs(mu) + sigma * ez * (1 + 4 * Number.EPSILON)) * (1 + 4 * Number.EPSILON);
+  return Number.isFinite(a) && Number.isFinite(b) ? Math.min(byZ, Math.max(Math.abs(a), Math.abs(b))) : byZ;
+}
+
+/**
+ * 2 f_max of the truncated normal (unimodal, its jumps at the ends included): f_max = phi_N(z*) / (sigma Z), z* the point of
+ * [al, be] nearest 0, Z = Phi(be) - Phi(al) from below by normalCdfBounded's bounds (in the upper tail as sf differences)
+ */
+function densityVariation(mu: number, sigma: number, al: number, be: number): number {
+  const z = al > 0 ? al : be < 0 ? be : 0;
+  const [p, q] = al > 0 ? [normalCdfBounded(-al), normalCdfBounded(-be)] : [normalCdfBounded(be), normalCdfBounded(al)];
+  const Zlo = (p.v - p.e - (q.v + q.e)) * (1 - 4 * Number.EPSILON);
+  if (!(Zlo > 0)) return Infinity;
+  const f = (Math.exp(-(z * z) / 2) * (1 + 4 * Number.EPSILON * (2 + z * z))) / (Math.sqrt(2 * Math.PI) * sigma * Zlo);
+  return 2 * f * (1 + 8 * Number.EPSILON);
 }
