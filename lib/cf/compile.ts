@@ -25,7 +25,7 @@ import type { DirectLaw } from "./direct/types";
 import { convolveRelTables, convolveTables } from "./lattice";
 import { roundOf } from "./table-rounding";
 import { twoSumErr } from "./moment-error";
-import { familyAbsMoment } from "./abs-moment";
+import { cumulantAbsMoment, familyAbsMoment } from "./abs-moment";
 
 /** Options of compile(). */
 export interface CompileOptions {
@@ -63,6 +63,10 @@ export function buildNode(m: Model, opts: CompileOptions = {}): Node {
     }
     const am = familyAbsMoment(m.family, params);
     if (am) node.absMomentAbout = am;
+    // a law with a mean but no variance, bounded on one side (pareto, lomax, Burr, ... of tail index in (1, 2]): E|X - c|
+    // from its mean and that end (cumulantAbsMoment), so a sum holding it bounds its own (../abs-moment.ts sumAbsMoment)
+    else if (node.momentIndex > 1 && node.momentIndex <= 2 && (Number.isFinite(node.support[0]) || Number.isFinite(node.support[1])))
+      node.absMomentAbout = (c) => cumulantAbsMoment(node, c);
     const dm = familyDampedMajorant(m.family, params, node);
     if (dm) node.dampedMajorant = dm;
     if (m.family === "student_t") {
