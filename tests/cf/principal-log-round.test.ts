@@ -1,8 +1,8 @@
 // Claim laws whose log-CF is principal at each frequency (no unwrap along the grid) and whose log rounding is bounded from
-// that (lib/cf/families/log-round-principal.ts): beta, PERT, truncated normal and per-claim layers. A compound of any of them
+// that (lib/cf/families/log-round-principal.ts): beta, PERT, triangular, truncated normal and per-claim layers. A compound of any of them
 // no longer says the claim law's rounding is left out. Reference: tests/fixtures/principal-log/principal-log.json
 // (generate.py beside it: mpmath at 40 digits, two methods per value: Kummer's function and quadrature for beta and PERT,
-// the complex erfc form and quadrature for the truncated normal, closed form or quadrature in x and in log x for layers).
+// the closed form and quadrature for the triangular, the complex erfc form and quadrature for the truncated normal, closed form or quadrature in x and in log x for layers).
 import { describe, expect, it } from "vitest";
 import { readFileSync } from "node:fs";
 import { join } from "node:path";
@@ -54,9 +54,9 @@ describe("claim laws with a principal log: the log rounding is derived (mpmath f
       expect(tightest).toBeGreaterThan(1);
     });
   }
-  it("a compound of a triangular claim (its log still unwrapped along the grid) keeps the note; beta, PERT, truncated normal and layers do not", () => {
+  it("a compound of a mixture claim (its log still unwrapped along the grid) keeps the note; beta, PERT, triangular, truncated normal and layers do not", () => {
     const noted = (each: object) => poissonOne(each as Model).notes.some((n) => n.includes("not derived for this claim law"));
-    expect(noted({ family: "triangular", a: 0, c: 2, b: 10 })).toBe(true);
+    expect(noted({ mix: [{ weight: 0.7, of: { family: "gamma", shape: 2, rate: 1 } }, { weight: 0.3, of: { family: "lognormal", mu: 1, sigma: 1 } }] })).toBe(true);
     for (const c of fx.cases) expect(noted(c.model), c.name).toBe(false);
   });
 });
