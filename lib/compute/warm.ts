@@ -65,7 +65,7 @@ const MODELS: Record<string, unknown>[] = [
       { family: "laplace", loc: 0, scale: 1 },
     ],
   },
-  { sum: [{ family: "pareto", alpha: 2.3, xm: 1 }, { family: "pareto", alpha: 2.0, xm: 0.7 }, { family: "uniform", a: -1, b: 1.5 }] },
+  { sum: [{ family: "pareto", alpha: 2.3, xm: 1 }, { family: "pareto", alpha: 2.0, xm: 0.7 }, { family: "normal", mu: 0, sigma: 1 }] },
 ];
 const routeRequests = (model: Record<string, unknown>): WarmRequest[] => [
   { op: "quantiles", body: { model, p: SEVEN, expectedShortfall: true } },
