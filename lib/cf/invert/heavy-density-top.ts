@@ -4,8 +4,8 @@
 // parts (the residual's aliasing, the kernels', the truncation), its sums then checked with the rounding and the images'.
 import type { DirectLaw } from "../direct/types";
 import { checkDeadline } from "../deadline";
-import { blockImages } from "./image-blocks";
-import { imageLadder, type ImageScratch } from "./images";
+import { subtractImages } from "./image-blocks";
+import type { ImageScratch } from "./images";
 import { kernelAliasing } from "./kernel-images";
 import { residualAliasing, type ResidualLaw } from "./heavy-residual";
 import { pairAliasing, type PairLaw } from "./heavy-residual2";
@@ -99,35 +99,7 @@ export function densityTop(x: DensityTopInputs): PartOutput | null {
   const sf = new Float64Array(n);
   evaluate(part, nodes, req, layout, pdf !== null, pdf, cdf, sf);
   // the images at x + m T (as the ladder's level lev): their values out of the sums, their bounds (largest over the points) in
-  let lC = 0;
-  let lP = 0;
-  const imgC = new Float64Array(n);
-  const imgP = new Float64Array(n);
-  for (const law of laws) {
-    const blk = xLo < xHi ? blockImages(law, pts, xLo, xHi, T, tol / 4096, x.imgScratch, imgC, imgP) : null;
-    if (blk) {
-      for (let i = 0; i < n; i++) {
-        cdf[i] -= imgC[i];
-        sf[i] += imgC[i];
-        if (pdf) pdf[i] -= imgP[i];
-      }
-      lC += blk.errCdf;
-      lP += blk.errPdf;
-    } else {
-      let eC = 0;
-      let eP = 0;
-      for (let i = 0; i < n; i++) {
-        const im = imageLadder(law, pts[i], T, 1, x.imgScratch)[0];
-        cdf[i] -= im.cdf;
-        sf[i] += im.cdf;
-        if (pdf) pdf[i] -= im.pdf;
-        eC = Math.max(eC, im.errCdf);
-        eP = Math.max(eP, im.errPdf);
-      }
-      lC += eC;
-      lP += eP;
-    }
-  }
+  const { errCdf: lC, errPdf: lP } = subtractImages(laws, pts, xLo, xHi, T, tol, x.imgScratch, new Float64Array(n), new Float64Array(n), cdf, sf, pdf);
   const trunc = truncationAt(env, K * h);
   const round = roundingOf(part, nodes, ymaxOf(req, part.center, part.center, part.center), layout ? layout.N : 0);
   // the raw level's derived bound, as heavyPath's (bestDerivedEntry's entry j = 0: the weight 1 on the last level)

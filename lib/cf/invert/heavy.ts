@@ -9,8 +9,8 @@ import { buildNodes, cutoffFor, probeEnvelope, truncationAt, type Envelope, type
 import { withTailLaw, type ContinuousPart } from "./part";
 import { sumPointwise } from "./pointwise";
 import { kernelAliasing } from "./kernel-images";
-import { imageLadder, imageScratch } from "./images";
-import { blockImages } from "./image-blocks";
+import { imageScratch } from "./images";
+import { subtractImages } from "./image-blocks";
 import { bestDerivedEntry, lastRowWeights, residualAliasing, residualLaw, type ResidualLaw } from "./heavy-residual";
 import { pairAliasing, pairLaw, type PairLaw } from "./heavy-residual2";
 import { densityTop } from "./heavy-density-top";
@@ -150,34 +150,7 @@ export function heavyPath(
     const sf = new Float64Array(n);
     evaluate(part, nodes, req, layout, pdf !== null, pdf, cdf, sf);
     // the level's own image bounds (largest over the points) and their running maximum for the estimate's amplification
-    let lC = 0;
-    let lP = 0;
-    for (const law of laws) {
-      const T = T0 * 2 ** lev;
-      const blk = xLo < xHi ? blockImages(law, pts, xLo, xHi, T, tol / 4096, imgScratch, imgC, imgP) : null;
-      if (blk) {
-        for (let i = 0; i < n; i++) {
-          cdf[i] -= imgC[i];
-          sf[i] += imgC[i];
-          if (pdf) pdf[i] -= imgP[i];
-        }
-        lC += blk.errCdf;
-        lP += blk.errPdf;
-      } else {
-        let eC = 0;
-        let eP = 0;
-        for (let i = 0; i < n; i++) {
-          const im = imageLadder(law, pts[i], T, 1, imgScratch)[0];
-          cdf[i] -= im.cdf;
-          sf[i] += im.cdf;
-          if (pdf) pdf[i] -= im.pdf;
-          eC = Math.max(eC, im.errCdf);
-          eP = Math.max(eP, im.errPdf);
-        }
-        lC += eC;
-        lP += eP;
-      }
-    }
+    const { errCdf: lC, errPdf: lP } = subtractImages(laws, pts, xLo, xHi, T0 * 2 ** lev, tol, imgScratch, imgC, imgP, cdf, sf, pdf);
     if (laws.length) {
       imC = Math.max(imC, lC);
       imP = Math.max(imP, lP);

@@ -123,3 +123,53 @@ function seriesBound(t: PowerTerms, z1: number, T: number): number {
   }
   return s * (1 + 8 * (t.a.length + 2) * Number.EPSILON);
 }
+
+/**
+ * Each law's images at x + m T (m != 0) taken out of the period's sums at the points (cdf and sf, and pdf where asked):
+ * from blocks where blockImages applies (their bound tol / 4096 per block), else point by point from the image ladder.
+ * Returns the bounds left on what was taken out, the largest over the points, summed over the laws.
+ */
+export function subtractImages(
+  laws: readonly DirectLaw[],
+  pts: ArrayLike<number>,
+  xLo: number,
+  xHi: number,
+  T: number,
+  tol: number,
+  scratch: ImageScratch,
+  imgC: Float64Array,
+  imgP: Float64Array,
+  cdf: Float64Array,
+  sf: Float64Array,
+  pdf: Float64Array | null,
+): { errCdf: number; errPdf: number } {
+  const n = cdf.length;
+  let lC = 0;
+  let lP = 0;
+  for (const law of laws) {
+    const blk = xLo < xHi ? blockImages(law, pts, xLo, xHi, T, tol / 4096, scratch, imgC, imgP) : null;
+    if (blk) {
+      for (let i = 0; i < n; i++) {
+        cdf[i] -= imgC[i];
+        sf[i] += imgC[i];
+        if (pdf) pdf[i] -= imgP[i];
+      }
+      lC += blk.errCdf;
+      lP += blk.errPdf;
+    } else {
+      let eC = 0;
+      let eP = 0;
+      for (let i = 0; i < n; i++) {
+        const im = imageLadder(law, pts[i], T, 1, scratch)[0];
+        cdf[i] -= im.cdf;
+        sf[i] += im.cdf;
+        if (pdf) pdf[i] -= im.pdf;
+        eC = Math.max(eC, im.errCdf);
+        eP = Math.max(eP, im.errPdf);
+      }
+      lC += eC;
+      lP += eP;
+    }
+  }
+  return { errCdf: lC, errPdf: lP };
+}
