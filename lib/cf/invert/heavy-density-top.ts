@@ -13,12 +13,12 @@ import { buildNodes, truncationAt, type Envelope } from "./nodes";
 import type { ContinuousPart } from "./part";
 import { sumPointwise } from "./pointwise";
 import {
-  MAX_FFT,
   MAX_LEVELS,
   MAX_POINTWISE_WORK,
   addKernels,
   chooseTerms,
   evaluate,
+  levelLayout,
   roundingOf,
   ymaxOf,
   type Layout,
@@ -66,19 +66,7 @@ export function densityTop(x: DensityTopInputs): PartOutput | null {
   let pick: { lev: number; T: number; h: number; K: number; layout: Layout | null; m: "fft" | "gil-pelaez"; preC: number; preP: number } | null = null;
   for (let lev = 2; lev < Math.min(5, MAX_LEVELS) && !pick; lev++) {
     checkDeadline("refine");
-    const T = T0 * 2 ** lev;
-    const a = x.anchor === "left" ? x.a0 : x.anchor === "right" ? x.a0 + T0 - T : x.centerX - T / 2;
-    let layout: Layout | null = null;
-    let m = x.method;
-    if (layout0 && req.kind === "grid") {
-      const N = layout0.N * 2 ** lev;
-      const shift = Math.round((layout0.x0 - a) / req.dx);
-      layout = { N, x0: layout0.x0 - shift * req.dx, offset: layout0.offset + shift };
-      if (N > MAX_FFT) {
-        m = "gil-pelaez";
-        layout = null;
-      }
-    }
+    const { T, layout, m } = levelLayout(lev, T0, x.a0, x.anchor, x.centerX, layout0, req, x.method);
     const h = (2 * Math.PI) / T;
     const K = chooseTerms(tmax, h, m, n);
     if (K * n > MAX_POINTWISE_WORK * 4 && m === "gil-pelaez") return null;

@@ -18,13 +18,13 @@ import type { TailTerm } from "../types";
 import type { LawShape } from "./range";
 import { RICHARDSON_ESTIMATE_NOTE, richardsonAmplification, richardsonExponents, richardsonExponentsMulti, richardsonRowArrays } from "./richardson";
 import {
-  MAX_FFT,
   MAX_LEVELS,
   MAX_POINTWISE_WORK,
   addKernels,
   chooseTerms,
   evaluate,
   gridLayout,
+  levelLayout,
   maxDiff,
   nPoints,
   requestPoints,
@@ -127,19 +127,7 @@ export function heavyPath(
   let derived: { cdf: Float64Array; sf: Float64Array; pdf: Float64Array | null; errC: number; errP: number } | null = null;
   for (let lev = 0; lev < MAX_LEVELS; lev++) {
     checkDeadline("refine");
-    const T = T0 * 2 ** lev;
-    const a = anchor === "left" ? a0 : anchor === "right" ? a0 + T0 - T : centerX - T / 2;
-    let layout: Layout | null = null;
-    let m = method;
-    if (layout0 && req.kind === "grid") {
-      const N = layout0.N * 2 ** lev;
-      const shift = Math.round((layout0.x0 - a) / req.dx);
-      layout = { N, x0: layout0.x0 - shift * req.dx, offset: layout0.offset + shift };
-      if (N > MAX_FFT) {
-        m = "gil-pelaez";
-        layout = null;
-      }
-    }
+    const { T, a, layout, m } = levelLayout(lev, T0, a0, anchor, centerX, layout0, req, method);
     const h = (2 * Math.PI) / T;
     const K = chooseTerms(tmax, h, m, n);
     if (lev > 0 && K * n > MAX_POINTWISE_WORK * 4 && m === "gil-pelaez") break;

@@ -216,6 +216,37 @@ export interface Layout {
   offset: number;
 }
 
+/**
+ * The heavy route's level lev: the period T0 2^lev, its window's left end a (anchored at the left, at the right, or centred)
+ * and, for a grid request on the FFT, the first level's layout doubled and shifted by whole grid steps to that window (the
+ * Gil-Pelaez sums instead where the doubled transform would pass MAX_FFT).
+ */
+export function levelLayout(
+  lev: number,
+  T0: number,
+  a0: number,
+  anchor: "left" | "right" | "center",
+  centerX: number,
+  layout0: Layout | null,
+  req: Request,
+  method: "fft" | "gil-pelaez",
+): { T: number; a: number; layout: Layout | null; m: "fft" | "gil-pelaez" } {
+  const T = T0 * 2 ** lev;
+  const a = anchor === "left" ? a0 : anchor === "right" ? a0 + T0 - T : centerX - T / 2;
+  let layout: Layout | null = null;
+  let m = method;
+  if (layout0 && req.kind === "grid") {
+    const N = layout0.N * 2 ** lev;
+    const shift = Math.round((layout0.x0 - a) / req.dx);
+    layout = { N, x0: layout0.x0 - shift * req.dx, offset: layout0.offset + shift };
+    if (N > MAX_FFT) {
+      m = "gil-pelaez";
+      layout = null;
+    }
+  }
+  return { T, a, layout, m };
+}
+
 /** FFT layout holding [a, b) and the grid; the slack of rounding N up to a power of two goes to the open sides. */
 export function gridLayout(
   req: { from: number; dx: number; count: number },
