@@ -17,6 +17,9 @@ export interface CfValues {
 export const CF_ARG_NOTE =
   "no error bound where the model rounds scaled frequencies inside a term without a derived slope bound (a stable law with alpha <= 1, or a compound or layer of a claim without a variance): those values are null in `error`";
 
+export const CF_DECLARED_NOTE =
+  "no error bound where the model declares no finite error for its CF values (a compound whose count has no mean over a numerical claim law): those values are null in `error`";
+
 /**
  * phi(t) = exp(L(t)) from the model's log-CF, with |phi~ - phi| <= |phi| (e_L + e_decl) + a + min(S |t|, A(|t|)):
  * e_L the rounding of L, exp, cos and sin (cfRelError: ulps of the tree relative to 1 + |L|, plus the model's extra
@@ -32,8 +35,9 @@ export function cfValues(model: CompiledModel, t: Float64Array): CfValues {
   model.logCf(t, re, im);
   const ulps = cfUlps(model);
   const extra = model.logCfExtraError;
-  const dRel = model.cfRelError !== undefined && model.cfRelError >= 0 ? model.cfRelError : 0;
-  const abs = model.cfAbsError !== undefined && model.cfAbsError >= 0 ? model.cfAbsError : model.cfAbsError === undefined ? 0 : Infinity;
+  // a declaration with no finite bound (NaN, Infinity) is not read as 0: it leaves its values without a bound
+  const dRel = model.cfRelError ?? 0;
+  const abs = model.cfAbsError ?? 0;
   const S0 = model.cfArgSlope ?? 0;
   const S = S0 * (1 + 2 * EPS);
   const argAt = model.cfArgErrAt;
@@ -59,5 +63,7 @@ export function cfValues(model: CompiledModel, t: Float64Array): CfValues {
     const e = (m * rel + abs + arg + (m === 0 ? 1e-322 : 0)) * (1 + 4 * EPS);
     error[k] = Number.isNaN(lr) || Number.isNaN(li) ? NaN : e;
   }
-  return { re, im, error, notes: undone ? [CF_ARG_NOTE] : [] };
+  const notes = undone ? [CF_ARG_NOTE] : [];
+  if (!(Number.isFinite(dRel) && Number.isFinite(abs))) notes.push(CF_DECLARED_NOTE);
+  return { re, im, error, notes };
 }

@@ -3,7 +3,7 @@
 import { describe, expect, it } from "vitest";
 import { cfValues } from "@/lib/cf/cf-values";
 import { compile } from "@/lib/cf/compile";
-import type { Model } from "@/lib/cf/types";
+import type { CompiledModel, Model } from "@/lib/cf/types";
 import grid from "../fixtures/cf-reference/numeric-cf-grid.json";
 
 type Exact = (t: number) => [number, number];
@@ -73,5 +73,17 @@ describe("CF values whose scaled frequencies carry no derived bound", () => {
     expect(v.error[0]).toBeGreaterThan(0);
     expect(Number.isNaN(v.error[1])).toBe(true);
     expect(v.notes.join(" ")).toMatch(/no error bound/);
+  });
+});
+
+describe("CF values of a model that declares no finite CF error", () => {
+  it("answers null bounds and says why, not a bound that reads the declaration as 0 (common practice: an unbounded error is no bound)", () => {
+    const m = compile({ family: "lognormal", mu: 0, sigma: 1 } as Model);
+    for (const bad of [{ cfRelError: NaN }, { cfAbsError: Infinity }]) {
+      const v = cfValues({ ...m, ...bad } as CompiledModel, Float64Array.from([0.5, 2]));
+      for (const e of v.error) expect(Number.isFinite(e)).toBe(false);
+      expect(v.notes.join(" ")).toMatch(/declares no finite error/);
+    }
+    expect(cfValues(m, Float64Array.from([0.5])).notes).toEqual([]);
   });
 });
