@@ -80,23 +80,13 @@ export function compoundRemainderBound(inp: CompoundRemainderInput): { bound: (b
   // beta = 0 bounds every damping up to there, and one evaluation per frequency serves every probe of a plan (the probes of
   // all dampings share their frequencies)
   const dMax = Math.max(...kernels.map((k) => EPS * Math.abs(k.at)), 0);
-  const cache = new Map<number, number>();
-  const bound = (beta: number, t: number) => {
-    if (!(beta >= 0 && beta * dMax <= 0.5)) return at(beta, t);
-    let v = cache.get(t);
-    if (v === undefined) {
-      if (cache.size > 4096) cache.clear();
-      cache.set(t, (v = at(0, t)));
-    }
-    return v;
-  };
+  const bound = atZeroDamping(at, dMax);
   // claims whose expansion starts at s^-1 (pareto, lomax): the bound's 1 / sigma part as the transform of a function of
   // bounded variation, the rest falling faster (./compound-remainder-terms.ts jumpSplit); every order splits the same part
   // of the remainder (its s^-1 coefficient), so the least fast bound and the least D1 hold together
   const splits = () => built().map((f) => f.jump);
   // the fast part's pieces are the bound's, each non-increasing in beta as above: its value at beta = 0 serves every
   // damping up to beta d = 1/2, once per frequency (a plan's probes share their frequencies)
-  const fastCache = new Map<number, number>();
   const fastAt = (beta: number, t: number) => {
     const sigma = Math.hypot(beta, t);
     if (!(sigma >= 2 * r)) return Infinity;
@@ -110,15 +100,7 @@ export function compoundRemainderBound(inp: CompoundRemainderInput): { bound: (b
       const js = splits();
       return js.length > 0 && js.every((j) => j !== null) ? Math.min(...js.map((j) => j!.decay)) : NaN;
     },
-    fast(beta, t) {
-      if (!(beta >= 0 && beta * dMax <= 0.5)) return fastAt(beta, t);
-      let v = fastCache.get(t);
-      if (v === undefined) {
-        if (fastCache.size > 4096) fastCache.clear();
-        fastCache.set(t, (v = fastAt(0, t)));
-      }
-      return v;
-    },
+    fast: atZeroDamping(fastAt, dMax),
     tv() {
       const js = splits();
       if (!(js.length > 0 && js.every((j) => j !== null))) return Infinity;
@@ -154,4 +136,22 @@ export function endpointKernelsRemainder(N: Node, rem: EndpointRemainder, kernel
   // a severity with so many terms below KERNEL_ORDER (weibull shape below 0.28) that even order 4 passes the work limit: none
   if ((keptTerms(rem.series) * (nMax - 1)) ** 2 > MAX_SERIES_WORK) return null;
   return compoundRemainderBound({ rem, pn, pErr, kernels, ...(cgf ? { cgf } : {}), relErr: N.cfRelError ?? 0, absErr: N.cfAbsError ?? 0 });
+}
+
+/**
+ * A bound non-increasing in the damping beta, taken at beta = 0 for every beta with beta dMax <= 1/2 (the kernels' phases
+ * stay within their allowance there) and kept per frequency (a plan's probes of all dampings share their frequencies;
+ * the store is emptied past 4096 entries); other beta evaluate afresh.
+ */
+function atZeroDamping(at: (beta: number, t: number) => number, dMax: number): (beta: number, t: number) => number {
+  const cache = new Map<number, number>();
+  return (beta, t) => {
+    if (!(beta >= 0 && beta * dMax <= 0.5)) return at(beta, t);
+    let v = cache.get(t);
+    if (v === undefined) {
+      if (cache.size > 4096) cache.clear();
+      cache.set(t, (v = at(0, t)));
+    }
+    return v;
+  };
 }
