@@ -11,6 +11,7 @@
  * Over the panel int |f - p| <= (the same factor) h int_{-1}^{1} |prod (x - xi_k)| dx, and int |P_M| <= (2 int P_M^2)^(1/2) =
  * 2 / sqrt(2M + 1) (Cauchy-Schwarz; A&S 22.2.10), the nodes' move adding 2 ((2 + e)^M - 2^M).
  */
+import { binom, dyadic } from "./gl-enclosure";
 
 /** 1 / k_M for the M-node rule: 2^M M!^2 / (2M)! */
 function invLead(M: number): number {
@@ -61,17 +62,6 @@ export function panelRemainder(logK: (m: number, R: number) => number, m: number
   return { sup: best, l1, slope, fmax };
 }
 
-/** the double x as m / 2^D exactly (m, D BigInt) */
-function dyadic(x: number): { m: bigint; D: number } {
-  let D = 0;
-  let y = x;
-  while (!Number.isInteger(y)) {
-    y *= 2;
-    D++;
-  }
-  return { m: BigInt(y), D };
-}
-
 /** num / 2^E rounded up (num >= 0) */
 function upper(num: bigint, E: number): number {
   const sh = Math.max(0, E - 1000);
@@ -84,21 +74,19 @@ function upper(num: bigint, E: number): number {
  * (-1)^k C(n, k) C(2n - 2k, n) z^{n - 2k} (A&S 22.3.8) in integers, against the table's own dyadic value.
  */
 export function legendreTableError(x: Float64Array, table: Float64Array, M: number): Float64Array {
-  const binom = (n: number, k: number) => {
-    let r = 1n;
-    for (let j = 1; j <= k; j++) r = (r * BigInt(n - k + j)) / BigInt(j);
-    return r;
-  };
   const err = new Float64Array(M);
   for (let n = 0; n < M; n++) {
     const c: bigint[] = new Array(n + 1).fill(0n);
     for (let k = 0; 2 * k <= n; k++) c[n - 2 * k] = (k % 2 ? -1n : 1n) * binom(n, k) * binom(2 * n - 2 * k, n);
     for (let k = 0; k < M; k++) {
-      const { m, D } = dyadic(x[k]);
+      const xk = dyadic(x[k]);
+      const m = xk.m;
+      const D = Number(xk.d);
       // S = sum_j c_j m^j 2^{D (n - j)} = 2^{n + D n} P_n(x)
       let S = 0n;
       for (let j = n; j >= 0; j--) S = S * m + c[j] * (1n << BigInt(D * (n - j)));
-      const t = dyadic(table[n * M + k]);
+      const tk = dyadic(table[n * M + k]);
+      const t = { m: tk.m, D: Number(tk.d) };
       const E = n + D * n;
       let diff = t.m * (1n << BigInt(E)) - S * (1n << BigInt(t.D));
       if (diff < 0n) diff = -diff;

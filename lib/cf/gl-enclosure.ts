@@ -25,7 +25,7 @@ const CACHE = new Map<number, GlEnclosure>();
 const U = Number.EPSILON / 2;
 
 /** a double as M / 2^D exactly (M, D BigInt, D >= 0), for finite x with |x| < 2^53 */
-function dyadic(x: number): { m: bigint; d: bigint } {
+export function dyadic(x: number): { m: bigint; d: bigint } {
   let d = 0n;
   let y = x;
   while (!Number.isInteger(y)) {
@@ -35,7 +35,8 @@ function dyadic(x: number): { m: bigint; d: bigint } {
   return { m: BigInt(y), d };
 }
 
-function binom(n: number, k: number): bigint {
+/** the binomial coefficient C(n, k) exactly */
+export function binom(n: number, k: number): bigint {
   let r = 1n;
   for (let j = 1; j <= k; j++) r = (r * BigInt(n - k + j)) / BigInt(j);
   return r;
