@@ -24,7 +24,7 @@ export const METHOD_MEANINGS = {
     "a mixture (possibly scaled or shifted) answered from its components, each by its own route (the notes name them); values and bounds are the weighted sums",
   inversion: "the measures from the law's cdf and quantiles as /density and /quantiles answer them (their method in the notes)",
   "discretised-bounds":
-    "a compound of per-claim layers bracketed between the compounds of the claims rounded down and up; each value is the middle of the bracket, its error half the width",
+    "a compound of per-claim layers with method discretise, bracketed between the compounds of the claims rounded down and up; each value is the middle of the bracket, its error half the width",
 } as const;
 
 export type MethodName = keyof typeof METHOD_MEANINGS;

@@ -94,8 +94,7 @@ function tableBackend(c: CompiledModel, origin: number, step: number): Backend |
       };
     },
     leftIntegral(us) {
-      return us.map((u) => {
-        if (u <= lo) return { value: 0, error: 0 };
+      const sum = (u: number) => {
         let v = 0;
         let abs = 0;
         const top = idx(u);
@@ -105,6 +104,22 @@ function tableBackend(c: CompiledModel, origin: number, step: number): Backend |
           abs += Math.abs(term);
         }
         return { value: v, error: (u - lo) * eps + 4 * EPS * (abs + Math.abs(u) * (top + 1)) };
+      };
+      // past the table's last point the sum's bound grows like (u - lo) eps; with the mean m there,
+      // E[(u - X)+] = u - m + E[(X - u)+] and 0 <= E[(X - u)+] <= E[(X - x_end)+] = m - x_end + int_lo^x_end F
+      const m = meanOf(c);
+      const xEnd = xs[n - 1];
+      let cap: number | null = null;
+      return us.map((u) => {
+        if (u <= lo) return { value: 0, error: 0 };
+        const direct = sum(u);
+        if (m === null || !(u > xEnd)) return direct;
+        if (cap === null) {
+          const e = sum(xEnd);
+          cap = Math.max(0, m - xEnd + e.value) + e.error + 4 * EPS * (Math.abs(m) + Math.abs(xEnd));
+        }
+        const viaMean = { value: u - m + cap / 2, error: cap / 2 + 4 * EPS * (Math.abs(u) + Math.abs(m) + cap) };
+        return viaMean.error < direct.error ? viaMean : direct;
       });
     },
   };
@@ -165,10 +180,19 @@ export function excess(c: CompiledModel, be: Backend, ds: number[]): { value: nu
     const m = c.cumulants(1)[0] as number;
     return ds.map((d, i) => ({ value: Math.max(0, m - d + left[i].value), error: left[i].error + 4 * EPS * (Math.abs(m) + Math.abs(d)) }));
   }
-  if (!left) {
-    const g = gridSide(c, ds, "upper");
-    if (g) return g;
-  }
+  const viaEs = shortfallExcess(c, be, ds, mean);
+  if (left) return viaEs;
+  // the grid's bracket needs no smoothness but is coarse (h times the drop of S); the shortfall route carries the ES
+  // bound: each point takes the smaller of the two bounds, both of which hold
+  // bound (the grid only where the shortfall's bound is above 1e-8 of the value: it costs a 2^15-point cdf grid)
+  const need = ds.flatMap((_, i) => (viaEs[i].error <= 1e-8 * (1 + Math.abs(viaEs[i].value)) ? [] : [i]));
+  const g = need.length ? gridSide(c, need.map((i) => ds[i]), "upper") : null;
+  if (g) need.forEach((i, j) => g[j].error < viaEs[i].error && (viaEs[i] = g[j]));
+  return viaEs;
+}
+
+/** E[(X - d)+] = S(d) (ES_p - d) with p = F(d), the engine's quantile and expected shortfall there (see excess) */
+function shortfallExcess(c: CompiledModel, be: Backend, ds: number[], mean: number | null): { value: number; error: number }[] {
   const out: { value: number; error: number }[] = new Array(ds.length);
   const inner: number[] = [];
   ds.forEach((d, i) => {
@@ -201,57 +225,82 @@ export function excess(c: CompiledModel, be: Backend, ds: number[]): { value: nu
 }
 
 /**
+ * The law's mean mu, its standard deviation and E[(X - mu - r)+] <= E|X - mu|^k / r^(k-1) (and the same for the lower
+ * tail) for even k below the moment index, the central moments from the cumulants (a Markov-type bound, common practice);
+ * `reach` is the distance from mu where that bound is negligible next to a cdf error (1e-13 sd). null without a variance.
+ */
+function farEnds(c: CompiledModel): { mu: number; reach: number; tailBound: (dist: number) => number } | null {
+  if (!(c.momentIndex > 2)) return null;
+  const kappa = c.cumulants(16);
+  const mu = kappa[0];
+  const sd = kappa[1] !== null ? Math.sqrt(Math.max(kappa[1], 0)) : null;
+  if (mu === null || sd === null || !(sd > 0)) return null;
+  // central moments of X from its cumulants (Kendall & Stuart vol. 1, ch. 3)
+  const k0 = kappa.slice();
+  k0[0] = 0;
+  const m: number[] = [1];
+  for (let j = 1; j <= 16; j++) {
+    let acc = 0;
+    let cc = 1;
+    let ok = true;
+    for (let k = 1; k <= j; k++) {
+      const kk = k0[k - 1];
+      if (kk === null || !(j < c.momentIndex)) {
+        ok = false;
+        break;
+      }
+      acc += cc * kk * m[j - k];
+      cc = (cc * (j - k)) / k;
+    }
+    m.push(ok ? acc : NaN);
+  }
+  const tailBound = (dist: number) => {
+    let b = Infinity;
+    for (let k = 2; k <= 16; k += 2) if (Number.isFinite(m[k]) && m[k] >= 0) b = Math.min(b, m[k] / dist ** (k - 1));
+    return b;
+  };
+  let s = 20;
+  while (s < 1e4 && tailBound(s * sd) > 1e-13 * sd) s *= 1.5;
+  return { mu, reach: s * sd, tailBound };
+}
+
+/**
  * E[(X - d)+] (side "upper") or E[(u - X)+] (side "lower") by integrating the inverted sf (or cdf) over a fine grid:
  * on each cell the monotone function lies between its end values, so |trapezoid - integral| <= h |G(a) - G(b)| / 2
  * summed (exact bracket, no smoothness assumed); plus (length) x (cdf error bound); plus the tail beyond the grid,
  * E[(X - R)+] <= E|X - mu|^k / (R - mu)^(k-1) for even k below the moment index (a Markov-type bound, common
- * practice), or nothing when the support ends on that side. Returns null when the side is unbounded and the variance
- * does not exist (the engine's shortfall route is used then).
+ * practice), or nothing when the support ends on that side. Points on the other side of the law's mass (past its
+ * support, or past mu -/+ reach of farEnds) take the mean identity instead, so a far retention or policy limit does not
+ * stretch the grid. Returns null when the side is unbounded and the variance does not exist (the engine's shortfall
+ * route is used then).
  */
 export function gridSide(c: CompiledModel, pts: number[], side: "upper" | "lower"): { value: number; error: number }[] | null {
   const dir = side === "upper" ? 1 : -1;
   const end = side === "upper" ? c.support[1] : c.support[0];
+  const far = farEnds(c);
   let R = end;
   let tail = 0;
   if (!Number.isFinite(end)) {
-    if (!(c.momentIndex > 2)) return null;
-    const kappa = c.cumulants(16);
-    const mu = kappa[0];
-    const sd = kappa[1] !== null ? Math.sqrt(Math.max(kappa[1], 0)) : null;
-    if (mu === null || sd === null || !(sd > 0)) return null;
-    // central moments of X from its cumulants (Kendall & Stuart vol. 1, ch. 3)
-    const k0 = kappa.slice();
-    k0[0] = 0;
-    const m: number[] = [1];
-    for (let j = 1; j <= 16; j++) {
-      let acc = 0;
-      let cc = 1;
-      let ok = true;
-      for (let k = 1; k <= j; k++) {
-        const kk = k0[k - 1];
-        if (kk === null || !(j < c.momentIndex)) {
-          ok = false;
-          break;
-        }
-        acc += cc * kk * m[j - k];
-        cc = (cc * (j - k)) / k;
-      }
-      m.push(ok ? acc : NaN);
-    }
-    const tailBound = (dist: number) => {
-      let b = Infinity;
-      for (let k = 2; k <= 16; k += 2) if (Number.isFinite(m[k]) && m[k] >= 0) b = Math.min(b, m[k] / dist ** (k - 1));
-      return b;
-    };
-    // the far end: where the tail bound is negligible next to the cdf error
-    let s = 20;
-    while (s < 1e4 && tailBound(s * sd) > 1e-13 * sd) s *= 1.5;
-    R = mu + dir * s * sd;
-    tail = tailBound(s * sd);
+    if (!far) return null;
+    R = far.mu + dir * far.reach;
+    tail = far.tailBound(far.reach);
   }
-  const inner = pts.map((d) => (side === "upper" ? d < R : d > R));
+  // points on the other side of the law's mass: E[(X - d)+] = m - d + E[(d - X)+] (upper), E[(u - X)+] = u - m + E[(X - u)+]
+  // (lower), the last term 0 past a finite support end, else within the Markov-type bound; no grid needed for them
+  const m = meanOf(c);
+  const otherEnd = side === "upper" ? c.support[0] : c.support[1];
+  const beyond = (d: number): { value: number; error: number } | null => {
+    if (m === null) return null;
+    let t: number;
+    if (side === "upper" ? d <= otherEnd : d >= otherEnd) t = 0;
+    else if (far && -dir * (d - far.mu) >= far.reach) t = far.tailBound(Math.abs(d - far.mu));
+    else return null;
+    return { value: dir * (m - d) + t / 2, error: t / 2 + 4 * EPS * (Math.abs(m) + Math.abs(d) + t) };
+  };
+  const outside = pts.map(beyond);
+  const inner = pts.map((d, i) => outside[i] === null && (side === "upper" ? d < R : d > R));
   const active = pts.filter((_, i) => inner[i]);
-  if (active.length === 0) return pts.map(() => ({ value: 0, error: tail }));
+  if (active.length === 0) return pts.map((_, i) => outside[i] ?? { value: 0, error: tail });
   const start = side === "upper" ? Math.min(...active) : Math.max(...active);
   const count = 1 << 15;
   const from = Math.min(start, R);
@@ -267,6 +316,7 @@ export function gridSide(c: CompiledModel, pts: number[], side: "upper" | "lower
   else for (let i = 1; i <= count; i++) T[i] = T[i - 1] + (h * (G[i] + G[i - 1])) / 2;
   let j = 0;
   return pts.map((d, i) => {
+    if (outside[i]) return outside[i]!;
     if (!inner[i]) return { value: 0, error: tail };
     const Gd = side === "upper" ? at.sf[j] : at.cdf[j];
     j++;

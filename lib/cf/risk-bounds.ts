@@ -106,13 +106,24 @@ export function boundedMeasures(c: CompiledModel, B: CompoundBracket, req: RiskR
   out.diagnostics.cdfError = half + e;
   const quant = (p: number) => mid(D.quantile(p - e), U.quantile(p + e));
   const hasMean = B.meanLow !== null && B.meanHigh !== null && (c.tails.right > 1 || Number.isFinite(c.support[1]));
-  // E[(S - d)+] between E[(S_D - d)+] and E[(S_U - d)+], each E[S] - d + int_0^d F
-  const stopLoss = (d: number) => {
-    if (!hasMean) return { value: null, error: null };
+  // E[(S - d)+] between E[(S_D - d)+] and E[(S_U - d)+], each E[S] - d + int_0^d F; the integral's slack grows like
+  // d e, so past the tables' last point x_end the upper end is taken at x_end instead (E[(S - d)+] falls with d)
+  const xEnd = (Math.min(B.down.length, B.up.length) - 1) * B.step;
+  const slBracket = (d: number) => {
     const x = Math.max(d, 0);
     const lo = B.meanLow! - d + D.left(x) - x * e - rnd(B.meanLow! + Math.abs(d));
     const hi = B.meanHigh! - d + U.left(x) + x * e + rnd(B.meanHigh! + Math.abs(d));
-    return mid(Math.max(0, lo), hi);
+    return { lo: Math.max(0, lo), hi };
+  };
+  const slEnd = hasMean ? slBracket(xEnd).hi : Infinity;
+  const slRange = (d: number) => {
+    const r = slBracket(d);
+    return d > xEnd ? { lo: r.lo, hi: Math.min(r.hi, slEnd) } : r;
+  };
+  const stopLoss = (d: number) => {
+    if (!hasMean) return { value: null, error: null };
+    const r = slRange(d);
+    return mid(r.lo, r.hi);
   };
   if (req.var) out.var = mv(req.var.p.map(quant));
   if (req.returnPeriod) out.returnPeriod = mv(req.returnPeriod.map((T) => quant(1 - 1 / T)));
@@ -157,7 +168,14 @@ export function boundedMeasures(c: CompiledModel, B: CompoundBracket, req: RiskR
       req.limitedMean.map((u) => {
         const x = Math.max(u, 0);
         if (u <= 0) return { value: u, error: 0 };
-        return mid(x - D.left(x) - x * e - rnd(x), x - U.left(x) + x * e + rnd(x));
+        let lo = x - D.left(x) - x * e - rnd(x);
+        let hi = x - U.left(x) + x * e + rnd(x);
+        if (hasMean && u > xEnd) {
+          // E[min(S, u)] = E[S] - E[(S - u)+], with E[(S - u)+] in [0, E[(S - x_end)+]]: a second bracket, intersected
+          lo = Math.max(lo, B.meanLow! - slEnd - rnd(B.meanLow!));
+          hi = Math.min(hi, B.meanHigh! + rnd(B.meanHigh!));
+        }
+        return mid(lo, hi);
       }),
     );
   if (req.layerMean)

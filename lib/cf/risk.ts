@@ -53,9 +53,9 @@ const EPS = Number.EPSILON;
 
 /** All requested measures of `model` (validated notation). Measures that do not exist come back null with a note. */
 export function riskMeasures(model: Model, req: RiskRequest, optionsIn: CompileOptions = {}): RiskResult {
-  // layered compounds default to the bracket here: it holds means, stop-loss and layer means exactly, where the
-  // continuous route integrates its cdf over the whole range asked (slow and loose for retentions far out)
-  const options: CompileOptions = { layeredCompounds: "bracket", ...optionsIn };
+  // layered compounds stay continuous as on /density and /quantiles (the same law on every endpoint); method
+  // "discretise" (an explicit discretise object) brackets them between the claims rounded down and up
+  const options: CompileOptions = optionsIn;
   const c = compile(model, options);
   const bounds = c.bounds?.();
   if (bounds) return boundedMeasures(c, bounds, req, []);
@@ -119,11 +119,27 @@ export function riskMeasures(model: Model, req: RiskRequest, optionsIn: CompileO
     } else out.stopLoss = mv(r);
   }
   if (req.limitedMean) {
-    const r = lowerExcess(req.limitedMean);
-    if (!r) {
-      out.limitedMean = { value: req.limitedMean.map(() => null), error: req.limitedMean.map(() => null) };
+    const us = req.limitedMean;
+    // with a mean, E[min(S, u)] = E[S] - E[(S - u)+]; else (or where that bound is above 1e-8 of the value)
+    // u - E[(u - S)+]; each point keeps the smaller of the bounds, all of which hold
+    const up = hasRightMean && hasLeftMean ? upperExcess(us) : null;
+    const m = up ? (c.cumulants(1)[0] as number) : 0;
+    const vals: { value: number; error: number }[] = us.map((_, i) =>
+      up ? { value: m - up[i].value, error: up[i].error + 4 * EPS * (Math.abs(m) + Math.abs(up[i].value)) } : { value: NaN, error: Infinity },
+    );
+    const need = us.flatMap((_, i) => (vals[i].error <= 1e-8 * (1 + Math.abs(vals[i].value)) ? [] : [i]));
+    const r = need.length ? lowerExcess(need.map((i) => us[i])) : [];
+    if (!r && !up) {
+      out.limitedMean = { value: us.map(() => null), error: us.map(() => null) };
       notes.push(`limitedMean: E[min(S, u)] is minus infinity: the left tail decays like |x|^-${c.tails.left}.`);
-    } else out.limitedMean = mv(req.limitedMean.map((u, i) => ({ value: u - r[i].value, error: r[i].error + 4 * EPS * Math.abs(u) })));
+    } else {
+      if (r)
+        need.forEach((i, j) => {
+          const l = { value: us[i] - r[j].value, error: r[j].error + 4 * EPS * Math.abs(us[i]) };
+          if (l.error < vals[i].error) vals[i] = l;
+        });
+      out.limitedMean = mv(vals);
+    }
   }
   if (req.layerMean) {
     const L = req.layerMean;

@@ -38,12 +38,12 @@ type Case = {
   layerMean: { deductible: number; limit: number; value: number }[];
 };
 
-// risk measures bracket layered compounds by default (claims rounded down and up onto a lattice); the continuous route
-// (atoms at multiples of the limit listed, the layer CF by the Filon-type rule, the density's jumps taken out as
-// kernels), the default of /density and /quantiles, is checked here on the same references
+// risk measures keep layered compounds continuous by default (atoms at multiples of the limit listed, the layer CF by
+// the Filon-type rule, the density's jumps taken out as kernels), as /density and /quantiles do; the bracket (claims
+// rounded down and up onto a lattice, method "discretise") is checked here on the same references
 for (const [route, options, method] of [
-  ["bracket (default)", {}, "discretised-bounds"],
-  ["continuous", { layeredCompounds: "continuous" }, "inversion"],
+  ["continuous (default)", {}, "inversion"],
+  ["bracket", { layeredCompounds: "bracket" }, "discretised-bounds"],
 ] as const)
 describe(`compound Poisson of layered exponential claims (closed form), ${route}`, () => {
   for (const c of ref.exponential as Case[]) {
@@ -80,14 +80,15 @@ describe("compound Poisson of layered lognormal claims (reference bracket on a 1
     if (gap > 4e-16 * Math.abs(mid)) expect.fail(`${what}: engine [${value! - error!}, ${value! + error!}] misses the reference [${ref.lo}, ${ref.hi}] by ${gap}`);
     if (!(error! <= useful)) expect.fail(`${what}: bound ${error} above the useful ${useful}`);
   }
+  for (const [route, options] of [["continuous (default)", {}], ["bracket", { layeredCompounds: "bracket" }]] as const)
   for (const c of lg.lognormal as { model: unknown; var: (Rng & { p: number })[]; es: (Rng & { p: number })[]; stopLoss: (Rng & { d: number })[]; exceedance: (Rng & { x: number })[] }[]) {
-    it(`${JSON.stringify(c.model)}: VaR, ES, stop-loss and exceedance meet the reference bracket`, () => {
+    it(`${JSON.stringify(c.model)}, ${route}: VaR, ES, stop-loss and exceedance meet the reference bracket`, () => {
       const r = riskMeasures(validateModel(c.model), {
         var: { p: c.var.map((x) => x.p) },
         es: { p: c.es.map((x) => x.p) },
         stopLoss: c.stopLoss.map((x) => x.d),
         exceedance: c.exceedance.map((x) => x.x),
-      });
+      }, options);
       // useful: VaR and ES within 0.5% of the value, stop-loss within 5% of the value or 1e-3 absolute, probabilities within 5e-3
       c.var.forEach((x, i) => meets(r.var!.value[i], r.var!.error[i], x, `var p=${x.p}`, 0.005 * x.hi));
       c.es.forEach((x, i) => meets(r.es!.value[i], r.es!.error[i], x, `es p=${x.p}`, 0.005 * x.hi));
@@ -125,14 +126,17 @@ describe("the claim laws a per-claim layer accepts", () => {
     expect([...new Set(accepted.map((m) => m.family as string))].sort()).toEqual([...flagged].sort());
   });
   for (const of of accepted)
-    it(`${JSON.stringify(of)}: layered, its mean is between 0 and the limit and a compound of it is bracketed`, () => {
+    it(`${JSON.stringify(of)}: layered, its mean is between 0 and the limit, continuous by default and bracketed on request`, () => {
       const layer = { layer: { deductible: 0.5, limit: 2 }, of };
-      const r = riskMeasures(validateModel({ compound: { count: { family: "poisson", lambda: 3 }, each: layer } }), { limitedMean: [1e6] });
-      expect(r.diagnostics.method).toBe("discretised-bounds");
+      const model = validateModel({ compound: { count: { family: "poisson", lambda: 3 }, each: layer } });
+      for (const [options, method] of [[{}, "inversion"], [{ layeredCompounds: "bracket" }, "discretised-bounds"]] as const) {
+      const r = riskMeasures(model, { limitedMean: [1e6] }, options);
+      expect(r.diagnostics.method).toBe(method);
       // E[S] = 3 E[Y] with 0 <= E[Y] <= 2 (common practice: the layer caps each claim)
       expect(r.limitedMean!.value[0]!).toBeGreaterThanOrEqual(0);
       expect(r.limitedMean!.value[0]!).toBeLessThanOrEqual(6 + r.limitedMean!.error[0]!);
       expect(r.limitedMean!.error[0]!).toBeLessThan(0.05);
+      }
     });
   for (const family of ["cauchy", "laplace", "student_t"]) {
     it(`${family}: refused with the list of accepted laws`, () => {

@@ -59,6 +59,34 @@ describe("compound Poisson with exponential claims (Erlang mixture, mpmath)", ()
   }
 });
 
+describe("a far policy limit or retention asked beside near ones (Erlang mixture fixture, closed-form mean)", () => {
+  // E[min(S, u)] = E[S] - E[(S - u)+] with E[S] = lambda / beta (common practice); past u = 1e6 the stop-loss is below
+  // e^(3 - 250000) by the Chernoff bound with the claims' MGF at beta / 2 (common practice), zero in doubles. The far
+  // points once stretched one integration grid over [0, 1e9] and left the near values with bounds of 54 on a mean of 6.
+  const c = ref.compoundPoissonExponential[0];
+  const mean = c.model.compound.count.lambda / c.model.compound.each.rate;
+  for (const [route, options] of [["continuous", {}], ["discretised", { discretise: {} }]] as const)
+    it(`${JSON.stringify(c.model)}, ${route}: limited means and stop-loss at 1e6 and 1e9 keep the near ones' bounds small`, () => {
+      const ds = c.stopLoss.map((x: { d: number }) => x.d);
+      const r = riskMeasures(validateModel(c.model), { stopLoss: [...ds, 1e6, 1e9], limitedMean: [...ds, 1e6, 1e9] }, options);
+      const useful = route === "continuous" ? 1e-9 : 1e-3;
+      // within the bound (plus the fixture's rounding), and the bound small next to the mean
+      const check = (v: number | null, e: number | null, want: number, what: string, most: number) => {
+        covered(v, e, want, what, 1e-15 * Math.abs(want));
+        expect(e!, `${what}: bound ${e} above ${most}`).toBeLessThanOrEqual(most);
+      };
+      c.stopLoss.forEach((x: { d: number; value: number }, i: number) => {
+        check(r.stopLoss!.value[i], r.stopLoss!.error[i], x.value, `stopLoss ${route} d=${x.d}`, useful * mean);
+        check(r.limitedMean!.value[i], r.limitedMean!.error[i], mean - x.value, `limitedMean ${route} u=${x.d}`, useful * mean);
+      });
+      for (const k of [0, 1]) {
+        const i = ds.length + k;
+        check(r.stopLoss!.value[i], r.stopLoss!.error[i], 0, `stopLoss ${route} far`, 1e-9 * mean);
+        check(r.limitedMean!.value[i], r.limitedMean!.error[i], mean, `limitedMean ${route} far`, useful * mean);
+      }
+    });
+});
+
 describe("Irwin-Hall stacks: probability outside spec limits (exact fractions)", () => {
   for (const c of ref.irwinHall) {
     it(`${c.model.repeat} uniform parts, [${c.lsl}, ${c.usl}]: ${c.exact}`, () => {
