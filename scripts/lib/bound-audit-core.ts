@@ -19,8 +19,8 @@ export const TAIL = 1e-6;
 /** a reference read into a double is itself only known to about one rounding */
 export const DOUBLE = 2 ** -52;
 
-export type Quantity = "pdf" | "pmf" | "cdf" | "sf" | "quantile" | "ES" | "moment";
-export const QUANTITIES: Quantity[] = ["pdf", "pmf", "cdf", "sf", "quantile", "ES", "moment"];
+export type Quantity = "pdf" | "pmf" | "cdf" | "sf" | "quantile" | "ES" | "moment" | "stopLoss" | "limitedMean" | "layerMean";
+export const QUANTITIES: Quantity[] = ["pdf", "pmf", "cdf", "sf", "quantile", "ES", "moment", "stopLoss", "limitedMean", "layerMean"];
 
 export interface Sample {
   set: string;

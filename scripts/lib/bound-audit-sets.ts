@@ -1,4 +1,5 @@
 // The bound audit's fixture sets: each reads a reference fixture under tests/fixtures/ and pushes its samples.
+import { riskSet } from "./bound-audit-risk";
 import { compile } from "@/lib/cf/compile";
 import { moments } from "@/lib/cf/moments";
 import { quantiles } from "@/lib/cf/invert/quantile";
@@ -397,6 +398,7 @@ export const SETS: [string, () => void][] = [
   ["stable-sums", stableSums],
   ["reference-layered", layered],
   ["reference-risk", risk],
+  ["risk-measures", riskSet],
   ["layer-moments", layerMoments],
   ["lognormal-cumulants", lognormalCumulants],
 ];
