@@ -192,7 +192,7 @@ export function excess(c: CompiledModel, be: Backend, ds: number[]): { value: nu
 }
 
 /** E[(X - d)+] = S(d) (ES_p - d) with p = F(d), the engine's quantile and expected shortfall there (see excess) */
-function shortfallExcess(c: CompiledModel, be: Backend, ds: number[], mean: number | null): { value: number; error: number }[] {
+export function shortfallExcess(c: CompiledModel, be: Backend, ds: number[], mean: number | null): { value: number; error: number }[] {
   const out: { value: number; error: number }[] = new Array(ds.length);
   const inner: number[] = [];
   ds.forEach((d, i) => {
