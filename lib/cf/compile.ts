@@ -352,6 +352,7 @@ export function toCompiled(node: Node): CompiledModel {
     ...(node.continuousMajorant ? { continuousMajorant: node.continuousMajorant } : {}),
     logCfUlps: 8 * Math.max(1, node.nodes),
     ...(node.logCfErr ? { logCfExtraError: node.logCfErr } : {}),
+    ...(node.transformSeries?.length ? { transformSeries: node.transformSeries } : {}),
     ...(node.densityJumps?.length ? { densityJumps: node.densityJumps } : {}),
     ...(node.densityKinks?.length ? { densityKinks: node.densityKinks } : {}),
     ...(node.densityBends?.length ? { densityBends: node.densityBends } : {}),

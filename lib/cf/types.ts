@@ -153,6 +153,9 @@ export interface CompiledModel {
   /** a discretised compound of claims with their own cdf (per-claim layers): the compounds with every claim rounded
    *  down and rounded up onto the table's lattice, which bracket the law in the usual stochastic order */
   bounds?(): CompoundBracket | null;
+  /** the transform's expansion at the points where the density is not smooth (Node.transformSeries), where every term
+   *  of the tree gives it: the undamped routes fit their kernels at those points (../invert/continuous.ts maybeKernels) */
+  readonly transformSeries?: import("./damped-kernels").TransformSeries;
   /** points where the density of the continuous part jumps, with the sizes (the inversion takes them out as kernels) */
   readonly densityJumps?: readonly DensityJump[];
   /** points where the slope of that density jumps, f'(at+) - f'(at-) = size (taken out as shape-2 kernels beside the jumps) */

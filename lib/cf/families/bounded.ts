@@ -178,6 +178,17 @@ export function triangular(a: number, c: number, b: number): Node {
     nodes: 1,
     notes: [],
     dist: triangularDist(a, c, b),
+    // E e^{-sX} = 2 (e^{-s a} / (c - a) - e^{-s c} (b - a) / ((c - a)(b - c)) + e^{-s b} / (b - c)) / ((b - a) s^2) exactly: the
+    // density's three slope steps (the CF above at s = -i t); a mode at an end is a jump there instead (not listed)
+    ...(a < c && c < b
+      ? {
+          transformSeries: [
+            { at: a, series: new Map([[2, 2 / (w * h1)]]) },
+            { at: c, series: new Map([[2, -2 / (h1 * (b - c))]]) },
+            { at: b, series: new Map([[2, 2 / (w * (b - c))]]) },
+          ],
+        }
+      : {}),
     location: (a + b + c) / 3,
     scale: Math.sqrt((a * a + b * b + c * c - a * b - a * c - b * c) / 18),
     support: [a, b],

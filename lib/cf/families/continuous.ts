@@ -75,6 +75,11 @@ export function uniform(a: number, b: number): Node {
     location: c,
     scale: w / Math.sqrt(12),
     support: [a, b],
+    // E e^{-sX} = (e^{-s a} - e^{-s b}) / ((b - a) s) exactly: the density's two jumps (JKB vol. 2, ch. 26)
+    transformSeries: [
+      { at: a, series: new Map([[1, 1 / w]]) },
+      { at: b, series: new Map([[1, -1 / w]]) },
+    ],
     ...uniformLogRound(c, h),
   });
 }

@@ -192,6 +192,25 @@ export function maybeKernels(
   }
   const rate = 60 / Math.max(span, 1e-300);
   let best: { part: ContinuousPart; env: Envelope; cut: number; ks: EndpointKernels[] } | null = null;
+  // where the model's expansion names the density's non-smooth points (model.transformSeries: interior ones too, such as
+  // a uniform's upper end plus the paretos' starts, which the ends alone leave in), kernels at all of them from its first
+  // power (pareto(2.3) + pareto(2) + uniform(0, 1), cdf cut-off at 1e-10 / 16: 5.8e3 -> 42, density's 1.7e4 -> 64)
+  const sp = seriesPoints(part.model, shape.support);
+  if (sp) {
+    const r = 60 / Math.max(Math.min(...sp.pts.map((e) => win.b - e.at)), 1e-300);
+    for (const J of [8, 6, 4]) {
+      if (J * sp.pts.length > 24) continue;
+      for (const tBig of [100 / shape.spread, 300 / shape.spread]) {
+        const fit = fitEndpointKernels(part, sp.pts, J, tBig, r, sp.power);
+        if (!fit) continue;
+        const p2 = withKernels(part, fit.kernels);
+        const e2 = probeEnvelope(p2, shape.spread);
+        const c2 = cutoffFor(e2, wantPdf ? truncTarget : Infinity, truncTarget);
+        if (c2 < (best ? best.cut : c0 * 0.5)) best = { part: p2, env: e2, cut: c2, ks: fit.kernels };
+      }
+    }
+    if (best) candidates.length = 0;
+  }
   // leading exponent: 1 (jumps and kinks of the density) unless |phi| decays like a non-integer power t^{-k}
   // (density ~ (x - e)^{k-1} at the end, e.g. gamma shapes), measured on the last probed octave
   const d = env.decayClean;
@@ -214,9 +233,24 @@ export function maybeKernels(
   }
   if (!best) return { part, env };
   notes.push(
-    `density behaviour at ${best.ks.map((k) => k.at).join(", ")} handled by subtracting ${best.ks[0].b.length} gamma kernel(s) from shape ${best.ks[0].power} each (inverted in closed form)`,
+    `density behaviour at ${best.ks.map((k) => k.at).join(", ")} handled by subtracting ${best.ks[0].b.length} gamma kernel(s) from shape ${best.ks[0].power} each (inverted in closed form; the truncation bound of what they leave is read from its sampled transform, not derived between the samples)`,
   );
   return { part: best.part, env: best.env };
+}
+
+/**
+ * The points of the model's transform series (Node.transformSeries: E e^{-sX} ~ sum_blocks e^{-s at} sum_e c_e s^{-e}, exact
+ * for uniform and triangular terms, Watson's lemma for paretos, multiplied through sums) as kernel points on [at, inf), with
+ * the series' least power; only for laws unbounded above (every block a start or an interior point, the kernels' tails
+ * spent inside the window), without atoms (power 0), and where more than the lower end is listed (else the ends' fit).
+ */
+function seriesPoints(model: CompiledModel, support: readonly [number, number]): { pts: { at: number; side: 1 }[]; power: number } | null {
+  const ser = model.transformSeries;
+  if (!ser || Number.isFinite(support[1]) || ser.length < 2 || ser.length > 6) return null;
+  let power = Infinity;
+  for (const b of ser) for (const [e, c] of b.series) if (c !== 0) power = Math.min(power, e);
+  if (!(power > 0.5) || !Number.isFinite(power) || !ser.every((b) => Number.isFinite(b.at))) return null;
+  return { pts: ser.map((b) => ({ at: b.at, side: 1 as const })), power };
 }
 
 /**
