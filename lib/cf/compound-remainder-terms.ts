@@ -94,6 +94,8 @@ export interface CompoundRemainderInput {
   cgf?: (w: number) => number;
   relErr: number;
   absErr: number;
+  /** the order the kernels match the blocks to (compound.ts kernelsFor; default KERNEL_ORDER) */
+  order?: number;
 }
 
 /** the powers with equal exponents summed (one exp each when evaluated), largest exponent last */
@@ -115,8 +117,9 @@ export const sumPow = (ps: Power[], ls: number) => {
 };
 
 /**
- * sum_{m > M} (e)_m / m! x^m, x = r / sigma <= 1/2: term by term until the rest is below 1e-17 of the sum, then the rest
- * by a geometric series (the ratio (e + m) / (m + 1) x falls in m for e >= 1; for e < 1 it is below x)
+ * sum_{m > M} (e)_m / m! x^m, x = r / sigma <= 1/2: term by term until the rest's geometric bound is below 1e-6 of the
+ * sum, then the rest by that geometric series (the ratio (e + m) / (m + 1) x falls in m for e >= 1, so its value at m
+ * bounds every later one; for e < 1 every ratio is below x): an upper bound wherever it stops, within 1e-6 of the sum
  */
 export function binomRest(e: number, M: number, x: number): number {
   let term = 1;
@@ -126,7 +129,10 @@ export function binomRest(e: number, M: number, x: number): number {
     sum += term;
     const ratio = (e >= 1 ? (e + m) / (m + 1) : 1) * x;
     const next = term * ((e + m) / (m + 1)) * x;
-    if (next < 1e-17 * sum && ratio < 1) return (sum + next / (1 - ratio)) * (1 + 1e-12);
+    if (ratio < 1) {
+      const rest = next / (1 - ratio);
+      if (rest <= 1e-6 * sum) return (sum + rest) * (1 + 1e-12);
+    }
     term = next;
   }
   return Infinity;
@@ -245,28 +251,69 @@ export function ofOrder(inp: CompoundRemainderInput, L: number, Nb: number) {
   const matchedM = matchedPowers(series);
   const rhoHM = merged(rhoH);
   const jump = jumpSplit(inp, { J0, Nb, matchedM, rhoH, alphaP, blocks, rests });
+  // every block's terms past L together (each block's damping e^{-beta n a} <= 1 left out) and the kernels' rests as powers:
+  // a few exps per frequency instead of one per block's term and a series per kernel
+  const droppedAll = merged(blocks.flatMap((b) => b.dropped));
+  const restP = restPowers(rests);
   const bound = (beta: number, t: number, sigma: number, ls: number) => {
     const rho = rem.rho(beta, t, J0) + sumPow(rhoHM, ls);
     const alpha = sumPow(alphaP, ls);
     const m0 = Math.min(1, alpha + rho);
     const m = Math.exp(-beta * a) * m0;
-    let v = sumPow(matchedM, ls);
+    let v = sumPow(matchedM, ls) + sumPow(droppedAll, ls) + restAt(restP, ls);
     for (let n = 1; n <= Nb; n++) v += pErr(n) * Math.pow(m, n);
     for (const b of blocks) {
       const q = pn[b.n];
       const damp = Math.exp(-beta * b.n * a);
       v += q * damp * b.n * rho * Math.pow(Math.max(m0, alpha), b.n - 1);
-      v += damp * sumPow(b.dropped, ls);
       // sigma (alpha + rho)^n falls where n times the least exponent of its powers is at least 1
       if (b.atErr > 0) v += b.n * e0 >= 1 ? 2 * q * sigma * b.atErr * Math.exp(Math.max(beta * b.atErr, 0.5)) * Math.pow(alpha + rho, b.n) : Infinity;
     }
-    for (const k of rests) v += Math.exp(-beta * k.at) * kernelRest(k, sigma);
     return { v, m };
   };
   return { bound, jump };
 }
 
 export type Rest = { w: number; at: number; e: number; r: number; M: number };
+
+/**
+ * The kernels' binomial series past their kept terms, sum_k |w_k| sum_{m > M_k} (e_k)_m / m! x^{e_k + m}, x = r / sigma
+ * (the kernels' one rate r; each damping e^{-beta at} <= 1 left out), as plain powers of sigma / r and one geometric
+ * closing: the terms m = M_k + 1, ... while the ratio (e + m) / (m + 1) of the next to the current is above 3/2 as powers
+ * (`ps`), the rest from the first m* past them at most b_{m*} x^{e + m*} / (1 - q x) (`close`, to be divided by 1 - q x) with q
+ * the largest such ratio (e >= 1: (e + m) / (m + 1) falls in m, so its value at m* bounds every later one; e < 1: every
+ * ratio is below 1, q = 1). For sigma >= 2 r, q x <= 3/4. The binomial coefficients by their recurrence, 2 roundings a
+ * step, covered by (1 + 4 (m + 1) u).
+ */
+export function restPowers(rests: readonly Rest[]): { ps: Power[]; close: Power[]; q: number } {
+  const ps: Power[] = [];
+  const close: Power[] = [];
+  let q = 1;
+  for (const k of rests) {
+    // b_m = (e)_m / m!, from b_{M+1} on
+    let b = 1;
+    for (let i = 1; i <= k.M + 1; i++) b *= (k.e + i - 1) / i;
+    for (let m = k.M + 1; ; m++) {
+      if (m > k.M + 1) b *= (k.e + m - 1) / m;
+      const ratio = (k.e + m) / (m + 1);
+      const c = k.w * b * (1 + 4 * (m + 1) * EPS);
+      if (k.e < 1 || ratio <= 1.5) {
+        close.push([c, k.e + m]);
+        q = Math.max(q, k.e < 1 ? 1 : ratio);
+        break;
+      }
+      ps.push([c, k.e + m]);
+    }
+  }
+  return { ps: merged(ps), close: merged(close), q };
+}
+
+/** restPowers' bound at ls = log(sigma / r) (Infinity where q r / sigma >= 1) */
+export function restAt(rp: { ps: Power[]; close: Power[]; q: number }, ls: number): number {
+  const qx = rp.q * Math.exp(-ls);
+  if (!(qx < 1)) return Infinity;
+  return (sumPow(rp.ps, ls) + sumPow(rp.close, ls) / (1 - qx)) * (1 + 1e-12);
+}
 type Block = { n: number; dropped: Power[]; atErr: number };
 
 /**
@@ -315,6 +362,8 @@ function jumpSplit(
   ];
   const decay = Math.min(...exps);
   if (!(decay > 1)) return null;
+  const droppedAll = merged(o.blocks.flatMap((b) => b.dropped));
+  const restP = restPowers(o.rests);
   const fast = (beta: number, t: number, sigma: number, ls: number, tailP: number) => {
     const rhoF = rem.rho(beta, t, o.J0) + sumPow(rhoRest, ls);
     const rho = rhoF + rh0[0] * Math.exp(-ls);
@@ -328,10 +377,10 @@ function jumpSplit(
       const q = pn[b.n];
       const damp = Math.exp(-beta * b.n * a);
       v += b.n === 1 ? q * damp * rhoF : q * damp * b.n * rho * Math.pow(Math.max(m0, alpha), b.n - 1);
-      v += damp * sumPow(b.dropped, ls);
       if (b.atErr > 0) v += 2 * q * sigma * b.atErr * Math.exp(Math.max(beta * b.atErr, 0.5)) * Math.pow(alpha + rho, b.n);
     }
-    for (const k of o.rests) v += Math.exp(-beta * k.at) * kernelRest(k, sigma);
+    // the blocks' dropped terms and the kernels' rests as in ofOrder's bound (dampings <= 1 left out)
+    v += sumPow(droppedAll, ls) + restAt(restP, ls);
     v += tailP * Math.pow(m, o.Nb + 1);
     v += D1 * Math.exp(-2 * ls);
     return v * (1 + 1e-10);

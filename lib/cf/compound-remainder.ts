@@ -34,8 +34,9 @@ export function compoundRemainderBound(inp: CompoundRemainderInput): { bound: (b
   const s = rem.series;
   const a = s.at;
   const e0 = s.exps[0];
+  const order = inp.order ?? KERNEL_ORDER;
   let Nb = 0;
-  while (Nb + 1 < pn.length && (Nb + 1) * e0 <= KERNEL_ORDER + SAME_EXPONENT) Nb++;
+  while (Nb + 1 < pn.length && (Nb + 1) * e0 <= order + SAME_EXPONENT) Nb++;
   // the kernels share one rate (compound.ts kernelsFor), the unit of ofOrder's powers
   const r = kernels.length > 0 && kernels.every((k) => k.rate === kernels[0].rate) ? kernels[0].rate : NaN;
   let head = 0;
@@ -55,7 +56,7 @@ export function compoundRemainderBound(inp: CompoundRemainderInput): { bound: (b
   // the same exponent cancel in part, which the least of the orders keeps (Poisson(2)-pareto(1.5) at t = 1 024: order 4
   // alone gave 3.2 times the bound of order 8); a higher order pays with larger coefficients at small sigma
   // the orders whose series work stays within MAX_SERIES_WORK (shape 0.3 weibull claims: order 4 alone), built on first use
-  const orders = [KERNEL_ORDER, KERNEL_ORDER + 2, KERNEL_ORDER + 4].filter((L) => (keptTerms(s, L) * Nb) ** 2 <= MAX_SERIES_WORK);
+  const orders = [order, order + 2, order + 4].filter((L) => (keptTerms(s, L) * Nb) ** 2 <= MAX_SERIES_WORK);
   let fineBuilt: ReturnType<typeof ofOrder>[] | null = null;
   const built = () => (fineBuilt ??= orders.map((L) => ofOrder(inp, L, Nb)));
   const at = (beta: number, t: number) => {
@@ -116,10 +117,10 @@ export function compoundRemainderBound(inp: CompoundRemainderInput): { bound: (b
  * no table. The table's p_n are taken within its pointRel where it states one, else within 16 (n + 1) u, as the gamma
  * compounds' bound takes them (compound.ts gammaRemainderBound).
  */
-export function endpointKernelsRemainder(N: Node, rem: EndpointRemainder, kernels: readonly GammaKernel[]): ReturnType<typeof compoundRemainderBound> | null {
+export function endpointKernelsRemainder(N: Node, rem: EndpointRemainder, kernels: readonly GammaKernel[], order = KERNEL_ORDER): ReturnType<typeof compoundRemainderBound> | null {
   const e0 = rem.series.exps[0];
   if (!(e0 > 0) || !N.table) return null;
-  const nMax = Math.floor(KERNEL_ORDER / e0) + 1;
+  const nMax = Math.floor(order / e0) + 1;
   const t = N.table(nMax + 1);
   if (!t || t.step !== 1 || t.origin !== 0) return null;
   const pn = new Float64Array(nMax + 1);
@@ -134,8 +135,8 @@ export function endpointKernelsRemainder(N: Node, rem: EndpointRemainder, kernel
   const pErr = (n: number) => (n < t.p.length ? 1.01 * (rel ? rel(n) : 16 * (n + 1) * EPS) * pn[n] : n > top ? 0 : beyond!(n));
   const cgf = N.countCgf ? realCgf(N.countCgf) : undefined;
   // a severity with so many terms below KERNEL_ORDER (weibull shape below 0.28) that even order 4 passes the work limit: none
-  if ((keptTerms(rem.series) * (nMax - 1)) ** 2 > MAX_SERIES_WORK) return null;
-  return compoundRemainderBound({ rem, pn, pErr, kernels, ...(cgf ? { cgf } : {}), relErr: N.cfRelError ?? 0, absErr: N.cfAbsError ?? 0 });
+  if ((keptTerms(rem.series, order) * (nMax - 1)) ** 2 > MAX_SERIES_WORK) return null;
+  return compoundRemainderBound({ rem, pn, pErr, kernels, ...(cgf ? { cgf } : {}), relErr: N.cfRelError ?? 0, absErr: N.cfAbsError ?? 0, order });
 }
 
 /**

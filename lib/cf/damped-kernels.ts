@@ -77,6 +77,12 @@ function toKernels(series: Map<number, number>, at: number, rate: number, eMax: 
 
 /** order of the endpoint expansion removed by kernels: what is left decays like |s|^{-e}, e > KERNEL_ORDER */
 export const KERNEL_ORDER = 4;
+/**
+ * the order to which a compound of claims with a derived endpoint remainder (pareto, lomax, weibull, Burr) takes its kernels
+ * (../compound.ts compoundOrder): its claims' expansion to that order, each block's kernels at a rate that keeps their
+ * weights small; sums and mixtures keep KERNEL_ORDER
+ */
+export const COMPOUND_ORDER = 8;
 /** the order to which a gamma severity's compound takes its n-claim laws as kernels (exact, no series: see compound.ts) */
 export const GAMMA_ORDER = 8;
 
@@ -100,10 +106,10 @@ function addBlock(out: TransformSeries, at: number, series: Map<number, number>,
 }
 
 /** a severity's endpoint series as a transform series */
-export function seriesOfExpansion(sev: EndpointSeries): TransformSeries {
+export function seriesOfExpansion(sev: EndpointSeries, order = KERNEL_ORDER): TransformSeries {
   const m = new Map<number, number>();
   sev.exps.forEach((e, j) => {
-    if (e <= KERNEL_ORDER + SAME) add(m, e, sev.coefs[j]);
+    if (e <= order + SAME) add(m, e, sev.coefs[j]);
   });
   return [{ at: sev.at, series: m }];
 }
@@ -135,25 +141,25 @@ export const shiftSeries = (b: number, s: TransformSeries): TransformSeries => s
  * The compound's transform P_N(phi(s)) = p_0 + sum_{n >= 1} p_n phi(s)^n: the atom p_0 at 0 and, up to s^{-eMax},
  * the blocks of phi^n (endpoints n at, series G^n with G the severity's).
  */
-export function compoundSeries(pn: ArrayLike<number>, sev: EndpointSeries): TransformSeries {
-  const G = seriesOfExpansion(sev)[0].series;
+export function compoundSeries(pn: ArrayLike<number>, sev: EndpointSeries, order = KERNEL_ORDER): TransformSeries {
+  const G = seriesOfExpansion(sev, order)[0].series;
   const e0 = Math.min(...sev.exps);
   const out: TransformSeries = [{ at: 0, series: new Map([[0, pn[0]]]) }];
   if (!(e0 > 0) || G.size === 0) return out;
   let pow = new Map<number, number>([[0, 1]]);
-  for (let n = 1; n < pn.length && n * e0 <= KERNEL_ORDER + SAME; n++) {
-    pow = mul(pow, G, KERNEL_ORDER);
+  for (let n = 1; n < pn.length && n * e0 <= order + SAME; n++) {
+    pow = mul(pow, G, order);
     addBlock(out, n * sev.at, pow, pn[n]);
   }
   return out;
 }
 
 /** gamma kernels (one rate) matching every term of a transform series except the atoms (exponent 0) */
-export function kernelsOfSeries(s: TransformSeries, rate: number): GammaKernel[] {
+export function kernelsOfSeries(s: TransformSeries, rate: number, order = KERNEL_ORDER): GammaKernel[] {
   const out: GammaKernel[] = [];
   for (const b of s) {
     const m = new Map([...b.series].filter(([e]) => e > SAME));
-    out.push(...toKernels(m, b.at, rate, KERNEL_ORDER));
+    out.push(...toKernels(m, b.at, rate, order));
   }
   return out.filter((k) => k.w !== 0 && Number.isFinite(k.w));
 }

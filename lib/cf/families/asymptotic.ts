@@ -224,7 +224,7 @@ export function paretoSeries(alpha: number, r: number, arg: number, out: Float64
 }
 
 /** exponents of the endpoint expansions kept (compounds subtract gamma kernels up to a lower order) */
-const EXPANSION_MAX = 8;
+const EXPANSION_MAX = 12;
 /** an expansion whose exponents step by less than this needs over 1024 terms to reach EXPANSION_MAX: none is declared
  *  (a shape of 1e-300 looped for ever building it) */
 const MIN_STEP = EXPANSION_MAX / 1024;
