@@ -6,6 +6,7 @@ import { decreasingDensityModulus } from "./families/log-round";
 import { weibullDampedMajorant } from "./weibull-majorant";
 import type { Claims, KernelRest } from "./damped-kernel-rest";
 import type { LatticeTable } from "./types";
+import { claimsFrom } from "./claims-from";
 
 const EPS = Number.EPSILON;
 
@@ -179,9 +180,12 @@ function claimsOf(g: { shape: number; rate: number } | undefined, count: CountFo
 }
 
 export function compoundDampedMajorant(node: Node, X: Node, count: CountForMajorant | null): DampedMajorant | undefined {
-  const xm = X.dampedMajorant;
+  const xm0 = X.dampedMajorant;
   const cf = node.dampedLogCf;
-  if (!cf || !count || !xm || xm.cf !== X.dampedLogCf || xm.atom !== 0 || X.support[0] !== 0 || node.support[0] !== 0) return undefined;
+  const a = X.support[0];
+  if (!cf || !count || !xm0 || xm0.cf !== X.dampedLogCf || xm0.atom !== 0 || !(a >= 0 && a < Infinity) || node.support[0] !== 0) return undefined;
+  // claims from a > 0 (pareto): their transform from the compound's lower end 0 (./claims-from.ts)
+  const xm = a === 0 ? xm0 : claimsFrom(xm0, a);
   const p0 = atomAtLo(node);
   if (p0 === null || !(count.mean >= 0) || !Number.isFinite(count.mean)) return undefined;
   // P_N(s) for s in [0, 1], raised (lowered) by its stated errors (../count-pgf.ts)
