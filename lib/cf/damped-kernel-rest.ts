@@ -50,7 +50,7 @@ const MAX_MONOMIALS = 256;
 /**
  * An independent sum of exact gamma terms G_i = (rho_i / (rho_i + s))^{k_i} (s = beta - i t), compounds of exact gamma
  * claims and other terms a_j + R_j (atom a_j at their lower end, |R_j| and |R_j'| bounded through the operators), its
- * transform past lo psi = G P, G = prod G_i, P = prod_j (Q_j + R_j'), less its gamma kernels K (one rate r, all at lo: the
+ * transform past lo psi = G P, G = prod G_i, P = prod_j (Q_j + R_j'), less its gamma kernels K (one rate r, at lo or above it, each then bounded by its size: the
  * endpoint expansion's terms up to its order, ./kernel-carry.ts). A compound of gamma(k_j, rho_j) claims is written
  * Q_j = sum_{n <= M_j} p_n Gamma_j^n (Gamma_j = (rho_j / (rho_j + s))^{k_j}, exact) and R_j' = sum_{n > M_j} p_n Gamma_j^n,
  * |R_j'| <= (sum_{n > M} p_n) m^{M + 1} and |R_j''| <= (sum_{n > M} n p_n) m^M |Gamma_j'| (m >= |Gamma_j|, every p_n >= 0);
@@ -74,7 +74,9 @@ export function sumKernelRest(cs: readonly ChildBounds[], kernels: readonly Gamm
   const gs = cs.filter((c) => c.gamma).map((c) => c.gamma!);
   if (gs.length === 0) return undefined;
   const r = kernels[0].rate;
-  if (!kernels.every((k) => k.rate === r && k.at === lo) || !(r > 0) || !Number.isFinite(r)) return undefined;
+  // kernels above lo (a compound of pareto claims: its jumps at n xm, each times the sum's other terms) meet no monomial
+  // at lo: each is bounded by its size below (`others`)
+  if (!kernels.every((k) => k.rate === r && k.at >= lo && k.at < Infinity) || !(r > 0) || !Number.isFinite(r)) return undefined;
   const E = gs.reduce((s, g) => s + g.shape, 0);
   const order = Math.max(...kernels.map((k) => k.shape));
   // EXTRA orders past the kernels' own: their terms are bounded by their size, not by the majorant series, which sees no
@@ -219,7 +221,7 @@ export function sumKernelRest(cs: readonly ChildBounds[], kernels: readonly Gamm
   const others: GammaKernel[] = [];
   for (const k of kernels) {
     const wr = k.w * Math.pow(r, k.shape);
-    const g = groups.find((x) => Math.abs(x.e - k.shape) <= SAME);
+    const g = k.at === lo ? groups.find((x) => Math.abs(x.e - k.shape) <= SAME) : undefined;
     if (g) {
       g.c -= wr;
       g.err += Math.abs(wr) * 16 * EPS;
@@ -276,10 +278,13 @@ export function sumKernelRest(cs: readonly ChildBounds[], kernels: readonly Gamm
       rest += zr * mm;
       slope += zr * x * ((v.g + v.off) * mm + v.off);
     }
+    // a kernel w e^{-s d} (r / z)^e, d = at - lo: |.| = |w| e^{-beta d} (r / |z|)^e, its t-derivative (-i d/ds) within
+    // that times d + e / |z|
     for (const k of others) {
-      const v = Math.abs(k.w) * Math.pow(r * x, k.shape) * (1 + 16 * EPS);
+      const d = (k.at - lo) * (1 + 2 * EPS);
+      const v = Math.abs(k.w) * Math.pow(r * x, k.shape) * Math.exp(-beta * (k.at - lo) * (1 - 2 * EPS)) * (1 + 24 * EPS);
       rest += v;
-      slope += v * k.shape * x;
+      slope += v * (k.shape * x + d);
     }
     return { rest: up(rest, 16 + 2 * nTerms), slope: up(slope, 16 + 2 * nTerms) };
   };
@@ -313,7 +318,7 @@ export function sumKernelRest(cs: readonly ChildBounds[], kernels: readonly Gamm
         q = Math.min(q, v.g - v.off - NEAR_EPS);
       }
       for (const k of others) {
-        R += Math.abs(k.w) * Math.pow(r * x, k.shape) * (1 + 16 * EPS);
+        R += Math.abs(k.w) * Math.pow(r * x, k.shape) * Math.exp(-beta * (k.at - lo) * (1 - 2 * EPS)) * (1 + 24 * EPS);
         q = Math.min(q, k.shape);
       }
       return { R: up(R, 16 + 2 * nTerms), q };

@@ -389,6 +389,7 @@ export const SETS: [string, () => void][] = [
   ["compound/heavy", () => compoundHeavy("compound/heavy.json", "compound/heavy")],
   ["compound/endpoint-density", endpointDensity],
   ["compound/heavy-sums", () => compoundHeavy("compound/heavy-sums.json", "compound/heavy-sums")],
+  ["pareto-compound-sums", () => compoundHeavy("pareto-compound-sums/pareto-compound-sums.json", "pareto-compound-sums")],
   ["sums", () => sums("sums/sums.json", "sums", true)],
   ["cf-sums", () => sums("sums/cf-sums.json", "cf-sums", false)],
   ["positive-sums", positiveSums],
