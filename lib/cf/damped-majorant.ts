@@ -2,7 +2,7 @@ import type { Node } from "./node";
 import type { DampedLogCf } from "./damped-cf";
 import { lognormalDampedBounds } from "./lognormal-majorant";
 import { pgfBounds } from "./count-pgf";
-import { decreasingDensityModulus } from "./families/log-round";
+import { convexDensityModulus } from "./families/log-round";
 import { weibullDampedMajorant } from "./weibull-majorant";
 import type { Claims, KernelRest } from "./damped-kernel-rest";
 import type { LatticeTable } from "./types";
@@ -115,7 +115,8 @@ export function familyDampedMajorant(family: string, p: Record<string, number>, 
  * Lomax(alpha, theta) from its lower end, and so pareto(alpha, xm) = xm + lomax(alpha, xm): the density
  * g(y) = (alpha / theta) (1 + y / theta)^{-alpha-1} (Loss Models app. A.2.3.1, section recalled from memory) falls from g(0) = alpha / theta to 0. With s = beta - i t:
  *  - psi(s) = int_0^inf e^{-s y} g = g(0) / s + (1 / s) int e^{-s y} g' (integration by parts), so |psi| <= 2 g(0) / |s|
- *    (decreasingDensityModulus, ./families/log-round.ts), and
+ *    and, g convex with g'(0) = -alpha (alpha + 1) / theta^2, by parts once more |psi| <= g(0) / |s| + 2 |g'(0)| / |s|^2
+ *    (convexDensityModulus, ./families/log-round.ts), and
  *    psi is the transform of h = g e^{-beta y}, a jump of g(0) at 0 then falling: total variation 2 g(0) (`split`: all of it,
  *    as the exponential's);
  *  - psi'(t) = i int y e^{-s y} g: k(y) = y g(y) e^{-beta y} is 0 at 0 and at infinity and has one maximum (k'/k = 1/y -
@@ -126,13 +127,16 @@ export function familyDampedMajorant(family: string, p: Record<string, number>, 
 function lomaxDampedMajorant(alpha: number, theta: number): Omit<DampedMajorant, "cf"> | undefined {
   if (!(alpha > 0 && theta > 0 && Number.isFinite(alpha) && Number.isFinite(theta))) return undefined;
   const g0 = up(alpha / theta, 2);
-  const size = decreasingDensityModulus(0, alpha / theta);
+  // g is convex too (g'' > 0), g'(0) = -g1: by parts twice, |psi| <= g(0) / |s| + 2 g1 / |s|^2 (half the once-by-parts bound far out)
+  const g1 = up((alpha * (alpha + 1)) / (theta * theta), 4);
+  const size = convexDensityModulus(0, alpha / theta, g1);
   const kMax = up(Math.pow(alpha / (alpha + 1), alpha + 1), 16);
   const mean = alpha > 1 ? up(theta / (alpha - 1), 4) : Infinity;
   return {
     atom: 0,
     rest: size,
-    decay: (_beta, t0) => ({ R: up((2 * g0) / t0, 8), q: 1, split: { R: 0, q: Infinity, tv: up(2 * g0) } }),
+    // for t >= t0: g(0) / t + 2 g1 / t^2 <= (g(0) + 2 g1 / t0) / t
+    decay: (_beta, t0) => ({ R: up(Math.min(2 * g0, g0 + up((2 * g1) / t0)) / t0, 8), q: 1, split: { R: 0, q: Infinity, tv: up(2 * g0) } }),
     slope: (beta, t) => Math.min(mean, beta > 0 ? up(1 / (Math.E * beta), 4) : Infinity, t > 0 ? up((2 * kMax) / t, 4) : Infinity),
   };
 }
