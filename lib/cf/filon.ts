@@ -12,6 +12,9 @@
 import { gaussLegendre } from "./quadrature";
 import { glEnclosure } from "./gl-enclosure";
 import { legendreTableError, panelRemainder } from "./filon-remainder";
+import { besselErrors, EXTRA, M, sphericalBessel } from "./filon-bessel";
+
+export { sphericalBessel };
 
 /** what makes the rule's error derived (see oscillatoryIntegral) */
 export interface FilonOptions {
@@ -35,10 +38,6 @@ const P_RULE = () => {
   return PR;
 };
 
-/** nodes per panel (degree M - 1 interpolant) */
-const M = 16;
-/** spherical Bessel orders carried below M in the backward recurrence (Miller's algorithm) */
-const EXTRA = 24;
 /** check points per panel for the interpolation error */
 const CHECKS = 33;
 
@@ -84,81 +83,13 @@ function legendreSum(c: Float64Array, off: number, x: number): number {
   return c[off] + x * b1 - 0.5 * b2;
 }
 
-/** 1 / (k (2n + 2k + 1)) at [n * 10 + k]: the ratios of successive terms of the power series of j_n, over -w^2 / 2 */
-const SERIES = (() => {
-  const r = new Float64Array(M * 10);
-  for (let n = 0; n < M; n++) for (let k = 1; k <= 9; k++) r[n * 10 + k] = 1 / (k * (2 * n + 2 * k + 1));
-  return r;
-})();
-
-/**
- * j_0..j_{M-1}(w) for w >= 0 into out. Upward recurrence where every order is below w (stable there), else Miller's
- * backward recurrence from order M + EXTRA + w, normalised by whichever of j_0, j_1 is larger (they are never both
- * small: j_0^2 + ... sums to 1 with weights 2n + 1).
- */
-export function sphericalBessel(w: number, out: Float64Array): void {
-  if (w === 0) {
-    out.fill(0);
-    out[0] = 1;
-    return;
-  }
-  if (w < 0.5) {
-    // power series j_n(w) = w^n / (2n + 1)!! sum_k (-w^2 / 2)^k / (k! (2n + 3)(2n + 5)...(2n + 2k + 1)) (DLMF 10.53.1),
-    // summed until a term is below 1e-18 of the sum: the ratios of the terms after it are below w^2 / 20 < 1/80, so
-    // what is left is below 1e-18 relative too; 9 terms at most leave less than (w^2 / 2)^9 / 9! < 1e-16 relative
-    let lead = 1;
-    const h = -(w * w) / 2;
-    for (let n = 0; n < M; n++) {
-      if (n > 0) lead *= w / (2 * n + 1);
-      if (lead === 0) {
-        out[n] = 0;
-        continue;
-      }
-      let term = 1;
-      let sum = 1;
-      for (let k = 1; k <= 9; k++) {
-        term *= h * SERIES[n * 10 + k];
-        sum += term;
-        if (Math.abs(term) < 1e-18 * Math.abs(sum)) break;
-      }
-      out[n] = lead * sum;
-    }
-    return;
-  }
-  const s = Math.sin(w);
-  const c = Math.cos(w);
-  const j0 = s / w;
-  const j1 = s / (w * w) - c / w;
-  if (w > M + 4) {
-    out[0] = j0;
-    out[1] = j1;
-    for (let n = 1; n + 1 < M; n++) out[n + 1] = ((2 * n + 1) / w) * out[n] - out[n - 1];
-    return;
-  }
-  const top = M + EXTRA + Math.ceil(w);
-  let jp = 0;
-  let jc = 1e-250;
-  for (let n = top; n >= 1; n--) {
-    const jm = ((2 * n + 1) / w) * jc - jp;
-    jp = jc;
-    jc = jm;
-    if (n - 1 < M) out[n - 1] = jc;
-    if (Math.abs(jc) > 1e200) {
-      // rescale the run so far
-      for (let k = n - 1; k < M; k++) out[k] *= 1e-200;
-      jp *= 1e-200;
-      jc *= 1e-200;
-    }
-  }
-  const f = Math.abs(j0) >= Math.abs(j1) ? j0 / out[0] : j1 / out[1];
-  for (let n = 0; n < M; n++) out[n] *= f;
-}
-
 export interface OscillatoryIntegral {
   /** int f(u) e^{i s u} du over the panels, into out[0] (re), out[1] (im) */
   at(s: number, out: Float64Array): void;
-  /** bound on the absolute error of `at`, the same at every s */
+  /** bound on the absolute error of `at`, the same at every s, apart from the frequency's rounding (slope) */
   error: number;
+  /** the frequency's rounding inside `at` moves its value by at most slope |s| */
+  slope: number;
   /** number of panels the rule sums over (the cost of one frequency) */
   panels: number;
 }
@@ -306,16 +237,41 @@ export function oscillatoryIntegral(
   const hf = Float64Array.from(halves);
   const cf = Float64Array.from(coefs);
   const jn = new Float64Array(M);
-  // the sums' own rounding: M terms per panel, each |c_n| |j_n| <= |c_n|
-  let coefAbs = 0;
-  for (let p = 0; p < P; p++) for (let n = 0; n < M; n++) coefAbs += 2 * hf[p] * Math.abs(cf[p * M + n]);
-  error += 4 * (M + EXTRA) * Number.EPSILON * coefAbs;
+  // what `at` adds (u = eps / 2, gamma_k = k u / (1 - k u); Higham 2nd ed. sec. 3.1, 4.2): per panel the Bessel values'
+  // errors sum |c_n| E_n (./filon-bessel.ts), the 8-term sums (gamma_6 of sum |c_n| |j_n^|, |j_n| <= 1), the product
+  // with the phase (cos and sin within one ulp, 2 + 2 u each part) and by 2 h (u): within 20 u of A = sum |c_n| (1 + E_n),
+  // times 2 h; the panels in blocks of 64, gamma_{min(P, 64) - 1 + ceil(P / 64) - 1} of the terms' moduli (<= 2 h A
+  // each part). The frequency's own rounding inside (w = |s| h within u w, |j_n'| <= 1/2; s m within u |s m|) moves
+  // each panel's value by at most u |s| 2 h A (|m| + h / 2): the slope, per unit |s|
+  const E = besselErrors(M, EXTRA);
+  let besAbs = 0;
+  let absA = 0;
+  let slope = 0;
+  for (let p = 0; p < P; p++) {
+    let a = 0;
+    let e = 0;
+    for (let n = 0; n < M; n++) {
+      const cn = Math.abs(cf[p * M + n]);
+      a += cn * (1 + E[n]);
+      e += cn * E[n];
+    }
+    besAbs += 2 * hf[p] * e;
+    absA += 2 * hf[p] * a;
+    slope += 2 * hf[p] * a * (Math.abs(mid[p]) + hf[p] / 2);
+  }
+  const U = Number.EPSILON / 2;
+  const b = Math.min(P, 64) - 1 + Math.max(Math.ceil(P / 64) - 1, 0);
+  error += (besAbs + (20 * U + (2 * b * U) / (1 - b * U)) * absA) * (1 + 1e-10);
   return {
     error,
+    slope: U * slope * (1 + 1e-10),
     panels: P,
     at(s, out) {
+      // the panels in blocks of 64 (the rounding bound above)
       let sr = 0;
       let si = 0;
+      let br = 0;
+      let bi = 0;
       const sign = s < 0 ? -1 : 1;
       for (let p = 0; p < P; p++) {
         const w = Math.abs(s) * hf[p];
@@ -333,11 +289,17 @@ export function oscillatoryIntegral(
         const cr = Math.cos(ph);
         const ci = Math.sin(ph);
         const k = 2 * hf[p];
-        sr += k * (er * cr - ei * ci);
-        si += k * (er * ci + ei * cr);
+        br += k * (er * cr - ei * ci);
+        bi += k * (er * ci + ei * cr);
+        if ((p & 63) === 63) {
+          sr += br;
+          si += bi;
+          br = 0;
+          bi = 0;
+        }
       }
-      out[0] = sr;
-      out[1] = si;
+      out[0] = sr + br;
+      out[1] = si + bi;
     },
   };
 }

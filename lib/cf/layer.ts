@@ -227,7 +227,7 @@ export function layerNode(X: Node, terms: Partial<LayerTerms>, disc: DensityDisc
       // assembly's rounding (u = eps/2): the sums and the product with cos/sin 5 sqrt(2) u of the moduli' sum (at most
       // about 1), the log of |.| and its exp back 9u (cabs 2 eps, log and exp one ulp each, m |log m| <= 1/e), the angle
       // through atan2 (principal: |Im L| <= pi) and cos/sin (2 pi + 2) u: below 16 eps together; the rounded frequencies
-      // c t and s l are the node's argSlope (layerRounding below)
+      // c t and s l are the node's argSlope (layerRounding below, with the rule's own frequency rounding, filon.ts slope)
       return oscillatory().error + FdE.e + SdlE.e + cut + 16 * Number.EPSILON;
     },
     notes: [
@@ -259,6 +259,9 @@ export function layerNode(X: Node, terms: Partial<LayerTerms>, disc: DensityDisc
     severity: sev,
     ...layerRounding(c, l, Sdl + SdlE.e, closed(1)),
   };
+  // the Filon rule's own frequency rounding (filon.ts slope, per unit s = c t) on top of the node's argSlope
+  const own = node.argSlope;
+  if (own !== undefined) Object.defineProperty(node, "argSlope", { get: () => (own + c * oscillatory().slope) * (1 + 2 * Number.EPSILON), enumerable: true, configurable: true });
   if (!dist.layerMoment) return node;
   // a claim with a direct law: the layer's values, quantiles and ES from it (./direct/layer.ts), no inversion
   const direct = X.direct ? layerDirect(X.direct, dist.layerMoment, d, l, c) : null;
