@@ -111,6 +111,8 @@ export function oscillatoryIntegral(
   const R = rule();
   const mids: number[] = [];
   const halves: number[] = [];
+  // with a disc bound: int |p| over each panel, at most its mass plus the derived int |f - p| (f >= 0)
+  const l1p: number[] = [];
   const coefs: number[] = [];
   let error = 0;
   const gv = new Float64Array(M);
@@ -166,7 +168,8 @@ export function oscillatoryIntegral(
    */
   const derivedFit = (o: FilonOptions, prr: { dx: number; tab: Float64Array; absX: Float64Array }, mid: number, half: number, absSum: number): { interp: number; floor: number } => {
     const U = Number.EPSILON;
-    const gM = (M * U) / (1 - M * U);
+    // gamma_M at the unit roundoff u = eps / 2 (Higham 3.1: M products and M - 1 sums)
+    const gM = (M * U) / (2 - M * U);
     let d1 = 0;
     let tabSum = 0;
     for (let n = 1; n < M; n++) d1 += (Math.abs(c[n]) * n * (n + 1)) / 2;
@@ -227,9 +230,11 @@ export function oscillatoryIntegral(
       stack.push([m, b, depth + 1], [a, m, depth + 1]);
       continue;
     }
-    error += r.err + r.floor + 8 * Number.EPSILON * (b - a) * r.absSum;
+    // (with a disc bound the floor carries the coefficients' rounding and `at`'s own is derived below: no allowance)
+    error += r.err + r.floor + (opts.disc ? 0 : 8 * Number.EPSILON * (b - a) * r.absSum);
     mids.push((a + b) / 2);
     halves.push((b - a) / 2);
+    l1p.push(opts.disc ? (pm + r.err + r.floor) * (1 + 4 * Number.EPSILON) : Infinity);
     for (let n = 0; n < M; n++) coefs.push(c[n]);
   }
   const P = mids.length;
@@ -241,8 +246,9 @@ export function oscillatoryIntegral(
   // errors sum |c_n| E_n (./filon-bessel.ts), the 8-term sums (gamma_6 of sum |c_n| |j_n^|, |j_n| <= 1), the product
   // with the phase (cos and sin within one ulp, 2 + 2 u each part) and by 2 h (u): within 20 u of A = sum |c_n| (1 + E_n),
   // times 2 h; the panels in blocks of 64, gamma_{min(P, 64) - 1 + ceil(P / 64) - 1} of the terms' moduli (<= 2 h A
-  // each part). The frequency's own rounding inside (w = |s| h within u w, |j_n'| <= 1/2; s m within u |s m|) moves
-  // each panel's value by at most u |s| 2 h A (|m| + h / 2): the slope, per unit |s|
+  // each part). The frequency's own rounding inside (s m within u |s m|; w = |s| h within u w, and d/dw int_{-1}^{1} p
+  // e^{iwx} dx = int i x p e^{iwx}) moves each panel's value by at most u |s| (|m| + h) V, V = int |p| over the panel
+  // (at most 2 h A, and with a disc bound its mass plus int |f - p|): the slope, per unit |s|
   const E = besselErrors(M, EXTRA);
   let besAbs = 0;
   let absA = 0;
@@ -257,7 +263,7 @@ export function oscillatoryIntegral(
     }
     besAbs += 2 * hf[p] * e;
     absA += 2 * hf[p] * a;
-    slope += 2 * hf[p] * a * (Math.abs(mid[p]) + hf[p] / 2);
+    slope += Math.min(2 * hf[p] * a, l1p[p]) * (Math.abs(mid[p]) + hf[p]);
   }
   const U = Number.EPSILON / 2;
   const b = Math.min(P, 64) - 1 + Math.max(Math.ceil(P / 64) - 1, 0);

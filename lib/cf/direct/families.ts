@@ -104,7 +104,10 @@ export function gammaDirect(shape: number, rate: number): DirectLaw {
         o.pdf = rate * Math.exp(-y);
         o.cdf = -Math.expm1(-y);
         o.sf = Math.exp(-y);
-        bounds(o, ELEM, ELEM + 2 * EPS * y, dx);
+        // u = eps / 2: y = fl(rate x) within u y moves e^{-y} by (e^{u y} - 1) of it, exp and expm1 one ulp (2u), the
+        // product u; so sf within (2 + y) u, pdf (3 + y) u, cdf 3u (its move e^{-y} u y <= u (1 - e^{-y}) of it)
+        const r = 1.01 * (3 + y) * (EPS / 2);
+        bounds(o, r, r, dx);
         return;
       }
       const lx = (shape - 1) * Math.log(x || 1);
