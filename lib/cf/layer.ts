@@ -208,12 +208,18 @@ export function layerNode(X: Node, terms: Partial<LayerTerms>, disc: DensityDisc
             disc: (m: number, R: number) => disc.logBound(d + m, R + 2 * Number.EPSILON * Math.abs(d + m)),
             fErr: (u: number) => {
               dl.at(d + u, pt);
-              return Math.abs(pt.pdf - claimPdf(u)) + pt.pdfErr;
+              return pt.pdfErr;
             },
             offset: d,
           }
         : {};
-      osc = oscillatoryIntegral(opts.disc ? filonPanels(mass, opts.disc) : base, claimPdf, mass, opts);
+      // with a disc bound the rule fits the direct law's density values (their own bound is then fErr's whole)
+      const pf = directPoint();
+      const fDirect = (u: number) => {
+        dl!.at(d + u, pf);
+        return pf.pdf;
+      };
+      osc = oscillatoryIntegral(opts.disc ? filonPanels(mass, opts.disc) : base, opts.disc ? fDirect : claimPdf, mass, opts);
     }
     return osc;
   };
