@@ -45,4 +45,26 @@ describe("mixture of damped compounds: component ranges from the tail asked (hea
     });
     c.done();
   });
+  // a closed-form component below the compound's support: for x >= -1 the mixture's cdf is 1/2 + F_C(x)/2, so its quantile at
+  // p = (1 + p_C)/2 is C's at 2p - 1 (exact in doubles, Sterbenz; it differs from the fixture's p_C by at most 2^-53, which
+  // moves the quantile by 2^-53 / f_C, below 1e-12 relative at these levels: the fixture's own bound covers far more), and
+  // E[(X - q)^+] = E[(C - q)^+]/2 over 1 - p = (1 - p_C)/2, so ES is C's. The power-tailed component then takes the closed
+  // form's share of the cdf target (mixture-components.ts powerTailShare): the answers stay within their bounds
+  it("0.5 uniform(-2, -1) + 0.5 C: the compound's quantiles and ES at the shifted levels, within their bounds", () => {
+    const c = new Checker();
+    const model = { mix: [{ weight: 0.5, of: { family: "uniform", a: -2, b: -1 } }, { weight: 0.5, of: ref.model }] } as Model;
+    const ps = ref.levels.map((l) => (1 + l.p) / 2);
+    const r = quantiles(compile(model), ps, { expectedShortfall: true });
+    c.that("method", r.diagnostics.method === "mixture", r.diagnostics.method);
+    ref.levels.forEach((l, i) => {
+      const qErr = r.diagnostics.quantileError[i];
+      c.honest(`q(${ps[i]})`, r.x[i], l.q, qErr + l.qErr + 1e-12 * l.q);
+      c.rel(`q(${ps[i]})`, r.x[i], l.q, 1e-7);
+      if (l.es === undefined) return;
+      const esErr = r.diagnostics.expectedShortfallError![i];
+      c.honest(`ES(${ps[i]})`, r.expectedShortfall![i], l.es, esErr + (l.esErr ?? 0) + 1e-12 * l.es);
+      c.rel(`ES(${ps[i]})`, r.expectedShortfall![i], l.es, 1e-6);
+    });
+    c.done();
+  });
 });

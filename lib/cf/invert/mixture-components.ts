@@ -172,6 +172,31 @@ function heavyComponent(w: number, m: CompiledModel, tol: number, tail: number):
   };
 }
 
+/** the loosest cdf target a power-tailed component's share reaches (as the density's shares, ./mixture-budget.ts) */
+const POWER_SHARE_CAP = 1e-6;
+/** the share of the mixture's target left to its closed-form components, per unit of their weight */
+const DIRECT_RESERVE = 0.01;
+
+const powerTailed = (m: CompiledModel) => Number.isFinite(m.tails.right);
+
+/**
+ * The factor by which the damped components with a power right tail (whose terms grow as a power of 1/target, where a
+ * light tail's grow as its log) may loosen their cdf target: the mixture's cdf bound is sum_j w_j e_j, each e_j within its
+ * component's target, and the closed-form components' own bounds lie far below the target (rounding of a special
+ * function), so their weight W_D less a reserve DIRECT_RESERVE W_D goes to the power-tailed ones (weight W_P):
+ * W_L tol + W_P a tol + DIRECT_RESERVE W_D tol = tol with a = (W_P + (1 - DIRECT_RESERVE) W_D) / W_P; every other component
+ * keeps its target. Never tighter than before.
+ */
+function powerTailShare(leaves: { w: number; m: CompiledModel }[]): number {
+  let wD = 0;
+  let wP = 0;
+  for (const { w, m } of leaves) {
+    if (m.direct) wD += w;
+    else if (dampable(m) && powerTailed(m)) wP += w;
+  }
+  return wP > 0 ? Math.max(1, (wP + (1 - DIRECT_RESERVE) * wD) / wP) : 1;
+}
+
 /**
  * tail: the smallest upper tail level asked for (damped ranges); lowTail: the smallest of both tails (heavy periods);
  * asked: the tolerance was the request's (else tol is the default, and a damped component's cdf target shrinks with a
@@ -188,11 +213,13 @@ export function components(
 ): Component[] | null {
   const out: (Component | null)[] = [];
   const drafts: { i: number; w: number; m: CompiledModel; d: DampedDraft }[] = [];
+  const loosen = powerTailShare(leaves);
   for (const { w, m } of leaves) {
     checkDeadline("mixture-components");
     if (m.direct) out.push(directComponent(w, m));
     else {
-      const own = asked ? tol : lightTailTarget(m, tol, tail);
+      const base = asked ? tol : lightTailTarget(m, tol, tail);
+      const own = dampable(m) && powerTailed(m) ? Math.min(base * loosen, Math.max(base, POWER_SHARE_CAP)) : base;
       const d = dampable(m) ? dampedDraft(w, m, tail, own, tol / (4 * leaves.length)) : null;
       if (d) {
         drafts.push({ i: out.length, w, m, d });
