@@ -4,6 +4,7 @@ import gammaincinv from "@stdlib/math-base-special-gammaincinv";
 import { lgamma, lgammaErr } from "../families/special";
 import { incGammaBounded, incGammaShape, type IncGamma } from "../families/incgamma-bounded";
 import type { DirectLaw } from "./types";
+import { affinePowerTail, paretoPowerTail } from "./power-tail";
 import { bounds, ELEM, EPS, law, logErfcxSlope, withExcess, withMode, withMonotoneTail } from "./law";
 import { twoProdErr, twoSumErr } from "../moment-error";
 
@@ -105,8 +106,16 @@ function onePlus(xi: number, sigma: number, mu: number, x: number): { w: number;
   return Number.isFinite(w) && Number.isFinite(e) ? { w, e } : null;
 }
 
-/** Lomax (pareto II): S = (1 + x/theta)^-alpha (Loss Models app. A.2.3.1); q_p = theta ((1 - p)^(-1/alpha) - 1). */
+/**
+ * Lomax (pareto II): S = (1 + x/theta)^-alpha (Loss Models app. A.2.3.1); q_p = theta ((1 - p)^(-1/alpha) - 1). Its density is
+ * pareto(alpha, theta)'s moved by -theta (f = alpha theta^alpha (x + theta)^(-alpha-1)), so its power-law majorants are
+ * pareto's at origin -theta (the power-tail route's bounds on the images it leaves: ../invert/heavy-residual2.ts).
+ */
 export function lomaxDirect(alpha: number, theta: number): DirectLaw {
+  return { ...lomaxLaw(alpha, theta), powerTail: affinePowerTail(paretoPowerTail(alpha, theta), 1, -theta) };
+}
+
+function lomaxLaw(alpha: number, theta: number): DirectLaw {
   return withMonotoneTail(withExcess(
     law(
       "closed-form",
