@@ -41,3 +41,32 @@ describe("two power tails plus a bounded term vs mpmath convolution (tests/fixtu
     });
   });
 });
+
+// The expected shortfall of the same sums at the levels p = F(x): ES_p = x + E[(X - x)^+] / (1 - p) (common practice), the
+// stop-loss transforms by mpmath convolution two ways (tests/fixtures/pair-bounded/generate_stoploss.py, their difference
+// `check`). The ES sums share the quantiles' kernels, whose images there are bounded by the kernels' stop-loss tails
+// (lib/cf/invert/kernel-images.ts), so the pair's derived bound answers (lib/cf/invert/heavy-residual2.ts), no estimate.
+describe("two power tails plus a bounded term: expected shortfall vs mpmath (tests/fixtures/pair-bounded)", () => {
+  type SL = { name: string; points: { x: string; stopLoss: string; check: number }[] };
+  const sls = (JSON.parse(readFileSync(new URL("../fixtures/pair-bounded/pair-bounded-stoploss.json", import.meta.url), "utf8")) as { cases: SL[] }).cases;
+  it.each(cases.map((c) => [c.name, c] as const))("%s", (_n, c) => {
+    const sl = sls.find((s) => s.name === c.name)!;
+    const pts = c.points.filter((p) => Number(p.cdf) > 1e-3 && Number(p.cdf) < 1 - 1e-3);
+    const ps = pts.map((p) => Number(p.cdf));
+    const r = quantiles(compile(c.model as never), ps, { expectedShortfall: true });
+    const d = r.diagnostics;
+    expect(d.notes.some((n) => /estimated/.test(n)), `${c.name}: no estimated bound, notes ${JSON.stringify(d.notes)}`).toBe(false);
+    pts.forEach((p, i) => {
+      const s = sl.points.find((q) => q.x === p.x)!;
+      const want = Number(p.x) + Number(s.stopLoss) / (1 - ps[i]);
+      // the answer's ES is at its own quantile q: ES at q differs from ES at q_p by at most f (q - q_p)^2 / (2 (1 - p)) (the
+      // function q + E[(X - q)^+] / (1 - p) is least at q_p, its second derivative f / (1 - p)); with |q - q_p| within the
+      // quantile's bound, f at most 1 here
+      const second = (d.quantileError[i] ** 2 / 2) / (1 - ps[i]);
+      const err = Math.abs(r.expectedShortfall![i] - want);
+      expect(err, `${c.name} p = ${ps[i]}: ES ${r.expectedShortfall![i]} vs ${want}, bound ${d.expectedShortfallError![i]}`).toBeLessThanOrEqual(
+        d.expectedShortfallError![i] + s.check / (1 - ps[i]) + second + 1e-15 * Math.abs(want),
+      );
+    });
+  });
+});

@@ -198,7 +198,8 @@ export function maybeKernels(
   const sp = seriesPoints(part.model, shape.support);
   if (sp) {
     const r = 60 / Math.max(Math.min(...sp.pts.map((e) => win.b - e.at)), 1e-300);
-    for (const J of [8, 6, 4]) {
+    // the most kernels first; the first fit whose cut-off is within 300 scales ends the search (as the ends' fit below)
+    fits: for (const J of [8, 6, 4]) {
       if (J * sp.pts.length > 24) continue;
       for (const tBig of [100 / shape.spread, 300 / shape.spread]) {
         const fit = fitEndpointKernels(part, sp.pts, J, tBig, r, sp.power);
@@ -207,6 +208,7 @@ export function maybeKernels(
         const e2 = probeEnvelope(p2, shape.spread);
         const c2 = cutoffFor(e2, wantPdf ? truncTarget : Infinity, truncTarget);
         if (c2 < (best ? best.cut : c0 * 0.5)) best = { part: p2, env: e2, cut: c2, ks: fit.kernels };
+        if (best && best.cut * shape.spread < 300) break fits;
       }
     }
     if (best) candidates.length = 0;

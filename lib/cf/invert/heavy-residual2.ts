@@ -2,6 +2,8 @@ import { add, at, heavyPart, merge, mono, mul, value, ZERO, type Heavy, type Pol
 import type { TailTerm } from "../types";
 import { momentBounds } from "./moment-tails";
 import { residualAliasing, type ResidualLaw } from "./heavy-residual";
+import { kernelAliasing } from "./kernel-images";
+import type { EndpointKernels } from "./part";
 
 /**
  * A derived bound on the aliasing left when the images of two power-tailed terms are taken out (./images.ts,
@@ -380,9 +382,15 @@ export function pairAliasing(L: PairLaw, xLo: number, xHi: number, T: number, ki
 
 /**
  * The stop-loss residual bounds of the expected-shortfall ladder (./shortfall.ts) per level, for every q in a bucket of width
- * T0/256 (one term's, or the pair's; the corrected kind only for one term), computed once per bucket and level.
+ * T0/256 (one term's, or the pair's; the corrected kind only for one term), with the endpoint kernels' images where the
+ * sums had kernels taken out (./kernel-images.ts), computed once per bucket and level.
  */
-export function stopLossBuckets(resid: ResidualLaw | null, pair: PairLaw | null, T0: number): (lev: number, T: number, q: number, kind: "stopLoss" | "stopLoss2") => number {
+export function stopLossBuckets(
+  resid: ResidualLaw | null,
+  pair: PairLaw | null,
+  T0: number,
+  kernels: readonly EndpointKernels[] = [],
+): (lev: number, T: number, q: number, kind: "stopLoss" | "stopLoss2") => number {
   const bounds = new Map<string, number>();
   return (lev, T, q, kind) => {
     const w = T0 / 256;
@@ -393,6 +401,7 @@ export function stopLossBuckets(resid: ResidualLaw | null, pair: PairLaw | null,
       const lo = Math.min(q, k * w - 4 * U * (Math.abs(k * w) + w));
       const hi = Math.max(q, (k + 1) * w + 4 * U * (Math.abs((k + 1) * w) + w));
       v = resid ? residualAliasing(resid, lo, hi, T, kind) : pair && kind === "stopLoss" ? pairAliasing(pair, lo, hi, T, kind) : Infinity;
+      if (kernels.length && v < Infinity) v += kernelAliasing(kernels, lo, hi, T).stopLoss;
       bounds.set(key, v);
     }
     return v;

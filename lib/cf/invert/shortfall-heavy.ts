@@ -58,17 +58,18 @@ export function heavyShortfall(
     ({ part, env, alpha: alphaR, bases } = maybeTailLaw(part, env, shape, tol));
     ({ part, env } = maybeKernels(part, env, shape, { a: shape.center - 64 * shape.spread, b: shape.center + 64 * shape.spread }, tol / 16, false, []));
   }
-  // a derived bound on the aliasing left where one term is taken out and no endpoint kernels are (./heavy-residual.ts)
-  if (useLadder) resid = part.kernels.length ? null : useLadder.resid;
-  else if (part.tail && !part.kernels.length) resid = residualLaw(part.tail);
+  // a derived bound on the aliasing left where one term is taken out (./heavy-residual.ts), with the endpoint kernels'
+  // images bounded beside it (./kernel-images.ts, stop-loss kind)
+  if (useLadder) resid = useLadder.resid;
+  else if (part.tail) resid = residualLaw(part.tail);
   // two terms' images taken out: the pair's bound (./heavy-residual2.ts)
-  let pair = useLadder && !part.kernels.length && images.length === 2 ? useLadder.pair : null;
+  let pair = useLadder && images.length === 2 ? useLadder.pair : null;
   // one term's images taken out whose rest R has no fourth moment (a second power tail of index <= 4, e.g. a Student t
   // with nu < 4 beside a pareto): the stop-loss residual needs E R^4 (its images' sum of E[|R|; |R| > r] <= E R^n / r^(n-1)
   // converges for n >= 4 only, ./heavy-residual.ts), the cdf's does not. The sums take out the next heaviest term's images
   // as well (from its direct law: the nodes are the same) and the pair's bound answers, where the model has them
   const twoLaws = model.tailTerm?.images?.laws;
-  if (useLadder && resid && !part.kernels.length && !resid.lm.some((v, n) => n >= 4 && Number.isFinite(v)) && twoLaws?.length === 2 && twoLaws.every(usable)) {
+  if (useLadder && resid && !resid.lm.some((v, n) => n >= 4 && Number.isFinite(v)) && twoLaws?.length === 2 && twoLaws.every(usable)) {
     const pl = pairLaw(model.tailTerm!);
     if (pl) {
       images = twoLaws;
@@ -198,7 +199,7 @@ export function heavyShortfall(
     const floor = ((2 * h * s) / Math.PI) * (1 - 1e-6);
     return Number.isFinite(floor) ? floor : 0;
   };
-  const boundAt = stopLossBuckets(resid, pair, T0);
+  const boundAt = stopLossBuckets(resid, pair, T0, part.kernels);
   // level lev's sum V = mass T/2 - (2h/pi) sum_k Re(phi_k e^{-i t_k y}) / t_k^2 less the images, its rounding and the images' bound
   const levelSum = (lev: number, q: number, y: number) => {
     const T = T0 * 2 ** lev;
