@@ -148,6 +148,9 @@ export interface Node {
   powerIndices?: number[];
   /** sums: the term with strictly the heaviest power tail, when it has a direct law */
   tailTerm?: TailTerm;
+  /** sums: their independent terms, nested sums opened (../operators.ts sumNode), so that the tail analysis of a sum
+   *  holding a sum sees every term (a Student t inside (t + t) as a term of its own) */
+  sumTerms?: Node[];
   /** log of a non-increasing majorant of |phi| on t >= 0, where the tree gives one (./majorant.ts) */
   logMajorant?: import("./majorant").LogMajorant;
   /** a majorant of |phi - the listed atoms' terms| (the continuous part alone), where derived (./layer-majorant.ts) */

@@ -75,7 +75,11 @@ export function sumNode(cs: Node[]): Node {
   }
   const sr = sumDampedRemainder(node, cs);
   if (sr) node.dampedRemainder = sr;
-  const tail = heaviestTerm(cs);
+  // the tail analysis over every independent term, nested sums opened: NB(1.5, 0.4) x weibull + stable(1.25) + (t(4) +
+  // t(2.5)) then takes the stable's and the t(2.5)'s images out with the pair's derived bound (the nested sum, with no
+  // direct law, left the stable's alone, whose stop-loss bound needs a fourth moment of the rest: an estimate answered)
+  node.sumTerms = cs.flatMap((c) => c.sumTerms ?? [c]);
+  const tail = heaviestTerm(node.sumTerms);
   if (tail) node.tailTerm = tail;
   if (kind.type === "lattice" && cs.every((c) => c.table)) {
     node.table = (maxLength) => {
