@@ -51,9 +51,11 @@ export interface DensityTopInputs {
 }
 
 /**
- * The least level from the third (as the ladder, at most the fifth) whose derived bound before its nodes (aliasing left,
- * kernels' images, twice the truncation) is within 0.9 of the tolerance, for the cdf and (asked) the density, while it
- * stays within 64 times the tolerance (as the ladder's levels go on for their derived bound); its sums less
+ * The least level from the third (at most the sixth, one past the ladder's derived levels: a derived bound one doubling
+ * later answers where the ladder would stop on its estimate; pareto + pareto + triangular(0, 0.5, 1), 1000 points: the
+ * pair's bound 1.1e-8 at the fifth, 5.5e-10 at the sixth) whose derived bound before its nodes (aliasing left,
+ * kernels' images, twice the truncation) is within 0.9 of the tolerance, for the cdf and (asked) the density, while the
+ * levels left may bring it there (at the last doubling's rate); its sums less
  * the images, answered where the level's whole bound (with its rounding and the images' bounds, the raw level's derived
  * bound of heavyPath) is within the tolerance. Null where no level qualifies or its whole bound misses: the ladder runs.
  */
@@ -64,7 +66,8 @@ export function densityTop(x: DensityTopInputs): PartOutput | null {
   const n = pts.length;
   const aliasing = (T: number, kind: "cdf" | "pdf") => (resid ? residualAliasing(resid, xLo, xHi, T, kind) : pairAliasing(pair!, xLo, xHi, T, kind));
   let pick: { lev: number; T: number; h: number; K: number; layout: Layout | null; m: "fft" | "gil-pelaez"; preC: number; preP: number } | null = null;
-  for (let lev = 2; lev < Math.min(5, MAX_LEVELS) && !pick; lev++) {
+  let prev = NaN;
+  for (let lev = 2; lev < Math.min(6, MAX_LEVELS) && !pick; lev++) {
     checkDeadline("refine");
     const { T, layout, m } = levelLayout(lev, T0, x.a0, x.anchor, x.centerX, layout0, req, x.method);
     const h = (2 * Math.PI) / T;
@@ -74,10 +77,15 @@ export function densityTop(x: DensityTopInputs): PartOutput | null {
     const ki = part.kernels.length ? kernelAliasing(part.kernels, xLo, xHi, T) : { cdf: 0, pdf: 0 };
     const preC = aliasing(T, "cdf") + ki.cdf + 2 * trunc.cdf;
     const preP = opt.wantPdf ? aliasing(T, "pdf") + ki.pdf + 2 * trunc.pdf : 0;
-    // within the tolerance less a tenth for the rounding and the images' bounds (else the ladder's next level); beyond
-    // 64 times it the ladder stops on its estimate here (heavyPath's levels): so does this choice
+    // within the tolerance less a tenth for the rounding and the images' bounds (else the next level), while the levels
+    // left may bring it there: within 1e3 times it at the first, then at the rate of the last doubling (as the quantiles'
+    // top, ./heavy-top.ts; the pair's bound falls some 20 times a doubling, so 64 times the tolerance at the third level
+    // sent pareto + pareto + triangular to the ladder's estimate)
+    const pre = Math.max(preC, preP);
+    const rate = prev > 0 && Number.isFinite(prev) ? Math.min(1, pre / prev) : NaN;
     if (preC <= 0.9 * tol && preP <= 0.9 * tol) pick = { lev, T, h, K, layout, m, preC, preP };
-    else if (!(Math.max(preC, preP) <= 64 * tol)) return null;
+    else if (!(Number.isFinite(rate) ? pre * rate ** (5 - lev) <= tol : pre <= 1e3 * tol)) return null;
+    prev = pre;
   }
   if (!pick) return null;
   const { lev, T, h, K, layout, m } = pick;
