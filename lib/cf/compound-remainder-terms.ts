@@ -82,6 +82,11 @@ export function times(cur: Term[], base: Term[]): Term[] {
 
 /** products of terms the bound may form (J0 terms to the powers 1..Nb: about (J0 Nb)^2 / 2): past it, no derived bound */
 export const MAX_SERIES_WORK = 200 * 200;
+/**
+ * the same limit for a compound's own bound (./compound-remainder.ts), whose kernels go to order 8: weibull and Burr shapes
+ * from 0.5 on (16 terms, 16 blocks); its build takes some 10 ms at the limit (Poisson(3)-burr(2, 0.55): 61 kernels, 16 ms)
+ */
+export const COMPOUND_SERIES_WORK = 260 * 260;
 
 export interface CompoundRemainderInput {
   rem: EndpointRemainder;
@@ -108,6 +113,17 @@ export function merged(ps: Power[]): Power[] {
     else out.push([c, e]);
   }
   return out;
+}
+
+/**
+ * the powers with each exponent e lowered to the grid of 1/1024 below it, but not below `floor` (e' = max(floor(1024 e) /
+ * 1024, floor) where e >= floor, else e), and merged: c (sigma / r)^{-e} <= c (sigma / r)^{-e'} for e' <= e and sigma >= r,
+ * so the sum bounds the original's, within (sigma / r)^{1/1024} of it. The blocks' products carry exponents that differ in
+ * their last bits (n e0 less the sums' rounding): a severity of shape 0.55 left some hundreds of powers, an exp each per
+ * frequency
+ */
+export function coarseAbove(ps: Power[], floor: number): Power[] {
+  return merged(ps.map(([c, e]) => [c, e >= floor ? Math.max(Math.floor(e * 1024) / 1024, floor) : e] as Power));
 }
 
 export const sumPow = (ps: Power[], ls: number) => {
@@ -253,14 +269,17 @@ export function ofOrder(inp: CompoundRemainderInput, L: number, Nb: number) {
   const jump = jumpSplit(inp, { J0, Nb, matchedM, rhoH, alphaP, blocks, rests });
   // every block's terms past L together (each block's damping e^{-beta n a} <= 1 left out) and the kernels' rests as powers:
   // a few exps per frequency instead of one per block's term and a series per kernel
-  const droppedAll = merged(blocks.flatMap((b) => b.dropped));
+  // (each list's exponents lowered to a grid, not below e0, the bound's declared decay: coarseAbove)
+  const droppedAll = coarseAbove(blocks.flatMap((b) => b.dropped), e0);
   const restP = restPowers(rests);
+  const rhoHC = coarseAbove(rhoHM, e0);
+  const matchedC = coarseAbove(matchedM, e0);
   const bound = (beta: number, t: number, sigma: number, ls: number) => {
-    const rho = rem.rho(beta, t, J0) + sumPow(rhoHM, ls);
+    const rho = rem.rho(beta, t, J0) + sumPow(rhoHC, ls);
     const alpha = sumPow(alphaP, ls);
     const m0 = Math.min(1, alpha + rho);
     const m = Math.exp(-beta * a) * m0;
-    let v = sumPow(matchedM, ls) + sumPow(droppedAll, ls) + restAt(restP, ls);
+    let v = sumPow(matchedC, ls) + sumPow(droppedAll, ls) + restAt(restP, ls);
     for (let n = 1; n <= Nb; n++) v += pErr(n) * Math.pow(m, n);
     for (const b of blocks) {
       const q = pn[b.n];

@@ -4,7 +4,7 @@ import { KERNEL_ORDER, type GammaKernel } from "./damped-kernels";
 import type { Node } from "./node";
 import type { RemainderJump } from "./types";
 import { SAME_EXPONENT, keptTerms, type EndpointRemainder } from "./endpoint-remainder";
-import { MAX_SERIES_WORK, ofOrder, type CompoundRemainderInput } from "./compound-remainder-terms";
+import { COMPOUND_SERIES_WORK, ofOrder, type CompoundRemainderInput } from "./compound-remainder-terms";
 
 const EPS = Number.EPSILON;
 
@@ -55,8 +55,8 @@ export function compoundRemainderBound(inp: CompoundRemainderInput): { bound: (b
   // the same bound with the comparison carried to each order L: past KERNEL_ORDER the blocks' and the kernels' terms of
   // the same exponent cancel in part, which the least of the orders keeps (Poisson(2)-pareto(1.5) at t = 1 024: order 4
   // alone gave 3.2 times the bound of order 8); a higher order pays with larger coefficients at small sigma
-  // the orders whose series work stays within MAX_SERIES_WORK (shape 0.3 weibull claims: order 4 alone), built on first use
-  const orders = [order, order + 2, order + 4].filter((L) => (keptTerms(s, L) * Nb) ** 2 <= MAX_SERIES_WORK);
+  // the orders whose series work stays within COMPOUND_SERIES_WORK (shape 0.3 weibull claims: order 4 alone), built on first use
+  const orders = [order, order + 2, order + 4].filter((L) => (keptTerms(s, L) * Nb) ** 2 <= COMPOUND_SERIES_WORK);
   let fineBuilt: ReturnType<typeof ofOrder>[] | null = null;
   const built = () => (fineBuilt ??= orders.map((L) => ofOrder(inp, L, Nb)));
   const at = (beta: number, t: number) => {
@@ -135,7 +135,7 @@ export function endpointKernelsRemainder(N: Node, rem: EndpointRemainder, kernel
   const pErr = (n: number) => (n < t.p.length ? 1.01 * (rel ? rel(n) : 16 * (n + 1) * EPS) * pn[n] : n > top ? 0 : beyond!(n));
   const cgf = N.countCgf ? realCgf(N.countCgf) : undefined;
   // a severity with so many terms below KERNEL_ORDER (weibull shape below 0.28) that even order 4 passes the work limit: none
-  if ((keptTerms(rem.series, order) * (nMax - 1)) ** 2 > MAX_SERIES_WORK) return null;
+  if ((keptTerms(rem.series, order) * (nMax - 1)) ** 2 > COMPOUND_SERIES_WORK) return null;
   return compoundRemainderBound({ rem, pn, pErr, kernels, ...(cgf ? { cgf } : {}), relErr: N.cfRelError ?? 0, absErr: N.cfAbsError ?? 0, order });
 }
 

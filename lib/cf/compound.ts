@@ -5,7 +5,7 @@ import type { LatticeTable, RemainderJump } from "./types";
 import { compoundDamped } from "./damped-cf";
 import { COMPOUND_ORDER, GAMMA_ORDER, KERNEL_ORDER, compoundSeries, kernelsOfSeries, type EndpointSeries, type GammaKernel, type TransformSeries } from "./damped-kernels";
 import { keptTerms } from "./endpoint-remainder";
-import { MAX_SERIES_WORK } from "./compound-remainder-terms";
+import { COMPOUND_SERIES_WORK } from "./compound-remainder-terms";
 import { layerCompoundAtoms, layerCompoundJumps, layerCompoundKinks, layerCompoundBends, type LayerCompoundAtoms } from "./layer-compound";
 import { builtNote, chooseSpan, isPoissonCount, discretisedCompound, methodNote, type DiscretiseOptions, type DiscretisedCompound } from "./discretise";
 import { withCumulantErrors } from "./cumulant-bounds";
@@ -349,14 +349,14 @@ function kernelsFor(N: Node, X: Node): { series: TransformSeries; kernels: Gamma
 /**
  * The order to which a compound's kernels match its claims' expansion where that expansion's Watson remainder is derived
  * (pareto, lomax, weibull, Burr): COMPOUND_ORDER where the remainder bound's series work allows it (its terms to that
- * order times its blocks, squared, within MAX_SERIES_WORK: weibull shapes from 0.6 on), else KERNEL_ORDER. What the
+ * order times its blocks, squared, within COMPOUND_SERIES_WORK: weibull and Burr shapes from 0.5 on), else KERNEL_ORDER. What the
  * kernels leave then falls like t^-(COMPOUND_ORDER + e0) instead of t^-(KERNEL_ORDER + e0): Poisson(2)-pareto(3, 1),
  * 1000-point density, 74 820 -> 3 933 frequency terms.
  */
 function compoundOrder(sev: EndpointSeries): number {
   const e0 = Math.min(...sev.exps);
   const blocks = Math.floor(COMPOUND_ORDER / e0);
-  return (keptTerms(sev, COMPOUND_ORDER) * blocks) ** 2 <= MAX_SERIES_WORK ? COMPOUND_ORDER : KERNEL_ORDER;
+  return (keptTerms(sev, COMPOUND_ORDER) * blocks) ** 2 <= COMPOUND_SERIES_WORK ? COMPOUND_ORDER : KERNEL_ORDER;
 }
 
 /**
