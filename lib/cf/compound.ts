@@ -363,12 +363,12 @@ function compoundOrder(sev: EndpointSeries): number {
  * Kernels to a high order at one rate r: their weights are the series' coefficients over r^e less the lower kernels'
  * binomial terms, which grow like the claims' density's Taylor coefficients at its endpoint times e! / r^e where r is below
  * their growth (pareto(3, 1) to order 8 at r = 1: weights up to 2.4e5 of both signs, whose closed forms' rounding is 1e-10
- * of the density). So the least r = r0 2^{k/2}, k = 0..10, whose weights' absolute sum is at most 2 (the continuous
- * part's mass is below 1), else the r of the least sum.
+ * of the density; pareto(80, 1): 7e7 at order 4, r0 = 1). So the least r = r0 2^{k/2}, k = 0..16, whose weights' absolute
+ * sum is at most 2 (the continuous part's mass is below 1), else the r of the least sum.
  */
 function kernelsAtRate(s: TransformSeries, r0: number, order: number): { kernels: GammaKernel[]; rate: number } {
   let best: { kernels: GammaKernel[]; rate: number; size: number } | null = null;
-  for (let k = 0; k <= 10; k++) {
+  for (let k = 0; k <= 16; k++) {
     const r = r0 * Math.pow(2, k / 2);
     const kernels = kernelsOfSeries(s, r, order);
     const size = kernels.reduce((v, x) => v + Math.abs(x.w), 0);
