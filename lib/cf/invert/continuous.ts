@@ -368,7 +368,7 @@ function lightPath(
       levels: 1,
       notes,
       method,
-      solution: { part, nodes, window: { a, b }, shape, error, levels: 1, notes, envelope: env, aliasCore, sumErrCdf, valuesCdf: round.valuesCdf },
+      solution: { part, nodes, window: { a, b }, shape, error, levels: 1, notes, envelope: env, aliasCore, sumErrCdf, valuesCdf: round.valuesCdf, valuesSplit: round.valuesSplit },
     };
     // stop when the aliasing bound meets its target or is dominated by the sums' own error floor
     const pdfFloor = (4 * (sumErrCdf + aliasCdf)) / ds[ds.length - 1] + (2 * aliasCdf) / T;

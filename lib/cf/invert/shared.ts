@@ -41,6 +41,20 @@ export interface PartSolution {
   sumErrCdf: number;
   /** the node values' errors in it (roundingOf's valuesCdf: the CF values', the atoms' and kernels' subtraction, the nodes') */
   valuesCdf?: number;
+  /** valuesCdf's parts apart from the CF values' own, node by node (roundingOf's valuesSplit) */
+  valuesSplit?: ValuesSplit;
+}
+
+/**
+ * The parts of roundingOf's valuesCdf other than the CF values' relative errors, node by node where their form allows: node
+ * k's error is at most A + G' t_k (its cdf term (A + G' t_k) / (pi (k + 1/2)), G = G' h / pi the same per node: the atoms'
+ * subtraction, the declared absolute error, the nodes' own rounding), plus `rest` charged as a whole (kernels; the nodes'
+ * rounding where only its total is known: G is then NaN)
+ */
+export interface ValuesSplit {
+  A: number;
+  G: number;
+  rest: number;
 }
 
 export interface PartOutput {
@@ -139,7 +153,7 @@ export function kernelAbs(part: ContinuousPart): number {
  *   gridRounding, with the part's Lipschitz constant and the model's own argument slope; left out where not derived).
  * ymax bounds |x - center| over the points (default: the period 2 pi / h, which holds the window).
  */
-export function roundingOf(part: ContinuousPart, nodes: Nodes, ymax = (2 * Math.PI) / nodes.h, fftN = 0): { cdf: number; pdf: number; valuesCdf: number } {
+export function roundingOf(part: ContinuousPart, nodes: Nodes, ymax = (2 * Math.PI) / nodes.h, fftN = 0): { cdf: number; pdf: number; valuesCdf: number; valuesSplit: ValuesSplit } {
   const U = EPS;
   const K = nodes.K;
   const blocks = Math.ceil(K / RESYNC);
@@ -192,8 +206,10 @@ export function roundingOf(part: ContinuousPart, nodes: Nodes, ymax = (2 * Math.
     grid.cdf + cfCdf +
     // (h/pi) sum_k (atomA + atomB t_k + cfAbs) / t_k = (atomA + cfAbs) (1/pi) sum 1/(k + 1/2) + atomB K h / pi
     (atomA + cfAbs) * harmonic + (atomB * T) / Math.PI + 8 * EPS * (1 + kAbs) * (Math.log(nodes.K + 1) + 1);
+  const kern = 8 * EPS * (1 + kAbs) * (Math.log(nodes.K + 1) + 1);
   return {
     valuesCdf,
+    valuesSplit: { A: atomA + cfAbs, G: (atomB * nodes.h) / Math.PI + gridNode(part, nodes, fftN > 1), rest: kern },
     cdf: valuesCdf + perTerm * nodes.absCdf + driftCdf + phase * nodes.absPdf + fftCdf + 2 * U * (nodes.mass + nodes.absCdf),
     pdf:
       grid.pdf + perTerm * nodes.absPdf + driftPdf + phase * nodes.h * moment + cfPdf + fftPdf + 2 * U * nodes.absPdf +
@@ -357,6 +373,19 @@ export function atomMass(atoms: Atom[], x: number): { below: number; above: numb
     else above += a.p;
   }
   return { below, above };
+}
+
+/**
+ * gridTerm's share of one node in the cdf sum, (u L + S) t_k / (pi (k + 1/2)) = (u L + S) h / pi (../arg-rounding.ts
+ * gridRounding with K = 1), with gridTerm's L and S; NaN where gridTerm takes the nodes' envelope-capped total and no
+ * Lipschitz constant is derived (only the total is known then)
+ */
+function gridNode(part: ContinuousPart, nodes: Nodes, fft: boolean): number {
+  const S0 = (part.model.cfArgSlope ?? 0) / part.weight;
+  const S = Number.isFinite(S0) ? S0 : 0;
+  const L = nodes.exact ? 0 : (fft ? 2 : 1) * partLipschitz(part);
+  if (!Number.isFinite(L) && nodes.grid) return NaN;
+  return gridRounding(Number.isFinite(L) ? L : 0, S, nodes.h, 1).cdf;
 }
 
 /** roundingOf's term for the rounded nodes (each of the part's Lipschitz constant and the model's slope left out where not derived) */

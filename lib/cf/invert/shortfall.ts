@@ -72,14 +72,24 @@ function nodeValueErrors(sol: PartSolution, d: number): number {
   const { h, K, cfErrAt, cfErrCdf } = sol.nodes;
   const values = sol.valuesCdf ?? sol.sumErrCdf;
   if (!cfErrAt || cfErrCdf === undefined || sol.valuesCdf === undefined) return Math.min(d, 4 / h) * values;
+  // node by node also the other parts where their form is known (./shared.ts ValuesSplit: node k's cdf term A / (pi (k +
+  // 1/2)) + G), each weighted by its own min(d, 2 / t_k) rather than all by the first node's: the nodes' rounding, which
+  // grows with t_k, then counts about 2 ln K / h instead of K 4 / h times its per-node share
+  const sp = sol.valuesSplit;
+  const byNode = !!sp && Number.isFinite(sp.A) && Number.isFinite(sp.G) && Number.isFinite(sp.rest);
   let s = 0;
+  let o = 0;
   for (let k = 0; k < K; k++) {
     const m = k + 0.5;
-    s += (cfErrAt[k] * Math.min(d, 2 / (m * h))) / m;
+    const wk = Math.min(d, 2 / (m * h));
+    s += (cfErrAt[k] * wk) / m;
+    if (byNode) o += (sp!.A / (Math.PI * m) + sp!.G) * wk;
   }
   const cf = (s * (1 + (K + 8) * Number.EPSILON)) / Math.PI;
   const rest = Math.max(values - cfErrCdf, 0) + 4 * Number.EPSILON * values;
-  return cf + Math.min(d, 4 / h) * rest * (1 + 2 * Number.EPSILON);
+  const whole = Math.min(d, 4 / h) * rest * (1 + 2 * Number.EPSILON);
+  const split = byNode ? (o * (1 + (K + 8) * Number.EPSILON) + Math.min(d, 4 / h) * (sp!.rest + 4 * Number.EPSILON * values)) * (1 + 2 * Number.EPSILON) : Infinity;
+  return cf + Math.min(whole, split);
 }
 
 export function shortfallLight(
