@@ -53,7 +53,10 @@ export interface PartSolution {
  */
 export interface ValuesSplit {
   A: number;
-  G: number;
+  /** G less the nodes' rounding (gridNode adds it, formed only where asked: it takes the part's Lipschitz constant) */
+  B: number;
+  /** whether the sums went through the FFT (the nodes' move is then twice) */
+  fft: boolean;
   rest: number;
 }
 
@@ -209,7 +212,7 @@ export function roundingOf(part: ContinuousPart, nodes: Nodes, ymax = (2 * Math.
   const kern = 8 * EPS * (1 + kAbs) * (Math.log(nodes.K + 1) + 1);
   return {
     valuesCdf,
-    valuesSplit: { A: atomA + cfAbs, G: (atomB * nodes.h) / Math.PI + gridNode(part, nodes, fftN > 1), rest: kern },
+    valuesSplit: { A: atomA + cfAbs, B: (atomB * nodes.h) / Math.PI, fft: fftN > 1, rest: kern },
     cdf: valuesCdf + perTerm * nodes.absCdf + driftCdf + phase * nodes.absPdf + fftCdf + 2 * U * (nodes.mass + nodes.absCdf),
     pdf:
       grid.pdf + perTerm * nodes.absPdf + driftPdf + phase * nodes.h * moment + cfPdf + fftPdf + 2 * U * nodes.absPdf +
@@ -380,7 +383,7 @@ export function atomMass(atoms: Atom[], x: number): { below: number; above: numb
  * gridRounding with K = 1), with gridTerm's L and S; NaN where gridTerm takes the nodes' envelope-capped total and no
  * Lipschitz constant is derived (only the total is known then)
  */
-function gridNode(part: ContinuousPart, nodes: Nodes, fft: boolean): number {
+export function gridNode(part: ContinuousPart, nodes: Nodes, fft: boolean): number {
   const S0 = (part.model.cfArgSlope ?? 0) / part.weight;
   const S = Number.isFinite(S0) ? S0 : 0;
   const L = nodes.exact ? 0 : (fft ? 2 : 1) * partLipschitz(part);

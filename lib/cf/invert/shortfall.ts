@@ -1,5 +1,6 @@
 import type { Atom } from "../types";
 import { type PartSolution } from "./continuous";
+import { gridNode } from "./shared";
 import { incGamma } from "./incgamma";
 import { truncationAt } from "./nodes";
 import { type EndpointKernels } from "./part";
@@ -76,14 +77,15 @@ function nodeValueErrors(sol: PartSolution, d: number): number {
   // 1/2)) + G), each weighted by its own min(d, 2 / t_k) rather than all by the first node's: the nodes' rounding, which
   // grows with t_k, then counts about 2 ln K / h instead of K 4 / h times its per-node share
   const sp = sol.valuesSplit;
-  const byNode = !!sp && Number.isFinite(sp.A) && Number.isFinite(sp.G) && Number.isFinite(sp.rest);
+  const G = sp ? sp.B + gridNode(sol.part, sol.nodes, sp.fft) : NaN;
+  const byNode = !!sp && Number.isFinite(sp.A) && Number.isFinite(G) && Number.isFinite(sp.rest);
   let s = 0;
   let o = 0;
   for (let k = 0; k < K; k++) {
     const m = k + 0.5;
     const wk = Math.min(d, 2 / (m * h));
     s += (cfErrAt[k] * wk) / m;
-    if (byNode) o += (sp!.A / (Math.PI * m) + sp!.G) * wk;
+    if (byNode) o += (sp!.A / (Math.PI * m) + G) * wk;
   }
   const cf = (s * (1 + (K + 8) * Number.EPSILON)) / Math.PI;
   const rest = Math.max(values - cfErrCdf, 0) + 4 * Number.EPSILON * values;
