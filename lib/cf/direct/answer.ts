@@ -73,9 +73,11 @@ interface Probe {
  * bracketed secant-bisection on F(x) = p (or S(x) = 1 - p above the median, keeping relative accuracy in the upper
  * tail). The error bound is rigorous given the cdf bounds: points xl < q < xr are searched where F(xl) + e < p and
  * F(xr) - e > p, so the true quantile lies in [xl, xr]; the bound is max(q - xl, xr - q). `known`: points already
- * evaluated, from which the search starts its bracket.
+ * evaluated, from which the search starts its bracket. `newton`: where the density at the last point is positive and the
+ * Newton step from it lands inside the bracket, that step is taken instead of false position (for laws whose every point
+ * is costly: a mixture's, ../invert/mixture.ts).
  */
-export function directQuantile(law: DirectLaw, p: number, known: readonly number[] = []): { x: number; err: number } {
+export function directQuantile(law: DirectLaw, p: number, known: readonly number[] = [], newton = false): { x: number; err: number } {
   const [lo, hi] = law.support;
   if (p <= 0) return { x: lo, err: 0 };
   if (p >= 1) return { x: hi, err: 0 };
@@ -123,18 +125,25 @@ export function directQuantile(law: DirectLaw, p: number, known: readonly number
     }
   }
   if (!(a.r <= 0 && b.r >= 0)) return { x: a.r > 0 ? a.x : b.x, err: Infinity };
-  // Illinois false position with bisection fallback, on r
+  // Illinois false position with bisection fallback, on r; with `newton`, the step x - r/f from the last point instead where
+  // the density there is positive and the step lands inside the bracket (r' = f: quadratic convergence near the root, where
+  // false position from a wide bracket creeps; the density only places the next point, the bracket decides)
   let side = 0;
   let fa = a.r;
   let fb = b.r;
+  let last: Probe | null = null;
   for (let it = 0; it < 200; it++) {
     if (b.x - a.x <= 2 * Number.EPSILON * Math.max(Math.abs(a.x), Math.abs(b.x))) break;
-    let xn = (a.x * fb - b.x * fa) / (fb - fa);
-    if (!(xn > a.x && xn < b.x)) xn = 0.5 * (a.x + b.x);
-    // keep bisecting when the bracket spans orders of magnitude (far tails)
-    if (a.x > 0 && b.x / a.x > 4) xn = Math.sqrt(a.x * b.x);
-    if (b.x < 0 && a.x / b.x > 4) xn = -Math.sqrt(a.x * b.x);
+    let xn = newton && last && last.f > 0 && Number.isFinite(last.f) ? last.x - last.r / last.f : NaN;
+    if (!(xn > a.x && xn < b.x)) {
+      xn = (a.x * fb - b.x * fa) / (fb - fa);
+      if (!(xn > a.x && xn < b.x)) xn = 0.5 * (a.x + b.x);
+      // keep bisecting when the bracket spans orders of magnitude (far tails)
+      if (a.x > 0 && b.x / a.x > 4) xn = Math.sqrt(a.x * b.x);
+      if (b.x < 0 && a.x / b.x > 4) xn = -Math.sqrt(a.x * b.x);
+    }
     const c = probe(xn);
+    last = c;
     if (c.r === 0) return refineBounds(probe, c, lo, hi);
     if (c.r < 0) {
       a = c;
