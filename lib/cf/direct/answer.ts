@@ -132,10 +132,15 @@ export function directQuantile(law: DirectLaw, p: number, known: readonly number
   let fa = a.r;
   let fb = b.r;
   let last: Probe | null = null;
+  // a Newton step that did not halve the residual: the next step is false position's (the bracket keeps shrinking at its
+  // rate whatever the density's accuracy)
+  let slow = false;
   for (let it = 0; it < 200; it++) {
     if (b.x - a.x <= 2 * Number.EPSILON * Math.max(Math.abs(a.x), Math.abs(b.x))) break;
-    let xn = newton && last && last.f > 0 && Number.isFinite(last.f) ? last.x - last.r / last.f : NaN;
-    if (!(xn > a.x && xn < b.x)) {
+    const prev = last;
+    let xn: number = newton && !slow && last && last.f > 0 && Number.isFinite(last.f) ? last.x - last.r / last.f : NaN;
+    const byNewton: boolean = xn > a.x && xn < b.x;
+    if (!byNewton) {
       xn = (a.x * fb - b.x * fa) / (fb - fa);
       if (!(xn > a.x && xn < b.x)) xn = 0.5 * (a.x + b.x);
       // keep bisecting when the bracket spans orders of magnitude (far tails)
@@ -156,6 +161,7 @@ export function directQuantile(law: DirectLaw, p: number, known: readonly number
       if (side === 1) fa /= 2;
       side = 1;
     }
+    slow = byNewton && Math.abs(c.r) > 0.5 * Math.abs(prev!.r);
     if (Math.abs(c.r) <= c.e) break;
   }
   const best = Math.abs(a.r) < Math.abs(b.r) ? a : b;
