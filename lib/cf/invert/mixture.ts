@@ -37,7 +37,7 @@ export function mixtureLeaves(model: CompiledModel): { w: number; m: CompiledMod
  * between separated components), the answer moves to the stretch's left end y = min{y : F(y) + e(y) >= p}; the
  * quantile then lies in [y, x + err], and that width is the error.
  */
-function leftEnd(law: DirectLaw, r: { x: number; err: number }, p: number, spread: number, pt: DirectPoint): { x: number; err: number; flat: boolean } {
+function leftEnd(law: DirectLaw, r: { x: number; err: number }, p: number, spread: number, pt: DirectPoint, known: readonly number[] = []): { x: number; err: number; flat: boolean } {
   if (!Number.isFinite(r.x) || !Number.isFinite(r.err) || p <= 0 || p >= 1) return { ...r, flat: false };
   const up = (y: number) => {
     law.at(y, pt);
@@ -45,7 +45,16 @@ function leftEnd(law: DirectLaw, r: { x: number; err: number }, p: number, sprea
   };
   law.at(r.x, pt);
   const dx = Math.min(Math.max(1e-7 * Math.max(Math.abs(r.x), spread), pt.pdf > 0 ? (8 * pt.cdfErr) / pt.pdf : Infinity), 0.01 * spread);
-  if (!(dx > 0) || !up(r.x - dx)) return { ...r, flat: false };
+  if (!(dx > 0)) return { ...r, flat: false };
+  // a point already evaluated in [x - dx, x) (the search's own, answered again at no cost) where F + e < p: the true F is
+  // below p there, so the quantile lies past it and no stretch to its left can hold it (the walk below would only widen the
+  // bracket the search found)
+  for (const y of known) {
+    if (!(y >= r.x - dx && y < r.x)) continue;
+    law.at(y, pt);
+    if (pt.cdf + pt.cdfErr < p) return { ...r, flat: false };
+  }
+  if (!up(r.x - dx)) return { ...r, flat: false };
   // walk left until F + e < p (or the support's start), then bisect
   let hi = r.x - dx;
   let d = 2 * dx;
@@ -131,7 +140,7 @@ export function mixtureQuantiles(model: CompiledModel, p: Float64Array, o: Quant
     // Newton steps from the mixture's density: each point costs every component's evaluation (seed 3's 7-part compound mix:
     // 52 -> 41 points for seven levels with ES)
     const q = directQuantile(law, pi, seen(), true);
-    const r = final ? leftEnd(law, q, pi, model.scale, pt) : { ...q, flat: false };
+    const r = final ? leftEnd(law, q, pi, model.scale, pt, seen()) : { ...q, flat: false };
     onFlat[i] = r.flat ? 1 : 0;
     x[i] = r.x;
     err[i] = r.err;
@@ -180,7 +189,7 @@ export function mixtureQuantiles(model: CompiledModel, p: Float64Array, o: Quant
   for (const i of order) {
     if (again[i]) solve(i, true);
     else if (!atAtom[i]) {
-      const r = leftEnd(law, { x: x[i], err: err[i] }, p[i], model.scale, pt);
+      const r = leftEnd(law, { x: x[i], err: err[i] }, p[i], model.scale, pt, seen());
       onFlat[i] = r.flat ? 1 : 0;
       x[i] = r.x;
       err[i] = r.err;
