@@ -17,10 +17,17 @@ describe("Redis REST stand-in", () => {
   it("runs the rate limiter's scripts: a 3-per-10 s sliding window allows 3 then refuses", async () => {
     const limiter = new Ratelimit({ redis, limiter: Ratelimit.slidingWindow(3, "10 s"), prefix: `rl-test-${Date.now()}` });
     const results = [];
-    for (let i = 0; i < 5; i++) results.push(await limiter.limit("key-a"));
+    let before = 0;
+    for (let i = 0; i < 5; i++) {
+      before = Date.now();
+      results.push(await limiter.limit("key-a"));
+    }
     expect(results.map((r) => r.success)).toEqual([true, true, true, false, false]);
     expect(results[4].remaining).toBe(0);
-    expect(results[4].reset).toBeGreaterThan(Date.now());
+    // reset is the end of the window the last call fell in: after that call began, at most one window later (compared
+    // with the clock before the call, not after it: the window may end in the millisecond between)
+    expect(results[4].reset).toBeGreaterThan(before);
+    expect(results[4].reset).toBeLessThanOrEqual(before + 10_000 + 1_000);
     // another identifier has its own window
     expect((await limiter.limit("key-b")).success).toBe(true);
   });
