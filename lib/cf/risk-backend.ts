@@ -185,8 +185,8 @@ export function excess(c: CompiledModel, be: Backend, ds: number[]): { value: nu
   const viaEs = shortfallExcess(c, be, ds, mean, left || !grid ? 0 : 1e-10);
   if (left) return viaEs;
   // the grid's bracket needs no smoothness but is coarse (h times the drop of S); the shortfall route carries the ES
-  // bound: each point takes the smaller of the two bounds, both of which hold
-  // bound (the grid only where the shortfall's bound is above 1e-8 of the value: it costs a 2^15-point cdf grid)
+  // bound: each point takes the smaller of the two bounds, both of which hold (the grid only where the shortfall's bound
+  // is above 1e-8 of the value: it costs a 2^15-point cdf grid)
   const need = ds.flatMap((_, i) => (viaEs[i].error <= 1e-8 * (1 + Math.abs(viaEs[i].value)) ? [] : [i]));
   const g = need.length ? gridSide(c, need.map((i) => ds[i]), "upper") : null;
   if (g) need.forEach((i, j) => g[j].error < viaEs[i].error && (viaEs[i] = g[j]));
